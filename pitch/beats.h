@@ -1,0 +1,41 @@
+// Beats — beat rates of coinciding partials between two harmonic tones.
+//
+// Two harmonic tones a and b with f_b / f_a near the just ratio p/q (lowest
+// terms) share a partial: the p-th partial of a and the q-th partial of b
+// both lie near p * f_a. When the interval is mistuned they beat at the
+// difference of the two partials' frequencies, |q * f_b - p * f_a| Hz
+// (Helmholtz, On the Sensations of Tone, 1863/1885, ch. VIII). Other
+// partial pairs (m, n) with m * f_a close to n * f_b beat too; near_pairs
+// lists them. A mistuning of d cents makes the coinciding pair beat at
+// p * f_a * |2^(d/1200) - 1| Hz.
+#pragma once
+
+#include "pitch/ratio.h"
+
+#include <vector>
+
+namespace beatless::pitch {
+
+struct PartialPair {
+    int partial_a = 0;        // harmonic number on tone a (1 = fundamental)
+    int partial_b = 0;        // harmonic number on tone b
+    double freq_a_hz = 0.0;   // partial_a * f_a
+    double freq_b_hz = 0.0;   // partial_b * f_b
+    double beat_hz = 0.0;     // |freq_a_hz - freq_b_hz|
+};
+
+// The pair that coincides when f_b / f_a is exactly `target`.
+PartialPair coinciding_pair(double f_a_hz, double f_b_hz, const Ratio& target);
+
+// Every pair (m, n), 1 <= m, n <= max_harmonic, whose partials lie within
+// within_hz of each other, sorted by m + n (lowest partials first).
+std::vector<PartialPair> near_pairs(double f_a_hz, double f_b_hz, int max_harmonic, double within_hz);
+
+// Beat rate of the coinciding pair when b sits dev_cents off the ratio above a.
+double beat_rate_at(double f_a_hz, const Ratio& target, double dev_cents);
+
+// The simple ratio (terms <= max_term) nearest to `cents`, ties to the lower
+// product p*q: which partials beat against an irrational interval such as 600c.
+Ratio nearest_simple_ratio(double cents, int max_term = 11);
+
+}  // namespace beatless::pitch

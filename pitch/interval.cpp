@@ -1,0 +1,136 @@
+#include "pitch/interval.h"
+
+#include "pitch/error.h"
+#include "pitch/text.h"
+
+#include <array>
+#include <cassert>
+#include <cctype>
+#include <charconv>
+#include <cmath>
+#include <cstdio>
+
+namespace beatless::pitch {
+
+std::string format_trimmed(double v, int decimals) {
+    char buf[64];
+    std::snprintf(buf, sizeof buf, "%.*f", decimals, v);
+    std::string s = buf;
+    if (s.find('.') != std::string::npos) {
+        while (!s.empty() && s.back() == '0') s.pop_back();
+        if (!s.empty() && s.back() == '.') s.pop_back();
+    }
+    if (s == "-0") s = "0";
+    return s;
+}
+
+Interval Interval::of(const Ratio& r) {
+    Interval iv;
+    iv.is_ratio_ = true;
+    iv.ratio_ = r;
+    iv.cents_ = r.cents();
+    return iv;
+}
+
+Interval Interval::from_cents(double cents) {
+    if (!std::isfinite(cents)) throw Error("cents value is not a finite number");
+    Interval iv;
+    iv.is_ratio_ = false;
+    iv.cents_ = cents;
+    return iv;
+}
+
+const Ratio& Interval::ratio() const {
+    assert(is_ratio_ && "Interval::ratio() called on a cents interval");
+    return ratio_;
+}
+
+double Interval::value() const { return is_ratio_ ? ratio_.value() : std::exp2(cents_ / 1200.0); }
+
+std::string Interval::str() const { return is_ratio_ ? ratio_.str() : format_trimmed(cents_, 3) + "c"; }
+
+namespace {
+
+Interval parse_factor(std::string_view whole, std::string_view part) {
+    part = trim(part);
+    const bool numeric_start = !part.empty() && (std::isdigit(static_cast<unsigned char>(part[0])) || part[0] == '.' ||
+                                                 part[0] == '-' || part[0] == '+');
+    if (numeric_start && (part.back() == 'c' || part.back() == 'C')) {
+        const std::string_view num = trim(part.substr(0, part.size() - 1));
+        double v = 0.0;
+        auto [end, ec] = std::from_chars(num.data(), num.data() + num.size(), v, std::chars_format::fixed);
+        if (num.empty() || ec != std::errc() || end != num.data() + num.size() || !std::isfinite(v))
+            throw Error(quote(whole) + ": not a cents value (expected a form such as 600c or 583.5c)");
+        if (std::fabs(v) > 1.0e6) throw Error(quote(whole) + ": cents value out of range (more than 1,000,000 cents)");
+        return Interval::from_cents(v);
+    }
+    return Interval::of(parse_ratio(part));
+}
+
+}  // namespace
+
+Interval parse_interval(std::string_view text) {
+    const std::string_view t = trim(text);
+    if (t.empty()) throw Error("'': empty interval (expected a form such as 7/5, 7:5, 3/2*5/4 or 600c)");
+    Interval acc;
+    std::size_t start = 0;
+    while (true) {
+        const auto star = t.find('*', start);
+        const std::string_view part = t.substr(start, star == std::string_view::npos ? t.npos : star - start);
+        acc = acc * parse_factor(text, part);
+        if (star == std::string_view::npos) break;
+        start = star + 1;
+    }
+    return acc;
+}
+
+Interval operator*(const Interval& a, const Interval& b) {
+    if (a.is_ratio() && b.is_ratio()) return Interval::of(a.ratio() * b.ratio());
+    return Interval::from_cents(a.cents() + b.cents());
+}
+
+void IntervalNames::add(const Interval& iv, std::string name) { names_[iv.str()] = std::move(name); }
+
+const std::string* IntervalNames::find(const Interval& iv) const {
+    const auto it = names_.find(iv.str());
+    return it == names_.end() ? nullptr : &it->second;
+}
+
+EtNearest nearest_et_step(double cents) {
+    EtNearest e;
+    e.step = static_cast<int>(std::lround(cents / 100.0));
+    e.offset_cents = cents - 100.0 * e.step;
+    return e;
+}
+
+std::string et_step_name(int step) {
+    // Interval names of 12-tone equal temperament (common practice).
+    static const std::array<const char*, 13> names = {
+        "unison",        "minor second", "major second",  "minor third", "major third",
+        "perfect fourth", "tritone",     "perfect fifth", "minor sixth", "major sixth",
+        "minor seventh", "major seventh", "octave"};
+    const int octaves = step >= 0 ? step / 12 : -((-step + 11) / 12);
+    int within = step - 12 * octaves;
+    if (within == 0 && octaves > 0) return octaves == 1 ? "octave" : std::to_string(octaves) + " octaves";
+    std::string s = names[static_cast<std::size_t>(within)];
+    if (octaves > 0) s += " + " + (octaves == 1 ? std::string("octave") : std::to_string(octaves) + " octaves");
+    if (octaves < 0) s += " - " + (octaves == -1 ? std::string("octave") : std::to_string(-octaves) + " octaves");
+    return s;
+}
+
+IntervalFacts interval_facts(const Interval& iv, const IntervalNames& names) {
+    IntervalFacts f;
+    f.text = iv.str();
+    f.cents = iv.cents();
+    if (iv.is_ratio()) {
+        f.prime_limit = prime_limit(iv.ratio());
+        f.odd_limit = odd_limit(iv.ratio());
+        f.tenney_height = tenney_height(iv.ratio());
+    }
+    f.et = nearest_et_step(f.cents);
+    f.et_name = et_step_name(f.et.step);
+    if (const std::string* n = names.find(iv)) f.name = *n;
+    return f;
+}
+
+}  // namespace beatless::pitch

@@ -1,0 +1,42 @@
+// Notes — scientific pitch notation and frequencies for any A4 reference.
+//
+// Scientific pitch notation (Acoustical Society of America, 1939): C4 is
+// middle C, octave numbers change at C, A4 is the tuning reference (440 Hz
+// by ISO 16:1975). MIDI note 69 is A4, and 12-tone equal temperament
+// spaces notes by 2^(1/12):  f = a4_hz * 2^((midi - 69) / 12).
+// Note names accept a letter A-G, any number of '#' or 'b' (also the
+// Unicode sharp and flat signs), and an octave from -1 to 10: "C4", "F#3",
+// "Bb2", "C##5".
+#pragma once
+
+#include <string>
+#include <string_view>
+
+namespace beatless::pitch {
+
+constexpr double kDefaultA4Hz = 440.0;  // ISO 16:1975
+
+double midi_to_hz(double midi, double a4_hz = kDefaultA4Hz);
+double hz_to_midi(double freq_hz, double a4_hz = kDefaultA4Hz);
+
+// "C4" -> MIDI 60; throws Error naming the text when it is not a note.
+int note_to_midi(std::string_view name);
+double note_to_hz(std::string_view name, double a4_hz = kDefaultA4Hz);
+
+struct NearestNote {
+    std::string name;         // "A4", "F#3" (sharps for black keys)
+    int midi = 0;             // MIDI number of that note
+    double offset_cents = 0;  // freq_hz above (+) or below (-) the note
+};
+NearestNote hz_to_note(double freq_hz, double a4_hz = kDefaultA4Hz);
+std::string midi_to_name(int midi);  // 60 -> "C4"
+
+// A root or frequency given as a note name ("A2") or a number of Hz
+// ("110", "110hz", "110 Hz"). Throws Error naming the text when it is
+// neither, or when the frequency is not in 1 Hz .. 20 kHz.
+double parse_frequency(std::string_view text, double a4_hz = kDefaultA4Hz);
+
+// Checks an A4 reference given by the user: 400-480 Hz (throws Error otherwise).
+double check_a4(double a4_hz);
+
+}  // namespace beatless::pitch

@@ -1,0 +1,160 @@
+// beatless ratio RATIO... [--root NOTE|HZ] [--a4 HZ] [--format text|json]
+//
+// Prints the facts of each interval (cents, prime and odd limit, Tenney
+// height, nearest equal-tempered step, name of the trade); with a root, the
+// two frequencies, the coinciding partials and their beat rates at 0, ±2,
+// ±5 and ±10 cents of mistuning. A chord such as 4:5:6:7 stands for each of
+// its upper notes against the lowest.
+#include "pitch/beats.h"
+#include "pitch/error.h"
+#include "pitch/interval.h"
+#include "pitch/notes.h"
+#include "pitch/text.h"
+#include "ui/commands.h"
+#include "ui/json.h"
+#include "ui/target_files.h"
+
+#include <cmath>
+#include <cstdio>
+#include <memory>
+#include <optional>
+
+namespace beatless::ui {
+
+namespace {
+
+struct RatioOptions {
+    std::vector<std::string> ratios;
+    std::string root;
+    double a4_hz = pitch::kDefaultA4Hz;
+    Format format = Format::text;
+};
+
+constexpr double kMistunings[] = {-10, -5, -2, 0, 2, 5, 10};
+
+struct Entry {
+    pitch::Interval interval;
+    std::string given;  // what the user typed (a chord expands to several entries)
+};
+
+std::vector<Entry> expand(const std::vector<std::string>& args) {
+    std::vector<Entry> out;
+    for (const auto& a : args) {
+        if (std::count(a.begin(), a.end(), ':') >= 2) {
+            const auto terms = pitch::parse_chord_terms(a);
+            for (std::size_t i = 1; i < terms.size(); ++i)
+                out.push_back({pitch::Interval::of(pitch::Ratio::make(terms[i], terms[0])), a});
+        } else {
+            out.push_back({pitch::parse_interval(a), a});
+        }
+    }
+    return out;
+}
+
+std::string ordinal(int n) {
+    const int m100 = n % 100;
+    const char* suffix = (m100 >= 11 && m100 <= 13) ? "th" : n % 10 == 1 ? "st" : n % 10 == 2 ? "nd" : n % 10 == 3 ? "rd" : "th";
+    return std::to_string(n) + suffix;
+}
+
+// The ratio whose partials beat for this interval: itself, or for a cents
+// interval the nearest simple ratio.
+pitch::Ratio beating_ratio(const pitch::Interval& iv) {
+    return iv.is_ratio() ? iv.ratio() : pitch::nearest_simple_ratio(iv.cents());
+}
+
+double beat_at(double root_hz, const pitch::Interval& iv, double dev_cents) {
+    const pitch::Ratio r = beating_ratio(iv);
+    const double upper = root_hz * iv.value() * std::exp2(dev_cents / 1200.0);
+    return pitch::coinciding_pair(root_hz, upper, r).beat_hz;
+}
+
+int run_ratio(const RatioOptions& o) {
+    pitch::check_a4(o.a4_hz);
+    const std::vector<Entry> entries = expand(o.ratios);
+    std::optional<double> root_hz;
+    if (!o.root.empty()) root_hz = pitch::parse_frequency(o.root, o.a4_hz);
+    const auto& names = interval_names();
+
+    if (o.format == Format::json) {
+        JsonWriter j;
+        j.begin_object();
+        if (root_hz) j.key("root_hz").value(*root_hz, 3).key("a4_hz").value(o.a4_hz, 3);
+        j.key("intervals").begin_array();
+        for (const auto& e : entries) {
+            const auto f = pitch::interval_facts(e.interval, names);
+            j.begin_object();
+            j.key("ratio").value(f.text).key("cents").value(f.cents, 3);
+            j.key("prime_limit").value(f.prime_limit).key("odd_limit").value(f.odd_limit);
+            j.key("tenney_height");
+            if (f.tenney_height) j.value(*f.tenney_height, 3);
+            else j.null();
+            j.key("et_step").value(f.et.step).key("et_offset_cents").value(f.et.offset_cents, 3);
+            j.key("name");
+            if (f.name.empty()) j.null();
+            else j.value(f.name);
+            if (root_hz) {
+                const pitch::Ratio r = beating_ratio(e.interval);
+                const double upper = *root_hz * e.interval.value();
+                j.key("root_hz").value(*root_hz, 3).key("upper_hz").value(upper, 3);
+                j.key("coinciding_partials").begin_object();
+                j.key("root").value(r.num).key("upper").value(r.den).end_object();
+                j.key("beats").begin_array();
+                for (double d : kMistunings)
+                    j.begin_object().key("dev_cents").value(d, 1).key("beat_hz").value(beat_at(*root_hz, e.interval, d), 3).end_object();
+                j.end_array();
+            }
+            j.end_object();
+        }
+        j.end_array().end_object();
+        std::printf("%s\n", j.str().c_str());
+        return 0;
+    }
+
+    bool first = true;
+    for (const auto& e : entries) {
+        const auto f = pitch::interval_facts(e.interval, names);
+        if (!first) std::printf("\n");
+        first = false;
+        std::printf("%s%s%s\n", f.text.c_str(), f.name.empty() ? "" : "  ", f.name.c_str());
+        if (f.prime_limit) {
+            std::printf("  %.3f cents · prime limit %d · odd limit %lld · Tenney height %.3f\n", f.cents, *f.prime_limit,
+                        static_cast<long long>(*f.odd_limit), *f.tenney_height);
+        } else {
+            std::printf("  %.3f cents · not a ratio (no prime limit or Tenney height)\n", f.cents);
+        }
+        std::printf("  nearest 12-TET step: %s (%d00 cents), %+.3f cents from it\n", f.et_name.c_str(), f.et.step,
+                    f.et.offset_cents);
+        if (!root_hz) continue;
+        const double upper = *root_hz * e.interval.value();
+        const auto rn = pitch::hz_to_note(*root_hz, o.a4_hz);
+        const auto un = pitch::hz_to_note(upper, o.a4_hz);
+        std::printf("  root %.3f Hz (%s %+.1f c) · upper tone %.3f Hz (%s %+.1f c)\n", *root_hz, rn.name.c_str(),
+                    rn.offset_cents, upper, un.name.c_str(), un.offset_cents);
+        const pitch::Ratio r = beating_ratio(e.interval);
+        const auto pair = pitch::coinciding_pair(*root_hz, upper, r);
+        std::printf("  partials that beat: %s of the root (%.3f Hz) with %s of the upper tone (%.3f Hz)%s\n",
+                    ordinal(pair.partial_a).c_str(), pair.freq_a_hz, ordinal(pair.partial_b).c_str(), pair.freq_b_hz,
+                    e.interval.is_ratio() ? "" : (", nearest simple ratio " + r.str()).c_str());
+        std::printf("  mistuning (cents) ");
+        for (double d : kMistunings) std::printf("%8s", (d > 0 ? "+" + pitch::format_trimmed(d, 0) : pitch::format_trimmed(d, 0)).c_str());
+        std::printf("\n  beat rate (Hz)    ");
+        for (double d : kMistunings) std::printf("%8.2f", beat_at(*root_hz, e.interval, d));
+        std::printf("\n");
+    }
+    return 0;
+}
+
+}  // namespace
+
+void register_ratio(CLI::App& app, Runner& run) {
+    auto o = std::make_shared<RatioOptions>();
+    CLI::App* sub = app.add_subcommand("ratio", "Facts of intervals: cents, limits, Tenney height, beat rates over a root");
+    sub->add_option("RATIO", o->ratios, "Intervals: 7/5, 7:5, 3/2*5/4, 600c, or a chord 4:5:6:7")->required();
+    sub->add_option("--root", o->root, "Root as a note (A3) or in Hz (220): adds frequencies and beat rates");
+    sub->add_option("--a4", o->a4_hz, "A4 reference in Hz (400-480, default 440)");
+    add_format_option(*sub, o->format, false);
+    sub->callback([o, &run] { run = [o] { return run_ratio(*o); }; });
+}
+
+}  // namespace beatless::ui
