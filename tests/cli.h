@@ -1,0 +1,41 @@
+// Runs the beatless program in a child process and captures what it prints.
+// Used by the command-line tests (exit codes and one-line messages).
+#pragma once
+
+#include <string>
+#include <utility>
+#include <vector>
+
+namespace beatless::test {
+
+struct RunResult {
+    int exit_code = -1;      // exit status, or 128 + signal number when killed
+    std::string out;         // stdout
+    std::string err;         // stderr
+};
+
+// argv excludes the program; env entries "NAME=value" are added to the
+// current environment. stdin is /dev/null.
+RunResult run_program(const std::vector<std::string>& args, const std::vector<std::string>& env = {});
+
+// Path of the beatless binary under test (BEATLESS_PROGRAM from CMake).
+std::string program_path();
+
+// A fresh temporary directory, removed by the destructor.
+class TempDir {
+public:
+    TempDir();
+    ~TempDir();
+    TempDir(const TempDir&) = delete;
+    TempDir& operator=(const TempDir&) = delete;
+    const std::string& path() const { return path_; }
+    std::string file(const std::string& name) const { return path_ + "/" + name; }
+
+private:
+    std::string path_;
+};
+
+// Number of lines in s (a trailing newline does not start a new line).
+int line_count(const std::string& s);
+
+}  // namespace beatless::test

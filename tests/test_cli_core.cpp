@@ -1,0 +1,107 @@
+// The first commands as a user runs them: output forms, exit codes and the
+// one-line messages for bad input (DESIGN.md: 0 success, 1 bad input, 2 bad
+// usage). Numbers are checked against 1200*log2 computed here and against
+// the beat-rate formula |q*f_high - p*f_low|.
+#include "tests/cli.h"
+
+#include <doctest/doctest.h>
+
+#include <cmath>
+#include <fstream>
+
+using beatless::test::line_count;
+using beatless::test::run_program;
+using beatless::test::TempDir;
+
+namespace {
+// Extracts the number after "key": in a JSON text (first occurrence after `from`).
+double json_number(const std::string& s, const std::string& key, std::size_t from = 0) {
+    const auto k = s.find("\"" + key + "\": ", from);
+    REQUIRE_MESSAGE(k != std::string::npos, "no key " << key << " in " << s);
+    return std::stod(s.substr(k + key.size() + 4));
+}
+}  // namespace
+
+TEST_CASE("ratio --format json carries the facts of each interval") {
+    const auto r = run_program({"ratio", "7/5", "10/7", "600c", "--format", "json"});
+    REQUIRE(r.exit_code == 0);
+    CHECK(r.err.empty());
+    CHECK(r.out.rfind("{\"intervals\": [", 0) == 0);
+    const auto at = r.out.find("\"ratio\": \"10/7\"");
+    REQUIRE(at != std::string::npos);
+    CHECK(json_number(r.out, "cents", at) == doctest::Approx(1200 * std::log2(10.0 / 7.0)).epsilon(1e-6));
+    CHECK(json_number(r.out, "prime_limit", at) == 7);
+    CHECK(json_number(r.out, "tenney_height", at) == doctest::Approx(std::log2(70.0)).epsilon(1e-4));
+    CHECK(json_number(r.out, "et_offset_cents", at) == doctest::Approx(1200 * std::log2(10.0 / 7.0) - 600).epsilon(1e-4));
+    const auto et = r.out.find("\"ratio\": \"600c\"");
+    REQUIRE(et != std::string::npos);
+    CHECK(r.out.find("\"prime_limit\": null", et) != std::string::npos);
+}
+
+TEST_CASE("ratio with a root gives frequencies and beat rates") {
+    const auto r = run_program({"ratio", "7/5", "--root", "A3", "--format", "json"});
+    REQUIRE(r.exit_code == 0);
+    CHECK(json_number(r.out, "root_hz") == doctest::Approx(220.0));
+    CHECK(json_number(r.out, "upper_hz") == doctest::Approx(308.0));
+    // At +5 cents: |5 * 308 * 2^(5/1200) - 7 * 220|.
+    const auto at = r.out.find("\"dev_cents\": 5,");
+    REQUIRE(at != std::string::npos);
+    CHECK(json_number(r.out, "beat_hz", at) == doctest::Approx(5 * 308 * std::exp2(5 / 1200.0) - 1540).epsilon(1e-3));
+    const auto text = run_program({"ratio", "7/5", "--root", "220"});
+    REQUIRE(text.exit_code == 0);
+    CHECK(text.out.find("7th of the root (1540.000 Hz) with 5th of the upper tone") != std::string::npos);
+    // A chord expands to its upper notes over the lowest.
+    const auto chord = run_program({"ratio", "4:5:6:7", "--format", "json"});
+    CHECK(chord.out.find("\"ratio\": \"5/4\"") != std::string::npos);
+    CHECK(chord.out.find("\"ratio\": \"7/4\"") != std::string::npos);
+}
+
+TEST_CASE("bad ratios and values: one line, exit 1") {
+    struct Case {
+        std::vector<std::string> args;
+        std::string message;
+    } cases[] = {
+        {{"ratio", "0/5"}, "beatless: '0/5': ratio must be positive (zero is not an interval)\n"},
+        {{"ratio", "7/0"}, "beatless: '7/0': denominator is zero\n"},
+        {{"ratio", "--", "-7/5"}, "beatless: '-7/5': ratio must be positive (a negative number is not an interval)\n"},
+        {{"ratio", "abc"}, "beatless: 'abc': not a ratio (expected a form such as 7/5, 7:5, 3/2*5/4 or 600c)\n"},
+        {{"ratio", "99999999999999999999/1"}, "beatless: '99999999999999999999/1': number too large for 64-bit ratio arithmetic\n"},
+        {{"ratio", "7/5", "--root", "H9"}, "beatless: 'H9': not a note name (expected a form such as C4, F#3 or Bb2)\n"},
+        {{"ratio", "7/5", "--a4", "300"}, "beatless: A4 reference 300 Hz: out of range (400 to 480 Hz)\n"},
+        {{"tone", "--root", "A3", "--ratio", "7/5", "--seconds", "0", "--out", "/tmp/x.wav"},
+         "beatless: --seconds 0: out of range (more than 0, at most 3600)\n"},
+        {{"tone", "--root", "A3", "--timbre", "loud", "--out", "/tmp/x.wav"},
+         "beatless: timbre 'loud': unknown (choose pure, soft, round, bright, hollow)\n"},
+    };
+    for (const auto& c : cases) {
+        CAPTURE(c.args[1]);
+        const auto r = run_program(c.args);
+        CHECK(r.exit_code == 1);
+        CHECK(r.err == c.message);
+        CHECK(r.out.empty());
+    }
+}
+
+TEST_CASE("bad usage: one line, exit 2") {
+    for (const auto& args : std::vector<std::vector<std::string>>{
+             {"ratio"}, {"ratio", "7/5", "--format", "xml"}, {"frobnicate"}, {"tone", "--ratio", "7/5"}}) {
+        CAPTURE(args[0]);
+        const auto r = run_program(args);
+        CHECK(r.exit_code == 2);
+        CHECK(line_count(r.err) == 1);
+        CHECK(r.err.rfind("beatless: ", 0) == 0);
+    }
+}
+
+TEST_CASE("tone writes a file of the asked length, or names the file it cannot write") {
+    TempDir dir;
+    const auto r = run_program({"tone", "--root", "A3", "--ratio", "7/5", "--seconds", "1.5", "--rate", "44100", "--out", dir.file("t.wav")});
+    REQUIRE(r.exit_code == 0);
+    std::ifstream f(dir.file("t.wav"), std::ios::binary | std::ios::ate);
+    // 24-bit mono WAV: 44-byte header + 3 bytes per sample.
+    CHECK(static_cast<long>(f.tellg()) == 44 + 3 * 66150);
+    const auto bad = run_program({"tone", "--root", "A3", "--out", dir.file("no/such/dir/t.wav")});
+    CHECK(bad.exit_code == 1);
+    CHECK(bad.err.rfind("beatless: " + dir.file("no/such/dir/t.wav") + ": cannot be written (", 0) == 0);
+    CHECK(line_count(bad.err) == 1);
+}

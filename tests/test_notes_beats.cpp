@@ -1,0 +1,113 @@
+// Notes, frequencies, beat rates and nearest targets.
+//
+// Sources: ISO 16:1975 (A4 = 440 Hz); the MIDI 1.0 specification's tuning
+// convention (note 69 = A4) with 12-TET spacing 2^(1/12); scientific pitch
+// notation (C4 = middle C = MIDI 60, Acoustical Society of America); beat
+// rate of coinciding partials |q*f_high - p*f_low| (Helmholtz, On the
+// Sensations of Tone, ch. VIII).
+#include "pitch/beats.h"
+#include "pitch/error.h"
+#include "pitch/interval.h"
+#include "pitch/notes.h"
+#include "pitch/targets.h"
+
+#include <doctest/doctest.h>
+
+#include <cmath>
+
+using namespace beatless;
+using namespace beatless::pitch;
+
+TEST_CASE("A4 = 440 Hz (ISO 16) and MIDI 69 = 440 Hz with 12-TET spacing") {
+    CHECK(note_to_hz("A4") == doctest::Approx(440.0).epsilon(1e-12));
+    CHECK(midi_to_hz(69) == doctest::Approx(440.0).epsilon(1e-12));
+    CHECK(note_to_midi("A4") == 69);
+    CHECK(note_to_midi("C4") == 60);     // middle C
+    CHECK(note_to_midi("C-1") == 0);     // MIDI note 0
+    CHECK(note_to_midi("G9") == 127);    // MIDI note 127
+    // Middle C in 12-TET from A4 = 440: 261.6256 Hz (published frequency tables).
+    CHECK(note_to_hz("C4") == doctest::Approx(261.62557).epsilon(1e-7));
+    // A3 and A5 are exact octaves; each semitone is 2^(1/12).
+    CHECK(note_to_hz("A3") == doctest::Approx(220.0).epsilon(1e-12));
+    CHECK(note_to_hz("A5") == doctest::Approx(880.0).epsilon(1e-12));
+    CHECK(note_to_hz("A#4") / note_to_hz("A4") == doctest::Approx(std::exp2(1.0 / 12.0)).epsilon(1e-12));
+    CHECK(note_to_hz("Bb2") == doctest::Approx(note_to_hz("A#2")).epsilon(1e-12));
+    CHECK(note_to_hz("F#3") == doctest::Approx(184.9972).epsilon(1e-7));
+    // Other references scale every note: A4 = 415 Hz gives A3 = 207.5 Hz.
+    CHECK(note_to_hz("A3", 415.0) == doctest::Approx(207.5).epsilon(1e-12));
+}
+
+TEST_CASE("frequency back to the nearest note") {
+    const auto n = hz_to_note(440.0 * std::exp2(14.0 / 1200.0));
+    CHECK(n.name == "A4");
+    CHECK(n.offset_cents == doctest::Approx(14.0).epsilon(1e-9));
+    CHECK(hz_to_note(261.6256).name == "C4");
+    CHECK(hz_to_note(311.127).name == "D#4");
+    CHECK(midi_to_name(-1) == "B-2");
+}
+
+TEST_CASE("roots as notes or Hz, and their bad forms") {
+    CHECK(parse_frequency("A2") == doctest::Approx(110.0));
+    CHECK(parse_frequency("110") == 110.0);
+    CHECK(parse_frequency("110.5hz") == 110.5);
+    CHECK(parse_frequency("220 Hz") == 220.0);
+    CHECK_THROWS_WITH(parse_frequency("H2"), "'H2': not a note name (expected a form such as C4, F#3 or Bb2)");
+    CHECK_THROWS_WITH(parse_frequency("0"), "'0': frequency out of range (1 Hz to 20 kHz)");
+    CHECK_THROWS_WITH(parse_frequency("C12"), "'C12': octave out of range (-1 to 10)");
+    CHECK_THROWS_WITH(check_a4(500), "A4 reference 500 Hz: out of range (400 to 480 Hz)");
+}
+
+TEST_CASE("beat rate of the coinciding partials") {
+    // 7/5 over 220 Hz: the 7th partial of the root (1540 Hz) meets the 5th of
+    // the upper tone. With the upper tone 4 cents sharp the pair beats at
+    // |5 * f_high - 7 * 220|.
+    const double f_low = 220.0;
+    const double f_high = 220.0 * 7.0 / 5.0 * std::exp2(4.0 / 1200.0);
+    const auto p = coinciding_pair(f_low, f_high, Ratio{7, 5});
+    CHECK(p.partial_a == 7);
+    CHECK(p.partial_b == 5);
+    CHECK(p.beat_hz == doctest::Approx(std::fabs(5.0 * f_high - 7.0 * f_low)).epsilon(1e-12));
+    CHECK(beat_rate_at(f_low, Ratio{7, 5}, 4.0) == doctest::Approx(p.beat_hz).epsilon(1e-12));
+    // A pure interval does not beat.
+    CHECK(coinciding_pair(200.0, 300.0, Ratio{3, 2}).beat_hz == doctest::Approx(0.0));
+    // Worked example (common practice): an equal-tempered fifth over 220 Hz,
+    // 329.6276 Hz, beats at |2*329.6276 - 3*220| = 0.7448 Hz.
+    const double et_fifth = 220.0 * std::exp2(7.0 / 12.0);
+    CHECK(coinciding_pair(220.0, et_fifth, Ratio{3, 2}).beat_hz == doctest::Approx(0.7448).epsilon(1e-3));
+}
+
+TEST_CASE("other partial pairs that come close") {
+    // Over a 3/2 at 200/300 Hz the pairs (3,2), (6,4), (9,6) coincide exactly.
+    const auto pairs = near_pairs(200.0, 300.0, 9, 0.5);
+    REQUIRE(pairs.size() == 3);
+    CHECK(pairs[0].partial_a == 3);
+    CHECK(pairs[0].partial_b == 2);
+    CHECK(pairs[2].partial_a == 9);
+    for (const auto& p : pairs) CHECK(p.beat_hz == doctest::Approx(0.0));
+}
+
+TEST_CASE("nearest simple ratio for an irrational target (common practice)") {
+    // 600 cents lies 17.488 cents from both 7/5 and 10/7; the simpler 7/5 wins.
+    CHECK(nearest_simple_ratio(600.0) == Ratio{7, 5});
+    CHECK(nearest_simple_ratio(700.0) == Ratio{3, 2});
+    CHECK(nearest_simple_ratio(400.0) == Ratio{5, 4});
+}
+
+TEST_CASE("nearest target, with and without octave equivalence") {
+    TargetSet set;
+    for (const char* s : {"11/8", "7/5", "45/32", "600c", "10/7"}) set.targets.push_back({parse_interval(s), ""});
+    // 590 cents: 45/32 (590.224) is nearest.
+    auto m = nearest_target(set, 590.0, false);
+    CHECK(set.targets[m.index].interval.str() == "45/32");
+    CHECK(m.dev_cents == doctest::Approx(590.0 - 590.224).epsilon(1e-3));
+    // 585 cents an octave up: octave equivalence finds 7/5 one octave higher.
+    m = nearest_target(set, 1200.0 + 584.0, true);
+    CHECK(set.targets[m.index].interval.str() == "7/5");
+    CHECK(m.octaves == 1);
+    CHECK(m.dev_cents == doctest::Approx(584.0 - 582.512).epsilon(1e-3));
+    // Without octave equivalence the highest target (10/7) is nearest.
+    m = nearest_target(set, 1784.0, false);
+    CHECK(set.targets[m.index].interval.str() == "10/7");
+    CHECK(shift_octaves(parse_interval("7/5"), -1).str() == "7/10");
+    CHECK(shift_octaves(parse_interval("600c"), 1).str() == "1800c");
+}
