@@ -52,6 +52,18 @@ void HarmonicSynth::set_f0(double freq_hz, bool immediate) noexcept {
     f0_step_ = std::pow(f0_target_ / f0_now_, 1.0 / static_cast<double>(f0_left_));
 }
 
+void HarmonicSynth::glide_f0(double freq_hz, std::size_t len_samples) noexcept {
+    if (!(freq_hz > 0.0) || !std::isfinite(freq_hz)) return;
+    f0_target_ = freq_hz;
+    if (len_samples == 0) {
+        f0_now_ = freq_hz;
+        f0_left_ = 0;
+        return;
+    }
+    f0_left_ = len_samples;
+    f0_step_ = std::pow(f0_target_ / f0_now_, 1.0 / static_cast<double>(len_samples));
+}
+
 void HarmonicSynth::set_partials(std::span<const double> amplitudes, bool immediate) noexcept {
     for (std::size_t k = 0; k < amp_target_.size(); ++k) {
         const double a = k < amplitudes.size() && std::isfinite(amplitudes[k]) ? amplitudes[k] : 0.0;

@@ -30,6 +30,7 @@ public:
     // Setters ramp from the current state unless `immediate` is true.
     // Thread: one thread (the one calling render). Allocates: no. Locks: no.
     void set_f0(double freq_hz, bool immediate = false) noexcept;
+    void glide_f0(double freq_hz, std::size_t len_samples) noexcept;                          // exponential glide
     void set_partials(std::span<const double> amplitudes, bool immediate = false) noexcept;  // a_1, a_2, ...
     void set_phases(std::span<const double> phases_rad) noexcept;                            // theta_1, ...
     void set_level(double gain, bool immediate = false) noexcept;                            // linear
