@@ -30,7 +30,7 @@ struct CancellerConfig {
     double sample_rate_hz = 48000.0;      // input rate
     std::size_t max_partials = 96;        // most drone partials followed (default 96)
     double max_freq_hz = 6000.0;          // partials above are left alone (default 6 kHz)
-    double bandwidth_hz = 1.5;            // settled notch half-bandwidth at each partial (default 1.5 Hz)
+    double bandwidth_hz = 0.3;            // settled notch half-bandwidth at each partial (default 0.3 Hz)
     double acquire_bandwidth_hz = 12.0;   // notch half-bandwidth right after a restart (default 12 Hz)
     double acquire_s = 0.25;              // how long the acquire notch lasts (default 0.25 s)
     double ramp_s = 0.05;                 // level changes ramp like the drone's (default 50 ms)

@@ -59,6 +59,7 @@ void ReadingMaker::set_root_hz(double root_hz) noexcept {
 void ReadingMaker::reset() noexcept {
     vibrato_.reset();
     prev_cents_ = NAN;
+    far_frames_ = 0;
 }
 
 Reading ReadingMaker::make(const PitchFrame& f, std::int64_t sample_index) noexcept {
@@ -70,14 +71,26 @@ Reading ReadingMaker::make(const PitchFrame& f, std::int64_t sample_index) noexc
     r.level_dbfs = f.level_dbfs;
     if (!(f.voiced() && std::isfinite(f.f0_hz))) {
         vibrato_.push(f.t_s, 0.0, false);
-        prev_cents_ = NAN;
         return r;
     }
     r.f0_hz = f.f0_hz;
     r.ratio = f.f0_hz / cfg_.root_hz;
     const double cents = 1200.0 * std::log2(r.ratio);
     r.cents_above_root = cents;
-    if (std::isfinite(prev_cents_) && std::fabs(cents - prev_cents_) > cfg_.jump_cents) vibrato_.reset();
+    // A new note: a jump between frames, or the pitch held away from the
+    // centre by more than the vibrato explains for new_note_frames frames.
+    const VibratoReading& before = vibrato_.reading();
+    if (std::isfinite(prev_cents_) && std::fabs(cents - prev_cents_) > cfg_.jump_cents) {
+        vibrato_.reset();
+        far_frames_ = 0;
+    } else if (before.ready) {
+        const double allowed = cfg_.new_note_cents + (before.vibrato ? 1.2 * before.depth_cents : 3.0 * before.spread_cents);
+        far_frames_ = std::fabs(cents - before.centre_cents) > std::min(allowed, cfg_.jump_cents) ? far_frames_ + 1 : 0;
+        if (far_frames_ >= cfg_.new_note_frames) {
+            vibrato_.reset();
+            far_frames_ = 0;
+        }
+    }
     prev_cents_ = cents;
 
     const VibratoReading& v = vibrato_.push(f.t_s, cents, true);

@@ -9,7 +9,9 @@
 // matched octaves, and its beat rate |q f_voice - p f_root| (Helmholtz, see
 // pitch/beats.h); irrational targets (600c) beat like the nearest simple
 // ratio; the offset from 12-TET for the A4 reference (MIDI 69 = A4).
-// A jump of more than jump_cents between frames starts a new note.
+// A new note (restarting the centre) is a jump of more than jump_cents
+// between frames, or the pitch held away from the centre by more than the
+// vibrato's swing explains (new_note_cents + 1.2 x depth) for a few frames.
 //
 // All allocation happens in the constructor; make() never allocates.
 #pragma once
@@ -29,6 +31,8 @@ struct ReadingConfig {
     double a4_hz = 440.0;             // 12-TET reference (default ISO 16: 440 Hz)
     bool octave_equivalent = true;    // 7/5 also matches 14/5, 7/10 ... (default on)
     double jump_cents = 60.0;         // frame-to-frame jump that starts a new note (default 60 cents)
+    double new_note_cents = 15.0;     // held this far beyond the vibrato's swing from the centre ... (default 15 cents)
+    int new_note_frames = 4;          // ... for this many frames, a new note starts (default 4)
     VibratoConfig vibrato;            // whole-cycle centre and steadiness settings
 };
 
@@ -55,6 +59,7 @@ private:
     std::vector<BeatRatio> beat_;
     VibratoCentre vibrato_;
     double prev_cents_ = NAN;
+    int far_frames_ = 0;
 };
 
 // The partial pair (root partial p, voice partial q) that coincides for

@@ -1,0 +1,154 @@
+// The whole live path on a fake device: a voice steps from one ratio to
+// another over the engine's own drone, heard through a simulated room.
+//
+// References: cents are 1200 log2 (Ellis 1885) computed here; the nearest
+// target is the set member closest in cents (checked by brute force here);
+// beat rates of the coinciding partials are |q f_high - p f_low| for the
+// target p/q (Helmholtz 1863, ch. VIII), computed here from the known voice.
+#include "audio/engine.h"
+#include "pitch/interval.h"
+#include "tests/live_rig.h"
+#include "tests/mix_signals.h"
+
+#include <doctest/doctest.h>
+
+#include <cmath>
+#include <cstdio>
+#include <cstdlib>
+#include <string>
+
+using namespace beatless;
+
+namespace {
+
+pitch::TargetSet tritones() {
+    pitch::TargetSet s;
+    s.id = "test";
+    for (const char* r : {"15/11", "11/8", "7/5", "45/32", "600c", "64/45", "10/7", "16/11"})
+        s.targets.push_back({pitch::parse_interval(r), ""});
+    return s;
+}
+
+struct Step {
+    double start_s, end_s;
+    std::string ratio;
+    double dev_cents;
+};
+
+// A voice singing the steps above root_hz (harmonic, partials falling 1/h).
+std::vector<float> voice_of(const std::vector<Step>& steps, double root_hz, double rate, double dur_s, double level) {
+    std::vector<float> x(static_cast<std::size_t>(dur_s * rate), 0.0f);
+    std::vector<testsig::Note> notes;
+    for (const Step& s : steps) {
+        testsig::Note n;
+        n.start_s = s.start_s;
+        n.end_s = s.end_s;
+        n.centre_hz = root_hz * pitch::parse_interval(s.ratio).value() * std::exp2(s.dev_cents / 1200.0);
+        n.ramp_s = 0.002;
+        n.level = level;
+        notes.push_back(n);
+    }
+    testsig::add_voice(x, rate, notes, testsig::rolloff(12, 1.0));
+    return x;
+}
+
+// The nearest target by brute force: the set member (in any octave) closest in cents.
+int brute_nearest(const pitch::TargetSet& set, double cents) {
+    int best = -1;
+    double best_d = 1e300;
+    for (std::size_t i = 0; i < set.targets.size(); ++i)
+        for (int k = -3; k <= 3; ++k) {
+            const double d = std::fabs(cents - set.targets[i].interval.cents() - 1200.0 * k);
+            if (d < best_d) {
+                best_d = d;
+                best = static_cast<int>(i);
+            }
+        }
+    return best;
+}
+
+struct StepCheck {
+    int readings = 0;
+    double worst_dev_err = 0.0;     // |dev - truth| on the steady part
+    double worst_beat_err = 0.0;    // |beat - formula| on the steady part, Hz
+    bool targets_right = true;
+    std::int64_t settle_samples = -1;   // step onset to the first reading that stays settled
+};
+
+// Checks the readings of one step against the truth.
+StepCheck check_step(const std::vector<test::Stamped>& rs, const Step& st, double root, double rate,
+                     const pitch::TargetSet& set, double settle_cents) {
+    StepCheck c;
+    const pitch::Interval iv = pitch::parse_interval(st.ratio);
+    const double f_true = root * iv.value() * std::exp2(st.dev_cents / 1200.0);
+    const double cents_true = 1200.0 * std::log2(f_true / root);
+    const int want = brute_nearest(set, cents_true);
+    const auto onset = static_cast<std::int64_t>(std::ceil(st.start_s * rate));
+    // Settling: the earliest reading after the onset from which every reading
+    // of the note (up to 50 ms before its end) is on the right target within settle_cents.
+    std::int64_t settled_at = -1;
+    for (const auto& s : rs) {
+        if (s.r.t_s < st.start_s || s.r.t_s > st.end_s - 0.05) continue;
+        const bool ok = s.r.voiced() && s.r.target_index == want && std::fabs(s.r.dev_cents - st.dev_cents) <= settle_cents;
+        if (!ok) settled_at = -1;
+        else if (settled_at < 0) settled_at = s.captured;
+    }
+    if (settled_at >= 0) c.settle_samples = settled_at - onset;
+    for (const auto& s : rs) {
+        if (s.r.t_s < st.start_s + 0.3 || s.r.t_s > st.end_s - 0.1) continue;
+        ++c.readings;
+        c.targets_right = c.targets_right && s.r.target_index == want;
+        c.worst_dev_err = std::max(c.worst_dev_err, std::fabs(s.r.dev_cents - st.dev_cents));
+        // Helmholtz: the coinciding pair of p/q beats at |q f_voice - p f_root|.
+        const pitch::Ratio r = iv.ratio();
+        const double beat_true = std::fabs(static_cast<double>(r.den) * f_true - static_cast<double>(r.num) * root);
+        c.worst_beat_err = std::max(c.worst_beat_err, std::fabs(s.r.beat_hz - beat_true));
+        if (s.r.beat_partial_root != r.num || s.r.beat_partial_voice != r.den) c.targets_right = false;
+    }
+    return c;
+}
+
+}  // namespace
+
+TEST_CASE("live path: a voice stepping between ratios over the drone, through a fake duplex device") {
+    for (double rate : {44100.0, 48000.0}) {
+        CAPTURE(rate);
+        test::LiveRig rig(rate, 256);
+        const double root = 110.0;
+        const std::vector<Step> steps = {{0.3, 1.5, "7/5", 2.0}, {1.5, 3.0, "10/7", -3.0}, {3.0, 4.2, "11/8", 4.5}};
+        rig.voice = voice_of(steps, root, rate, 4.4, 0.1);
+        pitch::ReadingConfig rc;
+        rc.root_hz = root;
+        audio::DroneSettings d;
+        d.on = true;
+        d.root_hz = root;
+        d.level_dbfs = -30.0;
+        rig.open(rc, tritones(), d, audio::RoomConfig{});
+        rig.run();
+        REQUIRE(rig.readings.size() > 800);
+        if (std::getenv("BEATLESS_DUMP_READINGS"))  // for a person investigating a failure
+            for (const auto& x : rig.readings)
+                std::printf("%.0f t %.3f f0 %.3f c %.3f tgt %d dev %.3f centre %.3f beat %.3f cap %lld\n", rate, x.r.t_s, x.r.f0_hz,
+                            x.r.cents_above_root, x.r.target_index, x.r.dev_cents, x.r.centre_dev_cents, x.r.beat_hz,
+                            static_cast<long long>(x.captured));
+        for (const Step& st : steps) {
+            CAPTURE(st.ratio);
+            const StepCheck c = check_step(rig.readings, st, root, rate, tritones(), 1.0);
+            REQUIRE(c.readings > 100);
+            CHECK(c.targets_right);
+            CHECK(c.worst_dev_err <= 0.5);
+            // A 0.5 cent error at partial q moves the beat by q f (2^(0.5/1200) - 1).
+            const pitch::Ratio r = pitch::parse_interval(st.ratio).ratio();
+            CHECK(c.worst_beat_err <= static_cast<double>(r.den) * root * r.value() * (std::exp2(0.5 / 1200.0) - 1.0));
+            // Latency counted in samples: from the step to the first reading that stays settled.
+            REQUIRE(c.settle_samples > 0);
+            MESSAGE(st.ratio << " settled " << c.settle_samples << " samples (" << 1000.0 * c.settle_samples / rate << " ms) after the step");
+            CHECK(c.settle_samples < static_cast<std::int64_t>(0.1 * rate));
+        }
+        const audio::EngineStatus stt = rig.engine.status();
+        CHECK(stt.ring_overflow_samples == 0);
+        CHECK(stt.captured_samples == static_cast<std::uint64_t>(rig.captured));
+        CHECK(stt.readings == rig.readings.size());
+        CHECK(stt.drone_removal_active);
+    }
+}
