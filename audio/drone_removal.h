@@ -61,6 +61,7 @@ public:
 
     void reset() noexcept;                            // forget the room response
     std::size_t partial_count() const noexcept { return count_; }
+    bool acquiring() const noexcept { return acquire_left_ > 0 && active(); }  // still learning the room
     bool active() const noexcept { return count_ > 0 && (level_ > 0.0 || level_target_ > 0.0); }
     double partial_freq_hz(std::size_t k) const noexcept { return freq_[k]; }
     // Learned amplitude of partial k in the input (peak, linear), at the current level.

@@ -384,6 +384,10 @@ std::size_t Engine::analyse_available() noexcept {
         pitch::PitchFrame f;
         while (m.tracker->pull(f)) {
             const auto idx = static_cast<std::int64_t>(std::llround(f.t_s * m.rate));
+            // While drone removal is still learning the room (a quarter of a
+            // second after the drone starts or moves), the drone may leak
+            // through: those frames are reported unvoiced.
+            if (m.removal_active && m.canceller->acquiring()) f.f0_hz = 0.0;
             const pitch::Reading r = m.maker->make(f, idx);
             const double lat = static_cast<double>(static_cast<std::int64_t>(m.ring->written()) - idx) / m.rate;
             m.latency_s.store(lat, std::memory_order_relaxed);
@@ -398,6 +402,9 @@ std::size_t Engine::analyse_available() noexcept {
     if (total == 0 && m.producer_done.load(std::memory_order_acquire) && m.ring->available() == 0) m.finished.store(true);
     return total;
 }
+
+StreamInfo Engine::input_info() const { return impl_->in_info; }
+StreamInfo Engine::output_info() const { return impl_->out_info; }
 
 bool Engine::latest(pitch::Reading& out) { return impl_->latest.read(out); }
 std::size_t Engine::history(std::span<pitch::Reading> out) const { return impl_->history.read(out); }

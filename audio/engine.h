@@ -113,6 +113,8 @@ public:
     std::size_t take_readings(std::span<pitch::Reading> out);  // every reading in order (one reader)
     EngineStatus status() const;
     double sample_rate_hz() const { return rate_hz_; }
+    StreamInfo input_info() const;                             // negotiated input stream (after start)
+    StreamInfo output_info() const;                            // negotiated output stream (after start)
     double stream_time_s() const;                              // analysed input so far
 
     // --- Test hooks -----------------------------------------------------------

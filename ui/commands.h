@@ -13,6 +13,12 @@ using Runner = std::function<int()>;
 
 void register_ratio(CLI::App& app, Runner& run);
 void register_tone(CLI::App& app, Runner& run);
+void register_devices(CLI::App& app, Runner& run);
+void register_listen(CLI::App& app, Runner& run);
+
+// `beatless --demo` until the Practice screen exists: the demo performer
+// through the live engine, readable lines on stdout for `seconds`.
+int run_demo_preview(double seconds);
 
 // Output format choice shared by the commands.
 enum class Format { text, json, csv };

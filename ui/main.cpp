@@ -31,6 +31,10 @@ int main(int argc, char** argv) {
     ui::Runner run;
     ui::register_ratio(app, run);
     ui::register_tone(app, run);
+    ui::register_devices(app, run);
+    ui::register_listen(app, run);
+    bool demo = false;
+    app.add_flag("--demo", demo, "Run the built-in demo performer through the live engine (about 20 s, Ctrl-C stops)");
 
     try {
         app.parse(argc, argv);
@@ -44,6 +48,7 @@ int main(int argc, char** argv) {
     }
 
     try {
+        if (!run && demo) return ui::run_demo_preview(20.0);
         if (!run) {
             std::fputs(app.help().c_str(), stdout);
             return 0;
