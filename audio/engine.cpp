@@ -171,7 +171,7 @@ void Engine::use_demo(DemoConfig demo) {
 
 double Engine::use_file(const std::string& path) {
     Impl& m = *impl_;
-    m.file = std::make_unique<SoundReader>(path, -1, 1024);
+    m.file = std::make_unique<SoundReader>(path, -1, std::min(cfg_.block_len_frames, kScratch));
     m.file_path = path;
     m.input = InputKind::file;
     return m.file->info().sample_rate_hz;

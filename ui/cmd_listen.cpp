@@ -187,6 +187,14 @@ int run_live(const ListenOptions& o, Printing printing) {
     const double root_hz = pitch::parse_frequency(o.root, o.a4_hz);
     const pitch::TargetSet targets = chosen_targets(o);
     const audio::Timbre timbre = audio::parse_timbre(o.timbre);
+    audio::DroneSettings ds;
+    ds.on = o.drone;
+    ds.root_hz = root_hz;
+    ds.timbre = timbre;
+    ds.fifth = o.fifth;
+    ds.octave = o.octave;
+    ds.level_dbfs = o.level_db;
+    audio::check_drone_settings(ds);
 
     audio::EngineConfig ec;
     ec.sample_rate_hz = o.rate_hz;
@@ -229,13 +237,6 @@ int run_live(const ListenOptions& o, Printing printing) {
     rc.root_hz = root_hz;
     rc.a4_hz = o.a4_hz;
     engine.set_readings(rc, targets);
-    audio::DroneSettings ds;
-    ds.on = o.drone;
-    ds.root_hz = root_hz;
-    ds.timbre = timbre;
-    ds.fifth = o.fifth;
-    ds.octave = o.octave;
-    ds.level_dbfs = o.level_db;
     engine.set_drone(ds);
     if (o.drone && (play_drone || o.demo)) caution_once();
 

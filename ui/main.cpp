@@ -35,6 +35,8 @@ int main(int argc, char** argv) {
     ui::register_listen(app, run);
     bool demo = false;
     app.add_flag("--demo", demo, "Run the built-in demo performer through the live engine (about 20 s, Ctrl-C stops)");
+    double demo_seconds = 20.0;
+    app.add_option("--seconds", demo_seconds, "With --demo: how long to run (default 20)");
 
     try {
         app.parse(argc, argv);
@@ -48,7 +50,7 @@ int main(int argc, char** argv) {
     }
 
     try {
-        if (!run && demo) return ui::run_demo_preview(20.0);
+        if (!run && demo) return ui::run_demo_preview(demo_seconds);
         if (!run) {
             std::fputs(app.help().c_str(), stdout);
             return 0;
