@@ -118,6 +118,13 @@ LagChoice absolute_threshold(std::span<const double> dn, std::size_t lag_min, st
             while (t + 1 <= lag_max && dn[t + 1] < dn[t]) ++t;
             return {t, dn[t], true};
         }
+        // A dip whose bottom falls between two lags: judge it by the bottom of
+        // the parabola through it (a short period sampled coarsely).
+        if (t + 1 < dn.size() && dn[t] <= dn[t - 1] && dn[t] <= dn[t + 1]) {
+            const double a = dn[t - 1], b = dn[t], c = dn[t + 1], den = a - 2.0 * b + c;
+            const double bottom = den > 0.0 ? b - (a - c) * (a - c) / (8.0 * den) : b;
+            if (bottom < threshold) return {t, std::max(0.0, bottom), true};
+        }
     }
     c.lag = lag_min;
     c.aperiodicity = dn[lag_min];

@@ -81,6 +81,9 @@ struct LagChoice {
 
 // YIN step 4: the first lag in [lag_min, lag_max] where dn < threshold, then
 // on to the bottom of that dip; the overall minimum in range when none is.
+// Our addition: a local minimum also counts when the bottom of the parabola
+// through it and its neighbours is under the threshold (a short period whose
+// dip falls between two lags); aperiodicity is then that bottom.
 LagChoice absolute_threshold(std::span<const double> dn, std::size_t lag_min, std::size_t lag_max,
                              double threshold) noexcept;
 
