@@ -16,10 +16,27 @@
 #include <doctest/doctest.h>
 
 #include <algorithm>
+#include <atomic>
 #include <cmath>
+#include <cstdlib>
 #include <limits>
+#include <new>
 #include <string>
 #include <vector>
+
+// Counts heap allocations while g_counting is set (this test binary only).
+namespace {
+std::atomic<bool> g_counting{false};
+std::atomic<std::size_t> g_allocations{0};
+}  // namespace
+
+void* operator new(std::size_t n) {
+    if (g_counting.load(std::memory_order_relaxed)) g_allocations.fetch_add(1, std::memory_order_relaxed);
+    if (void* p = std::malloc(n == 0 ? 1 : n)) return p;
+    throw std::bad_alloc();
+}
+void operator delete(void* p) noexcept { std::free(p); }
+void operator delete(void* p, std::size_t) noexcept { std::free(p); }
 
 using namespace beatless;
 using namespace beatless::pitch;
@@ -170,39 +187,29 @@ TEST_CASE("parabolic interpolation (step 5) is exact on a sampled parabola") {
 // ---------------------------------------------------------------------------
 
 TEST_CASE("invalid settings throw one-line errors naming the value") {
-    YinConfig c;
-    c.sample_rate_hz = 7000;
-    CHECK(error_of(c).find("sample_rate_hz 7000") != std::string::npos);
-    c = {};
-    c.sample_rate_hz = 200000;
-    CHECK(error_of(c).find("sample_rate_hz 200000") != std::string::npos);
-    c = {};
-    c.f_min_hz = 500;
-    c.f_max_hz = 400;
-    CHECK(error_of(c).find("f_max_hz 400") != std::string::npos);
-    c = {};
-    c.f_max_hz = 12000;   // above 44100 / 4
-    CHECK(error_of(c).find("f_max_hz 12000") != std::string::npos);
-    c = {};
-    c.hop_s = 0.0;
-    CHECK(error_of(c).find("hop_s 0") != std::string::npos);
-    c = {};
-    c.hop_s = -0.01;
-    CHECK(error_of(c).find("hop_s -0.01") != std::string::npos);
-    c = {};
-    c.f_min_hz = 20;   // two periods of 20 Hz do not fit in 50 ms
-    CHECK(error_of(c).find("f_min_hz 20") != std::string::npos);
-    c = {};
-    c.f_min_hz = 0;
-    CHECK(error_of(c).find("f_min_hz 0") != std::string::npos);
-    c = {};
-    c.threshold = 1.5;
-    CHECK(error_of(c).find("threshold 1.5") != std::string::npos);
-    c = {};
-    c.sample_rate_hz = std::numeric_limits<double>::quiet_NaN();
-    CHECK(error_of(c).find("sample_rate_hz nan") != std::string::npos);
-    for (const auto& msg : {error_of(YinConfig{.sample_rate_hz = 1}), error_of(YinConfig{.hop_s = 0})})
+    const struct {
+        YinConfig config;
+        const char* names;
+    } bad[] = {
+        {{.sample_rate_hz = 7000}, "sample_rate_hz 7000"},
+        {{.sample_rate_hz = 200000}, "sample_rate_hz 200000"},
+        {{.sample_rate_hz = std::numeric_limits<double>::quiet_NaN()}, "sample_rate_hz nan"},
+        {{.f_min_hz = 500, .f_max_hz = 400}, "f_max_hz 400"},
+        {{.f_max_hz = 12000}, "f_max_hz 12000"},   // above 44100 / 4
+        {{.f_min_hz = 0}, "f_min_hz 0"},
+        {{.f_min_hz = 20}, "f_min_hz 20"},         // two periods of 20 Hz do not fit in 50 ms
+        {{.hop_s = 0.0}, "hop_s 0"},
+        {{.hop_s = -0.01}, "hop_s -0.01"},
+        {{.span_s = 2.0}, "span_s 2"},
+        {{.threshold = 1.5}, "threshold 1.5"},
+        {{.silence_dbfs = 3.0}, "silence_dbfs 3"},
+    };
+    for (const auto& b : bad) {
+        const std::string msg = error_of(b.config);
+        INFO(msg);
+        CHECK(msg.find(b.names) != std::string::npos);
         CHECK(msg.find('\n') == std::string::npos);
+    }
     CHECK(error_of(YinConfig{}) == "(no error)");
 }
 
@@ -426,6 +433,26 @@ TEST_CASE("other sample rates, 8 kHz to 192 kHz") {
         CHECK(e.unvoiced == 0);
         CHECK(e.max() < 0.5);
     }
+}
+
+TEST_CASE("push and pull allocate nothing after construction (DESIGN.md real-time rules)") {
+    const auto x = test::vibrato_tone(kRate, static_cast<std::size_t>(1.0 * kRate), test::Vibrato{300.0, 30.0, 5.0, 0.0},
+                                      test::falling_partials(320.0, kRate, 20, 6.0, 12));
+    YinTracker yin(YinConfig{});
+    std::vector<PitchFrame> frames;
+    frames.reserve(1000);
+    PitchFrame p;
+    g_allocations = 0;
+    g_counting = true;
+    for (std::size_t i = 0; i < x.size(); i += 300) {
+        yin.push(std::span<const float>(x).subspan(i, std::min<std::size_t>(300, x.size() - i)));
+        while (yin.pull(p)) frames.push_back(p);
+    }
+    yin.push(x);   // one long block
+    while (yin.pull(p)) frames.push_back(p);
+    g_counting = false;
+    CHECK(frames.size() > 350);
+    CHECK(g_allocations.load() == 0);
 }
 
 TEST_CASE("a full queue drops the oldest frames and counts them") {
