@@ -10,20 +10,21 @@
 
 namespace beatless::pitch::vec {
 
-// The helpers below pass 32-byte vectors by value; they have internal linkage
-// and are inlined, so the ABI note GCC gives for the baseline clone does not apply.
+// The helpers below pass 32-byte vectors by value. They are always inlined
+// (also at -O0), so no call crosses between clones built for different ISAs
+// and the ABI note GCC gives for the baseline clone does not apply.
 #pragma GCC diagnostic ignored "-Wpsabi"
 
 namespace {
 typedef float v8 __attribute__((vector_size(32)));
 
-inline v8 load(const float* p) noexcept {
+__attribute__((always_inline)) inline v8 load(const float* p) noexcept {
     v8 v;
     std::memcpy(&v, p, sizeof v);
     return v;
 }
 
-inline double hsum(v8 v) noexcept {
+__attribute__((always_inline)) inline double hsum(v8 v) noexcept {
     double s = 0.0;
     for (std::size_t k = 0; k < kLanes; ++k) s += static_cast<double>(v[k]);
     return s;

@@ -25,8 +25,8 @@ namespace beatless::pitch {
 
 struct YinConfig {
     double sample_rate_hz = 44100.0;   // 8 000 .. 192 000
-    double f_min_hz = 55.0;            // lowest f0 searched (A1)
-    double f_max_hz = 1600.0;          // highest f0 searched
+    double f_min_hz = 55.0;            // lowest f0 searched (A1); two periods and a bit must fit in span_s
+    double f_max_hz = 1600.0;          // highest f0 searched, at most sample_rate_hz / 4
     double hop_s = 0.005;              // time between frames (rounded to a multiple of decimation(); see hop_s())
     double span_s = 0.050;             // most audio one estimate may depend on (0.01 .. 1 s)
     double threshold = 0.15;           // YIN absolute threshold on the normalised difference (0 .. 1)
