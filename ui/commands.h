@@ -6,6 +6,7 @@
 #include <CLI/CLI.hpp>
 
 #include <functional>
+#include <initializer_list>
 
 namespace beatless::ui {
 
@@ -17,5 +18,6 @@ void register_tone(CLI::App& app, Runner& run);
 // Output format choice shared by the commands.
 enum class Format { text, json, csv };
 void add_format_option(CLI::App& sub, Format& format, bool with_csv = true);
+void add_format_option(CLI::App& sub, Format& format, std::initializer_list<Format> allowed);
 
 }  // namespace beatless::ui

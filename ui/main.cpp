@@ -13,11 +13,20 @@
 
 namespace beatless::ui {
 
+void add_format_option(CLI::App& sub, Format& format, std::initializer_list<Format> allowed) {
+    std::map<std::string, Format> names;
+    std::string help = "Output form:";
+    for (Format f : allowed) {
+        const char* n = f == Format::text ? "text" : f == Format::json ? "json" : "csv";
+        names.emplace(n, f);
+        help += std::string(" ") + n;
+    }
+    sub.add_option("--format", format, help)->transform(CLI::CheckedTransformer(names, CLI::ignore_case).description(""));
+}
+
 void add_format_option(CLI::App& sub, Format& format, bool with_csv) {
-    std::map<std::string, Format> names{{"text", Format::text}, {"json", Format::json}};
-    if (with_csv) names.emplace("csv", Format::csv);
-    sub.add_option("--format", format, with_csv ? "Output form: text, json or csv" : "Output form: text or json")
-        ->transform(CLI::CheckedTransformer(names, CLI::ignore_case).description(""));
+    if (with_csv) add_format_option(sub, format, {Format::text, Format::json, Format::csv});
+    else add_format_option(sub, format, {Format::text, Format::json});
 }
 
 }  // namespace beatless::ui
