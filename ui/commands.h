@@ -12,6 +12,8 @@ namespace beatless::ui {
 using Runner = std::function<int()>;
 
 void register_ratio(CLI::App& app, Runner& run);
+void register_chord(CLI::App& app, Runner& run);
+void register_drift(CLI::App& app, Runner& run);
 
 // Output format choice shared by the commands.
 enum class Format { text, json, csv };

@@ -30,6 +30,8 @@ int main(int argc, char** argv) {
 
     ui::Runner run;
     ui::register_ratio(app, run);
+    ui::register_chord(app, run);
+    ui::register_drift(app, run);
 
     try {
         app.parse(argc, argv);
