@@ -158,8 +158,15 @@ ProgressionChord explicit_chord(std::string_view tok) {
         throw Error(quote(tok) + ": an explicit chord needs its root ratio first, as in 1/1:4:5:6 or 5/3:10:12:15");
     ProgressionChord pc;
     pc.symbol = std::string(tok);
-    pc.root = parse_ratio(root_text);
-    pc.chord = Chord::from_terms(parse_chord_terms(tok.substr(colon + 1)));
+    try {
+        pc.root = parse_ratio(root_text);
+        pc.chord = Chord::from_terms(parse_chord_terms(tok.substr(colon + 1)));
+    } catch (const Error& e) {
+        // "'4:0:6': problem" -> "'1/1:4:0:6': problem", naming what the user wrote.
+        const std::string m = e.what();
+        const auto at = m.find("': ");
+        throw Error(quote(tok) + (at == std::string::npos ? ": " + m : m.substr(at + 1)));
+    }
     return pc;
 }
 
