@@ -36,6 +36,13 @@ void check_count(std::size_t n, std::string_view text) {
                     std::to_string(kMaxChordVoices));
 }
 
+void check_size(const std::vector<std::int64_t>& terms, std::int64_t root_term, std::string_view text) {
+    for (const std::int64_t t : terms)
+        if (t > kMaxChordTerm || root_term > kMaxChordTerm)
+            throw Error(quote(text) + ": terms above " + std::to_string(kMaxChordTerm) +
+                        " (as harmonics of one fundamental) are too far apart to tune by ear");
+}
+
 bool sounds(double freq_hz, double weight) {
     return std::isfinite(freq_hz) && freq_hz > 0.0 && std::isfinite(weight) && weight > 0.0;
 }
@@ -57,6 +64,7 @@ Chord Chord::from_terms(std::vector<std::int64_t> terms) {
     std::int64_t g = 0;
     for (const std::int64_t t : terms) g = std::gcd(g, t);
     for (std::int64_t& t : terms) t /= g;
+    check_size(terms, terms.front(), text);
     Chord c;
     c.root_term_ = terms.front();
     c.terms_ = std::move(terms);
@@ -85,6 +93,7 @@ Chord Chord::from_ratios(std::vector<Ratio> voices) {
         g = std::gcd(g, terms.back());
     }
     for (std::int64_t& t : terms) t /= g;
+    check_size(terms, den / g, text);
     Chord c;
     c.root_term_ = den / g;
     c.terms_ = std::move(terms);

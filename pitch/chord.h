@@ -29,6 +29,7 @@ namespace beatless::pitch {
 // ---------------------------------------------------------------------------
 
 constexpr std::size_t kMaxChordVoices = 16;
+constexpr std::int64_t kMaxChordTerm = 1'000'000;  // largest term after common factors are removed
 
 class Chord {
 public:
@@ -37,11 +38,12 @@ public:
     // Terms of the harmonic series, strictly rising ("4:5:6"); the chord root
     // is the first term. Common factors are removed (8:10:12 is 4:5:6).
     // Throws Error when there are fewer than 2 or more than 16 terms, a term
-    // is not positive, or the terms do not rise.
+    // is not positive or above kMaxChordTerm, or the terms do not rise.
     static Chord from_terms(std::vector<std::int64_t> terms);
 
     // Voices as ratios above a chord root 1/1, which need not sound itself
-    // ("5/4 3/2 7/4"). Sorted from low to high; a repeated ratio throws Error.
+    // ("5/4 3/2 7/4"). Sorted from low to high; a repeated ratio throws Error,
+    // and so does a term or root term above kMaxChordTerm.
     static Chord from_ratios(std::vector<Ratio> voices);
 
     std::size_t size() const { return terms_.size(); }

@@ -23,10 +23,11 @@ struct Spelled {
     int alter = 0;
 };
 
-Spelled spell(const Tonic& tonic, int semitones) {
+// step_change: letters added to the usual degree (+1 turns #4 into b5, -1 b6 into #5).
+Spelled spell(const Tonic& tonic, int semitones, int step_change = 0) {
     const int s = mod(semitones, 12);
     Spelled out;
-    out.letter = mod(tonic.letter + kDegreeStep[static_cast<std::size_t>(s)], 7);
+    out.letter = mod(tonic.letter + kDegreeStep[static_cast<std::size_t>(s)] + step_change, 7);
     const int target_pc = mod(tonic.pc + s, 12);
     int alter = target_pc - kNaturalPc[static_cast<std::size_t>(out.letter)];
     if (alter > 6) alter -= 12;
@@ -40,6 +41,13 @@ std::string letter_name(int letter, int alter) {
     for (int i = 0; i < alter; ++i) n += '#';
     for (int i = 0; i > alter; --i) n += 'b';
     return n;
+}
+
+std::string with_octave(const Spelled& s, int midi) {
+    // The octave number belongs to the letter: Cb4 is MIDI 59, B#3 is MIDI 60.
+    const int base = kNaturalPc[static_cast<std::size_t>(s.letter)] + s.alter;
+    const int octave = (midi - base - mod(midi - base, 12)) / 12 - 1;
+    return letter_name(s.letter, s.alter) + std::to_string(octave);
 }
 
 }  // namespace
@@ -84,12 +92,20 @@ std::string spell_pitch_class(const Tonic& tonic, int semitones) {
     return letter_name(s.letter, s.alter);
 }
 
-std::string spell_midi(const Tonic& tonic, int midi) {
-    const Spelled s = spell(tonic, midi - tonic.pc);
-    // The octave number belongs to the letter: Cb4 is MIDI 59, B#3 is MIDI 60.
-    const int base = kNaturalPc[static_cast<std::size_t>(s.letter)] + s.alter;
-    const int octave = (midi - base - mod(midi - base, 12)) / 12 - 1;
-    return letter_name(s.letter, s.alter) + std::to_string(octave);
+std::string spell_midi(const Tonic& tonic, int midi) { return with_octave(spell(tonic, midi - tonic.pc), midi); }
+
+std::vector<std::string> spell_chord(const Tonic& root, const std::vector<int>& midi) {
+    bool has[12] = {};
+    for (const int m : midi) has[mod(m - root.pc, 12)] = true;
+    std::vector<std::string> out;
+    for (const int m : midi) {
+        const int s = mod(m - root.pc, 12);
+        int change = 0;
+        if (s == 6 && has[3]) change = 1;               // diminished fifth
+        if (s == 8 && has[4] && !has[7]) change = -1;   // augmented fifth
+        out.push_back(with_octave(spell(root, m - root.pc, change), m));
+    }
+    return out;
 }
 
 }  // namespace beatless::pitch

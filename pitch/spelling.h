@@ -11,6 +11,7 @@
 
 #include <string>
 #include <string_view>
+#include <vector>
 
 namespace beatless::pitch {
 
@@ -30,5 +31,11 @@ std::string spell_pitch_class(const Tonic& tonic, int semitones);
 
 // MIDI note `midi` spelled against the tonic, with its octave: "Bb3".
 std::string spell_midi(const Tonic& tonic, int midi);
+
+// The notes of a chord (MIDI numbers) spelled from its root, with octaves.
+// As above, except that the tritone above the root is a diminished fifth
+// (E-G-Bb, B-D-F) when the chord holds a minor third, and eight semitones
+// are an augmented fifth (C-E-G#) when it holds a major third but no fifth.
+std::vector<std::string> spell_chord(const Tonic& root, const std::vector<int>& midi);
 
 }  // namespace beatless::pitch

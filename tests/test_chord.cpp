@@ -94,6 +94,13 @@ TEST_CASE("spelling voices from the chord root") {
     CHECK(spell_midi(parse_tonic("C#"), 60) == "B#3");        // 7 of C#: B#3 sounds as C4
     CHECK(spell_midi(parse_tonic("A"), 69) == "A4");
     CHECK_THROWS_AS(parse_tonic("H"), Error);
+    // In a chord: diminished fifths with a minor third, augmented fifths without a fifth.
+    CHECK(spell_chord(parse_tonic("E"), {64, 67, 70}) == std::vector<std::string>{"E4", "G4", "Bb4"});
+    CHECK(spell_chord(parse_tonic("B"), {59, 62, 65}) == std::vector<std::string>{"B3", "D4", "F4"});
+    CHECK(spell_chord(parse_tonic("C"), {48, 52, 56}) == std::vector<std::string>{"C3", "E3", "G#3"});
+    CHECK(spell_chord(parse_tonic("C"), {48, 50, 52, 54, 55}) ==
+          std::vector<std::string>{"C3", "D3", "E3", "F#3", "G3"});  // the 11th harmonic as F#
+    CHECK(spell_chord(parse_tonic("C"), {48, 52, 55, 56}) == std::vector<std::string>{"C3", "E3", "G3", "Ab3"});
 }
 
 TEST_CASE("the written forms of a chord") {
@@ -124,6 +131,10 @@ TEST_CASE("bad chords give one-line messages naming the text") {
     CHECK(error_of("1:2:3:4:5:6:7:8:9:10:11:12:13:14:15:16:17") ==
           "'1:2:3:4:5:6:7:8:9:10:11:12:13:14:15:16:17': 17 voices; a chord has at most 16");
     CHECK(error_of("4:x:6").find("'4:x:6'") == 0);
+    CHECK(error_of("999999:1000001") ==
+          "'999999:1000001': terms above 1000000 (as harmonics of one fundamental) are too far apart to tune by ear");
+    CHECK(error_of("1/1 7/3000000000000000000").find("terms above 1000000") != std::string::npos);
+    CHECK(parse_chord("1000:1000000").size() == 2);
 }
 
 TEST_CASE("coinciding partials between every two voices") {

@@ -32,24 +32,9 @@ struct ChordOptions {
     Format format = Format::text;
 };
 
-std::string join(const std::vector<std::string>& parts) {
-    std::string s;
-    for (const auto& p : parts) {
-        if (!s.empty()) s += ' ';
-        s += p;
-    }
-    return s;
-}
-
-std::string ordinal(int n) {
-    const int m100 = n % 100;
-    const char* suffix = (m100 >= 11 && m100 <= 13) ? "th" : n % 10 == 1 ? "st" : n % 10 == 2 ? "nd" : n % 10 == 3 ? "rd" : "th";
-    return std::to_string(n) + suffix;
-}
-
 int run_chord(const ChordOptions& o) {
     pitch::check_a4(o.a4_hz);
-    const ChordFile file = chord_from_argument(join(o.chord));
+    const ChordFile file = chord_from_argument(join_args(o.chord));
     const double root_hz = pitch::parse_frequency(o.root, o.a4_hz);
     // A root given as a note spells the voices from it (Bb, not A#).
     std::optional<pitch::Tonic> tonic;
@@ -59,12 +44,20 @@ int run_chord(const ChordOptions& o) {
     const pitch::ChartConfig config{o.a4_hz, 16};
     const pitch::ChordChart chart = pitch::chord_chart(file.chord, root_hz, config);
     for (std::size_t i = 0; i < chart.voices.size(); ++i) {
-        if (chart.voices[i].freq_hz > 20000.0)
+        const double f = chart.voices[i].freq_hz;
+        if (f > 20000.0 || f < 1.0)
             throw Error("chord " + pitch::quote(file.text) + " on " + o.root + ": voice " + std::to_string(i + 1) +
-                        " would sound at " + pitch::format_trimmed(chart.voices[i].freq_hz, 1) + " Hz, above 20 kHz");
+                        " would sound at " + pitch::format_trimmed(f, f < 1.0 ? 9 : 1) + " Hz, " +
+                        (f < 1.0 ? "below 1 Hz" : "above 20 kHz"));
     }
     std::vector<std::string> names;
-    for (const auto& v : chart.voices) names.push_back(tonic ? pitch::spell_midi(*tonic, v.note.midi) : v.note.name);
+    if (tonic) {
+        std::vector<int> midi;
+        for (const auto& v : chart.voices) midi.push_back(v.note.midi);
+        names = pitch::spell_chord(*tonic, midi);
+    } else {
+        for (const auto& v : chart.voices) names.push_back(v.note.name);
+    }
     const auto& iv_names = interval_names();
 
     if (o.format == Format::json) {

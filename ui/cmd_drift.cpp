@@ -233,7 +233,7 @@ void print_csv(const Context& c) {
 int run_drift(const DriftOptions& o) {
     pitch::check_a4(o.a4_hz);
     Context c;
-    for (const auto& p : o.progression) c.text += (c.text.empty() ? "" : " ") + p;
+    c.text = join_args(o.progression);
     c.key = pitch::parse_key(o.key, o.a4_hz);
     c.tonic_midi = static_cast<int>(std::lround(pitch::hz_to_midi(c.key.tonic_hz, o.a4_hz)));
     c.progression = pitch::parse_progression(c.text, c.key.mode);

@@ -6,6 +6,8 @@
 #include <CLI/CLI.hpp>
 
 #include <functional>
+#include <string>
+#include <vector>
 
 namespace beatless::ui {
 
@@ -18,5 +20,9 @@ void register_drift(CLI::App& app, Runner& run);
 // Output format choice shared by the commands.
 enum class Format { text, json, csv };
 void add_format_option(CLI::App& sub, Format& format, bool with_csv = true);
+
+// Small text helpers shared by the commands.
+std::string ordinal(int n);                                  // 1 -> "1st", 12 -> "12th"
+std::string join_args(const std::vector<std::string>& args); // words joined by single spaces
 
 }  // namespace beatless::ui

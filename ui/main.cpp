@@ -20,6 +20,21 @@ void add_format_option(CLI::App& sub, Format& format, bool with_csv) {
         ->transform(CLI::CheckedTransformer(names, CLI::ignore_case).description(""));
 }
 
+std::string ordinal(int n) {
+    const int m100 = n % 100;
+    const char* suffix = (m100 >= 11 && m100 <= 13) ? "th" : n % 10 == 1 ? "st" : n % 10 == 2 ? "nd" : n % 10 == 3 ? "rd" : "th";
+    return std::to_string(n) + suffix;
+}
+
+std::string join_args(const std::vector<std::string>& args) {
+    std::string s;
+    for (const auto& a : args) {
+        if (!s.empty()) s += ' ';
+        s += a;
+    }
+    return s;
+}
+
 }  // namespace beatless::ui
 
 int main(int argc, char** argv) {
