@@ -7,6 +7,8 @@
 
 #include <functional>
 #include <initializer_list>
+#include <string>
+#include <vector>
 
 namespace beatless::ui {
 
@@ -14,10 +16,16 @@ using Runner = std::function<int()>;
 
 void register_ratio(CLI::App& app, Runner& run);
 void register_tone(CLI::App& app, Runner& run);
+void register_chord(CLI::App& app, Runner& run);
+void register_drift(CLI::App& app, Runner& run);
 
 // Output format choice shared by the commands.
 enum class Format { text, json, csv };
 void add_format_option(CLI::App& sub, Format& format, bool with_csv = true);
 void add_format_option(CLI::App& sub, Format& format, std::initializer_list<Format> allowed);
+
+// Small text helpers shared by the commands.
+std::string ordinal(int n);                                  // 1 -> "1st", 12 -> "12th"
+std::string join_args(const std::vector<std::string>& args); // words joined by single spaces
 
 }  // namespace beatless::ui

@@ -29,6 +29,21 @@ void add_format_option(CLI::App& sub, Format& format, bool with_csv) {
     else add_format_option(sub, format, {Format::text, Format::json});
 }
 
+std::string ordinal(int n) {
+    const int m100 = n % 100;
+    const char* suffix = (m100 >= 11 && m100 <= 13) ? "th" : n % 10 == 1 ? "st" : n % 10 == 2 ? "nd" : n % 10 == 3 ? "rd" : "th";
+    return std::to_string(n) + suffix;
+}
+
+std::string join_args(const std::vector<std::string>& args) {
+    std::string s;
+    for (const auto& a : args) {
+        if (!s.empty()) s += ' ';
+        s += a;
+    }
+    return s;
+}
+
 }  // namespace beatless::ui
 
 int main(int argc, char** argv) {
@@ -40,6 +55,8 @@ int main(int argc, char** argv) {
     ui::Runner run;
     ui::register_ratio(app, run);
     ui::register_tone(app, run);
+    ui::register_chord(app, run);
+    ui::register_drift(app, run);
 
     try {
         app.parse(argc, argv);
