@@ -5,7 +5,7 @@
 // (Ellis 1885, from memory); 12-TET note frequencies by ISO 16 (A4 = 440 Hz);
 // the syntonic comma 81/80 = 21.506 cents (textbook, from memory). Exit
 // codes and message forms are the contracts in DESIGN.md.
-#include "tests/run_program.h"
+#include "tests/cli.h"
 
 #include <doctest/doctest.h>
 
