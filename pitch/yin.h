@@ -5,14 +5,19 @@
 // 1917-1930 (2002): (1) difference function, computed through the FFT
 // (KissFFT, real, out of place); (2) cumulative mean normalised difference;
 // (3) absolute threshold; (4) parabolic interpolation; (5) best local
-// estimate. A refinement stage then measures steady tones far more finely
-// than the parabola allows (see yin.cpp for the method).
+// estimate. Steps 2-5 run on a copy decimated to about 5 kHz
+// (pitch/decimator.h, pitch/yin_coarse.h). A refinement stage then measures
+// steady tones far more finely than the parabola allows: the lag of a period
+// multiple near 2/3 of the span, at the full rate (pitch/yin_refine.h).
 //
 // All allocation happens in the constructor; push() and pull() never
-// allocate for blocks up to YinConfig::max_block_len_samples.
+// allocate. push() runs the analysis; frames wait in a queue sized for
+// max_block_len_samples of audio (older frames are dropped and counted if
+// pull() falls further behind).
 #pragma once
 
 #include <cstddef>
+#include <limits>
 #include <memory>
 #include <span>
 
@@ -20,19 +25,20 @@ namespace beatless::pitch {
 
 struct YinConfig {
     double sample_rate_hz = 44100.0;   // 8 000 .. 192 000
-    double f_min_hz = 55.0;            // lowest f0 searched (A1)
-    double f_max_hz = 1600.0;          // highest f0 searched
-    double hop_s = 0.005;              // time between frames (rounded to whole samples)
-    double span_s = 0.050;             // most audio one estimate may depend on
-    double threshold = 0.15;           // YIN absolute threshold on the normalised difference
+    double f_min_hz = 55.0;            // lowest f0 searched (A1); two periods and a bit must fit in span_s
+    double f_max_hz = 1600.0;          // highest f0 searched, at most sample_rate_hz / 4
+    double hop_s = 0.005;              // time between frames (rounded to a multiple of decimation(); see hop_s())
+    double span_s = 0.050;             // most audio one estimate may depend on (0.01 .. 1 s)
+    double threshold = 0.15;           // YIN absolute threshold on the normalised difference (0 .. 1)
     double silence_dbfs = -60.0;       // frames quieter than this (RMS) are unvoiced
-    std::size_t max_block_len_samples = 1 << 16;  // push() blocks up to this never allocate
+    std::size_t max_block_len_samples = 1 << 16;  // frames of one push() this long fit the queue
 };
 
 struct PitchFrame {
     double t_s = 0.0;          // centre of the samples the estimate depends on, from stream start
     double f0_hz = 0.0;        // 0 when unvoiced
     double confidence = 0.0;   // 0..1 (1 - normalised difference at the chosen lag)
+    double level_dbfs = -std::numeric_limits<double>::infinity();  // RMS level of the span (dB re full scale), -inf for digital silence
     bool voiced() const { return f0_hz > 0.0; }
 };
 
@@ -56,6 +62,8 @@ public:
     double hop_s() const noexcept;                  // hop_len_samples / rate
     double delay_s() const noexcept;                // last sample pushed minus t of the frame it completes
     std::size_t bad_samples() const noexcept;       // non-finite samples seen
+    std::size_t dropped_frames() const noexcept;    // frames lost because pull() fell behind
+    std::size_t decimation() const noexcept;        // factor of the coarse stage's rate reduction
 
 private:
     struct Impl;

@@ -1,0 +1,94 @@
+// YIN coarse stage (internal): the difference function through the FFT and
+// the published steps on it.
+//
+// A. de Cheveigné and H. Kawahara, "YIN, a fundamental frequency estimator
+// for speech and music", J. Acoust. Soc. Am. 111(4), 1917-1930 (2002):
+// step 2, d(tau) = sum_j (x_j - x_{j+tau})^2 = E0 + E(tau) - 2 r(tau), with the
+// cross term r from the FFT; step 3, cumulative mean normalised difference;
+// step 4, absolute threshold; step 5, parabolic interpolation on d.
+// BlockCorrelator keeps r for a sliding window of k blocks of P samples: each
+// new block costs one forward real FFT (KissFFT, out of place) and each window
+// one inverse FFT; a block's lagged segment (the next R blocks) is assembled
+// in the frequency domain from the blocks' own spectra by phase shifts.
+#pragma once
+
+#include <kiss_fft.h>
+#include <kiss_fftr.h>
+
+#include <cstddef>
+#include <span>
+#include <vector>
+
+namespace beatless::pitch {
+
+class BlockCorrelator {
+public:
+    // block_len P >= 1, blocks_per_window k >= 1, lags 0 .. max_lag.
+    BlockCorrelator(std::size_t block_len, std::size_t blocks_per_window, std::size_t max_lag);
+    ~BlockCorrelator();
+    BlockCorrelator(const BlockCorrelator&) = delete;
+    BlockCorrelator& operator=(const BlockCorrelator&) = delete;
+
+    std::size_t block_len() const noexcept { return block_len_; }
+    std::size_t blocks_per_window() const noexcept { return blocks_; }
+    std::size_t max_lag() const noexcept { return max_lag_; }
+    std::size_t lookahead_blocks() const noexcept { return lookahead_; }   // R: blocks after a block its lags reach
+    std::size_t fft_len() const noexcept { return fft_len_; }
+    std::size_t blocks_added() const noexcept { return added_; }
+
+    void reset() noexcept;
+
+    // Appends the next P samples of the stream. Allocates: no.
+    void add_block(const float* block) noexcept;
+
+    // True once the window of blocks [added - R - k, added - R) has all its lags.
+    bool window_ready() const noexcept { return added_ >= lookahead_ + blocks_; }
+
+    // r[tau] = sum over the window's samples j of y[j] * y[j + tau], tau = 0 .. max_lag
+    // (r.size() >= max_lag + 1). Allocates: no.
+    void window_correlation(std::span<float> r) noexcept;
+
+private:
+    std::size_t block_len_, blocks_, max_lag_, lookahead_, fft_len_, bins_;
+    std::size_t added_ = 0;
+    kiss_fftr_cfg forward_ = nullptr;
+    kiss_fftr_cfg inverse_ = nullptr;
+    std::vector<float> time_;               // fft_len_ samples
+    std::vector<kiss_fft_cpx> spectra_;     // (R + 1) block spectra, ring
+    std::vector<kiss_fft_cpx> products_;    // k block lag products, ring
+    std::vector<kiss_fft_cpx> shifts_;      // (R + 1) x bins: e^{-2 pi i b m P / N}
+    std::vector<kiss_fft_cpx> sum_;         // bins
+};
+
+// Smallest even n >= min_len whose half has no prime factor above 5 (fast for KissFFT).
+std::size_t fast_real_fft_len(std::size_t min_len);
+
+// d[tau] = E0 + E(tau) - 2 r[tau] for tau = 0 .. max_lag, E0 = sum_{j<window} y[j]^2,
+// E(tau) = sum_{j<window} y[j+tau]^2 (energies in double, d clamped at 0,
+// d[0] = 0). y must hold window + max_lag samples. Allocates: no.
+void difference_from_correlation(const float* y, std::size_t window, std::size_t max_lag, const float* r,
+                                 double* d) noexcept;
+
+// Cumulative mean normalised difference (YIN step 3): dn[0] = 1,
+// dn[tau] = d[tau] * tau / sum_{j=1..tau} d[j] (1 where that sum is 0).
+void cumulative_mean_normalised(std::span<const double> d, std::span<double> dn) noexcept;
+
+struct LagChoice {
+    std::size_t lag = 0;          // integer lag of the chosen dip
+    double aperiodicity = 1.0;    // dn at that lag
+    bool below_threshold = false; // a dip under the threshold was found
+};
+
+// YIN step 4: the first lag in [lag_min, lag_max] where dn < threshold, then
+// on to the bottom of that dip; the overall minimum in range when none is.
+// Our addition: a local minimum also counts when the bottom of the parabola
+// through it and its neighbours is under the threshold (a short period whose
+// dip falls between two lags); aperiodicity is then that bottom.
+LagChoice absolute_threshold(std::span<const double> dn, std::size_t lag_min, std::size_t lag_max,
+                             double threshold) noexcept;
+
+// YIN step 5: abscissa of the parabola through d[lag - 1], d[lag], d[lag + 1]
+// (lag itself at the ends or where the parabola opens downwards).
+double parabolic_minimum(std::span<const double> d, std::size_t lag) noexcept;
+
+}  // namespace beatless::pitch

@@ -1,0 +1,495 @@
+// Tests of pitch/yin.h and its internals on signals with exactly known f0.
+//
+// Sources: the YIN steps are from A. de Cheveigné and H. Kawahara, "YIN, a
+// fundamental frequency estimator for speech and music", J. Acoust. Soc.
+// Am. 111(4), 2002 (equation numbers below are that paper's). Test signals
+// come from tests/signals.h: their f0 is exact by construction. The noise
+// bars use the Cramer-Rao bound of M. G. Christensen and A. Jakobsson,
+// Multi-Pitch Estimation (2009), checked against numpy by the ctest
+// yin_difference_numpy. Accuracy bars here are deliberately looser than the
+// benchmark's (tests guard correctness; beatless-bench yin measures).
+//
+// Index: the difference function and the YIN steps; settings; signals with
+// exactly known f0 (tones, sines, noise, vibrato, glides, missing
+// fundamental, silence, bad samples); streaming behaviour (block sizes,
+// frame times, sample rates, allocation, queue, reset).
+#include "pitch/error.h"
+#include "pitch/yin.h"
+#include "pitch/yin_coarse.h"
+#include "tests/signals.h"
+
+#include <doctest/doctest.h>
+
+#include <algorithm>
+#include <atomic>
+#include <cmath>
+#include <cstdlib>
+#include <limits>
+#include <new>
+#include <string>
+#include <vector>
+
+// Counts heap allocations while g_counting is set (this test binary only).
+namespace {
+std::atomic<bool> g_counting{false};
+std::atomic<std::size_t> g_allocations{0};
+}  // namespace
+
+void* operator new(std::size_t n) {
+    if (g_counting.load(std::memory_order_relaxed)) g_allocations.fetch_add(1, std::memory_order_relaxed);
+    if (void* p = std::malloc(n == 0 ? 1 : n)) return p;
+    throw std::bad_alloc();
+}
+void operator delete(void* p) noexcept { std::free(p); }
+void operator delete(void* p, std::size_t) noexcept { std::free(p); }
+
+using namespace beatless;
+using namespace beatless::pitch;
+
+namespace {
+
+constexpr double kRate = 44100.0;
+
+std::vector<PitchFrame> track(const std::vector<float>& x, const YinConfig& cfg = {}, std::size_t block = 512) {
+    YinTracker yin(cfg);
+    std::vector<PitchFrame> frames;
+    PitchFrame p;
+    for (std::size_t i = 0; i < x.size(); i += block) {
+        yin.push(std::span<const float>(x).subspan(i, std::min(block, x.size() - i)));
+        while (yin.pull(p)) frames.push_back(p);
+    }
+    return frames;
+}
+
+struct Errors {
+    std::vector<double> cents;   // |error| of voiced frames
+    std::size_t unvoiced = 0;
+    double median() const {
+        auto v = cents;
+        if (v.empty()) return NAN;
+        std::nth_element(v.begin(), v.begin() + static_cast<std::ptrdiff_t>(v.size() / 2), v.end());
+        return v[v.size() / 2];
+    }
+    double max() const { return cents.empty() ? NAN : *std::max_element(cents.begin(), cents.end()); }
+    std::size_t over(double c) const {
+        return static_cast<std::size_t>(std::count_if(cents.begin(), cents.end(), [c](double e) { return e > c; }));
+    }
+};
+
+template <class Truth>
+Errors errors(const std::vector<PitchFrame>& frames, Truth truth) {
+    Errors e;
+    for (const auto& p : frames) {
+        if (!p.voiced()) {
+            ++e.unvoiced;
+            continue;
+        }
+        e.cents.push_back(std::fabs(test::cents(p.f0_hz, truth(p.t_s))));
+    }
+    return e;
+}
+
+std::string error_of(const YinConfig& c) {
+    try {
+        YinTracker y(c);
+    } catch (const Error& e) {
+        return e.what();
+    }
+    return "(no error)";
+}
+
+double brute_difference(const std::vector<float>& x, std::size_t w, std::size_t tau) {
+    double s = 0.0;
+    for (std::size_t j = 0; j < w; ++j) {
+        const double d = static_cast<double>(x[j]) - x[j + tau];
+        s += d * d;
+    }
+    return s;
+}
+
+}  // namespace
+
+// ---------------------------------------------------------------------------
+// The difference function and the YIN steps
+// ---------------------------------------------------------------------------
+
+TEST_CASE("yin_difference (FFT) equals the direct sum of eq. 6 for several windows and lags") {
+    // Windows that tile into blocks (300 = 3 x 100, 1000 = 8 x 125), a prime
+    // one (331, one block) and a short one; the direct loop runs in double.
+    const std::size_t shapes[][2] = {{300, 200}, {331, 150}, {1000, 400}, {64, 64}, {17, 40}};
+    std::uint64_t seed = 1;
+    for (const auto& s : shapes) {
+        const auto parts = test::falling_partials(150.0, 11025.0, 10, 6.0, seed++);
+        auto x = test::harmonic_tone(11025.0, s[0] + s[1], 150.0, parts);
+        test::add_white_noise(x, test::harmonic_power(parts), 10.0, seed++);
+        std::vector<double> d(s[1] + 1);
+        yin_difference(x, s[0], s[1], d);
+        const double scale = 2.0 * test::mean_square(x) * static_cast<double>(x.size());
+        double worst = 0.0;
+        for (std::size_t tau = 0; tau <= s[1]; ++tau) worst = std::max(worst, std::fabs(d[tau] - brute_difference(x, s[0], tau)));
+        INFO("window " << s[0] << " max_lag " << s[1]);
+        CHECK(worst / scale < 2e-6);   // float FFT rounding; a wrong lag is off by O(1)
+        CHECK(d[0] == 0.0);
+    }
+}
+
+TEST_CASE("BlockCorrelator: sliding windows of k blocks match the direct cross term") {
+    const std::size_t P = 28, k = 4, L = 102;
+    BlockCorrelator c(P, k, L);
+    const auto x = test::harmonic_tone(5512.5, 40 * P, 233.0, test::falling_partials(233.0, 5512.5, 8, 6.0, 3));
+    std::vector<float> r(L + 1);
+    std::size_t windows = 0;
+    for (std::size_t b = 0; b + 1 < 40; ++b) {
+        c.add_block(x.data() + b * P);
+        if (!c.window_ready()) continue;
+        const std::size_t first = (c.blocks_added() - c.lookahead_blocks() - k) * P;
+        if (first + k * P + L > x.size()) break;
+        c.window_correlation(r);
+        double worst = 0.0, e = 0.0;
+        for (std::size_t j = 0; j < k * P; ++j) e += static_cast<double>(x[first + j]) * x[first + j];
+        for (std::size_t tau = 0; tau <= L; ++tau) {
+            double s = 0.0;
+            for (std::size_t j = 0; j < k * P; ++j) s += static_cast<double>(x[first + j]) * x[first + j + tau];
+            worst = std::max(worst, std::fabs(s - r[tau]));
+        }
+        CHECK(worst / e < 1e-5);
+        ++windows;
+    }
+    CHECK(windows > 20);
+}
+
+TEST_CASE("cumulative mean normalised difference, eq. 8, on a hand example") {
+    // d = 0, 1, 2, 3, 0.5: d'(1) = 1*1/1, d'(2) = 2*2/3, d'(3) = 3*3/6, d'(4) = 0.5*4/6.5.
+    const std::vector<double> d = {0.0, 1.0, 2.0, 3.0, 0.5};
+    std::vector<double> dn(d.size());
+    cumulative_mean_normalised(d, dn);
+    CHECK(dn[0] == 1.0);
+    CHECK(dn[1] == doctest::Approx(1.0));
+    CHECK(dn[2] == doctest::Approx(4.0 / 3.0));
+    CHECK(dn[3] == doctest::Approx(1.5));
+    CHECK(dn[4] == doctest::Approx(2.0 / 6.5));
+}
+
+TEST_CASE("absolute threshold (step 4) takes the first dip under it, else the overall minimum") {
+    const std::vector<double> dn = {1.0, 0.9, 0.5, 0.12, 0.08, 0.3, 0.6, 0.05, 0.4};
+    const LagChoice a = absolute_threshold(dn, 1, 8, 0.15);
+    CHECK(a.lag == 4);   // first under 0.15 at 3, bottom of that dip at 4 (not the deeper 7)
+    CHECK(a.below_threshold);
+    const LagChoice b = absolute_threshold(dn, 1, 8, 0.01);
+    CHECK(b.lag == 7);
+    CHECK_FALSE(b.below_threshold);
+    CHECK(b.aperiodicity == 0.05);
+}
+
+TEST_CASE("parabolic interpolation (step 5) is exact on a sampled parabola") {
+    std::vector<double> d(8);
+    for (std::size_t j = 0; j < d.size(); ++j) d[j] = 3.0 * (static_cast<double>(j) - 4.3) * (static_cast<double>(j) - 4.3) + 1.0;
+    CHECK(parabolic_minimum(d, 4) == doctest::Approx(4.3).epsilon(1e-12));
+}
+
+// ---------------------------------------------------------------------------
+// Settings
+// ---------------------------------------------------------------------------
+
+TEST_CASE("invalid settings throw one-line errors naming the value") {
+    const struct {
+        YinConfig config;
+        const char* names;
+    } bad[] = {
+        {{.sample_rate_hz = 7000}, "sample_rate_hz 7000"},
+        {{.sample_rate_hz = 200000}, "sample_rate_hz 200000"},
+        {{.sample_rate_hz = std::numeric_limits<double>::quiet_NaN()}, "sample_rate_hz nan"},
+        {{.f_min_hz = 500, .f_max_hz = 400}, "f_max_hz 400"},
+        {{.f_max_hz = 12000}, "f_max_hz 12000"},   // above 44100 / 4
+        {{.f_min_hz = 0}, "f_min_hz 0"},
+        {{.f_min_hz = 20}, "f_min_hz 20"},         // two periods of 20 Hz do not fit in 50 ms
+        {{.hop_s = 0.0}, "hop_s 0"},
+        {{.hop_s = -0.01}, "hop_s -0.01"},
+        {{.span_s = 2.0}, "span_s 2"},
+        {{.threshold = 1.5}, "threshold 1.5"},
+        {{.silence_dbfs = 3.0}, "silence_dbfs 3"},
+    };
+    for (const auto& b : bad) {
+        const std::string msg = error_of(b.config);
+        INFO(msg);
+        CHECK(msg.find(b.names) != std::string::npos);
+        CHECK(msg.find('\n') == std::string::npos);
+    }
+    CHECK(error_of(YinConfig{}) == "(no error)");
+}
+
+TEST_CASE("hop, decimation and delay are reported") {
+    for (double rate : {8000.0, 16000.0, 22050.0, 44100.0, 48000.0, 96000.0, 192000.0}) {
+        YinConfig c;
+        c.sample_rate_hz = rate;
+        YinTracker y(c);
+        INFO("rate " << rate);
+        CHECK(y.hop_len_samples() % y.decimation() == 0);
+        CHECK(std::fabs(y.hop_s() - 0.005) < 0.0005);   // default 5 ms, rounded to the decimation
+        CHECK(y.hop_s() == doctest::Approx(static_cast<double>(y.hop_len_samples()) / rate));
+        CHECK(y.delay_s() > 0.025);                       // at least half the 50 ms span
+        CHECK(y.delay_s() < 0.05);
+    }
+}
+
+// ---------------------------------------------------------------------------
+// Signals with exactly known f0
+// ---------------------------------------------------------------------------
+
+TEST_CASE("steady harmonic tones 50-1500 Hz: within 0.2 cent (median) and 1 cent (every frame)") {
+    YinConfig c;
+    c.f_min_hz = 45.0;   // so that 50 Hz is inside the searched range
+    std::uint64_t seed = 100;
+    for (double f0 : {50.0, 65.4, 98.0, 151.3, 220.0, 329.6, 440.0, 659.3, 880.0, 1000.0, 1234.5, 1500.0}) {
+        const auto parts = test::falling_partials(f0, kRate, 20, 6.0, seed++);
+        const auto x = test::harmonic_tone(kRate, static_cast<std::size_t>(0.3 * kRate), f0, parts);
+        const auto frames = track(x, c);
+        const Errors e = errors(frames, [f0](double) { return f0; });
+        INFO("f0 " << f0 << " median " << e.median() << " max " << e.max());
+        CHECK(frames.size() > 40);
+        CHECK(e.unvoiced == 0);
+        CHECK(e.median() < 0.2);
+        CHECK(e.max() < 1.0);
+    }
+}
+
+TEST_CASE("pure sines: within 0.2 cent") {
+    for (double f : {60.0, 100.0, 261.63, 440.0, 1000.0, 1500.0}) {
+        const auto frames = track(test::sine(kRate, static_cast<std::size_t>(0.3 * kRate), f, 0.3, 0.7));
+        const Errors e = errors(frames, [f](double) { return f; });
+        INFO("f " << f << " max " << e.max());
+        CHECK(e.unvoiced == 0);
+        CHECK(e.max() < 0.2);
+    }
+}
+
+TEST_CASE("white noise at 20 dB SNR: median within 2 x max(0.1, 1.5 CRB), no gross errors") {
+    std::uint64_t seed = 200;
+    for (double f0 : {70.0, 150.0, 300.0, 700.0}) {
+        const auto parts = test::falling_partials(f0, kRate, 20, 6.0, seed++);
+        auto x = test::harmonic_tone(kRate, static_cast<std::size_t>(0.5 * kRate), f0, parts);
+        const double var = test::add_white_noise(x, test::harmonic_power(parts), 20.0, seed++);
+        const double crb = test::harmonic_crb_cents(parts, f0, kRate, var, static_cast<std::size_t>(0.05 * kRate));
+        const Errors e = errors(track(x), [f0](double) { return f0; });
+        INFO("f0 " << f0 << " median " << e.median() << " CRB " << crb);
+        CHECK(e.unvoiced == 0);
+        CHECK(e.over(50.0) == 0);
+        CHECK(e.median() < 2.0 * std::max(0.1, 1.5 * crb));
+    }
+}
+
+TEST_CASE("white noise at 10 dB SNR: at most 3% gross errors (over 50 cents or unvoiced)") {
+    std::uint64_t seed = 300;
+    std::size_t frames = 0, gross = 0;
+    for (double f0 : {66.0, 90.0, 123.0, 180.0, 250.0, 370.0, 520.0, 777.0, 990.0}) {
+        const auto parts = test::falling_partials(f0, kRate, 20, 6.0, seed++);
+        auto x = test::harmonic_tone(kRate, static_cast<std::size_t>(0.5 * kRate), f0, parts);
+        test::add_white_noise(x, test::harmonic_power(parts), 10.0, seed++);
+        const auto fr = track(x);
+        const Errors e = errors(fr, [f0](double) { return f0; });
+        frames += fr.size();
+        gross += e.unvoiced + e.over(50.0);
+    }
+    INFO("gross " << gross << " of " << frames);
+    CHECK(frames > 700);
+    CHECK(static_cast<double>(gross) < 0.03 * static_cast<double>(frames));
+}
+
+TEST_CASE("vibrato: the track follows the known instantaneous f0 at each frame's t") {
+    // +-50 cents at 5.5 Hz. An estimate confined to a 50 ms span can only
+    // report an average over it: a plain average over all 50 ms would flatten
+    // the peaks by 50 * (1 - sinc(5.5 * 0.05)) = 6.1 cents, so no frame may
+    // miss by more. Timing: the least-squares time shift between the track
+    // and f0(t) must be under 0.3 ms (5 ms of misplaced t would shift 5 ms).
+    std::uint64_t seed = 400;
+    for (double centre : {110.0, 247.0, 523.0}) {
+        const test::Vibrato v{centre, 50.0, 5.5, 0.3};
+        const auto parts = test::falling_partials(centre * std::exp2(50.0 / 1200.0), kRate, 20, 6.0, seed++);
+        const auto frames = track(test::vibrato_tone(kRate, static_cast<std::size_t>(0.6 * kRate), v, parts));
+        const Errors e = errors(frames, [&](double t) { return v.f0_hz(t); });
+        double num = 0.0, den = 0.0;
+        for (const auto& p : frames) {
+            const double slope = (test::cents(v.f0_hz(p.t_s + 1e-4), centre) - test::cents(v.f0_hz(p.t_s - 1e-4), centre)) / 2e-4;
+            num += test::cents(p.f0_hz, v.f0_hz(p.t_s)) * slope;
+            den += slope * slope;
+        }
+        const double shift_s = num / den;
+        INFO("centre " << centre << " median " << e.median() << " max " << e.max() << " shift " << shift_s * 1e3 << " ms");
+        CHECK(e.unvoiced == 0);
+        CHECK(e.max() < 6.1);
+        CHECK(std::fabs(shift_s) < 0.3e-3);
+    }
+}
+
+TEST_CASE("glides linear in cents: the track follows f0(t) at each frame's t") {
+    std::uint64_t seed = 500;
+    for (double cps : {-1200.0, -300.0, 300.0, 1200.0}) {
+        const test::Glide g{cps > 0 ? 150.0 : 600.0, cps};
+        const auto parts = test::falling_partials(std::max(g.f0_hz(0.0), g.f0_hz(0.6)), kRate, 20, 6.0, seed++);
+        const auto frames = track(test::glide_tone(kRate, static_cast<std::size_t>(0.6 * kRate), g, parts));
+        const Errors e = errors(frames, [&](double t) { return g.f0_hz(t); });
+        INFO("cents/s " << cps << " median " << e.median() << " max " << e.max());
+        CHECK(e.unvoiced == 0);
+        CHECK(e.max() < 1.0);
+    }
+}
+
+TEST_CASE("missing fundamental: partials 2-10 of 200 Hz give 200 Hz, not 400") {
+    const int drop[] = {1};
+    const auto parts = test::without(test::falling_partials(200.0, kRate, 10, 6.0, 7), drop);
+    const auto frames = track(test::harmonic_tone(kRate, static_cast<std::size_t>(0.3 * kRate), 200.0, parts));
+    const Errors e = errors(frames, [](double) { return 200.0; });
+    INFO("median " << e.median() << " max " << e.max());
+    CHECK(e.unvoiced == 0);
+    CHECK(e.max() < 0.5);
+}
+
+TEST_CASE("silence: every frame unvoiced, confidence 0, level -inf") {
+    const auto frames = track(test::silence(static_cast<std::size_t>(0.5 * kRate)));
+    CHECK(frames.size() > 80);
+    for (const auto& p : frames) {
+        CHECK_FALSE(p.voiced());
+        CHECK(p.confidence == 0.0);
+        CHECK(std::isinf(p.level_dbfs));
+    }
+}
+
+TEST_CASE("white noise alone is unvoiced") {
+    std::vector<float> x(static_cast<std::size_t>(0.5 * kRate), 0.0f);
+    test::add_white_noise(x, 0.01, 0.0, 42);
+    const auto frames = track(x);
+    const auto voiced = std::count_if(frames.begin(), frames.end(), [](const PitchFrame& p) { return p.voiced(); });
+    CHECK(static_cast<double>(voiced) < 0.05 * static_cast<double>(frames.size()));
+}
+
+TEST_CASE("NaN and infinite samples are counted, read as 0, and never poison later frames") {
+    const double f0 = 220.0;
+    auto x = test::harmonic_tone(kRate, static_cast<std::size_t>(0.6 * kRate), f0, test::falling_partials(f0, kRate, 20, 6.0, 9));
+    const std::size_t at[] = {5000, 5001, 9000, 12345};
+    x[at[0]] = std::numeric_limits<float>::quiet_NaN();
+    x[at[1]] = std::numeric_limits<float>::infinity();
+    x[at[2]] = -std::numeric_limits<float>::infinity();
+    x[at[3]] = std::numeric_limits<float>::signaling_NaN();
+    YinTracker yin(YinConfig{});
+    yin.push(x);
+    CHECK(yin.bad_samples() == 4);
+    PitchFrame p;
+    std::size_t n = 0, good_late = 0, late = 0;
+    while (yin.pull(p)) {
+        ++n;
+        CHECK(std::isfinite(p.t_s));
+        CHECK(std::isfinite(p.f0_hz));
+        CHECK(std::isfinite(p.confidence));
+        if (p.t_s > 12345.0 / kRate + 0.03) {   // spans clear of every bad sample
+            ++late;
+            if (p.voiced() && std::fabs(test::cents(p.f0_hz, f0)) < 0.2) ++good_late;
+        }
+    }
+    CHECK(n > 90);
+    CHECK(late > 50);
+    CHECK(good_late == late);
+}
+
+// ---------------------------------------------------------------------------
+// Streaming behaviour
+// ---------------------------------------------------------------------------
+
+TEST_CASE("results do not depend on the block sizes pushed") {
+    const auto x = test::vibrato_tone(kRate, static_cast<std::size_t>(0.4 * kRate), test::Vibrato{196.0, 40.0, 6.0, 1.0},
+                                      test::falling_partials(210.0, kRate, 20, 6.0, 4));
+    const auto a = track(x, {}, 1);
+    const auto b = track(x, {}, 37);
+    const auto c = track(x, {}, x.size());
+    REQUIRE(a.size() == b.size());
+    REQUIRE(a.size() == c.size());
+    for (std::size_t i = 0; i < a.size(); ++i) {
+        CHECK(a[i].t_s == b[i].t_s);
+        CHECK(a[i].f0_hz == b[i].f0_hz);
+        CHECK(a[i].f0_hz == c[i].f0_hz);
+    }
+}
+
+TEST_CASE("frame times: hop apart, centred on the span, t of a steady tone within a sample of the grid") {
+    YinTracker yin(YinConfig{});
+    const auto x = test::harmonic_tone(kRate, static_cast<std::size_t>(0.3 * kRate), 300.0, test::falling_partials(300.0, kRate, 20, 6.0, 5));
+    yin.push(x);
+    PitchFrame p;
+    std::vector<double> t;
+    while (yin.pull(p)) t.push_back(p.t_s);
+    REQUIRE(t.size() > 10);
+    // First frame: the 50 ms span starts at sample 0, so its centre is near 25 ms.
+    CHECK(std::fabs(t[0] - 0.025) < 0.0006);
+    for (std::size_t i = 1; i < t.size(); ++i) CHECK(std::fabs(t[i] - t[i - 1] - yin.hop_s()) < 1.0 / kRate);
+    // The last frame's span ended at most delay_s before the last sample pushed.
+    CHECK(static_cast<double>(x.size()) / kRate - t.back() >= yin.delay_s() - 1e-9);
+}
+
+TEST_CASE("other sample rates, 8 kHz to 192 kHz") {
+    for (double rate : {8000.0, 11025.0, 16000.0, 48000.0, 96000.0, 192000.0}) {
+        YinConfig c;
+        c.sample_rate_hz = rate;
+        const double f0 = 233.1;
+        const auto frames = track(test::harmonic_tone(rate, static_cast<std::size_t>(0.3 * rate), f0,
+                                                      test::falling_partials(f0, rate, 20, 6.0, 8)),
+                                  c, 1024);
+        const Errors e = errors(frames, [f0](double) { return f0; });
+        INFO("rate " << rate << " max " << e.max());
+        CHECK(frames.size() > 40);
+        CHECK(e.unvoiced == 0);
+        CHECK(e.max() < 0.5);
+    }
+}
+
+TEST_CASE("push and pull allocate nothing after construction (DESIGN.md real-time rules)") {
+    const auto x = test::vibrato_tone(kRate, static_cast<std::size_t>(1.0 * kRate), test::Vibrato{300.0, 30.0, 5.0, 0.0},
+                                      test::falling_partials(320.0, kRate, 20, 6.0, 12));
+    YinTracker yin(YinConfig{});
+    std::vector<PitchFrame> frames;
+    frames.reserve(1000);
+    PitchFrame p;
+    g_allocations = 0;
+    g_counting = true;
+    for (std::size_t i = 0; i < x.size(); i += 300) {
+        yin.push(std::span<const float>(x).subspan(i, std::min<std::size_t>(300, x.size() - i)));
+        while (yin.pull(p)) frames.push_back(p);
+    }
+    yin.push(x);   // one long block
+    while (yin.pull(p)) frames.push_back(p);
+    g_counting = false;
+    CHECK(frames.size() > 350);
+    CHECK(g_allocations.load() == 0);
+}
+
+TEST_CASE("a full queue drops the oldest frames and counts them") {
+    YinConfig c;
+    c.max_block_len_samples = 2048;   // a queue for about 9 hops
+    YinTracker yin(c);
+    const auto x = test::sine(kRate, static_cast<std::size_t>(kRate), 440.0, 0.3);
+    yin.push(x);   // about 190 frames, never pulled
+    CHECK(yin.dropped_frames() > 150);
+    PitchFrame p, last;
+    std::size_t n = 0;
+    while (yin.pull(p)) {
+        last = p;
+        ++n;
+    }
+    CHECK(n + yin.dropped_frames() > 180);
+    CHECK(last.t_s > 0.9);   // the newest frames were kept
+}
+
+TEST_CASE("reset forgets the audio: the same input gives the same frames from t = 0") {
+    const auto x = test::harmonic_tone(kRate, static_cast<std::size_t>(0.2 * kRate), 180.0, test::falling_partials(180.0, kRate, 20, 6.0, 2));
+    YinTracker yin(YinConfig{});
+    std::vector<PitchFrame> first, second;
+    PitchFrame p;
+    yin.push(x);
+    while (yin.pull(p)) first.push_back(p);
+    yin.reset();
+    yin.push(x);
+    while (yin.pull(p)) second.push_back(p);
+    REQUIRE(first.size() == second.size());
+    for (std::size_t i = 0; i < first.size(); ++i) {
+        CHECK(first[i].t_s == second[i].t_s);
+        CHECK(first[i].f0_hz == second[i].f0_hz);
+    }
+}
