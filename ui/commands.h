@@ -16,6 +16,7 @@ using Runner = std::function<int()>;
 
 void register_ratio(CLI::App& app, Runner& run);
 void register_tone(CLI::App& app, Runner& run);
+void register_track(CLI::App& app, Runner& run);
 void register_chord(CLI::App& app, Runner& run);
 void register_drift(CLI::App& app, Runner& run);
 

@@ -55,6 +55,7 @@ int main(int argc, char** argv) {
     ui::Runner run;
     ui::register_ratio(app, run);
     ui::register_tone(app, run);
+    ui::register_track(app, run);
     ui::register_chord(app, run);
     ui::register_drift(app, run);
 
