@@ -12,6 +12,7 @@ namespace beatless::ui {
 using Runner = std::function<int()>;
 
 void register_ratio(CLI::App& app, Runner& run);
+void register_history(CLI::App& app, Runner& run);
 
 // Output format choice shared by the commands.
 enum class Format { text, json, csv };

@@ -30,6 +30,7 @@ int main(int argc, char** argv) {
 
     ui::Runner run;
     ui::register_ratio(app, run);
+    ui::register_history(app, run);
 
     try {
         app.parse(argc, argv);
