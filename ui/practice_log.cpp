@@ -94,15 +94,11 @@ std::string parse_since(std::string_view text) {
 }
 
 std::string new_uid() {
-    static thread_local std::mt19937_64 gen([] {
-        std::random_device rd;
-        const auto t = static_cast<std::uint64_t>(std::chrono::steady_clock::now().time_since_epoch().count());
-        std::seed_seq seq{rd(), rd(), rd(), rd(), static_cast<unsigned>(t), static_cast<unsigned>(t >> 32)};
-        return std::mt19937_64(seq);
-    }());
+    // Drawn from the system's random source each time (no generator state
+    // that a forked child would repeat).
+    std::random_device rd;
     char buf[33];
-    std::snprintf(buf, sizeof buf, "%016llx%016llx", static_cast<unsigned long long>(gen()),
-                  static_cast<unsigned long long>(gen()));
+    std::snprintf(buf, sizeof buf, "%08x%08x%08x%08x", rd(), rd(), rd(), rd());
     return buf;
 }
 
