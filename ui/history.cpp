@@ -73,24 +73,13 @@ struct Acc {
     }
 };
 
-// Holds first, ordered by the target's pitch; then ear drills by id.
-struct KeyOrder {
-    bool operator()(const std::pair<AttemptKind, std::string>& a, const std::pair<AttemptKind, std::string>& b) const {
-        if (a.first != b.first) return a.first == AttemptKind::hold;
-        if (a.first == AttemptKind::hold) {
-            const double ca = cents(a.second), cb = cents(b.second);
-            if (ca != cb) return ca < cb;
-        }
-        return a.second < b.second;
+double target_cents(const std::string& target) {
+    try {
+        return pitch::parse_interval(target).cents();
+    } catch (const Error&) {
+        return INFINITY;  // not an interval: after the others
     }
-    static double cents(const std::string& target) {
-        try {
-            return pitch::parse_interval(target).cents();
-        } catch (const Error&) {
-            return INFINITY;
-        }
-    }
-};
+}
 
 }  // namespace
 
@@ -99,23 +88,34 @@ HistorySummary summarize_history(const PracticeLog& log, const HistoryOptions& o
     s.log_path = log.path().string();
     s.since = o.filter.since;
     s.by = o.by;
-    using Key = std::pair<AttemptKind, std::string>;
-    std::map<Key, Acc, KeyOrder> totals;
-    std::map<Key, std::map<std::string, Acc>, KeyOrder> periods;
-    std::string last_day, last_period;
+    // Groups come sorted by (kind, key, day): fold the days of each key into
+    // its total and its periods, converting each day to its period once.
+    struct Keyed {
+        AttemptKind kind;
+        std::string key;
+        double cents;
+        Acc total;
+        std::vector<std::pair<std::string, Acc>> periods;  // in time order
+    };
+    std::vector<Keyed> keys;
     for (const HistoryGroup& g : log.history_groups(o.filter)) {
-        const Key k{g.kind, g.key};
-        totals[k].add(g);
-        if (g.day != last_day) {  // groups come sorted by day within a key: convert each day once
-            last_day = g.day;
-            last_period = period_start(g.day, o.by);
-        }
-        periods[k][last_period].add(g);
+        if (keys.empty() || keys.back().kind != g.kind || keys.back().key != g.key)
+            keys.push_back({g.kind, g.key, g.kind == AttemptKind::hold ? target_cents(g.key) : 0.0, {}, {}});
+        Keyed& k = keys.back();
+        k.total.add(g);
+        const std::string p = period_start(g.day, o.by);
+        if (k.periods.empty() || k.periods.back().first != p) k.periods.push_back({p, {}});
+        k.periods.back().second.add(g);
         s.attempts += g.attempts;
     }
-    for (const auto& [k, acc] : totals) s.totals.push_back(acc.line(k.first, k.second, "all"));
-    for (const auto& [k, by_period] : periods)
-        for (const auto& [p, acc] : by_period) s.over_time.push_back(acc.line(k.first, k.second, p));
+    // Holds first, ordered by the target's pitch; then ear drills by id.
+    std::stable_sort(keys.begin(), keys.end(), [](const Keyed& a, const Keyed& b) {
+        if (a.kind != b.kind) return a.kind == AttemptKind::hold;
+        return a.cents < b.cents;
+    });
+    for (const Keyed& k : keys) s.totals.push_back(k.total.line(k.kind, k.key, "all"));
+    for (const Keyed& k : keys)
+        for (const auto& [p, acc] : k.periods) s.over_time.push_back(acc.line(k.kind, k.key, p));
     return s;
 }
 

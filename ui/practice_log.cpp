@@ -17,6 +17,9 @@
 #include <cstring>
 #include <ctime>
 #include <random>
+#include <tuple>
+#include <unordered_map>
+#include <algorithm>
 
 namespace beatless::ui {
 
@@ -610,41 +613,61 @@ std::int64_t PracticeLog::count() const {
 }
 
 std::vector<HistoryGroup> PracticeLog::history_groups(const AttemptFilter& filter) const {
-    const std::string sql =
-        std::string("SELECT kind, CASE kind WHEN 'hold' THEN target ELSE drill END AS k, ") +
-        "max(CASE kind WHEN 'hold' THEN target_name ELSE target END), substr(started_at, 1, 10) AS day, count(*), "
-        "total(locked), count(locked), total(time_to_lock_s), count(time_to_lock_s), total(mean_dev_cents), "
-        "count(mean_dev_cents), total(spread_cents), count(spread_cents), total(in_tolerance_share), "
-        "count(in_tolerance_share), total(threshold_cents), count(threshold_cents) FROM attempt" +
-        kWhere + " GROUP BY kind, k, day ORDER BY kind, k, day";
+    // One plain scan, summed in a hash map: several times faster than
+    // SQLite's GROUP BY, which sorts every row through a temporary b-tree.
+    const std::string sql = std::string("SELECT kind, target, drill, target_name, started_at, locked, time_to_lock_s, "
+                                        "mean_dev_cents, spread_cents, in_tolerance_share, threshold_cents FROM attempt") +
+                            kWhere;
     Stmt st;
     if (sqlite3_prepare_v2(db_, sql.c_str(), -1, &st.s, nullptr) != SQLITE_OK) fail("preparing the history query");
     bind_filter(st.s, filter);
     std::vector<HistoryGroup> out;
+    std::unordered_map<std::string, std::size_t> index;
+    std::string key;
+    auto text = [](sqlite3_stmt* s, int i) {
+        const auto* p = reinterpret_cast<const char*>(sqlite3_column_text(s, i));
+        return p ? std::string_view(p, static_cast<std::size_t>(sqlite3_column_bytes(s, i))) : std::string_view();
+    };
+    auto add = [](sqlite3_stmt* s, int i, double& sum, std::int64_t& n) {
+        if (sqlite3_column_type(s, i) == SQLITE_NULL) return;
+        sum += sqlite3_column_double(s, i);
+        ++n;
+    };
     int rc;
     while ((rc = sqlite3_step(st.s)) == SQLITE_ROW) {
         sqlite3_stmt* s = st.s;
-        HistoryGroup g;
-        g.kind = parse_kind(column_text(s, 0)).value_or(AttemptKind::hold);
-        g.key = column_text(s, 1);
-        g.name = column_text(s, 2);
-        g.day = column_text(s, 3);
-        g.attempts = sqlite3_column_int64(s, 4);
-        g.locked = static_cast<std::int64_t>(sqlite3_column_double(s, 5));
-        g.locked_n = sqlite3_column_int64(s, 6);
-        g.time_to_lock_sum = sqlite3_column_double(s, 7);
-        g.time_to_lock_n = sqlite3_column_int64(s, 8);
-        g.mean_dev_sum = sqlite3_column_double(s, 9);
-        g.mean_dev_n = sqlite3_column_int64(s, 10);
-        g.spread_sum = sqlite3_column_double(s, 11);
-        g.spread_n = sqlite3_column_int64(s, 12);
-        g.in_tol_sum = sqlite3_column_double(s, 13);
-        g.in_tol_n = sqlite3_column_int64(s, 14);
-        g.threshold_sum = sqlite3_column_double(s, 15);
-        g.threshold_n = sqlite3_column_int64(s, 16);
-        out.push_back(std::move(g));
+        const bool is_hold = text(s, 0) == "hold";
+        const std::string_view k = is_hold ? text(s, 1) : text(s, 2);
+        const std::string_view day = text(s, 4).substr(0, 10);
+        key.assign(is_hold ? "h" : "e");
+        key.append(k);
+        key += '\n';
+        key.append(day);
+        auto [it, fresh] = index.try_emplace(key, out.size());
+        if (fresh) {
+            HistoryGroup g;
+            g.kind = is_hold ? AttemptKind::hold : AttemptKind::ear;
+            g.key = k;
+            g.name = is_hold ? text(s, 3) : text(s, 1);
+            g.day = day;
+            out.push_back(std::move(g));
+        }
+        HistoryGroup& g = out[it->second];
+        ++g.attempts;
+        if (sqlite3_column_type(s, 5) != SQLITE_NULL) {
+            g.locked += sqlite3_column_int(s, 5) != 0;
+            ++g.locked_n;
+        }
+        add(s, 6, g.time_to_lock_sum, g.time_to_lock_n);
+        add(s, 7, g.mean_dev_sum, g.mean_dev_n);
+        add(s, 8, g.spread_sum, g.spread_n);
+        add(s, 9, g.in_tol_sum, g.in_tol_n);
+        add(s, 10, g.threshold_sum, g.threshold_n);
     }
     if (rc != SQLITE_DONE) fail("reading the history");
+    std::sort(out.begin(), out.end(), [](const HistoryGroup& a, const HistoryGroup& b) {
+        return std::tie(a.kind, a.key, a.day) < std::tie(b.kind, b.key, b.day);
+    });
     return out;
 }
 
