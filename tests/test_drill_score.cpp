@@ -36,6 +36,20 @@ std::vector<HoldPoint> points_every(double hop_s, const std::vector<double>& dev
     return p;
 }
 
+// n voiced readings at a 5 ms hop; `path` sets the deviations from r.t_s.
+template <class F>
+std::vector<Reading> scripted(int n, F path) {
+    std::vector<Reading> out;
+    for (int i = 0; i < n; ++i) {
+        Reading r;
+        r.t_s = 0.005 * i;
+        r.f0_hz = 220.0;
+        path(r);
+        out.push_back(r);
+    }
+    return out;
+}
+
 }  // namespace
 
 TEST_CASE("hand-worked hold: a false start, then a lock, a drift out and back") {
@@ -65,14 +79,9 @@ TEST_CASE("scripted attempt: a glide into the band, then vibrato inside it") {
     // and it never leaves: lock at 0.78 s. Held: the glide's last 44 points
     // (sum 45 * (44*0.22 - 0.005*946) = 222.75) and 20 whole vibrato cycles
     // (sum 0): mean = 222.75 / 844 = 0.263922 c; numpy std = 4.330547 c.
-    std::vector<Reading> readings;
-    for (int i = 0; i < 1000; ++i) {
-        Reading r;
-        r.t_s = 0.005 * i;
-        r.f0_hz = 220.0;
+    const std::vector<Reading> readings = scripted(1000, [](Reading& r) {
         r.dev_cents = r.t_s < 1.0 ? 45.0 * (1.0 - r.t_s) : 6.0 * std::sin(2.0 * kPi * 5.0 * r.t_s);
-        readings.push_back(r);
-    }
+    });
     HoldScoreConfig c;
     c.hold_dur_s = 5.0;
     const HoldScore s = score_hold(hold_points(readings, DeviationSource::instant), c);
@@ -87,15 +96,10 @@ TEST_CASE("scripted attempt: a glide into the band, then vibrato inside it") {
 TEST_CASE("the vibrato centre is scored when asked for, the instant pitch otherwise") {
     // A wide vibrato (+/-14 c) around a centre 2 c sharp: the instant pitch
     // leaves a 10 c band every cycle, the centre never does.
-    std::vector<Reading> readings;
-    for (int i = 0; i < 800; ++i) {
-        Reading r;
-        r.t_s = 0.005 * i;
-        r.f0_hz = 330.0;
+    std::vector<Reading> readings = scripted(800, [](Reading& r) {
         r.centre_dev_cents = 2.0;
         r.dev_cents = 2.0 + 14.0 * std::sin(2.0 * kPi * 5.5 * r.t_s);
-        readings.push_back(r);
-    }
+    });
     HoldScoreConfig c;
     c.dwell_s = 0.3;  // longer than the time a 5.5 Hz cycle spends inside the band
     const HoldScore centre = score_hold(hold_points(readings, DeviationSource::centre_first), c);

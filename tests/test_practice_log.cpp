@@ -75,7 +75,7 @@ Attempt random_attempt(pitch::Rng& rng, int index, std::size_t records) {
     static const char* kTargets[] = {"7/5", "10/7", "11/8", "45/32", "600c", "3/2"};
     Attempt a;
     a.uid = new_uid();
-    char when[32];
+    char when[64];
     std::snprintf(when, sizeof when, "2025-%02d-%02dT%02d:%02d:%02d.%03dZ", 1 + index % 12, 1 + index % 28, index % 24,
                   index % 60, (index * 7) % 60, index % 1000);
     a.started_at = when;

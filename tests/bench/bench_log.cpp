@@ -44,7 +44,7 @@ Attempt make_attempt(pitch::Rng& rng, long index, std::size_t records, long days
     const int sec = static_cast<int>(rng.below(86400));
     // Days from 2023-01-01, as a date string (30-day months are enough for a spread).
     const int y = 2023 + static_cast<int>(day / 360), m = 1 + static_cast<int>(day % 360 / 30), d = 1 + static_cast<int>(day % 30);
-    char when[32];
+    char when[64];
     std::snprintf(when, sizeof when, "%04d-%02d-%02dT%02d:%02d:%02d.%03dZ", y, m, std::min(d, 28), sec / 3600, sec / 60 % 60,
                   sec % 60, static_cast<int>(index % 1000));
     a.started_at = when;
