@@ -58,6 +58,7 @@ int main(int argc, char** argv) {
     ui::register_track(app, run);
     ui::register_chord(app, run);
     ui::register_drift(app, run);
+    ui::register_history(app, run);
 
     try {
         app.parse(argc, argv);
