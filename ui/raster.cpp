@@ -11,7 +11,12 @@
 
 #include <algorithm>
 #include <cmath>
+#include <cstring>
 #include <utility>
+
+#if defined(__SSE2__)
+#include <immintrin.h>
+#endif
 
 namespace beatless::ui {
 
@@ -75,16 +80,78 @@ inline std::uint32_t blend(std::uint32_t src, std::uint32_t a, std::uint32_t dst
     return Blender(src, a)(dst);
 }
 
+// Rows of pixels. With SSE2 (every x86-64) four pixels go at a time, each
+// channel in a 16-bit lane, with the same exact arithmetic as Blender; the
+// scalar code is the reference and does the tails.
+
+void fill_row(std::uint32_t* p, int n, std::uint32_t color) {
+    int i = 0;
+#if defined(__SSE2__)
+    const __m128i c = _mm_set1_epi32(static_cast<int>(color));
+    for (; i + 4 <= n; i += 4) _mm_storeu_si128(reinterpret_cast<__m128i*>(p + i), c);
+#endif
+    for (; i < n; ++i) p[i] = color;
+}
+
+#if defined(__SSE2__)
+// (t + (t >> 8)) >> 8 per 16-bit lane: round(x / 255) when t = x + 128.
+inline __m128i div255_epi16(__m128i t) { return _mm_srli_epi16(_mm_add_epi16(t, _mm_srli_epi16(t, 8)), 8); }
+#endif
+
+// One colour over a row with one coverage a, 0 < a < 255.
+void blend_row(std::uint32_t* p, int n, std::uint32_t src, std::uint32_t a) {
+    int i = 0;
+#if defined(__SSE2__)
+    const __m128i zero = _mm_setzero_si128();
+    const __m128i s16 = _mm_unpacklo_epi8(_mm_set1_epi32(static_cast<int>(src | 0xFF000000u)), zero);
+    const __m128i sa = _mm_add_epi16(_mm_mullo_epi16(s16, _mm_set1_epi16(static_cast<short>(a))), _mm_set1_epi16(128));
+    const __m128i inv = _mm_set1_epi16(static_cast<short>(255 - a));
+    for (; i + 4 <= n; i += 4) {
+        const __m128i d = _mm_loadu_si128(reinterpret_cast<const __m128i*>(p + i));
+        const __m128i lo = _mm_add_epi16(_mm_mullo_epi16(_mm_unpacklo_epi8(d, zero), inv), sa);
+        const __m128i hi = _mm_add_epi16(_mm_mullo_epi16(_mm_unpackhi_epi8(d, zero), inv), sa);
+        _mm_storeu_si128(reinterpret_cast<__m128i*>(p + i), _mm_packus_epi16(div255_epi16(lo), div255_epi16(hi)));
+    }
+#endif
+    const Blender b(src, a);
+    for (; i < n; ++i) p[i] = b(p[i]);
+}
+
+// One RGB over a row with coverage cov[i] * ca / 255 per pixel (text).
+void blend_coverage_row(std::uint32_t* p, const std::uint8_t* cov, int n, std::uint32_t rgb, std::uint32_t ca) {
+    int i = 0;
+#if defined(__SSE2__)
+    const __m128i zero = _mm_setzero_si128();
+    const __m128i s16 = _mm_unpacklo_epi8(_mm_set1_epi32(static_cast<int>(rgb | 0xFF000000u)), zero);
+    const __m128i c255 = _mm_set1_epi16(255), c128 = _mm_set1_epi16(128), ca16 = _mm_set1_epi16(static_cast<short>(ca));
+    for (; i + 4 <= n; i += 4) {
+        std::uint32_t c4 = 0;
+        std::memcpy(&c4, cov + i, 4);
+        if (c4 == 0) continue;
+        __m128i c = _mm_unpacklo_epi8(_mm_cvtsi32_si128(static_cast<int>(c4)), zero);  // c0 c1 c2 c3 (16-bit)
+        if (ca != 255) c = div255_epi16(_mm_add_epi16(_mm_mullo_epi16(c, ca16), c128));
+        c = _mm_unpacklo_epi16(c, c);                                                  // c0 c0 c1 c1 c2 c2 c3 c3
+        const __m128i a_lo = _mm_unpacklo_epi32(c, c), a_hi = _mm_unpackhi_epi32(c, c);  // 4 lanes per pixel
+        const __m128i d = _mm_loadu_si128(reinterpret_cast<const __m128i*>(p + i));
+        __m128i lo = _mm_mullo_epi16(_mm_unpacklo_epi8(d, zero), _mm_sub_epi16(c255, a_lo));
+        __m128i hi = _mm_mullo_epi16(_mm_unpackhi_epi8(d, zero), _mm_sub_epi16(c255, a_hi));
+        lo = _mm_add_epi16(_mm_add_epi16(lo, _mm_mullo_epi16(s16, a_lo)), c128);
+        hi = _mm_add_epi16(_mm_add_epi16(hi, _mm_mullo_epi16(s16, a_hi)), c128);
+        _mm_storeu_si128(reinterpret_cast<__m128i*>(p + i), _mm_packus_epi16(div255_epi16(lo), div255_epi16(hi)));
+    }
+#endif
+    for (; i < n; ++i) {
+        const std::uint32_t c = cov[i];
+        if (c != 0) p[i] = blend(rgb, ca == 255 ? c : mul255(c, ca), p[i]);
+    }
+}
+
 // A span of one colour (its alpha is the coverage).
 void fill_span(std::uint32_t* p, int n, std::uint32_t color) {
     const std::uint32_t a = color >> 24;
     if (a == 0 || n <= 0) return;
-    if (a == 255) {
-        std::fill_n(p, n, color);
-        return;
-    }
-    const Blender b(color, a);
-    for (int i = 0; i < n; ++i) p[i] = b(p[i]);
+    if (a == 255) fill_row(p, n, color);
+    else blend_row(p, n, color, a);
 }
 
 inline int to_u8(float f) { return std::clamp(static_cast<int>(f + 0.5f), 0, 255); }
@@ -148,8 +215,15 @@ constexpr std::int64_t kSub = std::int64_t{1} << kSubBits;
 constexpr std::int64_t kHalf = kSub / 2;
 constexpr float kMaxCoordPx = static_cast<float>(1 << 20);
 
+// Rounds to the nearest 1/256 pixel (ties to even). On x86-64 one
+// instruction; std::llrint would be a library call per coordinate.
 inline std::int64_t snap(float px) {
-    return std::llrint(std::clamp(px, -kMaxCoordPx, kMaxCoordPx) * static_cast<float>(kSub));
+    const float s = std::clamp(px, -kMaxCoordPx, kMaxCoordPx) * static_cast<float>(kSub);
+#if defined(__SSE2__) && defined(__x86_64__)
+    return _mm_cvtss_si64(_mm_set_ss(s));
+#else
+    return std::llrint(s);
+#endif
 }
 
 // Index of the first pixel whose centre (i + 0.5) * kSub is >= v.
@@ -171,9 +245,6 @@ struct Snapped {
 inline std::int64_t floor_div(std::int64_t n, std::int64_t d) {  // d > 0
     return n >= 0 ? n / d : -((-n + d - 1) / d);
 }
-inline std::int64_t ceil_div(std::int64_t n, std::int64_t d) {  // d > 0
-    return n >= 0 ? (n + d - 1) / d : -((-n) / d);
-}
 
 // ---------------------------------------------------------------------------
 // [triangle]
@@ -188,28 +259,50 @@ struct Surface {
 // with positive area. The top-left rule: a pixel centre exactly on the edge
 // is inside when the edge is a left edge (A > 0: inside lies towards +x) or
 // a top edge (horizontal, B > 0: inside lies below, y pointing down).
+//
+// On a row, pixel x is inside when A*(kSub*x + kHalf) + B*yc + C >= bias
+// (bias 0 on a top or left edge, else 1), i.e. kSub*A*x >= n with
+// n = bias - B*yc - C - kHalf*A. So a left-side edge (A > 0) bounds the span
+// below by ceil(n / d), a right-side edge (A < 0) above by floor(-n / d),
+// with d = kSub*|A|. n changes by -kSub*B per row; the quotient q and
+// remainder r of n / d are stepped exactly from row to row (as a line is in
+// Bresenham's algorithm), so there is no division per row.
 struct Edge {
-    std::int64_t a = 0;       // A
-    std::int64_t step = 0;    // change of n per row: -kSub * B
-    std::int64_t n = 0;       // bias - E at (x = -0.5 px, row centre); see row bound below
-    std::int64_t d = 0;       // kSub * |A|
+    std::int64_t q = 0;    // floor(n / d)
+    std::int64_t r = 0;    // n - q*d, 0 <= r < d
+    std::int64_t qs = 0;   // floor(step / d)
+    std::int64_t rs = 0;   // step - qs*d
+    std::int64_t d = 1;    // kSub*|A|; 1 for a horizontal edge (then q = n)
+    int side = 0;          // +1 bounds the span below, -1 above, 0 horizontal
 
-    Edge(const Snapped& p, const Snapped& q, std::int64_t first_row_centre) {
-        a = p.y - q.y;
-        const std::int64_t b = q.x - p.x;
+    Edge(const Snapped& p, const Snapped& p_next, std::int64_t first_row_centre) {
+        const std::int64_t a = p.y - p_next.y;
+        const std::int64_t b = p_next.x - p.x;
         const std::int64_t c = -(a * p.x + b * p.y);
         const std::int64_t bias = (a > 0 || (a == 0 && b > 0)) ? 0 : 1;
-        // Inside at pixel x of this row: a*(kSub*x + kHalf) + b*yc + c >= bias,
-        // i.e. kSub*a*x >= n with n = bias - b*yc - c - kHalf*a.
-        n = bias - b * first_row_centre - c - kHalf * a;
-        step = -kSub * b;
-        d = kSub * (a < 0 ? -a : a);
+        const std::int64_t n = bias - b * first_row_centre - c - kHalf * a;
+        const std::int64_t step = -kSub * b;
+        side = a > 0 ? 1 : a < 0 ? -1 : 0;
+        if (a != 0) d = kSub * (a < 0 ? -a : a);
+        q = floor_div(n, d);
+        r = n - q * d;
+        qs = floor_div(step, d);
+        rs = step - qs * d;
     }
     // Narrows [x0, x1) to the pixels inside this edge on the current row.
     void bound(std::int64_t& x0, std::int64_t& x1) const {
-        if (a > 0) x0 = std::max(x0, ceil_div(n, d));
-        else if (a < 0) x1 = std::min(x1, floor_div(-n, d) + 1);
-        else if (n > 0) x1 = x0;  // horizontal edge with the row outside
+        const std::int64_t ceil_q = q + (r != 0 ? 1 : 0);  // ceil(n / d)
+        if (side > 0) x0 = std::max(x0, ceil_q);
+        else if (side < 0) x1 = std::min(x1, 1 - ceil_q);
+        else if (q > 0) x1 = x0;  // horizontal edge with the row outside
+    }
+    void next_row() {
+        q += qs;
+        r += rs;
+        if (r >= d) {
+            r -= d;
+            ++q;
+        }
     }
 };
 
@@ -243,16 +336,67 @@ struct PlaneSetup {
 
 inline float channel(std::uint32_t c, int shift) { return static_cast<float>((c >> shift) & 0xFF); }
 
-// Calls span(y, x0, x1) for every row of pixel centres inside the triangle.
+// The same inside test for a triangle whose bounding box is at most
+// kSmallSub on a side, evaluated at every pixel centre of its (clipped) box
+// with 32-bit edge values relative to the box: cheaper than setting up the
+// row quotients when a triangle covers a handful of pixels (line segments,
+// the fringes of anti-aliased edges, arc pieces). Same predicate, same pixels.
+constexpr std::int64_t kSmallSub = 16 * kSub;
+
+struct SmallEdge {
+    std::int32_t e = 0;       // E - bias at the first pixel centre of the box, on the current row
+    std::int32_t step_x = 0;  // kSub * A
+    std::int32_t step_y = 0;  // kSub * B
+    SmallEdge(const Snapped& p, const Snapped& p_next, std::int64_t ox, std::int64_t oy) {
+        const auto a = static_cast<std::int32_t>(p.y - p_next.y);
+        const auto b = static_cast<std::int32_t>(p_next.x - p.x);
+        const std::int32_t bias = (a > 0 || (a == 0 && b > 0)) ? 0 : 1;
+        e = a * static_cast<std::int32_t>(ox - p.x) + b * static_cast<std::int32_t>(oy - p.y) - bias;
+        step_x = static_cast<std::int32_t>(kSub) * a;
+        step_y = static_cast<std::int32_t>(kSub) * b;
+    }
+};
+
+// Calls span(y, x0, x1) for every row of pixel centres inside the triangle
+// (positive area), within clip.
 template <class Span>
 void scan(const Snapped& p0, const Snapped& p1, const Snapped& p2, const PixRect& clip, Span&& span) {
     const std::int64_t ylo = std::min({p0.y, p1.y, p2.y}), yhi = std::max({p0.y, p1.y, p2.y});
     const std::int64_t xlo = std::min({p0.x, p1.x, p2.x}), xhi = std::max({p0.x, p1.x, p2.x});
     const int ry0 = clamp_px(first_px(ylo), clip.y0, clip.y1);
     const int ry1 = clamp_px(first_px(yhi + 1), clip.y0, clip.y1);
-    const std::int64_t cx0 = clamp_px(first_px(xlo), clip.x0, clip.x1);
-    const std::int64_t cx1 = clamp_px(first_px(xhi + 1), clip.x0, clip.x1);
+    const int cx0 = clamp_px(first_px(xlo), clip.x0, clip.x1);
+    const int cx1 = clamp_px(first_px(xhi + 1), clip.x0, clip.x1);
     if (ry0 >= ry1 || cx0 >= cx1) return;
+
+    if (xhi - xlo <= kSmallSub && yhi - ylo <= kSmallSub) {
+        const std::int64_t ox = static_cast<std::int64_t>(cx0) * kSub + kHalf;
+        const std::int64_t oy = static_cast<std::int64_t>(ry0) * kSub + kHalf;
+        SmallEdge e0(p0, p1, ox, oy), e1(p1, p2, ox, oy), e2(p2, p0, ox, oy);
+        for (int y = ry0; y < ry1; ++y) {
+            std::int32_t a = e0.e, b = e1.e, c = e2.e;
+            int x = cx0;
+            while (x < cx1 && (a | b | c) < 0) {  // outside: find the first pixel inside
+                a += e0.step_x;
+                b += e1.step_x;
+                c += e2.step_x;
+                ++x;
+            }
+            const int first = x;
+            while (x < cx1 && (a | b | c) >= 0) {  // inside pixels are contiguous (convexity)
+                a += e0.step_x;
+                b += e1.step_x;
+                c += e2.step_x;
+                ++x;
+            }
+            if (x > first) span(y, first, x);
+            e0.e += e0.step_y;
+            e1.e += e1.step_y;
+            e2.e += e2.step_y;
+        }
+        return;
+    }
+
     const std::int64_t yc = static_cast<std::int64_t>(ry0) * kSub + kHalf;
     Edge e0(p0, p1, yc), e1(p1, p2, yc), e2(p2, p0, yc);
     for (int y = ry0; y < ry1; ++y) {
@@ -261,43 +405,73 @@ void scan(const Snapped& p0, const Snapped& p1, const Snapped& p2, const PixRect
         e1.bound(x0, x1);
         e2.bound(x0, x1);
         if (x0 < x1) span(y, static_cast<int>(x0), static_cast<int>(x1));
-        e0.n += e0.step;
-        e1.n += e1.step;
-        e2.n += e2.step;
+        e0.next_row();
+        e1.next_row();
+        e2.next_row();
     }
 }
 
+// Shading by what varies over the triangle (decided once per triangle).
+enum class Shade {
+    flat,        // one colour, one texel: spans of one colour
+    alpha,       // one RGB, alpha interpolated, one texel: anti-aliased fringes
+    full,        // colour and/or texture coordinates interpolated
+};
+
 // Draws one triangle; returns false when it has no area.
-bool draw_triangle(Surface& s, Snapped p0, Snapped p1, Snapped p2, const PixRect& clip, const Sampler& tex) {
-    const std::int64_t area2 = (p1.x - p0.x) * (p2.y - p0.y) - (p2.x - p0.x) * (p1.y - p0.y);
+bool draw_triangle(Surface& s, const Snapped& p0, const Snapped& q1, const Snapped& q2, const PixRect& clip,
+                   const Sampler& tex) {
+    const std::int64_t area2 = (q1.x - p0.x) * (q2.y - p0.y) - (q2.x - p0.x) * (q1.y - p0.y);
     if (area2 == 0) return false;
-    if (area2 < 0) std::swap(p1, p2);
+    const Snapped& p1 = area2 > 0 ? q1 : q2;  // counter-clockwise on screen (y down): positive area
+    const Snapped& p2 = area2 > 0 ? q2 : q1;
 
     const bool col_const = p0.col == p1.col && p0.col == p2.col;
+    const bool rgb_const = ((p0.col ^ p1.col) & 0x00FFFFFFu) == 0 && ((p0.col ^ p2.col) & 0x00FFFFFFu) == 0;
     const bool uv_const = tex.white() || (p0.u == p1.u && p0.u == p2.u && p0.v == p1.v && p0.v == p2.v);
+    const std::uint32_t const_texel = uv_const ? tex.at(p0.u, p0.v) : 0xFFFFFFFFu;
+    const Shade shade = !uv_const ? Shade::full : col_const ? Shade::flat : rgb_const ? Shade::alpha : Shade::full;
 
-    if (col_const && uv_const) {
-        const std::uint32_t color = modulate(p0.col, tex.at(p0.u, p0.v));
-        if ((color >> 24) == 0) return true;
-        scan(p0, p1, p2, clip, [&](int y, int x0, int x1) {
-            fill_span(s.pixels + static_cast<std::ptrdiff_t>(y) * s.stride + x0, x1 - x0, color);
-        });
+    if (shade == Shade::flat) {
+        const std::uint32_t color = modulate(p0.col, const_texel);
+        const std::uint32_t a = color >> 24;
+        if (a == 0) return true;
+        if (a == 255) {
+            scan(p0, p1, p2, clip, [&](int y, int x0, int x1) {
+                fill_row(s.pixels + static_cast<std::ptrdiff_t>(y) * s.stride + x0, x1 - x0, color);
+            });
+        } else {
+            const Blender blender(color, a);
+            scan(p0, p1, p2, clip, [&](int y, int x0, int x1) {
+                std::uint32_t* row = s.pixels + static_cast<std::ptrdiff_t>(y) * s.stride;
+                if (x1 - x0 >= 8) blend_row(row + x0, x1 - x0, color, a);
+                else for (int x = x0; x < x1; ++x) row[x] = blender(row[x]);
+            });
+        }
         return true;
     }
 
     const PlaneSetup ps(p0, p1, p2);
-    Plane r, g, b, a, u, v;
-    if (!col_const) {
-        r = ps.plane(channel(p0.col, 0), channel(p1.col, 0), channel(p2.col, 0));
-        g = ps.plane(channel(p0.col, 8), channel(p1.col, 8), channel(p2.col, 8));
-        b = ps.plane(channel(p0.col, 16), channel(p1.col, 16), channel(p2.col, 16));
-        a = ps.plane(channel(p0.col, 24), channel(p1.col, 24), channel(p2.col, 24));
+    if (shade == Shade::alpha) {
+        // Texel alpha folds into the plane: a(x) = col.a(x) * texel.a / 255.
+        const std::uint32_t rgb = modulate(p0.col | 0xFF000000u, const_texel) & 0x00FFFFFFu;
+        const float t = static_cast<float>(const_texel >> 24) / 255.0f;
+        const Plane a = ps.plane(channel(p0.col, 24) * t, channel(p1.col, 24) * t, channel(p2.col, 24) * t);
+        scan(p0, p1, p2, clip, [&](int y, int x0, int x1) {
+            std::uint32_t* row = s.pixels + static_cast<std::ptrdiff_t>(y) * s.stride;
+            const float a0 = a.at(x0, y);
+            for (int x = x0; x < x1; ++x)
+                row[x] = blend(rgb, static_cast<std::uint32_t>(to_u8(a0 + static_cast<float>(x - x0) * a.dx)), row[x]);
+        });
+        return true;
     }
-    const std::uint32_t const_texel = uv_const ? tex.at(p0.u, p0.v) : 0xFFFFFFFFu;
-    if (!uv_const) {
-        u = ps.plane(p0.u, p1.u, p2.u);
-        v = ps.plane(p0.v, p1.v, p2.v);
-    }
+
+    const Plane r = ps.plane(channel(p0.col, 0), channel(p1.col, 0), channel(p2.col, 0));
+    const Plane g = ps.plane(channel(p0.col, 8), channel(p1.col, 8), channel(p2.col, 8));
+    const Plane b = ps.plane(channel(p0.col, 16), channel(p1.col, 16), channel(p2.col, 16));
+    const Plane a = ps.plane(channel(p0.col, 24), channel(p1.col, 24), channel(p2.col, 24));
+    const Plane u = ps.plane(p0.u, p1.u, p2.u);
+    const Plane v = ps.plane(p0.v, p1.v, p2.v);
     scan(p0, p1, p2, clip, [&](int y, int x0, int x1) {
         std::uint32_t* row = s.pixels + static_cast<std::ptrdiff_t>(y) * s.stride;
         const float r0 = r.at(x0, y), g0 = g.at(x0, y), b0 = b.at(x0, y), a0 = a.at(x0, y);
@@ -374,11 +548,7 @@ void draw_rect(Surface& s, const Snapped& a, const Snapped& c, const PixRect& cl
         std::uint32_t* row = s.pixels + static_cast<std::ptrdiff_t>(y) * s.stride + x0;
         if (tex.a8 != nullptr && consecutive) {
             const std::uint8_t* t = tex.a8 + static_cast<std::size_t>(ty) * static_cast<std::size_t>(tex.w) + static_cast<std::size_t>(tx0);
-            for (int i = 0; i < w; ++i) {
-                const std::uint32_t cov = t[i];
-                if (cov == 0) continue;
-                row[i] = blend(col, ca == 255 ? cov : mul255(cov, ca), row[i]);
-            }
+            blend_coverage_row(row, t, w, col & 0x00FFFFFFu, ca);
             continue;
         }
         for (int i = 0; i < w; ++i) {
@@ -447,7 +617,8 @@ void Rasterizer::draw_elements(PixelBuffer& target, std::span<const ImDrawVert> 
                 continue;
             }
         }
-        if (draw_triangle(surf, snapped(v0), snapped(v1), snapped(v2), clip, tex)) ++stats_.triangles;
+        const Snapped s0 = snapped(v0), s1 = snapped(v1), s2 = snapped(v2);
+        if (draw_triangle(surf, s0, s1, s2, clip, tex)) ++stats_.triangles;
         else ++stats_.skipped;
     }
 }
