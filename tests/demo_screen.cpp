@@ -123,8 +123,8 @@ void DemoScreen::build(float t_s) {
         ImGui::SameLine();
         ImGui::Button("Hold");
         ImGui::ProgressBar(0.5f + 0.5f * std::sin(t_s * 0.5f), ImVec2(-1, 0), "stability");
-        for (std::size_t i = 0; i < plot_.size(); ++i) plot_[i] = demo_dev_cents(t_s - 0.05f * static_cast<float>(plot_.size() - i));
-        ImGui::PlotLines("##dev", plot_.data(), static_cast<int>(plot_.size()), 0, "last 6 s", -20.0f, 20.0f, ImVec2(ImGui::GetContentRegionAvail().x, 70));
+        for (std::size_t i = 0; i < plot_.size(); ++i) plot_[i] = demo_dev_cents(t_s - 0.02f * static_cast<float>(plot_.size() - i));
+        ImGui::PlotLines("##dev", plot_.data(), static_cast<int>(plot_.size()), 0, "last 2.4 s", -20.0f, 20.0f, ImVec2(ImGui::GetContentRegionAvail().x, 70));
         if (ImGui::BeginTable("chord", 3, ImGuiTableFlags_Borders | ImGuiTableFlags_RowBg)) {
             ImGui::TableSetupColumn("voice");
             ImGui::TableSetupColumn("Hz");
