@@ -2,12 +2,12 @@
 // at by eye and for the window smoke check. Test tool, not part of the product.
 //
 //   beatless-demo png OUT.png [WIDTHxHEIGHT] [DPI_SCALE] [T_S]
-//   beatless-demo window [FRAMES] [--check] [--no-vsync]
+//   beatless-demo window [FRAMES] [--check] [--no-vsync] [--resize]
 //
 // `window` opens the GLFW window, shows FRAMES frames (default 120), prints
 // frames per second and the CPU split, and with --check compares the last
 // frame read back from OpenGL with the rasterizer's buffer (exit 1 if any
-// pixel differs).
+// pixel differs); --resize changes the window to 900x600 a third of the way.
 #include "pitch/error.h"
 #include "tests/demo_screen.h"
 #include "ui/imgui_host.h"
@@ -24,7 +24,7 @@ using namespace beatless;
 namespace {
 
 int usage() {
-    std::fprintf(stderr, "usage: beatless-demo png OUT.png [WIDTHxHEIGHT] [DPI_SCALE] [T_S] | window [FRAMES] [--check] [--no-vsync]\n");
+    std::fprintf(stderr, "usage: beatless-demo png OUT.png [WIDTHxHEIGHT] [DPI_SCALE] [T_S] | window [FRAMES] [--check] [--no-vsync] [--resize]\n");
     return 2;
 }
 
@@ -47,17 +47,21 @@ int run_png(int argc, char** argv) {
 
 int run_win(int argc, char** argv) {
     ui::WindowConfig wc;
+    bool resize = false;
     wc.title = "beatless demo";
     wc.max_frames = 120;
     for (int i = 2; i < argc; ++i) {
         if (std::strcmp(argv[i], "--check") == 0) wc.check_upload = true;
         else if (std::strcmp(argv[i], "--no-vsync") == 0) wc.vsync = false;
+        else if (std::strcmp(argv[i], "--resize") == 0) resize = true;
         else wc.max_frames = std::atoi(argv[i]);
     }
     testing::DemoScreen demo;
     float t_s = 0.0f;
+    int frame = 0;
     const ui::WindowReport r = ui::run_window(wc, [&](float dt_s) {
         t_s += dt_s;
+        if (resize && frame++ == wc.max_frames / 3) ui::set_window_size(900, 600);
         demo.build(t_s);
     });
     const double n = r.frames > 0 ? r.frames : 1;

@@ -54,6 +54,11 @@ double cpu_s() {
     return static_cast<double>(ts.tv_sec) + 1e-9 * static_cast<double>(ts.tv_nsec);
 }
 
+GLFWwindow*& running_window() {  // the window of the run_window() in progress (one at a time)
+    static GLFWwindow* w = nullptr;
+    return w;
+}
+
 // ---------------------------------------------------------------------------
 // [input]
 // ---------------------------------------------------------------------------
@@ -280,8 +285,12 @@ WindowReport run_window(const WindowConfig& config, const std::function<void(flo
     glfwSetWindowUserPointer(win, &input);
     struct UserPointerGuard {  // callbacks during teardown find no state
         GLFWwindow* w;
-        ~UserPointerGuard() { glfwSetWindowUserPointer(w, nullptr); }
+        ~UserPointerGuard() {
+            glfwSetWindowUserPointer(w, nullptr);
+            running_window() = nullptr;
+        }
     } pointer_guard{win};
+    running_window() = win;
     {
         ImGuiIO& io = ImGui::GetIO();
         set_key_map(io);
@@ -339,6 +348,10 @@ WindowReport run_window(const WindowConfig& config, const std::function<void(flo
     }
     report.wall_s = glfwGetTime() - t_start;
     return report;
+}
+
+void set_window_size(int width, int height) {
+    if (running_window() != nullptr && width > 0 && height > 0) glfwSetWindowSize(running_window(), width, height);
 }
 
 int run_window(const std::string& title, int width, int height, const std::function<void(float dt_s)>& build_frame,

@@ -48,6 +48,11 @@ struct WindowReport {
 // without a window") or no OpenGL window can be made.
 WindowReport run_window(const WindowConfig& config, const std::function<void(float dt_s)>& build_frame);
 
+// Asks the window being run to take this size in screen coordinates (call
+// from build_frame; the buffer follows on the next frame). Outside
+// run_window it does nothing.
+void set_window_size(int width, int height);
+
 // The short form: returns 0 once the window has closed.
 int run_window(const std::string& title, int width, int height,
                const std::function<void(float dt_s)>& build_frame, int max_frames = 0);
