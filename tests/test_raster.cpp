@@ -594,6 +594,68 @@ TEST_CASE("the span path and the edge-function path render a whole busy screen i
     CHECK(differ == 0);
 }
 
+namespace {
+int g_callbacks = 0;
+void count_callback(const ImDrawList*, const ImDrawCmd*) { ++g_callbacks; }
+}  // namespace
+
+TEST_CASE("ImDrawData: DisplayPos and FramebufferScale map to pixels; VtxOffset beyond 64K vertices; callbacks run") {
+    HostConfig hc;
+    hc.width_px = 256;
+    hc.height_px = 256;
+    ImGuiHost host(hc);
+    host.new_frame(1.0f / 60.0f, 256, 256);
+    ImDrawList list(ImGui::GetDrawListSharedData());
+    list._ResetForNewFrame();
+    list.Flags = ImDrawListFlags_AllowVtxOffset;
+    list.PushClipRect(ImVec2(100, 50), ImVec2(228, 178));
+    list.PushTextureID(ImGui::GetIO().Fonts->TexID);
+    // 20000 one-pixel rectangles (80000 vertices: more than 16-bit indices
+    // reach, so ImGui starts new commands with a VtxOffset), then a marker.
+    for (int i = 0; i < 20000; ++i) {
+        const float x = 100.0f + static_cast<float>(i % 100) * 0.5f, y = 50.0f + static_cast<float>(i / 100) * 0.25f;
+        list.AddRectFilled(ImVec2(x, y), ImVec2(x + 0.5f, y + 0.25f), rgba(0, 0, 255));
+    }
+    list.AddRectFilled(ImVec2(200, 150), ImVec2(210, 160), rgba(255, 0, 0));
+    list.AddCallback(count_callback, nullptr);
+    list.AddCallback(ImDrawCallback_ResetRenderState, nullptr);  // must be skipped, not called
+    bool offset_used = false;
+    for (const ImDrawCmd& c : list.CmdBuffer) offset_used = offset_used || c.VtxOffset > 0;
+    CHECK(offset_used);
+    CHECK(list.VtxBuffer.Size > 65536);
+
+    ImDrawList* lists[] = {&list};
+    ImDrawData data;
+    data.Valid = true;
+    data.CmdLists = lists;
+    data.CmdListsCount = 1;
+    data.TotalVtxCount = list.VtxBuffer.Size;
+    data.TotalIdxCount = list.IdxBuffer.Size;
+    data.DisplayPos = ImVec2(100, 50);
+    data.DisplaySize = ImVec2(128, 128);
+    data.FramebufferScale = ImVec2(2, 2);
+    PixelBuffer buf = cleared(kBlack, 256, 256);
+    g_callbacks = 0;
+    Rasterizer r;
+    r.draw(data, buf);
+    CHECK(g_callbacks == 1);
+    // The marker at (200..210, 150..160) lands at ((x - 100) * 2, (y - 50) * 2).
+    int red_px = 0, blue_px = 0;
+    for (int y = 0; y < 256; ++y)
+        for (int x = 0; x < 256; ++x) {
+            const bool in_marker = x >= 200 && x < 220 && y >= 200 && y < 220;
+            const bool in_grid = x < 100 && y < 100;  // 100 x 200 rects of 0.5 x 0.25 units, 1 x 0.5 pixels
+            if (buf.at(x, y) == rgba(255, 0, 0)) ++red_px;
+            if (buf.at(x, y) == rgba(0, 0, 255)) ++blue_px;
+            if (in_marker) CHECK(buf.at(x, y) == rgba(255, 0, 0));
+            else if (in_grid) CHECK(buf.at(x, y) == rgba(0, 0, 255));
+            else CHECK(buf.at(x, y) == kBlack);
+        }
+    CHECK(red_px == 400);
+    CHECK(blue_px == 100 * 100);
+    host.render();
+}
+
 // ---------------------------------------------------------------------------
 // [robustness]
 // ---------------------------------------------------------------------------
