@@ -154,6 +154,21 @@ bool inside(P p, P a, P b, P c) {
     return true;
 }
 
+HostConfig host_config(int width_px, int height_px, float dpi_scale = 1.0f) {
+    HostConfig hc;
+    hc.width_px = width_px;
+    hc.height_px = height_px;
+    hc.dpi_scale = dpi_scale;
+    return hc;
+}
+
+// One frame of the test screen at time t_s.
+ImDrawData& demo_frame(ImGuiHost& host, testing::DemoScreen& demo, float t_s) {
+    host.new_frame(1.0f / 60.0f, host.config().width_px, host.config().height_px);
+    demo.build(t_s);
+    return host.render();
+}
+
 // A coordinate on the 1/256 grid: often a pixel centre or a pixel corner, so
 // that ties with the pixel centres happen often.
 double grid_coord(std::mt19937& rng, double lo, double hi) {
@@ -510,9 +525,7 @@ TEST_CASE("nearest texture sampling takes the texel containing the sample point,
 }
 
 TEST_CASE("font atlas: a glyph's texels appear 1:1 at its place in the frame (ImFontGlyph U0/V0, X0/Y0)") {
-    HostConfig hc;
-    hc.width_px = 200;
-    hc.height_px = 80;
+    const HostConfig hc = host_config(200, 80);
     ImGuiHost host(hc);
     REQUIRE(host.atlas().format == TextureFormat::alpha8);
     ImFont* font = host.font(FontFace::body);
@@ -563,9 +576,7 @@ TEST_CASE("font atlas: a glyph's texels appear 1:1 at its place in the frame (Im
 }
 
 TEST_CASE("the span path and the edge-function path render a whole busy screen identically") {
-    HostConfig hc;
-    hc.width_px = 640;
-    hc.height_px = 400;
+    const HostConfig hc = host_config(640, 400);
     ImGuiHost host(hc);
     testing::DemoScreen demo(600);
     RasterConfig slow_cfg;
@@ -573,9 +584,7 @@ TEST_CASE("the span path and the edge-function path render a whole busy screen i
     Rasterizer fast, slow(slow_cfg);
     PixelBuffer a, b;
     for (int f = 0; f < 2; ++f) {
-        host.new_frame(1.0f / 60.0f, hc.width_px, hc.height_px);
-        demo.build(3.0f);
-        ImDrawData& data = host.render();
+        ImDrawData& data = demo_frame(host, demo, 3.0f);
         a.resize(hc.width_px, hc.height_px);
         b.resize(hc.width_px, hc.height_px);
         a.clear(kBlack);
@@ -600,9 +609,7 @@ void count_callback(const ImDrawList*, const ImDrawCmd*) { ++g_callbacks; }
 }  // namespace
 
 TEST_CASE("ImDrawData: DisplayPos and FramebufferScale map to pixels; VtxOffset beyond 64K vertices; callbacks run") {
-    HostConfig hc;
-    hc.width_px = 256;
-    hc.height_px = 256;
+    const HostConfig hc = host_config(256, 256);
     ImGuiHost host(hc);
     host.new_frame(1.0f / 60.0f, 256, 256);
     ImDrawList list(ImGui::GetDrawListSharedData());
@@ -683,9 +690,7 @@ TEST_CASE("bad geometry draws nothing and is counted: NaN, bad indices, no area,
 }
 
 TEST_CASE("a frame allocates nothing once the buffer is sized; shrinking keeps the allocation") {
-    HostConfig hc;
-    hc.width_px = 640;
-    hc.height_px = 400;
+    const HostConfig hc = host_config(640, 400);
     ImGuiHost host(hc);
     testing::DemoScreen demo(600);
     Rasterizer raster;
@@ -693,9 +698,7 @@ TEST_CASE("a frame allocates nothing once the buffer is sized; shrinking keeps t
     buf.resize(hc.width_px, hc.height_px);
     long during_draw = -1;
     for (int f = 0; f < 3; ++f) {
-        host.new_frame(1.0f / 60.0f, hc.width_px, hc.height_px);
-        demo.build(1.0f + 0.1f * static_cast<float>(f));
-        ImDrawData& data = host.render();
+        ImDrawData& data = demo_frame(host, demo, 1.0f + 0.1f * static_cast<float>(f));
         g_allocs = 0;
         g_count_allocs = true;
         buf.clear(kBlack);
@@ -768,11 +771,7 @@ TEST_CASE("PNG errors name the file and the reason") {
 // ---------------------------------------------------------------------------
 
 TEST_CASE("host: DejaVu faces at the configured sizes times the DPI scale; frames take the given time step") {
-    HostConfig hc;
-    hc.width_px = 320;
-    hc.height_px = 200;
-    hc.dpi_scale = 1.5f;
-    ImGuiHost host(hc);
+    ImGuiHost host(host_config(320, 200, 1.5f));
     CHECK(host.fonts_from_files());
     CHECK(host.font(FontFace::body)->FontSize == doctest::Approx(std::round(22.0f * 1.5f)));
     CHECK(host.font(FontFace::large)->FontSize == doctest::Approx(std::round(64.0f * 1.5f)));
