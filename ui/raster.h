@@ -76,7 +76,8 @@ public:
 
     // Draws every command list of `data` into `target`, which must already be
     // sized (usually to DisplaySize * FramebufferScale) and cleared.
-    // ImTextureID must be null or point at a Texture. Allocates: no.
+    // ImTextureID must be null or point at a Texture.
+    // Thread: any, one call at a time per Rasterizer. Allocates: no.
     void draw(const ImDrawData& data, PixelBuffer& target) noexcept;
 
     // Draws indexed triangles in pixel coordinates (no DisplayPos offset),
