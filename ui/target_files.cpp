@@ -77,7 +77,10 @@ TomlDoc load_toml(std::string_view name_or_path, std::string_view kind) {
         if (file == f.name) return parse_toml(f.text, "targets/" + file, kind);
     }
     std::string known;
-    for (const auto& n : builtin_names(kind)) known += (known.empty() ? "" : ", ") + n;
+    for (const auto& n : builtin_names(kind)) {
+        if (!known.empty()) known += ", ";
+        known += n;
+    }
     throw Error("'" + std::string(name_or_path) + "': no built-in " + std::string(kind) + " file of that name (known: " +
                 known + "; or give a path to a .toml file)");
 }
