@@ -81,8 +81,11 @@ TomlDoc load_toml(std::string_view name_or_path, std::string_view kind) {
         if (!known.empty()) known += ", ";
         known += n;
     }
-    throw Error("'" + std::string(name_or_path) + "': no built-in " + std::string(kind) + " file of that name (known: " +
-                known + "; or give a path to a .toml file)");
+    std::string msg = "'";
+    msg.append(name_or_path);
+    msg.append("': no built-in ").append(kind).append(" file of that name (known: ").append(known);
+    msg.append("; or give a path to a .toml file)");
+    throw Error(msg);
 }
 
 std::string require_string(const TomlDoc& doc, const toml::table& t, std::string_view key) {
