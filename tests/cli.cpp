@@ -1,6 +1,7 @@
 #include "tests/cli.h"
 
 #include <cerrno>
+#include <cstdio>
 #include <cstdlib>
 #include <cstring>
 #include <fcntl.h>
@@ -73,6 +74,63 @@ RunResult run_program(const std::vector<std::string>& args, const std::vector<st
     waitpid(pid, &status, 0);
     r.exit_code = WIFEXITED(status) ? WEXITSTATUS(status) : 128 + WTERMSIG(status);
     return r;
+}
+
+RunResult run_program(const std::string& args_line, const std::vector<std::string>& env) {
+    std::vector<std::string> args;
+    std::string cur;
+    bool in_arg = false;
+    char quote = 0;
+    for (const char c : args_line) {
+        if (quote) {
+            if (c == quote) quote = 0;
+            else cur += c;
+        } else if (c == '\'' || c == '"') {
+            quote = c;
+            in_arg = true;
+        } else if (c == ' ') {
+            if (in_arg) args.push_back(cur);
+            cur.clear();
+            in_arg = false;
+        } else {
+            cur += c;
+            in_arg = true;
+        }
+    }
+    if (in_arg) args.push_back(cur);
+    return run_program(args, env);
+}
+
+std::string json_value(const std::string& json, const std::string& expr) {
+    TempDir dir;
+    const std::string in_path = dir.file("doc.json");
+    {
+        std::FILE* f = std::fopen(in_path.c_str(), "w");
+        if (!f) throw std::runtime_error("cannot write " + in_path);
+        std::fwrite(json.data(), 1, json.size(), f);
+        std::fclose(f);
+    }
+    int out_pipe[2];
+    if (pipe(out_pipe) != 0) throw std::runtime_error("pipe failed");
+    const pid_t pid = fork();
+    if (pid == 0) {
+        dup2(out_pipe[1], 1);
+        dup2(out_pipe[1], 2);
+        close(out_pipe[0]);
+        execl("/usr/bin/python3", "python3", "-c",
+              "import json,sys; d=json.load(open(sys.argv[1])); print(eval(sys.argv[2]))", in_path.c_str(), expr.c_str(),
+              static_cast<char*>(nullptr));
+        _exit(127);
+    }
+    close(out_pipe[1]);
+    std::string out;
+    char buf[4096];
+    for (ssize_t n; (n = read(out_pipe[0], buf, sizeof buf)) > 0;) out.append(buf, static_cast<std::size_t>(n));
+    close(out_pipe[0]);
+    int status = 0;
+    waitpid(pid, &status, 0);
+    while (!out.empty() && out.back() == '\n') out.pop_back();
+    return out;
 }
 
 TempDir::TempDir() {

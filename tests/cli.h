@@ -18,6 +18,15 @@ struct RunResult {
 // current environment. stdin is /dev/null.
 RunResult run_program(const std::vector<std::string>& args, const std::vector<std::string>& env = {});
 
+// Same, with the arguments in one line split at spaces; '...' and "..."
+// quote an argument that contains spaces.
+RunResult run_program(const std::string& args_line, const std::vector<std::string>& env = {});
+
+// One value out of a JSON text, read by Python's json module (an outside
+// parser, /usr/bin/python3) and printed by str(): expr is a Python
+// expression on the parsed document `d`, e.g. "d['voices'][1]['note']".
+std::string json_value(const std::string& json, const std::string& expr);
+
 // Path of the beatless binary under test (BEATLESS_PROGRAM from CMake).
 std::string program_path();
 

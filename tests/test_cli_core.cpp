@@ -105,3 +105,59 @@ TEST_CASE("tone writes a file of the asked length, or names the file it cannot w
     CHECK(bad.err.rfind("beatless: " + dir.file("no/such/dir/t.wav") + ": cannot be written (", 0) == 0);
     CHECK(line_count(bad.err) == 1);
 }
+
+TEST_CASE("track prints the DESIGN.md JSON and CSV forms") {
+    TempDir dir;
+    // A 7/5 voice 6 cents flat over A2, voice only (no drone), 44.1 kHz.
+    REQUIRE(run_program({"tone", "--root", "A2", "--ratio", "7/5", "--detune-cents", "-6", "--level-db", "-80", "--voice-db", "-14",
+                         "--seconds", "1", "--rate", "44100", "--out", dir.file("v.wav")})
+                .exit_code == 0);
+    const auto r = run_program({"track", dir.file("v.wav"), "--format", "json"});
+    REQUIRE(r.exit_code == 0);
+    CHECK(r.err.empty());
+    CHECK(beatless::test::json_value(r.out, "d['sample_rate']") == "44100");
+    CHECK(beatless::test::json_value(r.out, "sorted(d['frames'][0].keys())") == "['confidence', 'f0_hz', 't']");
+    // Frames are 220/44100 s apart (the hop rounded to whole samples of the decimated copy).
+    CHECK(std::stod(beatless::test::json_value(r.out, "d['frames'][11]['t'] - d['frames'][10]['t']")) ==
+          doctest::Approx(220.0 / 44100).epsilon(1e-3));
+    // The median voiced f0 is 110 * 7/5 * 2^(-6/1200) = 153.4665 Hz (to 0.05 cent).
+    const double f0 = std::stod(beatless::test::json_value(
+        r.out, "sorted(f['f0_hz'] for f in d['frames'] if f['f0_hz'])[len([f for f in d['frames'] if f['f0_hz']])//2]"));
+    CHECK(std::fabs(1200 * std::log2(f0 / (110 * 1.4 * std::exp2(-6 / 1200.0)))) < 0.05);
+    const auto csv = run_program({"track", dir.file("v.wav"), "--format", "csv", "--hop-ms", "10"});
+    REQUIRE(csv.exit_code == 0);
+    CHECK(csv.out.rfind("t,f0_hz,confidence\n", 0) == 0);
+    CHECK(line_count(csv.out) > 90);
+    CHECK(line_count(csv.out) < 100);
+    // Silence: every frame unvoiced, null in JSON and an empty field in CSV.
+    REQUIRE(run_program({"tone", "--root", "A2", "--level-db", "-80", "--seconds", "0.5", "--out", dir.file("quiet.wav")}).exit_code == 0);
+    const auto q = run_program({"track", dir.file("quiet.wav"), "--format", "csv"});
+    CHECK(q.out.find(",,") != std::string::npos);
+    const auto qj = run_program({"track", dir.file("quiet.wav")});
+    CHECK(beatless::test::json_value(qj.out, "all(f['f0_hz'] is None for f in d['frames'])") == "True");
+}
+
+TEST_CASE("track: bad files and values, one line each, exit 1") {
+    TempDir dir;
+    { std::ofstream(dir.file("empty.wav")); }
+    { std::ofstream(dir.file("text.wav")) << "not audio at all\n"; }
+    REQUIRE(run_program({"tone", "--root", "A3", "--seconds", "0.2", "--out", dir.file("ok.wav")}).exit_code == 0);
+    struct Case {
+        std::vector<std::string> args;
+        std::string prefix;
+    } cases[] = {
+        {{"track", dir.file("missing.wav")}, "beatless: " + dir.file("missing.wav") + ": no such file\n"},
+        {{"track", dir.file("empty.wav")}, "beatless: " + dir.file("empty.wav") + ": is empty (0 bytes)\n"},
+        {{"track", dir.file("text.wav")}, "beatless: " + dir.file("text.wav") + ": not a sound file that can be read ("},
+        {{"track", dir.file("ok.wav"), "--channel", "2"}, "beatless: " + dir.file("ok.wav") + ": channel 2 does not exist (the file has 1 channel)\n"},
+        {{"track", dir.file("ok.wav"), "--hop-ms", "0"}, "beatless: --hop-ms 0: out of range (0.5 to 100 ms)\n"},
+        {{"track", dir.file("ok.wav"), "--fmin", "900", "--fmax", "300"}, "beatless: YIN: "},
+    };
+    for (const auto& c : cases) {
+        CAPTURE(c.args);
+        const auto r = run_program(c.args);
+        CHECK(r.exit_code == 1);
+        CHECK(r.err.rfind(c.prefix, 0) == 0);
+        CHECK(line_count(r.err) == 1);
+    }
+}

@@ -51,12 +51,6 @@ std::vector<Entry> expand(const std::vector<std::string>& args) {
     return out;
 }
 
-std::string ordinal(int n) {
-    const int m100 = n % 100;
-    const char* suffix = (m100 >= 11 && m100 <= 13) ? "th" : n % 10 == 1 ? "st" : n % 10 == 2 ? "nd" : n % 10 == 3 ? "rd" : "th";
-    return std::to_string(n) + suffix;
-}
-
 // The ratio whose partials beat for this interval: itself, or for a cents
 // interval the nearest simple ratio.
 pitch::Ratio beating_ratio(const pitch::Interval& iv) {

@@ -6,6 +6,9 @@
 #include <CLI/CLI.hpp>
 
 #include <functional>
+#include <initializer_list>
+#include <string>
+#include <vector>
 
 namespace beatless::ui {
 
@@ -19,9 +22,18 @@ void register_listen(CLI::App& app, Runner& run);
 // `beatless --demo` until the Practice screen exists: the demo performer
 // through the live engine, readable lines on stdout for `seconds`.
 int run_demo_preview(double seconds);
+void register_track(CLI::App& app, Runner& run);
+void register_chord(CLI::App& app, Runner& run);
+void register_drift(CLI::App& app, Runner& run);
+void register_history(CLI::App& app, Runner& run);
 
 // Output format choice shared by the commands.
 enum class Format { text, json, csv };
 void add_format_option(CLI::App& sub, Format& format, bool with_csv = true);
+void add_format_option(CLI::App& sub, Format& format, std::initializer_list<Format> allowed);
+
+// Small text helpers shared by the commands.
+std::string ordinal(int n);                                  // 1 -> "1st", 12 -> "12th"
+std::string join_args(const std::vector<std::string>& args); // words joined by single spaces
 
 }  // namespace beatless::ui

@@ -13,11 +13,35 @@
 
 namespace beatless::ui {
 
+void add_format_option(CLI::App& sub, Format& format, std::initializer_list<Format> allowed) {
+    std::map<std::string, Format> names;
+    std::string help = "Output form:";
+    for (Format f : allowed) {
+        const char* n = f == Format::text ? "text" : f == Format::json ? "json" : "csv";
+        names.emplace(n, f);
+        help += std::string(" ") + n;
+    }
+    sub.add_option("--format", format, help)->transform(CLI::CheckedTransformer(names, CLI::ignore_case).description(""));
+}
+
 void add_format_option(CLI::App& sub, Format& format, bool with_csv) {
-    std::map<std::string, Format> names{{"text", Format::text}, {"json", Format::json}};
-    if (with_csv) names.emplace("csv", Format::csv);
-    sub.add_option("--format", format, with_csv ? "Output form: text, json or csv" : "Output form: text or json")
-        ->transform(CLI::CheckedTransformer(names, CLI::ignore_case).description(""));
+    if (with_csv) add_format_option(sub, format, {Format::text, Format::json, Format::csv});
+    else add_format_option(sub, format, {Format::text, Format::json});
+}
+
+std::string ordinal(int n) {
+    const int m100 = n % 100;
+    const char* suffix = (m100 >= 11 && m100 <= 13) ? "th" : n % 10 == 1 ? "st" : n % 10 == 2 ? "nd" : n % 10 == 3 ? "rd" : "th";
+    return std::to_string(n) + suffix;
+}
+
+std::string join_args(const std::vector<std::string>& args) {
+    std::string s;
+    for (const auto& a : args) {
+        if (!s.empty()) s += ' ';
+        s += a;
+    }
+    return s;
 }
 
 }  // namespace beatless::ui
@@ -37,6 +61,10 @@ int main(int argc, char** argv) {
     app.add_flag("--demo", demo, "Run the built-in demo performer through the live engine (about 20 s, Ctrl-C stops)");
     double demo_seconds = 20.0;
     app.add_option("--seconds", demo_seconds, "With --demo: how long to run (default 20)");
+    ui::register_track(app, run);
+    ui::register_chord(app, run);
+    ui::register_drift(app, run);
+    ui::register_history(app, run);
 
     try {
         app.parse(argc, argv);

@@ -77,9 +77,15 @@ TomlDoc load_toml(std::string_view name_or_path, std::string_view kind) {
         if (file == f.name) return parse_toml(f.text, "targets/" + file, kind);
     }
     std::string known;
-    for (const auto& n : builtin_names(kind)) known += (known.empty() ? "" : ", ") + n;
-    throw Error("'" + std::string(name_or_path) + "': no built-in " + std::string(kind) + " file of that name (known: " +
-                known + "; or give a path to a .toml file)");
+    for (const auto& n : builtin_names(kind)) {
+        if (!known.empty()) known += ", ";
+        known += n;
+    }
+    std::string msg = "'";
+    msg.append(name_or_path);
+    msg.append("': no built-in ").append(kind).append(" file of that name (known: ").append(known);
+    msg.append("; or give a path to a .toml file)");
+    throw Error(msg);
 }
 
 std::string require_string(const TomlDoc& doc, const toml::table& t, std::string_view key) {

@@ -1,0 +1,111 @@
+#include "pitch/spelling.h"
+
+#include "pitch/error.h"
+#include "pitch/notes.h"
+#include "pitch/text.h"
+
+#include <array>
+#include <cctype>
+
+namespace beatless::pitch {
+
+namespace {
+
+constexpr std::array<int, 7> kNaturalPc = {0, 2, 4, 5, 7, 9, 11};  // C D E F G A B
+constexpr std::array<char, 7> kLetters = {'C', 'D', 'E', 'F', 'G', 'A', 'B'};
+// Letter steps above the tonic for each semitone 0..11: 1 b2 2 b3 3 4 #4 5 b6 6 b7 7.
+constexpr std::array<int, 12> kDegreeStep = {0, 1, 1, 2, 2, 3, 3, 4, 5, 5, 6, 6};
+
+int mod(int a, int m) { return ((a % m) + m) % m; }
+
+struct Spelled {
+    int letter = 0;
+    int alter = 0;
+};
+
+// step_change: letters added to the usual degree (+1 turns #4 into b5, -1 b6 into #5).
+Spelled spell(const Tonic& tonic, int semitones, int step_change = 0) {
+    const int s = mod(semitones, 12);
+    Spelled out;
+    out.letter = mod(tonic.letter + kDegreeStep[static_cast<std::size_t>(s)] + step_change, 7);
+    const int target_pc = mod(tonic.pc + s, 12);
+    int alter = target_pc - kNaturalPc[static_cast<std::size_t>(out.letter)];
+    if (alter > 6) alter -= 12;
+    if (alter < -6) alter += 12;
+    out.alter = alter;
+    return out;
+}
+
+std::string letter_name(int letter, int alter) {
+    std::string n(1, kLetters[static_cast<std::size_t>(letter)]);
+    for (int i = 0; i < alter; ++i) n += '#';
+    for (int i = 0; i > alter; --i) n += 'b';
+    return n;
+}
+
+std::string with_octave(const Spelled& s, int midi) {
+    // The octave number belongs to the letter: Cb4 is MIDI 59, B#3 is MIDI 60.
+    const int base = kNaturalPc[static_cast<std::size_t>(s.letter)] + s.alter;
+    const int octave = (midi - base - mod(midi - base, 12)) / 12 - 1;
+    return letter_name(s.letter, s.alter) + std::to_string(octave);
+}
+
+}  // namespace
+
+std::string Tonic::name() const { return letter_name(letter, alter); }
+
+Tonic parse_tonic(std::string_view note) {
+    const std::string_view t = trim(note);
+    const auto bad = [&]() -> Tonic {
+        throw Error(quote(note) + ": not a note name (expected a form such as C, Eb, F#3 or Bb2)");
+    };
+    if (t.empty()) return bad();
+    const char L = static_cast<char>(std::toupper(static_cast<unsigned char>(t[0])));
+    if (L < 'A' || L > 'G') return bad();
+    Tonic k;
+    k.letter = mod(L - 'C', 7);
+    std::size_t i = 1;
+    while (i < t.size()) {
+        if (t[i] == '#') {
+            ++k.alter;
+            ++i;
+        } else if (t[i] == 'b') {
+            --k.alter;
+            ++i;
+        } else if (t.substr(i, 3) == "\xE2\x99\xAF") {  // U+266F sharp sign
+            ++k.alter;
+            i += 3;
+        } else if (t.substr(i, 3) == "\xE2\x99\xAD") {  // U+266D flat sign
+            --k.alter;
+            i += 3;
+        } else {
+            break;
+        }
+    }
+    if (i < t.size()) (void)note_to_midi(t);  // validates the octave; throws naming the text
+    k.pc = mod(kNaturalPc[static_cast<std::size_t>(k.letter)] + k.alter, 12);
+    return k;
+}
+
+std::string spell_pitch_class(const Tonic& tonic, int semitones) {
+    const Spelled s = spell(tonic, semitones);
+    return letter_name(s.letter, s.alter);
+}
+
+std::string spell_midi(const Tonic& tonic, int midi) { return with_octave(spell(tonic, midi - tonic.pc), midi); }
+
+std::vector<std::string> spell_chord(const Tonic& root, const std::vector<int>& midi) {
+    bool has[12] = {};
+    for (const int m : midi) has[mod(m - root.pc, 12)] = true;
+    std::vector<std::string> out;
+    for (const int m : midi) {
+        const int s = mod(m - root.pc, 12);
+        int change = 0;
+        if (s == 6 && has[3]) change = 1;               // diminished fifth
+        if (s == 8 && has[4] && !has[7]) change = -1;   // augmented fifth
+        out.push_back(with_octave(spell(root, m - root.pc, change), m));
+    }
+    return out;
+}
+
+}  // namespace beatless::pitch

@@ -1,0 +1,41 @@
+// Spelling — note names spelled against a tonic (letters by scale degree).
+//
+// A pitch a whole number of semitones above a tonic is named by the
+// chromatic degree it stands for: 1 b2 2 b3 3 4 #4 5 b6 6 b7 7 (the usual
+// chromatic spelling in major and minor keys, common practice). The letter
+// is the tonic's letter moved by the degree, and sharps or flats make up the
+// rest, so the third of Eb is G, the flat seventh of C is Bb and the
+// augmented fourth of F is B. Scientific pitch notation (ASA 1939) numbers
+// octaves by letter: Cb4 sounds a semitone below C4, B#3 as C4.
+#pragma once
+
+#include <string>
+#include <string_view>
+#include <vector>
+
+namespace beatless::pitch {
+
+struct Tonic {
+    int letter = 0;  // 0..6 for C D E F G A B
+    int alter = 0;   // sharps (+) or flats (-) on the letter
+    int pc = 0;      // pitch class 0..11, C = 0
+    std::string name() const;  // "Eb", "F#", "C"
+};
+
+// "C", "Eb", "F#3", "B♭2": letter, accidentals, optional octave (ignored
+// here). Throws Error naming the text when it is not a note.
+Tonic parse_tonic(std::string_view note);
+
+// The pitch `semitones` above the tonic (any integer), spelled: "Bb".
+std::string spell_pitch_class(const Tonic& tonic, int semitones);
+
+// MIDI note `midi` spelled against the tonic, with its octave: "Bb3".
+std::string spell_midi(const Tonic& tonic, int midi);
+
+// The notes of a chord (MIDI numbers) spelled from its root, with octaves.
+// As above, except that the tritone above the root is a diminished fifth
+// (E-G-Bb, B-D-F) when the chord holds a minor third, and eight semitones
+// are an augmented fifth (C-E-G#) when it holds a major third but no fifth.
+std::vector<std::string> spell_chord(const Tonic& root, const std::vector<int>& midi);
+
+}  // namespace beatless::pitch

@@ -1,0 +1,149 @@
+// ImGuiHost — see imgui_host.h.
+#include "ui/imgui_host.h"
+
+#include "pitch/error.h"
+
+#include <algorithm>
+#include <array>
+#include <cmath>
+#include <cstdio>
+
+namespace beatless::ui {
+
+namespace {
+
+// Basic Latin and Latin-1 (with the cent sign U+00A2), general punctuation
+// (dashes, ellipsis), arrows, the minus sign, and flat/natural/sharp.
+constexpr ImWchar kGlyphRanges[] = {
+    0x0020, 0x00FF, 0x2010, 0x2027, 0x2190, 0x2193, 0x2212, 0x2212, 0x266D, 0x266F, 0,
+};
+
+struct FaceFile {
+    FontFace face;
+    const char* file;
+    bool large;
+};
+constexpr std::array<FaceFile, 4> kFaces{{
+    {FontFace::body, "DejaVuSans.ttf", false},
+    {FontFace::bold, "DejaVuSans-Bold.ttf", false},
+    {FontFace::mono, "DejaVuSansMono.ttf", false},
+    {FontFace::large, "DejaVuSans-Bold.ttf", true},
+}};
+
+bool readable(const std::string& path) {
+    std::FILE* f = std::fopen(path.c_str(), "rb");
+    if (f == nullptr) return false;
+    std::fclose(f);
+    return true;
+}
+
+struct ContextGuard {  // restores the previously current ImGui context
+    ImGuiContext* prev = ImGui::GetCurrentContext();
+    ~ContextGuard() { ImGui::SetCurrentContext(prev); }
+};
+
+}  // namespace
+
+ImGuiHost::ImGuiHost(const HostConfig& config) : config_(config) {
+    if (!(config_.dpi_scale > 0.0f && config_.dpi_scale <= 8.0f))
+        throw Error("DPI scale " + std::to_string(config_.dpi_scale) + ": must lie in (0, 8]");
+    if (config_.width_px < 0 || config_.height_px < 0)
+        throw Error("display size " + std::to_string(config_.width_px) + "x" + std::to_string(config_.height_px) + ": must not be negative");
+
+    IMGUI_CHECKVERSION();
+    context_ = ImGui::CreateContext();
+    ImGui::SetCurrentContext(context_);
+    ImGuiIO& io = ImGui::GetIO();
+    io.IniFilename = nullptr;
+    io.LogFilename = nullptr;
+    io.BackendRendererName = "beatless-raster";
+    io.UserData = this;
+    io.BackendFlags |= ImGuiBackendFlags_RendererHasVtxOffset;
+    io.DisplaySize = ImVec2(static_cast<float>(config_.width_px), static_cast<float>(config_.height_px));
+    io.DisplayFramebufferScale = ImVec2(1.0f, 1.0f);
+
+    // Fonts, before the atlas is built. Glyphs 1:1 for nearest sampling.
+    ImFontAtlas& atlas = *io.Fonts;
+    atlas.Flags |= ImFontAtlasFlags_NoBakedLines;  // lines as geometry: their edges are anti-aliased by vertex alpha
+    const float scale = config_.dpi_scale;
+    std::string missing;
+    for (const FaceFile& f : kFaces) {
+        ImFontConfig cfg;
+        cfg.OversampleH = 1;
+        cfg.OversampleV = 1;
+        cfg.PixelSnapH = true;
+        cfg.SizePixels = std::round((f.large ? config_.large_size_px : config_.body_size_px) * scale);
+        const std::string path = config_.font_dir + "/" + f.file;
+        const bool loaded = readable(path) && atlas.AddFontFromFileTTF(path.c_str(), cfg.SizePixels, &cfg, kGlyphRanges) != nullptr;
+        if (!loaded) {
+            if (missing.empty()) missing = path;
+            atlas.AddFontDefault(&cfg);
+        }
+    }
+    fonts_from_files_ = missing.empty();
+    if (!fonts_from_files_)
+        std::fprintf(stderr, "beatless: font %s cannot be read; using ImGui's built-in font (install fonts-dejavu-core)\n", missing.c_str());
+
+    unsigned char* texels = nullptr;
+    int w = 0, h = 0;
+    atlas.GetTexDataAsAlpha8(&texels, &w, &h);
+    if (texels == nullptr || w <= 0 || h <= 0) {
+        ImGui::DestroyContext(context_);
+        throw Error("font atlas: cannot be built");
+    }
+    atlas_ = Texture{texels, w, h, TextureFormat::alpha8};
+    atlas.SetTexID(static_cast<ImTextureID>(const_cast<Texture*>(&atlas_)));
+
+    ImGuiStyle& style = ImGui::GetStyle();
+    ImGui::StyleColorsDark(&style);
+    style.AntiAliasedLinesUseTex = false;
+    style.Colors[ImGuiCol_WindowBg].w = 1.0f;  // opaque panels: nothing shows through behind text
+    style.ScaleAllSizes(scale);
+}
+
+ImGuiHost::~ImGuiHost() {
+    if (context_ != nullptr) ImGui::DestroyContext(context_);
+}
+
+void ImGuiHost::make_current() const { ImGui::SetCurrentContext(context_); }
+
+ImGuiHost* ImGuiHost::current() {
+    if (ImGui::GetCurrentContext() == nullptr) return nullptr;
+    return static_cast<ImGuiHost*>(ImGui::GetIO().UserData);
+}
+
+void ImGuiHost::new_frame(float dt_s, int width_px, int height_px) {
+    make_current();
+    ImGuiIO& io = ImGui::GetIO();
+    io.DeltaTime = std::isfinite(dt_s) ? std::clamp(dt_s, 1e-6f, 1.0f) : 1.0f / 60.0f;
+    io.DisplaySize = ImVec2(static_cast<float>(std::max(width_px, 0)), static_cast<float>(std::max(height_px, 0)));
+    io.DisplayFramebufferScale = ImVec2(1.0f, 1.0f);
+    ImGui::NewFrame();
+}
+
+ImDrawData& ImGuiHost::render() {
+    make_current();
+    ImGui::Render();
+    return *ImGui::GetDrawData();
+}
+
+ImFont* ImGuiHost::font(FontFace face) const {
+    const ContextGuard guard;
+    make_current();
+    ImFontAtlas& atlas = *ImGui::GetIO().Fonts;
+    const int i = static_cast<int>(face);
+    return i < atlas.Fonts.Size ? atlas.Fonts[i] : atlas.Fonts[0];
+}
+
+void render_offscreen(ImGuiHost& host, Rasterizer& raster, PixelBuffer& out, float dt_s,
+                      const std::function<void()>& build_frame, std::uint32_t clear_color) {
+    const int w = host.config().width_px, h = host.config().height_px;
+    host.new_frame(dt_s, w, h);
+    if (build_frame) build_frame();
+    ImDrawData& data = host.render();
+    if (out.width_px != w || out.height_px != h) out.resize(w, h);
+    out.clear(clear_color);
+    raster.draw(data, out);
+}
+
+}  // namespace beatless::ui
