@@ -219,6 +219,7 @@ void Engine::start(bool analysis_thread) {
     yc.sample_rate_hz = m.rate;
     yc.hop_s = cfg_.hop_s;
     yc.f_min_hz = cfg_.f_min_hz;
+    yc.span_s = cfg_.span_s;
     yc.f_max_hz = cfg_.f_max_hz;
     yc.max_block_len_samples = kChunk * 4;
     m.tracker = std::make_unique<pitch::YinTracker>(yc);

@@ -8,13 +8,22 @@
 // (delay, gain, one-pole low-pass): the microphone hears the speakers.
 // After each block the analysis runs in this thread (start(false)), so every
 // reading is stamped with the number of samples captured when it was
-// published: latency is counted in samples, not wall time.
+// published: latency is counted in samples, not wall time. Below it, voices
+// with known truth (steps between ratios) and their scoring: the nearest
+// target by brute force over the set in every octave, the deviation against
+// 1200 log2 of the true ratio, and the coinciding pair's beat |q f_v - p f_r|.
 #pragma once
 
 #include "audio/engine.h"
 #include "audio/fake_device.h"
 #include "audio/room.h"
+#include "pitch/interval.h"
 #include "pitch/targets.h"
+#include "tests/mix_signals.h"
+
+#include <algorithm>
+#include <cmath>
+#include <string>
 
 #include <memory>
 #include <vector>
@@ -74,5 +83,87 @@ struct LiveRig {
         }
     }
 };
+
+
+// ---- Voices with known truth and how readings are scored against it ----
+
+struct Step {
+    double start_s, end_s;
+    std::string ratio;
+    double dev_cents;
+};
+
+// A voice singing the steps above root_hz (harmonic, partials falling 1/h).
+inline std::vector<float> voice_of(const std::vector<Step>& steps, double root_hz, double rate, double dur_s, double level) {
+    std::vector<float> x(static_cast<std::size_t>(dur_s * rate), 0.0f);
+    std::vector<testsig::Note> notes;
+    for (const Step& s : steps) {
+        testsig::Note n;
+        n.start_s = s.start_s;
+        n.end_s = s.end_s;
+        n.centre_hz = root_hz * pitch::parse_interval(s.ratio).value() * std::exp2(s.dev_cents / 1200.0);
+        n.ramp_s = 0.002;
+        n.level = level;
+        notes.push_back(n);
+    }
+    testsig::add_voice(x, rate, notes, testsig::rolloff(12, 1.0));
+    return x;
+}
+
+// The nearest target by brute force: the set member (in any octave) closest in cents.
+inline int brute_nearest(const pitch::TargetSet& set, double cents) {
+    int best = -1;
+    double best_d = 1e300;
+    for (std::size_t i = 0; i < set.targets.size(); ++i)
+        for (int k = -3; k <= 3; ++k) {
+            const double d = std::fabs(cents - set.targets[i].interval.cents() - 1200.0 * k);
+            if (d < best_d) {
+                best_d = d;
+                best = static_cast<int>(i);
+            }
+        }
+    return best;
+}
+
+struct StepCheck {
+    int readings = 0;
+    double worst_dev_err = 0.0;     // |dev - truth| on the steady part
+    double worst_beat_err = 0.0;    // |beat - formula| on the steady part, Hz
+    bool targets_right = true;
+    std::int64_t settle_samples = -1;   // step onset to the first reading that stays settled
+};
+
+// Checks the readings of one step against the truth.
+inline StepCheck check_step(const std::vector<Stamped>& rs, const Step& st, double root, double rate,
+                     const pitch::TargetSet& set, double settle_cents) {
+    StepCheck c;
+    const pitch::Interval iv = pitch::parse_interval(st.ratio);
+    const double f_true = root * iv.value() * std::exp2(st.dev_cents / 1200.0);
+    const double cents_true = 1200.0 * std::log2(f_true / root);
+    const int want = brute_nearest(set, cents_true);
+    const auto onset = static_cast<std::int64_t>(std::ceil(st.start_s * rate));
+    // Settling: the earliest reading after the onset from which every reading
+    // of the note (up to 50 ms before its end) is on the right target within settle_cents.
+    std::int64_t settled_at = -1;
+    for (const auto& s : rs) {
+        if (s.r.t_s < st.start_s || s.r.t_s > st.end_s - 0.05) continue;
+        const bool ok = s.r.voiced() && s.r.target_index == want && std::fabs(s.r.dev_cents - st.dev_cents) <= settle_cents;
+        if (!ok) settled_at = -1;
+        else if (settled_at < 0) settled_at = s.captured;
+    }
+    if (settled_at >= 0) c.settle_samples = settled_at - onset;
+    for (const auto& s : rs) {
+        if (s.r.t_s < st.start_s + 0.3 || s.r.t_s > st.end_s - 0.1) continue;
+        ++c.readings;
+        c.targets_right = c.targets_right && s.r.target_index == want;
+        c.worst_dev_err = std::max(c.worst_dev_err, std::fabs(s.r.dev_cents - st.dev_cents));
+        // Helmholtz: the coinciding pair of p/q beats at |q f_voice - p f_root|.
+        const pitch::Ratio r = iv.ratio();
+        const double beat_true = std::fabs(static_cast<double>(r.den) * f_true - static_cast<double>(r.num) * root);
+        c.worst_beat_err = std::max(c.worst_beat_err, std::fabs(s.r.beat_hz - beat_true));
+        if (s.r.beat_partial_root != r.num || s.r.beat_partial_voice != r.den) c.targets_right = false;
+    }
+    return c;
+}
 
 }  // namespace beatless::test
