@@ -73,14 +73,7 @@ Interval parse_interval(std::string_view text) {
     const std::string_view t = trim(text);
     if (t.empty()) throw Error("'': empty interval (expected a form such as 7/5, 7:5, 3/2*5/4 or 600c)");
     Interval acc;
-    std::size_t start = 0;
-    while (true) {
-        const auto star = t.find('*', start);
-        const std::string_view part = t.substr(start, star == std::string_view::npos ? t.npos : star - start);
-        acc = acc * parse_factor(text, part);
-        if (star == std::string_view::npos) break;
-        start = star + 1;
-    }
+    for_each_part(t, '*', [&](std::string_view part) { acc = acc * parse_factor(text, part); });
     return acc;
 }
 

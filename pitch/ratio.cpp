@@ -173,30 +173,18 @@ Ratio parse_ratio(std::string_view text) {
     const std::string_view t = trim(text);
     if (t.empty()) fail(text, "empty ratio");
     Ratio acc;
-    std::size_t start = 0;
-    while (true) {
-        const auto star = t.find('*', start);
-        const std::string_view part = t.substr(start, star == std::string_view::npos ? t.npos : star - start);
-        acc = acc * parse_single(text, part);
-        if (star == std::string_view::npos) break;
-        start = star + 1;
-    }
+    for_each_part(t, '*', [&](std::string_view part) { acc = acc * parse_single(text, part); });
     return acc;
 }
 
 std::vector<std::int64_t> parse_chord_terms(std::string_view text) {
     const std::string_view t = trim(text);
     std::vector<std::int64_t> terms;
-    std::size_t start = 0;
-    while (true) {
-        const auto sep = t.find(':', start);
-        const std::string_view part = trim(t.substr(start, sep == std::string_view::npos ? t.npos : sep - start));
-        const std::int64_t v = parse_count(text, part);
+    for_each_part(t, ':', [&](std::string_view part) {
+        const std::int64_t v = parse_count(text, trim(part));
         if (v == 0) fail(text, "chord terms must be positive");
         terms.push_back(v);
-        if (sep == std::string_view::npos) break;
-        start = sep + 1;
-    }
+    });
     if (terms.size() < 2) fail(text, "a chord needs at least two terms, as in 4:5:6");
     return terms;
 }

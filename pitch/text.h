@@ -26,6 +26,18 @@ inline std::string quote(std::string_view s) {
     return out;
 }
 
+// Calls f(part) for each part of s between separators (parts may be empty).
+template <class F>
+void for_each_part(std::string_view s, char sep, F&& f) {
+    std::size_t start = 0;
+    while (true) {
+        const auto at = s.find(sep, start);
+        f(s.substr(start, at == std::string_view::npos ? std::string_view::npos : at - start));
+        if (at == std::string_view::npos) return;
+        start = at + 1;
+    }
+}
+
 // Formats a double with up to `decimals` places, trailing zeros removed.
 std::string format_trimmed(double v, int decimals);
 
