@@ -146,6 +146,20 @@ void DroneCanceller::new_note() noexcept {
     std::copy_n(quiet_wi_.begin(), count_, wi_.begin());
 }
 
+bool DroneCanceller::is_residue(double f0_hz, double level_dbfs) const noexcept {
+    if (!active() || !(f0_hz > 0.0)) return false;
+    double power = 0.0;  // the drone at the microphone, mean square
+    for (std::size_t k = 0; k < count_; ++k) {
+        const double a = partial_amplitude(k);
+        power += 0.5 * a * a;
+    }
+    if (!(power > 0.0) || level_dbfs > 10.0 * std::log10(power) - cfg_.residue_db) return false;
+    for (std::size_t k = 0; k < count_; ++k)
+        for (int div = 1; div <= 4; ++div)  // a partial, or a subharmonic the tracker may report
+            if (std::fabs(1200.0 * std::log2(f0_hz * div / freq_[k])) <= cfg_.residue_cents) return true;
+    return false;
+}
+
 double DroneCanceller::partial_amplitude(std::size_t k) const noexcept {
     if (k >= count_) return 0.0;
     return std::hypot(wr_[k], wi_[k]) * amp_[k] * level_;

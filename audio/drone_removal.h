@@ -44,6 +44,8 @@ struct CancellerConfig {
     std::size_t block_len_samples = 64;   // phasors are recomputed exactly every block (default 64)
     double history_s = 0.15;              // weights kept for rolling back to before a voice onset (default 0.15 s)
     double min_quiet_s = 0.1;             // a silence shorter than this is a gap between notes (default 0.1 s)
+    double residue_db = 24.0;             // a pitch this far under the drone, on its partials, is residue (default 24 dB)
+    double residue_cents = 15.0;          // ... within this of a drone partial (default 15 cents)
 };
 
 class DroneCanceller {
@@ -79,6 +81,11 @@ public:
     void reset() noexcept;                            // forget the room response
     std::size_t partial_count() const noexcept { return count_; }
     bool acquiring() const noexcept { return acquire_left_ > 0 && active(); }  // still learning the room
+    // True when a tracked pitch is most likely what is left of the drone:
+    // within residue_cents of one of its partials (or a subharmonic of one)
+    // and more than residue_db below the drone's level at the microphone.
+    // Allocates: no.
+    bool is_residue(double f0_hz, double level_dbfs) const noexcept;
     bool active() const noexcept { return count_ > 0 && (level_ > 0.0 || level_target_ > 0.0); }
     double partial_freq_hz(std::size_t k) const noexcept { return freq_[k]; }
     // Learned amplitude of partial k in the input (peak, linear), at the current level.

@@ -296,8 +296,20 @@ void Engine::stop() {
     m.running.store(false);
     if (m.producer.joinable()) m.producer.join();
     if (m.analysis.joinable()) m.analysis.join();
-    m.in_stream.reset();
-    m.out_stream.reset();
+    if (!m.in_stream && !m.out_stream) return;
+    // A stream whose callbacks have stopped (its device gone, not yet noticed
+    // by supervise) is retired rather than closed here, which could block.
+    const std::uint64_t before = m.callbacks.load();
+    bool flowing = true;
+    if (m.input == InputKind::device) {
+        std::this_thread::sleep_for(std::chrono::milliseconds(60));
+        flowing = m.callbacks.load() != before;
+    }
+    for (auto* s : {&m.in_stream, &m.out_stream}) {
+        if (!*s) continue;
+        if (flowing && (*s)->alive()) s->reset();
+        else system_->retire(std::move(*s));
+    }
 }
 
 // ---------------------------------------------------------------------------
@@ -399,6 +411,9 @@ std::size_t Engine::analyse_available() noexcept {
             // second after the drone starts or moves), the drone may leak
             // through: those frames are reported unvoiced.
             if (m.removal_active && m.canceller->acquiring()) f.f0_hz = 0.0;
+            // What is left of the drone after removal (a real room is never
+            // quite linear and still): quiet, and at the drone's own pitch.
+            if (m.removal_active && f.voiced() && m.canceller->is_residue(f.f0_hz, f.level_dbfs)) f.f0_hz = 0.0;
             const std::uint64_t notes_before = m.maker->notes_started();
             const pitch::Reading r = m.maker->make(f, idx);
             if (m.removal_active && !m.input_has_drone) {
@@ -540,12 +555,12 @@ void Engine::supervise() {
     if (dead && !m.input_lost) {
         m.input_lost = true;
         m.output_lost = m.want_output;
-        m.in_stream.reset();
-        m.out_stream.reset();
-        m.last_try = now;
         say("input device '" + m.input_spec + "' stopped delivering audio; readings paused" +
             std::string(m.want_output ? ", drone stopped" : "") + "; trying to reopen it every " +
             pitch::format_trimmed(cfg_.reopen_every_s, 1) + " s");
+        if (m.in_stream) system_->retire(std::move(m.in_stream));  // closing a dead stream may never return
+        if (m.out_stream) system_->retire(std::move(m.out_stream));
+        m.last_try = Clock::now();
         return;
     }
     if (!m.input_lost || std::chrono::duration<double>(now - m.last_try).count() < cfg_.reopen_every_s) return;
