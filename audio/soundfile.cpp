@@ -106,6 +106,22 @@ std::span<const float> SoundReader::read() {
     return {mono_.data(), n};
 }
 
+std::span<const float> SoundReader::read_frames() {
+    if (!file_) return {};
+    const sf_count_t got = sf_readf_float(as_sf(file_), interleaved_.data(), static_cast<sf_count_t>(mono_.size()));
+    if (got <= 0) return {};
+    const std::size_t ch = static_cast<std::size_t>(info_.channels);
+    const std::size_t n = static_cast<std::size_t>(got) * ch;
+    for (std::size_t i = 0; i < n; ++i) {
+        if (std::isfinite(interleaved_[i])) continue;
+        const double t = static_cast<double>(pos_frames_ + static_cast<std::int64_t>(i / ch)) / info_.sample_rate_hz;
+        throw Error(info_.path + ": contains a non-finite sample (NaN or infinity) in channel " + std::to_string(i % ch + 1) + " at " +
+                    pitch::format_trimmed(t, 4) + " s");
+    }
+    pos_frames_ += got;
+    return {interleaved_.data(), n};
+}
+
 std::vector<float> SoundReader::read_all(const std::string& path, int channel, double* rate_hz) {
     SoundReader r(path, channel);
     if (rate_hz) *rate_hz = r.info().sample_rate_hz;

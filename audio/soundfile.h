@@ -43,6 +43,9 @@ public:
     // Reads the next mono block into an internal buffer and returns it; an
     // empty span at the end of the file. Throws Error on non-finite samples.
     std::span<const float> read();
+    // The next block with every channel, interleaved (info().channels per
+    // frame); empty at the end. Throws Error on non-finite samples.
+    std::span<const float> read_frames();
     std::int64_t position_frames() const { return pos_frames_; }
 
     // Reads the whole file as mono (tests and short files only).
