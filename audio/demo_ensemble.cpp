@@ -114,6 +114,7 @@ void DemoEnsemble::start_phrase() noexcept {
         h.sag_cents_per_s *= k;
         h.vib_rate_hz *= 0.95 + 0.1 * (u(rng_) - 0.7) / 0.6;
         h.vib_depth_cents *= u(rng_);
+        if (cfg_.hold) h = Habit{cfg_.hold_dev_cents + kHoldOffsetsCents[i], cfg_.hold_dev_cents + kHoldOffsetsCents[i], 0.0, 5.0, 0.0};
         s.h = h;
         s.vib_phase = ph(rng_);
         s.gain = std::pow(10.0, cfg_.level_dbfs / 20.0) * std::sqrt(2.0);
@@ -121,7 +122,7 @@ void DemoEnsemble::start_phrase() noexcept {
         s.synth.set_level(s.gain, false);  // 30 ms onset
     }
     phrase_start_ = next_start_;
-    phrase_end_ = phrase_start_ + static_cast<std::int64_t>(cfg_.phrase_s * fs);
+    phrase_end_ = cfg_.hold ? INT64_MAX / 2 : phrase_start_ + static_cast<std::int64_t>(cfg_.phrase_s * fs);
     next_start_ = phrase_end_ + static_cast<std::int64_t>(cfg_.breath_s * fs);
     ++phrase_;
 }

@@ -9,7 +9,9 @@
 // amounts. Each phrase varies the amounts (seeded, so runs repeat). Every
 // voice has a 5-6 Hz vibrato and a vowel-like spectrum ("ah" or "oh"), and
 // every microphone also hears its neighbours at crosstalk_db. The intended
-// centre of each voice is available as truth for tests.
+// centre of each voice is available as truth for tests. A hold mode keeps
+// one endless phrase without vibrato, singer k at hold_dev_cents plus a
+// fixed offset of their own (kHoldOffsetsCents), for snapshots and tests.
 #pragma once
 
 #include "audio/synth.h"
@@ -23,6 +25,8 @@
 namespace beatless::audio {
 
 constexpr std::size_t kMaxDemoSingers = 8;
+// Hold mode: singer k sits this far from hold_dev_cents (cents).
+inline constexpr double kHoldOffsetsCents[kMaxDemoSingers] = {+6.0, -4.0, +2.0, -8.0, +3.0, -2.0, +5.0, -6.0};
 
 struct DemoEnsembleConfig {
     double sample_rate_hz = 48000.0;
@@ -35,6 +39,8 @@ struct DemoEnsembleConfig {
     double level_dbfs = -22.0;             // RMS of one voice at its own microphone (default -22 dBFS)
     double crosstalk_db = -20.0;           // a neighbour's voice at a microphone (default -20 dB; -inf = none)
     std::uint64_t seed = 11;
+    bool hold = false;                     // hold mode (see above)
+    double hold_dev_cents = 0.0;           // the group's common deviation in hold mode (+ sharp)
 };
 
 struct DemoSingerTruth {

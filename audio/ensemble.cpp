@@ -174,7 +174,7 @@ void EnsembleEngine::open_input_device(std::string_view spec) {
         if (d.max_input_channels < need) {
             const std::size_t n = setup_.players.size();
             std::string chans;
-            for (const auto& p : setup_.players) chans += (chans.empty() ? "" : ",") + std::to_string(p.channel + 1);
+            for (const auto& p : setup_.players) chans.append(chans.empty() ? "" : ",").append(std::to_string(p.channel + 1));
             throw Error("input device '" + d.name + "' has " + std::to_string(d.max_input_channels) + " input channel" +
                         (d.max_input_channels == 1 ? "" : "s") + "; " + std::to_string(n) + " player" + (n == 1 ? "" : "s") +
                         " on channels " + chans + " need " + std::to_string(need));
@@ -549,6 +549,21 @@ void EnsembleEngine::run_fast(const std::function<void(const pitch::EnsembleRead
         if (max_s > 0.0 && stream_time_s() >= max_s + 0.2) break;
     }
     m.finished.store(true);
+}
+
+void EnsembleEngine::run_demo_frames(std::size_t frames) noexcept {
+    Impl& m = *impl_;
+    if (!m.demo || !m.started || m.analysis.joinable()) return;
+    const std::size_t block = std::min(cfg_.block_len_frames, kScratch);
+    const auto ch = static_cast<std::size_t>(m.in_channels);
+    while (frames > 0) {
+        const std::size_t n = std::min(frames, block);
+        std::span<float> buf(m.prod_scratch.data(), n * ch);
+        m.demo->render(buf);
+        capture(buf.data(), n, m.in_channels);
+        analyse_available();
+        frames -= n;
+    }
 }
 
 // ---------------------------------------------------------------------------

@@ -104,6 +104,11 @@ public:
     // File only: the whole file through rings and analysis in this thread, as fast as possible.
     void run_fast(const std::function<void(const pitch::EnsembleReading&)>& on_reading, double max_s = 0.0);
 
+    // Demo only, after start(false): renders this many frames of the demo
+    // ensemble and analyses them in the calling thread (simulated time, as
+    // `beatless snapshot` runs). Allocates: no.
+    void run_demo_frames(std::size_t frames) noexcept;
+
     // --- Control (control thread) ---------------------------------------------
     void set_drone(const DroneSettings& s);   // throws Error on out-of-range values
     const DroneSettings& drone() const { return drone_; }

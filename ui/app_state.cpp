@@ -560,6 +560,12 @@ void AppState::set_devices(const std::string& input, const std::string& output) 
     open_engine();
 }
 
+void AppState::set_ensemble(const EnsembleSettings& e) {
+    if (e == settings_.ensemble) return;
+    settings_.ensemble = e;
+    changed();
+}
+
 std::vector<audio::DeviceInfo> AppState::devices() {
     if (options_.simulated) return {};
     if (!system_ && !system_tried_) {

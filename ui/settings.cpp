@@ -1,6 +1,7 @@
 // Settings — see settings.h.
 #include "ui/settings.h"
 
+#include "pitch/ensemble.h"
 #include "pitch/error.h"
 #include "pitch/notes.h"
 #include "pitch/text.h"
@@ -117,6 +118,18 @@ void read_into(const TomlDoc& doc, Settings& s, Reader& r) {
         });
         r.string(*t, "fixed", [&](const std::string& v) { s.fixed_target = v; });
     }
+    if (const toml::table* e = r.table("ensemble")) {
+        EnsembleSettings& es = s.ensemble;
+        r.string(*e, "chord", [&](const std::string& v) {
+            if (pitch::trim(v).empty()) throw Error("must name a chord");
+            es.chord = v;
+        });
+        r.string(*e, "reference", [&](const std::string& v) { es.reference = pitch::parse_reference(v); });
+        r.string(*e, "input_device", [&](const std::string& v) { es.input_device = v; });
+        r.string(*e, "channels", [&](const std::string& v) { es.channels = v; });
+        r.string(*e, "names", [&](const std::string& v) { es.names = v; });
+        r.string(*e, "voices", [&](const std::string& v) { es.voices = v; });
+    }
 }
 
 // TOML basic string with the escapes a path or device name may need.
@@ -185,7 +198,14 @@ std::string settings_toml(const Settings& s) {
       << "\n[targets]\n"
       << "set = " << quoted(s.target_set) << "\n"
       << "choice = " << quoted(target_choice_key(s.choice)) << "\n"
-      << "fixed = " << quoted(s.fixed_target) << "\n";
+      << "fixed = " << quoted(s.fixed_target) << "\n"
+      << "\n[ensemble]\n"
+      << "chord = " << quoted(s.ensemble.chord) << "\n"
+      << "reference = " << quoted(pitch::reference_key(s.ensemble.reference)) << "\n"
+      << "input_device = " << quoted(s.ensemble.input_device) << "\n"
+      << "channels = " << quoted(s.ensemble.channels) << "\n"
+      << "names = " << quoted(s.ensemble.names) << "\n"
+      << "voices = " << quoted(s.ensemble.voices) << "\n";
     return o.str();
 }
 

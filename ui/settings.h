@@ -4,7 +4,8 @@
 //   kind = "settings"; screen; caution_acknowledged; a4_hz; font_scale;
 //   in_tune_cents; input_device; output_device; [drone] root, timbre,
 //   level_dbfs, fifth, octave; [targets] set, choice ("nearest" | "fixed"),
-//   fixed. A missing file gives the defaults silently. A malformed file
+//   fixed; [ensemble] chord, reference, input_device, channels, names,
+//   voices (the Ensemble screen). A missing file gives the defaults silently. A malformed file
 //   never stops the program: a syntax error gives the defaults, a bad value
 //   gives that value's default, and in both cases one warning line names
 //   the file and line ("settings.toml:7: 'level_dbfs' ..."). Saving writes
@@ -13,6 +14,7 @@
 
 #include "audio/drone.h"
 #include "audio/timbre.h"
+#include "pitch/chord.h"
 #include "ui/paths.h"
 #include "ui/screen_id.h"
 
@@ -25,6 +27,18 @@ namespace beatless::ui {
 enum class TargetChoice {
     nearest,  // the target nearest the voice (the reading's choice)
     fixed,    // one target of the set, chosen by the performer
+};
+
+// The Ensemble screen's choices ([ensemble]); lists as ui/ensemble_plan.h reads them.
+struct EnsembleSettings {
+    std::string chord = "harmonic-seventh";      // chord text or built-in name; its root is the drone root
+    pitch::ChordReference reference = pitch::ChordReference::best_fit;  // what deviations are measured against
+    std::string input_device;                    // the multi-channel input; "" = the default input
+    std::string channels;                        // "1,2,3,4" (from 1); "" = 1, 2, ...
+    std::string names;                           // "Bass,Tenor,Alto,Soprano"; "" = the chord's parts
+    std::string voices;                          // "1,2,3,4" (1 = lowest); "" = 1, 2, ...
+
+    friend bool operator==(const EnsembleSettings&, const EnsembleSettings&) = default;
 };
 
 struct Settings {
@@ -45,6 +59,8 @@ struct Settings {
     std::string target_set = "7-limit";          // built-in name or a .toml path
     TargetChoice choice = TargetChoice::nearest;
     std::string fixed_target;                    // interval text of the fixed target ("7/5"); "" = the set's first
+    // [ensemble]
+    EnsembleSettings ensemble;
 
     friend bool operator==(const Settings&, const Settings&) = default;
 };
