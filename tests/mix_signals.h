@@ -132,6 +132,52 @@ inline std::vector<pitch::PitchFrame> frames_of(const std::vector<Note>& notes, 
     return out;
 }
 
+// A practice take: a steady drone on root_hz and a voice holding one note
+// per (ratio, dev_cents) pair, voice_octaves above, with vibrato (rate
+// 5-6.5 Hz, depth 20-45 cents, random phase), an onset scoop, 0.25 s rests,
+// and white noise. The exact content is returned with the samples.
+struct Take {
+    std::vector<float> samples;
+    std::vector<Note> notes;       // the voice's notes, centres exact
+    double root_hz = 0.0;
+    double dur_s = 0.0;
+};
+
+inline Take drone_and_voice(double fs, double root_hz, const std::vector<std::pair<double, double>>& ratio_dev,
+                            std::uint64_t seed, int voice_octaves = 1, double note_s = 1.6, double noise_rms = 1e-3,
+                            double drone_level = 0.15, double voice_level = 0.2) {
+    std::mt19937_64 rng(seed);
+    std::uniform_real_distribution<double> u(0.0, 1.0);
+    Take take;
+    take.root_hz = root_hz;
+    double t = 0.4;
+    for (const auto& [ratio, dev] : ratio_dev) {
+        Note n;
+        n.start_s = t;
+        n.end_s = t + note_s;
+        n.centre_hz = root_hz * ratio * std::exp2(voice_octaves) * cents_to_ratio(dev);
+        n.vib_rate_hz = 5.0 + 1.5 * u(rng);
+        n.vib_depth_cents = 20.0 + 25.0 * u(rng);
+        n.vib_phase = kTwoPi * u(rng);
+        n.scoop_cents = -30.0 * u(rng);
+        n.scoop_tau_s = 0.05;
+        n.level = voice_level;
+        take.notes.push_back(n);
+        t += note_s + 0.25;
+    }
+    take.dur_s = t + 0.3;
+    take.samples.assign(static_cast<std::size_t>(take.dur_s * fs), 0.0f);
+    add_tone(take.samples, fs, root_hz, 0.0, take.dur_s, drone_level, rolloff(8), {0.3, 1.1, 2.0, 0.7, 2.9, 1.6, 0.2, 2.4});
+    add_voice(take.samples, fs, take.notes, {1.0, 0.6, 0.45, 0.3, 0.2, 0.15, 0.1, 0.08});
+    add_noise(take.samples, noise_rms, seed + 1);
+    return take;
+}
+
+// The five tritone-family targets of the review tests, each mistuned by a known amount.
+inline std::vector<std::pair<double, double>> tritone_notes() {
+    return {{7.0 / 5.0, -6.0}, {10.0 / 7.0, 4.5}, {11.0 / 8.0, -3.0}, {45.0 / 32.0, 2.0}, {16.0 / 11.0, -8.5}};
+}
+
 // Raw little-endian float32 file for the numpy/scipy cross-checks.
 inline bool write_f32(const std::string& path, const std::vector<float>& x) {
     std::FILE* f = std::fopen(path.c_str(), "wb");
