@@ -26,20 +26,19 @@ std::size_t RealFft::fast_size(std::size_t n) {
     return static_cast<std::size_t>(kiss_fftr_next_fast_size_real(static_cast<int>(n)));
 }
 
+double window_value(WindowKind kind, std::size_t i, std::size_t n) noexcept {
+    const double x = 6.283185307179586476925286766559 * static_cast<double>(i) / static_cast<double>(n);
+    switch (kind) {
+    case WindowKind::hann: return 0.5 - 0.5 * std::cos(x);
+    case WindowKind::blackman_harris:
+        return 0.35875 - 0.48829 * std::cos(x) + 0.14128 * std::cos(2 * x) - 0.01168 * std::cos(3 * x);
+    }
+    return 0.0;
+}
+
 std::vector<float> make_window(WindowKind kind, std::size_t n) {
     std::vector<float> w(n);
-    const double two_pi = 6.283185307179586476925286766559;
-    for (std::size_t i = 0; i < n; ++i) {
-        const double x = two_pi * static_cast<double>(i) / static_cast<double>(n);
-        double v = 0.0;
-        switch (kind) {
-        case WindowKind::hann: v = 0.5 - 0.5 * std::cos(x); break;
-        case WindowKind::blackman_harris:
-            v = 0.35875 - 0.48829 * std::cos(x) + 0.14128 * std::cos(2 * x) - 0.01168 * std::cos(3 * x);
-            break;
-        }
-        w[i] = static_cast<float>(v);
-    }
+    for (std::size_t i = 0; i < n; ++i) w[i] = static_cast<float>(window_value(kind, i, n));
     return w;
 }
 

@@ -40,7 +40,10 @@ private:
 
 enum class WindowKind { hann, blackman_harris };
 
-// Fills n samples of the periodic window.
+// Sample i of the periodic window of length n. Allocates: no.
+double window_value(WindowKind kind, std::size_t i, std::size_t n) noexcept;
+
+// All n samples of the periodic window.
 std::vector<float> make_window(WindowKind kind, std::size_t n);
 
 }  // namespace beatless::pitch
