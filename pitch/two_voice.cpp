@@ -361,46 +361,26 @@ void TwoVoiceTracker::Impl::analyse(TwoVoiceFrame& f) {
 // 5. Interval, target and the coinciding pair
 // ---------------------------------------------------------------------------
 void TwoVoiceTracker::Impl::name_interval(TwoVoiceFrame& f) const {
-    std::int64_t num = 1, den = 1;
+    Ratio r{1, 1};
     if (!targets.targets.empty()) {
         const TargetMatch m = nearest_target(targets, f.interval_cents, cfg.octave_equivalent);
         f.target_index = static_cast<int>(m.index);
         f.target_octaves = m.octaves;
         f.target_cents = m.target_cents;
         f.dev_cents = m.dev_cents;
-        const Interval& iv = targets.targets[m.index].interval;
-        if (iv.is_ratio()) {
-            num = iv.ratio().num;
-            den = iv.ratio().den;
-        } else {
-            const double c = iv.cents();
-            const double oct = std::floor(c / 1200.0);
-            const Ratio r = nearest_simple_ratio(c - 1200.0 * oct, 10);
-            num = r.num;
-            den = r.den;
-            for (int k = 0; k < static_cast<int>(oct); ++k) num *= 2;
-            for (int k = 0; k > static_cast<int>(oct); --k) den *= 2;
-        }
-        for (int k = 0; k < m.octaves && num < (1LL << 40); ++k) num *= 2;
-        for (int k = 0; k > m.octaves && den < (1LL << 40); --k) den *= 2;
+        r = beating_ratio(targets.targets[m.index].interval, m.octaves);
     } else {
-        const double oct = std::floor(f.interval_cents / 1200.0);
-        const Ratio r = nearest_simple_ratio(f.interval_cents - 1200.0 * oct, 10);
-        num = r.num;
-        den = r.den;
-        for (int k = 0; k < static_cast<int>(oct); ++k) num *= 2;
-        f.target_cents = 1200.0 * std::log2(static_cast<double>(num) / static_cast<double>(den));
+        r = beating_ratio(Interval::from_cents(f.interval_cents), 0);
+        f.target_cents = r.cents();
         f.dev_cents = f.interval_cents - f.target_cents;
     }
-    const std::int64_t g = std::gcd(num, den);
-    f.ratio_num = num / g;
-    f.ratio_den = den / g;
+    f.ratio_num = r.num;
+    f.ratio_den = r.den;
     // f_high / f_low = num / den: the num-th partial of the low voice meets
     // the den-th partial of the high one (pitch/beats.h).
-    f.partial_low = static_cast<int>(std::min<std::int64_t>(f.ratio_num, 1 << 20));
-    f.partial_high = static_cast<int>(std::min<std::int64_t>(f.ratio_den, 1 << 20));
-    f.predicted_beat_hz = std::fabs(static_cast<double>(f.ratio_den) * f.f_high_hz -
-                                    static_cast<double>(f.ratio_num) * f.f_low_hz);
+    f.partial_low = static_cast<int>(std::min<std::int64_t>(r.num, 1 << 20));
+    f.partial_high = static_cast<int>(std::min<std::int64_t>(r.den, 1 << 20));
+    f.predicted_beat_hz = std::fabs(static_cast<double>(r.den) * f.f_high_hz - static_cast<double>(r.num) * f.f_low_hz);
 }
 
 // ---------------------------------------------------------------------------

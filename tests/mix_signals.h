@@ -143,13 +143,13 @@ struct Take {
     double dur_s = 0.0;
 };
 
-inline Take drone_and_voice(double fs, double root_hz, const std::vector<std::pair<double, double>>& ratio_dev,
-                            std::uint64_t seed, int voice_octaves = 1, double note_s = 1.6, double noise_rms = 1e-3,
-                            double drone_level = 0.15, double voice_level = 0.2) {
+// The voice's notes of a take (no audio): see Take.
+inline std::vector<Note> take_notes(double root_hz, const std::vector<std::pair<double, double>>& ratio_dev,
+                                    std::uint64_t seed, int voice_octaves = 1, double note_s = 1.6,
+                                    double voice_level = 0.2) {
     std::mt19937_64 rng(seed);
     std::uniform_real_distribution<double> u(0.0, 1.0);
-    Take take;
-    take.root_hz = root_hz;
+    std::vector<Note> notes;
     double t = 0.4;
     for (const auto& [ratio, dev] : ratio_dev) {
         Note n;
@@ -162,12 +162,22 @@ inline Take drone_and_voice(double fs, double root_hz, const std::vector<std::pa
         n.scoop_cents = -30.0 * u(rng);
         n.scoop_tau_s = 0.05;
         n.level = voice_level;
-        take.notes.push_back(n);
+        notes.push_back(n);
         t += note_s + 0.25;
     }
-    take.dur_s = t + 0.3;
+    return notes;
+}
+
+inline Take drone_and_voice(double fs, double root_hz, const std::vector<std::pair<double, double>>& ratio_dev,
+                            std::uint64_t seed, int voice_octaves = 1, double note_s = 1.6, double noise_rms = 1e-3,
+                            double drone_level = 0.15, double voice_level = 0.2) {
+    Take take;
+    take.root_hz = root_hz;
+    take.notes = take_notes(root_hz, ratio_dev, seed, voice_octaves, note_s, voice_level);
+    take.dur_s = take.notes.back().end_s + 0.55;
     take.samples.assign(static_cast<std::size_t>(take.dur_s * fs), 0.0f);
-    add_tone(take.samples, fs, root_hz, 0.0, take.dur_s, drone_level, rolloff(8), {0.3, 1.1, 2.0, 0.7, 2.9, 1.6, 0.2, 2.4});
+    if (drone_level > 0.0)
+        add_tone(take.samples, fs, root_hz, 0.0, take.dur_s, drone_level, rolloff(8), {0.3, 1.1, 2.0, 0.7, 2.9, 1.6, 0.2, 2.4});
     add_voice(take.samples, fs, take.notes, {1.0, 0.6, 0.45, 0.3, 0.2, 0.15, 0.1, 0.08});
     add_noise(take.samples, noise_rms, seed + 1);
     return take;
