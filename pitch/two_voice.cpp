@@ -393,8 +393,12 @@ void TwoVoiceTracker::Impl::measure_beat(TwoVoiceFrame& f) {
         clear_history();
         return;
     }
-    // Resolved: two separate peaks, each well outside the other's main lobe.
     const int jp = va.peak[static_cast<std::size_t>(p)], jq = vb.peak[static_cast<std::size_t>(q)];
+    if (jp < 0 && jq < 0) {  // neither voice has the partial: nothing can beat
+        clear_history();
+        return;
+    }
+    // Resolved: two separate peaks, each well outside the other's main lobe.
     if (jp >= 0 && jq >= 0 && jp != jq) {
         const double diff = std::fabs(peaks[static_cast<std::size_t>(jp)].freq_hz - peaks[static_cast<std::size_t>(jq)].freq_hz);
         if (diff > 2.0 * kLobeBins * bin_hz) {
@@ -491,6 +495,7 @@ bool TwoVoiceTracker::pull(TwoVoiceFrame& out) noexcept {
     for (std::size_t i = 0; i < m.span; ++i) m.x[i] = m.ring[(start + i) % cap];
     out = TwoVoiceFrame{};
     out.t_s = (static_cast<double>(start) + 0.5 * static_cast<double>(m.span - 1)) / m.cfg.sample_rate_hz;
+    for (std::size_t i = m.span - std::min(m.span, m.hop); i < m.span && !out.clipped; ++i) out.clipped = std::fabs(m.x[i]) >= 0.999f;
     m.analyse(out);
     m.next_end += m.hop;
     return true;

@@ -54,7 +54,7 @@ struct TwoVoiceConfig {
 };
 
 enum class BeatSource {
-    none,               // not measured (warming up, one voice, partials out of range)
+    none,               // not measured (warming up, one voice, partials absent or out of range)
     frequency_difference,  // the two coinciding partials are separate spectral peaks
     envelope,           // whole cycles of the shared partial's amplitude envelope
     slower_than_history,   // no whole beat within beat_history_s: measured_beat_hz = 0
@@ -66,6 +66,8 @@ struct TwoVoiceFrame {
     double f_low_hz = 0.0;          // 0 when absent
     double f_high_hz = 0.0;         // 0 when absent
     double confidence = 0.0;        // share of the peak power the two harmonic series explain, 0..1
+    bool clipped = false;           // a sample of the newest hop reached full scale (|x| >= 0.999):
+                                    //   intermodulation products may then bias the f0s
     double level_low_db = -INFINITY;   // fundamental's level in dB (0 dB = full-scale sine)
     double level_high_db = -INFINITY;
     double interval_cents = NAN;    // 1200 log2(f_high / f_low)
