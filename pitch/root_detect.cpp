@@ -15,6 +15,7 @@ constexpr double kTwoPi = 6.283185307179586476925286766559;
 constexpr double kGridCents = 3.0;        // salience grid step
 constexpr double kPeakOverFloor = 31.6;   // 15 dB over the median power: a clear peak
 constexpr double kKeepOverFloor = 10.0;   // 10 dB over the averaged median: a usable harmonic
+constexpr double kAgreeCents = 0.5;       // harmonics of one steady tone agree within this
 
 void check(bool ok, const char* what, double v) {
     if (!ok) throw Error("root detection: " + std::string(what) + " " + format_trimmed(v, 6) + " is out of range");
@@ -42,11 +43,13 @@ RootDetector::RootDetector(const RootDetectConfig& config) : cfg_(config) {
     check(cfg_.f_max_hz < 0.25 * cfg_.sample_rate_hz, "f_max_hz", cfg_.f_max_hz);
     check(cfg_.max_harmonic >= 1 && cfg_.max_harmonic <= 64, "max_harmonic", cfg_.max_harmonic);
     check(cfg_.max_freq_hz > cfg_.f_max_hz, "max_freq_hz", cfg_.max_freq_hz);
+    check(cfg_.hops_per_frame >= 4 && cfg_.hops_per_frame <= 32, "hops_per_frame", cfg_.hops_per_frame);
     check(cfg_.min_confidence >= 0.0 && cfg_.min_confidence <= 1.0, "min_confidence", cfg_.min_confidence);
 
     n_ = RealFft::fast_size(static_cast<std::size_t>(std::ceil(cfg_.frame_s * cfg_.sample_rate_hz)));
-    while (n_ % 4 != 0) n_ = RealFft::fast_size(n_ + 1);  // a whole quarter-frame hop
-    hop_ = n_ / 4;
+    const auto hops = static_cast<std::size_t>(cfg_.hops_per_frame);
+    while (n_ % hops != 0) n_ = RealFft::fast_size(n_ + 1);  // a whole number of samples per hop
+    hop_ = n_ / hops;
     bin_hz_ = cfg_.sample_rate_hz / static_cast<double>(n_);
     kmax_ = std::min(n_ / 2 - 2, static_cast<std::size_t>(std::min(cfg_.max_freq_hz, 0.45 * cfg_.sample_rate_hz) / bin_hz_));
     check(bin_hz_ < 0.25 * cfg_.f_min_hz, "f_min_hz for this frame length", cfg_.f_min_hz);
@@ -62,6 +65,7 @@ RootDetector::RootDetector(const RootDetectConfig& config) : cfg_(config) {
     cross_mag_.assign(kmax_ + 2, 0.0);
     peaks_.assign(kmax_ + 2, 0);
     scratch_.assign(kmax_ + 2, 0.0);
+    steady_.assign(kmax_ + 2, 0.0);
     const auto cands = static_cast<std::size_t>(1200.0 * std::log2(cfg_.f_max_hz / cfg_.f_min_hz) / kGridCents) + 1;
     cand_s_.assign(cands, 0.0);
     parts_.reserve(static_cast<std::size_t>(cfg_.max_harmonic));
@@ -146,13 +150,13 @@ double RootDetector::salience(double f0_hz) const noexcept {
         const auto r = 1 + static_cast<std::size_t>(f * 0.0009 / bin_hz_);
         const auto kc = static_cast<std::size_t>(std::lround(c));
         double best = 0.0;
-        for (std::size_t k = kc > r ? kc - r : 1; k <= std::min(kc + r, kmax_); ++k) best = std::max(best, power_[k]);
+        for (std::size_t k = kc > r ? kc - r : 1; k <= std::min(kc + r, kmax_); ++k) best = std::max(best, steady_[k]);
         s += std::sqrt(best) / h;
     }
     return s;
 }
 
-RootEstimate RootDetector::refine(double f0_guess) noexcept {
+RootEstimate RootDetector::refine(double f0_guess, bool tight) noexcept {
     RootEstimate e;
     e.root_hz = f0_guess;
     e.status = RootStatus::no_steady_root;
@@ -163,14 +167,14 @@ RootEstimate RootDetector::refine(double f0_guess) noexcept {
         const double f = h * f0_guess;
         const double c = f / bin_hz_;
         if (c + 3.0 > static_cast<double>(kmax_)) break;
-        const auto r = 2 + static_cast<std::size_t>(std::ceil(f * 0.0035 / bin_hz_));
+        const auto r = tight ? std::size_t{1} : 2 + static_cast<std::size_t>(std::ceil(f * 0.0035 / bin_hz_));
         const auto kc = static_cast<std::size_t>(std::lround(c));
         std::size_t k = kc;
         for (std::size_t j = kc > r + 1 ? kc - r : 2; j <= std::min(kc + r, kmax_ - 1); ++j)
-            if (power_[j] > power_[k]) k = j;
+            if (steady_[j] > steady_[k]) k = j;
         if (k < 2 || k + 1 > kmax_) continue;
-        if (!(power_[k] >= power_[k - 1] && power_[k] >= power_[k + 1])) continue;
-        if (!(power_[k] > kKeepOverFloor * floor_power * static_cast<double>(frames_))) continue;
+        if (!(steady_[k] >= steady_[k - 1] && steady_[k] >= steady_[k + 1])) continue;
+        if (!(steady_[k] > kKeepOverFloor * floor_power)) continue;
         const std::complex<double> cs = cross_[k - 1] + cross_[k] + cross_[k + 1];
         const double mag = cross_mag_[k - 1] + cross_mag_[k] + cross_mag_[k + 1];
         double fk = 0.0, coh = 0.0;
@@ -190,53 +194,61 @@ RootEstimate RootDetector::refine(double f0_guess) noexcept {
         }
         const double pres = static_cast<double>(std::max({peaks_[k - 1], peaks_[k], peaks_[k + 1]})) /
                             static_cast<double>(frames_);
-        const double w = power_[k] * h * h * std::max(coh * coh, 1e-6);
-        parts_.push_back({fk / h, w, power_[k], pres, coh});
+        // Inverse variance of f_h / h (power * h^2), times (presence *
+        // coherence)^4 so a louder but intermittent voice partial cannot outvote the drone.
+        const double pc = std::max(pres * coh, 1e-3);  // a lone frame has no coherence yet
+        const double pc2 = pc * pc;
+        const double w = steady_[k] * h * h * pc2 * pc2;
+        parts_.push_back({fk / h, w, steady_[k], pres, coh, h});
     }
     if (parts_.empty()) return e;
 
-    // Weighted median of f_h / h, then keep the harmonics that agree with it.
-    std::sort(parts_.begin(), parts_.end(), [](const Part& a, const Part& b) { return a.f0_hz < b.f0_hz; });
-    double wsum = 0.0;
-    for (const Part& p : parts_) wsum += p.weight;
-    double acc = 0.0, med = parts_.front().f0_hz;
-    for (const Part& p : parts_) {
-        acc += p.weight;
-        if (acc >= 0.5 * wsum) {
-            med = p.f0_hz;
-            break;
+    // Mode seeking: the harmonic whose f_h / h gathers the most weight within
+    // kAgreeCents, then the weighted mean of those that agree with it (a steady
+    // drone's harmonics agree to hundredths of a cent; a voice's do not).
+    std::size_t best_i = 0;
+    double best_w = -1.0;
+    for (std::size_t i = 0; i < parts_.size(); ++i) {
+        double w = 0.0;
+        for (const Part& q : parts_)
+            if (std::fabs(1200.0 * std::log2(q.f0_hz / parts_[i].f0_hz)) <= kAgreeCents) w += q.weight;
+        if (w > best_w) {
+            best_w = w;
+            best_i = i;
         }
     }
-    std::array<double, 64> dev{};
-    for (std::size_t i = 0; i < parts_.size(); ++i) dev[i] = std::fabs(1200.0 * std::log2(parts_[i].f0_hz / med));
-    std::array<double, 64> sorted = dev;
-    std::sort(sorted.begin(), sorted.begin() + static_cast<std::ptrdiff_t>(parts_.size()));
-    const double mad = sorted[parts_.size() / 2];
-    const double tol = std::max(0.3, 4.0 * mad);
-    double sw = 0.0, swf = 0.0, sp = 0.0, spp = 0.0, spc = 0.0;
-    int used = 0;
-    for (std::size_t i = 0; i < parts_.size(); ++i) {
-        if (dev[i] > tol) continue;
-        const Part& p = parts_[i];
-        sw += p.weight;
-        swf += p.weight * p.f0_hz;
-        sp += p.power;
-        spp += p.power * p.presence;
-        spc += p.power * p.coherence;
-        ++used;
+    double centre = parts_[best_i].f0_hz;
+    double sw = 0.0, sp = 0.0, spp = 0.0, spc = 0.0, sd = 0.0;
+    int used = 0, lowest_h = 0;
+    for (int pass = 0; pass < 2; ++pass) {
+        double swf = 0.0;
+        sw = sp = spp = spc = sd = 0.0;
+        used = 0;
+        for (const Part& p : parts_) {
+            const double d = 1200.0 * std::log2(p.f0_hz / centre);
+            if (std::fabs(d) > kAgreeCents) continue;
+            sw += p.weight;
+            swf += p.weight * p.f0_hz;
+            sp += p.power;
+            spp += p.power * p.presence;
+            spc += p.power * p.coherence;
+            if (used++ == 0 || p.harmonic < lowest_h) lowest_h = p.harmonic;
+        }
+        centre = swf / sw;
     }
-    e.root_hz = swf / sw;
-    double sd = 0.0;
-    for (std::size_t i = 0; i < parts_.size(); ++i) {
-        if (dev[i] > tol) continue;
-        const double d = 1200.0 * std::log2(parts_[i].f0_hz / e.root_hz);
-        sd += parts_[i].weight * d * d;
+    for (const Part& p : parts_) {
+        const double d = 1200.0 * std::log2(p.f0_hz / centre);
+        if (std::fabs(d) <= kAgreeCents) sd += p.weight * d * d;
     }
+    e.root_hz = centre;
     e.spread_cents = std::sqrt(sd / sw);
     e.harmonics_used = used;
     e.presence = spp / sp;
     e.coherence = spc / sp;
     e.confidence = e.presence * e.coherence;
+    // A lone upper partial is no evidence of a tone at this root (it is
+    // usually another tone's harmonic); a lone fundamental (a sine drone) is.
+    if (used == 1 && lowest_h > 1) e.confidence *= 0.5;
     if (e.confidence >= cfg_.min_confidence) e.status = RootStatus::found;
     return e;
 }
@@ -250,19 +262,30 @@ RootEstimate RootDetector::estimate() noexcept {
     if (frames_ == 0) return none;
 
     // Median of the averaged power: the floor a usable harmonic must clear.
-    for (std::size_t k = 1; k <= kmax_; ++k) scratch_[k] = power_[k] / static_cast<double>(frames_);
+    // The steady spectrum: the magnitude of the summed cross spectra keeps a
+    // steady partial's power and cancels much of a moving voice's (a single
+    // frame has no cross spectrum: its power stands in).
+    for (std::size_t k = 1; k <= kmax_; ++k) steady_[k] = frames_ > 1 ? std::abs(cross_[k]) : power_[k];
+    for (std::size_t k = 1; k <= kmax_; ++k) scratch_[k] = steady_[k];
     std::nth_element(scratch_.begin() + 1, scratch_.begin() + 1 + kmax_ / 2, scratch_.begin() + kmax_ + 1);
     scratch_[0] = scratch_[1 + kmax_ / 2];
 
     for (std::size_t i = 0; i < cand_s_.size(); ++i)
         cand_s_[i] = salience(cfg_.f_min_hz * std::exp2(kGridCents * static_cast<double>(i) / 1200.0));
 
-    // The strongest few local maxima of the salience, each refined and scored.
-    constexpr std::size_t kTop = 5;
+    // The strongest local maxima of the salience, each refined and scored by
+    // salience * confidence^4: steadiness decides between a quiet drone and a
+    // louder moving voice, salience between a root and its subharmonics.
+    constexpr std::size_t kTop = 12;
     std::array<std::size_t, kTop> top{};
     std::size_t ntop = 0;
+    // Local maxima over +-60 cents, so one broad voice region offers one
+    // candidate rather than crowding out a quieter drone.
+    const auto reach = static_cast<std::size_t>(60.0 / kGridCents);
     for (std::size_t i = 0; i < cand_s_.size(); ++i) {
-        const bool peak = (i == 0 || cand_s_[i] >= cand_s_[i - 1]) && (i + 1 == cand_s_.size() || cand_s_[i] > cand_s_[i + 1]);
+        bool peak = cand_s_[i] > 0.0;
+        for (std::size_t j = i > reach ? i - reach : 0; peak && j <= std::min(cand_s_.size() - 1, i + reach); ++j)
+            peak = j == i || (j < i ? cand_s_[j] < cand_s_[i] : cand_s_[j] <= cand_s_[i]);
         if (!peak) continue;
         if (ntop < kTop) top[ntop++] = i;
         else {
@@ -276,8 +299,10 @@ RootEstimate RootDetector::estimate() noexcept {
     double best_score = -1.0;
     for (std::size_t j = 0; j < ntop; ++j) {
         const double f = cfg_.f_min_hz * std::exp2(kGridCents * static_cast<double>(top[j]) / 1200.0);
-        const RootEstimate e = refine(f);
-        const double score = cand_s_[top[j]] * (0.05 + e.confidence);
+        RootEstimate e = refine(f, false);
+        if (e.harmonics_used > 0) e = refine(e.root_hz, true);  // again, each harmonic's own bin only
+        const double c2 = e.confidence * e.confidence;
+        const double score = cand_s_[top[j]] * (1e-3 + c2 * c2);
         if (score > best_score) {
             best_score = score;
             best = e;

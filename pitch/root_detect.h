@@ -6,7 +6,9 @@
 // is a clear spectral peak; (3) at the end, harmonic summation over the
 // averaged amplitude spectrum (A. Klapuri, "Multiple fundamental frequency
 // estimation by summing harmonic amplitudes", ISMIR 2006, with 1/h weights)
-// picks candidates; (4) each harmonic's frequency comes from the phase of
+// over the steady spectrum |sum X_i conj(X_{i-1})| (where a moving voice's
+// terms largely cancel) picks candidates, the best scored by salience *
+// confidence^4; (4) each harmonic's frequency comes from the phase of
 // its accumulated cross spectrum (the phase-vocoder estimate, J. L.
 // Flanagan and R. M. Golden, "Phase vocoder", Bell Syst. Tech. J. 45, 1966),
 // exact for a steady partial, while a moving voice's phase advances differ
@@ -34,6 +36,7 @@ namespace beatless::pitch {
 struct RootDetectConfig {
     double sample_rate_hz = 44100.0;  // 8 000 .. 192 000
     double frame_s = 0.75;            // FFT frame, rounded up to a fast even size (default 0.75 s)
+    int hops_per_frame = 4;           // frame / hop, 4 .. 32 (default 4)
     double f_min_hz = 40.0;           // lowest root searched (default 40 Hz)
     double f_max_hz = 1000.0;         // highest root searched (default 1 kHz)
     int max_harmonic = 10;            // harmonics summed and fitted (default 10)
@@ -84,11 +87,11 @@ public:
 private:
     void process_frame(std::size_t valid) noexcept;
     double salience(double f0_hz) const noexcept;
-    RootEstimate refine(double f0_guess) noexcept;
+    RootEstimate refine(double f0_guess, bool tight) noexcept;
 
     RootDetectConfig cfg_;
     std::size_t n_ = 0;               // frame length
-    std::size_t hop_ = 0;             // n_ / 4
+    std::size_t hop_ = 0;             // n_ / hops_per_frame
     std::size_t kmax_ = 0;            // highest bin used
     double bin_hz_ = 0.0;
     std::unique_ptr<RealFft> fft_;
@@ -102,9 +105,10 @@ private:
     std::vector<std::complex<double>> cross_;  // summed X_i conj(X_{i-1})
     std::vector<double> cross_mag_;   // summed |X_i| |X_{i-1}|
     std::vector<std::uint32_t> peaks_;// frames in which the bin was a clear peak
+    std::vector<double> steady_;      // |summed cross spectrum| per bin, set by estimate()
     std::vector<double> scratch_;     // median work
     std::vector<double> cand_s_;      // salience per candidate (log grid)
-    struct Part { double f0_hz, weight, power, presence, coherence; };
+    struct Part { double f0_hz, weight, power, presence, coherence; int harmonic; };
     std::vector<Part> parts_;         // per harmonic, during refine()
     std::size_t frames_ = 0;          // frames above silence
     std::size_t bad_ = 0;

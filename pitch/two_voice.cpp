@@ -472,18 +472,27 @@ TwoVoiceTracker& TwoVoiceTracker::operator=(TwoVoiceTracker&&) noexcept = defaul
 void TwoVoiceTracker::push(std::span<const float> samples) noexcept {
     Impl& m = *impl_;
     const std::size_t cap = m.ring.size();
-    for (float v : samples) {
-        if (!std::isfinite(v)) {
-            v = 0.0f;
-            ++m.bad;
-        }
+    std::size_t i = 0;
+    while (i < samples.size()) {
         // Keep the oldest sample the next frame needs: skip frames if full.
         while (m.written + 1 > (m.next_end - m.span) + cap) {
             m.next_end += m.hop;
             m.dropped += m.hop;
         }
-        m.ring[m.written % cap] = v;
-        ++m.written;
+        const std::uint64_t room = (m.next_end - m.span) + cap - m.written;
+        const std::size_t pos = static_cast<std::size_t>(m.written % cap);
+        const std::size_t take = std::min({samples.size() - i, cap - pos, static_cast<std::size_t>(room)});
+        float* dst = m.ring.data() + pos;
+        for (std::size_t j = 0; j < take; ++j) {
+            float v = samples[i + j];
+            if (!std::isfinite(v)) {
+                v = 0.0f;
+                ++m.bad;
+            }
+            dst[j] = v;
+        }
+        m.written += take;
+        i += take;
     }
 }
 
@@ -492,7 +501,10 @@ bool TwoVoiceTracker::pull(TwoVoiceFrame& out) noexcept {
     if (m.written < m.next_end) return false;
     const std::size_t cap = m.ring.size();
     const std::uint64_t start = m.next_end - m.span;
-    for (std::size_t i = 0; i < m.span; ++i) m.x[i] = m.ring[(start + i) % cap];
+    const auto pos = static_cast<std::size_t>(start % cap);
+    const std::size_t first = std::min(m.span, cap - pos);
+    std::memcpy(m.x.data(), m.ring.data() + pos, first * sizeof(float));
+    std::memcpy(m.x.data() + first, m.ring.data(), (m.span - first) * sizeof(float));
     out = TwoVoiceFrame{};
     out.t_s = (static_cast<double>(start) + 0.5 * static_cast<double>(m.span - 1)) / m.cfg.sample_rate_hz;
     for (std::size_t i = m.span - std::min(m.span, m.hop); i < m.span && !out.clipped; ++i) out.clipped = std::fabs(m.x[i]) >= 0.999f;
