@@ -10,10 +10,16 @@
 // of the samples an estimate depends on, f0 = 0 when unvoiced).
 #pragma once
 
+#include "pitch/targets.h"
 #include "pitch/yin.h"
+
+#include <unistd.h>
 
 #include <cmath>
 #include <cstdio>
+#include <cstdlib>
+#include <functional>
+#include <initializer_list>
 #include <random>
 #include <string>
 #include <vector>
@@ -194,6 +200,50 @@ inline bool write_f32(const std::string& path, const std::vector<float>& x) {
     if (!f) return false;
     const bool ok = std::fwrite(x.data(), sizeof(float), x.size(), f) == x.size();
     return std::fclose(f) == 0 && ok;
+}
+
+// --- Test plumbing ---------------------------------------------------------
+
+// Writes x to a temporary float32 file, runs tests/reference/<script> with
+// /usr/bin/python3 (Debian's numpy and scipy) as `script FILE args`, and
+// returns the number it prints; NaN when the file, the run or its output fails.
+#ifdef BEATLESS_SOURCE_DIR
+inline double run_reference(const std::string& script, const std::vector<float>& x, const std::string& args) {
+    const char* dir = std::getenv("TMPDIR");
+    const std::string path = std::string(dir && *dir ? dir : "/tmp") + "/beatless_ref_" + std::to_string(::getpid()) + ".f32";
+    if (!write_f32(path, x)) return NAN;
+    const std::string cmd = "/usr/bin/python3 " BEATLESS_SOURCE_DIR "/tests/reference/" + script + " " + path + " " + args;
+    std::FILE* p = popen(cmd.c_str(), "r");
+    char line[64] = {};
+    const bool got = p && std::fgets(line, sizeof line, p) != nullptr;
+    const int rc = p ? pclose(p) : -1;
+    std::remove(path.c_str());
+    return got && rc == 0 ? std::atof(line) : NAN;
+}
+#endif
+
+// A target set from interval texts ("7/5", "600c"), in the given order.
+inline pitch::TargetSet target_set(std::initializer_list<const char*> intervals, const char* id = "test") {
+    pitch::TargetSet set;
+    set.id = id;
+    for (const char* t : intervals) set.targets.push_back({pitch::parse_interval(t), ""});
+    return set;
+}
+
+// The intervals of targets/tritones.toml, in the file's order.
+inline pitch::TargetSet tritone_set() {
+    return target_set({"15/11", "11/8", "7/5", "45/32", "600c", "64/45", "729/512", "1024/729", "10/7", "16/11"}, "tritones");
+}
+
+// The message of the Error that fn throws, or "(no error)".
+template <class E>
+std::string error_of(const std::function<void()>& fn) {
+    try {
+        fn();
+    } catch (const E& e) {
+        return e.what();
+    }
+    return "(no error)";
 }
 
 }  // namespace beatless::testsig

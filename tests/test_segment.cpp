@@ -26,15 +26,6 @@ using namespace beatless::pitch;
 using namespace beatless::testsig;
 
 namespace {
-TargetSet tritone_set() {
-    // The intervals of targets/tritones.toml, in the file's order.
-    TargetSet set;
-    set.id = "tritones";
-    for (const char* t : {"15/11", "11/8", "7/5", "45/32", "600c", "64/45", "729/512", "1024/729", "10/7", "16/11"})
-        set.targets.push_back({parse_interval(t), ""});
-    return set;
-}
-
 int index_of(const TargetSet& set, const char* text) {
     for (std::size_t i = 0; i < set.targets.size(); ++i)
         if (set.targets[i].interval.str() == text) return static_cast<int>(i);
@@ -104,8 +95,7 @@ TEST_CASE("a voice holding five mistuned tritones over a drone: every note, with
 
 TEST_CASE("per-target summary: '10/7 averages 6 cents flat'") {
     // The five targets the voice holds (10/7 - 6 cents would be nearer 729/512 in the full set).
-    TargetSet set;
-    for (const char* t : {"7/5", "10/7", "11/8", "45/32", "16/11"}) set.targets.push_back({parse_interval(t), ""});
+    const TargetSet set = target_set({"7/5", "10/7", "11/8", "45/32", "16/11"});
     const auto notes = take_notes(110.0, {{10.0 / 7.0, -5.0}, {10.0 / 7.0, -6.0}, {10.0 / 7.0, -7.0}, {7.0 / 5.0, 2.0}}, 4);
     const auto frames = frames_of(notes, notes.back().end_s + 0.3, 0.005, 0.3, 5);
     SegmentConfig cfg;
@@ -211,11 +201,6 @@ TEST_CASE("no voice, only the drone, long notes and bad settings") {
     CHECK_THROWS_AS(NoteSegmenter(cfg, set), Error);  // no root
     cfg.root_hz = 110.0;
     CHECK_THROWS_AS(NoteSegmenter(cfg, TargetSet{}), Error);
-    try {
-        cfg.root_hz = -3.0;
-        NoteSegmenter s(cfg, set);
-        FAIL("no error");
-    } catch (const Error& e) {
-        CHECK(std::string(e.what()).find("root") != std::string::npos);
-    }
+    cfg.root_hz = -3.0;
+    CHECK(error_of<Error>([&] { NoteSegmenter s(cfg, set); }).find("root") != std::string::npos);
 }

@@ -14,8 +14,6 @@
 
 #include <doctest/doctest.h>
 
-#include <unistd.h>
-
 #include <algorithm>
 #include <cmath>
 #include <cstdio>
@@ -31,13 +29,7 @@ using namespace beatless::testsig;
 namespace {
 constexpr double kFs = 44100.0;
 
-TargetSet interval_set() {
-    TargetSet set;
-    set.id = "test";
-    for (const char* t : {"6/5", "5/4", "4/3", "7/5", "10/7", "3/2", "8/5", "5/3", "7/4", "11/8"})
-        set.targets.push_back({parse_interval(t), ""});
-    return set;
-}
+TargetSet interval_set() { return target_set({"6/5", "5/4", "4/3", "7/5", "10/7", "3/2", "8/5", "5/3", "7/4", "11/8"}); }
 
 std::vector<float> mixture(double f_low, double f_high, double lvl_low, double lvl_high, double dur_s, std::uint64_t seed,
                            double noise = 1e-4) {
@@ -123,19 +115,8 @@ TEST_CASE("just ratios and +-3, +-7, +-12 cents off, equal and unequal loudness"
 TEST_CASE("measured beat rate agrees with scipy's Hilbert envelope") {
     const double f_low = 200.0, f_high = 250.0 * std::exp2(7.0 / 1200.0);  // 5/4, 7 cents wide
     const auto x = mixture(f_low, f_high, 0.2, 0.15, 5.0, 3);
-    const std::string dir = std::getenv("TMPDIR") && *std::getenv("TMPDIR") ? std::getenv("TMPDIR") : "/tmp";
-    const std::string path = dir + "/beatless_beat_" + std::to_string(::getpid()) + ".f32";
-    REQUIRE(write_f32(path, x));
-    const std::string cmd = "/usr/bin/python3 " BEATLESS_SOURCE_DIR "/tests/reference/beat_envelope.py " + path + " 44100 1002 60";
-    std::FILE* p = popen(cmd.c_str(), "r");
-    REQUIRE(p != nullptr);
-    char line[64] = {};
-    const bool got = std::fgets(line, sizeof line, p) != nullptr;
-    const int rc = pclose(p);
-    std::remove(path.c_str());
-    REQUIRE(got);
-    REQUIRE(rc == 0);
-    const double scipy_hz = std::atof(line);
+    const double scipy_hz = run_reference("beat_envelope.py", x, "44100 1002 60");
+    REQUIRE(std::isfinite(scipy_hz));
     const auto frames = track(x, interval_set());
     const TwoVoiceFrame& last = frames.back();
     MESSAGE("scipy envelope " << scipy_hz << " Hz, ours " << last.measured_beat_hz << " Hz, predicted "
@@ -235,10 +216,5 @@ TEST_CASE("overflow is counted, never silent; bad settings are refused") {
     CHECK_THROWS_AS(TwoVoiceTracker(cfg, interval_set()), Error);
     cfg = {};
     cfg.f_min_hz = 20.0;  // fundamentals closer than the window resolves
-    try {
-        TwoVoiceTracker t(cfg, interval_set());
-        FAIL("no error");
-    } catch (const Error& e) {
-        CHECK(std::string(e.what()).find("f_min_hz") != std::string::npos);
-    }
+    CHECK(error_of<Error>([&] { TwoVoiceTracker t(cfg, interval_set()); }).find("f_min_hz") != std::string::npos);
 }

@@ -30,17 +30,7 @@ namespace {
 constexpr double kFs = 44100.0;
 
 TargetSet interval_set() {
-    TargetSet set;
-    for (const char* t : {"6/5", "5/4", "4/3", "7/5", "10/7", "3/2", "8/5", "5/3", "7/4", "11/8", "7/6", "9/7"})
-        set.targets.push_back({parse_interval(t), ""});
-    return set;
-}
-
-TargetSet tritone_set() {
-    TargetSet set;
-    for (const char* t : {"15/11", "11/8", "7/5", "45/32", "600c", "64/45", "729/512", "1024/729", "10/7", "16/11"})
-        set.targets.push_back({parse_interval(t), ""});
-    return set;
+    return target_set({"6/5", "5/4", "4/3", "7/5", "10/7", "3/2", "8/5", "5/3", "7/4", "11/8", "7/6", "9/7"});
 }
 
 const char* verdict(bool ok) { return ok ? "PASS" : "FAIL"; }
