@@ -1,3 +1,25 @@
+// RootDetector — the method in detail (summary in root_detect.h).
+//
+// Steps: (1) Hann-windowed long FFT frames (KissFFT, real, out of place) at
+// a hop of a quarter frame; (2) per bin, accumulate the power, the cross
+// spectrum X_i * conj(X_{i-1}) of consecutive frames, and how often the bin
+// is a clear spectral peak; (3) at the end, harmonic summation over the
+// averaged amplitude spectrum (A. Klapuri, "Multiple fundamental frequency
+// estimation by summing harmonic amplitudes", ISMIR 2006, with 1/h weights)
+// over the steady spectrum |sum X_i conj(X_{i-1})| (where a moving voice's
+// terms largely cancel) picks candidates, the best scored by salience *
+// confidence^4; (4) each harmonic's frequency comes from the phase of
+// its accumulated cross spectrum (the phase-vocoder estimate, J. L.
+// Flanagan and R. M. Golden, "Phase vocoder", Bell Syst. Tech. J. 45, 1966),
+// exact for a steady partial, while a moving voice's phase advances differ
+// from frame to frame and largely cancel; (5) a weighted median with
+// outlier rejection over f_h / h gives the root. Confidence is presence
+// (share of frames in which the harmonics stood out as peaks) times
+// coherence (|sum of cross spectra| / sum of their magnitudes: 1 for a
+// steady partial, near 0 for noise or a gliding voice).
+// Memory is constant: a few arrays of one frame's bins, whatever the length.
+// All allocation happens in the constructor; push() and estimate() never allocate.
+
 #include "pitch/root_detect.h"
 
 #include "pitch/error.h"

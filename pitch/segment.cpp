@@ -1,3 +1,25 @@
+// NoteSegmenter — the method in detail (summary in segment.h).
+//
+// Fed tracker frames one by one (pitch/yin.h PitchFrame), it emits each note
+// as it ends. Steps: (1) frames below min_confidence, unvoiced, or within
+// drone_tol_cents of the root's own pitch class (the drone leaking into the
+// tracker) count as silence; (2) a note starts at the first voiced frame
+// and ends at a silence longer than max_gap_s, or splits where a 0.2 s
+// trailing mean of the pitch leaves the note's vibrato centre by more than
+// change_cents for change_s (a legato step, cut where a two-level step fit
+// puts it); (3) notes shorter than min_note_s are dropped; (4) per note, a
+// streaming VibratoCentre (pitch/vibrato.h) gives a centre reading per
+// frame; the settle time runs from the onset to the middle of the first
+// averaging window whose centre stays within settle_cents of the note's
+// centre for the rest of the note; the note's centre f0 is the whole-cycle
+// mean (pitch/cycles.h) over the frames from that reading on (the second
+// half when that leaves under 0.3 s); (5) nearest target (pitch/targets.h), deviation,
+// spread, and the beat rate of the coinciding partials against the root
+// (|q f - p root| for target p/q, Helmholtz; pitch/beats.h).
+// Memory: bounded by max_note_s (a longer note is closed and marked
+// truncated, and the next note continues). Allocation happens in the
+// constructor only; push() and finish() never allocate.
+
 #include "pitch/segment.h"
 
 #include "pitch/beats.h"

@@ -1,30 +1,12 @@
 // TwoVoiceTracker — both fundamentals of two simultaneous harmonic voices
 // from one microphone (double stops, two singers, a voice over a bass line),
-// the just interval between them and the beating of their coinciding partials.
+// their interval's nearest just target and the beat of the coinciding partials.
 //
 // Method: harmonic-amplitude summation with iterative estimation and
 // cancellation, A. Klapuri, "Multiple fundamental frequency estimation by
-// summing harmonic amplitudes", Proc. ISMIR 2006, pp. 216-221. Steps per
-// frame: (1) Blackman-Harris window, two real FFTs (KissFFT, out of place) a
-// quarter frame apart; (2) spectral peaks, each peak's frequency from the
-// phase advance of its bins between the two transforms (phase vocoder,
-// Flanagan & Golden 1966), far finer than a bin; (3) salience of every peak
-// as a fundamental, sum over h of g(f0, h) * amplitude of the peak matched
-// at h*f0, g = (f0 + 52 Hz) / (h*f0 + 320 Hz) (Klapuri 2006); (4) the most
-// salient voice is taken, its partials cancelled down to a smooth spectral
-// envelope so shared partials keep the rest, and the second voice is the
-// most salient of what remains; (5) each f0 is refined by weighted least
-// squares over its own partials, leaving out those within the window's
-// main lobe of the other voice's partials. The interval's nearest target
-// names the coinciding pair (p-th partial of the low voice, q-th of the
-// high one, f_high/f_low = p/q); its beat rate is measured from the two
-// partials' frequency difference when the spectrum resolves them, otherwise
-// from the amplitude envelope at their shared frequency over the last
-// beat_history_s (whole cycles, pitch/cycles.h), and reported beside the
-// rate the f0s predict, |q * f_high - p * f_low| (pitch/beats.h).
-//
-// All allocation happens in the constructor; push() and pull() never
-// allocate for blocks up to max_block_len_samples.
+// summing harmonic amplitudes", Proc. ISMIR 2006, pp. 216-221, on
+// phase-vocoder peak frequencies, refined per voice by weighted least
+// squares; steps in two_voice.cpp. Allocation in the constructor only.
 #pragma once
 
 #include "pitch/targets.h"
