@@ -1,22 +1,24 @@
 // RootDetector — the method in detail (summary in root_detect.h).
 //
 // Steps: (1) Hann-windowed long FFT frames (KissFFT, real, out of place) at
-// a hop of a quarter frame; (2) per bin, accumulate the power, the cross
-// spectrum X_i * conj(X_{i-1}) of consecutive frames, and how often the bin
-// is a clear spectral peak; (3) at the end, harmonic summation over the
-// averaged amplitude spectrum (A. Klapuri, "Multiple fundamental frequency
-// estimation by summing harmonic amplitudes", ISMIR 2006, with 1/h weights)
-// over the steady spectrum |sum X_i conj(X_{i-1})| (where a moving voice's
-// terms largely cancel) picks candidates, the best scored by salience *
-// confidence^4; (4) each harmonic's frequency comes from the phase of
-// its accumulated cross spectrum (the phase-vocoder estimate, J. L.
-// Flanagan and R. M. Golden, "Phase vocoder", Bell Syst. Tech. J. 45, 1966),
-// exact for a steady partial, while a moving voice's phase advances differ
-// from frame to frame and largely cancel; (5) a weighted median with
-// outlier rejection over f_h / h gives the root. Confidence is presence
-// (share of frames in which the harmonics stood out as peaks) times
-// coherence (|sum of cross spectra| / sum of their magnitudes: 1 for a
-// steady partial, near 0 for noise or a gliding voice).
+// a hop of a third of a frame (0.25 s: 1.25-1.75 periods of a 5-7 Hz
+// vibrato, so a vibrato's phase advance never repeats from hop to hop);
+// (2) per bin, accumulate the power, the cross spectrum X_i conj(X_{i-1})
+// of consecutive frames with its magnitude sum, and how often the bin is a
+// clear peak (15 dB over the frame's median); (3) harmonic summation (A.
+// Klapuri, "Multiple fundamental frequency estimation by summing harmonic
+// amplitudes", ISMIR 2006; 1/h weights) over the steady spectrum
+// |sum X_i conj(X_{i-1})|, where a moving voice's terms largely cancel,
+// with one candidate per +-60 cents; (4) per candidate, each harmonic's
+// frequency from the phase of its accumulated cross spectrum (the phase-
+// vocoder estimate, J. L. Flanagan and R. M. Golden, "Phase vocoder", Bell
+// Syst. Tech. J. 45, 1966: exact for a steady partial); (5) mode seeking:
+// the harmonics whose f_h / h agree within 0.5 cent, evidence weighted by
+// steady power * (presence * coherence)^4, averaged with inverse-variance
+// weights; a second pass looks only in each harmonic's own bin. Confidence
+// is presence times coherence (|sum of cross spectra| / sum of their
+// magnitudes), halved when a lone upper partial is all that agrees; the
+// answer is the candidate with the largest salience * confidence^4.
 // Memory is constant: a few arrays of one frame's bins, whatever the length.
 // All allocation happens in the constructor; push() and estimate() never allocate.
 
@@ -65,7 +67,7 @@ RootDetector::RootDetector(const RootDetectConfig& config) : cfg_(config) {
     check(cfg_.f_max_hz < 0.25 * cfg_.sample_rate_hz, "f_max_hz", cfg_.f_max_hz);
     check(cfg_.max_harmonic >= 1 && cfg_.max_harmonic <= 64, "max_harmonic", cfg_.max_harmonic);
     check(cfg_.max_freq_hz > cfg_.f_max_hz, "max_freq_hz", cfg_.max_freq_hz);
-    check(cfg_.hops_per_frame >= 4 && cfg_.hops_per_frame <= 32, "hops_per_frame", cfg_.hops_per_frame);
+    check(cfg_.hops_per_frame >= 3 && cfg_.hops_per_frame <= 32, "hops_per_frame", cfg_.hops_per_frame);
     check(cfg_.min_confidence >= 0.0 && cfg_.min_confidence <= 1.0, "min_confidence", cfg_.min_confidence);
 
     n_ = RealFft::fast_size(static_cast<std::size_t>(std::ceil(cfg_.frame_s * cfg_.sample_rate_hz)));
@@ -225,7 +227,7 @@ RootEstimate RootDetector::refine(double f0_guess, bool tight) noexcept {
     }
     if (parts_.empty()) return e;
 
-    // Mode seeking: the harmonic whose f_h / h gathers the most weight within
+    // Mode seeking: the harmonic whose f_h / h gathers the most evidence within
     // kAgreeCents, then the weighted mean of those that agree with it (a steady
     // drone's harmonics agree to hundredths of a cent; a voice's do not).
     std::size_t best_i = 0;
@@ -233,7 +235,8 @@ RootEstimate RootDetector::refine(double f0_guess, bool tight) noexcept {
     for (std::size_t i = 0; i < parts_.size(); ++i) {
         double w = 0.0;
         for (const Part& q : parts_)
-            if (std::fabs(1200.0 * std::log2(q.f0_hz / parts_[i].f0_hz)) <= kAgreeCents) w += q.weight;
+            if (std::fabs(1200.0 * std::log2(q.f0_hz / parts_[i].f0_hz)) <= kAgreeCents)
+                w += q.weight / (q.harmonic * q.harmonic);  // evidence counts each partial's steady power once
         if (w > best_w) {
             best_w = w;
             best_i = i;
@@ -241,7 +244,8 @@ RootEstimate RootDetector::refine(double f0_guess, bool tight) noexcept {
     }
     double centre = parts_[best_i].f0_hz;
     double sw = 0.0, sp = 0.0, spp = 0.0, spc = 0.0, sd = 0.0;
-    int used = 0, lowest_h = 0;
+    int used = 0;
+    double max_w = 0.0;
     for (int pass = 0; pass < 2; ++pass) {
         double swf = 0.0;
         sw = sp = spp = spc = sd = 0.0;
@@ -254,13 +258,18 @@ RootEstimate RootDetector::refine(double f0_guess, bool tight) noexcept {
             sp += p.power;
             spp += p.power * p.presence;
             spc += p.power * p.coherence;
-            if (used++ == 0 || p.harmonic < lowest_h) lowest_h = p.harmonic;
+            max_w = std::max(max_w, p.weight);
+            ++used;
         }
         centre = swf / sw;
     }
+    int strong = 0, lowest_h = 0;  // agreeing harmonics that carry real weight
     for (const Part& p : parts_) {
         const double d = 1200.0 * std::log2(p.f0_hz / centre);
-        if (std::fabs(d) <= kAgreeCents) sd += p.weight * d * d;
+        if (std::fabs(d) > kAgreeCents) continue;
+        sd += p.weight * d * d;
+        if (p.weight < 1e-2 * max_w) continue;
+        if (strong++ == 0 || p.harmonic < lowest_h) lowest_h = p.harmonic;
     }
     e.root_hz = centre;
     e.spread_cents = std::sqrt(sd / sw);
@@ -270,7 +279,7 @@ RootEstimate RootDetector::refine(double f0_guess, bool tight) noexcept {
     e.confidence = e.presence * e.coherence;
     // A lone upper partial is no evidence of a tone at this root (it is
     // usually another tone's harmonic); a lone fundamental (a sine drone) is.
-    if (used == 1 && lowest_h > 1) e.confidence *= 0.5;
+    if (strong == 1 && lowest_h > 1) e.confidence *= 0.5;
     if (e.confidence >= cfg_.min_confidence) e.status = RootStatus::found;
     return e;
 }

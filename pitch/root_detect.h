@@ -23,7 +23,8 @@ namespace beatless::pitch {
 struct RootDetectConfig {
     double sample_rate_hz = 44100.0;  // 8 000 .. 192 000
     double frame_s = 0.75;            // FFT frame, rounded up to a fast even size (default 0.75 s)
-    int hops_per_frame = 4;           // frame / hop, 4 .. 32 (default 4)
+    int hops_per_frame = 3;           // frame / hop, 3 .. 32 (default 3: a 0.25 s hop, 1.25-1.75
+                                      //   periods of a 5-7 Hz vibrato, so a vibrato never looks steady)
     double f_min_hz = 40.0;           // lowest root searched (default 40 Hz)
     double f_max_hz = 1000.0;         // highest root searched (default 1 kHz)
     int max_harmonic = 10;            // harmonics summed and fitted (default 10)

@@ -16,6 +16,7 @@
 #include <algorithm>
 #include <cmath>
 #include <cstdio>
+#include <cstdlib>
 #include <random>
 #include <vector>
 
@@ -122,6 +123,7 @@ void root_detection(Context& ctx) {
         audio_s += take.dur_s;
         if (!e.found()) ++missed;
         err.push_back(std::fabs(1200.0 * std::log2(e.root_hz / root)));
+        if (std::getenv("BENCH_VERBOSE")) std::printf("    case %d root %.3f: %s\n", c, root, describe(e).c_str());
     }
     const double mx = *std::max_element(err.begin(), err.end());
     std::printf("root detection: %d takes (%.0f s), drone 55-440 Hz under a louder voice with vibrato\n", cases, audio_s);
