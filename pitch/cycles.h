@@ -1,0 +1,53 @@
+// Cycles — whole cycles of a slow oscillation in a sampled track.
+//
+// Finds the cycles of a quasi-periodic track x(t) (a vibrato in cents, the
+// amplitude envelope of two beating partials): (1) subtract the mean (or,
+// when asked, the least-squares line, which lets a slow drift cross but
+// bends the periods a little); (2) mark upward
+// crossings of the residual through zero with hysteresis (the residual must
+// have been below -h and then reach +h; the crossing time is interpolated
+// linearly between the two samples that straddle zero); (3) accept the run
+// of crossings when every period lies in the allowed range and the longest
+// is at most max_period_ratio times the shortest. Any constant level repeats
+// once per period, so the span between the first and last crossing holds a
+// whole number of cycles even when the mean misses the true centre; averaging
+// over that span cancels the oscillation (the standard whole-period mean).
+//
+// Thread: any. Allocates: no. Locks: no.
+#pragma once
+
+#include <cstddef>
+
+namespace beatless::pitch {
+
+struct CycleConfig {
+    double min_rate_hz = 3.0;           // slowest cycle accepted
+    double max_rate_hz = 12.0;          // fastest cycle accepted
+    double hysteresis_abs = 1.0;        // least hysteresis h, in the track's units (default 1)
+    double hysteresis_rel = 0.25;       // h at least this fraction of the residual's RMS (default 0.25)
+    double max_period_ratio = 1.5;      // longest period / shortest period allowed (default 1.5)
+    bool detrend = false;               // cross a fitted line instead of the mean (default off)
+};
+
+struct CycleStats {
+    bool found = false;        // at least one whole cycle passed the checks
+    int cycles = 0;            // whole cycles between t_first_s and t_last_s
+    double t_first_s = 0.0;    // first accepted upward crossing
+    double t_last_s = 0.0;     // last accepted upward crossing
+    double rate_hz = 0.0;      // cycles / (t_last_s - t_first_s)
+    double mean = 0.0;         // time average of x over [t_first_s, t_last_s] (linear interpolation)
+    double depth = 0.0;        // half the mean peak-to-peak swing of the residual per cycle
+};
+
+// Examines samples i in [0, n) of (t[i], x[i]); t must increase. Returns
+// found == false (mean, rate 0) when fewer than two crossings pass.
+CycleStats find_cycles(const double* t, const double* x, std::size_t n, const CycleConfig& config) noexcept;
+
+// Time average of the linear interpolant of (t, x) over [t0, t1] inside the
+// samples' span (trapezoid rule with fractional ends).
+double interpolated_mean(const double* t, const double* x, std::size_t n, double t0, double t1) noexcept;
+
+// Plain mean and population standard deviation of x[0..n).
+void mean_and_spread(const double* x, std::size_t n, double& mean, double& spread) noexcept;
+
+}  // namespace beatless::pitch
