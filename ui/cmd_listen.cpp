@@ -8,8 +8,7 @@
 // "ratio", "target", "target_name", "dev_cents", "centre_dev_cents",
 // "beat_hz", "beat_partials": [root partial, voice partial]}, null where
 // unvoiced. Diagnostics and a summary (overflows, underflows, latency) go to
-// stderr. `beatless --demo` with no subcommand runs the same engine with
-// the demo performer and prints readable lines instead (run_demo_preview).
+// stderr. (`beatless --demo` with no subcommand opens the Practice screen.)
 // The drone is off unless --drone is given; with a file or the demo,
 // --drone means the input holds a drone at the root (the demo's microphone
 // hears it through a simulated room), and drone removal follows it.
@@ -335,14 +334,6 @@ void register_listen(CLI::App& app, Runner& run) {
     sub->add_option("--block", o->block, "Frames per audio callback to ask for (default 256)");
     sub->add_option("--hop-ms", o->hop_ms, "Time between readings in ms (default 5)");
     sub->callback([o, &run] { run = [o] { return run_live(*o, Printing::json); }; });
-}
-
-int run_demo_preview(double seconds) {
-    ListenOptions o;
-    o.demo = true;
-    o.drone = true;
-    o.seconds = seconds;
-    return run_live(o, Printing::text);
 }
 
 }  // namespace beatless::ui
