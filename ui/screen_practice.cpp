@@ -297,7 +297,7 @@ void PracticeScreen::trace(AppState& app, ImDrawList* dl, float x0, float y0, fl
         const int k_lo = static_cast<int>(std::ceil((lo - c0) / 1200.0)), k_hi = static_cast<int>(std::floor((hi - c0) / 1200.0));
         for (int k = k_lo; k <= k_hi; ++k) {
             const double c = c0 + 1200.0 * k;
-            if (std::any_of(labels_.begin(), labels_.end(), [&](const Label& l) { return std::fabs(l.y - std::round(y_of(c))) < 0.5f && !l.current; }) &&
+            if (std::any_of(labels_.begin(), labels_.end(), [&](const Label& l) { return std::fabs(l.y - std::round(y_of(c))) < 0.5f; }) &&
                 !(static_cast<int>(i) == cur && k == cur_oct))
                 continue;  // 1/1 an octave up is 2/1: one line, one label
             const bool is_cur = static_cast<int>(i) == cur && k == cur_oct;
@@ -403,22 +403,26 @@ void PracticeScreen::beat_cue(AppState& app, ImDrawList* dl, float x0, float y0,
     // lines beside it saying what it shows.
     const float room = y0 + h - y - std::round(0.5f * u);
     if (room < 1.6f * u) return;
-    const float rad = std::round(std::clamp(std::min(0.45f * room, 0.2f * w), 0.8f * u, 3.2f * u));
+    const BeatCue cue = have ? p.cue() : BeatCue::none;
+    std::string caption1, caption2;
+    switch (cue) {
+        case BeatCue::none: caption1 = "no beat to show", caption2 = "sing or play a note"; break;
+        case BeatCue::still: caption1 = "still: nearly pure", caption2 = "hold it there"; break;
+        case BeatCue::pulse: caption1 = "pulses once per beat", caption2 = "slower is closer"; break;
+        case BeatCue::fast: caption1 = "too fast to follow", caption2 = "listen for roughness"; break;
+    }
+    const float caption_w = std::max(text_size(FontFace::body, caption1).x, text_size(FontFace::body, caption2).x);
+    const float rad = std::round(std::clamp(std::min({0.45f * room, 0.2f * w, 0.5f * (w - caption_w - 2.6f * u)}), 0.8f * u, 3.2f * u));
     const ImVec2 c(std::round(x + rad), std::round(y + 0.5f * room));
     const float ring = std::max(2.0f, std::round(0.12f * u));
-    std::string caption1, caption2;
-    switch (have ? p.cue() : BeatCue::none) {
+    switch (cue) {
         case BeatCue::none:
             dl->AddCircle(c, rad, palette::kGrid, 48, ring);
-            caption1 = "no beat to show";
-            caption2 = "sing or play a note";
             break;
         case BeatCue::pulse:
         case BeatCue::still:
             dl->AddCircleFilled(c, rad, mix(palette::kPanel, palette::kPulse, p.brightness()), 48);
             dl->AddCircle(c, rad, palette::kPulse, 48, ring);
-            caption1 = p.cue() == BeatCue::still ? "still: nearly pure" : "pulses once per beat";
-            caption2 = p.cue() == BeatCue::still ? "hold it there" : "slower is closer";
             break;
         case BeatCue::fast: {
             // Steady: a ring with a zig-zag across, no flicker.
@@ -427,8 +431,6 @@ void PracticeScreen::beat_cue(AppState& app, ImDrawList* dl, float x0, float y0,
             for (int i = 0; i < 9; ++i)
                 zz[i] = ImVec2(c.x - 0.7f * rad + static_cast<float>(i) * 0.175f * rad, c.y + ((i % 2) ? -0.25f : 0.25f) * rad);
             dl->AddPolyline(zz, 9, palette::kPulse, ImDrawFlags_None, ring);
-            caption1 = "too fast to follow";
-            caption2 = "listen for roughness";
             break;
         }
     }
