@@ -9,6 +9,8 @@
 #include <atomic>
 #include <cctype>
 #include <cstdio>
+#include <memory>
+#include <thread>
 #include <fcntl.h>
 #include <unistd.h>
 
@@ -114,7 +116,8 @@ public:
     PaStreamImpl(StreamCallbacks& cb) : cb_(cb) {}
     ~PaStreamImpl() override {
         if (stream_) {
-            QuietStderr quiet;
+            // No QuietStderr here: a retired stream may block in these calls
+            // for good, and stderr must not stay redirected meanwhile.
             Pa_AbortStream(stream_);
             Pa_CloseStream(stream_);
         }
@@ -149,15 +152,30 @@ public:
         if (e != paNoError) throw Error(std::string("audio system (PortAudio) failed to start: ") + pa_text(e));
     }
     ~PortAudioSystem() override {
+        // A stream still being closed by its reaper would hang Pa_Terminate:
+        // then the process exit cleans up instead.
+        if (retiring_->load() > 0) return;
         QuietStderr quiet;
         Pa_Terminate();
     }
 
     void rescan() override {
-        // PortAudio reads the device list at initialisation only.
+        // PortAudio reads the device list at initialisation only, and
+        // re-initialising is not safe while a dead stream is being closed.
+        if (retiring_->load() > 0) return;
         QuietStderr quiet;
         Pa_Terminate();
         Pa_Initialize();
+    }
+
+    void retire(std::unique_ptr<Stream> s) override {
+        // PortAudio's JACK host, for one, waits forever for a process
+        // callback that a dead server never sends: close on a thread of its own.
+        retiring_->fetch_add(1);
+        std::thread([count = retiring_, stream = std::move(s)]() mutable {
+            stream.reset();
+            count->fetch_sub(1);
+        }).detach();
     }
 
     std::vector<DeviceInfo> devices() override {
@@ -245,6 +263,9 @@ public:
         if (e != paNoError) throw Error("device " + name + " could not be started: " + pa_text(e));
         return s;
     }
+
+private:
+    std::shared_ptr<std::atomic<int>> retiring_ = std::make_shared<std::atomic<int>>(0);
 };
 
 }  // namespace

@@ -75,6 +75,10 @@ public:
     virtual std::unique_ptr<Stream> open(const StreamRequest& request, StreamCallbacks& callbacks) = 0;
     // Forgets cached device lists (after a device disappears). Default: nothing.
     virtual void rescan() {}
+    // Takes a stream whose device has gone: some hosts never return from
+    // closing one, so it is closed where it cannot block the caller.
+    // Default: closes it at once.
+    virtual void retire(std::unique_ptr<Stream> s) { s.reset(); }
 };
 
 // PortAudio. Throws Error when PortAudio cannot start at all.

@@ -22,9 +22,10 @@ DroneCanceller::DroneCanceller(const CancellerConfig& config) : cfg_(config) {
     const double fs = cfg_.sample_rate_hz;
     if (!(fs >= 8000.0 && fs <= 192000.0)) throw Error("drone removal: sample rate " + std::to_string(fs) + " Hz is out of range");
     if (cfg_.max_partials < 1 || cfg_.max_partials > 512) throw Error("drone removal: max_partials must be 1 to 512");
-    if (!(cfg_.bandwidth_hz > 0.0 && cfg_.bandwidth_hz <= 50.0 && cfg_.acquire_bandwidth_hz >= cfg_.bandwidth_hz &&
-          cfg_.acquire_bandwidth_hz <= 100.0))
-        throw Error("drone removal: bandwidths must satisfy 0 < bandwidth <= acquire bandwidth <= 100 Hz");
+    if (!(cfg_.bandwidth_hz > 0.0 && cfg_.quiet_bandwidth_hz >= cfg_.bandwidth_hz && cfg_.acquire_bandwidth_hz >= cfg_.bandwidth_hz &&
+          cfg_.acquire_bandwidth_hz <= 100.0 && cfg_.quiet_bandwidth_hz <= 100.0))
+        throw Error("drone removal: bandwidths must satisfy 0 < bandwidth <= quiet and acquire bandwidths <= 100 Hz");
+    if (!(cfg_.history_s >= 0.0 && cfg_.history_s <= 2.0)) throw Error("drone removal: history_s must be 0 to 2 s");
     if (cfg_.block_len_samples < 1 || cfg_.block_len_samples > 4096) throw Error("drone removal: block length must be 1 to 4096");
     const std::size_t n = cfg_.max_partials;
     const std::size_t padded = (n + 3) / 4 * 4;
@@ -34,13 +35,22 @@ DroneCanceller::DroneCanceller(const CancellerConfig& config) : cfg_(config) {
     wr_.assign(n, 0.0);
     wi_.assign(n, 0.0);
     for (auto* v : {&zr_, &zi_, &cr_, &ci_, &vr_, &vi_}) v->assign(padded + 4, 0.0f);
+    quiet_wr_.assign(n, 0.0);
+    quiet_wi_.assign(n, 0.0);
+    hist_slots_ = 1 + static_cast<std::size_t>(cfg_.history_s * fs / static_cast<double>(cfg_.block_len_samples));
+    hist_.assign(hist_slots_ * n * 2, 0.0);
     mu_ = 4.0 * std::numbers::pi * cfg_.bandwidth_hz / fs;
+    mu_quiet_ = 4.0 * std::numbers::pi * cfg_.quiet_bandwidth_hz / fs;
     mu_acquire_ = 4.0 * std::numbers::pi * cfg_.acquire_bandwidth_hz / fs;
 }
 
 void DroneCanceller::reset() noexcept {
     std::fill(wr_.begin(), wr_.end(), 0.0);
     std::fill(wi_.begin(), wi_.end(), 0.0);
+    std::fill(quiet_wr_.begin(), quiet_wr_.end(), 0.0);
+    std::fill(quiet_wi_.begin(), quiet_wi_.end(), 0.0);
+    hist_count_ = 0;
+    quiet_valid_ = false;
     std::fill(phase_.begin(), phase_.end(), 0.0);
     acquire_left_ = static_cast<std::size_t>(cfg_.acquire_s * cfg_.sample_rate_hz);
 }
@@ -91,6 +101,65 @@ void DroneCanceller::set_level(double gain, bool immediate) noexcept {
     level_step_ = (level_target_ - level_) / static_cast<double>(level_left_);
 }
 
+void DroneCanceller::save_history() noexcept {
+    hist_head_ = hist_head_ + 1 == hist_slots_ ? 0 : hist_head_ + 1;
+    double* h = hist_.data() + hist_head_ * cfg_.max_partials * 2;
+    for (std::size_t k = 0; k < count_; ++k) {
+        h[2 * k] = wr_[k];
+        h[2 * k + 1] = wi_[k];
+    }
+    hist_count_ = std::min(hist_count_ + 1, hist_slots_);
+}
+
+void DroneCanceller::set_voice(bool sounding, std::size_t onset_age_samples) noexcept {
+    if (sounding == sounding_) return;
+    sounding_ = sounding;
+    if (!sounding) {
+        quiet_since_ = processed_;
+        return;
+    }
+    if (count_ == 0 || !quiet_valid_) return;
+    if (static_cast<double>(processed_ - quiet_since_) < cfg_.min_quiet_s * cfg_.sample_rate_hz) {
+        // Only a gap between notes: what the last note left is dropped.
+        std::copy_n(quiet_wr_.begin(), count_, wr_.begin());
+        std::copy_n(quiet_wi_.begin(), count_, wi_.begin());
+        return;
+    }
+    // Roll back to the weights from before the onset (or the oldest kept).
+    const std::size_t back = std::min(hist_count_ > 0 ? hist_count_ - 1 : 0,
+                                      onset_age_samples / cfg_.block_len_samples + 1);
+    if (hist_count_ > 0) {
+        const std::size_t slot = (hist_head_ + hist_slots_ - back) % hist_slots_;
+        const double* h = hist_.data() + slot * cfg_.max_partials * 2;
+        for (std::size_t k = 0; k < count_; ++k) {
+            wr_[k] = h[2 * k];
+            wi_[k] = h[2 * k + 1];
+        }
+    }
+    std::copy_n(wr_.begin(), count_, quiet_wr_.begin());
+    std::copy_n(wi_.begin(), count_, quiet_wi_.begin());
+}
+
+void DroneCanceller::new_note() noexcept {
+    if (!sounding_ || !quiet_valid_) return;
+    std::copy_n(quiet_wr_.begin(), count_, wr_.begin());
+    std::copy_n(quiet_wi_.begin(), count_, wi_.begin());
+}
+
+bool DroneCanceller::is_residue(double f0_hz, double level_dbfs) const noexcept {
+    if (!active() || !(f0_hz > 0.0)) return false;
+    double power = 0.0;  // the drone at the microphone, mean square
+    for (std::size_t k = 0; k < count_; ++k) {
+        const double a = partial_amplitude(k);
+        power += 0.5 * a * a;
+    }
+    if (!(power > 0.0) || level_dbfs > 10.0 * std::log10(power) - cfg_.residue_db) return false;
+    for (std::size_t k = 0; k < count_; ++k)
+        for (int div = 1; div <= 4; ++div)  // a partial, or a subharmonic the tracker may report
+            if (std::fabs(1200.0 * std::log2(f0_hz * div / freq_[k])) <= cfg_.residue_cents) return true;
+    return false;
+}
+
 double DroneCanceller::partial_amplitude(std::size_t k) const noexcept {
     if (k >= count_) return 0.0;
     return std::hypot(wr_[k], wi_[k]) * amp_[k] * level_;
@@ -98,6 +167,7 @@ double DroneCanceller::partial_amplitude(std::size_t k) const noexcept {
 
 void DroneCanceller::process(std::span<const float> in, std::span<float> out) noexcept {
     const std::size_t len = std::min(in.size(), out.size());
+    processed_ += len;
     std::size_t i = 0;
     while (i < len) {
         const std::size_t m = std::min(cfg_.block_len_samples, len - i);
@@ -132,7 +202,9 @@ void DroneCanceller::run_block(const float* in, float* out, std::size_t m, doubl
         phase_[k] = std::fmod(phase_[k] + kTwoPi * freq_[k] * static_cast<double>(m) / fs, kTwoPi);
     }
     const std::size_t acquiring = std::min(acquire_left_, m);
+    const double mu_now = sounding_ ? mu_ : mu_quiet_;
     acquire_left_ -= acquiring;
+    const bool acquired_now = acquiring > 0 && acquire_left_ == 0;
     auto* zr = reinterpret_cast<F4*>(zr_.data());
     auto* zi = reinterpret_cast<F4*>(zi_.data());
     auto* cr = reinterpret_cast<const F4*>(cr_.data());
@@ -145,7 +217,7 @@ void DroneCanceller::run_block(const float* in, float* out, std::size_t m, doubl
         for (std::size_t g = 0; g < g_n; ++g) acc += vr[g] * zr[g] - vi[g] * zi[g];
         const float e = in[n] - (acc[0] + acc[1] + acc[2] + acc[3]);
         out[n] = e;
-        const float ge = static_cast<float>((n < acquiring ? mu_acquire_ : mu_) * e);
+        const float ge = static_cast<float>((n < acquiring ? mu_acquire_ : mu_now) * e);
         for (std::size_t g = 0; g < g_n; ++g) {
             vr[g] += ge * zr[g];
             vi[g] -= ge * zi[g];
@@ -158,6 +230,13 @@ void DroneCanceller::run_block(const float* in, float* out, std::size_t m, doubl
         const double s = lv * amp_[k];
         wr_[k] = vr_[k] / s;
         wi_[k] = vi_[k] / s;
+    }
+    if (acquire_left_ > 0) return;  // history and the quiet weights start once the room is learned
+    save_history();
+    if (acquired_now || (!sounding_ && !quiet_valid_)) {
+        std::copy_n(wr_.begin(), count_, quiet_wr_.begin());
+        std::copy_n(wi_.begin(), count_, quiet_wi_.begin());
+        quiet_valid_ = true;
     }
 }
 

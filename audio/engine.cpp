@@ -85,6 +85,7 @@ struct Engine::Impl {
     std::atomic<pitch::ReadingMaker*> retired_maker{nullptr};
     std::atomic<double> root_hz{110.0};
     double applied_root = 0.0;
+    double span_s = 0.05;                 // the tracker's span
     bool removal_active = false;
     std::thread analysis;
     std::atomic<bool> running{false};
@@ -218,13 +219,22 @@ void Engine::start(bool analysis_thread) {
     pitch::YinConfig yc;
     yc.sample_rate_hz = m.rate;
     yc.hop_s = cfg_.hop_s;
-    yc.f_min_hz = cfg_.f_min_hz;
-    yc.span_s = cfg_.span_s;
+    // Live input favours a short span (a step settles within 40 ms); a file
+    // favours the longer span's accuracy and range.
+    const bool live = m.input != InputKind::file;
+    yc.span_s = cfg_.span_s > 0.0 ? cfg_.span_s : live ? 0.030 : 0.050;
+    yc.f_min_hz = cfg_.f_min_hz > 0.0 ? cfg_.f_min_hz : live ? 70.0 : 55.0;
+    m.span_s = yc.span_s;
     yc.f_max_hz = cfg_.f_max_hz;
     yc.max_block_len_samples = kChunk * 4;
     m.tracker = std::make_unique<pitch::YinTracker>(yc);
     CancellerConfig cc = cfg_.canceller;
     cc.sample_rate_hz = m.rate;
+    if (m.input_has_drone) {
+        // A recording: the voice may sound from the first sample, so there is
+        // no silent moment to learn the room in; one notch width throughout.
+        cc.bandwidth_hz = cc.quiet_bandwidth_hz = cc.recording_bandwidth_hz;
+    }
     m.canceller = std::make_unique<DroneCanceller>(cc);
     if (m.input == InputKind::demo) {
         m.room_drone = std::make_unique<Drone>(m.rate);
@@ -286,8 +296,20 @@ void Engine::stop() {
     m.running.store(false);
     if (m.producer.joinable()) m.producer.join();
     if (m.analysis.joinable()) m.analysis.join();
-    m.in_stream.reset();
-    m.out_stream.reset();
+    if (!m.in_stream && !m.out_stream) return;
+    // A stream whose callbacks have stopped (its device gone, not yet noticed
+    // by supervise) is retired rather than closed here, which could block.
+    const std::uint64_t before = m.callbacks.load();
+    bool flowing = true;
+    if (m.input == InputKind::device) {
+        std::this_thread::sleep_for(std::chrono::milliseconds(60));
+        flowing = m.callbacks.load() != before;
+    }
+    for (auto* s : {&m.in_stream, &m.out_stream}) {
+        if (!*s) continue;
+        if (flowing && (*s)->alive()) s->reset();
+        else system_->retire(std::move(*s));
+    }
 }
 
 // ---------------------------------------------------------------------------
@@ -389,7 +411,18 @@ std::size_t Engine::analyse_available() noexcept {
             // second after the drone starts or moves), the drone may leak
             // through: those frames are reported unvoiced.
             if (m.removal_active && m.canceller->acquiring()) f.f0_hz = 0.0;
+            // What is left of the drone after removal (a real room is never
+            // quite linear and still): quiet, and at the drone's own pitch.
+            if (m.removal_active && f.voiced() && m.canceller->is_residue(f.f0_hz, f.level_dbfs)) f.f0_hz = 0.0;
+            const std::uint64_t notes_before = m.maker->notes_started();
             const pitch::Reading r = m.maker->make(f, idx);
+            if (m.removal_active && !m.input_has_drone) {
+                // Tell drone removal whether the performer sounds, and since when.
+                const double onset = f.t_s - 0.5 * m.span_s;
+                const auto now = static_cast<double>(m.analysed.load(std::memory_order_relaxed));
+                m.canceller->set_voice(f.voiced(), static_cast<std::size_t>(std::max(0.0, now - onset * m.rate)));
+                if (m.maker->notes_started() != notes_before) m.canceller->new_note();
+            }
             const double lat = static_cast<double>(static_cast<std::int64_t>(m.ring->written()) - idx) / m.rate;
             m.latency_s.store(lat, std::memory_order_relaxed);
             if (lat > m.latency_max_s.load(std::memory_order_relaxed)) m.latency_max_s.store(lat, std::memory_order_relaxed);
@@ -522,12 +555,12 @@ void Engine::supervise() {
     if (dead && !m.input_lost) {
         m.input_lost = true;
         m.output_lost = m.want_output;
-        m.in_stream.reset();
-        m.out_stream.reset();
-        m.last_try = now;
         say("input device '" + m.input_spec + "' stopped delivering audio; readings paused" +
             std::string(m.want_output ? ", drone stopped" : "") + "; trying to reopen it every " +
             pitch::format_trimmed(cfg_.reopen_every_s, 1) + " s");
+        if (m.in_stream) system_->retire(std::move(m.in_stream));  // closing a dead stream may never return
+        if (m.out_stream) system_->retire(std::move(m.out_stream));
+        m.last_try = Clock::now();
         return;
     }
     if (!m.input_lost || std::chrono::duration<double>(now - m.last_try).count() < cfg_.reopen_every_s) return;

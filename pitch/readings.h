@@ -47,6 +47,7 @@ public:
     void set_root_hz(double root_hz) noexcept;  // restarts the note (ignored when not 1 Hz .. 20 kHz)
     void reset() noexcept;                      // forget the note in progress
     double root_hz() const noexcept { return cfg_.root_hz; }
+    std::uint64_t notes_started() const noexcept { return notes_; }  // new notes detected without a silence
     const TargetSet& targets() const noexcept { return set_; }
     const ReadingConfig& config() const noexcept { return cfg_; }
 
@@ -60,6 +61,7 @@ private:
     VibratoCentre vibrato_;
     double prev_cents_ = NAN;
     int far_frames_ = 0;
+    std::uint64_t notes_ = 0;
 };
 
 // The partial pair (root partial p, voice partial q) that coincides for

@@ -20,7 +20,6 @@
 
 #include <cmath>
 #include <cstdio>
-#include <cstdlib>
 #include <string>
 
 using namespace beatless;
@@ -53,17 +52,12 @@ void latency(const bench::Context& ctx) {
             // The root a 3/2 under the first note, the second note 5/4 above the first... as intervals of the root:
             // first 3/2, then 15/8 (a major third higher).
             const double root = f_new / (15.0 / 8.0);
-            audio::EngineConfig ec;
-            if (const char* sp = std::getenv("SPAN")) ec.span_s = std::atof(sp);
-            if (const char* fm = std::getenv("FMIN")) ec.f_min_hz = std::atof(fm);
-            test::LiveRig rig(rate, 256, ec);
+            test::LiveRig rig(rate, 256);
             const std::vector<test::Step> steps = {{0.3, 1.0, "3/2", 1.5}, {1.0, 1.8, "15/8", -2.5}};
             rig.voice = test::voice_of(steps, root, rate, 1.9, 0.1);
             pitch::ReadingConfig rc;
             rc.root_hz = root;
-            audio::DroneSettings dd = drone_at(root, audio::Timbre::round, -30.0);
-            dd.on = !std::getenv("NODRONE");
-            rig.open(rc, set_of({"1/1", "9/8", "5/4", "4/3", "3/2", "5/3", "15/8"}), dd,
+            rig.open(rc, set_of({"1/1", "9/8", "5/4", "4/3", "3/2", "5/3", "15/8"}), drone_at(root, audio::Timbre::round, -30.0),
                      audio::RoomConfig{});
             rig.run();
             const auto c1 = test::check_step(rig.readings, steps[1], root, rate, set_of({"1/1", "9/8", "5/4", "4/3", "3/2", "5/3", "15/8"}), 1.0);
