@@ -3,35 +3,38 @@
 #include "audio/synth.h"
 #include "pitch/error.h"
 
+#include <algorithm>
 #include <cmath>
 
 namespace beatless::audio {
 
-namespace {
-
-std::vector<double> normalised(std::vector<double> a) {
+std::size_t timbre_partials_into(Timbre t, std::span<double> out) noexcept {
+    std::size_t n = 0;
+    auto law = [&](std::size_t count, double exponent) {
+        n = std::min(count, out.size());
+        for (std::size_t k = 0; k < n; ++k) out[k] = std::pow(static_cast<double>(k + 1), -exponent);
+    };
+    switch (t) {
+        case Timbre::pure: law(1, 1.0); break;
+        case Timbre::soft: law(6, 2.0); break;
+        case Timbre::round: law(12, 1.5); break;
+        case Timbre::bright: law(32, 1.0); break;
+        case Timbre::hollow:
+            law(16, 1.0);
+            for (std::size_t k = 1; k < n; k += 2) out[k] *= 0.15;  // even harmonics (k+1 even)
+            break;
+    }
     double power = 0.0;
-    for (double v : a) power += v * v;
+    for (std::size_t k = 0; k < n; ++k) power += out[k] * out[k];
     const double scale = power > 0.0 ? 1.0 / std::sqrt(power) : 0.0;  // sum a^2 = 1: RMS of a unit sine
-    for (double& v : a) v *= scale;
-    return a;
+    for (std::size_t k = 0; k < n; ++k) out[k] *= scale;
+    return n;
 }
 
-}  // namespace
-
 std::vector<double> timbre_partials(Timbre t) {
-    switch (t) {
-        case Timbre::pure: return {1.0};
-        case Timbre::soft: return normalised(partials_power_law(6, 2.0));
-        case Timbre::round: return normalised(partials_power_law(12, 1.5));
-        case Timbre::bright: return normalised(partials_power_law(32, 1.0));
-        case Timbre::hollow: {
-            std::vector<double> a = partials_power_law(16, 1.0);
-            for (std::size_t k = 1; k < a.size(); k += 2) a[k] *= 0.15;  // even harmonics (k+1 even)
-            return normalised(a);
-        }
-    }
-    return {1.0};
+    std::vector<double> a(kMaxTimbrePartials);
+    a.resize(timbre_partials_into(t, a));
+    return a;
 }
 
 const std::vector<Timbre>& all_timbres() {

@@ -11,6 +11,8 @@
 //   hollow  odd partials strong, even partials weak (clarinet-like idea)
 #pragma once
 
+#include <cstddef>
+#include <span>
 #include <string>
 #include <string_view>
 #include <vector>
@@ -20,6 +22,10 @@ namespace beatless::audio {
 enum class Timbre { pure, soft, round, bright, hollow };
 
 std::vector<double> timbre_partials(Timbre t);     // a_1, a_2, ... with RMS of a unit sine
+constexpr std::size_t kMaxTimbrePartials = 32;      // the most partials any timbre has
+// The same amplitudes into out (at least kMaxTimbrePartials long); returns the
+// count. Thread: any, including the audio callback. Allocates: no.
+std::size_t timbre_partials_into(Timbre t, std::span<double> out) noexcept;
 Timbre parse_timbre(std::string_view name);         // throws Error listing the names
 std::string_view timbre_name(Timbre t);
 const std::vector<Timbre>& all_timbres();

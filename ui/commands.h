@@ -5,7 +5,9 @@
 
 #include <CLI/CLI.hpp>
 
+#include <cstdint>
 #include <functional>
+#include <optional>
 #include <initializer_list>
 #include <string>
 #include <vector>
@@ -16,6 +18,27 @@ using Runner = std::function<int()>;
 
 void register_ratio(CLI::App& app, Runner& run);
 void register_tone(CLI::App& app, Runner& run);
+void register_devices(CLI::App& app, Runner& run);
+void register_listen(CLI::App& app, Runner& run);
+
+// The screens (cmd_screen.cpp): `beatless` with no subcommand opens the
+// window; `beatless snapshot` renders without one.
+struct ScreenCommand {
+    bool demo = false;                    // the demo performer replaces the microphone
+    std::optional<double> hold_dev_cents; // --hold: the demo holds the chosen target this far off
+    std::uint64_t seed = 7;               // demo performer seed
+    std::string input_device;             // --input (default: the settings' or the system's)
+    std::string output_device;            // --output
+    std::string root;                     // --root (default: the settings')
+    std::optional<double> a4_hz;          // --a4
+    std::string target_set;               // --targets
+    std::string target;                   // --target: a fixed target
+    std::string screen;                   // --screen (default: the last one used)
+    bool drone = false;                   // snapshot --drone
+};
+void add_screen_options(CLI::App& app, ScreenCommand& c);
+int run_screens(const ScreenCommand& c, int frames);  // frames 0 = until the window is closed
+void register_snapshot(CLI::App& app, Runner& run);
 void register_track(CLI::App& app, Runner& run);
 void register_chord(CLI::App& app, Runner& run);
 void register_drift(CLI::App& app, Runner& run);

@@ -18,16 +18,18 @@ constexpr ImWchar kGlyphRanges[] = {
     0x0020, 0x00FF, 0x2010, 0x2027, 0x2190, 0x2193, 0x2212, 0x2212, 0x266D, 0x266F, 0,
 };
 
+enum class FaceSize { body, medium, large };
 struct FaceFile {
     FontFace face;
     const char* file;
-    bool large;
+    FaceSize size;
 };
-constexpr std::array<FaceFile, 4> kFaces{{
-    {FontFace::body, "DejaVuSans.ttf", false},
-    {FontFace::bold, "DejaVuSans-Bold.ttf", false},
-    {FontFace::mono, "DejaVuSansMono.ttf", false},
-    {FontFace::large, "DejaVuSans-Bold.ttf", true},
+constexpr std::array<FaceFile, 5> kFaces{{
+    {FontFace::body, "DejaVuSans.ttf", FaceSize::body},
+    {FontFace::bold, "DejaVuSans-Bold.ttf", FaceSize::body},
+    {FontFace::mono, "DejaVuSansMono.ttf", FaceSize::body},
+    {FontFace::large, "DejaVuSans-Bold.ttf", FaceSize::large},
+    {FontFace::medium, "DejaVuSans-Bold.ttf", FaceSize::medium},
 }};
 
 bool readable(const std::string& path) {
@@ -62,17 +64,38 @@ ImGuiHost::ImGuiHost(const HostConfig& config) : config_(config) {
     io.DisplaySize = ImVec2(static_cast<float>(config_.width_px), static_cast<float>(config_.height_px));
     io.DisplayFramebufferScale = ImVec2(1.0f, 1.0f);
 
-    // Fonts, before the atlas is built. Glyphs 1:1 for nearest sampling.
-    ImFontAtlas& atlas = *io.Fonts;
-    atlas.Flags |= ImFontAtlasFlags_NoBakedLines;  // lines as geometry: their edges are anti-aliased by vertex alpha
+    config_.font_scale = std::clamp(config_.font_scale > 0.0f ? config_.font_scale : 1.0f, 0.5f, 3.0f);
+    io.Fonts->Flags |= ImFontAtlasFlags_NoBakedLines;  // lines as geometry: their edges are anti-aliased by vertex alpha
+    try {
+        build_fonts();
+    } catch (const Error&) {
+        ImGui::DestroyContext(context_);
+        context_ = nullptr;
+        throw;
+    }
     const float scale = config_.dpi_scale;
+
+    ImGuiStyle& style = ImGui::GetStyle();
+    ImGui::StyleColorsDark(&style);
+    style.AntiAliasedLinesUseTex = false;
+    style.Colors[ImGuiCol_WindowBg].w = 1.0f;  // opaque panels: nothing shows through behind text
+    style.ScaleAllSizes(scale);
+}
+
+// Fills the atlas with every face at dpi_scale x font_scale (glyphs 1:1 for
+// nearest sampling) and points the rasterizer's texture at it.
+void ImGuiHost::build_fonts() {
+    ImFontAtlas& atlas = *ImGui::GetIO().Fonts;
+    atlas.Clear();
+    const float scale = config_.dpi_scale * config_.font_scale;
     std::string missing;
     for (const FaceFile& f : kFaces) {
         ImFontConfig cfg;
         cfg.OversampleH = 1;
         cfg.OversampleV = 1;
         cfg.PixelSnapH = true;
-        cfg.SizePixels = std::round((f.large ? config_.large_size_px : config_.body_size_px) * scale);
+        const float size = f.size == FaceSize::large ? config_.large_size_px : f.size == FaceSize::medium ? config_.medium_size_px : config_.body_size_px;
+        cfg.SizePixels = std::round(size * scale);
         const std::string path = config_.font_dir + "/" + f.file;
         const bool loaded = readable(path) && atlas.AddFontFromFileTTF(path.c_str(), cfg.SizePixels, &cfg, kGlyphRanges) != nullptr;
         if (!loaded) {
@@ -81,24 +104,22 @@ ImGuiHost::ImGuiHost(const HostConfig& config) : config_(config) {
         }
     }
     fonts_from_files_ = missing.empty();
-    if (!fonts_from_files_)
+    if (!fonts_from_files_ && !font_warned_) {
+        font_warned_ = true;
         std::fprintf(stderr, "beatless: font %s cannot be read; using ImGui's built-in font (install fonts-dejavu-core)\n", missing.c_str());
+    }
 
     unsigned char* texels = nullptr;
     int w = 0, h = 0;
     atlas.GetTexDataAsAlpha8(&texels, &w, &h);
-    if (texels == nullptr || w <= 0 || h <= 0) {
-        ImGui::DestroyContext(context_);
-        throw Error("font atlas: cannot be built");
-    }
+    if (texels == nullptr || w <= 0 || h <= 0) throw Error("font atlas: cannot be built");
     atlas_ = Texture{texels, w, h, TextureFormat::alpha8};
     atlas.SetTexID(static_cast<ImTextureID>(const_cast<Texture*>(&atlas_)));
+}
 
-    ImGuiStyle& style = ImGui::GetStyle();
-    ImGui::StyleColorsDark(&style);
-    style.AntiAliasedLinesUseTex = false;
-    style.Colors[ImGuiCol_WindowBg].w = 1.0f;  // opaque panels: nothing shows through behind text
-    style.ScaleAllSizes(scale);
+void ImGuiHost::set_font_scale(float font_scale) {
+    if (!(font_scale > 0.0f)) return;
+    pending_font_scale_ = std::clamp(font_scale, 0.5f, 3.0f);
 }
 
 ImGuiHost::~ImGuiHost() {
@@ -114,6 +135,13 @@ ImGuiHost* ImGuiHost::current() {
 
 void ImGuiHost::new_frame(float dt_s, int width_px, int height_px) {
     make_current();
+    if (pending_font_scale_ > 0.0f) {
+        if (pending_font_scale_ != config_.font_scale) {
+            config_.font_scale = pending_font_scale_;
+            build_fonts();
+        }
+        pending_font_scale_ = 0.0f;
+    }
     ImGuiIO& io = ImGui::GetIO();
     io.DeltaTime = std::isfinite(dt_s) ? std::clamp(dt_s, 1e-6f, 1.0f) : 1.0f / 60.0f;
     io.DisplaySize = ImVec2(static_cast<float>(std::max(width_px, 0)), static_cast<float>(std::max(height_px, 0)));

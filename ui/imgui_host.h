@@ -24,7 +24,9 @@ struct HostConfig {
     int height_px = 800;
     float dpi_scale = 1.0f;       // 1 = a 96-dpi screen; multiplies every size below and the style
     float body_size_px = 22.0f;   // body text em height at scale 1 (about 6 mm at 96 dpi: readable at ~1 m, common practice)
+    float medium_size_px = 34.0f; // headings and mid-size readouts (target name, beat rate) at scale 1
     float large_size_px = 64.0f;  // big readouts (the deviation in cents) at scale 1
+    float font_scale = 1.0f;      // the user's font size choice (0.5 .. 3), on top of dpi_scale; fonts only
     std::string font_dir = "/usr/share/fonts/truetype/dejavu";  // fonts-dejavu-core
 };
 
@@ -34,6 +36,7 @@ enum class FontFace {
     bold,   // DejaVuSans-Bold, body_size_px
     mono,   // DejaVuSansMono, body_size_px (aligned figures)
     large,  // DejaVuSans-Bold, large_size_px
+    medium, // DejaVuSans-Bold, medium_size_px
 };
 
 class ImGuiHost {
@@ -55,6 +58,10 @@ public:
     ImGuiContext* context() const { return context_; }
     const HostConfig& config() const { return config_; }
     void make_current() const;
+    // Asks for fonts at a new font_scale; the atlas is rebuilt at the start
+    // of the next new_frame() (never inside a frame). Values outside 0.5 .. 3
+    // are clamped.
+    void set_font_scale(float font_scale);
 
     // The host whose context is current (kept in io.UserData), or null: how
     // code building a frame inside run_window() finds fonts and scale.
@@ -63,8 +70,11 @@ public:
 private:
     HostConfig config_;
     ImGuiContext* context_ = nullptr;
+    void build_fonts();
     Texture atlas_;
     bool fonts_from_files_ = false;
+    bool font_warned_ = false;
+    float pending_font_scale_ = 0.0f;  // > 0: rebuild the atlas before the next frame
 };
 
 // One whole offscreen frame: new_frame, build_frame(), render, clear `out`

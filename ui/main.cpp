@@ -29,21 +29,6 @@ void add_format_option(CLI::App& sub, Format& format, bool with_csv) {
     else add_format_option(sub, format, {Format::text, Format::json});
 }
 
-std::string ordinal(int n) {
-    const int m100 = n % 100;
-    const char* suffix = (m100 >= 11 && m100 <= 13) ? "th" : n % 10 == 1 ? "st" : n % 10 == 2 ? "nd" : n % 10 == 3 ? "rd" : "th";
-    return std::to_string(n) + suffix;
-}
-
-std::string join_args(const std::vector<std::string>& args) {
-    std::string s;
-    for (const auto& a : args) {
-        if (!s.empty()) s += ' ';
-        s += a;
-    }
-    return s;
-}
-
 }  // namespace beatless::ui
 
 int main(int argc, char** argv) {
@@ -55,6 +40,16 @@ int main(int argc, char** argv) {
     ui::Runner run;
     ui::register_ratio(app, run);
     ui::register_tone(app, run);
+    ui::register_devices(app, run);
+    ui::register_listen(app, run);
+    // No subcommand: the Practice screen (DESIGN.md), with these options.
+    ui::ScreenCommand screen;
+    ui::add_screen_options(app, screen);
+    app.add_option("--input", screen.input_device, "Input device: index or a unique part of its name (see beatless devices)");
+    app.add_option("--output", screen.output_device, "Output device for the drone: index or a unique part of its name");
+    int frames = 0;
+    app.add_option("--frames", frames, "Close the window after this many frames (for tests); default: when closed");
+    ui::register_snapshot(app, run);
     ui::register_track(app, run);
     ui::register_chord(app, run);
     ui::register_drift(app, run);
@@ -72,10 +67,7 @@ int main(int argc, char** argv) {
     }
 
     try {
-        if (!run) {
-            std::fputs(app.help().c_str(), stdout);
-            return 0;
-        }
+        if (!run) return ui::run_screens(screen, frames);
         return run();
     } catch (const UsageError& e) {
         std::fprintf(stderr, "beatless: %s\n", e.what());

@@ -1,0 +1,102 @@
+// Drone — the live drone: root, optional fifth (3/2) and octave (2/1), a
+// timbre, a level, start and stop, a reference voice, and an output limiter.
+//
+// Built on HarmonicSynth (audio/synth.h): every change of root, timbre,
+// level, start or stop ramps over ramp_s (50 ms), so nothing clicks. The
+// octave is folded into the root's even partials; the fifth is a second
+// synth at 3/2 of the root. The reference voice sounds the current target
+// above the drone for a moment (soft timbre, 50 ms fades) as an ear guide.
+// The limiter has a fixed ceiling (-6 dBFS peak): a 1.5 ms look-ahead peak
+// detector, gain smoothed over the look-ahead, 200 ms release, and a final
+// clamp so no sample ever exceeds the ceiling. The level starts low (-30 dBFS).
+//
+// Settings arrive from any thread through a lock-free Latest<DroneSettings>;
+// render() picks up the newest at the start of each block.
+#pragma once
+
+#include "audio/snapshot.h"
+#include "audio/synth.h"
+#include "audio/timbre.h"
+
+#include <cstdint>
+#include <span>
+#include <vector>
+
+namespace beatless::audio {
+
+constexpr double kDroneCeilingDbfs = -6.0;     // limiter ceiling, peak dBFS (fixed)
+constexpr double kDroneStartLevelDbfs = -30.0; // level a drone starts at, RMS dBFS
+constexpr double kDroneMinLevelDbfs = -80.0;
+constexpr double kDroneMaxLevelDbfs = -6.0;
+
+struct DroneSettings {
+    bool on = false;                        // sounding (start/stop ramp over 50 ms)
+    double root_hz = 110.0;                 // fundamental of the root (20 Hz .. 2 kHz)
+    bool fifth = false;                     // add 3/2 above the root
+    bool octave = false;                    // add 2/1 above the root
+    Timbre timbre = Timbre::round;
+    double level_dbfs = kDroneStartLevelDbfs;  // RMS of the root tone, -80 .. -6 dBFS
+    double reference_hz = 0.0;              // reference voice pitch (0 = none)
+    double reference_s = 1.5;               // how long it sounds when triggered
+    std::uint32_t reference_count = 0;      // bump to trigger the reference voice once more
+};
+
+// One partial of what the drone plays: frequency and linear peak amplitude
+// (at full level) — what drone removal needs to know about it.
+struct DronePartial {
+    double freq_hz = 0.0;
+    double amplitude = 0.0;
+};
+
+// The partials the drone plays for the given settings at level 1 (peak
+// amplitudes of each sinusoid, merged where the root's and the fifth's
+// coincide), up to max_freq_hz and the band limit of sample_rate_hz.
+// Returns how many were written into out. Allocates: no.
+std::size_t drone_partials(const DroneSettings& s, double sample_rate_hz, double max_freq_hz,
+                           std::span<DronePartial> out) noexcept;
+
+// Linear gain of the drone (the synths' level) for a level in RMS dBFS.
+double drone_gain(double level_dbfs) noexcept;
+
+// Checks user values (root range, level range); throws Error naming the value.
+void check_drone_settings(const DroneSettings& s);
+
+class Drone {
+public:
+    explicit Drone(double sample_rate_hz);  // allocates; throws Error on a bad rate
+
+    // Any thread: hands new settings to the renderer (latest wins).
+    // Allocates: no. Locks: no.
+    void set(const DroneSettings& s) noexcept { pending_.publish(s); }
+
+    // Renders mono into out (overwrites): drone + reference voice, limited.
+    // Thread: audio callback (one thread). Allocates: no. Locks: no.
+    void render(std::span<float> out) noexcept;
+
+    // State as the renderer last applied it. Thread: the rendering thread.
+    const DroneSettings& applied() const noexcept { return applied_; }
+    double limiter_gain() const noexcept { return lim_gain_; }  // 1 when not limiting
+    double sample_rate_hz() const noexcept { return rate_hz_; }
+
+private:
+    void apply(const DroneSettings& s, bool first) noexcept;
+    void limit(std::span<float> out) noexcept;
+
+    double rate_hz_;
+    Latest<DroneSettings> pending_;
+    DroneSettings applied_{};
+    bool have_applied_ = false;
+    HarmonicSynth root_, fifth_, reference_;
+    std::vector<double> amps_;         // scratch: root partials (+ octave)
+    std::int64_t reference_left_ = 0;  // samples until the reference voice fades out
+    // Limiter state.
+    std::vector<float> delay_;         // look-ahead line
+    std::size_t delay_pos_ = 0;
+    float peak_ = 0.0f;               // held peak of the look-ahead line
+    std::size_t peak_age_ = 0;         // samples since it entered
+    double lim_gain_ = 1.0;
+    double attack_coef_ = 0.0, release_coef_ = 0.0;
+    float ceiling_ = 0.5f;
+};
+
+}  // namespace beatless::audio

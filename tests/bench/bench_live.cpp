@@ -1,0 +1,172 @@
+// beatless-bench section "live": the live path on a fake duplex device.
+//
+// (1) Latency from a pitch step to a settled reading, counted in samples:
+//     a voice steps between two notes a just interval apart (the second
+//     over f0 from 100 to 440 Hz) over the engine's own drone heard through
+//     the simulated room; "settled" = on the new note's target and within
+//     1 cent (also 5 cents) of the truth from then on. Blocks of 256 frames,
+//     5 ms hop; the tracker's own delay (YinTracker::delay_s) is inside it
+//     and printed too. The bar: within 40 ms for f0 >= 100 Hz.
+// (2) CPU time of the analysis thread (ring -> drone removal -> YIN ->
+//     readings) per second of audio, as thread CPU time, with and without
+//     drone removal, and of the callbacks (capture + drone rendering).
+//     The bar: under 2% of one core.
+// (3) Drone removal accuracy: voice at 7/5, 10/7, 11/8 under a bright drone
+//     6 and 12 dB louder at the microphone; worst |dev - truth| in cents.
+#include "tests/bench/bench.h"
+
+#include "audio/drone.h"
+#include "tests/live_rig.h"
+
+#include <cmath>
+#include <cstdio>
+#include <string>
+
+using namespace beatless;
+
+namespace {
+
+pitch::TargetSet set_of(std::initializer_list<const char*> ratios) {
+    pitch::TargetSet s;
+    for (const char* r : ratios) s.targets.push_back({pitch::parse_interval(r), ""});
+    return s;
+}
+
+audio::DroneSettings drone_at(double root, audio::Timbre t, double level_dbfs) {
+    audio::DroneSettings d;
+    d.on = true;
+    d.root_hz = root;
+    d.timbre = t;
+    d.level_dbfs = level_dbfs;
+    return d;
+}
+
+void latency(const bench::Context& ctx) {
+    std::printf("latency from a step to a settled reading (block 256 frames, hop 5 ms, drone on, removal on)\n");
+    std::printf("%8s %9s %10s %12s %12s %12s\n", "rate Hz", "f0 Hz", "step", "settle 1c ms", "settle 5c ms", "tracker ms");
+    const double f0s[] = {100.0, 150.0, 220.0, 330.0, 440.0};
+    double worst_5c = 0.0, worst_1c = 0.0;
+    for (double rate : {44100.0, 48000.0}) {
+        for (double f_new : f0s) {
+            if (ctx.quick && f_new != 220.0) continue;
+            // The root a 3/2 under the first note, the second note 5/4 above the first... as intervals of the root:
+            // first 3/2, then 15/8 (a major third higher).
+            const double root = f_new / (15.0 / 8.0);
+            test::LiveRig rig(rate, 256);
+            const std::vector<test::Step> steps = {{0.3, 1.0, "3/2", 1.5}, {1.0, 1.8, "15/8", -2.5}};
+            rig.voice = test::voice_of(steps, root, rate, 1.9, 0.1);
+            pitch::ReadingConfig rc;
+            rc.root_hz = root;
+            rig.open(rc, set_of({"1/1", "9/8", "5/4", "4/3", "3/2", "5/3", "15/8"}), drone_at(root, audio::Timbre::round, -30.0),
+                     audio::RoomConfig{});
+            rig.run();
+            const auto c1 = test::check_step(rig.readings, steps[1], root, rate, set_of({"1/1", "9/8", "5/4", "4/3", "3/2", "5/3", "15/8"}), 1.0);
+            const auto c5 = test::check_step(rig.readings, steps[1], root, rate, set_of({"1/1", "9/8", "5/4", "4/3", "3/2", "5/3", "15/8"}), 5.0);
+            const double ms1 = 1000.0 * static_cast<double>(c1.settle_samples) / rate;
+            const double ms5 = 1000.0 * static_cast<double>(c5.settle_samples) / rate;
+            worst_1c = std::max(worst_1c, ms1);
+            worst_5c = std::max(worst_5c, ms5);
+            std::printf("%8.0f %9.1f %10s %12.1f %12.1f %12.1f\n", rate, f_new, "3/2->15/8", ms1, ms5, 1000.0 * rig.engine.status().tracker_delay_s);
+        }
+    }
+    std::printf("worst settle: %.1f ms (1 cent), %.1f ms (5 cents); bar 40 ms\n\n", worst_1c, worst_5c);
+}
+
+void cpu(const bench::Context& ctx) {
+    std::printf("CPU per second of audio (thread CPU time), 48 kHz, block 256, voice with vibrato over a drone\n");
+    std::printf("%-34s %14s %12s\n", "path", "ms per s audio", "% of a core");
+    const double rate = 48000.0, root = 110.0;
+    const double secs = ctx.quick ? 3.0 : 20.0;
+    for (int variant = 0; variant < 3; ++variant) {
+        audio::EngineConfig ec;
+        ec.drone_removal = variant != 0;
+        const audio::Timbre timbre = variant == 2 ? audio::Timbre::bright : audio::Timbre::round;
+        test::LiveRig rig(rate, 256, ec);
+        std::vector<testsig::Note> notes(1);
+        notes[0].start_s = 0.2;
+        notes[0].end_s = secs - 0.2;
+        notes[0].centre_hz = root * 1.4;
+        notes[0].vib_rate_hz = 5.5;
+        notes[0].vib_depth_cents = 25.0;
+        notes[0].level = 0.1;
+        rig.voice.assign(static_cast<std::size_t>(secs * rate), 0.0f);
+        testsig::add_voice(rig.voice, rate, notes, testsig::rolloff(12));
+        pitch::ReadingConfig rc;
+        rc.root_hz = root;
+        audio::DroneSettings d = drone_at(root, timbre, -24.0);
+        d.fifth = variant == 2;
+        rig.open(rc, set_of({"7/5", "10/7", "11/8", "3/2"}), d, audio::RoomConfig{});
+        std::vector<float> in(rig.block), out(2 * rig.block), spk(rig.block, 0.0f);
+        double cb_s = 0.0, an_s = 0.0;
+        for (std::size_t b = 0; (b + 1) * rig.block <= rig.voice.size(); ++b) {
+            std::copy_n(rig.voice.begin() + static_cast<std::ptrdiff_t>(b * rig.block), rig.block, in.begin());
+            rig.room->process_add(spk, in);
+            double t0 = bench::thread_cpu_s();
+            rig.sys.drive(in, out, 1, 2);
+            double t1 = bench::thread_cpu_s();
+            rig.engine.analyse_available();
+            double t2 = bench::thread_cpu_s();
+            cb_s += t1 - t0;
+            an_s += t2 - t1;
+            for (std::size_t i = 0; i < rig.block; ++i) spk[i] = out[2 * i];
+        }
+        const char* names[] = {"analysis, no drone removal", "analysis + removal (round drone)", "analysis + removal (bright+fifth)"};
+        std::printf("%-34s %14.2f %11.2f%%\n", names[variant], 1000.0 * an_s / secs, 100.0 * an_s / secs);
+        if (variant == 2) std::printf("%-34s %14.2f %11.2f%%\n", "callbacks (capture + drone render)", 1000.0 * cb_s / secs, 100.0 * cb_s / secs);
+    }
+    std::printf("bar: full path under 2%% of one core\n\n");
+}
+
+void removal(const bench::Context& ctx) {
+    std::printf("drone removal: worst |dev - truth| over the steady note (48 kHz, bright drone, room 7 ms / 0.8 / 3 kHz)\n");
+    std::printf("%8s %10s %14s %16s\n", "voice", "drone dB", "removal c", "no removal c");
+    const double rate = 48000.0, root = 110.0;
+    for (double louder_db : {6.0, 12.0}) {
+        for (const char* ratio : {"7/5", "10/7", "11/8"}) {
+            if (ctx.quick && louder_db > 6.0) continue;
+            double worst[2] = {0, 0};
+            for (int k = 0; k < 2; ++k) {
+                audio::EngineConfig ec;
+                ec.drone_removal = k == 0;
+                test::LiveRig rig(rate, 256, ec);
+                const test::Step st{0.5, 2.5, ratio, 2.2};
+                rig.voice = test::voice_of({st}, root, rate, 2.6, 0.1);
+                // Level the voice under the drone at the microphone.
+                audio::DroneSettings d = drone_at(root, audio::Timbre::bright, -20.0);
+                audio::Drone probe(rate);
+                probe.set(d);
+                audio::SimulatedRoom room(audio::RoomConfig{});
+                std::vector<float> spk(static_cast<std::size_t>(rate)), mic(spk.size(), 0.0f);
+                probe.render(spk);
+                room.process_add(spk, mic);
+                double ed = 0, ev = 0;
+                for (std::size_t i = spk.size() / 4; i < spk.size(); ++i) ed += double(mic[i]) * mic[i];
+                for (std::size_t i = static_cast<std::size_t>(0.6 * rate); i < static_cast<std::size_t>(2.4 * rate); ++i)
+                    ev += double(rig.voice[i]) * rig.voice[i];
+                const double drone_rms = std::sqrt(ed / (0.75 * rate)), voice_rms = std::sqrt(ev / (1.8 * rate));
+                const double scale = drone_rms * std::pow(10.0, -louder_db / 20.0) / voice_rms;
+                for (float& v : rig.voice) v = static_cast<float>(v * scale);
+                pitch::ReadingConfig rc;
+                rc.root_hz = root;
+                rig.open(rc, set_of({ratio}), d, audio::RoomConfig{});
+                rig.run();
+                for (const auto& s : rig.readings) {
+                    if (s.r.t_s < 0.8 || s.r.t_s > 2.4) continue;
+                    worst[k] = std::max(worst[k], s.r.voiced() ? std::fabs(s.r.dev_cents - st.dev_cents) : 9999.0);
+                }
+            }
+            std::printf("%8s %10.0f %14.3f %16.1f\n", ratio, louder_db, worst[0], worst[1]);
+        }
+    }
+    std::printf("(9999 = a frame reported unvoiced)\n");
+}
+
+void run(bench::Context& ctx) {
+    latency(ctx);
+    cpu(ctx);
+    removal(ctx);
+}
+
+}  // namespace
+
+BEATLESS_BENCH_SECTION("live", "live path: step latency, CPU of the full analysis, drone removal accuracy", run);

@@ -1,0 +1,179 @@
+// `beatless listen`, `beatless devices` and `beatless --demo` as a user runs
+// them. The recordings are made by `beatless tone` (a drone and a second
+// voice at an exact ratio and detuning), so the truth is known: cents are
+// 1200 log2 (Ellis 1885); the beat of the coinciding partials of p/q is
+// |q f_voice - p f_root| (Helmholtz 1863, ch. VIII), computed here.
+#include "audio/soundfile.h"
+#include "tests/cli.h"
+#include "tests/mix_signals.h"
+
+#include <doctest/doctest.h>
+
+#include <cmath>
+#include <sstream>
+#include <string>
+#include <vector>
+
+using beatless::test::run_program;
+using beatless::test::TempDir;
+
+namespace {
+
+double num_after(const std::string& line, const std::string& key) {
+    const auto k = line.find("\"" + key + "\": ");
+    if (k == std::string::npos) return NAN;
+    const std::string rest = line.substr(k + key.size() + 4);
+    if (rest.rfind("null", 0) == 0) return NAN;
+    return std::stod(rest);
+}
+
+std::vector<std::string> lines_of(const std::string& s) {
+    std::vector<std::string> out;
+    std::istringstream in(s);
+    for (std::string l; std::getline(in, l);) out.push_back(l);
+    return out;
+}
+
+// JSON lines with t inside [from, to].
+std::vector<std::string> between(const std::vector<std::string>& lines, double from, double to) {
+    std::vector<std::string> out;
+    for (const auto& l : lines) {
+        const double t = num_after(l, "t");
+        if (t >= from && t <= to) out.push_back(l);
+    }
+    return out;
+}
+
+}  // namespace
+
+TEST_CASE("listen --input-file --fast: a recorded drone at the root is removed and the voice is read") {
+    TempDir dir;
+    const std::string wav = dir.file("take.wav");
+    // Drone A2 (110 Hz), voice at 7/5 + 3 cents, the drone 6 dB louder.
+    const auto tone = run_program({"tone", "--root", "A2", "--ratio", "7/5", "--detune-cents", "3", "--seconds", "3", "--timbre",
+                                   "bright", "--level-db", "-14", "--voice-db", "-20", "--out", wav});
+    REQUIRE(tone.exit_code == 0);
+    const auto r = run_program({"listen", "--input-file", wav, "--fast", "--root", "A2", "--target", "7/5", "--drone"});
+    REQUIRE_MESSAGE(r.exit_code == 0, r.err);
+    const auto all = lines_of(r.out);
+    REQUIRE(all.size() > 500);
+    const auto steady = between(all, 0.5, 2.5);
+    REQUIRE(steady.size() > 350);
+    const double f_root = 110.0, f_voice = 110.0 * 1.4 * std::exp2(3.0 / 1200.0);
+    int good = 0;
+    for (const auto& l : steady) {
+        CAPTURE(l);
+        CHECK(l.find("\"target\": \"7/5\"") != std::string::npos);
+        CHECK(l.find("\"beat_partials\": [7, 5]") != std::string::npos);
+        // Within what a 1 cent error of the voice allows: 5 f_voice (2^(1/1200) - 1).
+        CHECK(std::fabs(num_after(l, "beat_hz") - std::fabs(5 * f_voice - 7 * f_root)) <= 5 * f_voice * (std::exp2(1 / 1200.0) - 1));
+        if (std::fabs(num_after(l, "dev_cents") - 3.0) <= 1.0) ++good;
+    }
+    CHECK(good == static_cast<int>(steady.size()));
+    CHECK(r.err.find("analysing") != std::string::npos);
+    CHECK(r.err.find("ring overflows 0") != std::string::npos);
+
+    // The same file without removal: the plain tracker is pulled by the drone.
+    const auto plain = run_program({"listen", "--input-file", wav, "--fast", "--root", "A2", "--target", "7/5"});
+    REQUIRE(plain.exit_code == 0);
+    int plain_good = 0;
+    const auto plain_steady = between(lines_of(plain.out), 0.5, 2.5);
+    for (const auto& l : plain_steady)
+        if (std::fabs(num_after(l, "dev_cents") - 3.0) <= 1.0) ++plain_good;
+    CHECK(plain_good < static_cast<int>(plain_steady.size()) / 2);
+}
+
+TEST_CASE("listen JSON lines: every key present, null where unvoiced, --seconds honoured") {
+    TempDir dir;
+    const std::string wav = dir.file("short.wav");
+    // 0.3 s of silence, then a 220 Hz harmonic tone.
+    std::vector<float> x(48000, 0.0f);
+    beatless::testsig::add_tone(x, 48000.0, 220.0, 0.3, 1.0, 0.2, beatless::testsig::rolloff(10));
+    beatless::audio::write_wav(wav, x, 48000.0);
+    const auto r = run_program({"listen", "--input-file", wav, "--fast", "--root", "A3", "--targets", "5-limit", "--seconds", "0.8"});
+    REQUIRE(r.exit_code == 0);
+    const auto all = lines_of(r.out);
+    REQUIRE(all.size() > 100);
+    bool saw_null = false, saw_voiced = false;
+    for (const auto& l : all) {
+        for (const char* k : {"t", "f0_hz", "confidence", "ratio", "target", "target_name", "dev_cents", "centre_dev_cents", "beat_hz",
+                              "beat_partials"})
+            CHECK(l.find(std::string("\"") + k + "\": ") != std::string::npos);
+        CHECK(num_after(l, "t") <= 0.8);
+        if (l.find("\"f0_hz\": null") != std::string::npos) {
+            saw_null = true;
+            CHECK(l.find("\"dev_cents\": null") != std::string::npos);
+            CHECK(l.find("\"beat_partials\": null") != std::string::npos);
+        } else {
+            saw_voiced = true;
+        }
+    }
+    CHECK(saw_voiced);
+    CHECK(saw_null);  // the silence
+    // 220 Hz against A3 = 220 Hz (ISO 16): the unison, 0 cents.
+    for (const auto& l : between(all, 0.4, 0.7)) {
+        CHECK(l.find("\"target\": \"1/1\"") != std::string::npos);
+        CHECK(std::fabs(num_after(l, "dev_cents")) < 0.5);
+    }
+}
+
+TEST_CASE("listen --demo runs the performer through the engine in real time") {
+    const auto r = run_program({"listen", "--demo", "--seconds", "1.5", "--targets", "tritones"}, {"BEATLESS_HOME=/nonexistent-beatless"});
+    REQUIRE_MESSAGE(r.exit_code == 0, r.err);
+    const auto all = lines_of(r.out);
+    // One reading per 5 ms hop.
+    CHECK(all.size() >= 250);
+    CHECK(all.size() <= 320);
+    int voiced = 0;
+    for (const auto& l : all)
+        if (l.find("\"f0_hz\": null") == std::string::npos) ++voiced;
+    CHECK(voiced > 100);
+    CHECK(r.err.find("listening to the demo performer") != std::string::npos);
+}
+
+// `beatless --demo` now opens the Practice screen (tests/test_snapshot.cpp);
+// the drone caution of `listen` still appears on first use only.
+TEST_CASE("listen --demo --drone: the drone caution appears on first use only") {
+    TempDir home;
+    const auto r = run_program({"listen", "--demo", "--drone", "--seconds", "0.5"}, {"BEATLESS_HOME=" + home.path()});
+    REQUIRE_MESSAGE(r.exit_code == 0, r.err);
+    CHECK(r.err.find("caution") != std::string::npos);
+    const auto again = run_program({"listen", "--demo", "--drone", "--seconds", "0.5"}, {"BEATLESS_HOME=" + home.path()});
+    CHECK(again.err.find("caution") == std::string::npos);
+}
+
+TEST_CASE("listen: bad choices give one line and the right exit code") {
+    struct Case {
+        std::vector<std::string> args;
+        int code;
+        std::string says;
+    } cases[] = {
+        {{"listen", "--demo", "--input-file", "x.wav"}, 2, "choose one input"},
+        {{"listen", "--input-file", "/nonexistent/take.wav", "--fast"}, 1, "/nonexistent/take.wav"},
+        {{"listen", "--demo", "--fast"}, 2, "--fast works with --input-file only"},
+        {{"listen", "--demo", "--root", "H9"}, 1, "'H9'"},
+        {{"listen", "--demo", "--a4", "500"}, 1, "500"},
+        {{"listen", "--demo", "--targets", "no-such-set"}, 1, "no-such-set"},
+        {{"listen", "--demo", "--drone", "--level-db", "0"}, 1, "-6 dBFS"},
+        {{"listen", "--input", "no-such-device-anywhere"}, 1, "device"},
+    };
+    for (const auto& c : cases) {
+        CAPTURE(c.args.back());
+        const auto r = run_program(c.args, {"JACK_NO_START_SERVER=1"});
+        CHECK(r.exit_code == c.code);
+        CHECK(r.out.empty());
+        CHECK(beatless::test::line_count(r.err) == 1);
+        CHECK(r.err.find(c.says) != std::string::npos);
+    }
+}
+
+TEST_CASE("devices prints a table or JSON, and says plainly when there is none") {
+    const auto r = run_program({"devices", "--format", "json"}, {"JACK_NO_START_SERVER=1"});
+    REQUIRE(r.exit_code == 0);
+    CHECK(r.out.rfind("{\"devices\": [", 0) == 0);
+    if (r.out.find("\"index\"") == std::string::npos) {
+        CHECK(r.err == "beatless: no audio devices found (use --demo for the built-in performer)\n");
+    } else {
+        CHECK(r.out.find("\"host_api\"") != std::string::npos);
+    }
+}

@@ -1,0 +1,169 @@
+// Real-time rules (DESIGN.md): the audio callbacks allocate nothing and take
+// no lock, and the analysis allocates nothing per frame once set up.
+//
+// This test binary interposes the C allocator (malloc, calloc, realloc,
+// aligned_alloc, posix_memalign — operator new goes through malloc in
+// libstdc++) and the pthread lock calls (mutex lock/trylock, rwlock
+// read/write lock), counting calls made while the calling thread is marked
+// "watched". The watched sections are the device callbacks (capture and
+// playback, with drone changes applied inside them) and the analysis steps
+// after warm-up. glibc exports __libc_malloc and friends for exactly this use.
+// Under the sanitizers (which interpose the allocator themselves) it is skipped.
+#include "tests/live_rig.h"
+#include "tests/mix_signals.h"
+
+#include <doctest/doctest.h>
+
+#include <atomic>
+#include <cmath>
+#include <cstdlib>
+#include <dlfcn.h>
+#include <pthread.h>
+
+namespace {
+thread_local bool t_watched = false;
+std::atomic<long> g_allocs{0}, g_locks{0};
+}  // namespace
+
+#ifndef BEATLESS_SANITIZED
+template <class F>
+F real(const char* name) {
+    return reinterpret_cast<F>(dlsym(RTLD_NEXT, name));
+}
+
+extern "C" {
+void* __libc_malloc(size_t);
+void* __libc_calloc(size_t, size_t);
+void* __libc_realloc(void*, size_t);
+void* __libc_memalign(size_t, size_t);
+
+void* malloc(size_t n) {
+    if (t_watched) g_allocs.fetch_add(1);
+    return __libc_malloc(n);
+}
+void* calloc(size_t a, size_t b) {
+    if (t_watched) g_allocs.fetch_add(1);
+    return __libc_calloc(a, b);
+}
+void* realloc(void* p, size_t n) {
+    if (t_watched) g_allocs.fetch_add(1);
+    return __libc_realloc(p, n);
+}
+void* aligned_alloc(size_t al, size_t n) {
+    if (t_watched) g_allocs.fetch_add(1);
+    return __libc_memalign(al, n);
+}
+int posix_memalign(void** out, size_t al, size_t n) {
+    if (t_watched) g_allocs.fetch_add(1);
+    *out = __libc_memalign(al, n);
+    return *out ? 0 : 12;
+}
+int pthread_mutex_lock(pthread_mutex_t* m) {
+    if (t_watched) g_locks.fetch_add(1);
+    static auto f = real<int (*)(pthread_mutex_t*)>("pthread_mutex_lock");
+    return f(m);
+}
+int pthread_mutex_trylock(pthread_mutex_t* m) {
+    if (t_watched) g_locks.fetch_add(1);
+    static auto f = real<int (*)(pthread_mutex_t*)>("pthread_mutex_trylock");
+    return f(m);
+}
+int pthread_rwlock_rdlock(pthread_rwlock_t* l) {
+    if (t_watched) g_locks.fetch_add(1);
+    static auto f = real<int (*)(pthread_rwlock_t*)>("pthread_rwlock_rdlock");
+    return f(l);
+}
+int pthread_rwlock_wrlock(pthread_rwlock_t* l) {
+    if (t_watched) g_locks.fetch_add(1);
+    static auto f = real<int (*)(pthread_rwlock_t*)>("pthread_rwlock_wrlock");
+    return f(l);
+}
+}
+#endif
+
+using namespace beatless;
+
+TEST_CASE("the counting hooks see an allocation and a lock (so a zero below means something)") {
+#ifdef BEATLESS_SANITIZED
+    MESSAGE("skipped under the sanitizers, which interpose the allocator themselves");
+#else
+    pthread_mutex_t m = PTHREAD_MUTEX_INITIALIZER;
+    const long a0 = g_allocs.load(), l0 = g_locks.load();
+    t_watched = true;
+    void* volatile p = std::malloc(100);
+    auto* q = new std::vector<int>(10);
+    pthread_mutex_lock(&m);
+    pthread_mutex_unlock(&m);
+    t_watched = false;
+    std::free(p);
+    delete q;
+    CHECK(g_allocs.load() - a0 >= 2);
+    CHECK(g_locks.load() - l0 == 1);
+#endif
+}
+
+TEST_CASE("callbacks allocate nothing and take no lock; analysis allocates nothing per frame") {
+#ifdef BEATLESS_SANITIZED
+    MESSAGE("skipped under the sanitizers, which interpose the allocator themselves");
+#else
+    const double rate = 48000.0;
+    test::LiveRig rig(rate, 256);
+    std::vector<testsig::Note> notes(1);
+    notes[0].start_s = 0.2;
+    notes[0].end_s = 3.8;
+    notes[0].centre_hz = 154.0;
+    notes[0].vib_rate_hz = 5.5;
+    notes[0].vib_depth_cents = 25.0;
+    notes[0].level = 0.1;
+    rig.voice.assign(static_cast<std::size_t>(4.0 * rate), 0.0f);
+    testsig::add_voice(rig.voice, rate, notes, testsig::rolloff(12));
+    pitch::ReadingConfig rc;
+    rc.root_hz = 110.0;
+    pitch::TargetSet set;
+    for (const char* r : {"7/5", "10/7", "11/8", "3/2"}) set.targets.push_back({pitch::parse_interval(r), ""});
+    audio::DroneSettings d;
+    d.on = true;
+    rig.open(rc, set, d, audio::RoomConfig{});
+
+    std::vector<float> in(rig.block), out(2 * rig.block), spk(rig.block, 0.0f);
+    long cb_allocs = 0, cb_locks = 0, an_allocs = 0, an_locks = 0;
+    int changes = 0;
+    for (std::size_t b = 0; (b + 1) * rig.block <= rig.voice.size(); ++b) {
+        // Control changes between blocks: the callback applies them.
+        if (b % 40 == 20) {
+            audio::DroneSettings s = d;
+            s.root_hz = (b / 40) % 2 ? 110.0 : 123.47;
+            s.timbre = (b / 40) % 2 ? audio::Timbre::bright : audio::Timbre::hollow;
+            s.fifth = (b / 80) % 2 == 1;
+            s.octave = (b / 120) % 2 == 1;
+            s.reference_hz = 154.0;
+            s.reference_count = static_cast<std::uint32_t>(b);
+            rig.engine.set_drone(s);
+            ++changes;
+        }
+        std::copy_n(rig.voice.begin() + static_cast<std::ptrdiff_t>(b * rig.block), rig.block, in.begin());
+        rig.room->process_add(spk, in);
+        long a0 = g_allocs.load(), l0 = g_locks.load();
+        t_watched = true;
+        rig.sys.drive(in, out, 1, 2);  // capture and playback callbacks
+        t_watched = false;
+        cb_allocs += g_allocs.load() - a0;
+        cb_locks += g_locks.load() - l0;
+        for (std::size_t i = 0; i < rig.block; ++i) spk[i] = out[2 * i];
+        const bool warm = b * rig.block > static_cast<std::size_t>(0.5 * rate);
+        a0 = g_allocs.load();
+        l0 = g_locks.load();
+        t_watched = warm;
+        rig.engine.analyse_available();
+        t_watched = false;
+        an_allocs += g_allocs.load() - a0;
+        an_locks += g_locks.load() - l0;
+    }
+    CHECK(changes >= 15);
+    CHECK(rig.engine.status().readings > 600);
+    CHECK(cb_allocs == 0);
+    CHECK(cb_locks == 0);
+    CHECK(an_allocs == 0);
+    CHECK(an_locks == 0);
+#endif
+}

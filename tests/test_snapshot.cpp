@@ -1,0 +1,334 @@
+// Snapshot tests: `beatless snapshot` renders the Practice screen with the
+// demo performer held at a known deviation; the PNG it writes is read back
+// with stb_image (libstb-dev, an independent decoder) and checked by pixels
+// only, never by the program's internals:
+//   - the lane is found by its in-tune window (a colour only the lane uses)
+//     and its band edges, which the screen documents as -50 and +50 cents;
+//     the marker (the one solid run of the state's colour across the band)
+//     must stand where cents -> pixels puts the held deviation, in the
+//     state's colour (Okabe & Ito 2008 orange for sharp, sky blue for flat,
+//     bluish green for in tune);
+//   - the beat cue's text is rendered offscreen with the same font and
+//     colours and searched pixel-exactly in the cue panel; the expected rate
+//     comes from Helmholtz's formula for the coinciding partials, p f_root
+//     |2^(d/1200) - 1| (On the Sensations of Tone, ch. VIII), not from the
+//     program.
+// Also: the first-run caution, the no-display message, bad sizes, and a
+// malformed settings file (one warning naming file and line, still renders).
+#include "tests/cli.h"
+#include "ui/imgui_host.h"
+#include "ui/palette.h"
+#include "ui/raster.h"
+
+#include <doctest/doctest.h>
+#include <stb_image.h>
+
+#include <cmath>
+#include <cstdint>
+#include <cstdio>
+#include <filesystem>
+#include <fstream>
+#include <optional>
+#include <string>
+#include <vector>
+
+using namespace beatless;
+using beatless::test::run_program;
+using beatless::test::TempDir;
+
+namespace {
+
+// ---------------------------------------------------------------------------
+// Images
+// ---------------------------------------------------------------------------
+
+struct Image {
+    int w = 0, h = 0;
+    std::vector<std::uint32_t> px;  // IM_COL32 packing, like ui/raster.h
+    std::uint32_t at(int x, int y) const { return px[static_cast<std::size_t>(y) * static_cast<std::size_t>(w) + static_cast<std::size_t>(x)]; }
+};
+
+Image read_png(const std::string& path) {
+    Image img;
+    int n = 0;
+    unsigned char* data = stbi_load(path.c_str(), &img.w, &img.h, &n, 4);
+    REQUIRE_MESSAGE(data != nullptr, path << ": " << stbi_failure_reason());
+    img.px.resize(static_cast<std::size_t>(img.w) * static_cast<std::size_t>(img.h));
+    for (std::size_t i = 0; i < img.px.size(); ++i)
+        img.px[i] = ui::rgba(data[4 * i], data[4 * i + 1], data[4 * i + 2], data[4 * i + 3]);
+    stbi_image_free(data);
+    return img;
+}
+
+struct Box {
+    int x0 = 1 << 30, y0 = 1 << 30, x1 = -1, y1 = -1;  // inclusive
+    bool empty() const { return x1 < x0; }
+    void add(int x, int y) {
+        x0 = std::min(x0, x);
+        y0 = std::min(y0, y);
+        x1 = std::max(x1, x);
+        y1 = std::max(y1, y);
+    }
+};
+
+Box find_colour(const Image& img, std::uint32_t colour, int y_from = 0, int y_to = -1) {
+    Box b;
+    if (y_to < 0) y_to = img.h;
+    for (int y = y_from; y < y_to; ++y)
+        for (int x = 0; x < img.w; ++x)
+            if (img.at(x, y) == colour) b.add(x, y);
+    return b;
+}
+
+// Text rendered offscreen exactly as the screens draw it: the face at the
+// host's size, whole-pixel position, on a given background. Returns the
+// tight box of pixels that differ from the background.
+Image render_text(const std::string& text, ui::FontFace face, std::uint32_t colour, std::uint32_t background, float dpi_scale) {
+    ui::HostConfig hc;
+    hc.width_px = 1600;
+    hc.height_px = 300;
+    hc.dpi_scale = dpi_scale;
+    ui::ImGuiHost host(hc);
+    ui::Rasterizer raster;
+    ui::PixelBuffer buf;
+    ui::render_offscreen(host, raster, buf, 1.0f / 60.0f, [&] {
+        ImFont* f = host.font(face);
+        ImGui::GetBackgroundDrawList()->AddText(f, f->FontSize, ImVec2(20, 20), colour, text.c_str());
+    }, background);
+    Box b;
+    for (int y = 0; y < buf.height_px; ++y)
+        for (int x = 0; x < buf.width_px; ++x)
+            if (buf.at(x, y) != background) b.add(x, y);
+    REQUIRE(!b.empty());
+    Image t;
+    t.w = b.x1 - b.x0 + 1;
+    t.h = b.y1 - b.y0 + 1;
+    for (int y = b.y0; y <= b.y1; ++y)
+        for (int x = b.x0; x <= b.x1; ++x) t.px.push_back(buf.at(x, y));
+    return t;
+}
+
+// Every top-left position inside `region` where `tpl` matches pixel for pixel.
+std::vector<std::pair<int, int>> find_exact(const Image& img, const Image& tpl, const Box& region) {
+    std::vector<std::pair<int, int>> hits;
+    for (int y = std::max(0, region.y0); y + tpl.h <= std::min(img.h, region.y1 + 1); ++y)
+        for (int x = std::max(0, region.x0); x + tpl.w <= std::min(img.w, region.x1 + 1); ++x) {
+            bool ok = true;
+            for (int ty = 0; ty < tpl.h && ok; ++ty)
+                for (int tx = 0; tx < tpl.w; ++tx)
+                    if (img.at(x + tx, y + ty) != tpl.at(tx, ty)) {
+                        ok = false;
+                        break;
+                    }
+            if (ok) hits.emplace_back(x, y);
+        }
+    return hits;
+}
+
+std::string snapshot(const TempDir& home, const std::string& args, const std::string& name) {
+    const std::string out = home.file(name);
+    const auto r = run_program("snapshot " + args + " --out " + out, {"BEATLESS_HOME=" + home.path()});
+    REQUIRE_MESSAGE(r.exit_code == 0, r.err);
+    CHECK(r.out.find(out) != std::string::npos);
+    return out;
+}
+
+// ---------------------------------------------------------------------------
+// The lane: find it, read the marker
+// ---------------------------------------------------------------------------
+
+struct Lane {
+    int row = 0;           // a row across the band, clear of ticks, trail and captions
+    double left_x = 0;     // pixel column of -50 cents (the band's first pixel)
+    double right_x = 0;    // of +50 cents (one past the band's last pixel)
+    double x_of(double cents) const { return 0.5 * (left_x + right_x) + cents * (right_x - left_x) / 100.0; }
+};
+
+Lane find_lane(const Image& img) {
+    // The in-tune window is drawn only in the lane.
+    const Box zone = find_colour(img, ui::palette::kInTuneZone);
+    REQUIRE_MESSAGE(!zone.empty(), "no in-tune window in the picture");
+    Lane lane;
+    lane.row = zone.y0 + static_cast<int>(0.4 * (zone.y1 - zone.y0));
+    // Walk out from the window along the row while the band's colour (or a
+    // marker crossing it) continues.
+    int x = zone.x0;
+    while (x > 0 && img.at(x - 1, lane.row) != ui::palette::kBackground) --x;
+    lane.left_x = x;
+    x = zone.x1;
+    while (x + 1 < img.w && img.at(x + 1, lane.row) != ui::palette::kBackground) ++x;
+    lane.right_x = x + 1;
+    CHECK(img.at(static_cast<int>(lane.left_x), lane.row) == ui::palette::kPanelRaised);
+    CHECK(img.at(static_cast<int>(lane.right_x) - 1, lane.row) == ui::palette::kPanelRaised);
+    return lane;
+}
+
+// The marker: the columns of the row that carry the given colour exactly.
+std::optional<double> marker_centre(const Image& img, const Lane& lane, std::uint32_t colour, int& width) {
+    int first = -1, last = -1, count = 0;
+    for (int x = static_cast<int>(lane.left_x); x < static_cast<int>(lane.right_x); ++x)
+        if (img.at(x, lane.row) == colour) {
+            if (first < 0) first = x;
+            last = x;
+            ++count;
+        }
+    width = count;
+    if (first < 0) return std::nullopt;
+    CHECK_MESSAGE(count == last - first + 1, "the marker's colour appears in more than one place on the lane");
+    return 0.5 * (first + last + 1);  // the run's centre, in pixel-edge coordinates
+}
+
+}  // namespace
+
+TEST_CASE("snapshot: the marker stands at the held deviation on the lane, in the state's colour") {
+    TempDir home;
+    struct Case {
+        double hold_cents;
+        std::uint32_t colour;
+        const char* state;
+        const char* scale;
+        const char* size;
+    } cases[] = {
+        {20.0, ui::palette::kSharp, "sharp", "1", "1280x800"},
+        {-12.0, ui::palette::kFlat, "flat", "1", "1280x800"},
+        {2.0, ui::palette::kInTune, "in tune", "1", "1280x800"},
+        {-31.0, ui::palette::kFlat, "flat, 2x DPI", "2", "2560x1600"},
+        {37.0, ui::palette::kSharp, "sharp, 1920x1080", "1", "1920x1080"},
+    };
+    int n = 0;
+    for (const Case& c : cases) {
+        CAPTURE(c.state);
+        char args[256];
+        std::snprintf(args, sizeof args, "--demo --hold %g --targets tritones --target 7/5 --root A3 --seconds 3 --scale %s --size %s",
+                      c.hold_cents, c.scale, c.size);
+        const Image img = read_png(snapshot(home, args, "lane" + std::to_string(n++) + ".png"));
+        const Lane lane = find_lane(img);
+        const double px_per_cent = (lane.right_x - lane.left_x) / 100.0;
+        CHECK(px_per_cent > 8.0);  // wide enough to read a cent or two
+        int width = 0;
+        const auto x = marker_centre(img, lane, c.colour, width);
+        REQUIRE_MESSAGE(x.has_value(), "no marker of the state's colour on the lane");
+        CHECK(width >= 3);
+        // The tracker's reading may differ from the held value by a fraction
+        // of a cent; allow 0.4 cents plus a pixel of rounding.
+        CHECK(std::fabs(*x - lane.x_of(c.hold_cents)) <= 0.4 * px_per_cent + 1.0);
+    }
+}
+
+TEST_CASE("snapshot: the beat cue shows the rate of the coinciding partials and names them") {
+    TempDir home;
+    // 7/5 over A3 (220 Hz): the 7th partial of the root against the 5th of
+    // the voice, beating at 7 x 220 x (2^(d/1200) - 1) Hz (Helmholtz).
+    struct Case {
+        double hold_cents;
+        const char* ratio;
+        int p;  // root partial
+        int q;  // voice partial
+        const char* p_text;
+        const char* q_text;
+    } cases[] = {
+        {2.0, "7/5", 7, 5, "7th", "5th"},
+        {4.0, "3/2", 3, 2, "3rd", "2nd"},
+    };
+    for (const Case& c : cases) {
+        CAPTURE(c.ratio);
+        const double root_hz = 220.0;
+        const double beat_hz = c.p * root_hz * (std::exp2(c.hold_cents / 1200.0) - 1.0);
+        char expected[32];
+        std::snprintf(expected, sizeof expected, "%.1f Hz", std::round(beat_hz * 10.0) / 10.0);
+        CAPTURE(expected);
+        char args[256];
+        std::snprintf(args, sizeof args, "--demo --hold %g --target %s --root A3 --seconds 3", c.hold_cents, c.ratio);
+        const Image img = read_png(snapshot(home, args, std::string("beat-") + c.p_text + ".png"));
+        // The cue panel: the right part of the screen, below the lane.
+        Box right;
+        right.x0 = img.w * 2 / 3;
+        right.x1 = img.w - 1;
+        right.y0 = img.h / 3;
+        right.y1 = img.h - 1;
+        const Image value = render_text(expected, ui::FontFace::large, ui::palette::kText, ui::palette::kPanel, 1.0f);
+        const auto hits = find_exact(img, value, right);
+        CHECK_MESSAGE(hits.size() == 1, "'" << expected << "' found " << hits.size() << " times in the beat cue");
+        const std::string pair = std::string(c.p_text) + " partial of the root";
+        const Image pair_img = render_text(pair, ui::FontFace::body, ui::palette::kText, ui::palette::kPanel, 1.0f);
+        CHECK(find_exact(img, pair_img, right).size() == 1);
+        const std::string voice = std::string("against the ") + c.q_text + " of the voice";
+        const Image voice_img = render_text(voice, ui::FontFace::body, ui::palette::kText, ui::palette::kPanel, 1.0f);
+        CHECK(find_exact(img, voice_img, right).size() == 1);
+    }
+}
+
+TEST_CASE("snapshot: the hearing caution shows on first run only, and the screen still renders") {
+    TempDir home;
+    const Image first = read_png(snapshot(home, "--demo --first-run --seconds 1", "first.png"));
+    const Image later = read_png(snapshot(home, "--demo --seconds 1", "later.png"));
+    const Image caution = render_text("Hearing caution", ui::FontFace::bold, ui::palette::kText, ui::palette::kPanel, 1.0f);
+    Box all;
+    all.x0 = 0;
+    all.y0 = 0;
+    all.x1 = first.w - 1;
+    all.y1 = first.h / 3;
+    CHECK(find_exact(first, caution, all).size() == 1);
+    CHECK(find_exact(later, caution, all).empty());
+    // The banner has the warning colour (vermillion) as its border; the later picture has none up there.
+    CHECK(!find_colour(first, ui::palette::kWarning, 0, first.h / 3).empty());
+    CHECK(find_colour(later, ui::palette::kWarning, 0, later.h / 3).empty());
+}
+
+TEST_CASE("snapshot: bad values give one line naming the value, exit 1 or 2") {
+    TempDir home;
+    struct Case {
+        std::string args;
+        int code;
+        std::string says;
+    } cases[] = {
+        {"--size 10x10 --out " + home.file("x.png"), 1, "--size 10x10"},
+        {"--size big --out " + home.file("x.png"), 1, "--size big"},
+        {"--scale 9 --out " + home.file("x.png"), 1, "--scale 9"},
+        {"--screen drills --out " + home.file("x.png"), 2, "--screen drills"},
+        {"--hold 5 --out " + home.file("x.png"), 2, "--hold works with --demo only"},
+        {"--demo --target 9/0 --out " + home.file("x.png"), 1, "9/0"},
+        {"--out /nonexistent-dir/x.png", 1, "/nonexistent-dir/x.png"},
+    };
+    for (const Case& c : cases) {
+        CAPTURE(c.args);
+        const auto r = run_program("snapshot " + c.args, {"BEATLESS_HOME=" + home.path()});
+        CHECK(r.exit_code == c.code);
+        CHECK(r.err.find(c.says) != std::string::npos);
+        CHECK(test::line_count(r.err) == 1);
+    }
+}
+
+TEST_CASE("a malformed settings file: one warning naming the file and line; the picture is still made") {
+    TempDir home;
+    std::filesystem::create_directories(home.path() + "/config");
+    const std::string file = home.path() + "/config/settings.toml";
+    {
+        std::ofstream f(file);
+        f << "kind = \"settings\"\n\n[drone]\nlevel_dbfs = \"loud\"\n";
+    }
+    const auto r = run_program("snapshot --out " + home.file("s.png"), {"BEATLESS_HOME=" + home.path()});
+    CHECK(r.exit_code == 0);
+    CHECK(r.err.find(file + ":4:") != std::string::npos);
+    CHECK(r.err.find("level_dbfs") != std::string::npos);
+    CHECK(test::line_count(r.err) == 1);
+    {
+        std::ofstream f(file);
+        f << "kind = \"settings\"\nscreen = [unclosed\n";
+    }
+    const auto r2 = run_program("snapshot --out " + home.file("s2.png"), {"BEATLESS_HOME=" + home.path()});
+    CHECK(r2.exit_code == 0);
+    CHECK(r2.err.find(file + ":2:") != std::string::npos);
+    CHECK(r2.err.find("default settings") != std::string::npos);
+}
+
+TEST_CASE("beatless with no display says so in one line, points to snapshot and listen --demo, exit 1") {
+    TempDir home;
+    const auto r = run_program(std::vector<std::string>{"--demo"}, {"BEATLESS_HOME=" + home.path(), "DISPLAY=", "WAYLAND_DISPLAY="});
+    CHECK(r.exit_code == 1);
+    CHECK(test::line_count(r.err) == 1);
+    CHECK(r.err.find("no display") != std::string::npos);
+    CHECK(r.err.find("beatless snapshot") != std::string::npos);
+    CHECK(r.err.find("beatless listen --demo") != std::string::npos);
+    CHECK(r.out.empty());
+}

@@ -1,0 +1,91 @@
+// Screens — the framework every screen plugs into, and the deck that runs them.
+//
+// A screen is one class in its own file (ui/screen_<name>.cpp) implementing
+// Screen; make_screens() lists the screens that are built, in tab order.
+// Adding a screen (Drills, Ensemble, Review) is a new file and one line in
+// make_screens(). The deck draws what every screen shares: the tab bar, the
+// hearing-caution banner, the status bar (input, level and clipping,
+// overflows, latency), messages, the help overlay and the global keys
+// (drone, targets, root, screens), then asks the current screen to fill the
+// area between them. Everything is built with Dear ImGui and the colours of
+// ui/palette.h; sizes follow the body font, so the DPI and font scales
+// carry through.
+#pragma once
+
+#include "ui/app_state.h"
+#include "ui/screen_id.h"
+
+#include <imgui.h>
+
+#include <memory>
+#include <span>
+#include <string_view>
+#include <vector>
+
+namespace beatless::ui {
+
+struct ScreenArea {
+    ImVec2 pos;    // top-left, pixels
+    ImVec2 size;   // width, height in pixels
+};
+
+struct KeyHelp {
+    std::string_view keys;  // "Space"
+    std::string_view what;  // "start or stop the drone"
+};
+
+class Screen {
+public:
+    virtual ~Screen() = default;
+    virtual ScreenId id() const = 0;
+    // Builds the screen into `area` (between ImGui::NewFrame and Render).
+    virtual void build(AppState& app, const ScreenArea& area, double dt_s) = 0;
+    // Keys of this screen only, for the help overlay (the deck lists the global ones).
+    virtual std::span<const KeyHelp> keys() const { return {}; }
+};
+
+std::unique_ptr<Screen> make_practice_screen();
+std::unique_ptr<Screen> make_settings_screen();
+
+// The built screens in tab order.
+std::vector<std::unique_ptr<Screen>> make_screens();
+// Keys of the built screens, for --screen checks and messages: "practice, settings".
+std::vector<ScreenId> built_screens();
+std::string built_screen_keys();
+
+class ScreenDeck {
+public:
+    explicit ScreenDeck(AppState& app);
+    ~ScreenDeck();
+
+    void show(ScreenId id);                 // ignored when that screen is not built
+    ScreenId current() const { return screens_[current_]->id(); }
+    bool help_open() const { return help_; }
+    void set_help(bool open) { help_ = open; }
+
+    // Builds one whole frame: keys, style, bars, the current screen, overlays.
+    void build_frame(double dt_s);
+
+private:
+    void apply_style();
+    void handle_keys();
+    void tab_bar(float height);
+    void caution_banner(const ImVec2& pos, float width, float& height_out);
+    void status_bar(const ImVec2& pos, float width, float height);
+    void messages(const ImVec2& bottom_left, float width);
+    void help_overlay();
+
+    AppState& app_;
+    std::vector<std::unique_ptr<Screen>> screens_;
+    std::size_t current_ = 0;
+    bool help_ = false;
+};
+
+// The hearing caution's text (the banner and the Settings screen).
+const char* caution_text();
+
+// Height of the caution banner and widths of shared widgets follow this unit:
+// the body font's pixel size.
+float ui_unit();
+
+}  // namespace beatless::ui

@@ -1,0 +1,69 @@
+// Settings — what the screens remember between runs, as a TOML file.
+//
+// settings.toml in the config folder (ui/paths.h) holds our own keys:
+//   kind = "settings"; screen; caution_acknowledged; a4_hz; font_scale;
+//   in_tune_cents; input_device; output_device; [drone] root, timbre,
+//   level_dbfs, fifth, octave; [targets] set, choice ("nearest" | "fixed"),
+//   fixed. A missing file gives the defaults silently. A malformed file
+//   never stops the program: a syntax error gives the defaults, a bad value
+//   gives that value's default, and in both cases one warning line names
+//   the file and line ("settings.toml:7: 'level_dbfs' ..."). Saving writes
+//   a temporary file and renames it over the old one.
+#pragma once
+
+#include "audio/drone.h"
+#include "audio/timbre.h"
+#include "ui/paths.h"
+#include "ui/screen_id.h"
+
+#include <filesystem>
+#include <string>
+#include <string_view>
+
+namespace beatless::ui {
+
+enum class TargetChoice {
+    nearest,  // the target nearest the voice (the reading's choice)
+    fixed,    // one target of the set, chosen by the performer
+};
+
+struct Settings {
+    ScreenId screen = ScreenId::practice;        // last screen (Settings itself is not remembered)
+    bool caution_acknowledged = false;           // the hearing caution was confirmed on screen
+    double a4_hz = 440.0;                        // 12-TET reference, 400 .. 480 Hz (default ISO 16)
+    float font_scale = 1.0f;                     // text size on top of the display's DPI scale, 0.5 .. 3 (default 1)
+    double in_tune_cents = 5.0;                  // |deviation| counted as in tune, 1 .. 25 cents (default 5, common practice)
+    std::string input_device;                    // index or unique name part; "" = the default input
+    std::string output_device;                   // the same for the drone's output
+    // [drone]
+    std::string root = "A2";                     // note name ("A2") or Hz ("110"); default A2 = 110 Hz at A4 440
+    audio::Timbre timbre = audio::Timbre::round; // default round
+    double level_dbfs = audio::kDroneStartLevelDbfs;  // RMS dBFS, -80 .. -6 (default -30)
+    bool fifth = false;                          // add 3/2 (default off)
+    bool octave = false;                         // add 2/1 (default off)
+    // [targets]
+    std::string target_set = "7-limit";          // built-in name or a .toml path
+    TargetChoice choice = TargetChoice::nearest;
+    std::string fixed_target;                    // interval text of the fixed target ("7/5"); "" = the set's first
+
+    friend bool operator==(const Settings&, const Settings&) = default;
+};
+
+struct LoadedSettings {
+    Settings settings;
+    std::string warning;  // one line naming file and line, or empty
+};
+
+std::filesystem::path settings_path(const EnvLookup& env = process_env());  // config / "settings.toml"
+
+// Reads the file; never throws for its content (see above).
+LoadedSettings load_settings(const std::filesystem::path& file);
+LoadedSettings parse_settings(std::string_view text, const std::string& source);
+
+std::string settings_toml(const Settings& s);  // the file's text
+// Writes the file (creating the folder). Throws Error naming the file.
+void save_settings(const std::filesystem::path& file, const Settings& s);
+
+std::string_view target_choice_key(TargetChoice c);  // "nearest", "fixed"
+
+}  // namespace beatless::ui
