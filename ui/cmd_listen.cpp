@@ -265,7 +265,7 @@ int run_live(const ListenOptions& o, Printing printing) {
         engine.start();
         std::fprintf(stderr, "beatless: listening to %s at %s Hz; root %s Hz, targets %s%s\n", what.c_str(),
                      pitch::format_trimmed(engine.sample_rate_hz(), 0).c_str(), pitch::format_trimmed(root_hz, 3).c_str(),
-                     targets.id.c_str(), o.drone ? ", drone on" : "");
+                     targets.id.c_str(), !o.drone ? "" : o.input_file.empty() ? ", drone on" : ", the recording's drone removed");
         if (device_input) {
             const audio::StreamInfo si = engine.input_info();
             std::fprintf(stderr, "beatless: %s\n", stream_text("input", si.input_name, si, si.input_latency_s).c_str());
