@@ -6,8 +6,9 @@
 //
 // One JSON object per reading on stdout: {"t", "f0_hz", "confidence",
 // "ratio", "target", "target_name", "dev_cents", "centre_dev_cents",
-// "beat_hz", "beat_partials": [root partial, voice partial]}, null where
-// unvoiced. Diagnostics and a summary (overflows, underflows, latency) go to
+// "beat_hz", "beat_partials": [root partial, voice partial], "heard_beat_hz",
+// "heard_partials"}, null where unvoiced (heard_*: the pair a listener hears,
+// which differs from the coinciding pair for targets such as 729/512). Diagnostics and a summary (overflows, underflows, latency) go to
 // stderr. (`beatless --demo` with no subcommand opens the Practice screen.)
 // The drone is off unless --drone is given; with a file or the demo,
 // --drone means the input holds a drone at the root (the demo's microphone
@@ -100,9 +101,14 @@ std::string json_line(const pitch::Reading& r, const TargetText& tt) {
         j.key("beat_hz").value(r.beat_hz, 3);
         if (r.beat_partial_root > 0) j.key("beat_partials").begin_array().value(r.beat_partial_root).value(r.beat_partial_voice).end_array();
         else j.key("beat_partials").null();
+        j.key("heard_beat_hz").value(r.heard_beat_hz, 3);
+        if (r.heard_partial_root > 0) j.key("heard_partials").begin_array().value(r.heard_partial_root).value(r.heard_partial_voice).end_array();
+        else j.key("heard_partials").null();
     } else {
         j.key("f0_hz").null().key("confidence").value(r.confidence, 3);
-        for (const char* k : {"ratio", "target", "target_name", "dev_cents", "centre_dev_cents", "beat_hz", "beat_partials"}) j.key(k).null();
+        for (const char* k : {"ratio", "target", "target_name", "dev_cents", "centre_dev_cents", "beat_hz", "beat_partials",
+                              "heard_beat_hz", "heard_partials"})
+            j.key(k).null();
     }
     j.end_object();
     return j.str();

@@ -392,10 +392,21 @@ void PracticeScreen::beat_cue(AppState& app, ImDrawList* dl, float x0, float y0,
     draw_text(dl, FontFace::large, ImVec2(x, y), have ? palette::kText : palette::kTextDim, value);
     y += font_px(FontFace::large) + std::round(0.3f * u);
     if (have) {
-        const std::string a = ordinal(r.beat_partial_root) + " partial of the root";
-        const std::string b = "against the " + ordinal(r.beat_partial_voice) + " of the voice";
+        const bool other = heard_pair_differs(r);
+        const int pr = other ? r.heard_partial_root : r.beat_partial_root;
+        const int pv = other ? r.heard_partial_voice : r.beat_partial_voice;
+        const std::string a = ordinal(pr) + " partial of the root";
+        const std::string b = "against the " + ordinal(pv) + " of the voice";
         draw_text(dl, FontFace::body, ImVec2(x, y), palette::kText, a);
         draw_text(dl, FontFace::body, ImVec2(x, y + std::round(1.2f * u)), palette::kText, b);
+        if (other) {
+            // The target's own pair (e.g. 729th against 512th) is above
+            // hearing: say what this nearby pair does when the note is right.
+            char line[96];
+            std::snprintf(line, sizeof line, "in tune it beats %s", beat_text(r.heard_beat_at_target_hz).c_str());
+            draw_text(dl, FontFace::body, ImVec2(x, y + std::round(2.4f * u)), palette::kTextDim, line);
+            y += std::round(1.2f * u);
+        }
     }
     y += std::round(2.8f * u);
 
@@ -408,7 +419,10 @@ void PracticeScreen::beat_cue(AppState& app, ImDrawList* dl, float x0, float y0,
     switch (cue) {
         case BeatCue::none: caption1 = "no beat to show", caption2 = "sing or play a note"; break;
         case BeatCue::still: caption1 = "still: nearly pure", caption2 = "hold it there"; break;
-        case BeatCue::pulse: caption1 = "pulses once per beat", caption2 = "slower is closer"; break;
+        case BeatCue::pulse:
+            caption1 = "pulses once per beat";
+            caption2 = heard_pair_differs(r) ? "match the in-tune rate" : "slower is closer";
+            break;
         case BeatCue::fast: caption1 = "too fast to follow", caption2 = "listen for roughness"; break;
     }
     const float caption_w = std::max(text_size(FontFace::body, caption1).x, text_size(FontFace::body, caption2).x);
