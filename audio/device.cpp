@@ -210,19 +210,19 @@ public:
         if (rq.output_device >= 0 && !dout) throw Error("output device " + std::to_string(rq.output_device) + ": no such device");
         if (!din && !dout) throw Error("audio stream: neither an input nor an output was asked for");
         const std::string name = din ? std::string("'") + din->name + "'" : std::string("'") + dout->name + "'";
+        auto fill = [](PaStreamParameters& p, int device, int want, int max, double latency_s) {
+            p.device = device;
+            p.channelCount = std::max(1, std::min(want, max));
+            p.sampleFormat = paFloat32;
+            p.suggestedLatency = latency_s;
+        };
         if (din) {
-            in.device = rq.input_device;
-            in.channelCount = std::max(1, std::min(rq.input_channels, din->maxInputChannels));
-            in.sampleFormat = paFloat32;
-            in.suggestedLatency = din->defaultLowInputLatency;
+            fill(in, rq.input_device, rq.input_channels, din->maxInputChannels, din->defaultLowInputLatency);
             s->info_.input_channels = in.channelCount;
             s->info_.input_name = din->name;
         }
         if (dout) {
-            out.device = rq.output_device;
-            out.channelCount = std::max(1, std::min(rq.output_channels, dout->maxOutputChannels));
-            out.sampleFormat = paFloat32;
-            out.suggestedLatency = dout->defaultLowOutputLatency;
+            fill(out, rq.output_device, rq.output_channels, dout->maxOutputChannels, dout->defaultLowOutputLatency);
             s->info_.output_channels = out.channelCount;
             s->info_.output_name = dout->name;
         }

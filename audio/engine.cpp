@@ -136,7 +136,7 @@ Engine::~Engine() {
     delete impl_->retired_maker.exchange(nullptr);
 }
 
-StreamInfo Engine::open_input_device(std::string_view spec) {
+void Engine::open_input_device(std::string_view spec) {
     if (!system_) throw Error(std::string("no audio system for an input device (") + kDemoHint + ")");
     Impl& m = *impl_;
     const auto devs = system_->devices();
@@ -147,10 +147,9 @@ StreamInfo Engine::open_input_device(std::string_view spec) {
     for (const auto& d : devs)
         if (d.index == in) m.input_spec = d.name;
     m.input = InputKind::device;
-    return StreamInfo{};  // opened by start(), which knows whether the output shares the device
 }
 
-StreamInfo Engine::open_output_device(std::string_view spec) {
+void Engine::open_output_device(std::string_view spec) {
     if (!system_) throw Error("no audio system for an output device");
     Impl& m = *impl_;
     const auto devs = system_->devices();
@@ -160,7 +159,6 @@ StreamInfo Engine::open_output_device(std::string_view spec) {
     for (const auto& d : devs)
         if (d.index == out) m.output_spec = d.name;
     m.want_output = true;
-    return StreamInfo{};
 }
 
 void Engine::use_demo(DemoConfig demo) {

@@ -87,8 +87,11 @@ public:
     Engine& operator=(const Engine&) = delete;
 
     // --- Setup (control thread, before start) -------------------------------
-    StreamInfo open_input_device(std::string_view spec);    // index or unique name part; "" = default
-    StreamInfo open_output_device(std::string_view spec);   // the drone plays here
+    // Choose devices (index or unique name part; "" = the default); they open
+    // in start(), one duplex stream when both are the same device, and
+    // input_info()/output_info() then report the negotiated rate and block.
+    void open_input_device(std::string_view spec);
+    void open_output_device(std::string_view spec);         // the drone plays here
     void use_demo(DemoConfig demo);                          // the built-in performer is the microphone
     double use_file(const std::string& path);                // returns the file's rate; throws Error naming it
     void set_input_has_drone(bool on);                       // file: the recording holds a drone at the root

@@ -5,8 +5,9 @@
 // reader swaps the middle slot into its front slot when it is fresh. Neither
 // side ever waits for the other, and the reader always sees a whole value.
 // History<T, N> keeps the last N values in a circular array guarded per slot
-// by a sequence counter (a seqlock: odd while being written); readers copy
-// and retry a slot that changed under them, writers never wait.
+// by a sequence number (a seqlock: 2n+1 while value n is written, 2n+2 when
+// done); readers copy and drop a slot that changed under them or holds
+// another value than the one asked for; the writer never waits.
 // T must be trivially copyable (Reading is: plain numbers, no pointers).
 //
 // Thread: publish() from one writer, read() from one reader (Latest) or any
@@ -65,28 +66,27 @@ public:
     void publish(const T& v) noexcept {
         const std::uint64_t n = count_.load(std::memory_order_relaxed);
         Slot& s = slots_[n % N];
-        const std::uint64_t seq = s.seq.load(std::memory_order_relaxed);
-        s.seq.store(seq + 1, std::memory_order_relaxed);  // odd: being written
+        s.seq.store(2 * n + 1, std::memory_order_relaxed);  // odd: value n being written
         std::atomic_thread_fence(std::memory_order_release);
         copy_words(s.words, &v);
-        s.seq.store(seq + 2, std::memory_order_release);
+        s.seq.store(2 * n + 2, std::memory_order_release);  // value n complete
         count_.store(n + 1, std::memory_order_release);
     }
 
     // Copies the newest values, oldest first, into out (at most out.size(), at
-    // most N); returns how many. Values overwritten during the copy are skipped.
+    // most N - 1); returns how many. A slot overwritten during the copy (the
+    // writer lapped the reader) fails its sequence check and is skipped.
     std::size_t read(std::span<T> out) const noexcept {
         const std::uint64_t n = count_.load(std::memory_order_acquire);
         const std::uint64_t want = std::min<std::uint64_t>({n, static_cast<std::uint64_t>(out.size()), static_cast<std::uint64_t>(N - 1)});
         std::size_t got = 0;
         for (std::uint64_t i = n - want; i < n; ++i) {
             const Slot& s = slots_[i % N];
-            const std::uint64_t before = s.seq.load(std::memory_order_acquire);
-            if (before & 1u) continue;
+            if (s.seq.load(std::memory_order_acquire) != 2 * i + 2) continue;  // not value i (any more)
             T tmp;
             copy_words(&tmp, s.words);
             std::atomic_thread_fence(std::memory_order_acquire);
-            if (s.seq.load(std::memory_order_relaxed) != before) continue;
+            if (s.seq.load(std::memory_order_relaxed) != 2 * i + 2) continue;
             out[got++] = tmp;
         }
         return got;

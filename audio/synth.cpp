@@ -72,6 +72,10 @@ void HarmonicSynth::set_partials(std::span<const double> amplitudes, bool immedi
         amp_step_[k] = (a - amp_now_[k]) / static_cast<double>(ramp_len_samples_);
     }
     amp_left_ = immediate ? 0 : ramp_len_samples_;
+    // Partials past the last one sounding now or after the ramp cost nothing.
+    top_ = 0;
+    for (std::size_t k = 0; k < amp_target_.size(); ++k)
+        if (amp_target_[k] != 0.0 || amp_now_[k] != 0.0) top_ = k + 1;
 }
 
 void HarmonicSynth::set_phases(std::span<const double> phases_rad) noexcept {
@@ -103,7 +107,7 @@ bool HarmonicSynth::ramping() const noexcept { return f0_left_ > 0 || gain_left_
 
 void HarmonicSynth::render_add(std::span<float> out) noexcept {
     const double fs = cfg_.sample_rate_hz;
-    const std::size_t np = amp_now_.size();
+    const std::size_t np = top_;
     for (float& sample : out) {
         // Advance the ramps by one sample.
         if (f0_left_ > 0) {
@@ -115,7 +119,7 @@ void HarmonicSynth::render_add(std::span<float> out) noexcept {
             if (--gain_left_ == 0) gain_now_ = gain_target_;
         }
         if (amp_left_ > 0) {
-            for (std::size_t k = 0; k < np; ++k) amp_now_[k] += amp_step_[k];
+            for (std::size_t k = 0; k < top_; ++k) amp_now_[k] += amp_step_[k];
             if (--amp_left_ == 0) std::copy(amp_target_.begin(), amp_target_.end(), amp_now_.begin());
         }
         double f = f0_now_;

@@ -57,6 +57,7 @@ private:
     std::size_t gain_left_ = 0;
     std::vector<double> amp_now_, amp_target_, amp_step_;
     std::size_t amp_left_ = 0;
+    std::size_t top_ = 0;          // partials 1..top_ may sound (the rest are zero)
     std::vector<double> cos_theta_, sin_theta_;
 };
 

@@ -55,4 +55,23 @@ Ratio nearest_simple_ratio(double cents, int max_term) {
     return best;
 }
 
+Ratio beating_ratio(const Interval& target, int octaves, int max_term) noexcept {
+    std::int64_t num = 1, den = 1;
+    if (target.is_ratio()) {
+        num = target.ratio().num;
+        den = target.ratio().den;
+    } else {
+        const double oct = std::floor(target.cents() / 1200.0);
+        const Ratio r = nearest_simple_ratio(target.cents() - 1200.0 * oct, max_term);
+        num = r.num;
+        den = r.den;
+        octaves += static_cast<int>(oct);
+    }
+    constexpr std::int64_t kLimit = std::int64_t{1} << 40;
+    for (int k = 0; k < octaves && num < kLimit; ++k) num *= 2;
+    for (int k = 0; k > octaves && den < kLimit; --k) den *= 2;
+    const std::int64_t g = std::gcd(num, den);
+    return Ratio{num / g, den / g};
+}
+
 }  // namespace beatless::pitch

@@ -10,6 +10,7 @@
 // p * f_a * |2^(d/1200) - 1| Hz.
 #pragma once
 
+#include "pitch/interval.h"
 #include "pitch/ratio.h"
 
 #include <vector>
@@ -37,5 +38,11 @@ double beat_rate_at(double f_a_hz, const Ratio& target, double dev_cents);
 // The simple ratio (terms <= max_term) nearest to `cents`, ties to the lower
 // product p*q: which partials beat against an irrational interval such as 600c.
 Ratio nearest_simple_ratio(double cents, int max_term = 11);
+
+// The just ratio whose coinciding partials beat near a target moved by
+// `octaves`: the target's own ratio, or for a cents target (600c) the
+// nearest simple ratio within the octave (terms <= max_term), moved by the
+// target's own octaves. Shifts stop short of 2^40 rather than overflow.
+Ratio beating_ratio(const Interval& target, int octaves, int max_term = 10) noexcept;
 
 }  // namespace beatless::pitch

@@ -29,6 +29,15 @@ struct Reading {
     double beat_hz = NAN;              // beat rate of the coinciding partial pair
     int beat_partial_root = -1;        // which harmonic of the root beats ...
     int beat_partial_voice = -1;       // ... against which harmonic of the voice
+    // The pair a listener hears beating: the coinciding pair when its partial
+    // numbers are at most 16; for targets of high terms (45/32, 729/512),
+    // whose coinciding partials lie above hearing, the pair of the nearest
+    // simple ratio (terms <= 10), which beats at a steady rate even when the
+    // target is exactly in tune (heard_beat_at_target_hz).
+    double heard_beat_hz = NAN;        // rate of that pair now
+    double heard_beat_at_target_hz = NAN;  // its rate with the voice exactly on target (0 for simple targets)
+    int heard_partial_root = -1;
+    int heard_partial_voice = -1;
     double et_offset_cents = NAN;      // cents from the nearest 12-TET note (A4 reference)
     double level_dbfs = -INFINITY;     // input RMS level of the frame
     bool clipped = false;              // input reached full scale in this frame

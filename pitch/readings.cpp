@@ -4,6 +4,7 @@
 #include "pitch/error.h"
 #include "pitch/notes.h"
 
+#include <algorithm>
 #include <cmath>
 #include <string>
 
@@ -11,6 +12,9 @@ namespace beatless::pitch {
 
 namespace {
 constexpr std::int64_t kMaxTerm = std::int64_t{1} << 40;  // partial numbers beyond this are meaningless
+// Coinciding partials above the 16th are too weak and high to be heard
+// beating in a voice or string tone (common practice).
+constexpr std::int64_t kMaxHeardPartial = 16;
 
 // Moves the pair (root p, voice q) by whole octaves of the voice.
 bool shift_pair(std::int64_t& p, std::int64_t& q, int octaves) noexcept {
@@ -46,6 +50,13 @@ ReadingMaker::ReadingMaker(const ReadingConfig& config, TargetSet targets)
     for (const Target& t : set_.targets) {
         BeatRatio b;
         coinciding_partials(t.interval, 0, b.p, b.q);
+        b.hp = b.p;
+        b.hq = b.q;
+        if (std::max(b.p, b.q) > kMaxHeardPartial) {
+            const Ratio h = nearest_simple_ratio(t.interval.cents(), 10);
+            b.hp = h.num;
+            b.hq = h.den;
+        }
         beat_.push_back(b);
     }
 }
@@ -115,6 +126,14 @@ Reading ReadingMaker::make(const PitchFrame& f, std::int64_t sample_index) noexc
         r.beat_partial_root = static_cast<int>(std::min<std::int64_t>(p, 1 << 30));
         r.beat_partial_voice = static_cast<int>(std::min<std::int64_t>(q, 1 << 30));
         r.beat_hz = std::fabs(static_cast<double>(q) * f.f0_hz - static_cast<double>(p) * cfg_.root_hz);
+    }
+    std::int64_t hp = beat_[m.index].hp, hq = beat_[m.index].hq;
+    if (shift_pair(hp, hq, m.octaves)) {
+        r.heard_partial_root = static_cast<int>(std::min<std::int64_t>(hp, 1 << 30));
+        r.heard_partial_voice = static_cast<int>(std::min<std::int64_t>(hq, 1 << 30));
+        r.heard_beat_hz = std::fabs(static_cast<double>(hq) * f.f0_hz - static_cast<double>(hp) * cfg_.root_hz);
+        const double on_target_hz = cfg_.root_hz * std::exp2(m.target_cents / 1200.0);
+        r.heard_beat_at_target_hz = std::fabs(static_cast<double>(hq) * on_target_hz - static_cast<double>(hp) * cfg_.root_hz);
     }
     const double midi = 69.0 + 12.0 * std::log2(f.f0_hz / cfg_.a4_hz);
     r.et_offset_cents = 100.0 * (midi - std::round(midi));

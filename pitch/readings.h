@@ -8,7 +8,7 @@
 // cents, + sharp; the coinciding partial pair of the target, shifted by the
 // matched octaves, and its beat rate |q f_voice - p f_root| (Helmholtz, see
 // pitch/beats.h); irrational targets (600c) beat like the nearest simple
-// ratio; the offset from 12-TET for the A4 reference (MIDI 69 = A4).
+// ratio; the heard pair (Reading::heard_beat_hz); the offset from 12-TET for the A4 reference (MIDI 69 = A4).
 // A new note (restarting the centre) is a jump of more than jump_cents
 // between frames, or the pitch held away from the centre by more than the
 // vibrato's swing explains (new_note_cents + 1.2 x depth) for a few frames.
@@ -54,6 +54,7 @@ public:
 private:
     struct BeatRatio {
         std::int64_t p = 1, q = 1;  // coinciding partials of the unshifted target: root p, voice q
+        std::int64_t hp = 1, hq = 1;  // the heard pair (see Reading::heard_beat_hz), unshifted
     };
     ReadingConfig cfg_;
     TargetSet set_;

@@ -10,10 +10,16 @@
 // of the samples an estimate depends on, f0 = 0 when unvoiced).
 #pragma once
 
+#include "pitch/targets.h"
 #include "pitch/yin.h"
+
+#include <unistd.h>
 
 #include <cmath>
 #include <cstdio>
+#include <cstdlib>
+#include <functional>
+#include <initializer_list>
 #include <random>
 #include <string>
 #include <vector>
@@ -132,12 +138,112 @@ inline std::vector<pitch::PitchFrame> frames_of(const std::vector<Note>& notes, 
     return out;
 }
 
+// A practice take: a steady drone on root_hz and a voice holding one note
+// per (ratio, dev_cents) pair, voice_octaves above, with vibrato (rate
+// 5-6.5 Hz, depth 20-45 cents, random phase), an onset scoop, 0.25 s rests,
+// and white noise. The exact content is returned with the samples.
+struct Take {
+    std::vector<float> samples;
+    std::vector<Note> notes;       // the voice's notes, centres exact
+    double root_hz = 0.0;
+    double dur_s = 0.0;
+};
+
+// The voice's notes of a take (no audio): see Take.
+inline std::vector<Note> take_notes(double root_hz, const std::vector<std::pair<double, double>>& ratio_dev,
+                                    std::uint64_t seed, int voice_octaves = 1, double note_s = 1.6,
+                                    double voice_level = 0.2) {
+    std::mt19937_64 rng(seed);
+    std::uniform_real_distribution<double> u(0.0, 1.0);
+    std::vector<Note> notes;
+    double t = 0.4;
+    for (const auto& [ratio, dev] : ratio_dev) {
+        Note n;
+        n.start_s = t;
+        n.end_s = t + note_s;
+        n.centre_hz = root_hz * ratio * std::exp2(voice_octaves) * cents_to_ratio(dev);
+        n.vib_rate_hz = 5.0 + 1.5 * u(rng);
+        n.vib_depth_cents = 20.0 + 25.0 * u(rng);
+        n.vib_phase = kTwoPi * u(rng);
+        n.scoop_cents = -30.0 * u(rng);
+        n.scoop_tau_s = 0.05;
+        n.level = voice_level;
+        notes.push_back(n);
+        t += note_s + 0.25;
+    }
+    return notes;
+}
+
+inline Take drone_and_voice(double fs, double root_hz, const std::vector<std::pair<double, double>>& ratio_dev,
+                            std::uint64_t seed, int voice_octaves = 1, double note_s = 1.6, double noise_rms = 1e-3,
+                            double drone_level = 0.15, double voice_level = 0.2) {
+    Take take;
+    take.root_hz = root_hz;
+    take.notes = take_notes(root_hz, ratio_dev, seed, voice_octaves, note_s, voice_level);
+    take.dur_s = take.notes.back().end_s + 0.55;
+    take.samples.assign(static_cast<std::size_t>(take.dur_s * fs), 0.0f);
+    if (drone_level > 0.0)
+        add_tone(take.samples, fs, root_hz, 0.0, take.dur_s, drone_level, rolloff(8), {0.3, 1.1, 2.0, 0.7, 2.9, 1.6, 0.2, 2.4});
+    add_voice(take.samples, fs, take.notes, {1.0, 0.6, 0.45, 0.3, 0.2, 0.15, 0.1, 0.08});
+    add_noise(take.samples, noise_rms, seed + 1);
+    return take;
+}
+
+// The five tritone-family targets of the review tests, each mistuned by a known amount.
+inline std::vector<std::pair<double, double>> tritone_notes() {
+    return {{7.0 / 5.0, -6.0}, {10.0 / 7.0, 4.5}, {11.0 / 8.0, -3.0}, {45.0 / 32.0, 2.0}, {16.0 / 11.0, -8.5}};
+}
+
 // Raw little-endian float32 file for the numpy/scipy cross-checks.
 inline bool write_f32(const std::string& path, const std::vector<float>& x) {
     std::FILE* f = std::fopen(path.c_str(), "wb");
     if (!f) return false;
     const bool ok = std::fwrite(x.data(), sizeof(float), x.size(), f) == x.size();
     return std::fclose(f) == 0 && ok;
+}
+
+// --- Test plumbing ---------------------------------------------------------
+
+// Writes x to a temporary float32 file, runs tests/reference/<script> with
+// /usr/bin/python3 (Debian's numpy and scipy) as `script FILE args`, and
+// returns the number it prints; NaN when the file, the run or its output fails.
+#ifdef BEATLESS_SOURCE_DIR
+inline double run_reference(const std::string& script, const std::vector<float>& x, const std::string& args) {
+    const char* dir = std::getenv("TMPDIR");
+    const std::string path = std::string(dir && *dir ? dir : "/tmp") + "/beatless_ref_" + std::to_string(::getpid()) + ".f32";
+    if (!write_f32(path, x)) return NAN;
+    const std::string cmd = "/usr/bin/python3 " BEATLESS_SOURCE_DIR "/tests/reference/" + script + " " + path + " " + args;
+    std::FILE* p = popen(cmd.c_str(), "r");
+    char line[64] = {};
+    const bool got = p && std::fgets(line, sizeof line, p) != nullptr;
+    const int rc = p ? pclose(p) : -1;
+    std::remove(path.c_str());
+    return got && rc == 0 ? std::atof(line) : NAN;
+}
+#endif
+
+// A target set from interval texts ("7/5", "600c"), in the given order.
+inline pitch::TargetSet target_set(std::initializer_list<const char*> intervals, const char* id = "test") {
+    pitch::TargetSet set;
+    set.id = id;
+    for (const char* t : intervals) set.targets.push_back({pitch::parse_interval(t), ""});
+    return set;
+}
+
+// The intervals of targets/tritones.toml, in the file's order.
+inline pitch::TargetSet tritone_set() {
+    return target_set({"15/11", "11/8", "7/5", "45/32", "600c", "64/45", "729/512", "1024/729", "10/7", "16/11"}, "tritones");
+}
+
+// The message of the Error that fn throws, or "(no error)".
+template <class E>
+std::string error_of(const std::function<void()>& fn) {
+    try {
+        fn();
+    } catch (const E& e) {
+        return e.what();
+    }
+    return "(no error)";
 }
 
 }  // namespace beatless::testsig

@@ -27,6 +27,15 @@ std::string choose_error(const std::vector<DeviceInfo>& devs, const std::string&
     return "(no error)";
 }
 
+// Readings against one target (what they are does not matter here).
+void set_one_target(Engine& e) {
+    pitch::ReadingConfig rc;
+    rc.root_hz = 110.0;
+    pitch::TargetSet set;
+    set.targets.push_back({pitch::parse_interval("3/2"), ""});
+    e.set_readings(rc, set);
+}
+
 std::vector<DeviceInfo> three() {
     return {fake_device(0, "Built-in Microphone", 2, 0), fake_device(3, "USB Audio Interface", 2, 2), fake_device(5, "HDMI Output", 0, 8)};
 }
@@ -65,10 +74,7 @@ TEST_CASE("the sample rate is negotiated, and a refused rate is named") {
         EngineConfig ec;  // rate 0: negotiate
         Engine e(ec, &sys);
         e.open_input_device("0");
-        pitch::ReadingConfig rc;
-        pitch::TargetSet set;
-        set.targets.push_back({pitch::parse_interval("3/2"), ""});
-        e.set_readings(rc, set);
+        set_one_target(e);
         e.start(false);
         CHECK(e.sample_rate_hz() == 44100.0);
         CHECK(e.input_info().sample_rate_hz == 44100.0);
@@ -78,10 +84,7 @@ TEST_CASE("the sample rate is negotiated, and a refused rate is named") {
     ec.sample_rate_hz = 12345.0;
     Engine e(ec, &sys);
     e.open_input_device("Interface");
-    pitch::ReadingConfig rc;
-    pitch::TargetSet set;
-    set.targets.push_back({pitch::parse_interval("3/2"), ""});
-    e.set_readings(rc, set);
+    set_one_target(e);
     std::string msg;
     try {
         e.start(false);
@@ -102,11 +105,7 @@ TEST_CASE("a device that disappears: readings pause, the engine says so, reopens
     e.on_message([&](const std::string& m) { msgs.push_back(m); });
     e.open_input_device("card");
     e.open_output_device("card");
-    pitch::ReadingConfig rc;
-    rc.root_hz = 110.0;
-    pitch::TargetSet set;
-    set.targets.push_back({pitch::parse_interval("3/2"), ""});
-    e.set_readings(rc, set);
+    set_one_target(e);
     DroneSettings d;
     d.on = true;
     e.set_drone(d);

@@ -47,6 +47,14 @@ double rms(const std::vector<float>& x, std::size_t from, std::size_t n) {
     return std::sqrt(e / static_cast<double>(n));
 }
 
+DroneSettings sounding(Timbre t, double level_dbfs) {
+    DroneSettings s;
+    s.on = true;
+    s.timbre = t;
+    s.level_dbfs = level_dbfs;
+    return s;
+}
+
 std::vector<float> render(Drone& d, std::size_t n, std::size_t block = 256) {
     std::vector<float> out(n);
     for (std::size_t i = 0; i < n; i += block) d.render(std::span<float>(out.data() + i, std::min(block, n - i)));
@@ -85,11 +93,7 @@ TEST_CASE("the drone plays the partials drone_partials lists, at the level asked
     }
     {
         Drone d(rate);
-        DroneSettings s;
-        s.on = true;
-        s.timbre = Timbre::bright;
-        s.level_dbfs = -20.0;
-        d.set(s);
+        d.set(sounding(Timbre::bright, -20.0));
         const auto x = render(d, 44000);
         CHECK(rms(x, 22000, 22000) == doctest::Approx(std::pow(10.0, -20.0 / 20.0)).epsilon(0.01));
     }
@@ -150,12 +154,9 @@ TEST_CASE("the drone starts quiet, ramps every change over about 50 ms, and neve
 TEST_CASE("the limiter holds a fixed ceiling of -6 dBFS") {
     const double rate = 48000.0;
     Drone d(rate);
-    DroneSettings s;
-    s.on = true;
-    s.timbre = Timbre::bright;
+    DroneSettings s = sounding(Timbre::bright, kDroneMaxLevelDbfs);  // as loud as allowed: the partials add far above the ceiling
     s.fifth = true;
     s.octave = true;
-    s.level_dbfs = kDroneMaxLevelDbfs;  // as loud as allowed: the partials add far above the ceiling
     d.set(s);
     const auto x = render(d, 48000);
     float peak = 0.0f;
@@ -169,9 +170,7 @@ TEST_CASE("the limiter holds a fixed ceiling of -6 dBFS") {
 TEST_CASE("the reference voice sounds the target for a moment above the drone") {
     const double rate = 44000.0;
     Drone d(rate);
-    DroneSettings s;
-    s.on = true;
-    s.timbre = Timbre::pure;
+    DroneSettings s = sounding(Timbre::pure, kDroneStartLevelDbfs);
     d.set(s);
     render(d, 4400);
     s.reference_hz = 154.0;
@@ -190,10 +189,7 @@ TEST_CASE("the reference voice sounds the target for a moment above the drone") 
 TEST_CASE("drone removal: the drone's partials vanish, a voice partial 20 Hz away stays") {
     const double rate = 48000.0;
     Drone d(rate);
-    DroneSettings s;
-    s.on = true;
-    s.timbre = Timbre::round;
-    s.level_dbfs = -20.0;
+    const DroneSettings s = sounding(Timbre::round, -20.0);
     d.set(s);
     CancellerConfig cc;
     cc.sample_rate_hz = rate;

@@ -9,6 +9,7 @@
 #include "pitch/error.h"
 #include "pitch/interval.h"
 #include "pitch/notes.h"
+#include "pitch/readings.h"
 #include "pitch/targets.h"
 
 #include <doctest/doctest.h>
@@ -110,4 +111,38 @@ TEST_CASE("nearest target, with and without octave equivalence") {
     CHECK(set.targets[m.index].interval.str() == "10/7");
     CHECK(shift_octaves(parse_interval("7/5"), -1).str() == "7/10");
     CHECK(shift_octaves(parse_interval("600c"), 1).str() == "1800c");
+}
+
+TEST_CASE("readings: the pair a listener hears for targets of high terms") {
+    // 729/512's coinciding partials (729th of the root) lie far above
+    // hearing; the reading also names the pair of the nearest simple ratio
+    // (10/7, 5.8 cents away), which beats even on target: with the voice
+    // exactly at 729/512 over 146.832 Hz, |7 * f_v - 10 * f_r| (Helmholtz's
+    // formula, worked here by hand) = |7 * 209.0635 - 1468.320| = 4.875 Hz.
+    pitch::TargetSet set;
+    set.targets.push_back({parse_interval("729/512"), ""});
+    set.targets.push_back({parse_interval("7/5"), ""});
+    pitch::ReadingConfig cfg;
+    cfg.root_hz = 146.832;
+    pitch::ReadingMaker maker(cfg, set);
+    pitch::PitchFrame f;
+    f.t_s = 0.1;
+    f.f0_hz = 146.832 * 729.0 / 512.0;
+    f.confidence = 1.0;
+    const pitch::Reading r = maker.make(f, 4800);
+    CHECK(r.beat_partial_root == 729);
+    CHECK(r.beat_partial_voice == 512);
+    CHECK(r.beat_hz == doctest::Approx(0.0).epsilon(1e-9).scale(1.0));
+    CHECK(r.heard_partial_root == 10);
+    CHECK(r.heard_partial_voice == 7);
+    CHECK(r.heard_beat_hz == doctest::Approx(std::fabs(7 * f.f0_hz - 10 * 146.832)).epsilon(1e-9));
+    CHECK(r.heard_beat_at_target_hz == doctest::Approx(4.875).epsilon(2e-4));
+    // A simple target's heard pair is its own coinciding pair.
+    f.f0_hz = 146.832 * 1.4 * std::exp2(4 / 1200.0);
+    pitch::ReadingMaker maker2(cfg, set);
+    const pitch::Reading s = maker2.make(f, 4800);
+    CHECK(s.heard_partial_root == 7);
+    CHECK(s.heard_partial_voice == 5);
+    CHECK(s.heard_beat_hz == doctest::Approx(s.beat_hz));
+    CHECK(s.heard_beat_at_target_hz == doctest::Approx(0.0).scale(1.0).epsilon(1e-9));
 }

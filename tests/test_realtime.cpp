@@ -21,8 +21,8 @@
 #include <pthread.h>
 
 namespace {
-thread_local bool t_watched = false;
-std::atomic<long> g_allocs{0}, g_locks{0};
+[[maybe_unused]] thread_local bool t_watched = false;
+[[maybe_unused]] std::atomic<long> g_allocs{0}, g_locks{0};
 }  // namespace
 
 #ifndef BEATLESS_SANITIZED

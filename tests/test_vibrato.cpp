@@ -10,6 +10,7 @@
 #include "pitch/cycles.h"
 #include "pitch/error.h"
 #include "pitch/vibrato.h"
+#include "tests/mix_signals.h"
 
 #include <doctest/doctest.h>
 
@@ -159,10 +160,5 @@ TEST_CASE("invalid settings are refused with a message naming the value") {
     cfg = {};
     cfg.min_rate_hz = 8.0;
     cfg.max_rate_hz = 4.0;
-    try {
-        VibratoCentre vc(cfg);
-        FAIL("no error");
-    } catch (const Error& e) {
-        CHECK(std::string(e.what()).find("min_rate_hz") != std::string::npos);
-    }
+    CHECK(testsig::error_of<Error>([&] { VibratoCentre vc(cfg); }).find("min_rate_hz") != std::string::npos);
 }

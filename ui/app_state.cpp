@@ -186,7 +186,10 @@ void AppState::open_engine() {
     } catch (const Error& e) {
         engine_.reset();
         input_text_ = "no input";
-        post(options_.demo ? std::string(e.what()) : join({e.what(), " (", audio::kDemoHint, ", or choose an input in Settings)"}), true);
+        const std::string what = e.what();
+        if (options_.demo) post(what, true);
+        else if (what.find(audio::kDemoHint) != std::string::npos) post(join({what, "; or choose an input in Settings"}), true);
+        else post(join({what, " (", audio::kDemoHint, ", or choose an input in Settings)"}), true);
         return;
     }
     if (options_.demo) {

@@ -7,10 +7,20 @@
 namespace beatless::ui {
 
 double cue_beat_hz(const pitch::Reading& r) noexcept {
-    if (!r.voiced() || r.beat_partial_root <= 0 || r.beat_partial_voice <= 0) return NAN;
+    // The pair the performer can hear: the coinciding pair, or for targets
+    // with partials above the 16th the pair of the nearest simple ratio.
+    const bool heard = r.heard_partial_root > 0 && r.heard_partial_voice > 0;
+    const int pr = heard ? r.heard_partial_root : r.beat_partial_root;
+    const int pv = heard ? r.heard_partial_voice : r.beat_partial_voice;
+    if (!r.voiced() || pr <= 0 || pv <= 0) return NAN;
     if (std::isfinite(r.centre_f0_hz) && r.centre_f0_hz > 0.0 && r.root_hz > 0.0)
-        return std::fabs(static_cast<double>(r.beat_partial_voice) * r.centre_f0_hz - static_cast<double>(r.beat_partial_root) * r.root_hz);
-    return std::isfinite(r.beat_hz) ? r.beat_hz : NAN;
+        return std::fabs(static_cast<double>(pv) * r.centre_f0_hz - static_cast<double>(pr) * r.root_hz);
+    const double now = heard ? r.heard_beat_hz : r.beat_hz;
+    return std::isfinite(now) ? now : NAN;
+}
+
+bool heard_pair_differs(const pitch::Reading& r) noexcept {
+    return r.heard_partial_root > 0 && (r.heard_partial_root != r.beat_partial_root || r.heard_partial_voice != r.beat_partial_voice);
 }
 
 void BeatPulse::update(double beat_hz, double dt_s) noexcept {

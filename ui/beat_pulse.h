@@ -31,6 +31,9 @@ struct BeatPulseConfig {
 // The beat rate of the coinciding pair at the vibrato centre (when the
 // reading has one), else the reading's instantaneous rate; NaN when none.
 double cue_beat_hz(const pitch::Reading& r) noexcept;
+// True when the target's own coinciding partials lie above hearing and the
+// cue shows the pair of the nearest simple ratio instead.
+bool heard_pair_differs(const pitch::Reading& r) noexcept;
 
 class BeatPulse {
 public:

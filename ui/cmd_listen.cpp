@@ -6,10 +6,10 @@
 //
 // One JSON object per reading on stdout: {"t", "f0_hz", "confidence",
 // "ratio", "target", "target_name", "dev_cents", "centre_dev_cents",
-// "beat_hz", "beat_partials": [root partial, voice partial]}, null where
-// unvoiced. Diagnostics and a summary (overflows, underflows, latency) go to
-// stderr. `beatless --demo` with no subcommand runs the same engine with
-// the demo performer and prints readable lines instead (run_demo_preview).
+// "beat_hz", "beat_partials": [root partial, voice partial], "heard_beat_hz",
+// "heard_partials"}, null where unvoiced (heard_*: the pair a listener hears,
+// which differs from the coinciding pair for targets such as 729/512). Diagnostics and a summary (overflows, underflows, latency) go to
+// stderr. (`beatless --demo` with no subcommand opens the Practice screen.)
 // The drone is off unless --drone is given; with a file or the demo,
 // --drone means the input holds a drone at the root (the demo's microphone
 // hears it through a simulated room), and drone removal follows it.
@@ -101,9 +101,14 @@ std::string json_line(const pitch::Reading& r, const TargetText& tt) {
         j.key("beat_hz").value(r.beat_hz, 3);
         if (r.beat_partial_root > 0) j.key("beat_partials").begin_array().value(r.beat_partial_root).value(r.beat_partial_voice).end_array();
         else j.key("beat_partials").null();
+        j.key("heard_beat_hz").value(r.heard_beat_hz, 3);
+        if (r.heard_partial_root > 0) j.key("heard_partials").begin_array().value(r.heard_partial_root).value(r.heard_partial_voice).end_array();
+        else j.key("heard_partials").null();
     } else {
         j.key("f0_hz").null().key("confidence").value(r.confidence, 3);
-        for (const char* k : {"ratio", "target", "target_name", "dev_cents", "centre_dev_cents", "beat_hz", "beat_partials"}) j.key(k).null();
+        for (const char* k : {"ratio", "target", "target_name", "dev_cents", "centre_dev_cents", "beat_hz", "beat_partials",
+                              "heard_beat_hz", "heard_partials"})
+            j.key(k).null();
     }
     j.end_object();
     return j.str();
@@ -266,7 +271,7 @@ int run_live(const ListenOptions& o, Printing printing) {
         engine.start();
         std::fprintf(stderr, "beatless: listening to %s at %s Hz; root %s Hz, targets %s%s\n", what.c_str(),
                      pitch::format_trimmed(engine.sample_rate_hz(), 0).c_str(), pitch::format_trimmed(root_hz, 3).c_str(),
-                     targets.id.c_str(), o.drone ? ", drone on" : "");
+                     targets.id.c_str(), !o.drone ? "" : o.input_file.empty() ? ", drone on" : ", the recording's drone removed");
         if (device_input) {
             const audio::StreamInfo si = engine.input_info();
             std::fprintf(stderr, "beatless: %s\n", stream_text("input", si.input_name, si, si.input_latency_s).c_str());
@@ -335,14 +340,6 @@ void register_listen(CLI::App& app, Runner& run) {
     sub->add_option("--block", o->block, "Frames per audio callback to ask for (default 256)");
     sub->add_option("--hop-ms", o->hop_ms, "Time between readings in ms (default 5)");
     sub->callback([o, &run] { run = [o] { return run_live(*o, Printing::json); }; });
-}
-
-int run_demo_preview(double seconds) {
-    ListenOptions o;
-    o.demo = true;
-    o.drone = true;
-    o.seconds = seconds;
-    return run_live(o, Printing::text);
 }
 
 }  // namespace beatless::ui

@@ -21,10 +21,6 @@ void register_tone(CLI::App& app, Runner& run);
 void register_devices(CLI::App& app, Runner& run);
 void register_listen(CLI::App& app, Runner& run);
 
-// `beatless --demo` before the Practice screen existed: the demo performer
-// through the live engine, readable lines on stdout for `seconds`.
-int run_demo_preview(double seconds);
-
 // The screens (cmd_screen.cpp): `beatless` with no subcommand opens the
 // window; `beatless snapshot` renders without one.
 struct ScreenCommand {

@@ -60,7 +60,7 @@ std::string beat_text(double hz) {
 }
 
 constexpr KeyHelp kPracticeKeys[] = {
-    {"Marker", "your pitch now; its head: triangle up sharp, down flat, disc in tune"},
+    {"Marker", "your pitch now; its head: up sharp, down flat, disc in tune"},
     {"Diamond", "below the lane: the centre of your vibrato"},
     {"Yellow line", "in the trace: the current target"},
 };
@@ -297,7 +297,7 @@ void PracticeScreen::trace(AppState& app, ImDrawList* dl, float x0, float y0, fl
         const int k_lo = static_cast<int>(std::ceil((lo - c0) / 1200.0)), k_hi = static_cast<int>(std::floor((hi - c0) / 1200.0));
         for (int k = k_lo; k <= k_hi; ++k) {
             const double c = c0 + 1200.0 * k;
-            if (std::any_of(labels_.begin(), labels_.end(), [&](const Label& l) { return std::fabs(l.y - std::round(y_of(c))) < 0.5f && !l.current; }) &&
+            if (std::any_of(labels_.begin(), labels_.end(), [&](const Label& l) { return std::fabs(l.y - std::round(y_of(c))) < 0.5f; }) &&
                 !(static_cast<int>(i) == cur && k == cur_oct))
                 continue;  // 1/1 an octave up is 2/1: one line, one label
             const bool is_cur = static_cast<int>(i) == cur && k == cur_oct;
@@ -392,33 +392,51 @@ void PracticeScreen::beat_cue(AppState& app, ImDrawList* dl, float x0, float y0,
     draw_text(dl, FontFace::large, ImVec2(x, y), have ? palette::kText : palette::kTextDim, value);
     y += font_px(FontFace::large) + std::round(0.3f * u);
     if (have) {
-        const std::string a = ordinal(r.beat_partial_root) + " partial of the root";
-        const std::string b = "against the " + ordinal(r.beat_partial_voice) + " of the voice";
+        const bool other = heard_pair_differs(r);
+        const int pr = other ? r.heard_partial_root : r.beat_partial_root;
+        const int pv = other ? r.heard_partial_voice : r.beat_partial_voice;
+        const std::string a = ordinal(pr) + " partial of the root";
+        const std::string b = "against the " + ordinal(pv) + " of the voice";
         draw_text(dl, FontFace::body, ImVec2(x, y), palette::kText, a);
         draw_text(dl, FontFace::body, ImVec2(x, y + std::round(1.2f * u)), palette::kText, b);
+        if (other) {
+            // The target's own pair (e.g. 729th against 512th) is above
+            // hearing: say what this nearby pair does when the note is right.
+            char line[96];
+            std::snprintf(line, sizeof line, "in tune it beats %s", beat_text(r.heard_beat_at_target_hz).c_str());
+            draw_text(dl, FontFace::body, ImVec2(x, y + std::round(2.4f * u)), palette::kTextDim, line);
+            y += std::round(1.2f * u);
+        }
     }
     y += std::round(2.8f * u);
 
-    // The pulse: a disc that brightens and dims once per beat.
-    const float caption_h = std::round(2.6f * u);
-    const float room = y0 + h - y - caption_h;
-    if (room < 2.0f * u) return;
-    const float rad = std::round(std::min(0.5f * (w - 2.0f * u), 0.5f * room) * 0.9f);
-    const ImVec2 c(std::round(x0 + 0.5f * w), std::round(y + 0.5f * room));
-    const float ring = std::max(2.0f, std::round(0.12f * u));
+    // The pulse: a disc that brightens and dims once per beat, with two
+    // lines beside it saying what it shows.
+    const float room = y0 + h - y - std::round(0.5f * u);
+    if (room < 1.6f * u) return;
+    const BeatCue cue = have ? p.cue() : BeatCue::none;
     std::string caption1, caption2;
-    switch (have ? p.cue() : BeatCue::none) {
+    switch (cue) {
+        case BeatCue::none: caption1 = "no beat to show", caption2 = "sing or play a note"; break;
+        case BeatCue::still: caption1 = "still: nearly pure", caption2 = "hold it there"; break;
+        case BeatCue::pulse:
+            caption1 = "pulses once per beat";
+            caption2 = heard_pair_differs(r) ? "match the in-tune rate" : "slower is closer";
+            break;
+        case BeatCue::fast: caption1 = "too fast to follow", caption2 = "listen for roughness"; break;
+    }
+    const float caption_w = std::max(text_size(FontFace::body, caption1).x, text_size(FontFace::body, caption2).x);
+    const float rad = std::round(std::clamp(std::min({0.45f * room, 0.2f * w, 0.5f * (w - caption_w - 2.6f * u)}), 0.8f * u, 3.2f * u));
+    const ImVec2 c(std::round(x + rad), std::round(y + 0.5f * room));
+    const float ring = std::max(2.0f, std::round(0.12f * u));
+    switch (cue) {
         case BeatCue::none:
             dl->AddCircle(c, rad, palette::kGrid, 48, ring);
-            caption1 = "no beat to show";
-            caption2 = "sing or play a note";
             break;
         case BeatCue::pulse:
         case BeatCue::still:
             dl->AddCircleFilled(c, rad, mix(palette::kPanel, palette::kPulse, p.brightness()), 48);
             dl->AddCircle(c, rad, palette::kPulse, 48, ring);
-            caption1 = p.cue() == BeatCue::still ? "still: nearly pure" : "pulses once per beat";
-            caption2 = p.cue() == BeatCue::still ? "hold it there" : "slower is closer";
             break;
         case BeatCue::fast: {
             // Steady: a ring with a zig-zag across, no flicker.
@@ -427,13 +445,12 @@ void PracticeScreen::beat_cue(AppState& app, ImDrawList* dl, float x0, float y0,
             for (int i = 0; i < 9; ++i)
                 zz[i] = ImVec2(c.x - 0.7f * rad + static_cast<float>(i) * 0.175f * rad, c.y + ((i % 2) ? -0.25f : 0.25f) * rad);
             dl->AddPolyline(zz, 9, palette::kPulse, ImDrawFlags_None, ring);
-            caption1 = "too fast to follow by eye";
-            caption2 = "listen for roughness";
             break;
         }
     }
-    draw_text_centred(dl, FontFace::body, c.x, y0 + h - caption_h, palette::kText, caption1);
-    draw_text_centred(dl, FontFace::body, c.x, y0 + h - caption_h + std::round(1.2f * u), palette::kTextDim, caption2);
+    const float tx = c.x + rad + std::round(0.8f * u);
+    draw_text(dl, FontFace::body, ImVec2(tx, c.y - 1.1f * u), palette::kText, caption1);
+    draw_text(dl, FontFace::body, ImVec2(tx, c.y + 0.1f * u), palette::kTextDim, caption2);
 }
 
 // ---------------------------------------------------------------------------
@@ -472,7 +489,7 @@ void PracticeScreen::controls(AppState& app) {
     ImGui::TextColored(v4(palette::kTextDim), "Level");
     ImGui::SameLine();
     float level = static_cast<float>(s.level_dbfs);
-    ImGui::SetNextItemWidth(std::round(7.5f * u));
+    ImGui::SetNextItemWidth(std::round(8.5f * u));
     if (ImGui::SliderFloat("##level", &level, static_cast<float>(audio::kDroneMinLevelDbfs), static_cast<float>(audio::kDroneMaxLevelDbfs), "%.0f dBFS"))
         app.set_drone_level(std::round(level));
     if (ImGui::IsItemHovered()) ImGui::SetTooltip("Drone level (RMS). The limiter holds peaks at or below %.0f dBFS.", audio::kDroneCeilingDbfs);
@@ -503,12 +520,17 @@ void PracticeScreen::controls(AppState& app) {
     ImGui::SameLine();
     const auto& ts = app.targets().targets;
     const pitch::Target& fixed = ts[static_cast<std::size_t>(app.fixed_index())];
+    // In nearest mode the box shows the target followed now; choosing one fixes it.
+    const int shown_index = s.choice == TargetChoice::nearest && app.has_current() ? app.target_index_of(app.current()) : app.fixed_index();
+    const std::string shown = shown_index >= 0 ? ts[static_cast<std::size_t>(shown_index)].interval.str() : fixed.interval.str();
     ImGui::SetNextItemWidth(std::round(6.0f * u));
-    if (ImGui::BeginCombo("##target", fixed.interval.str().c_str())) {
+    if (ImGui::BeginCombo("##target", shown.c_str())) {
         for (std::size_t i = 0; i < ts.size(); ++i) {
             const std::string label = ts[i].interval.str() + (ts[i].name.empty() ? "" : "  " + ts[i].name);
-            if (ImGui::Selectable(label.c_str(), static_cast<int>(i) == app.fixed_index()))
+            if (ImGui::Selectable(label.c_str(), static_cast<int>(i) == shown_index)) {
+                app.set_choice(TargetChoice::fixed);
                 app.step_target(static_cast<int>(i) - app.fixed_index());
+            }
         }
         ImGui::EndCombo();
     }

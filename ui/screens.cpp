@@ -59,7 +59,9 @@ constexpr ImGuiWindowFlags kFixed = ImGuiWindowFlags_NoDecoration | ImGuiWindowF
 
 ImVec4 v4(std::uint32_t c) { return ImGui::ColorConvertU32ToFloat4(c); }
 
-// The caution, as DESIGN.md words it, for the banner and the Settings screen.
+// The caution as DESIGN.md words it (the banner), and with the why (Settings).
+constexpr const char* kCautionShort =
+    "The drone is a sustained tone. Keep the level low, especially on headphones, and take breaks.";
 constexpr const char* kCautionText =
     "The drone is a sustained tone. Keep the level low, especially on headphones, and take breaks. "
     "The drone starts quietly and its peaks are limited to -6 dBFS, but your volume control comes after that.";
@@ -211,15 +213,17 @@ void ScreenDeck::caution_banner(const ImVec2& pos, float width, float& height_ou
     ImGui::PushStyleVar(ImGuiStyleVar_WindowPadding, ImVec2(std::round(3.0f * u), std::round(0.5f * u)));
     ImGui::Begin("##caution", nullptr, kFixed);
     ImDrawList* dl = ImGui::GetWindowDrawList();
+    dl->PushClipRect(pos, ImVec2(pos.x + width, pos.y + h), false);
     dl->AddRect(ImVec2(pos.x + 2, pos.y + 2), ImVec2(pos.x + width - 2, pos.y + h - 2), palette::kWarning, 0.0f, 0, 2.0f);
     draw_warning_sign(dl, ImVec2(pos.x + 1.5f * u, pos.y + 0.5f * h), 0.8f * u, palette::kWarning);
+    dl->PopClipRect();
     const float button_w = std::round(8.0f * u);
     ImGui::PushFont(font_of(FontFace::bold));
     ImGui::TextUnformatted("Hearing caution");
     ImGui::PopFont();
     ImGui::SameLine();
     ImGui::PushTextWrapPos(width - button_w - 2.0f * u);
-    ImGui::TextWrapped("%s", kCautionText);
+    ImGui::TextWrapped("%s The drone stays off until you confirm.", kCautionShort);
     ImGui::PopTextWrapPos();
     ImGui::SetCursorPos(ImVec2(width - button_w - u, std::round(0.5f * (h - 1.8f * u))));
     ImGui::PushStyleColor(ImGuiCol_Button, v4(palette::kAccent));
@@ -320,7 +324,11 @@ void ScreenDeck::help_overlay() {
     const std::span<const KeyHelp> own = screens_[current_]->keys();
     const std::size_t rows = std::size(kGlobalKeys) + own.size() + (own.empty() ? 0 : 1);
     const float row_h = std::round(1.45f * u);
-    const float w = std::min(disp.x - 2.0f * u, std::round(30.0f * u));
+    const float key_w = std::round(7.5f * u);
+    float text_w = 0.0f;
+    for (const KeyHelp& k : kGlobalKeys) text_w = std::max(text_w, text_size(FontFace::body, k.what).x);
+    for (const KeyHelp& k : own) text_w = std::max(text_w, text_size(FontFace::body, k.what).x);
+    const float w = std::min(disp.x - 2.0f * u, key_w + text_w + std::round(2.5f * u));
     const float h = std::min(disp.y - 2.0f * u, row_h * static_cast<float>(rows) + std::round(5.0f * u));
     ImGui::SetNextWindowPos(ImVec2(std::round(0.5f * (disp.x - w)), std::round(0.5f * (disp.y - h))));
     ImGui::SetNextWindowSize(ImVec2(w, h));
@@ -331,7 +339,6 @@ void ScreenDeck::help_overlay() {
     const ImVec2 p = ImGui::GetWindowPos();
     draw_text(dl, FontFace::medium, ImVec2(p.x + u, p.y + 0.7f * u), palette::kText, "Keys");
     float y = p.y + std::round(0.9f * u) + font_px(FontFace::medium) + std::round(0.4f * u);
-    const float key_w = std::round(7.5f * u);
     auto row = [&](const KeyHelp& k) {
         draw_text(dl, FontFace::bold, ImVec2(p.x + u, y), palette::kYellow, k.keys);
         draw_text(dl, FontFace::body, ImVec2(p.x + u + key_w, y), palette::kText, k.what);
