@@ -266,17 +266,20 @@ TEST_CASE("keys: Space needs the caution first; arrows move target and root; H o
     frame_with_key(GLFW_KEY_ESCAPE);
     CHECK_FALSE(deck.help_open());
     frame_with_key(GLFW_KEY_TAB);
+    CHECK(deck.current() == ui::ScreenId::ensemble);
+    frame_with_key(GLFW_KEY_TAB);
     CHECK(deck.current() == ui::ScreenId::settings);
     frame_with_key(GLFW_KEY_ESCAPE);
     CHECK(deck.current() == ui::ScreenId::practice);
 }
 
-TEST_CASE("screens: Practice and Settings are built; the others are named but not shown") {
+TEST_CASE("screens: Practice, Ensemble and Settings are built; the others are named but not shown") {
     const auto ids = ui::built_screens();
-    REQUIRE(ids.size() == 2);
+    REQUIRE(ids.size() == 3);
     CHECK(ids[0] == ui::ScreenId::practice);
-    CHECK(ids[1] == ui::ScreenId::settings);
-    CHECK(ui::built_screen_keys() == "practice, settings");
+    CHECK(ids[1] == ui::ScreenId::ensemble);
+    CHECK(ids[2] == ui::ScreenId::settings);
+    CHECK(ui::built_screen_keys() == "practice, ensemble, settings");
     CHECK(ui::parse_screen_key("Drills") == ui::ScreenId::drills);
     CHECK_FALSE(ui::parse_screen_key("lobby").has_value());
 }

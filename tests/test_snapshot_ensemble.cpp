@@ -135,3 +135,64 @@ TEST_CASE("Ensemble snapshot: against the best-fit root, the held deviations min
     for (double d : held) expected.push_back(d - mean);  // +7, -3, +3, -7
     check_screen("best-fit", expected);
 }
+
+// ---------------------------------------------------------------------------
+// The [ensemble] settings: saved, read back, and a bad value named
+// ---------------------------------------------------------------------------
+
+#include "ui/ensemble_session.h"
+#include "ui/settings.h"
+
+TEST_CASE("[ensemble] settings: written, read back equal, and a bad reference is named by file and line") {
+    ui::Settings s;
+    s.ensemble.chord = "4:5:6:7";
+    s.ensemble.reference = pitch::ChordReference::sounding_bass;
+    s.ensemble.input_device = "Quad \"box\"";
+    s.ensemble.channels = "3,4,5,6";
+    s.ensemble.names = "Bass,Tenor,Alto,Soprano";
+    s.ensemble.voices = "1,2,3,4";
+    const ui::LoadedSettings back = ui::parse_settings(ui::settings_toml(s), "settings.toml");
+    CHECK(back.warning.empty());
+    CHECK(back.settings == s);
+    const ui::LoadedSettings bad = ui::parse_settings("kind = \"settings\"\n[ensemble]\nchord = \"4:5:6\"\nreference = \"tenor\"\n", "my.toml");
+    CHECK(bad.warning == "my.toml:4: 'reference': reference 'tenor': expected drone, bass or best-fit; using its default");
+    CHECK(bad.settings.ensemble.chord == "4:5:6");
+    CHECK(bad.settings.ensemble.reference == pitch::ChordReference::best_fit);
+}
+
+TEST_CASE("the Ensemble screen's edits reach the settings file; a bad edit changes nothing and says why") {
+    TempDir home;
+    const std::string file = home.file("settings.toml");
+    ui::AppOptions o;
+    o.demo = true;
+    o.simulated = true;
+    ui::AppState app(ui::Settings{}, file, o);
+    app.start();
+    ui::EnsembleSession session;
+    session.update(app, 0.1);
+    REQUIRE(session.ready());
+    CHECK(session.players().size() == 4);  // the built-in harmonic seventh's four parts
+    ui::EnsembleSettings e = app.settings().ensemble;
+    e.names = "Bass,Tenor,Alto,Soprano";
+    e.voices = "1,2,3,4";
+    e.channels = "1,2,3,4";
+    CHECK(session.apply(app, e));
+    CHECK(session.players()[3].name == "Soprano");
+    session.set_reference(app, pitch::ChordReference::fixed_root);
+    for (int i = 0; i < 20; ++i) {
+        app.update(0.1);
+        session.update(app, 0.1);
+    }
+    CHECK(session.has_current());
+    const ui::LoadedSettings saved = ui::load_settings(file);
+    CHECK(saved.warning.empty());
+    CHECK(saved.settings.ensemble.names == "Bass,Tenor,Alto,Soprano");
+    CHECK(saved.settings.ensemble.reference == pitch::ChordReference::fixed_root);
+    ui::EnsembleSettings bad = app.settings().ensemble;
+    bad.voices = "1,2,3,7";
+    CHECK_FALSE(session.apply(app, bad));
+    CHECK(app.settings().ensemble.voices == "1,2,3,4");
+    REQUIRE_FALSE(app.messages().empty());
+    CHECK(app.messages().back().text == "Ensemble: --voices '1,2,3,7': '7' is not a voice of 4:5:6:7 (1 to 4)");
+    app.shutdown();
+}
