@@ -124,7 +124,9 @@ void EnsembleScreen::strip(AppState& app, ImDrawList* dl, std::size_t i, float x
     y += u + std::round(0.6f * u);
 
     // The lane: vertical, ±30 cents, up is sharp.
-    const float lane_w = std::round(std::clamp(0.3f * w, 2.0f * u, 3.4f * u));
+    // Narrow strips (many players) keep the lane slim and the words smaller.
+    const bool narrow = w < 10.0f * u;
+    const float lane_w = narrow ? std::round(1.1f * u) : std::round(std::clamp(0.3f * w, 2.0f * u, 3.4f * u));
     const float lx0 = x0 + pad, lx1 = lx0 + lane_w;
     const float ly0 = std::round(y), ly1 = std::round(y0 + h - pad);
     const float mid = std::round(0.5f * (ly0 + ly1));
@@ -137,12 +139,15 @@ void EnsembleScreen::strip(AppState& app, ImDrawList* dl, std::size_t i, float x
         const float len = c == 0 ? lane_w : std::round(0.3f * lane_w);
         dl->AddRectFilled(ImVec2(lx0, ty - (c == 0 ? 1.0f : 0.0f)), ImVec2(lx0 + len, ty + 1.0f), c == 0 ? palette::kTextDim : palette::kGrid);
     }
-    draw_text_centred(dl, FontFace::body, 0.5f * (lx0 + lx1), ly0 + std::round(0.15f * u), palette::kTextDim, "+30");
-    draw_text_centred(dl, FontFace::body, 0.5f * (lx0 + lx1), ly1 - u - std::round(0.2f * u), palette::kTextDim, "\xE2\x88\x92" "30");
+    if (!narrow) {
+        draw_text_centred(dl, FontFace::body, 0.5f * (lx0 + lx1), ly0 + std::round(0.15f * u), palette::kTextDim, "+30");
+        draw_text_centred(dl, FontFace::body, 0.5f * (lx0 + lx1), ly1 - u - std::round(0.2f * u), palette::kTextDim, "\xE2\x88\x92" "30");
+    }
 
-    const float tx = lx1 + std::round(0.7f * u);  // the text block
+    const float tx = lx1 + std::round((narrow ? 0.5f : 0.7f) * u);  // the text block
     const float text_w = x0 + w - pad - tx;
     const FontFace big = text_w >= 5.0f * u ? FontFace::large : FontFace::medium;
+    const FontFace word_face = narrow ? FontFace::bold : FontFace::medium;
     const float by = ly0 + std::round(0.2f * u);
     auto problem = [&](const std::string& word, const std::string& what) {
         draw_warning_sign(dl, ImVec2(tx + 0.6f * u, by + 0.7f * u), 0.6f * u, palette::kWarning);
@@ -214,13 +219,19 @@ void EnsembleScreen::strip(AppState& app, ImDrawList* dl, std::size_t i, float x
         dl->PopClipRect();
         return;
     }
-    const float sr = std::round(0.42f * font_px(FontFace::medium));
-    draw_tuning_shape(dl, t, ImVec2(tx + sr, wy + 0.55f * font_px(FontFace::medium)), sr, col);
-    draw_text(dl, FontFace::medium, ImVec2(tx + 2.0f * sr + std::round(0.4f * u), wy), col, std::string(tuning_word(t)));
-    wy += font_px(FontFace::medium) + std::round(0.3f * u);
+    const float sr = std::round(0.42f * font_px(word_face));
+    if (narrow) {  // the shape after the number, the word on a line of its own
+        const float nx = tx + text_size(big, num).x + text_size(FontFace::body, "c").x + std::round(0.9f * u) + sr;
+        draw_tuning_shape(dl, t, ImVec2(nx, by + 0.55f * font_px(big)), sr, col);
+        draw_text(dl, word_face, ImVec2(tx, wy), col, std::string(tuning_word(t)));
+    } else {
+        draw_tuning_shape(dl, t, ImVec2(tx + sr, wy + 0.55f * font_px(word_face)), sr, col);
+        draw_text(dl, word_face, ImVec2(tx + 2.0f * sr + std::round(0.3f * u), wy), col, std::string(tuning_word(t)));
+    }
+    wy += font_px(word_face) + std::round(0.3f * u);
     const long amount = std::lround(std::fabs(dev));
-    const std::string move = t == Tuning::in_tune ? "hold" : (t == Tuning::sharp ? "lower " : "raise ") + std::to_string(amount) + " c";
-    draw_text(dl, FontFace::bold, ImVec2(tx, wy), palette::kText, move);
+    const std::string move = t == Tuning::in_tune ? "hold" : (t == Tuning::sharp ? "lower " : "raise ") + std::to_string(amount) + (narrow ? "" : " c");
+    draw_text(dl, narrow ? FontFace::body : FontFace::bold, ImVec2(tx, wy), palette::kText, move);
     wy += u + std::round(0.5f * u);
     // Level and the pitch in Hz, small.
     char buf[48];
@@ -286,7 +297,7 @@ void EnsembleScreen::chart(AppState& app, ImDrawList* dl, float x0, float y0, fl
     const double off = 1200.0 * std::log2(root / session_.root_hz());
     if (ref == pitch::ChordReference::fixed_root) std::snprintf(b2, sizeof b2, "measured against the drone root");
     else if (std::isfinite(off))
-        std::snprintf(b2, sizeof b2, "%s %.2f Hz, %s c from the drone", ref == pitch::ChordReference::best_fit ? "best-fit root" : "root under the bass",
+        std::snprintf(b2, sizeof b2, "%s root %.2f Hz, %s c from the drone", ref == pitch::ChordReference::best_fit ? "best-fit" : "bass's",
                       root, signed_text(off, 1).c_str());
     else std::snprintf(b2, sizeof b2, "%s: waiting for the players", std::string(pitch::reference_title(ref)).c_str());
     draw_text(dl, FontFace::body, ImVec2(x0 + pad, y0 + pad + row), palette::kTextDim, b2);
@@ -435,7 +446,7 @@ void EnsembleScreen::header(AppState& app, ImDrawList* dl, float x0, float y0, f
     float x = x0 + text_size(FontFace::medium, title).x + std::round(0.8f * u);
     // The reference selector: three buttons; the chosen one filled, bold, with a disc.
     const pitch::ChordReference cur = app.settings().ensemble.reference;
-    const float bw = std::round(7.6f * u), bh = std::round(1.9f * u), gap = std::round(0.3f * u);
+    const float bw = std::round(8.4f * u), bh = std::round(1.9f * u), gap = std::round(0.3f * u);
     float bx = x0 + w - 3.0f * bw - 2.0f * gap;
     const float against_x = bx - text_size(FontFace::body, "against").x - std::round(0.5f * u);
     draw_text(dl, FontFace::body, ImVec2(against_x, y0 + 0.5f * (h - u)), palette::kTextDim, "against");
