@@ -9,6 +9,8 @@
 // playback, with drone changes applied inside them) and the analysis steps
 // after warm-up. glibc exports __libc_malloc and friends for exactly this use.
 // Under the sanitizers (which interpose the allocator themselves) it is skipped.
+#include "audio/ensemble.h"
+#include "tests/ensemble_signals.h"
 #include "tests/live_rig.h"
 #include "tests/mix_signals.h"
 
@@ -161,6 +163,77 @@ TEST_CASE("callbacks allocate nothing and take no lock; analysis allocates nothi
     }
     CHECK(changes >= 15);
     CHECK(rig.engine.status().readings > 600);
+    CHECK(cb_allocs == 0);
+    CHECK(cb_locks == 0);
+    CHECK(an_allocs == 0);
+    CHECK(an_locks == 0);
+#endif
+}
+
+TEST_CASE("ensemble engine: the capture and playback callbacks allocate nothing and lock nothing; nor does the warm analysis") {
+#ifdef BEATLESS_SANITIZED
+    MESSAGE("skipped under the sanitizers, which interpose the allocator themselves");
+#else
+    // Four players with vibrato and crosstalk on a fake duplex device that
+    // also plays the drone; drone changes between blocks; a chord change
+    // while running (the analyser is swapped, not rebuilt in the analysis).
+    const pitch::Chord chord = pitch::parse_chord("4:5:6:7");
+    const std::vector<test::GroupVoice> g = {
+        {"B", 0, 0, -3.0, 4.9, 15.0, 0.14, false},
+        {"T", 1, 1, +2.5, 5.5, 24.0, 0.12, false},
+        {"A", 2, 2, -4.0, 5.2, 20.0, 0.12, false},
+        {"S", 3, 3, +7.5, 5.8, 28.0, 0.12, false},
+    };
+    test::GroupTake take;
+    take.dur_s = 3.0;
+    test::render_group(take, chord, 98.0, g);
+    audio::FakeAudioSystem sys({audio::fake_device(0, "Fake quad duplex", 4, 2)}, {48000.0});
+    audio::EnsembleEngineConfig ec;
+    ec.sample_rate_hz = 48000.0;
+    audio::EnsembleEngine eng(ec, &sys);
+    audio::EnsembleSetup s{chord, test::players_of(g), {}};
+    s.analysis.root_hz = 98.0;
+    eng.set_setup(s);
+    eng.open_input_device("quad");
+    eng.open_output_device("quad");
+    audio::DroneSettings d;
+    d.on = true;
+    d.root_hz = 98.0;
+    eng.set_drone(d);
+    eng.start(false);
+    std::vector<float> out(2 * 256);
+    std::vector<pitch::EnsembleReading> got(64);
+    long cb_allocs = 0, cb_locks = 0, an_allocs = 0, an_locks = 0;
+    for (std::size_t f = 0, b = 0; (f + 256) * 4 <= take.interleaved.size(); f += 256, ++b) {
+        if (b % 50 == 25) {
+            audio::DroneSettings x = d;
+            x.level_dbfs = (b / 50) % 2 ? -30.0 : -34.0;
+            eng.set_drone(x);
+        }
+        if (b == 300) {
+            audio::EnsembleSetup t = s;
+            t.analysis.root_hz = 98.5;
+            eng.set_setup(t);
+        }
+        long a0 = g_allocs.load(), l0 = g_locks.load();
+        t_watched = true;
+        sys.drive(std::span<const float>(take.interleaved.data() + f * 4, 256 * 4), out, 4, 2);
+        t_watched = false;
+        cb_allocs += g_allocs.load() - a0;
+        cb_locks += g_locks.load() - l0;
+        const bool warm = f > 24000;
+        a0 = g_allocs.load();
+        l0 = g_locks.load();
+        t_watched = warm;
+        eng.analyse_available();
+        t_watched = false;
+        an_allocs += g_allocs.load() - a0;
+        an_locks += g_locks.load() - l0;
+        while (eng.take_readings(got) > 0) {
+        }
+        eng.supervise();  // frees the retired analyser on this (control) thread
+    }
+    CHECK(eng.status().readings > 500);
     CHECK(cb_allocs == 0);
     CHECK(cb_locks == 0);
     CHECK(an_allocs == 0);
