@@ -124,9 +124,12 @@ struct EnsembleReading {
         const double d = centre ? r.centre_dev_cents : r.dev_cents;
         return d - 1200.0 * std::log2(root / fixed);
     }
+    // The pair of players a and b (either order); an empty pair when a == b or either is not a player.
     const PairBeat& pair(std::size_t a, std::size_t b) const noexcept {
-        return a < b ? pairs[player_pair_index(a, b, static_cast<std::size_t>(players))]
-                     : pairs[player_pair_index(b, a, static_cast<std::size_t>(players))];
+        static constexpr PairBeat kNone{};
+        const auto n = static_cast<std::size_t>(players);
+        if (a == b || a >= n || b >= n) return kNone;
+        return a < b ? pairs[player_pair_index(a, b, n)] : pairs[player_pair_index(b, a, n)];
     }
 };
 

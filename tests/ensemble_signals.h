@@ -10,6 +10,7 @@
 // least-squares root dev_i - mean(dev) (pitch/chord.h, equal weights).
 #pragma once
 
+#include "audio/soundfile.h"
 #include "pitch/chord.h"
 #include "pitch/ensemble.h"
 #include "tests/mix_signals.h"
@@ -79,6 +80,14 @@ inline void render_group(GroupTake& take, const pitch::Chord& chord, double root
             for (std::size_t f = 0; f < frames; ++f) take.interleaved[f * ch + c] += static_cast<float>(g * dry[k][f]);
         }
     }
+}
+
+// Writes interleaved frames as a WAV file (float by default).
+inline void write_take(const std::string& path, double rate_hz, int channels, const std::vector<float>& interleaved,
+                       audio::SampleFormat format = audio::SampleFormat::float32) {
+    audio::SoundWriter w(path, rate_hz, channels, format);
+    w.write(interleaved);
+    w.close();
 }
 
 // The expected deviation of player i under a reference (sounding players only).

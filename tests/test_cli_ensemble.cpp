@@ -38,9 +38,7 @@ struct Take {
     Take() : path(dir.file("quartet.wav")) {
         test::GroupTake t;
         test::render_group(t, pitch::parse_chord("4:5:6:7"), kRootHz, quartet());
-        audio::SoundWriter w(path, t.rate_hz, t.channels, audio::SampleFormat::float32);
-        w.write(t.interleaved);
-        w.close();
+        test::write_take(path, t.rate_hz, t.channels, t.interleaved);
     }
 };
 
@@ -112,12 +110,7 @@ TEST_CASE("ensemble --demo runs the demo group in real time") {
 TEST_CASE("ensemble: bad input and bad usage, one line each") {
     test::TempDir dir;
     const std::string stereo = dir.file("stereo.wav");
-    {
-        audio::SoundWriter w(stereo, 48000.0, 2, audio::SampleFormat::pcm16);
-        std::vector<float> x(2 * 4800, 0.05f);
-        w.write(x);
-        w.close();
-    }
+    test::write_take(stereo, 48000.0, 2, std::vector<float>(2 * 4800, 0.05f), audio::SampleFormat::pcm16);
     struct Case {
         std::vector<std::string> args;
         int code;

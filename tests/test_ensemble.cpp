@@ -50,12 +50,23 @@ audio::EnsembleSetup setup_of(const pitch::Chord& chord, const std::vector<test:
     return s;
 }
 
-// Drives the take through a fake device with `device_channels` inputs.
-std::vector<pitch::EnsembleReading> through_device(const test::GroupTake& take, const audio::EnsembleSetup& setup) {
+struct Messages {
+    std::vector<std::string> lines;
+    bool has(const std::string& s) const {
+        for (const auto& l : lines)
+            if (l == s) return true;
+        return false;
+    }
+};
+
+// Drives the take through a fake device with as many inputs as it has
+// channels; with msgs, supervise() runs after every block and its lines are kept.
+std::vector<pitch::EnsembleReading> through_device(const test::GroupTake& take, const audio::EnsembleSetup& setup, Messages* msgs = nullptr) {
     audio::FakeAudioSystem sys({audio::fake_device(0, "Fake quad box", take.channels, 0, take.rate_hz)}, {take.rate_hz});
     audio::EnsembleEngineConfig ec;
     ec.sample_rate_hz = take.rate_hz;
     audio::EnsembleEngine eng(ec, &sys);
+    if (msgs) eng.on_message([msgs](const std::string& m) { msgs->lines.push_back(m); });
     eng.set_setup(setup);
     eng.open_input_device("quad");
     eng.start(false);
@@ -65,6 +76,7 @@ std::vector<pitch::EnsembleReading> through_device(const test::GroupTake& take, 
         sys.drive(std::span<const float>(take.interleaved.data() + f * ch, block * ch), {}, take.channels, 2);
         eng.analyse_available();
         for (std::size_t k; (k = eng.take_readings(got)) > 0;) out.insert(out.end(), got.begin(), got.begin() + static_cast<std::ptrdiff_t>(k));
+        if (msgs) eng.supervise();
     }
     CHECK(eng.status().ring_overflow_events == 0);
     return out;
@@ -130,11 +142,7 @@ TEST_CASE("four voices from a multi-channel sound file (--fast path): within 1 c
     test::render_group(take, chord, kRootHz, g);
     test::TempDir dir;
     const std::string path = dir.file("quartet.wav");
-    {
-        audio::SoundWriter w(path, take.rate_hz, take.channels, audio::SampleFormat::float32);
-        w.write(take.interleaved);
-        w.close();
-    }
+    test::write_take(path, take.rate_hz, take.channels, take.interleaved);
     audio::EnsembleEngine eng(audio::EnsembleEngineConfig{}, nullptr);
     eng.set_setup(setup_of(chord, g));
     CHECK(eng.use_file(path) == 44100.0);
@@ -207,39 +215,6 @@ TEST_CASE("the best-fit root against numpy's least squares, on the engine's own 
 // Bad inputs: clear messages, no crash
 // ---------------------------------------------------------------------------
 
-namespace {
-
-struct Messages {
-    std::vector<std::string> lines;
-    bool has(const std::string& s) const {
-        for (const auto& l : lines)
-            if (l == s) return true;
-        return false;
-    }
-};
-
-// Like through_device, with supervise() after every block and its messages kept.
-std::vector<pitch::EnsembleReading> supervised(const test::GroupTake& take, const audio::EnsembleSetup& setup, Messages& msgs) {
-    audio::FakeAudioSystem sys({audio::fake_device(0, "Fake quad box", take.channels, 0, take.rate_hz)}, {take.rate_hz});
-    audio::EnsembleEngineConfig ec;
-    ec.sample_rate_hz = take.rate_hz;
-    audio::EnsembleEngine eng(ec, &sys);
-    eng.on_message([&](const std::string& m) { msgs.lines.push_back(m); });
-    eng.set_setup(setup);
-    eng.open_input_device("quad");
-    eng.start(false);
-    const std::size_t block = 256, ch = static_cast<std::size_t>(take.channels);
-    std::vector<pitch::EnsembleReading> out, got(64);
-    for (std::size_t f = 0; (f + block) * ch <= take.interleaved.size(); f += block) {
-        sys.drive(std::span<const float>(take.interleaved.data() + f * ch, block * ch), {}, take.channels, 2);
-        eng.analyse_available();
-        for (std::size_t k; (k = eng.take_readings(got)) > 0;) out.insert(out.end(), got.begin(), got.begin() + static_cast<std::ptrdiff_t>(k));
-        eng.supervise();
-    }
-    return out;
-}
-
-}  // namespace
 
 TEST_CASE("a device with fewer channels than players is refused in one line naming it and the counts") {
     const pitch::Chord chord = pitch::parse_chord("4:5:6:7");
@@ -271,12 +246,7 @@ TEST_CASE("a device with fewer channels than players is refused in one line nami
 TEST_CASE("a file with fewer channels than the players need is refused naming the file") {
     test::TempDir dir;
     const std::string path = dir.file("stereo.wav");
-    {
-        audio::SoundWriter w(path, 48000.0, 2, audio::SampleFormat::pcm16);
-        std::vector<float> x(2 * 4800, 0.1f);
-        w.write(x);
-        w.close();
-    }
+    test::write_take(path, 48000.0, 2, std::vector<float>(2 * 4800, 0.1f), audio::SampleFormat::pcm16);
     audio::EnsembleEngine eng(audio::EnsembleEngineConfig{}, nullptr);
     eng.set_setup(setup_of(pitch::parse_chord("4:5:6:7"), quartet()));
     CHECK_THROWS_WITH_AS(eng.use_file(path), (path + ": player 3 (Tenor): channel 3 does not exist (channels 1 to 2)").c_str(), Error);
@@ -291,7 +261,7 @@ TEST_CASE("a silent channel: named once, left out of the references, the others 
     take.end_s = 4.1;
     test::render_group(take, chord, kRootHz, g);
     Messages msgs;
-    const auto rs = supervised(take, setup_of(chord, g), msgs);
+    const auto rs = through_device(take, setup_of(chord, g), &msgs);
     INFO("messages: " << msgs.lines.size());
     CHECK(msgs.has("channel 3 (Tenor) is silent while the others sound: check its microphone and cable"));
     CHECK(msgs.lines.size() == 1);
@@ -318,7 +288,7 @@ TEST_CASE("two channels carrying the same voice: a split source and a microphone
     SUBCASE("channel 4 is a copy of channel 3, 6 dB down (one microphone on two inputs)") {
         for (std::size_t f = 0; f < frames; ++f) take.interleaved[f * ch + 3] = 0.5f * take.interleaved[f * ch + 2];
         Messages msgs;
-        const auto rs = supervised(take, setup_of(chord, g), msgs);
+        const auto rs = through_device(take, setup_of(chord, g), &msgs);
         CHECK(msgs.has("channel 4 (Bass) carries the same voice as channel 3 (Tenor); it is 6 dB quieter: its microphone hears "
                        "the neighbour (crosstalk) or the two share one source"));
         int copies = 0, tenor_ok = 0;
@@ -336,7 +306,7 @@ TEST_CASE("two channels carrying the same voice: a split source and a microphone
             take.interleaved[f * ch + 1] = 0.1f * tenor_dry;
         }
         Messages msgs;
-        const auto rs = supervised(take, setup_of(chord, g), msgs);
+        const auto rs = through_device(take, setup_of(chord, g), &msgs);
         CHECK(msgs.has("channel 2 (Alto) carries the same voice as channel 3 (Tenor); it is 20 dB quieter: its microphone hears "
                        "the neighbour (crosstalk) or the two share one source"));
         // The best fit leaves the copy out: the soprano, tenor and bass read as without the alto.
@@ -359,25 +329,8 @@ TEST_CASE("two singers in unison on one voice are not taken for one channel; the
     test::GroupTake take;
     take.channels = 5;
     test::render_group(take, chord, kRootHz, g);
-    audio::FakeAudioSystem sys({audio::fake_device(0, "Fake five", 5, 0)});
     Messages msgs;
-    std::vector<pitch::EnsembleReading> rs;
-    {
-        audio::EnsembleEngineConfig ec;
-        ec.sample_rate_hz = 48000.0;
-        audio::EnsembleEngine eng(ec, &sys);
-        eng.on_message([&](const std::string& m) { msgs.lines.push_back(m); });
-        eng.set_setup(setup_of(chord, g));
-        eng.open_input_device("five");
-        eng.start(false);
-        std::vector<pitch::EnsembleReading> got(64);
-        for (std::size_t f = 0; (f + 256) * 5 <= take.interleaved.size(); f += 256) {
-            sys.drive(std::span<const float>(take.interleaved.data() + f * 5, 256 * 5), {}, 5, 2);
-            eng.analyse_available();
-            for (std::size_t k; (k = eng.take_readings(got)) > 0;) rs.insert(rs.end(), got.begin(), got.begin() + static_cast<std::ptrdiff_t>(k));
-            eng.supervise();
-        }
-    }
+    const auto rs = through_device(take, setup_of(chord, g), &msgs);
     CHECK(msgs.lines.empty());
     check_within(score(rs, g, 1.0, 2.7), g, 1.0);
 }

@@ -67,11 +67,7 @@ void EnsembleSession::open(AppState& app) {
         return;
     }
     simulated_ = o.simulated;
-    audio::EnsembleSetup setup;
-    setup.chord = chord_.chord;
-    setup.players = players_;
-    setup.analysis.root_hz = root_hz_;
-    setup.analysis.a4_hz = a4_hz_;
+    const audio::EnsembleSetup setup = setup_now();
     try {
         if (!o.demo && !system_) system_ = audio::make_portaudio_system();
         auto eng = std::make_unique<audio::EnsembleEngine>(audio::EnsembleEngineConfig{}, o.demo ? nullptr : system_.get());
@@ -96,6 +92,21 @@ void EnsembleSession::open(AppState& app) {
     }
 }
 
+audio::EnsembleSetup EnsembleSession::setup_now() const {
+    audio::EnsembleSetup s{chord_.chord, players_, {}};
+    s.analysis.root_hz = root_hz_;
+    s.analysis.a4_hz = a4_hz_;
+    return s;
+}
+
+void EnsembleSession::push_setup(AppState& app) {
+    try {
+        engine_->set_setup(setup_now());
+    } catch (const Error& e) {
+        app.post(e.what(), true);
+    }
+}
+
 bool EnsembleSession::apply(AppState& app, const EnsembleSettings& e) {
     const EnsembleSettings& was = app.settings().ensemble;
     const bool only_reference = e.chord == was.chord && e.channels == was.channels && e.names == was.names && e.voices == was.voices &&
@@ -107,14 +118,7 @@ bool EnsembleSession::apply(AppState& app, const EnsembleSettings& e) {
         for (std::size_t i = 0; same_channels && i < before.size(); ++i) same_channels = before[i].channel == players_[i].channel;
         app.set_ensemble(e);
         if (engine_ && same_channels) {
-            audio::EnsembleSetup s{chord_.chord, players_, {}};
-            s.analysis.root_hz = root_hz_;
-            s.analysis.a4_hz = a4_hz_;
-            try {
-                engine_->set_setup(s);
-            } catch (const Error& err) {
-                app.post(err.what(), true);
-            }
+            push_setup(app);
         } else if (tried_) {
             close();
             open(app);
@@ -137,16 +141,7 @@ void EnsembleSession::update(AppState& app, double dt_s) {
     // The root and A4 are the app's: follow them.
     if (have_plan_ && (app.root_hz() != root_hz_ || app.settings().a4_hz != a4_hz_)) {
         plan(app, app.settings().ensemble, false);
-        if (engine_) {
-            audio::EnsembleSetup s{chord_.chord, players_, {}};
-            s.analysis.root_hz = root_hz_;
-            s.analysis.a4_hz = a4_hz_;
-            try {
-                engine_->set_setup(s);
-            } catch (const Error& e) {
-                app.post(e.what(), true);
-            }
-        }
+        if (engine_) push_setup(app);
     }
     if (!engine_) return;
     const audio::DroneSettings d = drone_of(app);

@@ -58,6 +58,8 @@ private:
     bool plan(AppState& app, const EnsembleSettings& e, bool quiet);
     void open(AppState& app);
     audio::DroneSettings drone_of(const AppState& app) const;
+    audio::EnsembleSetup setup_now() const;   // the plan as the engine takes it
+    void push_setup(AppState& app);           // to the running engine; a message on failure
 
     ChordFile chord_;
     std::vector<pitch::Player> players_;

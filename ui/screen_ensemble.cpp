@@ -250,8 +250,8 @@ void EnsembleScreen::beat_row(ImDrawList* dl, const std::vector<float>& xs, floa
     const bool live = session_.has_current();
     const pitch::EnsembleReading& r = session_.current();
     for (std::size_t i = 0; i + 1 < ps.size(); ++i) {
-        const pitch::PairBeat& pb = r.pair(i, i + 1);
-        const double hz = live ? pb.beat_hz : NAN;
+        const pitch::PairBeat pb = live ? r.pair(i, i + 1) : pitch::PairBeat{};
+        const double hz = pb.beat_hz;
         pulses_[i].update(hz, dt_s);
         const float cx = xs[i];
         const float rad = std::round(0.45f * u);
