@@ -59,6 +59,7 @@ int main(int argc, char** argv) {
     ui::register_chord(app, run);
     ui::register_drift(app, run);
     ui::register_history(app, run);
+    ui::register_analyze(app, run);
 
     try {
         app.parse(argc, argv);

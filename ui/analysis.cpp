@@ -1,0 +1,183 @@
+// Analysis — see analysis.h.
+#include "ui/analysis.h"
+
+#include "pitch/drone_comb.h"
+#include "pitch/error.h"
+#include "pitch/text.h"
+#include "pitch/two_voice.h"
+#include "pitch/yin.h"
+
+#include <algorithm>
+#include <cmath>
+
+namespace beatless::ui {
+
+namespace {
+
+constexpr std::size_t kBlockFrames = 4096;
+
+// Updates the facts with one block starting at sample `first`.
+void observe(SignalFacts& f, std::span<const float> block, std::int64_t first, double rate_hz) {
+    double ss = 0.0;
+    for (std::size_t i = 0; i < block.size(); ++i) {
+        const double a = std::fabs(static_cast<double>(block[i]));
+        ss += a * a;
+        f.peak = std::max(f.peak, a);
+        if (a >= 0.999) {
+            if (f.clipped_samples == 0) f.first_clip_s = static_cast<double>(first + static_cast<std::int64_t>(i)) / rate_hz;
+            ++f.clipped_samples;
+        }
+    }
+    if (!block.empty()) {
+        const double rms = std::sqrt(ss / static_cast<double>(block.size()));
+        f.loudest_dbfs = std::max(f.loudest_dbfs, rms > 0.0 ? 20.0 * std::log10(rms) : -INFINITY);
+    }
+}
+
+void check_sound(const SignalFacts& f, const std::string& path) {
+    if (!(f.loudest_dbfs >= kSilenceDbfs))
+        throw Error(path + ": silent (no sound above " + pitch::format_trimmed(kSilenceDbfs, 0) + " dBFS); nothing to analyse");
+}
+
+// Reports progress at most every 1/200 of the job.
+class Ticker {
+public:
+    Ticker(const ProgressFn& fn, double len_frames, int passes) : fn_(fn), len_(std::max(1.0, len_frames)), passes_(passes) {}
+    void at(int pass, std::int64_t pos, const char* stage) {
+        if (!fn_) return;
+        const double f = std::min(1.0, (pass + static_cast<double>(pos) / len_) / passes_);
+        if (f - last_ < 0.005 && f < 1.0) return;
+        last_ = f;
+        fn_(f, stage);
+    }
+
+private:
+    const ProgressFn& fn_;
+    double len_;
+    int passes_;
+    double last_ = -1.0;
+};
+
+pitch::RootEstimate find_root(const AnalysisRequest& req, Ticker& tick) {
+    audio::SoundReader reader(req.path, req.channel, kBlockFrames);
+    pitch::RootDetectConfig rc;
+    rc.sample_rate_hz = reader.info().sample_rate_hz;
+    rc.silence_dbfs = kSilenceDbfs;
+    pitch::RootDetector rd(rc);
+    for (auto block = reader.read(); !block.empty(); block = reader.read()) {
+        rd.push(block);
+        tick.at(0, reader.position_frames(), "finding the root");
+    }
+    const pitch::RootEstimate e = rd.estimate();
+    if (e.status == pitch::RootStatus::no_sound)
+        throw Error(req.path + ": silent (no sound above " + pitch::format_trimmed(kSilenceDbfs, 0) + " dBFS); nothing to analyse");
+    if (!e.found())
+        throw Error(req.path + ": no steady drone or pedal tone found (best candidate " + pitch::format_trimmed(e.root_hz, 2) +
+                    " Hz, confidence " + pitch::format_trimmed(e.confidence, 2) + " below " +
+                    pitch::format_trimmed(rc.min_confidence, 2) + "); give --root NOTE|HZ");
+    return e;
+}
+
+}  // namespace
+
+OneVoiceAnalysis analyze_one_voice(const AnalysisRequest& req, const ProgressFn& progress) {
+    OneVoiceAnalysis out;
+    {
+        audio::SoundReader probe(req.path, req.channel, 1);
+        out.info = probe.info();
+    }
+    const int passes = req.root_hz ? 1 : 2;
+    Ticker tick(progress, static_cast<double>(out.info.len_frames), passes);
+    out.root_given = req.root_hz.has_value();
+    if (req.root_hz) {
+        out.root_hz = *req.root_hz;
+    } else {
+        out.root = find_root(req, tick);
+        out.root_hz = out.root.root_hz;
+    }
+    const double rate = out.info.sample_rate_hz;
+
+    audio::SoundReader reader(req.path, req.channel, kBlockFrames);
+    pitch::DroneComb comb({.sample_rate_hz = rate, .root_hz = out.root_hz});
+    pitch::YinConfig yc;
+    yc.sample_rate_hz = rate;
+    yc.silence_dbfs = kSilenceDbfs;
+    yc.max_block_len_samples = kBlockFrames;
+    pitch::YinTracker yin(yc);
+    out.hop_s = yin.hop_s();
+    pitch::SegmentConfig sc;
+    sc.root_hz = out.root_hz;
+    sc.hop_s = out.hop_s;
+    pitch::NoteSegmenter seg(sc, req.targets);
+    pitch::NoteSummary summary(req.targets);
+    std::vector<float> filtered(kBlockFrames);
+    pitch::PitchFrame frame;
+    pitch::NoteResult note;
+    auto keep = [&](const pitch::NoteResult& n) {
+        out.notes.push_back(n);
+        summary.add(n);
+    };
+    for (auto block = reader.read(); !block.empty(); block = reader.read()) {
+        observe(out.facts, block, reader.position_frames() - static_cast<std::int64_t>(block.size()), rate);
+        const std::span<float> y(filtered.data(), block.size());
+        comb.process(block, y);
+        yin.push(y);
+        while (yin.pull(frame)) {
+            if (req.keep_trace) {
+                const bool v = frame.voiced() && frame.confidence >= sc.min_confidence;
+                out.trace.push(frame.t_s, v ? 1200.0 * std::log2(frame.f0_hz / out.root_hz) : 0.0, v);
+            }
+            if (seg.push(frame, note)) keep(note);
+        }
+        tick.at(passes - 1, reader.position_frames(), "tracking notes");
+    }
+    if (seg.finish(note)) keep(note);
+    check_sound(out.facts, req.path);
+    out.summary = summary.rows();
+    out.short_notes_dropped = seg.short_notes_dropped();
+    return out;
+}
+
+TwoVoiceAnalysis analyze_two_voices(const AnalysisRequest& req, const ProgressFn& progress) {
+    TwoVoiceAnalysis out;
+    audio::SoundReader reader(req.path, req.channel, kBlockFrames);
+    out.info = reader.info();
+    const double rate = out.info.sample_rate_hz;
+    Ticker tick(progress, static_cast<double>(out.info.len_frames), 1);
+    pitch::TwoVoiceConfig tc;
+    tc.sample_rate_hz = rate;
+    tc.silence_dbfs = kSilenceDbfs;
+    tc.max_block_len_samples = kBlockFrames;
+    pitch::TwoVoiceTracker tv(tc, req.targets);
+    out.hop_s = static_cast<double>(tv.hop_len_samples()) / rate;
+    pitch::DyadSegmentConfig dc;
+    dc.hop_s = out.hop_s;
+    dc.edge_s = 0.5 * static_cast<double>(tv.window_len_samples()) / rate;
+    pitch::DyadSegmenter seg(dc, req.targets);
+    pitch::NoteSummary summary(req.targets);
+    pitch::TwoVoiceFrame frame;
+    pitch::DyadResult dyad;
+    auto keep = [&](const pitch::DyadResult& d) {
+        out.dyads.push_back(d);
+        summary.add(d.target_index, d.dev_cents);
+    };
+    for (auto block = reader.read(); !block.empty(); block = reader.read()) {
+        observe(out.facts, block, reader.position_frames() - static_cast<std::int64_t>(block.size()), rate);
+        tv.push(block);
+        while (tv.pull(frame)) {
+            if (req.keep_trace) {
+                const bool v = frame.voices == 2 && frame.confidence >= dc.min_confidence;
+                out.trace.push(frame.t_s, v ? frame.interval_cents : 0.0, v);
+            }
+            if (seg.push(frame, dyad)) keep(dyad);
+        }
+        tick.at(0, reader.position_frames(), "tracking two voices");
+    }
+    if (seg.finish(dyad)) keep(dyad);
+    check_sound(out.facts, req.path);
+    out.summary = summary.rows();
+    out.short_dyads_dropped = seg.short_dyads_dropped();
+    return out;
+}
+
+}  // namespace beatless::ui
