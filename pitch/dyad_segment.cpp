@@ -4,7 +4,7 @@
 // the open dyad; any other frame is a gap, and a gap longer than max_gap_s
 // closes it. (2) Each voice's pitch in cents has a trailing mean over
 // smooth_s; while both means stay within change_cents of the dyad's level
-// (the last trailing means that did) the dyad holds; when either leaves for
+// (the mean of its frames so far, departures left out) the dyad holds; when either leaves for
 // change_s, the dyad is cut half a smoothing window before the departure
 // began, and the frames after the cut start the next one. (3) Dyads shorter
 // than min_dyad_s are dropped. (4) The measurement uses the frames at least
@@ -101,8 +101,14 @@ bool DyadSegmenter::push(const TwoVoiceFrame& f, DyadResult& out) noexcept {
 
     const double s_lo = sum_lo_ / static_cast<double>(smooth_n_), s_hi = sum_hi_ / static_cast<double>(smooth_n_);
     if (std::isnan(anchor_lo_)) {
-        anchor_lo_ = s_lo;
-        anchor_hi_ = s_hi;
+        level_lo_ = level_hi_ = 0.0;
+        for (std::size_t i = 0; i < n_; ++i) {
+            level_lo_ += lo_[i];
+            level_hi_ += hi_[i];
+        }
+        level_n_ = n_;
+        anchor_lo_ = level_lo_ / static_cast<double>(level_n_);
+        anchor_hi_ = level_hi_ / static_cast<double>(level_n_);
         return false;
     }
     if (departed(s_lo, anchor_lo_) || departed(s_hi, anchor_hi_)) {
@@ -113,8 +119,11 @@ bool DyadSegmenter::push(const TwoVoiceFrame& f, DyadResult& out) noexcept {
         }
     } else {
         depart_frames_ = 0;
-        anchor_lo_ = s_lo;
-        anchor_hi_ = s_hi;
+        level_lo_ += lo_[n_ - 1];
+        level_hi_ += hi_[n_ - 1];
+        ++level_n_;
+        anchor_lo_ = level_lo_ / static_cast<double>(level_n_);
+        anchor_hi_ = level_hi_ / static_cast<double>(level_n_);
     }
     return false;
 }

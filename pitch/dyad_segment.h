@@ -4,11 +4,12 @@
 // each held interval as it ends, the way NoteSegmenter (pitch/segment.h)
 // does for one voice: a dyad starts at the first two-voice frame, ends at a
 // gap longer than max_gap_s, or splits where either voice's trailing mean
-// leaves the dyad's level by more than change_cents for change_s; short
-// dyads are dropped. Per dyad, over the frames whose analysis window lies
-// inside it: both f0s, the interval's mean and spread, the nearest target
-// and deviation, the beat rate the f0s predict, |q f_high - p f_low|
-// (Helmholtz; pitch/beats.h), and the rate measured from the partials.
+// leaves the dyad's level (its mean so far) by more than change_cents for
+// change_s; short dyads are dropped. Per dyad, over the frames whose
+// analysis window lies inside it: both f0s, the interval's mean and
+// spread, the nearest target and deviation, the beat rate the f0s
+// predict, |q f_high - p f_low| (Helmholtz; pitch/beats.h), and the rate
+// measured from the partials.
 // Memory is bounded by max_dyad_s; push() never allocates.
 #pragma once
 
@@ -90,7 +91,9 @@ private:
     double last_t_ = -1e300;
     std::size_t smooth_n_ = 1;
     double sum_lo_ = 0.0, sum_hi_ = 0.0;   // trailing sums over smooth_n_ frames
-    double anchor_lo_ = NAN, anchor_hi_ = NAN;
+    double anchor_lo_ = NAN, anchor_hi_ = NAN;  // the dyad's level per voice
+    double level_lo_ = 0.0, level_hi_ = 0.0;    // sums behind the level ...
+    std::size_t level_n_ = 0;                   // ... over this many frames
     std::size_t depart_from_ = 0;
     std::size_t depart_frames_ = 0;
     std::size_t dropped_short_ = 0;

@@ -8,7 +8,10 @@
 #include "pitch/yin.h"
 
 #include <algorithm>
+#include <array>
 #include <cmath>
+#include <memory>
+#include <optional>
 
 namespace beatless::ui {
 
@@ -34,6 +37,29 @@ void observe(SignalFacts& f, std::span<const float> block, std::int64_t first, d
     }
 }
 
+// Clipped samples per block over the last ~95 s (more than a note may last),
+// so each note can say whether it was clipped without keeping the file.
+class ClipHistory {
+public:
+    void add(std::int64_t first_sample, std::size_t len, std::int64_t clipped) {
+        blocks_[head_ % kLen] = {first_sample, first_sample + static_cast<std::int64_t>(len), clipped};
+        ++head_;
+    }
+    std::int64_t between(double t0_s, double t1_s, double rate_hz) const {
+        const auto a = static_cast<std::int64_t>(std::floor(t0_s * rate_hz)), b = static_cast<std::int64_t>(std::ceil(t1_s * rate_hz));
+        std::int64_t n = 0;
+        for (std::size_t i = 0; i < std::min(head_, kLen); ++i)
+            if (blocks_[i].end > a && blocks_[i].begin < b) n += blocks_[i].clipped;
+        return n;
+    }
+
+private:
+    struct Block { std::int64_t begin = 0, end = 0, clipped = 0; };
+    static constexpr std::size_t kLen = 1024;
+    std::array<Block, kLen> blocks_{};
+    std::size_t head_ = 0;
+};
+
 void check_sound(const SignalFacts& f, const std::string& path) {
     if (!(f.loudest_dbfs >= kSilenceDbfs))
         throw Error(path + ": silent (no sound above " + pitch::format_trimmed(kSilenceDbfs, 0) + " dBFS); nothing to analyse");
@@ -58,7 +84,7 @@ private:
     double last_ = -1.0;
 };
 
-pitch::RootEstimate find_root(const AnalysisRequest& req, Ticker& tick) {
+pitch::RootEstimate find_drone(const AnalysisRequest& req, Ticker& tick) {
     audio::SoundReader reader(req.path, req.channel, kBlockFrames);
     pitch::RootDetectConfig rc;
     rc.sample_rate_hz = reader.info().sample_rate_hz;
@@ -71,7 +97,7 @@ pitch::RootEstimate find_root(const AnalysisRequest& req, Ticker& tick) {
     const pitch::RootEstimate e = rd.estimate();
     if (e.status == pitch::RootStatus::no_sound)
         throw Error(req.path + ": silent (no sound above " + pitch::format_trimmed(kSilenceDbfs, 0) + " dBFS); nothing to analyse");
-    if (!e.found())
+    if (!e.found() && !req.root_hz)
         throw Error(req.path + ": no steady drone or pedal tone found (best candidate " + pitch::format_trimmed(e.root_hz, 2) +
                     " Hz, confidence " + pitch::format_trimmed(e.confidence, 2) + " below " +
                     pitch::format_trimmed(rc.min_confidence, 2) + "); give --root NOTE|HZ");
@@ -86,19 +112,19 @@ OneVoiceAnalysis analyze_one_voice(const AnalysisRequest& req, const ProgressFn&
         audio::SoundReader probe(req.path, req.channel, 1);
         out.info = probe.info();
     }
-    const int passes = req.root_hz ? 1 : 2;
+    const int passes = 2;
     Ticker tick(progress, static_cast<double>(out.info.len_frames), passes);
     out.root_given = req.root_hz.has_value();
-    if (req.root_hz) {
-        out.root_hz = *req.root_hz;
-    } else {
-        out.root = find_root(req, tick);
-        out.root_hz = out.root.root_hz;
-    }
+    out.root = find_drone(req, tick);
+    out.root_hz = req.root_hz ? *req.root_hz : out.root.root_hz;
     const double rate = out.info.sample_rate_hz;
+    std::optional<pitch::DroneComb> comb;
+    if (out.root.found() && out.root.root_hz >= 20.0 && out.root.root_hz <= rate / 8.0) {
+        out.drone_hz = out.root.root_hz;
+        comb.emplace(pitch::DroneCombConfig{.sample_rate_hz = rate, .root_hz = out.drone_hz});
+    }
 
     audio::SoundReader reader(req.path, req.channel, kBlockFrames);
-    pitch::DroneComb comb({.sample_rate_hz = rate, .root_hz = out.root_hz});
     pitch::YinConfig yc;
     yc.sample_rate_hz = rate;
     yc.silence_dbfs = kSilenceDbfs;
@@ -113,15 +139,26 @@ OneVoiceAnalysis analyze_one_voice(const AnalysisRequest& req, const ProgressFn&
     std::vector<float> filtered(kBlockFrames);
     pitch::PitchFrame frame;
     pitch::NoteResult note;
+    auto clips = std::make_unique<ClipHistory>();
+    // A frame hears half the tracker's span on each side of its time.
+    const double reach_s = 0.5 * yc.span_s;
     auto keep = [&](const pitch::NoteResult& n) {
         out.notes.push_back(n);
+        out.notes_clipped.push_back(clips->between(n.start_s - reach_s, n.end_s + reach_s, rate));
         summary.add(n);
     };
     for (auto block = reader.read(); !block.empty(); block = reader.read()) {
-        observe(out.facts, block, reader.position_frames() - static_cast<std::int64_t>(block.size()), rate);
-        const std::span<float> y(filtered.data(), block.size());
-        comb.process(block, y);
-        yin.push(y);
+        const std::int64_t first = reader.position_frames() - static_cast<std::int64_t>(block.size());
+        const std::int64_t clipped_before = out.facts.clipped_samples;
+        observe(out.facts, block, first, rate);
+        clips->add(first, block.size(), out.facts.clipped_samples - clipped_before);
+        if (comb) {
+            const std::span<float> y(filtered.data(), block.size());
+            comb->process(block, y);
+            yin.push(y);
+        } else {
+            yin.push(block);
+        }
         while (yin.pull(frame)) {
             if (req.keep_trace) {
                 const bool v = frame.voiced() && frame.confidence >= sc.min_confidence;

@@ -1,9 +1,11 @@
 // Analysis — the passes `beatless analyze` makes over a sound file.
 //
-// One voice against a drone: (1) unless the root is given, a first streamed
-// pass finds it (pitch/root_detect.h); (2) a second pass removes the drone
-// with a comb on its harmonics (pitch/drone_comb.h), tracks the voice
-// (pitch/yin.h) and cuts it into held notes (pitch/segment.h). Two voices
+// One voice against a drone: (1) a first streamed pass finds the drone
+// (pitch/root_detect.h), which is the root unless one is given; (2) a second
+// pass removes the drone with a comb on its harmonics (pitch/drone_comb.h),
+// tracks the voice (pitch/yin.h) and cuts it into held notes against the
+// root (pitch/segment.h). A given root is only the reference: the comb
+// follows the drone actually found, and there is no comb without one. Two voices
 // from one microphone: one pass of pitch/two_voice.h into held dyads
 // (pitch/dyad_segment.h). Memory does not grow with the file: blocks are
 // streamed, the report's trace is decimated (pitch/decimated_trace.h), and
@@ -49,10 +51,12 @@ struct SignalFacts {
 struct OneVoiceAnalysis {
     audio::SoundInfo info;
     bool root_given = false;
-    pitch::RootEstimate root;            // the detection (when not given)
+    pitch::RootEstimate root;            // the drone detection (status may be no_steady_root when a root is given)
     double root_hz = 0.0;                // the root the notes are measured against
+    double drone_hz = 0.0;               // the drone the comb removed, 0 when none was found
     double hop_s = 0.0;                  // tracker hop
     std::vector<pitch::NoteResult> notes;
+    std::vector<std::int64_t> notes_clipped;   // per note: samples at full scale during it
     std::vector<pitch::TargetSummary> summary;
     std::size_t short_notes_dropped = 0;
     SignalFacts facts;
@@ -70,7 +74,7 @@ struct TwoVoiceAnalysis {
 };
 
 // Throws Error: file problems (audio/soundfile.h), "FILE: silent ...", and
-// for a root to be found "FILE: no steady drone or pedal tone found ...".
+// when the root is to be found "FILE: no steady drone or pedal tone found ...".
 OneVoiceAnalysis analyze_one_voice(const AnalysisRequest& request, const ProgressFn& progress = {});
 TwoVoiceAnalysis analyze_two_voices(const AnalysisRequest& request, const ProgressFn& progress = {});
 

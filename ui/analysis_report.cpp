@@ -33,6 +33,7 @@ constexpr ImU32 kGrid = rgba(228, 228, 234);
 constexpr ImU32 kTargetUsed = rgba(60, 60, 80);
 constexpr ImU32 kTargetOther = rgba(170, 170, 182);
 constexpr ImU32 kTrace = rgba(35, 70, 140);
+constexpr double kJoinCents = 60.0;  // larger jumps between neighbouring points are not joined by a line
 
 // ---------------------------------------------------------------------------
 // 1. Page geometry and the cents range in view
@@ -246,8 +247,9 @@ void draw_trace(const Ink& ink, const ReportData& d, const ReportLayout& l) {
                 prev = NAN;
                 continue;
             }
-            const double hi = std::isnan(prev) ? p.max_cents : std::max(p.max_cents, prev);
-            const double lo = std::isnan(prev) ? p.min_cents : std::min(p.min_cents, prev);
+            const bool join = !std::isnan(prev) && std::fabs(prev - p.mean_cents) <= kJoinCents;
+            const double hi = join ? std::max(p.max_cents, prev) : p.max_cents;
+            const double lo = join ? std::min(p.min_cents, prev) : p.min_cents;
             const float x = l.x_of(p.t_s);
             const float ya = l.y_of(hi), yb = std::max(l.y_of(lo), ya + 1.5f);
             dl->AddLine(ImVec2(x, ya), ImVec2(x, yb), kTrace, 1.5f);
@@ -256,6 +258,7 @@ void draw_trace(const Ink& ink, const ReportData& d, const ReportLayout& l) {
         return;
     }
     std::vector<ImVec2> run;
+    double prev = NAN;
     auto flush = [&] {
         if (run.size() >= 2) dl->AddPolyline(run.data(), static_cast<int>(run.size()), kTrace, ImDrawFlags_None, 2.0f);
         else if (run.size() == 1) dl->AddCircleFilled(run[0], 1.5f, kTrace);
@@ -267,7 +270,10 @@ void draw_trace(const Ink& ink, const ReportData& d, const ReportLayout& l) {
             flush();
             continue;
         }
-        run.push_back(ImVec2(l.x_of(p.t_s), l.y_of(p.mean_cents)));
+        const ImVec2 v(l.x_of(p.t_s), l.y_of(p.mean_cents));
+        if (!run.empty() && std::fabs(p.mean_cents - prev) > kJoinCents) flush();
+        run.push_back(v);
+        prev = p.mean_cents;
     }
     flush();
 }

@@ -92,8 +92,10 @@ std::string root_words(const OneVoiceAnalysis& a, double a4_hz) {
     const double off = std::fabs(n.offset_cents) < 0.05 ? 0.0 : n.offset_cents;  // no "-0.0"
     std::snprintf(buf, sizeof buf, "root %.3f Hz (%s %+.1f c)", a.root_hz, n.name.c_str(), off);
     std::string s = buf;
-    if (a.root_given) s += ", as given";
-    else s += ", found in the file: confidence " + pitch::format_trimmed(a.root.confidence, 2);
+    if (!a.root_given) return s + ", found in the file: confidence " + pitch::format_trimmed(a.root.confidence, 2);
+    s += ", as given";
+    if (a.drone_hz > 0.0) s += "; drone in the file at " + pitch::format_trimmed(a.drone_hz, 3) + " Hz";
+    else s += "; no steady drone in the file";
     return s;
 }
 
@@ -165,10 +167,13 @@ void print_one_voice(const AnalyzeOptions& o, const pitch::TargetSet& set, const
         if (a.root_given) j.key("root_confidence").null();
         else j.key("root_confidence").value(a.root.confidence, 3);
         j.key("root_source").value(a.root_given ? "given" : "detected");
+        if (a.drone_hz > 0.0) j.key("drone_hz").value(a.drone_hz, 4);
+        else j.key("drone_hz").null();
         j.key("targets").value(set.id).key("hop_s").value(a.hop_s, 7);
         j.key("clipped_samples").value(static_cast<std::int64_t>(a.facts.clipped_samples));
         j.key("notes").begin_array();
-        for (const auto& n : notes) {
+        for (std::size_t i = 0; i < notes.size(); ++i) {
+            const pitch::NoteResult& n = notes[i];
             j.begin_object().key("start_s").value(n.start_s, 4).key("end_s").value(n.end_s, 4);
             j.key("f0_hz").value(n.centre_f0_hz, 4).key("ratio").value(n.ratio, 6);
             j.key("target").value(target_text(set, n.target_index)).key("target_name").value(target_name(set, n.target_index));
@@ -178,7 +183,7 @@ void print_one_voice(const AnalyzeOptions& o, const pitch::TargetSet& set, const
             j.key("partial_root").value(n.partial_root).key("partial_voice").value(n.partial_voice);
             j.key("vibrato_hz").value(n.vibrato ? n.vibrato_rate_hz : 0.0, 2);
             j.key("vibrato_cents").value(n.vibrato ? n.vibrato_depth_cents : 0.0, 2);
-            j.key("frames").value(n.frames).end_object();
+            j.key("frames").value(n.frames).key("clipped").value(a.notes_clipped[i] > 0).end_object();
         }
         j.end_array();
         add_summary_json(j, set, a.summary, false);
@@ -210,14 +215,16 @@ void print_one_voice(const AnalyzeOptions& o, const pitch::TargetSet& set, const
     std::printf("%4s %8s %8s %10s %8s  %-12s %-24s %8s %8s %8s %8s\n", "#", "start s", "end s", "f0 Hz", "ratio", "target",
                 "name", "dev c", "spread c", "settle s", "beat Hz");
     int k = 0;
-    for (const auto& n : notes) {
+    for (std::size_t i = 0; i < notes.size(); ++i) {
+        const pitch::NoteResult& n = notes[i];
         std::string tgt = target_text(set, n.target_index);
         if (n.target_octaves != 0) tgt += (n.target_octaves > 0 ? " +" : " ") + std::to_string(n.target_octaves) + "oct";
         std::string name = target_name(set, n.target_index);
         if (name.size() > 24) name = name.substr(0, 23) + "~";
         const std::string settle = std::isfinite(n.settle_s) ? pitch::format_trimmed(n.settle_s, 2) : "never";
-        std::printf("%4d %8.3f %8.3f %10.3f %8.4f  %-12s %-24s %+8.1f %8.1f %8s %8.2f\n", ++k, n.start_s, n.end_s,
-                    n.centre_f0_hz, n.ratio, tgt.c_str(), name.c_str(), n.dev_cents, n.spread_cents, settle.c_str(), n.beat_hz);
+        std::printf("%4d %8.3f %8.3f %10.3f %8.4f  %-12s %-24s %+8.1f %8.1f %8s %8.2f%s\n", ++k, n.start_s, n.end_s,
+                    n.centre_f0_hz, n.ratio, tgt.c_str(), name.c_str(), n.dev_cents, n.spread_cents, settle.c_str(), n.beat_hz,
+                    a.notes_clipped[i] > 0 ? "  clipped" : "");
     }
     std::printf("\ndev: vibrato centre minus target (+ sharp); spread: standard deviation of the held pitch;\n"
                 "settle: onset until the centre stays within 5 cents; beat: the coinciding partials' beat rate.\n");
