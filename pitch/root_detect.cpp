@@ -149,7 +149,7 @@ void RootDetector::process_frame(std::size_t valid) noexcept {
         if (prev_valid_) {
             const std::complex<double> y(prev_[k]);
             cross_[k] += x * std::conj(y);
-            cross_mag_[k] += std::abs(x) * std::abs(y);
+            cross_mag_[k] += std::sqrt(p * std::norm(y));  // |x| |y| without two hypot() calls
         }
     }
     // Clear peaks: local maxima 15 dB over this frame's median bin power.

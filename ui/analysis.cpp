@@ -1,6 +1,7 @@
 // Analysis — see analysis.h.
 #include "ui/analysis.h"
 
+#include "pitch/decimator.h"
 #include "pitch/drone_comb.h"
 #include "pitch/error.h"
 #include "pitch/text.h"
@@ -18,6 +19,9 @@ namespace beatless::ui {
 namespace {
 
 constexpr std::size_t kBlockFrames = 4096;
+// Tracker hop for notes: 10 ms still samples a 10 Hz vibrato ten times a
+// cycle, and halves the tracker's share of the time (`track` keeps 5 ms).
+constexpr double kNoteHopS = 0.01;
 
 // Updates the facts with one block starting at sample `first`.
 void observe(SignalFacts& f, std::span<const float> block, std::int64_t first, double rate_hz) {
@@ -84,14 +88,50 @@ private:
     double last_ = -1.0;
 };
 
+// Streams a signal through pitch/decimator.h: output m is centred on input m * factor.
+class StreamDecimator {
+public:
+    explicit StreamDecimator(std::size_t factor) : d_(factor), half_(d_.half_len()) {
+        buf_.assign(half_, 0.0f);  // zeros before the first sample
+        buf_.reserve(kBlockFrames + 2 * half_ + 1);
+        out_.reserve(kBlockFrames / factor + 2);
+    }
+    std::span<const float> push(std::span<const float> in) {
+        buf_.insert(buf_.end(), in.begin(), in.end());
+        out_.clear();
+        const auto f = static_cast<std::int64_t>(d_.factor()), h = static_cast<std::int64_t>(half_);
+        const auto end = start_ + static_cast<std::int64_t>(buf_.size());
+        for (; next_ * f + h < end; ++next_) out_.push_back(d_.at(buf_.data() + (next_ * f - h - start_)));
+        const std::int64_t keep_from = next_ * f - h - start_;
+        buf_.erase(buf_.begin(), buf_.begin() + keep_from);
+        start_ += keep_from;
+        return out_;
+    }
+
+private:
+    pitch::Decimator d_;
+    std::size_t half_;
+    std::vector<float> buf_;
+    std::vector<float> out_;
+    std::int64_t start_ = -static_cast<std::int64_t>(half_);  // input index of buf_[0]
+    std::int64_t next_ = 0;                                  // next output index
+};
+
 pitch::RootEstimate find_drone(const AnalysisRequest& req, Ticker& tick) {
     audio::SoundReader reader(req.path, req.channel, kBlockFrames);
+    // The detector reads nothing above 8 kHz (RootDetectConfig::max_freq_hz),
+    // so it runs at the lowest integer fraction of the rate that keeps the
+    // decimator's passband (0.4 of the new rate) above that: half for 44.1
+    // and 48 kHz, which halves its FFTs.
+    const double rate = reader.info().sample_rate_hz;
+    const auto factor = static_cast<std::size_t>(std::max(1.0, std::floor(rate / 20000.0)));
     pitch::RootDetectConfig rc;
-    rc.sample_rate_hz = reader.info().sample_rate_hz;
+    rc.sample_rate_hz = rate / static_cast<double>(factor);
     rc.silence_dbfs = kSilenceDbfs;
     pitch::RootDetector rd(rc);
+    StreamDecimator dec(factor);
     for (auto block = reader.read(); !block.empty(); block = reader.read()) {
-        rd.push(block);
+        rd.push(factor > 1 ? dec.push(block) : block);
         tick.at(0, reader.position_frames(), "finding the root");
     }
     const pitch::RootEstimate e = rd.estimate();
@@ -129,6 +169,7 @@ OneVoiceAnalysis analyze_one_voice(const AnalysisRequest& req, const ProgressFn&
     yc.sample_rate_hz = rate;
     yc.silence_dbfs = kSilenceDbfs;
     yc.max_block_len_samples = kBlockFrames;
+    yc.hop_s = kNoteHopS;
     pitch::YinTracker yin(yc);
     out.hop_s = yin.hop_s();
     pitch::SegmentConfig sc;
