@@ -147,20 +147,11 @@ TEST_CASE("text, CSV, a target file and a given root") {
 
 TEST_CASE("two voices from one microphone: held intervals at and off just ratios, equal and unequal loudness") {
     TempDir dir;
-    struct Dyad { int p, q; double off, lo_level, hi_level, f_low; };
-    const Dyad truth[] = {{3, 2, 3, 0.2, 0.2, 196}, {5, 4, -3, 0.2, 0.08, 220}, {7, 4, 7, 0.08, 0.2, 150},
-                          {6, 5, -7, 0.2, 0.2, 247}, {4, 3, 12, 0.2, 0.06, 180}, {7, 5, -12, 0.15, 0.15, 200}, {5, 3, 0, 0.2, 0.2, 165}};
+    std::vector<HeldDyad> truth = {{3, 2, 3, 0.2, 0.2, 196}, {5, 4, -3, 0.2, 0.08, 220}, {7, 4, 7, 0.08, 0.2, 150},
+                                   {6, 5, -7, 0.2, 0.2, 247}, {4, 3, 12, 0.2, 0.06, 180}, {7, 5, -12, 0.15, 0.15, 200},
+                                   {5, 3, 0, 0.2, 0.2, 165}};
     // Held 3.2 s: long enough for a beat of one per second to show whole cycles.
-    const double note = 3.2, rest = 0.3;
-    std::vector<float> x(static_cast<std::size_t>((0.3 + 7 * (note + rest)) * kFs), 0.0f);
-    double t = 0.3;
-    for (const Dyad& d : truth) {
-        const double fh = d.f_low * d.p / d.q * std::exp2(d.off / 1200.0);
-        add_tone(x, kFs, d.f_low, t, t + note, d.lo_level, rolloff(10));
-        add_tone(x, kFs, fh, t, t + note, d.hi_level, rolloff(10), {0.5, 1, 1.5, 2, 2.5, 3, 0.2, 0.4, 0.6, 0.8});
-        t += note + rest;
-    }
-    add_noise(x, 1e-3, 11);
+    const auto x = held_dyads(kFs, truth, 3.2, 0.3, 1e-3, 11);
     const std::string wav = dir.file("duo.wav");
     write(wav, x);
     const auto r = run_program({"analyze", wav, "--voices", "2", "--format", "json"});
@@ -175,16 +166,16 @@ TEST_CASE("two voices from one microphone: held intervals at and off just ratios
     const auto measured = numbers(r.out, "[n['measured_beat_hz'] for n in d['intervals']]");
     REQUIRE(target.size() == 7);
     for (std::size_t i = 0; i < 7; ++i) {
-        const Dyad& d = truth[i];
+        const HeldDyad& d = truth[i];
         CAPTURE(i);
         const beatless::pitch::Ratio ratio{d.p, d.q};
         CHECK(target[i] == ratio.str());
-        CHECK(std::fabs(dev[i] - d.off) < 1.0);
-        CHECK(std::fabs(cents(f_low[i], d.f_low)) < 1.0);
-        CHECK(std::fabs(cents(f_high[i], d.f_low * d.p / d.q * std::exp2(d.off / 1200.0))) < 1.0);
-        const double beat = beatless::pitch::beat_rate_at(d.f_low, ratio, d.off);
+        CHECK(std::fabs(dev[i] - d.off_cents) < 1.0);
+        CHECK(std::fabs(cents(f_low[i], d.f_low_hz)) < 1.0);
+        CHECK(std::fabs(cents(f_high[i], d.f_high_hz())) < 1.0);
+        const double beat = beatless::pitch::beat_rate_at(d.f_low_hz, ratio, d.off_cents);
         CHECK(std::fabs(predicted[i] - beat) <= std::max(0.02 * beat, 0.02));
-        MESSAGE(ratio.str() << " " << d.off << " c: predicted " << predicted[i] << " Hz, measured " << measured[i] << " Hz");
+        MESSAGE(ratio.str() << " " << d.off_cents << " c: predicted " << predicted[i] << " Hz, measured " << measured[i] << " Hz");
         CHECK(std::fabs(measured[i] - predicted[i]) <= std::max(0.1 * predicted[i], 0.2));
     }
     // The summary speaks of intervals, wide and narrow.

@@ -119,20 +119,11 @@ TEST_CASE("frequency-difference beats: the median of the dyad's measurements") {
 
 TEST_CASE("the real two-voice tracker: held double stops at and off just ratios, equal and unequal loudness") {
     const TargetSet set = duo_set();
-    struct Dyad { double p, q, off, lo_level, hi_level, f_low; };
-    const Dyad truth[] = {{3, 2, 0, 0.2, 0.2, 196}, {5, 4, 3, 0.2, 0.1, 220}, {7, 4, -7, 0.1, 0.2, 150},
-                          {6, 5, 12, 0.2, 0.2, 247}, {4, 3, -3, 0.2, 0.05, 180}, {7, 5, -12, 0.15, 0.15, 200},
-                          {5, 3, 7, 0.2, 0.07, 160}, {8, 5, -7, 0.07, 0.2, 190}};
-    const double note = 2.5, rest = 0.3;
-    std::vector<float> x(static_cast<std::size_t>((0.3 + 8 * (note + rest)) * kFs), 0.0f);
-    double t = 0.3;
-    for (const Dyad& d : truth) {
-        const double fh = d.f_low * d.p / d.q * std::exp2(d.off / 1200.0);
-        add_tone(x, kFs, d.f_low, t, t + note, d.lo_level, rolloff(10));
-        add_tone(x, kFs, fh, t, t + note, d.hi_level, rolloff(10), {0.5, 1, 1.5, 2, 2.5, 3, 0.2, 0.4, 0.6, 0.8});
-        t += note + rest;
-    }
-    add_noise(x, 1e-3, 5);
+    std::vector<HeldDyad> truth = {{3, 2, 0, 0.2, 0.2, 196}, {5, 4, 3, 0.2, 0.1, 220}, {7, 4, -7, 0.1, 0.2, 150},
+                                   {6, 5, 12, 0.2, 0.2, 247}, {4, 3, -3, 0.2, 0.05, 180}, {7, 5, -12, 0.15, 0.15, 200},
+                                   {5, 3, 7, 0.2, 0.07, 160}, {8, 5, -7, 0.07, 0.2, 190}};
+    const double note = 2.5;
+    const auto x = held_dyads(kFs, truth, note, 0.3, 1e-3, 5);
     TwoVoiceTracker tv({}, set);
     DyadSegmentConfig cfg;
     cfg.hop_s = static_cast<double>(tv.hop_len_samples()) / kFs;
@@ -148,25 +139,23 @@ TEST_CASE("the real two-voice tracker: held double stops at and off just ratios,
     }
     if (seg.finish(r)) found.push_back(r);
     REQUIRE(found.size() == 8);
-    t = 0.3;
     for (std::size_t i = 0; i < 8; ++i) {
-        const Dyad& d = truth[i];
+        const HeldDyad& d = truth[i];
         const DyadResult& y = found[i];
         CAPTURE(i);
-        const Ratio ratio{static_cast<std::int64_t>(d.p), static_cast<std::int64_t>(d.q)};
+        const Ratio ratio{d.p, d.q};
         CHECK(y.target_index == index_of(set, ratio.str().c_str()));
-        CHECK(std::fabs(y.dev_cents - d.off) < 1.0);
-        CHECK(std::fabs(1200.0 * std::log2(y.f_low_hz / d.f_low)) < 1.0);
-        CHECK(std::fabs(y.start_s - t) < 0.15);
-        CHECK(std::fabs(y.end_s - (t + note)) < 0.15);
-        const double beat = std::fabs(d.q * d.f_low * d.p / d.q * std::exp2(d.off / 1200.0) - d.p * d.f_low);
-        CHECK(beat == doctest::Approx(beat_rate_at(d.f_low, ratio, d.off)).epsilon(1e-9).scale(1e-12));
+        CHECK(std::fabs(y.dev_cents - d.off_cents) < 1.0);
+        CHECK(std::fabs(1200.0 * std::log2(y.f_low_hz / d.f_low_hz)) < 1.0);
+        CHECK(std::fabs(y.start_s - d.start_s) < 0.15);
+        CHECK(std::fabs(y.end_s - (d.start_s + note)) < 0.15);
+        const double beat = std::fabs(d.q * d.f_high_hz() - d.p * d.f_low_hz);
+        CHECK(beat == doctest::Approx(beat_rate_at(d.f_low_hz, ratio, d.off_cents)).epsilon(1e-9).scale(1e-12));
         CHECK(std::fabs(y.predicted_beat_hz - beat) <= std::max(0.02 * beat, 0.02));
-        if (d.off != 0.0) {
+        if (d.off_cents != 0.0) {
             CAPTURE(y.measured_beat_hz);
             CHECK(std::fabs(y.measured_beat_hz - beat) <= std::max(0.1 * beat, 0.2));
         }
-        t += note + rest;
     }
 }
 

@@ -154,6 +154,29 @@ void print_summary_text(const pitch::TargetSet& set, const std::vector<pitch::Ta
     }
 }
 
+// The report's targets, marks and summary rows from notes or dyads.
+template <class Item, class ToMark>
+ReportData report_of(const pitch::TargetSet& set, const std::vector<Item>& items,
+                     const std::vector<pitch::TargetSummary>& summary, bool dyads, ToMark to_mark) {
+    ReportData d;
+    std::vector<bool> used(set.targets.size(), false);
+    for (const Item& it : items) {
+        if (it.target_index >= 0) used[static_cast<std::size_t>(it.target_index)] = true;
+        d.marks.push_back(to_mark(it));
+    }
+    for (std::size_t i = 0; i < set.targets.size(); ++i)
+        d.targets.push_back({set.targets[i].interval.cents(), set.targets[i].interval.str(), target_name(set, static_cast<int>(i)), used[i]});
+    for (const auto& r : summary) {
+        const std::string ratio = target_text(set, r.target_index);
+        const std::string w = summary_words(r, ratio, dyads);
+        // The ratio and the count have their own columns: keep "averages 6 cents flat".
+        const std::size_t from = std::min(w.size(), ratio.size() + 1);
+        d.summary.push_back({ratio, target_name(set, r.target_index), r.count, r.mean_dev_cents, r.spread_cents,
+                             w.substr(from, w.find(" (") - from)});
+    }
+    return d;
+}
+
 // ---------------------------------------------------------------------------
 // One voice
 // ---------------------------------------------------------------------------
@@ -232,26 +255,15 @@ void print_one_voice(const AnalyzeOptions& o, const pitch::TargetSet& set, const
 }
 
 ReportData one_voice_report(const AnalyzeOptions& o, const pitch::TargetSet& set, const OneVoiceAnalysis& a) {
-    ReportData d;
+    ReportData d = report_of(set, a.notes, a.summary, false, [](const pitch::NoteResult& n) {
+        return ReportMark{n.start_s, n.end_s, n.cents_above_root, n.target_cents, n.dev_cents};
+    });
     d.title = base_name(o.file);
     d.subtitle = root_words(a, o.a4_hz) + "   \u00b7   targets: " + set.title + "   \u00b7   analysed " + today_text();
     d.axis_label = "cents above the root";
     d.mark_word = "note";
     d.dur_s = a.info.dur_s();
     d.trace = &a.trace;
-    std::vector<bool> used(set.targets.size(), false);
-    for (const auto& n : a.notes) {
-        if (n.target_index >= 0) used[static_cast<std::size_t>(n.target_index)] = true;
-        d.marks.push_back({n.start_s, n.end_s, n.cents_above_root, n.target_cents, n.dev_cents});
-    }
-    for (std::size_t i = 0; i < set.targets.size(); ++i)
-        d.targets.push_back({set.targets[i].interval.cents(), set.targets[i].interval.str(), target_name(set, static_cast<int>(i)), used[i]});
-    for (const auto& r : a.summary) {
-        const std::string ratio = target_text(set, r.target_index);
-        std::string w = summary_words(r, ratio, false);
-        w = w.substr(std::min(w.size(), ratio.size() + 1), w.find(" (") - std::min(w.size(), ratio.size() + 1));  // the ratio and count have their own columns
-        d.summary.push_back({ratio, target_name(set, r.target_index), r.count, r.mean_dev_cents, r.spread_cents, w});
-    }
     return d;
 }
 
@@ -331,26 +343,15 @@ void print_two_voices(const AnalyzeOptions& o, const pitch::TargetSet& set, cons
 }
 
 ReportData two_voice_report(const AnalyzeOptions& o, const pitch::TargetSet& set, const TwoVoiceAnalysis& a) {
-    ReportData d;
+    ReportData d = report_of(set, a.dyads, a.summary, true, [](const pitch::DyadResult& y) {
+        return ReportMark{y.start_s, y.end_s, y.interval_cents, y.target_cents, y.dev_cents};
+    });
     d.title = base_name(o.file);
     d.subtitle = "two voices   \u00b7   targets: " + set.title + "   \u00b7   analysed " + today_text();
     d.axis_label = "cents above the low voice";
     d.mark_word = "interval";
     d.dur_s = a.info.dur_s();
     d.trace = &a.trace;
-    std::vector<bool> used(set.targets.size(), false);
-    for (const auto& y : a.dyads) {
-        if (y.target_index >= 0) used[static_cast<std::size_t>(y.target_index)] = true;
-        d.marks.push_back({y.start_s, y.end_s, y.interval_cents, y.target_cents, y.dev_cents});
-    }
-    for (std::size_t i = 0; i < set.targets.size(); ++i)
-        d.targets.push_back({set.targets[i].interval.cents(), set.targets[i].interval.str(), target_name(set, static_cast<int>(i)), used[i]});
-    for (const auto& r : a.summary) {
-        const std::string ratio = target_text(set, r.target_index);
-        std::string w = summary_words(r, ratio, true);
-        w = w.substr(std::min(w.size(), ratio.size() + 1), w.find(" (") - std::min(w.size(), ratio.size() + 1));
-        d.summary.push_back({ratio, target_name(set, r.target_index), r.count, r.mean_dev_cents, r.spread_cents, w});
-    }
     return d;
 }
 
