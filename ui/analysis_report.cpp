@@ -33,6 +33,7 @@ constexpr ImU32 kGrid = rgba(228, 228, 234);
 constexpr ImU32 kTargetUsed = rgba(60, 60, 80);
 constexpr ImU32 kTargetOther = rgba(170, 170, 182);
 constexpr ImU32 kTrace = rgba(35, 70, 140);
+constexpr ImU32 kTraceDense = rgba(150, 170, 210);  // a band of many frames per pixel: lighter, so the bars stand out
 constexpr double kJoinCents = 60.0;  // larger jumps between neighbouring points are not joined by a line
 
 // ---------------------------------------------------------------------------
@@ -252,7 +253,7 @@ void draw_trace(const Ink& ink, const ReportData& d, const ReportLayout& l) {
             const double lo = join ? std::min(p.min_cents, prev) : p.min_cents;
             const float x = l.x_of(p.t_s);
             const float ya = l.y_of(hi), yb = std::max(l.y_of(lo), ya + 1.5f);
-            dl->AddLine(ImVec2(x, ya), ImVec2(x, yb), kTrace, 1.5f);
+            dl->AddLine(ImVec2(x, ya), ImVec2(x, yb), kTraceDense, 1.5f);
             prev = p.mean_cents;
         }
         return;
@@ -292,6 +293,7 @@ int draw_marks(const Ink& ink, const ReportData& d, const ReportLayout& l) {
         const float xm = 0.5f * (x0 + x1);
         // The deviation as a stem from the target line to the bar, then the bar.
         dl->AddLine(ImVec2(xm, yt), ImVec2(xm, y), col, 2.0f);
+        dl->AddRectFilled(ImVec2(x0 - 1.0f, y - 4.5f), ImVec2(x1 + 1.0f, y + 4.5f), kInk);  // a dark rim: visible over the trace
         dl->AddRectFilled(ImVec2(x0, y - 3.5f), ImVec2(x1, y + 3.5f), col);
         const std::string s = signed_cents(m.dev_cents, 1) + " c";
         const float tw = ink.size(ink.bold, s).x;
