@@ -32,7 +32,7 @@ public:
     explicit DecimatedTrace(const DecimatedTraceConfig& config = {});  // throws Error on invalid settings
 
     // Adds a frame; voiced == false marks time without pitch. Times must not
-    // decrease; t_s < 0 is ignored. Allocates: no.
+    // decrease; t_s < 0 is ignored. Thread: one at a time. Allocates: no.
     void push(double t_s, double cents, bool voiced) noexcept;
 
     std::size_t size() const noexcept { return used_; }            // buckets up to the latest frame

@@ -13,6 +13,9 @@
 // A file with no steady drone (when the root is to be found) or with no
 // sound gets a one-line message naming it and exit code 1; a take with
 // sound but no held notes (noise, say) gives an empty result and exit 0.
+//
+// Index: shared text helpers; One voice (JSON, CSV, text, report); Two
+// voices (the same); The command (options, checks, progress, passes).
 #include "pitch/error.h"
 #include "pitch/notes.h"
 #include "pitch/text.h"
