@@ -38,6 +38,7 @@ namespace {
 constexpr double kTwoPi = 6.283185307179586476925286766559;
 constexpr double kGridCents = 3.0;        // salience grid step
 constexpr double kPeakOverFloor = 31.6;   // 15 dB over the median power: a clear peak
+constexpr double kTwinBin = 0.794;       // 1 dB: a lower neighbour this strong takes the peak
 constexpr double kKeepOverFloor = 10.0;   // 10 dB over the averaged median: a usable harmonic
 constexpr double kAgreeCents = 0.5;       // harmonics of one steady tone agree within this
 
@@ -149,16 +150,23 @@ void RootDetector::process_frame(std::size_t valid) noexcept {
         if (prev_valid_) {
             const std::complex<double> y(prev_[k]);
             cross_[k] += x * std::conj(y);
-            cross_mag_[k] += std::abs(x) * std::abs(y);
+            cross_mag_[k] += std::sqrt(p * std::norm(y));  // |x| |y| without two hypot() calls
         }
     }
     // Clear peaks: local maxima 15 dB over this frame's median bin power.
     const std::size_t nb = kmax_ - k_lo + 1;
     std::nth_element(scratch_.begin() + k_lo, scratch_.begin() + k_lo + nb / 2, scratch_.begin() + kmax_ + 1);
     const double thr = kPeakOverFloor * scratch_[k_lo + nb / 2];
+    // A partial half-way between two bins makes them equally strong, and
+    // which one peaks is down to noise: when the lower neighbour is within
+    // 1 dB of the peak, the peak is counted there, so such a partial (every
+    // odd harmonic of a root on a half bin) is present in every frame of one
+    // bin rather than in half the frames of each. Each peak counts once.
     for (std::size_t k = k_lo + 1; k < kmax_; ++k) {
         const double p = std::norm(spec_[k]);
-        if (p > thr && p > std::norm(spec_[k - 1]) && p >= std::norm(spec_[k + 1])) ++peaks_[k];
+        const double pl = std::norm(spec_[k - 1]);
+        if (!(p > thr && p > pl && p >= std::norm(spec_[k + 1]))) continue;
+        ++peaks_[pl >= kTwinBin * p ? k - 1 : k];
     }
     std::swap(spec_, prev_);
     prev_valid_ = true;

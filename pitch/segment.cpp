@@ -13,7 +13,8 @@
 // averaging window whose centre stays within settle_cents of the note's
 // centre for the rest of the note; the note's centre f0 is the whole-cycle
 // mean (pitch/cycles.h) over the frames from that reading on (the second
-// half when that leaves under 0.3 s); (5) nearest target (pitch/targets.h), deviation,
+// half when that leaves under 0.3 s), leaving out the last release_trim_s,
+// whose tracker frames already hear the release; (5) nearest target (pitch/targets.h), deviation,
 // spread, and the beat rate of the coinciding partials against the root
 // (|q f - p root| for target p/q, Helmholtz; pitch/beats.h).
 // Memory: bounded by max_note_s (a longer note is closed and marked
@@ -56,6 +57,7 @@ NoteSegmenter::NoteSegmenter(const SegmentConfig& config, const TargetSet& targe
     check(cfg_.change_cents > 0.0, "change_cents", cfg_.change_cents);
     check(cfg_.smooth_s >= cfg_.hop_s && cfg_.smooth_s <= 2.0, "smooth_s", cfg_.smooth_s);
     check(cfg_.settle_cents > 0.0, "settle_cents", cfg_.settle_cents);
+    check(cfg_.release_trim_s >= 0.0 && cfg_.release_trim_s <= 0.2, "release_trim_s", cfg_.release_trim_s);
     check(cfg_.max_note_s >= 1.0 && cfg_.max_note_s <= 600.0, "max_note_s", cfg_.max_note_s);
     cap_ = static_cast<std::size_t>(std::ceil(cfg_.max_note_s / cfg_.hop_s)) + 1;
     t_.assign(cap_, 0.0);
@@ -64,6 +66,7 @@ NoteSegmenter::NoteSegmenter(const SegmentConfig& config, const TargetSet& targe
     win_start_.assign(cap_, 0.0);
     scratch_.assign(cap_, 0.0);
     smooth_n_ = std::max<std::size_t>(1, static_cast<std::size_t>(std::lround(cfg_.smooth_s / cfg_.hop_s)));
+    trim_n_ = static_cast<std::size_t>(std::lround(cfg_.release_trim_s / cfg_.hop_s));
 }
 
 void NoteSegmenter::add_frame(double t_s, double cents) noexcept {
@@ -162,23 +165,27 @@ bool NoteSegmenter::close(std::size_t m, bool truncated, NoteResult& out) noexce
         r.frames = static_cast<int>(m);
         r.truncated = truncated;
 
+        // The last frames ride the release (the tracker's span reaches past
+        // the offset): they are left out of every measurement below.
+        const std::size_t me = m >= trim_n_ + 8 ? m - trim_n_ : m;
+
         // Provisional centre: median of the centre readings over the second half.
-        const std::size_t h0 = m / 2;
-        std::copy(centre_.begin() + static_cast<std::ptrdiff_t>(h0), centre_.begin() + static_cast<std::ptrdiff_t>(m), scratch_.begin());
-        const std::size_t nh = m - h0;
+        const std::size_t h0 = me / 2;
+        std::copy(centre_.begin() + static_cast<std::ptrdiff_t>(h0), centre_.begin() + static_cast<std::ptrdiff_t>(me), scratch_.begin());
+        const std::size_t nh = me - h0;
         std::nth_element(scratch_.begin(), scratch_.begin() + static_cast<std::ptrdiff_t>(nh / 2), scratch_.begin() + static_cast<std::ptrdiff_t>(nh));
         const double c0 = scratch_[nh / 2];
 
         // Settled: the last run of centre readings within the band.
-        std::size_t is = m;
+        std::size_t is = me;
         while (is > 0 && std::fabs(centre_[is - 1] - c0) <= cfg_.settle_cents) --is;
         std::size_t s_idx = h0;
-        if (is < m) {
+        if (is < me) {
             r.settle_s = std::max(0.0, 0.5 * (win_start_[is] + t_[is]) - t_[0]);
             s_idx = is;
         }
-        if (t_[m - 1] - t_[s_idx] < 0.3) s_idx = std::min(s_idx, h0);
-        const std::size_t ns = m - s_idx;
+        if (t_[me - 1] - t_[s_idx] < 0.3) s_idx = std::min(s_idx, h0);
+        const std::size_t ns = me - s_idx;
 
         // Centre over whole vibrato cycles of the settled part.
         CycleConfig cc;
@@ -222,15 +229,16 @@ bool NoteSegmenter::close(std::size_t m, bool truncated, NoteResult& out) noexce
 
 NoteSummary::NoteSummary(const TargetSet& targets) : acc_(targets.targets.size()) {}
 
-void NoteSummary::add(const NoteResult& note) noexcept {
-    if (note.target_index < 0 || static_cast<std::size_t>(note.target_index) >= acc_.size() || !std::isfinite(note.dev_cents))
-        return;
-    Acc& a = acc_[static_cast<std::size_t>(note.target_index)];
+void NoteSummary::add(const NoteResult& note) noexcept { add(note.target_index, note.dev_cents); }
+
+void NoteSummary::add(int target_index, double dev_cents) noexcept {
+    if (target_index < 0 || static_cast<std::size_t>(target_index) >= acc_.size() || !std::isfinite(dev_cents)) return;
+    Acc& a = acc_[static_cast<std::size_t>(target_index)];
     ++a.n;
-    const double d = note.dev_cents - a.mean;
+    const double d = dev_cents - a.mean;
     a.mean += d / a.n;
-    a.m2 += d * (note.dev_cents - a.mean);
-    a.abs_sum += std::fabs(note.dev_cents);
+    a.m2 += d * (dev_cents - a.mean);
+    a.abs_sum += std::fabs(dev_cents);
 }
 
 std::vector<TargetSummary> NoteSummary::rows() const {

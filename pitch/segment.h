@@ -29,6 +29,9 @@ struct SegmentConfig {
     double change_s = 0.08;            // ... held this long (default 80 ms)
     double smooth_s = 0.2;             // trailing mean for the split test (default 200 ms)
     double settle_cents = 5.0;         // settle band around the centre (default 5 cents)
+    double release_trim_s = 0.025;     // last frames of a note left out of its measurement: the
+                                       //   tracker's span already hears the release (default 25 ms,
+                                       //   half of YinConfig::span_s); start_s/end_s keep them
     bool skip_drone = true;            // frames at the root's pitch class are the drone (default on)
     double drone_tol_cents = 3.0;      // ... within this many cents (default 3)
     double max_note_s = 30.0;          // memory cap per note (default 30 s)
@@ -89,6 +92,7 @@ private:
     std::vector<double> t_, c_, centre_, win_start_, scratch_;
     double last_voiced_t_ = -1e300;
     std::size_t smooth_n_ = 1;
+    std::size_t trim_n_ = 0;               // release_trim_s in frames
     double smooth_sum_ = 0.0;
     double anchor_ = NAN;                  // centre the split test compares with
     std::size_t depart_from_ = 0;          // first frame of a departure
@@ -110,6 +114,7 @@ class NoteSummary {
 public:
     explicit NoteSummary(const TargetSet& targets);
     void add(const NoteResult& note) noexcept;          // notes without a target are ignored
+    void add(int target_index, double dev_cents) noexcept;  // the same for any measurement (a dyad)
     std::vector<TargetSummary> rows() const;            // targets with notes, in set order
 private:
     struct Acc { int n = 0; double mean = 0.0, m2 = 0.0, abs_sum = 0.0; };

@@ -418,7 +418,12 @@ void TwoVoiceTracker::Impl::measure_beat(TwoVoiceFrame& f) {
         return;
     }
     const int jp = va.peak[static_cast<std::size_t>(p)], jq = vb.peak[static_cast<std::size_t>(q)];
-    if (jp < 0 && jq < 0) {  // neither voice has the partial: nothing can beat
+    // Neither voice's partial is a peak in this frame. At the null of a deep
+    // beat (two equally strong partials) the shared peak vanishes for a
+    // moment: a history of the same pair goes on through it, since the null
+    // is part of the envelope being measured. Otherwise nothing can beat.
+    const bool same_pair = hist_n > 0 && p == env_p && q == env_q;
+    if (jp < 0 && jq < 0 && !same_pair) {
         clear_history();
         return;
     }

@@ -189,6 +189,35 @@ inline Take drone_and_voice(double fs, double root_hz, const std::vector<std::pa
     return take;
 }
 
+// Two voices holding double stops one after another: each dyad is a low
+// harmonic tone on f_low_hz and a high one `off_cents` off the just ratio
+// p/q above it, held hold_s with rest_s between (the first starts at 0.3 s),
+// at their own levels, with white noise over the whole take.
+struct HeldDyad {
+    int p = 3;                  // f_high / f_low = p/q before the offset
+    int q = 2;
+    double off_cents = 0.0;
+    double level_low = 0.2;
+    double level_high = 0.2;
+    double f_low_hz = 200.0;
+    double f_high_hz() const { return f_low_hz * p / q * cents_to_ratio(off_cents); }
+    double start_s = 0.0;       // set by held_dyads()
+};
+
+inline std::vector<float> held_dyads(double fs, std::vector<HeldDyad>& dyads, double hold_s, double rest_s,
+                                     double noise_rms, std::uint64_t seed) {
+    std::vector<float> x(static_cast<std::size_t>((0.3 + static_cast<double>(dyads.size()) * (hold_s + rest_s)) * fs), 0.0f);
+    double t = 0.3;
+    for (HeldDyad& d : dyads) {
+        d.start_s = t;
+        add_tone(x, fs, d.f_low_hz, t, t + hold_s, d.level_low, rolloff(10));
+        add_tone(x, fs, d.f_high_hz(), t, t + hold_s, d.level_high, rolloff(10), {0.5, 1, 1.5, 2, 2.5, 3, 0.2, 0.4, 0.6, 0.8});
+        t += hold_s + rest_s;
+    }
+    add_noise(x, noise_rms, seed);
+    return x;
+}
+
 // The five tritone-family targets of the review tests, each mistuned by a known amount.
 inline std::vector<std::pair<double, double>> tritone_notes() {
     return {{7.0 / 5.0, -6.0}, {10.0 / 7.0, 4.5}, {11.0 / 8.0, -3.0}, {45.0 / 32.0, 2.0}, {16.0 / 11.0, -8.5}};

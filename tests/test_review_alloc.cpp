@@ -3,6 +3,9 @@
 // replaces the global operator new with a counting one (the standard lets
 // a program do so, [replacement.functions]) and counts the allocations made
 // while samples and frames are pushed and pulled.
+#include "pitch/decimated_trace.h"
+#include "pitch/drone_comb.h"
+#include "pitch/dyad_segment.h"
 #include "pitch/root_detect.h"
 #include "pitch/segment.h"
 #include "pitch/two_voice.h"
@@ -82,4 +85,35 @@ TEST_CASE("vibrato centre and note segmentation: push allocates nothing") {
     if (seg.finish(r)) ++found;
     CHECK(g_allocations.load() - before == 0);
     CHECK(found == 5);
+}
+
+TEST_CASE("drone comb, dyad segmentation and the decimated trace: allocate nothing per block or frame") {
+    std::vector<float> x(static_cast<std::size_t>(4 * kFs), 0.0f);
+    add_tone(x, kFs, 180.0, 0.0, 4.0, 0.2, rolloff(10));
+    add_tone(x, kFs, 240.0 * std::exp2(5.0 / 1200.0), 0.0, 4.0, 0.2, rolloff(10));
+    const TargetSet set = target_set({"5/4", "4/3", "3/2"});
+    DroneComb comb({.sample_rate_hz = kFs, .root_hz = 110.0});
+    TwoVoiceTracker tv({}, set);
+    DyadSegmentConfig dc;
+    dc.hop_s = static_cast<double>(tv.hop_len_samples()) / kFs;
+    DyadSegmenter seg(dc, set);
+    DecimatedTrace trace({.bucket_s = 0.01, .max_points = 64});  // small: it merges during the run
+    std::vector<float> y(1000);
+    TwoVoiceFrame f;
+    DyadResult d;
+    int dyads = 0;
+    const long before = g_allocations.load();
+    for (std::size_t i = 0; i < x.size(); i += 1000) {
+        const std::size_t n = std::min<std::size_t>(1000, x.size() - i);
+        comb.process(std::span<const float>(x.data() + i, n), std::span<float>(y.data(), n));
+        tv.push(std::span<const float>(x.data() + i, n));
+        while (tv.pull(f)) {
+            trace.push(f.t_s, f.interval_cents, f.voices == 2);
+            if (seg.push(f, d)) ++dyads;
+        }
+    }
+    if (seg.finish(d)) ++dyads;
+    CHECK(g_allocations.load() - before == 0);
+    CHECK(dyads == 1);
+    CHECK(trace.bucket_s() > 0.05);
 }

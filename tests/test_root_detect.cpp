@@ -114,6 +114,26 @@ TEST_CASE("48 kHz and a clipped recording") {
     CHECK(std::fabs(cents(e.root_hz, root)) < 0.2);
 }
 
+TEST_CASE("a root on an exact half bin: the odd harmonics split their peaks between two bins") {
+    // At 48 kHz the 0.75 s frame is 36000 samples, 4/3 Hz a bin: 110 Hz is
+    // bin 82.5, so every odd harmonic lies half-way between two bins.
+    for (double fs : {48000.0, 44100.0, 24000.0}) {
+        RootDetectConfig cfg;
+        cfg.sample_rate_hz = fs;
+        const double bin = RootDetector(cfg).bin_hz();
+        for (double root : {82.5 * bin, 110.5 * bin, 160.5 * bin}) {
+            CAPTURE(fs);
+            CAPTURE(root);
+            const Take take = drone_and_voice(fs, root, tritone_notes(), 6, root < 150.0 ? 1 : 0);
+            const RootEstimate e = detect(take.samples, fs);
+            CAPTURE(describe(e));
+            CHECK(e.found());
+            CHECK(std::fabs(cents(e.root_hz, root)) < 0.2);
+            CHECK(e.harmonics_used >= 6);
+        }
+    }
+}
+
 TEST_CASE("silence, noise, a voice without a drone, a very short file: clear answers") {
     const std::vector<float> silence(static_cast<std::size_t>(3 * kFs), 0.0f);
     RootEstimate e = detect(silence);

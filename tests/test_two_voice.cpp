@@ -126,6 +126,22 @@ TEST_CASE("measured beat rate agrees with scipy's Hilbert envelope") {
     CHECK(last.measured_beat_hz == doctest::Approx(scipy_hz).epsilon(0.05));
 }
 
+TEST_CASE("a deep beat: the coinciding partials equally strong, so the shared peak vanishes at each null") {
+    // 4/3, 3 and 7 cents wide: the low voice's 4th partial (level / 4) and the
+    // high voice's 3rd (0.75 level / 3) have the same amplitude, and their sum
+    // falls to nothing once per beat.
+    for (double off : {3.0, 7.0, -5.0}) {
+        CAPTURE(off);
+        const double f_low = 257.4, f_high = f_low * 4.0 / 3.0 * std::exp2(off / 1200.0);
+        const auto frames = track(mixture(f_low, f_high, 0.2, 0.15, 3.2, 8), interval_set());
+        const TwoVoiceFrame& last = frames.back();
+        const double truth = beat_rate_at(f_low, Ratio{4, 3}, off);
+        CAPTURE(last.measured_beat_hz);
+        CHECK(last.beat_source == BeatSource::envelope);
+        CHECK(std::fabs(last.measured_beat_hz - truth) <= std::max(0.1 * truth, 0.2));
+    }
+}
+
 TEST_CASE("block size does not change the frames") {
     const auto x = mixture(180.0, 270.0 * std::exp2(4.0 / 1200.0), 0.2, 0.2, 1.0, 5);
     const auto a = track(x, interval_set(), 1);

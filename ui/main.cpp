@@ -55,6 +55,7 @@ int main(int argc, char** argv) {
     ui::register_drift(app, run);
     ui::register_history(app, run);
     ui::register_ensemble(app, run);
+    ui::register_analyze(app, run);
 
     try {
         app.parse(argc, argv);
