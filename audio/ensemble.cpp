@@ -204,8 +204,20 @@ void EnsembleEngine::use_demo(DemoEnsembleConfig demo) {
     Impl& m = *impl_;
     if (demo.sample_rate_hz <= 0.0) demo.sample_rate_hz = cfg_.sample_rate_hz > 0.0 ? cfg_.sample_rate_hz : 48000.0;
     demo.root_hz = setup_.analysis.root_hz;
-    if (demo.voice_cents.empty())
-        for (const auto& p : setup_.players) demo.voice_cents.push_back(setup_.chord.voice_cents(p.voice));
+    if (demo.voice_cents.empty()) {
+        // An open voicing, as a group would sing it: player k of n sits in the
+        // octave nearest to 110 Hz * 2^(2.2 k / (n - 1)) (about A2 for the
+        // lowest part up to about B4 for the highest; the players are
+        // octave-equivalent, so any octave is measured the same way).
+        const std::size_t n = setup_.players.size();
+        for (std::size_t k = 0; k < n; ++k) {
+            const double c = setup_.chord.voice_cents(setup_.players[k].voice);
+            const double centre_hz = 110.0 * std::exp2(n > 1 ? 2.2 * static_cast<double>(k) / static_cast<double>(n - 1) : 0.0);
+            const double base_hz = setup_.analysis.root_hz * std::exp2(c / 1200.0);
+            const double octaves = std::round(std::log2(centre_hz / base_hz));
+            demo.voice_cents.push_back(c + 1200.0 * octaves);
+        }
+    }
     if (demo.channel_of_singer.empty())
         for (const auto& p : setup_.players) demo.channel_of_singer.push_back(p.channel);
     m.demo = std::make_unique<DemoEnsemble>(demo);
