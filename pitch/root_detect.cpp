@@ -41,6 +41,16 @@ constexpr double kPeakOverFloor = 31.6;   // 15 dB over the median power: a clea
 constexpr double kTwinBin = 0.794;       // 1 dB: a lower neighbour this strong takes the peak
 constexpr double kKeepOverFloor = 10.0;   // 10 dB over the averaged median: a usable harmonic
 constexpr double kAgreeCents = 0.5;       // harmonics of one steady tone agree within this
+// Vibrato sidebands: a voice with a regular vibrato has a steady carrier at
+// its centre (the J0 term of frequency modulation), which can look like a
+// drone; but its partials also carry sidebands at the vibrato rate and its
+// multiples (J1, J2 ...; FM spectrum, J. R. Carson 1922). Power 4-12 Hz
+// from a partial (3-9 bins at the default 0.75 s frame) relative to the
+// partial itself above 1 % (-20 dB; a Hann window leaks less than -40 dB
+// that far, from memory of its sidelobe table) marks it as modulated.
+constexpr double kSideNearHz = 4.0;
+constexpr double kSideFarHz = 12.0;
+constexpr double kSideRatio = 0.01;
 
 void check(bool ok, const char* what, double v) {
     if (!ok) throw Error("root detection: " + std::string(what) + " " + format_trimmed(v, 6) + " is out of range");
@@ -226,12 +236,22 @@ RootEstimate RootDetector::refine(double f0_guess, bool tight) noexcept {
         }
         const double pres = static_cast<double>(std::max({peaks_[k - 1], peaks_[k], peaks_[k + 1]})) /
                             static_cast<double>(frames_);
+        // Purity: 1 for a partial without vibrato sidebands, towards 0 with them.
+        double side = 0.0;
+        const double main_power = power_[k - 1] + power_[k] + power_[k + 1];
+        const auto near_b = static_cast<std::size_t>(std::ceil(kSideNearHz / bin_hz_));
+        const auto far_b = static_cast<std::size_t>(kSideFarHz / bin_hz_);
+        for (std::size_t d = std::max<std::size_t>(near_b, 2); d <= far_b; ++d) {
+            if (k > d) side = std::max(side, power_[k - d]);
+            if (k + d <= kmax_) side = std::max(side, power_[k + d]);
+        }
+        const double purity = main_power > 0.0 ? 1.0 / (1.0 + side / (kSideRatio * main_power)) : 0.0;
         // Inverse variance of f_h / h (power * h^2), times (presence *
         // coherence)^4 so a louder but intermittent voice partial cannot outvote the drone.
         const double pc = std::max(pres * coh, 1e-3);  // a lone frame has no coherence yet
         const double pc2 = pc * pc;
-        const double w = steady_[k] * h * h * pc2 * pc2;
-        parts_.push_back({fk / h, w, steady_[k], pres, coh, h});
+        const double w = steady_[k] * h * h * pc2 * pc2 * purity * purity;
+        parts_.push_back({fk / h, w, steady_[k], pres, coh, purity, h});
     }
     if (parts_.empty()) return e;
 
@@ -251,12 +271,12 @@ RootEstimate RootDetector::refine(double f0_guess, bool tight) noexcept {
         }
     }
     double centre = parts_[best_i].f0_hz;
-    double sw = 0.0, sp = 0.0, spp = 0.0, spc = 0.0, sd = 0.0;
+    double sw = 0.0, sp = 0.0, spp = 0.0, spc = 0.0, spu = 0.0, sd = 0.0;
     int used = 0;
     double max_w = 0.0;
     for (int pass = 0; pass < 2; ++pass) {
         double swf = 0.0;
-        sw = sp = spp = spc = sd = 0.0;
+        sw = sp = spp = spc = spu = sd = 0.0;
         used = 0;
         for (const Part& p : parts_) {
             const double d = 1200.0 * std::log2(p.f0_hz / centre);
@@ -266,6 +286,7 @@ RootEstimate RootDetector::refine(double f0_guess, bool tight) noexcept {
             sp += p.power;
             spp += p.power * p.presence;
             spc += p.power * p.coherence;
+            spu += p.power * p.purity;
             max_w = std::max(max_w, p.weight);
             ++used;
         }
@@ -284,7 +305,7 @@ RootEstimate RootDetector::refine(double f0_guess, bool tight) noexcept {
     e.harmonics_used = used;
     e.presence = spp / sp;
     e.coherence = spc / sp;
-    e.confidence = e.presence * e.coherence;
+    e.confidence = e.presence * e.coherence * (spu / sp);
     // A lone upper partial is no evidence of a tone at this root (it is
     // usually another tone's harmonic); a lone fundamental (a sine drone) is.
     if (strong == 1 && lowest_h > 1) e.confidence *= 0.5;

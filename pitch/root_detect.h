@@ -96,7 +96,7 @@ private:
     std::vector<double> steady_;      // |summed cross spectrum| per bin, set by estimate()
     std::vector<double> scratch_;     // median work
     std::vector<double> cand_s_;      // salience per candidate (log grid)
-    struct Part { double f0_hz, weight, power, presence, coherence; int harmonic; };
+    struct Part { double f0_hz, weight, power, presence, coherence, purity; int harmonic; };
     std::vector<Part> parts_;         // per harmonic, during refine()
     std::size_t frames_ = 0;          // frames above silence
     std::size_t bad_ = 0;
