@@ -161,3 +161,26 @@ TEST_CASE("track: bad files and values, one line each, exit 1") {
         CHECK(line_count(r.err) == 1);
     }
 }
+
+TEST_CASE("tone with several ratios sings one note each, and analyze finds them") {
+    TempDir dir;
+    // Four notes over D3 (146.832 Hz), each off by a known amount: the
+    // review path must name each target and measure each deviation.
+    const auto r = run_program({"tone", "--root", "D3", "--ratio", "7/5,10/7,11/8,45/32", "--detune-cents", "-6,4,2,3",
+                                "--seconds", "12", "--vibrato-hz", "5.5", "--vibrato-cents", "25", "--voice-db", "-14",
+                                "--level-db", "-20", "--out", dir.file("take.wav")});
+    REQUIRE(r.exit_code == 0);
+    CHECK(r.out.find("10/7 +4 c = ") != std::string::npos);
+    const auto a = run_program({"analyze", dir.file("take.wav"), "--targets", "tritones", "--format", "json"});
+    REQUIRE(a.exit_code == 0);
+    CHECK(beatless::test::json_value(a.out, "[n['target'] for n in d['notes']]") == "['7/5', '10/7', '11/8', '45/32']");
+    const double want[] = {-6, 4, 2, 3};
+    for (int i = 0; i < 4; ++i) {
+        CAPTURE(i);
+        const double dev = std::stod(beatless::test::json_value(a.out, "d['notes'][" + std::to_string(i) + "]['dev_cents']"));
+        CHECK(std::fabs(dev - want[i]) < 1.0);  // the review issue's bar
+    }
+    const auto bad = run_program({"tone", "--root", "D3", "--ratio", "7/5,10/7", "--detune-cents", "-6,4,2", "--out", dir.file("x.wav")});
+    CHECK(bad.exit_code == 1);
+    CHECK(bad.err == "beatless: --detune-cents: 3 values for 2 ratios (give one value, or one per ratio)\n");
+}
