@@ -43,6 +43,7 @@ void register_track(CLI::App& app, Runner& run);
 void register_chord(CLI::App& app, Runner& run);
 void register_drift(CLI::App& app, Runner& run);
 void register_history(CLI::App& app, Runner& run);
+void register_drill(CLI::App& app, Runner& run);
 
 // Output format choice shared by the commands.
 enum class Format { text, json, csv };
@@ -52,5 +53,7 @@ void add_format_option(CLI::App& sub, Format& format, std::initializer_list<Form
 // Small text helpers shared by the commands.
 std::string ordinal(int n);                                  // 1 -> "1st", 12 -> "12th"
 std::string join_args(const std::vector<std::string>& args); // words joined by single spaces
+// The hearing caution on stderr, once per user (a marker file in the config folder).
+void hearing_caution_once();
 
 }  // namespace beatless::ui

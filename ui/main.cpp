@@ -54,6 +54,7 @@ int main(int argc, char** argv) {
     ui::register_chord(app, run);
     ui::register_drift(app, run);
     ui::register_history(app, run);
+    ui::register_drill(app, run);
 
     try {
         app.parse(argc, argv);
