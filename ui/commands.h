@@ -35,6 +35,9 @@ struct ScreenCommand {
     std::string target;                   // --target: a fixed target
     std::string screen;                   // --screen (default: the last one used)
     bool drone = false;                   // snapshot --drone
+    std::string drill;                    // --drill: choose and start this drill on the Drills screen
+    std::optional<double> listener_cents; // --listener: a simulated listener answers ear drills
+    std::string log_file;                 // --log: the practice log file (snapshot: none unless given)
 };
 void add_screen_options(CLI::App& app, ScreenCommand& c);
 int run_screens(const ScreenCommand& c, int frames);  // frames 0 = until the window is closed

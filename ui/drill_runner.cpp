@@ -228,7 +228,19 @@ void DrillRunner::finish_hold_score() {
     res.tolerance_cents = drill_.tolerance_cents;
     res.hold_start_s = collect_start_s_;
     res.hold_dur_s = collect_end_s_ - collect_start_s_;
-    const std::vector<pitch::HoldPoint> points = pitch::hold_points(collected_, cfg_.deviation);
+    std::vector<pitch::HoldPoint> points = pitch::hold_points(collected_, cfg_.deviation);
+    // Blips: voiced stretches too short to be singing (gaps of more than two hops end a stretch).
+    for (std::size_t i = 0; i < points.size();) {
+        if (!points[i].voiced) {
+            ++i;
+            continue;
+        }
+        std::size_t j = i + 1;
+        while (j < points.size() && points[j].voiced && points[j].t_s - points[j - 1].t_s <= 2.5 * cfg_.hop_s) ++j;
+        if (points[j - 1].t_s - points[i].t_s + cfg_.hop_s < cfg_.min_voiced_s - 1e-9)
+            for (std::size_t k = i; k < j; ++k) points[k].voiced = false;
+        i = j;
+    }
     res.score = pitch::score_hold(points, drill_.score_config(t, collect_start_s_, cfg_.hop_s));
     res.trace.reserve(collected_.size());
     for (const pitch::Reading& r : collected_) {

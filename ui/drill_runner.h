@@ -13,7 +13,9 @@
 // then finished. A hold is scored (pitch/drill_score.h, deviation per
 // Reading::dev_cents by default) as soon as a reading at or past its end has
 // arrived, or score_wait_s after its end if the input stopped, whatever the
-// phase is by then: the schedule never waits, so the performer (or the demo
+// phase is by then (a voiced stretch shorter than min_voiced_s counts as
+// unvoiced first: an onset or release blip of the tracker, not singing):
+// the schedule never waits, so the performer (or the demo
 // performer, see planned_holds()) can follow it by the clock alone. The
 // attempt and its trace go to the LogWriter at once, on the caller's thread
 // (never the audio callback); when the log cannot be written the writer
@@ -71,6 +73,7 @@ struct RunnerConfig {
     std::uint64_t seed = 1;         // the shuffled order and the ear questions; default 1
     std::string performer;          // who practises (the practice log's performer); default empty
     pitch::DeviationSource deviation = pitch::DeviationSource::instant;  // what the score reads; default instant
+    double min_voiced_s = 0.04;     // shorter voiced stretches are tracker blips, scored as unvoiced; default 40 ms
     std::size_t max_holds = 0;      // hold drills: stop after this many holds (0 = the whole sequence); default 0
 };
 
@@ -145,6 +148,7 @@ public:
     std::size_t hold_count() const { return sequence_.size(); }
     std::size_t hold_index() const { return index_; }          // current or next hold (hold_count() at the end)
     const DrillTarget* current_target() const;                 // nullptr past the end
+    const DrillTarget& planned_target(std::size_t i) const { return sequence_[i]; }
     double target_cents(const DrillTarget& t) const { return t.target.interval.cents(); }
     std::vector<PlannedHold> planned_holds() const;
     const std::vector<HoldResult>& results() const { return results_; }

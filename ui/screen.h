@@ -45,6 +45,7 @@ public:
 };
 
 std::unique_ptr<Screen> make_practice_screen();
+std::unique_ptr<Screen> make_drills_screen();
 std::unique_ptr<Screen> make_settings_screen();
 
 // The built screens in tab order.
