@@ -153,12 +153,12 @@ void check(const DrillCmd& o, const Drill& d) {
         if (o.listener_cents) throw UsageError("--listener is for ear drills; " + d.id + " is a hold drill");
         return;
     }
+    if (o.demo) throw UsageError("--demo: the demo performer sings hold drills; for " + d.id + " give --listener CENTS");
     if (!o.listener_cents)
         throw UsageError("drill " + d.id +
                          " is an ear drill and needs a listener: answer it on the Drills screen, or give --listener CENTS for a "
                          "simulated listener");
     if (!o.input.empty()) throw UsageError("--input: an ear drill listens to no input (" + d.id + " plays questions and waits for answers)");
-    if (o.demo) throw UsageError("--demo: the demo performer sings hold drills; for " + d.id + " give --listener CENTS");
     if (o.attempts > 0) throw UsageError("--attempts counts holds; " + d.id + " is an ear drill (one session)");
 }
 
@@ -168,7 +168,12 @@ struct Printer {
     const Drill& drill;
     const DrillRunner& runner;
     Format format;
+    std::string header;  // one line on stderr once the drill is under way
     std::size_t printed = 0;
+    void begin() {
+        if (!header.empty()) std::fprintf(stderr, "beatless: %s\n", header.c_str());
+        header.clear();
+    }
     void operator()() {
         while (printed < runner.results().size()) {
             std::printf("%s\n", hold_line(drill, runner.results()[printed], runner.hold_count(), format).c_str());
@@ -203,6 +208,7 @@ void run_hold_simulated(const Drill& d, DrillRunner& runner, const DrillCmd& o, 
     std::vector<float> block(kSimBlock);
     pitch::Reading got[512];
     std::size_t target_at = runner.hold_index();
+    print.begin();
     runner.start(0.0);
     const double limit_s = runner.planned_holds().empty() ? 1.0 : runner.planned_holds().back().start_s + 60.0;
     while (!runner.done() && engine.stream_time_s() < limit_s) {
@@ -225,7 +231,8 @@ void run_hold_simulated(const Drill& d, DrillRunner& runner, const DrillCmd& o, 
 }
 
 // An ear drill in simulated time: nothing sounds; the listener answers when asked.
-void run_ear_simulated(DrillRunner& runner, pitch::SimulatedListener& listener) {
+void run_ear_simulated(DrillRunner& runner, pitch::SimulatedListener& listener, Printer& print) {
+    print.begin();
     double now = 0.0;
     const double step = 0.01;
     runner.start(now);
@@ -276,6 +283,7 @@ void run_realtime(const Drill& d, DrillRunner& runner, const DrillCmd& o, Printe
     std::signal(SIGINT, on_drill_signal);
     std::signal(SIGTERM, on_drill_signal);
     engine.start();
+    print.begin();
     std::size_t target_at = runner.hold_index();
     runner.start(hold && o.demo ? 0.0 : engine.stream_time_s());
     pitch::Reading got[512];
@@ -346,7 +354,7 @@ int run_drill(const DrillCmd& o) {
     rc.max_holds = static_cast<std::size_t>(o.attempts);
     rc.performer = o.demo ? "demo performer" : listener ? "simulated listener" : "";
     DrillRunner runner(d, rc, &writer);
-    Printer print{d, runner, o.format};
+    Printer print{d, runner, o.format, {}};
 
     const bool hold = d.mode == DrillMode::hold;
     const bool simulated = o.output.empty() && o.input.empty() && (o.demo || !hold);
@@ -354,11 +362,11 @@ int run_drill(const DrillCmd& o) {
         std::string what = hold ? std::to_string(runner.hold_count()) + (runner.hold_count() == 1 ? " hold" : " holds") +
                                       ", tolerance \xC2\xB1" + pitch::format_trimmed(d.tolerance_cents, 1) + " c"
                                 : "choices " + d.targets_text();
-        std::fprintf(stderr, "beatless: %s: %s over %s (%s Hz)%s\n", d.title.c_str(), what.c_str(), d.drone.root_text.c_str(),
-                     pitch::format_trimmed(d.drone.root_hz, 2).c_str(), simulated ? ", in simulated time" : "");
+        print.header = d.title + ": " + what + " over " + d.drone.root_text + " (" + pitch::format_trimmed(d.drone.root_hz, 2) + " Hz)" +
+                       (simulated ? ", in simulated time" : "");
     }
     if (hold && simulated) run_hold_simulated(d, runner, o, print);
-    else if (simulated) run_ear_simulated(runner, *listener);
+    else if (simulated) run_ear_simulated(runner, *listener, print);
     else run_realtime(d, runner, o, print, listener ? &*listener : nullptr);
     if (!hold && runner.ear_result()) std::printf("%s\n", ear_line(d, *runner.ear_result(), *o.listener_cents, o.format).c_str());
     std::fflush(stdout);
