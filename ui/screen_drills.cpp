@@ -606,6 +606,7 @@ void DrillsScreen::hold_trace(ImDrawList* dl, const HoldResult& r, float x0, flo
     const float thick = std::max(2.0f, std::round(0.12f * u));
     points_.clear();
     double prev_t = -1.0;
+    float last_x = -1e9f;
     auto flush = [&] {
         if (points_.size() >= 2) dl->AddPolyline(points_.data(), static_cast<int>(points_.size()), palette::kTraceLine, ImDrawFlags_None, thick);
         points_.clear();
@@ -618,11 +619,12 @@ void DrillsScreen::hold_trace(ImDrawList* dl, const HoldResult& r, float x0, flo
         if (rec.t_s - prev_t > 0.03) flush();
         prev_t = rec.t_s;
         const ImVec2 p(x_of(rec.t_s), y_of(rec.dev_cents));
-        if (!points_.empty() && p.x - points_.back().x < 1.0f) {
+        if (!points_.empty() && p.x - last_x < 1.0f) {  // at most one point per pixel column: the newest
             points_.back() = p;
             continue;
         }
         points_.push_back(p);
+        last_x = p.x;
     }
     flush();
     dl->PopClipRect();
