@@ -295,6 +295,7 @@ void AppState::take(const pitch::Reading& r) {
     }
 }
 
+audio::DroneSettings AppState::drone_sent() const { return engine_ ? engine_->drone() : audio::DroneSettings{}; }
 audio::EngineStatus AppState::status() const { return engine_ ? engine_->status() : audio::EngineStatus{}; }
 double AppState::stream_time_s() const { return engine_ ? engine_->stream_time_s() : 0.0; }
 

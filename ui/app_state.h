@@ -121,7 +121,7 @@ public:
     void set_octave(bool on);
     void step_root(int semitones);                   // note roots move by note, Hz roots by 2^(n/12)
     bool set_root_text(const std::string& text);     // "D3" or "146.8"; false (and a message) when not a frequency
-    double root_hz() const { return root_hz_; }
+    double root_hz() const { return engine_root_hz(); }  // the drill's root while one runs
     void sound_reference();                          // the reference voice sounds the current target
 
     // --- Targets ---------------------------------------------------------------------
@@ -143,6 +143,7 @@ public:
     double level_dbfs() const { return level_dbfs_; }            // newest frame's input level
     const BeatPulse& pulse() const { return pulse_; }
     audio::EngineStatus status() const;
+    audio::DroneSettings drone_sent() const;   // what the engine's drone was last given (defaults without an engine)
     bool engine_running() const { return engine_ != nullptr; }
     double stream_time_s() const;
 
