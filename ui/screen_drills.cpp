@@ -66,6 +66,7 @@ constexpr KeyHelp kDrillKeys[] = {
     {"S", "stop the drill"},
     {"1 / 2", "ear drills: answer"},
     {"PgUp / PgDn", "choose the drill above / below"},
+    {"Lane", "during a hold: your pitch; the green window is the drill's tolerance"},
 };
 
 // Day number of "YYYY-MM-DD" (days since 1970-01-01).
@@ -460,8 +461,10 @@ void DrillsScreen::ear_now(AppState& app, ImDrawList* dl, float x0, float y0, fl
     const Drill& d = run_drill();
     float y = y0 + std::round(0.5f * u);
     char buf[200];
-    const int asked = static_cast<int>(r.answers().size()) + (ph == DrillPhase::ear_feedback ? 0 : 1);
-    std::snprintf(buf, sizeof buf, "%s  \xC2\xB7  question %d", d.title.c_str(), std::max(1, asked));
+    const bool over = ph == DrillPhase::finished || ph == DrillPhase::stopped;
+    const int asked = static_cast<int>(r.answers().size()) + (ph == DrillPhase::ear_feedback || over ? 0 : 1);
+    if (over) std::snprintf(buf, sizeof buf, "%s  \xC2\xB7  %d answered", d.title.c_str(), asked);
+    else std::snprintf(buf, sizeof buf, "%s  \xC2\xB7  question %d", d.title.c_str(), std::max(1, asked));
     if (const pitch::EarQuestion* q = r.question(); q && ph != DrillPhase::finished)
         std::snprintf(buf + std::strlen(buf), sizeof buf - std::strlen(buf), "  \xC2\xB7  the two are %.0f cents apart", q->diff_cents);
     draw_text(dl, FontFace::body, ImVec2(x0 + u, y), palette::kTextDim, buf);
@@ -469,7 +472,16 @@ void DrillsScreen::ear_now(AppState& app, ImDrawList* dl, float x0, float y0, fl
     if (ph == DrillPhase::finished || ph == DrillPhase::stopped) {
         draw_text(dl, FontFace::medium, ImVec2(x0 + u, y), palette::kText, ph == DrillPhase::stopped ? "Stopped" : "Session finished");
         y += font_px(FontFace::medium) + std::round(0.5f * u);
-        if (r.ear_result()) draw_text(dl, FontFace::bold, ImVec2(x0 + u, y), palette::kText, ear_summary_text(*r.ear_result()));
+        if (r.ear_result()) {
+            draw_text(dl, FontFace::bold, ImVec2(x0 + u, y), palette::kText, ear_summary_text(*r.ear_result()));
+            if (std::isfinite(r.ear_result()->threshold_cents)) {
+                // What the staircase's rule converges to (Levitt 1971): p^n_down = 1/2.
+                const double p = std::pow(0.5, 1.0 / d.staircase.n_down);
+                std::snprintf(buf, sizeof buf, "Targets %s cents apart you tell apart about %.0f %% of the time.",
+                              pitch::format_trimmed(r.ear_result()->threshold_cents, 1).c_str(), 100.0 * p);
+                draw_text(dl, FontFace::body, ImVec2(x0 + u, y + std::round(1.4f * u)), palette::kTextDim, buf);
+            }
+        }
         draw_text(dl, FontFace::bold, ImVec2(x0 + u, y0 + h - std::round(1.8f * u)), palette::kText, "Press Enter to go again, or choose another drill.");
         return;
     }
@@ -662,7 +674,7 @@ void DrillsScreen::ear_track(ImDrawList* dl, float x0, float y0, float w, float 
         else draw_tuning_shape(dl, Tuning::sharp, c, rad, palette::kSharp);
     }
     draw_text(dl, FontFace::body, ImVec2(px0, py1 + std::round(0.2f * u)), palette::kTextDim,
-              "each answer: how far apart the choices were (disc right, triangle wrong)");
+              "the difference asked at each answer: disc right, triangle wrong; yellow line: the threshold");
 }
 
 void DrillsScreen::attempt_panel(ImDrawList* dl, float x0, float y0, float w, float h) {
