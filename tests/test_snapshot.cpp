@@ -108,6 +108,13 @@ Image render_text(const std::string& text, ui::FontFace face, std::uint32_t colo
     return t;
 }
 
+Box whole(const Image& img) {
+    Box b;
+    b.add(0, 0);
+    b.add(img.w - 1, img.h - 1);
+    return b;
+}
+
 // Every top-left position inside `region` where `tpl` matches pixel for pixel.
 std::vector<std::pair<int, int>> find_exact(const Image& img, const Image& tpl, const Box& region) {
     std::vector<std::pair<int, int>> hits;
@@ -349,11 +356,7 @@ TEST_CASE("snapshot: the Drills screen shows a finished hold's result in words, 
     const Image img = read_png(snapshot(home, "--demo --hold -3 --drill hold-septimal-tritones --seconds 10.8 --log " + log, "drill-result.png"));
     const Image words = render_text("locked in 0.3 s, held 3 cents flat, 100 % within \xC2\xB1" "6 c", ui::FontFace::bold, ui::palette::kText,
                                     ui::palette::kPanel, 1.0f);
-    Box all;
-    all.x0 = 0;
-    all.y0 = 0;
-    all.x1 = img.w - 1;
-    all.y1 = img.h - 1;
+    const Box all = whole(img);
     CHECK(find_exact(img, words, all).size() == 1);
     // The trace: the target line (the current-target yellow) runs across the
     // attempt's plot inside the tolerance band (the in-tune window's colour),
@@ -400,8 +403,14 @@ TEST_CASE("snapshot: a practice log that cannot be written shows one warning lin
     TempDir home;
     { std::ofstream(home.file("blocker")) << "a file where the data folder should be"; }
     const std::string log = home.file("blocker") + "/d/p.sqlite3";
-    const Image img = read_png(
-        snapshot(home, "--demo --hold -3 --drill hold-septimal-tritones --seconds 10.8 --size 1920x1080 --log " + log, "drill-warning.png"));
+    const std::string png = home.file("drill-warning.png");
+    const auto run = run_program("snapshot --demo --hold -3 --drill hold-septimal-tritones --seconds 10.8 --size 1920x1080 --log " + log +
+                                     " --out " + png,
+                                 {"BEATLESS_HOME=" + home.path(), "TMPDIR=" + home.path()});
+    REQUIRE_MESSAGE(run.exit_code == 0, run.err);
+    // On closing, what could not be saved goes to a CSV in the temporary folder: nothing is lost.
+    CHECK(run.err.find("written to " + home.path() + "/beatless-unsaved-") != std::string::npos);
+    const Image img = read_png(png);
     const std::string text = "practice log " + log + ": cannot write (cannot open or create it); 1 attempt kept and will be saved when possible";
     const Image warning = render_text(text, ui::FontFace::body, ui::palette::kText, ui::palette::kPanelRaised, 1.0f);
     Box top;
@@ -414,11 +423,7 @@ TEST_CASE("snapshot: a practice log that cannot be written shows one warning lin
     // The result is there all the same.
     const Image words = render_text("locked in 0.3 s, held 3 cents flat, 100 % within \xC2\xB1" "6 c", ui::FontFace::bold, ui::palette::kText,
                                     ui::palette::kPanel, 1.0f);
-    Box all;
-    all.x0 = 0;
-    all.y0 = 0;
-    all.x1 = img.w - 1;
-    all.y1 = img.h - 1;
+    const Box all = whole(img);
     CHECK(find_exact(img, words, all).size() == 1);
 }
 

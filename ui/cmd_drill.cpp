@@ -124,19 +124,7 @@ int report_log(const DrillRunner& runner, const LogWriter& writer) {
             std::fprintf(stderr, "beatless: %zu %s saved to %s\n", made, made == 1 ? "attempt" : "attempts", writer.path().c_str());
         return 0;
     }
-    std::error_code ec;
-    fs::path dir = fs::temp_directory_path(ec);
-    if (ec) dir = ".";
-    const fs::path csv = dir / ("beatless-unsaved-" + new_uid().substr(0, 8) + ".csv");
-    std::ofstream out(csv, std::ios::binary);
-    out << writer.pending_csv();
-    out.flush();
-    std::string line = runner.log_warning();
-    if (out) {
-        line += "; written to " + csv.string() + " (add them later with beatless history --import " + csv.string() + ")";
-    } else {
-        line += "; and " + csv.string() + " cannot be written either: the attempts above are all that is left";
-    }
+    const std::string line = keep_unsaved(writer, runner.log_warning());
     std::fprintf(stderr, "beatless: %s\n", line.c_str());
     return 1;
 }

@@ -14,6 +14,8 @@
 
 #include <algorithm>
 #include <cstdio>
+#include <filesystem>
+#include <fstream>
 
 namespace beatless::ui {
 
@@ -143,14 +145,6 @@ void DrillRunner::feed(const pitch::Reading& r) {
 
 void DrillRunner::advance(double now_s) {
     if (collecting_ && now_s >= collect_end_s_ + cfg_.score_wait_s) finish_hold_score();
-    for (auto it = due_.begin(); it != due_.end();) {
-        if (it->at_s <= now_s) {
-            out_tones_.push_back(it->tone);
-            it = due_.erase(it);
-        } else {
-            ++it;
-        }
-    }
     // Walk through every phase that has ended by now (a long frame may skip several).
     for (int guard = 0; guard < 1000 && running() && now_s >= phase_end_s_; ++guard) {
         const double at = phase_end_s_;
@@ -365,6 +359,21 @@ void DrillRunner::retry_log() {
 std::string DrillRunner::log_warning() const {
     if (!log_ || log_->pending() == 0) return {};
     return log_warning_line(log_->path().string(), last_save_);
+}
+
+std::string keep_unsaved(const LogWriter& w, const std::string& warning) {
+    if (w.pending() == 0) return {};
+    std::error_code ec;
+    std::filesystem::path dir = std::filesystem::temp_directory_path(ec);
+    if (ec) dir = ".";
+    const std::filesystem::path csv = dir / ("beatless-unsaved-" + new_uid().substr(0, 8) + ".csv");
+    std::ofstream out(csv, std::ios::binary);
+    out << w.pending_csv();
+    out.flush();
+    std::string line = warning.empty() ? std::to_string(w.pending()) + " attempts not saved" : warning;
+    if (out) line += "; written to " + csv.string() + " (add them later with beatless history --import " + csv.string() + ")";
+    else line += "; and " + csv.string() + " cannot be written either: the attempts above are all that is left";
+    return line;
 }
 
 std::string_view log_problem_words(LogProblem p) {

@@ -224,6 +224,11 @@ std::string ear_summary_text(const EarResult& r);
 // saved when possible"; the writer's own warning when no problem is named.
 std::string log_warning_line(const std::string& log_path, const SaveResult& r);
 std::string_view log_problem_words(LogProblem p);  // "disk full", "read-only", ...
+// At the end (the command's, the window's): what the writer still keeps goes
+// into a CSV file in the temporary folder, for `beatless history --import`.
+// Returns the one line to show ("<warning>; written to FILE (add them ...)"),
+// or empty when nothing is kept.
+std::string keep_unsaved(const LogWriter& w, const std::string& warning);
 
 // --- What the engine needs for a drill -----------------------------------------------
 // The drill's drone, sounding: its root, fifth and level (never above

@@ -88,6 +88,12 @@ struct PlotSeries {
 
 class DrillsScreen final : public Screen {
 public:
+    ~DrillsScreen() override {
+        // Closing the program: one more try, then nothing kept in memory is lost.
+        if (!writer_ || writer_->pending() == 0) return;
+        const SaveResult r = writer_->retry();
+        if (r.pending > 0) std::fprintf(stderr, "beatless: %s\n", keep_unsaved(*writer_, log_warning_line(log_path_, r)).c_str());
+    }
     ScreenId id() const override { return ScreenId::drills; }
     std::span<const KeyHelp> keys() const override { return kDrillKeys; }
     void build(AppState& app, const ScreenArea& area, double dt_s) override;
