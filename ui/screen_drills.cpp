@@ -201,6 +201,10 @@ void DrillsScreen::start(AppState& app) {
         app.post(e.what(), true);
         return;
     }
+    if (d.mode == DrillMode::hold && !app.engine_running()) {
+        app.post("no input: a hold drill listens to you; choose an input in Settings (or start with --demo)", true);
+        return;
+    }
     RunnerConfig rc;
     const AppOptions& o = app.options();
     rc.seed = o.demo || o.simulated ? o.seed : static_cast<std::uint64_t>(std::chrono::steady_clock::now().time_since_epoch().count());
