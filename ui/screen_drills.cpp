@@ -4,9 +4,10 @@
 //   │ one entry per      │      the question and the answer buttons (ear)     │
 //   │ built-in drill:    ├ last attempt: the result in words and its trace    │
 //   │ title, about       │      against the target line and the band          │
-//   │ [Start] [Stop]     ├ history: mean deviation per target per day, small  │
-//   │ the drill's facts  │      plots (the ear threshold per day for ear)     │
-//   └────────────────────┴────────────────────────────────────────────────────┘
+//   │ [Start] [Stop]     │                                                    │
+//   ├ history (ui/drill_history.h): mean deviation per target per day, small  ┤
+//   │ plots; the ear threshold per day for ear drills                         │
+//   └──────────────────────────────────────────────────────────────────────────┘
 // The runner (ui/drill_runner.h) keeps the time: for holds the engine's
 // stream time (the readings' clock), so the demo performer and a snapshot
 // follow the same schedule; for ear questions the frames' clock. Attempts go
@@ -17,14 +18,14 @@
 // when another drill is chosen. Leaving the screen stops a drill (a hold not
 // yet over is dropped).
 //
-// Index: [state] [run] [now panel] [attempt panel] [history panel] [left column] [screen]
+// Index: [state] [run] [now panel] [attempt panel] [left column] [screen]
 #include "pitch/error.h"
 #include "pitch/listener_model.h"
 #include "pitch/notes.h"
 #include "pitch/text.h"
 #include "ui/draw_kit.h"
+#include "ui/drill_history.h"
 #include "ui/drill_runner.h"
-#include "ui/history.h"
 #include "ui/lane.h"
 #include "ui/log_writer.h"
 #include "ui/palette.h"
@@ -57,7 +58,6 @@ constexpr ImGuiWindowFlags kPanelFlags = ImGuiWindowFlags_NoDecoration | ImGuiWi
                                          ImGuiWindowFlags_NoBringToFrontOnFocus | ImGuiWindowFlags_NoScrollWithMouse;
 constexpr double kRetryEveryS = 10.0;   // unsaved attempts: try the log again this often
 constexpr double kAwayS = 0.5;          // no frame of this screen for this long: it was left
-constexpr int kHistoryDays = 30;        // the history plots show at most the last 30 days
 
 ImVec4 v4(std::uint32_t c) { return ImGui::ColorConvertU32ToFloat4(c); }
 
@@ -67,23 +67,6 @@ constexpr KeyHelp kDrillKeys[] = {
     {"1 / 2", "ear drills: answer"},
     {"PgUp / PgDn", "choose the drill above / below"},
     {"Lane", "during a hold: your pitch; the green window is the drill's tolerance"},
-};
-
-// Day number of "YYYY-MM-DD" (days since 1970-01-01).
-long day_number(const std::string& day) {
-    using namespace std::chrono;
-    if (day.size() < 10) return 0;
-    const int y = std::atoi(day.substr(0, 4).c_str());
-    const unsigned m = static_cast<unsigned>(std::atoi(day.substr(5, 2).c_str()));
-    const unsigned d = static_cast<unsigned>(std::atoi(day.substr(8, 2).c_str()));
-    return static_cast<long>(sys_days{year{y} / month{m} / std::chrono::day{d}}.time_since_epoch().count());
-}
-
-struct PlotSeries {
-    std::string key;                                 // "7/5", or the drill id (ear)
-    std::string name;
-    std::vector<std::pair<long, double>> points;     // day number, value
-    std::int64_t attempts = 0;
 };
 
 class DrillsScreen final : public Screen {
@@ -104,7 +87,6 @@ private:
     void stop(AppState& app, const char* why);
     void pump(AppState& app);
     void keys_of_screen(AppState& app);
-    void read_history();
 
     void left_column(AppState& app, ImDrawList* dl, float x0, float y0, float w, float h);
     void now_panel(AppState& app, ImDrawList* dl, float x0, float y0, float w, float h);
@@ -114,8 +96,6 @@ private:
     void attempt_panel(ImDrawList* dl, float x0, float y0, float w, float h);
     void hold_trace(ImDrawList* dl, const HoldResult& r, float x0, float y0, float w, float h);
     void ear_track(ImDrawList* dl, float x0, float y0, float w, float h);
-    void history_panel(ImDrawList* dl, float x0, float y0, float w, float h);
-    void small_plot(ImDrawList* dl, const PlotSeries& s, bool ear, float x0, float y0, float w, float h);
 
     const Drill* chosen() const { return selected_ < drills_.size() ? &drills_[selected_] : nullptr; }
     const Drill& run_drill() const { return runner_->drill(); }
@@ -138,8 +118,7 @@ private:
     double now_s_ = 0.0;                // the runner's clock this frame
     // History.
     bool history_dirty_ = true;
-    std::string history_note_;          // why there is nothing to show
-    std::vector<PlotSeries> history_;
+    DrillHistory history_;
     std::vector<ImVec2> points_;        // polyline scratch
     std::optional<pitch::SimulatedListener> listener_;  // --listener: answers ear questions
     double answer_due_s_ = INFINITY;
@@ -311,29 +290,10 @@ void DrillsScreen::keys_of_screen(AppState& app) {
 // [now panel]
 // ---------------------------------------------------------------------------
 
-// The text, cut at a character boundary with an ellipsis so it fits max_w pixels.
-std::string fit_text(FontFace face, const std::string& text, float max_w) {
-    if (text_size(face, text).x <= max_w) return text;
-    const std::string ell = "\xE2\x80\xA6";
-    std::string s = text;
-    while (!s.empty()) {
-        do s.pop_back();
-        while (!s.empty() && (static_cast<unsigned char>(s.back()) & 0xC0) == 0x80);  // a UTF-8 continuation byte
-        if (!s.empty()) s.pop_back();
-        if (text_size(face, s + ell).x <= max_w) break;
-    }
-    while (!s.empty() && s.back() == ' ') s.pop_back();
-    return s + ell;
-}
-
 std::string seconds_text(double s) {
     char buf[32];
     std::snprintf(buf, sizeof buf, "%.1f s", std::max(0.0, s));
     return buf;
-}
-
-void panel(ImDrawList* dl, float x0, float y0, float w, float h) {
-    dl->AddRectFilled(ImVec2(x0, y0), ImVec2(x0 + w, y0 + h), palette::kPanel, std::round(0.25f * ui_unit()));
 }
 
 void DrillsScreen::idle_now(ImDrawList* dl, float x0, float y0, float w, float h) {
@@ -577,7 +537,7 @@ void DrillsScreen::ear_now(AppState& app, ImDrawList* dl, float x0, float y0, fl
 }
 
 void DrillsScreen::now_panel(AppState& app, ImDrawList* dl, float x0, float y0, float w, float h) {
-    panel(dl, x0, y0, w, h);
+    draw_panel(dl, x0, y0, w, h);
     if (!runner_) return idle_now(dl, x0, y0, w, h);
     if (run_drill().mode == DrillMode::hold) hold_now(app, dl, x0, y0, w, h);
     else ear_now(app, dl, x0, y0, w, h);
@@ -689,7 +649,7 @@ void DrillsScreen::ear_track(ImDrawList* dl, float x0, float y0, float w, float 
 
 void DrillsScreen::attempt_panel(ImDrawList* dl, float x0, float y0, float w, float h) {
     const float u = ui_unit();
-    panel(dl, x0, y0, w, h);
+    draw_panel(dl, x0, y0, w, h);
     const float x = x0 + u;
     float y = y0 + std::round(0.5f * u);
     if (runner_ && run_drill().mode == DrillMode::ear && (!runner_->answers().empty() || runner_->ear_result())) {
@@ -732,152 +692,12 @@ void DrillsScreen::attempt_panel(ImDrawList* dl, float x0, float y0, float w, fl
 }
 
 // ---------------------------------------------------------------------------
-// [history panel]
-// ---------------------------------------------------------------------------
-
-void DrillsScreen::read_history() {
-    history_dirty_ = false;
-    history_.clear();
-    history_note_.clear();
-    const Drill* d = chosen();
-    if (!d) return;
-    if (log_path_.empty()) {
-        history_note_ = "No practice log in use (a snapshot without --log).";
-        return;
-    }
-    std::error_code ec;
-    if (!std::filesystem::exists(log_path_, ec)) {
-        history_note_ = "Nothing in the practice log yet: your attempts will show here.";
-        return;
-    }
-    try {
-        LogOptions lo;
-        lo.read_only = true;
-        PracticeLog log(log_path_, lo);
-        HistoryOptions ho;
-        ho.filter.drill = d->id;
-        ho.by = Period::day;
-        const HistorySummary sum = summarize_history(log, ho);
-        std::map<std::string, std::size_t> at;
-        if (d->mode == DrillMode::hold) {  // the drill's targets in its order, each once
-            for (const DrillTarget& t : d->targets) {
-                const std::string k = t.target.interval.str();
-                if (at.count(k)) continue;
-                at[k] = history_.size();
-                history_.push_back({k, t.target.name, {}, 0});
-            }
-        }
-        for (const HistoryLine& l : sum.over_time) {
-            const bool want = d->mode == DrillMode::hold ? l.kind == AttemptKind::hold : l.kind == AttemptKind::ear;
-            const double v = l.kind == AttemptKind::hold ? l.mean_dev_cents : l.threshold_cents;
-            if (!want || !std::isfinite(v)) continue;
-            if (!at.count(l.key)) {
-                at[l.key] = history_.size();
-                history_.push_back({l.key, l.name, {}, 0});
-            }
-            PlotSeries& ps = history_[at[l.key]];
-            ps.points.emplace_back(day_number(l.period), v);
-            ps.attempts += l.attempts;
-        }
-        if (sum.attempts == 0) history_note_ = "No attempts of this drill in the practice log yet.";
-    } catch (const Error& e) {
-        history_note_ = e.what();
-    }
-}
-
-void DrillsScreen::small_plot(ImDrawList* dl, const PlotSeries& s, bool ear, float x0, float y0, float w, float h) {
-    const float u = ui_unit();
-    dl->AddRectFilled(ImVec2(x0, y0), ImVec2(x0 + w, y0 + h), palette::kPanelRaised, std::round(0.2f * u));
-    draw_text(dl, FontFace::bold, ImVec2(x0 + std::round(0.4f * u), y0 + std::round(0.2f * u)), palette::kText, ear ? "threshold" : s.key);
-    if (!s.points.empty()) {
-        const double latest = s.points.back().second;
-        const std::string v = ear ? pitch::format_trimmed(latest, 1) + " c" : signed_text(latest, 1) + " c";
-        const std::uint32_t col = ear ? palette::kText : tuning_colour(tuning_of(latest, chosen() ? chosen()->tolerance_cents : 5.0));
-        draw_text(dl, FontFace::bold, ImVec2(x0 + w - std::round(0.4f * u) - text_size(FontFace::bold, v).x, y0 + std::round(0.2f * u)), col, v);
-    }
-    const float px0 = x0 + std::round(0.5f * u), px1 = x0 + w - std::round(0.5f * u);
-    const float py0 = y0 + std::round(1.35f * u), py1 = y0 + h - std::round(0.3f * u);
-    if (py1 - py0 < 0.8f * u) return;
-    if (s.points.empty()) {
-        draw_text_centred(dl, FontFace::body, 0.5f * (px0 + px1), 0.5f * (py0 + py1) - 0.5f * u, palette::kTextFaint, "not yet");
-        return;
-    }
-    const long last_day = s.points.back().first;
-    const long first_day = std::max(s.points.front().first, last_day - (kHistoryDays - 1));
-    const double days = static_cast<double>(std::max(1L, last_day - first_day));
-    auto x_of = [&](long d) { return last_day == first_day ? 0.5f * (px0 + px1) : px0 + static_cast<float>((d - first_day) / days) * (px1 - px0); };
-    double lo, hi;
-    if (ear) {
-        lo = 0.0;
-        hi = 1.0;
-        for (const auto& p : s.points) hi = std::max(hi, 1.2 * p.second);
-    } else {
-        const double tol = chosen() ? chosen()->tolerance_cents : 5.0;
-        double m = 2.0 * tol;
-        for (const auto& p : s.points)
-            if (p.first >= first_day) m = std::max(m, std::fabs(p.second) * 1.15);
-        lo = -m;
-        hi = m;
-        const auto yb = [&](double c) { return std::round(py1 - static_cast<float>((c - lo) / (hi - lo)) * (py1 - py0)); };
-        dl->AddRectFilled(ImVec2(px0, yb(tol)), ImVec2(px1, yb(-tol)), palette::kInTuneZone);
-        dl->AddRectFilled(ImVec2(px0, yb(0.0)), ImVec2(px1, yb(0.0) + 1), palette::kCurrentTarget);
-    }
-    auto y_of = [&](double c) { return std::round(py1 - static_cast<float>((std::clamp(c, lo, hi) - lo) / (hi - lo)) * (py1 - py0)); };
-    points_.clear();
-    for (const auto& p : s.points)
-        if (p.first >= first_day) points_.emplace_back(x_of(p.first), y_of(p.second));
-    if (points_.size() >= 2) dl->AddPolyline(points_.data(), static_cast<int>(points_.size()), palette::kTextDim, ImDrawFlags_None, 1.5f);
-    const float rad = std::round(0.22f * u);
-    for (const ImVec2& p : points_) dl->AddCircleFilled(p, rad, palette::kText, 12);
-}
-
-void DrillsScreen::history_panel(ImDrawList* dl, float x0, float y0, float w, float h) {
-    const float u = ui_unit();
-    panel(dl, x0, y0, w, h);
-    if (history_dirty_) read_history();
-    const Drill* d = chosen();
-    if (!d) return;
-    const bool ear = d->mode == DrillMode::ear;
-    const std::string head = ear ? "History of " + d->title + ": the threshold per day, in cents (lower is finer)"
-                                 : "History of " + d->title + ": mean deviation per target per day, in cents (band \xC2\xB1" +
-                                       pitch::format_trimmed(d->tolerance_cents, 1) + " c)";
-    draw_text(dl, FontFace::body, ImVec2(x0 + u, y0 + std::round(0.3f * u)), palette::kTextDim, head);
-    const float gy = y0 + std::round(1.5f * u);
-    const float gh = y0 + h - gy - std::round(0.4f * u);
-    if (!history_note_.empty() || history_.empty()) {
-        draw_text(dl, FontFace::body, ImVec2(x0 + u, gy + std::round(0.3f * u)), palette::kTextFaint,
-                  history_note_.empty() ? std::string("No attempts of this drill in the practice log yet.") : history_note_);
-        return;
-    }
-    if (gh < 2.5f * u) return;
-    const float gap = std::round(0.5f * u);
-    const float inner = w - 2.0f * u;
-    const std::size_t n = history_.size();
-    const int rows_fit = std::max(1, static_cast<int>((gh + gap) / (3.2f * u + gap)));
-    int cols = std::max(1, static_cast<int>((inner + gap) / (7.5f * u + gap)));
-    if (ear) cols = 1;
-    cols = std::min<int>(cols, static_cast<int>(n));
-    const int rows = std::min(rows_fit, static_cast<int>((n + static_cast<std::size_t>(cols) - 1) / static_cast<std::size_t>(cols)));
-    const float cw = std::floor((inner - gap * static_cast<float>(cols - 1)) / static_cast<float>(cols));
-    const float ch = std::floor((gh - gap * static_cast<float>(rows - 1)) / static_cast<float>(rows));
-    const std::size_t shown = std::min(n, static_cast<std::size_t>(rows * cols));
-    for (std::size_t i = 0; i < shown; ++i) {
-        const int c = static_cast<int>(i) % cols, r = static_cast<int>(i) / cols;
-        small_plot(dl, history_[i], ear, x0 + u + static_cast<float>(c) * (cw + gap), gy + static_cast<float>(r) * (ch + gap), cw, ch);
-    }
-    if (shown < n) {
-        const std::string more = "+" + std::to_string(n - shown) + " more (beatless history)";
-        draw_text(dl, FontFace::body, ImVec2(x0 + w - u - text_size(FontFace::body, more).x, y0 + std::round(0.3f * u)), palette::kTextDim, more);
-    }
-}
-
-// ---------------------------------------------------------------------------
 // [left column]
 // ---------------------------------------------------------------------------
 
 void DrillsScreen::left_column(AppState& app, ImDrawList* dl, float x0, float y0, float w, float h) {
     const float u = ui_unit();
-    panel(dl, x0, y0, w, h);
+    draw_panel(dl, x0, y0, w, h);
     float y = y0 + std::round(0.5f * u);
     draw_text(dl, FontFace::bold, ImVec2(x0 + u, y), palette::kTextDim, "Choose a drill");
     y += std::round(1.3f * u);
@@ -967,7 +787,11 @@ void DrillsScreen::build(AppState& app, const ScreenArea& area, double dt_s) {
     const float now_h = std::round(std::clamp(0.58f * top_h, 9.0f * u, 14.0f * u));
     now_panel(app, dl, rx, top, rw, now_h);
     attempt_panel(dl, rx, top + now_h + gap, rw, top_h - now_h - gap);
-    history_panel(dl, x0, top + top_h + gap, w, hist_h);
+    if (history_dirty_ && chosen()) {
+        history_ = read_drill_history(log_path_, *chosen());
+        history_dirty_ = false;
+    }
+    if (chosen()) draw_drill_history(dl, history_, *chosen(), x0, top + top_h + gap, w, hist_h);
     ImGui::End();
     ImGui::PopStyleVar();
 }
