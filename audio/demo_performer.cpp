@@ -28,16 +28,31 @@ DemoPerformer::DemoPerformer(const DemoConfig& config)
     if (cfg_.target_cents.empty()) throw Error("demo performer: needs at least one target");
     if (!(cfg_.root_hz >= 20.0 && cfg_.root_hz <= 2000.0)) throw Error("demo performer: root out of range (20 Hz to 2 kHz)");
     if (!(cfg_.low_hz > 0 && cfg_.high_hz >= 2.0 * cfg_.low_hz)) throw Error("demo performer: range must span an octave");
+    if (!(cfg_.vibrato_scale >= 0.0 && cfg_.vibrato_scale <= 2.0)) throw Error("demo performer: vibrato_scale out of range (0 to 2)");
+    for (std::size_t i = 0; i < cfg_.script.size(); ++i) {
+        const DemoNote& n = cfg_.script[i];
+        if (!(n.start_s >= 0.0 && n.dur_s > 0.0 && std::isfinite(n.start_s + n.dur_s + n.target_cents)))
+            throw Error("demo performer: script note " + std::to_string(i + 1) + " has a bad time or target");
+        if (i > 0 && n.start_s < cfg_.script[i - 1].start_s + cfg_.script[i - 1].dur_s)
+            throw Error("demo performer: script note " + std::to_string(i + 1) + " starts before the one before it ends");
+    }
     partials_.assign(kPartials, 0.0);
     noise_rms_ = 0.02 * std::pow(10.0, cfg_.level_dbfs / 20.0);
-    next_start_ = static_cast<std::int64_t>(0.3 * cfg_.sample_rate_hz);  // a short breath before the first note
+    next_start_ = cfg_.script.empty() ? static_cast<std::int64_t>(0.3 * cfg_.sample_rate_hz)  // a short breath before the first note
+                                      : static_cast<std::int64_t>(std::llround(cfg_.script.front().start_s * cfg_.sample_rate_hz));
 }
 
 void DemoPerformer::start_note() noexcept {
     const double fs = cfg_.sample_rate_hz;
     const std::size_t n = cfg_.target_cents.size();
-    truth_.target_index = static_cast<int>(cfg_.hold ? 0 : note_index_ % n);
-    double f = cfg_.root_hz * std::exp2(cfg_.target_cents[static_cast<std::size_t>(truth_.target_index)] / 1200.0);
+    const bool scripted = !cfg_.script.empty();
+    if (scripted && note_index_ >= cfg_.script.size()) {  // the script is sung: silence from now on
+        next_start_ = INT64_MAX;
+        return;
+    }
+    truth_.target_index = static_cast<int>(scripted ? note_index_ : cfg_.hold ? 0 : note_index_ % n);
+    const double cents = scripted ? cfg_.script[note_index_].target_cents : cfg_.target_cents[static_cast<std::size_t>(truth_.target_index)];
+    double f = cfg_.root_hz * std::exp2(cents / 1200.0);
     while (f < cfg_.low_hz) f *= 2.0;
     while (f > cfg_.high_hz) f /= 2.0;
     note_target_hz_ = f;
@@ -50,7 +65,7 @@ void DemoPerformer::start_note() noexcept {
         start_dev_cents_ = sign * (6.0 + 14.0 * u(rng_));
         final_dev_cents_ = (u(rng_) - 0.5) * 6.0;  // within ±3 cents after correcting
         vib_rate_hz_ = 5.0 + 1.2 * u(rng_);
-        vib_depth_cents_ = 20.0 + 10.0 * u(rng_);
+        vib_depth_cents_ = (20.0 + 10.0 * u(rng_)) * cfg_.vibrato_scale;
     }
     vib_phase_ = 0.0;
     // Partial amplitudes from the vowel envelope at this f0.
@@ -63,8 +78,15 @@ void DemoPerformer::start_note() noexcept {
     }
     for (double& a : partials_) a /= std::sqrt(power);
     note_start_ = next_start_;
-    note_end_ = cfg_.hold ? INT64_MAX : note_start_ + static_cast<std::int64_t>(cfg_.note_s * fs);
-    next_start_ = cfg_.hold ? INT64_MAX : note_end_ + static_cast<std::int64_t>(cfg_.breath_s * fs);
+    if (scripted) {
+        note_end_ = note_start_ + static_cast<std::int64_t>(std::llround(cfg_.script[note_index_].dur_s * fs));
+        next_start_ = note_index_ + 1 < cfg_.script.size()
+                           ? std::max(note_end_, static_cast<std::int64_t>(std::llround(cfg_.script[note_index_ + 1].start_s * fs)))
+                           : INT64_MAX;
+    } else {
+        note_end_ = cfg_.hold ? INT64_MAX : note_start_ + static_cast<std::int64_t>(cfg_.note_s * fs);
+        next_start_ = cfg_.hold ? INT64_MAX : note_end_ + static_cast<std::int64_t>(cfg_.breath_s * fs);
+    }
     ++note_index_;
     synth_.set_partials(partials_, true);
     synth_.set_f0(note_target_hz_ * std::exp2(start_dev_cents_ / 1200.0), true);

@@ -9,7 +9,9 @@
 // ("ah": formants near 700, 1200 and 2600 Hz) and a little breath noise.
 // Everything is seeded, so a run is reproducible, and the intended pitch is
 // available as truth for tests. A hold mode keeps one target at a fixed
-// deviation without vibrato (for snapshots and tests).
+// deviation without vibrato (for snapshots and tests). A script replaces the
+// endless round of notes with given notes at given times (a drill's holds):
+// each is sung the usual way (or held, in hold mode), then she is silent.
 #pragma once
 
 #include "audio/synth.h"
@@ -20,6 +22,13 @@
 #include <vector>
 
 namespace beatless::audio {
+
+// One scripted note: when it starts, how long it lasts, which target.
+struct DemoNote {
+    double start_s = 0.0;                  // from the performer's first sample
+    double dur_s = 1.0;                    // sounding time
+    double target_cents = 0.0;             // above the root
+};
 
 struct DemoConfig {
     double sample_rate_hz = 48000.0;
@@ -33,11 +42,13 @@ struct DemoConfig {
     std::uint64_t seed = 7;
     bool hold = false;                     // hold mode: first target, fixed deviation, no vibrato
     double hold_dev_cents = 0.0;           // deviation in hold mode (+ sharp)
+    std::vector<DemoNote> script;          // when not empty: exactly these notes, in time order, not overlapping
+    double vibrato_scale = 1.0;            // vibrato depth factor: 1 her own, 0 a straight tone (default 1)
 };
 
 struct DemoTruth {
     bool voiced = false;
-    int target_index = -1;        // into target_cents
+    int target_index = -1;        // into target_cents, or into script when scripted
     double f0_hz = 0.0;           // instantaneous, with vibrato
     double centre_f0_hz = 0.0;    // without vibrato
     double dev_cents = 0.0;       // centre's deviation from the target

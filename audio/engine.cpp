@@ -532,6 +532,17 @@ void Engine::sound_reference() {
     set_drone(s);
 }
 
+void Engine::sound_tone(double freq_hz, double dur_s) {
+    if (!(freq_hz >= 20.0 && freq_hz <= 5000.0))
+        throw Error("tone " + pitch::format_trimmed(freq_hz, 2) + " Hz: out of range (20 Hz to 5 kHz)");
+    if (!(dur_s >= 0.1 && dur_s <= 30.0)) throw Error("tone length " + pitch::format_trimmed(dur_s, 3) + " s: out of range (0.1 to 30 s)");
+    DroneSettings s = drone_;
+    s.reference_hz = freq_hz;
+    s.reference_s = dur_s;
+    ++s.reference_count;
+    set_drone(s);
+}
+
 void Engine::supervise() {
     Impl& m = *impl_;
     if (m.producer_failed.exchange(false)) say(m.producer_error);

@@ -108,6 +108,11 @@ public:
     const DroneSettings& drone() const { return drone_; }
     void set_root_hz(double root_hz);          // drone and readings together
     void sound_reference();                    // the reference voice sounds the current target once
+    // The reference voice sounds freq_hz for dur_s (drills: the announced
+    // target, ear questions), 3 dB under the drone's level, with 50 ms fades;
+    // a tone asked for while one sounds glides to the new pitch over 50 ms.
+    // Throws Error on a frequency outside 20 Hz .. 5 kHz or a length outside 0.1 .. 30 s.
+    void sound_tone(double freq_hz, double dur_s);
     void supervise();                          // watchdog and reopening; call every ~100 ms
     void on_message(std::function<void(const std::string&)> f) { message_ = std::move(f); }
 

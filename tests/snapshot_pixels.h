@@ -109,6 +109,14 @@ inline std::vector<std::pair<int, int>> find_exact(const Image& img, const Image
     return hits;
 }
 
+// The whole image as a search region.
+inline Box whole(const Image& img) {
+    Box b;
+    b.add(0, 0);
+    b.add(img.w - 1, img.h - 1);
+    return b;
+}
+
 inline std::string snapshot(const TempDir& home, const std::string& args, const std::string& name) {
     const std::string out = home.file(name);
     const auto r = run_program("snapshot " + args + " --out " + out, {"BEATLESS_HOME=" + home.path()});

@@ -266,6 +266,8 @@ TEST_CASE("keys: Space needs the caution first; arrows move target and root; H o
     frame_with_key(GLFW_KEY_ESCAPE);
     CHECK_FALSE(deck.help_open());
     frame_with_key(GLFW_KEY_TAB);
+    CHECK(deck.current() == ui::ScreenId::drills);
+    frame_with_key(GLFW_KEY_TAB);
     CHECK(deck.current() == ui::ScreenId::ensemble);
     frame_with_key(GLFW_KEY_TAB);
     CHECK(deck.current() == ui::ScreenId::settings);
@@ -273,13 +275,63 @@ TEST_CASE("keys: Space needs the caution first; arrows move target and root; H o
     CHECK(deck.current() == ui::ScreenId::practice);
 }
 
-TEST_CASE("screens: Practice, Ensemble and Settings are built; the others are named but not shown") {
+TEST_CASE("screens: Practice, Drills, Ensemble and Settings are built; the others are named but not shown") {
     const auto ids = ui::built_screens();
-    REQUIRE(ids.size() == 3);
+    REQUIRE(ids.size() == 4);
     CHECK(ids[0] == ui::ScreenId::practice);
-    CHECK(ids[1] == ui::ScreenId::ensemble);
-    CHECK(ids[2] == ui::ScreenId::settings);
-    CHECK(ui::built_screen_keys() == "practice, ensemble, settings");
+    CHECK(ids[1] == ui::ScreenId::drills);
+    CHECK(ids[2] == ui::ScreenId::ensemble);
+    CHECK(ids[3] == ui::ScreenId::settings);
+    CHECK(ui::built_screen_keys() == "practice, drills, ensemble, settings");
     CHECK(ui::parse_screen_key("Drills") == ui::ScreenId::drills);
     CHECK_FALSE(ui::parse_screen_key("lobby").has_value());
+}
+
+TEST_CASE("drills on the app state: caution first; the drill's drone never louder than the user's; the settings come back") {
+    TempDir dir;
+    ui::Settings st;
+    st.level_dbfs = -36.0;  // the user keeps the drone quiet
+    ui::AppState app(st, dir.file("settings.toml"), sim_demo());
+    app.start();
+    audio::DroneSettings drill;
+    drill.on = true;
+    drill.root_hz = 146.832;  // D3
+    drill.fifth = true;
+    drill.level_dbfs = -24.0;
+    // Before the caution: no drill, no tone.
+    CHECK_FALSE(app.begin_drill(drill));
+    CHECK_FALSE(app.drill_active());
+    CHECK_FALSE(app.drone_on());
+    CHECK_FALSE(app.sound_tone(220.0, 1.0));
+    app.acknowledge_caution();
+    REQUIRE(app.begin_drill(drill));
+    CHECK(app.drill_active());
+    CHECK(app.drone_on());
+    CHECK(app.root_hz() == doctest::Approx(146.832));
+    for (int i = 0; i < 90; ++i) app.update(1.0 / 60.0);  // past the 1 s fade-in
+    // The level: min(-24, -36) = -36 dBFS, the user's.
+    CHECK(app.drone_sent().level_dbfs == doctest::Approx(-36.0));
+    CHECK(app.drone_sent().fifth);
+    CHECK(app.drone_sent().root_hz == doctest::Approx(146.832));
+    // A tone asked for is carried in every later drone setting until rendered (never lost to a level change).
+    CHECK_FALSE(app.sound_tone(220.0, 1.0));  // true only with an output device; the request is made all the same
+    const std::uint32_t count = app.drone_sent().reference_count;
+    app.set_drone_level(-40.0);
+    CHECK(app.drone_sent().reference_count == count);
+    CHECK(app.drone_sent().reference_hz == doctest::Approx(220.0));
+    CHECK(app.drone_sent().level_dbfs == doctest::Approx(-40.0));
+    // While it runs, the root and the targets are the drill's: changing them is refused with a message.
+    CHECK_FALSE(app.set_root_text("E2"));
+    CHECK(app.messages().back().text.find("a drill is running") != std::string::npos);
+    CHECK(app.settings().root == "A2");
+    pitch::TargetSet one;
+    one.targets.push_back({pitch::parse_interval("7/5"), ""});
+    app.set_drill_targets(one);
+    for (int i = 0; i < 60; ++i) app.update(1.0 / 60.0);
+    app.end_drill();
+    CHECK_FALSE(app.drill_active());
+    CHECK_FALSE(app.drone_on());  // it was off before the drill
+    CHECK(app.root_hz() == doctest::Approx(110.0));
+    CHECK_FALSE(app.drone_sent().fifth);
+    CHECK(app.set_root_text("E2"));
 }

@@ -192,7 +192,7 @@ TEST_CASE("snapshot: bad values give one line naming the value, exit 1 or 2") {
         {"--size 10x10 --out " + home.file("x.png"), 1, "--size 10x10"},
         {"--size big --out " + home.file("x.png"), 1, "--size big"},
         {"--scale 9 --out " + home.file("x.png"), 1, "--scale 9"},
-        {"--screen drills --out " + home.file("x.png"), 2, "--screen drills"},
+        {"--screen review --out " + home.file("x.png"), 2, "--screen review"},
         {"--hold 5 --out " + home.file("x.png"), 2, "--hold works with --demo only"},
         {"--demo --target 9/0 --out " + home.file("x.png"), 1, "9/0"},
         {"--out /nonexistent-dir/x.png", 1, "/nonexistent-dir/x.png"},
@@ -238,4 +238,113 @@ TEST_CASE("beatless with no display says so in one line, points to snapshot and 
     CHECK(r.err.find("beatless snapshot") != std::string::npos);
     CHECK(r.err.find("beatless listen --demo") != std::string::npos);
     CHECK(r.out.empty());
+}
+
+// ---------------------------------------------------------------------------
+// The Drills screen
+// ---------------------------------------------------------------------------
+// The demo performer holds every target 3 cents flat (no vibrato) in the
+// drill "7/5 against 10/7" (±6 c, 5 s holds). Its first hold runs from 5.0 s
+// (1.5 s of drone alone, a 1.5 s announcement, a 2 s count-in: the schedule
+// of ui/drill_runner.h) to 10.0 s; she starts 0.3 s in, so the result the
+// screen must show at 10.8 s, worked from the score's definitions, reads
+// "locked in 0.3 s, held 3 cents flat, 100 % within ±6 c".
+
+TEST_CASE("snapshot: the Drills screen shows a finished hold's result in words, with its trace against the target line") {
+    TempDir home;
+    const std::string log = home.file("p.sqlite3");
+    const Image img = read_png(snapshot(home, "--demo --hold -3 --drill hold-septimal-tritones --seconds 10.8 --log " + log, "drill-result.png"));
+    const Image words = render_text("locked in 0.3 s, held 3 cents flat, 100 % within \xC2\xB1" "6 c", ui::FontFace::bold, ui::palette::kText,
+                                    ui::palette::kPanel, 1.0f);
+    const Box all = whole(img);
+    CHECK(find_exact(img, words, all).size() == 1);
+    // The trace: the target line (the current-target yellow) runs across the
+    // attempt's plot inside the tolerance band (the in-tune window's colour),
+    // and the pitch (white) runs below it: flat.
+    const auto hits = find_exact(img, words, all);
+    REQUIRE(hits.size() == 1);
+    // Walk down one column of the plot, from the band's top: the band's
+    // colour, the yellow target line, the white pitch (its core: the line is
+    // anti-aliased at its edges), until the band ends.
+    const int below = hits[0].second + words.h;
+    int band_top = -1, band_x = -1;
+    for (int y = below; y < img.h && band_top < 0; ++y)
+        for (int x = 0; x < img.w; ++x)
+            if (img.at(x, y) == ui::palette::kInTuneZone) {
+                band_top = y;
+                band_x = x;
+                break;
+            }
+    REQUIRE(band_top > 0);
+    const int col = band_x + (img.w - band_x) / 2;  // the middle of the hold
+    auto whitish = [&](std::uint32_t c) {
+        const int r = static_cast<int>(c & 0xFF), g = static_cast<int>((c >> 8) & 0xFF), b = static_cast<int>((c >> 16) & 0xFF);
+        return r > 200 && g > 200 && b > 200;
+    };
+    int y = band_top, yellow_sum = 0, yellow_n = 0, white_sum = 0, white_n = 0;
+    for (; y < img.h; ++y) {
+        const std::uint32_t c = img.at(col, y);
+        if (c == ui::palette::kCurrentTarget) yellow_sum += y, ++yellow_n;
+        else if (whitish(c)) white_sum += y, ++white_n;
+        else if (c == ui::palette::kBackground) break;  // the plot below the band (anti-aliased fringes are neither)
+    }
+    const int band_h = y - band_top;
+    REQUIRE(yellow_n > 0);
+    REQUIRE(white_n > 0);
+    const double px_per_cent = band_h / 12.0;  // the band is ±6 c
+    const double drop_cents = (static_cast<double>(white_sum) / white_n - static_cast<double>(yellow_sum) / yellow_n) / px_per_cent;
+    CAPTURE(band_h);
+    CHECK(std::fabs(drop_cents - 3.0) <= 1.0);  // below the line: flat
+    // The log was written: no warning anywhere.
+    CHECK(find_colour(img, ui::palette::kWarning).empty());
+}
+
+TEST_CASE("snapshot: a practice log that cannot be written shows one warning line, and the drill still runs") {
+    TempDir home;
+    { std::ofstream(home.file("blocker")) << "a file where the data folder should be"; }
+    const std::string log = home.file("blocker") + "/d/p.sqlite3";
+    const std::string png = home.file("drill-warning.png");
+    const auto run = run_program("snapshot --demo --hold -3 --drill hold-septimal-tritones --seconds 10.8 --size 1920x1080 --log " + log +
+                                     " --out " + png,
+                                 {"BEATLESS_HOME=" + home.path(), "TMPDIR=" + home.path()});
+    REQUIRE_MESSAGE(run.exit_code == 0, run.err);
+    // On closing, what could not be saved goes to a CSV in the temporary folder: nothing is lost.
+    CHECK(run.err.find("written to " + home.path() + "/beatless-unsaved-") != std::string::npos);
+    const Image img = read_png(png);
+    const std::string text = "practice log " + log + ": cannot write (cannot open or create it); 1 attempt kept and will be saved when possible";
+    const Image warning = render_text(text, ui::FontFace::body, ui::palette::kText, ui::palette::kPanelRaised, 1.0f);
+    Box top;
+    top.x0 = 0;
+    top.y0 = 0;
+    top.x1 = img.w - 1;
+    top.y1 = img.h / 6;
+    CHECK(find_exact(img, warning, top).size() == 1);
+    CHECK(!find_colour(img, ui::palette::kWarning, 0, img.h / 6).empty());
+    // The result is there all the same.
+    const Image words = render_text("locked in 0.3 s, held 3 cents flat, 100 % within \xC2\xB1" "6 c", ui::FontFace::bold, ui::palette::kText,
+                                    ui::palette::kPanel, 1.0f);
+    const Box all = whole(img);
+    CHECK(find_exact(img, words, all).size() == 1);
+}
+
+TEST_CASE("snapshot: the history panel plots each target's mean deviation per day, from the practice log") {
+    TempDir home;
+    const std::string log = home.file("p.sqlite3");
+    const auto r = run_program("drill hold-septimal-tritones --demo --hold -3 --attempts 2 --log " + log, {"BEATLESS_HOME=" + home.path()});
+    REQUIRE_MESSAGE(r.exit_code == 0, r.err);
+    const Image img = read_png(snapshot(home, "--demo --drill hold-septimal-tritones --seconds 1 --log " + log, "drill-history.png"));
+    // One small plot per target of the drill, each labelled, each with today's
+    // mean: -3.0 c (held 3 cents flat, within ±6 c: in the in-tune colour).
+    Box lower;
+    lower.x0 = 0;
+    lower.y0 = img.h / 2;
+    lower.x1 = img.w - 1;
+    lower.y1 = img.h - 1;
+    const Image value = render_text("\xE2\x88\x92" "3.0 c", ui::FontFace::bold, ui::palette::kInTune, ui::palette::kPanelRaised, 1.0f);
+    CHECK(find_exact(img, value, lower).size() == 2);
+    for (const char* t : {"7/5", "10/7"}) {
+        CAPTURE(t);
+        const Image label = render_text(t, ui::FontFace::bold, ui::palette::kText, ui::palette::kPanelRaised, 1.0f);
+        CHECK(find_exact(img, label, lower).size() == 1);
+    }
 }

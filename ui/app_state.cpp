@@ -6,6 +6,7 @@
 //   [frame]     update(), readings
 //   [drone]     caution, drone controls, root
 //   [targets]   target set, choice, names
+//   [drills]    a drill's drone and targets, tones, the demo's script
 //   [settings]  the other settings, saving, messages
 #include "ui/app_state.h"
 
@@ -50,6 +51,7 @@ constexpr double kSimRateHz = 48000.0;
 constexpr std::size_t kSimBlock = 256;
 constexpr double kMessageS = 8.0;    // a message stays this long on screen
 constexpr double kSaveAfterS = 1.0;  // changes are saved at most this often
+constexpr double kDrillVibratoScale = 0.25;  // the demo sings drills with a narrow vibrato (common practice at a drone)
 
 // Joins message parts with append (GCC 12 warns falsely, -Wrestrict, on
 // chains of operator+ with literals here).
@@ -145,11 +147,21 @@ void AppState::open_engine() {
         post(join({"no audio system: ", audio::kDemoHint}), true);
         return;
     }
+    trace_.clear();  // a new engine's stream time starts again at 0
+    has_current_ = false;
     audio::DemoConfig dc;
     dc.sample_rate_hz = kSimRateHz;
-    dc.root_hz = root_hz_;
+    dc.root_hz = engine_root_hz();
     dc.seed = options_.seed;
-    if (options_.hold_dev_cents) {
+    if (!demo_script_.empty()) {
+        dc.script = demo_script_;
+        dc.vibrato_scale = kDrillVibratoScale;
+        for (const audio::DemoNote& n : demo_script_) dc.target_cents.push_back(n.target_cents);
+        if (options_.hold_dev_cents) {
+            dc.hold = true;
+            dc.hold_dev_cents = *options_.hold_dev_cents;
+        }
+    } else if (options_.hold_dev_cents) {
         dc.hold = true;
         dc.hold_dev_cents = *options_.hold_dev_cents;
         dc.target_cents.push_back(set_.targets[static_cast<std::size_t>(fixed_index_)].interval.cents());
@@ -283,6 +295,7 @@ void AppState::take(const pitch::Reading& r) {
     }
 }
 
+audio::DroneSettings AppState::drone_sent() const { return engine_ ? engine_->drone() : audio::DroneSettings{}; }
 audio::EngineStatus AppState::status() const { return engine_ ? engine_->status() : audio::EngineStatus{}; }
 double AppState::stream_time_s() const { return engine_ ? engine_->stream_time_s() : 0.0; }
 
@@ -304,16 +317,29 @@ audio::DroneSettings AppState::drone_settings(double level_dbfs) const {
     d.fifth = settings_.fifth;
     d.octave = settings_.octave;
     d.timbre = settings_.timbre;
+    if (drill_drone_) {
+        d.root_hz = drill_drone_->root_hz;
+        d.fifth = drill_drone_->fifth;
+        d.octave = drill_drone_->octave;
+        d.timbre = drill_drone_->timbre;
+        level_dbfs = std::min(level_dbfs, drill_drone_->level_dbfs);
+    }
     d.level_dbfs = std::clamp(level_dbfs, audio::kDroneMinLevelDbfs, audio::kDroneMaxLevelDbfs);
+    if (engine_) {  // a tone asked for and not yet rendered must not be lost to a later change
+        d.reference_hz = engine_->drone().reference_hz;
+        d.reference_s = engine_->drone().reference_s;
+        d.reference_count = engine_->drone().reference_count;
+    }
     return d;
 }
 
 void AppState::apply_drone() {
     if (!engine_) return;
     double level = settings_.level_dbfs;
+    if (drill_drone_) level = std::min(level, drill_drone_->level_dbfs);
     if (drone_on_ && fade_s_ < kDroneFadeInS) {  // linear in dB from the floor: heard as an even rise
         const double f = fade_s_ / kDroneFadeInS;
-        level = audio::kDroneMinLevelDbfs + f * (settings_.level_dbfs - audio::kDroneMinLevelDbfs);
+        level = audio::kDroneMinLevelDbfs + f * (level - audio::kDroneMinLevelDbfs);
     }
     try {
         engine_->set_drone(drone_settings(level));
@@ -363,6 +389,7 @@ void AppState::set_octave(bool on) {
 }
 
 bool AppState::set_root_text(const std::string& text) {
+    if (refuse_in_drill("the root")) return false;
     double hz = 0.0;
     try {
         hz = pitch::parse_frequency(text, settings_.a4_hz);
@@ -383,6 +410,7 @@ bool AppState::set_root_text(const std::string& text) {
 }
 
 void AppState::step_root(int semitones) {
+    if (refuse_in_drill("the root")) return;
     std::string next;
     try {
         const int midi = pitch::note_to_midi(settings_.root);  // a note name moves by notes
@@ -410,6 +438,7 @@ void AppState::sound_reference() {
 // ---------------------------------------------------------------------------
 
 pitch::TargetSet AppState::engine_targets() const {
+    if (drill_targets_) return *drill_targets_;
     if (settings_.choice == TargetChoice::nearest) return set_;
     pitch::TargetSet one;
     one.id = set_.id;
@@ -420,7 +449,7 @@ pitch::TargetSet AppState::engine_targets() const {
 
 pitch::ReadingConfig AppState::reading_config() const {
     pitch::ReadingConfig rc;
-    rc.root_hz = root_hz_;
+    rc.root_hz = engine_root_hz();
     rc.a4_hz = settings_.a4_hz;
     return rc;
 }
@@ -435,6 +464,7 @@ void AppState::apply_readings() {
 }
 
 bool AppState::set_target_set(const std::string& name) {
+    if (refuse_in_drill("the targets")) return false;
     pitch::TargetSet s;
     try {
         s = load_target_set(name);
@@ -461,7 +491,7 @@ bool AppState::set_target_set(const std::string& name) {
 }
 
 void AppState::set_choice(TargetChoice c) {
-    if (c == settings_.choice) return;
+    if (c == settings_.choice || refuse_in_drill("the targets")) return;
     settings_.choice = c;
     settings_.fixed_target = set_.targets[static_cast<std::size_t>(fixed_index_)].interval.str();
     changed();
@@ -469,6 +499,7 @@ void AppState::set_choice(TargetChoice c) {
 }
 
 void AppState::step_target(int by) {
+    if (refuse_in_drill("the target")) return;
     const int n = static_cast<int>(set_.targets.size());
     int from = fixed_index_;
     if (settings_.choice == TargetChoice::nearest && has_current_ && current_.target_index >= 0) from = current_.target_index;
@@ -514,6 +545,80 @@ std::string AppState::target_name_text(const pitch::Reading& r) const {
 }
 
 // ---------------------------------------------------------------------------
+// [drills]
+// ---------------------------------------------------------------------------
+
+bool AppState::refuse_in_drill(const char* what) {
+    if (!drill_drone_) return false;
+    post(join({"a drill is running: stop it to change ", what}), true);
+    return true;
+}
+
+bool AppState::begin_drill(const audio::DroneSettings& drone) {
+    if (caution_needed()) {
+        post("Read the hearing caution and press \"I understand\" before starting a drill", true);
+        return false;
+    }
+    try {
+        audio::check_drone_settings(drone);
+    } catch (const Error& e) {
+        post(e.what(), true);
+        return false;
+    }
+    if (!drill_drone_) drone_on_before_drill_ = drone_on_;
+    drill_drone_ = drone;
+    if (engine_) engine_->set_root_hz(engine_root_hz());
+    apply_readings();
+    if (!drone_on_) set_drone_on(true);
+    else apply_drone();
+    return true;
+}
+
+void AppState::set_drill_targets(const pitch::TargetSet& targets) {
+    if (!drill_drone_) return;
+    drill_targets_ = targets;
+    has_current_ = false;
+    apply_readings();
+}
+
+void AppState::end_drill() {
+    if (!drill_drone_) return;
+    drill_drone_.reset();
+    drill_targets_.reset();
+    has_current_ = false;
+    if (!demo_script_.empty()) {
+        demo_script_.clear();
+        if (options_.demo && engine_) {  // back to her usual round
+            close_engine();
+            open_engine();
+        }
+    }
+    if (engine_) engine_->set_root_hz(root_hz_);
+    apply_readings();
+    if (!drone_on_before_drill_) set_drone_on(false);
+    else apply_drone();
+}
+
+bool AppState::sound_tone(double freq_hz, double dur_s) {
+    if (caution_needed() || !engine_) return false;
+    try {
+        engine_->sound_tone(freq_hz, dur_s);
+    } catch (const Error& e) {
+        post(e.what(), true);
+        return false;
+    }
+    return drone_heard_;
+}
+
+bool AppState::sing_script(std::vector<audio::DemoNote> notes) {
+    if (!options_.demo) return false;
+    demo_script_ = std::move(notes);
+    close_engine();
+    open_engine();
+    return engine_ != nullptr;
+}
+
+// ---------------------------------------------------------------------------
 // [settings]
 // ---------------------------------------------------------------------------
 
@@ -544,7 +649,7 @@ void AppState::set_in_tune_cents(double cents) {
 
 void AppState::set_a4(double a4_hz) {
     const double v = std::clamp(a4_hz, 400.0, 480.0);
-    if (v == settings_.a4_hz) return;
+    if (v == settings_.a4_hz || refuse_in_drill("A4")) return;
     settings_.a4_hz = v;
     recompute_root();
     changed();

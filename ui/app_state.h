@@ -9,6 +9,9 @@
 // most once a second. In simulated time (`beatless snapshot`) there is no
 // audio thread: update() renders the demo performer block by block and runs
 // the analysis itself, so a snapshot is the same for every run.
+// While a drill runs (the Drills screen), its drone and its current target
+// replace the settings' for the engine (nothing of it is saved), and the
+// demo performer can be given the drill's notes to sing.
 // Hearing safety: the drone cannot start before the caution is acknowledged,
 // it starts at the saved level (-30 dBFS unless changed) with a one-second
 // fade from silence, and the engine's limiter caps its peaks at -6 dBFS.
@@ -47,6 +50,10 @@ struct AppOptions {
     std::string target;                   // a fixed target ("7/5"): choice = fixed
     bool drone = false;                   // start the drone at once (acknowledges nothing: the caution still applies)
     bool save_settings = true;            // false: never write the settings file (snapshot)
+    std::string drill;                    // the Drills screen chooses and starts this drill (a name or a .toml path)
+    std::optional<double> listener_cents; // ear drills: a simulated listener of this threshold answers (demos, snapshots)
+    bool log = true;                      // attempts go to the practice log (false: kept in memory only)
+    std::string log_file;                 // the practice log; empty = the data folder's practice.sqlite3
 };
 
 // The readings of the last seconds, oldest first, in a ring sized once.
@@ -115,7 +122,7 @@ public:
     void set_octave(bool on);
     void step_root(int semitones);                   // note roots move by note, Hz roots by 2^(n/12)
     bool set_root_text(const std::string& text);     // "D3" or "146.8"; false (and a message) when not a frequency
-    double root_hz() const { return root_hz_; }
+    double root_hz() const { return engine_root_hz(); }  // the drill's root while one runs
     void sound_reference();                          // the reference voice sounds the current target
 
     // --- Targets ---------------------------------------------------------------------
@@ -137,8 +144,24 @@ public:
     double level_dbfs() const { return level_dbfs_; }            // newest frame's input level
     const BeatPulse& pulse() const { return pulse_; }
     audio::EngineStatus status() const;
+    audio::DroneSettings drone_sent() const;   // what the engine's drone was last given (defaults without an engine)
     bool engine_running() const { return engine_ != nullptr; }
     double stream_time_s() const;
+
+    // --- Drills ------------------------------------------------------------------------------
+    // The drill's drone (root, fifth, timbre; its level never above the
+    // user's) replaces the settings' and starts with the usual fade. False
+    // (and a message) before the caution is acknowledged.
+    bool begin_drill(const audio::DroneSettings& drone);
+    void set_drill_targets(const pitch::TargetSet& targets);  // readings against these while the drill runs
+    void end_drill();                                         // the settings' root, targets and drone state again
+    bool drill_active() const { return drill_drone_.has_value(); }
+    // The reference voice sounds freq_hz for dur_s. False when it cannot be
+    // heard (caution not acknowledged, no engine, or no output device).
+    bool sound_tone(double freq_hz, double dur_s);
+    // Demo only: the performer sings these notes, from stream time 0 (the
+    // engine reopens). False without the demo. An empty list: her usual round.
+    bool sing_script(std::vector<audio::DemoNote> notes);
 
     // --- Messages ------------------------------------------------------------------------
     void post(const std::string& text, bool warning = false);   // also printed to stderr
@@ -156,6 +179,8 @@ private:
     void pump_simulation(double dt_s);
     void take(const pitch::Reading& r);
     void recompute_root();
+    double engine_root_hz() const { return drill_drone_ ? drill_drone_->root_hz : root_hz_; }
+    bool refuse_in_drill(const char* what);
 
     Settings settings_;
     std::filesystem::path settings_file_;
@@ -180,6 +205,11 @@ private:
     double last_clip_s_ = -1e9;
     double level_dbfs_ = -INFINITY;
     BeatPulse pulse_;
+
+    std::optional<audio::DroneSettings> drill_drone_;  // while a drill runs
+    std::optional<pitch::TargetSet> drill_targets_;
+    bool drone_on_before_drill_ = false;
+    std::vector<audio::DemoNote> demo_script_;
 
     bool drone_on_ = false;
     bool drone_heard_ = false;

@@ -137,25 +137,6 @@ std::string text_line(const pitch::Reading& r, const TargetText& tt, double a4_h
     return s;
 }
 
-std::string config_home() {
-    if (const char* b = std::getenv("BEATLESS_HOME"); b && *b) return std::string(b) + "/config";
-    if (const char* x = std::getenv("XDG_CONFIG_HOME"); x && *x) return std::string(x) + "/beatless";
-    if (const char* h = std::getenv("HOME"); h && *h) return std::string(h) + "/.config/beatless";
-    return {};
-}
-
-// The hearing caution, once per user (a marker file in the config directory).
-void caution_once() {
-    const std::string dir = config_home();
-    const std::string marker = dir.empty() ? std::string() : dir + "/drone-caution-shown";
-    std::error_code ec;
-    if (!marker.empty() && std::filesystem::exists(marker, ec)) return;
-    std::fprintf(stderr, "beatless: caution: the drone is a sustained tone; keep the level low, especially on headphones, and take breaks\n");
-    if (marker.empty()) return;
-    std::filesystem::create_directories(dir, ec);
-    std::ofstream(marker) << "shown\n";
-}
-
 void check_options(const ListenOptions& o) {
     const int sources = (o.demo ? 1 : 0) + (o.input_file.empty() ? 0 : 1) + (o.input_dev.empty() ? 0 : 1);
     if (sources > 1) throw UsageError("choose one input: --demo, --input-file or --input");
@@ -243,7 +224,7 @@ int run_live(const ListenOptions& o, Printing printing) {
     rc.a4_hz = o.a4_hz;
     engine.set_readings(rc, targets);
     engine.set_drone(ds);
-    if (o.drone && (play_drone || o.demo)) caution_once();
+    if (o.drone && (play_drone || o.demo)) hearing_caution_once();
 
     TargetText tt{&targets};
     std::uint64_t printed = 0;

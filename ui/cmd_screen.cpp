@@ -66,6 +66,8 @@ ScreenId screen_from(const std::string& key, ScreenId fallback) {
 }
 
 void check_common(const ScreenCommand& c) {
+    if (c.listener_cents && !(*c.listener_cents > 0.0 && *c.listener_cents <= 1200.0))
+        throw Error("--listener " + pitch::format_trimmed(*c.listener_cents, 3) + ": out of range (above 0, at most 1200 cents)");
     if (c.hold_dev_cents && !(std::fabs(*c.hold_dev_cents) <= 600.0))
         throw Error("--hold " + pitch::format_trimmed(*c.hold_dev_cents, 2) + ": out of range (-600 to 600 cents)");
     if (c.hold_dev_cents && !c.demo) throw UsageError("--hold works with --demo only");
@@ -84,6 +86,9 @@ AppOptions options_of(const ScreenCommand& c) {
     o.target_set = c.target_set;
     o.target = c.target;
     o.drone = c.drone;
+    o.drill = c.drill;
+    o.listener_cents = c.listener_cents;
+    o.log_file = c.log_file;
     return o;
 }
 
@@ -104,6 +109,9 @@ void add_screen_options(CLI::App& app, ScreenCommand& c) {
     app.add_option("--targets", c.target_set, "Target set: a built-in name (7-limit, tritones, ...) or a .toml file");
     app.add_option("--target", c.target, "Fix this target (7/5, 600c, ...); it joins the set when it is not in it");
     app.add_option("--screen", c.screen, "Screen to show: " + built_screen_keys());
+    app.add_option("--drill", c.drill, "Choose and start this drill on the Drills screen (a built-in name or a .toml file)");
+    app.add_option("--listener", c.listener_cents, "Ear drills on the Drills screen: a simulated listener of this threshold (cents) answers");
+    app.add_option("--log", c.log_file, "Practice log file (default: the data folder's; a snapshot writes none unless given)");
 }
 
 int run_screens(const ScreenCommand& c, int frames) {
@@ -119,7 +127,7 @@ int run_screens(const ScreenCommand& c, int frames) {
     Loaded l = load_user_settings();
     AppOptions o = options_of(c);
     o.save_settings = l.can_save;
-    const ScreenId first = screen_from(c.screen, l.settings.screen);
+    const ScreenId first = screen_from(c.screen, !c.drill.empty() && c.screen.empty() ? ScreenId::drills : l.settings.screen);
     AppState app(l.settings, l.file, o);
     ScreenDeck deck(app);
     deck.show(first);
@@ -192,7 +200,8 @@ void register_snapshot(CLI::App& app, Runner& run) {
             ao.simulated = true;
             ao.no_input = !c.demo;
             ao.save_settings = false;
-            const ScreenId first = screen_from(c.screen, l.settings.screen);
+            ao.log = !c.log_file.empty();
+            const ScreenId first = screen_from(c.screen, !c.drill.empty() && c.screen.empty() ? ScreenId::drills : l.settings.screen);
             AppState app(l.settings, l.file, ao);
             ScreenDeck deck(app);
             deck.show(first);

@@ -1,6 +1,11 @@
 // Small text helpers shared by the commands and the screens (commands.h).
 #include "ui/commands.h"
 
+#include <cstdio>
+#include <cstdlib>
+#include <filesystem>
+#include <fstream>
+
 namespace beatless::ui {
 
 std::string ordinal(int n) {
@@ -16,6 +21,29 @@ std::string join_args(const std::vector<std::string>& args) {
         s += a;
     }
     return s;
+}
+
+namespace {
+
+std::string config_home() {
+    if (const char* b = std::getenv("BEATLESS_HOME"); b && *b) return std::string(b) + "/config";
+    if (const char* x = std::getenv("XDG_CONFIG_HOME"); x && *x) return std::string(x) + "/beatless";
+    if (const char* h = std::getenv("HOME"); h && *h) return std::string(h) + "/.config/beatless";
+    return {};
+}
+
+}  // namespace
+
+// The hearing caution, once per user (a marker file in the config directory).
+void hearing_caution_once() {
+    const std::string dir = config_home();
+    const std::string marker = dir.empty() ? std::string() : dir + "/drone-caution-shown";
+    std::error_code ec;
+    if (!marker.empty() && std::filesystem::exists(marker, ec)) return;
+    std::fprintf(stderr, "beatless: caution: the drone is a sustained tone; keep the level low, especially on headphones, and take breaks\n");
+    if (marker.empty()) return;
+    std::filesystem::create_directories(dir, ec);
+    std::ofstream(marker) << "shown\n";
 }
 
 }  // namespace beatless::ui

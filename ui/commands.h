@@ -35,6 +35,9 @@ struct ScreenCommand {
     std::string target;                   // --target: a fixed target
     std::string screen;                   // --screen (default: the last one used)
     bool drone = false;                   // snapshot --drone
+    std::string drill;                    // --drill: choose and start this drill on the Drills screen
+    std::optional<double> listener_cents; // --listener: a simulated listener answers ear drills
+    std::string log_file;                 // --log: the practice log file (snapshot: none unless given)
 };
 void add_screen_options(CLI::App& app, ScreenCommand& c);
 int run_screens(const ScreenCommand& c, int frames);  // frames 0 = until the window is closed
@@ -45,6 +48,7 @@ void register_drift(CLI::App& app, Runner& run);
 void register_history(CLI::App& app, Runner& run);
 void register_ensemble(CLI::App& app, Runner& run);
 void register_analyze(CLI::App& app, Runner& run);
+void register_drill(CLI::App& app, Runner& run);
 
 // Output format choice shared by the commands.
 enum class Format { text, json, csv };
@@ -54,5 +58,7 @@ void add_format_option(CLI::App& sub, Format& format, std::initializer_list<Form
 // Small text helpers shared by the commands.
 std::string ordinal(int n);                                  // 1 -> "1st", 12 -> "12th"
 std::string join_args(const std::vector<std::string>& args); // words joined by single spaces
+// The hearing caution on stderr, once per user (a marker file in the config folder).
+void hearing_caution_once();
 
 }  // namespace beatless::ui

@@ -75,6 +75,24 @@ void draw_warning_sign(ImDrawList* dl, ImVec2 c, float r, std::uint32_t colour) 
     dl->AddRectFilled(ImVec2(std::round(c.x - w * 0.5f), std::round(c.y + r * 0.45f)), ImVec2(std::round(c.x + w * 0.5f), std::round(c.y + r * 0.45f + w)), palette::kBackground);
 }
 
+void draw_panel(ImDrawList* dl, float x0, float y0, float w, float h) {
+    dl->AddRectFilled(ImVec2(x0, y0), ImVec2(x0 + w, y0 + h), palette::kPanel, std::round(0.25f * font_px(FontFace::body)));
+}
+
+std::string fit_text(FontFace face, const std::string& text, float max_w) {
+    if (text_size(face, text).x <= max_w) return text;
+    const std::string ell = "\xE2\x80\xA6";
+    std::string s = text;
+    while (!s.empty()) {
+        do s.pop_back();
+        while (!s.empty() && (static_cast<unsigned char>(s.back()) & 0xC0) == 0x80);  // a UTF-8 continuation byte
+        if (!s.empty()) s.pop_back();
+        if (text_size(face, s + ell).x <= max_w) break;
+    }
+    while (!s.empty() && s.back() == ' ') s.pop_back();
+    return s + ell;
+}
+
 std::string signed_text(double v, int decimals) {
     char buf[32];
     const double shown = std::fabs(v) < 0.5 * std::pow(10.0, -decimals) ? 0.0 : v;

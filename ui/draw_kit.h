@@ -9,6 +9,7 @@
 #include <imgui.h>
 
 #include <cstdint>
+#include <string>
 #include <string_view>
 
 namespace beatless::ui {
@@ -34,6 +35,11 @@ void draw_tuning_shape(ImDrawList* dl, Tuning t, ImVec2 c, float r, std::uint32_
 void draw_diamond(ImDrawList* dl, ImVec2 c, float r, std::uint32_t colour, float thickness);  // hollow ◇
 void draw_square(ImDrawList* dl, ImVec2 c, float r, std::uint32_t colour, bool filled);       // ■ or □
 void draw_warning_sign(ImDrawList* dl, ImVec2 c, float r, std::uint32_t colour);              // a triangle with "!"
+
+// A panel's background (palette::kPanel, rounded corners), top-left at (x0, y0).
+void draw_panel(ImDrawList* dl, float x0, float y0, float w, float h);
+// The text, cut at a character boundary with an ellipsis so it fits max_w pixels.
+std::string fit_text(FontFace face, const std::string& text, float max_w);
 
 // Formats with a true minus sign (U+2212) for negative values: "+12", "\u221212".
 std::string signed_text(double v, int decimals);

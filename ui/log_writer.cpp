@@ -36,11 +36,13 @@ SaveResult LogWriter::retry() {
         }
     } catch (const LogError& e) {
         problem = e.what();
+        r.problem = e.problem();
         // A connection that failed for any reason but a full disk or a busy
         // lock is reopened on the next try (the folder may exist by then).
         if (e.problem() != LogProblem::full && e.problem() != LogProblem::busy) log_.reset();
     } catch (const std::exception& e) {
         problem = std::string("practice log ") + path_.string() + ": " + e.what();
+        r.problem = LogProblem::other;
         log_.reset();
     }
     r.pending = pending();

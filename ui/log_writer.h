@@ -19,6 +19,7 @@
 #include <deque>
 #include <filesystem>
 #include <memory>
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -28,6 +29,7 @@ struct SaveResult {
     std::size_t saved = 0;    // attempts written by this call (earlier ones kept in memory included)
     std::size_t pending = 0;  // attempts still in memory after this call
     std::string warning;      // one line when something is still unsaved, else empty
+    std::optional<LogProblem> problem;  // why the log could not be written by this call, if it could not
 };
 
 class LogWriter {

@@ -56,6 +56,7 @@ int main(int argc, char** argv) {
     ui::register_history(app, run);
     ui::register_ensemble(app, run);
     ui::register_analyze(app, run);
+    ui::register_drill(app, run);
 
     try {
         app.parse(argc, argv);

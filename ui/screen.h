@@ -46,6 +46,7 @@ public:
 
 std::unique_ptr<Screen> make_practice_screen();
 std::unique_ptr<Screen> make_ensemble_screen();
+std::unique_ptr<Screen> make_drills_screen();
 std::unique_ptr<Screen> make_settings_screen();
 
 // The built screens in tab order.

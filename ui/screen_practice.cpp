@@ -19,6 +19,7 @@
 #include "pitch/text.h"
 #include "ui/commands.h"
 #include "ui/draw_kit.h"
+#include "ui/lane.h"
 #include "ui/palette.h"
 #include "ui/screen.h"
 #include "ui/target_files.h"
@@ -36,8 +37,6 @@ namespace {
 
 constexpr ImGuiWindowFlags kPanelFlags = ImGuiWindowFlags_NoDecoration | ImGuiWindowFlags_NoMove | ImGuiWindowFlags_NoSavedSettings |
                                          ImGuiWindowFlags_NoBringToFrontOnFocus | ImGuiWindowFlags_NoScrollWithMouse;
-constexpr double kLaneHalfCents = 50.0;    // the lane spans ±50 cents
-constexpr double kTrailS = 0.5;            // the marker's fading trail
 constexpr double kTraceS = 10.0;           // the trace shows the last 10 s
 constexpr double kTraceHalfCents = 75.0;   // ... over ±75 cents around the target
 
@@ -49,8 +48,6 @@ std::uint32_t mix(std::uint32_t a, std::uint32_t b, double t) {
     return ImGui::ColorConvertFloat4ToU32(ImVec4(x.x + (y.x - x.x) * f, x.y + (y.y - x.y) * f, x.z + (y.z - x.z) * f, 1.0f));
 }
 
-// The deviation the readout and the state use: the vibrato centre's when known.
-double shown_dev(const pitch::Reading& r) { return std::isfinite(r.centre_dev_cents) ? r.centre_dev_cents : r.dev_cents; }
 
 std::string beat_text(double hz) {
     char buf[32];
@@ -132,7 +129,7 @@ void PracticeScreen::header(AppState& app, ImDrawList* dl, float x0, float y0, f
         draw_text(dl, FontFace::medium, ImVec2(right - text_size(FontFace::medium, idle).x, y0 + 0.5f * (h - medium)), palette::kTextDim, idle);
         return;
     }
-    const double dev = shown_dev(r);
+    const double dev = shown_dev_cents(r);
     const Tuning t = tuning_of(dev, app.settings().in_tune_cents);
     const std::uint32_t col = tuning_colour(t);
     const std::string word = std::string(tuning_word(t));
@@ -154,79 +151,11 @@ void PracticeScreen::header(AppState& app, ImDrawList* dl, float x0, float y0, f
 // ---------------------------------------------------------------------------
 
 void PracticeScreen::lane(AppState& app, ImDrawList* dl, float x0, float y0, float w, float band_h) {
-    const float u = ui_unit();
-    const float lx0 = std::round(x0), lx1 = std::round(x0 + w);
-    const float cx = 0.5f * (lx0 + lx1);
-    const float ppc = (lx1 - lx0) / static_cast<float>(2.0 * kLaneHalfCents);
-    const float by0 = std::round(y0), by1 = std::round(y0 + band_h);
-    auto x_of = [&](double dev) { return cx + static_cast<float>(dev) * ppc; };
-
-    dl->AddRectFilled(ImVec2(lx0, by0), ImVec2(lx1, by1), palette::kPanelRaised);
-    const double tol = app.settings().in_tune_cents;
-    dl->AddRectFilled(ImVec2(std::round(x_of(-tol)), by0), ImVec2(std::round(x_of(tol)), by1), palette::kInTuneZone);
-    // Ticks every 5 cents from the bottom edge, longer every 10; labels below.
-    for (int c = -50; c <= 50; c += 5) {
-        const float x = std::round(x_of(c));
-        const bool major = c % 10 == 0;
-        const float len = c == 0 ? band_h : std::round(band_h * (major ? 0.32f : 0.18f));
-        const float th = c == 0 ? std::max(2.0f, std::round(0.1f * u)) : 1.0f;
-        dl->AddRectFilled(ImVec2(x - std::floor(th * 0.5f), by1 - len), ImVec2(x - std::floor(th * 0.5f) + th, by1), c == 0 ? palette::kTextDim : palette::kGrid);
-        if (major) {
-            const std::string s = c == 0 ? std::string("0") : signed_text(c, 0);
-            draw_text_centred(dl, FontFace::body, x, by1 + std::round(0.2f * u), palette::kTextDim, s);
-        }
-    }
-    // The ends in words, for whoever reads the lane for the first time.
-    draw_text(dl, FontFace::body, ImVec2(lx0 + std::round(0.4f * u), by0 + std::round(0.2f * u)), palette::kTextDim, "flat");
-    draw_text(dl, FontFace::body, ImVec2(lx1 - std::round(0.4f * u) - text_size(FontFace::body, "sharp").x, by0 + std::round(0.2f * u)),
-              palette::kTextDim, "sharp");
-
-    if (!app.has_current()) return;
-    const pitch::Reading& now = app.current();
-    const double target = now.target_cents;
-    const Tuning t = tuning_of(shown_dev(now), tol);
-    const std::uint32_t col = tuning_colour(t);
-    const float mid = std::round(0.5f * (by0 + by1));
-
-    // Trail: the last half second of instantaneous pitch, fading with age.
-    const TraceStore& tr = app.trace();
-    for (std::size_t i = tr.size(); i-- > 0;) {
-        const pitch::Reading& r = tr.at(i);
-        const double age = now.t_s - r.t_s;
-        if (age > kTrailS) break;
-        if (!r.voiced() || age < 0.0) continue;
-        const double dev = r.cents_above_root - target;
-        if (std::fabs(dev) > kLaneHalfCents) continue;
-        const unsigned a = static_cast<unsigned>(std::lround(150.0 * (1.0 - age / kTrailS)));
-        const float rr = std::round(0.22f * u);
-        dl->AddRectFilled(ImVec2(std::round(x_of(dev)) - rr, mid - rr), ImVec2(std::round(x_of(dev)) + rr, mid + rr), palette::with_alpha(col, a));
-    }
-
-    // The marker: a needle across the band with the state's shape above it.
-    const double dev_now = now.dev_cents;
-    const bool out = std::fabs(dev_now) > kLaneHalfCents;
-    const double pinned = std::clamp(dev_now, -kLaneHalfCents, kLaneHalfCents);
-    const float mx = std::round(x_of(pinned));
-    const float nw = std::max(3.0f, std::round(0.3f * u));
-    const float nx0 = mx - std::floor(nw * 0.5f);
-    dl->AddRectFilled(ImVec2(nx0, by0 - std::round(0.25f * u)), ImVec2(nx0 + nw, by1 + std::round(0.1f * u)), col);
-    const float head_r = std::round(0.5f * u);
-    draw_tuning_shape(dl, t, ImVec2(mx, by0 - std::round(0.35f * u) - head_r), head_r, col);
-    if (out) {  // pinned: an arrow outward and the value
-        const float dir = dev_now > 0 ? 1.0f : -1.0f;
-        dl->AddTriangleFilled(ImVec2(mx + dir * 1.6f * u, mid), ImVec2(mx + dir * 0.5f * u, mid - 0.7f * u), ImVec2(mx + dir * 0.5f * u, mid + 0.7f * u), col);
-        const std::string s = signed_text(dev_now, 0) + " c";
-        const float sw = text_size(FontFace::bold, s).x;
-        draw_text(dl, FontFace::bold, ImVec2(dir > 0 ? mx - sw - 0.8f * u : mx + 0.8f * u, by0 + 0.15f * u), palette::kText, s);
-    }
-
-    // The vibrato centre: a hollow diamond on its own track below the labels.
-    if (std::isfinite(now.centre_dev_cents)) {
-        const double c = std::clamp(now.centre_dev_cents, -kLaneHalfCents, kLaneHalfCents);
-        const float dy = by1 + std::round(1.2f * u) + std::round(0.6f * u) + std::round(0.5f * u);
-        draw_diamond(dl, ImVec2(std::round(x_of(c)), dy), std::round(0.55f * u), palette::kCentreMarker, std::max(2.0f, std::round(0.12f * u)));
-        draw_text(dl, FontFace::body, ImVec2(std::round(x_of(c)) + 0.9f * u, dy - 0.5f * u), palette::kTextDim, "centre");
-    }
+    LaneView v;
+    v.in_tune_cents = app.settings().in_tune_cents;
+    v.now = app.has_current() ? &app.current() : nullptr;
+    v.trail = &app.trace();
+    draw_lane(dl, x0, y0, w, band_h, v);
 }
 
 void PracticeScreen::info_line(AppState& app, ImDrawList* dl, float x0, float y0, float w) {
@@ -369,7 +298,7 @@ void PracticeScreen::trace(AppState& app, ImDrawList* dl, float x0, float y0, fl
     flush();
     if (app.has_current()) {
         const float y = y_of(app.current().cents_above_root);
-        dl->AddCircleFilled(ImVec2(px1 - 1, y), std::round(0.3f * u), tuning_colour(tuning_of(shown_dev(app.current()), app.settings().in_tune_cents)), 16);
+        dl->AddCircleFilled(ImVec2(px1 - 1, y), std::round(0.3f * u), tuning_colour(tuning_of(shown_dev_cents(app.current()), app.settings().in_tune_cents)), 16);
     }
     dl->PopClipRect();
 }

@@ -30,6 +30,7 @@ namespace beatless::ui {
 std::vector<std::unique_ptr<Screen>> make_screens() {
     std::vector<std::unique_ptr<Screen>> s;
     s.push_back(make_practice_screen());
+    s.push_back(make_drills_screen());
     s.push_back(make_ensemble_screen());
     s.push_back(make_settings_screen());
     return s;
