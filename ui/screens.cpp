@@ -265,7 +265,7 @@ void ScreenDeck::status_bar(const ImVec2& pos, float width, float height) {
     dl->AddRect(ImVec2(x, by), ImVec2(x + bar_w, by + bar_h), palette::kGrid);
     x += bar_w + std::round(0.5f * u);
     char buf[64];
-    if (std::isfinite(lvl)) std::snprintf(buf, sizeof buf, "%s dBFS", signed_text(lvl, 0).c_str());
+    if (std::isfinite(lvl) && lvl > -90.0) std::snprintf(buf, sizeof buf, "%s dBFS", signed_text(lvl, 0).c_str());
     else std::snprintf(buf, sizeof buf, "silent");
     put(FontFace::mono, palette::kTextDim, buf, 0.6f);
     if (app_.clip_warning()) {
