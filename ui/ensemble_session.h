@@ -47,6 +47,7 @@ public:
     double root_hz() const { return root_hz_; }
     bool engine_running() const { return engine_ != nullptr; }
     const std::string& input_text() const { return input_text_; }
+    audio::EnsembleStatus status() const { return engine_ ? engine_->status() : audio::EnsembleStatus{}; }
 
     bool has_current() const { return has_current_; }         // a reading within the last 0.5 s
     const pitch::EnsembleReading& current() const { return current_; }

@@ -17,7 +17,9 @@
 
 #include <imgui.h>
 
+#include <cmath>
 #include <memory>
+#include <string>
 #include <span>
 #include <string_view>
 #include <vector>
@@ -34,6 +36,16 @@ struct KeyHelp {
     std::string_view what;  // "start or stop the drone"
 };
 
+// What the status bar shows: the deck fills it from the Practice engine
+// unless the current screen has an input of its own (the Ensemble screen).
+struct StatusView {
+    std::string input;
+    double level_dbfs = -INFINITY;
+    bool clipped = false;
+    unsigned long long overflows = 0;   // ring overflows + device overflows and underflows
+    double latency_s = 0.0;             // 0 when unknown
+};
+
 class Screen {
 public:
     virtual ~Screen() = default;
@@ -42,6 +54,12 @@ public:
     virtual void build(AppState& app, const ScreenArea& area, double dt_s) = 0;
     // Keys of this screen only, for the help overlay (the deck lists the global ones).
     virtual std::span<const KeyHelp> keys() const { return {}; }
+    // The status bar's figures when this screen listens to an input of its
+    // own; false to show the Practice engine's.
+    virtual bool status(const AppState&, StatusView&) const { return false; }
+    // Called when the deck moves to another screen (release what only this
+    // screen uses, such as its own engine).
+    virtual void left(AppState&) {}
 };
 
 std::unique_ptr<Screen> make_practice_screen();
@@ -69,6 +87,7 @@ public:
     void build_frame(double dt_s);
 
 private:
+    void switch_to(std::size_t index);    // leaves the current screen first
     void apply_style();
     void handle_keys();
     void tab_bar(float height);

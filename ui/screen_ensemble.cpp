@@ -78,6 +78,23 @@ public:
     ScreenId id() const override { return ScreenId::ensemble; }
     std::span<const KeyHelp> keys() const override { return kEnsembleKeys; }
     void build(AppState& app, const ScreenArea& area, double dt_s) override;
+    bool status(const AppState&, StatusView& v) const override {
+        // The group's own input: the loudest microphone's level, any
+        // channel clipping, the ensemble engine's overflows and latency.
+        v.input = session_.input_text();
+        if (session_.has_current()) {
+            const pitch::EnsembleReading& r = session_.current();
+            for (int i = 0; i < r.players; ++i) {
+                v.level_dbfs = std::max(v.level_dbfs, r.p[static_cast<std::size_t>(i)].level_dbfs);
+                v.clipped = v.clipped || r.p[static_cast<std::size_t>(i)].clipped;
+            }
+        }
+        const audio::EnsembleStatus st = session_.status();
+        v.overflows = st.ring_overflow_events + st.device_input_overflows + st.device_output_underflows;
+        v.latency_s = session_.engine_running() ? st.latency_s : 0.0;
+        return true;
+    }
+    void left(AppState&) override { session_.close(); }  // the group's engine stops when the screen is left
 
 private:
     void header(AppState& app, ImDrawList* dl, float x0, float y0, float w, float h);

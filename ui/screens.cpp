@@ -93,10 +93,13 @@ ScreenDeck::~ScreenDeck() = default;
 
 void ScreenDeck::show(ScreenId id) {
     for (std::size_t i = 0; i < screens_.size(); ++i)
-        if (screens_[i]->id() == id) {
-            current_ = i;
-            app_.set_screen(id);
-        }
+        if (screens_[i]->id() == id) switch_to(i);
+}
+
+void ScreenDeck::switch_to(std::size_t index) {
+    if (index != current_ && current_ < screens_.size()) screens_[current_]->left(app_);
+    current_ = index;
+    app_.set_screen(screens_[index]->id());
 }
 
 void ScreenDeck::apply_style() {
@@ -143,10 +146,7 @@ void ScreenDeck::handle_keys() {
         if (help_) help_ = false;
         else show(ScreenId::practice);
     }
-    if (pressed(GLFW_KEY_TAB)) {
-        current_ = (current_ + 1) % screens_.size();
-        app_.set_screen(screens_[current_]->id());
-    }
+    if (pressed(GLFW_KEY_TAB)) switch_to((current_ + 1) % screens_.size());
     if (pressed(GLFW_KEY_SPACE)) app_.toggle_drone();
     if (pressed(GLFW_KEY_RIGHT, true)) app_.step_target(+1);
     if (pressed(GLFW_KEY_LEFT, true)) app_.step_target(-1);
@@ -179,10 +179,7 @@ void ScreenDeck::tab_bar(float height) {
         ImGui::PushStyleColor(ImGuiCol_Button, v4(active ? palette::kAccent : palette::kPanel));
         ImGui::PushFont(font_of(active ? FontFace::bold : FontFace::body));
         const std::string label = std::string(screen_title(screens_[i]->id())) + "##tab";
-        if (ImGui::Button(label.c_str(), ImVec2(std::round(7.0f * u), bh))) {
-            current_ = i;
-            app_.set_screen(screens_[i]->id());
-        }
+        if (ImGui::Button(label.c_str(), ImVec2(std::round(7.0f * u), bh))) switch_to(i);
         ImGui::PopFont();
         ImGui::PopStyleColor();
         ImGui::SameLine();
@@ -249,11 +246,20 @@ void ScreenDeck::status_bar(const ImVec2& pos, float width, float height) {
         draw_text(dl, f, ImVec2(x, ty), col, s);
         x += text_size(f, s).x + std::round(gap_u * u);
     };
+    StatusView v;
+    if (!screens_[current_]->status(app_, v)) {
+        const audio::EngineStatus st = app_.status();
+        v.input = app_.input_text();
+        v.level_dbfs = app_.level_dbfs();
+        v.clipped = app_.clip_warning();
+        v.overflows = st.ring_overflow_events + st.device_input_overflows + st.device_output_underflows;
+        v.latency_s = app_.engine_running() ? st.latency_s : 0.0;
+    }
     put(FontFace::body, palette::kTextDim, "Input", 0.5f);
-    put(FontFace::bold, palette::kText, app_.input_text());
+    put(FontFace::bold, palette::kText, v.input);
 
     // Input level: a bar from -60 to 0 dBFS, its value, and CLIP in words.
-    const double lvl = app_.level_dbfs();
+    const double lvl = v.level_dbfs;
     const float bar_w = std::round(7.0f * u), bar_h = std::round(0.55f * u);
     const float by = std::round(pos.y + 0.5f * (height - bar_h));
     put(FontFace::body, palette::kTextDim, "level", 0.5f);
@@ -268,7 +274,7 @@ void ScreenDeck::status_bar(const ImVec2& pos, float width, float height) {
     if (std::isfinite(lvl) && lvl > -90.0) std::snprintf(buf, sizeof buf, "%s dBFS", signed_text(lvl, 0).c_str());
     else std::snprintf(buf, sizeof buf, "silent");
     put(FontFace::mono, palette::kTextDim, buf, 0.6f);
-    if (app_.clip_warning()) {
+    if (v.clipped) {
         const std::string clip = "CLIP";
         const ImVec2 ts = text_size(FontFace::bold, clip);
         dl->AddRectFilled(ImVec2(x - 0.2f * u, ty - 0.1f * u), ImVec2(x + ts.x + 0.2f * u, ty + ts.y + 0.1f * u), palette::kClip, 3.0f);
@@ -278,15 +284,14 @@ void ScreenDeck::status_bar(const ImVec2& pos, float width, float height) {
         x += std::round(1.0f * u);
     }
 
-    const audio::EngineStatus st = app_.status();
-    const unsigned long long over = st.ring_overflow_events + st.device_input_overflows + st.device_output_underflows;
+    const unsigned long long over = v.overflows;
     std::snprintf(buf, sizeof buf, "overflows %llu", over);
     if (over > 0) {
         draw_warning_sign(dl, ImVec2(x + 0.5f * u, ty + 0.5f * u), 0.45f * u, palette::kWarning);
         x += std::round(1.2f * u);
     }
     put(FontFace::body, over > 0 ? palette::kWarning : palette::kTextDim, buf);
-    if (app_.engine_running() && st.latency_s > 0.0) std::snprintf(buf, sizeof buf, "latency %.0f ms", 1000.0 * st.latency_s);
+    if (v.latency_s > 0.0) std::snprintf(buf, sizeof buf, "latency %.0f ms", 1000.0 * v.latency_s);
     else std::snprintf(buf, sizeof buf, "latency \xE2\x80\x93");
     put(FontFace::body, palette::kTextDim, buf);
     ImGui::End();
