@@ -72,7 +72,9 @@ struct RunnerConfig {
     double feedback_s = 1.2;        // right or wrong shown after an answer; default 1.2
     std::uint64_t seed = 1;         // the shuffled order and the ear questions; default 1
     std::string performer;          // who practises (the practice log's performer); default empty
-    pitch::DeviationSource deviation = pitch::DeviationSource::instant;  // what the score reads; default instant
+    // What the score reads; default the vibrato centre where known (a singer with a
+    // 5-7 Hz vibrato of tens of cents is in tune when its centre is), else the pitch.
+    pitch::DeviationSource deviation = pitch::DeviationSource::centre_first;
     double min_voiced_s = 0.04;     // shorter voiced stretches are tracker blips, scored as unvoiced; default 40 ms
     std::size_t max_holds = 0;      // hold drills: stop after this many holds (0 = the whole sequence); default 0
 };
