@@ -141,7 +141,9 @@ void check(const DrillCmd& o, const Drill& d) {
         if (o.listener_cents) throw UsageError("--listener is for ear drills; " + d.id + " is a hold drill");
         return;
     }
-    if (o.demo) throw UsageError("--demo: the demo performer sings hold drills; for " + d.id + " give --listener CENTS");
+    if (o.demo && !o.listener_cents)
+        throw UsageError("--demo: the demo performer sings hold drills; for the ear drill " + d.id +
+                         " give --listener CENTS (a simulated listener) instead");
     if (!o.listener_cents)
         throw UsageError("drill " + d.id +
                          " is an ear drill and needs a listener: answer it on the Drills screen, or give --listener CENTS for a "
