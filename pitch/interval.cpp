@@ -89,6 +89,25 @@ const std::string* IntervalNames::find(const Interval& iv) const {
     return it == names_.end() ? nullptr : &it->second;
 }
 
+std::string IntervalNames::name_in_any_octave(const Interval& iv) const {
+    if (const std::string* n = find(iv)) return *n;
+    // Whole octaves above (k > 0) or below (k < 0) the octave [1/1, 2/1).
+    const int k = static_cast<int>(std::floor(iv.cents() / 1200.0 + 1e-9));
+    if (k == 0) return {};
+    Interval within;
+    if (iv.is_ratio()) {
+        within = Interval::of(octave_reduce(iv.ratio()));
+    } else {
+        within = Interval::from_cents(iv.cents() - 1200.0 * k);
+    }
+    if (within.cents() < 1e-9) {  // 4/1, 8/1 ...: whole octaves
+        if (k < 0) return {};
+        return k == 1 ? std::string("octave") : std::to_string(k) + " octaves";
+    }
+    const std::string* n = find(within);
+    return n ? with_octaves(*n, k) : std::string();
+}
+
 EtNearest nearest_et_step(double cents) {
     EtNearest e;
     e.step = static_cast<int>(std::lround(cents / 100.0));
@@ -105,10 +124,15 @@ std::string et_step_name(int step) {
     const int octaves = step >= 0 ? step / 12 : -((-step + 11) / 12);
     int within = step - 12 * octaves;
     if (within == 0 && octaves > 0) return octaves == 1 ? "octave" : std::to_string(octaves) + " octaves";
-    std::string s = names[static_cast<std::size_t>(within)];
-    if (octaves > 0) s += " + " + (octaves == 1 ? std::string("octave") : std::to_string(octaves) + " octaves");
-    if (octaves < 0) s += " - " + (octaves == -1 ? std::string("octave") : std::to_string(-octaves) + " octaves");
-    return s;
+    return with_octaves(names[static_cast<std::size_t>(within)], octaves);
+}
+
+std::string with_octaves(std::string name, int octaves) {
+    if (octaves == 0) return name;
+    const int n = octaves > 0 ? octaves : -octaves;
+    name += octaves > 0 ? " + " : " - ";
+    name += n == 1 ? std::string("octave") : std::to_string(n) + " octaves";
+    return name;
 }
 
 IntervalFacts interval_facts(const Interval& iv, const IntervalNames& names) {
@@ -122,7 +146,7 @@ IntervalFacts interval_facts(const Interval& iv, const IntervalNames& names) {
     }
     f.et = nearest_et_step(f.cents);
     f.et_name = et_step_name(f.et.step);
-    if (const std::string* n = names.find(iv)) f.name = *n;
+    f.name = names.name_in_any_octave(iv);
     return f;
 }
 

@@ -51,6 +51,10 @@ class IntervalNames {
 public:
     void add(const Interval& iv, std::string name);
     const std::string* find(const Interval& iv) const;  // nullptr when unnamed
+    // The name of iv, else the name of iv moved into the octave above the
+    // root with the octaves said ("lesser septimal tritone + octave" for
+    // 14/5); empty when neither is named.
+    std::string name_in_any_octave(const Interval& iv) const;
     std::size_t size() const { return names_.size(); }
 
 private:
@@ -75,7 +79,11 @@ struct IntervalFacts {
 };
 IntervalFacts interval_facts(const Interval& iv, const IntervalNames& names);
 
-// Name of a 12-TET step within the octave (0..12), e.g. 6 -> "tritone".
+// Name of a 12-TET step (any number of semitones), e.g. 6 -> "tritone",
+// 14 -> "major second + octave".
 std::string et_step_name(int step);
+
+// name + " + octave", " + 2 octaves", " - octave" ...; name itself for 0.
+std::string with_octaves(std::string name, int octaves);
 
 }  // namespace beatless::pitch

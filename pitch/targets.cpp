@@ -1,5 +1,7 @@
 #include "pitch/targets.h"
 
+#include "pitch/error.h"
+
 #include <cassert>
 #include <cmath>
 
@@ -31,6 +33,15 @@ Interval shift_octaves(const Interval& iv, int octaves) {
     for (int k = 0; k < octaves; ++k) r = r * two;
     for (int k = 0; k > octaves; --k) r = r / two;
     return Interval::of(r);
+}
+
+std::string target_name_in_octave(const Target& t, int octaves, const IntervalNames& names) {
+    if (octaves == 0) return t.name;
+    try {
+        if (const std::string* n = names.find(shift_octaves(t.interval, octaves))) return *n;
+    } catch (const Error&) {  // the shifted ratio overflows: keep the target's own name
+    }
+    return t.name.empty() ? std::string() : with_octaves(t.name, octaves);
 }
 
 }  // namespace beatless::pitch

@@ -39,4 +39,10 @@ TargetMatch nearest_target(const TargetSet& set, double measured_cents, bool oct
 // The target moved by whole octaves (exact for ratios; throws Error on overflow).
 Interval shift_octaves(const Interval& iv, int octaves);
 
+// The name of the target moved by whole octaves: the trade's name of the
+// moved interval where it has one (2/1 for 1/1 + octave), else the target's
+// own name with the octaves said ("undecimal neutral second + octave"); the
+// target's name unchanged for octaves == 0.
+std::string target_name_in_octave(const Target& t, int octaves, const IntervalNames& names);
+
 }  // namespace beatless::pitch

@@ -72,6 +72,7 @@ inline Image render_text(const std::string& text, ui::FontFace face, std::uint32
     hc.width_px = 1600;
     hc.height_px = 300;
     hc.dpi_scale = dpi_scale;
+    hc.fit_width_px = 0;  // the face at exactly dpi_scale times its size
     ui::ImGuiHost host(hc);
     ui::Rasterizer raster;
     ui::PixelBuffer buf;

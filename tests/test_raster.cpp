@@ -159,6 +159,7 @@ HostConfig host_config(int width_px, int height_px, float dpi_scale = 1.0f) {
     hc.width_px = width_px;
     hc.height_px = height_px;
     hc.dpi_scale = dpi_scale;
+    hc.fit_width_px = 0;  // fonts at exactly the configured sizes, whatever the display
     return hc;
 }
 
@@ -791,6 +792,37 @@ TEST_CASE("host: DejaVu faces at the configured sizes times the DPI scale; frame
     CHECK(d.DisplaySize.x == 320.0f);
     CHECK(d.TotalVtxCount > 0);
     CHECK(ImGui::GetIO().IniFilename == nullptr);  // no imgui.ini written
+}
+
+TEST_CASE("host: a display smaller than the screens are laid out for shrinks the text to fit, in steps of 1/20") {
+    // Laid out for 1180x700 at scale 1; the factor is min(1, w/1180, h/700)
+    // rounded down to a twentieth, never below 0.6 (arithmetic).
+    auto fitted = [](int w, int h, float dpi) {
+        HostConfig hc = host_config(w, h, dpi);
+        hc.fit_width_px = 1180;
+        hc.fit_height_px = 700;
+        return hc;
+    };
+    {
+        ImGuiHost host(fitted(1280, 800, 1.0f));
+        CHECK(host.fit_scale() == 1.0f);
+        CHECK(host.font(FontFace::body)->FontSize == doctest::Approx(22.0f));
+        // The window shrinks to 960x600: min(0.814, 0.857) -> 0.8; the atlas is rebuilt before that frame.
+        host.new_frame(1.0f / 60.0f, 960, 600);
+        host.render();
+        CHECK(host.fit_scale() == doctest::Approx(0.8f));
+        CHECK(host.font(FontFace::body)->FontSize == doctest::Approx(std::round(22.0f * 0.8f)));
+        CHECK(host.font(FontFace::large)->FontSize == doctest::Approx(std::round(64.0f * 0.8f)));
+        // And grows back.
+        host.new_frame(1.0f / 60.0f, 1920, 1080);
+        host.render();
+        CHECK(host.fit_scale() == 1.0f);
+        CHECK(host.font(FontFace::body)->FontSize == doctest::Approx(22.0f));
+    }
+    CHECK(ImGuiHost(fitted(2560, 1600, 2.0f)).fit_scale() == 1.0f);           // a high-density screen: 1280x800 at scale 2
+    CHECK(ImGuiHost(fitted(1366, 650, 1.0f)).fit_scale() == doctest::Approx(0.9f)); // 650/700 = 0.929
+    CHECK(ImGuiHost(fitted(320, 200, 1.0f)).fit_scale() == doctest::Approx(0.6f));  // the floor
+    CHECK(ImGuiHost(host_config(320, 200, 1.0f)).fit_scale() == 1.0f);             // turned off
 }
 
 TEST_CASE("host: a missing font directory falls back to the built-in font with one warning line") {

@@ -9,6 +9,7 @@
 #include "pitch/error.h"
 #include "pitch/interval.h"
 #include "pitch/ratio.h"
+#include "pitch/targets.h"
 
 #include <doctest/doctest.h>
 
@@ -119,6 +120,39 @@ TEST_CASE("nearest equal-tempered step and its offset") {
     CHECK(std::fabs(nearest_et_step(cents_of("5/4")).offset_cents + 13.686) < 5e-4);
     CHECK(et_step_name(6) == "tritone");
     CHECK(et_step_name(7) == "perfect fifth");
+    // Compound intervals keep the simple name with the octaves said (common practice).
+    CHECK(et_step_name(14) == "major second + octave");
+    CHECK(et_step_name(24) == "2 octaves");
+    CHECK(et_step_name(-6) == "tritone - octave");
+}
+
+TEST_CASE("names of the trade carry over to compound intervals") {
+    // 14/5 = 7/5 * 2/1 and 24/11 = 12/11 * 2/1 (arithmetic); the names are
+    // those of the simple intervals (common practice).
+    IntervalNames names;
+    names.add(parse_interval("7/5"), "lesser septimal tritone");
+    names.add(parse_interval("12/11"), "undecimal neutral second");
+    names.add(parse_interval("600c"), "equal-tempered tritone");
+    CHECK(names.name_in_any_octave(parse_interval("7/5")) == "lesser septimal tritone");
+    CHECK(names.name_in_any_octave(parse_interval("14/5")) == "lesser septimal tritone + octave");
+    CHECK(names.name_in_any_octave(parse_interval("24/11")) == "undecimal neutral second + octave");
+    CHECK(names.name_in_any_octave(parse_interval("48/11")) == "undecimal neutral second + 2 octaves");
+    CHECK(names.name_in_any_octave(parse_interval("7/10")) == "lesser septimal tritone - octave");
+    CHECK(names.name_in_any_octave(parse_interval("1800c")) == "equal-tempered tritone + octave");
+    CHECK(names.name_in_any_octave(parse_interval("4/1")) == "2 octaves");
+    CHECK(names.name_in_any_octave(parse_interval("11/8")).empty());
+    CHECK(interval_facts(parse_interval("14/5"), names).name == "lesser septimal tritone + octave");
+
+    // A target matched an octave up: the moved interval's own name if it has
+    // one, else the target's name with the octave said.
+    names.add(parse_interval("2/1"), "octave");
+    const Target unison{parse_interval("1/1"), "unison"};
+    CHECK(target_name_in_octave(unison, 1, names) == "octave");
+    const Target neutral{parse_interval("12/11"), "undecimal neutral second"};
+    CHECK(target_name_in_octave(neutral, 0, names) == "undecimal neutral second");
+    CHECK(target_name_in_octave(neutral, 1, names) == "undecimal neutral second + octave");
+    CHECK(target_name_in_octave(neutral, -1, names) == "undecimal neutral second - octave");
+    CHECK(target_name_in_octave(Target{parse_interval("13/8"), ""}, 1, names).empty());
 }
 
 TEST_CASE("bad ratios give one-line messages naming the value") {

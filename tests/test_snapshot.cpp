@@ -182,6 +182,22 @@ TEST_CASE("snapshot: the hearing caution shows on first run only, and the screen
     CHECK(find_colour(later, ui::palette::kWarning, 0, later.h / 3).empty());
 }
 
+TEST_CASE("snapshot: a window smaller than the layout shrinks the text so the screen still fits") {
+    // 960x600 against the 1180x700 the screens are laid out for: text at 0.8.
+    TempDir home;
+    const Image small = read_png(snapshot(home, "--demo --first-run --seconds 1 --size 960x600", "small.png"));
+    REQUIRE(small.w == 960);
+    const Image at_08 = render_text("Hearing caution", ui::FontFace::bold, ui::palette::kText, ui::palette::kPanel, 0.8f);
+    const Image at_10 = render_text("Hearing caution", ui::FontFace::bold, ui::palette::kText, ui::palette::kPanel, 1.0f);
+    Box top;
+    top.x0 = 0;
+    top.y0 = 0;
+    top.x1 = small.w - 1;
+    top.y1 = small.h / 3;
+    CHECK(find_exact(small, at_08, top).size() == 1);
+    CHECK(find_exact(small, at_10, top).empty());
+}
+
 TEST_CASE("snapshot: bad values give one line naming the value, exit 1 or 2") {
     TempDir home;
     struct Case {

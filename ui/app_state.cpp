@@ -536,12 +536,7 @@ std::string AppState::target_name_text(const pitch::Reading& r) const {
     const int i = target_index_of(r);
     if (i < 0) return {};
     const pitch::Target& t = set_.targets[static_cast<std::size_t>(i)];
-    if (r.target_octaves == 0) return t.name;
-    try {
-        if (const std::string* n = interval_names().find(pitch::shift_octaves(t.interval, r.target_octaves))) return *n;
-    } catch (const Error&) {
-    }
-    return t.name;
+    return pitch::target_name_in_octave(t, r.target_octaves, interval_names());
 }
 
 // ---------------------------------------------------------------------------

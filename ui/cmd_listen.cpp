@@ -78,9 +78,7 @@ struct TargetText {
     std::string name(const pitch::Reading& r) const {
         if (r.target_index < 0) return {};
         const pitch::Target& t = set->targets[static_cast<std::size_t>(r.target_index)];
-        if (r.target_octaves == 0) return t.name;
-        const std::string* shifted = interval_names().find(pitch::shift_octaves(t.interval, r.target_octaves));
-        return shifted ? *shifted : t.name;
+        return pitch::target_name_in_octave(t, r.target_octaves, interval_names());
     }
 };
 

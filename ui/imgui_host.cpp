@@ -65,6 +65,7 @@ ImGuiHost::ImGuiHost(const HostConfig& config) : config_(config) {
     io.DisplayFramebufferScale = ImVec2(1.0f, 1.0f);
 
     config_.font_scale = std::clamp(config_.font_scale > 0.0f ? config_.font_scale : 1.0f, 0.5f, 3.0f);
+    fit_scale_ = fit_for(config_.width_px, config_.height_px);
     io.Fonts->Flags |= ImFontAtlasFlags_NoBakedLines;  // lines as geometry: their edges are anti-aliased by vertex alpha
     try {
         build_fonts();
@@ -87,7 +88,7 @@ ImGuiHost::ImGuiHost(const HostConfig& config) : config_(config) {
 void ImGuiHost::build_fonts() {
     ImFontAtlas& atlas = *ImGui::GetIO().Fonts;
     atlas.Clear();
-    const float scale = config_.dpi_scale * config_.font_scale;
+    const float scale = config_.dpi_scale * config_.font_scale * fit_scale_;
     std::string missing;
     for (const FaceFile& f : kFaces) {
         ImFontConfig cfg;
@@ -117,6 +118,16 @@ void ImGuiHost::build_fonts() {
     atlas.SetTexID(static_cast<ImTextureID>(const_cast<Texture*>(&atlas_)));
 }
 
+// In steps of 1/20, so that dragging a window edge rebuilds the atlas only
+// now and then.
+float ImGuiHost::fit_for(int width_px, int height_px) const {
+    if (config_.fit_width_px <= 0 || config_.fit_height_px <= 0 || width_px <= 0 || height_px <= 0) return 1.0f;
+    const float need_w = static_cast<float>(config_.fit_width_px) * config_.dpi_scale;
+    const float need_h = static_cast<float>(config_.fit_height_px) * config_.dpi_scale;
+    const float f = std::min({1.0f, static_cast<float>(width_px) / need_w, static_cast<float>(height_px) / need_h});
+    return std::max(0.6f, std::floor(f * 20.0f) / 20.0f);
+}
+
 void ImGuiHost::set_font_scale(float font_scale) {
     if (!(font_scale > 0.0f)) return;
     pending_font_scale_ = std::clamp(font_scale, 0.5f, 3.0f);
@@ -135,13 +146,20 @@ ImGuiHost* ImGuiHost::current() {
 
 void ImGuiHost::new_frame(float dt_s, int width_px, int height_px) {
     make_current();
+    bool rebuild = false;
     if (pending_font_scale_ > 0.0f) {
         if (pending_font_scale_ != config_.font_scale) {
             config_.font_scale = pending_font_scale_;
-            build_fonts();
+            rebuild = true;
         }
         pending_font_scale_ = 0.0f;
     }
+    const float fit = fit_for(width_px, height_px);
+    if (fit != fit_scale_) {
+        fit_scale_ = fit;
+        rebuild = true;
+    }
+    if (rebuild) build_fonts();
     ImGuiIO& io = ImGui::GetIO();
     io.DeltaTime = std::isfinite(dt_s) ? std::clamp(dt_s, 1e-6f, 1.0f) : 1.0f / 60.0f;
     io.DisplaySize = ImVec2(static_cast<float>(std::max(width_px, 0)), static_cast<float>(std::max(height_px, 0)));

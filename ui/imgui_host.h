@@ -27,6 +27,12 @@ struct HostConfig {
     float medium_size_px = 34.0f; // headings and mid-size readouts (target name, beat rate) at scale 1
     float large_size_px = 64.0f;  // big readouts (the deviation in cents) at scale 1
     float font_scale = 1.0f;      // the user's font size choice (0.5 .. 3), on top of dpi_scale; fonts only
+    // The smallest display the screens are laid out for at scale 1 (the
+    // Practice screen's control row needs about 1150 px). A smaller display
+    // shrinks the text, and with it every size measured in ui_unit(), so
+    // nothing is cut off; never below 0.6. 0 turns this off.
+    int fit_width_px = 1180;
+    int fit_height_px = 700;
     std::string font_dir = "/usr/share/fonts/truetype/dejavu";  // fonts-dejavu-core
 };
 
@@ -63,6 +69,9 @@ public:
     // are clamped.
     void set_font_scale(float font_scale);
 
+    // The factor (0.6 .. 1) the text is shrunk by to fit the display.
+    float fit_scale() const { return fit_scale_; }
+
     // The host whose context is current (kept in io.UserData), or null: how
     // code building a frame inside run_window() finds fonts and scale.
     static ImGuiHost* current();
@@ -75,6 +84,8 @@ private:
     bool fonts_from_files_ = false;
     bool font_warned_ = false;
     float pending_font_scale_ = 0.0f;  // > 0: rebuild the atlas before the next frame
+    float fit_scale_ = 1.0f;           // applied to the fonts
+    float fit_for(int width_px, int height_px) const;
 };
 
 // One whole offscreen frame: new_frame, build_frame(), render, clear `out`
