@@ -55,6 +55,16 @@ struct Box {
     }
 };
 
+// The full-width band of rows y0 .. y1 (inclusive) of an image.
+inline Box rows(const Image& img, int y0, int y1) {
+    Box b;
+    b.x0 = 0;
+    b.x1 = img.w - 1;
+    b.y0 = y0;
+    b.y1 = y1;
+    return b;
+}
+
 inline Box find_colour(const Image& img, std::uint32_t colour, int y_from = 0, int y_to = -1) {
     Box b;
     if (y_to < 0) y_to = img.h;

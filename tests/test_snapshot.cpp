@@ -170,11 +170,7 @@ TEST_CASE("snapshot: the hearing caution shows on first run only, and the screen
     const Image first = read_png(snapshot(home, "--demo --first-run --seconds 1", "first.png"));
     const Image later = read_png(snapshot(home, "--demo --seconds 1", "later.png"));
     const Image caution = render_text("Hearing caution", ui::FontFace::bold, ui::palette::kText, ui::palette::kPanel, 1.0f);
-    Box all;
-    all.x0 = 0;
-    all.y0 = 0;
-    all.x1 = first.w - 1;
-    all.y1 = first.h / 3;
+    const Box all = rows(first, 0, first.h / 3);
     CHECK(find_exact(first, caution, all).size() == 1);
     CHECK(find_exact(later, caution, all).empty());
     // The banner has the warning colour (vermillion) as its border; the later picture has none up there.
@@ -189,11 +185,7 @@ TEST_CASE("snapshot: a window smaller than the layout shrinks the text so the sc
     REQUIRE(small.w == 960);
     const Image at_08 = render_text("Hearing caution", ui::FontFace::bold, ui::palette::kText, ui::palette::kPanel, 0.8f);
     const Image at_10 = render_text("Hearing caution", ui::FontFace::bold, ui::palette::kText, ui::palette::kPanel, 1.0f);
-    Box top;
-    top.x0 = 0;
-    top.y0 = 0;
-    top.x1 = small.w - 1;
-    top.y1 = small.h / 3;
+    const Box top = rows(small, 0, small.h / 3);
     CHECK(find_exact(small, at_08, top).size() == 1);
     CHECK(find_exact(small, at_10, top).empty());
 }
@@ -329,11 +321,7 @@ TEST_CASE("snapshot: a practice log that cannot be written shows one warning lin
     const Image img = read_png(png);
     const std::string text = "practice log " + log + ": cannot write (cannot open or create it); 1 attempt kept and will be saved when possible";
     const Image warning = render_text(text, ui::FontFace::body, ui::palette::kText, ui::palette::kPanelRaised, 1.0f);
-    Box top;
-    top.x0 = 0;
-    top.y0 = 0;
-    top.x1 = img.w - 1;
-    top.y1 = img.h / 6;
+    const Box top = rows(img, 0, img.h / 6);
     CHECK(find_exact(img, warning, top).size() == 1);
     CHECK(!find_colour(img, ui::palette::kWarning, 0, img.h / 6).empty());
     // The result is there all the same.
@@ -351,11 +339,7 @@ TEST_CASE("snapshot: the history panel plots each target's mean deviation per da
     const Image img = read_png(snapshot(home, "--demo --drill hold-septimal-tritones --seconds 1 --log " + log, "drill-history.png"));
     // One small plot per target of the drill, each labelled, each with today's
     // mean: -3.0 c (held 3 cents flat, within ±6 c: in the in-tune colour).
-    Box lower;
-    lower.x0 = 0;
-    lower.y0 = img.h / 2;
-    lower.x1 = img.w - 1;
-    lower.y1 = img.h - 1;
+    const Box lower = rows(img, img.h / 2, img.h - 1);
     const Image value = render_text("\xE2\x88\x92" "3.0 c", ui::FontFace::bold, ui::palette::kInTune, ui::palette::kPanelRaised, 1.0f);
     CHECK(find_exact(img, value, lower).size() == 2);
     for (const char* t : {"7/5", "10/7"}) {

@@ -120,11 +120,7 @@ void check_screen(const std::string& reference, const std::vector<double>& expec
         CHECK_MESSAGE(!find_exact(img, word, strip).empty(), "the word '" << word_of(expected[i], 5.0) << "' is not shown in strip " << i);
     }
     // The status bar names the group's input, not the Practice screen's.
-    Box bar;
-    bar.x0 = 0;
-    bar.x1 = img.w - 1;
-    bar.y0 = img.h - img.h / 12;
-    bar.y1 = img.h - 1;
+    const Box bar = rows(img, img.h - img.h / 12, img.h - 1);
     const Image input = render_text("the demo ensemble", ui::FontFace::bold, ui::palette::kText, ui::palette::kPanel, 1.0f);
     CHECK_MESSAGE(!find_exact(img, input, bar).empty(), "the status bar does not name the demo ensemble");
 }
