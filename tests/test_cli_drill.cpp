@@ -51,8 +51,13 @@ TEST_CASE("beatless drill --demo: one line per hold in words, and the attempts i
     CHECK(lines[1].rfind("hold 2 of 3  10/7 greater septimal tritone: locked in 0.3 s, held 3 cents flat, 100 % within \xC2\xB1" "6 c", 0) == 0);
     CHECK(lines[2].rfind("hold 3 of 3  7/5 ", 0) == 0);
     CHECK(r.err.find("3 attempts saved to " + log) != std::string::npos);
-    // `beatless history` reads them back: three holds, mean -3 c per target.
-    const auto h = run_program("history --log " + log + " --format json", {"BEATLESS_HOME=" + home.path()});
+    // They are the demo performer's: `beatless history` keeps them apart from the performer's own...
+    const auto own = run_program("history --log " + log + " --format json", {"BEATLESS_HOME=" + home.path()});
+    REQUIRE(own.exit_code == 0);
+    CHECK(json_value(own.out, "d['attempts']") == "0");
+    CHECK(json_value(own.out, "d['simulated_left_out']") == "3");
+    // ...and reads them back when asked: three holds, mean -3 c per target.
+    const auto h = run_program("history --with-demo --log " + log + " --format json", {"BEATLESS_HOME=" + home.path()});
     REQUIRE(h.exit_code == 0);
     CHECK(json_value(h.out, "d['attempts']") == "3");
     CHECK(json_value(h.out, "[t['target'] for t in d['totals']]") == "['7/5', '10/7']");
@@ -103,7 +108,7 @@ TEST_CASE("beatless drill on an ear drill answers with a simulated listener; a f
     // The ear-tritones staircase stays within its min_cents 5 and max_cents 70.
     CHECK(thresholds[0] >= 5.0);
     CHECK(thresholds[1] <= 70.0);
-    const auto h = run_program("history --log " + log + " --format json", {"BEATLESS_HOME=" + home.path()});
+    const auto h = run_program("history --with-demo --log " + log + " --format json", {"BEATLESS_HOME=" + home.path()});
     CHECK(json_value(h.out, "[t['attempts'] for t in d['totals'] if t['kind'] == 'ear']") == "[2]");
     // Text: the result in words.
     const auto t = run_program("drill ear-tritones --listener 12 --log " + log, {"BEATLESS_HOME=" + home.path()});

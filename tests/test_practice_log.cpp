@@ -719,6 +719,51 @@ TEST_CASE("beatless history: text, json and csv, filters and errors") {
     CHECK_FALSE(fs::exists(empty.path / "data" / "practice.sqlite3"));  // looking creates nothing
 }
 
+TEST_CASE("the demo performer's and the simulated listener's attempts are kept apart from the performer's own") {
+    TempDir t("sim");
+    {
+        PracticeLog log(t.path / "data" / "practice.sqlite3");
+        fill_known(log);  // the performer's own: 5 holds, 2 ear sessions
+        std::vector<Attempt> v = {hold("2025-03-07T10:00:00.000Z", "7/5", true, 1.0, 0.0, 1.0, 1.0),
+                                  hold("2025-03-07T10:01:00.000Z", "10/7", true, 1.0, 0.0, 1.0, 1.0)};
+        v[0].performer = v[1].performer = kDemoPerformer;
+        Attempt ear;
+        ear.started_at = "2025-03-07T11:00:00.000Z";
+        ear.drill = "ear-tritones";
+        ear.kind = AttemptKind::ear;
+        ear.target = "11/8 7/5 45/32 600c 10/7";
+        ear.threshold_cents = 3.0;
+        ear.performer = kSimulatedListener;
+        v.push_back(ear);
+        log.add_all(v);
+
+        AttemptFilter own;
+        own.simulated = false;
+        CHECK(log.count(AttemptFilter{}) == 10);
+        CHECK(log.count(own) == 7);
+        const HistorySummary s = summarize_history(log, HistoryOptions{own, Period::week});
+        CHECK(s.attempts == 7);
+        CHECK(s.simulated_left_out == 3);
+        // The 7/5 mean is the performer's alone, as in the hand-worked sums: -7/4.
+        REQUIRE(!s.totals.empty());
+        CHECK(s.totals[0].key == "7/5");
+        CHECK(s.totals[0].mean_dev_cents == doctest::Approx(-1.75));
+        CHECK(summarize_history(log, HistoryOptions{AttemptFilter{}, Period::week}).simulated_left_out == 0);
+    }
+    const Run text = run_program("history", t.path);
+    CHECK(text.code == 0);
+    CHECK(text.out.find(": 7 attempts\n(3 attempts by the demo performer or the simulated listener left out; --with-demo shows them)\n") !=
+          std::string::npos);
+    const Run all = run_program("history --with-demo --format json", t.path);
+    CHECK(all.code == 0);
+    CHECK(all.out.find("\"attempts\": 10") != std::string::npos);
+    CHECK(all.out.find("\"simulated_left_out\": 0") != std::string::npos);
+    // An export for a teacher holds the performer's own attempts unless asked.
+    const Run exp = run_program("history --export - --no-traces", t.path);
+    CHECK(exp.code == 0);
+    CHECK(std::count(exp.out.begin(), exp.out.end(), '\n') == 1 + 7);  // header + rows
+}
+
 TEST_CASE("beatless history --export / --import round-trips through the program") {
     TempDir student("student"), teacher("teacher");
     {

@@ -342,7 +342,7 @@ int run_drill(const DrillCmd& o) {
     RunnerConfig rc;
     rc.seed = o.seed;
     rc.max_holds = static_cast<std::size_t>(o.attempts);
-    rc.performer = o.demo ? "demo performer" : listener ? "simulated listener" : "";
+    rc.performer = o.demo ? kDemoPerformer : listener ? kSimulatedListener : "";
     DrillRunner runner(d, rc, &writer);
     Printer print{d, runner, o.format, {}};
 

@@ -40,6 +40,7 @@ struct HistoryCmd {
     std::string export_file;
     std::string import_file;
     bool no_traces = false;
+    bool with_demo = false;
 };
 
 std::string read_whole(const std::string& path) {
@@ -109,6 +110,7 @@ int run_history(const HistoryCmd& o) {
         }
     }
     filter.drill = o.drill;
+    filter.simulated = o.with_demo;
     if (!o.since.empty()) filter.since = parse_since(o.since);
     if (!o.import_file.empty()) return run_import(o, log_path);
     if (!o.export_file.empty()) return run_export(o, log_path, filter);
@@ -145,6 +147,8 @@ void register_history(CLI::App& app, Runner& run) {
     sub->add_option("--log", o->log_file, "Practice log file (default: the data folder's practice.sqlite3)");
     sub->add_option("--export", o->export_file, "Write the attempts as CSV to FILE ('-' for stdout)");
     sub->add_option("--import", o->import_file, "Add the attempts of a CSV export to the log (all or none)");
+    sub->add_flag("--with-demo", o->with_demo,
+                  "Include the attempts of the demo performer and the simulated listener (left out by default)");
     sub->add_flag("--no-traces", o->no_traces, "With --export: leave out the pitch traces (a smaller file)");
     sub->callback([o, &run] { run = [o] { return run_history(*o); }; });
 }

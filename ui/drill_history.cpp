@@ -34,7 +34,7 @@ long day_number(const std::string& day) {
 // [read]
 // ---------------------------------------------------------------------------
 
-DrillHistory read_drill_history(const std::string& log_path, const Drill& drill) {
+DrillHistory read_drill_history(const std::string& log_path, const Drill& drill, bool simulated) {
     DrillHistory out;
     const Drill* d = &drill;
     if (log_path.empty()) {
@@ -52,6 +52,7 @@ DrillHistory read_drill_history(const std::string& log_path, const Drill& drill)
         PracticeLog log(log_path, lo);
         HistoryOptions ho;
         ho.filter.drill = d->id;
+        ho.filter.simulated = simulated;
         ho.by = Period::day;
         const HistorySummary sum = summarize_history(log, ho);
         std::map<std::string, std::size_t> at;

@@ -36,7 +36,9 @@ struct DrillHistory {
 
 // Reads the drill's history from the log at log_path (read-only; empty path:
 // no log in use). Never throws: a problem becomes the note.
-DrillHistory read_drill_history(const std::string& log_path, const Drill& drill);
+// Attempts by the demo performer and the simulated listener count only when
+// `simulated` is true (the screen runs with one of them).
+DrillHistory read_drill_history(const std::string& log_path, const Drill& drill, bool simulated);
 
 // "YYYY-MM-DD" to days since 1970-01-01 (0 for a malformed day).
 long day_number(const std::string& day);

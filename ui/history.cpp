@@ -88,6 +88,11 @@ HistorySummary summarize_history(const PracticeLog& log, const HistoryOptions& o
     s.log_path = log.path().string();
     s.since = o.filter.since;
     s.by = o.by;
+    if (!o.filter.simulated) {
+        AttemptFilter all = o.filter;
+        all.simulated = true;
+        s.simulated_left_out = log.count(all) - log.count(o.filter);
+    }
     // Groups come sorted by (kind, key, day): fold the days of each key into
     // its total and its periods, converting each day to its period once.
     struct Keyed {
@@ -207,6 +212,9 @@ std::vector<HistoryLine> of_kind(const std::vector<HistoryLine>& lines, AttemptK
 std::string render_history_text(const HistorySummary& s) {
     std::string out = "Practice log " + s.log_path + ": " + std::to_string(s.attempts) +
                       (s.attempts == 1 ? " attempt" : " attempts") + (s.since.empty() ? "" : " since " + s.since) + "\n";
+    if (s.simulated_left_out > 0)
+        out += "(" + std::to_string(s.simulated_left_out) + (s.simulated_left_out == 1 ? " attempt" : " attempts") +
+               " by the demo performer or the simulated listener left out; --with-demo shows them)\n";
     if (s.attempts == 0) return out;
     const std::string by(period_name(s.by));
     const std::string head = s.by == Period::week ? "week of" : by;
@@ -258,6 +266,7 @@ std::string render_history_json(const HistorySummary& s) {
     if (s.since.empty()) j.null();
     else j.value(s.since);
     j.key("by").value(period_name(s.by));
+    j.key("simulated_left_out").value(s.simulated_left_out);
     j.key("attempts").value(s.attempts);
     j.key("totals").begin_array();
     for (const HistoryLine& l : s.totals) json_line(j, l, false);

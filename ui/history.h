@@ -42,6 +42,7 @@ struct HistorySummary {
     std::string since;                   // as given (normalised), or empty
     Period by = Period::week;
     std::int64_t attempts = 0;           // matching the filter
+    std::int64_t simulated_left_out = 0; // the filter leaves out simulated performers: how many of theirs it left
     std::vector<HistoryLine> totals;     // period "all": holds by pitch, then ear drills
     std::vector<HistoryLine> over_time;  // per key, in time order
 };

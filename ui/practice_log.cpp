@@ -526,10 +526,12 @@ std::size_t PracticeLog::add_all(std::vector<Attempt>& attempts) {
 
 namespace {
 
-// WHERE clause for a filter; parameters ?1 target, ?2 since, ?3 drill (empty = any).
+// WHERE clause for a filter; parameters ?1 target, ?2 since, ?3 drill (empty
+// = any), ?4 1 to keep the simulated performers' attempts, ?5 and ?6 their names.
 constexpr const char* kWhere =
     " WHERE (?1 = '' OR attempt.target = ?1 OR (attempt.kind = 'ear' AND instr(' ' || attempt.target || ' ', ' ' || ?1 || ' ') > 0))"
-    " AND (?2 = '' OR attempt.started_at >= ?2) AND (?3 = '' OR attempt.drill = ?3)";
+    " AND (?2 = '' OR attempt.started_at >= ?2) AND (?3 = '' OR attempt.drill = ?3)"
+    " AND (?4 = 1 OR attempt.performer NOT IN (?5, ?6))";
 
 struct Stmt {
     sqlite3_stmt* s = nullptr;
@@ -549,6 +551,9 @@ void bind_filter(sqlite3_stmt* s, const AttemptFilter& f) {
     bind_text(s, 1, f.target);
     bind_text(s, 2, f.since);
     bind_text(s, 3, f.drill);
+    sqlite3_bind_int(s, 4, f.simulated ? 1 : 0);
+    sqlite3_bind_text(s, 5, kDemoPerformer, -1, SQLITE_STATIC);  // string literals: they outlive the statement
+    sqlite3_bind_text(s, 6, kSimulatedListener, -1, SQLITE_STATIC);
 }
 
 }  // namespace
@@ -610,6 +615,15 @@ std::int64_t PracticeLog::count() const {
     const std::int64_t n = query_int(db_, "SELECT count(*) FROM attempt", ok);
     if (!ok) fail("counting attempts");
     return n;
+}
+
+std::int64_t PracticeLog::count(const AttemptFilter& filter) const {
+    const std::string sql = std::string("SELECT count(*) FROM attempt") + kWhere;
+    Stmt st;
+    if (sqlite3_prepare_v2(db_, sql.c_str(), -1, &st.s, nullptr) != SQLITE_OK) fail("preparing the count query");
+    bind_filter(st.s, filter);
+    if (sqlite3_step(st.s) != SQLITE_ROW) fail("counting attempts");
+    return sqlite3_column_int64(st.s, 0);
 }
 
 std::vector<HistoryGroup> PracticeLog::history_groups(const AttemptFilter& filter) const {

@@ -94,10 +94,16 @@ struct LogOptions {
     int busy_timeout_ms = 2000;        // wait this long for another writer; default 2000
 };
 
+// Attempt.performer of the program's own stand-ins: their attempts are kept
+// (a demo can show a history) but kept apart from the performer's own.
+inline constexpr const char* kDemoPerformer = "demo performer";
+inline constexpr const char* kSimulatedListener = "simulated listener";
+
 struct AttemptFilter {
     std::string target;   // a target such as "7/5"; ear attempts match when it is among their choices
     std::string since;    // UTC ISO 8601 prefix ("2025-03-01"): attempts started at or after it
     std::string drill;    // a drill id
+    bool simulated = true; // false: leave out the demo performer's and the simulated listener's attempts
 };
 
 // Sums for one (kind, key, day) group: the raw material of `beatless history`.
@@ -136,6 +142,7 @@ public:
     std::size_t add_all(std::vector<Attempt>& attempts);
 
     std::int64_t count() const;
+    std::int64_t count(const AttemptFilter& filter) const;  // attempts matching the filter
     bool has_uid(const std::string& uid) const;
 
     // Attempts in start-time order (then uid), with or without their traces.

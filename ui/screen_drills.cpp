@@ -187,7 +187,7 @@ void DrillsScreen::start(AppState& app) {
     RunnerConfig rc;
     const AppOptions& o = app.options();
     rc.seed = o.demo || o.simulated ? o.seed : static_cast<std::uint64_t>(std::chrono::steady_clock::now().time_since_epoch().count());
-    rc.performer = d.mode == DrillMode::ear ? (listener_ ? "simulated listener" : "") : o.demo ? "demo performer" : "";
+    rc.performer = d.mode == DrillMode::ear ? (listener_ ? kSimulatedListener : "") : o.demo ? kDemoPerformer : "";
     auto runner = std::make_unique<DrillRunner>(d, rc, writer_.get());
     if (!app.begin_drill(drill_drone(d))) return;
     drill_owned_ = true;
@@ -788,7 +788,7 @@ void DrillsScreen::build(AppState& app, const ScreenArea& area, double dt_s) {
     now_panel(app, dl, rx, top, rw, now_h);
     attempt_panel(dl, rx, top + now_h + gap, rw, top_h - now_h - gap);
     if (history_dirty_ && chosen()) {
-        history_ = read_drill_history(log_path_, *chosen());
+        history_ = read_drill_history(log_path_, *chosen(), app.options().demo || listener_.has_value());
         history_dirty_ = false;
     }
     if (chosen()) draw_drill_history(dl, history_, *chosen(), x0, top + top_h + gap, w, hist_h);
