@@ -605,6 +605,16 @@ Attempt hold(const std::string& when, const std::string& target, std::optional<b
     return a;
 }
 
+Attempt ear_session(const std::string& when, double threshold_cents) {
+    Attempt ear;
+    ear.started_at = when;
+    ear.drill = "ear-tritones";
+    ear.kind = AttemptKind::ear;
+    ear.target = "11/8 7/5 45/32 600c 10/7";
+    ear.threshold_cents = threshold_cents;
+    return ear;
+}
+
 void fill_known(PracticeLog& log) {
     // Week of 2025-03-03 (Mon): three 7/5 and one 10/7; week of 2025-03-10: one 7/5.
     std::vector<Attempt> v = {
@@ -614,16 +624,8 @@ void fill_known(PracticeLog& log) {
         hold("2025-03-04T10:00:00.000Z", "10/7", true, 0.5, 6.0, 2.0, 0.9),
         hold("2025-03-10T00:00:00.000Z", "7/5", true, 1.5, -1.0, 2.0, 0.8),
     };
-    Attempt ear;
-    ear.started_at = "2025-03-06T12:00:00.000Z";
-    ear.drill = "ear-tritones";
-    ear.kind = AttemptKind::ear;
-    ear.target = "11/8 7/5 45/32 600c 10/7";
-    ear.threshold_cents = 14.0;
-    v.push_back(ear);
-    ear.started_at = "2025-03-12T12:00:00.000Z";
-    ear.threshold_cents = 10.0;
-    v.push_back(ear);
+    v.push_back(ear_session("2025-03-06T12:00:00.000Z", 14.0));
+    v.push_back(ear_session("2025-03-12T12:00:00.000Z", 10.0));
     log.add_all(v);
 }
 
@@ -727,12 +729,7 @@ TEST_CASE("the demo performer's and the simulated listener's attempts are kept a
         std::vector<Attempt> v = {hold("2025-03-07T10:00:00.000Z", "7/5", true, 1.0, 0.0, 1.0, 1.0),
                                   hold("2025-03-07T10:01:00.000Z", "10/7", true, 1.0, 0.0, 1.0, 1.0)};
         v[0].performer = v[1].performer = kDemoPerformer;
-        Attempt ear;
-        ear.started_at = "2025-03-07T11:00:00.000Z";
-        ear.drill = "ear-tritones";
-        ear.kind = AttemptKind::ear;
-        ear.target = "11/8 7/5 45/32 600c 10/7";
-        ear.threshold_cents = 3.0;
+        Attempt ear = ear_session("2025-03-07T11:00:00.000Z", 3.0);
         ear.performer = kSimulatedListener;
         v.push_back(ear);
         log.add_all(v);
