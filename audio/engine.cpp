@@ -29,16 +29,6 @@ constexpr std::size_t kMaxDronePartials = 256;
 using Clock = std::chrono::steady_clock;
 }  // namespace
 
-std::string_view input_kind_name(InputKind k) {
-    switch (k) {
-        case InputKind::none: return "none";
-        case InputKind::device: return "device";
-        case InputKind::demo: return "demo";
-        case InputKind::file: return "file";
-    }
-    return "none";
-}
-
 // ---------------------------------------------------------------------------
 // 1. State
 // ---------------------------------------------------------------------------
@@ -47,18 +37,10 @@ struct Engine::Impl {
     InputKind input = InputKind::none;
     double rate = 0.0;
 
-    // Devices.
-    StreamRequest request;                // what was opened (for reopening)
-    std::string input_spec, output_spec;  // names, re-resolved after a rescan
-    std::unique_ptr<Stream> in_stream, out_stream;  // out_stream empty for duplex
-    bool want_output = false;
-    bool input_lost = false, output_lost = false;
-    Clock::time_point last_try{};
-    std::uint64_t seen_callbacks = 0;
-    Clock::time_point seen_at{};
-    std::atomic<std::uint64_t> callbacks{0};
-    std::atomic<std::uint64_t> dev_overflows{0}, dev_underflows{0};
-    StreamInfo in_info, out_info;
+    // Devices, streams, callback counters, the drone's output, threads.
+    LiveIo io;
+    bool output_lost = false;
+    Clock::time_point last_try{};         // the last attempt to reopen
 
     // Sources other than a device.
     std::unique_ptr<DemoPerformer> demo;
@@ -67,17 +49,12 @@ struct Engine::Impl {
     std::unique_ptr<SoundReader> file;
     std::string file_path;
     bool input_has_drone = false;
-    std::thread producer;
-    std::atomic<bool> producer_done{false};
 
     // Ring and analysis.
     std::unique_ptr<SpscRing<float>> ring;
-    std::vector<float> cap_scratch, room_scratch, play_scratch, prod_scratch, work;
-    std::string producer_error;           // set by the producer, reported by supervise()
-    std::atomic<bool> producer_failed{false};
+    std::vector<float> cap_scratch, room_scratch, prod_scratch, work;
     std::unique_ptr<pitch::YinTracker> tracker;
     std::unique_ptr<DroneCanceller> canceller;
-    std::unique_ptr<Drone> out_drone;     // plays through the output callback
     Latest<DroneSettings> drone_for_analysis;
     DronePartial partials[kMaxDronePartials];
     std::unique_ptr<pitch::ReadingMaker> maker;
@@ -87,34 +64,17 @@ struct Engine::Impl {
     double applied_root = 0.0;
     double span_s = 0.05;                 // the tracker's span
     bool removal_active = false;
-    std::thread analysis;
-    std::atomic<bool> running{false};
     bool started = false;
 
     // Publication.
-    Latest<pitch::Reading> latest;
-    History<pitch::Reading, kHistoryLen> history;
-    SpscRing<pitch::Reading> stream{kStreamLen};
+    ReadingOutlet<pitch::Reading, kHistoryLen> out{kStreamLen};
     std::atomic<std::uint64_t> analysed{0};
-    std::atomic<std::uint64_t> readings{0};
-    std::atomic<double> latency_s{0.0}, latency_max_s{0.0};
     std::atomic<bool> finished{false};
     std::atomic<double> current_target_hz{0.0};
 
     // Next block of the file (mono), 0 at its end or on a read error (kept for supervise()).
     std::size_t read_file_block(std::span<float> buf) {
-        std::size_t n = 0;
-        try {
-            const auto b = file->read();
-            n = std::min(b.size(), buf.size());
-            std::copy_n(b.begin(), n, buf.begin());
-        } catch (const Error& e) {
-            producer_error = e.what();
-            producer_failed.store(true);
-            n = 0;
-        }
-        if (n == 0) producer_done.store(true);
-        return n;
+        return io.read_block(buf, [this] { return file->read(); });
     }
 };
 
@@ -125,7 +85,7 @@ struct Engine::Impl {
 Engine::Engine(const EngineConfig& config, AudioSystem* system) : cfg_(config), system_(system), impl_(std::make_unique<Impl>()) {
     impl_->cap_scratch.assign(kScratch, 0.0f);
     impl_->room_scratch.assign(kScratch, 0.0f);
-    impl_->play_scratch.assign(kScratch, 0.0f);
+    impl_->io.play_scratch.assign(kScratch, 0.0f);
     impl_->prod_scratch.assign(kScratch, 0.0f);
     impl_->work.assign(kChunk, 0.0f);
 }
@@ -141,25 +101,15 @@ void Engine::open_input_device(std::string_view spec) {
     Impl& m = *impl_;
     const auto devs = system_->devices();
     const int in = choose_device(devs, spec, Direction::input);
-    m.request.input_device = in;
-    m.request.sample_rate_hz = cfg_.sample_rate_hz;
-    m.request.block_len_frames = cfg_.block_len_frames;
+    m.io.request.input_device = in;
+    m.io.request.sample_rate_hz = cfg_.sample_rate_hz;
+    m.io.request.block_len_frames = cfg_.block_len_frames;
     for (const auto& d : devs)
-        if (d.index == in) m.input_spec = d.name;
+        if (d.index == in) m.io.input_spec = d.name;
     m.input = InputKind::device;
 }
 
-void Engine::open_output_device(std::string_view spec) {
-    if (!system_) throw Error("no audio system for an output device");
-    Impl& m = *impl_;
-    const auto devs = system_->devices();
-    const int out = choose_device(devs, spec, Direction::output);
-    m.request.output_device = out;
-    m.request.block_len_frames = cfg_.block_len_frames;
-    for (const auto& d : devs)
-        if (d.index == out) m.output_spec = d.name;
-    m.want_output = true;
-}
+void Engine::open_output_device(std::string_view spec) { impl_->io.choose_output(system_, spec, cfg_.block_len_frames); }
 
 void Engine::use_demo(DemoConfig demo) {
     Impl& m = *impl_;
@@ -197,13 +147,7 @@ void Engine::start(bool analysis_thread) {
     if (!m.maker) throw Error("engine: readings are not set up (no root or targets)");
     // Open the streams: one duplex stream when input and output share a device.
     if (m.input == InputKind::device) {
-        StreamRequest rq = m.request;
-        if (!(m.want_output && rq.output_device == rq.input_device)) rq.output_device = -1;
-        m.in_stream = system_->open(rq, *this);
-        m.in_info = m.in_stream->info();
-        m.rate = m.in_info.sample_rate_hz;
-        m.request.sample_rate_hz = m.rate;  // reopen at the same rate
-        if (m.want_output && m.request.output_device == m.request.input_device) m.out_info = m.in_info;
+        m.rate = m.io.open_input(*system_, *this).sample_rate_hz;
     } else if (m.input == InputKind::demo) {
         m.rate = m.demo->config().sample_rate_hz;
     } else if (m.input == InputKind::file) {
@@ -241,49 +185,24 @@ void Engine::start(bool analysis_thread) {
         m.room = std::make_unique<SimulatedRoom>(rc);
         m.room_drone->set(drone_);
     }
-    if (m.want_output) {
-        if (!m.in_stream || m.request.output_device != m.request.input_device) {
-            StreamRequest rq = m.request;
-            rq.input_device = -1;
-            rq.sample_rate_hz = m.input == InputKind::device ? m.rate : cfg_.sample_rate_hz;
-            m.out_stream = system_->open(rq, *this);
-            m.out_info = m.out_stream->info();
-        }
-        m.out_drone = std::make_unique<Drone>(m.out_info.sample_rate_hz);
-        m.out_drone->set(drone_);
-    }
+    m.io.open_output(system_, *this, m.input == InputKind::device ? m.rate : cfg_.sample_rate_hz, drone_);
     m.drone_for_analysis.publish(drone_);
     m.applied_root = 0.0;
     m.started = true;
-    m.seen_at = Clock::now();
-    m.running.store(true);
+    m.io.seen_at = Clock::now();
+    m.io.running.store(true);
     if (analysis_thread) {
-        m.analysis = std::thread([this] {
-            while (impl_->running.load(std::memory_order_acquire)) {
-                if (analyse_available() == 0) std::this_thread::sleep_for(std::chrono::microseconds(1000));
-            }
-        });
-    }
-    if (m.input == InputKind::demo || m.input == InputKind::file) {
-        if (analysis_thread) {
-            m.producer = std::thread([this] {
+        m.io.start_analysis([this] { return analyse_available(); });
+        if (m.input == InputKind::demo || m.input == InputKind::file) {
+            const std::size_t block = std::min(cfg_.block_len_frames, kScratch);
+            m.io.start_producer(block, m.rate, [this, block]() -> std::size_t {
                 Impl& s = *impl_;
-                const std::size_t block = std::min(cfg_.block_len_frames, kScratch);
-                const auto period = std::chrono::duration<double>(static_cast<double>(block) / s.rate);
-                auto next = Clock::now();
                 std::span<float> buf(s.prod_scratch.data(), block);
-                while (s.running.load(std::memory_order_acquire)) {
-                    std::size_t n = block;
-                    if (s.demo) {
-                        s.demo->render(buf);
-                    } else {
-                        n = s.read_file_block(buf);
-                        if (n == 0) break;
-                    }
-                    capture(buf.data(), n, 1);
-                    next += std::chrono::duration_cast<Clock::duration>(period * (static_cast<double>(n) / static_cast<double>(block)));
-                    std::this_thread::sleep_until(next);
-                }
+                std::size_t n = block;
+                if (s.demo) s.demo->render(buf);
+                else n = s.read_file_block(buf);
+                if (n > 0) capture(buf.data(), n, 1);
+                return n;
             });
         }
     }
@@ -291,23 +210,17 @@ void Engine::start(bool analysis_thread) {
 
 void Engine::stop() {
     Impl& m = *impl_;
-    m.running.store(false);
-    if (m.producer.joinable()) m.producer.join();
-    if (m.analysis.joinable()) m.analysis.join();
-    if (!m.in_stream && !m.out_stream) return;
+    m.io.stop_threads();
+    if (!m.io.in_stream && !m.io.out_stream) return;
     // A stream whose callbacks have stopped (its device gone, not yet noticed
     // by supervise) is retired rather than closed here, which could block.
-    const std::uint64_t before = m.callbacks.load();
+    const std::uint64_t before = m.io.callbacks.load();
     bool flowing = true;
     if (m.input == InputKind::device) {
         std::this_thread::sleep_for(std::chrono::milliseconds(60));
-        flowing = m.callbacks.load() != before;
+        flowing = m.io.callbacks.load() != before;
     }
-    for (auto* s : {&m.in_stream, &m.out_stream}) {
-        if (!*s) continue;
-        if (flowing && (*s)->alive()) s->reset();
-        else system_->retire(std::move(*s));
-    }
+    m.io.close_streams(system_, flowing);
 }
 
 // ---------------------------------------------------------------------------
@@ -316,7 +229,7 @@ void Engine::stop() {
 
 void Engine::capture(const float* in, std::size_t frames, int channels) noexcept {
     Impl& m = *impl_;
-    m.callbacks.fetch_add(1, std::memory_order_relaxed);
+    m.io.count_callback();
     if (!m.ring) return;
     const auto ch = static_cast<std::size_t>(std::max(1, channels));
     std::size_t done = 0;
@@ -339,28 +252,9 @@ void Engine::capture(const float* in, std::size_t frames, int channels) noexcept
     }
 }
 
-void Engine::playback(float* out, std::size_t frames, int channels) noexcept {
-    Impl& m = *impl_;
-    const auto ch = static_cast<std::size_t>(std::max(1, channels));
-    if (!m.out_drone) {
-        std::fill_n(out, frames * ch, 0.0f);
-        return;
-    }
-    std::size_t done = 0;
-    while (done < frames) {
-        const std::size_t n = std::min(frames - done, kScratch);
-        std::span<float> s(m.play_scratch.data(), n);
-        m.out_drone->render(s);
-        for (std::size_t i = 0; i < n; ++i)
-            for (std::size_t c = 0; c < ch; ++c) out[(done + i) * ch + c] = s[i];
-        done += n;
-    }
-}
+void Engine::playback(float* out, std::size_t frames, int channels) noexcept { impl_->io.play(out, frames, channels); }
 
-void Engine::xrun(bool input_overflow, bool output_underflow) noexcept {
-    if (input_overflow) impl_->dev_overflows.fetch_add(1, std::memory_order_relaxed);
-    if (output_underflow) impl_->dev_underflows.fetch_add(1, std::memory_order_relaxed);
-}
+void Engine::xrun(bool input_overflow, bool output_underflow) noexcept { impl_->io.count_xrun(input_overflow, output_underflow); }
 
 // ---------------------------------------------------------------------------
 // 4. Analysis
@@ -421,26 +315,20 @@ std::size_t Engine::analyse_available() noexcept {
                 m.canceller->set_voice(f.voiced(), static_cast<std::size_t>(std::max(0.0, now - onset * m.rate)));
                 if (m.maker->notes_started() != notes_before) m.canceller->new_note();
             }
-            const double lat = static_cast<double>(static_cast<std::int64_t>(m.ring->written()) - idx) / m.rate;
-            m.latency_s.store(lat, std::memory_order_relaxed);
-            if (lat > m.latency_max_s.load(std::memory_order_relaxed)) m.latency_max_s.store(lat, std::memory_order_relaxed);
             if (r.target_index >= 0) m.current_target_hz.store(r.root_hz * std::exp2(r.target_cents / 1200.0), std::memory_order_relaxed);
-            m.latest.publish(r);
-            m.history.publish(r);
-            m.stream.write(std::span<const pitch::Reading>(&r, 1));
-            m.readings.fetch_add(1, std::memory_order_release);
+            m.out.publish(r, static_cast<double>(static_cast<std::int64_t>(m.ring->written()) - idx) / m.rate);
         }
     }
-    if (total == 0 && m.producer_done.load(std::memory_order_acquire) && m.ring->available() == 0) m.finished.store(true);
+    if (total == 0 && m.io.producer_done.load(std::memory_order_acquire) && m.ring->available() == 0) m.finished.store(true);
     return total;
 }
 
-StreamInfo Engine::input_info() const { return impl_->in_info; }
-StreamInfo Engine::output_info() const { return impl_->out_info; }
+StreamInfo Engine::input_info() const { return impl_->io.in_info; }
+StreamInfo Engine::output_info() const { return impl_->io.out_info; }
 
-bool Engine::latest(pitch::Reading& out) { return impl_->latest.read(out); }
-std::size_t Engine::history(std::span<pitch::Reading> out) const { return impl_->history.read(out); }
-std::size_t Engine::take_readings(std::span<pitch::Reading> out) { return impl_->stream.read(out); }
+bool Engine::latest(pitch::Reading& out) { return impl_->out.latest.read(out); }
+std::size_t Engine::history(std::span<pitch::Reading> out) const { return impl_->out.history.read(out); }
+std::size_t Engine::take_readings(std::span<pitch::Reading> out) { return impl_->out.stream.read(out); }
 double Engine::stream_time_s() const { return impl_->rate > 0 ? static_cast<double>(impl_->analysed.load()) / impl_->rate : 0.0; }
 
 EngineStatus Engine::status() const {
@@ -452,18 +340,14 @@ EngineStatus Engine::status() const {
     st.analysed_samples = m.analysed.load();
     st.ring_overflow_samples = m.ring ? m.ring->overflow_samples() : 0;
     st.ring_overflow_events = m.ring ? m.ring->overflow_events() : 0;
-    st.device_input_overflows = m.dev_overflows.load();
-    st.device_output_underflows = m.dev_underflows.load();
+    m.io.report(st);
     st.tracker_dropped_frames = m.tracker ? m.tracker->dropped_frames() : 0;
-    st.readings = m.readings.load();
-    st.readings_dropped = m.stream.overflow_samples();
-    st.latency_s = m.latency_s.load();
-    st.latency_max_s = m.latency_max_s.load();
+    m.out.report(st);
     st.tracker_delay_s = m.tracker ? m.tracker->delay_s() : 0.0;
-    st.device_input_latency_s = m.in_info.input_latency_s;
-    st.device_output_latency_s = m.out_info.output_latency_s;
-    st.input_ok = m.started && !m.input_lost && !m.finished.load();
-    st.output_ok = !m.want_output || (m.started && !m.output_lost);
+    st.device_input_latency_s = m.io.in_info.input_latency_s;
+    st.device_output_latency_s = m.io.out_info.output_latency_s;
+    st.input_ok = m.started && !m.io.input_lost && !m.finished.load();
+    st.output_ok = !m.io.want_output || (m.started && !m.output_lost);
     st.finished = m.finished.load();
     st.drone_removal_active = m.removal_active;
     return st;
@@ -479,23 +363,14 @@ void Engine::run_fast(const std::function<void(const pitch::Reading&)>& on_readi
     start(false);
     std::span<float> buf(m.prod_scratch.data(), std::min(cfg_.block_len_frames, kScratch));
     pitch::Reading got[256];
-    std::size_t tail = static_cast<std::size_t>(0.2 * m.rate);  // silence that flushes the tracker
-    while (true) {
-        std::size_t n = m.read_file_block(buf);
-        if (m.producer_failed.load()) throw Error(m.producer_error);
-        if (n == 0) {
-            if (tail == 0) break;
-            n = std::min(tail, buf.size());
-            std::fill_n(buf.begin(), n, 0.0f);
-            tail -= n;
-        }
-        capture(buf.data(), n, 1);
-        analyse_available();
-        for (std::size_t k; (k = take_readings(got)) > 0;)
-            for (std::size_t i = 0; i < k; ++i)
-                if (max_s <= 0.0 || got[i].t_s <= max_s) on_reading(got[i]);
-        if (max_s > 0.0 && stream_time_s() >= max_s + 0.2) break;
-    }
+    m.io.run_fast<pitch::Reading>(
+        buf, 1, static_cast<std::size_t>(0.2 * m.rate), std::span<pitch::Reading>(got), max_s, on_reading,
+        [&m](std::span<float> b) { return m.read_file_block(b); },
+        [this](const float* data, std::size_t n) {
+            capture(data, n, 1);
+            analyse_available();
+        },
+        [this](std::span<pitch::Reading> g) { return take_readings(g); }, [this] { return stream_time_s(); });
     m.finished.store(true);
 }
 
@@ -509,7 +384,7 @@ void Engine::set_drone(const DroneSettings& s) {
     drone_ = s;
     m.root_hz.store(s.root_hz);
     if (!m.started) return;
-    if (m.out_drone) m.out_drone->set(s);
+    if (m.io.out_drone) m.io.out_drone->set(s);
     if (m.room_drone) m.room_drone->set(s);
     m.drone_for_analysis.publish(s);
 }
@@ -545,59 +420,53 @@ void Engine::sound_tone(double freq_hz, double dur_s) {
 
 void Engine::supervise() {
     Impl& m = *impl_;
-    if (m.producer_failed.exchange(false)) say(m.producer_error);
+    if (m.io.producer_failed.exchange(false)) say(m.io.producer_error);
     if (!m.started || m.input != InputKind::device) {
-        if (m.started && m.want_output && !m.output_lost && m.out_stream && !m.out_stream->alive()) {
+        if (m.started && m.io.want_output && !m.output_lost && m.io.out_stream && !m.io.out_stream->alive()) {
             m.output_lost = true;
-            say("output device '" + m.output_spec + "' stopped; the drone is silent");
+            say("output device '" + m.io.output_spec + "' stopped; the drone is silent");
         }
         return;
     }
     const auto now = Clock::now();
-    const std::uint64_t cb = m.callbacks.load();
-    if (cb != m.seen_callbacks) {
-        m.seen_callbacks = cb;
-        m.seen_at = now;
-    }
-    const bool stalled = std::chrono::duration<double>(now - m.seen_at).count() > cfg_.stall_s;
-    const bool dead = !m.in_stream || !m.in_stream->alive() || (m.out_stream && !m.out_stream->alive()) || stalled;
-    if (dead && !m.input_lost) {
-        m.input_lost = true;
-        m.output_lost = m.want_output;
-        say("input device '" + m.input_spec + "' stopped delivering audio; readings paused" +
-            std::string(m.want_output ? ", drone stopped" : "") + "; trying to reopen it every " +
+    const bool stalled = m.io.stalled(now, cfg_.stall_s);
+    const bool dead = !m.io.in_stream || !m.io.in_stream->alive() || (m.io.out_stream && !m.io.out_stream->alive()) || stalled;
+    if (dead && !m.io.input_lost) {
+        m.io.input_lost = true;
+        m.output_lost = m.io.want_output;
+        say("input device '" + m.io.input_spec + "' stopped delivering audio; readings paused" +
+            std::string(m.io.want_output ? ", drone stopped" : "") + "; trying to reopen it every " +
             pitch::format_trimmed(cfg_.reopen_every_s, 1) + " s");
-        if (m.in_stream) system_->retire(std::move(m.in_stream));  // closing a dead stream may never return
-        if (m.out_stream) system_->retire(std::move(m.out_stream));
+        m.io.retire_streams(*system_);
         m.last_try = Clock::now();
         return;
     }
-    if (!m.input_lost || std::chrono::duration<double>(now - m.last_try).count() < cfg_.reopen_every_s) return;
+    if (!m.io.input_lost || std::chrono::duration<double>(now - m.last_try).count() < cfg_.reopen_every_s) return;
     m.last_try = now;
     try {
         system_->rescan();
         const auto devs = system_->devices();
-        StreamRequest rq = m.request;
-        rq.input_device = choose_device(devs, m.input_spec, Direction::input);
-        if (m.want_output) rq.output_device = choose_device(devs, m.output_spec, Direction::output);
-        const bool duplex = m.want_output && m.request.output_device == m.request.input_device;
+        StreamRequest rq = m.io.request;
+        rq.input_device = choose_device(devs, m.io.input_spec, Direction::input);
+        if (m.io.want_output) rq.output_device = choose_device(devs, m.io.output_spec, Direction::output);
+        const bool duplex = m.io.duplex();
         StreamRequest in_rq = rq;
         if (!duplex) in_rq.output_device = -1;
         auto in = system_->open(in_rq, *this);
         std::unique_ptr<Stream> out;
-        if (m.want_output && !duplex) {
+        if (m.io.want_output && !duplex) {
             StreamRequest out_rq = rq;
             out_rq.input_device = -1;
             out = system_->open(out_rq, *this);
         }
-        m.request = rq;
-        m.request.output_device = m.want_output ? rq.output_device : -1;
-        m.in_stream = std::move(in);
-        m.out_stream = std::move(out);
-        m.input_lost = m.output_lost = false;
-        m.seen_at = now;
-        m.seen_callbacks = m.callbacks.load();
-        say("input device '" + m.input_spec + "' is back (" + pitch::format_trimmed(m.in_stream->info().sample_rate_hz, 0) + " Hz)");
+        m.io.request = rq;
+        m.io.request.output_device = m.io.want_output ? rq.output_device : -1;
+        m.io.in_stream = std::move(in);
+        m.io.out_stream = std::move(out);
+        m.io.input_lost = m.output_lost = false;
+        m.io.seen_at = now;
+        m.io.seen_callbacks = m.io.callbacks.load();
+        say("input device '" + m.io.input_spec + "' is back (" + pitch::format_trimmed(m.io.in_stream->info().sample_rate_hz, 0) + " Hz)");
     } catch (const Error&) {
         // Still gone; try again later.
     }

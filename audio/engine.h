@@ -22,6 +22,7 @@
 #include "audio/device.h"
 #include "audio/drone.h"
 #include "audio/drone_removal.h"
+#include "audio/live_io.h"
 #include "audio/ring.h"
 #include "audio/room.h"
 #include "audio/snapshot.h"
@@ -53,29 +54,15 @@ struct EngineConfig {
     double reopen_every_s = 1.0;          // retry period while a device is gone (default 1 s)
 };
 
-enum class InputKind { none, device, demo, file };
-
-struct EngineStatus {
-    InputKind input = InputKind::none;
-    double sample_rate_hz = 0.0;            // analysis rate
+// LiveStatus (audio/live_io.h) holds the fields the ensemble engine reports too.
+struct EngineStatus : LiveStatus {
     std::uint64_t captured_samples = 0;     // into the ring
     std::uint64_t analysed_samples = 0;     // out of the ring
     std::uint64_t ring_overflow_samples = 0;// dropped because the ring was full
-    std::uint64_t ring_overflow_events = 0;
-    std::uint64_t device_input_overflows = 0;   // reported by the host
-    std::uint64_t device_output_underflows = 0; // reported by the host
-    std::uint64_t tracker_dropped_frames = 0;
-    std::uint64_t readings = 0;             // published
-    std::uint64_t readings_dropped = 0;     // not taken from the stream in time
-    double latency_s = 0.0;                 // last input-to-reading latency (sound at t captured -> its reading published)
-    double latency_max_s = 0.0;             // largest since start
-    double tracker_delay_s = 0.0;           // part of it the tracker needs by design
-    double device_input_latency_s = 0.0;    // host-reported, not included above
+    double tracker_delay_s = 0.0;           // part of the latency the tracker needs by design
+    double device_input_latency_s = 0.0;    // host-reported, not included in the latency
     double device_output_latency_s = 0.0;
-    bool input_ok = false;                  // input delivering audio
     bool output_ok = false;                 // output stream running (or none asked for)
-    bool finished = false;                  // the file has been played and analysed to its end
-    bool drone_removal_active = false;
 };
 
 class Engine final : private StreamCallbacks {
@@ -148,7 +135,5 @@ private:
     double rate_hz_ = 0.0;
     std::function<void(const std::string&)> message_;
 };
-
-std::string_view input_kind_name(InputKind k);
 
 }  // namespace beatless::audio

@@ -18,7 +18,6 @@
 #include <array>
 #include <chrono>
 #include <cmath>
-#include <thread>
 
 namespace beatless::audio {
 
@@ -47,17 +46,8 @@ struct EnsembleEngine::Impl {
     std::array<int, kMaxPlayers> channel_of{};   // fixed from start()
     int in_channels = 0;                         // what the input delivers
 
-    // Devices.
-    StreamRequest request;
-    std::string input_spec, output_spec;
-    std::unique_ptr<Stream> in_stream, out_stream;
-    bool want_output = false;
-    bool input_lost = false;
-    std::atomic<std::uint64_t> callbacks{0};
-    std::uint64_t seen_callbacks = 0;
-    Clock::time_point seen_at{};
-    std::atomic<std::uint64_t> dev_overflows{0}, dev_underflows{0};
-    StreamInfo in_info, out_info;
+    // Devices, streams, callback counters, the drone's output, threads.
+    LiveIo io;
 
     // Sources other than a device.
     std::unique_ptr<DemoEnsemble> demo;
@@ -66,18 +56,13 @@ struct EnsembleEngine::Impl {
     std::unique_ptr<SoundReader> file;
     std::string file_path;
     bool input_has_drone = false;
-    std::thread producer;
-    std::atomic<bool> producer_done{false};
-    std::atomic<bool> producer_failed{false};
-    std::string producer_error;
 
     // Rings and analysis, per player.
     std::vector<std::unique_ptr<SpscRing<float>>> rings;
     std::vector<std::unique_ptr<pitch::YinTracker>> trackers;
     std::vector<std::unique_ptr<DroneCanceller>> cancellers;
-    std::vector<float> cap_scratch, room_scratch, play_scratch, prod_scratch, work;  // work: [player][kChunk]
+    std::vector<float> cap_scratch, room_scratch, prod_scratch, work;  // work: [player][kChunk]
     std::array<pitch::PitchFrame, kMaxPlayers> frames{};
-    std::unique_ptr<Drone> out_drone;
     Latest<DroneSettings> drone_for_analysis;
     DronePartial partials[kMaxDronePartials];
     bool removal_active = false;
@@ -85,17 +70,11 @@ struct EnsembleEngine::Impl {
     std::unique_ptr<pitch::EnsembleAnalyser> analyser;
     std::atomic<pitch::EnsembleAnalyser*> pending{nullptr};
     std::atomic<pitch::EnsembleAnalyser*> retired{nullptr};
-    std::thread analysis;
-    std::atomic<bool> running{false};
     bool started = false;
 
     // Publication.
-    Latest<pitch::EnsembleReading> latest;
-    History<pitch::EnsembleReading, kHistoryLen> history;
-    SpscRing<pitch::EnsembleReading> stream{kStreamLen};
+    ReadingOutlet<pitch::EnsembleReading, kHistoryLen> out{kStreamLen};
     std::atomic<std::uint64_t> analysed{0};
-    std::atomic<std::uint64_t> readings{0};
-    std::atomic<double> latency_s{0.0}, latency_max_s{0.0};
     std::atomic<bool> finished{false};
 
     // What supervise() last said, per player.
@@ -104,18 +83,7 @@ struct EnsembleEngine::Impl {
 
     // Next block of the file (interleaved frames), 0 at its end or on an error.
     std::size_t read_file_block(std::span<float> buf) {
-        std::size_t n = 0;
-        try {
-            const auto b = file->read_frames();
-            n = std::min(b.size(), buf.size());
-            std::copy_n(b.begin(), n, buf.begin());
-        } catch (const Error& e) {
-            producer_error = e.what();
-            producer_failed.store(true);
-            n = 0;
-        }
-        if (n == 0) producer_done.store(true);
-        return n / static_cast<std::size_t>(in_channels);
+        return io.read_block(buf, [this] { return file->read_frames(); }) / static_cast<std::size_t>(in_channels);
     }
 };
 
@@ -170,7 +138,7 @@ void EnsembleEngine::open_input_device(std::string_view spec) {
     const int need = channels_needed();
     for (const auto& d : devs) {
         if (d.index != in) continue;
-        m.input_spec = d.name;
+        m.io.input_spec = d.name;
         if (d.max_input_channels < need) {
             const std::size_t n = setup_.players.size();
             std::string chans;
@@ -180,24 +148,14 @@ void EnsembleEngine::open_input_device(std::string_view spec) {
                         " on channels " + chans + " need " + std::to_string(need));
         }
     }
-    m.request.input_device = in;
-    m.request.input_channels = need;
-    m.request.sample_rate_hz = cfg_.sample_rate_hz;
-    m.request.block_len_frames = cfg_.block_len_frames;
+    m.io.request.input_device = in;
+    m.io.request.input_channels = need;
+    m.io.request.sample_rate_hz = cfg_.sample_rate_hz;
+    m.io.request.block_len_frames = cfg_.block_len_frames;
     m.input = InputKind::device;
 }
 
-void EnsembleEngine::open_output_device(std::string_view spec) {
-    if (!system_) throw Error("no audio system for an output device");
-    Impl& m = *impl_;
-    const auto devs = system_->devices();
-    const int out = choose_device(devs, spec, Direction::output);
-    m.request.output_device = out;
-    m.request.block_len_frames = cfg_.block_len_frames;
-    for (const auto& d : devs)
-        if (d.index == out) m.output_spec = d.name;
-    m.want_output = true;
-}
+void EnsembleEngine::open_output_device(std::string_view spec) { impl_->io.choose_output(system_, spec, cfg_.block_len_frames); }
 
 void EnsembleEngine::use_demo(DemoEnsembleConfig demo) {
     if (!have_setup_) throw Error("ensemble: set the players before choosing the demo");
@@ -246,7 +204,7 @@ void EnsembleEngine::set_input_has_drone(bool on) { impl_->input_has_drone = on;
 std::string EnsembleEngine::input_name() const {
     const Impl& m = *impl_;
     switch (m.input) {
-        case InputKind::device: return "'" + m.input_spec + "'" + (m.in_info.host_api.empty() ? "" : " (" + m.in_info.host_api + ")");
+        case InputKind::device: return "'" + m.io.input_spec + "'" + (m.io.in_info.host_api.empty() ? "" : " (" + m.io.in_info.host_api + ")");
         case InputKind::demo: return "the demo ensemble";
         case InputKind::file: return "'" + m.file_path + "'";
         case InputKind::none: break;
@@ -259,19 +217,14 @@ void EnsembleEngine::start(bool analysis_thread) {
     if (m.started) return;
     if (!m.analyser) throw Error("ensemble: no chord and players set");
     if (m.input == InputKind::device) {
-        StreamRequest rq = m.request;
-        if (!(m.want_output && rq.output_device == rq.input_device)) rq.output_device = -1;
-        m.in_stream = system_->open(rq, *this);
-        m.in_info = m.in_stream->info();
-        m.rate = m.in_info.sample_rate_hz;
-        m.in_channels = m.in_info.input_channels;
-        m.request.sample_rate_hz = m.rate;
+        const StreamInfo& info = m.io.open_input(*system_, *this);
+        m.rate = info.sample_rate_hz;
+        m.in_channels = info.input_channels;
         if (m.in_channels < channels_needed()) {
-            m.in_stream.reset();
-            throw Error("input device '" + m.input_spec + "' opened with " + std::to_string(m.in_channels) + " channels; the players need " +
+            m.io.in_stream.reset();
+            throw Error("input device '" + m.io.input_spec + "' opened with " + std::to_string(m.in_channels) + " channels; the players need " +
                         std::to_string(channels_needed()));
         }
-        if (m.want_output && m.request.output_device == m.request.input_device) m.out_info = m.in_info;
     } else if (m.input == InputKind::demo) {
         m.rate = m.demo->config().sample_rate_hz;
     } else if (m.input == InputKind::file) {
@@ -301,7 +254,7 @@ void EnsembleEngine::start(bool analysis_thread) {
     }
     m.cap_scratch.assign(kScratch, 0.0f);
     m.room_scratch.assign(kScratch, 0.0f);
-    m.play_scratch.assign(kScratch, 0.0f);
+    m.io.play_scratch.assign(kScratch, 0.0f);
     m.prod_scratch.assign(kScratch * static_cast<std::size_t>(std::max(1, m.in_channels)), 0.0f);
     m.work.assign(kChunk * m.players, 0.0f);
     if (m.input == InputKind::demo) {
@@ -316,46 +269,23 @@ void EnsembleEngine::start(bool analysis_thread) {
             m.rooms.push_back(std::make_unique<SimulatedRoom>(rc));
         }
     }
-    if (m.want_output) {
-        if (!m.in_stream || m.request.output_device != m.request.input_device) {
-            StreamRequest rq = m.request;
-            rq.input_device = -1;
-            rq.sample_rate_hz = m.input == InputKind::device ? m.rate : cfg_.sample_rate_hz;
-            m.out_stream = system_->open(rq, *this);
-            m.out_info = m.out_stream->info();
-        }
-        m.out_drone = std::make_unique<Drone>(m.out_info.sample_rate_hz);
-        m.out_drone->set(drone_);
-    }
+    m.io.open_output(system_, *this, m.input == InputKind::device ? m.rate : cfg_.sample_rate_hz, drone_);
     m.drone_for_analysis.publish(drone_);
     m.started = true;
-    m.seen_at = Clock::now();
-    m.running.store(true);
+    m.io.seen_at = Clock::now();
+    m.io.running.store(true);
     if (analysis_thread) {
-        m.analysis = std::thread([this] {
-            while (impl_->running.load(std::memory_order_acquire))
-                if (analyse_available() == 0) std::this_thread::sleep_for(std::chrono::microseconds(1000));
-        });
+        m.io.start_analysis([this] { return analyse_available(); });
         if (m.input == InputKind::demo || m.input == InputKind::file) {
-            m.producer = std::thread([this] {
+            const std::size_t block = std::min(cfg_.block_len_frames, kScratch);
+            m.io.start_producer(block, m.rate, [this, block]() -> std::size_t {
                 Impl& s = *impl_;
-                const std::size_t block = std::min(cfg_.block_len_frames, kScratch);
-                const auto ch = static_cast<std::size_t>(s.in_channels);
-                const auto period = std::chrono::duration<double>(static_cast<double>(block) / s.rate);
-                auto next = Clock::now();
-                while (s.running.load(std::memory_order_acquire)) {
-                    std::size_t n = block;
-                    std::span<float> buf(s.prod_scratch.data(), block * ch);
-                    if (s.demo) {
-                        s.demo->render(buf);
-                    } else {
-                        n = s.read_file_block(buf);
-                        if (n == 0) break;
-                    }
-                    capture(buf.data(), n, s.in_channels);
-                    next += std::chrono::duration_cast<Clock::duration>(period * (static_cast<double>(n) / static_cast<double>(block)));
-                    std::this_thread::sleep_until(next);
-                }
+                std::span<float> buf(s.prod_scratch.data(), block * static_cast<std::size_t>(s.in_channels));
+                std::size_t n = block;
+                if (s.demo) s.demo->render(buf);
+                else n = s.read_file_block(buf);
+                if (n > 0) capture(buf.data(), n, s.in_channels);
+                return n;
             });
         }
     }
@@ -363,15 +293,9 @@ void EnsembleEngine::start(bool analysis_thread) {
 
 void EnsembleEngine::stop() {
     Impl& m = *impl_;
-    m.running.store(false);
-    if (m.producer.joinable()) m.producer.join();
-    if (m.analysis.joinable()) m.analysis.join();
+    m.io.stop_threads();
     // A stream whose device has gone is retired rather than closed here (closing may block).
-    for (auto* s : {&m.in_stream, &m.out_stream}) {
-        if (!*s) continue;
-        if ((*s)->alive() && !m.input_lost) s->reset();
-        else system_->retire(std::move(*s));
-    }
+    m.io.close_streams(system_, !m.io.input_lost);
 }
 
 // ---------------------------------------------------------------------------
@@ -380,7 +304,7 @@ void EnsembleEngine::stop() {
 
 void EnsembleEngine::capture(const float* in, std::size_t frames, int channels) noexcept {
     Impl& m = *impl_;
-    m.callbacks.fetch_add(1, std::memory_order_relaxed);
+    m.io.count_callback();
     if (m.rings.empty()) return;
     const auto ch = static_cast<std::size_t>(std::max(1, channels));
     std::size_t done = 0;
@@ -403,28 +327,9 @@ void EnsembleEngine::capture(const float* in, std::size_t frames, int channels) 
     }
 }
 
-void EnsembleEngine::playback(float* out, std::size_t frames, int channels) noexcept {
-    Impl& m = *impl_;
-    const auto ch = static_cast<std::size_t>(std::max(1, channels));
-    if (!m.out_drone) {
-        std::fill_n(out, frames * ch, 0.0f);
-        return;
-    }
-    std::size_t done = 0;
-    while (done < frames) {
-        const std::size_t n = std::min(frames - done, kScratch);
-        std::span<float> s(m.play_scratch.data(), n);
-        m.out_drone->render(s);
-        for (std::size_t i = 0; i < n; ++i)
-            for (std::size_t c = 0; c < ch; ++c) out[(done + i) * ch + c] = s[i];
-        done += n;
-    }
-}
+void EnsembleEngine::playback(float* out, std::size_t frames, int channels) noexcept { impl_->io.play(out, frames, channels); }
 
-void EnsembleEngine::xrun(bool input_overflow, bool output_underflow) noexcept {
-    if (input_overflow) impl_->dev_overflows.fetch_add(1, std::memory_order_relaxed);
-    if (output_underflow) impl_->dev_underflows.fetch_add(1, std::memory_order_relaxed);
-}
+void EnsembleEngine::xrun(bool input_overflow, bool output_underflow) noexcept { impl_->io.count_xrun(input_overflow, output_underflow); }
 
 // ---------------------------------------------------------------------------
 // 4. Analysis
@@ -484,23 +389,17 @@ std::size_t EnsembleEngine::analyse_available() noexcept {
             const auto idx = static_cast<std::int64_t>(std::llround(m.frames[0].t_s * m.rate));
             const pitch::EnsembleReading& r =
                 m.analyser->process(std::span<const pitch::PitchFrame>(m.frames.data(), m.players), idx);
-            const double lat = static_cast<double>(static_cast<std::int64_t>(m.rings[0]->written()) - idx) / m.rate;
-            m.latency_s.store(lat, std::memory_order_relaxed);
-            if (lat > m.latency_max_s.load(std::memory_order_relaxed)) m.latency_max_s.store(lat, std::memory_order_relaxed);
-            m.latest.publish(r);
-            m.history.publish(r);
-            m.stream.write(std::span<const pitch::EnsembleReading>(&r, 1));
-            m.readings.fetch_add(1, std::memory_order_release);
+            m.out.publish(r, static_cast<double>(static_cast<std::int64_t>(m.rings[0]->written()) - idx) / m.rate);
         }
     }
-    if (total == 0 && m.producer_done.load(std::memory_order_acquire) && m.rings[0]->available() == 0) m.finished.store(true);
+    if (total == 0 && m.io.producer_done.load(std::memory_order_acquire) && m.rings[0]->available() == 0) m.finished.store(true);
     return total;
 }
 
-StreamInfo EnsembleEngine::input_info() const { return impl_->in_info; }
-bool EnsembleEngine::latest(pitch::EnsembleReading& out) { return impl_->latest.read(out); }
-std::size_t EnsembleEngine::history(std::span<pitch::EnsembleReading> out) const { return impl_->history.read(out); }
-std::size_t EnsembleEngine::take_readings(std::span<pitch::EnsembleReading> out) { return impl_->stream.read(out); }
+StreamInfo EnsembleEngine::input_info() const { return impl_->io.in_info; }
+bool EnsembleEngine::latest(pitch::EnsembleReading& out) { return impl_->out.latest.read(out); }
+std::size_t EnsembleEngine::history(std::span<pitch::EnsembleReading> out) const { return impl_->out.history.read(out); }
+std::size_t EnsembleEngine::take_readings(std::span<pitch::EnsembleReading> out) { return impl_->out.stream.read(out); }
 double EnsembleEngine::stream_time_s() const {
     return impl_->rate > 0 ? static_cast<double>(impl_->analysed.load()) / impl_->rate : 0.0;
 }
@@ -518,14 +417,10 @@ EnsembleStatus EnsembleEngine::status() const {
         st.ring_overflow_events = m.rings[0]->overflow_events();
     }
     st.analysed_frames = m.analysed.load();
-    st.device_input_overflows = m.dev_overflows.load();
-    st.device_output_underflows = m.dev_underflows.load();
+    m.io.report(st);
     for (const auto& t : m.trackers) st.tracker_dropped_frames += t->dropped_frames();
-    st.readings = m.readings.load();
-    st.readings_dropped = m.stream.overflow_samples();
-    st.latency_s = m.latency_s.load();
-    st.latency_max_s = m.latency_max_s.load();
-    st.input_ok = m.started && !m.input_lost && !m.finished.load();
+    m.out.report(st);
+    st.input_ok = m.started && !m.io.input_lost && !m.finished.load();
     st.finished = m.finished.load();
     st.drone_removal_active = m.removal_active;
     return st;
@@ -543,29 +438,20 @@ void EnsembleEngine::run_fast(const std::function<void(const pitch::EnsembleRead
     const auto ch = static_cast<std::size_t>(m.in_channels);
     std::span<float> buf(m.prod_scratch.data(), block * ch);
     std::vector<pitch::EnsembleReading> got(64);
-    std::size_t tail = static_cast<std::size_t>(0.2 * m.rate);  // silence that flushes the trackers
-    while (true) {
-        std::size_t n = m.read_file_block(buf);
-        if (m.producer_failed.load()) throw Error(m.producer_error);
-        if (n == 0) {
-            if (tail == 0) break;
-            n = std::min(tail, block);
-            std::fill_n(buf.begin(), n * ch, 0.0f);
-            tail -= n;
-        }
-        capture(buf.data(), n, m.in_channels);
-        analyse_available();
-        for (std::size_t k; (k = take_readings(got)) > 0;)
-            for (std::size_t i = 0; i < k; ++i)
-                if (max_s <= 0.0 || got[i].t_s <= max_s) on_reading(got[i]);
-        if (max_s > 0.0 && stream_time_s() >= max_s + 0.2) break;
-    }
+    m.io.run_fast<pitch::EnsembleReading>(
+        buf, ch, static_cast<std::size_t>(0.2 * m.rate), std::span<pitch::EnsembleReading>(got), max_s, on_reading,
+        [&m](std::span<float> b) { return m.read_file_block(b); },
+        [this, &m](const float* data, std::size_t n) {
+            capture(data, n, m.in_channels);
+            analyse_available();
+        },
+        [this](std::span<pitch::EnsembleReading> g) { return take_readings(g); }, [this] { return stream_time_s(); });
     m.finished.store(true);
 }
 
 void EnsembleEngine::run_demo_frames(std::size_t frames) noexcept {
     Impl& m = *impl_;
-    if (!m.demo || !m.started || m.analysis.joinable()) return;
+    if (!m.demo || !m.started || m.io.analysis.joinable()) return;
     const std::size_t block = std::min(cfg_.block_len_frames, kScratch);
     const auto ch = static_cast<std::size_t>(m.in_channels);
     while (frames > 0) {
@@ -587,7 +473,7 @@ void EnsembleEngine::set_drone(const DroneSettings& s) {
     Impl& m = *impl_;
     drone_ = s;
     if (!m.started) return;
-    if (m.out_drone) m.out_drone->set(s);
+    if (m.io.out_drone) m.io.out_drone->set(s);
     if (m.room_drone) m.room_drone->set(s);
     m.drone_for_analysis.publish(s);
 }
@@ -595,29 +481,22 @@ void EnsembleEngine::set_drone(const DroneSettings& s) {
 void EnsembleEngine::supervise() {
     Impl& m = *impl_;
     delete m.retired.exchange(nullptr);
-    if (m.producer_failed.exchange(false)) say(m.producer_error);
+    if (m.io.producer_failed.exchange(false)) say(m.io.producer_error);
     if (!m.started) return;
     // The device: callbacks must keep coming.
-    if (m.input == InputKind::device && !m.input_lost) {
-        const auto now = Clock::now();
-        const std::uint64_t cb = m.callbacks.load();
-        if (cb != m.seen_callbacks) {
-            m.seen_callbacks = cb;
-            m.seen_at = now;
-        }
-        const bool stalled = std::chrono::duration<double>(now - m.seen_at).count() > cfg_.stall_s;
-        if (stalled || !m.in_stream || !m.in_stream->alive()) {
-            m.input_lost = true;
-            say("input device '" + m.input_spec + "' stopped delivering audio; ensemble readings paused (choose the input again to retry)");
-            if (m.in_stream) system_->retire(std::move(m.in_stream));
-            if (m.out_stream) system_->retire(std::move(m.out_stream));
+    if (m.input == InputKind::device && !m.io.input_lost) {
+        const bool stalled = m.io.stalled(Clock::now(), cfg_.stall_s);
+        if (stalled || !m.io.in_stream || !m.io.in_stream->alive()) {
+            m.io.input_lost = true;
+            say("input device '" + m.io.input_spec + "' stopped delivering audio; ensemble readings paused (choose the input again to retry)");
+            m.io.retire_streams(*system_);
         }
     }
     // The channels: one line whenever a player's channel becomes silent,
     // carries another's voice, or recovers.
     pitch::EnsembleReading r;
-    if (m.history.count() == 0) return;
-    const std::size_t got = m.history.read(std::span<pitch::EnsembleReading>(&r, 1));
+    if (m.out.history.count() == 0) return;
+    const std::size_t got = m.out.history.read(std::span<pitch::EnsembleReading>(&r, 1));
     if (got == 0) return;
     for (std::size_t i = 0; i < setup_.players.size() && i < kMaxPlayers; ++i) {
         const pitch::PlayerReading& p = r.p[i];

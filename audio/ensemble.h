@@ -29,7 +29,7 @@
 #include "audio/device.h"
 #include "audio/drone.h"
 #include "audio/drone_removal.h"
-#include "audio/engine.h"
+#include "audio/live_io.h"
 #include "audio/room.h"
 #include "pitch/ensemble.h"
 
@@ -59,25 +59,13 @@ struct EnsembleSetup {
     pitch::EnsembleConfig analysis;       // root, A4, thresholds (hop_s is the engine's)
 };
 
-struct EnsembleStatus {
-    InputKind input = InputKind::none;
-    double sample_rate_hz = 0.0;
+// LiveStatus (audio/live_io.h) holds the fields the single-input engine reports too.
+struct EnsembleStatus : LiveStatus {
     int channels = 0;                         // channels delivered by the input
     int players = 0;
     std::uint64_t captured_frames = 0;        // into the rings
     std::uint64_t analysed_frames = 0;
     std::uint64_t ring_overflow_frames = 0;   // dropped because the rings were full
-    std::uint64_t ring_overflow_events = 0;
-    std::uint64_t device_input_overflows = 0;
-    std::uint64_t device_output_underflows = 0;
-    std::uint64_t tracker_dropped_frames = 0;
-    std::uint64_t readings = 0;
-    std::uint64_t readings_dropped = 0;       // not taken from the stream in time
-    double latency_s = 0.0;                   // sound at t captured -> its reading published
-    double latency_max_s = 0.0;
-    bool input_ok = false;
-    bool finished = false;                    // a file played and analysed to its end
-    bool drone_removal_active = false;
 };
 
 class EnsembleEngine final : private StreamCallbacks {
