@@ -212,9 +212,12 @@ std::vector<HistoryLine> of_kind(const std::vector<HistoryLine>& lines, AttemptK
 std::string render_history_text(const HistorySummary& s) {
     std::string out = "Practice log " + s.log_path + ": " + std::to_string(s.attempts) +
                       (s.attempts == 1 ? " attempt" : " attempts") + (s.since.empty() ? "" : " since " + s.since) + "\n";
-    if (s.simulated_left_out > 0)
-        out += "(" + std::to_string(s.simulated_left_out) + (s.simulated_left_out == 1 ? " attempt" : " attempts") +
-               " by the demo performer or the simulated listener left out; --with-demo shows them)\n";
+    if (s.simulated_left_out > 0) {
+        out += '(';
+        out += std::to_string(s.simulated_left_out);
+        out += s.simulated_left_out == 1 ? " attempt" : " attempts";
+        out += " by the demo performer or the simulated listener left out; --with-demo shows them)\n";
+    }
     if (s.attempts == 0) return out;
     const std::string by(period_name(s.by));
     const std::string head = s.by == Period::week ? "week of" : by;
