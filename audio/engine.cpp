@@ -443,33 +443,9 @@ void Engine::supervise() {
     }
     if (!m.io.input_lost || std::chrono::duration<double>(now - m.last_try).count() < cfg_.reopen_every_s) return;
     m.last_try = now;
-    try {
-        system_->rescan();
-        const auto devs = system_->devices();
-        StreamRequest rq = m.io.request;
-        rq.input_device = choose_device(devs, m.io.input_spec, Direction::input);
-        if (m.io.want_output) rq.output_device = choose_device(devs, m.io.output_spec, Direction::output);
-        const bool duplex = m.io.duplex();
-        StreamRequest in_rq = rq;
-        if (!duplex) in_rq.output_device = -1;
-        auto in = system_->open(in_rq, *this);
-        std::unique_ptr<Stream> out;
-        if (m.io.want_output && !duplex) {
-            StreamRequest out_rq = rq;
-            out_rq.input_device = -1;
-            out = system_->open(out_rq, *this);
-        }
-        m.io.request = rq;
-        m.io.request.output_device = m.io.want_output ? rq.output_device : -1;
-        m.io.in_stream = std::move(in);
-        m.io.out_stream = std::move(out);
-        m.io.input_lost = m.output_lost = false;
-        m.io.seen_at = now;
-        m.io.seen_callbacks = m.io.callbacks.load();
-        say("input device '" + m.io.input_spec + "' is back (" + pitch::format_trimmed(m.io.in_stream->info().sample_rate_hz, 0) + " Hz)");
-    } catch (const Error&) {
-        // Still gone; try again later.
-    }
+    if (!m.io.try_reopen(*system_, *this, now)) return;  // still gone; try again later
+    m.output_lost = false;
+    say("input device '" + m.io.input_spec + "' is back (" + pitch::format_trimmed(m.io.in_stream->info().sample_rate_hz, 0) + " Hz)");
 }
 
 }  // namespace beatless::audio

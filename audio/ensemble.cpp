@@ -48,6 +48,7 @@ struct EnsembleEngine::Impl {
 
     // Devices, streams, callback counters, the drone's output, threads.
     LiveIo io;
+    Clock::time_point last_try{};                // the last attempt to reopen a lost device
 
     // Sources other than a device.
     std::unique_ptr<DemoEnsemble> demo;
@@ -483,13 +484,24 @@ void EnsembleEngine::supervise() {
     delete m.retired.exchange(nullptr);
     if (m.io.producer_failed.exchange(false)) say(m.io.producer_error);
     if (!m.started) return;
-    // The device: callbacks must keep coming.
-    if (m.input == InputKind::device && !m.io.input_lost) {
-        const bool stalled = m.io.stalled(Clock::now(), cfg_.stall_s);
-        if (stalled || !m.io.in_stream || !m.io.in_stream->alive()) {
-            m.io.input_lost = true;
-            say("input device '" + m.io.input_spec + "' stopped delivering audio; ensemble readings paused (choose the input again to retry)");
-            m.io.retire_streams(*system_);
+    // The device: callbacks must keep coming; a lost device is looked for
+    // again every reopen_every_s, by name, with the same channels and rate.
+    if (m.input == InputKind::device) {
+        const auto now = Clock::now();
+        if (!m.io.input_lost) {
+            const bool stalled = m.io.stalled(now, cfg_.stall_s);
+            if (stalled || !m.io.in_stream || !m.io.in_stream->alive() || (m.io.out_stream && !m.io.out_stream->alive())) {
+                m.io.input_lost = true;
+                say("input device '" + m.io.input_spec + "' stopped delivering audio; ensemble readings paused; trying to reopen it every " +
+                    pitch::format_trimmed(cfg_.reopen_every_s, 1) + " s");
+                m.io.retire_streams(*system_);
+                m.last_try = now;
+            }
+        } else if (std::chrono::duration<double>(now - m.last_try).count() >= cfg_.reopen_every_s) {
+            m.last_try = now;
+            if (m.io.try_reopen(*system_, *this, now))
+                say("input device '" + m.io.input_spec + "' is back (" + pitch::format_trimmed(m.io.in_stream->info().sample_rate_hz, 0) +
+                    " Hz)");
         }
     }
     // The channels: one line whenever a player's channel becomes silent,

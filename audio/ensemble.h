@@ -51,6 +51,7 @@ struct EnsembleEngineConfig {
     bool drone_removal = true;            // remove the drone's partials per channel (default on)
     CancellerConfig canceller;            // drone removal settings (rate filled in)
     double stall_s = 1.0;                 // no callbacks for this long: the device is gone (default 1 s)
+    double reopen_every_s = 1.0;          // retry period while the device is gone (default 1 s)
 };
 
 struct EnsembleSetup {

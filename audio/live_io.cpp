@@ -49,6 +49,36 @@ void LiveIo::open_output(AudioSystem* system, StreamCallbacks& cb, double sample
     out_drone->set(drone);
 }
 
+bool LiveIo::try_reopen(AudioSystem& system, StreamCallbacks& cb, Clock::time_point now) {
+    try {
+        system.rescan();
+        const auto devs = system.devices();
+        StreamRequest rq = request;
+        rq.input_device = choose_device(devs, input_spec, Direction::input);
+        if (want_output) rq.output_device = choose_device(devs, output_spec, Direction::output);
+        const bool as_duplex = want_output && rq.output_device == rq.input_device;
+        StreamRequest in_rq = rq;
+        if (!as_duplex) in_rq.output_device = -1;
+        auto in = system.open(in_rq, cb);
+        std::unique_ptr<Stream> out;
+        if (want_output && !as_duplex) {
+            StreamRequest out_rq = rq;
+            out_rq.input_device = -1;
+            out = system.open(out_rq, cb);
+        }
+        request = rq;
+        request.output_device = want_output ? rq.output_device : -1;
+        in_stream = std::move(in);
+        out_stream = std::move(out);
+        input_lost = false;
+        seen_at = now;
+        seen_callbacks = callbacks.load();
+        return true;
+    } catch (const Error&) {
+        return false;  // still gone; the caller tries again later
+    }
+}
+
 void LiveIo::close_streams(AudioSystem* system, bool usable) {
     for (auto* s : {&in_stream, &out_stream}) {
         if (!*s) continue;

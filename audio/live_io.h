@@ -137,6 +137,11 @@ struct LiveIo {
     // gone) is retired instead, as closing it may block.
     void close_streams(AudioSystem* system, bool usable);
     void retire_streams(AudioSystem& system);
+    // After the device was lost (and its streams retired): rescans, finds
+    // the devices again by name and opens the streams as before. True when
+    // they are open again (input_lost cleared, the watchdog restarted);
+    // false, with nothing changed, while the device is still gone.
+    bool try_reopen(AudioSystem& system, StreamCallbacks& callbacks, Clock::time_point now);
 
     // --- Callbacks -------------------------------------------------------------
     // Thread: audio callback. Allocates: no. Locks: no.

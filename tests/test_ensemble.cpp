@@ -216,6 +216,59 @@ TEST_CASE("the best-fit root against numpy's least squares, on the engine's own 
 // ---------------------------------------------------------------------------
 
 
+TEST_CASE("a multi-channel device that disappears: readings pause, one line says so, it is reopened and readings resume") {
+    const pitch::Chord chord = pitch::parse_chord("4:5:6:7");
+    const auto g = quartet();
+    test::GroupTake take;
+    test::render_group(take, chord, kRootHz, g);
+    audio::FakeAudioSystem sys({audio::fake_device(0, "Fake quad box", take.channels, 0, take.rate_hz)}, {take.rate_hz});
+    audio::EnsembleEngineConfig ec;
+    ec.sample_rate_hz = take.rate_hz;
+    ec.reopen_every_s = 0.0;  // retry at every supervise() in this test
+    ec.stall_s = 3600.0;      // only the stream's own state counts here
+    audio::EnsembleEngine eng(ec, &sys);
+    std::vector<std::string> msgs;
+    eng.on_message([&](const std::string& m) { msgs.push_back(m); });
+    eng.set_setup(setup_of(chord, g));
+    eng.open_input_device("quad");
+    eng.start(false);
+    const std::size_t block = 256, ch = static_cast<std::size_t>(take.channels), frames = take.interleaved.size() / ch;
+    std::vector<pitch::EnsembleReading> got(64);
+    auto play = [&](std::size_t from, std::size_t to) {
+        for (std::size_t f = from; f + block <= to; f += block) {
+            sys.drive(std::span<const float>(take.interleaved.data() + f * ch, block * ch), {}, take.channels, 2);
+            eng.analyse_available();
+            while (eng.take_readings(got) > 0) {
+            }
+        }
+    };
+    play(0, frames / 2);
+    eng.supervise();
+    const auto before = eng.status().readings;
+    CHECK(before > 50);
+    CHECK(eng.status().input_ok);
+    const std::size_t kept = msgs.size();  // (channel lines, if any, are not this test's)
+
+    sys.set_present(false);  // the interface's cable pulled
+    play(frames / 2, frames);
+    eng.supervise();
+    REQUIRE(msgs.size() == kept + 1);
+    CHECK(msgs.back() == "input device 'Fake quad box' stopped delivering audio; ensemble readings paused; trying to reopen it every 0 s");
+    CHECK_FALSE(eng.status().input_ok);
+    CHECK(eng.status().readings == before);  // nothing new while it is gone
+    eng.supervise();                         // still gone: no new line, no crash
+    CHECK(msgs.size() == kept + 1);
+
+    sys.set_present(true);  // plugged back in
+    eng.supervise();
+    REQUIRE(msgs.size() == kept + 2);
+    CHECK(msgs.back() == "input device 'Fake quad box' is back (48000 Hz)");
+    CHECK(sys.opens() == 2);
+    CHECK(eng.status().input_ok);
+    play(0, frames / 2);
+    CHECK(eng.status().readings > before + 50);
+}
+
 TEST_CASE("a device with fewer channels than players is refused in one line naming it and the counts") {
     const pitch::Chord chord = pitch::parse_chord("4:5:6:7");
     audio::FakeAudioSystem sys({audio::fake_device(0, "Fake stereo interface", 2, 2)});

@@ -102,6 +102,7 @@ private:
     void beat_row(ImDrawList* dl, const std::vector<float>& xs, float y0, float h, double dt_s);
     void chart(AppState& app, ImDrawList* dl, float x0, float y0, float w, float h);
     void editor(AppState& app, float x0, float y0, float w, float h);
+    void input_combo(AppState& app);
 
     EnsembleSession session_;
     std::array<BeatPulse, pitch::kMaxPlayers> pulses_;
@@ -109,6 +110,8 @@ private:
     char name_buf_[pitch::kMaxPlayers][40];
     bool bufs_from_settings_ = false;
     std::vector<ImVec2> trail_;   // the lane's trail, reused every frame
+    std::vector<audio::DeviceInfo> devices_;  // the input choices, listed again every few seconds
+    double devices_at_s_ = -1e9;
 };
 
 // ---------------------------------------------------------------------------
@@ -349,6 +352,41 @@ void EnsembleScreen::chart(AppState& app, ImDrawList* dl, float x0, float y0, fl
 // [editor]
 // ---------------------------------------------------------------------------
 
+// The multi-channel input: every device with inputs, with its channel count
+// (a group of four needs four); the demo ensemble stands in with --demo.
+void EnsembleScreen::input_combo(AppState& app) {
+    const float u = ui_unit();
+    ImGui::AlignTextToFramePadding();
+    ImGui::TextColored(v4(palette::kTextDim), "Input");
+    ImGui::SameLine();
+    if (app.options().demo || app.options().no_input) {
+        ImGui::TextUnformatted(session_.input_text().c_str());
+        return;
+    }
+    if (app.app_time_s() - devices_at_s_ > 5.0) {
+        devices_ = app.devices();
+        devices_at_s_ = app.app_time_s();
+    }
+    const EnsembleSettings& es = app.settings().ensemble;
+    const std::string shown = es.input_device.empty() ? "system default: " + session_.input_text() : es.input_device;
+    ImGui::SetNextItemWidth(std::round(14.0f * u));
+    if (ImGui::BeginCombo("##ensemble_input", shown.c_str())) {
+        auto choose = [&](const std::string& name) {
+            EnsembleSettings e = es;
+            e.input_device = name;
+            session_.apply(app, e);
+        };
+        if (ImGui::Selectable("system default", es.input_device.empty())) choose("");
+        for (const audio::DeviceInfo& d : devices_) {
+            if (d.max_input_channels <= 0) continue;
+            const std::string text = d.name + "  (" + d.host_api + ", " + std::to_string(d.max_input_channels) + " in)";
+            if (ImGui::Selectable(text.c_str(), d.name == es.input_device)) choose(d.name);
+        }
+        if (devices_.empty()) ImGui::TextColored(v4(palette::kTextDim), "no audio devices found");
+        ImGui::EndCombo();
+    }
+}
+
 void EnsembleScreen::editor(AppState& app, float x0, float y0, float w, float h) {
     const float u = ui_unit();
     ImGui::SetCursorScreenPos(ImVec2(x0, y0));
@@ -386,7 +424,7 @@ void EnsembleScreen::editor(AppState& app, float x0, float y0, float w, float h)
     }
     ImGui::SameLine();
     ImGui::TextColored(v4(palette::kTextDim), "root %s", app.settings().root.c_str());
-    ImGui::TextColored(v4(palette::kTextDim), "Input: %s", session_.input_text().c_str());
+    input_combo(app);
 
     // One row per player: name, voice, channel.
     const auto& ps = session_.players();
