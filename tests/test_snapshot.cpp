@@ -266,6 +266,12 @@ TEST_CASE("snapshot: the Drills screen shows a finished hold's result in words, 
                                     ui::palette::kPanel, 1.0f);
     const Box all = whole(img);
     CHECK(find_exact(img, words, all).size() == 1);
+    // Hold 1 ends at 10 s and the drill's 1.5 s rest follows (rest_s in
+    // hold-septimal-tritones.toml): at 10.8 s the next hold, 10/7, is shown.
+    const Image next = render_text("7/5 against 10/7  \xC2\xB7  hold 2 of 8 next", ui::FontFace::body, ui::palette::kTextDim, ui::palette::kPanel, 1.0f);
+    CHECK(find_exact(img, next, all).size() == 1);
+    const Image rest = render_text("rest \xC2\xB7 this one is next", ui::FontFace::body, ui::palette::kTextDim, ui::palette::kPanel, 1.0f);
+    CHECK(find_exact(img, rest, all).size() == 1);
     // The trace: the target line (the current-target yellow) runs across the
     // attempt's plot inside the tolerance band (the in-tune window's colour),
     // and the pitch (white) runs below it: flat.

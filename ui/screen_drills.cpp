@@ -336,8 +336,11 @@ void DrillsScreen::hold_now(AppState& app, ImDrawList* dl, float x0, float y0, f
     float y = y0 + std::round(0.5f * u);
     // The top line: where we are in the drill.
     char buf[160];
-    const std::size_t shown_index = std::min(r.hold_index(), r.hold_count() ? r.hold_count() - 1 : 0);
-    std::snprintf(buf, sizeof buf, "%s  \xC2\xB7  hold %zu of %zu", run_drill().title.c_str(), shown_index + 1, r.hold_count());
+    // In the rest before another hold, the next one is shown.
+    const bool rest_before_next = ph == DrillPhase::rest && r.hold_index() + 1 < r.hold_count();
+    const std::size_t shown_index = std::min(r.hold_index() + (rest_before_next ? 1 : 0), r.hold_count() ? r.hold_count() - 1 : 0);
+    std::snprintf(buf, sizeof buf, "%s  \xC2\xB7  hold %zu of %zu%s", run_drill().title.c_str(), shown_index + 1, r.hold_count(),
+                  rest_before_next ? " next" : "");
     draw_text(dl, FontFace::body, ImVec2(x0 + u, y), palette::kTextDim, buf);
     y += std::round(1.4f * u);
     const DrillTarget* t = r.current_target();
@@ -364,7 +367,9 @@ void DrillsScreen::hold_now(AppState& app, ImDrawList* dl, float x0, float y0, f
         draw_text(dl, FontFace::bold, ImVec2(x0 + u, y0 + h - std::round(1.8f * u)), palette::kText, "Press Enter to go again, or choose another drill.");
         return;
     }
-    // The target, large, with its name.
+    // The target, large, with its name; in the rest before another hold, the
+    // next one, so that it can be heard inwardly before the count-in.
+    if (rest_before_next) t = &r.planned_target(r.hold_index() + 1);
     const std::string ratio = t->target.interval.str();
     draw_text(dl, FontFace::large, ImVec2(x0 + u, y), palette::kText, ratio);
     const float nx = x0 + u + text_size(FontFace::large, ratio).x + std::round(0.9f * u);
@@ -372,16 +377,14 @@ void DrillsScreen::hold_now(AppState& app, ImDrawList* dl, float x0, float y0, f
     draw_text(dl, FontFace::medium, ImVec2(nx, y + std::round(0.08f * font_px(FontFace::large))), palette::kText,
               fit_text(FontFace::medium, t->target.name.empty() ? std::string("target") : t->target.name, x0 + w - u - count_w - nx));
     const char* what = "";
-    std::string rest_text;
     switch (ph) {
         case DrillPhase::ready: what = "listen to the drone"; break;
         case DrillPhase::announce: what = run_drill().sound_target ? "listen: the target sounds" : "next target"; break;
         case DrillPhase::count_in: what = "get ready, sing or play on zero"; break;
         case DrillPhase::hold: what = "hold it"; break;
         case DrillPhase::rest:
-            if (r.hold_index() + 1 < r.hold_count()) {
-                rest_text = "rest \xC2\xB7 next " + r.planned_target(r.hold_index() + 1).target.interval.str();
-                what = rest_text.c_str();
+            if (rest_before_next) {
+                what = "rest \xC2\xB7 this one is next";
             } else {
                 what = "rest \xC2\xB7 the last hold is done";
             }
