@@ -164,11 +164,14 @@ void Engine::start(bool analysis_thread) {
     // Live input favours a short span (a step settles within 40 ms); a file
     // favours the longer span's accuracy and range.
     const bool live = m.input != InputKind::file;
-    yc.span_s = cfg_.span_s > 0.0 ? cfg_.span_s : live ? 0.030 : 0.050;
-    yc.f_min_hz = cfg_.f_min_hz > 0.0 ? cfg_.f_min_hz : live ? 70.0 : 55.0;
-    m.span_s = yc.span_s;
+    yc.f_min_hz = cfg_.f_min_hz > 0.0 ? cfg_.f_min_hz : live ? kLiveLowestHz : 55.0;
     yc.f_max_hz = cfg_.f_max_hz;
     yc.max_block_len_samples = kChunk * 4;
+    // 30 ms live, 50 ms for a file, or the shortest span that holds two
+    // periods of a lower f_min (a cello's C string, a double bass: those
+    // readings settle later).
+    yc.span_s = cfg_.span_s > 0.0 ? cfg_.span_s : std::max(live ? 0.030 : 0.050, pitch::YinTracker::min_span_s(yc));
+    m.span_s = yc.span_s;
     m.tracker = std::make_unique<pitch::YinTracker>(yc);
     CancellerConfig cc = cfg_.canceller;
     cc.sample_rate_hz = m.rate;

@@ -39,12 +39,17 @@
 
 namespace beatless::audio {
 
+// The live tracker's lowest f0 by default (voices, violin, viola: the lowest
+// note of a bass voice, E2, is 82 Hz); lower needs a longer span.
+inline constexpr double kLiveLowestHz = 70.0;
+
 struct EngineConfig {
     double sample_rate_hz = 0.0;          // device rate to ask for (0 = negotiate; demo uses 48 000)
     std::size_t block_len_frames = 256;   // frames per callback asked for (default 256)
     double hop_s = 0.005;                 // tracker hop (default 5 ms)
-    double span_s = 0.0;                  // most audio one tracker frame depends on (0 = 30 ms live, 50 ms for a file)
-    double f_min_hz = 0.0;                // lowest f0 tracked (0 = 70 Hz live, 55 Hz for a file; two periods fit in span_s)
+    double span_s = 0.0;                  // most audio one tracker frame depends on (0 = 30 ms live, 50 ms for a file,
+                                          // or longer when f_min_hz needs it: YinTracker::min_span_s)
+    double f_min_hz = 0.0;                // lowest f0 tracked (0 = 70 Hz live, 55 Hz for a file)
     double f_max_hz = 1600.0;
     double ring_s = 2.0;                  // capture ring length (default 2 s)
     bool drone_removal = true;            // remove the drone's partials before tracking (default on)

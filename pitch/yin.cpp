@@ -129,6 +129,16 @@ struct YinTracker::Impl {
     struct Plan {
         std::size_t dec, block, per_hop, per_window, max_lag;
     };
+    // The shortest span_s that holds the coarse search's region (window and
+    // longest lag, at the full rate) and one and a half longest periods with
+    // the refiner's margins.
+    static double min_span_s(const YinConfig& c) {
+        const Plan p = plan(c);
+        const auto D = static_cast<Index>(p.dec);
+        const Index region = static_cast<Index>(p.block * p.per_window + p.max_lag) * D;
+        const Index longest = static_cast<Index>(std::ceil(c.sample_rate_hz / c.f_min_hz));
+        return static_cast<double>(std::max(region, 3 * longest / 2 + 2 * kFineMargin + 2)) / c.sample_rate_hz;
+    }
     static Plan plan(const YinConfig& c) {
         Plan p{};
         p.dec = choose_decimation(c);
@@ -166,7 +176,7 @@ struct YinTracker::Impl {
         const Index region = static_cast<Index>(window_dec + max_lag_dec) * D;
         const Index longest = static_cast<Index>(std::ceil(rate / cfg.f_min_hz));
         if (region > span || 3 * longest / 2 + 2 * kFineMargin + 2 > span) {
-            const double need = static_cast<double>(std::max(region, 3 * longest / 2 + 2 * kFineMargin + 2)) / rate;
+            const double need = min_span_s(cfg);
             bad("f_min_hz " + num(cfg.f_min_hz) + " needs span_s of at least " + num(std::ceil(need * 1e4) / 1e4) +
                 " (span_s is " + num(cfg.span_s) + ")");
         }
@@ -437,6 +447,12 @@ struct YinTracker::Impl {
 // ---------------------------------------------------------------------------
 
 YinTracker::YinTracker(const YinConfig& config) : impl_(std::make_unique<Impl>(config)) {}
+
+double YinTracker::min_span_s(const YinConfig& config) {
+    YinConfig c = config;
+    c.span_s = 0.5;  // any valid value: only the others are checked here
+    return Impl::min_span_s(Impl::validated(c));
+}
 YinTracker::~YinTracker() = default;
 YinTracker::YinTracker(YinTracker&&) noexcept = default;
 YinTracker& YinTracker::operator=(YinTracker&&) noexcept = default;

@@ -65,6 +65,10 @@ public:
     std::size_t dropped_frames() const noexcept;    // frames lost because pull() fell behind
     std::size_t decimation() const noexcept;        // factor of the coarse stage's rate reduction
 
+    // The shortest span_s these settings allow (span_s itself is not read):
+    // a little over two periods of f_min_hz. Throws Error on invalid settings.
+    static double min_span_s(const YinConfig& config);
+
 private:
     struct Impl;
     std::unique_ptr<Impl> impl_;

@@ -158,3 +158,43 @@ TEST_CASE("drone removal: the voice at 7/5, 10/7 and 11/8 with the drone 6 dB lo
         }
     }
 }
+
+TEST_CASE("low instruments: with the lowest note set below the default, the live path tracks a cello's and a double bass's range") {
+    // Cello C string region: B1 = 3/2 above E1 (61.7 Hz); double bass: 5/4
+    // above D1 (45.9 Hz). Both lie below the default floor of 70 Hz. Note
+    // frequencies: 12-TET from A4 = 440 Hz (ISO 16).
+    struct Case {
+        double root_hz, lowest_hz;
+        const char* ratio;
+        double dev_cents;
+    };
+    for (const Case c : {Case{41.2034, 55.0, "3/2", 2.0}, Case{36.7081, 38.0, "5/4", -3.0}}) {
+        CAPTURE(c.lowest_hz);
+        pitch::TargetSet set;
+        for (const char* r : {"1/1", "5/4", "4/3", "3/2", "2/1"}) set.targets.push_back({pitch::parse_interval(r), ""});
+        const Step st{0.3, 2.5, c.ratio, c.dev_cents};
+        auto run = [&](double lowest_hz) {
+            audio::EngineConfig ec;
+            ec.f_min_hz = lowest_hz;
+            test::LiveRig rig(48000.0, 256, ec);
+            rig.voice = voice_of({st}, c.root_hz, 48000.0, 2.7, 0.1);
+            pitch::ReadingConfig rc;
+            rc.root_hz = c.root_hz;
+            audio::DroneSettings d;  // no drone: the point is the tracker's range
+            d.on = false;
+            d.root_hz = c.root_hz;
+            rig.open(rc, set, d, audio::RoomConfig{});
+            rig.run();
+            return check_step(rig.readings, st, c.root_hz, 48000.0, set, 1.0);
+        };
+        const StepCheck low = run(c.lowest_hz);
+        REQUIRE(low.readings > 100);
+        CHECK(low.targets_right);
+        CHECK(low.worst_dev_err <= 0.5);
+        // Settling takes longer with the longer span, but stays well under a tenth of a second.
+        CHECK(low.settle_samples >= 0);
+        CHECK(low.settle_samples <= 48000 / 10);
+        const StepCheck plain = run(0.0);  // the default floor, 70 Hz: the note is out of range
+        CHECK_FALSE(plain.targets_right);
+    }
+}

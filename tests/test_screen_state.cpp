@@ -56,6 +56,7 @@ TEST_CASE("settings: written, read back by Python's tomllib, and parsed again to
     s.a4_hz = 442.5;
     s.font_scale = 1.5f;
     s.in_tune_cents = 3.0;
+    s.lowest_hz = 55.0;
     s.input_device = "USB \"Mic\" 2";
     s.root = "D3";
     s.timbre = audio::Timbre::bright;
@@ -68,6 +69,7 @@ TEST_CASE("settings: written, read back by Python's tomllib, and parsed again to
     ui::save_settings(file, s);
     CHECK(toml_value(file, "d['kind']") == "settings");
     CHECK(toml_value(file, "d['a4_hz']") == "442.5");
+    CHECK(toml_value(file, "d['lowest_hz']") == "55");
     CHECK(toml_value(file, "d['input_device']") == "USB \"Mic\" 2");
     CHECK(toml_value(file, "d['drone']['root']") == "D3");
     CHECK(toml_value(file, "d['drone']['timbre']") == "bright");
@@ -102,6 +104,9 @@ TEST_CASE("settings: a missing file is the defaults; a malformed one warns in on
     CHECK(some.settings.timbre == audio::Timbre::round);
     CHECK(some.settings.fifth == false);
     CHECK(some.settings.root == "D3");
+    const auto low = ui::parse_settings("kind = \"settings\"\nlowest_hz = 10\n", "s.toml");
+    CHECK(low.warning.rfind("s.toml:2: 'lowest_hz' = 10 is out of range (30 to 200)", 0) == 0);
+    CHECK(low.settings.lowest_hz == 70.0);
     // Another kind of file is refused as a whole.
     const auto other = ui::parse_settings("kind = \"targets\"\n", "t.toml");
     CHECK(other.warning.find("t.toml:1: kind is 'targets'") == 0);

@@ -493,3 +493,31 @@ TEST_CASE("reset forgets the audio: the same input gives the same frames from t 
         CHECK(first[i].f0_hz == second[i].f0_hz);
     }
 }
+
+TEST_CASE("the shortest span for a floor: a little over two periods, and the tracker takes exactly that") {
+    // YIN needs the window and the longest lag (de Cheveigne and Kawahara
+    // 2002, section II.B): at least two periods of f_min; our refiner adds a
+    // few samples of margin.
+    for (double rate : {44100.0, 48000.0, 96000.0})
+        for (double f_min : {38.0, 55.0, 70.0, 110.0}) {
+            CAPTURE(rate);
+            CAPTURE(f_min);
+            YinConfig c;
+            c.sample_rate_hz = rate;
+            c.f_min_hz = f_min;
+            const double need = YinTracker::min_span_s(c);
+            CHECK(need >= 2.0 / f_min);
+            CHECK(need <= 2.0 / f_min + 0.004);
+            c.span_s = need;
+            CHECK_NOTHROW(YinTracker{c});
+            c.span_s = need - 0.001;
+            CHECK_THROWS_AS(YinTracker{c}, Error);
+        }
+    YinConfig live;
+    live.sample_rate_hz = 44100.0;
+    live.f_min_hz = 70.0;
+    CHECK(YinTracker::min_span_s(live) <= 0.030);  // the live engine's 30 ms holds its default floor
+    YinConfig bad;
+    bad.f_min_hz = 0.0;
+    CHECK_THROWS_AS(YinTracker::min_span_s(bad), Error);
+}

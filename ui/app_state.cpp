@@ -72,6 +72,7 @@ AppState::AppState(Settings settings, std::filesystem::path settings_file, AppOp
       trace_(static_cast<std::size_t>(kTraceSeconds / 0.005) + 256), take_buf_(512) {
     if (!options_.root.empty()) settings_.root = options_.root;
     if (options_.a4_hz) settings_.a4_hz = pitch::check_a4(*options_.a4_hz);
+    if (options_.lowest_hz) settings_.lowest_hz = *options_.lowest_hz;
     if (!options_.target_set.empty()) settings_.target_set = options_.target_set;
     if (!options_.input_device.empty()) settings_.input_device = options_.input_device;
     if (!options_.output_device.empty()) settings_.output_device = options_.output_device;
@@ -170,7 +171,9 @@ void AppState::open_engine() {
     }
     // Builds and starts one engine; with_output false when the output failed.
     auto build = [&](bool with_output) {
-        auto eng = std::make_unique<audio::Engine>(audio::EngineConfig{}, options_.simulated ? nullptr : system_.get());
+        audio::EngineConfig ec;
+        ec.f_min_hz = settings_.lowest_hz;
+        auto eng = std::make_unique<audio::Engine>(ec, options_.simulated ? nullptr : system_.get());
         eng->on_message([this](const std::string& m) { post(m, true); });
         if (options_.demo) {
             eng->use_demo(dc);
@@ -640,6 +643,18 @@ void AppState::set_in_tune_cents(double cents) {
     if (v == settings_.in_tune_cents) return;
     settings_.in_tune_cents = v;
     changed();
+}
+
+static_assert(Settings{}.lowest_hz == audio::kLiveLowestHz, "the setting's default is the engine's");
+
+void AppState::set_lowest_hz(double hz) {
+    const double v = std::clamp(hz, kLowestMinHz, kLowestMaxHz);
+    if (v == settings_.lowest_hz || refuse_in_drill("the lowest note")) return;
+    settings_.lowest_hz = v;
+    changed();
+    if (options_.no_input || !engine_) return;
+    close_engine();
+    open_engine();
 }
 
 void AppState::set_a4(double a4_hz) {

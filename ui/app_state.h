@@ -46,6 +46,7 @@ struct AppOptions {
     std::string output_device;            // overrides settings.output_device when not empty
     std::string root;                     // overrides [drone] root when not empty
     std::optional<double> a4_hz;          // overrides a4_hz
+    std::optional<double> lowest_hz;      // overrides lowest_hz (checked by the command)
     std::string target_set;               // overrides [targets] set when not empty
     std::string target;                   // a fixed target ("7/5"): choice = fixed
     bool drone = false;                   // start the drone at once (acknowledges nothing: the caution still applies)
@@ -103,6 +104,7 @@ public:
     void set_screen(ScreenId id);
     void set_font_scale(float scale);
     void set_in_tune_cents(double cents);
+    void set_lowest_hz(double hz);                  // the live tracker's lowest f0: the engine is opened again
     void set_a4(double a4_hz);                       // clamps to 400 .. 480
     void set_devices(const std::string& input, const std::string& output);  // reopens the engine
     void set_ensemble(const EnsembleSettings& e);    // the Ensemble screen's choices (saved like the rest)

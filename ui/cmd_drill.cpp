@@ -67,7 +67,14 @@ struct DrillCmd {
     int attempts = 0;
     std::string log_file;
     Format format = Format::text;
+    std::string lowest;
 };
+
+audio::EngineConfig engine_config(const DrillCmd& o) {
+    audio::EngineConfig ec;
+    if (!o.lowest.empty()) ec.f_min_hz = parse_lowest(o.lowest, o.a4_hz.value_or(pitch::kDefaultA4Hz));
+    return ec;
+}
 
 // ---- Printing --------------------------------------------------------------
 
@@ -187,7 +194,7 @@ void run_hold_simulated(const Drill& d, DrillRunner& runner, const DrillCmd& o, 
         dc.hold = true;
         dc.hold_dev_cents = *o.hold_dev_cents;
     }
-    audio::Engine engine(audio::EngineConfig{}, nullptr);
+    audio::Engine engine(engine_config(o), nullptr);
     engine.use_demo(dc);
     pitch::ReadingConfig rc;
     rc.root_hz = d.drone.root_hz;
@@ -242,7 +249,7 @@ void run_ear_simulated(DrillRunner& runner, pitch::SimulatedListener& listener, 
 void run_realtime(const Drill& d, DrillRunner& runner, const DrillCmd& o, Printer& print, pitch::SimulatedListener* listener) {
     const bool hold = d.mode == DrillMode::hold;
     auto system = audio::make_portaudio_system();
-    audio::Engine engine(audio::EngineConfig{}, system.get());
+    audio::Engine engine(engine_config(o), system.get());
     engine.on_message([](const std::string& m) { std::fprintf(stderr, "beatless: %s\n", m.c_str()); });
     audio::DemoConfig dc;
     dc.root_hz = d.drone.root_hz;
@@ -377,6 +384,7 @@ void register_drill(CLI::App& app, Runner& run) {
     sub->add_option("--input", o->input, "Input device: index or a unique part of its name (default: the system's)");
     sub->add_option("--output", o->output, "Output device for the drone and the tones (the drill then runs in real time)");
     sub->add_option("--root", o->root, "Drone root as a note (A2) or in Hz (110); default the drill's");
+    sub->add_option("--lowest", o->lowest, kLowestHelp);
     sub->add_option("--a4", o->a4_hz, "A4 reference in Hz (400-480) for a root given as a note; default 440");
     sub->add_option("--attempts", o->attempts, "Hold drills: stop after this many holds (default all)");
     sub->add_option("--log", o->log_file, "Practice log file (default: the data folder's practice.sqlite3)");

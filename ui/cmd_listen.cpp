@@ -65,6 +65,7 @@ struct ListenOptions {
     double rate_hz = 0.0;
     int block = 256;
     double hop_ms = 5.0;
+    std::string lowest;
     std::uint64_t seed = 7;
 };
 
@@ -185,6 +186,7 @@ int run_live(const ListenOptions& o, Printing printing) {
     ec.block_len_frames = static_cast<std::size_t>(o.block);
     ec.hop_s = o.hop_ms / 1000.0;
     ec.drone_removal = !o.no_removal;
+    if (!o.lowest.empty()) ec.f_min_hz = parse_lowest(o.lowest, o.a4_hz);
 
     const bool device_input = !o.demo && o.input_file.empty();
     const bool play_drone = o.drone && !o.fast && (device_input || o.demo || !o.output_dev.empty());
@@ -318,6 +320,7 @@ void register_listen(CLI::App& app, Runner& run) {
     sub->add_option("--rate", o->rate_hz, "Device sample rate to ask for (default: 48000, 44100 or the device's)");
     sub->add_option("--block", o->block, "Frames per audio callback to ask for (default 256)");
     sub->add_option("--hop-ms", o->hop_ms, "Time between readings in ms (default 5)");
+    sub->add_option("--lowest", o->lowest, kLowestHelp);
     sub->callback([o, &run] { run = [o] { return run_live(*o, Printing::json); }; });
 }
 

@@ -83,6 +83,7 @@ AppOptions options_of(const ScreenCommand& c) {
     o.output_device = c.output_device;
     o.root = c.root;
     o.a4_hz = c.a4_hz;
+    if (!c.lowest.empty()) o.lowest_hz = parse_lowest(c.lowest, c.a4_hz.value_or(440.0));
     o.target_set = c.target_set;
     o.target = c.target;
     o.drone = c.drone;
@@ -106,6 +107,7 @@ void add_screen_options(CLI::App& app, ScreenCommand& c) {
     app.add_option("--seed", c.seed, "Demo performer seed (default 7)");
     app.add_option("--root", c.root, "Drone root as a note (A2) or in Hz (110); default from the settings (A2)");
     app.add_option("--a4", c.a4_hz, "A4 reference in Hz (400-480); default from the settings (440)");
+    app.add_option("--lowest", c.lowest, std::string(kLowestHelp) + "; default from the settings");
     app.add_option("--targets", c.target_set, "Target set: a built-in name (7-limit, tritones, ...) or a .toml file");
     app.add_option("--target", c.target, "Fix this target (7/5, 600c, ...); it joins the set when it is not in it");
     app.add_option("--screen", c.screen, "Screen to show: " + built_screen_keys());

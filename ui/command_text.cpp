@@ -1,6 +1,11 @@
 // Small text helpers shared by the commands and the screens (commands.h).
 #include "ui/commands.h"
 
+#include "pitch/error.h"
+#include "pitch/notes.h"
+#include "pitch/text.h"
+#include "ui/settings.h"
+
 #include <cstdio>
 #include <cstdlib>
 #include <filesystem>
@@ -21,6 +26,14 @@ std::string join_args(const std::vector<std::string>& args) {
         s += a;
     }
     return s;
+}
+
+double parse_lowest(const std::string& text, double a4_hz) {
+    const double hz = pitch::parse_frequency(text, a4_hz);
+    if (!(hz >= kLowestMinHz && hz <= kLowestMaxHz))
+        throw Error("--lowest " + text + " = " + pitch::format_trimmed(hz, 1) + " Hz: out of range (" + pitch::format_trimmed(kLowestMinHz, 0) +
+                    " to " + pitch::format_trimmed(kLowestMaxHz, 0) + " Hz)");
+    return hz;
 }
 
 namespace {

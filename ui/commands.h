@@ -31,6 +31,7 @@ struct ScreenCommand {
     std::string output_device;            // --output
     std::string root;                     // --root (default: the settings')
     std::optional<double> a4_hz;          // --a4
+    std::string lowest;                   // --lowest (default: the settings')
     std::string target_set;               // --targets
     std::string target;                   // --target: a fixed target
     std::string screen;                   // --screen (default: the last one used)
@@ -58,6 +59,13 @@ void add_format_option(CLI::App& sub, Format& format, std::initializer_list<Form
 // Small text helpers shared by the commands.
 std::string ordinal(int n);                                  // 1 -> "1st", 12 -> "12th"
 std::string join_args(const std::vector<std::string>& args); // words joined by single spaces
+// --lowest NOTE|HZ: the live tracker's lowest f0, 30 to 200 Hz. Throws
+// Error naming the value.
+double parse_lowest(const std::string& text, double a4_hz);
+inline constexpr const char* kLowestHelp =
+    "Lowest note to track live, as a note (A1) or in Hz (30-200; default 70: voices and upper strings; "
+    "55 for cello, 38 for double bass, which settle more slowly)";
+
 // The hearing caution on stderr, once per user (a marker file in the config folder).
 void hearing_caution_once();
 

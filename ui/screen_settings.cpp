@@ -153,6 +153,27 @@ void SettingsScreen::build(AppState& app, const ScreenArea& area, double dt_s) {
     float tol = static_cast<float>(s.in_tune_cents);
     ImGui::SetNextItemWidth(field_w);
     if (ImGui::SliderFloat("##tol", &tol, 1.0f, 25.0f, "\xC2\xB1%.0f cents")) app.set_in_tune_cents(std::round(tol));
+    label("Lowest note");
+    {
+        // Three useful floors: the lower, the longer each reading's window.
+        struct Floor {
+            double hz;
+            const char* text;
+        };
+        static constexpr Floor kFloors[] = {{70.0, "70 Hz: voices, violin, viola"},
+                                            {55.0, "55 Hz: cello, a low bass voice"},
+                                            {38.0, "38 Hz: double bass"}};
+        std::string shown = pitch::format_trimmed(s.lowest_hz, 1) + " Hz";
+        for (const Floor& f : kFloors)
+            if (f.hz == s.lowest_hz) shown = f.text;
+        ImGui::SetNextItemWidth(field_w);
+        if (ImGui::BeginCombo("##lowest", shown.c_str())) {
+            for (const Floor& f : kFloors)
+                if (ImGui::Selectable(f.text, f.hz == s.lowest_hz)) app.set_lowest_hz(f.hz);
+            ImGui::EndCombo();
+        }
+        if (s.lowest_hz < 70.0) note("A lower floor needs a longer window: readings settle a little later.");
+    }
 
     section("Display");
     label("Text size");

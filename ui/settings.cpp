@@ -105,6 +105,7 @@ void read_into(const TomlDoc& doc, Settings& s, Reader& r) {
     r.number(top, "font_scale", 0.5, 3.0, fs_);
     s.font_scale = static_cast<float>(fs_);
     r.number(top, "in_tune_cents", 1.0, 25.0, s.in_tune_cents);
+    r.number(top, "lowest_hz", kLowestMinHz, kLowestMaxHz, s.lowest_hz);
     r.string(top, "input_device", [&](const std::string& v) { s.input_device = v; });
     r.string(top, "output_device", [&](const std::string& v) { s.output_device = v; });
     if (const toml::table* d = r.table("drone")) {
@@ -198,6 +199,7 @@ std::string settings_toml(const Settings& s) {
       << "a4_hz = " << pitch::format_trimmed(s.a4_hz, 3) << "\n"
       << "font_scale = " << pitch::format_trimmed(s.font_scale, 2) << "\n"
       << "in_tune_cents = " << pitch::format_trimmed(s.in_tune_cents, 2) << "\n"
+      << "lowest_hz = " << pitch::format_trimmed(s.lowest_hz, 1) << "\n"
       << "input_device = " << quoted(s.input_device) << "\n"
       << "output_device = " << quoted(s.output_device) << "\n"
       << "\n[drone]\n"

@@ -75,6 +75,44 @@ void latency(const bench::Context& ctx) {
         }
     }
     std::printf("worst settle: %.1f ms (1 cent), %.1f ms (5 cents); bar 40 ms\n\n", worst_1c, worst_5c);
+
+    // Below the default floor (70 Hz): the settings' lower floors for cello
+    // and double bass, with the span they need. No bar; the price of range.
+    std::printf("lower floors (48 kHz, block 256): the span grows to hold two periods of the floor\n");
+    std::printf("%9s %8s %9s %9s %12s %6s %12s %12s\n", "floor Hz", "span ms", "root Hz", "f0 Hz", "step", "drone", "settle 1c ms", "settle 5c ms");
+    const pitch::TargetSet set = set_of({"1/1", "9/8", "5/4", "4/3", "3/2", "5/3", "15/8"});
+    struct Low {
+        double floor_hz, root_hz;
+        const char *from, *to;
+    };
+    // A cello's C string over a G1 drone (C2 = 4/3, then D2 = 3/2); a double
+    // bass over E1 (F#1 = 9/8, then G#1 = 5/4).
+    for (const Low& lo : {Low{55.0, 48.999, "4/3", "3/2"}, Low{38.0, 41.203, "9/8", "5/4"}})
+      for (const bool drone_on : {true, false}) {
+        const double rate = 48000.0;
+        audio::EngineConfig ec;
+        ec.f_min_hz = lo.floor_hz;
+        test::LiveRig rig(rate, 256, ec);
+        const std::vector<test::Step> steps = {{0.3, 1.0, lo.from, 1.5}, {1.0, 1.8, lo.to, -2.5}};
+        rig.voice = test::voice_of(steps, lo.root_hz, rate, 1.9, 0.1);
+        pitch::ReadingConfig rc;
+        rc.root_hz = lo.root_hz;
+        audio::DroneSettings dd = drone_at(lo.root_hz, audio::Timbre::round, -30.0);
+        dd.on = drone_on;
+        rig.open(rc, set, dd, audio::RoomConfig{});
+        rig.run();
+        const auto c1 = test::check_step(rig.readings, steps[1], lo.root_hz, rate, set, 1.0);
+        const auto c5 = test::check_step(rig.readings, steps[1], lo.root_hz, rate, set, 5.0);
+        pitch::YinConfig yc;
+        yc.sample_rate_hz = rate;
+        yc.f_min_hz = lo.floor_hz;
+        const std::string step = std::string(lo.from) + "->" + lo.to;
+        std::printf("%9.0f %8.1f %9.1f %9.1f %12s %6s %12.1f %12.1f\n", lo.floor_hz, 1000.0 * std::max(0.030, pitch::YinTracker::min_span_s(yc)),
+                    lo.root_hz, lo.root_hz * pitch::parse_interval(lo.to).value(), step.c_str(), drone_on ? "on" : "off",
+                    1000.0 * static_cast<double>(c1.settle_samples) / rate, 1000.0 * static_cast<double>(c5.settle_samples) / rate);
+    }
+    std::printf("(-0.0: did not settle)\n");
+    std::printf("\n");
 }
 
 void cpu(const bench::Context& ctx) {
