@@ -241,10 +241,12 @@ RootEstimate RootDetector::refine(double f0_guess, bool tight) noexcept {
         const double main_power = power_[k - 1] + power_[k] + power_[k + 1];
         const auto near_b = static_cast<std::size_t>(std::ceil(kSideNearHz / bin_hz_));
         const auto far_b = static_cast<std::size_t>(kSideFarHz / bin_hz_);
-        for (std::size_t d = std::max<std::size_t>(near_b, 2); d <= far_b; ++d) {
-            if (k > d) side = std::max(side, power_[k - d]);
-            if (k + d <= kmax_) side = std::max(side, power_[k + d]);
-        }
+        // Sidebands come in pairs, J_n at -n and +n times the rate with equal
+        // power (Carson 1922): the weaker of the two sides counts, so another
+        // tone's partial a few Hz to one side (a low drone under a voice:
+        // their partials crowd within 12 Hz) is not taken for vibrato.
+        for (std::size_t d = std::max<std::size_t>(near_b, 2); d <= far_b && d < k && k + d <= kmax_; ++d)
+            side = std::max(side, std::min(power_[k - d], power_[k + d]));
         const double purity = main_power > 0.0 ? 1.0 / (1.0 + side / (kSideRatio * main_power)) : 0.0;
         // Inverse variance of f_h / h (power * h^2), times (presence *
         // coherence)^4 so a louder but intermittent voice partial cannot outvote the drone.

@@ -189,6 +189,31 @@ inline Take drone_and_voice(double fs, double root_hz, const std::vector<std::pa
     return take;
 }
 
+// A low drone (a bass's or a cellist's, 40-60 Hz) and a voice as loud holding
+// 9/8 -3 c, 5/4 +4 c and 4/3 +2 c above it, 2.9 s each, +-15 c vibrato at
+// 5.5 Hz, 9 s in all; the voice's partials crowd the drone's within 12 Hz.
+inline const std::vector<std::pair<double, double>>& low_take_steps() {
+    static const std::vector<std::pair<double, double>> steps = {{9.0 / 8.0, -3.0}, {5.0 / 4.0, 4.0}, {4.0 / 3.0, 2.0}};
+    return steps;
+}
+inline std::vector<float> low_drone_and_voice(double fs, double root_hz) {
+    std::vector<float> x(static_cast<std::size_t>(9 * fs), 0.0f);
+    add_tone(x, fs, root_hz, 0.0, 9.0, 0.08, rolloff(10));
+    std::vector<Note> notes;
+    for (std::size_t i = 0; i < low_take_steps().size(); ++i) {
+        Note n;
+        n.start_s = 0.05 + 3.0 * static_cast<double>(i);
+        n.end_s = n.start_s + 2.9;
+        n.centre_hz = root_hz * low_take_steps()[i].first * cents_to_ratio(low_take_steps()[i].second);
+        n.vib_rate_hz = 5.5;
+        n.vib_depth_cents = 15.0;
+        n.level = 0.08;
+        notes.push_back(n);
+    }
+    add_voice(x, fs, notes, rolloff(10));
+    return x;
+}
+
 // Two voices holding double stops one after another: each dyad is a low
 // harmonic tone on f_low_hz and a high one `off_cents` off the just ratio
 // p/q above it, held hold_s with rest_s between (the first starts at 0.3 s),

@@ -245,6 +245,33 @@ TEST_CASE("no drone, silence, noise only, a clipped take: clear messages or empt
     CHECK(json_value(c.out, "all(n['clipped'] for n in d['notes'])") == "True");
 }
 
+TEST_CASE("a double bass over E1: with --lowest 38 every note is found within 1 cent; the default floor of 55 Hz misses two") {
+    // 9/8 and 5/4 over E1 (41.20 Hz, 12-TET from A4 = 440 Hz, ISO 16) are
+    // 46.4 and 51.5 Hz, below 55 Hz; 4/3 is 54.9 Hz, at the edge.
+    TempDir dir;
+    const double root = 41.2034;
+    const std::string wav = dir.file("bass.wav");
+    write(wav, low_drone_and_voice(kFs, root));
+    const auto r = run_program({"analyze", wav, "--targets", "5-limit", "--lowest", "38", "--format", "json"});
+    REQUIRE_MESSAGE(r.exit_code == 0, r.err);
+    CHECK(std::fabs(cents(std::stod(json_value(r.out, "d['root_hz']")), root)) < 0.2);
+    const auto dev = numbers(r.out, "[n['dev_cents'] for n in d['notes']]");
+    const auto target = words(r.out, "[n['target'] for n in d['notes']]");
+    REQUIRE(dev.size() == low_take_steps().size());
+    const char* want[] = {"9/8", "5/4", "4/3"};
+    for (std::size_t i = 0; i < dev.size(); ++i) {
+        CHECK(target[i] == want[i]);
+        CHECK(std::fabs(dev[i] - low_take_steps()[i].second) < 1.0);
+    }
+    const auto plain = run_program({"analyze", wav, "--targets", "5-limit", "--format", "json"});
+    REQUIRE(plain.exit_code == 0);
+    CHECK(numbers(plain.out, "[n['dev_cents'] for n in d['notes']]").size() < dev.size());
+    // Two voices are followed from 60 Hz: --lowest is refused there.
+    const auto two = run_program({"analyze", wav, "--voices", "2", "--lowest", "38"});
+    CHECK(two.exit_code == 2);
+    CHECK(two.err == "beatless: --lowest works with one voice; two voices are followed from 60 Hz\n");
+}
+
 TEST_CASE("the report: a 2000 x 1200 PNG") {
     TempDir dir;
     const Take take = drone_and_voice(kFs, 110.0, tritone_notes(), 1);

@@ -128,6 +128,20 @@ TEST_CASE("one long vibrato note louder than the drone: its steady carrier is no
     }
 }
 
+TEST_CASE("a low drone (a bass's or cellist's) under a voice a step or a third above: its neighbours are not vibrato") {
+    // Over E1, G1 and A1 the voice's partials at 9/8, 5/4 and 4/3 fall 4 to 12 Hz
+    // from the drone's (for 9/8 over E1: 46.35 Hz - 41.20 Hz = 5.15 Hz, and h
+    // times that at harmonic h): one side only, unlike the pairs of sidebands a
+    // vibrato makes (Carson 1922). Voice as loud as the drone, +-15 c at 5.5 Hz.
+    for (double root : {41.2034, 48.9994, 55.0}) {
+        CAPTURE(root);
+        const RootEstimate e = detect(low_drone_and_voice(kFs, root));
+        CAPTURE(describe(e));
+        REQUIRE(e.found());
+        CHECK(std::fabs(cents(e.root_hz, root)) < 0.2);
+    }
+}
+
 TEST_CASE("48 kHz and a clipped recording") {
     const double root = 130.8128;  // C3
     Take take = drone_and_voice(48000.0, root, tritone_notes(), 3, 1, 1.6, 1e-3, 0.4, 0.5);

@@ -49,6 +49,7 @@ struct AnalyzeOptions {
     Format format = Format::text;
     std::string report;
     int channel = 0;                  // 1-based; 0 mixes all channels
+    std::string lowest;               // --lowest: below the file tracker's 55 Hz (a double bass)
 };
 
 constexpr double kMinRootHz = 20.0;
@@ -377,6 +378,10 @@ int run_analyze(const AnalyzeOptions& o) {
                         pitch::format_trimmed(kMinRootHz, 0) + " to " + pitch::format_trimmed(kMaxRootHz, 0) + " Hz)");
         req.root_hz = hz;
     }
+    if (!o.lowest.empty()) {
+        if (o.voices == 2) throw UsageError("--lowest works with one voice; two voices are followed from 60 Hz");
+        req.lowest_hz = parse_lowest(o.lowest, o.a4_hz);
+    }
     req.targets = load_target_set(o.targets);
     if (req.targets.targets.empty()) throw Error(o.targets + ": the target set has no targets");
     check_report_path(o.report);
@@ -419,6 +424,7 @@ void register_analyze(CLI::App& app, Runner& run) {
     add_format_option(*sub, o->format, {Format::text, Format::json, Format::csv});
     sub->add_option("--report", o->report, "Also draw a printable page (PNG) of the trace, notes and summary");
     sub->add_option("--channel", o->channel, "Channel to analyse, from 1 (default: all channels mixed)");
+    sub->add_option("--lowest", o->lowest, "One voice: the lowest note to follow, as a note (E1) or in Hz (30-200; default 55)");
     sub->callback([o, root, &run] {
         o->root_set = root->count() > 0;
         run = [o] { return run_analyze(*o); };
