@@ -15,6 +15,10 @@
 //     player's strip: the state is told by word and shape, not only colour.
 #include "tests/cli.h"
 #include "tests/snapshot_pixels.h"
+#include "ui/app_state.h"
+#include "ui/ensemble_session.h"
+#include "ui/screen.h"
+#include "ui/settings.h"
 
 #include <doctest/doctest.h>
 
@@ -144,9 +148,6 @@ TEST_CASE("Ensemble snapshot: against the best-fit root, the held deviations min
 // The [ensemble] settings: saved, read back, and a bad value named
 // ---------------------------------------------------------------------------
 
-#include "ui/ensemble_session.h"
-#include "ui/settings.h"
-
 TEST_CASE("[ensemble] settings: written, read back equal, and a bad reference is named by file and line") {
     ui::Settings s;
     s.ensemble.chord = "4:5:6:7";
@@ -198,5 +199,49 @@ TEST_CASE("the Ensemble screen's edits reach the settings file; a bad edit chang
     CHECK(app.settings().ensemble.voices == "1,2,3,4");
     REQUIRE_FALSE(app.messages().empty());
     CHECK(app.messages().back().text == "Ensemble: --voices '1,2,3,7': '7' is not a voice of 4:5:6:7 (1 to 4)");
+    app.shutdown();
+}
+
+TEST_CASE("Ensemble screen: left for another screen and shown again, the group's engine runs again") {
+    // In-process, with the deck: the Ensemble screen stops the group's engine
+    // when it is left; coming back must start it again (the status bar then
+    // names the demo ensemble, not "no input").
+    ui::Settings s;
+    s.caution_acknowledged = true;
+    ui::AppOptions o;
+    o.demo = true;
+    o.simulated = true;
+    o.save_settings = false;
+    ui::AppState app(s, std::filesystem::temp_directory_path() / "beatless-never-written.toml", o);
+    ui::HostConfig hc;
+    ui::ImGuiHost host(hc);
+    ui::Rasterizer raster;
+    ui::PixelBuffer buf;
+    ui::ScreenDeck deck(app);
+    app.start();
+    auto frames = [&](int n) {
+        for (int i = 0; i < n; ++i)
+            ui::render_offscreen(host, raster, buf, 1.0f / 60.0f, [&] {
+                app.update(1.0 / 60.0);
+                deck.build_frame(1.0 / 60.0);
+            });
+    };
+    auto status_names_group = [&] {
+        Image img;
+        img.w = buf.width_px;
+        img.h = buf.height_px;
+        img.px = buf.pixels;
+        const Image input = render_text("the demo ensemble", ui::FontFace::bold, ui::palette::kText, ui::palette::kPanel, 1.0f);
+        return !find_exact(img, input, rows(img, img.h - img.h / 12, img.h - 1)).empty();
+    };
+    deck.show(ui::ScreenId::ensemble);
+    frames(30);
+    CHECK(status_names_group());
+    deck.show(ui::ScreenId::practice);
+    frames(10);
+    CHECK_FALSE(status_names_group());
+    deck.show(ui::ScreenId::ensemble);
+    frames(30);
+    CHECK(status_names_group());
     app.shutdown();
 }

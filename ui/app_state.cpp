@@ -130,6 +130,21 @@ void AppState::start() {
     if (!engine_) open_engine();
 }
 
+bool AppState::suspend_devices() {
+    if (options_.demo || options_.simulated || options_.no_input) return false;
+    if (!suspended_) {
+        close_engine();
+        suspended_ = true;
+    }
+    return true;
+}
+
+void AppState::resume_devices() {
+    if (!suspended_) return;
+    suspended_ = false;
+    open_engine();
+}
+
 void AppState::open_engine() {
     if (options_.no_input) {
         input_text_ = "no input";
@@ -673,7 +688,7 @@ void AppState::set_devices(const std::string& input, const std::string& output) 
     settings_.input_device = input;
     settings_.output_device = output;
     changed();
-    if (options_.simulated || options_.no_input) return;
+    if (options_.simulated || options_.no_input || suspended_) return;  // suspended: resume_devices() opens the new ones
     close_engine();
     open_engine();
 }

@@ -95,6 +95,13 @@ public:
     void start();                  // opens the engine (devices, demo); messages instead of throwing
     void update(double dt_s);      // see the header comment; call once per frame
     void shutdown();               // stops the engine and saves the settings
+    // The Ensemble screen takes the audio devices for its own engine (a sound
+    // card is often opened by one stream at a time, and the group's engine
+    // plays the drone): suspend closes this engine when it uses devices and
+    // says whether it did; resume opens it again. Demo and simulated runs
+    // use no devices and keep theirs.
+    bool suspend_devices();
+    void resume_devices();
     double app_time_s() const { return app_time_s_; }
 
     // --- Settings -----------------------------------------------------------------
@@ -215,6 +222,7 @@ private:
 
     bool drone_on_ = false;
     bool drone_heard_ = false;
+    bool suspended_ = false;                   // suspend_devices() closed the engine
     double fade_s_ = 0.0;         // time since the drone started (fade-in while < kDroneFadeInS)
     double supervise_s_ = 0.0;
     bool dirty_ = false;

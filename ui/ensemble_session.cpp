@@ -20,8 +20,18 @@ EnsembleSession::~EnsembleSession() { close(); }
 void EnsembleSession::close() {
     if (engine_) engine_->stop();
     engine_.reset();
+    input_text_ = "no input";
     has_current_ = false;
     recent_count_ = 0;
+}
+
+void EnsembleSession::leave(AppState& app) {
+    close();
+    tried_ = false;  // open again when the screen is shown again
+    if (took_devices_) {
+        took_devices_ = false;
+        app.resume_devices();
+    }
 }
 
 bool EnsembleSession::plan(AppState& app, const EnsembleSettings& e, bool quiet) {
@@ -68,8 +78,10 @@ void EnsembleSession::open(AppState& app) {
     }
     simulated_ = o.simulated;
     const audio::EnsembleSetup setup = setup_now();
-    try {
-        if (!o.demo && !system_) system_ = audio::make_portaudio_system();
+    // From devices, this engine takes them over from the app's (which gets
+    // them back in leave()) and plays the drone itself.
+    if (!o.demo && app.suspend_devices()) took_devices_ = true;
+    auto build = [&](bool with_output) {
         auto eng = std::make_unique<audio::EnsembleEngine>(audio::EnsembleEngineConfig{}, o.demo ? nullptr : system_.get());
         eng->on_message([&app](const std::string& m) { app.post(m, true); });
         eng->set_setup(setup);
@@ -78,17 +90,34 @@ void EnsembleSession::open(AppState& app) {
             dc.hold = o.hold_dev_cents.has_value();
             dc.hold_dev_cents = o.hold_dev_cents.value_or(0.0);
             eng->use_demo(dc);
+        } else {
+            eng->open_input_device(app.settings().ensemble.input_device);
+            if (with_output) eng->open_output_device(app.settings().output_device);
         }
-        else eng->open_input_device(app.settings().ensemble.input_device);
         drone_ = drone_of(app);
         eng->set_drone(drone_);
         eng->start(!simulated_);
-        engine_ = std::move(eng);
+        return eng;
+    };
+    try {
+        if (!o.demo && !system_) system_ = audio::make_portaudio_system();
+        try {
+            engine_ = build(took_devices_);
+        } catch (const Error& e) {
+            if (!took_devices_) throw;
+            const std::string first = e.what();
+            engine_ = build(false);  // the input works alone: say why the drone is not heard
+            app.post(std::string("Ensemble: ") + first + "; the drone is not heard", true);
+        }
         input_text_ = engine_->input_name();
     } catch (const Error& e) {
         engine_.reset();
         input_text_ = "no input";
         app.post(std::string("Ensemble input: ") + e.what() + (o.demo ? "" : std::string(" (") + audio::kDemoHint + ")"), true);
+        if (took_devices_) {  // the app's engine keeps the drone and the Practice input
+            took_devices_ = false;
+            app.resume_devices();
+        }
     }
 }
 

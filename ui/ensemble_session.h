@@ -8,8 +8,10 @@
 // short history for the trails, hands the app's drone to the engine (so
 // each microphone's drone is removed, and the demo's microphones hear it),
 // follows root and A4 changes, and passes the engine's one-line messages to
-// the screen's message bar. The drone itself is the app's: it plays through
-// the Practice engine's output, as on every screen.
+// the screen's message bar. With devices, the group's engine takes them over
+// from the Practice engine while the screen is shown (one sound card is often
+// opened by one stream at a time) and plays the app's drone itself; leave()
+// hands them back. In demo and simulated runs the app's engine keeps running.
 // Thread: the control thread (the frame loop) only.
 #pragma once
 
@@ -33,7 +35,8 @@ public:
     EnsembleSession& operator=(const EnsembleSession&) = delete;
 
     void update(AppState& app, double dt_s);   // opens the engine on first use
-    void close();
+    void close();                              // stops the group's engine
+    void leave(AppState& app);                 // close(), and the app's own engine gets its devices back
 
     // Changes: saved through app.set_ensemble; false (and a message) when the
     // chord or the lists are not valid, and nothing changes.
@@ -71,6 +74,7 @@ private:
     std::unique_ptr<audio::AudioSystem> system_;
     std::unique_ptr<audio::EnsembleEngine> engine_;
     bool tried_ = false;
+    bool took_devices_ = false;                // the app's engine was suspended for this one
     bool simulated_ = false;
     double sim_due_frames_ = 0.0;
     std::string input_text_ = "no input";

@@ -94,7 +94,7 @@ public:
         v.latency_s = session_.engine_running() ? st.latency_s : 0.0;
         return true;
     }
-    void left(AppState&) override { session_.close(); }  // the group's engine stops when the screen is left
+    void left(AppState& app) override { session_.leave(app); }  // the group's engine stops; the app's gets the devices back
 
 private:
     void header(AppState& app, ImDrawList* dl, float x0, float y0, float w, float h);
