@@ -113,7 +113,9 @@ void EnsembleSession::open(AppState& app) {
     } catch (const Error& e) {
         engine_.reset();
         input_text_ = "no input";
-        app.post(std::string("Ensemble input: ") + e.what() + (o.demo ? "" : std::string(" (") + audio::kDemoHint + ")"), true);
+        const std::string what = e.what();
+        const bool hinted = o.demo || what.find(audio::kDemoHint) != std::string::npos;
+        app.post("Ensemble input: " + what + (hinted ? "" : std::string(" (") + audio::kDemoHint + ")"), true);
         if (took_devices_) {  // the app's engine keeps the drone and the Practice input
             took_devices_ = false;
             app.resume_devices();
