@@ -660,7 +660,7 @@ void AppState::set_in_tune_cents(double cents) {
     changed();
 }
 
-static_assert(Settings{}.lowest_hz == audio::kLiveLowestHz, "the setting's default is the engine's");
+static_assert(kDefaultLowestHz == audio::kLiveLowestHz, "the setting's default is the engine's");
 
 void AppState::set_lowest_hz(double hz) {
     const double v = std::clamp(hz, kLowestMinHz, kLowestMaxHz);

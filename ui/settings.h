@@ -41,13 +41,15 @@ struct EnsembleSettings {
     friend bool operator==(const EnsembleSettings&, const EnsembleSettings&) = default;
 };
 
+inline constexpr double kDefaultLowestHz = 70.0;  // Settings::lowest_hz by default: audio::kLiveLowestHz
+
 struct Settings {
     ScreenId screen = ScreenId::practice;        // last screen (Settings itself is not remembered)
     bool caution_acknowledged = false;           // the hearing caution was confirmed on screen
     double a4_hz = 440.0;                        // 12-TET reference, 400 .. 480 Hz (default ISO 16)
     float font_scale = 1.0f;                     // text size on top of the display's DPI scale, 0.5 .. 3 (default 1)
     double in_tune_cents = 5.0;                  // |deviation| counted as in tune, 1 .. 25 cents (default 5, common practice)
-    double lowest_hz = 70.0;                     // lowest f0 the live screens track, 30 .. 200 Hz (default 70;
+    double lowest_hz = kDefaultLowestHz;         // lowest f0 the live screens track, 30 .. 200 Hz (default 70;
                                                  // 55 for a cello's C string, 38 for a double bass: slower to settle)
     std::string input_device;                    // index or unique name part; "" = the default input
     std::string output_device;                   // the same for the drone's output
