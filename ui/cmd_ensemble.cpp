@@ -327,12 +327,12 @@ int run_ensemble(const EnsembleOptions& o) {
 
 void register_ensemble(CLI::App& app, Runner& run) {
     auto o = std::make_shared<EnsembleOptions>();
-    CLI::App* sub = app.add_subcommand(
-        "ensemble",
-        "One microphone per player: each player's deviation from their voice of a just chord, under a reference the director chooses.\n"
-        "Text prints a line per player every --every s and a summary (median, spread, time in tune); JSON prints one object per\n"
-        "reading, {\"t\", \"reference\", \"root_hz\", \"roots\", \"players\": [{\"name\", \"channel\", \"voice\", \"ratio\", \"state\",\n"
-        "\"centre_dev_cents\", ...}], \"beats\": [{\"channels\", \"partials\", \"beat_hz\"}]}, then one {\"summary\": ...}.");
+    CLI::App* sub = app.add_subcommand("ensemble", "One microphone per player: each player's deviation from their voice of a just chord");
+    sub->footer(
+        "Deviations are measured under a reference the director chooses. Text prints a line per player every --every s and a\n"
+        "summary (median, spread, time in tune); JSON prints one object per reading, {\"t\", \"reference\", \"root_hz\", \"roots\",\n"
+        "\"players\": [{\"name\", \"channel\", \"voice\", \"ratio\", \"state\", \"centre_dev_cents\", ...}], \"beats\": [{\"channels\",\n"
+        "\"partials\", \"beat_hz\"}]}, then one {\"summary\": ...}.");
     sub->add_option("CHORD", o->chord, "A chord: 4:5:6:7, \"1/1 5/4 3/2\", a built-in chord name or a .toml chord file")->required();
     sub->add_option("--root", o->root, "Chord root (the drone) as a note (C3) or in Hz; default C3");
     sub->add_option("--a4", o->a4_hz, "A4 reference in Hz (400-480, default 440)");

@@ -63,8 +63,7 @@ std::string join_args(const std::vector<std::string>& args); // words joined by 
 // Error naming the value.
 double parse_lowest(const std::string& text, double a4_hz);
 inline constexpr const char* kLowestHelp =
-    "Lowest note to track live, as a note (A1) or in Hz (30-200; default 70: voices and upper strings; "
-    "55 for cello, 38 for double bass, which settle more slowly)";
+    "Lowest note to track live: a note (A1) or Hz, 30-200 (default 70; 55 for cello, 38 for double bass, which settle more slowly)";
 
 // The hearing caution on stderr, once per user (a marker file in the config folder).
 void hearing_caution_once();
