@@ -40,6 +40,9 @@ constexpr double kMinDecimatedRate = 5000.0;    // the coarse stage runs at or a
 constexpr double kSamplesPerShortestPeriod = 6.5;   // ... and at least this many samples per period of f_max
 constexpr double kCoarseLagError = 0.3;         // assumed parabola error on the coarse d, decimated samples
 constexpr Index kFineMargin = LagRefiner::kKernelHalf + LagRefiner::kSearch + 1;
+// One half of the span 40 dB under the other: a note starts or stops inside
+// it (a held tone's level never changes that fast).
+constexpr double kOneSidedRatio = 1e-4;
 
 std::string num(double v) {
     std::ostringstream s;
@@ -361,10 +364,17 @@ struct YinTracker::Impl {
         PitchFrame out;
         out.t_s = static_cast<double>(cf) / rate;
 
-        // Level of the span.
+        // Level of the span, and of its halves: a span that is silent in one
+        // half (a note starting or stopping inside it, after digital silence)
+        // has a difference function dominated by the zeros, whose dips say
+        // nothing of the period; no estimate from it.
         const Index lo = cf - (span - 1) / 2;
-        const double ms = vec::sum_sq(xp(lo), static_cast<std::size_t>(span)) / static_cast<double>(span);
+        const auto half = static_cast<std::size_t>(span / 2);
+        const double e1 = vec::sum_sq(xp(lo), half);
+        const double e2 = vec::sum_sq(xp(lo + static_cast<Index>(half)), static_cast<std::size_t>(span) - half);
+        const double ms = (e1 + e2) / static_cast<double>(span);
         out.level_dbfs = ms > 0.0 ? 10.0 * std::log10(ms) : -std::numeric_limits<double>::infinity();
+        const bool one_sided = std::min(e1, e2) < kOneSidedRatio * std::max(e1, e2);
 
         // Step 6, best local estimate: the neighbour with the clearest period
         // (lowest d'); where ours disagrees with it by more than 20%, search
@@ -384,8 +394,8 @@ struct YinTracker::Impl {
             aper = pick.aperiodicity;
         }
         out.confidence = std::clamp(1.0 - aper, 0.0, 1.0);
-        if (out.level_dbfs < cfg.silence_dbfs || !(aper < cfg.threshold) || !(period > 0.0)) {
-            if (out.level_dbfs < cfg.silence_dbfs) out.confidence = 0.0;
+        if (out.level_dbfs < cfg.silence_dbfs || one_sided || !(aper < cfg.threshold) || !(period > 0.0)) {
+            if (out.level_dbfs < cfg.silence_dbfs || one_sided) out.confidence = 0.0;
             emit(out);
             return;
         }

@@ -122,6 +122,29 @@ TEST_CASE("snapshot: the marker stands at the held deviation on the lane, in the
     }
 }
 
+TEST_CASE("snapshot: far off the lane, the value replaces the end's word, and the trace widens to show the pitch") {
+    // 80 cents sharp of 7/5 (582.5 c) is 662.5 c above the root: beyond the
+    // lane's +-50 and above the family's highest target, 16/11 (648.7 c).
+    TempDir home;
+    const Image img = read_png(snapshot(home, "--demo --hold 80 --targets tritones --target 7/5 --root D3 --seconds 3", "far.png"));
+    const Box zone = find_colour(img, ui::palette::kInTuneZone);
+    REQUIRE(!zone.empty());
+    const Box band = rows(img, zone.y0, zone.y1);
+    const Image value = render_text("+80 c", ui::FontFace::bold, ui::palette::kText, ui::palette::kPanelRaised, 1.0f);
+    CHECK(find_exact(img, value, band).size() == 1);
+    const Image sharp = render_text("sharp", ui::FontFace::body, ui::palette::kTextDim, ui::palette::kPanelRaised, 1.0f);
+    CHECK(find_exact(img, sharp, band).empty());  // the pinned end shows the value, not the word
+    const Image flat = render_text("flat", ui::FontFace::body, ui::palette::kTextDim, ui::palette::kPanelRaised, 1.0f);
+    CHECK(find_exact(img, flat, band).size() == 1);
+    // The trace: the pitch line (the trace colour, exact in its core) is drawn
+    // in the trace panel's plot (its left half holds nothing else of that
+    // colour) rather than clipped away above it.
+    int line_px = 0;
+    for (int y = img.h * 9 / 20; y < img.h * 5 / 6; ++y)
+        for (int x = img.w / 10; x < img.w / 2; ++x) line_px += img.at(x, y) == ui::palette::kTraceLine;
+    CHECK(line_px > 50);
+}
+
 TEST_CASE("snapshot: the beat cue shows the rate of the coinciding partials and names them") {
     TempDir home;
     // 7/5 over A3 (220 Hz): the 7th partial of the root against the 5th of

@@ -34,10 +34,14 @@ void draw_lane(ImDrawList* dl, float x0, float y0, float w, float band_h, const 
             draw_text_centred(dl, FontFace::body, x, by1 + std::round(0.2f * u), palette::kTextDim, s);
         }
     }
-    // The ends in words, for whoever reads the lane for the first time.
-    draw_text(dl, FontFace::body, ImVec2(lx0 + std::round(0.4f * u), by0 + std::round(0.2f * u)), palette::kTextDim, "flat");
-    draw_text(dl, FontFace::body, ImVec2(lx1 - std::round(0.4f * u) - text_size(FontFace::body, "sharp").x, by0 + std::round(0.2f * u)),
-              palette::kTextDim, "sharp");
+    // The ends in words, for whoever reads the lane for the first time; an
+    // end where the marker is pinned shows the value there instead.
+    const double pinned_side = v.now && std::fabs(v.now->dev_cents) > kLaneHalfCents ? v.now->dev_cents : 0.0;
+    if (!(pinned_side < 0.0))
+        draw_text(dl, FontFace::body, ImVec2(lx0 + std::round(0.4f * u), by0 + std::round(0.2f * u)), palette::kTextDim, "flat");
+    if (!(pinned_side > 0.0))
+        draw_text(dl, FontFace::body, ImVec2(lx1 - std::round(0.4f * u) - text_size(FontFace::body, "sharp").x, by0 + std::round(0.2f * u)),
+                  palette::kTextDim, "sharp");
 
     if (!v.now) return;
     const pitch::Reading& now = *v.now;
@@ -82,8 +86,12 @@ void draw_lane(ImDrawList* dl, float x0, float y0, float w, float band_h, const 
     if (std::isfinite(now.centre_dev_cents)) {
         const double c = std::clamp(now.centre_dev_cents, -kLaneHalfCents, kLaneHalfCents);
         const float dy = by1 + std::round(1.2f * u) + std::round(0.6f * u) + std::round(0.5f * u);
-        draw_diamond(dl, ImVec2(std::round(x_of(c)), dy), std::round(0.55f * u), palette::kCentreMarker, std::max(2.0f, std::round(0.12f * u)));
-        draw_text(dl, FontFace::body, ImVec2(std::round(x_of(c)) + 0.9f * u, dy - 0.5f * u), palette::kTextDim, "centre");
+        const float dx = std::round(x_of(c));
+        draw_diamond(dl, ImVec2(dx, dy), std::round(0.55f * u), palette::kCentreMarker, std::max(2.0f, std::round(0.12f * u)));
+        // Its word on the side with room: right of it, or left near the sharp end.
+        const float word_w = text_size(FontFace::body, "centre").x;
+        const float wx = dx + 0.9f * u + word_w <= lx1 + 0.5f * u ? dx + 0.9f * u : dx - 0.9f * u - word_w;
+        draw_text(dl, FontFace::body, ImVec2(std::round(wx), dy - 0.5f * u), palette::kTextDim, "centre");
     }
 }
 

@@ -38,7 +38,9 @@ namespace {
 constexpr ImGuiWindowFlags kPanelFlags = ImGuiWindowFlags_NoDecoration | ImGuiWindowFlags_NoMove | ImGuiWindowFlags_NoSavedSettings |
                                          ImGuiWindowFlags_NoBringToFrontOnFocus | ImGuiWindowFlags_NoScrollWithMouse;
 constexpr double kTraceS = 10.0;           // the trace shows the last 10 s
-constexpr double kTraceHalfCents = 75.0;   // ... over ±75 cents around the target
+constexpr double kTraceHalfCents = 75.0;   // ... over ±75 cents around the target at least,
+constexpr double kTraceMarginCents = 10.0; // ... and this beyond the highest and lowest pitch sung,
+constexpr double kTraceMaxHalfCents = 600.0;  // ... up to ±600 cents
 
 ImVec4 v4(std::uint32_t c) { return ImGui::ColorConvertU32ToFloat4(c); }
 
@@ -64,7 +66,10 @@ constexpr KeyHelp kPracticeKeys[] = {
 
 class PracticeScreen final : public Screen {
 public:
-    PracticeScreen() : points_(4096) { std::snprintf(root_buf_, sizeof root_buf_, "A2"); }
+    PracticeScreen() : points_(4096) {
+        range_.reserve(4096);  // 10 s at a 5 ms hop is 2000 readings
+        std::snprintf(root_buf_, sizeof root_buf_, "A2");
+    }
     ScreenId id() const override { return ScreenId::practice; }
     std::span<const KeyHelp> keys() const override { return kPracticeKeys; }
     void build(AppState& app, const ScreenArea& area, double dt_s) override;
@@ -78,6 +83,7 @@ private:
     void controls(AppState& app);
 
     std::vector<ImVec2> points_;   // trace polyline scratch, sized once
+    std::vector<double> range_;    // the trace's recent pitches, for its range; reserved once
     struct Label {
         float y;          // the line's row
         std::string text;
@@ -203,13 +209,34 @@ void PracticeScreen::trace(AppState& app, ImDrawList* dl, float x0, float y0, fl
         const pitch::Target& t = app.targets().targets[static_cast<std::size_t>(app.fixed_index())];
         trace_centre_cents_ = t.interval.cents();
     }
-    const double lo = trace_centre_cents_ - kTraceHalfCents, hi = trace_centre_cents_ + kTraceHalfCents;
+    // ±75 cents around the target, widened (up to ±kTraceMaxHalfCents) to
+    // hold whatever was sung in the last 10 s: a performer far off still
+    // sees where they are.
+    const TraceStore& tr = app.trace();
+    const double now = tr.size() ? tr.newest()->t_s : 0.0;
+    // The extremes are the 1st and 99th percentiles, so a stray reading
+    // (an octave slip) does not squeeze the target lines together.
+    double lo = trace_centre_cents_ - kTraceHalfCents, hi = trace_centre_cents_ + kTraceHalfCents;
+    range_.clear();
+    for (std::size_t i = 0; i < tr.size() && range_.size() < range_.capacity(); ++i) {
+        const pitch::Reading& r = tr.at(i);
+        if (now - r.t_s <= kTraceS && r.voiced() && std::isfinite(r.cents_above_root)) range_.push_back(r.cents_above_root);
+    }
+    if (range_.size() >= 20) {
+        const auto at = [&](double q) {
+            const auto k = static_cast<std::ptrdiff_t>(q * static_cast<double>(range_.size() - 1));
+            std::nth_element(range_.begin(), range_.begin() + k, range_.end());
+            return range_[static_cast<std::size_t>(k)];
+        };
+        lo = std::min(lo, at(0.01) - kTraceMarginCents);
+        hi = std::max(hi, at(0.99) + kTraceMarginCents);
+    }
+    lo = std::max(lo, trace_centre_cents_ - kTraceMaxHalfCents);
+    hi = std::min(hi, trace_centre_cents_ + kTraceMaxHalfCents);
     const float ppc = (py1 - py0) / static_cast<float>(hi - lo);
     auto y_of = [&](double cents) { return py1 - static_cast<float>(cents - lo) * ppc; };
 
     // Seconds: a faint line every 2 s.
-    const TraceStore& tr = app.trace();
-    const double now = tr.size() ? tr.newest()->t_s : 0.0;
     const float ppsec = (px1 - px0) / static_cast<float>(kTraceS);
     for (int s = 0; s <= static_cast<int>(kTraceS); s += 2) {
         const float x = std::round(px1 - static_cast<float>(s) * ppsec);
