@@ -108,8 +108,9 @@ void print_text(const Context& c, double a4_hz) {
                 const auto placed = tc.shift ? std::optional<pitch::Ratio>(*tc.shift * pc.root) : std::nullopt;
                 root += " -> " + ratio_text(placed);
             }
-            std::printf("  %3zu  %-*s  %-24s %10.3f   %s\n", k + 1, static_cast<int>(sym_w), pc.symbol.c_str(),
-                        root.c_str(), tc.shift_cents, k == 0 ? "" : common_words(c, tc).c_str());
+            const std::string common = k == 0 ? std::string() : "   " + common_words(c, tc);
+            std::printf("  %3zu  %-*s  %-24s %10.3f%s\n", k + 1, static_cast<int>(sym_w), pc.symbol.c_str(), root.c_str(), tc.shift_cents,
+                        common.c_str());
         }
         std::printf("  drift by the end: %s\n", drift_words(t).c_str());
         if (t.rule == pitch::DriftRule::common_tones) {

@@ -291,8 +291,8 @@ int run_ensemble(const EnsembleOptions& o) {
                     std::string(pitch::reference_title(ref)).c_str(), engine.stream_time_s(), engine.input_name().c_str());
         std::size_t name_w = 6;
         for (const auto& p : players) name_w = std::max(name_w, p.name.size());
-        std::printf("  %-*s %4s %6s %7s  %10s  %8s  %8s  %s\n", static_cast<int>(name_w), "player", "ch", "voice", "ratio", "median", "spread",
-                    "in tune", "");
+        std::printf("  %-*s %4s %6s %7s  %10s  %8s  %8s\n", static_cast<int>(name_w), "player", "ch", "voice", "ratio", "median", "spread",
+                    "in tune");
         for (std::size_t i = 0; i < np; ++i) {
             const Tally& t = tally[i];
             const double med = median(t.devs);
