@@ -1,6 +1,6 @@
-// SimulatedRoom — what a microphone hears of the speakers, in its simplest form.
+// SimulatedRoom — what a microphone hears of the loudspeakers, in its simplest form.
 //
-// The drone leaves the speaker, travels (a delay of whole samples), loses or
+// The drone leaves the loudspeaker, travels (a delay of whole samples), loses or
 // gains level (a gain), and is coloured by the room and the microphone (a
 // one-pole low-pass, y[n] = y[n-1] + a (x[n] - y[n-1]), a = 1 - e^{-2 pi fc / fs},
 // the textbook RC filter). Used by the demo performer's microphone and by
@@ -18,7 +18,7 @@ namespace beatless::audio {
 
 struct RoomConfig {
     double sample_rate_hz = 48000.0;
-    double delay_s = 0.007;        // speaker to microphone (default 7 ms, about 2.4 m)
+    double delay_s = 0.007;        // loudspeaker to microphone (default 7 ms, about 2.4 m)
     double gain = 0.8;             // linear level at the microphone (default 0.8)
     double lowpass_hz = 3000.0;    // one-pole corner (default 3 kHz; 0 = no filter)
 };
@@ -29,12 +29,12 @@ public:
         delay_.assign(static_cast<std::size_t>(std::lround(c.delay_s * c.sample_rate_hz)) + 1, 0.0f);
         a_ = c.lowpass_hz > 0.0 ? 1.0 - std::exp(-2.0 * std::numbers::pi * c.lowpass_hz / c.sample_rate_hz) : 1.0;
     }
-    // Adds the room's version of `speaker` into `mic`. Allocates: no.
-    void process_add(std::span<const float> speaker, std::span<float> mic) noexcept {
-        const std::size_t n = std::min(speaker.size(), mic.size());
+    // Adds the room's version of `loudspeaker` into `mic`. Allocates: no.
+    void process_add(std::span<const float> loudspeaker, std::span<float> mic) noexcept {
+        const std::size_t n = std::min(loudspeaker.size(), mic.size());
         const std::size_t len = delay_.size();
         for (std::size_t i = 0; i < n; ++i) {
-            delay_[pos_] = speaker[i];
+            delay_[pos_] = loudspeaker[i];
             pos_ = pos_ + 1 == len ? 0 : pos_ + 1;
             const double x = delay_[pos_];  // the oldest sample: len - 1 samples ago
             y_ += a_ * (x - y_);

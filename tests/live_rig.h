@@ -5,7 +5,7 @@
 // output from the playback callback, the way a sound card does. The
 // microphone is a known voice (precomputed samples) plus, when the drone
 // plays, the engine's own output one block later through a SimulatedRoom
-// (delay, gain, one-pole low-pass): the microphone hears the speakers.
+// (delay, gain, one-pole low-pass): the microphone hears the loudspeakers.
 // After each block the analysis runs in this thread (start(false)), so every
 // reading is stamped with the number of samples captured when it was
 // published: latency is counted in samples, not wall time. Below it, voices

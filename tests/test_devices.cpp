@@ -56,7 +56,7 @@ TEST_CASE("bad device choices: one line naming the device and the problem") {
     const auto devs = three();
     const std::string none = choose_error({}, "", Direction::input);
     CHECK(none == "no audio input device found (use --demo for the built-in performer)");
-    CHECK(choose_error({fake_device(0, "Speakers", 0, 2)}, "", Direction::input).find("--demo") != std::string::npos);
+    CHECK(choose_error({fake_device(0, "Loudspeakers", 0, 2)}, "", Direction::input).find("--demo") != std::string::npos);
     CHECK(choose_error(devs, "9", Direction::input) == "input device 9: no such device (see beatless devices)");
     CHECK(choose_error(devs, "5", Direction::input) == "device 5 'HDMI Output' has no input channels");
     CHECK(choose_error(devs, "theremin", Direction::input) ==

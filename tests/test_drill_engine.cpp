@@ -115,7 +115,7 @@ TEST_CASE("a scripted attempt through the engine: the logged lock time, mean and
     test::LiveRig rig(rate, 256);
     pitch::ReadingConfig reading;
     reading.root_hz = d.drone.root_hz;
-    audio::RoomConfig room;  // the defaults: the microphone hears the speakers
+    audio::RoomConfig room;  // the defaults: the microphone hears the loudspeakers
     rig.open(reading, one_target_set(d.targets.front()), drill_drone(d), room);
     rig.voice = voice(rate, 9.5, hold_start);
 

@@ -122,7 +122,7 @@ public:
     bool caution_needed() const { return !settings_.caution_acknowledged; }
     void acknowledge_caution();
     bool drone_on() const { return drone_on_; }
-    bool drone_heard() const { return drone_heard_; }  // an output stream plays it (false for the demo without speakers)
+    bool drone_heard() const { return drone_heard_; }  // an output stream plays it (false for the demo without loudspeakers)
     void set_drone_on(bool on);                      // refused with a message before the caution is acknowledged
     void toggle_drone() { set_drone_on(!drone_on_); }
     void set_drone_level(double level_dbfs);         // clamped to -80 .. -6 dBFS

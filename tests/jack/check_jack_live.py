@@ -3,7 +3,7 @@
 
 Starts a private jackd (dummy driver, 48 kHz, 256-frame periods), then runs
 `beatless devices` and `beatless listen` against PortAudio's JACK device,
-wiring ports with jack_connect the way a microphone hears the speakers:
+wiring ports with jack_connect the way a microphone hears the loudspeakers:
   1. the drone looped back into the input without removal: readings at the
      root, A2 = 110 Hz (ISO 16: A4 = 440 Hz, 12-TET), within 1 cent;
   2. the drone looped back and a voice file at 154 Hz (7/5 above 110 Hz)
