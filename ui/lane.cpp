@@ -36,7 +36,8 @@ void draw_lane(ImDrawList* dl, float x0, float y0, float w, float band_h, const 
     }
     // The ends in words, for whoever reads the lane for the first time; an
     // end where the marker is pinned shows the value there instead.
-    const double pinned_side = v.now && std::fabs(v.now->dev_cents) > kLaneHalfCents ? v.now->dev_cents : 0.0;
+    const bool out = v.now && std::fabs(v.now->dev_cents) > kLaneHalfCents;
+    const double pinned_side = out ? v.now->dev_cents : 0.0;
     if (!(pinned_side < 0.0))
         draw_text(dl, FontFace::body, ImVec2(lx0 + std::round(0.4f * u), by0 + std::round(0.2f * u)), palette::kTextDim, "flat");
     if (!(pinned_side > 0.0))
@@ -66,7 +67,6 @@ void draw_lane(ImDrawList* dl, float x0, float y0, float w, float band_h, const 
 
     // The marker: a needle across the band with the state's shape above it.
     const double dev_now = now.dev_cents;
-    const bool out = std::fabs(dev_now) > kLaneHalfCents;
     const double pinned = std::clamp(dev_now, -kLaneHalfCents, kLaneHalfCents);
     const float mx = std::round(x_of(pinned));
     const float nw = std::max(3.0f, std::round(0.3f * u));

@@ -102,6 +102,20 @@ private:
     bool help_ = false;
 };
 
+// A device chooser for the screens (Settings, Ensemble): the devices with
+// inputs (or outputs), listed again every few seconds, shown in a combo with
+// "system default" first; show_channels adds each one's channel count.
+class DevicePicker {
+public:
+    // Returns true and sets `chosen` ("" = the system default) when one is picked.
+    bool combo(AppState& app, const char* id, const std::string& current, const std::string& shown, bool input, bool show_channels,
+               std::string& chosen);
+
+private:
+    std::vector<audio::DeviceInfo> devices_;
+    double listed_at_s_ = -1e9;
+};
+
 // The hearing caution's text (the banner and the Settings screen).
 const char* caution_text();
 

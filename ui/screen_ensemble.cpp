@@ -110,8 +110,7 @@ private:
     char name_buf_[pitch::kMaxPlayers][40];
     bool bufs_from_settings_ = false;
     std::vector<ImVec2> trail_;   // the lane's trail, reused every frame
-    std::vector<audio::DeviceInfo> devices_;  // the input choices, listed again every few seconds
-    double devices_at_s_ = -1e9;
+    DevicePicker inputs_;
 };
 
 // ---------------------------------------------------------------------------
@@ -363,28 +362,11 @@ void EnsembleScreen::input_combo(AppState& app) {
         ImGui::TextUnformatted(session_.input_text().c_str());
         return;
     }
-    if (app.app_time_s() - devices_at_s_ > 5.0) {
-        devices_ = app.devices();
-        devices_at_s_ = app.app_time_s();
-    }
     const EnsembleSettings& es = app.settings().ensemble;
     const std::string shown = es.input_device.empty() ? "system default: " + session_.input_text() : es.input_device;
     ImGui::SetNextItemWidth(std::round(14.0f * u));
-    if (ImGui::BeginCombo("##ensemble_input", shown.c_str())) {
-        auto choose = [&](const std::string& name) {
-            EnsembleSettings e = es;
-            e.input_device = name;
-            session_.apply(app, e);
-        };
-        if (ImGui::Selectable("system default", es.input_device.empty())) choose("");
-        for (const audio::DeviceInfo& d : devices_) {
-            if (d.max_input_channels <= 0) continue;
-            const std::string text = d.name + "  (" + d.host_api + ", " + std::to_string(d.max_input_channels) + " in)";
-            if (ImGui::Selectable(text.c_str(), d.name == es.input_device)) choose(d.name);
-        }
-        if (devices_.empty()) ImGui::TextColored(v4(palette::kTextDim), "no audio devices found");
-        ImGui::EndCombo();
-    }
+    EnsembleSettings e = es;
+    if (inputs_.combo(app, "##ensemble_input", es.input_device, shown, true, true, e.input_device)) session_.apply(app, e);
 }
 
 void EnsembleScreen::editor(AppState& app, float x0, float y0, float w, float h) {

@@ -37,12 +37,11 @@ private:
     float col_x_ = 0.0f;   // window-relative x of the current column
     float col_w_ = 0.0f;
     void device_combo(AppState& app, const char* id, bool input);
+    DevicePicker inputs_, outputs_;
 
     float label_w_ = 0.0f;
     char root_buf_[32] = "";
     float font_scale_ = 0.0f;   // the slider's value while it is dragged
-    std::vector<audio::DeviceInfo> devices_;
-    double devices_at_s_ = -1e9;
 };
 
 void SettingsScreen::section(const char* title) {
@@ -79,19 +78,9 @@ void SettingsScreen::note(const std::string& text) {
 void SettingsScreen::device_combo(AppState& app, const char* id, bool input) {
     const Settings& s = app.settings();
     const std::string& cur = input ? s.input_device : s.output_device;
-    const std::string shown = cur.empty() ? std::string("system default") : cur;
-    if (ImGui::BeginCombo(id, shown.c_str())) {
-        if (ImGui::Selectable("system default", cur.empty()))
-            input ? app.set_devices("", s.output_device) : app.set_devices(s.input_device, "");
-        for (const audio::DeviceInfo& d : devices_) {
-            if ((input ? d.max_input_channels : d.max_output_channels) <= 0) continue;
-            const std::string text = d.name + "  (" + d.host_api + ")";
-            if (ImGui::Selectable(text.c_str(), d.name == cur))
-                input ? app.set_devices(d.name, s.output_device) : app.set_devices(s.input_device, d.name);
-        }
-        if (devices_.empty()) ImGui::TextColored(v4(palette::kTextDim), "no audio devices found");
-        ImGui::EndCombo();
-    }
+    std::string chosen;
+    if (!(input ? inputs_ : outputs_).combo(app, id, cur, cur.empty() ? std::string("system default") : cur, input, false, chosen)) return;
+    input ? app.set_devices(chosen, s.output_device) : app.set_devices(s.input_device, chosen);
 }
 
 void SettingsScreen::build(AppState& app, const ScreenArea& area, double dt_s) {
@@ -160,7 +149,7 @@ void SettingsScreen::build(AppState& app, const ScreenArea& area, double dt_s) {
             double hz;
             const char* text;
         };
-        static constexpr Floor kFloors[] = {{70.0, "70 Hz: voices, violin, viola"},
+        static constexpr Floor kFloors[] = {{kDefaultLowestHz, "70 Hz: voices, violin, viola"},
                                             {55.0, "55 Hz: cello, a low bass voice"},
                                             {38.0, "38 Hz: double bass"}};
         std::string shown = pitch::format_trimmed(s.lowest_hz, 1) + " Hz";
@@ -172,7 +161,7 @@ void SettingsScreen::build(AppState& app, const ScreenArea& area, double dt_s) {
                 if (ImGui::Selectable(f.text, f.hz == s.lowest_hz)) app.set_lowest_hz(f.hz);
             ImGui::EndCombo();
         }
-        if (s.lowest_hz < 70.0) note("A lower floor needs a longer window: readings settle a little later.");
+        if (s.lowest_hz < kDefaultLowestHz) note("A lower floor needs a longer window: readings settle a little later.");
     }
 
     section("Display");
@@ -191,10 +180,6 @@ void SettingsScreen::build(AppState& app, const ScreenArea& area, double dt_s) {
         ImGui::SetCursorPosY(top_y);
     }
     section("Audio devices");
-    if (app.app_time_s() - devices_at_s_ > 5.0) {
-        devices_ = app.devices();
-        devices_at_s_ = app.app_time_s();
-    }
     label("Input");
     ImGui::SetNextItemWidth(field_w);
     device_combo(app, "##input", true);

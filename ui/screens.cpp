@@ -53,6 +53,35 @@ std::string built_screen_keys() {
 
 float ui_unit() { return font_px(FontFace::body); }
 
+bool DevicePicker::combo(AppState& app, const char* id, const std::string& current, const std::string& shown, bool input,
+                         bool show_channels, std::string& chosen) {
+    if (app.app_time_s() - listed_at_s_ > 5.0) {  // a device plugged in shows up soon
+        devices_ = app.devices();
+        listed_at_s_ = app.app_time_s();
+    }
+    bool picked = false;
+    if (ImGui::BeginCombo(id, shown.c_str())) {
+        if (ImGui::Selectable("system default", current.empty())) {
+            chosen.clear();
+            picked = true;
+        }
+        for (const audio::DeviceInfo& d : devices_) {
+            const int channels = input ? d.max_input_channels : d.max_output_channels;
+            if (channels <= 0) continue;
+            std::string text = d.name + "  (" + d.host_api;
+            if (show_channels) text += ", " + std::to_string(channels) + (input ? " in" : " out");
+            text += ")";
+            if (ImGui::Selectable(text.c_str(), d.name == current)) {
+                chosen = d.name;
+                picked = true;
+            }
+        }
+        if (devices_.empty()) ImGui::TextColored(ImGui::ColorConvertU32ToFloat4(palette::kTextDim), "no audio devices found");
+        ImGui::EndCombo();
+    }
+    return picked;
+}
+
 namespace {
 
 constexpr ImGuiWindowFlags kFixed = ImGuiWindowFlags_NoDecoration | ImGuiWindowFlags_NoMove | ImGuiWindowFlags_NoSavedSettings |
