@@ -74,4 +74,12 @@ Ratio beating_ratio(const Interval& target, int octaves, int max_term) noexcept 
     return Ratio{num / g, den / g};
 }
 
+BeatBand beat_band(double beat_hz, const BeatBands& bands) noexcept {
+    if (!std::isfinite(beat_hz) || beat_hz < 0.0) return BeatBand::none;
+    if (beat_hz < bands.still_below_hz) return BeatBand::still;
+    if (beat_hz < bands.countable_below_hz) return BeatBand::countable;
+    if (beat_hz <= bands.rough_above_hz) return BeatBand::flutter;
+    return BeatBand::rough;
+}
+
 }  // namespace beatless::pitch

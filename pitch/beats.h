@@ -45,4 +45,27 @@ Ratio nearest_simple_ratio(double cents, int max_term = 11);
 // target's own octaves. Shifts stop short of 2^40 rather than overflow.
 Ratio beating_ratio(const Interval& target, int octaves, int max_term = 10) noexcept;
 
+// How a listener perceives a beat of a given rate. Common practice (no one
+// published table): a beat slower than about one in five seconds is not
+// heard within a held note; up to about 5 Hz the beats can be counted; from
+// there to about 15 Hz they are heard as a fast flutter; above about 15-20 Hz
+// they merge into roughness (cf. the roughness region of Plomp & Levelt,
+// "Tonal consonance and critical bandwidth", JASA 38, 1965).
+enum class BeatBand {
+    none,       // no beat known (unvoiced, no pair)
+    still,      // below still_below_hz: nearly pure
+    countable,  // slow enough to count
+    flutter,    // too fast to count, still heard as beating
+    rough,      // heard as roughness rather than beats
+};
+
+struct BeatBands {
+    double still_below_hz = 0.2;       // default 0.2 Hz: under one beat in five seconds
+    double countable_below_hz = 5.0;   // default 5 Hz (common practice)
+    double rough_above_hz = 15.0;      // default 15 Hz (common practice; Plomp & Levelt 1965)
+};
+
+// The band of a beat rate; BeatBand::none for NaN or a negative rate.
+BeatBand beat_band(double beat_hz, const BeatBands& bands = {}) noexcept;
+
 }  // namespace beatless::pitch

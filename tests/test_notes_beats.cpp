@@ -146,3 +146,19 @@ TEST_CASE("readings: the pair a listener hears for targets of high terms") {
     CHECK(s.heard_beat_hz == doctest::Approx(s.beat_hz));
     CHECK(s.heard_beat_at_target_hz == doctest::Approx(0.0).scale(1.0).epsilon(1e-9));
 }
+
+TEST_CASE("beat bands follow the stated rate limits (common practice; roughness above ~15 Hz, Plomp & Levelt 1965)") {
+    using pitch::BeatBand;
+    CHECK(pitch::beat_band(NAN) == BeatBand::none);
+    CHECK(pitch::beat_band(-1.0) == BeatBand::none);
+    CHECK(pitch::beat_band(0.0) == BeatBand::still);
+    CHECK(pitch::beat_band(0.19) == BeatBand::still);
+    CHECK(pitch::beat_band(0.2) == BeatBand::countable);
+    CHECK(pitch::beat_band(3.2) == BeatBand::countable);  // 3.2 Hz can be counted, not "too fast"
+    CHECK(pitch::beat_band(5.0) == BeatBand::flutter);
+    CHECK(pitch::beat_band(15.0) == BeatBand::flutter);
+    CHECK(pitch::beat_band(15.1) == BeatBand::rough);
+    pitch::BeatBands b;
+    b.rough_above_hz = 20.0;
+    CHECK(pitch::beat_band(18.0, b) == BeatBand::flutter);
+}
