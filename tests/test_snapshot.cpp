@@ -245,7 +245,7 @@ TEST_CASE("a malformed settings file: one warning naming the file and line; the 
         std::ofstream f(file);
         f << "kind = \"settings\"\n\n[drone]\nlevel_dbfs = \"loud\"\n";
     }
-    const auto r = run_program("snapshot --out " + home.file("s.png"), {"BEATLESS_HOME=" + home.path()});
+    const auto r = run_program("snapshot --settings " + file + " --out " + home.file("s.png"), {"BEATLESS_HOME=" + home.path()});
     CHECK(r.exit_code == 0);
     CHECK(r.err.find(file + ":4:") != std::string::npos);
     CHECK(r.err.find("level_dbfs") != std::string::npos);
@@ -254,7 +254,7 @@ TEST_CASE("a malformed settings file: one warning naming the file and line; the 
         std::ofstream f(file);
         f << "kind = \"settings\"\nscreen = [unclosed\n";
     }
-    const auto r2 = run_program("snapshot --out " + home.file("s2.png"), {"BEATLESS_HOME=" + home.path()});
+    const auto r2 = run_program("snapshot --settings " + file + " --out " + home.file("s2.png"), {"BEATLESS_HOME=" + home.path()});
     CHECK(r2.exit_code == 0);
     CHECK(r2.err.find(file + ":2:") != std::string::npos);
     CHECK(r2.err.find("default settings") != std::string::npos);
@@ -376,4 +376,32 @@ TEST_CASE("snapshot: the history panel plots each target's mean deviation per da
         const Image label = render_text(t, ui::FontFace::bold, ui::palette::kText, ui::palette::kPanelRaised, 1.0f);
         CHECK(find_exact(img, label, lower).size() == 1);
     }
+}
+
+TEST_CASE("snapshot: what a window left behind does not change the picture; --settings applies preferences only") {
+    // DESIGN, "One reading, one verdict": transient window state (screen
+    // shown, fixed target, chosen drill) never changes what a command-line
+    // run prints, and snapshot depends on no settings file unless given one.
+    TempDir home;
+    const std::string args = "--demo --targets tritones --root D3 --seconds 2";
+    const Image clean = read_png(snapshot(home, args, "clean.png"));
+    std::filesystem::create_directories(home.path() + "/config");
+    const std::string file = home.path() + "/config/settings.toml";
+    {
+        std::ofstream f(file);
+        f << "kind = \"settings\"\nscreen = \"drills\"\na4_hz = 442\n[drone]\nroot = \"C3\"\n[targets]\nset = \"7-limit\"\nchoice = \"fixed\"\nfixed = \"9/7\"\n";
+    }
+    const Image after = read_png(snapshot(home, args, "after.png"));
+    CHECK(after.px == clean.px);
+    // With --settings the preferences apply (the root box shows the saved
+    // root when the command line names none), the window's state does not:
+    // still the Practice screen.
+    const auto r = run_program("snapshot --demo --seconds 1 --settings " + file + " --out " + home.file("with.png"), {"BEATLESS_HOME=" + home.path()});
+    REQUIRE_MESSAGE(r.exit_code == 0, r.err);
+    CHECK(r.out.find("practice screen") != std::string::npos);
+    const auto bad = run_program("snapshot --demo --seconds 1 --settings " + home.file("none.toml") + " --out " + home.file("x.png"),
+                                 {"BEATLESS_HOME=" + home.path()});
+    CHECK(bad.exit_code == 1);
+    CHECK(bad.err.find("none.toml: no such settings file") != std::string::npos);
+    CHECK(!std::filesystem::exists(home.file("x.png")));
 }

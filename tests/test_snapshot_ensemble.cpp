@@ -96,7 +96,8 @@ void check_screen(const std::string& reference, const std::vector<double>& expec
     std::filesystem::create_directories(home.path() + "/config");
     std::ofstream(home.path() + "/config/settings.toml") << "kind = \"settings\"\n[drone]\nroot = \"G2\"\n[ensemble]\nchord = \"4:5:6:7\"\nreference = \""
                                                            << reference << "\"\n";
-    const std::string png = snapshot(home, "--demo --hold 0 --screen ensemble --seconds 3", "ensemble-" + reference + ".png");
+    const std::string png = snapshot(home, "--demo --hold 0 --screen ensemble --seconds 3 --settings " + home.path() + "/config/settings.toml",
+                                    "ensemble-" + reference + ".png");
     const Image img = read_png(png);
     const std::vector<LaneBox> lanes = find_lanes(img);
     REQUIRE(lanes.size() == expected.size());

@@ -6,7 +6,10 @@
 //   beatless snapshot [--demo [--hold CENTS]] [--screen NAME] [--seconds S]
 //            [--size WxH] [--scale F] [--drone] [--first-run] [--help-keys] --out FILE.png
 //
-// Both load the settings (ui/settings.h); only the window saves them. With
+// The window loads the performer's preferences (ui/settings.h), says on
+// start which differ from the defaults, and saves them; a snapshot starts
+// from the defaults and the command line alone unless given --settings FILE,
+// so what a window left behind never changes its picture. With
 // no display the window is not tried: one line says so and points to the
 // commands that work without one (exit 1). A snapshot runs the very same
 // AppState and ScreenDeck as the window, frame by frame at --fps, with the
@@ -54,6 +57,15 @@ Loaded load_user_settings() {
     if (!got.warning.empty()) std::fprintf(stderr, "beatless: warning: %s\n", got.warning.c_str());
     l.settings = std::move(got.settings);
     return l;
+}
+
+// One line naming the preferences in effect that differ from the defaults.
+void say_preferences(const Loaded& l) {
+    const std::vector<std::string> changed = changed_preferences(l.settings);
+    if (changed.empty()) return;
+    std::string line;
+    for (const std::string& c : changed) line += (line.empty() ? "" : ", ") + c;
+    std::fprintf(stderr, "beatless: preferences from %s: %s\n", l.file.string().c_str(), line.c_str());
 }
 
 ScreenId screen_from(const std::string& key, ScreenId fallback) {
@@ -128,6 +140,7 @@ int run_screens(const ScreenCommand& c, int frames) {
         return 1;
     }
     Loaded l = load_user_settings();
+    say_preferences(l);
     AppOptions o = options_of(c);
     o.save_settings = l.can_save;
     const ScreenId first = screen_from(c.screen, !c.drill.empty() && c.screen.empty() ? ScreenId::drills : l.settings.screen);
@@ -172,6 +185,7 @@ void register_snapshot(CLI::App& app, Runner& run) {
         double fps = 60.0;
         bool first_run = false;
         bool help_keys = false;
+        std::string settings_file;
         std::string out;
     };
     auto o = std::make_shared<Options>();
@@ -184,6 +198,7 @@ void register_snapshot(CLI::App& app, Runner& run) {
     sub->add_flag("--drone", o->c.drone, "Start the drone (in the simulation the demo's microphone hears it)");
     sub->add_flag("--first-run", o->first_run, "Show the screen as on first run, before the hearing caution is acknowledged");
     sub->add_flag("--help-keys", o->help_keys, "Show the help overlay with the keys");
+    sub->add_option("--settings", o->settings_file, "Take preferences from this settings file (default: none, the program's defaults)");
     sub->add_option("--out", o->out, "PNG file to write")->required();
     sub->callback([o, &run] {
         run = [o] {
@@ -197,7 +212,16 @@ void register_snapshot(CLI::App& app, Runner& run) {
             if (!(o->scale >= 0.5f && o->scale <= 4.0f)) throw Error("--scale " + pitch::format_trimmed(o->scale, 2) + ": out of range (0.5 to 4)");
             if (!(o->seconds >= 0.0 && o->seconds <= 600.0)) throw Error("--seconds " + pitch::format_trimmed(o->seconds, 3) + ": out of range (0 to 600)");
             if (!(o->fps >= 10.0 && o->fps <= 240.0)) throw Error("--fps " + pitch::format_trimmed(o->fps, 2) + ": out of range (10 to 240)");
-            Loaded l = load_user_settings();
+            Loaded l;
+            if (!o->settings_file.empty()) {
+                l.file = o->settings_file;
+                std::error_code ec;
+                if (!std::filesystem::is_regular_file(l.file, ec)) throw Error(o->settings_file + ": no such settings file");
+                LoadedSettings got = load_settings(l.file);
+                if (!got.warning.empty()) std::fprintf(stderr, "beatless: warning: %s\n", got.warning.c_str());
+                l.settings = std::move(got.settings);
+            }
+            l.can_save = false;
             if (!o->first_run) l.settings.caution_acknowledged = true;
             AppOptions ao = options_of(c);
             ao.simulated = true;

@@ -94,11 +94,9 @@ struct Reader {
 
 void read_into(const TomlDoc& doc, Settings& s, Reader& r) {
     const toml::table& top = doc.table;
-    r.string(top, "screen", [&](const std::string& v) {
-        const auto id = parse_screen_key(v);
-        if (!id) throw Error("'" + v + "' is not a screen (practice, drills, ensemble, review)");
-        s.screen = *id == ScreenId::settings ? ScreenId::practice : *id;
-    });
+    // "screen", [targets] "choice" and "fixed" were written by earlier
+    // versions: they are the window's transient state, not preferences, and
+    // are no longer read (a later run starts on Practice, nearest target).
     r.boolean(top, "caution_acknowledged", s.caution_acknowledged);
     r.number(top, "a4_hz", 400.0, 480.0, s.a4_hz);
     double fs_ = s.font_scale;
@@ -123,12 +121,6 @@ void read_into(const TomlDoc& doc, Settings& s, Reader& r) {
             if (pitch::trim(v).empty()) throw Error("must name a target set");
             s.target_set = v;
         });
-        r.string(*t, "choice", [&](const std::string& v) {
-            if (v == "nearest") s.choice = TargetChoice::nearest;
-            else if (v == "fixed") s.choice = TargetChoice::fixed;
-            else throw Error("'" + v + "' is neither \"nearest\" nor \"fixed\"");
-        });
-        r.string(*t, "fixed", [&](const std::string& v) { s.fixed_target = v; });
     }
     if (const toml::table* e = r.table("ensemble")) {
         EnsembleSettings& es = s.ensemble;
@@ -156,6 +148,24 @@ std::string quoted(std::string_view v) {
 }
 
 }  // namespace
+
+std::vector<std::string> changed_preferences(const Settings& s) {
+    const Settings d;
+    std::vector<std::string> out;
+    if (s.a4_hz != d.a4_hz) out.push_back("A4 " + pitch::format_trimmed(s.a4_hz, 1) + " Hz");
+    if (s.lowest_hz != d.lowest_hz) out.push_back("lowest note " + pitch::format_trimmed(s.lowest_hz, 1) + " Hz");
+    if (s.in_tune_cents != d.in_tune_cents) out.push_back("in tune within " + pitch::format_trimmed(s.in_tune_cents, 1) + " c");
+    if (s.font_scale != d.font_scale) out.push_back("text size x" + pitch::format_trimmed(s.font_scale, 2));
+    if (!s.input_device.empty()) out.push_back("input '" + s.input_device + "'");
+    if (!s.output_device.empty()) out.push_back("output '" + s.output_device + "'");
+    if (s.root != d.root) out.push_back("root " + s.root);
+    if (s.timbre != d.timbre) out.push_back("timbre " + std::string(audio::timbre_name(s.timbre)));
+    if (s.level_dbfs != d.level_dbfs) out.push_back("drone level " + pitch::format_trimmed(s.level_dbfs, 1) + " dBFS");
+    if (s.fifth != d.fifth) out.push_back(s.fifth ? "fifth on" : "fifth off");
+    if (s.octave != d.octave) out.push_back(s.octave ? "octave on" : "octave off");
+    if (s.target_set != d.target_set) out.push_back("targets " + s.target_set);
+    return out;
+}
 
 std::string_view target_choice_key(TargetChoice c) { return c == TargetChoice::fixed ? "fixed" : "nearest"; }
 
@@ -194,7 +204,6 @@ std::string settings_toml(const Settings& s) {
     std::ostringstream o;
     o << "# Beatless settings, written by the program; edit with care.\n"
       << "kind = \"settings\"\n"
-      << "screen = " << quoted(screen_key(s.screen == ScreenId::settings ? ScreenId::practice : s.screen)) << "\n"
       << "caution_acknowledged = " << (s.caution_acknowledged ? "true" : "false") << "\n"
       << "a4_hz = " << pitch::format_trimmed(s.a4_hz, 3) << "\n"
       << "font_scale = " << pitch::format_trimmed(s.font_scale, 2) << "\n"
@@ -210,8 +219,6 @@ std::string settings_toml(const Settings& s) {
       << "octave = " << (s.octave ? "true" : "false") << "\n"
       << "\n[targets]\n"
       << "set = " << quoted(s.target_set) << "\n"
-      << "choice = " << quoted(target_choice_key(s.choice)) << "\n"
-      << "fixed = " << quoted(s.fixed_target) << "\n"
       << "\n[ensemble]\n"
       << "chord = " << quoted(s.ensemble.chord) << "\n"
       << "reference = " << quoted(pitch::reference_key(s.ensemble.reference)) << "\n"

@@ -1,10 +1,9 @@
-// Settings — what the screens remember between runs, as a TOML file.
+// Settings — the performer's preferences, kept between runs as a TOML file.
 //
 // settings.toml in the config folder (ui/paths.h) holds our own keys:
-//   kind = "settings"; screen; caution_acknowledged; a4_hz; font_scale;
+//   kind = "settings"; caution_acknowledged; a4_hz; font_scale;
 //   in_tune_cents; input_device; output_device; [drone] root, timbre,
-//   level_dbfs, fifth, octave; [targets] set, choice ("nearest" | "fixed"),
-//   fixed; [ensemble] chord, reference, input_device, channels, names,
+//   level_dbfs, fifth, octave; [targets] set; [ensemble] chord, reference, input_device, channels, names,
 //   voices (the Ensemble screen). A missing file gives the defaults silently. A malformed file
 //   never stops the program: a syntax error gives the defaults, a bad value
 //   gives that value's default, and in both cases one warning line names
@@ -21,6 +20,7 @@
 #include <filesystem>
 #include <string>
 #include <string_view>
+#include <vector>
 
 namespace beatless::ui {
 
@@ -44,7 +44,9 @@ struct EnsembleSettings {
 inline constexpr double kDefaultLowestHz = 70.0;  // Settings::lowest_hz by default: audio::kLiveLowestHz
 
 struct Settings {
-    ScreenId screen = ScreenId::practice;        // last screen (Settings itself is not remembered)
+    // Session state: lives while the window is open, never saved (a window's
+    // last screen or fixed target must not change what a later run shows).
+    ScreenId screen = ScreenId::practice;        // screen shown
     bool caution_acknowledged = false;           // the hearing caution was confirmed on screen
     double a4_hz = 440.0;                        // 12-TET reference, 400 .. 480 Hz (default ISO 16)
     float font_scale = 1.0f;                     // text size on top of the display's DPI scale, 0.5 .. 3 (default 1)
@@ -61,8 +63,8 @@ struct Settings {
     bool octave = false;                         // add 2/1 (default off)
     // [targets]
     std::string target_set = "7-limit";          // built-in name or a .toml path
-    TargetChoice choice = TargetChoice::nearest;
-    std::string fixed_target;                    // interval text of the fixed target ("7/5"); "" = the set's first
+    TargetChoice choice = TargetChoice::nearest; // session state, not saved
+    std::string fixed_target;                    // session state, not saved: the fixed target ("7/5"); "" = the set's first
     // [ensemble]
     EnsembleSettings ensemble;
 
@@ -89,5 +91,9 @@ std::string settings_toml(const Settings& s);  // the file's text
 void save_settings(const std::filesystem::path& file, const Settings& s);
 
 std::string_view target_choice_key(TargetChoice c);  // "nearest", "fixed"
+
+// The preferences in `s` that differ from the defaults, as "A4 442 Hz",
+// "lowest note 55 Hz", ... (for the line a window prints on start).
+std::vector<std::string> changed_preferences(const Settings& s);
 
 }  // namespace beatless::ui
