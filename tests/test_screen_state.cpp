@@ -63,8 +63,6 @@ TEST_CASE("settings: written, read back by Python's tomllib, and parsed again to
     s.level_dbfs = -24.0;
     s.fifth = true;
     s.target_set = "tritones";
-    s.choice = ui::TargetChoice::fixed;
-    s.fixed_target = "7/5";
     const std::string file = dir.file("settings.toml");
     ui::save_settings(file, s);
     CHECK(toml_value(file, "d['kind']") == "settings");
@@ -75,7 +73,7 @@ TEST_CASE("settings: written, read back by Python's tomllib, and parsed again to
     CHECK(toml_value(file, "d['drone']['timbre']") == "bright");
     CHECK(toml_value(file, "d['drone']['level_dbfs']") == "-24");
     CHECK(toml_value(file, "d['drone']['fifth']") == "True");
-    CHECK(toml_value(file, "d['targets']['choice']") == "fixed");
+    CHECK(toml_value(file, "d['targets']['set']") == "tritones");
     CHECK(toml_value(file, "d['caution_acknowledged']") == "True");
     const ui::LoadedSettings back = ui::load_settings(file);
     CHECK(back.warning.empty());
@@ -110,30 +108,41 @@ TEST_CASE("settings: a missing file is the defaults; a malformed one warns in on
     // Another kind of file is refused as a whole.
     const auto other = ui::parse_settings("kind = \"targets\"\n", "t.toml");
     CHECK(other.warning.find("t.toml:1: kind is 'targets'") == 0);
-    // The Settings screen is a side trip: never remembered as the last screen.
-    CHECK(ui::parse_settings("kind = \"settings\"\nscreen = \"settings\"\n", "s").settings.screen == ui::ScreenId::practice);
+    // The screen shown, the choice and the fixed target are a window's
+    // transient state: an older file's keys are no longer read or written.
+    const auto old = ui::parse_settings("kind = \"settings\"\nscreen = \"drills\"\n[targets]\nchoice = \"fixed\"\nfixed = \"9/7\"\n", "s");
+    CHECK(old.settings.screen == ui::ScreenId::practice);
+    CHECK(old.settings.choice == ui::TargetChoice::nearest);
+    CHECK(old.settings.fixed_target.empty());
+    ui::Settings st;
+    st.screen = ui::ScreenId::drills;
+    st.choice = ui::TargetChoice::fixed;
+    st.fixed_target = "9/7";
+    const std::string text = ui::settings_toml(st);
+    CHECK(text.find("screen") == std::string::npos);
+    CHECK(text.find("fixed") == std::string::npos);
 }
 
-TEST_CASE("beat pulse: the phase advances by rate x time; still when pure; steady above 3 Hz (WCAG 2.1 SC 2.3.1)") {
+TEST_CASE("beat view: the envelope of two equal partials b Hz apart is |cos(pi b t)| (sum-to-product; Helmholtz ch. VIII)") {
     ui::BeatPulse p;
     p.update(1.8, 0.0);
-    CHECK(p.cue() == ui::BeatCue::pulse);
-    for (int i = 0; i < 60; ++i) p.update(1.8, 1.0 / 120.0);  // 0.5 s at 1.8 Hz = 0.9 cycles
+    CHECK(p.band() == pitch::BeatBand::countable);
+    for (int i = 0; i < 60; ++i) p.update(1.8, 1.0 / 120.0);  // 0.5 s at 1.8 Hz = 0.9 beats
     CHECK(p.phase() == doctest::Approx(0.9).epsilon(1e-9));
-    // Raised cosine: 0.5 - 0.5 cos(2 pi 0.9).
-    CHECK(p.brightness() == doctest::Approx(0.5 - 0.5 * std::cos(2.0 * M_PI * 0.9)).epsilon(1e-9));
+    CHECK(p.envelope_ago(0.0) == doctest::Approx(std::fabs(std::cos(M_PI * 0.9))).epsilon(1e-9));
+    // A quarter second back the phase was 0.45 beats: the envelope there, interpolated between frames.
+    CHECK(p.envelope_ago(0.25) == doctest::Approx(std::fabs(std::cos(M_PI * 0.45))).epsilon(1e-6));
+    CHECK(p.envelope_ago(0.253) == doctest::Approx(std::fabs(std::cos(M_PI * 1.8 * (0.5 - 0.253)))).epsilon(1e-6));
+    // Silence records no envelope: it scrolls in as "no beat".
+    for (int i = 0; i < 12; ++i) p.update(NAN, 1.0 / 120.0);
+    CHECK(p.band() == pitch::BeatBand::none);
+    CHECK(p.envelope_ago(0.0) < 0.0);
+    CHECK(p.envelope_ago(0.2) >= 0.0);  // the beat before the silence is still in the history
+    CHECK(p.envelope_ago(1000.0) < 0.0);
     p.update(0.1, 0.1);
-    CHECK(p.cue() == ui::BeatCue::still);
-    const double before = p.phase();
-    p.update(3.5, 0.25);  // faster than three a second: no flashing at all
-    CHECK(p.cue() == ui::BeatCue::fast);
-    CHECK(p.phase() == before);
-    CHECK(p.brightness() == 1.0);
-    p.update(3.0, 0.0);
-    CHECK(p.cue() == ui::BeatCue::pulse);  // exactly three a second is allowed
-    p.update(NAN, 0.1);
-    CHECK(p.cue() == ui::BeatCue::none);
-    CHECK(p.brightness() == 0.0);
+    CHECK(p.band() == pitch::BeatBand::still);
+    p.update(20.0, 0.1);
+    CHECK(p.band() == pitch::BeatBand::rough);
 }
 
 TEST_CASE("beat rate at the vibrato centre: |q f_centre - p f_root| (Helmholtz), else the instantaneous rate") {
@@ -201,7 +210,7 @@ TEST_CASE("readings flow in simulated time: the demo performer's note is the cur
     CHECK(app.target_ratio_text(app.current()) == "7/5");
     CHECK(app.current().dev_cents == doctest::Approx(10.0).epsilon(0.02));
     CHECK(app.trace().size() > 250);  // 2 s at a 5 ms hop, less the breath before the note
-    CHECK(app.pulse().cue() == ui::BeatCue::fast);  // 7 x 220 x (2^(10/1200) - 1) = 8.9 Hz
+    CHECK(app.pulse().band() == pitch::BeatBand::flutter);  // 7 x 220 x (2^(10/1200) - 1) = 8.9 Hz: 5 .. 15 Hz
 }
 
 TEST_CASE("settings are saved about a second after a change, and on shutdown") {
@@ -220,9 +229,9 @@ TEST_CASE("settings are saved about a second after a change, and on shutdown") {
         app.set_target_set("tritones");
         app.step_target(+1);
     }
-    CHECK(toml_value(file, "d['targets']['set']") == "tritones");
-    CHECK(toml_value(file, "d['targets']['choice']") == "fixed");
-    CHECK(toml_value(file, "d['targets']['fixed']") == "11/8");  // the set's second target
+    CHECK(toml_value(file, "d['targets']['set']") == "tritones");  // a preference: kept
+    // The fixed target is the window's transient state: not kept.
+    CHECK(toml_value(file, "'choice' in d['targets'] or 'fixed' in d['targets']") == "False");
 }
 
 TEST_CASE("keys: Space needs the caution first; arrows move target and root; H opens the help") {

@@ -164,7 +164,7 @@ void AppState::open_engine() {
         return;
     }
     trace_.clear();  // a new engine's stream time starts again at 0
-    has_current_ = false;
+    verdict_.reset();
     audio::DemoConfig dc;
     dc.sample_rate_hz = kSimRateHz;
     dc.root_hz = engine_root_hz();
@@ -285,8 +285,8 @@ void AppState::update(double dt_s) {
             engine_->supervise();
         }
     }
-    if (app_time_s_ - current_at_s_ > 0.5) has_current_ = false;
-    pulse_.update(has_current_ ? cue_beat_hz(current_) : NAN, dt_s);
+    verdict_.tick(dt_s);
+    pulse_.update(verdict_.verdict().current() ? verdict_.verdict().beat_hz : NAN, dt_s);
     if (drone_on_ && fade_s_ < kDroneFadeInS) {
         fade_s_ = std::min(kDroneFadeInS, fade_s_ + dt_s);
         apply_drone();
@@ -306,11 +306,7 @@ void AppState::take(const pitch::Reading& r) {
     trace_.push(r);
     level_dbfs_ = r.level_dbfs;
     if (r.clipped) last_clip_s_ = app_time_s_;
-    if (r.voiced() && r.target_index >= 0) {
-        current_ = r;
-        has_current_ = true;
-        current_at_s_ = app_time_s_;
-    }
+    verdict_.take(r);
 }
 
 audio::DroneSettings AppState::drone_sent() const { return engine_ ? engine_->drone() : audio::DroneSettings{}; }
@@ -497,7 +493,7 @@ bool AppState::set_target_set(const std::string& name) {
         if (set_.targets[i].interval == was) fixed_index_ = static_cast<int>(i);
     settings_.target_set = name;
     settings_.fixed_target = set_.targets[static_cast<std::size_t>(fixed_index_)].interval.str();
-    has_current_ = false;
+    verdict_.reset();
     changed();
     if (options_.demo && engine_) {  // the performer sings from the new set
         close_engine();
@@ -520,11 +516,11 @@ void AppState::step_target(int by) {
     if (refuse_in_drill("the target")) return;
     const int n = static_cast<int>(set_.targets.size());
     int from = fixed_index_;
-    if (settings_.choice == TargetChoice::nearest && has_current_ && current_.target_index >= 0) from = current_.target_index;
+    if (settings_.choice == TargetChoice::nearest && has_current() && current().target_index >= 0) from = current().target_index;
     fixed_index_ = ((from + by) % n + n) % n;
     settings_.choice = TargetChoice::fixed;
     settings_.fixed_target = set_.targets[static_cast<std::size_t>(fixed_index_)].interval.str();
-    has_current_ = false;
+    verdict_.reset();
     changed();
     if (options_.hold_dev_cents && engine_) {  // the holding performer moves to the new target
         close_engine();
@@ -590,7 +586,7 @@ bool AppState::begin_drill(const audio::DroneSettings& drone) {
 void AppState::set_drill_targets(const pitch::TargetSet& targets) {
     if (!drill_drone_) return;
     drill_targets_ = targets;
-    has_current_ = false;
+    verdict_.reset();
     apply_readings();
 }
 
@@ -598,7 +594,7 @@ void AppState::end_drill() {
     if (!drill_drone_) return;
     drill_drone_.reset();
     drill_targets_.reset();
-    has_current_ = false;
+    verdict_.reset();
     if (!demo_script_.empty()) {
         demo_script_.clear();
         if (options_.demo && engine_) {  // back to her usual round

@@ -25,6 +25,7 @@
 #include "pitch/reading.h"
 #include "pitch/targets.h"
 #include "ui/beat_pulse.h"
+#include "ui/verdict.h"
 #include "ui/settings.h"
 
 #include <deque>
@@ -123,6 +124,9 @@ public:
     void acknowledge_caution();
     bool drone_on() const { return drone_on_; }
     bool drone_heard() const { return drone_heard_; }  // an output stream plays it (false for the demo without loudspeakers)
+    // The drone sounds where the performer is: on, and played by an output
+    // stream (or, in simulated time, rendered into the demo's simulated room).
+    bool drone_sounding() const { return drone_on_ && (drone_heard_ || options_.simulated); }
     void set_drone_on(bool on);                      // refused with a message before the caution is acknowledged
     void toggle_drone() { set_drone_on(!drone_on_); }
     void set_drone_level(double level_dbfs);         // clamped to -80 .. -6 dBFS
@@ -147,8 +151,9 @@ public:
 
     // --- Readings ----------------------------------------------------------------------
     const TraceStore& trace() const { return trace_; }
-    const pitch::Reading& current() const { return current_; }   // newest voiced reading (see has_current)
-    bool has_current() const { return has_current_; }             // a voiced reading within the last 0.5 s
+    const Verdict& verdict() const { return verdict_.verdict(); }  // the screen's one verdict (ui/verdict.h)
+    const pitch::Reading& current() const { return verdict_.verdict().reading; }  // the verdict's reading (see has_current)
+    bool has_current() const { return verdict_.verdict().current(); }  // the verdict is current (not silent, not unsure)
     bool clip_warning() const { return app_time_s_ - last_clip_s_ < 2.0; }
     double level_dbfs() const { return level_dbfs_; }            // newest frame's input level
     const BeatPulse& pulse() const { return pulse_; }
@@ -208,9 +213,7 @@ private:
 
     TraceStore trace_;
     std::vector<pitch::Reading> take_buf_;
-    pitch::Reading current_{};
-    bool has_current_ = false;
-    double current_at_s_ = -1e9;
+    VerdictTracker verdict_;
     double last_clip_s_ = -1e9;
     double level_dbfs_ = -INFINITY;
     BeatPulse pulse_;

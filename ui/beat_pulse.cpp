@@ -7,8 +7,7 @@
 namespace beatless::ui {
 
 double cue_beat_hz(const pitch::Reading& r) noexcept {
-    // The pair the performer can hear: the coinciding pair, or for targets
-    // with partials above the 16th the pair of the nearest simple ratio.
+    // The audible pair (pitch/readings.h); the coinciding pair when none.
     const bool heard = r.heard_partial_root > 0 && r.heard_partial_voice > 0;
     const int pr = heard ? r.heard_partial_root : r.beat_partial_root;
     const int pv = heard ? r.heard_partial_voice : r.beat_partial_voice;
@@ -24,25 +23,39 @@ bool heard_pair_differs(const pitch::Reading& r) noexcept {
 }
 
 void BeatPulse::update(double beat_hz, double dt_s) noexcept {
-    if (!std::isfinite(beat_hz) || beat_hz < 0.0) {
-        cue_ = BeatCue::none;
-        return;
-    }
-    beat_hz_ = beat_hz;
-    cue_ = beat_hz > cfg_.fast_above_hz ? BeatCue::fast : beat_hz < cfg_.still_below_hz ? BeatCue::still : BeatCue::pulse;
-    if (cue_ == BeatCue::fast || !(dt_s > 0.0)) return;
-    phase_ += beat_hz * dt_s;
-    phase_ -= std::floor(phase_);
+    band_ = pitch::beat_band(beat_hz);
+    const bool on = band_ != pitch::BeatBand::none;
+    if (on) beat_hz_ = beat_hz;
+    if (!(dt_s > 0.0)) return;
+    time_s_ += dt_s;
+    if (on) phase_ += beat_hz * dt_s;
+    hist_[head_] = Sample{time_s_, phase_, on};
+    head_ = (head_ + 1) % kHistory;
+    if (size_ < kHistory) ++size_;
 }
 
-double BeatPulse::brightness() const noexcept {
-    switch (cue_) {
-        case BeatCue::none: return 0.0;
-        case BeatCue::fast: return 1.0;
-        case BeatCue::still:
-        case BeatCue::pulse: return 0.5 - 0.5 * std::cos(2.0 * std::numbers::pi * phase_);
+double BeatPulse::phase_ago(double ago_s) const noexcept {
+    if (size_ == 0 || !(ago_s >= 0.0)) return NAN;
+    const double t = time_s_ - ago_s;
+    // Newest first: the first sample at or before t, interpolated toward the next.
+    const Sample* later = nullptr;
+    for (std::size_t k = 0; k < size_; ++k) {
+        const Sample& s = hist_[(head_ + kHistory - 1 - k) % kHistory];
+        if (s.t_s <= t) {
+            if (!s.on) return NAN;
+            if (!later || !later->on || later->t_s <= s.t_s) return s.phase;
+            const double f = (t - s.t_s) / (later->t_s - s.t_s);
+            return s.phase + f * (later->phase - s.phase);
+        }
+        later = &s;
     }
-    return 0.0;
+    return NAN;
+}
+
+double BeatPulse::envelope_ago(double ago_s) const noexcept {
+    const double ph = phase_ago(ago_s);
+    if (!std::isfinite(ph)) return -1.0;
+    return std::fabs(std::cos(std::numbers::pi * ph));
 }
 
 }  // namespace beatless::ui

@@ -1,58 +1,60 @@
-// BeatPulse — the beat cue's visual pulse: a cycle at the beat rate, still
-// when the interval is pure, steady when the beats are too fast to follow.
+// BeatPulse — the beat view's model: the summed envelope of the two
+// coinciding partials, kept as a short history so the screen can scroll it.
 //
-// The pulse's phase advances by beat_hz x dt each frame, so it slows to
-// stillness as the interval becomes pure; its brightness is the raised
-// cosine 0.5 - 0.5 cos(2 pi phase). Above 3 Hz the pulse stops and a steady
-// sign takes its place: faster beats cannot be counted by eye, and W3C's
-// WCAG 2.1, success criterion 2.3.1 ("Three Flashes or Below Threshold"),
-// asks for no more than three flashes in any one second. Below 0.25 Hz (one
-// beat in four seconds) the cue says the interval is nearly pure (ours).
-// The rate shown is the one at the vibrato centre when there is one: the
-// instantaneous rate swings with every vibrato cycle, the ear follows the mean.
+// Two partials of equal strength a beat rate b apart sum to a tone whose
+// envelope is |2 cos(pi b t)| (the sum-to-product identity; Helmholtz, On
+// the Sensations of Tone, ch. VIII). The phase advances by beat_hz x dt
+// each frame, so the envelope's lobes widen as the interval becomes pure and
+// stop moving when it is; a frame with no beat (silence) records no
+// envelope, so silence scrolls in as a flat line. The rate is the one at the
+// vibrato centre when there is one: the instantaneous rate swings with every
+// vibrato cycle, the ear follows the mean. Bands: pitch::beat_band.
+// Thread: the screens' thread. Allocates: no (the history is sized once).
 #pragma once
 
+#include "pitch/beats.h"
 #include "pitch/reading.h"
+
+#include <array>
+#include <cstddef>
 
 namespace beatless::ui {
 
-enum class BeatCue {
-    none,    // no reading with a beat rate
-    still,   // slower than still_below_hz: nearly pure
-    pulse,   // a pulse the eye can follow
-    fast,    // faster than fast_above_hz: a steady sign instead of flicker
-};
-
-struct BeatPulseConfig {
-    double still_below_hz = 0.25;  // nearly pure below this (default 0.25 Hz, ours)
-    double fast_above_hz = 3.0;    // steady above this (default 3 Hz, WCAG 2.1 SC 2.3.1)
-};
-
-// The beat rate of the coinciding pair at the vibrato centre (when the
-// reading has one), else the reading's instantaneous rate; NaN when none.
+// The beat rate of the audible pair at the vibrato centre (when the reading
+// has one), else the reading's instantaneous rate; NaN when none.
 double cue_beat_hz(const pitch::Reading& r) noexcept;
-// True when the target's own coinciding partials lie above hearing and the
-// cue shows the pair of the nearest simple ratio instead.
+// True when the target's own coinciding partials are not the audible pair
+// and the cue shows another pair (which may beat even when in tune).
 bool heard_pair_differs(const pitch::Reading& r) noexcept;
 
 class BeatPulse {
 public:
-    explicit BeatPulse(const BeatPulseConfig& config = {}) : cfg_(config) {}
+    static constexpr std::size_t kHistory = 1024;  // frames kept (17 s at 60 frames/s)
 
-    // Advances by dt_s at beat_hz (NaN: no beat). Allocates: no.
+    // Advances by dt_s at beat_hz (NaN: no beat now). Allocates: no.
     void update(double beat_hz, double dt_s) noexcept;
 
-    BeatCue cue() const noexcept { return cue_; }
+    pitch::BeatBand band() const noexcept { return band_; }
     double beat_hz() const noexcept { return beat_hz_; }
-    double phase() const noexcept { return phase_; }          // cycles, 0 .. 1
-    double brightness() const noexcept;                       // 0 .. 1: pulse raised cosine, 1 when fast, 0 otherwise still
-    const BeatPulseConfig& config() const noexcept { return cfg_; }
+    double phase() const noexcept { return phase_; }   // beats elapsed, fractional part 0 .. 1
+    // The normalised envelope |cos(pi phase)| (0 .. 1) ago_s before now, or
+    // a negative value where no beat was known then (or beyond the history).
+    double envelope_ago(double ago_s) const noexcept;
+    // The phase (in beats) ago_s before now; NaN where no beat was known.
+    double phase_ago(double ago_s) const noexcept;
 
 private:
-    BeatPulseConfig cfg_;
-    BeatCue cue_ = BeatCue::none;
+    struct Sample {
+        double t_s = 0.0;
+        double phase = 0.0;
+        bool on = false;
+    };
+    pitch::BeatBand band_ = pitch::BeatBand::none;
     double beat_hz_ = 0.0;
-    double phase_ = 0.0;
+    double phase_ = 0.0;     // accumulated, unbounded (kept small by subtracting whole beats in step)
+    double time_s_ = 0.0;
+    std::array<Sample, kHistory> hist_{};
+    std::size_t head_ = 0, size_ = 0;
 };
 
 }  // namespace beatless::ui

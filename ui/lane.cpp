@@ -36,26 +36,29 @@ void draw_lane(ImDrawList* dl, float x0, float y0, float w, float band_h, const 
     }
     // The ends in words, for whoever reads the lane for the first time; an
     // end where the marker is pinned shows the value there instead.
-    const bool out = v.now && std::fabs(v.now->dev_cents) > kLaneHalfCents;
-    const double pinned_side = out ? v.now->dev_cents : 0.0;
+    const Verdict* vd = v.verdict && v.verdict->known() ? v.verdict : nullptr;
+    const bool out = vd && std::fabs(vd->dev_cents) > kLaneHalfCents;
+    const double pinned_side = out ? vd->dev_cents : 0.0;
     if (!(pinned_side < 0.0))
         draw_text(dl, FontFace::body, ImVec2(lx0 + std::round(0.4f * u), by0 + std::round(0.2f * u)), palette::kTextDim, "flat");
     if (!(pinned_side > 0.0))
         draw_text(dl, FontFace::body, ImVec2(lx1 - std::round(0.4f * u) - text_size(FontFace::body, "sharp").x, by0 + std::round(0.2f * u)),
                   palette::kTextDim, "sharp");
 
-    if (!v.now) return;
-    const pitch::Reading& now = *v.now;
-    const double target = now.target_cents;
-    const Tuning t = tuning_of(shown_dev_cents(now), tol);
-    const std::uint32_t col = tuning_colour(t);
+    if (!vd) return;
+    const bool current = vd->current();
+    const double target = vd->reading.target_cents;
+    const Tuning t = tuning_of(vd->dev_cents, tol);
+    const std::uint32_t col = current ? tuning_colour(t) : palette::kTextDim;
     const float mid = std::round(0.5f * (by0 + by1));
 
-    // Trail: the last half second of instantaneous pitch, fading with age.
-    const std::size_t trail_n = v.trail ? v.trail->size() : 0;
+    // Trail: the last half second of instantaneous pitch, fading with age
+    // (only while the verdict is current: a trail never outlives the sound).
+    const std::size_t trail_n = current && v.trail ? v.trail->size() : 0;
+    const double now_t = vd->reading.t_s;
     for (std::size_t i = trail_n; i-- > 0;) {
         const pitch::Reading& r = v.trail->at(i);
-        const double age = now.t_s - r.t_s;
+        const double age = now_t - r.t_s;
         if (age > kLaneTrailS) break;
         if (!r.voiced() || age < 0.0) continue;
         const double dev = r.cents_above_root - target;
@@ -65,33 +68,43 @@ void draw_lane(ImDrawList* dl, float x0, float y0, float w, float band_h, const 
         dl->AddRectFilled(ImVec2(std::round(x_of(dev)) - rr, mid - rr), ImVec2(std::round(x_of(dev)) + rr, mid + rr), palette::with_alpha(col, a));
     }
 
-    // The marker: a needle across the band with the state's shape above it.
-    const double dev_now = now.dev_cents;
+    // The marker: a needle across the band with the state's shape above it;
+    // hollow and dim when it only remembers the last verdict.
+    const double dev_now = vd->dev_cents;
     const double pinned = std::clamp(dev_now, -kLaneHalfCents, kLaneHalfCents);
     const float mx = std::round(x_of(pinned));
     const float nw = std::max(3.0f, std::round(0.3f * u));
     const float nx0 = mx - std::floor(nw * 0.5f);
-    dl->AddRectFilled(ImVec2(nx0, by0 - std::round(0.25f * u)), ImVec2(nx0 + nw, by1 + std::round(0.1f * u)), col);
+    const ImVec2 n0(nx0, by0 - std::round(0.25f * u)), n1(nx0 + nw, by1 + std::round(0.1f * u));
+    if (current) dl->AddRectFilled(n0, n1, col);
+    else dl->AddRect(n0, n1, col, 0.0f, 0, 1.0f);
     const float head_r = std::round(0.5f * u);
-    draw_tuning_shape(dl, t, ImVec2(mx, by0 - std::round(0.35f * u) - head_r), head_r, col);
-    if (out) {  // pinned: an arrow outward and the value
+    const ImVec2 head(mx, by0 - std::round(0.35f * u) - head_r);
+    if (current) draw_tuning_shape(dl, t, head, head_r, col);
+    else {
+        const float lw = text_size(FontFace::body, "last").x;
+        draw_text(dl, FontFace::body, ImVec2(std::round(std::clamp(mx - 0.5f * lw, lx0, lx1 - lw)), head.y - 0.6f * u), col, "last");
+    }
+    if (out) {  // pinned: an arrow outward and the verdict's value
         const float dir = dev_now > 0 ? 1.0f : -1.0f;
         dl->AddTriangleFilled(ImVec2(mx + dir * 1.6f * u, mid), ImVec2(mx + dir * 0.5f * u, mid - 0.7f * u), ImVec2(mx + dir * 0.5f * u, mid + 0.7f * u), col);
         const std::string s = signed_text(dev_now, 0) + " c";
         const float sw = text_size(FontFace::bold, s).x;
-        draw_text(dl, FontFace::bold, ImVec2(dir > 0 ? mx - sw - 0.8f * u : mx + 0.8f * u, by0 + 0.15f * u), palette::kText, s);
+        draw_text(dl, FontFace::bold, ImVec2(dir > 0 ? mx - sw - 0.8f * u : mx + 0.8f * u, by0 + 0.15f * u), current ? palette::kText : col, s);
     }
 
-    // The vibrato centre: a hollow diamond on its own track below the labels.
-    if (std::isfinite(now.centre_dev_cents)) {
-        const double c = std::clamp(now.centre_dev_cents, -kLaneHalfCents, kLaneHalfCents);
+    // Secondary: while the verdict is the vibrato centre, the instantaneous
+    // pitch as a small tick on its own track below the labels, marked "now".
+    if (current && vd->source == VerdictSource::centre && std::isfinite(vd->reading.dev_cents)) {
+        const double c = std::clamp(vd->reading.dev_cents, -kLaneHalfCents, kLaneHalfCents);
         const float dy = by1 + std::round(1.2f * u) + std::round(0.6f * u) + std::round(0.5f * u);
         const float dx = std::round(x_of(c));
-        draw_diamond(dl, ImVec2(dx, dy), std::round(0.55f * u), palette::kCentreMarker, std::max(2.0f, std::round(0.12f * u)));
+        const float r = std::round(0.45f * u);
+        dl->AddTriangleFilled(ImVec2(dx, dy - r), ImVec2(dx - r, dy + r), ImVec2(dx + r, dy + r), palette::kCentreMarker);
         // Its word on the side with room: right of it, or left near the sharp end.
-        const float word_w = text_size(FontFace::body, "centre").x;
+        const float word_w = text_size(FontFace::body, "now").x;
         const float wx = dx + 0.9f * u + word_w <= lx1 + 0.5f * u ? dx + 0.9f * u : dx - 0.9f * u - word_w;
-        draw_text(dl, FontFace::body, ImVec2(std::round(wx), dy - 0.5f * u), palette::kTextDim, "centre");
+        draw_text(dl, FontFace::body, ImVec2(std::round(wx), dy - 0.5f * u), palette::kTextDim, "now");
     }
 }
 

@@ -5,11 +5,14 @@
 // 100; the snapshot tests find the band's edges in the PNG and check the
 // marker against this), the in-tune window (±in_tune_cents, a colour only
 // the lane uses), ticks every 5 cents with labels every 10 below the band,
-// "flat" and "sharp" at the ends, the marker (a needle with the state's
-// shape: up sharp, down flat, a disc in tune) with a half-second fading
-// trail, and a hollow diamond for the vibrato centre on its own track below
-// the labels. Deviations beyond the band pin the marker to its edge with an
-// outward arrow and the value.
+// "flat" and "sharp" at the ends, the marker at the verdict (ui/verdict.h:
+// the vibrato centre once known, the pitch before) as a needle with the
+// state's shape (up sharp, down flat, a disc in tune), the instantaneous
+// pitch as a half-second fading trail and, while the verdict is the centre,
+// a small "now" tick on its own track below the labels. When the verdict is
+// not current (silence, low confidence) the marker is drawn hollow and dim
+// and labelled "last". Deviations beyond the band pin the marker to its edge
+// with an outward arrow and the verdict's value.
 #pragma once
 
 #include "pitch/reading.h"
@@ -26,12 +29,9 @@ constexpr double kLaneTrailS = 0.5;      // the marker's fading trail
 
 struct LaneView {
     double in_tune_cents = 5.0;           // half-width of the in-tune window; default 5
-    const pitch::Reading* now = nullptr;  // the newest voiced reading; null: the lane alone
+    const Verdict* verdict = nullptr;     // what the marker shows; null or idle: the lane alone
     const TraceStore* trail = nullptr;    // readings for the trail (newest last); null: none
 };
-
-// The deviation the readouts and the state use: the vibrato centre's when known.
-inline double shown_dev_cents(const pitch::Reading& r) { return std::isfinite(r.centre_dev_cents) ? r.centre_dev_cents : r.dev_cents; }
 
 // Draws the lane with its band's top-left at (x0, y0); the marker's head
 // rises about 1.4 body units above, the labels and the centre track take

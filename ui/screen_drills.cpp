@@ -421,7 +421,7 @@ void DrillsScreen::hold_now(AppState& app, ImDrawList* dl, float x0, float y0, f
     LaneView v;
     v.in_tune_cents = run_drill().tolerance_cents;
     const bool live = ph == DrillPhase::count_in || ph == DrillPhase::hold;
-    v.now = live && app.has_current() ? &app.current() : nullptr;
+    v.verdict = live ? &app.verdict() : nullptr;
     v.trail = &app.trace();
     draw_lane(dl, x0 + lane_margin, y, w - 2.0f * lane_margin, band_h, v);
 }

@@ -19,6 +19,7 @@
 #include "pitch/notes.h"
 #include "pitch/text.h"
 #include "ui/beat_pulse.h"
+#include "ui/beat_view.h"
 #include "ui/draw_kit.h"
 #include "ui/ensemble_plan.h"
 #include "ui/ensemble_session.h"
@@ -45,11 +46,6 @@ constexpr double kLaneHalfCents = 30.0;  // the lane spans ±30 cents
 
 ImVec4 v4(std::uint32_t c) { return ImGui::ColorConvertU32ToFloat4(c); }
 
-std::uint32_t mix(std::uint32_t a, std::uint32_t b, double t) {
-    const ImVec4 x = v4(a), y = v4(b);
-    const float f = static_cast<float>(std::clamp(t, 0.0, 1.0));
-    return ImGui::ColorConvertFloat4ToU32(ImVec4(x.x + (y.x - x.x) * f, x.y + (y.y - x.y) * f, x.z + (y.z - x.z) * f, 1.0f));
-}
 
 constexpr pitch::ChordReference kRefs[] = {pitch::ChordReference::fixed_root, pitch::ChordReference::sounding_bass,
                                            pitch::ChordReference::best_fit};
@@ -275,19 +271,12 @@ void EnsembleScreen::beat_row(ImDrawList* dl, const std::vector<float>& xs, floa
         const float cx = xs[i];
         const float rad = std::round(0.45f * u);
         const ImVec2 c(cx - std::round(2.6f * u), std::round(y0 + 0.5f * h));
-        const BeatPulse& bp = pulses_[i];
-        switch (bp.cue()) {
-            case BeatCue::none: dl->AddCircle(c, rad, palette::kGrid, 24, 2.0f); break;
-            case BeatCue::still:
-            case BeatCue::pulse:
-                dl->AddCircleFilled(c, rad, mix(palette::kPanel, palette::kPulse, bp.brightness()), 24);
-                dl->AddCircle(c, rad, palette::kPulse, 24, 2.0f);
-                break;
-            case BeatCue::fast:
-                dl->AddCircle(c, rad, palette::kPulse, 24, 2.0f);
-                dl->AddLine(ImVec2(c.x - 0.6f * rad, c.y), ImVec2(c.x + 0.6f * rad, c.y), palette::kPulse, 2.0f);
-                break;
-        }
+        // A small beat view: the last two seconds of the pair's envelope.
+        BeatViewStyle style;
+        style.span_s = 2.0;
+        style.background = palette::kPanelRaised;
+        style.envelope = palette::kPulse;
+        draw_beat_view(dl, pulses_[i], ImVec2(c.x - rad, c.y - rad), ImVec2(c.x + rad, c.y + rad), style);
         std::string top = live && pb.partial_a > 0 ? std::to_string(pb.partial_a) + ":" + std::to_string(pb.partial_b) : std::string("\xE2\x80\x93");
         char rate[32];
         if (std::isfinite(hz)) std::snprintf(rate, sizeof rate, hz < 9.95 ? "%.1f Hz" : "%.0f Hz", hz);

@@ -1,11 +1,16 @@
 // Practice — the screen a performer looks at while singing or playing.
 //
-//   ┌ target ratio and name ───────────────────── deviation, ▲/▼/● and a word ┐
+//   ┌ target ratio and name ────────────────────── the verdict, ▲/▼/● and a word ┐
 //   │ the lane: ±50 cents around the target, the in-tune window, the marker   │
-//   │ (instantaneous pitch) with a short fading trail, ◇ the vibrato centre   │
-//   │ nearest equal-tempered note · confidence · frequency                     │
-//   ├ the trace: the last 10 s in cents above the root, ─┬ the beat cue: rate, │
-//   │ a line and a ratio label for every target nearby    │ partial pair, pulse │
+//   │ at the verdict, the instantaneous pitch as a trail and a "now" tick     │
+//   │ the verdict's equal-tempered note · frequency · confidence · spread      │
+//   ├ the trace: the last 10 s in cents above the root, ─┬ the beat view:     │
+//   │ a line and a ratio label for every target nearby    │ rate, pair, envelope│
+//
+// One verdict (ui/verdict.h): the vibrato centre once a cycle is known, the
+// instantaneous pitch before; the number, word, colour, lane marker and note
+// all show it. Silence and low confidence show as "last ..." in dim text
+// within 100 ms.
 //   ├ drone controls · target set and choice ──────────────────────────────────┤
 //
 // The lane maps cents to pixels linearly: the band spans exactly -50 .. +50
@@ -19,6 +24,7 @@
 #include "pitch/text.h"
 #include "ui/commands.h"
 #include "ui/draw_kit.h"
+#include "ui/beat_view.h"
 #include "ui/lane.h"
 #include "ui/palette.h"
 #include "ui/screen.h"
@@ -44,11 +50,6 @@ constexpr double kTraceMaxHalfCents = 600.0;  // ... up to ±600 cents
 
 ImVec4 v4(std::uint32_t c) { return ImGui::ColorConvertU32ToFloat4(c); }
 
-std::uint32_t mix(std::uint32_t a, std::uint32_t b, double t) {
-    const ImVec4 x = v4(a), y = v4(b);
-    const float f = static_cast<float>(std::clamp(t, 0.0, 1.0));
-    return ImGui::ColorConvertFloat4ToU32(ImVec4(x.x + (y.x - x.x) * f, x.y + (y.y - x.y) * f, x.z + (y.z - x.z) * f, 1.0f));
-}
 
 
 std::string beat_text(double hz) {
@@ -59,10 +60,15 @@ std::string beat_text(double hz) {
 }
 
 constexpr KeyHelp kPracticeKeys[] = {
-    {"Marker", "your pitch now; its head: up sharp, down flat, disc in tune"},
-    {"Diamond", "below the lane: the centre of your vibrato"},
+    {"Marker", "the verdict: your vibrato's centre once a cycle is heard, your pitch before; head up sharp, down flat, disc in tune"},
+    {"Small triangle", "below the lane: your pitch now, while the marker shows the centre"},
+    {"Envelope", "right: the beat of the two partials that meet; wider lobes, slower beats"},
     {"Yellow line", "in the trace: the current target"},
 };
+
+const char* source_text(const Verdict& v) { return v.source == VerdictSource::centre ? "vibrato centre" : "pitch now"; }
+
+const char* quiet_word(const Verdict& v) { return v.state == VerdictState::uncertain ? "unsure" : "silent"; }
 
 class PracticeScreen final : public Screen {
 public:
@@ -101,21 +107,19 @@ private:
 
 void PracticeScreen::header(AppState& app, ImDrawList* dl, float x0, float y0, float w, float h) {
     const float u = ui_unit();
-    const bool live = app.has_current();
-    const pitch::Reading& r = app.current();
+    const Verdict& v = app.verdict();
+    const bool known = v.known();
+    const bool live = v.current();
     const bool fixed = app.settings().choice == TargetChoice::fixed;
     // Left: the target's ratio, large, and its name.
     std::string ratio, name;
-    if (live) {
-        ratio = app.target_ratio_text(r);
-        name = app.target_name_text(r);
-    } else if (fixed || app.trace().size() == 0) {
+    if (known) {
+        ratio = app.target_ratio_text(v.reading);
+        name = app.target_name_text(v.reading);
+    } else {
         const pitch::Target& t = app.targets().targets[static_cast<std::size_t>(app.fixed_index())];
         ratio = t.interval.str();
         name = t.name;
-    } else {
-        ratio = app.target_ratio_text(r);
-        name = app.target_name_text(r);
     }
     if (ratio.empty()) ratio = "\xE2\x80\x93";
     const float large = font_px(FontFace::large);
@@ -128,28 +132,33 @@ void PracticeScreen::header(AppState& app, ImDrawList* dl, float x0, float y0, f
     std::string sub = fixed ? "fixed target  \xE2\x86\x90 \xE2\x86\x92 to change,  N for nearest" : "nearest target in " + app.targets().title;
     draw_text(dl, FontFace::body, ImVec2(nx, ny + medium + std::round(0.25f * u)), palette::kTextDim, sub);
 
-    // Right: the deviation in cents, with the state's shape and word.
+    // Right: the verdict in cents, with the state's shape and word; when it
+    // is not current, the last value in dim text and why.
     const float right = x0 + w;
-    if (!live) {
+    if (!known) {
         const std::string idle = app.engine_running() ? "listening\xE2\x80\xA6" : "no input";
         draw_text(dl, FontFace::medium, ImVec2(right - text_size(FontFace::medium, idle).x, y0 + 0.5f * (h - medium)), palette::kTextDim, idle);
         return;
     }
-    const double dev = shown_dev_cents(r);
-    const Tuning t = tuning_of(dev, app.settings().in_tune_cents);
-    const std::uint32_t col = tuning_colour(t);
-    const std::string word = std::string(tuning_word(t));
-    const std::string num = signed_text(dev, 0);
-    const std::string unit = "cents";
+    const Tuning t = tuning_of(v.dev_cents, app.settings().in_tune_cents);
+    const std::uint32_t col = live ? tuning_colour(t) : palette::kTextDim;
+    const std::string word = live ? std::string(tuning_word(t)) : std::string(quiet_word(v));
+    const std::string num = (live ? "" : "last ") + signed_text(v.dev_cents, 0);
+    const std::string unit = live ? std::string("cents, ") + source_text(v) : std::string("cents");
     const float word_w = std::max(text_size(FontFace::medium, word).x, text_size(FontFace::body, unit).x);
     const float shape_r = std::round(0.42f * medium);
     const float word_x = right - word_w;
     draw_text(dl, FontFace::medium, ImVec2(word_x, ny), col, word);
     draw_text(dl, FontFace::body, ImVec2(word_x, ny + medium + std::round(0.25f * u)), palette::kTextDim, unit);
-    const float shape_x = word_x - std::round(0.7f * u) - shape_r;
-    draw_tuning_shape(dl, t, ImVec2(shape_x, ny + 0.55f * medium), shape_r, col);
-    const float num_w = text_size(FontFace::large, num).x;
-    draw_text(dl, FontFace::large, ImVec2(shape_x - shape_r - std::round(0.6f * u) - num_w, ty), col, num);
+    float num_right = word_x - std::round(0.6f * u);
+    if (live) {
+        const float shape_x = word_x - std::round(0.7f * u) - shape_r;
+        draw_tuning_shape(dl, t, ImVec2(shape_x, ny + 0.55f * medium), shape_r, col);
+        num_right = shape_x - shape_r - std::round(0.6f * u);
+    }
+    const FontFace nf = live ? FontFace::large : FontFace::medium;
+    const float num_y = live ? ty : ny;
+    draw_text(dl, nf, ImVec2(num_right - text_size(nf, num).x, num_y), col, num);
 }
 
 // ---------------------------------------------------------------------------
@@ -159,7 +168,7 @@ void PracticeScreen::header(AppState& app, ImDrawList* dl, float x0, float y0, f
 void PracticeScreen::lane(AppState& app, ImDrawList* dl, float x0, float y0, float w, float band_h) {
     LaneView v;
     v.in_tune_cents = app.settings().in_tune_cents;
-    v.now = app.has_current() ? &app.current() : nullptr;
+    v.verdict = &app.verdict();
     v.trail = &app.trace();
     draw_lane(dl, x0, y0, w, band_h, v);
 }
@@ -167,27 +176,32 @@ void PracticeScreen::lane(AppState& app, ImDrawList* dl, float x0, float y0, flo
 void PracticeScreen::info_line(AppState& app, ImDrawList* dl, float x0, float y0, float w) {
     const float u = ui_unit();
     (void)w;
-    if (!app.has_current()) return;
-    const pitch::Reading& r = app.current();
-    const pitch::NearestNote n = pitch::hz_to_note(r.f0_hz, app.settings().a4_hz);
+    const Verdict& v = app.verdict();
+    if (!v.known() || !(v.f0_hz > 0.0)) return;
+    const bool live = v.current();
+    const std::uint32_t strong = live ? palette::kText : palette::kTextDim;
+    // The same pitch as the verdict: its equal-tempered note and frequency.
+    const pitch::NearestNote n = pitch::hz_to_note(v.f0_hz, app.settings().a4_hz);
     char buf[160];
     float x = x0;
     auto put = [&](FontFace f, std::uint32_t col, const std::string& s, float gap) {
         draw_text(dl, f, ImVec2(x, y0), col, s);
         x += text_size(f, s).x + gap;
     };
-    put(FontFace::body, palette::kTextDim, "equal temperament", 0.4f * u);
+    if (!live) put(FontFace::body, palette::kTextDim, "last:", 0.6f * u);
+    put(FontFace::body, palette::kTextDim, source_text(v), 1.0f * u);
     std::snprintf(buf, sizeof buf, "%s %s c", n.name.c_str(), signed_text(n.offset_cents, 0).c_str());
-    put(FontFace::bold, palette::kText, buf, 1.5f * u);
+    put(FontFace::body, palette::kTextDim, "equal temperament", 0.4f * u);
+    put(FontFace::bold, strong, buf, 1.5f * u);
+    std::snprintf(buf, sizeof buf, "%.1f Hz", v.f0_hz);
+    put(FontFace::bold, strong, buf, 1.5f * u);
     put(FontFace::body, palette::kTextDim, "confidence", 0.4f * u);
-    std::snprintf(buf, sizeof buf, "%.0f %%", 100.0 * r.confidence);
-    put(FontFace::bold, r.confidence >= 0.8 ? palette::kText : palette::kTextDim, buf, 1.5f * u);
-    std::snprintf(buf, sizeof buf, "%.1f Hz", r.f0_hz);
-    put(FontFace::bold, palette::kText, buf, 1.5f * u);
-    if (std::isfinite(r.steadiness_cents)) {
+    std::snprintf(buf, sizeof buf, "%.0f %%", 100.0 * v.reading.confidence);
+    put(FontFace::bold, live && v.reading.confidence >= 0.8 ? palette::kText : palette::kTextDim, buf, 1.5f * u);
+    if (std::isfinite(v.reading.steadiness_cents)) {
         put(FontFace::body, palette::kTextDim, "spread", 0.4f * u);
-        std::snprintf(buf, sizeof buf, "%.0f c", r.steadiness_cents);
-        put(FontFace::bold, palette::kText, buf, 1.5f * u);
+        std::snprintf(buf, sizeof buf, "%.0f c", v.reading.steadiness_cents);
+        put(FontFace::bold, strong, buf, 1.5f * u);
     }
 }
 
@@ -204,7 +218,7 @@ void PracticeScreen::trace(AppState& app, ImDrawList* dl, float x0, float y0, fl
     draw_text(dl, FontFace::body, ImVec2(px0, y0 + std::round(0.35f * u)), palette::kTextDim, "Trace: the last 10 s, cents above the root");
     if (py1 - py0 < 2.0f * u || px1 - px0 < 4.0f * u) return;
 
-    if (app.has_current()) trace_centre_cents_ = app.current().target_cents;
+    if (app.verdict().known()) trace_centre_cents_ = app.current().target_cents;
     if (!std::isfinite(trace_centre_cents_)) {
         const pitch::Target& t = app.targets().targets[static_cast<std::size_t>(app.fixed_index())];
         trace_centre_cents_ = t.interval.cents();
@@ -245,8 +259,8 @@ void PracticeScreen::trace(AppState& app, ImDrawList* dl, float x0, float y0, fl
 
     // Target lines in every octave that falls in the range, labelled by ratio.
     labels_.clear();
-    const int cur = app.has_current() ? app.target_index_of(app.current()) : (app.settings().choice == TargetChoice::fixed ? app.fixed_index() : -1);
-    const int cur_oct = app.has_current() ? app.current().target_octaves : 0;
+    const int cur = app.verdict().known() ? app.target_index_of(app.current()) : (app.settings().choice == TargetChoice::fixed ? app.fixed_index() : -1);
+    const int cur_oct = app.verdict().known() ? app.current().target_octaves : 0;
     const auto& targets = app.targets().targets;
     for (std::size_t i = 0; i < targets.size(); ++i) {
         const double c0 = targets[i].interval.cents();
@@ -323,9 +337,10 @@ void PracticeScreen::trace(AppState& app, ImDrawList* dl, float x0, float y0, fl
         last_x = x;
     }
     flush();
-    if (app.has_current()) {
-        const float y = y_of(app.current().cents_above_root);
-        dl->AddCircleFilled(ImVec2(px1 - 1, y), std::round(0.3f * u), tuning_colour(tuning_of(shown_dev_cents(app.current()), app.settings().in_tune_cents)), 16);
+    if (app.has_current()) {  // the verdict, where the line ends
+        const Verdict& v = app.verdict();
+        const float y = y_of(v.cents_above_root);
+        dl->AddCircleFilled(ImVec2(px1 - 1, y), std::round(0.3f * u), tuning_colour(tuning_of(v.dev_cents, app.settings().in_tune_cents)), 16);
     }
     dl->PopClipRect();
 }
@@ -339,25 +354,27 @@ void PracticeScreen::beat_cue(AppState& app, ImDrawList* dl, float x0, float y0,
     dl->AddRectFilled(ImVec2(x0, y0), ImVec2(x0 + w, y0 + h), palette::kPanel, std::round(0.25f * u));
     const float x = x0 + std::round(0.8f * u);
     float y = y0 + std::round(0.35f * u);
-    draw_text(dl, FontFace::body, ImVec2(x, y), palette::kTextDim, "Beat rate");
+    const bool drone = app.drone_sounding();
+    draw_text(dl, FontFace::body, ImVec2(x, y), palette::kTextDim, drone ? "Beat rate" : "Beat rate (predicted: drone off)");
     y += std::round(1.4f * u);
     const BeatPulse& p = app.pulse();
-    const pitch::Reading& r = app.current();
-    const bool have = app.has_current() && p.cue() != BeatCue::none;
-    const std::string value = have ? beat_text(p.beat_hz()) : std::string("\xE2\x80\x93");
+    const Verdict& v = app.verdict();
+    const pitch::Reading& r = v.reading;
+    const bool have = v.current() && p.band() != pitch::BeatBand::none;
+    const std::string value = have ? beat_text(p.beat_hz()) : v.known() ? std::string(quiet_word(v)) : std::string("\xE2\x80\x93");
     draw_text(dl, FontFace::large, ImVec2(x, y), have ? palette::kText : palette::kTextDim, value);
     y += font_px(FontFace::large) + std::round(0.3f * u);
     if (have) {
         const bool other = heard_pair_differs(r);
-        const int pr = other ? r.heard_partial_root : r.beat_partial_root;
-        const int pv = other ? r.heard_partial_voice : r.beat_partial_voice;
+        const int pr = r.heard_partial_root > 0 ? r.heard_partial_root : r.beat_partial_root;
+        const int pv = r.heard_partial_voice > 0 ? r.heard_partial_voice : r.beat_partial_voice;
         const std::string a = ordinal(pr) + " partial of the root";
         const std::string b = "against the " + ordinal(pv) + " of the voice";
         draw_text(dl, FontFace::body, ImVec2(x, y), palette::kText, a);
         draw_text(dl, FontFace::body, ImVec2(x, y + std::round(1.2f * u)), palette::kText, b);
-        if (other) {
-            // The target's own pair (e.g. 729th against 512th) is above
-            // hearing: say what this nearby pair does when the note is right.
+        if (other && r.heard_beat_at_target_hz > 0.05) {
+            // The target's own pair lies out of hearing: this nearby pair
+            // beats even when the note is right; say at what rate.
             char line[96];
             std::snprintf(line, sizeof line, "in tune it beats %s", beat_text(r.heard_beat_at_target_hz).c_str());
             draw_text(dl, FontFace::body, ImVec2(x, y + std::round(2.4f * u)), palette::kTextDim, line);
@@ -366,47 +383,47 @@ void PracticeScreen::beat_cue(AppState& app, ImDrawList* dl, float x0, float y0,
     }
     y += std::round(2.8f * u);
 
-    // The pulse: a disc that brightens and dims once per beat, with two
-    // lines beside it saying what it shows.
+    // The envelope of the two partials' sum, scrolling right to left over
+    // the last few seconds: the lobes are the beats, wider as the interval
+    // becomes pure; a mark under each null measures one beat.
     const float room = y0 + h - y - std::round(0.5f * u);
-    if (room < 1.6f * u) return;
-    const BeatCue cue = have ? p.cue() : BeatCue::none;
-    std::string caption1, caption2;
-    switch (cue) {
-        case BeatCue::none: caption1 = "no beat to show", caption2 = "sing or play a note"; break;
-        case BeatCue::still: caption1 = "still: nearly pure", caption2 = "hold it there"; break;
-        case BeatCue::pulse:
-            caption1 = "pulses once per beat";
-            caption2 = heard_pair_differs(r) ? "match the in-tune rate" : "slower is closer";
+    if (room < 3.0f * u) return;
+    const pitch::BeatBand band = have ? p.band() : pitch::BeatBand::none;
+    std::string caption, advice;
+    switch (band) {
+        case pitch::BeatBand::none:
+            caption = v.known() ? std::string(v.state == VerdictState::uncertain ? "no sure pitch now" : "no sound now") : "sing or play a note";
             break;
-        case BeatCue::fast: caption1 = "too fast to follow", caption2 = "listen for roughness"; break;
+        case pitch::BeatBand::still: caption = "nearly pure", advice = "hold it there"; break;
+        case pitch::BeatBand::countable:
+            caption = "slow enough to count";
+            advice = heard_pair_differs(r) && r.heard_beat_at_target_hz > 0.05 ? "match the in-tune rate" : "slower is closer";
+            break;
+        case pitch::BeatBand::flutter: caption = "too fast to count", advice = "a flutter: move toward the target"; break;
+        case pitch::BeatBand::rough: caption = drone ? "heard as roughness" : "would be heard as roughness", advice = "not as beats"; break;
     }
-    const float caption_w = std::max(text_size(FontFace::body, caption1).x, text_size(FontFace::body, caption2).x);
-    const float rad = std::round(std::clamp(std::min({0.45f * room, 0.2f * w, 0.5f * (w - caption_w - 2.6f * u)}), 0.8f * u, 3.2f * u));
-    const ImVec2 c(std::round(x + rad), std::round(y + 0.5f * room));
-    const float ring = std::max(2.0f, std::round(0.12f * u));
-    switch (cue) {
-        case BeatCue::none:
-            dl->AddCircle(c, rad, palette::kGrid, 48, ring);
-            break;
-        case BeatCue::pulse:
-        case BeatCue::still:
-            dl->AddCircleFilled(c, rad, mix(palette::kPanel, palette::kPulse, p.brightness()), 48);
-            dl->AddCircle(c, rad, palette::kPulse, 48, ring);
-            break;
-        case BeatCue::fast: {
-            // Steady: a ring with a zig-zag across, no flicker.
-            dl->AddCircle(c, rad, palette::kPulse, 48, ring);
-            ImVec2 zz[9];
-            for (int i = 0; i < 9; ++i)
-                zz[i] = ImVec2(c.x - 0.7f * rad + static_cast<float>(i) * 0.175f * rad, c.y + ((i % 2) ? -0.25f : 0.25f) * rad);
-            dl->AddPolyline(zz, 9, palette::kPulse, ImDrawFlags_None, ring);
-            break;
-        }
+    if (have && (band == pitch::BeatBand::countable || band == pitch::BeatBand::flutter)) {
+        char period[48];
+        std::snprintf(period, sizeof period, "%sone beat %.2f s", advice.empty() ? "" : " \xC2\xB7 ", 1.0 / p.beat_hz());
+        if (text_size(FontFace::body, advice + period).x <= w - 1.6f * u) advice += period;
     }
-    const float tx = c.x + rad + std::round(0.8f * u);
-    draw_text(dl, FontFace::body, ImVec2(tx, c.y - 1.1f * u), palette::kText, caption1);
-    draw_text(dl, FontFace::body, ImVec2(tx, c.y + 0.1f * u), palette::kTextDim, caption2);
+    const float cap_h = std::round((advice.empty() ? 1.3f : 2.5f) * u);
+    const float vx0 = x, vx1 = x0 + w - std::round(0.8f * u);
+    const float vy0 = y, vy1 = y + room - cap_h - std::round(0.9f * u);
+    if (vy1 - vy0 < 1.5f * u || vx1 - vx0 < 4.0f * u) return;
+    dl->AddRectFilled(ImVec2(vx0, vy0), ImVec2(vx1, vy1), palette::kPanelRaised);
+    const float cy = std::round(0.5f * (vy0 + vy1));
+    dl->AddLine(ImVec2(vx0, cy + 0.5f), ImVec2(vx1, cy + 0.5f), palette::kGrid);
+    BeatViewStyle style;
+    style.span_s = 4.0;
+    style.envelope = band == pitch::BeatBand::rough ? palette::with_alpha(palette::kPulse, 120) : palette::kPulse;
+    style.tick = palette::kText;
+    style.tick_h = std::round(0.5f * u);
+    if (v.known() || have) draw_beat_view(dl, p, ImVec2(vx0, vy0), ImVec2(vx1, vy1), style);
+    const float cy0 = vy1 + std::round(0.3f * u);
+    draw_text(dl, FontFace::body, ImVec2(x, cy0), have ? palette::kText : palette::kTextDim, fit_text(FontFace::body, caption, w - 1.6f * u));
+    if (!advice.empty())
+        draw_text(dl, FontFace::body, ImVec2(x, cy0 + std::round(1.2f * u)), palette::kTextDim, fit_text(FontFace::body, advice, w - 1.6f * u));
 }
 
 // ---------------------------------------------------------------------------
@@ -416,12 +433,13 @@ void PracticeScreen::beat_cue(AppState& app, ImDrawList* dl, float x0, float y0,
 void PracticeScreen::controls(AppState& app) {
     const float u = ui_unit();
     const Settings& s = app.settings();
+    const float gap = std::round(0.8f * u);  // between groups of controls
     // Row 1: the drone.
     const bool on = app.drone_on();
     ImGui::PushStyleColor(ImGuiCol_Button, v4(on ? palette::kAccent : palette::kPanelRaised));
     if (ImGui::Button(on ? "Stop drone" : "Start drone", ImVec2(std::round(7.5f * u), 0))) app.toggle_drone();
     ImGui::PopStyleColor();
-    ImGui::SameLine(0, std::round(1.2f * u));
+    ImGui::SameLine(0, gap);
     ImGui::AlignTextToFramePadding();
     ImGui::TextColored(v4(palette::kTextDim), "Root");
     ImGui::SameLine();
@@ -434,22 +452,25 @@ void PracticeScreen::controls(AppState& app) {
     if (ImGui::Button("+##root")) app.step_root(+1);
     ImGui::SameLine();
     ImGui::TextColored(v4(palette::kTextDim), "%.2f Hz", app.root_hz());
-    ImGui::SameLine(0, std::round(1.2f * u));
+    ImGui::SameLine(0, gap);
     ImGui::SetNextItemWidth(std::round(5.5f * u));
     if (ImGui::BeginCombo("##timbre", std::string(audio::timbre_name(s.timbre)).c_str())) {
         for (audio::Timbre t : audio::all_timbres())
             if (ImGui::Selectable(std::string(audio::timbre_name(t)).c_str(), t == s.timbre)) app.set_timbre(t);
         ImGui::EndCombo();
     }
-    ImGui::SameLine(0, std::round(1.2f * u));
+    ImGui::SameLine(0, gap);
     ImGui::TextColored(v4(palette::kTextDim), "Level");
     ImGui::SameLine();
     float level = static_cast<float>(s.level_dbfs);
-    ImGui::SetNextItemWidth(std::round(8.5f * u));
-    if (ImGui::SliderFloat("##level", &level, static_cast<float>(audio::kDroneMinLevelDbfs), static_cast<float>(audio::kDroneMaxLevelDbfs), "%.0f dBFS"))
+    ImGui::SetNextItemWidth(std::round(5.5f * u));
+    if (ImGui::SliderFloat("##level", &level, static_cast<float>(audio::kDroneMinLevelDbfs), static_cast<float>(audio::kDroneMaxLevelDbfs), ""))
         app.set_drone_level(std::round(level));
-    if (ImGui::IsItemHovered()) ImGui::SetTooltip("Drone level (RMS). The limiter holds peaks at or below %.0f dBFS.", audio::kDroneCeilingDbfs);
-    ImGui::SameLine(0, std::round(1.2f * u));
+    const bool level_hovered = ImGui::IsItemHovered();
+    ImGui::SameLine();
+    ImGui::Text("%.0f dBFS", std::round(level));
+    if (level_hovered) ImGui::SetTooltip("Drone level (RMS). The limiter holds peaks at or below %.0f dBFS.", audio::kDroneCeilingDbfs);
+    ImGui::SameLine(0, gap);
     bool fifth = s.fifth, octave = s.octave;
     if (ImGui::Checkbox("fifth", &fifth)) app.set_fifth(fifth);
     ImGui::SameLine();
@@ -459,15 +480,16 @@ void PracticeScreen::controls(AppState& app) {
     ImGui::AlignTextToFramePadding();
     ImGui::TextColored(v4(palette::kTextDim), "Targets");
     ImGui::SameLine();
-    ImGui::SetNextItemWidth(std::round(8.5f * u));
-    if (ImGui::BeginCombo("##set", app.targets().title.empty() ? s.target_set.c_str() : app.targets().title.c_str())) {
+    const std::string set_title = app.targets().title.empty() ? s.target_set : app.targets().title;
+    ImGui::SetNextItemWidth(std::max(std::round(8.5f * u), ImGui::CalcTextSize(set_title.c_str()).x + ImGui::GetFrameHeight() + 2.0f * ImGui::GetStyle().FramePadding.x));
+    if (ImGui::BeginCombo("##set", set_title.c_str())) {
         for (const std::string& name : builtin_names("targets")) {
             if (name.rfind("hold-", 0) == 0 || name.rfind("ear-", 0) == 0) continue;  // drill material, not practice sets
             if (ImGui::Selectable(name.c_str(), name == s.target_set)) app.set_target_set(name);
         }
         ImGui::EndCombo();
     }
-    ImGui::SameLine(0, std::round(1.2f * u));
+    ImGui::SameLine(0, gap);
     if (ImGui::RadioButton("nearest", s.choice == TargetChoice::nearest)) app.set_choice(TargetChoice::nearest);
     ImGui::SameLine();
     if (ImGui::RadioButton("fixed", s.choice == TargetChoice::fixed)) app.set_choice(TargetChoice::fixed);
@@ -477,8 +499,11 @@ void PracticeScreen::controls(AppState& app) {
     const auto& ts = app.targets().targets;
     const pitch::Target& fixed = ts[static_cast<std::size_t>(app.fixed_index())];
     // In nearest mode the box shows the target followed now; choosing one fixes it.
-    const int shown_index = s.choice == TargetChoice::nearest && app.has_current() ? app.target_index_of(app.current()) : app.fixed_index();
-    const std::string shown = shown_index >= 0 ? ts[static_cast<std::size_t>(shown_index)].interval.str() : fixed.interval.str();
+    const int shown_index = s.choice == TargetChoice::nearest && app.verdict().known() ? app.target_index_of(app.current()) : app.fixed_index();
+    // ... as the header names it (an octave up: 14/5, not 7/5).
+    const std::string shown = s.choice == TargetChoice::nearest && app.verdict().known() ? app.target_ratio_text(app.current())
+                              : shown_index >= 0                                      ? ts[static_cast<std::size_t>(shown_index)].interval.str()
+                                                                                      : fixed.interval.str();
     ImGui::SetNextItemWidth(std::round(6.0f * u));
     if (ImGui::BeginCombo("##target", shown.c_str())) {
         for (std::size_t i = 0; i < ts.size(); ++i) {
@@ -492,13 +517,13 @@ void PracticeScreen::controls(AppState& app) {
     }
     ImGui::SameLine();
     if (ImGui::ArrowButton("##next", ImGuiDir_Right)) app.step_target(+1);
-    ImGui::SameLine(0, std::round(1.2f * u));
+    ImGui::SameLine(0, gap);
     ImGui::TextColored(v4(palette::kTextDim), "A4");
     ImGui::SameLine();
     float a4 = static_cast<float>(s.a4_hz);
     ImGui::SetNextItemWidth(std::round(5.0f * u));
     if (ImGui::DragFloat("##a4", &a4, 0.1f, 400.0f, 480.0f, "%.1f Hz")) app.set_a4(std::round(a4 * 10.0f) / 10.0);
-    ImGui::SameLine(0, std::round(1.2f * u));
+    ImGui::SameLine(0, gap);
     if (ImGui::Button("Reference")) app.sound_reference();
     if (ImGui::IsItemHovered()) ImGui::SetTooltip("Sounds the current target once above the drone (R)");
 }

@@ -327,12 +327,18 @@ void ScreenDeck::status_bar(const ImVec2& pos, float width, float height) {
     ImGui::PopStyleColor();
 }
 
+float ScreenDeck::messages_height() const {
+    const auto& ms = app_.messages();
+    if (ms.empty()) return 0.0f;
+    return std::round(1.5f * ui_unit()) * static_cast<float>(ms.size()) + std::round(0.4f * ui_unit());
+}
+
 void ScreenDeck::messages(const ImVec2& bottom_left, float width) {
     const auto& ms = app_.messages();
     if (ms.empty()) return;
     const float u = ui_unit();
     const float line_h = std::round(1.5f * u);
-    const float h = line_h * static_cast<float>(ms.size()) + std::round(0.4f * u);
+    const float h = messages_height();
     const ImVec2 pos(bottom_left.x, bottom_left.y - h);
     ImDrawList* dl = ImGui::GetForegroundDrawList();
     dl->AddRectFilled(pos, ImVec2(pos.x + width, bottom_left.y), palette::kPanelRaised);
@@ -406,7 +412,10 @@ void ScreenDeck::build_frame(double dt_s) {
     float banner_h = 0.0f;
     caution_banner(ImVec2(0, tab_h), disp.x, banner_h);
     const float top = tab_h + banner_h;
-    ScreenArea area{ImVec2(0, top), ImVec2(disp.x, std::max(0.0f, disp.y - top - status_h))};
+    // Messages stand between the screen and the status bar: the screen gives
+    // up their rows rather than have its controls covered.
+    const float messages_h = messages_height();
+    ScreenArea area{ImVec2(0, top), ImVec2(disp.x, std::max(0.0f, disp.y - top - status_h - messages_h))};
     screens_[current_]->build(app_, area, dt_s);
     status_bar(ImVec2(0, disp.y - status_h), disp.x, status_h);
     messages(ImVec2(0, disp.y - status_h), disp.x);
