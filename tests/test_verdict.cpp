@@ -153,3 +153,28 @@ TEST_CASE("verdict on the Practice screen's state: never current once the input 
     CHECK(silent_frames > 30);  // the demo performer rests between notes
     CHECK(checked > 300);
 }
+
+TEST_CASE("verdict: sound without a pitch (a note below the tracker's floor) is 'unpitched', not silence") {
+    ui::VerdictTracker vt;
+    double t = 0.0;
+    for (int i = 0; i < 30; ++i, t += kHopS) {
+        pitch::Reading r = unvoiced(t);
+        r.level_dbfs = -20.0;  // loud: something sounds, but no pitch in range
+        vt.take(r);
+    }
+    CHECK(vt.verdict().state == ui::VerdictState::unpitched);
+    CHECK_FALSE(vt.verdict().known());  // no value to show as "last"
+    for (int i = 0; i < 30; ++i, t += kHopS) {
+        pitch::Reading r = unvoiced(t);
+        r.level_dbfs = -90.0;
+        vt.take(r);
+    }
+    CHECK(vt.verdict().state == ui::VerdictState::idle);  // nothing heard yet: not even "last"
+    for (int i = 0; i < 10; ++i, t += kHopS) vt.take(voiced(t, 220.0, 0.0, 0.0));
+    for (int i = 0; i < 30; ++i, t += kHopS) {
+        pitch::Reading r = unvoiced(t);
+        r.level_dbfs = -90.0;
+        vt.take(r);
+    }
+    CHECK(vt.verdict().state == ui::VerdictState::silent);
+}

@@ -68,7 +68,13 @@ constexpr KeyHelp kPracticeKeys[] = {
 
 const char* source_text(const Verdict& v) { return v.source == VerdictSource::centre ? "vibrato centre" : "pitch now"; }
 
-const char* quiet_word(const Verdict& v) { return v.state == VerdictState::uncertain ? "unsure" : "silent"; }
+const char* quiet_word(const Verdict& v) {
+    switch (v.state) {
+        case VerdictState::uncertain: return "unsure";
+        case VerdictState::unpitched: return "no pitch";
+        default: return "silent";
+    }
+}
 
 class PracticeScreen final : public Screen {
 public:
@@ -136,7 +142,9 @@ void PracticeScreen::header(AppState& app, ImDrawList* dl, float x0, float y0, f
     // is not current, the last value in dim text and why.
     const float right = x0 + w;
     if (!known) {
-        const std::string idle = app.engine_running() ? "listening\xE2\x80\xA6" : "no input";
+        const std::string idle = !app.engine_running()                 ? "no input"
+                                 : v.state == VerdictState::unpitched ? "no pitch"
+                                                                      : "listening\xE2\x80\xA6";
         draw_text(dl, FontFace::medium, ImVec2(right - text_size(FontFace::medium, idle).x, y0 + 0.5f * (h - medium)), palette::kTextDim, idle);
         return;
     }
@@ -177,6 +185,14 @@ void PracticeScreen::info_line(AppState& app, ImDrawList* dl, float x0, float y0
     const float u = ui_unit();
     (void)w;
     const Verdict& v = app.verdict();
+    if (v.state == VerdictState::unpitched) {
+        // Sound without a pitch the tracker follows: most often a note below its floor.
+        char hint[160];
+        std::snprintf(hint, sizeof hint, "sound without a pitch: below the lowest note (%.0f Hz)? set Settings \xE2\x86\x92 Lowest note",
+                      app.settings().lowest_hz);
+        draw_text(dl, FontFace::body, ImVec2(x0, y0), palette::kWarning, hint);
+        return;
+    }
     if (!v.known() || !(v.f0_hz > 0.0)) return;
     const bool live = v.current();
     const std::uint32_t strong = live ? palette::kText : palette::kTextDim;
@@ -392,7 +408,10 @@ void PracticeScreen::beat_cue(AppState& app, ImDrawList* dl, float x0, float y0,
     std::string caption, advice;
     switch (band) {
         case pitch::BeatBand::none:
-            caption = v.known() ? std::string(v.state == VerdictState::uncertain ? "no sure pitch now" : "no sound now") : "sing or play a note";
+            caption = v.state == VerdictState::uncertain   ? "no sure pitch now"
+                      : v.state == VerdictState::unpitched ? "no pitch to beat"
+                      : v.known()                          ? "no sound now"
+                                                           : "sing or play a note";
             break;
         case pitch::BeatBand::still: caption = "nearly pure", advice = "hold it there"; break;
         case pitch::BeatBand::countable:

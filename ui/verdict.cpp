@@ -19,7 +19,8 @@ Verdict verdict_of(const pitch::Reading& r) noexcept {
 }
 
 void VerdictTracker::quiet(VerdictState s, double for_s) noexcept {
-    if (v_.state == VerdictState::idle) return;  // nothing to call "last"
+    // With nothing heard before, only "unpitched" has something to say.
+    if (!v_.reading.voiced() && s != VerdictState::unpitched) s = VerdictState::idle;
     v_.state = s;
     v_.quiet_s = for_s;
 }
@@ -49,10 +50,12 @@ void VerdictTracker::take(const pitch::Reading& r) noexcept {
     }
     jump_run_ = 0;
     sure_run_ = 0;
-    if (!std::isfinite(unsure_since_t_s_) || last_unvoiced_ != !voiced) unsure_since_t_s_ = r.t_s;
-    last_unvoiced_ = !voiced;
+    const int kind = voiced ? 3 : r.level_dbfs >= cfg_.sound_dbfs ? 2 : 1;
+    if (!std::isfinite(unsure_since_t_s_) || last_kind_ != kind) unsure_since_t_s_ = r.t_s;
+    last_kind_ = kind;
     const double run_s = r.t_s - unsure_since_t_s_;
-    if (run_s + 1e-9 >= cfg_.silent_after_s) quiet(voiced ? VerdictState::uncertain : VerdictState::silent, run_s);
+    constexpr VerdictState kStates[] = {VerdictState::silent, VerdictState::silent, VerdictState::unpitched, VerdictState::uncertain};
+    if (run_s + 1e-9 >= cfg_.silent_after_s) quiet(kStates[kind], run_s);
 }
 
 void VerdictTracker::tick(double dt_s) noexcept {
@@ -66,7 +69,7 @@ void VerdictTracker::reset() noexcept {
     unsure_since_t_s_ = NAN;
     since_reading_s_ = 0.0;
     sure_run_ = 0;
-    last_unvoiced_ = false;
+    last_kind_ = 0;
     jump_run_ = 0;
 }
 

@@ -20,6 +20,7 @@ enum class VerdictState {
     live,       // the verdict is current
     silent,     // the voice stopped (or no audio arrives): the value shown is the last one
     uncertain,  // the tracker hears a pitch but with low confidence: the value shown is the last sure one
+    unpitched,  // sound, but no pitch the tracker can follow (below the lowest note, noise): the last value
 };
 
 enum class VerdictSource {
@@ -30,6 +31,7 @@ enum class VerdictSource {
 struct VerdictConfig {
     double silent_after_s = 0.06;      // unvoiced (or no frames) this long: silent (default 60 ms, within the 100 ms rule)
     double sure_confidence = 0.7;      // frames below this count as uncertain (default 0.7)
+    double sound_dbfs = -50.0;         // unvoiced frames at least this loud are "unpitched", not silent (default -50 dBFS)
     int frames_to_resume = 2;          // voiced, sure frames in a row before a verdict is current again (default 2)
     double jump_cents = 80.0;          // a reading this far from the verdict ... (default 80 cents)
     int frames_to_jump = 5;            // ... must be confirmed by this many agreeing frames in a row (default 5 = 25 ms;
@@ -47,7 +49,7 @@ struct Verdict {
     pitch::Reading reading{};          // the voiced reading it comes from (target, pairs, confidence)
 
     bool current() const { return state == VerdictState::live; }
-    bool known() const { return state != VerdictState::idle; }  // something to show, current or last
+    bool known() const { return state != VerdictState::idle && reading.voiced(); }  // a value to show, current or last
 };
 
 class VerdictTracker {
@@ -71,7 +73,7 @@ private:
     double unsure_since_t_s_ = NAN;    // stream time the current unvoiced or unsure run began
     double since_reading_s_ = 0.0;     // screen time since the last reading arrived
     int sure_run_ = 0;
-    bool last_unvoiced_ = false;
+    int last_kind_ = 0;                // 1 unvoiced and quiet, 2 unvoiced with sound, 3 voiced but unsure
     double jump_from_cents_ = NAN;     // the first frame of a pending jump, cents above the root
     int jump_run_ = 0;
 };
