@@ -405,3 +405,79 @@ TEST_CASE("snapshot: what a window left behind does not change the picture; --se
     CHECK(bad.err.find("none.toml: no such settings file") != std::string::npos);
     CHECK(!std::filesystem::exists(home.file("x.png")));
 }
+
+namespace {
+
+std::string signed_whole(double v) {
+    const long r = std::lround(v);
+    if (r == 0) return "0";
+    return (r < 0 ? std::string("\xE2\x88\x92") : std::string("+")) + std::to_string(std::labs(r));
+}
+
+}  // namespace
+
+TEST_CASE("Practice screen: at every moment the big number, word, colour, marker and note show the one verdict") {
+    // DESIGN, "One reading, one verdict". The model the screen draws from is
+    // printed by --print-verdict; the pixels must say the same thing.
+    TempDir home;
+    struct Moment {
+        const char* what;
+        const char* args;
+        const char* state;
+    } moments[] = {
+        {"held note with vibrato", "--demo --targets tritones --root D3 --drone --seconds 11.5", "live"},
+        {"note onset", "--demo --targets harmonics-8-16 --root D3 --drone --seconds 9", "live"},
+        {"silence between notes", "--demo --targets tritones --root D3 --drone --seconds 4.1", "silent"},
+        {"far off, pinned", "--demo --hold 80 --targets tritones --target 7/5 --root D3 --seconds 3", "live"},
+    };
+    int n = 0;
+    for (const Moment& m : moments) {
+        CAPTURE(m.what);
+        const std::string png = home.file("moment" + std::to_string(n++) + ".png");
+        const auto r = run_program(std::string("snapshot ") + m.args + " --print-verdict --out " + png, {"BEATLESS_HOME=" + home.path()});
+        REQUIRE_MESSAGE(r.exit_code == 0, r.err);
+        const std::string json = r.out.substr(r.out.find('{'));
+        CHECK(test::json_value(json, "d['state']") == m.state);
+        const double dev = std::stod(test::json_value(json, "d['dev_cents']"));
+        const std::string word = test::json_value(json, "d['word']");
+        const Image img = read_png(png);
+        const Box header = rows(img, 0, img.h / 4);
+        const bool live = std::string(m.state) == "live";
+        // The word's colour is the state's (in tune green, sharp orange, flat blue); dim when not current.
+        const std::uint32_t col = !live ? ui::palette::kTextDim
+                                  : word == "in tune" ? ui::palette::kInTune
+                                  : word == "sharp"   ? ui::palette::kSharp
+                                                      : ui::palette::kFlat;
+        // The big number: the verdict rounded, in that colour.
+        const std::string num = (live ? "" : "last ") + signed_whole(dev);
+        const Image num_img = render_text(num, live ? ui::FontFace::large : ui::FontFace::medium, col, ui::palette::kBackground, 1.0f);
+        CHECK_MESSAGE(find_exact(img, num_img, header).size() == 1, "'" << num << "' is not the header's number");
+        const std::string shown_word = live ? word : std::string("silent");
+        const Image word_img = render_text(shown_word, ui::FontFace::medium, col, ui::palette::kBackground, 1.0f);
+        CHECK_MESSAGE(find_exact(img, word_img, header).size() == 1, "'" << shown_word << "' is not the header's word");
+        if (std::fabs(dev) > 50.0) {
+            // Pinned at the lane's edge: the value printed there is the verdict's.
+            const Image pin = render_text(signed_whole(dev) + " c", ui::FontFace::bold, live ? ui::palette::kText : col, ui::palette::kPanelRaised, 1.0f);
+            CHECK_MESSAGE(find_exact(img, pin, rows(img, 0, img.h / 3)).size() == 1, "the pinned value is not the verdict's");
+            continue;
+        }
+        // The lane's marker stands at the verdict.
+        const Lane lane = find_lane(img);
+        const double px_per_cent = (lane.right_x - lane.left_x) / 100.0;
+        if (live) {
+            int width = 0;
+            const auto x = marker_centre(img, lane, col, width);
+            REQUIRE_MESSAGE(x.has_value(), "no marker of the state's colour on the lane");
+            CHECK(std::fabs(*x - lane.x_of(dev)) <= 0.5 * px_per_cent + 1.5);
+            // The note below names the same pitch.
+            const double off = std::stod(test::json_value(json, "d['note_offset_cents']"));
+            const std::string note = test::json_value(json, "d['note']") + " " + signed_whole(off) + " c";
+            const Image note_img = render_text(note, ui::FontFace::bold, ui::palette::kText, ui::palette::kBackground, 1.0f);
+            CHECK_MESSAGE(find_exact(img, note_img, rows(img, 0, img.h / 2)).size() == 1, "'" << note << "' is not shown");
+        } else {
+            // Not current: no marker in any state colour on the lane.
+            int width = 0;
+            for (std::uint32_t c : {ui::palette::kInTune, ui::palette::kSharp, ui::palette::kFlat}) CHECK_FALSE(marker_centre(img, lane, c, width).has_value());
+        }
+    }
+}

@@ -21,7 +21,9 @@
 #include "pitch/text.h"
 #include "ui/app_state.h"
 #include "ui/commands.h"
+#include "ui/draw_kit.h"
 #include "ui/imgui_host.h"
+#include "ui/json.h"
 #include "ui/palette.h"
 #include "ui/png.h"
 #include "ui/raster.h"
@@ -105,6 +107,30 @@ AppOptions options_of(const ScreenCommand& c) {
     return o;
 }
 
+// The model the screen drew from, for tests and scripts: the one verdict.
+std::string verdict_json(const AppState& app) {
+    const Verdict& v = app.verdict();
+    static constexpr const char* kStates[] = {"idle", "live", "silent", "uncertain", "unpitched"};
+    JsonWriter j;
+    j.begin_object();
+    j.key("state").value(kStates[static_cast<int>(v.state)]);
+    if (v.known()) {
+        const Tuning t = tuning_of(v.dev_cents, app.settings().in_tune_cents);
+        const pitch::NearestNote n = pitch::hz_to_note(v.f0_hz, app.settings().a4_hz);
+        j.key("source").value(v.source == VerdictSource::centre ? "centre" : "instant");
+        j.key("target").value(app.target_ratio_text(v.reading));
+        j.key("dev_cents").value(v.dev_cents, 3);
+        j.key("word").value(tuning_word(t));
+        j.key("note").value(n.name);
+        j.key("note_offset_cents").value(n.offset_cents, 3);
+        j.key("f0_hz").value(v.f0_hz, 4);
+        j.key("beat_hz").value(v.beat_hz, 3);
+        j.key("instant_dev_cents").value(v.reading.dev_cents, 3);
+    }
+    j.end_object();
+    return j.str();
+}
+
 bool have_display() {
     const char* x = std::getenv("DISPLAY");
     const char* w = std::getenv("WAYLAND_DISPLAY");
@@ -185,6 +211,7 @@ void register_snapshot(CLI::App& app, Runner& run) {
         double fps = 60.0;
         bool first_run = false;
         bool help_keys = false;
+        bool print_verdict = false;
         std::string settings_file;
         std::string out;
     };
@@ -198,6 +225,7 @@ void register_snapshot(CLI::App& app, Runner& run) {
     sub->add_flag("--drone", o->c.drone, "Start the drone (in the simulation the demo's microphone hears it)");
     sub->add_flag("--first-run", o->first_run, "Show the screen as on first run, before the hearing caution is acknowledged");
     sub->add_flag("--help-keys", o->help_keys, "Show the help overlay with the keys");
+    sub->add_flag("--print-verdict", o->print_verdict, "Also print, as one JSON line, the verdict the picture shows (state, source, cents, word, note, Hz, beat)");
     sub->add_option("--settings", o->settings_file, "Take preferences from this settings file (default: none, the program's defaults)");
     sub->add_option("--out", o->out, "PNG file to write")->required();
     sub->callback([o, &run] {
@@ -258,6 +286,7 @@ void register_snapshot(CLI::App& app, Runner& run) {
             write_png(o->out, buf);
             std::printf("%s: %dx%d, %s screen after %s s of simulated time\n", o->out.c_str(), w, h,
                         std::string(screen_key(deck.current())).c_str(), pitch::format_trimmed(o->seconds, 3).c_str());
+            if (o->print_verdict) std::printf("%s\n", verdict_json(app).c_str());
             return 0;
         };
     });
