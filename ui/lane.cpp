@@ -95,7 +95,7 @@ void draw_lane(ImDrawList* dl, float x0, float y0, float w, float band_h, const 
 
     // Secondary: while the verdict is the vibrato centre, the instantaneous
     // pitch as a small tick on its own track below the labels, marked "now".
-    if (current && vd->source == VerdictSource::centre && std::isfinite(vd->reading.dev_cents)) {
+    if (v.show_now && current && vd->source == VerdictSource::centre && std::isfinite(vd->reading.dev_cents)) {
         const double c = std::clamp(vd->reading.dev_cents, -kLaneHalfCents, kLaneHalfCents);
         const float dy = by1 + std::round(1.2f * u) + std::round(0.6f * u) + std::round(0.5f * u);
         const float dx = std::round(x_of(c));

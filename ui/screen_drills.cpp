@@ -423,6 +423,7 @@ void DrillsScreen::hold_now(AppState& app, ImDrawList* dl, float x0, float y0, f
     const bool live = ph == DrillPhase::count_in || ph == DrillPhase::hold;
     v.verdict = live ? &app.verdict() : nullptr;
     v.trail = &app.trace();
+    v.show_now = y0 + h - (y + band_h) >= 3.6f * u;
     draw_lane(dl, x0 + lane_margin, y, w - 2.0f * lane_margin, band_h, v);
 }
 

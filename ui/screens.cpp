@@ -150,7 +150,7 @@ void ScreenDeck::apply_style() {
     c[ImGuiCol_HeaderHovered] = v4(palette::with_alpha(palette::kAccent, 190));
     c[ImGuiCol_HeaderActive] = v4(palette::kAccent);
     c[ImGuiCol_CheckMark] = v4(palette::kText);
-    c[ImGuiCol_SliderGrab] = v4(palette::kText);
+    c[ImGuiCol_SliderGrab] = v4(palette::kAccent);  // not the text colour: the value stays readable where the grab crosses it
     c[ImGuiCol_SliderGrabActive] = v4(palette::kYellow);
     c[ImGuiCol_Separator] = v4(palette::kGrid);
     c[ImGuiCol_ModalWindowDimBg] = v4(palette::with_alpha(palette::kBackground, 200));
