@@ -1,9 +1,11 @@
 #include "ui/ensemble_session.h"
 
 #include "pitch/error.h"
+#include "pitch/spelling.h"
 #include "pitch/text.h"
 #include "ui/ensemble_plan.h"
 
+#include <cctype>
 #include <cmath>
 
 namespace beatless::ui {
@@ -40,6 +42,14 @@ bool EnsembleSession::plan(AppState& app, const EnsembleSettings& e, bool quiet)
         std::vector<pitch::Player> ps = plan_players(c, PlanLists{e.channels, e.names, e.voices});
         const double root = app.root_hz(), a4 = app.settings().a4_hz;
         pitch::ChordChart chart = pitch::chord_chart(c.chord, root, pitch::ChartConfig{a4, 16});
+        // Notes spelled as `beatless chord` spells them: against the root's own spelling.
+        const std::string_view rt = pitch::trim(app.settings().root);
+        if (!rt.empty() && std::isalpha(static_cast<unsigned char>(rt[0]))) {
+            std::vector<int> midi;
+            for (const auto& v : chart.voices) midi.push_back(v.note.midi);
+            const std::vector<std::string> names = pitch::spell_chord(pitch::parse_tonic(rt), midi);
+            for (std::size_t k = 0; k < names.size() && k < chart.voices.size(); ++k) chart.voices[k].note.name = names[k];
+        }
         chord_ = std::move(c);
         players_ = std::move(ps);
         chart_ = std::move(chart);
@@ -198,7 +208,7 @@ void EnsembleSession::update(AppState& app, double dt_s) {
         if (k < take_buf_.size()) break;
     }
     if (got) current_at_s_ = app.app_time_s();
-    has_current_ = app.app_time_s() - current_at_s_ <= 0.5;
+    has_current_ = app.app_time_s() - current_at_s_ <= kCurrentS;
     recent_count_ = engine_->history(recent_);
     supervise_s_ += dt_s;
     if (supervise_s_ >= 0.1) {

@@ -52,7 +52,8 @@ public:
     const std::string& input_text() const { return input_text_; }
     audio::EnsembleStatus status() const { return engine_ ? engine_->status() : audio::EnsembleStatus{}; }
 
-    bool has_current() const { return has_current_; }         // a reading within the last 0.5 s
+    bool has_current() const { return has_current_; }         // a reading within the last kCurrentS
+    static constexpr double kCurrentS = 0.1;                   // older readings are not shown as current (DESIGN: within 100 ms)
     const pitch::EnsembleReading& current() const { return current_; }
     // The last readings (oldest first), about recent_s of them, for the trails.
     std::span<const pitch::EnsembleReading> recent() const { return {recent_.data(), recent_count_}; }
