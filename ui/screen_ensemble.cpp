@@ -113,6 +113,7 @@ private:
     DevicePicker inputs_;
     std::array<double, pitch::kMaxPlayers> last_dev_{};   // each card's last verdict, for "last: ..."
     std::array<bool, pitch::kMaxPlayers> has_last_{};
+    std::array<int, pitch::kMaxPlayers> octaves_{};       // the octave each player last sang in (cards and table)
 
 public:
     EnsembleView view_;   // what the last frame showed (ensemble_view())
@@ -137,7 +138,7 @@ float EnsembleScreen::put_wrapped(ImDrawList* dl, FontFace face, ImVec2 pos, std
     float y = pos.y;
     const float step = font_px(face) + 1.0f;
     auto flush = [&] {
-        if (line.empty()) return;
+        if (line.empty() || y + font_px(face) > panel.y1) return;  // no line half under the panel's edge
         put(dl, face, ImVec2(pos.x, y), colour, fit_text(face, line, max_w), panel);
         y += step;
         line.clear();
@@ -198,7 +199,7 @@ void EnsembleScreen::strip(AppState& app, ImDrawList* dl, std::size_t i, float x
     // the channel, flowing onto a second line when the card is narrow.
     const pitch::Ratio vr = session_.chord().chord.voice_ratio(pl.voice);
     cv.ratio = vr.str();
-    cv.octaves = live ? p.octaves : 0;
+    cv.octaves = octaves_[i];
     struct Item {
         std::string text;
         FontFace face;
@@ -265,6 +266,18 @@ void EnsembleScreen::strip(AppState& app, ImDrawList* dl, std::size_t i, float x
     const float tx = lx1 + std::round((narrow ? 0.5f : 0.7f) * u);  // the text block
     const float text_w = x0 + w - pad - tx;
     const float by = ly0 + std::round(0.2f * u);
+    // The number's face: the largest in which any two-digit number fits the
+    // width, and the height with the lines under it (the same on every card
+    // and in every state); a wider number (far off) takes a smaller face.
+    const float unit_gap = std::round(0.3f * u);
+    const float unit_w = text_size(FontFace::body, "c").x + unit_gap;
+    const float below_h = font_px(FontFace::medium) + font_px(FontFace::bold) + font_px(FontFace::body) + std::round(1.0f * u);
+    FontFace big = FontFace::bold;
+    for (FontFace f : {FontFace::large, FontFace::medium})
+        if (text_size(f, "\xE2\x88\x92" "88").x <= text_w - unit_w && by + font_px(f) + below_h <= ly1) {
+            big = f;
+            break;
+        }
     const double dev = live ? r.dev(i, ref) : NAN;
     if (p.state == pitch::PlayerState::sounding && std::isfinite(dev) && live) {
         last_dev_[i] = dev;
@@ -287,14 +300,19 @@ void EnsembleScreen::strip(AppState& app, ImDrawList* dl, std::size_t i, float x
         cv.word = session_.engine_running() ? "resting" : "no input";
         cv.colour = palette::kTextDim;
         cv.number = "\xE2\x80\x93";
-        const FontFace big = fitting_face({FontFace::large, FontFace::medium}, cv.number, text_w);
         put(dl, big, ImVec2(tx, by), palette::kTextFaint, cv.number, panel);
         const FontFace wf = fitting_face({FontFace::medium, FontFace::bold, FontFace::body}, cv.word, text_w);
         const float wy = by + font_px(big) + std::round(0.2f * u);
         put(dl, wf, ImVec2(tx, wy), palette::kTextDim, cv.word, panel);
         if (has_last_[i]) {
-            cv.last = "last: " + signed_text(last_dev_[i], 0) + " c";
-            put_wrapped(dl, FontFace::body, ImVec2(tx, wy + font_px(wf) + std::round(0.3f * u)), palette::kTextFaint, cv.last, text_w, panel);
+            const std::string value = signed_text(last_dev_[i], 0) + " c";
+            cv.last = "last: " + value;
+            const float ly = wy + font_px(wf) + std::round(0.3f * u);
+            if (text_size(FontFace::body, cv.last).x <= text_w) put(dl, FontFace::body, ImVec2(tx, ly), palette::kTextFaint, cv.last, panel);
+            else if (ly + 2.0f * font_px(FontFace::body) + 1.0f <= y0 + h) {  // "last:" over the value, never the unit alone
+                put(dl, FontFace::body, ImVec2(tx, ly), palette::kTextFaint, "last:", panel);
+                put(dl, FontFace::body, ImVec2(tx, ly + font_px(FontFace::body) + 1.0f), palette::kTextFaint, fit_text(FontFace::body, value, text_w), panel);
+            }
         }
         dl->PopClipRect();
         return;
@@ -344,18 +362,6 @@ void EnsembleScreen::strip(AppState& app, ImDrawList* dl, std::size_t i, float x
     cv.dev_cents = dev;
     cv.number = signed_text(dev, 0);
     cv.colour = col;
-    const float unit_gap = std::round(0.3f * u);
-    const float unit_w = text_size(FontFace::body, "c").x + unit_gap;
-    // The largest face in which any two-digit number fits the width, and the
-    // height with the lines under it (the same on every card); a wider
-    // number (far off) takes a smaller face rather than leave the card.
-    const float below_h = font_px(FontFace::medium) + font_px(FontFace::bold) + font_px(FontFace::body) + std::round(1.0f * u);
-    FontFace big = FontFace::bold;
-    for (FontFace f : {FontFace::large, FontFace::medium})
-        if (text_size(f, "\xE2\x88\x92" "88").x <= text_w - unit_w && by + font_px(f) + below_h <= ly1) {  // one size on every card
-            big = f;
-            break;
-        }
     if (text_size(big, cv.number).x > text_w - unit_w) big = fitting_face({FontFace::medium, FontFace::bold, FontFace::body}, cv.number, text_w - unit_w);
     put(dl, big, ImVec2(tx, by), col, cv.number, panel);
     put(dl, FontFace::body, ImVec2(tx + text_size(big, cv.number).x + unit_gap, by + font_px(big) - font_px(FontFace::body) - std::round(0.1f * font_px(big))),
@@ -532,7 +538,6 @@ void EnsembleScreen::chart(AppState& app, ImDrawList* dl, float x0, float y0, fl
     }
     view_.rows.clear();
     view_.rows_hidden = nv - shown;
-    const bool live = session_.has_current();
     for (int k = 0; k < shown; ++k) {
         const std::size_t v = static_cast<std::size_t>(nv - 1 - k);  // highest first, as a score reads
         const auto& vc = ch.voices[v];
@@ -542,7 +547,7 @@ void EnsembleScreen::chart(AppState& app, ImDrawList* dl, float x0, float y0, fl
         std::string who;
         for (std::size_t i = 0; i < ps.size(); ++i)
             if (ps[i].voice == v) {
-                const std::string oct = octave_text(live ? session_.current().p[i].octaves : 0);
+                const std::string oct = octave_text(octaves_[i]);
                 who += (who.empty() ? "" : ", ") + ps[i].name + (oct.empty() ? "" : " " + oct);
             }
         EnsembleRowView rv{vc.ratio.str(), vc.note.name, who.empty() ? "nobody" : who};
@@ -737,6 +742,9 @@ void EnsembleScreen::build(AppState& app, const ScreenArea& area, double dt_s) {
     view_.rows_hidden = 0;
     view_.legend = false;
     view_.cards.assign(session_.ready() ? session_.players().size() : 0, EnsembleCardView{});
+    if (session_.has_current())
+        for (std::size_t i = 0; i < view_.cards.size(); ++i)
+            if (session_.current().p[i].state == pitch::PlayerState::sounding) octaves_[i] = session_.current().p[i].octaves;
     if (!ImGui::GetIO().WantTextInput) {
         if (ImGui::IsKeyPressed(GLFW_KEY_1, false)) session_.set_reference(app, pitch::ChordReference::fixed_root);
         if (ImGui::IsKeyPressed(GLFW_KEY_2, false)) session_.set_reference(app, pitch::ChordReference::sounding_bass);
