@@ -177,10 +177,18 @@ const EnsembleReading& EnsembleAnalyser::process(std::span<const PitchFrame> fra
         return reference_root_hz(chord_, ChordReference::best_fit, r0, voice_f_, voice_w_);
     };
     double best = gather();
-    // Another note: far from the first best fit (it would pull every other player).
+    // Another note: far from the group's median deviation (a robust first
+    // estimate: one player on a wrong note would pull a least-squares fit
+    // towards them and every other player away from it).
     bool moved = false;
-    if (std::isfinite(best)) {
-        const double off = 1200.0 * std::log2(best / r0);
+    std::array<double, kMaxPlayers> devs{};
+    std::size_t nd = 0;
+    for (std::size_t i = 0; i < n; ++i)
+        if (out_.p[i].state == PlayerState::sounding) devs[nd++] = out_.p[i].centre_dev_cents;
+    if (std::isfinite(best) && nd > 0) {
+        for (std::size_t a = 1; a < nd; ++a)  // insertion sort: at most 8 values
+            for (std::size_t b = a; b > 0 && devs[b - 1] > devs[b]; --b) std::swap(devs[b - 1], devs[b]);
+        const double off = nd % 2 ? devs[nd / 2] : 0.5 * (devs[nd / 2 - 1] + devs[nd / 2]);
         for (std::size_t i = 0; i < n; ++i) {
             PlayerReading& p = out_.p[i];
             if (p.state == PlayerState::sounding && std::fabs(p.centre_dev_cents - off) > cfg_.off_voice_cents) {

@@ -10,7 +10,7 @@
 // player), and a player's deviation under reference R is
 // dev_fixed - 1200 log2(R / R_fixed). Players on a silent channel, carrying
 // another channel's voice (pitch/channel_checks.h), or singing another note
-// (more than off_voice_cents from the first best fit) are left out of the
+// (more than off_voice_cents from the group's median deviation) are left out of the
 // references; a player on another note is told which voice they sit near. For every two players: the coinciding partials of their just
 // interval and the beat rate |N f_low - D f_high| at their centres
 // (Helmholtz 1863, ch. VIII; pitch/beats.h).
@@ -64,7 +64,7 @@ struct EnsembleConfig {
     double root_hz = 130.8128;        // the chord root, the drone's fundamental (default C3)
     double a4_hz = 440.0;             // 12-TET reference (default ISO 16)
     double hop_s = 0.005;             // tracker hop (default 5 ms)
-    double off_voice_cents = 80.0;    // further than this from the first best fit: another note (default 80 cents)
+    double off_voice_cents = 80.0;    // further than this from the group's median deviation: another note (default 80 cents)
     double near_voice_cents = 40.0;   // an off-voice centre this close to another voice names it (default 40 cents)
     int max_beat_partial = 16;        // pairs whose meeting partials lie higher get no beat rate (default 16)
     ReadingConfig reading;            // per player (root and a4 are set from the fields above)
