@@ -25,6 +25,7 @@
 
 #include <doctest/doctest.h>
 
+#include <algorithm>
 #include <cmath>
 #include <filesystem>
 #include <fstream>
@@ -431,5 +432,45 @@ TEST_CASE("Ensemble view: within 100 ms of the group stopping, no card shows a v
             CHECK(c.last.rfind("last: ", 0) == 0);
         }
         check_texts(v);
+    }
+}
+
+TEST_CASE("Ensemble session: voices reassigned while the group sings on: one message names who sits near which voice") {
+    // The demo group keeps singing what it was given (S 7/4, A 3/2, T 5/4, B 1/1:
+    // names top voice first); the director then assigns voices otherwise on
+    // the same channels, as a mistaken list would.
+    struct Case {
+        std::string names, message;
+    };
+    const std::vector<Case> cases = {
+        {"S=1/1,A=5/4,T=3/2,B=7/4",
+         "S near 7/4 (assigned 1/1), A near 3/2 (assigned 5/4), T near 5/4 (assigned 3/2), B near 1/1 (assigned 7/4): names are read top voice "
+         "first; pick the voices below"},
+        {"S=7/4,A=3/2,T=5/4,B=5/4", "B is singing near 1/1, assigned 5/4 (names are read top voice first; pick the voice below)"},
+    };
+    for (const Case& c : cases) {
+        CAPTURE(c.names);
+        ui::AppState app(group_settings("4:5:6:7", "S,A,T,B"), std::filesystem::temp_directory_path() / "beatless-never-written.toml",
+                         ScreenRig::options(true));
+        app.start();
+        ui::EnsembleSession session;
+        auto run = [&](double secs) {
+            for (int k = 0; k < static_cast<int>(secs * 20); ++k) {
+                app.update(0.05);
+                session.update(app, 0.05);
+            }
+        };
+        auto said = [&] {
+            return static_cast<int>(std::count_if(app.messages().begin(), app.messages().end(), [&](const ui::Message& m) { return m.text == c.message; }));
+        };
+        run(1.5);
+        ui::EnsembleSettings e = app.settings().ensemble;
+        e.names = c.names;
+        REQUIRE(session.apply(app, e));
+        run(0.3);
+        CHECK(said() == 0);  // not before half a second
+        run(1.2);
+        CHECK(said() == 1);  // once, not every reading
+        app.shutdown();
     }
 }

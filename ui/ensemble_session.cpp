@@ -210,11 +210,41 @@ void EnsembleSession::update(AppState& app, double dt_s) {
     if (got) current_at_s_ = app.app_time_s();
     has_current_ = app.app_time_s() - current_at_s_ <= kCurrentS;
     recent_count_ = engine_->history(recent_);
+    warn_near(app, dt_s);
     supervise_s_ += dt_s;
     if (supervise_s_ >= 0.1) {
         supervise_s_ = 0.0;
         engine_->supervise();
     }
+}
+
+// Players near another voice than their own for half a second: one
+// message (the message bar shows few at a time, so players reaching that
+// together share it); a player is named again only after they return.
+void EnsembleSession::warn_near(AppState& app, double dt_s) {
+    const pitch::Chord& c = chord_.chord;
+    std::string who;   // "S near 7/4 (assigned 1/1), A near ..."
+    int count = 0;
+    std::string one;   // the sentence for a single player
+    for (std::size_t i = 0; i < players_.size() && i < pitch::kMaxPlayers; ++i) {
+        const pitch::PlayerReading& p = current_.p[i];
+        if (has_current_ && p.state == pitch::PlayerState::off_voice && p.near_voice >= 0) {
+            near_s_[i] += dt_s;
+            if (near_s_[i] >= kNearWarnS && !near_told_[i]) {
+                near_told_[i] = true;
+                const std::string near = c.voice_ratio(static_cast<std::size_t>(p.near_voice)).str();
+                const std::string assigned = c.voice_ratio(players_[i].voice).str();
+                who += (count ? ", " : "") + players_[i].name + " near " + near + " (assigned " + assigned + ")";
+                one = players_[i].name + " is singing near " + near + ", assigned " + assigned;
+                ++count;
+            }
+        } else if (has_current_ && p.state == pitch::PlayerState::sounding) {
+            near_s_[i] = 0.0;
+            near_told_[i] = false;
+        }
+    }
+    if (count == 1) app.post(one + " (names are read top voice first; pick the voice below)", true);
+    if (count > 1) app.post(who + ": names are read top voice first; pick the voices below", true);
 }
 
 }  // namespace beatless::ui
