@@ -333,6 +333,9 @@ void EnsembleScreen::strip(AppState& app, ImDrawList* dl, std::size_t i, float x
     const std::uint32_t col = other_note ? palette::kTextDim : tuning_colour(t);
     const auto recent = session_.recent();
     trail_.clear();
+    // The trail stays off the lane's "+30" and "-30" labels.
+    const float label_h = narrow ? 0.0f : std::round(0.15f * u) + font_px(FontFace::body);
+    dl->PushClipRect(ImVec2(lx0, ly0 + label_h), ImVec2(lx1, ly1 - label_h - std::round(0.05f * u)), true);
     for (const pitch::EnsembleReading& q : recent) {
         const double age = r.t_s - q.t_s;
         const double d = q.dev(i, ref, false);
@@ -347,6 +350,7 @@ void EnsembleScreen::strip(AppState& app, ImDrawList* dl, std::size_t i, float x
         }
         if (!ok) trail_.clear();
     }
+    dl->PopClipRect();
     // The centre's bar across the lane, pinned at the ends with an arrow beyond.
     const bool out = std::fabs(dev) > kLaneHalfCents;
     const float my = std::round(y_of(std::clamp(dev, -kLaneHalfCents, kLaneHalfCents)));
