@@ -164,13 +164,18 @@ void EnsembleEngine::use_demo(DemoEnsembleConfig demo) {
     if (demo.sample_rate_hz <= 0.0) demo.sample_rate_hz = cfg_.sample_rate_hz > 0.0 ? cfg_.sample_rate_hz : 48000.0;
     demo.root_hz = setup_.analysis.root_hz;
     if (demo.voice_cents.empty()) {
-        // An open voicing, as a group would sing it: player k of n sits in the
-        // octave nearest to 110 Hz * 2^(2.2 k / (n - 1)) (about A2 for the
-        // lowest part up to about B4 for the highest; the players are
-        // octave-equivalent, so any octave is measured the same way).
+        // An open voicing, as a group would sing it: the player whose voice
+        // ranks k of n from the lowest sits in the octave nearest to
+        // 110 Hz * 2^(2.2 k / (n - 1)) (about A2 for the lowest part up to
+        // about B4 for the highest, in whatever order the players are
+        // listed; they are octave-equivalent, so any octave is measured the
+        // same way).
         const std::size_t n = setup_.players.size();
-        for (std::size_t k = 0; k < n; ++k) {
-            const double c = setup_.chord.voice_cents(setup_.players[k].voice);
+        for (std::size_t j = 0; j < n; ++j) {
+            std::size_t k = 0;  // the rank of player j's voice (ties by listing order)
+            for (std::size_t q = 0; q < n; ++q)
+                k += setup_.players[q].voice < setup_.players[j].voice || (setup_.players[q].voice == setup_.players[j].voice && q < j);
+            const double c = setup_.chord.voice_cents(setup_.players[j].voice);
             const double centre_hz = 110.0 * std::exp2(n > 1 ? 2.2 * static_cast<double>(k) / static_cast<double>(n - 1) : 0.0);
             const double base_hz = setup_.analysis.root_hz * std::exp2(c / 1200.0);
             const double octaves = std::round(std::log2(centre_hz / base_hz));

@@ -108,6 +108,7 @@ EnsembleAnalyser::EnsembleAnalyser(const Chord& chord, std::vector<Player> playe
     voice_f_.assign(chord_.size(), NAN);
     voice_w_.assign(chord_.size(), 0.0);
     voice_logsum_.assign(chord_.size(), 0.0);
+    for (std::size_t v = 0; v < chord_.size(); ++v) voice_cents_.push_back(chord_.voice_ratio(v).cents());
     out_.players = static_cast<int>(players_.size());
     out_.root_hz.fill(NAN);
     out_.root_hz[reference_index(ChordReference::fixed_root)] = cfg_.root_hz;
@@ -139,6 +140,7 @@ const EnsembleReading& EnsembleAnalyser::process(std::span<const PitchFrame> fra
         p.steadiness_cents = r.steadiness_cents;
         p.clipped = r.clipped;
         p.copy_of = -1;
+        p.near_voice = -1;
         f0_[i] = r.f0_hz;
         level_[i] = frames[i].level_dbfs;
     }
@@ -175,10 +177,18 @@ const EnsembleReading& EnsembleAnalyser::process(std::span<const PitchFrame> fra
         return reference_root_hz(chord_, ChordReference::best_fit, r0, voice_f_, voice_w_);
     };
     double best = gather();
-    // Another note: far from the first best fit (it would pull every other player).
+    // Another note: far from the group's median deviation (a robust first
+    // estimate: one player on a wrong note would pull a least-squares fit
+    // towards them and every other player away from it).
     bool moved = false;
-    if (std::isfinite(best)) {
-        const double off = 1200.0 * std::log2(best / r0);
+    std::array<double, kMaxPlayers> devs{};
+    std::size_t nd = 0;
+    for (std::size_t i = 0; i < n; ++i)
+        if (out_.p[i].state == PlayerState::sounding) devs[nd++] = out_.p[i].centre_dev_cents;
+    if (std::isfinite(best) && nd > 0) {
+        for (std::size_t a = 1; a < nd; ++a)  // insertion sort: at most 8 values
+            for (std::size_t b = a; b > 0 && devs[b - 1] > devs[b]; --b) std::swap(devs[b - 1], devs[b]);
+        const double off = nd % 2 ? devs[nd / 2] : 0.5 * (devs[nd / 2 - 1] + devs[nd / 2]);
         for (std::size_t i = 0; i < n; ++i) {
             PlayerReading& p = out_.p[i];
             if (p.state == PlayerState::sounding && std::fabs(p.centre_dev_cents - off) > cfg_.off_voice_cents) {
@@ -188,6 +198,22 @@ const EnsembleReading& EnsembleAnalyser::process(std::span<const PitchFrame> fra
         }
     }
     if (moved) best = gather();
+    // Another note: the voice it sits near (octave-equivalent), measured from
+    // the best-fit root when there is one, else from the drone.
+    const double fit_off = std::isfinite(best) ? 1200.0 * std::log2(best / r0) : 0.0;
+    for (std::size_t i = 0; i < n; ++i) {
+        PlayerReading& p = out_.p[i];
+        if (p.state != PlayerState::off_voice) continue;
+        const double c = 1200.0 * std::log2(p.centre_f0_hz / r0) - fit_off;
+        double best_d = cfg_.near_voice_cents;
+        for (std::size_t v = 0; v < voice_cents_.size(); ++v) {
+            const double d = std::fabs(std::remainder(c - voice_cents_[v], 1200.0));
+            if (v != players_[i].voice && d <= best_d) {
+                best_d = d;
+                p.near_voice = static_cast<int>(v);
+            }
+        }
+    }
     out_.root_hz[reference_index(ChordReference::fixed_root)] = r0;
     out_.root_hz[reference_index(ChordReference::best_fit)] = best;
     out_.root_hz[reference_index(ChordReference::sounding_bass)] =

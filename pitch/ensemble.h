@@ -10,8 +10,8 @@
 // player), and a player's deviation under reference R is
 // dev_fixed - 1200 log2(R / R_fixed). Players on a silent channel, carrying
 // another channel's voice (pitch/channel_checks.h), or singing another note
-// (more than off_voice_cents from the first best fit) are left out of the
-// references. For every two players: the coinciding partials of their just
+// (more than off_voice_cents from the group's median deviation) are left out of the
+// references; a player on another note is told which voice they sit near. For every two players: the coinciding partials of their just
 // interval and the beat rate |N f_low - D f_high| at their centres
 // (Helmholtz 1863, ch. VIII; pitch/beats.h).
 //
@@ -64,7 +64,8 @@ struct EnsembleConfig {
     double root_hz = 130.8128;        // the chord root, the drone's fundamental (default C3)
     double a4_hz = 440.0;             // 12-TET reference (default ISO 16)
     double hop_s = 0.005;             // tracker hop (default 5 ms)
-    double off_voice_cents = 80.0;    // further than this from the first best fit: another note (default 80 cents)
+    double off_voice_cents = 80.0;    // further than this from the group's median deviation: another note (default 80 cents)
+    double near_voice_cents = 40.0;   // an off-voice centre this close to another voice names it (default 40 cents)
     int max_beat_partial = 16;        // pairs whose meeting partials lie higher get no beat rate (default 16)
     ReadingConfig reading;            // per player (root and a4 are set from the fields above)
     ChannelChecksConfig checks;       // silent channels, two channels with one voice
@@ -99,6 +100,7 @@ struct PlayerReading {
     double steadiness_cents = NAN;
     PlayerState state = PlayerState::resting;
     int copy_of = -1;                // the player whose voice this channel carries
+    int near_voice = -1;             // off_voice: the chord voice (0 = lowest) the centre sits near, octave-equivalent; -1 none
     bool clipped = false;
 };
 
@@ -161,6 +163,7 @@ private:
     std::vector<Ratio> ratio_;                 // per player: the voice's ratio
     ChannelChecks checks_;
     std::vector<double> f0_, level_, voice_f_, voice_w_, voice_logsum_;
+    std::vector<double> voice_cents_;          // per chord voice: cents above the root
     EnsembleReading out_;
 };
 

@@ -387,3 +387,28 @@ TEST_CASE("two singers in unison on one voice are not taken for one channel; the
     CHECK(msgs.lines.empty());
     check_within(score(rs, g, 1.0, 2.7), g, 1.0);
 }
+
+TEST_CASE("a player assigned another voice than they sing: another note, and near_voice names the voice they sit on") {
+    // The alto sings 3/2 but the setup gives them 5/4: 3/2 over 5/4 is 6/5,
+    // 315.6 cents (1200 log2 1.2), far beyond the 80-cent off-voice limit.
+    const pitch::Chord chord = pitch::parse_chord("4:5:6:7");
+    const auto g = quartet();
+    test::GroupTake take;
+    test::render_group(take, chord, kRootHz, g);
+    audio::EnsembleSetup s = setup_of(chord, g);
+    REQUIRE(s.players[1].voice == 2);
+    s.players[1].voice = 1;
+    const auto rs = through_device(take, s);
+    std::size_t held = 0, named = 0, others_sound = 0;
+    for (const auto& r : rs) {
+        if (r.t_s < 1.0 || r.t_s > 2.5) continue;
+        ++held;
+        if (r.p[1].state == pitch::PlayerState::off_voice && r.p[1].near_voice == 2) ++named;
+        if (r.p[0].state == pitch::PlayerState::sounding && r.p[2].state == pitch::PlayerState::sounding && r.p[3].state == pitch::PlayerState::sounding)
+            ++others_sound;
+        CHECK(r.p[0].near_voice == -1);  // only a player on another note is given one
+    }
+    REQUIRE(held > 200);
+    CHECK(static_cast<double>(named) / static_cast<double>(held) > 0.95);
+    CHECK(static_cast<double>(others_sound) / static_cast<double>(held) > 0.95);
+}

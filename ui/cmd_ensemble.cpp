@@ -81,7 +81,16 @@ struct Tally {
     std::vector<double> devs;      // centre deviations while sounding
     std::size_t frames = 0, silent = 0, copy = 0, other = 0;
     int copy_of = -1;
+    std::vector<std::size_t> near;   // per chord voice: frames on another note near it
+    bool warned = false;             // the far-from-assigned warning was printed
+    int most_near() const {          // the voice most often sat near; -1 none
+        const auto it = std::max_element(near.begin(), near.end());
+        return it == near.end() || *it == 0 ? -1 : static_cast<int>(it - near.begin());
+    }
 };
+
+// Sustained this long near another voice, a player is warned (0.5 s, common practice).
+constexpr double kNearWarnS = 0.5;
 
 double median(std::vector<double> v) {
     if (v.empty()) return NAN;
@@ -151,6 +160,7 @@ int run_ensemble(const EnsembleOptions& o) {
 
     const double every = o.every_s >= 0.0 ? o.every_s : o.format == Format::json ? 0.1 : 0.5;
     std::vector<Tally> tally(players.size());
+    for (Tally& t : tally) t.near.assign(chord.chord.size(), 0);
     double next_print = 0.0;
     const std::size_t np = players.size();
     std::vector<std::string> ratio_text;
@@ -218,6 +228,15 @@ int run_ensemble(const EnsembleOptions& o) {
                 t.copy_of = p.copy_of;
             }
             if (p.state == pitch::PlayerState::off_voice) ++t.other;
+            if (p.state == pitch::PlayerState::off_voice && p.near_voice >= 0) {
+                const std::size_t v = static_cast<std::size_t>(p.near_voice);
+                if (++t.near[v] * ec.hop_s >= kNearWarnS && !t.warned) {
+                    t.warned = true;
+                    std::fprintf(stderr, "beatless: %s is singing near %s, assigned %s (a list of names is read top voice first; %s=%s assigns it)\n",
+                                 players[i].name.c_str(), chord.chord.voice_ratio(v).str().c_str(), ratio_text[i].c_str(), players[i].name.c_str(),
+                                 chord.chord.voice_ratio(v).str().c_str());
+                }
+            }
         }
         bool sounds = false;
         for (std::size_t i = 0; i < np; ++i) sounds = sounds || r.p[i].state == pitch::PlayerState::sounding;
@@ -232,6 +251,10 @@ int run_ensemble(const EnsembleOptions& o) {
     std::fprintf(stderr, "beatless: ensemble %s on %s Hz (%s), %zu players from %s; reference %s\n", chord.chord.terms_text().c_str(),
                  pitch::format_trimmed(root_hz, 3).c_str(), o.root.c_str(), np, engine.input_name().c_str(),
                  std::string(pitch::reference_key(ref)).c_str());
+    std::string who;
+    for (std::size_t i = 0; i < np; ++i)
+        who += (i ? ", " : "") + players[i].name + "=" + ratio_text[i] + " ch " + std::to_string(players[i].channel + 1);
+    std::fprintf(stderr, "beatless: players: %s\n", who.c_str());
     if (o.fast) {
         engine.run_fast(take, o.seconds);
         engine.supervise();
@@ -302,7 +325,9 @@ int run_ensemble(const EnsembleOptions& o) {
             if (t.copy > 0)
                 note = "same voice as channel " + std::to_string(players[static_cast<std::size_t>(std::max(0, t.copy_of))].channel + 1) + " for " +
                        pitch::format_trimmed(static_cast<double>(t.copy) * ec.hop_s, 1) + " s";
-            if (t.other > t.devs.size()) note = "mostly another note than its voice";
+            if (t.other > t.devs.size())
+                note = t.most_near() >= 0 ? "mostly near " + chord.chord.voice_ratio(static_cast<std::size_t>(t.most_near())).str() + ", not its voice"
+                                          : "mostly another note than its voice";
             char med_s[32] = "-", spread_s[32] = "-", in_s[32] = "-";
             if (std::isfinite(med)) {
                 std::snprintf(med_s, sizeof med_s, "%+.1f c", med);
@@ -332,7 +357,10 @@ void register_ensemble(CLI::App& app, Runner& run) {
         "Deviations are measured under a reference the director chooses. Text prints a line per player every --every s and a\n"
         "summary (median, spread, time in tune); JSON prints one object per reading, {\"t\", \"reference\", \"root_hz\", \"roots\",\n"
         "\"players\": [{\"name\", \"channel\", \"voice\", \"ratio\", \"state\", \"centre_dev_cents\", ...}], \"beats\": [{\"channels\",\n"
-        "\"partials\", \"beat_hz\"}]}, then one {\"summary\": ...}.");
+        "\"partials\", \"beat_hz\"}]}, then one {\"summary\": ...}.\n"
+        "Who sings what: player k is on channel k (or --channels). A plain --names list is read top voice first, as parts are\n"
+        "listed in a score; name=ratio says each voice; --voices numbers them from the lowest. A player who sits near another\n"
+        "voice than their own for half a second is named in a warning on stderr.");
     sub->add_option("CHORD", o->chord, "A chord: 4:5:6:7, \"1/1 5/4 3/2\", a built-in chord name or a .toml chord file")->required();
     sub->add_option("--root", o->root, "Chord root (the drone) as a note (C3) or in Hz; default C3");
     sub->add_option("--a4", o->a4_hz, "A4 reference in Hz (400-480, default 440)");
@@ -345,8 +373,10 @@ void register_ensemble(CLI::App& app, Runner& run) {
     sub->add_option("--input", o->input_dev, "Multi-channel input device: index or a unique part of its name (see beatless devices)");
     sub->add_option("--output", o->output_dev, "Output device for the drone (with --drone)");
     sub->add_option("--channels", o->lists.channels, "Input channel of each player, from 1: 1,2,3,4 (default 1, 2, ...)");
-    sub->add_option("--names", o->lists.names, "Name of each player: \"S,A,T,B\" (default the chord file's parts, or Voice N)");
-    sub->add_option("--voices", o->lists.voices, "Chord voice each player sings, 1 = lowest: 4,3,2,1 (default 1, 2, ...)");
+    sub->add_option("--names", o->lists.names,
+                    "Players' names, top voice first as in a score: \"S,A,T,B\" over 4:5:6:7 sing 7/4, 3/2, 5/4, 1/1; or each with its "
+                    "voice: \"S=7/4,A=3/2,T=5/4,B=1/1\" (default the chord file's parts, or Voice N)");
+    sub->add_option("--voices", o->lists.voices, "Chord voice each player sings, 1 = lowest: 4,3,2,1 (default: from --names, else 1, 2, ...)");
     sub->add_option("--seconds", o->seconds, "Stop after this much audio (default: the end of the file, or Ctrl-C)");
     sub->add_option("--every", o->every_s, "Seconds between printed readings (default 0.5 text, 0.1 JSON; 0 = every reading)");
     sub->add_option("--in-tune", o->in_tune_cents, "Within this many cents counts as in tune in the summary (1-25, default 5)");

@@ -39,13 +39,50 @@ std::vector<int> numbers(std::string_view option, std::string_view text, int lo,
     return out;
 }
 
+// The chord voice a "name=ratio" item names: the voice with that ratio, or
+// the one it is an octave of (S=7/2 sings 7/4 an octave up).
+std::size_t voice_of_ratio(const ChordFile& chord, std::string_view names_text, std::string_view item, std::string_view ratio_text) {
+    pitch::Ratio r;
+    try {
+        r = pitch::parse_ratio(ratio_text);
+    } catch (const Error&) {
+        throw Error(cat({"--names ", pitch::quote(names_text), ": ", pitch::quote(item), ": ", pitch::quote(ratio_text), " is not a ratio (as in 7/4)"}));
+    }
+    const std::size_t nv = chord.chord.size();
+    for (std::size_t v = 0; v < nv; ++v)
+        if (chord.chord.voice_ratio(v) == r) return v;
+    for (std::size_t v = 0; v < nv; ++v)
+        if (pitch::octave_reduce(chord.chord.voice_ratio(v)) == pitch::octave_reduce(r)) return v;
+    std::string all;
+    for (std::size_t v = 0; v < nv; ++v) all.append(v ? ", " : "").append(chord.chord.voice_ratio(v).str());
+    throw Error(cat({"--names ", pitch::quote(names_text), ": ", pitch::quote(item), ": ", r.str(), " is not a voice of ", chord.chord.terms_text(), " (",
+                     all, ")"}));
+}
+
 }  // namespace
 
 std::vector<pitch::Player> plan_players(const ChordFile& chord, const PlanLists& lists) {
     const int voices_in_chord = static_cast<int>(chord.chord.size());
     const std::vector<int> channels = numbers("--channels", lists.channels, 1, 64, "channel number");
-    const std::vector<int> voices = numbers("--voices", lists.voices, 1, voices_in_chord, cat({"voice of ", chord.chord.terms_text()}));
-    const std::vector<std::string> names = split_list(lists.names);
+    std::vector<int> voices = numbers("--voices", lists.voices, 1, voices_in_chord, cat({"voice of ", chord.chord.terms_text()}));
+    std::vector<std::string> names = split_list(lists.names);
+    // name=ratio items: every item or none, and then no --voices.
+    const auto with_ratio = static_cast<std::size_t>(std::count_if(names.begin(), names.end(), [](const std::string& s) { return s.find('=') != std::string::npos; }));
+    if (with_ratio > 0) {
+        if (with_ratio != names.size()) {
+            const auto bare = std::find_if(names.begin(), names.end(), [](const std::string& s) { return s.find('=') == std::string::npos; });
+            throw Error(cat({"--names ", pitch::quote(lists.names), ": ", pitch::quote(*bare), " has no =ratio; give every player as name=ratio, or none"}));
+        }
+        if (!voices.empty()) throw UsageError("--names with name=ratio and --voices: give each player's voice one way only");
+        for (std::string& s : names) {
+            const std::size_t eq = s.find('=');
+            const std::string name(pitch::trim(std::string_view(s).substr(0, eq)));
+            const std::string ratio(pitch::trim(std::string_view(s).substr(eq + 1)));
+            if (name.empty()) throw Error(cat({"--names ", pitch::quote(lists.names), ": ", pitch::quote(s), " has no name before ="}));
+            voices.push_back(static_cast<int>(voice_of_ratio(chord, lists.names, s, ratio)) + 1);
+            s = name;
+        }
+    }
     std::size_t n = std::max({channels.size(), voices.size(), names.size()});
     if (n == 0) n = chord.chord.size();
     if (n > pitch::kMaxPlayers)
@@ -59,13 +96,15 @@ std::vector<pitch::Player> plan_players(const ChordFile& chord, const PlanLists&
     count_problem("--channels", channels.size());
     count_problem("--voices", voices.size());
     count_problem("--names", names.size());
+    // A plain list of names reads as a score does, top voice first (S, A, T, B).
+    const bool top_down = voices.empty() && !names.empty();
+    if (voices.empty() && static_cast<int>(n) > voices_in_chord)
+        throw Error(cat({std::to_string(n), " players for a chord of ", std::to_string(voices_in_chord), " voices: give --voices"}));
     std::vector<pitch::Player> out;
     for (std::size_t i = 0; i < n; ++i) {
         pitch::Player p;
         p.channel = channels.empty() ? static_cast<int>(i) : channels[i] - 1;
-        if (voices.empty() && static_cast<int>(i) >= voices_in_chord)
-            throw Error(cat({std::to_string(n), " players for a chord of ", std::to_string(voices_in_chord), " voices: give --voices"}));
-        p.voice = voices.empty() ? i : static_cast<std::size_t>(voices[i] - 1);
+        p.voice = !voices.empty() ? static_cast<std::size_t>(voices[i] - 1) : top_down ? static_cast<std::size_t>(voices_in_chord) - 1 - i : i;
         if (!names.empty() && !names[i].empty()) p.name = names[i];
         else if (!chord.voice_names.empty()) p.name = chord.voice_names[p.voice];
         else p.name = cat({"Voice ", std::to_string(p.voice + 1)});

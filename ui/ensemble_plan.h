@@ -3,11 +3,13 @@
 // --voices 4,3,2,1`) or the Ensemble screen saves.
 //
 // Lists are comma-separated; channels and voices count from 1 (voice 1 is
-// the chord's lowest). The number of players is the length of the longest
-// list given, or the chord's number of voices when none is (at most 8).
-// Defaults: player k on channel k, singing voice k; named after the chord
-// file's part for that voice, else "Voice k". Every problem throws Error
-// naming the option and the value.
+// the chord's lowest). Player k is on channel k unless --channels says.
+// Voices: --voices if given; else names as name=ratio (S=7/4) say them; else
+// a plain list of names reads as a score does, top voice first (S,A,T,B over
+// 4:5:6:7 sing 7/4, 3/2, 5/4, 1/1, common practice); with neither, player k
+// sings voice k and is named after the chord file's part, else "Voice k".
+// Every problem throws Error naming the option and the value (UsageError
+// when --voices and name=ratio both say the voices).
 #pragma once
 
 #include "pitch/ensemble.h"

@@ -1,9 +1,11 @@
 #include "ui/ensemble_session.h"
 
 #include "pitch/error.h"
+#include "pitch/spelling.h"
 #include "pitch/text.h"
 #include "ui/ensemble_plan.h"
 
+#include <cctype>
 #include <cmath>
 
 namespace beatless::ui {
@@ -40,6 +42,14 @@ bool EnsembleSession::plan(AppState& app, const EnsembleSettings& e, bool quiet)
         std::vector<pitch::Player> ps = plan_players(c, PlanLists{e.channels, e.names, e.voices});
         const double root = app.root_hz(), a4 = app.settings().a4_hz;
         pitch::ChordChart chart = pitch::chord_chart(c.chord, root, pitch::ChartConfig{a4, 16});
+        // Notes spelled as `beatless chord` spells them: against the root's own spelling.
+        const std::string_view rt = pitch::trim(app.settings().root);
+        if (!rt.empty() && std::isalpha(static_cast<unsigned char>(rt[0]))) {
+            std::vector<int> midi;
+            for (const auto& v : chart.voices) midi.push_back(v.note.midi);
+            const std::vector<std::string> names = pitch::spell_chord(pitch::parse_tonic(rt), midi);
+            for (std::size_t k = 0; k < names.size() && k < chart.voices.size(); ++k) chart.voices[k].note.name = names[k];
+        }
         chord_ = std::move(c);
         players_ = std::move(ps);
         chart_ = std::move(chart);
@@ -198,13 +208,43 @@ void EnsembleSession::update(AppState& app, double dt_s) {
         if (k < take_buf_.size()) break;
     }
     if (got) current_at_s_ = app.app_time_s();
-    has_current_ = app.app_time_s() - current_at_s_ <= 0.5;
+    has_current_ = app.app_time_s() - current_at_s_ <= kCurrentS;
     recent_count_ = engine_->history(recent_);
+    warn_near(app, dt_s);
     supervise_s_ += dt_s;
     if (supervise_s_ >= 0.1) {
         supervise_s_ = 0.0;
         engine_->supervise();
     }
+}
+
+// Players near another voice than their own for half a second: one
+// message (the message bar shows few at a time, so players reaching that
+// together share it); a player is named again only after they return.
+void EnsembleSession::warn_near(AppState& app, double dt_s) {
+    const pitch::Chord& c = chord_.chord;
+    std::string who;   // "S near 7/4 (assigned 1/1), A near ..."
+    int count = 0;
+    std::string one;   // the sentence for a single player
+    for (std::size_t i = 0; i < players_.size() && i < pitch::kMaxPlayers; ++i) {
+        const pitch::PlayerReading& p = current_.p[i];
+        if (has_current_ && p.state == pitch::PlayerState::off_voice && p.near_voice >= 0) {
+            near_s_[i] += dt_s;
+            if (near_s_[i] >= kNearWarnS && !near_told_[i]) {
+                near_told_[i] = true;
+                const std::string near = c.voice_ratio(static_cast<std::size_t>(p.near_voice)).str();
+                const std::string assigned = c.voice_ratio(players_[i].voice).str();
+                who += (count ? ", " : "") + players_[i].name + " near " + near + " (assigned " + assigned + ")";
+                one = players_[i].name + " is singing near " + near + ", assigned " + assigned;
+                ++count;
+            }
+        } else if (has_current_ && p.state == pitch::PlayerState::sounding) {
+            near_s_[i] = 0.0;
+            near_told_[i] = false;
+        }
+    }
+    if (count == 1) app.post(one + " (names are read top voice first; pick the voice below)", true);
+    if (count > 1) app.post(who + ": names are read top voice first; pick the voices below", true);
 }
 
 }  // namespace beatless::ui

@@ -8,7 +8,8 @@
 // short history for the trails, hands the app's drone to the engine (so
 // each microphone's drone is removed, and the demo's microphones hear it),
 // follows root and A4 changes, and passes the engine's one-line messages to
-// the screen's message bar. With devices, the group's engine takes them over
+// the screen's message bar, with one of its own when a player sits near
+// another voice than their own. With devices, the group's engine takes them over
 // from the Practice engine while the screen is shown (one sound card is often
 // opened by one stream at a time) and plays the app's drone itself; leave()
 // hands them back. In demo and simulated runs the app's engine keeps running.
@@ -20,6 +21,7 @@
 #include "ui/app_state.h"
 #include "ui/chord_files.h"
 
+#include <array>
 #include <memory>
 #include <span>
 #include <string>
@@ -52,7 +54,9 @@ public:
     const std::string& input_text() const { return input_text_; }
     audio::EnsembleStatus status() const { return engine_ ? engine_->status() : audio::EnsembleStatus{}; }
 
-    bool has_current() const { return has_current_; }         // a reading within the last 0.5 s
+    bool has_current() const { return has_current_; }         // a reading within the last kCurrentS
+    static constexpr double kCurrentS = 0.1;
+    static constexpr double kNearWarnS = 0.5;                  // near another voice this long: a message                   // older readings are not shown as current (DESIGN: within 100 ms)
     const pitch::EnsembleReading& current() const { return current_; }
     // The last readings (oldest first), about recent_s of them, for the trails.
     std::span<const pitch::EnsembleReading> recent() const { return {recent_.data(), recent_count_}; }
@@ -64,6 +68,7 @@ private:
     audio::DroneSettings drone_of(const AppState& app) const;
     audio::EnsembleSetup setup_now() const;   // the plan as the engine takes it
     void push_setup(AppState& app);           // to the running engine; a message on failure
+    void warn_near(AppState& app, double dt_s);  // a player near another voice: one message
 
     ChordFile chord_;
     std::vector<pitch::Player> players_;
@@ -87,6 +92,8 @@ private:
     std::vector<pitch::EnsembleReading> recent_;   // sized once
     std::size_t recent_count_ = 0;
     std::vector<pitch::EnsembleReading> take_buf_; // sized once
+    std::array<double, pitch::kMaxPlayers> near_s_{};  // how long each player has sat near another voice
+    std::array<bool, pitch::kMaxPlayers> near_told_{}; // ... and whether a message has said so
 };
 
 }  // namespace beatless::ui

@@ -1,19 +1,23 @@
 // Ensemble — the screen a director reads while a group tunes a chord.
 //
 //   ┌ chord title, terms, root ─────────────────── reference: [Drone] [Bass] [Best fit] ┐
-//   │ one strip per player, side by side, in the order they are listed:                  │
-//   │   name · ratio · channel; a vertical lane ±30 cents (up = sharp) with the         │
+//   │ one card per player, side by side, in the order they are listed:                   │
+//   │   name · the voice's ratio as the table writes it, the octave sung, channel; a     │
+//   │   vertical lane ±30 cents (up = sharp) with the                                     │
 //   │   centre's bar and a short trail; the deviation large, ▲ sharp / ▼ flat / ● in     │
 //   │   tune in shape and word, and which way to move ("lower 8 c")                      │
-//   │ between neighbouring strips: the partials that meet and their beat rate, pulsing   │
-//   ├ the chord chart: ratio, Hz, note, cents from ET ──┬ chord and players (editable) ──┤
+//   │ between neighbouring cards: the partials that meet and their beat rate; a legend   │
+//   ├ the chord chart: every voice, top first ──────────┬ chord and players (editable) ──┤
 //
 // The lane maps cents to pixels linearly: y = middle - dev_cents * height / 60,
 // so the band spans exactly -30 .. +30 cents (the snapshot test reads the bar
 // back from the PNG). The deviation shown is the vibrato centre's under the
 // chosen reference (pitch/ensemble.h); the trail is the instantaneous pitch.
+// One reading, one verdict: a card's bar, number, word, shape and colour
+// show that centre; silence or no reading for 0.1 s clears it ("last: ...").
+// Every text drawn is recorded in the view (ui/screen_ensemble.h).
 //
-// Index: [strip] [beats] [chart] [editor] [header] [screen]
+// Index: [text] [strip] [beats] [chart] [editor] [header] [screen]
 #include "pitch/ensemble.h"
 #include "pitch/error.h"
 #include "pitch/notes.h"
@@ -25,6 +29,7 @@
 #include "ui/ensemble_session.h"
 #include "ui/palette.h"
 #include "ui/screen.h"
+#include "ui/screen_ensemble.h"
 #include "ui/target_files.h"
 
 #define GLFW_INCLUDE_NONE
@@ -34,6 +39,7 @@
 #include <array>
 #include <cmath>
 #include <cstdio>
+#include <initializer_list>
 #include <string>
 
 namespace beatless::ui {
@@ -55,14 +61,6 @@ constexpr KeyHelp kEnsembleKeys[] = {
     {"Bar", "in a player's lane: their vibrato centre; up is sharp"},
     {"Lower / raise", "under the number: which way and how far to move"},
 };
-
-// The ratio the player sings: the chord voice moved by their octaves.
-std::string sung_ratio(const pitch::Ratio& r, int octaves) {
-    std::int64_t num = r.num, den = r.den;
-    for (int k = 0; k < octaves && num < (std::int64_t{1} << 40); ++k) (den % 2 == 0) ? den /= 2 : num *= 2;
-    for (int k = 0; k > octaves && den < (std::int64_t{1} << 40); --k) (num % 2 == 0) ? num /= 2 : den *= 2;
-    return std::to_string(num) + "/" + std::to_string(den);
-}
 
 class EnsembleScreen final : public Screen {
 public:
@@ -94,8 +92,10 @@ public:
 
 private:
     void header(AppState& app, ImDrawList* dl, float x0, float y0, float w, float h);
+    void put(ImDrawList* dl, FontFace face, ImVec2 pos, std::uint32_t colour, std::string_view text, const ViewBox& panel);
+    float put_wrapped(ImDrawList* dl, FontFace face, ImVec2 pos, std::uint32_t colour, std::string_view text, float max_w, const ViewBox& panel);
     void strip(AppState& app, ImDrawList* dl, std::size_t i, float x0, float y0, float w, float h);
-    void beat_row(ImDrawList* dl, const std::vector<float>& xs, float y0, float h, double dt_s);
+    void beat_row(ImDrawList* dl, const std::vector<float>& xs, float x0, float y0, float w, float h, double dt_s);
     void chart(AppState& app, ImDrawList* dl, float x0, float y0, float w, float h);
     void editor(AppState& app, float x0, float y0, float w, float h);
     void input_combo(AppState& app);
@@ -107,7 +107,63 @@ private:
     bool bufs_from_settings_ = false;
     std::vector<ImVec2> trail_;   // the lane's trail, reused every frame
     DevicePicker inputs_;
+    std::array<double, pitch::kMaxPlayers> last_dev_{};   // each card's last verdict, for "last: ..."
+    std::array<bool, pitch::kMaxPlayers> has_last_{};
+    std::array<int, pitch::kMaxPlayers> octaves_{};       // the octave each player last sang in (cards and table)
+
+public:
+    EnsembleView view_;   // what the last frame showed (ensemble_view())
 };
+
+// ---------------------------------------------------------------------------
+// [text]
+// ---------------------------------------------------------------------------
+
+// Draws and records a piece of text (the view's boxes are what the tests check).
+void EnsembleScreen::put(ImDrawList* dl, FontFace face, ImVec2 pos, std::uint32_t colour, std::string_view text, const ViewBox& panel) {
+    draw_text(dl, face, pos, colour, text);
+    const ImVec2 sz = text_size(face, text);
+    const float x = std::round(pos.x), y = std::round(pos.y);
+    view_.texts.push_back({std::string(text), ViewBox{x, y, x + sz.x, y + sz.y}, panel});
+}
+
+// Words wrapped to max_w pixels, one line under another; returns the y under the last line.
+float EnsembleScreen::put_wrapped(ImDrawList* dl, FontFace face, ImVec2 pos, std::uint32_t colour, std::string_view text, float max_w,
+                                  const ViewBox& panel) {
+    std::string line;
+    float y = pos.y;
+    const float step = font_px(face) + 1.0f;
+    auto flush = [&] {
+        if (line.empty() || y + font_px(face) > panel.y1) return;  // no line half under the panel's edge
+        put(dl, face, ImVec2(pos.x, y), colour, fit_text(face, line, max_w), panel);
+        y += step;
+        line.clear();
+    };
+    pitch::for_each_part(text, ' ', [&](std::string_view word) {
+        if (word.empty()) return;
+        std::string joined = line.empty() ? std::string(word) : line + " " + std::string(word);
+        if (!line.empty() && text_size(face, joined).x > max_w) {
+            flush();
+            joined = std::string(word);
+        }
+        line = std::move(joined);
+    });
+    flush();
+    return y;
+}
+
+// The first face in `faces` whose rendering of text fits max_w; the last otherwise.
+FontFace fitting_face(std::initializer_list<FontFace> faces, std::string_view text, float max_w) {
+    for (FontFace f : faces)
+        if (text_size(f, text).x <= max_w) return f;
+    return *(faces.end() - 1);
+}
+
+// "+1 oct", "−2 oct"; empty for the table's own octave.
+std::string octave_text(int octaves) {
+    if (octaves == 0) return {};
+    return (octaves > 0 ? std::string("+") : std::string("\xE2\x88\x92")) + std::to_string(std::abs(octaves)) + " oct";
+}
 
 // ---------------------------------------------------------------------------
 // [strip]
@@ -121,25 +177,65 @@ void EnsembleScreen::strip(AppState& app, ImDrawList* dl, std::size_t i, float x
     const pitch::EnsembleReading& r = session_.current();
     const pitch::PlayerReading& p = r.p[i];
     const double tol = app.settings().in_tune_cents;
+    const ViewBox panel{x0, y0, x0 + w, y0 + h};
+    EnsembleCardView& cv = view_.cards[i];
+    cv = EnsembleCardView{};
+    cv.box = panel;
     dl->AddRectFilled(ImVec2(x0, y0), ImVec2(x0 + w, y0 + h), palette::kPanel, std::round(0.25f * u));
     const float pad = std::round(0.5f * u);
+    const float inner = w - 2.0f * pad;
     dl->PushClipRect(ImVec2(x0, y0), ImVec2(x0 + w, y0 + h), true);
 
-    // Name, then ratio and channel.
-    const FontFace name_face = text_size(FontFace::medium, pl.name).x <= w - 2.0f * pad ? FontFace::medium : FontFace::bold;
-    draw_text(dl, name_face, ImVec2(x0 + pad, y0 + pad), palette::kText, pl.name);
-    float y = y0 + pad + font_px(name_face) + std::round(0.15f * u);
+    // The name, in one face on every card, cut with an ellipsis when long.
+    cv.name = fit_text(FontFace::medium, pl.name, inner);
+    put(dl, FontFace::medium, ImVec2(x0 + pad, y0 + pad), palette::kText, cv.name, panel);
+    float y = y0 + pad + font_px(FontFace::medium) + std::round(0.15f * u);
+
+    // The voice's ratio as the table writes it, the octave it is sung in and
+    // the channel, flowing onto a second line when the card is narrow.
     const pitch::Ratio vr = session_.chord().chord.voice_ratio(pl.voice);
-    const int oct = live ? p.octaves : 0;
-    const std::string sub = sung_ratio(vr, oct) + "   ch " + std::to_string(pl.channel + 1);
-    draw_text(dl, FontFace::bold, ImVec2(x0 + pad, y), palette::kYellow, sung_ratio(vr, oct));
-    draw_text(dl, FontFace::body, ImVec2(x0 + pad + text_size(FontFace::bold, sung_ratio(vr, oct)).x + std::round(0.6f * u), y),
-              palette::kTextDim, "ch " + std::to_string(pl.channel + 1));
-    (void)sub;
-    y += u + std::round(0.6f * u);
+    cv.ratio = vr.str();
+    cv.octaves = octaves_[i];
+    struct Item {
+        std::string text;
+        FontFace face;
+        std::uint32_t colour;
+    };
+    const Item items[] = {{cv.ratio, FontFace::bold, palette::kYellow},
+                          {octave_text(cv.octaves), FontFace::body, palette::kText},
+                          {"ch " + std::to_string(pl.channel + 1), FontFace::body, palette::kTextDim}};
+    const float line_h = font_px(FontFace::bold) + std::round(0.1f * u);
+    // The lines this takes with an octave shown, so every card's lane starts
+    // at the same height whether or not its player sings in another octave.
+    int lines = 1;
+    {
+        float fx = x0 + pad;
+        for (const Item& it : items) {
+            const float iw = text_size(it.face, it.text.empty() && &it == &items[1] ? std::string("+1 oct") : it.text).x;
+            if (fx > x0 + pad && fx + iw > x0 + pad + inner) {
+                fx = x0 + pad;
+                ++lines;
+            }
+            fx += iw + std::round(0.5f * u);
+        }
+    }
+    const float items_y = y;
+    float x = x0 + pad;
+    for (const Item& it : items) {
+        if (it.text.empty()) continue;
+        const float iw = text_size(it.face, it.text).x;
+        if (x > x0 + pad && x + iw > x0 + pad + inner) {
+            x = x0 + pad;
+            y += line_h;
+        }
+        const float dy = it.face == FontFace::bold ? 0.0f : std::round(0.5f * (font_px(FontFace::bold) - font_px(it.face)));
+        put(dl, it.face, ImVec2(x, y + dy), it.colour, fit_text(it.face, it.text, inner), panel);
+        x += iw + std::round(0.5f * u);
+    }
+    y = items_y + static_cast<float>(lines) * line_h + std::round(0.35f * u);
 
     // The lane: vertical, ±30 cents, up is sharp.
-    // Narrow strips (many players) keep the lane slim and the words smaller.
+    // Narrow strips (many players) keep the lane slim.
     const bool narrow = w < 10.0f * u;
     const float lane_w = narrow ? std::round(1.1f * u) : std::round(std::clamp(0.3f * w, 2.0f * u, 3.4f * u));
     const float lx0 = x0 + pad, lx1 = lx0 + lane_w;
@@ -155,48 +251,87 @@ void EnsembleScreen::strip(AppState& app, ImDrawList* dl, std::size_t i, float x
         dl->AddRectFilled(ImVec2(lx0, ty - (c == 0 ? 1.0f : 0.0f)), ImVec2(lx0 + len, ty + 1.0f), c == 0 ? palette::kTextDim : palette::kGrid);
     }
     if (!narrow) {
-        draw_text_centred(dl, FontFace::body, 0.5f * (lx0 + lx1), ly0 + std::round(0.15f * u), palette::kTextDim, "+30");
-        draw_text_centred(dl, FontFace::body, 0.5f * (lx0 + lx1), ly1 - u - std::round(0.2f * u), palette::kTextDim, "\xE2\x88\x92" "30");
+        const char* top = "+30";
+        const char* bottom = "\xE2\x88\x92" "30";
+        put(dl, FontFace::body, ImVec2(std::round(0.5f * (lx0 + lx1) - 0.5f * text_size(FontFace::body, top).x), ly0 + std::round(0.15f * u)),
+            palette::kTextDim, top, panel);
+        put(dl, FontFace::body, ImVec2(std::round(0.5f * (lx0 + lx1) - 0.5f * text_size(FontFace::body, bottom).x), ly1 - u - std::round(0.2f * u)),
+            palette::kTextDim, bottom, panel);
     }
 
     const float tx = lx1 + std::round((narrow ? 0.5f : 0.7f) * u);  // the text block
     const float text_w = x0 + w - pad - tx;
-    const FontFace big = text_w >= 5.0f * u ? FontFace::large : FontFace::medium;
-    const FontFace word_face = narrow ? FontFace::bold : FontFace::medium;
     const float by = ly0 + std::round(0.2f * u);
-    auto problem = [&](const std::string& word, const std::string& what) {
-        draw_warning_sign(dl, ImVec2(tx + 0.6f * u, by + 0.7f * u), 0.6f * u, palette::kWarning);
-        draw_text(dl, FontFace::bold, ImVec2(tx + 1.5f * u, by + 0.15f * u), palette::kWarning, word);
-        draw_text(dl, FontFace::body, ImVec2(tx, by + 1.6f * u), palette::kText, what);
-    };
+    // The number's face: the largest in which any two-digit number fits the
+    // width, and the height with the lines under it (the same on every card
+    // and in every state); a wider number (far off) takes a smaller face.
+    const float unit_gap = std::round(0.3f * u);
+    const float unit_w = text_size(FontFace::body, "c").x + unit_gap;
+    const float below_h = font_px(FontFace::medium) + font_px(FontFace::bold) + font_px(FontFace::body) + std::round(1.0f * u);
+    FontFace big = FontFace::bold;
+    for (FontFace f : {FontFace::large, FontFace::medium})
+        if (text_size(f, "\xE2\x88\x92" "88").x <= text_w - unit_w && by + font_px(f) + below_h <= ly1) {
+            big = f;
+            break;
+        }
     const double dev = live ? r.dev(i, ref) : NAN;
+    if (p.state == pitch::PlayerState::sounding && std::isfinite(dev) && live) {
+        last_dev_[i] = dev;
+        has_last_[i] = true;
+    }
+    auto problem = [&](CardState state, const std::string& word, const std::string& what, const std::string& hint) {
+        cv.state = state;
+        cv.word = word;
+        cv.colour = palette::kWarning;
+        draw_warning_sign(dl, ImVec2(tx + 0.6f * u, by + 0.7f * u), 0.6f * u, palette::kWarning);
+        const FontFace wf = fitting_face({FontFace::bold, FontFace::body}, word, text_w - 1.5f * u);
+        put(dl, wf, ImVec2(tx + 1.5f * u, by + 0.15f * u), palette::kWarning, fit_text(wf, word, text_w - 1.5f * u), panel);
+        const float ny = put_wrapped(dl, FontFace::body, ImVec2(tx, by + 1.6f * u), palette::kText, what, text_w, panel);
+        put_wrapped(dl, FontFace::body, ImVec2(tx, ny + std::round(0.2f * u)), palette::kTextDim, hint, text_w, panel);
+        dl->PopClipRect();
+    };
     if (!live || p.state == pitch::PlayerState::resting || (p.state == pitch::PlayerState::sounding && !std::isfinite(dev))) {
-        draw_text(dl, big, ImVec2(tx, by), palette::kTextFaint, "\xE2\x80\x93");
-        draw_text(dl, FontFace::medium, ImVec2(tx, by + font_px(big) + std::round(0.2f * u)), palette::kTextDim,
-                  session_.engine_running() ? "resting" : "no input");
+        // Silence, or no reading this tenth of a second: no verdict, only "last: ...".
+        cv.state = session_.engine_running() ? CardState::resting : CardState::no_input;
+        cv.word = session_.engine_running() ? "resting" : "no input";
+        cv.colour = palette::kTextDim;
+        cv.number = "\xE2\x80\x93";
+        put(dl, big, ImVec2(tx, by), palette::kTextFaint, cv.number, panel);
+        const FontFace wf = fitting_face({FontFace::medium, FontFace::bold, FontFace::body}, cv.word, text_w);
+        const float wy = by + font_px(big) + std::round(0.2f * u);
+        put(dl, wf, ImVec2(tx, wy), palette::kTextDim, cv.word, panel);
+        if (has_last_[i]) {
+            const std::string value = signed_text(last_dev_[i], 0) + " c";
+            cv.last = "last: " + value;
+            const float ly = wy + font_px(wf) + std::round(0.3f * u);
+            if (text_size(FontFace::body, cv.last).x <= text_w) put(dl, FontFace::body, ImVec2(tx, ly), palette::kTextFaint, cv.last, panel);
+            else if (ly + 2.0f * font_px(FontFace::body) + 1.0f <= y0 + h) {  // "last:" over the value, never the unit alone
+                put(dl, FontFace::body, ImVec2(tx, ly), palette::kTextFaint, "last:", panel);
+                put(dl, FontFace::body, ImVec2(tx, ly + font_px(FontFace::body) + 1.0f), palette::kTextFaint, fit_text(FontFace::body, value, text_w), panel);
+            }
+        }
         dl->PopClipRect();
         return;
     }
     if (p.state == pitch::PlayerState::silent) {
-        problem("SILENT", "no sound on ch " + std::to_string(pl.channel + 1));
-        draw_text(dl, FontFace::body, ImVec2(tx, by + 2.8f * u), palette::kTextDim, "check mic and cable");
-        dl->PopClipRect();
+        problem(CardState::silent, "SILENT", "no sound on ch " + std::to_string(pl.channel + 1), "check mic and cable");
         return;
     }
     if (p.state == pitch::PlayerState::copy) {
         const auto& other = session_.players()[static_cast<std::size_t>(std::max(0, p.copy_of))];
-        problem("SAME VOICE", "as " + other.name + " (ch " + std::to_string(other.channel + 1) + ")");
-        draw_text(dl, FontFace::body, ImVec2(tx, by + 2.8f * u), palette::kTextDim, "mic hears the neighbour");
-        dl->PopClipRect();
+        problem(CardState::copy, "SAME VOICE", "as " + other.name + " (ch " + std::to_string(other.channel + 1) + ")", "mic hears the neighbour");
         return;
     }
 
     // The trail: the last half second of instantaneous pitch, moving left with age.
     const Tuning t = tuning_of(dev, tol);
-    const std::uint32_t col = p.state == pitch::PlayerState::off_voice ? palette::kTextDim : tuning_colour(t);
-    // (a faint line, newest at the right edge of the lane)
+    const bool other_note = p.state == pitch::PlayerState::off_voice;
+    const std::uint32_t col = other_note ? palette::kTextDim : tuning_colour(t);
     const auto recent = session_.recent();
     trail_.clear();
+    // The trail stays off the lane's "+30" and "-30" labels.
+    const float label_h = narrow ? 0.0f : std::round(0.15f * u) + font_px(FontFace::body);
+    dl->PushClipRect(ImVec2(lx0, ly0 + label_h), ImVec2(lx1, ly1 - label_h - std::round(0.05f * u)), true);
     for (const pitch::EnsembleReading& q : recent) {
         const double age = r.t_s - q.t_s;
         const double d = q.dev(i, ref, false);
@@ -211,6 +346,7 @@ void EnsembleScreen::strip(AppState& app, ImDrawList* dl, std::size_t i, float x
         }
         if (!ok) trail_.clear();
     }
+    dl->PopClipRect();
     // The centre's bar across the lane, pinned at the ends with an arrow beyond.
     const bool out = std::fabs(dev) > kLaneHalfCents;
     const float my = std::round(y_of(std::clamp(dev, -kLaneHalfCents, kLaneHalfCents)));
@@ -222,36 +358,58 @@ void EnsembleScreen::strip(AppState& app, ImDrawList* dl, std::size_t i, float x
         dl->AddTriangleFilled(ImVec2(cx, my + dir * 1.4f * u), ImVec2(cx - 0.6f * u, my + dir * 0.4f * u), ImVec2(cx + 0.6f * u, my + dir * 0.4f * u), col);
     }
 
-    // The number, the state in shape and word, and the move.
-    const std::string num = signed_text(dev, 0);
-    draw_text(dl, big, ImVec2(tx, by), col, num);
-    draw_text(dl, FontFace::body, ImVec2(tx + text_size(big, num).x + std::round(0.3f * u), by + font_px(big) - u - std::round(0.3f * u)),
-              palette::kTextDim, "c");
+    // The number with its unit, the state in shape and word, and the move.
+    cv.dev_cents = dev;
+    cv.number = signed_text(dev, 0);
+    cv.colour = col;
+    if (text_size(big, cv.number).x > text_w - unit_w) big = fitting_face({FontFace::medium, FontFace::bold, FontFace::body}, cv.number, text_w - unit_w);
+    put(dl, big, ImVec2(tx, by), col, cv.number, panel);
+    put(dl, FontFace::body, ImVec2(tx + text_size(big, cv.number).x + unit_gap, by + font_px(big) - font_px(FontFace::body) - std::round(0.1f * font_px(big))),
+        palette::kTextDim, "c", panel);
     float wy = by + font_px(big) + std::round(0.3f * u);
-    if (p.state == pitch::PlayerState::off_voice) {
-        draw_text(dl, FontFace::bold, ImVec2(tx, wy), palette::kWarning, "OTHER NOTE");
-        draw_text(dl, FontFace::body, ImVec2(tx, wy + 1.3f * u), palette::kTextDim, "not near " + sung_ratio(vr, oct));
+    if (other_note) {
+        cv.state = CardState::other_note;
+        cv.word = "other note";
+        const std::string word = "OTHER NOTE";
+        const FontFace wf = fitting_face({FontFace::bold, FontFace::body}, word, text_w);
+        put(dl, wf, ImVec2(tx, wy), palette::kWarning, fit_text(wf, word, text_w), panel);
+        wy += font_px(wf) + std::round(0.2f * u);
+        const std::string what = p.near_voice >= 0
+                                     ? "near " + session_.chord().chord.voice_ratio(static_cast<std::size_t>(p.near_voice)).str() + ", assigned " + cv.ratio
+                                     : "not near " + cv.ratio;
+        put_wrapped(dl, FontFace::body, ImVec2(tx, wy), palette::kTextDim, what, text_w, panel);
         dl->PopClipRect();
         return;
     }
-    const float sr = std::round(0.42f * font_px(word_face));
-    if (narrow) {  // the shape after the number, the word on a line of its own
-        const float nx = tx + text_size(big, num).x + text_size(FontFace::body, "c").x + std::round(0.9f * u) + sr;
-        draw_tuning_shape(dl, t, ImVec2(nx, by + 0.55f * font_px(big)), sr, col);
-        draw_text(dl, word_face, ImVec2(tx, wy), col, std::string(tuning_word(t)));
+    cv.state = CardState::sounding;
+    cv.word = std::string(tuning_word(t));
+    // The shape before the word when both fit on a line; else the shape after the number.
+    const FontFace inline_face = fitting_face({FontFace::medium, FontFace::bold}, cv.word, text_w);
+    const float sr_inline = std::round(0.42f * font_px(inline_face));
+    const bool shape_inline = text_size(inline_face, cv.word).x + 2.0f * sr_inline + std::round(0.3f * u) <= text_w;
+    if (shape_inline) {
+        draw_tuning_shape(dl, t, ImVec2(tx + sr_inline, wy + 0.55f * font_px(inline_face)), sr_inline, col);
+        put(dl, inline_face, ImVec2(tx + 2.0f * sr_inline + std::round(0.3f * u), wy), col, cv.word, panel);
+        wy += font_px(inline_face) + std::round(0.3f * u);
     } else {
-        draw_tuning_shape(dl, t, ImVec2(tx + sr, wy + 0.55f * font_px(word_face)), sr, col);
-        draw_text(dl, word_face, ImVec2(tx + 2.0f * sr + std::round(0.3f * u), wy), col, std::string(tuning_word(t)));
+        const FontFace wf = fitting_face({FontFace::bold, FontFace::body}, cv.word, text_w);
+        const float sr = std::round(0.42f * font_px(FontFace::bold));
+        const float nx = tx + text_size(big, cv.number).x + unit_w + std::round(0.4f * u) + sr;
+        if (nx + sr <= x0 + w - pad) draw_tuning_shape(dl, t, ImVec2(nx, by + 0.55f * font_px(big)), sr, col);
+        else draw_tuning_shape(dl, t, ImVec2(tx + text_w - sr, wy + font_px(wf) + std::round(0.3f * u) + sr), sr, col);
+        put(dl, wf, ImVec2(tx, wy), col, fit_text(wf, cv.word, text_w), panel);
+        wy += font_px(wf) + std::round(0.3f * u);
     }
-    wy += font_px(word_face) + std::round(0.3f * u);
     const long amount = std::lround(std::fabs(dev));
-    const std::string move = t == Tuning::in_tune ? "hold" : (t == Tuning::sharp ? "lower " : "raise ") + std::to_string(amount) + (narrow ? "" : " c");
-    draw_text(dl, narrow ? FontFace::body : FontFace::bold, ImVec2(tx, wy), palette::kText, move);
-    wy += u + std::round(0.5f * u);
-    // Level and the pitch in Hz, small.
+    const std::string move = t == Tuning::in_tune ? "hold" : (t == Tuning::sharp ? "lower " : "raise ") + std::to_string(amount) + " c";
+    const FontFace mf = fitting_face({FontFace::bold, FontFace::body}, move, text_w);
+    put(dl, mf, ImVec2(tx, wy), palette::kText, fit_text(mf, move, text_w), panel);
+    wy += font_px(mf) + std::round(0.4f * u);
+    // The pitch in Hz, small (secondary).
     char buf[48];
     std::snprintf(buf, sizeof buf, "%.1f Hz", p.centre_f0_hz);
-    draw_text(dl, FontFace::body, ImVec2(tx, wy), palette::kTextDim, buf);
+    if (text_size(FontFace::body, buf).x > text_w) std::snprintf(buf, sizeof buf, "%.0f Hz", p.centre_f0_hz);
+    if (wy + font_px(FontFace::body) <= y0 + h - pad) put(dl, FontFace::body, ImVec2(tx, wy), palette::kTextDim, fit_text(FontFace::body, buf, text_w), panel);
     dl->PopClipRect();
 }
 
@@ -259,32 +417,49 @@ void EnsembleScreen::strip(AppState& app, ImDrawList* dl, std::size_t i, float x
 // [beats]
 // ---------------------------------------------------------------------------
 
-void EnsembleScreen::beat_row(ImDrawList* dl, const std::vector<float>& xs, float y0, float h, double dt_s) {
+// The beat icon: the last two seconds of the pair's envelope (ui/beat_view.h).
+void draw_beat_icon(ImDrawList* dl, const BeatPulse& p, ImVec2 p0, ImVec2 p1) {
+    BeatViewStyle style;
+    style.span_s = 2.0;
+    style.background = palette::kPanelRaised;
+    style.envelope = palette::kPulse;
+    draw_beat_view(dl, p, p0, p1, style);
+}
+
+void EnsembleScreen::beat_row(ImDrawList* dl, const std::vector<float>& xs, float x0, float y0, float w, float h, double dt_s) {
     const float u = ui_unit();
+    const ViewBox panel{x0, y0, x0 + w, y0 + h};
     const auto& ps = session_.players();
     const bool live = session_.has_current();
     const pitch::EnsembleReading& r = session_.current();
+    const float rad = std::round(0.45f * u);
+    const float icons_h = std::round(2.4f * u);
     for (std::size_t i = 0; i + 1 < ps.size(); ++i) {
         const pitch::PairBeat pb = live ? r.pair(i, i + 1) : pitch::PairBeat{};
         const double hz = pb.beat_hz;
         pulses_[i].update(hz, dt_s);
-        const float cx = xs[i];
-        const float rad = std::round(0.45f * u);
-        const ImVec2 c(cx - std::round(2.6f * u), std::round(y0 + 0.5f * h));
-        // A small beat view: the last two seconds of the pair's envelope.
-        BeatViewStyle style;
-        style.span_s = 2.0;
-        style.background = palette::kPanelRaised;
-        style.envelope = palette::kPulse;
-        draw_beat_view(dl, pulses_[i], ImVec2(c.x - rad, c.y - rad), ImVec2(c.x + rad, c.y + rad), style);
         std::string top = live && pb.partial_a > 0 ? std::to_string(pb.partial_a) + ":" + std::to_string(pb.partial_b) : std::string("\xE2\x80\x93");
         char rate[32];
         if (std::isfinite(hz)) std::snprintf(rate, sizeof rate, hz < 9.95 ? "%.1f Hz" : "%.0f Hz", hz);
         else std::snprintf(rate, sizeof rate, "no beat");
-        const float lx = c.x + rad + std::round(0.4f * u);
-        draw_text(dl, FontFace::bold, ImVec2(lx, y0 + std::round(0.1f * u)), palette::kText, top);
-        draw_text(dl, FontFace::body, ImVec2(lx, y0 + std::round(1.2f * u)), std::isfinite(hz) ? palette::kText : palette::kTextDim, rate);
+        // Icon and words centred on the boundary between the two cards.
+        const float label_w = std::max(text_size(FontFace::bold, top).x, text_size(FontFace::body, rate).x);
+        const float icon_w = std::round(2.6f * rad);
+        const float group_w = icon_w + std::round(0.3f * u) + label_w;
+        const float gx = std::round(xs[i] - 0.5f * group_w);
+        const float cy = std::round(y0 + 0.5f * icons_h);
+        draw_beat_icon(dl, pulses_[i], ImVec2(gx, cy - 1.6f * rad), ImVec2(gx + icon_w, cy + 1.6f * rad));
+        const float lx = gx + icon_w + std::round(0.3f * u);
+        put(dl, FontFace::bold, ImVec2(lx, y0 + std::round(0.05f * u)), palette::kText, top, panel);
+        put(dl, FontFace::body, ImVec2(lx, y0 + std::round(0.05f * u) + font_px(FontFace::bold)), std::isfinite(hz) ? palette::kText : palette::kTextDim,
+            rate, panel);
     }
+    // The legend: what the icons between the cards say.
+    view_.legend = ps.size() > 1;
+    if (!view_.legend) return;
+    const float ly = y0 + icons_h + std::round(0.1f * u);
+    const std::string legend = "between cards: the partials that meet, their beat rate, and the beat drawn as it sounds (wider lobes: slower)";
+    put(dl, FontFace::body, ImVec2(x0, ly), palette::kTextDim, fit_text(FontFace::body, legend, w), panel);
 }
 
 // ---------------------------------------------------------------------------
@@ -293,45 +468,82 @@ void EnsembleScreen::beat_row(ImDrawList* dl, const std::vector<float>& xs, floa
 
 void EnsembleScreen::chart(AppState& app, ImDrawList* dl, float x0, float y0, float w, float h) {
     const float u = ui_unit();
+    const ViewBox panel{x0, y0, x0 + w, y0 + h};
     dl->AddRectFilled(ImVec2(x0, y0), ImVec2(x0 + w, y0 + h), palette::kPanel, std::round(0.25f * u));
     const float pad = std::round(0.5f * u);
+    const float inner = w - 2.0f * pad;
     const float row = std::round(1.3f * u);
     char b1[96], b2[96];
     std::snprintf(b1, sizeof b1, "%s on %s = %.2f Hz", session_.chord().chord.terms_text().c_str(), app.settings().root.c_str(), session_.root_hz());
-    draw_text(dl, FontFace::bold, ImVec2(x0 + pad, y0 + pad), palette::kText, b1);
-    // The root the chosen reference gives, against the drone.
-    const pitch::ChordReference ref = app.settings().ensemble.reference;
-    const double root = session_.has_current() ? session_.current().root_hz[pitch::reference_index(ref)] : NAN;
-    const double off = 1200.0 * std::log2(root / session_.root_hz());
-    if (ref == pitch::ChordReference::fixed_root) std::snprintf(b2, sizeof b2, "measured against the drone root");
-    else if (std::isfinite(off))
-        std::snprintf(b2, sizeof b2, "%s root %.2f Hz, %s c from the drone", ref == pitch::ChordReference::best_fit ? "best-fit" : "bass's",
-                      root, signed_text(off, 1).c_str());
-    else std::snprintf(b2, sizeof b2, "%s: waiting for the players", std::string(pitch::reference_title(ref)).c_str());
-    draw_text(dl, FontFace::body, ImVec2(x0 + pad, y0 + pad + row), palette::kTextDim, b2);
-    const float cols[] = {0.0f, 3.2f, 7.6f, 10.4f, 14.8f};  // in units: ratio, Hz, note, from ET, sung by
-    float y = y0 + pad + 2.0f * row + std::round(0.2f * u);
-    const char* heads[] = {"ratio", "Hz", "note", "from ET", "sung by"};
-    for (int k = 0; k < 5; ++k) draw_text(dl, FontFace::body, ImVec2(x0 + pad + cols[k] * u, y), palette::kTextDim, heads[k]);
-    y += row;
-    const pitch::ChordChart& ch = session_.chart();
-    const auto& ps = session_.players();
     dl->PushClipRect(ImVec2(x0, y0), ImVec2(x0 + w, y0 + h), true);
-    for (std::size_t v = ch.voices.size(); v-- > 0;) {  // highest first, as a score reads
-        if (y + row > y0 + h) break;
+    const pitch::ChordChart& ch = session_.chart();
+    const auto nv = static_cast<int>(ch.voices.size());
+    const float min_row = font_px(FontFace::bold) + 1.0f;
+    const float heads_h = font_px(FontFace::body) + std::round(0.2f * u);
+    const float titles_h = font_px(FontFace::bold) + std::round(0.1f * u) + font_px(FontFace::body) + std::round(0.3f * u);
+    // When every row cannot fit under the two title lines, the rows come
+    // first: the header already names the chord and the reference.
+    const bool titles = h - 2.0f * pad - heads_h - titles_h >= static_cast<float>(nv) * min_row;
+    float y = y0 + pad;
+    if (titles) {
+        put(dl, FontFace::bold, ImVec2(x0 + pad, y0 + pad), palette::kText, fit_text(FontFace::bold, b1, inner), panel);
+        // The root the chosen reference gives, against the drone.
+        const pitch::ChordReference ref = app.settings().ensemble.reference;
+        const double root = session_.has_current() ? session_.current().root_hz[pitch::reference_index(ref)] : NAN;
+        const double off = 1200.0 * std::log2(root / session_.root_hz());
+        if (ref == pitch::ChordReference::fixed_root) std::snprintf(b2, sizeof b2, "measured against the drone root");
+        else if (std::isfinite(off))
+            std::snprintf(b2, sizeof b2, "%s root %.2f Hz, %s c from the drone", ref == pitch::ChordReference::best_fit ? "best-fit" : "bass's",
+                          root, signed_text(off, 1).c_str());
+        else std::snprintf(b2, sizeof b2, "%s: waiting for the players", std::string(pitch::reference_title(ref)).c_str());
+        y = y0 + pad + font_px(FontFace::bold) + std::round(0.1f * u);
+        put(dl, FontFace::body, ImVec2(x0 + pad, y), palette::kTextDim, fit_text(FontFace::body, b2, inner), panel);
+        y += font_px(FontFace::body) + std::round(0.3f * u);
+    }
+    // Columns in units: ratio, Hz, note, from ET, sung by.
+    const float cols[] = {0.0f, 3.2f, 7.6f, 10.4f, 14.8f};
+    const char* heads[] = {"ratio", "Hz", "note", "from ET", "sung by"};
+    for (int k = 0; k < 5; ++k) put(dl, FontFace::body, ImVec2(x0 + pad + cols[k] * u, y), palette::kTextDim, heads[k], panel);
+    y += heads_h;
+    // Every voice gets a row: rows close up to the font's height when many;
+    // if even that is too tall, the lowest rows are summed up as "+N more".
+    const auto& ps = session_.players();
+    const float bottom = y0 + h - pad;
+    float step = std::min(row, (bottom - y) / static_cast<float>(std::max(1, nv)));
+    int shown = nv;
+    if (step < min_row) {
+        step = min_row;
+        shown = std::max(0, static_cast<int>((bottom - y) / step) - 1);
+    }
+    view_.rows.clear();
+    view_.rows_hidden = nv - shown;
+    for (int k = 0; k < shown; ++k) {
+        const std::size_t v = static_cast<std::size_t>(nv - 1 - k);  // highest first, as a score reads
         const auto& vc = ch.voices[v];
         char hz[32], et[32];
         std::snprintf(hz, sizeof hz, "%.2f", vc.freq_hz);
         std::snprintf(et, sizeof et, "%s c", signed_text(vc.note.offset_cents, 1).c_str());
         std::string who;
-        for (const auto& p : ps)
-            if (p.voice == v) who += (who.empty() ? "" : ", ") + p.name;
-        draw_text(dl, FontFace::bold, ImVec2(x0 + pad + cols[0] * u, y), palette::kYellow, vc.ratio.str());
-        draw_text(dl, FontFace::mono, ImVec2(x0 + pad + cols[1] * u, y), palette::kText, hz);
-        draw_text(dl, FontFace::body, ImVec2(x0 + pad + cols[2] * u, y), palette::kText, vc.note.name);
-        draw_text(dl, FontFace::mono, ImVec2(x0 + pad + cols[3] * u, y), palette::kText, et);
-        draw_text(dl, FontFace::body, ImVec2(x0 + pad + cols[4] * u, y), who.empty() ? palette::kTextFaint : palette::kText, who.empty() ? "nobody" : who);
-        y += row;
+        for (std::size_t i = 0; i < ps.size(); ++i)
+            if (ps[i].voice == v) {
+                const std::string oct = octave_text(octaves_[i]);
+                who += (who.empty() ? "" : ", ") + ps[i].name + (oct.empty() ? "" : " " + oct);
+            }
+        EnsembleRowView rv{vc.ratio.str(), vc.note.name, who.empty() ? "nobody" : who};
+        put(dl, FontFace::bold, ImVec2(x0 + pad + cols[0] * u, y), palette::kYellow, rv.ratio, panel);
+        put(dl, FontFace::mono, ImVec2(x0 + pad + cols[1] * u, y), palette::kText, hz, panel);
+        put(dl, FontFace::body, ImVec2(x0 + pad + cols[2] * u, y), palette::kText, rv.note, panel);
+        put(dl, FontFace::mono, ImVec2(x0 + pad + cols[3] * u, y), palette::kText, et, panel);
+        put(dl, FontFace::body, ImVec2(x0 + pad + cols[4] * u, y), who.empty() ? palette::kTextFaint : palette::kText,
+            fit_text(FontFace::body, rv.who, inner - cols[4] * u), panel);
+        view_.rows.push_back(std::move(rv));
+        y += step;
+    }
+    if (view_.rows_hidden > 0) {
+        std::string rest;
+        for (int k = shown; k < nv; ++k) rest += (k > shown ? ", " : "") + ch.voices[static_cast<std::size_t>(nv - 1 - k)].ratio.str();
+        put(dl, FontFace::body, ImVec2(x0 + pad, y), palette::kTextDim,
+            fit_text(FontFace::body, "+" + std::to_string(view_.rows_hidden) + " more below: " + rest, inner), panel);
     }
     dl->PopClipRect();
 }
@@ -396,6 +608,7 @@ void EnsembleScreen::editor(AppState& app, float x0, float y0, float w, float h)
     ImGui::SameLine();
     ImGui::TextColored(v4(palette::kTextDim), "root %s", app.settings().root.c_str());
     input_combo(app);
+    ImGui::TextColored(v4(palette::kTextDim), "Names listed top voice first (S, A, T, B); voice of each:");
 
     // One row per player: name, voice, channel.
     const auto& ps = session_.players();
@@ -467,19 +680,21 @@ void EnsembleScreen::header(AppState& app, ImDrawList* dl, float x0, float y0, f
     const float u = ui_unit();
     const ChordFile& c = session_.chord();
     const std::string title = c.title.empty() ? "Chord " + c.chord.terms_text() : c.title;
+    const ViewBox panel{x0, y0, x0 + w, y0 + h};
     const float ty = y0 + std::round(0.5f * (h - font_px(FontFace::medium)));
-    draw_text(dl, FontFace::medium, ImVec2(x0, ty), palette::kText, title);
-    float x = x0 + text_size(FontFace::medium, title).x + std::round(0.8f * u);
     // The reference selector: three buttons; the chosen one filled, bold, with a disc.
     const pitch::ChordReference cur = app.settings().ensemble.reference;
     const float bw = std::round(8.4f * u), bh = std::round(1.9f * u), gap = std::round(0.3f * u);
     float bx = x0 + w - 3.0f * bw - 2.0f * gap;
     const float against_x = bx - text_size(FontFace::body, "against").x - std::round(0.5f * u);
-    draw_text(dl, FontFace::body, ImVec2(against_x, y0 + 0.5f * (h - u)), palette::kTextDim, "against");
+    put(dl, FontFace::body, ImVec2(against_x, y0 + 0.5f * (h - u)), palette::kTextDim, "against", panel);
+    const std::string shown_title = fit_text(FontFace::medium, title, against_x - x0 - u);
+    put(dl, FontFace::medium, ImVec2(x0, ty), palette::kText, shown_title, panel);
+    float x = x0 + text_size(FontFace::medium, shown_title).x + std::round(0.8f * u);
     char buf[96];
     std::snprintf(buf, sizeof buf, "%s on %s = %.2f Hz", c.chord.terms_text().c_str(), app.settings().root.c_str(), session_.root_hz());
     if (!c.title.empty() && x + text_size(FontFace::body, buf).x < against_x - u)
-        draw_text(dl, FontFace::body, ImVec2(x, ty + std::round(0.3f * u)), palette::kTextDim, buf);
+        put(dl, FontFace::body, ImVec2(x, ty + std::round(0.3f * u)), palette::kTextDim, buf, panel);
     for (pitch::ChordReference r : kRefs) {
         const bool on = r == cur;
         const ImVec2 at(bx, std::round(y0 + 0.5f * (h - bh)));
@@ -501,6 +716,14 @@ void EnsembleScreen::header(AppState& app, ImDrawList* dl, float x0, float y0, f
 
 void EnsembleScreen::build(AppState& app, const ScreenArea& area, double dt_s) {
     session_.update(app, dt_s);
+    view_.texts.clear();
+    view_.rows.clear();
+    view_.rows_hidden = 0;
+    view_.legend = false;
+    view_.cards.assign(session_.ready() ? session_.players().size() : 0, EnsembleCardView{});
+    if (session_.has_current())
+        for (std::size_t i = 0; i < view_.cards.size(); ++i)
+            if (session_.current().p[i].state == pitch::PlayerState::sounding) octaves_[i] = session_.current().p[i].octaves;
     if (!ImGui::GetIO().WantTextInput) {
         if (ImGui::IsKeyPressed(GLFW_KEY_1, false)) session_.set_reference(app, pitch::ChordReference::fixed_root);
         if (ImGui::IsKeyPressed(GLFW_KEY_2, false)) session_.set_reference(app, pitch::ChordReference::sounding_bass);
@@ -527,8 +750,14 @@ void EnsembleScreen::build(AppState& app, const ScreenArea& area, double dt_s) {
     header(app, dl, x0, y, inner_w, header_h);
     y += header_h + std::round(0.4f * u);
 
-    const float bottom_h = std::round(std::clamp(0.34f * H, 8.5f * u, 13.0f * u));
-    const float beats_h = std::round(2.5f * u);
+    // The chart and editor; taller when the chord has many voices, so the
+    // table can give each its row (it says "+N more" when it cannot).
+    const float voices = static_cast<float>(session_.chart().voices.size());
+    const float table_h = 4.6f * u + voices * (font_px(FontFace::bold) + 1.0f);
+    const float beats_h = std::round(2.5f * u) + std::round(1.3f * u);  // icons, then the legend
+    const float base_h = std::clamp(0.34f * H, 8.5f * u, 13.0f * u);
+    const float spare_h = area.pos.y + H - y - beats_h - std::round(0.8f * u) - 14.0f * u;  // the cards keep 14 units
+    const float bottom_h = std::round(std::max(base_h, std::min({table_h, 0.42f * H, spare_h})));
     const float strips_h = area.pos.y + H - y - bottom_h - beats_h - std::round(0.8f * u);
     const std::size_t n = session_.players().size();
     const float gap = std::round(0.4f * u);
@@ -540,7 +769,7 @@ void EnsembleScreen::build(AppState& app, const ScreenArea& area, double dt_s) {
         if (i + 1 < n) bounds.push_back(std::round(sx + sw + 0.5f * gap));
     }
     y += strips_h;
-    beat_row(dl, bounds, y + std::round(0.2f * u), beats_h, dt_s);
+    beat_row(dl, bounds, x0, y + std::round(0.2f * u), inner_w, beats_h - std::round(0.2f * u), dt_s);
     y += beats_h + std::round(0.4f * u);
     const float chart_w = std::round(std::min(0.5f * inner_w, 22.0f * u));
     chart(app, dl, x0, y, chart_w, bottom_h);
@@ -552,5 +781,10 @@ void EnsembleScreen::build(AppState& app, const ScreenArea& area, double dt_s) {
 }  // namespace
 
 std::unique_ptr<Screen> make_ensemble_screen() { return std::make_unique<EnsembleScreen>(); }
+
+const EnsembleView* ensemble_view(const Screen& screen) {
+    const auto* e = dynamic_cast<const EnsembleScreen*>(&screen);
+    return e ? &e->view_ : nullptr;
+}
 
 }  // namespace beatless::ui
