@@ -444,11 +444,11 @@ void EnsembleScreen::beat_row(ImDrawList* dl, const std::vector<float>& xs, floa
         else std::snprintf(rate, sizeof rate, "no beat");
         // Icon and words centred on the boundary between the two cards.
         const float label_w = std::max(text_size(FontFace::bold, top).x, text_size(FontFace::body, rate).x);
-        const float icon_w = std::round(2.6f * rad);
+        const float icon_w = std::round(3.4f * u);
         const float group_w = icon_w + std::round(0.3f * u) + label_w;
         const float gx = std::round(xs[i] - 0.5f * group_w);
         const float cy = std::round(y0 + 0.5f * icons_h);
-        draw_beat_icon(dl, pulses_[i], ImVec2(gx, cy - 1.6f * rad), ImVec2(gx + icon_w, cy + 1.6f * rad));
+        draw_beat_icon(dl, pulses_[i], ImVec2(gx, cy - 1.9f * rad), ImVec2(gx + icon_w, cy + 1.9f * rad));
         const float lx = gx + icon_w + std::round(0.3f * u);
         put(dl, FontFace::bold, ImVec2(lx, y0 + std::round(0.05f * u)), palette::kText, top, panel);
         put(dl, FontFace::body, ImVec2(lx, y0 + std::round(0.05f * u) + font_px(FontFace::bold)), std::isfinite(hz) ? palette::kText : palette::kTextDim,
