@@ -55,8 +55,8 @@ constexpr double kSmallBias = 3.0 / 1200.0 * 0.6931471805599453;
 // neighbours, so the estimates' noise, divided by (k hop)^2, stays far under a
 // vibrato's curvature, while a vibrato at 8 Hz loses under 5 % of it.
 constexpr std::size_t kStencil = 3;
-constexpr double kRoughAlpha = 0.08;   // running means of the curvature's square and squared second difference, per frame
-constexpr double kNoiseWeight = 4.0;   // that mean, times this, is taken as the curvature's noise power
+constexpr double kPowerAlpha = 0.08;   // running mean of the curvature's square, weight of each frame
+constexpr double kNoiseBias = 0.3 / 1200.0 * 0.6931471805599453;   // the curvature's noise, as a bias (0.3 cents)
 
 std::string num(double v) {
     std::ostringstream s;
@@ -125,12 +125,11 @@ struct YinTracker::Impl {
     };
     std::array<Held, 2 * kStencil + 1> held{};   // ring: the frames f - 2 kStencil .. f
     std::size_t held_count = 0;                  // frames delivered since reset
-    // Curvature of log f0 (1/s^2) at the last two frames emitted (NaN: none),
-    // and a running mean of its squared second difference (its noise).
+    // Curvature of log f0 (1/s^2) at the last frame emitted (NaN: none) and
+    // a running mean of its square.
     struct Curvature {
-        double c1 = NAN, c2 = NAN;
-        double rough = 0.0;   // running mean of its squared second difference
-        double power = 0.0;   // running mean of its square
+        double last = NAN;
+        double power = 0.0;
     } curv;
 
     std::vector<PitchFrame> queue;
@@ -521,16 +520,16 @@ struct YinTracker::Impl {
 
     // A vibrato's curvature changes little from one frame to the next; a
     // note change inside the neighbours' spans makes it jump and flip sign.
-    // In noise the curvature is mostly noise: its second difference across
-    // frames (a vibrato's is under 6 % of its size at 8 Hz) measures that
-    // noise, and the correction is weighted by mean c^2 / (mean c^2 + noise), a Wiener
-    // gain (N. Wiener, Extrapolation, Interpolation, and Smoothing of
-    // Stationary Time Series, 1949), so steady tones in noise keep their precision.
+    // On a steady tone in noise the curvature is noise alone, a bias of a
+    // tenth of a cent or so; the correction is weighted by the Wiener gain
+    // P / (P + N) (N. Wiener, Extrapolation, Interpolation, and Smoothing of
+    // Stationary Time Series, 1949), P the running mean of the curvature's
+    // square and N that of a 0.3-cent bias, so steady tones in noise keep
+    // their precision while a vibrato (biases of 0.5 to 12 cents) is corrected.
     static PitchFrame corrected(const Held& a, const Held& b, const Held& c, Curvature& cv) noexcept {
         PitchFrame out = b.p;
-        const double prev = cv.c1, prev2 = cv.c2;
-        cv.c2 = cv.c1;
-        cv.c1 = NAN;
+        const double prev = cv.last;
+        cv.last = NAN;
         if (!(a.p.voiced() && b.p.voiced() && c.p.voiced()) || b.m2_s2 <= 0.0) return out;
         const double ga = std::log(a.p.f0_hz), gb = std::log(b.p.f0_hz), gc = std::log(c.p.f0_hz);
         const double hab = b.p.t_s - a.p.t_s, hbc = c.p.t_s - b.p.t_s;
@@ -538,14 +537,13 @@ struct YinTracker::Impl {
         const double curvature = 2.0 * ((gc - gb) / hbc - (gb - ga) / hab) / (hab + hbc);   // (log f0)'', 1/s^2
         const double bias = 0.5 * b.m2_s2 * curvature;                                    // natural-log units
         if (!(std::fabs(bias) < kMaxVibratoBias)) return out;   // a note change, not a vibrato
-        cv.c1 = curvature;
-        if (std::isnan(prev) || std::isnan(prev2)) return out;
+        cv.last = curvature;
+        if (std::isnan(prev)) return out;
         const double floor = 2.0 * kSmallBias / b.m2_s2;   // curvature change allowed beyond 50 %
         if (!(std::fabs(curvature - prev) <= 0.5 * std::max(std::fabs(curvature), std::fabs(prev)) + floor)) return out;
-        const double dd = curvature - 2.0 * prev + prev2;
-        cv.rough += kRoughAlpha * (dd * dd - cv.rough);
-        cv.power += kRoughAlpha * (curvature * curvature - cv.power);
-        const double gain = cv.power / (cv.power + kNoiseWeight * cv.rough);
+        cv.power += kPowerAlpha * (curvature * curvature - cv.power);
+        const double noise = kNoiseBias / (0.5 * b.m2_s2);   // that bias as a curvature
+        const double gain = cv.power / (cv.power + noise * noise);
         out.f0_hz = b.p.f0_hz * std::exp(-gain * bias);
         return out;
     }
