@@ -111,14 +111,32 @@ void score(const std::vector<Frame>& frames, const Case& c, Score& s) {
     }
 }
 
-std::vector<Frame> run_ours(const std::vector<float>& x) {
+
+std::vector<pitch::PitchFrame> run_ours_full(const std::vector<float>& x) {
     pitch::YinTracker yin(pitch::YinConfig{});
-    std::vector<Frame> out;
+    std::vector<pitch::PitchFrame> out;
     pitch::PitchFrame p;
     for (std::size_t i = 0; i < x.size(); i += 512) {
         yin.push(std::span<const float>(x).subspan(i, std::min<std::size_t>(512, x.size() - i)));
-        while (yin.pull(p)) out.push_back({p.t_s, p.f0_hz});
+        while (yin.pull(p)) out.push_back(p);
     }
+    return out;
+}
+
+// Reported voiced frames on voiced truth, binned by confidence: count and count within 50 c.
+void calibration(const std::vector<pitch::PitchFrame>& frames, const Case& c, std::vector<std::pair<std::size_t, std::size_t>>& cal) {
+    for (const auto& p : frames) {
+        const double truth = c.truth(p.t_s);
+        if (truth <= 0.0 || !p.voiced() || p.confidence < 0.5) continue;
+        const auto b = std::min<std::size_t>(cal.size() - 1, static_cast<std::size_t>((p.confidence - 0.5) * 10.0));
+        ++cal[b].first;
+        if (std::fabs(test::cents(p.f0_hz, truth)) <= 50.0) ++cal[b].second;
+    }
+}
+
+std::vector<Frame> frames_of(const std::vector<pitch::PitchFrame>& ps) {
+    std::vector<Frame> out;
+    for (const auto& p : ps) out.push_back({p.t_s, p.f0_hz});
     return out;
 }
 
@@ -174,6 +192,33 @@ void print_row(const std::string& name, const char* who, const Score& s, const B
         std::printf("  settle 5c/1c %.1f/%.1f ms", bench::percentile(s.settle5_ms, 50), bench::percentile(s.settle1_ms, 50));
     if (bar) std::printf("  bar %s: %s", bar->text, bar->met ? (bar->met(s) ? "met" : "NOT met") : "-");
     std::printf("\n");
+}
+
+// The measures on which ours is behind the better of the two aubio methods.
+std::string behind(const Score& o, const Score& a, const Score& b) {
+    struct M {
+        const char* name;
+        std::function<double(const Score&)> get;
+        bool higher_better;
+    };
+    const M ms[] = {{"RPA50", [](const Score& s) { return frac(s.within50, s.voiced); }, true},
+                    {"RPA10", [](const Score& s) { return frac(s.within10, s.voiced); }, true},
+                    {"RPA1", [](const Score& s) { return frac(s.within1, s.voiced); }, true},
+                    {"median", [](const Score& s) { return bench::percentile(s.err, 50); }, false},
+                    {"gross", [](const Score& s) { return pct(s.gross, s.reported); }, false},
+                    {"recall", [](const Score& s) { return frac(s.recalled, s.voiced); }, true},
+                    {"FA", [](const Score& s) { return pct(s.false_alarms, s.unvoiced); }, false},
+                    {"settle 5c", [](const Score& s) { return bench::percentile(s.settle5_ms, 50); }, false},
+                    {"settle 1c", [](const Score& s) { return bench::percentile(s.settle1_ms, 50); }, false}};
+    std::string out;
+    for (const M& m : ms) {
+        const double x = m.get(o), ya = m.get(a), yb = m.get(b);
+        if (std::isnan(x)) continue;
+        const double best = m.higher_better ? std::max(ya, yb) : std::min(ya, yb);
+        const bool worse = m.higher_better ? x < best - 1e-9 : x > best + 1e-9;
+        if (worse) out += (out.empty() ? "" : ", ") + std::string(m.name);
+    }
+    return out;
 }
 
 // [SECTION] Signal classes
@@ -445,13 +490,16 @@ void run(bench::Context& ctx) {
     std::vector<std::vector<std::vector<Frame>>> aubio[2];
     const bool have_aubio = run_aubio(cls, hop, aubio);
 
+    std::vector<std::pair<std::size_t, std::size_t>> cal(5);   // confidence 0.5-0.6 .. 0.9-1.0: frames, within 50 c
     std::printf("\n%-26s %-7s %6s %6s %6s %6s %8s %8s %7s %6s %6s %6s\n", "class", "method", "voiced", "RPA50", "RPA10", "RPA1",
                 "med_c", "p95_c", "gross%", "oct5%", "recall", "FA%");
     for (std::size_t k = 0; k < cls.size(); ++k) {
         const Class& c = cls[k];
         Score ours, yin, yinfft;
         for (std::size_t i = 0; i < c.cases.size(); ++i) {
-            score(run_ours(c.cases[i].x), c.cases[i], ours);
+            const auto full = run_ours_full(c.cases[i].x);
+            score(frames_of(full), c.cases[i], ours);
+            calibration(full, c.cases[i], cal);
             if (have_aubio) {
                 score(aubio[0][k][i], c.cases[i], yin);
                 score(aubio[1][k][i], c.cases[i], yinfft);
@@ -461,8 +509,16 @@ void run(bench::Context& ctx) {
         if (have_aubio) {
             print_row("", "yin", yin, nullptr);
             print_row("", "yinfft", yinfft, nullptr);
+            const std::string b = behind(ours, yin, yinfft);
+            std::printf("%-26s ours %s\n", "", b.empty() ? "ahead of or level with both aubio methods on every measure"
+                                                        : ("behind the better aubio method on: " + b).c_str());
         }
     }
+    std::printf("\nconfidence calibration (ours, every class): share of voiced-truth frames reported at a confidence\n"
+                "in the bin that are within 50 c\n%-12s %8s %10s\n", "confidence", "frames", "within50");
+    for (std::size_t b = 0; b < cal.size(); ++b)
+        std::printf("%4.1f - %4.1f %8zu %10.3f\n", 0.5 + 0.1 * static_cast<double>(b), 0.6 + 0.1 * static_cast<double>(b), cal[b].first,
+                    frac(cal[b].second, cal[b].first));
     std::printf("\nFile-path settling is bounded by the span: a frame's estimate mixes the old and new note until the\n"
                 "refinement's window (about 2/3 of span_s, here 50 ms) has passed the change.\n");
 }
