@@ -172,6 +172,9 @@ void Engine::start(bool analysis_thread) {
     // readings settle later).
     yc.span_s = cfg_.span_s > 0.0 ? cfg_.span_s : std::max(live ? 0.030 : 0.050, pitch::YinTracker::min_span_s(yc));
     m.span_s = yc.span_s;
+    // The vibrato correction waits three hops for a frame's right neighbours:
+    // worth it for a file, not for the live settling bar.
+    yc.vibrato_correction = !live;
     m.tracker = std::make_unique<pitch::YinTracker>(yc);
     CancellerConfig cc = cfg_.canceller;
     cc.sample_rate_hz = m.rate;

@@ -5,6 +5,7 @@
 //   2. Input        — push(): sanitising, buffers, decimation
 //   3. Coarse frame — YIN steps 2-5 on the decimated copy
 //   4. Final frame  — step 6 (best local estimate), period-multiple refinement
+//   5. Vibrato correction — the span's averaging of a moving f0, removed
 //
 // Time line (all indices absolute, sample n of the input at n / rate):
 // frame f is centred on sample c_f = c_0 + f * hop. Its coarse window (k
@@ -43,6 +44,19 @@ constexpr Index kFineMargin = LagRefiner::kKernelHalf + LagRefiner::kSearch + 1;
 // One half of the span 40 dB under the other: a note starts or stops inside
 // it (a held tone's level never changes that fast).
 constexpr double kOneSidedRatio = 1e-4;
+// Largest averaging bias the vibrato correction removes (log units, 20 cents):
+// a vibrato of +-100 cents at 8 Hz over a 50 ms span is biased about 12 cents;
+// anything larger is a note change inside the neighbours' spans.
+constexpr double kMaxVibratoBias = 20.0 / 1200.0 * 0.6931471805599453;
+// A vibrato's bias may change this much (3 cents) from one frame to the next
+// (12 cents at 8 Hz changes by up to 2 pi 8 Hz 5 ms = 0.25 of itself per hop).
+constexpr double kSmallBias = 3.0 / 1200.0 * 0.6931471805599453;
+// The curvature is measured across frames f - k, f, f + k: wider than
+// neighbours, so the estimates' noise, divided by (k hop)^2, stays far under a
+// vibrato's curvature, while a vibrato at 8 Hz loses under 5 % of it.
+constexpr std::size_t kStencil = 3;
+constexpr double kPowerAlpha = 0.08;   // running mean of the curvature's square, weight of each frame
+constexpr double kNoiseBias = 0.3 / 1200.0 * 0.6931471805599453;   // the curvature's noise, as a bias (0.3 cents)
 
 std::string num(double v) {
     std::ostringstream s;
@@ -102,6 +116,21 @@ struct YinTracker::Impl {
 
     std::array<Coarse, 3> ring;
     std::vector<float> r;
+
+    // Frames waiting for their right neighbour (vibrato correction); m2_s2 is
+    // each one's kernel second moment (0 when the refinement did not run).
+    struct Held {
+        PitchFrame p;
+        double m2_s2 = 0.0;
+    };
+    std::array<Held, 2 * kStencil + 1> held{};   // ring: the frames f - 2 kStencil .. f
+    std::size_t held_count = 0;                  // frames delivered since reset
+    // Curvature of log f0 (1/s^2) at the last frame emitted (NaN: none) and
+    // a running mean of its square.
+    struct Curvature {
+        double last = NAN;
+        double power = 0.0;
+    } curv;
 
     std::vector<PitchFrame> queue;
     std::size_t q_head = 0, q_count = 0;
@@ -196,6 +225,7 @@ struct YinTracker::Impl {
         const Index H = static_cast<Index>(decimator.half_len());
         const Index need = std::max({c0 + x_lookahead, (c0 / D + y_lookahead - 1) * D + H + 1, (coarse_end_dec - 1) * D + H + 1});
         delay = static_cast<double>(need - 1 - c0) / rate;
+        if (cfg.vibrato_correction) delay += static_cast<double>(kStencil * hop) / rate;   // a frame waits for its right neighbour
 
         const std::size_t keep = static_cast<std::size_t>(2 * span + 4 * static_cast<Index>(hop) + 4 * H +
                                                           (need - c0) + 4 * region + 1024);
@@ -224,6 +254,8 @@ struct YinTracker::Impl {
         f_done = 0;
         correlator.reset();
         q_head = q_count = 0;
+        held_count = 0;
+        curv = Curvature{};
         bad_samples = dropped = 0;
     }
 
@@ -396,7 +428,7 @@ struct YinTracker::Impl {
         out.confidence = std::clamp(1.0 - aper, 0.0, 1.0);
         if (out.level_dbfs < cfg.silence_dbfs || one_sided || !(aper < cfg.threshold) || !(period > 0.0)) {
             if (out.level_dbfs < cfg.silence_dbfs || one_sided) out.confidence = 0.0;
-            emit(out);
+            deliver(out, 0.0);
             return;
         }
 
@@ -440,21 +472,90 @@ struct YinTracker::Impl {
         const Index s = std::lround(static_cast<double>(cf) - static_cast<double>(W - 1 + j0) / 2.0);
         const LagRefiner::Result fr = fine.refine(xp(s), static_cast<std::size_t>(W), static_cast<std::size_t>(j0));
         double t_centre = static_cast<double>(cf);
+        double m2_s2 = 0.0;
         if (fr.ok) {
             kt = fr.lag;
             t_centre = static_cast<double>(s) + (static_cast<double>(W) - 1.0 + kt) / 2.0;
+            m2_s2 = kernel_second_moment(static_cast<double>(W), kt) / (rate * rate);
         }
         double T = kt / static_cast<double>(K);
-        if (!(std::fabs(T / Tc - 1.0) < 0.06)) T = Tc;   // refinement lost the period: keep the coarse one
+        if (!(std::fabs(T / Tc - 1.0) < 0.06)) {   // refinement lost the period: keep the coarse one
+            T = Tc;
+            m2_s2 = 0.0;
+        }
         out.f0_hz = rate / T;
         out.t_s = t_centre / rate;
-        emit(out);
+        deliver(out, m2_s2);
+    }
+
+    // -----------------------------------------------------------------------
+    // 5. Vibrato correction
+    // -----------------------------------------------------------------------
+    //
+    // The refined lag L = K T over a window of W samples aligns x[n] with
+    // x[n + L] for n under the biweight w; the K periods from n span the
+    // boxcar [n, n + L], so the estimate is f0 averaged over w convolved with
+    // that boxcar: a kernel of second moment var(w) + L^2 / 12, var(w) =
+    // (W / 2)^2 / 7 for the biweight (1 - u^2)^2 on [-1, 1]. For f0 locally
+    // quadratic, log f0_est = log f0 + m2 / 2 (log f0)'' (kernel-smoothing
+    // bias, Wand and Jones 1995, sec. 2.5); the curvature comes from the
+    // estimates of frames f - 1, f, f + 1, and is removed from frame f.
+    static double kernel_second_moment(double window, double lag) noexcept { return yin_kernel_second_moment(window, lag); }
+
+    void deliver(const PitchFrame& p, double m2_s2) noexcept {
+        if (!cfg.vibrato_correction) {
+            emit(p);
+            return;
+        }
+        const std::size_t j = held_count++;
+        held[j % held.size()] = {p, m2_s2};
+        if (j < kStencil) return;
+        const std::size_t b = j - kStencil;
+        if (b < kStencil) {
+            emit(held[b % held.size()].p);   // the first frames have no left neighbour
+            return;
+        }
+        emit(corrected(held[(b - kStencil) % held.size()], held[b % held.size()], held[j % held.size()], curv));
+    }
+
+    // A vibrato's curvature changes little from one frame to the next; a
+    // note change inside the neighbours' spans makes it jump and flip sign.
+    // On a steady tone in noise the curvature is noise alone, a bias of a
+    // tenth of a cent or so; the correction is weighted by the Wiener gain
+    // P / (P + N) (N. Wiener, Extrapolation, Interpolation, and Smoothing of
+    // Stationary Time Series, 1949), P the running mean of the curvature's
+    // square and N that of a 0.3-cent bias, so steady tones in noise keep
+    // their precision while a vibrato (biases of 0.5 to 12 cents) is corrected.
+    static PitchFrame corrected(const Held& a, const Held& b, const Held& c, Curvature& cv) noexcept {
+        PitchFrame out = b.p;
+        const double prev = cv.last;
+        cv.last = NAN;
+        if (!(a.p.voiced() && b.p.voiced() && c.p.voiced()) || b.m2_s2 <= 0.0) return out;
+        const double ga = std::log(a.p.f0_hz), gb = std::log(b.p.f0_hz), gc = std::log(c.p.f0_hz);
+        const double hab = b.p.t_s - a.p.t_s, hbc = c.p.t_s - b.p.t_s;
+        if (!(hab > 0.0 && hbc > 0.0)) return out;
+        const double curvature = 2.0 * ((gc - gb) / hbc - (gb - ga) / hab) / (hab + hbc);   // (log f0)'', 1/s^2
+        const double bias = 0.5 * b.m2_s2 * curvature;                                    // natural-log units
+        if (!(std::fabs(bias) < kMaxVibratoBias)) return out;   // a note change, not a vibrato
+        cv.last = curvature;
+        if (std::isnan(prev)) return out;
+        const double floor = 2.0 * kSmallBias / b.m2_s2;   // curvature change allowed beyond 50 %
+        if (!(std::fabs(curvature - prev) <= 0.5 * std::max(std::fabs(curvature), std::fabs(prev)) + floor)) return out;
+        cv.power += kPowerAlpha * (curvature * curvature - cv.power);
+        const double noise = kNoiseBias / (0.5 * b.m2_s2);   // that bias as a curvature
+        const double gain = cv.power / (cv.power + noise * noise);
+        out.f0_hz = b.p.f0_hz * std::exp(-gain * bias);
+        return out;
     }
 };
 
 // ---------------------------------------------------------------------------
 // Public interface
 // ---------------------------------------------------------------------------
+
+double yin_kernel_second_moment(double window_samples, double lag_samples) noexcept {
+    return 0.25 * window_samples * window_samples / 7.0 + lag_samples * lag_samples / 12.0;
+}
 
 YinTracker::YinTracker(const YinConfig& config) : impl_(std::make_unique<Impl>(config)) {}
 

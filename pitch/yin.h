@@ -9,6 +9,11 @@
 // (pitch/decimator.h, pitch/yin_coarse.h). A refinement stage then measures
 // steady tones far more finely than the parabola allows: the lag of a period
 // multiple near 2/3 of the span, at the full rate (pitch/yin_refine.h).
+// Vibrato: a measured lag averages f0 over a kernel of known second moment
+// m2; with f0 locally quadratic the estimate is biased by m2/2 times the
+// curvature of log f0, which is estimated across neighbouring frames and
+// removed (kernel-smoothing bias, M. P. Wand and M. C. Jones, Kernel
+// Smoothing, Chapman & Hall 1995, sec. 2.5).
 //
 // All allocation happens in the constructor; push() and pull() never
 // allocate. push() runs the analysis; frames wait in a queue sized for
@@ -31,6 +36,7 @@ struct YinConfig {
     double span_s = 0.050;             // most audio one estimate may depend on (0.01 .. 1 s)
     double threshold = 0.15;           // YIN absolute threshold on the normalised difference (0 .. 1)
     double silence_dbfs = -60.0;       // frames quieter than this (RMS) are unvoiced
+    bool vibrato_correction = true;    // remove the span's averaging of a moving f0 (quadratic model; one hop more delay)
     std::size_t max_block_len_samples = 1 << 16;  // frames of one push() this long fit the queue
 };
 
@@ -79,5 +85,11 @@ private:
 // window + max_lag samples; out receives max_lag + 1 values. Exposed for
 // tests against a direct computation. Allocates: yes (a one-off helper).
 void yin_difference(std::span<const float> x, std::size_t window, std::size_t max_lag, std::span<double> out);
+
+// Second moment (samples^2) of the kernel over which a lag L measured with a
+// biweight window of W samples averages a moving f0: (W / 2)^2 / 7 + L^2 / 12
+// (the window convolved with a boxcar of L). The vibrato correction removes
+// m2 / 2 times the curvature of log f0. Exposed for the numpy cross-check.
+double yin_kernel_second_moment(double window_samples, double lag_samples) noexcept;
 
 }  // namespace beatless::pitch
