@@ -143,6 +143,13 @@ AudiblePair audible_pair(double f_a_hz, double f_b_hz, double target_cents, std:
     return out;
 }
 
+AudiblePair audible_pair_of_target(double f_a_hz, double f_b_hz, const Interval& target, int octaves, double target_cents,
+                                   const AudibleRange& range) noexcept {
+    std::optional<Ratio> own;
+    if (target.is_ratio()) own = beating_ratio(target, octaves);
+    return audible_pair(f_a_hz, f_b_hz, target_cents, own, range);
+}
+
 BeatBand beat_band(double beat_hz, const BeatBands& bands) noexcept {
     if (!std::isfinite(beat_hz) || beat_hz < 0.0) return BeatBand::none;
     if (beat_hz < bands.still_below_hz) return BeatBand::still;

@@ -94,6 +94,12 @@ struct AudiblePair {
 AudiblePair audible_pair(double f_a_hz, double f_b_hz, double target_cents, std::optional<Ratio> own,
                          const AudibleRange& range = {}) noexcept;
 
+// The audible pair for a matched target: `target` moved by `octaves` (its
+// own pair when it is a ratio; a cents target has none), target_cents
+// above tone a. Thread: any. Allocates: no.
+AudiblePair audible_pair_of_target(double f_a_hz, double f_b_hz, const Interval& target, int octaves, double target_cents,
+                                   const AudibleRange& range = {}) noexcept;
+
 // How a listener perceives a beat of a given rate. Common practice (no one
 // published table): a beat slower than about one in five seconds is not
 // heard within a held note; up to about 5 Hz the beats can be counted; from

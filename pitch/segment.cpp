@@ -215,13 +215,12 @@ bool NoteSegmenter::close(std::size_t m, bool truncated, NoteResult& out) noexce
         r.target_cents = tm.target_cents;
         r.dev_cents = tm.dev_cents;
         const Interval& iv = targets_.targets[tm.index].interval;
-        std::optional<Ratio> own;
         if (iv.is_ratio()) {
-            own = beating_ratio(iv, tm.octaves);
-            r.own_partial_root = static_cast<int>(std::min<std::int64_t>(own->num, 1 << 30));
-            r.own_partial_voice = static_cast<int>(std::min<std::int64_t>(own->den, 1 << 30));
+            const Ratio own = beating_ratio(iv, tm.octaves);
+            r.own_partial_root = static_cast<int>(std::min<std::int64_t>(own.num, 1 << 30));
+            r.own_partial_voice = static_cast<int>(std::min<std::int64_t>(own.den, 1 << 30));
         }
-        const AudiblePair heard = audible_pair(cfg_.root_hz, r.centre_f0_hz, tm.target_cents, own, cfg_.audible);
+        const AudiblePair heard = audible_pair_of_target(cfg_.root_hz, r.centre_f0_hz, iv, tm.octaves, tm.target_cents, cfg_.audible);
         if (heard.found) {
             r.partial_root = heard.partial_a;
             r.partial_voice = heard.partial_b;

@@ -9,7 +9,6 @@
 #pragma once
 
 #include "pitch/beats.h"
-
 #include "pitch/targets.h"
 #include "pitch/vibrato.h"
 #include "pitch/yin.h"

@@ -360,7 +360,8 @@ void print_two_voices(const AnalyzeOptions& o, const pitch::TargetSet& set, cons
                     d.f_low_hz, d.f_high_hz, d.interval_cents, tgt.c_str(), name.c_str(), d.dev_cents, d.spread_cents,
                     d.predicted_beat_hz, meas.c_str(), d.clipped_frames > 0 ? "  clipped" : "");
     }
-    std::printf("\ndev: interval minus target (+ wide); beat Hz: |q f_high - p f_low| from the f0s; measured: from the partials.\n");
+    std::printf("\ndev: interval minus target (+ wide); beat Hz: |q f_high - p f_low| from the f0s, for the partials p and q\n"
+                "a listener hears (a simpler ratio's where the target's own lie above the 12th or 4 kHz); measured: from those partials.\n");
     print_summary_text(set, a.summary, true);
 }
 
