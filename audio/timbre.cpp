@@ -31,6 +31,14 @@ std::size_t timbre_partials_into(Timbre t, std::span<double> out) noexcept {
     return n;
 }
 
+int timbre_highest_partial(Timbre t) noexcept {
+    double a[kMaxTimbrePartials];
+    const std::size_t n = timbre_partials_into(t, a);
+    for (std::size_t k = n; k > 0; --k)
+        if (a[k - 1] > 0.0) return static_cast<int>(k);
+    return 0;
+}
+
 std::vector<double> timbre_partials(Timbre t) {
     std::vector<double> a(kMaxTimbrePartials);
     a.resize(timbre_partials_into(t, a));

@@ -166,6 +166,8 @@ ChordChart chord_chart(const Chord& chord, double root_hz, const ChartConfig& co
             vb.interval = Ratio::make(chord.terms()[b], chord.terms()[a]);
             vb.lowest = coinciding_pair(fa, fb, vb.interval);
             vb.beat_hz_per_cent = beat_hz_per_cent(vb.lowest);
+            vb.heard = audible_pair(fa, fb, vb.interval.cents(), vb.interval, config.audible);
+            if (vb.heard.found) vb.heard_hz_per_cent = vb.heard.partial_b * fb * std::numbers::ln2 / 1200.0;
             // At the just tuning the meeting partials agree to rounding error;
             // every other pair is at least the common fundamental apart.
             const double within_hz = 1e-9 * fb * config.max_harmonic;

@@ -70,6 +70,7 @@ Chord parse_chord(std::string_view text);
 struct ChartConfig {
     double a4_hz = kDefaultA4Hz;  // Hz, 400-480; default 440 (ISO 16)
     int max_harmonic = 16;        // highest partial listed as coinciding; default 16
+    AudibleRange audible{.partials_a = 16};  // voices sound up to the 16th partial; 4 kHz limit (pitch/beats.h)
 };
 
 struct VoiceChart {
@@ -91,6 +92,8 @@ struct VoiceBeat {
     Ratio interval;                      // f_b / f_a
     PartialPair lowest;                  // the lowest pair that meets (p, q)
     double beat_hz_per_cent = 0.0;       // of the lowest pair
+    AudiblePair heard;                   // the pair a listener hears beat (pitch/beats.h, audible_pair): the headline
+    double heard_hz_per_cent = NAN;      // its slope, q f_b ln2 / 1200 Hz per cent (NaN when none)
     std::vector<PartialPair> coinciding; // every meeting pair up to max_harmonic (kp, kq), lowest first
 };
 

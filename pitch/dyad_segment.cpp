@@ -173,11 +173,13 @@ bool DyadSegmenter::close(std::size_t m, bool truncated, DyadResult& out) noexce
         const Ratio br = beating_ratio(targets_.targets[tm.index].interval, tm.octaves);
         r.ratio_num = br.num;
         r.ratio_den = br.den;
-        // f_high / f_low = p/q: the p-th partial of the low voice meets the q-th of the high one.
-        const PartialPair pp = coinciding_pair(r.f_low_hz, r.f_high_hz, br);
-        r.partial_low = pp.partial_a;
-        r.partial_high = pp.partial_b;
-        r.predicted_beat_hz = pp.beat_hz;
+        // The pair a listener hears (pitch/beats.h): f_high / f_low = p/q, the p-th
+        // partial of the low voice meets the q-th of the high one, or a simpler ratio's pair.
+        const AudiblePair h = audible_pair_of_target(r.f_low_hz, r.f_high_hz, targets_.targets[tm.index].interval, tm.octaves,
+                                                     tm.target_cents, cfg_.audible);
+        r.partial_low = h.found ? h.partial_a : -1;
+        r.partial_high = h.found ? h.partial_b : -1;
+        r.predicted_beat_hz = h.beat_hz;
 
         // Measured beat: the latest envelope measurement, or the median of the frequency differences.
         std::size_t last = b;

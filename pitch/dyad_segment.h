@@ -13,6 +13,7 @@
 // Memory is bounded by max_dyad_s; push() never allocates.
 #pragma once
 
+#include "pitch/beats.h"
 #include "pitch/targets.h"
 #include "pitch/two_voice.h"
 
@@ -25,6 +26,7 @@ namespace beatless::pitch {
 
 struct DyadSegmentConfig {
     double hop_s = 0.01;               // tracker hop, for sizing (default 10 ms)
+    AudibleRange audible{.partials_a = 12, .partials_b = 12};  // partials each voice sounds (default 12, as TwoVoiceConfig); 4 kHz limit
     double min_confidence = 0.5;       // weaker frames count as a gap (default 0.5)
     double min_dyad_s = 0.2;           // shorter dyads are dropped (default 200 ms)
     double max_gap_s = 0.05;           // gaps up to this are bridged (default 50 ms)

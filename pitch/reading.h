@@ -26,16 +26,15 @@ struct Reading {
     double centre_f0_hz = NAN;         // vibrato centre (whole cycles averaged)
     double centre_dev_cents = NAN;     // centre's deviation from the target
     double steadiness_cents = NAN;     // spread (standard deviation) over the last second
-    double beat_hz = NAN;              // beat rate of the coinciding partial pair
+    // The target's own coinciding pair (a detail: 729:512 for 729/512).
+    double beat_hz = NAN;              // beat rate of the target's own coinciding pair
     int beat_partial_root = -1;        // which harmonic of the root beats ...
     int beat_partial_voice = -1;       // ... against which harmonic of the voice
-    // The pair a listener hears beating: the coinciding pair when its partial
-    // numbers are at most 16; for targets of high terms (45/32, 729/512),
-    // whose coinciding partials lie above hearing, the pair of the nearest
-    // simple ratio (terms <= 10), which beats at a steady rate even when the
-    // target is exactly in tune (heard_beat_at_target_hz).
+    // The audible pair (pitch/beats.h, audible_pair): what a listener hears
+    // beat for this target and the drone's timbre; the headline everywhere.
+    // -1 / NaN when no present partials coincide near the target.
     double heard_beat_hz = NAN;        // rate of that pair now
-    double heard_beat_at_target_hz = NAN;  // its rate with the voice exactly on target (0 for simple targets)
+    double heard_beat_at_target_hz = NAN;  // its rate with the voice exactly on target (0 for the own pair)
     int heard_partial_root = -1;
     int heard_partial_voice = -1;
     double et_offset_cents = NAN;      // cents from the nearest 12-TET note (A4 reference)

@@ -10,34 +10,11 @@
 
 namespace beatless::pitch {
 
-namespace {
-constexpr std::int64_t kMaxTerm = std::int64_t{1} << 40;  // partial numbers beyond this are meaningless
-// Coinciding partials above the 16th are too weak and high to be heard
-// beating in a voice or string tone (common practice).
-constexpr std::int64_t kMaxHeardPartial = 16;
-
-// Moves the pair (root p, voice q) by whole octaves of the voice.
-bool shift_pair(std::int64_t& p, std::int64_t& q, int octaves) noexcept {
-    for (int k = 0; k < octaves; ++k) {
-        if (q % 2 == 0) q /= 2;
-        else p *= 2;
-        if (p > kMaxTerm) return false;
-    }
-    for (int k = 0; k > octaves; --k) {
-        if (p % 2 == 0) p /= 2;
-        else q *= 2;
-        if (q > kMaxTerm) return false;
-    }
-    return true;
-}
-
-}  // namespace
-
 bool coinciding_partials(const Interval& t, int octaves, std::int64_t& p, std::int64_t& q) noexcept {
     const Ratio r = t.is_ratio() ? t.ratio() : nearest_simple_ratio(t.cents());
     p = r.num;
     q = r.den;
-    return shift_pair(p, q, octaves);
+    return shift_by_octaves(p, q, octaves);
 }
 
 ReadingMaker::ReadingMaker(const ReadingConfig& config, TargetSet targets)
@@ -50,13 +27,7 @@ ReadingMaker::ReadingMaker(const ReadingConfig& config, TargetSet targets)
     for (const Target& t : set_.targets) {
         BeatRatio b;
         coinciding_partials(t.interval, 0, b.p, b.q);
-        b.hp = b.p;
-        b.hq = b.q;
-        if (std::max(b.p, b.q) > kMaxHeardPartial) {
-            const Ratio h = nearest_simple_ratio(t.interval.cents(), 10);
-            b.hp = h.num;
-            b.hq = h.den;
-        }
+        b.exact = t.interval.is_ratio();
         beat_.push_back(b);
     }
 }
@@ -121,19 +92,21 @@ Reading ReadingMaker::make(const PitchFrame& f, std::int64_t sample_index) noexc
 
     // Coinciding pair of the matched target in the matched octave.
     std::int64_t p = beat_[m.index].p, q = beat_[m.index].q;
-    const bool ok = shift_pair(p, q, m.octaves);
+    const bool ok = shift_by_octaves(p, q, m.octaves);
     if (ok) {
         r.beat_partial_root = static_cast<int>(std::min<std::int64_t>(p, 1 << 30));
         r.beat_partial_voice = static_cast<int>(std::min<std::int64_t>(q, 1 << 30));
         r.beat_hz = std::fabs(static_cast<double>(q) * f.f0_hz - static_cast<double>(p) * cfg_.root_hz);
     }
-    std::int64_t hp = beat_[m.index].hp, hq = beat_[m.index].hq;
-    if (shift_pair(hp, hq, m.octaves)) {
-        r.heard_partial_root = static_cast<int>(std::min<std::int64_t>(hp, 1 << 30));
-        r.heard_partial_voice = static_cast<int>(std::min<std::int64_t>(hq, 1 << 30));
-        r.heard_beat_hz = std::fabs(static_cast<double>(hq) * f.f0_hz - static_cast<double>(hp) * cfg_.root_hz);
-        const double on_target_hz = cfg_.root_hz * std::exp2(m.target_cents / 1200.0);
-        r.heard_beat_at_target_hz = std::fabs(static_cast<double>(hq) * on_target_hz - static_cast<double>(hp) * cfg_.root_hz);
+    // The pair a listener hears (pitch/beats.h, audible_pair).
+    std::optional<Ratio> own;
+    if (ok && beat_[m.index].exact) own = Ratio{p, q};
+    const AudiblePair heard = audible_pair(cfg_.root_hz, f.f0_hz, m.target_cents, own, cfg_.audible);
+    if (heard.found) {
+        r.heard_partial_root = heard.partial_a;
+        r.heard_partial_voice = heard.partial_b;
+        r.heard_beat_hz = heard.beat_hz;
+        r.heard_beat_at_target_hz = heard.beat_at_target_hz;
     }
     const double midi = 69.0 + 12.0 * std::log2(f.f0_hz / cfg_.a4_hz);
     r.et_offset_cents = 100.0 * (midi - std::round(midi));

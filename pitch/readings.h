@@ -8,7 +8,7 @@
 // cents, + sharp; the coinciding partial pair of the target, shifted by the
 // matched octaves, and its beat rate |q f_voice - p f_root| (Helmholtz, see
 // pitch/beats.h); irrational targets (600c) beat like the nearest simple
-// ratio; the heard pair (Reading::heard_beat_hz); the offset from 12-TET for the A4 reference (MIDI 69 = A4).
+// ratio; the audible pair (pitch/beats.h, audible_pair) in heard_*; the offset from 12-TET for the A4 reference (MIDI 69 = A4).
 // A new note (restarting the centre) is a jump of more than jump_cents
 // between frames, or the pitch held away from the centre by more than the
 // vibrato's swing explains (new_note_cents + 1.2 x depth) for a few frames.
@@ -16,6 +16,7 @@
 // All allocation happens in the constructor; make() never allocates.
 #pragma once
 
+#include "pitch/beats.h"
 #include "pitch/reading.h"
 #include "pitch/targets.h"
 #include "pitch/vibrato.h"
@@ -34,6 +35,7 @@ struct ReadingConfig {
     double new_note_cents = 15.0;     // held this far beyond the vibrato's swing from the centre ... (default 15 cents)
     int new_note_frames = 4;          // ... for this many frames, a new note starts (default 4)
     VibratoConfig vibrato;            // whole-cycle centre and steadiness settings
+    AudibleRange audible;             // which partials can be heard beating (set partials_a from the drone's timbre)
 };
 
 class ReadingMaker {
@@ -54,7 +56,7 @@ public:
 private:
     struct BeatRatio {
         std::int64_t p = 1, q = 1;  // coinciding partials of the unshifted target: root p, voice q
-        std::int64_t hp = 1, hq = 1;  // the heard pair (see Reading::heard_beat_hz), unshifted
+        bool exact = true;            // the target is a ratio (false: a cents target beating like p/q)
     };
     ReadingConfig cfg_;
     TargetSet set_;

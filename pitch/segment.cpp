@@ -214,11 +214,19 @@ bool NoteSegmenter::close(std::size_t m, bool truncated, NoteResult& out) noexce
         r.target_octaves = tm.octaves;
         r.target_cents = tm.target_cents;
         r.dev_cents = tm.dev_cents;
-        const Ratio br = beating_ratio(targets_.targets[tm.index].interval, tm.octaves);
-        const PartialPair pp = coinciding_pair(cfg_.root_hz, r.centre_f0_hz, br);
-        r.partial_root = pp.partial_a;
-        r.partial_voice = pp.partial_b;
-        r.beat_hz = pp.beat_hz;
+        const Interval& iv = targets_.targets[tm.index].interval;
+        if (iv.is_ratio()) {
+            const Ratio own = beating_ratio(iv, tm.octaves);
+            r.own_partial_root = static_cast<int>(std::min<std::int64_t>(own.num, 1 << 30));
+            r.own_partial_voice = static_cast<int>(std::min<std::int64_t>(own.den, 1 << 30));
+        }
+        const AudiblePair heard = audible_pair_of_target(cfg_.root_hz, r.centre_f0_hz, iv, tm.octaves, tm.target_cents, cfg_.audible);
+        if (heard.found) {
+            r.partial_root = heard.partial_a;
+            r.partial_voice = heard.partial_b;
+            r.beat_hz = heard.beat_hz;
+            r.beat_in_tune_hz = heard.beat_at_target_hz;
+        }
         out = r;
     } else {
         ++dropped_short_;

@@ -8,6 +8,7 @@
 // segment.cpp. Memory is bounded by max_note_s; push() never allocates.
 #pragma once
 
+#include "pitch/beats.h"
 #include "pitch/targets.h"
 #include "pitch/vibrato.h"
 #include "pitch/yin.h"
@@ -21,6 +22,7 @@ namespace beatless::pitch {
 
 struct SegmentConfig {
     double root_hz = 0.0;              // the drone's fundamental (required, > 0)
+    AudibleRange audible;              // which partials can be heard beating (pitch/beats.h)
     double hop_s = 0.005;              // tracker hop, for sizing (default 5 ms)
     double min_confidence = 0.5;       // weaker frames count as silence (default 0.5)
     double min_note_s = 0.15;          // shorter notes are dropped (default 150 ms)
@@ -57,9 +59,15 @@ struct NoteResult {
     bool vibrato = false;              // whole vibrato cycles were averaged
     double vibrato_rate_hz = 0.0;
     double vibrato_depth_cents = 0.0;
+    // The audible pair (pitch/beats.h, audible_pair) for the target and the
+    // drone's partials: root partial p meets voice partial q; -1 / NaN when
+    // no present partials coincide near the target.
     int partial_root = -1;             // p: harmonic of the root ...
     int partial_voice = -1;            // ... coinciding with the voice's q-th harmonic
     double beat_hz = NAN;              // |q f - p root| at the centre
+    double beat_in_tune_hz = NAN;      // the same pair's rate with the voice exactly on target (0 for the own pair)
+    int own_partial_root = -1;         // detail: the target's own coinciding pair (729, 512 for 729/512) ...
+    int own_partial_voice = -1;        // ... -1 for a cents target
     bool truncated = false;            // closed at max_note_s
 };
 

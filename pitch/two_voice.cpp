@@ -92,6 +92,7 @@ struct TwoVoiceTracker::Impl {
     double bin_hz = 0.0;
     double amp_scale = 0.0;     // |X| -> sinusoid amplitude
     int harmonics = 0;
+    AudibleRange audible;       // both voices sound `harmonics` partials; the 4 kHz limit or max_freq_hz if lower
     RealFft fft;
     std::vector<float> window;
     std::vector<float> ring;
@@ -149,6 +150,9 @@ TwoVoiceTracker::Impl::Impl(const TwoVoiceConfig& c, const TargetSet& set)
     kmax = std::min(n / 2 - 2, static_cast<std::size_t>(std::min(cfg.max_freq_hz, 0.45 * cfg.sample_rate_hz) / bin_hz));
     check(kLobeBins * 2.0 * bin_hz < cfg.f_min_hz, "f_min_hz for this window (partials must be resolved)", cfg.f_min_hz);
     harmonics = cfg.max_harmonic;
+    audible.partials_a = harmonics;
+    audible.partials_b = harmonics;
+    audible.max_freq_hz = std::min(audible.max_freq_hz, cfg.max_freq_hz);
     window = make_window(WindowKind::blackman_harris, n);
     double wsum = 0.0;
     for (float w : window) wsum += w;
@@ -400,11 +404,16 @@ void TwoVoiceTracker::Impl::name_interval(TwoVoiceFrame& f) const {
     }
     f.ratio_num = r.num;
     f.ratio_den = r.den;
-    // f_high / f_low = num / den: the num-th partial of the low voice meets
-    // the den-th partial of the high one (pitch/beats.h).
-    f.partial_low = static_cast<int>(std::min<std::int64_t>(r.num, 1 << 20));
-    f.partial_high = static_cast<int>(std::min<std::int64_t>(r.den, 1 << 20));
-    f.predicted_beat_hz = std::fabs(static_cast<double>(r.den) * f.f_high_hz - static_cast<double>(r.num) * f.f_low_hz);
+    // The pair a listener hears (pitch/beats.h, audible_pair): the ratio's
+    // own pair (the num-th partial of the low voice meets the den-th of the
+    // high one) when both voices sound it below the limit, else a simpler
+    // ratio's; none leaves partial_* at -1 and no beat is predicted.
+    const bool cents_target = !targets.targets.empty() && !targets.targets[static_cast<std::size_t>(f.target_index)].interval.is_ratio();
+    const AudiblePair h = audible_pair(f.f_low_hz, f.f_high_hz, f.target_cents, cents_target ? std::nullopt : std::optional<Ratio>(r),
+                                       audible);
+    f.partial_low = h.found ? h.partial_a : -1;
+    f.partial_high = h.found ? h.partial_b : -1;
+    f.predicted_beat_hz = h.beat_hz;
 }
 
 // ---------------------------------------------------------------------------
@@ -413,7 +422,7 @@ void TwoVoiceTracker::Impl::name_interval(TwoVoiceFrame& f) const {
 void TwoVoiceTracker::Impl::measure_beat(TwoVoiceFrame& f) {
     const int p = f.partial_low, q = f.partial_high;
     const double fc = 0.5 * (p * f.f_low_hz + q * f.f_high_hz);
-    if (p > harmonics || q > harmonics || fc > cfg.max_freq_hz) {
+    if (p < 1 || q < 1 || p > harmonics || q > harmonics || fc > cfg.max_freq_hz) {
         clear_history();
         return;
     }

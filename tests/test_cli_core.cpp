@@ -6,8 +6,10 @@
 
 #include <doctest/doctest.h>
 
+#include <cctype>
 #include <cmath>
 #include <fstream>
+#include <utility>
 
 using beatless::test::line_count;
 using beatless::test::run_program;
@@ -183,4 +185,45 @@ TEST_CASE("tone with several ratios sings one note each, and analyze finds them"
     const auto bad = run_program({"tone", "--root", "D3", "--ratio", "7/5,10/7", "--detune-cents", "-6,4,2", "--out", dir.file("x.wav")});
     CHECK(bad.exit_code == 1);
     CHECK(bad.err == "beatless: --detune-cents: 3 values for 2 ratios (give one value, or one per ratio)\n");
+}
+
+TEST_CASE("ratio names only partials a drone sounds below the stated 4 kHz limit; commas beat at the fundamentals' difference") {
+    // 729/512 over D3: its own pair (729th of the root, 107 kHz) is far above
+    // hearing; the pair named must lie at or below 4 kHz (the limit stated in
+    // pitch/beats.h, common practice) and its rate be |q f_upper - p f_root|
+    // (Helmholtz, Sensations of Tone, ch. VIII), computed here.
+    const double d3 = 440.0 * std::exp2(-19.0 / 12.0);
+    for (const char* root : {"D3", "A4", "C6"}) {
+        CAPTURE(root);
+        const auto r = run_program({"ratio", "729/512", "--root", root, "--format", "json"});
+        REQUIRE(r.exit_code == 0);
+        const std::string has = beatless::test::json_value(r.out, "d['intervals'][0]['audible_partials'] is not None");
+        if (has == "True")
+            CHECK(std::stod(beatless::test::json_value(r.out, "d['intervals'][0]['audible_partials']['at_hz']")) <= 4000.0);
+        const auto text = run_program({"ratio", "729/512", "--root", root});
+        REQUIRE(text.exit_code == 0);
+        // Every "(N Hz)" the partials line gives is at or below the limit.
+        const auto line_at = text.out.find("partials that beat:");
+        REQUIRE(line_at != std::string::npos);
+        const std::string line = text.out.substr(line_at, text.out.find('\n', line_at) - line_at);
+        CAPTURE(line);
+        for (auto k = line.find('('); k != std::string::npos; k = line.find('(', k + 1))
+            if (std::isdigit(static_cast<unsigned char>(line[k + 1]))) CHECK(std::stod(line.substr(k + 1)) <= 4000.0);
+    }
+    const auto d = run_program({"ratio", "729/512", "--root", "D3", "--format", "json"});
+    CHECK(beatless::test::json_value(d.out, "d['intervals'][0]['audible_partials']['root']") == "10");
+    CHECK(beatless::test::json_value(d.out, "d['intervals'][0]['audible_partials']['upper']") == "7");
+    // |7 x D3 x 729/512 - 10 x D3| = 4.8753 Hz exactly in tune (by hand).
+    CHECK(std::stod(beatless::test::json_value(d.out, "d['intervals'][0]['audible_partials']['in_tune_beat_hz']")) ==
+          doctest::Approx(std::fabs(7.0 * d3 * 729.0 / 512.0 - 10.0 * d3)).epsilon(2e-4));
+    // Two tones a syntonic comma apart beat at their difference: D3 / 80 = 1.835 Hz (not 0).
+    for (const auto& [ratio, hz] : {std::pair{"81/80", d3 / 80.0}, std::pair{"50/49", d3 / 49.0}}) {
+        CAPTURE(ratio);
+        const auto c = run_program({"ratio", ratio, "--root", "D3", "--format", "json"});
+        REQUIRE(c.exit_code == 0);
+        CHECK(std::stod(beatless::test::json_value(c.out, "[b['beat_hz'] for b in d['intervals'][0]['beats'] if b['dev_cents'] == 0][0]")) ==
+              doctest::Approx(hz).epsilon(1e-3));
+    }
+    const auto text = run_program({"ratio", "81/80", "--root", "D3"});
+    CHECK(text.out.find("in tune they beat 1.84 Hz") != std::string::npos);
 }

@@ -9,6 +9,7 @@
 
 #include <doctest/doctest.h>
 
+#include <algorithm>
 #include <cmath>
 #include <sstream>
 #include <string>
@@ -179,4 +180,57 @@ TEST_CASE("devices prints a table or JSON, and says plainly when there is none")
     } else {
         CHECK(r.out.find("\"host_api\"") != std::string::npos);
     }
+}
+
+TEST_CASE("ratio, analyze --format json and listen agree on the beat of 45/32 three cents sharp over D3") {
+    // One take, three commands, one audible pair. The truth: D3 = 146.832 Hz
+    // (ISO 16, 12-TET), voice 45/32 x 2^(3/1200); 45/32's own pair (45:32,
+    // 6.6 kHz) lies above the 4 kHz limit, so all three must name the same
+    // simpler pair and a rate |q f_voice - p f_root| (Helmholtz 1863, ch. VIII).
+    // Tolerance 0.3 Hz: half a cent at the ~1 kHz where the pair meets.
+    TempDir dir;
+    const std::string wav = dir.file("take.wav");
+    const auto tone = run_program({"tone", "--root", "D3", "--ratio", "45/32", "--detune-cents", "3", "--seconds", "4", "--out", wav});
+    REQUIRE_MESSAGE(tone.exit_code == 0, tone.err);
+    const double f_root = 440.0 * std::exp2(-19.0 / 12.0);
+    const double f_voice = f_root * 45.0 / 32.0 * std::exp2(3.0 / 1200.0);
+
+    const auto ratio = run_program({"ratio", "45/32", "--root", "D3", "--format", "json"});
+    REQUIRE(ratio.exit_code == 0);
+    const int p = std::stoi(beatless::test::json_value(ratio.out, "d['intervals'][0]['audible_partials']['root']"));
+    const int q = std::stoi(beatless::test::json_value(ratio.out, "d['intervals'][0]['audible_partials']['upper']"));
+    CHECK(p * f_root <= 4000.0);
+    const double truth = std::fabs(q * f_voice - p * f_root);
+    // ratio tabulates +2 and +5 cents; the rate is linear in the voice's Hz,
+    // and so within 0.01 Hz linear in cents over 3 cents: interpolate +3.
+    const double at2 = std::stod(beatless::test::json_value(ratio.out, "[b['beat_hz'] for b in d['intervals'][0]['beats'] if b['dev_cents'] == 2][0]"));
+    const double at5 = std::stod(beatless::test::json_value(ratio.out, "[b['beat_hz'] for b in d['intervals'][0]['beats'] if b['dev_cents'] == 5][0]"));
+    const double ratio_hz = at2 + (at5 - at2) / 3.0;
+    CHECK(std::fabs(ratio_hz - truth) <= 0.01);
+
+    const auto an = run_program({"analyze", wav, "--root", "D3", "--targets", "tritones", "--format", "json"});
+    REQUIRE_MESSAGE(an.exit_code == 0, an.err);
+    REQUIRE(beatless::test::json_value(an.out, "len(d['notes'])") == "1");
+    CHECK(beatless::test::json_value(an.out, "d['notes'][0]['target']") == "45/32");
+    CHECK(std::stoi(beatless::test::json_value(an.out, "d['notes'][0]['partial_root']")) == p);
+    CHECK(std::stoi(beatless::test::json_value(an.out, "d['notes'][0]['partial_voice']")) == q);
+    const double analyze_hz = std::stod(beatless::test::json_value(an.out, "d['notes'][0]['beat_hz']"));
+    CHECK(std::fabs(analyze_hz - truth) <= 0.3);
+
+    const auto li = run_program({"listen", "--input-file", wav, "--fast", "--root", "D3", "--target", "45/32", "--drone"});
+    REQUIRE_MESSAGE(li.exit_code == 0, li.err);
+    const auto steady = between(lines_of(li.out), 1.0, 3.0);
+    REQUIRE(steady.size() > 300);
+    std::vector<double> rates;
+    for (const auto& l : steady) {
+        CHECK(l.find("\"beat_partials\": [" + std::to_string(p) + ", " + std::to_string(q) + "]") != std::string::npos);
+        CHECK(l.find("\"own_partials\": [45, 32]") != std::string::npos);
+        rates.push_back(num_after(l, "beat_hz"));
+    }
+    std::nth_element(rates.begin(), rates.begin() + static_cast<std::ptrdiff_t>(rates.size() / 2), rates.end());
+    const double listen_hz = rates[rates.size() / 2];
+    MESSAGE("45/32 +3 c over D3, pair " << p << ":" << q << ": truth " << truth << " Hz, ratio " << ratio_hz << ", analyze "
+                                        << analyze_hz << ", listen median " << listen_hz);
+    CHECK(std::fabs(listen_hz - truth) <= 0.3);
+    CHECK(std::fabs(listen_hz - analyze_hz) <= 0.3);
 }

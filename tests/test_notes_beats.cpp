@@ -162,3 +162,116 @@ TEST_CASE("beat bands follow the stated rate limits (common practice; roughness 
     b.rough_above_hz = 20.0;
     CHECK(pitch::beat_band(18.0, b) == BeatBand::flutter);
 }
+
+// [SECTION] Audible pair
+// D3 = 440 x 2^(-19/12) = 146.8324 Hz (ISO 16 and 12-TET, as above).
+namespace {
+const double kD3 = 440.0 * std::exp2(-19.0 / 12.0);
+double at_cents(double f, double cents) { return f * std::exp2(cents / 1200.0); }
+}  // namespace
+
+TEST_CASE("audible pair: a simple target's own pair, rate |q f_high - p f_low| (Helmholtz, Sensations of Tone, ch. VIII)") {
+    const double voice = at_cents(220.0 * 1.25, 3.0);  // 5/4 over A3, 3 cents sharp
+    const AudiblePair a = audible_pair(220.0, voice, Ratio{5, 4}.cents(), Ratio{5, 4});
+    REQUIRE(a.found);
+    CHECK(a.own);
+    CHECK(a.partial_a == 5);
+    CHECK(a.partial_b == 4);
+    CHECK(a.meet_hz == doctest::Approx(1100.0));
+    CHECK(a.beat_hz == doctest::Approx(std::fabs(4.0 * voice - 5.0 * 220.0)).epsilon(1e-12));
+    // Helmholtz's formula worked by hand: 1100 x (2^(3/1200) - 1) = 1.9078 Hz.
+    CHECK(a.beat_hz == doctest::Approx(1.9078).epsilon(1e-3));
+    CHECK(a.beat_at_target_hz == 0.0);
+}
+
+TEST_CASE("audible pair: commas beat at the fundamentals' difference (Helmholtz ch. VIII with p = q = 1)") {
+    // Two tones a comma apart: the fundamentals beat at f_high - f_low, even
+    // when the comma is exact. 81/80 over D3: 146.8324 / 80 = 1.8354 Hz.
+    struct Case {
+        const char* ratio;
+        double at_target_hz;  // worked by hand: D3 x (ratio - 1)
+    };
+    const Case cases[] = {
+        {"81/80", kD3 / 80.0},                     // syntonic comma: 1.8354 Hz
+        {"64/63", kD3 / 63.0},                     // septimal comma: 2.3307 Hz
+        {"50/49", kD3 / 49.0},                     // septimal sixth-tone: 2.9966 Hz
+        {"128/125", kD3 * 3.0 / 125.0},            // lesser diesis: 3.5240 Hz
+        {"531441/524288", kD3 * 7153.0 / 524288.0} // Pythagorean comma: 2.0033 Hz
+    };
+    for (const Case& c : cases) {
+        CAPTURE(c.ratio);
+        const Interval iv = parse_interval(c.ratio);
+        const AudiblePair a = audible_pair(kD3, kD3 * iv.value(), iv.cents(), iv.ratio());
+        REQUIRE(a.found);
+        CHECK_FALSE(a.own);
+        CHECK(a.partial_a == 1);
+        CHECK(a.partial_b == 1);
+        CHECK(a.beat_at_target_hz == doctest::Approx(c.at_target_hz).epsilon(1e-9));
+        CHECK(a.beat_hz == doctest::Approx(c.at_target_hz).epsilon(1e-9));
+    }
+    CHECK(kD3 / 80.0 == doctest::Approx(1.8354).epsilon(1e-4));
+    // A comma above the octave: the drone's octave partial against the voice.
+    const Interval up = parse_interval("81/40");
+    const AudiblePair o = audible_pair(kD3, kD3 * up.value(), up.cents(), up.ratio());
+    REQUIRE(o.found);
+    CHECK(o.partial_a == 2);
+    CHECK(o.partial_b == 1);
+    CHECK(o.beat_at_target_hz == doctest::Approx(2.0 * kD3 / 80.0).epsilon(1e-9));
+}
+
+TEST_CASE("audible pair: 729/512 and 45/32 beat like the nearest simple ratio, below the stated frequency limit") {
+    // 729/512 = 611.73 c; 10/7 = 617.49 c is the nearest ratio of terms <= 10
+    // (7/5 = 582.51 c); exactly in tune over D3, |7 f_v - 10 f_r| =
+    // |7 x 209.0635 - 1468.324| = 4.8753 Hz (Helmholtz's formula by hand).
+    const Interval iv = parse_interval("729/512");
+    const AudiblePair a = audible_pair(kD3, kD3 * iv.value(), iv.cents(), iv.ratio());
+    REQUIRE(a.found);
+    CHECK_FALSE(a.own);
+    CHECK(a.partial_a == 10);
+    CHECK(a.partial_b == 7);
+    CHECK(a.beat_at_target_hz == doctest::Approx(std::fabs(7.0 * kD3 * iv.value() - 10.0 * kD3)).epsilon(1e-12));
+    CHECK(a.beat_at_target_hz == doctest::Approx(4.8753).epsilon(1e-4));
+    // 45/32 = 590.22 c: 7/5 (7.71 c away) is nearer than 10/7 (27.3 c).
+    const Interval t = parse_interval("45/32");
+    const double voice = at_cents(kD3 * t.value(), 3.0);
+    const AudiblePair b = audible_pair(kD3, voice, t.cents(), t.ratio());
+    REQUIRE(b.found);
+    CHECK(b.partial_a == 7);
+    CHECK(b.partial_b == 5);
+    CHECK(b.beat_hz == doctest::Approx(std::fabs(5.0 * voice - 7.0 * kD3)).epsilon(1e-12));
+    // Over any root from A1 to A5 the pair named lies at or below the limit
+    // and within the partials present.
+    const AudibleRange range;
+    for (double root = 55.0; root <= 880.0; root *= std::exp2(1.0 / 12.0)) {
+        for (const char* r : {"729/512", "45/32", "15/8", "81/64", "7/4", "3/2", "16/15"}) {
+            const Interval x = parse_interval(r);
+            const AudiblePair p = audible_pair(root, root * x.value(), x.cents(), x.ratio(), range);
+            if (!p.found) continue;
+            CAPTURE(root);
+            CAPTURE(r);
+            CHECK(p.meet_hz <= range.max_freq_hz);
+            CHECK(p.partial_a <= range.partials_a);
+            CHECK(p.partial_b <= range.partials_b);
+        }
+    }
+}
+
+TEST_CASE("audible pair follows the drone's partials (common practice: a partial that is not sounded cannot beat)") {
+    AudibleRange pure;
+    pure.partials_a = 1;
+    const Interval fifth = parse_interval("3/2");
+    CHECK_FALSE(audible_pair(220.0, 330.0, fifth.cents(), fifth.ratio(), pure).found);
+    const AudiblePair uni = audible_pair(220.0, 221.0, 0.0, Ratio{1, 1}, pure);
+    REQUIRE(uni.found);
+    CHECK(uni.beat_hz == doctest::Approx(1.0));
+    // A soft drone (6 partials) has no 7th: 7/5 falls back to 4/3 (84.5 c away,
+    // within a semitone), whose partials 4 and 3 do sound.
+    AudibleRange soft;
+    soft.partials_a = 6;
+    const Interval sept = parse_interval("7/5");
+    const AudiblePair s = audible_pair(220.0, 308.0, sept.cents(), sept.ratio(), soft);
+    REQUIRE(s.found);
+    CHECK(s.partial_a == 4);
+    CHECK(s.partial_b == 3);
+    CHECK(s.beat_at_target_hz == doctest::Approx(std::fabs(3.0 * 308.0 - 4.0 * 220.0)).epsilon(1e-12));
+}

@@ -149,9 +149,13 @@ TEST_CASE("beat rate at the vibrato centre: |q f_centre - p f_root| (Helmholtz),
     pitch::Reading r;
     r.f0_hz = 310.0;
     r.root_hz = 220.0;
-    r.beat_partial_root = 7;
+    r.beat_partial_root = 7;  // the target's own pair alone is no audible pair: nothing to show
     r.beat_partial_voice = 5;
     r.beat_hz = 12.0;
+    CHECK(std::isnan(ui::cue_beat_hz(r)));
+    r.heard_partial_root = 7;
+    r.heard_partial_voice = 5;
+    r.heard_beat_hz = 12.0;
     CHECK(ui::cue_beat_hz(r) == 12.0);
     r.centre_f0_hz = 220.0 * 1.4 * std::exp2(2.0 / 1200.0);
     CHECK(ui::cue_beat_hz(r) == doctest::Approx(7.0 * 220.0 * (std::exp2(2.0 / 1200.0) - 1.0)).epsilon(1e-9));

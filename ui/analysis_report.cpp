@@ -51,7 +51,17 @@ double percentile_of(std::vector<double>& v, double p) {
 ReportLayout report_layout(const ReportData& d) {
     ReportLayout l;
     l.plot_x0 = 150.0f;
-    l.plot_x1 = 1480.0f;
+    // Room on the right for the longest target label (ratio column, then
+    // the name), estimated at 0.6 em a character so names are not cut; the
+    // plot keeps at least 1200 px and gives no more than it needs.
+    std::size_t longest_chars = 0;
+    for (const ReportTarget& t : d.targets) {
+        std::size_t n = 0;
+        for (const unsigned char c : t.name) n += (c & 0xC0) != 0x80 ? 1 : 0;
+        longest_chars = std::max(longest_chars, n);
+    }
+    const float label_w = 36.0f + 127.0f + 0.6f * kBodyPx * static_cast<float>(longest_chars);
+    l.plot_x1 = std::clamp(kReportWidthPx - kMargin / 2 - label_w, 1200.0f, 1480.0f);
     l.plot_y0 = 160.0f;
     l.plot_y1 = 840.0f;
     l.t0_s = 0.0;
@@ -336,7 +346,7 @@ void draw_title(const Ink& ink, const ReportData& d) {
     }
 }
 
-void draw_summary(const Ink& ink, const ReportData& d, float y0, int skipped_labels) {
+void draw_summary(const Ink& ink, const ReportData& d, float y0) {
     const float lh = ink.body->FontSize + 6.0f;
     const std::string plural = d.mark_word + "s";
     ink.text(ink.bold, kMargin, y0, kInk, "Per target");
@@ -349,9 +359,35 @@ void draw_summary(const Ink& ink, const ReportData& d, float y0, int skipped_lab
     const int per_col = std::max(1, static_cast<int>((bottom - row0) / lh));
     const int cols = static_cast<int>(d.summary.size()) > per_col ? 2 : 1;
     const float col_w = (kReportWidthPx - 2 * kMargin) / static_cast<float>(cols);
-    // Column offsets within a table column.
-    const float c_ratio = 0.0f, c_name = 120.0f, c_count = col_w * 0.40f, c_mean = col_w * 0.50f,
-                c_words = col_w * 0.62f;
+    // Column offsets within a table column, from the widths of what they
+    // hold: ratio | name | count | mean ± s.d. | words. The name and the
+    // words share what is left; text is shortened with "…" only when a
+    // column cannot hold it, never drawn over its neighbour.
+    const float gap = 18.0f;
+    auto mean_text = [](const ReportRow& r) {
+        std::string mean = signed_cents(r.mean_dev_cents, 1);
+        if (r.count > 1) mean += " \u00b1 " + signed_cents(r.spread_cents, 1).substr(r.spread_cents > 0.05 ? 1 : 0);
+        return mean + " c";
+    };
+    float w_ratio = 0.0f, w_name = 0.0f, w_words = 0.0f;
+    float w_count = ink.size(ink.body, plural).x, w_mean = ink.size(ink.body, "mean \u00b1 s.d.").x;
+    for (const ReportRow& r : d.summary) {
+        w_ratio = std::max(w_ratio, ink.size(ink.bold, r.ratio).x);
+        w_name = std::max(w_name, ink.size(ink.body, r.name).x);
+        w_count = std::max(w_count, ink.size(ink.body, std::to_string(r.count)).x);
+        w_mean = std::max(w_mean, ink.size(ink.bold, mean_text(r)).x);
+        w_words = std::max(w_words, ink.size(ink.body, r.words).x);
+    }
+    const float usable = col_w - 20.0f;
+    const float fixed = w_ratio + gap + w_count + gap + w_mean + gap;
+    const float room = std::max(0.0f, usable - fixed - gap);  // for the name and the words together
+    // The words restate the mean in a sentence: when the name and the words
+    // do not both fit, the words give way (the text output keeps them), and
+    // only then is a name shortened.
+    const bool with_words = w_name + gap + w_words <= room;
+    const float name_w = with_words ? w_name : room + gap;
+    const float c_ratio = 0.0f, c_name = w_ratio + gap, c_count = c_name + name_w + gap, c_mean = c_count + w_count + gap,
+                c_words = c_mean + w_mean + gap;
     for (int c = 0; c < cols; ++c) {
         const float x = kMargin + static_cast<float>(c) * col_w;
         ink.text(ink.body, x + c_count, y0, kSoftInk, plural);
@@ -366,12 +402,10 @@ void draw_summary(const Ink& ink, const ReportData& d, float y0, int skipped_lab
         const float y = row0 + static_cast<float>(static_cast<int>(i) % per_col) * lh;
         if (i % 2 == 0) ink.dl->AddRectFilled(ImVec2(x - 6.0f, y - 2.0f), ImVec2(x + col_w - 16.0f, y + lh - 4.0f), rgba(243, 243, 247));
         ink.text(ink.bold, x + c_ratio, y, kInk, r.ratio);
-        ink.text(ink.body, x + c_name, y, kSoftInk, fit_text(ink.body, r.name, c_count - c_name - 12.0f));
+        ink.text(ink.body, x + c_name, y, kSoftInk, fit_text(ink.body, r.name, name_w));
         ink.text(ink.body, x + c_count, y, kInk, std::to_string(r.count));
-        std::string mean = signed_cents(r.mean_dev_cents, 1);
-        if (r.count > 1) mean += " \u00b1 " + signed_cents(r.spread_cents, 1).substr(r.spread_cents > 0.05 ? 1 : 0);
-        ink.text(ink.bold, x + c_mean, y, mark_colour(r.mean_dev_cents), mean + " c");
-        ink.text(ink.body, x + c_words, y, kInk, fit_text(ink.body, r.words, col_w - c_words - 20.0f));
+        ink.text(ink.bold, x + c_mean, y, mark_colour(r.mean_dev_cents), mean_text(r));
+        if (with_words) ink.text(ink.body, x + c_words, y, kInk, r.words);
     }
     if (shown < d.summary.size()) {
         const std::size_t i = shown;
@@ -379,10 +413,18 @@ void draw_summary(const Ink& ink, const ReportData& d, float y0, int skipped_lab
         const float y = row0 + static_cast<float>(static_cast<int>(i) % per_col) * lh;
         ink.text(ink.body, x, y, kSoftInk, "... and " + std::to_string(d.summary.size() - shown) + " more targets (see the text output)");
     }
-    if (skipped_labels > 0)
-        ink.text_right(ink.body, kReportWidthPx - kMargin, y0, kSoftInk,
-                       std::to_string(skipped_labels) + " " + (skipped_labels == 1 ? d.mark_word : plural) +
-                           " too close together to label at this scale");
+}
+
+// Under the target labels, on the plot's caption line: how many bars went
+// unlabelled (kept off the summary's header row, which the second table
+// column uses).
+void draw_skipped_note(const Ink& ink, const ReportData& d, const ReportLayout& l, int skipped_labels) {
+    if (skipped_labels <= 0) return;
+    const float x = l.plot_x1 + 36.0f;
+    const float y = l.plot_y1 + 8.0f + ink.body->FontSize + 4.0f;
+    const std::string what = skipped_labels == 1 ? d.mark_word : d.mark_word + "s";
+    ink.text(ink.body, x, y, kSoftInk,
+             fit_text(ink.body, std::to_string(skipped_labels) + " " + what + " too close to label", kReportWidthPx - kMargin / 2 - x));
 }
 
 }  // namespace
@@ -411,7 +453,8 @@ void render_report(const ReportData& d, PixelBuffer& out) {
             draw_trace(ink, d, l);
             const int skipped = draw_marks(ink, d, l);
             dl->PopClipRect();
-            draw_summary(ink, d, l.plot_y1 + 2.0f * ink.body->FontSize + 40.0f, skipped);
+            draw_skipped_note(ink, d, l, skipped);
+            draw_summary(ink, d, l.plot_y1 + 2.0f * ink.body->FontSize + 40.0f);
         },
         kReportPaper);
 }

@@ -386,6 +386,7 @@ void AppState::set_timbre(audio::Timbre t) {
     settings_.timbre = t;
     changed();
     apply_drone();
+    apply_readings();  // the audible pair depends on the drone's partials
 }
 
 void AppState::set_fifth(bool on) {
@@ -465,6 +466,8 @@ pitch::ReadingConfig AppState::reading_config() const {
     pitch::ReadingConfig rc;
     rc.root_hz = engine_root_hz();
     rc.a4_hz = settings_.a4_hz;
+    // The audible pair needs the drone's partials (pitch/beats.h, audible_pair).
+    rc.audible.partials_a = audio::timbre_highest_partial(drill_drone_ ? drill_drone_->timbre : settings_.timbre);
     return rc;
 }
 

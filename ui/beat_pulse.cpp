@@ -7,15 +7,13 @@
 namespace beatless::ui {
 
 double cue_beat_hz(const pitch::Reading& r) noexcept {
-    // The audible pair (pitch/readings.h); the coinciding pair when none.
-    const bool heard = r.heard_partial_root > 0 && r.heard_partial_voice > 0;
-    const int pr = heard ? r.heard_partial_root : r.beat_partial_root;
-    const int pv = heard ? r.heard_partial_voice : r.beat_partial_voice;
+    // The audible pair only (pitch::audible_pair): where no pair beats within
+    // hearing (a pure drone under a fifth), there is no beat to show.
+    const int pr = r.heard_partial_root, pv = r.heard_partial_voice;
     if (!r.voiced() || pr <= 0 || pv <= 0) return NAN;
     if (std::isfinite(r.centre_f0_hz) && r.centre_f0_hz > 0.0 && r.root_hz > 0.0)
         return std::fabs(static_cast<double>(pv) * r.centre_f0_hz - static_cast<double>(pr) * r.root_hz);
-    const double now = heard ? r.heard_beat_hz : r.beat_hz;
-    return std::isfinite(now) ? now : NAN;
+    return std::isfinite(r.heard_beat_hz) ? r.heard_beat_hz : NAN;
 }
 
 bool heard_pair_differs(const pitch::Reading& r) noexcept {

@@ -21,7 +21,7 @@
 namespace beatless::ui {
 
 // The beat rate of the audible pair at the vibrato centre (when the reading
-// has one), else the reading's instantaneous rate; NaN when none.
+// has one), else the reading's instantaneous rate; NaN when no pair is audible.
 double cue_beat_hz(const pitch::Reading& r) noexcept;
 // True when the target's own coinciding partials are not the audible pair
 // and the cue shows another pair (which may beat even when in tune).

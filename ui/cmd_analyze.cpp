@@ -16,6 +16,7 @@
 //
 // Index: shared text helpers; One voice (JSON, CSV, text, report); Two
 // voices (the same); The command (options, checks, progress, passes).
+#include "pitch/beats.h"
 #include "pitch/error.h"
 #include "pitch/notes.h"
 #include "pitch/text.h"
@@ -207,7 +208,12 @@ void print_one_voice(const AnalyzeOptions& o, const pitch::TargetSet& set, const
             j.key("target_octaves").value(n.target_octaves);
             j.key("dev_cents").value(n.dev_cents, 3).key("spread_cents").value(n.spread_cents, 3);
             j.key("settle_s").value(n.settle_s, 3).key("beat_hz").value(n.beat_hz, 3);
-            j.key("partial_root").value(n.partial_root).key("partial_voice").value(n.partial_voice);
+            j.key("beat_in_tune_hz").value(n.beat_in_tune_hz, 3);
+            if (n.partial_root > 0) j.key("partial_root").value(n.partial_root).key("partial_voice").value(n.partial_voice);
+            else j.key("partial_root").null().key("partial_voice").null();
+            j.key("own_partials");
+            if (n.own_partial_root > 0) j.begin_array().value(n.own_partial_root).value(n.own_partial_voice).end_array();
+            else j.null();
             j.key("vibrato_hz").value(n.vibrato ? n.vibrato_rate_hz : 0.0, 2);
             j.key("vibrato_cents").value(n.vibrato ? n.vibrato_depth_cents : 0.0, 2);
             j.key("frames").value(n.frames).key("clipped").value(a.notes_clipped[i] > 0).end_object();
@@ -219,13 +225,15 @@ void print_one_voice(const AnalyzeOptions& o, const pitch::TargetSet& set, const
         return;
     }
     if (o.format == Format::csv) {
-        std::printf("start_s,end_s,f0_hz,ratio,target,target_name,dev_cents,spread_cents,settle_s,beat_hz\n");
+        std::printf("start_s,end_s,f0_hz,ratio,target,target_name,dev_cents,spread_cents,settle_s,beat_hz,partial_root,partial_voice,beat_in_tune_hz\n");
         auto num = [](double v, int d) { return std::isfinite(v) ? pitch::format_trimmed(v, d) : std::string(); };
         for (const auto& n : notes)
-            std::printf("%s,%s,%s,%s,%s,%s,%s,%s,%s,%s\n", num(n.start_s, 4).c_str(), num(n.end_s, 4).c_str(),
+            std::printf("%s,%s,%s,%s,%s,%s,%s,%s,%s,%s,%s,%s,%s\n", num(n.start_s, 4).c_str(), num(n.end_s, 4).c_str(),
                         num(n.centre_f0_hz, 4).c_str(), num(n.ratio, 6).c_str(), csv_field(target_text(set, n.target_index)).c_str(),
                         csv_field(target_name(set, n.target_index)).c_str(), num(n.dev_cents, 3).c_str(),
-                        num(n.spread_cents, 3).c_str(), num(n.settle_s, 3).c_str(), num(n.beat_hz, 3).c_str());
+                        num(n.spread_cents, 3).c_str(), num(n.settle_s, 3).c_str(), num(n.beat_hz, 3).c_str(),
+                        n.partial_root > 0 ? std::to_string(n.partial_root).c_str() : "",
+                        n.partial_voice > 0 ? std::to_string(n.partial_voice).c_str() : "", num(n.beat_in_tune_hz, 3).c_str());
         return;
     }
     std::printf("%s: %s at %s Hz, one voice against a drone\n", o.file.c_str(), duration_text(a.info.dur_s()).c_str(),
@@ -239,8 +247,9 @@ void print_one_voice(const AnalyzeOptions& o, const pitch::TargetSet& set, const
         std::printf("no held notes found\n");
         return;
     }
-    std::printf("%4s %8s %8s %10s %8s  %-12s %-24s %8s %8s %8s %8s\n", "#", "start s", "end s", "f0 Hz", "ratio", "target",
-                "name", "dev c", "spread c", "settle s", "beat Hz");
+    const bool drone = a.drone_hz > 0.0;
+    std::printf("%4s %8s %8s %10s %8s  %-12s %-24s %8s %8s %8s %8s %6s  %s\n", "#", "start s", "end s", "f0 Hz", "ratio", "target",
+                "name", "dev c", "spread c", "settle s", "beat Hz", "pair", "heard");
     int k = 0;
     for (std::size_t i = 0; i < notes.size(); ++i) {
         const pitch::NoteResult& n = notes[i];
@@ -249,12 +258,21 @@ void print_one_voice(const AnalyzeOptions& o, const pitch::TargetSet& set, const
         std::string name = target_name(set, n.target_index);
         if (name.size() > 24) name = name.substr(0, 23) + "~";
         const std::string settle = std::isfinite(n.settle_s) ? pitch::format_trimmed(n.settle_s, 2) : "never";
-        std::printf("%4d %8.3f %8.3f %10.3f %8.4f  %-12s %-24s %+8.1f %8.1f %8s %8.2f%s\n", ++k, n.start_s, n.end_s,
-                    n.centre_f0_hz, n.ratio, tgt.c_str(), name.c_str(), n.dev_cents, n.spread_cents, settle.c_str(), n.beat_hz,
-                    a.notes_clipped[i] > 0 ? "  clipped" : "");
+        const std::string pair = n.partial_root > 0 ? std::to_string(n.partial_root) + ":" + std::to_string(n.partial_voice) : "-";
+        char beat[32] = "-";
+        if (std::isfinite(n.beat_hz)) std::snprintf(beat, sizeof beat, "%.2f", n.beat_hz);
+        std::printf("%4d %8.3f %8.3f %10.3f %8.4f  %-12s %-24s %+8.1f %8.1f %8s %8s %6s  %s%s\n", ++k, n.start_s, n.end_s,
+                    n.centre_f0_hz, n.ratio, tgt.c_str(), name.c_str(), n.dev_cents, n.spread_cents, settle.c_str(), beat,
+                    pair.c_str(), beat_heard_word(n.beat_hz, drone).c_str(), a.notes_clipped[i] > 0 ? "  clipped" : "");
     }
+    const pitch::BeatBands bands;
     std::printf("\ndev: vibrato centre minus target (+ sharp); spread: standard deviation of the held pitch;\n"
-                "settle: onset until the centre stays within 5 cents; beat: the coinciding partials' beat rate.\n");
+                "settle: onset until the centre stays within 5 cents; beat: the rate of the partials a listener hears\n"
+                "beat (pair: root partial:voice partial; a simpler ratio's pair where the target's own lies too high);\n"
+                "heard: still below %s Hz, countable below %s Hz, flutter to %s Hz, rough above%s.\n",
+                pitch::format_trimmed(bands.still_below_hz, 2).c_str(), pitch::format_trimmed(bands.countable_below_hz, 2).c_str(),
+                pitch::format_trimmed(bands.rough_above_hz, 2).c_str(),
+                drone ? "" : " (no drone in the file: rates are those a drone at the root would give)");
     print_summary_text(set, a.summary, false);
 }
 
@@ -342,7 +360,8 @@ void print_two_voices(const AnalyzeOptions& o, const pitch::TargetSet& set, cons
                     d.f_low_hz, d.f_high_hz, d.interval_cents, tgt.c_str(), name.c_str(), d.dev_cents, d.spread_cents,
                     d.predicted_beat_hz, meas.c_str(), d.clipped_frames > 0 ? "  clipped" : "");
     }
-    std::printf("\ndev: interval minus target (+ wide); beat Hz: |q f_high - p f_low| from the f0s; measured: from the partials.\n");
+    std::printf("\ndev: interval minus target (+ wide); beat Hz: |q f_high - p f_low| from the f0s, for the partials p and q\n"
+                "a listener hears (a simpler ratio's where the target's own lie above the 12th or 4 kHz); measured: from those partials.\n");
     print_summary_text(set, a.summary, true);
 }
 

@@ -82,9 +82,14 @@ int run_chord(const ChordOptions& o) {
                 if (b.voice_a != i && b.voice_b != i) continue;
                 const bool lower = b.voice_a == i;
                 j.begin_object().key("with_voice").value(static_cast<int>((lower ? b.voice_b : b.voice_a) + 1));
-                j.key("partial").value(lower ? b.lowest.partial_a : b.lowest.partial_b);
-                j.key("other_partial").value(lower ? b.lowest.partial_b : b.lowest.partial_a);
-                j.key("at_hz").value(b.lowest.freq_a_hz, 3).key("beat_hz_per_cent").value(b.beat_hz_per_cent, 4);
+                if (b.heard.found) {
+                    j.key("partial").value(lower ? b.heard.partial_a : b.heard.partial_b);
+                    j.key("other_partial").value(lower ? b.heard.partial_b : b.heard.partial_a);
+                } else {
+                    j.key("partial").null().key("other_partial").null();
+                }
+                j.key("at_hz").value(b.heard.meet_hz, 3).key("beat_hz_per_cent").value(b.heard_hz_per_cent, 4);
+                j.key("in_tune_beat_hz").value(b.heard.beat_at_target_hz, 3);
                 j.end_object();
             }
             j.end_array().end_object();
@@ -95,8 +100,12 @@ int run_chord(const ChordOptions& o) {
             j.begin_object();
             j.key("voices").begin_array().value(static_cast<int>(b.voice_a + 1)).value(static_cast<int>(b.voice_b + 1)).end_array();
             j.key("interval").value(b.interval.str());
-            j.key("partials").begin_array().value(b.lowest.partial_a).value(b.lowest.partial_b).end_array();
-            j.key("at_hz").value(b.lowest.freq_a_hz, 3).key("beat_hz_per_cent").value(b.beat_hz_per_cent, 4);
+            // partials, at_hz, beat_hz_per_cent: the audible pair; own_partials: the interval's own pair (a detail).
+            if (b.heard.found) j.key("partials").begin_array().value(b.heard.partial_a).value(b.heard.partial_b).end_array();
+            else j.key("partials").null();
+            j.key("at_hz").value(b.heard.meet_hz, 3).key("beat_hz_per_cent").value(b.heard_hz_per_cent, 4);
+            j.key("in_tune_beat_hz").value(b.heard.beat_at_target_hz, 3);
+            j.key("own_partials").begin_array().value(b.lowest.partial_a).value(b.lowest.partial_b).end_array();
             j.key("coinciding").begin_array();
             for (const auto& p : b.coinciding)
                 j.begin_object().key("partials").begin_array().value(p.partial_a).value(p.partial_b).end_array()
@@ -150,21 +159,33 @@ int run_chord(const ChordOptions& o) {
 
     std::printf("Partials that beat when a voice is off (the beat rate grows by about this much per cent):\n");
     std::printf("  %-13s %-9s %-30s %10s  %s\n", "voices", "interval", "partials that meet", "at Hz", "beats per cent");
-    bool faint = false;
+    bool fallback = false;
     for (const auto& b : chart.beats) {
         const std::string who = names[b.voice_a] + " + " + names[b.voice_b];
-        const std::string meet = ordinal(b.lowest.partial_a) + " of " + names[b.voice_a] + " = " +
-                                 ordinal(b.lowest.partial_b) + " of " + names[b.voice_b];
-        const bool is_faint = b.lowest.partial_a > config.max_harmonic;
-        faint = faint || is_faint;
         const pitch::Interval iv = pitch::Interval::of(b.interval);
         const std::string* nm = iv_names.find(iv);
+        if (!b.heard.found) {
+            std::printf("  %-13s %-9s %-30s %10s  %8s%s%s\n", who.c_str(), b.interval.str().c_str(), "none below the limit", "-", "-",
+                        nm ? "   " : "", nm ? nm->c_str() : "");
+            continue;
+        }
+        const std::string meet = ordinal(b.heard.partial_a) + " of " + names[b.voice_a] + " = " +
+                                 ordinal(b.heard.partial_b) + " of " + names[b.voice_b];
+        std::string note;
+        if (!b.heard.own) {
+            char buf[64];
+            std::snprintf(buf, sizeof buf, " (in tune: %.2f Hz)", b.heard.beat_at_target_hz);
+            note = buf;
+            fallback = true;
+        }
         std::printf("  %-13s %-9s %-30s %10.2f  %5.2f Hz%s%s%s\n", who.c_str(), b.interval.str().c_str(), meet.c_str(),
-                    b.lowest.freq_a_hz, b.beat_hz_per_cent, is_faint ? " (faint)" : "", nm ? "   " : "",
-                    nm ? nm->c_str() : "");
+                    b.heard.meet_hz, b.heard_hz_per_cent, note.c_str(), nm ? "   " : "", nm ? nm->c_str() : "");
     }
     std::printf("\n  Higher pairs (twice, three times the partial numbers) beat twice, three times as fast.\n");
-    if (faint) std::printf("  (faint): the partials that meet lie above the %dth harmonic and are usually weak.\n", config.max_harmonic);
+    if (fallback)
+        std::printf("  (in tune: ...): the interval's own partials lie above the %dth or above %.0f Hz; a simpler ratio's pair\n"
+                    "  beats at that rate even when the chord is just.\n",
+                    config.audible.partials_b, config.audible.max_freq_hz);
     return 0;
 }
 

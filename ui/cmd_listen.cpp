@@ -6,10 +6,12 @@
 //
 // One JSON object per reading on stdout: {"t", "f0_hz", "confidence",
 // "ratio", "target", "target_name", "dev_cents", "centre_dev_cents",
-// "beat_hz", "beat_partials": [root partial, voice partial], "heard_beat_hz",
-// "heard_partials"}, null where unvoiced (heard_*: the pair a listener hears,
-// which differs from the coinciding pair for targets such as 729/512). Diagnostics and a summary (overflows, underflows, latency) go to
-// stderr. (`beatless --demo` with no subcommand opens the Practice screen.)
+// "beat_hz", "beat_partials": [root partial, voice partial], "beat_in_tune_hz",
+// "own_beat_hz", "own_partials"}, null where unvoiced or when nothing beats.
+// beat_*: the audible pair (pitch/beats.h, audible_pair), the pair a listener
+// hears for the drone's timbre, and its rate now and exactly on target;
+// own_*: a detail, the target's own coinciding pair (729:512 for 729/512).
+// Diagnostics and a summary (overflows, underflows, latency) go to stderr. (`beatless --demo` with no subcommand opens the Practice screen.)
 // The drone is off unless --drone is given; with a file or the demo,
 // --drone means the input holds a drone at the root (the demo's microphone
 // hears it through a simulated room), and drone removal follows it.
@@ -97,16 +99,17 @@ std::string json_line(const pitch::Reading& r, const TargetText& tt) {
         else j.key("target_name").value(name);
         j.key("dev_cents").value(r.dev_cents, 3);
         j.key("centre_dev_cents").value(r.centre_dev_cents, 3);
-        j.key("beat_hz").value(r.beat_hz, 3);
-        if (r.beat_partial_root > 0) j.key("beat_partials").begin_array().value(r.beat_partial_root).value(r.beat_partial_voice).end_array();
+        j.key("beat_hz").value(r.heard_beat_hz, 3);
+        if (r.heard_partial_root > 0) j.key("beat_partials").begin_array().value(r.heard_partial_root).value(r.heard_partial_voice).end_array();
         else j.key("beat_partials").null();
-        j.key("heard_beat_hz").value(r.heard_beat_hz, 3);
-        if (r.heard_partial_root > 0) j.key("heard_partials").begin_array().value(r.heard_partial_root).value(r.heard_partial_voice).end_array();
-        else j.key("heard_partials").null();
+        j.key("beat_in_tune_hz").value(r.heard_beat_at_target_hz, 3);
+        j.key("own_beat_hz").value(r.beat_hz, 3);
+        if (r.beat_partial_root > 0) j.key("own_partials").begin_array().value(r.beat_partial_root).value(r.beat_partial_voice).end_array();
+        else j.key("own_partials").null();
     } else {
         j.key("f0_hz").null().key("confidence").value(r.confidence, 3);
         for (const char* k : {"ratio", "target", "target_name", "dev_cents", "centre_dev_cents", "beat_hz", "beat_partials",
-                              "heard_beat_hz", "heard_partials"})
+                              "beat_in_tune_hz", "own_beat_hz", "own_partials"})
             j.key(k).null();
     }
     j.end_object();
@@ -130,9 +133,9 @@ std::string text_line(const pitch::Reading& r, const TargetText& tt, double a4_h
     if (const std::string name = tt.name(r); !name.empty()) s += " " + name;
     s += "  " + signed_num(r.dev_cents, 1) + " c";
     if (std::isfinite(r.centre_dev_cents)) s += " (centre " + signed_num(r.centre_dev_cents, 1) + " c)";
-    if (std::isfinite(r.beat_hz))
-        s += "  beat " + pitch::format_trimmed(std::round(r.beat_hz * 10.0) / 10.0, 1) + " Hz (" + std::to_string(r.beat_partial_root) + ":" +
-             std::to_string(r.beat_partial_voice) + ")";
+    if (std::isfinite(r.heard_beat_hz))
+        s += "  beat " + pitch::format_trimmed(std::round(r.heard_beat_hz * 10.0) / 10.0, 1) + " Hz (" + std::to_string(r.heard_partial_root) +
+             ":" + std::to_string(r.heard_partial_voice) + ")";
     return s;
 }
 
@@ -222,6 +225,7 @@ int run_live(const ListenOptions& o, Printing printing) {
     pitch::ReadingConfig rc;
     rc.root_hz = root_hz;
     rc.a4_hz = o.a4_hz;
+    rc.audible.partials_a = audio::timbre_highest_partial(timbre);
     engine.set_readings(rc, targets);
     engine.set_drone(ds);
     if (o.drone && (play_drone || o.demo)) hearing_caution_once();

@@ -2,9 +2,12 @@
 //
 // Prints the facts of each interval (cents, prime and odd limit, Tenney
 // height, nearest equal-tempered step, name of the trade); with a root, the
-// two frequencies, the coinciding partials and their beat rates at 0, ±2,
-// ±5 and ±10 cents of mistuning. A chord such as 4:5:6:7 stands for each of
-// its upper notes against the lowest.
+// two frequencies, the audible pair (pitch/beats.h, audible_pair: the
+// partials a listener hears beat over a drone of --timbre) and its beat
+// rates at 0, ±2, ±5 and ±10 cents of mistuning; the interval's own
+// coinciding pair appears as a labelled detail where it differs. A chord
+// such as 4:5:6:7 stands for each of its upper notes against the lowest.
+#include "audio/timbre.h"
 #include "pitch/beats.h"
 #include "pitch/error.h"
 #include "pitch/interval.h"
@@ -27,6 +30,7 @@ struct RatioOptions {
     std::vector<std::string> ratios;
     std::string root;
     double a4_hz = pitch::kDefaultA4Hz;
+    std::string timbre = "round";
     Format format = Format::text;
 };
 
@@ -51,16 +55,16 @@ std::vector<Entry> expand(const std::vector<std::string>& args) {
     return out;
 }
 
-// The ratio whose partials beat for this interval: itself, or for a cents
-// interval the nearest simple ratio.
-pitch::Ratio beating_ratio(const pitch::Interval& iv) {
-    return iv.is_ratio() ? iv.ratio() : pitch::nearest_simple_ratio(iv.cents());
+// The interval's own ratio, when it is one.
+std::optional<pitch::Ratio> own_ratio(const pitch::Interval& iv) {
+    if (iv.is_ratio()) return iv.ratio();
+    return std::nullopt;
 }
 
-double beat_at(double root_hz, const pitch::Interval& iv, double dev_cents) {
-    const pitch::Ratio r = beating_ratio(iv);
+// The audible pair with the upper tone dev_cents off the interval.
+pitch::AudiblePair heard_at(double root_hz, const pitch::Interval& iv, double dev_cents, const pitch::AudibleRange& range) {
     const double upper = root_hz * iv.value() * std::exp2(dev_cents / 1200.0);
-    return pitch::coinciding_pair(root_hz, upper, r).beat_hz;
+    return pitch::audible_pair(root_hz, upper, iv.cents(), own_ratio(iv), range);
 }
 
 int run_ratio(const RatioOptions& o) {
@@ -69,6 +73,8 @@ int run_ratio(const RatioOptions& o) {
     std::optional<double> root_hz;
     if (!o.root.empty()) root_hz = pitch::parse_frequency(o.root, o.a4_hz);
     const auto& names = interval_names();
+    pitch::AudibleRange range;
+    range.partials_a = audio::timbre_highest_partial(audio::parse_timbre(o.timbre));
 
     if (o.format == Format::json) {
         JsonWriter j;
@@ -88,14 +94,24 @@ int run_ratio(const RatioOptions& o) {
             if (f.name.empty()) j.null();
             else j.value(f.name);
             if (root_hz) {
-                const pitch::Ratio r = beating_ratio(e.interval);
                 const double upper = *root_hz * e.interval.value();
-                j.key("root_hz").value(*root_hz, 3).key("upper_hz").value(upper, 3);
-                j.key("coinciding_partials").begin_object();
-                j.key("root").value(r.num).key("upper").value(r.den).end_object();
+                const pitch::AudiblePair a = heard_at(*root_hz, e.interval, 0.0, range);
+                j.key("root_hz").value(*root_hz, 3).key("upper_hz").value(upper, 3).key("timbre").value(o.timbre);
+                j.key("audible_partials");
+                if (a.found) {
+                    j.begin_object().key("root").value(a.partial_a).key("upper").value(a.partial_b);
+                    j.key("at_hz").value(a.meet_hz, 3).key("own").value(a.own).key("in_tune_beat_hz").value(a.beat_at_target_hz, 3).end_object();
+                } else {
+                    j.null();
+                }
+                j.key("own_partials");
+                if (e.interval.is_ratio())
+                    j.begin_object().key("root").value(e.interval.ratio().num).key("upper").value(e.interval.ratio().den).end_object();
+                else
+                    j.null();
                 j.key("beats").begin_array();
                 for (double d : kMistunings)
-                    j.begin_object().key("dev_cents").value(d, 1).key("beat_hz").value(beat_at(*root_hz, e.interval, d), 3).end_object();
+                    j.begin_object().key("dev_cents").value(d, 1).key("beat_hz").value(heard_at(*root_hz, e.interval, d, range).beat_hz, 3).end_object();
                 j.end_array();
             }
             j.end_object();
@@ -125,15 +141,31 @@ int run_ratio(const RatioOptions& o) {
         const auto un = pitch::hz_to_note(upper, o.a4_hz);
         std::printf("  root %.3f Hz (%s %+.1f c) · upper tone %.3f Hz (%s %+.1f c)\n", *root_hz, rn.name.c_str(),
                     rn.offset_cents, upper, un.name.c_str(), un.offset_cents);
-        const pitch::Ratio r = beating_ratio(e.interval);
-        const auto pair = pitch::coinciding_pair(*root_hz, upper, r);
+        const pitch::AudiblePair a = heard_at(*root_hz, e.interval, 0.0, range);
+        if (!a.found) {
+            std::printf("  partials that beat: none below %.0f Hz in a %s drone and the upper tone (no beat to listen for)\n",
+                        range.max_freq_hz, o.timbre.c_str());
+            continue;
+        }
+        const pitch::Ratio heard_ratio = pitch::Ratio::make(a.partial_a, a.partial_b);
         std::printf("  partials that beat: %s of the root (%.3f Hz) with %s of the upper tone (%.3f Hz)%s\n",
-                    ordinal(pair.partial_a).c_str(), pair.freq_a_hz, ordinal(pair.partial_b).c_str(), pair.freq_b_hz,
-                    e.interval.is_ratio() ? "" : (", nearest simple ratio " + r.str()).c_str());
+                    ordinal(a.partial_a).c_str(), a.meet_hz, ordinal(a.partial_b).c_str(), a.partial_b * upper,
+                    a.own ? "" : (", as for " + heard_ratio.str()).c_str());
+        if (!a.own) {
+            std::printf("  in tune they beat %.2f Hz", a.beat_at_target_hz);
+            if (e.interval.is_ratio()) {
+                const pitch::Ratio& own = e.interval.ratio();
+                const bool too_high = static_cast<double>(own.num) * *root_hz > range.max_freq_hz;
+                std::printf(" (detail: its own coinciding pair %s:%s is %s)", std::to_string(own.num).c_str(), std::to_string(own.den).c_str(),
+                            too_high ? ("above " + pitch::format_trimmed(range.max_freq_hz, 0) + " Hz").c_str()
+                                     : ("not sounded by a " + o.timbre + " drone").c_str());
+            }
+            std::printf("\n");
+        }
         std::printf("  mistuning (cents) ");
         for (double d : kMistunings) std::printf("%8s", (d > 0 ? "+" + pitch::format_trimmed(d, 0) : pitch::format_trimmed(d, 0)).c_str());
         std::printf("\n  beat rate (Hz)    ");
-        for (double d : kMistunings) std::printf("%8.2f", beat_at(*root_hz, e.interval, d));
+        for (double d : kMistunings) std::printf("%8.2f", heard_at(*root_hz, e.interval, d, range).beat_hz);
         std::printf("\n");
     }
     return 0;
@@ -147,6 +179,7 @@ void register_ratio(CLI::App& app, Runner& run) {
     sub->add_option("RATIO", o->ratios, "Intervals: 7/5, 7:5, 3/2*5/4, 600c, or a chord 4:5:6:7")->required();
     sub->add_option("--root", o->root, "Root as a note (A3) or in Hz (220): adds frequencies and beat rates");
     sub->add_option("--a4", o->a4_hz, "A4 reference in Hz (400-480, default 440)");
+    sub->add_option("--timbre", o->timbre, "Drone timbre whose partials can beat: pure, soft, round, bright, hollow (default round)");
     add_format_option(*sub, o->format, false);
     sub->callback([o, &run] { run = [o] { return run_ratio(*o); }; });
 }

@@ -1,6 +1,7 @@
 // Small text helpers shared by the commands and the screens (commands.h).
 #include "ui/commands.h"
 
+#include "pitch/beats.h"
 #include "pitch/error.h"
 #include "pitch/notes.h"
 #include "pitch/text.h"
@@ -12,6 +13,20 @@
 #include <fstream>
 
 namespace beatless::ui {
+
+std::string beat_heard_word(double beat_hz, bool drone_sounds) {
+    const pitch::BeatBand band = pitch::beat_band(beat_hz);
+    if (band == pitch::BeatBand::none) return "-";
+    if (!drone_sounds) return "no drone";
+    switch (band) {
+        case pitch::BeatBand::still: return "still";
+        case pitch::BeatBand::countable: return "countable";
+        case pitch::BeatBand::flutter: return "flutter";
+        case pitch::BeatBand::rough: return "rough";
+        case pitch::BeatBand::none: break;
+    }
+    return "-";
+}
 
 std::string ordinal(int n) {
     const int m100 = n % 100;

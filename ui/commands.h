@@ -59,6 +59,9 @@ void add_format_option(CLI::App& sub, Format& format, std::initializer_list<Form
 // Small text helpers shared by the commands.
 std::string ordinal(int n);                                  // 1 -> "1st", 12 -> "12th"
 std::string join_args(const std::vector<std::string>& args); // words joined by single spaces
+// How a beat of this rate is heard, one word for tables, from pitch::beat_band:
+// "still", "countable", "flutter", "rough"; "no drone" when none sounds; "-" when no pair beats.
+std::string beat_heard_word(double beat_hz, bool drone_sounds);
 // --lowest NOTE|HZ: the live tracker's lowest f0, 30 to 200 Hz. Throws
 // Error naming the value.
 double parse_lowest(const std::string& text, double a4_hz);

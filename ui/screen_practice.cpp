@@ -382,8 +382,7 @@ void PracticeScreen::beat_cue(AppState& app, ImDrawList* dl, float x0, float y0,
     y += font_px(FontFace::large) + std::round(0.3f * u);
     if (have) {
         const bool other = heard_pair_differs(r);
-        const int pr = r.heard_partial_root > 0 ? r.heard_partial_root : r.beat_partial_root;
-        const int pv = r.heard_partial_voice > 0 ? r.heard_partial_voice : r.beat_partial_voice;
+        const int pr = r.heard_partial_root, pv = r.heard_partial_voice;
         const std::string a = ordinal(pr) + " partial of the root";
         const std::string b = "against the " + ordinal(pv) + " of the voice";
         draw_text(dl, FontFace::body, ImVec2(x, y), palette::kText, a);

@@ -3,7 +3,10 @@
 
 Checks `beatless ratio ... --format json` against numpy's log2, an
 independent trial-division factorisation and the beat-rate formula
-|q*f_high - p*f_low|; and `beatless tone` output against a scipy
+|q*f_high - p*f_low| (Helmholtz, On the Sensations of Tone, ch. VIII) for the
+audible pair it names: the interval's own pair p:q when a round drone (12
+partials) sounds p below 4 kHz and q is at most the 16th, else a pair within
+those limits (the rule in pitch/beats.h); and `beatless tone` output against a scipy
 periodogram: the voice's partial must sit where the ratio and detune put it.
 Exit status 0 when everything agrees; prints what disagrees otherwise.
 """
@@ -57,9 +60,15 @@ for given, iv in zip(ratios, doc["intervals"]):
     check(abs(iv["et_offset_cents"] - (cents - 100 * round(cents / 100))) < 6e-4, f"{given}: ET offset")
     upper = root * p / q
     check(abs(iv["upper_hz"] - upper) < 6e-4, f"{given}: upper_hz")
+    heard = iv["audible_partials"]
+    check(heard is not None, f"{given}: no audible pair over a round drone")
+    a, b_ = heard["root"], heard["upper"]
+    check(a <= 12 and b_ <= 16 and a * root <= 4000.0, f"{given}: pair {a}:{b_} beyond the limits")
+    if p <= 12 and q <= 16 and p * root <= 4000.0:
+        check((a, b_) == (p, q), f"{given}: pair {a}:{b_}, own {p}:{q} is audible")
     for b in iv["beats"]:
         f_high = upper * 2 ** (b["dev_cents"] / 1200)
-        want = abs(q * f_high - p * root)
+        want = abs(b_ * f_high - a * root)
         check(abs(b["beat_hz"] - want) < 6e-4 + 1e-6 * want, f"{given}: beat at {b['dev_cents']} c: {b['beat_hz']} vs {want}")
 
 # tone: a 7/5 voice 6 cents sharp over A2 (110 Hz); the voice's fundamental
