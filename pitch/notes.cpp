@@ -52,12 +52,22 @@ int note_to_midi(std::string_view name) {
 
 double note_to_hz(std::string_view name, double a4_hz) { return midi_to_hz(note_to_midi(name), a4_hz); }
 
-std::string midi_to_name(int midi) {
-    static constexpr std::array<const char*, 12> names = {"C",  "C#", "D",  "D#", "E",  "F",
-                                                          "F#", "G",  "G#", "A",  "A#", "B"};
+std::string midi_to_name(int midi) { return midi_to_name(midi, BlackKeys::sharps); }
+
+std::string midi_to_name(int midi, BlackKeys spelled) {
+    static constexpr std::array<const char*, 12> sharps = {"C",  "C#", "D",  "D#", "E",  "F",
+                                                           "F#", "G",  "G#", "A",  "A#", "B"};
+    static constexpr std::array<const char*, 12> flats = {"C",  "Db", "D",  "Eb", "E",  "F",
+                                                          "Gb", "G",  "Ab", "A",  "Bb", "B"};
     const int pc = ((midi % 12) + 12) % 12;
     const int octave = (midi - pc) / 12 - 1;
+    const auto& names = spelled == BlackKeys::flats ? flats : sharps;
     return std::string(names[static_cast<std::size_t>(pc)]) + std::to_string(octave);
+}
+
+bool has_flat(std::string_view name) {
+    const std::string_view t = trim(name);
+    return t.size() > 1 && (t.substr(1).find('b') != std::string_view::npos || t.find("\xE2\x99\xAD") != std::string_view::npos);
 }
 
 NearestNote hz_to_note(double freq_hz, double a4_hz) {

@@ -30,6 +30,10 @@ struct NearestNote {
 };
 NearestNote hz_to_note(double freq_hz, double a4_hz = kDefaultA4Hz);
 std::string midi_to_name(int midi);  // 60 -> "C4"
+enum class BlackKeys { sharps, flats };
+std::string midi_to_name(int midi, BlackKeys spelled);  // 70 -> "A#4" or "Bb4"
+// True when a note name carries a flat ("Bb3", "E♭"): spell neighbours with flats too.
+bool has_flat(std::string_view name);
 
 // A root or frequency given as a note name ("A2") or a number of Hz
 // ("110", "110hz", "110 Hz"). Throws Error naming the text when it is

@@ -134,4 +134,11 @@ NoteAboveRoot spell_above_root(std::string_view root, double cents_above_root, d
     return out;
 }
 
+NoteAboveRoot spell_hz_above_root(std::string_view root, double freq_hz, double a4_hz) {
+    const double root_hz = parse_frequency(root, a4_hz);
+    NoteAboveRoot n = spell_above_root(root, 1200.0 * std::log2(freq_hz / root_hz), a4_hz);
+    n.offset_cents = 1200.0 * std::log2(freq_hz / midi_to_hz(n.midi, a4_hz));
+    return n;
+}
+
 }  // namespace beatless::pitch

@@ -57,4 +57,9 @@ struct NoteAboveRoot {
 // Throws Error naming the root when it is neither a note nor a frequency.
 NoteAboveRoot spell_above_root(std::string_view root, double cents_above_root, double a4_hz = 440.0);
 
+// A frequency named against the typed root, as above; here offset_cents is
+// from the equal-tempered note at a4_hz (what a tuner shows), so the root
+// itself, typed as a note, is its own name at 0 cents: ("Bb3", 233.08 Hz) -> Bb3.
+NoteAboveRoot spell_hz_above_root(std::string_view root, double freq_hz, double a4_hz = 440.0);
+
 }  // namespace beatless::pitch

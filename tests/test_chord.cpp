@@ -349,3 +349,14 @@ TEST_CASE("spell_above_root: tritones below 600 cents are augmented fourths, abo
     CHECK(spell_above_root("C4", 600.0).name == "F#4");  // the equal tritone keeps the usual #4
     CHECK_THROWS_WITH(spell_above_root("H3", 0.0), doctest::Contains("H3"));
 }
+
+TEST_CASE("stepping a flat root keeps flats") {
+    // MIDI 70 is A#4/Bb4 (MIDI 1.0 note numbers, A4 = 69); a root typed with a flat steps to flat neighbours.
+    CHECK(midi_to_name(70, BlackKeys::flats) == "Bb4");
+    CHECK(midi_to_name(70, BlackKeys::sharps) == "A#4");
+    CHECK(has_flat("Bb3"));
+    CHECK(has_flat("E\xE2\x99\xAD" "2"));
+    CHECK_FALSE(has_flat("B3"));
+    CHECK_FALSE(has_flat("110"));
+    CHECK(spell_hz_above_root("Bb3", 233.0819).name == "Bb3");  // ISO 16: Bb3 = 440 * 2^(-11/12) / 2 Hz
+}

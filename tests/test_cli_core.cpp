@@ -184,3 +184,29 @@ TEST_CASE("tone with several ratios sings one note each, and analyze finds them"
     CHECK(bad.exit_code == 1);
     CHECK(bad.err == "beatless: --detune-cents: 3 values for 2 ratios (give one value, or one per ratio)\n");
 }
+
+TEST_CASE("a root typed as Bb3 is echoed as Bb3, intervals spelled against it") {
+    // Spelling: common practice (the flat seventh of C is Bb; 7/4 over D3 is
+    // written C4); 12-TET frequencies by ISO 16 (A4 = 440 Hz): Bb3 = 233.082 Hz.
+    const beatless::test::RunResult r = run_program("ratio 7/4 3/2 --root Bb3");
+    REQUIRE(r.exit_code == 0);
+    CHECK(r.out.find("root 233.082 Hz (Bb3 +0.0 c) · upper tone 407.893 Hz (Ab4 -31.2 c)") != std::string::npos);
+    CHECK(r.out.find("(F4 +2.0 c)") != std::string::npos);
+    CHECK(r.out.find("A#") == std::string::npos);
+    const beatless::test::RunResult d = run_program("ratio 7/4 7/5 10/7 --root D3");
+    CHECK(d.out.find("(C4 -31.2 c)") != std::string::npos);
+    CHECK(d.out.find("(G#3 -17.5 c)") != std::string::npos);  // 7/5: augmented fourth
+    CHECK(d.out.find("(Ab3 +17.5 c)") != std::string::npos);  // 10/7: diminished fifth
+    // The nearest equal step in cents, never "000 cents" (a unison is 0 cents).
+    const beatless::test::RunResult c = run_program("ratio 81/80 3/2");
+    CHECK(c.out.find("nearest 12-TET step: unison (0 cents), +21.506 cents from it") != std::string::npos);
+    CHECK(c.out.find("nearest 12-TET step: perfect fifth (700 cents), +1.955 cents from it") != std::string::npos);
+    CHECK(c.out.find("000 cents") == std::string::npos);
+    // Chord, tone and listen echo the root as typed.
+    CHECK(run_program("chord 4:5:6:7 --root Bb2").out.find("on Bb2 = 116.541 Hz") != std::string::npos);
+    CHECK(run_program("chord 4:5:6:7 --root Bb2").out.find("(near Bb0)") != std::string::npos);
+    TempDir dir;
+    CHECK(run_program({"tone", "--root", "Bb3", "--seconds", "0.2", "--out", dir.file("t.wav")}).out.find("drone Bb3 = 233.082 Hz") !=
+          std::string::npos);
+    CHECK(run_program("listen --demo --root Bb3 --seconds 0.05").err.find("root Bb3 = 233.082 Hz") != std::string::npos);
+}

@@ -432,7 +432,7 @@ void AppState::step_root(int semitones) {
     std::string next;
     try {
         const int midi = pitch::note_to_midi(settings_.root);  // a note name moves by notes
-        next = pitch::midi_to_name(midi + semitones);
+        next = pitch::midi_to_name(midi + semitones, pitch::has_flat(settings_.root) ? pitch::BlackKeys::flats : pitch::BlackKeys::sharps);
     } catch (const Error&) {
         next = pitch::format_trimmed(root_hz_ * std::exp2(semitones / 12.0), 2);
     }

@@ -129,7 +129,7 @@ int run_chord(const ChordOptions& o) {
     std::string terms;
     for (std::size_t i = 0; i < chart.voices.size(); ++i)
         terms += (i == 0 ? "" : i + 1 == chart.voices.size() ? " and " : ", ") + std::to_string(chart.voices[i].term);
-    const auto fund = pitch::hz_to_note(chart.fundamental_hz, o.a4_hz);
+    const auto fund = pitch::spell_hz_above_root(o.root, chart.fundamental_hz, o.a4_hz);
     std::printf("The voices are harmonics %s of one fundamental, %.3f Hz (near %s).\n\n", terms.c_str(),
                 chart.fundamental_hz, fund.name.c_str());
 

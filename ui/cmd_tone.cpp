@@ -116,8 +116,8 @@ int run_tone(const ToneOptions& o) {
         for (float& v : buf) v *= ceiling / peak;
 
     audio::write_wav(o.out, buf, o.rate_hz);
-    std::printf("wrote %s: %s s at %s Hz, drone %s Hz (%s)%s\n", o.out.c_str(), pitch::format_trimmed(o.seconds, 3).c_str(),
-                pitch::format_trimmed(o.rate_hz, 0).c_str(), pitch::format_trimmed(root_hz, 3).c_str(),
+    std::printf("wrote %s: %s s at %s Hz, drone %s (%s)%s\n", o.out.c_str(), pitch::format_trimmed(o.seconds, 3).c_str(),
+                pitch::format_trimmed(o.rate_hz, 0).c_str(), root_echo(o.root, root_hz).c_str(),
                 std::string(audio::timbre_name(drone_timbre)).c_str(), voice_text.c_str());
     return 0;
 }
