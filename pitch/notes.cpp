@@ -100,6 +100,14 @@ double parse_frequency(std::string_view text, double a4_hz) {
     return hz;
 }
 
+double parse_root(std::string_view text, double a4_hz) {
+    const double hz = parse_frequency(text, a4_hz);
+    if (!(hz >= kRootMinHz && hz <= kRootMaxHz))
+        throw Error(quote(text) + " = " + format_trimmed(hz, 3) + " Hz: out of range for a root (" + format_trimmed(kRootMinHz, 0) +
+                    " to " + format_trimmed(kRootMaxHz, 0) + " Hz)");
+    return hz;
+}
+
 double check_a4(double a4_hz) {
     if (!(a4_hz >= 400.0 && a4_hz <= 480.0))
         throw Error("A4 reference " + format_trimmed(a4_hz, 3) + " Hz: out of range (400 to 480 Hz)");

@@ -40,6 +40,14 @@ bool has_flat(std::string_view name);
 // neither, or when the frequency is not in 1 Hz .. 20 kHz.
 double parse_frequency(std::string_view text, double a4_hz = kDefaultA4Hz);
 
+// A drone root: parse_frequency, limited to kRootMinHz .. kRootMaxHz, the
+// range a drone can sound on ordinary loudspeakers and whose intervals
+// (up to two octaves above) the tracker follows. Throws Error naming the
+// text and the range: "'C#-1' = 8.662 Hz: out of range for a root (20 to 2000 Hz)".
+inline constexpr double kRootMinHz = 20.0;
+inline constexpr double kRootMaxHz = 2000.0;
+double parse_root(std::string_view text, double a4_hz = kDefaultA4Hz);
+
 // Checks an A4 reference given by the user: 400-480 Hz (throws Error otherwise).
 double check_a4(double a4_hz);
 

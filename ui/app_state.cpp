@@ -118,7 +118,7 @@ AppState::~AppState() { shutdown(); }
 
 void AppState::recompute_root() {
     try {
-        root_hz_ = pitch::parse_frequency(settings_.root, settings_.a4_hz);
+        root_hz_ = pitch::parse_root(settings_.root, settings_.a4_hz);
     } catch (const Error& e) {
         post(join({e.what(), "; using A2"}), true);
         settings_.root = "A2";
@@ -410,7 +410,7 @@ bool AppState::set_root_text(const std::string& text) {
     if (refuse_in_drill("the root")) return false;
     double hz = 0.0;
     try {
-        hz = pitch::parse_frequency(text, settings_.a4_hz);
+        hz = pitch::parse_root(text, settings_.a4_hz);
         audio::DroneSettings probe = drone_settings(settings_.level_dbfs);
         probe.root_hz = hz;
         audio::check_drone_settings(probe);

@@ -53,8 +53,6 @@ struct AnalyzeOptions {
     std::string lowest;               // --lowest: below the file tracker's 55 Hz (a double bass)
 };
 
-constexpr double kMinRootHz = 20.0;
-constexpr double kMaxRootHz = 2000.0;
 constexpr double kProgressAfterS = 5.0;  // files longer than this show a progress bar (on a terminal)
 
 // The target's name: the set's own, else one of the trade (targets/names.toml).
@@ -379,11 +377,7 @@ int run_analyze(const AnalyzeOptions& o) {
     req.path = o.file;
     req.channel = o.channel - 1;
     if (o.voices == 1 && pitch::trim(o.root) != "auto") {
-        const double hz = pitch::parse_frequency(o.root, o.a4_hz);
-        if (!(hz >= kMinRootHz && hz <= kMaxRootHz))
-            throw Error("--root " + o.root + ": " + pitch::format_trimmed(hz, 3) + " Hz is out of range (" +
-                        pitch::format_trimmed(kMinRootHz, 0) + " to " + pitch::format_trimmed(kMaxRootHz, 0) + " Hz)");
-        req.root_hz = hz;
+        req.root_hz = pitch::parse_root(o.root, o.a4_hz);
     }
     if (!o.lowest.empty()) {
         if (o.voices == 2) throw UsageError("--lowest works with one voice; two voices are followed from 60 Hz");

@@ -35,7 +35,7 @@ struct ChordOptions {
 int run_chord(const ChordOptions& o) {
     pitch::check_a4(o.a4_hz);
     const ChordFile file = chord_from_argument(join_args(o.chord));
-    const double root_hz = pitch::parse_frequency(o.root, o.a4_hz);
+    const double root_hz = pitch::parse_root(o.root, o.a4_hz);
     // A root given as a note spells the voices from it (Bb, not A#).
     std::optional<pitch::Tonic> tonic;
     const std::string_view rt = pitch::trim(o.root);

@@ -169,7 +169,7 @@ std::string stream_text(const char* dir, const std::string& name, const audio::S
 int run_live(const ListenOptions& o, Printing printing) {
     check_options(o);
     pitch::check_a4(o.a4_hz);
-    const double root_hz = pitch::parse_frequency(o.root, o.a4_hz);
+    const double root_hz = pitch::parse_root(o.root, o.a4_hz);
     const pitch::TargetSet targets = chosen_targets(o);
     const audio::Timbre timbre = audio::parse_timbre(o.timbre);
     audio::DroneSettings ds;

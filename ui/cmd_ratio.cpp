@@ -68,7 +68,7 @@ int run_ratio(const RatioOptions& o) {
     pitch::check_a4(o.a4_hz);
     const std::vector<Entry> entries = expand(o.ratios);
     std::optional<double> root_hz;
-    if (!o.root.empty()) root_hz = pitch::parse_frequency(o.root, o.a4_hz);
+    if (!o.root.empty()) root_hz = pitch::parse_root(o.root, o.a4_hz);
     const auto& names = interval_names();
 
     if (o.format == Format::json) {

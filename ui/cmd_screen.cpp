@@ -75,6 +75,7 @@ void check_common(const ScreenCommand& c) {
     if (c.hold_dev_cents && !c.demo) throw UsageError("--hold works with --demo only");
     if (c.demo && !c.input_device.empty()) throw UsageError("--demo and --input contradict each other; give one");
     // Files named on the command line are checked before any window: a bad one stops the run (exit 1).
+    if (!c.root.empty()) (void)pitch::parse_root(c.root, c.a4_hz.value_or(pitch::kDefaultA4Hz));
     if (!c.target_set.empty()) (void)load_target_set(c.target_set);
     if (!c.drill.empty()) (void)load_drill(c.drill);
 }

@@ -43,7 +43,7 @@ double db_to_gain(double db) { return std::pow(10.0, db / 20.0); }
 
 int run_tone(const ToneOptions& o) {
     pitch::check_a4(o.a4_hz);
-    const double root_hz = pitch::parse_frequency(o.root, o.a4_hz);
+    const double root_hz = pitch::parse_root(o.root, o.a4_hz);
     if (!(o.seconds > 0.0 && o.seconds <= 3600.0))
         throw Error("--seconds " + pitch::format_trimmed(o.seconds, 3) + ": out of range (more than 0, at most 3600)");
     if (!(o.rate_hz >= audio::kMinRateHz && o.rate_hz <= audio::kMaxRateHz))

@@ -82,12 +82,10 @@ DroneSettings parse_drone(const TomlDoc& doc, const toml::table* t) {
         if (r.is_number()) d.root_text = pitch::format_trimmed(*r.value<double>(), 6);
         else d.root_text = optional_string(doc, *t, "root");
         try {
-            d.root_hz = pitch::parse_frequency(d.root_text);
+            d.root_hz = pitch::parse_root(d.root_text);
         } catch (const Error& e) {
             throw Error(where(doc, r) + "`root`: " + e.what());
         }
-        if (d.root_hz < 20.0 || d.root_hz > 2000.0)
-            throw Error(where(doc, r) + "`root`: " + pitch::format_trimmed(d.root_hz, 3) + " Hz is out of range (20 to 2000 Hz)");
     }
     d.level_dbfs = number_in(doc, *t, "level_dbfs", d.level_dbfs, -60.0, -6.0);
     d.partials = int_in(doc, *t, "partials", d.partials, 1, 32);

@@ -112,7 +112,7 @@ void read_into(const TomlDoc& doc, Settings& s, Reader& r) {
     if (const toml::table* d = r.table("drone")) {
         r.only(*d, {"root", "timbre", "level_dbfs", "fifth", "octave"}, "[drone]");
         r.string(*d, "root", [&](const std::string& v) {
-            (void)pitch::parse_frequency(v, s.a4_hz);
+            (void)pitch::parse_root(v, s.a4_hz);
             s.root = v;
         });
         r.string(*d, "timbre", [&](const std::string& v) { s.timbre = audio::parse_timbre(v); });
