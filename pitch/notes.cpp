@@ -52,12 +52,22 @@ int note_to_midi(std::string_view name) {
 
 double note_to_hz(std::string_view name, double a4_hz) { return midi_to_hz(note_to_midi(name), a4_hz); }
 
-std::string midi_to_name(int midi) {
-    static constexpr std::array<const char*, 12> names = {"C",  "C#", "D",  "D#", "E",  "F",
-                                                          "F#", "G",  "G#", "A",  "A#", "B"};
+std::string midi_to_name(int midi) { return midi_to_name(midi, BlackKeys::sharps); }
+
+std::string midi_to_name(int midi, BlackKeys spelled) {
+    static constexpr std::array<const char*, 12> sharps = {"C",  "C#", "D",  "D#", "E",  "F",
+                                                           "F#", "G",  "G#", "A",  "A#", "B"};
+    static constexpr std::array<const char*, 12> flats = {"C",  "Db", "D",  "Eb", "E",  "F",
+                                                          "Gb", "G",  "Ab", "A",  "Bb", "B"};
     const int pc = ((midi % 12) + 12) % 12;
     const int octave = (midi - pc) / 12 - 1;
+    const auto& names = spelled == BlackKeys::flats ? flats : sharps;
     return std::string(names[static_cast<std::size_t>(pc)]) + std::to_string(octave);
+}
+
+bool has_flat(std::string_view name) {
+    const std::string_view t = trim(name);
+    return t.size() > 1 && (t.substr(1).find('b') != std::string_view::npos || t.find("\xE2\x99\xAD") != std::string_view::npos);
 }
 
 NearestNote hz_to_note(double freq_hz, double a4_hz) {
@@ -87,6 +97,14 @@ double parse_frequency(std::string_view text, double a4_hz) {
     }
     const double hz = note_to_hz(t, a4_hz);
     if (!(hz >= 1.0 && hz <= 20000.0)) throw Error(quote(text) + ": frequency out of range (1 Hz to 20 kHz)");
+    return hz;
+}
+
+double parse_root(std::string_view text, double a4_hz) {
+    const double hz = parse_frequency(text, a4_hz);
+    if (!(hz >= kRootMinHz && hz <= kRootMaxHz))
+        throw Error(quote(text) + " = " + format_trimmed(hz, 3) + " Hz: out of range for a root (" + format_trimmed(kRootMinHz, 0) +
+                    " to " + format_trimmed(kRootMaxHz, 0) + " Hz)");
     return hz;
 }
 

@@ -30,11 +30,23 @@ struct NearestNote {
 };
 NearestNote hz_to_note(double freq_hz, double a4_hz = kDefaultA4Hz);
 std::string midi_to_name(int midi);  // 60 -> "C4"
+enum class BlackKeys { sharps, flats };
+std::string midi_to_name(int midi, BlackKeys spelled);  // 70 -> "A#4" or "Bb4"
+// True when a note name carries a flat ("Bb3", "E♭"): spell neighbours with flats too.
+bool has_flat(std::string_view name);
 
 // A root or frequency given as a note name ("A2") or a number of Hz
 // ("110", "110hz", "110 Hz"). Throws Error naming the text when it is
 // neither, or when the frequency is not in 1 Hz .. 20 kHz.
 double parse_frequency(std::string_view text, double a4_hz = kDefaultA4Hz);
+
+// A drone root: parse_frequency, limited to kRootMinHz .. kRootMaxHz, the
+// range a drone can sound on ordinary loudspeakers and whose intervals
+// (up to two octaves above) the tracker follows. Throws Error naming the
+// text and the range: "'C#-1' = 8.662 Hz: out of range for a root (20 to 2000 Hz)".
+inline constexpr double kRootMinHz = 20.0;
+inline constexpr double kRootMaxHz = 2000.0;
+double parse_root(std::string_view text, double a4_hz = kDefaultA4Hz);
 
 // Checks an A4 reference given by the user: 400-480 Hz (throws Error otherwise).
 double check_a4(double a4_hz);

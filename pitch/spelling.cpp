@@ -6,6 +6,7 @@
 
 #include <array>
 #include <cctype>
+#include <cmath>
 
 namespace beatless::pitch {
 
@@ -106,6 +107,38 @@ std::vector<std::string> spell_chord(const Tonic& root, const std::vector<int>& 
         out.push_back(with_octave(spell(root, m - root.pc, change), m));
     }
     return out;
+}
+
+NoteAboveRoot spell_above_root(std::string_view root, double cents_above_root, double a4_hz) {
+    const std::string_view t = trim(root);
+    int root_midi = 0;
+    Tonic tonic;
+    if (!t.empty() && std::isalpha(static_cast<unsigned char>(t[0]))) {
+        tonic = parse_tonic(t);
+        root_midi = note_to_midi(t.find_first_of("-0123456789") == std::string_view::npos ? std::string(t) + "4"
+                                                                                           : std::string(t));
+    } else {
+        root_midi = hz_to_note(parse_frequency(t, a4_hz), a4_hz).midi;
+        tonic = parse_tonic(midi_to_name(root_midi));
+    }
+    NoteAboveRoot out;
+    if (!std::isfinite(cents_above_root)) throw Error("spell_above_root: the interval is not a finite number of cents");
+    const int semis = static_cast<int>(std::lround(cents_above_root / 100.0));
+    // Tritone family: wider than 600 cents (by more than rounding) reads as a diminished fifth.
+    const int change = (mod(semis, 12) == 6 && cents_above_root - 1200.0 * std::floor(cents_above_root / 1200.0) > 600.0 + 1e-6) ? 1 : 0;
+    const Spelled s = spell(tonic, semis, change);
+    out.midi = root_midi + semis;
+    out.name = with_octave(s, out.midi);
+    out.pitch_class = letter_name(s.letter, s.alter);
+    out.offset_cents = cents_above_root - 100.0 * semis;
+    return out;
+}
+
+NoteAboveRoot spell_hz_above_root(std::string_view root, double freq_hz, double a4_hz) {
+    const double root_hz = parse_frequency(root, a4_hz);
+    NoteAboveRoot n = spell_above_root(root, 1200.0 * std::log2(freq_hz / root_hz), a4_hz);
+    n.offset_cents = 1200.0 * std::log2(freq_hz / midi_to_hz(n.midi, a4_hz));
+    return n;
 }
 
 }  // namespace beatless::pitch

@@ -7,6 +7,9 @@
 // rest, so the third of Eb is G, the flat seventh of C is Bb and the
 // augmented fourth of F is B. Scientific pitch notation (ASA 1939) numbers
 // octaves by letter: Cb4 sounds a semitone below C4, B#3 as C4.
+// The tritone family is split by size: narrower than 600 cents it is an
+// augmented fourth (45/32, 7/5 over D: G#), wider a diminished fifth
+// (64/45, 10/7 over D: Ab) (common practice). Thread: any; pure functions.
 #pragma once
 
 #include <string>
@@ -37,5 +40,26 @@ std::string spell_midi(const Tonic& tonic, int midi);
 // (E-G-Bb, B-D-F) when the chord holds a minor third, and eight semitones
 // are an augmented fifth (C-E-G#) when it holds a major third but no fifth.
 std::vector<std::string> spell_chord(const Tonic& root, const std::vector<int>& midi);
+
+// A pitch `cents_above_root` above (negative: below) a root, named as the
+// performer would read it against that root.
+struct NoteAboveRoot {
+    std::string name;          // "Bb3": letter, accidentals, octave
+    std::string pitch_class;   // "Bb"
+    int midi = 0;              // the equal-tempered step named (MIDI number)
+    double offset_cents = 0;   // cents_above_root minus that step's cents above the root
+};
+
+// The one speller for "which note is this, over this root": the root as the
+// user typed it ("Bb3", "D3"; a frequency such as "146.8" is spelled from
+// its nearest note at a4_hz, sharps for black keys). The step is the
+// nearest whole semitone; the tritone family follows the rule above.
+// Throws Error naming the root when it is neither a note nor a frequency.
+NoteAboveRoot spell_above_root(std::string_view root, double cents_above_root, double a4_hz = 440.0);
+
+// A frequency named against the typed root, as above; here offset_cents is
+// from the equal-tempered note at a4_hz (what a tuner shows), so the root
+// itself, typed as a note, is its own name at 0 cents: ("Bb3", 233.08 Hz) -> Bb3.
+NoteAboveRoot spell_hz_above_root(std::string_view root, double freq_hz, double a4_hz = 440.0);
 
 }  // namespace beatless::pitch

@@ -315,3 +315,48 @@ TEST_CASE("best-fitting root agrees with numpy lstsq and scipy's direct minimisa
     }
     std::remove(in_path.c_str());
 }
+
+// Cents of a ratio: 1200·log2(r) (A. J. Ellis, 1885, the cent's definition).
+static double cents_of(double r) { return 1200.0 * std::log2(r); }
+
+TEST_CASE("spell_above_root: the typed root's spelling, intervals by degree") {
+    // Flat seventh: 7/4 over C is Bb, over D it is C (common practice: the
+    // harmonic seventh is written as the minor seventh).
+    CHECK(spell_above_root("C4", cents_of(7.0 / 4.0)).name == "Bb4");
+    const NoteAboveRoot d7 = spell_above_root("D3", cents_of(7.0 / 4.0));
+    CHECK(d7.name == "C4");
+    CHECK(d7.pitch_class == "C");
+    CHECK(d7.midi == 60);
+    CHECK(d7.offset_cents == doctest::Approx(-31.17).epsilon(1e-3));  // 968.83 - 1000
+    // A typed flat root stays flat: thirds and fifths over Bb3.
+    CHECK(spell_above_root("Bb3", 0.0).name == "Bb3");
+    CHECK(spell_above_root("Bb3", cents_of(3.0 / 2.0)).name == "F4");
+    CHECK(spell_above_root("Bb3", cents_of(6.0 / 5.0)).name == "Db4");
+    CHECK(spell_above_root("Bb3", cents_of(5.0 / 4.0)).name == "D4");
+    CHECK(spell_above_root("Bb3", -1200.0).name == "Bb2");
+    CHECK(spell_above_root("A#3", cents_of(5.0 / 4.0)).name == "C##4");  // the sharp root's own third
+    // A root given in Hz is spelled from its nearest note: 146.83 Hz is D3 (12-TET at A4 = 440).
+    CHECK(spell_above_root("146.83", cents_of(7.0 / 4.0)).name == "C4");
+}
+
+TEST_CASE("spell_above_root: tritones below 600 cents are augmented fourths, above are diminished fifths") {
+    // Common practice: 45/32 is the just augmented fourth, 64/45 the just
+    // diminished fifth; 7/5 (582.5 c) and 10/7 (617.5 c) split the same way.
+    CHECK(spell_above_root("D3", cents_of(7.0 / 5.0)).name == "G#3");
+    CHECK(spell_above_root("D3", cents_of(10.0 / 7.0)).name == "Ab3");
+    CHECK(spell_above_root("C4", cents_of(45.0 / 32.0)).name == "F#4");
+    CHECK(spell_above_root("C4", cents_of(64.0 / 45.0)).name == "Gb4");
+    CHECK(spell_above_root("C4", 600.0).name == "F#4");  // the equal tritone keeps the usual #4
+    CHECK_THROWS_WITH(spell_above_root("H3", 0.0), doctest::Contains("H3"));
+}
+
+TEST_CASE("stepping a flat root keeps flats") {
+    // MIDI 70 is A#4/Bb4 (MIDI 1.0 note numbers, A4 = 69); a root typed with a flat steps to flat neighbours.
+    CHECK(midi_to_name(70, BlackKeys::flats) == "Bb4");
+    CHECK(midi_to_name(70, BlackKeys::sharps) == "A#4");
+    CHECK(has_flat("Bb3"));
+    CHECK(has_flat("E\xE2\x99\xAD" "2"));
+    CHECK_FALSE(has_flat("B3"));
+    CHECK_FALSE(has_flat("110"));
+    CHECK(spell_hz_above_root("Bb3", 233.0819).name == "Bb3");  // ISO 16: Bb3 = 440 * 2^(-11/12) / 2 Hz
+}

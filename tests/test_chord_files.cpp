@@ -73,14 +73,14 @@ TEST_CASE("a chord argument may be text, a built-in name or a path") {
 
 TEST_CASE("bad chord files name the file and line") {
     CHECK(error_of("kind = \"chord\"\ntitle = \"x\"\nchord = \"4:0:6\"\n") ==
-          "my.toml:3: '4:0:6': chord terms must be positive");
-    CHECK(error_of("kind = \"chord\"\ntitle = \"x\"\n") == "my.toml:1: missing key 'chord'");
+          "my.toml:3: `chord`: '4:0:6': chord terms must be positive");
+    CHECK(error_of("kind = \"chord\"\ntitle = \"x\"\n") == "my.toml:1: `chord`: required key missing");
     CHECK(error_of("kind = \"targets\"\ntitle = \"x\"\nchord = \"4:5:6\"\n") ==
-          "my.toml:1: kind is 'targets', expected \"chord\"");
+          "my.toml:1: `kind`: is \"targets\", expected \"chord\"");
     CHECK(error_of("kind = \"chord\"\ntitle = \"x\"\nchord = \"4:5:6\"\nvoices = [\"a\", \"b\"]\n") ==
-          "my.toml:4: 'voices' names 2 parts but the chord '4:5:6' has 3 voices");
+          "my.toml:4: `voices`: names 2 parts but the chord '4:5:6' has 3 voices");
     CHECK(error_of("kind = \"chord\"\ntitle = \"x\"\nchord = \"4:5:6\"\nvoices = [\"a\", 2, \"c\"]\n") ==
-          "my.toml:4: each entry of 'voices' must be a string");
-    CHECK(error_of("kind = \"chord\"\ntitle = 3\nchord = \"4:5:6\"\n") == "my.toml:2: 'title' must be a string, not an integer");
-    CHECK(error_of("kind = \"chord\"\ntitle = \"x\"\nchord = 456\n") == "my.toml:3: 'chord' must be a string, not an integer");
+          "my.toml:4: `voices`: each entry must be a string, not an integer");
+    CHECK(error_of("kind = \"chord\"\ntitle = 3\nchord = \"4:5:6\"\n") == "my.toml:2: `title`: must be a string, not an integer");
+    CHECK(error_of("kind = \"chord\"\ntitle = \"x\"\nchord = 456\n") == "my.toml:3: `chord`: must be a string, not an integer");
 }

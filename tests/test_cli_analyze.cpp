@@ -322,7 +322,7 @@ TEST_CASE("bad input and bad usage") {
         {{"analyze", wav, "--voices", "3"}, 2, "beatless: --voices 3: choose 1 or 2\n"},
         {{"analyze", wav, "--voices", "2", "--root", "A2"}, 2,
          "beatless: --root: with --voices 2 the interval is measured between the two voices; leave --root out\n"},
-        {{"analyze", wav, "--root", "5"}, 1, "beatless: --root 5: 5 Hz is out of range (20 to 2000 Hz)\n"},
+        {{"analyze", wav, "--root", "5"}, 1, "beatless: '5' = 5 Hz: out of range for a root (20 to 2000 Hz)\n"},
         {{"analyze", wav, "--root", "H9"}, 1, "beatless: 'H9': not a note name (expected a form such as C4, F#3 or Bb2)\n"},
         {{"analyze", wav, "--a4", "300"}, 1, "beatless: A4 reference 300 Hz: out of range (400 to 480 Hz)\n"},
         {{"analyze", wav, "--targets", "tritonez"}, 1, ""},

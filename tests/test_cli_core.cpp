@@ -227,3 +227,62 @@ TEST_CASE("ratio names only partials a drone sounds below the stated 4 kHz limit
     const auto text = run_program({"ratio", "81/80", "--root", "D3"});
     CHECK(text.out.find("in tune they beat 1.84 Hz") != std::string::npos);
 }
+
+TEST_CASE("a root typed as Bb3 is echoed as Bb3, intervals spelled against it") {
+    // Spelling: common practice (the flat seventh of C is Bb; 7/4 over D3 is
+    // written C4); 12-TET frequencies by ISO 16 (A4 = 440 Hz): Bb3 = 233.082 Hz.
+    const beatless::test::RunResult r = run_program("ratio 7/4 3/2 --root Bb3");
+    REQUIRE(r.exit_code == 0);
+    CHECK(r.out.find("root 233.082 Hz (Bb3 +0.0 c) · upper tone 407.893 Hz (Ab4 -31.2 c)") != std::string::npos);
+    CHECK(r.out.find("(F4 +2.0 c)") != std::string::npos);
+    CHECK(r.out.find("A#") == std::string::npos);
+    const beatless::test::RunResult d = run_program("ratio 7/4 7/5 10/7 --root D3");
+    CHECK(d.out.find("(C4 -31.2 c)") != std::string::npos);
+    CHECK(d.out.find("(G#3 -17.5 c)") != std::string::npos);  // 7/5: augmented fourth
+    CHECK(d.out.find("(Ab3 +17.5 c)") != std::string::npos);  // 10/7: diminished fifth
+    // The nearest equal step in cents, never "000 cents" (a unison is 0 cents).
+    const beatless::test::RunResult c = run_program("ratio 81/80 3/2");
+    CHECK(c.out.find("nearest 12-TET step: unison (0 cents), +21.506 cents from it") != std::string::npos);
+    CHECK(c.out.find("nearest 12-TET step: perfect fifth (700 cents), +1.955 cents from it") != std::string::npos);
+    CHECK(c.out.find("000 cents") == std::string::npos);
+    // Chord, tone and listen echo the root as typed.
+    CHECK(run_program("chord 4:5:6:7 --root Bb2").out.find("on Bb2 = 116.541 Hz") != std::string::npos);
+    CHECK(run_program("chord 4:5:6:7 --root Bb2").out.find("(near Bb0)") != std::string::npos);
+    TempDir dir;
+    CHECK(run_program({"tone", "--root", "Bb3", "--seconds", "0.2", "--out", dir.file("t.wav")}).out.find("drone Bb3 = 233.082 Hz") !=
+          std::string::npos);
+    CHECK(run_program("listen --demo --root Bb3 --seconds 0.05").err.find("root Bb3 = 233.082 Hz") != std::string::npos);
+}
+
+TEST_CASE("absurd roots, A4 references and lowest notes are refused with the accepted range") {
+    // C#-1 is MIDI 1: 440 * 2^((1 - 69) / 12) = 8.662 Hz (ISO 16, MIDI numbering);
+    // the root range 20 to 2000 Hz is ours (DEVELOPERS.md, "Values and ranges").
+    const std::string range = ": out of range for a root (20 to 2000 Hz)\n";
+    for (const std::string cmd : {"ratio 3/2 --root ", "chord 4:5:6 --root ", "listen --demo --seconds 0.1 --root ",
+                                  "ensemble 4:5:6 --demo --seconds 0.1 --root "}) {
+        CAPTURE(cmd);
+        const auto r = run_program(cmd + "C#-1");
+        CHECK(r.exit_code == 1);
+        CHECK(r.err == "beatless: 'C#-1' = 8.662 Hz" + range);
+        CHECK(run_program(cmd + "2500").err == "beatless: '2500' = 2500 Hz" + range);
+    }
+    TempDir dir;
+    const auto snap = run_program({"snapshot", "--demo", "--root", "C#-1", "--out", dir.file("x.png")});
+    CHECK(snap.exit_code == 1);
+    CHECK(snap.err == "beatless: 'C#-1' = 8.662 Hz" + range);
+    CHECK(run_program("ratio 3/2 --root 20").exit_code == 0);  // the ends of the range are accepted
+    CHECK(run_program("ratio 3/2 --root 2000").exit_code == 0);
+    // Not numbers, negative, infinite: one line, exit 1.
+    for (const std::string bad : {"nan", "-5", "inf"}) {
+        CAPTURE(bad);
+        const auto r = run_program("ratio 3/2 --root " + bad);
+        CHECK(r.exit_code == 1);
+        CHECK(line_count(r.err) == 1);
+        CHECK(r.err.find("'" + bad + "'") != std::string::npos);
+    }
+    CHECK(run_program("ratio 3/2 --a4 nan").err == "beatless: A4 reference nan Hz: out of range (400 to 480 Hz)\n");
+    CHECK(run_program("ratio 3/2 --a4 -1").exit_code == 1);
+    CHECK(run_program("listen --demo --lowest 10").err == "beatless: --lowest 10 = 10 Hz: out of range (30 to 200 Hz)\n");
+    CHECK(run_program("listen --demo --lowest -3").exit_code == 1);
+    CHECK(run_program("listen --demo --seconds nan").exit_code == 1);
+}

@@ -166,47 +166,47 @@ TEST_CASE("a drill file given by path") {
 TEST_CASE("malformed drill files name the file, the line and the problem") {
     CHECK(error_of(kGoodHold) == "(no error)");
     CHECK(error_of("kind = \"drill\"\ntitle = \"x\"\n[[target]]\ninterval = \"7/5\"\n") ==
-          "bad.toml: missing key 'mode' (\"hold\" or \"ear\")");
+          "bad.toml: `mode`: required key missing (\"hold\" or \"ear\")");
     CHECK(error_of("kind = \"drill\"\ntitle = \"x\"\nmode = \"sing\"\n[[target]]\ninterval = \"7/5\"\n") ==
-          "bad.toml:3: mode 'sing' is not one of \"hold\", \"ear\"");
+          "bad.toml:3: `mode`: 'sing' is not one of \"hold\", \"ear\"");
     CHECK(error_of("kind = \"drill\"\ntitle = \"x\"\nmode = \"hold\"\ntolerence_cents = 5\n[[target]]\ninterval = \"7/5\"\n")
-              .starts_with("bad.toml:4: unknown key 'tolerence_cents' in a hold drill"));
+              .starts_with("bad.toml:4: `tolerence_cents`: unknown key in a hold drill; did you mean `tolerance_cents`?"));
     CHECK(error_of("kind = \"drill\"\ntitle = \"x\"\nmode = \"hold\"\nhold_s = 0\n[[target]]\ninterval = \"7/5\"\n") ==
-          "bad.toml:4: hold_s 0 is out of range (0.5 to 120)");
+          "bad.toml:4: `hold_s`: 0 is out of range (0.5 to 120)");
     CHECK(error_of("kind = \"drill\"\ntitle = \"x\"\nmode = \"hold\"\nrepetitions = 2.5\n[[target]]\ninterval = \"7/5\"\n") ==
-          "bad.toml:4: 'repetitions' must be a whole number");
+          "bad.toml:4: `repetitions`: must be a whole number, not a decimal number");
     CHECK(error_of("kind = \"drill\"\ntitle = \"x\"\nmode = \"hold\"\n[[target]]\ninterval = \"7/0\"\n").starts_with("bad.toml:5: "));
     CHECK(error_of("kind = \"drill\"\ntitle = \"x\"\nmode = \"hold\"\n[drone]\nroot = \"H2\"\n[[target]]\ninterval = \"7/5\"\n")
               .starts_with("bad.toml:5: "));
     CHECK(error_of("kind = \"drill\"\ntitle = \"x\"\nmode = \"hold\"\n[drone]\nlevel_dbfs = 0\n[[target]]\ninterval = \"7/5\"\n") ==
-          "bad.toml:5: level_dbfs 0 is out of range (-60 to -6)");
+          "bad.toml:5: `level_dbfs`: 0 is out of range (-60 to -6)");
     CHECK(error_of("kind = \"drill\"\ntitle = \"x\"\nmode = \"hold\"\n") ==
-          "bad.toml: no targets: add [[target]] entries with interval = \"7/5\", or target_set = \"tritones\"");
-    CHECK(error_of("kind = \"drill\"\ntitle = \"x\"\nmode = \"hold\"\ntarget_set = \"nope\"\n").starts_with("bad.toml:4: target_set: 'nope'"));
+          "bad.toml: `[[target]]`: required table missing: add [[target]] entries with interval = \"7/5\", or target_set = \"tritones\"");
+    CHECK(error_of("kind = \"drill\"\ntitle = \"x\"\nmode = \"hold\"\ntarget_set = \"nope\"\n").starts_with("bad.toml:4: `target_set`: 'nope'"));
     CHECK(error_of("kind = \"drill\"\ntitle = \"x\"\nmode = \"hold\"\ntarget_set = \"tritones\"\n[[target]]\ninterval = \"7/5\"\n") ==
-          "bad.toml:4: give either target_set or [[target]] entries, not both");
+          "bad.toml:4: `target_set`: give either target_set or [[target]] entries, not both");
     CHECK(error_of("kind = \"drill\"\ntitle = \"x\"\nmode = \"hold\"\nhold_s = 1.0\ndwell_s = 2.0\n[[target]]\ninterval = \"7/5\"\n")
-              .starts_with("bad.toml:5: dwell_s 2 must be shorter than the hold"));
+              .starts_with("bad.toml:5: `dwell_s`: 2 must be shorter than the hold"));
     CHECK(error_of("kind = \"drill\"\ntitle = \"x\"\nmode = \"hold\"\nsound_target = \"yes\"\n[[target]]\ninterval = \"7/5\"\n") ==
-          "bad.toml:4: 'sound_target' must be true or false");
+          "bad.toml:4: `sound_target`: must be true or false, not a string");
     // TOML syntax and the kind key.
     CHECK(error_of("kind = \"drill\"\ntitle = \n").starts_with("bad.toml:2: "));
-    CHECK(error_of("kind = \"targets\"\ntitle = \"x\"\n") == "bad.toml:1: kind is 'targets', expected \"drill\"");
+    CHECK(error_of("kind = \"targets\"\ntitle = \"x\"\n") == "bad.toml:1: `kind`: is \"targets\", expected \"drill\"");
 }
 
 TEST_CASE("malformed ear drills") {
     const std::string head = "kind = \"drill\"\ntitle = \"x\"\nmode = \"ear\"\n";
-    CHECK(error_of(head + "[[target]]\ninterval = \"7/5\"\n").starts_with("bad.toml:4: ear question: needs at least two targets"));
+    CHECK(error_of(head + "[[target]]\ninterval = \"7/5\"\n").starts_with("bad.toml:4: `[[target]]`: ear question: needs at least two targets"));
     CHECK(error_of(head + "hold_s = 3\n[[target]]\ninterval = \"7/5\"\n[[target]]\ninterval = \"10/7\"\n")
-              .starts_with("bad.toml:4: unknown key 'hold_s' in an ear drill"));
+              .starts_with("bad.toml:4: `hold_s`: unknown key in an ear drill"));
     CHECK(error_of(head + "question = \"three\"\n[[target]]\ninterval = \"7/5\"\n[[target]]\ninterval = \"10/7\"\n") ==
-          "bad.toml:4: question 'three' is not one of \"one\", \"two\"");
+          "bad.toml:4: `question`: 'three' is not one of \"one\", \"two\"");
     const std::string targets = "[[target]]\ninterval = \"7/5\"\n[[target]]\ninterval = \"10/7\"\n";
     CHECK(error_of(head + "[staircase]\nthreshold_reversals = 7\n" + targets)
               .starts_with("bad.toml:4: staircase: threshold_reversals 7 must be even"));
     CHECK(error_of(head + "[staircase]\nrule = \"4-down\"\n" + targets) ==
-          "bad.toml:5: rule '4-down' is not one of \"2-down\", \"3-down\"");
-    CHECK(error_of(head + "[staircase]\nsteps = [2.0, \"x\"]\n" + targets) == "bad.toml:5: 'steps' must hold numbers only");
+          "bad.toml:5: `rule`: '4-down' is not one of \"2-down\", \"3-down\"");
+    CHECK(error_of(head + "[staircase]\nsteps = [2.0, \"x\"]\n" + targets) == "bad.toml:5: `steps`: must hold numbers only, not a string");
     CHECK(error_of(head + "[staircase]\nsteps = [0.5]\n" + targets).find("steps 0.5 must be a factor above 1") != std::string::npos);
     const Drill ok = parse_drill(head + "question = \"two\"\n[staircase]\nrule = \"3-down\"\n" + targets, "ok.toml");
     CHECK(ok.question == pitch::EarMode::two_intervals);

@@ -94,7 +94,7 @@ TEST_CASE("settings: a missing file is the defaults; a malformed one warns in on
     CHECK(bad.settings == ui::Settings{});
     // Bad values: those fall back, the rest are kept; the first is named, the others counted.
     const auto some = ui::parse_settings("kind = \"settings\"\na4_hz = 520\nfont_scale = 2\n[drone]\ntimbre = \"nasal\"\nfifth = 1\nroot = \"D3\"\n", "s.toml");
-    CHECK(some.warning.rfind("s.toml:2: 'a4_hz' = 520 is out of range", 0) == 0);
+    CHECK(some.warning.rfind("s.toml:2: `a4_hz`: 520 is out of range", 0) == 0);
     CHECK(some.warning.find("and 2 more problems") != std::string::npos);
     CHECK(some.warning.find('\n') == std::string::npos);
     CHECK(some.settings.a4_hz == 440.0);
@@ -103,11 +103,11 @@ TEST_CASE("settings: a missing file is the defaults; a malformed one warns in on
     CHECK(some.settings.fifth == false);
     CHECK(some.settings.root == "D3");
     const auto low = ui::parse_settings("kind = \"settings\"\nlowest_hz = 10\n", "s.toml");
-    CHECK(low.warning.rfind("s.toml:2: 'lowest_hz' = 10 is out of range (30 to 200)", 0) == 0);
+    CHECK(low.warning.rfind("s.toml:2: `lowest_hz`: 10 is out of range (30 to 200)", 0) == 0);
     CHECK(low.settings.lowest_hz == 70.0);
     // Another kind of file is refused as a whole.
     const auto other = ui::parse_settings("kind = \"targets\"\n", "t.toml");
-    CHECK(other.warning.find("t.toml:1: kind is 'targets'") == 0);
+    CHECK(other.warning.find("t.toml:1: `kind`: is \"targets\"") == 0);
     // The screen shown, the choice and the fixed target are a window's
     // transient state: an older file's keys are no longer read or written.
     const auto old = ui::parse_settings("kind = \"settings\"\nscreen = \"drills\"\n[targets]\nchoice = \"fixed\"\nfixed = \"9/7\"\n", "s");

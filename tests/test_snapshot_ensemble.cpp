@@ -166,7 +166,7 @@ TEST_CASE("[ensemble] settings: written, read back equal, and a bad reference is
     CHECK(back.warning.empty());
     CHECK(back.settings == s);
     const ui::LoadedSettings bad = ui::parse_settings("kind = \"settings\"\n[ensemble]\nchord = \"4:5:6\"\nreference = \"tenor\"\n", "my.toml");
-    CHECK(bad.warning == "my.toml:4: 'reference': reference 'tenor': expected drone, bass or best-fit; using its default");
+    CHECK(bad.warning == "my.toml:4: `reference`: reference 'tenor': expected drone, bass or best-fit; using its default");
     CHECK(bad.settings.ensemble.chord == "4:5:6");
     CHECK(bad.settings.ensemble.reference == pitch::ChordReference::best_fit);
 }

@@ -1,7 +1,9 @@
 // The TOML files in targets/: every built-in file loads, and malformed files
 // give messages with file and line.
 #include "pitch/error.h"
+#include "ui/settings.h"
 #include "ui/target_files.h"
+#include "ui/toml_util.h"
 #include "tests/cli.h"
 
 #include <doctest/doctest.h>
@@ -55,13 +57,13 @@ TEST_CASE("the built-in target sets load and hold what the issue asks") {
 TEST_CASE("malformed target files name the file and the line") {
     CHECK(error_of_text("kind = \"targets\"\ntitle = \"x\"\n[[target]\ninterval = \"7/5\"\n").rfind("my.toml:3: ", 0) == 0);
     CHECK(error_of_text("kind = \"targets\"\ntitle = \"x\"\n\n[[target]]\ninterval = \"abc\"\n") ==
-          "my.toml:5: 'abc': not a ratio (expected a form such as 7/5, 7:5, 3/2*5/4 or 600c)");
+          "my.toml:5: `interval`: 'abc': not a ratio (expected a form such as 7/5, 7:5, 3/2*5/4 or 600c)");
     CHECK(error_of_text("kind = \"targets\"\ntitle = \"x\"\n[[target]]\ninterval = 7\n") ==
-          "my.toml:4: 'interval' must be a string, not an integer");
-    CHECK(error_of_text("title = \"x\"\n") == "my.toml: missing top-level key 'kind' (expected kind = \"targets\")");
-    CHECK(error_of_text("kind = \"drill\"\ntitle = \"x\"\n") == "my.toml:1: kind is 'drill', expected \"targets\"");
-    CHECK(error_of_text("kind = \"targets\"\ntitle = \"x\"\n") == "my.toml:1: missing [[target]] entries");
-    CHECK(error_of_text("kind = \"targets\"\n[[target]]\ninterval = \"7/5\"\n") == "my.toml:1: missing key 'title'");
+          "my.toml:4: `interval`: must be a string, not an integer");
+    CHECK(error_of_text("title = \"x\"\n") == "my.toml: `kind`: required key missing (write kind = \"targets\" on the first line)");
+    CHECK(error_of_text("kind = \"drill\"\ntitle = \"x\"\n") == "my.toml:1: `kind`: is \"drill\", expected \"targets\"");
+    CHECK(error_of_text("kind = \"targets\"\ntitle = \"x\"\n") == "my.toml:1: `[[target]]`: required table missing (add at least one)");
+    CHECK(error_of_text("kind = \"targets\"\n[[target]]\ninterval = \"7/5\"\n") == "my.toml:1: `title`: required key missing");
 }
 
 TEST_CASE("target sets by path, and unknown names") {
@@ -76,5 +78,102 @@ TEST_CASE("target sets by path, and unknown names") {
         FAIL("no error");
     } catch (const Error& e) {
         CHECK(std::string(e.what()).rfind("'tritonez': no built-in targets file of that name (known: ", 0) == 0);
+    }
+}
+
+// [SECTION] Strict files: every malformed case gives one line naming file, line and key
+//
+// The message form is ours: "file:line: `key`: problem[; did you mean `x`?]".
+// Suggestions use the optimal string alignment distance (Damerau 1964:
+// insertion, deletion, substitution and a swap of neighbours are one edit each).
+
+TEST_CASE("edit distance matches the published textbook examples") {
+    // Levenshtein's classic example kitten -> sitting is 3 edits (Levenshtein
+    // 1966; the usual textbook example, from memory); with neighbour swaps
+    // "ca" -> "ac" is 1 edit (Damerau 1964), and OSA gives "ca" -> "abc" 3
+    // (the standard counter-example to true Damerau-Levenshtein, from memory).
+    CHECK(ui::edit_distance("kitten", "sitting") == 3);
+    CHECK(ui::edit_distance("ca", "ac") == 1);
+    CHECK(ui::edit_distance("ca", "abc") == 3);
+    CHECK(ui::edit_distance("name", "name") == 0);
+    CHECK(ui::closest_name("nmae", {"interval", "name"}) == "name");
+    CHECK(ui::closest_name("targets", {"kind", "title", "about", "target"}) == "target");
+    CHECK(ui::closest_name("colour", {"interval", "name"}).empty());  // nothing close: no guess
+}
+
+TEST_CASE("target files: typos, types, missing keys and syntax each give one line") {
+    const std::string head = "kind = \"targets\"\ntitle = \"Tritones for Mira\"\n";
+    // A plural table header would drop every entry in silence.
+    CHECK(error_of_text(head + "\n[[targets]]\ninterval = \"7/5\"\n") ==
+          "my.toml:4: `[[targets]]`: unknown table; did you mean `[[target]]`?");
+    CHECK(error_of_text(head + "[[target]]\ninterval = \"7/5\"\nnmae = \"septimal tritone\"\n") ==
+          "my.toml:5: `nmae`: unknown key in [[target]]; did you mean `name`?");
+    CHECK(error_of_text(head + "abuot = \"x\"\n[[target]]\ninterval = \"7/5\"\n") ==
+          "my.toml:3: `abuot`: unknown key; did you mean `about`?");
+    CHECK(error_of_text(head + "colour = \"red\"\n[[target]]\ninterval = \"7/5\"\n") ==
+          "my.toml:3: `colour`: unknown key (known: title, about, target)");
+    CHECK(error_of_text(head + "[[target]]\ninterval = \"7/5\"\nname = 7\n") ==
+          "my.toml:5: `name`: must be a string, not an integer");
+    CHECK(error_of_text(head + "[[target]]\nname = \"lonely\"\n") == "my.toml:3: `interval`: required key missing");
+    CHECK(error_of_text(head + "target = 3\n") == "my.toml:3: `target`: must be a list of [[target]] tables, not an integer");
+}
+
+TEST_CASE("target files: TOML syntax errors in our words, never the parser's") {
+    const std::string head = "kind = \"targets\"\n";
+    CHECK(error_of_text(head + "title = \"Tritones for Mira\n[[target]]\ninterval = \"7/5\"\n") ==
+          "my.toml:2: `title`: a string is not closed: add the closing quote on this line");
+    CHECK(error_of_text(head + "title = 'single\n") == "my.toml:2: `title`: a string is not closed: add the closing quote on this line");
+    CHECK(error_of_text(head + "title = \n") == "my.toml:2: `title`: no value after `=`");
+    CHECK(error_of_text(head + "title = \"a\"\ntitle = \"b\"\n") == "my.toml:3: `title`: given twice: keep one");
+    CHECK(error_of_text(head + "title = \"a\"\n[[target]\n") ==
+          "my.toml:3: `[[target]]`: a table header is not closed: write [name] or [[name]]");
+    CHECK(error_of_text(head + "title \"a\"\n") == "my.toml:2: expected `=` after the key");
+    CHECK(error_of_text(head + "title = \"a\\q\"\n") ==
+          "my.toml:2: `title`: a backslash starts an unknown escape in a string (write \\\\ for a backslash)");
+    for (const std::string bad : {"title = \"x\n", "a = [1, 2\n", "a = tru\n", "a = {b = 1\n", "a = 1 2\n"}) {
+        CAPTURE(bad);
+        const std::string m = error_of_text(head + bad);
+        CHECK(m.starts_with("my.toml:2: "));
+        CHECK(m.find("Error while parsing") == std::string::npos);  // the library's own words
+        CHECK(m.find('\n') == std::string::npos);
+    }
+}
+
+TEST_CASE("names.toml and the settings file reject or report unknown keys") {
+    // Settings: a bad key warns and is ignored; the file still loads.
+    const ui::LoadedSettings l = ui::parse_settings("kind = \"settings\"\na4hz = 415\n[drone]\nroot = \"D3\"\nlevel = -20\n", "s.toml");
+    CHECK(l.warning == "s.toml:2: `a4hz`: unknown key; did you mean `a4_hz`? (ignored) (and 1 more problem)");
+    CHECK(l.settings.a4_hz == 440.0);  // not misread
+    CHECK(l.settings.root == "D3");   // the good keys still count
+    const ui::LoadedSettings t = ui::parse_settings("kind = \"settings\"\n[drone]\nroot = 110\n", "s.toml");
+    CHECK(t.warning == "s.toml:3: `root`: must be a string; using its default");
+}
+
+TEST_CASE("every command that loads a malformed file stops with its one line and exit 1") {
+    test::TempDir dir;
+    const auto write = [&](const std::string& name, const std::string& text) {
+        std::ofstream(dir.file(name)) << text;
+        return dir.file(name);
+    };
+    const std::string set = write("tritones.toml", "kind = \"targets\"\ntitle = \"Tritones for Mira\"\n\n[[targets]]\ninterval = \"7/5\"\n");
+    const std::string chord = write("choir.toml", "kind = \"chord\"\ntitle = \"Evening chord\"\nchrod = \"4:5:6\"\n");
+    const std::string drill = write("drill.toml", "kind = \"drill\"\ntitle = \"x\"\nmode = \"hold\"\n[[target]]\nintervall = \"7/5\"\n");
+    const std::string set_msg = set + ":4: `[[targets]]`: unknown table; did you mean `[[target]]`?\n";
+    const std::string chord_msg = chord + ":3: `chrod`: unknown key; did you mean `chord`?\n";
+    const std::string drill_msg = drill + ":5: `intervall`: unknown key in [[target]]; did you mean `interval`?\n";
+    const std::string png = dir.file("x.png");
+    const std::vector<std::pair<std::vector<std::string>, std::string>> runs = {
+        {{"listen", "--demo", "--seconds", "0.1", "--targets", set}, set_msg},
+        {{"snapshot", "--demo", "--targets", set, "--out", png}, set_msg},
+        {{"chord", chord, "--root", "D3"}, chord_msg},
+        {{"ensemble", chord, "--demo", "--seconds", "0.1"}, chord_msg},
+        {{"drill", drill, "--demo"}, drill_msg},
+        {{"snapshot", "--demo", "--drill", drill, "--out", png}, drill_msg},
+    };
+    for (const auto& [args, msg] : runs) {
+        CAPTURE(args[0]);
+        const test::RunResult r = test::run_program(args);
+        CHECK(r.exit_code == 1);
+        CHECK(r.err == "beatless: " + msg);
     }
 }

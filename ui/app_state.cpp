@@ -118,7 +118,7 @@ AppState::~AppState() { shutdown(); }
 
 void AppState::recompute_root() {
     try {
-        root_hz_ = pitch::parse_frequency(settings_.root, settings_.a4_hz);
+        root_hz_ = pitch::parse_root(settings_.root, settings_.a4_hz);
     } catch (const Error& e) {
         post(join({e.what(), "; using A2"}), true);
         settings_.root = "A2";
@@ -407,7 +407,7 @@ bool AppState::set_root_text(const std::string& text) {
     if (refuse_in_drill("the root")) return false;
     double hz = 0.0;
     try {
-        hz = pitch::parse_frequency(text, settings_.a4_hz);
+        hz = pitch::parse_root(text, settings_.a4_hz);
         audio::DroneSettings probe = drone_settings(settings_.level_dbfs);
         probe.root_hz = hz;
         audio::check_drone_settings(probe);
@@ -429,7 +429,7 @@ void AppState::step_root(int semitones) {
     std::string next;
     try {
         const int midi = pitch::note_to_midi(settings_.root);  // a note name moves by notes
-        next = pitch::midi_to_name(midi + semitones);
+        next = pitch::midi_to_name(midi + semitones, pitch::has_flat(settings_.root) ? pitch::BlackKeys::flats : pitch::BlackKeys::sharps);
     } catch (const Error&) {
         next = pitch::format_trimmed(root_hz_ * std::exp2(semitones / 12.0), 2);
     }

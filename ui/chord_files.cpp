@@ -21,24 +21,25 @@ std::string stem_of(std::string_view source) {
 ChordFile from_doc(const TomlDoc& doc) {
     ChordFile f;
     f.id = stem_of(doc.source);
+    check_keys(doc, doc.table, {"kind", "title", "about", "chord", "voices"}, "");
     f.title = require_string(doc, doc.table, "title");
     f.about = optional_string(doc, doc.table, "about");
     f.text = require_string(doc, doc.table, "chord");
     try {
         f.chord = pitch::parse_chord(f.text);
     } catch (const Error& e) {
-        throw Error(where(doc, doc.table["chord"]) + e.what());
+        throw Error(where(doc, doc.table["chord"]) + "`chord`: " + e.what());
     }
     if (const auto v = doc.table["voices"]) {
         const toml::array* a = v.as_array();
-        if (!a) throw Error(where(doc, v) + "'voices' must be a list of part names, such as [\"bass\", \"tenor\", \"alto\"]");
+        if (!a) throw Error(where(doc, v) + "`voices`: must be a list of part names, such as [\"bass\", \"tenor\", \"alto\"]");
         for (const auto& n : *a) {
             const auto s = n.value<std::string>();
-            if (!s) throw Error(where(doc, n) + "each entry of 'voices' must be a string");
+            if (!s) throw Error(where(doc, n) + "`voices`: each entry must be a string, not " + describe_type(n));
             f.voice_names.push_back(*s);
         }
         if (f.voice_names.size() != f.chord.size())
-            throw Error(where(doc, v) + "'voices' names " + std::to_string(f.voice_names.size()) +
+            throw Error(where(doc, v) + "`voices`: names " + std::to_string(f.voice_names.size()) +
                         " parts but the chord " + pitch::quote(f.text) + " has " + std::to_string(f.chord.size()) +
                         " voices");
     }

@@ -6,7 +6,7 @@
 //   about  = "..."                      optional: one sentence for the screen
 //   chord  = "4:5:6:7"                  required: terms, or ratios "1/1 5/4 3/2"
 //   voices = ["bass", "tenor", ...]     optional: one part name per voice, low to high
-// Errors name the file and line: "my.toml:5: '4:0:6': chord terms must be positive".
+// Errors name the file, line and key: "my.toml:5: `chord`: '4:0:6': chord terms must be positive".
 #pragma once
 
 #include "pitch/chord.h"

@@ -19,6 +19,7 @@
 #include "pitch/beats.h"
 #include "pitch/error.h"
 #include "pitch/notes.h"
+#include "pitch/spelling.h"
 #include "pitch/text.h"
 #include "ui/analysis.h"
 #include "ui/analysis_report.h"
@@ -53,8 +54,6 @@ struct AnalyzeOptions {
     std::string lowest;               // --lowest: below the file tracker's 55 Hz (a double bass)
 };
 
-constexpr double kMinRootHz = 20.0;
-constexpr double kMaxRootHz = 2000.0;
 constexpr double kProgressAfterS = 5.0;  // files longer than this show a progress bar (on a terminal)
 
 // The target's name: the set's own, else one of the trade (targets/names.toml).
@@ -91,8 +90,14 @@ std::string today_text() {
     return buf;
 }
 
-std::string root_words(const OneVoiceAnalysis& a, double a4_hz) {
-    const pitch::NearestNote n = pitch::hz_to_note(a.root_hz, a4_hz);
+std::string root_words(const OneVoiceAnalysis& a, const std::string& root_typed, double a4_hz) {
+    // A root given as a note keeps the user's spelling (Bb3, never A#3).
+    pitch::NearestNote n = pitch::hz_to_note(a.root_hz, a4_hz);
+    if (a.root_given) {
+        const pitch::NoteAboveRoot typed = pitch::spell_hz_above_root(root_typed, a.root_hz, a4_hz);
+        n.name = typed.name;
+        n.offset_cents = typed.offset_cents;
+    }
     char buf[96];
     const double off = std::fabs(n.offset_cents) < 0.05 ? 0.0 : n.offset_cents;  // no "-0.0"
     std::snprintf(buf, sizeof buf, "root %.3f Hz (%s %+.1f c)", a.root_hz, n.name.c_str(), off);
@@ -238,7 +243,7 @@ void print_one_voice(const AnalyzeOptions& o, const pitch::TargetSet& set, const
     }
     std::printf("%s: %s at %s Hz, one voice against a drone\n", o.file.c_str(), duration_text(a.info.dur_s()).c_str(),
                 pitch::format_trimmed(a.info.sample_rate_hz, 0).c_str());
-    std::printf("%s", root_words(a, o.a4_hz).c_str());
+    std::printf("%s", root_words(a, o.root, o.a4_hz).c_str());
     if (!a.root_given)
         std::printf(" (%d harmonics agree within %s cents)", a.root.harmonics_used, pitch::format_trimmed(a.root.spread_cents, 3).c_str());
     std::printf("\n");
@@ -281,7 +286,7 @@ ReportData one_voice_report(const AnalyzeOptions& o, const pitch::TargetSet& set
         return ReportMark{n.start_s, n.end_s, n.cents_above_root, n.target_cents, n.dev_cents};
     });
     d.title = base_name(o.file);
-    d.subtitle = root_words(a, o.a4_hz) + "   \u00b7   targets: " + set.title + "   \u00b7   analysed " + today_text();
+    d.subtitle = root_words(a, o.root, o.a4_hz) + "   \u00b7   targets: " + set.title + "   \u00b7   analysed " + today_text();
     d.axis_label = "cents above the root";
     d.mark_word = "note";
     d.dur_s = a.info.dur_s();
@@ -391,11 +396,7 @@ int run_analyze(const AnalyzeOptions& o) {
     req.path = o.file;
     req.channel = o.channel - 1;
     if (o.voices == 1 && pitch::trim(o.root) != "auto") {
-        const double hz = pitch::parse_frequency(o.root, o.a4_hz);
-        if (!(hz >= kMinRootHz && hz <= kMaxRootHz))
-            throw Error("--root " + o.root + ": " + pitch::format_trimmed(hz, 3) + " Hz is out of range (" +
-                        pitch::format_trimmed(kMinRootHz, 0) + " to " + pitch::format_trimmed(kMaxRootHz, 0) + " Hz)");
-        req.root_hz = hz;
+        req.root_hz = pitch::parse_root(o.root, o.a4_hz);
     }
     if (!o.lowest.empty()) {
         if (o.voices == 2) throw UsageError("--lowest works with one voice; two voices are followed from 60 Hz");

@@ -35,7 +35,7 @@ struct ChordOptions {
 int run_chord(const ChordOptions& o) {
     pitch::check_a4(o.a4_hz);
     const ChordFile file = chord_from_argument(join_args(o.chord));
-    const double root_hz = pitch::parse_frequency(o.root, o.a4_hz);
+    const double root_hz = pitch::parse_root(o.root, o.a4_hz);
     // A root given as a note spells the voices from it (Bb, not A#).
     std::optional<pitch::Tonic> tonic;
     const std::string_view rt = pitch::trim(o.root);
@@ -138,7 +138,7 @@ int run_chord(const ChordOptions& o) {
     std::string terms;
     for (std::size_t i = 0; i < chart.voices.size(); ++i)
         terms += (i == 0 ? "" : i + 1 == chart.voices.size() ? " and " : ", ") + std::to_string(chart.voices[i].term);
-    const auto fund = pitch::hz_to_note(chart.fundamental_hz, o.a4_hz);
+    const auto fund = pitch::spell_hz_above_root(o.root, chart.fundamental_hz, o.a4_hz);
     std::printf("The voices are harmonics %s of one fundamental, %.3f Hz (near %s).\n\n", terms.c_str(),
                 chart.fundamental_hz, fund.name.c_str());
 

@@ -328,7 +328,7 @@ int run_drill(const DrillCmd& o) {
     const double a4 = o.a4_hz ? pitch::check_a4(*o.a4_hz) : pitch::kDefaultA4Hz;
     if (!o.root.empty()) d.drone.root_text = o.root;
     if (!o.root.empty() || o.a4_hz) {
-        d.drone.root_hz = pitch::parse_frequency(d.drone.root_text, a4);
+        d.drone.root_hz = pitch::parse_root(d.drone.root_text, a4);
         audio::DroneSettings probe;
         probe.root_hz = d.drone.root_hz;
         audio::check_drone_settings(probe);

@@ -120,7 +120,7 @@ int run_ensemble(const EnsembleOptions& o) {
     pitch::check_a4(o.a4_hz);
     const pitch::ChordReference ref = pitch::parse_reference(o.reference);
     const ChordFile chord = chord_from_argument(join_args(o.chord));
-    const double root_hz = pitch::parse_frequency(o.root, o.a4_hz);
+    const double root_hz = pitch::parse_root(o.root, o.a4_hz);
     const std::vector<pitch::Player> players = plan_players(chord, o.lists);
 
     audio::EnsembleSetup setup;

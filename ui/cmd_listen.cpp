@@ -172,7 +172,7 @@ std::string stream_text(const char* dir, const std::string& name, const audio::S
 int run_live(const ListenOptions& o, Printing printing) {
     check_options(o);
     pitch::check_a4(o.a4_hz);
-    const double root_hz = pitch::parse_frequency(o.root, o.a4_hz);
+    const double root_hz = pitch::parse_root(o.root, o.a4_hz);
     const pitch::TargetSet targets = chosen_targets(o);
     const audio::Timbre timbre = audio::parse_timbre(o.timbre);
     audio::DroneSettings ds;
@@ -254,8 +254,8 @@ int run_live(const ListenOptions& o, Printing printing) {
         std::signal(SIGINT, on_sigint);
         std::signal(SIGTERM, on_sigint);
         engine.start();
-        std::fprintf(stderr, "beatless: listening to %s at %s Hz; root %s Hz, targets %s%s\n", what.c_str(),
-                     pitch::format_trimmed(engine.sample_rate_hz(), 0).c_str(), pitch::format_trimmed(root_hz, 3).c_str(),
+        std::fprintf(stderr, "beatless: listening to %s at %s Hz; root %s, targets %s%s\n", what.c_str(),
+                     pitch::format_trimmed(engine.sample_rate_hz(), 0).c_str(), root_echo(o.root, root_hz).c_str(),
                      targets.id.c_str(), !o.drone ? "" : o.input_file.empty() ? ", drone on" : ", the recording's drone removed");
         if (device_input) {
             const audio::StreamInfo si = engine.input_info();

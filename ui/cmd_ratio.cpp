@@ -12,6 +12,7 @@
 #include "pitch/error.h"
 #include "pitch/interval.h"
 #include "pitch/notes.h"
+#include "pitch/spelling.h"
 #include "pitch/text.h"
 #include "ui/commands.h"
 #include "ui/json.h"
@@ -71,7 +72,7 @@ int run_ratio(const RatioOptions& o) {
     pitch::check_a4(o.a4_hz);
     const std::vector<Entry> entries = expand(o.ratios);
     std::optional<double> root_hz;
-    if (!o.root.empty()) root_hz = pitch::parse_frequency(o.root, o.a4_hz);
+    if (!o.root.empty()) root_hz = pitch::parse_root(o.root, o.a4_hz);
     const auto& names = interval_names();
     pitch::AudibleRange range;
     range.partials_a = audio::timbre_highest_partial(audio::parse_timbre(o.timbre));
@@ -133,12 +134,13 @@ int run_ratio(const RatioOptions& o) {
         } else {
             std::printf("  %.3f cents · not a ratio (no prime limit or Tenney height)\n", f.cents);
         }
-        std::printf("  nearest 12-TET step: %s (%d00 cents), %+.3f cents from it\n", f.et_name.c_str(), f.et.step,
+        std::printf("  nearest 12-TET step: %s (%d cents), %+.3f cents from it\n", f.et_name.c_str(), 100 * f.et.step,
                     f.et.offset_cents);
         if (!root_hz) continue;
         const double upper = *root_hz * e.interval.value();
-        const auto rn = pitch::hz_to_note(*root_hz, o.a4_hz);
-        const auto un = pitch::hz_to_note(upper, o.a4_hz);
+        // Named against the root as typed: over Bb3 the fifth is F4, 7/4 over D3 is C4.
+        const auto rn = pitch::spell_hz_above_root(o.root, *root_hz, o.a4_hz);
+        const auto un = pitch::spell_hz_above_root(o.root, upper, o.a4_hz);
         std::printf("  root %.3f Hz (%s %+.1f c) · upper tone %.3f Hz (%s %+.1f c)\n", *root_hz, rn.name.c_str(),
                     rn.offset_cents, upper, un.name.c_str(), un.offset_cents);
         const pitch::AudiblePair a = heard_at(*root_hz, e.interval, 0.0, range);

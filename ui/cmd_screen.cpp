@@ -22,12 +22,14 @@
 #include "ui/app_state.h"
 #include "ui/commands.h"
 #include "ui/draw_kit.h"
+#include "ui/drill_files.h"
 #include "ui/imgui_host.h"
 #include "ui/json.h"
 #include "ui/palette.h"
 #include "ui/png.h"
 #include "ui/raster.h"
 #include "ui/screen.h"
+#include "ui/target_files.h"
 #include "ui/window.h"
 
 #include <cmath>
@@ -86,6 +88,10 @@ void check_common(const ScreenCommand& c) {
         throw Error("--hold " + pitch::format_trimmed(*c.hold_dev_cents, 2) + ": out of range (-600 to 600 cents)");
     if (c.hold_dev_cents && !c.demo) throw UsageError("--hold works with --demo only");
     if (c.demo && !c.input_device.empty()) throw UsageError("--demo and --input contradict each other; give one");
+    // Files named on the command line are checked before any window: a bad one stops the run (exit 1).
+    if (!c.root.empty()) (void)pitch::parse_root(c.root, c.a4_hz.value_or(pitch::kDefaultA4Hz));
+    if (!c.target_set.empty()) (void)load_target_set(c.target_set);
+    if (!c.drill.empty()) (void)load_drill(c.drill);
 }
 
 AppOptions options_of(const ScreenCommand& c) {

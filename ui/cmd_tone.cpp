@@ -43,7 +43,7 @@ double db_to_gain(double db) { return std::pow(10.0, db / 20.0); }
 
 int run_tone(const ToneOptions& o) {
     pitch::check_a4(o.a4_hz);
-    const double root_hz = pitch::parse_frequency(o.root, o.a4_hz);
+    const double root_hz = pitch::parse_root(o.root, o.a4_hz);
     if (!(o.seconds > 0.0 && o.seconds <= 3600.0))
         throw Error("--seconds " + pitch::format_trimmed(o.seconds, 3) + ": out of range (more than 0, at most 3600)");
     if (!(o.rate_hz >= audio::kMinRateHz && o.rate_hz <= audio::kMaxRateHz))
@@ -116,8 +116,8 @@ int run_tone(const ToneOptions& o) {
         for (float& v : buf) v *= ceiling / peak;
 
     audio::write_wav(o.out, buf, o.rate_hz);
-    std::printf("wrote %s: %s s at %s Hz, drone %s Hz (%s)%s\n", o.out.c_str(), pitch::format_trimmed(o.seconds, 3).c_str(),
-                pitch::format_trimmed(o.rate_hz, 0).c_str(), pitch::format_trimmed(root_hz, 3).c_str(),
+    std::printf("wrote %s: %s s at %s Hz, drone %s (%s)%s\n", o.out.c_str(), pitch::format_trimmed(o.seconds, 3).c_str(),
+                pitch::format_trimmed(o.rate_hz, 0).c_str(), root_echo(o.root, root_hz).c_str(),
                 std::string(audio::timbre_name(drone_timbre)).c_str(), voice_text.c_str());
     return 0;
 }

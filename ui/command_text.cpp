@@ -7,6 +7,7 @@
 #include "pitch/text.h"
 #include "ui/settings.h"
 
+#include <cctype>
 #include <cstdio>
 #include <cstdlib>
 #include <filesystem>
@@ -49,6 +50,13 @@ double parse_lowest(const std::string& text, double a4_hz) {
         throw Error("--lowest " + text + " = " + pitch::format_trimmed(hz, 1) + " Hz: out of range (" + pitch::format_trimmed(kLowestMinHz, 0) +
                     " to " + pitch::format_trimmed(kLowestMaxHz, 0) + " Hz)");
     return hz;
+}
+
+std::string root_echo(std::string_view typed, double root_hz) {
+    const std::string_view t = pitch::trim(typed);
+    const std::string hz = pitch::format_trimmed(root_hz, 3) + " Hz";
+    if (t.empty() || !std::isalpha(static_cast<unsigned char>(t[0]))) return hz;
+    return std::string(t) + " = " + hz;
 }
 
 namespace {

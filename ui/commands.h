@@ -68,6 +68,10 @@ double parse_lowest(const std::string& text, double a4_hz);
 inline constexpr const char* kLowestHelp =
     "Lowest note to track live: a note (A1) or Hz, 30-200 (default 70; 55 for cello, 38 for double bass, which settle more slowly)";
 
+// A root as the user typed it: "Bb3 = 233.082 Hz" for a note (its spelling
+// kept, never A#3), "146.8 Hz" for a number of Hz.
+std::string root_echo(std::string_view typed, double root_hz);
+
 // The hearing caution on stderr, once per user (a marker file in the config folder).
 void hearing_caution_once();
 

@@ -30,24 +30,24 @@ std::string range_text(double lo, double hi) {
 double number_in(const TomlDoc& doc, const toml::table& t, std::string_view key, double fallback, double lo, double hi) {
     const double v = optional_number(doc, t, key, fallback);
     if (!(v >= lo && v <= hi))
-        throw Error(where(doc, t[key]) + std::string(key) + " " + pitch::format_trimmed(v, 4) + " is out of range " + range_text(lo, hi));
+        throw Error(where(doc, t[key]) + "`" + std::string(key) + "`: " + pitch::format_trimmed(v, 4) + " is out of range " + range_text(lo, hi));
     return v;
 }
 
 int int_in(const TomlDoc& doc, const toml::table& t, std::string_view key, int fallback, int lo, int hi) {
     const auto v = t[key];
     if (!v) return fallback;
-    if (!v.is_integer()) throw Error(where(doc, v) + "'" + std::string(key) + "' must be a whole number");
+    if (!v.is_integer()) throw Error(where(doc, v) + "`" + std::string(key) + "`: must be a whole number, not " + describe_type(*v.node()));
     const std::int64_t n = *v.value<std::int64_t>();
     if (n < lo || n > hi)
-        throw Error(where(doc, v) + std::string(key) + " " + std::to_string(n) + " is out of range " + range_text(lo, hi));
+        throw Error(where(doc, v) + "`" + std::string(key) + "`: " + std::to_string(n) + " is out of range " + range_text(lo, hi));
     return static_cast<int>(n);
 }
 
 bool optional_bool(const TomlDoc& doc, const toml::table& t, std::string_view key, bool fallback) {
     const auto v = t[key];
     if (!v) return fallback;
-    if (!v.is_boolean()) throw Error(where(doc, v) + "'" + std::string(key) + "' must be true or false");
+    if (!v.is_boolean()) throw Error(where(doc, v) + "`" + std::string(key) + "`: must be true or false, not " + describe_type(*v.node()));
     return *v.value<bool>();
 }
 
@@ -62,24 +62,13 @@ E choice(const TomlDoc& doc, const toml::table& t, std::string_view key, E fallb
         if (s == name) return e;
         known += (known.empty() ? "\"" : ", \"") + std::string(name) + "\"";
     }
-    throw Error(where(doc, v) + std::string(key) + " " + pitch::quote(s) + " is not one of " + known);
-}
-
-void only_keys(const TomlDoc& doc, const toml::table& t, std::initializer_list<const char*> known, const char* what) {
-    for (const auto& [k, v] : t) {
-        const std::string key(k.str());
-        if (std::none_of(known.begin(), known.end(), [&](const char* n) { return key == n; })) {
-            std::string list;
-            for (const char* n : known) list += (list.empty() ? "" : ", ") + std::string(n);
-            throw Error(where(doc, v) + "unknown key '" + key + "' in " + what + " (known: " + list + ")");
-        }
-    }
+    throw Error(where(doc, v) + "`" + std::string(key) + "`: " + pitch::quote(s) + " is not one of " + known);
 }
 
 const toml::table* sub_table(const TomlDoc& doc, const toml::table& t, std::string_view key) {
     const auto v = t[key];
     if (!v) return nullptr;
-    if (!v.is_table()) throw Error(where(doc, v) + "'" + std::string(key) + "' must be a table [" + std::string(key) + "]");
+    if (!v.is_table()) throw Error(where(doc, v) + "`" + std::string(key) + "`: must be a table [" + std::string(key) + "], not " + describe_type(*v.node()));
     return v.as_table();
 }
 
@@ -88,17 +77,15 @@ const toml::table* sub_table(const TomlDoc& doc, const toml::table& t, std::stri
 DroneSettings parse_drone(const TomlDoc& doc, const toml::table* t) {
     DroneSettings d;
     if (!t) return d;
-    only_keys(doc, *t, {"root", "level_dbfs", "partials", "fifth"}, "[drone]");
+    check_keys(doc, *t, {"root", "level_dbfs", "partials", "fifth"}, "[drone]");
     if (const auto r = (*t)["root"]) {
         if (r.is_number()) d.root_text = pitch::format_trimmed(*r.value<double>(), 6);
         else d.root_text = optional_string(doc, *t, "root");
         try {
-            d.root_hz = pitch::parse_frequency(d.root_text);
+            d.root_hz = pitch::parse_root(d.root_text);
         } catch (const Error& e) {
-            throw Error(where(doc, r) + e.what());
+            throw Error(where(doc, r) + "`root`: " + e.what());
         }
-        if (d.root_hz < 20.0 || d.root_hz > 2000.0)
-            throw Error(where(doc, r) + "drone root " + pitch::format_trimmed(d.root_hz, 3) + " Hz is out of range (20 to 2000 Hz)");
     }
     d.level_dbfs = number_in(doc, *t, "level_dbfs", d.level_dbfs, -60.0, -6.0);
     d.partials = int_in(doc, *t, "partials", d.partials, 1, 32);
@@ -109,7 +96,7 @@ DroneSettings parse_drone(const TomlDoc& doc, const toml::table* t) {
 pitch::StaircaseConfig parse_staircase(const TomlDoc& doc, const toml::table* t) {
     pitch::StaircaseConfig c;
     if (!t) return c;
-    only_keys(doc, *t,
+    check_keys(doc, *t,
               {"rule", "scale", "start_cents", "steps", "min_cents", "max_cents", "stop_reversals", "threshold_reversals",
                "max_trials"},
               "[staircase]");
@@ -120,10 +107,10 @@ pitch::StaircaseConfig parse_staircase(const TomlDoc& doc, const toml::table* t)
     c.max_level = number_in(doc, *t, "max_cents", c.max_level, 0.01, 2400.0);
     if (const auto s = (*t)["steps"]) {
         const toml::array* a = s.as_array();
-        if (!a || a->empty()) throw Error(where(doc, s) + "'steps' must be a list of numbers, e.g. [2.0, 1.4142]");
+        if (!a || a->empty()) throw Error(where(doc, s) + "`steps`: must be a list of numbers, e.g. [2.0, 1.4142]");
         c.steps.clear();
         for (const auto& e : *a) {
-            if (!e.is_number()) throw Error(where(doc, e) + "'steps' must hold numbers only");
+            if (!e.is_number()) throw Error(where(doc, e) + "`steps`: must hold numbers only, not " + describe_type(e));
             c.steps.push_back(*e.value<double>());
         }
     }
@@ -142,27 +129,27 @@ std::vector<DrillTarget> parse_targets(const TomlDoc& doc, const toml::table& to
     std::vector<DrillTarget> out;
     const auto set_name = top["target_set"];
     const auto list = top["target"];
-    if (set_name && list) throw Error(where(doc, set_name) + "give either target_set or [[target]] entries, not both");
+    if (set_name && list) throw Error(where(doc, set_name) + "`target_set`: give either target_set or [[target]] entries, not both");
     if (set_name) {
         const std::string name = optional_string(doc, top, "target_set");
         try {
             for (auto& t : load_target_set(name).targets) out.push_back({std::move(t), NAN});
         } catch (const Error& e) {
-            throw Error(where(doc, set_name) + "target_set: " + e.what());
+            throw Error(where(doc, set_name) + "`target_set`: " + e.what());
         }
         return out;
     }
-    if (!list) throw Error(doc.source + ": no targets: add [[target]] entries with interval = \"7/5\", or target_set = \"tritones\"");
+    if (!list) throw Error(doc.source + ": `[[target]]`: required table missing: add [[target]] entries with interval = \"7/5\", or target_set = \"tritones\"");
     for (const auto& e : require_array_of_tables(doc, top, "target")) {
         const toml::table& t = *e.as_table();
-        if (hold) only_keys(doc, t, {"interval", "name", "hold_s"}, "[[target]]");
-        else only_keys(doc, t, {"interval", "name"}, "[[target]] of an ear drill");
+        if (hold) check_keys(doc, t, {"interval", "name", "hold_s"}, "[[target]]");
+        else check_keys(doc, t, {"interval", "name"}, "[[target]] of an ear drill");
         DrillTarget d;
         const std::string text = require_string(doc, t, "interval");
         try {
             d.target.interval = pitch::parse_interval(text);
         } catch (const Error& err) {
-            throw Error(where(doc, t["interval"]) + err.what());
+            throw Error(where(doc, t["interval"]) + "`interval`: " + err.what());
         }
         d.target.name = optional_string(doc, t, "name");
         if (d.target.name.empty())
@@ -186,16 +173,16 @@ Drill parse_doc(const TomlDoc& doc) {
     d.id = stem_of(doc.source);
     d.title = require_string(doc, top, "title");
     d.about = optional_string(doc, top, "about");
-    if (!top["mode"]) throw Error(doc.source + ": missing key 'mode' (\"hold\" or \"ear\")");
+    if (!top["mode"]) throw Error(doc.source + ": `mode`: required key missing (\"hold\" or \"ear\")");
     d.mode = choice(doc, top, "mode", DrillMode::hold, {{"hold", DrillMode::hold}, {"ear", DrillMode::ear}});
     const bool hold = d.mode == DrillMode::hold;
     if (hold)
-        only_keys(doc, top,
+        check_keys(doc, top,
                   {"kind", "title", "about", "mode", "drone", "target", "target_set", "repetitions", "order", "hold_s",
                    "lead_in_s", "rest_s", "tolerance_cents", "dwell_s", "sound_target"},
                   "a hold drill");
     else
-        only_keys(doc, top, {"kind", "title", "about", "mode", "drone", "target", "target_set", "question", "tone_s", "staircase"},
+        check_keys(doc, top, {"kind", "title", "about", "mode", "drone", "target", "target_set", "question", "tone_s", "staircase"},
                   "an ear drill");
     d.drone = parse_drone(doc, sub_table(doc, top, "drone"));
     d.targets = parse_targets(doc, top, hold);
@@ -210,7 +197,7 @@ Drill parse_doc(const TomlDoc& doc) {
         d.sound_target = optional_bool(doc, top, "sound_target", d.sound_target);
         for (const DrillTarget& t : d.targets)
             if (d.dwell_s >= d.hold_of(t))
-                throw Error(where(doc, top["dwell_s"]) + "dwell_s " + pitch::format_trimmed(d.dwell_s, 3) +
+                throw Error(where(doc, top["dwell_s"]) + "`dwell_s`: " + pitch::format_trimmed(d.dwell_s, 3) +
                             " must be shorter than the hold (" + pitch::format_trimmed(d.hold_of(t), 3) + " s for " +
                             t.target.interval.str() + ")");
     } else {
@@ -220,7 +207,7 @@ Drill parse_doc(const TomlDoc& doc) {
         try {
             pitch::EarQuestioner check(d.target_cents(), d.question, 1);
         } catch (const Error& e) {
-            throw Error(where(doc, top["target"]) + e.what());
+            throw Error(where(doc, top["target"]) + "`[[target]]`: " + e.what());
         }
     }
     return d;

@@ -19,7 +19,7 @@
 //           ("2-down" or "3-down"), scale ("geometric" | "linear"),
 //           start_cents, steps, min_cents, max_cents, stop_reversals,
 //           threshold_reversals, max_trials (defaults of StaircaseConfig)
-// Errors name the file and line: "my-drill.toml:7: hold_s 0 is out of range (0.5 to 120)".
+// Errors name the file, line and key: "my-drill.toml:7: `hold_s`: 0 is out of range (0.5 to 120)".
 #pragma once
 
 #include "pitch/drill_score.h"

@@ -7,6 +7,7 @@
 #include "pitch/text.h"
 #include "ui/toml_util.h"
 
+#include <algorithm>
 #include <cmath>
 #include <fstream>
 #include <sstream>
@@ -18,17 +19,6 @@ namespace fs = std::filesystem;
 
 namespace {
 
-// 'key' in quotes, built by appending: GCC 12 warns (-Wrestrict, a false
-// positive) on "'" + std::string(key) once inlined.
-std::string key_in_quotes(std::string_view key) {
-    std::string s;
-    s.reserve(key.size() + 2);
-    s += '\'';
-    s += key;
-    s += '\'';
-    return s;
-}
-
 // Collects problems with single values; the first is reported, the value
 // keeps its default.
 struct Reader {
@@ -36,8 +26,17 @@ struct Reader {
     std::string first_problem;
     int problems = 0;
 
-    void problem(const toml::node& n, const std::string& what) {
-        if (problems++ == 0) first_problem = where(doc, n) + what;
+    // `what` names the key and the problem; `then` says what the program does instead.
+    void problem(const toml::node& n, const std::string& what, std::string_view then = "; using its default") {
+        if (problems++ == 0) first_problem = where(doc, n) + what + std::string(then);
+    }
+
+    // Keys this version does not read are reported, never silently misread.
+    void only(const toml::table& t, std::initializer_list<std::string_view> known, std::string_view section) {
+        for (const auto& [k, v] : t) {
+            if (std::find(known.begin(), known.end(), k.str()) != known.end()) continue;
+            if (problems++ == 0) first_problem = unknown_key_problem(doc, k.str(), v, known, section) + " (ignored)";
+        }
     }
 
     template <class F>
@@ -45,13 +44,13 @@ struct Reader {
         const auto v = t[key];
         if (!v) return;
         if (!v.is_string()) {
-            problem(*v.node(), key_in_quotes(key) + " must be a string");
+            problem(*v.node(), ticked(key) + ": must be a string");
             return;
         }
         try {
             accept(*v.value<std::string>());
         } catch (const Error& e) {
-            problem(*v.node(), key_in_quotes(key) + ": " + e.what());
+            problem(*v.node(), ticked(key) + ": " + e.what());
         }
     }
 
@@ -59,12 +58,12 @@ struct Reader {
         const auto v = t[key];
         if (!v) return;
         if (!v.is_number()) {
-            problem(*v.node(), key_in_quotes(key) + " must be a number");
+            problem(*v.node(), ticked(key) + ": must be a number");
             return;
         }
         const double x = *v.value<double>();
         if (!(x >= lo && x <= hi)) {
-            problem(*v.node(), key_in_quotes(key) + " = " + pitch::format_trimmed(x, 3) + " is out of range (" +
+            problem(*v.node(), ticked(key) + ": " + pitch::format_trimmed(x, 3) + " is out of range (" +
                                    pitch::format_trimmed(lo, 3) + " to " + pitch::format_trimmed(hi, 3) + ")");
             return;
         }
@@ -75,7 +74,7 @@ struct Reader {
         const auto v = t[key];
         if (!v) return;
         if (!v.is_boolean()) {
-            problem(*v.node(), key_in_quotes(key) + " must be true or false");
+            problem(*v.node(), ticked(key) + ": must be true or false");
             return;
         }
         out = *v.value<bool>();
@@ -85,7 +84,7 @@ struct Reader {
         const auto v = doc.table[key];
         if (!v) return nullptr;
         if (!v.is_table()) {
-            problem(*v.node(), key_in_quotes(key) + " must be a table ([" + std::string(key) + "])");
+            problem(*v.node(), ticked(key) + ": must be a table ([" + std::string(key) + "])");
             return nullptr;
         }
         return v.as_table();
@@ -97,6 +96,8 @@ void read_into(const TomlDoc& doc, Settings& s, Reader& r) {
     // "screen", [targets] "choice" and "fixed" were written by earlier
     // versions: they are the window's transient state, not preferences, and
     // are no longer read (a later run starts on Practice, nearest target).
+    r.only(top, {"kind", "screen", "caution_acknowledged", "a4_hz", "font_scale", "in_tune_cents", "lowest_hz", "input_device",
+                 "output_device", "drone", "targets", "ensemble"}, "");
     r.boolean(top, "caution_acknowledged", s.caution_acknowledged);
     r.number(top, "a4_hz", 400.0, 480.0, s.a4_hz);
     double fs_ = s.font_scale;
@@ -107,8 +108,9 @@ void read_into(const TomlDoc& doc, Settings& s, Reader& r) {
     r.string(top, "input_device", [&](const std::string& v) { s.input_device = v; });
     r.string(top, "output_device", [&](const std::string& v) { s.output_device = v; });
     if (const toml::table* d = r.table("drone")) {
+        r.only(*d, {"root", "timbre", "level_dbfs", "fifth", "octave"}, "[drone]");
         r.string(*d, "root", [&](const std::string& v) {
-            (void)pitch::parse_frequency(v, s.a4_hz);
+            (void)pitch::parse_root(v, s.a4_hz);
             s.root = v;
         });
         r.string(*d, "timbre", [&](const std::string& v) { s.timbre = audio::parse_timbre(v); });
@@ -117,12 +119,14 @@ void read_into(const TomlDoc& doc, Settings& s, Reader& r) {
         r.boolean(*d, "octave", s.octave);
     }
     if (const toml::table* t = r.table("targets")) {
+        r.only(*t, {"set", "choice", "fixed"}, "[targets]");
         r.string(*t, "set", [&](const std::string& v) {
             if (pitch::trim(v).empty()) throw Error("must name a target set");
             s.target_set = v;
         });
     }
     if (const toml::table* e = r.table("ensemble")) {
+        r.only(*e, {"chord", "reference", "input_device", "channels", "names", "voices"}, "[ensemble]");
         EnsembleSettings& es = s.ensemble;
         r.string(*e, "chord", [&](const std::string& v) {
             if (pitch::trim(v).empty()) throw Error("must name a chord");
@@ -183,7 +187,7 @@ LoadedSettings parse_settings(std::string_view text, const std::string& source) 
     Reader r{doc, {}, 0};
     read_into(doc, out.settings, r);
     if (r.problems > 0) {
-        out.warning = r.first_problem + "; using its default";
+        out.warning = r.first_problem;
         if (r.problems > 1) out.warning += " (and " + std::to_string(r.problems - 1) + " more problem" + (r.problems > 2 ? "s" : "") + ")";
     }
     return out;

@@ -5,7 +5,8 @@
 // built-in file targets/tritones.toml, and any argument containing '/' or
 // ending in ".toml" is read from disk instead. Every file says what it holds
 // in its top-level `kind` key: "targets", "names", "chord" or "drill".
-// Errors name the file and line: "my.toml:7: 'abc': not a ratio ...".
+// Errors name the file, line and key: "my.toml:7: `interval`: 'abc': not a ratio ...",
+// "my.toml:9: `nmae`: unknown key in [[target]]; did you mean `name`?" (ui/toml_util.h).
 #pragma once
 
 #include "pitch/interval.h"
