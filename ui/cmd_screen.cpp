@@ -18,6 +18,7 @@
 // caution was acknowledged unless --first-run is given.
 #include "pitch/error.h"
 #include "pitch/notes.h"
+#include "pitch/spelling.h"
 #include "pitch/text.h"
 #include "ui/app_state.h"
 #include "ui/commands.h"
@@ -122,7 +123,7 @@ std::string verdict_json(const AppState& app) {
     j.key("state").value(kStates[static_cast<int>(v.state)]);
     if (v.known()) {
         const Tuning t = tuning_of(v.dev_cents, app.settings().in_tune_cents);
-        const pitch::NearestNote n = pitch::hz_to_note(v.f0_hz, app.settings().a4_hz);
+        const pitch::NoteAboveRoot n = pitch::spell_hz_above_root(app.settings().root, v.f0_hz, app.settings().a4_hz);
         j.key("source").value(v.source == VerdictSource::centre ? "centre" : "instant");
         j.key("target").value(app.target_ratio_text(v.reading));
         j.key("dev_cents").value(v.dev_cents, 3);

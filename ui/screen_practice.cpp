@@ -21,6 +21,7 @@
 // Index: [layout] [header] [lane] [trace] [beat cue] [controls] [screen]
 #include "pitch/error.h"
 #include "pitch/notes.h"
+#include "pitch/spelling.h"
 #include "pitch/text.h"
 #include "ui/commands.h"
 #include "ui/draw_kit.h"
@@ -65,6 +66,20 @@ constexpr KeyHelp kPracticeKeys[] = {
     {"Envelope", "right: the beat of the two partials that meet; wider lobes, slower beats"},
     {"Yellow line", "in the trace: the current target"},
 };
+
+// The verdict's note, spelled over the root as typed (7/4 over C is Bb);
+// the equal-tempered name when the root text cannot be spelled from.
+pitch::NoteAboveRoot note_of(const AppState& app, double f0_hz) {
+    try {
+        return pitch::spell_hz_above_root(app.settings().root, f0_hz, app.settings().a4_hz);
+    } catch (const Error&) {
+        const pitch::NearestNote n = pitch::hz_to_note(f0_hz, app.settings().a4_hz);
+        pitch::NoteAboveRoot out;
+        out.name = n.name;
+        out.offset_cents = n.offset_cents;
+        return out;
+    }
+}
 
 const char* source_text(const Verdict& v) { return v.source == VerdictSource::centre ? "vibrato centre" : "pitch now"; }
 
@@ -197,7 +212,7 @@ void PracticeScreen::info_line(AppState& app, ImDrawList* dl, float x0, float y0
     const bool live = v.current();
     const std::uint32_t strong = live ? palette::kText : palette::kTextDim;
     // The same pitch as the verdict: its equal-tempered note and frequency.
-    const pitch::NearestNote n = pitch::hz_to_note(v.f0_hz, app.settings().a4_hz);
+    const pitch::NoteAboveRoot n = note_of(app, v.f0_hz);
     char buf[160];
     float x = x0;
     auto put = [&](FontFace f, std::uint32_t col, const std::string& s, float gap) {
