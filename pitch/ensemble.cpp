@@ -1,11 +1,13 @@
 #include "pitch/ensemble.h"
 
+#include "pitch/beats.h"
 #include "pitch/error.h"
 #include "pitch/interval.h"
 #include "pitch/text.h"
 
 #include <algorithm>
 #include <cassert>
+#include <cmath>
 #include <numeric>
 
 namespace beatless::pitch {
@@ -234,12 +236,25 @@ const EnsembleReading& EnsembleAnalyser::process(std::span<const PitchFrame> fra
             const std::int64_t g = std::gcd(num, den);
             num /= g;
             den /= g;
-            // f_b / f_a = num / den: partial num of a meets partial den of b.
-            if (num > cfg_.max_beat_partial || den > cfg_.max_beat_partial) continue;
-            pb.partial_a = static_cast<std::int16_t>(num);
-            pb.partial_b = static_cast<std::int16_t>(den);
+            // f_b / f_a = num / den. The pair a listener hears comes from the
+            // one rule for audible pairs (pitch/beats.h), with the lower
+            // player as tone a: the own pair while its partials are present
+            // (both voices up to max_beat_partial) and below 4 kHz, else a
+            // simpler nearby pair, else none.
+            const bool a_low = num >= den;
+            const std::int64_t hi = a_low ? num : den, lo = a_low ? den : num;
+            const double f_lo = r0 * static_cast<double>(a_low ? ra.num : rb.num) / static_cast<double>(a_low ? ra.den : rb.den) *
+                                std::exp2(a_low ? pa.octaves : pq.octaves);
+            const double f_hi = f_lo * static_cast<double>(hi) / static_cast<double>(lo);
+            AudibleRange range;
+            range.partials_a = cfg_.max_beat_partial;
+            range.partials_b = cfg_.max_beat_partial;
+            const AudiblePair ap = audible_pair(f_lo, f_hi, 1200.0 * std::log2(static_cast<double>(hi) / static_cast<double>(lo)), Ratio{hi, lo}, range);
+            if (!ap.found) continue;
+            pb.partial_a = static_cast<std::int16_t>(a_low ? ap.partial_a : ap.partial_b);
+            pb.partial_b = static_cast<std::int16_t>(a_low ? ap.partial_b : ap.partial_a);
             if (pa.state == PlayerState::sounding && pq.state == PlayerState::sounding)
-                pb.beat_hz = std::fabs(static_cast<double>(num) * pa.centre_f0_hz - static_cast<double>(den) * pq.centre_f0_hz);
+                pb.beat_hz = std::fabs(static_cast<double>(pb.partial_a) * pa.centre_f0_hz - static_cast<double>(pb.partial_b) * pq.centre_f0_hz);
         }
     }
     return out_;

@@ -412,3 +412,45 @@ TEST_CASE("a player assigned another voice than they sing: another note, and nea
     CHECK(static_cast<double>(named) / static_cast<double>(held) > 0.95);
     CHECK(static_cast<double>(others_sound) / static_cast<double>(held) > 0.95);
 }
+
+TEST_CASE("ensemble beats come from the audible-pair rule: own pairs within hearing, none above the 16th partial or 4 kHz") {
+    // Rates by |p f_a - q f_b| (Helmholtz, On the Sensations of Tone, ch. VIII);
+    // the limits (16th partial, 4 kHz) are those stated in pitch/beats.h (common practice).
+    for (const char* text : {"4:5:6:7", "8:15", "8:17", "2:3:19"}) {
+        CAPTURE(text);
+        const pitch::Chord chord = pitch::parse_chord(text);
+        std::vector<pitch::Player> players;
+        for (std::size_t v = 0; v < chord.size(); ++v) players.push_back({"p" + std::to_string(v), v, static_cast<int>(v)});
+        pitch::EnsembleConfig cfg;
+        cfg.root_hz = kRootHz;
+        pitch::EnsembleAnalyser an(chord, players, cfg);
+        std::vector<pitch::PitchFrame> frames(players.size());
+        pitch::EnsembleReading r;
+        for (int k = 0; k < 400; ++k) {
+            for (std::size_t v = 0; v < players.size(); ++v) {
+                frames[v].t_s = k * cfg.hop_s;
+                frames[v].f0_hz = kRootHz * std::exp2((chord.voice_cents(v) + (v == 0 ? 0.0 : 3.0)) / 1200.0);  // upper voices 3 c sharp
+                frames[v].confidence = 0.99;
+                frames[v].level_dbfs = -20.0;
+            }
+            r = an.process(frames, k * 240);
+        }
+        for (std::size_t a = 0; a < players.size(); ++a)
+            for (std::size_t b = a + 1; b < players.size(); ++b) {
+                CAPTURE(a);
+                CAPTURE(b);
+                const pitch::PairBeat& pb = r.pair(a, b);
+                if (pb.partial_a < 0) continue;
+                const double fa = kRootHz * std::exp2(chord.voice_cents(a) / 1200.0), fb = kRootHz * std::exp2(chord.voice_cents(b) / 1200.0);
+                CHECK(pb.partial_a <= 16);
+                CHECK(pb.partial_b <= 16);
+                CHECK(pb.partial_a * fa <= 4000.0);
+                // The two partials meet within 100 cents (the rule's limit) in the just chord.
+                CHECK(std::fabs(1200.0 * std::log2(pb.partial_a * fa / (pb.partial_b * fb))) <= 100.0);
+                if (std::isfinite(pb.beat_hz))
+                    CHECK(pb.beat_hz == doctest::Approx(std::fabs(pb.partial_a * r.p[a].centre_f0_hz - pb.partial_b * r.p[b].centre_f0_hz)).epsilon(1e-9));
+            }
+        if (std::string(text) == "8:15") CHECK(r.pair(0, 1).partial_a == 15);  // its own pair: 15 x 98 Hz = 1470 Hz, in hearing
+        if (std::string(text) == "8:17") CHECK(r.pair(0, 1).partial_a != 17);  // 17th partial: beyond the 16th
+    }
+}
