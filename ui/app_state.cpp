@@ -535,24 +535,29 @@ void AppState::step_target(int by) {
 
 int AppState::target_index_of(const pitch::Reading& r) const {
     if (r.target_index < 0) return -1;
+    if (drill_targets_) return r.target_index < static_cast<int>(drill_targets_->targets.size()) ? r.target_index : -1;
     if (settings_.choice == TargetChoice::fixed) return fixed_index_;
     return r.target_index < static_cast<int>(set_.targets.size()) ? r.target_index : -1;
 }
 
+// The set the readings are made against now: a running drill's, else the screen's.
+const pitch::TargetSet& AppState::reading_set() const { return drill_targets_ ? *drill_targets_ : set_; }
+
 std::string AppState::target_ratio_text(const pitch::Reading& r) const {
     const int i = target_index_of(r);
     if (i < 0) return {};
+    const pitch::TargetSet& set = reading_set();
     try {
-        return pitch::shift_octaves(set_.targets[static_cast<std::size_t>(i)].interval, r.target_octaves).str();
+        return pitch::shift_octaves(set.targets[static_cast<std::size_t>(i)].interval, r.target_octaves).str();
     } catch (const Error&) {
-        return set_.targets[static_cast<std::size_t>(i)].interval.str();
+        return set.targets[static_cast<std::size_t>(i)].interval.str();
     }
 }
 
 std::string AppState::target_name_text(const pitch::Reading& r) const {
     const int i = target_index_of(r);
     if (i < 0) return {};
-    const pitch::Target& t = set_.targets[static_cast<std::size_t>(i)];
+    const pitch::Target& t = reading_set().targets[static_cast<std::size_t>(i)];
     return pitch::target_name_in_octave(t, r.target_octaves, interval_names());
 }
 

@@ -185,6 +185,7 @@ private:
     void open_engine();
     void close_engine();
     pitch::TargetSet engine_targets() const;   // the set, or the fixed target alone
+    const pitch::TargetSet& reading_set() const;
     pitch::ReadingConfig reading_config() const;
     audio::DroneSettings drone_settings(double level_dbfs) const;
     void apply_readings();
