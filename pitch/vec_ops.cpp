@@ -2,7 +2,10 @@
 
 #include <cstring>
 
-#if defined(__x86_64__) && !defined(__clang__)
+// Function multiversioning resolves through ifuncs before any sanitizer
+// runtime starts; ThreadSanitizer's instrumented resolver crashes there, so
+// a TSan build takes the default code path only.
+#if defined(__x86_64__) && !defined(__clang__) && !defined(__SANITIZE_THREAD__)
 #define BEATLESS_CLONES __attribute__((target_clones("arch=x86-64-v3", "default")))
 #else
 #define BEATLESS_CLONES
