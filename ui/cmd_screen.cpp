@@ -49,6 +49,13 @@ struct Loaded {
     bool can_save = true;
 };
 
+// Reads a settings file into l, printing its one warning line if any.
+void read_settings_into(Loaded& l) {
+    LoadedSettings got = load_settings(l.file);
+    if (!got.warning.empty()) std::fprintf(stderr, "beatless: warning: %s\n", got.warning.c_str());
+    l.settings = std::move(got.settings);
+}
+
 Loaded load_user_settings() {
     Loaded l;
     try {
@@ -58,9 +65,7 @@ Loaded load_user_settings() {
         l.can_save = false;
         return l;
     }
-    LoadedSettings got = load_settings(l.file);
-    if (!got.warning.empty()) std::fprintf(stderr, "beatless: warning: %s\n", got.warning.c_str());
-    l.settings = std::move(got.settings);
+    read_settings_into(l);
     return l;
 }
 
@@ -252,9 +257,7 @@ void register_snapshot(CLI::App& app, Runner& run) {
                 l.file = o->settings_file;
                 std::error_code ec;
                 if (!std::filesystem::is_regular_file(l.file, ec)) throw Error(o->settings_file + ": no such settings file");
-                LoadedSettings got = load_settings(l.file);
-                if (!got.warning.empty()) std::fprintf(stderr, "beatless: warning: %s\n", got.warning.c_str());
-                l.settings = std::move(got.settings);
+                read_settings_into(l);
             }
             l.can_save = false;
             if (!o->first_run) l.settings.caution_acknowledged = true;
