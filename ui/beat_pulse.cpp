@@ -32,22 +32,23 @@ void BeatPulse::update(double beat_hz, double dt_s) noexcept {
     if (size_ < kHistory) ++size_;
 }
 
-double BeatPulse::phase_ago(double ago_s) const noexcept {
-    if (size_ == 0 || !(ago_s >= 0.0)) return NAN;
-    const double t = time_s_ - ago_s;
+double BeatPulse::phase_between(std::size_t k, double t) const noexcept {
+    const Sample& s = newest(k);
+    if (!s.on) return NAN;
+    if (k == 0) return s.phase;
+    const Sample& later = newest(k - 1);
+    if (!later.on || later.t_s <= s.t_s) return s.phase;
+    return s.phase + (t - s.t_s) / (later.t_s - s.t_s) * (later.phase - s.phase);
+}
+
+double BeatPulse::phase_ago(double ago_s) const noexcept { return Walker(*this).phase_ago(ago_s); }
+
+double BeatPulse::Walker::phase_ago(double ago_s) noexcept {
+    if (p_.size_ == 0 || !(ago_s >= 0.0)) return NAN;
+    const double t = p_.time_s_ - ago_s;
     // Newest first: the first sample at or before t, interpolated toward the next.
-    const Sample* later = nullptr;
-    for (std::size_t k = 0; k < size_; ++k) {
-        const Sample& s = hist_[(head_ + kHistory - 1 - k) % kHistory];
-        if (s.t_s <= t) {
-            if (!s.on) return NAN;
-            if (!later || !later->on || later->t_s <= s.t_s) return s.phase;
-            const double f = (t - s.t_s) / (later->t_s - s.t_s);
-            return s.phase + f * (later->phase - s.phase);
-        }
-        later = &s;
-    }
-    return NAN;
+    while (k_ < p_.size_ && p_.newest(k_).t_s > t) ++k_;
+    return k_ < p_.size_ ? p_.phase_between(k_, t) : NAN;
 }
 
 double BeatPulse::envelope_ago(double ago_s) const noexcept {

@@ -43,12 +43,25 @@ public:
     // The phase (in beats) ago_s before now; NaN where no beat was known.
     double phase_ago(double ago_s) const noexcept;
 
+    // Walks the history from now backwards: phase_ago for each of an
+    // increasing sequence of ago_s values in one pass (a view's columns).
+    class Walker {
+    public:
+        explicit Walker(const BeatPulse& p) : p_(p) {}
+        double phase_ago(double ago_s) noexcept;  // ago_s must not decrease between calls
+    private:
+        const BeatPulse& p_;
+        std::size_t k_ = 0;  // samples passed, newest first
+    };
+
 private:
     struct Sample {
         double t_s = 0.0;
         double phase = 0.0;
         bool on = false;
     };
+    const Sample& newest(std::size_t k) const noexcept { return hist_[(head_ + kHistory - 1 - k) % kHistory]; }
+    double phase_between(std::size_t k, double t) const noexcept;  // sample k (newest first) at or before t
     pitch::BeatBand band_ = pitch::BeatBand::none;
     double beat_hz_ = 0.0;
     double phase_ = 0.0;     // accumulated, unbounded (kept small by subtracting whole beats in step)

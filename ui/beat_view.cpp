@@ -19,8 +19,9 @@ void draw_beat_view(ImDrawList* dl, const BeatPulse& p, ImVec2 p0, ImVec2 p1, co
     }
     const double s_per_px = st.span_s / static_cast<double>(x1 - x0);
     double prev = NAN;
+    BeatPulse::Walker walk(p);  // columns right to left: one pass over the history
     for (float px = x1 - 1.0f; px >= x0; px -= 1.0f) {
-        const double ph = p.phase_ago(static_cast<double>(x1 - 1.0f - px) * s_per_px);
+        const double ph = walk.phase_ago(static_cast<double>(x1 - 1.0f - px) * s_per_px);
         if (!std::isfinite(ph)) {
             prev = NAN;
             continue;

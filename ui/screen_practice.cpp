@@ -452,7 +452,7 @@ void PracticeScreen::beat_cue(AppState& app, ImDrawList* dl, float x0, float y0,
     style.envelope = band == pitch::BeatBand::rough ? palette::with_alpha(palette::kPulse, 120) : palette::kPulse;
     style.tick = palette::kText;
     style.tick_h = std::round(0.5f * u);
-    if (v.known() || have) draw_beat_view(dl, p, ImVec2(vx0, vy0), ImVec2(vx1, vy1), style);
+    if (v.known()) draw_beat_view(dl, p, ImVec2(vx0, vy0), ImVec2(vx1, vy1), style);
     const float cy0 = vy1 + std::round(0.3f * u);
     draw_text(dl, FontFace::body, ImVec2(x, cy0), have ? palette::kText : palette::kTextDim, fit_text(FontFace::body, caption, w - 1.6f * u));
     if (!advice.empty())
