@@ -1,6 +1,6 @@
 #include "audio/demo_ensemble.h"
 
-#include "pitch/error.h"
+#include "pitch/base/error.h"
 
 #include <algorithm>
 #include <cmath>

@@ -1,6 +1,6 @@
 #include "audio/demo_performer.h"
 
-#include "pitch/error.h"
+#include "pitch/base/error.h"
 
 #include <algorithm>
 #include <cmath>

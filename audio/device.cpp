@@ -1,7 +1,7 @@
 #include "audio/device.h"
 
-#include "pitch/error.h"
-#include "pitch/text.h"
+#include "pitch/base/error.h"
+#include "pitch/base/text.h"
 
 #include <portaudio.h>
 

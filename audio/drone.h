@@ -14,7 +14,7 @@
 // render() picks up the newest at the start of each block.
 #pragma once
 
-#include "audio/snapshot.h"
+#include "audio/latest.h"
 #include "audio/synth.h"
 #include "audio/timbre.h"
 

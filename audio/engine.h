@@ -25,9 +25,9 @@
 #include "audio/live_io.h"
 #include "audio/ring.h"
 #include "audio/room.h"
-#include "audio/snapshot.h"
-#include "pitch/reading.h"
-#include "pitch/readings.h"
+#include "audio/latest.h"
+#include "pitch/measure/reading.h"
+#include "pitch/measure/reading_maker.h"
 
 #include <atomic>
 #include <cstdint>

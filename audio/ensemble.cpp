@@ -10,9 +10,9 @@
 #include "audio/ensemble.h"
 
 #include "audio/soundfile.h"
-#include "pitch/error.h"
-#include "pitch/text.h"
-#include "pitch/yin.h"
+#include "pitch/base/error.h"
+#include "pitch/base/text.h"
+#include "pitch/dsp/yin.h"
 
 #include <algorithm>
 #include <array>

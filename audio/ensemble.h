@@ -2,7 +2,7 @@
 //
 //   capture callback ──▶ one SpscRing per player ──▶ analysis thread: per player
 //   (device, demo, file)  (its channel, copied)        drone removal ─▶ YinTracker,
-//                                                      then pitch/ensemble.h ─▶
+//                                                      then pitch/measure/ensemble_analyzer.h ─▶
 //                                                      Latest / History / stream
 //   playback callback ◀── Drone (audio/drone.h), when an output is opened
 //
@@ -31,7 +31,7 @@
 #include "audio/drone_removal.h"
 #include "audio/live_io.h"
 #include "audio/room.h"
-#include "pitch/ensemble.h"
+#include "pitch/measure/ensemble_analyzer.h"
 
 #include <functional>
 #include <memory>

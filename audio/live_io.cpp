@@ -1,7 +1,7 @@
 // LiveIo implementation: devices and streams, the playback fan-out, counters.
 #include "audio/live_io.h"
 
-#include "pitch/error.h"
+#include "pitch/base/error.h"
 
 namespace beatless::audio {
 

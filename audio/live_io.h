@@ -21,8 +21,8 @@
 #include "audio/device.h"
 #include "audio/drone.h"
 #include "audio/ring.h"
-#include "audio/snapshot.h"
-#include "pitch/error.h"
+#include "audio/latest.h"
+#include "pitch/base/error.h"
 
 #include <algorithm>
 #include <atomic>

@@ -1,7 +1,7 @@
 #include "audio/soundfile.h"
 
-#include "pitch/error.h"
-#include "pitch/text.h"
+#include "pitch/base/error.h"
+#include "pitch/base/text.h"
 
 #include <sndfile.h>
 

@@ -1,7 +1,7 @@
 #include "audio/timbre.h"
 
 #include "audio/synth.h"
-#include "pitch/error.h"
+#include "pitch/base/error.h"
 
 #include <algorithm>
 #include <cmath>

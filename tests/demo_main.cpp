@@ -8,11 +8,11 @@
 // frames per second and the CPU split, and with --check compares the last
 // frame read back from OpenGL with the rasterizer's buffer (exit 1 if any
 // pixel differs); --resize changes the window to 900x600 a third of the way.
-#include "pitch/error.h"
+#include "pitch/base/error.h"
 #include "tests/demo_screen.h"
-#include "ui/imgui_host.h"
-#include "ui/png.h"
-#include "ui/window.h"
+#include "ui/render/imgui_host.h"
+#include "ui/render/png.h"
+#include "ui/render/window.h"
 
 #include <cstdio>
 #include <cstdlib>

@@ -8,7 +8,7 @@
 // Everything is a function of the time given, so frames are reproducible.
 #pragma once
 
-#include "ui/imgui_host.h"
+#include "ui/render/imgui_host.h"
 
 #include <vector>
 

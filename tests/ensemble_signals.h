@@ -7,12 +7,12 @@
 // so the mix is known sample by sample (tests/mix_signals.h). The truth for
 // the three references follows from the deviations alone: against the fixed
 // root dev_i, against the sounding bass dev_i - dev_bass, against the
-// least-squares root dev_i - mean(dev) (pitch/chord.h, equal weights).
+// least-squares root dev_i - mean(dev) (pitch/theory/chord.h, equal weights).
 #pragma once
 
 #include "audio/soundfile.h"
-#include "pitch/chord.h"
-#include "pitch/ensemble.h"
+#include "pitch/theory/chord.h"
+#include "pitch/measure/ensemble_analyzer.h"
 #include "tests/mix_signals.h"
 
 #include <cmath>

@@ -17,8 +17,8 @@
 #include "audio/engine.h"
 #include "audio/fake_device.h"
 #include "audio/room.h"
-#include "pitch/interval.h"
-#include "pitch/targets.h"
+#include "pitch/theory/interval.h"
+#include "pitch/theory/targets.h"
 #include "tests/mix_signals.h"
 
 #include <algorithm>

@@ -6,12 +6,12 @@
 // centre, so the centre is exactly the time average of the pitch in cents
 // over whole cycles. Noise is Gaussian from a seeded mt19937_64, so every
 // run produces the same samples. PitchFrame paths sample a known f0 path at
-// the tracker's hop, the way pitch/yin.h promises to report it (t = centre
+// the tracker's hop, the way pitch/dsp/yin.h promises to report it (t = centre
 // of the samples an estimate depends on, f0 = 0 when unvoiced).
 #pragma once
 
-#include "pitch/targets.h"
-#include "pitch/yin.h"
+#include "pitch/theory/targets.h"
+#include "pitch/dsp/yin.h"
 
 #include <unistd.h>
 

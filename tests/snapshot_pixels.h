@@ -7,9 +7,9 @@
 #pragma once
 
 #include "tests/cli.h"
-#include "ui/imgui_host.h"
-#include "ui/palette.h"
-#include "ui/raster.h"
+#include "ui/render/imgui_host.h"
+#include "ui/screens/palette.h"
+#include "ui/render/raster.h"
 
 #include <doctest/doctest.h>
 #include <stb_image.h>
@@ -28,7 +28,7 @@ namespace beatless::test {
 
 struct Image {
     int w = 0, h = 0;
-    std::vector<std::uint32_t> px;  // IM_COL32 packing, like ui/raster.h
+    std::vector<std::uint32_t> px;  // IM_COL32 packing, like ui/render/raster.h
     std::uint32_t at(int x, int y) const { return px[static_cast<std::size_t>(y) * static_cast<std::size_t>(w) + static_cast<std::size_t>(x)]; }
 };
 

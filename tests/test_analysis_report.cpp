@@ -1,13 +1,13 @@
 // The analysis report page: pixels where the layout says things are.
 //
-// Source: the page is specified in ui/analysis_report.h (white paper, bar
+// Source: the page is specified in ui/screens/take_report.h (white paper, bar
 // colours by |deviation|: within 5 cents, within 15, beyond; trace in
 // cents over time). The checks read the rendered pixels back at the places
 // report_layout() maps times and cents to, so a wrong mapping, a missing
 // layer or a wrong colour fails them.
-#include "pitch/decimated_trace.h"
-#include "ui/analysis_report.h"
-#include "ui/png.h"
+#include "pitch/measure/decimated_trace.h"
+#include "ui/screens/take_report.h"
+#include "ui/render/png.h"
 #include "tests/cli.h"
 
 #include <doctest/doctest.h>
@@ -112,7 +112,7 @@ TEST_CASE("the trace: a line where the frames were, gaps left empty, hours of fr
     dl.marks.clear();
     render_report(dl, page);
     const ReportLayout ll = report_layout(dl);
-    // The band is drawn lighter than a line (ui/analysis_report.cpp kTraceDense, blue over red).
+    // The band is drawn lighter than a line (ui/screens/take_report.cpp kTraceDense, blue over red).
     int band = 0;
     for (int y = static_cast<int>(ll.y_of(1800.0)); y < static_cast<int>(ll.y_of(1760.0)); ++y) {
         const std::uint32_t p = page.at(static_cast<int>(ll.x_of(3500.0)), y);

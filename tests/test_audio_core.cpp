@@ -7,7 +7,7 @@
 #include "audio/soundfile.h"
 #include "audio/synth.h"
 #include "audio/timbre.h"
-#include "pitch/error.h"
+#include "pitch/base/error.h"
 #include "tests/cli.h"
 
 #include <doctest/doctest.h>

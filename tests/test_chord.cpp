@@ -8,11 +8,11 @@
 // ch. VIII. 12-TET frequencies: ISO 16 (A4 = 440 Hz), MIDI 69 = A4. The
 // least-squares root is checked against numpy and scipy
 // (tests/reference/lsq_root.py, run with /usr/bin/python3).
-#include "pitch/beats.h"
-#include "pitch/chord.h"
-#include "pitch/error.h"
-#include "pitch/notes.h"
-#include "pitch/spelling.h"
+#include "pitch/theory/beats.h"
+#include "pitch/theory/chord.h"
+#include "pitch/base/error.h"
+#include "pitch/theory/notes.h"
+#include "pitch/theory/spelling.h"
 
 #include <doctest/doctest.h>
 

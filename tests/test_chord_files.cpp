@@ -3,9 +3,9 @@
 // The built-in chords are checked against their published or hand-worked
 // terms and cents (Ellis's table of intervals, 1885, from memory, for the
 // cents; the terms are the definitions of the chords, common practice).
-#include "pitch/error.h"
-#include "ui/chord_files.h"
-#include "ui/target_files.h"
+#include "pitch/base/error.h"
+#include "ui/session/chord_files.h"
+#include "ui/session/target_files.h"
 
 #include <doctest/doctest.h>
 

@@ -8,12 +8,12 @@
 // within 0.2 cent; for two voices the interval deviation within 1 cent and
 // the measured beat within 10 % (or 0.2 Hz) of the predicted one. Beat of
 // the coinciding pair of p/q mistuned by d cents: p * f_low * |2^(d/1200) - 1|
-// (Helmholtz, On the Sensations of Tone, ch. VIII; pitch/beats.h
+// (Helmholtz, On the Sensations of Tone, ch. VIII; pitch/theory/beats.h
 // beat_rate_at). Cents by Ellis (1885). PNG layout: the IHDR chunk follows
 // the 8-byte signature, width and height big-endian at bytes 16-23 (PNG
 // specification, W3C / ISO/IEC 15948, section 11.2.2).
 #include "audio/soundfile.h"
-#include "pitch/beats.h"
+#include "pitch/theory/beats.h"
 #include "tests/cli.h"
 #include "tests/mix_signals.h"
 

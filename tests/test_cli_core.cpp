@@ -190,7 +190,7 @@ TEST_CASE("tone with several ratios sings one note each, and analyze finds them"
 TEST_CASE("ratio names only partials a drone sounds below the stated 4 kHz limit; commas beat at the fundamentals' difference") {
     // 729/512 over D3: its own pair (729th of the root, 107 kHz) is far above
     // hearing; the pair named must lie at or below 4 kHz (the limit stated in
-    // pitch/beats.h, common practice) and its rate be |q f_upper - p f_root|
+    // pitch/theory/beats.h, common practice) and its rate be |q f_upper - p f_root|
     // (Helmholtz, Sensations of Tone, ch. VIII), computed here.
     const double d3 = 440.0 * std::exp2(-19.0 / 12.0);
     for (const char* root : {"D3", "A4", "C6"}) {

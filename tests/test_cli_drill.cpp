@@ -9,8 +9,8 @@
 // demo script) and her tone reaches the tracker within a frame span (30 ms),
 // so the time to lock is 0.3 s (0.30 to 0.35 s), the mean is -3 c (to 0.3 c)
 // and every voiced moment is within the drill's ±6 c: "locked in 0.3 s,
-// held 3 cents flat, 100 % within ±6 c" (worked from ui/drill_runner.h and
-// pitch/drill_score.h, not from the program's output).
+// held 3 cents flat, 100 % within ±6 c" (worked from ui/session/drill_runner.h and
+// ui/session/drill_score.h, not from the program's output).
 #include "tests/cli.h"
 
 #include <doctest/doctest.h>

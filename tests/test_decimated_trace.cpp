@@ -1,12 +1,12 @@
 // DecimatedTrace against a direct computation of the same bucket statistics.
 //
 // Source: the bucket mean, minimum and maximum are defined in
-// pitch/decimated_trace.h; the test recomputes them straight from the
+// pitch/measure/decimated_trace.h; the test recomputes them straight from the
 // frames (no merging) for the bucket length the trace ends with, so every
 // merge must preserve them exactly (up to rounding). Memory stays at
 // max_points whatever the length (common practice for long-file plots).
-#include "pitch/decimated_trace.h"
-#include "pitch/error.h"
+#include "pitch/measure/decimated_trace.h"
+#include "pitch/base/error.h"
 #include "tests/mix_signals.h"
 
 #include <doctest/doctest.h>

@@ -5,8 +5,8 @@
 #include "audio/device.h"
 #include "audio/engine.h"
 #include "audio/fake_device.h"
-#include "pitch/error.h"
-#include "pitch/interval.h"
+#include "pitch/base/error.h"
+#include "pitch/theory/interval.h"
 #include "tests/mix_signals.h"
 
 #include <doctest/doctest.h>

@@ -8,8 +8,8 @@
 // Zarlino's (Le istitutioni harmoniche, 1558; from memory); the natural
 // minor 1/1 9/8 6/5 4/3 3/2 8/5 9/5 is common practice. The progressions'
 // drifts are also worked by hand in the comments.
-#include "pitch/error.h"
-#include "pitch/progression.h"
+#include "pitch/base/error.h"
+#include "pitch/theory/progression.h"
 
 #include <doctest/doctest.h>
 

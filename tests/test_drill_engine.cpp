@@ -13,7 +13,7 @@
 //   0.4 <= tau < 1.0    a glide from -20 c to -3 c, linear in cents
 //   1.0 <= tau < 4.3    -3 + 4 sin(2 pi 2 Hz (tau - 1.0)) c: 6 whole cycles
 //                       inside the window, then 0.3 s more beyond it
-// Hand-worked against pitch/drill_score.h (cents, seconds):
+// Hand-worked against ui/session/drill_score.h (cents, seconds):
 //   entering the band: -20 + 17 (tau - 0.4) / 0.6 = -8  =>  tau = 0.4 + 0.6 * 12/17 = 0.82353;
 //   the wobble stays in [-7, +1], inside ±8, to the end: time_to_lock = 0.8235 s.
 //   held: tau in [0.8235, 4.0): the rest of the glide G (0.17647 s, -8 to -3)
@@ -30,9 +30,9 @@
 #include "audio/drone.h"
 #include "tests/live_rig.h"
 #include "tests/cli.h"
-#include "ui/drill_runner.h"
-#include "ui/log_writer.h"
-#include "ui/practice_log.h"
+#include "ui/session/drill_runner.h"
+#include "ui/session/log_writer.h"
+#include "ui/session/practice_log.h"
 
 #include <doctest/doctest.h>
 
@@ -104,7 +104,7 @@ TEST_CASE("a scripted attempt through the engine: the logged lock time, mean and
     LogWriter writer(db);
     const Drill d = parse_drill(kDrill, "one-tritone.toml");
     RunnerConfig rc;
-    rc.deviation = pitch::DeviationSource::instant;  // the hand-worked path is the sung pitch itself (its 2 Hz wobble is no vibrato)
+    rc.deviation = ui::DeviationSource::instant;  // the hand-worked path is the sung pitch itself (its 2 Hz wobble is no vibrato)
     rc.settle_s = 1.5;
     rc.announce_s = 1.5;
     DrillRunner runner(d, rc, &writer);
@@ -138,7 +138,7 @@ TEST_CASE("a scripted attempt through the engine: the logged lock time, mean and
     }
     REQUIRE(runner.done());
     REQUIRE(runner.results().size() == 1);
-    const pitch::HoldScore& s = runner.results()[0].score;
+    const ui::HoldScore& s = runner.results()[0].score;
     MESSAGE("lock " << s.time_to_lock_s << " s, mean " << s.mean_dev_cents << " c, spread " << s.spread_cents << " c, in band "
                     << s.in_tolerance_share << ", voiced " << s.voiced_share);
     CHECK(s.locked);

@@ -4,11 +4,11 @@
 // septimal and undecimal intervals are definitions (common practice); the
 // 5-limit tritone 45/32 = 9/8 * 10/9 * 9/8 and the Pythagorean 729/512 =
 // (9/8)^3 differ by the syntonic comma 81/80 (published interval tables).
-#include "pitch/error.h"
-#include "pitch/ratio.h"
-#include "ui/drill_files.h"
-#include "ui/practice_log.h"
-#include "ui/target_files.h"
+#include "pitch/base/error.h"
+#include "pitch/theory/ratio.h"
+#include "ui/session/drill_files.h"
+#include "ui/session/practice_log.h"
+#include "ui/session/target_files.h"
 
 #include <doctest/doctest.h>
 
@@ -114,7 +114,7 @@ TEST_CASE("the ear drill offers the close tritone neighbours") {
     const Drill d = load_drill("ear-tritones");
     CHECK(d.mode == DrillMode::ear);
     CHECK(d.targets_text() == "11/8 7/5 45/32 600c 10/7");
-    CHECK(d.question == pitch::EarMode::one_interval);
+    CHECK(d.question == ui::EarMode::one_interval);
     CHECK(d.staircase.n_down == 2);
     CHECK(d.staircase.threshold_reversals % 2 == 0);
 }
@@ -209,6 +209,6 @@ TEST_CASE("malformed ear drills") {
     CHECK(error_of(head + "[staircase]\nsteps = [2.0, \"x\"]\n" + targets) == "bad.toml:5: `steps`: must hold numbers only, not a string");
     CHECK(error_of(head + "[staircase]\nsteps = [0.5]\n" + targets).find("steps 0.5 must be a factor above 1") != std::string::npos);
     const Drill ok = parse_drill(head + "question = \"two\"\n[staircase]\nrule = \"3-down\"\n" + targets, "ok.toml");
-    CHECK(ok.question == pitch::EarMode::two_intervals);
+    CHECK(ok.question == ui::EarMode::two_intervals);
     CHECK(ok.staircase.n_down == 3);
 }

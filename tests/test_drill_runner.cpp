@@ -3,19 +3,19 @@
 // practice log full or read-only (the drill goes on, attempts are kept and
 // saved later), ear sessions driven by a simulated listener, and the words.
 //
-// Sources: the schedule is the one ui/drill_runner.h documents, the phase
+// Sources: the schedule is the one ui/session/drill_runner.h documents, the phase
 // lengths come from the drill file written here; the hold scores are worked
-// by hand from the definitions in pitch/drill_score.h (arithmetic beside
+// by hand from the definitions in ui/session/drill_score.h (arithmetic beside
 // each check); the ear threshold is checked against the point a 2-down/1-up
 // staircase converges to, p = 0.7071 (H. Levitt, "Transformed up-down methods
 // in psychoacoustics", JASA 49(2B), 1971, Table I), with a simulated listener
 // whose psychometric function puts that point at a known difference.
-#include "pitch/error.h"
-#include "pitch/listener_model.h"
+#include "pitch/base/error.h"
+#include "ui/session/listener_model.h"
 #include "tests/cli.h"
-#include "ui/drill_runner.h"
-#include "ui/log_writer.h"
-#include "ui/practice_log.h"
+#include "ui/session/drill_runner.h"
+#include "ui/session/log_writer.h"
+#include "ui/session/practice_log.h"
 
 #include <doctest/doctest.h>
 #include <sqlite3.h>
@@ -409,10 +409,10 @@ TEST_CASE("ear session with a simulated listener: the threshold lands near the l
         double log_sum = 0.0;
         const int runs = 24;
         for (int seed = 1; seed <= runs; ++seed) {
-            pitch::ListenerConfig lc;
+            ui::ListenerConfig lc;
             lc.threshold_cents = truth;
             lc.seed = static_cast<std::uint64_t>(seed) * 7919u;
-            pitch::SimulatedListener listener(lc);
+            ui::SimulatedListener listener(lc);
             RunnerConfig c = fake_config();
             c.seed = static_cast<std::uint64_t>(seed);
             DrillRunner r(d, c, nullptr);
@@ -445,9 +445,9 @@ TEST_CASE("ear session with a simulated listener: the threshold lands near the l
 }
 
 TEST_CASE("the simulated listener: chance at 0, threshold_p at the threshold, rising") {
-    pitch::ListenerConfig lc;
+    ui::ListenerConfig lc;
     lc.threshold_cents = 12.0;
-    pitch::SimulatedListener l(lc);
+    ui::SimulatedListener l(lc);
     CHECK(l.p_correct(0.0) == doctest::Approx(0.5));
     CHECK(l.p_correct(12.0) == doctest::Approx(0.7071).epsilon(1e-6));
     CHECK(l.p_correct(6.0) < l.p_correct(12.0));
@@ -457,11 +457,11 @@ TEST_CASE("the simulated listener: chance at 0, threshold_p at the threshold, ri
     for (int i = 0; i < 20000; ++i) right += l.answers_right(12.0) ? 1 : 0;
     CHECK(right / 20000.0 == doctest::Approx(0.7071).epsilon(0.02));
     lc.threshold_cents = 0.0;
-    CHECK_THROWS_AS(pitch::SimulatedListener{lc}, Error);
+    CHECK_THROWS_AS(ui::SimulatedListener{lc}, Error);
 }
 
 TEST_CASE("the results in words a performer reads at a glance") {
-    pitch::HoldScore s;
+    ui::HoldScore s;
     s.locked = true;
     s.time_to_lock_s = 0.84;
     s.mean_dev_cents = -3.2;
@@ -478,7 +478,7 @@ TEST_CASE("the results in words a performer reads at a glance") {
     s.in_tolerance_share = 0.2;
     CHECK(hold_summary_text(s, 5.0) == "no lock, 12 cents sharp on average, 20 % within \xC2\xB1" "5 c");
     CHECK(hold_spread_text(s) == "spread 4 c over the hold");
-    CHECK(hold_summary_text(pitch::HoldScore{}, 5.0) == "no voice heard");
+    CHECK(hold_summary_text(ui::HoldScore{}, 5.0) == "no voice heard");
     EarResult e;
     e.threshold_cents = 14.23;
     e.trials = 48;
@@ -516,7 +516,7 @@ TEST_CASE("a singer's vibrato: the hold is scored on the vibrato centre where it
     CHECK(s.spread_cents == doctest::Approx(0.0).scale(1.0));
     CHECK(s.in_tolerance_share == doctest::Approx(1.0));
     // The instantaneous pitch alone would not have held the band.
-    cfg.deviation = pitch::DeviationSource::instant;
+    cfg.deviation = ui::DeviationSource::instant;
     DrillRunner q(d, cfg, &writer);
     q.start(0.0);
     for (long k = 0; k < 605; ++k) {

@@ -1,11 +1,11 @@
 // Hold scoring: time to lock, mean and spread while held, share in tolerance.
 //
 // Sources: every expected value is worked by hand from the definitions in
-// pitch/drill_score.h (the arithmetic is written out beside each check) and
+// ui/session/drill_score.h (the arithmetic is written out beside each check) and
 // re-computed with numpy (/usr/bin/python3: numpy.mean, numpy.std with
 // ddof=0, numpy.argmax over the in-band mask) as an independent check.
-#include "pitch/drill_score.h"
-#include "pitch/error.h"
+#include "ui/session/drill_score.h"
+#include "pitch/base/error.h"
 
 #include <doctest/doctest.h>
 
@@ -13,6 +13,7 @@
 #include <vector>
 
 using namespace beatless::pitch;
+using namespace beatless::ui;
 
 namespace {
 

@@ -10,10 +10,10 @@
 #include "audio/drone_removal.h"
 #include "audio/ring.h"
 #include "audio/room.h"
-#include "audio/snapshot.h"
+#include "audio/latest.h"
 #include "audio/timbre.h"
-#include "pitch/error.h"
-#include "pitch/reading.h"
+#include "pitch/base/error.h"
+#include "pitch/measure/reading.h"
 
 #include <doctest/doctest.h>
 

@@ -7,9 +7,9 @@
 // signal to a periodic signal of the same period (textbook: a sum of
 // harmonics stays a sum of the same harmonics, each scaled), so a tracker
 // finds the same f0 after it. The YIN tracker is pitch/yin.h.
-#include "pitch/drone_comb.h"
-#include "pitch/error.h"
-#include "pitch/yin.h"
+#include "pitch/dsp/drone_comb.h"
+#include "pitch/base/error.h"
+#include "pitch/dsp/yin.h"
 #include "tests/mix_signals.h"
 
 #include <doctest/doctest.h>

@@ -1,15 +1,15 @@
 // DyadSegmenter on two-voice frames with exactly known content: frames made
 // by hand (cuts, gaps, beats) and frames of the real two-voice tracker
-// (pitch/two_voice.h) on mixtures of two harmonic tones.
+// (pitch/measure/two_voice.h) on mixtures of two harmonic tones.
 //
 // Sources: the bars (interval deviation within 1 cent; measured beat rate
 // within 10 % or 0.2 Hz of the predicted |q f_high - p f_low|) are the review
 // issue's; the beat of the coinciding pair of p/q mistuned by d cents is
 // p * f_low * |2^(d/1200) - 1| (Helmholtz, On the Sensations of Tone, ch.
-// VIII; pitch/beats.h beat_rate_at); cents by Ellis (1885).
-#include "pitch/beats.h"
-#include "pitch/dyad_segment.h"
-#include "pitch/error.h"
+// VIII; pitch/theory/beats.h beat_rate_at); cents by Ellis (1885).
+#include "pitch/theory/beats.h"
+#include "pitch/measure/dyad_segment.h"
+#include "pitch/base/error.h"
 #include "tests/mix_signals.h"
 
 #include <doctest/doctest.h>

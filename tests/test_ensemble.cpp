@@ -4,7 +4,7 @@
 // Four voices of 4:5:6:7 (the harmonic seventh chord, voices = harmonics 4
 // to 7 of one fundamental: Helmholtz 1863, ch. X; common practice), each off
 // by a known amount, with vibrato and crosstalk. The truth of each reference
-// follows from pitch/chord.h's definitions (see tests/ensemble_signals.h);
+// follows from pitch/theory/chord.h's definitions (see tests/ensemble_signals.h);
 // the best-fit root is also checked against numpy's least squares
 // (tests/reference/lsq_root.py, numpy.linalg.lstsq and scipy's
 // minimize_scalar). Bad inputs: a device with fewer channels than players,
@@ -12,7 +12,7 @@
 #include "audio/ensemble.h"
 #include "audio/fake_device.h"
 #include "audio/soundfile.h"
-#include "pitch/error.h"
+#include "pitch/base/error.h"
 #include "tests/cli.h"
 #include "tests/ensemble_signals.h"
 
@@ -415,7 +415,7 @@ TEST_CASE("a player assigned another voice than they sing: another note, and nea
 
 TEST_CASE("ensemble beats come from the audible-pair rule: own pairs within hearing, none above the 16th partial or 4 kHz") {
     // Rates by |p f_a - q f_b| (Helmholtz, On the Sensations of Tone, ch. VIII);
-    // the limits (16th partial, 4 kHz) are those stated in pitch/beats.h (common practice).
+    // the limits (16th partial, 4 kHz) are those stated in pitch/theory/beats.h (common practice).
     for (const char* text : {"4:5:6:7", "8:15", "8:17", "2:3:19"}) {
         CAPTURE(text);
         const pitch::Chord chord = pitch::parse_chord(text);

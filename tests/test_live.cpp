@@ -6,7 +6,7 @@
 // beat rates of the coinciding partials are |q f_high - p f_low| for the
 // target p/q (Helmholtz 1863, ch. VIII), computed here from the known voice.
 #include "audio/engine.h"
-#include "pitch/interval.h"
+#include "pitch/theory/interval.h"
 #include "tests/live_rig.h"
 #include "tests/mix_signals.h"
 

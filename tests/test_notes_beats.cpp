@@ -5,12 +5,12 @@
 // notation (C4 = middle C = MIDI 60, Acoustical Society of America); beat
 // rate of coinciding partials |q*f_high - p*f_low| (Helmholtz, On the
 // Sensations of Tone, ch. VIII).
-#include "pitch/beats.h"
-#include "pitch/error.h"
-#include "pitch/interval.h"
-#include "pitch/notes.h"
-#include "pitch/readings.h"
-#include "pitch/targets.h"
+#include "pitch/theory/beats.h"
+#include "pitch/base/error.h"
+#include "pitch/theory/interval.h"
+#include "pitch/theory/notes.h"
+#include "pitch/measure/reading_maker.h"
+#include "pitch/theory/targets.h"
 
 #include <doctest/doctest.h>
 

@@ -16,13 +16,13 @@
 //   5. Full, read-only and missing disks
 //   6. CSV export and import
 //   7. The history command
-#include "pitch/error.h"
-#include "pitch/rng.h"
-#include "ui/history.h"
-#include "ui/log_csv.h"
-#include "ui/log_writer.h"
-#include "ui/paths.h"
-#include "ui/practice_log.h"
+#include "pitch/base/error.h"
+#include "ui/session/rng.h"
+#include "ui/session/log_summary.h"
+#include "ui/session/log_csv.h"
+#include "ui/session/log_writer.h"
+#include "ui/session/paths.h"
+#include "ui/session/practice_log.h"
 
 #include <doctest/doctest.h>
 #include <sqlite3.h>
@@ -71,7 +71,7 @@ std::string read_file(const fs::path& p) {
 void write_file(const fs::path& p, const std::string& text) { std::ofstream(p, std::ios::binary) << text; }
 
 // A random but valid attempt; the trace has `records` readings at a 5 ms hop.
-Attempt random_attempt(pitch::Rng& rng, int index, std::size_t records) {
+Attempt random_attempt(ui::Rng& rng, int index, std::size_t records) {
     static const char* kTargets[] = {"7/5", "10/7", "11/8", "45/32", "600c", "3/2"};
     Attempt a;
     a.uid = new_uid();
@@ -205,7 +205,7 @@ TEST_CASE("a new log: WAL, the current schema version, our application id") {
 
 TEST_CASE("many attempts written and read back identical, in time order") {
     TempDir t("roundtrip");
-    pitch::Rng rng(2024);
+    ui::Rng rng(2024);
     std::vector<Attempt> written;
     {
         PracticeLog log(t.path / "p.sqlite3");
@@ -342,7 +342,7 @@ TEST_CASE("SIGKILL in the middle of writes: the file passes integrity_check and 
             close(fds[0]);
             try {
                 PracticeLog log(db);
-                pitch::Rng rng(static_cast<std::uint64_t>(round) * 1000 + 7);
+                ui::Rng rng(static_cast<std::uint64_t>(round) * 1000 + 7);
                 for (int i = 0;; ++i) {
                     Attempt a = random_attempt(rng, i, 6000);  // 30 s at a 5 ms hop
                     log.add(a);
@@ -398,7 +398,7 @@ TEST_CASE("a full disk: the attempt stays in memory with a one-line warning, and
     LogOptions o;
     o.max_page_count = 12;     // 48 KB at 4 KB pages: no room for a 96 KB trace
     LogWriter w(db, o);
-    pitch::Rng rng(5);
+    ui::Rng rng(5);
     Attempt a1 = random_attempt(rng, 1, 6000), a2 = random_attempt(rng, 2, 6000);
     a1.started_at.clear();  // the writer stamps it at save time, not at the retry
     const SaveResult r1 = w.save(a1);
@@ -455,7 +455,7 @@ TEST_CASE("a read-only log: warned, kept, and recoverable through the pending CS
         }
     }
     LogWriter w(db, o);
-    pitch::Rng rng(9);
+    ui::Rng rng(9);
     const Attempt a = random_attempt(rng, 4, 200);
     const SaveResult r = w.save(a);
     CHECK(r.pending == 1);
@@ -473,7 +473,7 @@ TEST_CASE("a folder that cannot be created: kept in memory until it can") {
     write_file(t.path / "blocker", "a file where the data folder should be");
     const fs::path db = t.path / "blocker" / "data" / "practice.sqlite3";
     LogWriter w(db);
-    pitch::Rng rng(3);
+    ui::Rng rng(3);
     const Attempt a1 = random_attempt(rng, 1, 50);
     const SaveResult r1 = w.save(a1);
     CHECK(r1.pending == 1);
@@ -505,7 +505,7 @@ TEST_CASE("base64 matches RFC 4648's test vectors") {
 
 TEST_CASE("CSV round trip: export, import into an empty log, export again gives the same bytes") {
     TempDir t("csv");
-    pitch::Rng rng(77);
+    ui::Rng rng(77);
     PracticeLog a(t.path / "a.sqlite3");
     for (int i = 0; i < 120; ++i) {
         Attempt x = random_attempt(rng, i, static_cast<std::size_t>(i % 4 == 0 ? 0 : 20));
@@ -534,7 +534,7 @@ TEST_CASE("CSV round trip: export, import into an empty log, export again gives 
 
 TEST_CASE("bad CSV rows are refused with file:line and nothing is imported") {
     TempDir t("csvbad");
-    pitch::Rng rng(8);
+    ui::Rng rng(8);
     std::vector<Attempt> v;
     for (int i = 0; i < 4; ++i) v.push_back(random_attempt(rng, i + 1, 3));
     v[0].target_name = "two\nlines";  // a quoted line break: the next row starts one line later
@@ -765,7 +765,7 @@ TEST_CASE("beatless history --export / --import round-trips through the program"
     TempDir student("student"), teacher("teacher");
     {
         PracticeLog log(student.path / "data" / "practice.sqlite3");
-        pitch::Rng rng(31);
+        ui::Rng rng(31);
         for (int i = 0; i < 30; ++i) {
             Attempt a = random_attempt(rng, i, 40);
             log.add(a);

@@ -27,11 +27,11 @@
 //   texture: nearest filtering takes the texel containing the sample point,
 //     floor(u * width) (OpenGL 2.1 spec, section 3.8.8, GL_NEAREST).
 //   PNG: read back with stb_image (libstb-dev), an independent decoder.
-#include "pitch/error.h"
+#include "pitch/base/error.h"
 #include "tests/demo_screen.h"
-#include "ui/imgui_host.h"
-#include "ui/png.h"
-#include "ui/raster.h"
+#include "ui/render/imgui_host.h"
+#include "ui/render/png.h"
+#include "ui/render/raster.h"
 
 #include <doctest/doctest.h>
 #include <stb_image.h>

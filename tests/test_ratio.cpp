@@ -6,10 +6,10 @@
 // three decimals (from memory; tests/reference/check_ratio.py recomputes them
 // with numpy as an independent check). Facts marked "common practice" are
 // standard in just-intonation teaching with no single published source.
-#include "pitch/error.h"
-#include "pitch/interval.h"
-#include "pitch/ratio.h"
-#include "pitch/targets.h"
+#include "pitch/base/error.h"
+#include "pitch/theory/interval.h"
+#include "pitch/theory/ratio.h"
+#include "pitch/theory/targets.h"
 
 #include <doctest/doctest.h>
 

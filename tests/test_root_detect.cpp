@@ -6,8 +6,8 @@
 // and Debian's numpy/scipy): an independent estimate of the drone's
 // fundamental from the same samples. Cents by Ellis's definition,
 // 1200 log2(f1/f0) (A. J. Ellis, J. Society of Arts 33, 1885).
-#include "pitch/error.h"
-#include "pitch/root_detect.h"
+#include "pitch/base/error.h"
+#include "pitch/dsp/root_detect.h"
 #include "tests/mix_signals.h"
 
 #include <doctest/doctest.h>

@@ -5,11 +5,11 @@
 // formula f = 440 x 2^((m - 69)/12) (MIDI 69 = A4, ISO 16), settings saved
 // after a change, and the keys of the help overlay driving the same state.
 #include "tests/cli.h"
-#include "ui/app_state.h"
-#include "ui/beat_pulse.h"
-#include "ui/imgui_host.h"
-#include "ui/screen.h"
-#include "ui/settings.h"
+#include "ui/session/app_state.h"
+#include "ui/session/beat_pulse.h"
+#include "ui/render/imgui_host.h"
+#include "ui/screens/screen.h"
+#include "ui/session/settings.h"
 
 #define GLFW_INCLUDE_NONE
 #include <GLFW/glfw3.h>

@@ -1,6 +1,6 @@
 // NoteSegmenter and NoteSummary on tracker frames with exactly known content.
 //
-// The real tracker (pitch/yin.h) is not in this branch, so frames are made
+// The real tracker (pitch/dsp/yin.h) is not in this branch, so frames are made
 // from known f0 paths (tests/mix_signals.h frames_of): a frame every 5 ms,
 // t at the estimate's centre, f0 from the note's path plus Gaussian jitter,
 // f0 = 0 between notes or the drone's own frequency where the tracker would
@@ -8,11 +8,11 @@
 // cent, the right target) is the review issue's; beat rates of the
 // coinciding pair, p * f_root * |2^(d/1200) - 1| for a target p/q mistuned
 // by d cents (Helmholtz, On the Sensations of Tone, ch. VIII; checked with
-// pitch/beats.h beat_rate_at, an independent closed form); cents by Ellis
+// pitch/theory/beats.h beat_rate_at, an independent closed form); cents by Ellis
 // (1885).
-#include "pitch/beats.h"
-#include "pitch/error.h"
-#include "pitch/segment.h"
+#include "pitch/theory/beats.h"
+#include "pitch/base/error.h"
+#include "pitch/measure/segment.h"
 #include "tests/mix_signals.h"
 
 #include <doctest/doctest.h>

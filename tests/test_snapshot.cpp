@@ -17,9 +17,9 @@
 // malformed settings file (one warning naming file and line, still renders).
 #include "tests/cli.h"
 #include "tests/snapshot_pixels.h"
-#include "ui/imgui_host.h"
-#include "ui/palette.h"
-#include "ui/raster.h"
+#include "ui/render/imgui_host.h"
+#include "ui/screens/palette.h"
+#include "ui/render/raster.h"
 
 #include <doctest/doctest.h>
 #include <stb_image.h>
@@ -277,7 +277,7 @@ TEST_CASE("beatless with no display says so in one line, points to snapshot and 
 // The demo performer holds every target 3 cents flat (no vibrato) in the
 // drill "7/5 against 10/7" (±6 c, 5 s holds). Its first hold runs from 5.0 s
 // (1.5 s of drone alone, a 1.5 s announcement, a 2 s count-in: the schedule
-// of ui/drill_runner.h) to 10.0 s; she starts 0.3 s in, so the result the
+// of ui/session/drill_runner.h) to 10.0 s; she starts 0.3 s in, so the result the
 // screen must show at 10.8 s, worked from the score's definitions, reads
 // "locked in 0.3 s, held 3 cents flat, 100 % within ±6 c".
 

@@ -8,19 +8,19 @@
 //     the lane's last column) must stand where cents -> pixels puts the
 //     expected deviation under the chosen reference: against the drone the
 //     held amounts, against the best-fit root the amounts minus their mean
-//     (the least-squares root of pitch/chord.h, equal weights);
+//     (the least-squares root of pitch/theory/chord.h, equal weights);
 //   - the deviation and the state's word ("sharp", "flat", "in tune") are
 //     rendered offscreen with the same font and colour (Okabe & Ito 2008
 //     orange, sky blue, bluish green) and found pixel for pixel in that
 //     player's strip: the state is told by word and shape, not only colour.
 #include "tests/cli.h"
 #include "tests/snapshot_pixels.h"
-#include "pitch/text.h"
-#include "ui/app_state.h"
-#include "ui/ensemble_session.h"
-#include "ui/screen.h"
-#include "ui/screen_ensemble.h"
-#include "ui/settings.h"
+#include "pitch/base/text.h"
+#include "ui/session/app_state.h"
+#include "ui/session/ensemble_session.h"
+#include "ui/screens/screen.h"
+#include "ui/screens/screen_ensemble.h"
+#include "ui/session/settings.h"
 #include "audio/demo_ensemble.h"
 
 #include <doctest/doctest.h>
@@ -294,7 +294,7 @@ struct ScreenRig {
                 app.update(dt);
                 const ImVec2 disp = ImGui::GetIO().DisplaySize;
                 const float u = ui::ui_unit();
-                const float top = std::round(2.3f * u), status_h = std::round(1.9f * u);  // as ui/screens.cpp lays out the deck
+                const float top = std::round(2.3f * u), status_h = std::round(1.9f * u);  // as ui/screens/screen.cpp lays out the deck
                 screen->build(app, ui::ScreenArea{ImVec2(0, top), ImVec2(disp.x, disp.y - top - status_h)}, dt);
             });
             t_s += dt;

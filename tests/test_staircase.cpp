@@ -18,10 +18,10 @@
 // the reversal levels sit on a grid of that step, so we allow a further
 // quarter of the final step (in log units) for bias. The check is
 // |mean ln(estimate) - ln d_p| < 3 SE + 0.25 ln(final step).
-#include "pitch/ear_question.h"
-#include "pitch/error.h"
-#include "pitch/rng.h"
-#include "pitch/staircase.h"
+#include "ui/session/ear_question.h"
+#include "pitch/base/error.h"
+#include "ui/session/rng.h"
+#include "ui/session/staircase.h"
 
 #include <doctest/doctest.h>
 
@@ -30,7 +30,7 @@
 #include <set>
 #include <vector>
 
-using namespace beatless::pitch;
+using namespace beatless::ui;
 
 namespace {
 

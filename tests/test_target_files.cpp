@@ -1,9 +1,9 @@
 // The TOML files in targets/: every built-in file loads, and malformed files
 // give messages with file and line.
-#include "pitch/error.h"
-#include "ui/settings.h"
-#include "ui/target_files.h"
-#include "ui/toml_util.h"
+#include "pitch/base/error.h"
+#include "ui/session/settings.h"
+#include "ui/session/target_files.h"
+#include "ui/session/toml_reader.h"
 #include "tests/cli.h"
 
 #include <doctest/doctest.h>

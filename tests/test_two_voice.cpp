@@ -7,9 +7,9 @@
 // VIII); the outside reference for a measured beat is scipy: band-pass,
 // Hilbert envelope and the envelope's spectral peak
 // (tests/reference/beat_envelope.py, run with /usr/bin/python3).
-#include "pitch/beats.h"
-#include "pitch/error.h"
-#include "pitch/two_voice.h"
+#include "pitch/theory/beats.h"
+#include "pitch/base/error.h"
+#include "pitch/measure/two_voice.h"
 #include "tests/mix_signals.h"
 
 #include <doctest/doctest.h>

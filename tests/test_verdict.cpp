@@ -1,12 +1,12 @@
-// The verdict model (ui/verdict.h): one number per moment, shown the same by
+// The verdict model (ui/session/verdict.h): one number per moment, shown the same by
 // every element of a screen, that never outlives the sound. Checks follow
 // DESIGN.md "One reading, one verdict": silence within 100 ms; the centre
 // once known, the instantaneous pitch before; cents by Ellis's definition,
 // 1200 log2(f / f_ref) (A. J. Ellis, appendix to Helmholtz, On the
 // Sensations of Tone, 1885).
 #include "tests/cli.h"
-#include "ui/app_state.h"
-#include "ui/verdict.h"
+#include "ui/session/app_state.h"
+#include "ui/session/verdict.h"
 
 #include <doctest/doctest.h>
 

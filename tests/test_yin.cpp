@@ -1,4 +1,4 @@
-// Tests of pitch/yin.h and its internals on signals with exactly known f0.
+// Tests of pitch/dsp/yin.h and its internals on signals with exactly known f0.
 //
 // Sources: the YIN steps are from A. de Cheveigné and H. Kawahara, "YIN, a
 // fundamental frequency estimator for speech and music", J. Acoust. Soc.
@@ -13,9 +13,9 @@
 // exactly known f0 (tones, sines, noise, vibrato, glides, missing
 // fundamental, silence, bad samples); streaming behaviour (block sizes,
 // frame times, sample rates, allocation, queue, reset).
-#include "pitch/error.h"
-#include "pitch/yin.h"
-#include "pitch/yin_coarse.h"
+#include "pitch/base/error.h"
+#include "pitch/dsp/yin.h"
+#include "pitch/dsp/yin_coarse.h"
 #include "tests/signals.h"
 #include "tests/timbre_signals.h"
 

@@ -1,6 +1,6 @@
 #include "tests/timbre_signals.h"
 
-#include "pitch/real_fft.h"
+#include "pitch/dsp/real_fft.h"
 #include "tests/signals.h"
 
 #include <kiss_fftr.h>

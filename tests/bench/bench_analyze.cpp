@@ -1,5 +1,5 @@
 // beatless-bench section "analyze": the whole `beatless analyze` path on
-// sound files, as the command runs it (ui/analysis.h).
+// sound files, as the command runs it (ui/session/take_analysis.h).
 //
 // One voice: a drone and a voice holding five tritones off by random
 // amounts, with vibrato and noise, written as 24-bit WAV files; the timed
@@ -12,7 +12,7 @@
 #include "audio/soundfile.h"
 #include "tests/bench/bench.h"
 #include "tests/mix_signals.h"
-#include "ui/analysis.h"
+#include "ui/session/take_analysis.h"
 
 #include <unistd.h>
 

@@ -4,8 +4,8 @@
 // Bar: median <= 4 ms per frame at 1280x800 on one core.
 #include "tests/bench/bench.h"
 #include "tests/demo_screen.h"
-#include "ui/imgui_host.h"
-#include "ui/raster.h"
+#include "ui/render/imgui_host.h"
+#include "ui/render/raster.h"
 
 #include <cstdio>
 #include <vector>

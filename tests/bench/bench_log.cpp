@@ -10,10 +10,10 @@
 //     with --target and as JSON. Bar: under 0.5 s.
 // Times are thread CPU time (the machine is shared); wall time is printed
 // beside it, since fsync waits do not show as CPU time.
-#include "pitch/rng.h"
+#include "ui/session/rng.h"
 #include "tests/bench/bench.h"
-#include "ui/history.h"
-#include "ui/practice_log.h"
+#include "ui/session/log_summary.h"
+#include "ui/session/practice_log.h"
 
 #include <chrono>
 #include <cstdlib>
@@ -38,7 +38,7 @@ const char* kTargets[] = {"8/7", "7/6",   "6/5",  "5/4",  "9/7",  "4/3",    "15/
                           "600c", "64/45", "10/7", "16/11", "3/2", "14/9", "8/5", "5/3", "12/7", "7/4",
                           "9/8", "11/9", "14/11", "11/7", "18/11", "13/8", "15/8", "729/512", "1024/729", "2/1"};
 
-Attempt make_attempt(pitch::Rng& rng, long index, std::size_t records, long days) {
+Attempt make_attempt(ui::Rng& rng, long index, std::size_t records, long days) {
     Attempt a;
     const long day = static_cast<long>(rng.below(static_cast<std::uint64_t>(days)));
     const int sec = static_cast<int>(rng.below(86400));
@@ -74,7 +74,7 @@ Attempt make_attempt(pitch::Rng& rng, long index, std::size_t records, long days
 void bench_write(bool quick, const fs::path& dir) {
     const int n = quick ? 30 : 200;
     PracticeLog log(dir / "write.sqlite3");
-    pitch::Rng rng(1);
+    ui::Rng rng(1);
     std::vector<Attempt> attempts;
     for (int i = 0; i < n; ++i) attempts.push_back(make_attempt(rng, i, 6000, 30));
     std::vector<double> cpu_ms, wall_ms;
@@ -98,7 +98,7 @@ void bench_history(bool quick, const fs::path& dir) {
     const double b0 = wall_s();
     {
         PracticeLog log(db);
-        pitch::Rng rng(2);
+        ui::Rng rng(2);
         const long batch = 10000;
         for (long start = 0; start < n; start += batch) {
             std::vector<Attempt> v;

@@ -7,12 +7,12 @@
 // Bar: median <= 4 ms at 1280x800 on one core, so 60 frames per second leave
 // most of the core to the analysis.
 #include "tests/bench/bench.h"
-#include "ui/app_state.h"
-#include "ui/imgui_host.h"
-#include "ui/palette.h"
-#include "ui/raster.h"
-#include "ui/screen.h"
-#include "ui/window.h"
+#include "ui/session/app_state.h"
+#include "ui/render/imgui_host.h"
+#include "ui/screens/palette.h"
+#include "ui/render/raster.h"
+#include "ui/screens/screen.h"
+#include "ui/render/window.h"
 
 #include <cstdio>
 #include <cstdlib>

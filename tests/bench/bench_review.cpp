@@ -6,11 +6,11 @@
 // random vibratos. Note segmentation: speed over tracker-like frames (the
 // one-voice `analyze` speed needs the tracker and is measured with it).
 // Signals come from tests/mix_signals.h and are made before timing starts.
-#include "pitch/dyad_segment.h"
-#include "pitch/root_detect.h"
-#include "pitch/segment.h"
-#include "pitch/two_voice.h"
-#include "pitch/vibrato.h"
+#include "pitch/measure/dyad_segment.h"
+#include "pitch/dsp/root_detect.h"
+#include "pitch/measure/segment.h"
+#include "pitch/measure/two_voice.h"
+#include "pitch/dsp/vibrato.h"
 #include "tests/bench/bench.h"
 #include "tests/mix_signals.h"
 

@@ -16,7 +16,7 @@
 // one period more, for yinfft the whole buffer.
 #include "tests/bench/bench.h"
 
-#include "pitch/yin.h"
+#include "pitch/dsp/yin.h"
 #include "tests/signals.h"
 #include "tests/timbre_signals.h"
 

@@ -10,7 +10,7 @@
 // each noisy figure. Speed is thread CPU time of push() + pull().
 #include "tests/bench/bench.h"
 
-#include "pitch/yin.h"
+#include "pitch/dsp/yin.h"
 #include "tests/signals.h"
 
 #include <algorithm>

@@ -1,9 +1,9 @@
 // libFuzzer target: the interval, chord and frequency parsers must either
 // succeed or throw beatless::Error, never crash, hang or hit UB.
-#include "pitch/error.h"
-#include "pitch/interval.h"
-#include "pitch/notes.h"
-#include "pitch/ratio.h"
+#include "pitch/base/error.h"
+#include "pitch/theory/interval.h"
+#include "pitch/theory/notes.h"
+#include "pitch/theory/ratio.h"
 
 #include <cmath>
 #include <cstddef>

@@ -1,7 +1,7 @@
 // libFuzzer target: a target-set TOML file must load or throw beatless::Error
 // with a message naming the file; never crash.
-#include "pitch/error.h"
-#include "ui/target_files.h"
+#include "pitch/base/error.h"
+#include "ui/session/target_files.h"
 
 #include <cstddef>
 #include <cstdint>

@@ -6,7 +6,7 @@ independent trial-division factorisation and the beat-rate formula
 |q*f_high - p*f_low| (Helmholtz, On the Sensations of Tone, ch. VIII) for the
 audible pair it names: the interval's own pair p:q when a round drone (12
 partials) sounds p below 4 kHz and q is at most the 16th, else a pair within
-those limits (the rule in pitch/beats.h); and `beatless tone` output against a scipy
+those limits (the rule in pitch/theory/beats.h); and `beatless tone` output against a scipy
 periodogram: the voice's partial must sit where the ratio and detune put it.
 Exit status 0 when everything agrees; prints what disagrees otherwise.
 """

@@ -1,5 +1,5 @@
 #!/usr/bin/python3
-"""Checks the vibrato correction's model (pitch/yin.cpp, section 5) with numpy and scipy.
+"""Checks the vibrato correction's model (pitch/dsp/yin.cpp, section 5) with numpy and scipy.
 
 Run by ctest as: /usr/bin/python3 check_yin_vibrato.py <path to yin_vibrato_dump>.
 

@@ -1,5 +1,5 @@
 #!/usr/bin/python3
-"""Outside reference for the best-fitting chord root (pitch/chord.h, best_fit).
+"""Outside reference for the best-fitting chord root (pitch/theory/chord.h, best_fit).
 
 Reads cases from the file named by argv[1], one per line:
     t_1 ... t_n | f_1 ... f_n | w_1 ... w_n

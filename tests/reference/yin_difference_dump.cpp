@@ -3,7 +3,7 @@
 // tests/signals.h, as text the script parses and recomputes with numpy.
 //   case <window> <max_lag>      then "x v0 v1 ..." and "d v0 v1 ..."
 //   crb <rate> <f0> <noise_var> <n> <count> then "partial l a phase" lines and "value <cents>"
-#include "pitch/yin.h"
+#include "pitch/dsp/yin.h"
 #include "tests/signals.h"
 
 #include <cstdio>

@@ -3,7 +3,7 @@
 // pitch::yin_kernel_second_moment) for the script to check against a direct
 // least-squares lag computed with numpy/scipy on an exactly known FM tone.
 //   case <rate> <window> <lag> <K> <f0_hz> <depth> <vib_hz> <phase_rad> <t_s> <m2>
-#include "pitch/yin.h"
+#include "pitch/dsp/yin.h"
 
 #include <cstdio>
 

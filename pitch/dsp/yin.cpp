@@ -1,0 +1,591 @@
+// YinTracker: the streaming pipeline around the YIN steps and the refinement.
+//
+// Index
+//   1. Geometry     — rates, hop, blocks, span and frame positions (constructor)
+//   2. Input        — push(): sanitising, buffers, decimation
+//   3. Coarse frame — YIN steps 2-5 on the decimated copy
+//   4. Final frame  — step 6 (best local estimate), period-multiple refinement
+//   5. Vibrato correction — the span's averaging of a moving f0, removed
+//
+// Time line (all indices absolute, sample n of the input at n / rate):
+// frame f is centred on sample c_f = c_0 + f * hop. Its coarse window (k
+// blocks of P decimated samples) and lag range are centred on c_f; its
+// refinement span (at most span_s) is centred on c_f too, and t_s is the
+// exact centre of the samples the refined lag compares. A frame is finished
+// once the coarse result of frame f + 1 exists (step 6 looks at both
+// neighbours), which sets delay_s().
+#include "pitch/dsp/yin.h"
+
+#include "pitch/dsp/decimator.h"
+#include "pitch/base/error.h"
+#include "pitch/dsp/vec_ops.h"
+#include "pitch/dsp/yin_coarse.h"
+#include "pitch/dsp/yin_refine.h"
+
+#include <algorithm>
+#include <array>
+#include <cmath>
+#include <cstdint>
+#include <sstream>
+#include <string>
+#include <vector>
+
+namespace beatless::pitch {
+
+namespace {
+
+using Index = std::int64_t;
+
+constexpr std::size_t kChunk = 4096;            // input processed in pieces of this many samples
+constexpr double kMinDecimatedRate = 5000.0;    // the coarse stage runs at or above this rate
+constexpr double kSamplesPerShortestPeriod = 6.5;   // ... and at least this many samples per period of f_max
+constexpr double kCoarseLagError = 0.3;         // assumed parabola error on the coarse d, decimated samples
+constexpr Index kFineMargin = LagRefiner::kKernelHalf + LagRefiner::kSearch + 1;
+// One half of the span 40 dB under the other: a note starts or stops inside
+// it (a held tone's level never changes that fast).
+constexpr double kOneSidedRatio = 1e-4;
+// Largest averaging bias the vibrato correction removes (log units, 20 cents):
+// a vibrato of +-100 cents at 8 Hz over a 50 ms span is biased about 12 cents;
+// anything larger is a note change inside the neighbours' spans.
+constexpr double kMaxVibratoBias = 20.0 / 1200.0 * 0.6931471805599453;
+// A vibrato's bias may change this much (3 cents) from one frame to the next
+// (12 cents at 8 Hz changes by up to 2 pi 8 Hz 5 ms = 0.25 of itself per hop).
+constexpr double kSmallBias = 3.0 / 1200.0 * 0.6931471805599453;
+// The curvature is measured across frames f - k, f, f + k: wider than
+// neighbours, so the estimates' noise, divided by (k hop)^2, stays far under a
+// vibrato's curvature, while a vibrato at 8 Hz loses under 5 % of it.
+constexpr std::size_t kStencil = 3;
+constexpr double kPowerAlpha = 0.08;   // running mean of the curvature's square, weight of each frame
+constexpr double kNoiseBias = 0.3 / 1200.0 * 0.6931471805599453;   // the curvature's noise, as a bias (0.3 cents)
+
+std::string num(double v) {
+    std::ostringstream s;
+    s << v;
+    return s.str();
+}
+
+[[noreturn]] void bad(const std::string& what) { throw Error("YIN: " + what); }
+
+Index floor_div(Index a, Index b) { return a >= 0 ? a / b : -((-a + b - 1) / b); }
+
+}  // namespace
+
+// ---------------------------------------------------------------------------
+// 1. Geometry
+// ---------------------------------------------------------------------------
+
+struct YinTracker::Impl {
+    struct Coarse {
+        double period_dec = 0.0;    // decimated samples (fractional, step 5)
+        double aperiodicity = 1.0;  // d' at the chosen lag
+        std::vector<double> d, dn;
+    };
+
+    YinConfig cfg;
+    double rate = 0.0;
+    std::size_t dec_factor = 1;
+    double rate_dec = 0.0;
+    std::size_t hop = 0;          // full-rate samples
+    std::size_t block = 0;        // P, decimated samples
+    std::size_t blocks_per_hop = 1;
+    std::size_t blocks_per_window = 1;
+    std::size_t window_dec = 0;   // coarse window, decimated samples
+    std::size_t max_lag_dec = 0;  // coarse lags 0 .. max_lag_dec
+    std::size_t lag_min = 0, lag_max = 0;
+    Index span = 0;               // refinement span, full-rate samples
+    Index c0 = 0;                 // centre of frame 0
+    Index a0 = 0;                 // first decimated sample of frame 0's coarse window
+    Index x_lookahead = 0;        // frame f needs x up to c_f + x_lookahead (exclusive)
+    Index y_lookahead = 0;        // and y up to c_f / D + y_lookahead
+    double delay = 0.0;
+
+    Decimator decimator;
+    BlockCorrelator correlator;
+    LagRefiner fine;
+    LagRefiner mid;
+
+    std::vector<float> x;   // full-rate samples [x_off, x_off + x_len)
+    Index x_off = 0;
+    std::size_t x_len = 0;
+    std::vector<float> y;   // decimated samples [y_off, y_off + y_len)
+    Index y_off = 0;
+    std::size_t y_len = 0;
+    Index m_next = 0;       // next decimated sample to compute
+    Index f_coarse = 0;     // next coarse frame
+    Index f_done = 0;       // next frame to finish
+
+    std::array<Coarse, 3> ring;
+    std::vector<float> r;
+
+    // Frames waiting for their right neighbour (vibrato correction); m2_s2 is
+    // each one's kernel second moment (0 when the refinement did not run).
+    struct Held {
+        PitchFrame p;
+        double m2_s2 = 0.0;
+    };
+    std::array<Held, 2 * kStencil + 1> held{};   // ring: the frames f - 2 kStencil .. f
+    std::size_t held_count = 0;                  // frames delivered since reset
+    // Curvature of log f0 (1/s^2) at the last frame emitted (NaN: none) and
+    // a running mean of its square.
+    struct Curvature {
+        double last = NAN;
+        double power = 0.0;
+    } curv;
+
+    std::vector<PitchFrame> queue;
+    std::size_t q_head = 0, q_count = 0;
+    std::size_t bad_samples = 0, dropped = 0;
+
+    static std::size_t choose_decimation(const YinConfig& c) {
+        const double need = std::max(kSamplesPerShortestPeriod * c.f_max_hz, kMinDecimatedRate);
+        return std::max<std::size_t>(1, static_cast<std::size_t>(std::floor(c.sample_rate_hz / need)));
+    }
+
+    static const YinConfig& validated(const YinConfig& c) {
+        const double fs = c.sample_rate_hz;
+        if (!(fs >= 8000.0 && fs <= 192000.0)) bad("sample_rate_hz " + num(fs) + " is outside 8000 .. 192000");
+        if (!(c.f_min_hz > 0.0 && std::isfinite(c.f_min_hz))) bad("f_min_hz " + num(c.f_min_hz) + " must be above 0");
+        if (!(c.f_max_hz > c.f_min_hz && std::isfinite(c.f_max_hz)))
+            bad("f_max_hz " + num(c.f_max_hz) + " must be above f_min_hz " + num(c.f_min_hz));
+        if (c.f_max_hz > fs / 4.0)
+            bad("f_max_hz " + num(c.f_max_hz) + " is above a quarter of sample_rate_hz " + num(fs) + " (at most " +
+                num(fs / 4.0) + ")");
+        if (!(c.hop_s > 0.0 && c.hop_s <= 1.0)) bad("hop_s " + num(c.hop_s) + " must be above 0 and at most 1 s");
+        if (!(c.span_s >= 0.01 && c.span_s <= 1.0)) bad("span_s " + num(c.span_s) + " is outside 0.01 .. 1 s");
+        if (!(c.threshold > 0.0 && c.threshold < 1.0)) bad("threshold " + num(c.threshold) + " is outside 0 .. 1");
+        if (!(c.silence_dbfs <= 0.0)) bad("silence_dbfs " + num(c.silence_dbfs) + " must be at most 0");
+        if (c.max_block_len_samples == 0) bad("max_block_len_samples 0 must be at least 1");
+        return c;
+    }
+
+    struct Plan {
+        std::size_t dec, block, per_hop, per_window, max_lag;
+    };
+    // The shortest span_s that holds the coarse search's region (window and
+    // longest lag, at the full rate) and one and a half longest periods with
+    // the refiner's margins.
+    static double min_span_s(const YinConfig& c) {
+        const Plan p = plan(c);
+        const auto D = static_cast<Index>(p.dec);
+        const Index region = static_cast<Index>(p.block * p.per_window + p.max_lag) * D;
+        const Index longest = static_cast<Index>(std::ceil(c.sample_rate_hz / c.f_min_hz));
+        return static_cast<double>(std::max(region, 3 * longest / 2 + 2 * kFineMargin + 2)) / c.sample_rate_hz;
+    }
+    static Plan plan(const YinConfig& c) {
+        Plan p{};
+        p.dec = choose_decimation(c);
+        const double fs_d = c.sample_rate_hz / static_cast<double>(p.dec);
+        const auto lag_max = static_cast<std::size_t>(std::ceil(fs_d / c.f_min_hz));
+        p.max_lag = lag_max + 1;
+        const std::size_t window = lag_max + 1;   // YIN: window at least the longest period
+        const double hop_dec = c.hop_s * fs_d;
+        p.per_hop = std::max<std::size_t>(1, static_cast<std::size_t>(std::ceil(hop_dec / static_cast<double>(window))));
+        p.block = std::max<std::size_t>(1, static_cast<std::size_t>(std::lround(hop_dec / static_cast<double>(p.per_hop))));
+        p.per_window = (window + p.block - 1) / p.block;
+        return p;
+    }
+
+    explicit Impl(const YinConfig& c)
+        : cfg(validated(c)),
+          decimator(plan(c).dec),
+          correlator(plan(c).block, plan(c).per_window, plan(c).max_lag),
+          fine(static_cast<std::size_t>(std::lround(c.span_s * c.sample_rate_hz)) + 16),
+          mid(static_cast<std::size_t>(std::lround(c.span_s * c.sample_rate_hz)) / plan(c).dec + 16) {
+        const Plan p = plan(c);
+        rate = cfg.sample_rate_hz;
+        dec_factor = p.dec;
+        rate_dec = rate / static_cast<double>(dec_factor);
+        block = p.block;
+        blocks_per_hop = p.per_hop;
+        blocks_per_window = p.per_window;
+        hop = block * blocks_per_hop * dec_factor;
+        window_dec = block * blocks_per_window;
+        max_lag_dec = p.max_lag;
+        lag_max = max_lag_dec - 1;
+        lag_min = std::max<std::size_t>(2, static_cast<std::size_t>(std::floor(rate_dec / cfg.f_max_hz)));
+        span = std::lround(cfg.span_s * rate);
+        const Index D = static_cast<Index>(dec_factor);
+        const Index region = static_cast<Index>(window_dec + max_lag_dec) * D;
+        const Index longest = static_cast<Index>(std::ceil(rate / cfg.f_min_hz));
+        if (region > span || 3 * longest / 2 + 2 * kFineMargin + 2 > span) {
+            const double need = min_span_s(cfg);
+            bad("f_min_hz " + num(cfg.f_min_hz) + " needs span_s of at least " + num(std::ceil(need * 1e4) / 1e4) +
+                " (span_s is " + num(cfg.span_s) + ")");
+        }
+        const Index half_region = static_cast<Index>(window_dec + max_lag_dec) / 2;
+        c0 = std::max(span / 2, D * (half_region + 1));
+        a0 = floor_div(c0, D) - half_region;
+        // Lookahead: the refinement may read kReach lags past its span, the mid
+        // stage the same in decimated samples, the decimator half_len further.
+        x_lookahead = (span + 1) / 2 + static_cast<Index>(LagRefiner::kReach) + 2;
+        y_lookahead = (span + 1) / (2 * D) + static_cast<Index>(LagRefiner::kReach) + 3;
+        // Frame f is finished when frame f + 1's coarse window is complete.
+        const Index coarse_end_dec = a0 + static_cast<Index>(blocks_per_hop + blocks_per_window + correlator.lookahead_blocks()) *
+                                              static_cast<Index>(block);   // for frame 1, relative to frame 0
+        const Index H = static_cast<Index>(decimator.half_len());
+        const Index need = std::max({c0 + x_lookahead, (c0 / D + y_lookahead - 1) * D + H + 1, (coarse_end_dec - 1) * D + H + 1});
+        delay = static_cast<double>(need - 1 - c0) / rate;
+        if (cfg.vibrato_correction) delay += static_cast<double>(kStencil * hop) / rate;   // a frame waits for its right neighbour
+
+        const std::size_t keep = static_cast<std::size_t>(2 * span + 4 * static_cast<Index>(hop) + 4 * H +
+                                                          (need - c0) + 4 * region + 1024);
+        x.assign(keep + kChunk, 0.0f);
+        y.assign(x.size() / dec_factor + 1024, 0.0f);
+        for (auto& s : ring) {
+            s.d.assign(max_lag_dec + 1, 0.0);
+            s.dn.assign(max_lag_dec + 1, 1.0);
+        }
+        r.assign(max_lag_dec + 1, 0.0f);
+        const std::size_t q = cfg.max_block_len_samples / hop + 16;
+        queue.assign(q, PitchFrame{});
+        reset();
+    }
+
+    void reset() noexcept {
+        // Samples before the stream start read as zeros (the decimator's left edge).
+        const Index H = static_cast<Index>(decimator.half_len());
+        x_off = -H;
+        x_len = static_cast<std::size_t>(H);
+        std::fill(x.begin(), x.end(), 0.0f);
+        y_off = 0;
+        y_len = 0;
+        m_next = 0;
+        f_coarse = 0;
+        f_done = 0;
+        correlator.reset();
+        q_head = q_count = 0;
+        held_count = 0;
+        curv = Curvature{};
+        bad_samples = dropped = 0;
+    }
+
+    Index centre(Index f) const { return c0 + f * static_cast<Index>(hop); }
+    Index x_end() const { return x_off + static_cast<Index>(x_len); }
+    Index y_end() const { return y_off + static_cast<Index>(y_len); }
+    const float* xp(Index n) const { return x.data() + (n - x_off); }
+    const float* yp(Index m) const { return y.data() + (m - y_off); }
+
+    // -----------------------------------------------------------------------
+    // 2. Input
+    // -----------------------------------------------------------------------
+
+    void compact() noexcept {
+        const Index D = static_cast<Index>(dec_factor);
+        const Index H = static_cast<Index>(decimator.half_len());
+        const Index keep_x = std::min(centre(f_done) - span / 2 - 2, m_next * D - H);
+        if (keep_x > x_off) {
+            const auto drop = static_cast<std::size_t>(std::min<Index>(keep_x - x_off, static_cast<Index>(x_len)));
+            std::copy(x.begin() + static_cast<std::ptrdiff_t>(drop), x.begin() + static_cast<std::ptrdiff_t>(x_len), x.begin());
+            x_off += static_cast<Index>(drop);
+            x_len -= drop;
+        }
+        const Index block_next = a0 + static_cast<Index>(correlator.blocks_added() * block);
+        const Index coarse_next = a0 + f_coarse * static_cast<Index>(blocks_per_hop * block);
+        const Index mid_next = floor_div(centre(f_done) - span / 2, D) - 2;
+        const Index keep_y = std::min({block_next, coarse_next, mid_next});
+        if (keep_y > y_off) {
+            const auto drop = static_cast<std::size_t>(std::min<Index>(keep_y - y_off, static_cast<Index>(y_len)));
+            std::copy(y.begin() + static_cast<std::ptrdiff_t>(drop), y.begin() + static_cast<std::ptrdiff_t>(y_len), y.begin());
+            y_off += static_cast<Index>(drop);
+            y_len -= drop;
+        }
+    }
+
+    void push(std::span<const float> in) noexcept {
+        while (!in.empty()) {
+            if (x.size() - x_len < kChunk) compact();
+            const std::size_t n = std::min({in.size(), kChunk, x.size() - x_len});
+            float* dst = x.data() + x_len;
+            for (std::size_t i = 0; i < n; ++i) {
+                const float v = in[i];
+                if (std::isfinite(v)) {
+                    dst[i] = v;
+                } else {
+                    dst[i] = 0.0f;
+                    ++bad_samples;
+                }
+            }
+            x_len += n;
+            in = in.subspan(n);
+            decimate();
+            run();
+        }
+    }
+
+    void decimate() noexcept {
+        const Index D = static_cast<Index>(dec_factor);
+        const Index H = static_cast<Index>(decimator.half_len());
+        while (m_next * D + H < x_end()) {
+            if (y_len == y.size()) compact();
+            if (y_len == y.size()) return;   // cannot happen with the sizes chosen; never overrun
+            y[y_len++] = decimator.at(xp(m_next * D - H));
+            ++m_next;
+        }
+    }
+
+    void run() noexcept {
+        for (;;) {
+            bool progressed = false;
+            while (f_done + 1 < f_coarse && x_end() >= centre(f_done) + x_lookahead &&
+                   y_end() >= floor_div(centre(f_done), static_cast<Index>(dec_factor)) + y_lookahead) {
+                finish(f_done);
+                ++f_done;
+                progressed = true;
+            }
+            if (f_coarse <= f_done + 1) {
+                const std::size_t target = static_cast<std::size_t>(f_coarse) * blocks_per_hop + blocks_per_window +
+                                           correlator.lookahead_blocks();
+                while (correlator.blocks_added() < target) {
+                    const Index start = a0 + static_cast<Index>(correlator.blocks_added() * block);
+                    if (start + static_cast<Index>(block) > y_end()) break;
+                    correlator.add_block(yp(start));
+                }
+                if (correlator.blocks_added() == target) {
+                    coarse(f_coarse);
+                    ++f_coarse;
+                    progressed = true;
+                }
+            }
+            if (!progressed) return;
+        }
+    }
+
+    // -----------------------------------------------------------------------
+    // 3. Coarse frame
+    // -----------------------------------------------------------------------
+
+    void coarse(Index f) noexcept {
+        Coarse& c = ring[static_cast<std::size_t>(f % 3)];
+        correlator.window_correlation(r);
+        const Index a = a0 + f * static_cast<Index>(blocks_per_hop * block);
+        difference_from_correlation(yp(a), window_dec, max_lag_dec, r.data(), c.d.data());
+        cumulative_mean_normalised(c.d, c.dn);
+        const LagChoice pick = absolute_threshold(c.dn, lag_min, lag_max, cfg.threshold);
+        c.aperiodicity = pick.aperiodicity;
+        c.period_dec = parabolic_minimum(c.d, pick.lag);
+    }
+
+    // -----------------------------------------------------------------------
+    // 4. Final frame
+    // -----------------------------------------------------------------------
+
+    void emit(const PitchFrame& p) noexcept {
+        if (q_count == queue.size()) {
+            q_head = (q_head + 1) % queue.size();
+            --q_count;
+            ++dropped;
+        }
+        queue[(q_head + q_count) % queue.size()] = p;
+        ++q_count;
+    }
+
+    // The integer minimum of d within +-radius of lag, refined by the parabola.
+    static double dip_near(const std::vector<double>& d, double lag, double radius) noexcept {
+        const auto lo = static_cast<std::size_t>(std::max(1.0, std::floor(lag - radius)));
+        const auto hi = static_cast<std::size_t>(std::min(static_cast<double>(d.size() - 2), std::ceil(lag + radius)));
+        std::size_t best = lo;
+        for (std::size_t j = lo; j <= hi; ++j)
+            if (d[j] < d[best]) best = j;
+        return parabolic_minimum(d, best);
+    }
+
+    void finish(Index f) noexcept {
+        const Index D = static_cast<Index>(dec_factor);
+        Coarse& cur = ring[static_cast<std::size_t>(f % 3)];
+        const Index cf = centre(f);
+        PitchFrame out;
+        out.t_s = static_cast<double>(cf) / rate;
+
+        // Level of the span, and of its halves: a span that is silent in one
+        // half (a note starting or stopping inside it, after digital silence)
+        // has a difference function dominated by the zeros, whose dips say
+        // nothing of the period; no estimate from it.
+        const Index lo = cf - (span - 1) / 2;
+        const auto half = static_cast<std::size_t>(span / 2);
+        const double e1 = vec::sum_sq(xp(lo), half);
+        const double e2 = vec::sum_sq(xp(lo + static_cast<Index>(half)), static_cast<std::size_t>(span) - half);
+        const double ms = (e1 + e2) / static_cast<double>(span);
+        out.level_dbfs = ms > 0.0 ? 10.0 * std::log10(ms) : -std::numeric_limits<double>::infinity();
+        const bool one_sided = std::min(e1, e2) < kOneSidedRatio * std::max(e1, e2);
+
+        // Step 6, best local estimate: the neighbour with the clearest period
+        // (lowest d'); where ours disagrees with it by more than 20%, search
+        // again within +-20% of its period.
+        double period = cur.period_dec, aper = cur.aperiodicity;
+        const Coarse* best = &cur;
+        for (Index g : {f - 1, f + 1}) {
+            if (g < 0) continue;
+            const Coarse& o = ring[static_cast<std::size_t>(g % 3)];
+            if (o.aperiodicity < best->aperiodicity) best = &o;
+        }
+        if (best != &cur && std::fabs(best->period_dec - period) > 0.2 * best->period_dec) {
+            const auto lo_lag = static_cast<std::size_t>(std::floor(0.8 * best->period_dec));
+            const auto hi_lag = static_cast<std::size_t>(std::ceil(1.2 * best->period_dec));
+            const LagChoice pick = absolute_threshold(cur.dn, std::max(lo_lag, lag_min), std::min(hi_lag, lag_max), cfg.threshold);
+            period = parabolic_minimum(cur.d, pick.lag);
+            aper = pick.aperiodicity;
+        }
+        out.confidence = std::clamp(1.0 - aper, 0.0, 1.0);
+        if (out.level_dbfs < cfg.silence_dbfs || one_sided || !(aper < cfg.threshold) || !(period > 0.0)) {
+            if (out.level_dbfs < cfg.silence_dbfs || one_sided) out.confidence = 0.0;
+            deliver(out, 0.0);
+            return;
+        }
+
+        // Refinement. (a) Period multiples within the coarse lag range, on the
+        // coarse d itself: each step multiplies the lag while the prediction
+        // error stays well inside half a period (no jump to a neighbouring multiple).
+        const double Tc = period * static_cast<double>(D);   // full-rate samples
+        const double usable = static_cast<double>(span - 2 * kFineMargin - 2);
+        long K = std::max(1L, std::lround(2.0 * usable / (3.0 * Tc)));
+        while (K > 1 && usable - static_cast<double>(K) * Tc < std::max(0.5 * Tc, 32.0)) --K;
+        double t_dec = period;                 // current period estimate, decimated samples
+        double sigma = kCoarseLagError;        // its uncertainty, decimated samples
+        long ks = 1;
+        const double cap = static_cast<double>(max_lag_dec - 1);
+        for (int step = 0; step < 8 && ks < K; ++step) {
+            const double room = std::min(2.0, 0.5 * t_dec - 0.5);
+            long kn = std::min<long>(K, static_cast<long>(std::floor(room / sigma)));
+            kn = std::min<long>(kn, static_cast<long>(std::floor(cap / t_dec)));
+            if (kn <= ks) break;
+            const double radius = std::floor(static_cast<double>(kn) * sigma) + 1.0;
+            t_dec = dip_near(cur.d, static_cast<double>(kn) * t_dec, radius) / static_cast<double>(kn);
+            sigma = kCoarseLagError / static_cast<double>(kn);
+            ks = kn;
+        }
+        // (b) The lag K T in the decimated copy, inside the final span.
+        const double kt0 = static_cast<double>(K) * t_dec * static_cast<double>(D);
+        const double w_full = usable - kt0;
+        const double s_full = static_cast<double>(cf) - (w_full - 1.0 + kt0) / 2.0;
+        const auto lag_dec = static_cast<Index>(std::lround(static_cast<double>(K) * t_dec));
+        const Index s_dec = static_cast<Index>(std::ceil(s_full / static_cast<double>(D)));
+        const Index w_dec = static_cast<Index>(std::floor((s_full + w_full + kt0) / static_cast<double>(D))) - s_dec -
+                            lag_dec - kFineMargin;
+        double kt = kt0;
+        if (w_dec >= 16) {
+            const LagRefiner::Result m = mid.refine(yp(s_dec), static_cast<std::size_t>(w_dec), static_cast<std::size_t>(lag_dec));
+            if (m.ok) kt = m.lag * static_cast<double>(D);
+        }
+        // (c) The same at the full rate.
+        const Index j0 = std::lround(kt);
+        const Index W = static_cast<Index>(usable) - j0;
+        const Index s = std::lround(static_cast<double>(cf) - static_cast<double>(W - 1 + j0) / 2.0);
+        const LagRefiner::Result fr = fine.refine(xp(s), static_cast<std::size_t>(W), static_cast<std::size_t>(j0));
+        double t_centre = static_cast<double>(cf);
+        double m2_s2 = 0.0;
+        if (fr.ok) {
+            kt = fr.lag;
+            t_centre = static_cast<double>(s) + (static_cast<double>(W) - 1.0 + kt) / 2.0;
+            m2_s2 = kernel_second_moment(static_cast<double>(W), kt) / (rate * rate);
+        }
+        double T = kt / static_cast<double>(K);
+        if (!(std::fabs(T / Tc - 1.0) < 0.06)) {   // refinement lost the period: keep the coarse one
+            T = Tc;
+            m2_s2 = 0.0;
+        }
+        out.f0_hz = rate / T;
+        out.t_s = t_centre / rate;
+        deliver(out, m2_s2);
+    }
+
+    // -----------------------------------------------------------------------
+    // 5. Vibrato correction
+    // -----------------------------------------------------------------------
+    //
+    // The refined lag L = K T over a window of W samples aligns x[n] with
+    // x[n + L] for n under the biweight w; the K periods from n span the
+    // boxcar [n, n + L], so the estimate is f0 averaged over w convolved with
+    // that boxcar: a kernel of second moment var(w) + L^2 / 12, var(w) =
+    // (W / 2)^2 / 7 for the biweight (1 - u^2)^2 on [-1, 1]. For f0 locally
+    // quadratic, log f0_est = log f0 + m2 / 2 (log f0)'' (kernel-smoothing
+    // bias, Wand and Jones 1995, sec. 2.5); the curvature comes from the
+    // estimates of frames f - 1, f, f + 1, and is removed from frame f.
+    static double kernel_second_moment(double window, double lag) noexcept { return yin_kernel_second_moment(window, lag); }
+
+    void deliver(const PitchFrame& p, double m2_s2) noexcept {
+        if (!cfg.vibrato_correction) {
+            emit(p);
+            return;
+        }
+        const std::size_t j = held_count++;
+        held[j % held.size()] = {p, m2_s2};
+        if (j < kStencil) return;
+        const std::size_t b = j - kStencil;
+        if (b < kStencil) {
+            emit(held[b % held.size()].p);   // the first frames have no left neighbour
+            return;
+        }
+        emit(corrected(held[(b - kStencil) % held.size()], held[b % held.size()], held[j % held.size()], curv));
+    }
+
+    // A vibrato's curvature changes little from one frame to the next; a
+    // note change inside the neighbours' spans makes it jump and flip sign.
+    // On a steady tone in noise the curvature is noise alone, a bias of a
+    // tenth of a cent or so; the correction is weighted by the Wiener gain
+    // P / (P + N) (N. Wiener, Extrapolation, Interpolation, and Smoothing of
+    // Stationary Time Series, 1949), P the running mean of the curvature's
+    // square and N that of a 0.3-cent bias, so steady tones in noise keep
+    // their precision while a vibrato (biases of 0.5 to 12 cents) is corrected.
+    static PitchFrame corrected(const Held& a, const Held& b, const Held& c, Curvature& cv) noexcept {
+        PitchFrame out = b.p;
+        const double prev = cv.last;
+        cv.last = NAN;
+        if (!(a.p.voiced() && b.p.voiced() && c.p.voiced()) || b.m2_s2 <= 0.0) return out;
+        const double ga = std::log(a.p.f0_hz), gb = std::log(b.p.f0_hz), gc = std::log(c.p.f0_hz);
+        const double hab = b.p.t_s - a.p.t_s, hbc = c.p.t_s - b.p.t_s;
+        if (!(hab > 0.0 && hbc > 0.0)) return out;
+        const double curvature = 2.0 * ((gc - gb) / hbc - (gb - ga) / hab) / (hab + hbc);   // (log f0)'', 1/s^2
+        const double bias = 0.5 * b.m2_s2 * curvature;                                    // natural-log units
+        if (!(std::fabs(bias) < kMaxVibratoBias)) return out;   // a note change, not a vibrato
+        cv.last = curvature;
+        if (std::isnan(prev)) return out;
+        const double floor = 2.0 * kSmallBias / b.m2_s2;   // curvature change allowed beyond 50 %
+        if (!(std::fabs(curvature - prev) <= 0.5 * std::max(std::fabs(curvature), std::fabs(prev)) + floor)) return out;
+        cv.power += kPowerAlpha * (curvature * curvature - cv.power);
+        const double noise = kNoiseBias / (0.5 * b.m2_s2);   // that bias as a curvature
+        const double gain = cv.power / (cv.power + noise * noise);
+        out.f0_hz = b.p.f0_hz * std::exp(-gain * bias);
+        return out;
+    }
+};
+
+// ---------------------------------------------------------------------------
+// Public interface
+// ---------------------------------------------------------------------------
+
+double yin_kernel_second_moment(double window_samples, double lag_samples) noexcept {
+    return 0.25 * window_samples * window_samples / 7.0 + lag_samples * lag_samples / 12.0;
+}
+
+YinTracker::YinTracker(const YinConfig& config) : impl_(std::make_unique<Impl>(config)) {}
+
+double YinTracker::min_span_s(const YinConfig& config) {
+    YinConfig c = config;
+    c.span_s = 0.5;  // any valid value: only the others are checked here
+    return Impl::min_span_s(Impl::validated(c));
+}
+YinTracker::~YinTracker() = default;
+YinTracker::YinTracker(YinTracker&&) noexcept = default;
+YinTracker& YinTracker::operator=(YinTracker&&) noexcept = default;
+
+void YinTracker::push(std::span<const float> samples) noexcept { impl_->push(samples); }
+
+bool YinTracker::pull(PitchFrame& out) noexcept {
+    Impl& s = *impl_;
+    if (s.q_count == 0) return false;
+    out = s.queue[s.q_head];
+    s.q_head = (s.q_head + 1) % s.queue.size();
+    --s.q_count;
+    return true;
+}
+
+void YinTracker::reset() noexcept { impl_->reset(); }
+const YinConfig& YinTracker::config() const noexcept { return impl_->cfg; }
+std::size_t YinTracker::hop_len_samples() const noexcept { return impl_->hop; }
+double YinTracker::hop_s() const noexcept { return static_cast<double>(impl_->hop) / impl_->rate; }
+double YinTracker::delay_s() const noexcept { return impl_->delay; }
+std::size_t YinTracker::bad_samples() const noexcept { return impl_->bad_samples; }
+std::size_t YinTracker::dropped_frames() const noexcept { return impl_->dropped; }
+std::size_t YinTracker::decimation() const noexcept { return impl_->dec_factor; }
+
+}  // namespace beatless::pitch

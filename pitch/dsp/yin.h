@@ -1,0 +1,95 @@
+// YinTracker — streaming fundamental-frequency tracking (YIN, refined).
+//
+// Implements YIN: A. de Cheveigné and H. Kawahara, "YIN, a fundamental
+// frequency estimator for speech and music", J. Acoust. Soc. Am. 111(4),
+// 1917-1930 (2002): (1) difference function, computed through the FFT
+// (KissFFT, real, out of place); (2) cumulative mean normalised difference;
+// (3) absolute threshold; (4) parabolic interpolation; (5) best local
+// estimate. Steps 2-5 run on a copy decimated to about 5 kHz
+// (pitch/dsp/decimator.h, pitch/dsp/yin_coarse.h). A refinement stage then measures
+// steady tones far more finely than the parabola allows: the lag of a period
+// multiple near 2/3 of the span, at the full rate (pitch/dsp/yin_refine.h).
+// Vibrato: a measured lag averages f0 over a kernel of known second moment
+// m2; with f0 locally quadratic the estimate is biased by m2/2 times the
+// curvature of log f0, which is estimated across neighbouring frames and
+// removed (kernel-smoothing bias, M. P. Wand and M. C. Jones, Kernel
+// Smoothing, Chapman & Hall 1995, sec. 2.5).
+//
+// All allocation happens in the constructor; push() and pull() never
+// allocate. push() runs the analysis; frames wait in a queue sized for
+// max_block_len_samples of audio (older frames are dropped and counted if
+// pull() falls further behind).
+#pragma once
+
+#include <cstddef>
+#include <limits>
+#include <memory>
+#include <span>
+
+namespace beatless::pitch {
+
+struct YinConfig {
+    double sample_rate_hz = 44100.0;   // 8 000 .. 192 000
+    double f_min_hz = 55.0;            // lowest f0 searched (A1); two periods and a bit must fit in span_s
+    double f_max_hz = 1600.0;          // highest f0 searched, at most sample_rate_hz / 4
+    double hop_s = 0.005;              // time between frames (rounded to a multiple of decimation(); see hop_s())
+    double span_s = 0.050;             // most audio one estimate may depend on (0.01 .. 1 s)
+    double threshold = 0.15;           // YIN absolute threshold on the normalised difference (0 .. 1)
+    double silence_dbfs = -60.0;       // frames quieter than this (RMS) are unvoiced
+    bool vibrato_correction = true;    // remove the span's averaging of a moving f0 (quadratic model; one hop more delay)
+    std::size_t max_block_len_samples = 1 << 16;  // frames of one push() this long fit the queue
+};
+
+struct PitchFrame {
+    double t_s = 0.0;          // centre of the samples the estimate depends on, from stream start
+    double f0_hz = 0.0;        // 0 when unvoiced
+    double confidence = 0.0;   // 0..1 (1 - normalised difference at the chosen lag)
+    double level_dbfs = -std::numeric_limits<double>::infinity();  // RMS level of the span (dB re full scale), -inf for digital silence
+    bool voiced() const { return f0_hz > 0.0; }
+};
+
+class YinTracker {
+public:
+    explicit YinTracker(const YinConfig& config);  // throws Error on invalid settings
+    ~YinTracker();
+    YinTracker(YinTracker&&) noexcept;
+    YinTracker& operator=(YinTracker&&) noexcept;
+
+    // Appends samples (any block size). Non-finite samples are treated as 0
+    // and counted in bad_samples(). Thread: one thread at a time. Allocates: no.
+    void push(std::span<const float> samples) noexcept;
+
+    // Produces the next frame when enough audio is buffered. Allocates: no.
+    bool pull(PitchFrame& out) noexcept;
+
+    void reset() noexcept;                   // forget all audio, t restarts at 0
+    const YinConfig& config() const noexcept;
+    std::size_t hop_len_samples() const noexcept;   // hop actually used
+    double hop_s() const noexcept;                  // hop_len_samples / rate
+    double delay_s() const noexcept;                // last sample pushed minus t of the frame it completes
+    std::size_t bad_samples() const noexcept;       // non-finite samples seen
+    std::size_t dropped_frames() const noexcept;    // frames lost because pull() fell behind
+    std::size_t decimation() const noexcept;        // factor of the coarse stage's rate reduction
+
+    // The shortest span_s these settings allow (span_s itself is not read):
+    // a little over two periods of f_min_hz. Throws Error on invalid settings.
+    static double min_span_s(const YinConfig& config);
+
+private:
+    struct Impl;
+    std::unique_ptr<Impl> impl_;
+};
+
+// The YIN difference function d(tau) = sum_{j=0}^{window-1} (x[j] - x[j+tau])^2
+// for tau = 0 .. max_lag, computed through the FFT; x must hold at least
+// window + max_lag samples; out receives max_lag + 1 values. Exposed for
+// tests against a direct computation. Allocates: yes (a one-off helper).
+void yin_difference(std::span<const float> x, std::size_t window, std::size_t max_lag, std::span<double> out);
+
+// Second moment (samples^2) of the kernel over which a lag L measured with a
+// biweight window of W samples averages a moving f0: (W / 2)^2 / 7 + L^2 / 12
+// (the window convolved with a boxcar of L). The vibrato correction removes
+// m2 / 2 times the curvature of log f0. Exposed for the numpy cross-check.
+double yin_kernel_second_moment(double window_samples, double lag_samples) noexcept;
+
+}  // namespace beatless::pitch

@@ -1,0 +1,171 @@
+#include "pitch/dsp/yin_coarse.h"
+
+#include "pitch/base/error.h"
+#include "pitch/dsp/vec_ops.h"
+#include "pitch/dsp/yin.h"
+
+#include <algorithm>
+#include <cmath>
+#include <numbers>
+#include <string>
+
+namespace beatless::pitch {
+
+std::size_t fast_real_fft_len(std::size_t min_len) {
+    std::size_t n = std::max<std::size_t>(2, min_len + (min_len & 1));
+    for (;; n += 2) {
+        std::size_t h = n / 2;
+        for (std::size_t p : {2, 3, 5})
+            while (h % p == 0) h /= p;
+        if (h == 1) return n;
+    }
+}
+
+BlockCorrelator::BlockCorrelator(std::size_t block_len, std::size_t blocks_per_window, std::size_t max_lag)
+    : block_len_(std::max<std::size_t>(1, block_len)),
+      blocks_(std::max<std::size_t>(1, blocks_per_window)),
+      max_lag_(max_lag) {
+    // A block's lags reach max_lag samples past its end: R more blocks.
+    lookahead_ = (max_lag_ + block_len_ - 1) / block_len_;
+    // The assembled segment (R + 1 blocks) must not wrap around the FFT.
+    fft_len_ = fast_real_fft_len((lookahead_ + 1) * block_len_);
+    bins_ = fft_len_ / 2 + 1;
+    forward_ = kiss_fftr_alloc(static_cast<int>(fft_len_), 0, nullptr, nullptr);
+    inverse_ = kiss_fftr_alloc(static_cast<int>(fft_len_), 1, nullptr, nullptr);
+    if (forward_ == nullptr || inverse_ == nullptr) throw Error("YIN: cannot set up an FFT of " + std::to_string(fft_len_) + " points");
+    time_.assign(fft_len_, 0.0f);
+    spectra_.assign((lookahead_ + 1) * bins_, kiss_fft_cpx{0.0f, 0.0f});
+    products_.assign(blocks_ * bins_, kiss_fft_cpx{0.0f, 0.0f});
+    sum_.assign(bins_, kiss_fft_cpx{0.0f, 0.0f});
+    shifts_.resize((lookahead_ + 1) * bins_);
+    for (std::size_t m = 0; m <= lookahead_; ++m)
+        for (std::size_t b = 0; b < bins_; ++b) {
+            // Exact integer reduction of the angle before the trigonometry.
+            const std::size_t q = (b * m * block_len_) % fft_len_;
+            const double a = -2.0 * std::numbers::pi * static_cast<double>(q) / static_cast<double>(fft_len_);
+            shifts_[m * bins_ + b] = {static_cast<float>(std::cos(a)), static_cast<float>(std::sin(a))};
+        }
+}
+
+BlockCorrelator::~BlockCorrelator() {
+    kiss_fftr_free(forward_);
+    kiss_fftr_free(inverse_);
+}
+
+void BlockCorrelator::reset() noexcept { added_ = 0; }
+
+void BlockCorrelator::add_block(const float* block) noexcept {
+    std::copy(block, block + block_len_, time_.begin());
+    std::fill(time_.begin() + static_cast<std::ptrdiff_t>(block_len_), time_.end(), 0.0f);
+    const std::size_t ring = lookahead_ + 1;
+    kiss_fft_cpx* z = spectra_.data() + (added_ % ring) * bins_;
+    kiss_fftr(forward_, time_.data(), z);
+    ++added_;
+    if (added_ < ring) return;
+    // Block i = added - ring now has its whole lagged segment (blocks i .. i + R):
+    // Y_i = sum_m Z_{i+m} e^{-2 pi i b m P / N}, then conj(Z_i) Y_i.
+    const std::size_t i = added_ - ring;
+    auto f = [](kiss_fft_cpx* c) { return reinterpret_cast<float*>(c); };
+    auto cf = [](const kiss_fft_cpx* c) { return reinterpret_cast<const float*>(c); };
+    const kiss_fft_cpx* zi = spectra_.data() + (i % ring) * bins_;
+    std::copy(zi, zi + bins_, sum_.begin());
+    for (std::size_t m = 1; m < ring; ++m)
+        vec::complex_mac(f(sum_.data()), cf(spectra_.data() + ((i + m) % ring) * bins_), cf(shifts_.data() + m * bins_), bins_);
+    vec::conj_mul(f(products_.data() + (i % blocks_) * bins_), cf(zi), cf(sum_.data()), bins_);
+}
+
+void BlockCorrelator::window_correlation(std::span<float> r) noexcept {
+    std::fill(sum_.begin(), sum_.end(), kiss_fft_cpx{0.0f, 0.0f});
+    for (std::size_t q = 0; q < blocks_; ++q)
+        vec::add(reinterpret_cast<float*>(sum_.data()), reinterpret_cast<const float*>(products_.data() + q * bins_), 2 * bins_);
+    kiss_fftri(inverse_, sum_.data(), time_.data());
+    const float scale = 1.0f / static_cast<float>(fft_len_);
+    const std::size_t n = std::min(r.size(), max_lag_ + 1);
+    for (std::size_t t = 0; t < n; ++t) r[t] = time_[t] * scale;
+}
+
+void difference_from_correlation(const float* y, std::size_t window, std::size_t max_lag, const float* r,
+                                 double* d) noexcept {
+    double e0 = 0.0;
+    for (std::size_t j = 0; j < window; ++j) e0 += static_cast<double>(y[j]) * y[j];
+    double e = e0;
+    d[0] = 0.0;
+    for (std::size_t t = 1; t <= max_lag; ++t) {
+        const double out = y[t - 1], in = y[t - 1 + window];
+        e += in * in - out * out;
+        d[t] = std::max(0.0, e0 + e - 2.0 * static_cast<double>(r[t]));
+    }
+}
+
+void cumulative_mean_normalised(std::span<const double> d, std::span<double> dn) noexcept {
+    if (dn.empty()) return;
+    dn[0] = 1.0;
+    double sum = 0.0;
+    for (std::size_t t = 1; t < d.size() && t < dn.size(); ++t) {
+        sum += d[t];
+        dn[t] = sum > 0.0 ? d[t] * static_cast<double>(t) / sum : 1.0;
+    }
+}
+
+LagChoice absolute_threshold(std::span<const double> dn, std::size_t lag_min, std::size_t lag_max,
+                             double threshold) noexcept {
+    LagChoice c;
+    if (dn.empty()) return c;
+    lag_max = std::min(lag_max, dn.size() - 1);
+    lag_min = std::max<std::size_t>(1, std::min(lag_min, lag_max));
+    for (std::size_t t = lag_min; t <= lag_max; ++t) {
+        if (dn[t] < threshold) {
+            while (t + 1 <= lag_max && dn[t + 1] < dn[t]) ++t;
+            return {t, dn[t], true};
+        }
+        // A dip whose bottom falls between two lags: judge it by the bottom of
+        // the parabola through it (a short period sampled coarsely).
+        if (t + 1 < dn.size() && dn[t] <= dn[t - 1] && dn[t] <= dn[t + 1]) {
+            const double a = dn[t - 1], b = dn[t], c = dn[t + 1], den = a - 2.0 * b + c;
+            const double bottom = den > 0.0 ? b - (a - c) * (a - c) / (8.0 * den) : b;
+            if (bottom < threshold) return {t, std::max(0.0, bottom), true};
+        }
+    }
+    c.lag = lag_min;
+    c.aperiodicity = dn[lag_min];
+    for (std::size_t t = lag_min + 1; t <= lag_max; ++t)
+        if (dn[t] < c.aperiodicity) c = {t, dn[t], false};
+    return c;
+}
+
+double parabolic_minimum(std::span<const double> d, std::size_t lag) noexcept {
+    if (lag == 0 || lag + 1 >= d.size()) return static_cast<double>(lag);
+    const double a = d[lag - 1], b = d[lag], c = d[lag + 1];
+    const double den = a - 2.0 * b + c;
+    if (!(den > 0.0)) return static_cast<double>(lag);
+    const double off = std::clamp(0.5 * (a - c) / den, -1.0, 1.0);
+    return static_cast<double>(lag) + off;
+}
+
+// Public one-off helper (pitch/dsp/yin.h): the same FFT path the tracker runs.
+void yin_difference(std::span<const float> x, std::size_t window, std::size_t max_lag, std::span<double> out) {
+    if (window == 0) throw Error("yin_difference: window 0 (needs at least one sample)");
+    if (x.size() < window + max_lag)
+        throw Error("yin_difference: " + std::to_string(x.size()) + " samples given, window + max_lag needs " +
+                    std::to_string(window + max_lag));
+    if (out.size() < max_lag + 1)
+        throw Error("yin_difference: output holds " + std::to_string(out.size()) + " values, needs " +
+                    std::to_string(max_lag + 1));
+    // Blocks of 16..128 samples that tile the window, or the window as one block.
+    std::size_t block = window;
+    for (std::size_t p = std::min<std::size_t>(128, window); p >= 16; --p)
+        if (window % p == 0) {
+            block = p;
+            break;
+        }
+    BlockCorrelator corr(block, window / block, max_lag);
+    const std::size_t blocks = window / block + corr.lookahead_blocks();
+    std::vector<float> padded(blocks * block, 0.0f);
+    std::copy(x.begin(), x.begin() + static_cast<std::ptrdiff_t>(window + max_lag), padded.begin());
+    for (std::size_t b = 0; b < blocks; ++b) corr.add_block(padded.data() + b * block);
+    std::vector<float> r(max_lag + 1);
+    corr.window_correlation(r);
+    difference_from_correlation(x.data(), window, max_lag, r.data(), out.data());
+}
+
+}  // namespace beatless::pitch

@@ -1,0 +1,146 @@
+#include "pitch/dsp/yin_refine.h"
+
+#include "pitch/dsp/vec_ops.h"
+
+#include <algorithm>
+#include <array>
+#include <cmath>
+#include <numbers>
+
+namespace beatless::pitch {
+
+namespace {
+
+constexpr int kM = LagRefiner::kKernelHalf;
+constexpr int kS = LagRefiner::kSearch;
+constexpr int kQ = 256;                  // table points per lag
+constexpr double kSigma = 1.0;           // Gaussian width, lags
+constexpr int kTable = 2 * kM * kQ + 1;  // t = -M .. M
+
+// Kernel derivatives h'(t), h''(t) of the normalised kernel, tabulated.
+struct KernelTables {
+    std::array<double, kTable + 1> d1{}, d2{}, h{};
+
+    // Unnormalised g and its derivatives at t (|t| <= M).
+    static void raw(double t, double& g, double& g1, double& g2) {
+        if (std::fabs(t) >= kM) {
+            g = g1 = g2 = 0.0;
+            return;
+        }
+        const double s2 = kSigma * kSigma;
+        const double e = std::exp(-t * t / (2.0 * s2)), e1 = -t / s2 * e, e2 = (t * t / (s2 * s2) - 1.0 / s2) * e;
+        const double a = std::numbers::pi / (2.0 * kM);
+        const double c = 0.5 * (1.0 + std::cos(2.0 * a * t)), c1 = -a * std::sin(2.0 * a * t),
+                     c2 = -2.0 * a * a * std::cos(2.0 * a * t);
+        g = e * c;
+        g1 = e1 * c + e * c1;
+        g2 = e2 * c + 2.0 * e1 * c1 + e * c2;
+    }
+
+    KernelTables() {
+        for (int i = 0; i <= kTable; ++i) {
+            const double t = -kM + static_cast<double>(i) / kQ;
+            double g, g1, g2;
+            raw(t, g, g1, g2);
+            // Partition of unity: S(t) = sum_j g(t - j).
+            double s = 0.0, s1 = 0.0, s2 = 0.0;
+            for (int j = -kM - 1; j <= kM + 1; ++j) {
+                double a, a1, a2;
+                raw(t - j, a, a1, a2);
+                s += a;
+                s1 += a1;
+                s2 += a2;
+            }
+            h[static_cast<std::size_t>(i)] = g / s;
+            d1[static_cast<std::size_t>(i)] = (g1 * s - g * s1) / (s * s);
+            d2[static_cast<std::size_t>(i)] = g2 / s - 2.0 * g1 * s1 / (s * s) - g * s2 / (s * s) + 2.0 * g * s1 * s1 / (s * s * s);
+        }
+    }
+};
+
+const KernelTables& tables() {
+    static const KernelTables t;
+    return t;
+}
+
+inline double lookup(const std::array<double, kTable + 1>& tab, double t) noexcept {
+    const double u = (t + kM) * kQ;
+    if (u <= 0.0 || u >= kTable) return 0.0;
+    const auto i = static_cast<std::size_t>(u);
+    const double f = u - static_cast<double>(i);
+    return tab[i] + f * (tab[i + 1] - tab[i]);
+}
+
+}  // namespace
+
+LagRefiner::LagRefiner(std::size_t max_window) : max_window_(max_window) {
+    (void)tables();
+    w_.assign(max_window_ + vec::kLanes, 0.0f);
+    d_.assign(2 * (kM + kS) + 1, 0.0);
+}
+
+void LagRefiner::set_window(std::size_t window) noexcept {
+    if (window == window_) return;
+    window_ = window;
+    const double wd = static_cast<double>(window);
+    for (std::size_t n = 0; n < window; ++n) {
+        const double u = (2.0 * static_cast<double>(n) + 1.0 - wd) / wd;
+        const double b = 1.0 - u * u;
+        w_[n] = static_cast<float>(b * b);
+    }
+    std::fill(w_.begin() + static_cast<std::ptrdiff_t>(window), w_.end(), 0.0f);
+}
+
+bool LagRefiner::newton(const double* d, long first_lag, long j_int, double& tau, double& value) const noexcept {
+    const auto& tab = tables();
+    const long n = 2 * (kM + kS) + 1;
+    tau = static_cast<double>(j_int);
+    for (int it = 0; it < 12; ++it) {
+        double g1 = 0.0, g2 = 0.0;
+        const long lo = std::max(0L, static_cast<long>(std::floor(tau)) - kM - first_lag);
+        const long hi = std::min(n - 1, static_cast<long>(std::ceil(tau)) + kM - first_lag);
+        for (long k = lo; k <= hi; ++k) {
+            const double t = tau - static_cast<double>(first_lag + k);
+            g1 += d[k] * lookup(tab.d1, t);
+            g2 += d[k] * lookup(tab.d2, t);
+        }
+        if (!(g2 > 0.0)) return false;
+        const double step = std::clamp(g1 / g2, -0.5, 0.5);
+        tau -= step;
+        if (std::fabs(tau - static_cast<double>(j_int)) > 1.0) return false;
+        if (std::fabs(step) < 1e-7) break;
+    }
+    value = 0.0;
+    for (long k = 0; k < n; ++k) value += d[k] * lookup(tab.h, tau - static_cast<double>(first_lag + k));
+    return true;
+}
+
+LagRefiner::Result LagRefiner::refine(const float* x, std::size_t window, std::size_t j0) noexcept {
+    Result res;
+    window = std::min(window, max_window_);
+    if (window < 2 || j0 < static_cast<std::size_t>(2 * (kM + kS))) return res;
+    set_window(window);
+    const std::size_t padded = (window + vec::kLanes - 1) / vec::kLanes * vec::kLanes;
+    const long n_lags = 2 * (kM + kS) + 1;
+    long centre = static_cast<long>(j0);
+    for (int attempt = 0; attempt < 2; ++attempt) {
+        const long first = centre - kM - kS;
+        vec::weighted_sq_diff(x, w_.data(), padded, static_cast<std::size_t>(first), static_cast<std::size_t>(n_lags),
+                              d_.data());
+        const long best = static_cast<long>(std::min_element(d_.begin(), d_.end()) - d_.begin());
+        const long j_int = first + best;
+        if (std::labs(j_int - centre) > kS) {
+            // Outside the search radius: look again around it, once.
+            if (attempt == 0 && std::labs(j_int - static_cast<long>(j0)) <= kM + kS) {
+                centre = j_int;
+                continue;
+            }
+            return res;
+        }
+        res.ok = newton(d_.data(), first, j_int, res.lag, res.d_min);
+        return res;
+    }
+    return res;
+}
+
+}  // namespace beatless::pitch

@@ -1,0 +1,273 @@
+// NoteSegmenter — the method in detail (summary in segment.h).
+//
+// Fed tracker frames one by one (pitch/dsp/yin.h PitchFrame), it emits each note
+// as it ends. Steps: (1) frames below min_confidence, unvoiced, or within
+// drone_tol_cents of the root's own pitch class (the drone leaking into the
+// tracker) count as silence; (2) a note starts at the first voiced frame
+// and ends at a silence longer than max_gap_s, or splits where a 0.2 s
+// trailing mean of the pitch leaves the note's vibrato centre by more than
+// change_cents for change_s (a legato step, cut where a two-level step fit
+// puts it); (3) notes shorter than min_note_s are dropped; (4) per note, a
+// streaming VibratoCentre (pitch/dsp/vibrato.h) gives a centre reading per
+// frame; the settle time runs from the onset to the middle of the first
+// averaging window whose centre stays within settle_cents of the note's
+// centre for the rest of the note; the note's centre f0 is the whole-cycle
+// mean (pitch/dsp/cycles.h) over the frames from that reading on (the second
+// half when that leaves under 0.3 s), leaving out the last release_trim_s,
+// whose tracker frames already hear the release; (5) nearest target (pitch/theory/targets.h), deviation,
+// spread, and the beat rate of the coinciding partials against the root
+// (|q f - p root| for target p/q, Helmholtz; pitch/theory/beats.h).
+// Memory: bounded by max_note_s (a longer note is closed and marked
+// truncated, and the next note continues). Allocation happens in the
+// constructor only; push() and finish() never allocate.
+
+#include "pitch/measure/segment.h"
+
+#include "pitch/theory/beats.h"
+#include "pitch/dsp/cycles.h"
+#include "pitch/base/error.h"
+#include "pitch/base/text.h"
+
+#include <algorithm>
+#include <cmath>
+#include <cstring>
+
+namespace beatless::pitch {
+
+namespace {
+void check(bool ok, const char* what, double v) {
+    if (!ok) throw Error("note segmentation: " + std::string(what) + " " + format_trimmed(v, 6) + " is out of range");
+}
+
+VibratoConfig vibrato_of(const SegmentConfig& c) {
+    VibratoConfig v = c.vibrato;
+    v.hop_s = c.hop_s;
+    v.max_gap_s = c.max_gap_s;
+    return v;
+}
+}  // namespace
+
+NoteSegmenter::NoteSegmenter(const SegmentConfig& config, const TargetSet& targets)
+    : cfg_(config), targets_(targets), vib_((check(config.hop_s >= 1e-4 && config.hop_s <= 0.1, "hop_s", config.hop_s),
+                                             vibrato_of(config))) {
+    check(std::isfinite(cfg_.root_hz) && cfg_.root_hz >= 1.0 && cfg_.root_hz <= 20000.0, "root (Hz)", cfg_.root_hz);
+    if (targets_.targets.empty()) throw Error("note segmentation: the target set '" + targets_.id + "' is empty");
+    check(cfg_.min_note_s >= 0.0 && cfg_.min_note_s <= 10.0, "min_note_s", cfg_.min_note_s);
+    check(cfg_.max_gap_s >= 0.0 && cfg_.max_gap_s <= 1.0, "max_gap_s", cfg_.max_gap_s);
+    check(cfg_.change_cents > 0.0, "change_cents", cfg_.change_cents);
+    check(cfg_.smooth_s >= cfg_.hop_s && cfg_.smooth_s <= 2.0, "smooth_s", cfg_.smooth_s);
+    check(cfg_.settle_cents > 0.0, "settle_cents", cfg_.settle_cents);
+    check(cfg_.release_trim_s >= 0.0 && cfg_.release_trim_s <= 0.2, "release_trim_s", cfg_.release_trim_s);
+    check(cfg_.max_note_s >= 1.0 && cfg_.max_note_s <= 600.0, "max_note_s", cfg_.max_note_s);
+    cap_ = static_cast<std::size_t>(std::ceil(cfg_.max_note_s / cfg_.hop_s)) + 1;
+    t_.assign(cap_, 0.0);
+    c_.assign(cap_, 0.0);
+    centre_.assign(cap_, 0.0);
+    win_start_.assign(cap_, 0.0);
+    scratch_.assign(cap_, 0.0);
+    smooth_n_ = std::max<std::size_t>(1, static_cast<std::size_t>(std::lround(cfg_.smooth_s / cfg_.hop_s)));
+    trim_n_ = static_cast<std::size_t>(std::lround(cfg_.release_trim_s / cfg_.hop_s));
+}
+
+void NoteSegmenter::add_frame(double t_s, double cents) noexcept {
+    const VibratoReading& r = vib_.push(t_s, cents, true);
+    t_[n_] = t_s;
+    c_[n_] = cents;
+    centre_[n_] = r.centre_cents;
+    win_start_[n_] = r.span_start_s;
+    ++n_;
+    last_voiced_t_ = t_s;
+    smooth_sum_ += cents;
+    if (n_ > smooth_n_) smooth_sum_ -= c_[n_ - 1 - smooth_n_];
+}
+
+void NoteSegmenter::start_with(std::size_t from) noexcept {
+    const std::size_t keep = n_ - from;
+    std::memmove(t_.data(), t_.data() + from, keep * sizeof(double));
+    std::memmove(c_.data(), c_.data() + from, keep * sizeof(double));
+    n_ = 0;
+    vib_.reset();
+    smooth_sum_ = 0.0;
+    anchor_ = NAN;
+    depart_frames_ = 0;
+    // Re-run the centre estimator over the frames that move to the new note.
+    for (std::size_t i = 0; i < keep; ++i) add_frame(t_[i], c_[i]);
+}
+
+bool NoteSegmenter::push(const PitchFrame& frame, NoteResult& out) noexcept {
+    bool voiced = frame.voiced() && std::isfinite(frame.f0_hz) && std::isfinite(frame.t_s) &&
+                  frame.confidence >= cfg_.min_confidence;
+    double cents = 0.0;
+    if (voiced) {
+        cents = 1200.0 * std::log2(frame.f0_hz / cfg_.root_hz);
+        if (cfg_.skip_drone && std::fabs(cents - 1200.0 * std::round(cents / 1200.0)) <= cfg_.drone_tol_cents) {
+            voiced = false;
+            ++drone_frames_;
+        }
+    }
+    if (!voiced) {
+        if (n_ > 0 && frame.t_s - last_voiced_t_ > cfg_.max_gap_s) return close(n_, false, out);
+        return false;
+    }
+    bool emitted = false;
+    if (n_ > 0 && frame.t_s - last_voiced_t_ > cfg_.max_gap_s + 0.5 * cfg_.hop_s) emitted = close(n_, false, out);
+    else if (n_ == cap_) emitted = close(n_, true, out);
+    add_frame(frame.t_s, cents);
+    if (emitted || n_ < 2 * smooth_n_) return emitted;
+
+    // Legato split: the trailing mean leaves the note's centre and stays away.
+    const double smooth = smooth_sum_ / static_cast<double>(smooth_n_);
+    if (std::isnan(anchor_)) {
+        anchor_ = centre_[n_ - 1];
+        return false;
+    }
+    if (std::fabs(smooth - anchor_) > cfg_.change_cents) {
+        if (depart_frames_++ == 0) depart_from_ = n_ - 1;
+        if (static_cast<double>(depart_frames_) * cfg_.hop_s >= cfg_.change_s) return close(split_point(smooth), false, out);
+    } else {
+        depart_frames_ = 0;
+        anchor_ = centre_[n_ - 1];
+    }
+    return false;
+}
+
+// Where the step happened: over the frames since a trailing window before
+// the departure, the cut k that best fits level anchor_ before it and level
+// `after` from it on (least squares; maximises the suffix sum of
+// (after - anchor)(2 c - anchor - after)).
+std::size_t NoteSegmenter::split_point(double after) const noexcept {
+    const std::size_t lo = depart_from_ > 2 * smooth_n_ ? depart_from_ - 2 * smooth_n_ : 1;
+    double suffix = 0.0, best = -INFINITY;
+    std::size_t at = depart_from_;
+    for (std::size_t k = n_; k-- > lo;) {
+        suffix += (after - anchor_) * (2.0 * c_[k] - anchor_ - after);
+        if (suffix > best) {
+            best = suffix;
+            at = k;
+        }
+    }
+    return std::max<std::size_t>(at, 1);
+}
+
+bool NoteSegmenter::finish(NoteResult& out) noexcept {
+    if (n_ == 0) return false;
+    return close(n_, false, out);
+}
+
+bool NoteSegmenter::close(std::size_t m, bool truncated, NoteResult& out) noexcept {
+    bool ok = false;
+    const double dur = m > 0 ? t_[m - 1] - t_[0] + cfg_.hop_s : 0.0;
+    if (m >= 4 && dur >= cfg_.min_note_s) {
+        ok = true;
+        NoteResult r;
+        r.start_s = t_[0];
+        r.end_s = t_[m - 1];
+        r.frames = static_cast<int>(m);
+        r.truncated = truncated;
+
+        // The last frames ride the release (the tracker's span reaches past
+        // the offset): they are left out of every measurement below.
+        const std::size_t me = m >= trim_n_ + 8 ? m - trim_n_ : m;
+
+        // Provisional centre: median of the centre readings over the second half.
+        const std::size_t h0 = me / 2;
+        std::copy(centre_.begin() + static_cast<std::ptrdiff_t>(h0), centre_.begin() + static_cast<std::ptrdiff_t>(me), scratch_.begin());
+        const std::size_t nh = me - h0;
+        std::nth_element(scratch_.begin(), scratch_.begin() + static_cast<std::ptrdiff_t>(nh / 2), scratch_.begin() + static_cast<std::ptrdiff_t>(nh));
+        const double c0 = scratch_[nh / 2];
+
+        // Settled: the last run of centre readings within the band.
+        std::size_t is = me;
+        while (is > 0 && std::fabs(centre_[is - 1] - c0) <= cfg_.settle_cents) --is;
+        std::size_t s_idx = h0;
+        if (is < me) {
+            r.settle_s = std::max(0.0, 0.5 * (win_start_[is] + t_[is]) - t_[0]);
+            s_idx = is;
+        }
+        if (t_[me - 1] - t_[s_idx] < 0.3) s_idx = std::min(s_idx, h0);
+        const std::size_t ns = me - s_idx;
+
+        // Centre over whole vibrato cycles of the settled part.
+        CycleConfig cc;
+        cc.min_rate_hz = cfg_.vibrato.min_rate_hz;
+        cc.max_rate_hz = cfg_.vibrato.max_rate_hz;
+        cc.hysteresis_abs = 0.5 * cfg_.vibrato.min_depth_cents;
+        cc.max_period_ratio = 1.6;
+        const CycleStats cs = find_cycles(&t_[s_idx], &c_[s_idx], ns, cc);
+        double centre = 0.0, sd = 0.0;
+        mean_and_spread(&c_[s_idx], ns, centre, sd);
+        r.spread_cents = sd;
+        if (cs.found && cs.depth >= cfg_.vibrato.min_depth_cents) {
+            centre = cs.mean;
+            r.vibrato = true;
+            r.vibrato_rate_hz = cs.rate_hz;
+            r.vibrato_depth_cents = cs.depth;
+        }
+        double cm = 0.0;
+        mean_and_spread(&centre_[s_idx], ns, cm, r.centre_spread_cents);
+
+        r.cents_above_root = centre;
+        r.ratio = std::exp2(centre / 1200.0);
+        r.centre_f0_hz = cfg_.root_hz * r.ratio;
+        const TargetMatch tm = nearest_target(targets_, centre, cfg_.octave_equivalent);
+        r.target_index = static_cast<int>(tm.index);
+        r.target_octaves = tm.octaves;
+        r.target_cents = tm.target_cents;
+        r.dev_cents = tm.dev_cents;
+        const Interval& iv = targets_.targets[tm.index].interval;
+        if (iv.is_ratio()) {
+            const Ratio own = beating_ratio(iv, tm.octaves);
+            r.own_partial_root = static_cast<int>(std::min<std::int64_t>(own.num, 1 << 30));
+            r.own_partial_voice = static_cast<int>(std::min<std::int64_t>(own.den, 1 << 30));
+        }
+        const AudiblePair heard = audible_pair_of_target(cfg_.root_hz, r.centre_f0_hz, iv, tm.octaves, tm.target_cents, cfg_.audible);
+        if (heard.found) {
+            r.partial_root = heard.partial_a;
+            r.partial_voice = heard.partial_b;
+            r.beat_hz = heard.beat_hz;
+            r.beat_in_tune_hz = heard.beat_at_target_hz;
+        }
+        out = r;
+    } else {
+        ++dropped_short_;
+    }
+    start_with(m);
+    return ok;
+}
+
+NoteSummary::NoteSummary(const TargetSet& targets) : acc_(targets.targets.size()) {}
+
+void NoteSummary::add(const NoteResult& note) noexcept { add(note.target_index, note.dev_cents); }
+
+void NoteSummary::add(int target_index, double dev_cents) noexcept {
+    if (target_index < 0 || static_cast<std::size_t>(target_index) >= acc_.size() || !std::isfinite(dev_cents)) return;
+    Acc& a = acc_[static_cast<std::size_t>(target_index)];
+    ++a.n;
+    const double d = dev_cents - a.mean;
+    a.mean += d / a.n;
+    a.m2 += d * (dev_cents - a.mean);
+    a.abs_sum += std::fabs(dev_cents);
+}
+
+std::vector<TargetSummary> NoteSummary::rows() const {
+    std::vector<TargetSummary> out;
+    for (std::size_t i = 0; i < acc_.size(); ++i) {
+        const Acc& a = acc_[i];
+        if (a.n == 0) continue;
+        out.push_back({static_cast<int>(i), a.n, a.mean, a.n > 1 ? std::sqrt(a.m2 / (a.n - 1)) : 0.0, a.abs_sum / a.n});
+    }
+    return out;
+}
+
+std::string describe(const TargetSummary& row, const std::string& name) {
+    std::string s = name + " averages ";
+    const double m = row.mean_dev_cents;
+    if (std::fabs(m) < 0.05) s += "in tune";
+    else s += format_trimmed(std::fabs(m), 1) + (std::fabs(m) < 1.05 && std::fabs(m) >= 0.95 ? " cent " : " cents ") + (m > 0 ? "sharp" : "flat");
+    s += " (" + std::to_string(row.count) + (row.count == 1 ? " note" : " notes");
+    if (row.count > 1) s += ", spread " + format_trimmed(row.spread_cents, 1) + " cents";
+    s += ")";
+    return s;
+}
+
+}  // namespace beatless::pitch

@@ -1,0 +1,136 @@
+// NoteSegmenter — held notes of the performer's line, measured against the root.
+//
+// Fed tracker frames (pitch/dsp/yin.h) one by one, it emits each note as it
+// ends: onsets and offsets at silences or legato steps, drone frames and
+// short notes skipped, then per note the vibrato centre (pitch/dsp/vibrato.h),
+// nearest target (pitch/theory/targets.h), deviation, spread, settle time and the
+// beat rate against the root (Helmholtz; pitch/theory/beats.h). Steps in
+// segment.cpp. Memory is bounded by max_note_s; push() never allocates.
+#pragma once
+
+#include "pitch/theory/beats.h"
+#include "pitch/theory/targets.h"
+#include "pitch/dsp/vibrato.h"
+#include "pitch/dsp/yin.h"
+
+#include <cmath>
+#include <cstddef>
+#include <string>
+#include <vector>
+
+namespace beatless::pitch {
+
+struct SegmentConfig {
+    double root_hz = 0.0;              // the drone's fundamental (required, > 0)
+    AudibleRange audible;              // which partials can be heard beating (pitch/theory/beats.h)
+    double hop_s = 0.005;              // tracker hop, for sizing (default 5 ms)
+    double min_confidence = 0.5;       // weaker frames count as silence (default 0.5)
+    double min_note_s = 0.15;          // shorter notes are dropped (default 150 ms)
+    double max_gap_s = 0.04;           // silences up to this are bridged (default 40 ms)
+    double change_cents = 40.0;        // legato split threshold (default 40 cents)
+    double change_s = 0.08;            // ... held this long (default 80 ms)
+    double smooth_s = 0.2;             // trailing mean for the split test (default 200 ms)
+    double settle_cents = 5.0;         // settle band around the centre (default 5 cents)
+    double release_trim_s = 0.025;     // last frames of a note left out of its measurement: the
+                                       //   tracker's span already hears the release (default 25 ms,
+                                       //   half of YinConfig::span_s); start_s/end_s keep them
+    bool skip_drone = true;            // frames at the root's pitch class are the drone (default on)
+    double drone_tol_cents = 3.0;      // ... within this many cents (default 3)
+    double max_note_s = 30.0;          // memory cap per note (default 30 s)
+    bool octave_equivalent = true;     // targets match in every octave (default on)
+    VibratoConfig vibrato{.fallback_s = 0.1};  // centre estimator (hop_s, max_gap_s taken from above;
+                                               //   a short plain-mean window so settling shows)
+};
+
+struct NoteResult {
+    double start_s = 0.0;              // first voiced frame
+    double end_s = 0.0;                // last voiced frame
+    int frames = 0;                    // voiced frames in the note
+    double centre_f0_hz = 0.0;         // vibrato-centre f0
+    double cents_above_root = 0.0;     // 1200 log2(centre_f0 / root)
+    double ratio = 0.0;                // centre_f0 / root
+    int target_index = -1;             // into the TargetSet
+    int target_octaves = 0;            // octave shift of the match
+    double target_cents = NAN;         // target after the shift
+    double dev_cents = NAN;            // centre minus target: + is sharp
+    double spread_cents = 0.0;         // standard deviation of the pitch over the settled part (vibrato included)
+    double centre_spread_cents = 0.0;  // standard deviation of the centre readings over the settled part
+    double settle_s = NAN;             // onset to settled within settle_cents; NaN if it never settled
+    bool vibrato = false;              // whole vibrato cycles were averaged
+    double vibrato_rate_hz = 0.0;
+    double vibrato_depth_cents = 0.0;
+    // The audible pair (pitch/theory/beats.h, audible_pair) for the target and the
+    // drone's partials: root partial p meets voice partial q; -1 / NaN when
+    // no present partials coincide near the target.
+    int partial_root = -1;             // p: harmonic of the root ...
+    int partial_voice = -1;            // ... coinciding with the voice's q-th harmonic
+    double beat_hz = NAN;              // |q f - p root| at the centre
+    double beat_in_tune_hz = NAN;      // the same pair's rate with the voice exactly on target (0 for the own pair)
+    int own_partial_root = -1;         // detail: the target's own coinciding pair (729, 512 for 729/512) ...
+    int own_partial_voice = -1;        // ... -1 for a cents target
+    bool truncated = false;            // closed at max_note_s
+};
+
+class NoteSegmenter {
+public:
+    NoteSegmenter(const SegmentConfig& config, const TargetSet& targets);  // throws Error (root, empty set, ranges)
+
+    // Feeds one frame (frames in time order). Returns true and fills `out`
+    // when a note has ended. Thread: one at a time. Allocates: no.
+    bool push(const PitchFrame& frame, NoteResult& out) noexcept;
+
+    // Closes the open note at the end of the stream. Allocates: no.
+    bool finish(NoteResult& out) noexcept;
+
+    std::size_t short_notes_dropped() const noexcept { return dropped_short_; }
+    std::size_t drone_frames() const noexcept { return drone_frames_; }
+    const SegmentConfig& config() const noexcept { return cfg_; }
+
+private:
+    void start_with(std::size_t from) noexcept;   // keep frames [from, n_) as the new note
+    bool close(std::size_t m, bool truncated, NoteResult& out) noexcept;
+    std::size_t split_point(double after) const noexcept;
+    void add_frame(double t_s, double cents) noexcept;
+
+    SegmentConfig cfg_;
+    TargetSet targets_;
+    VibratoCentre vib_;
+    std::size_t cap_ = 0;
+    std::size_t n_ = 0;                    // frames in the open note
+    std::vector<double> t_, c_, centre_, win_start_, scratch_;
+    double last_voiced_t_ = -1e300;
+    std::size_t smooth_n_ = 1;
+    std::size_t trim_n_ = 0;               // release_trim_s in frames
+    double smooth_sum_ = 0.0;
+    double anchor_ = NAN;                  // centre the split test compares with
+    std::size_t depart_from_ = 0;          // first frame of a departure
+    std::size_t depart_frames_ = 0;
+    std::size_t dropped_short_ = 0;
+    std::size_t drone_frames_ = 0;
+};
+
+// Per-target summary of the notes: "10/7 averages 6 cents flat".
+struct TargetSummary {
+    int target_index = -1;
+    int count = 0;                     // notes matched to the target
+    double mean_dev_cents = 0.0;       // mean signed deviation: + is sharp
+    double spread_cents = 0.0;         // standard deviation of the deviations (0 for one note)
+    double mean_abs_dev_cents = 0.0;
+};
+
+class NoteSummary {
+public:
+    explicit NoteSummary(const TargetSet& targets);
+    void add(const NoteResult& note) noexcept;          // notes without a target are ignored
+    void add(int target_index, double dev_cents) noexcept;  // the same for any measurement (a dyad)
+    std::vector<TargetSummary> rows() const;            // targets with notes, in set order
+private:
+    struct Acc { int n = 0; double mean = 0.0, m2 = 0.0, abs_sum = 0.0; };
+    std::vector<Acc> acc_;
+};
+
+// "10/7 averages 6.0 cents flat (3 notes, spread 1.2 cents)"; `name` is the
+// target's text, e.g. Interval::str() or a name of the trade.
+std::string describe(const TargetSummary& row, const std::string& name);
+
+}  // namespace beatless::pitch

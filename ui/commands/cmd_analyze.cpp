@@ -1,0 +1,455 @@
+// beatless analyze FILE [--root auto|NOTE|HZ] [--a4 HZ] [--targets SET] [--voices 1|2]
+//                       [--format text|json|csv] [--report FILE.png] [--channel N]
+//
+// Note by note, how pure the intervals of a recorded take were. One voice
+// (the default): the drone's root is found in the file or given, the voice's
+// held notes are measured against it (vibrato centre, nearest target,
+// deviation, spread, settle time, beat rate of the coinciding partials) and
+// summarised per target. Two voices from one microphone: the held double
+// stops, both f0s, the interval, its target and deviation, and the beat rate
+// measured from the partials beside the rate the f0s predict. The passes are
+// in ui/session/take_analysis.h; the printable page in ui/analysis_report.h.
+//
+// A file with no steady drone (when the root is to be found) or with no
+// sound gets a one-line message naming it and exit code 1; a take with
+// sound but no held notes (noise, say) gives an empty result and exit 0.
+//
+// Index: shared text helpers; One voice (JSON, CSV, text, report); Two
+// voices (the same); The command (options, checks, progress, passes).
+#include "pitch/theory/beats.h"
+#include "pitch/base/error.h"
+#include "ui/session/usage_error.h"
+#include "pitch/theory/notes.h"
+#include "pitch/theory/spelling.h"
+#include "pitch/base/text.h"
+#include "ui/session/take_analysis.h"
+#include "ui/screens/take_report.h"
+#include "ui/commands/commands.h"
+#include "ui/session/json.h"
+#include "ui/session/log_csv.h"
+#include "ui/commands/progress.h"
+#include "ui/session/target_files.h"
+
+#include <unistd.h>
+
+#include <cmath>
+#include <cstdio>
+#include <ctime>
+#include <filesystem>
+#include <memory>
+
+namespace beatless::ui {
+
+namespace {
+
+struct AnalyzeOptions {
+    std::string file;
+    std::string root = "auto";
+    bool root_set = false;            // --root given on the command line
+    double a4_hz = pitch::kDefaultA4Hz;
+    std::string targets = "7-limit";
+    int voices = 1;
+    Format format = Format::text;
+    std::string report;
+    int channel = 0;                  // 1-based; 0 mixes all channels
+    std::string lowest;               // --lowest: below the file tracker's 55 Hz (a double bass)
+};
+
+constexpr double kProgressAfterS = 5.0;  // files longer than this show a progress bar (on a terminal)
+
+// The target's name: the set's own, else one of the trade (targets/names.toml).
+std::string target_name(const pitch::TargetSet& set, int index) {
+    if (index < 0 || static_cast<std::size_t>(index) >= set.targets.size()) return "";
+    const pitch::Target& t = set.targets[static_cast<std::size_t>(index)];
+    if (!t.name.empty()) return t.name;
+    const std::string* n = interval_names().find(t.interval);
+    return n ? *n : "";
+}
+
+std::string target_text(const pitch::TargetSet& set, int index) {
+    if (index < 0 || static_cast<std::size_t>(index) >= set.targets.size()) return "";
+    return set.targets[static_cast<std::size_t>(index)].interval.str();
+}
+
+std::string base_name(const std::string& path) { return std::filesystem::path(path).filename().string(); }
+
+std::string duration_text(double s) {
+    if (s < 60.0) return pitch::format_trimmed(s, 1) + " s";
+    char buf[32];
+    const long whole = static_cast<long>(s);
+    if (whole >= 3600) std::snprintf(buf, sizeof buf, "%ld:%02ld:%04.1f", whole / 3600, (whole / 60) % 60, s - 60.0 * static_cast<double>(whole / 60));
+    else std::snprintf(buf, sizeof buf, "%ld:%04.1f", whole / 60, s - 60.0 * static_cast<double>(whole / 60));
+    return buf;
+}
+
+std::string today_text() {
+    const std::time_t now = std::time(nullptr);
+    std::tm tm{};
+    localtime_r(&now, &tm);
+    char buf[32];
+    std::strftime(buf, sizeof buf, "%Y-%m-%d %H:%M", &tm);
+    return buf;
+}
+
+std::string root_words(const OneVoiceAnalysis& a, const std::string& root_typed, double a4_hz) {
+    // A root given as a note keeps the user's spelling (Bb3, never A#3).
+    pitch::NearestNote n = pitch::hz_to_note(a.root_hz, a4_hz);
+    if (a.root_given) {
+        const pitch::NoteAboveRoot typed = pitch::spell_hz_above_root(root_typed, a.root_hz, a4_hz);
+        n.name = typed.name;
+        n.offset_cents = typed.offset_cents;
+    }
+    char buf[96];
+    const double off = std::fabs(n.offset_cents) < 0.05 ? 0.0 : n.offset_cents;  // no "-0.0"
+    std::snprintf(buf, sizeof buf, "root %.3f Hz (%s %+.1f c)", a.root_hz, n.name.c_str(), off);
+    std::string s = buf;
+    if (!a.root_given) return s + ", found in the file: confidence " + pitch::format_trimmed(a.root.confidence, 2);
+    s += ", as given";
+    if (a.drone_hz > 0.0) s += "; drone in the file at " + pitch::format_trimmed(a.drone_hz, 3) + " Hz";
+    else s += "; no steady drone in the file";
+    return s;
+}
+
+// The words after the target in a summary line: "averages 6.0 cents flat (3 notes, ...)".
+std::string summary_words(const pitch::TargetSummary& row, const std::string& ratio, bool dyads) {
+    std::string s = pitch::describe(row, ratio);
+    if (dyads) {
+        // "note(s)" -> "interval(s)"; "flat/sharp" -> "narrow/wide" for an interval between two voices.
+        auto replace = [&](const std::string& a, const std::string& b) {
+            for (auto at = s.find(a); at != std::string::npos; at = s.find(a, at + b.size())) s.replace(at, a.size(), b);
+        };
+        replace(" notes", " intervals");
+        replace(" note)", " interval)");
+        replace(" flat", " narrow");
+        replace(" sharp", " wide");
+    }
+    return s;
+}
+
+void warn_clipping(const SignalFacts& f, const std::string& path) {
+    if (f.clipped_samples == 0) return;
+    std::fprintf(stderr, "beatless: warning: %s: %lld samples at full scale (clipped), the first at %s s; pitches there may be biased\n",
+                 path.c_str(), static_cast<long long>(f.clipped_samples), pitch::format_trimmed(f.first_clip_s, 3).c_str());
+}
+
+void check_report_path(const std::string& path) {
+    if (path.empty()) return;
+    const std::filesystem::path p(path);
+    const std::filesystem::path dir = p.has_parent_path() ? p.parent_path() : std::filesystem::path(".");
+    std::error_code ec;
+    if (!std::filesystem::is_directory(dir, ec))
+        throw Error(path + ": cannot be written (no directory " + dir.string() + ")");
+    if (access(dir.c_str(), W_OK) != 0) throw Error(path + ": cannot be written (directory " + dir.string() + " is not writable)");
+}
+
+void add_summary_json(JsonWriter& j, const pitch::TargetSet& set, const std::vector<pitch::TargetSummary>& rows, bool dyads) {
+    j.key("summary").begin_array();
+    for (const auto& r : rows) {
+        const std::string ratio = target_text(set, r.target_index);
+        j.begin_object().key("target").value(ratio).key("target_name").value(target_name(set, r.target_index));
+        j.key("count").value(r.count).key("mean_dev_cents").value(r.mean_dev_cents, 3);
+        j.key("spread_cents").value(r.spread_cents, 3).key("mean_abs_dev_cents").value(r.mean_abs_dev_cents, 3);
+        j.key("text").value(summary_words(r, ratio, dyads)).end_object();
+    }
+    j.end_array();
+}
+
+void print_summary_text(const pitch::TargetSet& set, const std::vector<pitch::TargetSummary>& rows, bool dyads) {
+    if (rows.empty()) return;
+    std::printf("\nPer target:\n");
+    for (const auto& r : rows) {
+        const std::string name = target_name(set, r.target_index);
+        std::string line = summary_words(r, target_text(set, r.target_index), dyads);
+        if (!name.empty()) line += " - " + name;
+        std::printf("  %s\n", line.c_str());
+    }
+}
+
+// The report's targets, marks and summary rows from notes or dyads.
+template <class Item, class ToMark>
+ReportData report_of(const pitch::TargetSet& set, const std::vector<Item>& items,
+                     const std::vector<pitch::TargetSummary>& summary, bool dyads, ToMark to_mark) {
+    ReportData d;
+    std::vector<bool> used(set.targets.size(), false);
+    for (const Item& it : items) {
+        if (it.target_index >= 0) used[static_cast<std::size_t>(it.target_index)] = true;
+        d.marks.push_back(to_mark(it));
+    }
+    for (std::size_t i = 0; i < set.targets.size(); ++i)
+        d.targets.push_back({set.targets[i].interval.cents(), set.targets[i].interval.str(), target_name(set, static_cast<int>(i)), used[i]});
+    for (const auto& r : summary) {
+        const std::string ratio = target_text(set, r.target_index);
+        const std::string w = summary_words(r, ratio, dyads);
+        // The ratio and the count have their own columns: keep "averages 6 cents flat".
+        const std::size_t from = std::min(w.size(), ratio.size() + 1);
+        d.summary.push_back({ratio, target_name(set, r.target_index), r.count, r.mean_dev_cents, r.spread_cents,
+                             w.substr(from, w.find(" (") - from)});
+    }
+    return d;
+}
+
+// ---------------------------------------------------------------------------
+// One voice
+// ---------------------------------------------------------------------------
+void print_one_voice(const AnalyzeOptions& o, const pitch::TargetSet& set, const OneVoiceAnalysis& a) {
+    const auto& notes = a.notes;
+    if (o.format == Format::json) {
+        JsonWriter j;
+        j.begin_object().key("file").value(o.file).key("sample_rate").value(a.info.sample_rate_hz, 3);
+        j.key("duration_s").value(a.info.dur_s(), 3).key("voices").value(1);
+        j.key("root_hz").value(a.root_hz, 4);
+        if (a.root_given) j.key("root_confidence").null();
+        else j.key("root_confidence").value(a.root.confidence, 3);
+        j.key("root_source").value(a.root_given ? "given" : "detected");
+        if (a.drone_hz > 0.0) j.key("drone_hz").value(a.drone_hz, 4);
+        else j.key("drone_hz").null();
+        j.key("targets").value(set.id).key("hop_s").value(a.hop_s, 7);
+        j.key("clipped_samples").value(static_cast<std::int64_t>(a.facts.clipped_samples));
+        j.key("notes").begin_array();
+        for (std::size_t i = 0; i < notes.size(); ++i) {
+            const pitch::NoteResult& n = notes[i];
+            j.begin_object().key("start_s").value(n.start_s, 4).key("end_s").value(n.end_s, 4);
+            j.key("f0_hz").value(n.centre_f0_hz, 4).key("ratio").value(n.ratio, 6);
+            j.key("target").value(target_text(set, n.target_index)).key("target_name").value(target_name(set, n.target_index));
+            j.key("target_octaves").value(n.target_octaves);
+            j.key("dev_cents").value(n.dev_cents, 3).key("spread_cents").value(n.spread_cents, 3);
+            j.key("settle_s").value(n.settle_s, 3).key("beat_hz").value(n.beat_hz, 3);
+            j.key("beat_in_tune_hz").value(n.beat_in_tune_hz, 3);
+            if (n.partial_root > 0) j.key("partial_root").value(n.partial_root).key("partial_voice").value(n.partial_voice);
+            else j.key("partial_root").null().key("partial_voice").null();
+            j.key("own_partials");
+            if (n.own_partial_root > 0) j.begin_array().value(n.own_partial_root).value(n.own_partial_voice).end_array();
+            else j.null();
+            j.key("vibrato_hz").value(n.vibrato ? n.vibrato_rate_hz : 0.0, 2);
+            j.key("vibrato_cents").value(n.vibrato ? n.vibrato_depth_cents : 0.0, 2);
+            j.key("frames").value(n.frames).key("clipped").value(a.notes_clipped[i] > 0).end_object();
+        }
+        j.end_array();
+        add_summary_json(j, set, a.summary, false);
+        j.end_object();
+        std::printf("%s\n", j.str().c_str());
+        return;
+    }
+    if (o.format == Format::csv) {
+        std::printf("start_s,end_s,f0_hz,ratio,target,target_name,dev_cents,spread_cents,settle_s,beat_hz,partial_root,partial_voice,beat_in_tune_hz\n");
+        auto num = [](double v, int d) { return std::isfinite(v) ? pitch::format_trimmed(v, d) : std::string(); };
+        for (const auto& n : notes)
+            std::printf("%s,%s,%s,%s,%s,%s,%s,%s,%s,%s,%s,%s,%s\n", num(n.start_s, 4).c_str(), num(n.end_s, 4).c_str(),
+                        num(n.centre_f0_hz, 4).c_str(), num(n.ratio, 6).c_str(), csv_field(target_text(set, n.target_index)).c_str(),
+                        csv_field(target_name(set, n.target_index)).c_str(), num(n.dev_cents, 3).c_str(),
+                        num(n.spread_cents, 3).c_str(), num(n.settle_s, 3).c_str(), num(n.beat_hz, 3).c_str(),
+                        n.partial_root > 0 ? std::to_string(n.partial_root).c_str() : "",
+                        n.partial_voice > 0 ? std::to_string(n.partial_voice).c_str() : "", num(n.beat_in_tune_hz, 3).c_str());
+        return;
+    }
+    std::printf("%s: %s at %s Hz, one voice against a drone\n", o.file.c_str(), duration_text(a.info.dur_s()).c_str(),
+                pitch::format_trimmed(a.info.sample_rate_hz, 0).c_str());
+    std::printf("%s", root_words(a, o.root, o.a4_hz).c_str());
+    if (!a.root_given)
+        std::printf(" (%d harmonics agree within %s cents)", a.root.harmonics_used, pitch::format_trimmed(a.root.spread_cents, 3).c_str());
+    std::printf("\n");
+    std::printf("targets: %s (%s)\n\n", set.id.c_str(), set.title.c_str());
+    if (notes.empty()) {
+        std::printf("no held notes found\n");
+        return;
+    }
+    const bool drone = a.drone_hz > 0.0;
+    std::printf("%4s %8s %8s %10s %8s  %-12s %-24s %8s %8s %8s %8s %6s  %s\n", "#", "start s", "end s", "f0 Hz", "ratio", "target",
+                "name", "dev c", "spread c", "settle s", "beat Hz", "pair", "heard");
+    int k = 0;
+    for (std::size_t i = 0; i < notes.size(); ++i) {
+        const pitch::NoteResult& n = notes[i];
+        std::string tgt = target_text(set, n.target_index);
+        if (n.target_octaves != 0) tgt += (n.target_octaves > 0 ? " +" : " ") + std::to_string(n.target_octaves) + "oct";
+        std::string name = target_name(set, n.target_index);
+        if (name.size() > 24) name = name.substr(0, 23) + "~";
+        const std::string settle = std::isfinite(n.settle_s) ? pitch::format_trimmed(n.settle_s, 2) : "never";
+        const std::string pair = n.partial_root > 0 ? std::to_string(n.partial_root) + ":" + std::to_string(n.partial_voice) : "-";
+        char beat[32] = "-";
+        if (std::isfinite(n.beat_hz)) std::snprintf(beat, sizeof beat, "%.2f", n.beat_hz);
+        std::printf("%4d %8.3f %8.3f %10.3f %8.4f  %-12s %-24s %+8.1f %8.1f %8s %8s %6s  %s%s\n", ++k, n.start_s, n.end_s,
+                    n.centre_f0_hz, n.ratio, tgt.c_str(), name.c_str(), n.dev_cents, n.spread_cents, settle.c_str(), beat,
+                    pair.c_str(), beat_heard_word(n.beat_hz, drone).c_str(), a.notes_clipped[i] > 0 ? "  clipped" : "");
+    }
+    const pitch::BeatBands bands;
+    std::printf("\ndev: vibrato centre minus target (+ sharp); spread: standard deviation of the held pitch;\n"
+                "settle: onset until the centre stays within 5 cents; beat: the rate of the partials a listener hears\n"
+                "beat (pair: root partial:voice partial; a simpler ratio's pair where the target's own lies too high);\n"
+                "heard: still below %s Hz, countable below %s Hz, flutter to %s Hz, rough above%s.\n",
+                pitch::format_trimmed(bands.still_below_hz, 2).c_str(), pitch::format_trimmed(bands.countable_below_hz, 2).c_str(),
+                pitch::format_trimmed(bands.rough_above_hz, 2).c_str(),
+                drone ? "" : " (no drone in the file: rates are those a drone at the root would give)");
+    print_summary_text(set, a.summary, false);
+}
+
+ReportData one_voice_report(const AnalyzeOptions& o, const pitch::TargetSet& set, const OneVoiceAnalysis& a) {
+    ReportData d = report_of(set, a.notes, a.summary, false, [](const pitch::NoteResult& n) {
+        return ReportMark{n.start_s, n.end_s, n.cents_above_root, n.target_cents, n.dev_cents};
+    });
+    d.title = base_name(o.file);
+    d.subtitle = root_words(a, o.root, o.a4_hz) + "   \u00b7   targets: " + set.title + "   \u00b7   analysed " + today_text();
+    d.axis_label = "cents above the root";
+    d.mark_word = "note";
+    d.dur_s = a.info.dur_s();
+    d.trace = &a.trace;
+    return d;
+}
+
+// ---------------------------------------------------------------------------
+// Two voices
+// ---------------------------------------------------------------------------
+const char* beat_source_name(pitch::BeatSource s) {
+    switch (s) {
+        case pitch::BeatSource::frequency_difference: return "frequency_difference";
+        case pitch::BeatSource::envelope: return "envelope";
+        case pitch::BeatSource::slower_than_history: return "slower_than_history";
+        case pitch::BeatSource::none: break;
+    }
+    return "none";
+}
+
+void print_two_voices(const AnalyzeOptions& o, const pitch::TargetSet& set, const TwoVoiceAnalysis& a) {
+    const auto& dyads = a.dyads;
+    if (o.format == Format::json) {
+        JsonWriter j;
+        j.begin_object().key("file").value(o.file).key("sample_rate").value(a.info.sample_rate_hz, 3);
+        j.key("duration_s").value(a.info.dur_s(), 3).key("voices").value(2);
+        j.key("targets").value(set.id).key("hop_s").value(a.hop_s, 7);
+        j.key("clipped_samples").value(static_cast<std::int64_t>(a.facts.clipped_samples));
+        j.key("intervals").begin_array();
+        for (const auto& d : dyads) {
+            j.begin_object().key("start_s").value(d.start_s, 4).key("end_s").value(d.end_s, 4);
+            j.key("f_low_hz").value(d.f_low_hz, 4).key("f_high_hz").value(d.f_high_hz, 4);
+            j.key("interval_cents").value(d.interval_cents, 3).key("ratio").value(d.f_high_hz / d.f_low_hz, 6);
+            j.key("target").value(target_text(set, d.target_index)).key("target_name").value(target_name(set, d.target_index));
+            j.key("target_octaves").value(d.target_octaves);
+            j.key("dev_cents").value(d.dev_cents, 3).key("spread_cents").value(d.spread_cents, 3);
+            j.key("partial_low").value(d.partial_low).key("partial_high").value(d.partial_high);
+            j.key("predicted_beat_hz").value(d.predicted_beat_hz, 3).key("measured_beat_hz").value(d.measured_beat_hz, 3);
+            j.key("beat_source").value(beat_source_name(d.beat_source));
+            j.key("clipped").value(d.clipped_frames > 0).end_object();
+        }
+        j.end_array();
+        add_summary_json(j, set, a.summary, true);
+        j.end_object();
+        std::printf("%s\n", j.str().c_str());
+        return;
+    }
+    auto num = [](double v, int d) { return std::isfinite(v) ? pitch::format_trimmed(v, d) : std::string(); };
+    if (o.format == Format::csv) {
+        std::printf("start_s,end_s,f_low_hz,f_high_hz,interval_cents,target,target_name,dev_cents,spread_cents,predicted_beat_hz,measured_beat_hz\n");
+        for (const auto& d : dyads)
+            std::printf("%s,%s,%s,%s,%s,%s,%s,%s,%s,%s,%s\n", num(d.start_s, 4).c_str(), num(d.end_s, 4).c_str(),
+                        num(d.f_low_hz, 4).c_str(), num(d.f_high_hz, 4).c_str(), num(d.interval_cents, 3).c_str(),
+                        csv_field(target_text(set, d.target_index)).c_str(), csv_field(target_name(set, d.target_index)).c_str(),
+                        num(d.dev_cents, 3).c_str(), num(d.spread_cents, 3).c_str(), num(d.predicted_beat_hz, 3).c_str(),
+                        num(d.measured_beat_hz, 3).c_str());
+        return;
+    }
+    std::printf("%s: %s at %s Hz, two voices\n", o.file.c_str(), duration_text(a.info.dur_s()).c_str(),
+                pitch::format_trimmed(a.info.sample_rate_hz, 0).c_str());
+    std::printf("targets: %s (%s)\n\n", set.id.c_str(), set.title.c_str());
+    if (dyads.empty()) {
+        std::printf("no held intervals found\n");
+        return;
+    }
+    std::printf("%4s %8s %8s %9s %9s %9s  %-12s %-22s %8s %8s %9s %9s\n", "#", "start s", "end s", "low Hz", "high Hz",
+                "cents", "target", "name", "dev c", "spread c", "beat Hz", "measured");
+    int k = 0;
+    for (const auto& d : dyads) {
+        std::string tgt = target_text(set, d.target_index);
+        if (d.target_octaves != 0) tgt += (d.target_octaves > 0 ? " +" : " ") + std::to_string(d.target_octaves) + "oct";
+        std::string name = target_name(set, d.target_index);
+        if (name.size() > 22) name = name.substr(0, 21) + "~";
+        const std::string meas = std::isfinite(d.measured_beat_hz) ? pitch::format_trimmed(d.measured_beat_hz, 2) : "-";
+        std::printf("%4d %8.3f %8.3f %9.3f %9.3f %9.2f  %-12s %-22s %+8.1f %8.1f %9.2f %9s%s\n", ++k, d.start_s, d.end_s,
+                    d.f_low_hz, d.f_high_hz, d.interval_cents, tgt.c_str(), name.c_str(), d.dev_cents, d.spread_cents,
+                    d.predicted_beat_hz, meas.c_str(), d.clipped_frames > 0 ? "  clipped" : "");
+    }
+    std::printf("\ndev: interval minus target (+ wide); beat Hz: |q f_high - p f_low| from the f0s, for the partials p and q\n"
+                "a listener hears (a simpler ratio's where the target's own lie above the 12th or 4 kHz); measured: from those partials.\n");
+    print_summary_text(set, a.summary, true);
+}
+
+ReportData two_voice_report(const AnalyzeOptions& o, const pitch::TargetSet& set, const TwoVoiceAnalysis& a) {
+    ReportData d = report_of(set, a.dyads, a.summary, true, [](const pitch::DyadResult& y) {
+        return ReportMark{y.start_s, y.end_s, y.interval_cents, y.target_cents, y.dev_cents};
+    });
+    d.title = base_name(o.file);
+    d.subtitle = "two voices   \u00b7   targets: " + set.title + "   \u00b7   analysed " + today_text();
+    d.axis_label = "cents above the low voice";
+    d.mark_word = "interval";
+    d.dur_s = a.info.dur_s();
+    d.trace = &a.trace;
+    return d;
+}
+
+// ---------------------------------------------------------------------------
+// The command
+// ---------------------------------------------------------------------------
+int run_analyze(const AnalyzeOptions& o) {
+    pitch::check_a4(o.a4_hz);
+    if (o.voices != 1 && o.voices != 2) throw UsageError("--voices " + std::to_string(o.voices) + ": choose 1 or 2");
+    if (o.channel < 0) throw Error("--channel " + std::to_string(o.channel) + ": channels are numbered from 1");
+    if (o.voices == 2 && o.root_set)
+        throw UsageError("--root: with --voices 2 the interval is measured between the two voices; leave --root out");
+    AnalysisRequest req;
+    req.path = o.file;
+    req.channel = o.channel - 1;
+    if (o.voices == 1 && pitch::trim(o.root) != "auto") {
+        req.root_hz = pitch::parse_root(o.root, o.a4_hz);
+    }
+    if (!o.lowest.empty()) {
+        if (o.voices == 2) throw UsageError("--lowest works with one voice; two voices are followed from 60 Hz");
+        req.lowest_hz = parse_lowest(o.lowest, o.a4_hz);
+    }
+    req.targets = load_target_set(o.targets);
+    if (req.targets.targets.empty()) throw Error(o.targets + ": the target set has no targets");
+    check_report_path(o.report);
+    req.keep_trace = !o.report.empty();
+
+    double dur_s = 0.0;
+    {
+        audio::SoundReader probe(o.file, req.channel, 1);
+        dur_s = probe.info().dur_s();
+    }
+    ProgressBar bar(base_name(o.file), dur_s > kProgressAfterS);
+    const ProgressFn progress = [&bar](double f, const char* stage) { bar.update(f, stage); };
+
+    if (o.voices == 1) {
+        const OneVoiceAnalysis a = analyze_one_voice(req, progress);
+        bar.clear();
+        warn_clipping(a.facts, o.file);
+        print_one_voice(o, req.targets, a);
+        if (!o.report.empty()) write_report(o.report, one_voice_report(o, req.targets, a));
+    } else {
+        const TwoVoiceAnalysis a = analyze_two_voices(req, progress);
+        bar.clear();
+        warn_clipping(a.facts, o.file);
+        print_two_voices(o, req.targets, a);
+        if (!o.report.empty()) write_report(o.report, two_voice_report(o, req.targets, a));
+    }
+    return 0;
+}
+
+}  // namespace
+
+void register_analyze(CLI::App& app, Runner& run) {
+    auto o = std::make_shared<AnalyzeOptions>();
+    CLI::App* sub = app.add_subcommand("analyze", "Note by note, how pure the intervals of a recorded take were");
+    sub->add_option("FILE", o->file, "Sound file (WAV, FLAC, AIFF, Ogg)")->required();
+    CLI::Option* root = sub->add_option("--root", o->root, "The drone's root: auto (found in the file, default), a note (A2) or Hz (110)");
+    sub->add_option("--a4", o->a4_hz, "A4 reference in Hz for note names (400-480, default 440)");
+    sub->add_option("--targets", o->targets, "Target set: a built-in name or a .toml file (default 7-limit)");
+    sub->add_option("--voices", o->voices, "1: a voice against a drone (default); 2: two voices from one microphone");
+    add_format_option(*sub, o->format, {Format::text, Format::json, Format::csv});
+    sub->add_option("--report", o->report, "Also draw a printable page (PNG) of the trace, notes and summary");
+    sub->add_option("--channel", o->channel, "Channel to analyse, from 1 (default: all channels mixed)");
+    sub->add_option("--lowest", o->lowest, "One voice: the lowest note to follow, as a note (E1) or in Hz (30-200; default 55)");
+    sub->callback([o, root, &run] {
+        o->root_set = root->count() > 0;
+        run = [o] { return run_analyze(*o); };
+    });
+}
+
+}  // namespace beatless::ui

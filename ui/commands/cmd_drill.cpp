@@ -1,0 +1,396 @@
+// beatless drill — run a drill without a screen and print each attempt's score.
+//
+//   beatless drill NAME [--demo [--hold CENTS] [--seed N]] [--input DEV] [--output DEV]
+//                  [--listener CENTS] [--root NOTE|HZ] [--a4 HZ] [--attempts N]
+//                  [--log FILE] [--format text|json]
+//
+// NAME is a built-in drill (hold-tritones, ear-tritones, ...) or a .toml
+// file. Hold drills listen to the input (a device, or --demo: the demo
+// performer sings the drill's targets on its schedule, seeded). Ear drills
+// need someone to answer: here that is a simulated listener of known
+// threshold (--listener CENTS, ui/session/listener_model.h); a person answers on
+// the Drills screen. With --demo (hold) or an ear drill, and no --output,
+// nothing can be heard, so the drill runs in simulated time, as fast as the
+// machine allows; otherwise in real time, the drone and the tones on the
+// output device. Every attempt goes to the practice log like the screen's
+// (the data folder's, or --log FILE); when the log cannot be written, the
+// attempts are kept and, at the end, written to a CSV file that
+// `beatless history --import` takes, and the command says so in one line
+// and exits 1. Scores go to stdout (text lines, or one JSON object per
+// attempt), diagnostics to stderr.
+#include "audio/demo_performer.h"
+#include "audio/device.h"
+#include "audio/engine.h"
+#include "pitch/base/error.h"
+#include "ui/session/usage_error.h"
+#include "ui/session/listener_model.h"
+#include "pitch/theory/notes.h"
+#include "pitch/base/text.h"
+#include "ui/commands/commands.h"
+#include "ui/session/drill_runner.h"
+#include "ui/session/json.h"
+#include "ui/session/log_writer.h"
+#include "ui/session/paths.h"
+
+#include <atomic>
+#include <chrono>
+#include <csignal>
+#include <cstdio>
+#include <filesystem>
+#include <fstream>
+#include <memory>
+#include <optional>
+#include <thread>
+
+namespace beatless::ui {
+
+namespace {
+
+namespace fs = std::filesystem;
+
+std::atomic<bool> g_stop{false};
+extern "C" void on_drill_signal(int) { g_stop.store(true); }
+
+constexpr double kSimRateHz = 48000.0;
+constexpr std::size_t kSimBlock = 256;
+constexpr double kDemoVibratoScale = 0.25;  // a singer tuning to a drone keeps her vibrato narrow (common practice)
+
+struct DrillCmd {
+    std::string name;
+    bool demo = false;
+    std::optional<double> hold_dev_cents;
+    std::uint64_t seed = 7;
+    std::optional<double> listener_cents;
+    std::string input;
+    std::string output;
+    std::string root;
+    std::optional<double> a4_hz;
+    int attempts = 0;
+    std::string log_file;
+    Format format = Format::text;
+    std::string lowest;
+};
+
+audio::EngineConfig engine_config(const DrillCmd& o) {
+    audio::EngineConfig ec;
+    if (!o.lowest.empty()) ec.f_min_hz = parse_lowest(o.lowest, o.a4_hz.value_or(pitch::kDefaultA4Hz));
+    return ec;
+}
+
+// ---- Printing --------------------------------------------------------------
+
+std::string hold_line(const Drill& d, const HoldResult& r, std::size_t of, Format f) {
+    const ui::HoldScore& s = r.score;
+    if (f == Format::json) {
+        JsonWriter j;
+        j.begin_object();
+        j.key("drill").value(d.id).key("kind").value("hold");
+        j.key("index").value(static_cast<std::int64_t>(r.index + 1)).key("of").value(static_cast<std::int64_t>(of));
+        j.key("target").value(r.target.target.interval.str());
+        j.key("name").value(r.target.target.name);
+        j.key("tolerance_cents").value(r.tolerance_cents, 3);
+        j.key("locked").value(s.locked);
+        j.key("time_to_lock_s").value(s.time_to_lock_s, 4);
+        j.key("mean_dev_cents").value(s.mean_dev_cents, 3);
+        j.key("spread_cents").value(s.spread_cents, 3);
+        j.key("in_tolerance_share").value(s.in_tolerance_share, 4);
+        j.key("voiced_share").value(s.voiced_share, 4);
+        j.end_object();
+        return j.str();
+    }
+    std::string line = "hold " + std::to_string(r.index + 1) + " of " + std::to_string(of) + "  " + r.target.target.interval.str();
+    if (!r.target.target.name.empty()) line += " " + r.target.target.name;
+    line += ": " + hold_summary_text(s, r.tolerance_cents);
+    if (const std::string sp = hold_spread_text(s); !sp.empty()) line += "; " + sp;
+    return line;
+}
+
+std::string ear_line(const Drill& d, const EarResult& r, double listener_cents, Format f) {
+    if (f == Format::json) {
+        JsonWriter j;
+        j.begin_object();
+        j.key("drill").value(d.id).key("kind").value("ear");
+        j.key("choices").value(d.targets_text());
+        j.key("threshold_cents").value(r.threshold_cents, 3);
+        j.key("trials").value(static_cast<std::int64_t>(r.trials));
+        j.key("correct_share").value(r.correct_share, 4);
+        j.key("complete").value(r.complete);
+        j.key("listener_cents").value(listener_cents, 3);
+        j.end_object();
+        return j.str();
+    }
+    return d.id + ": " + ear_summary_text(r);
+}
+
+// ---- The practice log at the end --------------------------------------------
+
+// One line on stderr; the unsaved attempts into a CSV file. Returns the exit code.
+int report_log(const DrillRunner& runner, const LogWriter& writer) {
+    const std::size_t made = runner.attempts_made();
+    if (writer.pending() == 0) {
+        if (made > 0)
+            std::fprintf(stderr, "beatless: %zu %s saved to %s\n", made, made == 1 ? "attempt" : "attempts", writer.path().c_str());
+        return 0;
+    }
+    const std::string line = keep_unsaved(writer, runner.log_warning());
+    std::fprintf(stderr, "beatless: %s\n", line.c_str());
+    return 1;
+}
+
+// ---- Checks -----------------------------------------------------------------
+
+void check(const DrillCmd& o, const Drill& d) {
+    if (o.demo && !o.input.empty()) throw UsageError("--demo and --input contradict each other; give one");
+    if (o.hold_dev_cents && !o.demo) throw UsageError("--hold works with --demo only");
+    if (o.hold_dev_cents && !(std::fabs(*o.hold_dev_cents) <= 100.0))
+        throw Error("--hold " + pitch::format_trimmed(*o.hold_dev_cents, 2) + ": out of range (-100 to 100 cents)");
+    if (o.attempts < 0) throw Error("--attempts " + std::to_string(o.attempts) + ": must not be negative");
+    if (d.mode == DrillMode::hold) {
+        if (o.listener_cents) throw UsageError("--listener is for ear drills; " + d.id + " is a hold drill");
+        return;
+    }
+    if (o.demo && !o.listener_cents)
+        throw UsageError("--demo: the demo performer sings hold drills; for the ear drill " + d.id +
+                         " give --listener CENTS (a simulated listener) instead");
+    if (!o.listener_cents)
+        throw UsageError("drill " + d.id +
+                         " is an ear drill and needs a listener: answer it on the Drills screen, or give --listener CENTS for a "
+                         "simulated listener");
+    if (!o.input.empty()) throw UsageError("--input: an ear drill listens to no input (" + d.id + " plays questions and waits for answers)");
+    if (o.attempts > 0) throw UsageError("--attempts counts holds; " + d.id + " is an ear drill (one session)");
+}
+
+// ---- Running ----------------------------------------------------------------
+
+struct Printer {
+    const Drill& drill;
+    const DrillRunner& runner;
+    Format format;
+    std::string header;  // one line on stderr once the drill is under way
+    std::size_t printed = 0;
+    void begin() {
+        if (!header.empty()) std::fprintf(stderr, "beatless: %s\n", header.c_str());
+        header.clear();
+    }
+    void operator()() {
+        while (printed < runner.results().size()) {
+            std::printf("%s\n", hold_line(drill, runner.results()[printed], runner.hold_count(), format).c_str());
+            ++printed;
+        }
+        std::fflush(stdout);
+    }
+};
+
+// A hold drill in simulated time: the demo performer rendered block by block.
+void run_hold_simulated(const Drill& d, DrillRunner& runner, const DrillCmd& o, Printer& print) {
+    audio::DemoConfig dc;
+    dc.sample_rate_hz = kSimRateHz;
+    dc.root_hz = d.drone.root_hz;
+    dc.seed = o.seed;
+    dc.script = demo_script(runner);
+    dc.vibrato_scale = kDemoVibratoScale;
+    for (const auto& n : dc.script) dc.target_cents.push_back(n.target_cents);
+    if (dc.target_cents.empty()) dc.target_cents.push_back(0.0);
+    if (o.hold_dev_cents) {
+        dc.hold = true;
+        dc.hold_dev_cents = *o.hold_dev_cents;
+    }
+    audio::Engine engine(engine_config(o), nullptr);
+    engine.use_demo(dc);
+    pitch::ReadingConfig rc;
+    rc.root_hz = d.drone.root_hz;
+    engine.set_readings(rc, one_target_set(*runner.current_target()));
+    engine.set_drone(drill_drone(d));
+    engine.start(false);
+    audio::DemoPerformer performer(dc);
+    std::vector<float> block(kSimBlock);
+    pitch::Reading got[512];
+    std::size_t target_at = runner.hold_index();
+    print.begin();
+    runner.start(0.0);
+    const double limit_s = runner.planned_holds().empty() ? 1.0 : runner.planned_holds().back().start_s + 60.0;
+    while (!runner.done() && engine.stream_time_s() < limit_s) {
+        performer.render(block);
+        engine.capture_block(block);
+        engine.analyse_available();
+        for (std::size_t k; (k = engine.take_readings(got)) > 0;)
+            for (std::size_t i = 0; i < k; ++i) runner.feed(got[i]);
+        runner.advance(engine.stream_time_s());
+        for (const ToneRequest& t : runner.take_tones()) engine.sound_tone(t.freq_hz, t.dur_s);
+        if (runner.hold_index() != target_at && runner.current_target()) {
+            target_at = runner.hold_index();
+            engine.set_readings(rc, one_target_set(*runner.current_target()));
+        }
+        print();
+    }
+    if (!runner.done()) runner.stop(engine.stream_time_s());
+    engine.stop();
+    print();
+}
+
+// An ear drill in simulated time: nothing sounds; the listener answers when asked.
+void run_ear_simulated(DrillRunner& runner, ui::SimulatedListener& listener, Printer& print) {
+    print.begin();
+    double now = 0.0;
+    const double step = 0.01;
+    runner.start(now);
+    while (!runner.done() && now < 24 * 3600.0) {
+        now += step;
+        runner.advance(now);
+        runner.take_tones();
+        if (runner.phase() == DrillPhase::ear_answer) {
+            const ui::EarQuestion& q = *runner.question();
+            const bool right = listener.answers_right(q.diff_cents);
+            runner.answer(right ? q.correct_answer : 1 - q.correct_answer, now);
+        }
+    }
+}
+
+// Any drill in real time on the audio devices.
+void run_realtime(const Drill& d, DrillRunner& runner, const DrillCmd& o, Printer& print, ui::SimulatedListener* listener) {
+    const bool hold = d.mode == DrillMode::hold;
+    auto system = audio::make_portaudio_system();
+    audio::Engine engine(engine_config(o), system.get());
+    engine.on_message([](const std::string& m) { std::fprintf(stderr, "beatless: %s\n", m.c_str()); });
+    audio::DemoConfig dc;
+    dc.root_hz = d.drone.root_hz;
+    dc.seed = o.seed;
+    dc.vibrato_scale = kDemoVibratoScale;
+    if (hold && o.demo) {
+        dc.script = demo_script(runner);
+        for (const auto& n : dc.script) dc.target_cents.push_back(n.target_cents);
+        if (o.hold_dev_cents) {
+            dc.hold = true;
+            dc.hold_dev_cents = *o.hold_dev_cents;
+        }
+    }
+    if (dc.target_cents.empty()) dc.target_cents.push_back(0.0);
+    if (hold && !o.demo) {
+        engine.open_input_device(o.input);
+    } else {
+        if (!hold) dc.script = {{1.0e6, 1.0, 0.0}};  // an ear drill listens to nothing: a silent stand-in input
+        engine.use_demo(dc);
+    }
+    engine.open_output_device(o.output);
+    pitch::ReadingConfig rc;
+    rc.root_hz = d.drone.root_hz;
+    engine.set_readings(rc, hold ? one_target_set(*runner.current_target()) : one_target_set(d.targets.front()));
+    engine.set_drone(drill_drone(d));
+    hearing_caution_once();
+    g_stop.store(false);
+    std::signal(SIGINT, on_drill_signal);
+    std::signal(SIGTERM, on_drill_signal);
+    engine.start();
+    print.begin();
+    std::size_t target_at = runner.hold_index();
+    runner.start(hold && o.demo ? 0.0 : engine.stream_time_s());
+    pitch::Reading got[512];
+    double answer_due = INFINITY;
+    while (!runner.done()) {
+        if (g_stop.load()) {
+            runner.stop(engine.stream_time_s());
+            break;
+        }
+        for (std::size_t k; (k = engine.take_readings(got)) > 0;)
+            for (std::size_t i = 0; i < k; ++i) runner.feed(got[i]);
+        const double now = engine.stream_time_s();
+        runner.advance(now);
+        for (const ToneRequest& t : runner.take_tones()) engine.sound_tone(t.freq_hz, t.dur_s);
+        if (hold && runner.hold_index() != target_at && runner.current_target()) {
+            target_at = runner.hold_index();
+            engine.set_readings(rc, one_target_set(*runner.current_target()));
+        }
+        if (listener && runner.phase() == DrillPhase::ear_answer) {
+            if (!std::isfinite(answer_due)) answer_due = now + 0.4;  // a moment to think
+            if (now >= answer_due) {
+                const ui::EarQuestion& q = *runner.question();
+                const bool right = listener->answers_right(q.diff_cents);
+                runner.answer(right ? q.correct_answer : 1 - q.correct_answer, now);
+                answer_due = INFINITY;
+            }
+        }
+        engine.supervise();
+        print();
+        std::this_thread::sleep_for(std::chrono::milliseconds(10));
+    }
+    audio::DroneSettings quiet = engine.drone();
+    quiet.on = false;
+    engine.set_drone(quiet);
+    std::this_thread::sleep_for(std::chrono::milliseconds(120));  // the drone's 50 ms fade before the stream closes
+    engine.stop();
+    std::signal(SIGINT, SIG_DFL);
+    std::signal(SIGTERM, SIG_DFL);
+    print();
+}
+
+int run_drill(const DrillCmd& o) {
+    Drill d = load_drill(o.name);
+    check(o, d);
+    const double a4 = o.a4_hz ? pitch::check_a4(*o.a4_hz) : pitch::kDefaultA4Hz;
+    if (!o.root.empty()) d.drone.root_text = o.root;
+    if (!o.root.empty() || o.a4_hz) {
+        d.drone.root_hz = pitch::parse_root(d.drone.root_text, a4);
+        audio::DroneSettings probe;
+        probe.root_hz = d.drone.root_hz;
+        audio::check_drone_settings(probe);
+    }
+    std::optional<ui::SimulatedListener> listener;
+    if (o.listener_cents) {
+        ui::ListenerConfig lc;
+        lc.threshold_cents = *o.listener_cents;
+        lc.seed = o.seed;
+        try {
+            listener.emplace(lc);
+        } catch (const Error& e) {
+            throw Error("--listener " + pitch::format_trimmed(*o.listener_cents, 3) + ": " + e.what());
+        }
+    }
+    const fs::path log_path = o.log_file.empty() ? practice_log_path() : fs::path(o.log_file);
+    LogWriter writer(log_path);
+    RunnerConfig rc;
+    rc.seed = o.seed;
+    rc.max_holds = static_cast<std::size_t>(o.attempts);
+    rc.performer = o.demo ? kDemoPerformer : listener ? kSimulatedListener : "";
+    DrillRunner runner(d, rc, &writer);
+    Printer print{d, runner, o.format, {}};
+
+    const bool hold = d.mode == DrillMode::hold;
+    const bool simulated = o.output.empty() && o.input.empty() && (o.demo || !hold);
+    if (o.format == Format::text) {
+        std::string what = hold ? std::to_string(runner.hold_count()) + (runner.hold_count() == 1 ? " hold" : " holds") +
+                                      ", tolerance \xC2\xB1" + pitch::format_trimmed(d.tolerance_cents, 1) + " c"
+                                : "choices " + d.targets_text();
+        print.header = d.title + ": " + what + " over " + d.drone.root_text + " (" + pitch::format_trimmed(d.drone.root_hz, 2) + " Hz)" +
+                       (simulated ? ", in simulated time" : "");
+    }
+    if (hold && simulated) run_hold_simulated(d, runner, o, print);
+    else if (simulated) run_ear_simulated(runner, *listener, print);
+    else run_realtime(d, runner, o, print, listener ? &*listener : nullptr);
+    if (!hold && runner.ear_result()) std::printf("%s\n", ear_line(d, *runner.ear_result(), *o.listener_cents, o.format).c_str());
+    std::fflush(stdout);
+    return report_log(runner, writer);
+}
+
+}  // namespace
+
+void register_drill(CLI::App& app, Runner& run) {
+    auto o = std::make_shared<DrillCmd>();
+    CLI::App* sub = app.add_subcommand("drill", "Run a drill without a screen and print each attempt's score");
+    sub->add_option("name", o->name, "A built-in drill (hold-tritones, ear-tritones, ...) or a .toml file")->required();
+    sub->add_flag("--demo", o->demo, "Hold drills: the demo performer sings the drill (simulated time unless --output)");
+    sub->add_option("--hold", o->hold_dev_cents, "With --demo: she holds every target this many cents off, without vibrato");
+    sub->add_option("--seed", o->seed, "Seed of the demo performer, the shuffled order, the ear questions and the listener (default 7)");
+    sub->add_option("--listener", o->listener_cents,
+                    "Ear drills: a simulated listener who tells apart targets this many cents apart 70.7 % of the time");
+    sub->add_option("--input", o->input, "Input device: index or a unique part of its name (default: the system's)");
+    sub->add_option("--output", o->output, "Output device for the drone and the tones (the drill then runs in real time)");
+    sub->add_option("--root", o->root, "Drone root as a note (A2) or in Hz (110); default the drill's");
+    sub->add_option("--lowest", o->lowest, kLowestHelp);
+    sub->add_option("--a4", o->a4_hz, "A4 reference in Hz (400-480) for a root given as a note; default 440");
+    sub->add_option("--attempts", o->attempts, "Hold drills: stop after this many holds (default all)");
+    sub->add_option("--log", o->log_file, "Practice log file (default: the data folder's practice.sqlite3)");
+    add_format_option(*sub, o->format, false);
+    sub->callback([o, &run] { run = [o] { return run_drill(*o); }; });
+}
+
+}  // namespace beatless::ui

@@ -1,0 +1,332 @@
+// beatless listen — the live engine without a screen, readings as JSON lines.
+//
+//   beatless listen [--demo | --input-file FILE [--fast] | --input DEV]
+//                   [--root NOTE|HZ] [--a4 HZ] [--targets SET | --target R]
+//                   [--seconds S] [--drone | --no-drone] [--output DEV] ...
+//
+// One JSON object per reading on stdout: {"t", "f0_hz", "confidence",
+// "ratio", "target", "target_name", "dev_cents", "centre_dev_cents",
+// "beat_hz", "beat_partials": [root partial, voice partial], "beat_in_tune_hz",
+// "own_beat_hz", "own_partials"}, null where unvoiced or when nothing beats.
+// beat_*: the audible pair (pitch/theory/beats.h, audible_pair), the pair a listener
+// hears for the drone's timbre, and its rate now and exactly on target;
+// own_*: a detail, the target's own coinciding pair (729:512 for 729/512).
+// Diagnostics and a summary (overflows, underflows, latency) go to stderr. (`beatless --demo` with no subcommand opens the Practice screen.)
+// The drone is off unless --drone is given; with a file or the demo,
+// --drone means the input holds a drone at the root (the demo's microphone
+// hears it through a simulated room), and drone removal follows it.
+#include "audio/device.h"
+#include "audio/engine.h"
+#include "audio/timbre.h"
+#include "pitch/base/error.h"
+#include "ui/session/usage_error.h"
+#include "pitch/theory/interval.h"
+#include "pitch/theory/notes.h"
+#include "pitch/base/text.h"
+#include "ui/commands/commands.h"
+#include "ui/session/json.h"
+#include "ui/session/target_files.h"
+
+#include <atomic>
+#include <chrono>
+#include <cmath>
+#include <csignal>
+#include <cstdio>
+#include <cstdlib>
+#include <filesystem>
+#include <fstream>
+#include <memory>
+#include <thread>
+
+namespace beatless::ui {
+
+namespace {
+
+std::atomic<bool> g_interrupted{false};
+extern "C" void on_sigint(int) { g_interrupted.store(true); }
+
+enum class Printing { json, text };
+
+struct ListenOptions {
+    bool demo = false;
+    std::string input_file;
+    bool fast = false;
+    std::string input_dev;
+    std::string output_dev;
+    std::string root = "A2";
+    double a4_hz = pitch::kDefaultA4Hz;
+    std::string targets = "7-limit";
+    std::string target;
+    double seconds = 0.0;          // 0 = until the end or Ctrl-C
+    bool drone = false;
+    bool no_drone = false;
+    bool fifth = false;
+    bool octave = false;
+    std::string timbre = "round";
+    double level_db = audio::kDroneStartLevelDbfs;
+    bool no_removal = false;
+    double rate_hz = 0.0;
+    int block = 256;
+    double hop_ms = 5.0;
+    std::string lowest;
+    std::uint64_t seed = 7;
+};
+
+// Names of the targets in every octave, built once (not on the hot path).
+struct TargetText {
+    const pitch::TargetSet* set = nullptr;
+    std::string interval(const pitch::Reading& r) const {
+        if (r.target_index < 0) return {};
+        return pitch::shift_octaves(set->targets[static_cast<std::size_t>(r.target_index)].interval, r.target_octaves).str();
+    }
+    std::string name(const pitch::Reading& r) const {
+        if (r.target_index < 0) return {};
+        const pitch::Target& t = set->targets[static_cast<std::size_t>(r.target_index)];
+        return pitch::target_name_in_octave(t, r.target_octaves, interval_names());
+    }
+};
+
+std::string json_line(const pitch::Reading& r, const TargetText& tt) {
+    JsonWriter j;
+    j.begin_object();
+    j.key("t").value(r.t_s, 4);
+    if (r.voiced()) {
+        j.key("f0_hz").value(r.f0_hz, 4);
+        j.key("confidence").value(r.confidence, 3);
+        j.key("ratio").value(r.ratio, 6);
+        j.key("target").value(tt.interval(r));
+        const std::string name = tt.name(r);
+        if (name.empty()) j.key("target_name").null();
+        else j.key("target_name").value(name);
+        j.key("dev_cents").value(r.dev_cents, 3);
+        j.key("centre_dev_cents").value(r.centre_dev_cents, 3);
+        j.key("beat_hz").value(r.heard_beat_hz, 3);
+        if (r.heard_partial_root > 0) j.key("beat_partials").begin_array().value(r.heard_partial_root).value(r.heard_partial_voice).end_array();
+        else j.key("beat_partials").null();
+        j.key("beat_in_tune_hz").value(r.heard_beat_at_target_hz, 3);
+        j.key("own_beat_hz").value(r.beat_hz, 3);
+        if (r.beat_partial_root > 0) j.key("own_partials").begin_array().value(r.beat_partial_root).value(r.beat_partial_voice).end_array();
+        else j.key("own_partials").null();
+    } else {
+        j.key("f0_hz").null().key("confidence").value(r.confidence, 3);
+        for (const char* k : {"ratio", "target", "target_name", "dev_cents", "centre_dev_cents", "beat_hz", "beat_partials",
+                              "beat_in_tune_hz", "own_beat_hz", "own_partials"})
+            j.key(k).null();
+    }
+    j.end_object();
+    return j.str();
+}
+
+std::string signed_num(double v, int decimals) {
+    char buf[32];
+    std::snprintf(buf, sizeof buf, "%+.*f", decimals, v);
+    return buf;
+}
+
+// "t 3.20 s  D4+12  7/5 lesser septimal tritone  -4.3 c (centre -2.1 c)  beat 1.8 Hz (7:5)"
+std::string text_line(const pitch::Reading& r, const TargetText& tt, double a4_hz) {
+    char head[32];
+    std::snprintf(head, sizeof head, "t %5.2f s  ", r.t_s);
+    std::string s = head;
+    if (!r.voiced()) return s + "(no pitch)";
+    const pitch::NearestNote n = pitch::hz_to_note(r.f0_hz, a4_hz);
+    s += n.name + signed_num(n.offset_cents, 0) + "  " + tt.interval(r);
+    if (const std::string name = tt.name(r); !name.empty()) s += " " + name;
+    s += "  " + signed_num(r.dev_cents, 1) + " c";
+    if (std::isfinite(r.centre_dev_cents)) s += " (centre " + signed_num(r.centre_dev_cents, 1) + " c)";
+    if (std::isfinite(r.heard_beat_hz))
+        s += "  beat " + pitch::format_trimmed(std::round(r.heard_beat_hz * 10.0) / 10.0, 1) + " Hz (" + std::to_string(r.heard_partial_root) +
+             ":" + std::to_string(r.heard_partial_voice) + ")";
+    return s;
+}
+
+void check_options(const ListenOptions& o) {
+    const int sources = (o.demo ? 1 : 0) + (o.input_file.empty() ? 0 : 1) + (o.input_dev.empty() ? 0 : 1);
+    if (sources > 1) throw UsageError("choose one input: --demo, --input-file or --input");
+    if (o.fast && o.input_file.empty()) throw UsageError("--fast works with --input-file only");
+    if (o.drone && o.no_drone) throw UsageError("--drone and --no-drone contradict each other");
+    if (!o.target.empty() && o.targets != "7-limit") throw UsageError("--target and --targets contradict each other; give one");
+    if (!(o.seconds >= 0.0 && o.seconds <= 24 * 3600.0))
+        throw Error("--seconds " + pitch::format_trimmed(o.seconds, 3) + ": out of range (0 to 86400)");
+    if (o.block < 16 || o.block > 8192) throw Error("--block " + std::to_string(o.block) + ": out of range (16 to 8192 frames)");
+    if (!(o.hop_ms >= 1.0 && o.hop_ms <= 50.0)) throw Error("--hop-ms " + pitch::format_trimmed(o.hop_ms, 2) + ": out of range (1 to 50)");
+    if (o.rate_hz != 0.0 && !(o.rate_hz >= 8000.0 && o.rate_hz <= 192000.0))
+        throw Error("--rate " + pitch::format_trimmed(o.rate_hz, 1) + ": out of range (8000 to 192000 Hz)");
+}
+
+pitch::TargetSet chosen_targets(const ListenOptions& o) {
+    if (o.target.empty()) return load_target_set(o.targets);
+    pitch::TargetSet s;
+    s.id = "fixed";
+    s.title = "Fixed target";
+    pitch::Target t{pitch::parse_interval(o.target), ""};
+    if (const std::string* n = interval_names().find(t.interval)) t.name = *n;
+    s.targets.push_back(std::move(t));
+    return s;
+}
+
+std::string stream_text(const char* dir, const std::string& name, const audio::StreamInfo& s, double latency_s) {
+    return std::string(dir) + " '" + name + "' (" + s.host_api + "): " + pitch::format_trimmed(s.sample_rate_hz, 0) + " Hz, " +
+           std::to_string(s.block_len_frames) + "-frame blocks, device latency " + pitch::format_trimmed(1000.0 * latency_s, 1) + " ms";
+}
+
+int run_live(const ListenOptions& o, Printing printing) {
+    check_options(o);
+    pitch::check_a4(o.a4_hz);
+    const double root_hz = pitch::parse_root(o.root, o.a4_hz);
+    const pitch::TargetSet targets = chosen_targets(o);
+    const audio::Timbre timbre = audio::parse_timbre(o.timbre);
+    audio::DroneSettings ds;
+    ds.on = o.drone;
+    ds.root_hz = root_hz;
+    ds.timbre = timbre;
+    ds.fifth = o.fifth;
+    ds.octave = o.octave;
+    ds.level_dbfs = o.level_db;
+    audio::check_drone_settings(ds);
+
+    audio::EngineConfig ec;
+    ec.sample_rate_hz = o.rate_hz;
+    ec.block_len_frames = static_cast<std::size_t>(o.block);
+    ec.hop_s = o.hop_ms / 1000.0;
+    ec.drone_removal = !o.no_removal;
+    if (!o.lowest.empty()) ec.f_min_hz = parse_lowest(o.lowest, o.a4_hz);
+
+    const bool device_input = !o.demo && o.input_file.empty();
+    const bool play_drone = o.drone && !o.fast && (device_input || o.demo || !o.output_dev.empty());
+    std::unique_ptr<audio::AudioSystem> system;
+    if (device_input || play_drone) system = audio::make_portaudio_system();
+    audio::Engine engine(ec, system.get());
+    engine.on_message([](const std::string& m) { std::fprintf(stderr, "beatless: %s\n", m.c_str()); });
+
+    std::string what;
+    if (o.demo) {
+        audio::DemoConfig dc;
+        dc.root_hz = root_hz;
+        dc.seed = o.seed;
+        for (const auto& t : targets.targets) dc.target_cents.push_back(t.interval.cents());
+        engine.use_demo(dc);
+        what = "the demo performer";
+    } else if (!o.input_file.empty()) {
+        engine.use_file(o.input_file);
+        engine.set_input_has_drone(o.drone);
+        what = "'" + o.input_file + "'";
+    } else {
+        engine.open_input_device(o.input_dev);
+        what = "the input device";
+    }
+    if (play_drone) {
+        try {
+            engine.open_output_device(o.output_dev);
+        } catch (const Error& e) {
+            if (!o.output_dev.empty() || device_input) throw;
+            std::fprintf(stderr, "beatless: %s; the drone is not heard\n", e.what());
+        }
+    }
+    pitch::ReadingConfig rc;
+    rc.root_hz = root_hz;
+    rc.a4_hz = o.a4_hz;
+    rc.audible.partials_a = audio::timbre_highest_partial(timbre);
+    engine.set_readings(rc, targets);
+    engine.set_drone(ds);
+    if (o.drone && (play_drone || o.demo)) hearing_caution_once();
+
+    TargetText tt{&targets};
+    std::uint64_t printed = 0;
+    double last_text_t = -1.0;
+    auto emit = [&](const pitch::Reading& r) {
+        if (o.seconds > 0.0 && r.t_s > o.seconds) return;
+        if (printing == Printing::json) {
+            std::fputs(json_line(r, tt).c_str(), stdout);
+            std::fputc('\n', stdout);
+        } else {
+            if (r.t_s - last_text_t < 0.25) return;
+            last_text_t = r.t_s;
+            std::printf("%s\n", text_line(r, tt, o.a4_hz).c_str());
+        }
+        ++printed;
+    };
+
+    if (o.fast) {
+        std::fprintf(stderr, "beatless: analysing %s as fast as possible\n", what.c_str());
+        engine.run_fast(emit, o.seconds);
+    } else {
+        g_interrupted.store(false);
+        std::signal(SIGINT, on_sigint);
+        std::signal(SIGTERM, on_sigint);
+        engine.start();
+        std::fprintf(stderr, "beatless: listening to %s at %s Hz; root %s, targets %s%s\n", what.c_str(),
+                     pitch::format_trimmed(engine.sample_rate_hz(), 0).c_str(), root_echo(o.root, root_hz).c_str(),
+                     targets.id.c_str(), !o.drone ? "" : o.input_file.empty() ? ", drone on" : ", the recording's drone removed");
+        if (device_input) {
+            const audio::StreamInfo si = engine.input_info();
+            std::fprintf(stderr, "beatless: %s\n", stream_text("input", si.input_name, si, si.input_latency_s).c_str());
+        }
+        if (engine.output_info().sample_rate_hz > 0) {
+            const audio::StreamInfo so = engine.output_info();
+            std::fprintf(stderr, "beatless: %s\n", stream_text("output", so.output_name, so, so.output_latency_s).c_str());
+        }
+        pitch::Reading buf[512];
+        while (!g_interrupted.load()) {
+            for (std::size_t k; (k = engine.take_readings(buf)) > 0;)
+                for (std::size_t i = 0; i < k; ++i) emit(buf[i]);
+            std::fflush(stdout);
+            engine.supervise();
+            if (o.seconds > 0.0 && engine.stream_time_s() >= o.seconds + 0.1) break;
+            if (engine.status().finished) {
+                for (std::size_t k; (k = engine.take_readings(buf)) > 0;)
+                    for (std::size_t i = 0; i < k; ++i) emit(buf[i]);
+                break;
+            }
+            std::this_thread::sleep_for(std::chrono::milliseconds(20));
+        }
+        engine.stop();
+        std::signal(SIGINT, SIG_DFL);
+        std::signal(SIGTERM, SIG_DFL);
+    }
+    std::fflush(stdout);
+    const audio::EngineStatus st = engine.status();
+    std::fprintf(stderr,
+                 "beatless: %llu readings from %.2f s of audio; ring overflows %llu, device overflows %llu, underflows %llu; "
+                 "latency %.1f ms (max %.1f ms)\n",
+                 static_cast<unsigned long long>(printed), engine.stream_time_s(), static_cast<unsigned long long>(st.ring_overflow_events),
+                 static_cast<unsigned long long>(st.device_input_overflows), static_cast<unsigned long long>(st.device_output_underflows),
+                 1000.0 * st.latency_s, 1000.0 * st.latency_max_s);
+    return 0;
+}
+
+void add_live_options(CLI::App* sub, ListenOptions& o) {
+    sub->add_option("--root", o.root, "Drone root as a note (A2) or in Hz (110); default A2");
+    sub->add_option("--a4", o.a4_hz, "A4 reference in Hz (400-480, default 440)");
+    sub->add_option("--targets", o.targets, "Target set: a built-in name (7-limit, tritones, ...) or a .toml file");
+    sub->add_option("--target", o.target, "One fixed target instead of a set: 7/5, 600c, ...");
+    sub->add_option("--seconds", o.seconds, "Stop after this much audio (default: until the end or Ctrl-C)");
+    sub->add_option("--seed", o.seed, "Demo performer seed (default 7)");
+}
+
+}  // namespace
+
+void register_listen(CLI::App& app, Runner& run) {
+    auto o = std::make_shared<ListenOptions>();
+    CLI::App* sub = app.add_subcommand("listen", "Listen live (device, --demo or --input-file) and print readings as JSON lines");
+    add_live_options(sub, *o);
+    sub->add_flag("--demo", o->demo, "Use the built-in demo performer instead of a microphone");
+    sub->add_option("--input-file", o->input_file, "Play this sound file through the live path instead of a microphone");
+    sub->add_flag("--fast", o->fast, "With --input-file: as fast as possible instead of in real time");
+    sub->add_option("--input", o->input_dev, "Input device: index or a unique part of its name (see beatless devices)");
+    sub->add_option("--output", o->output_dev, "Output device for the drone: index or a unique part of its name");
+    sub->add_flag("--drone", o->drone, "Play the drone (a file or the demo: the input holds the drone; it is removed)");
+    sub->add_flag("--no-drone", o->no_drone, "No drone (the default)");
+    sub->add_flag("--fifth", o->fifth, "Add the fifth (3/2) to the drone");
+    sub->add_flag("--octave", o->octave, "Add the octave (2/1) to the drone");
+    sub->add_option("--timbre", o->timbre, "Drone timbre: pure, soft, round, bright, hollow (default round)");
+    sub->add_option("--level-db", o->level_db, "Drone level, RMS dBFS (-80 to -6, default -30)");
+    sub->add_flag("--no-removal", o->no_removal, "Do not remove the drone's partials before tracking");
+    sub->add_option("--rate", o->rate_hz, "Device sample rate to ask for (default: 48000, 44100 or the device's)");
+    sub->add_option("--block", o->block, "Frames per audio callback to ask for (default 256)");
+    sub->add_option("--hop-ms", o->hop_ms, "Time between readings in ms (default 5)");
+    sub->add_option("--lowest", o->lowest, kLowestHelp);
+    sub->callback([o, &run] { run = [o] { return run_live(*o, Printing::json); }; });
+}
+
+}  // namespace beatless::ui

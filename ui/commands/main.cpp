@@ -1,0 +1,66 @@
+// beatless — entry point: parses the command line and runs one command.
+//
+// Exit codes (DESIGN.md): 0 success, 1 bad input or runtime failure, 2 bad
+// usage. Every failure is one line on stderr naming the file, device or value.
+#include "pitch/base/error.h"
+#include "ui/session/usage_error.h"
+#include "ui/commands/commands.h"
+
+#include <CLI/CLI.hpp>
+
+#include <cstdio>
+#include <exception>
+
+
+int main(int argc, char** argv) {
+    using namespace beatless;
+    CLI::App app{"Beatless: hear how far you are from a just interval, in cents and beats per second.", "beatless"};
+    app.set_version_flag("--version", "beatless 0.1.0");
+    app.require_subcommand(0, 1);
+
+    ui::Runner run;
+    ui::register_ratio(app, run);
+    ui::register_tone(app, run);
+    ui::register_devices(app, run);
+    ui::register_listen(app, run);
+    // No subcommand: the Practice screen (DESIGN.md), with these options.
+    ui::ScreenCommand screen;
+    ui::add_screen_options(app, screen);
+    app.add_option("--input", screen.input_device, "Input device: index or a unique part of its name (see beatless devices)");
+    app.add_option("--output", screen.output_device, "Output device for the drone: index or a unique part of its name");
+    int frames = 0;
+    app.add_option("--frames", frames, "Close the window after this many frames (for tests); default: when closed");
+    ui::register_snapshot(app, run);
+    ui::register_track(app, run);
+    ui::register_chord(app, run);
+    ui::register_drift(app, run);
+    ui::register_history(app, run);
+    ui::register_ensemble(app, run);
+    ui::register_analyze(app, run);
+    ui::register_drill(app, run);
+
+    try {
+        app.parse(argc, argv);
+    } catch (const CLI::ParseError& e) {
+        if (e.get_exit_code() == 0) return app.exit(e);  // --help, --version
+        std::string msg = e.what();
+        for (char& c : msg)
+            if (c == '\n') c = ' ';
+        std::fprintf(stderr, "beatless: %s (try beatless --help)\n", msg.c_str());
+        return 2;
+    }
+
+    try {
+        if (!run) return ui::run_screens(screen, frames);
+        return run();
+    } catch (const UsageError& e) {
+        std::fprintf(stderr, "beatless: %s\n", e.what());
+        return 2;
+    } catch (const Error& e) {
+        std::fprintf(stderr, "beatless: %s\n", e.what());
+        return 1;
+    } catch (const std::exception& e) {
+        std::fprintf(stderr, "beatless: unexpected failure: %s\n", e.what());
+        return 1;
+    }
+}

@@ -1,0 +1,127 @@
+// Screens — the framework every screen plugs into, and the deck that runs them.
+//
+// A screen is one class in its own file (ui/screen_<name>.cpp) implementing
+// Screen; make_screens() lists the screens that are built, in tab order.
+// Adding a screen (Drills, Ensemble, Review) is a new file and one line in
+// make_screens(). The deck draws what every screen shares: the tab bar, the
+// hearing-caution banner, the status bar (input, level and clipping,
+// overflows, latency), messages, the help overlay and the global keys
+// (drone, targets, root, screens), then asks the current screen to fill the
+// area between them. Everything is built with Dear ImGui and the colours of
+// ui/screens/palette.h; sizes follow the body font, so the DPI and font scales
+// carry through.
+#pragma once
+
+#include "ui/session/app_state.h"
+#include "ui/session/screen_id.h"
+
+#include <imgui.h>
+
+#include <cmath>
+#include <memory>
+#include <string>
+#include <span>
+#include <string_view>
+#include <vector>
+
+namespace beatless::ui {
+
+struct ScreenArea {
+    ImVec2 pos;    // top-left, pixels
+    ImVec2 size;   // width, height in pixels
+};
+
+struct KeyHelp {
+    std::string_view keys;  // "Space"
+    std::string_view what;  // "start or stop the drone"
+};
+
+// What the status bar shows: the deck fills it from the Practice engine
+// unless the current screen has an input of its own (the Ensemble screen).
+struct StatusView {
+    std::string input;
+    double level_dbfs = -INFINITY;
+    bool clipped = false;
+    unsigned long long overflows = 0;   // ring overflows + device overflows and underflows
+    double latency_s = 0.0;             // 0 when unknown
+};
+
+class Screen {
+public:
+    virtual ~Screen() = default;
+    virtual ScreenId id() const = 0;
+    // Builds the screen into `area` (between ImGui::NewFrame and Render).
+    virtual void build(AppState& app, const ScreenArea& area, double dt_s) = 0;
+    // Keys of this screen only, for the help overlay (the deck lists the global ones).
+    virtual std::span<const KeyHelp> keys() const { return {}; }
+    // The status bar's figures when this screen listens to an input of its
+    // own; false to show the Practice engine's.
+    virtual bool status(const AppState&, StatusView&) const { return false; }
+    // Called when the deck moves to another screen (release what only this
+    // screen uses, such as its own engine).
+    virtual void left(AppState&) {}
+};
+
+std::unique_ptr<Screen> make_practice_screen();
+std::unique_ptr<Screen> make_ensemble_screen();
+std::unique_ptr<Screen> make_drills_screen();
+std::unique_ptr<Screen> make_settings_screen();
+
+// The built screens in tab order.
+std::vector<std::unique_ptr<Screen>> make_screens();
+// Keys of the built screens, for --screen checks and messages: "practice, settings".
+std::vector<ScreenId> built_screens();
+std::string built_screen_keys();
+
+class ScreenDeck {
+public:
+    explicit ScreenDeck(AppState& app);
+    ~ScreenDeck();
+
+    void show(ScreenId id);                 // ignored when that screen is not built
+    ScreenId current() const { return screens_[current_]->id(); }
+    bool help_open() const { return help_; }
+    void set_help(bool open) { help_ = open; }
+
+    // Builds one whole frame: keys, style, bars, the current screen, overlays.
+    void build_frame(double dt_s);
+
+private:
+    void switch_to(std::size_t index);    // leaves the current screen first
+    void apply_style();
+    void handle_keys();
+    void tab_bar(float height);
+    void caution_banner(const ImVec2& pos, float width, float& height_out);
+    void status_bar(const ImVec2& pos, float width, float height);
+    void messages(const ImVec2& bottom_left, float width);
+    float messages_height() const;                 // rows the messages take above the status bar (0 without any)
+    void help_overlay();
+
+    AppState& app_;
+    std::vector<std::unique_ptr<Screen>> screens_;
+    std::size_t current_ = 0;
+    bool help_ = false;
+};
+
+// A device chooser for the screens (Settings, Ensemble): the devices with
+// inputs (or outputs), listed again every few seconds, shown in a combo with
+// "system default" first; show_channels adds each one's channel count.
+class DevicePicker {
+public:
+    // Returns true and sets `chosen` ("" = the system default) when one is picked.
+    bool combo(AppState& app, const char* id, const std::string& current, const std::string& shown, bool input, bool show_channels,
+               std::string& chosen);
+
+private:
+    std::vector<audio::DeviceInfo> devices_;
+    double listed_at_s_ = -1e9;
+};
+
+// The hearing caution's text (the banner and the Settings screen).
+const char* caution_text();
+
+// Height of the caution banner and widths of shared widgets follow this unit:
+// the body font's pixel size.
+float ui_unit();
+
+}  // namespace beatless::ui

@@ -1,0 +1,92 @@
+// Drill files — scored exercises as TOML files in targets/ (kind = "drill").
+//
+// A hold drill sounds the drone, announces each target (and optionally plays
+// it), then scores the performer's hold (ui/session/drill_score.h). An ear drill
+// plays one or two intervals over the drone and asks which target it was,
+// narrowing the choices with a staircase (ui/session/staircase.h,
+// ui/session/ear_question.h). Keys (all ours; a key this loader does not know is
+// an error, so typos are caught):
+//   title, about                 text for the Drills screen
+//   mode = "hold" | "ear"
+//   [drone] root (note or Hz, default "A2"), level_dbfs (-60..-6, default
+//           -24), partials (harmonics 1..32, default 6), fifth (default false)
+//   [[target]] interval, name (optional), hold_s (optional, hold drills);
+//           or target_set = "tritones" to take a target set's targets
+//   repetitions (1..50, default 1), order = "sequence" | "shuffle"
+//   hold:   hold_s (default 4), lead_in_s (2), rest_s (1), tolerance_cents
+//           (10), dwell_s (0.3), sound_target (false)
+//   ear:    question = "one" | "two", tone_s (default 2), [staircase] rule
+//           ("2-down" or "3-down"), scale ("geometric" | "linear"),
+//           start_cents, steps, min_cents, max_cents, stop_reversals,
+//           threshold_reversals, max_trials (defaults of StaircaseConfig)
+// Errors name the file, line and key: "my-drill.toml:7: `hold_s`: 0 is out of range (0.5 to 120)".
+#pragma once
+
+#include "ui/session/drill_score.h"
+#include "ui/session/ear_question.h"
+#include "ui/session/staircase.h"
+#include "pitch/theory/targets.h"
+
+#include <cmath>
+#include <cstdint>
+#include <string>
+#include <string_view>
+#include <vector>
+
+namespace beatless::ui {
+
+enum class DrillMode { hold, ear };
+enum class TargetOrder { sequence, shuffle };
+
+struct DroneSettings {
+    std::string root_text = "A2";  // as written in the file
+    double root_hz = 110.0;        // A2 at A4 = 440 Hz
+    double level_dbfs = -24.0;     // drone level; -60 .. -6, default -24
+    int partials = 6;              // harmonics in the drone (1 = a sine); default 6
+    bool fifth = false;            // add the fifth above the root; default false
+};
+
+struct DrillTarget {
+    pitch::Target target;
+    double hold_s = NAN;           // this target's hold; NaN: the drill's hold_s
+};
+
+struct Drill {
+    std::string id;                // file stem: "hold-tritones"
+    std::string title;
+    std::string about;
+    DrillMode mode = DrillMode::hold;
+    DroneSettings drone;
+    std::vector<DrillTarget> targets;
+    int repetitions = 1;           // rounds through the targets; default 1
+    TargetOrder order = TargetOrder::sequence;
+    // Hold drills
+    double hold_s = 4.0;           // default 4
+    double lead_in_s = 2.0;        // drone alone before each hold; default 2
+    double rest_s = 1.0;           // silence between holds; default 1
+    double tolerance_cents = 10.0; // default 10
+    double dwell_s = 0.3;          // default 0.3
+    bool sound_target = false;     // play the target tone before the hold; default false
+    // Ear drills
+    ui::EarMode question = ui::EarMode::one_interval;
+    double tone_s = 2.0;           // each tone's length; default 2
+    ui::StaircaseConfig staircase;
+
+    // Hold: the targets in performing order, repetitions rounds, each round
+    // shuffled with the seed when order = "shuffle".
+    std::vector<DrillTarget> sequence(std::uint64_t seed) const;
+    double hold_of(const DrillTarget& t) const { return std::isnan(t.hold_s) ? hold_s : t.hold_s; }
+    // Score settings for one hold that starts at hold_start_s.
+    ui::HoldScoreConfig score_config(const DrillTarget& t, double hold_start_s, double hop_s) const;
+    std::vector<double> target_cents() const;
+    std::string targets_text() const;   // "11/8 7/5 45/32 600c 10/7"
+};
+
+// Loads a built-in drill by name ("hold-tritones") or a file by path.
+Drill load_drill(std::string_view name_or_path);
+Drill parse_drill(std::string_view text, std::string_view source_name);
+
+// The drill's settings as a JSON object, for the practice log.
+std::string drill_settings_json(const Drill& drill);
+
+}  // namespace beatless::ui

@@ -1,0 +1,74 @@
+// Drill progress — see drill_progress.h.
+#include "ui/session/drill_progress.h"
+
+#include "pitch/base/error.h"
+#include "ui/session/log_summary.h"
+#include "ui/session/practice_log.h"
+
+#include <chrono>
+#include <cmath>
+#include <cstdlib>
+#include <filesystem>
+#include <map>
+
+namespace beatless::ui {
+
+long day_number(const std::string& day) {
+    using namespace std::chrono;
+    if (day.size() < 10) return 0;
+    const int y = std::atoi(day.substr(0, 4).c_str());
+    const unsigned m = static_cast<unsigned>(std::atoi(day.substr(5, 2).c_str()));
+    const unsigned d = static_cast<unsigned>(std::atoi(day.substr(8, 2).c_str()));
+    return static_cast<long>(sys_days{year{y} / month{m} / std::chrono::day{d}}.time_since_epoch().count());
+}
+
+DrillProgress read_drill_progress(const std::string& log_path, const Drill& drill, bool simulated) {
+    DrillProgress out;
+    const Drill* d = &drill;
+    if (log_path.empty()) {
+        out.note = "No practice log in use (a snapshot without --log).";
+        return out;
+    }
+    std::error_code ec;
+    if (!std::filesystem::exists(log_path, ec)) {
+        out.note = "Nothing in the practice log yet: your attempts will show here.";
+        return out;
+    }
+    try {
+        LogOptions lo;
+        lo.read_only = true;
+        PracticeLog log(log_path, lo);
+        HistoryOptions ho;
+        ho.filter.drill = d->id;
+        ho.filter.simulated = simulated;
+        ho.by = Period::day;
+        const HistorySummary sum = summarize_history(log, ho);
+        std::map<std::string, std::size_t> at;
+        if (d->mode == DrillMode::hold) {  // the drill's targets in its order, each once
+            for (const DrillTarget& t : d->targets) {
+                const std::string k = t.target.interval.str();
+                if (at.count(k)) continue;
+                at[k] = out.series.size();
+                out.series.push_back({k, t.target.name, {}, 0});
+            }
+        }
+        for (const HistoryLine& l : sum.over_time) {
+            const bool want = d->mode == DrillMode::hold ? l.kind == AttemptKind::hold : l.kind == AttemptKind::ear;
+            const double v = l.kind == AttemptKind::hold ? l.mean_dev_cents : l.threshold_cents;
+            if (!want || !std::isfinite(v)) continue;
+            if (!at.count(l.key)) {
+                at[l.key] = out.series.size();
+                out.series.push_back({l.key, l.name, {}, 0});
+            }
+            DrillProgressSeries& ps = out.series[at[l.key]];
+            ps.points.emplace_back(day_number(l.period), v);
+            ps.attempts += l.attempts;
+        }
+        if (sum.attempts == 0) out.note = "No attempts of this drill in the practice log yet.";
+    } catch (const Error& e) {
+        out.note = e.what();
+    }
+    return out;
+}
+
+}  // namespace beatless::ui

@@ -1,0 +1,246 @@
+// Drill runner — one run of a drill as a state machine, driven by a clock
+// and by readings; scores each hold, logs each attempt, says what to sound.
+//
+// Every run opens with ready: settle_s of drone alone (the ear settles, and
+// drone removal learns the room before any other sound). Then
+// hold drills (ui/session/drill_files.h), for each target of Drill::sequence(seed):
+//   announce   the target is shown; with sound_target its tone sounds first
+//              (tone_s), and the announcement lasts tone_s + announce_gap_s,
+//              otherwise announce_s
+//   count_in   lead_in_s of drone alone, counted down
+//   hold       hold_of(target): readings with t in [start, start + hold) are kept
+//   rest       rest_s: the result is shown
+// then finished. A hold is scored (ui/session/drill_score.h, deviation per
+// Reading::dev_cents by default) as soon as a reading at or past its end has
+// arrived, or score_wait_s after its end if the input stopped, whatever the
+// phase is by then (a voiced stretch shorter than min_voiced_s counts as
+// unvoiced first: an onset or release blip of the tracker, not singing):
+// the schedule never waits, so the performer (or the demo
+// performer, see planned_holds()) can follow it by the clock alone. The
+// attempt and its trace go to the LogWriter at once, on the caller's thread
+// (never the audio callback); when the log cannot be written the writer
+// keeps them and log_warning() gives the one line to show.
+// Ear drills ask question after question until the staircase is done:
+//   ear_play      the question's tones (one, or two ear_gap_s apart); an
+//                 answer counts once the last tone has begun
+//   ear_answer    waiting for the answer, for as long as it takes
+//   ear_feedback  feedback_s: right or wrong, and what it was
+// then the session (threshold, answers, share right, one trace record per
+// answer) is logged. Tones are requests the caller takes (take_tones()) and
+// plays with the engine's reference voice. Time is the caller's: stream time
+// live, simulated time in snapshots and `beatless drill --demo`, a fake clock
+// in tests.
+//
+// Thread: one thread (the screen's or the command's). Allocates: in start()
+// and when an attempt is scored; feed() only appends to a buffer sized in
+// start().
+//
+// Index: DrillPhase, RunnerConfig, results, DrillRunner, words for the results.
+#pragma once
+
+#include "audio/demo_performer.h"
+#include "audio/drone.h"
+#include "ui/session/drill_score.h"
+#include "ui/session/ear_question.h"
+#include "pitch/measure/reading.h"
+#include "ui/session/staircase.h"
+#include "pitch/theory/targets.h"
+#include "ui/session/drill_files.h"
+#include "ui/session/log_writer.h"
+#include "ui/session/practice_log.h"
+
+#include <cmath>
+#include <cstdint>
+#include <optional>
+#include <string>
+#include <string_view>
+#include <vector>
+
+namespace beatless::ui {
+
+enum class DrillPhase { idle, ready, announce, count_in, hold, rest, ear_play, ear_answer, ear_feedback, finished, stopped };
+std::string_view phase_name(DrillPhase p);  // "announce", "count-in", ...
+
+struct RunnerConfig {
+    double settle_s = 1.5;          // the drone alone before the first target or question; default 1.5
+    double announce_s = 1.5;        // the target shown before the count-in when no tone sounds; default 1.5
+    double tone_s = 1.5;            // sound_target: the target tone's length; default 1.5
+    double announce_gap_s = 0.5;    // sound_target: after the tone, before the count-in; default 0.5
+    double score_wait_s = 0.5;      // longest wait past a hold's end for its last readings; default 0.5
+    double hop_s = 0.005;           // time each reading stands for (the tracker's hop); default 5 ms
+    double ear_gap_s = 0.5;         // between the two tones of a two-interval question; default 0.5
+    double feedback_s = 1.2;        // right or wrong shown after an answer; default 1.2
+    std::uint64_t seed = 1;         // the shuffled order and the ear questions; default 1
+    std::string performer;          // who practises (the practice log's performer); default empty
+    // What the score reads; default the vibrato centre where known (a singer with a
+    // 5-7 Hz vibrato of tens of cents is in tune when its centre is), else the pitch.
+    ui::DeviationSource deviation = ui::DeviationSource::centre_first;
+    double min_voiced_s = 0.04;     // shorter voiced stretches are tracker blips, scored as unvoiced; default 40 ms
+    std::size_t max_holds = 0;      // hold drills: stop after this many holds (0 = the whole sequence); default 0
+};
+
+// A tone to sound now with the reference voice.
+struct ToneRequest {
+    double freq_hz = 0.0;
+    double dur_s = 0.0;
+};
+
+// A hold on the runner's clock (the demo performer sings these).
+struct PlannedHold {
+    std::size_t index = 0;          // in the run's sequence
+    double start_s = 0.0;           // from start()
+    double dur_s = 0.0;
+    double target_cents = 0.0;      // above the root
+};
+
+struct HoldResult {
+    std::size_t index = 0;          // in the run's sequence
+    DrillTarget target;
+    double tolerance_cents = 0.0;
+    double hold_start_s = 0.0;      // runner clock
+    double hold_dur_s = 0.0;
+    ui::HoldScore score;
+    std::vector<TraceRecord> trace; // t from the hold's start
+};
+
+struct EarAnswer {
+    double t_s = 0.0;               // from the session's start
+    double level_cents = 0.0;       // the staircase's level when asked
+    ui::EarQuestion question;
+    int answer = 0;                 // what was chosen: index into question.choices (one) or position (two)
+    bool correct = false;
+};
+
+struct EarResult {
+    double threshold_cents = NAN;   // NaN when the session stopped before enough reversals
+    int trials = 0;
+    double correct_share = NAN;
+    double dur_s = 0.0;
+    bool complete = false;          // the staircase finished (not stopped early)
+};
+
+class DrillRunner {
+public:
+    // log may be null: attempts are then only kept in results().
+    DrillRunner(Drill drill, RunnerConfig config, LogWriter* log = nullptr);
+
+    // --- Control ------------------------------------------------------------------
+    void start(double now_s);
+    // Ends the run: a hold not yet over is dropped; a hold waiting for its
+    // last readings is scored with what arrived; an ear session with answers
+    // is logged (its threshold NaN when too few reversals).
+    void stop(double now_s);
+    void feed(const pitch::Reading& r);      // readings in time order
+    void advance(double now_s);              // phases, due tones, late scores
+    bool answer(int choice, double now_s);   // ear: 0 or 1; false when no answer is open
+    std::vector<ToneRequest> take_tones();   // tones due since the last call
+    void retry_log();                        // writes what the log writer still keeps
+
+    // --- State ----------------------------------------------------------------------
+    const Drill& drill() const { return drill_; }
+    DrillPhase phase() const { return phase_; }
+    bool running() const { return phase_ != DrillPhase::idle && phase_ != DrillPhase::finished && phase_ != DrillPhase::stopped; }
+    bool done() const;                       // finished or stopped, with nothing left to score
+    double phase_start_s() const { return phase_start_s_; }
+    double phase_end_s() const { return phase_end_s_; }  // INFINITY while an answer is awaited
+    double time_left_s(double now_s) const;
+    double started_s() const { return start_s_; }
+
+    // --- Hold drills ------------------------------------------------------------------
+    std::size_t hold_count() const { return sequence_.size(); }
+    std::size_t hold_index() const { return index_; }          // current or next hold (hold_count() at the end)
+    const DrillTarget* current_target() const;                 // nullptr past the end
+    const DrillTarget& planned_target(std::size_t i) const { return sequence_[i]; }
+    double target_cents(const DrillTarget& t) const { return t.target.interval.cents(); }
+    std::vector<PlannedHold> planned_holds() const;
+    const std::vector<HoldResult>& results() const { return results_; }
+    double phase_len_s(DrillPhase p, std::size_t index) const;  // the schedule's lengths
+
+    // --- Ear drills --------------------------------------------------------------------
+    const ui::Staircase* staircase() const { return staircase_ ? &*staircase_ : nullptr; }
+    const ui::EarQuestion* question() const { return has_question_ ? &question_ : nullptr; }
+    bool answer_open(double now_s) const;
+    const std::vector<EarAnswer>& answers() const { return answers_; }
+    const std::optional<EarResult>& ear_result() const { return ear_result_; }
+
+    // --- Practice log ------------------------------------------------------------------
+    const SaveResult& last_save() const { return last_save_; }
+    std::size_t attempts_made() const { return attempts_made_; }
+    std::size_t unsaved() const { return log_ ? log_->pending() : 0; }
+    std::string log_warning() const;         // one line while attempts are kept in memory, else empty
+
+private:
+    void enter(DrillPhase p, double at_s, double len_s);
+    void begin_hold_step(double at_s);       // announce of hold index_
+    void finish_hold_score();
+    void next_question(double at_s);
+    void finish_ear(double now_s, bool complete);
+    void save(Attempt a);
+    double tone_hz(double cents) const { return drill_.drone.root_hz * std::exp2(cents / 1200.0); }
+
+    Drill drill_;
+    RunnerConfig cfg_;
+    LogWriter* log_;
+    std::string settings_json_;
+    std::vector<DrillTarget> sequence_;
+    DrillPhase phase_ = DrillPhase::idle;
+    double start_s_ = 0.0;
+    double phase_start_s_ = 0.0, phase_end_s_ = 0.0;
+    std::size_t index_ = 0;
+    // The hold being collected (possibly after its phase has ended).
+    bool collecting_ = false;
+    std::size_t collect_index_ = 0;
+    double collect_start_s_ = 0.0, collect_end_s_ = 0.0;
+    std::string collect_started_at_;
+    std::vector<pitch::Reading> collected_;
+    std::vector<HoldResult> results_;
+    // Ear.
+    std::optional<ui::EarQuestioner> questioner_;
+    std::optional<ui::Staircase> staircase_;
+    ui::EarQuestion question_;
+    bool has_question_ = false;
+    double last_tone_at_s_ = 0.0;
+    struct Due {
+        double at_s;
+        ToneRequest tone;
+    };
+    std::vector<Due> due_;
+    std::vector<ToneRequest> out_tones_;
+    std::vector<EarAnswer> answers_;
+    std::optional<EarResult> ear_result_;
+    std::string session_started_at_;
+    // Log.
+    SaveResult last_save_;
+    std::size_t attempts_made_ = 0;
+};
+
+// --- Words for the results (the Drills screen and `beatless drill`) ---------------
+// "locked in 0.8 s, held 3 cents flat, 86 % within ±5 c"; without a lock
+// "no lock, 12 cents sharp on average, 20 % within ±5 c"; "no voice heard".
+std::string hold_summary_text(const ui::HoldScore& s, double tolerance_cents);
+// "spread 4 c while held" (the standard deviation), or empty when unknown.
+std::string hold_spread_text(const ui::HoldScore& s);
+// "threshold 14 cents after 48 answers, 71 % right"
+std::string ear_summary_text(const EarResult& r);
+// "practice log PATH: cannot write (disk full); 2 attempts kept and will be
+// saved when possible"; the writer's own warning when no problem is named.
+std::string log_warning_line(const std::string& log_path, const SaveResult& r);
+std::string_view log_problem_words(LogProblem p);  // "disk full", "read-only", ...
+// At the end (the command's, the window's): what the writer still keeps goes
+// into a CSV file in the temporary folder, for `beatless history --import`.
+// Returns the one line to show ("<warning>; written to FILE (add them ...)"),
+// or empty when nothing is kept.
+std::string keep_unsaved(const LogWriter& w, const std::string& warning);
+
+// --- What the engine needs for a drill -----------------------------------------------
+// The drill's drone, sounding: its root, fifth and level (never above
+// max_level_dbfs), a timbre for its partial count (1 pure, up to 6 soft, up
+// to 12 round, more bright).
+audio::DroneSettings drill_drone(const Drill& d, double max_level_dbfs = audio::kDroneMaxLevelDbfs);
+// Readings against one target alone (the hold's).
+pitch::TargetSet one_target_set(const DrillTarget& t);
+// The demo performer's notes for the run's holds: each starts reaction_s
+// after its hold and stops release_s before its end (times + offset_s).
+std::vector<audio::DemoNote> demo_script(const DrillRunner& r, double reaction_s = 0.3, double release_s = 0.1, double offset_s = 0.0);
+
+}  // namespace beatless::ui

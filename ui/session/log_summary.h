@@ -1,0 +1,61 @@
+// History — the practice log summarised per target and over time.
+//
+// From the per-day sums of PracticeLog::history_groups: for each hold target
+// (ordered by pitch) and each ear drill, the number of attempts, the share
+// that locked, the mean time to lock, the mean of the attempts' mean signed
+// deviations, the mean spread, the mean share within tolerance and, for ear
+// drills, the mean threshold. The same figures per day, per week (starting
+// Monday, ISO 8601) or per month, in UTC. Every attempt weighs the same.
+// Rendered as text for people, JSON and CSV for programs.
+#pragma once
+
+#include "ui/session/practice_log.h"
+
+#include <string>
+#include <vector>
+
+namespace beatless::ui {
+
+enum class Period { day, week, month };
+
+struct HistoryOptions {
+    AttemptFilter filter;
+    Period by = Period::week;   // the over-time buckets; default week
+};
+
+struct HistoryLine {
+    AttemptKind kind = AttemptKind::hold;
+    std::string period;              // "all", or the bucket's first day "2025-03-03" ("2025-03" for months)
+    std::string key;                 // hold: target "7/5"; ear: drill id
+    std::string name;                // target name (hold) or the choices (ear)
+    std::int64_t attempts = 0;
+    double locked_share = NAN;       // 0..1
+    double time_to_lock_s = NAN;     // mean over attempts that locked
+    double mean_dev_cents = NAN;     // mean of the attempts' mean deviations
+    double spread_cents = NAN;       // mean of the attempts' spreads
+    double in_tolerance_share = NAN; // mean share within tolerance
+    double threshold_cents = NAN;    // ear: mean threshold
+};
+
+struct HistorySummary {
+    std::string log_path;
+    std::string since;                   // as given (normalised), or empty
+    Period by = Period::week;
+    std::int64_t attempts = 0;           // matching the filter
+    std::int64_t simulated_left_out = 0; // the filter leaves out simulated performers: how many of theirs it left
+    std::vector<HistoryLine> totals;     // period "all": holds by pitch, then ear drills
+    std::vector<HistoryLine> over_time;  // per key, in time order
+};
+
+HistorySummary summarize_history(const PracticeLog& log, const HistoryOptions& options);
+
+std::string render_history_text(const HistorySummary& s);
+std::string render_history_json(const HistorySummary& s);
+std::string render_history_csv(const HistorySummary& s);
+
+std::string_view period_name(Period p);  // "day", "week", "month"
+
+// The first day of the bucket holding a UTC day "YYYY-MM-DD".
+std::string period_start(const std::string& day, Period p);
+
+}  // namespace beatless::ui

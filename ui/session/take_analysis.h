@@ -1,0 +1,85 @@
+// Analysis — the passes `beatless analyze` makes over a sound file.
+//
+// One voice against a drone: (1) a first streamed pass finds the drone
+// (pitch/dsp/root_detect.h), which is the root unless one is given; (2) a second
+// pass removes the drone with a comb on its harmonics (pitch/dsp/drone_comb.h),
+// tracks the voice (pitch/dsp/yin.h) and cuts it into held notes against the
+// root (pitch/measure/segment.h). A given root is only the reference: the comb
+// follows the drone actually found, and there is no comb without one. Two voices
+// from one microphone: one pass of pitch/measure/two_voice.h into held dyads
+// (pitch/measure/dyad_segment.h). Memory does not grow with the file: blocks are
+// streamed, the report's trace is decimated (pitch/measure/decimated_trace.h), and
+// only the list of notes (a few thousand in two hours) is kept. Files that
+// are silent, or have no steady drone when the root is to be found, throw
+// Error with a one-line message naming the file.
+#pragma once
+
+#include "audio/soundfile.h"
+#include "pitch/measure/decimated_trace.h"
+#include "pitch/measure/dyad_segment.h"
+#include "pitch/dsp/root_detect.h"
+#include "pitch/measure/segment.h"
+#include "pitch/theory/targets.h"
+
+#include <cstdint>
+#include <functional>
+#include <optional>
+#include <string>
+#include <vector>
+
+namespace beatless::ui {
+
+struct AnalysisRequest {
+    std::string path;                    // the sound file
+    int channel = -1;                    // -1 mixes all channels; 0.. picks one
+    std::optional<double> root_hz;       // one voice: the drone's root; empty = find it
+    pitch::TargetSet targets;            // must not be empty
+    bool keep_trace = false;             // fill the decimated trace (for the report)
+    std::optional<double> lowest_hz;     // one voice: the tracker's floor (default 55 Hz); a lower one lengthens its span
+};
+
+// Called with the share of the whole job done (0..1) and the pass's name.
+using ProgressFn = std::function<void(double fraction, const char* stage)>;
+
+// Facts about the samples gathered on the measuring pass.
+struct SignalFacts {
+    double peak = 0.0;                   // largest |sample|
+    double loudest_dbfs = -INFINITY;     // RMS of the loudest 4096-sample block
+    std::int64_t clipped_samples = 0;    // |sample| >= 0.999 (full scale)
+    double first_clip_s = -1.0;          // time of the first, -1 when none
+};
+
+struct OneVoiceAnalysis {
+    audio::SoundInfo info;
+    bool root_given = false;
+    pitch::RootEstimate root;            // the drone detection (status may be no_steady_root when a root is given)
+    double root_hz = 0.0;                // the root the notes are measured against
+    double drone_hz = 0.0;               // the drone the comb removed, 0 when none was found
+    double hop_s = 0.0;                  // tracker hop
+    std::vector<pitch::NoteResult> notes;
+    std::vector<std::int64_t> notes_clipped;   // per note: samples at full scale during it
+    std::vector<pitch::TargetSummary> summary;
+    std::size_t short_notes_dropped = 0;
+    SignalFacts facts;
+    pitch::DecimatedTrace trace;         // cents above the root (when keep_trace)
+};
+
+struct TwoVoiceAnalysis {
+    audio::SoundInfo info;
+    double hop_s = 0.0;
+    std::vector<pitch::DyadResult> dyads;
+    std::vector<pitch::TargetSummary> summary;
+    std::size_t short_dyads_dropped = 0;
+    SignalFacts facts;
+    pitch::DecimatedTrace trace;         // interval in cents, high above low (when keep_trace)
+};
+
+// Throws Error: file problems (audio/soundfile.h), "FILE: silent ...", and
+// when the root is to be found "FILE: no steady drone or pedal tone found ...".
+OneVoiceAnalysis analyze_one_voice(const AnalysisRequest& request, const ProgressFn& progress = {});
+TwoVoiceAnalysis analyze_two_voices(const AnalysisRequest& request, const ProgressFn& progress = {});
+
+// The level below which a file counts as silent (same as the analysers').
+constexpr double kSilenceDbfs = -60.0;
+
+}  // namespace beatless::ui

@@ -1,0 +1,87 @@
+#include "ui/session/target_files.h"
+
+#include "pitch/base/error.h"
+#include "ui/session/toml_reader.h"
+
+#include <algorithm>
+#include <filesystem>
+#include <fstream>
+#include <mutex>
+#include <sstream>
+
+namespace beatless::ui {
+
+std::vector<std::string> builtin_names(std::string_view kind) {
+    std::vector<std::string> out;
+    for (const auto& f : embedded_target_files()) {
+        try {
+            const TomlDoc d = parse_toml(f.text, f.name, kind);
+            std::string n = f.name;
+            out.push_back(n.substr(0, n.size() - 5));
+        } catch (const Error&) {
+        }
+    }
+    std::sort(out.begin(), out.end());
+    return out;
+}
+
+pitch::TargetSet parse_target_set(std::string_view text, std::string_view source_name) {
+    const TomlDoc doc = parse_toml(text, std::string(source_name), "targets");
+    pitch::TargetSet set;
+    std::string stem(source_name);
+    if (const auto slash = stem.find_last_of('/'); slash != std::string::npos) stem = stem.substr(slash + 1);
+    if (stem.size() > 5 && stem.substr(stem.size() - 5) == ".toml") stem.resize(stem.size() - 5);
+    set.id = stem;
+    check_keys(doc, doc.table, {"kind", "title", "about", "target"}, "");
+    set.title = require_string(doc, doc.table, "title");
+    set.about = optional_string(doc, doc.table, "about");
+    const auto& entries = require_array_of_tables(doc, doc.table, "target");
+    for (const auto& e : entries) {
+        const toml::table& t = *e.as_table();
+        check_keys(doc, t, {"interval", "name"}, "[[target]]");
+        const std::string text_iv = require_string(doc, t, "interval");
+        pitch::Target target;
+        try {
+            target.interval = pitch::parse_interval(text_iv);
+        } catch (const Error& err) {
+            throw Error(where(doc, t["interval"]) + "`interval`: " + err.what());
+        }
+        target.name = optional_string(doc, t, "name");
+        if (target.name.empty()) {
+            if (const std::string* n = interval_names().find(target.interval)) target.name = *n;
+        }
+        set.targets.push_back(std::move(target));
+    }
+    return set;
+}
+
+pitch::TargetSet load_target_set(std::string_view name_or_path) {
+    if (looks_like_toml_path(name_or_path)) {
+        const std::string path(name_or_path);
+        return parse_target_set(read_toml_text(path), path);
+    }
+    const TomlDoc probe = load_toml(name_or_path, "targets");  // checks existence and kind
+    for (const auto& f : embedded_target_files()) {
+        if (std::string(name_or_path) + ".toml" == f.name) return parse_target_set(f.text, probe.source);
+    }
+    throw Error("'" + std::string(name_or_path) + "': no built-in target set of that name");
+}
+
+const pitch::IntervalNames& interval_names() {
+    static std::once_flag once;
+    static pitch::IntervalNames names;
+    std::call_once(once, [] {
+        const TomlDoc doc = load_toml("names", "names");
+        check_keys(doc, doc.table, {"kind", "names"}, "");
+        const auto* t = doc.table["names"].as_table();
+        if (!t) throw Error(doc.source + ": `[names]`: required table missing");
+        for (const auto& [k, v] : *t) {
+            const auto s = v.value<std::string>();
+            if (!s) throw Error(where(doc, v) + "`" + std::string(k.str()) + "`: must be a string, not " + describe_type(v));
+            names.add(pitch::parse_interval(k.str()), *s);
+        }
+    });
+    return names;
+}
+
+}  // namespace beatless::ui
