@@ -34,7 +34,7 @@ struct DeviceInfo {
 struct StreamRequest {
     int input_device = -1;             // index, -1 = no input
     int output_device = -1;            // index, -1 = no output (the same index = one duplex stream)
-    int input_channels = 1;            // channel 0 is analysed
+    int input_channels = 1;            // channel 0 is analyzed
     int output_channels = 2;           // the drone goes to every channel
     double sample_rate_hz = 0.0;       // 0 = negotiate (48 000, 44 100, the device default)
     std::size_t block_len_frames = 256;// frames per callback asked for

@@ -1,4 +1,4 @@
-// DroneCanceller — removes the drone's known partials from the analysed input.
+// DroneCanceller — removes the drone's known partials from the analyzed input.
 //
 // Method: an adaptive noise canceller with sinusoidal references (B. Widrow
 // et al., "Adaptive noise cancelling: principles and applications", Proc.

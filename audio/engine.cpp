@@ -4,7 +4,7 @@
 //   1. State         — Impl: ring, tracker, canceller, publication, counters
 //   2. Setup         — devices, demo, file, readings, start and stop
 //   3. Callbacks     — capture, playback, xrun (real-time rules apply)
-//   4. Analysis      — analyse_available(): ring -> removal -> YIN -> readings
+//   4. Analysis      — analyze_available(): ring -> removal -> YIN -> readings
 //   5. Producers     — demo and file at real-time pace, run_fast()
 //   6. Control       — drone, root, reference voice, supervise()
 #include "audio/engine.h"
@@ -68,7 +68,7 @@ struct Engine::Impl {
 
     // Publication.
     ReadingOutlet<pitch::Reading, kHistoryLen> out{kStreamLen};
-    std::atomic<std::uint64_t> analysed{0};
+    std::atomic<std::uint64_t> analyzed{0};
     std::atomic<bool> finished{false};
     std::atomic<double> current_target_hz{0.0};
 
@@ -198,7 +198,7 @@ void Engine::start(bool analysis_thread) {
     m.io.seen_at = Clock::now();
     m.io.running.store(true);
     if (analysis_thread) {
-        m.io.start_analysis([this] { return analyse_available(); });
+        m.io.start_analysis([this] { return analyze_available(); });
         if (m.input == InputKind::demo || m.input == InputKind::file) {
             const std::size_t block = std::min(cfg_.block_len_frames, kScratch);
             m.io.start_producer(block, m.rate, [this, block]() -> std::size_t {
@@ -266,7 +266,7 @@ void Engine::xrun(bool input_overflow, bool output_underflow) noexcept { impl_->
 // 4. Analysis
 // ---------------------------------------------------------------------------
 
-std::size_t Engine::analyse_available() noexcept {
+std::size_t Engine::analyze_available() noexcept {
     Impl& m = *impl_;
     if (!m.ring || !m.maker) return 0;
     if (pitch::ReadingMaker* fresh = m.pending_maker.exchange(nullptr)) {
@@ -300,7 +300,7 @@ std::size_t Engine::analyse_available() noexcept {
         work = work.first(n);
         if (m.removal_active) m.canceller->process(work, work);
         m.tracker->push(work);
-        m.analysed.fetch_add(n, std::memory_order_relaxed);
+        m.analyzed.fetch_add(n, std::memory_order_relaxed);
         total += n;
         pitch::PitchFrame f;
         while (m.tracker->pull(f)) {
@@ -317,7 +317,7 @@ std::size_t Engine::analyse_available() noexcept {
             if (m.removal_active && !m.input_has_drone) {
                 // Tell drone removal whether the performer sounds, and since when.
                 const double onset = f.t_s - 0.5 * m.span_s;
-                const auto now = static_cast<double>(m.analysed.load(std::memory_order_relaxed));
+                const auto now = static_cast<double>(m.analyzed.load(std::memory_order_relaxed));
                 m.canceller->set_voice(f.voiced(), static_cast<std::size_t>(std::max(0.0, now - onset * m.rate)));
                 if (m.maker->notes_started() != notes_before) m.canceller->new_note();
             }
@@ -335,7 +335,7 @@ StreamInfo Engine::output_info() const { return impl_->io.out_info; }
 bool Engine::latest(pitch::Reading& out) { return impl_->out.latest.read(out); }
 std::size_t Engine::history(std::span<pitch::Reading> out) const { return impl_->out.history.read(out); }
 std::size_t Engine::take_readings(std::span<pitch::Reading> out) { return impl_->out.stream.read(out); }
-double Engine::stream_time_s() const { return impl_->rate > 0 ? static_cast<double>(impl_->analysed.load()) / impl_->rate : 0.0; }
+double Engine::stream_time_s() const { return impl_->rate > 0 ? static_cast<double>(impl_->analyzed.load()) / impl_->rate : 0.0; }
 
 EngineStatus Engine::status() const {
     const Impl& m = *impl_;
@@ -343,7 +343,7 @@ EngineStatus Engine::status() const {
     st.input = m.input;
     st.sample_rate_hz = m.rate;
     st.captured_samples = m.ring ? m.ring->written() : 0;
-    st.analysed_samples = m.analysed.load();
+    st.analyzed_samples = m.analyzed.load();
     st.ring_overflow_samples = m.ring ? m.ring->overflow_samples() : 0;
     st.ring_overflow_events = m.ring ? m.ring->overflow_events() : 0;
     m.io.report(st);
@@ -374,7 +374,7 @@ void Engine::run_fast(const std::function<void(const pitch::Reading&)>& on_readi
         [&m](std::span<float> b) { return m.read_file_block(b); },
         [this](const float* data, std::size_t n) {
             capture(data, n, 1);
-            analyse_available();
+            analyze_available();
         },
         [this](std::span<pitch::Reading> g) { return take_readings(g); }, [this] { return stream_time_s(); });
     m.finished.store(true);

@@ -62,7 +62,7 @@ struct EngineConfig {
 // LiveStatus (audio/live_io.h) holds the fields the ensemble engine reports too.
 struct EngineStatus : LiveStatus {
     std::uint64_t captured_samples = 0;     // into the ring
-    std::uint64_t analysed_samples = 0;     // out of the ring
+    std::uint64_t analyzed_samples = 0;     // out of the ring
     std::uint64_t ring_overflow_samples = 0;// dropped because the ring was full
     double tracker_delay_s = 0.0;           // part of the latency the tracker needs by design
     double device_input_latency_s = 0.0;    // host-reported, not included in the latency
@@ -89,7 +89,7 @@ public:
     void set_input_has_drone(bool on);                       // file: the recording holds a drone at the root
     // Readings against this root and target set (also while running).
     void set_readings(const pitch::ReadingConfig& config, pitch::TargetSet targets);
-    void start(bool analysis_thread = true);                 // false: the caller runs analyse_available()
+    void start(bool analysis_thread = true);                 // false: the caller runs analyze_available()
     void stop();                                             // joins threads, closes streams
     // File only: drives the whole file through the ring and analysis in the
     // calling thread as fast as possible; on_reading sees every reading.
@@ -116,12 +116,12 @@ public:
     double sample_rate_hz() const { return rate_hz_; }
     StreamInfo input_info() const;                             // negotiated input stream (after start)
     StreamInfo output_info() const;                            // negotiated output stream (after start)
-    double stream_time_s() const;                              // analysed input so far
+    double stream_time_s() const;                              // analyzed input so far
 
     // --- Test hooks -----------------------------------------------------------
     // Drains the ring through the analysis. Thread: analysis (the engine's own
     // thread, or the caller after start(false)). Allocates: no. Locks: no.
-    std::size_t analyse_available() noexcept;
+    std::size_t analyze_available() noexcept;
     // The capture and playback callbacks, as a device calls them.
     void capture_block(std::span<const float> mono) noexcept { capture(mono.data(), mono.size(), 1); }
     void playback_block(std::span<float> out, int channels) noexcept { playback(out.data(), out.size() / channels, channels); }

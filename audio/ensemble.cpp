@@ -1,10 +1,10 @@
 // EnsembleEngine implementation.
 //
 // Index
-//   1. State         — Impl: rings, trackers, cancellers, analyser, publication
+//   1. State         — Impl: rings, trackers, cancellers, analyzer, publication
 //   2. Setup         — setup, devices, demo, file, start and stop
 //   3. Callbacks     — capture, playback, xrun (real-time rules apply)
-//   4. Analysis      — analyse_available(): rings -> removal -> YIN -> ensemble
+//   4. Analysis      — analyze_available(): rings -> removal -> YIN -> ensemble
 //   5. Producers     — demo and file at real-time pace, run_fast()
 //   6. Control       — drone, supervise() and its messages
 #include "audio/ensemble.h"
@@ -68,14 +68,14 @@ struct EnsembleEngine::Impl {
     DronePartial partials[kMaxDronePartials];
     bool removal_active = false;
     double span_s = 0.05;
-    std::unique_ptr<pitch::EnsembleAnalyser> analyser;
-    std::atomic<pitch::EnsembleAnalyser*> pending{nullptr};
-    std::atomic<pitch::EnsembleAnalyser*> retired{nullptr};
+    std::unique_ptr<pitch::EnsembleAnalyzer> analyzer;
+    std::atomic<pitch::EnsembleAnalyzer*> pending{nullptr};
+    std::atomic<pitch::EnsembleAnalyzer*> retired{nullptr};
     bool started = false;
 
     // Publication.
     ReadingOutlet<pitch::EnsembleReading, kHistoryLen> out{kStreamLen};
-    std::atomic<std::uint64_t> analysed{0};
+    std::atomic<std::uint64_t> analyzed{0};
     std::atomic<bool> finished{false};
 
     // What supervise() last said, per player.
@@ -119,12 +119,12 @@ void EnsembleEngine::set_setup(EnsembleSetup setup) {
         for (std::size_t i = 0; same && i < setup.players.size(); ++i) same = setup.players[i].channel == setup_.players[i].channel;
         if (!same) throw Error("ensemble: the players or their channels changed; stop and start the ensemble again");
     }
-    auto a = std::make_unique<pitch::EnsembleAnalyser>(setup.chord, setup.players, setup.analysis);
+    auto a = std::make_unique<pitch::EnsembleAnalyzer>(setup.chord, setup.players, setup.analysis);
     setup_ = std::move(setup);
     have_setup_ = true;
     delete m.retired.exchange(nullptr);
     if (!m.started) {
-        m.analyser = std::move(a);
+        m.analyzer = std::move(a);
         return;
     }
     delete m.pending.exchange(a.release());
@@ -221,7 +221,7 @@ std::string EnsembleEngine::input_name() const {
 void EnsembleEngine::start(bool analysis_thread) {
     Impl& m = *impl_;
     if (m.started) return;
-    if (!m.analyser) throw Error("ensemble: no chord and players set");
+    if (!m.analyzer) throw Error("ensemble: no chord and players set");
     if (m.input == InputKind::device) {
         const StreamInfo& info = m.io.open_input(*system_, *this);
         m.rate = info.sample_rate_hz;
@@ -281,7 +281,7 @@ void EnsembleEngine::start(bool analysis_thread) {
     m.io.seen_at = Clock::now();
     m.io.running.store(true);
     if (analysis_thread) {
-        m.io.start_analysis([this] { return analyse_available(); });
+        m.io.start_analysis([this] { return analyze_available(); });
         if (m.input == InputKind::demo || m.input == InputKind::file) {
             const std::size_t block = std::min(cfg_.block_len_frames, kScratch);
             m.io.start_producer(block, m.rate, [this, block]() -> std::size_t {
@@ -341,13 +341,13 @@ void EnsembleEngine::xrun(bool input_overflow, bool output_underflow) noexcept {
 // 4. Analysis
 // ---------------------------------------------------------------------------
 
-std::size_t EnsembleEngine::analyse_available() noexcept {
+std::size_t EnsembleEngine::analyze_available() noexcept {
     Impl& m = *impl_;
-    if (m.rings.empty() || !m.analyser) return 0;
-    if (pitch::EnsembleAnalyser* fresh = m.pending.exchange(nullptr)) {
-        pitch::EnsembleAnalyser* old = m.analyser.release();
-        m.analyser.reset(fresh);
-        delete m.retired.exchange(old);  // normally empty: the control thread frees retired analysers
+    if (m.rings.empty() || !m.analyzer) return 0;
+    if (pitch::EnsembleAnalyzer* fresh = m.pending.exchange(nullptr)) {
+        pitch::EnsembleAnalyzer* old = m.analyzer.release();
+        m.analyzer.reset(fresh);
+        delete m.retired.exchange(old);  // normally empty: the control thread frees retired analyzers
     }
     DroneSettings ds;
     if (m.drone_for_analysis.read(ds) && cfg_.drone_removal) {
@@ -376,7 +376,7 @@ std::size_t EnsembleEngine::analyse_available() noexcept {
             if (m.removal_active) m.cancellers[p]->process(w, w);
             m.trackers[p]->push(w);
         }
-        m.analysed.fetch_add(n, std::memory_order_relaxed);
+        m.analyzed.fetch_add(n, std::memory_order_relaxed);
         total += n;
         while (m.trackers[0]->pull(m.frames[0])) {
             for (std::size_t p = 1; p < m.players; ++p)
@@ -388,13 +388,13 @@ std::size_t EnsembleEngine::analyse_available() noexcept {
                 if (m.removal_active && f.voiced() && c.is_residue(f.f0_hz, f.level_dbfs)) f.f0_hz = 0.0;
                 if (m.removal_active && !m.input_has_drone) {
                     const double onset = f.t_s - 0.5 * m.span_s;
-                    const auto now = static_cast<double>(m.analysed.load(std::memory_order_relaxed));
+                    const auto now = static_cast<double>(m.analyzed.load(std::memory_order_relaxed));
                     c.set_voice(f.voiced(), static_cast<std::size_t>(std::max(0.0, now - onset * m.rate)));
                 }
             }
             const auto idx = static_cast<std::int64_t>(std::llround(m.frames[0].t_s * m.rate));
             const pitch::EnsembleReading& r =
-                m.analyser->process(std::span<const pitch::PitchFrame>(m.frames.data(), m.players), idx);
+                m.analyzer->process(std::span<const pitch::PitchFrame>(m.frames.data(), m.players), idx);
             m.out.publish(r, static_cast<double>(static_cast<std::int64_t>(m.rings[0]->written()) - idx) / m.rate);
         }
     }
@@ -407,7 +407,7 @@ bool EnsembleEngine::latest(pitch::EnsembleReading& out) { return impl_->out.lat
 std::size_t EnsembleEngine::history(std::span<pitch::EnsembleReading> out) const { return impl_->out.history.read(out); }
 std::size_t EnsembleEngine::take_readings(std::span<pitch::EnsembleReading> out) { return impl_->out.stream.read(out); }
 double EnsembleEngine::stream_time_s() const {
-    return impl_->rate > 0 ? static_cast<double>(impl_->analysed.load()) / impl_->rate : 0.0;
+    return impl_->rate > 0 ? static_cast<double>(impl_->analyzed.load()) / impl_->rate : 0.0;
 }
 
 EnsembleStatus EnsembleEngine::status() const {
@@ -422,7 +422,7 @@ EnsembleStatus EnsembleEngine::status() const {
         st.ring_overflow_frames = m.rings[0]->overflow_samples();
         st.ring_overflow_events = m.rings[0]->overflow_events();
     }
-    st.analysed_frames = m.analysed.load();
+    st.analyzed_frames = m.analyzed.load();
     m.io.report(st);
     for (const auto& t : m.trackers) st.tracker_dropped_frames += t->dropped_frames();
     m.out.report(st);
@@ -449,7 +449,7 @@ void EnsembleEngine::run_fast(const std::function<void(const pitch::EnsembleRead
         [&m](std::span<float> b) { return m.read_file_block(b); },
         [this, &m](const float* data, std::size_t n) {
             capture(data, n, m.in_channels);
-            analyse_available();
+            analyze_available();
         },
         [this](std::span<pitch::EnsembleReading> g) { return take_readings(g); }, [this] { return stream_time_s(); });
     m.finished.store(true);
@@ -465,7 +465,7 @@ void EnsembleEngine::run_demo_frames(std::size_t frames) noexcept {
         std::span<float> buf(m.prod_scratch.data(), n * ch);
         m.demo->render(buf);
         capture(buf.data(), n, m.in_channels);
-        analyse_available();
+        analyze_available();
         frames -= n;
     }
 }

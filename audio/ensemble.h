@@ -8,7 +8,7 @@
 //
 // The capture callback copies each player's channel into that player's ring
 // (no allocation, no locks); the analysis drains the rings in lock-step, so
-// every tracker's frames fall on the same instants, and EnsembleAnalyser
+// every tracker's frames fall on the same instants, and EnsembleAnalyzer
 // turns one frame per player into an EnsembleReading: deviations under the
 // three references, beats between players, silent channels and channels
 // carrying the same voice. Readings are published lock-free like the
@@ -65,7 +65,7 @@ struct EnsembleStatus : LiveStatus {
     int channels = 0;                         // channels delivered by the input
     int players = 0;
     std::uint64_t captured_frames = 0;        // into the rings
-    std::uint64_t analysed_frames = 0;
+    std::uint64_t analyzed_frames = 0;
     std::uint64_t ring_overflow_frames = 0;   // dropped because the rings were full
 };
 
@@ -88,13 +88,13 @@ public:
     void use_demo(DemoEnsembleConfig demo);                 // voices and channels from the setup when empty
     double use_file(const std::string& path);               // returns its rate; throws Error naming it
     void set_input_has_drone(bool on);                      // file: the recording holds a drone at the root
-    void start(bool analysis_thread = true);                // false: the caller runs analyse_available()
+    void start(bool analysis_thread = true);                // false: the caller runs analyze_available()
     void stop();
     // File only: the whole file through rings and analysis in this thread, as fast as possible.
     void run_fast(const std::function<void(const pitch::EnsembleReading&)>& on_reading, double max_s = 0.0);
 
     // Demo only, after start(false): renders this many frames of the demo
-    // ensemble and analyses them in the calling thread (simulated time, as
+    // ensemble and analyzes them in the calling thread (simulated time, as
     // `beatless snapshot` runs). Allocates: no.
     void run_demo_frames(std::size_t frames) noexcept;
 
@@ -117,7 +117,7 @@ public:
 
     // --- Test hooks -------------------------------------------------------------
     // Thread: analysis (its own thread, or the caller after start(false)). Allocates: no. Locks: no.
-    std::size_t analyse_available() noexcept;
+    std::size_t analyze_available() noexcept;
     // The capture callback as a device calls it: interleaved frames of `channels`.
     void capture_block(std::span<const float> interleaved, int channels) noexcept {
         capture(interleaved.data(), interleaved.size() / static_cast<std::size_t>(channels), channels);

@@ -1,17 +1,17 @@
-// Latest<T> and History<T> — lock-free publication of plain data, latest wins.
+// Latest<T> and Recent<T> — lock-free publication of plain data, latest wins.
 //
 // Latest<T> is a triple buffer: the writer fills a back slot and swaps it
 // with the middle slot in one atomic exchange (with a "fresh" bit); the
 // reader swaps the middle slot into its front slot when it is fresh. Neither
 // side ever waits for the other, and the reader always sees a whole value.
-// History<T, N> keeps the last N values in a circular array guarded per slot
+// Recent<T, N> keeps the last N values in a circular array guarded per slot
 // by a sequence number (a seqlock: 2n+1 while value n is written, 2n+2 when
 // done); readers copy and drop a slot that changed under them or holds
 // another value than the one asked for; the writer never waits.
 // T must be trivially copyable (Reading is: plain numbers, no pointers).
 //
 // Thread: publish() from one writer, read() from one reader (Latest) or any
-// number of readers (History). Allocates: no. Locks: no.
+// number of readers (Recent). Allocates: no. Locks: no.
 #pragma once
 
 #include <algorithm>
@@ -59,7 +59,7 @@ private:
 };
 
 template <class T, std::size_t N>
-class History {
+class Recent {
     static_assert(std::is_trivially_copyable_v<T>);
 
 public:

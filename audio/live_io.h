@@ -2,7 +2,7 @@
 //
 // Engine (audio/engine.h, one performer) and EnsembleEngine
 // (audio/ensemble.h, one ring per player) differ in what they capture and
-// analyse, but move sound the same way; this is that common part:
+// analyze, but move sound the same way; this is that common part:
 //   - the devices asked for and their streams (one duplex stream when input
 //     and output are the same device), opened and retired alike;
 //   - the playback callback: the mono drone fanned out to every output
@@ -55,7 +55,7 @@ struct LiveStatus {
     double latency_s = 0.0;                     // last input-to-reading latency (sound at t captured -> its reading published)
     double latency_max_s = 0.0;                 // largest since start
     bool input_ok = false;                      // input delivering audio
-    bool finished = false;                      // a file played and analysed to its end
+    bool finished = false;                      // a file played and analyzed to its end
     bool drone_removal_active = false;
 };
 
@@ -68,7 +68,7 @@ struct ReadingOutlet {
     explicit ReadingOutlet(std::size_t stream_len) : stream(stream_len) {}
 
     Latest<R> latest;
-    History<R, HistoryLen> history;
+    Recent<R, HistoryLen> history;
     SpscRing<R> stream;
     std::atomic<std::uint64_t> readings{0};
     std::atomic<double> latency_s{0.0}, latency_max_s{0.0};
@@ -156,13 +156,13 @@ struct LiveIo {
     void report(LiveStatus& st) const;    // the host's overflow and underflow counts
 
     // --- Threads ---------------------------------------------------------------
-    // Sets running; the analysis thread calls analyse() until stop_threads(),
+    // Sets running; the analysis thread calls analyze() until stop_threads(),
     // sleeping 1 ms whenever it returns 0.
-    template <class Analyse>
-    void start_analysis(Analyse analyse) {
-        analysis = std::thread([this, analyse] {
+    template <class Analyze>
+    void start_analysis(Analyze analyze) {
+        analysis = std::thread([this, analyze] {
             while (running.load(std::memory_order_acquire))
-                if (analyse() == 0) std::this_thread::sleep_for(std::chrono::microseconds(1000));
+                if (analyze() == 0) std::this_thread::sleep_for(std::chrono::microseconds(1000));
         });
     }
     // A producer thread at real-time pace: produce() captures up to
@@ -193,7 +193,7 @@ struct LiveIo {
     // in the calling thread, then tail_frames of silence to flush the
     // trackers. read(buf) fills interleaved frames of `channels` through
     // read_block() and returns the frame count (0 at the end; a read error
-    // is thrown here); feed(data, frames) captures and analyses them;
+    // is thrown here); feed(data, frames) captures and analyzes them;
     // take(got) drains the readings; every reading up to max_s (0 = all)
     // goes to on_reading; it ends early once time_s() passes max_s + 0.2 s.
     template <class R, class Read, class Feed, class Take, class Time>

@@ -77,7 +77,7 @@ struct LiveRig {
             sys.drive(in, out, 1, 2);
             for (std::size_t i = 0; i < block; ++i) spk[i] = out[2 * i];
             captured += static_cast<std::int64_t>(block);
-            engine.analyse_available();
+            engine.analyze_available();
             for (std::size_t k; (k = engine.take_readings(got)) > 0;)
                 for (std::size_t i = 0; i < k; ++i) readings.push_back({got[i], captured});
         }

@@ -1,5 +1,5 @@
 // `beatless analyze` end to end: recordings with exactly known content are
-// written as WAV files here, the real program analyses them (root pass,
+// written as WAV files here, the real program analyzes them (root pass,
 // drone comb, YIN tracker, note or dyad segmentation), and its JSON is read
 // back with Python's json module (tests/cli.h json_value, an outside parser).
 //
@@ -227,7 +227,7 @@ TEST_CASE("no drone, silence, noise only, a clipped take: clear messages or empt
         args.insert(args.end(), extra.begin(), extra.end());
         const auto s = run_program(args);
         CHECK(s.exit_code == 1);
-        CHECK(s.err == "beatless: " + dir.file("silence.wav") + ": silent (no sound above -60 dBFS); nothing to analyse\n");
+        CHECK(s.err == "beatless: " + dir.file("silence.wav") + ": silent (no sound above -60 dBFS); nothing to analyze\n");
     }
 
     std::vector<float> noise(static_cast<std::size_t>(4 * kFs), 0.0f);

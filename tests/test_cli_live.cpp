@@ -71,7 +71,7 @@ TEST_CASE("listen --input-file --fast: a recorded drone at the root is removed a
         if (std::fabs(num_after(l, "dev_cents") - 3.0) <= 1.0) ++good;
     }
     CHECK(good == static_cast<int>(steady.size()));
-    CHECK(r.err.find("analysing") != std::string::npos);
+    CHECK(r.err.find("analyzing") != std::string::npos);
     CHECK(r.err.find("ring overflows 0") != std::string::npos);
 
     // The same file without removal: the plain tracker is pulled by the drone.

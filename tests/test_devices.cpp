@@ -115,7 +115,7 @@ TEST_CASE("a device that disappears: readings pause, the engine says so, reopens
     auto play = [&](std::size_t from, std::size_t to) {
         for (std::size_t i = from; i + 256 <= to; i += 256) {
             sys.drive(std::span<const float>(voice.data() + i, 256), out, 1, 2);
-            e.analyse_available();
+            e.analyze_available();
         }
     };
     play(0, voice.size() / 2);

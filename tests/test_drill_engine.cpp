@@ -130,7 +130,7 @@ TEST_CASE("a scripted attempt through the engine: the logged lock time, mean and
         rig.sys.drive(in, out, 1, 2);
         for (std::size_t i = 0; i < rig.block; ++i) spk[i] = out[2 * i];
         pos += rig.block;
-        rig.engine.analyse_available();
+        rig.engine.analyze_available();
         for (std::size_t k; (k = rig.engine.take_readings(got)) > 0;)
             for (std::size_t i = 0; i < k; ++i) runner.feed(got[i]);
         runner.advance(rig.engine.stream_time_s());

@@ -255,7 +255,7 @@ TEST_CASE("SPSC ring: every sample arrives once and in order across threads; ove
 
 TEST_CASE("Latest and History: readers always see whole values while a writer publishes") {
     Latest<pitch::Reading> latest;
-    History<pitch::Reading, 64> history;
+    Recent<pitch::Reading, 64> history;
     std::atomic<bool> done{false};
     std::thread writer([&] {
         for (int i = 1; i <= 200000; ++i) {

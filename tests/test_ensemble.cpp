@@ -74,7 +74,7 @@ std::vector<pitch::EnsembleReading> through_device(const test::GroupTake& take, 
     std::vector<pitch::EnsembleReading> out, got(64);
     for (std::size_t f = 0; (f + block) * ch <= take.interleaved.size(); f += block) {
         sys.drive(std::span<const float>(take.interleaved.data() + f * ch, block * ch), {}, take.channels, 2);
-        eng.analyse_available();
+        eng.analyze_available();
         for (std::size_t k; (k = eng.take_readings(got)) > 0;) out.insert(out.end(), got.begin(), got.begin() + static_cast<std::ptrdiff_t>(k));
         if (msgs) eng.supervise();
     }
@@ -237,7 +237,7 @@ TEST_CASE("a multi-channel device that disappears: readings pause, one line says
     auto play = [&](std::size_t from, std::size_t to) {
         for (std::size_t f = from; f + block <= to; f += block) {
             sys.drive(std::span<const float>(take.interleaved.data() + f * ch, block * ch), {}, take.channels, 2);
-            eng.analyse_available();
+            eng.analyze_available();
             while (eng.take_readings(got) > 0) {
             }
         }
@@ -423,7 +423,7 @@ TEST_CASE("ensemble beats come from the audible-pair rule: own pairs within hear
         for (std::size_t v = 0; v < chord.size(); ++v) players.push_back({"p" + std::to_string(v), v, static_cast<int>(v)});
         pitch::EnsembleConfig cfg;
         cfg.root_hz = kRootHz;
-        pitch::EnsembleAnalyser an(chord, players, cfg);
+        pitch::EnsembleAnalyzer an(chord, players, cfg);
         std::vector<pitch::PitchFrame> frames(players.size());
         pitch::EnsembleReading r;
         for (int k = 0; k < 400; ++k) {

@@ -119,7 +119,7 @@ TEST_CASE("live io: the outlet publishes to latest, history and stream, counts w
     REQUIRE(outlet.latest.read(m));
     CHECK(m.t_s == doctest::Approx(0.4));
     Mark h[4];
-    REQUIRE(outlet.history.read(std::span<Mark>(h)) == 3);  // History<_, 4> keeps the newest 3
+    REQUIRE(outlet.history.read(std::span<Mark>(h)) == 3);  // Recent<_, 4> keeps the newest 3
     CHECK(h[0].t_s == doctest::Approx(0.2));
     CHECK(h[2].t_s == doctest::Approx(0.4));
     Mark s[4];

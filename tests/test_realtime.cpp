@@ -156,7 +156,7 @@ TEST_CASE("callbacks allocate nothing and take no lock; analysis allocates nothi
         a0 = g_allocs.load();
         l0 = g_locks.load();
         t_watched = warm;
-        rig.engine.analyse_available();
+        rig.engine.analyze_available();
         t_watched = false;
         an_allocs += g_allocs.load() - a0;
         an_locks += g_locks.load() - l0;
@@ -176,7 +176,7 @@ TEST_CASE("ensemble engine: the capture and playback callbacks allocate nothing 
 #else
     // Four players with vibrato and crosstalk on a fake duplex device that
     // also plays the drone; drone changes between blocks; a chord change
-    // while running (the analyser is swapped, not rebuilt in the analysis).
+    // while running (the analyzer is swapped, not rebuilt in the analysis).
     const pitch::Chord chord = pitch::parse_chord("4:5:6:7");
     const std::vector<test::GroupVoice> g = {
         {"B", 0, 0, -3.0, 4.9, 15.0, 0.14, false},
@@ -225,13 +225,13 @@ TEST_CASE("ensemble engine: the capture and playback callbacks allocate nothing 
         a0 = g_allocs.load();
         l0 = g_locks.load();
         t_watched = warm;
-        eng.analyse_available();
+        eng.analyze_available();
         t_watched = false;
         an_allocs += g_allocs.load() - a0;
         an_locks += g_locks.load() - l0;
         while (eng.take_readings(got) > 0) {
         }
-        eng.supervise();  // frees the retired analyser on this (control) thread
+        eng.supervise();  // frees the retired analyzer on this (control) thread
     }
     CHECK(eng.status().readings > 500);
     CHECK(cb_allocs == 0);

@@ -1,4 +1,4 @@
-// "Allocates: no" checked: the review analysers allocate nothing per frame
+// "Allocates: no" checked: the review analyzers allocate nothing per frame
 // once they are set up (DESIGN.md, real-time rules). This test binary
 // replaces the global operator new with a counting one (the standard lets
 // a program do so, [replacement.functions]) and counts the allocations made
@@ -6,7 +6,7 @@
 #include "pitch/measure/decimated_trace.h"
 #include "pitch/dsp/drone_comb.h"
 #include "pitch/measure/dyad_segment.h"
-#include "pitch/dsp/root_detect.h"
+#include "pitch/measure/root_detect.h"
 #include "pitch/measure/segment.h"
 #include "pitch/measure/two_voice.h"
 #include "pitch/dsp/vibrato.h"

@@ -7,7 +7,7 @@
 // fundamental from the same samples. Cents by Ellis's definition,
 // 1200 log2(f1/f0) (A. J. Ellis, J. Society of Arts 33, 1885).
 #include "pitch/base/error.h"
-#include "pitch/dsp/root_detect.h"
+#include "pitch/measure/root_detect.h"
 #include "tests/mix_signals.h"
 
 #include <doctest/doctest.h>
@@ -194,7 +194,7 @@ TEST_CASE("silence, noise, a voice without a drone, a very short file: clear ans
     CAPTURE(describe(e));
     CHECK(e.status == RootStatus::no_steady_root);
 
-    // 0.3 s of drone: shorter than one frame, analysed zero-padded; the
+    // 0.3 s of drone: shorter than one frame, analyzed zero-padded; the
     // root is still close, but one frame cannot show it is steady.
     std::vector<float> shortx(static_cast<std::size_t>(0.3 * kFs), 0.0f);
     add_tone(shortx, kFs, 220.0, 0.0, 0.3, 0.3, rolloff(6));

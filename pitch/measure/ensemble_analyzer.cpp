@@ -74,7 +74,7 @@ void check_players(const Chord& chord, std::span<const Player> players, int chan
 }
 
 // ---------------------------------------------------------------------------
-// EnsembleAnalyser
+// EnsembleAnalyzer
 // ---------------------------------------------------------------------------
 
 namespace {
@@ -90,7 +90,7 @@ std::int64_t pow2(int k) { return std::int64_t{1} << std::clamp(k, 0, 20); }
 
 }  // namespace
 
-EnsembleAnalyser::EnsembleAnalyser(const Chord& chord, std::vector<Player> players, const EnsembleConfig& config)
+EnsembleAnalyzer::EnsembleAnalyzer(const Chord& chord, std::vector<Player> players, const EnsembleConfig& config)
     : chord_(chord), players_(std::move(players)), cfg_(config), checks_(std::max<std::size_t>(1, players_.size()), checks_for(config)) {
     check_players(chord_, players_, 64);
     ReadingConfig rc = cfg_.reading;
@@ -116,12 +116,12 @@ EnsembleAnalyser::EnsembleAnalyser(const Chord& chord, std::vector<Player> playe
     out_.root_hz[reference_index(ChordReference::fixed_root)] = cfg_.root_hz;
 }
 
-EnsembleAnalyser::~EnsembleAnalyser() = default;
+EnsembleAnalyzer::~EnsembleAnalyzer() = default;
 
 
 
-const EnsembleReading& EnsembleAnalyser::process(std::span<const PitchFrame> frames, std::int64_t sample_index) noexcept {
-    assert(frames.size() == players_.size() && "EnsembleAnalyser::process: one frame per player");
+const EnsembleReading& EnsembleAnalyzer::process(std::span<const PitchFrame> frames, std::int64_t sample_index) noexcept {
+    assert(frames.size() == players_.size() && "EnsembleAnalyzer::process: one frame per player");
     const std::size_t n = players_.size();
     const double r0 = cfg_.root_hz;
     out_.t_s = n ? frames[0].t_s : 0.0;

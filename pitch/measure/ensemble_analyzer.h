@@ -15,7 +15,7 @@
 // interval and the beat rate |N f_low - D f_high| at their centres
 // (Helmholtz 1863, ch. VIII; pitch/theory/beats.h).
 //
-// Index: 1 Setup types · 2 Readings (plain data) · 3 EnsembleAnalyser.
+// Index: 1 Setup types · 2 Readings (plain data) · 3 EnsembleAnalyzer.
 #pragma once
 
 #include "pitch/measure/channel_checks.h"
@@ -136,14 +136,14 @@ struct EnsembleReading {
 };
 
 // ---------------------------------------------------------------------------
-// 3 EnsembleAnalyser
+// 3 EnsembleAnalyzer
 // ---------------------------------------------------------------------------
 
-class EnsembleAnalyser {
+class EnsembleAnalyzer {
 public:
     // Throws Error on a bad setup (check_players with channels_available = 64).
-    EnsembleAnalyser(const Chord& chord, std::vector<Player> players, const EnsembleConfig& config);
-    ~EnsembleAnalyser();
+    EnsembleAnalyzer(const Chord& chord, std::vector<Player> players, const EnsembleConfig& config);
+    ~EnsembleAnalyzer();
 
     // One frame per player, all at the same time (the trackers run in
     // lock-step). Thread: analysis. Allocates: no. Locks: no.

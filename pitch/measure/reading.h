@@ -1,4 +1,4 @@
-// Reading — one analysed moment of the performer's pitch against the root.
+// Reading — one analyzed moment of the performer's pitch against the root.
 //
 // Plain data, copied by value between threads (no strings, no pointers), so
 // a snapshot can be published lock-free. Produced by the analysis path

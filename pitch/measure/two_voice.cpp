@@ -114,7 +114,7 @@ struct TwoVoiceTracker::Impl {
 
     Impl(const TwoVoiceConfig& c, const TargetSet& set);
     void reset();
-    void analyse(TwoVoiceFrame& f);
+    void analyze(TwoVoiceFrame& f);
     void find_peaks();
     int match(double freq_hz, double tol_hz) const;
     double salience(double f0_hz, bool residual) const;
@@ -305,7 +305,7 @@ void TwoVoiceTracker::Impl::refine(Voice& v, const Voice* other) {
     if (sw > 0.0) v.f0_hz = swf / sw;
 }
 
-void TwoVoiceTracker::Impl::analyse(TwoVoiceFrame& f) {
+void TwoVoiceTracker::Impl::analyze(TwoVoiceFrame& f) {
     double ss = 0.0;
     for (float s : x) ss += static_cast<double>(s) * s;
     if (!(std::sqrt(ss / static_cast<double>(span)) > std::pow(10.0, cfg.silence_dbfs / 20.0))) {
@@ -546,7 +546,7 @@ bool TwoVoiceTracker::pull(TwoVoiceFrame& out) noexcept {
     out = TwoVoiceFrame{};
     out.t_s = (static_cast<double>(start) + 0.5 * static_cast<double>(m.span - 1)) / m.cfg.sample_rate_hz;
     for (std::size_t i = m.span - std::min(m.span, m.hop); i < m.span && !out.clipped; ++i) out.clipped = std::fabs(m.x[i]) >= 0.999f;
-    m.analyse(out);
+    m.analyze(out);
     m.next_end += m.hop;
     return true;
 }

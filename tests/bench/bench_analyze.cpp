@@ -170,7 +170,7 @@ void two_voices(Context& ctx, const ScratchDir& dir) {
     print_speed(audio_s, cpu, 50.0);
 }
 
-// Peak resident size while analysing a file of `minutes` (one take repeated).
+// Peak resident size while analyzing a file of `minutes` (one take repeated).
 long peak_rss_kb(const ScratchDir& dir, const Take& take, double minutes, std::size_t* notes) {
     const std::string path = dir.file("long.wav");
     {

@@ -69,7 +69,7 @@ void run(bench::Context& ctx) {
                 const double t0 = bench::thread_cpu_s();
                 eng.capture_block(std::span<const float>(take.interleaved.data() + f * ch, block * ch), static_cast<int>(n));
                 const double t1 = bench::thread_cpu_s();
-                eng.analyse_available();
+                eng.analyze_available();
                 const double t2 = bench::thread_cpu_s();
                 cb_s += t1 - t0;
                 an_s += t2 - t1;

@@ -147,7 +147,7 @@ void cpu(const bench::Context& ctx) {
             double t0 = bench::thread_cpu_s();
             rig.sys.drive(in, out, 1, 2);
             double t1 = bench::thread_cpu_s();
-            rig.engine.analyse_available();
+            rig.engine.analyze_available();
             double t2 = bench::thread_cpu_s();
             cb_s += t1 - t0;
             an_s += t2 - t1;

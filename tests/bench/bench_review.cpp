@@ -7,7 +7,7 @@
 // one-voice `analyze` speed needs the tracker and is measured with it).
 // Signals come from tests/mix_signals.h and are made before timing starts.
 #include "pitch/measure/dyad_segment.h"
-#include "pitch/dsp/root_detect.h"
+#include "pitch/measure/root_detect.h"
 #include "pitch/measure/segment.h"
 #include "pitch/measure/two_voice.h"
 #include "pitch/dsp/vibrato.h"

@@ -287,7 +287,7 @@ ReportData one_voice_report(const AnalyzeOptions& o, const pitch::TargetSet& set
         return ReportMark{n.start_s, n.end_s, n.cents_above_root, n.target_cents, n.dev_cents};
     });
     d.title = base_name(o.file);
-    d.subtitle = root_words(a, o.root, o.a4_hz) + "   \u00b7   targets: " + set.title + "   \u00b7   analysed " + today_text();
+    d.subtitle = root_words(a, o.root, o.a4_hz) + "   \u00b7   targets: " + set.title + "   \u00b7   analyzed " + today_text();
     d.axis_label = "cents above the root";
     d.mark_word = "note";
     d.dur_s = a.info.dur_s();
@@ -376,7 +376,7 @@ ReportData two_voice_report(const AnalyzeOptions& o, const pitch::TargetSet& set
         return ReportMark{y.start_s, y.end_s, y.interval_cents, y.target_cents, y.dev_cents};
     });
     d.title = base_name(o.file);
-    d.subtitle = "two voices   \u00b7   targets: " + set.title + "   \u00b7   analysed " + today_text();
+    d.subtitle = "two voices   \u00b7   targets: " + set.title + "   \u00b7   analyzed " + today_text();
     d.axis_label = "cents above the low voice";
     d.mark_word = "interval";
     d.dur_s = a.info.dur_s();
@@ -444,7 +444,7 @@ void register_analyze(CLI::App& app, Runner& run) {
     sub->add_option("--voices", o->voices, "1: a voice against a drone (default); 2: two voices from one microphone");
     add_format_option(*sub, o->format, {Format::text, Format::json, Format::csv});
     sub->add_option("--report", o->report, "Also draw a printable page (PNG) of the trace, notes and summary");
-    sub->add_option("--channel", o->channel, "Channel to analyse, from 1 (default: all channels mixed)");
+    sub->add_option("--channel", o->channel, "Channel to analyze, from 1 (default: all channels mixed)");
     sub->add_option("--lowest", o->lowest, "One voice: the lowest note to follow, as a note (E1) or in Hz (30-200; default 55)");
     sub->callback([o, root, &run] {
         o->root_set = root->count() > 0;

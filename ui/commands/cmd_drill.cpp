@@ -212,7 +212,7 @@ void run_hold_simulated(const Drill& d, DrillRunner& runner, const DrillCmd& o, 
     while (!runner.done() && engine.stream_time_s() < limit_s) {
         performer.render(block);
         engine.capture_block(block);
-        engine.analyse_available();
+        engine.analyze_available();
         for (std::size_t k; (k = engine.take_readings(got)) > 0;)
             for (std::size_t i = 0; i < k; ++i) runner.feed(got[i]);
         runner.advance(engine.stream_time_s());

@@ -248,7 +248,7 @@ int run_live(const ListenOptions& o, Printing printing) {
     };
 
     if (o.fast) {
-        std::fprintf(stderr, "beatless: analysing %s as fast as possible\n", what.c_str());
+        std::fprintf(stderr, "beatless: analyzing %s as fast as possible\n", what.c_str());
         engine.run_fast(emit, o.seconds);
     } else {
         g_interrupted.store(false);

@@ -32,6 +32,7 @@
 #include "ui/render/raster.h"
 #include "ui/screens/screen.h"
 #include "ui/session/target_files.h"
+#include "ui/render/render_error.h"
 #include "ui/render/window.h"
 
 #include <cmath>
@@ -203,7 +204,7 @@ int run_screens(const ScreenCommand& c, int frames) {
             app.update(dt_s);
             deck.build_frame(dt_s);
         });
-    } catch (const Error& e) {
+    } catch (const RenderError& e) {
         app.shutdown();
         if (started) throw;
         throw Error(std::string(e.what()) + " (or `beatless listen --demo` for readings as text)");

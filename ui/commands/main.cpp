@@ -5,6 +5,7 @@
 #include "pitch/base/error.h"
 #include "ui/session/usage_error.h"
 #include "ui/commands/commands.h"
+#include "ui/render/render_error.h"
 
 #include <CLI/CLI.hpp>
 
@@ -57,6 +58,9 @@ int main(int argc, char** argv) {
         std::fprintf(stderr, "beatless: %s\n", e.what());
         return 2;
     } catch (const Error& e) {
+        std::fprintf(stderr, "beatless: %s\n", e.what());
+        return 1;
+    } catch (const ui::RenderError& e) {
         std::fprintf(stderr, "beatless: %s\n", e.what());
         return 1;
     } catch (const std::exception& e) {

@@ -1,7 +1,7 @@
 // ImGuiHost — see imgui_host.h.
 #include "ui/render/imgui_host.h"
 
-#include "pitch/base/error.h"
+#include "ui/render/render_error.h"
 
 #include <algorithm>
 #include <array>
@@ -48,9 +48,9 @@ struct ContextGuard {  // restores the previously current ImGui context
 
 ImGuiHost::ImGuiHost(const HostConfig& config) : config_(config) {
     if (!(config_.dpi_scale > 0.0f && config_.dpi_scale <= 8.0f))
-        throw Error("DPI scale " + std::to_string(config_.dpi_scale) + ": must lie in (0, 8]");
+        throw RenderError("DPI scale " + std::to_string(config_.dpi_scale) + ": must lie in (0, 8]");
     if (config_.width_px < 0 || config_.height_px < 0)
-        throw Error("display size " + std::to_string(config_.width_px) + "x" + std::to_string(config_.height_px) + ": must not be negative");
+        throw RenderError("display size " + std::to_string(config_.width_px) + "x" + std::to_string(config_.height_px) + ": must not be negative");
 
     IMGUI_CHECKVERSION();
     context_ = ImGui::CreateContext();
@@ -69,7 +69,7 @@ ImGuiHost::ImGuiHost(const HostConfig& config) : config_(config) {
     io.Fonts->Flags |= ImFontAtlasFlags_NoBakedLines;  // lines as geometry: their edges are anti-aliased by vertex alpha
     try {
         build_fonts();
-    } catch (const Error&) {
+    } catch (const RenderError&) {
         ImGui::DestroyContext(context_);
         context_ = nullptr;
         throw;
@@ -113,7 +113,7 @@ void ImGuiHost::build_fonts() {
     unsigned char* texels = nullptr;
     int w = 0, h = 0;
     atlas.GetTexDataAsAlpha8(&texels, &w, &h);
-    if (texels == nullptr || w <= 0 || h <= 0) throw Error("font atlas: cannot be built");
+    if (texels == nullptr || w <= 0 || h <= 0) throw RenderError("font atlas: cannot be built");
     atlas_ = Texture{texels, w, h, TextureFormat::alpha8};
     atlas.SetTexID(static_cast<ImTextureID>(const_cast<Texture*>(&atlas_)));
 }

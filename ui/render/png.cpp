@@ -1,7 +1,7 @@
 // PNG output — see png.h.
 #include "ui/render/png.h"
 
-#include "pitch/base/error.h"
+#include "ui/render/render_error.h"
 
 #include <stb_image_write.h>
 
@@ -33,19 +33,19 @@ std::string reason(int err) { return std::string(" (") + std::strerror(err) + ")
 void write_png(const std::string& path, const PixelBuffer& image) {
     if (image.width_px <= 0 || image.height_px <= 0 ||
         image.pixels.size() < static_cast<std::size_t>(image.width_px) * static_cast<std::size_t>(image.height_px))
-        throw Error(path + ": cannot be written (the image is empty)");
+        throw RenderError(path + ": cannot be written (the image is empty)");
     errno = 0;
     Sink sink;
     sink.file = std::fopen(path.c_str(), "wb");
-    if (sink.file == nullptr) throw Error(path + ": cannot be written" + reason(errno != 0 ? errno : EIO));
+    if (sink.file == nullptr) throw RenderError(path + ": cannot be written" + reason(errno != 0 ? errno : EIO));
     const int ok = stbi_write_png_to_func(&sink_write, &sink, image.width_px, image.height_px, 4,
                                           image.pixels.data(), image.width_px * 4);
     errno = 0;
     const bool closed = std::fclose(sink.file) == 0;
     const int close_err = closed ? 0 : (errno != 0 ? errno : EIO);
-    if (ok == 0) throw Error(path + ": cannot be written (PNG encoding failed)");
-    if (sink.err != 0) throw Error(path + ": cannot be written" + reason(sink.err));
-    if (close_err != 0) throw Error(path + ": cannot be written" + reason(close_err));
+    if (ok == 0) throw RenderError(path + ": cannot be written (PNG encoding failed)");
+    if (sink.err != 0) throw RenderError(path + ": cannot be written" + reason(sink.err));
+    if (close_err != 0) throw RenderError(path + ": cannot be written" + reason(close_err));
 }
 
 }  // namespace beatless::ui

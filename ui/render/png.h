@@ -13,7 +13,7 @@
 
 namespace beatless::ui {
 
-// Writes `image` to `path`. Throws Error naming the file on any failure.
+// Writes `image` to `path`. Throws RenderError naming the file on any failure.
 void write_png(const std::string& path, const PixelBuffer& image);
 
 }  // namespace beatless::ui

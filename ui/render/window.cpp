@@ -7,7 +7,7 @@
 //   [loop]     run_window
 #include "ui/render/window.h"
 
-#include "pitch/base/error.h"
+#include "ui/render/render_error.h"
 
 #include <GLFW/glfw3.h>
 
@@ -39,8 +39,8 @@ struct GlfwSession {
         const char* display = std::getenv("DISPLAY");
         const char* wayland = std::getenv("WAYLAND_DISPLAY");
         if ((display == nullptr || *display == '\0') && (wayland == nullptr || *wayland == '\0'))
-            throw Error("no display: set DISPLAY or use `beatless snapshot` to render without a window");
-        throw Error(std::string("display '") + (display != nullptr ? display : wayland) +
+            throw RenderError("no display: set DISPLAY or use `beatless snapshot` to render without a window");
+        throw RenderError(std::string("display '") + (display != nullptr ? display : wayland) +
                     "': cannot be opened (" + glfw_error() + "); use `beatless snapshot` to render without a window");
     }
     ~GlfwSession() { glfwTerminate(); }
@@ -189,7 +189,7 @@ public:
             tex_w_ = std::max(tex_w_, pow2_at_least(w));
             tex_h_ = std::max(tex_h_, pow2_at_least(h));
             if (tex_w_ > max_size_ || tex_h_ > max_size_)
-                throw Error("window " + std::to_string(w) + "x" + std::to_string(h) + ": larger than OpenGL's texture limit " + std::to_string(max_size_));
+                throw RenderError("window " + std::to_string(w) + "x" + std::to_string(h) + ": larger than OpenGL's texture limit " + std::to_string(max_size_));
             glTexImage2D(GL_TEXTURE_2D, 0, GL_RGBA8, tex_w_, tex_h_, 0, GL_RGBA, GL_UNSIGNED_BYTE, nullptr);
         }
         glPixelStorei(GL_UNPACK_ALIGNMENT, 4);
@@ -251,7 +251,7 @@ private:
 
 WindowReport run_window(const WindowConfig& config, const std::function<void(float dt_s)>& build_frame) {
     if (config.width <= 0 || config.height <= 0)
-        throw Error("window size " + std::to_string(config.width) + "x" + std::to_string(config.height) + ": must be positive");
+        throw RenderError("window size " + std::to_string(config.width) + "x" + std::to_string(config.height) + ": must be positive");
     const GlfwSession glfw;
     glfwWindowHint(GLFW_CLIENT_API, GLFW_OPENGL_API);
     glfwWindowHint(GLFW_CONTEXT_VERSION_MAJOR, 1);
@@ -259,7 +259,7 @@ WindowReport run_window(const WindowConfig& config, const std::function<void(flo
     glfwWindowHint(GLFW_SCALE_TO_MONITOR, GLFW_TRUE);
     glfwWindowHint(GLFW_DOUBLEBUFFER, GLFW_TRUE);
     GLFWwindow* win = glfwCreateWindow(config.width, config.height, config.title.c_str(), nullptr, nullptr);
-    if (win == nullptr) throw Error("window '" + config.title + "': cannot be opened (" + glfw_error() + ")");
+    if (win == nullptr) throw RenderError("window '" + config.title + "': cannot be opened (" + glfw_error() + ")");
     struct WindowGuard {
         GLFWwindow* w;
         ~WindowGuard() { glfwDestroyWindow(w); }

@@ -43,7 +43,7 @@ struct WindowReport {
 
 // Opens the window and runs frames until it is closed or max_frames are
 // shown; build_frame(dt_s) is called between ImGui::NewFrame and Render with
-// the wall-clock time since the previous frame. Throws Error when there is
+// the wall-clock time since the previous frame. Throws RenderError when there is
 // no display ("no display: set DISPLAY or use `beatless snapshot` to render
 // without a window") or no OpenGL window can be made.
 WindowReport run_window(const WindowConfig& config, const std::function<void(float dt_s)>& build_frame);

@@ -1,4 +1,4 @@
-// Analysis report — one printable page (PNG) of an analysed take.
+// Analysis report — one printable page (PNG) of an analyzed take.
 //
 // Drawn with Dear ImGui's draw list offscreen (ui/render/imgui_host.h) through the
 // CPU rasterizer (ui/render/raster.h) and written by ui/render/png.h: a title with the

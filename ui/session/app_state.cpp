@@ -262,7 +262,7 @@ void AppState::pump_simulation(double dt_s) {
         sim_due_s_ -= static_cast<double>(kSimBlock);
         sim_performer_->render(sim_block_);
         engine_->capture_block(sim_block_);
-        engine_->analyse_available();
+        engine_->analyze_available();
     }
 }
 

@@ -66,7 +66,7 @@ private:
 
 void check_sound(const SignalFacts& f, const std::string& path) {
     if (!(f.loudest_dbfs >= kSilenceDbfs))
-        throw Error(path + ": silent (no sound above " + pitch::format_trimmed(kSilenceDbfs, 0) + " dBFS); nothing to analyse");
+        throw Error(path + ": silent (no sound above " + pitch::format_trimmed(kSilenceDbfs, 0) + " dBFS); nothing to analyze");
 }
 
 // Reports progress at most every 1/200 of the job.
@@ -136,7 +136,7 @@ pitch::RootEstimate find_drone(const AnalysisRequest& req, Ticker& tick) {
     }
     const pitch::RootEstimate e = rd.estimate();
     if (e.status == pitch::RootStatus::no_sound)
-        throw Error(req.path + ": silent (no sound above " + pitch::format_trimmed(kSilenceDbfs, 0) + " dBFS); nothing to analyse");
+        throw Error(req.path + ": silent (no sound above " + pitch::format_trimmed(kSilenceDbfs, 0) + " dBFS); nothing to analyze");
     if (!e.found() && !req.root_hz)
         throw Error(req.path + ": no steady drone or pedal tone found (best candidate " + pitch::format_trimmed(e.root_hz, 2) +
                     " Hz, confidence " + pitch::format_trimmed(e.confidence, 2) + " below " +

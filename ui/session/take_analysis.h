@@ -1,7 +1,7 @@
 // Analysis — the passes `beatless analyze` makes over a sound file.
 //
 // One voice against a drone: (1) a first streamed pass finds the drone
-// (pitch/dsp/root_detect.h), which is the root unless one is given; (2) a second
+// (pitch/measure/root_detect.h), which is the root unless one is given; (2) a second
 // pass removes the drone with a comb on its harmonics (pitch/dsp/drone_comb.h),
 // tracks the voice (pitch/dsp/yin.h) and cuts it into held notes against the
 // root (pitch/measure/segment.h). A given root is only the reference: the comb
@@ -17,7 +17,7 @@
 #include "audio/soundfile.h"
 #include "pitch/measure/decimated_trace.h"
 #include "pitch/measure/dyad_segment.h"
-#include "pitch/dsp/root_detect.h"
+#include "pitch/measure/root_detect.h"
 #include "pitch/measure/segment.h"
 #include "pitch/theory/targets.h"
 
@@ -79,7 +79,7 @@ struct TwoVoiceAnalysis {
 OneVoiceAnalysis analyze_one_voice(const AnalysisRequest& request, const ProgressFn& progress = {});
 TwoVoiceAnalysis analyze_two_voices(const AnalysisRequest& request, const ProgressFn& progress = {});
 
-// The level below which a file counts as silent (same as the analysers').
+// The level below which a file counts as silent (same as the analyzers').
 constexpr double kSilenceDbfs = -60.0;
 
 }  // namespace beatless::ui

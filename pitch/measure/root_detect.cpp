@@ -22,7 +22,7 @@
 // Memory is constant: a few arrays of one frame's bins, whatever the length.
 // All allocation happens in the constructor; push() and estimate() never allocate.
 
-#include "pitch/dsp/root_detect.h"
+#include "pitch/measure/root_detect.h"
 
 #include "pitch/base/error.h"
 #include "pitch/base/text.h"

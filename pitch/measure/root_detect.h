@@ -47,7 +47,7 @@ struct RootEstimate {
     double coherence = 0.0;          // 0..1
     int harmonics_used = 0;          // partials that agreed on the root
     double spread_cents = 0.0;       // weighted spread of the harmonics' f_h / h around the root
-    double sounding_s = 0.0;         // time analysed above silence
+    double sounding_s = 0.0;         // time analyzed above silence
     bool found() const { return status == RootStatus::found; }
 };
 
@@ -63,13 +63,13 @@ public:
     void push(std::span<const float> samples) noexcept;
 
     // The estimate from everything pushed so far (a file shorter than one
-    // frame is analysed zero-padded). Allocates: no.
+    // frame is analyzed zero-padded). Allocates: no.
     RootEstimate estimate() noexcept;
 
     void reset() noexcept;
     std::size_t frame_len_samples() const noexcept { return n_; }
     double bin_hz() const noexcept { return bin_hz_; }
-    std::size_t frames_analysed() const noexcept { return frames_; }
+    std::size_t frames_analyzed() const noexcept { return frames_; }
     std::size_t bad_samples() const noexcept { return bad_; }
 
 private:
@@ -101,7 +101,7 @@ private:
     std::size_t frames_ = 0;          // frames above silence
     std::size_t bad_ = 0;
     std::size_t total_ = 0;           // samples pushed
-    bool padded_ = false;             // a short input was analysed zero-padded
+    bool padded_ = false;             // a short input was analyzed zero-padded
 };
 
 }  // namespace beatless::pitch
