@@ -27,7 +27,7 @@
 //   texture: nearest filtering takes the texel containing the sample point,
 //     floor(u * width) (OpenGL 2.1 spec, section 3.8.8, GL_NEAREST).
 //   PNG: read back with stb_image (libstb-dev), an independent decoder.
-#include "pitch/base/error.h"
+#include "ui/render/render_error.h"
 #include "tests/demo_screen.h"
 #include "ui/render/imgui_host.h"
 #include "ui/render/png.h"
@@ -753,7 +753,7 @@ TEST_CASE("PNG errors name the file and the reason") {
     std::string msg;
     try {
         write_png("/nonexistent-beatless-dir/out.png", b);
-    } catch (const Error& e) {
+    } catch (const RenderError& e) {
         msg = e.what();
     }
     CHECK(msg == "/nonexistent-beatless-dir/out.png: cannot be written (No such file or directory)");
@@ -761,7 +761,7 @@ TEST_CASE("PNG errors name the file and the reason") {
     msg.clear();
     try {
         write_png("/tmp/empty.png", empty);
-    } catch (const Error& e) {
+    } catch (const RenderError& e) {
         msg = e.what();
     }
     CHECK(msg == "/tmp/empty.png: cannot be written (the image is empty)");
@@ -865,7 +865,7 @@ TEST_CASE("host: bad settings are refused with a message naming the value") {
     std::string msg;
     try {
         ImGuiHost host(hc);
-    } catch (const Error& e) {
+    } catch (const RenderError& e) {
         msg = e.what();
     }
     CHECK(msg.find("DPI scale") == 0);
