@@ -1,12 +1,11 @@
 // Engine implementation.
 //
-// Index
-//   1. State         — Impl: ring, tracker, canceller, publication, counters
-//   2. Setup         — devices, demo, file, readings, start and stop
-//   3. Callbacks     — capture, playback, xrun (real-time rules apply)
-//   4. Analysis      — analyze_available(): ring -> removal -> YIN -> readings
-//   5. Producers     — demo and file at real-time pace, run_fast()
-//   6. Control       — drone, root, reference voice, supervise()
+// [SECTION] State     — Impl: rings, trackers, cancellers, maker or analyzer, publication
+// [SECTION] Setup     — what to analyse, devices, demos, file, start and stop
+// [SECTION] Callbacks — capture, playback, xrun (real-time rules apply)
+// [SECTION] Analysis  — analyze_available(): rings -> removal -> YIN -> readings
+// [SECTION] Producers — demo and file at real-time pace, run_fast(), run_demo_frames()
+// [SECTION] Control   — drone, root, reference voice, supervise()
 #include "audio/engine.h"
 
 #include "audio/soundfile.h"
@@ -15,122 +14,124 @@
 #include "pitch/dsp/yin.h"
 
 #include <algorithm>
+#include <array>
 #include <chrono>
 #include <cmath>
 
 namespace beatless::audio {
 
 namespace {
-constexpr std::size_t kChunk = 1024;          // analysis reads at most this much per step
-constexpr std::size_t kScratch = 8192;        // callback scratch (frames per call beyond this are chunked)
+constexpr std::size_t kChunk = 1024;          // analysis reads at most this much per channel per step
+constexpr std::size_t kScratch = 4096;        // callback scratch per channel (longer calls are chunked)
 constexpr std::size_t kHistoryLen = 1024;     // ~5 s of readings at a 5 ms hop
-constexpr std::size_t kStreamLen = 8192;      // readings waiting for take_readings()
+constexpr std::size_t kPerformerStreamLen = 8192;  // one performer's readings waiting for take_readings() (~40 s)
+constexpr std::size_t kEnsembleStreamLen = 2048;   // a group's (~10 s; each reading is larger)
 constexpr std::size_t kMaxDronePartials = 256;
 using Clock = std::chrono::steady_clock;
+using pitch::kMaxPlayers;
+
+std::string player_text(const pitch::Player& p, std::size_t i) {
+    return "channel " + std::to_string(p.channel + 1) + " (" + (p.name.empty() ? "player " + std::to_string(i + 1) : p.name) + ")";
+}
 }  // namespace
 
 // ---------------------------------------------------------------------------
-// 1. State
+// [SECTION] State
 // ---------------------------------------------------------------------------
 
 struct Engine::Impl {
     InputKind input = InputKind::none;
     double rate = 0.0;
+    std::size_t players = 0;                     // channels analysed (1 for one performer)
+    std::array<int, kMaxPlayers> channel_of{};   // input channel of each, fixed from start()
+    int in_channels = 1;                         // what the input delivers
 
     // Devices, streams, callback counters, the drone's output, threads.
     LiveIo io;
     bool output_lost = false;
-    Clock::time_point last_try{};         // the last attempt to reopen
+    Clock::time_point last_try{};                // the last attempt to reopen a lost device
 
     // Sources other than a device.
     std::unique_ptr<DemoPerformer> demo;
-    std::unique_ptr<Drone> room_drone;    // what the demo's microphone hears of the drone
-    std::unique_ptr<SimulatedRoom> room;
+    std::unique_ptr<DemoEnsemble> demo_group;
+    std::unique_ptr<Drone> room_drone;                     // what the demo microphones hear of the drone
+    std::vector<std::unique_ptr<SimulatedRoom>> rooms;     // one per analysed channel
     std::unique_ptr<SoundReader> file;
     std::string file_path;
     bool input_has_drone = false;
 
-    // Ring and analysis.
-    std::unique_ptr<SpscRing<float>> ring;
-    std::vector<float> cap_scratch, room_scratch, prod_scratch, work;
-    std::unique_ptr<pitch::YinTracker> tracker;
-    std::unique_ptr<DroneCanceller> canceller;
+    // Rings and analysis, per analysed channel.
+    std::vector<std::unique_ptr<SpscRing<float>>> rings;
+    std::vector<std::unique_ptr<pitch::YinTracker>> trackers;
+    std::vector<std::unique_ptr<DroneCanceller>> cancellers;
+    std::vector<float> cap_scratch, room_scratch, prod_scratch, work;  // work: [channel][kChunk]
+    std::array<pitch::PitchFrame, kMaxPlayers> frames{};
     Latest<DroneSettings> drone_for_analysis;
     DronePartial partials[kMaxDronePartials];
-    std::unique_ptr<pitch::ReadingMaker> maker;
-    std::atomic<pitch::ReadingMaker*> pending_maker{nullptr};
-    std::atomic<pitch::ReadingMaker*> retired_maker{nullptr};
     std::atomic<double> root_hz{110.0};
     double applied_root = 0.0;
-    double span_s = 0.05;                 // the tracker's span
+    double span_s = 0.05;                        // the trackers' span
     bool removal_active = false;
     bool started = false;
 
-    // Publication.
-    ReadingOutlet<pitch::Reading, kHistoryLen> out{kStreamLen};
+    // One performer: readings, swapped in whole when the targets change.
+    std::unique_ptr<pitch::ReadingMaker> maker;
+    std::atomic<pitch::ReadingMaker*> pending_maker{nullptr};
+    std::atomic<pitch::ReadingMaker*> retired_maker{nullptr};
+    std::atomic<double> current_target_hz{0.0};
+    // A group: the analyzer, swapped the same way.
+    std::unique_ptr<pitch::EnsembleAnalyzer> analyzer;
+    std::atomic<pitch::EnsembleAnalyzer*> pending_analyzer{nullptr};
+    std::atomic<pitch::EnsembleAnalyzer*> retired_analyzer{nullptr};
+
+    // Publication (the one the mode uses is made in start()).
+    std::unique_ptr<ReadingOutlet<pitch::Reading, kHistoryLen>> out;
+    std::unique_ptr<ReadingOutlet<pitch::EnsembleReading, kHistoryLen>> group_out;
     std::atomic<std::uint64_t> analyzed{0};
     std::atomic<bool> finished{false};
-    std::atomic<double> current_target_hz{0.0};
 
-    // Next block of the file (mono), 0 at its end or on a read error (kept for supervise()).
+    // What supervise() last said, per player.
+    std::array<pitch::PlayerState, kMaxPlayers> told{};
+    std::array<int, kMaxPlayers> told_copy{};
+
+    // Next block of the file (interleaved frames), 0 at its end or on a read error (kept for supervise()).
     std::size_t read_file_block(std::span<float> buf) {
-        return io.read_block(buf, [this] { return file->read(); });
+        return io.read_block(buf, [this] { return file->read_frames(); }) / static_cast<std::size_t>(in_channels);
+    }
+    void publish_time(double& lat_s, std::int64_t idx) const {
+        lat_s = static_cast<double>(static_cast<std::int64_t>(rings[0]->written()) - idx) / rate;
     }
 };
 
 // ---------------------------------------------------------------------------
-// 2. Setup
+// [SECTION] Setup
 // ---------------------------------------------------------------------------
 
 Engine::Engine(const EngineConfig& config, AudioSystem* system) : cfg_(config), system_(system), impl_(std::make_unique<Impl>()) {
-    impl_->cap_scratch.assign(kScratch, 0.0f);
-    impl_->room_scratch.assign(kScratch, 0.0f);
-    impl_->io.play_scratch.assign(kScratch, 0.0f);
-    impl_->prod_scratch.assign(kScratch, 0.0f);
-    impl_->work.assign(kChunk, 0.0f);
+    impl_->told.fill(pitch::PlayerState::resting);
+    impl_->told_copy.fill(-1);
 }
 
 Engine::~Engine() {
     stop();
     delete impl_->pending_maker.exchange(nullptr);
     delete impl_->retired_maker.exchange(nullptr);
+    delete impl_->pending_analyzer.exchange(nullptr);
+    delete impl_->retired_analyzer.exchange(nullptr);
 }
 
-void Engine::open_input_device(std::string_view spec) {
-    if (!system_) throw Error(std::string("no audio system for an input device (") + kDemoHint + ")");
-    Impl& m = *impl_;
-    const auto devs = system_->devices();
-    const int in = choose_device(devs, spec, Direction::input);
-    m.io.request.input_device = in;
-    m.io.request.sample_rate_hz = cfg_.sample_rate_hz;
-    m.io.request.block_len_frames = cfg_.block_len_frames;
-    for (const auto& d : devs)
-        if (d.index == in) m.io.input_spec = d.name;
-    m.input = InputKind::device;
+int Engine::channels_needed() const {
+    if (mode_ == EngineMode::performer) return 1;
+    int top = 0;
+    for (const auto& p : setup_.players) top = std::max(top, p.channel + 1);
+    return top;
 }
-
-void Engine::open_output_device(std::string_view spec) { impl_->io.choose_output(system_, spec, cfg_.block_len_frames); }
-
-void Engine::use_demo(DemoConfig demo) {
-    Impl& m = *impl_;
-    if (demo.sample_rate_hz <= 0.0) demo.sample_rate_hz = cfg_.sample_rate_hz > 0.0 ? cfg_.sample_rate_hz : 48000.0;
-    m.demo = std::make_unique<DemoPerformer>(demo);
-    m.input = InputKind::demo;
-}
-
-double Engine::use_file(const std::string& path) {
-    Impl& m = *impl_;
-    m.file = std::make_unique<SoundReader>(path, -1, std::min(cfg_.block_len_frames, kScratch));
-    m.file_path = path;
-    m.input = InputKind::file;
-    return m.file->info().sample_rate_hz;
-}
-
-void Engine::set_input_has_drone(bool on) { impl_->input_has_drone = on; }
 
 void Engine::set_readings(const pitch::ReadingConfig& config, pitch::TargetSet targets) {
     Impl& m = *impl_;
+    if (m.started && mode_ != EngineMode::performer) throw Error("engine: analysing a group; stop it before following one performer");
     auto maker = std::make_unique<pitch::ReadingMaker>(config, std::move(targets));
+    mode_ = EngineMode::performer;
     m.root_hz.store(config.root_hz);
     drone_.root_hz = config.root_hz;
     delete m.retired_maker.exchange(nullptr);
@@ -141,55 +142,208 @@ void Engine::set_readings(const pitch::ReadingConfig& config, pitch::TargetSet t
     delete m.pending_maker.exchange(maker.release());
 }
 
+void Engine::set_ensemble(EnsembleSetup setup) {
+    Impl& m = *impl_;
+    setup.analysis.hop_s = cfg_.hop_s;
+    pitch::check_players(setup.chord, setup.players, 64);
+    if (m.started) {
+        bool same = mode_ == EngineMode::ensemble && setup.players.size() == setup_.players.size();
+        for (std::size_t i = 0; same && i < setup.players.size(); ++i) same = setup.players[i].channel == setup_.players[i].channel;
+        if (!same) throw Error("ensemble: the players or their channels changed; stop and start the ensemble again");
+    }
+    auto a = std::make_unique<pitch::EnsembleAnalyzer>(setup.chord, setup.players, setup.analysis);
+    setup_ = std::move(setup);
+    have_setup_ = true;
+    mode_ = EngineMode::ensemble;
+    m.root_hz.store(setup_.analysis.root_hz);
+    delete m.retired_analyzer.exchange(nullptr);
+    if (!m.started) {
+        m.analyzer = std::move(a);
+        return;
+    }
+    delete m.pending_analyzer.exchange(a.release());
+}
+
+void Engine::open_input_device(std::string_view spec) {
+    if (!system_) throw Error(std::string("no audio system for an input device (") + kDemoHint + ")");
+    if (mode_ == EngineMode::ensemble && !have_setup_) throw Error("ensemble: set the players before opening a device");
+    Impl& m = *impl_;
+    const auto devs = system_->devices();
+    const int in = choose_device(devs, spec, Direction::input);
+    const int need = channels_needed();
+    for (const auto& d : devs) {
+        if (d.index != in) continue;
+        m.io.input_spec = d.name;
+        if (d.max_input_channels < need) {
+            const std::size_t n = setup_.players.size();
+            std::string chans;
+            for (const auto& p : setup_.players) chans.append(chans.empty() ? "" : ",").append(std::to_string(p.channel + 1));
+            throw Error("input device '" + d.name + "' has " + std::to_string(d.max_input_channels) + " input channel" +
+                        (d.max_input_channels == 1 ? "" : "s") + "; " + std::to_string(n) + " player" + (n == 1 ? "" : "s") +
+                        " on channels " + chans + " need " + std::to_string(need));
+        }
+    }
+    m.io.request.input_device = in;
+    if (need > 1) m.io.request.input_channels = need;
+    m.io.request.sample_rate_hz = cfg_.sample_rate_hz;
+    m.io.request.block_len_frames = cfg_.block_len_frames;
+    m.input = InputKind::device;
+}
+
+void Engine::open_output_device(std::string_view spec) { impl_->io.choose_output(system_, spec, cfg_.block_len_frames); }
+
+void Engine::use_demo(DemoConfig demo) {
+    Impl& m = *impl_;
+    if (demo.sample_rate_hz <= 0.0) demo.sample_rate_hz = cfg_.sample_rate_hz > 0.0 ? cfg_.sample_rate_hz : 48000.0;
+    m.demo = std::make_unique<DemoPerformer>(demo);
+    m.demo_group.reset();
+    m.in_channels = 1;
+    m.input = InputKind::demo;
+}
+
+void Engine::use_demo(DemoEnsembleConfig demo) {
+    if (mode_ != EngineMode::ensemble || !have_setup_) throw Error("ensemble: set the players before choosing the demo");
+    Impl& m = *impl_;
+    if (demo.sample_rate_hz <= 0.0) demo.sample_rate_hz = cfg_.sample_rate_hz > 0.0 ? cfg_.sample_rate_hz : 48000.0;
+    demo.root_hz = setup_.analysis.root_hz;
+    if (demo.voice_cents.empty()) {
+        // An open voicing, as a group would sing it: the player whose voice
+        // ranks k of n from the lowest sits in the octave nearest to
+        // 110 Hz * 2^(2.2 k / (n - 1)) (about A2 for the lowest part up to
+        // about B4 for the highest, in whatever order the players are
+        // listed; they are octave-equivalent, so any octave is measured the
+        // same way).
+        const std::size_t n = setup_.players.size();
+        for (std::size_t j = 0; j < n; ++j) {
+            std::size_t k = 0;  // the rank of player j's voice (ties by listing order)
+            for (std::size_t q = 0; q < n; ++q)
+                k += setup_.players[q].voice < setup_.players[j].voice || (setup_.players[q].voice == setup_.players[j].voice && q < j);
+            const double c = setup_.chord.voice_cents(setup_.players[j].voice);
+            const double centre_hz = 110.0 * std::exp2(n > 1 ? 2.2 * static_cast<double>(k) / static_cast<double>(n - 1) : 0.0);
+            const double base_hz = setup_.analysis.root_hz * std::exp2(c / 1200.0);
+            const double octaves = std::round(std::log2(centre_hz / base_hz));
+            demo.voice_cents.push_back(c + 1200.0 * octaves);
+        }
+    }
+    if (demo.channel_of_singer.empty())
+        for (const auto& p : setup_.players) demo.channel_of_singer.push_back(p.channel);
+    m.demo_group = std::make_unique<DemoEnsemble>(demo);
+    m.demo.reset();
+    m.in_channels = m.demo_group->channels();
+    m.input = InputKind::demo;
+}
+
+double Engine::use_file(const std::string& path) {
+    if (mode_ == EngineMode::ensemble && !have_setup_) throw Error("ensemble: set the players before choosing a file");
+    Impl& m = *impl_;
+    // One performer hears the file's channels mixed; a group reads them apart.
+    const bool group = mode_ == EngineMode::ensemble;
+    auto f = std::make_unique<SoundReader>(path, -1, std::min(cfg_.block_len_frames, kScratch));
+    if (group) {
+        try {
+            pitch::check_players(setup_.chord, setup_.players, f->info().channels);
+        } catch (const Error& e) {
+            throw Error(path + ": " + e.what() + (f->info().channels == 1 ? "; the file is mono" : ""));
+        }
+    }
+    m.in_channels = group ? f->info().channels : 1;
+    m.file = std::move(f);
+    m.file_path = path;
+    m.input = InputKind::file;
+    return m.file->info().sample_rate_hz;
+}
+
+void Engine::set_input_has_drone(bool on) { impl_->input_has_drone = on; }
+
+std::string Engine::input_name() const {
+    const Impl& m = *impl_;
+    switch (m.input) {
+        case InputKind::device: return "'" + m.io.input_spec + "'" + (m.io.in_info.host_api.empty() ? "" : " (" + m.io.in_info.host_api + ")");
+        case InputKind::demo: return m.demo_group ? "the demo ensemble" : "the demo performer";
+        case InputKind::file: return "'" + m.file_path + "'";
+        case InputKind::none: break;
+    }
+    return "no input";
+}
+
 void Engine::start(bool analysis_thread) {
     Impl& m = *impl_;
     if (m.started) return;
-    if (!m.maker) throw Error("engine: readings are not set up (no root or targets)");
-    // Open the streams: one duplex stream when input and output share a device.
+    const bool group = mode_ == EngineMode::ensemble;
+    if (group ? !m.analyzer : !m.maker)
+        throw Error(group ? "ensemble: no chord and players set" : "engine: readings are not set up (no root or targets)");
     if (m.input == InputKind::device) {
-        m.rate = m.io.open_input(*system_, *this).sample_rate_hz;
+        const StreamInfo& info = m.io.open_input(*system_, *this);
+        m.rate = info.sample_rate_hz;
+        m.in_channels = std::max(1, info.input_channels);
+        if (m.in_channels < channels_needed()) {
+            m.io.in_stream.reset();
+            throw Error("input device '" + m.io.input_spec + "' opened with " + std::to_string(m.in_channels) + " channels; the players need " +
+                        std::to_string(channels_needed()));
+        }
     } else if (m.input == InputKind::demo) {
-        m.rate = m.demo->config().sample_rate_hz;
+        m.rate = m.demo_group ? m.demo_group->config().sample_rate_hz : m.demo->config().sample_rate_hz;
+        if (group != (m.demo_group != nullptr)) throw Error("engine: the demo does not match what is analysed (one performer or a group)");
     } else if (m.input == InputKind::file) {
         m.rate = m.file->info().sample_rate_hz;
     } else {
-        throw Error("engine: no input chosen (a device, --demo or --input-file)");
+        throw Error(std::string(group ? "ensemble" : "engine") + ": no input chosen (a device, --demo or --input-file)");
     }
     rate_hz_ = m.rate;
+    m.players = group ? setup_.players.size() : 1;
+    for (std::size_t i = 0; i < m.players; ++i) m.channel_of[i] = group ? setup_.players[i].channel : 0;
     // Everything the analysis needs, sized once.
-    m.ring = std::make_unique<SpscRing<float>>(static_cast<std::size_t>(cfg_.ring_s * m.rate));
     pitch::YinConfig yc;
     yc.sample_rate_hz = m.rate;
     yc.hop_s = cfg_.hop_s;
-    // Live input favours a short span (a step settles within 40 ms); a file
-    // favours the longer span's accuracy and range.
+    // One performer live favours a short span (a step settles within 40 ms);
+    // a file favours the longer span's accuracy and range; a group takes
+    // 50 ms everywhere: with the neighbours in every microphone, a shorter
+    // span lets crosstalk move a low voice by several cents, and a held chord
+    // needs no faster step response.
     const bool live = m.input != InputKind::file;
-    yc.f_min_hz = cfg_.f_min_hz > 0.0 ? cfg_.f_min_hz : live ? kLiveLowestHz : 55.0;
+    const bool short_span = live && !group;
+    yc.f_min_hz = cfg_.f_min_hz > 0.0 ? cfg_.f_min_hz : short_span ? kLiveLowestHz : 55.0;
     yc.f_max_hz = cfg_.f_max_hz;
     yc.max_block_len_samples = kChunk * 4;
-    // 30 ms live, 50 ms for a file, or the shortest span that holds two
-    // periods of a lower f_min (a cello's C string, a double bass: those
-    // readings settle later).
-    yc.span_s = cfg_.span_s > 0.0 ? cfg_.span_s : std::max(live ? 0.030 : 0.050, pitch::YinTracker::min_span_s(yc));
+    // 30 ms or 50 ms, or the shortest span that holds two periods of a lower
+    // f_min (a cello's C string, a double bass: those readings settle later).
+    yc.span_s = cfg_.span_s > 0.0 ? cfg_.span_s : std::max(short_span ? 0.030 : 0.050, pitch::YinTracker::min_span_s(yc));
     m.span_s = yc.span_s;
     // The vibrato correction waits three hops for a frame's right neighbours:
-    // worth it for a file, not for the live settling bar.
-    yc.vibrato_correction = !live;
-    m.tracker = std::make_unique<pitch::YinTracker>(yc);
+    // not worth it for one performer's live settling bar.
+    if (short_span) yc.vibrato_correction = false;
     CancellerConfig cc = cfg_.canceller;
     cc.sample_rate_hz = m.rate;
-    if (m.input_has_drone) {
-        // A recording: the voice may sound from the first sample, so there is
-        // no silent moment to learn the room in; one notch width throughout.
-        cc.bandwidth_hz = cc.quiet_bandwidth_hz = cc.recording_bandwidth_hz;
+    // A recording: the voice may sound from the first sample, so there is no
+    // silent moment to learn the room in; one notch width throughout.
+    if (m.input_has_drone) cc.bandwidth_hz = cc.quiet_bandwidth_hz = cc.recording_bandwidth_hz;
+    for (std::size_t i = 0; i < m.players; ++i) {
+        m.rings.push_back(std::make_unique<SpscRing<float>>(static_cast<std::size_t>(cfg_.ring_s * m.rate)));
+        m.trackers.push_back(std::make_unique<pitch::YinTracker>(yc));
+        m.cancellers.push_back(std::make_unique<DroneCanceller>(cc));
     }
-    m.canceller = std::make_unique<DroneCanceller>(cc);
+    m.cap_scratch.assign(kScratch, 0.0f);
+    m.room_scratch.assign(kScratch, 0.0f);
+    m.io.play_scratch.assign(kScratch, 0.0f);
+    m.prod_scratch.assign(kScratch * static_cast<std::size_t>(m.in_channels), 0.0f);
+    m.work.assign(kChunk * m.players, 0.0f);
+    if (group) m.group_out = std::make_unique<ReadingOutlet<pitch::EnsembleReading, kHistoryLen>>(kEnsembleStreamLen);
+    else m.out = std::make_unique<ReadingOutlet<pitch::Reading, kHistoryLen>>(kPerformerStreamLen);
     if (m.input == InputKind::demo) {
+        // Each microphone hears the drone from its own place in the room.
         m.room_drone = std::make_unique<Drone>(m.rate);
-        RoomConfig rc = cfg_.demo_room;
-        rc.sample_rate_hz = m.rate;
-        m.room = std::make_unique<SimulatedRoom>(rc);
         m.room_drone->set(drone_);
+        for (std::size_t i = 0; i < m.players; ++i) {
+            RoomConfig rc = cfg_.demo_room;
+            if (group) {
+                rc.delay_s = 0.005 + 0.002 * static_cast<double>(i);
+                rc.gain = 0.8 - 0.05 * static_cast<double>(i % 4);
+                rc.lowpass_hz = RoomConfig{}.lowpass_hz;
+            }
+            rc.sample_rate_hz = m.rate;
+            m.rooms.push_back(std::make_unique<SimulatedRoom>(rc));
+        }
     }
     m.io.open_output(system_, *this, m.input == InputKind::device ? m.rate : cfg_.sample_rate_hz, drone_);
     m.drone_for_analysis.publish(drone_);
@@ -203,11 +357,12 @@ void Engine::start(bool analysis_thread) {
             const std::size_t block = std::min(cfg_.block_len_frames, kScratch);
             m.io.start_producer(block, m.rate, [this, block]() -> std::size_t {
                 Impl& s = *impl_;
-                std::span<float> buf(s.prod_scratch.data(), block);
+                std::span<float> buf(s.prod_scratch.data(), block * static_cast<std::size_t>(s.in_channels));
                 std::size_t n = block;
                 if (s.demo) s.demo->render(buf);
+                else if (s.demo_group) s.demo_group->render(buf);
                 else n = s.read_file_block(buf);
-                if (n > 0) capture(buf.data(), n, 1);
+                if (n > 0) capture(buf.data(), n, s.in_channels);
                 return n;
             });
         }
@@ -220,9 +375,9 @@ void Engine::stop() {
     if (!m.io.in_stream && !m.io.out_stream) return;
     // A stream whose callbacks have stopped (its device gone, not yet noticed
     // by supervise) is retired rather than closed here, which could block.
-    const std::uint64_t before = m.io.callbacks.load();
-    bool flowing = true;
-    if (m.input == InputKind::device) {
+    bool flowing = !m.io.input_lost;
+    if (flowing && m.input == InputKind::device) {
+        const std::uint64_t before = m.io.callbacks.load();
         std::this_thread::sleep_for(std::chrono::milliseconds(60));
         flowing = m.io.callbacks.load() != before;
     }
@@ -230,30 +385,33 @@ void Engine::stop() {
 }
 
 // ---------------------------------------------------------------------------
-// 3. Callbacks
+// [SECTION] Callbacks
 // ---------------------------------------------------------------------------
 
 void Engine::capture(const float* in, std::size_t frames, int channels) noexcept {
     Impl& m = *impl_;
     m.io.count_callback();
-    if (!m.ring) return;
+    if (m.rings.empty()) return;
     const auto ch = static_cast<std::size_t>(std::max(1, channels));
     std::size_t done = 0;
     while (done < frames) {
         const std::size_t n = std::min(frames - done, kScratch);
-        float* s = m.cap_scratch.data();
-        if (ch == 1) {
-            std::copy_n(in + done, n, s);
-        } else {
-            for (std::size_t i = 0; i < n; ++i) s[i] = in[(done + i) * ch];
+        if (m.room_drone) m.room_drone->render(std::span<float>(m.room_scratch.data(), n));
+        for (std::size_t p = 0; p < m.players; ++p) {
+            float* s = m.cap_scratch.data();
+            const auto c = static_cast<std::size_t>(m.channel_of[p]);
+            if (ch == 1 && c == 0) {
+                std::copy_n(in + done, n, s);
+            } else if (c < ch) {
+                const float* src = in + done * ch + c;
+                for (std::size_t i = 0; i < n; ++i) s[i] = src[i * ch];
+            } else {
+                std::fill_n(s, n, 0.0f);  // not delivered: silence (reported by the silent-channel check)
+            }
+            // The demo's microphones also hear the drone through their room.
+            if (m.room_drone) m.rooms[p]->process_add(std::span<const float>(m.room_scratch.data(), n), std::span<float>(s, n));
+            m.rings[p]->write(std::span<const float>(s, n));
         }
-        // The demo's microphone also hears the drone through its room.
-        if (m.room_drone) {
-            std::span<float> spk(m.room_scratch.data(), n);
-            m.room_drone->render(spk);
-            m.room->process_add(spk, std::span<float>(s, n));
-        }
-        m.ring->write(std::span<const float>(s, n));
         done += n;
     }
 }
@@ -263,93 +421,141 @@ void Engine::playback(float* out, std::size_t frames, int channels) noexcept { i
 void Engine::xrun(bool input_overflow, bool output_underflow) noexcept { impl_->io.count_xrun(input_overflow, output_underflow); }
 
 // ---------------------------------------------------------------------------
-// 4. Analysis
+// [SECTION] Analysis
 // ---------------------------------------------------------------------------
 
 std::size_t Engine::analyze_available() noexcept {
     Impl& m = *impl_;
-    if (!m.ring || !m.maker) return 0;
+    if (m.rings.empty()) return 0;
     if (pitch::ReadingMaker* fresh = m.pending_maker.exchange(nullptr)) {
         pitch::ReadingMaker* old = m.maker.release();
         m.maker.reset(fresh);
         m.applied_root = 0.0;
         delete m.retired_maker.exchange(old);  // normally empty: the control thread frees retired makers
     }
+    if (pitch::EnsembleAnalyzer* fresh = m.pending_analyzer.exchange(nullptr)) {
+        pitch::EnsembleAnalyzer* old = m.analyzer.release();
+        m.analyzer.reset(fresh);
+        delete m.retired_analyzer.exchange(old);  // normally empty: the control thread frees retired analyzers
+    }
     const double root = m.root_hz.load(std::memory_order_acquire);
     if (root != m.applied_root) {
         m.applied_root = root;
-        m.maker->set_root_hz(root);
-        if (m.input_has_drone && cfg_.drone_removal) {
-            m.canceller->set_harmonics(root);
-            m.canceller->set_level(1.0, true);
-        }
+        if (m.maker) m.maker->set_root_hz(root);
+        if (m.input_has_drone && cfg_.drone_removal)
+            for (auto& c : m.cancellers) {
+                c->set_harmonics(root);
+                c->set_level(1.0, true);
+            }
     }
     DroneSettings ds;
     if (m.drone_for_analysis.read(ds) && cfg_.drone_removal && !m.input_has_drone) {
-        const std::size_t n = drone_partials(ds, m.rate, m.canceller->config().max_freq_hz, m.partials);
-        m.canceller->set_partials(std::span<const DronePartial>(m.partials, n));
-        m.canceller->set_level(ds.on ? drone_gain(ds.level_dbfs) : 0.0);
+        const std::size_t n = drone_partials(ds, m.rate, m.cancellers[0]->config().max_freq_hz, m.partials);
+        for (auto& c : m.cancellers) {
+            c->set_partials(std::span<const DronePartial>(m.partials, n));
+            c->set_level(ds.on ? drone_gain(ds.level_dbfs) : 0.0);
+        }
     }
-    m.removal_active = cfg_.drone_removal && m.canceller->active();
+    m.removal_active = cfg_.drone_removal && m.cancellers[0]->active();
 
     std::size_t total = 0;
     while (total < 8 * kChunk) {
-        std::span<float> work(m.work.data(), kChunk);
-        const std::size_t n = m.ring->read(work);
+        // The rings fill in lock-step; take what every one of them holds.
+        std::size_t n = kChunk;
+        for (const auto& r : m.rings) n = std::min(n, r->available());
         if (n == 0) break;
-        work = work.first(n);
-        if (m.removal_active) m.canceller->process(work, work);
-        m.tracker->push(work);
+        for (std::size_t p = 0; p < m.players; ++p) {
+            std::span<float> w(&m.work[p * kChunk], n);
+            m.rings[p]->read(w);
+            if (m.removal_active) m.cancellers[p]->process(w, w);
+            m.trackers[p]->push(w);
+        }
         m.analyzed.fetch_add(n, std::memory_order_relaxed);
         total += n;
-        pitch::PitchFrame f;
-        while (m.tracker->pull(f)) {
-            const auto idx = static_cast<std::int64_t>(std::llround(f.t_s * m.rate));
+        analyze_frames();
+    }
+    if (total == 0 && m.io.producer_done.load(std::memory_order_acquire) && m.rings[0]->available() == 0) m.finished.store(true);
+    return total;
+}
+
+// Every tracker frame ready: drone-removal checks per channel, then one
+// reading (one performer) or one ensemble reading (a group), published.
+void Engine::analyze_frames() noexcept {
+    Impl& m = *impl_;
+    while (m.trackers[0]->pull(m.frames[0])) {
+        for (std::size_t p = 1; p < m.players; ++p)
+            if (!m.trackers[p]->pull(m.frames[p])) m.frames[p] = pitch::PitchFrame{m.frames[0].t_s, 0.0, 0.0};
+        const std::uint64_t notes_before = m.maker ? m.maker->notes_started() : 0;
+        for (std::size_t p = 0; p < m.players; ++p) {
+            pitch::PitchFrame& f = m.frames[p];
+            DroneCanceller& c = *m.cancellers[p];
             // While drone removal is still learning the room (a quarter of a
             // second after the drone starts or moves), the drone may leak
             // through: those frames are reported unvoiced.
-            if (m.removal_active && m.canceller->acquiring()) f.f0_hz = 0.0;
+            if (m.removal_active && c.acquiring()) f.f0_hz = 0.0;
             // What is left of the drone after removal (a real room is never
             // quite linear and still): quiet, and at the drone's own pitch.
-            if (m.removal_active && f.voiced() && m.canceller->is_residue(f.f0_hz, f.level_dbfs)) f.f0_hz = 0.0;
-            const std::uint64_t notes_before = m.maker->notes_started();
-            const pitch::Reading r = m.maker->make(f, idx);
-            if (m.removal_active && !m.input_has_drone) {
-                // Tell drone removal whether the performer sounds, and since when.
+            if (m.removal_active && f.voiced() && c.is_residue(f.f0_hz, f.level_dbfs)) f.f0_hz = 0.0;
+        }
+        const auto idx = static_cast<std::int64_t>(std::llround(m.frames[0].t_s * m.rate));
+        double lat_s = 0.0;
+        m.publish_time(lat_s, idx);
+        if (mode_ == EngineMode::performer) {
+            const pitch::Reading r = m.maker->make(m.frames[0], idx);
+            if (r.target_index >= 0)
+                m.current_target_hz.store(r.root_hz * std::exp2(r.target_cents / 1200.0), std::memory_order_relaxed);
+            m.out->publish(r, lat_s);
+        } else {
+            m.group_out->publish(m.analyzer->process(std::span<const pitch::PitchFrame>(m.frames.data(), m.players), idx), lat_s);
+        }
+        if (m.removal_active && !m.input_has_drone) {
+            // Tell drone removal whether the performer sounds, and since when.
+            const auto now = static_cast<double>(m.analyzed.load(std::memory_order_relaxed));
+            const bool new_note = m.maker && mode_ == EngineMode::performer && m.maker->notes_started() != notes_before;
+            for (std::size_t p = 0; p < m.players; ++p) {
+                const pitch::PitchFrame& f = m.frames[p];
                 const double onset = f.t_s - 0.5 * m.span_s;
-                const auto now = static_cast<double>(m.analyzed.load(std::memory_order_relaxed));
-                m.canceller->set_voice(f.voiced(), static_cast<std::size_t>(std::max(0.0, now - onset * m.rate)));
-                if (m.maker->notes_started() != notes_before) m.canceller->new_note();
+                m.cancellers[p]->set_voice(f.voiced(), static_cast<std::size_t>(std::max(0.0, now - onset * m.rate)));
+                if (new_note) m.cancellers[p]->new_note();
             }
-            if (r.target_index >= 0) m.current_target_hz.store(r.root_hz * std::exp2(r.target_cents / 1200.0), std::memory_order_relaxed);
-            m.out.publish(r, static_cast<double>(static_cast<std::int64_t>(m.ring->written()) - idx) / m.rate);
         }
     }
-    if (total == 0 && m.io.producer_done.load(std::memory_order_acquire) && m.ring->available() == 0) m.finished.store(true);
-    return total;
 }
 
 StreamInfo Engine::input_info() const { return impl_->io.in_info; }
 StreamInfo Engine::output_info() const { return impl_->io.out_info; }
 
-bool Engine::latest(pitch::Reading& out) { return impl_->out.latest.read(out); }
-std::size_t Engine::history(std::span<pitch::Reading> out) const { return impl_->out.history.read(out); }
-std::size_t Engine::take_readings(std::span<pitch::Reading> out) { return impl_->out.stream.read(out); }
+bool Engine::latest(pitch::Reading& out) { return impl_->out && impl_->out->latest.read(out); }
+bool Engine::latest(pitch::EnsembleReading& out) { return impl_->group_out && impl_->group_out->latest.read(out); }
+std::size_t Engine::history(std::span<pitch::Reading> out) const { return impl_->out ? impl_->out->history.read(out) : 0; }
+std::size_t Engine::history(std::span<pitch::EnsembleReading> out) const {
+    return impl_->group_out ? impl_->group_out->history.read(out) : 0;
+}
+std::size_t Engine::take_readings(std::span<pitch::Reading> out) { return impl_->out ? impl_->out->stream.read(out) : 0; }
+std::size_t Engine::take_readings(std::span<pitch::EnsembleReading> out) {
+    return impl_->group_out ? impl_->group_out->stream.read(out) : 0;
+}
 double Engine::stream_time_s() const { return impl_->rate > 0 ? static_cast<double>(impl_->analyzed.load()) / impl_->rate : 0.0; }
 
 EngineStatus Engine::status() const {
     const Impl& m = *impl_;
     EngineStatus st;
+    st.mode = mode_;
     st.input = m.input;
     st.sample_rate_hz = m.rate;
-    st.captured_samples = m.ring ? m.ring->written() : 0;
-    st.analyzed_samples = m.analyzed.load();
-    st.ring_overflow_samples = m.ring ? m.ring->overflow_samples() : 0;
-    st.ring_overflow_events = m.ring ? m.ring->overflow_events() : 0;
+    st.channels = m.in_channels;
+    st.players = static_cast<int>(m.started ? m.players : mode_ == EngineMode::performer ? 1 : setup_.players.size());
+    if (!m.rings.empty()) {
+        st.captured_frames = m.rings[0]->written();
+        st.ring_overflow_frames = m.rings[0]->overflow_samples();
+        st.ring_overflow_events = m.rings[0]->overflow_events();
+    }
+    st.analyzed_frames = m.analyzed.load();
     m.io.report(st);
-    st.tracker_dropped_frames = m.tracker ? m.tracker->dropped_frames() : 0;
-    m.out.report(st);
-    st.tracker_delay_s = m.tracker ? m.tracker->delay_s() : 0.0;
+    for (const auto& t : m.trackers) st.tracker_dropped_frames += t->dropped_frames();
+    if (m.out) m.out->report(st);
+    if (m.group_out) m.group_out->report(st);
+    st.tracker_delay_s = m.trackers.empty() ? 0.0 : m.trackers[0]->delay_s();
     st.device_input_latency_s = m.io.in_info.input_latency_s;
     st.device_output_latency_s = m.io.out_info.output_latency_s;
     st.input_ok = m.started && !m.io.input_lost && !m.finished.load();
@@ -360,28 +566,57 @@ EngineStatus Engine::status() const {
 }
 
 // ---------------------------------------------------------------------------
-// 5. Producers (the real-time ones live in start()); run_fast()
+// [SECTION] Producers (the real-time ones live in start())
 // ---------------------------------------------------------------------------
 
-void Engine::run_fast(const std::function<void(const pitch::Reading&)>& on_reading, double max_s) {
+template <class R>
+void Engine::run_fast_impl(const std::function<void(const R&)>& on_reading, double max_s) {
     Impl& m = *impl_;
-    if (m.input != InputKind::file) throw Error("engine: --fast needs --input-file");
+    if (m.input != InputKind::file) throw Error(std::string(mode_ == EngineMode::ensemble ? "ensemble" : "engine") + ": --fast needs --input-file");
     start(false);
-    std::span<float> buf(m.prod_scratch.data(), std::min(cfg_.block_len_frames, kScratch));
-    pitch::Reading got[256];
-    m.io.run_fast<pitch::Reading>(
-        buf, 1, static_cast<std::size_t>(0.2 * m.rate), std::span<pitch::Reading>(got), max_s, on_reading,
+    const std::size_t block = std::min(cfg_.block_len_frames, kScratch);
+    const auto ch = static_cast<std::size_t>(m.in_channels);
+    std::span<float> buf(m.prod_scratch.data(), block * ch);
+    std::vector<R> got(std::is_same_v<R, pitch::Reading> ? 256 : 64);
+    m.io.run_fast<R>(
+        buf, ch, static_cast<std::size_t>(0.2 * m.rate), std::span<R>(got), max_s, on_reading,
         [&m](std::span<float> b) { return m.read_file_block(b); },
-        [this](const float* data, std::size_t n) {
-            capture(data, n, 1);
+        [this, &m](const float* data, std::size_t n) {
+            capture(data, n, m.in_channels);
             analyze_available();
         },
-        [this](std::span<pitch::Reading> g) { return take_readings(g); }, [this] { return stream_time_s(); });
+        [this](std::span<R> g) { return take_readings(g); }, [this] { return stream_time_s(); });
     m.finished.store(true);
 }
 
+void Engine::run_fast(const std::function<void(const pitch::Reading&)>& on_reading, double max_s) {
+    if (mode_ != EngineMode::performer) throw Error("engine: analysing a group; its readings are ensemble readings");
+    run_fast_impl<pitch::Reading>(on_reading, max_s);
+}
+
+void Engine::run_fast(const std::function<void(const pitch::EnsembleReading&)>& on_reading, double max_s) {
+    if (mode_ != EngineMode::ensemble) throw Error("engine: following one performer; its readings are not ensemble readings");
+    run_fast_impl<pitch::EnsembleReading>(on_reading, max_s);
+}
+
+void Engine::run_demo_frames(std::size_t frames) noexcept {
+    Impl& m = *impl_;
+    if ((!m.demo && !m.demo_group) || !m.started || m.io.analysis.joinable()) return;
+    const std::size_t block = std::min(cfg_.block_len_frames, kScratch);
+    const auto ch = static_cast<std::size_t>(m.in_channels);
+    while (frames > 0) {
+        const std::size_t n = std::min(frames, block);
+        std::span<float> buf(m.prod_scratch.data(), n * ch);
+        if (m.demo) m.demo->render(buf);
+        else m.demo_group->render(buf);
+        capture(buf.data(), n, m.in_channels);
+        analyze_available();
+        frames -= n;
+    }
+}
+
 // ---------------------------------------------------------------------------
-// 6. Control
+// [SECTION] Control
 // ---------------------------------------------------------------------------
 
 void Engine::set_drone(const DroneSettings& s) {
@@ -426,32 +661,74 @@ void Engine::sound_tone(double freq_hz, double dur_s) {
 
 void Engine::supervise() {
     Impl& m = *impl_;
+    delete m.retired_maker.exchange(nullptr);
+    delete m.retired_analyzer.exchange(nullptr);
     if (m.io.producer_failed.exchange(false)) say(m.io.producer_error);
-    if (!m.started || m.input != InputKind::device) {
-        if (m.started && m.io.want_output && !m.output_lost && m.io.out_stream && !m.io.out_stream->alive()) {
+    if (!m.started) return;
+    if (m.input != InputKind::device) {
+        if (m.io.want_output && !m.output_lost && m.io.out_stream && !m.io.out_stream->alive()) {
             m.output_lost = true;
             say("output device '" + m.io.output_spec + "' stopped; the drone is silent");
         }
+        if (mode_ == EngineMode::ensemble) tell_channels();
         return;
     }
+    // The device: callbacks must keep coming; a lost device is looked for
+    // again every reopen_every_s, by name, with the same channels and rate.
     const auto now = Clock::now();
-    const bool stalled = m.io.stalled(now, cfg_.stall_s);
-    const bool dead = !m.io.in_stream || !m.io.in_stream->alive() || (m.io.out_stream && !m.io.out_stream->alive()) || stalled;
-    if (dead && !m.io.input_lost) {
-        m.io.input_lost = true;
-        m.output_lost = m.io.want_output;
-        say("input device '" + m.io.input_spec + "' stopped delivering audio; readings paused" +
-            std::string(m.io.want_output ? ", drone stopped" : "") + "; trying to reopen it every " +
-            pitch::format_trimmed(cfg_.reopen_every_s, 1) + " s");
-        m.io.retire_streams(*system_);
-        m.last_try = Clock::now();
-        return;
+    const bool group = mode_ == EngineMode::ensemble;
+    if (!m.io.input_lost) {
+        const bool stalled = m.io.stalled(now, cfg_.stall_s);
+        if (stalled || !m.io.in_stream || !m.io.in_stream->alive() || (m.io.out_stream && !m.io.out_stream->alive())) {
+            m.io.input_lost = true;
+            m.output_lost = m.io.want_output;
+            say("input device '" + m.io.input_spec + "' stopped delivering audio; " + (group ? "ensemble readings" : "readings") + " paused" +
+                std::string(m.io.want_output ? ", drone stopped" : "") + "; trying to reopen it every " +
+                pitch::format_trimmed(cfg_.reopen_every_s, 1) + " s");
+            m.io.retire_streams(*system_);
+            m.last_try = now;
+        }
+    } else if (std::chrono::duration<double>(now - m.last_try).count() >= cfg_.reopen_every_s) {
+        m.last_try = now;
+        if (m.io.try_reopen(*system_, *this, now)) {
+            m.output_lost = false;
+            say("input device '" + m.io.input_spec + "' is back (" + pitch::format_trimmed(m.io.in_stream->info().sample_rate_hz, 0) + " Hz)");
+        }
     }
-    if (!m.io.input_lost || std::chrono::duration<double>(now - m.last_try).count() < cfg_.reopen_every_s) return;
-    m.last_try = now;
-    if (!m.io.try_reopen(*system_, *this, now)) return;  // still gone; try again later
-    m.output_lost = false;
-    say("input device '" + m.io.input_spec + "' is back (" + pitch::format_trimmed(m.io.in_stream->info().sample_rate_hz, 0) + " Hz)");
+    if (group) tell_channels();
+}
+
+// A group's channels: one line whenever a player's channel becomes silent,
+// carries another's voice, or recovers.
+void Engine::tell_channels() {
+    Impl& m = *impl_;
+    if (!m.group_out || m.group_out->history.count() == 0) return;
+    pitch::EnsembleReading r;
+    if (m.group_out->history.read(std::span<pitch::EnsembleReading>(&r, 1)) == 0) return;
+    for (std::size_t i = 0; i < setup_.players.size() && i < kMaxPlayers; ++i) {
+        const pitch::PlayerReading& p = r.p[i];
+        const pitch::PlayerState was = m.told[i];
+        const bool bad = p.state == pitch::PlayerState::silent || p.state == pitch::PlayerState::copy;
+        const bool was_bad = was == pitch::PlayerState::silent || was == pitch::PlayerState::copy;
+        const std::string who = player_text(setup_.players[i], i);
+        if (p.state == pitch::PlayerState::silent && was != pitch::PlayerState::silent) {
+            say(who + " is silent while the others sound: check its microphone and cable");
+        } else if (p.state == pitch::PlayerState::copy && (was != pitch::PlayerState::copy || m.told_copy[i] != p.copy_of)) {
+            const std::size_t o = static_cast<std::size_t>(p.copy_of);
+            const double d = r.p[o].level_dbfs - p.level_dbfs;
+            std::string level = std::isfinite(d) && std::fabs(d) > 3.0
+                                    ? "; it is " + pitch::format_trimmed(std::round(std::fabs(d)), 0) + " dB " + (d > 0 ? "quieter" : "louder")
+                                    : "";
+            say(who + " carries the same voice as " + player_text(setup_.players[o], o) + level +
+                ": its microphone hears the neighbour (crosstalk) or the two share one source");
+        } else if (was_bad && !bad) {
+            say(who + " is back: its own voice again");
+        }
+        if (bad || was_bad) {
+            m.told[i] = bad ? p.state : pitch::PlayerState::sounding;
+            m.told_copy[i] = p.copy_of;
+        }
+    }
 }
 
 }  // namespace beatless::audio

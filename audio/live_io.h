@@ -1,21 +1,8 @@
-// LiveIo — the stream plumbing both live engines share.
-//
-// Engine (audio/engine.h, one performer) and EnsembleEngine
-// (audio/ensemble.h, one ring per player) differ in what they capture and
-// analyze, but move sound the same way; this is that common part:
-//   - the devices asked for and their streams (one duplex stream when input
-//     and output are the same device), opened and retired alike;
-//   - the playback callback: the mono drone fanned out to every output
-//     channel, rendered in chunks of a preallocated scratch;
-//   - the counters the callbacks keep (callbacks seen, host overflows and
-//     underflows) and the watchdog's stall check on them;
-//   - the analysis thread, and the producer that feeds a demo or a file at
-//     real-time pace, or (run_fast) as fast as possible in the caller;
-//   - ReadingOutlet: readings published lock-free (latest, history, stream);
-//   - LiveStatus: the status fields both engines report.
-// What differs (capture, analysis, reopening) stays in each engine.
-//
-// Index: InputKind, LiveStatus, ReadingOutlet, LiveIo.
+// LiveIo — the engine's stream plumbing: devices and streams (one duplex stream when input and
+// output are the same device), the drone fanned out to the outputs, the callback counters and the
+// watchdog's stall check, the analysis and paced producer threads, run_fast(), and ReadingOutlet
+// (readings published lock-free: latest, recent, stream).
+// Thread: setup and control from the engine's control thread; the ones marked so in the callbacks.
 #pragma once
 
 #include "audio/device.h"
@@ -42,7 +29,7 @@ enum class InputKind { none, device, demo, file };
 
 std::string_view input_kind_name(InputKind k);
 
-// The status fields both engines report (their status structs add their own).
+// The status fields of the stream layer (EngineStatus adds the analysis's).
 struct LiveStatus {
     InputKind input = InputKind::none;
     double sample_rate_hz = 0.0;                // analysis rate

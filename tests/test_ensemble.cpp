@@ -9,7 +9,7 @@
 // (tests/reference/lsq_root.py, numpy.linalg.lstsq and scipy's
 // minimize_scalar). Bad inputs: a device with fewer channels than players,
 // a silent channel, two channels carrying the same voice.
-#include "audio/ensemble.h"
+#include "audio/engine.h"
 #include "audio/fake_device.h"
 #include "audio/soundfile.h"
 #include "pitch/base/error.h"
@@ -63,11 +63,11 @@ struct Messages {
 // channels; with msgs, supervise() runs after every block and its lines are kept.
 std::vector<pitch::EnsembleReading> through_device(const test::GroupTake& take, const audio::EnsembleSetup& setup, Messages* msgs = nullptr) {
     audio::FakeAudioSystem sys({audio::fake_device(0, "Fake quad box", take.channels, 0, take.rate_hz)}, {take.rate_hz});
-    audio::EnsembleEngineConfig ec;
+    audio::EngineConfig ec;
     ec.sample_rate_hz = take.rate_hz;
-    audio::EnsembleEngine eng(ec, &sys);
+    audio::Engine eng(ec, &sys);
     if (msgs) eng.on_message([msgs](const std::string& m) { msgs->lines.push_back(m); });
-    eng.set_setup(setup);
+    eng.set_ensemble(setup);
     eng.open_input_device("quad");
     eng.start(false);
     const std::size_t block = 256, ch = static_cast<std::size_t>(take.channels);
@@ -143,8 +143,8 @@ TEST_CASE("four voices from a multi-channel sound file (--fast path): within 1 c
     test::TempDir dir;
     const std::string path = dir.file("quartet.wav");
     test::write_take(path, take.rate_hz, take.channels, take.interleaved);
-    audio::EnsembleEngine eng(audio::EnsembleEngineConfig{}, nullptr);
-    eng.set_setup(setup_of(chord, g));
+    audio::Engine eng(audio::EngineConfig{}, nullptr);
+    eng.set_ensemble(setup_of(chord, g));
     CHECK(eng.use_file(path) == 44100.0);
     std::vector<pitch::EnsembleReading> rs;
     eng.run_fast([&](const pitch::EnsembleReading& r) { rs.push_back(r); });
@@ -222,14 +222,14 @@ TEST_CASE("a multi-channel device that disappears: readings pause, one line says
     test::GroupTake take;
     test::render_group(take, chord, kRootHz, g);
     audio::FakeAudioSystem sys({audio::fake_device(0, "Fake quad box", take.channels, 0, take.rate_hz)}, {take.rate_hz});
-    audio::EnsembleEngineConfig ec;
+    audio::EngineConfig ec;
     ec.sample_rate_hz = take.rate_hz;
     ec.reopen_every_s = 0.0;  // retry at every supervise() in this test
     ec.stall_s = 3600.0;      // only the stream's own state counts here
-    audio::EnsembleEngine eng(ec, &sys);
+    audio::Engine eng(ec, &sys);
     std::vector<std::string> msgs;
     eng.on_message([&](const std::string& m) { msgs.push_back(m); });
-    eng.set_setup(setup_of(chord, g));
+    eng.set_ensemble(setup_of(chord, g));
     eng.open_input_device("quad");
     eng.start(false);
     const std::size_t block = 256, ch = static_cast<std::size_t>(take.channels), frames = take.interleaved.size() / ch;
@@ -272,8 +272,8 @@ TEST_CASE("a multi-channel device that disappears: readings pause, one line says
 TEST_CASE("a device with fewer channels than players is refused in one line naming it and the counts") {
     const pitch::Chord chord = pitch::parse_chord("4:5:6:7");
     audio::FakeAudioSystem sys({audio::fake_device(0, "Fake stereo interface", 2, 2)});
-    audio::EnsembleEngine eng(audio::EnsembleEngineConfig{}, &sys);
-    eng.set_setup(setup_of(chord, quartet()));
+    audio::Engine eng(audio::EngineConfig{}, &sys);
+    eng.set_ensemble(setup_of(chord, quartet()));
     try {
         eng.open_input_device("");
         FAIL("a 2-channel device was accepted for 4 players");
@@ -284,24 +284,24 @@ TEST_CASE("a device with fewer channels than players is refused in one line nami
     auto three = quartet();
     three.pop_back();
     three[2].channel = 4;
-    eng.set_setup(setup_of(chord, three));
+    eng.set_ensemble(setup_of(chord, three));
     CHECK_THROWS_WITH_AS(eng.open_input_device("stereo"), "input device 'Fake stereo interface' has 2 input channels; 3 players on channels 1,2,5 need 5", Error);
     // A setup that shares a channel between two players never reaches the device.
     auto shared = quartet();
     shared[1].channel = 0;
-    CHECK_THROWS_WITH_AS(eng.set_setup(setup_of(chord, shared)),
+    CHECK_THROWS_WITH_AS(eng.set_ensemble(setup_of(chord, shared)),
                          "player 2 (Alto): channel 1 is already player 1's; give each player a channel of their own", Error);
     auto wrong_voice = quartet();
     wrong_voice[0].voice = 4;
-    CHECK_THROWS_WITH_AS(eng.set_setup(setup_of(chord, wrong_voice)), "player 1 (Soprano): voice 5 is not in the chord 4:5:6:7 (voices 1 to 4)", Error);
+    CHECK_THROWS_WITH_AS(eng.set_ensemble(setup_of(chord, wrong_voice)), "player 1 (Soprano): voice 5 is not in the chord 4:5:6:7 (voices 1 to 4)", Error);
 }
 
 TEST_CASE("a file with fewer channels than the players need is refused naming the file") {
     test::TempDir dir;
     const std::string path = dir.file("stereo.wav");
     test::write_take(path, 48000.0, 2, std::vector<float>(2 * 4800, 0.1f), audio::SampleFormat::pcm16);
-    audio::EnsembleEngine eng(audio::EnsembleEngineConfig{}, nullptr);
-    eng.set_setup(setup_of(pitch::parse_chord("4:5:6:7"), quartet()));
+    audio::Engine eng(audio::EngineConfig{}, nullptr);
+    eng.set_ensemble(setup_of(pitch::parse_chord("4:5:6:7"), quartet()));
     CHECK_THROWS_WITH_AS(eng.use_file(path), (path + ": player 3 (Tenor): channel 3 does not exist (channels 1 to 2)").c_str(), Error);
 }
 

@@ -71,8 +71,8 @@ TEST_CASE("live path: a voice stepping between ratios over the drone, through a 
             CHECK(c.settle_samples < static_cast<std::int64_t>(0.1 * rate));
         }
         const audio::EngineStatus stt = rig.engine.status();
-        CHECK(stt.ring_overflow_samples == 0);
-        CHECK(stt.captured_samples == static_cast<std::uint64_t>(rig.captured));
+        CHECK(stt.ring_overflow_frames == 0);
+        CHECK(stt.captured_frames == static_cast<std::uint64_t>(rig.captured));
         CHECK(stt.readings == rig.readings.size());
         CHECK(stt.drone_removal_active);
     }

@@ -9,7 +9,7 @@
 // playback, with drone changes applied inside them) and the analysis steps
 // after warm-up. glibc exports __libc_malloc and friends for exactly this use.
 // Under the sanitizers (which interpose the allocator themselves) it is skipped.
-#include "audio/ensemble.h"
+#include "audio/engine.h"
 #include "tests/ensemble_signals.h"
 #include "tests/live_rig.h"
 #include "tests/mix_signals.h"
@@ -188,12 +188,12 @@ TEST_CASE("ensemble engine: the capture and playback callbacks allocate nothing 
     take.dur_s = 3.0;
     test::render_group(take, chord, 98.0, g);
     audio::FakeAudioSystem sys({audio::fake_device(0, "Fake quad duplex", 4, 2)}, {48000.0});
-    audio::EnsembleEngineConfig ec;
+    audio::EngineConfig ec;
     ec.sample_rate_hz = 48000.0;
-    audio::EnsembleEngine eng(ec, &sys);
+    audio::Engine eng(ec, &sys);
     audio::EnsembleSetup s{chord, test::players_of(g), {}};
     s.analysis.root_hz = 98.0;
-    eng.set_setup(s);
+    eng.set_ensemble(s);
     eng.open_input_device("quad");
     eng.open_output_device("quad");
     audio::DroneSettings d;
@@ -213,7 +213,7 @@ TEST_CASE("ensemble engine: the capture and playback callbacks allocate nothing 
         if (b == 300) {
             audio::EnsembleSetup t = s;
             t.analysis.root_hz = 98.5;
-            eng.set_setup(t);
+            eng.set_ensemble(t);
         }
         long a0 = g_allocs.load(), l0 = g_locks.load();
         t_watched = true;

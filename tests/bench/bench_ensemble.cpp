@@ -9,7 +9,7 @@
 // channels in real time using under 15% of one core (analysis + callback).
 #include "tests/bench/bench.h"
 
-#include "audio/ensemble.h"
+#include "audio/engine.h"
 #include "tests/ensemble_signals.h"
 
 #include <cstdio>
@@ -44,14 +44,14 @@ void run(bench::Context& ctx) {
             take.dur_s = secs;
             take.end_s = secs - 0.1;
             test::render_group(take, chord, root, g);
-            audio::EnsembleEngineConfig ec;
+            audio::EngineConfig ec;
             ec.sample_rate_hz = rate;
-            audio::EnsembleEngine eng(ec, nullptr);
+            audio::Engine eng(ec, nullptr);
             audio::EnsembleSetup s;
             s.chord = chord;
             s.players = test::players_of(g);
             s.analysis.root_hz = root;
-            eng.set_setup(s);
+            eng.set_ensemble(s);
             // The demo's room carries the drone to every microphone; its voices are replaced by the take.
             audio::DemoEnsembleConfig dc;
             dc.level_dbfs = -200.0;

@@ -14,7 +14,7 @@
 // (default 0.1 s; 0 = every 5 ms reading), then one last object holding
 // "summary". Messages about channels and devices go to stderr, one line each.
 #include "audio/device.h"
-#include "audio/ensemble.h"
+#include "audio/engine.h"
 #include "pitch/base/error.h"
 #include "ui/session/usage_error.h"
 #include "pitch/theory/notes.h"
@@ -134,15 +134,15 @@ int run_ensemble(const EnsembleOptions& o) {
     ds.root_hz = root_hz;
     audio::check_drone_settings(ds);
 
-    audio::EnsembleEngineConfig ec;
+    audio::EngineConfig ec;
     ec.drone_removal = !o.no_removal;
     const bool device_input = !o.demo && o.input_file.empty();
     const bool play_drone = o.drone && !o.fast && (device_input || !o.output_dev.empty());
     std::unique_ptr<audio::AudioSystem> system;
     if (device_input || play_drone) system = audio::make_portaudio_system();
-    audio::EnsembleEngine engine(ec, system.get());
+    audio::Engine engine(ec, system.get());
     engine.on_message([](const std::string& m) { std::fprintf(stderr, "beatless: %s\n", m.c_str()); });
-    engine.set_setup(setup);
+    engine.set_ensemble(setup);
     if (o.demo) {
         audio::DemoEnsembleConfig dc;
         dc.seed = o.seed;
@@ -285,7 +285,7 @@ int run_ensemble(const EnsembleOptions& o) {
     }
 
     // The summary.
-    const audio::EnsembleStatus st = engine.status();
+    const audio::EngineStatus st = engine.status();
     if (o.format == Format::json) {
         JsonWriter j;
         j.begin_object().key("summary").begin_object();

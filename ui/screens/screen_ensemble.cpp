@@ -83,7 +83,7 @@ public:
                 v.clipped = v.clipped || r.p[static_cast<std::size_t>(i)].clipped;
             }
         }
-        const audio::EnsembleStatus st = session_.status();
+        const audio::EngineStatus st = session_.status();
         v.overflows = st.ring_overflow_events + st.device_input_overflows + st.device_output_underflows;
         v.latency_s = session_.engine_running() ? st.latency_s : 0.0;
         return true;

@@ -130,18 +130,32 @@ void AppState::start() {
     if (!engine_) open_engine();
 }
 
-bool AppState::suspend_devices() {
-    if (options_.demo || options_.simulated || options_.no_input) return false;
-    if (!suspended_) {
-        close_engine();
-        suspended_ = true;
+bool AppState::follow_group(const audio::EnsembleSetup& setup) {
+    if (engine_ && group_ && engine_->mode() == audio::EngineMode::ensemble) {
+        // The same players on the same channels: the running engine takes the new plan.
+        bool same = setup.players.size() == group_->players.size();
+        for (std::size_t i = 0; same && i < setup.players.size(); ++i) same = setup.players[i].channel == group_->players[i].channel;
+        if (same) {
+            try {
+                engine_->set_ensemble(setup);
+                group_ = setup;
+                return true;
+            } catch (const Error& e) {
+                post(e.what(), true);
+                return true;
+            }
+        }
     }
-    return true;
+    group_ = setup;
+    close_engine();
+    open_engine();
+    return engine_ != nullptr;
 }
 
-void AppState::resume_devices() {
-    if (!suspended_) return;
-    suspended_ = false;
+void AppState::follow_performer() {
+    if (!group_) return;
+    group_.reset();
+    close_engine();
     open_engine();
 }
 
@@ -184,19 +198,28 @@ void AppState::open_engine() {
     } else {
         for (const auto& t : set_.targets) dc.target_cents.push_back(t.interval.cents());
     }
-    // Builds and starts one engine; with_output false when the output failed.
+    // Builds and starts the engine; with_output false when the output failed.
     auto build = [&](bool with_output) {
         audio::EngineConfig ec;
-        ec.f_min_hz = settings_.lowest_hz;
+        if (!group_) ec.f_min_hz = settings_.lowest_hz;  // a group keeps the engine's own range
         auto eng = std::make_unique<audio::Engine>(ec, options_.simulated ? nullptr : system_.get());
         eng->on_message([this](const std::string& m) { post(m, true); });
-        if (options_.demo) {
-            eng->use_demo(dc);
+        if (group_) {
+            eng->set_ensemble(*group_);
+            if (options_.demo) {
+                audio::DemoEnsembleConfig gc;
+                gc.hold = options_.hold_dev_cents.has_value();
+                gc.hold_dev_cents = options_.hold_dev_cents.value_or(0.0);
+                eng->use_demo(gc);
+            } else {
+                eng->open_input_device(settings_.ensemble.input_device);
+            }
         } else {
-            eng->open_input_device(settings_.input_device);
+            eng->set_readings(reading_config(), engine_targets());
+            if (options_.demo) eng->use_demo(dc);
+            else eng->open_input_device(settings_.input_device);
         }
         if (with_output) eng->open_output_device(settings_.output_device);
-        eng->set_readings(reading_config(), engine_targets());
         eng->set_drone(drone_settings(settings_.level_dbfs));
         eng->start(!options_.simulated);
         return eng;
@@ -216,19 +239,21 @@ void AppState::open_engine() {
     } catch (const Error& e) {
         engine_.reset();
         input_text_ = "no input";
-        const std::string what = e.what();
+        const std::string what = std::string(group_ ? "Ensemble input: " : "") + e.what();
         if (options_.demo) post(what, true);
         else if (what.find(audio::kDemoHint) != std::string::npos) post(join({what, "; or choose an input in Settings"}), true);
         else post(join({what, " (", audio::kDemoHint, ", or choose an input in Settings)"}), true);
         return;
     }
-    if (options_.demo) {
+    if (group_) {
+        input_text_ = engine_->input_name();
+    } else if (options_.demo) {
         input_text_ = options_.hold_dev_cents ? "Demo performer (holding)" : "Demo performer";
     } else {
         const audio::StreamInfo si = engine_->input_info();
         input_text_ = device_text(si.input_name, si.host_api);
     }
-    if (options_.simulated && options_.demo) {
+    if (options_.simulated && options_.demo && !group_) {
         sim_performer_ = std::make_unique<audio::DemoPerformer>(dc);
         sim_block_.assign(kSimBlock, 0.0f);
         sim_due_s_ = 0.0;
@@ -280,7 +305,8 @@ void AppState::update(double dt_s) {
             if (k < take_buf_.size()) break;
         }
         supervise_s_ += dt_s;
-        if (!options_.simulated && supervise_s_ >= 0.1) {
+        // A group's channel messages come from supervise() in simulated time too.
+        if ((!options_.simulated || group_) && supervise_s_ >= 0.1) {
             supervise_s_ = 0.0;
             engine_->supervise();
         }
@@ -472,7 +498,7 @@ pitch::ReadingConfig AppState::reading_config() const {
 }
 
 void AppState::apply_readings() {
-    if (!engine_) return;
+    if (!engine_ || group_) return;  // a group's readings are the Ensemble screen's; these apply when it is left
     try {
         engine_->set_readings(reading_config(), engine_targets());
     } catch (const Error& e) {
@@ -692,7 +718,7 @@ void AppState::set_devices(const std::string& input, const std::string& output) 
     settings_.input_device = input;
     settings_.output_device = output;
     changed();
-    if (options_.simulated || options_.no_input || suspended_) return;  // suspended: resume_devices() opens the new ones
+    if (options_.simulated || options_.no_input) return;
     close_engine();
     open_engine();
 }

@@ -96,13 +96,15 @@ public:
     void start();                  // opens the engine (devices, demo); messages instead of throwing
     void update(double dt_s);      // see the header comment; call once per frame
     void shutdown();               // stops the engine and saves the settings
-    // The Ensemble screen takes the audio devices for its own engine (a sound
-    // card is often opened by one stream at a time, and the group's engine
-    // plays the drone): suspend closes this engine when it uses devices and
-    // says whether it did; resume opens it again. Demo and simulated runs
-    // use no devices and keep theirs.
-    bool suspend_devices();
-    void resume_devices();
+    // The one engine and its devices are the app's. The Ensemble screen has
+    // it follow a group (the group's channels, the same drone) while it is
+    // shown and one performer again when it is left: the engine reopens for
+    // the other shape, on the same audio system. Messages instead of throwing;
+    // false when the group's input cannot be opened (the screen shows no input).
+    bool follow_group(const audio::EnsembleSetup& setup);
+    void follow_performer();
+    bool following_group() const { return group_.has_value(); }
+    audio::Engine* engine() { return engine_.get(); }   // null without input
     double app_time_s() const { return app_time_s_; }
 
     // --- Settings -----------------------------------------------------------------
@@ -223,10 +225,10 @@ private:
     std::optional<pitch::TargetSet> drill_targets_;
     bool drone_on_before_drill_ = false;
     std::vector<audio::DemoNote> demo_script_;
+    std::optional<audio::EnsembleSetup> group_;        // the engine follows a group (Ensemble screen)
 
     bool drone_on_ = false;
     bool drone_heard_ = false;
-    bool suspended_ = false;                   // suspend_devices() closed the engine
     double fade_s_ = 0.0;         // time since the drone started (fade-in while < kDroneFadeInS)
     double supervise_s_ = 0.0;
     bool dirty_ = false;

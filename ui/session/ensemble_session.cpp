@@ -11,29 +11,26 @@
 namespace beatless::ui {
 
 namespace {
-constexpr double kSimRateHz = 48000.0;
+constexpr double kSimRateHz = 48000.0;  // the demo ensemble's rate in simulated time
 }
 
 EnsembleSession::EnsembleSession()
     : recent_(static_cast<std::size_t>(kRecentS / 0.005) + 8), take_buf_(128) {}
 
-EnsembleSession::~EnsembleSession() { close(); }
+EnsembleSession::~EnsembleSession() = default;
 
-void EnsembleSession::close() {
-    if (engine_) engine_->stop();
-    engine_.reset();
+void EnsembleSession::forget() {
+    running_ = false;
     input_text_ = "no input";
+    status_ = {};
     has_current_ = false;
     recent_count_ = 0;
 }
 
 void EnsembleSession::leave(AppState& app) {
-    close();
-    tried_ = false;  // open again when the screen is shown again
-    if (took_devices_) {
-        took_devices_ = false;
-        app.resume_devices();
-    }
+    forget();
+    tried_ = false;  // follow the group again when the screen is shown again
+    app.follow_performer();
 }
 
 bool EnsembleSession::plan(AppState& app, const EnsembleSettings& e, bool quiet) {
@@ -63,18 +60,6 @@ bool EnsembleSession::plan(AppState& app, const EnsembleSettings& e, bool quiet)
     }
 }
 
-audio::DroneSettings EnsembleSession::drone_of(const AppState& app) const {
-    audio::DroneSettings d;
-    const Settings& s = app.settings();
-    d.on = app.drone_on();
-    d.root_hz = app.root_hz();
-    d.timbre = s.timbre;
-    d.fifth = s.fifth;
-    d.octave = s.octave;
-    d.level_dbfs = s.level_dbfs;
-    return d;
-}
-
 void EnsembleSession::open(AppState& app) {
     tried_ = true;
     const AppOptions& o = app.options();
@@ -82,55 +67,11 @@ void EnsembleSession::open(AppState& app) {
         // The saved choices do not work: fall back to the defaults, said once.
         if (!plan(app, EnsembleSettings{}, true)) return;
     }
-    if (o.no_input) {
-        input_text_ = "no input";
-        return;
-    }
+    forget();
+    if (o.no_input) return;
     simulated_ = o.simulated;
-    const audio::EnsembleSetup setup = setup_now();
-    // From devices, this engine takes them over from the app's (which gets
-    // them back in leave()) and plays the drone itself.
-    if (!o.demo && app.suspend_devices()) took_devices_ = true;
-    auto build = [&](bool with_output) {
-        auto eng = std::make_unique<audio::EnsembleEngine>(audio::EnsembleEngineConfig{}, o.demo ? nullptr : system_.get());
-        eng->on_message([&app](const std::string& m) { app.post(m, true); });
-        eng->set_setup(setup);
-        if (o.demo) {
-            audio::DemoEnsembleConfig dc;
-            dc.hold = o.hold_dev_cents.has_value();
-            dc.hold_dev_cents = o.hold_dev_cents.value_or(0.0);
-            eng->use_demo(dc);
-        } else {
-            eng->open_input_device(app.settings().ensemble.input_device);
-            if (with_output) eng->open_output_device(app.settings().output_device);
-        }
-        drone_ = drone_of(app);
-        eng->set_drone(drone_);
-        eng->start(!simulated_);
-        return eng;
-    };
-    try {
-        if (!o.demo && !system_) system_ = audio::make_portaudio_system();
-        try {
-            engine_ = build(took_devices_);
-        } catch (const Error& e) {
-            if (!took_devices_) throw;
-            const std::string first = e.what();
-            engine_ = build(false);  // the input works alone: say why the drone is not heard
-            app.post(std::string("Ensemble: ") + first + "; the drone is not heard", true);
-        }
-        input_text_ = engine_->input_name();
-    } catch (const Error& e) {
-        engine_.reset();
-        input_text_ = "no input";
-        const std::string what = e.what();
-        const bool hinted = o.demo || what.find(audio::kDemoHint) != std::string::npos;
-        app.post("Ensemble input: " + what + (hinted ? "" : std::string(" (") + audio::kDemoHint + ")"), true);
-        if (took_devices_) {  // the app's engine keeps the drone and the Practice input
-            took_devices_ = false;
-            app.resume_devices();
-        }
-    }
+    running_ = app.follow_group(setup_now());
+    if (running_) input_text_ = app.input_text();
 }
 
 audio::EnsembleSetup EnsembleSession::setup_now() const {
@@ -140,13 +81,7 @@ audio::EnsembleSetup EnsembleSession::setup_now() const {
     return s;
 }
 
-void EnsembleSession::push_setup(AppState& app) {
-    try {
-        engine_->set_setup(setup_now());
-    } catch (const Error& e) {
-        app.post(e.what(), true);
-    }
-}
+void EnsembleSession::push_setup(AppState& app) { running_ = app.follow_group(setup_now()); }
 
 bool EnsembleSession::apply(AppState& app, const EnsembleSettings& e) {
     const EnsembleSettings& was = app.settings().ensemble;
@@ -158,10 +93,9 @@ bool EnsembleSession::apply(AppState& app, const EnsembleSettings& e) {
         bool same_channels = before.size() == players_.size() && e.input_device == was.input_device;
         for (std::size_t i = 0; same_channels && i < before.size(); ++i) same_channels = before[i].channel == players_[i].channel;
         app.set_ensemble(e);
-        if (engine_ && same_channels) {
+        if (running_ && same_channels) {
             push_setup(app);
         } else if (tried_) {
-            close();
             open(app);
         }
         return true;
@@ -182,40 +116,30 @@ void EnsembleSession::update(AppState& app, double dt_s) {
     // The root and A4 are the app's: follow them.
     if (have_plan_ && (app.root_hz() != root_hz_ || app.settings().a4_hz != a4_hz_)) {
         plan(app, app.settings().ensemble, false);
-        if (engine_) push_setup(app);
+        if (running_) push_setup(app);
     }
-    if (!engine_) return;
-    const audio::DroneSettings d = drone_of(app);
-    if (d.on != drone_.on || d.root_hz != drone_.root_hz || d.level_dbfs != drone_.level_dbfs || d.timbre != drone_.timbre ||
-        d.fifth != drone_.fifth || d.octave != drone_.octave) {
-        drone_ = d;
-        try {
-            engine_->set_drone(d);
-        } catch (const Error& e) {
-            app.post(e.what(), true);
-        }
+    audio::Engine* engine = running_ && app.following_group() ? app.engine() : nullptr;
+    if (!engine) {
+        forget();
+        return;
     }
+    status_ = engine->status();
     if (simulated_) {
         sim_due_frames_ += dt_s * kSimRateHz;
         const auto n = static_cast<std::size_t>(sim_due_frames_);
         sim_due_frames_ -= static_cast<double>(n);
-        engine_->run_demo_frames(n);
+        engine->run_demo_frames(n);
     }
     bool got = false;
-    for (std::size_t k; (k = engine_->take_readings(take_buf_)) > 0;) {
+    for (std::size_t k; (k = engine->take_readings(std::span<pitch::EnsembleReading>(take_buf_))) > 0;) {
         current_ = take_buf_[k - 1];
         got = true;
         if (k < take_buf_.size()) break;
     }
     if (got) current_at_s_ = app.app_time_s();
     has_current_ = app.app_time_s() - current_at_s_ <= kCurrentS;
-    recent_count_ = engine_->history(recent_);
+    recent_count_ = engine->history(std::span<pitch::EnsembleReading>(recent_));
     warn_near(app, dt_s);
-    supervise_s_ += dt_s;
-    if (supervise_s_ >= 0.1) {
-        supervise_s_ = 0.0;
-        engine_->supervise();
-    }
 }
 
 // Players near another voice than their own for half a second: one

@@ -1,22 +1,13 @@
-// EnsembleSession — the Ensemble screen's engine and what it shows.
+// EnsembleSession — what the Ensemble screen shows, from the app's one engine following a group.
 //
-// Built from the settings' [ensemble] choices (ui/session/settings.h): the chord
-// (its root is the drone's root, so the Practice screen's root keys move
-// it), the players from the saved lists (ui/session/ensemble_plan.h), the reference,
-// and the multi-channel input, or the demo ensemble with --demo. Each frame
-// update() runs simulated time in snapshots, takes the newest reading and a
-// short history for the trails, hands the app's drone to the engine (so
-// each microphone's drone is removed, and the demo's microphones hear it),
-// follows root and A4 changes, and passes the engine's one-line messages to
-// the screen's message bar, with one of its own when a player sits near
-// another voice than their own. With devices, the group's engine takes them over
-// from the Practice engine while the screen is shown (one sound card is often
-// opened by one stream at a time) and plays the app's drone itself; leave()
-// hands them back. In demo and simulated runs the app's engine keeps running.
+// Built from the settings' [ensemble] choices (ui/session/settings.h): the chord (its root is
+// the drone's, so the Practice screen's root keys move it), the players from the saved lists
+// (ui/session/ensemble_plan.h), the reference, and the multi-channel input or the demo
+// ensemble. Each frame: simulated time, the newest reading and the trails, root and A4
+// followed, and a message when a player sits near another voice than their own.
 // Thread: the control thread (the frame loop) only.
 #pragma once
 
-#include "audio/ensemble.h"
 #include "pitch/theory/chord.h"
 #include "ui/session/app_state.h"
 #include "ui/session/chord_files.h"
@@ -36,9 +27,8 @@ public:
     EnsembleSession(const EnsembleSession&) = delete;
     EnsembleSession& operator=(const EnsembleSession&) = delete;
 
-    void update(AppState& app, double dt_s);   // opens the engine on first use
-    void close();                              // stops the group's engine
-    void leave(AppState& app);                 // close(), and the app's own engine gets its devices back
+    void update(AppState& app, double dt_s);   // has the app's engine follow the group on first use
+    void leave(AppState& app);                 // the app's engine follows one performer again
 
     // Changes: saved through app.set_ensemble; false (and a message) when the
     // chord or the lists are not valid, and nothing changes.
@@ -50,9 +40,9 @@ public:
     const std::vector<pitch::Player>& players() const { return players_; }
     const pitch::ChordChart& chart() const { return chart_; }
     double root_hz() const { return root_hz_; }
-    bool engine_running() const { return engine_ != nullptr; }
+    bool engine_running() const { return running_; }
     const std::string& input_text() const { return input_text_; }
-    audio::EnsembleStatus status() const { return engine_ ? engine_->status() : audio::EnsembleStatus{}; }
+    audio::EngineStatus status() const { return status_; }
 
     bool has_current() const { return has_current_; }         // a reading within the last kCurrentS
     static constexpr double kCurrentS = 0.1;
@@ -65,7 +55,7 @@ public:
 private:
     bool plan(AppState& app, const EnsembleSettings& e, bool quiet);
     void open(AppState& app);
-    audio::DroneSettings drone_of(const AppState& app) const;
+    void forget();                            // no readings shown
     audio::EnsembleSetup setup_now() const;   // the plan as the engine takes it
     void push_setup(AppState& app);           // to the running engine; a message on failure
     void warn_near(AppState& app, double dt_s);  // a player near another voice: one message
@@ -76,15 +66,12 @@ private:
     bool have_plan_ = false;
     double root_hz_ = 0.0, a4_hz_ = 0.0;
 
-    std::unique_ptr<audio::AudioSystem> system_;
-    std::unique_ptr<audio::EnsembleEngine> engine_;
     bool tried_ = false;
-    bool took_devices_ = false;                // the app's engine was suspended for this one
+    bool running_ = false;                     // the app's engine follows this group
     bool simulated_ = false;
     double sim_due_frames_ = 0.0;
     std::string input_text_ = "no input";
-    audio::DroneSettings drone_{};
-    double supervise_s_ = 0.0;
+    audio::EngineStatus status_{};
 
     pitch::EnsembleReading current_{};
     bool has_current_ = false;
