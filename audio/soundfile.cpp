@@ -80,6 +80,12 @@ SoundReader::~SoundReader() {
     if (file_) sf_close(as_sf(file_));
 }
 
+void SoundReader::rewind() {
+    if (!file_) return;
+    if (sf_seek(as_sf(file_), 0, SEEK_SET) != 0) throw Error(info_.path + ": cannot be read a second time (it cannot seek: a pipe?)");
+    pos_frames_ = 0;
+}
+
 std::span<const float> SoundReader::read() {
     if (!file_) return {};
     const std::size_t ch = static_cast<std::size_t>(info_.channels);

@@ -47,6 +47,9 @@ public:
     // frame); empty at the end. Throws Error on non-finite samples.
     std::span<const float> read_frames();
     std::int64_t position_frames() const { return pos_frames_; }
+    // Back to the first frame, for a second pass. Throws Error naming the
+    // file when it cannot seek (a pipe).
+    void rewind();
 
     // Reads the whole file as mono (tests and short files only).
     static std::vector<float> read_all(const std::string& path, int channel = -1, double* rate_hz = nullptr);

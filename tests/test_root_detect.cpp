@@ -43,12 +43,12 @@ TEST_CASE("root of a drone under a voice holding five tritones, within 0.2 cent"
         const Take take = drone_and_voice(kFs, root, tritone_notes(), 11);
         const RootEstimate e = detect(take.samples);
         CAPTURE(root);
-        CAPTURE(describe(e));
+        CAPTURE(e.root_hz);
         REQUIRE(e.found());
         CHECK(std::fabs(cents(e.root_hz, root)) < 0.2);
         CHECK(e.confidence > 0.8);
         CHECK(e.harmonics_used >= 5);
-        MESSAGE("root " << root << " Hz: error " << cents(e.root_hz, root) << " cents, " << describe(e));
+        MESSAGE("root " << root << " Hz: error " << cents(e.root_hz, root) << " cents, confidence " << e.confidence);
     }
 }
 
@@ -76,7 +76,7 @@ TEST_CASE("random drones, voices and levels") {
                                           0.25);
         const RootEstimate e = detect(take.samples);
         CAPTURE(root);
-        CAPTURE(describe(e));
+        CAPTURE(e.root_hz);
         REQUIRE(e.found());
         CHECK(std::fabs(cents(e.root_hz, root)) < 0.2);
         worst = std::max(worst, std::fabs(cents(e.root_hz, root)));
@@ -89,7 +89,7 @@ TEST_CASE("a quiet drone under a voice 16 dB louder, and a sine drone") {
     // smeared partials crowd one region of the spectrum.
     const Take take = drone_and_voice(kFs, 56.0, tritone_notes(), 926, 1, 1.5, 2e-3, 0.04, 0.25);
     RootEstimate e = detect(take.samples);
-    CAPTURE(describe(e));
+    CAPTURE(e.root_hz);
     REQUIRE(e.found());
     CHECK(std::fabs(cents(e.root_hz, 56.0)) < 0.2);
 
@@ -98,7 +98,7 @@ TEST_CASE("a quiet drone under a voice 16 dB louder, and a sine drone") {
     auto notes = take_notes(196.0, tritone_notes(), 3, 1, 1.0, 0.2);
     add_voice(sine, kFs, notes, rolloff(6));
     e = detect(sine);
-    CAPTURE(describe(e));
+    CAPTURE(e.root_hz);
     REQUIRE(e.found());
     CHECK(e.harmonics_used == 1);
     CHECK(std::fabs(cents(e.root_hz, 196.0)) < 0.2);
@@ -122,7 +122,7 @@ TEST_CASE("one long vibrato note louder than the drone: its steady carrier is no
         n.level = 0.05 * std::pow(10.0, voice_over_drone_db / 20.0);
         add_voice(x, kFs, {n}, rolloff(12));
         const RootEstimate e = detect(x);
-        CAPTURE(describe(e));
+        CAPTURE(e.root_hz);
         REQUIRE(e.found());
         CHECK(std::fabs(cents(e.root_hz, 146.832)) < 0.2);
     }
@@ -136,7 +136,7 @@ TEST_CASE("a low drone (a bass's or cellist's) under a voice a step or a third a
     for (double root : {41.2034, 48.9994, 55.0}) {
         CAPTURE(root);
         const RootEstimate e = detect(low_drone_and_voice(kFs, root));
-        CAPTURE(describe(e));
+        CAPTURE(e.root_hz);
         REQUIRE(e.found());
         CHECK(std::fabs(cents(e.root_hz, root)) < 0.2);
     }
@@ -147,7 +147,7 @@ TEST_CASE("48 kHz and a clipped recording") {
     Take take = drone_and_voice(48000.0, root, tritone_notes(), 3, 1, 1.6, 1e-3, 0.4, 0.5);
     clip(take.samples, 0.35f);  // hard clipping keeps the period, adds harmonics
     const RootEstimate e = detect(take.samples, 48000.0, 4096);
-    CAPTURE(describe(e));
+    CAPTURE(e.root_hz);
     REQUIRE(e.found());
     CHECK(std::fabs(cents(e.root_hz, root)) < 0.2);
 }
@@ -164,7 +164,7 @@ TEST_CASE("a root on an exact half bin: the odd harmonics split their peaks betw
             CAPTURE(root);
             const Take take = drone_and_voice(fs, root, tritone_notes(), 6, root < 150.0 ? 1 : 0);
             const RootEstimate e = detect(take.samples, fs);
-            CAPTURE(describe(e));
+            CAPTURE(e.root_hz);
             CHECK(e.found());
             CHECK(std::fabs(cents(e.root_hz, root)) < 0.2);
             CHECK(e.harmonics_used >= 6);
@@ -176,22 +176,20 @@ TEST_CASE("silence, noise, a voice without a drone, a very short file: clear ans
     const std::vector<float> silence(static_cast<std::size_t>(3 * kFs), 0.0f);
     RootEstimate e = detect(silence);
     CHECK(e.status == RootStatus::no_sound);
-    CHECK(describe(e).find("no sound") != std::string::npos);
 
     CHECK(detect({}).status == RootStatus::no_sound);
 
     std::vector<float> noise(static_cast<std::size_t>(5 * kFs), 0.0f);
     add_noise(noise, 0.1, 9);
     e = detect(noise);
-    CAPTURE(describe(e));
+    CAPTURE(e.root_hz);
     CHECK(e.status == RootStatus::no_steady_root);
     CHECK(e.confidence < 0.3);
-    CHECK(describe(e).find("no steady drone") != std::string::npos);
 
     // The voice alone, moving between notes with vibrato: nothing steady.
     Take take = drone_and_voice(kFs, 110.0, tritone_notes(), 4, 1, 1.6, 1e-3, 0.0, 0.3);
     e = detect(take.samples);
-    CAPTURE(describe(e));
+    CAPTURE(e.root_hz);
     CHECK(e.status == RootStatus::no_steady_root);
 
     // 0.3 s of drone: shorter than one frame, analyzed zero-padded; the

@@ -15,6 +15,8 @@
 #include "pitch/measure/segment.h"
 #include "tests/mix_signals.h"
 
+#include "ui/session/take_words.h"
+
 #include <doctest/doctest.h>
 
 #include <cmath>
@@ -125,8 +127,9 @@ TEST_CASE("per-target summary: '10/7 averages 6 cents flat'") {
     CHECK(rows[1].count == 3);
     CHECK(std::fabs(rows[1].mean_dev_cents + 6.0) < 0.5);
     CHECK(rows[1].spread_cents == doctest::Approx(1.0).epsilon(0.5));  // sample s.d. of -5, -6, -7 is 1
-    CHECK(describe(rows[1], "10/7").rfind("10/7 averages 6 cents flat (3 notes, spread 1", 0) == 0);
-    CHECK(describe(rows[0], "7/5").find("sharp (1 note)") != std::string::npos);
+    CHECK(beatless::ui::summary_words(rows[1], "10/7", false).rfind("10/7 averages 6 cents flat (3 notes, spread 1", 0) == 0);
+    CHECK(beatless::ui::summary_words(rows[1], "10/7", true).rfind("10/7 averages 6 cents narrow (3 intervals, spread 1", 0) == 0);
+    CHECK(beatless::ui::summary_words(rows[0], "7/5", false).find("sharp (1 note)") != std::string::npos);
 }
 
 TEST_CASE("legato steps split; short dropouts are bridged; blips are dropped") {

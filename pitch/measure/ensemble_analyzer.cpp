@@ -25,32 +25,12 @@ std::string_view reference_key(ChordReference r) {
     return "drone";
 }
 
-std::string_view reference_title(ChordReference r) {
-    switch (r) {
-        case ChordReference::fixed_root: return "Drone root";
-        case ChordReference::sounding_bass: return "Sounding bass";
-        case ChordReference::best_fit: return "Best-fit root";
-    }
-    return "Drone root";
-}
-
 ChordReference parse_reference(std::string_view key) {
     const std::string_view k = trim(key);
     if (k == "drone" || k == "fixed" || k == "root") return ChordReference::fixed_root;
     if (k == "bass") return ChordReference::sounding_bass;
     if (k == "best-fit" || k == "best_fit" || k == "bestfit") return ChordReference::best_fit;
     throw Error("reference " + quote(key) + ": expected drone, bass or best-fit");
-}
-
-std::string_view player_state_word(PlayerState s) {
-    switch (s) {
-        case PlayerState::sounding: return "sounding";
-        case PlayerState::resting: return "resting";
-        case PlayerState::silent: return "silent channel";
-        case PlayerState::copy: return "same voice as";
-        case PlayerState::off_voice: return "other note";
-    }
-    return "resting";
 }
 
 void check_players(const Chord& chord, std::span<const Player> players, int channels_available) {

@@ -44,9 +44,8 @@ constexpr std::size_t kReferenceCount = 3;
 
 // Index of ChordReference in per-reference arrays.
 constexpr std::size_t reference_index(ChordReference r) { return static_cast<std::size_t>(r); }
-// "drone", "bass", "best-fit" (command line, settings) and the screen's words.
+// "drone", "bass", "best-fit" (command line, settings).
 std::string_view reference_key(ChordReference r);
-std::string_view reference_title(ChordReference r);   // "Drone root", "Sounding bass", "Best-fit root"
 ChordReference parse_reference(std::string_view key);  // throws Error naming the text
 
 struct Player {
@@ -86,7 +85,6 @@ enum class PlayerState : std::uint8_t {
     copy,         // the channel carries another player's voice (copy_of says whose)
     off_voice,    // voiced, but another note than this player's voice
 };
-std::string_view player_state_word(PlayerState s);  // "sounding", "resting", "silent channel", "same voice as", "other note"
 
 struct PlayerReading {
     double f0_hz = 0.0;              // instantaneous, 0 when unvoiced

@@ -57,20 +57,6 @@ void check(bool ok, const char* what, double v) {
 }
 }  // namespace
 
-std::string describe(const RootEstimate& e) {
-    switch (e.status) {
-    case RootStatus::found:
-        return "root " + format_trimmed(e.root_hz, 3) + " Hz, confidence " + format_trimmed(e.confidence, 2) + " (" +
-               std::to_string(e.harmonics_used) + " harmonics agree within " + format_trimmed(e.spread_cents, 3) +
-               " cents)";
-    case RootStatus::no_steady_root:
-        return "no steady drone or pedal tone found (best candidate " + format_trimmed(e.root_hz, 2) +
-               " Hz, confidence " + format_trimmed(e.confidence, 2) + ")";
-    case RootStatus::no_sound: break;
-    }
-    return "no sound above the silence threshold: nothing to find a root in";
-}
-
 RootDetector::RootDetector(const RootDetectConfig& config) : cfg_(config) {
     check(cfg_.sample_rate_hz >= 8000.0 && cfg_.sample_rate_hz <= 192000.0, "sample rate (Hz)", cfg_.sample_rate_hz);
     check(cfg_.frame_s >= 0.05 && cfg_.frame_s <= 4.0, "frame_s", cfg_.frame_s);

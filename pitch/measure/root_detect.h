@@ -52,7 +52,7 @@ struct RootEstimate {
 };
 
 // "root 110.002 Hz, confidence 0.97 (8 harmonics)" or why there is none.
-std::string describe(const RootEstimate& e);
+
 
 class RootDetector {
 public:

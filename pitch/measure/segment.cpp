@@ -259,15 +259,4 @@ std::vector<TargetSummary> NoteSummary::rows() const {
     return out;
 }
 
-std::string describe(const TargetSummary& row, const std::string& name) {
-    std::string s = name + " averages ";
-    const double m = row.mean_dev_cents;
-    if (std::fabs(m) < 0.05) s += "in tune";
-    else s += format_trimmed(std::fabs(m), 1) + (std::fabs(m) < 1.05 && std::fabs(m) >= 0.95 ? " cent " : " cents ") + (m > 0 ? "sharp" : "flat");
-    s += " (" + std::to_string(row.count) + (row.count == 1 ? " note" : " notes");
-    if (row.count > 1) s += ", spread " + format_trimmed(row.spread_cents, 1) + " cents";
-    s += ")";
-    return s;
-}
-
 }  // namespace beatless::pitch

@@ -131,6 +131,6 @@ private:
 
 // "10/7 averages 6.0 cents flat (3 notes, spread 1.2 cents)"; `name` is the
 // target's text, e.g. Interval::str() or a name of the trade.
-std::string describe(const TargetSummary& row, const std::string& name);
+
 
 }  // namespace beatless::pitch

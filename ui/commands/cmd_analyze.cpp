@@ -23,6 +23,7 @@
 #include "pitch/theory/spelling.h"
 #include "pitch/base/text.h"
 #include "ui/session/take_analysis.h"
+#include "ui/session/take_words.h"
 #include "ui/screens/take_report.h"
 #include "ui/commands/commands.h"
 #include "ui/session/json.h"
@@ -110,23 +111,7 @@ std::string root_words(const OneVoiceAnalysis& a, const std::string& root_typed,
     return s;
 }
 
-// The words after the target in a summary line: "averages 6.0 cents flat (3 notes, ...)".
-std::string summary_words(const pitch::TargetSummary& row, const std::string& ratio, bool dyads) {
-    std::string s = pitch::describe(row, ratio);
-    if (dyads) {
-        // "note(s)" -> "interval(s)"; "flat/sharp" -> "narrow/wide" for an interval between two voices.
-        auto replace = [&](const std::string& a, const std::string& b) {
-            for (auto at = s.find(a); at != std::string::npos; at = s.find(a, at + b.size())) s.replace(at, a.size(), b);
-        };
-        replace(" notes", " intervals");
-        replace(" note)", " interval)");
-        replace(" flat", " narrow");
-        replace(" sharp", " wide");
-    }
-    return s;
-}
-
-void warn_clipping(const SignalFacts& f, const std::string& path) {
+void warn_clipping(const pitch::SignalFacts& f, const std::string& path) {
     if (f.clipped_samples == 0) return;
     std::fprintf(stderr, "beatless: warning: %s: %lld samples at full scale (clipped), the first at %s s; pitches there may be biased\n",
                  path.c_str(), static_cast<long long>(f.clipped_samples), pitch::format_trimmed(f.first_clip_s, 3).c_str());
@@ -408,22 +393,18 @@ int run_analyze(const AnalyzeOptions& o) {
     check_report_path(o.report);
     req.keep_trace = !o.report.empty();
 
-    double dur_s = 0.0;
-    {
-        audio::SoundReader probe(o.file, req.channel, 1);
-        dur_s = probe.info().dur_s();
-    }
-    ProgressBar bar(base_name(o.file), dur_s > kProgressAfterS);
+    audio::SoundReader reader(o.file, req.channel, kAnalysisBlockFrames);  // the one opening of the file
+    ProgressBar bar(base_name(o.file), reader.info().dur_s() > kProgressAfterS);
     const ProgressFn progress = [&bar](double f, const char* stage) { bar.update(f, stage); };
 
     if (o.voices == 1) {
-        const OneVoiceAnalysis a = analyze_one_voice(req, progress);
+        const OneVoiceAnalysis a = analyze_one_voice(reader, req, progress);
         bar.clear();
         warn_clipping(a.facts, o.file);
         print_one_voice(o, req.targets, a);
         if (!o.report.empty()) write_report(o.report, one_voice_report(o, req.targets, a));
     } else {
-        const TwoVoiceAnalysis a = analyze_two_voices(req, progress);
+        const TwoVoiceAnalysis a = analyze_two_voices(reader, req, progress);
         bar.clear();
         warn_clipping(a.facts, o.file);
         print_two_voices(o, req.targets, a);

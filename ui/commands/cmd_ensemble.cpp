@@ -211,7 +211,7 @@ int run_ensemble(const EnsembleOptions& o) {
             line += " " + players[i].name + " ";
             const double d = r.dev(i, ref);
             if (p.state == pitch::PlayerState::sounding && std::isfinite(d)) line += signed1(d);
-            else line += "(" + std::string(pitch::player_state_word(p.state)) + ")";
+            else line += "(" + std::string(player_state_word(p.state)) + ")";
         }
         std::printf("%s\n", line.c_str());
     };
@@ -312,7 +312,7 @@ int run_ensemble(const EnsembleOptions& o) {
         std::printf("%s\n", j.str().c_str());
     } else {
         std::printf("\n%s on %s = %.3f Hz, reference: %s; %.2f s of %s\n", chord.chord.terms_text().c_str(), o.root.c_str(), root_hz,
-                    std::string(pitch::reference_title(ref)).c_str(), engine.stream_time_s(), engine.input_name().c_str());
+                    std::string(reference_title(ref)).c_str(), engine.stream_time_s(), engine.input_name().c_str());
         std::size_t name_w = 6;
         for (const auto& p : players) name_w = std::max(name_w, p.name.size());
         std::printf("  %-*s %4s %6s %7s  %10s  %8s  %8s\n", static_cast<int>(name_w), "player", "ch", "voice", "ratio", "median", "spread",

@@ -22,6 +22,7 @@
 #include "pitch/base/error.h"
 #include "pitch/theory/notes.h"
 #include "pitch/base/text.h"
+#include "ui/session/wording.h"
 #include "ui/session/beat_pulse.h"
 #include "ui/screens/beat_view.h"
 #include "ui/screens/widgets.h"
@@ -495,7 +496,7 @@ void EnsembleScreen::chart(AppState& app, ImDrawList* dl, float x0, float y0, fl
         else if (std::isfinite(off))
             std::snprintf(b2, sizeof b2, "%s root %.2f Hz, %s c from the drone", ref == pitch::ChordReference::best_fit ? "best-fit" : "bass's",
                           root, signed_text(off, 1).c_str());
-        else std::snprintf(b2, sizeof b2, "%s: waiting for the players", std::string(pitch::reference_title(ref)).c_str());
+        else std::snprintf(b2, sizeof b2, "%s: waiting for the players", std::string(reference_title(ref)).c_str());
         y = y0 + pad + font_px(FontFace::bold) + std::round(0.1f * u);
         put(dl, FontFace::body, ImVec2(x0 + pad, y), palette::kTextDim, fit_text(FontFace::body, b2, inner), panel);
         y += font_px(FontFace::body) + std::round(0.3f * u);
@@ -701,7 +702,7 @@ void EnsembleScreen::header(AppState& app, ImDrawList* dl, float x0, float y0, f
         ImGui::SetCursorScreenPos(at);
         ImGui::PushStyleColor(ImGuiCol_Button, v4(on ? palette::kAccent : palette::kPanelRaised));
         ImGui::PushFont(font_of(on ? FontFace::bold : FontFace::body));
-        const std::string label = std::string(on ? "   " : "") + std::string(pitch::reference_title(r)) + "##ref";
+        const std::string label = std::string(on ? "   " : "") + std::string(reference_title(r)) + "##ref";
         if (ImGui::Button(label.c_str(), ImVec2(bw, bh))) session_.set_reference(app, r);
         ImGui::PopFont();
         ImGui::PopStyleColor();

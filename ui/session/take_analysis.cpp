@@ -1,7 +1,8 @@
-// Analysis — see analysis.h.
+// Take analysis (take_analysis.h).
 #include "ui/session/take_analysis.h"
 
 #include "pitch/dsp/decimator.h"
+#include "pitch/dsp/signal_facts.h"
 #include "pitch/dsp/drone_comb.h"
 #include "pitch/base/error.h"
 #include "pitch/base/text.h"
@@ -18,53 +19,12 @@ namespace beatless::ui {
 
 namespace {
 
-constexpr std::size_t kBlockFrames = 4096;
+constexpr std::size_t kBlockFrames = kAnalysisBlockFrames;
 // Tracker hop for notes: 10 ms still samples a 10 Hz vibrato ten times a
 // cycle, and halves the tracker's share of the time (`track` keeps 5 ms).
 constexpr double kNoteHopS = 0.01;
 
-// Updates the facts with one block starting at sample `first`.
-void observe(SignalFacts& f, std::span<const float> block, std::int64_t first, double rate_hz) {
-    double ss = 0.0;
-    for (std::size_t i = 0; i < block.size(); ++i) {
-        const double a = std::fabs(static_cast<double>(block[i]));
-        ss += a * a;
-        f.peak = std::max(f.peak, a);
-        if (a >= 0.999) {
-            if (f.clipped_samples == 0) f.first_clip_s = static_cast<double>(first + static_cast<std::int64_t>(i)) / rate_hz;
-            ++f.clipped_samples;
-        }
-    }
-    if (!block.empty()) {
-        const double rms = std::sqrt(ss / static_cast<double>(block.size()));
-        f.loudest_dbfs = std::max(f.loudest_dbfs, rms > 0.0 ? 20.0 * std::log10(rms) : -INFINITY);
-    }
-}
-
-// Clipped samples per block over the last ~95 s (more than a note may last),
-// so each note can say whether it was clipped without keeping the file.
-class ClipHistory {
-public:
-    void add(std::int64_t first_sample, std::size_t len, std::int64_t clipped) {
-        blocks_[head_ % kLen] = {first_sample, first_sample + static_cast<std::int64_t>(len), clipped};
-        ++head_;
-    }
-    std::int64_t between(double t0_s, double t1_s, double rate_hz) const {
-        const auto a = static_cast<std::int64_t>(std::floor(t0_s * rate_hz)), b = static_cast<std::int64_t>(std::ceil(t1_s * rate_hz));
-        std::int64_t n = 0;
-        for (std::size_t i = 0; i < std::min(head_, kLen); ++i)
-            if (blocks_[i].end > a && blocks_[i].begin < b) n += blocks_[i].clipped;
-        return n;
-    }
-
-private:
-    struct Block { std::int64_t begin = 0, end = 0, clipped = 0; };
-    static constexpr std::size_t kLen = 1024;
-    std::array<Block, kLen> blocks_{};
-    std::size_t head_ = 0;
-};
-
-void check_sound(const SignalFacts& f, const std::string& path) {
+void check_sound(const pitch::SignalFacts& f, const std::string& path) {
     if (!(f.loudest_dbfs >= kSilenceDbfs))
         throw Error(path + ": silent (no sound above " + pitch::format_trimmed(kSilenceDbfs, 0) + " dBFS); nothing to analyze");
 }
@@ -88,37 +48,7 @@ private:
     double last_ = -1.0;
 };
 
-// Streams a signal through pitch/dsp/decimator.h: output m is centred on input m * factor.
-class StreamDecimator {
-public:
-    explicit StreamDecimator(std::size_t factor) : d_(factor), half_(d_.half_len()) {
-        buf_.assign(half_, 0.0f);  // zeros before the first sample
-        buf_.reserve(kBlockFrames + 2 * half_ + 1);
-        out_.reserve(kBlockFrames / factor + 2);
-    }
-    std::span<const float> push(std::span<const float> in) {
-        buf_.insert(buf_.end(), in.begin(), in.end());
-        out_.clear();
-        const auto f = static_cast<std::int64_t>(d_.factor()), h = static_cast<std::int64_t>(half_);
-        const auto end = start_ + static_cast<std::int64_t>(buf_.size());
-        for (; next_ * f + h < end; ++next_) out_.push_back(d_.at(buf_.data() + (next_ * f - h - start_)));
-        const std::int64_t keep_from = next_ * f - h - start_;
-        buf_.erase(buf_.begin(), buf_.begin() + keep_from);
-        start_ += keep_from;
-        return out_;
-    }
-
-private:
-    pitch::Decimator d_;
-    std::size_t half_;
-    std::vector<float> buf_;
-    std::vector<float> out_;
-    std::int64_t start_ = -static_cast<std::int64_t>(half_);  // input index of buf_[0]
-    std::int64_t next_ = 0;                                  // next output index
-};
-
-pitch::RootEstimate find_drone(const AnalysisRequest& req, Ticker& tick) {
-    audio::SoundReader reader(req.path, req.channel, kBlockFrames);
+pitch::RootEstimate find_drone(audio::SoundReader& reader, const AnalysisRequest& req, Ticker& tick) {
     // The detector reads nothing above 8 kHz (RootDetectConfig::max_freq_hz),
     // so it runs at the lowest integer fraction of the rate that keeps the
     // decimator's passband (0.4 of the new rate) above that: half for 44.1
@@ -129,7 +59,7 @@ pitch::RootEstimate find_drone(const AnalysisRequest& req, Ticker& tick) {
     rc.sample_rate_hz = rate / static_cast<double>(factor);
     rc.silence_dbfs = kSilenceDbfs;
     pitch::RootDetector rd(rc);
-    StreamDecimator dec(factor);
+    pitch::StreamDecimator dec(factor, kBlockFrames);
     for (auto block = reader.read(); !block.empty(); block = reader.read()) {
         rd.push(factor > 1 ? dec.push(block) : block);
         tick.at(0, reader.position_frames(), "finding the root");
@@ -147,15 +77,23 @@ pitch::RootEstimate find_drone(const AnalysisRequest& req, Ticker& tick) {
 }  // namespace
 
 OneVoiceAnalysis analyze_one_voice(const AnalysisRequest& req, const ProgressFn& progress) {
+    audio::SoundReader reader(req.path, req.channel, kAnalysisBlockFrames);
+    return analyze_one_voice(reader, req, progress);
+}
+
+TwoVoiceAnalysis analyze_two_voices(const AnalysisRequest& req, const ProgressFn& progress) {
+    audio::SoundReader reader(req.path, req.channel, kAnalysisBlockFrames);
+    return analyze_two_voices(reader, req, progress);
+}
+
+OneVoiceAnalysis analyze_one_voice(audio::SoundReader& reader, const AnalysisRequest& req, const ProgressFn& progress) {
     OneVoiceAnalysis out;
-    {
-        audio::SoundReader probe(req.path, req.channel, 1);
-        out.info = probe.info();
-    }
+    out.info = reader.info();
     const int passes = 2;
     Ticker tick(progress, static_cast<double>(out.info.len_frames), passes);
     out.root_given = req.root_hz.has_value();
-    out.root = find_drone(req, tick);
+    out.root = find_drone(reader, req, tick);
+    reader.rewind();  // the second pass reads the file again from its start
     out.root_hz = req.root_hz ? *req.root_hz : out.root.root_hz;
     const double rate = out.info.sample_rate_hz;
     std::optional<pitch::DroneComb> comb;
@@ -164,7 +102,6 @@ OneVoiceAnalysis analyze_one_voice(const AnalysisRequest& req, const ProgressFn&
         comb.emplace(pitch::DroneCombConfig{.sample_rate_hz = rate, .root_hz = out.drone_hz});
     }
 
-    audio::SoundReader reader(req.path, req.channel, kBlockFrames);
     pitch::YinConfig yc;
     yc.sample_rate_hz = rate;
     yc.silence_dbfs = kSilenceDbfs;
@@ -184,7 +121,7 @@ OneVoiceAnalysis analyze_one_voice(const AnalysisRequest& req, const ProgressFn&
     std::vector<float> filtered(kBlockFrames);
     pitch::PitchFrame frame;
     pitch::NoteResult note;
-    auto clips = std::make_unique<ClipHistory>();
+    auto clips = std::make_unique<pitch::ClipHistory>();
     // A frame hears half the tracker's span on each side of its time.
     const double reach_s = 0.5 * yc.span_s;
     auto keep = [&](const pitch::NoteResult& n) {
@@ -195,7 +132,7 @@ OneVoiceAnalysis analyze_one_voice(const AnalysisRequest& req, const ProgressFn&
     for (auto block = reader.read(); !block.empty(); block = reader.read()) {
         const std::int64_t first = reader.position_frames() - static_cast<std::int64_t>(block.size());
         const std::int64_t clipped_before = out.facts.clipped_samples;
-        observe(out.facts, block, first, rate);
+        pitch::observe(out.facts, block, first, rate);
         clips->add(first, block.size(), out.facts.clipped_samples - clipped_before);
         if (comb) {
             const std::span<float> y(filtered.data(), block.size());
@@ -220,9 +157,8 @@ OneVoiceAnalysis analyze_one_voice(const AnalysisRequest& req, const ProgressFn&
     return out;
 }
 
-TwoVoiceAnalysis analyze_two_voices(const AnalysisRequest& req, const ProgressFn& progress) {
+TwoVoiceAnalysis analyze_two_voices(audio::SoundReader& reader, const AnalysisRequest& req, const ProgressFn& progress) {
     TwoVoiceAnalysis out;
-    audio::SoundReader reader(req.path, req.channel, kBlockFrames);
     out.info = reader.info();
     const double rate = out.info.sample_rate_hz;
     Ticker tick(progress, static_cast<double>(out.info.len_frames), 1);
@@ -244,7 +180,7 @@ TwoVoiceAnalysis analyze_two_voices(const AnalysisRequest& req, const ProgressFn
         summary.add(d.target_index, d.dev_cents);
     };
     for (auto block = reader.read(); !block.empty(); block = reader.read()) {
-        observe(out.facts, block, reader.position_frames() - static_cast<std::int64_t>(block.size()), rate);
+        pitch::observe(out.facts, block, reader.position_frames() - static_cast<std::int64_t>(block.size()), rate);
         tv.push(block);
         while (tv.pull(frame)) {
             if (req.keep_trace) {

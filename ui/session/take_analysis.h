@@ -1,4 +1,4 @@
-// Analysis — the passes `beatless analyze` makes over a sound file.
+// Take analysis — the passes `beatless analyze` makes over a sound file.
 //
 // One voice against a drone: (1) a first streamed pass finds the drone
 // (pitch/measure/root_detect.h), which is the root unless one is given; (2) a second
@@ -15,6 +15,7 @@
 #pragma once
 
 #include "audio/soundfile.h"
+#include "pitch/dsp/signal_facts.h"
 #include "pitch/measure/decimated_trace.h"
 #include "pitch/measure/dyad_segment.h"
 #include "pitch/measure/root_detect.h"
@@ -41,14 +42,6 @@ struct AnalysisRequest {
 // Called with the share of the whole job done (0..1) and the pass's name.
 using ProgressFn = std::function<void(double fraction, const char* stage)>;
 
-// Facts about the samples gathered on the measuring pass.
-struct SignalFacts {
-    double peak = 0.0;                   // largest |sample|
-    double loudest_dbfs = -INFINITY;     // RMS of the loudest 4096-sample block
-    std::int64_t clipped_samples = 0;    // |sample| >= 0.999 (full scale)
-    double first_clip_s = -1.0;          // time of the first, -1 when none
-};
-
 struct OneVoiceAnalysis {
     audio::SoundInfo info;
     bool root_given = false;
@@ -60,7 +53,7 @@ struct OneVoiceAnalysis {
     std::vector<std::int64_t> notes_clipped;   // per note: samples at full scale during it
     std::vector<pitch::TargetSummary> summary;
     std::size_t short_notes_dropped = 0;
-    SignalFacts facts;
+    pitch::SignalFacts facts;
     pitch::DecimatedTrace trace;         // cents above the root (when keep_trace)
 };
 
@@ -70,14 +63,20 @@ struct TwoVoiceAnalysis {
     std::vector<pitch::DyadResult> dyads;
     std::vector<pitch::TargetSummary> summary;
     std::size_t short_dyads_dropped = 0;
-    SignalFacts facts;
+    pitch::SignalFacts facts;
     pitch::DecimatedTrace trace;         // interval in cents, high above low (when keep_trace)
 };
 
 // Throws Error: file problems (audio/soundfile.h), "FILE: silent ...", and
 // when the root is to be found "FILE: no steady drone or pedal tone found ...".
+// The reader (opened once with the request's path and channel, blocks of
+// kAnalysisBlockFrames) must be seekable: the one-voice analysis reads it twice.
+OneVoiceAnalysis analyze_one_voice(audio::SoundReader& reader, const AnalysisRequest& request, const ProgressFn& progress = {});
+TwoVoiceAnalysis analyze_two_voices(audio::SoundReader& reader, const AnalysisRequest& request, const ProgressFn& progress = {});
+// The same, opening the request's file.
 OneVoiceAnalysis analyze_one_voice(const AnalysisRequest& request, const ProgressFn& progress = {});
 TwoVoiceAnalysis analyze_two_voices(const AnalysisRequest& request, const ProgressFn& progress = {});
+inline constexpr std::size_t kAnalysisBlockFrames = 4096;
 
 // The level below which a file counts as silent (same as the analyzers').
 constexpr double kSilenceDbfs = -60.0;

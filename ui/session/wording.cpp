@@ -25,4 +25,24 @@ std::string ordinal(int n) {
     return std::to_string(n) + suffix;
 }
 
+std::string_view reference_title(pitch::ChordReference r) {
+    switch (r) {
+        case pitch::ChordReference::fixed_root: return "Drone root";
+        case pitch::ChordReference::sounding_bass: return "Sounding bass";
+        case pitch::ChordReference::best_fit: return "Best-fit root";
+    }
+    return "Drone root";
+}
+
+std::string_view player_state_word(pitch::PlayerState s) {
+    switch (s) {
+        case pitch::PlayerState::sounding: return "sounding";
+        case pitch::PlayerState::resting: return "resting";
+        case pitch::PlayerState::silent: return "silent channel";
+        case pitch::PlayerState::copy: return "same voice as";
+        case pitch::PlayerState::off_voice: return "other note";
+    }
+    return "resting";
+}
+
 }  // namespace beatless::ui

@@ -1,7 +1,10 @@
-// Words shared by the commands and the screens: ordinals and how a beat is heard.
+// Words shared by the commands and the screens: ordinals, how a beat is heard, a group's references and states.
 #pragma once
 
+#include "pitch/measure/ensemble_analyzer.h"
+
 #include <string>
+#include <string_view>
 
 namespace beatless::ui {
 
@@ -9,5 +12,7 @@ std::string ordinal(int n);  // 1 -> "1st", 12 -> "12th"
 // How a beat of this rate is heard, one word for tables, from pitch::beat_band:
 // "still", "countable", "flutter", "rough"; "no drone" when none sounds; "-" when no pair beats.
 std::string beat_heard_word(double beat_hz, bool drone_sounds);
+std::string_view reference_title(pitch::ChordReference r);  // "Drone root", "Sounding bass", "Best-fit root"
+std::string_view player_state_word(pitch::PlayerState s);   // "sounding", "resting", "silent channel", "same voice as", "other note"
 
 }  // namespace beatless::ui
