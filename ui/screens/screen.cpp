@@ -422,4 +422,20 @@ void ScreenDeck::build_frame(double dt_s) {
     help_overlay();
 }
 
+ImDrawList* begin_screen_panel(const char* id, const ScreenArea& area, ImVec2 padding, bool wheel_scrolls) {
+    ImGuiWindowFlags flags = ImGuiWindowFlags_NoDecoration | ImGuiWindowFlags_NoMove | ImGuiWindowFlags_NoSavedSettings |
+                             ImGuiWindowFlags_NoBringToFrontOnFocus;
+    if (!wheel_scrolls) flags |= ImGuiWindowFlags_NoScrollWithMouse;
+    ImGui::SetNextWindowPos(area.pos);
+    ImGui::SetNextWindowSize(area.size);
+    ImGui::PushStyleVar(ImGuiStyleVar_WindowPadding, padding);
+    ImGui::Begin(id, nullptr, flags);
+    return ImGui::GetWindowDrawList();
+}
+
+void end_screen_panel() {
+    ImGui::End();
+    ImGui::PopStyleVar();
+}
+
 }  // namespace beatless::ui

@@ -31,6 +31,12 @@ struct ScreenArea {
     ImVec2 size;   // width, height in pixels
 };
 
+// A screen's one panel: an undecorated, fixed window over `area` with this
+// padding; the mouse wheel scrolls it only when asked. Returns its draw list;
+// end_screen_panel() closes it.
+ImDrawList* begin_screen_panel(const char* id, const ScreenArea& area, ImVec2 padding = ImVec2(0, 0), bool wheel_scrolls = false);
+void end_screen_panel();
+
 struct KeyHelp {
     std::string_view keys;  // "Space"
     std::string_view what;  // "start or stop the drone"

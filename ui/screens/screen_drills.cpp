@@ -54,8 +54,6 @@ namespace {
 // [state]
 // ---------------------------------------------------------------------------
 
-constexpr ImGuiWindowFlags kPanelFlags = ImGuiWindowFlags_NoDecoration | ImGuiWindowFlags_NoMove | ImGuiWindowFlags_NoSavedSettings |
-                                         ImGuiWindowFlags_NoBringToFrontOnFocus | ImGuiWindowFlags_NoScrollWithMouse;
 constexpr double kRetryEveryS = 10.0;   // unsaved attempts: try the log again this often
 constexpr double kAwayS = 0.5;          // no frame of this screen for this long: it was left
 
@@ -759,11 +757,7 @@ void DrillsScreen::build(AppState& app, const ScreenArea& area, double dt_s) {
     pump(app);
 
     const float u = ui_unit();
-    ImGui::SetNextWindowPos(area.pos);
-    ImGui::SetNextWindowSize(area.size);
-    ImGui::PushStyleVar(ImGuiStyleVar_WindowPadding, ImVec2(0, 0));
-    ImGui::Begin("##drills", nullptr, kPanelFlags);
-    ImDrawList* dl = ImGui::GetWindowDrawList();
+    ImDrawList* dl = begin_screen_panel("##drills", area);
     const float pad = std::round(0.8f * u);
     float top = area.pos.y + std::round(0.5f * u);
     const float bottom = area.pos.y + area.size.y - std::round(0.5f * u);
@@ -796,8 +790,7 @@ void DrillsScreen::build(AppState& app, const ScreenArea& area, double dt_s) {
         history_dirty_ = false;
     }
     if (chosen()) draw_drill_progress(dl, history_, *chosen(), x0, top + top_h + gap, w, hist_h);
-    ImGui::End();
-    ImGui::PopStyleVar();
+    end_screen_panel();
 }
 
 }  // namespace

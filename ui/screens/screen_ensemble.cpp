@@ -47,8 +47,6 @@ namespace beatless::ui {
 
 namespace {
 
-constexpr ImGuiWindowFlags kPanelFlags = ImGuiWindowFlags_NoDecoration | ImGuiWindowFlags_NoMove | ImGuiWindowFlags_NoSavedSettings |
-                                         ImGuiWindowFlags_NoBringToFrontOnFocus | ImGuiWindowFlags_NoScrollWithMouse;
 constexpr double kLaneHalfCents = 30.0;  // the lane spans ±30 cents
 
 ImVec4 v4(std::uint32_t c) { return ImGui::ColorConvertU32ToFloat4(c); }
@@ -732,19 +730,14 @@ void EnsembleScreen::build(AppState& app, const ScreenArea& area, double dt_s) {
     }
     const float u = ui_unit();
     const float W = area.size.x, H = area.size.y;
-    ImGui::SetNextWindowPos(area.pos);
-    ImGui::SetNextWindowSize(area.size);
-    ImGui::PushStyleVar(ImGuiStyleVar_WindowPadding, ImVec2(0, 0));
-    ImGui::Begin("##ensemble", nullptr, kPanelFlags);
-    ImDrawList* dl = ImGui::GetWindowDrawList();
+    ImDrawList* dl = begin_screen_panel("##ensemble", area);
     const float pad = std::round(0.8f * u);
     const float x0 = area.pos.x + pad, inner_w = W - 2.0f * pad;
     float y = area.pos.y + std::round(0.4f * u);
     if (!session_.ready()) {
         draw_text(dl, FontFace::medium, ImVec2(x0, y + u), palette::kTextDim, "No chord: choose one below");
         editor(app, x0, y + 4.0f * u, inner_w, H - 5.0f * u);
-        ImGui::End();
-        ImGui::PopStyleVar();
+        end_screen_panel();
         return;
     }
     const float header_h = std::round(2.4f * u);
@@ -775,8 +768,7 @@ void EnsembleScreen::build(AppState& app, const ScreenArea& area, double dt_s) {
     const float chart_w = std::round(std::min(0.5f * inner_w, 22.0f * u));
     chart(app, dl, x0, y, chart_w, bottom_h);
     editor(app, x0 + chart_w + gap, y, inner_w - chart_w - gap, bottom_h);
-    ImGui::End();
-    ImGui::PopStyleVar();
+    end_screen_panel();
 }
 
 }  // namespace

@@ -42,8 +42,6 @@ namespace beatless::ui {
 
 namespace {
 
-constexpr ImGuiWindowFlags kPanelFlags = ImGuiWindowFlags_NoDecoration | ImGuiWindowFlags_NoMove | ImGuiWindowFlags_NoSavedSettings |
-                                         ImGuiWindowFlags_NoBringToFrontOnFocus | ImGuiWindowFlags_NoScrollWithMouse;
 constexpr double kTraceS = 10.0;           // the trace shows the last 10 s
 constexpr double kTraceHalfCents = 75.0;   // ... over ±75 cents around the target at least,
 constexpr double kTraceMarginCents = 10.0; // ... and this beyond the highest and lowest pitch sung,
@@ -569,11 +567,7 @@ void PracticeScreen::build(AppState& app, const ScreenArea& area, double dt_s) {
     (void)dt_s;
     const float u = ui_unit();
     const float W = area.size.x, H = area.size.y;
-    ImGui::SetNextWindowPos(area.pos);
-    ImGui::SetNextWindowSize(area.size);
-    ImGui::PushStyleVar(ImGuiStyleVar_WindowPadding, ImVec2(0, 0));
-    ImGui::Begin("##practice", nullptr, kPanelFlags);
-    ImDrawList* dl = ImGui::GetWindowDrawList();
+    ImDrawList* dl = begin_screen_panel("##practice", area);
 
     const float pad = std::round(1.0f * u);
     const float x0 = area.pos.x + pad, inner_w = W - 2.0f * pad;
@@ -603,8 +597,7 @@ void PracticeScreen::build(AppState& app, const ScreenArea& area, double dt_s) {
     ImGui::BeginGroup();
     controls(app);
     ImGui::EndGroup();
-    ImGui::End();
-    ImGui::PopStyleVar();
+    end_screen_panel();
 }
 
 }  // namespace

@@ -18,8 +18,6 @@ namespace beatless::ui {
 
 namespace {
 
-constexpr ImGuiWindowFlags kPanelFlags = ImGuiWindowFlags_NoDecoration | ImGuiWindowFlags_NoMove | ImGuiWindowFlags_NoSavedSettings |
-                                         ImGuiWindowFlags_NoBringToFrontOnFocus;
 
 ImVec4 v4(std::uint32_t c) { return ImGui::ColorConvertU32ToFloat4(c); }
 
@@ -88,11 +86,8 @@ void SettingsScreen::build(AppState& app, const ScreenArea& area, double dt_s) {
     const float u = ui_unit();
     const Settings& s = app.settings();
     label_w_ = std::round(7.5f * u);
-    ImGui::SetNextWindowPos(area.pos);
-    ImGui::SetNextWindowSize(area.size);
     const float pad = std::round(1.5f * u);
-    ImGui::PushStyleVar(ImGuiStyleVar_WindowPadding, ImVec2(pad, std::round(0.6f * u)));
-    ImGui::Begin("##settings", nullptr, kPanelFlags);
+    begin_screen_panel("##settings", area, ImVec2(pad, std::round(0.6f * u)), true);
     // Two columns when the window is wide enough, one otherwise.
     const float gap = std::round(2.0f * u);
     const bool two = area.size.x - 2.0f * pad - gap >= 2.0f * 22.0f * u;
@@ -214,8 +209,7 @@ void SettingsScreen::build(AppState& app, const ScreenArea& area, double dt_s) {
     ImGui::TextWrapped("%s", app.settings_file().string().c_str());
     ImGui::PopTextWrapPos();
 
-    ImGui::End();
-    ImGui::PopStyleVar();
+    end_screen_panel();
 }
 
 }  // namespace
