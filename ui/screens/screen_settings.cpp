@@ -203,11 +203,15 @@ void SettingsScreen::build(AppState& app, const ScreenArea& area, double dt_s) {
 
     section("Files");
     ImGui::SetCursorPosX(col_x_);
-    ImGui::TextColored(v4(palette::kTextDim), "Settings are saved in");
-    ImGui::SetCursorPosX(col_x_);
-    ImGui::PushTextWrapPos(col_x_ + col_w);
-    ImGui::TextWrapped("%s", app.settings_file().string().c_str());
-    ImGui::PopTextWrapPos();
+    if (app.settings_file().empty() || !app.options().save_settings) {
+        ImGui::TextColored(v4(palette::kTextDim), "Settings are not saved in this run");
+    } else {
+        ImGui::TextColored(v4(palette::kTextDim), "Settings are saved in");
+        ImGui::SetCursorPosX(col_x_);
+        ImGui::PushTextWrapPos(col_x_ + col_w);
+        ImGui::TextWrapped("%s", app.settings_file().string().c_str());
+        ImGui::PopTextWrapPos();
+    }
 
     end_screen_panel();
 }
