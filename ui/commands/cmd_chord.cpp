@@ -202,7 +202,7 @@ void register_chord(CLI::App& app, Runner& run) {
                     }() + ") or a .toml file")
         ->required();
     sub->add_option("--root", o->root, "Chord root as a note (C3) or in Hz (130.8)")->required();
-    sub->add_option("--a4", o->a4_hz, "A4 reference in Hz (400-480, default 440)");
+    add_a4_option(*sub, o->a4_hz);
     add_format_option(*sub, o->format, true);
     sub->callback([o, &run] { run = [o] { return run_chord(*o); }; });
 }

@@ -260,7 +260,7 @@ void register_drift(CLI::App& app, Runner& run) {
                     "Roman numerals (\"I vi ii V7 I\", \"i iv V i\") or chords ROOT:TERMS (5/3:10:12:15)")
         ->required();
     sub->add_option("--key", o->key, "Tonic and mode: C, Eb3, \"A minor\", F#m (default C4, mode from the numerals)");
-    sub->add_option("--a4", o->a4_hz, "A4 reference in Hz (400-480, default 440)");
+    add_a4_option(*sub, o->a4_hz);
     const std::map<std::string, RuleChoice> rules{{"both", RuleChoice::both},
                                                   {"fixed-root", RuleChoice::fixed_root},
                                                   {"common-tones", RuleChoice::common_tones}};

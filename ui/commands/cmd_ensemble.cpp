@@ -364,7 +364,7 @@ void register_ensemble(CLI::App& app, Runner& run) {
         "voice than their own for half a second is named in a warning on stderr.");
     sub->add_option("CHORD", o->chord, "A chord: 4:5:6:7, \"1/1 5/4 3/2\", a built-in chord name or a .toml chord file")->required();
     sub->add_option("--root", o->root, "Chord root (the drone) as a note (C3) or in Hz; default C3");
-    sub->add_option("--a4", o->a4_hz, "A4 reference in Hz (400-480, default 440)");
+    add_a4_option(*sub, o->a4_hz);
     sub->add_option("--reference", o->reference,
                     "What deviations are measured against: drone (the fixed root), bass (the lowest voice as it sounds) or best-fit "
                     "(the root needing the least total movement, least squares); default best-fit");

@@ -297,7 +297,7 @@ int run_live(const ListenOptions& o, Printing printing) {
 
 void add_live_options(CLI::App* sub, ListenOptions& o) {
     sub->add_option("--root", o.root, "Drone root as a note (A2) or in Hz (110); default A2");
-    sub->add_option("--a4", o.a4_hz, "A4 reference in Hz (400-480, default 440)");
+    add_a4_option(*sub, o.a4_hz);
     sub->add_option("--targets", o.targets, "Target set: a built-in name (7-limit, tritones, ...) or a .toml file");
     sub->add_option("--target", o.target, "One fixed target instead of a set: 7/5, 600c, ...");
     sub->add_option("--seconds", o.seconds, "Stop after this much audio (default: until the end or Ctrl-C)");

@@ -180,7 +180,7 @@ void register_ratio(CLI::App& app, Runner& run) {
     CLI::App* sub = app.add_subcommand("ratio", "Facts of intervals: cents, limits, Tenney height, beat rates over a root");
     sub->add_option("RATIO", o->ratios, "Intervals: 7/5, 7:5, 3/2*5/4, 600c, or a chord 4:5:6:7")->required();
     sub->add_option("--root", o->root, "Root as a note (A3) or in Hz (220): adds frequencies and beat rates");
-    sub->add_option("--a4", o->a4_hz, "A4 reference in Hz (400-480, default 440)");
+    add_a4_option(*sub, o->a4_hz);
     sub->add_option("--timbre", o->timbre, "Drone timbre whose partials can beat: pure, soft, round, bright, hollow (default round)");
     add_format_option(*sub, o->format, false);
     sub->callback([o, &run] { run = [o] { return run_ratio(*o); }; });

@@ -128,7 +128,7 @@ void register_tone(CLI::App& app, Runner& run) {
     auto o = std::make_shared<ToneOptions>();
     CLI::App* sub = app.add_subcommand("tone", "Render a drone, optionally with a second voice at a ratio, to a WAV file");
     sub->add_option("--root", o->root, "Drone root as a note (A2) or in Hz (110)")->required();
-    sub->add_option("--a4", o->a4_hz, "A4 reference in Hz (400-480, default 440)");
+    add_a4_option(*sub, o->a4_hz);
     sub->add_option("--ratio", o->ratios, "Second voice at this interval above the root: 7/5, 600c, ...; several (7/5,10/7,11/8) sing one note each in turn")
         ->delimiter(',');
     sub->add_option("--detune-cents", o->detunes_cents, "Move the second voice off the ratio by this many cents (one value, or one per ratio)")

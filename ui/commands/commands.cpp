@@ -26,6 +26,8 @@ void add_format_option(CLI::App& sub, Format& format, std::initializer_list<Form
     sub.add_option("--format", format, help)->transform(CLI::CheckedTransformer(names, CLI::ignore_case).description(""));
 }
 
+void add_a4_option(CLI::App& sub, double& a4_hz) { sub.add_option("--a4", a4_hz, "A4 reference in Hz (400-480, default 440)"); }
+
 void add_format_option(CLI::App& sub, Format& format, bool with_csv) {
     if (with_csv) add_format_option(sub, format, {Format::text, Format::json, Format::csv});
     else add_format_option(sub, format, {Format::text, Format::json});

@@ -58,6 +58,8 @@ void register_drill(CLI::App& app, Runner& run);
 enum class Format { text, json, csv };
 void add_format_option(CLI::App& sub, Format& format, bool with_csv = true);
 void add_format_option(CLI::App& sub, Format& format, std::initializer_list<Format> allowed);
+// --a4 HZ: the A4 reference for note names (checked where it is used: 400-480).
+void add_a4_option(CLI::App& sub, double& a4_hz);
 
 // Small text helpers shared by the commands.
 std::string join_args(const std::vector<std::string>& args); // words joined by single spaces
