@@ -17,7 +17,7 @@
 namespace beatless::audio {
 
 // ---------------------------------------------------------------------------
-// Choosing a device
+// [SECTION] Choosing a device
 // ---------------------------------------------------------------------------
 
 namespace {
@@ -73,7 +73,7 @@ int choose_device(const std::vector<DeviceInfo>& devices, std::string_view spec,
 }
 
 // ---------------------------------------------------------------------------
-// PortAudio
+// [SECTION] PortAudio
 // ---------------------------------------------------------------------------
 
 namespace {

@@ -193,7 +193,7 @@ TEST_CASE("the tempered major third C4-E4 beats about 10.4 times a second") {
 }
 
 // ---------------------------------------------------------------------------
-// Reference roots
+// [SECTION] Reference roots
 // ---------------------------------------------------------------------------
 
 namespace {

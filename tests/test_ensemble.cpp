@@ -212,7 +212,7 @@ TEST_CASE("the best-fit root against numpy's least squares, on the engine's own 
 
 
 // ---------------------------------------------------------------------------
-// Bad inputs: clear messages, no crash
+// [SECTION] Bad inputs: clear messages, no crash
 // ---------------------------------------------------------------------------
 
 

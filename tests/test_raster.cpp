@@ -71,7 +71,7 @@ void operator delete(void* p, std::size_t) noexcept { std::free(p); }
 namespace {
 
 // ---------------------------------------------------------------------------
-// [helpers]
+// [SECTION] Helpers
 // ---------------------------------------------------------------------------
 
 constexpr int kW = 64, kH = 48;
@@ -185,7 +185,7 @@ double grid_coord(std::mt19937& rng, double lo, double hi) {
 }  // namespace
 
 // ---------------------------------------------------------------------------
-// [coverage]
+// [SECTION] Coverage
 // ---------------------------------------------------------------------------
 
 TEST_CASE("axis-aligned rectangles cover exactly the pixel centres x0 <= xc < x1, y0 <= yc < y1 (top-left rule, D3D10)") {
@@ -249,7 +249,7 @@ TEST_CASE("triangle coverage equals pixel-centre sampling with an independent po
 }
 
 // ---------------------------------------------------------------------------
-// [edges]
+// [SECTION] Edges
 // ---------------------------------------------------------------------------
 
 TEST_CASE("shared edges: a jittered mesh at 50% alpha is blended exactly once everywhere, no gaps (top-left rule)") {
@@ -343,7 +343,7 @@ TEST_CASE("shared edges: a fan around a centre with vertices on pixel centres, a
 }
 
 // ---------------------------------------------------------------------------
-// [blending]
+// [SECTION] Blending
 // ---------------------------------------------------------------------------
 
 namespace {
@@ -447,7 +447,7 @@ TEST_CASE("anti-aliased fringe: alpha interpolated with one RGB blends as the fo
 }
 
 // ---------------------------------------------------------------------------
-// [clipping]
+// [SECTION] Clipping
 // ---------------------------------------------------------------------------
 
 TEST_CASE("clip rectangles keep exactly the pixels whose centres lie inside the clip rect") {
@@ -473,7 +473,7 @@ TEST_CASE("clip rectangles keep exactly the pixels whose centres lie inside the 
 }
 
 // ---------------------------------------------------------------------------
-// [texture]
+// [SECTION] Texture
 // ---------------------------------------------------------------------------
 
 TEST_CASE("nearest texture sampling takes the texel containing the sample point, floor(u*w) (GL_NEAREST)") {
@@ -665,7 +665,7 @@ TEST_CASE("ImDrawData: DisplayPos and FramebufferScale map to pixels; VtxOffset 
 }
 
 // ---------------------------------------------------------------------------
-// [robustness]
+// [SECTION] Robustness
 // ---------------------------------------------------------------------------
 
 TEST_CASE("bad geometry draws nothing and is counted: NaN, bad indices, no area, a partial triangle") {
@@ -716,7 +716,7 @@ TEST_CASE("a frame allocates nothing once the buffer is sized; shrinking keeps t
 }
 
 // ---------------------------------------------------------------------------
-// [png]
+// [SECTION] Png
 // ---------------------------------------------------------------------------
 
 TEST_CASE("PNG round trip: our writer, read back by stb_image, gives the same RGBA pixels") {
@@ -768,7 +768,7 @@ TEST_CASE("PNG errors name the file and the reason") {
 }
 
 // ---------------------------------------------------------------------------
-// [host]
+// [SECTION] Host
 // ---------------------------------------------------------------------------
 
 TEST_CASE("host: DejaVu faces at the configured sizes times the DPI scale; frames take the given time step") {

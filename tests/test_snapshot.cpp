@@ -41,7 +41,7 @@ using namespace beatless::test;
 namespace {
 
 // ---------------------------------------------------------------------------
-// The lane: find it, read the marker
+// [SECTION] The lane: find it, read the marker
 // ---------------------------------------------------------------------------
 
 struct Lane {
@@ -272,7 +272,7 @@ TEST_CASE("beatless with no display says so in one line, points to snapshot and 
 }
 
 // ---------------------------------------------------------------------------
-// The Drills screen
+// [SECTION] The Drills screen
 // ---------------------------------------------------------------------------
 // The demo performer holds every target 3 cents flat (no vibrato) in the
 // drill "7/5 against 10/7" (±6 c, 5 s holds). Its first hold runs from 5.0 s

@@ -151,7 +151,7 @@ TEST_CASE("Ensemble snapshot: against the best-fit root, the held deviations min
 }
 
 // ---------------------------------------------------------------------------
-// The [ensemble] settings: saved, read back, and a bad value named
+// [SECTION] The [ensemble] settings: saved, read back, and a bad value named
 // ---------------------------------------------------------------------------
 
 TEST_CASE("[ensemble] settings: written, read back equal, and a bad reference is named by file and line") {

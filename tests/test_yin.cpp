@@ -111,7 +111,7 @@ double brute_difference(const std::vector<float>& x, std::size_t w, std::size_t 
 }  // namespace
 
 // ---------------------------------------------------------------------------
-// The difference function and the YIN steps
+// [SECTION] The difference function and the YIN steps
 // ---------------------------------------------------------------------------
 
 TEST_CASE("yin_difference (FFT) equals the direct sum of eq. 6 for several windows and lags") {
@@ -189,7 +189,7 @@ TEST_CASE("parabolic interpolation (step 5) is exact on a sampled parabola") {
 }
 
 // ---------------------------------------------------------------------------
-// Settings
+// [SECTION] Settings
 // ---------------------------------------------------------------------------
 
 TEST_CASE("invalid settings throw one-line errors naming the value") {
@@ -234,7 +234,7 @@ TEST_CASE("hop, decimation and delay are reported") {
 }
 
 // ---------------------------------------------------------------------------
-// Signals with exactly known f0
+// [SECTION] Signals with exactly known f0
 // ---------------------------------------------------------------------------
 
 TEST_CASE("steady harmonic tones 50-1500 Hz: within 0.2 cent (median) and 1 cent (every frame)") {
@@ -458,7 +458,7 @@ TEST_CASE("NaN and infinite samples are counted, read as 0, and never poison lat
 }
 
 // ---------------------------------------------------------------------------
-// Streaming behaviour
+// [SECTION] Streaming behaviour
 // ---------------------------------------------------------------------------
 
 TEST_CASE("results do not depend on the block sizes pushed") {

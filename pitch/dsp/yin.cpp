@@ -71,7 +71,7 @@ Index floor_div(Index a, Index b) { return a >= 0 ? a / b : -((-a + b - 1) / b);
 }  // namespace
 
 // ---------------------------------------------------------------------------
-// 1. Geometry
+// [SECTION] Geometry
 // ---------------------------------------------------------------------------
 
 struct YinTracker::Impl {
@@ -550,7 +550,7 @@ struct YinTracker::Impl {
 };
 
 // ---------------------------------------------------------------------------
-// Public interface
+// [SECTION] Public interface
 // ---------------------------------------------------------------------------
 
 double yin_kernel_second_moment(double window_samples, double lag_samples) noexcept {

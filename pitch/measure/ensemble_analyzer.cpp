@@ -13,7 +13,7 @@
 namespace beatless::pitch {
 
 // ---------------------------------------------------------------------------
-// Names
+// [SECTION] Names
 // ---------------------------------------------------------------------------
 
 std::string_view reference_key(ChordReference r) {
@@ -54,7 +54,7 @@ void check_players(const Chord& chord, std::span<const Player> players, int chan
 }
 
 // ---------------------------------------------------------------------------
-// EnsembleAnalyzer
+// [SECTION] EnsembleAnalyzer
 // ---------------------------------------------------------------------------
 
 namespace {

@@ -79,7 +79,7 @@ struct Voice {
 }  // namespace
 
 // ---------------------------------------------------------------------------
-// 1. Impl: buffers, set-up, the sample ring
+// [SECTION] Impl: buffers, set-up, the sample ring
 // ---------------------------------------------------------------------------
 struct TwoVoiceTracker::Impl {
     TwoVoiceConfig cfg;
@@ -181,7 +181,7 @@ void TwoVoiceTracker::Impl::reset() {
 }
 
 // ---------------------------------------------------------------------------
-// 2. Spectrum and peaks (phase-vocoder frequencies)
+// [SECTION] Spectrum and peaks (phase-vocoder frequencies)
 // ---------------------------------------------------------------------------
 void TwoVoiceTracker::Impl::find_peaks() {
     for (std::size_t i = 0; i < n; ++i) {
@@ -234,7 +234,7 @@ int TwoVoiceTracker::Impl::match(double freq_hz, double tol_hz) const {
 }
 
 // ---------------------------------------------------------------------------
-// 3. Salience, cancellation and the two voices
+// [SECTION] Salience, cancellation and the two voices
 // ---------------------------------------------------------------------------
 double TwoVoiceTracker::Impl::salience(double f0, bool residual) const {
     double s = 0.0;
@@ -269,7 +269,7 @@ void TwoVoiceTracker::Impl::cancel_first() {
 }
 
 // ---------------------------------------------------------------------------
-// 4. Least-squares refinement per voice
+// [SECTION] Least-squares refinement per voice
 // ---------------------------------------------------------------------------
 // Matches partials upward from the fundamental, updating f0 by weighted
 // least squares (f_h = h f0, weights amp^2) over the partials that lie
@@ -386,7 +386,7 @@ void TwoVoiceTracker::Impl::analyze(TwoVoiceFrame& f) {
 }
 
 // ---------------------------------------------------------------------------
-// 5. Interval, target and the coinciding pair
+// [SECTION] Interval, target and the coinciding pair
 // ---------------------------------------------------------------------------
 void TwoVoiceTracker::Impl::name_interval(TwoVoiceFrame& f) const {
     Ratio r{1, 1};
@@ -417,7 +417,7 @@ void TwoVoiceTracker::Impl::name_interval(TwoVoiceFrame& f) const {
 }
 
 // ---------------------------------------------------------------------------
-// 6. Beat rate: frequency difference or envelope cycles
+// [SECTION] Beat rate: frequency difference or envelope cycles
 // ---------------------------------------------------------------------------
 void TwoVoiceTracker::Impl::measure_beat(TwoVoiceFrame& f) {
     const int p = f.partial_low, q = f.partial_high;
@@ -499,7 +499,7 @@ void TwoVoiceTracker::Impl::measure_beat(TwoVoiceFrame& f) {
 }
 
 // ---------------------------------------------------------------------------
-// 7. Public API
+// [SECTION] Public API
 // ---------------------------------------------------------------------------
 TwoVoiceTracker::TwoVoiceTracker(const TwoVoiceConfig& config, const TargetSet& targets)
     : impl_(std::make_unique<Impl>(config, targets)) {}

@@ -50,7 +50,7 @@ bool sounds(double freq_hz, double weight) {
 }  // namespace
 
 // ---------------------------------------------------------------------------
-// 1 Chord and parsing
+// [SECTION] Chord and parsing
 // ---------------------------------------------------------------------------
 
 Chord Chord::from_terms(std::vector<std::int64_t> terms) {
@@ -138,7 +138,7 @@ Chord parse_chord(std::string_view text) {
 }
 
 // ---------------------------------------------------------------------------
-// 2 Chart
+// [SECTION] Chart
 // ---------------------------------------------------------------------------
 
 double beat_hz_per_cent(const PartialPair& pair) { return pair.freq_b_hz * std::numbers::ln2 / 1200.0; }
@@ -179,7 +179,7 @@ ChordChart chord_chart(const Chord& chord, double root_hz, const ChartConfig& co
 }
 
 // ---------------------------------------------------------------------------
-// 3 Reference roots and deviations
+// [SECTION] Reference roots and deviations
 // ---------------------------------------------------------------------------
 
 double reference_root_hz(const Chord& chord, ChordReference ref, double fixed_root_hz,

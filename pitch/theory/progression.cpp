@@ -13,7 +13,7 @@ namespace beatless::pitch {
 namespace {
 
 // ---------------------------------------------------------------------------
-// Tables (see the header for the same tables with the notes in C)
+// [SECTION] Tables (see the header for the same tables with the notes in C)
 // ---------------------------------------------------------------------------
 
 enum class Mark { none, dim, halfdim };
@@ -72,7 +72,7 @@ std::string chord_list(KeyMode mode) {
 int mod12(long v) { return static_cast<int>(((v % 12) + 12) % 12); }
 
 // ---------------------------------------------------------------------------
-// Numerals
+// [SECTION] Numerals
 // ---------------------------------------------------------------------------
 
 struct Numeral {
@@ -196,7 +196,7 @@ std::vector<std::string_view> split_tokens(std::string_view text) {
 }
 
 // ---------------------------------------------------------------------------
-// Exact arithmetic that gives up quietly on overflow (cents stay exact enough)
+// [SECTION] Exact arithmetic that gives up quietly on overflow (cents stay exact enough)
 // ---------------------------------------------------------------------------
 
 std::optional<Ratio> times(const std::optional<Ratio>& a, const Ratio& b) {
@@ -220,7 +220,7 @@ constexpr double kSameCents = 1e-6;
 }  // namespace
 
 // ---------------------------------------------------------------------------
-// 1 Keys
+// [SECTION] Keys
 // ---------------------------------------------------------------------------
 
 const char* mode_name(KeyMode mode) { return mode == KeyMode::major ? "major" : "minor"; }
@@ -254,7 +254,7 @@ Key parse_key(std::string_view text, double a4_hz) {
 }
 
 // ---------------------------------------------------------------------------
-// 2 Parsing
+// [SECTION] Parsing
 // ---------------------------------------------------------------------------
 
 Progression parse_progression(std::string_view text, std::optional<KeyMode> mode) {
@@ -297,7 +297,7 @@ Progression parse_progression(std::string_view text, std::optional<KeyMode> mode
 }
 
 // ---------------------------------------------------------------------------
-// 3 Tuning and drift
+// [SECTION] Tuning and drift
 // ---------------------------------------------------------------------------
 
 ProgressionTuning tune_progression(const Progression& p, DriftRule rule) {

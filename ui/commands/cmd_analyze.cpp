@@ -174,7 +174,7 @@ ReportData report_of(const pitch::TargetSet& set, const std::vector<Item>& items
 }
 
 // ---------------------------------------------------------------------------
-// One voice
+// [SECTION] One voice
 // ---------------------------------------------------------------------------
 void print_one_voice(const AnalyzeOptions& o, const pitch::TargetSet& set, const OneVoiceAnalysis& a) {
     const auto& notes = a.notes;
@@ -281,7 +281,7 @@ ReportData one_voice_report(const AnalyzeOptions& o, const pitch::TargetSet& set
 }
 
 // ---------------------------------------------------------------------------
-// Two voices
+// [SECTION] Two voices
 // ---------------------------------------------------------------------------
 const char* beat_source_name(pitch::BeatSource s) {
     switch (s) {
@@ -370,7 +370,7 @@ ReportData two_voice_report(const AnalyzeOptions& o, const pitch::TargetSet& set
 }
 
 // ---------------------------------------------------------------------------
-// The command
+// [SECTION] The command
 // ---------------------------------------------------------------------------
 int run_analyze(const AnalyzeOptions& o) {
     pitch::check_a4(o.a4_hz);

@@ -31,7 +31,7 @@ void PixelBuffer::clear(std::uint32_t color) noexcept { std::fill(pixels.begin()
 namespace {
 
 // ---------------------------------------------------------------------------
-// [pixels]
+// [SECTION] Pixels
 // ---------------------------------------------------------------------------
 
 // round(x / 255) for 0 <= x <= 255*255, exactly (Blinn 1995). Works on two
@@ -247,7 +247,7 @@ inline std::int64_t floor_div(std::int64_t n, std::int64_t d) {  // d > 0
 }
 
 // ---------------------------------------------------------------------------
-// [triangle]
+// [SECTION] Triangle
 // ---------------------------------------------------------------------------
 
 struct Surface {
@@ -562,7 +562,7 @@ void draw_rect(Surface& s, const Snapped& a, const Snapped& c, const PixRect& cl
 }  // namespace
 
 // ---------------------------------------------------------------------------
-// [draw]
+// [SECTION] Draw
 // ---------------------------------------------------------------------------
 
 void Rasterizer::draw_elements(PixelBuffer& target, std::span<const ImDrawVert> vertices,

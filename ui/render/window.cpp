@@ -23,7 +23,7 @@ namespace beatless::ui {
 namespace {
 
 // ---------------------------------------------------------------------------
-// [glfw]
+// [SECTION] Glfw
 // ---------------------------------------------------------------------------
 
 std::string& glfw_error() {
@@ -60,7 +60,7 @@ GLFWwindow*& running_window() {  // the window of the run_window() in progress (
 }
 
 // ---------------------------------------------------------------------------
-// [input]
+// [SECTION] Input
 // ---------------------------------------------------------------------------
 
 struct InputState {
@@ -159,7 +159,7 @@ void poll_mouse(GLFWwindow* w, InputState& in, ImGuiIO& io, int win_w, int fb_w,
 }
 
 // ---------------------------------------------------------------------------
-// [texture]
+// [SECTION] Texture
 // ---------------------------------------------------------------------------
 
 int pow2_at_least(int n) {
@@ -246,7 +246,7 @@ private:
 }  // namespace
 
 // ---------------------------------------------------------------------------
-// [loop]
+// [SECTION] Loop
 // ---------------------------------------------------------------------------
 
 WindowReport run_window(const WindowConfig& config, const std::function<void(float dt_s)>& build_frame) {

@@ -24,7 +24,7 @@
 namespace beatless::ui {
 
 // ---------------------------------------------------------------------------
-// [list]
+// [SECTION] List
 // ---------------------------------------------------------------------------
 
 std::vector<std::unique_ptr<Screen>> make_screens() {
@@ -114,7 +114,7 @@ constexpr KeyHelp kGlobalKeys[] = {
 const char* caution_text() { return kCautionText; }
 
 // ---------------------------------------------------------------------------
-// [style]
+// [SECTION] Style
 // ---------------------------------------------------------------------------
 
 ScreenDeck::ScreenDeck(AppState& app) : app_(app), screens_(make_screens()) { show(app.settings().screen); }
@@ -163,7 +163,7 @@ void ScreenDeck::apply_style() {
 }
 
 // ---------------------------------------------------------------------------
-// [keys]
+// [SECTION] Keys
 // ---------------------------------------------------------------------------
 
 void ScreenDeck::handle_keys() {
@@ -189,7 +189,7 @@ void ScreenDeck::handle_keys() {
 }
 
 // ---------------------------------------------------------------------------
-// [bars]
+// [SECTION] Bars
 // ---------------------------------------------------------------------------
 
 void ScreenDeck::tab_bar(float height) {
@@ -355,7 +355,7 @@ void ScreenDeck::messages(const ImVec2& bottom_left, float width) {
 }
 
 // ---------------------------------------------------------------------------
-// [help]
+// [SECTION] Help
 // ---------------------------------------------------------------------------
 
 void ScreenDeck::help_overlay() {
@@ -398,7 +398,7 @@ void ScreenDeck::help_overlay() {
 }
 
 // ---------------------------------------------------------------------------
-// [frame]
+// [SECTION] Frame
 // ---------------------------------------------------------------------------
 
 void ScreenDeck::build_frame(double dt_s) {

@@ -51,7 +51,7 @@ namespace beatless::ui {
 namespace {
 
 // ---------------------------------------------------------------------------
-// [state]
+// [SECTION] State
 // ---------------------------------------------------------------------------
 
 constexpr double kRetryEveryS = 10.0;   // unsaved attempts: try the log again this often
@@ -123,7 +123,7 @@ private:
 };
 
 // ---------------------------------------------------------------------------
-// [run]
+// [SECTION] Run
 // ---------------------------------------------------------------------------
 
 void DrillsScreen::load(AppState& app) {
@@ -285,7 +285,7 @@ void DrillsScreen::keys_of_screen(AppState& app) {
 }
 
 // ---------------------------------------------------------------------------
-// [now panel]
+// [SECTION] Now panel
 // ---------------------------------------------------------------------------
 
 std::string seconds_text(double s) {
@@ -546,7 +546,7 @@ void DrillsScreen::now_panel(AppState& app, ImDrawList* dl, float x0, float y0, 
 }
 
 // ---------------------------------------------------------------------------
-// [attempt panel]
+// [SECTION] Attempt panel
 // ---------------------------------------------------------------------------
 
 // The hold's pitch against the target line (0) and the band, over the hold's time.
@@ -694,7 +694,7 @@ void DrillsScreen::attempt_panel(ImDrawList* dl, float x0, float y0, float w, fl
 }
 
 // ---------------------------------------------------------------------------
-// [left column]
+// [SECTION] Left column
 // ---------------------------------------------------------------------------
 
 void DrillsScreen::left_column(AppState& app, ImDrawList* dl, float x0, float y0, float w, float h) {
@@ -743,7 +743,7 @@ void DrillsScreen::left_column(AppState& app, ImDrawList* dl, float x0, float y0
 }
 
 // ---------------------------------------------------------------------------
-// [screen]
+// [SECTION] Screen
 // ---------------------------------------------------------------------------
 
 void DrillsScreen::build(AppState& app, const ScreenArea& area, double dt_s) {

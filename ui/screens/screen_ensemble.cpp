@@ -115,7 +115,7 @@ public:
 };
 
 // ---------------------------------------------------------------------------
-// [text]
+// [SECTION] Text
 // ---------------------------------------------------------------------------
 
 // Draws and records a piece of text (the view's boxes are what the tests check).
@@ -165,7 +165,7 @@ std::string octave_text(int octaves) {
 }
 
 // ---------------------------------------------------------------------------
-// [strip]
+// [SECTION] Strip
 // ---------------------------------------------------------------------------
 
 void EnsembleScreen::strip(AppState& app, ImDrawList* dl, std::size_t i, float x0, float y0, float w, float h) {
@@ -413,7 +413,7 @@ void EnsembleScreen::strip(AppState& app, ImDrawList* dl, std::size_t i, float x
 }
 
 // ---------------------------------------------------------------------------
-// [beats]
+// [SECTION] Beats
 // ---------------------------------------------------------------------------
 
 // The beat icon: the last two seconds of the pair's envelope (ui/screens/beat_view.h).
@@ -462,7 +462,7 @@ void EnsembleScreen::beat_row(ImDrawList* dl, const std::vector<float>& xs, floa
 }
 
 // ---------------------------------------------------------------------------
-// [chart]
+// [SECTION] Chart
 // ---------------------------------------------------------------------------
 
 void EnsembleScreen::chart(AppState& app, ImDrawList* dl, float x0, float y0, float w, float h) {
@@ -548,7 +548,7 @@ void EnsembleScreen::chart(AppState& app, ImDrawList* dl, float x0, float y0, fl
 }
 
 // ---------------------------------------------------------------------------
-// [editor]
+// [SECTION] Editor
 // ---------------------------------------------------------------------------
 
 // The multi-channel input: every device with inputs, with its channel count
@@ -672,7 +672,7 @@ void EnsembleScreen::editor(AppState& app, float x0, float y0, float w, float h)
 }
 
 // ---------------------------------------------------------------------------
-// [header]
+// [SECTION] Header
 // ---------------------------------------------------------------------------
 
 void EnsembleScreen::header(AppState& app, ImDrawList* dl, float x0, float y0, float w, float h) {
@@ -710,7 +710,7 @@ void EnsembleScreen::header(AppState& app, ImDrawList* dl, float x0, float y0, f
 }
 
 // ---------------------------------------------------------------------------
-// [screen]
+// [SECTION] Screen
 // ---------------------------------------------------------------------------
 
 void EnsembleScreen::build(AppState& app, const ScreenArea& area, double dt_s) {

@@ -121,7 +121,7 @@ private:
 };
 
 // ---------------------------------------------------------------------------
-// [header]
+// [SECTION] Header
 // ---------------------------------------------------------------------------
 
 void PracticeScreen::header(AppState& app, ImDrawList* dl, float x0, float y0, float w, float h) {
@@ -183,7 +183,7 @@ void PracticeScreen::header(AppState& app, ImDrawList* dl, float x0, float y0, f
 }
 
 // ---------------------------------------------------------------------------
-// [lane]
+// [SECTION] Lane
 // ---------------------------------------------------------------------------
 
 void PracticeScreen::lane(AppState& app, ImDrawList* dl, float x0, float y0, float w, float band_h) {
@@ -235,7 +235,7 @@ void PracticeScreen::info_line(AppState& app, ImDrawList* dl, float x0, float y0
 }
 
 // ---------------------------------------------------------------------------
-// [trace]
+// [SECTION] Trace
 // ---------------------------------------------------------------------------
 
 void PracticeScreen::trace(AppState& app, ImDrawList* dl, float x0, float y0, float w, float h) {
@@ -375,7 +375,7 @@ void PracticeScreen::trace(AppState& app, ImDrawList* dl, float x0, float y0, fl
 }
 
 // ---------------------------------------------------------------------------
-// [beat cue]
+// [SECTION] Beat cue
 // ---------------------------------------------------------------------------
 
 void PracticeScreen::beat_cue(AppState& app, ImDrawList* dl, float x0, float y0, float w, float h) {
@@ -458,7 +458,7 @@ void PracticeScreen::beat_cue(AppState& app, ImDrawList* dl, float x0, float y0,
 }
 
 // ---------------------------------------------------------------------------
-// [controls]
+// [SECTION] Controls
 // ---------------------------------------------------------------------------
 
 void PracticeScreen::controls(AppState& app) {
@@ -560,7 +560,7 @@ void PracticeScreen::controls(AppState& app) {
 }
 
 // ---------------------------------------------------------------------------
-// [screen]
+// [SECTION] Screen
 // ---------------------------------------------------------------------------
 
 void PracticeScreen::build(AppState& app, const ScreenArea& area, double dt_s) {

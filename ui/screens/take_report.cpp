@@ -37,7 +37,7 @@ constexpr ImU32 kTraceDense = rgba(150, 170, 210);  // a band of many frames per
 constexpr double kJoinCents = 60.0;  // larger jumps between neighbouring points are not joined by a line
 
 // ---------------------------------------------------------------------------
-// 1. Page geometry and the cents range in view
+// [SECTION] Page geometry and the cents range in view
 // ---------------------------------------------------------------------------
 double percentile_of(std::vector<double>& v, double p) {
     if (v.empty()) return NAN;
@@ -109,7 +109,7 @@ ReportLayout report_layout(const ReportData& d) {
 namespace {
 
 // ---------------------------------------------------------------------------
-// 2. Ticks and labels
+// [SECTION] Ticks and labels
 // ---------------------------------------------------------------------------
 double tick_step(double span, std::initializer_list<double> steps, int max_ticks) {
     double last = 1.0;
@@ -169,7 +169,7 @@ ImU32 mark_colour(double dev_cents) {
 }
 
 // ---------------------------------------------------------------------------
-// 3. The plot: grid, target lines and their labels, trace, note bars
+// [SECTION] The plot: grid, target lines and their labels, trace, note bars
 // ---------------------------------------------------------------------------
 void draw_axes(const Ink& ink, const ReportData& d, const ReportLayout& l) {
     ImDrawList* dl = ink.dl;
@@ -327,7 +327,7 @@ int draw_marks(const Ink& ink, const ReportData& d, const ReportLayout& l) {
 }
 
 // ---------------------------------------------------------------------------
-// 4. Title, legend and the summary table
+// [SECTION] Title, legend and the summary table
 // ---------------------------------------------------------------------------
 void draw_title(const Ink& ink, const ReportData& d) {
     ink.text(ink.title, kMargin, 24.0f, kInk, d.title);
@@ -430,7 +430,7 @@ void draw_skipped_note(const Ink& ink, const ReportData& d, const ReportLayout& 
 }  // namespace
 
 // ---------------------------------------------------------------------------
-// 5. Rendering and the PNG
+// [SECTION] Rendering and the PNG
 // ---------------------------------------------------------------------------
 void render_report(const ReportData& d, PixelBuffer& out) {
     HostConfig hc;

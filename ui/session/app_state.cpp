@@ -25,7 +25,7 @@
 namespace beatless::ui {
 
 // ---------------------------------------------------------------------------
-// [trace]
+// [SECTION] Trace
 // ---------------------------------------------------------------------------
 
 TraceStore::TraceStore(std::size_t capacity) : ring_(std::max<std::size_t>(capacity, 1)) {}
@@ -42,7 +42,7 @@ const pitch::Reading& TraceStore::at(std::size_t i) const noexcept {
 }
 
 // ---------------------------------------------------------------------------
-// [setup]
+// [SECTION] Setup
 // ---------------------------------------------------------------------------
 
 namespace {
@@ -292,7 +292,7 @@ void AppState::pump_simulation(double dt_s) {
 }
 
 // ---------------------------------------------------------------------------
-// [frame]
+// [SECTION] Frame
 // ---------------------------------------------------------------------------
 
 void AppState::update(double dt_s) {
@@ -340,7 +340,7 @@ audio::EngineStatus AppState::status() const { return engine_ ? engine_->status(
 double AppState::stream_time_s() const { return engine_ ? engine_->stream_time_s() : 0.0; }
 
 // ---------------------------------------------------------------------------
-// [drone]
+// [SECTION] Drone
 // ---------------------------------------------------------------------------
 
 void AppState::acknowledge_caution() {
@@ -475,7 +475,7 @@ void AppState::sound_reference() {
 }
 
 // ---------------------------------------------------------------------------
-// [targets]
+// [SECTION] Targets
 // ---------------------------------------------------------------------------
 
 pitch::TargetSet AppState::engine_targets() const {
@@ -588,7 +588,7 @@ std::string AppState::target_name_text(const pitch::Reading& r) const {
 }
 
 // ---------------------------------------------------------------------------
-// [drills]
+// [SECTION] Drills
 // ---------------------------------------------------------------------------
 
 bool AppState::refuse_in_drill(const char* what) {
@@ -662,7 +662,7 @@ bool AppState::sing_script(std::vector<audio::DemoNote> notes) {
 }
 
 // ---------------------------------------------------------------------------
-// [settings]
+// [SECTION] Settings
 // ---------------------------------------------------------------------------
 
 void AppState::changed() {

@@ -20,7 +20,7 @@
 namespace beatless::ui {
 
 // ---------------------------------------------------------------------------
-// [phases]
+// [SECTION] Phases
 // ---------------------------------------------------------------------------
 
 std::string_view phase_name(DrillPhase p) {
@@ -85,7 +85,7 @@ const DrillTarget* DrillRunner::current_target() const { return index_ < sequenc
 bool DrillRunner::done() const { return (phase_ == DrillPhase::finished || phase_ == DrillPhase::stopped) && !collecting_; }
 
 // ---------------------------------------------------------------------------
-// [control]
+// [SECTION] Control
 // ---------------------------------------------------------------------------
 
 void DrillRunner::start(double now_s) {
@@ -205,7 +205,7 @@ std::vector<ToneRequest> DrillRunner::take_tones() {
 }
 
 // ---------------------------------------------------------------------------
-// [hold]
+// [SECTION] Hold
 // ---------------------------------------------------------------------------
 
 void DrillRunner::begin_hold_step(double at_s) {
@@ -268,7 +268,7 @@ void DrillRunner::finish_hold_score() {
 }
 
 // ---------------------------------------------------------------------------
-// [ear]
+// [SECTION] Ear
 // ---------------------------------------------------------------------------
 
 void DrillRunner::next_question(double at_s) {
@@ -342,7 +342,7 @@ void DrillRunner::finish_ear(double now_s, bool complete) {
 }
 
 // ---------------------------------------------------------------------------
-// [log]
+// [SECTION] Log
 // ---------------------------------------------------------------------------
 
 void DrillRunner::save(Attempt a) {
@@ -404,7 +404,7 @@ std::string log_warning_line(const std::string& log_path, const SaveResult& r) {
 }
 
 // ---------------------------------------------------------------------------
-// [words]
+// [SECTION] Words
 // ---------------------------------------------------------------------------
 
 namespace {
@@ -467,7 +467,7 @@ std::string ear_summary_text(const EarResult& r) {
 namespace beatless::ui {
 
 // ---------------------------------------------------------------------------
-// [engine]
+// [SECTION] Engine
 // ---------------------------------------------------------------------------
 
 audio::DroneSettings drill_drone(const Drill& d, double max_level_dbfs) {
