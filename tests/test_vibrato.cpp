@@ -7,7 +7,7 @@
 // usual range (common practice; from memory, C. E. Seashore, Psychology of
 // Music, 1938, reports about 6-7 Hz for singers). Every signal is
 // generated here with the centre, rate, depth and phase known exactly.
-#include "pitch/dsp/cycles.h"
+#include "pitch/dsp/whole_cycles.h"
 #include "pitch/base/error.h"
 #include "pitch/dsp/vibrato.h"
 #include "tests/mix_signals.h"

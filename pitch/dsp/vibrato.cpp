@@ -1,6 +1,6 @@
 #include "pitch/dsp/vibrato.h"
 
-#include "pitch/dsp/cycles.h"
+#include "pitch/dsp/whole_cycles.h"
 #include "pitch/base/error.h"
 
 #include <algorithm>

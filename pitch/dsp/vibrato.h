@@ -1,7 +1,7 @@
 // VibratoCentre — streaming centre pitch of a held note, averaged over whole
 // vibrato cycles, with the vibrato's rate and depth and a steadiness figure.
 //
-// Method (pitch/dsp/cycles.h): over the last window_s of voiced frames, remove
+// Method (pitch/dsp/whole_cycles.h): over the last window_s of voiced frames, remove
 // the least-squares line, find upward zero crossings of the residual with
 // hysteresis, and accept a run of crossings whose periods fit a vibrato
 // (min_rate_hz..max_rate_hz, periods within 1.5x of each other). The centre

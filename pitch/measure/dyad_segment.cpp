@@ -19,7 +19,7 @@
 #include "pitch/measure/dyad_segment.h"
 
 #include "pitch/theory/beats.h"
-#include "pitch/dsp/cycles.h"
+#include "pitch/dsp/whole_cycles.h"
 #include "pitch/base/error.h"
 #include "pitch/base/text.h"
 

@@ -12,7 +12,7 @@
 // frame; the settle time runs from the onset to the middle of the first
 // averaging window whose centre stays within settle_cents of the note's
 // centre for the rest of the note; the note's centre f0 is the whole-cycle
-// mean (pitch/dsp/cycles.h) over the frames from that reading on (the second
+// mean (pitch/dsp/whole_cycles.h) over the frames from that reading on (the second
 // half when that leaves under 0.3 s), leaving out the last release_trim_s,
 // whose tracker frames already hear the release; (5) nearest target (pitch/theory/targets.h), deviation,
 // spread, and the beat rate of the coinciding partials against the root
@@ -24,7 +24,7 @@
 #include "pitch/measure/segment.h"
 
 #include "pitch/theory/beats.h"
-#include "pitch/dsp/cycles.h"
+#include "pitch/dsp/whole_cycles.h"
 #include "pitch/base/error.h"
 #include "pitch/base/text.h"
 

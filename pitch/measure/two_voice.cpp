@@ -18,7 +18,7 @@
 // high one, f_high/f_low = p/q); its beat rate is measured from the two
 // partials' frequency difference when the spectrum resolves them, otherwise
 // from the amplitude envelope at their shared frequency over the last
-// beat_history_s (whole cycles, pitch/dsp/cycles.h), and reported beside the
+// beat_history_s (whole cycles, pitch/dsp/whole_cycles.h), and reported beside the
 // rate the f0s predict, |q * f_high - p * f_low| (pitch/theory/beats.h).
 //
 // All allocation happens in the constructor; push() and pull() never
@@ -35,7 +35,7 @@
 #include "pitch/measure/two_voice.h"
 
 #include "pitch/theory/beats.h"
-#include "pitch/dsp/cycles.h"
+#include "pitch/dsp/whole_cycles.h"
 #include "pitch/base/error.h"
 #include "pitch/dsp/real_fft.h"
 #include "pitch/base/text.h"

@@ -1,4 +1,4 @@
-#include "pitch/dsp/cycles.h"
+#include "pitch/dsp/whole_cycles.h"
 
 #include <algorithm>
 #include <cmath>
