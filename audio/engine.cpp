@@ -83,10 +83,16 @@ struct Engine::Impl {
     std::unique_ptr<pitch::EnsembleAnalyzer> analyzer;
     std::atomic<pitch::EnsembleAnalyzer*> pending_analyzer{nullptr};
     std::atomic<pitch::EnsembleAnalyzer*> retired_analyzer{nullptr};
+    // Two voices: their tracker, swapped the same way.
+    std::unique_ptr<pitch::TwoVoiceTracker> duo;
+    std::atomic<pitch::TwoVoiceTracker*> pending_duo{nullptr};
+    std::atomic<pitch::TwoVoiceTracker*> retired_duo{nullptr};
+    pitch::TwoVoiceFrame duo_frame{};
 
     // Publication (the one the mode uses is made in start()).
     std::unique_ptr<ReadingOutlet<pitch::Reading, kHistoryLen>> out;
     std::unique_ptr<ReadingOutlet<pitch::EnsembleReading, kHistoryLen>> group_out;
+    std::unique_ptr<ReadingOutlet<pitch::TwoVoiceFrame, kHistoryLen>> duo_out;
     std::atomic<std::uint64_t> analyzed{0};
     std::atomic<bool> finished{false};
 
@@ -118,10 +124,12 @@ Engine::~Engine() {
     delete impl_->retired_maker.exchange(nullptr);
     delete impl_->pending_analyzer.exchange(nullptr);
     delete impl_->retired_analyzer.exchange(nullptr);
+    delete impl_->pending_duo.exchange(nullptr);
+    delete impl_->retired_duo.exchange(nullptr);
 }
 
 int Engine::channels_needed() const {
-    if (mode_ == EngineMode::performer) return 1;
+    if (mode_ != EngineMode::ensemble) return 1;
     int top = 0;
     for (const auto& p : setup_.players) top = std::max(top, p.channel + 1);
     return top;
@@ -162,6 +170,20 @@ void Engine::set_ensemble(EnsembleSetup setup) {
         return;
     }
     delete m.pending_analyzer.exchange(a.release());
+}
+
+void Engine::set_two_voices(const pitch::TwoVoiceConfig& config, pitch::TargetSet targets) {
+    Impl& m = *impl_;
+    if (m.started && mode_ != EngineMode::two_voices) throw Error("engine: analysing another shape; stop it before following two voices");
+    two_config_ = config;
+    two_targets_ = std::move(targets);
+    mode_ = EngineMode::two_voices;
+    delete m.retired_duo.exchange(nullptr);
+    if (!m.started) return;
+    pitch::TwoVoiceConfig tc = two_config_;
+    tc.sample_rate_hz = m.rate;
+    tc.max_block_len_samples = kChunk * 4;
+    delete m.pending_duo.exchange(new pitch::TwoVoiceTracker(tc, two_targets_));
 }
 
 void Engine::open_input_device(std::string_view spec) {
@@ -270,7 +292,8 @@ void Engine::start(bool analysis_thread) {
     Impl& m = *impl_;
     if (m.started) return;
     const bool group = mode_ == EngineMode::ensemble;
-    if (group ? !m.analyzer : !m.maker)
+    const bool duo = mode_ == EngineMode::two_voices;
+    if (group ? !m.analyzer : !duo && !m.maker)
         throw Error(group ? "ensemble: no chord and players set" : "engine: readings are not set up (no root or targets)");
     if (m.input == InputKind::device) {
         const StreamInfo& info = m.io.open_input(*system_, *this);
@@ -320,7 +343,7 @@ void Engine::start(bool analysis_thread) {
     if (m.input_has_drone) cc.bandwidth_hz = cc.quiet_bandwidth_hz = cc.recording_bandwidth_hz;
     for (std::size_t i = 0; i < m.players; ++i) {
         m.rings.push_back(std::make_unique<SpscRing<float>>(static_cast<std::size_t>(cfg_.ring_s * m.rate)));
-        m.trackers.push_back(std::make_unique<pitch::YinTracker>(yc));
+        if (!duo) m.trackers.push_back(std::make_unique<pitch::YinTracker>(yc));
         m.cancellers.push_back(std::make_unique<DroneCanceller>(cc));
     }
     m.cap_scratch.assign(kScratch, 0.0f);
@@ -329,7 +352,15 @@ void Engine::start(bool analysis_thread) {
     m.prod_scratch.assign(kScratch * static_cast<std::size_t>(m.in_channels), 0.0f);
     m.work.assign(kChunk * m.players, 0.0f);
     if (group) m.group_out = std::make_unique<ReadingOutlet<pitch::EnsembleReading, kHistoryLen>>(kEnsembleStreamLen);
+    else if (duo) m.duo_out = std::make_unique<ReadingOutlet<pitch::TwoVoiceFrame, kHistoryLen>>(kPerformerStreamLen);
     else m.out = std::make_unique<ReadingOutlet<pitch::Reading, kHistoryLen>>(kPerformerStreamLen);
+    if (duo) {
+        pitch::TwoVoiceConfig tc = two_config_;
+        tc.sample_rate_hz = m.rate;
+        tc.max_block_len_samples = kChunk * 4;
+        m.duo = std::make_unique<pitch::TwoVoiceTracker>(tc, two_targets_);
+        m.span_s = static_cast<double>(m.duo->window_len_samples()) / m.rate;
+    }
     if (m.input == InputKind::demo) {
         // Each microphone hears the drone from its own place in the room.
         m.room_drone = std::make_unique<Drone>(m.rate);
@@ -438,6 +469,11 @@ std::size_t Engine::analyze_available() noexcept {
         m.analyzer.reset(fresh);
         delete m.retired_analyzer.exchange(old);  // normally empty: the control thread frees retired analyzers
     }
+    if (pitch::TwoVoiceTracker* fresh = m.pending_duo.exchange(nullptr)) {
+        pitch::TwoVoiceTracker* old = m.duo.release();
+        m.duo.reset(fresh);
+        delete m.retired_duo.exchange(old);  // normally empty: the control thread frees retired trackers
+    }
     const double root = m.root_hz.load(std::memory_order_acquire);
     if (root != m.applied_root) {
         m.applied_root = root;
@@ -468,7 +504,8 @@ std::size_t Engine::analyze_available() noexcept {
             std::span<float> w(&m.work[p * kChunk], n);
             m.rings[p]->read(w);
             if (m.removal_active) m.cancellers[p]->process(w, w);
-            m.trackers[p]->push(w);
+            if (m.duo) m.duo->push(w);
+            else m.trackers[p]->push(w);
         }
         m.analyzed.fetch_add(n, std::memory_order_relaxed);
         total += n;
@@ -482,6 +519,21 @@ std::size_t Engine::analyze_available() noexcept {
 // reading (one performer) or one ensemble reading (a group), published.
 void Engine::analyze_frames() noexcept {
     Impl& m = *impl_;
+    if (m.duo) {
+        pitch::TwoVoiceFrame& f = m.duo_frame;
+        while (m.duo->pull(f)) {
+            const auto idx = static_cast<std::int64_t>(std::llround(f.t_s * m.rate));
+            double lat_s = 0.0;
+            m.publish_time(lat_s, idx);
+            m.duo_out->publish(f, lat_s);
+            if (m.removal_active && !m.input_has_drone) {
+                const auto now = static_cast<double>(m.analyzed.load(std::memory_order_relaxed));
+                const double onset = f.t_s - 0.5 * m.span_s;
+                m.cancellers[0]->set_voice(f.voices > 0, static_cast<std::size_t>(std::max(0.0, now - onset * m.rate)));
+            }
+        }
+        return;
+    }
     while (m.trackers[0]->pull(m.frames[0])) {
         for (std::size_t p = 1; p < m.players; ++p)
             if (!m.trackers[p]->pull(m.frames[p])) m.frames[p] = pitch::PitchFrame{m.frames[0].t_s, 0.0, 0.0};
@@ -527,6 +579,9 @@ StreamInfo Engine::output_info() const { return impl_->io.out_info; }
 
 bool Engine::latest(pitch::Reading& out) { return impl_->out && impl_->out->latest.read(out); }
 bool Engine::latest(pitch::EnsembleReading& out) { return impl_->group_out && impl_->group_out->latest.read(out); }
+bool Engine::latest(pitch::TwoVoiceFrame& out) { return impl_->duo_out && impl_->duo_out->latest.read(out); }
+std::size_t Engine::history(std::span<pitch::TwoVoiceFrame> out) const { return impl_->duo_out ? impl_->duo_out->history.read(out) : 0; }
+std::size_t Engine::take_readings(std::span<pitch::TwoVoiceFrame> out) { return impl_->duo_out ? impl_->duo_out->stream.read(out) : 0; }
 std::size_t Engine::history(std::span<pitch::Reading> out) const { return impl_->out ? impl_->out->history.read(out) : 0; }
 std::size_t Engine::history(std::span<pitch::EnsembleReading> out) const {
     return impl_->group_out ? impl_->group_out->history.read(out) : 0;
@@ -555,7 +610,8 @@ EngineStatus Engine::status() const {
     for (const auto& t : m.trackers) st.tracker_dropped_frames += t->dropped_frames();
     if (m.out) m.out->report(st);
     if (m.group_out) m.group_out->report(st);
-    st.tracker_delay_s = m.trackers.empty() ? 0.0 : m.trackers[0]->delay_s();
+    if (m.duo_out) m.duo_out->report(st);
+    st.tracker_delay_s = m.duo ? 0.5 * m.span_s : m.trackers.empty() ? 0.0 : m.trackers[0]->delay_s();
     st.device_input_latency_s = m.io.in_info.input_latency_s;
     st.device_output_latency_s = m.io.out_info.output_latency_s;
     st.input_ok = m.started && !m.io.input_lost && !m.finished.load();
@@ -597,6 +653,11 @@ void Engine::run_fast(const std::function<void(const pitch::Reading&)>& on_readi
 void Engine::run_fast(const std::function<void(const pitch::EnsembleReading&)>& on_reading, double max_s) {
     if (mode_ != EngineMode::ensemble) throw Error("engine: following one performer; its readings are not ensemble readings");
     run_fast_impl<pitch::EnsembleReading>(on_reading, max_s);
+}
+
+void Engine::run_fast(const std::function<void(const pitch::TwoVoiceFrame&)>& on_reading, double max_s) {
+    if (mode_ != EngineMode::two_voices) throw Error("engine: not following two voices");
+    run_fast_impl<pitch::TwoVoiceFrame>(on_reading, max_s);
 }
 
 void Engine::run_demo_frames(std::size_t frames) noexcept {
@@ -663,6 +724,7 @@ void Engine::supervise() {
     Impl& m = *impl_;
     delete m.retired_maker.exchange(nullptr);
     delete m.retired_analyzer.exchange(nullptr);
+    delete m.retired_duo.exchange(nullptr);
     if (m.io.producer_failed.exchange(false)) say(m.io.producer_error);
     if (!m.started) return;
     if (m.input != InputKind::device) {

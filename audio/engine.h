@@ -23,6 +23,7 @@
 #include "pitch/measure/ensemble_analyzer.h"
 #include "pitch/measure/reading.h"
 #include "pitch/measure/reading_maker.h"
+#include "pitch/measure/two_voice.h"
 
 #include <atomic>
 #include <cstdint>
@@ -61,8 +62,9 @@ struct EnsembleSetup {
     pitch::EnsembleConfig analysis;       // root, A4, thresholds (hop_s is the engine's)
 };
 
-// What the engine analyses: one performer (Reading) or a group (EnsembleReading).
-enum class EngineMode { performer, ensemble };
+// What the engine analyses: one performer (Reading), a group (EnsembleReading),
+// or two voices in one input, a double stop or a duet (TwoVoiceFrame).
+enum class EngineMode { performer, ensemble, two_voices };
 
 struct EngineStatus : LiveStatus {
     EngineMode mode = EngineMode::performer;
@@ -91,6 +93,10 @@ public:
     // A group. Before start: any setup. While running a group: a new chord,
     // root, names or voices for the same players on the same channels (else throws Error).
     void set_ensemble(EnsembleSetup setup);
+    // Two voices in one input (channel 1): both pitches, their interval against
+    // the set and the beat of its coinciding partials, predicted and measured.
+    // The config's rate is the input's (filled in); also while running.
+    void set_two_voices(const pitch::TwoVoiceConfig& config, pitch::TargetSet targets);
     EngineMode mode() const { return mode_; }
     const EnsembleSetup& ensemble_setup() const { return setup_; }
 
@@ -110,6 +116,7 @@ public:
     // calling thread as fast as possible; on_reading sees every reading.
     void run_fast(const std::function<void(const pitch::Reading&)>& on_reading, double max_s = 0.0);
     void run_fast(const std::function<void(const pitch::EnsembleReading&)>& on_reading, double max_s = 0.0);
+    void run_fast(const std::function<void(const pitch::TwoVoiceFrame&)>& on_reading, double max_s = 0.0);
     // Demo only, after start(false): renders this many frames and analyses
     // them in the calling thread (simulated time, as `beatless snapshot` runs). Allocates: no.
     void run_demo_frames(std::size_t frames) noexcept;
@@ -130,13 +137,17 @@ public:
     // --- Readings and status ------------------------------------------------------
     // The newest reading (one reader; false if none new), the last readings
     // oldest first (any thread), every reading in order (one reader). The
-    // Reading forms serve one performer, the EnsembleReading forms a group.
+    // Reading forms serve one performer, the EnsembleReading forms a group,
+    // the TwoVoiceFrame forms two voices.
     bool latest(pitch::Reading& out);
     bool latest(pitch::EnsembleReading& out);
+    bool latest(pitch::TwoVoiceFrame& out);
     std::size_t history(std::span<pitch::Reading> out) const;
     std::size_t history(std::span<pitch::EnsembleReading> out) const;
+    std::size_t history(std::span<pitch::TwoVoiceFrame> out) const;
     std::size_t take_readings(std::span<pitch::Reading> out);
     std::size_t take_readings(std::span<pitch::EnsembleReading> out);
+    std::size_t take_readings(std::span<pitch::TwoVoiceFrame> out);
     EngineStatus status() const;
     double sample_rate_hz() const { return rate_hz_; }
     StreamInfo input_info() const;             // negotiated input stream (after start)
@@ -177,6 +188,8 @@ private:
     EngineMode mode_ = EngineMode::performer;
     EnsembleSetup setup_;
     bool have_setup_ = false;
+    pitch::TwoVoiceConfig two_config_;
+    pitch::TargetSet two_targets_;
     DroneSettings drone_{};
     double rate_hz_ = 0.0;
     std::function<void(const std::string&)> message_;

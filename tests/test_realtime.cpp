@@ -240,3 +240,57 @@ TEST_CASE("ensemble engine: the capture and playback callbacks allocate nothing 
     CHECK(an_locks == 0);
 #endif
 }
+
+TEST_CASE("two voices: the callbacks and the warm analysis allocate nothing and lock nothing, targets swapped while running") {
+#ifdef BEATLESS_SANITIZED
+    MESSAGE("skipped under the sanitizers, which interpose the allocator themselves");
+#else
+    // A double stop (7/4 over G3) on a fake duplex device that also plays the drone.
+    const double rate = 48000.0;
+    std::vector<float> x(static_cast<std::size_t>(3.0 * rate), 0.0f);
+    testsig::add_tone(x, rate, 196.0, 0.1, 2.9, 0.2, testsig::rolloff(12));
+    testsig::add_tone(x, rate, 196.0 * 1.75, 0.1, 2.9, 0.16, testsig::rolloff(12));
+    audio::FakeAudioSystem sys({audio::fake_device(0, "Fake duplex", 1, 2)}, {rate});
+    audio::EngineConfig ec;
+    ec.sample_rate_hz = rate;
+    audio::Engine eng(ec, &sys);
+    pitch::TargetSet set;
+    for (const char* r : {"7/4", "7/5", "3/2"}) set.targets.push_back({pitch::parse_interval(r), ""});
+    eng.set_two_voices(pitch::TwoVoiceConfig{}, set);
+    eng.open_input_device("duplex");
+    eng.open_output_device("duplex");
+    audio::DroneSettings d;
+    d.on = true;
+    d.root_hz = 98.0;
+    eng.set_drone(d);
+    eng.start(false);
+    std::vector<float> out(2 * 256);
+    std::vector<pitch::TwoVoiceFrame> got(64);
+    long cb_allocs = 0, cb_locks = 0, an_allocs = 0, an_locks = 0;
+    for (std::size_t f = 0, b = 0; f + 256 <= x.size(); f += 256, ++b) {
+        if (b == 300) eng.set_two_voices(pitch::TwoVoiceConfig{}, set);  // swapped in by the analysis, built here
+        long a0 = g_allocs.load(), l0 = g_locks.load();
+        t_watched = true;
+        sys.drive(std::span<const float>(x.data() + f, 256), out, 1, 2);
+        t_watched = false;
+        cb_allocs += g_allocs.load() - a0;
+        cb_locks += g_locks.load() - l0;
+        const bool warm = f > 24000;
+        a0 = g_allocs.load();
+        l0 = g_locks.load();
+        t_watched = warm;
+        eng.analyze_available();
+        t_watched = false;
+        an_allocs += g_allocs.load() - a0;
+        an_locks += g_locks.load() - l0;
+        while (eng.take_readings(std::span<pitch::TwoVoiceFrame>(got)) > 0) {
+        }
+        eng.supervise();  // frees the retired tracker on this (control) thread
+    }
+    CHECK(eng.status().readings > 200);
+    CHECK(cb_allocs == 0);
+    CHECK(cb_locks == 0);
+    CHECK(an_allocs == 0);
+    CHECK(an_locks == 0);
+#endif
+}

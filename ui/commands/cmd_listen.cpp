@@ -17,6 +17,7 @@
 // hears it through a simulated room), and drone removal follows it.
 #include "audio/device.h"
 #include "audio/engine.h"
+#include "pitch/measure/two_voice.h"
 #include "audio/timbre.h"
 #include "pitch/base/error.h"
 #include "ui/session/usage_error.h"
@@ -70,6 +71,7 @@ struct ListenOptions {
     double hop_ms = 5.0;
     std::string lowest;
     std::uint64_t seed = 7;
+    int voices = 1;                // 2: two voices in one input (a double stop, a duet)
 };
 
 // Names of the targets in every octave, built once (not on the hot path).
@@ -117,6 +119,61 @@ std::string json_line(const pitch::Reading& r, const TargetText& tt) {
     return j.str();
 }
 
+// Two voices: each voice, the interval between them against the set, and
+// its beat predicted and measured; with a drone each voice against the root too.
+struct DuoText {
+    const pitch::TargetSet* set = nullptr;
+    double root_hz = 0.0;
+    bool judge_root = false;   // a drone sounds: each voice is also read against it
+    std::string interval(const pitch::TwoVoiceFrame& f) const {
+        if (f.target_index < 0) return {};
+        return pitch::shift_octaves(set->targets[static_cast<std::size_t>(f.target_index)].interval, f.target_octaves).str();
+    }
+    std::string name(const pitch::TwoVoiceFrame& f) const {
+        if (f.target_index < 0) return {};
+        const pitch::Target& t = set->targets[static_cast<std::size_t>(f.target_index)];
+        return pitch::target_name_in_octave(t, f.target_octaves, interval_names());
+    }
+};
+
+std::string json_line(const pitch::TwoVoiceFrame& f, const DuoText& dt) {
+    JsonWriter j;
+    j.begin_object();
+    j.key("t").value(f.t_s, 4);
+    j.key("voices").begin_array();
+    for (const double hz : {f.f_low_hz, f.f_high_hz}) {
+        if (!(hz > 0.0)) continue;
+        j.begin_object().key("f0_hz").value(hz, 4);
+        if (dt.judge_root) {
+            const double c = 1200.0 * std::log2(hz / dt.root_hz);
+            const pitch::TargetMatch m = pitch::nearest_target(*dt.set, c, true);
+            j.key("target").value(pitch::shift_octaves(dt.set->targets[m.index].interval, m.octaves).str());
+            j.key("dev_cents").value(m.dev_cents, 3);
+        }
+        j.end_object();
+    }
+    j.end_array();
+    j.key("confidence").value(f.confidence, 3);
+    if (f.voices == 2) {
+        j.key("ratio").value(f.f_high_hz / f.f_low_hz, 6);
+        j.key("interval_cents").value(f.interval_cents, 3);
+        j.key("target").value(dt.interval(f));
+        const std::string name = dt.name(f);
+        if (name.empty()) j.key("target_name").null();
+        else j.key("target_name").value(name);
+        j.key("dev_cents").value(f.dev_cents, 3);
+        j.key("beat_hz").value(f.predicted_beat_hz, 3);
+        if (f.partial_low > 0) j.key("beat_partials").begin_array().value(f.partial_low).value(f.partial_high).end_array();
+        else j.key("beat_partials").null();
+        j.key("measured_beat_hz").value(f.measured_beat_hz, 3);
+    } else {
+        for (const char* k : {"ratio", "interval_cents", "target", "target_name", "dev_cents", "beat_hz", "beat_partials", "measured_beat_hz"})
+            j.key(k).null();
+    }
+    j.end_object();
+    return j.str();
+}
+
 std::string signed_num(double v, int decimals) {
     char buf[32];
     std::snprintf(buf, sizeof buf, "%+.*f", decimals, v);
@@ -140,6 +197,29 @@ std::string text_line(const pitch::Reading& r, const TargetText& tt, double a4_h
     return s;
 }
 
+// "t 3.20 s  G3-2 + F4-33  7/4 septimal minor seventh  -1.2 c narrow  beating 2.1 Hz (from the partials: 2.0 Hz)"
+std::string text_line(const pitch::TwoVoiceFrame& f, const DuoText& dt, double a4_hz) {
+    char head[32];
+    std::snprintf(head, sizeof head, "t %5.2f s  ", f.t_s);
+    std::string s = head;
+    if (f.voices == 0) return s + "(no pitch)";
+    auto note = [&](double hz) {
+        const pitch::NearestNote n = pitch::hz_to_note(hz, a4_hz);
+        return n.name + signed_num(n.offset_cents, 0);
+    };
+    if (f.voices == 1)
+        return s + note(f.f_low_hz > 0.0 ? f.f_low_hz : f.f_high_hz) + "  one voice heard (a unison or an octave cannot be told apart)";
+    s += note(f.f_low_hz) + " + " + note(f.f_high_hz) + "  " + dt.interval(f);
+    if (const std::string name = dt.name(f); !name.empty()) s += " " + name;
+    s += "  " + signed_num(f.dev_cents, 1) + " c " + (std::fabs(f.dev_cents) < 0.05 ? "just" : f.dev_cents > 0 ? "wide" : "narrow");
+    if (std::isfinite(f.predicted_beat_hz)) {
+        s += "  beating " + pitch::format_trimmed(std::round(f.predicted_beat_hz * 10.0) / 10.0, 1) + " Hz";
+        if (std::isfinite(f.measured_beat_hz))
+            s += " (from the partials: " + pitch::format_trimmed(std::round(f.measured_beat_hz * 10.0) / 10.0, 1) + " Hz)";
+    }
+    return s;
+}
+
 void check_options(const ListenOptions& o) {
     const int sources = (o.demo ? 1 : 0) + (o.input_file.empty() ? 0 : 1) + (o.input_dev.empty() ? 0 : 1);
     if (sources > 1) throw UsageError("choose one input: --demo, --input-file or --input");
@@ -150,6 +230,8 @@ void check_options(const ListenOptions& o) {
         throw Error("--seconds " + pitch::format_trimmed(o.seconds, 3) + ": out of range (0 to 86400)");
     if (o.block < 16 || o.block > 8192) throw Error("--block " + std::to_string(o.block) + ": out of range (16 to 8192 frames)");
     if (!(o.hop_ms >= 1.0 && o.hop_ms <= 50.0)) throw Error("--hop-ms " + pitch::format_trimmed(o.hop_ms, 2) + ": out of range (1 to 50)");
+    if (o.voices != 1 && o.voices != 2) throw Error("--voices " + std::to_string(o.voices) + ": 1 or 2");
+    if (o.voices == 2 && o.demo) throw UsageError("--voices 2 works with --input-file or --input (the demo performer sings one voice)");
     if (o.rate_hz != 0.0 && !(o.rate_hz >= 8000.0 && o.rate_hz <= 192000.0))
         throw Error("--rate " + pitch::format_trimmed(o.rate_hz, 1) + ": out of range (8000 to 192000 Hz)");
 }
@@ -227,7 +309,12 @@ int run_live(const ListenOptions& o, Printing printing) {
     rc.root_hz = root_hz;
     rc.a4_hz = o.a4_hz;
     rc.audible.partials_a = audio::timbre_highest_partial(timbre);
-    engine.set_readings(rc, targets);
+    if (o.voices == 2) {
+        pitch::TwoVoiceConfig tc;  // a 10 ms hop: each frame analyses a 170 ms window
+        engine.set_two_voices(tc, targets);
+    } else {
+        engine.set_readings(rc, targets);
+    }
     engine.set_drone(ds);
     if (o.drone && (play_drone || o.demo)) hearing_caution_once();
 
@@ -247,9 +334,35 @@ int run_live(const ListenOptions& o, Printing printing) {
         ++printed;
     };
 
+    DuoText dt{&targets, root_hz, o.drone};
+    auto emit_duo = [&](const pitch::TwoVoiceFrame& f) {
+        if (o.seconds > 0.0 && f.t_s > o.seconds) return;
+        if (printing == Printing::json) {
+            std::fputs(json_line(f, dt).c_str(), stdout);
+            std::fputc('\n', stdout);
+        } else {
+            if (f.t_s - last_text_t < 0.25) return;
+            last_text_t = f.t_s;
+            std::printf("%s\n", text_line(f, dt, o.a4_hz).c_str());
+        }
+        ++printed;
+    };
+    pitch::TwoVoiceFrame duo_buf[256];
+    auto drain = [&] {
+        pitch::Reading buf[512];
+        if (o.voices == 2) {
+            for (std::size_t k; (k = engine.take_readings(std::span<pitch::TwoVoiceFrame>(duo_buf))) > 0;)
+                for (std::size_t i = 0; i < k; ++i) emit_duo(duo_buf[i]);
+        } else {
+            for (std::size_t k; (k = engine.take_readings(std::span<pitch::Reading>(buf))) > 0;)
+                for (std::size_t i = 0; i < k; ++i) emit(buf[i]);
+        }
+    };
+
     if (o.fast) {
         std::fprintf(stderr, "beatless: analyzing %s as fast as possible\n", what.c_str());
-        engine.run_fast(emit, o.seconds);
+        if (o.voices == 2) engine.run_fast(std::function<void(const pitch::TwoVoiceFrame&)>(emit_duo), o.seconds);
+        else engine.run_fast(std::function<void(const pitch::Reading&)>(emit), o.seconds);
     } else {
         g_interrupted.store(false);
         std::signal(SIGINT, on_sigint);
@@ -266,16 +379,13 @@ int run_live(const ListenOptions& o, Printing printing) {
             const audio::StreamInfo so = engine.output_info();
             std::fprintf(stderr, "beatless: %s\n", stream_text("output", so.output_name, so, so.output_latency_s).c_str());
         }
-        pitch::Reading buf[512];
         while (!g_interrupted.load()) {
-            for (std::size_t k; (k = engine.take_readings(buf)) > 0;)
-                for (std::size_t i = 0; i < k; ++i) emit(buf[i]);
+            drain();
             std::fflush(stdout);
             engine.supervise();
             if (o.seconds > 0.0 && engine.stream_time_s() >= o.seconds + 0.1) break;
             if (engine.status().finished) {
-                for (std::size_t k; (k = engine.take_readings(buf)) > 0;)
-                    for (std::size_t i = 0; i < k; ++i) emit(buf[i]);
+                drain();
                 break;
             }
             std::this_thread::sleep_for(std::chrono::milliseconds(20));
@@ -326,6 +436,7 @@ void register_listen(CLI::App& app, Runner& run) {
     sub->add_option("--block", o->block, "Frames per audio callback to ask for (default 256)");
     sub->add_option("--hop-ms", o->hop_ms, "Time between readings in ms (default 5)");
     sub->add_option("--lowest", o->lowest, kLowestHelp);
+    sub->add_option("--voices", o->voices, "2: two voices in one input (a double stop, a duet): both pitches, the interval, its beat");
     sub->callback([o, &run] { run = [o] { return run_live(*o, Printing::json); }; });
 }
 
