@@ -85,6 +85,34 @@ int pthread_rwlock_wrlock(pthread_rwlock_t* l) {
 
 using namespace beatless;
 
+// Allocations and locks counted around the callbacks (every block) and the
+// analysis (once warm), for the engine tests below.
+struct Counted {
+    long cb_allocs = 0, cb_locks = 0, an_allocs = 0, an_locks = 0;
+    template <class Drive, class Analyze>
+    void block(Drive drive, Analyze analyze, bool warm) {
+        long a0 = g_allocs.load(), l0 = g_locks.load();
+        t_watched = true;
+        drive();
+        t_watched = false;
+        cb_allocs += g_allocs.load() - a0;
+        cb_locks += g_locks.load() - l0;
+        a0 = g_allocs.load();
+        l0 = g_locks.load();
+        t_watched = warm;
+        analyze();
+        t_watched = false;
+        an_allocs += g_allocs.load() - a0;
+        an_locks += g_locks.load() - l0;
+    }
+    void check() const {
+        CHECK(cb_allocs == 0);
+        CHECK(cb_locks == 0);
+        CHECK(an_allocs == 0);
+        CHECK(an_locks == 0);
+    }
+};
+
 TEST_CASE("the counting hooks see an allocation and a lock (so a zero below means something)") {
 #ifdef BEATLESS_SANITIZED
     MESSAGE("skipped under the sanitizers, which interpose the allocator themselves");
@@ -203,7 +231,7 @@ TEST_CASE("ensemble engine: the capture and playback callbacks allocate nothing 
     eng.start(false);
     std::vector<float> out(2 * 256);
     std::vector<pitch::EnsembleReading> got(64);
-    long cb_allocs = 0, cb_locks = 0, an_allocs = 0, an_locks = 0;
+    Counted counted;
     for (std::size_t f = 0, b = 0; (f + 256) * 4 <= take.interleaved.size(); f += 256, ++b) {
         if (b % 50 == 25) {
             audio::DroneSettings x = d;
@@ -215,29 +243,14 @@ TEST_CASE("ensemble engine: the capture and playback callbacks allocate nothing 
             t.analysis.root_hz = 98.5;
             eng.set_ensemble(t);
         }
-        long a0 = g_allocs.load(), l0 = g_locks.load();
-        t_watched = true;
-        sys.drive(std::span<const float>(take.interleaved.data() + f * 4, 256 * 4), out, 4, 2);
-        t_watched = false;
-        cb_allocs += g_allocs.load() - a0;
-        cb_locks += g_locks.load() - l0;
-        const bool warm = f > 24000;
-        a0 = g_allocs.load();
-        l0 = g_locks.load();
-        t_watched = warm;
-        eng.analyze_available();
-        t_watched = false;
-        an_allocs += g_allocs.load() - a0;
-        an_locks += g_locks.load() - l0;
+        counted.block([&] { sys.drive(std::span<const float>(take.interleaved.data() + f * 4, 256 * 4), out, 4, 2); },
+                      [&] { eng.analyze_available(); }, f > 24000);
         while (eng.take_readings(got) > 0) {
         }
         eng.supervise();  // frees the retired analyzer on this (control) thread
     }
     CHECK(eng.status().readings > 500);
-    CHECK(cb_allocs == 0);
-    CHECK(cb_locks == 0);
-    CHECK(an_allocs == 0);
-    CHECK(an_locks == 0);
+    counted.check();
 #endif
 }
 
@@ -266,31 +279,16 @@ TEST_CASE("two voices: the callbacks and the warm analysis allocate nothing and 
     eng.start(false);
     std::vector<float> out(2 * 256);
     std::vector<pitch::TwoVoiceFrame> got(64);
-    long cb_allocs = 0, cb_locks = 0, an_allocs = 0, an_locks = 0;
+    Counted counted;
     for (std::size_t f = 0, b = 0; f + 256 <= x.size(); f += 256, ++b) {
         if (b == 300) eng.set_two_voices(pitch::TwoVoiceConfig{}, set);  // swapped in by the analysis, built here
-        long a0 = g_allocs.load(), l0 = g_locks.load();
-        t_watched = true;
-        sys.drive(std::span<const float>(x.data() + f, 256), out, 1, 2);
-        t_watched = false;
-        cb_allocs += g_allocs.load() - a0;
-        cb_locks += g_locks.load() - l0;
-        const bool warm = f > 24000;
-        a0 = g_allocs.load();
-        l0 = g_locks.load();
-        t_watched = warm;
-        eng.analyze_available();
-        t_watched = false;
-        an_allocs += g_allocs.load() - a0;
-        an_locks += g_locks.load() - l0;
+        counted.block([&] { sys.drive(std::span<const float>(x.data() + f, 256), out, 1, 2); }, [&] { eng.analyze_available(); },
+                      f > 24000);
         while (eng.take_readings(std::span<pitch::TwoVoiceFrame>(got)) > 0) {
         }
         eng.supervise();  // frees the retired tracker on this (control) thread
     }
     CHECK(eng.status().readings > 200);
-    CHECK(cb_allocs == 0);
-    CHECK(cb_locks == 0);
-    CHECK(an_allocs == 0);
-    CHECK(an_locks == 0);
+    counted.check();
 #endif
 }

@@ -74,14 +74,16 @@ struct ListenOptions {
     int voices = 1;                // 2: two voices in one input (a double stop, a duet)
 };
 
-// Names of the targets in every octave, built once (not on the hot path).
+// Names of a reading's target in its octave (a Reading or a TwoVoiceFrame: both carry target_index and target_octaves).
 struct TargetText {
     const pitch::TargetSet* set = nullptr;
-    std::string interval(const pitch::Reading& r) const {
+    template <class R>
+    std::string interval(const R& r) const {
         if (r.target_index < 0) return {};
         return pitch::shift_octaves(set->targets[static_cast<std::size_t>(r.target_index)].interval, r.target_octaves).str();
     }
-    std::string name(const pitch::Reading& r) const {
+    template <class R>
+    std::string name(const R& r) const {
         if (r.target_index < 0) return {};
         const pitch::Target& t = set->targets[static_cast<std::size_t>(r.target_index)];
         return pitch::target_name_in_octave(t, r.target_octaves, interval_names());
@@ -121,19 +123,9 @@ std::string json_line(const pitch::Reading& r, const TargetText& tt) {
 
 // Two voices: each voice, the interval between them against the set, and
 // its beat predicted and measured; with a drone each voice against the root too.
-struct DuoText {
-    const pitch::TargetSet* set = nullptr;
+struct DuoText : TargetText {
     double root_hz = 0.0;
     bool judge_root = false;   // a drone sounds: each voice is also read against it
-    std::string interval(const pitch::TwoVoiceFrame& f) const {
-        if (f.target_index < 0) return {};
-        return pitch::shift_octaves(set->targets[static_cast<std::size_t>(f.target_index)].interval, f.target_octaves).str();
-    }
-    std::string name(const pitch::TwoVoiceFrame& f) const {
-        if (f.target_index < 0) return {};
-        const pitch::Target& t = set->targets[static_cast<std::size_t>(f.target_index)];
-        return pitch::target_name_in_octave(t, f.target_octaves, interval_names());
-    }
 };
 
 std::string json_line(const pitch::TwoVoiceFrame& f, const DuoText& dt) {
@@ -334,7 +326,10 @@ int run_live(const ListenOptions& o, Printing printing) {
         ++printed;
     };
 
-    DuoText dt{&targets, root_hz, o.drone};
+    DuoText dt;
+    dt.set = &targets;
+    dt.root_hz = root_hz;
+    dt.judge_root = o.drone;
     auto emit_duo = [&](const pitch::TwoVoiceFrame& f) {
         if (o.seconds > 0.0 && f.t_s > o.seconds) return;
         if (printing == Printing::json) {
