@@ -1,17 +1,8 @@
-// DemoEnsemble — a simulated vocal group, one microphone per singer, for
-// `beatless ensemble --demo` and the Ensemble screen without hardware.
-//
-// Our demo group, "the Saltmarsh Four", holds a chord in phrases (phrase_s
-// of sound, breath_s of silence). Each singer sings one voice and is off in
-// their own way: the first leans sharp and settles a little sharp, the
-// second sits a shade flat, the third sags flat through each phrase, the
-// fourth is steady; a fifth to eighth singer repeat those habits with other
-// amounts. Each phrase varies the amounts (seeded, so runs repeat). Every
-// voice has a 5-6 Hz vibrato and a vowel-like spectrum ("ah" or "oh"), and
-// every microphone also hears its neighbours at crosstalk_db. The intended
-// centre of each voice is available as truth for tests. A hold mode keeps
-// one endless phrase without vibrato, singer k at hold_dev_cents plus a
-// fixed offset of their own (kHoldOffsetsCents), for snapshots and tests.
+// DemoEnsemble — "the Saltmarsh Four", a simulated vocal group with one microphone per singer, for `beatless
+// ensemble --demo` and the Ensemble screen without hardware; seeded, and each voice's centre is truth for tests.
+// Method: ours: phrases of a held chord, each singer off in their own way, with crosstalk between microphones.
+// The singers' habits and the hold mode: DEVELOPERS.md, "Methods in detail".
+// Thread: the producer or audio thread (render()). Allocates: in the constructor only. Locks: no.
 #pragma once
 
 #include "audio/synth.h"

@@ -1,17 +1,8 @@
-// DemoPerformer — a simulated singer that replaces the microphone (--demo).
-//
-// Our demo performer, "Wren", is an alto who practises a target set against
-// the drone: each note is one target of the set, placed in her range, held
-// for a few seconds. She lands a little sharp or flat (6 to 20 cents), hears
-// it and corrects with a time constant of about half a second to within a
-// few cents, then lets a 5-6 Hz vibrato of ±20-30 cents bloom; between notes
-// she breathes. The tone is harmonic with a vowel-like spectral envelope
-// ("ah": formants near 700, 1200 and 2600 Hz) and a little breath noise.
-// Everything is seeded, so a run is reproducible, and the intended pitch is
-// available as truth for tests. A hold mode keeps one target at a fixed
-// deviation without vibrato (for snapshots and tests). A script replaces the
-// endless round of notes with given notes at given times (a drill's holds):
-// each is sung the usual way (or held, in hold mode), then she is silent.
+// DemoPerformer — "Wren", a simulated alto who replaces the microphone (--demo); seeded, so a run is reproducible,
+// and the intended pitch is available as truth for tests.
+// Method: ours: a harmonic "ah" tone that lands off, corrects, then blooms into vibrato; hold and script modes.
+// Her habits in numbers: DEVELOPERS.md, "Methods in detail".
+// Thread: the audio or producer thread (render()). Allocates: in the constructor only. Locks: no.
 #pragma once
 
 #include "audio/synth.h"

@@ -1,17 +1,8 @@
-// Drone — the live drone: root, optional fifth (3/2) and octave (2/1), a
-// timbre, a level, start and stop, a reference voice, and an output limiter.
-//
-// Built on HarmonicSynth (audio/synth.h): every change of root, timbre,
-// level, start or stop ramps over ramp_s (50 ms), so nothing clicks. The
-// octave is folded into the root's even partials; the fifth is a second
-// synth at 3/2 of the root. The reference voice sounds the current target
-// above the drone for a moment (soft timbre, 50 ms fades) as an ear guide.
-// The limiter has a fixed ceiling (-6 dBFS peak): a 1.5 ms look-ahead peak
-// detector, gain smoothed over the look-ahead, 200 ms release, and a final
-// clamp so no sample ever exceeds the ceiling. The level starts low (-30 dBFS).
-//
-// Settings arrive from any thread through a lock-free Latest<DroneSettings>;
-// render() picks up the newest at the start of each block.
+// Drone — the live drone: root, optional fifth (3/2) and octave (2/1), timbre, level, start and stop, a reference
+// voice, and an output limiter with a fixed -6 dBFS ceiling; it starts low (-30 dBFS) and every change ramps.
+// Method: HarmonicSynth voices (audio/synth.h) and a look-ahead peak limiter. Detail: DEVELOPERS.md.
+// Thread: render() on the audio callback; settings from any thread through a lock-free Latest<DroneSettings>.
+// Allocates: in the constructor only. Locks: no.
 #pragma once
 
 #include "audio/latest.h"

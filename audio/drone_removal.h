@@ -1,25 +1,8 @@
-// DroneCanceller — removes the drone's known partials from the analyzed input.
-//
-// Method: an adaptive noise canceller with sinusoidal references (B. Widrow
-// et al., "Adaptive noise cancelling: principles and applications", Proc.
-// IEEE 63(12), 1692-1716, 1975, section "cancelling periodic interference"),
-// one complex LMS weight per drone partial. The references are the drone's
-// own partials: their exact frequencies, relative amplitudes and level come
-// from the drone the program plays (or, for a recording, from the root it
-// was made at). Each weight settles on the room's response at its partial
-// (delay, gain and filtering all reduce to one complex number per
-// frequency), so the canceller forms a notch of half-bandwidth bandwidth_hz
-// at every partial and leaves the rest of the voice alone. Steps per sample:
-// y = sum_k Re(V_k z_k); e = x - y; V_k += mu e conj(z_k); z_k *= e^{j w_k}
-// with mu = 4 pi bandwidth / rate (time constant 1 / (2 pi bandwidth)).
-// Level and timbre changes rescale the weights at once (V_k = W_k * level *
-// a_k); new frequencies restart the weights with a wider "acquire" notch.
-// The weights learn the room fast while the performer is silent and barely
-// move while they sound (set_voice), so a voice partial that coincides with
-// a drone partial is not absorbed; a voice onset rolls the weights back to
-// before it began, and a new note (new_note) to the last silent moment.
-//
-// All allocation happens in the constructor; process() never allocates.
+// DroneCanceller — removes the drone's known partials from the analyzed input and leaves the voice alone.
+// Method: an adaptive noise canceller with sinusoidal references, one complex LMS weight per drone partial (B. Widrow
+// et al., "Adaptive noise cancelling: principles and applications", Proc. IEEE 63(12), 1692-1716, 1975, section
+// "cancelling periodic interference"). Update, notch and voice guards: DEVELOPERS.md, "Methods in detail".
+// Thread: the analysis thread. Allocates: in the constructor only. Locks: no.
 #pragma once
 
 #include "audio/drone.h"

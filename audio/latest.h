@@ -1,17 +1,8 @@
-// Latest<T> and Recent<T> — lock-free publication of plain data, latest wins.
-//
-// Latest<T> is a triple buffer: the writer fills a back slot and swaps it
-// with the middle slot in one atomic exchange (with a "fresh" bit); the
-// reader swaps the middle slot into its front slot when it is fresh. Neither
-// side ever waits for the other, and the reader always sees a whole value.
-// Recent<T, N> keeps the last N values in a circular array guarded per slot
-// by a sequence number (a seqlock: 2n+1 while value n is written, 2n+2 when
-// done); readers copy and drop a slot that changed under them or holds
-// another value than the one asked for; the writer never waits.
-// T must be trivially copyable (Reading is: plain numbers, no pointers).
-//
-// Thread: publish() from one writer, read() from one reader (Latest) or any
-// number of readers (Recent). Allocates: no. Locks: no.
+// Latest<T> and Recent<T, N> — lock-free publication of plain data (T trivially copyable), latest wins.
+// Method: Latest is a triple buffer, Recent a circular array with a sequence number per slot (a seqlock); neither
+// side ever waits for the other (how, beside each class).
+// Thread: publish() from one writer, read() from one reader (Latest) or any number of readers (Recent).
+// Allocates: no. Locks: no.
 #pragma once
 
 #include <algorithm>
@@ -25,6 +16,9 @@
 
 namespace beatless::audio {
 
+// A triple buffer: the writer fills a back slot and swaps it with the middle slot in one atomic exchange (with a
+// "fresh" bit); the reader swaps the middle slot into its front slot when it is fresh. Neither side ever waits
+// for the other, and the reader always sees a whole value.
 template <class T>
 class Latest {
     static_assert(std::is_trivially_copyable_v<T>);
@@ -58,6 +52,9 @@ private:
     std::atomic<std::uint64_t> count_{0};
 };
 
+// The last N values in a circular array guarded per slot by a sequence number (a seqlock: 2n+1 while value n is
+// written, 2n+2 when done); readers copy and drop a slot that changed under them or holds another value than the
+// one asked for; the writer never waits. T must be trivially copyable (Reading is: plain numbers, no pointers).
 template <class T, std::size_t N>
 class Recent {
     static_assert(std::is_trivially_copyable_v<T>);

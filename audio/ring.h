@@ -1,15 +1,8 @@
-// SpscRing — a lock-free single-producer single-consumer ring of samples.
-//
-// The classic bounded ring with two monotonically increasing 64-bit
-// counters (written by the producer, read by the consumer) and a
-// power-of-two capacity, so positions are counter & mask (L. Lamport,
-// "Specifying concurrent program modules", ACM TOPLAS 5(2), 1983; the
-// acquire/release form of the C++ memory model). write() never blocks and
-// never allocates: what does not fit is dropped and counted (overflow), so
-// the capture callback can use it. read() takes what is there.
-//
-// Thread: write() from one producer (the audio callback), read() from one
-// consumer (the analysis thread). Allocates: only in the constructor. Locks: no.
+// SpscRing — a lock-free single-producer single-consumer ring of samples; what does not fit is dropped and counted.
+// Method: the classic bounded ring, two monotonically increasing 64-bit counters and a power-of-two capacity (L.
+// Lamport, "Specifying concurrent program modules", ACM TOPLAS 5(2), 1983), in C++ acquire/release form.
+// Thread: write() from one producer (the audio callback), read() from one consumer (the analysis thread).
+// Allocates: only in the constructor. Locks: no.
 #pragma once
 
 #include <algorithm>

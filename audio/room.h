@@ -1,11 +1,7 @@
-// SimulatedRoom — what a microphone hears of the loudspeakers, in its simplest form.
-//
-// The drone leaves the loudspeaker, travels (a delay of whole samples), loses or
-// gains level (a gain), and is coloured by the room and the microphone (a
-// one-pole low-pass, y[n] = y[n-1] + a (x[n] - y[n-1]), a = 1 - e^{-2 pi fc / fs},
-// the textbook RC filter). Used by the demo performer's microphone and by
-// the drone-removal tests and benchmark. All allocation happens in the
-// constructor; process() never allocates.
+// SimulatedRoom — what a microphone hears of the loudspeakers, simplest form (demo mic, drone-removal tests, bench).
+// Method: a delay of whole samples, a gain, and the textbook RC one-pole low-pass y[n] = y[n-1] + a (x[n] - y[n-1]),
+// a = 1 - e^{-2 pi fc / fs}, for the colour of the room and the microphone.
+// Thread: one at a time. Allocates: in the constructor only.
 #pragma once
 
 #include <cmath>

@@ -1,13 +1,7 @@
-// HarmonicSynth — additive synthesis of a harmonic tone, safe for real time.
-//
-// Renders sum_k a_k sin(k*phi + theta_k), phi the running phase of f0, with
-// the partials computed from sin/cos of phi by the Chebyshev recurrence
-// (one sincos per sample, two multiply-adds per partial). Every change of
-// f0 (log-frequency glide), partial amplitudes and level ramps over
-// ramp_s; vibrato is a sinusoidal f0 modulation in cents. Partials are
-// faded out between 0.40 and 0.45 of the sample rate, so none ever passes
-// Nyquist, even under vibrato or a glide. The same code renders test tones,
-// practice tracks and the live drone.
+// HarmonicSynth — additive synthesis of a harmonic tone, safe for real time (test tones, practice tracks, the drone).
+// Method: sum_k a_k sin(k phi + theta_k), the partials from sin/cos of phi by the Chebyshev recurrence; every change
+// ramps; partials fade out before Nyquist. Detail: DEVELOPERS.md, "Methods in detail".
+// Thread: one (the audio callback's, or any one offline), setters too. Allocates: in the constructor only. Locks: no.
 #pragma once
 
 #include <cstddef>

@@ -1,14 +1,7 @@
-// Timbres — partial recipes for the drone and practice tones.
-//
-// Our own set, from a pure tone (no partials to beat against, for a calm
-// reference) to a bright many-partial tone in which the beating of any
-// mistuned interval is easy to hear. Amplitudes are normalised so every
-// timbre has the RMS of a unit sine; levels are then set in dBFS.
-//   pure    the fundamental alone
-//   soft    6 partials falling 12 dB per octave
-//   round   12 partials falling about 9 dB per octave
-//   bright  32 partials falling 6 dB per octave (sawtooth-like spectrum)
-//   hollow  odd partials strong, even partials weak (clarinet-like idea)
+// Timbres — our own partial recipes for the drone and practice tones, from a calm pure tone to a bright one in
+// which the beating of any mistuned interval is easy to hear.
+// Method: fixed amplitude tables (the recipes beside Timbre), each normalised to the RMS of a unit sine.
+// Thread: any. Allocates: timbre_partials' vector only (timbre_partials_into is fit for the audio callback).
 #pragma once
 
 #include <cstddef>
@@ -19,6 +12,12 @@
 
 namespace beatless::audio {
 
+// pure    the fundamental alone (no partials to beat against, for a calm reference)
+// soft    6 partials falling 12 dB per octave
+// round   12 partials falling about 9 dB per octave
+// bright  32 partials falling 6 dB per octave (sawtooth-like spectrum)
+// hollow  odd partials strong, even partials weak (clarinet-like idea)
+// Amplitudes are normalised so every timbre has the RMS of a unit sine; levels are then set in dBFS.
 enum class Timbre { pure, soft, round, bright, hollow };
 
 std::vector<double> timbre_partials(Timbre t);     // a_1, a_2, ... with RMS of a unit sine

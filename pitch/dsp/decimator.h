@@ -1,13 +1,8 @@
-// Decimator — integer-factor sample-rate reduction by a linear-phase FIR.
-//
-// The low-pass is a Kaiser-windowed ideal low-pass (J. F. Kaiser, "Nonrecursive
-// digital filter design using the I0-sinh window function", Proc. IEEE ISCAS
-// 1974; design formulas for beta and the length as in A. V. Oppenheim and
-// R. W. Schafer, Discrete-Time Signal Processing, 3rd ed., sec. 7.6.1).
-// Cutoff at half the output rate; passband to 0.4 of the output rate and
-// stopband from 0.6 of it, so whatever aliases lands above the passband.
-// Output m is centred on input sample m * factor (odd length, symmetric
-// taps: no time shift), and is computed only for the outputs kept.
+// Decimator — integer-factor sample-rate reduction by a linear-phase FIR; StreamDecimator feeds it in blocks.
+// Method: a Kaiser-windowed ideal low-pass (J. F. Kaiser, "Nonrecursive digital filter design using the I0-sinh window
+// function", Proc. IEEE ISCAS 1974; beta and length as in A. V. Oppenheim and R. W. Schafer, Discrete-Time Signal
+// Processing, 3rd ed., sec. 7.6.1); band edges and timing beside the class.
+// Thread: one at a time. Allocates: in the constructors only (StreamDecimator: for blocks up to max_block_len).
 #pragma once
 #include <cstdint>
 
@@ -17,6 +12,9 @@
 
 namespace beatless::pitch {
 
+// Cutoff at half the output rate; passband to 0.4 of the output rate and stopband from 0.6 of it, so whatever
+// aliases lands above the passband. Output m is centred on input sample m * factor (odd length, symmetric taps:
+// no time shift), and is computed only for the outputs kept.
 class Decimator {
 public:
     // factor >= 1 (1 passes samples through); stop_db: stopband attenuation.

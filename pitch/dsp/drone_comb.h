@@ -1,16 +1,8 @@
-// DroneComb — removes a steady drone of known root from a recording.
-//
-// A feedforward comb y[n] = x[n] - x[n - D], D = rate / root_hz samples,
-// has a zero on every harmonic of the root (J. O. Smith, Physical Audio
-// Signal Processing, W3K 2010, "Feedforward Comb Filters"), so a steady
-// drone vanishes whatever its timbre. The fractional part of D comes from
-// 4-point (third-order) Lagrange interpolation (T. I. Laakso et al.,
-// "Splitting the unit delay", IEEE Signal Processing Magazine 13(1), 1996).
-// Being linear and time-invariant it keeps any periodic voice periodic with
-// the same period, so a pitch tracker still finds the voice's f0; only the
-// voice's partials that coincide with the drone's harmonics are weakened.
-// Magnitude response: |H(f)| = 2 |sin(pi f D / rate)|. Allocation in the
-// constructor only.
+// DroneComb — removes a steady drone of known root from a recording: y[n] = x[n] - x[n - D], D = rate / root_hz.
+// Method: a feedforward comb (J. O. Smith, Physical Audio Signal Processing, W3K 2010, "Feedforward Comb Filters"),
+// D's fraction by 4-point Lagrange interpolation (T. I. Laakso et al., "Splitting the unit delay", IEEE Signal
+// Processing Magazine 13(1), 1996). Why it keeps the voice: DEVELOPERS.md, "Methods in detail".
+// Thread: one at a time. Allocates: in the constructor only. Locks: no.
 #pragma once
 
 #include <cstddef>

@@ -1,14 +1,7 @@
-// RealFft — a forward real FFT of fixed size (KissFFT, out of place), and
-// the analysis windows the spectral modules share (internal header).
-//
-// KissFFT's real transform of n points (n even) gives n/2 + 1 complex bins;
-// transforming out of place means it never allocates a temporary. Windows:
-// periodic Hann, w[i] = 0.5 - 0.5 cos(2 pi i / n), and the 4-term
-// Blackman-Harris window (F. J. Harris, "On the use of windows for harmonic
-// analysis with the discrete Fourier transform", Proc. IEEE 66(1), 1978:
-// a = 0.35875, 0.48829, 0.14128, 0.01168; side lobes -92 dB).
-//
-// Construction allocates; forward() does not. Thread: one at a time.
+// RealFft — a forward real FFT of fixed size, and the analysis windows the spectral modules share (internal header).
+// Method: KissFFT's real transform, out of place (so it never allocates a temporary); windows from F. J. Harris, "On
+// the use of windows for harmonic analysis with the discrete Fourier transform", Proc. IEEE 66(1), 1978.
+// Thread: one at a time. Allocates: in the constructor (and make_window's result) only.
 #pragma once
 
 #include <complex>
@@ -27,7 +20,7 @@ public:
     RealFft& operator=(const RealFft&) = delete;
 
     std::size_t size() const noexcept { return n_; }
-    // in: n floats; out: n/2 + 1 bins. Allocates: no.
+    // in: n floats (n even); out: n/2 + 1 complex bins. Allocates: no.
     void forward(const float* in, std::complex<float>* out) noexcept;
 
     // Smallest size >= n that KissFFT transforms quickly (even, factors 2, 3, 5).
@@ -38,6 +31,8 @@ private:
     kiss_fftr_state* cfg_ = nullptr;
 };
 
+// hann: periodic Hann, w[i] = 0.5 - 0.5 cos(2 pi i / n). blackman_harris: the 4-term Blackman-Harris window,
+// a = 0.35875, 0.48829, 0.14128, 0.01168, side lobes -92 dB (Harris 1978).
 enum class WindowKind { hann, blackman_harris };
 
 // Sample i of the periodic window of length n. Allocates: no.

@@ -1,19 +1,7 @@
-// VibratoCentre — streaming centre pitch of a held note, averaged over whole
-// vibrato cycles, with the vibrato's rate and depth and a steadiness figure.
-//
-// Method (pitch/dsp/whole_cycles.h): over the last window_s of voiced frames, remove
-// the least-squares line, find upward zero crossings of the residual with
-// hysteresis, and accept a run of crossings whose periods fit a vibrato
-// (min_rate_hz..max_rate_hz, periods within 1.5x of each other). The centre
-// is the time average of the pitch between the first and last crossing: a
-// whole number of cycles, so the oscillation cancels (the whole-period mean
-// of any periodic track equals its constant term). With no such run the
-// centre falls back to the plain mean of the last fallback_s. Steadiness is
-// the standard deviation of the pitch over the last steady_s (vibrato
-// included), as Reading::steadiness_cents promises; centre_spread_cents is
-// the standard deviation of the centre readings over the same time.
-//
-// All allocation happens in the constructor; push() never allocates.
+// VibratoCentre — streaming centre pitch of a held note over whole vibrato cycles, with rate, depth and steadiness.
+// Method: the whole-period mean (over whole cycles a periodic track averages to its constant term), the cycles found
+// by pitch/dsp/whole_cycles.h; a plain mean when there is no vibrato. Steps: DEVELOPERS.md, "Methods in detail".
+// Thread: the analysis thread, one at a time. Allocates: in the constructor only. Locks: no.
 #pragma once
 
 #include <cstddef>

@@ -1,18 +1,6 @@
-// Cycles — whole cycles of a slow oscillation in a sampled track.
-//
-// Finds the cycles of a quasi-periodic track x(t) (a vibrato in cents, the
-// amplitude envelope of two beating partials): (1) subtract the mean (or,
-// when asked, the least-squares line, which lets a slow drift cross but
-// bends the periods a little); (2) mark upward
-// crossings of the residual through zero with hysteresis (the residual must
-// have been below -h and then reach +h; the crossing time is interpolated
-// linearly between the two samples that straddle zero); (3) accept the run
-// of crossings when every period lies in the allowed range and the longest
-// is at most max_period_ratio times the shortest. Any constant level repeats
-// once per period, so the span between the first and last crossing holds a
-// whole number of cycles even when the mean misses the true centre; averaging
-// over that span cancels the oscillation (the standard whole-period mean).
-//
+// WholeCycles — whole cycles of a slow oscillation in a sampled track (a vibrato in cents, a beat envelope).
+// Method: upward zero crossings of the residual with hysteresis, accepted when the periods agree; the mean over whole
+// cycles is the standard whole-period mean. Steps: DEVELOPERS.md, "Methods in detail".
 // Thread: any. Allocates: no. Locks: no.
 #pragma once
 

@@ -1,24 +1,8 @@
-// YinTracker — streaming fundamental-frequency tracking (YIN, refined).
-//
-// Implements YIN: A. de Cheveigné and H. Kawahara, "YIN, a fundamental
-// frequency estimator for speech and music", J. Acoust. Soc. Am. 111(4),
-// 1917-1930 (2002): (1) difference function, computed through the FFT
-// (KissFFT, real, out of place); (2) cumulative mean normalised difference;
-// (3) absolute threshold; (4) parabolic interpolation; (5) best local
-// estimate. Steps 2-5 run on a copy decimated to about 5 kHz
-// (pitch/dsp/decimator.h, pitch/dsp/yin_coarse.h). A refinement stage then measures
-// steady tones far more finely than the parabola allows: the lag of a period
-// multiple near 2/3 of the span, at the full rate (pitch/dsp/yin_refine.h).
-// Vibrato: a measured lag averages f0 over a kernel of known second moment
-// m2; with f0 locally quadratic the estimate is biased by m2/2 times the
-// curvature of log f0, which is estimated across neighbouring frames and
-// removed (kernel-smoothing bias, M. P. Wand and M. C. Jones, Kernel
-// Smoothing, Chapman & Hall 1995, sec. 2.5).
-//
-// All allocation happens in the constructor; push() and pull() never
-// allocate. push() runs the analysis; frames wait in a queue sized for
-// max_block_len_samples of audio (older frames are dropped and counted if
-// pull() falls further behind).
+// YinTracker — streaming fundamental-frequency tracking: YIN on a decimated copy, refined at the full rate.
+// Method: A. de Cheveigné and H. Kawahara, "YIN, a fundamental frequency estimator for speech and music", J. Acoust.
+// Soc. Am. 111(4), 1917-1930 (2002); the vibrato bias removed as a kernel-smoothing bias (M. P. Wand and M. C. Jones,
+// Kernel Smoothing, Chapman & Hall 1995, sec. 2.5). Stages: DEVELOPERS.md, "Methods in detail".
+// Thread: one at a time (the analysis thread). Allocates: in the constructor only. Locks: no.
 #pragma once
 
 #include <cstddef>
@@ -59,7 +43,9 @@ public:
     // and counted in bad_samples(). Thread: one thread at a time. Allocates: no.
     void push(std::span<const float> samples) noexcept;
 
-    // Produces the next frame when enough audio is buffered. Allocates: no.
+    // Produces the next frame when enough audio is buffered. push() runs the analysis; frames wait in a queue
+    // sized for max_block_len_samples of audio, and older frames are dropped (and counted in dropped_frames())
+    // if pull() falls further behind. Allocates: no.
     bool pull(PitchFrame& out) noexcept;
 
     void reset() noexcept;                   // forget all audio, t restarts at 0

@@ -1,15 +1,7 @@
-// YIN coarse stage (internal): the difference function through the FFT and
-// the published steps on it.
-//
-// A. de Cheveigné and H. Kawahara, "YIN, a fundamental frequency estimator
-// for speech and music", J. Acoust. Soc. Am. 111(4), 1917-1930 (2002):
-// step 2, d(tau) = sum_j (x_j - x_{j+tau})^2 = E0 + E(tau) - 2 r(tau), with the
-// cross term r from the FFT; step 3, cumulative mean normalised difference;
-// step 4, absolute threshold; step 5, parabolic interpolation on d.
-// BlockCorrelator keeps r for a sliding window of k blocks of P samples: each
-// new block costs one forward real FFT (KissFFT, out of place) and each window
-// one inverse FFT; a block's lagged segment (the next R blocks) is assembled
-// in the frequency domain from the blocks' own spectra by phase shifts.
+// YIN coarse stage (internal): the difference function through the FFT, and YIN's steps 2-5 on it.
+// Method: A. de Cheveigné and H. Kawahara, "YIN, a fundamental frequency estimator for speech and music", J. Acoust.
+// Soc. Am. 111(4), 1917-1930 (2002); the cross term by KissFFT (real, out of place), see BlockCorrelator.
+// Thread: one at a time (the tracker's). Allocates: in the constructor only.
 #pragma once
 
 #include <kiss_fft.h>
@@ -21,6 +13,9 @@
 
 namespace beatless::pitch {
 
+// Keeps the cross term r of YIN's difference function for a sliding window of k blocks of P samples: each new
+// block costs one forward real FFT (KissFFT, out of place) and each window one inverse FFT; a block's lagged
+// segment (the next R blocks) is assembled in the frequency domain from the blocks' own spectra by phase shifts.
 class BlockCorrelator {
 public:
     // block_len P >= 1, blocks_per_window k >= 1, lags 0 .. max_lag.
@@ -63,6 +58,7 @@ private:
 // Smallest even n >= min_len whose half has no prime factor above 5 (fast for KissFFT).
 std::size_t fast_real_fft_len(std::size_t min_len);
 
+// YIN step 2, d(tau) = sum_j (y_j - y_{j+tau})^2, with the cross term r from the FFT:
 // d[tau] = E0 + E(tau) - 2 r[tau] for tau = 0 .. max_lag, E0 = sum_{j<window} y[j]^2,
 // E(tau) = sum_{j<window} y[j+tau]^2 (energies in double, d clamped at 0,
 // d[0] = 0). y must hold window + max_lag samples. Allocates: no.

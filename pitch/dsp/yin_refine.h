@@ -1,19 +1,7 @@
-// Lag refinement (internal): the minimum of the difference function near a
-// multiple of the period, located far below one sample.
-//
-// The method is ours. For a periodic signal of period T, d(tau) =
-// sum_n w[n] (x[n] - x[n + tau])^2 is exactly zero at tau = K T for every K,
-// so measuring the lag near K T and dividing by K divides any interpolation
-// error by K, while the variance in white noise stays close to the
-// Cramer-Rao bound when K T is about 2/3 of the span (the window w the rest).
-// Steps: (1) d at the integer lags j0 - S - M .. j0 + S + M directly (the
-// difference form, no cancellation; w a biweight (1 - u^2)^2, smooth so the
-// energy terms of d have no fast ripple); (2) the integer minimum within
-// j0 +- S (re-centred once if it lies outside); (3) Newton's method on the
-// derivative of d interpolated by a smooth, symmetric kernel (a Gaussian,
-// sigma = 1 lag, tapered to +-M lags and normalised to sum to one at every
-// offset). A symmetric kernel leaves a symmetric minimum where it is, and it
-// damps the fast noise-times-noise part of d.
+// LagRefiner (internal) — the minimum of the difference function near a multiple of the period, far below one sample.
+// Method: ours: measure the lag near K periods and divide by K (the interpolation error is divided by K); Newton's
+// method on d interpolated by a tapered Gaussian kernel. Steps and reasoning: DEVELOPERS.md, "Methods in detail".
+// Thread: one at a time (the tracker's). Allocates: in the constructor only.
 #pragma once
 
 #include <cstddef>

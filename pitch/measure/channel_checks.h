@@ -1,18 +1,8 @@
-// ChannelChecks — which input channels of an ensemble are silent, and which
-// two carry the same voice (crosstalk, a split cable, a microphone turned to
-// the neighbour).
-//
-// Silent: a channel whose level stays under silence_dbfs for silent_s while
-// another channel sounds (a resting group is not a fault). Same voice: over
-// the last window_s, two channels are both voiced in most frames, their
-// pitches agree to within max_rms_cents (root mean square of the frame-by-
-// frame difference in cents), and their pitch movements are the same motion
-// (Pearson correlation of the two cents tracks above min_correlation when
-// either moves by more than still_cents): two people never share a vibrato.
-// The quieter channel of such a pair is the copy (within equal_db both are).
-// Decisions hold with hysteresis (release_rms_cents, release_overlap).
-//
-// All allocation happens in the constructor; push() never allocates.
+// ChannelChecks — which input channels of an ensemble are silent, and which two carry the same voice (crosstalk,
+// a split cable, a microphone turned to the neighbour).
+// Method: ours: levels, the RMS difference of two cents tracks and the Pearson correlation of their motion (two
+// people never share a vibrato), with hysteresis. Rules: DEVELOPERS.md, "Methods in detail".
+// Thread: the analysis thread (push()). Allocates: in the constructor only.
 #pragma once
 
 #include <cstddef>

@@ -1,12 +1,7 @@
-// DecimatedTrace — a pitch trace of any length in a fixed number of points.
-//
-// Frames (time, cents) fall into buckets of bucket_s; each bucket keeps the
-// mean, minimum and maximum of its voiced frames. When max_points buckets
-// are full, neighbouring pairs merge and the bucket doubles, so a two-hour
-// take costs the same memory as a two-minute one (at most max_points
-// buckets, always at least max_points / 2 once the buffer has filled) and
-// the trace keeps an even time resolution over the whole file. Plain
-// bookkeeping: no paper. Allocation in the constructor only.
+// DecimatedTrace — a pitch trace of any length in a fixed number of points, at an even time resolution.
+// Method: plain bookkeeping, no paper: buckets keep the mean, min and max of their voiced frames; when max_points are
+// full, neighbours merge and the bucket doubles (a two-hour take costs the memory of a two-minute one).
+// Thread: one at a time. Allocates: in the constructor only; between max_points / 2 and max_points buckets once full.
 #pragma once
 
 #include <cstddef>

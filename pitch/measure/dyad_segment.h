@@ -1,16 +1,7 @@
-// DyadSegmenter — held double stops (dyads) in the frames of two voices.
-//
-// Fed TwoVoiceTracker frames (pitch/measure/two_voice.h) in time order, it emits
-// each held interval as it ends, the way NoteSegmenter (pitch/measure/segment.h)
-// does for one voice: a dyad starts at the first two-voice frame, ends at a
-// gap longer than max_gap_s, or splits where either voice's trailing mean
-// leaves the dyad's level (its mean so far) by more than change_cents for
-// change_s; short dyads are dropped. Per dyad, over the frames whose
-// analysis window lies inside it: both f0s, the interval's mean and
-// spread, the nearest target and deviation, the beat rate the f0s
-// predict, |q f_high - p f_low| (Helmholtz; pitch/theory/beats.h), and the rate
-// measured from the partials.
-// Memory is bounded by max_dyad_s; push() never allocates.
+// DyadSegmenter — held double stops (dyads) in the frames of two voices (pitch/measure/two_voice.h), as each ends.
+// Method: NoteSegmenter's rules (pitch/measure/segment.h) for two voices; the beat rate the f0s predict, |q f_high -
+// p f_low| (Helmholtz; pitch/theory/beats.h), beside the one measured. Rules: DEVELOPERS.md, "Methods in detail".
+// Thread: one at a time. Allocates: in the constructor only; memory is bounded by max_dyad_s.
 #pragma once
 
 #include "pitch/theory/beats.h"

@@ -1,20 +1,7 @@
-// Ensemble analysis — each player's deviation from their voice of a just
-// chord, under the three references a director chooses from.
-//
-// Each player sings one voice of the chord (pitch/theory/chord.h), in whatever
-// octave suits them. Per player, a ReadingMaker (pitch/measure/reading_maker.h) with that
-// voice as its only target, octave-equivalent, gives the vibrato centre and
-// the deviation against the fixed root (the drone). The centres, folded into
-// the chord's octave, give the three reference roots of pitch/theory/chord.h (fixed
-// root, sounding bass, least-squares best fit; doubled voices count once per
-// player), and a player's deviation under reference R is
-// dev_fixed - 1200 log2(R / R_fixed). Players on a silent channel, carrying
-// another channel's voice (pitch/measure/channel_checks.h), or singing another note
-// (more than off_voice_cents from the group's median deviation) are left out of the
-// references; a player on another note is told which voice they sit near. For every two players: the coinciding partials of their just
-// interval and the beat rate |N f_low - D f_high| at their centres
-// (Helmholtz 1863, ch. VIII; pitch/theory/beats.h).
-//
+// EnsembleAnalyzer — each player's deviation from their voice of a just chord, under the three reference roots.
+// Method: a ReadingMaker per player (pitch/measure/reading_maker.h), the references of pitch/theory/chord.h, pair beat
+// rates |N f_low - D f_high| (Helmholtz 1863, ch. VIII; pitch/theory/beats.h). Rules: DEVELOPERS.md.
+// Thread: the analysis thread (process()). Allocates: in the constructor only. Locks: no.
 // Index: 1 Setup types · 2 Readings (plain data) · 3 EnsembleAnalyzer.
 #pragma once
 
@@ -35,7 +22,7 @@
 namespace beatless::pitch {
 
 // ---------------------------------------------------------------------------
-// 1 Setup types
+// [SECTION] Setup types
 // ---------------------------------------------------------------------------
 
 constexpr std::size_t kMaxPlayers = 8;
@@ -75,7 +62,7 @@ struct EnsembleConfig {
 void check_players(const Chord& chord, std::span<const Player> players, int channels_available);
 
 // ---------------------------------------------------------------------------
-// 2 Readings (plain data, copied between threads)
+// [SECTION] Readings (plain data, copied between threads)
 // ---------------------------------------------------------------------------
 
 enum class PlayerState : std::uint8_t {
@@ -134,7 +121,7 @@ struct EnsembleReading {
 };
 
 // ---------------------------------------------------------------------------
-// 3 EnsembleAnalyzer
+// [SECTION] EnsembleAnalyzer
 // ---------------------------------------------------------------------------
 
 class EnsembleAnalyzer {

@@ -1,19 +1,7 @@
-// ReadingMaker — turns tracker frames into readings against the root.
-//
-// For each PitchFrame (pitch/dsp/yin.h): the ratio f0 / root and its cents
-// (1200 log2, Ellis 1885); the vibrato centre over whole cycles and the
-// steadiness (pitch/dsp/vibrato.h); the nearest target of the set, chosen by the
-// centre once there is one (so a wide vibrato does not flicker between close
-// targets), with octave equivalence (pitch/theory/targets.h); the deviation in
-// cents, + sharp; the coinciding partial pair of the target, shifted by the
-// matched octaves, and its beat rate |q f_voice - p f_root| (Helmholtz, see
-// pitch/theory/beats.h); irrational targets (600c) beat like the nearest simple
-// ratio; the audible pair (pitch/theory/beats.h, audible_pair) in heard_*; the offset from 12-TET for the A4 reference (MIDI 69 = A4).
-// A new note (restarting the centre) is a jump of more than jump_cents
-// between frames, or the pitch held away from the centre by more than the
-// vibrato's swing explains (new_note_cents + 1.2 x depth) for a few frames.
-//
-// All allocation happens in the constructor; make() never allocates.
+// ReadingMaker — turns tracker frames (pitch/dsp/yin.h) into readings against the root (pitch/measure/reading.h).
+// Method: cents 1200 log2 (Ellis 1885); the vibrato centre (pitch/dsp/vibrato.h) chooses the nearest target; beat rates
+// |q f_voice - p f_root| (Helmholtz; pitch/theory/beats.h). What a reading holds: DEVELOPERS.md, "Methods in detail".
+// Thread: the analysis thread (make()). Allocates: in the constructor only. Locks: no.
 #pragma once
 
 #include "pitch/theory/beats.h"

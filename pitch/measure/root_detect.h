@@ -1,11 +1,8 @@
 // RootDetector — the steady drone or pedal tone under a whole recording.
-//
-// Long Hann-windowed FFT frames (KissFFT, out of place) are accumulated per
-// bin (power, cross spectrum of consecutive frames, peak counts) in constant
-// memory; harmonic summation (A. Klapuri, ISMIR 2006) over the steady
-// spectrum picks candidates; phase-vocoder frequencies (Flanagan & Golden,
-// Bell Syst. Tech. J. 45, 1966) of the agreeing harmonics give the root.
-// Steps in root_detect.cpp. Allocation in the constructor only.
+// Method: long Hann-windowed FFT frames (KissFFT, out of place) accumulated per bin; harmonic summation (A. Klapuri,
+// ISMIR 2006) picks candidates; phase-vocoder frequencies (Flanagan & Golden, Bell Syst. Tech. J. 45, 1966) of the
+// agreeing harmonics give the root. Steps in root_detect.cpp.
+// Thread: one at a time. Allocates: in the constructor only; memory is constant whatever the length.
 #pragma once
 
 #include "pitch/dsp/real_fft.h"
@@ -50,9 +47,6 @@ struct RootEstimate {
     double sounding_s = 0.0;         // time analyzed above silence
     bool found() const { return status == RootStatus::found; }
 };
-
-// "root 110.002 Hz, confidence 0.97 (8 harmonics)" or why there is none.
-
 
 class RootDetector {
 public:

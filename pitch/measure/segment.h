@@ -1,11 +1,8 @@
-// NoteSegmenter — held notes of the performer's line, measured against the root.
-//
-// Fed tracker frames (pitch/dsp/yin.h) one by one, it emits each note as it
-// ends: onsets and offsets at silences or legato steps, drone frames and
-// short notes skipped, then per note the vibrato centre (pitch/dsp/vibrato.h),
-// nearest target (pitch/theory/targets.h), deviation, spread, settle time and the
-// beat rate against the root (Helmholtz; pitch/theory/beats.h). Steps in
-// segment.cpp. Memory is bounded by max_note_s; push() never allocates.
+// NoteSegmenter — held notes of the performer's line, measured against the root, each emitted as it ends.
+// Method: onsets and offsets at silences or legato steps, drone frames and short notes skipped; per note the vibrato
+// centre (pitch/dsp/vibrato.h), nearest target (pitch/theory/targets.h), deviation, spread, settle time and the beat
+// rate against the root (Helmholtz; pitch/theory/beats.h). Steps in segment.cpp.
+// Thread: one at a time. Allocates: in the constructor only; memory is bounded by max_note_s.
 #pragma once
 
 #include "pitch/theory/beats.h"
@@ -128,9 +125,5 @@ private:
     struct Acc { int n = 0; double mean = 0.0, m2 = 0.0, abs_sum = 0.0; };
     std::vector<Acc> acc_;
 };
-
-// "10/7 averages 6.0 cents flat (3 notes, spread 1.2 cents)"; `name` is the
-// target's text, e.g. Interval::str() or a name of the trade.
-
 
 }  // namespace beatless::pitch

@@ -1,12 +1,8 @@
-// TwoVoiceTracker — both fundamentals of two simultaneous harmonic voices
-// from one microphone (double stops, two singers, a voice over a bass line),
-// their interval's nearest just target and the beat of the coinciding partials.
-//
-// Method: harmonic-amplitude summation with iterative estimation and
-// cancellation, A. Klapuri, "Multiple fundamental frequency estimation by
-// summing harmonic amplitudes", Proc. ISMIR 2006, pp. 216-221, on
-// phase-vocoder peak frequencies, refined per voice by weighted least
-// squares; steps in two_voice.cpp. Allocation in the constructor only.
+// TwoVoiceTracker — both fundamentals of two simultaneous harmonic voices from one microphone (double stops, two
+// singers, a voice over a bass line), their interval's nearest just target and the beat of the coinciding partials.
+// Method: A. Klapuri, "Multiple fundamental frequency estimation by summing harmonic amplitudes", Proc. ISMIR 2006,
+// pp. 216-221 (iterative estimation and cancellation), on phase-vocoder peaks; per voice weighted least squares.
+// Thread: one at a time. Allocates: in the constructor only. Steps in two_voice.cpp.
 #pragma once
 
 #include "pitch/theory/targets.h"

@@ -1,15 +1,8 @@
-// Beats — beat rates of coinciding partials between two harmonic tones.
-//
-// Two harmonic tones a and b with f_b / f_a near the just ratio p/q (lowest
-// terms) share a partial: the p-th partial of a and the q-th partial of b
-// both lie near p * f_a. When the interval is mistuned they beat at the
-// difference of the two partials' frequencies, |q * f_b - p * f_a| Hz
-// (Helmholtz, On the Sensations of Tone, 1863/1885, ch. VIII). Other
-// partial pairs (m, n) with m * f_a close to n * f_b beat too; near_pairs
-// lists them. A mistuning of d cents makes the coinciding pair beat at
-// p * f_a * |2^(d/1200) - 1| Hz. audible_pair decides which pair a listener
-// hears for a given interval and timbre (the rule is beside it and in
-// DEVELOPERS.md); every beat rate the program quotes comes from it.
+// Beats — beat rates of coinciding partials between two harmonic tones, and the pair a listener hears.
+// Method: with f_b / f_a near p/q (lowest terms), partial p of a and partial q of b both lie near p f_a and beat at
+// |q f_b - p f_a| Hz (Helmholtz, On the Sensations of Tone, 1863/1885, ch. VIII). Every beat rate the program
+// quotes comes from audible_pair (its rule beside it and in DEVELOPERS.md).
+// Thread: any. Allocates: only near_pairs' list.
 #pragma once
 
 #include "pitch/theory/interval.h"
@@ -34,10 +27,12 @@ struct PartialPair {
 PartialPair coinciding_pair(double f_a_hz, double f_b_hz, const Ratio& target);
 
 // Every pair (m, n), 1 <= m, n <= max_harmonic, whose partials lie within
-// within_hz of each other, sorted by m + n (lowest partials first).
+// within_hz of each other, sorted by m + n (lowest partials first): besides
+// the coinciding pair, these beat too.
 std::vector<PartialPair> near_pairs(double f_a_hz, double f_b_hz, int max_harmonic, double within_hz);
 
-// Beat rate of the coinciding pair when b sits dev_cents off the ratio above a.
+// Beat rate of the coinciding pair when b sits dev_cents off the ratio above a:
+// p * f_a * |2^(dev_cents/1200) - 1| Hz.
 double beat_rate_at(double f_a_hz, const Ratio& target, double dev_cents);
 
 // The simple ratio (terms <= max_term) nearest to `cents`, ties to the lower

@@ -1,14 +1,7 @@
-// Chord — a just chord as exact ratios, its chart, and where players stand.
-//
-// A chord is a list of voices, each an exact ratio above the chord root,
-// held as harmonic numbers ("terms") of one common fundamental: 4:5:6:7 is
-// the 4th to 7th harmonics, and "1/1 5/4 3/2" is 4:5:6 with the root at
-// term 4. The chart gives per voice the frequency, the nearest 12-TET note
-// and the cents from it (what a player bends by from their usual fingering),
-// and for every two voices the coinciding partials that beat when one is off
-// (Helmholtz 1863, ch. VIII; pitch/theory/beats.h). Reference modes measure each
-// player against a fixed root, the sounding bass, or the least-squares root.
-//
+// Chord — a just chord as exact ratios, its chart, and where players stand against a reference root.
+// Method: voices as harmonic numbers of one fundamental; coinciding partials that beat when a voice is off (Helmholtz
+// 1863, ch. VIII; pitch/theory/beats.h); the least-squares root derived in section 3.
+// Thread: any; pure functions. Allocates: the values it returns (section 3: no).
 // Index: 1 Chord and parsing · 2 Chart · 3 Reference roots and deviations.
 #pragma once
 
@@ -25,12 +18,14 @@
 namespace beatless::pitch {
 
 // ---------------------------------------------------------------------------
-// 1 Chord and parsing
+// [SECTION] Chord and parsing
 // ---------------------------------------------------------------------------
 
 constexpr std::size_t kMaxChordVoices = 16;
 constexpr std::int64_t kMaxChordTerm = 1'000'000;  // largest term after common factors are removed
 
+// A list of voices, each an exact ratio above the chord root, held as harmonic numbers ("terms") of one common
+// fundamental: 4:5:6:7 is the 4th to 7th harmonics, and "1/1 5/4 3/2" is 4:5:6 with the root at term 4.
 class Chord {
 public:
     Chord() = default;  // empty; only useful as a placeholder
@@ -64,7 +59,7 @@ private:
 Chord parse_chord(std::string_view text);
 
 // ---------------------------------------------------------------------------
-// 2 Chart
+// [SECTION] Chart
 // ---------------------------------------------------------------------------
 
 struct ChartConfig {
@@ -104,13 +99,15 @@ struct ChordChart {
     std::vector<VoiceBeat> beats;        // every two voices, (0,1), (0,2) ... (1,2) ...
 };
 
+// Per voice the frequency, the nearest 12-TET note and the cents from it (what a player bends by from their
+// usual fingering), and for every two voices the coinciding partials that beat when one is off.
 ChordChart chord_chart(const Chord& chord, double root_hz, const ChartConfig& config = {});
 
 // Slope of a coinciding pair's beat rate: q * f_b * ln 2 / 1200 Hz per cent.
 double beat_hz_per_cent(const PartialPair& pair);
 
 // ---------------------------------------------------------------------------
-// 3 Reference roots and deviations (for the ensemble view)
+// [SECTION] Reference roots and deviations (for the ensemble view)
 // ---------------------------------------------------------------------------
 //
 // Each player i sounds f_i against a just target t_i cents above the root R;

@@ -1,14 +1,7 @@
-// Interval — a target interval above (or below) the root, and its facts.
-//
-// Most intervals are exact ratios (7/5); a few targets of practice are
-// irrational, such as the equal-tempered tritone, and are given in cents
-// ("600c"). parse_interval accepts "7/5", "7:5", "3/2*5/4", "600c", "-35.5c"
-// and products of the two ("3/2*600c" is 1301.955c). For a ratio p/q:
-//   cents        = 1200 * log2(p/q)                  (Ellis's cent, 1885)
-//   prime limit  = largest prime factor of p*q
-//   odd limit    = max(odd part of p, odd part of q)
-//   Tenney height = log2(p*q)
-//   12-TET step  = nearest multiple of 100 cents, and the offset from it
+// Interval — a target interval above (or below) the root: an exact ratio (7/5) or, for irrational targets of
+// practice such as the equal-tempered tritone, cents ("600c"); and its facts.
+// Method: cents = 1200 log2(p/q) (Ellis's cent, 1885); limits, Tenney height and 12-TET step beside IntervalFacts.
+// Thread: any; pure functions. Allocates: the strings it returns.
 #pragma once
 
 #include "pitch/theory/ratio.h"
@@ -42,6 +35,7 @@ private:
     double cents_ = 0.0;
 };
 
+// Accepts "7/5", "7:5", "3/2*5/4", "600c", "-35.5c" and products of the two ("3/2*600c" is 1301.955c).
 Interval parse_interval(std::string_view text);     // throws Error naming the text
 Interval operator*(const Interval& a, const Interval& b);
 
@@ -67,6 +61,9 @@ struct EtNearest {
 };
 EtNearest nearest_et_step(double cents);
 
+// For a ratio p/q: cents = 1200 log2(p/q) (Ellis's cent, 1885); prime limit = largest prime factor of p*q;
+// odd limit = max(odd part of p, odd part of q); Tenney height = log2(p*q); 12-TET step = the nearest multiple
+// of 100 cents, and the offset from it.
 struct IntervalFacts {
     std::string text;                      // canonical "7/5" or "600c"
     double cents = 0.0;

@@ -1,12 +1,7 @@
 // Notes — scientific pitch notation and frequencies for any A4 reference.
-//
-// Scientific pitch notation (Acoustical Society of America, 1939): C4 is
-// middle C, octave numbers change at C, A4 is the tuning reference (440 Hz
-// by ISO 16:1975). MIDI note 69 is A4, and 12-tone equal temperament
-// spaces notes by 2^(1/12):  f = a4_hz * 2^((midi - 69) / 12).
-// Note names accept a letter A-G, any number of '#' or 'b' (also the
-// Unicode sharp and flat signs), and an octave from -1 to 10: "C4", "F#3",
-// "Bb2", "C##5".
+// Method: scientific pitch notation (Acoustical Society of America, 1939: C4 is middle C, octave numbers change at C)
+// and 12-tone equal temperament, f = a4_hz * 2^((midi - 69) / 12), MIDI 69 = A4 (440 Hz by ISO 16:1975).
+// Thread: any; pure functions. Allocates: the strings it returns.
 #pragma once
 
 #include <string>
@@ -19,7 +14,8 @@ constexpr double kDefaultA4Hz = 440.0;  // ISO 16:1975
 double midi_to_hz(double midi, double a4_hz = kDefaultA4Hz);
 double hz_to_midi(double freq_hz, double a4_hz = kDefaultA4Hz);
 
-// "C4" -> MIDI 60; throws Error naming the text when it is not a note.
+// "C4" -> MIDI 60; throws Error naming the text when it is not a note. A name is a letter A-G, any number
+// of '#' or 'b' (also the Unicode sharp and flat signs), and an octave from -1 to 10: "C4", "F#3", "Bb2", "C##5".
 int note_to_midi(std::string_view name);
 double note_to_hz(std::string_view name, double a4_hz = kDefaultA4Hz);
 

@@ -1,14 +1,7 @@
-// Progression — Roman-numeral progressions as just chords, and comma drift.
-//
-// A progression is a list of chords, each an exact chord root above the
-// key's tonic and a just chord on that root (pitch/theory/chord.h). Roman numerals
-// map to 5-limit just chords by the tables below; an explicit chord is
-// written ROOT:TERMS, e.g. 5/3:10:12:15 (A minor above C). Two rules tune it:
-//   fixed root    every chord root sits at its ratio from the fixed tonic;
-//   common tones  each chord is moved as a whole so that a tone it shares
-//                 with the chord before keeps its exact pitch.
-// The second drifts: I vi ii V I ends a syntonic comma (81/80) flat.
-//
+// Progression — Roman-numeral progressions as just chords (pitch/theory/chord.h), and comma drift.
+// Method: 5-limit just chords on the degrees of the just major and minor scales (the tables below), tuned by the
+// fixed-root or the common-tones rule; the second drifts: I vi ii V I ends a syntonic comma (81/80) flat.
+// Thread: any; pure functions. Allocates: the values it returns.
 // Index: 1 Keys and tables · 2 Parsing · 3 Tuning and drift.
 #pragma once
 
@@ -24,7 +17,7 @@
 namespace beatless::pitch {
 
 // ---------------------------------------------------------------------------
-// 1 Keys and tables
+// [SECTION] Keys and tables
 // ---------------------------------------------------------------------------
 //
 // Degree roots come from the just major scale 1/1 9/8 5/4 4/3 3/2 5/3 15/8
@@ -73,7 +66,7 @@ Key parse_key(std::string_view text, double a4_hz);
 const char* mode_name(KeyMode mode);  // "major", "minor"
 
 // ---------------------------------------------------------------------------
-// 2 Parsing
+// [SECTION] Parsing
 // ---------------------------------------------------------------------------
 
 constexpr std::size_t kMaxProgressionChords = 256;
@@ -90,13 +83,15 @@ struct Progression {
 };
 
 // Chords separated by spaces, commas, '-', '|' or dashes: "I vi ii V7 I",
-// "I-IV-V", "1/1:4:5:6 16/9:4:5:6". With no mode given it is major unless a
+// "I-IV-V", "1/1:4:5:6 16/9:4:5:6"; an explicit chord is ROOT:TERMS, e.g. 5/3:10:12:15 (A minor above C).
+// A progression is a list of chords, each an exact chord root above the key's tonic and a just chord on that
+// root. With no mode given it is major unless a
 // numeral only exists in minor (then minor); numerals of both keys mixed
 // throw Error. Throws Error naming the token for anything unknown.
 Progression parse_progression(std::string_view text, std::optional<KeyMode> mode = {});
 
 // ---------------------------------------------------------------------------
-// 3 Tuning and drift
+// [SECTION] Tuning and drift
 // ---------------------------------------------------------------------------
 //
 // Tones of adjacent chords are "common" when their fixed-root places name
@@ -110,6 +105,8 @@ Progression parse_progression(std::string_view text, std::optional<KeyMode> mode
 // by its own just root step from the chord before. The drift is the last
 // chord's shift; the changes that cause it are those with s_k != s_{k-1}.
 
+// fixed_root: every chord root sits at its ratio from the fixed tonic. common_tones: each chord is moved as a
+// whole so that a tone it shares with the chord before keeps its exact pitch; this one drifts.
 enum class DriftRule { fixed_root, common_tones };
 const char* rule_name(DriftRule rule);  // "fixed-root", "common-tones"
 

@@ -1,12 +1,7 @@
-// Ratio — exact frequency ratios on 64-bit integers.
-//
-// A Ratio is a positive fraction num/den kept in lowest terms. Every
-// operation that could overflow 64 bits checks for it and throws
-// beatless::Error instead of wrapping. Text forms understood by parse_ratio:
-// "7/5", "7:5", "7" (= 7/1) and products "3/2*5/4". A chord "4:5:6:7" has
-// more than two terms and is parsed by parse_chord_terms.
-//
-// Thread: any. Allocates: only the strings it returns.
+// Ratio — exact frequency ratios on 64-bit integers, kept in lowest terms.
+// Method: checked integer arithmetic: every operation that could overflow 64 bits throws beatless::Error instead of
+// wrapping. Texts: "7/5", "7:5", "7", "3/2*5/4" (parse_ratio); a chord "4:5:6:7" goes to parse_chord_terms.
+// Thread: any. Allocates: only the strings and term lists it returns.
 #pragma once
 
 #include <cstdint>

@@ -1,15 +1,7 @@
-// Spelling — note names spelled against a tonic (letters by scale degree).
-//
-// A pitch a whole number of semitones above a tonic is named by the
-// chromatic degree it stands for: 1 b2 2 b3 3 4 #4 5 b6 6 b7 7 (the usual
-// chromatic spelling in major and minor keys, common practice). The letter
-// is the tonic's letter moved by the degree, and sharps or flats make up the
-// rest, so the third of Eb is G, the flat seventh of C is Bb and the
-// augmented fourth of F is B. Scientific pitch notation (ASA 1939) numbers
-// octaves by letter: Cb4 sounds a semitone below C4, B#3 as C4.
-// The tritone family is split by size: narrower than 600 cents it is an
-// augmented fourth (45/32, 7/5 over D: G#), wider a diminished fifth
-// (64/45, 10/7 over D: Ab) (common practice). Thread: any; pure functions.
+// Spelling — note names spelled against a tonic, the letter by chromatic scale degree (1 b2 2 b3 3 4 #4 5 b6 6 b7 7).
+// Method: the usual chromatic spelling in major and minor keys (common practice); octaves in scientific pitch
+// notation (ASA 1939); the tritone family split by size (common practice, beside spell_above_root).
+// Thread: any; pure functions. Allocates: the strings it returns.
 #pragma once
 
 #include <string>
@@ -29,10 +21,13 @@ struct Tonic {
 // here). Throws Error naming the text when it is not a note.
 Tonic parse_tonic(std::string_view note);
 
-// The pitch `semitones` above the tonic (any integer), spelled: "Bb".
+// The pitch `semitones` above the tonic (any integer), spelled: "Bb". The letter is the tonic's letter moved by
+// the degree, and sharps or flats make up the rest, so the third of Eb is G, the flat seventh of C is Bb and the
+// augmented fourth of F is B.
 std::string spell_pitch_class(const Tonic& tonic, int semitones);
 
-// MIDI note `midi` spelled against the tonic, with its octave: "Bb3".
+// MIDI note `midi` spelled against the tonic, with its octave: "Bb3". Scientific pitch notation (ASA 1939)
+// numbers octaves by letter: Cb4 sounds a semitone below C4, B#3 as C4.
 std::string spell_midi(const Tonic& tonic, int midi);
 
 // The notes of a chord (MIDI numbers) spelled from its root, with octaves.
@@ -53,7 +48,8 @@ struct NoteAboveRoot {
 // The one speller for "which note is this, over this root": the root as the
 // user typed it ("Bb3", "D3"; a frequency such as "146.8" is spelled from
 // its nearest note at a4_hz, sharps for black keys). The step is the
-// nearest whole semitone; the tritone family follows the rule above.
+// nearest whole semitone. The tritone family is split by size (common practice): narrower than 600 cents it is
+// an augmented fourth (45/32, 7/5 over D: G#), wider a diminished fifth (64/45, 10/7 over D: Ab).
 // Throws Error naming the root when it is neither a note nor a frequency.
 NoteAboveRoot spell_above_root(std::string_view root, double cents_above_root, double a4_hz = 440.0);
 

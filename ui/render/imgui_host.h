@@ -1,13 +1,7 @@
-// ImGuiHost — a Dear ImGui context for offscreen rendering: fonts, atlas, frames.
-//
-// Creates its own ImGui context at a display size and DPI scale, loads the
-// DejaVu faces from Debian's fonts-dejavu-core at a size readable from a
-// music stand (falling back to ImGui's built-in font with one warning line on
-// stderr), builds the font atlas once as an Alpha8 texture for the
-// rasterizer (1:1 glyphs: no oversampling, advances snapped to whole pixels),
-// and drives frames with a given time step. ImGui coordinates are pixels of
-// the output buffer (FramebufferScale 1); the DPI scale enlarges fonts and
-// style sizes instead. Writes no imgui.ini.
+// ImGuiHost — a Dear ImGui context of its own for offscreen rendering: fonts, atlas, frames. Writes no imgui.ini.
+// Method: DejaVu faces from Debian's fonts-dejavu-core (ImGui's built-in font, with one warning line, when missing),
+// an Alpha8 atlas built once with 1:1 glyphs; a DPI scale enlarges fonts and style. Detail: DEVELOPERS.md.
+// Thread: the UI thread. Allocates: yes (never on an audio path).
 #pragma once
 
 #include "ui/render/raster.h"

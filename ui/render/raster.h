@@ -1,22 +1,8 @@
 // Rasterizer — draws Dear ImGui's ImDrawData into an RGBA8 pixel buffer on the CPU.
-//
-// Triangles are scan-converted with integer edge functions (J. Pineda, "A
-// parallel algorithm for polygon rasterization", SIGGRAPH 1988) on vertices
-// snapped to 1/256 pixel, sampling at pixel centres with the top-left fill
-// rule of the Direct3D 10 rasterization rules (Microsoft docs), so an edge
-// shared by two triangles is drawn exactly once. Colour and texture are
-// interpolated affinely; the texel is taken nearest to the sample point;
-// blending is straight alpha, out = src*a + dst*(1-a) (Porter & Duff "over",
-// SIGGRAPH 1984), in 8-bit integers with exact rounding (J. Blinn, "Three
-// wrongs make a right", IEEE CG&A 1995). Pairs of triangles that form an
-// axis-aligned rectangle (ImGui's PrimRect / PrimRectUV) are filled as spans.
-//
-// Supports: textured vertex-coloured triangles, clip rectangles, VtxOffset
-// (ImGuiBackendFlags_RendererHasVtxOffset), DisplayPos/FramebufferScale, user
-// callbacks. Does not: filter textures (nearest only; see texture sampling in
-// raster.cpp for why that is crisp for our font atlas), wrap texture
-// coordinates (they clamp to the edge), or handle ImGui's baked
-// anti-aliased line textures well (build the atlas with NoBakedLines).
+// Method: integer edge functions (J. Pineda, SIGGRAPH 1988), the Direct3D 10 top-left fill rule, straight-alpha
+// "over" (Porter & Duff, SIGGRAPH 1984) with exact 8-bit rounding (J. Blinn, IEEE CG&A 1995). What it supports:
+// beside Rasterizer::draw; the method in detail: DEVELOPERS.md, "Methods in detail".
+// Thread: any, one call at a time per Rasterizer. Allocates: no (PixelBuffer::resize aside).
 #pragma once
 
 #include <imgui.h>
@@ -74,6 +60,11 @@ class Rasterizer {
 public:
     explicit Rasterizer(const RasterConfig& config = {}) : config_(config) {}
 
+    // Supports: textured vertex-coloured triangles, clip rectangles, VtxOffset
+    // (ImGuiBackendFlags_RendererHasVtxOffset), DisplayPos/FramebufferScale, user callbacks. Does not: filter
+    // textures (nearest only; see texture sampling in raster.cpp for why that is crisp for our font atlas), wrap
+    // texture coordinates (they clamp to the edge), or handle ImGui's baked anti-aliased line textures well
+    // (build the atlas with NoBakedLines).
     // Draws every command list of `data` into `target`, which must already be
     // sized (usually to DisplaySize * FramebufferScale) and cleared.
     // ImTextureID must be null or point at a Texture.

@@ -1,14 +1,7 @@
-// Window — shows the rasterizer's pixels in a GLFW window and feeds input to ImGui.
-//
-// Every frame: poll GLFW events into ImGui (mouse position and buttons, wheel,
-// keys through io.KeyMap/KeysDown, typed characters, focus, clipboard), build
-// the frame, rasterize it on the CPU into a buffer the size of the window's
-// framebuffer, and show it as one textured quad with OpenGL 1.1 calls only
-// (glTexSubImage2D into a power-of-two texture, nearest filtering), which
-// every software OpenGL (Mesa llvmpipe under Xvfb) provides. Resizing the
-// window resizes the buffer; the monitor's content scale becomes the DPI
-// scale of fonts and style. Not supported: gamepads, mouse cursor shapes,
-// DPI changes after opening (fonts are built once).
+// Window — shows the rasterizer's pixels in a GLFW window and feeds GLFW's input to ImGui.
+// Method: per frame, poll events into ImGui, build and rasterize the frame on the CPU, and show it as one textured
+// quad with OpenGL 1.1 calls only. What it supports and not: DEVELOPERS.md, "Methods in detail".
+// Thread: the UI thread. Allocates: yes (never on an audio path).
 #pragma once
 
 #include "ui/render/imgui_host.h"

@@ -1,18 +1,7 @@
-// The lane — the horizontal deviation display around the current target,
-// shared by the Practice and Drills screens.
-//
-// A band spanning exactly -50 .. +50 cents (x = centre + dev_cents * width /
-// 100; the snapshot tests find the band's edges in the PNG and check the
-// marker against this), the in-tune window (±in_tune_cents, a colour only
-// the lane uses), ticks every 5 cents with labels every 10 below the band,
-// "flat" and "sharp" at the ends, the marker at the verdict (ui/session/verdict.h:
-// the vibrato centre once known, the pitch before) as a needle with the
-// state's shape (up sharp, down flat, a disc in tune), the instantaneous
-// pitch as a half-second fading trail and, while the verdict is the centre,
-// a small "now" tick on its own track below the labels. When the verdict is
-// not current (silence, low confidence) the marker is drawn hollow and dim
-// and labelled "last". Deviations beyond the band pin the marker to its edge
-// with an outward arrow and the verdict's value.
+// The lane — the horizontal deviation display around the current target, shared by the Practice and Drills screens.
+// Method: ours: a -50 .. +50 cent band with the in-tune window, the marker at the verdict (ui/session/verdict.h)
+// in the state's shape, the instantaneous pitch as a fading trail. Layout: DEVELOPERS.md, "Methods in detail".
+// Thread: the UI thread. Allocates: only through ImGui's draw lists.
 #pragma once
 
 #include "pitch/measure/reading.h"

@@ -1,15 +1,7 @@
-// Palette — every colour the screens use, defined in this one place.
-//
-// The hues are the eight-colour set of M. Okabe and K. Ito, "Color Universal
-// Design (CUD): how to make figures and presentations that are friendly to
-// colorblind people" (J*FLY, 2008), chosen to stay distinct under the common
-// forms of colour blindness; the neutrals are ours: a dark, calm background
-// with near-white text for high contrast on a stage or at a music stand.
-// No state is told by colour alone: sharp is orange with an upward triangle
-// and the word "sharp", flat is sky blue with a downward triangle and "flat",
-// in tune is bluish green with a disc and "in tune"; clipping is vermillion
-// with the word "CLIP"; the drone's state is a word and a filled or hollow
-// square. Colours are packed as ImGui's IM_COL32 (R, G, B, A bytes).
+// Palette — every colour the screens use, defined in this one place, packed as ImGui's IM_COL32 (R, G, B, A bytes).
+// Method: the eight hues of M. Okabe and K. Ito, "Color Universal Design (CUD): how to make figures and presentations
+// that are friendly to colorblind people" (J*FLY, 2008); the neutrals ours. No state is told by colour alone.
+// Thread: any (constants). Allocates: no.
 #pragma once
 
 #include "ui/render/raster.h"
@@ -28,6 +20,7 @@ inline constexpr std::uint32_t kVermillion = rgba(213, 94, 0);
 inline constexpr std::uint32_t kReddishPurple = rgba(204, 121, 167);
 
 // --- Neutrals (ours) -------------------------------------------------------------
+// A dark, calm background with near-white text, for high contrast on a stage or at a music stand.
 inline constexpr std::uint32_t kBackground = rgba(15, 17, 21);   // behind everything
 inline constexpr std::uint32_t kPanel = rgba(24, 27, 33);        // panels: lane, trace, beat cue
 inline constexpr std::uint32_t kPanelRaised = rgba(36, 40, 48);  // controls, the lane band
@@ -37,6 +30,9 @@ inline constexpr std::uint32_t kTextDim = rgba(165, 171, 182);   // labels, unit
 inline constexpr std::uint32_t kTextFaint = rgba(110, 116, 128); // disabled
 
 // --- Roles ------------------------------------------------------------------------
+// No state is told by colour alone: each role's shape and word is beside it (sharp: orange, an upward triangle,
+// "sharp"; flat: sky blue, a downward triangle, "flat"; in tune: bluish green, a disc, "in tune"); the drone's
+// state is a word and a filled or hollow square.
 inline constexpr std::uint32_t kSharp = kOrange;               // + the ▲ shape and "sharp"
 inline constexpr std::uint32_t kFlat = kSkyBlue;               // + the ▼ shape and "flat"
 inline constexpr std::uint32_t kInTune = kBluishGreen;         // + the ● shape and "in tune"

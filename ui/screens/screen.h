@@ -1,15 +1,7 @@
-// Screens — the framework every screen plugs into, and the deck that runs them.
-//
-// A screen is one class in its own file (ui/screen_<name>.cpp) implementing
-// Screen; make_screens() lists the screens that are built, in tab order.
-// Adding a screen (Drills, Ensemble, Review) is a new file and one line in
-// make_screens(). The deck draws what every screen shares: the tab bar, the
-// hearing-caution banner, the status bar (input, level and clipping,
-// overflows, latency), messages, the help overlay and the global keys
-// (drone, targets, root, screens), then asks the current screen to fill the
-// area between them. Everything is built with Dear ImGui and the colours of
-// ui/screens/palette.h; sizes follow the body font, so the DPI and font scales
-// carry through.
+// Screens — the framework every screen plugs into (Screen), and the deck that runs them.
+// Method: one class per screen in its own file, listed in tab order by make_screens(); the deck draws what every
+// screen shares, all with Dear ImGui in the colours of ui/screens/palette.h. Detail: DEVELOPERS.md.
+// Thread: the UI thread. Allocates: yes (never on an audio path).
 #pragma once
 
 #include "ui/session/app_state.h"

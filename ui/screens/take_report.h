@@ -1,13 +1,7 @@
-// Analysis report — one printable page (PNG) of an analyzed take.
-//
-// Drawn with Dear ImGui's draw list offscreen (ui/render/imgui_host.h) through the
-// CPU rasterizer (ui/render/raster.h) and written by ui/render/png.h: a title with the
-// file, root and date; the pitch trace over time in cents above the root
-// (or, for two voices, the interval above the low voice); the target lines
-// in every octave the trace reaches, labelled by ratio and name; each
-// note's bar at its centre, coloured by its deviation and labelled with it;
-// and the per-target summary table. White page, dark ink, type about 4 mm
-// high on A4 (2000 x 1200 px). Layout and colours are ours.
+// Take report — one printable page (PNG) of an analyzed take: trace, target lines, notes and the summary table.
+// Method: ours: Dear ImGui's draw list offscreen (ui/render/imgui_host.h) through the CPU rasterizer
+// (ui/render/raster.h), written by ui/render/png.h; the page's contents beside render_report.
+// Thread: the caller's (the analyze command's). Allocates: yes.
 #pragma once
 
 #include "pitch/measure/decimated_trace.h"
@@ -56,6 +50,7 @@ struct ReportData {
     std::vector<ReportRow> summary;
 };
 
+// White page, dark ink, type about 4 mm high on A4 (2000 x 1200 px). Layout and colours are ours.
 constexpr int kReportWidthPx = 2000;
 constexpr int kReportHeightPx = 1200;
 
@@ -75,7 +70,10 @@ struct ReportLayout {
 };
 ReportLayout report_layout(const ReportData& data);
 
-// Draws the page into `out` (resized to kReportWidthPx x kReportHeightPx).
+// Draws the page into `out` (resized to kReportWidthPx x kReportHeightPx): a title with the file, root and date;
+// the pitch trace over time in cents above the root (or, for two voices, the interval above the low voice); the
+// target lines in every octave the trace reaches, labelled by ratio and name; each note's bar at its centre,
+// coloured by its deviation and labelled with it; and the per-target summary table.
 void render_report(const ReportData& data, PixelBuffer& out);
 
 // Draws the page and writes it as PNG. Throws Error naming the file.

@@ -1,14 +1,6 @@
-// BeatPulse — the beat view's model: the summed envelope of the two
-// coinciding partials, kept as a short history so the screen can scroll it.
-//
-// Two partials of equal strength a beat rate b apart sum to a tone whose
-// envelope is |2 cos(pi b t)| (the sum-to-product identity; Helmholtz, On
-// the Sensations of Tone, ch. VIII). The phase advances by beat_hz x dt
-// each frame, so the envelope's lobes widen as the interval becomes pure and
-// stop moving when it is; a frame with no beat (silence) records no
-// envelope, so silence scrolls in as a flat line. The rate is the one at the
-// vibrato centre when there is one: the instantaneous rate swings with every
-// vibrato cycle, the ear follows the mean. Bands: pitch::beat_band.
+// BeatPulse — the beat view's model: the summed envelope of the two coinciding partials, kept as a short history.
+// Method: two equal partials b Hz apart sum to a tone with envelope |2 cos(pi b t)| (the sum-to-product identity;
+// Helmholtz, On the Sensations of Tone, ch. VIII). What it draws and why: DEVELOPERS.md, "Methods in detail".
 // Thread: the screens' thread. Allocates: no (the history is sized once).
 #pragma once
 

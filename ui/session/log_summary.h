@@ -1,12 +1,7 @@
-// History — the practice log summarised per target and over time.
-//
-// From the per-day sums of PracticeLog::history_groups: for each hold target
-// (ordered by pitch) and each ear drill, the number of attempts, the share
-// that locked, the mean time to lock, the mean of the attempts' mean signed
-// deviations, the mean spread, the mean share within tolerance and, for ear
-// drills, the mean threshold. The same figures per day, per week (starting
-// Monday, ISO 8601) or per month, in UTC. Every attempt weighs the same.
-// Rendered as text for people, JSON and CSV for programs.
+// Log summary — the practice log summarised per target and over time, as text for people and JSON or CSV for programs.
+// Method: from the per-day sums of PracticeLog::history_groups, per day, week (from Monday, ISO 8601) or month, in
+// UTC; every attempt weighs the same (the figures beside HistoryLine).
+// Thread: the caller's. Allocates: yes.
 #pragma once
 
 #include "ui/session/practice_log.h"

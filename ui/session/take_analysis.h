@@ -1,17 +1,8 @@
-// Take analysis — the passes `beatless analyze` makes over a sound file.
-//
-// One voice against a drone: (1) a first streamed pass finds the drone
-// (pitch/measure/root_detect.h), which is the root unless one is given; (2) a second
-// pass removes the drone with a comb on its harmonics (pitch/dsp/drone_comb.h),
-// tracks the voice (pitch/dsp/yin.h) and cuts it into held notes against the
-// root (pitch/measure/segment.h). A given root is only the reference: the comb
-// follows the drone actually found, and there is no comb without one. Two voices
-// from one microphone: one pass of pitch/measure/two_voice.h into held dyads
-// (pitch/measure/dyad_segment.h). Memory does not grow with the file: blocks are
-// streamed, the report's trace is decimated (pitch/measure/decimated_trace.h), and
-// only the list of notes (a few thousand in two hours) is kept. Files that
-// are silent, or have no steady drone when the root is to be found, throw
-// Error with a one-line message naming the file.
+// Take analysis — the passes `beatless analyze` makes over a sound file, in memory that does not grow with the file.
+// Method: one voice: find the drone (pitch/measure/root_detect.h), comb it out (pitch/dsp/drone_comb.h), track the
+// voice (pitch/dsp/yin.h), cut held notes (pitch/measure/segment.h); two voices: pitch/measure/two_voice.h into
+// dyads (pitch/measure/dyad_segment.h). Passes, memory and errors: DEVELOPERS.md, "Methods in detail".
+// Thread: the caller's (the analyze command's). Allocates: yes. Throws Error with a one-line message naming the file.
 #pragma once
 
 #include "audio/soundfile.h"

@@ -1,11 +1,6 @@
-// Verdict — the one number a live screen says the performer is off by, now.
-//
-// Built from the stream of readings (pitch/measure/reading.h): the vibrato centre's
-// deviation once a whole cycle is known, the instantaneous deviation
-// before; the pitch, note and beat rate shown beside it are those of the
-// same quantity. Silence (unvoiced frames, or no frames arriving) and low
-// confidence turn the verdict into "last: ..." within silent_after_s; a
-// stale value is never current. DESIGN.md, "One reading, one verdict".
+// Verdict — the one number a live screen says the performer is off by, now (DESIGN.md, "One reading, one verdict").
+// Method: the vibrato centre's deviation once a whole cycle is known, the instantaneous one before; silence and low
+// confidence make it "last: ..." within silent_after_s. Rules: DEVELOPERS.md, "The reading model".
 // Thread: the screens' (UI) thread. Allocates: no.
 #pragma once
 
