@@ -215,7 +215,8 @@ void ScreenDeck::tab_bar(float height) {
     }
     // Right side: the drone's state in a word and a square, and the help key.
     const bool on = app_.drone_on();
-    const std::string drone = on ? "Drone on" : "Drone off";
+    // On but with no output playing it: said, not claimed as sound.
+    const std::string drone = !on ? "Drone off" : app_.drone_heard() ? "Drone on" : "Drone on, not heard";
     const std::string help = "H  help";
     const float help_w = text_size(FontFace::body, help).x;
     const float drone_w = text_size(FontFace::bold, drone).x;
