@@ -454,8 +454,7 @@ void DrillsScreen::ear_now(AppState& app, ImDrawList* dl, float x0, float y0, fl
     } else {
         top += "the drone alone";
     }
-    if (listener_) top += "  \xC2\xB7  answered by the simulated listener";
-    if (!app.drone_heard()) top += " (nothing sounds)";
+    if (listener_) top += app.drone_heard() ? "  \xC2\xB7  simulated listener" : "  \xC2\xB7  simulated listener, nothing sounds";
     draw_text(dl, FontFace::body, ImVec2(x0 + u, y), palette::kTextDim, fit_text(FontFace::body, top, w - 2.0f * u));
     y += std::round(1.5f * u);
     if (over) {
@@ -501,9 +500,9 @@ void DrillsScreen::ear_now(AppState& app, ImDrawList* dl, float x0, float y0, fl
     } else if (ph == DrillPhase::ear_answer) {
         playing = disc ? "press 1 or 2, or click" : "press its number, or click";
     }
-    if (!playing.empty())
-        draw_text(dl, FontFace::body, ImVec2(x0 + w - u - text_size(FontFace::body, playing).x, y + std::round(0.4f * u)), palette::kTextDim, playing);
-    y += font_px(FontFace::medium) + std::round(0.9f * u);
+    y += font_px(FontFace::medium) + std::round(0.2f * u);
+    draw_text(dl, FontFace::body, ImVec2(x0 + u, y), palette::kTextDim, playing);
+    y += std::round(1.4f * u);
     // The answers as buttons: the key, then "the first" / the interval and its name.
     const int n = disc ? 2 : static_cast<int>(targets.size());
     const int cols = disc ? 2 : std::min(n, 3);
@@ -710,41 +709,44 @@ void DrillsScreen::ear_matrix(ImDrawList* dl, float x0, float y0, float w, float
     const std::size_t n = d.targets.size();
     std::vector<std::vector<int>> m(n, std::vector<int>(n, 0));
     for (const EarAnswer& a : runner_->answers()) ++m[a.question.target][static_cast<std::size_t>(a.answer)];
-    const float label_w = std::round(4.2f * u);
-    const float cell = std::round(std::min((0.55f * w - label_w) / static_cast<float>(n), (h - 2.6f * u) / static_cast<float>(n + 1)));
-    if (cell < 1.2f * u) return;
-    const float mx0 = x0 + u + label_w, my0 = y0 + std::round(1.3f * u);
-    draw_text(dl, FontFace::body, ImVec2(x0 + u, y0), palette::kTextDim, "rows: played   columns: named");
+    const float label_w = std::round(5.0f * u);
+    const float cw = std::round(std::min((0.5f * w - label_w) / static_cast<float>(n), 4.0f * u));
+    const float ch = std::floor(std::min((h - 0.2f * u) / static_cast<float>(n + 1), 1.6f * u));
+    if (cw < 2.0f * u || ch < 0.75f * u) return;
+    const float mx0 = x0 + u + label_w, my0 = y0 - std::round(0.3f * u);
+    draw_text(dl, FontFace::body, ImVec2(x0 + u, my0 + 0.5f * ch - 0.55f * u), palette::kTextFaint, "played \xE2\x86\x93");
     for (std::size_t k = 0; k < n; ++k) {
         const std::string name = d.targets[k].target.interval.str();
-        draw_text_centred(dl, FontFace::body, mx0 + (static_cast<float>(k) + 0.5f) * cell, my0, palette::kTextDim, fit_text(FontFace::body, name, cell));
-        draw_text(dl, FontFace::body, ImVec2(x0 + u, my0 + static_cast<float>(k + 1) * cell + 0.5f * cell - 0.55f * u), palette::kTextDim, name);
+        draw_text_centred(dl, FontFace::body, mx0 + (static_cast<float>(k) + 0.5f) * cw, my0 + 0.5f * ch - 0.55f * u, palette::kTextDim,
+                          fit_text(FontFace::body, name, cw));
+        draw_text(dl, FontFace::body, ImVec2(x0 + u, my0 + static_cast<float>(k + 1) * ch + 0.5f * ch - 0.55f * u), palette::kTextDim, name);
     }
     for (std::size_t i = 0; i < n; ++i) {
         int row = 0;
         for (int c : m[i]) row += c;
         for (std::size_t k = 0; k < n; ++k) {
-            const float cx = mx0 + static_cast<float>(k) * cell, cy = my0 + static_cast<float>(i + 1) * cell;
+            const float cx = mx0 + static_cast<float>(k) * cw, cy = my0 + static_cast<float>(i + 1) * ch;
             const double share = row > 0 ? static_cast<double>(m[i][k]) / row : 0.0;
             const std::uint32_t base = i == k ? palette::kInTune : palette::kSharp;
-            dl->AddRectFilled(ImVec2(cx + 1, cy + 1), ImVec2(cx + cell - 1, cy + cell - 1),
+            dl->AddRectFilled(ImVec2(cx + 1, cy + 1), ImVec2(cx + cw - 1, cy + ch - 1),
                               m[i][k] > 0 ? palette::with_alpha(base, static_cast<unsigned>(40 + 170 * share)) : palette::kPanelRaised);
-            if (m[i][k] > 0) draw_text_centred(dl, FontFace::bold, cx + 0.5f * cell, cy + 0.5f * cell - 0.55f * u, palette::kText, std::to_string(m[i][k]));
+            if (m[i][k] > 0) draw_text_centred(dl, FontFace::bold, cx + 0.5f * cw, cy + 0.5f * ch - 0.55f * u, palette::kText, std::to_string(m[i][k]));
         }
     }
     // The closest pairs, each with its share right so far.
     const std::vector<double> cents = d.target_cents();
-    const float lx = mx0 + static_cast<float>(n) * cell + std::round(1.5f * u);
+    const float lx = mx0 + static_cast<float>(n) * cw + std::round(1.5f * u);
     const float lw = x0 + w - u - lx;
     float ly = y0;
-    draw_text(dl, FontFace::body, ImVec2(lx, ly), palette::kTextDim, fit_text(FontFace::body, "right per pair, closest first", lw));
+    draw_text(dl, FontFace::body, ImVec2(lx, ly), palette::kTextDim,
+              fit_text(FontFace::body, "right per pair, closest first:", lw));
     ly += std::round(1.4f * u);
     for (const auto& [i, k] : pairs_closest_first(cents)) {
         if (ly + u > y0 + h) break;
         const double share = pair_share_right(m, i, k);
         const int of = pair_answers(m, i, k);
         char buf[120];
-        std::snprintf(buf, sizeof buf, "%s | %s  (%s c apart):  %s", d.targets[i].target.interval.str().c_str(), d.targets[k].target.interval.str().c_str(),
+        std::snprintf(buf, sizeof buf, "%s | %s (%s c): %s", d.targets[i].target.interval.str().c_str(), d.targets[k].target.interval.str().c_str(),
                       pitch::format_trimmed(std::fabs(cents[i] - cents[k]), 1).c_str(),
                       std::isfinite(share) ? (std::to_string(std::lround(100.0 * share)) + " % of " + std::to_string(of)).c_str() : "not yet");
         draw_text(dl, FontFace::body, ImVec2(lx, ly), palette::kText, fit_text(FontFace::body, buf, lw));
