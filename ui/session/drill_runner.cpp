@@ -511,7 +511,7 @@ std::string method_text(const Drill& d) {
     return std::to_string(d.staircase.n_down) + "-down 1-up staircase (Levitt 1971, the " + pct +
            " % point), " + stop_rule_text(d.staircase) + "; threshold fitted to every answer (Weibull, slope " +
            pitch::format_trimmed(f.slope, 2) + ", lapse " + pitch::format_trimmed(100.0 * f.lapse, 1) +
-           " %; Wichmann & Hill 2001), 95 % likelihood interval";
+           " %; Wichmann & Hill 2001), 95 % interval from the likelihood, its cut calibrated by simulation";
 }
 
 std::string threshold_text(const ui::ThresholdEstimate& e) {
