@@ -14,11 +14,15 @@
 #include "ui/session/drill_runner.h"
 #include "ui/session/ear_question.h"
 #include "ui/session/listener_model.h"
+#include "ui/session/log_summary.h"
+#include "ui/session/log_writer.h"
+#include "ui/session/practice_log.h"
 #include "ui/session/threshold_fit.h"
 
 #include <doctest/doctest.h>
 
 #include <cmath>
+#include <filesystem>
 #include <vector>
 
 using namespace beatless;
@@ -223,4 +227,44 @@ TEST_CASE("--listener values: perfect, guess, a threshold; anything else is name
     CHECK(parse_listener("4.5", 1).threshold_cents == 4.5);
     CHECK_THROWS_WITH_AS(parse_listener("sharp", 1), doctest::Contains("--listener 'sharp'"), Error);
     CHECK_THROWS_AS(parse_listener("0", 1), Error);
+}
+
+TEST_CASE("the history refits a day from every logged answer: the same estimate as the fit of all its answers") {
+    const std::filesystem::path db = std::filesystem::temp_directory_path() / ("beatless-ear-history-" + new_uid().substr(0, 8) + ".sqlite3");
+    const Drill d = load_drill("ear-septimal-tritone");
+    std::vector<LevelAnswer> all;
+    {
+        LogWriter writer(db);
+        for (int s = 0; s < 3; ++s) {
+            ListenerConfig lc;
+            lc.threshold_cents = 6.0;
+            lc.seed = 50u + static_cast<std::uint64_t>(s);
+            SimulatedListener who(lc);
+            DrillRunner r(d, quiet_config(static_cast<std::uint64_t>(s) + 9), &writer);
+            run_session(r, who);
+            for (const EarAnswer& a : r.answers()) all.push_back({a.question.level_cents, a.correct});
+        }
+    }
+    PracticeLog log(db);
+    HistoryOptions o;
+    o.by = Period::day;
+    const HistorySummary h = summarize_history(log, o);
+    REQUIRE(h.totals.size() == 1);
+    const HistoryLine& l = h.totals[0];
+    CHECK(l.attempts == 3);
+    // The log keeps every answer at the precision it was played (float32 levels).
+    std::vector<LevelAnswer> as_logged;
+    for (const LevelAnswer& a : all) as_logged.push_back({static_cast<double>(static_cast<float>(a.level_cents)), a.correct});
+    const ThresholdEstimate e = fit_threshold(as_logged, d.fit_config());
+    REQUIRE(e.verdict == ThresholdVerdict::measured);
+    CHECK(l.estimate == "measured");
+    CHECK(l.threshold_cents == doctest::Approx(e.threshold_cents));
+    CHECK(l.threshold_lo_cents == doctest::Approx(e.lo_cents));
+    CHECK(l.threshold_hi_cents == doctest::Approx(e.hi_cents));
+    int right = 0;
+    for (const LevelAnswer& a : all) right += a.correct ? 1 : 0;
+    CHECK(l.correct_share == doctest::Approx(static_cast<double>(right) / static_cast<double>(all.size())));
+    std::filesystem::remove(db);
+    std::filesystem::remove(db.string() + "-wal");
+    std::filesystem::remove(db.string() + "-shm");
 }

@@ -683,7 +683,11 @@ TEST_CASE("history sums: per target and per week, hand-worked") {
     CHECK(sept.mean_dev_cents == doctest::Approx((-4.0 - 2.0 + 0.0 - 1.0) / 4.0));
     CHECK(sept.spread_cents == doctest::Approx((3.0 + 4.0 + 5.0 + 2.0) / 4.0));
     CHECK(sept.in_tolerance_share == doctest::Approx((0.5 + 0.7 + 0.3 + 0.8) / 4.0));
-    CHECK(s.totals[2].threshold_cents == doctest::Approx(12.0));
+    // These ear rows are schema 2's (no method, no answers): they count as
+    // attempts but give no threshold (their staircase measured none).
+    CHECK(s.totals[2].attempts == 2);
+    CHECK(std::isnan(s.totals[2].threshold_cents));
+    CHECK(s.totals[2].estimate.empty());
     // Over time: 7/5 in the weeks of 03-03 (3 attempts) and 03-10 (1).
     std::vector<HistoryLine> sept_weeks;
     for (const auto& l : s.over_time)
@@ -716,7 +720,7 @@ TEST_CASE("beatless history: text, json and csv, filters and errors") {
     CHECK(text.out.find("septimal tritone") != std::string::npos);
     CHECK(text.out.find("-1.8 c") != std::string::npos);  // 7/5 mean deviation -1.75
     CHECK(text.out.find("Ear training threshold per week") != std::string::npos);
-    CHECK(text.out.find("12.0 c") != std::string::npos);
+    CHECK(text.out.find("12.0 c") == std::string::npos);  // no mean of old staircase thresholds
 
     const Run json = run_program("history --format json --target 7:5", t.path);
     CHECK(json.code == 0);
@@ -727,7 +731,7 @@ TEST_CASE("beatless history: text, json and csv, filters and errors") {
     const Run csv = run_program("history --format csv --by month", t.path);
     CHECK(csv.code == 0);
     CHECK(csv.out.starts_with("period,kind,key,name,attempts,"));
-    CHECK(csv.out.find("\nall,hold,7/5,septimal tritone,4,0.75,1.5,-1.75,3.5,0.575,\n") != std::string::npos);
+    CHECK(csv.out.find("\nall,hold,7/5,septimal tritone,4,0.75,1.5,-1.75,3.5,0.575,,,,,\n") != std::string::npos);
     CHECK(csv.out.find("\n2025-03,ear,ear-tritones,") != std::string::npos);
 
     const Run bad_since = run_program("history --since 2025-02-30", t.path);

@@ -4,7 +4,6 @@
 #include "pitch/base/error.h"
 #include "ui/session/log_summary.h"
 #include "ui/session/practice_log.h"
-#include "ui/session/threshold_fit.h"
 
 #include <chrono>
 #include <cmath>
@@ -39,39 +38,27 @@ DrillProgress read_drill_progress(const std::string& log_path, const Drill& dril
         LogOptions lo;
         lo.read_only = true;
         PracticeLog log(log_path, lo);
-        if (d->mode == DrillMode::ear) {
+        if (d->mode == DrillMode::ear) {  // refitted from every answer of each day, as `beatless history --by day`
             AttemptFilter f;
             f.drill = d->id;
             f.simulated = simulated;
-            const bool disc = d->task == ui::EarTask::discriminate;
-            const std::string method = disc ? "discriminate" : "identify";
-            std::map<long, std::vector<ui::LevelAnswer>> by_day;
-            std::map<long, std::pair<double, int>> share_by_day;  // right, answers
             DrillProgressSeries ps{d->id, d->title, {}, 0, 0};
-            log.for_each(f, true, [&](const Attempt& a) {
-                if (a.kind != AttemptKind::ear || a.method.rfind(method, 0) != 0) return;
-                ++ps.attempts;
-                const long day = day_number(a.started_at.substr(0, 10));
-                for (const TraceRecord& r : a.trace) {
-                    const bool right = r.centre_dev_cents > 0.5f;
-                    if (disc) by_day[day].push_back({r.f0_hz, right});
-                    auto& sd = share_by_day[day];
-                    sd.first += right ? 1.0 : 0.0;
-                    sd.second += 1;
+            for (const EarPeriodFit& e : fit_ear_periods(log, f, Period::day)) {
+                if (e.period == "all") continue;
+                const long day = day_number(e.period);
+                if (!e.discriminate) {
+                    if (e.answers > 0) ps.points.push_back({day, static_cast<double>(e.right) / static_cast<double>(e.answers), NAN, NAN, false});
+                    continue;
                 }
-            });
-            if (disc) {
-                for (const auto& [day, answers] : by_day) {
-                    const ui::ThresholdEstimate e = ui::fit_threshold(answers, d->fit_config());
-                    if (e.verdict == ui::ThresholdVerdict::measured) ps.points.push_back({day, e.threshold_cents, e.lo_cents, e.hi_cents, false});
-                    else if (e.verdict == ui::ThresholdVerdict::finer) ps.points.push_back({day, e.smallest_cents, NAN, NAN, true});
-                    else ++ps.no_threshold_days;
-                }
-            } else {
-                for (const auto& [day, sd] : share_by_day)
-                    if (sd.second > 0) ps.points.push_back({day, sd.first / sd.second, NAN, NAN, false});
+                if (e.estimate.verdict == ui::ThresholdVerdict::measured)
+                    ps.points.push_back({day, e.estimate.threshold_cents, e.estimate.lo_cents, e.estimate.hi_cents, false});
+                else if (e.estimate.verdict == ui::ThresholdVerdict::finer)
+                    ps.points.push_back({day, e.estimate.smallest_cents, NAN, NAN, true});
+                else
+                    ++ps.no_threshold_days;
             }
-            if (ps.attempts == 0) out.note = "No attempts of this drill in the practice log yet.";
+            ps.attempts = log.count(f);
+            if (ps.points.empty() && ps.no_threshold_days == 0) out.note = "No attempts of this drill in the practice log yet.";
             else out.series.push_back(std::move(ps));
             return out;
         }

@@ -1,13 +1,11 @@
 // Drill progress — one drill's attempts from the practice log, per target and per day.
 //
-// Hold drills: with the queries `beatless history` uses (ui/session/log_summary.h,
-// by day, filtered by the drill's id), one series per target in the drill's
-// order (the day's mean signed deviation). Discrimination drills: one
-// series, the threshold fitted to all of the day's answers (every answer is
-// in the log, ui/session/threshold_fit.h) with its interval, or "finer than"
-// the smallest level played; sessions logged before schema 3 (no method)
-// measured no threshold and are left out. Identification drills: the day's
-// share right. Drawn by ui/screens/drill_chart.h.
+// With the queries `beatless history --by day` uses (ui/session/log_summary.h,
+// filtered by the drill's id). Hold drills: one series per target in the
+// drill's order (the day's mean signed deviation). Discrimination drills:
+// one series, the threshold fitted to all of the day's answers with its
+// interval, or "finer than" the smallest level played. Identification
+// drills: the day's share right. Drawn by ui/screens/drill_chart.h.
 #pragma once
 
 #include "ui/session/drill_files.h"

@@ -6,10 +6,16 @@
 // deviations, the mean spread, the mean share within tolerance and, for ear
 // drills, the mean threshold. The same figures per day, per week (starting
 // Monday, ISO 8601) or per month, in UTC. Every attempt weighs the same.
+// Ear drills are refitted from every logged answer, per period and in all
+// (fit_ear_periods): a discrimination drill's threshold with its interval
+// (ui/session/threshold_fit.h, the drill file's levels when it can be found,
+// else the levels played), an identification drill's share right; ear rows
+// from before schema 3 (no method) measured nothing and are left out.
 // Rendered as text for people, JSON and CSV for programs.
 #pragma once
 
 #include "ui/session/practice_log.h"
+#include "ui/session/threshold_fit.h"
 
 #include <string>
 #include <vector>
@@ -34,8 +40,21 @@ struct HistoryLine {
     double mean_dev_cents = NAN;     // mean of the attempts' mean deviations
     double spread_cents = NAN;       // mean of the attempts' spreads
     double in_tolerance_share = NAN; // mean share within tolerance
-    double threshold_cents = NAN;    // ear: mean threshold
+    double threshold_cents = NAN;    // discriminate: the threshold fitted to the period's answers (measured)
+    double threshold_lo_cents = NAN; // discriminate: its interval (lo 0: not bounded below)
+    double threshold_hi_cents = NAN;
+    std::string estimate;            // discriminate: "measured", "finer" (than threshold_hi_cents), "none"; else empty
+    double correct_share = NAN;      // ear: share of the period's answers that were right
 };
+
+// One ear drill's logged answers, per period ("all" first, then in time order).
+struct EarPeriodFit {
+    std::string period;
+    bool discriminate = false;
+    ui::ThresholdEstimate estimate;  // discriminate only
+    std::int64_t right = 0, answers = 0;
+};
+std::vector<EarPeriodFit> fit_ear_periods(const PracticeLog& log, const AttemptFilter& filter, Period by);
 
 struct HistorySummary {
     std::string log_path;
