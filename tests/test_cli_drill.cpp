@@ -191,3 +191,15 @@ TEST_CASE("beatless drill: bad input gives one line naming the value, exit 1 or 
         CHECK(r.out.empty());
     }
 }
+
+TEST_CASE("the Drills screen does not start an ear drill without an output device, and says why; a simulated listener needs none") {
+    TempDir home;
+    const std::string png = home.file("x.png");
+    const auto r = run_program("snapshot --screen drills --drill ear-septimal-tritone --seconds 2 --out " + png, {"BEATLESS_HOME=" + home.path()});
+    CHECK(r.exit_code == 0);
+    CHECK(r.err.find("no output device: an ear drill plays its questions, so it cannot start without one") != std::string::npos);
+    const auto l = run_program("snapshot --screen drills --drill ear-septimal-tritone --listener 5 --seconds 2 --out " + png,
+                               {"BEATLESS_HOME=" + home.path()});
+    CHECK(l.exit_code == 0);
+    CHECK(l.err.find("no output device") == std::string::npos);
+}
