@@ -60,7 +60,7 @@ void small_plot(ImDrawList* dl, const DrillProgressSeries& s, PlotKind kind, dou
     const float py0 = y0 + std::round(1.35f * u), py1 = y0 + h - std::round(0.3f * u);
     if (py1 - py0 < 0.8f * u) return;
     if (s.points.empty()) {
-        const std::string why = kind == PlotKind::threshold && s.no_threshold_days > 0 ? "no reliable threshold yet" : "not yet";
+        const std::string why = kind == PlotKind::threshold && s.no_threshold_days > 0 ? "no reliable threshold" : "not yet";
         draw_text_centred(dl, FontFace::body, 0.5f * (px0 + px1), 0.5f * (py0 + py1) - 0.5f * u, palette::kTextFaint, why);
         return;
     }

@@ -471,9 +471,9 @@ void DrillsScreen::ear_now(AppState& app, ImDrawList* dl, float x0, float y0, fl
                     why += "; a mistuning of " + pitch::format_trimmed(res->estimate.threshold_cents, 1) + " c is named right " + pct +
                            " % of the time.";
                 } else if (res->estimate.verdict == ui::ThresholdVerdict::finer) {
-                    why += "; right nearly every time at the smallest mistuning this drill plays.";
+                    why += "; heard at the smallest mistuning this drill plays.";
                 } else {
-                    why += "; the answers do not show a mistuning heard reliably within " + pitch::format_trimmed(d.staircase.max_level, 0) + " c.";
+                    why += "; no mistuning up to " + pitch::format_trimmed(d.staircase.max_level, 0) + " c was heard reliably.";
                 }
             } else {
                 why = "The confusion matrix below: what was played against what was named.";
