@@ -86,34 +86,54 @@ TEST_CASE("beatless drill --format json: one object per hold") {
     CHECK(json_value(lines[1], "d['target']") == "10/7");
 }
 
-TEST_CASE("beatless drill on an ear drill answers with a simulated listener; a finer listener gets a lower threshold") {
+TEST_CASE("beatless drill, discrimination: a finer listener gets a lower threshold, each inside its interval; perfect and guessing listeners are named") {
     TempDir home;
     const std::string log = home.file("p.sqlite3");
     double thresholds[2] = {0, 0};
-    const char* listeners[2] = {"8", "30"};
+    const char* listeners[2] = {"3", "15"};
     for (int i = 0; i < 2; ++i) {
-        const auto r = run_program(std::string("drill ear-tritones --format json --seed 5 --listener ") + listeners[i] + " --log " + log,
+        const auto r = run_program(std::string("drill ear-septimal-tritone --format json --seed 5 --listener ") + listeners[i] + " --log " + log,
                                    {"BEATLESS_HOME=" + home.path()});
         REQUIRE_MESSAGE(r.exit_code == 0, r.err);
         REQUIRE(line_count(r.out) == 1);
-        CHECK(json_value(r.out, "d['kind']") == "ear");
+        CHECK(json_value(r.out, "d['task']") == "discriminate");
         CHECK(json_value(r.out, "d['complete']") == "True");
-        CHECK(json_value(r.out, "d['choices']") == "11/8 7/5 45/32 600c 10/7");
+        REQUIRE(json_value(r.out, "d['estimate']") == "measured");
         thresholds[i] = std::stod(json_value(r.out, "d['threshold_cents']"));
-        const int trials = std::stoi(json_value(r.out, "d['trials']"));
-        CHECK(trials >= 12);   // at least one answer per reversal (stop_reversals = 12)
-        CHECK(trials <= 120);  // max_trials
+        CHECK(json_value(r.out, "d['lo_cents'] <= d['threshold_cents'] <= d['hi_cents']") == "True");
+        // Every level asked is one the drill may play (min_cents 0.5, max_cents 100), one per answer.
+        CHECK(json_value(r.out, "all(0.5 <= x <= 100 for x in d['levels_cents'])") == "True");
+        CHECK(json_value(r.out, "len(d['levels_cents']) == d['trials'] == len(d['correct'])") == "True");
+        // The share right is the share of the answers that were right.
+        CHECK(json_value(r.out, "abs(sum(d['correct']) / d['trials'] - d['correct_share']) < 1e-3") == "True");
     }
     CHECK(thresholds[0] < thresholds[1]);
-    // The ear-tritones staircase stays within its min_cents 5 and max_cents 70.
-    CHECK(thresholds[0] >= 5.0);
-    CHECK(thresholds[1] <= 70.0);
+    const auto p = run_program("drill ear-septimal-tritone --listener perfect --log " + log, {"BEATLESS_HOME=" + home.path()});
+    CHECK(p.out.rfind("ear-septimal-tritone: finer than 0.5 c after ", 0) == 0);
+    const auto g = run_program("drill ear-septimal-tritone --listener guess --seed 3 --log " + log, {"BEATLESS_HOME=" + home.path()});
+    CHECK(g.out.rfind("ear-septimal-tritone: no reliable threshold after ", 0) == 0);
+    const auto t = run_program("drill ear-septimal-tritone --listener 6 --log " + log, {"BEATLESS_HOME=" + home.path()});
+    CHECK(t.out.rfind("ear-septimal-tritone: threshold ", 0) == 0);
+    CHECK(t.out.find(" c (95 % interval ") != std::string::npos);
+    CHECK(t.out.find("method: 2-down 1-up staircase (Levitt 1971") != std::string::npos);
+    // The log keeps the method, the estimate and its interval, and every answer.
     const auto h = run_program("history --with-demo --log " + log + " --format json", {"BEATLESS_HOME=" + home.path()});
-    CHECK(json_value(h.out, "[t['attempts'] for t in d['totals'] if t['kind'] == 'ear']") == "[2]");
-    // Text: the result in words.
-    const auto t = run_program("drill ear-tritones --listener 12 --log " + log, {"BEATLESS_HOME=" + home.path()});
-    CHECK(t.out.rfind("ear-tritones: threshold ", 0) == 0);
-    CHECK(t.out.find(" cents after ") != std::string::npos);
+    CHECK(json_value(h.out, "[t['attempts'] for t in d['totals'] if t['kind'] == 'ear']") == "[5]");
+}
+
+TEST_CASE("beatless drill, identification: the confusion matrix has every interval asked its rounds") {
+    TempDir home;
+    const auto r = run_program("drill ear-tritones --format json --seed 5 --listener 8 --log " + home.file("p.sqlite3"),
+                               {"BEATLESS_HOME=" + home.path()});
+    REQUIRE_MESSAGE(r.exit_code == 0, r.err);
+    CHECK(json_value(r.out, "d['task']") == "identify");
+    CHECK(json_value(r.out, "d['choices']") == "11/8 7/5 45/32 600c 10/7 729/512");
+    CHECK(json_value(r.out, "[sum(row) for row in d['confusion']]") == "[8, 8, 8, 8, 8, 8]");  // rounds = 8
+    CHECK(json_value(r.out, "abs(sum(d['confusion'][i][i] for i in range(6)) / d['trials'] - d['correct_share']) < 1e-3") == "True");
+    const auto p = run_program("drill ear-tritones --listener perfect --log " + home.file("p.sqlite3"), {"BEATLESS_HOME=" + home.path()});
+    CHECK(p.out.rfind("ear-tritones: 48 of 48 answers right (100 %)", 0) == 0);
+    CHECK(p.out.find("confusion matrix (rows: played, columns: named)") != std::string::npos);
+    CHECK(p.out.find("10/7     729/512    5.8 c apart: 100 % of 16") != std::string::npos);  // 1200 log2(729/512 / 10/7) = -5.8 c
 }
 
 TEST_CASE("a practice log that cannot be written: the scores print, one line says where the attempts went, exit 1") {
@@ -148,7 +168,8 @@ TEST_CASE("beatless drill: bad input gives one line naming the value, exit 1 or 
         {"drill nope --demo", 1, "'nope': no built-in drill file of that name"},
         {"drill ear-tritones", 2, "drill ear-tritones is an ear drill and needs a listener"},
         {"drill ear-tritones --demo", 2, "--demo: the demo performer sings hold drills"},
-        {"drill ear-tritones --listener 0", 1, "--listener 0"},
+        {"drill ear-tritones --listener 0", 1, "--listener '0'"},
+        {"drill ear-tritones --listener sharp", 1, "--listener 'sharp': must be perfect, guess or a threshold"},
         {"drill ear-tritones --listener 10 --attempts 2", 2, "--attempts counts holds"},
         {"drill hold-tritones --demo --listener 10", 2, "--listener is for ear drills; hold-tritones is a hold drill"},
         {"drill hold-tritones --hold 3", 2, "--hold works with --demo only"},
@@ -169,4 +190,16 @@ TEST_CASE("beatless drill: bad input gives one line naming the value, exit 1 or 
         CHECK(line_count(r.err) == 1);
         CHECK(r.out.empty());
     }
+}
+
+TEST_CASE("the Drills screen does not start an ear drill without an output device, and says why; a simulated listener needs none") {
+    TempDir home;
+    const std::string png = home.file("x.png");
+    const auto r = run_program("snapshot --screen drills --drill ear-septimal-tritone --seconds 2 --out " + png, {"BEATLESS_HOME=" + home.path()});
+    CHECK(r.exit_code == 0);
+    CHECK(r.err.find("no output device: an ear drill plays its questions, so it cannot start without one") != std::string::npos);
+    const auto l = run_program("snapshot --screen drills --drill ear-septimal-tritone --listener 5 --seconds 2 --out " + png,
+                               {"BEATLESS_HOME=" + home.path()});
+    CHECK(l.exit_code == 0);
+    CHECK(l.err.find("no output device") == std::string::npos);
 }

@@ -52,7 +52,7 @@ std::vector<std::string> ratios(const Drill& d) { return ratios(d.targets); }
 }  // namespace
 
 TEST_CASE("the shipped drills are all there and load") {
-    const std::vector<std::string> expected = {"ear-tritones",  "hold-harmonic-ladder", "hold-septimal", "hold-septimal-tritones",
+    const std::vector<std::string> expected = {"ear-septimal-tritone", "ear-tritones",  "hold-harmonic-ladder", "hold-septimal", "hold-septimal-tritones",
                                                "hold-tritones", "hold-undecimal",       "hold-whole-tones"};
     CHECK(builtin_names("drill") == expected);
     for (const auto& name : expected) {
@@ -110,13 +110,20 @@ TEST_CASE("a septimal and an undecimal set") {
     CHECK(und.targets.size() >= 6);
 }
 
-TEST_CASE("the ear drill offers the close tritone neighbours") {
+TEST_CASE("the ear drills: naming the close tritones, and a mistuned 7/5") {
     const Drill d = load_drill("ear-tritones");
     CHECK(d.mode == DrillMode::ear);
-    CHECK(d.targets_text() == "11/8 7/5 45/32 600c 10/7");
-    CHECK(d.question == ui::EarMode::one_interval);
-    CHECK(d.staircase.n_down == 2);
-    CHECK(d.staircase.threshold_reversals % 2 == 0);
+    CHECK(d.task == ui::EarTask::identify);
+    CHECK(d.targets_text() == "11/8 7/5 45/32 600c 10/7 729/512");
+    CHECK(d.rounds >= 1);
+    const Drill m = load_drill("ear-septimal-tritone");
+    CHECK(m.task == ui::EarTask::discriminate);
+    CHECK(m.targets_text() == "7/5");
+    CHECK(m.staircase.n_down == 2);
+    CHECK(m.staircase.threshold_reversals % 2 == 0);
+    // The fit tracks the rule's point: p^2 = 1/2 (Levitt 1971, Table I).
+    CHECK(m.fit_config().threshold_p == doctest::Approx(0.70711).epsilon(1e-5));
+    CHECK(m.fit_config().min_cents == m.staircase.min_level);
 }
 
 TEST_CASE("shuffled rounds are permutations, replayable from the seed") {
@@ -196,19 +203,28 @@ TEST_CASE("malformed drill files name the file, the line and the problem") {
 
 TEST_CASE("malformed ear drills") {
     const std::string head = "kind = \"drill\"\ntitle = \"x\"\nmode = \"ear\"\n";
-    CHECK(error_of(head + "[[target]]\ninterval = \"7/5\"\n").starts_with("bad.toml:4: `[[target]]`: ear question: needs at least two targets"));
-    CHECK(error_of(head + "hold_s = 3\n[[target]]\ninterval = \"7/5\"\n[[target]]\ninterval = \"10/7\"\n")
-              .starts_with("bad.toml:4: `hold_s`: unknown key in an ear drill"));
-    CHECK(error_of(head + "question = \"three\"\n[[target]]\ninterval = \"7/5\"\n[[target]]\ninterval = \"10/7\"\n") ==
-          "bad.toml:4: `question`: 'three' is not one of \"one\", \"two\"");
-    const std::string targets = "[[target]]\ninterval = \"7/5\"\n[[target]]\ninterval = \"10/7\"\n";
-    CHECK(error_of(head + "[staircase]\nthreshold_reversals = 7\n" + targets)
-              .starts_with("bad.toml:4: staircase: threshold_reversals 7 must be even"));
-    CHECK(error_of(head + "[staircase]\nrule = \"4-down\"\n" + targets) ==
-          "bad.toml:5: `rule`: '4-down' is not one of \"2-down\", \"3-down\"");
-    CHECK(error_of(head + "[staircase]\nsteps = [2.0, \"x\"]\n" + targets) == "bad.toml:5: `steps`: must hold numbers only, not a string");
-    CHECK(error_of(head + "[staircase]\nsteps = [0.5]\n" + targets).find("steps 0.5 must be a factor above 1") != std::string::npos);
-    const Drill ok = parse_drill(head + "question = \"two\"\n[staircase]\nrule = \"3-down\"\n" + targets, "ok.toml");
-    CHECK(ok.question == ui::EarMode::two_intervals);
+    CHECK(error_of(head + "[[target]]\ninterval = \"7/5\"\n") == "bad.toml: `task`: required key missing (\"discriminate\" or \"identify\")");
+    const std::string ident = head + "task = \"identify\"\n";
+    CHECK(error_of(ident + "[[target]]\ninterval = \"7/5\"\n").starts_with("bad.toml:5: `[[target]]`: ear question: naming an interval needs at least two"));
+    CHECK(error_of(ident + "hold_s = 3\n[[target]]\ninterval = \"7/5\"\n[[target]]\ninterval = \"10/7\"\n")
+              .starts_with("bad.toml:5: `hold_s`: unknown key in an ear drill"));
+    CHECK(error_of(head + "task = \"three\"\n[[target]]\ninterval = \"7/5\"\n") ==
+          "bad.toml:4: `task`: 'three' is not one of \"discriminate\", \"identify\"");
+    CHECK(error_of(head + "task = \"discriminate\"\n[[target]]\ninterval = \"7/5\"\n[[target]]\ninterval = \"10/7\"\n")
+              .find("a discrimination drill mistunes one interval; 2 are given") != std::string::npos);
+    CHECK(error_of(ident + "[staircase]\nrule = \"2-down\"\n[[target]]\ninterval = \"7/5\"\n[[target]]\ninterval = \"10/7\"\n")
+              .find("`staircase`: only for task = \"discriminate\"") != std::string::npos);
+    const std::string targets = "[[target]]\ninterval = \"7/5\"\n";
+    const std::string disc = head + "task = \"discriminate\"\n";
+    CHECK(error_of(disc + "[staircase]\nthreshold_reversals = 7\n" + targets)
+              .starts_with("bad.toml:5: staircase: threshold_reversals 7 must be even"));
+    CHECK(error_of(disc + "[staircase]\nrule = \"4-down\"\n" + targets) ==
+          "bad.toml:6: `rule`: '4-down' is not one of \"2-down\", \"3-down\"");
+    CHECK(error_of(disc + "[staircase]\nsteps = [2.0, \"x\"]\n" + targets) == "bad.toml:6: `steps`: must hold numbers only, not a string");
+    CHECK(error_of(disc + "[staircase]\nsteps = [0.5]\n" + targets).find("steps 0.5 must be a factor above 1") != std::string::npos);
+    const Drill ok = parse_drill(disc + "[staircase]\nrule = \"3-down\"\nfloor_run = 8\n" + targets, "ok.toml");
+    CHECK(ok.task == ui::EarTask::discriminate);
     CHECK(ok.staircase.n_down == 3);
+    CHECK(ok.staircase.floor_run == 8);
+    CHECK(ok.fit_config().threshold_p == doctest::Approx(0.79370).epsilon(1e-5));  // Levitt's Table I: 79.4 %
 }

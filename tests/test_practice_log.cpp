@@ -101,6 +101,10 @@ Attempt random_attempt(ui::Rng& rng, int index, std::size_t records) {
         a.threshold_cents = 5.0 + 30.0 * rng.uniform();
         a.trials = 30 + static_cast<int>(rng.below(60));
         a.correct_share = rng.uniform();
+        a.method = "discriminate 2-down 1-up";
+        a.estimate = "measured";
+        a.threshold_lo_cents = a.threshold_cents * (0.5 + 0.4 * rng.uniform());
+        a.threshold_hi_cents = a.threshold_cents * (1.1 + rng.uniform());
     }
     for (std::size_t i = 0; i < records; ++i) {
         const bool voiced = rng.below(10) != 0;
@@ -200,7 +204,7 @@ TEST_CASE("a new log: WAL, the current schema version, our application id") {
     }
     CHECK(sql_text(db, "PRAGMA journal_mode") == "wal");
     CHECK(sql_text(db, "PRAGMA application_id") == std::to_string(PracticeLog::kApplicationId));
-    CHECK(sql_text(db, "PRAGMA user_version") == "2");
+    CHECK(sql_text(db, "PRAGMA user_version") == "3");
 }
 
 TEST_CASE("many attempts written and read back identical, in time order") {
@@ -255,7 +259,7 @@ TEST_CASE("trace BLOBs are 16-byte little-endian float32 records") {
     CHECK_THROWS_AS(decode_trace(blob.data(), 15), LogError);
 }
 
-TEST_CASE("a version 1 log is migrated to version 2 and keeps every attempt") {
+TEST_CASE("a version 1 log is migrated to version 3 and keeps every attempt") {
     TempDir t("migrate");
     const fs::path db = t.path / "old.sqlite3";
     {
@@ -267,7 +271,7 @@ TEST_CASE("a version 1 log is migrated to version 2 and keeps every attempt") {
     }
     REQUIRE(sql_text(db, "PRAGMA user_version") == "1");
     PracticeLog log(db);
-    CHECK(log.user_version() == 2);
+    CHECK(log.user_version() == 3);
     const std::vector<Attempt> all = log.read();
     REQUIRE(all.size() == 3);
     std::set<std::string> uids;
@@ -291,6 +295,11 @@ TEST_CASE("a version 1 log is migrated to version 2 and keeps every attempt") {
     CHECK(all[2].kind == AttemptKind::ear);
     CHECK(all[2].trials == std::optional<int>(48));
     CHECK(all[2].threshold_cents == 14.2);
+    // v3's columns: an old ear session says nothing of its method or interval.
+    CHECK(all[2].method.empty());
+    CHECK(all[2].estimate.empty());
+    CHECK(std::isnan(all[2].threshold_lo_cents));
+    CHECK(std::isnan(all[2].threshold_hi_cents));
     // The new columns work: a second attempt with the same uid is refused.
     Attempt again = all[0];
     CHECK_THROWS_AS(log.add(again), LogError);
@@ -314,7 +323,7 @@ TEST_CASE("a newer schema, another program's SQLite file, or not SQLite at all")
         FAIL("opened a newer schema");
     } catch (const LogError& e) {
         CHECK(e.problem() == LogProblem::too_new);
-        CHECK(std::string(e.what()).find("written by a newer beatless (schema 9; this one knows up to 2)") != std::string::npos);
+        CHECK(std::string(e.what()).find("written by a newer beatless (schema 9; this one knows up to 3)") != std::string::npos);
     }
     CHECK_THROWS_WITH_AS(PracticeLog(t.path / "other.sqlite3"), doctest::Contains("not a beatless practice log"), LogError);
     try {
@@ -532,6 +541,21 @@ TEST_CASE("CSV round trip: export, import into an empty log, export again gives 
     CHECK(import_csv(c, light.str(), "light.csv").added == 120);
 }
 
+TEST_CASE("a CSV exported before schema 3 (no method, estimate or interval columns) still imports") {
+    TempDir t("csvv2");
+    PracticeLog log(t.path / "p.sqlite3");
+    const std::string v2 =
+        "uid,started_at,drill,kind,target,target_name,root_hz,performer,dur_s,locked,time_to_lock_s,mean_dev_cents,"
+        "spread_cents,in_tolerance_share,threshold_cents,trials,correct_share,settings\n"
+        "0123456789abcdef0123456789abcdef,2025-03-01T14:03:22.123Z,ear-tritones,ear,11/8 7/5,,110,,60,,,,,,14.2,48,0.7,{}\n";
+    CHECK(import_csv(log, v2, "old.csv").added == 1);
+    const auto all = log.read();
+    REQUIRE(all.size() == 1);
+    CHECK(all[0].threshold_cents == 14.2);
+    CHECK(all[0].method.empty());
+    CHECK(std::isnan(all[0].threshold_hi_cents));
+}
+
 TEST_CASE("bad CSV rows are refused with file:line and nothing is imported") {
     TempDir t("csvbad");
     ui::Rng rng(8);
@@ -582,7 +606,7 @@ TEST_CASE("bad CSV rows are refused with file:line and nothing is imported") {
     refused(csv_header(true) + "x\"y\n", "student.csv:2: a quote inside an unquoted field");
     std::string dup = good + good.substr(good.find('\n') + 1);
     refused(dup, "student.csv:");
-    refused(replace_in_row(2, ",\"{", ",[1],\"{"), "student.csv:4: 20 fields, the header has 19");
+    refused(replace_in_row(2, ",\"{", ",[1],\"{"), "student.csv:4: 24 fields, the header has 23");
 }
 
 // ---- 7. The history command ------------------------------------------------
@@ -659,7 +683,11 @@ TEST_CASE("history sums: per target and per week, hand-worked") {
     CHECK(sept.mean_dev_cents == doctest::Approx((-4.0 - 2.0 + 0.0 - 1.0) / 4.0));
     CHECK(sept.spread_cents == doctest::Approx((3.0 + 4.0 + 5.0 + 2.0) / 4.0));
     CHECK(sept.in_tolerance_share == doctest::Approx((0.5 + 0.7 + 0.3 + 0.8) / 4.0));
-    CHECK(s.totals[2].threshold_cents == doctest::Approx(12.0));
+    // These ear rows are schema 2's (no method, no answers): they count as
+    // attempts but give no threshold (their staircase measured none).
+    CHECK(s.totals[2].attempts == 2);
+    CHECK(std::isnan(s.totals[2].threshold_cents));
+    CHECK(s.totals[2].estimate.empty());
     // Over time: 7/5 in the weeks of 03-03 (3 attempts) and 03-10 (1).
     std::vector<HistoryLine> sept_weeks;
     for (const auto& l : s.over_time)
@@ -692,7 +720,7 @@ TEST_CASE("beatless history: text, json and csv, filters and errors") {
     CHECK(text.out.find("septimal tritone") != std::string::npos);
     CHECK(text.out.find("-1.8 c") != std::string::npos);  // 7/5 mean deviation -1.75
     CHECK(text.out.find("Ear training threshold per week") != std::string::npos);
-    CHECK(text.out.find("12.0 c") != std::string::npos);
+    CHECK(text.out.find("12.0 c") == std::string::npos);  // no mean of old staircase thresholds
 
     const Run json = run_program("history --format json --target 7:5", t.path);
     CHECK(json.code == 0);
@@ -703,7 +731,7 @@ TEST_CASE("beatless history: text, json and csv, filters and errors") {
     const Run csv = run_program("history --format csv --by month", t.path);
     CHECK(csv.code == 0);
     CHECK(csv.out.starts_with("period,kind,key,name,attempts,"));
-    CHECK(csv.out.find("\nall,hold,7/5,septimal tritone,4,0.75,1.5,-1.75,3.5,0.575,\n") != std::string::npos);
+    CHECK(csv.out.find("\nall,hold,7/5,septimal tritone,4,0.75,1.5,-1.75,3.5,0.575,,,,,\n") != std::string::npos);
     CHECK(csv.out.find("\n2025-03,ear,ear-tritones,") != std::string::npos);
 
     const Run bad_since = run_program("history --since 2025-02-30", t.path);

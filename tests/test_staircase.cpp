@@ -203,92 +203,74 @@ const std::vector<double> kTritones = {1200.0 * std::log2(11.0 / 8.0), 1200.0 * 
                                        1200.0 * std::log2(45.0 / 32.0), 600.0, 1200.0 * std::log2(10.0 / 7.0)};
 }  // namespace
 
-TEST_CASE("the questioner picks the pair whose separation is nearest the level") {
-    EarQuestioner q(kTritones, EarMode::one_interval, 7);
-    const auto seps = q.separations();
-    // 45/32 - 7/5 = 7.712 c is the smallest, 10/7 - 11/8 = 66.170 c the largest;
-    // 600c - 7/5 and 10/7 - 600c are both 17.488 c and count once.
-    CHECK(seps.front() == doctest::Approx(7.712).epsilon(1e-4));
-    CHECK(seps.back() == doctest::Approx(66.170).epsilon(1e-4));
-    CHECK(seps.size() == 9);
-
-    const EarQuestion a = q.next(8.0);
-    CHECK(a.diff_cents == doctest::Approx(7.712).epsilon(1e-4));
-    CHECK(a.choices == std::array<std::size_t, 2>{1, 2});
-    CHECK(q.next(1000.0).diff_cents == doctest::Approx(66.170).epsilon(1e-4));
-    CHECK(q.next(0.01).diff_cents == doctest::Approx(7.712).epsilon(1e-4));
-
-    // Both 17.488 c pairs are drawn at a level of 17.5 c, and both tones of a pair are played.
-    std::set<std::array<std::size_t, 2>> pairs;
-    std::map<std::size_t, int> played;
-    for (int i = 0; i < 200; ++i) {
-        const EarQuestion e = q.next(17.5);
-        CHECK(e.diff_cents == doctest::Approx(17.488).epsilon(1e-4));
-        CHECK(e.choices[e.correct_answer] == e.played[0]);
-        CHECK(e.played[0] == e.played[1]);
-        pairs.insert(e.choices);
-        ++played[e.played[0]];
-    }
-    CHECK(pairs.size() == 2);
-    CHECK(played.size() == 3);  // 7/5, 600c and 10/7
-}
-
-TEST_CASE("two-interval questions: both tones in random order, answer is the named one's position") {
-    EarQuestioner q(kTritones, EarMode::two_intervals, 11);
-    int first = 0;
+TEST_CASE("discrimination: the pure interval and it mistuned by exactly the level, in random order and direction") {
+    EarQuestioner q(EarTask::discriminate, {kTritones[1]}, 1, 11);
+    int first = 0, wider = 0;
     for (int i = 0; i < 400; ++i) {
-        const EarQuestion e = q.next(30.0);
-        CHECK(e.played[0] != e.played[1]);
-        CHECK(e.played[e.correct_answer] == e.asked);
+        const double level = 0.5 + 0.25 * i;
+        const EarQuestion e = q.next(level);
+        REQUIRE(e.tones == 2);
+        CHECK(e.level_cents == level);
+        CHECK(e.tone_cents[static_cast<std::size_t>(e.correct_answer)] == kTritones[1]);  // the pure one is 7/5
+        CHECK(e.tone_cents[static_cast<std::size_t>(1 - e.correct_answer)] - kTritones[1] == doctest::Approx(e.mistune_sign * level));
         first += e.correct_answer == 0;
+        wider += e.mistune_sign > 0;
     }
-    // A fair coin: 400 draws lie within 200 +/- 3 sd (sd = 10) with near certainty.
+    // Fair coins: 400 draws lie within 200 +/- 3 sd (sd = 10) with near certainty.
     CHECK(first > 170);
     CHECK(first < 230);
+    CHECK(wider > 170);
+    CHECK(wider < 230);
+}
+
+TEST_CASE("identification: every interval once per round, in shuffled order") {
+    EarQuestioner q(EarTask::identify, kTritones, 40, 5);
+    CHECK(q.total() == 200);
+    std::map<std::size_t, int> firsts;
+    for (int round = 0; round < 40; ++round) {
+        std::set<std::size_t> seen;
+        for (std::size_t k = 0; k < kTritones.size(); ++k) {
+            const EarQuestion e = q.next(0.0);
+            CHECK(e.tones == 1);
+            CHECK(e.correct_answer == static_cast<int>(e.target));
+            CHECK(e.tone_cents[0] == kTritones[e.target]);
+            seen.insert(e.target);
+            if (k == 0) ++firsts[e.target];
+        }
+        CHECK(seen.size() == kTritones.size());
+    }
+    CHECK(firsts.size() >= 4);  // the order changes from round to round
 }
 
 TEST_CASE("questions replay exactly from the same seed") {
-    EarQuestioner a(kTritones, EarMode::two_intervals, 42), b(kTritones, EarMode::two_intervals, 42);
-    EarQuestioner c(kTritones, EarMode::two_intervals, 43);
+    EarQuestioner a(EarTask::discriminate, {600.0}, 1, 42), b(EarTask::discriminate, {600.0}, 1, 42);
+    EarQuestioner c(EarTask::discriminate, {600.0}, 1, 43);
     int differ = 0;
     for (int i = 0; i < 50; ++i) {
         const EarQuestion x = a.next(20.0), y = b.next(20.0), z = c.next(20.0);
-        CHECK(x.played == y.played);
-        CHECK(x.asked == y.asked);
-        differ += x.played != z.played || x.asked != z.asked;
+        CHECK(x.tone_cents == y.tone_cents);
+        differ += x.tone_cents != z.tone_cents;
     }
     CHECK(differ > 0);
 }
 
-TEST_CASE("fewer than two distinct targets cannot make a question") {
-    CHECK_THROWS_AS(EarQuestioner({600.0}, EarMode::one_interval, 1), beatless::Error);
-    CHECK_THROWS_AS(EarQuestioner({600.0, 600.0}, EarMode::one_interval, 1), beatless::Error);
+TEST_CASE("identification needs two intervals of different pitch") {
+    CHECK_THROWS_AS(EarQuestioner(EarTask::identify, {600.0}, 1, 1), beatless::Error);
+    CHECK_THROWS_AS(EarQuestioner(EarTask::identify, {600.0, 600.0}, 1, 1), beatless::Error);
+    CHECK_NOTHROW(EarQuestioner(EarTask::discriminate, {600.0}, 1, 1));
 }
 
-TEST_CASE("an ear session on the tritone neighbours brackets the listener's threshold") {
-    // The listener's 70.7 % point is 20 * exp(0.3 * -0.346574) = 18.04 c. The
-    // available separations around it are 17.488 c and 27.257 c, where the
-    // listener is right 69.5 % and 86.8 % of the time; the staircase level
-    // then hovers between them and the threshold must lie in that bracket.
-    const Listener who{20.0, 0.3};
-    double sum_log = 0.0;
-    const int runs = 100;
-    for (int r = 0; r < runs; ++r) {
-        EarQuestioner q(kTritones, EarMode::one_interval, 900 + static_cast<std::uint64_t>(r));
-        Rng listener(77 + static_cast<std::uint64_t>(r));
-        StaircaseConfig c;
-        c.start_level = 60.0;
-        Staircase st(c);
-        while (!st.done()) {
-            const EarQuestion e = q.next(st.level());
-            const bool right = listener.uniform() < who.p_correct(e.diff_cents);
-            st.record(right);
-        }
-        REQUIRE(std::isfinite(st.threshold()));
-        sum_log += std::log(st.threshold());
-    }
-    const double mean = std::exp(sum_log / runs);
-    MESSAGE("ear session mean threshold " << mean << " c");
-    CHECK(mean > 17.488 / 1.1892);  // the level may sit up to one final step below the lower pair
-    CHECK(mean < 27.257);
+TEST_CASE("the floor rule: a listener right every time stops after floor_run answers at min_level") {
+    StaircaseConfig c;
+    c.start_level = 8.0;
+    c.min_level = 1.0;
+    c.steps = {2.0};
+    c.floor_run = 6;
+    Staircase st(c);
+    int n = 0;
+    while (!st.done() && n < 1000) st.record(true), ++n;
+    // Hand-worked: 8 -> 4 -> 2 -> 1 after 6 answers (2 per step), then 6 more at 1 c.
+    CHECK(n == 12);
+    CHECK(st.stop_reason() == StopReason::floor_run);
+    CHECK(st.level() == 1.0);
 }

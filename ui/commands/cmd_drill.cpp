@@ -1,15 +1,18 @@
 // beatless drill — run a drill without a screen and print each attempt's score.
 //
 //   beatless drill NAME [--demo [--hold CENTS] [--seed N]] [--input DEV] [--output DEV]
-//                  [--listener CENTS] [--root NOTE|HZ] [--a4 HZ] [--attempts N]
+//                  [--listener perfect|guess|CENTS] [--root NOTE|HZ] [--a4 HZ] [--attempts N]
 //                  [--log FILE] [--format text|json]
 //
 // NAME is a built-in drill (hold-tritones, ear-tritones, ...) or a .toml
 // file. Hold drills listen to the input (a device, or --demo: the demo
 // performer sings the drill's targets on its schedule, seeded). Ear drills
 // need someone to answer: here that is a simulated listener of known
-// threshold (--listener CENTS, ui/session/listener_model.h); a person answers on
-// the Drills screen. With --demo (hold) or an ear drill, and no --output,
+// threshold and lapse rate (--listener CENTS, or perfect, or guess;
+// ui/session/listener_model.h); a person answers on the Drills screen. An
+// ear drill prints its result: the fitted threshold with its interval and
+// the levels played (discriminate), or the confusion matrix and the share
+// right per pair (identify). With --demo (hold) or an ear drill, and no --output,
 // nothing can be heard, so the drill runs in simulated time, as fast as the
 // machine allows; otherwise in real time, the drone and the tones on the
 // output device. Every attempt goes to the practice log like the screen's
@@ -60,7 +63,7 @@ struct DrillCmd {
     bool demo = false;
     std::optional<double> hold_dev_cents;
     std::uint64_t seed = 7;
-    std::optional<double> listener_cents;
+    std::string listener;
     std::string input;
     std::string output;
     std::string root;
@@ -105,21 +108,100 @@ std::string hold_line(const Drill& d, const HoldResult& r, std::size_t of, Forma
     return line;
 }
 
-std::string ear_line(const Drill& d, const EarResult& r, double listener_cents, Format f) {
-    if (f == Format::json) {
-        JsonWriter j;
-        j.begin_object();
-        j.key("drill").value(d.id).key("kind").value("ear");
-        j.key("choices").value(d.targets_text());
-        j.key("threshold_cents").value(r.threshold_cents, 3);
-        j.key("trials").value(static_cast<std::int64_t>(r.trials));
-        j.key("correct_share").value(r.correct_share, 4);
-        j.key("complete").value(r.complete);
-        j.key("listener_cents").value(listener_cents, 3);
-        j.end_object();
-        return j.str();
+std::string listener_text(const ui::ListenerConfig& l) {
+    if (l.kind == ui::ListenerKind::perfect) return "perfect (always right)";
+    if (l.kind == ui::ListenerKind::guess) return "guessing (right half the time)";
+    return "threshold " + pitch::format_trimmed(l.threshold_cents, 2) + " c, lapse rate " + pitch::format_trimmed(100.0 * l.lapse, 1) + " %";
+}
+
+std::string ear_json(const Drill& d, const DrillRunner& run, const EarResult& r, const ui::ListenerConfig& l) {
+    JsonWriter j;
+    j.begin_object();
+    j.key("drill").value(d.id).key("kind").value("ear");
+    j.key("task").value(r.task == ui::EarTask::discriminate ? "discriminate" : "identify");
+    j.key("choices").value(d.targets_text());
+    j.key("trials").value(static_cast<std::int64_t>(r.trials));
+    j.key("correct_share").value(r.correct_share, 4);
+    j.key("complete").value(r.complete);
+    if (r.task == ui::EarTask::discriminate) {
+        const ui::ThresholdEstimate& e = r.estimate;
+        j.key("estimate").value(e.verdict == ui::ThresholdVerdict::measured ? "measured" : e.verdict == ui::ThresholdVerdict::finer ? "finer" : "none");
+        j.key("threshold_cents").value(e.threshold_cents, 3);
+        j.key("lo_cents").value(e.lo_cents, 3).key("hi_cents").value(e.hi_cents, 3);
+        j.key("smallest_cents").value(e.smallest_cents, 3);
+        j.key("reversal_mean_cents").value(r.reversal_mean_cents, 3);
+        j.key("levels_cents").begin_array();
+        for (const EarAnswer& a : run.answers()) j.value(a.question.level_cents, 4);
+        j.end_array();
+        j.key("correct").begin_array();
+        for (const EarAnswer& a : run.answers()) j.value(a.correct);
+        j.end_array();
+    } else {
+        j.key("confusion").begin_array();
+        for (const auto& row : r.confusion) {
+            j.begin_array();
+            for (int n : row) j.value(static_cast<std::int64_t>(n));
+            j.end_array();
+        }
+        j.end_array();
     }
-    return d.id + ": " + ear_summary_text(r);
+    j.key("listener").value(l.kind == ui::ListenerKind::perfect ? "perfect" : l.kind == ui::ListenerKind::guess ? "guess" : "model");
+    j.key("listener_cents").value(l.kind == ui::ListenerKind::model ? l.threshold_cents : NAN, 3);
+    j.key("listener_lapse").value(l.lapse, 4);
+    j.end_object();
+    return j.str();
+}
+
+// The result in lines: the verdict, the method, and what it rests on.
+std::string ear_text(const Drill& d, const DrillRunner& run, const EarResult& r, const ui::ListenerConfig& l) {
+    std::string out = d.id + ": " + ear_summary_text(r) + "\n";
+    if (r.task == ui::EarTask::discriminate) {
+        out += "  method: " + method_text(d) + "\n";
+        out += "  stopped " + stopped_by_text(r.stopped_by, d.staircase);
+        if (std::isfinite(r.reversal_mean_cents))
+            out += "; mean of the last " + std::to_string(d.staircase.threshold_reversals) + " reversals " +
+                   pitch::format_trimmed(r.reversal_mean_cents, r.reversal_mean_cents < 10 ? 1 : 0) + " c (Levitt's estimate)";
+        out += "\n  mistunings played, cents (x wrong):";
+        for (const EarAnswer& a : run.answers())
+            out += " " + pitch::format_trimmed(a.question.level_cents, a.question.level_cents < 10 ? 2 : 1) + (a.correct ? "" : "x");
+        out += "\n";
+    } else {
+        const std::size_t n = d.targets.size();
+        std::vector<std::string> names;
+        std::size_t w = 6;
+        for (const DrillTarget& t : d.targets) {
+            names.push_back(t.target.interval.str());
+            w = std::max(w, names.back().size() + 1);
+        }
+        auto pad = [](std::string s, std::size_t width) {
+            while (s.size() < width) s.insert(s.begin(), ' ');
+            return s;
+        };
+        out += "  confusion matrix (rows: played, columns: named):\n  " + std::string(8, ' ');
+        for (const std::string& nm : names) out += pad(nm, w);
+        out += "\n";
+        for (std::size_t i = 0; i < n; ++i) {
+            std::string nm = names[i];
+            nm.resize(8, ' ');
+            out += "  " + nm;
+            for (std::size_t k = 0; k < n; ++k) out += pad(std::to_string(r.confusion[i][k]), w);
+            out += "\n";
+        }
+        out += "  right per pair (of the answers to either that named one of the two), closest pairs first:\n";
+        const std::vector<double> cents = d.target_cents();
+        for (const auto& [i, k] : pairs_closest_first(cents)) {
+            const double share = pair_share_right(r.confusion, i, k);
+            const int of = pair_answers(r.confusion, i, k);
+            char buf[160];
+            std::snprintf(buf, sizeof buf, "    %-8s %-8s %5.1f c apart: %s\n", names[i].c_str(), names[k].c_str(),
+                          std::fabs(cents[i] - cents[k]),
+                          std::isfinite(share) ? (std::to_string(std::lround(100.0 * share)) + " % of " + std::to_string(of)).c_str()
+                                               : "not asked");
+            out += buf;
+        }
+    }
+    out += "  listener: simulated, " + listener_text(l) + "\n";
+    return out;
 }
 
 // ---- The practice log at the end --------------------------------------------
@@ -142,20 +224,21 @@ int report_log(const DrillRunner& runner, const LogWriter& writer) {
 void check(const DrillCmd& o, const Drill& d) {
     if (o.demo && !o.input.empty()) throw UsageError("--demo and --input contradict each other; give one");
     if (o.hold_dev_cents && !o.demo) throw UsageError("--hold works with --demo only");
+    const bool has_listener = !o.listener.empty();
     if (o.hold_dev_cents && !(std::fabs(*o.hold_dev_cents) <= 100.0))
         throw Error("--hold " + pitch::format_trimmed(*o.hold_dev_cents, 2) + ": out of range (-100 to 100 cents)");
     if (o.attempts < 0) throw Error("--attempts " + std::to_string(o.attempts) + ": must not be negative");
     if (d.mode == DrillMode::hold) {
-        if (o.listener_cents) throw UsageError("--listener is for ear drills; " + d.id + " is a hold drill");
+        if (has_listener) throw UsageError("--listener is for ear drills; " + d.id + " is a hold drill");
         return;
     }
-    if (o.demo && !o.listener_cents)
+    if (o.demo && !has_listener)
         throw UsageError("--demo: the demo performer sings hold drills; for the ear drill " + d.id +
-                         " give --listener CENTS (a simulated listener) instead");
-    if (!o.listener_cents)
+                         " give --listener CENTS, perfect or guess (a simulated listener) instead");
+    if (!has_listener)
         throw UsageError("drill " + d.id +
-                         " is an ear drill and needs a listener: answer it on the Drills screen, or give --listener CENTS for a "
-                         "simulated listener");
+                         " is an ear drill and needs a listener: answer it on the Drills screen, or give --listener CENTS, perfect or "
+                         "guess for a simulated listener");
     if (!o.input.empty()) throw UsageError("--input: an ear drill listens to no input (" + d.id + " plays questions and waits for answers)");
     if (o.attempts > 0) throw UsageError("--attempts counts holds; " + d.id + " is an ear drill (one session)");
 }
@@ -239,9 +322,7 @@ void run_ear_simulated(DrillRunner& runner, ui::SimulatedListener& listener, Pri
         runner.advance(now);
         runner.take_tones();
         if (runner.phase() == DrillPhase::ear_answer) {
-            const ui::EarQuestion& q = *runner.question();
-            const bool right = listener.answers_right(q.diff_cents);
-            runner.answer(right ? q.correct_answer : 1 - q.correct_answer, now);
+            runner.answer(listener.answer(*runner.question(), runner.drill().target_cents()), now);
         }
     }
 }
@@ -303,9 +384,7 @@ void run_realtime(const Drill& d, DrillRunner& runner, const DrillCmd& o, Printe
         if (listener && runner.phase() == DrillPhase::ear_answer) {
             if (!std::isfinite(answer_due)) answer_due = now + 0.4;  // a moment to think
             if (now >= answer_due) {
-                const ui::EarQuestion& q = *runner.question();
-                const bool right = listener->answers_right(q.diff_cents);
-                runner.answer(right ? q.correct_answer : 1 - q.correct_answer, now);
+                runner.answer(listener->answer(*runner.question(), runner.drill().target_cents()), now);
                 answer_due = INFINITY;
             }
         }
@@ -335,16 +414,7 @@ int run_drill(const DrillCmd& o) {
         audio::check_drone_settings(probe);
     }
     std::optional<ui::SimulatedListener> listener;
-    if (o.listener_cents) {
-        ui::ListenerConfig lc;
-        lc.threshold_cents = *o.listener_cents;
-        lc.seed = o.seed;
-        try {
-            listener.emplace(lc);
-        } catch (const Error& e) {
-            throw Error("--listener " + pitch::format_trimmed(*o.listener_cents, 3) + ": " + e.what());
-        }
-    }
+    if (!o.listener.empty()) listener.emplace(parse_listener(o.listener, o.seed));
     const fs::path log_path = o.log_file.empty() ? practice_log_path() : fs::path(o.log_file);
     LogWriter writer(log_path);
     RunnerConfig rc;
@@ -359,14 +429,20 @@ int run_drill(const DrillCmd& o) {
     if (o.format == Format::text) {
         std::string what = hold ? std::to_string(runner.hold_count()) + (runner.hold_count() == 1 ? " hold" : " holds") +
                                       ", tolerance \xC2\xB1" + pitch::format_trimmed(d.tolerance_cents, 1) + " c"
-                                : "choices " + d.targets_text();
+                                : d.task == ui::EarTask::discriminate
+                                      ? d.targets_text() + " pure against mistuned, which was pure? (" + stop_rule_text(d.staircase) + ")"
+                                      : "which of " + d.targets_text() + "? (each " + std::to_string(d.rounds) + " times)";
         print.header = d.title + ": " + what + " over " + d.drone.root_text + " (" + pitch::format_trimmed(d.drone.root_hz, 2) + " Hz)" +
                        (simulated ? ", in simulated time" : "");
     }
     if (hold && simulated) run_hold_simulated(d, runner, o, print);
     else if (simulated) run_ear_simulated(runner, *listener, print);
     else run_realtime(d, runner, o, print, listener ? &*listener : nullptr);
-    if (!hold && runner.ear_result()) std::printf("%s\n", ear_line(d, *runner.ear_result(), *o.listener_cents, o.format).c_str());
+    if (!hold && runner.ear_result()) {
+        const EarResult& r = *runner.ear_result();
+        if (o.format == Format::json) std::printf("%s\n", ear_json(d, runner, r, listener->config()).c_str());
+        else std::printf("%s", ear_text(d, runner, r, listener->config()).c_str());
+    }
     std::fflush(stdout);
     return report_log(runner, writer);
 }
@@ -380,8 +456,8 @@ void register_drill(CLI::App& app, Runner& run) {
     sub->add_flag("--demo", o->demo, "Hold drills: the demo performer sings the drill (simulated time unless --output)");
     sub->add_option("--hold", o->hold_dev_cents, "With --demo: she holds every target this many cents off, without vibrato");
     sub->add_option("--seed", o->seed, "Seed of the demo performer, the shuffled order, the ear questions and the listener (default 7)");
-    sub->add_option("--listener", o->listener_cents,
-                    "Ear drills: a simulated listener who tells apart targets this many cents apart 70.7 % of the time");
+    sub->add_option("--listener", o->listener,
+                    "Ear drills: a simulated listener: CENTS (its 70.7 % threshold, lapse rate 2 %), perfect, or guess");
     sub->add_option("--input", o->input, "Input device: index or a unique part of its name (default: the system's)");
     sub->add_option("--output", o->output, "Output device for the drone and the tones (the drill then runs in real time)");
     sub->add_option("--root", o->root, "Drone root as a note (A2) or in Hz (110); default the drill's");

@@ -23,6 +23,7 @@
 #include "pitch/base/text.h"
 #include "ui/session/app_state.h"
 #include "ui/commands/commands.h"
+#include "ui/session/listener_model.h"
 #include "ui/screens/widgets.h"
 #include "ui/session/drill_files.h"
 #include "ui/render/imgui_host.h"
@@ -90,8 +91,7 @@ ScreenId screen_from(const std::string& key, ScreenId fallback) {
 }
 
 void check_common(const ScreenCommand& c) {
-    if (c.listener_cents && !(*c.listener_cents > 0.0 && *c.listener_cents <= 1200.0))
-        throw Error("--listener " + pitch::format_trimmed(*c.listener_cents, 3) + ": out of range (above 0, at most 1200 cents)");
+    if (!c.listener.empty()) (void)parse_listener(c.listener, c.seed);
     if (c.hold_dev_cents && !(std::fabs(*c.hold_dev_cents) <= 600.0))
         throw Error("--hold " + pitch::format_trimmed(*c.hold_dev_cents, 2) + ": out of range (-600 to 600 cents)");
     if (c.hold_dev_cents && !c.demo) throw UsageError("--hold works with --demo only");
@@ -116,7 +116,7 @@ AppOptions options_of(const ScreenCommand& c) {
     o.target = c.target;
     o.drone = c.drone;
     o.drill = c.drill;
-    o.listener_cents = c.listener_cents;
+    o.listener = c.listener;
     o.log_file = c.log_file;
     return o;
 }
@@ -165,7 +165,8 @@ void add_screen_options(CLI::App& app, ScreenCommand& c) {
     app.add_option("--target", c.target, "Fix this target (7/5, 600c, ...); it joins the set when it is not in it");
     app.add_option("--screen", c.screen, "Screen to show: " + built_screen_keys());
     app.add_option("--drill", c.drill, "Choose and start this drill on the Drills screen (a built-in name or a .toml file)");
-    app.add_option("--listener", c.listener_cents, "Ear drills on the Drills screen: a simulated listener of this threshold (cents) answers");
+    app.add_option("--listener", c.listener,
+                   "Ear drills on the Drills screen: a simulated listener answers: perfect, guess, or its threshold in cents");
     app.add_option("--log", c.log_file, "Practice log file (default: the data folder's; a snapshot writes none unless given)");
 }
 

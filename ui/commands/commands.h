@@ -40,7 +40,7 @@ struct ScreenCommand {
     std::string screen;                   // --screen (default: the last one used)
     bool drone = false;                   // snapshot --drone
     std::string drill;                    // --drill: choose and start this drill on the Drills screen
-    std::optional<double> listener_cents; // --listener: a simulated listener answers ear drills
+    std::string listener;                 // --listener: a simulated listener answers ear drills (perfect, guess, cents)
     std::string log_file;                 // --log: the practice log file (snapshot: none unless given)
 };
 void add_screen_options(CLI::App& app, ScreenCommand& c);

@@ -29,37 +29,53 @@ std::string day_text(long day) {
     return buf;
 }
 
-void small_plot(ImDrawList* dl, const DrillProgressSeries& s, bool ear, double tol, float x0, float y0, float w, float h) {
+enum class PlotKind { hold, threshold, share };
+
+// The latest point in words: "+3.2 c", "4.3 c (3.4 to 6.3)", "finer than 0.5 c", "62 % right".
+std::string latest_text(const ProgressPoint& p, PlotKind k) {
+    switch (k) {
+        case PlotKind::hold: return signed_text(p.value, 1) + " c";
+        case PlotKind::share: return std::to_string(std::lround(100.0 * p.value)) + " % right";
+        case PlotKind::threshold: break;
+    }
+    if (p.finer) return "finer than " + pitch::format_trimmed(p.value, 2) + " c";
+    const auto num = [](double c) { return pitch::format_trimmed(c, c < 10.0 ? 1 : 0); };
+    return num(p.value) + " c (" + (p.lo > 0.0 ? num(p.lo) : std::string("below")) + " to " + num(p.hi) + ")";
+}
+
+void small_plot(ImDrawList* dl, const DrillProgressSeries& s, PlotKind kind, double tol, float x0, float y0, float w, float h) {
     std::vector<ImVec2> points;
     const float u = ui_unit();
+    const bool hold = kind == PlotKind::hold;
     dl->AddRectFilled(ImVec2(x0, y0), ImVec2(x0 + w, y0 + h), palette::kPanelRaised, std::round(0.2f * u));
-    draw_text(dl, FontFace::bold, ImVec2(x0 + std::round(0.4f * u), y0 + std::round(0.2f * u)), palette::kText, ear ? "threshold" : s.key);
+    const char* label = kind == PlotKind::threshold ? "threshold per day, with its 95 % interval" : kind == PlotKind::share ? "share right per day" : s.key.c_str();
+    draw_text(dl, FontFace::bold, ImVec2(x0 + std::round(0.4f * u), y0 + std::round(0.2f * u)), palette::kText, label);
     if (!s.points.empty()) {
-        const double latest = s.points.back().second;
-        const std::string v = ear ? pitch::format_trimmed(latest, 1) + " c" : signed_text(latest, 1) + " c";
-        const std::uint32_t col = ear ? palette::kText : tuning_colour(tuning_of(latest, tol));
+        const ProgressPoint& latest = s.points.back();
+        const std::string v = latest_text(latest, kind);
+        const std::uint32_t col = hold ? tuning_colour(tuning_of(latest.value, tol)) : palette::kText;
         draw_text(dl, FontFace::bold, ImVec2(x0 + w - std::round(0.4f * u) - text_size(FontFace::bold, v).x, y0 + std::round(0.2f * u)), col, v);
     }
     const float px0 = x0 + std::round(0.5f * u), px1 = x0 + w - std::round(0.5f * u);
     const float py0 = y0 + std::round(1.35f * u), py1 = y0 + h - std::round(0.3f * u);
     if (py1 - py0 < 0.8f * u) return;
     if (s.points.empty()) {
-        draw_text_centred(dl, FontFace::body, 0.5f * (px0 + px1), 0.5f * (py0 + py1) - 0.5f * u, palette::kTextFaint, "not yet");
+        const std::string why = kind == PlotKind::threshold && s.no_threshold_days > 0 ? "no reliable threshold" : "not yet";
+        draw_text_centred(dl, FontFace::body, 0.5f * (px0 + px1), 0.5f * (py0 + py1) - 0.5f * u, palette::kTextFaint, why);
         return;
     }
-    const long last_day = s.points.back().first;
-    const long first_day = std::max(s.points.front().first, last_day - (kHistoryDays - 1));
+    const long last_day = s.points.back().day;
+    const long first_day = std::max(s.points.front().day, last_day - (kHistoryDays - 1));
     const double days = static_cast<double>(std::max(1L, last_day - first_day));
     auto x_of = [&](long d) { return last_day == first_day ? 0.5f * (px0 + px1) : px0 + static_cast<float>((d - first_day) / days) * (px1 - px0); };
-    double lo, hi;
-    if (ear) {
-        lo = 0.0;
-        hi = 1.0;
-        for (const auto& p : s.points) hi = std::max(hi, 1.2 * p.second);
-    } else {
+    double lo = 0.0, hi = 1.0;
+    if (kind == PlotKind::threshold) {
+        for (const auto& p : s.points)
+            if (p.day >= first_day) hi = std::max(hi, 1.15 * (std::isfinite(p.hi) ? p.hi : p.value));
+    } else if (hold) {
         double m = 2.0 * tol;
         for (const auto& p : s.points)
-            if (p.first >= first_day) m = std::max(m, std::fabs(p.second) * 1.15);
+            if (p.day >= first_day) m = std::max(m, std::fabs(p.value) * 1.15);
         lo = -m;
         hi = m;
         const auto yb = [&](double c) { return std::round(py1 - static_cast<float>((c - lo) / (hi - lo)) * (py1 - py0)); };
@@ -67,16 +83,34 @@ void small_plot(ImDrawList* dl, const DrillProgressSeries& s, bool ear, double t
         dl->AddRectFilled(ImVec2(px0, yb(0.0)), ImVec2(px1, yb(0.0) + 1), palette::kCurrentTarget);
     }
     auto y_of = [&](double c) { return std::round(py1 - static_cast<float>((std::clamp(c, lo, hi) - lo) / (hi - lo)) * (py1 - py0)); };
-    points.clear();
+    if (!hold) {  // the scale: its top and its bottom
+        const bool thr = kind == PlotKind::threshold;
+        const std::string top = thr ? pitch::format_trimmed(hi, hi < 10.0 ? 1 : 0) + " c" : std::string("100 %");
+        draw_text(dl, FontFace::body, ImVec2(px0, py0), palette::kTextFaint, top);
+        draw_text(dl, FontFace::body, ImVec2(px0, py1 - u), palette::kTextFaint, thr ? "0 c" : "0 %");
+    }
     for (const auto& p : s.points)
-        if (p.first >= first_day) points.emplace_back(x_of(p.first), y_of(p.second));
+        if (p.day >= first_day) points.emplace_back(x_of(p.day), y_of(p.value));
     if (points.size() >= 2) dl->AddPolyline(points.data(), static_cast<int>(points.size()), palette::kTextDim, ImDrawFlags_None, 1.5f);
     const float rad = std::round(0.22f * u);
-    for (const ImVec2& p : points) dl->AddCircleFilled(p, rad, palette::kText, 12);
-    // A wide plot (the ear threshold) names its first and last day.
+    std::size_t k = 0;
+    for (const auto& p : s.points) {
+        if (p.day < first_day) continue;
+        const ImVec2 c = points[k++];
+        if (std::isfinite(p.hi)) {  // the interval as a whisker with caps
+            const float ylo = y_of(std::max(p.lo, 0.0)), yhi = y_of(p.hi);
+            dl->AddRectFilled(ImVec2(c.x - 1, yhi), ImVec2(c.x + 1, ylo), palette::kTextDim);
+            dl->AddRectFilled(ImVec2(c.x - rad, yhi - 1), ImVec2(c.x + rad, yhi + 1), palette::kTextDim);
+            dl->AddRectFilled(ImVec2(c.x - rad, ylo - 1), ImVec2(c.x + rad, ylo + 1), palette::kTextDim);
+        }
+        if (p.finer) draw_tuning_shape(dl, Tuning::flat, c, rad * 1.3f, palette::kInTune);  // pointing down: finer than this
+        else dl->AddCircleFilled(c, rad, palette::kText, 12);
+    }
+    // A wide plot (the ear results) names its first and last day.
     if (w > 20.0f * u && first_day != last_day) {
         const std::string from = day_text(first_day), to = day_text(last_day);
-        draw_text(dl, FontFace::body, ImVec2(px0, py1 - u), palette::kTextFaint, from);
+        const float fx = hold ? px0 : px0 + std::round(3.0f * u);  // right of the scale's "0 c"
+        draw_text(dl, FontFace::body, ImVec2(fx, py1 - u), palette::kTextFaint, from);
         draw_text(dl, FontFace::body, ImVec2(px1 - text_size(FontFace::body, to).x, py1 - u), palette::kTextFaint, to);
     }
 }
@@ -88,7 +122,9 @@ void draw_drill_progress(ImDrawList* dl, const DrillProgress& hist, const Drill&
     draw_panel(dl, x0, y0, w, h);
     const Drill* d = &drill;
     const bool ear = d->mode == DrillMode::ear;
-    const std::string head = ear ? "History of " + d->title + ": the threshold per day, in cents (lower is finer)"
+    const std::string head = ear ? (d->task == ui::EarTask::discriminate
+                                        ? "History of " + d->title + ": the threshold fitted to each day's answers, in cents (lower is finer)"
+                                        : "History of " + d->title + ": the share named right per day")
                                  : "History of " + d->title + ": mean deviation per target per day, in cents (band \xC2\xB1" +
                                        pitch::format_trimmed(d->tolerance_cents, 1) + " c)";
     draw_text(dl, FontFace::body, ImVec2(x0 + u, y0 + std::round(0.3f * u)), palette::kTextDim, head);
@@ -113,7 +149,8 @@ void draw_drill_progress(ImDrawList* dl, const DrillProgress& hist, const Drill&
     const std::size_t shown = std::min(n, static_cast<std::size_t>(rows * cols));
     for (std::size_t i = 0; i < shown; ++i) {
         const int c = static_cast<int>(i) % cols, r = static_cast<int>(i) / cols;
-        small_plot(dl, hist.series[i], ear, d->tolerance_cents, x0 + u + static_cast<float>(c) * (cw + gap), gy + static_cast<float>(r) * (ch + gap), cw, ch);
+        const PlotKind kind = !ear ? PlotKind::hold : d->task == ui::EarTask::discriminate ? PlotKind::threshold : PlotKind::share;
+        small_plot(dl, hist.series[i], kind, d->tolerance_cents, x0 + u + static_cast<float>(c) * (cw + gap), gy + static_cast<float>(r) * (ch + gap), cw, ch);
     }
     if (shown < n) {
         std::string more = "+";  // (appended: GCC 12 warns falsely, -Wrestrict, on "+" + std::string)

@@ -62,7 +62,7 @@ ImVec4 v4(std::uint32_t c) { return ImGui::ColorConvertU32ToFloat4(c); }
 constexpr KeyHelp kDrillKeys[] = {
     {"Enter", "start the chosen drill (again)"},
     {"S", "stop the drill"},
-    {"1 / 2", "ear drills: answer"},
+    {"1 .. 9", "ear drills: answer (the first, the second; or the interval's number)"},
     {"PgUp / PgDn", "choose the drill above / below"},
     {"Lane", "during a hold: your pitch; the green window is the drill's tolerance"},
 };
@@ -94,6 +94,7 @@ private:
     void attempt_panel(ImDrawList* dl, float x0, float y0, float w, float h);
     void hold_trace(ImDrawList* dl, const HoldResult& r, float x0, float y0, float w, float h);
     void ear_track(ImDrawList* dl, float x0, float y0, float w, float h);
+    void ear_matrix(ImDrawList* dl, float x0, float y0, float w, float h);
 
     const Drill* chosen() const { return selected_ < drills_.size() ? &drills_[selected_] : nullptr; }
     const Drill& run_drill() const { return runner_->drill(); }
@@ -136,11 +137,12 @@ void DrillsScreen::load(AppState& app) {
         }
     }
     const AppOptions& o = app.options();
-    if (o.listener_cents) {
-        ui::ListenerConfig lc;
-        lc.threshold_cents = *o.listener_cents;
-        lc.seed = o.seed;
-        listener_.emplace(lc);
+    if (!o.listener.empty()) {
+        try {
+            listener_.emplace(parse_listener(o.listener, o.seed));
+        } catch (const Error& e) {
+            app.post(e.what(), true);
+        }
     }
     if (o.log) {
         try {
@@ -182,8 +184,12 @@ void DrillsScreen::start(AppState& app) {
         app.post("no input: a hold drill listens to you; choose an input in Settings (or start with --demo)", true);
         return;
     }
-    RunnerConfig rc;
     const AppOptions& o = app.options();
+    if (d.mode == DrillMode::ear && !listener_ && !app.drone_heard()) {
+        app.post("no output device: an ear drill plays its questions, so it cannot start without one; choose an output in Settings", true);
+        return;
+    }
+    RunnerConfig rc;
     rc.seed = o.demo || o.simulated ? o.seed : static_cast<std::uint64_t>(std::chrono::steady_clock::now().time_since_epoch().count());
     rc.performer = d.mode == DrillMode::ear ? (listener_ ? kSimulatedListener : "") : o.demo ? kDemoPerformer : "";
     auto runner = std::make_unique<DrillRunner>(d, rc, writer_.get());
@@ -230,7 +236,7 @@ void DrillsScreen::pump(AppState& app) {
         now_s_ = run_drill().mode == DrillMode::hold ? app.stream_time_s() : app.app_time_s();
         runner_->advance(now_s_);
         for (const ToneRequest& t : runner_->take_tones()) {
-            if (!app.sound_tone(t.freq_hz, t.dur_s) && !warned_unheard_ && run_drill().mode == DrillMode::ear) {
+            if (!app.sound_tone(t.freq_hz, t.dur_s) && !warned_unheard_ && run_drill().mode == DrillMode::ear && !listener_) {
                 warned_unheard_ = true;
                 app.post("no output device: the questions cannot be heard (choose an output in Settings)", true);
             }
@@ -242,9 +248,7 @@ void DrillsScreen::pump(AppState& app) {
         if (listener_ && runner_->phase() == DrillPhase::ear_answer) {  // the simulated listener thinks for half a second
             if (!std::isfinite(answer_due_s_)) answer_due_s_ = now_s_ + 0.5;
             if (now_s_ >= answer_due_s_) {
-                const ui::EarQuestion& q = *runner_->question();
-                const bool right = listener_->answers_right(q.diff_cents);
-                runner_->answer(right ? q.correct_answer : 1 - q.correct_answer, now_s_);
+                runner_->answer(listener_->answer(*runner_->question(), run_drill().target_cents()), now_s_);
                 answer_due_s_ = INFINITY;
             }
         }
@@ -275,8 +279,8 @@ void DrillsScreen::keys_of_screen(AppState& app) {
     if (ImGui::IsKeyPressed(GLFW_KEY_ENTER, false) || ImGui::IsKeyPressed(GLFW_KEY_KP_ENTER, false)) start(app);
     if (ImGui::IsKeyPressed(GLFW_KEY_S, false) && runner_ && runner_->running()) stop(app, "drill stopped");
     if (runner_ && runner_->running() && run_drill().mode == DrillMode::ear) {
-        if (ImGui::IsKeyPressed(GLFW_KEY_1, false) || ImGui::IsKeyPressed(GLFW_KEY_KP_1, false)) runner_->answer(0, now_s_);
-        if (ImGui::IsKeyPressed(GLFW_KEY_2, false) || ImGui::IsKeyPressed(GLFW_KEY_KP_2, false)) runner_->answer(1, now_s_);
+        for (int k = 0; k < 9; ++k)
+            if (ImGui::IsKeyPressed(GLFW_KEY_1 + k, false) || ImGui::IsKeyPressed(GLFW_KEY_KP_1 + k, false)) runner_->answer(k, now_s_);
     }
     if (!(runner_ && runner_->running()) && !drills_.empty()) {
         if (ImGui::IsKeyPressed(GLFW_KEY_PAGE_UP, true) && selected_ > 0) --selected_, history_dirty_ = true;
@@ -315,9 +319,12 @@ void DrillsScreen::idle_now(ImDrawList* dl, float x0, float y0, float w, float h
                 " cents. " + std::string(d->sound_target ? "Each target sounds first; then " : "") + "a count-in of " +
                 pitch::format_trimmed(d->lead_in_s, 1) + " s, and you sing or play.";
     } else {
-        facts = d->question == ui::EarMode::one_interval ? "A tone sounds over the drone: say which of two targets it was."
-                                                            : "Two tones sound in turn: say which one was the named target.";
-        facts += " The choices close in as you answer right.";
+        facts = d->task == ui::EarTask::discriminate
+                    ? "Two tones sound in turn over the drone, " + d->targets.front().target.interval.str() +
+                          " pure and mistuned: say which was pure. The mistuning shrinks after two right answers and grows "
+                          "after a wrong one; the drill " + stop_rule_text(d->staircase) + "."
+                    : "One tone sounds over the drone: say which of the " + std::to_string(d->targets.size()) +
+                          " intervals it was. Each is asked " + std::to_string(d->rounds) + " times.";
     }
     ImGui::SetCursorScreenPos(ImVec2(x0 + u, y));
     ImGui::PushTextWrapPos(x0 + w - u);
@@ -426,78 +433,96 @@ void DrillsScreen::hold_now(AppState& app, ImDrawList* dl, float x0, float y0, f
 }
 
 void DrillsScreen::ear_now(AppState& app, ImDrawList* dl, float x0, float y0, float w, float h) {
-    (void)app;
     const float u = ui_unit();
     const DrillRunner& r = *runner_;
     const DrillPhase ph = r.phase();
     const Drill& d = run_drill();
+    const bool disc = d.task == ui::EarTask::discriminate;
     float y = y0 + std::round(0.5f * u);
-    char buf[200];
     const bool over = ph == DrillPhase::finished || ph == DrillPhase::stopped;
-    const int asked = static_cast<int>(r.answers().size()) + (ph == DrillPhase::ear_feedback || over ? 0 : 1);
-    if (over) std::snprintf(buf, sizeof buf, "%s  \xC2\xB7  %d answered", d.title.c_str(), asked);
-    else std::snprintf(buf, sizeof buf, "%s  \xC2\xB7  question %d", d.title.c_str(), std::max(1, asked));
-    if (const ui::EarQuestion* q = r.question(); q && ph != DrillPhase::finished)
-        std::snprintf(buf + std::strlen(buf), sizeof buf - std::strlen(buf), "  \xC2\xB7  the two are %.0f cents apart", q->diff_cents);
-    draw_text(dl, FontFace::body, ImVec2(x0 + u, y), palette::kTextDim, buf);
+    const ui::EarQuestion* q = r.question();
+    // The top line: which question, and (discriminate) the mistuning it plays.
+    std::string top = d.title + "  \xC2\xB7  ";
+    if (over) {
+        top += std::to_string(r.answers().size()) + " answered";
+    } else if (q) {
+        top += "question " + std::to_string(q == nullptr ? 0 : r.answers().size() + (ph == DrillPhase::ear_feedback ? 0 : 1));
+        if (!disc) top += " of " + std::to_string(r.questions_total());
+        else top += "  \xC2\xB7  mistuned by " + pitch::format_trimmed(q->level_cents, q->level_cents < 10.0 ? 2 : 1) + " c";
+    } else {
+        top += "the drone alone";
+    }
+    if (listener_) top += app.drone_heard() ? "  \xC2\xB7  simulated listener" : "  \xC2\xB7  simulated listener, nothing sounds";
+    draw_text(dl, FontFace::body, ImVec2(x0 + u, y), palette::kTextDim, fit_text(FontFace::body, top, w - 2.0f * u));
     y += std::round(1.5f * u);
-    if (ph == DrillPhase::finished || ph == DrillPhase::stopped) {
+    if (over) {
         draw_text(dl, FontFace::medium, ImVec2(x0 + u, y), palette::kText, ph == DrillPhase::stopped ? "Stopped" : "Session finished");
         y += font_px(FontFace::medium) + std::round(0.5f * u);
-        if (r.ear_result()) {
-            draw_text(dl, FontFace::bold, ImVec2(x0 + u, y), palette::kText, ear_summary_text(*r.ear_result()));
-            if (std::isfinite(r.ear_result()->threshold_cents)) {
-                // What the staircase's rule converges to (Levitt 1971): p^n_down = 1/2.
-                const double p = std::pow(0.5, 1.0 / d.staircase.n_down);
-                std::snprintf(buf, sizeof buf, "Targets %s cents apart you tell apart about %.0f %% of the time.",
-                              pitch::format_trimmed(r.ear_result()->threshold_cents, 1).c_str(), 100.0 * p);
-                draw_text(dl, FontFace::body, ImVec2(x0 + u, y + std::round(1.4f * u)), palette::kTextDim, buf);
+        if (const auto& res = r.ear_result()) {
+            draw_text(dl, FontFace::bold, ImVec2(x0 + u, y), palette::kText, fit_text(FontFace::bold, ear_summary_text(*res), w - 2.0f * u));
+            std::string why;
+            if (disc) {
+                why = res->complete ? "Stopped " + stopped_by_text(res->stopped_by, d.staircase) : std::string("Stopped before the stopping rule");
+                if (res->estimate.verdict == ui::ThresholdVerdict::measured) {
+                    char pct[16];
+                    std::snprintf(pct, sizeof pct, "%.1f", 100.0 * d.fit_config().threshold_p);
+                    why += "; a mistuning of " + pitch::format_trimmed(res->estimate.threshold_cents, 1) + " c is named right " + pct +
+                           " % of the time.";
+                } else if (res->estimate.verdict == ui::ThresholdVerdict::finer) {
+                    why += "; heard at the smallest mistuning this drill plays.";
+                } else {
+                    why += "; no mistuning up to " + pitch::format_trimmed(d.staircase.max_level, 0) + " c was heard reliably.";
+                }
+            } else {
+                why = "The confusion matrix below: what was played against what was named.";
             }
+            draw_text(dl, FontFace::body, ImVec2(x0 + u, y + std::round(1.4f * u)), palette::kTextDim, fit_text(FontFace::body, why, w - 2.0f * u));
         }
         draw_text(dl, FontFace::bold, ImVec2(x0 + u, y0 + h - std::round(1.8f * u)), palette::kText, "Press Enter to go again, or choose another drill.");
         return;
     }
-    if (ph == DrillPhase::ready) {
+    if (ph == DrillPhase::ready || !q) {
         draw_text(dl, FontFace::medium, ImVec2(x0 + u, y), palette::kText, "Listen to the drone");
+        char buf[64];
         std::snprintf(buf, sizeof buf, "the first question in %d", static_cast<int>(std::ceil(r.time_left_s(now_s_) - 1e-9)));
         draw_text(dl, FontFace::body, ImVec2(x0 + u, y + font_px(FontFace::medium) + std::round(0.3f * u)), palette::kTextDim, buf);
         return;
     }
-    const ui::EarQuestion* q = r.question();
-    if (!q) return;
     const auto& targets = d.targets;
-    const bool one = d.question == ui::EarMode::one_interval;
-    std::string ask;
-    if (one) ask = "Which was it?";
-    else ask = "Which was " + targets[q->asked].target.interval.str() + ": the first or the second?";
+    const std::string ask = disc ? "Which was " + targets.front().target.interval.str() + " pure: the first or the second?" : std::string("Which was it?");
     draw_text(dl, FontFace::medium, ImVec2(x0 + u, y), palette::kText, ask);
-    // What sounds now.
     std::string playing;
     if (ph == DrillPhase::ear_play) {
         const double into = now_s_ - r.phase_start_s();
-        playing = one ? "listen\xE2\x80\xA6" : (into < d.tone_s + 0.5 * 0.5 ? "listen: the first\xE2\x80\xA6" : "listen: the second\xE2\x80\xA6");
+        playing = !disc ? "listen\xE2\x80\xA6" : (into < d.tone_s ? "listen: the first\xE2\x80\xA6" : "listen: the second\xE2\x80\xA6");
     } else if (ph == DrillPhase::ear_answer) {
-        playing = "press 1 or 2, or click";
+        playing = disc ? "press 1 or 2, or click" : "press its number, or click";
     }
-    if (!playing.empty())
-        draw_text(dl, FontFace::body, ImVec2(x0 + w - u - text_size(FontFace::body, playing).x, y + std::round(0.4f * u)), palette::kTextDim, playing);
-    y += font_px(FontFace::medium) + std::round(0.9f * u);
-    // The two answers as big buttons: the key, the ratio, its name.
-    const float bw = std::round(0.5f * (w - 3.0f * u));
-    const float bh = std::round(std::clamp(y0 + h - y - 2.4f * u, 2.4f * u, 3.8f * u));
+    y += font_px(FontFace::medium) + std::round(0.2f * u);
+    draw_text(dl, FontFace::body, ImVec2(x0 + u, y), palette::kTextDim, playing);
+    y += std::round(1.4f * u);
+    // The answers as buttons: the key, then "the first" / the interval and its name.
+    const int n = disc ? 2 : static_cast<int>(targets.size());
+    const int cols = disc ? 2 : std::min(n, 3);
+    const int rows = (n + cols - 1) / cols;
+    const float gap = std::round(0.6f * u);
+    const float bw = std::floor((w - 2.0f * u - gap * static_cast<float>(cols - 1)) / static_cast<float>(cols));
+    const float avail = y0 + h - y - 2.2f * u;
+    const float bh = std::round(std::clamp((avail - gap * static_cast<float>(rows - 1)) / static_cast<float>(rows), 1.8f * u, 3.8f * u));
     const bool open = r.answer_open(now_s_);
     const EarAnswer* last = ph == DrillPhase::ear_feedback && !r.answers().empty() ? &r.answers().back() : nullptr;
-    for (int k = 0; k < 2; ++k) {
+    for (int k = 0; k < n; ++k) {
         std::string big, small;
-        if (one) {
-            const pitch::Target& tt = targets[q->choices[static_cast<std::size_t>(k)]].target;
+        if (disc) {
+            big = k == 0 ? "the first" : "the second";
+        } else {
+            const pitch::Target& tt = targets[static_cast<std::size_t>(k)].target;
             big = tt.interval.str();
             small = tt.name;
-        } else {
-            big = k == 0 ? "the first" : "the second";
         }
-        const float bx = x0 + u + static_cast<float>(k) * (bw + u);
-        ImGui::SetCursorScreenPos(ImVec2(bx, y));
+        const float bx = x0 + u + static_cast<float>(k % cols) * (bw + gap);
+        const float by = y + static_cast<float>(k / cols) * (bh + gap);
+        ImGui::SetCursorScreenPos(ImVec2(bx, by));
         ImGui::PushID(k);
         const bool clicked = ImGui::InvisibleButton("##answer", ImVec2(bw, bh));
         const bool hovered = ImGui::IsItemHovered();
@@ -505,36 +530,41 @@ void DrillsScreen::ear_now(AppState& app, ImDrawList* dl, float x0, float y0, fl
         if (clicked && open) runner_->answer(k, now_s_);
         std::uint32_t bg = open && hovered ? palette::with_alpha(palette::kAccent, 170) : palette::kPanelRaised;
         std::uint32_t border = open ? palette::kGrid : palette::kPanelRaised;
-        if (last && k == q->correct_answer) border = palette::kInTune;
+        if (last && k == last->question.correct_answer) border = palette::kInTune;
         else if (last && k == last->answer && !last->correct) border = palette::kSharp;
-        dl->AddRectFilled(ImVec2(bx, y), ImVec2(bx + bw, y + bh), bg, std::round(0.2f * u));
-        dl->AddRect(ImVec2(bx, y), ImVec2(bx + bw, y + bh), border, std::round(0.2f * u), 0, last ? 3.0f : 1.0f);
+        dl->AddRectFilled(ImVec2(bx, by), ImVec2(bx + bw, by + bh), bg, std::round(0.2f * u));
+        dl->AddRect(ImVec2(bx, by), ImVec2(bx + bw, by + bh), border, std::round(0.2f * u), 0, last ? 3.0f : 1.0f);
         const std::uint32_t ink = open || last ? palette::kText : palette::kTextDim;
         const std::string key = std::to_string(k + 1);
-        const float kx = bx + std::round(0.8f * u);
-        const float mid = y + 0.5f * bh;
+        const float kx = bx + std::round(0.6f * u);
+        const float mid = by + 0.5f * bh;
         dl->AddRect(ImVec2(kx, mid - 0.75f * u), ImVec2(kx + 1.5f * u, mid + 0.75f * u), ink, 3.0f, 0, 1.5f);
         draw_text_centred(dl, FontFace::bold, kx + 0.75f * u, mid - 0.55f * u, ink, key);
-        const float tx = kx + std::round(2.3f * u);
-        const float tw = bx + bw - std::round(0.6f * u) - tx;
-        if (small.empty()) {
+        const float tx = kx + std::round(2.1f * u);
+        const float tw = bx + bw - std::round(0.5f * u) - tx;
+        if (small.empty() || bh < 2.6f * u) {
             draw_text(dl, FontFace::medium, ImVec2(tx, mid - 0.5f * font_px(FontFace::medium)), ink, fit_text(FontFace::medium, big, tw));
         } else {
-            const float top = mid - 0.5f * (font_px(FontFace::medium) + 1.2f * u);
-            draw_text(dl, FontFace::medium, ImVec2(tx, top), ink, fit_text(FontFace::medium, big, tw));
-            draw_text(dl, FontFace::body, ImVec2(tx, top + font_px(FontFace::medium) + std::round(0.1f * u)), palette::kTextDim, fit_text(FontFace::body, small, tw));
+            const float tp = mid - 0.5f * (font_px(FontFace::medium) + 1.2f * u);
+            draw_text(dl, FontFace::medium, ImVec2(tx, tp), ink, fit_text(FontFace::medium, big, tw));
+            draw_text(dl, FontFace::body, ImVec2(tx, tp + font_px(FontFace::medium) + std::round(0.1f * u)), palette::kTextDim, fit_text(FontFace::body, small, tw));
         }
     }
-    y += bh + std::round(0.6f * u);
+    y += static_cast<float>(rows) * bh + static_cast<float>(rows - 1) * gap + std::round(0.5f * u);
     if (last) {
-        const pitch::Target& right = targets[one ? q->played[0] : q->asked].target;
+        const ui::EarQuestion& lq = last->question;
         std::string s = last->correct ? "Right" : "Not this time";
-        s += one ? ": it was " + right.interval.str() : std::string(": it was the ") + (q->correct_answer == 0 ? "first" : "second");
+        if (disc) {
+            const std::string off = pitch::format_trimmed(lq.level_cents, lq.level_cents < 10.0 ? 2 : 1) + " c " + (lq.mistune_sign > 0 ? "wider" : "narrower");
+            s += std::string(": the ") + (lq.correct_answer == 0 ? "first" : "second") + " was pure, the " + (lq.correct_answer == 0 ? "second" : "first") + " " + off;
+        } else {
+            s += ": it was " + targets[lq.target].target.interval.str();
+        }
         const std::uint32_t col = last->correct ? palette::kInTune : palette::kSharp;
         const float r0 = std::round(0.42f * u);
         if (last->correct) dl->AddCircleFilled(ImVec2(x0 + u + r0, y + 0.55f * u), r0, col, 20);
         else draw_tuning_shape(dl, Tuning::sharp, ImVec2(x0 + u + r0, y + 0.55f * u), r0, col);
-        draw_text(dl, FontFace::bold, ImVec2(x0 + u + 2.0f * r0 + std::round(0.5f * u), y), col, s);
+        draw_text(dl, FontFace::bold, ImVec2(x0 + u + 2.0f * r0 + std::round(0.5f * u), y), col, fit_text(FontFace::bold, s, w - 4.0f * u));
     }
 }
 
@@ -614,39 +644,112 @@ void DrillsScreen::hold_trace(ImDrawList* dl, const HoldResult& r, float x0, flo
     dl->PopClipRect();
 }
 
-// The staircase: the level asked at each answer (log scale), right or wrong, and the threshold.
+// The staircase: the mistuning played at each answer (log scale), right or
+// wrong; when finished, the fitted threshold and its interval.
 void DrillsScreen::ear_track(ImDrawList* dl, float x0, float y0, float w, float h) {
     const float u = ui_unit();
     const DrillRunner& r = *runner_;
     const auto& as = r.answers();
-    const float gutter = std::round(3.2f * u);
+    const float gutter = std::round(3.4f * u);
     const float px0 = x0 + gutter, px1 = x0 + w - std::round(0.6f * u);
     const float py0 = y0 + std::round(0.3f * u), py1 = y0 + h - std::round(1.4f * u);
     if (px1 - px0 < 4.0f * u || py1 - py0 < 2.0f * u) return;
     dl->AddRectFilled(ImVec2(px0, py0), ImVec2(px1, py1), palette::kBackground);
     const auto& sc = run_drill().staircase;
-    const double lo = std::log(sc.min_level), hi = std::log(std::max(sc.max_level, sc.start_level));
-    auto y_of = [&](double c) { return std::round(py1 - static_cast<float>((std::log(std::max(c, sc.min_level)) - lo) / (hi - lo)) * (py1 - py0)); };
-    const int n = std::max<int>(sc.max_trials > 0 ? std::min(sc.max_trials, std::max<int>(40, static_cast<int>(as.size()) + 5)) : 40, 1);
+    const double top_c = std::max(sc.max_level, sc.start_level);
+    const double lo = std::log(sc.min_level), hi = std::log(top_c);
+    auto y_of = [&](double c) {
+        return std::round(py1 - static_cast<float>((std::log(std::clamp(c, sc.min_level, top_c)) - lo) / (hi - lo)) * (py1 - py0));
+    };
+    const int n = std::max(1, std::min(sc.max_trials, std::max<int>(40, static_cast<int>(as.size()) + 5)));
     auto x_of = [&](int i) { return px0 + (static_cast<float>(i) + 0.5f) * (px1 - px0) / static_cast<float>(n); };
-    for (double c : {5.0, 10.0, 20.0, 40.0, 80.0}) {
-        if (c < sc.min_level || c > std::max(sc.max_level, sc.start_level)) continue;
+    float last_label_y = 1e9f;
+    for (double c : {0.5, 1.0, 2.0, 5.0, 10.0, 20.0, 50.0, 100.0, 200.0, 500.0}) {
+        if (c < sc.min_level - 1e-9 || c > top_c + 1e-9) continue;
         const float y = y_of(c);
+        if (last_label_y - y < 1.2f * u) continue;  // labels never overlap
+        last_label_y = y;
         dl->AddRectFilled(ImVec2(px0, y), ImVec2(px1, y + 1), palette::kGrid);
-        draw_text(dl, FontFace::body, ImVec2(x0 + std::round(0.4f * u), y - 0.55f * u), palette::kTextDim, pitch::format_trimmed(c, 0) + " c");
+        const std::string t = pitch::format_trimmed(c, 1) + " c";
+        draw_text(dl, FontFace::body, ImVec2(px0 - std::round(0.3f * u) - text_size(FontFace::body, t).x, y - 0.55f * u), palette::kTextDim, t);
     }
-    if (r.ear_result() && std::isfinite(r.ear_result()->threshold_cents)) {
-        const float y = y_of(r.ear_result()->threshold_cents);
+    const auto& res = r.ear_result();
+    if (res && res->estimate.verdict == ui::ThresholdVerdict::measured) {
+        const ui::ThresholdEstimate& e = res->estimate;
+        dl->AddRectFilled(ImVec2(px0, y_of(std::min(e.hi_cents, top_c))), ImVec2(px1, y_of(std::max(e.lo_cents, sc.min_level))),
+                          palette::with_alpha(palette::kCurrentTarget, 50));
+        const float y = y_of(e.threshold_cents);
+        dl->AddRectFilled(ImVec2(px0, y - 1), ImVec2(px1, y + 1), palette::kCurrentTarget);
+    } else if (res && res->estimate.verdict == ui::ThresholdVerdict::finer) {
+        const float y = y_of(res->estimate.smallest_cents);
         dl->AddRectFilled(ImVec2(px0, y - 1), ImVec2(px1, y + 1), palette::kCurrentTarget);
     }
     const float rad = std::round(0.28f * u);
     for (std::size_t i = 0; i < as.size() && static_cast<int>(i) < n; ++i) {
-        const ImVec2 c(x_of(static_cast<int>(i)), y_of(as[i].level_cents));
+        const ImVec2 c(x_of(static_cast<int>(i)), y_of(as[i].question.level_cents));
         if (as[i].correct) dl->AddCircleFilled(c, rad, palette::kInTune, 12);
         else draw_tuning_shape(dl, Tuning::sharp, c, rad, palette::kSharp);
     }
-    draw_text(dl, FontFace::body, ImVec2(px0, py1 + std::round(0.2f * u)), palette::kTextDim,
-              "the difference asked at each answer: disc right, triangle wrong; yellow line: the threshold");
+    // The legend, in what fits: the full sentence, else a short one.
+    const float lw = px1 - px0;
+    std::string legend = "the mistuning played at each answer (log scale): disc right, triangle wrong";
+    if (res && res->estimate.verdict == ui::ThresholdVerdict::measured) legend += "; yellow: the threshold, band: its 95 % interval";
+    else if (res && res->estimate.verdict == ui::ThresholdVerdict::finer) legend += "; yellow: the smallest mistuning played";
+    if (text_size(FontFace::body, legend).x > lw) legend = "mistuning played: disc right, triangle wrong" + std::string(res && res->estimate.verdict != ui::ThresholdVerdict::none ? "; yellow: the result" : "");
+    draw_text(dl, FontFace::body, ImVec2(px0, py1 + std::round(0.2f * u)), palette::kTextDim, fit_text(FontFace::body, legend, lw));
+}
+
+// Identification: the confusion matrix so far (rows played, columns named)
+// and, beside it, the share right for the closest pairs.
+void DrillsScreen::ear_matrix(ImDrawList* dl, float x0, float y0, float w, float h) {
+    const float u = ui_unit();
+    const Drill& d = run_drill();
+    const std::size_t n = d.targets.size();
+    std::vector<std::vector<int>> m(n, std::vector<int>(n, 0));
+    for (const EarAnswer& a : runner_->answers()) ++m[a.question.target][static_cast<std::size_t>(a.answer)];
+    const float label_w = std::round(5.0f * u);
+    const float cw = std::round(std::min((0.5f * w - label_w) / static_cast<float>(n), 4.0f * u));
+    const float ch = std::floor(std::min((h - 0.2f * u) / static_cast<float>(n + 1), 1.6f * u));
+    if (cw < 2.0f * u || ch < 0.75f * u) return;
+    const float mx0 = x0 + u + label_w, my0 = y0 - std::round(0.3f * u);
+    draw_text(dl, FontFace::body, ImVec2(x0 + u, my0 + 0.5f * ch - 0.55f * u), palette::kTextFaint, "played \xE2\x86\x93");
+    for (std::size_t k = 0; k < n; ++k) {
+        const std::string name = d.targets[k].target.interval.str();
+        draw_text_centred(dl, FontFace::body, mx0 + (static_cast<float>(k) + 0.5f) * cw, my0 + 0.5f * ch - 0.55f * u, palette::kTextDim,
+                          fit_text(FontFace::body, name, cw));
+        draw_text(dl, FontFace::body, ImVec2(x0 + u, my0 + static_cast<float>(k + 1) * ch + 0.5f * ch - 0.55f * u), palette::kTextDim, name);
+    }
+    for (std::size_t i = 0; i < n; ++i) {
+        int row = 0;
+        for (int c : m[i]) row += c;
+        for (std::size_t k = 0; k < n; ++k) {
+            const float cx = mx0 + static_cast<float>(k) * cw, cy = my0 + static_cast<float>(i + 1) * ch;
+            const double share = row > 0 ? static_cast<double>(m[i][k]) / row : 0.0;
+            const std::uint32_t base = i == k ? palette::kInTune : palette::kSharp;
+            dl->AddRectFilled(ImVec2(cx + 1, cy + 1), ImVec2(cx + cw - 1, cy + ch - 1),
+                              m[i][k] > 0 ? palette::with_alpha(base, static_cast<unsigned>(40 + 170 * share)) : palette::kPanelRaised);
+            if (m[i][k] > 0) draw_text_centred(dl, FontFace::bold, cx + 0.5f * cw, cy + 0.5f * ch - 0.55f * u, palette::kText, std::to_string(m[i][k]));
+        }
+    }
+    // The closest pairs, each with its share right so far.
+    const std::vector<double> cents = d.target_cents();
+    const float lx = mx0 + static_cast<float>(n) * cw + std::round(1.5f * u);
+    const float lw = x0 + w - u - lx;
+    float ly = y0;
+    draw_text(dl, FontFace::body, ImVec2(lx, ly), palette::kTextDim,
+              fit_text(FontFace::body, "right per pair, closest first:", lw));
+    ly += std::round(1.4f * u);
+    for (const auto& [i, k] : pairs_closest_first(cents)) {
+        if (ly + u > y0 + h) break;
+        const double share = pair_share_right(m, i, k);
+        const int of = pair_answers(m, i, k);
+        char buf[120];
+        std::snprintf(buf, sizeof buf, "%s | %s (%s c): %s", d.targets[i].target.interval.str().c_str(), d.targets[k].target.interval.str().c_str(),
+                      pitch::format_trimmed(std::fabs(cents[i] - cents[k]), 1).c_str(),
+                      std::isfinite(share) ? (std::to_string(std::lround(100.0 * share)) + " % of " + std::to_string(of)).c_str() : "not yet");
+        draw_text(dl, FontFace::body, ImVec2(lx, ly), palette::kText, fit_text(FontFace::body, buf, lw));
+        ly += std::round(1.2f * u);
+    }
 }
 
 void DrillsScreen::attempt_panel(ImDrawList* dl, float x0, float y0, float w, float h) {
@@ -655,12 +758,16 @@ void DrillsScreen::attempt_panel(ImDrawList* dl, float x0, float y0, float w, fl
     const float x = x0 + u;
     float y = y0 + std::round(0.5f * u);
     if (runner_ && run_drill().mode == DrillMode::ear && (!runner_->answers().empty() || runner_->ear_result())) {
-        std::string head = runner_->ear_result() ? ear_summary_text(*runner_->ear_result())
-                                                 : std::to_string(runner_->answers().size()) + " answered, now " +
-                                                       pitch::format_trimmed(runner_->staircase()->level(), 1) + " cents apart";
-        draw_text(dl, FontFace::bold, ImVec2(x, y), palette::kText, head);
+        const bool disc = run_drill().task == ui::EarTask::discriminate;
+        int right = 0;
+        for (const EarAnswer& a : runner_->answers()) right += a.correct ? 1 : 0;
+        const std::string head = runner_->ear_result() ? ear_summary_text(*runner_->ear_result())
+                                                       : std::to_string(runner_->answers().size()) + " answered so far, " +
+                                                             std::to_string(right) + " right";
+        draw_text(dl, FontFace::bold, ImVec2(x, y), palette::kText, fit_text(FontFace::bold, head, w - 2.0f * u));
         y += std::round(1.5f * u);
-        ear_track(dl, x0, y, w, y0 + h - y - std::round(0.2f * u));
+        if (disc) ear_track(dl, x0, y, w, y0 + h - y - std::round(0.2f * u));
+        else ear_matrix(dl, x0, y, w, y0 + h - y - std::round(0.2f * u));
         return;
     }
     if (!runner_ || runner_->results().empty()) {

@@ -53,7 +53,7 @@ struct AppOptions {
     bool drone = false;                   // start the drone at once (acknowledges nothing: the caution still applies)
     bool save_settings = true;            // false: never write the settings file (snapshot)
     std::string drill;                    // the Drills screen chooses and starts this drill (a name or a .toml path)
-    std::optional<double> listener_cents; // ear drills: a simulated listener of this threshold answers (demos, snapshots)
+    std::string listener;                 // ear drills: a simulated listener answers: "perfect", "guess" or cents (demos, snapshots)
     bool log = true;                      // attempts go to the practice log (false: kept in memory only)
     std::string log_file;                 // the practice log; empty = the data folder's practice.sqlite3
 };

@@ -98,7 +98,7 @@ ui::StaircaseConfig parse_staircase(const TomlDoc& doc, const toml::table* t) {
     if (!t) return c;
     check_keys(doc, *t,
               {"rule", "scale", "start_cents", "steps", "min_cents", "max_cents", "stop_reversals", "threshold_reversals",
-               "max_trials"},
+               "max_trials", "floor_run"},
               "[staircase]");
     c.n_down = choice(doc, *t, "rule", 2, {{"2-down", 2}, {"3-down", 3}});
     c.scale = choice(doc, *t, "scale", c.scale, {{"geometric", ui::StepScale::geometric}, {"linear", ui::StepScale::linear}});
@@ -117,6 +117,7 @@ ui::StaircaseConfig parse_staircase(const TomlDoc& doc, const toml::table* t) {
     c.stop_reversals = int_in(doc, *t, "stop_reversals", c.stop_reversals, 2, 100);
     c.threshold_reversals = int_in(doc, *t, "threshold_reversals", c.threshold_reversals, 2, 100);
     c.max_trials = int_in(doc, *t, "max_trials", c.max_trials, 1, 10000);
+    c.floor_run = int_in(doc, *t, "floor_run", c.floor_run, 0, 1000);
     try {
         ui::check_staircase_config(c);
     } catch (const Error& e) {
@@ -182,7 +183,7 @@ Drill parse_doc(const TomlDoc& doc) {
                    "lead_in_s", "rest_s", "tolerance_cents", "dwell_s", "sound_target"},
                   "a hold drill");
     else
-        check_keys(doc, top, {"kind", "title", "about", "mode", "drone", "target", "target_set", "question", "tone_s", "staircase"},
+        check_keys(doc, top, {"kind", "title", "about", "mode", "drone", "target", "target_set", "task", "tone_s", "staircase", "rounds"},
                   "an ear drill");
     d.drone = parse_drone(doc, sub_table(doc, top, "drone"));
     d.targets = parse_targets(doc, top, hold);
@@ -201,11 +202,21 @@ Drill parse_doc(const TomlDoc& doc) {
                             " must be shorter than the hold (" + pitch::format_trimmed(d.hold_of(t), 3) + " s for " +
                             t.target.interval.str() + ")");
     } else {
-        d.question = choice(doc, top, "question", d.question, {{"one", ui::EarMode::one_interval}, {"two", ui::EarMode::two_intervals}});
+        if (!top["task"]) throw Error(doc.source + ": `task`: required key missing (\"discriminate\" or \"identify\")");
+        d.task = choice(doc, top, "task", d.task, {{"discriminate", ui::EarTask::discriminate}, {"identify", ui::EarTask::identify}});
         d.tone_s = number_in(doc, top, "tone_s", d.tone_s, 0.3, 10.0);
-        d.staircase = parse_staircase(doc, sub_table(doc, top, "staircase"));
+        if (d.task == ui::EarTask::discriminate) {
+            if (top["rounds"]) throw Error(where(doc, top["rounds"]) + "`rounds`: only for task = \"identify\"");
+            if (d.targets.size() != 1)
+                throw Error(where(doc, top["target"]) + "`[[target]]`: a discrimination drill mistunes one interval; " +
+                            std::to_string(d.targets.size()) + " are given");
+            d.staircase = parse_staircase(doc, sub_table(doc, top, "staircase"));
+        } else {
+            if (top["staircase"]) throw Error(where(doc, top["staircase"]) + "`staircase`: only for task = \"discriminate\"");
+            d.rounds = int_in(doc, top, "rounds", d.rounds, 1, 50);
+        }
         try {
-            ui::EarQuestioner check(d.target_cents(), d.question, 1);
+            ui::EarQuestioner check(d.task, d.target_cents(), d.rounds, 1);
         } catch (const Error& e) {
             throw Error(where(doc, top["target"]) + "`[[target]]`: " + e.what());
         }
@@ -236,6 +247,14 @@ ui::HoldScoreConfig Drill::score_config(const DrillTarget& t, double hold_start_
     c.hold_start_s = hold_start_s;
     c.hold_dur_s = hold_of(t);
     c.hop_s = hop_s;
+    return c;
+}
+
+ui::FitConfig Drill::fit_config() const {
+    ui::FitConfig c;
+    c.threshold_p = std::pow(0.5, 1.0 / staircase.n_down);  // Levitt 1971: p^n_down = 1/2 (n_up = 1)
+    c.min_cents = staircase.min_level;
+    c.max_cents = staircase.max_level;
     return c;
 }
 
@@ -275,8 +294,12 @@ std::string drill_settings_json(const Drill& d) {
         j.key("repetitions").value(d.repetitions).key("order").value(d.order == TargetOrder::shuffle ? "shuffle" : "sequence");
         j.key("sound_target").value(d.sound_target);
     } else {
+        j.key("task").value(d.task == ui::EarTask::discriminate ? "discriminate" : "identify").key("tone_s").value(d.tone_s, 3);
+        if (d.task == ui::EarTask::identify) j.key("rounds").value(d.rounds);
+    }
+    if (d.mode == DrillMode::ear && d.task == ui::EarTask::discriminate) {
         const auto& s = d.staircase;
-        j.key("question").value(d.question == ui::EarMode::one_interval ? "one" : "two").key("tone_s").value(d.tone_s, 3);
+        const ui::FitConfig f = d.fit_config();
         j.key("staircase").begin_object();
         j.key("n_down").value(s.n_down).key("n_up").value(s.n_up);
         j.key("scale").value(s.scale == ui::StepScale::geometric ? "geometric" : "linear");
@@ -285,7 +308,11 @@ std::string drill_settings_json(const Drill& d) {
         j.end_array();
         j.key("min_cents").value(s.min_level, 4).key("max_cents").value(s.max_level, 4);
         j.key("stop_reversals").value(s.stop_reversals).key("threshold_reversals").value(s.threshold_reversals);
-        j.key("max_trials").value(s.max_trials);
+        j.key("max_trials").value(s.max_trials).key("floor_run").value(s.floor_run);
+        j.end_object();
+        j.key("fit").begin_object();
+        j.key("guess").value(f.guess, 4).key("lapse").value(f.lapse, 4).key("slope").value(f.slope, 4);
+        j.key("threshold_p").value(f.threshold_p, 4).key("chi2_crit").value(f.chi2_crit, 4);
         j.end_object();
     }
     j.key("targets").value(d.targets_text());

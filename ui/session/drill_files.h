@@ -2,10 +2,11 @@
 //
 // A hold drill sounds the drone, announces each target (and optionally plays
 // it), then scores the performer's hold (ui/session/drill_score.h). An ear drill
-// plays one or two intervals over the drone and asks which target it was,
-// narrowing the choices with a staircase (ui/session/staircase.h,
-// ui/session/ear_question.h). Keys (all ours; a key this loader does not know is
-// an error, so typos are caught):
+// either measures how small a mistuning of one interval the listener hears
+// (task "discriminate": a staircase, ui/session/staircase.h, and a fitted
+// threshold, ui/session/threshold_fit.h) or asks which of several intervals
+// sounded (task "identify": a confusion matrix); see ui/session/ear_question.h.
+// Keys (all ours; a key this loader does not know is an error, so typos are caught):
 //   title, about                 text for the Drills screen
 //   mode = "hold" | "ear"
 //   [drone] root (note or Hz, default "A2"), level_dbfs (-60..-6, default
@@ -15,16 +16,19 @@
 //   repetitions (1..50, default 1), order = "sequence" | "shuffle"
 //   hold:   hold_s (default 4), lead_in_s (2), rest_s (1), tolerance_cents
 //           (10), dwell_s (0.3), sound_target (false)
-//   ear:    question = "one" | "two", tone_s (default 2), [staircase] rule
-//           ("2-down" or "3-down"), scale ("geometric" | "linear"),
-//           start_cents, steps, min_cents, max_cents, stop_reversals,
-//           threshold_reversals, max_trials (defaults of StaircaseConfig)
+//   ear:    task = "discriminate" | "identify", tone_s (default 2);
+//           discriminate: exactly one [[target]], [staircase] rule ("2-down"
+//           or "3-down"), scale ("geometric" | "linear"), start_cents, steps,
+//           min_cents, max_cents, stop_reversals, threshold_reversals,
+//           max_trials, floor_run (defaults of StaircaseConfig);
+//           identify: two or more targets, rounds (1..50, default 8)
 // Errors name the file, line and key: "my-drill.toml:7: `hold_s`: 0 is out of range (0.5 to 120)".
 #pragma once
 
 #include "ui/session/drill_score.h"
 #include "ui/session/ear_question.h"
 #include "ui/session/staircase.h"
+#include "ui/session/threshold_fit.h"
 #include "pitch/theory/targets.h"
 
 #include <cmath>
@@ -68,9 +72,10 @@ struct Drill {
     double dwell_s = 0.3;          // default 0.3
     bool sound_target = false;     // play the target tone before the hold; default false
     // Ear drills
-    ui::EarMode question = ui::EarMode::one_interval;
+    ui::EarTask task = ui::EarTask::discriminate;
     double tone_s = 2.0;           // each tone's length; default 2
-    ui::StaircaseConfig staircase;
+    ui::StaircaseConfig staircase; // discriminate
+    int rounds = 8;                // identify: times each interval is asked; default 8
 
     // Hold: the targets in performing order, repetitions rounds, each round
     // shuffled with the seed when order = "shuffle".
@@ -80,6 +85,8 @@ struct Drill {
     ui::HoldScoreConfig score_config(const DrillTarget& t, double hold_start_s, double hop_s) const;
     std::vector<double> target_cents() const;
     std::string targets_text() const;   // "11/8 7/5 45/32 600c 10/7"
+    // discriminate: the fit for this drill's answers (its rule's point, its levels' range).
+    ui::FitConfig fit_config() const;
 };
 
 // Loads a built-in drill by name ("hold-tritones") or a file by path.

@@ -38,30 +38,50 @@ DrillProgress read_drill_progress(const std::string& log_path, const Drill& dril
         LogOptions lo;
         lo.read_only = true;
         PracticeLog log(log_path, lo);
+        if (d->mode == DrillMode::ear) {  // refitted from every answer of each day, as `beatless history --by day`
+            AttemptFilter f;
+            f.drill = d->id;
+            f.simulated = simulated;
+            DrillProgressSeries ps{d->id, d->title, {}, 0, 0};
+            for (const EarPeriodFit& e : fit_ear_periods(log, f, Period::day)) {
+                if (e.period == "all") continue;
+                const long day = day_number(e.period);
+                if (!e.discriminate) {
+                    if (e.answers > 0) ps.points.push_back({day, static_cast<double>(e.right) / static_cast<double>(e.answers), NAN, NAN, false});
+                    continue;
+                }
+                if (e.estimate.verdict == ui::ThresholdVerdict::measured)
+                    ps.points.push_back({day, e.estimate.threshold_cents, e.estimate.lo_cents, e.estimate.hi_cents, false});
+                else if (e.estimate.verdict == ui::ThresholdVerdict::finer)
+                    ps.points.push_back({day, e.estimate.smallest_cents, NAN, NAN, true});
+                else
+                    ++ps.no_threshold_days;
+            }
+            ps.attempts = log.count(f);
+            if (ps.points.empty() && ps.no_threshold_days == 0) out.note = "No attempts of this drill in the practice log yet.";
+            else out.series.push_back(std::move(ps));
+            return out;
+        }
         HistoryOptions ho;
         ho.filter.drill = d->id;
         ho.filter.simulated = simulated;
         ho.by = Period::day;
         const HistorySummary sum = summarize_history(log, ho);
         std::map<std::string, std::size_t> at;
-        if (d->mode == DrillMode::hold) {  // the drill's targets in its order, each once
-            for (const DrillTarget& t : d->targets) {
-                const std::string k = t.target.interval.str();
-                if (at.count(k)) continue;
-                at[k] = out.series.size();
-                out.series.push_back({k, t.target.name, {}, 0});
-            }
+        for (const DrillTarget& t : d->targets) {  // the drill's targets in its order, each once
+            const std::string k = t.target.interval.str();
+            if (at.count(k)) continue;
+            at[k] = out.series.size();
+            out.series.push_back({k, t.target.name, {}, 0, 0});
         }
         for (const HistoryLine& l : sum.over_time) {
-            const bool want = d->mode == DrillMode::hold ? l.kind == AttemptKind::hold : l.kind == AttemptKind::ear;
-            const double v = l.kind == AttemptKind::hold ? l.mean_dev_cents : l.threshold_cents;
-            if (!want || !std::isfinite(v)) continue;
+            if (l.kind != AttemptKind::hold || !std::isfinite(l.mean_dev_cents)) continue;
             if (!at.count(l.key)) {
                 at[l.key] = out.series.size();
-                out.series.push_back({l.key, l.name, {}, 0});
+                out.series.push_back({l.key, l.name, {}, 0, 0});
             }
             DrillProgressSeries& ps = out.series[at[l.key]];
-            ps.points.emplace_back(day_number(l.period), v);
+            ps.points.push_back({day_number(l.period), l.mean_dev_cents, NAN, NAN, false});
             ps.attempts += l.attempts;
         }
         if (sum.attempts == 0) out.note = "No attempts of this drill in the practice log yet.";

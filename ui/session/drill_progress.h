@@ -1,9 +1,11 @@
 // Drill progress — one drill's attempts from the practice log, per target and per day.
 //
-// Read with the queries `beatless history` uses (ui/session/log_summary.h,
-// by day, filtered by the drill's id): for a hold drill one series per
-// target in the drill's order (the day's mean signed deviation); for an ear
-// drill one series of the day's mean threshold. Drawn by ui/screens/drill_chart.h.
+// With the queries `beatless history --by day` uses (ui/session/log_summary.h,
+// filtered by the drill's id). Hold drills: one series per target in the
+// drill's order (the day's mean signed deviation). Discrimination drills:
+// one series, the threshold fitted to all of the day's answers with its
+// interval, or "finer than" the smallest level played. Identification
+// drills: the day's share right. Drawn by ui/screens/drill_chart.h.
 #pragma once
 
 #include "ui/session/drill_files.h"
@@ -15,11 +17,20 @@
 
 namespace beatless::ui {
 
+struct ProgressPoint {
+    long day = 0;          // days since 1970-01-01, UTC
+    double value = NAN;    // hold: mean deviation, cents; discriminate: threshold, cents; identify: share right 0..1
+    double lo = NAN;       // discriminate: the interval (lo may be 0: not bounded below)
+    double hi = NAN;
+    bool finer = false;    // discriminate: finer than value (the smallest level played)
+};
+
 struct DrillProgressSeries {
     std::string key;                              // "7/5", or the drill id (ear)
     std::string name;
-    std::vector<std::pair<long, double>> points;  // day number (days since 1970-01-01, UTC), value
+    std::vector<ProgressPoint> points;            // in day order
     std::int64_t attempts = 0;
+    std::int64_t no_threshold_days = 0;           // discriminate: days whose answers gave no reliable threshold
 };
 
 struct DrillProgress {

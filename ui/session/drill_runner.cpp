@@ -109,7 +109,7 @@ void DrillRunner::start(double now_s) {
             return;
         }
     } else {
-        questioner_.emplace(drill_.target_cents(), drill_.question, cfg_.seed);
+        questioner_.emplace(drill_.task, drill_.target_cents(), drill_.rounds, cfg_.seed);
         staircase_.emplace(drill_.staircase);
         session_started_at_ = utc_now_iso8601();
     }
@@ -180,7 +180,8 @@ void DrillRunner::advance(double now_s) {
                 enter(DrillPhase::ear_answer, at, INFINITY);
                 break;
             case DrillPhase::ear_feedback:
-                if (staircase_->done()) finish_ear(at, true);
+                if (drill_.task == ui::EarTask::discriminate ? staircase_->done() : questioner_->asked() >= questioner_->total())
+                    finish_ear(at, true);
                 else next_question(at);
                 break;
             default:
@@ -274,14 +275,12 @@ void DrillRunner::finish_hold_score() {
 void DrillRunner::next_question(double at_s) {
     question_ = questioner_->next(staircase_->level());
     has_question_ = true;
-    const auto& cents = drill_.target_cents();
-    const double first = cents[question_.played[0]];
-    due_.push_back({at_s, {tone_hz(first), drill_.tone_s}});
+    due_.push_back({at_s, {tone_hz(question_.tone_cents[0]), drill_.tone_s}});
     last_tone_at_s_ = at_s;
     double len = drill_.tone_s;
-    if (drill_.question == ui::EarMode::two_intervals) {
+    if (question_.tones == 2) {
         last_tone_at_s_ = at_s + drill_.tone_s + cfg_.ear_gap_s;
-        due_.push_back({last_tone_at_s_, {tone_hz(cents[question_.played[1]]), drill_.tone_s}});
+        due_.push_back({last_tone_at_s_, {tone_hz(question_.tone_cents[1]), drill_.tone_s}});
         len = 2.0 * drill_.tone_s + cfg_.ear_gap_s;
     }
     enter(DrillPhase::ear_play, at_s, len);
@@ -292,14 +291,14 @@ bool DrillRunner::answer_open(double now_s) const {
 }
 
 bool DrillRunner::answer(int choice, double now_s) {
-    if (!answer_open(now_s) || (choice != 0 && choice != 1)) return false;
+    const int options = drill_.task == ui::EarTask::discriminate ? 2 : static_cast<int>(drill_.targets.size());
+    if (!answer_open(now_s) || choice < 0 || choice >= options) return false;
     EarAnswer a;
     a.t_s = now_s - start_s_;
-    a.level_cents = staircase_->level();
     a.question = question_;
     a.answer = choice;
     a.correct = choice == question_.correct_answer;
-    staircase_->record(a.correct);
+    if (drill_.task == ui::EarTask::discriminate) staircase_->record(a.correct);
     answers_.push_back(a);
     // The second tone may still be due: a question answered is over.
     due_.clear();
@@ -307,13 +306,32 @@ bool DrillRunner::answer(int choice, double now_s) {
     return true;
 }
 
+ui::ThresholdEstimate fit_answers(const Drill& drill, const std::vector<EarAnswer>& answers) {
+    std::vector<ui::LevelAnswer> la;
+    la.reserve(answers.size());
+    for (const EarAnswer& e : answers) la.push_back({e.question.level_cents, e.correct});
+    return ui::fit_threshold(la, drill.fit_config());
+}
+
 void DrillRunner::finish_ear(double now_s, bool complete) {
     EarResult r;
-    r.threshold_cents = staircase_->threshold();
-    r.trials = staircase_->trials();
-    r.correct_share = r.trials > 0 ? static_cast<double>(staircase_->correct_count()) / r.trials : NAN;
+    r.task = drill_.task;
+    r.trials = static_cast<int>(answers_.size());
+    int right = 0;
+    for (const EarAnswer& e : answers_) right += e.correct ? 1 : 0;
+    r.correct_share = r.trials > 0 ? static_cast<double>(right) / r.trials : NAN;
     r.dur_s = now_s - start_s_;
     r.complete = complete;
+    const bool disc = drill_.task == ui::EarTask::discriminate;
+    if (disc) {
+        r.estimate = fit_answers(drill_, answers_);
+        r.reversal_mean_cents = staircase_->threshold();
+        r.stopped_by = staircase_->stop_reason();
+    } else {
+        const std::size_t n = drill_.targets.size();
+        r.confusion.assign(n, std::vector<int>(n, 0));
+        for (const EarAnswer& e : answers_) ++r.confusion[e.question.target][static_cast<std::size_t>(e.answer)];
+    }
     ear_result_ = r;
     has_question_ = false;
     enter(DrillPhase::finished, now_s, 0.0);
@@ -327,14 +345,28 @@ void DrillRunner::finish_ear(double now_s, bool complete) {
     a.performer = cfg_.performer;
     a.settings_json = settings_json_;
     a.dur_s = r.dur_s;
-    a.threshold_cents = r.threshold_cents;
     a.trials = r.trials;
     a.correct_share = r.correct_share;
+    if (disc) {
+        a.method = drill_.staircase.n_down == 3 ? "discriminate 3-down 1-up" : "discriminate 2-down 1-up";
+        const ui::ThresholdEstimate& e = r.estimate;
+        a.estimate = e.verdict == ui::ThresholdVerdict::measured ? "measured" : e.verdict == ui::ThresholdVerdict::finer ? "finer" : "none";
+        a.threshold_cents = e.threshold_cents;
+        a.threshold_lo_cents = e.verdict == ui::ThresholdVerdict::finer ? 0.0 : e.lo_cents;
+        a.threshold_hi_cents = e.verdict == ui::ThresholdVerdict::finer ? e.smallest_cents : e.hi_cents;
+    } else {
+        a.method = "identify";
+    }
     for (const EarAnswer& e : answers_) {
         TraceRecord rec;
         rec.t_s = static_cast<float>(e.t_s);
-        rec.f0_hz = static_cast<float>(e.level_cents);
-        rec.dev_cents = static_cast<float>(e.question.diff_cents);
+        if (disc) {
+            rec.f0_hz = static_cast<float>(e.question.level_cents);
+            rec.dev_cents = static_cast<float>(e.question.mistune_sign * e.question.level_cents);
+        } else {
+            rec.f0_hz = static_cast<float>(e.question.target);
+            rec.dev_cents = static_cast<float>(e.answer);
+        }
         rec.centre_dev_cents = e.correct ? 1.0f : 0.0f;
         a.trace.push_back(rec);
     }
@@ -450,16 +482,60 @@ std::string hold_spread_text(const ui::HoldScore& s) {
     return buf;
 }
 
+std::string stop_rule_text(const ui::StaircaseConfig& c) {
+    std::string s = "stops after " + std::to_string(c.stop_reversals) + " reversals";
+    s += c.floor_run > 0 ? ", " : " or ";
+    s += std::to_string(c.max_trials) + " answers";
+    if (c.floor_run > 0)
+        s += ", or " + std::to_string(c.floor_run) + " right in a row at " + pitch::format_trimmed(c.min_level, 2) + " c";
+    return s;
+}
+
+std::string stopped_by_text(ui::StopReason why, const ui::StaircaseConfig& c) {
+    switch (why) {
+        case ui::StopReason::reversals: return "after " + std::to_string(c.stop_reversals) + " reversals";
+        case ui::StopReason::max_trials: return "after " + std::to_string(c.max_trials) + " answers";
+        case ui::StopReason::floor_run:
+            return "after " + std::to_string(c.floor_run) + " right in a row at " + pitch::format_trimmed(c.min_level, 2) + " c";
+        case ui::StopReason::running: break;
+    }
+    return "stopped early";
+}
+
+std::string method_text(const Drill& d) {
+    if (d.task == ui::EarTask::identify)
+        return "each interval asked " + std::to_string(d.rounds) + " times in shuffled rounds; share right per pair from the confusion matrix";
+    const ui::FitConfig f = d.fit_config();
+    char pct[16];
+    std::snprintf(pct, sizeof pct, "%.1f", 100.0 * f.threshold_p);
+    return std::to_string(d.staircase.n_down) + "-down 1-up staircase (Levitt 1971, the " + pct +
+           " % point), " + stop_rule_text(d.staircase) + "; threshold fitted to every answer (Weibull, slope " +
+           pitch::format_trimmed(f.slope, 2) + ", lapse " + pitch::format_trimmed(100.0 * f.lapse, 1) +
+           " %; Wichmann & Hill 2001), 95 % interval from the likelihood, its cut calibrated by simulation";
+}
+
+std::string threshold_text(const ui::ThresholdEstimate& e) {
+    using pitch::format_trimmed;
+    switch (e.verdict) {
+        case ui::ThresholdVerdict::finer: return "finer than " + format_trimmed(e.smallest_cents, 2) + " c";
+        case ui::ThresholdVerdict::none: return "no reliable threshold";
+        case ui::ThresholdVerdict::measured: break;
+    }
+    const auto num = [](double c) { return format_trimmed(c, c < 10.0 ? 1 : 0); };
+    const std::string lo = e.lo_cents > 0.0 ? num(e.lo_cents) + " to " : "below ";
+    return num(e.threshold_cents) + " c (95 % interval " + lo + num(e.hi_cents) + " c)";
+}
+
 std::string ear_summary_text(const EarResult& r) {
-    char buf[128];
     const std::string answers = std::to_string(r.trials) + (r.trials == 1 ? " answer" : " answers");
-    const long right = std::isfinite(r.correct_share) ? std::lround(100.0 * r.correct_share) : 0;
-    if (std::isfinite(r.threshold_cents))
-        std::snprintf(buf, sizeof buf, "threshold %s cents after %s, %ld %% right", pitch::format_trimmed(r.threshold_cents, 1).c_str(),
-                      answers.c_str(), right);
-    else
-        std::snprintf(buf, sizeof buf, "no threshold yet (too few reversals) after %s, %ld %% right", answers.c_str(), right);
-    return buf;
+    const long pct = std::isfinite(r.correct_share) ? std::lround(100.0 * r.correct_share) : 0;
+    if (r.task == ui::EarTask::identify) {
+        const long right = std::lround((std::isfinite(r.correct_share) ? r.correct_share : 0.0) * r.trials);
+        return std::to_string(right) + " of " + answers + " right (" + std::to_string(pct) + " %)";
+    }
+    std::string s = threshold_text(r.estimate);
+    if (r.estimate.verdict == ui::ThresholdVerdict::measured) s = "threshold " + s;
+    return s + " after " + answers + ", " + std::to_string(pct) + " % right";
 }
 
 }  // namespace beatless::ui

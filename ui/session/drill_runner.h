@@ -20,16 +20,17 @@
 // attempt and its trace go to the LogWriter at once, on the caller's thread
 // (never the audio callback); when the log cannot be written the writer
 // keeps them and log_warning() gives the one line to show.
-// Ear drills ask question after question until the staircase is done:
+// Ear drills ask question after question until the staircase is done
+// (discriminate) or every interval has been asked its rounds (identify):
 //   ear_play      the question's tones (one, or two ear_gap_s apart); an
 //                 answer counts once the last tone has begun
 //   ear_answer    waiting for the answer, for as long as it takes
 //   ear_feedback  feedback_s: right or wrong, and what it was
-// then the session (threshold, answers, share right, one trace record per
-// answer) is logged. Tones are requests the caller takes (take_tones()) and
-// plays with the engine's reference voice. Time is the caller's: stream time
-// live, simulated time in snapshots and `beatless drill --demo`, a fake clock
-// in tests.
+// then the session (the fitted threshold and its interval, or the confusion
+// matrix; every answer as one trace record) is logged. Tones are requests
+// the caller takes (take_tones()) and plays with the engine's reference
+// voice. Time is the caller's: stream time live, simulated time in
+// snapshots and `beatless drill --listener`, a fake clock in tests.
 //
 // Thread: one thread (the screen's or the command's). Allocates: in start()
 // and when an attempt is scored; feed() only appends to a buffer sized in
@@ -105,19 +106,25 @@ struct HoldResult {
 
 struct EarAnswer {
     double t_s = 0.0;               // from the session's start
-    double level_cents = 0.0;       // the staircase's level when asked
-    ui::EarQuestion question;
-    int answer = 0;                 // what was chosen: index into question.choices (one) or position (two)
+    ui::EarQuestion question;       // what was asked and played (question.level_cents: the mistuning)
+    int answer = 0;                 // discriminate: position named pure (0, 1); identify: target named
     bool correct = false;
 };
 
 struct EarResult {
-    double threshold_cents = NAN;   // NaN when the session stopped before enough reversals
+    ui::EarTask task = ui::EarTask::discriminate;
     int trials = 0;
     double correct_share = NAN;
     double dur_s = 0.0;
-    bool complete = false;          // the staircase finished (not stopped early)
+    bool complete = false;                    // the stopping rule was met (not stopped early)
+    ui::ThresholdEstimate estimate;           // discriminate: fitted to every answer
+    double reversal_mean_cents = NAN;         // discriminate: mean of the last reversals (Levitt's estimate), NaN if too few
+    ui::StopReason stopped_by = ui::StopReason::running;  // discriminate: which rule ended it (running: stopped early)
+    std::vector<std::vector<int>> confusion;  // identify: counts [played][named]
 };
+
+// The fitted threshold of a discrimination session's answers.
+ui::ThresholdEstimate fit_answers(const Drill& drill, const std::vector<EarAnswer>& answers);
 
 class DrillRunner {
 public:
@@ -132,7 +139,7 @@ public:
     void stop(double now_s);
     void feed(const pitch::Reading& r);      // readings in time order
     void advance(double now_s);              // phases, due tones, late scores
-    bool answer(int choice, double now_s);   // ear: 0 or 1; false when no answer is open
+    bool answer(int choice, double now_s);   // ear: position (discriminate) or target (identify); false when not open
     std::vector<ToneRequest> take_tones();   // tones due since the last call
     void retry_log();                        // writes what the log writer still keeps
 
@@ -159,6 +166,7 @@ public:
     // --- Ear drills --------------------------------------------------------------------
     const ui::Staircase* staircase() const { return staircase_ ? &*staircase_ : nullptr; }
     const ui::EarQuestion* question() const { return has_question_ ? &question_ : nullptr; }
+    std::size_t questions_total() const { return questioner_ ? questioner_->total() : 0; }  // identify: all questions; else 0
     bool answer_open(double now_s) const;
     const std::vector<EarAnswer>& answers() const { return answers_; }
     const std::optional<EarResult>& ear_result() const { return ear_result_; }
@@ -220,8 +228,18 @@ private:
 std::string hold_summary_text(const ui::HoldScore& s, double tolerance_cents);
 // "spread 4 c while held" (the standard deviation), or empty when unknown.
 std::string hold_spread_text(const ui::HoldScore& s);
-// "threshold 14 cents after 48 answers, 71 % right"
+// "threshold 4.2 c (95 % interval 3.1 to 5.9 c) after 48 answers, 71 % right";
+// "finer than 0.5 c (...)", "no reliable threshold (...)"; identify:
+// "31 of 48 right (65 %)".
 std::string ear_summary_text(const EarResult& r);
+// The stopping rule: "stops after 12 reversals, 80 answers, or 10 right in a row at 0.5 c".
+std::string stop_rule_text(const ui::StaircaseConfig& c);
+// Why it stopped: "after 12 reversals", "after 80 answers", "after 10 right in a row at 0.5 c", "stopped early".
+std::string stopped_by_text(ui::StopReason why, const ui::StaircaseConfig& c);
+// The method in a line: "2-down 1-up staircase (Levitt 1971, 70.7 % point); threshold fitted to every answer (...)".
+std::string method_text(const Drill& d);
+// The estimate alone: "4.2 c (95 % interval 3.1 to 5.9 c)", "finer than 0.5 c", "no reliable threshold".
+std::string threshold_text(const ui::ThresholdEstimate& e);
 // "practice log PATH: cannot write (disk full); 2 attempts kept and will be
 // saved when possible"; the writer's own warning when no problem is named.
 std::string log_warning_line(const std::string& log_path, const SaveResult& r);

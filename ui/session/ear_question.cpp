@@ -1,3 +1,4 @@
+// Ear question — see ear_question.h.
 #include "ui/session/ear_question.h"
 
 #include "pitch/base/error.h"
@@ -9,59 +10,74 @@
 
 namespace beatless::ui {
 
-
 namespace {
-constexpr double kTieLog = 1e-3;        // separations within 0.1 % count as equally near
-constexpr double kSameCents = 1e-6;     // targets closer than this are the same pitch
+constexpr double kSameCents = 1e-6;  // intervals closer than this are the same pitch
 }  // namespace
 
-EarQuestioner::EarQuestioner(std::vector<double> target_cents, EarMode mode, std::uint64_t seed)
-    : cents_(std::move(target_cents)), mode_(mode), rng_(seed) {
-    for (std::size_t i = 0; i < cents_.size(); ++i) {
-        if (!std::isfinite(cents_[i])) throw Error("ear question: target " + std::to_string(i + 1) + " is not a finite interval");
-        for (std::size_t j = i + 1; j < cents_.size(); ++j) {
-            const double sep = std::fabs(cents_[i] - cents_[j]);
-            if (sep < kSameCents) continue;
-            const bool i_lower = cents_[i] < cents_[j];
-            pairs_.push_back({i_lower ? i : j, i_lower ? j : i, sep});
-        }
+EarQuestioner::EarQuestioner(EarTask task, std::vector<double> target_cents, int rounds, std::uint64_t seed)
+    : task_(task), cents_(std::move(target_cents)), rounds_(static_cast<std::size_t>(rounds < 1 ? 1 : rounds)), rng_(seed) {
+    if (rounds < 1) throw Error("ear question: rounds " + std::to_string(rounds) + " must be at least 1");
+    if (cents_.empty()) throw Error("ear question: needs an interval");
+    for (std::size_t i = 0; i < cents_.size(); ++i)
+        if (!std::isfinite(cents_[i])) throw Error("ear question: interval " + std::to_string(i + 1) + " is not a finite interval");
+    if (task_ == EarTask::identify) {
+        for (std::size_t i = 0; i < cents_.size(); ++i)
+            for (std::size_t j = i + 1; j < cents_.size(); ++j)
+                if (std::fabs(cents_[i] - cents_[j]) < kSameCents)
+                    throw Error("ear question: intervals " + std::to_string(i + 1) + " and " + std::to_string(j + 1) +
+                                " have the same pitch, so no answer could tell them apart");
+        if (cents_.size() < 2) throw Error("ear question: naming an interval needs at least two to choose from");
+        deck_.reserve(cents_.size());
+        deal();
     }
-    if (pairs_.empty()) throw Error("ear question: needs at least two targets of different pitch");
-    candidates_.reserve(pairs_.size());
 }
 
-std::vector<double> EarQuestioner::separations() const {
-    std::vector<double> s;
-    for (const Pair& p : pairs_) s.push_back(p.sep_cents);
-    std::sort(s.begin(), s.end());
-    s.erase(std::unique(s.begin(), s.end(), [](double a, double b) { return std::fabs(std::log(a / b)) < kTieLog; }),
-            s.end());
-    return s;
+void EarQuestioner::deal() {
+    deck_.clear();
+    for (std::size_t i = 0; i < cents_.size(); ++i) deck_.push_back(i);
+    for (std::size_t i = deck_.size(); i > 1; --i) std::swap(deck_[i - 1], deck_[rng_.below(i)]);  // Fisher-Yates
+    deck_at_ = 0;
 }
 
 EarQuestion EarQuestioner::next(double level_cents) {
-    const double want = std::log(std::max(level_cents, 1e-6));
-    double best = INFINITY;
-    for (const Pair& p : pairs_) best = std::min(best, std::fabs(std::log(p.sep_cents) - want));
-    candidates_.clear();
-    for (std::size_t k = 0; k < pairs_.size(); ++k)
-        if (std::fabs(std::log(pairs_[k].sep_cents) - want) <= best + kTieLog) candidates_.push_back(k);
-    const Pair& p = pairs_[candidates_[rng_.below(candidates_.size())]];
-
     EarQuestion q;
-    q.choices = {p.lo, p.hi};
-    q.diff_cents = p.sep_cents;
-    const bool lo_first = rng_.below(2) == 0;
-    q.played = lo_first ? std::array<std::size_t, 2>{p.lo, p.hi} : std::array<std::size_t, 2>{p.hi, p.lo};
-    if (mode_ == EarMode::one_interval) {
-        q.played[1] = q.played[0];
-        q.asked = q.played[0];
-        q.correct_answer = q.played[0] == p.lo ? 0 : 1;
-    } else {
-        q.asked = rng_.below(2) == 0 ? p.lo : p.hi;
-        q.correct_answer = q.played[0] == q.asked ? 0 : 1;
+    q.task = task_;
+    ++asked_;
+    if (task_ == EarTask::identify) {
+        if (deck_at_ >= deck_.size()) deal();
+        q.target = deck_[deck_at_++];
+        q.tones = 1;
+        q.tone_cents = {cents_[q.target], cents_[q.target]};
+        q.correct_answer = static_cast<int>(q.target);
+        return q;
     }
+    q.target = 0;
+    q.level_cents = level_cents;
+    q.mistune_sign = rng_.below(2) == 0 ? 1 : -1;
+    q.tones = 2;
+    const int pure_at = static_cast<int>(rng_.below(2));
+    const double pure = cents_[0], off = cents_[0] + q.mistune_sign * level_cents;
+    q.tone_cents = pure_at == 0 ? std::array<double, 2>{pure, off} : std::array<double, 2>{off, pure};
+    q.correct_answer = pure_at;
     return q;
+}
+
+std::vector<std::pair<std::size_t, std::size_t>> pairs_closest_first(const std::vector<double>& c) {
+    std::vector<std::pair<std::size_t, std::size_t>> pairs;
+    for (std::size_t i = 0; i < c.size(); ++i)
+        for (std::size_t k = i + 1; k < c.size(); ++k) pairs.emplace_back(i, k);
+    std::stable_sort(pairs.begin(), pairs.end(), [&](const auto& a, const auto& b) {
+        return std::fabs(c[a.first] - c[a.second]) < std::fabs(c[b.first] - c[b.second]);
+    });
+    return pairs;
+}
+
+int pair_answers(const std::vector<std::vector<int>>& n, std::size_t i, std::size_t j) { return n[i][i] + n[j][j] + n[i][j] + n[j][i]; }
+
+double pair_share_right(const std::vector<std::vector<int>>& n, std::size_t i, std::size_t j) {
+    const double right = n[i][i] + n[j][j];
+    const double all = right + n[i][j] + n[j][i];
+    return all > 0 ? right / all : NAN;
 }
 
 }  // namespace beatless::ui

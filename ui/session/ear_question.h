@@ -1,17 +1,17 @@
-// Ear question — which pair of neighbouring targets to play for a given difference.
+// Ear question — what an ear drill plays next, and which answer is right.
 //
-// Ear training asks the listener to tell close targets apart (7/5, 10/7,
-// 11/8, 45/32, 600c...). The staircase (ui/session/staircase.h) says how far
-// apart the two choices of the next question should be; this picks, among
-// all pairs of the drill's targets, the pair whose separation in cents is
-// nearest to that difference on a log scale (ties, within 0.1 %, drawn at
-// random), then draws at random what to play:
-//   one_interval   drone plus one tone: one of the pair; "which was it?"
-//   two_intervals  drone plus each tone of the pair in random order; the
-//                  listener is told one target and answers "first or second?"
-// Both are two-alternative forced choices (chance 50 %), the case Levitt's
-// 2-down/1-up and 3-down/1-up rules are made for. The random source is
-// seeded (ui/session/rng.h), so a session can be replayed exactly in tests.
+// Two tasks, each a forced choice:
+//   discriminate  the drill's interval pure and the same interval mistuned by
+//                 the level asked (wider or narrower at random), in random
+//                 order over the drone; "which was pure?" (first or second:
+//                 chance 1/2, the case Levitt's transformed up-down rules are
+//                 made for). The level is continuous: what is asked is what
+//                 sounds.
+//   identify      one of the drill's intervals over the drone; "which was
+//                 it?" among all of them. Each round plays every interval
+//                 once, in an order shuffled per round (Fisher-Yates), so
+//                 every interval is asked equally often.
+// The random source is seeded (ui/session/rng.h), so a session replays exactly.
 //
 // Thread: one thread at a time. Allocates: in the constructor only.
 #pragma once
@@ -21,44 +21,60 @@
 #include <array>
 #include <cstddef>
 #include <cstdint>
+#include <utility>
 #include <vector>
 
 namespace beatless::ui {
 
-enum class EarMode {
-    one_interval,   // one tone over the drone; answer: which of the two targets
-    two_intervals,  // both tones in turn; answer: which position was the named target
+enum class EarTask {
+    discriminate,  // pure or mistuned: a threshold in cents
+    identify,      // which interval: a confusion matrix
 };
 
 struct EarQuestion {
-    std::array<std::size_t, 2> choices{};  // the pair offered (indices into the targets), lower first
-    std::array<std::size_t, 2> played{};   // in playing order; one_interval plays played[0] only
-    std::size_t asked = 0;                 // two_intervals: the target to find; one_interval: played[0]
-    double diff_cents = 0.0;               // separation of the pair
-    int correct_answer = 0;                // one_interval: index into choices; two_intervals: position 0 or 1
+    EarTask task = EarTask::discriminate;
+    std::size_t target = 0;             // the interval played (index into the drill's targets)
+    double level_cents = 0.0;           // discriminate: the mistuning played, cents; identify: 0
+    int mistune_sign = 1;               // discriminate: +1 wider, -1 narrower
+    int tones = 1;                      // 2 for discriminate, 1 for identify
+    std::array<double, 2> tone_cents{}; // above the root, in playing order
+    int correct_answer = 0;             // discriminate: position of the pure one (0 or 1); identify: the target
 };
 
 class EarQuestioner {
 public:
-    // target_cents: the drill's targets in cents above the root. Throws Error
-    // when fewer than two of them differ.
-    EarQuestioner(std::vector<double> target_cents, EarMode mode, std::uint64_t seed);
+    // target_cents: the drill's intervals in cents above the root (discriminate
+    // uses the first). Throws Error when identify has fewer than two of
+    // different pitch, or rounds is below 1.
+    EarQuestioner(EarTask task, std::vector<double> target_cents, int rounds, std::uint64_t seed);
 
+    // discriminate: a question at this mistuning; identify: the next of the
+    // deal (level ignored; after the last, a new round is dealt).
     EarQuestion next(double level_cents);
-    EarMode mode() const { return mode_; }
-    // Distinct pair separations available, ascending (the levels that can sound).
-    std::vector<double> separations() const;
+    EarTask task() const { return task_; }
+    std::size_t total() const { return task_ == EarTask::identify ? cents_.size() * rounds_ : 0; }  // identify: questions in all
+    std::size_t asked() const { return asked_; }
 
 private:
-    struct Pair {
-        std::size_t lo, hi;
-        double sep_cents;
-    };
+    void deal();
+
+    EarTask task_;
     std::vector<double> cents_;
-    std::vector<Pair> pairs_;
-    std::vector<std::size_t> candidates_;  // scratch for next()
-    EarMode mode_;
+    std::size_t rounds_;
+    std::vector<std::size_t> deck_;
+    std::size_t deck_at_ = 0;
+    std::size_t asked_ = 0;
     Rng rng_;
 };
+
+// Every pair (i < j) of the intervals, the closest in pitch first (ties in index order).
+std::vector<std::pair<std::size_t, std::size_t>> pairs_closest_first(const std::vector<double>& target_cents);
+// Answers to i or j that named i or j: the count pair_share_right divides by.
+int pair_answers(const std::vector<std::vector<int>>& counts, std::size_t i, std::size_t j);
+
+// Per-pair share right from a confusion matrix counts[played][answered]:
+// of the answers to i or j that named i or j, the share that named the one
+// played, (n_ii + n_jj) / (n_ii + n_ij + n_ji + n_jj); NaN with none.
+double pair_share_right(const std::vector<std::vector<int>>& counts, std::size_t i, std::size_t j);
 
 }  // namespace beatless::ui

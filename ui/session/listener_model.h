@@ -1,44 +1,85 @@
-// Simulated listener — answers two-alternative questions like a listener of
-// known threshold, for ear drills run without a person (scripts, tests).
+// Simulated listener — answers ear questions like a listener of stated
+// threshold and lapse rate, for ear drills run without a person (demo, tests).
 //
-// The chance of a right answer at a difference of d cents follows a Weibull
-// psychometric function for a two-alternative forced choice,
-//     p(d) = 1 - 0.5 exp(-(d / alpha)^beta),
-// chance (1/2) at d = 0 and rising to 1 (the form used throughout F. A.
-// Wichmann and N. J. Hill, "The psychometric function: I. Fitting, sampling,
-// and goodness of fit", Perception & Psychophysics 63(8), 1293-1313, 2001;
-// cited from memory). alpha is chosen so that p(threshold_cents) =
-// threshold_p: alpha = T / (-ln(2 (1 - p)))^(1/beta). With p = 0.7071, the
-// point a 2-down/1-up staircase tracks (Levitt 1971), such a staircase
-// should report about threshold_cents. Steps: p(d), then one seeded draw.
+// Discrimination (two-alternative forced choice): the chance of a right answer
+// at a mistuning of d cents is the psychometric function of F. A. Wichmann and
+// N. J. Hill, "The psychometric function: I. Fitting, sampling, and goodness of
+// fit", Perception & Psychophysics 63(8), 1293-1313 (2001), eq. 1,
+//     p(d) = gamma + (1 - gamma - lambda) F(d),  F(d) = 1 - exp(-(d / alpha)^beta)
+// (a Weibull F), guess rate gamma = 1/2, lapse rate lambda. The threshold is
+// the d answered right threshold_p of the time (70.7 %, the point a 2-down/1-up
+// staircase tracks, Levitt 1971). Identification: a Gaussian observer
+// (D. M. Green and J. A. Swets, Signal Detection Theory and Psychophysics,
+// 1966) hears each tone with an error of sd sigma cents and names the nearest
+// target; sigma is set so that comparing two tones threshold_cents apart is
+// right threshold_p of the time: sigma = T / (sqrt 2 Phi^-1(p)); with chance
+// lambda it answers at random instead.
 //
-// Thread: one thread at a time. Allocates: no.
+// Thread: one thread at a time. Allocates: identification_probabilities only.
 #pragma once
 
+#include "ui/session/ear_question.h"
 #include "ui/session/rng.h"
 
+#include <cstddef>
 #include <cstdint>
+#include <string>
+#include <vector>
 
 namespace beatless::ui {
 
+enum class ListenerKind {
+    model,    // the psychometric function below
+    perfect,  // always right
+    guess,    // answers at random
+};
+
 struct ListenerConfig {
+    ListenerKind kind = ListenerKind::model;  // default model
     double threshold_cents = 10.0;  // difference answered right threshold_p of the time; default 10
     double threshold_p = 0.7071;    // default 0.7071 (2-down/1-up, Levitt 1971)
     double slope = 3.0;             // Weibull beta, the steepness; default 3 (ours)
+    double lapse = 0.02;            // lapse rate lambda, 0 .. 0.1; default 0.02 (Wichmann & Hill's range 0-0.06)
     std::uint64_t seed = 1;
 };
 
 class SimulatedListener {
 public:
     explicit SimulatedListener(const ListenerConfig& config);  // throws Error on a bad config
+    const ListenerConfig& config() const noexcept { return cfg_; }
+
+    // --- Discrimination ------------------------------------------------------
     double p_correct(double diff_cents) const noexcept;
     bool answers_right(double diff_cents) noexcept;             // one draw
     double alpha_cents() const noexcept { return alpha_; }
 
+    // --- Identification ------------------------------------------------------
+    double sigma_cents() const noexcept { return sigma_; }      // the Gaussian observer's error (0 perfect)
+    // Which of the targets (cents above the root) it names when target `played` sounds.
+    std::size_t identify(const std::vector<double>& target_cents, std::size_t played) noexcept;
+
+    // Its answer to a question: discriminate, the position it names pure;
+    // identify, the interval it names.
+    int answer(const EarQuestion& q, const std::vector<double>& target_cents) noexcept;
+
 private:
     ListenerConfig cfg_;
-    double alpha_;
+    double alpha_ = 0.0;
+    double sigma_ = 0.0;
     Rng rng_;
 };
+
+// The chance that the identifying listener names target j when target i
+// sounds, [i][j], from the normal distribution (exact, not simulated).
+std::vector<std::vector<double>> identification_probabilities(const std::vector<double>& target_cents, double sigma_cents,
+                                                              double lapse, ListenerKind kind = ListenerKind::model);
+
+// A --listener value: "perfect", "guess", or a threshold in cents (above 0,
+// at most 1200; lapse rate 2 %). Throws Error naming the value otherwise.
+ListenerConfig parse_listener(const std::string& text, std::uint64_t seed);
+
+// Phi^-1(p) of the standard normal distribution (Acklam's rational approximation
+// refined by one Newton step on erfc; |error| < 1e-12).
+double normal_quantile(double p);
 
 }  // namespace beatless::ui

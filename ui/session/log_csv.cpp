@@ -89,7 +89,12 @@ constexpr const char* kColumns[] = {"uid",          "started_at",     "drill",  
                                     "target",       "target_name",    "root_hz",        "performer",
                                     "dur_s",        "locked",         "time_to_lock_s", "mean_dev_cents",
                                     "spread_cents", "in_tolerance_share", "threshold_cents", "trials",
-                                    "correct_share", "settings",      "trace"};
+                                    "correct_share", "method",        "estimate",       "threshold_lo_cents",
+                                    "threshold_hi_cents", "settings", "trace"};
+// Columns an older export (schema 2) lacks: an import takes it without them.
+bool optional_column(std::string_view c) {
+    return c == "trace" || c == "method" || c == "estimate" || c == "threshold_lo_cents" || c == "threshold_hi_cents";
+}
 constexpr std::size_t kColumnCount = std::size(kColumns);
 
 void add_field(std::string& out, std::string_view v) {
@@ -155,6 +160,14 @@ void append_csv_row(std::string& out, const Attempt& a, bool with_trace) {
     if (a.trials) out += std::to_string(*a.trials);
     out += ',';
     add_number(out, a.correct_share);
+    for (std::string_view t : {std::string_view(a.method), std::string_view(a.estimate)}) {
+        out += ',';
+        add_field(out, t);
+    }
+    for (double v : {a.threshold_lo_cents, a.threshold_hi_cents}) {
+        out += ',';
+        add_number(out, v);
+    }
     out += ',';
     add_field(out, a.settings_json);
     if (with_trace) {
@@ -325,6 +338,14 @@ Attempt parse_row(const Row& r, const PracticeLog& checker) {
         a.trials = static_cast<int>(trials);
     }
     a.correct_share = r.number("correct_share", 0.0, 1.0);
+    if (r.has("method")) a.method = r.text("method");
+    if (r.has("estimate")) {
+        a.estimate = r.text("estimate");
+        if (!a.estimate.empty() && a.estimate != "measured" && a.estimate != "finer" && a.estimate != "none")
+            r.bad("estimate", pitch::quote(a.estimate) + " must be measured, finer, none or empty");
+    }
+    if (r.has("threshold_lo_cents")) a.threshold_lo_cents = r.number("threshold_lo_cents", 0.0, 2400.0);
+    if (r.has("threshold_hi_cents")) a.threshold_hi_cents = r.number("threshold_hi_cents", 0.0, 2400.0);
     a.settings_json = r.text("settings");
     if (a.settings_json.empty()) a.settings_json = "{}";
     if (!checker.is_json_object(a.settings_json)) r.bad("settings", "is not a JSON object");
@@ -355,7 +376,7 @@ std::vector<Attempt> parse_log_csv(std::string_view text, const std::string& sou
             throw Error(source + ":" + std::to_string(header.line) + ": column " + pitch::quote(name) + " appears twice");
     }
     for (const char* need : kColumns)
-        if (std::string(need) != "trace" && !col.count(need))
+        if (!optional_column(need) && !col.count(need))
             throw Error(source + ":" + std::to_string(header.line) + ": missing column '" + need + "'");
 
     std::vector<Attempt> out;

@@ -1,5 +1,7 @@
 #include "ui/session/log_summary.h"
 
+#include "ui/session/drill_files.h"
+
 #include "pitch/theory/interval.h"
 #include "pitch/base/text.h"
 #include "ui/session/json.h"
@@ -83,6 +85,53 @@ double target_cents(const std::string& target) {
 
 }  // namespace
 
+std::vector<EarPeriodFit> fit_ear_periods(const PracticeLog& log, const AttemptFilter& filter, Period by) {
+    struct Pool {
+        std::vector<ui::LevelAnswer> answers;
+        std::int64_t right = 0, n = 0;
+    };
+    std::map<std::string, Pool> pools;  // "all" and each period (ISO days sort in time order)
+    bool disc = false, any = false;
+    std::string method;
+    double lo_played = INFINITY, hi_played = 0.0;
+    log.for_each(filter, true, [&](const Attempt& a) {
+        if (a.kind != AttemptKind::ear || a.method.empty()) return;
+        if (!any) method = a.method, disc = a.method.rfind("discriminate", 0) == 0, any = true;
+        if (a.method != method) return;  // one drill, one method
+        for (const std::string& p : {std::string("all"), period_start(a.started_at.substr(0, 10), by)}) {
+            Pool& pool = pools[p];
+            for (const TraceRecord& r : a.trace) {
+                const bool right = r.centre_dev_cents > 0.5f;
+                if (disc) pool.answers.push_back({r.f0_hz, right});
+                pool.right += right ? 1 : 0;
+                ++pool.n;
+                if (disc && p == "all") lo_played = std::min(lo_played, static_cast<double>(r.f0_hz)), hi_played = std::max(hi_played, static_cast<double>(r.f0_hz));
+            }
+        }
+    });
+    std::vector<EarPeriodFit> out;
+    if (!any) return out;
+    ui::FitConfig fc;
+    try {  // the drill's own levels and rule, as its sessions were fitted
+        fc = load_drill(filter.drill).fit_config();
+    } catch (const Error&) {  // a drill file no longer found: its rule from the method, the levels played
+        fc.threshold_p = method.find("3-down") != std::string::npos ? std::pow(0.5, 1.0 / 3.0) : std::pow(0.5, 0.5);
+        fc.min_cents = std::max(lo_played, 1e-3);
+        fc.max_cents = std::max(hi_played, fc.min_cents * 2.0);
+    }
+    for (const auto& [p, pool] : pools) {
+        EarPeriodFit f;
+        f.period = p;
+        f.discriminate = disc;
+        f.right = pool.right;
+        f.answers = pool.n;
+        if (disc) f.estimate = ui::fit_threshold(pool.answers, fc);
+        if (p == "all") out.insert(out.begin(), f);
+        else out.push_back(f);
+    }
+    return out;
+}
+
 HistorySummary summarize_history(const PracticeLog& log, const HistoryOptions& o) {
     HistorySummary s;
     s.log_path = log.path().string();
@@ -121,6 +170,30 @@ HistorySummary summarize_history(const PracticeLog& log, const HistoryOptions& o
     for (const Keyed& k : keys) s.totals.push_back(k.total.line(k.kind, k.key, "all"));
     for (const Keyed& k : keys)
         for (const auto& [p, acc] : k.periods) s.over_time.push_back(acc.line(k.kind, k.key, p));
+    // Ear drills: the estimate from every answer of the period, not a mean of
+    // sessions; rows before schema 3 (no method) measured nothing and add none.
+    for (auto* lines : {&s.totals, &s.over_time})
+        for (HistoryLine& l : *lines)
+            if (l.kind == AttemptKind::ear) l.threshold_cents = NAN;
+    for (const Keyed& k : keys) {
+        if (k.kind != AttemptKind::ear) continue;
+        AttemptFilter f = o.filter;
+        f.drill = k.key;
+        for (const EarPeriodFit& e : fit_ear_periods(log, f, o.by)) {
+            for (auto* lines : {&s.totals, &s.over_time})
+                for (HistoryLine& l : *lines) {
+                    if (l.kind != AttemptKind::ear || l.key != k.key || l.period != e.period) continue;
+                    l.correct_share = e.answers > 0 ? static_cast<double>(e.right) / static_cast<double>(e.answers) : NAN;
+                    l.threshold_cents = NAN;
+                    if (!e.discriminate) continue;
+                    const ui::ThresholdEstimate& t = e.estimate;
+                    l.estimate = t.verdict == ui::ThresholdVerdict::measured ? "measured" : t.verdict == ui::ThresholdVerdict::finer ? "finer" : "none";
+                    l.threshold_cents = t.threshold_cents;
+                    l.threshold_lo_cents = t.lo_cents;
+                    l.threshold_hi_cents = t.verdict == ui::ThresholdVerdict::finer ? t.smallest_cents : t.hi_cents;
+                }
+        }
+    }
     return s;
 }
 
@@ -188,14 +261,21 @@ void ear_table(std::string& out, const std::vector<HistoryLine>& lines, bool wit
     if (with_period) pad(out, period_head, 12, false);
     pad(out, "drill", wk + 2, false);
     if (!with_period) pad(out, "choices", wn + 2, false);
-    out += "attempts  threshold\n";
+    out += "attempts  right  threshold (95 % interval)\n";
     for (const HistoryLine& l : lines) {
         out += "  ";
         if (with_period) pad(out, l.period, 12, false);
         pad(out, l.key, wk + 2, false);
         if (!with_period) pad(out, l.name, wn + 2, false);
         pad(out, std::to_string(l.attempts), 8, true);
-        pad(out, fixed(l.threshold_cents, 1, " c"), 11, true);
+        pad(out, std::isfinite(l.correct_share) ? std::to_string(std::lround(100.0 * l.correct_share)) + " %" : std::string("-"), 7, true);
+        out += "  ";
+        if (l.estimate == "measured")
+            out += fixed(l.threshold_cents, 1, " c") + " (" + (l.threshold_lo_cents > 0 ? fixed(l.threshold_lo_cents, 1, "") : std::string("below")) +
+                   " to " + fixed(l.threshold_hi_cents, 1, " c") + ")";
+        else if (l.estimate == "finer") out += "finer than " + fixed(l.threshold_hi_cents, 2, " c");
+        else if (l.estimate == "none") out += "no reliable threshold";
+        else out += "-";
         out += '\n';
     }
 }
@@ -254,7 +334,13 @@ void json_line(JsonWriter& j, const HistoryLine& l, bool with_period) {
         j.key("spread_cents").value(l.spread_cents, 3);
         j.key("in_tolerance_share").value(l.in_tolerance_share, 4);
     } else {
+        j.key("correct_share").value(l.correct_share, 4);
+        j.key("estimate");
+        if (l.estimate.empty()) j.null();
+        else j.value(l.estimate);
         j.key("threshold_cents").value(l.threshold_cents, 3);
+        j.key("threshold_lo_cents").value(l.threshold_lo_cents, 3);
+        j.key("threshold_hi_cents").value(l.threshold_hi_cents, 3);
     }
     j.end_object();
 }
@@ -283,7 +369,8 @@ std::string render_history_json(const HistorySummary& s) {
 
 std::string render_history_csv(const HistorySummary& s) {
     std::string out =
-        "period,kind,key,name,attempts,locked_share,time_to_lock_s,mean_dev_cents,spread_cents,in_tolerance_share,threshold_cents\n";
+        "period,kind,key,name,attempts,locked_share,time_to_lock_s,mean_dev_cents,spread_cents,in_tolerance_share,threshold_cents,"
+        "threshold_lo_cents,threshold_hi_cents,estimate,correct_share\n";
     auto num = [&out](double v, int decimals) {
         out += ',';
         if (std::isfinite(v)) out += pitch::format_trimmed(v, decimals);
@@ -298,6 +385,10 @@ std::string render_history_csv(const HistorySummary& s) {
             num(l.spread_cents, 3);
             num(l.in_tolerance_share, 4);
             num(l.threshold_cents, 3);
+            num(l.threshold_lo_cents, 3);
+            num(l.threshold_hi_cents, 3);
+            out += ',' + l.estimate;
+            num(l.correct_share, 4);
             out += '\n';
         }
     }

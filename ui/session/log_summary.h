@@ -1,10 +1,12 @@
 // Log summary — the practice log summarised per target and over time, as text for people and JSON or CSV for programs.
 // Method: from the per-day sums of PracticeLog::history_groups, per day, week (from Monday, ISO 8601) or month, in
-// UTC; every attempt weighs the same (the figures beside HistoryLine).
+// UTC; every attempt weighs the same (the figures beside HistoryLine). Ear drills are refitted from every logged
+// answer (fit_ear_periods, ui/session/threshold_fit.h); ear rows from before schema 3 measured nothing.
 // Thread: the caller's. Allocates: yes.
 #pragma once
 
 #include "ui/session/practice_log.h"
+#include "ui/session/threshold_fit.h"
 
 #include <string>
 #include <vector>
@@ -29,8 +31,21 @@ struct HistoryLine {
     double mean_dev_cents = NAN;     // mean of the attempts' mean deviations
     double spread_cents = NAN;       // mean of the attempts' spreads
     double in_tolerance_share = NAN; // mean share within tolerance
-    double threshold_cents = NAN;    // ear: mean threshold
+    double threshold_cents = NAN;    // discriminate: the threshold fitted to the period's answers (measured)
+    double threshold_lo_cents = NAN; // discriminate: its interval (lo 0: not bounded below)
+    double threshold_hi_cents = NAN;
+    std::string estimate;            // discriminate: "measured", "finer" (than threshold_hi_cents), "none"; else empty
+    double correct_share = NAN;      // ear: share of the period's answers that were right
 };
+
+// One ear drill's logged answers, per period ("all" first, then in time order).
+struct EarPeriodFit {
+    std::string period;
+    bool discriminate = false;
+    ui::ThresholdEstimate estimate;  // discriminate only
+    std::int64_t right = 0, answers = 0;
+};
+std::vector<EarPeriodFit> fit_ear_periods(const PracticeLog& log, const AttemptFilter& filter, Period by);
 
 struct HistorySummary {
     std::string log_path;

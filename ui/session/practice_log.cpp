@@ -166,12 +166,14 @@ bool same_float(float a, float b) { return (std::isnan(a) && std::isnan(b)) || a
 bool same_attempt(const Attempt& a, const Attempt& b) {
     if (a.uid != b.uid || a.started_at != b.started_at || a.drill != b.drill || a.kind != b.kind || a.target != b.target ||
         a.target_name != b.target_name || a.performer != b.performer || a.settings_json != b.settings_json ||
-        a.locked != b.locked || a.trials != b.trials || a.trace.size() != b.trace.size())
+        a.locked != b.locked || a.trials != b.trials || a.method != b.method || a.estimate != b.estimate ||
+        a.trace.size() != b.trace.size())
         return false;
     for (const auto& [x, y] : {std::pair{a.root_hz, b.root_hz}, {a.dur_s, b.dur_s}, {a.time_to_lock_s, b.time_to_lock_s},
                                {a.mean_dev_cents, b.mean_dev_cents}, {a.spread_cents, b.spread_cents},
                                {a.in_tolerance_share, b.in_tolerance_share}, {a.threshold_cents, b.threshold_cents},
-                               {a.correct_share, b.correct_share}})
+                               {a.correct_share, b.correct_share}, {a.threshold_lo_cents, b.threshold_lo_cents},
+                               {a.threshold_hi_cents, b.threshold_hi_cents}})
         if (!same_double(x, y)) return false;
     for (std::size_t i = 0; i < a.trace.size(); ++i) {
         const TraceRecord &p = a.trace[i], &q = b.trace[i];
@@ -224,12 +226,22 @@ ALTER TABLE attempt ADD COLUMN performer TEXT NOT NULL DEFAULT '';
 CREATE INDEX attempt_by_time ON attempt (started_at);
 )sql";
 
-constexpr const char* kMigrations[] = {kSchemaV1, kMigrateV1toV2};  // [k] takes version k to k + 1
+// v2 -> v3: ear sessions say how they were measured (method), what the
+// estimate is (measured, finer, none) and its interval. Old ear rows keep
+// empty texts and NULL bounds: their threshold was a staircase's mean.
+constexpr const char* kMigrateV2toV3 = R"sql(
+ALTER TABLE attempt ADD COLUMN method TEXT NOT NULL DEFAULT '';
+ALTER TABLE attempt ADD COLUMN estimate TEXT NOT NULL DEFAULT '';
+ALTER TABLE attempt ADD COLUMN threshold_lo_cents REAL;
+ALTER TABLE attempt ADD COLUMN threshold_hi_cents REAL;
+)sql";
+
+constexpr const char* kMigrations[] = {kSchemaV1, kMigrateV1toV2, kMigrateV2toV3};  // [k] takes version k to k + 1
 static_assert(std::size(kMigrations) == PracticeLog::kSchemaVersion);
 
 constexpr const char* kAttemptColumns =
     "attempt.id, uid, started_at, drill, kind, target, target_name, root_hz, performer, settings, dur_s, locked, "
-    "time_to_lock_s, mean_dev_cents, spread_cents, in_tolerance_share, threshold_cents, trials, correct_share";
+    "time_to_lock_s, mean_dev_cents, spread_cents, in_tolerance_share, threshold_cents, trials, correct_share, method, estimate, threshold_lo_cents, threshold_hi_cents";
 
 LogProblem problem_of(int code) {
     switch (code & 0xff) {
@@ -360,7 +372,8 @@ PracticeLog::PracticeLog(fs::path path, LogOptions options) : path_(std::move(pa
         st_ = std::make_unique<Statements>();
         const std::string ins = "INSERT INTO attempt (uid, started_at, drill, kind, target, target_name, root_hz, performer, "
                                 "settings, dur_s, locked, time_to_lock_s, mean_dev_cents, spread_cents, in_tolerance_share, "
-                                "threshold_cents, trials, correct_share) VALUES (?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?)";
+                                "threshold_cents, trials, correct_share, method, estimate, threshold_lo_cents, threshold_hi_cents) "
+                                "VALUES (?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?)";
         const std::pair<sqlite3_stmt**, const char*> stmts[] = {
             {&st_->insert_attempt, ins.c_str()},
             {&st_->insert_trace, "INSERT INTO trace (attempt_id, records) VALUES (?, ?)"},
@@ -475,6 +488,10 @@ void PracticeLog::insert(Attempt& a) {
         bind_real(s, 16, a.threshold_cents);
         if (a.trials) sqlite3_bind_int(s, 17, *a.trials);
         bind_real(s, 18, a.correct_share);
+        bind_text(s, 19, a.method);
+        bind_text(s, 20, a.estimate);
+        bind_real(s, 21, a.threshold_lo_cents);
+        bind_real(s, 22, a.threshold_hi_cents);
         if (sqlite3_step(s) != SQLITE_DONE) fail("writing attempt " + a.uid);
     }
     const sqlite3_int64 id = sqlite3_last_insert_rowid(db_);
@@ -590,10 +607,14 @@ void PracticeLog::for_each(const AttemptFilter& filter, bool with_trace, const s
         a.threshold_cents = column_real(s, 16);
         a.trials = sqlite3_column_type(s, 17) == SQLITE_NULL ? std::optional<int>() : sqlite3_column_int(s, 17);
         a.correct_share = column_real(s, 18);
+        a.method = column_text(s, 19);
+        a.estimate = column_text(s, 20);
+        a.threshold_lo_cents = column_real(s, 21);
+        a.threshold_hi_cents = column_real(s, 22);
         a.trace.clear();
-        if (with_trace && sqlite3_column_type(s, 19) != SQLITE_NULL) {
-            const void* blob = sqlite3_column_blob(s, 19);
-            const auto len = static_cast<std::size_t>(sqlite3_column_bytes(s, 19));
+        if (with_trace && sqlite3_column_type(s, 23) != SQLITE_NULL) {
+            const void* blob = sqlite3_column_blob(s, 23);
+            const auto len = static_cast<std::size_t>(sqlite3_column_bytes(s, 23));
             try {
                 a.trace = decode_trace(blob, len);
             } catch (const LogError& e) {

@@ -11,6 +11,8 @@
 //       time) and table trace (one BLOB per attempt)
 //   v2  attempt.uid (a random 128-bit id, so importing the same CSV twice
 //       adds nothing), attempt.performer, an index on the start time
+//   v3  attempt.method, attempt.estimate, threshold_lo_cents and
+//       threshold_hi_cents (ear sessions: how measured, and the interval)
 // The trace is one BLOB of little-endian float32 records, 16 bytes each,
 // in a side table keyed by attempt id: a 30 s hold at a 5 ms hop is 6000
 // records = 96 KB written as one row, where a row per reading would mean
@@ -47,8 +49,10 @@ std::optional<AttemptKind> parse_kind(std::string_view text);  // empty when unk
 // One record of an attempt's trace (16 bytes on disk, little-endian float32).
 struct TraceRecord {
     float t_s = 0.0f;               // hold: time from the hold's start; ear: time of the answer
-    float f0_hz = 0.0f;             // hold: f0 (0 when unvoiced); ear: staircase level, cents
-    float dev_cents = NAN;          // hold: deviation from the target; ear: separation played, cents
+    float f0_hz = 0.0f;             // hold: f0 (0 when unvoiced); discriminate: the mistuning asked and played,
+                                    //   cents; identify: the interval played (index); schema 2 ear: staircase level
+    float dev_cents = NAN;          // hold: deviation from the target; discriminate: signed mistuning played
+                                    //   (+ wider); identify: the interval named (index); schema 2 ear: separation
     float centre_dev_cents = NAN;   // hold: vibrato centre's deviation; ear: 1 right, 0 wrong
 };
 
@@ -68,9 +72,13 @@ struct Attempt {
     double mean_dev_cents = NAN;
     double spread_cents = NAN;
     double in_tolerance_share = NAN;
-    double threshold_cents = NAN;      // ear: staircase threshold
+    double threshold_cents = NAN;      // ear: fitted threshold (estimate "measured"; schema 2: staircase mean)
     std::optional<int> trials;         // ear: questions answered
     double correct_share = NAN;        // ear: share answered right
+    std::string method;                // ear: "discriminate 2-down 1-up", "identify"; empty before schema 3
+    std::string estimate;              // discriminate: "measured", "finer", "none"; else empty
+    double threshold_lo_cents = NAN;   // discriminate: the 95 % interval (finer: 0 to the smallest level played)
+    double threshold_hi_cents = NAN;
     std::vector<TraceRecord> trace;
 };
 
@@ -121,7 +129,7 @@ struct HistoryGroup {
 
 class PracticeLog {
 public:
-    static constexpr int kSchemaVersion = 2;
+    static constexpr int kSchemaVersion = 3;
     static constexpr std::int32_t kApplicationId = 0x42544c47;  // "BTLG"
 
     // Opens or creates the log (and its folder), migrating an older schema.

@@ -40,6 +40,7 @@ void check_staircase_config(const StaircaseConfig& c) {
     if (c.threshold_reversals < 2 || c.threshold_reversals > c.stop_reversals || c.threshold_reversals % 2 != 0)
         throw bad("threshold_reversals",
                   std::to_string(c.threshold_reversals) + " must be even, at least 2 and at most stop_reversals");
+    if (c.floor_run < 0 || c.floor_run > 1000) throw bad("floor_run", std::to_string(c.floor_run) + " must be 0 to 1000");
     if (c.max_trials < 1 || c.max_trials > 10000) throw bad("max_trials", std::to_string(c.max_trials) + " must be 1 to 10000");
 }
 
@@ -65,6 +66,8 @@ void Staircase::move(int direction) {
 void Staircase::record(bool correct) {
     if (done()) return;
     ++trials_;
+    const bool at_floor = level_ <= config_.min_level;
+    floor_right_ = correct && at_floor ? floor_right_ + 1 : 0;
     if (correct) {
         ++correct_;
         wrong_run_ = 0;
@@ -81,8 +84,13 @@ void Staircase::record(bool correct) {
     }
 }
 
-bool Staircase::done() const {
-    return reversals() >= config_.stop_reversals || trials_ >= config_.max_trials;
+bool Staircase::done() const { return stop_reason() != StopReason::running; }
+
+StopReason Staircase::stop_reason() const {
+    if (reversals() >= config_.stop_reversals) return StopReason::reversals;
+    if (config_.floor_run > 0 && floor_right_ >= config_.floor_run) return StopReason::floor_run;
+    if (trials_ >= config_.max_trials) return StopReason::max_trials;
+    return StopReason::running;
 }
 
 double Staircase::threshold() const {

@@ -8,7 +8,9 @@
 // targets p = 70.7 %, 3-down/1-up 79.4 % (Levitt's Table I). Steps: (1)
 // present level(), (2) record() the answer, (3) a change of direction is a
 // reversal, and the step size shrinks along `steps` as reversals accumulate,
-// (4) stop after stop_reversals, (5) threshold = mean of the levels at the
+// (4) stop after stop_reversals, after max_trials answers, or after
+// floor_run answers right in a row at min_level (a listener finer than the
+// smallest step), (5) threshold = mean of the levels at the
 // last threshold_reversals reversals (an even count, so peaks and valleys
 // balance, as Levitt's midpoint estimate does); the mean is geometric when
 // the steps are geometric.
@@ -26,6 +28,13 @@ enum class StepScale {
     geometric,  // level * or / step (steps are factors > 1)
 };
 
+enum class StopReason {
+    running,     // not done
+    reversals,   // stop_reversals reached
+    max_trials,  // max_trials answers
+    floor_run,   // floor_run right in a row at min_level
+};
+
 struct StaircaseConfig {
     int n_down = 2;                                          // correct in a row for a step down; default 2 (70.7 %)
     int n_up = 1;                                            // wrong in a row for a step up; default 1
@@ -37,6 +46,7 @@ struct StaircaseConfig {
     int stop_reversals = 12;                                 // the run ends after this many; default 12
     int threshold_reversals = 8;                             // the last this many make the threshold (even); default 8
     int max_trials = 150;                                    // the run also ends after this many answers; default 150
+    int floor_run = 0;                                       // ... or this many right in a row at min_level (0: never); default 0
 };
 
 // Throws Error naming the field when a setting is out of range.
@@ -48,7 +58,8 @@ public:
 
     double level() const { return level_; }                 // difference to present next, cents
     void record(bool correct);                              // the listener's answer at level()
-    bool done() const;                                      // enough reversals, or max_trials reached
+    bool done() const;                                      // enough reversals, max_trials, or floor_run at the floor
+    StopReason stop_reason() const;
     int trials() const { return trials_; }
     int correct_count() const { return correct_; }
     int reversals() const { return static_cast<int>(reversal_levels_.size()); }
@@ -67,6 +78,7 @@ private:
     int correct_ = 0;
     int correct_run_ = 0;
     int wrong_run_ = 0;
+    int floor_right_ = 0;
     int last_direction_ = 0;
     std::vector<double> reversal_levels_;
 };
