@@ -73,6 +73,9 @@ struct Engine::Impl {
     double span_s = 0.05;                        // the trackers' span
     bool removal_active = false;
     bool started = false;
+    // Set when start() has built everything the callbacks touch: a stream
+    // opened earlier in start() may call back before that, and is ignored.
+    std::atomic<bool> ready{false};
 
     // One performer: readings, swapped in whole when the targets change.
     std::unique_ptr<pitch::ReadingMaker> maker;
@@ -380,6 +383,7 @@ void Engine::start(bool analysis_thread) {
     m.drone_for_analysis.publish(drone_);
     m.applied_root = 0.0;
     m.started = true;
+    m.ready.store(true, std::memory_order_release);
     m.io.seen_at = Clock::now();
     m.io.running.store(true);
     if (analysis_thread) {
@@ -422,7 +426,7 @@ void Engine::stop() {
 void Engine::capture(const float* in, std::size_t frames, int channels) noexcept {
     Impl& m = *impl_;
     m.io.count_callback();
-    if (m.rings.empty()) return;
+    if (!m.ready.load(std::memory_order_acquire)) return;
     const auto ch = static_cast<std::size_t>(std::max(1, channels));
     std::size_t done = 0;
     while (done < frames) {
@@ -447,7 +451,13 @@ void Engine::capture(const float* in, std::size_t frames, int channels) noexcept
     }
 }
 
-void Engine::playback(float* out, std::size_t frames, int channels) noexcept { impl_->io.play(out, frames, channels); }
+void Engine::playback(float* out, std::size_t frames, int channels) noexcept {
+    if (!impl_->ready.load(std::memory_order_acquire)) {
+        std::fill_n(out, frames * static_cast<std::size_t>(std::max(1, channels)), 0.0f);
+        return;
+    }
+    impl_->io.play(out, frames, channels);
+}
 
 void Engine::xrun(bool input_overflow, bool output_underflow) noexcept { impl_->io.count_xrun(input_overflow, output_underflow); }
 
