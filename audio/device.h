@@ -29,6 +29,8 @@ struct DeviceInfo {
     double default_rate_hz = 0.0;
     bool default_input = false;    // the host's default input device
     bool default_output = false;
+    bool server = false;           // served by a sound server (pulse protocol): its defaults come first
+    std::string description;       // the server's longer label ("" when the host has none)
 };
 
 struct StreamRequest {
@@ -86,11 +88,30 @@ std::unique_ptr<AudioSystem> make_portaudio_system();
 
 enum class Direction { input, output };
 
-// Picks a device by index ("3") or by a unique part of its name (case
-// insensitive); an empty spec picks the default device for the direction.
+// How a device was chosen, for the line that names it.
+enum class ChoiceWhy {
+    named,           // the spec matched its whole name, or a unique part of it
+    index,           // the spec was its index
+    server_default,  // no spec: the sound server's default source or sink
+    host_default,    // no spec and no server default: the host API's default device
+    first_listed,    // no spec and no default: the first device with channels that way
+};
+
+struct DeviceChoice {
+    int index = -1;
+    ChoiceWhy why = ChoiceWhy::named;
+};
+
+// Picks a device by index ("3"), by its whole name, or by a unique part of its
+// name (case insensitive); an empty spec picks, in this order, the sound
+// server's default, the host's default, the first device with channels that
+// way, so the same machine state always picks the same device.
 // Throws Error: no device at all (suggesting --demo for input), no such
 // index, no match, several matches (listing them), or no channels in that direction.
-int choose_device(const std::vector<DeviceInfo>& devices, std::string_view spec, Direction dir);
+DeviceChoice choose_device_why(const std::vector<DeviceInfo>& devices, std::string_view spec, Direction dir);
+inline int choose_device(const std::vector<DeviceInfo>& devices, std::string_view spec, Direction dir) {
+    return choose_device_why(devices, spec, dir).index;
+}
 
 // "Try --demo" style hint for messages about a missing input.
 inline constexpr const char* kDemoHint = "use --demo for the built-in performer";

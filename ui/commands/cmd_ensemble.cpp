@@ -14,6 +14,7 @@
 // (default 0.1 s; 0 = every 5 ms reading), then one last object holding
 // "summary". Messages about channels and devices go to stderr, one line each.
 #include "audio/device.h"
+#include "audio/sound_system.h"
 #include "audio/ensemble.h"
 #include "pitch/base/error.h"
 #include "ui/session/usage_error.h"
@@ -139,7 +140,7 @@ int run_ensemble(const EnsembleOptions& o) {
     const bool device_input = !o.demo && o.input_file.empty();
     const bool play_drone = o.drone && !o.fast && (device_input || !o.output_dev.empty());
     std::unique_ptr<audio::AudioSystem> system;
-    if (device_input || play_drone) system = audio::make_portaudio_system();
+    if (device_input || play_drone) system = audio::make_sound_system();
     audio::EnsembleEngine engine(ec, system.get());
     engine.on_message([](const std::string& m) { std::fprintf(stderr, "beatless: %s\n", m.c_str()); });
     engine.set_setup(setup);

@@ -16,6 +16,7 @@
 // --drone means the input holds a drone at the root (the demo's microphone
 // hears it through a simulated room), and drone removal follows it.
 #include "audio/device.h"
+#include "audio/sound_system.h"
 #include "audio/engine.h"
 #include "audio/timbre.h"
 #include "pitch/base/error.h"
@@ -195,7 +196,7 @@ int run_live(const ListenOptions& o, Printing printing) {
     const bool device_input = !o.demo && o.input_file.empty();
     const bool play_drone = o.drone && !o.fast && (device_input || o.demo || !o.output_dev.empty());
     std::unique_ptr<audio::AudioSystem> system;
-    if (device_input || play_drone) system = audio::make_portaudio_system();
+    if (device_input || play_drone) system = audio::make_sound_system();
     audio::Engine engine(ec, system.get());
     engine.on_message([](const std::string& m) { std::fprintf(stderr, "beatless: %s\n", m.c_str()); });
 

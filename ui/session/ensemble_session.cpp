@@ -1,5 +1,6 @@
 #include "ui/session/ensemble_session.h"
 
+#include "audio/sound_system.h"
 #include "pitch/base/error.h"
 #include "pitch/theory/spelling.h"
 #include "pitch/base/text.h"
@@ -110,7 +111,7 @@ void EnsembleSession::open(AppState& app) {
         return eng;
     };
     try {
-        if (!o.demo && !system_) system_ = audio::make_portaudio_system();
+        if (!o.demo && !system_) system_ = audio::make_sound_system();
         try {
             engine_ = build(took_devices_);
         } catch (const Error& e) {
