@@ -77,6 +77,19 @@ DeviceChoice choose_device_why(const std::vector<DeviceInfo>& devices, std::stri
     return {hits.front()->index, ChoiceWhy::named};
 }
 
+const DeviceInfo* find_device(const std::vector<DeviceInfo>& devices, int index) {
+    for (const DeviceInfo& d : devices)
+        if (d.index == index) return &d;
+    return nullptr;
+}
+
+DeviceChoice choose_output_device(const std::vector<DeviceInfo>& devices, std::string_view spec, int input_index) {
+    if (pitch::trim(spec).empty())
+        for (const DeviceInfo& d : devices)
+            if (d.index == input_index && d.max_output_channels > 0) return {d.index, ChoiceWhy::input_device};
+    return choose_device_why(devices, spec, Direction::output);
+}
+
 // ---------------------------------------------------------------------------
 // PortAudio
 // ---------------------------------------------------------------------------
@@ -276,5 +289,7 @@ private:
 }  // namespace
 
 std::unique_ptr<AudioSystem> make_portaudio_system() { return std::make_unique<PortAudioSystem>(); }
+
+bool is_portaudio_stream(const Stream* s) { return dynamic_cast<const PaStreamImpl*>(s) != nullptr; }
 
 }  // namespace beatless::audio

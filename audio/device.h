@@ -85,6 +85,8 @@ public:
 
 // PortAudio. Throws Error when PortAudio cannot start at all.
 std::unique_ptr<AudioSystem> make_portaudio_system();
+// True when `s` was opened by a PortAudio system (closing it may block: retire it).
+bool is_portaudio_stream(const Stream* s);
 
 enum class Direction { input, output };
 
@@ -95,6 +97,7 @@ enum class ChoiceWhy {
     server_default,  // no spec: the sound server's default source or sink
     host_default,    // no spec and no server default: the host API's default device
     first_listed,    // no spec and no default: the first device with channels that way
+    input_device,    // no output spec: the input's own device, which has outputs (one card, one clock)
 };
 
 struct DeviceChoice {
@@ -112,6 +115,12 @@ DeviceChoice choose_device_why(const std::vector<DeviceInfo>& devices, std::stri
 inline int choose_device(const std::vector<DeviceInfo>& devices, std::string_view spec, Direction dir) {
     return choose_device_why(devices, spec, dir).index;
 }
+// The device with this index in the list, or null.
+const DeviceInfo* find_device(const std::vector<DeviceInfo>& devices, int index);
+
+// The drone's output: as choose_device_why, except that an empty spec picks the
+// input's own device (input_index, -1 = none) when it has outputs.
+DeviceChoice choose_output_device(const std::vector<DeviceInfo>& devices, std::string_view spec, int input_index);
 
 // "Try --demo" style hint for messages about a missing input.
 inline constexpr const char* kDemoHint = "use --demo for the built-in performer";

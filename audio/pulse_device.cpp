@@ -307,15 +307,13 @@ public:
         if (index < 0) throw Error("audio stream: neither an input nor an output was asked for");
         if (listed_.empty()) listed_ = list_server();
         const bool capture = rq.input_device >= 0;
-        for (const DeviceInfo& d : listed_) {
-            if (d.index != index) continue;
-            if ((capture ? d.max_input_channels : d.max_output_channels) == 0)
-                throw Error("pulse device '" + d.name + "' is not a " + (capture ? "source" : "sink"));
-            auto s = std::make_unique<PulseStream>(cb);
-            s->open(d, capture, rq);
-            return s;
-        }
-        throw Error(std::string(capture ? "input" : "output") + " device " + std::to_string(index) + ": no such pulse device");
+        const DeviceInfo* d = find_device(listed_, index);
+        if (!d) throw Error(std::string(capture ? "input" : "output") + " device " + std::to_string(index) + ": no such pulse device");
+        if ((capture ? d->max_input_channels : d->max_output_channels) == 0)
+            throw Error("pulse device '" + d->name + "' is not a " + (capture ? "source" : "sink"));
+        auto s = std::make_unique<PulseStream>(cb);
+        s->open(*d, capture, rq);
+        return s;
     }
 
     void rescan() override { listed_.clear(); }
@@ -327,7 +325,5 @@ private:
 }  // namespace
 
 std::unique_ptr<AudioSystem> make_pulse_system() { return std::make_unique<PulseSystem>(); }
-
-bool is_pulse_stream(const Stream* s) { return dynamic_cast<const PulseStream*>(s) != nullptr; }
 
 }  // namespace beatless::audio

@@ -22,7 +22,4 @@ inline constexpr const char* kPulseHostApi = "PulseAudio";  // DeviceInfo::host_
 // on construction. Device indices are local to this system (0 = the first source).
 std::unique_ptr<AudioSystem> make_pulse_system();
 
-// True when `s` was opened by a pulse system (closing it never blocks).
-bool is_pulse_stream(const Stream* s);
-
 }  // namespace beatless::audio

@@ -1,6 +1,7 @@
 // The sound system: PortAudio's devices and a pulse server's under one index.
 #include "audio/sound_system.h"
 
+#include "audio/jack_device.h"
 #include "audio/pulse_device.h"
 #include "pitch/base/error.h"
 
@@ -11,23 +12,30 @@ namespace beatless::audio {
 
 namespace {
 
+// PortAudio's JACK host: its streams cannot be closed after the server died
+// (audio/jack_device.h), so JACK's devices come from jack_ instead.
+constexpr const char* kPortAudioJackHost = "JACK Audio Connection Kit";
+
 class CombinedSystem : public AudioSystem {
 public:
     CombinedSystem() {
+        hide_jack_from_portaudio();
         try {
             portaudio_ = make_portaudio_system();
         } catch (const Error&) {
             portaudio_.reset();  // the pulse server may still serve
         }
+        jack_ = make_jack_system();  // after PortAudio, whose start sets libjack's message handler
         pulse_ = make_pulse_system();
     }
 
     std::vector<DeviceInfo> devices() override {
         std::vector<DeviceInfo> out;
         routes_.clear();
-        for (AudioSystem* sys : {portaudio_.get(), pulse_.get()}) {
+        for (AudioSystem* sys : {portaudio_.get(), jack_.get(), pulse_.get()}) {
             if (!sys) continue;
             for (DeviceInfo d : sys->devices()) {
+                if (sys == portaudio_.get() && d.host_api == kPortAudioJackHost) continue;  // served by jack_ instead
                 routes_.push_back({sys, d.index});
                 d.index = static_cast<int>(out.size());
                 out.push_back(std::move(d));
@@ -57,14 +65,15 @@ public:
 
     void rescan() override {
         if (portaudio_) portaudio_->rescan();
+        jack_->rescan();
         pulse_->rescan();
         routes_.clear();
     }
 
     void retire(std::unique_ptr<Stream> s) override {
         if (!s) return;
-        if (is_pulse_stream(s.get()) || !portaudio_) s.reset();  // a pulse stream closes at once, server or not
-        else portaudio_->retire(std::move(s));
+        if (is_portaudio_stream(s.get())) portaudio_->retire(std::move(s));
+        else s.reset();  // a pulse or JACK stream closes at once, server or not
     }
 
 private:
@@ -72,7 +81,7 @@ private:
         AudioSystem* system = nullptr;
         int index = -1;  // the backend's own index
     };
-    std::unique_ptr<AudioSystem> portaudio_, pulse_;
+    std::unique_ptr<AudioSystem> portaudio_, jack_, pulse_;
     std::vector<Route> routes_;  // by combined index, from the last devices()
 };
 

@@ -202,6 +202,7 @@ int run_live(const ListenOptions& o, Printing printing) {
     engine.on_message([](const std::string& m) { std::fprintf(stderr, "beatless: %s\n", m.c_str()); });
 
     std::string what, input_why, output_why;
+    int input_index = -1;
     if (o.demo) {
         audio::DemoConfig dc;
         dc.root_hz = root_hz;
@@ -217,12 +218,13 @@ int run_live(const ListenOptions& o, Printing printing) {
         // Chosen here from one listing, so the start line can say why; the engine opens that index.
         const audio::DeviceChoice c = audio::choose_device_why(system->devices(), o.input_dev, audio::Direction::input);
         engine.open_input_device(std::to_string(c.index));
+        input_index = c.index;
         what = "the input device";
         input_why = choice_text(c.why, audio::Direction::input);
     }
     if (play_drone) {
         try {
-            const audio::DeviceChoice c = audio::choose_device_why(system->devices(), o.output_dev, audio::Direction::output);
+            const audio::DeviceChoice c = audio::choose_output_device(system->devices(), o.output_dev, input_index);
             engine.open_output_device(std::to_string(c.index));
             output_why = choice_text(c.why, audio::Direction::output);
         } catch (const Error& e) {

@@ -35,6 +35,7 @@ std::string choice_text(audio::ChoiceWhy why, audio::Direction dir) {
             return std::string("the host's default ") + (in ? "input" : "output") + " (no sound server default)";
         case audio::ChoiceWhy::first_listed:
             return std::string("the first device with ") + (in ? "inputs" : "outputs") + " (no default is set)";
+        case audio::ChoiceWhy::input_device: return "the input's own device";
     }
     return "the default";
 }
