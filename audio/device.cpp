@@ -44,6 +44,8 @@ DeviceChoice choose_device_why(const std::vector<DeviceInfo>& devices, std::stri
         for (const DeviceInfo& d : devices)
             if (d.server && is_default(d)) return {d.index, ChoiceWhy::server_default};
         for (const DeviceInfo& d : devices)
+            if (d.server && channels(d, dir) > 0) return {d.index, ChoiceWhy::server_first};
+        for (const DeviceInfo& d : devices)
             if (is_default(d)) return {d.index, ChoiceWhy::host_default};
         for (const DeviceInfo& d : devices)
             if (channels(d, dir) > 0) return {d.index, ChoiceWhy::first_listed};

@@ -95,6 +95,7 @@ enum class ChoiceWhy {
     named,           // the spec matched its whole name, or a unique part of it
     index,           // the spec was its index
     server_default,  // no spec: the sound server's default source or sink
+    server_first,    // no spec, a sound server without a default: its first source or sink by name
     host_default,    // no spec and no server default: the host API's default device
     first_listed,    // no spec and no default: the first device with channels that way
     input_device,    // no output spec: the input's own device, which has outputs (one card, one clock)
@@ -107,8 +108,9 @@ struct DeviceChoice {
 
 // Picks a device by index ("3"), by its whole name, or by a unique part of its
 // name (case insensitive); an empty spec picks, in this order, the sound
-// server's default, the host's default, the first device with channels that
-// way, so the same machine state always picks the same device.
+// server's default, the server's first device that way (a server is running,
+// so it serves the desktop), the host's default, the first device with
+// channels that way, so the same machine state always picks the same device.
 // Throws Error: no device at all (suggesting --demo for input), no such
 // index, no match, several matches (listing them), or no channels in that direction.
 DeviceChoice choose_device_why(const std::vector<DeviceInfo>& devices, std::string_view spec, Direction dir);

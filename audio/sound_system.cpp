@@ -15,6 +15,7 @@ namespace {
 // PortAudio's JACK host: its streams cannot be closed after the server died
 // (audio/jack_device.h), so JACK's devices come from jack_ instead.
 constexpr const char* kPortAudioJackHost = "JACK Audio Connection Kit";
+constexpr const char* kAlsaPulseDevice = "pulse";
 
 class CombinedSystem : public AudioSystem {
 public:
@@ -32,10 +33,14 @@ public:
     std::vector<DeviceInfo> devices() override {
         std::vector<DeviceInfo> out;
         routes_.clear();
+        // ALSA's "pulse" device reaches the same server through a plugin that can hang
+        // PortAudio for good: while the server answers, pulse_ serves it instead.
+        const std::vector<DeviceInfo> served = pulse_->devices();
         for (AudioSystem* sys : {portaudio_.get(), jack_.get(), pulse_.get()}) {
             if (!sys) continue;
-            for (DeviceInfo d : sys->devices()) {
+            for (DeviceInfo d : sys == pulse_.get() ? served : sys->devices()) {
                 if (sys == portaudio_.get() && d.host_api == kPortAudioJackHost) continue;  // served by jack_ instead
+                if (sys == portaudio_.get() && !served.empty() && d.name == kAlsaPulseDevice) continue;
                 routes_.push_back({sys, d.index});
                 d.index = static_cast<int>(out.size());
                 out.push_back(std::move(d));

@@ -1,8 +1,9 @@
 #!/usr/bin/python3
-"""The live path end to end through a private PulseAudio server (null sink).
+"""The live path end to end through a private pulse server (null sinks).
 
-Starts `pulseaudio -n` in a temporary runtime directory with one null sink,
-`room` (48 kHz), and a second, `hall`, that is not the default. A null sink
+Starts `pulseaudio -n` (or, given "pipewire", PipeWire's pulse server with
+its session manager on a private D-Bus bus) in a temporary runtime directory
+with a null sink `room` (48 kHz), the default, and a second, `hall`. A null sink
 with no player renders in 2-s chunks, so a silent keeper (`pacat` from
 /dev/zero) plays into `room` the whole time, clocking it as a sound card would.
   1. `devices` lists the server's sources and sinks with the defaults marked;
@@ -15,9 +16,9 @@ with no player renders in 2-s chunks, so a silent keeper (`pacat` from
      measured on the monitor with numpy within 1 dB of -30 dBFS RMS;
   5. the server killed and restarted mid-run: readings stop, resume within
      3 s of the server's return, and `--seconds` ends the run on time.
-Skips (exit 77) when pulseaudio or pulseaudio-utils is missing. Every step has
+Skips (exit 77) when a server's package or pulseaudio-utils is missing. Every step has
 a timeout; the servers and every child are killed at the end.
-Usage: check_pulse_live.py path/to/beatless
+Usage: check_pulse_live.py path/to/beatless [pulseaudio|pipewire]
 """
 import json
 import math
@@ -64,40 +65,62 @@ def stop(p, sig=signal.SIGTERM):
 
 
 class Server:
-    """A private pulseaudio with null sinks, and a silent keeper playing into `room`."""
+    """A private pulse server with null sinks, and a silent keeper playing into `room`.
+    kind "pulseaudio": `pulseaudio -n`; kind "pipewire": a private D-Bus session bus,
+    pipewire, wireplumber (its session manager needs the bus) and pipewire-pulse."""
 
-    def __init__(self, runtime):
-        self.runtime = runtime
+    def __init__(self, runtime, kind):
+        self.runtime, self.kind = runtime, kind
         self.env = dict(os.environ, XDG_RUNTIME_DIR=runtime, PULSE_RUNTIME_PATH=os.path.join(runtime, "pulse"),
                         HOME=runtime, PULSE_STATE_PATH=os.path.join(runtime, "state"),
-                        PULSE_SERVER="unix:" + os.path.join(runtime, "pulse", "native"))
-        self.daemon = self.keeper = None
+                        PULSE_SERVER="unix:" + os.path.join(runtime, "pulse", "native"),
+                        DBUS_SESSION_BUS_ADDRESS="unix:path=" + os.path.join(runtime, "bus"))
+        self.procs = []
+
+    def spawn(self, args):
+        p = subprocess.Popen(args, env=self.env, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL, start_new_session=True)
+        children.append(p)
+        self.procs.append(p)
+        return p
+
+    def pactl(self, *args):
+        return subprocess.run(["pactl"] + list(args), env=self.env, capture_output=True, text=True, timeout=5).returncode == 0
 
     def start(self):
-        self.daemon = subprocess.Popen(
-            ["pulseaudio", "-n", "--daemonize=no", "--exit-idle-time=-1", "--use-pid-file=no",
-             "-L", "module-native-protocol-unix",
-             "-L", "module-null-sink sink_name=room rate=48000",
-             "-L", "module-null-sink sink_name=hall rate=48000",
-             "--log-target=stderr", "--log-level=error"],
-            env=self.env, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL, start_new_session=True)
-        children.append(self.daemon)
-        deadline = time.time() + 10
+        if self.kind == "pulseaudio":
+            self.spawn(["pulseaudio", "-n", "--daemonize=no", "--exit-idle-time=-1", "--use-pid-file=no",
+                        "-L", "module-native-protocol-unix",
+                        "-L", "module-null-sink sink_name=room rate=48000",
+                        "-L", "module-null-sink sink_name=hall rate=48000",
+                        "--log-target=stderr", "--log-level=error"])
+        else:
+            self.spawn(["dbus-daemon", "--session", "--address=" + self.env["DBUS_SESSION_BUS_ADDRESS"], "--nofork", "--nopidfile"])
+            time.sleep(0.3)
+            self.spawn(["pipewire"])
+            time.sleep(0.5)
+            self.spawn(["wireplumber"])
+            self.spawn(["pipewire-pulse"])
+        deadline = time.time() + 15
+        while time.time() < deadline and not self.pactl("info"):
+            time.sleep(0.1)
+        if self.kind == "pipewire":
+            for sink in ("room", "hall"):
+                self.pactl("load-module", "module-null-sink", "sink_name=" + sink, "rate=48000")
         while time.time() < deadline:
-            r = subprocess.run(["pactl", "set-default-sink", "room"], env=self.env, capture_output=True, timeout=5)
-            if r.returncode == 0:
-                subprocess.run(["pactl", "set-default-source", "room.monitor"], env=self.env, capture_output=True, timeout=5)
-                self.keeper = subprocess.Popen(["pacat", "-p", "--raw", "--latency-msec=20", "-d", "room"], env=self.env,
-                                               stdin=open("/dev/zero", "rb"), stdout=subprocess.DEVNULL,
-                                               stderr=subprocess.DEVNULL, start_new_session=True)
-                children.append(self.keeper)
+            if self.pactl("set-default-sink", "room") and self.pactl("set-default-source", "room.monitor"):
+                keeper = subprocess.Popen(["pacat", "-p", "--raw", "--latency-msec=20", "-d", "room"], env=self.env,
+                                          stdin=open("/dev/zero", "rb"), stdout=subprocess.DEVNULL,
+                                          stderr=subprocess.DEVNULL, start_new_session=True)
+                children.append(keeper)
+                self.procs.append(keeper)
                 return
             time.sleep(0.1)
-        raise RuntimeError("pulseaudio did not come up within 10 s")
+        raise RuntimeError("%s did not come up within 15 s" % self.kind)
 
     def kill(self):
-        stop(self.daemon, signal.SIGKILL)
-        stop(self.keeper, signal.SIGKILL)
+        for p in reversed(self.procs):
+            stop(p, signal.SIGKILL)
+        self.procs = []
 
 
 def write_take(path, seconds, drone=True, voice_start_s=0.5):
@@ -151,20 +174,24 @@ class Listener:
 
 
 def main():
-    for tool in ("pulseaudio", "pactl", "pacat", "paplay", "parecord"):
+    kind = sys.argv[2] if len(sys.argv) > 2 else "pulseaudio"
+    servers = ["pulseaudio"] if kind == "pulseaudio" else ["dbus-daemon", "pipewire", "wireplumber", "pipewire-pulse"]
+    for tool in servers + ["pactl", "pacat", "paplay", "parecord"]:
         if shutil.which(tool) is None:
-            print("SKIP: %s is not installed (Debian: pulseaudio, pulseaudio-utils; CI installs them from .ci/debian-packages)" % tool)
+            print("SKIP: %s is not installed (Debian: %s, pulseaudio-utils; CI installs them from .ci/debian-packages)" %
+                  (tool, "pulseaudio" if kind == "pulseaudio" else "dbus-daemon, pipewire, wireplumber, pipewire-pulse"))
             return 77
-    runtime = tempfile.mkdtemp(prefix="beatless-pulse-")
+    host = "PulseAudio" if kind == "pulseaudio" else "PipeWire"
+    runtime = tempfile.mkdtemp(prefix="beatless-%s-" % kind)
     os.chmod(runtime, 0o700)
     home = os.path.join(runtime, "home")
-    server = Server(runtime)
+    server = Server(runtime, kind)
     server.start()
     env = server.env
 
     # 1. The device list.
     r = subprocess.run([BEATLESS, "devices"], env=env, capture_output=True, text=True, timeout=30)
-    rows = [l for l in r.stdout.splitlines() if "PulseAudio" in l]
+    rows = [l for l in r.stdout.splitlines() if host in l]
     check(r.returncode == 0 and any("room.monitor" in l and "default input" in l for l in rows),
           "devices lists the server's default source 'room.monitor', marked as the default input")
     check(any(l.split()[1] == "room" and "default output" in l for l in rows), "devices lists the default sink 'room', marked")
@@ -224,7 +251,7 @@ def main():
               (level, len(x) / rate))
     else:
         check(False, "parecord recorded the monitor")
-    check("output 'room' (PulseAudio)" in ls.stderr_text() and "default sink" in ls.stderr_text(),
+    check(("output 'room' (%s)" % host) in ls.stderr_text() and "default sink" in ls.stderr_text(),
           "the drone plays on the default sink 'room', and the start line says so")
 
     # 5. The server killed and restarted mid-run.

@@ -31,6 +31,8 @@ std::string choice_text(audio::ChoiceWhy why, audio::Direction dir) {
         case audio::ChoiceWhy::named: return std::string("the ") + (in ? "input" : "output") + " asked for by name";
         case audio::ChoiceWhy::index: return std::string("the ") + (in ? "input" : "output") + " asked for by index";
         case audio::ChoiceWhy::server_default: return std::string("the sound server's default ") + (in ? "source" : "sink");
+        case audio::ChoiceWhy::server_first:
+            return std::string("the sound server's first ") + (in ? "source" : "sink") + " by name (it has no default set)";
         case audio::ChoiceWhy::host_default:
             return std::string("the host's default ") + (in ? "input" : "output") + " (no sound server default)";
         case audio::ChoiceWhy::first_listed:
