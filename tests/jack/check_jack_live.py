@@ -158,8 +158,8 @@ def main():
     stop(jackd, signal.SIGKILL)
     killed_at = time.time()
     time.sleep(2.0)
+    back_at = time.time()  # the server starts now (it may answer before start_jackd() returns)
     jackd = start_jackd()
-    back_at = time.time()
     check(connect("beatless:out_1", "beatless:in_1", timeout_s=6.0), "the program's ports are back and wired again")
     try:
         err = p.stderr.read()
@@ -173,10 +173,10 @@ def main():
     print("\n".join("     | " + l for l in lines))
     voiced = [at for at, l in stamped if l.startswith("{") and json.loads(l)["f0_hz"]]
     before = [at for at in voiced if at < killed_at]
-    during = [at for at in voiced if killed_at + 0.3 < at < back_at]
+    during = [at for at in voiced if killed_at + 1.0 < at < back_at]
     after = [at for at in voiced if at >= back_at]
     check(len(before) > 100, "readings before the server died (%d)" % len(before))
-    check(len(during) == 0, "no readings while the server is gone (%d)" % len(during))
+    check(len(during) == 0, "no readings while the server is gone, from 1 s after the loss (a busy machine may still be analysing audio heard before it) (%d)" % len(during))
     check(bool(after) and after[0] - back_at <= 3.0,
           "readings resume %.2f s after the server's return (within 3 s)" % ((after[0] - back_at) if after else float("inf")))
     check(p.returncode == 0 and ended_at - t0 <= 8.0 + 1.0 + 1.5,

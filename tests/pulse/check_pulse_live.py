@@ -266,8 +266,8 @@ def main():
     stop(player, signal.SIGKILL)
     killed_at = time.time()
     time.sleep(2.0)
+    back_at = time.time()  # the server starts now (it may answer before start() returns)
     server.start()
-    back_at = time.time()
     player = subprocess.Popen(["paplay", "-d", "room", long_take], env=env, stderr=subprocess.DEVNULL, start_new_session=True)
     children.append(player)
     code = ls.wait(25)
@@ -276,10 +276,10 @@ def main():
     print("     | %s" % ls.stderr_text().replace("\n", "\n     | "))
     got = [(at, x) for at, x in ls.readings() if x["f0_hz"]]
     before = [at for at, _ in got if at < killed_at]
-    during = [at for at, _ in got if killed_at + 0.3 < at < back_at]
+    during = [at for at, _ in got if killed_at + 1.0 < at < back_at]
     after = [at for at, _ in got if at >= back_at]
     check(len(before) > 200, "readings before the server died (%d)" % len(before))
-    check(len(during) == 0, "no readings while the server is gone (%d)" % len(during))
+    check(len(during) == 0, "no readings while the server is gone, from 1 s after the loss (a busy machine may still be analysing audio heard before it) (%d)" % len(during))
     check(bool(after) and after[0] - back_at <= 3.0,
           "readings resume %.2f s after the server's return (within 3 s)" % ((after[0] - back_at) if after else float("inf")))
     check(code == 0 and ended_at - ls.t0 <= 8.0 + 1.0 + 1.5,
