@@ -155,7 +155,7 @@ def main():
     reader.start()
     check(connect("beatless:out_1", "beatless:in_1"), "drone output wired into the input (before the loss)")
     time.sleep(2.0)
-    stop(jackd, signal.SIGKILL)
+    stop(jackd, signal.SIGTERM)  # SIGKILL would leave its slot in JACK's server registry (eight slots per user)
     killed_at = time.time()
     time.sleep(2.0)
     back_at = time.time()  # the server starts now (it may answer before start_jackd() returns)
@@ -199,5 +199,5 @@ if __name__ == "__main__":
         code = 1
     finally:
         for c in reversed(children):
-            stop(c, signal.SIGKILL)
+            stop(c, signal.SIGTERM)  # then SIGKILL after 5 s; a jackd killed outright keeps its registry slot
     sys.exit(code)
