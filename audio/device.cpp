@@ -33,17 +33,22 @@ const char* dir_name(Direction dir) { return dir == Direction::input ? "input" :
 
 }  // namespace
 
-int choose_device(const std::vector<DeviceInfo>& devices, std::string_view spec, Direction dir) {
+DeviceChoice choose_device_why(const std::vector<DeviceInfo>& devices, std::string_view spec, Direction dir) {
     const bool any = std::any_of(devices.begin(), devices.end(), [&](const DeviceInfo& d) { return channels(d, dir) > 0; });
     if (!any)
         throw Error(std::string("no audio ") + dir_name(dir) + " device found" +
                     (dir == Direction::input ? std::string(" (") + kDemoHint + ")" : std::string()));
     const std::string_view s = pitch::trim(spec);
     if (s.empty()) {
+        auto is_default = [dir](const DeviceInfo& d) { return (dir == Direction::input ? d.default_input : d.default_output) && channels(d, dir) > 0; };
         for (const DeviceInfo& d : devices)
-            if ((dir == Direction::input ? d.default_input : d.default_output) && channels(d, dir) > 0) return d.index;
+            if (d.server && is_default(d)) return {d.index, ChoiceWhy::server_default};
         for (const DeviceInfo& d : devices)
-            if (channels(d, dir) > 0) return d.index;
+            if (d.server && channels(d, dir) > 0) return {d.index, ChoiceWhy::server_first};
+        for (const DeviceInfo& d : devices)
+            if (is_default(d)) return {d.index, ChoiceWhy::host_default};
+        for (const DeviceInfo& d : devices)
+            if (channels(d, dir) > 0) return {d.index, ChoiceWhy::first_listed};
     }
     const bool numeric = !s.empty() && std::all_of(s.begin(), s.end(), [](char c) { return std::isdigit(static_cast<unsigned char>(c)); });
     if (numeric) {
@@ -52,11 +57,13 @@ int choose_device(const std::vector<DeviceInfo>& devices, std::string_view spec,
             if (d.index != index) continue;
             if (channels(d, dir) == 0)
                 throw Error("device " + std::to_string(index) + " '" + d.name + "' has no " + dir_name(dir) + " channels");
-            return index;
+            return {index, ChoiceWhy::index};
         }
         throw Error(std::string(dir_name(dir)) + " device " + std::string(s) + ": no such device (see beatless devices)");
     }
     const std::string want = lower(s);
+    for (const DeviceInfo& d : devices)  // a whole name wins over names that contain it ('room' beside 'room.monitor')
+        if (channels(d, dir) > 0 && lower(d.name) == want) return {d.index, ChoiceWhy::named};
     std::vector<const DeviceInfo*> hits;
     for (const DeviceInfo& d : devices)
         if (channels(d, dir) > 0 && lower(d.name).find(want) != std::string::npos) hits.push_back(&d);
@@ -69,7 +76,20 @@ int choose_device(const std::vector<DeviceInfo>& devices, std::string_view spec,
         throw Error(std::string(dir_name(dir)) + " device " + pitch::quote(s) + ": matches " + std::to_string(hits.size()) +
                     " devices (" + list + "); give more of the name or the index");
     }
-    return hits.front()->index;
+    return {hits.front()->index, ChoiceWhy::named};
+}
+
+const DeviceInfo* find_device(const std::vector<DeviceInfo>& devices, int index) {
+    for (const DeviceInfo& d : devices)
+        if (d.index == index) return &d;
+    return nullptr;
+}
+
+DeviceChoice choose_output_device(const std::vector<DeviceInfo>& devices, std::string_view spec, int input_index) {
+    if (pitch::trim(spec).empty())
+        for (const DeviceInfo& d : devices)
+            if (d.index == input_index && d.max_output_channels > 0) return {d.index, ChoiceWhy::input_device};
+    return choose_device_why(devices, spec, Direction::output);
 }
 
 // ---------------------------------------------------------------------------
@@ -271,5 +291,7 @@ private:
 }  // namespace
 
 std::unique_ptr<AudioSystem> make_portaudio_system() { return std::make_unique<PortAudioSystem>(); }
+
+bool is_portaudio_stream(const Stream* s) { return dynamic_cast<const PaStreamImpl*>(s) != nullptr; }
 
 }  // namespace beatless::audio

@@ -29,6 +29,8 @@ struct DeviceInfo {
     double default_rate_hz = 0.0;
     bool default_input = false;    // the host's default input device
     bool default_output = false;
+    bool server = false;           // served by a sound server (pulse protocol): its defaults come first
+    std::string description;       // the server's longer label ("" when the host has none)
 };
 
 struct StreamRequest {
@@ -83,14 +85,44 @@ public:
 
 // PortAudio. Throws Error when PortAudio cannot start at all.
 std::unique_ptr<AudioSystem> make_portaudio_system();
+// True when `s` was opened by a PortAudio system (closing it may block: retire it).
+bool is_portaudio_stream(const Stream* s);
 
 enum class Direction { input, output };
 
-// Picks a device by index ("3") or by a unique part of its name (case
-// insensitive); an empty spec picks the default device for the direction.
+// How a device was chosen, for the line that names it.
+enum class ChoiceWhy {
+    named,           // the spec matched its whole name, or a unique part of it
+    index,           // the spec was its index
+    server_default,  // no spec: the sound server's default source or sink
+    server_first,    // no spec, a sound server without a default: its first source or sink by name
+    host_default,    // no spec and no server default: the host API's default device
+    first_listed,    // no spec and no default: the first device with channels that way
+    input_device,    // no output spec: the input's own device, which has outputs (one card, one clock)
+};
+
+struct DeviceChoice {
+    int index = -1;
+    ChoiceWhy why = ChoiceWhy::named;
+};
+
+// Picks a device by index ("3"), by its whole name, or by a unique part of its
+// name (case insensitive); an empty spec picks, in this order, the sound
+// server's default, the server's first device that way (a server is running,
+// so it serves the desktop), the host's default, the first device with
+// channels that way, so the same machine state always picks the same device.
 // Throws Error: no device at all (suggesting --demo for input), no such
 // index, no match, several matches (listing them), or no channels in that direction.
-int choose_device(const std::vector<DeviceInfo>& devices, std::string_view spec, Direction dir);
+DeviceChoice choose_device_why(const std::vector<DeviceInfo>& devices, std::string_view spec, Direction dir);
+inline int choose_device(const std::vector<DeviceInfo>& devices, std::string_view spec, Direction dir) {
+    return choose_device_why(devices, spec, dir).index;
+}
+// The device with this index in the list, or null.
+const DeviceInfo* find_device(const std::vector<DeviceInfo>& devices, int index);
+
+// The drone's output: as choose_device_why, except that an empty spec picks the
+// input's own device (input_index, -1 = none) when it has outputs.
+DeviceChoice choose_output_device(const std::vector<DeviceInfo>& devices, std::string_view spec, int input_index);
 
 // "Try --demo" style hint for messages about a missing input.
 inline constexpr const char* kDemoHint = "use --demo for the built-in performer";

@@ -44,13 +44,8 @@ FakeAudioSystem::FakeAudioSystem(std::vector<DeviceInfo> devices, std::vector<do
 }
 
 std::unique_ptr<Stream> FakeAudioSystem::open(const StreamRequest& rq, StreamCallbacks& cb) {
-    auto find = [&](int index) -> const DeviceInfo* {
-        for (const DeviceInfo& d : devices_)
-            if (d.index == index) return &d;
-        return nullptr;
-    };
-    const DeviceInfo* din = rq.input_device >= 0 ? find(rq.input_device) : nullptr;
-    const DeviceInfo* dout = rq.output_device >= 0 ? find(rq.output_device) : nullptr;
+    const DeviceInfo* din = rq.input_device >= 0 ? find_device(devices_, rq.input_device) : nullptr;
+    const DeviceInfo* dout = rq.output_device >= 0 ? find_device(devices_, rq.output_device) : nullptr;
     if (!present_ || (rq.input_device >= 0 && !din) || (rq.output_device >= 0 && !dout))
         throw Error("device " + std::to_string(rq.input_device >= 0 ? rq.input_device : rq.output_device) + ": no such device");
     const std::string name = "'" + (din ? din : dout)->name + "'";

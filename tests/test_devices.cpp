@@ -52,6 +52,54 @@ TEST_CASE("devices are chosen by index or by a unique part of the name") {
     CHECK(choose_device(devs, "hdmi", Direction::output) == 5);
 }
 
+// The default rule (common practice on desktops: the sound server's choice
+// stands for the user's): the server's default first, then the host's, then
+// the first device with channels; the same list always gives the same choice.
+TEST_CASE("the default device: the sound server's, then the host's, then the first listed") {
+    std::vector<DeviceInfo> devs = {fake_device(0, "default", 32, 32), fake_device(1, "system", 2, 2),
+                                    fake_device(2, "hall.monitor", 2, 0), fake_device(3, "room.monitor", 2, 0),
+                                    fake_device(4, "room", 0, 2)};
+    devs[0].default_input = devs[0].default_output = true;  // ALSA's default
+    for (int i : {2, 3, 4}) devs[static_cast<std::size_t>(i)].server = true;
+    devs[3].default_input = devs[4].default_output = true;  // the server's default source and sink
+    for (int run = 0; run < 10; ++run) {
+        const DeviceChoice in = choose_device_why(devs, "", Direction::input);
+        CHECK(in.index == 3);
+        CHECK(in.why == ChoiceWhy::server_default);
+    }
+    CHECK(choose_device_why(devs, "", Direction::output).index == 4);
+    devs[3].default_input = false;  // a server without a default source: its first source by name
+    CHECK(choose_device_why(devs, "", Direction::input).index == 2);
+    CHECK(choose_device_why(devs, "", Direction::input).why == ChoiceWhy::server_first);
+    devs.resize(2);  // no server: the host's default
+    CHECK(choose_device_why(devs, "", Direction::input).index == 0);
+    CHECK(choose_device_why(devs, "", Direction::input).why == ChoiceWhy::host_default);
+    devs[0].default_input = false;  // no default at all: the first with inputs
+    CHECK(choose_device_why(devs, "", Direction::input).index == 0);
+    CHECK(choose_device_why(devs, "", Direction::input).why == ChoiceWhy::first_listed);
+}
+
+TEST_CASE("a whole device name wins over names that contain it") {
+    const std::vector<DeviceInfo> devs = {fake_device(0, "room.monitor", 2, 0), fake_device(1, "room", 2, 2), fake_device(2, "roomy", 2, 0)};
+    CHECK(choose_device(devs, "room", Direction::input) == 1);
+    CHECK(choose_device(devs, "ROOM.monitor", Direction::input) == 0);
+    CHECK(choose_device_why(devs, "1", Direction::input).why == ChoiceWhy::index);
+    CHECK(choose_error(devs, "roo", Direction::input).find("matches 3 devices") != std::string::npos);
+}
+
+TEST_CASE("the drone's default output is the input's own device when it has outputs") {
+    std::vector<DeviceInfo> devs = {fake_device(0, "jack", 2, 2), fake_device(1, "system", 2, 2), fake_device(2, "room.monitor", 2, 0),
+                                    fake_device(3, "room", 0, 2)};
+    devs[0].default_output = true;
+    devs[3].server = devs[3].default_output = true;
+    const DeviceChoice same = choose_output_device(devs, "", 1);  // a duplex card: one clock for both
+    CHECK(same.index == 1);
+    CHECK(same.why == ChoiceWhy::input_device);
+    CHECK(choose_output_device(devs, "", 2).index == 3);  // a source has no outputs: the server's default sink
+    CHECK(choose_output_device(devs, "", 2).why == ChoiceWhy::server_default);
+    CHECK(choose_output_device(devs, "jack", 1).index == 0);  // a named output wins
+}
+
 TEST_CASE("bad device choices: one line naming the device and the problem") {
     const auto devs = three();
     const std::string none = choose_error({}, "", Direction::input);

@@ -4,6 +4,7 @@
 // output channel counts, default sample rate, and which are the defaults.
 // With no device at all it says so on stderr and suggests --demo.
 #include "audio/device.h"
+#include "audio/sound_system.h"
 #include "pitch/base/text.h"
 #include "ui/commands/commands.h"
 #include "ui/session/json.h"
@@ -16,7 +17,7 @@ namespace beatless::ui {
 namespace {
 
 int run_devices(Format format) {
-    auto system = audio::make_portaudio_system();
+    auto system = audio::make_sound_system();
     const auto devs = system->devices();
     if (format == Format::json) {
         JsonWriter j;

@@ -23,6 +23,7 @@
 // attempt), diagnostics to stderr.
 #include "audio/demo_performer.h"
 #include "audio/device.h"
+#include "audio/sound_system.h"
 #include "audio/engine.h"
 #include "pitch/base/error.h"
 #include "ui/session/usage_error.h"
@@ -330,7 +331,7 @@ void run_ear_simulated(DrillRunner& runner, ui::SimulatedListener& listener, Pri
 // Any drill in real time on the audio devices.
 void run_realtime(const Drill& d, DrillRunner& runner, const DrillCmd& o, Printer& print, ui::SimulatedListener* listener) {
     const bool hold = d.mode == DrillMode::hold;
-    auto system = audio::make_portaudio_system();
+    auto system = audio::make_sound_system();
     audio::Engine engine(engine_config(o), system.get());
     engine.on_message([](const std::string& m) { std::fprintf(stderr, "beatless: %s\n", m.c_str()); });
     audio::DemoConfig dc;

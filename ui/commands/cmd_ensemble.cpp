@@ -15,6 +15,7 @@
 // "summary". Messages about channels and devices go to stderr, one line each.
 #include "audio/device.h"
 #include "audio/engine.h"
+#include "audio/sound_system.h"
 #include "pitch/base/error.h"
 #include "ui/session/usage_error.h"
 #include "pitch/theory/notes.h"
@@ -139,7 +140,7 @@ int run_ensemble(const EnsembleOptions& o) {
     const bool device_input = !o.demo && o.input_file.empty();
     const bool play_drone = o.drone && !o.fast && (device_input || !o.output_dev.empty());
     std::unique_ptr<audio::AudioSystem> system;
-    if (device_input || play_drone) system = audio::make_portaudio_system();
+    if (device_input || play_drone) system = audio::make_sound_system();
     audio::Engine engine(ec, system.get());
     engine.on_message([](const std::string& m) { std::fprintf(stderr, "beatless: %s\n", m.c_str()); });
     engine.set_ensemble(setup);

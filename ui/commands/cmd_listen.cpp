@@ -16,6 +16,7 @@
 // --drone means the input holds a drone at the root (the demo's microphone
 // hears it through a simulated room), and drone removal follows it.
 #include "audio/device.h"
+#include "audio/sound_system.h"
 #include "audio/engine.h"
 #include "pitch/measure/two_voice.h"
 #include "audio/timbre.h"
@@ -27,6 +28,7 @@
 #include "ui/commands/commands.h"
 #include "ui/session/json.h"
 #include "ui/session/target_files.h"
+#include "ui/session/wording.h"
 
 #include <atomic>
 #include <chrono>
@@ -269,11 +271,12 @@ int run_live(const ListenOptions& o, Printing printing) {
     const bool device_input = !o.demo && o.input_file.empty();
     const bool play_drone = o.drone && !o.fast && (device_input || o.demo || !o.output_dev.empty());
     std::unique_ptr<audio::AudioSystem> system;
-    if (device_input || play_drone) system = audio::make_portaudio_system();
+    if (device_input || play_drone) system = audio::make_sound_system();
     audio::Engine engine(ec, system.get());
     engine.on_message([](const std::string& m) { std::fprintf(stderr, "beatless: %s\n", m.c_str()); });
 
-    std::string what;
+    std::string what, input_why, output_why;
+    int input_index = -1;
     if (o.demo) {
         audio::DemoConfig dc;
         dc.root_hz = root_hz;
@@ -286,12 +289,18 @@ int run_live(const ListenOptions& o, Printing printing) {
         engine.set_input_has_drone(o.drone);
         what = "'" + o.input_file + "'";
     } else {
-        engine.open_input_device(o.input_dev);
+        // Chosen here from one listing, so the start line can say why; the engine opens that index.
+        const audio::DeviceChoice c = audio::choose_device_why(system->devices(), o.input_dev, audio::Direction::input);
+        engine.open_input_device(std::to_string(c.index));
+        input_index = c.index;
         what = "the input device";
+        input_why = choice_text(c.why, audio::Direction::input);
     }
     if (play_drone) {
         try {
-            engine.open_output_device(o.output_dev);
+            const audio::DeviceChoice c = audio::choose_output_device(system->devices(), o.output_dev, input_index);
+            engine.open_output_device(std::to_string(c.index));
+            output_why = choice_text(c.why, audio::Direction::output);
         } catch (const Error& e) {
             if (!o.output_dev.empty() || device_input) throw;
             std::fprintf(stderr, "beatless: %s; the drone is not heard\n", e.what());
@@ -368,17 +377,29 @@ int run_live(const ListenOptions& o, Printing printing) {
                      targets.id.c_str(), !o.drone ? "" : o.input_file.empty() ? ", drone on" : ", the recording's drone removed");
         if (device_input) {
             const audio::StreamInfo si = engine.input_info();
-            std::fprintf(stderr, "beatless: %s\n", stream_text("input", si.input_name, si, si.input_latency_s).c_str());
+            std::fprintf(stderr, "beatless: %s; chosen as %s\n", stream_text("input", si.input_name, si, si.input_latency_s).c_str(),
+                         input_why.c_str());
         }
         if (engine.output_info().sample_rate_hz > 0) {
             const audio::StreamInfo so = engine.output_info();
-            std::fprintf(stderr, "beatless: %s\n", stream_text("output", so.output_name, so, so.output_latency_s).c_str());
+            std::fprintf(stderr, "beatless: %s; chosen as %s\n", stream_text("output", so.output_name, so, so.output_latency_s).c_str(),
+                         output_why.c_str());
         }
+        // --seconds counts audio heard; with a device that goes away the clock
+        // ends the run too, a little after the same time (kLateS), so it ends on time either way.
+        constexpr double kLateS = 1.0;
+        const auto started = std::chrono::steady_clock::now();
         while (!g_interrupted.load()) {
             drain();
             std::fflush(stdout);
             engine.supervise();
             if (o.seconds > 0.0 && engine.stream_time_s() >= o.seconds + 0.1) break;
+            if (o.seconds > 0.0 && device_input &&
+                std::chrono::duration<double>(std::chrono::steady_clock::now() - started).count() >= o.seconds + kLateS) {
+                std::fprintf(stderr, "beatless: %s s passed with %.2f s of audio heard; the input was missing for the rest\n",
+                             pitch::format_trimmed(o.seconds + kLateS, 2).c_str(), engine.stream_time_s());
+                break;
+            }
             if (engine.status().finished) {
                 drain();
                 break;

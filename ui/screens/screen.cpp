@@ -70,6 +70,7 @@ bool DevicePicker::combo(AppState& app, const char* id, const std::string& curre
             if (channels <= 0) continue;
             std::string text = d.name + "  (" + d.host_api;
             if (show_channels) text += ", " + std::to_string(channels) + (input ? " in" : " out");
+            if (input ? d.default_input : d.default_output) text += ", default";
             text += ")";
             if (ImGui::Selectable(text.c_str(), d.name == current)) {
                 chosen = d.name;
@@ -285,9 +286,16 @@ void ScreenDeck::status_bar(const ImVec2& pos, float width, float height) {
         v.clipped = app_.clip_warning();
         v.overflows = st.ring_overflow_events + st.device_input_overflows + st.device_output_underflows;
         v.latency_s = app_.engine_running() ? st.latency_s : 0.0;
+        v.input_lost = input_lost(st, app_.engine_running());
     }
     put(FontFace::body, palette::kTextDim, "Input", 0.5f);
-    put(FontFace::bold, palette::kText, v.input);
+    put(FontFace::bold, palette::kText, v.input, v.input_lost || was_lost_ ? 0.6f : 1.6f);
+    // The loss while it lasts, then the return for a few seconds.
+    constexpr double kRejoinedShownS = 5.0;
+    if (was_lost_ && !v.input_lost) rejoined_at_s_ = app_.app_time_s();
+    was_lost_ = v.input_lost;
+    if (v.input_lost) put(FontFace::bold, palette::kWarning, "lost: rejoining");
+    else if (app_.app_time_s() - rejoined_at_s_ < kRejoinedShownS) put(FontFace::bold, palette::kText, "back");
 
     // Input level: a bar from -60 to 0 dBFS, its value, and CLIP in words.
     const double lvl = v.level_dbfs;

@@ -42,7 +42,13 @@ struct StatusView {
     bool clipped = false;
     unsigned long long overflows = 0;   // ring overflows + device overflows and underflows
     double latency_s = 0.0;             // 0 when unknown
+    bool input_lost = false;            // the input device stopped; the engine tries to rejoin it every second
 };
+
+// True when a running engine's device input has stopped delivering audio.
+inline bool input_lost(const audio::LiveStatus& st, bool running) {
+    return running && st.input == audio::InputKind::device && !st.input_ok && !st.finished;
+}
 
 class Screen {
 public:
@@ -99,6 +105,8 @@ private:
     std::vector<std::unique_ptr<Screen>> screens_;
     std::size_t current_ = 0;
     bool help_ = false;
+    bool was_lost_ = false;           // the status bar's input was lost at the last frame
+    double rejoined_at_s_ = -1e9;     // when it came back (the bar says so for kRejoinedShownS)
 };
 
 // A device chooser for the screens (Settings, Ensemble): the devices with

@@ -85,6 +85,7 @@ public:
         const audio::EngineStatus st = session_.status();
         v.overflows = st.ring_overflow_events + st.device_input_overflows + st.device_output_underflows;
         v.latency_s = session_.engine_running() ? st.latency_s : 0.0;
+        v.input_lost = input_lost(st, session_.engine_running());
         return true;
     }
     void left(AppState& app) override { session_.leave(app); }  // the group's engine stops; the app's gets the devices back

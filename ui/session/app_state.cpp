@@ -10,6 +10,7 @@
 //   [settings]  the other settings, saving, messages
 #include "ui/session/app_state.h"
 
+#include "audio/sound_system.h"
 #include "pitch/base/error.h"
 #include "pitch/theory/interval.h"
 #include "pitch/theory/notes.h"
@@ -167,7 +168,7 @@ void AppState::open_engine() {
     if (!options_.simulated && !system_tried_) {
         system_tried_ = true;
         try {
-            system_ = audio::make_portaudio_system();
+            system_ = audio::make_sound_system();
         } catch (const Error& e) {
             post(e.what(), true);
         }
@@ -734,7 +735,7 @@ std::vector<audio::DeviceInfo> AppState::devices() {
     if (!system_ && !system_tried_) {
         system_tried_ = true;
         try {
-            system_ = audio::make_portaudio_system();
+            system_ = audio::make_sound_system();
         } catch (const Error& e) {
             post(e.what(), true);
         }

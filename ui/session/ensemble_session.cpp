@@ -1,5 +1,6 @@
 #include "ui/session/ensemble_session.h"
 
+#include "audio/sound_system.h"
 #include "pitch/base/error.h"
 #include "pitch/theory/spelling.h"
 #include "pitch/base/text.h"

@@ -45,4 +45,21 @@ std::string_view player_state_word(pitch::PlayerState s) {
     return "resting";
 }
 
+std::string choice_text(audio::ChoiceWhy why, audio::Direction dir) {
+    const bool in = dir == audio::Direction::input;
+    switch (why) {
+        case audio::ChoiceWhy::named: return std::string("the ") + (in ? "input" : "output") + " asked for by name";
+        case audio::ChoiceWhy::index: return std::string("the ") + (in ? "input" : "output") + " asked for by index";
+        case audio::ChoiceWhy::server_default: return std::string("the sound server's default ") + (in ? "source" : "sink");
+        case audio::ChoiceWhy::server_first:
+            return std::string("the sound server's first ") + (in ? "source" : "sink") + " by name (it has no default set)";
+        case audio::ChoiceWhy::host_default:
+            return std::string("the host's default ") + (in ? "input" : "output") + " (no sound server default)";
+        case audio::ChoiceWhy::first_listed:
+            return std::string("the first device with ") + (in ? "inputs" : "outputs") + " (no default is set)";
+        case audio::ChoiceWhy::input_device: return "the input's own device";
+    }
+    return "the default";
+}
+
 }  // namespace beatless::ui

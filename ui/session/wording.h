@@ -2,6 +2,7 @@
 #pragma once
 
 #include "pitch/measure/ensemble_analyzer.h"
+#include "audio/device.h"
 
 #include <string>
 #include <string_view>
@@ -14,5 +15,7 @@ std::string ordinal(int n);  // 1 -> "1st", 12 -> "12th"
 std::string beat_heard_word(double beat_hz, bool drone_sounds);
 std::string_view reference_title(pitch::ChordReference r);  // "Drone root", "Sounding bass", "Best-fit root"
 std::string_view player_state_word(pitch::PlayerState s);   // "sounding", "resting", "silent channel", "same voice as", "other note"
+// Why a device was chosen, after "chosen as": "the sound server's default source", ...
+std::string choice_text(audio::ChoiceWhy why, audio::Direction dir);
 
 }  // namespace beatless::ui
