@@ -53,6 +53,7 @@ void register_history(CLI::App& app, Runner& run);
 void register_ensemble(CLI::App& app, Runner& run);
 void register_analyze(CLI::App& app, Runner& run);
 void register_drill(CLI::App& app, Runner& run);
+void register_tuning(CLI::App& app, Runner& run);
 
 // Output format choice shared by the commands.
 enum class Format { text, json, csv };

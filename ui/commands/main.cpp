@@ -39,6 +39,7 @@ int main(int argc, char** argv) {
     ui::register_ensemble(app, run);
     ui::register_analyze(app, run);
     ui::register_drill(app, run);
+    ui::register_tuning(app, run);
 
     try {
         app.parse(argc, argv);
