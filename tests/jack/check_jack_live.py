@@ -23,6 +23,8 @@ import sys
 import tempfile
 import time
 
+from jack_rig import run, stop
+
 BEATLESS = sys.argv[1]
 SERVER = "beatless-test-%d" % os.getpid()
 ENV = dict(os.environ, JACK_DEFAULT_SERVER=SERVER, JACK_NO_START_SERVER="1")
@@ -49,19 +51,6 @@ def start_jackd():
             return p
         time.sleep(0.2)
     raise RuntimeError("jackd did not come up within 10 s")
-
-
-def stop(p, sig=signal.SIGTERM):
-    if p.poll() is None:
-        try:
-            os.killpg(p.pid, sig)
-        except ProcessLookupError:
-            pass
-        try:
-            p.wait(timeout=5)
-        except subprocess.TimeoutExpired:
-            os.killpg(p.pid, signal.SIGKILL)
-            p.wait(timeout=5)
 
 
 def connect(src, dst, timeout_s=5.0):
@@ -171,13 +160,4 @@ def main():
 
 
 if __name__ == "__main__":
-    code = 1
-    try:
-        code = main()
-    except Exception as e:  # a hang or crash fails the test, never blocks it
-        print("FAIL: %s" % e)
-        code = 1
-    finally:
-        for c in reversed(children):
-            stop(c, signal.SIGKILL)
-    sys.exit(code)
+    run(main, children)
