@@ -26,6 +26,7 @@ struct MidiIn::Impl {
 
 MidiIn::MidiIn(const std::string& port) : impl_(std::make_unique<Impl>()) {
     const detail::PortChoice p = detail::choose_midi_port(port, true);
+    detail::QuietStderr quiet;
     impl_->in = detail::make_midi_in(p.api);
     if (!impl_->in) throw Error("MIDI input port '" + p.name + "': its MIDI system went away");
     try {
@@ -37,7 +38,10 @@ MidiIn::MidiIn(const std::string& port) : impl_(std::make_unique<Impl>()) {
     port_name_ = p.name;
 }
 
-MidiIn::~MidiIn() = default;
+MidiIn::~MidiIn() {
+    detail::QuietStderr quiet;  // the client's close
+    impl_.reset();
+}
 
 std::vector<KeyCommand> MidiIn::poll() {
     std::vector<KeyCommand> out;

@@ -27,6 +27,7 @@ std::vector<std::vector<std::uint8_t>> rpn(std::uint8_t channel, std::uint8_t pa
 
 std::vector<MidiPort> list_midi_ports() {
     std::vector<MidiPort> out;
+    detail::QuietStderr quiet;
     for (RtMidi::Api api : detail::midi_apis()) {
         if (auto in = detail::make_midi_in(api)) {
             const unsigned n = in->getPortCount();
@@ -54,6 +55,7 @@ MidiOut::MidiOut(const MidiOutConfig& config) : impl_(std::make_unique<Impl>()),
     if (config.velocity < 1 || config.velocity > 127)
         throw Error("MIDI velocity " + std::to_string(config.velocity) + ": out of range (1 to 127)");
     const detail::PortChoice p = detail::choose_midi_port(config.port, false);
+    detail::QuietStderr quiet;
     impl_->api = p.api;
     impl_->out = detail::make_midi_out(p.api);
     if (!impl_->out) throw Error("MIDI output port '" + p.name + "': its MIDI system went away");
@@ -69,6 +71,7 @@ MidiOut::MidiOut(const MidiOutConfig& config) : impl_(std::make_unique<Impl>()),
 }
 
 MidiOut::~MidiOut() {
+    detail::QuietStderr quiet;  // the client's close
     silence();
     if (config_.retune == MidiRetune::mts && !impl_->retuned_keys.empty()) {
         // Give the keys back to equal temperament, as they were found.
@@ -79,6 +82,7 @@ MidiOut::~MidiOut() {
             send(pitch::mts_single_note_change(kAllDevices, kMtsProgram, std::span(back).subspan(i, n)));
         }
     }
+    impl_.reset();  // closes the client while stderr is quiet
 }
 
 void MidiOut::send(std::vector<std::uint8_t> bytes) {
@@ -98,6 +102,7 @@ void MidiOut::silence() {
 
 bool MidiOut::ensure_connected() {
     // The port may have gone (the synth quit) or come back: look before sending.
+    detail::QuietStderr quiet;
     bool present = false;
     const unsigned n = impl_->out->getPortCount();
     unsigned index = 0;

@@ -8,31 +8,23 @@
 
 namespace beatless::audio::detail {
 
+QuietStderr::QuietStderr() {
+    std::fflush(stderr);
+    saved_ = ::dup(2);
+    const int null = ::open("/dev/null", O_WRONLY | O_CLOEXEC);
+    if (saved_ >= 0 && null >= 0) ::dup2(null, 2);
+    if (null >= 0) ::close(null);
+}
+
+QuietStderr::~QuietStderr() {
+    std::fflush(stderr);
+    if (saved_ >= 0) {
+        ::dup2(saved_, 2);
+        ::close(saved_);
+    }
+}
+
 namespace {
-
-// Sends fd 2 to /dev/null while alive (libjack's "cannot connect" lines).
-class QuietStderr {
-public:
-    QuietStderr() {
-        std::fflush(stderr);
-        saved_ = ::dup(2);
-        const int null = ::open("/dev/null", O_WRONLY | O_CLOEXEC);
-        if (saved_ >= 0 && null >= 0) ::dup2(null, 2);
-        if (null >= 0) ::close(null);
-    }
-    ~QuietStderr() {
-        std::fflush(stderr);
-        if (saved_ >= 0) {
-            ::dup2(saved_, 2);
-            ::close(saved_);
-        }
-    }
-    QuietStderr(const QuietStderr&) = delete;
-    QuietStderr& operator=(const QuietStderr&) = delete;
-
-private:
-    int saved_ = -1;
-};
 
 void ignore_errors(RtMidiError::Type, const std::string&, void*) {}
 
@@ -72,6 +64,7 @@ const char* api_name(RtMidi::Api api) { return api == RtMidi::UNIX_JACK ? "jack"
 
 PortChoice choose_midi_port(const std::string& wanted, bool input) {
     std::vector<PortChoice> all;
+    QuietStderr quiet;
     auto add = [&](RtMidi::Api api, RtMidi* c) {
         const unsigned n = c->getPortCount();
         for (unsigned i = 0; i < n; ++i) {
@@ -88,8 +81,8 @@ PortChoice choose_midi_port(const std::string& wanted, bool input) {
     }
     std::string known;
     for (const auto& p : all) known += (known.empty() ? "" : ", ") + p.name;
-    if (known.empty()) known = "none; is a MIDI system running (ALSA sequencer or JACK)?";
     const std::string what = std::string("MIDI ") + (input ? "input" : "output") + " port '" + wanted + "'";
+    if (all.empty()) throw Error(what + ": not found: no MIDI ports at all (is an ALSA sequencer or a JACK server running?)");
     // A number: its place in the listing (1-based, as `beatless devices` prints).
     if (!wanted.empty() && wanted.find_first_not_of("0123456789") == std::string::npos) {
         const unsigned long k = std::stoul(wanted);

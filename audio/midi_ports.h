@@ -14,6 +14,19 @@
 
 namespace beatless::audio::detail {
 
+// Sends fd 2 to /dev/null while alive: libjack prints "cannot connect"
+// lines whenever a client looks for a server that is not there, and on close.
+class QuietStderr {
+public:
+    QuietStderr();
+    ~QuietStderr();
+    QuietStderr(const QuietStderr&) = delete;
+    QuietStderr& operator=(const QuietStderr&) = delete;
+
+private:
+    int saved_ = -1;
+};
+
 // The APIs to try: ALSA's sequencer, then JACK.
 std::vector<RtMidi::Api> midi_apis();
 // A client of the given API, or nullptr when that MIDI system is not there.

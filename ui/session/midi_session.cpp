@@ -30,6 +30,10 @@ MidiSession::MidiSession(const MidiSessionConfig& config, double root_hz, pitch:
 
 void MidiSession::resound() {
     if (!out_) return;
+    if (!on_) {
+        out_->silence();
+        return;
+    }
     std::vector<double> hz = {root_hz_};
     if (config_.fifth) hz.push_back(root_hz_ * 1.5);
     if (config_.octave) hz.push_back(root_hz_ * 2.0);
@@ -44,6 +48,15 @@ void MidiSession::set_root(double root_hz) {
 
 void MidiSession::set_target(std::optional<std::size_t> index) {
     target_ = index;
+    resound();
+}
+
+void MidiSession::set_sound(bool on, double root_hz, bool fifth, bool octave, std::optional<std::size_t> target) {
+    on_ = on;
+    root_hz_ = root_hz;
+    config_.fifth = fifth;
+    config_.octave = octave;
+    target_ = target;
     resound();
 }
 

@@ -39,6 +39,8 @@ public:
     void set_root(double root_hz);
     void set_target(std::optional<std::size_t> index);
     void set_drone(bool fifth, bool octave);
+    // All at once (one retuning): `on` false keeps the synth silent.
+    void set_sound(bool on, double root_hz, bool fifth, bool octave, std::optional<std::size_t> target);
 
     struct Change {
         std::optional<double> root_hz;            // a key set the root
@@ -60,6 +62,7 @@ private:
     double root_hz_;
     pitch::TargetSet set_;
     std::optional<std::size_t> target_;
+    bool on_ = true;
     std::unique_ptr<audio::MidiOut> out_;
     std::unique_ptr<audio::MidiIn> in_;
     std::chrono::steady_clock::time_point next_check_{};
