@@ -27,6 +27,9 @@ def run(main, children):
         print("FAIL: %s" % e)
         code = 1
     finally:
+        # SIGTERM first (stop() falls back to SIGKILL after 5 s): a jackd
+        # killed outright leaves its entry in JACK's shared server registry,
+        # and after eight such entries no new server can start on the machine.
         for c in reversed(children):
-            stop(c, signal.SIGKILL)
+            stop(c)
     sys.exit(code)
