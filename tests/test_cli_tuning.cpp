@@ -110,3 +110,18 @@ TEST_CASE("tuning: bad input gives one line and a non-zero exit") {
     CHECK(r.exit_code == 0);
     CHECK(read_bytes(dir.file("old.syx")).size() == 408);
 }
+
+TEST_CASE("ratio and --targets take every set, chords included") {
+    // A chord's voices over its lowest (common practice): 8:9:10:11:12 -> 9/8 5/4 11/8 3/2.
+    const auto r = test::run_program({"ratio", "harmonic-cluster", "--format", "json"});
+    REQUIRE(r.exit_code == 0);
+    CHECK(test::json_value(r.out, "[i['ratio'] for i in d['intervals']]") == "['9/8', '5/4', '11/8', '3/2']");
+    const auto w = test::run_program({"ratio", "whole-tones-pythagorean", "--format", "json"});
+    CHECK(test::json_value(w.out, "d['intervals'][6]['ratio']") == "531441/262144");
+    CHECK(test::json_value(w.out, "d['intervals'][6]['cents']") == "1223.46");  // 1200 + Pythagorean comma 23.460 c (Huygens-Fokker list)
+    for (const char* set : {"harmonic-cluster", "pentatonic-11", "harmonic-lydian", "whole-tones-5-limit", "septimal-diminished"}) {
+        CAPTURE(set);
+        const auto l = test::run_program({"listen", "--demo", "--root", "D3", "--targets", set, "--seconds", "0.3"});
+        CHECK(l.exit_code == 0);
+    }
+}

@@ -7,6 +7,7 @@
 
 #include <doctest/doctest.h>
 
+#include <filesystem>
 #include <string>
 
 using namespace beatless;
@@ -36,6 +37,10 @@ TEST_CASE("a bad MIDI tuning word or bend range is one line") {
 }
 
 TEST_CASE("devices says when there are no MIDI ports") {
+    if (std::filesystem::exists("/dev/snd/seq")) {
+        MESSAGE("skipped: this machine has an ALSA sequencer, whose ports are always there");
+        return;
+    }
     const auto r = test::run_program(std::vector<std::string>{"devices"}, kNoServer);
     CHECK(r.exit_code == 0);
     CHECK(r.out.find("MIDI: no ports (no ALSA sequencer or JACK server is running)\n") != std::string::npos);

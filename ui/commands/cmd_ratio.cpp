@@ -18,7 +18,6 @@
 #include "ui/commands/commands.h"
 #include "ui/session/json.h"
 #include "ui/session/target_files.h"
-#include "ui/session/toml_reader.h"
 
 #include <cmath>
 #include <cstdio>
@@ -46,7 +45,7 @@ struct Entry {
 
 // A built-in target set or chord ("tritones", "harmonic-cluster") or a .toml path.
 bool names_a_set(const std::string& a) {
-    if (looks_like_toml_path(a)) return true;
+    if (a.ends_with(".toml")) return true;  // a ratio such as 7/5 holds a '/' too
     for (const char* kind : {"targets", "chord"}) {
         const auto names = builtin_names(kind);
         if (std::find(names.begin(), names.end(), a) != names.end()) return true;
