@@ -193,7 +193,8 @@ namespace {
 
 std::vector<pitch::Ratio> set_ratios(const char* name) {
     std::vector<pitch::Ratio> out;
-    for (const auto& t : ui::load_target_set(name).targets) out.push_back(t.interval.ratio());
+    for (const auto& t : ui::load_target_set(name).targets)
+        if (t.interval.is_ratio()) out.push_back(t.interval.ratio());  // 600c has no ratio
     return out;
 }
 

@@ -132,7 +132,9 @@ def main():
     log = os.path.join(home, "dump.txt")
     mon = start_monitor(log)
 
-    r = subprocess.run([BEATLESS, "devices"], env=ENV, capture_output=True, text=True, timeout=30)
+    # PortAudio's ALSA plugins leak outside the project under LeakSanitizer: no leak check for `devices`.
+    r = subprocess.run([BEATLESS, "devices"], env=dict(ENV, ASAN_OPTIONS="detect_leaks=0"), capture_output=True, text=True,
+                       timeout=30)
     check(r.returncode == 0 and re.search(r"\n\s+1\s+midi-monitor:input\s+jack\s+--midi-out", r.stdout) is not None,
           "devices lists midi-monitor:input as MIDI out port 1 (jack)")
 
@@ -183,7 +185,7 @@ def main():
     check(r.returncode == 1, "a missing port: exit 1")
     check(r.stderr == "beatless: MIDI output port 'nosuch': not found (ports: midi-monitor:input)\n",
           "a missing port: one line naming it and the ports (%r)" % r.stderr)
-    p = listen(["--root", "D3", "--midi-out", "midi-monitor"], 5.0, home)
+    p = listen(["--root", "D3", "--midi-out", "midi-monitor"], 6.0, home)
     time.sleep(1.5)
     stop(mon)
     time.sleep(1.8)
@@ -194,7 +196,7 @@ def main():
     check("beatless: MIDI output port 'midi-monitor:input': gone; the session goes on without it\n" in err,
           "one line says the port is gone (%r)" % err)
     check("beatless: MIDI output port 'midi-monitor:input': back; sounding again\n" in err, "one line says it is back")
-    check(len(rs) > 0 and max(r["t"] for r in rs) > 4.0, "readings go on after the port went")
+    check(len(rs) > 0 and max(r["t"] for r in rs) > 5.0, "readings go on after the port went")
     time.sleep(0.2)
     check([0x90, 50, 48] in messages(log), "the new monitor hears the drone again")
 
