@@ -1,5 +1,7 @@
 #include "audio/device.h"
 
+#include "audio/jack_device.h"
+
 #include "pitch/base/error.h"
 #include "pitch/base/text.h"
 
@@ -168,6 +170,7 @@ class PortAudioSystem : public AudioSystem {
 public:
     PortAudioSystem() {
         QuietStderr quiet;
+        JackHiddenFromPortAudio no_jack;  // JACK is served by audio/jack_device
         const PaError e = Pa_Initialize();
         if (e != paNoError) throw Error(std::string("audio system (PortAudio) failed to start: ") + pa_text(e));
     }
@@ -184,6 +187,7 @@ public:
         // re-initialising is not safe while a dead stream is being closed.
         if (retiring_->load() > 0) return;
         QuietStderr quiet;
+        JackHiddenFromPortAudio no_jack;
         Pa_Terminate();
         Pa_Initialize();
     }

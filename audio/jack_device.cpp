@@ -29,16 +29,10 @@ void silence_jack() {
     jack_set_info_function(quiet);
 }
 
-std::string& server_name() {
-    static std::string name;  // empty: JACK_DEFAULT_SERVER as the environment has it
-    return name;
-}
-
 jack_client_t* connect_client(const char* name) {
     silence_jack();
     jack_status_t status{};
-    if (server_name().empty()) return jack_client_open(name, JackNoStartServer, &status);
-    return jack_client_open(name, static_cast<jack_options_t>(JackNoStartServer | JackServerName), &status, server_name().c_str());
+    return jack_client_open(name, JackNoStartServer, &status);  // the server JACK_DEFAULT_SERVER names, else "default"
 }
 
 // [SECTION] Listing
@@ -219,11 +213,17 @@ private:
 
 std::unique_ptr<AudioSystem> make_jack_system() { return std::make_unique<JackSystem>(); }
 
-void hide_jack_from_portaudio() {
-    if (!server_name().empty()) return;
-    const char* env = std::getenv("JACK_DEFAULT_SERVER");
-    server_name() = env && *env ? env : "default";
+JackHiddenFromPortAudio::JackHiddenFromPortAudio() {
+    if (const char* env = std::getenv("JACK_DEFAULT_SERVER")) {
+        had_ = true;
+        saved_ = env;
+    }
     setenv("JACK_DEFAULT_SERVER", "beatless-no-server-for-portaudio", 1);
+}
+
+JackHiddenFromPortAudio::~JackHiddenFromPortAudio() {
+    if (had_) setenv("JACK_DEFAULT_SERVER", saved_.c_str(), 1);
+    else unsetenv("JACK_DEFAULT_SERVER");
 }
 
 }  // namespace beatless::audio

@@ -13,6 +13,8 @@
 // Does not: start a server, change the server's rate or period.
 #pragma once
 
+#include <string>
+
 #include "audio/device.h"
 
 #include <memory>
@@ -27,9 +29,20 @@ std::unique_ptr<AudioSystem> make_jack_system();
 
 // Keeps PortAudio's JACK host from joining the server: PortAudio 19.6 aborts the
 // process (an assert in its Terminate) when re-initialised after the server
-// died. Remembers the server's name (JACK_DEFAULT_SERVER, else "default") for
-// make_jack_system's clients, then points JACK_DEFAULT_SERVER at no server.
-// Call once, before PortAudio starts and before other threads run.
-void hide_jack_from_portaudio();
+// died. While one of these lives (around PortAudio's initialisation),
+// JACK_DEFAULT_SERVER names no server; the environment is given back after,
+// so other JACK clients (make_jack_system's, RtMidi's) find the real one.
+// Control thread only (it changes the environment).
+class JackHiddenFromPortAudio {
+public:
+    JackHiddenFromPortAudio();
+    ~JackHiddenFromPortAudio();
+    JackHiddenFromPortAudio(const JackHiddenFromPortAudio&) = delete;
+    JackHiddenFromPortAudio& operator=(const JackHiddenFromPortAudio&) = delete;
+
+private:
+    bool had_ = false;
+    std::string saved_;
+};
 
 }  // namespace beatless::audio

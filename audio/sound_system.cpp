@@ -20,7 +20,6 @@ constexpr const char* kAlsaPulseDevice = "pulse";
 class CombinedSystem : public AudioSystem {
 public:
     CombinedSystem() {
-        hide_jack_from_portaudio();
         try {
             portaudio_ = make_portaudio_system();
         } catch (const Error&) {

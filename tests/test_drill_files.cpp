@@ -52,8 +52,10 @@ std::vector<std::string> ratios(const Drill& d) { return ratios(d.targets); }
 }  // namespace
 
 TEST_CASE("the shipped drills are all there and load") {
-    const std::vector<std::string> expected = {"ear-septimal-tritone", "ear-tritones",  "hold-harmonic-ladder", "hold-septimal", "hold-septimal-tritones",
-                                               "hold-tritones", "hold-undecimal",       "hold-whole-tones"};
+    const std::vector<std::string> expected = {"ear-septimal-tritone",   "ear-tritones",              "hold-fifthless-pentatonic",
+                                               "hold-harmonic-cluster",  "hold-harmonic-ladder",      "hold-harmonic-lydian",
+                                               "hold-septimal",          "hold-septimal-tritones",    "hold-tritones",
+                                               "hold-undecimal",         "hold-whole-tones"};
     CHECK(builtin_names("drill") == expected);
     for (const auto& name : expected) {
         const Drill d = load_drill(name);
@@ -70,7 +72,7 @@ TEST_CASE("each tritone of the family, held") {
     std::vector<std::string> set;
     for (const auto& t : load_target_set("tritones").targets) set.push_back(t.interval.str());
     CHECK(ratios(d) == set);
-    CHECK(d.targets.size() == 10);
+    CHECK(d.targets.size() == 11);
     CHECK(d.hold_s >= 3.0);
     CHECK(d.drone.root_hz == doctest::Approx(110.0));  // A2 with A4 = 440 Hz (ISO 16)
 }
@@ -227,4 +229,14 @@ TEST_CASE("malformed ear drills") {
     CHECK(ok.staircase.n_down == 3);
     CHECK(ok.staircase.floor_run == 8);
     CHECK(ok.fit_config().threshold_p == doctest::Approx(0.79370).epsilon(1e-5));  // Levitt's Table I: 79.4 %
+}
+
+TEST_CASE("the drills on the new sets hold what their sets hold") {
+    // A drill's target_set may be a chord: its voices over the lowest (common practice).
+    CHECK(ratios(load_drill("hold-harmonic-cluster")) == std::vector<std::string>{"9/8", "5/4", "11/8", "3/2"});
+    CHECK(ratios(load_drill("hold-fifthless-pentatonic")) ==
+          std::vector<std::string>{"1/1", "55/48", "5/4", "11/8", "5/3", "2/1"});
+    const auto lydian = ratios(load_drill("hold-harmonic-lydian"));
+    CHECK(std::find(lydian.begin(), lydian.end(), "11/8") != lydian.end());
+    CHECK(std::find(lydian.begin(), lydian.end(), "7/4") == lydian.end());  // the 14th harmonic is left out
 }

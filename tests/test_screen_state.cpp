@@ -63,8 +63,14 @@ TEST_CASE("settings: written, read back by Python's tomllib, and parsed again to
     s.level_dbfs = -24.0;
     s.fifth = true;
     s.target_set = "tritones";
+    s.midi_out = "Choir organ:in";
+    s.midi_tuning = "bend";
+    s.midi_in = "Director keys";
     const std::string file = dir.file("settings.toml");
     ui::save_settings(file, s);
+    CHECK(toml_value(file, "d['midi_out']") == "Choir organ:in");
+    CHECK(toml_value(file, "d['midi_tuning']") == "bend");
+    CHECK(toml_value(file, "d['midi_in']") == "Director keys");
     CHECK(toml_value(file, "d['kind']") == "settings");
     CHECK(toml_value(file, "d['a4_hz']") == "442.5");
     CHECK(toml_value(file, "d['lowest_hz']") == "55");
@@ -105,6 +111,9 @@ TEST_CASE("settings: a missing file is the defaults; a malformed one warns in on
     const auto low = ui::parse_settings("kind = \"settings\"\nlowest_hz = 10\n", "s.toml");
     CHECK(low.warning.rfind("s.toml:2: `lowest_hz`: 10 is out of range (30 to 200)", 0) == 0);
     CHECK(low.settings.lowest_hz == 70.0);
+    const auto midi = ui::parse_settings("kind = \"settings\"\nmidi_tuning = \"cents\"\n", "s.toml");
+    CHECK(midi.warning.rfind("s.toml:2: `midi_tuning`: must be \"mts\" or \"bend\"", 0) == 0);
+    CHECK(midi.settings.midi_tuning == "mts");
     // Another kind of file is refused as a whole.
     const auto other = ui::parse_settings("kind = \"targets\"\n", "t.toml");
     CHECK(other.warning.find("t.toml:1: `kind`: is \"targets\"") == 0);

@@ -368,7 +368,8 @@ TEST_CASE("snapshot: the history panel plots each target's mean deviation per da
     const Image img = read_png(snapshot(home, "--demo --drill hold-septimal-tritones --seconds 1 --log " + log, "drill-history.png"));
     // One small plot per target of the drill, each labelled, each with today's
     // mean: -3.0 c (held 3 cents flat, within ±6 c: in the in-tune colour).
-    const Box lower = rows(img, img.h / 2, img.h - 1);
+    // The history panel: below the drill list, whose selected row also says 7/5.
+    const Box lower = rows(img, img.h * 3 / 5, img.h - 1);
     const Image value = render_text("\xE2\x88\x92" "3.0 c", ui::FontFace::bold, ui::palette::kInTune, ui::palette::kPanelRaised, 1.0f);
     CHECK(find_exact(img, value, lower).size() == 2);
     for (const char* t : {"7/5", "10/7"}) {

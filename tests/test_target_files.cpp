@@ -9,6 +9,8 @@
 #include <doctest/doctest.h>
 
 #include <algorithm>
+#include <cctype>
+#include <cmath>
 #include <fstream>
 
 using namespace beatless;
@@ -175,5 +177,171 @@ TEST_CASE("every command that loads a malformed file stops with its one line and
         const test::RunResult r = test::run_program(args);
         CHECK(r.exit_code == 1);
         CHECK(r.err == "beatless: " + msg);
+    }
+}
+
+// [SECTION] The sets of issue 18: every tuning system of the tritones
+//
+// Sources: cents of each ratio as printed in the Huygens-Fokker Foundation's
+// "List of intervals" (the interval list shipped with Scala, M. Op de Coul),
+// to 3 decimals, from memory of that table; the commas 81/80 (syntonic), 50/49
+// (septimal sixth-tone), 64/63 (septimal), 128/125 (lesser diesis) and
+// 531441/524288 (Pythagorean) are named and sized there too. That a chord's
+// voices over its lowest are the intervals sung over a drone is common practice.
+
+namespace {
+
+std::vector<pitch::Ratio> set_ratios(const char* name) {
+    std::vector<pitch::Ratio> out;
+    for (const auto& t : ui::load_target_set(name).targets)
+        if (t.interval.is_ratio()) out.push_back(t.interval.ratio());  // 600c has no ratio
+    return out;
+}
+
+pitch::Ratio r(std::int64_t n, std::int64_t d) { return pitch::Ratio::make(n, d); }
+
+bool holds(const std::vector<pitch::Ratio>& set, const pitch::Ratio& want) {
+    return std::find(set.begin(), set.end(), want) != set.end();
+}
+
+}  // namespace
+
+TEST_CASE("22/15 joins the tritone family and the 11-limit set as the inversion of 15/11") {
+    for (const char* set : {"tritones", "11-limit"}) {
+        CAPTURE(set);
+        const auto s = set_ratios(set);
+        CHECK(holds(s, r(15, 11)));
+        CHECK(holds(s, r(22, 15)));
+        CHECK(r(15, 11) * r(22, 15) == r(2, 1));  // inversion within the octave
+    }
+    CHECK(r(22, 15).cents() == doctest::Approx(663.049).epsilon(1e-6));  // Huygens-Fokker list
+    // Every tritone of the family has its inversion in the family (common practice).
+    const auto tri = ui::load_target_set("tritones");
+    for (const auto& t : tri.targets) {
+        CAPTURE(t.interval.str());
+        bool found = false;
+        for (const auto& u : tri.targets) found = found || std::abs(t.interval.cents() + u.interval.cents() - 1200.0) < 1e-9;
+        CHECK(found);
+        CHECK_FALSE(t.name.empty());
+    }
+}
+
+TEST_CASE("the whole-tone scales and their drift from the octave") {
+    const auto five = set_ratios("whole-tones-5-limit");
+    const auto pyth = set_ratios("whole-tones-pythagorean");
+    REQUIRE(five.size() == 8);
+    REQUIRE(pyth.size() == 8);
+    // Each step is a whole tone: 9/8 and 10/9 in turn, or 9/8 throughout.
+    for (std::size_t i = 1; i + 1 < five.size(); ++i) {
+        CAPTURE(i);
+        CHECK(five[i] / five[i - 1] == (i % 2 ? r(9, 8) : r(10, 9)));
+        CHECK(pyth[i] / pyth[i - 1] == r(9, 8));
+    }
+    // Six steps miss the octave: three 5/4 fall short by the lesser diesis
+    // 128/125 = 41.059 c; six 9/8 overshoot by the Pythagorean comma
+    // 531441/524288 = 23.460 c (Huygens-Fokker list).
+    CHECK(five[6] == r(125, 64));
+    CHECK(r(2, 1) / five[6] == r(128, 125));
+    CHECK((r(2, 1) / five[6]).cents() == doctest::Approx(41.059).epsilon(1e-5));
+    CHECK(pyth[6] == r(531441, 262144));
+    CHECK(pyth[6] / r(2, 1) == r(531441, 524288));
+    CHECK((pyth[6] / r(2, 1)).cents() == doctest::Approx(23.460).epsilon(1e-4));
+    // The two tritones on the way differ by the syntonic comma 81/80 = 21.506 c.
+    CHECK(pyth[3] / five[3] == r(81, 80));
+    CHECK((pyth[3] / five[3]).cents() == doctest::Approx(21.506).epsilon(1e-4));
+    // Cents of the other degrees (Huygens-Fokker list).
+    CHECK(five[4].cents() == doctest::Approx(772.627).epsilon(1e-6));
+    CHECK(five[5].cents() == doctest::Approx(976.537).epsilon(1e-6));
+    CHECK(pyth[4].cents() == doctest::Approx(815.640).epsilon(1e-6));
+    CHECK(pyth[5].cents() == doctest::Approx(1019.550).epsilon(1e-6));
+    for (const char* set : {"whole-tones-5-limit", "whole-tones-pythagorean"}) {
+        CAPTURE(set);
+        for (const auto& t : ui::load_target_set(set).targets) CHECK_FALSE(t.name.empty());
+    }
+}
+
+TEST_CASE("the septimal pairs: 50/49 between the tritones, 64/63 between the sevenths") {
+    // 10/7 over 7/5 is the septimal sixth-tone 50/49 = 34.976 c; 16/9 over 7/4
+    // the septimal comma 64/63 = 27.264 c (Huygens-Fokker list).
+    CHECK(r(10, 7) / r(7, 5) == r(50, 49));
+    CHECK(r(50, 49).cents() == doctest::Approx(34.976).epsilon(1e-4));
+    CHECK(r(16, 9) / r(7, 4) == r(64, 63));
+    CHECK(r(64, 63).cents() == doctest::Approx(27.264).epsilon(1e-4));
+    const auto tri = set_ratios("tritones");
+    CHECK(holds(tri, r(7, 5)));
+    CHECK(holds(tri, r(10, 7)));
+    const auto five = set_ratios("5-limit");
+    const auto seven = set_ratios("7-limit");
+    CHECK(holds(five, r(16, 9)));
+    CHECK(holds(seven, r(7, 4)));
+}
+
+TEST_CASE("the fifthless pentatonic stands on two 11/8 tritones") {
+    const auto p = set_ratios("pentatonic-11");
+    const std::vector<pitch::Ratio> want = {r(1, 1), r(55, 48), r(5, 4), r(11, 8), r(5, 3), r(2, 1)};
+    CHECK(p == want);
+    CHECK_FALSE(holds(p, r(3, 2)));                    // no fifth over the root
+    CHECK(r(11, 8) / r(1, 1) == r(11, 8));             // the first tritone, on the root
+    CHECK(r(55, 48) * r(2, 1) / r(5, 3) == r(11, 8));  // the second, on the 5/3
+    CHECK(r(55, 48).cents() == doctest::Approx(235.677).epsilon(1e-5));  // computed 1200 log2(55/48)
+    // No two notes of the set make a perfect fifth; the one perfect interval
+    // is the fourth from 5/4 up to 5/3 (common practice: a fifthless scale).
+    int fourths = 0;
+    for (std::size_t i = 0; i < p.size(); ++i)
+        for (std::size_t j = i + 1; j < p.size(); ++j) {
+            CHECK(p[j] / p[i] != r(3, 2));
+            fourths += p[j] / p[i] == r(4, 3);
+        }
+    CHECK(fourths == 1);
+}
+
+TEST_CASE("the harmonic-series Lydian and the harmonic scale 8 to 16") {
+    const auto l = set_ratios("harmonic-lydian");
+    std::vector<pitch::Ratio> want;
+    for (std::int64_t n : {8, 9, 10, 11, 12, 13, 15, 16}) want.push_back(r(n, 8));
+    CHECK(l == want);
+    // The raised fourth is the 11th harmonic, 551.318 c; 48.682 c below the
+    // tempered augmented fourth (Huygens-Fokker list for 11/8).
+    CHECK(l[3].cents() == doctest::Approx(551.318).epsilon(1e-6));
+    CHECK(l[5].cents() == doctest::Approx(840.528).epsilon(1e-6));
+    // 11/8 over the 5-limit fourth 4/3 is the undecimal comma 33/32 = 53.273 c.
+    CHECK(l[3] / r(4, 3) == r(33, 32));
+    CHECK(r(33, 32).cents() == doctest::Approx(53.273).epsilon(1e-5));
+}
+
+TEST_CASE("a chord file is a target set: its voices above the lowest") {
+    const auto c = ui::load_target_set("harmonic-cluster");
+    CHECK(c.id == "harmonic-cluster");
+    CHECK(c.title == "Harmonic cluster 8 to 12");
+    const std::vector<pitch::Ratio> want = {r(9, 8), r(5, 4), r(11, 8), r(3, 2)};
+    CHECK(set_ratios("harmonic-cluster") == want);
+    for (const auto& t : c.targets) CHECK_FALSE(t.name.empty());
+    // 5:6:7, the just diminished triad: 6/5 and 7/5 over the lowest voice.
+    CHECK(set_ratios("septimal-diminished") == std::vector<pitch::Ratio>{r(6, 5), r(7, 5)});
+    // By path as well, and a drill may name a chord as its target_set.
+    test::TempDir dir;
+    { std::ofstream(dir.file("triad.toml")) << "kind = \"chord\"\ntitle = \"Mine\"\nchord = \"1/1 5/4 3/2\"\n"; }
+    CHECK(set_ratios(dir.file("triad.toml").c_str()) == std::vector<pitch::Ratio>{r(5, 4), r(3, 2)});
+    // A bad chord file still names its file and line.
+    { std::ofstream(dir.file("bad.toml")) << "kind = \"chord\"\ntitle = \"Mine\"\nchord = \"4:0:6\"\n"; }
+    try {
+        (void)ui::load_target_set(dir.file("bad.toml"));
+        FAIL("no error");
+    } catch (const Error& e) {
+        CHECK(std::string(e.what()).rfind(dir.file("bad.toml") + ":3: `chord`: ", 0) == 0);
+    }
+}
+
+TEST_CASE("every shipped set and chord says what it is in one sentence") {
+    std::vector<std::string> all = ui::builtin_names("targets");
+    for (const auto& n : ui::builtin_names("chord")) all.push_back(n);
+    for (const auto& name : all) {
+        CAPTURE(name);
+        const std::string about = ui::load_target_set(name).about;
+        REQUIRE_FALSE(about.empty());
+        CHECK(about.back() == '.');
+        // One sentence: no full stop followed by a space and a capital inside.
+        for (std::size_t i = 0; i + 2 < about.size(); ++i)
+            CHECK_FALSE((about[i] == '.' && about[i + 1] == ' ' && std::isupper(static_cast<unsigned char>(about[i + 2]))));
     }
 }

@@ -1,10 +1,12 @@
 // beatless devices [--format text|json]
 //
 // Lists the audio devices PortAudio finds: index, name, host API, input and
-// output channel counts, default sample rate, and which are the defaults.
-// With no device at all it says so on stderr and suggests --demo.
+// output channel counts, default sample rate, and which are the defaults;
+// then the MIDI ports (ALSA sequencer, JACK), numbered as --midi-out and
+// --midi-in take them. With no audio device at all it says so on stderr and suggests --demo.
 #include "audio/device.h"
 #include "audio/sound_system.h"
+#include "audio/midi_out.h"
 #include "pitch/base/text.h"
 #include "ui/commands/commands.h"
 #include "ui/session/json.h"
@@ -16,9 +18,22 @@ namespace beatless::ui {
 
 namespace {
 
+// MIDI ports numbered from 1 within each direction, as --midi-out and --midi-in count them.
+struct NumberedPort {
+    int number;
+    const audio::MidiPort* port;
+};
+std::vector<NumberedPort> numbered(const std::vector<audio::MidiPort>& ports, bool input) {
+    std::vector<NumberedPort> out;
+    for (const auto& p : ports)
+        if (p.input == input) out.push_back({static_cast<int>(out.size()) + 1, &p});
+    return out;
+}
+
 int run_devices(Format format) {
     auto system = audio::make_sound_system();
     const auto devs = system->devices();
+    const auto midi = audio::list_midi_ports();
     if (format == Format::json) {
         JsonWriter j;
         j.begin_object().key("devices").begin_array();
@@ -30,6 +45,11 @@ int run_devices(Format format) {
             j.key("default_input").value(d.default_input).key("default_output").value(d.default_output);
             j.end_object();
         }
+        j.end_array().key("midi").begin_array();
+        for (bool input : {false, true})
+            for (const auto& n : numbered(midi, input))
+                j.begin_object().key("number").value(n.number).key("name").value(n.port->name).key("api").value(n.port->api)
+                    .key("direction").value(input ? "in" : "out").end_object();
         j.end_array().end_object();
         std::printf("%s\n", j.str().c_str());
     } else if (!devs.empty()) {
@@ -42,6 +62,17 @@ int run_devices(Format format) {
                         d.max_output_channels, pitch::format_trimmed(d.default_rate_hz, 1).c_str(), mark.c_str());
         }
     }
+    if (format != Format::json) {
+        if (midi.empty()) {
+            std::printf("\nMIDI: no ports (no ALSA sequencer or JACK server is running)\n");
+        } else {
+            std::printf("\n%5s  %-44s %-5s %s\n", "MIDI", "port", "API", "use with");
+            for (bool input : {false, true})
+                for (const auto& n : numbered(midi, input))
+                    std::printf("%5d  %-44s %-5s %s\n", n.number, n.port->name.c_str(), n.port->api.c_str(),
+                                input ? "--midi-in (a keyboard)" : "--midi-out (a synth)");
+        }
+    }
     if (devs.empty()) std::fprintf(stderr, "beatless: no audio devices found (%s)\n", audio::kDemoHint);
     return 0;
 }
@@ -50,7 +81,7 @@ int run_devices(Format format) {
 
 void register_devices(CLI::App& app, Runner& run) {
     auto format = std::make_shared<Format>(Format::text);
-    CLI::App* sub = app.add_subcommand("devices", "List audio devices: index, name, host API, channels, default rate");
+    CLI::App* sub = app.add_subcommand("devices", "List audio devices (index, name, host API, channels, default rate) and MIDI ports");
     add_format_option(*sub, *format, false);
     sub->callback([format, &run] { run = [format] { return run_devices(*format); }; });
 }

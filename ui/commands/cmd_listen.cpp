@@ -2,7 +2,8 @@
 //
 //   beatless listen [--demo | --input-file FILE [--fast] | --input DEV]
 //                   [--root NOTE|HZ] [--a4 HZ] [--targets SET | --target R]
-//                   [--seconds S] [--drone | --no-drone] [--output DEV] ...
+//                   [--seconds S] [--drone | --no-drone] [--output DEV]
+//                   [--midi-out PORT [--midi-tuning mts|bend] [--bend-range N]] [--midi-in PORT] ...
 //
 // One JSON object per reading on stdout: {"t", "f0_hz", "confidence",
 // "ratio", "target", "target_name", "dev_cents", "centre_dev_cents",
@@ -15,6 +16,9 @@
 // The drone is off unless --drone is given; with a file or the demo,
 // --drone means the input holds a drone at the root (the demo's microphone
 // hears it through a simulated room), and drone removal follows it.
+// --midi-out plays the drone (and a fixed --target's reference tone) on a
+// MIDI synth, retuned exactly; --midi-in lets a keyboard set the root (a key)
+// or the target (a key held with the root's key). MIDI runs on this thread.
 #include "audio/device.h"
 #include "audio/sound_system.h"
 #include "audio/engine.h"
@@ -27,6 +31,7 @@
 #include "pitch/base/text.h"
 #include "ui/commands/commands.h"
 #include "ui/session/json.h"
+#include "ui/session/midi_session.h"
 #include "ui/session/target_files.h"
 #include "ui/session/wording.h"
 
@@ -60,6 +65,10 @@ struct ListenOptions {
     double a4_hz = pitch::kDefaultA4Hz;
     std::string targets = "7-limit";
     std::string target;
+    std::string midi_out;          // --midi-out PORT
+    std::string midi_in;           // --midi-in PORT
+    std::string midi_tuning = "mts";
+    double bend_range = 2.0;       // semitones
     double seconds = 0.0;          // 0 = until the end or Ctrl-C
     bool drone = false;
     bool no_drone = false;
@@ -319,6 +328,32 @@ int run_live(const ListenOptions& o, Printing printing) {
     engine.set_drone(ds);
     if (o.drone && (play_drone || o.demo)) hearing_caution_once();
 
+    std::unique_ptr<MidiSession> midi;
+    if (!o.midi_out.empty() || !o.midi_in.empty()) {
+        MidiSessionConfig mc;
+        mc.out_port = o.midi_out;
+        mc.in_port = o.midi_in;
+        mc.retune = parse_midi_retune(o.midi_tuning);
+        mc.bend_range_semitones = o.bend_range;
+        mc.fifth = o.fifth;
+        mc.octave = o.octave;
+        mc.a4_hz = o.a4_hz;
+        midi = std::make_unique<MidiSession>(mc, root_hz, targets, o.target.empty() ? std::nullopt : std::optional<std::size_t>(0));
+        std::fprintf(stderr, "beatless: %s\n", midi->describe().c_str());
+    }
+    auto poll_midi = [&] {
+        if (!midi) return;
+        std::vector<std::string> lines;
+        const MidiSession::Change c = midi->poll(lines);
+        for (const auto& l : lines) std::fprintf(stderr, "beatless: %s\n", l.c_str());
+        if (c.root_hz) {
+            ds.root_hz = *c.root_hz;
+            rc.root_hz = *c.root_hz;
+            engine.set_drone(ds);
+            engine.set_readings(rc, targets);
+        }
+    };
+
     TargetText tt{&targets};
     std::uint64_t printed = 0;
     double last_text_t = -1.0;
@@ -393,6 +428,7 @@ int run_live(const ListenOptions& o, Printing printing) {
             drain();
             std::fflush(stdout);
             engine.supervise();
+            poll_midi();
             if (o.seconds > 0.0 && engine.stream_time_s() >= o.seconds + 0.1) break;
             if (o.seconds > 0.0 && device_input &&
                 std::chrono::duration<double>(std::chrono::steady_clock::now() - started).count() >= o.seconds + kLateS) {
@@ -453,6 +489,13 @@ void register_listen(CLI::App& app, Runner& run) {
     sub->add_option("--hop-ms", o->hop_ms, "Time between readings in ms (default 5)");
     sub->add_option("--lowest", o->lowest, kLowestHelp);
     sub->add_option("--voices", o->voices, "2: two voices in one input (a double stop, a duet): both pitches, the interval, its beat");
+    sub->add_option("--midi-out", o->midi_out,
+                    "Play the drone (and a fixed --target) on this MIDI port, retuned exactly: number, name or part of it "
+                    "(see beatless devices)");
+    sub->add_option("--midi-tuning", o->midi_tuning,
+                    "How --midi-out retunes: mts (MIDI Tuning Standard, default) or bend (pitch bend per note, channels 2-16)");
+    sub->add_option("--bend-range", o->bend_range, "Pitch-bend range in semitones for --midi-tuning bend (1-24, default 2)");
+    sub->add_option("--midi-in", o->midi_in, "A MIDI keyboard: a key sets the root; a key held with the root's key, the target");
     sub->callback([o, &run] { run = [o] { return run_live(*o, Printing::json); }; });
 }
 

@@ -6,7 +6,8 @@
 // partials a listener hears beat over a drone of --timbre) and its beat
 // rates at 0, ±2, ±5 and ±10 cents of mistuning; the interval's own
 // coinciding pair appears as a labelled detail where it differs. A chord
-// such as 4:5:6:7 stands for each of its upper notes against the lowest.
+// such as 4:5:6:7 stands for each of its upper notes against the lowest; a
+// target set or chord file by name or path stands for each of its targets.
 #include "audio/timbre.h"
 #include "pitch/theory/beats.h"
 #include "pitch/base/error.h"
@@ -42,6 +43,16 @@ struct Entry {
     std::string given;  // what the user typed (a chord expands to several entries)
 };
 
+// A built-in target set or chord ("tritones", "harmonic-cluster") or a .toml path.
+bool names_a_set(const std::string& a) {
+    if (a.ends_with(".toml")) return true;  // a ratio such as 7/5 holds a '/' too
+    for (const char* kind : {"targets", "chord"}) {
+        const auto names = builtin_names(kind);
+        if (std::find(names.begin(), names.end(), a) != names.end()) return true;
+    }
+    return false;
+}
+
 std::vector<Entry> expand(const std::vector<std::string>& args) {
     std::vector<Entry> out;
     for (const auto& a : args) {
@@ -49,6 +60,8 @@ std::vector<Entry> expand(const std::vector<std::string>& args) {
             const auto terms = pitch::parse_chord_terms(a);
             for (std::size_t i = 1; i < terms.size(); ++i)
                 out.push_back({pitch::Interval::of(pitch::Ratio::make(terms[i], terms[0])), a});
+        } else if (names_a_set(a)) {
+            for (const auto& t : load_target_set(a).targets) out.push_back({t.interval, a});
         } else {
             out.push_back({pitch::parse_interval(a), a});
         }
@@ -178,7 +191,7 @@ int run_ratio(const RatioOptions& o) {
 void register_ratio(CLI::App& app, Runner& run) {
     auto o = std::make_shared<RatioOptions>();
     CLI::App* sub = app.add_subcommand("ratio", "Facts of intervals: cents, limits, Tenney height, beat rates over a root");
-    sub->add_option("RATIO", o->ratios, "Intervals: 7/5, 7:5, 3/2*5/4, 600c, or a chord 4:5:6:7")->required();
+    sub->add_option("RATIO", o->ratios, "Intervals: 7/5, 7:5, 3/2*5/4, 600c, a chord 4:5:6:7, or a target set or chord by name (tritones) or path")->required();
     sub->add_option("--root", o->root, "Root as a note (A3) or in Hz (220): adds frequencies and beat rates");
     add_a4_option(*sub, o->a4_hz);
     sub->add_option("--timbre", o->timbre, "Drone timbre whose partials can beat: pure, soft, round, bright, hollow (default round)");

@@ -24,6 +24,7 @@
 #include "ui/session/app_state.h"
 #include "ui/commands/commands.h"
 #include "ui/session/listener_model.h"
+#include "ui/session/midi_link.h"
 #include "ui/screens/widgets.h"
 #include "ui/session/drill_files.h"
 #include "ui/render/imgui_host.h"
@@ -170,6 +171,14 @@ void add_screen_options(CLI::App& app, ScreenCommand& c) {
     app.add_option("--log", c.log_file, "Practice log file (default: the data folder's; a snapshot writes none unless given)");
 }
 
+void add_window_midi_options(CLI::App& app, ScreenCommand& c) {
+    app.add_option("--midi-out", c.midi_out,
+                   "Play the drone and the fixed target on this MIDI port, retuned exactly (default from the settings; "
+                   "\"\" for none)");
+    app.add_option("--midi-tuning", c.midi_tuning, "How --midi-out retunes: mts (MIDI Tuning Standard) or bend (pitch bend per note)");
+    app.add_option("--midi-in", c.midi_in, "A MIDI keyboard: a key sets the root; a key held with the root's key, the target");
+}
+
 int run_screens(const ScreenCommand& c, int frames) {
     check_common(c);
     if (frames < 0) throw Error("--frames " + std::to_string(frames) + ": must not be negative");
@@ -188,6 +197,8 @@ int run_screens(const ScreenCommand& c, int frames) {
     AppState app(l.settings, l.file, o);
     ScreenDeck deck(app);
     deck.show(first);
+    if (c.midi_tuning) (void)parse_midi_retune(*c.midi_tuning);  // a bad word stops before the window opens
+    MidiLink midi(MidiOverride{c.midi_out, c.midi_tuning, c.midi_in});
 
     WindowConfig wc;
     wc.title = "Beatless";
@@ -203,6 +214,7 @@ int run_screens(const ScreenCommand& c, int frames) {
                 app.start();
             }
             app.update(dt_s);
+            midi.update(app);
             deck.build_frame(dt_s);
         });
     } catch (const RenderError& e) {

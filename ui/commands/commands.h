@@ -42,8 +42,12 @@ struct ScreenCommand {
     std::string drill;                    // --drill: choose and start this drill on the Drills screen
     std::string listener;                 // --listener: a simulated listener answers ear drills (perfect, guess, cents)
     std::string log_file;                 // --log: the practice log file (snapshot: none unless given)
+    std::optional<std::string> midi_out;  // --midi-out (window only): replaces the settings' MIDI port for this run
+    std::optional<std::string> midi_tuning;  // --midi-tuning: mts or bend
+    std::optional<std::string> midi_in;   // --midi-in: a keyboard that sets the root
 };
 void add_screen_options(CLI::App& app, ScreenCommand& c);
+void add_window_midi_options(CLI::App& app, ScreenCommand& c);  // the window's --midi-out, --midi-tuning, --midi-in
 int run_screens(const ScreenCommand& c, int frames);  // frames 0 = until the window is closed
 void register_snapshot(CLI::App& app, Runner& run);
 void register_track(CLI::App& app, Runner& run);
@@ -53,6 +57,7 @@ void register_history(CLI::App& app, Runner& run);
 void register_ensemble(CLI::App& app, Runner& run);
 void register_analyze(CLI::App& app, Runner& run);
 void register_drill(CLI::App& app, Runner& run);
+void register_tuning(CLI::App& app, Runner& run);
 
 // Output format choice shared by the commands.
 enum class Format { text, json, csv };

@@ -27,6 +27,7 @@ int main(int argc, char** argv) {
     // No subcommand: the Practice screen (DESIGN.md), with these options.
     ui::ScreenCommand screen;
     ui::add_screen_options(app, screen);
+    ui::add_window_midi_options(app, screen);
     app.add_option("--input", screen.input_device, "Input device: index or a unique part of its name (see beatless devices)");
     app.add_option("--output", screen.output_device, "Output device for the drone: index or a unique part of its name");
     int frames = 0;
@@ -39,6 +40,7 @@ int main(int argc, char** argv) {
     ui::register_ensemble(app, run);
     ui::register_analyze(app, run);
     ui::register_drill(app, run);
+    ui::register_tuning(app, run);
 
     try {
         app.parse(argc, argv);

@@ -2,6 +2,7 @@
 // and the hearing caution again. Every change is saved (ui/session/settings.h) and
 // takes effect at once; a new text size from the next frame, a new device
 // by reopening the engine.
+#include "audio/midi_out.h"
 #include "pitch/base/text.h"
 #include "ui/screens/widgets.h"
 #include "ui/render/imgui_host.h"
@@ -36,6 +37,10 @@ private:
     float col_w_ = 0.0f;
     void device_combo(AppState& app, const char* id, bool input);
     DevicePicker inputs_, outputs_;
+    void midi_section(AppState& app, float field_w);
+    void midi_port_combo(AppState& app, const char* id, bool input, float field_w);
+    std::vector<audio::MidiPort> midi_ports_;  // listed again every 3 s while the screen shows
+    double midi_listed_at_s_ = -1e9;
 
     float label_w_ = 0.0f;
     char root_buf_[32] = "";
@@ -79,6 +84,44 @@ void SettingsScreen::device_combo(AppState& app, const char* id, bool input) {
     std::string chosen;
     if (!(input ? inputs_ : outputs_).combo(app, id, cur, cur.empty() ? std::string("system default") : cur, input, false, chosen)) return;
     input ? app.set_devices(chosen, s.output_device) : app.set_devices(s.input_device, chosen);
+}
+
+void SettingsScreen::midi_port_combo(AppState& app, const char* id, bool input, float field_w) {
+    const Settings& s = app.settings();
+    const std::string& cur = input ? s.midi_in : s.midi_out;
+    ImGui::SetNextItemWidth(field_w);
+    if (!ImGui::BeginCombo(id, cur.empty() ? "none" : cur.c_str())) return;
+    std::string chosen = cur;
+    if (ImGui::Selectable("none", cur.empty())) chosen.clear();
+    for (const audio::MidiPort& p : midi_ports_)
+        if (p.input == input && ImGui::Selectable((p.name + "  (" + p.api + ")").c_str(), p.name == cur)) chosen = p.name;
+    ImGui::EndCombo();
+    if (chosen != cur) input ? app.set_midi(s.midi_out, s.midi_tuning, chosen) : app.set_midi(chosen, s.midi_tuning, s.midi_in);
+}
+
+void SettingsScreen::midi_section(AppState& app, float field_w) {
+    const Settings& s = app.settings();
+    if (ImGui::GetTime() - midi_listed_at_s_ > 3.0) {
+        midi_ports_ = audio::list_midi_ports();
+        midi_listed_at_s_ = ImGui::GetTime();
+    }
+    section("MIDI");
+    label("Synth");
+    midi_port_combo(app, "##midi_out", false, field_w);
+    label("Retune by");
+    ImGui::SetNextItemWidth(field_w);
+    const bool mts = s.midi_tuning != "bend";
+    if (ImGui::BeginCombo("##midi_tuning", mts ? "tuning messages (MTS)" : "pitch bend, a channel a voice")) {
+        if (ImGui::Selectable("tuning messages (MTS)", mts)) app.set_midi(s.midi_out, "mts", s.midi_in);
+        if (ImGui::Selectable("pitch bend, a channel a voice", !mts)) app.set_midi(s.midi_out, "bend", s.midi_in);
+        ImGui::EndCombo();
+    }
+    label("Keyboard");
+    midi_port_combo(app, "##midi_in", true, field_w);
+    note(midi_ports_.empty() ? std::string("No MIDI ports: start a MIDI system (ALSA sequencer or JACK) and its ports appear here.")
+                             : std::string("While the drone is on, the synth plays it and a fixed target, tuned exactly. A key sets "
+                                           "the root; a key held with it, the target. A synth that ignores MTS plays tempered: "
+                                           "choose pitch bend."));
 }
 
 void SettingsScreen::build(AppState& app, const ScreenArea& area, double dt_s) {
@@ -183,6 +226,8 @@ void SettingsScreen::build(AppState& app, const ScreenArea& area, double dt_s) {
     device_combo(app, "##output", false);
     note("Listening now: " + app.input_text());
     if (app.options().demo) note("With --demo the demo performer replaces the input in this run.");
+
+    midi_section(app, field_w);
 
     section("Hearing caution");
     ImGui::SetCursorPosX(col_x_);

@@ -724,6 +724,14 @@ void AppState::set_devices(const std::string& input, const std::string& output) 
     open_engine();
 }
 
+void AppState::set_midi(const std::string& out, const std::string& tuning, const std::string& in) {
+    if (out == settings_.midi_out && tuning == settings_.midi_tuning && in == settings_.midi_in) return;
+    settings_.midi_out = out;
+    settings_.midi_tuning = tuning;
+    settings_.midi_in = in;
+    changed();
+}
+
 void AppState::set_ensemble(const EnsembleSettings& e) {
     if (e == settings_.ensemble) return;
     settings_.ensemble = e;

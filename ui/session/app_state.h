@@ -117,6 +117,7 @@ public:
     void set_lowest_hz(double hz);                  // the live tracker's lowest f0: the engine is opened again
     void set_a4(double a4_hz);                       // clamps to 400 .. 480
     void set_devices(const std::string& input, const std::string& output);  // reopens the engine
+    void set_midi(const std::string& out, const std::string& tuning, const std::string& in);  // MidiLink follows them
     void set_ensemble(const EnsembleSettings& e);    // the Ensemble screen's choices (saved like the rest)
     std::vector<audio::DeviceInfo> devices();        // empty when there is no audio system
     std::string input_text() const;                  // "Demo performer", "USB mic (ALSA)", "no input"

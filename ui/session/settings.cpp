@@ -97,7 +97,7 @@ void read_into(const TomlDoc& doc, Settings& s, Reader& r) {
     // versions: they are the window's transient state, not preferences, and
     // are no longer read (a later run starts on Practice, nearest target).
     r.only(top, {"kind", "screen", "caution_acknowledged", "a4_hz", "font_scale", "in_tune_cents", "lowest_hz", "input_device",
-                 "output_device", "drone", "targets", "ensemble"}, "");
+                 "output_device", "midi_out", "midi_tuning", "midi_in", "drone", "targets", "ensemble"}, "");
     r.boolean(top, "caution_acknowledged", s.caution_acknowledged);
     r.number(top, "a4_hz", 400.0, 480.0, s.a4_hz);
     double fs_ = s.font_scale;
@@ -107,6 +107,12 @@ void read_into(const TomlDoc& doc, Settings& s, Reader& r) {
     r.number(top, "lowest_hz", kLowestMinHz, kLowestMaxHz, s.lowest_hz);
     r.string(top, "input_device", [&](const std::string& v) { s.input_device = v; });
     r.string(top, "output_device", [&](const std::string& v) { s.output_device = v; });
+    r.string(top, "midi_out", [&](const std::string& v) { s.midi_out = v; });
+    r.string(top, "midi_tuning", [&](const std::string& v) {
+        if (v != "mts" && v != "bend") throw Error("must be \"mts\" or \"bend\"");
+        s.midi_tuning = v;
+    });
+    r.string(top, "midi_in", [&](const std::string& v) { s.midi_in = v; });
     if (const toml::table* d = r.table("drone")) {
         r.only(*d, {"root", "timbre", "level_dbfs", "fifth", "octave"}, "[drone]");
         r.string(*d, "root", [&](const std::string& v) {
@@ -162,6 +168,8 @@ std::vector<std::string> changed_preferences(const Settings& s) {
     if (s.font_scale != d.font_scale) out.push_back("text size x" + pitch::format_trimmed(s.font_scale, 2));
     if (!s.input_device.empty()) out.push_back("input '" + s.input_device + "'");
     if (!s.output_device.empty()) out.push_back("output '" + s.output_device + "'");
+    if (!s.midi_out.empty()) out.push_back("MIDI out '" + s.midi_out + "' (" + s.midi_tuning + ")");
+    if (!s.midi_in.empty()) out.push_back("MIDI in '" + s.midi_in + "'");
     if (s.root != d.root) out.push_back("root " + s.root);
     if (s.timbre != d.timbre) out.push_back("timbre " + std::string(audio::timbre_name(s.timbre)));
     if (s.level_dbfs != d.level_dbfs) out.push_back("drone level " + pitch::format_trimmed(s.level_dbfs, 1) + " dBFS");
@@ -215,6 +223,9 @@ std::string settings_toml(const Settings& s) {
       << "lowest_hz = " << pitch::format_trimmed(s.lowest_hz, 1) << "\n"
       << "input_device = " << quoted(s.input_device) << "\n"
       << "output_device = " << quoted(s.output_device) << "\n"
+      << "midi_out = " << quoted(s.midi_out) << "\n"
+      << "midi_tuning = " << quoted(s.midi_tuning) << "\n"
+      << "midi_in = " << quoted(s.midi_in) << "\n"
       << "\n[drone]\n"
       << "root = " << quoted(s.root) << "\n"
       << "timbre = " << quoted(audio::timbre_name(s.timbre)) << "\n"

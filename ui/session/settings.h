@@ -2,7 +2,7 @@
 //
 // settings.toml in the config folder (ui/session/paths.h) holds our own keys:
 //   kind = "settings"; caution_acknowledged; a4_hz; font_scale;
-//   in_tune_cents; input_device; output_device; [drone] root, timbre,
+//   in_tune_cents; input_device; output_device; midi_out; midi_tuning; midi_in; [drone] root, timbre,
 //   level_dbfs, fifth, octave; [targets] set; [ensemble] chord, reference, input_device, channels, names,
 //   voices (the Ensemble screen). A missing file gives the defaults silently. A malformed file
 //   never stops the program: a syntax error gives the defaults, a bad value
@@ -55,6 +55,9 @@ struct Settings {
                                                  // 55 for a cello's C string, 38 for a double bass: slower to settle)
     std::string input_device;                    // index or unique name part; "" = the default input
     std::string output_device;                   // the same for the drone's output
+    std::string midi_out;                        // MIDI port for the drone on a synth; "" = none (beatless devices lists them)
+    std::string midi_tuning = "mts";             // how midi_out retunes: "mts" (MIDI Tuning Standard) or "bend" (default mts)
+    std::string midi_in;                         // MIDI keyboard port that sets the root; "" = none
     // [drone]
     std::string root = "A2";                     // note name ("A2") or Hz ("110"); default A2 = 110 Hz at A4 440
     audio::Timbre timbre = audio::Timbre::round; // default round

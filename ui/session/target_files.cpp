@@ -1,6 +1,7 @@
 #include "ui/session/target_files.h"
 
 #include "pitch/base/error.h"
+#include "ui/session/chord_files.h"
 #include "ui/session/toml_reader.h"
 
 #include <algorithm>
@@ -25,7 +26,39 @@ std::vector<std::string> builtin_names(std::string_view kind) {
     return out;
 }
 
+namespace {
+
+// The file's `kind` when the text parses and holds one as a string, else "".
+std::string kind_of(std::string_view text) {
+    try {
+        const toml::table t = toml::parse(text);
+        return t["kind"].value_or(std::string());
+    } catch (const toml::parse_error&) {
+        return {};
+    }
+}
+
+// A chord as a target set: each voice above the lowest is a target over the
+// lowest, which is the drone (8:9:10:11:12 gives 9/8, 5/4, 11/8, 3/2).
+pitch::TargetSet target_set_of_chord(const ChordFile& f) {
+    pitch::TargetSet set;
+    set.id = f.id;
+    set.title = f.title;
+    set.about = f.about;
+    const auto& terms = f.chord.terms();
+    for (std::size_t i = 1; i < terms.size(); ++i) {
+        pitch::Target t;
+        t.interval = pitch::Interval::of(pitch::Ratio::make(terms[i], terms[0]));
+        if (const std::string* n = interval_names().find(t.interval)) t.name = *n;
+        set.targets.push_back(std::move(t));
+    }
+    return set;
+}
+
+}  // namespace
+
 pitch::TargetSet parse_target_set(std::string_view text, std::string_view source_name) {
+    if (kind_of(text) == "chord") return target_set_of_chord(parse_chord_file(text, source_name));
     const TomlDoc doc = parse_toml(text, std::string(source_name), "targets");
     pitch::TargetSet set;
     std::string stem(source_name);
@@ -60,10 +93,10 @@ pitch::TargetSet load_target_set(std::string_view name_or_path) {
         const std::string path(name_or_path);
         return parse_target_set(read_toml_text(path), path);
     }
-    const TomlDoc probe = load_toml(name_or_path, "targets");  // checks existence and kind
     for (const auto& f : embedded_target_files()) {
-        if (std::string(name_or_path) + ".toml" == f.name) return parse_target_set(f.text, probe.source);
+        if (std::string(name_or_path) + ".toml" == f.name) return parse_target_set(f.text, "targets/" + std::string(f.name));
     }
+    (void)load_toml(name_or_path, "targets");  // throws naming the known sets
     throw Error("'" + std::string(name_or_path) + "': no built-in target set of that name");
 }
 

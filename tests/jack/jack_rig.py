@@ -1,0 +1,35 @@
+"""Shared by the JACK tests: stopping a child's process group, and running a
+test's main so that a hang or crash fails it and every child is killed."""
+import os
+import signal
+import subprocess
+import sys
+
+
+def stop(p, sig=signal.SIGTERM):
+    if p.poll() is None:
+        try:
+            os.killpg(p.pid, sig)
+        except ProcessLookupError:
+            pass
+        try:
+            p.wait(timeout=5)
+        except subprocess.TimeoutExpired:
+            os.killpg(p.pid, signal.SIGKILL)
+            p.wait(timeout=5)
+
+
+def run(main, children):
+    code = 1
+    try:
+        code = main()
+    except Exception as e:  # a hang or crash fails the test, never blocks it
+        print("FAIL: %s" % e)
+        code = 1
+    finally:
+        # SIGTERM first (stop() falls back to SIGKILL after 5 s): a jackd
+        # killed outright leaves its entry in JACK's shared server registry,
+        # and after eight such entries no new server can start on the machine.
+        for c in reversed(children):
+            stop(c)
+    sys.exit(code)
