@@ -31,6 +31,7 @@
 #include "ui/render/png.h"
 #include "ui/render/raster.h"
 #include "ui/screens/screen.h"
+#include "ui/session/safe_file.h"
 #include "ui/session/target_files.h"
 #include "ui/render/render_error.h"
 #include "ui/render/window.h"
@@ -254,11 +255,12 @@ void register_snapshot(CLI::App& app, Runner& run) {
             if (!(o->scale >= 0.5f && o->scale <= 4.0f)) throw Error("--scale " + pitch::format_trimmed(o->scale, 2) + ": out of range (0.5 to 4)");
             if (!(o->seconds >= 0.0 && o->seconds <= 600.0)) throw Error("--seconds " + pitch::format_trimmed(o->seconds, 3) + ": out of range (0 to 600)");
             if (!(o->fps >= 10.0 && o->fps <= 240.0)) throw Error("--fps " + pitch::format_trimmed(o->fps, 2) + ": out of range (10 to 240)");
+            (void)check_output_path(o->out);  // refuse a device, folder or missing folder before rendering
             Loaded l;
             if (!o->settings_file.empty()) {
                 l.file = o->settings_file;
                 std::error_code ec;
-                if (!std::filesystem::is_regular_file(l.file, ec)) throw Error(o->settings_file + ": no such settings file");
+                if (!std::filesystem::exists(l.file, ec)) throw Error(o->settings_file + ": no such settings file");
                 read_settings_into(l);
             }
             l.can_save = false;
@@ -295,7 +297,7 @@ void register_snapshot(CLI::App& app, Runner& run) {
             }
             render_offscreen(host, raster, buf, static_cast<float>(dt), build, palette::kBackground);
             app.shutdown();
-            write_png(o->out, buf);
+            write_file_safely(o->out, encode_png(buf, o->out));
             std::printf("%s: %dx%d, %s screen after %s s of simulated time\n", o->out.c_str(), w, h,
                         std::string(screen_key(deck.current())).c_str(), pitch::format_trimmed(o->seconds, 3).c_str());
             if (o->print_verdict) std::printf("%s\n", verdict_json(app).c_str());

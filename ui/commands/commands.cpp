@@ -4,6 +4,7 @@
 #include "pitch/base/error.h"
 #include "pitch/theory/notes.h"
 #include "pitch/base/text.h"
+#include "ui/session/safe_file.h"
 #include "ui/session/settings.h"
 
 #include <cctype>
@@ -74,8 +75,12 @@ void hearing_caution_once() {
     if (!marker.empty() && std::filesystem::exists(marker, ec)) return;
     std::fprintf(stderr, "beatless: caution: the drone is a sustained tone; keep the level low, especially on headphones, and take breaks\n");
     if (marker.empty()) return;
-    std::filesystem::create_directories(dir, ec);
-    std::ofstream(marker) << "shown\n";
+    std::filesystem::create_directories(dir, ec);  // the program's own config folder
+    try {
+        write_file_safely(marker, "shown\n");
+    } catch (const Error&) {
+        // Not kept: the caution is shown again next time, which is harmless.
+    }
 }
 
 }  // namespace beatless::ui

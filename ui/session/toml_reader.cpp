@@ -8,6 +8,7 @@
 #include "ui/session/toml_reader.h"
 
 #include "pitch/base/error.h"
+#include "ui/session/safe_file.h"
 #include "ui/session/target_files.h"
 
 #include <algorithm>
@@ -93,16 +94,7 @@ bool looks_like_toml_path(std::string_view s) {
     return s.find('/') != std::string_view::npos || (s.size() > 5 && s.substr(s.size() - 5) == ".toml");
 }
 
-std::string read_toml_text(const std::string& path) {
-    std::error_code ec;
-    if (!std::filesystem::exists(path, ec)) throw Error(path + ": no such file");
-    if (std::filesystem::is_directory(path, ec)) throw Error(path + ": is a directory, not a TOML file");
-    std::ifstream in(path, std::ios::binary);
-    if (!in) throw Error(path + ": cannot be read (permission denied?)");
-    std::ostringstream ss;
-    ss << in.rdbuf();
-    return ss.str();
-}
+std::string read_toml_text(const std::string& path) { return read_text_file(path, kTomlLimitBytes, "TOML file"); }
 
 std::string describe_type(const toml::node& n) {
     switch (n.type()) {
