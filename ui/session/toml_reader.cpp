@@ -8,6 +8,7 @@
 #include "ui/session/toml_reader.h"
 
 #include "pitch/base/error.h"
+#include "pitch/base/text.h"
 #include "ui/session/safe_file.h"
 #include "ui/session/target_files.h"
 
@@ -85,7 +86,7 @@ std::string ticked(std::string_view key) {
     std::string s;
     s.reserve(key.size() + 2);
     s += '`';
-    s += key;
+    s += pitch::printable(key);  // a quoted key may hold any character
     s += '`';
     return s;
 }
@@ -212,14 +213,14 @@ std::string require_string(const TomlDoc& doc, const toml::table& t, std::string
     const auto v = t[key];
     if (!v) throw Error(where(doc, t) + ticked(key) + ": required key missing");
     if (!v.is_string()) throw Error(where(doc, v) + ticked(key) + ": must be a string, not " + describe_type(*v.node()));
-    return *v.value<std::string>();
+    return pitch::printable(*v.value<std::string>());
 }
 
 std::string optional_string(const TomlDoc& doc, const toml::table& t, std::string_view key, std::string fallback) {
     const auto v = t[key];
     if (!v) return fallback;
     if (!v.is_string()) throw Error(where(doc, v) + ticked(key) + ": must be a string, not " + describe_type(*v.node()));
-    return *v.value<std::string>();
+    return pitch::printable(*v.value<std::string>());
 }
 
 double optional_number(const TomlDoc& doc, const toml::table& t, std::string_view key, double fallback) {
