@@ -249,9 +249,7 @@ void register_snapshot(CLI::App& app, Runner& run) {
             check_common(c);
             if (c.a4_hz) pitch::check_a4(*c.a4_hz);
             int w = 0, h = 0;
-            char x = 0;
-            if (std::sscanf(o->size.c_str(), "%d%c%d", &w, &x, &h) != 3 || (x != 'x' && x != 'X') || w < 320 || h < 240 || w > 7680 || h > 4320)
-                throw Error("--size " + o->size + ": expected WIDTHxHEIGHT between 320x240 and 7680x4320");
+            parse_size(o->size, w, h);
             if (!(o->scale >= 0.5f && o->scale <= 4.0f)) throw Error("--scale " + pitch::format_trimmed(o->scale, 2) + ": out of range (0.5 to 4)");
             if (!(o->seconds >= 0.0 && o->seconds <= 600.0)) throw Error("--seconds " + pitch::format_trimmed(o->seconds, 3) + ": out of range (0 to 600)");
             if (!(o->fps >= 10.0 && o->fps <= 240.0)) throw Error("--fps " + pitch::format_trimmed(o->fps, 2) + ": out of range (10 to 240)");

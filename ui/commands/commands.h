@@ -64,6 +64,8 @@ std::string join_args(const std::vector<std::string>& args); // words joined by 
 // --lowest NOTE|HZ: the live tracker's lowest f0, 30 to 200 Hz. Throws
 // Error naming the value.
 double parse_lowest(const std::string& text, double a4_hz);
+// snapshot --size: "WIDTHxHEIGHT" between 320x240 and 7680x4320; throws Error naming the text.
+void parse_size(const std::string& text, int& width_px, int& height_px);
 inline constexpr const char* kLowestHelp =
     "Lowest note to track live: a note (A1) or Hz, 30-200 (default 70; 55 for cello, 38 for double bass, which settle more slowly)";
 
