@@ -2,9 +2,9 @@
 // --lowest, --size and the ensemble's --channels/--names/--voices lists
 // (three lines of the input) must succeed in range or throw beatless::Error.
 #include "pitch/base/error.h"
-#include "ui/commands/commands.h"
 #include "ui/session/chord_files.h"
 #include "ui/session/ensemble_plan.h"
+#include "ui/session/option_parsers.h"
 #include "ui/session/practice_log.h"
 
 #include <cstddef>

@@ -3,6 +3,7 @@
 // runs it inside one error handler (Error -> exit 1, UsageError -> exit 2).
 #pragma once
 
+#include "ui/session/option_parsers.h"
 #include "ui/session/wording.h"
 #include "ui/session/usage_error.h"
 
@@ -61,11 +62,6 @@ void add_format_option(CLI::App& sub, Format& format, std::initializer_list<Form
 
 // Small text helpers shared by the commands.
 std::string join_args(const std::vector<std::string>& args); // words joined by single spaces
-// --lowest NOTE|HZ: the live tracker's lowest f0, 30 to 200 Hz. Throws
-// Error naming the value.
-double parse_lowest(const std::string& text, double a4_hz);
-// snapshot --size: "WIDTHxHEIGHT" between 320x240 and 7680x4320; throws Error naming the text.
-void parse_size(const std::string& text, int& width_px, int& height_px);
 inline constexpr const char* kLowestHelp =
     "Lowest note to track live: a note (A1) or Hz, 30-200 (default 70; 55 for cello, 38 for double bass, which settle more slowly)";
 
