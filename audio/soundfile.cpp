@@ -40,6 +40,10 @@ SoundReader::SoundReader(const std::string& path, int channel, std::size_t block
         throw Error(path + ": cannot be opened (" + std::strerror(errno) + ")");
     }
     if (S_ISDIR(st.st_mode)) throw Error(path + ": is a directory, not a sound file");
+    // A stream has no length to seek in, and a device (/dev/zero) never ends: only files.
+    if (S_ISFIFO(st.st_mode)) throw Error(path + ": is a pipe (FIFO), not a sound file; save the sound to a file first");
+    if (S_ISCHR(st.st_mode) || S_ISBLK(st.st_mode)) throw Error(path + ": is a device, not a sound file");
+    if (!S_ISREG(st.st_mode)) throw Error(path + ": is a socket or other special file, not a sound file");
     if (st.st_size == 0) throw Error(path + ": is empty (0 bytes)");
 
     SF_INFO sfi{};
@@ -137,16 +141,17 @@ std::vector<float> SoundReader::read_all(const std::string& path, int channel, d
     return out;
 }
 
-SoundWriter::SoundWriter(const std::string& path, double sample_rate_hz, int channels, SampleFormat format)
-    : path_(path), channels_(channels) {
-    if (channels < 1) throw Error(path + ": cannot write a sound file with " + std::to_string(channels) + " channels");
+SoundWriter::SoundWriter(const std::string& path, double sample_rate_hz, int channels, SampleFormat format,
+                         const std::string& shown_as)
+    : path_(shown_as.empty() ? path : shown_as), channels_(channels) {
+    if (channels < 1) throw Error(path_ + ": cannot write a sound file with " + std::to_string(channels) + " channels");
     SF_INFO sfi{};
     sfi.samplerate = static_cast<int>(std::lround(sample_rate_hz));
     sfi.channels = channels;
     const int sub = format == SampleFormat::pcm16 ? SF_FORMAT_PCM_16 : format == SampleFormat::pcm24 ? SF_FORMAT_PCM_24 : SF_FORMAT_FLOAT;
     sfi.format = SF_FORMAT_WAV | sub;
     SNDFILE* f = sf_open(path.c_str(), SFM_WRITE, &sfi);
-    if (!f) throw Error(path + ": cannot be written (" + std::string(sf_strerror(nullptr)) + ")");
+    if (!f) throw Error(path_ + ": cannot be written (" + std::string(sf_strerror(nullptr)) + ")");
     // Integer output clips rather than wraps if a sample exceeds full scale.
     sf_command(f, SFC_SET_CLIPPING, nullptr, SF_TRUE);
     file_ = f;
@@ -171,8 +176,9 @@ void SoundWriter::close() {
     if (rc != 0) throw Error(path_ + ": could not be completed (" + std::string(sf_error_number(rc)) + ")");
 }
 
-void write_wav(const std::string& path, std::span<const float> mono, double sample_rate_hz, SampleFormat format) {
-    SoundWriter w(path, sample_rate_hz, 1, format);
+void write_wav(const std::string& path, std::span<const float> mono, double sample_rate_hz, SampleFormat format,
+               const std::string& shown_as) {
+    SoundWriter w(path, sample_rate_hz, 1, format, shown_as);
     w.write(mono);
     w.close();
 }

@@ -67,7 +67,9 @@ enum class SampleFormat { pcm16, pcm24, float32 };
 
 class SoundWriter {
 public:
-    SoundWriter(const std::string& path, double sample_rate_hz, int channels, SampleFormat format = SampleFormat::pcm24);
+    // shown_as: the name messages use when `path` is a temporary (ui/session/safe_file.h); default `path`.
+    SoundWriter(const std::string& path, double sample_rate_hz, int channels, SampleFormat format = SampleFormat::pcm24,
+                const std::string& shown_as = {});
     ~SoundWriter();
     SoundWriter(const SoundWriter&) = delete;
     SoundWriter& operator=(const SoundWriter&) = delete;
@@ -83,6 +85,6 @@ private:
 
 // Writes mono samples to a WAV file in one call.
 void write_wav(const std::string& path, std::span<const float> mono, double sample_rate_hz,
-               SampleFormat format = SampleFormat::pcm24);
+               SampleFormat format = SampleFormat::pcm24, const std::string& shown_as = {});
 
 }  // namespace beatless::audio

@@ -137,5 +137,6 @@ TEST_CASE("written as PNG; an unwritable path is one line naming it") {
     CHECK(std::fread(sig, 1, 8, f) == 8);
     std::fclose(f);
     CHECK(sig[1] == 'P');
-    CHECK_THROWS_WITH(write_report(dir.file("none/r.png"), d), (dir.file("none/r.png") + ": cannot be written (No such file or directory)").c_str());
+    CHECK_THROWS_WITH(write_report(dir.file("none/r.png"), d),
+                      (dir.file("none/r.png") + ": the folder " + dir.file("none") + " does not exist (create it first)").c_str());
 }

@@ -139,8 +139,9 @@ TEST_CASE("beatless drill, identification: the confusion matrix has every interv
 TEST_CASE("a practice log that cannot be written: the scores print, one line says where the attempts went, exit 1") {
     TempDir home;
     { std::ofstream(home.file("blocker")) << "a file where the data folder should be"; }
-    const std::string log = home.file("blocker") + "/data/p.sqlite3";
-    const auto r = run_program("drill hold-septimal-tritones --demo --hold -3 --attempts 2 --log " + log, {"BEATLESS_HOME=" + home.path()});
+    // The default log, whose folder is blocked by a file (a --log in a missing folder is refused before the drill).
+    const std::string log = home.file("blocker") + "/data/practice.sqlite3";
+    const auto r = run_program("drill hold-septimal-tritones --demo --hold -3 --attempts 2", {"BEATLESS_HOME=" + home.file("blocker")});
     CHECK(r.exit_code == 1);
     CHECK(line_count(r.out) == 2);  // the drill still ran
     const auto err = lines_of(r.err);

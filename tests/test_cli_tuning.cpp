@@ -88,13 +88,13 @@ TEST_CASE("tuning: bad input gives one line and a non-zero exit") {
           "beatless: --format syx writes a binary file: give --out FILE.syx\n");
     auto r = test::run_program({"tuning", "tritones", "--root", "D3", "--out", dir.path()});
     CHECK(r.exit_code == 1);
-    CHECK(r.err == "beatless: " + dir.path() + ": is a folder, not a file to write\n");
+    CHECK(r.err == "beatless: " + dir.path() + ": is a folder, not a file; give a file name\n");
     r = test::run_program({"tuning", "tritones", "--root", "D3", "--format", "syx", "--out", "/dev/null"});
     CHECK(r.exit_code == 1);
-    CHECK(r.err == "beatless: /dev/null: is a device, pipe or socket, not a file to write\n");
+    CHECK(r.err == "beatless: /dev/null: is a device, not a file; give a file name\n");
     r = test::run_program({"tuning", "tritones", "--root", "D3", "--out", dir.file("no/such/dir.txt")});
     CHECK(r.exit_code == 1);
-    CHECK(r.err == "beatless: " + dir.file("no/such/dir.txt") + ": cannot be written (No such file or directory)\n");
+    CHECK(r.err == "beatless: " + dir.file("no/such/dir.txt") + ": the folder " + dir.file("no/such") + " does not exist (create it first)\n");
     r = test::run_program({"tuning", "tritones", "--root", "D3", "--program", "128"});
     CHECK(r.exit_code == 1);
     CHECK(r.err == "beatless: --program 128: out of range (0 to 127)\n");

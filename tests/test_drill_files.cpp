@@ -148,6 +148,7 @@ TEST_CASE("shuffled rounds are permutations, replayable from the seed") {
 TEST_CASE("drill settings are a JSON object the practice log accepts") {
     const auto dir = std::filesystem::temp_directory_path() / ("beatless-drill-json-" + std::to_string(::getpid()));
     std::filesystem::remove_all(dir);
+    std::filesystem::create_directories(dir);  // a log the user names must be in a folder that exists
     PracticeLog log(dir / "p.sqlite3");
     for (const auto& name : builtin_names("drill")) {
         const std::string json = drill_settings_json(load_drill(name));

@@ -53,7 +53,7 @@ struct TempDir {
         static int n = 0;
         path = fs::temp_directory_path() / ("beatless-log-" + tag + "-" + std::to_string(::getpid()) + "-" + std::to_string(n++));
         fs::remove_all(path);
-        fs::create_directories(path);
+        fs::create_directories(path / "data");  // a log path the user names must be in a folder that exists
     }
     ~TempDir() {
         std::error_code ec;
@@ -480,7 +480,10 @@ TEST_CASE("a read-only log: warned, kept, and recoverable through the pending CS
 TEST_CASE("a folder that cannot be created: kept in memory until it can") {
     TempDir t("nodir");
     write_file(t.path / "blocker", "a file where the data folder should be");
-    const fs::path db = t.path / "blocker" / "data" / "practice.sqlite3";
+    // The default log's own folder is the one the program makes (a folder the user names must exist).
+    ::setenv("BEATLESS_HOME", (t.path / "blocker").c_str(), 1);
+    const fs::path db = practice_log_path();
+    CHECK(db == t.path / "blocker" / "data" / "practice.sqlite3");
     LogWriter w(db);
     ui::Rng rng(3);
     const Attempt a1 = random_attempt(rng, 1, 50);
@@ -493,6 +496,7 @@ TEST_CASE("a folder that cannot be created: kept in memory until it can") {
     CHECK(r2.saved == 2);
     CHECK(r2.pending == 0);
     PracticeLog log(db);
+    ::unsetenv("BEATLESS_HOME");
     CHECK(log.count() == 2);
     CHECK(log.has_uid(a1.uid));
 }

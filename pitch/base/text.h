@@ -13,14 +13,20 @@ inline std::string_view trim(std::string_view s) {
     return s.substr(b, e - b + 1);
 }
 
-// Quotes a user's text for an error message, shortening very long input.
+// Text from a file made safe for a terminal: the control characters of
+// ECMA-48 (C0 0x00-0x1F, DEL 0x7F, and C1 U+0080-U+009F as UTF-8) are written
+// as \xHH (C1 as \u0080..\u009F), so ESC and BEL sequences never reach the
+// terminal. Everything else, UTF-8 included, is kept.
+std::string printable(std::string_view s);
+
+// Quotes a user's text for an error message (printable), shortening very long input.
 inline std::string quote(std::string_view s) {
     std::string out = "'";
     if (s.size() > 60) {
-        out.append(s.substr(0, 57));
+        out += printable(s.substr(0, 57));
         out += "...";
     } else {
-        out.append(s);
+        out += printable(s);
     }
     out += "'";
     return out;

@@ -34,6 +34,7 @@
 #include <unistd.h>
 
 #include <cmath>
+#include <optional>
 #include <cstdio>
 #include <ctime>
 #include <filesystem>
@@ -52,7 +53,7 @@ struct AnalyzeOptions {
     int voices = 1;
     Format format = Format::text;
     std::string report;
-    int channel = 0;                  // 1-based; 0 mixes all channels
+    std::optional<int> channel;       // 1-based; empty mixes all channels
     std::string lowest;               // --lowest: below the file tracker's 55 Hz (a double bass)
 };
 
@@ -375,12 +376,12 @@ ReportData two_voice_report(const AnalyzeOptions& o, const pitch::TargetSet& set
 int run_analyze(const AnalyzeOptions& o) {
     pitch::check_a4(o.a4_hz);
     if (o.voices != 1 && o.voices != 2) throw UsageError("--voices " + std::to_string(o.voices) + ": choose 1 or 2");
-    if (o.channel < 0) throw Error("--channel " + std::to_string(o.channel) + ": channels are numbered from 1");
+    if (o.channel && *o.channel < 1) throw Error("--channel " + std::to_string(*o.channel) + ": channels are numbered from 1");
     if (o.voices == 2 && o.root_set)
         throw UsageError("--root: with --voices 2 the interval is measured between the two voices; leave --root out");
     AnalysisRequest req;
     req.path = o.file;
-    req.channel = o.channel - 1;
+    req.channel = o.channel.value_or(0) - 1;
     if (o.voices == 1 && pitch::trim(o.root) != "auto") {
         req.root_hz = pitch::parse_root(o.root, o.a4_hz);
     }

@@ -35,6 +35,7 @@
 #include "ui/session/json.h"
 #include "ui/session/log_writer.h"
 #include "ui/session/paths.h"
+#include "ui/session/safe_file.h"
 
 #include <atomic>
 #include <chrono>
@@ -417,6 +418,7 @@ int run_drill(const DrillCmd& o) {
     std::optional<ui::SimulatedListener> listener;
     if (!o.listener.empty()) listener.emplace(parse_listener(o.listener, o.seed));
     const fs::path log_path = o.log_file.empty() ? practice_log_path() : fs::path(o.log_file);
+    if (!o.log_file.empty()) (void)check_output_path(log_path);  // a device, a folder or a missing folder: before the drill
     LogWriter writer(log_path);
     RunnerConfig rc;
     rc.seed = o.seed;

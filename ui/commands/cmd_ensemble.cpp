@@ -31,6 +31,7 @@
 #include <cmath>
 #include <csignal>
 #include <cstdio>
+#include <optional>
 #include <memory>
 #include <thread>
 
@@ -53,7 +54,7 @@ struct EnsembleOptions {
     std::string output_dev;
     PlanLists lists;
     double seconds = 0.0;
-    double every_s = -1.0;       // < 0: the format's default
+    std::optional<double> every_s;  // empty: the format's default
     double in_tune_cents = 5.0;
     Format format = Format::text;
     bool drone = false;
@@ -116,7 +117,8 @@ int run_ensemble(const EnsembleOptions& o) {
     if (o.fast && o.input_file.empty()) throw UsageError("--fast works with --input-file only");
     if (!(o.seconds >= 0.0 && o.seconds <= 24 * 3600.0))
         throw Error("--seconds " + pitch::format_trimmed(o.seconds, 3) + ": out of range (0 to 86400)");
-    if (o.every_s > 60.0) throw Error("--every " + pitch::format_trimmed(o.every_s, 3) + ": out of range (0 to 60 s)");
+    if (o.every_s && !(*o.every_s >= 0.0 && *o.every_s <= 60.0))
+        throw Error("--every " + pitch::format_trimmed(*o.every_s, 3) + ": out of range (0 to 60 s)");
     if (!(o.in_tune_cents >= 1.0 && o.in_tune_cents <= 25.0))
         throw Error("--in-tune " + pitch::format_trimmed(o.in_tune_cents, 2) + ": out of range (1 to 25 cents)");
     pitch::check_a4(o.a4_hz);
@@ -160,7 +162,7 @@ int run_ensemble(const EnsembleOptions& o) {
     }
     engine.set_drone(ds);
 
-    const double every = o.every_s >= 0.0 ? o.every_s : o.format == Format::json ? 0.1 : 0.5;
+    const double every = o.every_s ? *o.every_s : o.format == Format::json ? 0.1 : 0.5;
     std::vector<Tally> tally(players.size());
     for (Tally& t : tally) t.near.assign(chord.chord.size(), 0);
     double next_print = 0.0;

@@ -16,6 +16,7 @@
 #include "ui/session/log_csv.h"
 #include "ui/session/paths.h"
 #include "ui/session/practice_log.h"
+#include "ui/session/safe_file.h"
 
 #include <cstdio>
 #include <filesystem>
@@ -44,19 +45,8 @@ struct HistoryCmd {
     bool with_demo = false;
 };
 
-std::string read_whole(const std::string& path) {
-    std::error_code ec;
-    if (!fs::exists(path, ec)) throw Error(path + ": no such file");
-    if (fs::is_directory(path, ec)) throw Error(path + ": is a folder, not a CSV file");
-    std::ifstream in(path, std::ios::binary);
-    if (!in) throw Error(path + ": cannot be read");
-    std::ostringstream ss;
-    ss << in.rdbuf();
-    return ss.str();
-}
-
 int run_import(const HistoryCmd& o, const fs::path& log_path) {
-    const std::string text = read_whole(o.import_file);
+    const std::string text = read_text_file(o.import_file, kCsvLimitBytes, "CSV file");
     PracticeLog log(log_path);
     const ImportResult r = import_csv(log, text, o.import_file);
     std::printf("imported %zu %s from %s into %s", r.added, r.added == 1 ? "attempt" : "attempts", o.import_file.c_str(),
@@ -76,24 +66,12 @@ int run_export(const HistoryCmd& o, const fs::path& log_path, const AttemptFilte
         std::fwrite(out.str().data(), 1, out.str().size(), stdout);
         return 0;
     }
-    // Write beside the destination and rename, so a failure leaves no half file.
-    const std::string tmp = o.export_file + ".part";
-    std::size_t n = 0;
-    {
-        std::ofstream out(tmp, std::ios::binary | std::ios::trunc);
-        if (!out) throw Error(o.export_file + ": cannot be written");
-        n = export_csv(log, filter, !o.no_traces, out);
-        out.flush();
-        if (!out) {
-            fs::remove(tmp, ec);
-            throw Error(o.export_file + ": writing failed (disk full?)");
-        }
-    }
-    fs::rename(tmp, o.export_file, ec);
-    if (ec) {
-        fs::remove(tmp, ec);
-        throw Error(o.export_file + ": cannot be written (" + ec.message() + ")");
-    }
+    // Written beside the destination and renamed, so a failure leaves no half file.
+    SafeOutput file(o.export_file);
+    std::ostringstream out;
+    const std::size_t n = export_csv(log, filter, !o.no_traces, out);
+    file.write(out.str());
+    file.commit();
     std::printf("exported %zu %s to %s\n", n, n == 1 ? "attempt" : "attempts", o.export_file.c_str());
     return 0;
 }

@@ -33,6 +33,7 @@
 #include "ui/render/png.h"
 #include "ui/render/raster.h"
 #include "ui/screens/screen.h"
+#include "ui/session/safe_file.h"
 #include "ui/session/target_files.h"
 #include "ui/render/render_error.h"
 #include "ui/render/window.h"
@@ -261,17 +262,16 @@ void register_snapshot(CLI::App& app, Runner& run) {
             check_common(c);
             if (c.a4_hz) pitch::check_a4(*c.a4_hz);
             int w = 0, h = 0;
-            char x = 0;
-            if (std::sscanf(o->size.c_str(), "%d%c%d", &w, &x, &h) != 3 || (x != 'x' && x != 'X') || w < 320 || h < 240 || w > 7680 || h > 4320)
-                throw Error("--size " + o->size + ": expected WIDTHxHEIGHT between 320x240 and 7680x4320");
+            parse_size(o->size, w, h);
             if (!(o->scale >= 0.5f && o->scale <= 4.0f)) throw Error("--scale " + pitch::format_trimmed(o->scale, 2) + ": out of range (0.5 to 4)");
             if (!(o->seconds >= 0.0 && o->seconds <= 600.0)) throw Error("--seconds " + pitch::format_trimmed(o->seconds, 3) + ": out of range (0 to 600)");
             if (!(o->fps >= 10.0 && o->fps <= 240.0)) throw Error("--fps " + pitch::format_trimmed(o->fps, 2) + ": out of range (10 to 240)");
+            (void)check_output_path(o->out);  // refuse a device, folder or missing folder before rendering
             Loaded l;
             if (!o->settings_file.empty()) {
                 l.file = o->settings_file;
                 std::error_code ec;
-                if (!std::filesystem::is_regular_file(l.file, ec)) throw Error(o->settings_file + ": no such settings file");
+                if (!std::filesystem::exists(l.file, ec)) throw Error(o->settings_file + ": no such settings file");
                 read_settings_into(l);
             }
             l.can_save = false;
@@ -308,7 +308,7 @@ void register_snapshot(CLI::App& app, Runner& run) {
             }
             render_offscreen(host, raster, buf, static_cast<float>(dt), build, palette::kBackground);
             app.shutdown();
-            write_png(o->out, buf);
+            write_file_safely(o->out, encode_png(buf, o->out));
             std::printf("%s: %dx%d, %s screen after %s s of simulated time\n", o->out.c_str(), w, h,
                         std::string(screen_key(deck.current())).c_str(), pitch::format_trimmed(o->seconds, 3).c_str());
             if (o->print_verdict) std::printf("%s\n", verdict_json(app).c_str());

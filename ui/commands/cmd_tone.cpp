@@ -12,6 +12,7 @@
 #include "pitch/theory/notes.h"
 #include "pitch/base/text.h"
 #include "ui/commands/commands.h"
+#include "ui/session/safe_file.h"
 
 #include <algorithm>
 #include <cmath>
@@ -43,6 +44,7 @@ double db_to_gain(double db) { return std::pow(10.0, db / 20.0); }
 
 int run_tone(const ToneOptions& o) {
     pitch::check_a4(o.a4_hz);
+    (void)check_output_path(o.out);  // refuse a device, folder or missing folder before rendering
     const double root_hz = pitch::parse_root(o.root, o.a4_hz);
     if (!(o.seconds > 0.0 && o.seconds <= 3600.0))
         throw Error("--seconds " + pitch::format_trimmed(o.seconds, 3) + ": out of range (more than 0, at most 3600)");
@@ -115,7 +117,9 @@ int run_tone(const ToneOptions& o) {
     if (peak > ceiling)
         for (float& v : buf) v *= ceiling / peak;
 
-    audio::write_wav(o.out, buf, o.rate_hz);
+    SafeOutput out(o.out);
+    audio::write_wav(out.temp_path(), buf, o.rate_hz, audio::SampleFormat::pcm24, o.out);
+    out.commit();
     std::printf("wrote %s: %s s at %s Hz, drone %s (%s)%s\n", o.out.c_str(), pitch::format_trimmed(o.seconds, 3).c_str(),
                 pitch::format_trimmed(o.rate_hz, 0).c_str(), root_echo(o.root, root_hz).c_str(),
                 std::string(audio::timbre_name(drone_timbre)).c_str(), voice_text.c_str());

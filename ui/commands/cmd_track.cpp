@@ -10,6 +10,7 @@
 #include "ui/session/json.h"
 
 #include <cstdio>
+#include <optional>
 #include <memory>
 
 namespace beatless::ui {
@@ -22,14 +23,14 @@ struct TrackOptions {
     double hop_ms = 5.0;
     double fmin_hz = 55.0;
     double fmax_hz = 1600.0;
-    int channel = 0;  // 1-based; 0 mixes all channels
+    std::optional<int> channel;  // 1-based; empty mixes all channels
 };
 
 int run_track(const TrackOptions& o) {
     if (!(o.hop_ms >= 0.5 && o.hop_ms <= 100.0))
         throw Error("--hop-ms " + pitch::format_trimmed(o.hop_ms, 3) + ": out of range (0.5 to 100 ms)");
-    if (o.channel < 0) throw Error("--channel " + std::to_string(o.channel) + ": channels are numbered from 1");
-    audio::SoundReader reader(o.file, o.channel - 1);
+    if (o.channel && *o.channel < 1) throw Error("--channel " + std::to_string(*o.channel) + ": channels are numbered from 1");
+    audio::SoundReader reader(o.file, o.channel.value_or(0) - 1);
     pitch::YinConfig cfg;
     cfg.sample_rate_hz = reader.info().sample_rate_hz;
     cfg.hop_s = o.hop_ms / 1000.0;

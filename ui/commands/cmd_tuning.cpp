@@ -4,7 +4,7 @@
 // Lays a target set (or a chord's voices) on the 128 keys of a MIDI keyboard
 // (pitch/theory/key_map.h) and prints each key's tuning, or writes it as an
 // MTS bulk tuning dump (.syx, pitch/theory/midi_tuning.h) for instruments
-// that load one. Files are written whole or not at all (ui/session/output_file.h).
+// that load one. Files are written whole or not at all (ui/session/safe_file.h).
 #include "pitch/base/error.h"
 #include "pitch/base/text.h"
 #include "pitch/theory/key_map.h"
@@ -12,7 +12,7 @@
 #include "pitch/theory/notes.h"
 #include "ui/commands/commands.h"
 #include "ui/session/json.h"
-#include "ui/session/output_file.h"
+#include "ui/session/safe_file.h"
 #include "ui/session/target_files.h"
 
 #include <cmath>
@@ -133,7 +133,7 @@ int run_tuning(const TuningOptions& o) {
         std::fwrite(bytes.data(), 1, bytes.size(), stdout);
         return 0;
     }
-    write_output_file(o.out, bytes);
+    write_file_safely(o.out, bytes);
     std::printf("wrote %s: %s over %s, %zu bytes%s\n", o.out.c_str(), t.set.title.c_str(), root_echo(o.root, t.root_hz).c_str(),
                 bytes.size(), o.format == TuningFormat::syx ? " (MTS bulk tuning dump, 128 keys)" : "");
     return 0;

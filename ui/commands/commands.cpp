@@ -4,6 +4,7 @@
 #include "pitch/base/error.h"
 #include "pitch/theory/notes.h"
 #include "pitch/base/text.h"
+#include "ui/session/safe_file.h"
 #include "ui/session/settings.h"
 
 #include <cctype>
@@ -42,14 +43,6 @@ std::string join_args(const std::vector<std::string>& args) {
     return s;
 }
 
-double parse_lowest(const std::string& text, double a4_hz) {
-    const double hz = pitch::parse_frequency(text, a4_hz);
-    if (!(hz >= kLowestMinHz && hz <= kLowestMaxHz))
-        throw Error("--lowest " + text + " = " + pitch::format_trimmed(hz, 1) + " Hz: out of range (" + pitch::format_trimmed(kLowestMinHz, 0) +
-                    " to " + pitch::format_trimmed(kLowestMaxHz, 0) + " Hz)");
-    return hz;
-}
-
 std::string root_echo(std::string_view typed, double root_hz) {
     const std::string_view t = pitch::trim(typed);
     const std::string hz = pitch::format_trimmed(root_hz, 3) + " Hz";
@@ -76,8 +69,12 @@ void hearing_caution_once() {
     if (!marker.empty() && std::filesystem::exists(marker, ec)) return;
     std::fprintf(stderr, "beatless: caution: the drone is a sustained tone; keep the level low, especially on headphones, and take breaks\n");
     if (marker.empty()) return;
-    std::filesystem::create_directories(dir, ec);
-    std::ofstream(marker) << "shown\n";
+    std::filesystem::create_directories(dir, ec);  // the program's own config folder
+    try {
+        write_file_safely(marker, "shown\n");
+    } catch (const Error&) {
+        // Not kept: the caution is shown again next time, which is harmless.
+    }
 }
 
 }  // namespace beatless::ui

@@ -3,6 +3,7 @@
 // runs it inside one error handler (Error -> exit 1, UsageError -> exit 2).
 #pragma once
 
+#include "ui/session/option_parsers.h"
 #include "ui/session/wording.h"
 #include "ui/session/usage_error.h"
 
@@ -68,9 +69,6 @@ void add_a4_option(CLI::App& sub, double& a4_hz);
 
 // Small text helpers shared by the commands.
 std::string join_args(const std::vector<std::string>& args); // words joined by single spaces
-// --lowest NOTE|HZ: the live tracker's lowest f0, 30 to 200 Hz. Throws
-// Error naming the value.
-double parse_lowest(const std::string& text, double a4_hz);
 inline constexpr const char* kLowestHelp =
     "Lowest note to track live: a note (A1) or Hz, 30-200 (default 70; 55 for cello, 38 for double bass, which settle more slowly)";
 

@@ -9,12 +9,16 @@
 
 #include <CLI/CLI.hpp>
 
+#include <csignal>
 #include <cstdio>
 #include <exception>
 
 
 int main(int argc, char** argv) {
     using namespace beatless;
+    // Past a file-size limit (ulimit -f) a write fails with EFBIG and is
+    // reported, instead of the signal ending the program with a half file.
+    std::signal(SIGXFSZ, SIG_IGN);
     CLI::App app{"Beatless: hear how far you are from a just interval, in cents and beats per second.", "beatless"};
     app.set_version_flag("--version", "beatless 0.1.0");
     app.require_subcommand(0, 1);

@@ -28,12 +28,29 @@ void sink_write(void* context, void* data, int size) {
 
 std::string reason(int err) { return std::string(" (") + std::strerror(err) + ")"; }
 
-}  // namespace
+void append_bytes(void* context, void* data, int size) {
+    if (size > 0) static_cast<std::string*>(context)->append(static_cast<const char*>(data), static_cast<std::size_t>(size));
+}
 
-void write_png(const std::string& path, const PixelBuffer& image) {
+void check_image(const std::string& name, const PixelBuffer& image) {
     if (image.width_px <= 0 || image.height_px <= 0 ||
         image.pixels.size() < static_cast<std::size_t>(image.width_px) * static_cast<std::size_t>(image.height_px))
-        throw RenderError(path + ": cannot be written (the image is empty)");
+        throw RenderError(name + ": cannot be written (the image is empty)");
+}
+
+}  // namespace
+
+std::string encode_png(const PixelBuffer& image, const std::string& name) {
+    check_image(name, image);
+    std::string bytes;
+    if (stbi_write_png_to_func(&append_bytes, &bytes, image.width_px, image.height_px, 4, image.pixels.data(),
+                               image.width_px * 4) == 0)
+        throw RenderError(name + ": cannot be written (PNG encoding failed)");
+    return bytes;
+}
+
+void write_png(const std::string& path, const PixelBuffer& image) {
+    check_image(path, image);
     errno = 0;
     Sink sink;
     sink.file = std::fopen(path.c_str(), "wb");

@@ -13,7 +13,10 @@
 
 namespace beatless::ui {
 
-// Writes `image` to `path`. Throws RenderError naming the file on any failure.
+// The PNG file's bytes for `image`. Throws RenderError naming `name` when the image is empty.
+std::string encode_png(const PixelBuffer& image, const std::string& name);
+// Writes `image` to `path` directly (tests; the program writes through ui/session/safe_file.h).
+// Throws RenderError naming the file on any failure.
 void write_png(const std::string& path, const PixelBuffer& image);
 
 }  // namespace beatless::ui

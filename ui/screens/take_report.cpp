@@ -11,6 +11,7 @@
 #include "pitch/base/text.h"
 #include "ui/render/imgui_host.h"
 #include "ui/render/png.h"
+#include "ui/session/safe_file.h"
 
 #include <imgui.h>
 
@@ -462,7 +463,7 @@ void render_report(const ReportData& d, PixelBuffer& out) {
 void write_report(const std::string& path, const ReportData& data) {
     PixelBuffer page;
     render_report(data, page);
-    write_png(path, page);
+    write_file_safely(path, encode_png(page, path));
 }
 
 }  // namespace beatless::ui

@@ -10,7 +10,9 @@
 //   [engine]   drone, target set and demo script for a drill
 #include "ui/session/drill_runner.h"
 
+#include "pitch/base/error.h"
 #include "pitch/base/text.h"
+#include "ui/session/safe_file.h"
 
 #include <algorithm>
 #include <cstdio>
@@ -399,11 +401,14 @@ std::string keep_unsaved(const LogWriter& w, const std::string& warning) {
     std::filesystem::path dir = std::filesystem::temp_directory_path(ec);
     if (ec) dir = ".";
     const std::filesystem::path csv = dir / ("beatless-unsaved-" + new_uid().substr(0, 8) + ".csv");
-    std::ofstream out(csv, std::ios::binary);
-    out << w.pending_csv();
-    out.flush();
+    bool written = true;
+    try {
+        write_file_safely(csv, w.pending_csv());
+    } catch (const Error&) {
+        written = false;
+    }
     std::string line = warning.empty() ? std::to_string(w.pending()) + " attempts not saved" : warning;
-    if (out) line += "; written to " + csv.string() + " (add them later with beatless history --import " + csv.string() + ")";
+    if (written) line += "; written to " + csv.string() + " (add them later with beatless history --import " + csv.string() + ")";
     else line += "; and " + csv.string() + " cannot be written either: the attempts above are all that is left";
     return line;
 }

@@ -12,6 +12,7 @@
 
 #include <array>
 #include <charconv>
+#include <cstdio>
 #include <map>
 #include <set>
 
@@ -362,6 +363,19 @@ Attempt parse_row(const Row& r, const PracticeLog& checker) {
 
 }  // namespace
 
+std::string content_uid(std::string_view content) {
+    __extension__ typedef unsigned __int128 u128;  // GCC and Clang
+    const u128 prime = (u128{1} << 88) | 0x13b;  // 2^88 + 2^8 + 0x3b
+    u128 h = (u128{0x6c62272e07bb0142ULL} << 64) | 0x62b821756295c58dULL;
+    for (const char c : content) {
+        h ^= static_cast<unsigned char>(c);
+        h *= prime;
+    }
+    char buf[33];
+    std::snprintf(buf, sizeof buf, "%016llx%016llx", static_cast<unsigned long long>(h >> 64), static_cast<unsigned long long>(h));
+    return buf;
+}
+
 std::vector<Attempt> parse_log_csv(std::string_view text, const std::string& source, const PracticeLog& checker) {
     const std::vector<Record> records = split_records(text, source);
     if (records.empty()) throw Error(source + ": empty file, expected a header row starting with 'uid,started_at'");
@@ -389,6 +403,13 @@ std::vector<Attempt> parse_log_csv(std::string_view text, const std::string& sou
                         std::to_string(header.fields.size()));
         Attempt a = parse_row(row, checker);
         if (!a.uid.empty() && !uids.insert(a.uid).second) row.bad("uid", a.uid + " appears twice in the file");
+        if (a.uid.empty()) {
+            // Every other column, by name (so column order does not matter), each field length-prefixed.
+            std::string content;
+            for (const auto& [name, i] : col)
+                if (name != "uid") content += name + ':' + std::to_string(rec.fields[i].size()) + ':' + rec.fields[i];
+            a.uid = content_uid(content);
+        }
         out.push_back(std::move(a));
     }
     return out;

@@ -49,6 +49,11 @@ ImportResult import_csv(PracticeLog& log, std::string_view text, const std::stri
 // One field, quoted when it holds a comma, a quote or a line break.
 std::string csv_field(std::string_view text);
 
+// A uid made from a row's content, for a row whose uid is empty, so the same
+// row imported again is recognised: FNV-1a 128-bit (Fowler, Noll, Vo; IETF
+// draft-eastlake-fnv, offset basis and prime of 128 bits) as 32 hex digits.
+std::string content_uid(std::string_view content);
+
 std::string base64_encode(std::string_view bytes);
 // Throws Error naming the problem when the text is not base64.
 std::string base64_decode(std::string_view text);

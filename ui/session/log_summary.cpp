@@ -217,7 +217,8 @@ std::string signed_cents(double v) {
 
 std::string percent(double share) { return std::isfinite(share) ? fixed(100.0 * share, 0, " %") : "-"; }
 
-void pad(std::string& out, const std::string& s, std::size_t width, bool right) {
+void pad(std::string& out, const std::string& text, std::size_t width, bool right) {
+    const std::string s = pitch::printable(text);  // drill ids and names come from files (CSV import)
     const std::size_t n = s.size() < width ? width - s.size() : 0;
     if (right) out.append(n, ' ');
     out += s;

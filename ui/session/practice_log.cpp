@@ -14,8 +14,11 @@
 #include <sqlite3.h>
 
 #include <bit>
+#include <cerrno>
 #include <chrono>
 #include <cstring>
+#include <fstream>
+#include <sys/stat.h>
 #include <ctime>
 #include <random>
 #include <tuple>
@@ -309,6 +312,43 @@ void PracticeLog::fail(const std::string& doing) const {
     throw LogError(p, msg);
 }
 
+void PracticeLog::check_log_file() {
+    const std::string name = "practice log " + path_.string() + ": ";
+    struct stat st {};
+    if (::stat(path_.c_str(), &st) == 0) {
+        // Never make a log of something else: a device (/dev/null would get a
+        // -journal beside it), a folder, or a file that is not SQLite.
+        if (S_ISDIR(st.st_mode)) throw LogError(LogProblem::cannot_open, name + "is a folder, not a file");
+        if (!S_ISREG(st.st_mode)) throw LogError(LogProblem::cannot_open, name + "is not a regular file (a device or pipe)");
+        if (st.st_size == 0) return;
+        // The 16-byte header every SQLite 3 database starts with (sqlite.org/fileformat.html, 1.3).
+        static constexpr char kHeader[16] = {'S', 'Q', 'L', 'i', 't', 'e', ' ', 'f', 'o', 'r', 'm', 'a', 't', ' ', '3', '\0'};
+        char head[16] = {};
+        std::ifstream in(path_, std::ios::binary);
+        in.read(head, sizeof head);
+        if (!in || std::memcmp(head, kHeader, sizeof head) != 0)
+            throw LogError(LogProblem::not_a_log, name + "is not a practice log (not an SQLite file); give a new file name");
+        return;
+    }
+    if (errno != ENOENT && errno != ENOTDIR) throw LogError(LogProblem::cannot_open, name + std::strerror(errno));
+    if (options_.read_only || !path_.has_parent_path()) return;
+    // Only the default log's own folder is made; a folder the user named must exist.
+    bool is_default = false;
+    try {
+        is_default = path_ == practice_log_path();
+    } catch (const Error&) {
+    }
+    const fs::path dir = path_.parent_path();
+    try {
+        if (is_default) ensure_dir(dir);
+    } catch (const Error& e) {
+        throw LogError(LogProblem::cannot_open, name + e.what());
+    }
+    std::error_code ec;
+    if (!fs::is_directory(dir, ec))
+        throw LogError(LogProblem::cannot_open, name + "the folder " + dir.string() + (fs::exists(dir, ec) ? " is not a folder" : " does not exist (create it first)"));
+}
+
 void PracticeLog::exec(const char* sql, const std::string& doing) {
     if (sqlite3_exec(db_, sql, nullptr, nullptr, nullptr) != SQLITE_OK) fail(doing);
 }
@@ -331,13 +371,7 @@ std::int64_t query_int(sqlite3* db, const char* sql, bool& ok) {
 }  // namespace
 
 PracticeLog::PracticeLog(fs::path path, LogOptions options) : path_(std::move(path)), options_(options) {
-    if (!options_.read_only && path_.has_parent_path()) {
-        try {
-            ensure_dir(path_.parent_path());
-        } catch (const Error& e) {
-            throw LogError(LogProblem::cannot_open, "practice log " + path_.string() + ": " + e.what());
-        }
-    }
+    check_log_file();
     const int flags = options_.read_only ? SQLITE_OPEN_READONLY : (SQLITE_OPEN_READWRITE | SQLITE_OPEN_CREATE);
     if (sqlite3_open_v2(path_.c_str(), &db_, flags, nullptr) != SQLITE_OK) {
         try {

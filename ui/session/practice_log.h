@@ -173,6 +173,7 @@ private:
     void migrate();
     void insert(Attempt& a);
     [[noreturn]] void fail(const std::string& doing) const;
+    void check_log_file();  // refuses a non-log file, a device and a missing folder before SQLite opens it
     void exec(const char* sql, const std::string& doing);
 
     std::filesystem::path path_;

@@ -5,6 +5,7 @@
 #include "pitch/base/error.h"
 #include "pitch/theory/notes.h"
 #include "pitch/base/text.h"
+#include "ui/session/safe_file.h"
 #include "ui/session/toml_reader.h"
 
 #include <algorithm>
@@ -205,11 +206,11 @@ LoadedSettings load_settings(const fs::path& file) {
     std::error_code ec;
     if (!fs::exists(file, ec)) return {};
     if (fs::is_directory(file, ec)) return {Settings{}, file.string() + ": is a folder, not a settings file; using the default settings"};
-    std::ifstream in(file, std::ios::binary);
-    if (!in) return {Settings{}, file.string() + ": cannot be read; using the default settings"};
-    std::ostringstream ss;
-    ss << in.rdbuf();
-    return parse_settings(ss.str(), file.string());
+    try {
+        return parse_settings(read_text_file(file.string(), kTomlLimitBytes, "settings file"), file.string());
+    } catch (const Error& e) {
+        return {Settings{}, std::string(e.what()) + "; using the default settings"};
+    }
 }
 
 std::string settings_toml(const Settings& s) {
@@ -246,17 +247,7 @@ std::string settings_toml(const Settings& s) {
 
 void save_settings(const fs::path& file, const Settings& s) {
     ensure_dir(file.parent_path());
-    const fs::path tmp = file.string() + ".tmp";
-    {
-        std::ofstream out(tmp, std::ios::binary | std::ios::trunc);
-        if (!out) throw Error(tmp.string() + ": cannot be written");
-        out << settings_toml(s);
-        out.flush();
-        if (!out) throw Error(tmp.string() + ": cannot be written (disk full?)");
-    }
-    std::error_code ec;
-    fs::rename(tmp, file, ec);
-    if (ec) throw Error(file.string() + ": cannot be replaced (" + ec.message() + ")");
+    write_file_safely(file, settings_toml(s));
 }
 
 }  // namespace beatless::ui

@@ -8,6 +8,8 @@
 #include "ui/session/toml_reader.h"
 
 #include "pitch/base/error.h"
+#include "pitch/base/text.h"
+#include "ui/session/safe_file.h"
 #include "ui/session/target_files.h"
 
 #include <algorithm>
@@ -84,7 +86,7 @@ std::string ticked(std::string_view key) {
     std::string s;
     s.reserve(key.size() + 2);
     s += '`';
-    s += key;
+    s += pitch::printable(key);  // a quoted key may hold any character
     s += '`';
     return s;
 }
@@ -93,16 +95,7 @@ bool looks_like_toml_path(std::string_view s) {
     return s.find('/') != std::string_view::npos || (s.size() > 5 && s.substr(s.size() - 5) == ".toml");
 }
 
-std::string read_toml_text(const std::string& path) {
-    std::error_code ec;
-    if (!std::filesystem::exists(path, ec)) throw Error(path + ": no such file");
-    if (std::filesystem::is_directory(path, ec)) throw Error(path + ": is a directory, not a TOML file");
-    std::ifstream in(path, std::ios::binary);
-    if (!in) throw Error(path + ": cannot be read (permission denied?)");
-    std::ostringstream ss;
-    ss << in.rdbuf();
-    return ss.str();
-}
+std::string read_toml_text(const std::string& path) { return read_text_file(path, kTomlLimitBytes, "TOML file"); }
 
 std::string describe_type(const toml::node& n) {
     switch (n.type()) {
@@ -220,14 +213,14 @@ std::string require_string(const TomlDoc& doc, const toml::table& t, std::string
     const auto v = t[key];
     if (!v) throw Error(where(doc, t) + ticked(key) + ": required key missing");
     if (!v.is_string()) throw Error(where(doc, v) + ticked(key) + ": must be a string, not " + describe_type(*v.node()));
-    return *v.value<std::string>();
+    return pitch::printable(*v.value<std::string>());
 }
 
 std::string optional_string(const TomlDoc& doc, const toml::table& t, std::string_view key, std::string fallback) {
     const auto v = t[key];
     if (!v) return fallback;
     if (!v.is_string()) throw Error(where(doc, v) + ticked(key) + ": must be a string, not " + describe_type(*v.node()));
-    return *v.value<std::string>();
+    return pitch::printable(*v.value<std::string>());
 }
 
 double optional_number(const TomlDoc& doc, const toml::table& t, std::string_view key, double fallback) {
