@@ -9,8 +9,8 @@
 namespace beatless::audio {
 
 namespace {
-constexpr std::size_t kBlock = 256;      // frames rendered per inner block
-constexpr std::size_t kStep = 32;        // pitch trajectory resolution (frames)
+constexpr std::size_t kBlock = 256;  // frames rendered per inner block
+constexpr std::size_t kStep = 32;    // pitch trajectory resolution (frames)
 constexpr int kPartials = 40;
 
 // Vowel resonances (centre Hz, bandwidth Hz, gain): "ah" and "oh", common
@@ -35,10 +35,10 @@ struct Habit {
     double start_cents, settle_cents, sag_cents_per_s, vib_rate_hz, vib_depth_cents;
 };
 constexpr Habit kHabits[4] = {
-    {+14.0, +6.0, 0.0, 5.8, 26.0},   // leans sharp, settles a little sharp
-    {-9.0, -5.0, 0.0, 5.1, 18.0},    // a shade flat
-    {+2.0, +2.0, -2.4, 5.4, 22.0},   // sags flat through the phrase
-    {-3.0, +1.0, 0.0, 4.8, 12.0},    // steady
+    {+14.0, +6.0, 0.0, 5.8, 26.0},  // leans sharp, settles a little sharp
+    {-9.0, -5.0, 0.0, 5.1, 18.0},   // a shade flat
+    {+2.0, +2.0, -2.4, 5.4, 22.0},  // sags flat through the phrase
+    {-3.0, +1.0, 0.0, 4.8, 12.0},   // steady
 };
 
 }  // namespace
@@ -58,8 +58,10 @@ struct DemoEnsemble::Singer {
 DemoEnsemble::DemoEnsemble(const DemoEnsembleConfig& config) : cfg_(config), rng_(config.seed) {
     const std::size_t n = cfg_.voice_cents.size();
     if (n < 1 || n > kMaxDemoSingers) throw Error("demo ensemble: needs 1 to 8 singers");
-    if (!(cfg_.sample_rate_hz >= 8000.0 && cfg_.sample_rate_hz <= 192000.0)) throw Error("demo ensemble: sample rate out of range");
-    if (!(cfg_.root_hz >= 20.0 && cfg_.root_hz <= 2000.0)) throw Error("demo ensemble: root out of range (20 Hz to 2 kHz)");
+    if (!(cfg_.sample_rate_hz >= 8000.0 && cfg_.sample_rate_hz <= 192000.0))
+        throw Error("demo ensemble: sample rate out of range");
+    if (!(cfg_.root_hz >= 20.0 && cfg_.root_hz <= 2000.0))
+        throw Error("demo ensemble: root out of range (20 Hz to 2 kHz)");
     if (!(cfg_.phrase_s >= 1.0 && cfg_.breath_s >= 0.0)) throw Error("demo ensemble: a phrase lasts at least 1 s");
     if (cfg_.channel_of_singer.empty())
         for (std::size_t i = 0; i < n; ++i) cfg_.channel_of_singer.push_back(static_cast<int>(i));
@@ -114,7 +116,9 @@ void DemoEnsemble::start_phrase() noexcept {
         h.sag_cents_per_s *= k;
         h.vib_rate_hz *= 0.95 + 0.1 * (u(rng_) - 0.7) / 0.6;
         h.vib_depth_cents *= u(rng_);
-        if (cfg_.hold) h = Habit{cfg_.hold_dev_cents + kHoldOffsetsCents[i], cfg_.hold_dev_cents + kHoldOffsetsCents[i], 0.0, 5.0, 0.0};
+        if (cfg_.hold)
+            h = Habit{cfg_.hold_dev_cents + kHoldOffsetsCents[i], cfg_.hold_dev_cents + kHoldOffsetsCents[i], 0.0, 5.0,
+                      0.0};
         s.h = h;
         s.vib_phase = ph(rng_);
         s.gain = std::pow(10.0, cfg_.level_dbfs / 20.0) * std::sqrt(2.0);
@@ -149,10 +153,11 @@ void DemoEnsemble::render(std::span<float> out) noexcept {
                 // Settling with a 0.6 s time constant, the sag growing through the phrase,
                 // the vibrato blooming after 0.3 s.
                 const double tt = std::max(0.0, t);
-                const double dev = s.h.settle_cents + (s.h.start_cents - s.h.settle_cents) * std::exp(-tt / 0.6) + s.h.sag_cents_per_s * tt;
+                const double dev = s.h.settle_cents + (s.h.start_cents - s.h.settle_cents) * std::exp(-tt / 0.6) +
+                                   s.h.sag_cents_per_s * tt;
                 const double bloom = std::clamp((tt - 0.3) / 0.5, 0.0, 1.0);
-                const double vib = s.h.vib_depth_cents * bloom *
-                                   std::sin(2.0 * std::numbers::pi * s.h.vib_rate_hz * tt + s.vib_phase);
+                const double vib =
+                    s.h.vib_depth_cents * bloom * std::sin(2.0 * std::numbers::pi * s.h.vib_rate_hz * tt + s.vib_phase);
                 const double centre = s.voice_hz * std::exp2(dev / 1200.0);
                 const double f = centre * std::exp2(vib / 1200.0);
                 if (in_phrase) s.synth.glide_f0(f, step);

@@ -9,7 +9,7 @@
 namespace beatless::audio {
 
 namespace {
-constexpr std::size_t kBlockLen = 32;   // pitch trajectory resolution (samples)
+constexpr std::size_t kBlockLen = 32;  // pitch trajectory resolution (samples)
 constexpr int kPartials = 40;
 }  // namespace
 
@@ -26,20 +26,25 @@ double DemoPerformer::formant_gain(double f) const noexcept {
 DemoPerformer::DemoPerformer(const DemoConfig& config)
     : cfg_(config), synth_(SynthConfig{config.sample_rate_hz, kPartials, 0.03}), rng_(config.seed) {
     if (cfg_.target_cents.empty()) throw Error("demo performer: needs at least one target");
-    if (!(cfg_.root_hz >= 20.0 && cfg_.root_hz <= 2000.0)) throw Error("demo performer: root out of range (20 Hz to 2 kHz)");
-    if (!(cfg_.low_hz > 0 && cfg_.high_hz >= 2.0 * cfg_.low_hz)) throw Error("demo performer: range must span an octave");
-    if (!(cfg_.vibrato_scale >= 0.0 && cfg_.vibrato_scale <= 2.0)) throw Error("demo performer: vibrato_scale out of range (0 to 2)");
+    if (!(cfg_.root_hz >= 20.0 && cfg_.root_hz <= 2000.0))
+        throw Error("demo performer: root out of range (20 Hz to 2 kHz)");
+    if (!(cfg_.low_hz > 0 && cfg_.high_hz >= 2.0 * cfg_.low_hz))
+        throw Error("demo performer: range must span an octave");
+    if (!(cfg_.vibrato_scale >= 0.0 && cfg_.vibrato_scale <= 2.0))
+        throw Error("demo performer: vibrato_scale out of range (0 to 2)");
     for (std::size_t i = 0; i < cfg_.script.size(); ++i) {
         const DemoNote& n = cfg_.script[i];
         if (!(n.start_s >= 0.0 && n.dur_s > 0.0 && std::isfinite(n.start_s + n.dur_s + n.target_cents)))
             throw Error("demo performer: script note " + std::to_string(i + 1) + " has a bad time or target");
         if (i > 0 && n.start_s < cfg_.script[i - 1].start_s + cfg_.script[i - 1].dur_s)
-            throw Error("demo performer: script note " + std::to_string(i + 1) + " starts before the one before it ends");
+            throw Error("demo performer: script note " + std::to_string(i + 1) +
+                        " starts before the one before it ends");
     }
     partials_.assign(kPartials, 0.0);
     noise_rms_ = 0.02 * std::pow(10.0, cfg_.level_dbfs / 20.0);
-    next_start_ = cfg_.script.empty() ? static_cast<std::int64_t>(0.3 * cfg_.sample_rate_hz)  // a short breath before the first note
-                                      : static_cast<std::int64_t>(std::llround(cfg_.script.front().start_s * cfg_.sample_rate_hz));
+    next_start_ = cfg_.script.empty()
+                      ? static_cast<std::int64_t>(0.3 * cfg_.sample_rate_hz)  // a short breath before the first note
+                      : static_cast<std::int64_t>(std::llround(cfg_.script.front().start_s * cfg_.sample_rate_hz));
 }
 
 void DemoPerformer::start_note() noexcept {
@@ -51,7 +56,8 @@ void DemoPerformer::start_note() noexcept {
         return;
     }
     truth_.target_index = static_cast<int>(scripted ? note_index_ : cfg_.hold ? 0 : note_index_ % n);
-    const double cents = scripted ? cfg_.script[note_index_].target_cents : cfg_.target_cents[static_cast<std::size_t>(truth_.target_index)];
+    const double cents = scripted ? cfg_.script[note_index_].target_cents
+                                  : cfg_.target_cents[static_cast<std::size_t>(truth_.target_index)];
     double f = cfg_.root_hz * std::exp2(cents / 1200.0);
     while (f < cfg_.low_hz) f *= 2.0;
     while (f > cfg_.high_hz) f /= 2.0;
@@ -81,8 +87,9 @@ void DemoPerformer::start_note() noexcept {
     if (scripted) {
         note_end_ = note_start_ + static_cast<std::int64_t>(std::llround(cfg_.script[note_index_].dur_s * fs));
         next_start_ = note_index_ + 1 < cfg_.script.size()
-                           ? std::max(note_end_, static_cast<std::int64_t>(std::llround(cfg_.script[note_index_ + 1].start_s * fs)))
-                           : INT64_MAX;
+                          ? std::max(note_end_,
+                                     static_cast<std::int64_t>(std::llround(cfg_.script[note_index_ + 1].start_s * fs)))
+                          : INT64_MAX;
     } else {
         note_end_ = cfg_.hold ? INT64_MAX : note_start_ + static_cast<std::int64_t>(cfg_.note_s * fs);
         next_start_ = cfg_.hold ? INT64_MAX : note_end_ + static_cast<std::int64_t>(cfg_.breath_s * fs);

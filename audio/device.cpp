@@ -7,14 +7,14 @@
 
 #include <portaudio.h>
 
+#include <fcntl.h>
+#include <unistd.h>
 #include <algorithm>
 #include <atomic>
 #include <cctype>
 #include <cstdio>
 #include <memory>
 #include <thread>
-#include <fcntl.h>
-#include <unistd.h>
 
 namespace beatless::audio {
 
@@ -30,19 +30,24 @@ std::string lower(std::string_view s) {
     return out;
 }
 
-int channels(const DeviceInfo& d, Direction dir) { return dir == Direction::input ? d.max_input_channels : d.max_output_channels; }
+int channels(const DeviceInfo& d, Direction dir) {
+    return dir == Direction::input ? d.max_input_channels : d.max_output_channels;
+}
 const char* dir_name(Direction dir) { return dir == Direction::input ? "input" : "output"; }
 
 }  // namespace
 
 DeviceChoice choose_device_why(const std::vector<DeviceInfo>& devices, std::string_view spec, Direction dir) {
-    const bool any = std::any_of(devices.begin(), devices.end(), [&](const DeviceInfo& d) { return channels(d, dir) > 0; });
+    const bool any =
+        std::any_of(devices.begin(), devices.end(), [&](const DeviceInfo& d) { return channels(d, dir) > 0; });
     if (!any)
         throw Error(std::string("no audio ") + dir_name(dir) + " device found" +
                     (dir == Direction::input ? std::string(" (") + kDemoHint + ")" : std::string()));
     const std::string_view s = pitch::trim(spec);
     if (s.empty()) {
-        auto is_default = [dir](const DeviceInfo& d) { return (dir == Direction::input ? d.default_input : d.default_output) && channels(d, dir) > 0; };
+        auto is_default = [dir](const DeviceInfo& d) {
+            return (dir == Direction::input ? d.default_input : d.default_output) && channels(d, dir) > 0;
+        };
         for (const DeviceInfo& d : devices)
             if (d.server && is_default(d)) return {d.index, ChoiceWhy::server_default};
         for (const DeviceInfo& d : devices)
@@ -52,16 +57,19 @@ DeviceChoice choose_device_why(const std::vector<DeviceInfo>& devices, std::stri
         for (const DeviceInfo& d : devices)
             if (channels(d, dir) > 0) return {d.index, ChoiceWhy::first_listed};
     }
-    const bool numeric = !s.empty() && std::all_of(s.begin(), s.end(), [](char c) { return std::isdigit(static_cast<unsigned char>(c)); });
+    const bool numeric = !s.empty() && std::all_of(s.begin(), s.end(),
+                                                   [](char c) { return std::isdigit(static_cast<unsigned char>(c)); });
     if (numeric) {
         const int index = std::stoi(std::string(s.substr(0, 9)));
         for (const DeviceInfo& d : devices) {
             if (d.index != index) continue;
             if (channels(d, dir) == 0)
-                throw Error("device " + std::to_string(index) + " '" + d.name + "' has no " + dir_name(dir) + " channels");
+                throw Error("device " + std::to_string(index) + " '" + d.name + "' has no " + dir_name(dir) +
+                            " channels");
             return {index, ChoiceWhy::index};
         }
-        throw Error(std::string(dir_name(dir)) + " device " + std::string(s) + ": no such device (see beatless devices)");
+        throw Error(std::string(dir_name(dir)) + " device " + std::string(s) +
+                    ": no such device (see beatless devices)");
     }
     const std::string want = lower(s);
     for (const DeviceInfo& d : devices)  // a whole name wins over names that contain it ('room' beside 'room.monitor')
@@ -74,9 +82,10 @@ DeviceChoice choose_device_why(const std::vector<DeviceInfo>& devices, std::stri
                     " device has that in its name (see beatless devices)");
     if (hits.size() > 1) {
         std::string list;
-        for (const DeviceInfo* d : hits) list += (list.empty() ? "" : ", ") + std::to_string(d->index) + " '" + d->name + "'";
-        throw Error(std::string(dir_name(dir)) + " device " + pitch::quote(s) + ": matches " + std::to_string(hits.size()) +
-                    " devices (" + list + "); give more of the name or the index");
+        for (const DeviceInfo* d : hits)
+            list += (list.empty() ? "" : ", ") + std::to_string(d->index) + " '" + d->name + "'";
+        throw Error(std::string(dir_name(dir)) + " device " + pitch::quote(s) + ": matches " +
+                    std::to_string(hits.size()) + " devices (" + list + "); give more of the name or the index");
     }
     return {hits.front()->index, ChoiceWhy::named};
 }
@@ -158,7 +167,9 @@ public:
         if (out) self->cb_.playback(static_cast<float*>(out), frames, self->info_.output_channels);
         return paContinue;
     }
-    static void finished(void* user) { static_cast<PaStreamImpl*>(user)->finished_.store(true, std::memory_order_release); }
+    static void finished(void* user) {
+        static_cast<PaStreamImpl*>(user)->finished_.store(true, std::memory_order_release);
+    }
 
     StreamCallbacks& cb_;
     PaStream* stream_ = nullptr;
@@ -230,8 +241,10 @@ public:
         PaStreamParameters in{}, out{};
         const PaDeviceInfo* din = rq.input_device >= 0 ? Pa_GetDeviceInfo(rq.input_device) : nullptr;
         const PaDeviceInfo* dout = rq.output_device >= 0 ? Pa_GetDeviceInfo(rq.output_device) : nullptr;
-        if (rq.input_device >= 0 && !din) throw Error("input device " + std::to_string(rq.input_device) + ": no such device");
-        if (rq.output_device >= 0 && !dout) throw Error("output device " + std::to_string(rq.output_device) + ": no such device");
+        if (rq.input_device >= 0 && !din)
+            throw Error("input device " + std::to_string(rq.input_device) + ": no such device");
+        if (rq.output_device >= 0 && !dout)
+            throw Error("output device " + std::to_string(rq.output_device) + ": no such device");
         if (!din && !dout) throw Error("audio stream: neither an input nor an output was asked for");
         const std::string name = din ? std::string("'") + din->name + "'" : std::string("'") + dout->name + "'";
         auto fill = [](PaStreamParameters& p, int device, int want, int max, double latency_s) {
@@ -254,8 +267,10 @@ public:
         PaStreamParameters* pout = dout ? &out : nullptr;
         // Negotiate the rate.
         std::vector<double> rates;
-        if (rq.sample_rate_hz > 0) rates.push_back(rq.sample_rate_hz);
-        else rates = {48000.0, 44100.0, (din ? din : dout)->defaultSampleRate};
+        if (rq.sample_rate_hz > 0)
+            rates.push_back(rq.sample_rate_hz);
+        else
+            rates = {48000.0, 44100.0, (din ? din : dout)->defaultSampleRate};
         double rate = 0.0;
         for (double r : rates)
             if (Pa_IsFormatSupported(pin, pout, r) == paFormatIsSupported) {
@@ -265,12 +280,12 @@ public:
         if (rate == 0.0) {
             const double def = (din ? din : dout)->defaultSampleRate;
             if (rq.sample_rate_hz > 0)
-                throw Error("device " + name + " refuses " + pitch::format_trimmed(rq.sample_rate_hz, 1) + " Hz (its default is " +
-                            pitch::format_trimmed(def, 1) + " Hz)");
+                throw Error("device " + name + " refuses " + pitch::format_trimmed(rq.sample_rate_hz, 1) +
+                            " Hz (its default is " + pitch::format_trimmed(def, 1) + " Hz)");
             throw Error("device " + name + " accepts none of 48000, 44100 or " + pitch::format_trimmed(def, 1) + " Hz");
         }
-        PaError e = Pa_OpenStream(&s->stream_, pin, pout, rate, static_cast<unsigned long>(rq.block_len_frames), paNoFlag,
-                                  &PaStreamImpl::callback, s.get());
+        PaError e = Pa_OpenStream(&s->stream_, pin, pout, rate, static_cast<unsigned long>(rq.block_len_frames),
+                                  paNoFlag, &PaStreamImpl::callback, s.get());
         if (e != paNoError) {
             s->stream_ = nullptr;
             throw Error("device " + name + " could not be opened: " + pa_text(e));

@@ -21,25 +21,25 @@
 namespace beatless::audio {
 
 struct DeviceInfo {
-    int index = -1;                // as `beatless devices` lists it
+    int index = -1;  // as `beatless devices` lists it
     std::string name;
-    std::string host_api;          // "ALSA", "JACK Audio Connection Kit", ...
+    std::string host_api;  // "ALSA", "JACK Audio Connection Kit", ...
     int max_input_channels = 0;
     int max_output_channels = 0;
     double default_rate_hz = 0.0;
-    bool default_input = false;    // the host's default input device
+    bool default_input = false;  // the host's default input device
     bool default_output = false;
-    bool server = false;           // served by a sound server (pulse protocol): its defaults come first
-    std::string description;       // the server's longer label ("" when the host has none)
+    bool server = false;      // served by a sound server (pulse protocol): its defaults come first
+    std::string description;  // the server's longer label ("" when the host has none)
 };
 
 struct StreamRequest {
-    int input_device = -1;             // index, -1 = no input
-    int output_device = -1;            // index, -1 = no output (the same index = one duplex stream)
-    int input_channels = 1;            // channel 0 is analyzed
-    int output_channels = 2;           // the drone goes to every channel
-    double sample_rate_hz = 0.0;       // 0 = negotiate (48 000, 44 100, the device default)
-    std::size_t block_len_frames = 256;// frames per callback asked for
+    int input_device = -1;               // index, -1 = no input
+    int output_device = -1;              // index, -1 = no output (the same index = one duplex stream)
+    int input_channels = 1;              // channel 0 is analyzed
+    int output_channels = 2;             // the drone goes to every channel
+    double sample_rate_hz = 0.0;         // 0 = negotiate (48 000, 44 100, the device default)
+    std::size_t block_len_frames = 256;  // frames per callback asked for
 };
 
 struct StreamInfo {
@@ -64,9 +64,9 @@ public:
 
 class Stream {
 public:
-    virtual ~Stream() = default;             // stops and closes
+    virtual ~Stream() = default;  // stops and closes
     virtual const StreamInfo& info() const = 0;
-    virtual bool alive() const = 0;          // false once the host has stopped it (device gone)
+    virtual bool alive() const = 0;  // false once the host has stopped it (device gone)
 };
 
 class AudioSystem {

@@ -9,9 +9,9 @@
 namespace beatless::audio {
 
 namespace {
-constexpr int kRootPartials = 64;      // room for a 32-partial timbre with the octave folded in
-constexpr double kAddedToneGain = 0.7; // fifth and octave sit 3 dB under the root
-constexpr double kReferenceDb = -3.0;  // reference voice against the drone level
+constexpr int kRootPartials = 64;       // room for a 32-partial timbre with the octave folded in
+constexpr double kAddedToneGain = 0.7;  // fifth and octave sit 3 dB under the root
+constexpr double kReferenceDb = -3.0;   // reference voice against the drone level
 }  // namespace
 
 double drone_gain(double level_dbfs) noexcept { return std::pow(10.0, level_dbfs / 20.0) * std::sqrt(2.0); }
@@ -23,7 +23,8 @@ void check_drone_settings(const DroneSettings& s) {
         throw Error("drone level " + pitch::format_trimmed(s.level_dbfs, 1) + " dBFS: out of range (-80 to -6 dBFS)");
 }
 
-std::size_t drone_partials(const DroneSettings& s, double fs, double max_freq_hz, std::span<DronePartial> out) noexcept {
+std::size_t drone_partials(const DroneSettings& s, double fs, double max_freq_hz,
+                           std::span<DronePartial> out) noexcept {
     double a[kMaxTimbrePartials] = {};
     const int na = static_cast<int>(timbre_partials_into(s.timbre, a));
     const double limit = std::min(max_freq_hz, 0.45 * fs);
@@ -63,8 +64,8 @@ Drone::Drone(double sample_rate_hz)
     amps_.assign(kRootPartials, 0.0);
     const auto look = static_cast<std::size_t>(std::max(8L, std::lround(0.0015 * sample_rate_hz)));
     delay_.assign(look, 0.0f);
-    attack_coef_ = 1.0 - std::exp(-4.0 / static_cast<double>(look));   // ~98% within the look-ahead
-    release_coef_ = 1.0 - std::exp(-1.0 / (0.2 * sample_rate_hz));     // 200 ms release
+    attack_coef_ = 1.0 - std::exp(-4.0 / static_cast<double>(look));  // ~98% within the look-ahead
+    release_coef_ = 1.0 - std::exp(-1.0 / (0.2 * sample_rate_hz));    // 200 ms release
     ceiling_ = static_cast<float>(std::pow(10.0, kDroneCeilingDbfs / 20.0));
     reference_.set_partials(timbre_partials(Timbre::soft), true);
 }
@@ -80,7 +81,8 @@ void Drone::apply(const DroneSettings& s, bool first) noexcept {
     const int na = static_cast<int>(timbre_partials_into(s.timbre, a));
     for (int k = 0; k < na; ++k) amps_[static_cast<std::size_t>(k)] += a[k];
     if (s.octave)
-        for (int k = 0; k < na && 2 * k + 1 < kRootPartials; ++k) amps_[static_cast<std::size_t>(2 * k + 1)] += kAddedToneGain * a[k];
+        for (int k = 0; k < na && 2 * k + 1 < kRootPartials; ++k)
+            amps_[static_cast<std::size_t>(2 * k + 1)] += kAddedToneGain * a[k];
 
     root_.set_f0(root, silent);
     root_.set_partials(amps_, silent);
@@ -96,7 +98,8 @@ void Drone::apply(const DroneSettings& s, bool first) noexcept {
     if (s.reference_hz > 0.0 && (first || s.reference_count != applied_.reference_count)) {
         const bool ref_silent = reference_.level() == 0.0 && !reference_.ramping();
         reference_.set_f0(std::clamp(s.reference_hz, 20.0, 0.4 * rate_hz_), ref_silent);
-        reference_.set_level(drone_gain(std::clamp(s.level_dbfs + kReferenceDb, kDroneMinLevelDbfs, kDroneMaxLevelDbfs)));
+        reference_.set_level(
+            drone_gain(std::clamp(s.level_dbfs + kReferenceDb, kDroneMinLevelDbfs, kDroneMaxLevelDbfs)));
         reference_left_ = static_cast<std::int64_t>(std::max(0.1, s.reference_s) * rate_hz_);
     } else if (reference_left_ > 0 && s.reference_hz > 0.0 && s.reference_hz != applied_.reference_hz) {
         reference_.set_f0(std::clamp(s.reference_hz, 20.0, 0.4 * rate_hz_));

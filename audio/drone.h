@@ -15,21 +15,21 @@
 
 namespace beatless::audio {
 
-constexpr double kDroneCeilingDbfs = -6.0;     // limiter ceiling, peak dBFS (fixed)
-constexpr double kDroneStartLevelDbfs = -30.0; // level a drone starts at, RMS dBFS
+constexpr double kDroneCeilingDbfs = -6.0;      // limiter ceiling, peak dBFS (fixed)
+constexpr double kDroneStartLevelDbfs = -30.0;  // level a drone starts at, RMS dBFS
 constexpr double kDroneMinLevelDbfs = -80.0;
 constexpr double kDroneMaxLevelDbfs = -6.0;
 
 struct DroneSettings {
-    bool on = false;                        // sounding (start/stop ramp over 50 ms)
-    double root_hz = 110.0;                 // fundamental of the root (20 Hz .. 2 kHz)
-    bool fifth = false;                     // add 3/2 above the root
-    bool octave = false;                    // add 2/1 above the root
+    bool on = false;         // sounding (start/stop ramp over 50 ms)
+    double root_hz = 110.0;  // fundamental of the root (20 Hz .. 2 kHz)
+    bool fifth = false;      // add 3/2 above the root
+    bool octave = false;     // add 2/1 above the root
     Timbre timbre = Timbre::round;
     double level_dbfs = kDroneStartLevelDbfs;  // RMS of the root tone, -80 .. -6 dBFS
-    double reference_hz = 0.0;              // reference voice pitch (0 = none)
-    double reference_s = 1.5;               // how long it sounds when triggered
-    std::uint32_t reference_count = 0;      // bump to trigger the reference voice once more
+    double reference_hz = 0.0;                 // reference voice pitch (0 = none)
+    double reference_s = 1.5;                  // how long it sounds when triggered
+    std::uint32_t reference_count = 0;         // bump to trigger the reference voice once more
 };
 
 // One partial of what the drone plays: frequency and linear peak amplitude
@@ -81,10 +81,10 @@ private:
     std::vector<double> amps_;         // scratch: root partials (+ octave)
     std::int64_t reference_left_ = 0;  // samples until the reference voice fades out
     // Limiter state.
-    std::vector<float> delay_;         // look-ahead line
+    std::vector<float> delay_;  // look-ahead line
     std::size_t delay_pos_ = 0;
-    float peak_ = 0.0f;               // held peak of the look-ahead line
-    std::size_t peak_age_ = 0;         // samples since it entered
+    float peak_ = 0.0f;         // held peak of the look-ahead line
+    std::size_t peak_age_ = 0;  // samples since it entered
     double lim_gain_ = 1.0;
     double attack_coef_ = 0.0, release_coef_ = 0.0;
     float ceiling_ = 0.5f;

@@ -20,13 +20,16 @@ using F4 = float __attribute__((vector_size(16)));
 
 DroneCanceller::DroneCanceller(const CancellerConfig& config) : cfg_(config) {
     const double fs = cfg_.sample_rate_hz;
-    if (!(fs >= 8000.0 && fs <= 192000.0)) throw Error("drone removal: sample rate " + std::to_string(fs) + " Hz is out of range");
+    if (!(fs >= 8000.0 && fs <= 192000.0))
+        throw Error("drone removal: sample rate " + std::to_string(fs) + " Hz is out of range");
     if (cfg_.max_partials < 1 || cfg_.max_partials > 512) throw Error("drone removal: max_partials must be 1 to 512");
-    if (!(cfg_.bandwidth_hz > 0.0 && cfg_.quiet_bandwidth_hz >= cfg_.bandwidth_hz && cfg_.acquire_bandwidth_hz >= cfg_.bandwidth_hz &&
-          cfg_.acquire_bandwidth_hz <= 100.0 && cfg_.quiet_bandwidth_hz <= 100.0))
+    if (!(cfg_.bandwidth_hz > 0.0 && cfg_.quiet_bandwidth_hz >= cfg_.bandwidth_hz &&
+          cfg_.acquire_bandwidth_hz >= cfg_.bandwidth_hz && cfg_.acquire_bandwidth_hz <= 100.0 &&
+          cfg_.quiet_bandwidth_hz <= 100.0))
         throw Error("drone removal: bandwidths must satisfy 0 < bandwidth <= quiet and acquire bandwidths <= 100 Hz");
     if (!(cfg_.history_s >= 0.0 && cfg_.history_s <= 2.0)) throw Error("drone removal: history_s must be 0 to 2 s");
-    if (cfg_.block_len_samples < 1 || cfg_.block_len_samples > 4096) throw Error("drone removal: block length must be 1 to 4096");
+    if (cfg_.block_len_samples < 1 || cfg_.block_len_samples > 4096)
+        throw Error("drone removal: block length must be 1 to 4096");
     const std::size_t n = cfg_.max_partials;
     const std::size_t padded = (n + 3) / 4 * 4;
     freq_.assign(n, 0.0);
@@ -126,8 +129,8 @@ void DroneCanceller::set_voice(bool sounding, std::size_t onset_age_samples) noe
         return;
     }
     // Roll back to the weights from before the onset (or the oldest kept).
-    const std::size_t back = std::min(hist_count_ > 0 ? hist_count_ - 1 : 0,
-                                      onset_age_samples / cfg_.block_len_samples + 1);
+    const std::size_t back =
+        std::min(hist_count_ > 0 ? hist_count_ - 1 : 0, onset_age_samples / cfg_.block_len_samples + 1);
     if (hist_count_ > 0) {
         const std::size_t slot = (hist_head_ + hist_slots_ - back) % hist_slots_;
         const double* h = hist_.data() + slot * cfg_.max_partials * 2;
@@ -182,7 +185,8 @@ void DroneCanceller::process(std::span<const float> in, std::span<float> out) no
         }
         if (count_ == 0 || lv <= kSilent) {
             if (out.data() != in.data()) std::copy_n(in.data() + i, m, out.data() + i);
-            for (std::size_t k = 0; k < count_; ++k) phase_[k] = std::fmod(phase_[k] + kTwoPi * freq_[k] * m / cfg_.sample_rate_hz, kTwoPi);
+            for (std::size_t k = 0; k < count_; ++k)
+                phase_[k] = std::fmod(phase_[k] + kTwoPi * freq_[k] * m / cfg_.sample_rate_hz, kTwoPi);
         } else {
             run_block(in.data() + i, out.data() + i, m, lv);
         }

@@ -27,8 +27,8 @@ struct CancellerConfig {
     std::size_t block_len_samples = 64;   // phasors are recomputed exactly every block (default 64)
     double history_s = 0.15;              // weights kept for rolling back to before a voice onset (default 0.15 s)
     double min_quiet_s = 0.1;             // a silence shorter than this is a gap between notes (default 0.1 s)
-    double residue_db = 24.0;             // a pitch this far under the drone, on its partials, is residue (default 24 dB)
-    double residue_cents = 15.0;          // ... within this of a drone partial (default 15 cents)
+    double residue_db = 24.0;     // a pitch this far under the drone, on its partials, is residue (default 24 dB)
+    double residue_cents = 15.0;  // ... within this of a drone partial (default 15 cents)
 };
 
 class DroneCanceller {
@@ -61,7 +61,7 @@ public:
     // silent moment (what the previous note left in them is dropped).
     void new_note() noexcept;
 
-    void reset() noexcept;                            // forget the room response
+    void reset() noexcept;  // forget the room response
     std::size_t partial_count() const noexcept { return count_; }
     bool acquiring() const noexcept { return acquire_left_ > 0 && active(); }  // still learning the room
     // True when a tracked pitch is most likely what is left of the drone:
@@ -79,8 +79,8 @@ private:
     void run_block(const float* in, float* out, std::size_t n, double scale_level) noexcept;
 
     CancellerConfig cfg_;
-    std::size_t count_ = 0;       // partials in use
-    std::size_t groups_ = 0;      // count_ rounded up to groups of four
+    std::size_t count_ = 0;                             // partials in use
+    std::size_t groups_ = 0;                            // count_ rounded up to groups of four
     std::vector<double> freq_, amp_, phase_, wr_, wi_;  // per partial: Hz, relative amplitude, phase, W
     std::vector<float> zr_, zi_, cr_, ci_, vr_, vi_;    // per partial, padded to groups of four
     double level_ = 0.0, level_target_ = 0.0, level_step_ = 0.0;
@@ -89,9 +89,9 @@ private:
     std::size_t acquire_left_ = 0;  // samples of acquire notch left
     bool sounding_ = false;
     std::uint64_t processed_ = 0, quiet_since_ = 0;  // input samples
-    bool quiet_valid_ = false;                      // quiet_w* hold learned weights
-    std::vector<double> quiet_wr_, quiet_wi_;   // weights at the last silent moment
-    std::vector<double> hist_;                  // ring of past weights: [slot][partial][re, im]
+    bool quiet_valid_ = false;                       // quiet_w* hold learned weights
+    std::vector<double> quiet_wr_, quiet_wi_;        // weights at the last silent moment
+    std::vector<double> hist_;                       // ring of past weights: [slot][partial][re, im]
     std::size_t hist_slots_ = 0, hist_head_ = 0, hist_count_ = 0;
     void save_history() noexcept;
 };

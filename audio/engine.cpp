@@ -21,9 +21,9 @@
 namespace beatless::audio {
 
 namespace {
-constexpr std::size_t kChunk = 1024;          // analysis reads at most this much per channel per step
-constexpr std::size_t kScratch = 4096;        // callback scratch per channel (longer calls are chunked)
-constexpr std::size_t kHistoryLen = 1024;     // ~5 s of readings at a 5 ms hop
+constexpr std::size_t kChunk = 1024;               // analysis reads at most this much per channel per step
+constexpr std::size_t kScratch = 4096;             // callback scratch per channel (longer calls are chunked)
+constexpr std::size_t kHistoryLen = 1024;          // ~5 s of readings at a 5 ms hop
 constexpr std::size_t kPerformerStreamLen = 8192;  // one performer's readings waiting for take_readings() (~40 s)
 constexpr std::size_t kEnsembleStreamLen = 2048;   // a group's (~10 s; each reading is larger)
 constexpr std::size_t kMaxDronePartials = 256;
@@ -31,7 +31,8 @@ using Clock = std::chrono::steady_clock;
 using pitch::kMaxPlayers;
 
 std::string player_text(const pitch::Player& p, std::size_t i) {
-    return "channel " + std::to_string(p.channel + 1) + " (" + (p.name.empty() ? "player " + std::to_string(i + 1) : p.name) + ")";
+    return "channel " + std::to_string(p.channel + 1) + " (" +
+           (p.name.empty() ? "player " + std::to_string(i + 1) : p.name) + ")";
 }
 }  // namespace
 
@@ -42,20 +43,20 @@ std::string player_text(const pitch::Player& p, std::size_t i) {
 struct Engine::Impl {
     InputKind input = InputKind::none;
     double rate = 0.0;
-    std::size_t players = 0;                     // channels analysed (1 for one performer)
-    std::array<int, kMaxPlayers> channel_of{};   // input channel of each, fixed from start()
-    int in_channels = 1;                         // what the input delivers
+    std::size_t players = 0;                    // channels analysed (1 for one performer)
+    std::array<int, kMaxPlayers> channel_of{};  // input channel of each, fixed from start()
+    int in_channels = 1;                        // what the input delivers
 
     // Devices, streams, callback counters, the drone's output, threads.
     LiveIo io;
     bool output_lost = false;
-    Clock::time_point last_try{};                // the last attempt to reopen a lost device
+    Clock::time_point last_try{};  // the last attempt to reopen a lost device
 
     // Sources other than a device.
     std::unique_ptr<DemoPerformer> demo;
     std::unique_ptr<DemoEnsemble> demo_group;
-    std::unique_ptr<Drone> room_drone;                     // what the demo microphones hear of the drone
-    std::vector<std::unique_ptr<SimulatedRoom>> rooms;     // one per analysed channel
+    std::unique_ptr<Drone> room_drone;                  // what the demo microphones hear of the drone
+    std::vector<std::unique_ptr<SimulatedRoom>> rooms;  // one per analysed channel
     std::unique_ptr<SoundReader> file;
     std::string file_path;
     bool input_has_drone = false;
@@ -70,7 +71,7 @@ struct Engine::Impl {
     DronePartial partials[kMaxDronePartials];
     std::atomic<double> root_hz{110.0};
     double applied_root = 0.0;
-    double span_s = 0.05;                        // the trackers' span
+    double span_s = 0.05;  // the trackers' span
     bool removal_active = false;
     bool started = false;
     // Set when start() has built everything the callbacks touch: a stream
@@ -116,7 +117,8 @@ struct Engine::Impl {
 // [SECTION] Setup
 // ---------------------------------------------------------------------------
 
-Engine::Engine(const EngineConfig& config, AudioSystem* system) : cfg_(config), system_(system), impl_(std::make_unique<Impl>()) {
+Engine::Engine(const EngineConfig& config, AudioSystem* system)
+    : cfg_(config), system_(system), impl_(std::make_unique<Impl>()) {
     impl_->told.fill(pitch::PlayerState::resting);
     impl_->told_copy.fill(-1);
 }
@@ -140,7 +142,8 @@ int Engine::channels_needed() const {
 
 void Engine::set_readings(const pitch::ReadingConfig& config, pitch::TargetSet targets) {
     Impl& m = *impl_;
-    if (m.started && mode_ != EngineMode::performer) throw Error("engine: analysing a group; stop it before following one performer");
+    if (m.started && mode_ != EngineMode::performer)
+        throw Error("engine: analysing a group; stop it before following one performer");
     auto maker = std::make_unique<pitch::ReadingMaker>(config, std::move(targets));
     mode_ = EngineMode::performer;
     m.root_hz.store(config.root_hz);
@@ -159,7 +162,8 @@ void Engine::set_ensemble(EnsembleSetup setup) {
     pitch::check_players(setup.chord, setup.players, 64);
     if (m.started) {
         bool same = mode_ == EngineMode::ensemble && setup.players.size() == setup_.players.size();
-        for (std::size_t i = 0; same && i < setup.players.size(); ++i) same = setup.players[i].channel == setup_.players[i].channel;
+        for (std::size_t i = 0; same && i < setup.players.size(); ++i)
+            same = setup.players[i].channel == setup_.players[i].channel;
         if (!same) throw Error("ensemble: the players or their channels changed; stop and start the ensemble again");
     }
     auto a = std::make_unique<pitch::EnsembleAnalyzer>(setup.chord, setup.players, setup.analysis);
@@ -177,7 +181,8 @@ void Engine::set_ensemble(EnsembleSetup setup) {
 
 void Engine::set_two_voices(const pitch::TwoVoiceConfig& config, pitch::TargetSet targets) {
     Impl& m = *impl_;
-    if (m.started && mode_ != EngineMode::two_voices) throw Error("engine: analysing another shape; stop it before following two voices");
+    if (m.started && mode_ != EngineMode::two_voices)
+        throw Error("engine: analysing another shape; stop it before following two voices");
     two_config_ = config;
     two_targets_ = std::move(targets);
     mode_ = EngineMode::two_voices;
@@ -202,10 +207,11 @@ void Engine::open_input_device(std::string_view spec) {
         if (d.max_input_channels < need) {
             const std::size_t n = setup_.players.size();
             std::string chans;
-            for (const auto& p : setup_.players) chans.append(chans.empty() ? "" : ",").append(std::to_string(p.channel + 1));
+            for (const auto& p : setup_.players)
+                chans.append(chans.empty() ? "" : ",").append(std::to_string(p.channel + 1));
             throw Error("input device '" + d.name + "' has " + std::to_string(d.max_input_channels) + " input channel" +
-                        (d.max_input_channels == 1 ? "" : "s") + "; " + std::to_string(n) + " player" + (n == 1 ? "" : "s") +
-                        " on channels " + chans + " need " + std::to_string(need));
+                        (d.max_input_channels == 1 ? "" : "s") + "; " + std::to_string(n) + " player" +
+                        (n == 1 ? "" : "s") + " on channels " + chans + " need " + std::to_string(need));
         }
     }
     m.io.request.input_device = in;
@@ -215,7 +221,9 @@ void Engine::open_input_device(std::string_view spec) {
     m.input = InputKind::device;
 }
 
-void Engine::open_output_device(std::string_view spec) { impl_->io.choose_output(system_, spec, cfg_.block_len_frames); }
+void Engine::open_output_device(std::string_view spec) {
+    impl_->io.choose_output(system_, spec, cfg_.block_len_frames);
+}
 
 void Engine::use_demo(DemoConfig demo) {
     Impl& m = *impl_;
@@ -227,7 +235,8 @@ void Engine::use_demo(DemoConfig demo) {
 }
 
 void Engine::use_demo(DemoEnsembleConfig demo) {
-    if (mode_ != EngineMode::ensemble || !have_setup_) throw Error("ensemble: set the players before choosing the demo");
+    if (mode_ != EngineMode::ensemble || !have_setup_)
+        throw Error("ensemble: set the players before choosing the demo");
     Impl& m = *impl_;
     if (demo.sample_rate_hz <= 0.0) demo.sample_rate_hz = cfg_.sample_rate_hz > 0.0 ? cfg_.sample_rate_hz : 48000.0;
     demo.root_hz = setup_.analysis.root_hz;
@@ -242,9 +251,11 @@ void Engine::use_demo(DemoEnsembleConfig demo) {
         for (std::size_t j = 0; j < n; ++j) {
             std::size_t k = 0;  // the rank of player j's voice (ties by listing order)
             for (std::size_t q = 0; q < n; ++q)
-                k += setup_.players[q].voice < setup_.players[j].voice || (setup_.players[q].voice == setup_.players[j].voice && q < j);
+                k += setup_.players[q].voice < setup_.players[j].voice ||
+                     (setup_.players[q].voice == setup_.players[j].voice && q < j);
             const double c = setup_.chord.voice_cents(setup_.players[j].voice);
-            const double centre_hz = 110.0 * std::exp2(n > 1 ? 2.2 * static_cast<double>(k) / static_cast<double>(n - 1) : 0.0);
+            const double centre_hz =
+                110.0 * std::exp2(n > 1 ? 2.2 * static_cast<double>(k) / static_cast<double>(n - 1) : 0.0);
             const double base_hz = setup_.analysis.root_hz * std::exp2(c / 1200.0);
             const double octaves = std::round(std::log2(centre_hz / base_hz));
             demo.voice_cents.push_back(c + 1200.0 * octaves);
@@ -283,7 +294,9 @@ void Engine::set_input_has_drone(bool on) { impl_->input_has_drone = on; }
 std::string Engine::input_name() const {
     const Impl& m = *impl_;
     switch (m.input) {
-        case InputKind::device: return "'" + m.io.input_spec + "'" + (m.io.in_info.host_api.empty() ? "" : " (" + m.io.in_info.host_api + ")");
+        case InputKind::device:
+            return "'" + m.io.input_spec + "'" +
+                   (m.io.in_info.host_api.empty() ? "" : " (" + m.io.in_info.host_api + ")");
         case InputKind::demo: return m.demo_group ? "the demo ensemble" : "the demo performer";
         case InputKind::file: return "'" + m.file_path + "'";
         case InputKind::none: break;
@@ -297,23 +310,26 @@ void Engine::start(bool analysis_thread) {
     const bool group = mode_ == EngineMode::ensemble;
     const bool duo = mode_ == EngineMode::two_voices;
     if (group ? !m.analyzer : !duo && !m.maker)
-        throw Error(group ? "ensemble: no chord and players set" : "engine: readings are not set up (no root or targets)");
+        throw Error(group ? "ensemble: no chord and players set"
+                          : "engine: readings are not set up (no root or targets)");
     if (m.input == InputKind::device) {
         const StreamInfo& info = m.io.open_input(*system_, *this);
         m.rate = info.sample_rate_hz;
         m.in_channels = std::max(1, info.input_channels);
         if (m.in_channels < channels_needed()) {
             m.io.in_stream.reset();
-            throw Error("input device '" + m.io.input_spec + "' opened with " + std::to_string(m.in_channels) + " channels; the players need " +
-                        std::to_string(channels_needed()));
+            throw Error("input device '" + m.io.input_spec + "' opened with " + std::to_string(m.in_channels) +
+                        " channels; the players need " + std::to_string(channels_needed()));
         }
     } else if (m.input == InputKind::demo) {
         m.rate = m.demo_group ? m.demo_group->config().sample_rate_hz : m.demo->config().sample_rate_hz;
-        if (group != (m.demo_group != nullptr)) throw Error("engine: the demo does not match what is analysed (one performer or a group)");
+        if (group != (m.demo_group != nullptr))
+            throw Error("engine: the demo does not match what is analysed (one performer or a group)");
     } else if (m.input == InputKind::file) {
         m.rate = m.file->info().sample_rate_hz;
     } else {
-        throw Error(std::string(group ? "ensemble" : "engine") + ": no input chosen (a device, --demo or --input-file)");
+        throw Error(std::string(group ? "ensemble" : "engine") +
+                    ": no input chosen (a device, --demo or --input-file)");
     }
     rate_hz_ = m.rate;
     m.players = group ? setup_.players.size() : 1;
@@ -334,7 +350,8 @@ void Engine::start(bool analysis_thread) {
     yc.max_block_len_samples = kChunk * 4;
     // 30 ms or 50 ms, or the shortest span that holds two periods of a lower
     // f_min (a cello's C string, a double bass: those readings settle later).
-    yc.span_s = cfg_.span_s > 0.0 ? cfg_.span_s : std::max(short_span ? 0.030 : 0.050, pitch::YinTracker::min_span_s(yc));
+    yc.span_s =
+        cfg_.span_s > 0.0 ? cfg_.span_s : std::max(short_span ? 0.030 : 0.050, pitch::YinTracker::min_span_s(yc));
     m.span_s = yc.span_s;
     // The vibrato correction waits three hops for a frame's right neighbours:
     // not worth it for one performer's live settling bar.
@@ -354,9 +371,12 @@ void Engine::start(bool analysis_thread) {
     m.io.play_scratch.assign(kScratch, 0.0f);
     m.prod_scratch.assign(kScratch * static_cast<std::size_t>(m.in_channels), 0.0f);
     m.work.assign(kChunk * m.players, 0.0f);
-    if (group) m.group_out = std::make_unique<ReadingOutlet<pitch::EnsembleReading, kHistoryLen>>(kEnsembleStreamLen);
-    else if (duo) m.duo_out = std::make_unique<ReadingOutlet<pitch::TwoVoiceFrame, kHistoryLen>>(kPerformerStreamLen);
-    else m.out = std::make_unique<ReadingOutlet<pitch::Reading, kHistoryLen>>(kPerformerStreamLen);
+    if (group)
+        m.group_out = std::make_unique<ReadingOutlet<pitch::EnsembleReading, kHistoryLen>>(kEnsembleStreamLen);
+    else if (duo)
+        m.duo_out = std::make_unique<ReadingOutlet<pitch::TwoVoiceFrame, kHistoryLen>>(kPerformerStreamLen);
+    else
+        m.out = std::make_unique<ReadingOutlet<pitch::Reading, kHistoryLen>>(kPerformerStreamLen);
     if (duo) {
         pitch::TwoVoiceConfig tc = two_config_;
         tc.sample_rate_hz = m.rate;
@@ -394,9 +414,12 @@ void Engine::start(bool analysis_thread) {
                 Impl& s = *impl_;
                 std::span<float> buf(s.prod_scratch.data(), block * static_cast<std::size_t>(s.in_channels));
                 std::size_t n = block;
-                if (s.demo) s.demo->render(buf);
-                else if (s.demo_group) s.demo_group->render(buf);
-                else n = s.read_file_block(buf);
+                if (s.demo)
+                    s.demo->render(buf);
+                else if (s.demo_group)
+                    s.demo_group->render(buf);
+                else
+                    n = s.read_file_block(buf);
                 if (n > 0) capture(buf.data(), n, s.in_channels);
                 return n;
             });
@@ -444,7 +467,8 @@ void Engine::capture(const float* in, std::size_t frames, int channels) noexcept
                 std::fill_n(s, n, 0.0f);  // not delivered: silence (reported by the silent-channel check)
             }
             // The demo's microphones also hear the drone through their room.
-            if (m.room_drone) m.rooms[p]->process_add(std::span<const float>(m.room_scratch.data(), n), std::span<float>(s, n));
+            if (m.room_drone)
+                m.rooms[p]->process_add(std::span<const float>(m.room_scratch.data(), n), std::span<float>(s, n));
             m.rings[p]->write(std::span<const float>(s, n));
         }
         done += n;
@@ -459,7 +483,9 @@ void Engine::playback(float* out, std::size_t frames, int channels) noexcept {
     impl_->io.play(out, frames, channels);
 }
 
-void Engine::xrun(bool input_overflow, bool output_underflow) noexcept { impl_->io.count_xrun(input_overflow, output_underflow); }
+void Engine::xrun(bool input_overflow, bool output_underflow) noexcept {
+    impl_->io.count_xrun(input_overflow, output_underflow);
+}
 
 // ---------------------------------------------------------------------------
 // [SECTION] Analysis
@@ -514,14 +540,17 @@ std::size_t Engine::analyze_available() noexcept {
             std::span<float> w(&m.work[p * kChunk], n);
             m.rings[p]->read(w);
             if (m.removal_active) m.cancellers[p]->process(w, w);
-            if (m.duo) m.duo->push(w);
-            else m.trackers[p]->push(w);
+            if (m.duo)
+                m.duo->push(w);
+            else
+                m.trackers[p]->push(w);
         }
         m.analyzed.fetch_add(n, std::memory_order_relaxed);
         total += n;
         analyze_frames();
     }
-    if (total == 0 && m.io.producer_done.load(std::memory_order_acquire) && m.rings[0]->available() == 0) m.finished.store(true);
+    if (total == 0 && m.io.producer_done.load(std::memory_order_acquire) && m.rings[0]->available() == 0)
+        m.finished.store(true);
     return total;
 }
 
@@ -568,7 +597,8 @@ void Engine::analyze_frames() noexcept {
                 m.current_target_hz.store(r.root_hz * std::exp2(r.target_cents / 1200.0), std::memory_order_relaxed);
             m.out->publish(r, lat_s);
         } else {
-            m.group_out->publish(m.analyzer->process(std::span<const pitch::PitchFrame>(m.frames.data(), m.players), idx), lat_s);
+            m.group_out->publish(
+                m.analyzer->process(std::span<const pitch::PitchFrame>(m.frames.data(), m.players), idx), lat_s);
         }
         if (m.removal_active && !m.input_has_drone) {
             // Tell drone removal whether the performer sounds, and since when.
@@ -590,17 +620,27 @@ StreamInfo Engine::output_info() const { return impl_->io.out_info; }
 bool Engine::latest(pitch::Reading& out) { return impl_->out && impl_->out->latest.read(out); }
 bool Engine::latest(pitch::EnsembleReading& out) { return impl_->group_out && impl_->group_out->latest.read(out); }
 bool Engine::latest(pitch::TwoVoiceFrame& out) { return impl_->duo_out && impl_->duo_out->latest.read(out); }
-std::size_t Engine::history(std::span<pitch::TwoVoiceFrame> out) const { return impl_->duo_out ? impl_->duo_out->history.read(out) : 0; }
-std::size_t Engine::take_readings(std::span<pitch::TwoVoiceFrame> out) { return impl_->duo_out ? impl_->duo_out->stream.read(out) : 0; }
-std::size_t Engine::history(std::span<pitch::Reading> out) const { return impl_->out ? impl_->out->history.read(out) : 0; }
+std::size_t Engine::history(std::span<pitch::TwoVoiceFrame> out) const {
+    return impl_->duo_out ? impl_->duo_out->history.read(out) : 0;
+}
+std::size_t Engine::take_readings(std::span<pitch::TwoVoiceFrame> out) {
+    return impl_->duo_out ? impl_->duo_out->stream.read(out) : 0;
+}
+std::size_t Engine::history(std::span<pitch::Reading> out) const {
+    return impl_->out ? impl_->out->history.read(out) : 0;
+}
 std::size_t Engine::history(std::span<pitch::EnsembleReading> out) const {
     return impl_->group_out ? impl_->group_out->history.read(out) : 0;
 }
-std::size_t Engine::take_readings(std::span<pitch::Reading> out) { return impl_->out ? impl_->out->stream.read(out) : 0; }
+std::size_t Engine::take_readings(std::span<pitch::Reading> out) {
+    return impl_->out ? impl_->out->stream.read(out) : 0;
+}
 std::size_t Engine::take_readings(std::span<pitch::EnsembleReading> out) {
     return impl_->group_out ? impl_->group_out->stream.read(out) : 0;
 }
-double Engine::stream_time_s() const { return impl_->rate > 0 ? static_cast<double>(impl_->analyzed.load()) / impl_->rate : 0.0; }
+double Engine::stream_time_s() const {
+    return impl_->rate > 0 ? static_cast<double>(impl_->analyzed.load()) / impl_->rate : 0.0;
+}
 
 EngineStatus Engine::status() const {
     const Impl& m = *impl_;
@@ -638,7 +678,8 @@ EngineStatus Engine::status() const {
 template <class R>
 void Engine::run_fast_impl(const std::function<void(const R&)>& on_reading, double max_s) {
     Impl& m = *impl_;
-    if (m.input != InputKind::file) throw Error(std::string(mode_ == EngineMode::ensemble ? "ensemble" : "engine") + ": --fast needs --input-file");
+    if (m.input != InputKind::file)
+        throw Error(std::string(mode_ == EngineMode::ensemble ? "ensemble" : "engine") + ": --fast needs --input-file");
     start(false);
     const std::size_t block = std::min(cfg_.block_len_frames, kScratch);
     const auto ch = static_cast<std::size_t>(m.in_channels);
@@ -661,7 +702,8 @@ void Engine::run_fast(const std::function<void(const pitch::Reading&)>& on_readi
 }
 
 void Engine::run_fast(const std::function<void(const pitch::EnsembleReading&)>& on_reading, double max_s) {
-    if (mode_ != EngineMode::ensemble) throw Error("engine: following one performer; its readings are not ensemble readings");
+    if (mode_ != EngineMode::ensemble)
+        throw Error("engine: following one performer; its readings are not ensemble readings");
     run_fast_impl<pitch::EnsembleReading>(on_reading, max_s);
 }
 
@@ -678,8 +720,10 @@ void Engine::run_demo_frames(std::size_t frames) noexcept {
     while (frames > 0) {
         const std::size_t n = std::min(frames, block);
         std::span<float> buf(m.prod_scratch.data(), n * ch);
-        if (m.demo) m.demo->render(buf);
-        else m.demo_group->render(buf);
+        if (m.demo)
+            m.demo->render(buf);
+        else
+            m.demo_group->render(buf);
         capture(buf.data(), n, m.in_channels);
         analyze_available();
         frames -= n;
@@ -722,7 +766,8 @@ void Engine::sound_reference() {
 void Engine::sound_tone(double freq_hz, double dur_s) {
     if (!(freq_hz >= 20.0 && freq_hz <= 5000.0))
         throw Error("tone " + pitch::format_trimmed(freq_hz, 2) + " Hz: out of range (20 Hz to 5 kHz)");
-    if (!(dur_s >= 0.1 && dur_s <= 30.0)) throw Error("tone length " + pitch::format_trimmed(dur_s, 3) + " s: out of range (0.1 to 30 s)");
+    if (!(dur_s >= 0.1 && dur_s <= 30.0))
+        throw Error("tone length " + pitch::format_trimmed(dur_s, 3) + " s: out of range (0.1 to 30 s)");
     DroneSettings s = drone_;
     s.reference_hz = freq_hz;
     s.reference_s = dur_s;
@@ -754,7 +799,8 @@ void Engine::supervise() {
         if (stalled || !m.io.in_stream || !m.io.in_stream->alive() || (m.io.out_stream && !m.io.out_stream->alive())) {
             m.io.input_lost = true;
             m.output_lost = m.io.want_output;
-            say("input device '" + m.io.input_spec + "' stopped delivering audio; " + (group ? "ensemble readings" : "readings") + " paused" +
+            say("input device '" + m.io.input_spec + "' stopped delivering audio; " +
+                (group ? "ensemble readings" : "readings") + " paused" +
                 std::string(m.io.want_output ? ", drone stopped" : "") + "; trying to reopen it every " +
                 pitch::format_trimmed(cfg_.reopen_every_s, 1) + " s");
             m.io.retire_streams(*system_);
@@ -764,7 +810,8 @@ void Engine::supervise() {
         m.last_try = now;
         if (m.io.try_reopen(*system_, *this, now)) {
             m.output_lost = false;
-            say("input device '" + m.io.input_spec + "' is back (" + pitch::format_trimmed(m.io.in_stream->info().sample_rate_hz, 0) + " Hz)");
+            say("input device '" + m.io.input_spec + "' is back (" +
+                pitch::format_trimmed(m.io.in_stream->info().sample_rate_hz, 0) + " Hz)");
         }
     }
     if (group) tell_channels();
@@ -785,11 +832,13 @@ void Engine::tell_channels() {
         const std::string who = player_text(setup_.players[i], i);
         if (p.state == pitch::PlayerState::silent && was != pitch::PlayerState::silent) {
             say(who + " is silent while the others sound: check its microphone and cable");
-        } else if (p.state == pitch::PlayerState::copy && (was != pitch::PlayerState::copy || m.told_copy[i] != p.copy_of)) {
+        } else if (p.state == pitch::PlayerState::copy &&
+                   (was != pitch::PlayerState::copy || m.told_copy[i] != p.copy_of)) {
             const std::size_t o = static_cast<std::size_t>(p.copy_of);
             const double d = r.p[o].level_dbfs - p.level_dbfs;
             std::string level = std::isfinite(d) && std::fabs(d) > 3.0
-                                    ? "; it is " + pitch::format_trimmed(std::round(std::fabs(d)), 0) + " dB " + (d > 0 ? "quieter" : "louder")
+                                    ? "; it is " + pitch::format_trimmed(std::round(std::fabs(d)), 0) + " dB " +
+                                          (d > 0 ? "quieter" : "louder")
                                     : "";
             say(who + " carries the same voice as " + player_text(setup_.players[o], o) + level +
                 ": its microphone hears the neighbour (crosstalk) or the two share one source");

@@ -40,26 +40,26 @@ namespace beatless::audio {
 inline constexpr double kLiveLowestHz = 70.0;
 
 struct EngineConfig {
-    double sample_rate_hz = 0.0;          // device rate to ask for (0 = negotiate; the demos use 48 000)
-    std::size_t block_len_frames = 256;   // frames per callback asked for (default 256)
-    double hop_s = 0.005;                 // tracker hop (default 5 ms)
-    double span_s = 0.0;                  // most audio one tracker frame depends on (0 = 30 ms for one performer live,
-                                          // 50 ms for a file or a group, or longer when f_min_hz needs it)
-    double f_min_hz = 0.0;                // lowest f0 tracked (0 = 70 Hz for one performer live, else 55 Hz)
-    double f_max_hz = 1600.0;             // highest f0 tracked (default 1600 Hz)
-    double ring_s = 2.0;                  // each channel's capture ring (default 2 s)
-    bool drone_removal = true;            // remove the drone's partials before tracking (default on)
-    CancellerConfig canceller;            // drone removal settings (rate filled in by the engine)
-    RoomConfig demo_room;                 // how the demo performer's microphone hears the drone
-    double stall_s = 1.0;                 // no callbacks for this long: the device is gone (default 1 s)
-    double reopen_every_s = 1.0;          // retry period while a device is gone (default 1 s)
+    double sample_rate_hz = 0.0;         // device rate to ask for (0 = negotiate; the demos use 48 000)
+    std::size_t block_len_frames = 256;  // frames per callback asked for (default 256)
+    double hop_s = 0.005;                // tracker hop (default 5 ms)
+    double span_s = 0.0;                 // most audio one tracker frame depends on (0 = 30 ms for one performer live,
+                                         // 50 ms for a file or a group, or longer when f_min_hz needs it)
+    double f_min_hz = 0.0;               // lowest f0 tracked (0 = 70 Hz for one performer live, else 55 Hz)
+    double f_max_hz = 1600.0;            // highest f0 tracked (default 1600 Hz)
+    double ring_s = 2.0;                 // each channel's capture ring (default 2 s)
+    bool drone_removal = true;           // remove the drone's partials before tracking (default on)
+    CancellerConfig canceller;           // drone removal settings (rate filled in by the engine)
+    RoomConfig demo_room;                // how the demo performer's microphone hears the drone
+    double stall_s = 1.0;                // no callbacks for this long: the device is gone (default 1 s)
+    double reopen_every_s = 1.0;         // retry period while a device is gone (default 1 s)
 };
 
 // What a group is tuning: the chord, the players on their channels, the analysis settings.
 struct EnsembleSetup {
-    pitch::Chord chord;                   // the chord being tuned
-    std::vector<pitch::Player> players;   // names, voices, channels (1 to 8)
-    pitch::EnsembleConfig analysis;       // root, A4, thresholds (hop_s is the engine's)
+    pitch::Chord chord;                  // the chord being tuned
+    std::vector<pitch::Player> players;  // names, voices, channels (1 to 8)
+    pitch::EnsembleConfig analysis;      // root, A4, thresholds (hop_s is the engine's)
 };
 
 // What the engine analyses: one performer (Reading), a group (EnsembleReading),
@@ -68,15 +68,15 @@ enum class EngineMode { performer, ensemble, two_voices };
 
 struct EngineStatus : LiveStatus {
     EngineMode mode = EngineMode::performer;
-    int channels = 0;                       // channels delivered by the input
-    int players = 0;                        // channels analysed (1 for one performer)
-    std::uint64_t captured_frames = 0;      // into the rings
-    std::uint64_t analyzed_frames = 0;      // out of the rings
-    std::uint64_t ring_overflow_frames = 0; // dropped because the rings were full
-    double tracker_delay_s = 0.0;           // part of the latency the tracker needs by design
-    double device_input_latency_s = 0.0;    // host-reported, not included in the latency
+    int channels = 0;                        // channels delivered by the input
+    int players = 0;                         // channels analysed (1 for one performer)
+    std::uint64_t captured_frames = 0;       // into the rings
+    std::uint64_t analyzed_frames = 0;       // out of the rings
+    std::uint64_t ring_overflow_frames = 0;  // dropped because the rings were full
+    double tracker_delay_s = 0.0;            // part of the latency the tracker needs by design
+    double device_input_latency_s = 0.0;     // host-reported, not included in the latency
     double device_output_latency_s = 0.0;
-    bool output_ok = false;                 // output stream running (or none asked for)
+    bool output_ok = false;  // output stream running (or none asked for)
 };
 
 class Engine final : private StreamCallbacks {
@@ -105,13 +105,13 @@ public:
     // start(); a group's channels must exist on it (one line naming the
     // device and the counts otherwise), so choose the group first.
     void open_input_device(std::string_view spec);
-    void open_output_device(std::string_view spec);          // the drone plays here
-    void use_demo(DemoConfig demo);                          // the demo performer is the microphone
-    void use_demo(DemoEnsembleConfig demo);                  // the demo ensemble (voices, channels from the setup when empty)
-    double use_file(const std::string& path);                // returns the file's rate; throws Error naming it
-    void set_input_has_drone(bool on);                       // file: the recording holds a drone at the root
-    void start(bool analysis_thread = true);                 // false: the caller runs analyze_available()
-    void stop();                                             // joins threads, closes streams
+    void open_output_device(std::string_view spec);  // the drone plays here
+    void use_demo(DemoConfig demo);                  // the demo performer is the microphone
+    void use_demo(DemoEnsembleConfig demo);          // the demo ensemble (voices, channels from the setup when empty)
+    double use_file(const std::string& path);        // returns the file's rate; throws Error naming it
+    void set_input_has_drone(bool on);               // file: the recording holds a drone at the root
+    void start(bool analysis_thread = true);         // false: the caller runs analyze_available()
+    void stop();                                     // joins threads, closes streams
     // File only: drives the whole file through the rings and analysis in the
     // calling thread as fast as possible; on_reading sees every reading.
     void run_fast(const std::function<void(const pitch::Reading&)>& on_reading, double max_s = 0.0);
@@ -122,16 +122,16 @@ public:
     void run_demo_frames(std::size_t frames) noexcept;
 
     // --- Control (control thread, any time) -------------------------------------
-    void set_drone(const DroneSettings& s);   // throws Error on out-of-range values
+    void set_drone(const DroneSettings& s);  // throws Error on out-of-range values
     const DroneSettings& drone() const { return drone_; }
-    void set_root_hz(double root_hz);          // drone and readings together
-    void sound_reference();                    // the reference voice sounds the current target once
+    void set_root_hz(double root_hz);  // drone and readings together
+    void sound_reference();            // the reference voice sounds the current target once
     // The reference voice sounds freq_hz for dur_s (drills: the announced
     // target, ear questions), 3 dB under the drone's level, with 50 ms fades;
     // a tone asked for while one sounds glides to the new pitch over 50 ms.
     // Throws Error on a frequency outside 20 Hz .. 5 kHz or a length outside 0.1 .. 30 s.
     void sound_tone(double freq_hz, double dur_s);
-    void supervise();                          // watchdog, reopening, a group's channel messages; every ~100 ms
+    void supervise();  // watchdog, reopening, a group's channel messages; every ~100 ms
     void on_message(std::function<void(const std::string&)> f) { message_ = std::move(f); }
 
     // --- Readings and status ------------------------------------------------------
@@ -150,10 +150,10 @@ public:
     std::size_t take_readings(std::span<pitch::TwoVoiceFrame> out);
     EngineStatus status() const;
     double sample_rate_hz() const { return rate_hz_; }
-    StreamInfo input_info() const;             // negotiated input stream (after start)
-    StreamInfo output_info() const;            // negotiated output stream (after start)
-    double stream_time_s() const;              // analysed input so far
-    std::string input_name() const;            // "'Quad mic box' (JACK)", "the demo ensemble", "'take.wav'"
+    StreamInfo input_info() const;   // negotiated input stream (after start)
+    StreamInfo output_info() const;  // negotiated output stream (after start)
+    double stream_time_s() const;    // analysed input so far
+    std::string input_name() const;  // "'Quad mic box' (JACK)", "the demo ensemble", "'take.wav'"
 
     // --- Test hooks -----------------------------------------------------------------
     // Drains the rings through the analysis. Thread: analysis (the engine's own

@@ -36,9 +36,11 @@ DeviceInfo fake_device(int index, std::string name, int inputs, int outputs, dou
 FakeAudioSystem::FakeAudioSystem(std::vector<DeviceInfo> devices, std::vector<double> rates_hz)
     : devices_(std::move(devices)), rates_hz_(std::move(rates_hz)) {
     for (DeviceInfo& d : devices_) {
-        if (d.max_input_channels > 0 && std::none_of(devices_.begin(), devices_.end(), [](const DeviceInfo& x) { return x.default_input; }))
+        if (d.max_input_channels > 0 &&
+            std::none_of(devices_.begin(), devices_.end(), [](const DeviceInfo& x) { return x.default_input; }))
             d.default_input = true;
-        if (d.max_output_channels > 0 && std::none_of(devices_.begin(), devices_.end(), [](const DeviceInfo& x) { return x.default_output; }))
+        if (d.max_output_channels > 0 &&
+            std::none_of(devices_.begin(), devices_.end(), [](const DeviceInfo& x) { return x.default_output; }))
             d.default_output = true;
     }
 }
@@ -47,13 +49,15 @@ std::unique_ptr<Stream> FakeAudioSystem::open(const StreamRequest& rq, StreamCal
     const DeviceInfo* din = rq.input_device >= 0 ? find_device(devices_, rq.input_device) : nullptr;
     const DeviceInfo* dout = rq.output_device >= 0 ? find_device(devices_, rq.output_device) : nullptr;
     if (!present_ || (rq.input_device >= 0 && !din) || (rq.output_device >= 0 && !dout))
-        throw Error("device " + std::to_string(rq.input_device >= 0 ? rq.input_device : rq.output_device) + ": no such device");
+        throw Error("device " + std::to_string(rq.input_device >= 0 ? rq.input_device : rq.output_device) +
+                    ": no such device");
     const std::string name = "'" + (din ? din : dout)->name + "'";
     double rate = 0.0;
     if (rq.sample_rate_hz > 0) {
         if (std::find(rates_hz_.begin(), rates_hz_.end(), rq.sample_rate_hz) == rates_hz_.end())
-            throw Error("device " + name + " refuses " + pitch::format_trimmed(rq.sample_rate_hz, 1) + " Hz (its default is " +
-                        pitch::format_trimmed((din ? din : dout)->default_rate_hz, 1) + " Hz)");
+            throw Error("device " + name + " refuses " + pitch::format_trimmed(rq.sample_rate_hz, 1) +
+                        " Hz (its default is " + pitch::format_trimmed((din ? din : dout)->default_rate_hz, 1) +
+                        " Hz)");
         rate = rq.sample_rate_hz;
     } else {
         rate = rates_hz_.front();
@@ -73,11 +77,14 @@ std::unique_ptr<Stream> FakeAudioSystem::open(const StreamRequest& rq, StreamCal
     return s;
 }
 
-bool FakeAudioSystem::drive(std::span<const float> in, std::span<float> out, int in_channels, int out_channels) noexcept {
+bool FakeAudioSystem::drive(std::span<const float> in, std::span<float> out, int in_channels,
+                            int out_channels) noexcept {
     FakeStream* s = current_;
     if (!s || !s->alive()) return false;
-    if (s->has_input && !in.empty()) s->cb_.capture(in.data(), in.size() / static_cast<std::size_t>(in_channels), in_channels);
-    if (s->has_output && !out.empty()) s->cb_.playback(out.data(), out.size() / static_cast<std::size_t>(out_channels), out_channels);
+    if (s->has_input && !in.empty())
+        s->cb_.capture(in.data(), in.size() / static_cast<std::size_t>(in_channels), in_channels);
+    if (s->has_output && !out.empty())
+        s->cb_.playback(out.data(), out.size() / static_cast<std::size_t>(out_channels), out_channels);
     return true;
 }
 

@@ -55,8 +55,10 @@ std::vector<std::string> port_names(jack_client_t* c, unsigned long flags) {
 std::map<std::string, PortGroup> physical_ports(jack_client_t* c) {
     std::map<std::string, PortGroup> groups;
     auto prefix = [](const std::string& p) { return p.substr(0, p.find(':')); };
-    for (const std::string& p : port_names(c, JackPortIsPhysical | JackPortIsOutput)) groups[prefix(p)].capture.push_back(p);
-    for (const std::string& p : port_names(c, JackPortIsPhysical | JackPortIsInput)) groups[prefix(p)].playback.push_back(p);
+    for (const std::string& p : port_names(c, JackPortIsPhysical | JackPortIsOutput))
+        groups[prefix(p)].capture.push_back(p);
+    for (const std::string& p : port_names(c, JackPortIsPhysical | JackPortIsInput))
+        groups[prefix(p)].playback.push_back(p);
     return groups;
 }
 
@@ -79,8 +81,8 @@ public:
         if (!client_) throw Error(what + ": no JACK server is running");
         const double server_rate = jack_get_sample_rate(client_);
         if (rate_hz > 0.0 && rate_hz != server_rate)
-            throw Error("device '" + dev.name + "' refuses " + pitch::format_trimmed(rate_hz, 1) + " Hz (the JACK server runs at " +
-                        pitch::format_trimmed(server_rate, 1) + " Hz)");
+            throw Error("device '" + dev.name + "' refuses " + pitch::format_trimmed(rate_hz, 1) +
+                        " Hz (the JACK server runs at " + pitch::format_trimmed(server_rate, 1) + " Hz)");
         const std::map<std::string, PortGroup> groups = physical_ports(client_);
         const auto g = groups.find(dev.name);
         if (g == groups.end()) throw Error(what + ": the server has no such ports now");
@@ -130,7 +132,8 @@ private:
             if (!self->in_ports_.empty()) {
                 const std::size_t ch = self->in_ports_.size();
                 for (std::size_t c = 0; c < ch; ++c) {
-                    const auto* src = static_cast<const float*>(jack_port_get_buffer(self->in_ports_[c], frames)) + done;
+                    const auto* src =
+                        static_cast<const float*>(jack_port_get_buffer(self->in_ports_[c], frames)) + done;
                     for (std::size_t i = 0; i < n; ++i) self->in_buf_[i * ch + c] = src[i];
                 }
                 self->cb_.capture(self->in_buf_.data(), n, static_cast<int>(ch));
@@ -152,7 +155,9 @@ private:
         self->cb_.xrun(!self->in_ports_.empty(), !self->out_ports_.empty());
         return 0;
     }
-    static void on_shutdown(jack_status_t, const char*, void* u) { static_cast<JackStream*>(u)->dead_.store(true, std::memory_order_release); }
+    static void on_shutdown(jack_status_t, const char*, void* u) {
+        static_cast<JackStream*>(u)->dead_.store(true, std::memory_order_release);
+    }
 
     StreamCallbacks& cb_;
     jack_client_t* client_ = nullptr;
@@ -191,10 +196,13 @@ public:
         if (listed_.empty()) devices();
         const DeviceInfo* in = rq.input_device >= 0 ? find_device(listed_, rq.input_device) : nullptr;
         const DeviceInfo* out = rq.output_device >= 0 ? find_device(listed_, rq.output_device) : nullptr;
-        if (rq.input_device >= 0 && !in) throw Error("input device " + std::to_string(rq.input_device) + ": no such JACK device");
-        if (rq.output_device >= 0 && !out) throw Error("output device " + std::to_string(rq.output_device) + ": no such JACK device");
+        if (rq.input_device >= 0 && !in)
+            throw Error("input device " + std::to_string(rq.input_device) + ": no such JACK device");
+        if (rq.output_device >= 0 && !out)
+            throw Error("output device " + std::to_string(rq.output_device) + ": no such JACK device");
         if (!in && !out) throw Error("audio stream: neither an input nor an output was asked for");
-        if (in && out && in != out) throw Error("JACK devices '" + in->name + "' and '" + out->name + "' need a stream each");
+        if (in && out && in != out)
+            throw Error("JACK devices '" + in->name + "' and '" + out->name + "' need a stream each");
         const DeviceInfo& dev = in ? *in : *out;
         const int in_ch = in ? std::max(1, std::min(rq.input_channels, in->max_input_channels)) : 0;
         const int out_ch = out ? std::max(1, std::min(rq.output_channels, out->max_output_channels)) : 0;
@@ -222,8 +230,10 @@ JackHiddenFromPortAudio::JackHiddenFromPortAudio() {
 }
 
 JackHiddenFromPortAudio::~JackHiddenFromPortAudio() {
-    if (had_) setenv("JACK_DEFAULT_SERVER", saved_.c_str(), 1);
-    else unsetenv("JACK_DEFAULT_SERVER");
+    if (had_)
+        setenv("JACK_DEFAULT_SERVER", saved_.c_str(), 1);
+    else
+        unsetenv("JACK_DEFAULT_SERVER");
 }
 
 }  // namespace beatless::audio

@@ -46,9 +46,9 @@ public:
 private:
     static constexpr unsigned kFresh = 4u, kIndex = 3u;
     std::array<T, 3> slots_{};
-    unsigned back_ = 0;                  // writer's slot
-    std::atomic<unsigned> middle_{1};    // exchanged slot (+ fresh bit)
-    unsigned front_ = 2;                 // reader's slot
+    unsigned back_ = 0;                // writer's slot
+    std::atomic<unsigned> middle_{1};  // exchanged slot (+ fresh bit)
+    unsigned front_ = 2;               // reader's slot
     std::atomic<std::uint64_t> count_{0};
 };
 
@@ -75,7 +75,8 @@ public:
     // writer lapped the reader) fails its sequence check and is skipped.
     std::size_t read(std::span<T> out) const noexcept {
         const std::uint64_t n = count_.load(std::memory_order_acquire);
-        const std::uint64_t want = std::min<std::uint64_t>({n, static_cast<std::uint64_t>(out.size()), static_cast<std::uint64_t>(N - 1)});
+        const std::uint64_t want =
+            std::min<std::uint64_t>({n, static_cast<std::uint64_t>(out.size()), static_cast<std::uint64_t>(N - 1)});
         std::size_t got = 0;
         for (std::uint64_t i = n - want; i < n; ++i) {
             const Slot& s = slots_[i % N];

@@ -82,8 +82,10 @@ bool LiveIo::try_reopen(AudioSystem& system, StreamCallbacks& cb, Clock::time_po
 void LiveIo::close_streams(AudioSystem* system, bool usable) {
     for (auto* s : {&in_stream, &out_stream}) {
         if (!*s) continue;
-        if (usable && (*s)->alive()) s->reset();
-        else system->retire(std::move(*s));
+        if (usable && (*s)->alive())
+            s->reset();
+        else
+            system->retire(std::move(*s));
     }
 }
 

@@ -7,8 +7,8 @@
 
 #include "audio/device.h"
 #include "audio/drone.h"
-#include "audio/ring.h"
 #include "audio/latest.h"
+#include "audio/ring.h"
 #include "pitch/base/error.h"
 
 #include <algorithm>
@@ -32,17 +32,17 @@ std::string_view input_kind_name(InputKind k);
 // The status fields of the stream layer (EngineStatus adds the analysis's).
 struct LiveStatus {
     InputKind input = InputKind::none;
-    double sample_rate_hz = 0.0;                // analysis rate
+    double sample_rate_hz = 0.0;  // analysis rate
     std::uint64_t ring_overflow_events = 0;
-    std::uint64_t device_input_overflows = 0;   // reported by the host
-    std::uint64_t device_output_underflows = 0; // reported by the host
+    std::uint64_t device_input_overflows = 0;    // reported by the host
+    std::uint64_t device_output_underflows = 0;  // reported by the host
     std::uint64_t tracker_dropped_frames = 0;
-    std::uint64_t readings = 0;                 // published
-    std::uint64_t readings_dropped = 0;         // not taken from the stream in time
-    double latency_s = 0.0;                     // last input-to-reading latency (sound at t captured -> its reading published)
-    double latency_max_s = 0.0;                 // largest since start
-    bool input_ok = false;                      // input delivering audio
-    bool finished = false;                      // a file played and analyzed to its end
+    std::uint64_t readings = 0;          // published
+    std::uint64_t readings_dropped = 0;  // not taken from the stream in time
+    double latency_s = 0.0;              // last input-to-reading latency (sound at t captured -> its reading published)
+    double latency_max_s = 0.0;          // largest since start
+    bool input_ok = false;               // input delivering audio
+    bool finished = false;               // a file played and analyzed to its end
     bool drone_removal_active = false;
 };
 
@@ -63,7 +63,8 @@ struct ReadingOutlet {
     // lat_s: from the sound's capture to now. Thread: analysis. Allocates: no. Locks: no.
     void publish(const R& r, double lat_s) noexcept {
         latency_s.store(lat_s, std::memory_order_relaxed);
-        if (lat_s > latency_max_s.load(std::memory_order_relaxed)) latency_max_s.store(lat_s, std::memory_order_relaxed);
+        if (lat_s > latency_max_s.load(std::memory_order_relaxed))
+            latency_max_s.store(lat_s, std::memory_order_relaxed);
         latest.publish(r);
         history.publish(r);
         stream.write(std::span<const R>(&r, 1));
@@ -86,8 +87,8 @@ struct LiveIo {
     using Clock = std::chrono::steady_clock;
 
     // Devices.
-    StreamRequest request;                // what was opened (for reopening)
-    std::string input_spec, output_spec;  // names, re-resolved after a rescan
+    StreamRequest request;                          // what was opened (for reopening)
+    std::string input_spec, output_spec;            // names, re-resolved after a rescan
     std::unique_ptr<Stream> in_stream, out_stream;  // out_stream empty for duplex
     bool want_output = false;
     bool input_lost = false;
@@ -101,14 +102,14 @@ struct LiveIo {
 
     // The drone's output (playback callback).
     std::unique_ptr<Drone> out_drone;
-    std::vector<float> play_scratch;      // its length is the largest chunk rendered at once
+    std::vector<float> play_scratch;  // its length is the largest chunk rendered at once
 
     // Threads; a demo or file producer and what it reports.
     std::thread analysis, producer;
     std::atomic<bool> running{false};
     std::atomic<bool> producer_done{false};
     std::atomic<bool> producer_failed{false};
-    std::string producer_error;           // set by the producer, reported by supervise()
+    std::string producer_error;  // set by the producer, reported by supervise()
 
     // --- Setup ---------------------------------------------------------------
     // Chooses the output device (the drone plays there). Throws Error.
@@ -119,7 +120,8 @@ struct LiveIo {
     const StreamInfo& open_input(AudioSystem& system, StreamCallbacks& callbacks);
     // When an output is wanted: opens its own stream unless the input is
     // duplex (asking for sample_rate_hz), and the drone at the output's rate.
-    void open_output(AudioSystem* system, StreamCallbacks& callbacks, double sample_rate_hz, const DroneSettings& drone);
+    void open_output(AudioSystem* system, StreamCallbacks& callbacks, double sample_rate_hz,
+                     const DroneSettings& drone);
     // Closes both streams; a stream that is not usable (or whose device has
     // gone) is retired instead, as closing it may block.
     void close_streams(AudioSystem* system, bool usable);
@@ -140,7 +142,7 @@ struct LiveIo {
     // --- Watchdog ------------------------------------------------------------
     // True when no callback came for longer than stall_s (up to now).
     bool stalled(Clock::time_point now, double stall_s);
-    void report(LiveStatus& st) const;    // the host's overflow and underflow counts
+    void report(LiveStatus& st) const;  // the host's overflow and underflow counts
 
     // --- Threads ---------------------------------------------------------------
     // Sets running; the analysis thread calls analyze() until stop_threads(),
@@ -163,12 +165,13 @@ struct LiveIo {
             while (running.load(std::memory_order_acquire)) {
                 const std::size_t n = produce();
                 if (n == 0) break;
-                next += std::chrono::duration_cast<Clock::duration>(period * (static_cast<double>(n) / static_cast<double>(block_frames)));
+                next += std::chrono::duration_cast<Clock::duration>(
+                    period * (static_cast<double>(n) / static_cast<double>(block_frames)));
                 std::this_thread::sleep_until(next);
             }
         });
     }
-    void stop_threads();                  // clears running, joins the producer, then the analysis
+    void stop_threads();  // clears running, joins the producer, then the analysis
 
     // Copies the block read() returns into buf (as much as fits) and returns
     // the count; 0 at the end or on an Error from read(), whose message is
@@ -205,8 +208,9 @@ std::size_t LiveIo::read_block(std::span<float> buf, Read read) {
 }
 
 template <class R, class Read, class Feed, class Take, class Time>
-void LiveIo::run_fast(std::span<float> buf, std::size_t channels, std::size_t tail_frames, std::span<R> got, double max_s,
-                      const std::function<void(const R&)>& on_reading, Read read, Feed feed, Take take, Time time_s) {
+void LiveIo::run_fast(std::span<float> buf, std::size_t channels, std::size_t tail_frames, std::span<R> got,
+                      double max_s, const std::function<void(const R&)>& on_reading, Read read, Feed feed, Take take,
+                      Time time_s) {
     const std::size_t block = buf.size() / channels;
     std::size_t tail = tail_frames;
     while (true) {

@@ -14,8 +14,7 @@ std::optional<KeyCommand> RootKeys::note(int key, bool on) {
         return std::nullopt;
     }
     held_.push_back(key);
-    if (root_key_ >= 0 && root_key_ != key)
-        return KeyCommand{KeyCommand::Kind::set_target, key, key - root_key_};
+    if (root_key_ >= 0 && root_key_ != key) return KeyCommand{KeyCommand::Kind::set_target, key, key - root_key_};
     root_key_ = key;
     return KeyCommand{KeyCommand::Kind::set_root, key, 0};
 }

@@ -15,7 +15,7 @@ namespace beatless::audio {
 // What a key press asks for (pure logic, fed with note on/off).
 struct KeyCommand {
     enum class Kind { set_root, set_target } kind = Kind::set_root;
-    int key = 60;             // the key pressed (MIDI number)
+    int key = 60;                 // the key pressed (MIDI number)
     int semitones_over_root = 0;  // set_target: key minus the held root key
 };
 

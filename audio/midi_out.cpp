@@ -14,11 +14,12 @@ namespace {
 constexpr std::uint8_t kMtsChannel = 0;  // MIDI channel 1
 constexpr std::uint8_t kMtsProgram = 0;  // the tuning program we write and select
 constexpr std::uint8_t kAllDevices = 0x7F;
-constexpr std::size_t kMaxVoices = 15;   // bend mode: channels 2..16
+constexpr std::size_t kMaxVoices = 15;  // bend mode: channels 2..16
 
 // Registered parameter number `param` (MSB 0) set to msb/lsb on a channel,
 // then the null RPN: six control changes, each its own message.
-std::vector<std::vector<std::uint8_t>> rpn(std::uint8_t channel, std::uint8_t param, std::uint8_t msb, std::uint8_t lsb) {
+std::vector<std::vector<std::uint8_t>> rpn(std::uint8_t channel, std::uint8_t param, std::uint8_t msb,
+                                           std::uint8_t lsb) {
     const std::uint8_t cc = static_cast<std::uint8_t>(0xB0 | channel);
     return {{cc, 101, 0}, {cc, 100, param}, {cc, 6, msb}, {cc, 38, lsb}, {cc, 101, 127}, {cc, 100, 127}};
 }
@@ -45,13 +46,14 @@ struct MidiOut::Impl {
     RtMidi::Api api = RtMidi::UNSPECIFIED;
     std::unique_ptr<RtMidiOut> out;
     bool connected = false;
-    std::uint32_t bend_channels_set = 0;  // bit c: RPN 0 already sent on channel c
+    std::uint32_t bend_channels_set = 0;     // bit c: RPN 0 already sent on channel c
     std::vector<std::uint8_t> retuned_keys;  // MTS: keys to give back to 12-TET on close
 };
 
 MidiOut::MidiOut(const MidiOutConfig& config) : impl_(std::make_unique<Impl>()), config_(config) {
     if (!(config.bend_range_semitones >= 1.0 && config.bend_range_semitones <= 24.0))
-        throw Error("MIDI bend range " + std::to_string(config.bend_range_semitones) + " semitones: out of range (1 to 24)");
+        throw Error("MIDI bend range " + std::to_string(config.bend_range_semitones) +
+                    " semitones: out of range (1 to 24)");
     if (config.velocity < 1 || config.velocity > 127)
         throw Error("MIDI velocity " + std::to_string(config.velocity) + ": out of range (1 to 127)");
     const detail::PortChoice p = detail::choose_midi_port(config.port, false);
@@ -67,7 +69,8 @@ MidiOut::MidiOut(const MidiOutConfig& config) : impl_(std::make_unique<Impl>()),
     impl_->connected = true;
     port_name_ = p.name;
     // Select tuning program 0 (RPN 3) so the single-note changes apply.
-    if (config_.retune == MidiRetune::mts) for (auto& m : rpn(kMtsChannel, 3, kMtsProgram, 0)) send(std::move(m));
+    if (config_.retune == MidiRetune::mts)
+        for (auto& m : rpn(kMtsChannel, 3, kMtsProgram, 0)) send(std::move(m));
 }
 
 MidiOut::~MidiOut() {
@@ -124,7 +127,8 @@ bool MidiOut::ensure_connected() {
         }
         impl_->connected = true;
         impl_->bend_channels_set = 0;
-        if (config_.retune == MidiRetune::mts) for (auto& m : rpn(kMtsChannel, 3, kMtsProgram, 0)) send(std::move(m));
+        if (config_.retune == MidiRetune::mts)
+            for (auto& m : rpn(kMtsChannel, 3, kMtsProgram, 0)) send(std::move(m));
     }
     problem_.clear();
     return true;
@@ -152,7 +156,8 @@ void MidiOut::sound(std::span<const double> freqs_hz) {
         for (std::size_t v = 0; v < voices; ++v) {
             const int near = pitch::key_and_bend(freqs_hz[v]).key;
             int key = near;
-            for (int step = 1; std::any_of(changes.begin(), changes.end(), [&](const auto& c) { return c.key == key; }); ++step)
+            for (int step = 1; std::any_of(changes.begin(), changes.end(), [&](const auto& c) { return c.key == key; });
+                 ++step)
                 key = std::clamp(near + (step % 2 ? (step + 1) / 2 : -step / 2), 0, 127);
             changes.push_back({static_cast<std::uint8_t>(key), freqs_hz[v]});
             if (std::find(impl_->retuned_keys.begin(), impl_->retuned_keys.end(), key) == impl_->retuned_keys.end())
@@ -178,7 +183,8 @@ void MidiOut::sound(std::span<const double> freqs_hz) {
         }
         const pitch::KeyAndBend kb = pitch::key_and_bend(freqs_hz[v]);
         const pitch::PitchBend b = pitch::pitch_bend(kb.bend_cents, range);
-        send({static_cast<std::uint8_t>(0xE0 | ch), static_cast<std::uint8_t>(b.value & 0x7F), static_cast<std::uint8_t>(b.value >> 7)});
+        send({static_cast<std::uint8_t>(0xE0 | ch), static_cast<std::uint8_t>(b.value & 0x7F),
+              static_cast<std::uint8_t>(b.value >> 7)});
         send({static_cast<std::uint8_t>(0x90 | ch), static_cast<std::uint8_t>(kb.key), velocity});
         sounding_.push_back({ch, static_cast<std::uint8_t>(kb.key)});
     }

@@ -19,9 +19,9 @@
 namespace beatless::audio {
 
 struct MidiPort {
-    std::string api;    // "alsa" or "jack"
-    std::string name;   // the port's name as the MIDI system gives it
-    bool input = false; // a port we can read from (a keyboard); else one we can send to (a synth)
+    std::string api;     // "alsa" or "jack"
+    std::string name;    // the port's name as the MIDI system gives it
+    bool input = false;  // a port we can read from (a keyboard); else one we can send to (a synth)
 };
 
 // Every MIDI port the compiled APIs see; empty when there is no MIDI system
@@ -31,10 +31,10 @@ std::vector<MidiPort> list_midi_ports();
 enum class MidiRetune { mts, bend };
 
 struct MidiOutConfig {
-    std::string port;                   // a port name, a part of one, or its number in `beatless devices`
+    std::string port;                     // a port name, a part of one, or its number in `beatless devices`
     MidiRetune retune = MidiRetune::mts;  // default MTS; bend for receivers without it
-    double bend_range_semitones = 2.0;  // stated by RPN 0 on every voice channel in bend mode; default 2
-    int velocity = 48;                  // note-on velocity 1-127; default 48 (quiet: hearing safety)
+    double bend_range_semitones = 2.0;    // stated by RPN 0 on every voice channel in bend mode; default 2
+    int velocity = 48;                    // note-on velocity 1-127; default 48 (quiet: hearing safety)
 };
 
 class MidiOut {

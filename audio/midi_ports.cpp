@@ -2,9 +2,9 @@
 
 #include "pitch/base/error.h"
 
-#include <cstdio>
 #include <fcntl.h>
 #include <unistd.h>
+#include <cstdio>
 
 namespace beatless::audio::detail {
 
@@ -60,7 +60,9 @@ std::vector<RtMidi::Api> midi_apis() {
 std::unique_ptr<RtMidiOut> make_midi_out(RtMidi::Api api) { return make_client<RtMidiOut>(api); }
 std::unique_ptr<RtMidiIn> make_midi_in(RtMidi::Api api) { return make_client<RtMidiIn>(api); }
 
-const char* api_name(RtMidi::Api api) { return api == RtMidi::UNIX_JACK ? "jack" : api == RtMidi::LINUX_ALSA ? "alsa" : "midi"; }
+const char* api_name(RtMidi::Api api) {
+    return api == RtMidi::UNIX_JACK ? "jack" : api == RtMidi::LINUX_ALSA ? "alsa" : "midi";
+}
 
 PortChoice choose_midi_port(const std::string& wanted, bool input) {
     std::vector<PortChoice> all;
@@ -82,7 +84,8 @@ PortChoice choose_midi_port(const std::string& wanted, bool input) {
     std::string known;
     for (const auto& p : all) known += (known.empty() ? "" : ", ") + p.name;
     const std::string what = std::string("MIDI ") + (input ? "input" : "output") + " port '" + wanted + "'";
-    if (all.empty()) throw Error(what + ": not found: no MIDI ports at all (is an ALSA sequencer or a JACK server running?)");
+    if (all.empty())
+        throw Error(what + ": not found: no MIDI ports at all (is an ALSA sequencer or a JACK server running?)");
     // A number: its place in the listing (1-based, as `beatless devices` prints).
     if (!wanted.empty() && wanted.find_first_not_of("0123456789") == std::string::npos) {
         const unsigned long k = std::stoul(wanted);

@@ -79,15 +79,18 @@ std::vector<DeviceInfo> list_server() {
     pa_mainloop* ml = pa_mainloop_new();
     if (!ml) return {};
     pa_context* ctx = pa_context_new(pa_mainloop_get_api(ml), "Beatless");
-    const auto deadline = Clock::now() + std::chrono::duration_cast<Clock::duration>(std::chrono::duration<double>(kConnectTimeout_s));
+    const auto deadline =
+        Clock::now() + std::chrono::duration_cast<Clock::duration>(std::chrono::duration<double>(kConnectTimeout_s));
     auto run_until = [&](auto done) {
         while (!done() && Clock::now() < deadline) {
-            if (pa_mainloop_prepare(ml, 20000) < 0 || pa_mainloop_poll(ml) < 0 || pa_mainloop_dispatch(ml) < 0) return false;
+            if (pa_mainloop_prepare(ml, 20000) < 0 || pa_mainloop_poll(ml) < 0 || pa_mainloop_dispatch(ml) < 0)
+                return false;
         }
         return done();
     };
     if (ctx && pa_context_connect(ctx, nullptr, PA_CONTEXT_NOAUTOSPAWN, nullptr) >= 0 &&
-        run_until([&] { return context_settled(pa_context_get_state(ctx)); }) && pa_context_get_state(ctx) == PA_CONTEXT_READY) {
+        run_until([&] { return context_settled(pa_context_get_state(ctx)); }) &&
+        pa_context_get_state(ctx) == PA_CONTEXT_READY) {
         l.pending = 3;
         pa_operation* ops[3] = {pa_context_get_server_info(ctx, on_server_info, &l),
                                 pa_context_get_source_info_list(ctx, on_device<pa_source_info, true>, &l),
@@ -166,9 +169,11 @@ public:
         ss.rate = static_cast<std::uint32_t>(rate);
         ss.channels = static_cast<std::uint8_t>(channels_);
         if (!pa_sample_spec_valid(&ss))
-            throw Error("pulse " + what + " refuses " + pitch::format_trimmed(rate, 1) + " Hz with " + std::to_string(channels_) + " channels");
+            throw Error("pulse " + what + " refuses " + pitch::format_trimmed(rate, 1) + " Hz with " +
+                        std::to_string(channels_) + " channels");
         frame_bytes_ = pa_frame_size(&ss);
-        const auto block_bytes = static_cast<std::uint32_t>(std::max<std::size_t>(16, rq.block_len_frames) * frame_bytes_);
+        const auto block_bytes =
+            static_cast<std::uint32_t>(std::max<std::size_t>(16, rq.block_len_frames) * frame_bytes_);
         pa_buffer_attr attr;
         attr.maxlength = static_cast<std::uint32_t>(-1);
         attr.fragsize = capture ? block_bytes : static_cast<std::uint32_t>(-1);
@@ -199,14 +204,16 @@ public:
             const pa_stream_state_t s = pa_stream_get_state(st_);
             return s == PA_STREAM_READY || s == PA_STREAM_FAILED || s == PA_STREAM_TERMINATED;
         };
-        if (!wait(stream_settled, kStreamTimeout_s)) throw Error("pulse " + what + " could not be opened: the server did not answer");
+        if (!wait(stream_settled, kStreamTimeout_s))
+            throw Error("pulse " + what + " could not be opened: the server did not answer");
         pa_threaded_mainloop_lock(ml_);
         const bool ready = pa_stream_get_state(st_) == PA_STREAM_READY;
         const std::string why = ready ? "" : pa_strerror(pa_context_errno(ctx_));
         const pa_buffer_attr* got = ready ? pa_stream_get_buffer_attr(st_) : nullptr;
         const pa_sample_spec* spec = ready ? pa_stream_get_sample_spec(st_) : nullptr;
         const double got_rate = spec ? spec->rate : rate;
-        const double frames = got ? static_cast<double>(capture ? got->fragsize : got->tlength) / static_cast<double>(frame_bytes_) : 0.0;
+        const double frames =
+            got ? static_cast<double>(capture ? got->fragsize : got->tlength) / static_cast<double>(frame_bytes_) : 0.0;
         pa_threaded_mainloop_unlock(ml_);
         if (!ready) throw Error("pulse " + what + " could not be opened: " + why);
 
@@ -228,7 +235,8 @@ private:
     // Waits (polling, unlocked) until done() or the timeout. Thread: caller.
     template <class Done>
     bool wait(Done done, double timeout_s) {
-        const auto deadline = Clock::now() + std::chrono::duration_cast<Clock::duration>(std::chrono::duration<double>(timeout_s));
+        const auto deadline =
+            Clock::now() + std::chrono::duration_cast<Clock::duration>(std::chrono::duration<double>(timeout_s));
         while (true) {
             pa_threaded_mainloop_lock(ml_);
             const bool ok = done();
@@ -242,11 +250,13 @@ private:
     // Thread: the mainloop's. Allocates: no (ours). Locks: no (ours).
     static void on_context_state(pa_context* c, void* u) {
         const pa_context_state_t s = pa_context_get_state(c);
-        if (s == PA_CONTEXT_FAILED || s == PA_CONTEXT_TERMINATED) static_cast<PulseStream*>(u)->dead_.store(true, std::memory_order_release);
+        if (s == PA_CONTEXT_FAILED || s == PA_CONTEXT_TERMINATED)
+            static_cast<PulseStream*>(u)->dead_.store(true, std::memory_order_release);
     }
     static void on_stream_state(pa_stream* st, void* u) {
         const pa_stream_state_t s = pa_stream_get_state(st);
-        if (s == PA_STREAM_FAILED || s == PA_STREAM_TERMINATED) static_cast<PulseStream*>(u)->dead_.store(true, std::memory_order_release);
+        if (s == PA_STREAM_FAILED || s == PA_STREAM_TERMINATED)
+            static_cast<PulseStream*>(u)->dead_.store(true, std::memory_order_release);
     }
     // Captured audio straight from the server's buffer into the callbacks (which copy it into the ring).
     static void on_read(pa_stream* st, std::size_t, void* u) {
@@ -255,8 +265,10 @@ private:
             const void* data = nullptr;
             std::size_t bytes = 0;
             if (pa_stream_peek(st, &data, &bytes) < 0 || bytes == 0) return;
-            if (data) self->cb_.capture(static_cast<const float*>(data), bytes / self->frame_bytes_, self->channels_);
-            else self->cb_.xrun(true, false);  // a hole: audio the server dropped
+            if (data)
+                self->cb_.capture(static_cast<const float*>(data), bytes / self->frame_bytes_, self->channels_);
+            else
+                self->cb_.xrun(true, false);  // a hole: audio the server dropped
             pa_stream_drop(st);
         }
     }
@@ -308,7 +320,9 @@ public:
         if (listed_.empty()) listed_ = list_server();
         const bool capture = rq.input_device >= 0;
         const DeviceInfo* d = find_device(listed_, index);
-        if (!d) throw Error(std::string(capture ? "input" : "output") + " device " + std::to_string(index) + ": no such pulse device");
+        if (!d)
+            throw Error(std::string(capture ? "input" : "output") + " device " + std::to_string(index) +
+                        ": no such pulse device");
         if ((capture ? d->max_input_channels : d->max_output_channels) == 0)
             throw Error("pulse device '" + d->name + "' is not a " + (capture ? "source" : "sink"));
         auto s = std::make_unique<PulseStream>(cb);

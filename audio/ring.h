@@ -61,11 +61,12 @@ public:
 
     std::size_t capacity() const noexcept { return buf_.size(); }
     std::size_t available() const noexcept {  // items queued (any thread; a snapshot)
-        return static_cast<std::size_t>(write_pos_.load(std::memory_order_acquire) - read_pos_.load(std::memory_order_acquire));
+        return static_cast<std::size_t>(write_pos_.load(std::memory_order_acquire) -
+                                        read_pos_.load(std::memory_order_acquire));
     }
     std::size_t space() const noexcept { return capacity() - available(); }
-    std::uint64_t written() const noexcept { return write_pos_.load(std::memory_order_acquire); }   // items ever stored
-    std::uint64_t offered() const noexcept { return offered_.load(std::memory_order_acquire); }     // stored + dropped
+    std::uint64_t written() const noexcept { return write_pos_.load(std::memory_order_acquire); }  // items ever stored
+    std::uint64_t offered() const noexcept { return offered_.load(std::memory_order_acquire); }    // stored + dropped
     std::uint64_t consumed() const noexcept { return read_pos_.load(std::memory_order_acquire); }
     std::uint64_t overflow_samples() const noexcept { return overflow_samples_.load(std::memory_order_relaxed); }
     std::uint64_t overflow_events() const noexcept { return overflow_events_.load(std::memory_order_relaxed); }

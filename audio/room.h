@@ -14,9 +14,9 @@ namespace beatless::audio {
 
 struct RoomConfig {
     double sample_rate_hz = 48000.0;
-    double delay_s = 0.007;        // loudspeaker to microphone (default 7 ms, about 2.4 m)
-    double gain = 0.8;             // linear level at the microphone (default 0.8)
-    double lowpass_hz = 3000.0;    // one-pole corner (default 3 kHz; 0 = no filter)
+    double delay_s = 0.007;      // loudspeaker to microphone (default 7 ms, about 2.4 m)
+    double gain = 0.8;           // linear level at the microphone (default 0.8)
+    double lowpass_hz = 3000.0;  // one-pole corner (default 3 kHz; 0 = no filter)
 };
 
 class SimulatedRoom {

@@ -52,7 +52,8 @@ public:
         if (routes_.empty()) devices();
         auto route = [&](int index, const char* dir) -> const Route* {
             if (index < 0) return nullptr;
-            if (index >= static_cast<int>(routes_.size())) throw Error(std::string(dir) + " device " + std::to_string(index) + ": no such device");
+            if (index >= static_cast<int>(routes_.size()))
+                throw Error(std::string(dir) + " device " + std::to_string(index) + ": no such device");
             return &routes_[static_cast<std::size_t>(index)];
         };
         const Route* in = route(rq.input_device, "input");
@@ -76,8 +77,10 @@ public:
 
     void retire(std::unique_ptr<Stream> s) override {
         if (!s) return;
-        if (is_portaudio_stream(s.get())) portaudio_->retire(std::move(s));
-        else s.reset();  // a pulse or JACK stream closes at once, server or not
+        if (is_portaudio_stream(s.get()))
+            portaudio_->retire(std::move(s));
+        else
+            s.reset();  // a pulse or JACK stream closes at once, server or not
     }
 
 private:

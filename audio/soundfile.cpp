@@ -5,11 +5,11 @@
 
 #include <sndfile.h>
 
+#include <sys/stat.h>
 #include <cerrno>
 #include <cmath>
 #include <cstring>
 #include <filesystem>
-#include <sys/stat.h>
 
 namespace beatless::audio {
 
@@ -41,7 +41,8 @@ SoundReader::SoundReader(const std::string& path, int channel, std::size_t block
     }
     if (S_ISDIR(st.st_mode)) throw Error(path + ": is a directory, not a sound file");
     // A stream has no length to seek in, and a device (/dev/zero) never ends: only files.
-    if (S_ISFIFO(st.st_mode)) throw Error(path + ": is a pipe (FIFO), not a sound file; save the sound to a file first");
+    if (S_ISFIFO(st.st_mode))
+        throw Error(path + ": is a pipe (FIFO), not a sound file; save the sound to a file first");
     if (S_ISCHR(st.st_mode) || S_ISBLK(st.st_mode)) throw Error(path + ": is a device, not a sound file");
     if (!S_ISREG(st.st_mode)) throw Error(path + ": is a socket or other special file, not a sound file");
     if (st.st_size == 0) throw Error(path + ": is empty (0 bytes)");
@@ -69,9 +70,10 @@ SoundReader::SoundReader(const std::string& path, int channel, std::size_t block
     if (info_.channels < 1) cleanup_and_throw(path + ": has no audio channels");
     if (info_.len_frames <= 0) cleanup_and_throw(path + ": contains no audio (0 frames)");
     if (channel_ >= info_.channels || channel_ < -1)
-        cleanup_and_throw(path + ": channel " + std::to_string(channel_ + 1) + " does not exist (the file has " +
-                          std::to_string(info_.channels) + (info_.channels == 1 ? " channel)" : " channels, 1 to " +
-                                                                                                   std::to_string(info_.channels) + ")"));
+        cleanup_and_throw(
+            path + ": channel " + std::to_string(channel_ + 1) + " does not exist (the file has " +
+            std::to_string(info_.channels) +
+            (info_.channels == 1 ? " channel)" : " channels, 1 to " + std::to_string(info_.channels) + ")"));
     // Integer files are scaled to [-1, 1); float files are passed through
     // unclipped so that non-finite and over-range samples can be detected.
     sf_command(f, SFC_SET_NORM_FLOAT, nullptr, SF_TRUE);
@@ -86,7 +88,8 @@ SoundReader::~SoundReader() {
 
 void SoundReader::rewind() {
     if (!file_) return;
-    if (sf_seek(as_sf(file_), 0, SEEK_SET) != 0) throw Error(info_.path + ": cannot be read a second time (it cannot seek: a pipe?)");
+    if (sf_seek(as_sf(file_), 0, SEEK_SET) != 0)
+        throw Error(info_.path + ": cannot be read a second time (it cannot seek: a pipe?)");
     pos_frames_ = 0;
 }
 
@@ -108,7 +111,8 @@ std::span<const float> SoundReader::read() {
         }
         if (!std::isfinite(v)) {
             const double t = static_cast<double>(pos_frames_ + static_cast<std::int64_t>(i)) / info_.sample_rate_hz;
-            throw Error(info_.path + ": contains a non-finite sample (NaN or infinity) at " + pitch::format_trimmed(t, 4) + " s");
+            throw Error(info_.path + ": contains a non-finite sample (NaN or infinity) at " +
+                        pitch::format_trimmed(t, 4) + " s");
         }
         mono_[i] = v;
     }
@@ -125,8 +129,8 @@ std::span<const float> SoundReader::read_frames() {
     for (std::size_t i = 0; i < n; ++i) {
         if (std::isfinite(interleaved_[i])) continue;
         const double t = static_cast<double>(pos_frames_ + static_cast<std::int64_t>(i / ch)) / info_.sample_rate_hz;
-        throw Error(info_.path + ": contains a non-finite sample (NaN or infinity) in channel " + std::to_string(i % ch + 1) + " at " +
-                    pitch::format_trimmed(t, 4) + " s");
+        throw Error(info_.path + ": contains a non-finite sample (NaN or infinity) in channel " +
+                    std::to_string(i % ch + 1) + " at " + pitch::format_trimmed(t, 4) + " s");
     }
     pos_frames_ += got;
     return {interleaved_.data(), n};
@@ -148,7 +152,9 @@ SoundWriter::SoundWriter(const std::string& path, double sample_rate_hz, int cha
     SF_INFO sfi{};
     sfi.samplerate = static_cast<int>(std::lround(sample_rate_hz));
     sfi.channels = channels;
-    const int sub = format == SampleFormat::pcm16 ? SF_FORMAT_PCM_16 : format == SampleFormat::pcm24 ? SF_FORMAT_PCM_24 : SF_FORMAT_FLOAT;
+    const int sub = format == SampleFormat::pcm16   ? SF_FORMAT_PCM_16
+                    : format == SampleFormat::pcm24 ? SF_FORMAT_PCM_24
+                                                    : SF_FORMAT_FLOAT;
     sfi.format = SF_FORMAT_WAV | sub;
     SNDFILE* f = sf_open(path.c_str(), SFM_WRITE, &sfi);
     if (!f) throw Error(path_ + ": cannot be written (" + std::string(sf_strerror(nullptr)) + ")");

@@ -17,15 +17,15 @@
 
 namespace beatless::audio {
 
-constexpr double kMinRateHz = 8000.0;     // rates the analysis supports
+constexpr double kMinRateHz = 8000.0;  // rates the analysis supports
 constexpr double kMaxRateHz = 192000.0;
 
 struct SoundInfo {
     std::string path;
     double sample_rate_hz = 0.0;
     int channels = 0;
-    std::int64_t len_frames = 0;   // frames per channel
-    std::string format;            // "WAV", "FLAC", ...
+    std::int64_t len_frames = 0;  // frames per channel
+    std::string format;           // "WAV", "FLAC", ...
     double dur_s() const { return sample_rate_hz > 0 ? static_cast<double>(len_frames) / sample_rate_hz : 0.0; }
 };
 

@@ -31,7 +31,8 @@ HarmonicSynth::HarmonicSynth(const SynthConfig& config) : cfg_(config) {
         throw Error("synth sample rate " + std::to_string(cfg_.sample_rate_hz) + " Hz: out of range");
     if (cfg_.max_partials < 1 || cfg_.max_partials > 512)
         throw Error("synth partial count " + std::to_string(cfg_.max_partials) + ": out of range (1 to 512)");
-    ramp_len_samples_ = std::max<std::size_t>(1, static_cast<std::size_t>(std::lround(cfg_.ramp_s * cfg_.sample_rate_hz)));
+    ramp_len_samples_ =
+        std::max<std::size_t>(1, static_cast<std::size_t>(std::lround(cfg_.ramp_s * cfg_.sample_rate_hz)));
     const auto n = static_cast<std::size_t>(cfg_.max_partials);
     amp_now_.assign(n, 0.0);
     amp_target_.assign(n, 0.0);
@@ -161,7 +162,8 @@ void render_tone_add(const ToneSpec& tone, double sample_rate_hz, std::span<floa
     const double fs = sample_rate_hz;
     const auto n = static_cast<std::int64_t>(out.size());
     const auto first = std::max<std::int64_t>(0, static_cast<std::int64_t>(std::ceil(tone.start_s * fs)));
-    const auto last = std::min<std::int64_t>(n, static_cast<std::int64_t>(std::floor((tone.start_s + tone.dur_s) * fs)));
+    const auto last =
+        std::min<std::int64_t>(n, static_cast<std::int64_t>(std::floor((tone.start_s + tone.dur_s) * fs)));
     if (first >= last) return;
     std::vector<double> amps = tone.partials;
     double phase = 0.0;

@@ -24,7 +24,7 @@ public:
     // Setters ramp from the current state unless `immediate` is true.
     // Thread: one thread (the one calling render). Allocates: no. Locks: no.
     void set_f0(double freq_hz, bool immediate = false) noexcept;
-    void glide_f0(double freq_hz, std::size_t len_samples) noexcept;                          // exponential glide
+    void glide_f0(double freq_hz, std::size_t len_samples) noexcept;                         // exponential glide
     void set_partials(std::span<const double> amplitudes, bool immediate = false) noexcept;  // a_1, a_2, ...
     void set_phases(std::span<const double> phases_rad) noexcept;                            // theta_1, ...
     void set_level(double gain, bool immediate = false) noexcept;                            // linear
@@ -33,7 +33,7 @@ public:
     // Adds the tone into out. Thread: audio callback. Allocates: no. Locks: no.
     void render_add(std::span<float> out) noexcept;
 
-    double f0_hz() const noexcept { return f0_now_; }     // current (ramping) f0, without vibrato
+    double f0_hz() const noexcept { return f0_now_; }  // current (ramping) f0, without vibrato
     double level() const noexcept { return gain_now_; }
     bool ramping() const noexcept;
     const SynthConfig& config() const noexcept { return cfg_; }
@@ -41,7 +41,7 @@ public:
 private:
     SynthConfig cfg_;
     std::size_t ramp_len_samples_ = 1;
-    double phase_ = 0.0;           // fundamental phase in radians, kept in [0, 2pi)
+    double phase_ = 0.0;  // fundamental phase in radians, kept in [0, 2pi)
     double vib_phase_ = 0.0;
     double vib_rate_hz_ = 0.0;
     double vib_depth_cents_ = 0.0;
@@ -51,7 +51,7 @@ private:
     std::size_t gain_left_ = 0;
     std::vector<double> amp_now_, amp_target_, amp_step_;
     std::size_t amp_left_ = 0;
-    std::size_t top_ = 0;          // partials 1..top_ may sound (the rest are zero)
+    std::size_t top_ = 0;  // partials 1..top_ may sound (the rest are zero)
     std::vector<double> cos_theta_, sin_theta_;
 };
 
@@ -64,14 +64,14 @@ std::vector<double> partials_power_law(int count, double exponent);  // a_k = k^
 // Offline rendering of a whole tone for practice tracks, tests and demos.
 struct ToneSpec {
     double f0_hz = 220.0;
-    std::vector<double> partials{1.0};   // a_1, a_2, ...
-    double level = 0.25;                 // peak-ish linear gain applied to the sum
+    std::vector<double> partials{1.0};  // a_1, a_2, ...
+    double level = 0.25;                // peak-ish linear gain applied to the sum
     double vibrato_rate_hz = 0.0;
     double vibrato_depth_cents = 0.0;
-    double attack_s = 0.05;              // raised-cosine onset
-    double release_s = 0.05;             // raised-cosine offset
-    double start_s = 0.0;                // onset time within the rendered buffer
-    double dur_s = 1.0;                  // from onset to the end of the release
+    double attack_s = 0.05;   // raised-cosine onset
+    double release_s = 0.05;  // raised-cosine offset
+    double start_s = 0.0;     // onset time within the rendered buffer
+    double dur_s = 1.0;       // from onset to the end of the release
 };
 // Adds the tone into out (rate sample_rate_hz), clipped to the buffer.
 void render_tone_add(const ToneSpec& tone, double sample_rate_hz, std::span<float> out);

@@ -20,15 +20,15 @@ namespace beatless::audio {
 // Amplitudes are normalised so every timbre has the RMS of a unit sine; levels are then set in dBFS.
 enum class Timbre { pure, soft, round, bright, hollow };
 
-std::vector<double> timbre_partials(Timbre t);     // a_1, a_2, ... with RMS of a unit sine
-constexpr std::size_t kMaxTimbrePartials = 32;      // the most partials any timbre has
+std::vector<double> timbre_partials(Timbre t);  // a_1, a_2, ... with RMS of a unit sine
+constexpr std::size_t kMaxTimbrePartials = 32;  // the most partials any timbre has
 // The same amplitudes into out (at least kMaxTimbrePartials long); returns the
 // count. Thread: any, including the audio callback. Allocates: no.
 std::size_t timbre_partials_into(Timbre t, std::span<double> out) noexcept;
 // The highest partial number the timbre sounds (1 for pure, 32 for bright):
 // what pitch::AudibleRange::partials_a needs. Allocates: no.
 int timbre_highest_partial(Timbre t) noexcept;
-Timbre parse_timbre(std::string_view name);         // throws Error listing the names
+Timbre parse_timbre(std::string_view name);  // throws Error listing the names
 std::string_view timbre_name(Timbre t);
 const std::vector<Timbre>& all_timbres();
 

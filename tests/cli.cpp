@@ -1,15 +1,15 @@
 #include "tests/cli.h"
 
+#include <fcntl.h>
+#include <poll.h>
+#include <sys/wait.h>
+#include <unistd.h>
 #include <cerrno>
 #include <cstdio>
 #include <cstdlib>
 #include <cstring>
-#include <fcntl.h>
 #include <filesystem>
-#include <poll.h>
 #include <stdexcept>
-#include <sys/wait.h>
-#include <unistd.h>
 
 extern char** environ;
 
@@ -83,8 +83,10 @@ RunResult run_program(const std::string& args_line, const std::vector<std::strin
     char quote = 0;
     for (const char c : args_line) {
         if (quote) {
-            if (c == quote) quote = 0;
-            else cur += c;
+            if (c == quote)
+                quote = 0;
+            else
+                cur += c;
         } else if (c == '\'' || c == '"') {
             quote = c;
             in_arg = true;
@@ -118,8 +120,8 @@ std::string json_value(const std::string& json, const std::string& expr) {
         dup2(out_pipe[1], 2);
         close(out_pipe[0]);
         execl("/usr/bin/python3", "python3", "-c",
-              "import json,sys; d=json.load(open(sys.argv[1])); print(eval(sys.argv[2]))", in_path.c_str(), expr.c_str(),
-              static_cast<char*>(nullptr));
+              "import json,sys; d=json.load(open(sys.argv[1])); print(eval(sys.argv[2]))", in_path.c_str(),
+              expr.c_str(), static_cast<char*>(nullptr));
         _exit(127);
     }
     close(out_pipe[1]);

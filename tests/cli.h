@@ -9,9 +9,9 @@
 namespace beatless::test {
 
 struct RunResult {
-    int exit_code = -1;      // exit status, or 128 + signal number when killed
-    std::string out;         // stdout
-    std::string err;         // stderr
+    int exit_code = -1;  // exit status, or 128 + signal number when killed
+    std::string out;     // stdout
+    std::string err;     // stderr
 };
 
 // argv excludes the program; env entries "NAME=value" are added to the

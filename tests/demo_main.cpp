@@ -24,7 +24,9 @@ using namespace beatless;
 namespace {
 
 int usage() {
-    std::fprintf(stderr, "usage: beatless-demo png OUT.png [WIDTHxHEIGHT] [DPI_SCALE] [T_S] | window [FRAMES] [--check] [--no-vsync] [--resize]\n");
+    std::fprintf(stderr,
+                 "usage: beatless-demo png OUT.png [WIDTHxHEIGHT] [DPI_SCALE] [T_S] | window [FRAMES] [--check] "
+                 "[--no-vsync] [--resize]\n");
     return 2;
 }
 
@@ -41,7 +43,8 @@ int run_png(int argc, char** argv) {
     // Two frames: ImGui settles window sizes and table columns on the first.
     for (int i = 0; i < 2; ++i) ui::render_offscreen(host, raster, buf, 1.0f / 60.0f, [&] { demo.build(t_s); });
     ui::write_png(argv[2], buf);
-    std::printf("%s: %dx%d, %zu rects, %zu triangles\n", argv[2], buf.width_px, buf.height_px, raster.stats().rects / 2, raster.stats().triangles / 2);
+    std::printf("%s: %dx%d, %zu rects, %zu triangles\n", argv[2], buf.width_px, buf.height_px, raster.stats().rects / 2,
+                raster.stats().triangles / 2);
     return 0;
 }
 
@@ -51,10 +54,14 @@ int run_win(int argc, char** argv) {
     wc.title = "beatless demo";
     wc.max_frames = 120;
     for (int i = 2; i < argc; ++i) {
-        if (std::strcmp(argv[i], "--check") == 0) wc.check_upload = true;
-        else if (std::strcmp(argv[i], "--no-vsync") == 0) wc.vsync = false;
-        else if (std::strcmp(argv[i], "--resize") == 0) resize = true;
-        else wc.max_frames = std::atoi(argv[i]);
+        if (std::strcmp(argv[i], "--check") == 0)
+            wc.check_upload = true;
+        else if (std::strcmp(argv[i], "--no-vsync") == 0)
+            wc.vsync = false;
+        else if (std::strcmp(argv[i], "--resize") == 0)
+            resize = true;
+        else
+            wc.max_frames = std::atoi(argv[i]);
     }
     testing::DemoScreen demo;
     float t_s = 0.0f;
@@ -65,13 +72,15 @@ int run_win(int argc, char** argv) {
         demo.build(t_s);
     });
     const double n = r.frames > 0 ? r.frames : 1;
-    std::printf("window %dx%d (scale %.2f): %d frames in %.2f s wall = %.1f frames/s; CPU per frame: build %.2f ms, "
-                "rasterize %.2f ms, upload+swap %.2f ms\n",
-                r.width_px, r.height_px, static_cast<double>(r.dpi_scale), r.frames, r.wall_s,
-                r.wall_s > 0 ? r.frames / r.wall_s : 0.0, 1e3 * r.build_cpu_s / n, 1e3 * r.raster_cpu_s / n,
-                1e3 * r.show_cpu_s / n);
+    std::printf(
+        "window %dx%d (scale %.2f): %d frames in %.2f s wall = %.1f frames/s; CPU per frame: build %.2f ms, "
+        "rasterize %.2f ms, upload+swap %.2f ms\n",
+        r.width_px, r.height_px, static_cast<double>(r.dpi_scale), r.frames, r.wall_s,
+        r.wall_s > 0 ? r.frames / r.wall_s : 0.0, 1e3 * r.build_cpu_s / n, 1e3 * r.raster_cpu_s / n,
+        1e3 * r.show_cpu_s / n);
     if (wc.check_upload) {
-        std::printf("last frame read back from OpenGL: %ld of %d pixels differ\n", r.mismatched_pixels, r.width_px * r.height_px);
+        std::printf("last frame read back from OpenGL: %ld of %d pixels differ\n", r.mismatched_pixels,
+                    r.width_px * r.height_px);
         if (r.mismatched_pixels != 0) return 1;
     }
     return 0;

@@ -25,8 +25,8 @@ public:
     int trace_points() const { return static_cast<int>(trace_.size()); }
 
 private:
-    std::vector<ImVec2> trace_;   // sized once
-    std::vector<float> plot_;     // sized once
+    std::vector<ImVec2> trace_;  // sized once
+    std::vector<float> plot_;    // sized once
     float slider_cents_ = 5.0f;
     bool drone_on_ = true;
     int voice_ = 1;

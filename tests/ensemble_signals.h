@@ -11,8 +11,8 @@
 #pragma once
 
 #include "audio/soundfile.h"
-#include "pitch/theory/chord.h"
 #include "pitch/measure/ensemble_analyzer.h"
+#include "pitch/theory/chord.h"
 #include "tests/mix_signals.h"
 
 #include <cmath>
@@ -28,15 +28,15 @@ struct GroupVoice {
     double dev_cents = 0.0;  // centre's deviation from the just target (+ sharp)
     double vib_rate_hz = 5.5;
     double vib_depth_cents = 25.0;
-    double level = 0.12;     // amplitude of the fundamental at its own microphone
-    bool silent = false;     // the microphone is dead: nothing at all on its channel
+    double level = 0.12;  // amplitude of the fundamental at its own microphone
+    bool silent = false;  // the microphone is dead: nothing at all on its channel
 };
 
 struct GroupTake {
     double rate_hz = 48000.0;
     double dur_s = 3.0;
-    double start_s = 0.2;         // the chord starts ...
-    double end_s = 2.9;           // ... and ends
+    double start_s = 0.2;  // the chord starts ...
+    double end_s = 2.9;    // ... and ends
     int channels = 4;
     double crosstalk_db = -26.0;  // every other voice at each microphone; neighbours 6 dB louder
     std::vector<float> interleaved;
@@ -50,7 +50,8 @@ inline std::vector<pitch::Player> players_of(const std::vector<GroupVoice>& g) {
 }
 
 // Renders the group singing `chord` on root_hz into take.interleaved.
-inline void render_group(GroupTake& take, const pitch::Chord& chord, double root_hz, const std::vector<GroupVoice>& group) {
+inline void render_group(GroupTake& take, const pitch::Chord& chord, double root_hz,
+                         const std::vector<GroupVoice>& group) {
     const auto frames = static_cast<std::size_t>(take.dur_s * take.rate_hz);
     std::vector<std::vector<float>> dry;
     for (std::size_t i = 0; i < group.size(); ++i) {

@@ -41,12 +41,14 @@ struct LiveRig {
     audio::FakeAudioSystem sys;
     audio::Engine engine;
     std::unique_ptr<audio::SimulatedRoom> room;
-    std::vector<float> voice;           // the performer, at the microphone
+    std::vector<float> voice;  // the performer, at the microphone
     std::vector<Stamped> readings;
     std::int64_t captured = 0;
 
     LiveRig(double rate, std::size_t block_len, const audio::EngineConfig& base = {})
-        : rate_hz(rate), block(block_len), sys({audio::fake_device(0, "Fake duplex", 2, 2, rate)}, {rate}),
+        : rate_hz(rate),
+          block(block_len),
+          sys({audio::fake_device(0, "Fake duplex", 2, 2, rate)}, {rate}),
           engine(with_rate(base, rate, block_len), &sys) {}
 
     static audio::EngineConfig with_rate(audio::EngineConfig c, double rate, std::size_t block_len) {
@@ -84,7 +86,6 @@ struct LiveRig {
     }
 };
 
-
 // ---- Voices with known truth and how readings are scored against it ----
 
 struct Step {
@@ -94,7 +95,8 @@ struct Step {
 };
 
 // A voice singing the steps above root_hz (harmonic, partials falling 1/h).
-inline std::vector<float> voice_of(const std::vector<Step>& steps, double root_hz, double rate, double dur_s, double level) {
+inline std::vector<float> voice_of(const std::vector<Step>& steps, double root_hz, double rate, double dur_s,
+                                   double level) {
     std::vector<float> x(static_cast<std::size_t>(dur_s * rate), 0.0f);
     std::vector<testsig::Note> notes;
     for (const Step& s : steps) {
@@ -127,15 +129,15 @@ inline int brute_nearest(const pitch::TargetSet& set, double cents) {
 
 struct StepCheck {
     int readings = 0;
-    double worst_dev_err = 0.0;     // |dev - truth| on the steady part
-    double worst_beat_err = 0.0;    // |beat - formula| on the steady part, Hz
+    double worst_dev_err = 0.0;   // |dev - truth| on the steady part
+    double worst_beat_err = 0.0;  // |beat - formula| on the steady part, Hz
     bool targets_right = true;
-    std::int64_t settle_samples = -1;   // step onset to the first reading that stays settled
+    std::int64_t settle_samples = -1;  // step onset to the first reading that stays settled
 };
 
 // Checks the readings of one step against the truth.
 inline StepCheck check_step(const std::vector<Stamped>& rs, const Step& st, double root, double rate,
-                     const pitch::TargetSet& set, double settle_cents) {
+                            const pitch::TargetSet& set, double settle_cents) {
     StepCheck c;
     const pitch::Interval iv = pitch::parse_interval(st.ratio);
     const double f_true = root * iv.value() * std::exp2(st.dev_cents / 1200.0);
@@ -147,9 +149,12 @@ inline StepCheck check_step(const std::vector<Stamped>& rs, const Step& st, doub
     std::int64_t settled_at = -1;
     for (const auto& s : rs) {
         if (s.r.t_s < st.start_s || s.r.t_s > st.end_s - 0.05) continue;
-        const bool ok = s.r.voiced() && s.r.target_index == want && std::fabs(s.r.dev_cents - st.dev_cents) <= settle_cents;
-        if (!ok) settled_at = -1;
-        else if (settled_at < 0) settled_at = s.captured;
+        const bool ok =
+            s.r.voiced() && s.r.target_index == want && std::fabs(s.r.dev_cents - st.dev_cents) <= settle_cents;
+        if (!ok)
+            settled_at = -1;
+        else if (settled_at < 0)
+            settled_at = s.captured;
     }
     if (settled_at >= 0) c.settle_samples = settled_at - onset;
     for (const auto& s : rs) {

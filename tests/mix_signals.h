@@ -10,8 +10,8 @@
 // of the samples an estimate depends on, f0 = 0 when unvoiced).
 #pragma once
 
-#include "pitch/theory/targets.h"
 #include "pitch/dsp/yin.h"
+#include "pitch/theory/targets.h"
 
 #include <unistd.h>
 
@@ -34,14 +34,14 @@ inline double cents_to_ratio(double cents) { return std::exp2(cents / 1200.0); }
 struct Note {
     double start_s = 0.0;
     double end_s = 1.0;
-    double centre_hz = 220.0;          // vibrato centre
-    double vib_rate_hz = 0.0;          // 0 = no vibrato
-    double vib_depth_cents = 0.0;      // +- depth
-    double vib_phase = 0.0;            // radians
-    double scoop_cents = 0.0;          // onset starts this far off and decays ...
-    double scoop_tau_s = 0.04;         // ... with this time constant
-    double ramp_s = 0.015;             // attack and release ramps (raised cosine)
-    double level = 0.3;                // amplitude of the fundamental
+    double centre_hz = 220.0;      // vibrato centre
+    double vib_rate_hz = 0.0;      // 0 = no vibrato
+    double vib_depth_cents = 0.0;  // +- depth
+    double vib_phase = 0.0;        // radians
+    double scoop_cents = 0.0;      // onset starts this far off and decays ...
+    double scoop_tau_s = 0.04;     // ... with this time constant
+    double ramp_s = 0.015;         // attack and release ramps (raised cosine)
+    double level = 0.3;            // amplitude of the fundamental
 };
 
 // Pitch of a note at time t in cents against its centre (no ramp).
@@ -80,8 +80,8 @@ inline void add_voice(std::vector<float>& out, double fs, const std::vector<Note
 }
 
 // A steady harmonic tone over [start_s, end_s) (a drone, or one voice of a double stop).
-inline void add_tone(std::vector<float>& out, double fs, double f0_hz, double start_s, double end_s,
-                     double level, const std::vector<double>& amps, const std::vector<double>& phases = {}) {
+inline void add_tone(std::vector<float>& out, double fs, double f0_hz, double start_s, double end_s, double level,
+                     const std::vector<double>& amps, const std::vector<double>& phases = {}) {
     Note n;
     n.start_s = start_s;
     n.end_s = end_s;
@@ -144,7 +144,7 @@ inline std::vector<pitch::PitchFrame> frames_of(const std::vector<Note>& notes, 
 // and white noise. The exact content is returned with the samples.
 struct Take {
     std::vector<float> samples;
-    std::vector<Note> notes;       // the voice's notes, centres exact
+    std::vector<Note> notes;  // the voice's notes, centres exact
     double root_hz = 0.0;
     double dur_s = 0.0;
 };
@@ -183,7 +183,8 @@ inline Take drone_and_voice(double fs, double root_hz, const std::vector<std::pa
     take.dur_s = take.notes.back().end_s + 0.55;
     take.samples.assign(static_cast<std::size_t>(take.dur_s * fs), 0.0f);
     if (drone_level > 0.0)
-        add_tone(take.samples, fs, root_hz, 0.0, take.dur_s, drone_level, rolloff(8), {0.3, 1.1, 2.0, 0.7, 2.9, 1.6, 0.2, 2.4});
+        add_tone(take.samples, fs, root_hz, 0.0, take.dur_s, drone_level, rolloff(8),
+                 {0.3, 1.1, 2.0, 0.7, 2.9, 1.6, 0.2, 2.4});
     add_voice(take.samples, fs, take.notes, {1.0, 0.6, 0.45, 0.3, 0.2, 0.15, 0.1, 0.08});
     add_noise(take.samples, noise_rms, seed + 1);
     return take;
@@ -219,24 +220,26 @@ inline std::vector<float> low_drone_and_voice(double fs, double root_hz) {
 // p/q above it, held hold_s with rest_s between (the first starts at 0.3 s),
 // at their own levels, with white noise over the whole take.
 struct HeldDyad {
-    int p = 3;                  // f_high / f_low = p/q before the offset
+    int p = 3;  // f_high / f_low = p/q before the offset
     int q = 2;
     double off_cents = 0.0;
     double level_low = 0.2;
     double level_high = 0.2;
     double f_low_hz = 200.0;
     double f_high_hz() const { return f_low_hz * p / q * cents_to_ratio(off_cents); }
-    double start_s = 0.0;       // set by held_dyads()
+    double start_s = 0.0;  // set by held_dyads()
 };
 
 inline std::vector<float> held_dyads(double fs, std::vector<HeldDyad>& dyads, double hold_s, double rest_s,
                                      double noise_rms, std::uint64_t seed) {
-    std::vector<float> x(static_cast<std::size_t>((0.3 + static_cast<double>(dyads.size()) * (hold_s + rest_s)) * fs), 0.0f);
+    std::vector<float> x(static_cast<std::size_t>((0.3 + static_cast<double>(dyads.size()) * (hold_s + rest_s)) * fs),
+                         0.0f);
     double t = 0.3;
     for (HeldDyad& d : dyads) {
         d.start_s = t;
         add_tone(x, fs, d.f_low_hz, t, t + hold_s, d.level_low, rolloff(10));
-        add_tone(x, fs, d.f_high_hz(), t, t + hold_s, d.level_high, rolloff(10), {0.5, 1, 1.5, 2, 2.5, 3, 0.2, 0.4, 0.6, 0.8});
+        add_tone(x, fs, d.f_high_hz(), t, t + hold_s, d.level_high, rolloff(10),
+                 {0.5, 1, 1.5, 2, 2.5, 3, 0.2, 0.4, 0.6, 0.8});
         t += hold_s + rest_s;
     }
     add_noise(x, noise_rms, seed);
@@ -264,9 +267,11 @@ inline bool write_f32(const std::string& path, const std::vector<float>& x) {
 #ifdef BEATLESS_SOURCE_DIR
 inline double run_reference(const std::string& script, const std::vector<float>& x, const std::string& args) {
     const char* dir = std::getenv("TMPDIR");
-    const std::string path = std::string(dir && *dir ? dir : "/tmp") + "/beatless_ref_" + std::to_string(::getpid()) + ".f32";
+    const std::string path =
+        std::string(dir && *dir ? dir : "/tmp") + "/beatless_ref_" + std::to_string(::getpid()) + ".f32";
     if (!write_f32(path, x)) return NAN;
-    const std::string cmd = "/usr/bin/python3 " BEATLESS_SOURCE_DIR "/tests/reference/" + script + " " + path + " " + args;
+    const std::string cmd =
+        "/usr/bin/python3 " BEATLESS_SOURCE_DIR "/tests/reference/" + script + " " + path + " " + args;
     std::FILE* p = popen(cmd.c_str(), "r");
     char line[64] = {};
     const bool got = p && std::fgets(line, sizeof line, p) != nullptr;
@@ -286,7 +291,8 @@ inline pitch::TargetSet target_set(std::initializer_list<const char*> intervals,
 
 // The intervals of targets/tritones.toml, in the file's order.
 inline pitch::TargetSet tritone_set() {
-    return target_set({"15/11", "11/8", "7/5", "45/32", "600c", "64/45", "729/512", "1024/729", "10/7", "16/11"}, "tritones");
+    return target_set({"15/11", "11/8", "7/5", "45/32", "600c", "64/45", "729/512", "1024/729", "10/7", "16/11"},
+                      "tritones");
 }
 
 // The message of the Error that fn throws, or "(no error)".

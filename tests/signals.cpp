@@ -36,7 +36,9 @@ std::vector<Partial> falling_partials(double max_f0_hz, double rate_hz, int max_
 }
 
 std::vector<Partial> without(std::vector<Partial> partials, std::span<const int> numbers) {
-    std::erase_if(partials, [&](const Partial& p) { return std::find(numbers.begin(), numbers.end(), p.number) != numbers.end(); });
+    std::erase_if(partials, [&](const Partial& p) {
+        return std::find(numbers.begin(), numbers.end(), p.number) != numbers.end();
+    });
     return partials;
 }
 
@@ -49,7 +51,8 @@ double harmonic_power(std::span<const Partial> partials) {
 std::vector<float> sine(double rate_hz, std::size_t len, double freq_hz, double amplitude, double phase_rad) {
     std::vector<float> x(len);
     for (std::size_t n = 0; n < len; ++n)
-        x[n] = static_cast<float>(amplitude * std::sin(kTwoPi * freq_hz * static_cast<double>(n) / rate_hz + phase_rad));
+        x[n] =
+            static_cast<float>(amplitude * std::sin(kTwoPi * freq_hz * static_cast<double>(n) / rate_hz + phase_rad));
     return x;
 }
 
@@ -68,7 +71,7 @@ std::vector<float> harmonic_tone_fm(double rate_hz, std::size_t len, const std::
                                     std::span<const Partial> partials) {
     std::vector<float> x(len);
     const double dt = 1.0 / rate_hz;
-    double cycles = 0.0;   // integral of f0, in cycles, kept in [0, 1)
+    double cycles = 0.0;  // integral of f0, in cycles, kept in [0, 1)
     for (std::size_t n = 0; n < len; ++n) {
         x[n] = static_cast<float>(partial_sum(partials, kTwoPi * cycles));
         const double t = static_cast<double>(n) * dt;
@@ -84,14 +87,15 @@ double Vibrato::f0_hz(double t_s) const {
 }
 
 std::vector<float> vibrato_tone(double rate_hz, std::size_t len, const Vibrato& v, std::span<const Partial> partials) {
-    return harmonic_tone_fm(rate_hz, len, [&](double t) { return v.f0_hz(t); }, partials);
+    return harmonic_tone_fm(
+        rate_hz, len, [&](double t) { return v.f0_hz(t); }, partials);
 }
 
 double Glide::f0_hz(double t_s) const { return start_hz * std::exp2(cents_per_s * t_s / 1200.0); }
 
 double Glide::phase_rad(double t_s) const {
     if (cents_per_s == 0.0) return kTwoPi * start_hz * t_s;
-    const double k = cents_per_s * std::numbers::ln2 / 1200.0;   // f0 = start * e^(k t)
+    const double k = cents_per_s * std::numbers::ln2 / 1200.0;  // f0 = start * e^(k t)
     return kTwoPi * start_hz * std::expm1(k * t_s) / k;
 }
 

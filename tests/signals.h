@@ -20,9 +20,9 @@
 namespace beatless::test {
 
 struct Partial {
-    int number = 1;           // harmonic number (1 = fundamental)
-    double amplitude = 1.0;   // peak amplitude (linear)
-    double phase_rad = 0.0;   // phase at t = 0
+    int number = 1;          // harmonic number (1 = fundamental)
+    double amplitude = 1.0;  // peak amplitude (linear)
+    double phase_rad = 0.0;  // phase at t = 0
 };
 
 // Partials 1.. of a "realistic" tone: amplitude falling db_per_octave per
@@ -30,9 +30,8 @@ struct Partial {
 // max_partials of them, only those with l * max_f0_hz <= nyquist_fraction * rate / 2,
 // random phases (uniform, from seed), scaled so the peak of the sum of
 // amplitudes is `peak` (the waveform never exceeds it).
-std::vector<Partial> falling_partials(double max_f0_hz, double rate_hz, int max_partials,
-                                      double db_per_octave, std::uint64_t seed,
-                                      double peak = 0.5, double nyquist_fraction = 0.9);
+std::vector<Partial> falling_partials(double max_f0_hz, double rate_hz, int max_partials, double db_per_octave,
+                                      std::uint64_t seed, double peak = 0.5, double nyquist_fraction = 0.9);
 
 // Same amplitudes but with the listed harmonic numbers removed (for instance
 // {1} for a missing fundamental).
@@ -54,7 +53,7 @@ std::vector<float> harmonic_tone_fm(double rate_hz, std::size_t len, const std::
 // Sinusoidal vibrato in cents: f0(t) = centre * 2^(depth/1200 * sin(2 pi rate t + phase)).
 struct Vibrato {
     double centre_hz = 220.0;
-    double depth_cents = 50.0;   // peak deviation (half the peak-to-peak swing)
+    double depth_cents = 50.0;  // peak deviation (half the peak-to-peak swing)
     double rate_hz = 5.5;
     double phase_rad = 0.0;
     double f0_hz(double t_s) const;
@@ -66,7 +65,7 @@ struct Glide {
     double start_hz = 220.0;
     double cents_per_s = 1200.0;
     double f0_hz(double t_s) const;
-    double phase_rad(double t_s) const;   // 2 pi * integral of f0 from 0 to t (closed form)
+    double phase_rad(double t_s) const;  // 2 pi * integral of f0 from 0 to t (closed form)
 };
 std::vector<float> glide_tone(double rate_hz, std::size_t len, const Glide& g, std::span<const Partial> partials);
 

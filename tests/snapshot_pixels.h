@@ -8,8 +8,8 @@
 
 #include "tests/cli.h"
 #include "ui/render/imgui_host.h"
-#include "ui/screens/palette.h"
 #include "ui/render/raster.h"
+#include "ui/screens/palette.h"
 
 #include <doctest/doctest.h>
 #include <stb_image.h>
@@ -29,7 +29,9 @@ namespace beatless::test {
 struct Image {
     int w = 0, h = 0;
     std::vector<std::uint32_t> px;  // IM_COL32 packing, like ui/render/raster.h
-    std::uint32_t at(int x, int y) const { return px[static_cast<std::size_t>(y) * static_cast<std::size_t>(w) + static_cast<std::size_t>(x)]; }
+    std::uint32_t at(int x, int y) const {
+        return px[static_cast<std::size_t>(y) * static_cast<std::size_t>(w) + static_cast<std::size_t>(x)];
+    }
 };
 
 inline Image read_png(const std::string& path) {
@@ -77,7 +79,8 @@ inline Box find_colour(const Image& img, std::uint32_t colour, int y_from = 0, i
 // Text rendered offscreen exactly as the screens draw it: the face at the
 // host's size, whole-pixel position, on a given background. Returns the
 // tight box of pixels that differ from the background.
-inline Image render_text(const std::string& text, ui::FontFace face, std::uint32_t colour, std::uint32_t background, float dpi_scale) {
+inline Image render_text(const std::string& text, ui::FontFace face, std::uint32_t colour, std::uint32_t background,
+                         float dpi_scale) {
     ui::HostConfig hc;
     hc.width_px = 1600;
     hc.height_px = 300;
@@ -86,10 +89,13 @@ inline Image render_text(const std::string& text, ui::FontFace face, std::uint32
     ui::ImGuiHost host(hc);
     ui::Rasterizer raster;
     ui::PixelBuffer buf;
-    ui::render_offscreen(host, raster, buf, 1.0f / 60.0f, [&] {
-        ImFont* f = host.font(face);
-        ImGui::GetBackgroundDrawList()->AddText(f, f->FontSize, ImVec2(20, 20), colour, text.c_str());
-    }, background);
+    ui::render_offscreen(
+        host, raster, buf, 1.0f / 60.0f,
+        [&] {
+            ImFont* f = host.font(face);
+            ImGui::GetBackgroundDrawList()->AddText(f, f->FontSize, ImVec2(20, 20), colour, text.c_str());
+        },
+        background);
     Box b;
     for (int y = 0; y < buf.height_px; ++y)
         for (int x = 0; x < buf.width_px; ++x)

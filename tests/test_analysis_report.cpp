@@ -6,9 +6,9 @@
 // report_layout() maps times and cents to, so a wrong mapping, a missing
 // layer or a wrong colour fails them.
 #include "pitch/measure/decimated_trace.h"
-#include "ui/screens/take_report.h"
-#include "ui/render/png.h"
 #include "tests/cli.h"
+#include "ui/render/png.h"
+#include "ui/screens/take_report.h"
 
 #include <doctest/doctest.h>
 
@@ -30,7 +30,8 @@ ReportData sample(const pitch::DecimatedTrace* trace, double dur_s) {
                  {617.488, "10/7", "greater septimal tritone", true},
                  {551.318, "11/8", "", false}};
     // The voice an octave up: targets at 1782.5 and 1817.5 cents.
-    d.marks = {{1.0, 3.0, 1780.5, 1782.512, -2.0}, {4.0, 6.0, 1826.5, 1817.488, 9.0}, {7.0, 9.0, 1762.5, 1782.512, -20.0}};
+    d.marks = {
+        {1.0, 3.0, 1780.5, 1782.512, -2.0}, {4.0, 6.0, 1826.5, 1817.488, 9.0}, {7.0, 9.0, 1762.5, 1782.512, -20.0}};
     d.summary = {{"7/5", "lesser septimal tritone", 2, -11.0, 12.7, "averages 11 cents flat"},
                  {"10/7", "greater septimal tritone", 1, 9.0, 0.0, "averages 9 cents sharp"}};
     return d;
@@ -137,6 +138,7 @@ TEST_CASE("written as PNG; an unwritable path is one line naming it") {
     CHECK(std::fread(sig, 1, 8, f) == 8);
     std::fclose(f);
     CHECK(sig[1] == 'P');
-    CHECK_THROWS_WITH(write_report(dir.file("none/r.png"), d),
-                      (dir.file("none/r.png") + ": the folder " + dir.file("none") + " does not exist (create it first)").c_str());
+    CHECK_THROWS_WITH(
+        write_report(dir.file("none/r.png"), d),
+        (dir.file("none/r.png") + ": the folder " + dir.file("none") + " does not exist (create it first)").c_str());
 }

@@ -24,11 +24,13 @@ namespace {
 
 std::vector<float> test_signal(std::size_t n, double fs) {
     std::vector<float> x(n);
-    for (std::size_t i = 0; i < n; ++i) x[i] = static_cast<float>(0.5 * std::sin(2 * std::numbers::pi * 440.0 * i / fs));
+    for (std::size_t i = 0; i < n; ++i)
+        x[i] = static_cast<float>(0.5 * std::sin(2 * std::numbers::pi * 440.0 * i / fs));
     return x;
 }
 
-void write_with_format(const std::string& path, int format, const std::vector<float>& interleaved, int channels, int rate) {
+void write_with_format(const std::string& path, int format, const std::vector<float>& interleaved, int channels,
+                       int rate) {
     SF_INFO info{};
     info.samplerate = rate;
     info.channels = channels;
@@ -42,8 +44,7 @@ void write_with_format(const std::string& path, int format, const std::vector<fl
 std::string error_of(const std::string& path, int channel = -1) {
     try {
         SoundReader r(path, channel);
-        for (auto b = r.read(); !b.empty(); b = r.read()) {
-        }
+        for (auto b = r.read(); !b.empty(); b = r.read()) {}
     } catch (const Error& e) {
         return e.what();
     }
@@ -74,7 +75,8 @@ TEST_CASE("WAV, FLAC, AIFF and Ogg files round-trip through the reader") {
         CHECK(got_rate == rate);
         REQUIRE(y.size() == x.size());
         double max_err = 0;
-        for (std::size_t i = 2000; i < x.size() - 2000; ++i) max_err = std::max(max_err, std::fabs(double(y[i]) - x[i]));
+        for (std::size_t i = 2000; i < x.size() - 2000; ++i)
+            max_err = std::max(max_err, std::fabs(double(y[i]) - x[i]));
         CHECK(max_err < c.tolerance);
     }
 }
@@ -109,20 +111,25 @@ TEST_CASE("bad sound files give one-line messages naming the file") {
     { std::ofstream(dir.file("empty.wav")); }
     CHECK(error_of(dir.file("empty.wav")) == dir.file("empty.wav") + ": is empty (0 bytes)");
     { std::ofstream(dir.file("notes.txt")) << "this is not audio, just text\n"; }
-    CHECK(error_of(dir.file("notes.txt")).rfind(dir.file("notes.txt") + ": not a sound file that can be read (", 0) == 0);
+    CHECK(error_of(dir.file("notes.txt")).rfind(dir.file("notes.txt") + ": not a sound file that can be read (", 0) ==
+          0);
     write_with_format(dir.file("zero.wav"), SF_FORMAT_WAV | SF_FORMAT_PCM_16, {}, 1, 44100);
     CHECK(error_of(dir.file("zero.wav")) == dir.file("zero.wav") + ": contains no audio (0 frames)");
     write_with_format(dir.file("low.wav"), SF_FORMAT_WAV | SF_FORMAT_PCM_16, test_signal(100, 4000), 1, 4000);
-    CHECK(error_of(dir.file("low.wav")) == dir.file("low.wav") + ": sample rate 4000 Hz is not supported (8000 Hz to 192000 Hz)");
+    CHECK(error_of(dir.file("low.wav")) ==
+          dir.file("low.wav") + ": sample rate 4000 Hz is not supported (8000 Hz to 192000 Hz)");
     write_with_format(dir.file("mono.wav"), SF_FORMAT_WAV | SF_FORMAT_PCM_16, test_signal(100, 44100), 1, 44100);
-    CHECK(error_of(dir.file("mono.wav"), 2) == dir.file("mono.wav") + ": channel 3 does not exist (the file has 1 channel)");
+    CHECK(error_of(dir.file("mono.wav"), 2) ==
+          dir.file("mono.wav") + ": channel 3 does not exist (the file has 1 channel)");
     auto x = test_signal(44100, 44100);
     x[22050] = std::numeric_limits<float>::quiet_NaN();
     write_with_format(dir.file("nan.wav"), SF_FORMAT_WAV | SF_FORMAT_FLOAT, x, 1, 44100);
-    CHECK(error_of(dir.file("nan.wav")) == dir.file("nan.wav") + ": contains a non-finite sample (NaN or infinity) at 0.5 s");
+    CHECK(error_of(dir.file("nan.wav")) ==
+          dir.file("nan.wav") + ": contains a non-finite sample (NaN or infinity) at 0.5 s");
     x[22050] = std::numeric_limits<float>::infinity();
     write_with_format(dir.file("inf.wav"), SF_FORMAT_WAV | SF_FORMAT_FLOAT, x, 1, 44100);
-    CHECK(error_of(dir.file("inf.wav")) == dir.file("inf.wav") + ": contains a non-finite sample (NaN or infinity) at 0.5 s");
+    CHECK(error_of(dir.file("inf.wav")) ==
+          dir.file("inf.wav") + ": contains a non-finite sample (NaN or infinity) at 0.5 s");
 }
 
 TEST_CASE("the synthesizer matches the closed form of a harmonic tone") {
@@ -196,7 +203,8 @@ TEST_CASE("no partial passes Nyquist") {
     };
     const auto a = timbre_partials(Timbre::bright);
     CHECK(amplitude_at(f0) == doctest::Approx(a[0]).epsilon(1e-3));
-    CHECK(band_limit_gain(9 * f0, fs) == doctest::Approx(0.5 + 0.5 * std::cos(std::numbers::pi * (18000.0 / fs - 0.40) / 0.05)));
+    CHECK(band_limit_gain(9 * f0, fs) ==
+          doctest::Approx(0.5 + 0.5 * std::cos(std::numbers::pi * (18000.0 / fs - 0.40) / 0.05)));
     // Partial 12 would be at 24 kHz, folding back to 20.1 kHz; nothing there.
     CHECK(amplitude_at(fs - 12 * f0) < 1e-5);
     CHECK(amplitude_at(fs - 11 * f0) < 1e-5);

@@ -8,9 +8,9 @@
 // ch. VIII. 12-TET frequencies: ISO 16 (A4 = 440 Hz), MIDI 69 = A4. The
 // least-squares root is checked against numpy and scipy
 // (tests/reference/lsq_root.py, run with /usr/bin/python3).
+#include "pitch/base/error.h"
 #include "pitch/theory/beats.h"
 #include "pitch/theory/chord.h"
-#include "pitch/base/error.h"
 #include "pitch/theory/notes.h"
 #include "pitch/theory/spelling.h"
 
@@ -88,10 +88,10 @@ TEST_CASE("spelling voices from the chord root") {
     CHECK(spell_pitch_class(eb, 4) == "G");
     CHECK(spell_pitch_class(eb, 10) == "Db");
     CHECK(spell_pitch_class(parse_tonic("F#"), 3) == "A");
-    CHECK(spell_pitch_class(parse_tonic("F"), 6) == "B");     // #4 of F
-    CHECK(spell_pitch_class(parse_tonic("Gb"), 5) == "Cb");   // 4 of Gb
-    CHECK(spell_midi(parse_tonic("Gb"), 59) == "Cb4");        // Cb4 sounds as B3 (MIDI 59)
-    CHECK(spell_midi(parse_tonic("C#"), 60) == "B#3");        // 7 of C#: B#3 sounds as C4
+    CHECK(spell_pitch_class(parse_tonic("F"), 6) == "B");    // #4 of F
+    CHECK(spell_pitch_class(parse_tonic("Gb"), 5) == "Cb");  // 4 of Gb
+    CHECK(spell_midi(parse_tonic("Gb"), 59) == "Cb4");       // Cb4 sounds as B3 (MIDI 59)
+    CHECK(spell_midi(parse_tonic("C#"), 60) == "B#3");       // 7 of C#: B#3 sounds as C4
     CHECK(spell_midi(parse_tonic("A"), 69) == "A4");
     CHECK_THROWS_AS(parse_tonic("H"), Error);
     // In a chord: diminished fifths with a minor third, augmented fifths without a fifth.
@@ -200,7 +200,8 @@ namespace {
 
 std::vector<double> played(const Chord& c, double root_hz, const std::vector<double>& off_cents) {
     std::vector<double> f;
-    for (std::size_t i = 0; i < c.size(); ++i) f.push_back(root_hz * std::exp2((c.voice_cents(i) + off_cents[i]) / 1200.0));
+    for (std::size_t i = 0; i < c.size(); ++i)
+        f.push_back(root_hz * std::exp2((c.voice_cents(i) + off_cents[i]) / 1200.0));
     return f;
 }
 
@@ -304,8 +305,8 @@ TEST_CASE("best-fitting root agrees with numpy lstsq and scipy's direct minimisa
         double r_lstsq = 0.0, r_scipy = 0.0;
         REQUIRE(static_cast<bool>(lines >> r_lstsq >> r_scipy));
         const double r = reference_root_hz(k.chord, ChordReference::best_fit, k.fixed, k.f, k.w);
-        CHECK(std::fabs(1200.0 * std::log2(r / r_lstsq)) < 1e-9);   // cents
-        CHECK(std::fabs(1200.0 * std::log2(r / r_scipy)) < 1e-5);   // bounded scalar search tolerance
+        CHECK(std::fabs(1200.0 * std::log2(r / r_lstsq)) < 1e-9);  // cents
+        CHECK(std::fabs(1200.0 * std::log2(r / r_scipy)) < 1e-5);  // bounded scalar search tolerance
         // The weighted deviations sum to zero at the optimum.
         std::vector<double> dev(k.chord.size());
         voice_deviations(k.chord, r, k.f, dev);
@@ -355,7 +356,9 @@ TEST_CASE("stepping a flat root keeps flats") {
     CHECK(midi_to_name(70, BlackKeys::flats) == "Bb4");
     CHECK(midi_to_name(70, BlackKeys::sharps) == "A#4");
     CHECK(has_flat("Bb3"));
-    CHECK(has_flat("E\xE2\x99\xAD" "2"));
+    CHECK(
+        has_flat("E\xE2\x99\xAD"
+                 "2"));
     CHECK_FALSE(has_flat("B3"));
     CHECK_FALSE(has_flat("110"));
     CHECK(spell_hz_above_root("Bb3", 233.0819).name == "Bb3");  // ISO 16: Bb3 = 440 * 2^(-11/12) / 2 Hz

@@ -81,6 +81,8 @@ TEST_CASE("bad chord files name the file and line") {
           "my.toml:4: `voices`: names 2 parts but the chord '4:5:6' has 3 voices");
     CHECK(error_of("kind = \"chord\"\ntitle = \"x\"\nchord = \"4:5:6\"\nvoices = [\"a\", 2, \"c\"]\n") ==
           "my.toml:4: `voices`: each entry must be a string, not an integer");
-    CHECK(error_of("kind = \"chord\"\ntitle = 3\nchord = \"4:5:6\"\n") == "my.toml:2: `title`: must be a string, not an integer");
-    CHECK(error_of("kind = \"chord\"\ntitle = \"x\"\nchord = 456\n") == "my.toml:3: `chord`: must be a string, not an integer");
+    CHECK(error_of("kind = \"chord\"\ntitle = 3\nchord = \"4:5:6\"\n") ==
+          "my.toml:2: `title`: must be a string, not an integer");
+    CHECK(error_of("kind = \"chord\"\ntitle = \"x\"\nchord = 456\n") ==
+          "my.toml:3: `chord`: must be a string, not an integer");
 }

@@ -56,14 +56,21 @@ std::vector<std::string> words(const std::string& json, const std::string& list_
 double cents(double a, double b) { return 1200.0 * std::log2(a / b); }
 }  // namespace
 
-TEST_CASE("a drone and a voice holding five mistuned tritones: every note, within 1 cent, the right target, the root within 0.2 cent") {
+TEST_CASE(
+    "a drone and a voice holding five mistuned tritones: every note, within 1 cent, the right target, the root within "
+    "0.2 cent") {
     TempDir dir;
     const char* names[] = {"7/5", "10/7", "11/8", "45/32", "16/11"};
     const auto truth = tritone_notes();
-    struct Case { double root; std::uint64_t seed; int octaves; double fs; };
+    struct Case {
+        double root;
+        std::uint64_t seed;
+        int octaves;
+        double fs;
+    };
     // 110 Hz at 48 kHz sits on a half bin of the root detector's frame (its odd harmonics between two bins).
-    for (const Case c : {Case{110.0, 1, 1, kFs}, Case{146.8324, 2, 1, kFs}, Case{87.31, 3, 1, kFs}, Case{220.0, 4, 0, kFs},
-                         Case{110.0, 5, 1, 48000.0}}) {
+    for (const Case c : {Case{110.0, 1, 1, kFs}, Case{146.8324, 2, 1, kFs}, Case{87.31, 3, 1, kFs},
+                         Case{220.0, 4, 0, kFs}, Case{110.0, 5, 1, 48000.0}}) {
         CAPTURE(c.root);
         CAPTURE(c.seed);
         CAPTURE(c.fs);
@@ -127,7 +134,8 @@ TEST_CASE("text, CSV, a target file and a given root") {
     {
         std::ofstream f(set);
         f << "kind = \"targets\"\ntitle = \"Five tritones\"\n";
-        for (const char* iv : {"7/5", "10/7", "11/8", "45/32", "16/11"}) f << "[[target]]\ninterval = \"" << iv << "\"\n";
+        for (const char* iv : {"7/5", "10/7", "11/8", "45/32", "16/11"})
+            f << "[[target]]\ninterval = \"" << iv << "\"\n";
     }
     const Take take = drone_and_voice(kFs, 110.0, {{10.0 / 7.0, -6.0}, {10.0 / 7.0, -5.0}, {7.0 / 5.0, 3.0}}, 9);
     const std::string wav = dir.file("take.wav");
@@ -140,7 +148,9 @@ TEST_CASE("text, CSV, a target file and a given root") {
 
     const auto csv = run_program({"analyze", wav, "--targets", set, "--format", "csv"});
     REQUIRE(csv.exit_code == 0);
-    CHECK(csv.out.rfind("start_s,end_s,f0_hz,ratio,target,target_name,dev_cents,spread_cents,settle_s,beat_hz,partial_root,partial_voice,beat_in_tune_hz\n", 0) == 0);
+    CHECK(csv.out.rfind("start_s,end_s,f0_hz,ratio,target,target_name,dev_cents,spread_cents,settle_s,beat_hz,partial_"
+                        "root,partial_voice,beat_in_tune_hz\n",
+                        0) == 0);
     CHECK(beatless::test::line_count(csv.out) == 4);
     CHECK(csv.out.find(",10/7,greater septimal tritone,-") != std::string::npos);
 
@@ -155,8 +165,8 @@ TEST_CASE("text, CSV, a target file and a given root") {
     REQUIRE(dev.size() == 3);
     CHECK(std::fabs(dev[0] + 6.0) < 1.0);
     // A root given 3 cents high moves every deviation 3 cents flat; the comb still follows the drone.
-    const auto high = run_program({"analyze", wav, "--targets", set, "--root", std::to_string(110.0 * std::exp2(3.0 / 1200.0)),
-                                   "--format", "json"});
+    const auto high = run_program({"analyze", wav, "--targets", set, "--root",
+                                   std::to_string(110.0 * std::exp2(3.0 / 1200.0)), "--format", "json"});
     REQUIRE(high.exit_code == 0);
     const auto dev_high = numbers(high.out, "[n['dev_cents'] for n in d['notes']]");
     REQUIRE(dev_high.size() == 3);
@@ -165,7 +175,7 @@ TEST_CASE("text, CSV, a target file and a given root") {
 
 TEST_CASE("two voices from one microphone: held intervals at and off just ratios, equal and unequal loudness") {
     TempDir dir;
-    std::vector<HeldDyad> truth = {{3, 2, 3, 0.2, 0.2, 196}, {5, 4, -3, 0.2, 0.08, 220}, {7, 4, 7, 0.08, 0.2, 150},
+    std::vector<HeldDyad> truth = {{3, 2, 3, 0.2, 0.2, 196},  {5, 4, -3, 0.2, 0.08, 220}, {7, 4, 7, 0.08, 0.2, 150},
                                    {6, 5, -7, 0.2, 0.2, 247}, {4, 3, 12, 0.2, 0.06, 180}, {7, 5, -12, 0.15, 0.15, 200},
                                    {5, 3, 0, 0.2, 0.2, 165}};
     // Held 3.2 s: long enough for a beat of one per second to show whole cycles.
@@ -193,7 +203,8 @@ TEST_CASE("two voices from one microphone: held intervals at and off just ratios
         CHECK(std::fabs(cents(f_high[i], d.f_high_hz())) < 1.0);
         const double beat = beatless::pitch::beat_rate_at(d.f_low_hz, ratio, d.off_cents);
         CHECK(std::fabs(predicted[i] - beat) <= std::max(0.02 * beat, 0.02));
-        MESSAGE(ratio.str() << " " << d.off_cents << " c: predicted " << predicted[i] << " Hz, measured " << measured[i] << " Hz");
+        MESSAGE(ratio.str() << " " << d.off_cents << " c: predicted " << predicted[i] << " Hz, measured " << measured[i]
+                            << " Hz");
         CHECK(std::fabs(measured[i] - predicted[i]) <= std::max(0.1 * predicted[i], 0.2));
     }
     // The summary speaks of intervals, wide and narrow.
@@ -201,7 +212,9 @@ TEST_CASE("two voices from one microphone: held intervals at and off just ratios
     REQUIRE(text.exit_code == 0);
     CHECK(text.out.find("4/3 averages 12 cents wide (1 interval)") != std::string::npos);
     const auto csv = run_program({"analyze", wav, "--voices", "2", "--format", "csv"});
-    CHECK(csv.out.rfind("start_s,end_s,f_low_hz,f_high_hz,interval_cents,target,target_name,dev_cents,spread_cents,predicted_beat_hz,measured_beat_hz\n", 0) == 0);
+    CHECK(csv.out.rfind("start_s,end_s,f_low_hz,f_high_hz,interval_cents,target,target_name,dev_cents,spread_cents,"
+                        "predicted_beat_hz,measured_beat_hz\n",
+                        0) == 0);
     CHECK(beatless::test::line_count(csv.out) == 8);
 }
 
@@ -213,11 +226,13 @@ TEST_CASE("no drone, silence, noise only, a clipped take: clear messages or empt
     const auto a = run_program({"analyze", dir.file("alone.wav")});
     CHECK(a.exit_code == 1);
     CHECK(a.out.empty());
-    CHECK(a.err.rfind("beatless: " + dir.file("alone.wav") + ": no steady drone or pedal tone found (best candidate ", 0) == 0);
+    CHECK(a.err.rfind("beatless: " + dir.file("alone.wav") + ": no steady drone or pedal tone found (best candidate ",
+                      0) == 0);
     CHECK(a.err.find("; give --root NOTE|HZ\n") != std::string::npos);
     CHECK(beatless::test::line_count(a.err) == 1);
     // Given a root, the same voice is measured.
-    const auto a2 = run_program({"analyze", dir.file("alone.wav"), "--root", "110", "--targets", "tritones", "--format", "json"});
+    const auto a2 =
+        run_program({"analyze", dir.file("alone.wav"), "--root", "110", "--targets", "tritones", "--format", "json"});
     CHECK(a2.exit_code == 0);
     CHECK(json_value(a2.out, "len(d['notes'])") == "5");
 
@@ -227,7 +242,8 @@ TEST_CASE("no drone, silence, noise only, a clipped take: clear messages or empt
         args.insert(args.end(), extra.begin(), extra.end());
         const auto s = run_program(args);
         CHECK(s.exit_code == 1);
-        CHECK(s.err == "beatless: " + dir.file("silence.wav") + ": silent (no sound above -60 dBFS); nothing to analyze\n");
+        CHECK(s.err ==
+              "beatless: " + dir.file("silence.wav") + ": silent (no sound above -60 dBFS); nothing to analyze\n");
     }
 
     std::vector<float> noise(static_cast<std::size_t>(4 * kFs), 0.0f);
@@ -260,7 +276,9 @@ TEST_CASE("no drone, silence, noise only, a clipped take: clear messages or empt
     CHECK(json_value(c.out, "all(n['clipped'] for n in d['notes'])") == "True");
 }
 
-TEST_CASE("a double bass over E1: with --lowest 38 every note is found within 1 cent; the default floor of 55 Hz misses two") {
+TEST_CASE(
+    "a double bass over E1: with --lowest 38 every note is found within 1 cent; the default floor of 55 Hz misses "
+    "two") {
     // 9/8 and 5/4 over E1 (41.20 Hz, 12-TET from A4 = 440 Hz, ISO 16) are
     // 46.4 and 51.5 Hz, below 55 Hz; 4/3 is 54.9 Hz, at the edge.
     TempDir dir;
@@ -291,7 +309,8 @@ TEST_CASE("the report: a 2000 x 1200 PNG") {
     TempDir dir;
     const Take take = drone_and_voice(kFs, 110.0, tritone_notes(), 1);
     write(dir.file("take.wav"), take.samples);
-    const auto r = run_program({"analyze", dir.file("take.wav"), "--targets", "tritones", "--report", dir.file("take.png")});
+    const auto r =
+        run_program({"analyze", dir.file("take.wav"), "--targets", "tritones", "--report", dir.file("take.png")});
     REQUIRE(r.exit_code == 0);
     std::ifstream png(dir.file("take.png"), std::ios::binary);
     REQUIRE(png.good());
@@ -300,13 +319,16 @@ TEST_CASE("the report: a 2000 x 1200 PNG") {
     CHECK(head[0] == 0x89);
     CHECK(std::string(reinterpret_cast<char*>(head) + 1, 3) == "PNG");
     CHECK(std::string(reinterpret_cast<char*>(head) + 12, 4) == "IHDR");
-    const auto be32 = [&](int at) { return (head[at] << 24) | (head[at + 1] << 16) | (head[at + 2] << 8) | head[at + 3]; };
+    const auto be32 = [&](int at) {
+        return (head[at] << 24) | (head[at + 1] << 16) | (head[at + 2] << 8) | head[at + 3];
+    };
     CHECK(be32(16) == 2000);
     CHECK(be32(20) == 1200);
     // A directory that does not exist is refused before the analysis.
     const auto bad = run_program({"analyze", dir.file("take.wav"), "--report", dir.file("no/such/dir/take.png")});
     CHECK(bad.exit_code == 1);
-    CHECK(bad.err == "beatless: " + dir.file("no/such/dir/take.png") + ": cannot be written (no directory " + dir.file("no/such/dir") + ")\n");
+    CHECK(bad.err == "beatless: " + dir.file("no/such/dir/take.png") + ": cannot be written (no directory " +
+                         dir.file("no/such/dir") + ")\n");
     CHECK(bad.out.empty());
 }
 
@@ -316,14 +338,21 @@ TEST_CASE("bad input and bad usage") {
     add_tone(x, kFs, 110.0, 0.0, 1.0, 0.2, rolloff(6));
     write(dir.file("short.wav"), x);
     const std::string wav = dir.file("short.wav");
-    struct Case { std::vector<std::string> args; int code; std::string err; };
+    struct Case {
+        std::vector<std::string> args;
+        int code;
+        std::string err;
+    };
     const Case cases[] = {
         {{"analyze", dir.file("missing.wav")}, 1, "beatless: " + dir.file("missing.wav") + ": no such file\n"},
         {{"analyze", wav, "--voices", "3"}, 2, "beatless: --voices 3: choose 1 or 2\n"},
-        {{"analyze", wav, "--voices", "2", "--root", "A2"}, 2,
+        {{"analyze", wav, "--voices", "2", "--root", "A2"},
+         2,
          "beatless: --root: with --voices 2 the interval is measured between the two voices; leave --root out\n"},
         {{"analyze", wav, "--root", "5"}, 1, "beatless: '5' = 5 Hz: out of range for a root (20 to 2000 Hz)\n"},
-        {{"analyze", wav, "--root", "H9"}, 1, "beatless: 'H9': not a note name (expected a form such as C4, F#3 or Bb2)\n"},
+        {{"analyze", wav, "--root", "H9"},
+         1,
+         "beatless: 'H9': not a note name (expected a form such as C4, F#3 or Bb2)\n"},
         {{"analyze", wav, "--a4", "300"}, 1, "beatless: A4 reference 300 Hz: out of range (400 to 480 Hz)\n"},
         {{"analyze", wav, "--targets", "tritonez"}, 1, ""},
         {{"analyze", wav, "--channel", "3"}, 1, ""},

@@ -57,7 +57,8 @@ TEST_CASE("beatless chord: names, files, ratio lists, csv and text") {
     CHECK(text.out.find("C#5") != std::string::npos);  // 550 Hz is C#5 -13.7 (sharps when the root is in Hz)
     CHECK(text.out.find("-13.7 c") != std::string::npos);
 
-    const auto file = run_program("chord '" BEATLESS_SOURCE_DIR "/targets/septimal-minor.toml' --root D4 --format json");
+    const auto file =
+        run_program("chord '" BEATLESS_SOURCE_DIR "/targets/septimal-minor.toml' --root D4 --format json");
     REQUIRE(file.exit_code == 0);
     CHECK(json_value(file.out, "d['voices'][1]['note']") == "F4");
 }

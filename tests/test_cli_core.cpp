@@ -34,7 +34,8 @@ TEST_CASE("ratio --format json carries the facts of each interval") {
     CHECK(json_number(r.out, "cents", at) == doctest::Approx(1200 * std::log2(10.0 / 7.0)).epsilon(1e-6));
     CHECK(json_number(r.out, "prime_limit", at) == 7);
     CHECK(json_number(r.out, "tenney_height", at) == doctest::Approx(std::log2(70.0)).epsilon(1e-4));
-    CHECK(json_number(r.out, "et_offset_cents", at) == doctest::Approx(1200 * std::log2(10.0 / 7.0) - 600).epsilon(1e-4));
+    CHECK(json_number(r.out, "et_offset_cents", at) ==
+          doctest::Approx(1200 * std::log2(10.0 / 7.0) - 600).epsilon(1e-4));
     const auto et = r.out.find("\"ratio\": \"600c\"");
     REQUIRE(et != std::string::npos);
     CHECK(r.out.find("\"prime_limit\": null", et) != std::string::npos);
@@ -67,8 +68,10 @@ TEST_CASE("bad ratios and values: one line, exit 1") {
         {{"ratio", "7/0"}, "beatless: '7/0': denominator is zero\n"},
         {{"ratio", "--", "-7/5"}, "beatless: '-7/5': ratio must be positive (a negative number is not an interval)\n"},
         {{"ratio", "abc"}, "beatless: 'abc': not a ratio (expected a form such as 7/5, 7:5, 3/2*5/4 or 600c)\n"},
-        {{"ratio", "99999999999999999999/1"}, "beatless: '99999999999999999999/1': number too large for 64-bit ratio arithmetic\n"},
-        {{"ratio", "7/5", "--root", "H9"}, "beatless: 'H9': not a note name (expected a form such as C4, F#3 or Bb2)\n"},
+        {{"ratio", "99999999999999999999/1"},
+         "beatless: '99999999999999999999/1': number too large for 64-bit ratio arithmetic\n"},
+        {{"ratio", "7/5", "--root", "H9"},
+         "beatless: 'H9': not a note name (expected a form such as C4, F#3 or Bb2)\n"},
         {{"ratio", "7/5", "--a4", "300"}, "beatless: A4 reference 300 Hz: out of range (400 to 480 Hz)\n"},
         {{"tone", "--root", "A3", "--ratio", "7/5", "--seconds", "0", "--out", "/tmp/x.wav"},
          "beatless: --seconds 0: out of range (more than 0, at most 3600)\n"},
@@ -97,22 +100,24 @@ TEST_CASE("bad usage: one line, exit 2") {
 
 TEST_CASE("tone writes a file of the asked length, or names the file it cannot write") {
     TempDir dir;
-    const auto r = run_program({"tone", "--root", "A3", "--ratio", "7/5", "--seconds", "1.5", "--rate", "44100", "--out", dir.file("t.wav")});
+    const auto r = run_program(
+        {"tone", "--root", "A3", "--ratio", "7/5", "--seconds", "1.5", "--rate", "44100", "--out", dir.file("t.wav")});
     REQUIRE(r.exit_code == 0);
     std::ifstream f(dir.file("t.wav"), std::ios::binary | std::ios::ate);
     // 24-bit mono WAV: 44-byte header + 3 bytes per sample.
     CHECK(static_cast<long>(f.tellg()) == 44 + 3 * 66150);
     const auto bad = run_program({"tone", "--root", "A3", "--out", dir.file("no/such/dir/t.wav")});
     CHECK(bad.exit_code == 1);
-    CHECK(bad.err == "beatless: " + dir.file("no/such/dir/t.wav") + ": the folder " + dir.file("no/such/dir") + " does not exist (create it first)\n");
+    CHECK(bad.err == "beatless: " + dir.file("no/such/dir/t.wav") + ": the folder " + dir.file("no/such/dir") +
+                         " does not exist (create it first)\n");
     CHECK(line_count(bad.err) == 1);
 }
 
 TEST_CASE("track prints the DESIGN.md JSON and CSV forms") {
     TempDir dir;
     // A 7/5 voice 6 cents flat over A2, voice only (no drone), 44.1 kHz.
-    REQUIRE(run_program({"tone", "--root", "A2", "--ratio", "7/5", "--detune-cents", "-6", "--level-db", "-80", "--voice-db", "-14",
-                         "--seconds", "1", "--rate", "44100", "--out", dir.file("v.wav")})
+    REQUIRE(run_program({"tone", "--root", "A2", "--ratio", "7/5", "--detune-cents", "-6", "--level-db", "-80",
+                         "--voice-db", "-14", "--seconds", "1", "--rate", "44100", "--out", dir.file("v.wav")})
                 .exit_code == 0);
     const auto r = run_program({"track", dir.file("v.wav"), "--format", "json"});
     REQUIRE(r.exit_code == 0);
@@ -124,7 +129,8 @@ TEST_CASE("track prints the DESIGN.md JSON and CSV forms") {
           doctest::Approx(220.0 / 44100).epsilon(1e-3));
     // The median voiced f0 is 110 * 7/5 * 2^(-6/1200) = 153.4665 Hz (to 0.05 cent).
     const double f0 = std::stod(beatless::test::json_value(
-        r.out, "sorted(f['f0_hz'] for f in d['frames'] if f['f0_hz'])[len([f for f in d['frames'] if f['f0_hz']])//2]"));
+        r.out,
+        "sorted(f['f0_hz'] for f in d['frames'] if f['f0_hz'])[len([f for f in d['frames'] if f['f0_hz']])//2]"));
     CHECK(std::fabs(1200 * std::log2(f0 / (110 * 1.4 * std::exp2(-6 / 1200.0)))) < 0.05);
     const auto csv = run_program({"track", dir.file("v.wav"), "--format", "csv", "--hop-ms", "10"});
     REQUIRE(csv.exit_code == 0);
@@ -132,7 +138,9 @@ TEST_CASE("track prints the DESIGN.md JSON and CSV forms") {
     CHECK(line_count(csv.out) > 90);
     CHECK(line_count(csv.out) < 100);
     // Silence: every frame unvoiced, null in JSON and an empty field in CSV.
-    REQUIRE(run_program({"tone", "--root", "A2", "--level-db", "-80", "--seconds", "0.5", "--out", dir.file("quiet.wav")}).exit_code == 0);
+    REQUIRE(
+        run_program({"tone", "--root", "A2", "--level-db", "-80", "--seconds", "0.5", "--out", dir.file("quiet.wav")})
+            .exit_code == 0);
     const auto q = run_program({"track", dir.file("quiet.wav"), "--format", "csv"});
     CHECK(q.out.find(",,") != std::string::npos);
     const auto qj = run_program({"track", dir.file("quiet.wav")});
@@ -150,8 +158,10 @@ TEST_CASE("track: bad files and values, one line each, exit 1") {
     } cases[] = {
         {{"track", dir.file("missing.wav")}, "beatless: " + dir.file("missing.wav") + ": no such file\n"},
         {{"track", dir.file("empty.wav")}, "beatless: " + dir.file("empty.wav") + ": is empty (0 bytes)\n"},
-        {{"track", dir.file("text.wav")}, "beatless: " + dir.file("text.wav") + ": not a sound file that can be read ("},
-        {{"track", dir.file("ok.wav"), "--channel", "2"}, "beatless: " + dir.file("ok.wav") + ": channel 2 does not exist (the file has 1 channel)\n"},
+        {{"track", dir.file("text.wav")},
+         "beatless: " + dir.file("text.wav") + ": not a sound file that can be read ("},
+        {{"track", dir.file("ok.wav"), "--channel", "2"},
+         "beatless: " + dir.file("ok.wav") + ": channel 2 does not exist (the file has 1 channel)\n"},
         {{"track", dir.file("ok.wav"), "--hop-ms", "0"}, "beatless: --hop-ms 0: out of range (0.5 to 100 ms)\n"},
         {{"track", dir.file("ok.wav"), "--fmin", "900", "--fmax", "300"}, "beatless: YIN: "},
     };
@@ -179,15 +189,19 @@ TEST_CASE("tone with several ratios sings one note each, and analyze finds them"
     const double want[] = {-6, 4, 2, 3};
     for (int i = 0; i < 4; ++i) {
         CAPTURE(i);
-        const double dev = std::stod(beatless::test::json_value(a.out, "d['notes'][" + std::to_string(i) + "]['dev_cents']"));
+        const double dev =
+            std::stod(beatless::test::json_value(a.out, "d['notes'][" + std::to_string(i) + "]['dev_cents']"));
         CHECK(std::fabs(dev - want[i]) < 1.0);  // the review issue's bar
     }
-    const auto bad = run_program({"tone", "--root", "D3", "--ratio", "7/5,10/7", "--detune-cents", "-6,4,2", "--out", dir.file("x.wav")});
+    const auto bad = run_program(
+        {"tone", "--root", "D3", "--ratio", "7/5,10/7", "--detune-cents", "-6,4,2", "--out", dir.file("x.wav")});
     CHECK(bad.exit_code == 1);
     CHECK(bad.err == "beatless: --detune-cents: 3 values for 2 ratios (give one value, or one per ratio)\n");
 }
 
-TEST_CASE("ratio names only partials a drone sounds below the stated 4 kHz limit; commas beat at the fundamentals' difference") {
+TEST_CASE(
+    "ratio names only partials a drone sounds below the stated 4 kHz limit; commas beat at the fundamentals' "
+    "difference") {
     // 729/512 over D3: its own pair (729th of the root, 107 kHz) is far above
     // hearing; the pair named must lie at or below 4 kHz (the limit stated in
     // pitch/theory/beats.h, common practice) and its rate be |q f_upper - p f_root|
@@ -199,7 +213,8 @@ TEST_CASE("ratio names only partials a drone sounds below the stated 4 kHz limit
         REQUIRE(r.exit_code == 0);
         const std::string has = beatless::test::json_value(r.out, "d['intervals'][0]['audible_partials'] is not None");
         if (has == "True")
-            CHECK(std::stod(beatless::test::json_value(r.out, "d['intervals'][0]['audible_partials']['at_hz']")) <= 4000.0);
+            CHECK(std::stod(beatless::test::json_value(r.out, "d['intervals'][0]['audible_partials']['at_hz']")) <=
+                  4000.0);
         const auto text = run_program({"ratio", "729/512", "--root", root});
         REQUIRE(text.exit_code == 0);
         // Every "(N Hz)" the partials line gives is at or below the limit.
@@ -221,7 +236,8 @@ TEST_CASE("ratio names only partials a drone sounds below the stated 4 kHz limit
         CAPTURE(ratio);
         const auto c = run_program({"ratio", ratio, "--root", "D3", "--format", "json"});
         REQUIRE(c.exit_code == 0);
-        CHECK(std::stod(beatless::test::json_value(c.out, "[b['beat_hz'] for b in d['intervals'][0]['beats'] if b['dev_cents'] == 0][0]")) ==
+        CHECK(std::stod(beatless::test::json_value(
+                  c.out, "[b['beat_hz'] for b in d['intervals'][0]['beats'] if b['dev_cents'] == 0][0]")) ==
               doctest::Approx(hz).epsilon(1e-3));
     }
     const auto text = run_program({"ratio", "81/80", "--root", "D3"});
@@ -249,9 +265,10 @@ TEST_CASE("a root typed as Bb3 is echoed as Bb3, intervals spelled against it") 
     CHECK(run_program("chord 4:5:6:7 --root Bb2").out.find("on Bb2 = 116.541 Hz") != std::string::npos);
     CHECK(run_program("chord 4:5:6:7 --root Bb2").out.find("(near Bb0)") != std::string::npos);
     TempDir dir;
-    CHECK(run_program({"tone", "--root", "Bb3", "--seconds", "0.2", "--out", dir.file("t.wav")}).out.find("drone Bb3 = 233.082 Hz") !=
+    CHECK(run_program({"tone", "--root", "Bb3", "--seconds", "0.2", "--out", dir.file("t.wav")})
+              .out.find("drone Bb3 = 233.082 Hz") != std::string::npos);
+    CHECK(run_program("listen --demo --root Bb3 --seconds 0.05").err.find("root Bb3 = 233.082 Hz") !=
           std::string::npos);
-    CHECK(run_program("listen --demo --root Bb3 --seconds 0.05").err.find("root Bb3 = 233.082 Hz") != std::string::npos);
 }
 
 TEST_CASE("absurd roots, A4 references and lowest notes are refused with the accepted range") {
@@ -282,7 +299,8 @@ TEST_CASE("absurd roots, A4 references and lowest notes are refused with the acc
     }
     CHECK(run_program("ratio 3/2 --a4 nan").err == "beatless: A4 reference nan Hz: out of range (400 to 480 Hz)\n");
     CHECK(run_program("ratio 3/2 --a4 -1").exit_code == 1);
-    CHECK(run_program("listen --demo --lowest 10").err == "beatless: --lowest 10 = 10 Hz: out of range (30 to 200 Hz)\n");
+    CHECK(run_program("listen --demo --lowest 10").err ==
+          "beatless: --lowest 10 = 10 Hz: out of range (30 to 200 Hz)\n");
     CHECK(run_program("listen --demo --lowest -3").exit_code == 1);
     CHECK(run_program("listen --demo --seconds nan").exit_code == 1);
 }

@@ -41,14 +41,20 @@ std::vector<std::string> lines_of(const std::string& s) {
 TEST_CASE("beatless drill --demo: one line per hold in words, and the attempts in the practice log") {
     TempDir home;
     const std::string log = home.file("p.sqlite3");
-    const auto r = run_program("drill hold-septimal-tritones --demo --hold -3 --attempts 3 --log " + log, {"BEATLESS_HOME=" + home.path()});
+    const auto r = run_program("drill hold-septimal-tritones --demo --hold -3 --attempts 3 --log " + log,
+                               {"BEATLESS_HOME=" + home.path()});
     REQUIRE_MESSAGE(r.exit_code == 0, r.err);
     const auto lines = lines_of(r.out);
     REQUIRE(lines.size() == 3);
     // The drill alternates 7/5 and 10/7. The demo holds a steady pitch 3
     // cents flat with no vibrato, so the scored centre does not spread.
-    CHECK(lines[0] == "hold 1 of 3  7/5 lesser septimal tritone: locked in 0.3 s, held 3 cents flat, 100 % within \xC2\xB1" "6 c; spread 0 c while held");
-    CHECK(lines[1].rfind("hold 2 of 3  10/7 greater septimal tritone: locked in 0.3 s, held 3 cents flat, 100 % within \xC2\xB1" "6 c", 0) == 0);
+    CHECK(lines[0] ==
+          "hold 1 of 3  7/5 lesser septimal tritone: locked in 0.3 s, held 3 cents flat, 100 % within \xC2\xB1"
+          "6 c; spread 0 c while held");
+    CHECK(lines[1].rfind(
+              "hold 2 of 3  10/7 greater septimal tritone: locked in 0.3 s, held 3 cents flat, 100 % within \xC2\xB1"
+              "6 c",
+              0) == 0);
     CHECK(lines[2].rfind("hold 3 of 3  7/5 ", 0) == 0);
     CHECK(r.err.find("3 attempts saved to " + log) != std::string::npos);
     // They are the demo performer's: `beatless history` keeps them apart from the performer's own...
@@ -67,8 +73,9 @@ TEST_CASE("beatless drill --demo: one line per hold in words, and the attempts i
 
 TEST_CASE("beatless drill --format json: one object per hold") {
     TempDir home;
-    const auto r = run_program("drill hold-septimal-tritones --demo --hold 4 --attempts 2 --format json --log " + home.file("p.sqlite3"),
-                               {"BEATLESS_HOME=" + home.path()});
+    const auto r = run_program(
+        "drill hold-septimal-tritones --demo --hold 4 --attempts 2 --format json --log " + home.file("p.sqlite3"),
+        {"BEATLESS_HOME=" + home.path()});
     REQUIRE_MESSAGE(r.exit_code == 0, r.err);
     const auto lines = lines_of(r.out);
     REQUIRE(lines.size() == 2);
@@ -86,13 +93,16 @@ TEST_CASE("beatless drill --format json: one object per hold") {
     CHECK(json_value(lines[1], "d['target']") == "10/7");
 }
 
-TEST_CASE("beatless drill, discrimination: a finer listener gets a lower threshold, each inside its interval; perfect and guessing listeners are named") {
+TEST_CASE(
+    "beatless drill, discrimination: a finer listener gets a lower threshold, each inside its interval; perfect and "
+    "guessing listeners are named") {
     TempDir home;
     const std::string log = home.file("p.sqlite3");
     double thresholds[2] = {0, 0};
     const char* listeners[2] = {"3", "15"};
     for (int i = 0; i < 2; ++i) {
-        const auto r = run_program(std::string("drill ear-septimal-tritone --format json --seed 5 --listener ") + listeners[i] + " --log " + log,
+        const auto r = run_program(std::string("drill ear-septimal-tritone --format json --seed 5 --listener ") +
+                                       listeners[i] + " --log " + log,
                                    {"BEATLESS_HOME=" + home.path()});
         REQUIRE_MESSAGE(r.exit_code == 0, r.err);
         REQUIRE(line_count(r.out) == 1);
@@ -108,11 +118,14 @@ TEST_CASE("beatless drill, discrimination: a finer listener gets a lower thresho
         CHECK(json_value(r.out, "abs(sum(d['correct']) / d['trials'] - d['correct_share']) < 1e-3") == "True");
     }
     CHECK(thresholds[0] < thresholds[1]);
-    const auto p = run_program("drill ear-septimal-tritone --listener perfect --log " + log, {"BEATLESS_HOME=" + home.path()});
+    const auto p =
+        run_program("drill ear-septimal-tritone --listener perfect --log " + log, {"BEATLESS_HOME=" + home.path()});
     CHECK(p.out.rfind("ear-septimal-tritone: finer than 0.5 c after ", 0) == 0);
-    const auto g = run_program("drill ear-septimal-tritone --listener guess --seed 3 --log " + log, {"BEATLESS_HOME=" + home.path()});
+    const auto g = run_program("drill ear-septimal-tritone --listener guess --seed 3 --log " + log,
+                               {"BEATLESS_HOME=" + home.path()});
     CHECK(g.out.rfind("ear-septimal-tritone: no reliable threshold after ", 0) == 0);
-    const auto t = run_program("drill ear-septimal-tritone --listener 6 --log " + log, {"BEATLESS_HOME=" + home.path()});
+    const auto t =
+        run_program("drill ear-septimal-tritone --listener 6 --log " + log, {"BEATLESS_HOME=" + home.path()});
     CHECK(t.out.rfind("ear-septimal-tritone: threshold ", 0) == 0);
     CHECK(t.out.find(" c (95 % interval ") != std::string::npos);
     CHECK(t.out.find("method: 2-down 1-up staircase (Levitt 1971") != std::string::npos);
@@ -129,11 +142,15 @@ TEST_CASE("beatless drill, identification: the confusion matrix has every interv
     CHECK(json_value(r.out, "d['task']") == "identify");
     CHECK(json_value(r.out, "d['choices']") == "11/8 7/5 45/32 600c 10/7 729/512");
     CHECK(json_value(r.out, "[sum(row) for row in d['confusion']]") == "[8, 8, 8, 8, 8, 8]");  // rounds = 8
-    CHECK(json_value(r.out, "abs(sum(d['confusion'][i][i] for i in range(6)) / d['trials'] - d['correct_share']) < 1e-3") == "True");
-    const auto p = run_program("drill ear-tritones --listener perfect --log " + home.file("p.sqlite3"), {"BEATLESS_HOME=" + home.path()});
+    CHECK(json_value(r.out,
+                     "abs(sum(d['confusion'][i][i] for i in range(6)) / d['trials'] - d['correct_share']) < 1e-3") ==
+          "True");
+    const auto p = run_program("drill ear-tritones --listener perfect --log " + home.file("p.sqlite3"),
+                               {"BEATLESS_HOME=" + home.path()});
     CHECK(p.out.rfind("ear-tritones: 48 of 48 answers right (100 %)", 0) == 0);
     CHECK(p.out.find("confusion matrix (rows: played, columns: named)") != std::string::npos);
-    CHECK(p.out.find("10/7     729/512    5.8 c apart: 100 % of 16") != std::string::npos);  // 1200 log2(729/512 / 10/7) = -5.8 c
+    CHECK(p.out.find("10/7     729/512    5.8 c apart: 100 % of 16") !=
+          std::string::npos);  // 1200 log2(729/512 / 10/7) = -5.8 c
 }
 
 TEST_CASE("a practice log that cannot be written: the scores print, one line says where the attempts went, exit 1") {
@@ -141,13 +158,15 @@ TEST_CASE("a practice log that cannot be written: the scores print, one line say
     { std::ofstream(home.file("blocker")) << "a file where the data folder should be"; }
     // The default log, whose folder is blocked by a file (a --log in a missing folder is refused before the drill).
     const std::string log = home.file("blocker") + "/data/practice.sqlite3";
-    const auto r = run_program("drill hold-septimal-tritones --demo --hold -3 --attempts 2", {"BEATLESS_HOME=" + home.file("blocker")});
+    const auto r = run_program("drill hold-septimal-tritones --demo --hold -3 --attempts 2",
+                               {"BEATLESS_HOME=" + home.file("blocker")});
     CHECK(r.exit_code == 1);
     CHECK(line_count(r.out) == 2);  // the drill still ran
     const auto err = lines_of(r.err);
     REQUIRE(!err.empty());
     const std::string& last = err.back();
-    CHECK(last.find("practice log " + log + ": cannot write (cannot open or create it); 2 attempts kept") != std::string::npos);
+    CHECK(last.find("practice log " + log + ": cannot write (cannot open or create it); 2 attempts kept") !=
+          std::string::npos);
     const auto at = last.find("written to ");
     REQUIRE(at != std::string::npos);
     const std::string csv = last.substr(at + 11, last.find(' ', at + 11) - at - 11);
@@ -193,14 +212,19 @@ TEST_CASE("beatless drill: bad input gives one line naming the value, exit 1 or 
     }
 }
 
-TEST_CASE("the Drills screen does not start an ear drill without an output device, and says why; a simulated listener needs none") {
+TEST_CASE(
+    "the Drills screen does not start an ear drill without an output device, and says why; a simulated listener needs "
+    "none") {
     TempDir home;
     const std::string png = home.file("x.png");
-    const auto r = run_program("snapshot --screen drills --drill ear-septimal-tritone --seconds 2 --out " + png, {"BEATLESS_HOME=" + home.path()});
-    CHECK(r.exit_code == 0);
-    CHECK(r.err.find("no output device: an ear drill plays its questions, so it cannot start without one") != std::string::npos);
-    const auto l = run_program("snapshot --screen drills --drill ear-septimal-tritone --listener 5 --seconds 2 --out " + png,
+    const auto r = run_program("snapshot --screen drills --drill ear-septimal-tritone --seconds 2 --out " + png,
                                {"BEATLESS_HOME=" + home.path()});
+    CHECK(r.exit_code == 0);
+    CHECK(r.err.find("no output device: an ear drill plays its questions, so it cannot start without one") !=
+          std::string::npos);
+    const auto l =
+        run_program("snapshot --screen drills --drill ear-septimal-tritone --listener 5 --seconds 2 --out " + png,
+                    {"BEATLESS_HOME=" + home.path()});
     CHECK(l.exit_code == 0);
     CHECK(l.err.find("no output device") == std::string::npos);
 }

@@ -51,8 +51,8 @@ TEST_CASE("listen --input-file --fast: a recorded drone at the root is removed a
     TempDir dir;
     const std::string wav = dir.file("take.wav");
     // Drone A2 (110 Hz), voice at 7/5 + 3 cents, the drone 6 dB louder.
-    const auto tone = run_program({"tone", "--root", "A2", "--ratio", "7/5", "--detune-cents", "3", "--seconds", "3", "--timbre",
-                                   "bright", "--level-db", "-14", "--voice-db", "-20", "--out", wav});
+    const auto tone = run_program({"tone", "--root", "A2", "--ratio", "7/5", "--detune-cents", "3", "--seconds", "3",
+                                   "--timbre", "bright", "--level-db", "-14", "--voice-db", "-20", "--out", wav});
     REQUIRE(tone.exit_code == 0);
     const auto r = run_program({"listen", "--input-file", wav, "--fast", "--root", "A2", "--target", "7/5", "--drone"});
     REQUIRE_MESSAGE(r.exit_code == 0, r.err);
@@ -67,7 +67,8 @@ TEST_CASE("listen --input-file --fast: a recorded drone at the root is removed a
         CHECK(l.find("\"target\": \"7/5\"") != std::string::npos);
         CHECK(l.find("\"beat_partials\": [7, 5]") != std::string::npos);
         // Within what a 1 cent error of the voice allows: 5 f_voice (2^(1/1200) - 1).
-        CHECK(std::fabs(num_after(l, "beat_hz") - std::fabs(5 * f_voice - 7 * f_root)) <= 5 * f_voice * (std::exp2(1 / 1200.0) - 1));
+        CHECK(std::fabs(num_after(l, "beat_hz") - std::fabs(5 * f_voice - 7 * f_root)) <=
+              5 * f_voice * (std::exp2(1 / 1200.0) - 1));
         if (std::fabs(num_after(l, "dev_cents") - 3.0) <= 1.0) ++good;
     }
     CHECK(good == static_cast<int>(steady.size()));
@@ -91,14 +92,15 @@ TEST_CASE("listen JSON lines: every key present, null where unvoiced, --seconds 
     std::vector<float> x(48000, 0.0f);
     beatless::testsig::add_tone(x, 48000.0, 220.0, 0.3, 1.0, 0.2, beatless::testsig::rolloff(10));
     beatless::audio::write_wav(wav, x, 48000.0);
-    const auto r = run_program({"listen", "--input-file", wav, "--fast", "--root", "A3", "--targets", "5-limit", "--seconds", "0.8"});
+    const auto r = run_program(
+        {"listen", "--input-file", wav, "--fast", "--root", "A3", "--targets", "5-limit", "--seconds", "0.8"});
     REQUIRE(r.exit_code == 0);
     const auto all = lines_of(r.out);
     REQUIRE(all.size() > 100);
     bool saw_null = false, saw_voiced = false;
     for (const auto& l : all) {
-        for (const char* k : {"t", "f0_hz", "confidence", "ratio", "target", "target_name", "dev_cents", "centre_dev_cents", "beat_hz",
-                              "beat_partials"})
+        for (const char* k : {"t", "f0_hz", "confidence", "ratio", "target", "target_name", "dev_cents",
+                              "centre_dev_cents", "beat_hz", "beat_partials"})
             CHECK(l.find(std::string("\"") + k + "\": ") != std::string::npos);
         CHECK(num_after(l, "t") <= 0.8);
         if (l.find("\"f0_hz\": null") != std::string::npos) {
@@ -119,7 +121,8 @@ TEST_CASE("listen JSON lines: every key present, null where unvoiced, --seconds 
 }
 
 TEST_CASE("listen --demo runs the performer through the engine in real time") {
-    const auto r = run_program({"listen", "--demo", "--seconds", "1.5", "--targets", "tritones"}, {"BEATLESS_HOME=/nonexistent-beatless"});
+    const auto r = run_program({"listen", "--demo", "--seconds", "1.5", "--targets", "tritones"},
+                               {"BEATLESS_HOME=/nonexistent-beatless"});
     REQUIRE_MESSAGE(r.exit_code == 0, r.err);
     const auto all = lines_of(r.out);
     // One reading per 5 ms hop.
@@ -139,7 +142,8 @@ TEST_CASE("listen --demo --drone: the drone caution appears on first use only") 
     const auto r = run_program({"listen", "--demo", "--drone", "--seconds", "0.5"}, {"BEATLESS_HOME=" + home.path()});
     REQUIRE_MESSAGE(r.exit_code == 0, r.err);
     CHECK(r.err.find("caution") != std::string::npos);
-    const auto again = run_program({"listen", "--demo", "--drone", "--seconds", "0.5"}, {"BEATLESS_HOME=" + home.path()});
+    const auto again =
+        run_program({"listen", "--demo", "--drone", "--seconds", "0.5"}, {"BEATLESS_HOME=" + home.path()});
     CHECK(again.err.find("caution") == std::string::npos);
 }
 
@@ -190,7 +194,8 @@ TEST_CASE("ratio, analyze --format json and listen agree on the beat of 45/32 th
     // Tolerance 0.3 Hz: half a cent at the ~1 kHz where the pair meets.
     TempDir dir;
     const std::string wav = dir.file("take.wav");
-    const auto tone = run_program({"tone", "--root", "D3", "--ratio", "45/32", "--detune-cents", "3", "--seconds", "4", "--out", wav});
+    const auto tone = run_program(
+        {"tone", "--root", "D3", "--ratio", "45/32", "--detune-cents", "3", "--seconds", "4", "--out", wav});
     REQUIRE_MESSAGE(tone.exit_code == 0, tone.err);
     const double f_root = 440.0 * std::exp2(-19.0 / 12.0);
     const double f_voice = f_root * 45.0 / 32.0 * std::exp2(3.0 / 1200.0);
@@ -203,8 +208,10 @@ TEST_CASE("ratio, analyze --format json and listen agree on the beat of 45/32 th
     const double truth = std::fabs(q * f_voice - p * f_root);
     // ratio tabulates +2 and +5 cents; the rate is linear in the voice's Hz,
     // and so within 0.01 Hz linear in cents over 3 cents: interpolate +3.
-    const double at2 = std::stod(beatless::test::json_value(ratio.out, "[b['beat_hz'] for b in d['intervals'][0]['beats'] if b['dev_cents'] == 2][0]"));
-    const double at5 = std::stod(beatless::test::json_value(ratio.out, "[b['beat_hz'] for b in d['intervals'][0]['beats'] if b['dev_cents'] == 5][0]"));
+    const double at2 = std::stod(beatless::test::json_value(
+        ratio.out, "[b['beat_hz'] for b in d['intervals'][0]['beats'] if b['dev_cents'] == 2][0]"));
+    const double at5 = std::stod(beatless::test::json_value(
+        ratio.out, "[b['beat_hz'] for b in d['intervals'][0]['beats'] if b['dev_cents'] == 5][0]"));
     const double ratio_hz = at2 + (at5 - at2) / 3.0;
     CHECK(std::fabs(ratio_hz - truth) <= 0.01);
 
@@ -217,7 +224,8 @@ TEST_CASE("ratio, analyze --format json and listen agree on the beat of 45/32 th
     const double analyze_hz = std::stod(beatless::test::json_value(an.out, "d['notes'][0]['beat_hz']"));
     CHECK(std::fabs(analyze_hz - truth) <= 0.3);
 
-    const auto li = run_program({"listen", "--input-file", wav, "--fast", "--root", "D3", "--target", "45/32", "--drone"});
+    const auto li =
+        run_program({"listen", "--input-file", wav, "--fast", "--root", "D3", "--target", "45/32", "--drone"});
     REQUIRE_MESSAGE(li.exit_code == 0, li.err);
     const auto steady = between(lines_of(li.out), 1.0, 3.0);
     REQUIRE(steady.size() > 300);
@@ -229,8 +237,8 @@ TEST_CASE("ratio, analyze --format json and listen agree on the beat of 45/32 th
     }
     std::nth_element(rates.begin(), rates.begin() + static_cast<std::ptrdiff_t>(rates.size() / 2), rates.end());
     const double listen_hz = rates[rates.size() / 2];
-    MESSAGE("45/32 +3 c over D3, pair " << p << ":" << q << ": truth " << truth << " Hz, ratio " << ratio_hz << ", analyze "
-                                        << analyze_hz << ", listen median " << listen_hz);
+    MESSAGE("45/32 +3 c over D3, pair " << p << ":" << q << ": truth " << truth << " Hz, ratio " << ratio_hz
+                                        << ", analyze " << analyze_hz << ", listen median " << listen_hz);
     CHECK(std::fabs(listen_hz - truth) <= 0.3);
     CHECK(std::fabs(listen_hz - analyze_hz) <= 0.3);
 }
@@ -243,7 +251,11 @@ TEST_CASE("ratio, analyze --format json and listen agree on the beat of 45/32 th
 TEST_CASE("listen --voices 2: each step of a double stop read with its target, deviation and beat") {
     TempDir dir;
     const double fs = 48000.0, low_hz = 196.0;  // G3, a violin's open G
-    struct Step { int p, q; double dev_cents; const char* target; };
+    struct Step {
+        int p, q;
+        double dev_cents;
+        const char* target;
+    };
     const Step steps[] = {{7, 4, +3.0, "7/4"}, {7, 5, -4.0, "7/5"}, {3, 2, +2.0, "3/2"}};
     std::vector<float> x(static_cast<std::size_t>(8.0 * fs), 0.0f);
     for (int i = 0; i < 3; ++i) {
@@ -253,12 +265,14 @@ TEST_CASE("listen --voices 2: each step of a double stop read with its target, d
     }
     // A unison, 1 cent apart: the two cannot be told apart.
     beatless::testsig::add_tone(x, fs, low_hz, 6.0, 8.0, 0.2, beatless::testsig::rolloff(12));
-    beatless::testsig::add_tone(x, fs, low_hz * std::exp2(1.0 / 1200.0), 6.0, 8.0, 0.16, beatless::testsig::rolloff(12));
+    beatless::testsig::add_tone(x, fs, low_hz * std::exp2(1.0 / 1200.0), 6.0, 8.0, 0.16,
+                                beatless::testsig::rolloff(12));
     beatless::testsig::add_noise(x, 1e-3, 5);
     const std::string wav = dir.file("double_stop.wav");
     beatless::audio::write_wav(wav, x, fs);
 
-    const auto r = run_program({"listen", "--voices", "2", "--input-file", wav, "--fast", "--root", "G3", "--targets", "7-limit"});
+    const auto r =
+        run_program({"listen", "--voices", "2", "--input-file", wav, "--fast", "--root", "G3", "--targets", "7-limit"});
     REQUIRE_MESSAGE(r.exit_code == 0, r.err);
     const auto all = lines_of(r.out);
     REQUIRE(all.size() > 600);  // a reading every 10 ms
@@ -282,7 +296,8 @@ TEST_CASE("listen --voices 2: each step of a double stop read with its target, d
         CAPTURE(mid.front());
         CHECK(right == static_cast<int>(mid.size()));
         CHECK(dev_ok == static_cast<int>(mid.size()));
-        CHECK(std::fabs(num_after(mid[mid.size() / 2], "beat_hz") - beat_true) < 0.05);  // predicted from the measured f0s
+        CHECK(std::fabs(num_after(mid[mid.size() / 2], "beat_hz") - beat_true) <
+              0.05);  // predicted from the measured f0s
         // Measuring needs whole beats in the signal: a beat slower than about
         // 1.5 Hz may not complete enough of them in a 2 s step (null then).
         if (beat_true > 1.5) CHECK(measured > static_cast<int>(mid.size()) / 4);
@@ -292,6 +307,7 @@ TEST_CASE("listen --voices 2: each step of a double stop read with its target, d
     const auto uni = between(all, 6.4, 7.6);
     REQUIRE(uni.size() > 100);
     int claimed = 0;
-    for (const auto& l : uni) claimed += std::isfinite(num_after(l, "dev_cents")) && std::fabs(num_after(l, "interval_cents")) > 5.0;
+    for (const auto& l : uni)
+        claimed += std::isfinite(num_after(l, "dev_cents")) && std::fabs(num_after(l, "interval_cents")) > 5.0;
     CHECK(claimed == 0);
 }

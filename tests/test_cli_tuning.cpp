@@ -10,13 +10,13 @@
 
 #include <doctest/doctest.h>
 
+#include <sys/stat.h>
 #include <cmath>
 #include <cstdint>
 #include <filesystem>
 #include <fstream>
 #include <iterator>
 #include <string>
-#include <sys/stat.h>
 #include <vector>
 
 using namespace beatless;
@@ -33,7 +33,8 @@ std::vector<std::uint8_t> word_of(double hz) {
     const double note = 69.0 + 12.0 * std::log2(hz / 440.0);
     const auto steps = static_cast<long>(std::lround(note * 16384.0));
     const long frac = steps % 16384;
-    return {static_cast<std::uint8_t>(steps / 16384), static_cast<std::uint8_t>(frac >> 7), static_cast<std::uint8_t>(frac & 0x7F)};
+    return {static_cast<std::uint8_t>(steps / 16384), static_cast<std::uint8_t>(frac >> 7),
+            static_cast<std::uint8_t>(frac & 0x7F)};
 }
 
 }  // namespace
@@ -43,13 +44,17 @@ TEST_CASE("tuning writes the harmonic cluster as an MTS bulk dump") {
     const std::string out = dir.file("cluster.syx");
     const auto r = test::run_program({"tuning", "harmonic-cluster", "--root", "D3", "--format", "syx", "--out", out});
     REQUIRE(r.exit_code == 0);
-    CHECK(r.out == "wrote " + out + ": Harmonic cluster 8 to 12 over D3 = 146.832 Hz, 408 bytes (MTS bulk tuning dump, 128 keys)\n");
+    CHECK(r.out == "wrote " + out +
+                       ": Harmonic cluster 8 to 12 over D3 = 146.832 Hz, 408 bytes (MTS bulk tuning dump, 128 keys)\n");
     const auto m = read_bytes(out);
     REQUIRE(m.size() == 408);
-    CHECK(std::vector<std::uint8_t>(m.begin(), m.begin() + 6) == std::vector<std::uint8_t>{0xF0, 0x7E, 0x7F, 0x08, 0x01, 0x00});
+    CHECK(std::vector<std::uint8_t>(m.begin(), m.begin() + 6) ==
+          std::vector<std::uint8_t>{0xF0, 0x7E, 0x7F, 0x08, 0x01, 0x00});
     CHECK(std::string(m.begin() + 6, m.begin() + 22) == "harmonic-cluster");
     const double d3 = 440.0 * std::exp2((50 - 69) / 12.0);  // MIDI 50 (ISO 16)
-    auto word_at = [&](int key) { return std::vector<std::uint8_t>(m.begin() + 22 + 3 * key, m.begin() + 25 + 3 * key); };
+    auto word_at = [&](int key) {
+        return std::vector<std::uint8_t>(m.begin() + 22 + 3 * key, m.begin() + 25 + 3 * key);
+    };
     CHECK(word_at(50) == word_of(d3));
     CHECK(word_at(52) == word_of(d3 * 9 / 8));
     CHECK(word_at(54) == word_of(d3 * 10 / 8));
@@ -71,7 +76,8 @@ TEST_CASE("tuning lists 128 keys as text and JSON") {
     REQUIRE(t.exit_code == 0);
     CHECK(t.out.find(" 56  G#3      201.8945    -48.682 c  37 41 58      11/8 undecimal semi-augmented fourth\n") !=
           std::string::npos);
-    const auto j = test::run_program({"tuning", "tritones", "--root", "D3", "--format", "json", "--layout", "sequence"});
+    const auto j =
+        test::run_program({"tuning", "tritones", "--root", "D3", "--format", "json", "--layout", "sequence"});
     REQUIRE(j.exit_code == 0);
     CHECK(test::json_value(j.out, "len(d['keys'])") == "128");
     CHECK(test::json_value(j.out, "d['keys'][50]['target']") == "None");
@@ -94,7 +100,8 @@ TEST_CASE("tuning: bad input gives one line and a non-zero exit") {
     CHECK(r.err == "beatless: /dev/null: is a device, not a file; give a file name\n");
     r = test::run_program({"tuning", "tritones", "--root", "D3", "--out", dir.file("no/such/dir.txt")});
     CHECK(r.exit_code == 1);
-    CHECK(r.err == "beatless: " + dir.file("no/such/dir.txt") + ": the folder " + dir.file("no/such") + " does not exist (create it first)\n");
+    CHECK(r.err == "beatless: " + dir.file("no/such/dir.txt") + ": the folder " + dir.file("no/such") +
+                       " does not exist (create it first)\n");
     r = test::run_program({"tuning", "tritones", "--root", "D3", "--program", "128"});
     CHECK(r.exit_code == 1);
     CHECK(r.err == "beatless: --program 128: out of range (0 to 127)\n");
@@ -118,8 +125,10 @@ TEST_CASE("ratio and --targets take every set, chords included") {
     CHECK(test::json_value(r.out, "[i['ratio'] for i in d['intervals']]") == "['9/8', '5/4', '11/8', '3/2']");
     const auto w = test::run_program({"ratio", "whole-tones-pythagorean", "--format", "json"});
     CHECK(test::json_value(w.out, "d['intervals'][6]['ratio']") == "531441/262144");
-    CHECK(test::json_value(w.out, "d['intervals'][6]['cents']") == "1223.46");  // 1200 + Pythagorean comma 23.460 c (Huygens-Fokker list)
-    for (const char* set : {"harmonic-cluster", "pentatonic-11", "harmonic-lydian", "whole-tones-5-limit", "septimal-diminished"}) {
+    CHECK(test::json_value(w.out, "d['intervals'][6]['cents']") ==
+          "1223.46");  // 1200 + Pythagorean comma 23.460 c (Huygens-Fokker list)
+    for (const char* set :
+         {"harmonic-cluster", "pentatonic-11", "harmonic-lydian", "whole-tones-5-limit", "septimal-diminished"}) {
         CAPTURE(set);
         const auto l = test::run_program({"listen", "--demo", "--root", "D3", "--targets", set, "--seconds", "0.3"});
         CHECK(l.exit_code == 0);

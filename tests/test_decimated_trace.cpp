@@ -5,8 +5,8 @@
 // frames (no merging) for the bucket length the trace ends with, so every
 // merge must preserve them exactly (up to rounding). Memory stays at
 // max_points whatever the length (common practice for long-file plots).
-#include "pitch/measure/decimated_trace.h"
 #include "pitch/base/error.h"
+#include "pitch/measure/decimated_trace.h"
 #include "tests/mix_signals.h"
 
 #include <doctest/doctest.h>
@@ -24,7 +24,10 @@ TEST_CASE("buckets hold the mean, min and max of their voiced frames, through ev
         DecimatedTrace tr({.bucket_s = 0.01, .max_points = 512});
         std::mt19937_64 rng(5);
         std::uniform_real_distribution<double> u(0.0, 1.0);
-        struct Frame { double t, c; bool v; };
+        struct Frame {
+            double t, c;
+            bool v;
+        };
         std::vector<Frame> frames;
         for (double t = 0.0; t < dur; t += 0.005) {
             const Frame f{t, 1700.0 + 100.0 * std::sin(t) + 10.0 * u(rng), u(rng) > 0.3 && std::fmod(t, 7.0) < 5.0};
@@ -35,7 +38,10 @@ TEST_CASE("buckets hold the mean, min and max of their voiced frames, through ev
         CHECK(tr.size() >= 256);
         const double b = tr.bucket_s();
         CHECK(b * 512 >= dur);
-        struct Acc { int n = 0; double sum = 0, lo = INFINITY, hi = -INFINITY; };
+        struct Acc {
+            int n = 0;
+            double sum = 0, lo = INFINITY, hi = -INFINITY;
+        };
         std::map<std::size_t, Acc> direct;
         for (const Frame& f : frames) {
             if (!f.v) continue;
@@ -65,8 +71,10 @@ TEST_CASE("buckets hold the mean, min and max of their voiced frames, through ev
 }
 
 TEST_CASE("bad settings throw; bad times are ignored") {
-    CHECK(testsig::error_of<Error>([] { DecimatedTrace({.bucket_s = 0.0}); }) == "decimated trace: bucket_s must be in (0, 60] s");
-    CHECK(testsig::error_of<Error>([] { DecimatedTrace({.max_points = 7}); }) == "decimated trace: max_points must be even and at least 2");
+    CHECK(testsig::error_of<Error>([] { DecimatedTrace({.bucket_s = 0.0}); }) ==
+          "decimated trace: bucket_s must be in (0, 60] s");
+    CHECK(testsig::error_of<Error>([] { DecimatedTrace({.max_points = 7}); }) ==
+          "decimated trace: max_points must be even and at least 2");
     DecimatedTrace tr;
     tr.push(-1.0, 100.0, true);
     tr.push(NAN, 100.0, true);

@@ -37,7 +37,8 @@ void set_one_target(Engine& e) {
 }
 
 std::vector<DeviceInfo> three() {
-    return {fake_device(0, "Built-in Microphone", 2, 0), fake_device(3, "USB Audio Interface", 2, 2), fake_device(5, "HDMI Output", 0, 8)};
+    return {fake_device(0, "Built-in Microphone", 2, 0), fake_device(3, "USB Audio Interface", 2, 2),
+            fake_device(5, "HDMI Output", 0, 8)};
 }
 
 }  // namespace
@@ -47,7 +48,7 @@ TEST_CASE("devices are chosen by index or by a unique part of the name") {
     CHECK(choose_device(devs, "3", Direction::input) == 3);
     CHECK(choose_device(devs, "usb", Direction::output) == 3);
     CHECK(choose_device(devs, "Microphone", Direction::input) == 0);
-    CHECK(choose_device(devs, "", Direction::input) == 0);    // the default input (first with inputs here)
+    CHECK(choose_device(devs, "", Direction::input) == 0);  // the default input (first with inputs here)
     CHECK(choose_device(devs, "", Direction::output) == 3);
     CHECK(choose_device(devs, "hdmi", Direction::output) == 5);
 }
@@ -80,7 +81,8 @@ TEST_CASE("the default device: the sound server's, then the host's, then the fir
 }
 
 TEST_CASE("a whole device name wins over names that contain it") {
-    const std::vector<DeviceInfo> devs = {fake_device(0, "room.monitor", 2, 0), fake_device(1, "room", 2, 2), fake_device(2, "roomy", 2, 0)};
+    const std::vector<DeviceInfo> devs = {fake_device(0, "room.monitor", 2, 0), fake_device(1, "room", 2, 2),
+                                          fake_device(2, "roomy", 2, 0)};
     CHECK(choose_device(devs, "room", Direction::input) == 1);
     CHECK(choose_device(devs, "ROOM.monitor", Direction::input) == 0);
     CHECK(choose_device_why(devs, "1", Direction::input).why == ChoiceWhy::index);
@@ -88,8 +90,8 @@ TEST_CASE("a whole device name wins over names that contain it") {
 }
 
 TEST_CASE("the drone's default output is the input's own device when it has outputs") {
-    std::vector<DeviceInfo> devs = {fake_device(0, "jack", 2, 2), fake_device(1, "system", 2, 2), fake_device(2, "room.monitor", 2, 0),
-                                    fake_device(3, "room", 0, 2)};
+    std::vector<DeviceInfo> devs = {fake_device(0, "jack", 2, 2), fake_device(1, "system", 2, 2),
+                                    fake_device(2, "room.monitor", 2, 0), fake_device(3, "room", 0, 2)};
     devs[0].default_output = true;
     devs[3].server = devs[3].default_output = true;
     const DeviceChoice same = choose_output_device(devs, "", 1);  // a duplex card: one clock for both
@@ -104,7 +106,8 @@ TEST_CASE("bad device choices: one line naming the device and the problem") {
     const auto devs = three();
     const std::string none = choose_error({}, "", Direction::input);
     CHECK(none == "no audio input device found (use --demo for the built-in performer)");
-    CHECK(choose_error({fake_device(0, "Loudspeakers", 0, 2)}, "", Direction::input).find("--demo") != std::string::npos);
+    CHECK(choose_error({fake_device(0, "Loudspeakers", 0, 2)}, "", Direction::input).find("--demo") !=
+          std::string::npos);
     CHECK(choose_error(devs, "9", Direction::input) == "input device 9: no such device (see beatless devices)");
     CHECK(choose_error(devs, "5", Direction::input) == "device 5 'HDMI Output' has no input channels");
     CHECK(choose_error(devs, "theremin", Direction::input) ==
@@ -177,10 +180,12 @@ TEST_CASE("a device that disappears: readings pause, the engine says so, reopens
     play(voice.size() / 2, voice.size());
     e.supervise();
     REQUIRE(msgs.size() == 1);
-    CHECK(msgs[0] == "input device 'Fake card' stopped delivering audio; readings paused, drone stopped; trying to reopen it every 0 s");
-    CHECK(e.status().readings == before);   // nothing new while it is gone
+    CHECK(msgs[0] ==
+          "input device 'Fake card' stopped delivering audio; readings paused, drone stopped; trying to reopen it "
+          "every 0 s");
+    CHECK(e.status().readings == before);  // nothing new while it is gone
     CHECK_FALSE(e.status().input_ok);
-    e.supervise();                          // still gone: no new message, no crash
+    e.supervise();  // still gone: no new message, no crash
     CHECK(msgs.size() == 1);
 
     sys.set_present(true);  // plugged back in

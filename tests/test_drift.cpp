@@ -123,8 +123,10 @@ TEST_CASE("septimal example 2: the seventh of a harmonic A7 against the G of C m
     for (std::size_t k = 1; k <= 2; ++k) {
         const auto& common = held.chords[k].common;
         REQUIRE(common.size() == 2);
-        const auto g = std::find_if(common.begin(), common.end(), [](const CommonTone& c) { return c.pitch_class == 7; });
-        const auto e = std::find_if(common.begin(), common.end(), [](const CommonTone& c) { return c.pitch_class == 4; });
+        const auto g =
+            std::find_if(common.begin(), common.end(), [](const CommonTone& c) { return c.pitch_class == 7; });
+        const auto e =
+            std::find_if(common.begin(), common.end(), [](const CommonTone& c) { return c.pitch_class == 4; });
         REQUIRE(g != common.end());
         REQUIRE(e != common.end());
         CHECK(e->held);
@@ -156,7 +158,8 @@ TEST_CASE("rules for several and for no common tones") {
     // i.e. 81/80, 5/4, 243/160) has C and G asking for 80/81 and E for 1/1.
     // Two votes beat one even though 1/1 is nearer: the chord drops a comma
     // and E, the odd one out, falls 21.506 cents.
-    const ProgressionTuning v = tune_progression(parse_progression("1/1:4:5:6 81/80:162:200:243"), DriftRule::common_tones);
+    const ProgressionTuning v =
+        tune_progression(parse_progression("1/1:4:5:6 81/80:162:200:243"), DriftRule::common_tones);
     REQUIRE(v.chords[1].shift.has_value());
     CHECK(*v.chords[1].shift == Ratio{80, 81});
     const auto& c = v.chords[1].common;
@@ -187,7 +190,8 @@ TEST_CASE("degree tables: chords are just and use the scale's tones (with ii on 
     CHECK(maj.chords[12].chord.terms_text() == "10:12:15:18");
     CHECK(maj.chords[11].chord.terms_text() == "36:45:54:64");  // V7 with F = 16/9 above G
 
-    const Progression min = parse_progression("i ii° III iv v V VI VII vii° i7 iiø7 III7 iv7 V7 VI7 vii°7", KeyMode::minor);
+    const Progression min =
+        parse_progression("i ii° III iv v V VI VII vii° i7 iiø7 III7 iv7 V7 VI7 vii°7", KeyMode::minor);
     int outside = 0;
     for (const auto& pc : min.chords) {
         for (std::size_t i = 0; i < pc.chord.size(); ++i) {
@@ -218,7 +222,8 @@ TEST_CASE("mode from the numerals, keys and their spelling") {
     CHECK(fs.tonic.name() == "F#");
     CHECK(fs.mode == KeyMode::minor);
     CHECK(parse_key("Bb major", 440.0).mode == KeyMode::major);
-    CHECK_THROWS_WITH_AS(parse_key("H", 440.0), "'H': not a key (expected a form such as C, Eb3, A minor or F#m)", Error);
+    CHECK_THROWS_WITH_AS(parse_key("H", 440.0), "'H': not a key (expected a form such as C, Eb3, A minor or F#m)",
+                         Error);
 }
 
 TEST_CASE("bad progressions give one-line messages naming the token") {
@@ -226,18 +231,21 @@ TEST_CASE("bad progressions give one-line messages naming the token") {
     CHECK(error_of("") ==
           "'': empty progression (write Roman numerals such as \"I vi ii V I\" or chords such as 5/3:10:12:15)");
     CHECK(error_of(" - , ").find("empty progression") != std::string::npos);
-    CHECK(error_of("Vi") == "'Vi': mixes upper and lower case (upper case for a major chord, lower for minor or diminished)");
+    CHECK(error_of("Vi") ==
+          "'Vi': mixes upper and lower case (upper case for a major chord, lower for minor or diminished)");
     CHECK(error_of("I vii") == "'vii': in a major key this chord is written vii°");
     CHECK(error_of("I vii°7") == "'vii°7': in a major key this chord is written viiø7");
     CHECK(error_of("I iv", KeyMode::major) ==
           "'iv': not a chord of a major key (its chords are I ii iii IV V vi vii°, or write it as 4/3:10:12:15)");
     CHECK(error_of("I iv").find("mixes numerals of a major key (I) and a minor key (iv)") != std::string::npos);
-    CHECK(error_of("4:5:6") == "'4:5:6': an explicit chord needs its root ratio first, as in 1/1:4:5:6 or 5/3:10:12:15");
+    CHECK(error_of("4:5:6") ==
+          "'4:5:6': an explicit chord needs its root ratio first, as in 1/1:4:5:6 or 5/3:10:12:15");
     CHECK(error_of("1/1:4:0:6") == "'1/1:4:0:6': chord terms must be positive");
     CHECK(error_of("x/1:4:5:6").find("'x/1:4:5:6': ") == 0);
     CHECK(error_of("bVII").find("chromatic numerals are not supported") != std::string::npos);
-    CHECK(error_of("V9") == "'V9': unknown chord suffix '9' (a Roman numeral takes ° or o for diminished, ø or /o for "
-                            "half-diminished, and 7)");
+    CHECK(error_of("V9") ==
+          "'V9': unknown chord suffix '9' (a Roman numeral takes ° or o for diminished, ø or /o for "
+          "half-diminished, and 7)");
     CHECK(error_of("V/V").find("secondary chords") != std::string::npos);
     CHECK(error_of("X").find("not a Roman numeral or a chord") != std::string::npos);
 }

@@ -28,8 +28,8 @@
 // good to a hop (5 ms); at the glide's 28 c/s that is 0.15 c, so lock within
 // 15 ms, mean and spread within 0.3 c, shares within 0.02.
 #include "audio/drone.h"
-#include "tests/live_rig.h"
 #include "tests/cli.h"
+#include "tests/live_rig.h"
 #include "ui/session/drill_runner.h"
 #include "ui/session/log_writer.h"
 #include "ui/session/practice_log.h"
@@ -104,7 +104,8 @@ TEST_CASE("a scripted attempt through the engine: the logged lock time, mean and
     LogWriter writer(db);
     const Drill d = parse_drill(kDrill, "one-tritone.toml");
     RunnerConfig rc;
-    rc.deviation = ui::DeviationSource::instant;  // the hand-worked path is the sung pitch itself (its 2 Hz wobble is no vibrato)
+    rc.deviation =
+        ui::DeviationSource::instant;  // the hand-worked path is the sung pitch itself (its 2 Hz wobble is no vibrato)
     rc.settle_s = 1.5;
     rc.announce_s = 1.5;
     DrillRunner runner(d, rc, &writer);
@@ -139,8 +140,8 @@ TEST_CASE("a scripted attempt through the engine: the logged lock time, mean and
     REQUIRE(runner.done());
     REQUIRE(runner.results().size() == 1);
     const ui::HoldScore& s = runner.results()[0].score;
-    MESSAGE("lock " << s.time_to_lock_s << " s, mean " << s.mean_dev_cents << " c, spread " << s.spread_cents << " c, in band "
-                    << s.in_tolerance_share << ", voiced " << s.voiced_share);
+    MESSAGE("lock " << s.time_to_lock_s << " s, mean " << s.mean_dev_cents << " c, spread " << s.spread_cents
+                    << " c, in band " << s.in_tolerance_share << ", voiced " << s.voiced_share);
     CHECK(s.locked);
     CHECK(std::fabs(s.time_to_lock_s - 0.8235) <= 0.015);
     CHECK(std::fabs(s.mean_dev_cents - (-3.1389)) <= 0.3);

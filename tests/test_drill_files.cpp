@@ -12,12 +12,12 @@
 
 #include <doctest/doctest.h>
 
+#include <unistd.h>
 #include <algorithm>
 #include <filesystem>
 #include <fstream>
 #include <set>
 #include <string>
-#include <unistd.h>
 
 using namespace beatless;
 using namespace beatless::ui;
@@ -52,10 +52,11 @@ std::vector<std::string> ratios(const Drill& d) { return ratios(d.targets); }
 }  // namespace
 
 TEST_CASE("the shipped drills are all there and load") {
-    const std::vector<std::string> expected = {"ear-septimal-tritone",   "ear-tritones",              "hold-fifthless-pentatonic",
-                                               "hold-harmonic-cluster",  "hold-harmonic-ladder",      "hold-harmonic-lydian",
-                                               "hold-septimal",          "hold-septimal-tritones",    "hold-tritones",
-                                               "hold-undecimal",         "hold-whole-tones"};
+    const std::vector<std::string> expected = {
+        "ear-septimal-tritone",  "ear-tritones",           "hold-fifthless-pentatonic",
+        "hold-harmonic-cluster", "hold-harmonic-ladder",   "hold-harmonic-lydian",
+        "hold-septimal",         "hold-septimal-tritones", "hold-tritones",
+        "hold-undecimal",        "hold-whole-tones"};
     CHECK(builtin_names("drill") == expected);
     for (const auto& name : expected) {
         const Drill d = load_drill(name);
@@ -82,8 +83,7 @@ TEST_CASE("7/5 against 10/7, alternately") {
     const auto seq = d.sequence(1);
     REQUIRE(seq.size() == 2 * static_cast<std::size_t>(d.repetitions));
     CHECK(d.repetitions >= 2);
-    for (std::size_t i = 0; i < seq.size(); ++i)
-        CHECK(seq[i].target.interval.str() == (i % 2 == 0 ? "7/5" : "10/7"));
+    for (std::size_t i = 0; i < seq.size(); ++i) CHECK(seq[i].target.interval.str() == (i % 2 == 0 ? "7/5" : "10/7"));
     CHECK(seq[0].target.name == "lesser septimal tritone");  // from targets/names.toml
 }
 
@@ -99,7 +99,8 @@ TEST_CASE("the 5-limit and Pythagorean tritones built from whole tones") {
 TEST_CASE("a harmonic-series ladder from 8 to 16") {
     const Drill d = load_drill("hold-harmonic-ladder");
     REQUIRE(d.targets.size() == 9);
-    for (int n = 8; n <= 16; ++n) CHECK(d.targets[static_cast<std::size_t>(n - 8)].target.interval.ratio() == pitch::Ratio::make(n, 8));
+    for (int n = 8; n <= 16; ++n)
+        CHECK(d.targets[static_cast<std::size_t>(n - 8)].target.interval.ratio() == pitch::Ratio::make(n, 8));
 }
 
 TEST_CASE("a septimal and an undecimal set") {
@@ -160,10 +161,9 @@ TEST_CASE("drill settings are a JSON object the practice log accepts") {
 }
 
 TEST_CASE("a drill file given by path") {
-    const auto path = std::filesystem::temp_directory_path() / ("beatless-my-drill-" + std::to_string(::getpid()) + ".toml");
-    {
-        std::ofstream(path) << kGoodHold;
-    }
+    const auto path =
+        std::filesystem::temp_directory_path() / ("beatless-my-drill-" + std::to_string(::getpid()) + ".toml");
+    { std::ofstream(path) << kGoodHold; }
     const Drill d = load_drill(path.string());
     CHECK(d.id == path.stem().string());
     CHECK(d.hold_s == 3.0);
@@ -179,26 +179,36 @@ TEST_CASE("malformed drill files name the file, the line and the problem") {
           "bad.toml: `mode`: required key missing (\"hold\" or \"ear\")");
     CHECK(error_of("kind = \"drill\"\ntitle = \"x\"\nmode = \"sing\"\n[[target]]\ninterval = \"7/5\"\n") ==
           "bad.toml:3: `mode`: 'sing' is not one of \"hold\", \"ear\"");
-    CHECK(error_of("kind = \"drill\"\ntitle = \"x\"\nmode = \"hold\"\ntolerence_cents = 5\n[[target]]\ninterval = \"7/5\"\n")
-              .starts_with("bad.toml:4: `tolerence_cents`: unknown key in a hold drill; did you mean `tolerance_cents`?"));
+    CHECK(error_of(
+              "kind = \"drill\"\ntitle = \"x\"\nmode = \"hold\"\ntolerence_cents = 5\n[[target]]\ninterval = \"7/5\"\n")
+              .starts_with(
+                  "bad.toml:4: `tolerence_cents`: unknown key in a hold drill; did you mean `tolerance_cents`?"));
     CHECK(error_of("kind = \"drill\"\ntitle = \"x\"\nmode = \"hold\"\nhold_s = 0\n[[target]]\ninterval = \"7/5\"\n") ==
           "bad.toml:4: `hold_s`: 0 is out of range (0.5 to 120)");
-    CHECK(error_of("kind = \"drill\"\ntitle = \"x\"\nmode = \"hold\"\nrepetitions = 2.5\n[[target]]\ninterval = \"7/5\"\n") ==
-          "bad.toml:4: `repetitions`: must be a whole number, not a decimal number");
-    CHECK(error_of("kind = \"drill\"\ntitle = \"x\"\nmode = \"hold\"\n[[target]]\ninterval = \"7/0\"\n").starts_with("bad.toml:5: "));
-    CHECK(error_of("kind = \"drill\"\ntitle = \"x\"\nmode = \"hold\"\n[drone]\nroot = \"H2\"\n[[target]]\ninterval = \"7/5\"\n")
+    CHECK(
+        error_of(
+            "kind = \"drill\"\ntitle = \"x\"\nmode = \"hold\"\nrepetitions = 2.5\n[[target]]\ninterval = \"7/5\"\n") ==
+        "bad.toml:4: `repetitions`: must be a whole number, not a decimal number");
+    CHECK(error_of("kind = \"drill\"\ntitle = \"x\"\nmode = \"hold\"\n[[target]]\ninterval = \"7/0\"\n")
               .starts_with("bad.toml:5: "));
-    CHECK(error_of("kind = \"drill\"\ntitle = \"x\"\nmode = \"hold\"\n[drone]\nlevel_dbfs = 0\n[[target]]\ninterval = \"7/5\"\n") ==
-          "bad.toml:5: `level_dbfs`: 0 is out of range (-60 to -6)");
+    CHECK(error_of("kind = \"drill\"\ntitle = \"x\"\nmode = \"hold\"\n[drone]\nroot = \"H2\"\n[[target]]\ninterval = "
+                   "\"7/5\"\n")
+              .starts_with("bad.toml:5: "));
+    CHECK(error_of("kind = \"drill\"\ntitle = \"x\"\nmode = \"hold\"\n[drone]\nlevel_dbfs = 0\n[[target]]\ninterval = "
+                   "\"7/5\"\n") == "bad.toml:5: `level_dbfs`: 0 is out of range (-60 to -6)");
     CHECK(error_of("kind = \"drill\"\ntitle = \"x\"\nmode = \"hold\"\n") ==
-          "bad.toml: `[[target]]`: required table missing: add [[target]] entries with interval = \"7/5\", or target_set = \"tritones\"");
-    CHECK(error_of("kind = \"drill\"\ntitle = \"x\"\nmode = \"hold\"\ntarget_set = \"nope\"\n").starts_with("bad.toml:4: `target_set`: 'nope'"));
-    CHECK(error_of("kind = \"drill\"\ntitle = \"x\"\nmode = \"hold\"\ntarget_set = \"tritones\"\n[[target]]\ninterval = \"7/5\"\n") ==
+          "bad.toml: `[[target]]`: required table missing: add [[target]] entries with interval = \"7/5\", or "
+          "target_set = \"tritones\"");
+    CHECK(error_of("kind = \"drill\"\ntitle = \"x\"\nmode = \"hold\"\ntarget_set = \"nope\"\n")
+              .starts_with("bad.toml:4: `target_set`: 'nope'"));
+    CHECK(error_of("kind = \"drill\"\ntitle = \"x\"\nmode = \"hold\"\ntarget_set = \"tritones\"\n[[target]]\ninterval "
+                   "= \"7/5\"\n") ==
           "bad.toml:4: `target_set`: give either target_set or [[target]] entries, not both");
-    CHECK(error_of("kind = \"drill\"\ntitle = \"x\"\nmode = \"hold\"\nhold_s = 1.0\ndwell_s = 2.0\n[[target]]\ninterval = \"7/5\"\n")
+    CHECK(error_of("kind = \"drill\"\ntitle = \"x\"\nmode = \"hold\"\nhold_s = 1.0\ndwell_s = "
+                   "2.0\n[[target]]\ninterval = \"7/5\"\n")
               .starts_with("bad.toml:5: `dwell_s`: 2 must be shorter than the hold"));
-    CHECK(error_of("kind = \"drill\"\ntitle = \"x\"\nmode = \"hold\"\nsound_target = \"yes\"\n[[target]]\ninterval = \"7/5\"\n") ==
-          "bad.toml:4: `sound_target`: must be true or false, not a string");
+    CHECK(error_of("kind = \"drill\"\ntitle = \"x\"\nmode = \"hold\"\nsound_target = \"yes\"\n[[target]]\ninterval = "
+                   "\"7/5\"\n") == "bad.toml:4: `sound_target`: must be true or false, not a string");
     // TOML syntax and the kind key.
     CHECK(error_of("kind = \"drill\"\ntitle = \n").starts_with("bad.toml:2: "));
     CHECK(error_of("kind = \"targets\"\ntitle = \"x\"\n") == "bad.toml:1: `kind`: is \"targets\", expected \"drill\"");
@@ -206,16 +216,19 @@ TEST_CASE("malformed drill files name the file, the line and the problem") {
 
 TEST_CASE("malformed ear drills") {
     const std::string head = "kind = \"drill\"\ntitle = \"x\"\nmode = \"ear\"\n";
-    CHECK(error_of(head + "[[target]]\ninterval = \"7/5\"\n") == "bad.toml: `task`: required key missing (\"discriminate\" or \"identify\")");
+    CHECK(error_of(head + "[[target]]\ninterval = \"7/5\"\n") ==
+          "bad.toml: `task`: required key missing (\"discriminate\" or \"identify\")");
     const std::string ident = head + "task = \"identify\"\n";
-    CHECK(error_of(ident + "[[target]]\ninterval = \"7/5\"\n").starts_with("bad.toml:5: `[[target]]`: ear question: naming an interval needs at least two"));
+    CHECK(error_of(ident + "[[target]]\ninterval = \"7/5\"\n")
+              .starts_with("bad.toml:5: `[[target]]`: ear question: naming an interval needs at least two"));
     CHECK(error_of(ident + "hold_s = 3\n[[target]]\ninterval = \"7/5\"\n[[target]]\ninterval = \"10/7\"\n")
               .starts_with("bad.toml:5: `hold_s`: unknown key in an ear drill"));
     CHECK(error_of(head + "task = \"three\"\n[[target]]\ninterval = \"7/5\"\n") ==
           "bad.toml:4: `task`: 'three' is not one of \"discriminate\", \"identify\"");
     CHECK(error_of(head + "task = \"discriminate\"\n[[target]]\ninterval = \"7/5\"\n[[target]]\ninterval = \"10/7\"\n")
               .find("a discrimination drill mistunes one interval; 2 are given") != std::string::npos);
-    CHECK(error_of(ident + "[staircase]\nrule = \"2-down\"\n[[target]]\ninterval = \"7/5\"\n[[target]]\ninterval = \"10/7\"\n")
+    CHECK(error_of(ident +
+                   "[staircase]\nrule = \"2-down\"\n[[target]]\ninterval = \"7/5\"\n[[target]]\ninterval = \"10/7\"\n")
               .find("`staircase`: only for task = \"discriminate\"") != std::string::npos);
     const std::string targets = "[[target]]\ninterval = \"7/5\"\n";
     const std::string disc = head + "task = \"discriminate\"\n";
@@ -223,8 +236,10 @@ TEST_CASE("malformed ear drills") {
               .starts_with("bad.toml:5: staircase: threshold_reversals 7 must be even"));
     CHECK(error_of(disc + "[staircase]\nrule = \"4-down\"\n" + targets) ==
           "bad.toml:6: `rule`: '4-down' is not one of \"2-down\", \"3-down\"");
-    CHECK(error_of(disc + "[staircase]\nsteps = [2.0, \"x\"]\n" + targets) == "bad.toml:6: `steps`: must hold numbers only, not a string");
-    CHECK(error_of(disc + "[staircase]\nsteps = [0.5]\n" + targets).find("steps 0.5 must be a factor above 1") != std::string::npos);
+    CHECK(error_of(disc + "[staircase]\nsteps = [2.0, \"x\"]\n" + targets) ==
+          "bad.toml:6: `steps`: must hold numbers only, not a string");
+    CHECK(error_of(disc + "[staircase]\nsteps = [0.5]\n" + targets).find("steps 0.5 must be a factor above 1") !=
+          std::string::npos);
     const Drill ok = parse_drill(disc + "[staircase]\nrule = \"3-down\"\nfloor_run = 8\n" + targets, "ok.toml");
     CHECK(ok.task == ui::EarTask::discriminate);
     CHECK(ok.staircase.n_down == 3);

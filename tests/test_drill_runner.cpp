@@ -11,9 +11,9 @@
 // in psychoacoustics", JASA 49(2B), 1971, Table I), with a simulated listener
 // whose psychometric function puts that point at a known difference.
 #include "pitch/base/error.h"
-#include "ui/session/listener_model.h"
 #include "tests/cli.h"
 #include "ui/session/drill_runner.h"
+#include "ui/session/listener_model.h"
 #include "ui/session/log_writer.h"
 #include "ui/session/practice_log.h"
 
@@ -95,7 +95,8 @@ std::size_t log_count(const std::filesystem::path& p) {
 
 }  // namespace
 
-TEST_CASE("the hold sequence: ready, announce (with the tone), count-in, hold, rest, next; each hold scored and logged") {
+TEST_CASE(
+    "the hold sequence: ready, announce (with the tone), count-in, hold, rest, next; each hold scored and logged") {
     TempDir dir;
     const std::filesystem::path db = dir.file("log.sqlite3");
     LogWriter writer(db);
@@ -193,7 +194,7 @@ TEST_CASE("a hold whose readings stop is scored score_wait_s after its end; a lo
     r.start(10.0);
     r.advance(14.0);  // one late frame: ready, announce and count-in are over
     CHECK(r.phase() == DrillPhase::hold);
-    CHECK(r.take_tones().size() == 1);  // the announcement's tone was still asked for
+    CHECK(r.take_tones().size() == 1);                                   // the announcement's tone was still asked for
     for (double t = 14.0; t < 15.0; t += 0.01) r.feed(reading(t, 1.0));  // then the input stops
     r.advance(16.2);
     CHECK(r.results().empty());
@@ -246,7 +247,7 @@ TEST_CASE("stopping: a hold not yet over is dropped; an ear session with answers
     CHECK(all[0].trace[0].centre_dev_cents == 1.0f);  // right
     CHECK(all[0].method == "identify");
     CHECK(all[0].trace[0].f0_hz == static_cast<float>(q.answers()[0].question.target));  // the interval played
-    CHECK(all[0].trace[0].dev_cents == all[0].trace[0].f0_hz);                             // named: the same
+    CHECK(all[0].trace[0].dev_cents == all[0].trace[0].f0_hz);                           // named: the same
 }
 
 TEST_CASE("a full disk: the drill goes on, attempts are kept with a one-line warning, and saved when space returns") {
@@ -289,7 +290,8 @@ interval = "5/4"
     REQUIRE(r.results().size() == 2);
     CHECK(r.unsaved() == 2);
     const std::string w = r.log_warning();
-    CHECK(w == "practice log " + db.string() + ": cannot write (disk full); 2 attempts kept and will be saved when possible");
+    CHECK(w == "practice log " + db.string() +
+                   ": cannot write (disk full); 2 attempts kept and will be saved when possible");
     CHECK(test::line_count(w) == 1);
     CHECK(r.phase() != DrillPhase::stopped);  // the drill still runs
     CHECK(log_count(db) == 0);
@@ -326,7 +328,8 @@ TEST_CASE("a read-only log: warned and kept; the runner's retry writes them once
     r.start(0.0);
     drive(r, 0.0, 7.0, 0.01, [](double) { return -3.0; });
     REQUIRE(r.results().size() == 1);
-    CHECK(r.log_warning() == "practice log " + db.string() + ": cannot write (read-only); 1 attempt kept and will be saved when possible");
+    CHECK(r.log_warning() ==
+          "practice log " + db.string() + ": cannot write (read-only); 1 attempt kept and will be saved when possible");
     r.retry_log();
     CHECK(r.unsaved() == 1);
     // What is kept can still be written out as CSV and imported elsewhere.
@@ -336,7 +339,11 @@ TEST_CASE("a read-only log: warned and kept; the runner's retry writes them once
 
 TEST_CASE("a log folder that cannot be created: one line naming it, the attempt kept") {
     TempDir dir;
-    { std::FILE* f = std::fopen(dir.file("blocker").c_str(), "w"); std::fputs("x", f); std::fclose(f); }
+    {
+        std::FILE* f = std::fopen(dir.file("blocker").c_str(), "w");
+        std::fputs("x", f);
+        std::fclose(f);
+    }
     LogWriter writer(dir.file("blocker") + "/data/practice.sqlite3");
     Drill d = parse_drill(kTwoHolds, "two-holds.toml");
     DrillRunner r(d, fake_config(), &writer);
@@ -369,7 +376,9 @@ TEST_CASE("tracker blips shorter than 40 ms count as unvoiced") {
     CHECK(s.voiced_share == doctest::Approx(0.75).epsilon(0.01));
 }
 
-TEST_CASE("discrimination questions: the pure interval and the mistuned one in turn; an answer before the second is refused") {
+TEST_CASE(
+    "discrimination questions: the pure interval and the mistuned one in turn; an answer before the second is "
+    "refused") {
     const char* two = R"(kind = "drill"
 title = "Two tones"
 mode = "ear"
@@ -431,16 +440,24 @@ TEST_CASE("the results in words a performer reads at a glance") {
     s.mean_dev_cents = -3.2;
     s.spread_cents = 4.4;
     s.in_tolerance_share = 0.862;
-    CHECK(hold_summary_text(s, 5.0) == "locked in 0.8 s, held 3 cents flat, 86 % within \xC2\xB1" "5 c");
+    CHECK(hold_summary_text(s, 5.0) ==
+          "locked in 0.8 s, held 3 cents flat, 86 % within \xC2\xB1"
+          "5 c");
     CHECK(hold_spread_text(s) == "spread 4 c while held");
     s.mean_dev_cents = 1.4;
-    CHECK(hold_summary_text(s, 7.5) == "locked in 0.8 s, held 1 cent sharp, 86 % within \xC2\xB1" "7.5 c");
+    CHECK(hold_summary_text(s, 7.5) ==
+          "locked in 0.8 s, held 1 cent sharp, 86 % within \xC2\xB1"
+          "7.5 c");
     s.mean_dev_cents = 0.3;
-    CHECK(hold_summary_text(s, 5.0) == "locked in 0.8 s, held right on the target, 86 % within \xC2\xB1" "5 c");
+    CHECK(hold_summary_text(s, 5.0) ==
+          "locked in 0.8 s, held right on the target, 86 % within \xC2\xB1"
+          "5 c");
     s.locked = false;
     s.mean_dev_cents = 12.0;
     s.in_tolerance_share = 0.2;
-    CHECK(hold_summary_text(s, 5.0) == "no lock, 12 cents sharp on average, 20 % within \xC2\xB1" "5 c");
+    CHECK(hold_summary_text(s, 5.0) ==
+          "no lock, 12 cents sharp on average, 20 % within \xC2\xB1"
+          "5 c");
     CHECK(hold_spread_text(s) == "spread 4 c over the hold");
     CHECK(hold_summary_text(ui::HoldScore{}, 5.0) == "no voice heard");
     EarResult e;

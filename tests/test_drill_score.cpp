@@ -4,8 +4,8 @@
 // ui/session/drill_score.h (the arithmetic is written out beside each check) and
 // re-computed with numpy (/usr/bin/python3: numpy.mean, numpy.std with
 // ddof=0, numpy.argmax over the in-band mask) as an independent check.
-#include "ui/session/drill_score.h"
 #include "pitch/base/error.h"
+#include "ui/session/drill_score.h"
 
 #include <doctest/doctest.h>
 
@@ -201,7 +201,8 @@ TEST_CASE("empty, all-unvoiced and out-of-order input") {
     CHECK(u.points_used == 3);
 
     // Reversed order and a NaN time give the same score as the sorted points.
-    std::vector<HoldPoint> p = points_every(0.1, {40, 30, 20, 8, 12, 9, 6, 3, 2, -2, 4, -4, 2, -2, NAN, 0, 0, 15, 0, 0});
+    std::vector<HoldPoint> p =
+        points_every(0.1, {40, 30, 20, 8, 12, 9, 6, 3, 2, -2, 4, -4, 2, -2, NAN, 0, 0, 15, 0, 0});
     const HoldScore sorted = score_hold(p, tenth_hop());
     std::vector<HoldPoint> r(p.rbegin(), p.rend());
     r.push_back({NAN, 0.0, true});

@@ -8,9 +8,9 @@
 // is -6 dBFS peak = 10^(-6/20) (the definition of dBFS).
 #include "audio/drone.h"
 #include "audio/drone_removal.h"
+#include "audio/latest.h"
 #include "audio/ring.h"
 #include "audio/room.h"
-#include "audio/latest.h"
 #include "audio/timbre.h"
 #include "pitch/base/error.h"
 #include "pitch/measure/reading.h"
@@ -82,7 +82,8 @@ TEST_CASE("the drone plays the partials drone_partials lists, at the level asked
         const double g = drone_gain(-20.0);
         for (std::size_t k = 0; k < n; ++k) {
             CAPTURE(parts[k].freq_hz);
-            CHECK(amplitude_at(x, 22000, 22000, parts[k].freq_hz, rate) == doctest::Approx(g * parts[k].amplitude).epsilon(0.01));
+            CHECK(amplitude_at(x, 22000, 22000, parts[k].freq_hz, rate) ==
+                  doctest::Approx(g * parts[k].amplitude).epsilon(0.01));
         }
         // Nothing between the partials (166 Hz: a whole number of cycles in the window).
         CHECK(amplitude_at(x, 22000, 22000, 166.0, rate) < 1e-4);
@@ -140,10 +141,10 @@ TEST_CASE("the drone starts quiet, ramps every change over about 50 ms, and neve
     CHECK(max_step(x, 0, 12000) <= 1.05 * steady);
     for (int change = 0; change < 4; ++change) {
         CAPTURE(change);
-        if (change == 0) s.root_hz = 146.83;            // a new root glides
-        if (change == 1) s.timbre = Timbre::hollow;     // a new timbre crossfades
-        if (change == 2) s.level_dbfs = -24.0;          // a louder level ramps
-        if (change == 3) s.on = false;                  // stop ramps down
+        if (change == 0) s.root_hz = 146.83;         // a new root glides
+        if (change == 1) s.timbre = Timbre::hollow;  // a new timbre crossfades
+        if (change == 2) s.level_dbfs = -24.0;       // a louder level ramps
+        if (change == 3) s.on = false;               // stop ramps down
         d.set(s);
         const auto y = render(d, 9600);
         CHECK(max_step(y, 0, 9600) <= 2.0 * steady);
@@ -154,7 +155,8 @@ TEST_CASE("the drone starts quiet, ramps every change over about 50 ms, and neve
 TEST_CASE("the limiter holds a fixed ceiling of -6 dBFS") {
     const double rate = 48000.0;
     Drone d(rate);
-    DroneSettings s = sounding(Timbre::bright, kDroneMaxLevelDbfs);  // as loud as allowed: the partials add far above the ceiling
+    DroneSettings s =
+        sounding(Timbre::bright, kDroneMaxLevelDbfs);  // as loud as allowed: the partials add far above the ceiling
     s.fifth = true;
     s.octave = true;
     d.set(s);
@@ -164,7 +166,12 @@ TEST_CASE("the limiter holds a fixed ceiling of -6 dBFS") {
     CHECK(peak <= static_cast<float>(std::pow(10.0, kDroneCeilingDbfs / 20.0)));
     CHECK(peak > 0.45f);
     CHECK(d.limiter_gain() < 0.9);
-    CHECK_THROWS_AS(check_drone_settings([] { DroneSettings t; t.level_dbfs = 0.0; return t; }()), beatless::Error);
+    CHECK_THROWS_AS(check_drone_settings([] {
+                        DroneSettings t;
+                        t.level_dbfs = 0.0;
+                        return t;
+                    }()),
+                    beatless::Error);
 }
 
 TEST_CASE("the reference voice sounds the target for a moment above the drone") {
@@ -203,9 +210,11 @@ TEST_CASE("drone removal: the drone's partials vanish, a voice partial 20 Hz awa
     std::vector<float> mic(n, 0.0f);
     room.process_add(spk, mic);
     // A "voice" partial at 350 Hz (20 Hz from the drone's 330 Hz).
-    for (std::size_t i = 0; i < n; ++i) mic[i] += static_cast<float>(0.01 * std::sin(2.0 * kPi * 350.0 * static_cast<double>(i) / rate));
+    for (std::size_t i = 0; i < n; ++i)
+        mic[i] += static_cast<float>(0.01 * std::sin(2.0 * kPi * 350.0 * static_cast<double>(i) / rate));
     std::vector<float> out(n);
-    for (std::size_t i = 0; i < n; i += 256) c.process(std::span<const float>(mic.data() + i, 256), std::span<float>(out.data() + i, 256));
+    for (std::size_t i = 0; i < n; i += 256)
+        c.process(std::span<const float>(mic.data() + i, 256), std::span<float>(out.data() + i, 256));
     for (double f : {110.0, 220.0, 330.0, 440.0, 880.0}) {
         CAPTURE(f);
         const double before = amplitude_at(mic, 48000, 48000, f, rate);

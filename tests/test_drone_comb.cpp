@@ -7,8 +7,8 @@
 // signal to a periodic signal of the same period (textbook: a sum of
 // harmonics stays a sum of the same harmonics, each scaled), so a tracker
 // finds the same f0 after it. The YIN tracker is pitch/yin.h.
-#include "pitch/dsp/drone_comb.h"
 #include "pitch/base/error.h"
+#include "pitch/dsp/drone_comb.h"
 #include "pitch/dsp/yin.h"
 #include "tests/mix_signals.h"
 
@@ -63,7 +63,8 @@ TEST_CASE("the comb's gain on a sine is 2 |sin(pi f D / rate)|") {
         const double d = kFs / root;
         for (double f : {50.0, 137.3, 333.0, 1000.0, 2500.0, 4000.0, 7000.0}) {
             std::vector<float> x(static_cast<std::size_t>(kFs), 0.0f);
-            for (std::size_t i = 0; i < x.size(); ++i) x[i] = static_cast<float>(0.5 * std::sin(kTwoPi * f * static_cast<double>(i) / kFs));
+            for (std::size_t i = 0; i < x.size(); ++i)
+                x[i] = static_cast<float>(0.5 * std::sin(kTwoPi * f * static_cast<double>(i) / kFs));
             const auto y = comb(x, root);
             const double gain = rms(y, x.size() / 2, x.size()) / rms(x, x.size() / 2, x.size());
             const double expect = 2.0 * std::fabs(std::sin(M_PI * f * d / kFs));
@@ -82,7 +83,8 @@ TEST_CASE("a steady drone of any timbre vanishes; a voice at a just ratio keeps 
         CAPTURE(root);
         const double dur = 3.0;
         std::vector<float> drone(static_cast<std::size_t>(dur * kFs), 0.0f);
-        add_tone(drone, kFs, root, 0.0, dur, 0.2, rolloff(12, 0.7), {0.3, 1.1, 2.0, 0.7, 2.9, 1.6, 0.2, 2.4, 1.0, 0.5, 2.2, 1.3});
+        add_tone(drone, kFs, root, 0.0, dur, 0.2, rolloff(12, 0.7),
+                 {0.3, 1.1, 2.0, 0.7, 2.9, 1.6, 0.2, 2.4, 1.0, 0.5, 2.2, 1.3});
         const auto gone = comb(drone, root);
         const std::size_t a = static_cast<std::size_t>(0.1 * kFs), b = static_cast<std::size_t>((dur - 0.1) * kFs);
         const double atten_db = 20.0 * std::log10(rms(gone, a, b) / rms(drone, a, b));
@@ -128,5 +130,7 @@ TEST_CASE("bad settings: one line naming the value") {
           "drone filter: sample rate 1000 Hz is out of range (8000 to 192000)");
     CHECK(error_of<Error>([] { DroneComb({.sample_rate_hz = 44100.0, .root_hz = 10.0}); }) ==
           "drone filter: root 10 Hz is out of range (20 Hz to 5512 Hz at this sample rate)");
-    CHECK(error_of<Error>([] { DroneComb({.sample_rate_hz = 44100.0, .root_hz = NAN}); }).rfind("drone filter: root nan", 0) == 0);
+    CHECK(error_of<Error>([] {
+              DroneComb({.sample_rate_hz = 44100.0, .root_hz = NAN});
+          }).rfind("drone filter: root nan", 0) == 0);
 }

@@ -7,9 +7,9 @@
 // issue's; the beat of the coinciding pair of p/q mistuned by d cents is
 // p * f_low * |2^(d/1200) - 1| (Helmholtz, On the Sensations of Tone, ch.
 // VIII; pitch/theory/beats.h beat_rate_at); cents by Ellis (1885).
-#include "pitch/theory/beats.h"
-#include "pitch/measure/dyad_segment.h"
 #include "pitch/base/error.h"
+#include "pitch/measure/dyad_segment.h"
+#include "pitch/theory/beats.h"
 #include "tests/mix_signals.h"
 
 #include <doctest/doctest.h>
@@ -45,8 +45,8 @@ TwoVoiceFrame frame(double t, double lo, double hi, BeatSource src = BeatSource:
     return f;
 }
 
-std::vector<DyadResult> segment(const std::vector<TwoVoiceFrame>& frames, const TargetSet& set, std::size_t* dropped = nullptr,
-                                DyadSegmentConfig cfg = {}) {
+std::vector<DyadResult> segment(const std::vector<TwoVoiceFrame>& frames, const TargetSet& set,
+                                std::size_t* dropped = nullptr, DyadSegmentConfig cfg = {}) {
     DyadSegmenter seg(cfg, set);
     std::vector<DyadResult> out;
     DyadResult r;
@@ -101,7 +101,9 @@ TEST_CASE("frequency-difference beats: the median of the dyad's measurements") {
     const TargetSet set = duo_set();
     std::vector<TwoVoiceFrame> fr;
     const double beats[] = {9.0, 10.0, 10.5, 10.0, 30.0};  // one outlier
-    for (int k = 0; k < 100; ++k) fr.push_back(frame(0.01 * k, 180.0, 270.0 * std::exp2(12.0 / 1200.0), BeatSource::frequency_difference, beats[k % 5]));
+    for (int k = 0; k < 100; ++k)
+        fr.push_back(
+            frame(0.01 * k, 180.0, 270.0 * std::exp2(12.0 / 1200.0), BeatSource::frequency_difference, beats[k % 5]));
     const auto d = segment(fr, set);
     REQUIRE(d.size() == 1);
     CHECK(d[0].beat_source == BeatSource::frequency_difference);
@@ -119,7 +121,7 @@ TEST_CASE("frequency-difference beats: the median of the dyad's measurements") {
 
 TEST_CASE("the real two-voice tracker: held double stops at and off just ratios, equal and unequal loudness") {
     const TargetSet set = duo_set();
-    std::vector<HeldDyad> truth = {{3, 2, 0, 0.2, 0.2, 196}, {5, 4, 3, 0.2, 0.1, 220}, {7, 4, -7, 0.1, 0.2, 150},
+    std::vector<HeldDyad> truth = {{3, 2, 0, 0.2, 0.2, 196},  {5, 4, 3, 0.2, 0.1, 220},   {7, 4, -7, 0.1, 0.2, 150},
                                    {6, 5, 12, 0.2, 0.2, 247}, {4, 3, -3, 0.2, 0.05, 180}, {7, 5, -12, 0.15, 0.15, 200},
                                    {5, 3, 7, 0.2, 0.07, 160}, {8, 5, -7, 0.07, 0.2, 190}};
     const double note = 2.5;
@@ -160,7 +162,9 @@ TEST_CASE("the real two-voice tracker: held double stops at and off just ratios,
 }
 
 TEST_CASE("bad settings and an empty set throw") {
-    CHECK(error_of<Error>([] { DyadSegmenter({}, TargetSet{"none", "", "", {}}); }) == "dyad segmentation: the target set 'none' is empty");
+    CHECK(error_of<Error>([] {
+              DyadSegmenter({}, TargetSet{"none", "", "", {}});
+          }) == "dyad segmentation: the target set 'none' is empty");
     DyadSegmentConfig c;
     c.hop_s = 0.0;
     CHECK(error_of<Error>([&] { DyadSegmenter(c, duo_set()); }) == "dyad segmentation: hop_s 0 is out of range");

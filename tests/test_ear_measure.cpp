@@ -57,8 +57,8 @@ void run_session(DrillRunner& r, SimulatedListener& who) {
 }  // namespace
 
 TEST_CASE("the standard normal quantile against the published table") {
-    CHECK(normal_quantile(0.975) == doctest::Approx(1.959964).epsilon(1e-6));   // normal table
-    CHECK(normal_quantile(0.841345) == doctest::Approx(1.0).epsilon(1e-5));     // Phi(1) = 0.841345
+    CHECK(normal_quantile(0.975) == doctest::Approx(1.959964).epsilon(1e-6));  // normal table
+    CHECK(normal_quantile(0.841345) == doctest::Approx(1.0).epsilon(1e-5));    // Phi(1) = 0.841345
     CHECK(normal_quantile(0.5) == doctest::Approx(0.0).scale(1.0).epsilon(1e-12));
     CHECK(normal_quantile(0.001) == doctest::Approx(-3.090232).epsilon(1e-6));  // normal table
 }
@@ -68,12 +68,13 @@ TEST_CASE("the listener model: Wichmann & Hill's limits and its stated threshold
     c.threshold_cents = 7.0;
     c.lapse = 0.04;
     SimulatedListener l(c);
-    CHECK(l.p_correct(0.0) == doctest::Approx(0.5));                  // guess rate gamma at d = 0
-    CHECK(l.p_correct(1e4) == doctest::Approx(0.96).epsilon(1e-12));  // 1 - lambda at large d
-    CHECK(l.p_correct(7.0) == doctest::Approx(0.7071).epsilon(1e-9)); // the stated threshold's point
+    CHECK(l.p_correct(0.0) == doctest::Approx(0.5));                   // guess rate gamma at d = 0
+    CHECK(l.p_correct(1e4) == doctest::Approx(0.96).epsilon(1e-12));   // 1 - lambda at large d
+    CHECK(l.p_correct(7.0) == doctest::Approx(0.7071).epsilon(1e-9));  // the stated threshold's point
     // Gaussian observer: two tones T apart compared with errors of sd sigma are
     // told apart Phi(T / (sqrt 2 sigma)) of the time (Green & Swets 1966).
-    CHECK(0.5 * std::erfc(-7.0 / (std::sqrt(2.0) * l.sigma_cents()) / std::sqrt(2.0)) == doctest::Approx(0.7071).epsilon(1e-9));
+    CHECK(0.5 * std::erfc(-7.0 / (std::sqrt(2.0) * l.sigma_cents()) / std::sqrt(2.0)) ==
+          doctest::Approx(0.7071).epsilon(1e-9));
     // The fit's model is the same function: p at its threshold is threshold_p.
     FitConfig f;
     CHECK(fit_p_correct(f, 3.0, 3.0) == doctest::Approx(0.7071).epsilon(1e-9));
@@ -95,7 +96,9 @@ TEST_CASE("the listener's answers follow its psychometric function (binomial, 4 
     }
 }
 
-TEST_CASE("discrimination: the fitted threshold's 95 % interval holds the listener's threshold in at least 90 % of 200 runs") {
+TEST_CASE(
+    "discrimination: the fitted threshold's 95 % interval holds the listener's threshold in at least 90 % of 200 "
+    "runs") {
     // The issue's test: listeners of 2, 5, 10 and 20 c with a 2 % lapse rate,
     // the shipped drill (2-down 1-up, 12 reversals or 80 answers or 10 right
     // at 0.5 c), 200 seeded runs each.
@@ -230,7 +233,8 @@ TEST_CASE("--listener values: perfect, guess, a threshold; anything else is name
 }
 
 TEST_CASE("the history refits a day from every logged answer: the same estimate as the fit of all its answers") {
-    const std::filesystem::path db = std::filesystem::temp_directory_path() / ("beatless-ear-history-" + new_uid().substr(0, 8) + ".sqlite3");
+    const std::filesystem::path db =
+        std::filesystem::temp_directory_path() / ("beatless-ear-history-" + new_uid().substr(0, 8) + ".sqlite3");
     const Drill d = load_drill("ear-septimal-tritone");
     std::vector<LevelAnswer> all;
     {
@@ -254,7 +258,8 @@ TEST_CASE("the history refits a day from every logged answer: the same estimate 
     CHECK(l.attempts == 3);
     // The log keeps every answer at the precision it was played (float32 levels).
     std::vector<LevelAnswer> as_logged;
-    for (const LevelAnswer& a : all) as_logged.push_back({static_cast<double>(static_cast<float>(a.level_cents)), a.correct});
+    for (const LevelAnswer& a : all)
+        as_logged.push_back({static_cast<double>(static_cast<float>(a.level_cents)), a.correct});
     const ThresholdEstimate e = fit_threshold(as_logged, d.fit_config());
     REQUIRE(e.verdict == ThresholdVerdict::measured);
     CHECK(l.estimate == "measured");

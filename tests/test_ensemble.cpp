@@ -29,7 +29,8 @@ using pitch::ChordReference;
 
 namespace {
 
-constexpr ChordReference kRefs[] = {ChordReference::fixed_root, ChordReference::sounding_bass, ChordReference::best_fit};
+constexpr ChordReference kRefs[] = {ChordReference::fixed_root, ChordReference::sounding_bass,
+                                    ChordReference::best_fit};
 constexpr double kRootHz = 98.0;  // G2
 
 // The group, listed top down (the order need not follow the chord).
@@ -61,8 +62,10 @@ struct Messages {
 
 // Drives the take through a fake device with as many inputs as it has
 // channels; with msgs, supervise() runs after every block and its lines are kept.
-std::vector<pitch::EnsembleReading> through_device(const test::GroupTake& take, const audio::EnsembleSetup& setup, Messages* msgs = nullptr) {
-    audio::FakeAudioSystem sys({audio::fake_device(0, "Fake quad box", take.channels, 0, take.rate_hz)}, {take.rate_hz});
+std::vector<pitch::EnsembleReading> through_device(const test::GroupTake& take, const audio::EnsembleSetup& setup,
+                                                   Messages* msgs = nullptr) {
+    audio::FakeAudioSystem sys({audio::fake_device(0, "Fake quad box", take.channels, 0, take.rate_hz)},
+                               {take.rate_hz});
     audio::EngineConfig ec;
     ec.sample_rate_hz = take.rate_hz;
     audio::Engine eng(ec, &sys);
@@ -75,7 +78,8 @@ std::vector<pitch::EnsembleReading> through_device(const test::GroupTake& take, 
     for (std::size_t f = 0; (f + block) * ch <= take.interleaved.size(); f += block) {
         sys.drive(std::span<const float>(take.interleaved.data() + f * ch, block * ch), {}, take.channels, 2);
         eng.analyze_available();
-        for (std::size_t k; (k = eng.take_readings(got)) > 0;) out.insert(out.end(), got.begin(), got.begin() + static_cast<std::ptrdiff_t>(k));
+        for (std::size_t k; (k = eng.take_readings(got)) > 0;)
+            out.insert(out.end(), got.begin(), got.begin() + static_cast<std::ptrdiff_t>(k));
         if (msgs) eng.supervise();
     }
     CHECK(eng.status().ring_overflow_events == 0);
@@ -88,7 +92,8 @@ struct Worst {
     bool all_sounding = true;
 };
 
-Worst score(const std::vector<pitch::EnsembleReading>& rs, const std::vector<test::GroupVoice>& g, double from_s, double to_s) {
+Worst score(const std::vector<pitch::EnsembleReading>& rs, const std::vector<test::GroupVoice>& g, double from_s,
+            double to_s) {
     Worst w;
     for (const auto& r : rs) {
         if (r.t_s < from_s || r.t_s > to_s) continue;
@@ -111,7 +116,8 @@ void check_within(const Worst& w, const std::vector<test::GroupVoice>& g, double
     for (std::size_t k = 0; k < 3; ++k)
         for (std::size_t i = 0; i < g.size(); ++i) {
             if (g[i].silent) continue;
-            INFO("reference " << pitch::reference_key(kRefs[k]) << ", " << g[i].name << ": worst " << w.err[k][i] << " cents");
+            INFO("reference " << pitch::reference_key(kRefs[k]) << ", " << g[i].name << ": worst " << w.err[k][i]
+                              << " cents");
             CHECK(w.err[k][i] <= tol_cents);
         }
 }
@@ -161,7 +167,9 @@ TEST_CASE("the best-fit root against numpy's least squares, on the engine's own 
     // Readings at three moments of the held chord.
     std::vector<const pitch::EnsembleReading*> picked;
     for (const auto& r : rs)
-        if ((picked.empty() && r.t_s >= 1.0) || (picked.size() == 1 && r.t_s >= 1.8) || (picked.size() == 2 && r.t_s >= 2.6)) picked.push_back(&r);
+        if ((picked.empty() && r.t_s >= 1.0) || (picked.size() == 1 && r.t_s >= 1.8) ||
+            (picked.size() == 2 && r.t_s >= 2.6))
+            picked.push_back(&r);
     REQUIRE(picked.size() == 3);
     test::TempDir dir;
     const std::string cases = dir.file("cases.txt");
@@ -170,7 +178,8 @@ TEST_CASE("the best-fit root against numpy's least squares, on the engine's own 
         f.precision(17);
         // Lines: target cents | Hz | weights (tests/reference/lsq_root.py).
         for (const auto* r : picked) {
-            for (std::size_t i = 0; i < g.size(); ++i) f << chord.voice_cents(g[i].voice) + 1200.0 * r->p[i].octaves << ' ';
+            for (std::size_t i = 0; i < g.size(); ++i)
+                f << chord.voice_cents(g[i].voice) + 1200.0 * r->p[i].octaves << ' ';
             f << "| ";
             for (std::size_t i = 0; i < g.size(); ++i) f << r->p[i].centre_f0_hz << ' ';
             f << "| 1 1 1 1\n";
@@ -178,11 +187,13 @@ TEST_CASE("the best-fit root against numpy's least squares, on the engine's own 
         // The truth: the centres the voices were generated with.
         for (std::size_t i = 0; i < g.size(); ++i) f << chord.voice_cents(g[i].voice) << ' ';
         f << "| ";
-        for (std::size_t i = 0; i < g.size(); ++i) f << kRootHz * std::exp2((chord.voice_cents(g[i].voice) + g[i].dev_cents) / 1200.0) << ' ';
+        for (std::size_t i = 0; i < g.size(); ++i)
+            f << kRootHz * std::exp2((chord.voice_cents(g[i].voice) + g[i].dev_cents) / 1200.0) << ' ';
         f << "| 1 1 1 1\n";
     }
     const test::RunResult py = [&] {
-        const std::string cmd = "/usr/bin/python3 " BEATLESS_SOURCE_DIR "/tests/reference/lsq_root.py " + cases + " 2>&1";
+        const std::string cmd =
+            "/usr/bin/python3 " BEATLESS_SOURCE_DIR "/tests/reference/lsq_root.py " + cases + " 2>&1";
         test::RunResult r;
         std::FILE* p = popen(cmd.c_str(), "r");
         REQUIRE(p != nullptr);
@@ -206,22 +217,23 @@ TEST_CASE("the best-fit root against numpy's least squares, on the engine's own 
     REQUIRE(truth > 0.0);
     for (const auto* r : picked) {
         // The engine's root from measured pitches, against the root the generated voices imply.
-        CHECK(std::fabs(1200.0 * std::log2(r->root_hz[pitch::reference_index(ChordReference::best_fit)] / truth)) < 1.0);
+        CHECK(std::fabs(1200.0 * std::log2(r->root_hz[pitch::reference_index(ChordReference::best_fit)] / truth)) <
+              1.0);
     }
 }
-
 
 // ---------------------------------------------------------------------------
 // [SECTION] Bad inputs: clear messages, no crash
 // ---------------------------------------------------------------------------
 
-
-TEST_CASE("a multi-channel device that disappears: readings pause, one line says so, it is reopened and readings resume") {
+TEST_CASE(
+    "a multi-channel device that disappears: readings pause, one line says so, it is reopened and readings resume") {
     const pitch::Chord chord = pitch::parse_chord("4:5:6:7");
     const auto g = quartet();
     test::GroupTake take;
     test::render_group(take, chord, kRootHz, g);
-    audio::FakeAudioSystem sys({audio::fake_device(0, "Fake quad box", take.channels, 0, take.rate_hz)}, {take.rate_hz});
+    audio::FakeAudioSystem sys({audio::fake_device(0, "Fake quad box", take.channels, 0, take.rate_hz)},
+                               {take.rate_hz});
     audio::EngineConfig ec;
     ec.sample_rate_hz = take.rate_hz;
     ec.reopen_every_s = 0.0;  // retry at every supervise() in this test
@@ -238,8 +250,7 @@ TEST_CASE("a multi-channel device that disappears: readings pause, one line says
         for (std::size_t f = from; f + block <= to; f += block) {
             sys.drive(std::span<const float>(take.interleaved.data() + f * ch, block * ch), {}, take.channels, 2);
             eng.analyze_available();
-            while (eng.take_readings(got) > 0) {
-            }
+            while (eng.take_readings(got) > 0) {}
         }
     };
     play(0, frames / 2);
@@ -253,7 +264,9 @@ TEST_CASE("a multi-channel device that disappears: readings pause, one line says
     play(frames / 2, frames);
     eng.supervise();
     REQUIRE(msgs.size() == kept + 1);
-    CHECK(msgs.back() == "input device 'Fake quad box' stopped delivering audio; ensemble readings paused; trying to reopen it every 0 s");
+    CHECK(msgs.back() ==
+          "input device 'Fake quad box' stopped delivering audio; ensemble readings paused; trying to reopen it every "
+          "0 s");
     CHECK_FALSE(eng.status().input_ok);
     CHECK(eng.status().readings == before);  // nothing new while it is gone
     eng.supervise();                         // still gone: no new line, no crash
@@ -278,22 +291,27 @@ TEST_CASE("a device with fewer channels than players is refused in one line nami
         eng.open_input_device("");
         FAIL("a 2-channel device was accepted for 4 players");
     } catch (const Error& e) {
-        CHECK(std::string(e.what()) == "input device 'Fake stereo interface' has 2 input channels; 4 players on channels 1,2,3,4 need 4");
+        CHECK(std::string(e.what()) ==
+              "input device 'Fake stereo interface' has 2 input channels; 4 players on channels 1,2,3,4 need 4");
     }
     // Three players on channels 1 and 2 ... and 5 need five channels, as the message says.
     auto three = quartet();
     three.pop_back();
     three[2].channel = 4;
     eng.set_ensemble(setup_of(chord, three));
-    CHECK_THROWS_WITH_AS(eng.open_input_device("stereo"), "input device 'Fake stereo interface' has 2 input channels; 3 players on channels 1,2,5 need 5", Error);
+    CHECK_THROWS_WITH_AS(
+        eng.open_input_device("stereo"),
+        "input device 'Fake stereo interface' has 2 input channels; 3 players on channels 1,2,5 need 5", Error);
     // A setup that shares a channel between two players never reaches the device.
     auto shared = quartet();
     shared[1].channel = 0;
     CHECK_THROWS_WITH_AS(eng.set_ensemble(setup_of(chord, shared)),
-                         "player 2 (Alto): channel 1 is already player 1's; give each player a channel of their own", Error);
+                         "player 2 (Alto): channel 1 is already player 1's; give each player a channel of their own",
+                         Error);
     auto wrong_voice = quartet();
     wrong_voice[0].voice = 4;
-    CHECK_THROWS_WITH_AS(eng.set_ensemble(setup_of(chord, wrong_voice)), "player 1 (Soprano): voice 5 is not in the chord 4:5:6:7 (voices 1 to 4)", Error);
+    CHECK_THROWS_WITH_AS(eng.set_ensemble(setup_of(chord, wrong_voice)),
+                         "player 1 (Soprano): voice 5 is not in the chord 4:5:6:7 (voices 1 to 4)", Error);
 }
 
 TEST_CASE("a file with fewer channels than the players need is refused naming the file") {
@@ -302,7 +320,8 @@ TEST_CASE("a file with fewer channels than the players need is refused naming th
     test::write_take(path, 48000.0, 2, std::vector<float>(2 * 4800, 0.1f), audio::SampleFormat::pcm16);
     audio::Engine eng(audio::EngineConfig{}, nullptr);
     eng.set_ensemble(setup_of(pitch::parse_chord("4:5:6:7"), quartet()));
-    CHECK_THROWS_WITH_AS(eng.use_file(path), (path + ": player 3 (Tenor): channel 3 does not exist (channels 1 to 2)").c_str(), Error);
+    CHECK_THROWS_WITH_AS(eng.use_file(path),
+                         (path + ": player 3 (Tenor): channel 3 does not exist (channels 1 to 2)").c_str(), Error);
 }
 
 TEST_CASE("a silent channel: named once, left out of the references, the others still right") {
@@ -342,8 +361,9 @@ TEST_CASE("two channels carrying the same voice: a split source and a microphone
         for (std::size_t f = 0; f < frames; ++f) take.interleaved[f * ch + 3] = 0.5f * take.interleaved[f * ch + 2];
         Messages msgs;
         const auto rs = through_device(take, setup_of(chord, g), &msgs);
-        CHECK(msgs.has("channel 4 (Bass) carries the same voice as channel 3 (Tenor); it is 6 dB quieter: its microphone hears "
-                       "the neighbour (crosstalk) or the two share one source"));
+        CHECK(msgs.has(
+            "channel 4 (Bass) carries the same voice as channel 3 (Tenor); it is 6 dB quieter: its microphone hears "
+            "the neighbour (crosstalk) or the two share one source"));
         int copies = 0, tenor_ok = 0;
         for (const auto& r : rs) {
             if (r.t_s < 1.5 || r.t_s > 2.7) continue;
@@ -360,8 +380,9 @@ TEST_CASE("two channels carrying the same voice: a split source and a microphone
         }
         Messages msgs;
         const auto rs = through_device(take, setup_of(chord, g), &msgs);
-        CHECK(msgs.has("channel 2 (Alto) carries the same voice as channel 3 (Tenor); it is 20 dB quieter: its microphone hears "
-                       "the neighbour (crosstalk) or the two share one source"));
+        CHECK(msgs.has(
+            "channel 2 (Alto) carries the same voice as channel 3 (Tenor); it is 20 dB quieter: its microphone hears "
+            "the neighbour (crosstalk) or the two share one source"));
         // The best fit leaves the copy out: the soprano, tenor and bass read as without the alto.
         auto without = g;
         without[1].silent = true;
@@ -369,7 +390,8 @@ TEST_CASE("two channels carrying the same voice: a split source and a microphone
         for (const auto& r : rs) {
             if (r.t_s < 1.8 || r.t_s > 2.7) continue;
             for (std::size_t i : {0u, 2u, 3u})
-                right = right && std::fabs(r.dev(i, ChordReference::best_fit) - test::expected_dev(without, i, ChordReference::best_fit)) < 1.0;
+                right = right && std::fabs(r.dev(i, ChordReference::best_fit) -
+                                           test::expected_dev(without, i, ChordReference::best_fit)) < 1.0;
         }
         CHECK(right);
     }
@@ -404,7 +426,8 @@ TEST_CASE("a player assigned another voice than they sing: another note, and nea
         if (r.t_s < 1.0 || r.t_s > 2.5) continue;
         ++held;
         if (r.p[1].state == pitch::PlayerState::off_voice && r.p[1].near_voice == 2) ++named;
-        if (r.p[0].state == pitch::PlayerState::sounding && r.p[2].state == pitch::PlayerState::sounding && r.p[3].state == pitch::PlayerState::sounding)
+        if (r.p[0].state == pitch::PlayerState::sounding && r.p[2].state == pitch::PlayerState::sounding &&
+            r.p[3].state == pitch::PlayerState::sounding)
             ++others_sound;
         CHECK(r.p[0].near_voice == -1);  // only a player on another note is given one
     }
@@ -413,14 +436,16 @@ TEST_CASE("a player assigned another voice than they sing: another note, and nea
     CHECK(static_cast<double>(others_sound) / static_cast<double>(held) > 0.95);
 }
 
-TEST_CASE("ensemble beats come from the audible-pair rule: own pairs within hearing, none above the 16th partial or 4 kHz") {
+TEST_CASE(
+    "ensemble beats come from the audible-pair rule: own pairs within hearing, none above the 16th partial or 4 kHz") {
     // Rates by |p f_a - q f_b| (Helmholtz, On the Sensations of Tone, ch. VIII);
     // the limits (16th partial, 4 kHz) are those stated in pitch/theory/beats.h (common practice).
     for (const char* text : {"4:5:6:7", "8:15", "8:17", "2:3:19"}) {
         CAPTURE(text);
         const pitch::Chord chord = pitch::parse_chord(text);
         std::vector<pitch::Player> players;
-        for (std::size_t v = 0; v < chord.size(); ++v) players.push_back({"p" + std::to_string(v), v, static_cast<int>(v)});
+        for (std::size_t v = 0; v < chord.size(); ++v)
+            players.push_back({"p" + std::to_string(v), v, static_cast<int>(v)});
         pitch::EnsembleConfig cfg;
         cfg.root_hz = kRootHz;
         pitch::EnsembleAnalyzer an(chord, players, cfg);
@@ -429,7 +454,8 @@ TEST_CASE("ensemble beats come from the audible-pair rule: own pairs within hear
         for (int k = 0; k < 400; ++k) {
             for (std::size_t v = 0; v < players.size(); ++v) {
                 frames[v].t_s = k * cfg.hop_s;
-                frames[v].f0_hz = kRootHz * std::exp2((chord.voice_cents(v) + (v == 0 ? 0.0 : 3.0)) / 1200.0);  // upper voices 3 c sharp
+                frames[v].f0_hz = kRootHz * std::exp2((chord.voice_cents(v) + (v == 0 ? 0.0 : 3.0)) /
+                                                      1200.0);  // upper voices 3 c sharp
                 frames[v].confidence = 0.99;
                 frames[v].level_dbfs = -20.0;
             }
@@ -441,16 +467,20 @@ TEST_CASE("ensemble beats come from the audible-pair rule: own pairs within hear
                 CAPTURE(b);
                 const pitch::PairBeat& pb = r.pair(a, b);
                 if (pb.partial_a < 0) continue;
-                const double fa = kRootHz * std::exp2(chord.voice_cents(a) / 1200.0), fb = kRootHz * std::exp2(chord.voice_cents(b) / 1200.0);
+                const double fa = kRootHz * std::exp2(chord.voice_cents(a) / 1200.0),
+                             fb = kRootHz * std::exp2(chord.voice_cents(b) / 1200.0);
                 CHECK(pb.partial_a <= 16);
                 CHECK(pb.partial_b <= 16);
                 CHECK(pb.partial_a * fa <= 4000.0);
                 // The two partials meet within 100 cents (the rule's limit) in the just chord.
                 CHECK(std::fabs(1200.0 * std::log2(pb.partial_a * fa / (pb.partial_b * fb))) <= 100.0);
                 if (std::isfinite(pb.beat_hz))
-                    CHECK(pb.beat_hz == doctest::Approx(std::fabs(pb.partial_a * r.p[a].centre_f0_hz - pb.partial_b * r.p[b].centre_f0_hz)).epsilon(1e-9));
+                    CHECK(pb.beat_hz == doctest::Approx(std::fabs(pb.partial_a * r.p[a].centre_f0_hz -
+                                                                  pb.partial_b * r.p[b].centre_f0_hz))
+                                            .epsilon(1e-9));
             }
-        if (std::string(text) == "8:15") CHECK(r.pair(0, 1).partial_a == 15);  // its own pair: 15 x 98 Hz = 1470 Hz, in hearing
+        if (std::string(text) == "8:15")
+            CHECK(r.pair(0, 1).partial_a == 15);  // its own pair: 15 x 98 Hz = 1470 Hz, in hearing
         if (std::string(text) == "8:17") CHECK(r.pair(0, 1).partial_a != 17);  // 17th partial: beyond the 16th
     }
 }

@@ -41,26 +41,30 @@ bool has_control(const std::string& s) {
 std::string python_fnv1a_128(const std::string& text) {
     const std::string json = "{\"t\": \"" + text + "\"}";
     return beatless::test::json_value(
-        json, "(lambda p, h: [h := ((h ^ c) * p) % (1 << 128) for c in d['t'].encode()] and '%032x' % h or '%032x' % h)"
-              "((1 << 88) + 0x13b, 0x6c62272e07bb014262b821756295c58d)");
+        json,
+        "(lambda p, h: [h := ((h ^ c) * p) % (1 << 128) for c in d['t'].encode()] and '%032x' % h or '%032x' % h)"
+        "((1 << 88) + 0x13b, 0x6c62272e07bb014262b821756295c58d)");
 }
 
 }  // namespace
 
 TEST_CASE("content_uid is FNV-1a 128 as 32 hex digits") {
     using beatless::ui::content_uid;
-    CHECK(content_uid("") == "6c62272e07bb014262b821756295c58d");  // the offset basis (draft-eastlake-fnv)
+    CHECK(content_uid("") == "6c62272e07bb014262b821756295c58d");   // the offset basis (draft-eastlake-fnv)
     CHECK(content_uid("a") == "d228cb696f1a8caf78912b704e4a8964");  // FNV test vector, from memory; Python agrees below
     CHECK(content_uid("a") == python_fnv1a_128("a"));
     CHECK(content_uid("foobar") == python_fnv1a_128("foobar"));
-    CHECK(content_uid("started_at:24:2025-03-01T10:00:00.000Z") == python_fnv1a_128("started_at:24:2025-03-01T10:00:00.000Z"));
+    CHECK(content_uid("started_at:24:2025-03-01T10:00:00.000Z") ==
+          python_fnv1a_128("started_at:24:2025-03-01T10:00:00.000Z"));
 }
 
 TEST_CASE("rows without a uid: the first import adds them, the next ones add nothing") {
     TempDir t;
     const std::vector<std::string> env = {"BEATLESS_HOME=" + t.file("home")};
-    REQUIRE(run_program({"drill", "hold-septimal", "--demo", "--attempts", "3", "--log", t.file("a.sqlite3")}, env).exit_code == 0);
-    REQUIRE(run_program({"history", "--log", t.file("a.sqlite3"), "--with-demo", "--export", t.file("a.csv")}, env).exit_code == 0);
+    REQUIRE(run_program({"drill", "hold-septimal", "--demo", "--attempts", "3", "--log", t.file("a.sqlite3")}, env)
+                .exit_code == 0);
+    REQUIRE(run_program({"history", "--log", t.file("a.sqlite3"), "--with-demo", "--export", t.file("a.csv")}, env)
+                .exit_code == 0);
     // Blank every row's uid (the first field, 32 hex digits).
     std::istringstream in(slurp(t.file("a.csv")));
     std::string line, csv;
@@ -87,22 +91,26 @@ TEST_CASE("printable writes control characters as escapes and keeps UTF-8") {
     CHECK(printable("\x1b[31mred") == "\\x1b[31mred");
     CHECK(printable("bell\x07") == "bell\\x07");
     CHECK(printable("del\x7f") == "del\\x7f");
-    CHECK(printable("csi\xc2\x9b" "2J") == "csi\\u009b2J");
+    CHECK(printable("csi\xc2\x9b"
+                    "2J") == "csi\\u009b2J");
     CHECK(printable("caf\xc3\xa9 \xc2\xb7 7/5") == "caf\xc3\xa9 \xc2\xb7 7/5");  // é and the middle dot stay
-    CHECK(beatless::pitch::quote("a\x1b" "b") == "'a\\x1bb'");
+    CHECK(beatless::pitch::quote("a\x1b"
+                                 "b") == "'a\\x1bb'");
 }
 
 TEST_CASE("names and keys from a TOML file reach the terminal escaped") {
     TempDir t;
     const std::vector<std::string> env = {"BEATLESS_HOME=" + t.file("home")};
-    REQUIRE(run_program({"tone", "--root", "D3", "--ratio", "7/5", "--seconds", "1", "--out", t.file("ok.wav")}, env).exit_code == 0);
+    REQUIRE(run_program({"tone", "--root", "D3", "--ratio", "7/5", "--seconds", "1", "--out", t.file("ok.wav")}, env)
+                .exit_code == 0);
     std::ofstream(t.file("evil.toml")) << "kind = \"targets\"\ntitle = \"Evil \\u001b]0;owned\\u0007 set\"\n"
                                           "[[target]]\ninterval = \"7/5\"\nname = \"red \\u001b[31m\\u009b name\"\n";
     auto r = run_program({"analyze", t.file("ok.wav"), "--root", "D3", "--targets", t.file("evil.toml")}, env);
     CHECK(r.exit_code == 0);
     CHECK(!has_control(r.out));
     CHECK(r.out.find("Evil \\x1b]0;owned\\x07 set") != std::string::npos);
-    std::ofstream(t.file("key.toml")) << "kind = \"targets\"\ntitle = \"t\"\n\"\\u001b[2J\" = 1\n[[target]]\ninterval = \"7/5\"\n";
+    std::ofstream(t.file("key.toml"))
+        << "kind = \"targets\"\ntitle = \"t\"\n\"\\u001b[2J\" = 1\n[[target]]\ninterval = \"7/5\"\n";
     r = run_program({"analyze", t.file("ok.wav"), "--root", "D3", "--targets", t.file("key.toml")}, env);
     CHECK(r.exit_code == 1);
     CHECK(!has_control(r.err));

@@ -18,10 +18,10 @@
 #include <string>
 
 using namespace beatless;
+using test::check_step;
 using test::Step;
 using test::StepCheck;
 using test::voice_of;
-using test::check_step;
 
 namespace {
 
@@ -53,9 +53,9 @@ TEST_CASE("live path: a voice stepping between ratios over the drone, through a 
         REQUIRE(rig.readings.size() > 800);
         if (std::getenv("BEATLESS_DUMP_READINGS"))  // for a person investigating a failure
             for (const auto& x : rig.readings)
-                std::printf("%.0f t %.3f f0 %.3f c %.3f tgt %d dev %.3f centre %.3f beat %.3f cap %lld\n", rate, x.r.t_s, x.r.f0_hz,
-                            x.r.cents_above_root, x.r.target_index, x.r.dev_cents, x.r.centre_dev_cents, x.r.beat_hz,
-                            static_cast<long long>(x.captured));
+                std::printf("%.0f t %.3f f0 %.3f c %.3f tgt %d dev %.3f centre %.3f beat %.3f cap %lld\n", rate,
+                            x.r.t_s, x.r.f0_hz, x.r.cents_above_root, x.r.target_index, x.r.dev_cents,
+                            x.r.centre_dev_cents, x.r.beat_hz, static_cast<long long>(x.captured));
         for (const Step& st : steps) {
             CAPTURE(st.ratio);
             const StepCheck c = check_step(rig.readings, st, root, rate, tritones(), 1.0);
@@ -67,7 +67,8 @@ TEST_CASE("live path: a voice stepping between ratios over the drone, through a 
             CHECK(c.worst_beat_err <= static_cast<double>(r.den) * root * r.value() * (std::exp2(0.5 / 1200.0) - 1.0));
             // Latency counted in samples: from the step to the first reading that stays settled.
             REQUIRE(c.settle_samples > 0);
-            MESSAGE(st.ratio << " settled " << c.settle_samples << " samples (" << 1000.0 * c.settle_samples / rate << " ms) after the step");
+            MESSAGE(st.ratio << " settled " << c.settle_samples << " samples (" << 1000.0 * c.settle_samples / rate
+                             << " ms) after the step");
             CHECK(c.settle_samples < static_cast<std::int64_t>(0.1 * rate));
         }
         const audio::EngineStatus stt = rig.engine.status();
@@ -112,7 +113,7 @@ TEST_CASE("drone removal: the voice at 7/5, 10/7 and 11/8 with the drone 6 dB lo
     d.root_hz = root;
     d.timbre = audio::Timbre::bright;  // 32 partials: the hardest of our timbres to remove
     d.level_dbfs = -20.0;
-    audio::RoomConfig room;            // 7 ms, gain 0.8, 3 kHz low-pass
+    audio::RoomConfig room;  // 7 ms, gain 0.8, 3 kHz low-pass
     const double drone_rms = drone_rms_at_mic(d, rate, room);
     struct Case {
         const char* ratio;
@@ -146,7 +147,8 @@ TEST_CASE("drone removal: the voice at 7/5, 10/7 and 11/8 with the drone 6 dB lo
                 if (err <= 1.0) ++within;
             }
             REQUIRE(n > 300);
-            MESSAGE(std::string(c.ratio) << std::string(removal ? " with" : " without") << " removal: worst error " << worst << " cents, " << within << "/" << n << " within 1 cent");
+            MESSAGE(std::string(c.ratio) << std::string(removal ? " with" : " without") << " removal: worst error "
+                                         << worst << " cents, " << within << "/" << n << " within 1 cent");
             if (removal) {
                 CHECK(worst <= 1.0);
                 CHECK(within == n);
@@ -159,7 +161,9 @@ TEST_CASE("drone removal: the voice at 7/5, 10/7 and 11/8 with the drone 6 dB lo
     }
 }
 
-TEST_CASE("low instruments: with the lowest note set below the default, the live path tracks a cello's and a double bass's range") {
+TEST_CASE(
+    "low instruments: with the lowest note set below the default, the live path tracks a cello's and a double bass's "
+    "range") {
     // Cello C string region: B1 = 3/2 above E1 (61.7 Hz); double bass: 5/4
     // above D1 (45.9 Hz). Both lie below the default floor of 70 Hz. Note
     // frequencies: 12-TET from A4 = 440 Hz (ISO 16).

@@ -23,7 +23,8 @@ audio::DroneSettings sounding() {
 }
 }  // namespace
 
-TEST_CASE("live io: the drone goes to every output channel, chunked by the scratch, sample for sample as rendered alone") {
+TEST_CASE(
+    "live io: the drone goes to every output channel, chunked by the scratch, sample for sample as rendered alone") {
     constexpr double rate = 48000.0;
     constexpr std::size_t frames = 1000;  // in calls of 400 and 600: chunks of 300, 100, then 300, 300
     constexpr int channels = 3;
@@ -92,11 +93,11 @@ TEST_CASE("live io: the watchdog sees a stall only after stall_s without a callb
     const Clock::time_point t0 = Clock::now();
     io.seen_at = t0;
     io.count_callback();
-    CHECK_FALSE(io.stalled(t0 + std::chrono::milliseconds(500), 1.0));  // a new callback: seen now
-    CHECK_FALSE(io.stalled(t0 + std::chrono::milliseconds(1400), 1.0)); // 0.9 s since
-    CHECK(io.stalled(t0 + std::chrono::milliseconds(1600), 1.0));       // 1.1 s since
+    CHECK_FALSE(io.stalled(t0 + std::chrono::milliseconds(500), 1.0));   // a new callback: seen now
+    CHECK_FALSE(io.stalled(t0 + std::chrono::milliseconds(1400), 1.0));  // 0.9 s since
+    CHECK(io.stalled(t0 + std::chrono::milliseconds(1600), 1.0));        // 1.1 s since
     io.count_callback();
-    CHECK_FALSE(io.stalled(t0 + std::chrono::milliseconds(1700), 1.0)); // flowing again
+    CHECK_FALSE(io.stalled(t0 + std::chrono::milliseconds(1700), 1.0));  // flowing again
     CHECK(io.seen_callbacks == 2);
 }
 
@@ -106,7 +107,9 @@ struct Mark {
 };
 }  // namespace
 
-TEST_CASE("live io: the outlet publishes to latest, history and stream, counts what the stream drops, keeps the largest latency") {
+TEST_CASE(
+    "live io: the outlet publishes to latest, history and stream, counts what the stream drops, keeps the largest "
+    "latency") {
     audio::ReadingOutlet<Mark, 4> outlet(2);  // the stream holds 2
     for (int i = 0; i < 5; ++i) outlet.publish(Mark{0.1 * i}, i == 2 ? 0.050 : 0.010 + 0.001 * i);
     audio::LiveStatus st;
@@ -161,8 +164,7 @@ TEST_CASE("live io: run_fast feeds every block, then the silent tail, and passes
             pending.push_back(Mark{time_s + 0.01});
             pending.push_back(Mark{time_s + 0.02});  // more than `got` holds: drained in turns
         },
-        take_pending,
-        [&] { return time_s; });
+        take_pending, [&] { return time_s; });
     CHECK(fed == std::vector<std::size_t>{4, 4, 4, 4, 2});  // three blocks, then 6 frames of tail
     CHECK(fed_first == std::vector<float>{1.0f, 1.0f, 1.0f, 0.0f, 0.0f});
     CHECK(seen.size() == 15);
@@ -182,8 +184,7 @@ TEST_CASE("live io: run_fast feeds every block, then the silent tail, and passes
             time_s += static_cast<double>(n) / 10.0;
             pending.push_back(Mark{time_s});
         },
-        take_pending,
-        [&] { return time_s; });
+        take_pending, [&] { return time_s; });
     CHECK(seen == std::vector<double>{0.4});  // 0.4 passes; 0.8 does not, and 0.8 >= 0.7 ends it
 }
 
@@ -195,9 +196,10 @@ TEST_CASE("live io: a read error ends run_fast with the reader's message") {
     auto failing = [&](std::span<float> b) {
         return io.read_block(b, []() -> std::span<const float> { throw Error("take.wav: read failed"); });
     };
-    CHECK_THROWS_WITH_AS(io.run_fast<Mark>(
-                             std::span<float>(scratch), 1, 0, std::span<Mark>(got), 0.0, on, failing,
-                             [](const float*, std::size_t) {}, [](std::span<Mark>) { return std::size_t{0}; }, [] { return 0.0; }),
-                         "take.wav: read failed", Error);
+    CHECK_THROWS_WITH_AS(
+        io.run_fast<Mark>(
+            std::span<float>(scratch), 1, 0, std::span<Mark>(got), 0.0, on, failing, [](const float*, std::size_t) {},
+            [](std::span<Mark>) { return std::size_t{0}; }, [] { return 0.0; }),
+        "take.wav: read failed", Error);
     CHECK(io.producer_done.load());
 }

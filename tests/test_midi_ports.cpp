@@ -31,9 +31,11 @@ TEST_CASE("a MIDI port that is not there: one line, exit 1, nothing from the lib
 }
 
 TEST_CASE("a bad MIDI tuning word or bend range is one line") {
-    auto r = test::run_program({"listen", "--demo", "--seconds", "0.2", "--midi-out", "x", "--midi-tuning", "cents"}, kNoServer);
+    auto r = test::run_program({"listen", "--demo", "--seconds", "0.2", "--midi-out", "x", "--midi-tuning", "cents"},
+                               kNoServer);
     CHECK(r.exit_code == 1);
-    CHECK(r.err == "beatless: MIDI tuning 'cents': expected mts (MIDI Tuning Standard) or bend (pitch bend per note)\n");
+    CHECK(r.err ==
+          "beatless: MIDI tuning 'cents': expected mts (MIDI Tuning Standard) or bend (pitch bend per note)\n");
 }
 
 TEST_CASE("devices says when there are no MIDI ports") {

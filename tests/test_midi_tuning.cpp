@@ -45,13 +45,16 @@ TEST_CASE("MTS frequency words match the standard's table of examples") {
         std::array<std::uint8_t, 3> word;
         double freq_hz;
     };
-    const Row table[] = {{{0x00, 0x00, 0x00}, 8.1758},   {{0x3C, 0x00, 0x00}, 261.6256}, {{0x44, 0x7F, 0x7F}, 439.9984},
-                         {{0x45, 0x00, 0x00}, 440.0000}, {{0x45, 0x00, 0x01}, 440.0016}};
+    const Row table[] = {{{0x00, 0x00, 0x00}, 8.1758},
+                         {{0x3C, 0x00, 0x00}, 261.6256},
+                         {{0x44, 0x7F, 0x7F}, 439.9984},
+                         {{0x45, 0x00, 0x00}, 440.0000},
+                         {{0x45, 0x00, 0x01}, 440.0016}};
     for (const Row& r : table) {
         CAPTURE(r.freq_hz);
         const MtsWord w{r.word[0], r.word[1], r.word[2]};
         CHECK(mts_freq_hz(w) == doctest::Approx(r.freq_hz).epsilon(5e-5 / r.freq_hz));  // table gives 4 decimals
-        CHECK(bytes(mts_word(mts_freq_hz(w))) == r.word);                              // and back, exactly
+        CHECK(bytes(mts_word(mts_freq_hz(w))) == r.word);                               // and back, exactly
     }
     // One step is 100/16384 = 0.0061 cents (the standard's resolution).
     CHECK(kMtsCentsPerStep == doctest::Approx(0.0061).epsilon(0.01));
@@ -80,8 +83,8 @@ TEST_CASE("a note retuned to 7/5 above D3: semitone and 14-bit fraction") {
     CHECK(mts_single_note_change(0x7F, 0, std::span(&change, 1)) == want);
     // Two changes in one message: count 2, then key + word each.
     const MtsNoteChange two[] = {{50, d3}, {56, d3 * 1.4}};
-    const std::vector<std::uint8_t> want2 = {0xF0, 0x7F, 0x00, 0x08, 0x02, 0x05, 0x02, 0x32, 0x32, 0x00,
-                                             0x00, 0x38, 0x37, 0x69, 0x4F, 0xF7};
+    const std::vector<std::uint8_t> want2 = {0xF0, 0x7F, 0x00, 0x08, 0x02, 0x05, 0x02, 0x32,
+                                             0x32, 0x00, 0x00, 0x38, 0x37, 0x69, 0x4F, 0xF7};
     CHECK(mts_single_note_change(0x00, 5, two) == want2);
     CHECK_THROWS(mts_single_note_change(0, 0, std::span<const MtsNoteChange>()));
 }
@@ -92,7 +95,8 @@ TEST_CASE("the bulk tuning dump has the standard's layout and checksum") {
     hz[56] = note_to_hz("D3") * 1.4;
     const auto m = mts_bulk_dump(0x10, 3, "tritones", hz);
     REQUIRE(m.size() == 408);  // 6 header + 16 name + 384 data + checksum + F7
-    CHECK(std::vector<std::uint8_t>(m.begin(), m.begin() + 6) == std::vector<std::uint8_t>{0xF0, 0x7E, 0x10, 0x08, 0x01, 0x03});
+    CHECK(std::vector<std::uint8_t>(m.begin(), m.begin() + 6) ==
+          std::vector<std::uint8_t>{0xF0, 0x7E, 0x10, 0x08, 0x01, 0x03});
     CHECK(std::string(m.begin() + 6, m.begin() + 22) == "tritones        ");  // padded with spaces
     // Equal-tempered keys are xx 00 00 with xx the key itself.
     for (std::size_t k = 0; k < 128; ++k) {
@@ -103,7 +107,8 @@ TEST_CASE("the bulk tuning dump has the standard's layout and checksum") {
         CHECK(m[at + 1] == 0);
         CHECK(m[at + 2] == 0);
     }
-    CHECK(std::vector<std::uint8_t>(m.begin() + 22 + 3 * 56, m.begin() + 22 + 3 * 57) == std::vector<std::uint8_t>{0x37, 0x69, 0x4F});
+    CHECK(std::vector<std::uint8_t>(m.begin() + 22 + 3 * 56, m.begin() + 22 + 3 * 57) ==
+          std::vector<std::uint8_t>{0x37, 0x69, 0x4F});
     // Checksum: XOR of 7E through the last data byte, 7 bits (computed here byte by byte).
     std::uint8_t x = 0;
     for (std::size_t i = 1; i < 406; ++i) x = static_cast<std::uint8_t>(x ^ m[i]);
@@ -149,8 +154,8 @@ TEST_CASE("a target set on the keys: nearest step, octaves, collisions, sequence
     CHECK(map.keys[54].freq_hz == doctest::Approx(d3 * 5 / 4));
     CHECK(map.keys[56].freq_hz == doctest::Approx(d3 * 11 / 8));
     CHECK(map.keys[57].freq_hz == doctest::Approx(d3 * 3 / 2));
-    CHECK(map.keys[69].freq_hz == doctest::Approx(d3 * 3));           // 3/2 an octave up
-    CHECK(map.keys[45].freq_hz == doctest::Approx(d3 * 3 / 4));       // and an octave down
+    CHECK(map.keys[69].freq_hz == doctest::Approx(d3 * 3));                    // 3/2 an octave up
+    CHECK(map.keys[45].freq_hz == doctest::Approx(d3 * 3 / 4));                // and an octave down
     CHECK(map.keys[51].freq_hz == doctest::Approx(d3 * std::exp2(1.0 / 12)));  // no target: 12-TET from the root
     CHECK(map.keys[51].target == -1);
     CHECK(map.unplaced.empty());

@@ -5,11 +5,11 @@
 // notation (C4 = middle C = MIDI 60, Acoustical Society of America); beat
 // rate of coinciding partials |q*f_high - p*f_low| (Helmholtz, On the
 // Sensations of Tone, ch. VIII).
-#include "pitch/theory/beats.h"
 #include "pitch/base/error.h"
+#include "pitch/measure/reading_maker.h"
+#include "pitch/theory/beats.h"
 #include "pitch/theory/interval.h"
 #include "pitch/theory/notes.h"
-#include "pitch/measure/reading_maker.h"
 #include "pitch/theory/targets.h"
 
 #include <doctest/doctest.h>
@@ -23,9 +23,9 @@ TEST_CASE("A4 = 440 Hz (ISO 16) and MIDI 69 = 440 Hz with 12-TET spacing") {
     CHECK(note_to_hz("A4") == doctest::Approx(440.0).epsilon(1e-12));
     CHECK(midi_to_hz(69) == doctest::Approx(440.0).epsilon(1e-12));
     CHECK(note_to_midi("A4") == 69);
-    CHECK(note_to_midi("C4") == 60);     // middle C
-    CHECK(note_to_midi("C-1") == 0);     // MIDI note 0
-    CHECK(note_to_midi("G9") == 127);    // MIDI note 127
+    CHECK(note_to_midi("C4") == 60);   // middle C
+    CHECK(note_to_midi("C-1") == 0);   // MIDI note 0
+    CHECK(note_to_midi("G9") == 127);  // MIDI note 127
     // Middle C in 12-TET from A4 = 440: 261.6256 Hz (published frequency tables).
     CHECK(note_to_hz("C4") == doctest::Approx(261.62557).epsilon(1e-7));
     // A3 and A5 are exact octaves; each semitone is 2^(1/12).
@@ -170,7 +170,8 @@ const double kD3 = 440.0 * std::exp2(-19.0 / 12.0);
 double at_cents(double f, double cents) { return f * std::exp2(cents / 1200.0); }
 }  // namespace
 
-TEST_CASE("audible pair: a simple target's own pair, rate |q f_high - p f_low| (Helmholtz, Sensations of Tone, ch. VIII)") {
+TEST_CASE(
+    "audible pair: a simple target's own pair, rate |q f_high - p f_low| (Helmholtz, Sensations of Tone, ch. VIII)") {
     const double voice = at_cents(220.0 * 1.25, 3.0);  // 5/4 over A3, 3 cents sharp
     const AudiblePair a = audible_pair(220.0, voice, Ratio{5, 4}.cents(), Ratio{5, 4});
     REQUIRE(a.found);
@@ -192,11 +193,11 @@ TEST_CASE("audible pair: commas beat at the fundamentals' difference (Helmholtz 
         double at_target_hz;  // worked by hand: D3 x (ratio - 1)
     };
     const Case cases[] = {
-        {"81/80", kD3 / 80.0},                     // syntonic comma: 1.8354 Hz
-        {"64/63", kD3 / 63.0},                     // septimal comma: 2.3307 Hz
-        {"50/49", kD3 / 49.0},                     // septimal sixth-tone: 2.9966 Hz
-        {"128/125", kD3 * 3.0 / 125.0},            // lesser diesis: 3.5240 Hz
-        {"531441/524288", kD3 * 7153.0 / 524288.0} // Pythagorean comma: 2.0033 Hz
+        {"81/80", kD3 / 80.0},                      // syntonic comma: 1.8354 Hz
+        {"64/63", kD3 / 63.0},                      // septimal comma: 2.3307 Hz
+        {"50/49", kD3 / 49.0},                      // septimal sixth-tone: 2.9966 Hz
+        {"128/125", kD3 * 3.0 / 125.0},             // lesser diesis: 3.5240 Hz
+        {"531441/524288", kD3 * 7153.0 / 524288.0}  // Pythagorean comma: 2.0033 Hz
     };
     for (const Case& c : cases) {
         CAPTURE(c.ratio);

@@ -17,16 +17,18 @@
 //   6. CSV export and import
 //   7. The history command
 #include "pitch/base/error.h"
-#include "ui/session/rng.h"
-#include "ui/session/log_summary.h"
 #include "ui/session/log_csv.h"
+#include "ui/session/log_summary.h"
 #include "ui/session/log_writer.h"
 #include "ui/session/paths.h"
 #include "ui/session/practice_log.h"
+#include "ui/session/rng.h"
 
 #include <doctest/doctest.h>
 #include <sqlite3.h>
 
+#include <sys/wait.h>
+#include <unistd.h>
 #include <csignal>
 #include <cstdio>
 #include <filesystem>
@@ -35,8 +37,6 @@
 #include <set>
 #include <sstream>
 #include <string>
-#include <sys/wait.h>
-#include <unistd.h>
 #include <vector>
 
 using namespace beatless;
@@ -51,7 +51,8 @@ struct TempDir {
     fs::path path;
     explicit TempDir(const std::string& tag) {
         static int n = 0;
-        path = fs::temp_directory_path() / ("beatless-log-" + tag + "-" + std::to_string(::getpid()) + "-" + std::to_string(n++));
+        path = fs::temp_directory_path() /
+               ("beatless-log-" + tag + "-" + std::to_string(::getpid()) + "-" + std::to_string(n++));
         fs::remove_all(path);
         fs::create_directories(path / "data");  // a log path the user names must be in a folder that exists
     }
@@ -141,7 +142,8 @@ struct Run {
 // Runs the beatless program with BEATLESS_HOME set to home.
 Run run_program(const std::string& args, const fs::path& home) {
     const fs::path err_file = home / "stderr.txt";
-    const std::string cmd = "BEATLESS_HOME='" + home.string() + "' '" BEATLESS_PROGRAM "' " + args + " 2>'" + err_file.string() + "'";
+    const std::string cmd =
+        "BEATLESS_HOME='" + home.string() + "' '" BEATLESS_PROGRAM "' " + args + " 2>'" + err_file.string() + "'";
     Run r;
     FILE* p = popen(cmd.c_str(), "r");
     REQUIRE(p != nullptr);
@@ -311,7 +313,8 @@ TEST_CASE("a newer schema, another program's SQLite file, or not SQLite at all")
     {
         sqlite3* h = nullptr;
         sqlite3_open((t.path / "newer.sqlite3").c_str(), &h);
-        sqlite3_exec(h, "PRAGMA application_id = 1112820807; CREATE TABLE x (a); PRAGMA user_version = 9;", nullptr, nullptr, nullptr);
+        sqlite3_exec(h, "PRAGMA application_id = 1112820807; CREATE TABLE x (a); PRAGMA user_version = 9;", nullptr,
+                     nullptr, nullptr);
         sqlite3_close(h);
         sqlite3_open((t.path / "other.sqlite3").c_str(), &h);
         sqlite3_exec(h, "CREATE TABLE notes (a); PRAGMA user_version = 1;", nullptr, nullptr, nullptr);
@@ -323,9 +326,11 @@ TEST_CASE("a newer schema, another program's SQLite file, or not SQLite at all")
         FAIL("opened a newer schema");
     } catch (const LogError& e) {
         CHECK(e.problem() == LogProblem::too_new);
-        CHECK(std::string(e.what()).find("written by a newer beatless (schema 9; this one knows up to 3)") != std::string::npos);
+        CHECK(std::string(e.what()).find("written by a newer beatless (schema 9; this one knows up to 3)") !=
+              std::string::npos);
     }
-    CHECK_THROWS_WITH_AS(PracticeLog(t.path / "other.sqlite3"), doctest::Contains("not a beatless practice log"), LogError);
+    CHECK_THROWS_WITH_AS(PracticeLog(t.path / "other.sqlite3"), doctest::Contains("not a beatless practice log"),
+                         LogError);
     try {
         PracticeLog log(t.path / "text.sqlite3");
         FAIL("opened a text file");
@@ -389,7 +394,8 @@ TEST_CASE("SIGKILL in the middle of writes: the file passes integrity_check and 
             present.insert(a.uid);
             CHECK(a.trace.size() == 6000);  // never half an attempt
         }
-        for (const std::string& uid : committed) CHECK_MESSAGE(present.count(uid) == 1, "lost committed attempt " << uid);
+        for (const std::string& uid : committed)
+            CHECK_MESSAGE(present.count(uid) == 1, "lost committed attempt " << uid);
         // At most the one attempt committed just before its uid reached the pipe is extra.
         CHECK(present.size() <= committed.size() + static_cast<std::size_t>(round + 1));
         for (const std::string& uid : present) committed.insert(uid);
@@ -405,7 +411,7 @@ TEST_CASE("a full disk: the attempt stays in memory with a one-line warning, and
     const fs::path db = t.path / "p.sqlite3";
     { PracticeLog make(db); }  // the schema takes a few pages
     LogOptions o;
-    o.max_page_count = 12;     // 48 KB at 4 KB pages: no room for a 96 KB trace
+    o.max_page_count = 12;  // 48 KB at 4 KB pages: no room for a 96 KB trace
     LogWriter w(db, o);
     ui::Rng rng(5);
     Attempt a1 = random_attempt(rng, 1, 6000), a2 = random_attempt(rng, 2, 6000);
@@ -505,8 +511,13 @@ TEST_CASE("a folder that cannot be created: kept in memory until it can") {
 
 TEST_CASE("base64 matches RFC 4648's test vectors") {
     // RFC 4648 section 10.
-    const std::pair<const char*, const char*> v[] = {{"", ""},         {"f", "Zg=="},     {"fo", "Zm8="},        {"foo", "Zm9v"},
-                                                     {"foob", "Zm9vYg=="}, {"fooba", "Zm9vYmE="}, {"foobar", "Zm9vYmFy"}};
+    const std::pair<const char*, const char*> v[] = {{"", ""},
+                                                     {"f", "Zg=="},
+                                                     {"fo", "Zm8="},
+                                                     {"foo", "Zm9v"},
+                                                     {"foob", "Zm9vYg=="},
+                                                     {"fooba", "Zm9vYmE="},
+                                                     {"foobar", "Zm9vYmFy"}};
     for (const auto& [plain, coded] : v) {
         CHECK(base64_encode(plain) == coded);
         CHECK(base64_decode(coded) == plain);
@@ -551,7 +562,8 @@ TEST_CASE("a CSV exported before schema 3 (no method, estimate or interval colum
     const std::string v2 =
         "uid,started_at,drill,kind,target,target_name,root_hz,performer,dur_s,locked,time_to_lock_s,mean_dev_cents,"
         "spread_cents,in_tolerance_share,threshold_cents,trials,correct_share,settings\n"
-        "0123456789abcdef0123456789abcdef,2025-03-01T14:03:22.123Z,ear-tritones,ear,11/8 7/5,,110,,60,,,,,,14.2,48,0.7,{}\n";
+        "0123456789abcdef0123456789abcdef,2025-03-01T14:03:22.123Z,ear-tritones,ear,11/8 "
+        "7/5,,110,,60,,,,,,14.2,48,0.7,{}\n";
     CHECK(import_csv(log, v2, "old.csv").added == 1);
     const auto all = log.read();
     REQUIRE(all.size() == 1);
@@ -587,7 +599,8 @@ TEST_CASE("bad CSV rows are refused with file:line and nothing is imported") {
     };
     CHECK(error_of(replace_in_row(2, v[1].started_at, "2025-02-30T10:00:00.000Z")) ==
           "student.csv:4: started_at '2025-02-30T10:00:00.000Z' is not a UTC time like 2025-03-01T14:03:22.123Z");
-    CHECK(error_of(replace_in_row(3, ",hold,", ",sing,")).starts_with("student.csv:5: kind 'sing' is neither hold nor ear"));
+    CHECK(error_of(replace_in_row(3, ",hold,", ",sing,"))
+              .starts_with("student.csv:5: kind 'sing' is neither hold nor ear"));
     CHECK(error_of(replace_in_row(1, ",hold,", ",hold,")) == "(no error)");
     CHECK(log.count() == 4);
     // A fresh log: every bad file below leaves it empty.
@@ -602,7 +615,8 @@ TEST_CASE("bad CSV rows are refused with file:line and nothing is imported") {
         CHECK(empty.count() == 0);
     };
     std::string bad_target = good;
-    bad_target.replace(bad_target.find("," + v[2].target + ",", bad_target.find(v[2].uid)), v[2].target.size() + 2, ",7/0,");
+    bad_target.replace(bad_target.find("," + v[2].target + ",", bad_target.find(v[2].uid)), v[2].target.size() + 2,
+                       ",7/0,");
     refused(bad_target, "student.csv:5: target has a bad target: ");
     refused(good.substr(0, good.size() - 30), "student.csv:7: ");  // the last row cut short
     refused("uid,started_at\n", "student.csv:1: missing column 'drill'");
@@ -617,8 +631,8 @@ TEST_CASE("bad CSV rows are refused with file:line and nothing is imported") {
 
 namespace {
 
-Attempt hold(const std::string& when, const std::string& target, std::optional<bool> locked, double ttl, double dev, double spread,
-             double in_tol) {
+Attempt hold(const std::string& when, const std::string& target, std::optional<bool> locked, double ttl, double dev,
+             double spread, double in_tol) {
     Attempt a;
     a.started_at = when;
     a.drill = "hold-septimal-tritones";
@@ -682,7 +696,7 @@ TEST_CASE("history sums: per target and per week, hand-worked") {
     CHECK(s.totals[2].key == "ear-tritones");
     const HistoryLine& sept = s.totals[0];
     CHECK(sept.attempts == 4);
-    CHECK(sept.locked_share == doctest::Approx(0.75));                      // 3 of 4
+    CHECK(sept.locked_share == doctest::Approx(0.75));                       // 3 of 4
     CHECK(sept.time_to_lock_s == doctest::Approx((1.0 + 2.0 + 1.5) / 3.0));  // the three that locked
     CHECK(sept.mean_dev_cents == doctest::Approx((-4.0 - 2.0 + 0.0 - 1.0) / 4.0));
     CHECK(sept.spread_cents == doctest::Approx((3.0 + 4.0 + 5.0 + 2.0) / 4.0));
@@ -740,7 +754,8 @@ TEST_CASE("beatless history: text, json and csv, filters and errors") {
 
     const Run bad_since = run_program("history --since 2025-02-30", t.path);
     CHECK(bad_since.code == 2);
-    CHECK(bad_since.err == "beatless: --since '2025-02-30': not a date (use YYYY-MM-DD or YYYY-MM-DDTHH:MM[:SS], UTC)\n");
+    CHECK(bad_since.err ==
+          "beatless: --since '2025-02-30': not a date (use YYYY-MM-DD or YYYY-MM-DDTHH:MM[:SS], UTC)\n");
     const Run bad_target = run_program("history --target 7/0", t.path);
     CHECK(bad_target.code == 2);
     CHECK(bad_target.err.starts_with("beatless: --target: "));
@@ -781,8 +796,8 @@ TEST_CASE("the demo performer's and the simulated listener's attempts are kept a
     }
     const Run text = run_program("history", t.path);
     CHECK(text.code == 0);
-    CHECK(text.out.find(": 7 attempts\n(3 attempts by the demo performer or the simulated listener left out; --with-demo shows them)\n") !=
-          std::string::npos);
+    CHECK(text.out.find(": 7 attempts\n(3 attempts by the demo performer or the simulated listener left out; "
+                        "--with-demo shows them)\n") != std::string::npos);
     const Run all = run_program("history --with-demo --format json", t.path);
     CHECK(all.code == 0);
     CHECK(all.out.find("\"attempts\": 10") != std::string::npos);

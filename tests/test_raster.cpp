@@ -27,11 +27,11 @@
 //   texture: nearest filtering takes the texel containing the sample point,
 //     floor(u * width) (OpenGL 2.1 spec, section 3.8.8, GL_NEAREST).
 //   PNG: read back with stb_image (libstb-dev), an independent decoder.
-#include "ui/render/render_error.h"
 #include "tests/demo_screen.h"
 #include "ui/render/imgui_host.h"
 #include "ui/render/png.h"
 #include "ui/render/raster.h"
+#include "ui/render/render_error.h"
 
 #include <doctest/doctest.h>
 #include <stb_image.h>
@@ -106,8 +106,8 @@ struct Mesh {
     }
 };
 
-void draw(PixelBuffer& buf, const Mesh& m, const ImVec4& clip = kNoClip, const Texture* tex = nullptr,
-          bool fast = true, Rasterizer* used = nullptr) {
+void draw(PixelBuffer& buf, const Mesh& m, const ImVec4& clip = kNoClip, const Texture* tex = nullptr, bool fast = true,
+          Rasterizer* used = nullptr) {
     RasterConfig cfg;
     cfg.rect_fast_path = fast;
     Rasterizer r(cfg);
@@ -188,7 +188,8 @@ double grid_coord(std::mt19937& rng, double lo, double hi) {
 // [SECTION] Coverage
 // ---------------------------------------------------------------------------
 
-TEST_CASE("axis-aligned rectangles cover exactly the pixel centres x0 <= xc < x1, y0 <= yc < y1 (top-left rule, D3D10)") {
+TEST_CASE(
+    "axis-aligned rectangles cover exactly the pixel centres x0 <= xc < x1, y0 <= yc < y1 (top-left rule, D3D10)") {
     std::mt19937 rng(7);
     int rects_checked = 0;
     for (int n = 0; n < 400; ++n) {
@@ -216,7 +217,8 @@ TEST_CASE("axis-aligned rectangles cover exactly the pixel centres x0 <= xc < x1
     CHECK(rects_checked == 400);
 }
 
-TEST_CASE("triangle coverage equals pixel-centre sampling with an independent point-in-triangle test (D3D10 top-left rule)") {
+TEST_CASE(
+    "triangle coverage equals pixel-centre sampling with an independent point-in-triangle test (D3D10 top-left rule)") {
     std::mt19937 rng(11);
     int covered_total = 0, ties = 0;
     for (int n = 0; n < 3000; ++n) {
@@ -264,8 +266,10 @@ TEST_CASE("shared edges: a jittered mesh at 50% alpha is blended exactly once ev
             for (int i = 0; i <= nx; ++i) {
                 double x = x0 + (x1 - x0) * i / nx, y = y0 + (y1 - y0) * j / ny;
                 std::uniform_real_distribution<double> jit(-3.0, 3.0);
-                if (i > 0 && i < nx) x = rng() % 2 ? std::floor(x + jit(rng)) + 0.5 : std::round((x + jit(rng)) * 256) / 256;
-                if (j > 0 && j < ny) y = rng() % 2 ? std::floor(y + jit(rng)) + 0.5 : std::round((y + jit(rng)) * 256) / 256;
+                if (i > 0 && i < nx)
+                    x = rng() % 2 ? std::floor(x + jit(rng)) + 0.5 : std::round((x + jit(rng)) * 256) / 256;
+                if (j > 0 && j < ny)
+                    y = rng() % 2 ? std::floor(y + jit(rng)) + 0.5 : std::round((y + jit(rng)) * 256) / 256;
                 pts.push_back({x, y});
             }
         Mesh m;
@@ -279,8 +283,13 @@ TEST_CASE("shared edges: a jittered mesh at 50% alpha is blended exactly once ev
             for (int i = 0; i < nx; ++i) {
                 const P p00 = pts[j * (nx + 1) + i], p10 = pts[j * (nx + 1) + i + 1];
                 const P p01 = pts[(j + 1) * (nx + 1) + i], p11 = pts[(j + 1) * (nx + 1) + i + 1];
-                if (rng() % 2) { add(p00, p10, p11); add(p00, p11, p01); }
-                else { add(p00, p10, p01); add(p10, p11, p01); }
+                if (rng() % 2) {
+                    add(p00, p10, p11);
+                    add(p00, p11, p01);
+                } else {
+                    add(p00, p10, p01);
+                    add(p10, p11, p01);
+                }
             }
         PixelBuffer buf = cleared();
         draw(buf, m);
@@ -358,12 +367,15 @@ TEST_CASE("alpha blending: out = src*a + dst*(1-a) per channel, stored alpha a +
     for (unsigned a = 0; a <= 255; ++a) {
         const std::uint32_t src = rng() & 0x00FFFFFFu;
         const std::uint32_t dst = rng();
-        for (int width : {1, 3, 4, 9, 13}) {      // tails and 4-pixel groups
+        for (int width : {1, 3, 4, 9, 13}) {        // tails and 4-pixel groups
             for (int kind = 0; kind < 2; ++kind) {  // rect span path; triangle path
                 PixelBuffer b = cleared(dst, 16, 4);
                 Mesh m;
-                if (kind == 0) m.rect(1, 1, 1 + width, 2, src | (a << 24));
-                else m.tri(vert(1, 1, src | (a << 24)), vert(1 + 2 * width, 1, src | (a << 24)), vert(1, 3, src | (a << 24)));
+                if (kind == 0)
+                    m.rect(1, 1, 1 + width, 2, src | (a << 24));
+                else
+                    m.tri(vert(1, 1, src | (a << 24)), vert(1 + 2 * width, 1, src | (a << 24)),
+                          vert(1, 3, src | (a << 24)));
                 draw(b, m);
                 const std::uint32_t got = b.at(1, 1);
                 for (int ch = 0; ch < 3; ++ch) CHECK(chan(got, ch) == over(chan(src, ch), chan(dst, ch), a));
@@ -456,7 +468,8 @@ TEST_CASE("clip rectangles keep exactly the pixels whose centres lie inside the 
     m.rect(5.5, 30.25, 63.0, 47.0, rgba(255, 0, 0));
     PixelBuffer full = cleared();
     draw(full, m);
-    const ImVec4 clips[] = {{10.25f, 5.5f, 40.75f, 30.0f}, {-20, -20, 200, 200}, {30, 0, 30, 48}, {0.5f, 40.5f, 63.5f, 47.5f}};
+    const ImVec4 clips[] = {
+        {10.25f, 5.5f, 40.75f, 30.0f}, {-20, -20, 200, 200}, {30, 0, 30, 48}, {0.5f, 40.5f, 63.5f, 47.5f}};
     for (const ImVec4& clip : clips) {
         for (bool fast : {true, false}) {
             PixelBuffer b = cleared();
@@ -480,10 +493,13 @@ TEST_CASE("nearest texture sampling takes the texel containing the sample point,
     // A 5x3 RGBA texture of distinct texels, stretched over a rectangle
     // (span path) and over a rotated triangle (edge path).
     std::vector<std::uint32_t> texels(15);
-    for (int i = 0; i < 15; ++i) texels[static_cast<std::size_t>(i)] = rgba(static_cast<unsigned>(i * 17), static_cast<unsigned>(255 - i * 13), static_cast<unsigned>(i * 5), 255);
+    for (int i = 0; i < 15; ++i)
+        texels[static_cast<std::size_t>(i)] =
+            rgba(static_cast<unsigned>(i * 17), static_cast<unsigned>(255 - i * 13), static_cast<unsigned>(i * 5), 255);
     const Texture tex{texels.data(), 5, 3, TextureFormat::rgba32};
     auto expect_at = [&](double u, double v) {
-        const int tx = std::clamp(static_cast<int>(std::floor(u * 5)), 0, 4), ty = std::clamp(static_cast<int>(std::floor(v * 3)), 0, 2);
+        const int tx = std::clamp(static_cast<int>(std::floor(u * 5)), 0, 4),
+                  ty = std::clamp(static_cast<int>(std::floor(v * 3)), 0, 2);
         return texels[static_cast<std::size_t>(ty * 5 + tx)];
     };
     {
@@ -503,7 +519,8 @@ TEST_CASE("nearest texture sampling takes the texel containing the sample point,
         const P a{5.0, 3.0}, b{60.0, 14.0}, c{16.0, 45.0};
         const ImVec2 ua(0.02f, 0.1f), ub(0.97f, 0.3f), uc(0.4f, 0.95f);
         Mesh m;
-        m.tri(vert(a.x, a.y, kWhite, ua.x, ua.y), vert(b.x, b.y, kWhite, ub.x, ub.y), vert(c.x, c.y, kWhite, uc.x, uc.y));
+        m.tri(vert(a.x, a.y, kWhite, ua.x, ua.y), vert(b.x, b.y, kWhite, ub.x, ub.y),
+              vert(c.x, c.y, kWhite, uc.x, uc.y));
         PixelBuffer buf = cleared();
         draw(buf, m, kNoClip, &tex);
         const double area = cross(a, b, c);
@@ -535,9 +552,9 @@ TEST_CASE("font atlas: a glyph's texels appear 1:1 at its place in the frame (Im
     const ImVec2 pos(20.0f, 10.0f);
     Rasterizer raster;
     PixelBuffer buf;
-    render_offscreen(host, raster, buf, 1.0f / 60.0f, [&] {
-        ImGui::GetForegroundDrawList()->AddText(font, font->FontSize, pos, kWhite, text);
-    }, kBlack);
+    render_offscreen(
+        host, raster, buf, 1.0f / 60.0f,
+        [&] { ImGui::GetForegroundDrawList()->AddText(font, font->FontSize, pos, kWhite, text); }, kBlack);
     const Texture& atlas = host.atlas();
     const auto* texels = static_cast<const std::uint8_t*>(atlas.texels);
     float pen = pos.x;
@@ -550,13 +567,16 @@ TEST_CASE("font atlas: a glyph's texels appear 1:1 at its place in the frame (Im
         CHECK(g->X0 == std::floor(g->X0));
         CHECK(g->Y0 == std::floor(g->Y0));
         CHECK(g->AdvanceX == std::floor(g->AdvanceX));
-        const int tx0 = static_cast<int>(std::lround(g->U0 * atlas.width_px)), ty0 = static_cast<int>(std::lround(g->V0 * atlas.height_px));
+        const int tx0 = static_cast<int>(std::lround(g->U0 * atlas.width_px)),
+                  ty0 = static_cast<int>(std::lround(g->V0 * atlas.height_px));
         const int gw = static_cast<int>(g->X1 - g->X0), gh = static_cast<int>(g->Y1 - g->Y0);
         CHECK(std::lround(g->U1 * atlas.width_px) - tx0 == gw);
         for (int j = 0; j < gh; ++j)
             for (int i = 0; i < gw; ++i) {
                 const int x = static_cast<int>(pen + g->X0) + i, y = static_cast<int>(pos.y + g->Y0) + j;
-                const unsigned cov = texels[static_cast<std::size_t>(ty0 + j) * static_cast<std::size_t>(atlas.width_px) + static_cast<std::size_t>(tx0 + i)];
+                const unsigned cov =
+                    texels[static_cast<std::size_t>(ty0 + j) * static_cast<std::size_t>(atlas.width_px) +
+                           static_cast<std::size_t>(tx0 + i)];
                 const std::uint32_t px = buf.at(x, y);
                 in_glyph[static_cast<std::size_t>(y * 200 + x)] = true;
                 // White at coverage c over black: c (straight alpha).
@@ -655,9 +675,12 @@ TEST_CASE("ImDrawData: DisplayPos and FramebufferScale map to pixels; VtxOffset 
             const bool in_grid = x < 100 && y < 100;  // 100 x 200 rects of 0.5 x 0.25 units, 1 x 0.5 pixels
             if (buf.at(x, y) == rgba(255, 0, 0)) ++red_px;
             if (buf.at(x, y) == rgba(0, 0, 255)) ++blue_px;
-            if (in_marker) CHECK(buf.at(x, y) == rgba(255, 0, 0));
-            else if (in_grid) CHECK(buf.at(x, y) == rgba(0, 0, 255));
-            else CHECK(buf.at(x, y) == kBlack);
+            if (in_marker)
+                CHECK(buf.at(x, y) == rgba(255, 0, 0));
+            else if (in_grid)
+                CHECK(buf.at(x, y) == rgba(0, 0, 255));
+            else
+                CHECK(buf.at(x, y) == kBlack);
         }
     CHECK(red_px == 400);
     CHECK(blue_px == 100 * 100);
@@ -819,10 +842,10 @@ TEST_CASE("host: a display smaller than the screens are laid out for shrinks the
         CHECK(host.fit_scale() == 1.0f);
         CHECK(host.font(FontFace::body)->FontSize == doctest::Approx(22.0f));
     }
-    CHECK(ImGuiHost(fitted(2560, 1600, 2.0f)).fit_scale() == 1.0f);           // a high-density screen: 1280x800 at scale 2
-    CHECK(ImGuiHost(fitted(1366, 650, 1.0f)).fit_scale() == doctest::Approx(0.9f)); // 650/700 = 0.929
-    CHECK(ImGuiHost(fitted(320, 200, 1.0f)).fit_scale() == doctest::Approx(0.6f));  // the floor
-    CHECK(ImGuiHost(host_config(320, 200, 1.0f)).fit_scale() == 1.0f);             // turned off
+    CHECK(ImGuiHost(fitted(2560, 1600, 2.0f)).fit_scale() == 1.0f);  // a high-density screen: 1280x800 at scale 2
+    CHECK(ImGuiHost(fitted(1366, 650, 1.0f)).fit_scale() == doctest::Approx(0.9f));  // 650/700 = 0.929
+    CHECK(ImGuiHost(fitted(320, 200, 1.0f)).fit_scale() == doctest::Approx(0.6f));   // the floor
+    CHECK(ImGuiHost(host_config(320, 200, 1.0f)).fit_scale() == 1.0f);               // turned off
 }
 
 TEST_CASE("host: a missing font directory falls back to the built-in font with one warning line") {

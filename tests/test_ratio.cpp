@@ -160,7 +160,8 @@ TEST_CASE("bad ratios give one-line messages naming the value") {
     CHECK(error_of("7/0") == "'7/0': denominator is zero");
     CHECK(error_of("-7/5") == "'-7/5': ratio must be positive (a negative number is not an interval)");
     CHECK(error_of("abc") == "'abc': not a ratio (expected a form such as 7/5, 7:5, 3/2*5/4 or 600c)");
-    CHECK(error_of("99999999999999999999/1") == "'99999999999999999999/1': number too large for 64-bit ratio arithmetic");
+    CHECK(error_of("99999999999999999999/1") ==
+          "'99999999999999999999/1': number too large for 64-bit ratio arithmetic");
     CHECK(error_of("") == "'': empty interval (expected a form such as 7/5, 7:5, 3/2*5/4 or 600c)");
     CHECK(error_of("4:5:6") == "'4:5:6': has more than two terms; a chord such as 4:5:6 is not a single interval");
     CHECK(error_of("nanc") == "'nanc': not a ratio (expected a form such as 7/5, 7:5, 3/2*5/4 or 600c)");

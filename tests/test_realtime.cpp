@@ -16,11 +16,11 @@
 
 #include <doctest/doctest.h>
 
+#include <dlfcn.h>
+#include <pthread.h>
 #include <atomic>
 #include <cmath>
 #include <cstdlib>
-#include <dlfcn.h>
-#include <pthread.h>
 
 namespace {
 [[maybe_unused]] thread_local bool t_watched = false;
@@ -198,7 +198,9 @@ TEST_CASE("callbacks allocate nothing and take no lock; analysis allocates nothi
 #endif
 }
 
-TEST_CASE("ensemble engine: the capture and playback callbacks allocate nothing and lock nothing; nor does the warm analysis") {
+TEST_CASE(
+    "ensemble engine: the capture and playback callbacks allocate nothing and lock nothing; nor does the warm "
+    "analysis") {
 #ifdef BEATLESS_SANITIZED
     MESSAGE("skipped under the sanitizers, which interpose the allocator themselves");
 #else
@@ -245,8 +247,7 @@ TEST_CASE("ensemble engine: the capture and playback callbacks allocate nothing 
         }
         counted.block([&] { sys.drive(std::span<const float>(take.interleaved.data() + f * 4, 256 * 4), out, 4, 2); },
                       [&] { eng.analyze_available(); }, f > 24000);
-        while (eng.take_readings(got) > 0) {
-        }
+        while (eng.take_readings(got) > 0) {}
         eng.supervise();  // frees the retired analyzer on this (control) thread
     }
     CHECK(eng.status().readings > 500);
@@ -254,7 +255,9 @@ TEST_CASE("ensemble engine: the capture and playback callbacks allocate nothing 
 #endif
 }
 
-TEST_CASE("two voices: the callbacks and the warm analysis allocate nothing and lock nothing, targets swapped while running") {
+TEST_CASE(
+    "two voices: the callbacks and the warm analysis allocate nothing and lock nothing, targets swapped while "
+    "running") {
 #ifdef BEATLESS_SANITIZED
     MESSAGE("skipped under the sanitizers, which interpose the allocator themselves");
 #else
@@ -282,10 +285,9 @@ TEST_CASE("two voices: the callbacks and the warm analysis allocate nothing and 
     Counted counted;
     for (std::size_t f = 0, b = 0; f + 256 <= x.size(); f += 256, ++b) {
         if (b == 300) eng.set_two_voices(pitch::TwoVoiceConfig{}, set);  // swapped in by the analysis, built here
-        counted.block([&] { sys.drive(std::span<const float>(x.data() + f, 256), out, 1, 2); }, [&] { eng.analyze_available(); },
-                      f > 24000);
-        while (eng.take_readings(std::span<pitch::TwoVoiceFrame>(got)) > 0) {
-        }
+        counted.block([&] { sys.drive(std::span<const float>(x.data() + f, 256), out, 1, 2); },
+                      [&] { eng.analyze_available(); }, f > 24000);
+        while (eng.take_readings(std::span<pitch::TwoVoiceFrame>(got)) > 0) {}
         eng.supervise();  // frees the retired tracker on this (control) thread
     }
     CHECK(eng.status().readings > 200);

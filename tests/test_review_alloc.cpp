@@ -3,13 +3,13 @@
 // replaces the global operator new with a counting one (the standard lets
 // a program do so, [replacement.functions]) and counts the allocations made
 // while samples and frames are pushed and pulled.
-#include "pitch/measure/decimated_trace.h"
 #include "pitch/dsp/drone_comb.h"
+#include "pitch/dsp/vibrato.h"
+#include "pitch/measure/decimated_trace.h"
 #include "pitch/measure/dyad_segment.h"
 #include "pitch/measure/root_detect.h"
 #include "pitch/measure/segment.h"
 #include "pitch/measure/two_voice.h"
-#include "pitch/dsp/vibrato.h"
 #include "tests/mix_signals.h"
 
 #include <doctest/doctest.h>

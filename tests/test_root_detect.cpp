@@ -60,7 +60,7 @@ TEST_CASE("root agrees with scipy's whole-file periodogram") {
     const RootEstimate e = detect(take.samples);
     REQUIRE(e.found());
     MESSAGE("scipy " << scipy_hz << " Hz, ours " << e.root_hz << " Hz, truth " << root << " Hz");
-    CHECK(std::fabs(cents(scipy_hz, root)) < 0.2);     // the reference itself hits the known drone
+    CHECK(std::fabs(cents(scipy_hz, root)) < 0.2);  // the reference itself hits the known drone
     CHECK(std::fabs(cents(e.root_hz, scipy_hz)) < 0.2);
 }
 
@@ -72,8 +72,8 @@ TEST_CASE("random drones, voices and levels") {
         const double root = 55.0 * std::exp2(3.0 * u(rng));  // A1 .. A4
         auto notes = tritone_notes();
         for (auto& [r, d] : notes) d = -15.0 + 30.0 * u(rng);
-        const Take take = drone_and_voice(kFs, root, notes, 100 + i, root < 150 ? 1 : 0, 1.2, 3e-3, 0.08 + 0.1 * u(rng),
-                                          0.25);
+        const Take take =
+            drone_and_voice(kFs, root, notes, 100 + i, root < 150 ? 1 : 0, 1.2, 3e-3, 0.08 + 0.1 * u(rng), 0.25);
         const RootEstimate e = detect(take.samples);
         CAPTURE(root);
         CAPTURE(e.root_hz);

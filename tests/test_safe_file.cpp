@@ -15,17 +15,17 @@
 
 #include <doctest/doctest.h>
 
+#include <sys/resource.h>
+#include <sys/socket.h>
+#include <sys/stat.h>
+#include <sys/un.h>
+#include <unistd.h>
 #include <csignal>
 #include <filesystem>
 #include <fstream>
 #include <sstream>
 #include <string>
-#include <sys/resource.h>
-#include <sys/socket.h>
-#include <sys/stat.h>
-#include <sys/un.h>
 #include <thread>
-#include <unistd.h>
 
 using beatless::Error;
 using beatless::test::run_program;
@@ -103,21 +103,26 @@ TEST_CASE("an output is written whole and renamed into place, keeping an existin
 
 TEST_CASE("devices, folders, FIFOs and sockets are refused as outputs, and left as they were") {
     TempDir t;
-    CHECK(message_of([] { ui::write_file_safely("/dev/full", "x"); }) == "/dev/full: is a device, not a file; give a file name");
-    CHECK(message_of([] { ui::write_file_safely("/dev/null", "x"); }) == "/dev/null: is a device, not a file; give a file name");
+    CHECK(message_of([] { ui::write_file_safely("/dev/full", "x"); }) ==
+          "/dev/full: is a device, not a file; give a file name");
+    CHECK(message_of([] { ui::write_file_safely("/dev/null", "x"); }) ==
+          "/dev/null: is a device, not a file; give a file name");
     CHECK(is_char_device("/dev/full"));
     CHECK(is_char_device("/dev/null"));
-    CHECK(message_of([&] { ui::write_file_safely(t.path(), "x"); }) == t.path() + ": is a folder, not a file; give a file name");
+    CHECK(message_of([&] { ui::write_file_safely(t.path(), "x"); }) ==
+          t.path() + ": is a folder, not a file; give a file name");
     const std::string fifo = t.file("pipe");
     REQUIRE(::mkfifo(fifo.c_str(), 0600) == 0);
-    CHECK(message_of([&] { ui::write_file_safely(fifo, "x"); }) == fifo + ": is a named pipe (FIFO), not a file; give a file name");
+    CHECK(message_of([&] { ui::write_file_safely(fifo, "x"); }) ==
+          fifo + ": is a named pipe (FIFO), not a file; give a file name");
     const std::string sock = t.file("sock");
     const int fd = ::socket(AF_UNIX, SOCK_STREAM, 0);
     sockaddr_un addr{};
     addr.sun_family = AF_UNIX;
     sock.copy(addr.sun_path, sizeof addr.sun_path - 1);
     REQUIRE(::bind(fd, reinterpret_cast<sockaddr*>(&addr), sizeof addr) == 0);
-    CHECK(message_of([&] { ui::write_file_safely(sock, "x"); }) == sock + ": is a socket, not a file; give a file name");
+    CHECK(message_of([&] { ui::write_file_safely(sock, "x"); }) ==
+          sock + ": is a socket, not a file; give a file name");
     ::close(fd);
     CHECK(entries(t.path()) == 2);  // the pipe and the socket, nothing else
 }
@@ -155,8 +160,10 @@ TEST_CASE("text inputs: type checked first, size capped with a stated limit") {
     fs::resize_file(t.file("a.toml"), 2u << 20);
     CHECK(message_of([&] { ui::read_text_file(t.file("a.toml"), ui::kTomlLimitBytes, "TOML file"); }) ==
           t.file("a.toml") + ": too large (2 MB, limit 1 MB)");
-    CHECK(message_of([] { ui::read_text_file("/dev/zero", ui::kCsvLimitBytes, "CSV file"); }) == "/dev/zero: is a device, not a CSV file");
-    CHECK(message_of([&] { ui::read_text_file(t.path(), ui::kCsvLimitBytes, "CSV file"); }) == t.path() + ": is a folder, not a CSV file");
+    CHECK(message_of([] { ui::read_text_file("/dev/zero", ui::kCsvLimitBytes, "CSV file"); }) ==
+          "/dev/zero: is a device, not a CSV file");
+    CHECK(message_of([&] { ui::read_text_file(t.path(), ui::kCsvLimitBytes, "CSV file"); }) ==
+          t.path() + ": is a folder, not a CSV file");
     // A named FIFO is refused before it is opened (opening would wait for a writer).
     const std::string fifo = t.file("pipe");
     REQUIRE(::mkfifo(fifo.c_str(), 0600) == 0);
@@ -212,7 +219,8 @@ TEST_CASE("history --export refuses a device; tone and snapshot leave nothing on
     }
     CHECK(entries(t.path()) == before);  // no big.wav, no big.png, no temporaries
     r = run_program({"tone", "--root", "D3", "--out", t.file("none/x.wav")}, env);
-    CHECK(r.err == "beatless: " + t.file("none/x.wav") + ": the folder " + t.file("none") + " does not exist (create it first)\n");
+    CHECK(r.err == "beatless: " + t.file("none/x.wav") + ": the folder " + t.file("none") +
+                       " does not exist (create it first)\n");
 }
 
 TEST_CASE("the practice log: never made of another file, a device or a missing folder") {
@@ -222,7 +230,8 @@ TEST_CASE("the practice log: never made of another file, a device or a missing f
     const std::string wav = slurp(t.file("take.wav"));
     auto r = run_program({"history", "--log", t.file("take.wav")}, env);
     CHECK(r.exit_code == 1);
-    CHECK(r.err == "beatless: practice log " + t.file("take.wav") + ": is not a practice log (not an SQLite file); give a new file name\n");
+    CHECK(r.err == "beatless: practice log " + t.file("take.wav") +
+                       ": is not a practice log (not an SQLite file); give a new file name\n");
     CHECK(slurp(t.file("take.wav")) == wav);
     r = run_program({"history", "--log", "/dev/null"}, env);
     CHECK(r.exit_code == 1);
@@ -230,14 +239,16 @@ TEST_CASE("the practice log: never made of another file, a device or a missing f
     CHECK(!fs::exists("/dev/null-wal"));
     r = run_program({"drill", "hold-septimal", "--demo", "--log", t.file("missing/x.sqlite3")}, env);
     CHECK(r.exit_code == 1);
-    CHECK(r.err == "beatless: " + t.file("missing/x.sqlite3") + ": the folder " + t.file("missing") + " does not exist (create it first)\n");
+    CHECK(r.err == "beatless: " + t.file("missing/x.sqlite3") + ": the folder " + t.file("missing") +
+                       " does not exist (create it first)\n");
     CHECK(!fs::exists(t.file("missing")));
 }
 
 TEST_CASE("inputs: devices and FIFOs given as files get their own line, without reading a byte") {
     TempDir t;
     const std::vector<std::string> env = {"BEATLESS_HOME=" + t.file("home")};
-    REQUIRE(run_program({"tone", "--root", "D3", "--ratio", "3/2", "--seconds", "1", "--out", t.file("ok.wav")}, env).exit_code == 0);
+    REQUIRE(run_program({"tone", "--root", "D3", "--ratio", "3/2", "--seconds", "1", "--out", t.file("ok.wav")}, env)
+                .exit_code == 0);
     const std::string fifo = t.file("pipe");
     REQUIRE(::mkfifo(fifo.c_str(), 0600) == 0);
     auto r = run_program({"analyze", t.file("ok.wav"), "--targets", "/dev/zero"}, env);
@@ -246,9 +257,11 @@ TEST_CASE("inputs: devices and FIFOs given as files get their own line, without 
     r = run_program({"history", "--log", t.file("l.sqlite3"), "--import", "/dev/zero"}, env);
     CHECK(r.exit_code == 1);
     CHECK(r.err == "beatless: /dev/zero: is a device, not a CSV file\n");
-    r = run_program({"history", "--log", t.file("l.sqlite3"), "--import", fifo}, env);  // used to wait for a writer forever
+    r = run_program({"history", "--log", t.file("l.sqlite3"), "--import", fifo},
+                    env);  // used to wait for a writer forever
     CHECK(r.exit_code == 1);
-    CHECK(r.err == "beatless: " + fifo + ": is a named pipe (FIFO), not a CSV file; save it to a file, or pass it as <(command)\n");
+    CHECK(r.err == "beatless: " + fifo +
+                       ": is a named pipe (FIFO), not a CSV file; save it to a file, or pass it as <(command)\n");
     for (const char* dev : {"/dev/zero", "/dev/urandom"}) {
         r = run_program(std::vector<std::string>{"track", dev}, env);
         CHECK(r.exit_code == 1);

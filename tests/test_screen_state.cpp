@@ -5,10 +5,10 @@
 // formula f = 440 x 2^((m - 69)/12) (MIDI 69 = A4, ISO 16), settings saved
 // after a change, and the keys of the help overlay driving the same state.
 #include "tests/cli.h"
-#include "ui/session/app_state.h"
-#include "ui/session/beat_pulse.h"
 #include "ui/render/imgui_host.h"
 #include "ui/screens/screen.h"
+#include "ui/session/app_state.h"
+#include "ui/session/beat_pulse.h"
 #include "ui/session/settings.h"
 
 #define GLFW_INCLUDE_NONE
@@ -27,7 +27,8 @@ namespace {
 
 // Runs /usr/bin/python3 with tomllib on a file and prints one expression of `d`.
 std::string toml_value(const std::string& file, const std::string& expr) {
-    const std::string cmd = "/usr/bin/python3 -c \"import tomllib,sys; d=tomllib.load(open(sys.argv[1],'rb')); print(" + expr + ")\" '" + file + "'";
+    const std::string cmd = "/usr/bin/python3 -c \"import tomllib,sys; d=tomllib.load(open(sys.argv[1],'rb')); print(" +
+                            expr + ")\" '" + file + "'";
     std::FILE* p = popen(cmd.c_str(), "r");
     REQUIRE(p != nullptr);
     std::string out;
@@ -99,7 +100,9 @@ TEST_CASE("settings: a missing file is the defaults; a malformed one warns in on
     CHECK(bad.warning.rfind("s.toml:3:", 0) == 0);
     CHECK(bad.settings == ui::Settings{});
     // Bad values: those fall back, the rest are kept; the first is named, the others counted.
-    const auto some = ui::parse_settings("kind = \"settings\"\na4_hz = 520\nfont_scale = 2\n[drone]\ntimbre = \"nasal\"\nfifth = 1\nroot = \"D3\"\n", "s.toml");
+    const auto some = ui::parse_settings(
+        "kind = \"settings\"\na4_hz = 520\nfont_scale = 2\n[drone]\ntimbre = \"nasal\"\nfifth = 1\nroot = \"D3\"\n",
+        "s.toml");
     CHECK(some.warning.rfind("s.toml:2: `a4_hz`: 520 is out of range", 0) == 0);
     CHECK(some.warning.find("and 2 more problems") != std::string::npos);
     CHECK(some.warning.find('\n') == std::string::npos);
@@ -119,7 +122,8 @@ TEST_CASE("settings: a missing file is the defaults; a malformed one warns in on
     CHECK(other.warning.find("t.toml:1: `kind`: is \"targets\"") == 0);
     // The screen shown, the choice and the fixed target are a window's
     // transient state: an older file's keys are no longer read or written.
-    const auto old = ui::parse_settings("kind = \"settings\"\nscreen = \"drills\"\n[targets]\nchoice = \"fixed\"\nfixed = \"9/7\"\n", "s");
+    const auto old = ui::parse_settings(
+        "kind = \"settings\"\nscreen = \"drills\"\n[targets]\nchoice = \"fixed\"\nfixed = \"9/7\"\n", "s");
     CHECK(old.settings.screen == ui::ScreenId::practice);
     CHECK(old.settings.choice == ui::TargetChoice::nearest);
     CHECK(old.settings.fixed_target.empty());
@@ -132,7 +136,8 @@ TEST_CASE("settings: a missing file is the defaults; a malformed one warns in on
     CHECK(text.find("fixed") == std::string::npos);
 }
 
-TEST_CASE("beat view: the envelope of two equal partials b Hz apart is |cos(pi b t)| (sum-to-product; Helmholtz ch. VIII)") {
+TEST_CASE(
+    "beat view: the envelope of two equal partials b Hz apart is |cos(pi b t)| (sum-to-product; Helmholtz ch. VIII)") {
     ui::BeatPulse p;
     p.update(1.8, 0.0);
     CHECK(p.band() == pitch::BeatBand::countable);
@@ -222,7 +227,7 @@ TEST_CASE("readings flow in simulated time: the demo performer's note is the cur
     REQUIRE(app.has_current());
     CHECK(app.target_ratio_text(app.current()) == "7/5");
     CHECK(app.current().dev_cents == doctest::Approx(10.0).epsilon(0.02));
-    CHECK(app.trace().size() > 250);  // 2 s at a 5 ms hop, less the breath before the note
+    CHECK(app.trace().size() > 250);                        // 2 s at a 5 ms hop, less the breath before the note
     CHECK(app.pulse().band() == pitch::BeatBand::flutter);  // 7 x 220 x (2^(10/1200) - 1) = 8.9 Hz: 5 .. 15 Hz
 }
 
@@ -314,7 +319,8 @@ TEST_CASE("screens: Practice, Drills, Ensemble and Settings are built; the other
     CHECK_FALSE(ui::parse_screen_key("lobby").has_value());
 }
 
-TEST_CASE("drills on the app state: caution first; the drill's drone never louder than the user's; the settings come back") {
+TEST_CASE(
+    "drills on the app state: caution first; the drill's drone never louder than the user's; the settings come back") {
     TempDir dir;
     ui::Settings st;
     st.level_dbfs = -36.0;  // the user keeps the drone quiet

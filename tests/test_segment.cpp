@@ -10,9 +10,9 @@
 // by d cents (Helmholtz, On the Sensations of Tone, ch. VIII; checked with
 // pitch/theory/beats.h beat_rate_at, an independent closed form); cents by Ellis
 // (1885).
-#include "pitch/theory/beats.h"
 #include "pitch/base/error.h"
 #include "pitch/measure/segment.h"
+#include "pitch/theory/beats.h"
 #include "tests/mix_signals.h"
 
 #include "ui/session/take_words.h"
@@ -102,7 +102,9 @@ TEST_CASE("a voice holding five mistuned tritones over a drone: every note, with
                     CHECK(n.partial_root <= 16);
                     CHECK(n.partial_voice <= 16);
                     CHECK(static_cast<double>(n.partial_root) * root <= 4000.0);
-                    CHECK(n.beat_hz == doctest::Approx(std::fabs(n.partial_voice * n.centre_f0_hz - n.partial_root * root)).epsilon(1e-9));
+                    CHECK(n.beat_hz ==
+                          doctest::Approx(std::fabs(n.partial_voice * n.centre_f0_hz - n.partial_root * root))
+                              .epsilon(1e-9));
                 }
             }
         }
@@ -112,7 +114,8 @@ TEST_CASE("a voice holding five mistuned tritones over a drone: every note, with
 TEST_CASE("per-target summary: '10/7 averages 6 cents flat'") {
     // The five targets the voice holds (10/7 - 6 cents would be nearer 729/512 in the full set).
     const TargetSet set = target_set({"7/5", "10/7", "11/8", "45/32", "16/11"});
-    const auto notes = take_notes(110.0, {{10.0 / 7.0, -5.0}, {10.0 / 7.0, -6.0}, {10.0 / 7.0, -7.0}, {7.0 / 5.0, 2.0}}, 4);
+    const auto notes =
+        take_notes(110.0, {{10.0 / 7.0, -5.0}, {10.0 / 7.0, -6.0}, {10.0 / 7.0, -7.0}, {7.0 / 5.0, 2.0}}, 4);
     const auto frames = frames_of(notes, notes.back().end_s + 0.3, 0.005, 0.3, 5);
     SegmentConfig cfg;
     cfg.root_hz = 110.0;
@@ -122,13 +125,16 @@ TEST_CASE("per-target summary: '10/7 averages 6 cents flat'") {
     for (const NoteResult& n : found) summary.add(n);
     const auto rows = summary.rows();
     REQUIRE(rows.size() == 2);
-    CHECK(rows[0].target_index == index_of(set, "7/5"));   // set order
+    CHECK(rows[0].target_index == index_of(set, "7/5"));  // set order
     CHECK(rows[1].target_index == index_of(set, "10/7"));
     CHECK(rows[1].count == 3);
     CHECK(std::fabs(rows[1].mean_dev_cents + 6.0) < 0.5);
     CHECK(rows[1].spread_cents == doctest::Approx(1.0).epsilon(0.5));  // sample s.d. of -5, -6, -7 is 1
-    CHECK(beatless::ui::summary_words(rows[1], "10/7", false).rfind("10/7 averages 6 cents flat (3 notes, spread 1", 0) == 0);
-    CHECK(beatless::ui::summary_words(rows[1], "10/7", true).rfind("10/7 averages 6 cents narrow (3 intervals, spread 1", 0) == 0);
+    CHECK(
+        beatless::ui::summary_words(rows[1], "10/7", false).rfind("10/7 averages 6 cents flat (3 notes, spread 1", 0) ==
+        0);
+    CHECK(beatless::ui::summary_words(rows[1], "10/7", true)
+              .rfind("10/7 averages 6 cents narrow (3 intervals, spread 1", 0) == 0);
     CHECK(beatless::ui::summary_words(rows[0], "7/5", false).find("sharp (1 note)") != std::string::npos);
 }
 

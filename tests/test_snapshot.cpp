@@ -18,8 +18,8 @@
 #include "tests/cli.h"
 #include "tests/snapshot_pixels.h"
 #include "ui/render/imgui_host.h"
-#include "ui/screens/palette.h"
 #include "ui/render/raster.h"
+#include "ui/screens/palette.h"
 
 #include <doctest/doctest.h>
 #include <stb_image.h>
@@ -45,9 +45,9 @@ namespace {
 // ---------------------------------------------------------------------------
 
 struct Lane {
-    int row = 0;           // a row across the band, clear of ticks, trail and captions
-    double left_x = 0;     // pixel column of -50 cents (the band's first pixel)
-    double right_x = 0;    // of +50 cents (one past the band's last pixel)
+    int row = 0;         // a row across the band, clear of ticks, trail and captions
+    double left_x = 0;   // pixel column of -50 cents (the band's first pixel)
+    double right_x = 0;  // of +50 cents (one past the band's last pixel)
     double x_of(double cents) const { return 0.5 * (left_x + right_x) + cents * (right_x - left_x) / 100.0; }
 };
 
@@ -106,7 +106,8 @@ TEST_CASE("snapshot: the marker stands at the held deviation on the lane, in the
     for (const Case& c : cases) {
         CAPTURE(c.state);
         char args[256];
-        std::snprintf(args, sizeof args, "--demo --hold %g --targets tritones --target 7/5 --root A3 --seconds 3 --scale %s --size %s",
+        std::snprintf(args, sizeof args,
+                      "--demo --hold %g --targets tritones --target 7/5 --root A3 --seconds 3 --scale %s --size %s",
                       c.hold_cents, c.scale, c.size);
         const Image img = read_png(snapshot(home, args, "lane" + std::to_string(n++) + ".png"));
         const Lane lane = find_lane(img);
@@ -126,13 +127,15 @@ TEST_CASE("snapshot: far off the lane, the value replaces the end's word, and th
     // 80 cents sharp of 7/5 (582.5 c) is 662.5 c above the root: beyond the
     // lane's +-50 and above the family's highest target, 16/11 (648.7 c).
     TempDir home;
-    const Image img = read_png(snapshot(home, "--demo --hold 80 --targets tritones --target 7/5 --root D3 --seconds 3", "far.png"));
+    const Image img =
+        read_png(snapshot(home, "--demo --hold 80 --targets tritones --target 7/5 --root D3 --seconds 3", "far.png"));
     const Box zone = find_colour(img, ui::palette::kInTuneZone);
     REQUIRE(!zone.empty());
     const Box band = rows(img, zone.y0, zone.y1);
     const Image value = render_text("+80 c", ui::FontFace::bold, ui::palette::kText, ui::palette::kPanelRaised, 1.0f);
     CHECK(find_exact(img, value, band).size() == 1);
-    const Image sharp = render_text("sharp", ui::FontFace::body, ui::palette::kTextDim, ui::palette::kPanelRaised, 1.0f);
+    const Image sharp =
+        render_text("sharp", ui::FontFace::body, ui::palette::kTextDim, ui::palette::kPanelRaised, 1.0f);
     CHECK(find_exact(img, sharp, band).empty());  // the pinned end shows the value, not the word
     const Image flat = render_text("flat", ui::FontFace::body, ui::palette::kTextDim, ui::palette::kPanelRaised, 1.0f);
     CHECK(find_exact(img, flat, band).size() == 1);
@@ -192,7 +195,8 @@ TEST_CASE("snapshot: the hearing caution shows on first run only, and the screen
     TempDir home;
     const Image first = read_png(snapshot(home, "--demo --first-run --seconds 1", "first.png"));
     const Image later = read_png(snapshot(home, "--demo --seconds 1", "later.png"));
-    const Image caution = render_text("Hearing caution", ui::FontFace::bold, ui::palette::kText, ui::palette::kPanel, 1.0f);
+    const Image caution =
+        render_text("Hearing caution", ui::FontFace::bold, ui::palette::kText, ui::palette::kPanel, 1.0f);
     const Box all = rows(first, 0, first.h / 3);
     CHECK(find_exact(first, caution, all).size() == 1);
     CHECK(find_exact(later, caution, all).empty());
@@ -206,8 +210,10 @@ TEST_CASE("snapshot: a window smaller than the layout shrinks the text so the sc
     TempDir home;
     const Image small = read_png(snapshot(home, "--demo --first-run --seconds 1 --size 960x600", "small.png"));
     REQUIRE(small.w == 960);
-    const Image at_08 = render_text("Hearing caution", ui::FontFace::bold, ui::palette::kText, ui::palette::kPanel, 0.8f);
-    const Image at_10 = render_text("Hearing caution", ui::FontFace::bold, ui::palette::kText, ui::palette::kPanel, 1.0f);
+    const Image at_08 =
+        render_text("Hearing caution", ui::FontFace::bold, ui::palette::kText, ui::palette::kPanel, 0.8f);
+    const Image at_10 =
+        render_text("Hearing caution", ui::FontFace::bold, ui::palette::kText, ui::palette::kPanel, 1.0f);
     const Box top = rows(small, 0, small.h / 3);
     CHECK(find_exact(small, at_08, top).size() == 1);
     CHECK(find_exact(small, at_10, top).empty());
@@ -245,7 +251,8 @@ TEST_CASE("a malformed settings file: one warning naming the file and line; the 
         std::ofstream f(file);
         f << "kind = \"settings\"\n\n[drone]\nlevel_dbfs = \"loud\"\n";
     }
-    const auto r = run_program("snapshot --settings " + file + " --out " + home.file("s.png"), {"BEATLESS_HOME=" + home.path()});
+    const auto r =
+        run_program("snapshot --settings " + file + " --out " + home.file("s.png"), {"BEATLESS_HOME=" + home.path()});
     CHECK(r.exit_code == 0);
     CHECK(r.err.find(file + ":4:") != std::string::npos);
     CHECK(r.err.find("level_dbfs") != std::string::npos);
@@ -254,7 +261,8 @@ TEST_CASE("a malformed settings file: one warning naming the file and line; the 
         std::ofstream f(file);
         f << "kind = \"settings\"\nscreen = [unclosed\n";
     }
-    const auto r2 = run_program("snapshot --settings " + file + " --out " + home.file("s2.png"), {"BEATLESS_HOME=" + home.path()});
+    const auto r2 =
+        run_program("snapshot --settings " + file + " --out " + home.file("s2.png"), {"BEATLESS_HOME=" + home.path()});
     CHECK(r2.exit_code == 0);
     CHECK(r2.err.find(file + ":2:") != std::string::npos);
     CHECK(r2.err.find("default settings") != std::string::npos);
@@ -262,7 +270,8 @@ TEST_CASE("a malformed settings file: one warning naming the file and line; the 
 
 TEST_CASE("beatless with no display says so in one line, points to snapshot and listen --demo, exit 1") {
     TempDir home;
-    const auto r = run_program(std::vector<std::string>{"--demo"}, {"BEATLESS_HOME=" + home.path(), "DISPLAY=", "WAYLAND_DISPLAY="});
+    const auto r = run_program(std::vector<std::string>{"--demo"},
+                               {"BEATLESS_HOME=" + home.path(), "DISPLAY=", "WAYLAND_DISPLAY="});
     CHECK(r.exit_code == 1);
     CHECK(test::line_count(r.err) == 1);
     CHECK(r.err.find("no display") != std::string::npos);
@@ -281,19 +290,25 @@ TEST_CASE("beatless with no display says so in one line, points to snapshot and 
 // screen must show at 10.8 s, worked from the score's definitions, reads
 // "locked in 0.3 s, held 3 cents flat, 100 % within ±6 c".
 
-TEST_CASE("snapshot: the Drills screen shows a finished hold's result in words, with its trace against the target line") {
+TEST_CASE(
+    "snapshot: the Drills screen shows a finished hold's result in words, with its trace against the target line") {
     TempDir home;
     const std::string log = home.file("p.sqlite3");
-    const Image img = read_png(snapshot(home, "--demo --hold -3 --drill hold-septimal-tritones --seconds 10.8 --log " + log, "drill-result.png"));
-    const Image words = render_text("locked in 0.3 s, held 3 cents flat, 100 % within \xC2\xB1" "6 c", ui::FontFace::bold, ui::palette::kText,
-                                    ui::palette::kPanel, 1.0f);
+    const Image img = read_png(snapshot(
+        home, "--demo --hold -3 --drill hold-septimal-tritones --seconds 10.8 --log " + log, "drill-result.png"));
+    const Image words = render_text(
+        "locked in 0.3 s, held 3 cents flat, 100 % within \xC2\xB1"
+        "6 c",
+        ui::FontFace::bold, ui::palette::kText, ui::palette::kPanel, 1.0f);
     const Box all = whole(img);
     CHECK(find_exact(img, words, all).size() == 1);
     // Hold 1 ends at 10 s and the drill's 1.5 s rest follows (rest_s in
     // hold-septimal-tritones.toml): at 10.8 s the next hold, 10/7, is shown.
-    const Image next = render_text("7/5 against 10/7  \xC2\xB7  hold 2 of 8 next", ui::FontFace::body, ui::palette::kTextDim, ui::palette::kPanel, 1.0f);
+    const Image next = render_text("7/5 against 10/7  \xC2\xB7  hold 2 of 8 next", ui::FontFace::body,
+                                   ui::palette::kTextDim, ui::palette::kPanel, 1.0f);
     CHECK(find_exact(img, next, all).size() == 1);
-    const Image rest = render_text("rest \xC2\xB7 this one is next", ui::FontFace::body, ui::palette::kTextDim, ui::palette::kPanel, 1.0f);
+    const Image rest = render_text("rest \xC2\xB7 this one is next", ui::FontFace::body, ui::palette::kTextDim,
+                                   ui::palette::kPanel, 1.0f);
     CHECK(find_exact(img, rest, all).size() == 1);
     // The trace: the target line (the current-target yellow) runs across the
     // attempt's plot inside the tolerance band (the in-tune window's colour),
@@ -315,21 +330,26 @@ TEST_CASE("snapshot: the Drills screen shows a finished hold's result in words, 
     REQUIRE(band_top > 0);
     const int col = band_x + (img.w - band_x) / 2;  // the middle of the hold
     auto whitish = [&](std::uint32_t c) {
-        const int r = static_cast<int>(c & 0xFF), g = static_cast<int>((c >> 8) & 0xFF), b = static_cast<int>((c >> 16) & 0xFF);
+        const int r = static_cast<int>(c & 0xFF), g = static_cast<int>((c >> 8) & 0xFF),
+                  b = static_cast<int>((c >> 16) & 0xFF);
         return r > 200 && g > 200 && b > 200;
     };
     int y = band_top, yellow_sum = 0, yellow_n = 0, white_sum = 0, white_n = 0;
     for (; y < img.h; ++y) {
         const std::uint32_t c = img.at(col, y);
-        if (c == ui::palette::kCurrentTarget) yellow_sum += y, ++yellow_n;
-        else if (whitish(c)) white_sum += y, ++white_n;
-        else if (c == ui::palette::kBackground) break;  // the plot below the band (anti-aliased fringes are neither)
+        if (c == ui::palette::kCurrentTarget)
+            yellow_sum += y, ++yellow_n;
+        else if (whitish(c))
+            white_sum += y, ++white_n;
+        else if (c == ui::palette::kBackground)
+            break;  // the plot below the band (anti-aliased fringes are neither)
     }
     const int band_h = y - band_top;
     REQUIRE(yellow_n > 0);
     REQUIRE(white_n > 0);
     const double px_per_cent = band_h / 12.0;  // the band is ±6 c
-    const double drop_cents = (static_cast<double>(white_sum) / white_n - static_cast<double>(yellow_sum) / yellow_n) / px_per_cent;
+    const double drop_cents =
+        (static_cast<double>(white_sum) / white_n - static_cast<double>(yellow_sum) / yellow_n) / px_per_cent;
     CAPTURE(band_h);
     CHECK(std::fabs(drop_cents - 3.0) <= 1.0);  // below the line: flat
     // The log was written: no warning anywhere.
@@ -341,21 +361,26 @@ TEST_CASE("snapshot: a practice log that cannot be written shows one warning lin
     { std::ofstream(home.file("blocker")) << "a file where the data folder should be"; }
     const std::string log = home.file("blocker") + "/d/p.sqlite3";
     const std::string png = home.file("drill-warning.png");
-    const auto run = run_program("snapshot --demo --hold -3 --drill hold-septimal-tritones --seconds 10.8 --size 1920x1080 --log " + log +
-                                     " --out " + png,
-                                 {"BEATLESS_HOME=" + home.path(), "TMPDIR=" + home.path()});
+    const auto run =
+        run_program("snapshot --demo --hold -3 --drill hold-septimal-tritones --seconds 10.8 --size 1920x1080 --log " +
+                        log + " --out " + png,
+                    {"BEATLESS_HOME=" + home.path(), "TMPDIR=" + home.path()});
     REQUIRE_MESSAGE(run.exit_code == 0, run.err);
     // On closing, what could not be saved goes to a CSV in the temporary folder: nothing is lost.
     CHECK(run.err.find("written to " + home.path() + "/beatless-unsaved-") != std::string::npos);
     const Image img = read_png(png);
-    const std::string text = "practice log " + log + ": cannot write (cannot open or create it); 1 attempt kept and will be saved when possible";
+    const std::string text =
+        "practice log " + log +
+        ": cannot write (cannot open or create it); 1 attempt kept and will be saved when possible";
     const Image warning = render_text(text, ui::FontFace::body, ui::palette::kText, ui::palette::kPanelRaised, 1.0f);
     const Box top = rows(img, 0, img.h / 6);
     CHECK(find_exact(img, warning, top).size() == 1);
     CHECK(!find_colour(img, ui::palette::kWarning, 0, img.h / 6).empty());
     // The result is there all the same.
-    const Image words = render_text("locked in 0.3 s, held 3 cents flat, 100 % within \xC2\xB1" "6 c", ui::FontFace::bold, ui::palette::kText,
-                                    ui::palette::kPanel, 1.0f);
+    const Image words = render_text(
+        "locked in 0.3 s, held 3 cents flat, 100 % within \xC2\xB1"
+        "6 c",
+        ui::FontFace::bold, ui::palette::kText, ui::palette::kPanel, 1.0f);
     const Box all = whole(img);
     CHECK(find_exact(img, words, all).size() == 1);
 }
@@ -363,14 +388,19 @@ TEST_CASE("snapshot: a practice log that cannot be written shows one warning lin
 TEST_CASE("snapshot: the history panel plots each target's mean deviation per day, from the practice log") {
     TempDir home;
     const std::string log = home.file("p.sqlite3");
-    const auto r = run_program("drill hold-septimal-tritones --demo --hold -3 --attempts 2 --log " + log, {"BEATLESS_HOME=" + home.path()});
+    const auto r = run_program("drill hold-septimal-tritones --demo --hold -3 --attempts 2 --log " + log,
+                               {"BEATLESS_HOME=" + home.path()});
     REQUIRE_MESSAGE(r.exit_code == 0, r.err);
-    const Image img = read_png(snapshot(home, "--demo --drill hold-septimal-tritones --seconds 1 --log " + log, "drill-history.png"));
+    const Image img =
+        read_png(snapshot(home, "--demo --drill hold-septimal-tritones --seconds 1 --log " + log, "drill-history.png"));
     // One small plot per target of the drill, each labelled, each with today's
     // mean: -3.0 c (held 3 cents flat, within ±6 c: in the in-tune colour).
     // The history panel: below the drill list, whose selected row also says 7/5.
     const Box lower = rows(img, img.h * 3 / 5, img.h - 1);
-    const Image value = render_text("\xE2\x88\x92" "3.0 c", ui::FontFace::bold, ui::palette::kInTune, ui::palette::kPanelRaised, 1.0f);
+    const Image value = render_text(
+        "\xE2\x88\x92"
+        "3.0 c",
+        ui::FontFace::bold, ui::palette::kInTune, ui::palette::kPanelRaised, 1.0f);
     CHECK(find_exact(img, value, lower).size() == 2);
     for (const char* t : {"7/5", "10/7"}) {
         CAPTURE(t);
@@ -390,18 +420,21 @@ TEST_CASE("snapshot: what a window left behind does not change the picture; --se
     const std::string file = home.path() + "/config/settings.toml";
     {
         std::ofstream f(file);
-        f << "kind = \"settings\"\nscreen = \"drills\"\na4_hz = 442\n[drone]\nroot = \"C3\"\n[targets]\nset = \"7-limit\"\nchoice = \"fixed\"\nfixed = \"9/7\"\n";
+        f << "kind = \"settings\"\nscreen = \"drills\"\na4_hz = 442\n[drone]\nroot = \"C3\"\n[targets]\nset = "
+             "\"7-limit\"\nchoice = \"fixed\"\nfixed = \"9/7\"\n";
     }
     const Image after = read_png(snapshot(home, args, "after.png"));
     CHECK(after.px == clean.px);
     // With --settings the preferences apply (the root box shows the saved
     // root when the command line names none), the window's state does not:
     // still the Practice screen.
-    const auto r = run_program("snapshot --demo --seconds 1 --settings " + file + " --out " + home.file("with.png"), {"BEATLESS_HOME=" + home.path()});
+    const auto r = run_program("snapshot --demo --seconds 1 --settings " + file + " --out " + home.file("with.png"),
+                               {"BEATLESS_HOME=" + home.path()});
     REQUIRE_MESSAGE(r.exit_code == 0, r.err);
     CHECK(r.out.find("practice screen") != std::string::npos);
-    const auto bad = run_program("snapshot --demo --seconds 1 --settings " + home.file("none.toml") + " --out " + home.file("x.png"),
-                                 {"BEATLESS_HOME=" + home.path()});
+    const auto bad =
+        run_program("snapshot --demo --seconds 1 --settings " + home.file("none.toml") + " --out " + home.file("x.png"),
+                    {"BEATLESS_HOME=" + home.path()});
     CHECK(bad.exit_code == 1);
     CHECK(bad.err.find("none.toml: no such settings file") != std::string::npos);
     CHECK(!std::filesystem::exists(home.file("x.png")));
@@ -435,7 +468,8 @@ TEST_CASE("Practice screen: at every moment the big number, word, colour, marker
     for (const Moment& m : moments) {
         CAPTURE(m.what);
         const std::string png = home.file("moment" + std::to_string(n++) + ".png");
-        const auto r = run_program(std::string("snapshot ") + m.args + " --print-verdict --out " + png, {"BEATLESS_HOME=" + home.path()});
+        const auto r = run_program(std::string("snapshot ") + m.args + " --print-verdict --out " + png,
+                                   {"BEATLESS_HOME=" + home.path()});
         REQUIRE_MESSAGE(r.exit_code == 0, r.err);
         const std::string json = r.out.substr(r.out.find('{'));
         CHECK(test::json_value(json, "d['state']") == m.state);
@@ -445,21 +479,24 @@ TEST_CASE("Practice screen: at every moment the big number, word, colour, marker
         const Box header = rows(img, 0, img.h / 4);
         const bool live = std::string(m.state) == "live";
         // The word's colour is the state's (in tune green, sharp orange, flat blue); dim when not current.
-        const std::uint32_t col = !live ? ui::palette::kTextDim
+        const std::uint32_t col = !live               ? ui::palette::kTextDim
                                   : word == "in tune" ? ui::palette::kInTune
                                   : word == "sharp"   ? ui::palette::kSharp
                                                       : ui::palette::kFlat;
         // The big number: the verdict rounded, in that colour.
         const std::string num = (live ? "" : "last ") + signed_whole(dev);
-        const Image num_img = render_text(num, live ? ui::FontFace::large : ui::FontFace::medium, col, ui::palette::kBackground, 1.0f);
+        const Image num_img =
+            render_text(num, live ? ui::FontFace::large : ui::FontFace::medium, col, ui::palette::kBackground, 1.0f);
         CHECK_MESSAGE(find_exact(img, num_img, header).size() == 1, "'" << num << "' is not the header's number");
         const std::string shown_word = live ? word : std::string("silent");
         const Image word_img = render_text(shown_word, ui::FontFace::medium, col, ui::palette::kBackground, 1.0f);
         CHECK_MESSAGE(find_exact(img, word_img, header).size() == 1, "'" << shown_word << "' is not the header's word");
         if (std::fabs(dev) > 50.0) {
             // Pinned at the lane's edge: the value printed there is the verdict's.
-            const Image pin = render_text(signed_whole(dev) + " c", ui::FontFace::bold, live ? ui::palette::kText : col, ui::palette::kPanelRaised, 1.0f);
-            CHECK_MESSAGE(find_exact(img, pin, rows(img, 0, img.h / 3)).size() == 1, "the pinned value is not the verdict's");
+            const Image pin = render_text(signed_whole(dev) + " c", ui::FontFace::bold, live ? ui::palette::kText : col,
+                                          ui::palette::kPanelRaised, 1.0f);
+            CHECK_MESSAGE(find_exact(img, pin, rows(img, 0, img.h / 3)).size() == 1,
+                          "the pinned value is not the verdict's");
             continue;
         }
         // The lane's marker stands at the verdict.
@@ -473,12 +510,15 @@ TEST_CASE("Practice screen: at every moment the big number, word, colour, marker
             // The note below names the same pitch.
             const double off = std::stod(test::json_value(json, "d['note_offset_cents']"));
             const std::string note = test::json_value(json, "d['note']") + " " + signed_whole(off) + " c";
-            const Image note_img = render_text(note, ui::FontFace::bold, ui::palette::kText, ui::palette::kBackground, 1.0f);
-            CHECK_MESSAGE(find_exact(img, note_img, rows(img, 0, img.h / 2)).size() == 1, "'" << note << "' is not shown");
+            const Image note_img =
+                render_text(note, ui::FontFace::bold, ui::palette::kText, ui::palette::kBackground, 1.0f);
+            CHECK_MESSAGE(find_exact(img, note_img, rows(img, 0, img.h / 2)).size() == 1,
+                          "'" << note << "' is not shown");
         } else {
             // Not current: no marker in any state colour on the lane.
             int width = 0;
-            for (std::uint32_t c : {ui::palette::kInTune, ui::palette::kSharp, ui::palette::kFlat}) CHECK_FALSE(marker_centre(img, lane, c, width).has_value());
+            for (std::uint32_t c : {ui::palette::kInTune, ui::palette::kSharp, ui::palette::kFlat})
+                CHECK_FALSE(marker_centre(img, lane, c, width).has_value());
         }
     }
 }

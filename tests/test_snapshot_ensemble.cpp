@@ -13,15 +13,15 @@
 //     rendered offscreen with the same font and colour (Okabe & Ito 2008
 //     orange, sky blue, bluish green) and found pixel for pixel in that
 //     player's strip: the state is told by word and shape, not only colour.
+#include "audio/demo_ensemble.h"
+#include "pitch/base/text.h"
 #include "tests/cli.h"
 #include "tests/snapshot_pixels.h"
-#include "pitch/base/text.h"
-#include "ui/session/app_state.h"
-#include "ui/session/ensemble_session.h"
 #include "ui/screens/screen.h"
 #include "ui/screens/screen_ensemble.h"
+#include "ui/session/app_state.h"
+#include "ui/session/ensemble_session.h"
 #include "ui/session/settings.h"
-#include "audio/demo_ensemble.h"
 
 #include <doctest/doctest.h>
 
@@ -39,9 +39,9 @@ using namespace beatless::test;
 namespace {
 
 struct LaneBox {
-    int x0 = 0, x1 = 0;   // the in-tune window's columns (inclusive)
-    int top = 0;          // the lane's first row (+30 cents)
-    int bottom = 0;       // one past its last row (-30 cents)
+    int x0 = 0, x1 = 0;  // the in-tune window's columns (inclusive)
+    int top = 0;         // the lane's first row (+30 cents)
+    int bottom = 0;      // one past its last row (-30 cents)
     double y_of(double cents) const {
         const double mid = std::round(0.5 * (top + bottom));
         return std::round(mid - cents * (bottom - top) / 60.0);
@@ -89,7 +89,9 @@ double bar_row(const Image& img, const LaneBox& l, std::uint32_t colour) {
 std::uint32_t colour_of(double dev, double in_tune) {
     return std::fabs(dev) <= in_tune ? ui::palette::kInTune : dev > 0 ? ui::palette::kSharp : ui::palette::kFlat;
 }
-const char* word_of(double dev, double in_tune) { return std::fabs(dev) <= in_tune ? "in tune" : dev > 0 ? "sharp" : "flat"; }
+const char* word_of(double dev, double in_tune) {
+    return std::fabs(dev) <= in_tune ? "in tune" : dev > 0 ? "sharp" : "flat";
+}
 
 std::string signed_whole(double v) {
     const long r = std::lround(v);
@@ -99,10 +101,12 @@ std::string signed_whole(double v) {
 void check_screen(const std::string& reference, const std::vector<double>& expected) {
     TempDir home;
     std::filesystem::create_directories(home.path() + "/config");
-    std::ofstream(home.path() + "/config/settings.toml") << "kind = \"settings\"\n[drone]\nroot = \"G2\"\n[ensemble]\nchord = \"4:5:6:7\"\nreference = \""
-                                                           << reference << "\"\n";
-    const std::string png = snapshot(home, "--demo --hold 0 --screen ensemble --seconds 3 --settings " + home.path() + "/config/settings.toml",
-                                    "ensemble-" + reference + ".png");
+    std::ofstream(home.path() + "/config/settings.toml")
+        << "kind = \"settings\"\n[drone]\nroot = \"G2\"\n[ensemble]\nchord = \"4:5:6:7\"\nreference = \"" << reference
+        << "\"\n";
+    const std::string png = snapshot(
+        home, "--demo --hold 0 --screen ensemble --seconds 3 --settings " + home.path() + "/config/settings.toml",
+        "ensemble-" + reference + ".png");
     const Image img = read_png(png);
     const std::vector<LaneBox> lanes = find_lanes(img);
     REQUIRE(lanes.size() == expected.size());
@@ -125,13 +129,16 @@ void check_screen(const std::string& reference, const std::vector<double>& expec
         strip.y0 = l.top;
         strip.y1 = l.bottom;
         const Image num = render_text(signed_whole(expected[i]), ui::FontFace::large, col, ui::palette::kPanel, 1.0f);
-        CHECK_MESSAGE(!find_exact(img, num, strip).empty(), "the deviation " << signed_whole(expected[i]) << " is not shown in strip " << i);
+        CHECK_MESSAGE(!find_exact(img, num, strip).empty(),
+                      "the deviation " << signed_whole(expected[i]) << " is not shown in strip " << i);
         const Image word = render_text(word_of(expected[i], 5.0), ui::FontFace::medium, col, ui::palette::kPanel, 1.0f);
-        CHECK_MESSAGE(!find_exact(img, word, strip).empty(), "the word '" << word_of(expected[i], 5.0) << "' is not shown in strip " << i);
+        CHECK_MESSAGE(!find_exact(img, word, strip).empty(),
+                      "the word '" << word_of(expected[i], 5.0) << "' is not shown in strip " << i);
     }
     // The status bar names the group's input, not the Practice screen's.
     const Box bar = rows(img, img.h - img.h / 12, img.h - 1);
-    const Image input = render_text("the demo ensemble", ui::FontFace::bold, ui::palette::kText, ui::palette::kPanel, 1.0f);
+    const Image input =
+        render_text("the demo ensemble", ui::FontFace::bold, ui::palette::kText, ui::palette::kPanel, 1.0f);
     CHECK_MESSAGE(!find_exact(img, input, bar).empty(), "the status bar does not name the demo ensemble");
 }
 
@@ -165,8 +172,10 @@ TEST_CASE("[ensemble] settings: written, read back equal, and a bad reference is
     const ui::LoadedSettings back = ui::parse_settings(ui::settings_toml(s), "settings.toml");
     CHECK(back.warning.empty());
     CHECK(back.settings == s);
-    const ui::LoadedSettings bad = ui::parse_settings("kind = \"settings\"\n[ensemble]\nchord = \"4:5:6\"\nreference = \"tenor\"\n", "my.toml");
-    CHECK(bad.warning == "my.toml:4: `reference`: reference 'tenor': expected drone, bass or best-fit; using its default");
+    const ui::LoadedSettings bad =
+        ui::parse_settings("kind = \"settings\"\n[ensemble]\nchord = \"4:5:6\"\nreference = \"tenor\"\n", "my.toml");
+    CHECK(bad.warning ==
+          "my.toml:4: `reference`: reference 'tenor': expected drone, bass or best-fit; using its default");
     CHECK(bad.settings.ensemble.chord == "4:5:6");
     CHECK(bad.settings.ensemble.reference == pitch::ChordReference::best_fit);
 }
@@ -237,7 +246,8 @@ TEST_CASE("Ensemble screen: left for another screen and shown again, the group's
         img.w = buf.width_px;
         img.h = buf.height_px;
         img.px = buf.pixels;
-        const Image input = render_text("the demo ensemble", ui::FontFace::bold, ui::palette::kText, ui::palette::kPanel, 1.0f);
+        const Image input =
+            render_text("the demo ensemble", ui::FontFace::bold, ui::palette::kText, ui::palette::kPanel, 1.0f);
         return !find_exact(img, input, rows(img, img.h - img.h / 12, img.h - 1)).empty();
     };
     deck.show(ui::ScreenId::ensemble);
@@ -283,7 +293,8 @@ struct ScreenRig {
         return hc;
     }
     ScreenRig(const ui::Settings& s, int w, int h, bool hold)
-        : app(s, std::filesystem::temp_directory_path() / "beatless-never-written.toml", options(hold)), host(host_config(w, h)) {
+        : app(s, std::filesystem::temp_directory_path() / "beatless-never-written.toml", options(hold)),
+          host(host_config(w, h)) {
         app.start();
     }
     ~ScreenRig() { app.shutdown(); }
@@ -294,7 +305,8 @@ struct ScreenRig {
                 app.update(dt);
                 const ImVec2 disp = ImGui::GetIO().DisplaySize;
                 const float u = ui::ui_unit();
-                const float top = std::round(2.3f * u), status_h = std::round(1.9f * u);  // as ui/screens/screen.cpp lays out the deck
+                const float top = std::round(2.3f * u),
+                            status_h = std::round(1.9f * u);  // as ui/screens/screen.cpp lays out the deck
                 screen->build(app, ui::ScreenArea{ImVec2(0, top), ImVec2(disp.x, disp.y - top - status_h)}, dt);
             });
             t_s += dt;
@@ -318,8 +330,12 @@ std::string octave_words(int octaves) {
     return (octaves > 0 ? "+" : "\xE2\x88\x92") + std::to_string(std::abs(octaves)) + " oct";
 }
 
-bool overlap(const ui::ViewBox& a, const ui::ViewBox& b) { return a.x0 < b.x1 && b.x0 < a.x1 && a.y0 < b.y1 && b.y0 < a.y1; }
-bool inside(const ui::ViewBox& a, const ui::ViewBox& p) { return a.x0 >= p.x0 - 0.5f && a.y0 >= p.y0 - 0.5f && a.x1 <= p.x1 + 0.5f && a.y1 <= p.y1 + 0.5f; }
+bool overlap(const ui::ViewBox& a, const ui::ViewBox& b) {
+    return a.x0 < b.x1 && b.x0 < a.x1 && a.y0 < b.y1 && b.y0 < a.y1;
+}
+bool inside(const ui::ViewBox& a, const ui::ViewBox& p) {
+    return a.x0 >= p.x0 - 0.5f && a.y0 >= p.y0 - 0.5f && a.x1 <= p.x1 + 0.5f && a.y1 <= p.y1 + 0.5f;
+}
 
 // No two texts overlap; none leaves its panel (so none is cut by it).
 void check_texts(const ui::EnsembleView& v) {
@@ -327,13 +343,14 @@ void check_texts(const ui::EnsembleView& v) {
     for (std::size_t a = 0; a < v.texts.size(); ++a) {
         CHECK_MESSAGE(inside(v.texts[a].box, v.texts[a].panel), "'" << v.texts[a].text << "' leaves its panel");
         for (std::size_t b = a + 1; b < v.texts.size(); ++b)
-            CHECK_MESSAGE(!overlap(v.texts[a].box, v.texts[b].box), "'" << v.texts[a].text << "' overlaps '" << v.texts[b].text << "'");
+            CHECK_MESSAGE(!overlap(v.texts[a].box, v.texts[b].box),
+                          "'" << v.texts[a].text << "' overlaps '" << v.texts[b].text << "'");
     }
 }
 
 struct Group {
     std::string chord, names;
-    std::vector<std::string> ratios;   // each player's voice, in player order
+    std::vector<std::string> ratios;  // each player's voice, in player order
     std::size_t voices;
 };
 
@@ -347,7 +364,8 @@ void check_group(const Group& g, int w, int h) {
     // The table: every voice has a row or is counted in "+N more"; rows top voice first.
     CHECK(static_cast<std::size_t>(v.rows.size()) + static_cast<std::size_t>(v.rows_hidden) == g.voices);
     if (w >= 1280) CHECK(v.rows_hidden == 0);  // at 1280x800 every row is shown
-    for (std::size_t k = 1; k < v.rows.size(); ++k) CHECK(pitch::parse_ratio(v.rows[k - 1].ratio).cents() > pitch::parse_ratio(v.rows[k].ratio).cents());
+    for (std::size_t k = 1; k < v.rows.size(); ++k)
+        CHECK(pitch::parse_ratio(v.rows[k - 1].ratio).cents() > pitch::parse_ratio(v.rows[k].ratio).cents());
     CHECK(v.legend == (g.ratios.size() > 1));
     const double tol = rig.app.settings().in_tune_cents;
     for (std::size_t i = 0; i < v.cards.size(); ++i) {
@@ -373,7 +391,8 @@ void check_group(const Group& g, int w, int h) {
             if (r.ratio == c.ratio) {
                 found = true;
                 bool named = false;  // one of the row's comma-separated players is exactly this card's
-                pitch::for_each_part(r.who, ',', [&](std::string_view part) { named = named || pitch::trim(part) == who; });
+                pitch::for_each_part(r.who, ',',
+                                     [&](std::string_view part) { named = named || pitch::trim(part) == who; });
                 CHECK_MESSAGE(named, "row " << r.ratio << " says '" << r.who << "', card says '" << who << "'");
             }
         CHECK((found || v.rows_hidden > 0));
@@ -385,12 +404,17 @@ const std::vector<Group> kGroups = {
     {"4:5:6:7", "Solo=3/2", {"3/2"}, 4},
     {"4:5:6:7", "S,A,T,B", {"7/4", "3/2", "5/4", "1/1"}, 4},
     {"4:5:6:7:8", "S1,S2,A,T,B", {"2/1", "7/4", "3/2", "5/4", "1/1"}, 5},
-    {"8:9:10:11:12:13:14:15", "S1,S2,A1,A2,T1,T2,B1,B2", {"15/8", "7/4", "13/8", "3/2", "11/8", "5/4", "9/8", "1/1"}, 8},
+    {"8:9:10:11:12:13:14:15",
+     "S1,S2,A1,A2,T1,T2,B1,B2",
+     {"15/8", "7/4", "13/8", "3/2", "11/8", "5/4", "9/8", "1/1"},
+     8},
 };
 
 }  // namespace
 
-TEST_CASE("Ensemble view at 1280x800: 1, 4, 5 and 8 players, cards agree with the table, no text overlaps or leaves its panel") {
+TEST_CASE(
+    "Ensemble view at 1280x800: 1, 4, 5 and 8 players, cards agree with the table, no text overlaps or leaves its "
+    "panel") {
     for (const Group& g : kGroups) check_group(g, 1280, 800);
 }
 
@@ -445,13 +469,16 @@ TEST_CASE("Ensemble session: voices reassigned while the group sings on: one mes
     };
     const std::vector<Case> cases = {
         {"S=1/1,A=5/4,T=3/2,B=7/4",
-         "S near 7/4 (assigned 1/1), A near 3/2 (assigned 5/4), T near 5/4 (assigned 3/2), B near 1/1 (assigned 7/4): names are read top voice "
+         "S near 7/4 (assigned 1/1), A near 3/2 (assigned 5/4), T near 5/4 (assigned 3/2), B near 1/1 (assigned 7/4): "
+         "names are read top voice "
          "first; pick the voices below"},
-        {"S=7/4,A=3/2,T=5/4,B=5/4", "B is singing near 1/1, assigned 5/4 (names are read top voice first; pick the voice below)"},
+        {"S=7/4,A=3/2,T=5/4,B=5/4",
+         "B is singing near 1/1, assigned 5/4 (names are read top voice first; pick the voice below)"},
     };
     for (const Case& c : cases) {
         CAPTURE(c.names);
-        ui::AppState app(group_settings("4:5:6:7", "S,A,T,B"), std::filesystem::temp_directory_path() / "beatless-never-written.toml",
+        ui::AppState app(group_settings("4:5:6:7", "S,A,T,B"),
+                         std::filesystem::temp_directory_path() / "beatless-never-written.toml",
                          ScreenRig::options(true));
         app.start();
         ui::EnsembleSession session;
@@ -462,7 +489,8 @@ TEST_CASE("Ensemble session: voices reassigned while the group sings on: one mes
             }
         };
         auto said = [&] {
-            return static_cast<int>(std::count_if(app.messages().begin(), app.messages().end(), [&](const ui::Message& m) { return m.text == c.message; }));
+            return static_cast<int>(std::count_if(app.messages().begin(), app.messages().end(),
+                                                  [&](const ui::Message& m) { return m.text == c.message; }));
         };
         run(1.5);
         ui::EnsembleSettings e = app.settings().ensemble;

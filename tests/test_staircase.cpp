@@ -18,8 +18,8 @@
 // the reversal levels sit on a grid of that step, so we allow a further
 // quarter of the final step (in log units) for bias. The check is
 // |mean ln(estimate) - ln d_p| < 3 SE + 0.25 ln(final step).
-#include "ui/session/ear_question.h"
 #include "pitch/base/error.h"
+#include "ui/session/ear_question.h"
 #include "ui/session/rng.h"
 #include "ui/session/staircase.h"
 
@@ -171,8 +171,8 @@ TEST_CASE("2-down/1-up converges on the listener's 70.7 % point (Levitt 1971)") 
     const RunStats r = simulate(who, c, runs, 1000);
     const double target = std::log(who.x_p(std::pow(0.5, 0.5)));
     const double tol = 3.0 * r.sd_log / std::sqrt(runs) + 0.25 * std::log(c.steps.back());
-    MESSAGE("2-down: mean estimate " << std::exp(r.mean_log) << " c, X_70.7 = " << std::exp(target)
-                                     << " c, run SD " << r.sd_log << " (ln), allowed " << tol);
+    MESSAGE("2-down: mean estimate " << std::exp(r.mean_log) << " c, X_70.7 = " << std::exp(target) << " c, run SD "
+                                     << r.sd_log << " (ln), allowed " << tol);
     CHECK(std::fabs(r.mean_log - target) < tol);
     // The estimate is not just anywhere: the 79.4 % point is well outside the tolerance.
     CHECK(std::fabs(r.mean_log - std::log(who.x_p(std::pow(0.5, 1.0 / 3.0)))) > tol);
@@ -188,8 +188,8 @@ TEST_CASE("3-down/1-up converges on the listener's 79.4 % point (Levitt 1971)") 
     const RunStats r = simulate(who, c, runs, 5000);
     const double target = std::log(who.x_p(std::pow(0.5, 1.0 / 3.0)));
     const double tol = 3.0 * r.sd_log / std::sqrt(runs) + 0.25 * std::log(c.steps.back());
-    MESSAGE("3-down: mean estimate " << std::exp(r.mean_log) << " c, X_79.4 = " << std::exp(target)
-                                     << " c, run SD " << r.sd_log << " (ln), allowed " << tol);
+    MESSAGE("3-down: mean estimate " << std::exp(r.mean_log) << " c, X_79.4 = " << std::exp(target) << " c, run SD "
+                                     << r.sd_log << " (ln), allowed " << tol);
     CHECK(std::fabs(r.mean_log - target) < tol);
     CHECK(std::fabs(r.mean_log - std::log(who.x_p(std::pow(0.5, 0.5)))) > tol);
 }
@@ -212,7 +212,8 @@ TEST_CASE("discrimination: the pure interval and it mistuned by exactly the leve
         REQUIRE(e.tones == 2);
         CHECK(e.level_cents == level);
         CHECK(e.tone_cents[static_cast<std::size_t>(e.correct_answer)] == kTritones[1]);  // the pure one is 7/5
-        CHECK(e.tone_cents[static_cast<std::size_t>(1 - e.correct_answer)] - kTritones[1] == doctest::Approx(e.mistune_sign * level));
+        CHECK(e.tone_cents[static_cast<std::size_t>(1 - e.correct_answer)] - kTritones[1] ==
+              doctest::Approx(e.mistune_sign * level));
         first += e.correct_answer == 0;
         wider += e.mistune_sign > 0;
     }

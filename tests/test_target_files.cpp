@@ -1,10 +1,10 @@
 // The TOML files in targets/: every built-in file loads, and malformed files
 // give messages with file and line.
 #include "pitch/base/error.h"
+#include "tests/cli.h"
 #include "ui/session/settings.h"
 #include "ui/session/target_files.h"
 #include "ui/session/toml_reader.h"
-#include "tests/cli.h"
 
 #include <doctest/doctest.h>
 
@@ -35,7 +35,8 @@ TEST_CASE("the built-in target sets load and hold what the issue asks") {
     const auto tri = ui::load_target_set("tritones");
     std::vector<std::string> got;
     for (const auto& t : tri.targets) got.push_back(t.interval.str());
-    for (const char* want : {"7/5", "10/7", "11/8", "16/11", "15/11", "45/32", "64/45", "729/512", "1024/729", "600c"}) {
+    for (const char* want :
+         {"7/5", "10/7", "11/8", "16/11", "15/11", "45/32", "64/45", "729/512", "1024/729", "600c"}) {
         CAPTURE(want);
         CHECK(std::find(got.begin(), got.end(), std::string(want)) != got.end());
     }
@@ -57,20 +58,28 @@ TEST_CASE("the built-in target sets load and hold what the issue asks") {
 }
 
 TEST_CASE("malformed target files name the file and the line") {
-    CHECK(error_of_text("kind = \"targets\"\ntitle = \"x\"\n[[target]\ninterval = \"7/5\"\n").rfind("my.toml:3: ", 0) == 0);
+    CHECK(error_of_text("kind = \"targets\"\ntitle = \"x\"\n[[target]\ninterval = \"7/5\"\n").rfind("my.toml:3: ", 0) ==
+          0);
     CHECK(error_of_text("kind = \"targets\"\ntitle = \"x\"\n\n[[target]]\ninterval = \"abc\"\n") ==
           "my.toml:5: `interval`: 'abc': not a ratio (expected a form such as 7/5, 7:5, 3/2*5/4 or 600c)");
     CHECK(error_of_text("kind = \"targets\"\ntitle = \"x\"\n[[target]]\ninterval = 7\n") ==
           "my.toml:4: `interval`: must be a string, not an integer");
-    CHECK(error_of_text("title = \"x\"\n") == "my.toml: `kind`: required key missing (write kind = \"targets\" on the first line)");
-    CHECK(error_of_text("kind = \"drill\"\ntitle = \"x\"\n") == "my.toml:1: `kind`: is \"drill\", expected \"targets\"");
-    CHECK(error_of_text("kind = \"targets\"\ntitle = \"x\"\n") == "my.toml:1: `[[target]]`: required table missing (add at least one)");
-    CHECK(error_of_text("kind = \"targets\"\n[[target]]\ninterval = \"7/5\"\n") == "my.toml:1: `title`: required key missing");
+    CHECK(error_of_text("title = \"x\"\n") ==
+          "my.toml: `kind`: required key missing (write kind = \"targets\" on the first line)");
+    CHECK(error_of_text("kind = \"drill\"\ntitle = \"x\"\n") ==
+          "my.toml:1: `kind`: is \"drill\", expected \"targets\"");
+    CHECK(error_of_text("kind = \"targets\"\ntitle = \"x\"\n") ==
+          "my.toml:1: `[[target]]`: required table missing (add at least one)");
+    CHECK(error_of_text("kind = \"targets\"\n[[target]]\ninterval = \"7/5\"\n") ==
+          "my.toml:1: `title`: required key missing");
 }
 
 TEST_CASE("target sets by path, and unknown names") {
     test::TempDir dir;
-    { std::ofstream(dir.file("mine.toml")) << "kind = \"targets\"\ntitle = \"Mine\"\n[[target]]\ninterval = \"7/5\"\nname = \"my tritone\"\n"; }
+    {
+        std::ofstream(dir.file("mine.toml"))
+            << "kind = \"targets\"\ntitle = \"Mine\"\n[[target]]\ninterval = \"7/5\"\nname = \"my tritone\"\n";
+    }
     const auto s = ui::load_target_set(dir.file("mine.toml"));
     CHECK(s.id == "mine");
     CHECK(s.targets.at(0).name == "my tritone");
@@ -117,14 +126,16 @@ TEST_CASE("target files: typos, types, missing keys and syntax each give one lin
     CHECK(error_of_text(head + "[[target]]\ninterval = \"7/5\"\nname = 7\n") ==
           "my.toml:5: `name`: must be a string, not an integer");
     CHECK(error_of_text(head + "[[target]]\nname = \"lonely\"\n") == "my.toml:3: `interval`: required key missing");
-    CHECK(error_of_text(head + "target = 3\n") == "my.toml:3: `target`: must be a list of [[target]] tables, not an integer");
+    CHECK(error_of_text(head + "target = 3\n") ==
+          "my.toml:3: `target`: must be a list of [[target]] tables, not an integer");
 }
 
 TEST_CASE("target files: TOML syntax errors in our words, never the parser's") {
     const std::string head = "kind = \"targets\"\n";
     CHECK(error_of_text(head + "title = \"Tritones for Mira\n[[target]]\ninterval = \"7/5\"\n") ==
           "my.toml:2: `title`: a string is not closed: add the closing quote on this line");
-    CHECK(error_of_text(head + "title = 'single\n") == "my.toml:2: `title`: a string is not closed: add the closing quote on this line");
+    CHECK(error_of_text(head + "title = 'single\n") ==
+          "my.toml:2: `title`: a string is not closed: add the closing quote on this line");
     CHECK(error_of_text(head + "title = \n") == "my.toml:2: `title`: no value after `=`");
     CHECK(error_of_text(head + "title = \"a\"\ntitle = \"b\"\n") == "my.toml:3: `title`: given twice: keep one");
     CHECK(error_of_text(head + "title = \"a\"\n[[target]\n") ==
@@ -143,10 +154,11 @@ TEST_CASE("target files: TOML syntax errors in our words, never the parser's") {
 
 TEST_CASE("names.toml and the settings file reject or report unknown keys") {
     // Settings: a bad key warns and is ignored; the file still loads.
-    const ui::LoadedSettings l = ui::parse_settings("kind = \"settings\"\na4hz = 415\n[drone]\nroot = \"D3\"\nlevel = -20\n", "s.toml");
+    const ui::LoadedSettings l =
+        ui::parse_settings("kind = \"settings\"\na4hz = 415\n[drone]\nroot = \"D3\"\nlevel = -20\n", "s.toml");
     CHECK(l.warning == "s.toml:2: `a4hz`: unknown key; did you mean `a4_hz`? (ignored) (and 1 more problem)");
     CHECK(l.settings.a4_hz == 440.0);  // not misread
-    CHECK(l.settings.root == "D3");   // the good keys still count
+    CHECK(l.settings.root == "D3");    // the good keys still count
     const ui::LoadedSettings t = ui::parse_settings("kind = \"settings\"\n[drone]\nroot = 110\n", "s.toml");
     CHECK(t.warning == "s.toml:3: `root`: must be a string; using its default");
 }
@@ -157,9 +169,11 @@ TEST_CASE("every command that loads a malformed file stops with its one line and
         std::ofstream(dir.file(name)) << text;
         return dir.file(name);
     };
-    const std::string set = write("tritones.toml", "kind = \"targets\"\ntitle = \"Tritones for Mira\"\n\n[[targets]]\ninterval = \"7/5\"\n");
+    const std::string set = write(
+        "tritones.toml", "kind = \"targets\"\ntitle = \"Tritones for Mira\"\n\n[[targets]]\ninterval = \"7/5\"\n");
     const std::string chord = write("choir.toml", "kind = \"chord\"\ntitle = \"Evening chord\"\nchrod = \"4:5:6\"\n");
-    const std::string drill = write("drill.toml", "kind = \"drill\"\ntitle = \"x\"\nmode = \"hold\"\n[[target]]\nintervall = \"7/5\"\n");
+    const std::string drill =
+        write("drill.toml", "kind = \"drill\"\ntitle = \"x\"\nmode = \"hold\"\n[[target]]\nintervall = \"7/5\"\n");
     const std::string set_msg = set + ":4: `[[targets]]`: unknown table; did you mean `[[target]]`?\n";
     const std::string chord_msg = chord + ":3: `chrod`: unknown key; did you mean `chord`?\n";
     const std::string drill_msg = drill + ":5: `intervall`: unknown key in [[target]]; did you mean `interval`?\n";
@@ -220,7 +234,8 @@ TEST_CASE("22/15 joins the tritone family and the 11-limit set as the inversion 
     for (const auto& t : tri.targets) {
         CAPTURE(t.interval.str());
         bool found = false;
-        for (const auto& u : tri.targets) found = found || std::abs(t.interval.cents() + u.interval.cents() - 1200.0) < 1e-9;
+        for (const auto& u : tri.targets)
+            found = found || std::abs(t.interval.cents() + u.interval.cents() - 1200.0) < 1e-9;
         CHECK(found);
         CHECK_FALSE(t.name.empty());
     }
@@ -280,9 +295,9 @@ TEST_CASE("the fifthless pentatonic stands on two 11/8 tritones") {
     const auto p = set_ratios("pentatonic-11");
     const std::vector<pitch::Ratio> want = {r(1, 1), r(55, 48), r(5, 4), r(11, 8), r(5, 3), r(2, 1)};
     CHECK(p == want);
-    CHECK_FALSE(holds(p, r(3, 2)));                    // no fifth over the root
-    CHECK(r(11, 8) / r(1, 1) == r(11, 8));             // the first tritone, on the root
-    CHECK(r(55, 48) * r(2, 1) / r(5, 3) == r(11, 8));  // the second, on the 5/3
+    CHECK_FALSE(holds(p, r(3, 2)));                                      // no fifth over the root
+    CHECK(r(11, 8) / r(1, 1) == r(11, 8));                               // the first tritone, on the root
+    CHECK(r(55, 48) * r(2, 1) / r(5, 3) == r(11, 8));                    // the second, on the 5/3
     CHECK(r(55, 48).cents() == doctest::Approx(235.677).epsilon(1e-5));  // computed 1200 log2(55/48)
     // No two notes of the set make a perfect fifth; the one perfect interval
     // is the fourth from 5/4 up to 5/3 (common practice: a fifthless scale).
@@ -342,6 +357,7 @@ TEST_CASE("every shipped set and chord says what it is in one sentence") {
         CHECK(about.back() == '.');
         // One sentence: no full stop followed by a space and a capital inside.
         for (std::size_t i = 0; i + 2 < about.size(); ++i)
-            CHECK_FALSE((about[i] == '.' && about[i + 1] == ' ' && std::isupper(static_cast<unsigned char>(about[i + 2]))));
+            CHECK_FALSE(
+                (about[i] == '.' && about[i + 1] == ' ' && std::isupper(static_cast<unsigned char>(about[i + 2]))));
     }
 }

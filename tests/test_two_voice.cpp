@@ -7,9 +7,9 @@
 // VIII); the outside reference for a measured beat is scipy: band-pass,
 // Hilbert envelope and the envelope's spectral peak
 // (tests/reference/beat_envelope.py, run with /usr/bin/python3).
-#include "pitch/theory/beats.h"
 #include "pitch/base/error.h"
 #include "pitch/measure/two_voice.h"
+#include "pitch/theory/beats.h"
 #include "tests/mix_signals.h"
 
 #include <doctest/doctest.h>
@@ -29,13 +29,17 @@ using namespace beatless::testsig;
 namespace {
 constexpr double kFs = 44100.0;
 
-TargetSet interval_set() { return target_set({"6/5", "5/4", "4/3", "7/5", "10/7", "3/2", "8/5", "5/3", "7/4", "11/8"}); }
+TargetSet interval_set() {
+    return target_set({"6/5", "5/4", "4/3", "7/5", "10/7", "3/2", "8/5", "5/3", "7/4", "11/8"});
+}
 
-std::vector<float> mixture(double f_low, double f_high, double lvl_low, double lvl_high, double dur_s, std::uint64_t seed,
-                           double noise = 1e-4) {
+std::vector<float> mixture(double f_low, double f_high, double lvl_low, double lvl_high, double dur_s,
+                           std::uint64_t seed, double noise = 1e-4) {
     std::vector<float> x(static_cast<std::size_t>(dur_s * kFs), 0.0f);
-    add_tone(x, kFs, f_low, 0.0, dur_s, lvl_low, rolloff(12), {0.1, 0.5, 0.9, 1.3, 1.7, 2.1, 2.5, 2.9, 0.3, 0.7, 1.9, 0.4});
-    add_tone(x, kFs, f_high, 0.0, dur_s, lvl_high, rolloff(12), {1.0, 0.2, 2.2, 0.4, 1.6, 0.8, 2.0, 1.2, 0.6, 2.4, 2.8, 1.5});
+    add_tone(x, kFs, f_low, 0.0, dur_s, lvl_low, rolloff(12),
+             {0.1, 0.5, 0.9, 1.3, 1.7, 2.1, 2.5, 2.9, 0.3, 0.7, 1.9, 0.4});
+    add_tone(x, kFs, f_high, 0.0, dur_s, lvl_high, rolloff(12),
+             {1.0, 0.2, 2.2, 0.4, 1.6, 0.8, 2.0, 1.2, 0.6, 2.4, 2.8, 1.5});
     if (noise > 0.0) add_noise(x, noise, seed);
     return x;
 }

@@ -18,7 +18,8 @@ namespace {
 
 constexpr double kHopS = 0.005;
 
-pitch::Reading voiced(double t_s, double root_hz, double cents_above_root, double target_cents, double centre_dev = NAN) {
+pitch::Reading voiced(double t_s, double root_hz, double cents_above_root, double target_cents,
+                      double centre_dev = NAN) {
     pitch::Reading r;
     r.t_s = t_s;
     r.root_hz = root_hz;
@@ -42,7 +43,9 @@ pitch::Reading unvoiced(double t_s) {
 
 }  // namespace
 
-TEST_CASE("verdict: the instantaneous pitch before a vibrato cycle is known, the centre after; its Hz is the same pitch (Ellis)") {
+TEST_CASE(
+    "verdict: the instantaneous pitch before a vibrato cycle is known, the centre after; its Hz is the same pitch "
+    "(Ellis)") {
     const double root = 146.832, target = 582.512;  // 7/5 above D3
     const ui::Verdict before = ui::verdict_of(voiced(0.0, root, target - 22.0, target));
     CHECK(before.source == ui::VerdictSource::instant);
@@ -107,14 +110,17 @@ TEST_CASE("verdict: a lone frame far away (a drone partial at a note's end) is n
     ui::VerdictTracker vt;
     double t = 0.0;
     for (int i = 0; i < 40; ++i, t += kHopS) vt.take(voiced(t, 146.832, 535.0, 536.951));
-    for (int i = 0; i < 3; ++i, t += kHopS) vt.take(voiced(t, 146.832, 2400.0, 536.951 + 2400.0));  // the drone's 4th partial, 15 ms
+    for (int i = 0; i < 3; ++i, t += kHopS)
+        vt.take(voiced(t, 146.832, 2400.0, 536.951 + 2400.0));  // the drone's 4th partial, 15 ms
     CHECK(vt.verdict().current());
     CHECK(vt.verdict().cents_above_root == doctest::Approx(535.0));
     for (int i = 0; i < 5; ++i, t += kHopS) vt.take(voiced(t, 146.832, 700.0, 701.955));  // a new note, held 25 ms
     CHECK(vt.verdict().cents_above_root == doctest::Approx(700.0));
 }
 
-TEST_CASE("verdict on the Practice screen's state: never current once the input has been unvoiced for 100 ms (demo performer, 12 s)") {
+TEST_CASE(
+    "verdict on the Practice screen's state: never current once the input has been unvoiced for 100 ms (demo "
+    "performer, 12 s)") {
     test::TempDir dir;
     ui::AppOptions o;
     o.demo = true;

@@ -7,9 +7,9 @@
 // usual range (common practice; from memory, C. E. Seashore, Psychology of
 // Music, 1938, reports about 6-7 Hz for singers). Every signal is
 // generated here with the centre, rate, depth and phase known exactly.
-#include "pitch/dsp/whole_cycles.h"
 #include "pitch/base/error.h"
 #include "pitch/dsp/vibrato.h"
+#include "pitch/dsp/whole_cycles.h"
 #include "tests/mix_signals.h"
 
 #include <doctest/doctest.h>
@@ -68,7 +68,7 @@ TEST_CASE("vibrato centre within 0.2 cent for 5-7 Hz, +-20..60 cents, any phase"
                 CHECK(w.readings > 300);
                 CHECK(w.without_vibrato == 0);
                 CHECK(w.centre_err < 0.2);
-                CHECK(w.rate_err < 0.1);          // cycles counted over ~0.6 s
+                CHECK(w.rate_err < 0.1);           // cycles counted over ~0.6 s
                 CHECK(w.depth_err < 0.1 * depth);  // half the peak-to-peak swing, sampled every 5 ms
                 worst = std::max(worst, w.centre_err);
             }

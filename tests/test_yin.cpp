@@ -63,7 +63,7 @@ std::vector<PitchFrame> track(const std::vector<float>& x, const YinConfig& cfg 
 }
 
 struct Errors {
-    std::vector<double> cents;   // |error| of voiced frames
+    std::vector<double> cents;  // |error| of voiced frames
     std::size_t unvoiced = 0;
     double median() const {
         auto v = cents;
@@ -127,9 +127,10 @@ TEST_CASE("yin_difference (FFT) equals the direct sum of eq. 6 for several windo
         yin_difference(x, s[0], s[1], d);
         const double scale = 2.0 * test::mean_square(x) * static_cast<double>(x.size());
         double worst = 0.0;
-        for (std::size_t tau = 0; tau <= s[1]; ++tau) worst = std::max(worst, std::fabs(d[tau] - brute_difference(x, s[0], tau)));
+        for (std::size_t tau = 0; tau <= s[1]; ++tau)
+            worst = std::max(worst, std::fabs(d[tau] - brute_difference(x, s[0], tau)));
         INFO("window " << s[0] << " max_lag " << s[1]);
-        CHECK(worst / scale < 2e-6);   // float FFT rounding; a wrong lag is off by O(1)
+        CHECK(worst / scale < 2e-6);  // float FFT rounding; a wrong lag is off by O(1)
         CHECK(d[0] == 0.0);
     }
 }
@@ -174,7 +175,7 @@ TEST_CASE("cumulative mean normalised difference, eq. 8, on a hand example") {
 TEST_CASE("absolute threshold (step 4) takes the first dip under it, else the overall minimum") {
     const std::vector<double> dn = {1.0, 0.9, 0.5, 0.12, 0.08, 0.3, 0.6, 0.05, 0.4};
     const LagChoice a = absolute_threshold(dn, 1, 8, 0.15);
-    CHECK(a.lag == 4);   // first under 0.15 at 3, bottom of that dip at 4 (not the deeper 7)
+    CHECK(a.lag == 4);  // first under 0.15 at 3, bottom of that dip at 4 (not the deeper 7)
     CHECK(a.below_threshold);
     const LagChoice b = absolute_threshold(dn, 1, 8, 0.01);
     CHECK(b.lag == 7);
@@ -184,7 +185,8 @@ TEST_CASE("absolute threshold (step 4) takes the first dip under it, else the ov
 
 TEST_CASE("parabolic interpolation (step 5) is exact on a sampled parabola") {
     std::vector<double> d(8);
-    for (std::size_t j = 0; j < d.size(); ++j) d[j] = 3.0 * (static_cast<double>(j) - 4.3) * (static_cast<double>(j) - 4.3) + 1.0;
+    for (std::size_t j = 0; j < d.size(); ++j)
+        d[j] = 3.0 * (static_cast<double>(j) - 4.3) * (static_cast<double>(j) - 4.3) + 1.0;
     CHECK(parabolic_minimum(d, 4) == doctest::Approx(4.3).epsilon(1e-12));
 }
 
@@ -201,9 +203,9 @@ TEST_CASE("invalid settings throw one-line errors naming the value") {
         {{.sample_rate_hz = 200000}, "sample_rate_hz 200000"},
         {{.sample_rate_hz = std::numeric_limits<double>::quiet_NaN()}, "sample_rate_hz nan"},
         {{.f_min_hz = 500, .f_max_hz = 400}, "f_max_hz 400"},
-        {{.f_max_hz = 12000}, "f_max_hz 12000"},   // above 44100 / 4
+        {{.f_max_hz = 12000}, "f_max_hz 12000"},  // above 44100 / 4
         {{.f_min_hz = 0}, "f_min_hz 0"},
-        {{.f_min_hz = 20}, "f_min_hz 20"},         // two periods of 20 Hz do not fit in 50 ms
+        {{.f_min_hz = 20}, "f_min_hz 20"},  // two periods of 20 Hz do not fit in 50 ms
         {{.hop_s = 0.0}, "hop_s 0"},
         {{.hop_s = -0.01}, "hop_s -0.01"},
         {{.span_s = 2.0}, "span_s 2"},
@@ -226,9 +228,9 @@ TEST_CASE("hop, decimation and delay are reported") {
         YinTracker y(c);
         INFO("rate " << rate);
         CHECK(y.hop_len_samples() % y.decimation() == 0);
-        CHECK(std::fabs(y.hop_s() - 0.005) < 0.0005);   // default 5 ms, rounded to the decimation
+        CHECK(std::fabs(y.hop_s() - 0.005) < 0.0005);  // default 5 ms, rounded to the decimation
         CHECK(y.hop_s() == doctest::Approx(static_cast<double>(y.hop_len_samples()) / rate));
-        CHECK(y.delay_s() > 0.025);                       // at least half the 50 ms span
+        CHECK(y.delay_s() > 0.025);  // at least half the 50 ms span
         CHECK(y.delay_s() < 0.05);
     }
 }
@@ -239,7 +241,7 @@ TEST_CASE("hop, decimation and delay are reported") {
 
 TEST_CASE("steady harmonic tones 50-1500 Hz: within 0.2 cent (median) and 1 cent (every frame)") {
     YinConfig c;
-    c.f_min_hz = 45.0;   // so that 50 Hz is inside the searched range
+    c.f_min_hz = 45.0;  // so that 50 Hz is inside the searched range
     std::uint64_t seed = 100;
     for (double f0 : {50.0, 65.4, 98.0, 151.3, 220.0, 329.6, 440.0, 659.3, 880.0, 1000.0, 1234.5, 1500.0}) {
         const auto parts = test::falling_partials(f0, kRate, 20, 6.0, seed++);
@@ -310,12 +312,14 @@ TEST_CASE("vibrato: the track follows the known instantaneous f0 at each frame's
         const Errors e = errors(frames, [&](double t) { return v.f0_hz(t); });
         double num = 0.0, den = 0.0;
         for (const auto& p : frames) {
-            const double slope = (test::cents(v.f0_hz(p.t_s + 1e-4), centre) - test::cents(v.f0_hz(p.t_s - 1e-4), centre)) / 2e-4;
+            const double slope =
+                (test::cents(v.f0_hz(p.t_s + 1e-4), centre) - test::cents(v.f0_hz(p.t_s - 1e-4), centre)) / 2e-4;
             num += test::cents(p.f0_hz, v.f0_hz(p.t_s)) * slope;
             den += slope * slope;
         }
         const double shift_s = num / den;
-        INFO("centre " << centre << " median " << e.median() << " max " << e.max() << " shift " << shift_s * 1e3 << " ms");
+        INFO("centre " << centre << " median " << e.median() << " max " << e.max() << " shift " << shift_s * 1e3
+                       << " ms");
         CHECK(e.unvoiced == 0);
         CHECK(e.max() < 6.1);
         CHECK(std::fabs(shift_s) < 0.3e-3);
@@ -332,12 +336,15 @@ TEST_CASE("vibrato correction: a sung tone with wide, fast vibrato is tracked at
     // neighbour, stay uncorrected). Truth is the generator's exact f0(t).
     std::uint64_t seed = 450;
     for (double centre : {262.0, 587.0}) {
-        const auto f0 = [centre](double t) { return centre * std::exp2(100.0 / 1200.0 * std::sin(6.283185307179586 * 7.5 * t + 0.4)); };
+        const auto f0 = [centre](double t) {
+            return centre * std::exp2(100.0 / 1200.0 * std::sin(6.283185307179586 * 7.5 * t + 0.4));
+        };
         const auto x = test::sung_tone(kRate, static_cast<std::size_t>(0.8 * kRate), f0, test::Voice{}, seed++);
         YinConfig plain;
         plain.vibrato_correction = false;
         const Errors on = errors(track(x), f0), off = errors(track(x, plain), f0);
-        INFO("centre " << centre << " median with " << on.median() << " without " << off.median() << " max with " << on.max());
+        INFO("centre " << centre << " median with " << on.median() << " without " << off.median() << " max with "
+                       << on.max());
         CHECK(on.unvoiced == 0);
         CHECK(on.median() < 1.5);
         CHECK(on.median() * 4.0 < off.median());
@@ -351,8 +358,9 @@ TEST_CASE("vibrato correction: steady tones and note steps are left alone, at th
     // for a straight tone; near it the change is no vibrato and is not corrected.
     YinConfig plain;
     plain.vibrato_correction = false;
-    CHECK(YinTracker(YinConfig{}).delay_s() == doctest::Approx(YinTracker(plain).delay_s() + 3 * YinTracker(plain).hop_s()));
-    const auto f0 = [](double t) { return t < 0.4 ? 220.0 : 220.0 * std::exp2(4.0 / 12.0); };   // a major third up
+    CHECK(YinTracker(YinConfig{}).delay_s() ==
+          doctest::Approx(YinTracker(plain).delay_s() + 3 * YinTracker(plain).hop_s()));
+    const auto f0 = [](double t) { return t < 0.4 ? 220.0 : 220.0 * std::exp2(4.0 / 12.0); };  // a major third up
     const auto x = test::sung_tone(kRate, static_cast<std::size_t>(0.8 * kRate), f0, test::Voice{}, 470);
     const auto frames = track(x);
     std::size_t checked = 0;
@@ -431,7 +439,8 @@ TEST_CASE("white noise alone is unvoiced") {
 TEST_CASE("NaN and infinite samples are counted, read as 0, and never poison later frames") {
     const double f0 = 220.0;
     // 0.65 s: the vibrato correction holds the last three frames back.
-    auto x = test::harmonic_tone(kRate, static_cast<std::size_t>(0.65 * kRate), f0, test::falling_partials(f0, kRate, 20, 6.0, 9));
+    auto x = test::harmonic_tone(kRate, static_cast<std::size_t>(0.65 * kRate), f0,
+                                 test::falling_partials(f0, kRate, 20, 6.0, 9));
     const std::size_t at[] = {5000, 5001, 9000, 12345};
     x[at[0]] = std::numeric_limits<float>::quiet_NaN();
     x[at[1]] = std::numeric_limits<float>::infinity();
@@ -447,7 +456,7 @@ TEST_CASE("NaN and infinite samples are counted, read as 0, and never poison lat
         CHECK(std::isfinite(p.t_s));
         CHECK(std::isfinite(p.f0_hz));
         CHECK(std::isfinite(p.confidence));
-        if (p.t_s > 12345.0 / kRate + 0.03) {   // spans clear of every bad sample
+        if (p.t_s > 12345.0 / kRate + 0.03) {  // spans clear of every bad sample
             ++late;
             if (p.voiced() && std::fabs(test::cents(p.f0_hz, f0)) < 0.2) ++good_late;
         }
@@ -462,8 +471,9 @@ TEST_CASE("NaN and infinite samples are counted, read as 0, and never poison lat
 // ---------------------------------------------------------------------------
 
 TEST_CASE("results do not depend on the block sizes pushed") {
-    const auto x = test::vibrato_tone(kRate, static_cast<std::size_t>(0.4 * kRate), test::Vibrato{196.0, 40.0, 6.0, 1.0},
-                                      test::falling_partials(210.0, kRate, 20, 6.0, 4));
+    const auto x =
+        test::vibrato_tone(kRate, static_cast<std::size_t>(0.4 * kRate), test::Vibrato{196.0, 40.0, 6.0, 1.0},
+                           test::falling_partials(210.0, kRate, 20, 6.0, 4));
     const auto a = track(x, {}, 1);
     const auto b = track(x, {}, 37);
     const auto c = track(x, {}, x.size());
@@ -478,7 +488,8 @@ TEST_CASE("results do not depend on the block sizes pushed") {
 
 TEST_CASE("frame times: hop apart, centred on the span, t of a steady tone within a sample of the grid") {
     YinTracker yin(YinConfig{});
-    const auto x = test::harmonic_tone(kRate, static_cast<std::size_t>(0.3 * kRate), 300.0, test::falling_partials(300.0, kRate, 20, 6.0, 5));
+    const auto x = test::harmonic_tone(kRate, static_cast<std::size_t>(0.3 * kRate), 300.0,
+                                       test::falling_partials(300.0, kRate, 20, 6.0, 5));
     yin.push(x);
     PitchFrame p;
     std::vector<double> t;
@@ -508,8 +519,9 @@ TEST_CASE("other sample rates, 8 kHz to 192 kHz") {
 }
 
 TEST_CASE("push and pull allocate nothing after construction (DESIGN.md real-time rules)") {
-    const auto x = test::vibrato_tone(kRate, static_cast<std::size_t>(1.0 * kRate), test::Vibrato{300.0, 30.0, 5.0, 0.0},
-                                      test::falling_partials(320.0, kRate, 20, 6.0, 12));
+    const auto x =
+        test::vibrato_tone(kRate, static_cast<std::size_t>(1.0 * kRate), test::Vibrato{300.0, 30.0, 5.0, 0.0},
+                           test::falling_partials(320.0, kRate, 20, 6.0, 12));
     YinTracker yin(YinConfig{});
     std::vector<PitchFrame> frames;
     frames.reserve(1000);
@@ -520,7 +532,7 @@ TEST_CASE("push and pull allocate nothing after construction (DESIGN.md real-tim
         yin.push(std::span<const float>(x).subspan(i, std::min<std::size_t>(300, x.size() - i)));
         while (yin.pull(p)) frames.push_back(p);
     }
-    yin.push(x);   // one long block
+    yin.push(x);  // one long block
     while (yin.pull(p)) frames.push_back(p);
     g_counting = false;
     CHECK(frames.size() > 350);
@@ -529,10 +541,10 @@ TEST_CASE("push and pull allocate nothing after construction (DESIGN.md real-tim
 
 TEST_CASE("a full queue drops the oldest frames and counts them") {
     YinConfig c;
-    c.max_block_len_samples = 2048;   // a queue for about 9 hops
+    c.max_block_len_samples = 2048;  // a queue for about 9 hops
     YinTracker yin(c);
     const auto x = test::sine(kRate, static_cast<std::size_t>(kRate), 440.0, 0.3);
-    yin.push(x);   // about 190 frames, never pulled
+    yin.push(x);  // about 190 frames, never pulled
     CHECK(yin.dropped_frames() > 150);
     PitchFrame p, last;
     std::size_t n = 0;
@@ -541,11 +553,12 @@ TEST_CASE("a full queue drops the oldest frames and counts them") {
         ++n;
     }
     CHECK(n + yin.dropped_frames() > 180);
-    CHECK(last.t_s > 0.9);   // the newest frames were kept
+    CHECK(last.t_s > 0.9);  // the newest frames were kept
 }
 
 TEST_CASE("reset forgets the audio: the same input gives the same frames from t = 0") {
-    const auto x = test::harmonic_tone(kRate, static_cast<std::size_t>(0.2 * kRate), 180.0, test::falling_partials(180.0, kRate, 20, 6.0, 2));
+    const auto x = test::harmonic_tone(kRate, static_cast<std::size_t>(0.2 * kRate), 180.0,
+                                       test::falling_partials(180.0, kRate, 20, 6.0, 2));
     YinTracker yin(YinConfig{});
     std::vector<PitchFrame> first, second;
     PitchFrame p;

@@ -50,13 +50,13 @@ double power_of(const std::vector<float>& x) { return mean_square(x); }
 }  // namespace
 
 std::vector<float> sung_tone(double rate_hz, std::size_t len, const F0Track& f0, const Voice& v, std::uint64_t seed) {
-    const auto g = gaussian(4 * len / 20 + 4096, seed);          // per-cycle draws (enough for 2 kHz)
+    const auto g = gaussian(4 * len / 20 + 4096, seed);  // per-cycle draws (enough for 2 kHz)
     const auto noise = gaussian(len + 1, seed ^ 0x5a5a5a5aull);
     std::size_t gi = 0;
     auto draw = [&]() { return g[gi++ % g.size()]; };
 
     std::vector<double> voiced(len, 0.0), breath(len, 0.0);
-    double phi = 0.0;              // fundamental phase, radians (jittered)
+    double phi = 0.0;  // fundamental phase, radians (jittered)
     double cycle_rate = 1.0 + v.jitter * draw();
     double gain_prev = 1.0, gain_next = std::pow(10.0, v.shimmer_db * draw() / 20.0);
     constexpr int kMaxPartials = 60;
@@ -66,7 +66,7 @@ std::vector<float> sung_tone(double rate_hz, std::size_t len, const F0Track& f0,
     for (std::size_t n = 0; n < len; ++n) {
         const double t = static_cast<double>(n) / rate_hz;
         const double f = f0(t);
-        if (n % 32 == 0) {   // partial amplitudes follow the formants as f0 moves
+        if (n % 32 == 0) {  // partial amplitudes follow the formants as f0 moves
             partials = std::min<int>(kMaxPartials, static_cast<int>(std::min(0.45 * rate_hz, 8000.0) / f));
             for (int l = 1; l <= partials; ++l) {
                 const double fl = l * f;
@@ -98,7 +98,8 @@ std::vector<float> sung_tone(double rate_hz, std::size_t len, const F0Track& f0,
         pv += voiced[n] * voiced[n];
         pb += breath[n] * breath[n];
     }
-    const double bscale = (pb > 0.0 && v.aspiration_db > -99.0) ? std::sqrt(pv / pb * std::pow(10.0, v.aspiration_db / 10.0)) : 0.0;
+    const double bscale =
+        (pb > 0.0 && v.aspiration_db > -99.0) ? std::sqrt(pv / pb * std::pow(10.0, v.aspiration_db / 10.0)) : 0.0;
     double peak = 0.0;
     for (std::size_t n = 0; n < len; ++n) {
         voiced[n] += bscale * breath[n];
@@ -135,12 +136,13 @@ std::vector<float> bowed_tone(double rate_hz, std::size_t len, const F0Track& f0
     return out;
 }
 
-std::vector<float> in_room(const std::vector<float>& x, double rate_hz, double rt60_s, double drr_db, std::uint64_t seed) {
+std::vector<float> in_room(const std::vector<float>& x, double rate_hz, double rt60_s, double drr_db,
+                           std::uint64_t seed) {
     const auto ir_len = static_cast<std::size_t>(rt60_s * rate_hz);
     const auto g = gaussian(ir_len, seed);
     std::vector<float> ir(ir_len, 0.0f);
     double e = 0.0;
-    const double decay = std::log(1000.0) / (rt60_s * rate_hz);   // amplitude: -60 dB over rt60
+    const double decay = std::log(1000.0) / (rt60_s * rate_hz);  // amplitude: -60 dB over rt60
     for (std::size_t n = 1; n < ir_len; ++n) {
         ir[n] = static_cast<float>(g[n] * std::exp(-decay * static_cast<double>(n)));
         e += static_cast<double>(ir[n]) * ir[n];
@@ -183,7 +185,7 @@ std::vector<float> coloured_noise(NoiseColour colour, double rate_hz, std::size_
         std::uniform_real_distribution<double> u(0.0, 1.0);
         y.assign(len, 0.0f);
         const Voice vowels[] = {Voice{730, 1090, 2440}, Voice{270, 2290, 3010}, Voice{300, 870, 2240},
-                                Voice{530, 1840, 2480}, Voice{570, 840, 2410}, Voice{660, 1720, 2410}};
+                                Voice{530, 1840, 2480}, Voice{570, 840, 2410},  Voice{660, 1720, 2410}};
         for (int k = 0; k < 6; ++k) {
             const double base = 90.0 + 160.0 * u(rng), rate = 1.0 + 2.0 * u(rng), ph = kTwoPi * u(rng);
             const double syl = 3.0 + 2.5 * u(rng), sph = kTwoPi * u(rng);
@@ -191,9 +193,12 @@ std::vector<float> coloured_noise(NoiseColour colour, double rate_hz, std::size_
             v.jitter = 0.01;
             v.shimmer_db = 0.5;
             v.aspiration_db = -15.0;
-            auto s = sung_tone(rate_hz, len, [=](double t) { return base * std::exp2(3.0 / 12.0 * std::sin(kTwoPi * rate * t + ph)); }, v, rng());
+            auto s = sung_tone(
+                rate_hz, len, [=](double t) { return base * std::exp2(3.0 / 12.0 * std::sin(kTwoPi * rate * t + ph)); },
+                v, rng());
             for (std::size_t n = 0; n < len; ++n) {
-                const double env = std::pow(std::max(0.0, std::sin(kTwoPi * syl * static_cast<double>(n) / rate_hz + sph)), 2.0);
+                const double env =
+                    std::pow(std::max(0.0, std::sin(kTwoPi * syl * static_cast<double>(n) / rate_hz + sph)), 2.0);
                 y[n] += static_cast<float>(env * s[n]);
             }
         }
@@ -202,7 +207,7 @@ std::vector<float> coloured_noise(NoiseColour colour, double rate_hz, std::size_
         y.assign(g.begin(), g.end());
         if (colour != NoiseColour::white) {
             const std::size_t n = pitch::RealFft::fast_size(len);
-            const double expo = colour == NoiseColour::pink ? 0.5 : 1.0;   // amplitude ~ f^-expo
+            const double expo = colour == NoiseColour::pink ? 0.5 : 1.0;  // amplitude ~ f^-expo
             y = filter_fft(y, n, len, [&](std::size_t k) {
                 const double f = std::max(20.0, static_cast<double>(k) * rate_hz / static_cast<double>(n));
                 return std::complex<double>(std::pow(20.0 / f, expo), 0.0);

@@ -24,19 +24,20 @@
 
 namespace beatless::test {
 
-using F0Track = std::function<double(double)>;   // t_s -> f0_hz
+using F0Track = std::function<double(double)>;  // t_s -> f0_hz
 
 struct Voice {
-    double f1_hz = 730, f2_hz = 1090, f3_hz = 2440;    // formants (Peterson-Barney /a/, men)
-    double b1_hz = 80, b2_hz = 100, b3_hz = 120;       // formant bandwidths (from memory)
-    double jitter = 0.0;          // RMS cycle-to-cycle period perturbation, fraction (0.002 = 0.2 %)
-    double shimmer_db = 0.0;      // RMS cycle-to-cycle amplitude perturbation, dB
-    double aspiration_db = -100;  // pulse-synchronous noise power re the voiced power, dB
-    double peak = 0.4;            // peak of the sum of partial amplitudes
+    double f1_hz = 730, f2_hz = 1090, f3_hz = 2440;  // formants (Peterson-Barney /a/, men)
+    double b1_hz = 80, b2_hz = 100, b3_hz = 120;     // formant bandwidths (from memory)
+    double jitter = 0.0;                             // RMS cycle-to-cycle period perturbation, fraction (0.002 = 0.2 %)
+    double shimmer_db = 0.0;                         // RMS cycle-to-cycle amplitude perturbation, dB
+    double aspiration_db = -100;                     // pulse-synchronous noise power re the voiced power, dB
+    double peak = 0.4;                               // peak of the sum of partial amplitudes
 };
 
 // A sung tone following f0 (Hz as a function of t) for len samples.
-std::vector<float> sung_tone(double rate_hz, std::size_t len, const F0Track& f0, const Voice& voice, std::uint64_t seed);
+std::vector<float> sung_tone(double rate_hz, std::size_t len, const F0Track& f0, const Voice& voice,
+                             std::uint64_t seed);
 
 // A bowed-string tone: bow position beta (0.08 .. 0.15), the fundamental
 // scaled by fundamental_gain (0.1 = 20 dB weak).
@@ -46,7 +47,8 @@ std::vector<float> bowed_tone(double rate_hz, std::size_t len, const F0Track& f0
 // y = x convolved with a synthetic room response (direct sound 1 at lag 0, a
 // diffuse tail of Gaussian noise decaying by 60 dB in rt60_s, its energy
 // 10^(-drr_db / 10) times the direct sound's), trimmed to x's length.
-std::vector<float> in_room(const std::vector<float>& x, double rate_hz, double rt60_s, double drr_db, std::uint64_t seed);
+std::vector<float> in_room(const std::vector<float>& x, double rate_hz, double rt60_s, double drr_db,
+                           std::uint64_t seed);
 
 // Zero-phase band-pass with Butterworth magnitudes of the given order at
 // each edge (a microphone or telephone channel, e.g. 300 .. 3400 Hz).

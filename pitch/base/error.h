@@ -16,5 +16,4 @@ public:
     using std::runtime_error::runtime_error;
 };
 
-
 }  // namespace beatless

@@ -63,7 +63,7 @@ private:
     std::vector<float> buf_;
     std::vector<float> out_;
     std::int64_t start_ = -static_cast<std::int64_t>(half_);  // input index of buf_[0]
-    std::int64_t next_ = 0;                                  // next output index
+    std::int64_t next_ = 0;                                   // next output index
 };
 
 }  // namespace beatless::pitch

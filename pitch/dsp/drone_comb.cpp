@@ -47,8 +47,8 @@ void DroneComb::process(std::span<const float> in, std::span<float> out) noexcep
         hist_[pos_] = x;
         // x[n - k] sits at pos_ - k.
         const std::size_t b = pos_ + hist_.size() - whole_;
-        const double d = c_[0] * h[(b + 1) & mask_] + c_[1] * h[b & mask_] + c_[2] * h[(b - 1) & mask_] +
-                         c_[3] * h[(b - 2) & mask_];
+        const double d =
+            c_[0] * h[(b + 1) & mask_] + c_[1] * h[b & mask_] + c_[2] * h[(b - 1) & mask_] + c_[3] * h[(b - 2) & mask_];
         out[i] = static_cast<float>(static_cast<double>(x) - d);
         pos_ = (pos_ + 1) & mask_;
     }

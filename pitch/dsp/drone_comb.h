@@ -25,17 +25,17 @@ public:
     // Allocates: no. Locks: no.
     void process(std::span<const float> in, std::span<float> out) noexcept;
 
-    void reset() noexcept;                                  // forget the history (zeros)
-    double delay_samples() const noexcept { return delay_; } // D = rate / root_hz
+    void reset() noexcept;                                    // forget the history (zeros)
+    double delay_samples() const noexcept { return delay_; }  // D = rate / root_hz
 
 private:
     DroneCombConfig cfg_;
     double delay_ = 0.0;
-    std::size_t whole_ = 0;           // floor(D)
-    double c_[4] = {};                // Lagrange weights for x[n-whole+1] .. x[n-whole-2]
-    std::vector<float> hist_;         // ring of past inputs, a power of two long
+    std::size_t whole_ = 0;    // floor(D)
+    double c_[4] = {};         // Lagrange weights for x[n-whole+1] .. x[n-whole-2]
+    std::vector<float> hist_;  // ring of past inputs, a power of two long
     std::size_t mask_ = 0;
-    std::size_t pos_ = 0;             // where the next input goes
+    std::size_t pos_ = 0;  // where the next input goes
 };
 
 }  // namespace beatless::pitch

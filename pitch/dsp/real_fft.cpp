@@ -10,7 +10,8 @@
 namespace beatless::pitch {
 
 RealFft::RealFft(std::size_t n) : n_(n) {
-    if (n < 16 || n % 2 != 0 || n > (1u << 26)) throw Error("FFT size " + std::to_string(n) + " is not an even size from 16 to 2^26");
+    if (n < 16 || n % 2 != 0 || n > (1u << 26))
+        throw Error("FFT size " + std::to_string(n) + " is not an even size from 16 to 2^26");
     cfg_ = kiss_fftr_alloc(static_cast<int>(n), 0, nullptr, nullptr);
     if (!cfg_) throw Error("FFT size " + std::to_string(n) + ": out of memory");
 }
@@ -29,9 +30,9 @@ std::size_t RealFft::fast_size(std::size_t n) {
 double window_value(WindowKind kind, std::size_t i, std::size_t n) noexcept {
     const double x = 6.283185307179586476925286766559 * static_cast<double>(i) / static_cast<double>(n);
     switch (kind) {
-    case WindowKind::hann: return 0.5 - 0.5 * std::cos(x);
-    case WindowKind::blackman_harris:
-        return 0.35875 - 0.48829 * std::cos(x) + 0.14128 * std::cos(2 * x) - 0.01168 * std::cos(3 * x);
+        case WindowKind::hann: return 0.5 - 0.5 * std::cos(x);
+        case WindowKind::blackman_harris:
+            return 0.35875 - 0.48829 * std::cos(x) + 0.14128 * std::cos(2 * x) - 0.01168 * std::cos(3 * x);
     }
     return 0.0;
 }

@@ -14,12 +14,11 @@ namespace beatless::pitch {
 
 // Facts about the samples gathered on the measuring pass.
 struct SignalFacts {
-    double peak = 0.0;                   // largest |sample|
-    double loudest_dbfs = -INFINITY;     // RMS of the loudest 4096-sample block
-    std::int64_t clipped_samples = 0;    // |sample| >= 0.999 (full scale)
-    double first_clip_s = -1.0;          // time of the first, -1 when none
+    double peak = 0.0;                 // largest |sample|
+    double loudest_dbfs = -INFINITY;   // RMS of the loudest 4096-sample block
+    std::int64_t clipped_samples = 0;  // |sample| >= 0.999 (full scale)
+    double first_clip_s = -1.0;        // time of the first, -1 when none
 };
-
 
 // Updates the facts with one block starting at sample `first`.
 inline void observe(SignalFacts& f, std::span<const float> block, std::int64_t first, double rate_hz) noexcept {
@@ -29,7 +28,8 @@ inline void observe(SignalFacts& f, std::span<const float> block, std::int64_t f
         ss += a * a;
         f.peak = std::max(f.peak, a);
         if (a >= 0.999) {
-            if (f.clipped_samples == 0) f.first_clip_s = static_cast<double>(first + static_cast<std::int64_t>(i)) / rate_hz;
+            if (f.clipped_samples == 0)
+                f.first_clip_s = static_cast<double>(first + static_cast<std::int64_t>(i)) / rate_hz;
             ++f.clipped_samples;
         }
     }
@@ -48,7 +48,8 @@ public:
         ++head_;
     }
     std::int64_t between(double t0_s, double t1_s, double rate_hz) const noexcept {
-        const auto a = static_cast<std::int64_t>(std::floor(t0_s * rate_hz)), b = static_cast<std::int64_t>(std::ceil(t1_s * rate_hz));
+        const auto a = static_cast<std::int64_t>(std::floor(t0_s * rate_hz)),
+                   b = static_cast<std::int64_t>(std::ceil(t1_s * rate_hz));
         std::int64_t n = 0;
         for (std::size_t i = 0; i < std::min(head_, kLen); ++i)
             if (blocks_[i].end > a && blocks_[i].begin < b) n += blocks_[i].clipped;
@@ -56,7 +57,9 @@ public:
     }
 
 private:
-    struct Block { std::int64_t begin = 0, end = 0, clipped = 0; };
+    struct Block {
+        std::int64_t begin = 0, end = 0, clipped = 0;
+    };
     static constexpr std::size_t kLen = 1024;
     std::array<Block, kLen> blocks_{};
     std::size_t head_ = 0;

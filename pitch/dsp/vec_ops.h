@@ -12,7 +12,7 @@
 
 namespace beatless::pitch::vec {
 
-constexpr std::size_t kLanes = 8;   // pad lengths to multiples of this
+constexpr std::size_t kLanes = 8;  // pad lengths to multiples of this
 
 // sum a[i] * b[i], i < n (any n).
 float dot(const float* a, const float* b, std::size_t n) noexcept;

@@ -1,7 +1,7 @@
 #include "pitch/dsp/vibrato.h"
 
-#include "pitch/dsp/whole_cycles.h"
 #include "pitch/base/error.h"
+#include "pitch/dsp/whole_cycles.h"
 
 #include <algorithm>
 #include <cmath>

@@ -70,7 +70,7 @@ CycleStats find_cycles(const double* t, const double* x, std::size_t n, const Cy
     double run_first = NAN, run_last = NAN;
     int run_cycles = 0;
     double run_min_p = INFINITY, run_max_p = 0.0;
-    double run_swing = 0.0;          // summed peak-to-peak of the run's cycles
+    double run_swing = 0.0;                        // summed peak-to-peak of the run's cycles
     double cyc_lo = INFINITY, cyc_hi = -INFINITY;  // extremes since the last crossing
     for (std::size_t i = 0; i < n; ++i) {
         const double r = resid(i);

@@ -9,22 +9,22 @@
 namespace beatless::pitch {
 
 struct CycleConfig {
-    double min_rate_hz = 3.0;           // slowest cycle accepted
-    double max_rate_hz = 12.0;          // fastest cycle accepted
-    double hysteresis_abs = 1.0;        // least hysteresis h, in the track's units (default 1)
-    double hysteresis_rel = 0.25;       // h at least this fraction of the residual's RMS (default 0.25)
-    double max_period_ratio = 1.5;      // longest period / shortest period allowed (default 1.5)
-    bool detrend = false;               // cross a fitted line instead of the mean (default off)
+    double min_rate_hz = 3.0;       // slowest cycle accepted
+    double max_rate_hz = 12.0;      // fastest cycle accepted
+    double hysteresis_abs = 1.0;    // least hysteresis h, in the track's units (default 1)
+    double hysteresis_rel = 0.25;   // h at least this fraction of the residual's RMS (default 0.25)
+    double max_period_ratio = 1.5;  // longest period / shortest period allowed (default 1.5)
+    bool detrend = false;           // cross a fitted line instead of the mean (default off)
 };
 
 struct CycleStats {
-    bool found = false;        // at least one whole cycle passed the checks
-    int cycles = 0;            // whole cycles between t_first_s and t_last_s
-    double t_first_s = 0.0;    // first accepted upward crossing
-    double t_last_s = 0.0;     // last accepted upward crossing
-    double rate_hz = 0.0;      // cycles / (t_last_s - t_first_s)
-    double mean = 0.0;         // time average of x over [t_first_s, t_last_s] (linear interpolation)
-    double depth = 0.0;        // half the mean peak-to-peak swing of the residual per cycle
+    bool found = false;      // at least one whole cycle passed the checks
+    int cycles = 0;          // whole cycles between t_first_s and t_last_s
+    double t_first_s = 0.0;  // first accepted upward crossing
+    double t_last_s = 0.0;   // last accepted upward crossing
+    double rate_hz = 0.0;    // cycles / (t_last_s - t_first_s)
+    double mean = 0.0;       // time average of x over [t_first_s, t_last_s] (linear interpolation)
+    double depth = 0.0;      // half the mean peak-to-peak swing of the residual per cycle
 };
 
 // Examines samples i in [0, n) of (t[i], x[i]); t must increase. Returns

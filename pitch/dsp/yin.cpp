@@ -16,8 +16,8 @@
 // neighbours), which sets delay_s().
 #include "pitch/dsp/yin.h"
 
-#include "pitch/dsp/decimator.h"
 #include "pitch/base/error.h"
+#include "pitch/dsp/decimator.h"
 #include "pitch/dsp/vec_ops.h"
 #include "pitch/dsp/yin_coarse.h"
 #include "pitch/dsp/yin_refine.h"
@@ -36,10 +36,10 @@ namespace {
 
 using Index = std::int64_t;
 
-constexpr std::size_t kChunk = 4096;            // input processed in pieces of this many samples
-constexpr double kMinDecimatedRate = 5000.0;    // the coarse stage runs at or above this rate
-constexpr double kSamplesPerShortestPeriod = 6.5;   // ... and at least this many samples per period of f_max
-constexpr double kCoarseLagError = 0.3;         // assumed parabola error on the coarse d, decimated samples
+constexpr std::size_t kChunk = 4096;               // input processed in pieces of this many samples
+constexpr double kMinDecimatedRate = 5000.0;       // the coarse stage runs at or above this rate
+constexpr double kSamplesPerShortestPeriod = 6.5;  // ... and at least this many samples per period of f_max
+constexpr double kCoarseLagError = 0.3;            // assumed parabola error on the coarse d, decimated samples
 constexpr Index kFineMargin = LagRefiner::kKernelHalf + LagRefiner::kSearch + 1;
 // One half of the span 40 dB under the other: a note starts or stops inside
 // it (a held tone's level never changes that fast).
@@ -55,8 +55,8 @@ constexpr double kSmallBias = 3.0 / 1200.0 * 0.6931471805599453;
 // neighbours, so the estimates' noise, divided by (k hop)^2, stays far under a
 // vibrato's curvature, while a vibrato at 8 Hz loses under 5 % of it.
 constexpr std::size_t kStencil = 3;
-constexpr double kPowerAlpha = 0.08;   // running mean of the curvature's square, weight of each frame
-constexpr double kNoiseBias = 0.3 / 1200.0 * 0.6931471805599453;   // the curvature's noise, as a bias (0.3 cents)
+constexpr double kPowerAlpha = 0.08;  // running mean of the curvature's square, weight of each frame
+constexpr double kNoiseBias = 0.3 / 1200.0 * 0.6931471805599453;  // the curvature's noise, as a bias (0.3 cents)
 
 std::string num(double v) {
     std::ostringstream s;
@@ -85,18 +85,18 @@ struct YinTracker::Impl {
     double rate = 0.0;
     std::size_t dec_factor = 1;
     double rate_dec = 0.0;
-    std::size_t hop = 0;          // full-rate samples
-    std::size_t block = 0;        // P, decimated samples
+    std::size_t hop = 0;    // full-rate samples
+    std::size_t block = 0;  // P, decimated samples
     std::size_t blocks_per_hop = 1;
     std::size_t blocks_per_window = 1;
     std::size_t window_dec = 0;   // coarse window, decimated samples
     std::size_t max_lag_dec = 0;  // coarse lags 0 .. max_lag_dec
     std::size_t lag_min = 0, lag_max = 0;
-    Index span = 0;               // refinement span, full-rate samples
-    Index c0 = 0;                 // centre of frame 0
-    Index a0 = 0;                 // first decimated sample of frame 0's coarse window
-    Index x_lookahead = 0;        // frame f needs x up to c_f + x_lookahead (exclusive)
-    Index y_lookahead = 0;        // and y up to c_f / D + y_lookahead
+    Index span = 0;         // refinement span, full-rate samples
+    Index c0 = 0;           // centre of frame 0
+    Index a0 = 0;           // first decimated sample of frame 0's coarse window
+    Index x_lookahead = 0;  // frame f needs x up to c_f + x_lookahead (exclusive)
+    Index y_lookahead = 0;  // and y up to c_f / D + y_lookahead
     double delay = 0.0;
 
     Decimator decimator;
@@ -104,15 +104,15 @@ struct YinTracker::Impl {
     LagRefiner fine;
     LagRefiner mid;
 
-    std::vector<float> x;   // full-rate samples [x_off, x_off + x_len)
+    std::vector<float> x;  // full-rate samples [x_off, x_off + x_len)
     Index x_off = 0;
     std::size_t x_len = 0;
-    std::vector<float> y;   // decimated samples [y_off, y_off + y_len)
+    std::vector<float> y;  // decimated samples [y_off, y_off + y_len)
     Index y_off = 0;
     std::size_t y_len = 0;
-    Index m_next = 0;       // next decimated sample to compute
-    Index f_coarse = 0;     // next coarse frame
-    Index f_done = 0;       // next frame to finish
+    Index m_next = 0;    // next decimated sample to compute
+    Index f_coarse = 0;  // next coarse frame
+    Index f_done = 0;    // next frame to finish
 
     std::array<Coarse, 3> ring;
     std::vector<float> r;
@@ -123,8 +123,8 @@ struct YinTracker::Impl {
         PitchFrame p;
         double m2_s2 = 0.0;
     };
-    std::array<Held, 2 * kStencil + 1> held{};   // ring: the frames f - 2 kStencil .. f
-    std::size_t held_count = 0;                  // frames delivered since reset
+    std::array<Held, 2 * kStencil + 1> held{};  // ring: the frames f - 2 kStencil .. f
+    std::size_t held_count = 0;                 // frames delivered since reset
     // Curvature of log f0 (1/s^2) at the last frame emitted (NaN: none) and
     // a running mean of its square.
     struct Curvature {
@@ -177,10 +177,12 @@ struct YinTracker::Impl {
         const double fs_d = c.sample_rate_hz / static_cast<double>(p.dec);
         const auto lag_max = static_cast<std::size_t>(std::ceil(fs_d / c.f_min_hz));
         p.max_lag = lag_max + 1;
-        const std::size_t window = lag_max + 1;   // YIN: window at least the longest period
+        const std::size_t window = lag_max + 1;  // YIN: window at least the longest period
         const double hop_dec = c.hop_s * fs_d;
-        p.per_hop = std::max<std::size_t>(1, static_cast<std::size_t>(std::ceil(hop_dec / static_cast<double>(window))));
-        p.block = std::max<std::size_t>(1, static_cast<std::size_t>(std::lround(hop_dec / static_cast<double>(p.per_hop))));
+        p.per_hop =
+            std::max<std::size_t>(1, static_cast<std::size_t>(std::ceil(hop_dec / static_cast<double>(window))));
+        p.block =
+            std::max<std::size_t>(1, static_cast<std::size_t>(std::lround(hop_dec / static_cast<double>(p.per_hop))));
         p.per_window = (window + p.block - 1) / p.block;
         return p;
     }
@@ -220,15 +222,18 @@ struct YinTracker::Impl {
         x_lookahead = (span + 1) / 2 + static_cast<Index>(LagRefiner::kReach) + 2;
         y_lookahead = (span + 1) / (2 * D) + static_cast<Index>(LagRefiner::kReach) + 3;
         // Frame f is finished when frame f + 1's coarse window is complete.
-        const Index coarse_end_dec = a0 + static_cast<Index>(blocks_per_hop + blocks_per_window + correlator.lookahead_blocks()) *
-                                              static_cast<Index>(block);   // for frame 1, relative to frame 0
+        const Index coarse_end_dec =
+            a0 + static_cast<Index>(blocks_per_hop + blocks_per_window + correlator.lookahead_blocks()) *
+                     static_cast<Index>(block);  // for frame 1, relative to frame 0
         const Index H = static_cast<Index>(decimator.half_len());
-        const Index need = std::max({c0 + x_lookahead, (c0 / D + y_lookahead - 1) * D + H + 1, (coarse_end_dec - 1) * D + H + 1});
+        const Index need =
+            std::max({c0 + x_lookahead, (c0 / D + y_lookahead - 1) * D + H + 1, (coarse_end_dec - 1) * D + H + 1});
         delay = static_cast<double>(need - 1 - c0) / rate;
-        if (cfg.vibrato_correction) delay += static_cast<double>(kStencil * hop) / rate;   // a frame waits for its right neighbour
+        if (cfg.vibrato_correction)
+            delay += static_cast<double>(kStencil * hop) / rate;  // a frame waits for its right neighbour
 
-        const std::size_t keep = static_cast<std::size_t>(2 * span + 4 * static_cast<Index>(hop) + 4 * H +
-                                                          (need - c0) + 4 * region + 1024);
+        const std::size_t keep =
+            static_cast<std::size_t>(2 * span + 4 * static_cast<Index>(hop) + 4 * H + (need - c0) + 4 * region + 1024);
         x.assign(keep + kChunk, 0.0f);
         y.assign(x.size() / dec_factor + 1024, 0.0f);
         for (auto& s : ring) {
@@ -275,7 +280,8 @@ struct YinTracker::Impl {
         const Index keep_x = std::min(centre(f_done) - span / 2 - 2, m_next * D - H);
         if (keep_x > x_off) {
             const auto drop = static_cast<std::size_t>(std::min<Index>(keep_x - x_off, static_cast<Index>(x_len)));
-            std::copy(x.begin() + static_cast<std::ptrdiff_t>(drop), x.begin() + static_cast<std::ptrdiff_t>(x_len), x.begin());
+            std::copy(x.begin() + static_cast<std::ptrdiff_t>(drop), x.begin() + static_cast<std::ptrdiff_t>(x_len),
+                      x.begin());
             x_off += static_cast<Index>(drop);
             x_len -= drop;
         }
@@ -285,7 +291,8 @@ struct YinTracker::Impl {
         const Index keep_y = std::min({block_next, coarse_next, mid_next});
         if (keep_y > y_off) {
             const auto drop = static_cast<std::size_t>(std::min<Index>(keep_y - y_off, static_cast<Index>(y_len)));
-            std::copy(y.begin() + static_cast<std::ptrdiff_t>(drop), y.begin() + static_cast<std::ptrdiff_t>(y_len), y.begin());
+            std::copy(y.begin() + static_cast<std::ptrdiff_t>(drop), y.begin() + static_cast<std::ptrdiff_t>(y_len),
+                      y.begin());
             y_off += static_cast<Index>(drop);
             y_len -= drop;
         }
@@ -317,7 +324,7 @@ struct YinTracker::Impl {
         const Index H = static_cast<Index>(decimator.half_len());
         while (m_next * D + H < x_end()) {
             if (y_len == y.size()) compact();
-            if (y_len == y.size()) return;   // cannot happen with the sizes chosen; never overrun
+            if (y_len == y.size()) return;  // cannot happen with the sizes chosen; never overrun
             y[y_len++] = decimator.at(xp(m_next * D - H));
             ++m_next;
         }
@@ -421,7 +428,8 @@ struct YinTracker::Impl {
         if (best != &cur && std::fabs(best->period_dec - period) > 0.2 * best->period_dec) {
             const auto lo_lag = static_cast<std::size_t>(std::floor(0.8 * best->period_dec));
             const auto hi_lag = static_cast<std::size_t>(std::ceil(1.2 * best->period_dec));
-            const LagChoice pick = absolute_threshold(cur.dn, std::max(lo_lag, lag_min), std::min(hi_lag, lag_max), cfg.threshold);
+            const LagChoice pick =
+                absolute_threshold(cur.dn, std::max(lo_lag, lag_min), std::min(hi_lag, lag_max), cfg.threshold);
             period = parabolic_minimum(cur.d, pick.lag);
             aper = pick.aperiodicity;
         }
@@ -435,12 +443,12 @@ struct YinTracker::Impl {
         // Refinement. (a) Period multiples within the coarse lag range, on the
         // coarse d itself: each step multiplies the lag while the prediction
         // error stays well inside half a period (no jump to a neighbouring multiple).
-        const double Tc = period * static_cast<double>(D);   // full-rate samples
+        const double Tc = period * static_cast<double>(D);  // full-rate samples
         const double usable = static_cast<double>(span - 2 * kFineMargin - 2);
         long K = std::max(1L, std::lround(2.0 * usable / (3.0 * Tc)));
         while (K > 1 && usable - static_cast<double>(K) * Tc < std::max(0.5 * Tc, 32.0)) --K;
-        double t_dec = period;                 // current period estimate, decimated samples
-        double sigma = kCoarseLagError;        // its uncertainty, decimated samples
+        double t_dec = period;           // current period estimate, decimated samples
+        double sigma = kCoarseLagError;  // its uncertainty, decimated samples
         long ks = 1;
         const double cap = static_cast<double>(max_lag_dec - 1);
         for (int step = 0; step < 8 && ks < K; ++step) {
@@ -463,7 +471,8 @@ struct YinTracker::Impl {
                             lag_dec - kFineMargin;
         double kt = kt0;
         if (w_dec >= 16) {
-            const LagRefiner::Result m = mid.refine(yp(s_dec), static_cast<std::size_t>(w_dec), static_cast<std::size_t>(lag_dec));
+            const LagRefiner::Result m =
+                mid.refine(yp(s_dec), static_cast<std::size_t>(w_dec), static_cast<std::size_t>(lag_dec));
             if (m.ok) kt = m.lag * static_cast<double>(D);
         }
         // (c) The same at the full rate.
@@ -479,7 +488,7 @@ struct YinTracker::Impl {
             m2_s2 = kernel_second_moment(static_cast<double>(W), kt) / (rate * rate);
         }
         double T = kt / static_cast<double>(K);
-        if (!(std::fabs(T / Tc - 1.0) < 0.06)) {   // refinement lost the period: keep the coarse one
+        if (!(std::fabs(T / Tc - 1.0) < 0.06)) {  // refinement lost the period: keep the coarse one
             T = Tc;
             m2_s2 = 0.0;
         }
@@ -500,7 +509,9 @@ struct YinTracker::Impl {
     // quadratic, log f0_est = log f0 + m2 / 2 (log f0)'' (kernel-smoothing
     // bias, Wand and Jones 1995, sec. 2.5); the curvature comes from the
     // estimates of frames f - 1, f, f + 1, and is removed from frame f.
-    static double kernel_second_moment(double window, double lag) noexcept { return yin_kernel_second_moment(window, lag); }
+    static double kernel_second_moment(double window, double lag) noexcept {
+        return yin_kernel_second_moment(window, lag);
+    }
 
     void deliver(const PitchFrame& p, double m2_s2) noexcept {
         if (!cfg.vibrato_correction) {
@@ -512,7 +523,7 @@ struct YinTracker::Impl {
         if (j < kStencil) return;
         const std::size_t b = j - kStencil;
         if (b < kStencil) {
-            emit(held[b % held.size()].p);   // the first frames have no left neighbour
+            emit(held[b % held.size()].p);  // the first frames have no left neighbour
             return;
         }
         emit(corrected(held[(b - kStencil) % held.size()], held[b % held.size()], held[j % held.size()], curv));
@@ -534,15 +545,15 @@ struct YinTracker::Impl {
         const double ga = std::log(a.p.f0_hz), gb = std::log(b.p.f0_hz), gc = std::log(c.p.f0_hz);
         const double hab = b.p.t_s - a.p.t_s, hbc = c.p.t_s - b.p.t_s;
         if (!(hab > 0.0 && hbc > 0.0)) return out;
-        const double curvature = 2.0 * ((gc - gb) / hbc - (gb - ga) / hab) / (hab + hbc);   // (log f0)'', 1/s^2
-        const double bias = 0.5 * b.m2_s2 * curvature;                                    // natural-log units
-        if (!(std::fabs(bias) < kMaxVibratoBias)) return out;   // a note change, not a vibrato
+        const double curvature = 2.0 * ((gc - gb) / hbc - (gb - ga) / hab) / (hab + hbc);  // (log f0)'', 1/s^2
+        const double bias = 0.5 * b.m2_s2 * curvature;                                     // natural-log units
+        if (!(std::fabs(bias) < kMaxVibratoBias)) return out;  // a note change, not a vibrato
         cv.last = curvature;
         if (std::isnan(prev)) return out;
-        const double floor = 2.0 * kSmallBias / b.m2_s2;   // curvature change allowed beyond 50 %
+        const double floor = 2.0 * kSmallBias / b.m2_s2;  // curvature change allowed beyond 50 %
         if (!(std::fabs(curvature - prev) <= 0.5 * std::max(std::fabs(curvature), std::fabs(prev)) + floor)) return out;
         cv.power += kPowerAlpha * (curvature * curvature - cv.power);
-        const double noise = kNoiseBias / (0.5 * b.m2_s2);   // that bias as a curvature
+        const double noise = kNoiseBias / (0.5 * b.m2_s2);  // that bias as a curvature
         const double gain = cv.power / (cv.power + noise * noise);
         out.f0_hz = b.p.f0_hz * std::exp(-gain * bias);
         return out;

@@ -13,22 +13,23 @@
 namespace beatless::pitch {
 
 struct YinConfig {
-    double sample_rate_hz = 44100.0;   // 8 000 .. 192 000
-    double f_min_hz = 55.0;            // lowest f0 searched (A1); two periods and a bit must fit in span_s
-    double f_max_hz = 1600.0;          // highest f0 searched, at most sample_rate_hz / 4
-    double hop_s = 0.005;              // time between frames (rounded to a multiple of decimation(); see hop_s())
-    double span_s = 0.050;             // most audio one estimate may depend on (0.01 .. 1 s)
-    double threshold = 0.15;           // YIN absolute threshold on the normalised difference (0 .. 1)
-    double silence_dbfs = -60.0;       // frames quieter than this (RMS) are unvoiced
-    bool vibrato_correction = true;    // remove the span's averaging of a moving f0 (quadratic model; one hop more delay)
+    double sample_rate_hz = 44100.0;  // 8 000 .. 192 000
+    double f_min_hz = 55.0;           // lowest f0 searched (A1); two periods and a bit must fit in span_s
+    double f_max_hz = 1600.0;         // highest f0 searched, at most sample_rate_hz / 4
+    double hop_s = 0.005;             // time between frames (rounded to a multiple of decimation(); see hop_s())
+    double span_s = 0.050;            // most audio one estimate may depend on (0.01 .. 1 s)
+    double threshold = 0.15;          // YIN absolute threshold on the normalised difference (0 .. 1)
+    double silence_dbfs = -60.0;      // frames quieter than this (RMS) are unvoiced
+    bool vibrato_correction = true;  // remove the span's averaging of a moving f0 (quadratic model; one hop more delay)
     std::size_t max_block_len_samples = 1 << 16;  // frames of one push() this long fit the queue
 };
 
 struct PitchFrame {
-    double t_s = 0.0;          // centre of the samples the estimate depends on, from stream start
-    double f0_hz = 0.0;        // 0 when unvoiced
-    double confidence = 0.0;   // 0..1 (1 - normalised difference at the chosen lag)
-    double level_dbfs = -std::numeric_limits<double>::infinity();  // RMS level of the span (dB re full scale), -inf for digital silence
+    double t_s = 0.0;         // centre of the samples the estimate depends on, from stream start
+    double f0_hz = 0.0;       // 0 when unvoiced
+    double confidence = 0.0;  // 0..1 (1 - normalised difference at the chosen lag)
+    double level_dbfs =
+        -std::numeric_limits<double>::infinity();  // RMS level of the span (dB re full scale), -inf for digital silence
     bool voiced() const { return f0_hz > 0.0; }
 };
 
@@ -48,14 +49,14 @@ public:
     // if pull() falls further behind. Allocates: no.
     bool pull(PitchFrame& out) noexcept;
 
-    void reset() noexcept;                   // forget all audio, t restarts at 0
+    void reset() noexcept;  // forget all audio, t restarts at 0
     const YinConfig& config() const noexcept;
-    std::size_t hop_len_samples() const noexcept;   // hop actually used
-    double hop_s() const noexcept;                  // hop_len_samples / rate
-    double delay_s() const noexcept;                // last sample pushed minus t of the frame it completes
-    std::size_t bad_samples() const noexcept;       // non-finite samples seen
-    std::size_t dropped_frames() const noexcept;    // frames lost because pull() fell behind
-    std::size_t decimation() const noexcept;        // factor of the coarse stage's rate reduction
+    std::size_t hop_len_samples() const noexcept;  // hop actually used
+    double hop_s() const noexcept;                 // hop_len_samples / rate
+    double delay_s() const noexcept;               // last sample pushed minus t of the frame it completes
+    std::size_t bad_samples() const noexcept;      // non-finite samples seen
+    std::size_t dropped_frames() const noexcept;   // frames lost because pull() fell behind
+    std::size_t decimation() const noexcept;       // factor of the coarse stage's rate reduction
 
     // The shortest span_s these settings allow (span_s itself is not read):
     // a little over two periods of f_min_hz. Throws Error on invalid settings.

@@ -32,7 +32,8 @@ BlockCorrelator::BlockCorrelator(std::size_t block_len, std::size_t blocks_per_w
     bins_ = fft_len_ / 2 + 1;
     forward_ = kiss_fftr_alloc(static_cast<int>(fft_len_), 0, nullptr, nullptr);
     inverse_ = kiss_fftr_alloc(static_cast<int>(fft_len_), 1, nullptr, nullptr);
-    if (forward_ == nullptr || inverse_ == nullptr) throw Error("YIN: cannot set up an FFT of " + std::to_string(fft_len_) + " points");
+    if (forward_ == nullptr || inverse_ == nullptr)
+        throw Error("YIN: cannot set up an FFT of " + std::to_string(fft_len_) + " points");
     time_.assign(fft_len_, 0.0f);
     spectra_.assign((lookahead_ + 1) * bins_, kiss_fft_cpx{0.0f, 0.0f});
     products_.assign(blocks_ * bins_, kiss_fft_cpx{0.0f, 0.0f});
@@ -70,14 +71,16 @@ void BlockCorrelator::add_block(const float* block) noexcept {
     const kiss_fft_cpx* zi = spectra_.data() + (i % ring) * bins_;
     std::copy(zi, zi + bins_, sum_.begin());
     for (std::size_t m = 1; m < ring; ++m)
-        vec::complex_mac(f(sum_.data()), cf(spectra_.data() + ((i + m) % ring) * bins_), cf(shifts_.data() + m * bins_), bins_);
+        vec::complex_mac(f(sum_.data()), cf(spectra_.data() + ((i + m) % ring) * bins_), cf(shifts_.data() + m * bins_),
+                         bins_);
     vec::conj_mul(f(products_.data() + (i % blocks_) * bins_), cf(zi), cf(sum_.data()), bins_);
 }
 
 void BlockCorrelator::window_correlation(std::span<float> r) noexcept {
     std::fill(sum_.begin(), sum_.end(), kiss_fft_cpx{0.0f, 0.0f});
     for (std::size_t q = 0; q < blocks_; ++q)
-        vec::add(reinterpret_cast<float*>(sum_.data()), reinterpret_cast<const float*>(products_.data() + q * bins_), 2 * bins_);
+        vec::add(reinterpret_cast<float*>(sum_.data()), reinterpret_cast<const float*>(products_.data() + q * bins_),
+                 2 * bins_);
     kiss_fftri(inverse_, sum_.data(), time_.data());
     const float scale = 1.0f / static_cast<float>(fft_len_);
     const std::size_t n = std::min(r.size(), max_lag_ + 1);

@@ -27,7 +27,7 @@ public:
     std::size_t block_len() const noexcept { return block_len_; }
     std::size_t blocks_per_window() const noexcept { return blocks_; }
     std::size_t max_lag() const noexcept { return max_lag_; }
-    std::size_t lookahead_blocks() const noexcept { return lookahead_; }   // R: blocks after a block its lags reach
+    std::size_t lookahead_blocks() const noexcept { return lookahead_; }  // R: blocks after a block its lags reach
     std::size_t fft_len() const noexcept { return fft_len_; }
     std::size_t blocks_added() const noexcept { return added_; }
 
@@ -48,11 +48,11 @@ private:
     std::size_t added_ = 0;
     kiss_fftr_cfg forward_ = nullptr;
     kiss_fftr_cfg inverse_ = nullptr;
-    std::vector<float> time_;               // fft_len_ samples
-    std::vector<kiss_fft_cpx> spectra_;     // (R + 1) block spectra, ring
-    std::vector<kiss_fft_cpx> products_;    // k block lag products, ring
-    std::vector<kiss_fft_cpx> shifts_;      // (R + 1) x bins: e^{-2 pi i b m P / N}
-    std::vector<kiss_fft_cpx> sum_;         // bins
+    std::vector<float> time_;             // fft_len_ samples
+    std::vector<kiss_fft_cpx> spectra_;   // (R + 1) block spectra, ring
+    std::vector<kiss_fft_cpx> products_;  // k block lag products, ring
+    std::vector<kiss_fft_cpx> shifts_;    // (R + 1) x bins: e^{-2 pi i b m P / N}
+    std::vector<kiss_fft_cpx> sum_;       // bins
 };
 
 // Smallest even n >= min_len whose half has no prime factor above 5 (fast for KissFFT).
@@ -70,9 +70,9 @@ void difference_from_correlation(const float* y, std::size_t window, std::size_t
 void cumulative_mean_normalised(std::span<const double> d, std::span<double> dn) noexcept;
 
 struct LagChoice {
-    std::size_t lag = 0;          // integer lag of the chosen dip
-    double aperiodicity = 1.0;    // dn at that lag
-    bool below_threshold = false; // a dip under the threshold was found
+    std::size_t lag = 0;           // integer lag of the chosen dip
+    double aperiodicity = 1.0;     // dn at that lag
+    bool below_threshold = false;  // a dip under the threshold was found
 };
 
 // YIN step 4: the first lag in [lag_min, lag_max] where dn < threshold, then

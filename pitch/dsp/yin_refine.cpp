@@ -53,7 +53,8 @@ struct KernelTables {
             }
             h[static_cast<std::size_t>(i)] = g / s;
             d1[static_cast<std::size_t>(i)] = (g1 * s - g * s1) / (s * s);
-            d2[static_cast<std::size_t>(i)] = g2 / s - 2.0 * g1 * s1 / (s * s) - g * s2 / (s * s) + 2.0 * g * s1 * s1 / (s * s * s);
+            d2[static_cast<std::size_t>(i)] =
+                g2 / s - 2.0 * g1 * s1 / (s * s) - g * s2 / (s * s) + 2.0 * g * s1 * s1 / (s * s * s);
         }
     }
 };

@@ -11,17 +11,18 @@ namespace beatless::pitch {
 
 class LagRefiner {
 public:
-    static constexpr int kKernelHalf = 4;   // M: kernel support +-M lags
-    static constexpr int kSearch = 2;       // S: integer search radius around the prediction
-    static constexpr std::size_t kReach = 2 * (kKernelHalf + kSearch) + 8;   // lags past j0 (+ vector padding) it may read
+    static constexpr int kKernelHalf = 4;  // M: kernel support +-M lags
+    static constexpr int kSearch = 2;      // S: integer search radius around the prediction
+    static constexpr std::size_t kReach =
+        2 * (kKernelHalf + kSearch) + 8;  // lags past j0 (+ vector padding) it may read
 
     // Windows up to max_window samples.
     explicit LagRefiner(std::size_t max_window);
 
     struct Result {
-        double lag = 0.0;          // refined lag, samples
-        double d_min = 0.0;        // interpolated d at the refined lag
-        bool ok = false;           // false: no interior minimum found
+        double lag = 0.0;    // refined lag, samples
+        double d_min = 0.0;  // interpolated d at the refined lag
+        bool ok = false;     // false: no interior minimum found
     };
 
     // x: the window's first sample; lags around j0 >= kKernelHalf + 2 kSearch + ... ;
@@ -34,8 +35,8 @@ private:
 
     std::size_t max_window_;
     std::size_t window_ = 0;
-    std::vector<float> w_;          // biweight, zero padded to a multiple of 8
-    std::vector<double> d_;         // d at the integer lags searched
+    std::vector<float> w_;   // biweight, zero padded to a multiple of 8
+    std::vector<double> d_;  // d at the integer lags searched
 };
 
 }  // namespace beatless::pitch

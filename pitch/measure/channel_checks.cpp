@@ -8,7 +8,8 @@
 namespace beatless::pitch {
 
 ChannelChecks::ChannelChecks(std::size_t channels, const ChannelChecksConfig& config) : cfg_(config), n_(channels) {
-    if (channels < 1 || channels > 64) throw Error("channel checks: " + std::to_string(channels) + " channels (1 to 64)");
+    if (channels < 1 || channels > 64)
+        throw Error("channel checks: " + std::to_string(channels) + " channels (1 to 64)");
     if (!(cfg_.hop_s > 0.0 && cfg_.window_s >= 4.0 * cfg_.hop_s && cfg_.window_s <= 10.0))
         throw Error("channel checks: window must hold at least four frames and at most 10 s");
     if (!(cfg_.silent_s > 0.0)) throw Error("channel checks: silent_s must be positive");
@@ -68,8 +69,10 @@ void ChannelChecks::push(const double* f0_hz, const double* level_dbfs) noexcept
         bool other = false;
         for (std::size_t o = 0; o < n_ && !other; ++o)
             other = o != ch && voiced_at_[o] > 0 && frame_ - voiced_at_[o] < silent_frames_needed_;
-        if (quiet_frames >= silent_frames_needed_ && other) silent_[ch] = 1;
-        else if (quiet_frames == 0) silent_[ch] = 0;  // sound again: released at once
+        if (quiet_frames >= silent_frames_needed_ && other)
+            silent_[ch] = 1;
+        else if (quiet_frames == 0)
+            silent_[ch] = 0;  // sound again: released at once
     }
     if (++since_eval_ >= eval_every_) {
         since_eval_ = 0;
@@ -111,7 +114,8 @@ void ChannelChecks::evaluate() noexcept {
             const double cov = sxy / nb - (sx / nb) * (sy / nb);
             const bool moving = std::sqrt(vx) > cfg_.still_cents || std::sqrt(vy) > cfg_.still_cents;
             const double r = (vx > 0.0 && vy > 0.0) ? cov / std::sqrt(vx * vy) : 0.0;
-            const bool same = overlap >= cfg_.min_overlap && rms <= cfg_.max_rms_cents && (!moving || r >= cfg_.min_correlation);
+            const bool same =
+                overlap >= cfg_.min_overlap && rms <= cfg_.max_rms_cents && (!moving || r >= cfg_.min_correlation);
             if (flag) {
                 if (rms > cfg_.release_rms_cents || overlap < cfg_.release_overlap) flag = 0;
             } else if (same) {

@@ -10,7 +10,8 @@ namespace beatless::pitch {
 
 DecimatedTrace::DecimatedTrace(const DecimatedTraceConfig& config) : cfg_(config), bucket_s_(config.bucket_s) {
     if (!(cfg_.bucket_s > 0.0 && cfg_.bucket_s <= 60.0)) throw Error("decimated trace: bucket_s must be in (0, 60] s");
-    if (cfg_.max_points < 2 || cfg_.max_points % 2 != 0) throw Error("decimated trace: max_points must be even and at least 2");
+    if (cfg_.max_points < 2 || cfg_.max_points % 2 != 0)
+        throw Error("decimated trace: max_points must be even and at least 2");
     pts_.resize(cfg_.max_points);
     for (std::size_t i = 0; i < pts_.size(); ++i) pts_[i].t_s = (static_cast<double>(i) + 0.5) * bucket_s_;
 }
@@ -24,8 +25,12 @@ void DecimatedTrace::merge_pairs() noexcept {
         m.frames = a.frames + b.frames;
         if (m.frames > 0) {
             m.mean_cents = (a.mean_cents * a.frames + b.mean_cents * b.frames) / m.frames;
-            m.min_cents = a.frames == 0 ? b.min_cents : b.frames == 0 ? a.min_cents : std::min(a.min_cents, b.min_cents);
-            m.max_cents = a.frames == 0 ? b.max_cents : b.frames == 0 ? a.max_cents : std::max(a.max_cents, b.max_cents);
+            m.min_cents = a.frames == 0   ? b.min_cents
+                          : b.frames == 0 ? a.min_cents
+                                          : std::min(a.min_cents, b.min_cents);
+            m.max_cents = a.frames == 0   ? b.max_cents
+                          : b.frames == 0 ? a.max_cents
+                                          : std::max(a.max_cents, b.max_cents);
         }
         pts_[i] = m;
     }

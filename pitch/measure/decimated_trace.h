@@ -10,13 +10,13 @@
 namespace beatless::pitch {
 
 struct DecimatedTraceConfig {
-    double bucket_s = 0.01;           // starting bucket length (default 10 ms)
-    std::size_t max_points = 8192;    // buckets kept, even, >= 2 (default 8192)
+    double bucket_s = 0.01;         // starting bucket length (default 10 ms)
+    std::size_t max_points = 8192;  // buckets kept, even, >= 2 (default 8192)
 };
 
 struct TracePoint {
-    double t_s = 0.0;                 // bucket centre
-    int frames = 0;                   // voiced frames in the bucket (0: a gap)
+    double t_s = 0.0;  // bucket centre
+    int frames = 0;    // voiced frames in the bucket (0: a gap)
     double mean_cents = 0.0;
     double min_cents = 0.0;
     double max_cents = 0.0;
@@ -30,7 +30,7 @@ public:
     // decrease; t_s < 0 is ignored. Thread: one at a time. Allocates: no.
     void push(double t_s, double cents, bool voiced) noexcept;
 
-    std::size_t size() const noexcept { return used_; }            // buckets up to the latest frame
+    std::size_t size() const noexcept { return used_; }  // buckets up to the latest frame
     const TracePoint& operator[](std::size_t i) const noexcept { return pts_[i]; }
     double bucket_s() const noexcept { return bucket_s_; }
 

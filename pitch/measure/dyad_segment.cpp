@@ -18,10 +18,10 @@
 // constructor only.
 #include "pitch/measure/dyad_segment.h"
 
-#include "pitch/theory/beats.h"
-#include "pitch/dsp/whole_cycles.h"
 #include "pitch/base/error.h"
 #include "pitch/base/text.h"
+#include "pitch/dsp/whole_cycles.h"
+#include "pitch/theory/beats.h"
 
 #include <algorithm>
 #include <cstring>
@@ -37,7 +37,8 @@ void check(bool ok, const char* what, double v) {
 double cents_of(double hz) { return 1200.0 * std::log2(hz); }
 }  // namespace
 
-DyadSegmenter::DyadSegmenter(const DyadSegmentConfig& config, const TargetSet& targets) : cfg_(config), targets_(targets) {
+DyadSegmenter::DyadSegmenter(const DyadSegmentConfig& config, const TargetSet& targets)
+    : cfg_(config), targets_(targets) {
     if (targets_.targets.empty()) throw Error("dyad segmentation: the target set '" + targets_.id + "' is empty");
     check(cfg_.hop_s >= 1e-4 && cfg_.hop_s <= 0.1, "hop_s", cfg_.hop_s);
     check(cfg_.min_dyad_s >= 0.0 && cfg_.min_dyad_s <= 10.0, "min_dyad_s", cfg_.min_dyad_s);
@@ -94,8 +95,10 @@ bool DyadSegmenter::push(const TwoVoiceFrame& f, DyadResult& out) noexcept {
         return false;
     }
     bool emitted = false;
-    if (n_ > 0 && f.t_s - last_t_ > cfg_.max_gap_s + 0.5 * cfg_.hop_s) emitted = close(n_, false, out);
-    else if (n_ == cap_) emitted = close(n_, true, out);
+    if (n_ > 0 && f.t_s - last_t_ > cfg_.max_gap_s + 0.5 * cfg_.hop_s)
+        emitted = close(n_, false, out);
+    else if (n_ == cap_)
+        emitted = close(n_, true, out);
     add_frame(f);
     if (emitted || n_ < smooth_n_) return emitted;
 
@@ -114,7 +117,8 @@ bool DyadSegmenter::push(const TwoVoiceFrame& f, DyadResult& out) noexcept {
     if (departed(s_lo, anchor_lo_) || departed(s_hi, anchor_hi_)) {
         if (depart_frames_++ == 0) depart_from_ = n_ - 1;
         if (static_cast<double>(depart_frames_) * cfg_.hop_s >= cfg_.change_s) {
-            const std::size_t cut = std::max<std::size_t>(1, depart_from_ > smooth_n_ / 2 ? depart_from_ - smooth_n_ / 2 : 1);
+            const std::size_t cut =
+                std::max<std::size_t>(1, depart_from_ > smooth_n_ / 2 ? depart_from_ - smooth_n_ / 2 : 1);
             return close(cut, false, out);
         }
     } else {
@@ -175,8 +179,8 @@ bool DyadSegmenter::close(std::size_t m, bool truncated, DyadResult& out) noexce
         r.ratio_den = br.den;
         // The pair a listener hears (pitch/theory/beats.h): f_high / f_low = p/q, the p-th
         // partial of the low voice meets the q-th of the high one, or a simpler ratio's pair.
-        const AudiblePair h = audible_pair_of_target(r.f_low_hz, r.f_high_hz, targets_.targets[tm.index].interval, tm.octaves,
-                                                     tm.target_cents, cfg_.audible);
+        const AudiblePair h = audible_pair_of_target(r.f_low_hz, r.f_high_hz, targets_.targets[tm.index].interval,
+                                                     tm.octaves, tm.target_cents, cfg_.audible);
         r.partial_low = h.found ? h.partial_a : -1;
         r.partial_high = h.found ? h.partial_b : -1;
         r.predicted_beat_hz = h.beat_hz;
@@ -190,7 +194,8 @@ bool DyadSegmenter::close(std::size_t m, bool truncated, DyadResult& out) noexce
             if (src == BeatSource::frequency_difference) {
                 std::size_t n = 0;
                 for (std::size_t i = a; i < b; ++i)
-                    if (src_[i] == static_cast<std::uint8_t>(BeatSource::frequency_difference)) scratch_[n++] = beat_[i];
+                    if (src_[i] == static_cast<std::uint8_t>(BeatSource::frequency_difference))
+                        scratch_[n++] = beat_[i];
                 std::nth_element(scratch_.begin(), scratch_.begin() + static_cast<std::ptrdiff_t>(n / 2),
                                  scratch_.begin() + static_cast<std::ptrdiff_t>(n));
                 r.measured_beat_hz = scratch_[n / 2];

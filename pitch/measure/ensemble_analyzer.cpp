@@ -1,9 +1,9 @@
 #include "pitch/measure/ensemble_analyzer.h"
 
-#include "pitch/theory/beats.h"
 #include "pitch/base/error.h"
-#include "pitch/theory/interval.h"
 #include "pitch/base/text.h"
+#include "pitch/theory/beats.h"
+#include "pitch/theory/interval.h"
 
 #include <algorithm>
 #include <cassert>
@@ -41,15 +41,15 @@ void check_players(const Chord& chord, std::span<const Player> players, int chan
         const Player& p = players[i];
         const std::string who = "player " + std::to_string(i + 1) + (p.name.empty() ? "" : " (" + p.name + ")");
         if (p.voice >= chord.size())
-            throw Error(who + ": voice " + std::to_string(p.voice + 1) + " is not in the chord " + chord.terms_text() + " (voices 1 to " +
-                        std::to_string(chord.size()) + ")");
+            throw Error(who + ": voice " + std::to_string(p.voice + 1) + " is not in the chord " + chord.terms_text() +
+                        " (voices 1 to " + std::to_string(chord.size()) + ")");
         if (p.channel < 0 || p.channel >= channels_available)
             throw Error(who + ": channel " + std::to_string(p.channel + 1) + " does not exist (channels 1 to " +
                         std::to_string(channels_available) + ")");
         for (std::size_t j = 0; j < i; ++j)
             if (players[j].channel == p.channel)
-                throw Error(who + ": channel " + std::to_string(p.channel + 1) + " is already player " + std::to_string(j + 1) +
-                            "'s; give each player a channel of their own");
+                throw Error(who + ": channel " + std::to_string(p.channel + 1) + " is already player " +
+                            std::to_string(j + 1) + "'s; give each player a channel of their own");
     }
 }
 
@@ -71,7 +71,10 @@ std::int64_t pow2(int k) { return std::int64_t{1} << std::clamp(k, 0, 20); }
 }  // namespace
 
 EnsembleAnalyzer::EnsembleAnalyzer(const Chord& chord, std::vector<Player> players, const EnsembleConfig& config)
-    : chord_(chord), players_(std::move(players)), cfg_(config), checks_(std::max<std::size_t>(1, players_.size()), checks_for(config)) {
+    : chord_(chord),
+      players_(std::move(players)),
+      cfg_(config),
+      checks_(std::max<std::size_t>(1, players_.size()), checks_for(config)) {
     check_players(chord_, players_, 64);
     ReadingConfig rc = cfg_.reading;
     rc.root_hz = cfg_.root_hz;
@@ -98,9 +101,8 @@ EnsembleAnalyzer::EnsembleAnalyzer(const Chord& chord, std::vector<Player> playe
 
 EnsembleAnalyzer::~EnsembleAnalyzer() = default;
 
-
-
-const EnsembleReading& EnsembleAnalyzer::process(std::span<const PitchFrame> frames, std::int64_t sample_index) noexcept {
+const EnsembleReading& EnsembleAnalyzer::process(std::span<const PitchFrame> frames,
+                                                 std::int64_t sample_index) noexcept {
     assert(frames.size() == players_.size() && "EnsembleAnalyzer::process: one frame per player");
     const std::size_t n = players_.size();
     const double r0 = cfg_.root_hz;
@@ -223,18 +225,22 @@ const EnsembleReading& EnsembleAnalyzer::process(std::span<const PitchFrame> fra
             // simpler nearby pair, else none.
             const bool a_low = num >= den;
             const std::int64_t hi = a_low ? num : den, lo = a_low ? den : num;
-            const double f_lo = r0 * static_cast<double>(a_low ? ra.num : rb.num) / static_cast<double>(a_low ? ra.den : rb.den) *
+            const double f_lo = r0 * static_cast<double>(a_low ? ra.num : rb.num) /
+                                static_cast<double>(a_low ? ra.den : rb.den) *
                                 std::exp2(a_low ? pa.octaves : pq.octaves);
             const double f_hi = f_lo * static_cast<double>(hi) / static_cast<double>(lo);
             AudibleRange range;
             range.partials_a = cfg_.max_beat_partial;
             range.partials_b = cfg_.max_beat_partial;
-            const AudiblePair ap = audible_pair(f_lo, f_hi, 1200.0 * std::log2(static_cast<double>(hi) / static_cast<double>(lo)), Ratio{hi, lo}, range);
+            const AudiblePair ap =
+                audible_pair(f_lo, f_hi, 1200.0 * std::log2(static_cast<double>(hi) / static_cast<double>(lo)),
+                             Ratio{hi, lo}, range);
             if (!ap.found) continue;
             pb.partial_a = static_cast<std::int16_t>(a_low ? ap.partial_a : ap.partial_b);
             pb.partial_b = static_cast<std::int16_t>(a_low ? ap.partial_b : ap.partial_a);
             if (pa.state == PlayerState::sounding && pq.state == PlayerState::sounding)
-                pb.beat_hz = std::fabs(static_cast<double>(pb.partial_a) * pa.centre_f0_hz - static_cast<double>(pb.partial_b) * pq.centre_f0_hz);
+                pb.beat_hz = std::fabs(static_cast<double>(pb.partial_a) * pa.centre_f0_hz -
+                                       static_cast<double>(pb.partial_b) * pq.centre_f0_hz);
         }
     }
     return out_;

@@ -5,11 +5,11 @@
 // Index: 1 Setup types · 2 Readings (plain data) · 3 EnsembleAnalyzer.
 #pragma once
 
+#include "pitch/dsp/yin.h"
 #include "pitch/measure/channel_checks.h"
-#include "pitch/theory/chord.h"
 #include "pitch/measure/reading.h"
 #include "pitch/measure/reading_maker.h"
-#include "pitch/dsp/yin.h"
+#include "pitch/theory/chord.h"
 
 #include <array>
 #include <cmath>
@@ -36,9 +36,9 @@ std::string_view reference_key(ChordReference r);
 ChordReference parse_reference(std::string_view key);  // throws Error naming the text
 
 struct Player {
-    std::string name;          // "Soprano", shown on the lane
-    std::size_t voice = 0;     // chord voice, 0 = lowest
-    int channel = 0;           // input channel, 0-based
+    std::string name;       // "Soprano", shown on the lane
+    std::size_t voice = 0;  // chord voice, 0 = lowest
+    int channel = 0;        // input channel, 0-based
 };
 
 // Pair (a, b), a < b < players, in the order (0,1), (0,2) .. (1,2) ...
@@ -47,14 +47,15 @@ constexpr std::size_t player_pair_index(std::size_t a, std::size_t b, std::size_
 }
 
 struct EnsembleConfig {
-    double root_hz = 130.8128;        // the chord root, the drone's fundamental (default C3)
-    double a4_hz = 440.0;             // 12-TET reference (default ISO 16)
-    double hop_s = 0.005;             // tracker hop (default 5 ms)
-    double off_voice_cents = 80.0;    // further than this from the group's median deviation: another note (default 80 cents)
-    double near_voice_cents = 40.0;   // an off-voice centre this close to another voice names it (default 40 cents)
-    int max_beat_partial = 16;        // pairs whose meeting partials lie higher get no beat rate (default 16)
-    ReadingConfig reading;            // per player (root and a4 are set from the fields above)
-    ChannelChecksConfig checks;       // silent channels, two channels with one voice
+    double root_hz = 130.8128;  // the chord root, the drone's fundamental (default C3)
+    double a4_hz = 440.0;       // 12-TET reference (default ISO 16)
+    double hop_s = 0.005;       // tracker hop (default 5 ms)
+    double off_voice_cents =
+        80.0;  // further than this from the group's median deviation: another note (default 80 cents)
+    double near_voice_cents = 40.0;  // an off-voice centre this close to another voice names it (default 40 cents)
+    int max_beat_partial = 16;       // pairs whose meeting partials lie higher get no beat rate (default 16)
+    ReadingConfig reading;           // per player (root and a4 are set from the fields above)
+    ChannelChecksConfig checks;      // silent channels, two channels with one voice
 };
 
 // Checks a setup: 1..kMaxPlayers players, voices inside the chord, channels
@@ -66,40 +67,40 @@ void check_players(const Chord& chord, std::span<const Player> players, int chan
 // ---------------------------------------------------------------------------
 
 enum class PlayerState : std::uint8_t {
-    sounding,     // voiced, counted in the references
-    resting,      // no pitch now (the channel has sound or the whole group rests)
-    silent,       // the channel has been silent while others sound: a microphone problem
-    copy,         // the channel carries another player's voice (copy_of says whose)
-    off_voice,    // voiced, but another note than this player's voice
+    sounding,   // voiced, counted in the references
+    resting,    // no pitch now (the channel has sound or the whole group rests)
+    silent,     // the channel has been silent while others sound: a microphone problem
+    copy,       // the channel carries another player's voice (copy_of says whose)
+    off_voice,  // voiced, but another note than this player's voice
 };
 
 struct PlayerReading {
-    double f0_hz = 0.0;              // instantaneous, 0 when unvoiced
-    double centre_f0_hz = NAN;       // vibrato centre
+    double f0_hz = 0.0;         // instantaneous, 0 when unvoiced
+    double centre_f0_hz = NAN;  // vibrato centre
     double confidence = 0.0;
     double level_dbfs = -INFINITY;
-    double target_cents = NAN;       // the voice above the root, in the player's octave
-    int octaves = 0;                 // the player's octave shift of the chord voice
-    double dev_cents = NAN;          // instantaneous, against the fixed root (+ sharp)
-    double centre_dev_cents = NAN;   // vibrato centre, against the fixed root
+    double target_cents = NAN;      // the voice above the root, in the player's octave
+    int octaves = 0;                // the player's octave shift of the chord voice
+    double dev_cents = NAN;         // instantaneous, against the fixed root (+ sharp)
+    double centre_dev_cents = NAN;  // vibrato centre, against the fixed root
     double steadiness_cents = NAN;
     PlayerState state = PlayerState::resting;
-    int copy_of = -1;                // the player whose voice this channel carries
-    int near_voice = -1;             // off_voice: the chord voice (0 = lowest) the centre sits near, octave-equivalent; -1 none
+    int copy_of = -1;     // the player whose voice this channel carries
+    int near_voice = -1;  // off_voice: the chord voice (0 = lowest) the centre sits near, octave-equivalent; -1 none
     bool clipped = false;
 };
 
 struct PairBeat {
-    std::int16_t partial_a = -1;     // harmonic of player a that meets ...
-    std::int16_t partial_b = -1;     // ... this harmonic of player b (when just)
-    double beat_hz = NAN;            // |partial_a f_a - partial_b f_b| at the centres; NaN unless both sound
+    std::int16_t partial_a = -1;  // harmonic of player a that meets ...
+    std::int16_t partial_b = -1;  // ... this harmonic of player b (when just)
+    double beat_hz = NAN;         // |partial_a f_a - partial_b f_b| at the centres; NaN unless both sound
 };
 
 struct EnsembleReading {
-    double t_s = 0.0;                              // stream time of the frames' centre
-    std::int64_t sample_index = 0;                 // input sample at t_s
+    double t_s = 0.0;               // stream time of the frames' centre
+    std::int64_t sample_index = 0;  // input sample at t_s
     int players = 0;
-    std::array<double, kReferenceCount> root_hz{}; // per reference (reference_index); NaN when it cannot be formed
+    std::array<double, kReferenceCount> root_hz{};  // per reference (reference_index); NaN when it cannot be formed
     std::array<PlayerReading, kMaxPlayers> p{};
     std::array<PairBeat, kMaxPlayerPairs> pairs{};
 
@@ -138,17 +139,19 @@ public:
     const Chord& chord() const noexcept { return chord_; }
     const std::vector<Player>& players() const noexcept { return players_; }
     const EnsembleConfig& config() const noexcept { return cfg_; }
-    const Ratio& player_ratio(std::size_t player) const { return ratio_.at(player); }  // the voice above the root (chord octave)
+    const Ratio& player_ratio(std::size_t player) const {
+        return ratio_.at(player);
+    }  // the voice above the root (chord octave)
 
 private:
     Chord chord_;
     std::vector<Player> players_;
     EnsembleConfig cfg_;
     std::vector<std::unique_ptr<ReadingMaker>> makers_;
-    std::vector<Ratio> ratio_;                 // per player: the voice's ratio
+    std::vector<Ratio> ratio_;  // per player: the voice's ratio
     ChannelChecks checks_;
     std::vector<double> f0_, level_, voice_f_, voice_w_, voice_logsum_;
-    std::vector<double> voice_cents_;          // per chord voice: cents above the root
+    std::vector<double> voice_cents_;  // per chord voice: cents above the root
     EnsembleReading out_;
 };
 

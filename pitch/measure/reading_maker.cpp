@@ -1,7 +1,7 @@
 #include "pitch/measure/reading_maker.h"
 
-#include "pitch/theory/beats.h"
 #include "pitch/base/error.h"
+#include "pitch/theory/beats.h"
 #include "pitch/theory/notes.h"
 
 #include <algorithm>
@@ -67,7 +67,8 @@ Reading ReadingMaker::make(const PitchFrame& f, std::int64_t sample_index) noexc
         far_frames_ = 0;
         ++notes_;
     } else if (before.ready) {
-        const double allowed = cfg_.new_note_cents + (before.vibrato ? 1.2 * before.depth_cents : 3.0 * before.spread_cents);
+        const double allowed =
+            cfg_.new_note_cents + (before.vibrato ? 1.2 * before.depth_cents : 3.0 * before.spread_cents);
         far_frames_ = std::fabs(cents - before.centre_cents) > std::min(allowed, cfg_.jump_cents) ? far_frames_ + 1 : 0;
         if (far_frames_ >= cfg_.new_note_frames) {
             vibrato_.reset();

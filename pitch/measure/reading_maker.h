@@ -4,11 +4,11 @@
 // Thread: the analysis thread (make()). Allocates: in the constructor only. Locks: no.
 #pragma once
 
-#include "pitch/theory/beats.h"
-#include "pitch/measure/reading.h"
-#include "pitch/theory/targets.h"
 #include "pitch/dsp/vibrato.h"
 #include "pitch/dsp/yin.h"
+#include "pitch/measure/reading.h"
+#include "pitch/theory/beats.h"
+#include "pitch/theory/targets.h"
 
 #include <cstdint>
 #include <vector>
@@ -16,14 +16,14 @@
 namespace beatless::pitch {
 
 struct ReadingConfig {
-    double root_hz = 110.0;           // the drone's fundamental (default A2)
-    double a4_hz = 440.0;             // 12-TET reference (default ISO 16: 440 Hz)
-    bool octave_equivalent = true;    // 7/5 also matches 14/5, 7/10 ... (default on)
-    double jump_cents = 60.0;         // frame-to-frame jump that starts a new note (default 60 cents)
-    double new_note_cents = 15.0;     // held this far beyond the vibrato's swing from the centre ... (default 15 cents)
-    int new_note_frames = 4;          // ... for this many frames, a new note starts (default 4)
-    VibratoConfig vibrato;            // whole-cycle centre and steadiness settings
-    AudibleRange audible;             // which partials can be heard beating (set partials_a from the drone's timbre)
+    double root_hz = 110.0;         // the drone's fundamental (default A2)
+    double a4_hz = 440.0;           // 12-TET reference (default ISO 16: 440 Hz)
+    bool octave_equivalent = true;  // 7/5 also matches 14/5, 7/10 ... (default on)
+    double jump_cents = 60.0;       // frame-to-frame jump that starts a new note (default 60 cents)
+    double new_note_cents = 15.0;   // held this far beyond the vibrato's swing from the centre ... (default 15 cents)
+    int new_note_frames = 4;        // ... for this many frames, a new note starts (default 4)
+    VibratoConfig vibrato;          // whole-cycle centre and steadiness settings
+    AudibleRange audible;           // which partials can be heard beating (set partials_a from the drone's timbre)
 };
 
 class ReadingMaker {
@@ -44,7 +44,7 @@ public:
 private:
     struct BeatRatio {
         std::int64_t p = 1, q = 1;  // coinciding partials of the unshifted target: root p, voice q
-        bool exact = true;            // the target is a ratio (false: a cents target beating like p/q)
+        bool exact = true;          // the target is a ratio (false: a cents target beating like p/q)
     };
     ReadingConfig cfg_;
     TargetSet set_;

@@ -36,11 +36,11 @@ namespace beatless::pitch {
 
 namespace {
 constexpr double kTwoPi = 6.283185307179586476925286766559;
-constexpr double kGridCents = 3.0;        // salience grid step
-constexpr double kPeakOverFloor = 31.6;   // 15 dB over the median power: a clear peak
+constexpr double kGridCents = 3.0;       // salience grid step
+constexpr double kPeakOverFloor = 31.6;  // 15 dB over the median power: a clear peak
 constexpr double kTwinBin = 0.794;       // 1 dB: a lower neighbour this strong takes the peak
-constexpr double kKeepOverFloor = 10.0;   // 10 dB over the averaged median: a usable harmonic
-constexpr double kAgreeCents = 0.5;       // harmonics of one steady tone agree within this
+constexpr double kKeepOverFloor = 10.0;  // 10 dB over the averaged median: a usable harmonic
+constexpr double kAgreeCents = 0.5;      // harmonics of one steady tone agree within this
 // Vibrato sidebands: a voice with a regular vibrato has a steady carrier at
 // its centre (the J0 term of frequency modulation), which can look like a
 // drone; but its partials also carry sidebands at the vibrato rate and its
@@ -72,7 +72,8 @@ RootDetector::RootDetector(const RootDetectConfig& config) : cfg_(config) {
     while (n_ % hops != 0) n_ = RealFft::fast_size(n_ + 1);  // a whole number of samples per hop
     hop_ = n_ / hops;
     bin_hz_ = cfg_.sample_rate_hz / static_cast<double>(n_);
-    kmax_ = std::min(n_ / 2 - 2, static_cast<std::size_t>(std::min(cfg_.max_freq_hz, 0.45 * cfg_.sample_rate_hz) / bin_hz_));
+    kmax_ = std::min(n_ / 2 - 2,
+                     static_cast<std::size_t>(std::min(cfg_.max_freq_hz, 0.45 * cfg_.sample_rate_hz) / bin_hz_));
     check(bin_hz_ < 0.25 * cfg_.f_min_hz, "f_min_hz for this frame length", cfg_.f_min_hz);
 
     fft_ = std::make_unique<RealFft>(n_);
@@ -208,20 +209,23 @@ RootEstimate RootDetector::refine(double f0_guess, bool tight) noexcept {
         double fk = 0.0, coh = 0.0;
         if (std::abs(cs) > 0.0 && mag > 0.0) {
             // Phase advance over one hop, unwrapped around the bin centre.
-            const double expected = kTwoPi * static_cast<double>(k) * static_cast<double>(hop_) / static_cast<double>(n_);
+            const double expected =
+                kTwoPi * static_cast<double>(k) * static_cast<double>(hop_) / static_cast<double>(n_);
             const double d = std::remainder(std::arg(cs) - expected, kTwoPi);
-            fk = (static_cast<double>(k) + d * static_cast<double>(n_) / (kTwoPi * static_cast<double>(hop_))) * bin_hz_;
+            fk =
+                (static_cast<double>(k) + d * static_cast<double>(n_) / (kTwoPi * static_cast<double>(hop_))) * bin_hz_;
             coh = std::abs(cs) / mag;
         } else {
             // One frame only: parabolic interpolation of the log power.
-            const double a = std::log(power_[k - 1] + 1e-300), b = std::log(power_[k]), g = std::log(power_[k + 1] + 1e-300);
+            const double a = std::log(power_[k - 1] + 1e-300), b = std::log(power_[k]),
+                         g = std::log(power_[k + 1] + 1e-300);
             const double den = a - 2.0 * b + g;
             const double off = den < 0.0 ? 0.5 * (a - g) / den : 0.0;
             fk = (static_cast<double>(k) + off) * bin_hz_;
             coh = 0.0;
         }
-        const double pres = static_cast<double>(std::max({peaks_[k - 1], peaks_[k], peaks_[k + 1]})) /
-                            static_cast<double>(frames_);
+        const double pres =
+            static_cast<double>(std::max({peaks_[k - 1], peaks_[k], peaks_[k + 1]})) / static_cast<double>(frames_);
         // Purity: 1 for a partial without vibrato sidebands, towards 0 with them.
         double side = 0.0;
         const double main_power = power_[k - 1] + power_[k] + power_[k + 1];
@@ -335,7 +339,8 @@ RootEstimate RootDetector::estimate() noexcept {
         for (std::size_t j = i > reach ? i - reach : 0; peak && j <= std::min(cand_s_.size() - 1, i + reach); ++j)
             peak = j == i || (j < i ? cand_s_[j] < cand_s_[i] : cand_s_[j] <= cand_s_[i]);
         if (!peak) continue;
-        if (ntop < kTop) top[ntop++] = i;
+        if (ntop < kTop)
+            top[ntop++] = i;
         else {
             std::size_t weakest = 0;
             for (std::size_t j = 1; j < kTop; ++j)

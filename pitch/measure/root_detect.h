@@ -31,20 +31,20 @@ struct RootDetectConfig {
 };
 
 enum class RootStatus {
-    found,            // a steady root, confidence >= min_confidence
-    no_steady_root,   // sound, but nothing steady enough (root_hz is the best candidate)
-    no_sound,         // no frame above silence_dbfs
+    found,           // a steady root, confidence >= min_confidence
+    no_steady_root,  // sound, but nothing steady enough (root_hz is the best candidate)
+    no_sound,        // no frame above silence_dbfs
 };
 
 struct RootEstimate {
     RootStatus status = RootStatus::no_sound;
-    double root_hz = 0.0;            // 0 when no_sound
-    double confidence = 0.0;         // presence * coherence, 0..1
-    double presence = 0.0;           // 0..1
-    double coherence = 0.0;          // 0..1
-    int harmonics_used = 0;          // partials that agreed on the root
-    double spread_cents = 0.0;       // weighted spread of the harmonics' f_h / h around the root
-    double sounding_s = 0.0;         // time analyzed above silence
+    double root_hz = 0.0;       // 0 when no_sound
+    double confidence = 0.0;    // presence * coherence, 0..1
+    double presence = 0.0;      // 0..1
+    double coherence = 0.0;     // 0..1
+    int harmonics_used = 0;     // partials that agreed on the root
+    double spread_cents = 0.0;  // weighted spread of the harmonics' f_h / h around the root
+    double sounding_s = 0.0;    // time analyzed above silence
     bool found() const { return status == RootStatus::found; }
 };
 
@@ -72,30 +72,33 @@ private:
     RootEstimate refine(double f0_guess, bool tight) noexcept;
 
     RootDetectConfig cfg_;
-    std::size_t n_ = 0;               // frame length
-    std::size_t hop_ = 0;             // n_ / hops_per_frame
-    std::size_t kmax_ = 0;            // highest bin used
+    std::size_t n_ = 0;     // frame length
+    std::size_t hop_ = 0;   // n_ / hops_per_frame
+    std::size_t kmax_ = 0;  // highest bin used
     double bin_hz_ = 0.0;
     std::unique_ptr<RealFft> fft_;
     std::vector<float> window_;
-    std::vector<float> buf_;          // pending samples, n_ long
+    std::vector<float> buf_;  // pending samples, n_ long
     std::size_t fill_ = 0;
-    std::vector<float> in_;           // windowed frame
+    std::vector<float> in_;  // windowed frame
     std::vector<std::complex<float>> spec_, prev_;
     bool prev_valid_ = false;
-    std::vector<double> power_;       // summed |X|^2 per bin
+    std::vector<double> power_;                // summed |X|^2 per bin
     std::vector<std::complex<double>> cross_;  // summed X_i conj(X_{i-1})
-    std::vector<double> cross_mag_;   // summed |X_i| |X_{i-1}|
-    std::vector<std::uint32_t> peaks_;// frames in which the bin was a clear peak
-    std::vector<double> steady_;      // |summed cross spectrum| per bin, set by estimate()
-    std::vector<double> scratch_;     // median work
-    std::vector<double> cand_s_;      // salience per candidate (log grid)
-    struct Part { double f0_hz, weight, power, presence, coherence, purity; int harmonic; };
-    std::vector<Part> parts_;         // per harmonic, during refine()
-    std::size_t frames_ = 0;          // frames above silence
+    std::vector<double> cross_mag_;            // summed |X_i| |X_{i-1}|
+    std::vector<std::uint32_t> peaks_;         // frames in which the bin was a clear peak
+    std::vector<double> steady_;               // |summed cross spectrum| per bin, set by estimate()
+    std::vector<double> scratch_;              // median work
+    std::vector<double> cand_s_;               // salience per candidate (log grid)
+    struct Part {
+        double f0_hz, weight, power, presence, coherence, purity;
+        int harmonic;
+    };
+    std::vector<Part> parts_;  // per harmonic, during refine()
+    std::size_t frames_ = 0;   // frames above silence
     std::size_t bad_ = 0;
-    std::size_t total_ = 0;           // samples pushed
-    bool padded_ = false;             // a short input was analyzed zero-padded
+    std::size_t total_ = 0;  // samples pushed
+    bool padded_ = false;    // a short input was analyzed zero-padded
 };
 
 }  // namespace beatless::pitch

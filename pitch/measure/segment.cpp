@@ -23,10 +23,10 @@
 
 #include "pitch/measure/segment.h"
 
-#include "pitch/theory/beats.h"
-#include "pitch/dsp/whole_cycles.h"
 #include "pitch/base/error.h"
 #include "pitch/base/text.h"
+#include "pitch/dsp/whole_cycles.h"
+#include "pitch/theory/beats.h"
 
 #include <algorithm>
 #include <cmath>
@@ -48,8 +48,9 @@ VibratoConfig vibrato_of(const SegmentConfig& c) {
 }  // namespace
 
 NoteSegmenter::NoteSegmenter(const SegmentConfig& config, const TargetSet& targets)
-    : cfg_(config), targets_(targets), vib_((check(config.hop_s >= 1e-4 && config.hop_s <= 0.1, "hop_s", config.hop_s),
-                                             vibrato_of(config))) {
+    : cfg_(config),
+      targets_(targets),
+      vib_((check(config.hop_s >= 1e-4 && config.hop_s <= 0.1, "hop_s", config.hop_s), vibrato_of(config))) {
     check(std::isfinite(cfg_.root_hz) && cfg_.root_hz >= 1.0 && cfg_.root_hz <= 20000.0, "root (Hz)", cfg_.root_hz);
     if (targets_.targets.empty()) throw Error("note segmentation: the target set '" + targets_.id + "' is empty");
     check(cfg_.min_note_s >= 0.0 && cfg_.min_note_s <= 10.0, "min_note_s", cfg_.min_note_s);
@@ -110,8 +111,10 @@ bool NoteSegmenter::push(const PitchFrame& frame, NoteResult& out) noexcept {
         return false;
     }
     bool emitted = false;
-    if (n_ > 0 && frame.t_s - last_voiced_t_ > cfg_.max_gap_s + 0.5 * cfg_.hop_s) emitted = close(n_, false, out);
-    else if (n_ == cap_) emitted = close(n_, true, out);
+    if (n_ > 0 && frame.t_s - last_voiced_t_ > cfg_.max_gap_s + 0.5 * cfg_.hop_s)
+        emitted = close(n_, false, out);
+    else if (n_ == cap_)
+        emitted = close(n_, true, out);
     add_frame(frame.t_s, cents);
     if (emitted || n_ < 2 * smooth_n_) return emitted;
 
@@ -123,7 +126,8 @@ bool NoteSegmenter::push(const PitchFrame& frame, NoteResult& out) noexcept {
     }
     if (std::fabs(smooth - anchor_) > cfg_.change_cents) {
         if (depart_frames_++ == 0) depart_from_ = n_ - 1;
-        if (static_cast<double>(depart_frames_) * cfg_.hop_s >= cfg_.change_s) return close(split_point(smooth), false, out);
+        if (static_cast<double>(depart_frames_) * cfg_.hop_s >= cfg_.change_s)
+            return close(split_point(smooth), false, out);
     } else {
         depart_frames_ = 0;
         anchor_ = centre_[n_ - 1];
@@ -171,9 +175,11 @@ bool NoteSegmenter::close(std::size_t m, bool truncated, NoteResult& out) noexce
 
         // Provisional centre: median of the centre readings over the second half.
         const std::size_t h0 = me / 2;
-        std::copy(centre_.begin() + static_cast<std::ptrdiff_t>(h0), centre_.begin() + static_cast<std::ptrdiff_t>(me), scratch_.begin());
+        std::copy(centre_.begin() + static_cast<std::ptrdiff_t>(h0), centre_.begin() + static_cast<std::ptrdiff_t>(me),
+                  scratch_.begin());
         const std::size_t nh = me - h0;
-        std::nth_element(scratch_.begin(), scratch_.begin() + static_cast<std::ptrdiff_t>(nh / 2), scratch_.begin() + static_cast<std::ptrdiff_t>(nh));
+        std::nth_element(scratch_.begin(), scratch_.begin() + static_cast<std::ptrdiff_t>(nh / 2),
+                         scratch_.begin() + static_cast<std::ptrdiff_t>(nh));
         const double c0 = scratch_[nh / 2];
 
         // Settled: the last run of centre readings within the band.
@@ -220,7 +226,8 @@ bool NoteSegmenter::close(std::size_t m, bool truncated, NoteResult& out) noexce
             r.own_partial_root = static_cast<int>(std::min<std::int64_t>(own.num, 1 << 30));
             r.own_partial_voice = static_cast<int>(std::min<std::int64_t>(own.den, 1 << 30));
         }
-        const AudiblePair heard = audible_pair_of_target(cfg_.root_hz, r.centre_f0_hz, iv, tm.octaves, tm.target_cents, cfg_.audible);
+        const AudiblePair heard =
+            audible_pair_of_target(cfg_.root_hz, r.centre_f0_hz, iv, tm.octaves, tm.target_cents, cfg_.audible);
         if (heard.found) {
             r.partial_root = heard.partial_a;
             r.partial_voice = heard.partial_b;

@@ -5,10 +5,10 @@
 // Thread: one at a time. Allocates: in the constructor only; memory is bounded by max_note_s.
 #pragma once
 
-#include "pitch/theory/beats.h"
-#include "pitch/theory/targets.h"
 #include "pitch/dsp/vibrato.h"
 #include "pitch/dsp/yin.h"
+#include "pitch/theory/beats.h"
+#include "pitch/theory/targets.h"
 
 #include <cmath>
 #include <cstddef>
@@ -18,23 +18,23 @@
 namespace beatless::pitch {
 
 struct SegmentConfig {
-    double root_hz = 0.0;              // the drone's fundamental (required, > 0)
-    AudibleRange audible;              // which partials can be heard beating (pitch/theory/beats.h)
-    double hop_s = 0.005;              // tracker hop, for sizing (default 5 ms)
-    double min_confidence = 0.5;       // weaker frames count as silence (default 0.5)
-    double min_note_s = 0.15;          // shorter notes are dropped (default 150 ms)
-    double max_gap_s = 0.04;           // silences up to this are bridged (default 40 ms)
-    double change_cents = 40.0;        // legato split threshold (default 40 cents)
-    double change_s = 0.08;            // ... held this long (default 80 ms)
-    double smooth_s = 0.2;             // trailing mean for the split test (default 200 ms)
-    double settle_cents = 5.0;         // settle band around the centre (default 5 cents)
-    double release_trim_s = 0.025;     // last frames of a note left out of its measurement: the
-                                       //   tracker's span already hears the release (default 25 ms,
-                                       //   half of YinConfig::span_s); start_s/end_s keep them
-    bool skip_drone = true;            // frames at the root's pitch class are the drone (default on)
-    double drone_tol_cents = 3.0;      // ... within this many cents (default 3)
-    double max_note_s = 30.0;          // memory cap per note (default 30 s)
-    bool octave_equivalent = true;     // targets match in every octave (default on)
+    double root_hz = 0.0;                      // the drone's fundamental (required, > 0)
+    AudibleRange audible;                      // which partials can be heard beating (pitch/theory/beats.h)
+    double hop_s = 0.005;                      // tracker hop, for sizing (default 5 ms)
+    double min_confidence = 0.5;               // weaker frames count as silence (default 0.5)
+    double min_note_s = 0.15;                  // shorter notes are dropped (default 150 ms)
+    double max_gap_s = 0.04;                   // silences up to this are bridged (default 40 ms)
+    double change_cents = 40.0;                // legato split threshold (default 40 cents)
+    double change_s = 0.08;                    // ... held this long (default 80 ms)
+    double smooth_s = 0.2;                     // trailing mean for the split test (default 200 ms)
+    double settle_cents = 5.0;                 // settle band around the centre (default 5 cents)
+    double release_trim_s = 0.025;             // last frames of a note left out of its measurement: the
+                                               //   tracker's span already hears the release (default 25 ms,
+                                               //   half of YinConfig::span_s); start_s/end_s keep them
+    bool skip_drone = true;                    // frames at the root's pitch class are the drone (default on)
+    double drone_tol_cents = 3.0;              // ... within this many cents (default 3)
+    double max_note_s = 30.0;                  // memory cap per note (default 30 s)
+    bool octave_equivalent = true;             // targets match in every octave (default on)
     VibratoConfig vibrato{.fallback_s = 0.1};  // centre estimator (hop_s, max_gap_s taken from above;
                                                //   a short plain-mean window so settling shows)
 };
@@ -59,13 +59,13 @@ struct NoteResult {
     // The audible pair (pitch/theory/beats.h, audible_pair) for the target and the
     // drone's partials: root partial p meets voice partial q; -1 / NaN when
     // no present partials coincide near the target.
-    int partial_root = -1;             // p: harmonic of the root ...
-    int partial_voice = -1;            // ... coinciding with the voice's q-th harmonic
-    double beat_hz = NAN;              // |q f - p root| at the centre
-    double beat_in_tune_hz = NAN;      // the same pair's rate with the voice exactly on target (0 for the own pair)
-    int own_partial_root = -1;         // detail: the target's own coinciding pair (729, 512 for 729/512) ...
-    int own_partial_voice = -1;        // ... -1 for a cents target
-    bool truncated = false;            // closed at max_note_s
+    int partial_root = -1;         // p: harmonic of the root ...
+    int partial_voice = -1;        // ... coinciding with the voice's q-th harmonic
+    double beat_hz = NAN;          // |q f - p root| at the centre
+    double beat_in_tune_hz = NAN;  // the same pair's rate with the voice exactly on target (0 for the own pair)
+    int own_partial_root = -1;     // detail: the target's own coinciding pair (729, 512 for 729/512) ...
+    int own_partial_voice = -1;    // ... -1 for a cents target
+    bool truncated = false;        // closed at max_note_s
 };
 
 class NoteSegmenter {
@@ -84,7 +84,7 @@ public:
     const SegmentConfig& config() const noexcept { return cfg_; }
 
 private:
-    void start_with(std::size_t from) noexcept;   // keep frames [from, n_) as the new note
+    void start_with(std::size_t from) noexcept;  // keep frames [from, n_) as the new note
     bool close(std::size_t m, bool truncated, NoteResult& out) noexcept;
     std::size_t split_point(double after) const noexcept;
     void add_frame(double t_s, double cents) noexcept;
@@ -93,14 +93,14 @@ private:
     TargetSet targets_;
     VibratoCentre vib_;
     std::size_t cap_ = 0;
-    std::size_t n_ = 0;                    // frames in the open note
+    std::size_t n_ = 0;  // frames in the open note
     std::vector<double> t_, c_, centre_, win_start_, scratch_;
     double last_voiced_t_ = -1e300;
     std::size_t smooth_n_ = 1;
-    std::size_t trim_n_ = 0;               // release_trim_s in frames
+    std::size_t trim_n_ = 0;  // release_trim_s in frames
     double smooth_sum_ = 0.0;
-    double anchor_ = NAN;                  // centre the split test compares with
-    std::size_t depart_from_ = 0;          // first frame of a departure
+    double anchor_ = NAN;          // centre the split test compares with
+    std::size_t depart_from_ = 0;  // first frame of a departure
     std::size_t depart_frames_ = 0;
     std::size_t dropped_short_ = 0;
     std::size_t drone_frames_ = 0;
@@ -109,20 +109,23 @@ private:
 // Per-target summary of the notes: "10/7 averages 6 cents flat".
 struct TargetSummary {
     int target_index = -1;
-    int count = 0;                     // notes matched to the target
-    double mean_dev_cents = 0.0;       // mean signed deviation: + is sharp
-    double spread_cents = 0.0;         // standard deviation of the deviations (0 for one note)
+    int count = 0;                // notes matched to the target
+    double mean_dev_cents = 0.0;  // mean signed deviation: + is sharp
+    double spread_cents = 0.0;    // standard deviation of the deviations (0 for one note)
     double mean_abs_dev_cents = 0.0;
 };
 
 class NoteSummary {
 public:
     explicit NoteSummary(const TargetSet& targets);
-    void add(const NoteResult& note) noexcept;          // notes without a target are ignored
+    void add(const NoteResult& note) noexcept;              // notes without a target are ignored
     void add(int target_index, double dev_cents) noexcept;  // the same for any measurement (a dyad)
-    std::vector<TargetSummary> rows() const;            // targets with notes, in set order
+    std::vector<TargetSummary> rows() const;                // targets with notes, in set order
 private:
-    struct Acc { int n = 0; double mean = 0.0, m2 = 0.0, abs_sum = 0.0; };
+    struct Acc {
+        int n = 0;
+        double mean = 0.0, m2 = 0.0, abs_sum = 0.0;
+    };
     std::vector<Acc> acc_;
 };
 

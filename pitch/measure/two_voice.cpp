@@ -34,11 +34,11 @@
 //   7. Public API
 #include "pitch/measure/two_voice.h"
 
-#include "pitch/theory/beats.h"
-#include "pitch/dsp/whole_cycles.h"
 #include "pitch/base/error.h"
-#include "pitch/dsp/real_fft.h"
 #include "pitch/base/text.h"
+#include "pitch/dsp/real_fft.h"
+#include "pitch/dsp/whole_cycles.h"
+#include "pitch/theory/beats.h"
 
 #include <algorithm>
 #include <array>
@@ -55,8 +55,8 @@ namespace {
 constexpr double kTwoPi = 6.283185307179586476925286766559;
 constexpr std::size_t kMaxPeaks = 256;
 constexpr int kMaxHarmonic = 32;
-constexpr double kLobeBins = 4.0;        // Blackman-Harris main lobe half width
-constexpr double kAlphaHz = 52.0;        // Klapuri 2006 weight g = (f0 + alpha) / (h f0 + beta) (from memory)
+constexpr double kLobeBins = 4.0;  // Blackman-Harris main lobe half width
+constexpr double kAlphaHz = 52.0;  // Klapuri 2006 weight g = (f0 + alpha) / (h f0 + beta) (from memory)
 constexpr double kBetaHz = 320.0;
 
 void check(bool ok, const char* what, double v) {
@@ -65,9 +65,9 @@ void check(bool ok, const char* what, double v) {
 
 struct Peak {
     double freq_hz = 0.0;
-    double amp = 0.0;      // linear amplitude of the sinusoid (1 = full-scale sine)
-    double resid = 0.0;    // amplitude left after cancelling the first voice
-    bool of_first = false; // matched as a partial of the first voice
+    double amp = 0.0;       // linear amplitude of the sinusoid (1 = full-scale sine)
+    double resid = 0.0;     // amplitude left after cancelling the first voice
+    bool of_first = false;  // matched as a partial of the first voice
 };
 
 struct Voice {
@@ -84,20 +84,20 @@ struct Voice {
 struct TwoVoiceTracker::Impl {
     TwoVoiceConfig cfg;
     TargetSet targets;
-    std::size_t n = 0;          // FFT size
-    std::size_t d = 0;          // offset of the second transform (n / 4)
-    std::size_t span = 0;       // samples one frame depends on (n + d)
+    std::size_t n = 0;     // FFT size
+    std::size_t d = 0;     // offset of the second transform (n / 4)
+    std::size_t span = 0;  // samples one frame depends on (n + d)
     std::size_t hop = 0;
     std::size_t kmax = 0;
     double bin_hz = 0.0;
-    double amp_scale = 0.0;     // |X| -> sinusoid amplitude
+    double amp_scale = 0.0;  // |X| -> sinusoid amplitude
     int harmonics = 0;
-    AudibleRange audible;       // both voices sound `harmonics` partials; the 4 kHz limit or max_freq_hz if lower
+    AudibleRange audible;  // both voices sound `harmonics` partials; the 4 kHz limit or max_freq_hz if lower
     RealFft fft;
     std::vector<float> window;
     std::vector<float> ring;
-    std::uint64_t written = 0;  // samples ever pushed
-    std::uint64_t next_end = 0; // one past the last sample of the next frame
+    std::uint64_t written = 0;   // samples ever pushed
+    std::uint64_t next_end = 0;  // one past the last sample of the next frame
     std::size_t bad = 0, dropped = 0;
     std::vector<float> x, in0, in1;
     std::vector<std::complex<float>> s0, s1;
@@ -122,7 +122,10 @@ struct TwoVoiceTracker::Impl {
     void refine(Voice& v, const Voice* other);
     void name_interval(TwoVoiceFrame& f) const;
     void measure_beat(TwoVoiceFrame& f);
-    void clear_history() { hist_n = 0; env_p = env_q = -1; }
+    void clear_history() {
+        hist_n = 0;
+        env_p = env_q = -1;
+    }
 };
 
 TwoVoiceTracker::Impl::Impl(const TwoVoiceConfig& c, const TargetSet& set)
@@ -148,7 +151,8 @@ TwoVoiceTracker::Impl::Impl(const TwoVoiceConfig& c, const TargetSet& set)
     hop = std::max<std::size_t>(1, static_cast<std::size_t>(std::lround(cfg.hop_s * cfg.sample_rate_hz)));
     bin_hz = cfg.sample_rate_hz / static_cast<double>(n);
     kmax = std::min(n / 2 - 2, static_cast<std::size_t>(std::min(cfg.max_freq_hz, 0.45 * cfg.sample_rate_hz) / bin_hz));
-    check(kLobeBins * 2.0 * bin_hz < cfg.f_min_hz, "f_min_hz for this window (partials must be resolved)", cfg.f_min_hz);
+    check(kLobeBins * 2.0 * bin_hz < cfg.f_min_hz, "f_min_hz for this window (partials must be resolved)",
+          cfg.f_min_hz);
     harmonics = cfg.max_harmonic;
     audible.partials_a = harmonics;
     audible.partials_b = harmonics;
@@ -167,7 +171,8 @@ TwoVoiceTracker::Impl::Impl(const TwoVoiceConfig& c, const TargetSet& set)
     scratch.assign(kmax + 2, 0.0);
     peaks.reserve(kMaxPeaks);
     env_win.assign(span, 0.0);
-    const auto hist_cap = static_cast<std::size_t>(std::ceil(cfg.beat_history_s / (static_cast<double>(hop) / cfg.sample_rate_hz))) + 2;
+    const auto hist_cap =
+        static_cast<std::size_t>(std::ceil(cfg.beat_history_s / (static_cast<double>(hop) / cfg.sample_rate_hz))) + 2;
     hist_t.assign(hist_cap, 0.0);
     hist_m.assign(hist_cap, 0.0);
     reset();
@@ -218,8 +223,8 @@ void TwoVoiceTracker::Impl::find_peaks() {
 
 // Nearest peak to freq_hz within tol_hz, or -1 (peaks are sorted by frequency).
 int TwoVoiceTracker::Impl::match(double freq_hz, double tol_hz) const {
-    const auto it = std::lower_bound(peaks.begin(), peaks.end(), freq_hz,
-                                     [](const Peak& p, double f) { return p.freq_hz < f; });
+    const auto it =
+        std::lower_bound(peaks.begin(), peaks.end(), freq_hz, [](const Peak& p, double f) { return p.freq_hz < f; });
     int best = -1;
     double best_d = tol_hz;
     const auto i = static_cast<int>(it - peaks.begin());
@@ -408,9 +413,10 @@ void TwoVoiceTracker::Impl::name_interval(TwoVoiceFrame& f) const {
     // own pair (the num-th partial of the low voice meets the den-th of the
     // high one) when both voices sound it below the limit, else a simpler
     // ratio's; none leaves partial_* at -1 and no beat is predicted.
-    const bool cents_target = !targets.targets.empty() && !targets.targets[static_cast<std::size_t>(f.target_index)].interval.is_ratio();
-    const AudiblePair h = audible_pair(f.f_low_hz, f.f_high_hz, f.target_cents, cents_target ? std::nullopt : std::optional<Ratio>(r),
-                                       audible);
+    const bool cents_target =
+        !targets.targets.empty() && !targets.targets[static_cast<std::size_t>(f.target_index)].interval.is_ratio();
+    const AudiblePair h = audible_pair(f.f_low_hz, f.f_high_hz, f.target_cents,
+                                       cents_target ? std::nullopt : std::optional<Ratio>(r), audible);
     f.partial_low = h.found ? h.partial_a : -1;
     f.partial_high = h.found ? h.partial_b : -1;
     f.predicted_beat_hz = h.beat_hz;
@@ -438,7 +444,8 @@ void TwoVoiceTracker::Impl::measure_beat(TwoVoiceFrame& f) {
     }
     // Resolved: two separate peaks, each well outside the other's main lobe.
     if (jp >= 0 && jq >= 0 && jp != jq) {
-        const double diff = std::fabs(peaks[static_cast<std::size_t>(jp)].freq_hz - peaks[static_cast<std::size_t>(jq)].freq_hz);
+        const double diff =
+            std::fabs(peaks[static_cast<std::size_t>(jp)].freq_hz - peaks[static_cast<std::size_t>(jq)].freq_hz);
         if (diff > 2.0 * kLobeBins * bin_hz) {
             f.measured_beat_hz = diff;
             f.beat_source = BeatSource::frequency_difference;
@@ -545,7 +552,8 @@ bool TwoVoiceTracker::pull(TwoVoiceFrame& out) noexcept {
     std::memcpy(m.x.data() + first, m.ring.data(), (m.span - first) * sizeof(float));
     out = TwoVoiceFrame{};
     out.t_s = (static_cast<double>(start) + 0.5 * static_cast<double>(m.span - 1)) / m.cfg.sample_rate_hz;
-    for (std::size_t i = m.span - std::min(m.span, m.hop); i < m.span && !out.clipped; ++i) out.clipped = std::fabs(m.x[i]) >= 0.999f;
+    for (std::size_t i = m.span - std::min(m.span, m.hop); i < m.span && !out.clipped; ++i)
+        out.clipped = std::fabs(m.x[i]) >= 0.999f;
     m.analyze(out);
     m.next_end += m.hop;
     return true;

@@ -16,49 +16,49 @@
 namespace beatless::pitch {
 
 struct TwoVoiceConfig {
-    double sample_rate_hz = 44100.0;    // 8 000 .. 192 000
-    double window_s = 0.17;             // analysis window (default 170 ms; rounded to a fast FFT size)
-    double hop_s = 0.01;                // time between frames (default 10 ms)
-    double f_min_hz = 60.0;             // lowest fundamental (default 60 Hz)
-    double f_max_hz = 1200.0;           // highest fundamental (default 1200 Hz)
-    int max_harmonic = 12;              // partials per voice used (default 12)
-    double max_freq_hz = 6000.0;        // highest partial used (default 6 kHz)
-    double peak_range_db = 70.0;        // peaks down to this far below the strongest (default 70 dB)
-    double silence_dbfs = -60.0;        // quieter frames (RMS) have no voices (default -60 dBFS)
-    double min_second_salience = 0.05;  // second voice's salience relative to the first (default 0.05)
-    double beat_history_s = 3.0;        // envelope history for slow beats (default 3 s)
-    bool octave_equivalent = true;      // targets match in every octave (default on)
+    double sample_rate_hz = 44100.0;              // 8 000 .. 192 000
+    double window_s = 0.17;                       // analysis window (default 170 ms; rounded to a fast FFT size)
+    double hop_s = 0.01;                          // time between frames (default 10 ms)
+    double f_min_hz = 60.0;                       // lowest fundamental (default 60 Hz)
+    double f_max_hz = 1200.0;                     // highest fundamental (default 1200 Hz)
+    int max_harmonic = 12;                        // partials per voice used (default 12)
+    double max_freq_hz = 6000.0;                  // highest partial used (default 6 kHz)
+    double peak_range_db = 70.0;                  // peaks down to this far below the strongest (default 70 dB)
+    double silence_dbfs = -60.0;                  // quieter frames (RMS) have no voices (default -60 dBFS)
+    double min_second_salience = 0.05;            // second voice's salience relative to the first (default 0.05)
+    double beat_history_s = 3.0;                  // envelope history for slow beats (default 3 s)
+    bool octave_equivalent = true;                // targets match in every octave (default on)
     std::size_t max_block_len_samples = 1 << 16;  // push() blocks up to this never allocate
 };
 
 enum class BeatSource {
-    none,               // not measured (warming up, one voice, partials absent or out of range)
+    none,                  // not measured (warming up, one voice, partials absent or out of range)
     frequency_difference,  // the two coinciding partials are separate spectral peaks
-    envelope,           // whole cycles of the shared partial's amplitude envelope
+    envelope,              // whole cycles of the shared partial's amplitude envelope
     slower_than_history,   // no whole beat within beat_history_s: measured_beat_hz = 0
 };
 
 struct TwoVoiceFrame {
-    double t_s = 0.0;               // centre of the samples the estimate depends on
-    int voices = 0;                 // 0 (silence), 1 or 2
-    double f_low_hz = 0.0;          // 0 when absent
-    double f_high_hz = 0.0;         // 0 when absent
-    double confidence = 0.0;        // share of the peak power the two harmonic series explain, 0..1
-    bool clipped = false;           // a sample of the newest hop reached full scale (|x| >= 0.999):
-                                    //   intermodulation products may then bias the f0s
-    double level_low_db = -INFINITY;   // fundamental's level in dB (0 dB = full-scale sine)
+    double t_s = 0.0;                 // centre of the samples the estimate depends on
+    int voices = 0;                   // 0 (silence), 1 or 2
+    double f_low_hz = 0.0;            // 0 when absent
+    double f_high_hz = 0.0;           // 0 when absent
+    double confidence = 0.0;          // share of the peak power the two harmonic series explain, 0..1
+    bool clipped = false;             // a sample of the newest hop reached full scale (|x| >= 0.999):
+                                      //   intermodulation products may then bias the f0s
+    double level_low_db = -INFINITY;  // fundamental's level in dB (0 dB = full-scale sine)
     double level_high_db = -INFINITY;
-    double interval_cents = NAN;    // 1200 log2(f_high / f_low)
-    int target_index = -1;          // into the TargetSet, -1 when none (or the set is empty)
-    int target_octaves = 0;         // octave shift of the matched target
-    double target_cents = NAN;      // target after the shift
-    double dev_cents = NAN;         // interval minus target: + is wide
-    std::int64_t ratio_num = 0;     // the just ratio p/q the beats refer to (the target,
-    std::int64_t ratio_den = 0;     //   or the nearest simple ratio of a cents target)
-    int partial_low = -1;           // p: harmonic of the low voice that coincides ...
-    int partial_high = -1;          // q: ... with this harmonic of the high voice
-    double predicted_beat_hz = NAN; // |q f_high - p f_low|
-    double measured_beat_hz = NAN;  // from the partials themselves
+    double interval_cents = NAN;     // 1200 log2(f_high / f_low)
+    int target_index = -1;           // into the TargetSet, -1 when none (or the set is empty)
+    int target_octaves = 0;          // octave shift of the matched target
+    double target_cents = NAN;       // target after the shift
+    double dev_cents = NAN;          // interval minus target: + is wide
+    std::int64_t ratio_num = 0;      // the just ratio p/q the beats refer to (the target,
+    std::int64_t ratio_den = 0;      //   or the nearest simple ratio of a cents target)
+    int partial_low = -1;            // p: harmonic of the low voice that coincides ...
+    int partial_high = -1;           // q: ... with this harmonic of the high voice
+    double predicted_beat_hz = NAN;  // |q f_high - p f_low|
+    double measured_beat_hz = NAN;   // from the partials themselves
     BeatSource beat_source = BeatSource::none;
 };
 
@@ -80,7 +80,7 @@ public:
 
     void reset() noexcept;
     const TwoVoiceConfig& config() const noexcept;
-    std::size_t window_len_samples() const noexcept;   // FFT size used
+    std::size_t window_len_samples() const noexcept;  // FFT size used
     std::size_t hop_len_samples() const noexcept;
     std::size_t bad_samples() const noexcept;
     std::size_t dropped_samples() const noexcept;

@@ -44,8 +44,8 @@ Ratio nearest_simple_ratio(double cents, int max_term) {
             if (std::gcd(p, q) != 1) continue;
             const Ratio r{p, q};
             const double err = std::fabs(r.cents() - cents);
-            const bool better = err < best_err - 1e-9 ||
-                                (std::fabs(err - best_err) <= 1e-9 && p * q < best.num * best.den);
+            const bool better =
+                err < best_err - 1e-9 || (std::fabs(err - best_err) <= 1e-9 && p * q < best.num * best.den);
             if (better) {
                 best = r;
                 best_err = err;
@@ -74,20 +74,22 @@ Ratio beating_ratio(const Interval& target, int octaves, int max_term) noexcept 
     return Ratio{num / g, den / g};
 }
 
-namespace {
-
-}  // namespace
+namespace {}  // namespace
 
 bool shift_by_octaves(std::int64_t& p, std::int64_t& q, int octaves) noexcept {
     constexpr std::int64_t kLimit = std::int64_t{1} << 40;
     for (int k = 0; k < octaves; ++k) {
-        if (q % 2 == 0) q /= 2;
-        else p *= 2;
+        if (q % 2 == 0)
+            q /= 2;
+        else
+            p *= 2;
         if (p > kLimit) return false;
     }
     for (int k = 0; k > octaves; --k) {
-        if (p % 2 == 0) p /= 2;
-        else q *= 2;
+        if (p % 2 == 0)
+            p /= 2;
+        else
+            q *= 2;
         if (q > kLimit) return false;
     }
     return true;
@@ -119,7 +121,8 @@ AudiblePair audible_pair(double f_a_hz, double f_b_hz, double target_cents, std:
         for (std::int64_t a = 1; a <= range.simple_max_term; ++a) {
             for (std::int64_t b = 1; b <= range.simple_max_term; ++b) {
                 if (std::gcd(a, b) != 1) continue;
-                const double apart = std::fabs(1200.0 * std::log2(static_cast<double>(a) / static_cast<double>(b)) - within_cents);
+                const double apart =
+                    std::fabs(1200.0 * std::log2(static_cast<double>(a) / static_cast<double>(b)) - within_cents);
                 if (apart > best_apart + 1e-9) continue;
                 if (std::fabs(apart - best_apart) <= 1e-9 && best_product != 0 && a * b >= best_product) continue;
                 std::int64_t sp = a, sq = b;
@@ -143,8 +146,8 @@ AudiblePair audible_pair(double f_a_hz, double f_b_hz, double target_cents, std:
     return out;
 }
 
-AudiblePair audible_pair_of_target(double f_a_hz, double f_b_hz, const Interval& target, int octaves, double target_cents,
-                                   const AudibleRange& range) noexcept {
+AudiblePair audible_pair_of_target(double f_a_hz, double f_b_hz, const Interval& target, int octaves,
+                                   double target_cents, const AudibleRange& range) noexcept {
     std::optional<Ratio> own;
     if (target.is_ratio()) own = beating_ratio(target, octaves);
     return audible_pair(f_a_hz, f_b_hz, target_cents, own, range);

@@ -16,11 +16,11 @@
 namespace beatless::pitch {
 
 struct PartialPair {
-    int partial_a = 0;        // harmonic number on tone a (1 = fundamental)
-    int partial_b = 0;        // harmonic number on tone b
-    double freq_a_hz = 0.0;   // partial_a * f_a
-    double freq_b_hz = 0.0;   // partial_b * f_b
-    double beat_hz = 0.0;     // |freq_a_hz - freq_b_hz|
+    int partial_a = 0;       // harmonic number on tone a (1 = fundamental)
+    int partial_b = 0;       // harmonic number on tone b
+    double freq_a_hz = 0.0;  // partial_a * f_a
+    double freq_b_hz = 0.0;  // partial_b * f_b
+    double beat_hz = 0.0;    // |freq_a_hz - freq_b_hz|
 };
 
 // The pair that coincides when f_b / f_a is exactly `target`.
@@ -66,11 +66,12 @@ bool shift_by_octaves(std::int64_t& p, std::int64_t& q, int octaves) noexcept;
 //  3. otherwise no pair (a pure drone under a fifth: nothing coincides).
 // Rates are |q f_b - p f_a| (Helmholtz, On the Sensations of Tone, ch. VIII).
 struct AudibleRange {
-    int partials_a = 12;             // highest partial present in the drone (default 12: the round timbre)
-    int partials_b = 16;             // highest partial heard in the voice (default 16: voices, bowed strings; common practice)
-    double max_freq_hz = 4000.0;     // partials above this are not heard beating (default 4 kHz; common practice)
-    int simple_max_term = 10;        // "simple ratio": both terms at most this (default 10)
-    double max_apart_cents = 100.0;  // a simpler pair further than this from the target is heard as two tones, not a beat (default 100; common practice)
+    int partials_a = 12;  // highest partial present in the drone (default 12: the round timbre)
+    int partials_b = 16;  // highest partial heard in the voice (default 16: voices, bowed strings; common practice)
+    double max_freq_hz = 4000.0;  // partials above this are not heard beating (default 4 kHz; common practice)
+    int simple_max_term = 10;     // "simple ratio": both terms at most this (default 10)
+    double max_apart_cents =
+        100.0;  // a simpler pair further than this from the target is heard as two tones, not a beat (default 100; common practice)
 };
 
 struct AudiblePair {
@@ -92,8 +93,8 @@ AudiblePair audible_pair(double f_a_hz, double f_b_hz, double target_cents, std:
 // The audible pair for a matched target: `target` moved by `octaves` (its
 // own pair when it is a ratio; a cents target has none), target_cents
 // above tone a. Thread: any. Allocates: no.
-AudiblePair audible_pair_of_target(double f_a_hz, double f_b_hz, const Interval& target, int octaves, double target_cents,
-                                   const AudibleRange& range = {}) noexcept;
+AudiblePair audible_pair_of_target(double f_a_hz, double f_b_hz, const Interval& target, int octaves,
+                                   double target_cents, const AudibleRange& range = {}) noexcept;
 
 // How a listener perceives a beat of a given rate. Common practice (no one
 // published table): a beat slower than about one in five seconds is not
@@ -110,9 +111,9 @@ enum class BeatBand {
 };
 
 struct BeatBands {
-    double still_below_hz = 0.2;       // default 0.2 Hz: under one beat in five seconds
-    double countable_below_hz = 5.0;   // default 5 Hz (common practice)
-    double rough_above_hz = 15.0;      // default 15 Hz (common practice; Plomp & Levelt 1965)
+    double still_below_hz = 0.2;      // default 0.2 Hz: under one beat in five seconds
+    double countable_below_hz = 5.0;  // default 5 Hz (common practice)
+    double rough_above_hz = 15.0;     // default 15 Hz (common practice; Plomp & Levelt 1965)
 };
 
 // The band of a beat rate; BeatBand::none for NaN or a negative rate.

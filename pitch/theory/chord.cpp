@@ -79,8 +79,7 @@ Chord Chord::from_ratios(std::vector<Ratio> voices) {
         text += r.str();
     }
     check_count(voices.size(), text);
-    std::sort(voices.begin(), voices.end(),
-              [](const Ratio& a, const Ratio& b) { return a.cents() < b.cents(); });
+    std::sort(voices.begin(), voices.end(), [](const Ratio& a, const Ratio& b) { return a.cents() < b.cents(); });
     for (std::size_t i = 1; i < voices.size(); ++i)
         if (voices[i] == voices[i - 1]) throw Error(quote(text) + ": " + voices[i].str() + " is given twice");
     // Over the common denominator D every voice is a whole number of D-ths.
@@ -182,14 +181,13 @@ ChordChart chord_chart(const Chord& chord, double root_hz, const ChartConfig& co
 // [SECTION] Reference roots and deviations
 // ---------------------------------------------------------------------------
 
-double reference_root_hz(const Chord& chord, ChordReference ref, double fixed_root_hz,
-                         std::span<const double> freq_hz, std::span<const double> weight) noexcept {
+double reference_root_hz(const Chord& chord, ChordReference ref, double fixed_root_hz, std::span<const double> freq_hz,
+                         std::span<const double> weight) noexcept {
     assert(freq_hz.size() == chord.size() && "reference_root_hz: one frequency per voice");
     assert((weight.empty() || weight.size() == chord.size()) && "reference_root_hz: one weight per voice");
     const auto w = [&](std::size_t i) { return weight.empty() ? 1.0 : weight[i]; };
     switch (ref) {
-        case ChordReference::fixed_root:
-            return fixed_root_hz;
+        case ChordReference::fixed_root: return fixed_root_hz;
         case ChordReference::sounding_bass:
             for (std::size_t i = 0; i < chord.size(); ++i)
                 if (sounds(freq_hz[i], w(i))) return freq_hz[i] * std::exp2(-chord.voice_cents(i) / 1200.0);
@@ -219,9 +217,8 @@ void voice_deviations(const Chord& chord, double root_hz, std::span<const double
     const bool root_ok = std::isfinite(root_hz) && root_hz > 0.0;
     for (std::size_t i = 0; i < chord.size(); ++i) {
         const double f = freq_hz[i];
-        dev_cents[i] = (root_ok && std::isfinite(f) && f > 0.0)
-                           ? 1200.0 * std::log2(f / root_hz) - chord.voice_cents(i)
-                           : NAN;
+        dev_cents[i] =
+            (root_ok && std::isfinite(f) && f > 0.0) ? 1200.0 * std::log2(f / root_hz) - chord.voice_cents(i) : NAN;
     }
 }
 

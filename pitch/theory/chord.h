@@ -43,10 +43,10 @@ public:
 
     std::size_t size() const { return terms_.size(); }
     const std::vector<std::int64_t>& terms() const { return terms_; }  // lowest terms
-    std::int64_t root_term() const { return root_term_; }             // term of the chord root
-    Ratio voice_ratio(std::size_t i) const;                           // terms[i] / root_term
-    double voice_cents(std::size_t i) const { return cents_[i]; }     // 1200 log2 of the ratio
-    std::string terms_text() const;                                   // "4:5:6:7"
+    std::int64_t root_term() const { return root_term_; }              // term of the chord root
+    Ratio voice_ratio(std::size_t i) const;                            // terms[i] / root_term
+    double voice_cents(std::size_t i) const { return cents_[i]; }      // 1200 log2 of the ratio
+    std::string terms_text() const;                                    // "4:5:6:7"
 
 private:
     std::vector<std::int64_t> terms_;
@@ -63,14 +63,14 @@ Chord parse_chord(std::string_view text);
 // ---------------------------------------------------------------------------
 
 struct ChartConfig {
-    double a4_hz = kDefaultA4Hz;  // Hz, 400-480; default 440 (ISO 16)
-    int max_harmonic = 16;        // highest partial listed as coinciding; default 16
+    double a4_hz = kDefaultA4Hz;             // Hz, 400-480; default 440 (ISO 16)
+    int max_harmonic = 16;                   // highest partial listed as coinciding; default 16
     AudibleRange audible{.partials_a = 16};  // voices sound up to the 16th partial; 4 kHz limit (pitch/theory/beats.h)
 };
 
 struct VoiceChart {
-    Ratio ratio;                   // above the chord root
-    std::int64_t term = 0;         // harmonic number over the common fundamental
+    Ratio ratio;            // above the chord root
+    std::int64_t term = 0;  // harmonic number over the common fundamental
     double freq_hz = 0.0;
     double cents_from_root = 0.0;  // 1200 log2(ratio)
     NearestNote note;              // nearest 12-TET note and the offset from it (cents)
@@ -82,21 +82,21 @@ struct VoiceChart {
 // Hz, whose slope at d = 0 is q f_b ln2 / 1200 Hz per cent; moving a instead
 // gives p f_a ln2 / 1200, the same number since p f_a = q f_b.
 struct VoiceBeat {
-    std::size_t voice_a = 0;             // lower voice (index)
-    std::size_t voice_b = 0;             // upper voice (index)
-    Ratio interval;                      // f_b / f_a
-    PartialPair lowest;                  // the lowest pair that meets (p, q)
-    double beat_hz_per_cent = 0.0;       // of the lowest pair
-    AudiblePair heard;                   // the pair a listener hears beat (pitch/theory/beats.h, audible_pair): the headline
-    double heard_hz_per_cent = NAN;      // its slope, q f_b ln2 / 1200 Hz per cent (NaN when none)
-    std::vector<PartialPair> coinciding; // every meeting pair up to max_harmonic (kp, kq), lowest first
+    std::size_t voice_a = 0;        // lower voice (index)
+    std::size_t voice_b = 0;        // upper voice (index)
+    Ratio interval;                 // f_b / f_a
+    PartialPair lowest;             // the lowest pair that meets (p, q)
+    double beat_hz_per_cent = 0.0;  // of the lowest pair
+    AudiblePair heard;              // the pair a listener hears beat (pitch/theory/beats.h, audible_pair): the headline
+    double heard_hz_per_cent = NAN;       // its slope, q f_b ln2 / 1200 Hz per cent (NaN when none)
+    std::vector<PartialPair> coinciding;  // every meeting pair up to max_harmonic (kp, kq), lowest first
 };
 
 struct ChordChart {
-    double root_hz = 0.0;                // the chord root (1/1), sounding or not
-    double fundamental_hz = 0.0;         // root_hz / root_term: the voices are its harmonics
-    std::vector<VoiceChart> voices;      // low to high
-    std::vector<VoiceBeat> beats;        // every two voices, (0,1), (0,2) ... (1,2) ...
+    double root_hz = 0.0;            // the chord root (1/1), sounding or not
+    double fundamental_hz = 0.0;     // root_hz / root_term: the voices are its harmonics
+    std::vector<VoiceChart> voices;  // low to high
+    std::vector<VoiceBeat> beats;    // every two voices, (0,1), (0,2) ... (1,2) ...
 };
 
 // Per voice the frequency, the nearest 12-TET note and the cents from it (what a player bends by from their
@@ -129,8 +129,8 @@ enum class ChordReference { fixed_root, sounding_bass, best_fit };
 // The reference root in Hz, or NaN when no voice the reference needs sounds.
 // freq_hz has one entry per voice; weight is empty (all 1) or one per voice.
 // Thread: any. Allocates: no. Locks: no.
-double reference_root_hz(const Chord& chord, ChordReference ref, double fixed_root_hz,
-                         std::span<const double> freq_hz, std::span<const double> weight = {}) noexcept;
+double reference_root_hz(const Chord& chord, ChordReference ref, double fixed_root_hz, std::span<const double> freq_hz,
+                         std::span<const double> weight = {}) noexcept;
 
 // dev_cents[i] = 1200 log2(freq_hz[i] / root_hz) - voice_cents(i): + is sharp;
 // NaN for a silent voice or a NaN root. All spans have one entry per voice.

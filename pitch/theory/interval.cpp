@@ -106,9 +106,8 @@ EtNearest nearest_et_step(double cents) {
 std::string et_step_name(int step) {
     // Interval names of 12-tone equal temperament (common practice).
     static const std::array<const char*, 13> names = {
-        "unison",        "minor second", "major second",  "minor third", "major third",
-        "perfect fourth", "tritone",     "perfect fifth", "minor sixth", "major sixth",
-        "minor seventh", "major seventh", "octave"};
+        "unison",        "minor second", "major second", "minor third",   "major third",   "perfect fourth", "tritone",
+        "perfect fifth", "minor sixth",  "major sixth",  "minor seventh", "major seventh", "octave"};
     const int octaves = step >= 0 ? step / 12 : -((-step + 11) / 12);
     int within = step - 12 * octaves;
     if (within == 0 && octaves > 0) return octaves == 1 ? "octave" : std::to_string(octaves) + " octaves";

@@ -15,15 +15,15 @@ namespace beatless::pitch {
 
 class Interval {
 public:
-    Interval() = default;                      // unison 1/1
+    Interval() = default;  // unison 1/1
     static Interval of(const Ratio& r);
     static Interval from_cents(double cents);  // throws Error on NaN or infinity
 
     bool is_ratio() const { return is_ratio_; }
-    const Ratio& ratio() const;                // valid only when is_ratio()
+    const Ratio& ratio() const;  // valid only when is_ratio()
     double cents() const { return cents_; }
-    double value() const;                      // frequency ratio as a double
-    std::string str() const;                   // "7/5" or "600c"
+    double value() const;     // frequency ratio as a double
+    std::string str() const;  // "7/5" or "600c"
 
     friend bool operator==(const Interval& a, const Interval& b) {
         return a.is_ratio_ == b.is_ratio_ && (a.is_ratio_ ? a.ratio_ == b.ratio_ : a.cents_ == b.cents_);
@@ -36,7 +36,7 @@ private:
 };
 
 // Accepts "7/5", "7:5", "3/2*5/4", "600c", "-35.5c" and products of the two ("3/2*600c" is 1301.955c).
-Interval parse_interval(std::string_view text);     // throws Error naming the text
+Interval parse_interval(std::string_view text);  // throws Error naming the text
 Interval operator*(const Interval& a, const Interval& b);
 
 // Names of the trade for intervals ("septimal tritone"), keyed by Interval::str().
@@ -56,8 +56,8 @@ private:
 };
 
 struct EtNearest {
-    int step = 0;                  // semitones above the root (nearest)
-    double offset_cents = 0.0;     // interval minus step * 100 cents
+    int step = 0;               // semitones above the root (nearest)
+    double offset_cents = 0.0;  // interval minus step * 100 cents
 };
 EtNearest nearest_et_step(double cents);
 
@@ -65,14 +65,14 @@ EtNearest nearest_et_step(double cents);
 // odd limit = max(odd part of p, odd part of q); Tenney height = log2(p*q); 12-TET step = the nearest multiple
 // of 100 cents, and the offset from it.
 struct IntervalFacts {
-    std::string text;                      // canonical "7/5" or "600c"
+    std::string text;  // canonical "7/5" or "600c"
     double cents = 0.0;
-    std::optional<int> prime_limit;        // empty for cents intervals
-    std::optional<std::int64_t> odd_limit; // empty for cents intervals
-    std::optional<double> tenney_height;   // empty for cents intervals
+    std::optional<int> prime_limit;         // empty for cents intervals
+    std::optional<std::int64_t> odd_limit;  // empty for cents intervals
+    std::optional<double> tenney_height;    // empty for cents intervals
     EtNearest et;
-    std::string et_name;                   // "tritone", "perfect fifth", ...
-    std::string name;                      // name of the trade, or empty
+    std::string et_name;  // "tritone", "perfect fifth", ...
+    std::string name;     // name of the trade, or empty
 };
 IntervalFacts interval_facts(const Interval& iv, const IntervalNames& names);
 

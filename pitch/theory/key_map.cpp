@@ -55,7 +55,8 @@ KeyMap map_targets_to_keys(const TargetSet& set, double root_hz, int root_key, K
         }
         const double off = std::abs(cents - 100.0 * degree);
         const int held = claim[static_cast<std::size_t>(degree)];
-        if (held >= 0 && std::abs(claim_cents[static_cast<std::size_t>(degree)] - cents) < 1e-9) continue;  // 2/1 as 1/1
+        if (held >= 0 && std::abs(claim_cents[static_cast<std::size_t>(degree)] - cents) < 1e-9)
+            continue;  // 2/1 as 1/1
         if (held >= 0 && claim_off[static_cast<std::size_t>(degree)] <= off) {
             map.unplaced.push_back(i);
             continue;
@@ -71,7 +72,8 @@ KeyMap map_targets_to_keys(const TargetSet& set, double root_hz, int root_key, K
         const auto degree = static_cast<std::size_t>(d - 12 * octave);
         KeyTuning& key = map.keys[static_cast<std::size_t>(k)];
         key.target = claim[degree];
-        key.cents_over_root = 1200.0 * octave + (claim[degree] >= 0 ? claim_cents[degree] : 100.0 * static_cast<double>(degree));
+        key.cents_over_root =
+            1200.0 * octave + (claim[degree] >= 0 ? claim_cents[degree] : 100.0 * static_cast<double>(degree));
         key.freq_hz = root_hz * std::exp2(key.cents_over_root / 1200.0);
     }
     return map;

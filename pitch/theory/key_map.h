@@ -21,13 +21,13 @@ namespace beatless::pitch {
 
 struct KeyTuning {
     double freq_hz = 0.0;
-    int target = -1;        // index into the set's targets, or -1: equal-tempered from the root
+    int target = -1;               // index into the set's targets, or -1: equal-tempered from the root
     double cents_over_root = 0.0;  // above (or below, negative) the root
 };
 
 struct KeyMap {
     std::array<KeyTuning, 128> keys{};
-    int root_key = 60;                // the key that sounds root_hz
+    int root_key = 60;                  // the key that sounds root_hz
     std::vector<std::size_t> unplaced;  // targets that lost their key to a nearer one
 };
 

@@ -15,12 +15,11 @@ MtsWord mts_word(double freq_hz) {
     constexpr double kTop = 127.0 * 16384.0 + 16382.0;
     const auto s = static_cast<std::int64_t>(std::clamp(steps, 0.0, kTop));
     const auto frac = static_cast<std::uint16_t>(s % 16384);
-    return {static_cast<std::uint8_t>(s / 16384), static_cast<std::uint8_t>(frac >> 7), static_cast<std::uint8_t>(frac & 0x7F)};
+    return {static_cast<std::uint8_t>(s / 16384), static_cast<std::uint8_t>(frac >> 7),
+            static_cast<std::uint8_t>(frac & 0x7F)};
 }
 
-double mts_freq_hz(MtsWord w) {
-    return kMtsA4Hz * std::exp2((w.semitone + w.fraction() / 16384.0 - 69.0) / 12.0);
-}
+double mts_freq_hz(MtsWord w) { return kMtsA4Hz * std::exp2((w.semitone + w.fraction() / 16384.0 - 69.0) / 12.0); }
 
 std::vector<std::uint8_t> mts_bulk_dump(std::uint8_t device_id, std::uint8_t program, std::string_view name,
                                         std::span<const double, 128> freq_hz) {
@@ -46,9 +45,15 @@ std::vector<std::uint8_t> mts_bulk_dump(std::uint8_t device_id, std::uint8_t pro
 std::vector<std::uint8_t> mts_single_note_change(std::uint8_t device_id, std::uint8_t program,
                                                  std::span<const MtsNoteChange> changes) {
     if (changes.empty() || changes.size() > 127)
-        throw Error("MTS single-note tuning change: " + std::to_string(changes.size()) + " changes (1 to 127 a message)");
-    std::vector<std::uint8_t> m = {0xF0, 0x7F, static_cast<std::uint8_t>(device_id & 0x7F), 0x08, 0x02,
-                                   static_cast<std::uint8_t>(program & 0x7F), static_cast<std::uint8_t>(changes.size())};
+        throw Error("MTS single-note tuning change: " + std::to_string(changes.size()) +
+                    " changes (1 to 127 a message)");
+    std::vector<std::uint8_t> m = {0xF0,
+                                   0x7F,
+                                   static_cast<std::uint8_t>(device_id & 0x7F),
+                                   0x08,
+                                   0x02,
+                                   static_cast<std::uint8_t>(program & 0x7F),
+                                   static_cast<std::uint8_t>(changes.size())};
     for (const auto& c : changes) {
         const MtsWord w = mts_word(c.freq_hz);
         m.insert(m.end(), {static_cast<std::uint8_t>(c.key & 0x7F), w.semitone, w.msb, w.lsb});

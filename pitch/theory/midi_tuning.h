@@ -18,7 +18,7 @@
 
 namespace beatless::pitch {
 
-inline constexpr double kMtsA4Hz = 440.0;             // the standard's fixed reference, whatever the user's A4
+inline constexpr double kMtsA4Hz = 440.0;                    // the standard's fixed reference, whatever the user's A4
 inline constexpr double kMtsCentsPerStep = 100.0 / 16384.0;  // 0.0061 cents
 
 struct MtsWord {
@@ -46,8 +46,8 @@ std::vector<std::uint8_t> mts_bulk_dump(std::uint8_t device_id, std::uint8_t pro
 // Real-time single-note tuning change: F0 7F dev 08 02 program count
 // count x (key xx yy zz) F7. At most 127 changes a message.
 struct MtsNoteChange {
-    std::uint8_t key = 0;   // MIDI key 0-127 being retuned
-    double freq_hz = 0.0;   // its new frequency
+    std::uint8_t key = 0;  // MIDI key 0-127 being retuned
+    double freq_hz = 0.0;  // its new frequency
 };
 std::vector<std::uint8_t> mts_single_note_change(std::uint8_t device_id, std::uint8_t program,
                                                  std::span<const MtsNoteChange> changes);

@@ -67,7 +67,8 @@ std::string midi_to_name(int midi, BlackKeys spelled) {
 
 bool has_flat(std::string_view name) {
     const std::string_view t = trim(name);
-    return t.size() > 1 && (t.substr(1).find('b') != std::string_view::npos || t.find("\xE2\x99\xAD") != std::string_view::npos);
+    return t.size() > 1 &&
+           (t.substr(1).find('b') != std::string_view::npos || t.find("\xE2\x99\xAD") != std::string_view::npos);
 }
 
 NearestNote hz_to_note(double freq_hz, double a4_hz) {
@@ -103,8 +104,8 @@ double parse_frequency(std::string_view text, double a4_hz) {
 double parse_root(std::string_view text, double a4_hz) {
     const double hz = parse_frequency(text, a4_hz);
     if (!(hz >= kRootMinHz && hz <= kRootMaxHz))
-        throw Error(quote(text) + " = " + format_trimmed(hz, 3) + " Hz: out of range for a root (" + format_trimmed(kRootMinHz, 0) +
-                    " to " + format_trimmed(kRootMaxHz, 0) + " Hz)");
+        throw Error(quote(text) + " = " + format_trimmed(hz, 3) + " Hz: out of range for a root (" +
+                    format_trimmed(kRootMinHz, 0) + " to " + format_trimmed(kRootMaxHz, 0) + " Hz)");
     return hz;
 }
 

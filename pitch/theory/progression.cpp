@@ -1,8 +1,8 @@
 #include "pitch/theory/progression.h"
 
 #include "pitch/base/error.h"
-#include "pitch/theory/notes.h"
 #include "pitch/base/text.h"
+#include "pitch/theory/notes.h"
 
 #include <algorithm>
 #include <cctype>
@@ -88,12 +88,15 @@ Numeral parse_numeral_token(std::string_view tok) {
     n.token = std::string(tok);
     const std::string q = quote(tok);
     if (!tok.empty() && (tok[0] == 'b' || tok[0] == '#'))
-        throw Error(q + ": chromatic numerals are not supported; write the chord as ROOT:TERMS, e.g. 16/9:4:5:6 for bVII in C");
+        throw Error(
+            q + ": chromatic numerals are not supported; write the chord as ROOT:TERMS, e.g. 16/9:4:5:6 for bVII in C");
     std::size_t i = 0;
     std::string roman;
     while (i < tok.size() && std::string_view("IViv").find(tok[i]) != std::string_view::npos) roman += tok[i++];
     if (roman.empty())
-        throw Error(q + ": not a Roman numeral or a chord (expected I to VII, e.g. V7 or vi, or ROOT:TERMS such as 5/3:10:12:15)");
+        throw Error(
+            q +
+            ": not a Roman numeral or a chord (expected I to VII, e.g. V7 or vi, or ROOT:TERMS such as 5/3:10:12:15)");
     const bool all_upper = std::all_of(roman.begin(), roman.end(), [](char c) { return c == 'I' || c == 'V'; });
     const bool all_lower = std::all_of(roman.begin(), roman.end(), [](char c) { return c == 'i' || c == 'v'; });
     if (!all_upper && !all_lower)
@@ -123,7 +126,8 @@ Numeral parse_numeral_token(std::string_view tok) {
         n.seventh = true;
     } else if (!rest.empty()) {
         if (rest.front() == '/')
-            throw Error(q + ": secondary chords such as V/V are not supported; write the chord as ROOT:TERMS, e.g. 9/8:4:5:6");
+            throw Error(
+                q + ": secondary chords such as V/V are not supported; write the chord as ROOT:TERMS, e.g. 9/8:4:5:6");
         throw Error(q + ": unknown chord suffix " + quote(rest) +
                     " (a Roman numeral takes ° or o for diminished, ø or /o for half-diminished, and 7)");
     }
@@ -233,8 +237,11 @@ Key parse_key(std::string_view text, double a4_hz) {
     for (char& c : lower) c = static_cast<char>(std::tolower(static_cast<unsigned char>(c)));
     Key key;
     std::size_t cut = t.size();
-    for (const auto& [word, mode] : {std::pair{"minor", KeyMode::minor}, {"major", KeyMode::major},
-                                     {"min", KeyMode::minor}, {"maj", KeyMode::major}, {"m", KeyMode::minor}}) {
+    for (const auto& [word, mode] : {std::pair{"minor", KeyMode::minor},
+                                     {"major", KeyMode::major},
+                                     {"min", KeyMode::minor},
+                                     {"maj", KeyMode::major},
+                                     {"m", KeyMode::minor}}) {
         const std::string_view w = word;
         if (lower.size() > w.size() && std::string_view(lower).ends_with(w)) {
             key.mode = mode;
@@ -260,7 +267,9 @@ Key parse_key(std::string_view text, double a4_hz) {
 Progression parse_progression(std::string_view text, std::optional<KeyMode> mode) {
     const auto tokens = split_tokens(text);
     if (tokens.empty())
-        throw Error(quote(text) + ": empty progression (write Roman numerals such as \"I vi ii V I\" or chords such as 5/3:10:12:15)");
+        throw Error(
+            quote(text) +
+            ": empty progression (write Roman numerals such as \"I vi ii V I\" or chords such as 5/3:10:12:15)");
     if (tokens.size() > kMaxProgressionChords)
         throw Error("progression of " + std::to_string(tokens.size()) + " chords: at most " +
                     std::to_string(kMaxProgressionChords));
@@ -289,10 +298,12 @@ Progression parse_progression(std::string_view text, std::optional<KeyMode> mode
         }
         if (only_major && only_minor)
             throw Error(quote(text) + ": mixes numerals of a major key (" + only_major->token + ") and a minor key (" +
-                        only_minor->token + "); name the key with --key, e.g. --key \"C minor\", or write the odd chord as ROOT:TERMS");
+                        only_minor->token +
+                        "); name the key with --key, e.g. --key \"C minor\", or write the odd chord as ROOT:TERMS");
         p.mode = only_minor ? KeyMode::minor : KeyMode::major;
     }
-    for (const auto& s : slots) p.chords.push_back(s.numeral ? numeral_chord(*s.numeral, p.mode) : explicit_chord(s.token));
+    for (const auto& s : slots)
+        p.chords.push_back(s.numeral ? numeral_chord(*s.numeral, p.mode) : explicit_chord(s.token));
     return p;
 }
 

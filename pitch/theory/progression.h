@@ -54,9 +54,9 @@ namespace beatless::pitch {
 enum class KeyMode { major, minor };
 
 struct Key {
-    Tonic tonic;                        // spelled tonic ("Eb")
-    double tonic_hz = 0.0;              // the tonic's frequency (octave 4 unless given)
-    std::optional<KeyMode> mode;        // empty: taken from the numerals
+    Tonic tonic;                  // spelled tonic ("Eb")
+    double tonic_hz = 0.0;        // the tonic's frequency (octave 4 unless given)
+    std::optional<KeyMode> mode;  // empty: taken from the numerals
 };
 
 // "C", "C4", "Eb3", "A minor", "Am", "F# major", "Bbm"; with no octave the
@@ -122,14 +122,14 @@ struct CommonTone {
     std::size_t prev_voice = 0;  // in the chord before
     std::size_t voice = 0;       // in this chord
     int pitch_class = 0;
-    double motion_cents = 0.0;   // this chord's pitch minus the one before, octaves taken out
-    bool held = false;           // |motion| below 1e-6 cents
+    double motion_cents = 0.0;  // this chord's pitch minus the one before, octaves taken out
+    bool held = false;          // |motion| below 1e-6 cents
 };
 
 struct TunedChord {
-    double shift_cents = 0.0;        // from the fixed-root place
-    std::optional<Ratio> shift;      // exact, when it fits 64 bits
-    double step_cents = 0.0;         // shift minus the chord before's shift (0 for the first)
+    double shift_cents = 0.0;    // from the fixed-root place
+    std::optional<Ratio> shift;  // exact, when it fits 64 bits
+    double step_cents = 0.0;     // shift minus the chord before's shift (0 for the first)
     std::vector<TunedVoice> voices;
     std::vector<CommonTone> common;  // with the chord before (empty for the first)
 };
@@ -137,9 +137,9 @@ struct TunedChord {
 struct ProgressionTuning {
     DriftRule rule = DriftRule::fixed_root;
     std::vector<TunedChord> chords;
-    double drift_cents = 0.0;        // the last chord's shift: - is flat
-    std::optional<Ratio> drift;      // exact, when it fits 64 bits
-    std::vector<std::size_t> causes; // chords k >= 1 whose change from k-1 moves the shift
+    double drift_cents = 0.0;         // the last chord's shift: - is flat
+    std::optional<Ratio> drift;       // exact, when it fits 64 bits
+    std::vector<std::size_t> causes;  // chords k >= 1 whose change from k-1 moves the shift
 };
 
 ProgressionTuning tune_progression(const Progression& p, DriftRule rule);

@@ -3,9 +3,9 @@
 #include "pitch/base/error.h"
 #include "pitch/base/text.h"
 
+#include <algorithm>
 #include <charconv>
 #include <cmath>
-#include <algorithm>
 #include <numeric>
 
 namespace beatless::pitch {
@@ -96,8 +96,7 @@ std::int64_t parse_count(std::string_view whole, std::string_view digits) {
     if (digits.front() == '-') fail(whole, "ratio must be positive (a negative number is not an interval)");
     std::int64_t v = 0;
     auto [end, ec] = std::from_chars(digits.data(), digits.data() + digits.size(), v);
-    if (ec == std::errc::result_out_of_range)
-        fail(whole, "number too large for 64-bit ratio arithmetic");
+    if (ec == std::errc::result_out_of_range) fail(whole, "number too large for 64-bit ratio arithmetic");
     if (ec != std::errc() || end != digits.data() + digits.size())
         fail(whole, "not a ratio (expected a form such as 7/5, 7:5, 3/2*5/4 or 600c)");
     return v;
@@ -124,15 +123,14 @@ Ratio parse_single(std::string_view whole, std::string_view part) {
 
 Ratio Ratio::make(std::int64_t n, std::int64_t d) {
     if (d == 0) throw Error(std::to_string(n) + "/0: denominator is zero");
-    if (n <= 0 || d < 0)
-        throw Error(std::to_string(n) + "/" + std::to_string(d) + ": ratio must be positive");
+    if (n <= 0 || d < 0) throw Error(std::to_string(n) + "/" + std::to_string(d) + ": ratio must be positive");
     const std::int64_t g = std::gcd(n, d);
     return Ratio{n / g, d / g};
 }
 
 double Ratio::cents() const {
-    return 1200.0 * static_cast<double>(std::log2(static_cast<long double>(num)) -
-                                        std::log2(static_cast<long double>(den)));
+    return 1200.0 *
+           static_cast<double>(std::log2(static_cast<long double>(num)) - std::log2(static_cast<long double>(den)));
 }
 
 std::string Ratio::str() const { return std::to_string(num) + "/" + std::to_string(den); }
@@ -159,12 +157,16 @@ Ratio octave_reduce(const Ratio& r) {
     Ratio x = r;
     const std::string what = "octave reduction of " + r.str();
     while (x.num / 2 >= x.den) {  // x >= 2, without forming 2 * den
-        if (x.num % 2 == 0) x.num /= 2;
-        else x.den = checked_mul(x.den, 2, what);
+        if (x.num % 2 == 0)
+            x.num /= 2;
+        else
+            x.den = checked_mul(x.den, 2, what);
     }
     while (x.num < x.den) {
-        if (x.den % 2 == 0) x.den /= 2;
-        else x.num = checked_mul(x.num, 2, what);
+        if (x.den % 2 == 0)
+            x.den /= 2;
+        else
+            x.num = checked_mul(x.num, 2, what);
     }
     return x;
 }
@@ -207,8 +209,7 @@ std::int64_t odd_limit(const Ratio& r) {
 }
 
 double tenney_height(const Ratio& r) {
-    return static_cast<double>(std::log2(static_cast<long double>(r.num)) +
-                               std::log2(static_cast<long double>(r.den)));
+    return static_cast<double>(std::log2(static_cast<long double>(r.num)) + std::log2(static_cast<long double>(r.den)));
 }
 
 }  // namespace beatless::pitch

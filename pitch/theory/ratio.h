@@ -19,8 +19,8 @@ struct Ratio {
     static Ratio make(std::int64_t n, std::int64_t d);
 
     double value() const { return static_cast<double>(num) / static_cast<double>(den); }
-    double cents() const;          // 1200 * log2(num/den), computed without overflow
-    std::string str() const;       // "7/5"; "2/1" for the octave
+    double cents() const;     // 1200 * log2(num/den), computed without overflow
+    std::string str() const;  // "7/5"; "2/1" for the octave
 
     friend bool operator==(const Ratio&, const Ratio&) = default;
 };
@@ -40,9 +40,9 @@ Ratio parse_ratio(std::string_view text);
 std::vector<std::int64_t> parse_chord_terms(std::string_view text);
 
 // Number theory on the ratio's terms.
-int prime_limit(const Ratio& r);                 // largest prime in num*den; 1 for 1/1
-std::int64_t odd_limit(const Ratio& r);          // max of the odd parts of num and den
-double tenney_height(const Ratio& r);            // log2(num * den), without overflow
+int prime_limit(const Ratio& r);                    // largest prime in num*den; 1 for 1/1
+std::int64_t odd_limit(const Ratio& r);             // max of the odd parts of num and den
+double tenney_height(const Ratio& r);               // log2(num * den), without overflow
 std::int64_t largest_prime_factor(std::int64_t n);  // n >= 1; 1 for n == 1
 
 }  // namespace beatless::pitch

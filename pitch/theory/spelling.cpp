@@ -1,8 +1,8 @@
 #include "pitch/theory/spelling.h"
 
 #include "pitch/base/error.h"
-#include "pitch/theory/notes.h"
 #include "pitch/base/text.h"
+#include "pitch/theory/notes.h"
 
 #include <array>
 #include <cctype>
@@ -102,8 +102,8 @@ std::vector<std::string> spell_chord(const Tonic& root, const std::vector<int>& 
     for (const int m : midi) {
         const int s = mod(m - root.pc, 12);
         int change = 0;
-        if (s == 6 && has[3]) change = 1;               // diminished fifth
-        if (s == 8 && has[4] && !has[7]) change = -1;   // augmented fifth
+        if (s == 6 && has[3]) change = 1;              // diminished fifth
+        if (s == 8 && has[4] && !has[7]) change = -1;  // augmented fifth
         out.push_back(with_octave(spell(root, m - root.pc, change), m));
     }
     return out;
@@ -116,7 +116,7 @@ NoteAboveRoot spell_above_root(std::string_view root, double cents_above_root, d
     if (!t.empty() && std::isalpha(static_cast<unsigned char>(t[0]))) {
         tonic = parse_tonic(t);
         root_midi = note_to_midi(t.find_first_of("-0123456789") == std::string_view::npos ? std::string(t) + "4"
-                                                                                           : std::string(t));
+                                                                                          : std::string(t));
     } else {
         root_midi = hz_to_note(parse_frequency(t, a4_hz), a4_hz).midi;
         tonic = parse_tonic(midi_to_name(root_midi));
@@ -125,7 +125,9 @@ NoteAboveRoot spell_above_root(std::string_view root, double cents_above_root, d
     if (!std::isfinite(cents_above_root)) throw Error("spell_above_root: the interval is not a finite number of cents");
     const int semis = static_cast<int>(std::lround(cents_above_root / 100.0));
     // Tritone family: wider than 600 cents (by more than rounding) reads as a diminished fifth.
-    const int change = (mod(semis, 12) == 6 && cents_above_root - 1200.0 * std::floor(cents_above_root / 1200.0) > 600.0 + 1e-6) ? 1 : 0;
+    const int change =
+        (mod(semis, 12) == 6 && cents_above_root - 1200.0 * std::floor(cents_above_root / 1200.0) > 600.0 + 1e-6) ? 1
+                                                                                                                  : 0;
     const Spelled s = spell(tonic, semis, change);
     out.midi = root_midi + semis;
     out.name = with_octave(s, out.midi);

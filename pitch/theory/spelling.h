@@ -11,9 +11,9 @@
 namespace beatless::pitch {
 
 struct Tonic {
-    int letter = 0;  // 0..6 for C D E F G A B
-    int alter = 0;   // sharps (+) or flats (-) on the letter
-    int pc = 0;      // pitch class 0..11, C = 0
+    int letter = 0;            // 0..6 for C D E F G A B
+    int alter = 0;             // sharps (+) or flats (-) on the letter
+    int pc = 0;                // pitch class 0..11, C = 0
     std::string name() const;  // "Eb", "F#", "C"
 };
 
@@ -39,10 +39,10 @@ std::vector<std::string> spell_chord(const Tonic& root, const std::vector<int>& 
 // A pitch `cents_above_root` above (negative: below) a root, named as the
 // performer would read it against that root.
 struct NoteAboveRoot {
-    std::string name;          // "Bb3": letter, accidentals, octave
-    std::string pitch_class;   // "Bb"
-    int midi = 0;              // the equal-tempered step named (MIDI number)
-    double offset_cents = 0;   // cents_above_root minus that step's cents above the root
+    std::string name;         // "Bb3": letter, accidentals, octave
+    std::string pitch_class;  // "Bb"
+    int midi = 0;             // the equal-tempered step named (MIDI number)
+    double offset_cents = 0;  // cents_above_root minus that step's cents above the root
 };
 
 // The one speller for "which note is this, over this root": the root as the

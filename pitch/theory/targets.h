@@ -15,22 +15,22 @@
 namespace beatless::pitch {
 
 struct Target {
-    Interval interval;   // above the root; below when < 1/1
-    std::string name;    // of the trade, or empty
+    Interval interval;  // above the root; below when < 1/1
+    std::string name;   // of the trade, or empty
 };
 
 struct TargetSet {
-    std::string id;        // file stem: "tritones"
-    std::string title;     // "Tritone family"
-    std::string about;     // one sentence for the screen
+    std::string id;     // file stem: "tritones"
+    std::string title;  // "Tritone family"
+    std::string about;  // one sentence for the screen
     std::vector<Target> targets;
 };
 
 struct TargetMatch {
-    std::size_t index = 0;        // into TargetSet::targets
-    int octaves = 0;              // octave shift applied to the target
-    double target_cents = 0.0;    // the target's cents after the shift
-    double dev_cents = 0.0;       // measured minus target: + is sharp
+    std::size_t index = 0;      // into TargetSet::targets
+    int octaves = 0;            // octave shift applied to the target
+    double target_cents = 0.0;  // the target's cents after the shift
+    double dev_cents = 0.0;     // measured minus target: + is sharp
 };
 
 // Nearest target to measured_cents (above the root). The set must not be empty.

@@ -14,12 +14,12 @@
 namespace beatless::bench {
 
 struct Context {
-    bool quick = false;   // fewer cases, for a smoke run
+    bool quick = false;  // fewer cases, for a smoke run
 };
 
 struct Section {
-    std::string name;     // "yin"
-    std::string what;     // one line for the listing
+    std::string name;  // "yin"
+    std::string what;  // one line for the listing
     std::function<void(Context&)> run;
 };
 
@@ -42,4 +42,4 @@ double percentile(std::vector<double> v, double p);  // p in 0..100
 #define BEATLESS_BENCH_CAT2(a, b) a##b
 #define BEATLESS_BENCH_CAT(a, b) BEATLESS_BENCH_CAT2(a, b)
 #define BEATLESS_BENCH_SECTION(name, what, fn) \
-    static ::beatless::bench::Registrar BEATLESS_BENCH_CAT(bench_registrar_, __LINE__){name, what, fn}
+    static ::beatless::bench::Registrar BEATLESS_BENCH_CAT(bench_registrar_, __LINE__) { name, what, fn }

@@ -52,8 +52,10 @@ const char* verdict(bool ok) { return ok ? "PASS" : "FAIL"; }
 
 void print_speed(double audio_s, double cpu_s, double bar) {
     const double xrt = audio_s / cpu_s;
-    std::printf("  speed               %.0f x real time = %.1f minutes of audio per second (%.2f s CPU for %.0f s)   bar >= %.0f x: %s\n",
-                xrt, xrt / 60.0, cpu_s, audio_s, bar, verdict(xrt >= bar));
+    std::printf(
+        "  speed               %.0f x real time = %.1f minutes of audio per second (%.2f s CPU for %.0f s)   bar >= "
+        "%.0f x: %s\n",
+        xrt, xrt / 60.0, cpu_s, audio_s, bar, verdict(xrt >= bar));
 }
 
 // Resident set size in kB (Linux /proc/self/status, VmRSS).
@@ -103,11 +105,17 @@ void one_voice(Context& ctx, const ScratchDir& dir) {
     }
     const double mx = dev_err.empty() ? NAN : *std::max_element(dev_err.begin(), dev_err.end());
     const double rmx = *std::max_element(root_err.begin(), root_err.end());
-    std::printf("one voice: %d takes (%.0f s, 24-bit WAV), drone 87-247 Hz, five tritones off by -3.5..+3.5 c, vibrato, noise at -60 dBFS\n",
-                takes, audio_s);
-    std::printf("  deviation error     median %.3f c   p95 %.3f c   max %.3f c   takes with notes missed: %d   misnamed: %d   bar max < 1 c: %s\n",
-                percentile(dev_err, 50), percentile(dev_err, 95), mx, missed, misnamed, verdict(mx < 1.0 && missed == 0 && misnamed == 0));
-    std::printf("  root error          median %.4f c   max %.4f c   bar max <= 0.2 c: %s\n", percentile(root_err, 50), rmx, verdict(rmx <= 0.2));
+    std::printf(
+        "one voice: %d takes (%.0f s, 24-bit WAV), drone 87-247 Hz, five tritones off by -3.5..+3.5 c, vibrato, noise "
+        "at -60 dBFS\n",
+        takes, audio_s);
+    std::printf(
+        "  deviation error     median %.3f c   p95 %.3f c   max %.3f c   takes with notes missed: %d   misnamed: %d   "
+        "bar max < 1 c: %s\n",
+        percentile(dev_err, 50), percentile(dev_err, 95), mx, missed, misnamed,
+        verdict(mx < 1.0 && missed == 0 && misnamed == 0));
+    std::printf("  root error          median %.4f c   max %.4f c   bar max <= 0.2 c: %s\n", percentile(root_err, 50),
+                rmx, verdict(rmx <= 0.2));
     print_speed(audio_s, cpu, 200.0);
 }
 
@@ -126,10 +134,12 @@ void two_voices(Context& ctx, const ScratchDir& dir) {
         std::vector<HeldDyad> truth;
         std::vector<std::size_t> target;
         for (int k = 0; k < 7; ++k) {
-            const std::size_t ti = static_cast<std::size_t>(u(rng) * static_cast<double>(set.targets.size())) % set.targets.size();
+            const std::size_t ti =
+                static_cast<std::size_t>(u(rng) * static_cast<double>(set.targets.size())) % set.targets.size();
             const pitch::Ratio r = set.targets[ti].interval.ratio();
             const double f_low = 120.0 * std::exp2(1.5 * u(rng));
-            const double lo = 0.2 * std::pow(10.0, -12.0 * u(rng) / 20.0), hi = 0.2 * std::pow(10.0, -12.0 * u(rng) / 20.0);
+            const double lo = 0.2 * std::pow(10.0, -12.0 * u(rng) / 20.0),
+                         hi = 0.2 * std::pow(10.0, -12.0 * u(rng) / 20.0);
             truth.push_back({static_cast<int>(r.num), static_cast<int>(r.den), offs[k], lo, hi, f_low});
             target.push_back(ti);
         }
@@ -155,16 +165,23 @@ void two_voices(Context& ctx, const ScratchDir& dir) {
             }
             dev_err.push_back(std::fabs(d.dev_cents - truth[k].off_cents));
             ++beat_total;
-            if (std::fabs(d.measured_beat_hz - d.predicted_beat_hz) <= std::max(0.1 * d.predicted_beat_hz, 0.2)) ++beat_ok;
-            else misses += " " + std::to_string(d.predicted_beat_hz).substr(0, 5) + "/" +
-                           (std::isfinite(d.measured_beat_hz) ? std::to_string(d.measured_beat_hz).substr(0, 5) : std::string("none"));
+            if (std::fabs(d.measured_beat_hz - d.predicted_beat_hz) <= std::max(0.1 * d.predicted_beat_hz, 0.2))
+                ++beat_ok;
+            else
+                misses += " " + std::to_string(d.predicted_beat_hz).substr(0, 5) + "/" +
+                          (std::isfinite(d.measured_beat_hz) ? std::to_string(d.measured_beat_hz).substr(0, 5)
+                                                             : std::string("none"));
         }
     }
     const double mx = dev_err.empty() ? NAN : *std::max_element(dev_err.begin(), dev_err.end());
-    std::printf("two voices: %d files of 7 double stops held %.1f s (%.0f s), 8 just targets, offsets 0/+-3/+-7/+-12 c, f_low 120-340 Hz, 0..-12 dB each\n",
-                files, hold, audio_s);
-    std::printf("  interval error      median %.3f c   p95 %.3f c   max %.3f c   files with dyads missed: %d   bar max < 1 c: %s\n",
-                percentile(dev_err, 50), percentile(dev_err, 95), mx, missed, verdict(mx < 1.0 && missed == 0));
+    std::printf(
+        "two voices: %d files of 7 double stops held %.1f s (%.0f s), 8 just targets, offsets 0/+-3/+-7/+-12 c, f_low "
+        "120-340 Hz, 0..-12 dB each\n",
+        files, hold, audio_s);
+    std::printf(
+        "  interval error      median %.3f c   p95 %.3f c   max %.3f c   files with dyads missed: %d   bar max < 1 c: "
+        "%s\n",
+        percentile(dev_err, 50), percentile(dev_err, 95), mx, missed, verdict(mx < 1.0 && missed == 0));
     std::printf("  measured beat within 10 %% or 0.2 Hz of the predicted: %d of %d dyads%s%s\n", beat_ok, beat_total,
                 misses.empty() ? "" : "; the others (predicted/measured Hz):", misses.c_str());
     print_speed(audio_s, cpu, 50.0);
@@ -184,7 +201,8 @@ long peak_rss_kb(const ScratchDir& dir, const Take& take, double minutes, std::s
     req.targets = tritone_set();
     req.keep_trace = true;  // as for --report
     long peak = rss_kb();
-    const ui::OneVoiceAnalysis a = ui::analyze_one_voice(req, [&](double, const char*) { peak = std::max(peak, rss_kb()); });
+    const ui::OneVoiceAnalysis a =
+        ui::analyze_one_voice(req, [&](double, const char*) { peak = std::max(peak, rss_kb()); });
     *notes = a.notes.size();
     std::remove(path.c_str());
     return peak;
@@ -197,12 +215,14 @@ void memory(Context& ctx, const ScratchDir& dir) {
     const long before = rss_kb();
     const long a = peak_rss_kb(dir, take, short_min, &n_short);
     const long b = peak_rss_kb(dir, take, long_min, &n_long);
-    std::printf("memory: resident size during the analysis (one voice, with the report's trace), the same take repeated\n");
-    std::printf("  %4.0f min: peak %ld kB (%zu notes)   %4.0f min: peak %ld kB (%zu notes)   before: %ld kB\n", short_min, a, n_short,
-                long_min, b, n_long, before);
+    std::printf(
+        "memory: resident size during the analysis (one voice, with the report's trace), the same take repeated\n");
+    std::printf("  %4.0f min: peak %ld kB (%zu notes)   %4.0f min: peak %ld kB (%zu notes)   before: %ld kB\n",
+                short_min, a, n_short, long_min, b, n_long, before);
     const double per_min = static_cast<double>(b - a) / (long_min - short_min);
-    std::printf("  growth %.1f kB per minute of audio (the note list: about %.0f bytes a note)   bar < 50 kB/min: %s\n", per_min,
-                static_cast<double>(sizeof(pitch::NoteResult) + sizeof(std::int64_t)), verdict(per_min < 50.0));
+    std::printf("  growth %.1f kB per minute of audio (the note list: about %.0f bytes a note)   bar < 50 kB/min: %s\n",
+                per_min, static_cast<double>(sizeof(pitch::NoteResult) + sizeof(std::int64_t)),
+                verdict(per_min < 50.0));
 }
 
 void run(Context& ctx) {
@@ -213,4 +233,6 @@ void run(Context& ctx) {
 }
 }  // namespace
 
-BEATLESS_BENCH_SECTION("analyze", "beatless analyze on WAV files: one voice (root pass + comb + YIN + notes), two voices, memory", run);
+BEATLESS_BENCH_SECTION("analyze",
+                       "beatless analyze on WAV files: one voice (root pass + comb + YIN + notes), two voices, memory",
+                       run);

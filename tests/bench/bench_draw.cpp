@@ -21,7 +21,8 @@ struct Size {
 void run_draw(bench::Context& ctx) {
     const int frames = ctx.quick ? 30 : 300;
     const Size sizes[] = {{1280, 800}, {1920, 1080}};
-    std::printf("%-10s %8s %8s %8s %8s %10s %10s %9s %9s\n", "size", "best", "median", "p95", "build", "rects", "triangles", "vertices", "bar");
+    std::printf("%-10s %8s %8s %8s %8s %10s %10s %9s %9s\n", "size", "best", "median", "p95", "build", "rects",
+                "triangles", "vertices", "bar");
     for (const Size& s : sizes) {
         ui::HostConfig hc;
         hc.width_px = s.w;
@@ -55,12 +56,13 @@ void run_draw(bench::Context& ctx) {
         char name[32];
         std::snprintf(name, sizeof name, "%dx%d", s.w, s.h);
         const bool barred = s.w == 1280;
-        std::printf("%-10s %6.2fms %6.2fms %6.2fms %6.2fms %10zu %10zu %9d %9s\n", name, bench::percentile(raster_ms, 0), med, p95, bench::percentile(build_ms, 50),
-                    raster.stats().rects, raster.stats().triangles, vertices,
-                    barred ? (med <= 4.0 ? "<=4 ms ok" : ">4 ms FAIL") : "-");
+        std::printf("%-10s %6.2fms %6.2fms %6.2fms %6.2fms %10zu %10zu %9d %9s\n", name,
+                    bench::percentile(raster_ms, 0), med, p95, bench::percentile(build_ms, 50), raster.stats().rects,
+                    raster.stats().triangles, vertices, barred ? (med <= 4.0 ? "<=4 ms ok" : ">4 ms FAIL") : "-");
     }
-    std::printf("best/median/p95: clear + rasterize per frame (thread CPU); build: ImGui frame build, median;\n"
-                "rects: axis-aligned quads filled as spans; triangles: general path; bar: median <= 4 ms at 1280x800\n");
+    std::printf(
+        "best/median/p95: clear + rasterize per frame (thread CPU); build: ImGui frame build, median;\n"
+        "rects: axis-aligned quads filled as spans; triangles: general path; bar: median <= 4 ms at 1280x800\n");
 }
 
 BEATLESS_BENCH_SECTION("draw", "CPU rasterizer: busy tuner-like screen at 1280x800 and 1920x1080", run_draw);

@@ -43,7 +43,8 @@ audio::DroneSettings drone_at(double root, audio::Timbre t, double level_dbfs) {
 
 void latency(const bench::Context& ctx) {
     std::printf("latency from a step to a settled reading (hop 5 ms, drone on, removal on; published per block)\n");
-    std::printf("%8s %6s %9s %10s %12s %12s %12s\n", "rate Hz", "block", "f0 Hz", "step", "settle 1c ms", "settle 5c ms", "tracker ms");
+    std::printf("%8s %6s %9s %10s %12s %12s %12s\n", "rate Hz", "block", "f0 Hz", "step", "settle 1c ms",
+                "settle 5c ms", "tracker ms");
     const double f0s[] = {100.0, 150.0, 220.0, 330.0, 440.0};
     double worst_5c = 0.0, worst_1c = 0.0;
     const struct {
@@ -62,16 +63,19 @@ void latency(const bench::Context& ctx) {
             rig.voice = test::voice_of(steps, root, rate, 1.9, 0.1);
             pitch::ReadingConfig rc;
             rc.root_hz = root;
-            rig.open(rc, set_of({"1/1", "9/8", "5/4", "4/3", "3/2", "5/3", "15/8"}), drone_at(root, audio::Timbre::round, -30.0),
-                     audio::RoomConfig{});
+            rig.open(rc, set_of({"1/1", "9/8", "5/4", "4/3", "3/2", "5/3", "15/8"}),
+                     drone_at(root, audio::Timbre::round, -30.0), audio::RoomConfig{});
             rig.run();
-            const auto c1 = test::check_step(rig.readings, steps[1], root, rate, set_of({"1/1", "9/8", "5/4", "4/3", "3/2", "5/3", "15/8"}), 1.0);
-            const auto c5 = test::check_step(rig.readings, steps[1], root, rate, set_of({"1/1", "9/8", "5/4", "4/3", "3/2", "5/3", "15/8"}), 5.0);
+            const auto c1 = test::check_step(rig.readings, steps[1], root, rate,
+                                             set_of({"1/1", "9/8", "5/4", "4/3", "3/2", "5/3", "15/8"}), 1.0);
+            const auto c5 = test::check_step(rig.readings, steps[1], root, rate,
+                                             set_of({"1/1", "9/8", "5/4", "4/3", "3/2", "5/3", "15/8"}), 5.0);
             const double ms1 = 1000.0 * static_cast<double>(c1.settle_samples) / rate;
             const double ms5 = 1000.0 * static_cast<double>(c5.settle_samples) / rate;
             worst_1c = std::max(worst_1c, ms1);
             worst_5c = std::max(worst_5c, ms5);
-            std::printf("%8.0f %6zu %9.1f %10s %12.1f %12.1f %12.1f\n", rate, su.block, f_new, "3/2->15/8", ms1, ms5, 1000.0 * rig.engine.status().tracker_delay_s);
+            std::printf("%8.0f %6zu %9.1f %10s %12.1f %12.1f %12.1f\n", rate, su.block, f_new, "3/2->15/8", ms1, ms5,
+                        1000.0 * rig.engine.status().tracker_delay_s);
         }
     }
     std::printf("worst settle: %.1f ms (1 cent), %.1f ms (5 cents); bar 40 ms\n\n", worst_1c, worst_5c);
@@ -79,7 +83,8 @@ void latency(const bench::Context& ctx) {
     // Below the default floor (70 Hz): the settings' lower floors for cello
     // and double bass, with the span they need. No bar; the price of range.
     std::printf("lower floors (48 kHz, block 256): the span grows to hold two periods of the floor\n");
-    std::printf("%9s %8s %9s %9s %12s %6s %12s %12s\n", "floor Hz", "span ms", "root Hz", "f0 Hz", "step", "drone", "settle 1c ms", "settle 5c ms");
+    std::printf("%9s %8s %9s %9s %12s %6s %12s %12s\n", "floor Hz", "span ms", "root Hz", "f0 Hz", "step", "drone",
+                "settle 1c ms", "settle 5c ms");
     const pitch::TargetSet set = set_of({"1/1", "9/8", "5/4", "4/3", "3/2", "5/3", "15/8"});
     struct Low {
         double floor_hz, root_hz;
@@ -88,29 +93,31 @@ void latency(const bench::Context& ctx) {
     // A cello's C string over a G1 drone (C2 = 4/3, then D2 = 3/2); a double
     // bass over E1 (F#1 = 9/8, then G#1 = 5/4).
     for (const Low& lo : {Low{55.0, 48.999, "4/3", "3/2"}, Low{38.0, 41.203, "9/8", "5/4"}})
-      for (const bool drone_on : {true, false}) {
-        const double rate = 48000.0;
-        audio::EngineConfig ec;
-        ec.f_min_hz = lo.floor_hz;
-        test::LiveRig rig(rate, 256, ec);
-        const std::vector<test::Step> steps = {{0.3, 1.0, lo.from, 1.5}, {1.0, 1.8, lo.to, -2.5}};
-        rig.voice = test::voice_of(steps, lo.root_hz, rate, 1.9, 0.1);
-        pitch::ReadingConfig rc;
-        rc.root_hz = lo.root_hz;
-        audio::DroneSettings dd = drone_at(lo.root_hz, audio::Timbre::round, -30.0);
-        dd.on = drone_on;
-        rig.open(rc, set, dd, audio::RoomConfig{});
-        rig.run();
-        const auto c1 = test::check_step(rig.readings, steps[1], lo.root_hz, rate, set, 1.0);
-        const auto c5 = test::check_step(rig.readings, steps[1], lo.root_hz, rate, set, 5.0);
-        pitch::YinConfig yc;
-        yc.sample_rate_hz = rate;
-        yc.f_min_hz = lo.floor_hz;
-        const std::string step = std::string(lo.from) + "->" + lo.to;
-        std::printf("%9.0f %8.1f %9.1f %9.1f %12s %6s %12.1f %12.1f\n", lo.floor_hz, 1000.0 * std::max(0.030, pitch::YinTracker::min_span_s(yc)),
-                    lo.root_hz, lo.root_hz * pitch::parse_interval(lo.to).value(), step.c_str(), drone_on ? "on" : "off",
-                    1000.0 * static_cast<double>(c1.settle_samples) / rate, 1000.0 * static_cast<double>(c5.settle_samples) / rate);
-    }
+        for (const bool drone_on : {true, false}) {
+            const double rate = 48000.0;
+            audio::EngineConfig ec;
+            ec.f_min_hz = lo.floor_hz;
+            test::LiveRig rig(rate, 256, ec);
+            const std::vector<test::Step> steps = {{0.3, 1.0, lo.from, 1.5}, {1.0, 1.8, lo.to, -2.5}};
+            rig.voice = test::voice_of(steps, lo.root_hz, rate, 1.9, 0.1);
+            pitch::ReadingConfig rc;
+            rc.root_hz = lo.root_hz;
+            audio::DroneSettings dd = drone_at(lo.root_hz, audio::Timbre::round, -30.0);
+            dd.on = drone_on;
+            rig.open(rc, set, dd, audio::RoomConfig{});
+            rig.run();
+            const auto c1 = test::check_step(rig.readings, steps[1], lo.root_hz, rate, set, 1.0);
+            const auto c5 = test::check_step(rig.readings, steps[1], lo.root_hz, rate, set, 5.0);
+            pitch::YinConfig yc;
+            yc.sample_rate_hz = rate;
+            yc.f_min_hz = lo.floor_hz;
+            const std::string step = std::string(lo.from) + "->" + lo.to;
+            std::printf("%9.0f %8.1f %9.1f %9.1f %12s %6s %12.1f %12.1f\n", lo.floor_hz,
+                        1000.0 * std::max(0.030, pitch::YinTracker::min_span_s(yc)), lo.root_hz,
+                        lo.root_hz * pitch::parse_interval(lo.to).value(), step.c_str(), drone_on ? "on" : "off",
+                        1000.0 * static_cast<double>(c1.settle_samples) / rate,
+                        1000.0 * static_cast<double>(c5.settle_samples) / rate);
+        }
     std::printf("(-0.0: did not settle)\n");
     std::printf("\n");
 }
@@ -153,15 +160,19 @@ void cpu(const bench::Context& ctx) {
             an_s += t2 - t1;
             for (std::size_t i = 0; i < rig.block; ++i) spk[i] = out[2 * i];
         }
-        const char* names[] = {"analysis, no drone removal", "analysis + removal (round drone)", "analysis + removal (bright+fifth)"};
+        const char* names[] = {"analysis, no drone removal", "analysis + removal (round drone)",
+                               "analysis + removal (bright+fifth)"};
         std::printf("%-34s %14.2f %11.2f%%\n", names[variant], 1000.0 * an_s / secs, 100.0 * an_s / secs);
-        if (variant == 2) std::printf("%-34s %14.2f %11.2f%%\n", "callbacks (capture + drone render)", 1000.0 * cb_s / secs, 100.0 * cb_s / secs);
+        if (variant == 2)
+            std::printf("%-34s %14.2f %11.2f%%\n", "callbacks (capture + drone render)", 1000.0 * cb_s / secs,
+                        100.0 * cb_s / secs);
     }
     std::printf("bar: full path under 2%% of one core\n\n");
 }
 
 void removal(const bench::Context& ctx) {
-    std::printf("drone removal: worst |dev - truth| over the steady note (48 kHz, bright drone, room 7 ms / 0.8 / 3 kHz)\n");
+    std::printf(
+        "drone removal: worst |dev - truth| over the steady note (48 kHz, bright drone, room 7 ms / 0.8 / 3 kHz)\n");
     std::printf("%8s %10s %14s %16s\n", "voice", "drone dB", "removal c", "no removal c");
     const double rate = 48000.0, root = 110.0;
     for (double louder_db : {6.0, 12.0}) {
@@ -184,7 +195,8 @@ void removal(const bench::Context& ctx) {
                 room.process_add(spk, mic);
                 double ed = 0, ev = 0;
                 for (std::size_t i = spk.size() / 4; i < spk.size(); ++i) ed += double(mic[i]) * mic[i];
-                for (std::size_t i = static_cast<std::size_t>(0.6 * rate); i < static_cast<std::size_t>(2.4 * rate); ++i)
+                for (std::size_t i = static_cast<std::size_t>(0.6 * rate); i < static_cast<std::size_t>(2.4 * rate);
+                     ++i)
                     ev += double(rig.voice[i]) * rig.voice[i];
                 const double drone_rms = std::sqrt(ed / (0.75 * rate)), voice_rms = std::sqrt(ev / (1.8 * rate));
                 const double scale = drone_rms * std::pow(10.0, -louder_db / 20.0) / voice_rms;

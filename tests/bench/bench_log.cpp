@@ -10,17 +10,17 @@
 //     with --target and as JSON. Bar: under 0.5 s.
 // Times are thread CPU time (the machine is shared); wall time is printed
 // beside it, since fsync waits do not show as CPU time.
-#include "ui/session/rng.h"
 #include "tests/bench/bench.h"
 #include "ui/session/log_summary.h"
 #include "ui/session/practice_log.h"
+#include "ui/session/rng.h"
 
+#include <unistd.h>
 #include <chrono>
-#include <cstdlib>
 #include <cstdio>
+#include <cstdlib>
 #include <filesystem>
 #include <string>
-#include <unistd.h>
 #include <vector>
 
 namespace {
@@ -34,19 +34,20 @@ double wall_s() {
     return duration<double>(steady_clock::now().time_since_epoch()).count();
 }
 
-const char* kTargets[] = {"8/7", "7/6",   "6/5",  "5/4",  "9/7",  "4/3",    "15/11",   "11/8", "7/5",  "45/32",
-                          "600c", "64/45", "10/7", "16/11", "3/2", "14/9", "8/5", "5/3", "12/7", "7/4",
-                          "9/8", "11/9", "14/11", "11/7", "18/11", "13/8", "15/8", "729/512", "1024/729", "2/1"};
+const char* kTargets[] = {"8/7",  "7/6",   "6/5",   "5/4",   "9/7",   "4/3",  "15/11", "11/8",    "7/5",      "45/32",
+                          "600c", "64/45", "10/7",  "16/11", "3/2",   "14/9", "8/5",   "5/3",     "12/7",     "7/4",
+                          "9/8",  "11/9",  "14/11", "11/7",  "18/11", "13/8", "15/8",  "729/512", "1024/729", "2/1"};
 
 Attempt make_attempt(ui::Rng& rng, long index, std::size_t records, long days) {
     Attempt a;
     const long day = static_cast<long>(rng.below(static_cast<std::uint64_t>(days)));
     const int sec = static_cast<int>(rng.below(86400));
     // Days from 2023-01-01, as a date string (30-day months are enough for a spread).
-    const int y = 2023 + static_cast<int>(day / 360), m = 1 + static_cast<int>(day % 360 / 30), d = 1 + static_cast<int>(day % 30);
+    const int y = 2023 + static_cast<int>(day / 360), m = 1 + static_cast<int>(day % 360 / 30),
+              d = 1 + static_cast<int>(day % 30);
     char when[64];
-    std::snprintf(when, sizeof when, "%04d-%02d-%02dT%02d:%02d:%02d.%03dZ", y, m, std::min(d, 28), sec / 3600, sec / 60 % 60,
-                  sec % 60, static_cast<int>(index % 1000));
+    std::snprintf(when, sizeof when, "%04d-%02d-%02dT%02d:%02d:%02d.%03dZ", y, m, std::min(d, 28), sec / 3600,
+                  sec / 60 % 60, sec % 60, static_cast<int>(index % 1000));
     a.started_at = when;
     a.kind = index % 10 == 9 ? AttemptKind::ear : AttemptKind::hold;
     a.drill = a.kind == AttemptKind::ear ? "ear-tritones" : "hold-tritones";
@@ -88,7 +89,8 @@ void bench_write(bool quick, const fs::path& dir) {
     std::printf("write one attempt, 6000-record trace (96 KB), %d attempts\n", n);
     std::printf("  %-22s %10s %10s\n", "", "median", "p95");
     std::printf("  %-22s %8.3f ms %7.3f ms\n", "thread CPU", med, p95);
-    std::printf("  %-22s %8.3f ms %7.3f ms\n", "wall (incl. fsync)", bench::percentile(wall_ms, 50), bench::percentile(wall_ms, 95));
+    std::printf("  %-22s %8.3f ms %7.3f ms\n", "wall (incl. fsync)", bench::percentile(wall_ms, 50),
+                bench::percentile(wall_ms, 95));
     std::printf("  bar: CPU median under 5 ms ... %s\n", med < 5.0 ? "pass" : "FAIL");
 }
 
@@ -107,8 +109,8 @@ void bench_history(bool quick, const fs::path& dir) {
         }
     }
     std::error_code ec;
-    std::printf("\nhistory over %ld attempts (30 targets + 1 ear drill over 2 years; log %.1f MB, built in %.1f s)\n", n,
-                static_cast<double>(fs::file_size(db, ec)) / 1e6, wall_s() - b0);
+    std::printf("\nhistory over %ld attempts (30 targets + 1 ear drill over 2 years; log %.1f MB, built in %.1f s)\n",
+                n, static_cast<double>(fs::file_size(db, ec)) / 1e6, wall_s() - b0);
     struct Case {
         const char* what;
         HistoryOptions options;
@@ -147,8 +149,10 @@ void run_log(bench::Context& ctx) {
     fs::create_directories(dir);
     bench_write(ctx.quick, dir);
     bench_history(ctx.quick, dir);
-    if (!std::getenv("BEATLESS_BENCH_KEEP")) fs::remove_all(dir);
-    else std::printf("kept %s\n", dir.c_str());
+    if (!std::getenv("BEATLESS_BENCH_KEEP"))
+        fs::remove_all(dir);
+    else
+        std::printf("kept %s\n", dir.c_str());
 }
 
 }  // namespace

@@ -34,17 +34,21 @@ int main(int argc, char** argv) {
     Context ctx;
     std::vector<std::string> wanted;
     for (int i = 1; i < argc; ++i) {
-        if (std::strcmp(argv[i], "--quick") == 0) ctx.quick = true;
+        if (std::strcmp(argv[i], "--quick") == 0)
+            ctx.quick = true;
         else if (std::strcmp(argv[i], "--list") == 0) {
             for (const auto& s : sections()) std::printf("%-10s %s\n", s.name.c_str(), s.what.c_str());
             return 0;
         } else if (argv[i][0] == '-') {
-            std::fprintf(stderr, "beatless-bench: unknown option '%s' (use --quick, --list or section names)\n", argv[i]);
+            std::fprintf(stderr, "beatless-bench: unknown option '%s' (use --quick, --list or section names)\n",
+                         argv[i]);
             return 2;
-        } else wanted.emplace_back(argv[i]);
+        } else
+            wanted.emplace_back(argv[i]);
     }
     for (const auto& w : wanted) {
-        const bool known = std::any_of(sections().begin(), sections().end(), [&](const Section& s) { return s.name == w; });
+        const bool known =
+            std::any_of(sections().begin(), sections().end(), [&](const Section& s) { return s.name == w; });
         if (!known) {
             std::fprintf(stderr, "beatless-bench: no section '%s' (see --list)\n", w.c_str());
             return 2;

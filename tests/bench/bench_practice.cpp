@@ -7,12 +7,12 @@
 // Bar: median <= 4 ms at 1280x800 on one core, so 60 frames per second leave
 // most of the core to the analysis.
 #include "tests/bench/bench.h"
-#include "ui/session/app_state.h"
 #include "ui/render/imgui_host.h"
-#include "ui/screens/palette.h"
 #include "ui/render/raster.h"
-#include "ui/screens/screen.h"
 #include "ui/render/window.h"
+#include "ui/screens/palette.h"
+#include "ui/screens/screen.h"
+#include "ui/session/app_state.h"
 
 #include <cstdio>
 #include <cstdlib>
@@ -88,11 +88,13 @@ void run_practice(bench::Context& ctx) {
                     bench::percentile(raster_ms, 95), bench::percentile(build_ms, 50), vertices,
                     s.w == 1280 ? (med <= 4.0 ? "<=4 ms ok" : ">4 ms FAIL") : "-");
     }
-    std::printf("best/median/p95: clear + rasterize per frame (thread CPU); build: ImGui frame of the screens, median\n");
+    std::printf(
+        "best/median/p95: clear + rasterize per frame (thread CPU); build: ImGui frame of the screens, median\n");
 
     const char* display = std::getenv("DISPLAY");
     if (display == nullptr || *display == '\0') {
-        std::printf("window: no display; run `xvfb-run -a beatless-bench practice` for frames per second in the window\n");
+        std::printf(
+            "window: no display; run `xvfb-run -a beatless-bench practice` for frames per second in the window\n");
         return;
     }
     ui::AppOptions o = demo_options();
@@ -116,12 +118,16 @@ void run_practice(bench::Context& ctx) {
     });
     app.shutdown();
     const double n = r.frames > 0 ? r.frames : 1;
-    std::printf("window %dx%d: %d frames in %.2f s = %.1f frames/s (no vsync); CPU per frame: build %.2f ms, rasterize %.2f ms, "
-                "upload+swap %.2f ms\n",
-                r.width_px, r.height_px, r.frames, r.wall_s, r.wall_s > 0 ? r.frames / r.wall_s : 0.0, 1e3 * r.build_cpu_s / n,
-                1e3 * r.raster_cpu_s / n, 1e3 * r.show_cpu_s / n);
+    std::printf(
+        "window %dx%d: %d frames in %.2f s = %.1f frames/s (no vsync); CPU per frame: build %.2f ms, rasterize %.2f "
+        "ms, "
+        "upload+swap %.2f ms\n",
+        r.width_px, r.height_px, r.frames, r.wall_s, r.wall_s > 0 ? r.frames / r.wall_s : 0.0, 1e3 * r.build_cpu_s / n,
+        1e3 * r.raster_cpu_s / n, 1e3 * r.show_cpu_s / n);
 }
 
-BEATLESS_BENCH_SECTION("practice", "Practice screen: rasterizer per frame at 1280x800 and 1920x1080; frames/s in the window", run_practice);
+BEATLESS_BENCH_SECTION("practice",
+                       "Practice screen: rasterizer per frame at 1280x800 and 1920x1080; frames/s in the window",
+                       run_practice);
 
 }  // namespace

@@ -6,11 +6,11 @@
 // random vibratos. Note segmentation: speed over tracker-like frames (the
 // one-voice `analyze` speed needs the tracker and is measured with it).
 // Signals come from tests/mix_signals.h and are made before timing starts.
+#include "pitch/dsp/vibrato.h"
 #include "pitch/measure/dyad_segment.h"
 #include "pitch/measure/root_detect.h"
 #include "pitch/measure/segment.h"
 #include "pitch/measure/two_voice.h"
-#include "pitch/dsp/vibrato.h"
 #include "tests/bench/bench.h"
 #include "tests/mix_signals.h"
 
@@ -47,15 +47,17 @@ void two_voice(Context& ctx, const TargetSet& set, double noise_rms, const char*
     int wrong_frames = 0, frames_total = 0, beat_ok = 0, beat_slow = 0, beat_miss_fast = 0;
     double miss_max_hz = 0.0;  // fastest true beat among those misses
     for (int c = 0; c < cases; ++c) {
-        const std::size_t ti = static_cast<std::size_t>(u(rng) * static_cast<double>(set.targets.size())) % set.targets.size();
+        const std::size_t ti =
+            static_cast<std::size_t>(u(rng) * static_cast<double>(set.targets.size())) % set.targets.size();
         const Ratio r = set.targets[ti].interval.ratio();
-        const double off = offs[c % 7] + (u(rng) - 0.5);  // near the listed offsets, not exactly on them
+        const double off = offs[c % 7] + (u(rng) - 0.5);       // near the listed offsets, not exactly on them
         const double f_low = 100.0 * std::exp2(2.0 * u(rng));  // 100 .. 400 Hz
         const double f_high = f_low * r.value() * std::exp2(off / 1200.0);
         const double lo = 0.2 * std::pow(10.0, -12.0 * u(rng) / 20.0), hi = 0.2 * std::pow(10.0, -12.0 * u(rng) / 20.0);
         std::vector<float> x(static_cast<std::size_t>(dur_s * kFs), 0.0f);
         add_tone(x, kFs, f_low, 0.0, dur_s, lo, rolloff(12, 0.8 + 0.4 * u(rng)));
-        add_tone(x, kFs, f_high, 0.0, dur_s, hi, rolloff(12, 0.8 + 0.4 * u(rng)), {0.5, 1.0, 1.5, 2.0, 2.5, 3.0, 0.2, 0.4, 0.6, 0.8, 1.2, 1.4});
+        add_tone(x, kFs, f_high, 0.0, dur_s, hi, rolloff(12, 0.8 + 0.4 * u(rng)),
+                 {0.5, 1.0, 1.5, 2.0, 2.5, 3.0, 0.2, 0.4, 0.6, 0.8, 1.2, 1.4});
         add_noise(x, noise_rms, 1000 + static_cast<std::uint64_t>(c));
         const double truth_beat = std::fabs(r.den * f_high - r.num * f_low);
 
@@ -78,7 +80,8 @@ void two_voice(Context& ctx, const TargetSet& set, double noise_rms, const char*
         cpu += thread_cpu_s() - t0;
         audio_s += dur_s;
         const bool slow = truth_beat < 1.0 / TwoVoiceConfig{}.beat_history_s;
-        if (std::fabs(last.measured_beat_hz - truth_beat) <= std::max(0.1 * truth_beat, 0.2)) ++beat_ok;
+        if (std::fabs(last.measured_beat_hz - truth_beat) <= std::max(0.1 * truth_beat, 0.2))
+            ++beat_ok;
         else if (!slow) {
             ++beat_miss_fast;
             miss_max_hz = std::max(miss_max_hz, truth_beat);
@@ -92,20 +95,28 @@ void two_voice(Context& ctx, const TargetSet& set, double noise_rms, const char*
         }
     }
     const double med = percentile(dev_err, 50), p95 = percentile(dev_err, 95);
-    std::printf("two voices, %s: %d mixtures (%.0f s), ratios of 12 just targets, offsets 0/+-3/+-7/+-12 c (+-0.5), f_low 100-400 Hz, 0..-12 dB each\n",
-                label, cases, audio_s);
-    std::printf("  interval error      median %.4f c   p95 %.4f c   max %.4f c   frames off target or one voice: %d of %d\n", med, p95,
-                dev_err.empty() ? NAN : *std::max_element(dev_err.begin(), dev_err.end()), wrong_frames, frames_total);
+    std::printf(
+        "two voices, %s: %d mixtures (%.0f s), ratios of 12 just targets, offsets 0/+-3/+-7/+-12 c (+-0.5), f_low "
+        "100-400 Hz, 0..-12 dB each\n",
+        label, cases, audio_s);
+    std::printf(
+        "  interval error      median %.4f c   p95 %.4f c   max %.4f c   frames off target or one voice: %d of %d\n",
+        med, p95, dev_err.empty() ? NAN : *std::max_element(dev_err.begin(), dev_err.end()), wrong_frames,
+        frames_total);
     std::printf("  beat-rate error     median %.3f %%  p95 %.3f %% (beats > 1 Hz)   abs median %.3f Hz  p95 %.3f Hz\n",
-                100.0 * percentile(beat_rel, 50), 100.0 * percentile(beat_rel, 95), percentile(beat_abs, 50), percentile(beat_abs, 95));
-    std::printf("  beat within 10 %% or 0.2 Hz of |q f_high - p f_low|: %d of %d mixtures; %d beat slower than one per\n"
-                "                      history (reported as 0 Hz), misses among the faster ones: %d (true beats <= %.2f Hz)\n",
-                beat_ok, cases, beat_slow, beat_miss_fast, miss_max_hz);
+                100.0 * percentile(beat_rel, 50), 100.0 * percentile(beat_rel, 95), percentile(beat_abs, 50),
+                percentile(beat_abs, 95));
+    std::printf(
+        "  beat within 10 %% or 0.2 Hz of |q f_high - p f_low|: %d of %d mixtures; %d beat slower than one per\n"
+        "                      history (reported as 0 Hz), misses among the faster ones: %d (true beats <= %.2f Hz)\n",
+        beat_ok, cases, beat_slow, beat_miss_fast, miss_max_hz);
     if (timing) {
         const double xrt = audio_s / cpu;
-        std::printf("  speed               %.1f x real time (%.3f s CPU for %.0f s)   bar >= 50 x: %s\n", xrt, cpu, audio_s, verdict(xrt >= 50.0));
+        std::printf("  speed               %.1f x real time (%.3f s CPU for %.0f s)   bar >= 50 x: %s\n", xrt, cpu,
+                    audio_s, verdict(xrt >= 50.0));
     }
-    if (noise_rms < 1e-4) std::printf("  bar: median interval error <= 0.5 c on clean mixtures: %s\n", verdict(med <= 0.5));
+    if (noise_rms < 1e-4)
+        std::printf("  bar: median interval error <= 0.5 c on clean mixtures: %s\n", verdict(med <= 0.5));
 }
 
 // Both voices with vibrato (5.5 and 6.1 Hz): the per-frame interval swings
@@ -157,21 +168,29 @@ void two_voice_vibrato(Context& ctx) {
                     if (seg.push(f, dyad)) keep(dyad);
                     if (f.t_s < 0.3 || f.t_s > 3.7) continue;
                     ++total;
-                    if (f.voices != 2 || f.target_index != static_cast<int>(ti)) ++lost;
-                    else d.push_back(f.dev_cents - off);
+                    if (f.voices != 2 || f.target_index != static_cast<int>(ti))
+                        ++lost;
+                    else
+                        d.push_back(f.dev_cents - off);
                 }
             }
             if (seg.finish(dyad)) keep(dyad);
             if (!d.empty()) med.push_back(std::fabs(percentile(d, 50)));
             // One held interval is sung: the longest dyad found must cover most of it.
-            if (std::isfinite(held_err) && longest >= 3.0) held.push_back(held_err);
-            else ++dyads_missed;
+            if (std::isfinite(held_err) && longest >= 3.0)
+                held.push_back(held_err);
+            else
+                ++dyads_missed;
         }
-        std::printf("  +-%2.0f c vibrato     |median deviation error| per mixture: median %.3f c  max %.3f c   frames lost or misnamed: %d of %d\n",
-                    depth, percentile(med, 50), med.empty() ? NAN : *std::max_element(med.begin(), med.end()), lost, total);
-        std::printf("                    held interval (as analyze reports it): |error| median %.3f c  max %.3f c   missed or split: %d of %d\n",
-                    held.empty() ? NAN : percentile(held, 50), held.empty() ? NAN : *std::max_element(held.begin(), held.end()),
-                    dyads_missed, per_depth);
+        std::printf(
+            "  +-%2.0f c vibrato     |median deviation error| per mixture: median %.3f c  max %.3f c   frames lost or "
+            "misnamed: %d of %d\n",
+            depth, percentile(med, 50), med.empty() ? NAN : *std::max_element(med.begin(), med.end()), lost, total);
+        std::printf(
+            "                    held interval (as analyze reports it): |error| median %.3f c  max %.3f c   missed or "
+            "split: %d of %d\n",
+            held.empty() ? NAN : percentile(held, 50), held.empty() ? NAN : *std::max_element(held.begin(), held.end()),
+            dyads_missed, per_depth);
     }
 }
 
@@ -186,12 +205,13 @@ void root_detection(Context& ctx) {
         const double root = 55.0 * std::exp2(3.0 * u(rng));
         auto notes = tritone_notes();
         for (auto& [r, d] : notes) d = -15.0 + 30.0 * u(rng);
-        const Take take = drone_and_voice(kFs, root, notes, 500 + static_cast<std::uint64_t>(c), root < 150 ? 1 : 0, 1.6, 2e-3,
-                                          0.06 + 0.12 * u(rng), 0.25);
+        const Take take = drone_and_voice(kFs, root, notes, 500 + static_cast<std::uint64_t>(c), root < 150 ? 1 : 0,
+                                          1.6, 2e-3, 0.06 + 0.12 * u(rng), 0.25);
         RootDetector rd(RootDetectConfig{});
         const double t0 = thread_cpu_s();
         for (std::size_t i = 0; i < take.samples.size(); i += 4096)
-            rd.push(std::span<const float>(take.samples.data() + i, std::min<std::size_t>(4096, take.samples.size() - i)));
+            rd.push(
+                std::span<const float>(take.samples.data() + i, std::min<std::size_t>(4096, take.samples.size() - i)));
         const RootEstimate e = rd.estimate();
         cpu += thread_cpu_s() - t0;
         audio_s += take.dur_s;
@@ -199,9 +219,11 @@ void root_detection(Context& ctx) {
         err.push_back(std::fabs(1200.0 * std::log2(e.root_hz / root)));
     }
     const double mx = *std::max_element(err.begin(), err.end());
-    std::printf("root detection: %d takes (%.0f s), drone 55-440 Hz under a louder voice with vibrato\n", cases, audio_s);
-    std::printf("  root error          median %.4f c   p95 %.4f c   max %.4f c   not found: %d   bar max <= 0.2 c: %s\n",
-                percentile(err, 50), percentile(err, 95), mx, missed, verdict(mx <= 0.2 && missed == 0));
+    std::printf("root detection: %d takes (%.0f s), drone 55-440 Hz under a louder voice with vibrato\n", cases,
+                audio_s);
+    std::printf(
+        "  root error          median %.4f c   p95 %.4f c   max %.4f c   not found: %d   bar max <= 0.2 c: %s\n",
+        percentile(err, 50), percentile(err, 95), mx, missed, verdict(mx <= 0.2 && missed == 0));
     std::printf("  speed               %.0f x real time\n", audio_s / cpu);
 }
 
@@ -220,16 +242,19 @@ void vibrato_centre(Context& ctx) {
         const double t0 = thread_cpu_s();
         for (int k = 0; k < 400; ++k) {
             const double t = 0.005 * k;
-            const VibratoReading& r = vc.push(t, centre + depth * std::sin(6.283185307179586 * rate * t + phase) + nd(rng), true);
+            const VibratoReading& r =
+                vc.push(t, centre + depth * std::sin(6.283185307179586 * rate * t + phase) + nd(rng), true);
             if (t >= 0.7) err.push_back(std::fabs(r.centre_cents - centre));
         }
         cpu += thread_cpu_s() - t0;
         frames += 400;
     }
     const double p95 = percentile(err, 95), mx = *std::max_element(err.begin(), err.end());
-    std::printf("vibrato centre: %d vibratos, 5-7 Hz, +-20..60 c, any phase, 0.3 c frame jitter, readings from 0.7 s on\n", cases);
-    std::printf("  centre error        median %.4f c   p95 %.4f c   max %.4f c   bar p95 <= 0.2 c: %s\n", percentile(err, 50), p95,
-                mx, verdict(p95 <= 0.2));
+    std::printf(
+        "vibrato centre: %d vibratos, 5-7 Hz, +-20..60 c, any phase, 0.3 c frame jitter, readings from 0.7 s on\n",
+        cases);
+    std::printf("  centre error        median %.4f c   p95 %.4f c   max %.4f c   bar p95 <= 0.2 c: %s\n",
+                percentile(err, 50), p95, mx, verdict(p95 <= 0.2));
     std::printf("  speed               %.2f us per frame\n", 1e6 * cpu / static_cast<double>(frames));
 }
 
@@ -264,8 +289,10 @@ void segmentation(Context& ctx) {
     }
     const double mx = err.empty() ? NAN : *std::max_element(err.begin(), err.end());
     std::printf("note segmentation (frames made from known f0 paths, 0.5 c jitter): %d takes of 5 tritones\n", takes);
-    std::printf("  deviation error     median %.4f c   p95 %.4f c   max %.4f c   takes with notes missed: %d   bar max < 1 c: %s\n",
-                percentile(err, 50), percentile(err, 95), mx, missing, verdict(mx < 1.0 && missing == 0));
+    std::printf(
+        "  deviation error     median %.4f c   p95 %.4f c   max %.4f c   takes with notes missed: %d   bar max < 1 c: "
+        "%s\n",
+        percentile(err, 50), percentile(err, 95), mx, missing, verdict(mx < 1.0 && missing == 0));
     std::printf("  speed               %.0f x real time (segmenter alone; tracker not included)\n", audio_s / cpu);
 }
 

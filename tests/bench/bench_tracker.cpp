@@ -20,6 +20,7 @@
 #include "tests/signals.h"
 #include "tests/timbre_signals.h"
 
+#include <unistd.h>
 #include <algorithm>
 #include <cmath>
 #include <cstdio>
@@ -30,7 +31,6 @@
 #include <memory>
 #include <random>
 #include <string>
-#include <unistd.h>
 #include <vector>
 
 using namespace beatless;
@@ -39,7 +39,7 @@ namespace {
 
 constexpr double kRate = 44100.0;
 constexpr double kTwoPi = 6.283185307179586;
-constexpr double kLead = 0.3;         // s of silence or noise before and after the note
+constexpr double kLead = 0.3;  // s of silence or noise before and after the note
 constexpr std::size_t kAubioBuf = 2048;
 
 // Truth at t: f0 > 0 voiced, 0 unvoiced, < 0 not scored (near an edge or a change).
@@ -48,8 +48,8 @@ using Truth = std::function<double(double)>;
 struct Case {
     std::vector<float> x;
     Truth truth;
-    std::vector<double> changes_s;   // note changes (steps), for settling
-    Truth exact;                     // unmasked truth, for settling
+    std::vector<double> changes_s;  // note changes (steps), for settling
+    Truth exact;                    // unmasked truth, for settling
 };
 
 struct Frame {
@@ -106,11 +106,11 @@ void score(const std::vector<Frame>& frames, const Case& c, Score& s) {
                 if (!ok) break;
                 settled = it->t_s;
             }
-            (tol == 5.0 ? s.settle5_ms : s.settle1_ms).push_back(std::isnan(settled) ? 1e3 * (tn - tc) : 1e3 * (settled - tc));
+            (tol == 5.0 ? s.settle5_ms : s.settle1_ms)
+                .push_back(std::isnan(settled) ? 1e3 * (tn - tc) : 1e3 * (settled - tc));
         }
     }
 }
-
 
 std::vector<pitch::PitchFrame> run_ours_full(const std::vector<float>& x) {
     pitch::YinTracker yin(pitch::YinConfig{});
@@ -124,7 +124,8 @@ std::vector<pitch::PitchFrame> run_ours_full(const std::vector<float>& x) {
 }
 
 // Reported voiced frames on voiced truth, binned by confidence: count and count within 50 c.
-void calibration(const std::vector<pitch::PitchFrame>& frames, const Case& c, std::vector<std::pair<std::size_t, std::size_t>>& cal) {
+void calibration(const std::vector<pitch::PitchFrame>& frames, const Case& c,
+                 std::vector<std::pair<std::size_t, std::size_t>>& cal) {
     for (const auto& p : frames) {
         const double truth = c.truth(p.t_s);
         if (truth <= 0.0 || !p.voiced() || p.confidence < 0.5) continue;
@@ -144,13 +145,16 @@ double log_uniform(std::mt19937_64& rng, double lo, double hi) {
     std::uniform_real_distribution<double> u(std::log(lo), std::log(hi));
     return std::exp(u(rng));
 }
-double uniform(std::mt19937_64& rng, double lo, double hi) { return std::uniform_real_distribution<double>(lo, hi)(rng); }
+double uniform(std::mt19937_64& rng, double lo, double hi) {
+    return std::uniform_real_distribution<double>(lo, hi)(rng);
+}
 
 std::size_t samples(double s) { return static_cast<std::size_t>(std::lround(s * kRate)); }
 
 // Silence, the note (body_s), silence; truth voiced inside, unvoiced outside,
 // not scored within `edge_s` of the note's ends.
-Case framed(const std::vector<float>& note, double body_s, const test::F0Track& f0, double edge_s, double tail_dontcare_s = 0) {
+Case framed(const std::vector<float>& note, double body_s, const test::F0Track& f0, double edge_s,
+            double tail_dontcare_s = 0) {
     Case c;
     c.x.assign(samples(kLead), 0.0f);
     c.x.insert(c.x.end(), note.begin(), note.end());
@@ -189,7 +193,8 @@ void print_row(const std::string& name, const char* who, const Score& s, const B
                 pct(s.gross, s.reported), pct(s.octave + s.fifth, s.reported), frac(s.recalled, s.voiced),
                 pct(s.false_alarms, s.unvoiced));
     if (!s.settle5_ms.empty())
-        std::printf("  settle 5c/1c %.1f/%.1f ms", bench::percentile(s.settle5_ms, 50), bench::percentile(s.settle1_ms, 50));
+        std::printf("  settle 5c/1c %.1f/%.1f ms", bench::percentile(s.settle5_ms, 50),
+                    bench::percentile(s.settle1_ms, 50));
     if (bar) std::printf("  bar %s: %s", bar->text, bar->met ? (bar->met(s) ? "met" : "NOT met") : "-");
     std::printf("\n");
 }
@@ -229,18 +234,21 @@ std::vector<Class> make_classes(bool quick) {
     const double body = 0.8;
     const double edge = 0.04;
     std::vector<Class> cls;
-    const test::Voice vowels[] = {test::Voice{730, 1090, 2440}, test::Voice{270, 2290, 3010}, test::Voice{300, 870, 2240},
-                                  test::Voice{850, 1220, 2810}, test::Voice{590, 880, 2540}};
+    const test::Voice vowels[] = {test::Voice{730, 1090, 2440}, test::Voice{270, 2290, 3010},
+                                  test::Voice{300, 870, 2240}, test::Voice{850, 1220, 2810},
+                                  test::Voice{590, 880, 2540}};
     auto vowel = [&]() { return vowels[rng() % 5]; };
     auto sung_vibrato = [&](double lo, double hi, const test::Voice& v, test::F0Track& f0) {
-        f0 = vibrato_track(log_uniform(rng, lo, hi), uniform(rng, 15, 100), uniform(rng, 4.5, 7.5), uniform(rng, 0, kTwoPi));
+        f0 = vibrato_track(log_uniform(rng, lo, hi), uniform(rng, 15, 100), uniform(rng, 4.5, 7.5),
+                           uniform(rng, 0, kTwoPi));
         return test::sung_tone(kRate, samples(body), f0, v, rng());
     };
 
     // Clean sung vibrato.
     {
         Class c{"vibrato clean", {}, {"RPA1>=0.95 med<=0.3c", [](const Score& s) {
-                                          return frac(s.within1, s.voiced) >= 0.95 && bench::percentile(s.err, 50) <= 0.3;
+                                          return frac(s.within1, s.voiced) >= 0.95 &&
+                                                 bench::percentile(s.err, 50) <= 0.3;
                                       }}};
         for (int i = 0; i < n; ++i) {
             test::F0Track f0;
@@ -263,7 +271,9 @@ std::vector<Class> make_classes(bool quick) {
         }
         cls.push_back(std::move(c));
     }
-    auto gross_recall = [](const Score& s) { return pct(s.gross, s.reported) <= 0.3 && frac(s.recalled, s.voiced) >= 0.98; };
+    auto gross_recall = [](const Score& s) {
+        return pct(s.gross, s.reported) <= 0.3 && frac(s.recalled, s.voiced) >= 0.98;
+    };
     // Section: four voices of one note, detuned (s.d. 8 c), each with its own slight vibrato; truth the mean in cents.
     {
         Class c{"section of 4 voices", {}, {"gross<=0.3% rec>=0.98", gross_recall}};
@@ -273,8 +283,8 @@ std::vector<Class> make_classes(bool quick) {
             std::vector<float> mix(samples(body), 0.0f);
             const auto d = test::gaussian(4, rng());
             for (int k = 0; k < 4; ++k) {
-                voices.push_back(vibrato_track(centre * std::exp2(8.0 * d[static_cast<std::size_t>(k)] / 1200.0), uniform(rng, 5, 25),
-                                               uniform(rng, 4.5, 6.5), uniform(rng, 0, kTwoPi)));
+                voices.push_back(vibrato_track(centre * std::exp2(8.0 * d[static_cast<std::size_t>(k)] / 1200.0),
+                                               uniform(rng, 5, 25), uniform(rng, 4.5, 6.5), uniform(rng, 0, kTwoPi)));
                 test::Voice v = vowel();
                 v.jitter = 0.002;
                 v.shimmer_db = 0.3;
@@ -295,13 +305,16 @@ std::vector<Class> make_classes(bool quick) {
     {
         Class c{"bowed, weak fundamental", {}, {"gross<=0.3% rec>=0.98", gross_recall}};
         for (int i = 0; i < n; ++i) {
-            const auto f0 = vibrato_track(log_uniform(rng, 65, 440), uniform(rng, 5, 20), uniform(rng, 5, 6.5), uniform(rng, 0, kTwoPi));
+            const auto f0 = vibrato_track(log_uniform(rng, 65, 440), uniform(rng, 5, 20), uniform(rng, 5, 6.5),
+                                          uniform(rng, 0, kTwoPi));
             const auto x = test::bowed_tone(kRate, samples(body), f0, uniform(rng, 0.08, 0.15), 0.1, rng());
             c.cases.push_back(framed(x, body, f0, edge));
         }
         cls.push_back(std::move(c));
     }
-    auto room_bar = [](const Score& s) { return frac(s.within10, s.voiced) >= 0.98 && pct(s.gross, s.reported) <= 0.5; };
+    auto room_bar = [](const Score& s) {
+        return frac(s.within10, s.voiced) >= 0.98 && pct(s.gross, s.reported) <= 0.5;
+    };
     // Rooms: three sung notes (0.4 s each, steps up to 7 semitones, vibrato +-30 c), RT60 0.3-1.5 s, direct-to-reverberant 0 dB.
     {
         Class c{"room RT60 0.3-1.5 s", {}, {"RPA10>=0.98 gross<=0.5%", room_bar}};
@@ -318,7 +331,7 @@ std::vector<Class> make_classes(bool quick) {
             Case cs = framed(note, len, f0, edge);
             cs.x = test::in_room(cs.x, kRate, uniform(rng, 0.3, 1.5), 0.0, rng());
             const Truth inner = cs.truth;
-            cs.truth = [=](double t) {   // not scored within 60 ms after a change, nor in the reverberant tail
+            cs.truth = [=](double t) {  // not scored within 60 ms after a change, nor in the reverberant tail
                 const double u = t - kLead;
                 if (u > 1.2) return -1.0;
                 for (double ch : {0.4, 0.8})
@@ -347,7 +360,8 @@ std::vector<Class> make_classes(bool quick) {
     const struct {
         test::NoiseColour colour;
         const char* name;
-    } colours[] = {{test::NoiseColour::pink, "pink"}, {test::NoiseColour::brown, "brown"}, {test::NoiseColour::babble, "babble"}};
+    } colours[] = {
+        {test::NoiseColour::pink, "pink"}, {test::NoiseColour::brown, "brown"}, {test::NoiseColour::babble, "babble"}};
     for (const auto& col : colours)
         for (double snr : {20.0, 10.0, 5.0}) {
             Class c{std::string(col.name) + " " + std::to_string(static_cast<int>(snr)) + " dB", {}, {}};
@@ -383,7 +397,8 @@ std::vector<Class> make_classes(bool quick) {
     {
         Class c{"low strings 41-65 Hz", {}, {}};
         for (int i = 0; i < n; ++i) {
-            const auto f0 = vibrato_track(log_uniform(rng, 41.2, 65), uniform(rng, 0, 10), 5.5, uniform(rng, 0, kTwoPi));
+            const auto f0 =
+                vibrato_track(log_uniform(rng, 41.2, 65), uniform(rng, 0, 10), 5.5, uniform(rng, 0, kTwoPi));
             const auto x = test::bowed_tone(kRate, samples(body), f0, uniform(rng, 0.08, 0.15), 0.3, rng());
             c.cases.push_back(framed(x, body, f0, 0.06));
         }
@@ -391,10 +406,13 @@ std::vector<Class> make_classes(bool quick) {
     }
     // Note steps: sung straight tone, a new note every 0.3 s (1..7 semitones up or down), 100-440 Hz.
     {
-        Class c{"note steps 100-440 Hz", {}, {"settle 5c<=12ms 1c<=15ms", [](const Score& s) {
-                                                  return bench::percentile(s.settle5_ms, 50) <= 12.0 &&
-                                                         bench::percentile(s.settle1_ms, 50) <= 15.0;
-                                              }}, true};
+        Class c{"note steps 100-440 Hz",
+                {},
+                {"settle 5c<=12ms 1c<=15ms",
+                 [](const Score& s) {
+                     return bench::percentile(s.settle5_ms, 50) <= 12.0 && bench::percentile(s.settle1_ms, 50) <= 15.0;
+                 }},
+                true};
         for (int i = 0; i < n; ++i) {
             std::vector<double> f(5);
             f[0] = log_uniform(rng, 130, 330);
@@ -405,13 +423,17 @@ std::vector<Class> make_classes(bool quick) {
                 f[k] = f[k - 1] * std::exp2(s / 12.0);
             }
             const double len = 0.3 * static_cast<double>(f.size());
-            auto f0 = [f](double t) { return f[std::min<std::size_t>(f.size() - 1, static_cast<std::size_t>(std::max(0.0, t) / 0.3))]; };
+            auto f0 = [f](double t) {
+                return f[std::min<std::size_t>(f.size() - 1, static_cast<std::size_t>(std::max(0.0, t) / 0.3))];
+            };
             Case cs = framed(test::sung_tone(kRate, samples(len), f0, vowel(), rng()), len, f0, edge);
             const Truth inner = cs.truth;
             cs.exact = [=](double t) { return f0(t - kLead); };
-            cs.truth = [=](double t) {   // within 50 ms after a change only the settling time is scored
+            cs.truth = [=](double t) {  // within 50 ms after a change only the settling time is scored
                 for (std::size_t k = 1; k < f.size(); ++k)
-                    if (t - kLead > 0.3 * static_cast<double>(k) - 0.03 && t - kLead < 0.3 * static_cast<double>(k) + 0.05) return -1.0;
+                    if (t - kLead > 0.3 * static_cast<double>(k) - 0.03 &&
+                        t - kLead < 0.3 * static_cast<double>(k) + 0.05)
+                        return -1.0;
                 return inner(t);
             };
             for (std::size_t k = 1; k < f.size(); ++k) cs.changes_s.push_back(kLead + 0.3 * static_cast<double>(k));
@@ -435,13 +457,14 @@ bool run_aubio(const std::vector<Class>& cls, std::size_t hop, std::vector<std::
         std::size_t off = 0;
         for (const auto& c : cls)
             for (const auto& cs : c.cases) {
-                s.write(reinterpret_cast<const char*>(cs.x.data()), static_cast<std::streamsize>(cs.x.size() * sizeof(float)));
+                s.write(reinterpret_cast<const char*>(cs.x.data()),
+                        static_cast<std::streamsize>(cs.x.size() * sizeof(float)));
                 i << off << ' ' << cs.x.size() << '\n';
                 off += cs.x.size();
             }
     }
-    const std::string cmd = "/usr/bin/python3 " BEATLESS_SOURCE_DIR "/tests/bench/aubio_pitch.py " + sig.string() + " " +
-                            idx.string() + " " + prefix.string() + " " + std::to_string(hop) + " " +
+    const std::string cmd = "/usr/bin/python3 " BEATLESS_SOURCE_DIR "/tests/bench/aubio_pitch.py " + sig.string() +
+                            " " + idx.string() + " " + prefix.string() + " " + std::to_string(hop) + " " +
                             std::to_string(kAubioBuf) + " " + std::to_string(static_cast<int>(kRate));
     const int rc = std::system(cmd.c_str());
     bool ok = rc == 0;
@@ -460,7 +483,8 @@ bool run_aubio(const std::vector<Class>& cls, std::size_t hop, std::vector<std::
                     // samples used are centred (buf / 2 + T) / 2 after its start; yinfft uses it all.
                     const double end = static_cast<double>((i + 1) * hop);
                     const double period = v[0] > 0.0f ? kRate / v[0] : 0.0;
-                    const double t = (m == 0 ? end - kAubioBuf + 0.5 * (0.5 * kAubioBuf + period) : end - 0.5 * kAubioBuf) / kRate;
+                    const double t =
+                        (m == 0 ? end - kAubioBuf + 0.5 * (0.5 * kAubioBuf + period) : end - 0.5 * kAubioBuf) / kRate;
                     fr.push_back({t, v[0] > 0.0f ? v[0] : 0.0});
                 }
                 out[m].back().push_back(std::move(fr));
@@ -473,26 +497,27 @@ bool run_aubio(const std::vector<Class>& cls, std::size_t hop, std::vector<std::
 }
 
 void run(bench::Context& ctx) {
-    std::printf("signals: tests/timbre_signals.h, 0.3 s of silence (or the noise alone) around each note; default\n"
-                "YinConfig (file path). Per class: voiced frames; RPA50/10/1 = share of voiced frames reported voiced\n"
-                "and within 50/10/1 cents; median and p95 |cents| of reported frames; gross = share of reported frames\n"
-                "over 50 c; oct/5th = share that are octave or fifth errors; recall and false alarms (FA) of the voicing.\n"
-                "aubio: yin and yinfft, buffer %zu, same hop, defaults; voiced where it reports a pitch.\n\n",
-                kAubioBuf);
+    std::printf(
+        "signals: tests/timbre_signals.h, 0.3 s of silence (or the noise alone) around each note; default\n"
+        "YinConfig (file path). Per class: voiced frames; RPA50/10/1 = share of voiced frames reported voiced\n"
+        "and within 50/10/1 cents; median and p95 |cents| of reported frames; gross = share of reported frames\n"
+        "over 50 c; oct/5th = share that are octave or fifth errors; recall and false alarms (FA) of the voicing.\n"
+        "aubio: yin and yinfft, buffer %zu, same hop, defaults; voiced where it reports a pitch.\n\n",
+        kAubioBuf);
     const double t0 = bench::thread_cpu_s();
     const auto cls = make_classes(ctx.quick);
     std::size_t audio = 0;
     for (const auto& c : cls)
         for (const auto& cs : c.cases) audio += cs.x.size();
-    std::printf("%zu classes, %.1f s of audio, generated in %.1f s CPU\n", cls.size(), static_cast<double>(audio) / kRate,
-                bench::thread_cpu_s() - t0);
+    std::printf("%zu classes, %.1f s of audio, generated in %.1f s CPU\n", cls.size(),
+                static_cast<double>(audio) / kRate, bench::thread_cpu_s() - t0);
     const std::size_t hop = pitch::YinTracker(pitch::YinConfig{}).hop_len_samples();
     std::vector<std::vector<std::vector<Frame>>> aubio[2];
     const bool have_aubio = run_aubio(cls, hop, aubio);
 
-    std::vector<std::pair<std::size_t, std::size_t>> cal(5);   // confidence 0.5-0.6 .. 0.9-1.0: frames, within 50 c
-    std::printf("\n%-26s %-7s %6s %6s %6s %6s %8s %8s %7s %6s %6s %6s\n", "class", "method", "voiced", "RPA50", "RPA10", "RPA1",
-                "med_c", "p95_c", "gross%", "oct5%", "recall", "FA%");
+    std::vector<std::pair<std::size_t, std::size_t>> cal(5);  // confidence 0.5-0.6 .. 0.9-1.0: frames, within 50 c
+    std::printf("\n%-26s %-7s %6s %6s %6s %6s %8s %8s %7s %6s %6s %6s\n", "class", "method", "voiced", "RPA50", "RPA10",
+                "RPA1", "med_c", "p95_c", "gross%", "oct5%", "recall", "FA%");
     for (std::size_t k = 0; k < cls.size(); ++k) {
         const Class& c = cls[k];
         Score ours, yin, yinfft;
@@ -510,20 +535,25 @@ void run(bench::Context& ctx) {
             print_row("", "yin", yin, nullptr);
             print_row("", "yinfft", yinfft, nullptr);
             const std::string b = behind(ours, yin, yinfft);
-            std::printf("%-26s ours %s\n", "", b.empty() ? "ahead of or level with both aubio methods on every measure"
-                                                        : ("behind the better aubio method on: " + b).c_str());
+            std::printf("%-26s ours %s\n", "",
+                        b.empty() ? "ahead of or level with both aubio methods on every measure"
+                                  : ("behind the better aubio method on: " + b).c_str());
         }
     }
-    std::printf("\nconfidence calibration (ours, every class): share of voiced-truth frames reported at a confidence\n"
-                "in the bin that are within 50 c\n%-12s %8s %10s\n", "confidence", "frames", "within50");
+    std::printf(
+        "\nconfidence calibration (ours, every class): share of voiced-truth frames reported at a confidence\n"
+        "in the bin that are within 50 c\n%-12s %8s %10s\n",
+        "confidence", "frames", "within50");
     for (std::size_t b = 0; b < cal.size(); ++b)
-        std::printf("%4.1f - %4.1f %8zu %10.3f\n", 0.5 + 0.1 * static_cast<double>(b), 0.6 + 0.1 * static_cast<double>(b), cal[b].first,
-                    frac(cal[b].second, cal[b].first));
-    std::printf("\nFile-path settling is bounded by the span: a frame's estimate mixes the old and new note until the\n"
-                "refinement's window (about 2/3 of span_s, here 50 ms) has passed the change.\n");
+        std::printf("%4.1f - %4.1f %8zu %10.3f\n", 0.5 + 0.1 * static_cast<double>(b),
+                    0.6 + 0.1 * static_cast<double>(b), cal[b].first, frac(cal[b].second, cal[b].first));
+    std::printf(
+        "\nFile-path settling is bounded by the span: a frame's estimate mixes the old and new note until the\n"
+        "refinement's window (about 2/3 of span_s, here 50 ms) has passed the change.\n");
 }
 
 }  // namespace
 
-BEATLESS_BENCH_SECTION("tracker", "pitch tracker on performer-like signals (voices, sections, strings, rooms, noise) beside aubio",
+BEATLESS_BENCH_SECTION("tracker",
+                       "pitch tracker on performer-like signals (voices, sections, strings, rooms, noise) beside aubio",
                        run);

@@ -27,8 +27,8 @@ constexpr double kRate = 44100.0;
 constexpr double kGrossCents = 50.0;
 
 struct Stats {
-    std::vector<double> err;   // cents, voiced frames that should be voiced
-    std::vector<double> crb;   // cents, one per case
+    std::vector<double> err;  // cents, voiced frames that should be voiced
+    std::vector<double> crb;  // cents, one per case
     std::size_t frames = 0, gross = 0;
     void add(const Stats& o) {
         err.insert(err.end(), o.err.begin(), o.err.end());
@@ -88,7 +88,8 @@ Stats steady(std::mt19937_64& rng, int cases, double lo, double hi, double snr_d
             const double var = test::add_white_noise(x, test::harmonic_power(parts), snr_db, rng());
             s.crb.push_back(test::harmonic_crb_cents(parts, f0, kRate, var, static_cast<std::size_t>(0.05 * kRate)));
         }
-        score(x, [f0](double) { return f0; }, s);
+        score(
+            x, [f0](double) { return f0; }, s);
     }
     return s;
 }
@@ -97,11 +98,12 @@ void run(bench::Context& ctx) {
     std::mt19937_64 rng(20240611);
     const int cases = ctx.quick ? 24 : 240;
     const double len_s = 0.25;
-    std::printf("tones: harmonic, partial amplitudes falling 6 dB/octave (a_l = a_1 / l), up to 20 partials below\n"
-                "0.9 x Nyquist, random phases, peak 0.5; f0 log-uniform at random; %.2f s each at %.0f Hz, pushed in\n"
-                "blocks of 512; default YinConfig (span 50 ms, hop %.2f ms). Errors per frame in cents; gross = error\n"
-                "> 50 cents or unvoiced. CRB = Cramer-Rao bound (std. dev.) for the 50 ms span, median over the cases.\n\n",
-                len_s, kRate, 1e3 * pitch::YinTracker(pitch::YinConfig{}).hop_s());
+    std::printf(
+        "tones: harmonic, partial amplitudes falling 6 dB/octave (a_l = a_1 / l), up to 20 partials below\n"
+        "0.9 x Nyquist, random phases, peak 0.5; f0 log-uniform at random; %.2f s each at %.0f Hz, pushed in\n"
+        "blocks of 512; default YinConfig (span 50 ms, hop %.2f ms). Errors per frame in cents; gross = error\n"
+        "> 50 cents or unvoiced. CRB = Cramer-Rao bound (std. dev.) for the 50 ms span, median over the cases.\n\n",
+        len_s, kRate, 1e3 * pitch::YinTracker(pitch::YinConfig{}).hop_s());
     print_header();
 
     // Clean.
@@ -127,14 +129,15 @@ void run(bench::Context& ctx) {
             print_row(name, static_cast<std::size_t>(cases / 4), s, crb, bar_text, ok);
             all.add(s);
         }
-        print_row("20 dB SNR 65-1000 Hz (all)", static_cast<std::size_t>(cases / 4 * 4), all, bench::percentile(all.crb, 50),
-                  "per band", all_ok);
+        print_row("20 dB SNR 65-1000 Hz (all)", static_cast<std::size_t>(cases / 4 * 4), all,
+                  bench::percentile(all.crb, 50), "per band", all_ok);
     }
     // 10 dB: gross errors <= 1%.
     {
         const Stats s = steady(rng, cases, 65.0, 1000.0, 10.0, len_s);
         const bool ok = 100.0 * static_cast<double>(s.gross) / static_cast<double>(s.frames) <= 1.0;
-        print_row("10 dB SNR 65-1000 Hz", static_cast<std::size_t>(cases), s, bench::percentile(s.crb, 50), "gross<=1%", ok);
+        print_row("10 dB SNR 65-1000 Hz", static_cast<std::size_t>(cases), s, bench::percentile(s.crb, 50), "gross<=1%",
+                  ok);
     }
     // Steady tones outside the bar's range, for information.
     {
@@ -147,9 +150,11 @@ void run(bench::Context& ctx) {
         std::uniform_real_distribution<double> rate(5.0, 6.5), depth(20.0, 60.0), ph(0.0, 6.283185307179586);
         for (int c = 0; c < cases / 2; ++c) {
             test::Vibrato v{log_uniform(rng, 110.0, 880.0), depth(rng), rate(rng), ph(rng)};
-            const auto parts = test::falling_partials(v.centre_hz * std::exp2(v.depth_cents / 1200.0), kRate, 20, 6.0, rng());
+            const auto parts =
+                test::falling_partials(v.centre_hz * std::exp2(v.depth_cents / 1200.0), kRate, 20, 6.0, rng());
             const auto x = test::vibrato_tone(kRate, static_cast<std::size_t>(0.5 * kRate), v, parts);
-            score(x, [&](double t) { return v.f0_hz(t); }, s);
+            score(
+                x, [&](double t) { return v.f0_hz(t); }, s);
         }
         print_row("vibrato 5-6.5 Hz +-20-60 c", static_cast<std::size_t>(cases / 2), s, NAN, "(info)", true);
     }
@@ -163,7 +168,8 @@ void run(bench::Context& ctx) {
             const double hi = std::max(g.f0_hz(0.0), g.f0_hz(0.5));
             const auto parts = test::falling_partials(hi, kRate, 20, 6.0, rng());
             const auto x = test::glide_tone(kRate, static_cast<std::size_t>(0.5 * kRate), g, parts);
-            score(x, [&](double t) { return g.f0_hz(t); }, s);
+            score(
+                x, [&](double t) { return g.f0_hz(t); }, s);
         }
         print_row("glide 100-1200 c/s", static_cast<std::size_t>(cases / 2), s, NAN, "(info)", true);
     }
@@ -186,9 +192,11 @@ void run(bench::Context& ctx) {
             }
         const double cpu = bench::thread_cpu_s() - t0;
         const double audio = reps * static_cast<double>(x.size()) / kRate;
-        std::printf("\nspeed: %.0f x real time (44.1 kHz mono, hop %zu samples = %.3f ms, %zu frames, %.2f us per frame; bar >= 500 x: %s)\n",
-                    audio / cpu, yin.hop_len_samples(), 1e3 * yin.hop_s(), frames, 1e6 * cpu / static_cast<double>(frames),
-                    audio / cpu >= 500.0 ? "yes" : "NO");
+        std::printf(
+            "\nspeed: %.0f x real time (44.1 kHz mono, hop %zu samples = %.3f ms, %zu frames, %.2f us per frame; bar "
+            ">= 500 x: %s)\n",
+            audio / cpu, yin.hop_len_samples(), 1e3 * yin.hop_s(), frames, 1e6 * cpu / static_cast<double>(frames),
+            audio / cpu >= 500.0 ? "yes" : "NO");
         std::printf("delay_s %.4f, decimation %zu\n", yin.delay_s(), yin.decimation());
     }
 }

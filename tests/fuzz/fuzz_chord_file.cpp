@@ -22,7 +22,6 @@ extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size
     }
     try {
         (void)pitch::parse_chord(text);
-    } catch (const Error&) {
-    }
+    } catch (const Error&) {}
     return 0;
 }

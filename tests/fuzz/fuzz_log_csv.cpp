@@ -24,12 +24,10 @@ extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size
     try {
         const std::string bytes = ui::base64_decode(text);
         if (ui::base64_decode(ui::base64_encode(bytes)) != bytes) std::abort();
-    } catch (const Error&) {
-    }
+    } catch (const Error&) {}
     try {
         (void)ui::decode_trace(data, size);
-    } catch (const Error&) {
-    }
+    } catch (const Error&) {}
     if (ui::content_uid(text).size() != 32) std::abort();
     return 0;
 }

@@ -19,16 +19,13 @@ extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size
             const auto t = pitch::tune_progression(p, rule);
             if (!std::isfinite(t.drift_cents)) std::abort();
         }
-    } catch (const Error&) {
-    }
+    } catch (const Error&) {}
     try {
         const pitch::Key k = pitch::parse_key(text, 440.0);
         if (!(k.tonic_hz > 0.0) || !std::isfinite(k.tonic_hz)) std::abort();
-    } catch (const Error&) {
-    }
+    } catch (const Error&) {}
     try {
         (void)pitch::parse_tonic(text);
-    } catch (const Error&) {
-    }
+    } catch (const Error&) {}
     return 0;
 }

@@ -23,17 +23,14 @@ extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size
             (void)pitch::prime_limit(r);
             (void)pitch::octave_reduce(r);
         }
-    } catch (const Error&) {
-    }
+    } catch (const Error&) {}
     try {
         for (auto t : pitch::parse_chord_terms(text))
             if (t <= 0) std::abort();
-    } catch (const Error&) {
-    }
+    } catch (const Error&) {}
     try {
         const double hz = pitch::parse_frequency(text);
         if (!(hz >= 1.0 && hz <= 20000.0)) std::abort();
-    } catch (const Error&) {
-    }
+    } catch (const Error&) {}
     return 0;
 }

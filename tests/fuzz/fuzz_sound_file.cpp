@@ -4,12 +4,12 @@
 #include "audio/soundfile.h"
 #include "pitch/base/error.h"
 
+#include <unistd.h>
 #include <cstddef>
 #include <cstdint>
 #include <cstdio>
 #include <cstdlib>
 #include <string>
-#include <unistd.h>
 
 extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size) {
     static const std::string path = "/tmp/beatless-fuzz-sound-" + std::to_string(::getpid()) + ".wav";

@@ -16,29 +16,29 @@
 //
 // Index: shared text helpers; One voice (JSON, CSV, text, report); Two
 // voices (the same); The command (options, checks, progress, passes).
-#include "pitch/theory/beats.h"
 #include "pitch/base/error.h"
-#include "ui/session/usage_error.h"
+#include "pitch/base/text.h"
+#include "pitch/theory/beats.h"
 #include "pitch/theory/notes.h"
 #include "pitch/theory/spelling.h"
-#include "pitch/base/text.h"
-#include "ui/session/take_analysis.h"
-#include "ui/session/take_words.h"
-#include "ui/screens/take_report.h"
 #include "ui/commands/commands.h"
+#include "ui/commands/progress.h"
+#include "ui/screens/take_report.h"
 #include "ui/session/json.h"
 #include "ui/session/log_csv.h"
-#include "ui/commands/progress.h"
+#include "ui/session/take_analysis.h"
+#include "ui/session/take_words.h"
 #include "ui/session/target_files.h"
+#include "ui/session/usage_error.h"
 
 #include <unistd.h>
 
 #include <cmath>
-#include <optional>
 #include <cstdio>
 #include <ctime>
 #include <filesystem>
 #include <memory>
+#include <optional>
 
 namespace beatless::ui {
 
@@ -47,14 +47,14 @@ namespace {
 struct AnalyzeOptions {
     std::string file;
     std::string root = "auto";
-    bool root_set = false;            // --root given on the command line
+    bool root_set = false;  // --root given on the command line
     double a4_hz = pitch::kDefaultA4Hz;
     std::string targets = "7-limit";
     int voices = 1;
     Format format = Format::text;
     std::string report;
-    std::optional<int> channel;       // 1-based; empty mixes all channels
-    std::string lowest;               // --lowest: below the file tracker's 55 Hz (a double bass)
+    std::optional<int> channel;  // 1-based; empty mixes all channels
+    std::string lowest;          // --lowest: below the file tracker's 55 Hz (a double bass)
 };
 
 constexpr double kProgressAfterS = 5.0;  // files longer than this show a progress bar (on a terminal)
@@ -79,8 +79,11 @@ std::string duration_text(double s) {
     if (s < 60.0) return pitch::format_trimmed(s, 1) + " s";
     char buf[32];
     const long whole = static_cast<long>(s);
-    if (whole >= 3600) std::snprintf(buf, sizeof buf, "%ld:%02ld:%04.1f", whole / 3600, (whole / 60) % 60, s - 60.0 * static_cast<double>(whole / 60));
-    else std::snprintf(buf, sizeof buf, "%ld:%04.1f", whole / 60, s - 60.0 * static_cast<double>(whole / 60));
+    if (whole >= 3600)
+        std::snprintf(buf, sizeof buf, "%ld:%02ld:%04.1f", whole / 3600, (whole / 60) % 60,
+                      s - 60.0 * static_cast<double>(whole / 60));
+    else
+        std::snprintf(buf, sizeof buf, "%ld:%04.1f", whole / 60, s - 60.0 * static_cast<double>(whole / 60));
     return buf;
 }
 
@@ -107,15 +110,19 @@ std::string root_words(const OneVoiceAnalysis& a, const std::string& root_typed,
     std::string s = buf;
     if (!a.root_given) return s + ", found in the file: confidence " + pitch::format_trimmed(a.root.confidence, 2);
     s += ", as given";
-    if (a.drone_hz > 0.0) s += "; drone in the file at " + pitch::format_trimmed(a.drone_hz, 3) + " Hz";
-    else s += "; no steady drone in the file";
+    if (a.drone_hz > 0.0)
+        s += "; drone in the file at " + pitch::format_trimmed(a.drone_hz, 3) + " Hz";
+    else
+        s += "; no steady drone in the file";
     return s;
 }
 
 void warn_clipping(const pitch::SignalFacts& f, const std::string& path) {
     if (f.clipped_samples == 0) return;
-    std::fprintf(stderr, "beatless: warning: %s: %lld samples at full scale (clipped), the first at %s s; pitches there may be biased\n",
-                 path.c_str(), static_cast<long long>(f.clipped_samples), pitch::format_trimmed(f.first_clip_s, 3).c_str());
+    std::fprintf(
+        stderr,
+        "beatless: warning: %s: %lld samples at full scale (clipped), the first at %s s; pitches there may be biased\n",
+        path.c_str(), static_cast<long long>(f.clipped_samples), pitch::format_trimmed(f.first_clip_s, 3).c_str());
 }
 
 void check_report_path(const std::string& path) {
@@ -125,10 +132,12 @@ void check_report_path(const std::string& path) {
     std::error_code ec;
     if (!std::filesystem::is_directory(dir, ec))
         throw Error(path + ": cannot be written (no directory " + dir.string() + ")");
-    if (access(dir.c_str(), W_OK) != 0) throw Error(path + ": cannot be written (directory " + dir.string() + " is not writable)");
+    if (access(dir.c_str(), W_OK) != 0)
+        throw Error(path + ": cannot be written (directory " + dir.string() + " is not writable)");
 }
 
-void add_summary_json(JsonWriter& j, const pitch::TargetSet& set, const std::vector<pitch::TargetSummary>& rows, bool dyads) {
+void add_summary_json(JsonWriter& j, const pitch::TargetSet& set, const std::vector<pitch::TargetSummary>& rows,
+                      bool dyads) {
     j.key("summary").begin_array();
     for (const auto& r : rows) {
         const std::string ratio = target_text(set, r.target_index);
@@ -162,7 +171,8 @@ ReportData report_of(const pitch::TargetSet& set, const std::vector<Item>& items
         d.marks.push_back(to_mark(it));
     }
     for (std::size_t i = 0; i < set.targets.size(); ++i)
-        d.targets.push_back({set.targets[i].interval.cents(), set.targets[i].interval.str(), target_name(set, static_cast<int>(i)), used[i]});
+        d.targets.push_back({set.targets[i].interval.cents(), set.targets[i].interval.str(),
+                             target_name(set, static_cast<int>(i)), used[i]});
     for (const auto& r : summary) {
         const std::string ratio = target_text(set, r.target_index);
         const std::string w = summary_words(r, ratio, dyads);
@@ -184,11 +194,15 @@ void print_one_voice(const AnalyzeOptions& o, const pitch::TargetSet& set, const
         j.begin_object().key("file").value(o.file).key("sample_rate").value(a.info.sample_rate_hz, 3);
         j.key("duration_s").value(a.info.dur_s(), 3).key("voices").value(1);
         j.key("root_hz").value(a.root_hz, 4);
-        if (a.root_given) j.key("root_confidence").null();
-        else j.key("root_confidence").value(a.root.confidence, 3);
+        if (a.root_given)
+            j.key("root_confidence").null();
+        else
+            j.key("root_confidence").value(a.root.confidence, 3);
         j.key("root_source").value(a.root_given ? "given" : "detected");
-        if (a.drone_hz > 0.0) j.key("drone_hz").value(a.drone_hz, 4);
-        else j.key("drone_hz").null();
+        if (a.drone_hz > 0.0)
+            j.key("drone_hz").value(a.drone_hz, 4);
+        else
+            j.key("drone_hz").null();
         j.key("targets").value(set.id).key("hop_s").value(a.hop_s, 7);
         j.key("clipped_samples").value(static_cast<std::int64_t>(a.facts.clipped_samples));
         j.key("notes").begin_array();
@@ -196,16 +210,23 @@ void print_one_voice(const AnalyzeOptions& o, const pitch::TargetSet& set, const
             const pitch::NoteResult& n = notes[i];
             j.begin_object().key("start_s").value(n.start_s, 4).key("end_s").value(n.end_s, 4);
             j.key("f0_hz").value(n.centre_f0_hz, 4).key("ratio").value(n.ratio, 6);
-            j.key("target").value(target_text(set, n.target_index)).key("target_name").value(target_name(set, n.target_index));
+            j.key("target")
+                .value(target_text(set, n.target_index))
+                .key("target_name")
+                .value(target_name(set, n.target_index));
             j.key("target_octaves").value(n.target_octaves);
             j.key("dev_cents").value(n.dev_cents, 3).key("spread_cents").value(n.spread_cents, 3);
             j.key("settle_s").value(n.settle_s, 3).key("beat_hz").value(n.beat_hz, 3);
             j.key("beat_in_tune_hz").value(n.beat_in_tune_hz, 3);
-            if (n.partial_root > 0) j.key("partial_root").value(n.partial_root).key("partial_voice").value(n.partial_voice);
-            else j.key("partial_root").null().key("partial_voice").null();
+            if (n.partial_root > 0)
+                j.key("partial_root").value(n.partial_root).key("partial_voice").value(n.partial_voice);
+            else
+                j.key("partial_root").null().key("partial_voice").null();
             j.key("own_partials");
-            if (n.own_partial_root > 0) j.begin_array().value(n.own_partial_root).value(n.own_partial_voice).end_array();
-            else j.null();
+            if (n.own_partial_root > 0)
+                j.begin_array().value(n.own_partial_root).value(n.own_partial_voice).end_array();
+            else
+                j.null();
             j.key("vibrato_hz").value(n.vibrato ? n.vibrato_rate_hz : 0.0, 2);
             j.key("vibrato_cents").value(n.vibrato ? n.vibrato_depth_cents : 0.0, 2);
             j.key("frames").value(n.frames).key("clipped").value(a.notes_clipped[i] > 0).end_object();
@@ -217,22 +238,27 @@ void print_one_voice(const AnalyzeOptions& o, const pitch::TargetSet& set, const
         return;
     }
     if (o.format == Format::csv) {
-        std::printf("start_s,end_s,f0_hz,ratio,target,target_name,dev_cents,spread_cents,settle_s,beat_hz,partial_root,partial_voice,beat_in_tune_hz\n");
+        std::printf(
+            "start_s,end_s,f0_hz,ratio,target,target_name,dev_cents,spread_cents,settle_s,beat_hz,partial_root,partial_"
+            "voice,beat_in_tune_hz\n");
         auto num = [](double v, int d) { return std::isfinite(v) ? pitch::format_trimmed(v, d) : std::string(); };
         for (const auto& n : notes)
             std::printf("%s,%s,%s,%s,%s,%s,%s,%s,%s,%s,%s,%s,%s\n", num(n.start_s, 4).c_str(), num(n.end_s, 4).c_str(),
-                        num(n.centre_f0_hz, 4).c_str(), num(n.ratio, 6).c_str(), csv_field(target_text(set, n.target_index)).c_str(),
+                        num(n.centre_f0_hz, 4).c_str(), num(n.ratio, 6).c_str(),
+                        csv_field(target_text(set, n.target_index)).c_str(),
                         csv_field(target_name(set, n.target_index)).c_str(), num(n.dev_cents, 3).c_str(),
                         num(n.spread_cents, 3).c_str(), num(n.settle_s, 3).c_str(), num(n.beat_hz, 3).c_str(),
                         n.partial_root > 0 ? std::to_string(n.partial_root).c_str() : "",
-                        n.partial_voice > 0 ? std::to_string(n.partial_voice).c_str() : "", num(n.beat_in_tune_hz, 3).c_str());
+                        n.partial_voice > 0 ? std::to_string(n.partial_voice).c_str() : "",
+                        num(n.beat_in_tune_hz, 3).c_str());
         return;
     }
     std::printf("%s: %s at %s Hz, one voice against a drone\n", o.file.c_str(), duration_text(a.info.dur_s()).c_str(),
                 pitch::format_trimmed(a.info.sample_rate_hz, 0).c_str());
     std::printf("%s", root_words(a, o.root, o.a4_hz).c_str());
     if (!a.root_given)
-        std::printf(" (%d harmonics agree within %s cents)", a.root.harmonics_used, pitch::format_trimmed(a.root.spread_cents, 3).c_str());
+        std::printf(" (%d harmonics agree within %s cents)", a.root.harmonics_used,
+                    pitch::format_trimmed(a.root.spread_cents, 3).c_str());
     std::printf("\n");
     std::printf("targets: %s (%s)\n\n", set.id.c_str(), set.title.c_str());
     if (notes.empty()) {
@@ -240,31 +266,36 @@ void print_one_voice(const AnalyzeOptions& o, const pitch::TargetSet& set, const
         return;
     }
     const bool drone = a.drone_hz > 0.0;
-    std::printf("%4s %8s %8s %10s %8s  %-12s %-24s %8s %8s %8s %8s %6s  %s\n", "#", "start s", "end s", "f0 Hz", "ratio", "target",
-                "name", "dev c", "spread c", "settle s", "beat Hz", "pair", "heard");
+    std::printf("%4s %8s %8s %10s %8s  %-12s %-24s %8s %8s %8s %8s %6s  %s\n", "#", "start s", "end s", "f0 Hz",
+                "ratio", "target", "name", "dev c", "spread c", "settle s", "beat Hz", "pair", "heard");
     int k = 0;
     for (std::size_t i = 0; i < notes.size(); ++i) {
         const pitch::NoteResult& n = notes[i];
         std::string tgt = target_text(set, n.target_index);
-        if (n.target_octaves != 0) tgt += (n.target_octaves > 0 ? " +" : " ") + std::to_string(n.target_octaves) + "oct";
+        if (n.target_octaves != 0)
+            tgt += (n.target_octaves > 0 ? " +" : " ") + std::to_string(n.target_octaves) + "oct";
         std::string name = target_name(set, n.target_index);
         if (name.size() > 24) name = name.substr(0, 23) + "~";
         const std::string settle = std::isfinite(n.settle_s) ? pitch::format_trimmed(n.settle_s, 2) : "never";
-        const std::string pair = n.partial_root > 0 ? std::to_string(n.partial_root) + ":" + std::to_string(n.partial_voice) : "-";
+        const std::string pair =
+            n.partial_root > 0 ? std::to_string(n.partial_root) + ":" + std::to_string(n.partial_voice) : "-";
         char beat[32] = "-";
         if (std::isfinite(n.beat_hz)) std::snprintf(beat, sizeof beat, "%.2f", n.beat_hz);
-        std::printf("%4d %8.3f %8.3f %10.3f %8.4f  %-12s %-24s %+8.1f %8.1f %8s %8s %6s  %s%s\n", ++k, n.start_s, n.end_s,
-                    n.centre_f0_hz, n.ratio, tgt.c_str(), name.c_str(), n.dev_cents, n.spread_cents, settle.c_str(), beat,
-                    pair.c_str(), beat_heard_word(n.beat_hz, drone).c_str(), a.notes_clipped[i] > 0 ? "  clipped" : "");
+        std::printf("%4d %8.3f %8.3f %10.3f %8.4f  %-12s %-24s %+8.1f %8.1f %8s %8s %6s  %s%s\n", ++k, n.start_s,
+                    n.end_s, n.centre_f0_hz, n.ratio, tgt.c_str(), name.c_str(), n.dev_cents, n.spread_cents,
+                    settle.c_str(), beat, pair.c_str(), beat_heard_word(n.beat_hz, drone).c_str(),
+                    a.notes_clipped[i] > 0 ? "  clipped" : "");
     }
     const pitch::BeatBands bands;
-    std::printf("\ndev: vibrato centre minus target (+ sharp); spread: standard deviation of the held pitch;\n"
-                "settle: onset until the centre stays within 5 cents; beat: the rate of the partials a listener hears\n"
-                "beat (pair: root partial:voice partial; a simpler ratio's pair where the target's own lies too high);\n"
-                "heard: still below %s Hz, countable below %s Hz, flutter to %s Hz, rough above%s.\n",
-                pitch::format_trimmed(bands.still_below_hz, 2).c_str(), pitch::format_trimmed(bands.countable_below_hz, 2).c_str(),
-                pitch::format_trimmed(bands.rough_above_hz, 2).c_str(),
-                drone ? "" : " (no drone in the file: rates are those a drone at the root would give)");
+    std::printf(
+        "\ndev: vibrato centre minus target (+ sharp); spread: standard deviation of the held pitch;\n"
+        "settle: onset until the centre stays within 5 cents; beat: the rate of the partials a listener hears\n"
+        "beat (pair: root partial:voice partial; a simpler ratio's pair where the target's own lies too high);\n"
+        "heard: still below %s Hz, countable below %s Hz, flutter to %s Hz, rough above%s.\n",
+        pitch::format_trimmed(bands.still_below_hz, 2).c_str(),
+        pitch::format_trimmed(bands.countable_below_hz, 2).c_str(),
+        pitch::format_trimmed(bands.rough_above_hz, 2).c_str(),
+        drone ? "" : " (no drone in the file: rates are those a drone at the root would give)");
     print_summary_text(set, a.summary, false);
 }
 
@@ -273,7 +304,8 @@ ReportData one_voice_report(const AnalyzeOptions& o, const pitch::TargetSet& set
         return ReportMark{n.start_s, n.end_s, n.cents_above_root, n.target_cents, n.dev_cents};
     });
     d.title = base_name(o.file);
-    d.subtitle = root_words(a, o.root, o.a4_hz) + "   \u00b7   targets: " + set.title + "   \u00b7   analyzed " + today_text();
+    d.subtitle =
+        root_words(a, o.root, o.a4_hz) + "   \u00b7   targets: " + set.title + "   \u00b7   analyzed " + today_text();
     d.axis_label = "cents above the root";
     d.mark_word = "note";
     d.dur_s = a.info.dur_s();
@@ -307,11 +339,17 @@ void print_two_voices(const AnalyzeOptions& o, const pitch::TargetSet& set, cons
             j.begin_object().key("start_s").value(d.start_s, 4).key("end_s").value(d.end_s, 4);
             j.key("f_low_hz").value(d.f_low_hz, 4).key("f_high_hz").value(d.f_high_hz, 4);
             j.key("interval_cents").value(d.interval_cents, 3).key("ratio").value(d.f_high_hz / d.f_low_hz, 6);
-            j.key("target").value(target_text(set, d.target_index)).key("target_name").value(target_name(set, d.target_index));
+            j.key("target")
+                .value(target_text(set, d.target_index))
+                .key("target_name")
+                .value(target_name(set, d.target_index));
             j.key("target_octaves").value(d.target_octaves);
             j.key("dev_cents").value(d.dev_cents, 3).key("spread_cents").value(d.spread_cents, 3);
             j.key("partial_low").value(d.partial_low).key("partial_high").value(d.partial_high);
-            j.key("predicted_beat_hz").value(d.predicted_beat_hz, 3).key("measured_beat_hz").value(d.measured_beat_hz, 3);
+            j.key("predicted_beat_hz")
+                .value(d.predicted_beat_hz, 3)
+                .key("measured_beat_hz")
+                .value(d.measured_beat_hz, 3);
             j.key("beat_source").value(beat_source_name(d.beat_source));
             j.key("clipped").value(d.clipped_frames > 0).end_object();
         }
@@ -323,12 +361,15 @@ void print_two_voices(const AnalyzeOptions& o, const pitch::TargetSet& set, cons
     }
     auto num = [](double v, int d) { return std::isfinite(v) ? pitch::format_trimmed(v, d) : std::string(); };
     if (o.format == Format::csv) {
-        std::printf("start_s,end_s,f_low_hz,f_high_hz,interval_cents,target,target_name,dev_cents,spread_cents,predicted_beat_hz,measured_beat_hz\n");
+        std::printf(
+            "start_s,end_s,f_low_hz,f_high_hz,interval_cents,target,target_name,dev_cents,spread_cents,predicted_beat_"
+            "hz,measured_beat_hz\n");
         for (const auto& d : dyads)
             std::printf("%s,%s,%s,%s,%s,%s,%s,%s,%s,%s,%s\n", num(d.start_s, 4).c_str(), num(d.end_s, 4).c_str(),
                         num(d.f_low_hz, 4).c_str(), num(d.f_high_hz, 4).c_str(), num(d.interval_cents, 3).c_str(),
-                        csv_field(target_text(set, d.target_index)).c_str(), csv_field(target_name(set, d.target_index)).c_str(),
-                        num(d.dev_cents, 3).c_str(), num(d.spread_cents, 3).c_str(), num(d.predicted_beat_hz, 3).c_str(),
+                        csv_field(target_text(set, d.target_index)).c_str(),
+                        csv_field(target_name(set, d.target_index)).c_str(), num(d.dev_cents, 3).c_str(),
+                        num(d.spread_cents, 3).c_str(), num(d.predicted_beat_hz, 3).c_str(),
                         num(d.measured_beat_hz, 3).c_str());
         return;
     }
@@ -344,16 +385,19 @@ void print_two_voices(const AnalyzeOptions& o, const pitch::TargetSet& set, cons
     int k = 0;
     for (const auto& d : dyads) {
         std::string tgt = target_text(set, d.target_index);
-        if (d.target_octaves != 0) tgt += (d.target_octaves > 0 ? " +" : " ") + std::to_string(d.target_octaves) + "oct";
+        if (d.target_octaves != 0)
+            tgt += (d.target_octaves > 0 ? " +" : " ") + std::to_string(d.target_octaves) + "oct";
         std::string name = target_name(set, d.target_index);
         if (name.size() > 22) name = name.substr(0, 21) + "~";
         const std::string meas = std::isfinite(d.measured_beat_hz) ? pitch::format_trimmed(d.measured_beat_hz, 2) : "-";
-        std::printf("%4d %8.3f %8.3f %9.3f %9.3f %9.2f  %-12s %-22s %+8.1f %8.1f %9.2f %9s%s\n", ++k, d.start_s, d.end_s,
-                    d.f_low_hz, d.f_high_hz, d.interval_cents, tgt.c_str(), name.c_str(), d.dev_cents, d.spread_cents,
-                    d.predicted_beat_hz, meas.c_str(), d.clipped_frames > 0 ? "  clipped" : "");
+        std::printf("%4d %8.3f %8.3f %9.3f %9.3f %9.2f  %-12s %-22s %+8.1f %8.1f %9.2f %9s%s\n", ++k, d.start_s,
+                    d.end_s, d.f_low_hz, d.f_high_hz, d.interval_cents, tgt.c_str(), name.c_str(), d.dev_cents,
+                    d.spread_cents, d.predicted_beat_hz, meas.c_str(), d.clipped_frames > 0 ? "  clipped" : "");
     }
-    std::printf("\ndev: interval minus target (+ wide); beat Hz: |q f_high - p f_low| from the f0s, for the partials p and q\n"
-                "a listener hears (a simpler ratio's where the target's own lie above the 12th or 4 kHz); measured: from those partials.\n");
+    std::printf(
+        "\ndev: interval minus target (+ wide); beat Hz: |q f_high - p f_low| from the f0s, for the partials p and q\n"
+        "a listener hears (a simpler ratio's where the target's own lie above the 12th or 4 kHz); measured: from those "
+        "partials.\n");
     print_summary_text(set, a.summary, true);
 }
 
@@ -376,7 +420,8 @@ ReportData two_voice_report(const AnalyzeOptions& o, const pitch::TargetSet& set
 int run_analyze(const AnalyzeOptions& o) {
     pitch::check_a4(o.a4_hz);
     if (o.voices != 1 && o.voices != 2) throw UsageError("--voices " + std::to_string(o.voices) + ": choose 1 or 2");
-    if (o.channel && *o.channel < 1) throw Error("--channel " + std::to_string(*o.channel) + ": channels are numbered from 1");
+    if (o.channel && *o.channel < 1)
+        throw Error("--channel " + std::to_string(*o.channel) + ": channels are numbered from 1");
     if (o.voices == 2 && o.root_set)
         throw UsageError("--root: with --voices 2 the interval is measured between the two voices; leave --root out");
     AnalysisRequest req;
@@ -420,14 +465,16 @@ void register_analyze(CLI::App& app, Runner& run) {
     auto o = std::make_shared<AnalyzeOptions>();
     CLI::App* sub = app.add_subcommand("analyze", "Note by note, how pure the intervals of a recorded take were");
     sub->add_option("FILE", o->file, "Sound file (WAV, FLAC, AIFF, Ogg)")->required();
-    CLI::Option* root = sub->add_option("--root", o->root, "The drone's root: auto (found in the file, default), a note (A2) or Hz (110)");
+    CLI::Option* root = sub->add_option("--root", o->root,
+                                        "The drone's root: auto (found in the file, default), a note (A2) or Hz (110)");
     sub->add_option("--a4", o->a4_hz, "A4 reference in Hz for note names (400-480, default 440)");
     sub->add_option("--targets", o->targets, "Target set: a built-in name or a .toml file (default 7-limit)");
     sub->add_option("--voices", o->voices, "1: a voice against a drone (default); 2: two voices from one microphone");
     add_format_option(*sub, o->format, {Format::text, Format::json, Format::csv});
     sub->add_option("--report", o->report, "Also draw a printable page (PNG) of the trace, notes and summary");
     sub->add_option("--channel", o->channel, "Channel to analyze, from 1 (default: all channels mixed)");
-    sub->add_option("--lowest", o->lowest, "One voice: the lowest note to follow, as a note (E1) or in Hz (30-200; default 55)");
+    sub->add_option("--lowest", o->lowest,
+                    "One voice: the lowest note to follow, as a note (E1) or in Hz (30-200; default 55)");
     sub->callback([o, root, &run] {
         o->root_set = root->count() > 0;
         run = [o] { return run_analyze(*o); };

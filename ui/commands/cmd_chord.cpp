@@ -6,13 +6,13 @@
 // that meet and how fast they beat for each cent one of them is off. CHORD
 // is a chord text (4:5:6:7, "1/1 5/4 3/2"), a built-in chord name
 // (harmonic-seventh) or a path to a chord file.
-#include "pitch/theory/chord.h"
 #include "pitch/base/error.h"
+#include "pitch/base/text.h"
+#include "pitch/theory/chord.h"
 #include "pitch/theory/notes.h"
 #include "pitch/theory/spelling.h"
-#include "pitch/base/text.h"
-#include "ui/session/chord_files.h"
 #include "ui/commands/commands.h"
+#include "ui/session/chord_files.h"
 #include "ui/session/json.h"
 #include "ui/session/target_files.h"
 
@@ -65,8 +65,10 @@ int run_chord(const ChordOptions& o) {
         j.begin_object();
         j.key("chord").value(file.chord.terms_text());
         j.key("title");
-        if (file.title.empty()) j.null();
-        else j.value(file.title);
+        if (file.title.empty())
+            j.null();
+        else
+            j.value(file.title);
         j.key("root_hz").value(root_hz, 3).key("a4_hz").value(o.a4_hz, 3);
         j.key("fundamental_hz").value(chart.fundamental_hz, 3);
         j.key("voices").begin_array();
@@ -98,18 +100,32 @@ int run_chord(const ChordOptions& o) {
         j.key("pairs").begin_array();
         for (const auto& b : chart.beats) {
             j.begin_object();
-            j.key("voices").begin_array().value(static_cast<int>(b.voice_a + 1)).value(static_cast<int>(b.voice_b + 1)).end_array();
+            j.key("voices")
+                .begin_array()
+                .value(static_cast<int>(b.voice_a + 1))
+                .value(static_cast<int>(b.voice_b + 1))
+                .end_array();
             j.key("interval").value(b.interval.str());
             // partials, at_hz, beat_hz_per_cent: the audible pair; own_partials: the interval's own pair (a detail).
-            if (b.heard.found) j.key("partials").begin_array().value(b.heard.partial_a).value(b.heard.partial_b).end_array();
-            else j.key("partials").null();
+            if (b.heard.found)
+                j.key("partials").begin_array().value(b.heard.partial_a).value(b.heard.partial_b).end_array();
+            else
+                j.key("partials").null();
             j.key("at_hz").value(b.heard.meet_hz, 3).key("beat_hz_per_cent").value(b.heard_hz_per_cent, 4);
             j.key("in_tune_beat_hz").value(b.heard.beat_at_target_hz, 3);
             j.key("own_partials").begin_array().value(b.lowest.partial_a).value(b.lowest.partial_b).end_array();
             j.key("coinciding").begin_array();
             for (const auto& p : b.coinciding)
-                j.begin_object().key("partials").begin_array().value(p.partial_a).value(p.partial_b).end_array()
-                    .key("at_hz").value(p.freq_a_hz, 3).key("beat_hz_per_cent").value(pitch::beat_hz_per_cent(p), 4)
+                j.begin_object()
+                    .key("partials")
+                    .begin_array()
+                    .value(p.partial_a)
+                    .value(p.partial_b)
+                    .end_array()
+                    .key("at_hz")
+                    .value(p.freq_a_hz, 3)
+                    .key("beat_hz_per_cent")
+                    .value(pitch::beat_hz_per_cent(p), 4)
                     .end_object();
             j.end_array().end_object();
         }
@@ -145,8 +161,9 @@ int run_chord(const ChordOptions& o) {
     const bool parts = !file.voice_names.empty();
     std::size_t part_w = 4;
     for (const auto& n : file.voice_names) part_w = std::max(part_w, n.size());
-    std::printf("  voice  %s%-9s %-5s %10s  %10s  %s\n", parts ? (std::string("part") + std::string(part_w - 2, ' ')).c_str() : "",
-                "ratio", "note", "Hz", "above root", "from equal temperament");
+    std::printf("  voice  %s%-9s %-5s %10s  %10s  %s\n",
+                parts ? (std::string("part") + std::string(part_w - 2, ' ')).c_str() : "", "ratio", "note", "Hz",
+                "above root", "from equal temperament");
     for (std::size_t i = 0; i < chart.voices.size(); ++i) {
         const auto& v = chart.voices[i];
         std::string part;
@@ -154,8 +171,9 @@ int run_chord(const ChordOptions& o) {
         std::printf("  %5zu  %s%-9s %-5s %10.3f  %8.1f c  %+8.1f c\n", i + 1, part.c_str(), v.ratio.str().c_str(),
                     names[i].c_str(), v.freq_hz, v.cents_from_root, v.note.offset_cents);
     }
-    std::printf("\n  \"from equal temperament\": how far above (+) or below (-) the equal-tempered note each voice\n"
-                "  sits, the amount to bend from the usual fingering or slide position.\n\n");
+    std::printf(
+        "\n  \"from equal temperament\": how far above (+) or below (-) the equal-tempered note each voice\n"
+        "  sits, the amount to bend from the usual fingering or slide position.\n\n");
 
     std::printf("Partials that beat when a voice is off (the beat rate grows by about this much per cent):\n");
     std::printf("  %-13s %-9s %-30s %10s  %s\n", "voices", "interval", "partials that meet", "at Hz", "beats per cent");
@@ -165,8 +183,8 @@ int run_chord(const ChordOptions& o) {
         const pitch::Interval iv = pitch::Interval::of(b.interval);
         const std::string* nm = iv_names.find(iv);
         if (!b.heard.found) {
-            std::printf("  %-13s %-9s %-30s %10s  %8s%s%s\n", who.c_str(), b.interval.str().c_str(), "none below the limit", "-", "-",
-                        nm ? "   " : "", nm ? nm->c_str() : "");
+            std::printf("  %-13s %-9s %-30s %10s  %8s%s%s\n", who.c_str(), b.interval.str().c_str(),
+                        "none below the limit", "-", "-", nm ? "   " : "", nm ? nm->c_str() : "");
             continue;
         }
         const std::string meet = ordinal(b.heard.partial_a) + " of " + names[b.voice_a] + " = " +
@@ -183,9 +201,11 @@ int run_chord(const ChordOptions& o) {
     }
     std::printf("\n  Higher pairs (twice, three times the partial numbers) beat twice, three times as fast.\n");
     if (fallback)
-        std::printf("  (in tune: ...): the interval's own partials lie above the %dth or above %.0f Hz; a simpler ratio's pair\n"
-                    "  beats at that rate even when the chord is just.\n",
-                    config.audible.partials_b, config.audible.max_freq_hz);
+        std::printf(
+            "  (in tune: ...): the interval's own partials lie above the %dth or above %.0f Hz; a simpler ratio's "
+            "pair\n"
+            "  beats at that rate even when the chord is just.\n",
+            config.audible.partials_b, config.audible.max_freq_hz);
     return 0;
 }
 
@@ -193,13 +213,17 @@ int run_chord(const ChordOptions& o) {
 
 void register_chord(CLI::App& app, Runner& run) {
     auto o = std::make_shared<ChordOptions>();
-    CLI::App* sub = app.add_subcommand("chord", "Chord chart of a just chord: per voice cents from equal temperament and beating partials");
-    sub->add_option("CHORD", o->chord,
-                    "A chord: 4:5:6:7, \"1/1 5/4 3/2\", a built-in name (" + [] {
-                        std::string s;
-                        for (const auto& n : builtin_names("chord")) s += (s.empty() ? "" : ", ") + n;
-                        return s;
-                    }() + ") or a .toml file")
+    CLI::App* sub = app.add_subcommand(
+        "chord", "Chord chart of a just chord: per voice cents from equal temperament and beating partials");
+    sub->add_option(
+           "CHORD", o->chord,
+           "A chord: 4:5:6:7, \"1/1 5/4 3/2\", a built-in name (" +
+               [] {
+                   std::string s;
+                   for (const auto& n : builtin_names("chord")) s += (s.empty() ? "" : ", ") + n;
+                   return s;
+               }() +
+               ") or a .toml file")
         ->required();
     sub->add_option("--root", o->root, "Chord root as a note (C3) or in Hz (130.8)")->required();
     add_a4_option(*sub, o->a4_hz);

@@ -5,8 +5,8 @@
 // then the MIDI ports (ALSA sequencer, JACK), numbered as --midi-out and
 // --midi-in take them. With no audio device at all it says so on stderr and suggests --demo.
 #include "audio/device.h"
-#include "audio/sound_system.h"
 #include "audio/midi_out.h"
+#include "audio/sound_system.h"
 #include "pitch/base/text.h"
 #include "ui/commands/commands.h"
 #include "ui/session/json.h"
@@ -48,8 +48,16 @@ int run_devices(Format format) {
         j.end_array().key("midi").begin_array();
         for (bool input : {false, true})
             for (const auto& n : numbered(midi, input))
-                j.begin_object().key("number").value(n.number).key("name").value(n.port->name).key("api").value(n.port->api)
-                    .key("direction").value(input ? "in" : "out").end_object();
+                j.begin_object()
+                    .key("number")
+                    .value(n.number)
+                    .key("name")
+                    .value(n.port->name)
+                    .key("api")
+                    .value(n.port->api)
+                    .key("direction")
+                    .value(input ? "in" : "out")
+                    .end_object();
         j.end_array().end_object();
         std::printf("%s\n", j.str().c_str());
     } else if (!devs.empty()) {
@@ -58,8 +66,9 @@ int run_devices(Format format) {
             std::string mark;
             if (d.default_input) mark += " default input";
             if (d.default_output) mark += mark.empty() ? " default output" : ", output";
-            std::printf("%5d  %-32s %-28s %3d %4d %9s%s\n", d.index, d.name.c_str(), d.host_api.c_str(), d.max_input_channels,
-                        d.max_output_channels, pitch::format_trimmed(d.default_rate_hz, 1).c_str(), mark.c_str());
+            std::printf("%5d  %-32s %-28s %3d %4d %9s%s\n", d.index, d.name.c_str(), d.host_api.c_str(),
+                        d.max_input_channels, d.max_output_channels,
+                        pitch::format_trimmed(d.default_rate_hz, 1).c_str(), mark.c_str());
         }
     }
     if (format != Format::json) {
@@ -81,7 +90,8 @@ int run_devices(Format format) {
 
 void register_devices(CLI::App& app, Runner& run) {
     auto format = std::make_shared<Format>(Format::text);
-    CLI::App* sub = app.add_subcommand("devices", "List audio devices (index, name, host API, channels, default rate) and MIDI ports");
+    CLI::App* sub = app.add_subcommand(
+        "devices", "List audio devices (index, name, host API, channels, default rate) and MIDI ports");
     add_format_option(*sub, *format, false);
     sub->callback([format, &run] { run = [format] { return run_devices(*format); }; });
 }

@@ -6,10 +6,10 @@
 // causes it. --plan prints the director's plan: every voice's cents from
 // equal temperament in every chord, one row per chord, ready to print.
 #include "pitch/base/error.h"
+#include "pitch/base/text.h"
 #include "pitch/theory/notes.h"
 #include "pitch/theory/progression.h"
 #include "pitch/theory/spelling.h"
-#include "pitch/base/text.h"
 #include "ui/commands/commands.h"
 #include "ui/session/json.h"
 #include "ui/session/target_files.h"
@@ -74,9 +74,11 @@ std::string common_words(const Context& c, const pitch::TunedChord& tc) {
     std::string held, moved;
     for (const auto& ct : tc.common) {
         const std::string n = note_of(c, tc.voices[ct.voice], false);
-        if (ct.held) held += (held.empty() ? "" : " ") + n;
-        else moved += (moved.empty() ? "" : ", ") + n + " moves " + (ct.motion_cents > 0 ? "+" : "") +
-                      pitch::format_trimmed(ct.motion_cents, 3);
+        if (ct.held)
+            held += (held.empty() ? "" : " ") + n;
+        else
+            moved += (moved.empty() ? "" : ", ") + n + " moves " + (ct.motion_cents > 0 ? "+" : "") +
+                     pitch::format_trimmed(ct.motion_cents, 3);
     }
     std::string s;
     if (!held.empty()) s = held + " held";
@@ -86,8 +88,9 @@ std::string common_words(const Context& c, const pitch::TunedChord& tc) {
 }
 
 const char* rule_title(pitch::DriftRule r) {
-    return r == pitch::DriftRule::fixed_root ? "Fixed root: every chord's root stays at its ratio from the tonic"
-                                              : "Common tones held: each chord keeps the pitch it shares with the chord before";
+    return r == pitch::DriftRule::fixed_root
+               ? "Fixed root: every chord's root stays at its ratio from the tonic"
+               : "Common tones held: each chord keeps the pitch it shares with the chord before";
 }
 
 void print_text(const Context& c, double a4_hz) {
@@ -109,8 +112,8 @@ void print_text(const Context& c, double a4_hz) {
                 root += " -> " + ratio_text(placed);
             }
             const std::string common = k == 0 ? std::string() : "   " + common_words(c, tc);
-            std::printf("  %3zu  %-*s  %-24s %10.3f%s\n", k + 1, static_cast<int>(sym_w), pc.symbol.c_str(), root.c_str(), tc.shift_cents,
-                        common.c_str());
+            std::printf("  %3zu  %-*s  %-24s %10.3f%s\n", k + 1, static_cast<int>(sym_w), pc.symbol.c_str(),
+                        root.c_str(), tc.shift_cents, common.c_str());
         }
         std::printf("  drift by the end: %s\n", drift_words(t).c_str());
         if (t.rule == pitch::DriftRule::common_tones) {
@@ -123,8 +126,9 @@ void print_text(const Context& c, double a4_hz) {
             for (std::size_t k = 1; k < t.chords.size(); ++k)
                 for (const auto& ct : t.chords[k].common)
                     if (!ct.held) {
-                        std::printf("  instead, at %s the common tone %s moves %+.3f cents\n", change_name(c, k).c_str(),
-                                    note_of(c, t.chords[k].voices[ct.voice], false).c_str(), ct.motion_cents);
+                        std::printf("  instead, at %s the common tone %s moves %+.3f cents\n",
+                                    change_name(c, k).c_str(), note_of(c, t.chords[k].voices[ct.voice], false).c_str(),
+                                    ct.motion_cents);
                         any = true;
                     }
             if (!any) std::printf("  and every common tone keeps its pitch\n");
@@ -177,12 +181,20 @@ void print_json(const Context& c, double a4_hz) {
     for (const auto& t : c.tunings) {
         j.begin_object().key("rule").value(pitch::rule_name(t.rule));
         j.key("drift_cents").value(t.drift_cents, 3).key("drift_ratio");
-        if (t.drift) j.value(t.drift->str());
-        else j.null();
+        if (t.drift)
+            j.value(t.drift->str());
+        else
+            j.null();
         j.key("causes").begin_array();
         for (const std::size_t k : t.causes)
-            j.begin_object().key("chord").value(static_cast<int>(k + 1)).key("change").value(change_name(c, k))
-                .key("step_cents").value(t.chords[k].step_cents, 3).end_object();
+            j.begin_object()
+                .key("chord")
+                .value(static_cast<int>(k + 1))
+                .key("change")
+                .value(change_name(c, k))
+                .key("step_cents")
+                .value(t.chords[k].step_cents, 3)
+                .end_object();
         j.end_array();
         j.key("chords").begin_array();
         for (std::size_t k = 0; k < t.chords.size(); ++k) {
@@ -191,26 +203,38 @@ void print_json(const Context& c, double a4_hz) {
             j.begin_object().key("index").value(static_cast<int>(k + 1)).key("symbol").value(pc.symbol);
             j.key("root_ratio").value(pc.root.str()).key("terms").value(pc.chord.terms_text());
             j.key("shift_cents").value(tc.shift_cents, 3).key("shift_ratio");
-            if (tc.shift) j.value(tc.shift->str());
-            else j.null();
+            if (tc.shift)
+                j.value(tc.shift->str());
+            else
+                j.null();
             j.key("step_cents").value(tc.step_cents, 3);
             j.key("voices").begin_array();
             for (std::size_t v = 0; v < tc.voices.size(); ++v) {
                 const auto& tv = tc.voices[v];
                 j.begin_object().key("voice").value(static_cast<int>(v + 1)).key("note").value(note_of(c, tv, true));
                 j.key("ratio");
-                if (tv.ratio) j.value(tv.ratio->str());
-                else j.null();
+                if (tv.ratio)
+                    j.value(tv.ratio->str());
+                else
+                    j.null();
                 j.key("cents_from_tonic").value(tv.cents, 3).key("freq_hz").value(freq_of(c, tv), 3);
                 j.key("et_offset_cents").value(tv.et_offset_cents, 3).end_object();
             }
             j.end_array();
             j.key("common_tones").begin_array();
             for (const auto& ct : tc.common)
-                j.begin_object().key("note").value(note_of(c, tc.voices[ct.voice], false))
-                    .key("voice").value(static_cast<int>(ct.voice + 1))
-                    .key("previous_voice").value(static_cast<int>(ct.prev_voice + 1))
-                    .key("held").value(ct.held).key("motion_cents").value(ct.motion_cents, 3).end_object();
+                j.begin_object()
+                    .key("note")
+                    .value(note_of(c, tc.voices[ct.voice], false))
+                    .key("voice")
+                    .value(static_cast<int>(ct.voice + 1))
+                    .key("previous_voice")
+                    .value(static_cast<int>(ct.prev_voice + 1))
+                    .key("held")
+                    .value(ct.held)
+                    .key("motion_cents")
+                    .value(ct.motion_cents, 3)
+                    .end_object();
             j.end_array().end_object();
         }
         j.end_array().end_object();
@@ -238,14 +262,18 @@ int run_drift(const DriftOptions& o) {
     c.key = pitch::parse_key(o.key, o.a4_hz);
     c.tonic_midi = static_cast<int>(std::lround(pitch::hz_to_midi(c.key.tonic_hz, o.a4_hz)));
     c.progression = pitch::parse_progression(c.text, c.key.mode);
-    if (o.rule != RuleChoice::common_tones) c.tunings.push_back(pitch::tune_progression(c.progression, pitch::DriftRule::fixed_root));
-    if (o.rule != RuleChoice::fixed_root) c.tunings.push_back(pitch::tune_progression(c.progression, pitch::DriftRule::common_tones));
+    if (o.rule != RuleChoice::common_tones)
+        c.tunings.push_back(pitch::tune_progression(c.progression, pitch::DriftRule::fixed_root));
+    if (o.rule != RuleChoice::fixed_root)
+        c.tunings.push_back(pitch::tune_progression(c.progression, pitch::DriftRule::common_tones));
     switch (o.format) {
         case Format::json: print_json(c, o.a4_hz); break;
         case Format::csv: print_csv(c); break;
         case Format::text:
-            if (o.plan) print_plan(c, o.a4_hz);
-            else print_text(c, o.a4_hz);
+            if (o.plan)
+                print_plan(c, o.a4_hz);
+            else
+                print_text(c, o.a4_hz);
             break;
     }
     return 0;
@@ -255,18 +283,19 @@ int run_drift(const DriftOptions& o) {
 
 void register_drift(CLI::App& app, Runner& run) {
     auto o = std::make_shared<DriftOptions>();
-    CLI::App* sub = app.add_subcommand("drift", "Comma drift of a chord progression under a fixed root and with common tones held");
+    CLI::App* sub =
+        app.add_subcommand("drift", "Comma drift of a chord progression under a fixed root and with common tones held");
     sub->add_option("PROGRESSION", o->progression,
                     "Roman numerals (\"I vi ii V7 I\", \"i iv V i\") or chords ROOT:TERMS (5/3:10:12:15)")
         ->required();
     sub->add_option("--key", o->key, "Tonic and mode: C, Eb3, \"A minor\", F#m (default C4, mode from the numerals)");
     add_a4_option(*sub, o->a4_hz);
-    const std::map<std::string, RuleChoice> rules{{"both", RuleChoice::both},
-                                                  {"fixed-root", RuleChoice::fixed_root},
-                                                  {"common-tones", RuleChoice::common_tones}};
+    const std::map<std::string, RuleChoice> rules{
+        {"both", RuleChoice::both}, {"fixed-root", RuleChoice::fixed_root}, {"common-tones", RuleChoice::common_tones}};
     sub->add_option("--rule", o->rule, "Which rule: both, fixed-root or common-tones (default both)")
         ->transform(CLI::CheckedTransformer(rules, CLI::ignore_case).description(""));
-    sub->add_flag("--plan", o->plan, "Print the director's plan: each voice's cents from equal temperament in every chord (text)");
+    sub->add_flag("--plan", o->plan,
+                  "Print the director's plan: each voice's cents from equal temperament in every chord (text)");
     add_format_option(*sub, o->format, true);
     sub->callback([o, &run] { run = [o] { return run_drift(*o); }; });
 }

@@ -23,19 +23,19 @@
 // attempt), diagnostics to stderr.
 #include "audio/demo_performer.h"
 #include "audio/device.h"
-#include "audio/sound_system.h"
 #include "audio/engine.h"
+#include "audio/sound_system.h"
 #include "pitch/base/error.h"
-#include "ui/session/usage_error.h"
-#include "ui/session/listener_model.h"
-#include "pitch/theory/notes.h"
 #include "pitch/base/text.h"
+#include "pitch/theory/notes.h"
 #include "ui/commands/commands.h"
 #include "ui/session/drill_runner.h"
 #include "ui/session/json.h"
+#include "ui/session/listener_model.h"
 #include "ui/session/log_writer.h"
 #include "ui/session/paths.h"
 #include "ui/session/safe_file.h"
+#include "ui/session/usage_error.h"
 
 #include <atomic>
 #include <chrono>
@@ -103,7 +103,8 @@ std::string hold_line(const Drill& d, const HoldResult& r, std::size_t of, Forma
         j.end_object();
         return j.str();
     }
-    std::string line = "hold " + std::to_string(r.index + 1) + " of " + std::to_string(of) + "  " + r.target.target.interval.str();
+    std::string line =
+        "hold " + std::to_string(r.index + 1) + " of " + std::to_string(of) + "  " + r.target.target.interval.str();
     if (!r.target.target.name.empty()) line += " " + r.target.target.name;
     line += ": " + hold_summary_text(s, r.tolerance_cents);
     if (const std::string sp = hold_spread_text(s); !sp.empty()) line += "; " + sp;
@@ -113,7 +114,8 @@ std::string hold_line(const Drill& d, const HoldResult& r, std::size_t of, Forma
 std::string listener_text(const ui::ListenerConfig& l) {
     if (l.kind == ui::ListenerKind::perfect) return "perfect (always right)";
     if (l.kind == ui::ListenerKind::guess) return "guessing (right half the time)";
-    return "threshold " + pitch::format_trimmed(l.threshold_cents, 2) + " c, lapse rate " + pitch::format_trimmed(100.0 * l.lapse, 1) + " %";
+    return "threshold " + pitch::format_trimmed(l.threshold_cents, 2) + " c, lapse rate " +
+           pitch::format_trimmed(100.0 * l.lapse, 1) + " %";
 }
 
 std::string ear_json(const Drill& d, const DrillRunner& run, const EarResult& r, const ui::ListenerConfig& l) {
@@ -127,7 +129,10 @@ std::string ear_json(const Drill& d, const DrillRunner& run, const EarResult& r,
     j.key("complete").value(r.complete);
     if (r.task == ui::EarTask::discriminate) {
         const ui::ThresholdEstimate& e = r.estimate;
-        j.key("estimate").value(e.verdict == ui::ThresholdVerdict::measured ? "measured" : e.verdict == ui::ThresholdVerdict::finer ? "finer" : "none");
+        j.key("estimate")
+            .value(e.verdict == ui::ThresholdVerdict::measured ? "measured"
+                   : e.verdict == ui::ThresholdVerdict::finer  ? "finer"
+                                                               : "none");
         j.key("threshold_cents").value(e.threshold_cents, 3);
         j.key("lo_cents").value(e.lo_cents, 3).key("hi_cents").value(e.hi_cents, 3);
         j.key("smallest_cents").value(e.smallest_cents, 3);
@@ -147,7 +152,10 @@ std::string ear_json(const Drill& d, const DrillRunner& run, const EarResult& r,
         }
         j.end_array();
     }
-    j.key("listener").value(l.kind == ui::ListenerKind::perfect ? "perfect" : l.kind == ui::ListenerKind::guess ? "guess" : "model");
+    j.key("listener")
+        .value(l.kind == ui::ListenerKind::perfect ? "perfect"
+               : l.kind == ui::ListenerKind::guess ? "guess"
+                                                   : "model");
     j.key("listener_cents").value(l.kind == ui::ListenerKind::model ? l.threshold_cents : NAN, 3);
     j.key("listener_lapse").value(l.lapse, 4);
     j.end_object();
@@ -162,10 +170,12 @@ std::string ear_text(const Drill& d, const DrillRunner& run, const EarResult& r,
         out += "  stopped " + stopped_by_text(r.stopped_by, d.staircase);
         if (std::isfinite(r.reversal_mean_cents))
             out += "; mean of the last " + std::to_string(d.staircase.threshold_reversals) + " reversals " +
-                   pitch::format_trimmed(r.reversal_mean_cents, r.reversal_mean_cents < 10 ? 1 : 0) + " c (Levitt's estimate)";
+                   pitch::format_trimmed(r.reversal_mean_cents, r.reversal_mean_cents < 10 ? 1 : 0) +
+                   " c (Levitt's estimate)";
         out += "\n  mistunings played, cents (x wrong):";
         for (const EarAnswer& a : run.answers())
-            out += " " + pitch::format_trimmed(a.question.level_cents, a.question.level_cents < 10 ? 2 : 1) + (a.correct ? "" : "x");
+            out += " " + pitch::format_trimmed(a.question.level_cents, a.question.level_cents < 10 ? 2 : 1) +
+                   (a.correct ? "" : "x");
         out += "\n";
     } else {
         const std::size_t n = d.targets.size();
@@ -197,8 +207,9 @@ std::string ear_text(const Drill& d, const DrillRunner& run, const EarResult& r,
             char buf[160];
             std::snprintf(buf, sizeof buf, "    %-8s %-8s %5.1f c apart: %s\n", names[i].c_str(), names[k].c_str(),
                           std::fabs(cents[i] - cents[k]),
-                          std::isfinite(share) ? (std::to_string(std::lround(100.0 * share)) + " % of " + std::to_string(of)).c_str()
-                                               : "not asked");
+                          std::isfinite(share)
+                              ? (std::to_string(std::lround(100.0 * share)) + " % of " + std::to_string(of)).c_str()
+                              : "not asked");
             out += buf;
         }
     }
@@ -213,7 +224,8 @@ int report_log(const DrillRunner& runner, const LogWriter& writer) {
     const std::size_t made = runner.attempts_made();
     if (writer.pending() == 0) {
         if (made > 0)
-            std::fprintf(stderr, "beatless: %zu %s saved to %s\n", made, made == 1 ? "attempt" : "attempts", writer.path().c_str());
+            std::fprintf(stderr, "beatless: %zu %s saved to %s\n", made, made == 1 ? "attempt" : "attempts",
+                         writer.path().c_str());
         return 0;
     }
     const std::string line = keep_unsaved(writer, runner.log_warning());
@@ -239,9 +251,12 @@ void check(const DrillCmd& o, const Drill& d) {
                          " give --listener CENTS, perfect or guess (a simulated listener) instead");
     if (!has_listener)
         throw UsageError("drill " + d.id +
-                         " is an ear drill and needs a listener: answer it on the Drills screen, or give --listener CENTS, perfect or "
+                         " is an ear drill and needs a listener: answer it on the Drills screen, or give --listener "
+                         "CENTS, perfect or "
                          "guess for a simulated listener");
-    if (!o.input.empty()) throw UsageError("--input: an ear drill listens to no input (" + d.id + " plays questions and waits for answers)");
+    if (!o.input.empty())
+        throw UsageError("--input: an ear drill listens to no input (" + d.id +
+                         " plays questions and waits for answers)");
     if (o.attempts > 0) throw UsageError("--attempts counts holds; " + d.id + " is an ear drill (one session)");
 }
 
@@ -330,7 +345,8 @@ void run_ear_simulated(DrillRunner& runner, ui::SimulatedListener& listener, Pri
 }
 
 // Any drill in real time on the audio devices.
-void run_realtime(const Drill& d, DrillRunner& runner, const DrillCmd& o, Printer& print, ui::SimulatedListener* listener) {
+void run_realtime(const Drill& d, DrillRunner& runner, const DrillCmd& o, Printer& print,
+                  ui::SimulatedListener* listener) {
     const bool hold = d.mode == DrillMode::hold;
     auto system = audio::make_sound_system();
     audio::Engine engine(engine_config(o), system.get());
@@ -418,7 +434,8 @@ int run_drill(const DrillCmd& o) {
     std::optional<ui::SimulatedListener> listener;
     if (!o.listener.empty()) listener.emplace(parse_listener(o.listener, o.seed));
     const fs::path log_path = o.log_file.empty() ? practice_log_path() : fs::path(o.log_file);
-    if (!o.log_file.empty()) (void)check_output_path(log_path);  // a device, a folder or a missing folder: before the drill
+    if (!o.log_file.empty())
+        (void)check_output_path(log_path);  // a device, a folder or a missing folder: before the drill
     LogWriter writer(log_path);
     RunnerConfig rc;
     rc.seed = o.seed;
@@ -430,21 +447,27 @@ int run_drill(const DrillCmd& o) {
     const bool hold = d.mode == DrillMode::hold;
     const bool simulated = o.output.empty() && o.input.empty() && (o.demo || !hold);
     if (o.format == Format::text) {
-        std::string what = hold ? std::to_string(runner.hold_count()) + (runner.hold_count() == 1 ? " hold" : " holds") +
-                                      ", tolerance \xC2\xB1" + pitch::format_trimmed(d.tolerance_cents, 1) + " c"
-                                : d.task == ui::EarTask::discriminate
-                                      ? d.targets_text() + " pure against mistuned, which was pure? (" + stop_rule_text(d.staircase) + ")"
-                                      : "which of " + d.targets_text() + "? (each " + std::to_string(d.rounds) + " times)";
-        print.header = d.title + ": " + what + " over " + d.drone.root_text + " (" + pitch::format_trimmed(d.drone.root_hz, 2) + " Hz)" +
-                       (simulated ? ", in simulated time" : "");
+        std::string what =
+            hold ? std::to_string(runner.hold_count()) + (runner.hold_count() == 1 ? " hold" : " holds") +
+                       ", tolerance \xC2\xB1" + pitch::format_trimmed(d.tolerance_cents, 1) + " c"
+            : d.task == ui::EarTask::discriminate
+                ? d.targets_text() + " pure against mistuned, which was pure? (" + stop_rule_text(d.staircase) + ")"
+                : "which of " + d.targets_text() + "? (each " + std::to_string(d.rounds) + " times)";
+        print.header = d.title + ": " + what + " over " + d.drone.root_text + " (" +
+                       pitch::format_trimmed(d.drone.root_hz, 2) + " Hz)" + (simulated ? ", in simulated time" : "");
     }
-    if (hold && simulated) run_hold_simulated(d, runner, o, print);
-    else if (simulated) run_ear_simulated(runner, *listener, print);
-    else run_realtime(d, runner, o, print, listener ? &*listener : nullptr);
+    if (hold && simulated)
+        run_hold_simulated(d, runner, o, print);
+    else if (simulated)
+        run_ear_simulated(runner, *listener, print);
+    else
+        run_realtime(d, runner, o, print, listener ? &*listener : nullptr);
     if (!hold && runner.ear_result()) {
         const EarResult& r = *runner.ear_result();
-        if (o.format == Format::json) std::printf("%s\n", ear_json(d, runner, r, listener->config()).c_str());
-        else std::printf("%s", ear_text(d, runner, r, listener->config()).c_str());
+        if (o.format == Format::json)
+            std::printf("%s\n", ear_json(d, runner, r, listener->config()).c_str());
+        else
+            std::printf("%s", ear_text(d, runner, r, listener->config()).c_str());
     }
     std::fflush(stdout);
     return report_log(runner, writer);
@@ -456,13 +479,18 @@ void register_drill(CLI::App& app, Runner& run) {
     auto o = std::make_shared<DrillCmd>();
     CLI::App* sub = app.add_subcommand("drill", "Run a drill without a screen and print each attempt's score");
     sub->add_option("name", o->name, "A built-in drill (hold-tritones, ear-tritones, ...) or a .toml file")->required();
-    sub->add_flag("--demo", o->demo, "Hold drills: the demo performer sings the drill (simulated time unless --output)");
-    sub->add_option("--hold", o->hold_dev_cents, "With --demo: she holds every target this many cents off, without vibrato");
-    sub->add_option("--seed", o->seed, "Seed of the demo performer, the shuffled order, the ear questions and the listener (default 7)");
-    sub->add_option("--listener", o->listener,
-                    "Ear drills: a simulated listener: CENTS (its 70.7 % threshold, lapse rate 2 %), perfect, or guess");
+    sub->add_flag("--demo", o->demo,
+                  "Hold drills: the demo performer sings the drill (simulated time unless --output)");
+    sub->add_option("--hold", o->hold_dev_cents,
+                    "With --demo: she holds every target this many cents off, without vibrato");
+    sub->add_option("--seed", o->seed,
+                    "Seed of the demo performer, the shuffled order, the ear questions and the listener (default 7)");
+    sub->add_option(
+        "--listener", o->listener,
+        "Ear drills: a simulated listener: CENTS (its 70.7 % threshold, lapse rate 2 %), perfect, or guess");
     sub->add_option("--input", o->input, "Input device: index or a unique part of its name (default: the system's)");
-    sub->add_option("--output", o->output, "Output device for the drone and the tones (the drill then runs in real time)");
+    sub->add_option("--output", o->output,
+                    "Output device for the drone and the tones (the drill then runs in real time)");
     sub->add_option("--root", o->root, "Drone root as a note (A2) or in Hz (110); default the drill's");
     sub->add_option("--lowest", o->lowest, kLowestHelp);
     sub->add_option("--a4", o->a4_hz, "A4 reference in Hz (400-480) for a root given as a note; default 440");

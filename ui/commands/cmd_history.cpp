@@ -9,14 +9,14 @@
 // --import reads such a file into the log, all rows or none, so a teacher
 // can look at a student's practice and the student can merge logs.
 #include "pitch/base/error.h"
-#include "ui/session/usage_error.h"
 #include "pitch/theory/interval.h"
 #include "ui/commands/commands.h"
-#include "ui/session/log_summary.h"
 #include "ui/session/log_csv.h"
+#include "ui/session/log_summary.h"
 #include "ui/session/paths.h"
 #include "ui/session/practice_log.h"
 #include "ui/session/safe_file.h"
+#include "ui/session/usage_error.h"
 
 #include <cstdio>
 #include <filesystem>
@@ -49,8 +49,8 @@ int run_import(const HistoryCmd& o, const fs::path& log_path) {
     const std::string text = read_text_file(o.import_file, kCsvLimitBytes, "CSV file");
     PracticeLog log(log_path);
     const ImportResult r = import_csv(log, text, o.import_file);
-    std::printf("imported %zu %s from %s into %s", r.added, r.added == 1 ? "attempt" : "attempts", o.import_file.c_str(),
-                log_path.c_str());
+    std::printf("imported %zu %s from %s into %s", r.added, r.added == 1 ? "attempt" : "attempts",
+                o.import_file.c_str(), log_path.c_str());
     if (r.skipped) std::printf(" (%zu already in the log)", r.skipped);
     std::printf("\n");
     return 0;
@@ -58,7 +58,8 @@ int run_import(const HistoryCmd& o, const fs::path& log_path) {
 
 int run_export(const HistoryCmd& o, const fs::path& log_path, const AttemptFilter& filter) {
     std::error_code ec;
-    if (!fs::exists(log_path, ec)) throw Error("practice log " + log_path.string() + ": no such file (nothing practised yet?)");
+    if (!fs::exists(log_path, ec))
+        throw Error("practice log " + log_path.string() + ": no such file (nothing practised yet?)");
     PracticeLog log(log_path);
     if (o.export_file == "-") {
         std::ostringstream out;
@@ -77,7 +78,8 @@ int run_export(const HistoryCmd& o, const fs::path& log_path, const AttemptFilte
 }
 
 int run_history(const HistoryCmd& o) {
-    if (!o.export_file.empty() && !o.import_file.empty()) throw UsageError("history: give --export or --import, not both");
+    if (!o.export_file.empty() && !o.import_file.empty())
+        throw UsageError("history: give --export or --import, not both");
     if (o.no_traces && o.export_file.empty()) throw UsageError("history: --no-traces goes with --export");
     const fs::path log_path = o.log_file.empty() ? practice_log_path() : fs::path(o.log_file);
     AttemptFilter filter;

@@ -20,19 +20,19 @@
 // MIDI synth, retuned exactly; --midi-in lets a keyboard set the root (a key)
 // or the target (a key held with the root's key). MIDI runs on this thread.
 #include "audio/device.h"
-#include "audio/sound_system.h"
 #include "audio/engine.h"
-#include "pitch/measure/two_voice.h"
+#include "audio/sound_system.h"
 #include "audio/timbre.h"
 #include "pitch/base/error.h"
-#include "ui/session/usage_error.h"
+#include "pitch/base/text.h"
+#include "pitch/measure/two_voice.h"
 #include "pitch/theory/interval.h"
 #include "pitch/theory/notes.h"
-#include "pitch/base/text.h"
 #include "ui/commands/commands.h"
 #include "ui/session/json.h"
 #include "ui/session/midi_session.h"
 #include "ui/session/target_files.h"
+#include "ui/session/usage_error.h"
 #include "ui/session/wording.h"
 
 #include <atomic>
@@ -65,11 +65,11 @@ struct ListenOptions {
     double a4_hz = pitch::kDefaultA4Hz;
     std::string targets = "7-limit";
     std::string target;
-    std::string midi_out;          // --midi-out PORT
-    std::string midi_in;           // --midi-in PORT
+    std::string midi_out;  // --midi-out PORT
+    std::string midi_in;   // --midi-in PORT
     std::string midi_tuning = "mts";
-    double bend_range = 2.0;       // semitones
-    double seconds = 0.0;          // 0 = until the end or Ctrl-C
+    double bend_range = 2.0;  // semitones
+    double seconds = 0.0;     // 0 = until the end or Ctrl-C
     bool drone = false;
     bool no_drone = false;
     bool fifth = false;
@@ -82,7 +82,7 @@ struct ListenOptions {
     double hop_ms = 5.0;
     std::string lowest;
     std::uint64_t seed = 7;
-    int voices = 1;                // 2: two voices in one input (a double stop, a duet)
+    int voices = 1;  // 2: two voices in one input (a double stop, a duet)
 };
 
 // Names of a reading's target in its octave (a Reading or a TwoVoiceFrame: both carry target_index and target_octaves).
@@ -91,7 +91,8 @@ struct TargetText {
     template <class R>
     std::string interval(const R& r) const {
         if (r.target_index < 0) return {};
-        return pitch::shift_octaves(set->targets[static_cast<std::size_t>(r.target_index)].interval, r.target_octaves).str();
+        return pitch::shift_octaves(set->targets[static_cast<std::size_t>(r.target_index)].interval, r.target_octaves)
+            .str();
     }
     template <class R>
     std::string name(const R& r) const {
@@ -111,21 +112,27 @@ std::string json_line(const pitch::Reading& r, const TargetText& tt) {
         j.key("ratio").value(r.ratio, 6);
         j.key("target").value(tt.interval(r));
         const std::string name = tt.name(r);
-        if (name.empty()) j.key("target_name").null();
-        else j.key("target_name").value(name);
+        if (name.empty())
+            j.key("target_name").null();
+        else
+            j.key("target_name").value(name);
         j.key("dev_cents").value(r.dev_cents, 3);
         j.key("centre_dev_cents").value(r.centre_dev_cents, 3);
         j.key("beat_hz").value(r.heard_beat_hz, 3);
-        if (r.heard_partial_root > 0) j.key("beat_partials").begin_array().value(r.heard_partial_root).value(r.heard_partial_voice).end_array();
-        else j.key("beat_partials").null();
+        if (r.heard_partial_root > 0)
+            j.key("beat_partials").begin_array().value(r.heard_partial_root).value(r.heard_partial_voice).end_array();
+        else
+            j.key("beat_partials").null();
         j.key("beat_in_tune_hz").value(r.heard_beat_at_target_hz, 3);
         j.key("own_beat_hz").value(r.beat_hz, 3);
-        if (r.beat_partial_root > 0) j.key("own_partials").begin_array().value(r.beat_partial_root).value(r.beat_partial_voice).end_array();
-        else j.key("own_partials").null();
+        if (r.beat_partial_root > 0)
+            j.key("own_partials").begin_array().value(r.beat_partial_root).value(r.beat_partial_voice).end_array();
+        else
+            j.key("own_partials").null();
     } else {
         j.key("f0_hz").null().key("confidence").value(r.confidence, 3);
-        for (const char* k : {"ratio", "target", "target_name", "dev_cents", "centre_dev_cents", "beat_hz", "beat_partials",
-                              "beat_in_tune_hz", "own_beat_hz", "own_partials"})
+        for (const char* k : {"ratio", "target", "target_name", "dev_cents", "centre_dev_cents", "beat_hz",
+                              "beat_partials", "beat_in_tune_hz", "own_beat_hz", "own_partials"})
             j.key(k).null();
     }
     j.end_object();
@@ -136,7 +143,7 @@ std::string json_line(const pitch::Reading& r, const TargetText& tt) {
 // its beat predicted and measured; with a drone each voice against the root too.
 struct DuoText : TargetText {
     double root_hz = 0.0;
-    bool judge_root = false;   // a drone sounds: each voice is also read against it
+    bool judge_root = false;  // a drone sounds: each voice is also read against it
 };
 
 std::string json_line(const pitch::TwoVoiceFrame& f, const DuoText& dt) {
@@ -162,15 +169,20 @@ std::string json_line(const pitch::TwoVoiceFrame& f, const DuoText& dt) {
         j.key("interval_cents").value(f.interval_cents, 3);
         j.key("target").value(dt.interval(f));
         const std::string name = dt.name(f);
-        if (name.empty()) j.key("target_name").null();
-        else j.key("target_name").value(name);
+        if (name.empty())
+            j.key("target_name").null();
+        else
+            j.key("target_name").value(name);
         j.key("dev_cents").value(f.dev_cents, 3);
         j.key("beat_hz").value(f.predicted_beat_hz, 3);
-        if (f.partial_low > 0) j.key("beat_partials").begin_array().value(f.partial_low).value(f.partial_high).end_array();
-        else j.key("beat_partials").null();
+        if (f.partial_low > 0)
+            j.key("beat_partials").begin_array().value(f.partial_low).value(f.partial_high).end_array();
+        else
+            j.key("beat_partials").null();
         j.key("measured_beat_hz").value(f.measured_beat_hz, 3);
     } else {
-        for (const char* k : {"ratio", "interval_cents", "target", "target_name", "dev_cents", "beat_hz", "beat_partials", "measured_beat_hz"})
+        for (const char* k : {"ratio", "interval_cents", "target", "target_name", "dev_cents", "beat_hz",
+                              "beat_partials", "measured_beat_hz"})
             j.key(k).null();
     }
     j.end_object();
@@ -195,8 +207,8 @@ std::string text_line(const pitch::Reading& r, const TargetText& tt, double a4_h
     s += "  " + signed_num(r.dev_cents, 1) + " c";
     if (std::isfinite(r.centre_dev_cents)) s += " (centre " + signed_num(r.centre_dev_cents, 1) + " c)";
     if (std::isfinite(r.heard_beat_hz))
-        s += "  beat " + pitch::format_trimmed(std::round(r.heard_beat_hz * 10.0) / 10.0, 1) + " Hz (" + std::to_string(r.heard_partial_root) +
-             ":" + std::to_string(r.heard_partial_voice) + ")";
+        s += "  beat " + pitch::format_trimmed(std::round(r.heard_beat_hz * 10.0) / 10.0, 1) + " Hz (" +
+             std::to_string(r.heard_partial_root) + ":" + std::to_string(r.heard_partial_voice) + ")";
     return s;
 }
 
@@ -211,14 +223,19 @@ std::string text_line(const pitch::TwoVoiceFrame& f, const DuoText& dt, double a
         return n.name + signed_num(n.offset_cents, 0);
     };
     if (f.voices == 1)
-        return s + note(f.f_low_hz > 0.0 ? f.f_low_hz : f.f_high_hz) + "  one voice heard (a unison or an octave cannot be told apart)";
+        return s + note(f.f_low_hz > 0.0 ? f.f_low_hz : f.f_high_hz) +
+               "  one voice heard (a unison or an octave cannot be told apart)";
     s += note(f.f_low_hz) + " + " + note(f.f_high_hz) + "  " + dt.interval(f);
     if (const std::string name = dt.name(f); !name.empty()) s += " " + name;
-    s += "  " + signed_num(f.dev_cents, 1) + " c " + (std::fabs(f.dev_cents) < 0.05 ? "just" : f.dev_cents > 0 ? "wide" : "narrow");
+    s += "  " + signed_num(f.dev_cents, 1) + " c " +
+         (std::fabs(f.dev_cents) < 0.05 ? "just"
+          : f.dev_cents > 0             ? "wide"
+                                        : "narrow");
     if (std::isfinite(f.predicted_beat_hz)) {
         s += "  beating " + pitch::format_trimmed(std::round(f.predicted_beat_hz * 10.0) / 10.0, 1) + " Hz";
         if (std::isfinite(f.measured_beat_hz))
-            s += " (from the partials: " + pitch::format_trimmed(std::round(f.measured_beat_hz * 10.0) / 10.0, 1) + " Hz)";
+            s += " (from the partials: " + pitch::format_trimmed(std::round(f.measured_beat_hz * 10.0) / 10.0, 1) +
+                 " Hz)";
     }
     return s;
 }
@@ -228,13 +245,17 @@ void check_options(const ListenOptions& o) {
     if (sources > 1) throw UsageError("choose one input: --demo, --input-file or --input");
     if (o.fast && o.input_file.empty()) throw UsageError("--fast works with --input-file only");
     if (o.drone && o.no_drone) throw UsageError("--drone and --no-drone contradict each other");
-    if (!o.target.empty() && o.targets != "7-limit") throw UsageError("--target and --targets contradict each other; give one");
+    if (!o.target.empty() && o.targets != "7-limit")
+        throw UsageError("--target and --targets contradict each other; give one");
     if (!(o.seconds >= 0.0 && o.seconds <= 24 * 3600.0))
         throw Error("--seconds " + pitch::format_trimmed(o.seconds, 3) + ": out of range (0 to 86400)");
-    if (o.block < 16 || o.block > 8192) throw Error("--block " + std::to_string(o.block) + ": out of range (16 to 8192 frames)");
-    if (!(o.hop_ms >= 1.0 && o.hop_ms <= 50.0)) throw Error("--hop-ms " + pitch::format_trimmed(o.hop_ms, 2) + ": out of range (1 to 50)");
+    if (o.block < 16 || o.block > 8192)
+        throw Error("--block " + std::to_string(o.block) + ": out of range (16 to 8192 frames)");
+    if (!(o.hop_ms >= 1.0 && o.hop_ms <= 50.0))
+        throw Error("--hop-ms " + pitch::format_trimmed(o.hop_ms, 2) + ": out of range (1 to 50)");
     if (o.voices != 1 && o.voices != 2) throw Error("--voices " + std::to_string(o.voices) + ": 1 or 2");
-    if (o.voices == 2 && o.demo) throw UsageError("--voices 2 works with --input-file or --input (the demo performer sings one voice)");
+    if (o.voices == 2 && o.demo)
+        throw UsageError("--voices 2 works with --input-file or --input (the demo performer sings one voice)");
     if (o.rate_hz != 0.0 && !(o.rate_hz >= 8000.0 && o.rate_hz <= 192000.0))
         throw Error("--rate " + pitch::format_trimmed(o.rate_hz, 1) + ": out of range (8000 to 192000 Hz)");
 }
@@ -251,8 +272,9 @@ pitch::TargetSet chosen_targets(const ListenOptions& o) {
 }
 
 std::string stream_text(const char* dir, const std::string& name, const audio::StreamInfo& s, double latency_s) {
-    return std::string(dir) + " '" + name + "' (" + s.host_api + "): " + pitch::format_trimmed(s.sample_rate_hz, 0) + " Hz, " +
-           std::to_string(s.block_len_frames) + "-frame blocks, device latency " + pitch::format_trimmed(1000.0 * latency_s, 1) + " ms";
+    return std::string(dir) + " '" + name + "' (" + s.host_api + "): " + pitch::format_trimmed(s.sample_rate_hz, 0) +
+           " Hz, " + std::to_string(s.block_len_frames) + "-frame blocks, device latency " +
+           pitch::format_trimmed(1000.0 * latency_s, 1) + " ms";
 }
 
 int run_live(const ListenOptions& o, Printing printing) {
@@ -338,7 +360,8 @@ int run_live(const ListenOptions& o, Printing printing) {
         mc.fifth = o.fifth;
         mc.octave = o.octave;
         mc.a4_hz = o.a4_hz;
-        midi = std::make_unique<MidiSession>(mc, root_hz, targets, o.target.empty() ? std::nullopt : std::optional<std::size_t>(0));
+        midi = std::make_unique<MidiSession>(mc, root_hz, targets,
+                                             o.target.empty() ? std::nullopt : std::optional<std::size_t>(0));
         std::fprintf(stderr, "beatless: %s\n", midi->describe().c_str());
     }
     auto poll_midi = [&] {
@@ -400,8 +423,10 @@ int run_live(const ListenOptions& o, Printing printing) {
 
     if (o.fast) {
         std::fprintf(stderr, "beatless: analyzing %s as fast as possible\n", what.c_str());
-        if (o.voices == 2) engine.run_fast(std::function<void(const pitch::TwoVoiceFrame&)>(emit_duo), o.seconds);
-        else engine.run_fast(std::function<void(const pitch::Reading&)>(emit), o.seconds);
+        if (o.voices == 2)
+            engine.run_fast(std::function<void(const pitch::TwoVoiceFrame&)>(emit_duo), o.seconds);
+        else
+            engine.run_fast(std::function<void(const pitch::Reading&)>(emit), o.seconds);
     } else {
         g_interrupted.store(false);
         std::signal(SIGINT, on_sigint);
@@ -409,16 +434,19 @@ int run_live(const ListenOptions& o, Printing printing) {
         engine.start();
         std::fprintf(stderr, "beatless: listening to %s at %s Hz; root %s, targets %s%s\n", what.c_str(),
                      pitch::format_trimmed(engine.sample_rate_hz(), 0).c_str(), root_echo(o.root, root_hz).c_str(),
-                     targets.id.c_str(), !o.drone ? "" : o.input_file.empty() ? ", drone on" : ", the recording's drone removed");
+                     targets.id.c_str(),
+                     !o.drone               ? ""
+                     : o.input_file.empty() ? ", drone on"
+                                            : ", the recording's drone removed");
         if (device_input) {
             const audio::StreamInfo si = engine.input_info();
-            std::fprintf(stderr, "beatless: %s; chosen as %s\n", stream_text("input", si.input_name, si, si.input_latency_s).c_str(),
-                         input_why.c_str());
+            std::fprintf(stderr, "beatless: %s; chosen as %s\n",
+                         stream_text("input", si.input_name, si, si.input_latency_s).c_str(), input_why.c_str());
         }
         if (engine.output_info().sample_rate_hz > 0) {
             const audio::StreamInfo so = engine.output_info();
-            std::fprintf(stderr, "beatless: %s; chosen as %s\n", stream_text("output", so.output_name, so, so.output_latency_s).c_str(),
-                         output_why.c_str());
+            std::fprintf(stderr, "beatless: %s; chosen as %s\n",
+                         stream_text("output", so.output_name, so, so.output_latency_s).c_str(), output_why.c_str());
         }
         // --seconds counts audio heard; with a device that goes away the clock
         // ends the run too, a little after the same time (kLateS), so it ends on time either way.
@@ -431,8 +459,10 @@ int run_live(const ListenOptions& o, Printing printing) {
             poll_midi();
             if (o.seconds > 0.0 && engine.stream_time_s() >= o.seconds + 0.1) break;
             if (o.seconds > 0.0 && device_input &&
-                std::chrono::duration<double>(std::chrono::steady_clock::now() - started).count() >= o.seconds + kLateS) {
-                std::fprintf(stderr, "beatless: %s s passed with %.2f s of audio heard; the input was missing for the rest\n",
+                std::chrono::duration<double>(std::chrono::steady_clock::now() - started).count() >=
+                    o.seconds + kLateS) {
+                std::fprintf(stderr,
+                             "beatless: %s s passed with %.2f s of audio heard; the input was missing for the rest\n",
                              pitch::format_trimmed(o.seconds + kLateS, 2).c_str(), engine.stream_time_s());
                 break;
             }
@@ -448,12 +478,14 @@ int run_live(const ListenOptions& o, Printing printing) {
     }
     std::fflush(stdout);
     const audio::EngineStatus st = engine.status();
-    std::fprintf(stderr,
-                 "beatless: %llu readings from %.2f s of audio; ring overflows %llu, device overflows %llu, underflows %llu; "
-                 "latency %.1f ms (max %.1f ms)\n",
-                 static_cast<unsigned long long>(printed), engine.stream_time_s(), static_cast<unsigned long long>(st.ring_overflow_events),
-                 static_cast<unsigned long long>(st.device_input_overflows), static_cast<unsigned long long>(st.device_output_underflows),
-                 1000.0 * st.latency_s, 1000.0 * st.latency_max_s);
+    std::fprintf(
+        stderr,
+        "beatless: %llu readings from %.2f s of audio; ring overflows %llu, device overflows %llu, underflows %llu; "
+        "latency %.1f ms (max %.1f ms)\n",
+        static_cast<unsigned long long>(printed), engine.stream_time_s(),
+        static_cast<unsigned long long>(st.ring_overflow_events),
+        static_cast<unsigned long long>(st.device_input_overflows),
+        static_cast<unsigned long long>(st.device_output_underflows), 1000.0 * st.latency_s, 1000.0 * st.latency_max_s);
     return 0;
 }
 
@@ -470,10 +502,12 @@ void add_live_options(CLI::App* sub, ListenOptions& o) {
 
 void register_listen(CLI::App& app, Runner& run) {
     auto o = std::make_shared<ListenOptions>();
-    CLI::App* sub = app.add_subcommand("listen", "Listen live (device, --demo or --input-file) and print readings as JSON lines");
+    CLI::App* sub =
+        app.add_subcommand("listen", "Listen live (device, --demo or --input-file) and print readings as JSON lines");
     add_live_options(sub, *o);
     sub->add_flag("--demo", o->demo, "Use the built-in demo performer instead of a microphone");
-    sub->add_option("--input-file", o->input_file, "Play this sound file through the live path instead of a microphone");
+    sub->add_option("--input-file", o->input_file,
+                    "Play this sound file through the live path instead of a microphone");
     sub->add_flag("--fast", o->fast, "With --input-file: as fast as possible instead of in real time");
     sub->add_option("--input", o->input_dev, "Input device: index or a unique part of its name (see beatless devices)");
     sub->add_option("--output", o->output_dev, "Output device for the drone: index or a unique part of its name");
@@ -488,14 +522,19 @@ void register_listen(CLI::App& app, Runner& run) {
     sub->add_option("--block", o->block, "Frames per audio callback to ask for (default 256)");
     sub->add_option("--hop-ms", o->hop_ms, "Time between readings in ms (default 5)");
     sub->add_option("--lowest", o->lowest, kLowestHelp);
-    sub->add_option("--voices", o->voices, "2: two voices in one input (a double stop, a duet): both pitches, the interval, its beat");
-    sub->add_option("--midi-out", o->midi_out,
-                    "Play the drone (and a fixed --target) on this MIDI port, retuned exactly: number, name or part of it "
-                    "(see beatless devices)");
-    sub->add_option("--midi-tuning", o->midi_tuning,
-                    "How --midi-out retunes: mts (MIDI Tuning Standard, default) or bend (pitch bend per note, channels 2-16)");
-    sub->add_option("--bend-range", o->bend_range, "Pitch-bend range in semitones for --midi-tuning bend (1-24, default 2)");
-    sub->add_option("--midi-in", o->midi_in, "A MIDI keyboard: a key sets the root; a key held with the root's key, the target");
+    sub->add_option("--voices", o->voices,
+                    "2: two voices in one input (a double stop, a duet): both pitches, the interval, its beat");
+    sub->add_option(
+        "--midi-out", o->midi_out,
+        "Play the drone (and a fixed --target) on this MIDI port, retuned exactly: number, name or part of it "
+        "(see beatless devices)");
+    sub->add_option(
+        "--midi-tuning", o->midi_tuning,
+        "How --midi-out retunes: mts (MIDI Tuning Standard, default) or bend (pitch bend per note, channels 2-16)");
+    sub->add_option("--bend-range", o->bend_range,
+                    "Pitch-bend range in semitones for --midi-tuning bend (1-24, default 2)");
+    sub->add_option("--midi-in", o->midi_in,
+                    "A MIDI keyboard: a key sets the root; a key held with the root's key, the target");
     sub->callback([o, &run] { run = [o] { return run_live(*o, Printing::json); }; });
 }
 

@@ -9,12 +9,12 @@
 // such as 4:5:6:7 stands for each of its upper notes against the lowest; a
 // target set or chord file by name or path stands for each of its targets.
 #include "audio/timbre.h"
-#include "pitch/theory/beats.h"
 #include "pitch/base/error.h"
+#include "pitch/base/text.h"
+#include "pitch/theory/beats.h"
 #include "pitch/theory/interval.h"
 #include "pitch/theory/notes.h"
 #include "pitch/theory/spelling.h"
-#include "pitch/base/text.h"
 #include "ui/commands/commands.h"
 #include "ui/session/json.h"
 #include "ui/session/target_files.h"
@@ -76,7 +76,8 @@ std::optional<pitch::Ratio> own_ratio(const pitch::Interval& iv) {
 }
 
 // The audible pair with the upper tone dev_cents off the interval.
-pitch::AudiblePair heard_at(double root_hz, const pitch::Interval& iv, double dev_cents, const pitch::AudibleRange& range) {
+pitch::AudiblePair heard_at(double root_hz, const pitch::Interval& iv, double dev_cents,
+                            const pitch::AudibleRange& range) {
     const double upper = root_hz * iv.value() * std::exp2(dev_cents / 1200.0);
     return pitch::audible_pair(root_hz, upper, iv.cents(), own_ratio(iv), range);
 }
@@ -101,12 +102,16 @@ int run_ratio(const RatioOptions& o) {
             j.key("ratio").value(f.text).key("cents").value(f.cents, 3);
             j.key("prime_limit").value(f.prime_limit).key("odd_limit").value(f.odd_limit);
             j.key("tenney_height");
-            if (f.tenney_height) j.value(*f.tenney_height, 3);
-            else j.null();
+            if (f.tenney_height)
+                j.value(*f.tenney_height, 3);
+            else
+                j.null();
             j.key("et_step").value(f.et.step).key("et_offset_cents").value(f.et.offset_cents, 3);
             j.key("name");
-            if (f.name.empty()) j.null();
-            else j.value(f.name);
+            if (f.name.empty())
+                j.null();
+            else
+                j.value(f.name);
             if (root_hz) {
                 const double upper = *root_hz * e.interval.value();
                 const pitch::AudiblePair a = heard_at(*root_hz, e.interval, 0.0, range);
@@ -114,18 +119,34 @@ int run_ratio(const RatioOptions& o) {
                 j.key("audible_partials");
                 if (a.found) {
                     j.begin_object().key("root").value(a.partial_a).key("upper").value(a.partial_b);
-                    j.key("at_hz").value(a.meet_hz, 3).key("own").value(a.own).key("in_tune_beat_hz").value(a.beat_at_target_hz, 3).end_object();
+                    j.key("at_hz")
+                        .value(a.meet_hz, 3)
+                        .key("own")
+                        .value(a.own)
+                        .key("in_tune_beat_hz")
+                        .value(a.beat_at_target_hz, 3)
+                        .end_object();
                 } else {
                     j.null();
                 }
                 j.key("own_partials");
                 if (e.interval.is_ratio())
-                    j.begin_object().key("root").value(e.interval.ratio().num).key("upper").value(e.interval.ratio().den).end_object();
+                    j.begin_object()
+                        .key("root")
+                        .value(e.interval.ratio().num)
+                        .key("upper")
+                        .value(e.interval.ratio().den)
+                        .end_object();
                 else
                     j.null();
                 j.key("beats").begin_array();
                 for (double d : kMistunings)
-                    j.begin_object().key("dev_cents").value(d, 1).key("beat_hz").value(heard_at(*root_hz, e.interval, d, range).beat_hz, 3).end_object();
+                    j.begin_object()
+                        .key("dev_cents")
+                        .value(d, 1)
+                        .key("beat_hz")
+                        .value(heard_at(*root_hz, e.interval, d, range).beat_hz, 3)
+                        .end_object();
                 j.end_array();
             }
             j.end_object();
@@ -142,8 +163,8 @@ int run_ratio(const RatioOptions& o) {
         first = false;
         std::printf("%s%s%s\n", f.text.c_str(), f.name.empty() ? "" : "  ", f.name.c_str());
         if (f.prime_limit) {
-            std::printf("  %.3f cents · prime limit %d · odd limit %lld · Tenney height %.3f\n", f.cents, *f.prime_limit,
-                        static_cast<long long>(*f.odd_limit), *f.tenney_height);
+            std::printf("  %.3f cents · prime limit %d · odd limit %lld · Tenney height %.3f\n", f.cents,
+                        *f.prime_limit, static_cast<long long>(*f.odd_limit), *f.tenney_height);
         } else {
             std::printf("  %.3f cents · not a ratio (no prime limit or Tenney height)\n", f.cents);
         }
@@ -158,8 +179,9 @@ int run_ratio(const RatioOptions& o) {
                     rn.offset_cents, upper, un.name.c_str(), un.offset_cents);
         const pitch::AudiblePair a = heard_at(*root_hz, e.interval, 0.0, range);
         if (!a.found) {
-            std::printf("  partials that beat: none below %.0f Hz in a %s drone and the upper tone (no beat to listen for)\n",
-                        range.max_freq_hz, o.timbre.c_str());
+            std::printf(
+                "  partials that beat: none below %.0f Hz in a %s drone and the upper tone (no beat to listen for)\n",
+                range.max_freq_hz, o.timbre.c_str());
             continue;
         }
         const pitch::Ratio heard_ratio = pitch::Ratio::make(a.partial_a, a.partial_b);
@@ -171,14 +193,16 @@ int run_ratio(const RatioOptions& o) {
             if (e.interval.is_ratio()) {
                 const pitch::Ratio& own = e.interval.ratio();
                 const bool too_high = static_cast<double>(own.num) * *root_hz > range.max_freq_hz;
-                std::printf(" (detail: its own coinciding pair %s:%s is %s)", std::to_string(own.num).c_str(), std::to_string(own.den).c_str(),
+                std::printf(" (detail: its own coinciding pair %s:%s is %s)", std::to_string(own.num).c_str(),
+                            std::to_string(own.den).c_str(),
                             too_high ? ("above " + pitch::format_trimmed(range.max_freq_hz, 0) + " Hz").c_str()
                                      : ("not sounded by a " + o.timbre + " drone").c_str());
             }
             std::printf("\n");
         }
         std::printf("  mistuning (cents) ");
-        for (double d : kMistunings) std::printf("%8s", (d > 0 ? "+" + pitch::format_trimmed(d, 0) : pitch::format_trimmed(d, 0)).c_str());
+        for (double d : kMistunings)
+            std::printf("%8s", (d > 0 ? "+" + pitch::format_trimmed(d, 0) : pitch::format_trimmed(d, 0)).c_str());
         std::printf("\n  beat rate (Hz)    ");
         for (double d : kMistunings) std::printf("%8.2f", heard_at(*root_hz, e.interval, d, range).beat_hz);
         std::printf("\n");
@@ -190,11 +214,16 @@ int run_ratio(const RatioOptions& o) {
 
 void register_ratio(CLI::App& app, Runner& run) {
     auto o = std::make_shared<RatioOptions>();
-    CLI::App* sub = app.add_subcommand("ratio", "Facts of intervals: cents, limits, Tenney height, beat rates over a root");
-    sub->add_option("RATIO", o->ratios, "Intervals: 7/5, 7:5, 3/2*5/4, 600c, a chord 4:5:6:7, or a target set or chord by name (tritones) or path")->required();
+    CLI::App* sub =
+        app.add_subcommand("ratio", "Facts of intervals: cents, limits, Tenney height, beat rates over a root");
+    sub->add_option(
+           "RATIO", o->ratios,
+           "Intervals: 7/5, 7:5, 3/2*5/4, 600c, a chord 4:5:6:7, or a target set or chord by name (tritones) or path")
+        ->required();
     sub->add_option("--root", o->root, "Root as a note (A3) or in Hz (220): adds frequencies and beat rates");
     add_a4_option(*sub, o->a4_hz);
-    sub->add_option("--timbre", o->timbre, "Drone timbre whose partials can beat: pure, soft, round, bright, hollow (default round)");
+    sub->add_option("--timbre", o->timbre,
+                    "Drone timbre whose partials can beat: pure, soft, round, bright, hollow (default round)");
     add_format_option(*sub, o->format, false);
     sub->callback([o, &run] { run = [o] { return run_ratio(*o); }; });
 }

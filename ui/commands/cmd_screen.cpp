@@ -17,30 +17,30 @@
 // command gives the same picture. It shows the screen as after the hearing
 // caution was acknowledged unless --first-run is given.
 #include "pitch/base/error.h"
-#include "ui/session/usage_error.h"
+#include "pitch/base/text.h"
 #include "pitch/theory/notes.h"
 #include "pitch/theory/spelling.h"
-#include "pitch/base/text.h"
-#include "ui/session/app_state.h"
 #include "ui/commands/commands.h"
-#include "ui/session/listener_model.h"
-#include "ui/session/midi_link.h"
-#include "ui/screens/widgets.h"
-#include "ui/session/drill_files.h"
 #include "ui/render/imgui_host.h"
-#include "ui/session/json.h"
-#include "ui/screens/palette.h"
 #include "ui/render/png.h"
 #include "ui/render/raster.h"
-#include "ui/screens/screen.h"
-#include "ui/session/safe_file.h"
-#include "ui/session/target_files.h"
 #include "ui/render/render_error.h"
 #include "ui/render/window.h"
+#include "ui/screens/palette.h"
+#include "ui/screens/screen.h"
+#include "ui/screens/widgets.h"
+#include "ui/session/app_state.h"
+#include "ui/session/drill_files.h"
+#include "ui/session/json.h"
+#include "ui/session/listener_model.h"
+#include "ui/session/midi_link.h"
+#include "ui/session/safe_file.h"
+#include "ui/session/target_files.h"
+#include "ui/session/usage_error.h"
 
+#include <algorithm>
 #include <cmath>
 #include <cstdio>
-#include <algorithm>
 #include <cstdlib>
 #include <memory>
 
@@ -157,27 +157,34 @@ bool have_display() {
 
 void add_screen_options(CLI::App& app, ScreenCommand& c) {
     app.add_flag("--demo", c.demo, "Use the built-in demo performer instead of a microphone");
-    app.add_option("--hold", c.hold_dev_cents, "With --demo: the performer holds the chosen target this many cents off (no vibrato)");
+    app.add_option("--hold", c.hold_dev_cents,
+                   "With --demo: the performer holds the chosen target this many cents off (no vibrato)");
     app.add_option("--seed", c.seed, "Demo performer seed (default 7)");
     app.add_option("--root", c.root, "Drone root as a note (A2) or in Hz (110); default from the settings (A2)");
     app.add_option("--a4", c.a4_hz, "A4 reference in Hz (400-480); default from the settings (440)");
     app.add_option("--lowest", c.lowest,
-                   "Lowest note to track live: a note (A1) or Hz, 30-200; default from the settings (70; 55 for cello, 38 for double bass)");
+                   "Lowest note to track live: a note (A1) or Hz, 30-200; default from the settings (70; 55 for cello, "
+                   "38 for double bass)");
     app.add_option("--targets", c.target_set, "Target set: a built-in name (7-limit, tritones, ...) or a .toml file");
     app.add_option("--target", c.target, "Fix this target (7/5, 600c, ...); it joins the set when it is not in it");
     app.add_option("--screen", c.screen, "Screen to show: " + built_screen_keys());
-    app.add_option("--drill", c.drill, "Choose and start this drill on the Drills screen (a built-in name or a .toml file)");
-    app.add_option("--listener", c.listener,
-                   "Ear drills on the Drills screen: a simulated listener answers: perfect, guess, or its threshold in cents");
-    app.add_option("--log", c.log_file, "Practice log file (default: the data folder's; a snapshot writes none unless given)");
+    app.add_option("--drill", c.drill,
+                   "Choose and start this drill on the Drills screen (a built-in name or a .toml file)");
+    app.add_option(
+        "--listener", c.listener,
+        "Ear drills on the Drills screen: a simulated listener answers: perfect, guess, or its threshold in cents");
+    app.add_option("--log", c.log_file,
+                   "Practice log file (default: the data folder's; a snapshot writes none unless given)");
 }
 
 void add_window_midi_options(CLI::App& app, ScreenCommand& c) {
     app.add_option("--midi-out", c.midi_out,
                    "Play the drone and the fixed target on this MIDI port, retuned exactly (default from the settings; "
                    "\"\" for none)");
-    app.add_option("--midi-tuning", c.midi_tuning, "How --midi-out retunes: mts (MIDI Tuning Standard) or bend (pitch bend per note)");
-    app.add_option("--midi-in", c.midi_in, "A MIDI keyboard: a key sets the root; a key held with the root's key, the target");
+    app.add_option("--midi-tuning", c.midi_tuning,
+                   "How --midi-out retunes: mts (MIDI Tuning Standard) or bend (pitch bend per note)");
+    app.add_option("--midi-in", c.midi_in,
+                   "A MIDI keyboard: a key sets the root; a key held with the root's key, the target");
 }
 
 int run_screens(const ScreenCommand& c, int frames) {
@@ -194,7 +201,8 @@ int run_screens(const ScreenCommand& c, int frames) {
     say_preferences(l);
     AppOptions o = options_of(c);
     o.save_settings = l.can_save;
-    const ScreenId first = screen_from(c.screen, !c.drill.empty() && c.screen.empty() ? ScreenId::drills : l.settings.screen);
+    const ScreenId first =
+        screen_from(c.screen, !c.drill.empty() && c.screen.empty() ? ScreenId::drills : l.settings.screen);
     AppState app(l.settings, l.file, o);
     ScreenDeck deck(app);
     deck.show(first);
@@ -244,17 +252,22 @@ void register_snapshot(CLI::App& app, Runner& run) {
         std::string out;
     };
     auto o = std::make_shared<Options>();
-    CLI::App* sub = app.add_subcommand("snapshot", "Render a screen in simulated time without a window and write the last frame as PNG");
+    CLI::App* sub = app.add_subcommand(
+        "snapshot", "Render a screen in simulated time without a window and write the last frame as PNG");
     add_screen_options(*sub, o->c);
     sub->add_option("--seconds", o->seconds, "Simulated time before the picture is taken (default 4)");
     sub->add_option("--size", o->size, "Picture size in pixels, WIDTHxHEIGHT (default 1280x800)");
     sub->add_option("--scale", o->scale, "DPI scale: 2 for a high-density screen (default 1)");
     sub->add_option("--fps", o->fps, "Frames per simulated second (default 60)");
     sub->add_flag("--drone", o->c.drone, "Start the drone (in the simulation the demo's microphone hears it)");
-    sub->add_flag("--first-run", o->first_run, "Show the screen as on first run, before the hearing caution is acknowledged");
+    sub->add_flag("--first-run", o->first_run,
+                  "Show the screen as on first run, before the hearing caution is acknowledged");
     sub->add_flag("--help-keys", o->help_keys, "Show the help overlay with the keys");
-    sub->add_flag("--print-verdict", o->print_verdict, "Also print, as one JSON line, the verdict the picture shows (state, source, cents, word, note, Hz, beat)");
-    sub->add_option("--settings", o->settings_file, "Take preferences from this settings file (default: none, the program's defaults)");
+    sub->add_flag(
+        "--print-verdict", o->print_verdict,
+        "Also print, as one JSON line, the verdict the picture shows (state, source, cents, word, note, Hz, beat)");
+    sub->add_option("--settings", o->settings_file,
+                    "Take preferences from this settings file (default: none, the program's defaults)");
     sub->add_option("--out", o->out, "PNG file to write")->required();
     sub->callback([o, &run] {
         run = [o] {
@@ -263,9 +276,12 @@ void register_snapshot(CLI::App& app, Runner& run) {
             if (c.a4_hz) pitch::check_a4(*c.a4_hz);
             int w = 0, h = 0;
             parse_size(o->size, w, h);
-            if (!(o->scale >= 0.5f && o->scale <= 4.0f)) throw Error("--scale " + pitch::format_trimmed(o->scale, 2) + ": out of range (0.5 to 4)");
-            if (!(o->seconds >= 0.0 && o->seconds <= 600.0)) throw Error("--seconds " + pitch::format_trimmed(o->seconds, 3) + ": out of range (0 to 600)");
-            if (!(o->fps >= 10.0 && o->fps <= 240.0)) throw Error("--fps " + pitch::format_trimmed(o->fps, 2) + ": out of range (10 to 240)");
+            if (!(o->scale >= 0.5f && o->scale <= 4.0f))
+                throw Error("--scale " + pitch::format_trimmed(o->scale, 2) + ": out of range (0.5 to 4)");
+            if (!(o->seconds >= 0.0 && o->seconds <= 600.0))
+                throw Error("--seconds " + pitch::format_trimmed(o->seconds, 3) + ": out of range (0 to 600)");
+            if (!(o->fps >= 10.0 && o->fps <= 240.0))
+                throw Error("--fps " + pitch::format_trimmed(o->fps, 2) + ": out of range (10 to 240)");
             (void)check_output_path(o->out);  // refuse a device, folder or missing folder before rendering
             Loaded l;
             if (!o->settings_file.empty()) {
@@ -281,7 +297,8 @@ void register_snapshot(CLI::App& app, Runner& run) {
             ao.no_input = !c.demo;
             ao.save_settings = false;
             ao.log = !c.log_file.empty();
-            const ScreenId first = screen_from(c.screen, !c.drill.empty() && c.screen.empty() ? ScreenId::drills : l.settings.screen);
+            const ScreenId first =
+                screen_from(c.screen, !c.drill.empty() && c.screen.empty() ? ScreenId::drills : l.settings.screen);
             AppState app(l.settings, l.file, ao);
             ScreenDeck deck(app);
             deck.show(first);

@@ -8,9 +8,9 @@
 #include "audio/synth.h"
 #include "audio/timbre.h"
 #include "pitch/base/error.h"
+#include "pitch/base/text.h"
 #include "pitch/theory/interval.h"
 #include "pitch/theory/notes.h"
-#include "pitch/base/text.h"
 #include "ui/commands/commands.h"
 #include "ui/session/safe_file.h"
 
@@ -26,8 +26,8 @@ namespace {
 struct ToneOptions {
     std::string root;
     double a4_hz = pitch::kDefaultA4Hz;
-    std::vector<std::string> ratios;      // one note per ratio, in turn
-    std::vector<double> detunes_cents;    // per note (or one for all)
+    std::vector<std::string> ratios;    // one note per ratio, in turn
+    std::vector<double> detunes_cents;  // per note (or one for all)
     double rest_s = 0.3;
     double seconds = 10.0;
     std::string timbre = "round";
@@ -58,8 +58,8 @@ int run_tone(const ToneOptions& o) {
         if (!(std::fabs(d) <= 1200.0))
             throw Error("--detune-cents " + pitch::format_trimmed(d, 3) + ": out of range (-1200 to 1200)");
     if (o.detunes_cents.size() > 1 && o.detunes_cents.size() != o.ratios.size())
-        throw Error("--detune-cents: " + std::to_string(o.detunes_cents.size()) + " values for " + std::to_string(o.ratios.size()) +
-                    " ratios (give one value, or one per ratio)");
+        throw Error("--detune-cents: " + std::to_string(o.detunes_cents.size()) + " values for " +
+                    std::to_string(o.ratios.size()) + " ratios (give one value, or one per ratio)");
     if (!(o.rest_s >= 0.0 && o.rest_s <= 10.0))
         throw Error("--rest " + pitch::format_trimmed(o.rest_s, 3) + ": out of range (0 to 10 s)");
     if (!(o.vibrato_hz >= 0.0 && o.vibrato_hz <= 15.0))
@@ -84,10 +84,12 @@ int run_tone(const ToneOptions& o) {
     // first rest; each note fades in and out over 50 ms.
     std::string voice_text;
     const std::size_t notes = o.ratios.size();
-    const double note_s = notes > 0 ? (o.seconds - o.rest_s * static_cast<double>(notes)) / static_cast<double>(notes) : 0.0;
+    const double note_s =
+        notes > 0 ? (o.seconds - o.rest_s * static_cast<double>(notes)) / static_cast<double>(notes) : 0.0;
     if (notes > 0 && !(note_s >= 0.2))
         throw Error("--seconds " + pitch::format_trimmed(o.seconds, 3) + ": too short for " + std::to_string(notes) +
-                    " notes with rests of " + pitch::format_trimmed(o.rest_s, 3) + " s (each note needs at least 0.2 s)");
+                    " notes with rests of " + pitch::format_trimmed(o.rest_s, 3) +
+                    " s (each note needs at least 0.2 s)");
     for (std::size_t i = 0; i < notes; ++i) {
         const pitch::Interval iv = pitch::parse_interval(o.ratios[i]);
         const double detune = o.detunes_cents.empty() ? 0.0 : o.detunes_cents[o.detunes_cents.size() == 1 ? 0 : i];
@@ -104,9 +106,10 @@ int run_tone(const ToneOptions& o) {
         voice.start_s = notes == 1 ? 0.0 : o.rest_s + static_cast<double>(i) * (note_s + o.rest_s);
         voice.dur_s = notes == 1 ? o.seconds : note_s;
         audio::render_tone_add(voice, o.rate_hz, buf);
-        voice_text += std::string(i == 0 ? ", voice " : "; ") + iv.str() +
-                      (detune != 0.0 ? " " + std::string(detune > 0 ? "+" : "") + pitch::format_trimmed(detune, 3) + " c" : "") +
-                      " = " + pitch::format_trimmed(voice_hz, 3) + " Hz";
+        voice_text +=
+            std::string(i == 0 ? ", voice " : "; ") + iv.str() +
+            (detune != 0.0 ? " " + std::string(detune > 0 ? "+" : "") + pitch::format_trimmed(detune, 3) + " c" : "") +
+            " = " + pitch::format_trimmed(voice_hz, 3) + " Hz";
     }
     if (notes > 0) voice_text += " (" + std::string(audio::timbre_name(voice_timbre)) + ")";
 
@@ -120,9 +123,10 @@ int run_tone(const ToneOptions& o) {
     SafeOutput out(o.out);
     audio::write_wav(out.temp_path(), buf, o.rate_hz, audio::SampleFormat::pcm24, o.out);
     out.commit();
-    std::printf("wrote %s: %s s at %s Hz, drone %s (%s)%s\n", o.out.c_str(), pitch::format_trimmed(o.seconds, 3).c_str(),
-                pitch::format_trimmed(o.rate_hz, 0).c_str(), root_echo(o.root, root_hz).c_str(),
-                std::string(audio::timbre_name(drone_timbre)).c_str(), voice_text.c_str());
+    std::printf("wrote %s: %s s at %s Hz, drone %s (%s)%s\n", o.out.c_str(),
+                pitch::format_trimmed(o.seconds, 3).c_str(), pitch::format_trimmed(o.rate_hz, 0).c_str(),
+                root_echo(o.root, root_hz).c_str(), std::string(audio::timbre_name(drone_timbre)).c_str(),
+                voice_text.c_str());
     return 0;
 }
 
@@ -130,12 +134,16 @@ int run_tone(const ToneOptions& o) {
 
 void register_tone(CLI::App& app, Runner& run) {
     auto o = std::make_shared<ToneOptions>();
-    CLI::App* sub = app.add_subcommand("tone", "Render a drone, optionally with a second voice at a ratio, to a WAV file");
+    CLI::App* sub =
+        app.add_subcommand("tone", "Render a drone, optionally with a second voice at a ratio, to a WAV file");
     sub->add_option("--root", o->root, "Drone root as a note (A2) or in Hz (110)")->required();
     add_a4_option(*sub, o->a4_hz);
-    sub->add_option("--ratio", o->ratios, "Second voice at this interval above the root: 7/5, 600c, ...; several (7/5,10/7,11/8) sing one note each in turn")
+    sub->add_option("--ratio", o->ratios,
+                    "Second voice at this interval above the root: 7/5, 600c, ...; several (7/5,10/7,11/8) sing one "
+                    "note each in turn")
         ->delimiter(',');
-    sub->add_option("--detune-cents", o->detunes_cents, "Move the second voice off the ratio by this many cents (one value, or one per ratio)")
+    sub->add_option("--detune-cents", o->detunes_cents,
+                    "Move the second voice off the ratio by this many cents (one value, or one per ratio)")
         ->delimiter(',')
         ->allow_extra_args(false);
     sub->add_option("--rest", o->rest_s, "With several ratios: silence before each note in seconds (default 0.3)");

@@ -10,8 +10,8 @@
 #include "ui/session/json.h"
 
 #include <cstdio>
-#include <optional>
 #include <memory>
+#include <optional>
 
 namespace beatless::ui {
 
@@ -29,7 +29,8 @@ struct TrackOptions {
 int run_track(const TrackOptions& o) {
     if (!(o.hop_ms >= 0.5 && o.hop_ms <= 100.0))
         throw Error("--hop-ms " + pitch::format_trimmed(o.hop_ms, 3) + ": out of range (0.5 to 100 ms)");
-    if (o.channel && *o.channel < 1) throw Error("--channel " + std::to_string(*o.channel) + ": channels are numbered from 1");
+    if (o.channel && *o.channel < 1)
+        throw Error("--channel " + std::to_string(*o.channel) + ": channels are numbered from 1");
     audio::SoundReader reader(o.file, o.channel.value_or(0) - 1);
     pitch::YinConfig cfg;
     cfg.sample_rate_hz = reader.info().sample_rate_hz;
@@ -58,8 +59,10 @@ int run_track(const TrackOptions& o) {
             if (json) {
                 j.clear();
                 j.begin_object().key("t").value(fr.t_s, 4).key("f0_hz");
-                if (fr.voiced()) j.value(fr.f0_hz, 4);
-                else j.null();
+                if (fr.voiced())
+                    j.value(fr.f0_hz, 4);
+                else
+                    j.null();
                 j.key("confidence").value(fr.confidence, 3).end_object();
                 std::printf("%s\n  %s", first ? "" : ",", j.str().c_str());
             } else {

@@ -96,8 +96,10 @@ std::string json_of(const Tuning& t, const TuningOptions& o) {
         j.key("freq_hz").value(key.freq_hz, 6).key("cents_over_root").value(key.cents_over_root, 4);
         j.key("mts").begin_array().value(int{w.semitone}).value(int{w.msb}).value(int{w.lsb}).end_array();
         j.key("target");
-        if (key.target >= 0) j.value(t.set.targets[static_cast<std::size_t>(key.target)].interval.str());
-        else j.null();
+        if (key.target >= 0)
+            j.value(t.set.targets[static_cast<std::size_t>(key.target)].interval.str());
+        else
+            j.null();
         j.end_object();
     }
     j.end_array().key("unplaced").begin_array();
@@ -108,8 +110,10 @@ std::string json_of(const Tuning& t, const TuningOptions& o) {
 
 int run_tuning(const TuningOptions& o) {
     pitch::check_a4(o.a4_hz);
-    if (o.program < 0 || o.program > 127) throw Error("--program " + std::to_string(o.program) + ": out of range (0 to 127)");
-    if (o.device < 0 || o.device > 127) throw Error("--device " + std::to_string(o.device) + ": out of range (0 to 127; 127 = all)");
+    if (o.program < 0 || o.program > 127)
+        throw Error("--program " + std::to_string(o.program) + ": out of range (0 to 127)");
+    if (o.device < 0 || o.device > 127)
+        throw Error("--device " + std::to_string(o.device) + ": out of range (0 to 127; 127 = all)");
     if (o.format == TuningFormat::syx && o.out.empty())
         throw UsageError("--format syx writes a binary file: give --out FILE.syx");
     Tuning t;
@@ -123,8 +127,9 @@ int run_tuning(const TuningOptions& o) {
     if (o.format == TuningFormat::syx) {
         std::array<double, 128> hz{};
         for (std::size_t k = 0; k < 128; ++k) hz[k] = t.map.keys[k].freq_hz;
-        const auto dump = pitch::mts_bulk_dump(static_cast<std::uint8_t>(o.device), static_cast<std::uint8_t>(o.program),
-                                               t.set.id.empty() ? "beatless" : t.set.id, hz);
+        const auto dump =
+            pitch::mts_bulk_dump(static_cast<std::uint8_t>(o.device), static_cast<std::uint8_t>(o.program),
+                                 t.set.id.empty() ? "beatless" : t.set.id, hz);
         bytes.assign(dump.begin(), dump.end());
     } else {
         bytes = o.format == TuningFormat::json ? json_of(t, o) : text_of(t, o);
@@ -134,8 +139,9 @@ int run_tuning(const TuningOptions& o) {
         return 0;
     }
     write_file_safely(o.out, bytes);
-    std::printf("wrote %s: %s over %s, %zu bytes%s\n", o.out.c_str(), t.set.title.c_str(), root_echo(o.root, t.root_hz).c_str(),
-                bytes.size(), o.format == TuningFormat::syx ? " (MTS bulk tuning dump, 128 keys)" : "");
+    std::printf("wrote %s: %s over %s, %zu bytes%s\n", o.out.c_str(), t.set.title.c_str(),
+                root_echo(o.root, t.root_hz).c_str(), bytes.size(),
+                o.format == TuningFormat::syx ? " (MTS bulk tuning dump, 128 keys)" : "");
     return 0;
 }
 
@@ -143,9 +149,12 @@ int run_tuning(const TuningOptions& o) {
 
 void register_tuning(CLI::App& app, Runner& run) {
     auto o = std::make_shared<TuningOptions>();
-    auto* sub = app.add_subcommand("tuning", "Lay a target set on the 128 MIDI keys: a listing, or an MTS bulk tuning dump (.syx)");
-    sub->add_option("SET", o->set, "Target set or chord: a built-in name (tritones, harmonic-cluster) or a .toml file")->required();
-    sub->add_option("--root", o->root, "Root as a note (D3) or in Hz: the key nearest to it sounds it exactly")->required();
+    auto* sub = app.add_subcommand(
+        "tuning", "Lay a target set on the 128 MIDI keys: a listing, or an MTS bulk tuning dump (.syx)");
+    sub->add_option("SET", o->set, "Target set or chord: a built-in name (tritones, harmonic-cluster) or a .toml file")
+        ->required();
+    sub->add_option("--root", o->root, "Root as a note (D3) or in Hz: the key nearest to it sounds it exactly")
+        ->required();
     sub->add_option("--a4", o->a4_hz, "A4 reference in Hz for note roots (400-480, default 440)");
     const std::map<std::string, TuningFormat> formats = {
         {"text", TuningFormat::text}, {"json", TuningFormat::json}, {"syx", TuningFormat::syx}};

@@ -2,8 +2,8 @@
 #include "ui/commands/commands.h"
 
 #include "pitch/base/error.h"
-#include "pitch/theory/notes.h"
 #include "pitch/base/text.h"
+#include "pitch/theory/notes.h"
 #include "ui/session/safe_file.h"
 #include "ui/session/settings.h"
 
@@ -24,14 +24,19 @@ void add_format_option(CLI::App& sub, Format& format, std::initializer_list<Form
         names.emplace(n, f);
         help += std::string(" ") + n;
     }
-    sub.add_option("--format", format, help)->transform(CLI::CheckedTransformer(names, CLI::ignore_case).description(""));
+    sub.add_option("--format", format, help)
+        ->transform(CLI::CheckedTransformer(names, CLI::ignore_case).description(""));
 }
 
-void add_a4_option(CLI::App& sub, double& a4_hz) { sub.add_option("--a4", a4_hz, "A4 reference in Hz (400-480, default 440)"); }
+void add_a4_option(CLI::App& sub, double& a4_hz) {
+    sub.add_option("--a4", a4_hz, "A4 reference in Hz (400-480, default 440)");
+}
 
 void add_format_option(CLI::App& sub, Format& format, bool with_csv) {
-    if (with_csv) add_format_option(sub, format, {Format::text, Format::json, Format::csv});
-    else add_format_option(sub, format, {Format::text, Format::json});
+    if (with_csv)
+        add_format_option(sub, format, {Format::text, Format::json, Format::csv});
+    else
+        add_format_option(sub, format, {Format::text, Format::json});
 }
 
 std::string join_args(const std::vector<std::string>& args) {
@@ -67,7 +72,9 @@ void hearing_caution_once() {
     const std::string marker = dir.empty() ? std::string() : dir + "/drone-caution-shown";
     std::error_code ec;
     if (!marker.empty() && std::filesystem::exists(marker, ec)) return;
-    std::fprintf(stderr, "beatless: caution: the drone is a sustained tone; keep the level low, especially on headphones, and take breaks\n");
+    std::fprintf(stderr,
+                 "beatless: caution: the drone is a sustained tone; keep the level low, especially on headphones, and "
+                 "take breaks\n");
     if (marker.empty()) return;
     std::filesystem::create_directories(dir, ec);  // the program's own config folder
     try {

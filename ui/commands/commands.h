@@ -4,15 +4,15 @@
 #pragma once
 
 #include "ui/session/option_parsers.h"
-#include "ui/session/wording.h"
 #include "ui/session/usage_error.h"
+#include "ui/session/wording.h"
 
 #include <CLI/CLI.hpp>
 
 #include <cstdint>
 #include <functional>
-#include <optional>
 #include <initializer_list>
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -28,28 +28,28 @@ void register_listen(CLI::App& app, Runner& run);
 // The screens (cmd_screen.cpp): `beatless` with no subcommand opens the
 // window; `beatless snapshot` renders without one.
 struct ScreenCommand {
-    bool demo = false;                    // the demo performer replaces the microphone
-    std::optional<double> hold_dev_cents; // --hold: the demo holds the chosen target this far off
-    std::uint64_t seed = 7;               // demo performer seed
-    std::string input_device;             // --input (default: the settings' or the system's)
-    std::string output_device;            // --output
-    std::string root;                     // --root (default: the settings')
-    std::optional<double> a4_hz;          // --a4
-    std::string lowest;                   // --lowest (default: the settings')
-    std::string target_set;               // --targets
-    std::string target;                   // --target: a fixed target
-    std::string screen;                   // --screen (default: the last one used)
-    bool drone = false;                   // snapshot --drone
-    std::string drill;                    // --drill: choose and start this drill on the Drills screen
+    bool demo = false;                     // the demo performer replaces the microphone
+    std::optional<double> hold_dev_cents;  // --hold: the demo holds the chosen target this far off
+    std::uint64_t seed = 7;                // demo performer seed
+    std::string input_device;              // --input (default: the settings' or the system's)
+    std::string output_device;             // --output
+    std::string root;                      // --root (default: the settings')
+    std::optional<double> a4_hz;           // --a4
+    std::string lowest;                    // --lowest (default: the settings')
+    std::string target_set;                // --targets
+    std::string target;                    // --target: a fixed target
+    std::string screen;                    // --screen (default: the last one used)
+    bool drone = false;                    // snapshot --drone
+    std::string drill;                     // --drill: choose and start this drill on the Drills screen
     std::string listener;                 // --listener: a simulated listener answers ear drills (perfect, guess, cents)
     std::string log_file;                 // --log: the practice log file (snapshot: none unless given)
     std::optional<std::string> midi_out;  // --midi-out (window only): replaces the settings' MIDI port for this run
     std::optional<std::string> midi_tuning;  // --midi-tuning: mts or bend
-    std::optional<std::string> midi_in;   // --midi-in: a keyboard that sets the root
+    std::optional<std::string> midi_in;      // --midi-in: a keyboard that sets the root
 };
 void add_screen_options(CLI::App& app, ScreenCommand& c);
 void add_window_midi_options(CLI::App& app, ScreenCommand& c);  // the window's --midi-out, --midi-tuning, --midi-in
-int run_screens(const ScreenCommand& c, int frames);  // frames 0 = until the window is closed
+int run_screens(const ScreenCommand& c, int frames);            // frames 0 = until the window is closed
 void register_snapshot(CLI::App& app, Runner& run);
 void register_track(CLI::App& app, Runner& run);
 void register_chord(CLI::App& app, Runner& run);
@@ -68,9 +68,10 @@ void add_format_option(CLI::App& sub, Format& format, std::initializer_list<Form
 void add_a4_option(CLI::App& sub, double& a4_hz);
 
 // Small text helpers shared by the commands.
-std::string join_args(const std::vector<std::string>& args); // words joined by single spaces
+std::string join_args(const std::vector<std::string>& args);  // words joined by single spaces
 inline constexpr const char* kLowestHelp =
-    "Lowest note to track live: a note (A1) or Hz, 30-200 (default 70; 55 for cello, 38 for double bass, which settle more slowly)";
+    "Lowest note to track live: a note (A1) or Hz, 30-200 (default 70; 55 for cello, 38 for double bass, which settle "
+    "more slowly)";
 
 // A root as the user typed it: "Bb3 = 233.082 Hz" for a note (its spelling
 // kept, never A#3), "146.8 Hz" for a number of Hz.

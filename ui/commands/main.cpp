@@ -3,16 +3,15 @@
 // Exit codes (DESIGN.md): 0 success, 1 bad input or runtime failure, 2 bad
 // usage. Every failure is one line on stderr naming the file, device or value.
 #include "pitch/base/error.h"
-#include "ui/session/usage_error.h"
 #include "ui/commands/commands.h"
 #include "ui/render/render_error.h"
+#include "ui/session/usage_error.h"
 
 #include <CLI/CLI.hpp>
 
 #include <csignal>
 #include <cstdio>
 #include <exception>
-
 
 int main(int argc, char** argv) {
     using namespace beatless;
@@ -32,7 +31,8 @@ int main(int argc, char** argv) {
     ui::ScreenCommand screen;
     ui::add_screen_options(app, screen);
     ui::add_window_midi_options(app, screen);
-    app.add_option("--input", screen.input_device, "Input device: index or a unique part of its name (see beatless devices)");
+    app.add_option("--input", screen.input_device,
+                   "Input device: index or a unique part of its name (see beatless devices)");
     app.add_option("--output", screen.output_device, "Output device for the drone: index or a unique part of its name");
     int frames = 0;
     app.add_option("--frames", frames, "Close the window after this many frames (for tests); default: when closed");

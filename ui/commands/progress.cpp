@@ -8,7 +8,8 @@
 
 namespace beatless::ui {
 
-ProgressBar::ProgressBar(std::string label, bool enabled) : label_(std::move(label)), active_(enabled && isatty(2) == 1) {}
+ProgressBar::ProgressBar(std::string label, bool enabled)
+    : label_(std::move(label)), active_(enabled && isatty(2) == 1) {}
 
 ProgressBar::~ProgressBar() { clear(); }
 

@@ -22,14 +22,14 @@ public:
     ProgressBar& operator=(const ProgressBar&) = delete;
 
     void update(double fraction, const char* stage);  // fraction 0..1
-    void clear();                                      // erases the line (idempotent)
+    void clear();                                     // erases the line (idempotent)
     bool active() const { return active_; }
 
 private:
     std::string label_;
     bool active_ = false;
     bool shown_ = false;
-    std::size_t width_ = 0;                            // characters of the last line drawn
+    std::size_t width_ = 0;  // characters of the last line drawn
     std::chrono::steady_clock::time_point last_{};
 };
 

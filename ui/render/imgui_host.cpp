@@ -50,7 +50,8 @@ ImGuiHost::ImGuiHost(const HostConfig& config) : config_(config) {
     if (!(config_.dpi_scale > 0.0f && config_.dpi_scale <= 8.0f))
         throw RenderError("DPI scale " + std::to_string(config_.dpi_scale) + ": must lie in (0, 8]");
     if (config_.width_px < 0 || config_.height_px < 0)
-        throw RenderError("display size " + std::to_string(config_.width_px) + "x" + std::to_string(config_.height_px) + ": must not be negative");
+        throw RenderError("display size " + std::to_string(config_.width_px) + "x" + std::to_string(config_.height_px) +
+                          ": must not be negative");
 
     IMGUI_CHECKVERSION();
     context_ = ImGui::CreateContext();
@@ -66,7 +67,8 @@ ImGuiHost::ImGuiHost(const HostConfig& config) : config_(config) {
 
     config_.font_scale = std::clamp(config_.font_scale > 0.0f ? config_.font_scale : 1.0f, 0.5f, 3.0f);
     fit_scale_ = fit_for(config_.width_px, config_.height_px);
-    io.Fonts->Flags |= ImFontAtlasFlags_NoBakedLines;  // lines as geometry: their edges are anti-aliased by vertex alpha
+    io.Fonts->Flags |=
+        ImFontAtlasFlags_NoBakedLines;  // lines as geometry: their edges are anti-aliased by vertex alpha
     try {
         build_fonts();
     } catch (const RenderError&) {
@@ -95,10 +97,13 @@ void ImGuiHost::build_fonts() {
         cfg.OversampleH = 1;
         cfg.OversampleV = 1;
         cfg.PixelSnapH = true;
-        const float size = f.size == FaceSize::large ? config_.large_size_px : f.size == FaceSize::medium ? config_.medium_size_px : config_.body_size_px;
+        const float size = f.size == FaceSize::large    ? config_.large_size_px
+                           : f.size == FaceSize::medium ? config_.medium_size_px
+                                                        : config_.body_size_px;
         cfg.SizePixels = std::round(size * scale);
         const std::string path = config_.font_dir + "/" + f.file;
-        const bool loaded = readable(path) && atlas.AddFontFromFileTTF(path.c_str(), cfg.SizePixels, &cfg, kGlyphRanges) != nullptr;
+        const bool loaded =
+            readable(path) && atlas.AddFontFromFileTTF(path.c_str(), cfg.SizePixels, &cfg, kGlyphRanges) != nullptr;
         if (!loaded) {
             if (missing.empty()) missing = path;
             atlas.AddFontDefault(&cfg);
@@ -107,7 +112,9 @@ void ImGuiHost::build_fonts() {
     fonts_from_files_ = missing.empty();
     if (!fonts_from_files_ && !font_warned_) {
         font_warned_ = true;
-        std::fprintf(stderr, "beatless: font %s cannot be read; using ImGui's built-in font (install fonts-dejavu-core)\n", missing.c_str());
+        std::fprintf(stderr,
+                     "beatless: font %s cannot be read; using ImGui's built-in font (install fonts-dejavu-core)\n",
+                     missing.c_str());
     }
 
     unsigned char* texels = nullptr;

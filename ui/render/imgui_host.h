@@ -14,13 +14,14 @@
 namespace beatless::ui {
 
 struct HostConfig {
-    int width_px = 1280;          // display size in pixels
+    int width_px = 1280;  // display size in pixels
     int height_px = 800;
-    float dpi_scale = 1.0f;       // 1 = a 96-dpi screen; multiplies every size below and the style
-    float body_size_px = 22.0f;   // body text em height at scale 1 (about 6 mm at 96 dpi: readable at ~1 m, common practice)
-    float medium_size_px = 34.0f; // headings and mid-size readouts (target name, beat rate) at scale 1
-    float large_size_px = 64.0f;  // big readouts (the deviation in cents) at scale 1
-    float font_scale = 1.0f;      // the user's font size choice (0.5 .. 3), on top of dpi_scale; fonts only
+    float dpi_scale = 1.0f;  // 1 = a 96-dpi screen; multiplies every size below and the style
+    float body_size_px =
+        22.0f;  // body text em height at scale 1 (about 6 mm at 96 dpi: readable at ~1 m, common practice)
+    float medium_size_px = 34.0f;  // headings and mid-size readouts (target name, beat rate) at scale 1
+    float large_size_px = 64.0f;   // big readouts (the deviation in cents) at scale 1
+    float font_scale = 1.0f;       // the user's font size choice (0.5 .. 3), on top of dpi_scale; fonts only
     // The smallest display the screens are laid out for at scale 1 (the
     // Practice screen's control row needs about 1150 px). A smaller display
     // shrinks the text, and with it every size measured in ui_unit(), so
@@ -32,11 +33,11 @@ struct HostConfig {
 
 // Faces loaded by the host, in this order in the atlas.
 enum class FontFace {
-    body,   // DejaVuSans, body_size_px (the default font)
-    bold,   // DejaVuSans-Bold, body_size_px
-    mono,   // DejaVuSansMono, body_size_px (aligned figures)
-    large,  // DejaVuSans-Bold, large_size_px
-    medium, // DejaVuSans-Bold, medium_size_px
+    body,    // DejaVuSans, body_size_px (the default font)
+    bold,    // DejaVuSans-Bold, body_size_px
+    mono,    // DejaVuSansMono, body_size_px (aligned figures)
+    large,   // DejaVuSans-Bold, large_size_px
+    medium,  // DejaVuSans-Bold, medium_size_px
 };
 
 class ImGuiHost {
@@ -52,8 +53,8 @@ public:
     // Ends the frame (ImGui::Render). Valid until the next new_frame().
     ImDrawData& render();
 
-    ImFont* font(FontFace face) const;              // valid for the host's lifetime
-    const Texture& atlas() const { return atlas_; } // the font atlas as the rasterizer sees it
+    ImFont* font(FontFace face) const;                           // valid for the host's lifetime
+    const Texture& atlas() const { return atlas_; }              // the font atlas as the rasterizer sees it
     bool fonts_from_files() const { return fonts_from_files_; }  // false when the built-in font stands in
     ImGuiContext* context() const { return context_; }
     const HostConfig& config() const { return config_; }
@@ -85,7 +86,6 @@ private:
 // One whole offscreen frame: new_frame, build_frame(), render, clear `out`
 // to clear_color at the host's display size, and rasterize into it.
 void render_offscreen(ImGuiHost& host, Rasterizer& raster, PixelBuffer& out, float dt_s,
-                      const std::function<void()>& build_frame,
-                      std::uint32_t clear_color = rgba(24, 26, 30));
+                      const std::function<void()>& build_frame, std::uint32_t clear_color = rgba(24, 26, 30));
 
 }  // namespace beatless::ui

@@ -29,7 +29,8 @@ void sink_write(void* context, void* data, int size) {
 std::string reason(int err) { return std::string(" (") + std::strerror(err) + ")"; }
 
 void append_bytes(void* context, void* data, int size) {
-    if (size > 0) static_cast<std::string*>(context)->append(static_cast<const char*>(data), static_cast<std::size_t>(size));
+    if (size > 0)
+        static_cast<std::string*>(context)->append(static_cast<const char*>(data), static_cast<std::size_t>(size));
 }
 
 void check_image(const std::string& name, const PixelBuffer& image) {
@@ -55,8 +56,8 @@ void write_png(const std::string& path, const PixelBuffer& image) {
     Sink sink;
     sink.file = std::fopen(path.c_str(), "wb");
     if (sink.file == nullptr) throw RenderError(path + ": cannot be written" + reason(errno != 0 ? errno : EIO));
-    const int ok = stbi_write_png_to_func(&sink_write, &sink, image.width_px, image.height_px, 4,
-                                          image.pixels.data(), image.width_px * 4);
+    const int ok = stbi_write_png_to_func(&sink_write, &sink, image.width_px, image.height_px, 4, image.pixels.data(),
+                                          image.width_px * 4);
     errno = 0;
     const bool closed = std::fclose(sink.file) == 0;
     const int close_err = closed ? 0 : (errno != 0 ? errno : EIO);

@@ -130,7 +130,7 @@ void blend_coverage_row(std::uint32_t* p, const std::uint8_t* cov, int n, std::u
         if (c4 == 0) continue;
         __m128i c = _mm_unpacklo_epi8(_mm_cvtsi32_si128(static_cast<int>(c4)), zero);  // c0 c1 c2 c3 (16-bit)
         if (ca != 255) c = div255_epi16(_mm_add_epi16(_mm_mullo_epi16(c, ca16), c128));
-        c = _mm_unpacklo_epi16(c, c);                                                  // c0 c0 c1 c1 c2 c2 c3 c3
+        c = _mm_unpacklo_epi16(c, c);                                                    // c0 c0 c1 c1 c2 c2 c3 c3
         const __m128i a_lo = _mm_unpacklo_epi32(c, c), a_hi = _mm_unpackhi_epi32(c, c);  // 4 lanes per pixel
         const __m128i d = _mm_loadu_si128(reinterpret_cast<const __m128i*>(p + i));
         __m128i lo = _mm_mullo_epi16(_mm_unpacklo_epi8(d, zero), _mm_sub_epi16(c255, a_lo));
@@ -150,8 +150,10 @@ void blend_coverage_row(std::uint32_t* p, const std::uint8_t* cov, int n, std::u
 void fill_span(std::uint32_t* p, int n, std::uint32_t color) {
     const std::uint32_t a = color >> 24;
     if (a == 0 || n <= 0) return;
-    if (a == 255) fill_row(p, n, color);
-    else blend_row(p, n, color, a);
+    if (a == 255)
+        fill_row(p, n, color);
+    else
+        blend_row(p, n, color, a);
 }
 
 inline int to_u8(float f) { return std::clamp(static_cast<int>(f + 0.5f), 0, 255); }
@@ -185,8 +187,10 @@ struct Sampler {
         if (t == nullptr || t->texels == nullptr || t->width_px <= 0 || t->height_px <= 0) return;
         w = t->width_px;
         h = t->height_px;
-        if (t->format == TextureFormat::alpha8) a8 = static_cast<const std::uint8_t*>(t->texels);
-        else c32 = static_cast<const std::uint32_t*>(t->texels);
+        if (t->format == TextureFormat::alpha8)
+            a8 = static_cast<const std::uint8_t*>(t->texels);
+        else
+            c32 = static_cast<const std::uint32_t*>(t->texels);
     }
     bool white() const { return a8 == nullptr && c32 == nullptr; }
     std::uint32_t fetch(int tx, int ty) const {
@@ -268,12 +272,12 @@ struct Surface {
 // remainder r of n / d are stepped exactly from row to row (as a line is in
 // Bresenham's algorithm), so there is no division per row.
 struct Edge {
-    std::int64_t q = 0;    // floor(n / d)
-    std::int64_t r = 0;    // n - q*d, 0 <= r < d
-    std::int64_t qs = 0;   // floor(step / d)
-    std::int64_t rs = 0;   // step - qs*d
-    std::int64_t d = 1;    // kSub*|A|; 1 for a horizontal edge (then q = n)
-    int side = 0;          // +1 bounds the span below, -1 above, 0 horizontal
+    std::int64_t q = 0;   // floor(n / d)
+    std::int64_t r = 0;   // n - q*d, 0 <= r < d
+    std::int64_t qs = 0;  // floor(step / d)
+    std::int64_t rs = 0;  // step - qs*d
+    std::int64_t d = 1;   // kSub*|A|; 1 for a horizontal edge (then q = n)
+    int side = 0;         // +1 bounds the span below, -1 above, 0 horizontal
 
     Edge(const Snapped& p, const Snapped& p_next, std::int64_t first_row_centre) {
         const std::int64_t a = p.y - p_next.y;
@@ -292,9 +296,12 @@ struct Edge {
     // Narrows [x0, x1) to the pixels inside this edge on the current row.
     void bound(std::int64_t& x0, std::int64_t& x1) const {
         const std::int64_t ceil_q = q + (r != 0 ? 1 : 0);  // ceil(n / d)
-        if (side > 0) x0 = std::max(x0, ceil_q);
-        else if (side < 0) x1 = std::min(x1, 1 - ceil_q);
-        else if (q > 0) x1 = x0;  // horizontal edge with the row outside
+        if (side > 0)
+            x0 = std::max(x0, ceil_q);
+        else if (side < 0)
+            x1 = std::min(x1, 1 - ceil_q);
+        else if (q > 0)
+            x1 = x0;  // horizontal edge with the row outside
     }
     void next_row() {
         q += qs;
@@ -413,9 +420,9 @@ void scan(const Snapped& p0, const Snapped& p1, const Snapped& p2, const PixRect
 
 // Shading by what varies over the triangle (decided once per triangle).
 enum class Shade {
-    flat,        // one colour, one texel: spans of one colour
-    alpha,       // one RGB, alpha interpolated, one texel: anti-aliased fringes
-    full,        // colour and/or texture coordinates interpolated
+    flat,   // one colour, one texel: spans of one colour
+    alpha,  // one RGB, alpha interpolated, one texel: anti-aliased fringes
+    full,   // colour and/or texture coordinates interpolated
 };
 
 // Draws one triangle; returns false when it has no area.
@@ -444,8 +451,10 @@ bool draw_triangle(Surface& s, const Snapped& p0, const Snapped& q1, const Snapp
             const Blender blender(color, a);
             scan(p0, p1, p2, clip, [&](int y, int x0, int x1) {
                 std::uint32_t* row = s.pixels + static_cast<std::ptrdiff_t>(y) * s.stride;
-                if (x1 - x0 >= 8) blend_row(row + x0, x1 - x0, color, a);
-                else for (int x = x0; x < x1; ++x) row[x] = blender(row[x]);
+                if (x1 - x0 >= 8)
+                    blend_row(row + x0, x1 - x0, color, a);
+                else
+                    for (int x = x0; x < x1; ++x) row[x] = blender(row[x]);
             });
         }
         return true;
@@ -547,7 +556,8 @@ void draw_rect(Surface& s, const Snapped& a, const Snapped& c, const PixRect& cl
         const int ty = texel_index(static_cast<float>(a.v + (y + 0.5 - ay) * dv), tex.h);
         std::uint32_t* row = s.pixels + static_cast<std::ptrdiff_t>(y) * s.stride + x0;
         if (tex.a8 != nullptr && consecutive) {
-            const std::uint8_t* t = tex.a8 + static_cast<std::size_t>(ty) * static_cast<std::size_t>(tex.w) + static_cast<std::size_t>(tx0);
+            const std::uint8_t* t =
+                tex.a8 + static_cast<std::size_t>(ty) * static_cast<std::size_t>(tex.w) + static_cast<std::size_t>(tx0);
             blend_coverage_row(row, t, w, col & 0x00FFFFFFu, ca);
             continue;
         }
@@ -566,8 +576,8 @@ void draw_rect(Surface& s, const Snapped& a, const Snapped& c, const PixRect& cl
 // ---------------------------------------------------------------------------
 
 void Rasterizer::draw_elements(PixelBuffer& target, std::span<const ImDrawVert> vertices,
-                               std::span<const ImDrawIdx> indices, const ImVec4& clip_rect,
-                               const Texture* texture, const Transform& xf) noexcept {
+                               std::span<const ImDrawIdx> indices, const ImVec4& clip_rect, const Texture* texture,
+                               const Transform& xf) noexcept {
     if (target.width_px <= 0 || target.height_px <= 0) return;
     const float cx0 = (clip_rect.x - xf.offset_x) * xf.scale_x, cy0 = (clip_rect.y - xf.offset_y) * xf.scale_y;
     const float cx1 = (clip_rect.z - xf.offset_x) * xf.scale_x, cy1 = (clip_rect.w - xf.offset_y) * xf.scale_y;
@@ -618,8 +628,10 @@ void Rasterizer::draw_elements(PixelBuffer& target, std::span<const ImDrawVert> 
             }
         }
         const Snapped s0 = snapped(v0), s1 = snapped(v1), s2 = snapped(v2);
-        if (draw_triangle(surf, s0, s1, s2, clip, tex)) ++stats_.triangles;
-        else ++stats_.skipped;
+        if (draw_triangle(surf, s0, s1, s2, clip, tex))
+            ++stats_.triangles;
+        else
+            ++stats_.skipped;
     }
 }
 

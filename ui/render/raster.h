@@ -28,12 +28,14 @@ struct PixelBuffer {
 
     void resize(int width_px, int height_px);  // keeps the allocation when shrinking; contents undefined after
     void clear(std::uint32_t color) noexcept;  // every pixel set to `color`
-    std::uint32_t at(int x, int y) const noexcept { return pixels[static_cast<std::size_t>(y) * static_cast<std::size_t>(width_px) + static_cast<std::size_t>(x)]; }
+    std::uint32_t at(int x, int y) const noexcept {
+        return pixels[static_cast<std::size_t>(y) * static_cast<std::size_t>(width_px) + static_cast<std::size_t>(x)];
+    }
 };
 
 enum class TextureFormat {
-    alpha8,   // 1 byte per texel: coverage; colour is white (ImFontAtlas::GetTexDataAsAlpha8)
-    rgba32,   // 4 bytes per texel, IM_COL32 packing (ImFontAtlas::GetTexDataAsRGBA32)
+    alpha8,  // 1 byte per texel: coverage; colour is white (ImFontAtlas::GetTexDataAsAlpha8)
+    rgba32,  // 4 bytes per texel, IM_COL32 packing (ImFontAtlas::GetTexDataAsRGBA32)
 };
 
 // What an ImTextureID points at: texels owned by someone else (the font
@@ -50,10 +52,10 @@ struct RasterConfig {
 };
 
 struct RasterStats {
-    std::size_t triangles = 0;      // drawn through the general edge-function path
-    std::size_t rects = 0;          // pairs drawn through the axis-aligned span path
-    std::size_t commands = 0;       // draw commands seen
-    std::size_t skipped = 0;        // triangles rejected: degenerate, non-finite or bad index
+    std::size_t triangles = 0;  // drawn through the general edge-function path
+    std::size_t rects = 0;      // pairs drawn through the axis-aligned span path
+    std::size_t commands = 0;   // draw commands seen
+    std::size_t skipped = 0;    // triangles rejected: degenerate, non-finite or bad index
 };
 
 class Rasterizer {
@@ -74,9 +76,8 @@ public:
     // Draws indexed triangles in pixel coordinates (no DisplayPos offset),
     // clipped to clip_rect = (x0, y0, x1, y1): a pixel is inside when its
     // centre is, with x0 <= x + 0.5 < x1. Allocates: no.
-    void draw_triangles(PixelBuffer& target, std::span<const ImDrawVert> vertices,
-                        std::span<const ImDrawIdx> indices, const ImVec4& clip_rect,
-                        const Texture* texture) noexcept;
+    void draw_triangles(PixelBuffer& target, std::span<const ImDrawVert> vertices, std::span<const ImDrawIdx> indices,
+                        const ImVec4& clip_rect, const Texture* texture) noexcept;
 
     const RasterStats& stats() const noexcept { return stats_; }
     void reset_stats() noexcept { stats_ = {}; }
@@ -86,9 +87,8 @@ private:
         float offset_x = 0.0f, offset_y = 0.0f;  // subtracted first (DisplayPos)
         float scale_x = 1.0f, scale_y = 1.0f;    // then multiplied (FramebufferScale)
     };
-    void draw_elements(PixelBuffer& target, std::span<const ImDrawVert> vertices,
-                       std::span<const ImDrawIdx> indices, const ImVec4& clip_rect,
-                       const Texture* texture, const Transform& xf) noexcept;
+    void draw_elements(PixelBuffer& target, std::span<const ImDrawVert> vertices, std::span<const ImDrawIdx> indices,
+                       const ImVec4& clip_rect, const Texture* texture, const Transform& xf) noexcept;
 
     RasterConfig config_;
     RasterStats stats_;

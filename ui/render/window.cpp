@@ -30,7 +30,9 @@ std::string& glfw_error() {
     static std::string text;
     return text;
 }
-void on_glfw_error(int, const char* description) { glfw_error() = description != nullptr ? description : "unknown error"; }
+void on_glfw_error(int, const char* description) {
+    glfw_error() = description != nullptr ? description : "unknown error";
+}
 
 struct GlfwSession {
     GlfwSession() {
@@ -41,7 +43,8 @@ struct GlfwSession {
         if ((display == nullptr || *display == '\0') && (wayland == nullptr || *wayland == '\0'))
             throw RenderError("no display: set DISPLAY or use `beatless snapshot` to render without a window");
         throw RenderError(std::string("display '") + (display != nullptr ? display : wayland) +
-                    "': cannot be opened (" + glfw_error() + "); use `beatless snapshot` to render without a window");
+                          "': cannot be opened (" + glfw_error() +
+                          "); use `beatless snapshot` to render without a window");
     }
     ~GlfwSession() { glfwTerminate(); }
     GlfwSession(const GlfwSession&) = delete;
@@ -189,7 +192,8 @@ public:
             tex_w_ = std::max(tex_w_, pow2_at_least(w));
             tex_h_ = std::max(tex_h_, pow2_at_least(h));
             if (tex_w_ > max_size_ || tex_h_ > max_size_)
-                throw RenderError("window " + std::to_string(w) + "x" + std::to_string(h) + ": larger than OpenGL's texture limit " + std::to_string(max_size_));
+                throw RenderError("window " + std::to_string(w) + "x" + std::to_string(h) +
+                                  ": larger than OpenGL's texture limit " + std::to_string(max_size_));
             glTexImage2D(GL_TEXTURE_2D, 0, GL_RGBA8, tex_w_, tex_h_, 0, GL_RGBA, GL_UNSIGNED_BYTE, nullptr);
         }
         glPixelStorei(GL_UNPACK_ALIGNMENT, 4);
@@ -231,7 +235,8 @@ public:
         long bad = 0;
         for (int y = 0; y < h; ++y)
             for (int x = 0; x < w; ++x) {
-                const std::uint32_t gl = back[static_cast<std::size_t>(h - 1 - y) * static_cast<std::size_t>(w) + static_cast<std::size_t>(x)];
+                const std::uint32_t gl = back[static_cast<std::size_t>(h - 1 - y) * static_cast<std::size_t>(w) +
+                                              static_cast<std::size_t>(x)];
                 if (((gl ^ buf.at(x, y)) & 0x00FFFFFFu) != 0) ++bad;
             }
         return bad;
@@ -251,7 +256,8 @@ private:
 
 WindowReport run_window(const WindowConfig& config, const std::function<void(float dt_s)>& build_frame) {
     if (config.width <= 0 || config.height <= 0)
-        throw RenderError("window size " + std::to_string(config.width) + "x" + std::to_string(config.height) + ": must be positive");
+        throw RenderError("window size " + std::to_string(config.width) + "x" + std::to_string(config.height) +
+                          ": must be positive");
     const GlfwSession glfw;
     glfwWindowHint(GLFW_CLIENT_API, GLFW_OPENGL_API);
     glfwWindowHint(GLFW_CONTEXT_VERSION_MAJOR, 1);

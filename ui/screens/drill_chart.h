@@ -12,6 +12,7 @@
 
 namespace beatless::ui {
 
-void draw_drill_progress(ImDrawList* dl, const DrillProgress& h, const Drill& drill, float x0, float y0, float w, float hgt);
+void draw_drill_progress(ImDrawList* dl, const DrillProgress& h, const Drill& drill, float x0, float y0, float w,
+                         float hgt);
 
 }  // namespace beatless::ui

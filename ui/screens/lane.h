@@ -17,10 +17,10 @@ constexpr double kLaneHalfCents = 50.0;  // the lane spans ±50 cents
 constexpr double kLaneTrailS = 0.5;      // the marker's fading trail
 
 struct LaneView {
-    double in_tune_cents = 5.0;           // half-width of the in-tune window; default 5
-    const Verdict* verdict = nullptr;     // what the marker shows; null or idle: the lane alone
-    const TraceStore* trail = nullptr;    // readings for the trail (newest last); null: none
-    bool show_now = true;                 // the "now" tick below the labels (needs about 2.5 body units)
+    double in_tune_cents = 5.0;         // half-width of the in-tune window; default 5
+    const Verdict* verdict = nullptr;   // what the marker shows; null or idle: the lane alone
+    const TraceStore* trail = nullptr;  // readings for the trail (newest last); null: none
+    bool show_now = true;               // the "now" tick below the labels (needs about 2.5 body units)
 };
 
 // Draws the lane with its band's top-left at (x0, y0); the marker's head

@@ -9,9 +9,9 @@
 //   [frame]    build_frame
 #include "ui/screens/screen.h"
 
-#include "ui/screens/widgets.h"
 #include "ui/render/imgui_host.h"
 #include "ui/screens/palette.h"
+#include "ui/screens/widgets.h"
 
 #define GLFW_INCLUDE_NONE
 #include <GLFW/glfw3.h>  // key codes only: the window feeds GLFW's codes into io.KeysDown
@@ -53,8 +53,8 @@ std::string built_screen_keys() {
 
 float ui_unit() { return font_px(FontFace::body); }
 
-bool DevicePicker::combo(AppState& app, const char* id, const std::string& current, const std::string& shown, bool input,
-                         bool show_channels, std::string& chosen) {
+bool DevicePicker::combo(AppState& app, const char* id, const std::string& current, const std::string& shown,
+                         bool input, bool show_channels, std::string& chosen) {
     if (app.app_time_s() - listed_at_s_ > 5.0) {  // a device plugged in shows up soon
         devices_ = app.devices();
         listed_at_s_ = app.app_time_s();
@@ -77,7 +77,8 @@ bool DevicePicker::combo(AppState& app, const char* id, const std::string& curre
                 picked = true;
             }
         }
-        if (devices_.empty()) ImGui::TextColored(ImGui::ColorConvertU32ToFloat4(palette::kTextDim), "no audio devices found");
+        if (devices_.empty())
+            ImGui::TextColored(ImGui::ColorConvertU32ToFloat4(palette::kTextDim), "no audio devices found");
         ImGui::EndCombo();
     }
     return picked;
@@ -85,8 +86,9 @@ bool DevicePicker::combo(AppState& app, const char* id, const std::string& curre
 
 namespace {
 
-constexpr ImGuiWindowFlags kFixed = ImGuiWindowFlags_NoDecoration | ImGuiWindowFlags_NoMove | ImGuiWindowFlags_NoSavedSettings |
-                                    ImGuiWindowFlags_NoBringToFrontOnFocus | ImGuiWindowFlags_NoScrollWithMouse;
+constexpr ImGuiWindowFlags kFixed = ImGuiWindowFlags_NoDecoration | ImGuiWindowFlags_NoMove |
+                                    ImGuiWindowFlags_NoSavedSettings | ImGuiWindowFlags_NoBringToFrontOnFocus |
+                                    ImGuiWindowFlags_NoScrollWithMouse;
 
 ImVec4 v4(std::uint32_t c) { return ImGui::ColorConvertU32ToFloat4(c); }
 
@@ -151,7 +153,8 @@ void ScreenDeck::apply_style() {
     c[ImGuiCol_HeaderHovered] = v4(palette::with_alpha(palette::kAccent, 190));
     c[ImGuiCol_HeaderActive] = v4(palette::kAccent);
     c[ImGuiCol_CheckMark] = v4(palette::kText);
-    c[ImGuiCol_SliderGrab] = v4(palette::kAccent);  // not the text colour: the value stays readable where the grab crosses it
+    c[ImGuiCol_SliderGrab] =
+        v4(palette::kAccent);  // not the text colour: the value stays readable where the grab crosses it
     c[ImGuiCol_SliderGrabActive] = v4(palette::kYellow);
     c[ImGuiCol_Separator] = v4(palette::kGrid);
     c[ImGuiCol_ModalWindowDimBg] = v4(palette::with_alpha(palette::kBackground, 200));
@@ -173,8 +176,10 @@ void ScreenDeck::handle_keys() {
     auto pressed = [](int key, bool repeat = false) { return ImGui::IsKeyPressed(key, repeat); };
     if (pressed(GLFW_KEY_H) || pressed(GLFW_KEY_F1)) help_ = !help_;
     if (pressed(GLFW_KEY_ESCAPE)) {
-        if (help_) help_ = false;
-        else show(ScreenId::practice);
+        if (help_)
+            help_ = false;
+        else
+            show(ScreenId::practice);
     }
     if (pressed(GLFW_KEY_TAB)) switch_to((current_ + 1) % screens_.size());
     if (pressed(GLFW_KEY_SPACE)) app_.toggle_drone();
@@ -201,7 +206,8 @@ void ScreenDeck::tab_bar(float height) {
     ImGui::PushStyleVar(ImGuiStyleVar_WindowPadding, ImVec2(std::round(0.6f * u), std::round(0.3f * u)));
     ImGui::Begin("##tabs", nullptr, kFixed);
     ImDrawList* dl = ImGui::GetWindowDrawList();
-    draw_text(dl, FontFace::bold, ImVec2(std::round(0.6f * u), std::round(0.5f * (height - font_px(FontFace::bold)))), palette::kTextDim, "Beatless");
+    draw_text(dl, FontFace::bold, ImVec2(std::round(0.6f * u), std::round(0.5f * (height - font_px(FontFace::bold)))),
+              palette::kTextDim, "Beatless");
     ImGui::SetCursorPosX(std::round(5.2f * u));
     const float bh = height - std::round(0.6f * u);
     for (std::size_t i = 0; i < screens_.size(); ++i) {
@@ -227,7 +233,8 @@ void ScreenDeck::tab_bar(float height) {
     x -= std::round(2.0f * u) + drone_w;
     const bool sounding = on && app_.drone_heard();
     draw_text(dl, FontFace::bold, ImVec2(x, ty), sounding ? palette::kDroneOn : palette::kTextDim, drone);
-    draw_square(dl, ImVec2(x - 0.8f * u, ty + 0.5f * u), 0.32f * u, sounding ? palette::kDroneOn : palette::kTextDim, sounding);
+    draw_square(dl, ImVec2(x - 0.8f * u, ty + 0.5f * u), 0.32f * u, sounding ? palette::kDroneOn : palette::kTextDim,
+                sounding);
     ImGui::End();
     ImGui::PopStyleVar();
 }
@@ -244,7 +251,8 @@ void ScreenDeck::caution_banner(const ImVec2& pos, float width, float& height_ou
     ImGui::Begin("##caution", nullptr, kFixed);
     ImDrawList* dl = ImGui::GetWindowDrawList();
     dl->PushClipRect(pos, ImVec2(pos.x + width, pos.y + h), false);
-    dl->AddRect(ImVec2(pos.x + 2, pos.y + 2), ImVec2(pos.x + width - 2, pos.y + h - 2), palette::kWarning, 0.0f, 0, 2.0f);
+    dl->AddRect(ImVec2(pos.x + 2, pos.y + 2), ImVec2(pos.x + width - 2, pos.y + h - 2), palette::kWarning, 0.0f, 0,
+                2.0f);
     draw_warning_sign(dl, ImVec2(pos.x + 1.5f * u, pos.y + 0.5f * h), 0.8f * u, palette::kWarning);
     dl->PopClipRect();
     const float button_w = std::round(8.0f * u);
@@ -294,8 +302,10 @@ void ScreenDeck::status_bar(const ImVec2& pos, float width, float height) {
     constexpr double kRejoinedShownS = 5.0;
     if (was_lost_ && !v.input_lost) rejoined_at_s_ = app_.app_time_s();
     was_lost_ = v.input_lost;
-    if (v.input_lost) put(FontFace::bold, palette::kWarning, "lost: rejoining");
-    else if (app_.app_time_s() - rejoined_at_s_ < kRejoinedShownS) put(FontFace::bold, palette::kText, "back");
+    if (v.input_lost)
+        put(FontFace::bold, palette::kWarning, "lost: rejoining");
+    else if (app_.app_time_s() - rejoined_at_s_ < kRejoinedShownS)
+        put(FontFace::bold, palette::kText, "back");
 
     // Input level: a bar from -60 to 0 dBFS, its value, and CLIP in words.
     const double lvl = v.level_dbfs;
@@ -305,18 +315,22 @@ void ScreenDeck::status_bar(const ImVec2& pos, float width, float height) {
     dl->AddRectFilled(ImVec2(x, by), ImVec2(x + bar_w, by + bar_h), palette::kPanelRaised);
     if (std::isfinite(lvl)) {
         const float f = static_cast<float>(std::clamp((lvl + 60.0) / 60.0, 0.0, 1.0));
-        dl->AddRectFilled(ImVec2(x, by), ImVec2(std::round(x + f * bar_w), by + bar_h), lvl > -6.0 ? palette::kLevelHot : palette::kLevelOk);
+        dl->AddRectFilled(ImVec2(x, by), ImVec2(std::round(x + f * bar_w), by + bar_h),
+                          lvl > -6.0 ? palette::kLevelHot : palette::kLevelOk);
     }
     dl->AddRect(ImVec2(x, by), ImVec2(x + bar_w, by + bar_h), palette::kGrid);
     x += bar_w + std::round(0.5f * u);
     char buf[64];
-    if (std::isfinite(lvl) && lvl > -90.0) std::snprintf(buf, sizeof buf, "%s dBFS", signed_text(lvl, 0).c_str());
-    else std::snprintf(buf, sizeof buf, "silent");
+    if (std::isfinite(lvl) && lvl > -90.0)
+        std::snprintf(buf, sizeof buf, "%s dBFS", signed_text(lvl, 0).c_str());
+    else
+        std::snprintf(buf, sizeof buf, "silent");
     put(FontFace::mono, palette::kTextDim, buf, 0.6f);
     if (v.clipped) {
         const std::string clip = "CLIP";
         const ImVec2 ts = text_size(FontFace::bold, clip);
-        dl->AddRectFilled(ImVec2(x - 0.2f * u, ty - 0.1f * u), ImVec2(x + ts.x + 0.2f * u, ty + ts.y + 0.1f * u), palette::kClip, 3.0f);
+        dl->AddRectFilled(ImVec2(x - 0.2f * u, ty - 0.1f * u), ImVec2(x + ts.x + 0.2f * u, ty + ts.y + 0.1f * u),
+                          palette::kClip, 3.0f);
         draw_text(dl, FontFace::bold, ImVec2(x, ty), palette::kBackground, clip);
         x += ts.x + std::round(1.6f * u);
     } else {
@@ -330,8 +344,10 @@ void ScreenDeck::status_bar(const ImVec2& pos, float width, float height) {
         x += std::round(1.2f * u);
     }
     put(FontFace::body, over > 0 ? palette::kWarning : palette::kTextDim, buf);
-    if (v.latency_s > 0.0) std::snprintf(buf, sizeof buf, "latency %.0f ms", 1000.0 * v.latency_s);
-    else std::snprintf(buf, sizeof buf, "latency \xE2\x80\x93");
+    if (v.latency_s > 0.0)
+        std::snprintf(buf, sizeof buf, "latency %.0f ms", 1000.0 * v.latency_s);
+    else
+        std::snprintf(buf, sizeof buf, "latency \xE2\x80\x93");
     put(FontFace::body, palette::kTextDim, buf);
     ImGui::End();
     ImGui::PopStyleColor();
@@ -385,7 +401,8 @@ void ScreenDeck::help_overlay() {
     ImGui::SetNextWindowSize(ImVec2(w, h));
     ImGui::PushStyleColor(ImGuiCol_WindowBg, v4(palette::kPanelRaised));
     ImGui::PushStyleVar(ImGuiStyleVar_WindowBorderSize, 2.0f);
-    ImGui::Begin("##help", nullptr, ImGuiWindowFlags_NoDecoration | ImGuiWindowFlags_NoMove | ImGuiWindowFlags_NoSavedSettings);
+    ImGui::Begin("##help", nullptr,
+                 ImGuiWindowFlags_NoDecoration | ImGuiWindowFlags_NoMove | ImGuiWindowFlags_NoSavedSettings);
     ImDrawList* dl = ImGui::GetWindowDrawList();
     const ImVec2 p = ImGui::GetWindowPos();
     draw_text(dl, FontFace::medium, ImVec2(p.x + u, p.y + 0.7f * u), palette::kText, "Keys");
@@ -433,8 +450,8 @@ void ScreenDeck::build_frame(double dt_s) {
 }
 
 ImDrawList* begin_screen_panel(const char* id, const ScreenArea& area, ImVec2 padding, bool wheel_scrolls) {
-    ImGuiWindowFlags flags = ImGuiWindowFlags_NoDecoration | ImGuiWindowFlags_NoMove | ImGuiWindowFlags_NoSavedSettings |
-                             ImGuiWindowFlags_NoBringToFrontOnFocus;
+    ImGuiWindowFlags flags = ImGuiWindowFlags_NoDecoration | ImGuiWindowFlags_NoMove |
+                             ImGuiWindowFlags_NoSavedSettings | ImGuiWindowFlags_NoBringToFrontOnFocus;
     if (!wheel_scrolls) flags |= ImGuiWindowFlags_NoScrollWithMouse;
     ImGui::SetNextWindowPos(area.pos);
     ImGui::SetNextWindowSize(area.size);

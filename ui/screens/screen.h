@@ -11,22 +11,23 @@
 
 #include <cmath>
 #include <memory>
-#include <string>
 #include <span>
+#include <string>
 #include <string_view>
 #include <vector>
 
 namespace beatless::ui {
 
 struct ScreenArea {
-    ImVec2 pos;    // top-left, pixels
-    ImVec2 size;   // width, height in pixels
+    ImVec2 pos;   // top-left, pixels
+    ImVec2 size;  // width, height in pixels
 };
 
 // A screen's one panel: an undecorated, fixed window over `area` with this
 // padding; the mouse wheel scrolls it only when asked. Returns its draw list;
 // end_screen_panel() closes it.
-ImDrawList* begin_screen_panel(const char* id, const ScreenArea& area, ImVec2 padding = ImVec2(0, 0), bool wheel_scrolls = false);
+ImDrawList* begin_screen_panel(const char* id, const ScreenArea& area, ImVec2 padding = ImVec2(0, 0),
+                               bool wheel_scrolls = false);
 void end_screen_panel();
 
 struct KeyHelp {
@@ -40,9 +41,9 @@ struct StatusView {
     std::string input;
     double level_dbfs = -INFINITY;
     bool clipped = false;
-    unsigned long long overflows = 0;   // ring overflows + device overflows and underflows
-    double latency_s = 0.0;             // 0 when unknown
-    bool input_lost = false;            // the input device stopped; the engine tries to rejoin it every second
+    unsigned long long overflows = 0;  // ring overflows + device overflows and underflows
+    double latency_s = 0.0;            // 0 when unknown
+    bool input_lost = false;           // the input device stopped; the engine tries to rejoin it every second
 };
 
 // True when a running engine's device input has stopped delivering audio.
@@ -82,7 +83,7 @@ public:
     explicit ScreenDeck(AppState& app);
     ~ScreenDeck();
 
-    void show(ScreenId id);                 // ignored when that screen is not built
+    void show(ScreenId id);  // ignored when that screen is not built
     ScreenId current() const { return screens_[current_]->id(); }
     bool help_open() const { return help_; }
     void set_help(bool open) { help_ = open; }
@@ -91,22 +92,22 @@ public:
     void build_frame(double dt_s);
 
 private:
-    void switch_to(std::size_t index);    // leaves the current screen first
+    void switch_to(std::size_t index);  // leaves the current screen first
     void apply_style();
     void handle_keys();
     void tab_bar(float height);
     void caution_banner(const ImVec2& pos, float width, float& height_out);
     void status_bar(const ImVec2& pos, float width, float height);
     void messages(const ImVec2& bottom_left, float width);
-    float messages_height() const;                 // rows the messages take above the status bar (0 without any)
+    float messages_height() const;  // rows the messages take above the status bar (0 without any)
     void help_overlay();
 
     AppState& app_;
     std::vector<std::unique_ptr<Screen>> screens_;
     std::size_t current_ = 0;
     bool help_ = false;
-    bool was_lost_ = false;           // the status bar's input was lost at the last frame
-    double rejoined_at_s_ = -1e9;     // when it came back (the bar says so for kRejoinedShownS)
+    bool was_lost_ = false;        // the status bar's input was lost at the last frame
+    double rejoined_at_s_ = -1e9;  // when it came back (the bar says so for kRejoinedShownS)
 };
 
 // A device chooser for the screens (Settings, Ensemble): the devices with
@@ -115,8 +116,8 @@ private:
 class DevicePicker {
 public:
     // Returns true and sets `chosen` ("" = the system default) when one is picked.
-    bool combo(AppState& app, const char* id, const std::string& current, const std::string& shown, bool input, bool show_channels,
-               std::string& chosen);
+    bool combo(AppState& app, const char* id, const std::string& current, const std::string& shown, bool input,
+               bool show_channels, std::string& chosen);
 
 private:
     std::vector<audio::DeviceInfo> devices_;

@@ -20,17 +20,17 @@
 //
 // Index: [state] [run] [now panel] [attempt panel] [left column] [screen]
 #include "pitch/base/error.h"
-#include "ui/session/listener_model.h"
-#include "pitch/theory/notes.h"
 #include "pitch/base/text.h"
-#include "ui/screens/widgets.h"
+#include "pitch/theory/notes.h"
 #include "ui/screens/drill_chart.h"
-#include "ui/session/drill_runner.h"
 #include "ui/screens/lane.h"
-#include "ui/session/log_writer.h"
 #include "ui/screens/palette.h"
-#include "ui/session/paths.h"
 #include "ui/screens/screen.h"
+#include "ui/screens/widgets.h"
+#include "ui/session/drill_runner.h"
+#include "ui/session/listener_model.h"
+#include "ui/session/log_writer.h"
+#include "ui/session/paths.h"
 #include "ui/session/target_files.h"
 
 #define GLFW_INCLUDE_NONE
@@ -54,8 +54,8 @@ namespace {
 // [SECTION] State
 // ---------------------------------------------------------------------------
 
-constexpr double kRetryEveryS = 10.0;   // unsaved attempts: try the log again this often
-constexpr double kAwayS = 0.5;          // no frame of this screen for this long: it was left
+constexpr double kRetryEveryS = 10.0;  // unsaved attempts: try the log again this often
+constexpr double kAwayS = 0.5;         // no frame of this screen for this long: it was left
 
 ImVec4 v4(std::uint32_t c) { return ImGui::ColorConvertU32ToFloat4(c); }
 
@@ -73,7 +73,8 @@ public:
         // Closing the program: one more try, then nothing kept in memory is lost.
         if (!writer_ || writer_->pending() == 0) return;
         const SaveResult r = writer_->retry();
-        if (r.pending > 0) std::fprintf(stderr, "beatless: %s\n", keep_unsaved(*writer_, log_warning_line(log_path_, r)).c_str());
+        if (r.pending > 0)
+            std::fprintf(stderr, "beatless: %s\n", keep_unsaved(*writer_, log_warning_line(log_path_, r)).c_str());
     }
     ScreenId id() const override { return ScreenId::drills; }
     std::span<const KeyHelp> keys() const override { return kDrillKeys; }
@@ -105,7 +106,7 @@ private:
     std::unique_ptr<LogWriter> writer_;
     std::string log_path_;
     std::unique_ptr<DrillRunner> runner_;
-    bool drill_owned_ = false;          // AppState is in drill mode for us
+    bool drill_owned_ = false;  // AppState is in drill mode for us
     std::size_t target_seen_ = static_cast<std::size_t>(-1);
     double last_fed_t_ = -INFINITY;
     double last_build_s_ = -1.0;
@@ -114,11 +115,11 @@ private:
     bool ear_done_seen_ = false;
     bool warned_unheard_ = false;
     std::string shown_warning_;
-    double now_s_ = 0.0;                // the runner's clock this frame
+    double now_s_ = 0.0;  // the runner's clock this frame
     // History.
     bool history_dirty_ = true;
     DrillProgress history_;
-    std::vector<ImVec2> points_;        // polyline scratch
+    std::vector<ImVec2> points_;                     // polyline scratch
     std::optional<ui::SimulatedListener> listener_;  // --listener: answers ear questions
     double answer_due_s_ = INFINITY;
 };
@@ -186,17 +187,23 @@ void DrillsScreen::start(AppState& app) {
     }
     const AppOptions& o = app.options();
     if (d.mode == DrillMode::ear && !listener_ && !app.drone_heard()) {
-        app.post("no output device: an ear drill plays its questions, so it cannot start without one; choose an output in Settings", true);
+        app.post(
+            "no output device: an ear drill plays its questions, so it cannot start without one; choose an output in "
+            "Settings",
+            true);
         return;
     }
     RunnerConfig rc;
-    rc.seed = o.demo || o.simulated ? o.seed : static_cast<std::uint64_t>(std::chrono::steady_clock::now().time_since_epoch().count());
+    rc.seed = o.demo || o.simulated
+                  ? o.seed
+                  : static_cast<std::uint64_t>(std::chrono::steady_clock::now().time_since_epoch().count());
     rc.performer = d.mode == DrillMode::ear ? (listener_ ? kSimulatedListener : "") : o.demo ? kDemoPerformer : "";
     auto runner = std::make_unique<DrillRunner>(d, rc, writer_.get());
     if (!app.begin_drill(drill_drone(d))) return;
     drill_owned_ = true;
     const bool hold = d.mode == DrillMode::hold;
-    app.set_drill_targets(one_target_set(hold && runner->current_target() ? *runner->current_target() : d.targets.front()));
+    app.set_drill_targets(
+        one_target_set(hold && runner->current_target() ? *runner->current_target() : d.targets.front()));
     // Holds run on the input's clock (readings carry it); ear questions on the frames' clock.
     double t0 = hold ? app.stream_time_s() : app.app_time_s();
     if (hold && o.demo && app.sing_script(demo_script(*runner))) t0 = 0.0;  // the engine starts again with her notes
@@ -236,7 +243,8 @@ void DrillsScreen::pump(AppState& app) {
         now_s_ = run_drill().mode == DrillMode::hold ? app.stream_time_s() : app.app_time_s();
         runner_->advance(now_s_);
         for (const ToneRequest& t : runner_->take_tones()) {
-            if (!app.sound_tone(t.freq_hz, t.dur_s) && !warned_unheard_ && run_drill().mode == DrillMode::ear && !listener_) {
+            if (!app.sound_tone(t.freq_hz, t.dur_s) && !warned_unheard_ && run_drill().mode == DrillMode::ear &&
+                !listener_) {
                 warned_unheard_ = true;
                 app.post("no output device: the questions cannot be heard (choose an output in Settings)", true);
             }
@@ -245,7 +253,8 @@ void DrillsScreen::pump(AppState& app) {
             target_seen_ = runner_->hold_index();
             app.set_drill_targets(one_target_set(*runner_->current_target()));
         }
-        if (listener_ && runner_->phase() == DrillPhase::ear_answer) {  // the simulated listener thinks for half a second
+        if (listener_ &&
+            runner_->phase() == DrillPhase::ear_answer) {  // the simulated listener thinks for half a second
             if (!std::isfinite(answer_due_s_)) answer_due_s_ = now_s_ + 0.5;
             if (now_s_ >= answer_due_s_) {
                 runner_->answer(listener_->answer(*runner_->question(), run_drill().target_cents()), now_s_);
@@ -280,11 +289,13 @@ void DrillsScreen::keys_of_screen(AppState& app) {
     if (ImGui::IsKeyPressed(GLFW_KEY_S, false) && runner_ && runner_->running()) stop(app, "drill stopped");
     if (runner_ && runner_->running() && run_drill().mode == DrillMode::ear) {
         for (int k = 0; k < 9; ++k)
-            if (ImGui::IsKeyPressed(GLFW_KEY_1 + k, false) || ImGui::IsKeyPressed(GLFW_KEY_KP_1 + k, false)) runner_->answer(k, now_s_);
+            if (ImGui::IsKeyPressed(GLFW_KEY_1 + k, false) || ImGui::IsKeyPressed(GLFW_KEY_KP_1 + k, false))
+                runner_->answer(k, now_s_);
     }
     if (!(runner_ && runner_->running()) && !drills_.empty()) {
         if (ImGui::IsKeyPressed(GLFW_KEY_PAGE_UP, true) && selected_ > 0) --selected_, history_dirty_ = true;
-        if (ImGui::IsKeyPressed(GLFW_KEY_PAGE_DOWN, true) && selected_ + 1 < drills_.size()) ++selected_, history_dirty_ = true;
+        if (ImGui::IsKeyPressed(GLFW_KEY_PAGE_DOWN, true) && selected_ + 1 < drills_.size())
+            ++selected_, history_dirty_ = true;
     }
 }
 
@@ -315,16 +326,19 @@ void DrillsScreen::idle_now(ImDrawList* dl, float x0, float y0, float w, float h
     y = ImGui::GetCursorScreenPos().y + std::round(0.6f * u);
     std::string facts;
     if (d->mode == DrillMode::hold) {
-        facts = "Hold each target for " + pitch::format_trimmed(d->hold_s, 1) + " s within \xC2\xB1" + pitch::format_trimmed(d->tolerance_cents, 1) +
-                " cents. " + std::string(d->sound_target ? "Each target sounds first; then " : "") + "a count-in of " +
+        facts = "Hold each target for " + pitch::format_trimmed(d->hold_s, 1) + " s within \xC2\xB1" +
+                pitch::format_trimmed(d->tolerance_cents, 1) + " cents. " +
+                std::string(d->sound_target ? "Each target sounds first; then " : "") + "a count-in of " +
                 pitch::format_trimmed(d->lead_in_s, 1) + " s, and you sing or play.";
     } else {
-        facts = d->task == ui::EarTask::discriminate
-                    ? "Two tones sound in turn over the drone, " + d->targets.front().target.interval.str() +
-                          " pure and mistuned: say which was pure. The mistuning shrinks after two right answers and grows "
-                          "after a wrong one; the drill " + stop_rule_text(d->staircase) + "."
-                    : "One tone sounds over the drone: say which of the " + std::to_string(d->targets.size()) +
-                          " intervals it was. Each is asked " + std::to_string(d->rounds) + " times.";
+        facts =
+            d->task == ui::EarTask::discriminate
+                ? "Two tones sound in turn over the drone, " + d->targets.front().target.interval.str() +
+                      " pure and mistuned: say which was pure. The mistuning shrinks after two right answers and grows "
+                      "after a wrong one; the drill " +
+                      stop_rule_text(d->staircase) + "."
+                : "One tone sounds over the drone: say which of the " + std::to_string(d->targets.size()) +
+                      " intervals it was. Each is asked " + std::to_string(d->rounds) + " times.";
     }
     ImGui::SetCursorScreenPos(ImVec2(x0 + u, y));
     ImGui::PushTextWrapPos(x0 + w - u);
@@ -343,9 +357,10 @@ void DrillsScreen::hold_now(AppState& app, ImDrawList* dl, float x0, float y0, f
     char buf[160];
     // In the rest before another hold, the next one is shown.
     const bool rest_before_next = ph == DrillPhase::rest && r.hold_index() + 1 < r.hold_count();
-    const std::size_t shown_index = std::min(r.hold_index() + (rest_before_next ? 1 : 0), r.hold_count() ? r.hold_count() - 1 : 0);
-    std::snprintf(buf, sizeof buf, "%s  \xC2\xB7  hold %zu of %zu%s", run_drill().title.c_str(), shown_index + 1, r.hold_count(),
-                  rest_before_next ? " next" : "");
+    const std::size_t shown_index =
+        std::min(r.hold_index() + (rest_before_next ? 1 : 0), r.hold_count() ? r.hold_count() - 1 : 0);
+    std::snprintf(buf, sizeof buf, "%s  \xC2\xB7  hold %zu of %zu%s", run_drill().title.c_str(), shown_index + 1,
+                  r.hold_count(), rest_before_next ? " next" : "");
     draw_text(dl, FontFace::body, ImVec2(x0 + u, y), palette::kTextDim, buf);
     y += std::round(1.4f * u);
     const DrillTarget* t = r.current_target();
@@ -357,8 +372,8 @@ void DrillsScreen::hold_now(AppState& app, ImDrawList* dl, float x0, float y0, f
             if (res.score.locked) ++locked, ttl += res.score.time_to_lock_s;
             if (std::isfinite(res.score.mean_dev_cents)) dev += res.score.mean_dev_cents, ++dev_n;
         }
-        std::snprintf(buf, sizeof buf, "%s: %zu of %zu holds locked", ph == DrillPhase::stopped ? "Stopped" : "Drill finished", locked,
-                      r.results().size());
+        std::snprintf(buf, sizeof buf, "%s: %zu of %zu holds locked",
+                      ph == DrillPhase::stopped ? "Stopped" : "Drill finished", locked, r.results().size());
         draw_text(dl, FontFace::medium, ImVec2(x0 + u, y), palette::kText, buf);
         y += font_px(FontFace::medium) + std::round(0.5f * u);
         std::string line;
@@ -369,7 +384,8 @@ void DrillsScreen::hold_now(AppState& app, ImDrawList* dl, float x0, float y0, f
             line += "mean deviation " + signed_text(m, 1) + " cents";
         }
         if (!line.empty()) draw_text(dl, FontFace::body, ImVec2(x0 + u, y), palette::kText, line);
-        draw_text(dl, FontFace::bold, ImVec2(x0 + u, y0 + h - std::round(1.8f * u)), palette::kText, "Press Enter to go again, or choose another drill.");
+        draw_text(dl, FontFace::bold, ImVec2(x0 + u, y0 + h - std::round(1.8f * u)), palette::kText,
+                  "Press Enter to go again, or choose another drill.");
         return;
     }
     // The target, large, with its name; in the rest before another hold, the
@@ -380,7 +396,8 @@ void DrillsScreen::hold_now(AppState& app, ImDrawList* dl, float x0, float y0, f
     const float nx = x0 + u + text_size(FontFace::large, ratio).x + std::round(0.9f * u);
     const float count_w = text_size(FontFace::large, "0.0 s").x + std::round(1.5f * u);
     draw_text(dl, FontFace::medium, ImVec2(nx, y + std::round(0.08f * font_px(FontFace::large))), palette::kText,
-              fit_text(FontFace::medium, t->target.name.empty() ? std::string("target") : t->target.name, x0 + w - u - count_w - nx));
+              fit_text(FontFace::medium, t->target.name.empty() ? std::string("target") : t->target.name,
+                       x0 + w - u - count_w - nx));
     const char* what = "";
     switch (ph) {
         case DrillPhase::ready: what = "listen to the drone"; break;
@@ -396,19 +413,25 @@ void DrillsScreen::hold_now(AppState& app, ImDrawList* dl, float x0, float y0, f
             break;
         default: break;
     }
-    draw_text(dl, FontFace::body, ImVec2(nx, y + std::round(0.08f * font_px(FontFace::large)) + font_px(FontFace::medium) + std::round(0.2f * u)),
-              palette::kTextDim, what);
+    draw_text(
+        dl, FontFace::body,
+        ImVec2(nx, y + std::round(0.08f * font_px(FontFace::large)) + font_px(FontFace::medium) + std::round(0.2f * u)),
+        palette::kTextDim, what);
     // Right: the countdown (whole seconds before the hold, tenths during it).
     const double left = r.time_left_s(now_s_);
     std::string count;
-    if (ph == DrillPhase::count_in || ph == DrillPhase::announce || ph == DrillPhase::ready) count = std::to_string(static_cast<int>(std::ceil(left - 1e-9)));
-    else if (ph == DrillPhase::hold) count = seconds_text(left);
+    if (ph == DrillPhase::count_in || ph == DrillPhase::announce || ph == DrillPhase::ready)
+        count = std::to_string(static_cast<int>(std::ceil(left - 1e-9)));
+    else if (ph == DrillPhase::hold)
+        count = seconds_text(left);
     if (!count.empty()) {
         const float cw = text_size(FontFace::large, count).x;
         const std::uint32_t col = ph == DrillPhase::hold ? palette::kText : palette::kYellow;
         draw_text(dl, FontFace::large, ImVec2(x0 + w - u - cw, y), col, count);
         const char* label = ph == DrillPhase::hold ? "left" : "until the hold";
-        draw_text(dl, FontFace::body, ImVec2(x0 + w - u - text_size(FontFace::body, label).x, y + font_px(FontFace::large)), palette::kTextDim, label);
+        draw_text(dl, FontFace::body,
+                  ImVec2(x0 + w - u - text_size(FontFace::body, label).x, y + font_px(FontFace::large)),
+                  palette::kTextDim, label);
     }
     y += font_px(FontFace::large) + std::round(1.1f * u);
     // The hold's progress.
@@ -416,8 +439,10 @@ void DrillsScreen::hold_now(AppState& app, ImDrawList* dl, float x0, float y0, f
     const float bx0 = x0 + u, bx1 = x0 + w - u;
     dl->AddRectFilled(ImVec2(bx0, y), ImVec2(bx1, y + bar_h), palette::kPanelRaised);
     if (ph == DrillPhase::hold) {
-        const double f = std::clamp((now_s_ - r.phase_start_s()) / std::max(1e-6, r.phase_end_s() - r.phase_start_s()), 0.0, 1.0);
-        dl->AddRectFilled(ImVec2(bx0, y), ImVec2(std::round(bx0 + static_cast<float>(f) * (bx1 - bx0)), y + bar_h), palette::kInTune);
+        const double f =
+            std::clamp((now_s_ - r.phase_start_s()) / std::max(1e-6, r.phase_end_s() - r.phase_start_s()), 0.0, 1.0);
+        dl->AddRectFilled(ImVec2(bx0, y), ImVec2(std::round(bx0 + static_cast<float>(f) * (bx1 - bx0)), y + bar_h),
+                          palette::kInTune);
     }
     y += bar_h + std::round(1.5f * u);
     // The lane, as on the Practice screen, its window the drill's tolerance.
@@ -446,55 +471,71 @@ void DrillsScreen::ear_now(AppState& app, ImDrawList* dl, float x0, float y0, fl
     if (over) {
         top += std::to_string(r.answers().size()) + " answered";
     } else if (q) {
-        top += "question " + std::to_string(q == nullptr ? 0 : r.answers().size() + (ph == DrillPhase::ear_feedback ? 0 : 1));
-        if (!disc) top += " of " + std::to_string(r.questions_total());
-        else top += "  \xC2\xB7  mistuned by " + pitch::format_trimmed(q->level_cents, q->level_cents < 10.0 ? 2 : 1) + " c";
+        top += "question " +
+               std::to_string(q == nullptr ? 0 : r.answers().size() + (ph == DrillPhase::ear_feedback ? 0 : 1));
+        if (!disc)
+            top += " of " + std::to_string(r.questions_total());
+        else
+            top += "  \xC2\xB7  mistuned by " + pitch::format_trimmed(q->level_cents, q->level_cents < 10.0 ? 2 : 1) +
+                   " c";
     } else {
         top += "the drone alone";
     }
-    if (listener_) top += app.drone_heard() ? "  \xC2\xB7  simulated listener" : "  \xC2\xB7  simulated listener, nothing sounds";
+    if (listener_)
+        top += app.drone_heard() ? "  \xC2\xB7  simulated listener" : "  \xC2\xB7  simulated listener, nothing sounds";
     draw_text(dl, FontFace::body, ImVec2(x0 + u, y), palette::kTextDim, fit_text(FontFace::body, top, w - 2.0f * u));
     y += std::round(1.5f * u);
     if (over) {
-        draw_text(dl, FontFace::medium, ImVec2(x0 + u, y), palette::kText, ph == DrillPhase::stopped ? "Stopped" : "Session finished");
+        draw_text(dl, FontFace::medium, ImVec2(x0 + u, y), palette::kText,
+                  ph == DrillPhase::stopped ? "Stopped" : "Session finished");
         y += font_px(FontFace::medium) + std::round(0.5f * u);
         if (const auto& res = r.ear_result()) {
-            draw_text(dl, FontFace::bold, ImVec2(x0 + u, y), palette::kText, fit_text(FontFace::bold, ear_summary_text(*res), w - 2.0f * u));
+            draw_text(dl, FontFace::bold, ImVec2(x0 + u, y), palette::kText,
+                      fit_text(FontFace::bold, ear_summary_text(*res), w - 2.0f * u));
             std::string why;
             if (disc) {
-                why = res->complete ? "Stopped " + stopped_by_text(res->stopped_by, d.staircase) : std::string("Stopped before the stopping rule");
+                why = res->complete ? "Stopped " + stopped_by_text(res->stopped_by, d.staircase)
+                                    : std::string("Stopped before the stopping rule");
                 if (res->estimate.verdict == ui::ThresholdVerdict::measured) {
                     char pct[16];
                     std::snprintf(pct, sizeof pct, "%.1f", 100.0 * d.fit_config().threshold_p);
-                    why += "; a mistuning of " + pitch::format_trimmed(res->estimate.threshold_cents, 1) + " c is named right " + pct +
-                           " % of the time.";
+                    why += "; a mistuning of " + pitch::format_trimmed(res->estimate.threshold_cents, 1) +
+                           " c is named right " + pct + " % of the time.";
                 } else if (res->estimate.verdict == ui::ThresholdVerdict::finer) {
                     why += "; heard at the smallest mistuning this drill plays.";
                 } else {
-                    why += "; no mistuning up to " + pitch::format_trimmed(d.staircase.max_level, 0) + " c was heard reliably.";
+                    why += "; no mistuning up to " + pitch::format_trimmed(d.staircase.max_level, 0) +
+                           " c was heard reliably.";
                 }
             } else {
                 why = "The confusion matrix below: what was played against what was named.";
             }
-            draw_text(dl, FontFace::body, ImVec2(x0 + u, y + std::round(1.4f * u)), palette::kTextDim, fit_text(FontFace::body, why, w - 2.0f * u));
+            draw_text(dl, FontFace::body, ImVec2(x0 + u, y + std::round(1.4f * u)), palette::kTextDim,
+                      fit_text(FontFace::body, why, w - 2.0f * u));
         }
-        draw_text(dl, FontFace::bold, ImVec2(x0 + u, y0 + h - std::round(1.8f * u)), palette::kText, "Press Enter to go again, or choose another drill.");
+        draw_text(dl, FontFace::bold, ImVec2(x0 + u, y0 + h - std::round(1.8f * u)), palette::kText,
+                  "Press Enter to go again, or choose another drill.");
         return;
     }
     if (ph == DrillPhase::ready || !q) {
         draw_text(dl, FontFace::medium, ImVec2(x0 + u, y), palette::kText, "Listen to the drone");
         char buf[64];
-        std::snprintf(buf, sizeof buf, "the first question in %d", static_cast<int>(std::ceil(r.time_left_s(now_s_) - 1e-9)));
-        draw_text(dl, FontFace::body, ImVec2(x0 + u, y + font_px(FontFace::medium) + std::round(0.3f * u)), palette::kTextDim, buf);
+        std::snprintf(buf, sizeof buf, "the first question in %d",
+                      static_cast<int>(std::ceil(r.time_left_s(now_s_) - 1e-9)));
+        draw_text(dl, FontFace::body, ImVec2(x0 + u, y + font_px(FontFace::medium) + std::round(0.3f * u)),
+                  palette::kTextDim, buf);
         return;
     }
     const auto& targets = d.targets;
-    const std::string ask = disc ? "Which was " + targets.front().target.interval.str() + " pure: the first or the second?" : std::string("Which was it?");
+    const std::string ask =
+        disc ? "Which was " + targets.front().target.interval.str() + " pure: the first or the second?"
+             : std::string("Which was it?");
     draw_text(dl, FontFace::medium, ImVec2(x0 + u, y), palette::kText, ask);
     std::string playing;
     if (ph == DrillPhase::ear_play) {
         const double into = now_s_ - r.phase_start_s();
-        playing = !disc ? "listen\xE2\x80\xA6" : (into < d.tone_s ? "listen: the first\xE2\x80\xA6" : "listen: the second\xE2\x80\xA6");
+        playing = !disc ? "listen\xE2\x80\xA6"
+                        : (into < d.tone_s ? "listen: the first\xE2\x80\xA6" : "listen: the second\xE2\x80\xA6");
     } else if (ph == DrillPhase::ear_answer) {
         playing = disc ? "press 1 or 2, or click" : "press its number, or click";
     }
@@ -508,7 +549,8 @@ void DrillsScreen::ear_now(AppState& app, ImDrawList* dl, float x0, float y0, fl
     const float gap = std::round(0.6f * u);
     const float bw = std::floor((w - 2.0f * u - gap * static_cast<float>(cols - 1)) / static_cast<float>(cols));
     const float avail = y0 + h - y - 2.2f * u;
-    const float bh = std::round(std::clamp((avail - gap * static_cast<float>(rows - 1)) / static_cast<float>(rows), 1.8f * u, 3.8f * u));
+    const float bh = std::round(
+        std::clamp((avail - gap * static_cast<float>(rows - 1)) / static_cast<float>(rows), 1.8f * u, 3.8f * u));
     const bool open = r.answer_open(now_s_);
     const EarAnswer* last = ph == DrillPhase::ear_feedback && !r.answers().empty() ? &r.answers().back() : nullptr;
     for (int k = 0; k < n; ++k) {
@@ -530,8 +572,10 @@ void DrillsScreen::ear_now(AppState& app, ImDrawList* dl, float x0, float y0, fl
         if (clicked && open) runner_->answer(k, now_s_);
         std::uint32_t bg = open && hovered ? palette::with_alpha(palette::kAccent, 170) : palette::kPanelRaised;
         std::uint32_t border = open ? palette::kGrid : palette::kPanelRaised;
-        if (last && k == last->question.correct_answer) border = palette::kInTune;
-        else if (last && k == last->answer && !last->correct) border = palette::kSharp;
+        if (last && k == last->question.correct_answer)
+            border = palette::kInTune;
+        else if (last && k == last->answer && !last->correct)
+            border = palette::kSharp;
         dl->AddRectFilled(ImVec2(bx, by), ImVec2(bx + bw, by + bh), bg, std::round(0.2f * u));
         dl->AddRect(ImVec2(bx, by), ImVec2(bx + bw, by + bh), border, std::round(0.2f * u), 0, last ? 3.0f : 1.0f);
         const std::uint32_t ink = open || last ? palette::kText : palette::kTextDim;
@@ -543,11 +587,13 @@ void DrillsScreen::ear_now(AppState& app, ImDrawList* dl, float x0, float y0, fl
         const float tx = kx + std::round(2.1f * u);
         const float tw = bx + bw - std::round(0.5f * u) - tx;
         if (small.empty() || bh < 2.6f * u) {
-            draw_text(dl, FontFace::medium, ImVec2(tx, mid - 0.5f * font_px(FontFace::medium)), ink, fit_text(FontFace::medium, big, tw));
+            draw_text(dl, FontFace::medium, ImVec2(tx, mid - 0.5f * font_px(FontFace::medium)), ink,
+                      fit_text(FontFace::medium, big, tw));
         } else {
             const float tp = mid - 0.5f * (font_px(FontFace::medium) + 1.2f * u);
             draw_text(dl, FontFace::medium, ImVec2(tx, tp), ink, fit_text(FontFace::medium, big, tw));
-            draw_text(dl, FontFace::body, ImVec2(tx, tp + font_px(FontFace::medium) + std::round(0.1f * u)), palette::kTextDim, fit_text(FontFace::body, small, tw));
+            draw_text(dl, FontFace::body, ImVec2(tx, tp + font_px(FontFace::medium) + std::round(0.1f * u)),
+                      palette::kTextDim, fit_text(FontFace::body, small, tw));
         }
     }
     y += static_cast<float>(rows) * bh + static_cast<float>(rows - 1) * gap + std::round(0.5f * u);
@@ -555,24 +601,31 @@ void DrillsScreen::ear_now(AppState& app, ImDrawList* dl, float x0, float y0, fl
         const ui::EarQuestion& lq = last->question;
         std::string s = last->correct ? "Right" : "Not this time";
         if (disc) {
-            const std::string off = pitch::format_trimmed(lq.level_cents, lq.level_cents < 10.0 ? 2 : 1) + " c " + (lq.mistune_sign > 0 ? "wider" : "narrower");
-            s += std::string(": the ") + (lq.correct_answer == 0 ? "first" : "second") + " was pure, the " + (lq.correct_answer == 0 ? "second" : "first") + " " + off;
+            const std::string off = pitch::format_trimmed(lq.level_cents, lq.level_cents < 10.0 ? 2 : 1) + " c " +
+                                    (lq.mistune_sign > 0 ? "wider" : "narrower");
+            s += std::string(": the ") + (lq.correct_answer == 0 ? "first" : "second") + " was pure, the " +
+                 (lq.correct_answer == 0 ? "second" : "first") + " " + off;
         } else {
             s += ": it was " + targets[lq.target].target.interval.str();
         }
         const std::uint32_t col = last->correct ? palette::kInTune : palette::kSharp;
         const float r0 = std::round(0.42f * u);
-        if (last->correct) dl->AddCircleFilled(ImVec2(x0 + u + r0, y + 0.55f * u), r0, col, 20);
-        else draw_tuning_shape(dl, Tuning::sharp, ImVec2(x0 + u + r0, y + 0.55f * u), r0, col);
-        draw_text(dl, FontFace::bold, ImVec2(x0 + u + 2.0f * r0 + std::round(0.5f * u), y), col, fit_text(FontFace::bold, s, w - 4.0f * u));
+        if (last->correct)
+            dl->AddCircleFilled(ImVec2(x0 + u + r0, y + 0.55f * u), r0, col, 20);
+        else
+            draw_tuning_shape(dl, Tuning::sharp, ImVec2(x0 + u + r0, y + 0.55f * u), r0, col);
+        draw_text(dl, FontFace::bold, ImVec2(x0 + u + 2.0f * r0 + std::round(0.5f * u), y), col,
+                  fit_text(FontFace::bold, s, w - 4.0f * u));
     }
 }
 
 void DrillsScreen::now_panel(AppState& app, ImDrawList* dl, float x0, float y0, float w, float h) {
     draw_panel(dl, x0, y0, w, h);
     if (!runner_) return idle_now(dl, x0, y0, w, h);
-    if (run_drill().mode == DrillMode::hold) hold_now(app, dl, x0, y0, w, h);
-    else ear_now(app, dl, x0, y0, w, h);
+    if (run_drill().mode == DrillMode::hold)
+        hold_now(app, dl, x0, y0, w, h);
+    else
+        ear_now(app, dl, x0, y0, w, h);
 }
 
 // ---------------------------------------------------------------------------
@@ -589,31 +642,46 @@ void DrillsScreen::hold_trace(ImDrawList* dl, const HoldResult& r, float x0, flo
     const double span = std::max(15.0, 2.5 * r.tolerance_cents);
     const double dur = std::max(0.5, r.hold_dur_s);
     auto x_of = [&](double t) { return px0 + static_cast<float>(std::clamp(t / dur, 0.0, 1.0)) * (px1 - px0); };
-    auto y_of = [&](double c) { return std::round(0.5f * (py0 + py1) - static_cast<float>(std::clamp(c, -span, span) / span) * 0.5f * (py1 - py0)); };
+    auto y_of = [&](double c) {
+        return std::round(0.5f * (py0 + py1) -
+                          static_cast<float>(std::clamp(c, -span, span) / span) * 0.5f * (py1 - py0));
+    };
     dl->AddRectFilled(ImVec2(px0, py0), ImVec2(px1, py1), palette::kBackground);
-    dl->AddRectFilled(ImVec2(px0, y_of(r.tolerance_cents)), ImVec2(px1, y_of(-r.tolerance_cents)), palette::kInTuneZone);
+    dl->AddRectFilled(ImVec2(px0, y_of(r.tolerance_cents)), ImVec2(px1, y_of(-r.tolerance_cents)),
+                      palette::kInTuneZone);
     // Cents labels at the band's edges and the target line.
     const float ty = y_of(0.0);
     if (ty - y_of(r.tolerance_cents) >= 1.1f * u) {  // the band's edges, where they leave room for the target's label
-        const std::string tol = signed_text(r.tolerance_cents, 0) + " c", ntol = signed_text(-r.tolerance_cents, 0) + " c";
-        draw_text(dl, FontFace::body, ImVec2(px0 - std::round(0.3f * u) - text_size(FontFace::body, tol).x, y_of(r.tolerance_cents) - 0.55f * u), palette::kTextDim, tol);
-        draw_text(dl, FontFace::body, ImVec2(px0 - std::round(0.3f * u) - text_size(FontFace::body, ntol).x, y_of(-r.tolerance_cents) - 0.55f * u), palette::kTextDim, ntol);
+        const std::string tol = signed_text(r.tolerance_cents, 0) + " c",
+                          ntol = signed_text(-r.tolerance_cents, 0) + " c";
+        draw_text(
+            dl, FontFace::body,
+            ImVec2(px0 - std::round(0.3f * u) - text_size(FontFace::body, tol).x, y_of(r.tolerance_cents) - 0.55f * u),
+            palette::kTextDim, tol);
+        draw_text(dl, FontFace::body,
+                  ImVec2(px0 - std::round(0.3f * u) - text_size(FontFace::body, ntol).x,
+                         y_of(-r.tolerance_cents) - 0.55f * u),
+                  palette::kTextDim, ntol);
     }
     dl->AddRectFilled(ImVec2(px0, ty - 1), ImVec2(px1, ty + 1), palette::kCurrentTarget);
     const std::string tl = r.target.target.interval.str();
-    draw_text(dl, FontFace::bold, ImVec2(px0 - std::round(0.3f * u) - text_size(FontFace::bold, tl).x, ty - 0.55f * u), palette::kCurrentTarget, tl);
+    draw_text(dl, FontFace::bold, ImVec2(px0 - std::round(0.3f * u) - text_size(FontFace::bold, tl).x, ty - 0.55f * u),
+              palette::kCurrentTarget, tl);
     // Seconds below.
     for (int s = 0; s <= static_cast<int>(dur); ++s) {
         const float x = std::round(x_of(s));
         dl->AddRectFilled(ImVec2(x, py1), ImVec2(x + 1, py1 + std::round(0.25f * u)), palette::kGrid);
-        draw_text_centred(dl, FontFace::body, x, py1 + std::round(0.25f * u), palette::kTextDim, std::to_string(s) + (s == 0 ? " s" : ""));
+        draw_text_centred(dl, FontFace::body, x, py1 + std::round(0.25f * u), palette::kTextDim,
+                          std::to_string(s) + (s == 0 ? " s" : ""));
     }
     // The lock.
     if (r.score.locked) {
         const float lx = std::round(x_of(r.score.time_to_lock_s));
         for (float yy = py0; yy < py1; yy += std::round(0.5f * u))
-            dl->AddRectFilled(ImVec2(lx, yy), ImVec2(lx + 2, std::min(py1, yy + std::round(0.25f * u))), palette::kInTune);
-        draw_text(dl, FontFace::body, ImVec2(lx + std::round(0.3f * u), py0 + std::round(0.1f * u)), palette::kInTune, "lock");
+            dl->AddRectFilled(ImVec2(lx, yy), ImVec2(lx + 2, std::min(py1, yy + std::round(0.25f * u))),
+                              palette::kInTune);
+        draw_text(dl, FontFace::body, ImVec2(lx + std::round(0.3f * u), py0 + std::round(0.1f * u)), palette::kInTune,
+                  "lock");
     }
     // The pitch: one polyline per voiced stretch.
     dl->PushClipRect(ImVec2(px0, py0), ImVec2(px1, py1), true);
@@ -622,7 +690,9 @@ void DrillsScreen::hold_trace(ImDrawList* dl, const HoldResult& r, float x0, flo
     double prev_t = -1.0;
     float last_x = -1e9f;
     auto flush = [&] {
-        if (points_.size() >= 2) dl->AddPolyline(points_.data(), static_cast<int>(points_.size()), palette::kTraceLine, ImDrawFlags_None, thick);
+        if (points_.size() >= 2)
+            dl->AddPolyline(points_.data(), static_cast<int>(points_.size()), palette::kTraceLine, ImDrawFlags_None,
+                            thick);
         points_.clear();
     };
     for (const TraceRecord& rec : r.trace) {
@@ -659,7 +729,8 @@ void DrillsScreen::ear_track(ImDrawList* dl, float x0, float y0, float w, float 
     const double top_c = std::max(sc.max_level, sc.start_level);
     const double lo = std::log(sc.min_level), hi = std::log(top_c);
     auto y_of = [&](double c) {
-        return std::round(py1 - static_cast<float>((std::log(std::clamp(c, sc.min_level, top_c)) - lo) / (hi - lo)) * (py1 - py0));
+        return std::round(py1 - static_cast<float>((std::log(std::clamp(c, sc.min_level, top_c)) - lo) / (hi - lo)) *
+                                    (py1 - py0));
     };
     const int n = std::max(1, std::min(sc.max_trials, std::max<int>(40, static_cast<int>(as.size()) + 5)));
     auto x_of = [&](int i) { return px0 + (static_cast<float>(i) + 0.5f) * (px1 - px0) / static_cast<float>(n); };
@@ -671,12 +742,15 @@ void DrillsScreen::ear_track(ImDrawList* dl, float x0, float y0, float w, float 
         last_label_y = y;
         dl->AddRectFilled(ImVec2(px0, y), ImVec2(px1, y + 1), palette::kGrid);
         const std::string t = pitch::format_trimmed(c, 1) + " c";
-        draw_text(dl, FontFace::body, ImVec2(px0 - std::round(0.3f * u) - text_size(FontFace::body, t).x, y - 0.55f * u), palette::kTextDim, t);
+        draw_text(dl, FontFace::body,
+                  ImVec2(px0 - std::round(0.3f * u) - text_size(FontFace::body, t).x, y - 0.55f * u), palette::kTextDim,
+                  t);
     }
     const auto& res = r.ear_result();
     if (res && res->estimate.verdict == ui::ThresholdVerdict::measured) {
         const ui::ThresholdEstimate& e = res->estimate;
-        dl->AddRectFilled(ImVec2(px0, y_of(std::min(e.hi_cents, top_c))), ImVec2(px1, y_of(std::max(e.lo_cents, sc.min_level))),
+        dl->AddRectFilled(ImVec2(px0, y_of(std::min(e.hi_cents, top_c))),
+                          ImVec2(px1, y_of(std::max(e.lo_cents, sc.min_level))),
                           palette::with_alpha(palette::kCurrentTarget, 50));
         const float y = y_of(e.threshold_cents);
         dl->AddRectFilled(ImVec2(px0, y - 1), ImVec2(px1, y + 1), palette::kCurrentTarget);
@@ -687,16 +761,23 @@ void DrillsScreen::ear_track(ImDrawList* dl, float x0, float y0, float w, float 
     const float rad = std::round(0.28f * u);
     for (std::size_t i = 0; i < as.size() && static_cast<int>(i) < n; ++i) {
         const ImVec2 c(x_of(static_cast<int>(i)), y_of(as[i].question.level_cents));
-        if (as[i].correct) dl->AddCircleFilled(c, rad, palette::kInTune, 12);
-        else draw_tuning_shape(dl, Tuning::sharp, c, rad, palette::kSharp);
+        if (as[i].correct)
+            dl->AddCircleFilled(c, rad, palette::kInTune, 12);
+        else
+            draw_tuning_shape(dl, Tuning::sharp, c, rad, palette::kSharp);
     }
     // The legend, in what fits: the full sentence, else a short one.
     const float lw = px1 - px0;
     std::string legend = "the mistuning played at each answer (log scale): disc right, triangle wrong";
-    if (res && res->estimate.verdict == ui::ThresholdVerdict::measured) legend += "; yellow: the threshold, band: its 95 % interval";
-    else if (res && res->estimate.verdict == ui::ThresholdVerdict::finer) legend += "; yellow: the smallest mistuning played";
-    if (text_size(FontFace::body, legend).x > lw) legend = "mistuning played: disc right, triangle wrong" + std::string(res && res->estimate.verdict != ui::ThresholdVerdict::none ? "; yellow: the result" : "");
-    draw_text(dl, FontFace::body, ImVec2(px0, py1 + std::round(0.2f * u)), palette::kTextDim, fit_text(FontFace::body, legend, lw));
+    if (res && res->estimate.verdict == ui::ThresholdVerdict::measured)
+        legend += "; yellow: the threshold, band: its 95 % interval";
+    else if (res && res->estimate.verdict == ui::ThresholdVerdict::finer)
+        legend += "; yellow: the smallest mistuning played";
+    if (text_size(FontFace::body, legend).x > lw)
+        legend = "mistuning played: disc right, triangle wrong" +
+                 std::string(res && res->estimate.verdict != ui::ThresholdVerdict::none ? "; yellow: the result" : "");
+    draw_text(dl, FontFace::body, ImVec2(px0, py1 + std::round(0.2f * u)), palette::kTextDim,
+              fit_text(FontFace::body, legend, lw));
 }
 
 // Identification: the confusion matrix so far (rows played, columns named)
@@ -712,12 +793,14 @@ void DrillsScreen::ear_matrix(ImDrawList* dl, float x0, float y0, float w, float
     const float ch = std::floor(std::min((h - 0.2f * u) / static_cast<float>(n + 1), 1.6f * u));
     if (cw < 2.0f * u || ch < 0.75f * u) return;
     const float mx0 = x0 + u + label_w, my0 = y0 - std::round(0.3f * u);
-    draw_text(dl, FontFace::body, ImVec2(x0 + u, my0 + 0.5f * ch - 0.55f * u), palette::kTextFaint, "played \xE2\x86\x93");
+    draw_text(dl, FontFace::body, ImVec2(x0 + u, my0 + 0.5f * ch - 0.55f * u), palette::kTextFaint,
+              "played \xE2\x86\x93");
     for (std::size_t k = 0; k < n; ++k) {
         const std::string name = d.targets[k].target.interval.str();
-        draw_text_centred(dl, FontFace::body, mx0 + (static_cast<float>(k) + 0.5f) * cw, my0 + 0.5f * ch - 0.55f * u, palette::kTextDim,
-                          fit_text(FontFace::body, name, cw));
-        draw_text(dl, FontFace::body, ImVec2(x0 + u, my0 + static_cast<float>(k + 1) * ch + 0.5f * ch - 0.55f * u), palette::kTextDim, name);
+        draw_text_centred(dl, FontFace::body, mx0 + (static_cast<float>(k) + 0.5f) * cw, my0 + 0.5f * ch - 0.55f * u,
+                          palette::kTextDim, fit_text(FontFace::body, name, cw));
+        draw_text(dl, FontFace::body, ImVec2(x0 + u, my0 + static_cast<float>(k + 1) * ch + 0.5f * ch - 0.55f * u),
+                  palette::kTextDim, name);
     }
     for (std::size_t i = 0; i < n; ++i) {
         int row = 0;
@@ -727,8 +810,11 @@ void DrillsScreen::ear_matrix(ImDrawList* dl, float x0, float y0, float w, float
             const double share = row > 0 ? static_cast<double>(m[i][k]) / row : 0.0;
             const std::uint32_t base = i == k ? palette::kInTune : palette::kSharp;
             dl->AddRectFilled(ImVec2(cx + 1, cy + 1), ImVec2(cx + cw - 1, cy + ch - 1),
-                              m[i][k] > 0 ? palette::with_alpha(base, static_cast<unsigned>(40 + 170 * share)) : palette::kPanelRaised);
-            if (m[i][k] > 0) draw_text_centred(dl, FontFace::bold, cx + 0.5f * cw, cy + 0.5f * ch - 0.55f * u, palette::kText, std::to_string(m[i][k]));
+                              m[i][k] > 0 ? palette::with_alpha(base, static_cast<unsigned>(40 + 170 * share))
+                                          : palette::kPanelRaised);
+            if (m[i][k] > 0)
+                draw_text_centred(dl, FontFace::bold, cx + 0.5f * cw, cy + 0.5f * ch - 0.55f * u, palette::kText,
+                                  std::to_string(m[i][k]));
         }
     }
     // The closest pairs, each with its share right so far.
@@ -744,9 +830,12 @@ void DrillsScreen::ear_matrix(ImDrawList* dl, float x0, float y0, float w, float
         const double share = pair_share_right(m, i, k);
         const int of = pair_answers(m, i, k);
         char buf[120];
-        std::snprintf(buf, sizeof buf, "%s | %s (%s c): %s", d.targets[i].target.interval.str().c_str(), d.targets[k].target.interval.str().c_str(),
+        std::snprintf(buf, sizeof buf, "%s | %s (%s c): %s", d.targets[i].target.interval.str().c_str(),
+                      d.targets[k].target.interval.str().c_str(),
                       pitch::format_trimmed(std::fabs(cents[i] - cents[k]), 1).c_str(),
-                      std::isfinite(share) ? (std::to_string(std::lround(100.0 * share)) + " % of " + std::to_string(of)).c_str() : "not yet");
+                      std::isfinite(share)
+                          ? (std::to_string(std::lround(100.0 * share)) + " % of " + std::to_string(of)).c_str()
+                          : "not yet");
         draw_text(dl, FontFace::body, ImVec2(lx, ly), palette::kText, fit_text(FontFace::body, buf, lw));
         ly += std::round(1.2f * u);
     }
@@ -762,30 +851,34 @@ void DrillsScreen::attempt_panel(ImDrawList* dl, float x0, float y0, float w, fl
         int right = 0;
         for (const EarAnswer& a : runner_->answers()) right += a.correct ? 1 : 0;
         const std::string head = runner_->ear_result() ? ear_summary_text(*runner_->ear_result())
-                                                       : std::to_string(runner_->answers().size()) + " answered so far, " +
-                                                             std::to_string(right) + " right";
+                                                       : std::to_string(runner_->answers().size()) +
+                                                             " answered so far, " + std::to_string(right) + " right";
         draw_text(dl, FontFace::bold, ImVec2(x, y), palette::kText, fit_text(FontFace::bold, head, w - 2.0f * u));
         y += std::round(1.5f * u);
-        if (disc) ear_track(dl, x0, y, w, y0 + h - y - std::round(0.2f * u));
-        else ear_matrix(dl, x0, y, w, y0 + h - y - std::round(0.2f * u));
+        if (disc)
+            ear_track(dl, x0, y, w, y0 + h - y - std::round(0.2f * u));
+        else
+            ear_matrix(dl, x0, y, w, y0 + h - y - std::round(0.2f * u));
         return;
     }
     if (!runner_ || runner_->results().empty()) {
         draw_text(dl, FontFace::body, ImVec2(x, y), palette::kTextDim, "Last attempt");
         draw_text(dl, FontFace::body, ImVec2(x, y + std::round(1.6f * u)), palette::kTextDim,
-                  runner_ && run_drill().mode == DrillMode::hold ? "Your result shows here as soon as the hold ends."
-                                                                 : "Start a drill: each result shows here at once, with its trace.");
+                  runner_ && run_drill().mode == DrillMode::hold
+                      ? "Your result shows here as soon as the hold ends."
+                      : "Start a drill: each result shows here at once, with its trace.");
         return;
     }
     const HoldResult& r = runner_->results().back();
     char buf[160];
-    std::snprintf(buf, sizeof buf, "Last attempt: %s%s%s", r.target.target.interval.str().c_str(), r.target.target.name.empty() ? "" : "  ",
-                  r.target.target.name.c_str());
+    std::snprintf(buf, sizeof buf, "Last attempt: %s%s%s", r.target.target.interval.str().c_str(),
+                  r.target.target.name.empty() ? "" : "  ", r.target.target.name.c_str());
     std::string second = hold_spread_text(r.score);
     if (r.score.voiced_share < 0.5 && std::isfinite(r.score.mean_dev_cents))
         second += (second.empty() ? "" : ";  ") + std::string("heard for only part of the hold");
     const float second_w = text_size(FontFace::body, second).x;
-    draw_text(dl, FontFace::body, ImVec2(x, y), palette::kTextDim, fit_text(FontFace::body, buf, w - 3.0f * u - second_w));
+    draw_text(dl, FontFace::body, ImVec2(x, y), palette::kTextDim,
+              fit_text(FontFace::body, buf, w - 3.0f * u - second_w));
     draw_text(dl, FontFace::body, ImVec2(x0 + w - u - second_w, y), palette::kText, second);
     y += std::round(1.4f * u);
     // The result in words, with the state's shape and colour for the mean.
@@ -818,8 +911,10 @@ void DrillsScreen::left_column(AppState& app, ImDrawList* dl, float x0, float y0
         const Drill& d = drills_[i];
         const bool sel = i == selected_;
         if (sel) {
-            dl->AddRectFilled(ImVec2(x0 + std::round(0.3f * u), y), ImVec2(x0 + w - std::round(0.3f * u), y + entry_h - 2), palette::kPanelRaised);
-            dl->AddRectFilled(ImVec2(x0 + std::round(0.3f * u), y), ImVec2(x0 + std::round(0.3f * u) + 4, y + entry_h - 2), palette::kAccent);
+            dl->AddRectFilled(ImVec2(x0 + std::round(0.3f * u), y),
+                              ImVec2(x0 + w - std::round(0.3f * u), y + entry_h - 2), palette::kPanelRaised);
+            dl->AddRectFilled(ImVec2(x0 + std::round(0.3f * u), y),
+                              ImVec2(x0 + std::round(0.3f * u) + 4, y + entry_h - 2), palette::kAccent);
         }
         ImGui::SetCursorScreenPos(ImVec2(x0, y));
         ImGui::PushID(static_cast<int>(i));
@@ -832,9 +927,11 @@ void DrillsScreen::left_column(AppState& app, ImDrawList* dl, float x0, float y0
         const float tx = x0 + std::round(0.9f * u);
         dl->PushClipRect(ImVec2(x0, y), ImVec2(x0 + w - std::round(0.4f * u), y + entry_h), true);
         const float tw = x0 + w - std::round(0.5f * u) - tx;
-        draw_text(dl, FontFace::bold, ImVec2(tx, y + std::round(0.15f * u)), sel ? palette::kText : palette::kTextDim, fit_text(FontFace::bold, d.title, tw));
+        draw_text(dl, FontFace::bold, ImVec2(tx, y + std::round(0.15f * u)), sel ? palette::kText : palette::kTextDim,
+                  fit_text(FontFace::bold, d.title, tw));
         const std::string kind = d.mode == DrillMode::hold ? "hold \xC2\xB7 " : "ear \xC2\xB7 ";
-        draw_text(dl, FontFace::body, ImVec2(tx, y + std::round(1.15f * u)), palette::kTextFaint, fit_text(FontFace::body, kind + d.about, tw));
+        draw_text(dl, FontFace::body, ImVec2(tx, y + std::round(1.15f * u)), palette::kTextFaint,
+                  fit_text(FontFace::body, kind + d.about, tw));
         dl->PopClipRect();
         y += entry_h;
     }
@@ -878,7 +975,8 @@ void DrillsScreen::build(AppState& app, const ScreenArea& area, double dt_s) {
         dl->AddRect(ImVec2(x0, top), ImVec2(x0 + w, top + wh), palette::kWarning, std::round(0.2f * u), 0, 2.0f);
         draw_warning_sign(dl, ImVec2(x0 + u, top + 0.5f * wh), 0.5f * u, palette::kWarning);
         dl->PushClipRect(ImVec2(x0, top), ImVec2(x0 + w - 0.5f * u, top + wh), true);
-        draw_text(dl, FontFace::body, ImVec2(x0 + 2.0f * u, top + std::round(0.5f * (wh - u))), palette::kText, warning);
+        draw_text(dl, FontFace::body, ImVec2(x0 + 2.0f * u, top + std::round(0.5f * (wh - u))), palette::kText,
+                  warning);
         dl->PopClipRect();
         top += wh + std::round(0.5f * u);
     }

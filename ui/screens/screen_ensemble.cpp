@@ -18,20 +18,20 @@
 // Every text drawn is recorded in the view (ui/screens/screen_ensemble.h).
 //
 // Index: [text] [strip] [beats] [chart] [editor] [header] [screen]
-#include "pitch/measure/ensemble_analyzer.h"
+#include "ui/screens/screen_ensemble.h"
 #include "pitch/base/error.h"
-#include "pitch/theory/notes.h"
 #include "pitch/base/text.h"
-#include "ui/session/wording.h"
-#include "ui/session/beat_pulse.h"
+#include "pitch/measure/ensemble_analyzer.h"
+#include "pitch/theory/notes.h"
 #include "ui/screens/beat_view.h"
-#include "ui/screens/widgets.h"
-#include "ui/session/ensemble_plan.h"
-#include "ui/session/ensemble_session.h"
 #include "ui/screens/palette.h"
 #include "ui/screens/screen.h"
-#include "ui/screens/screen_ensemble.h"
+#include "ui/screens/widgets.h"
+#include "ui/session/beat_pulse.h"
+#include "ui/session/ensemble_plan.h"
+#include "ui/session/ensemble_session.h"
 #include "ui/session/target_files.h"
+#include "ui/session/wording.h"
 
 #define GLFW_INCLUDE_NONE
 #include <GLFW/glfw3.h>  // key codes only
@@ -50,7 +50,6 @@ namespace {
 constexpr double kLaneHalfCents = 30.0;  // the lane spans ±30 cents
 
 ImVec4 v4(std::uint32_t c) { return ImGui::ColorConvertU32ToFloat4(c); }
-
 
 constexpr pitch::ChordReference kRefs[] = {pitch::ChordReference::fixed_root, pitch::ChordReference::sounding_bass,
                                            pitch::ChordReference::best_fit};
@@ -88,12 +87,16 @@ public:
         v.input_lost = input_lost(st, session_.engine_running());
         return true;
     }
-    void left(AppState& app) override { session_.leave(app); }  // the group's engine stops; the app's gets the devices back
+    void left(AppState& app) override {
+        session_.leave(app);
+    }  // the group's engine stops; the app's gets the devices back
 
 private:
     void header(AppState& app, ImDrawList* dl, float x0, float y0, float w, float h);
-    void put(ImDrawList* dl, FontFace face, ImVec2 pos, std::uint32_t colour, std::string_view text, const ViewBox& panel);
-    float put_wrapped(ImDrawList* dl, FontFace face, ImVec2 pos, std::uint32_t colour, std::string_view text, float max_w, const ViewBox& panel);
+    void put(ImDrawList* dl, FontFace face, ImVec2 pos, std::uint32_t colour, std::string_view text,
+             const ViewBox& panel);
+    float put_wrapped(ImDrawList* dl, FontFace face, ImVec2 pos, std::uint32_t colour, std::string_view text,
+                      float max_w, const ViewBox& panel);
     void strip(AppState& app, ImDrawList* dl, std::size_t i, float x0, float y0, float w, float h);
     void beat_row(ImDrawList* dl, const std::vector<float>& xs, float x0, float y0, float w, float h, double dt_s);
     void chart(AppState& app, ImDrawList* dl, float x0, float y0, float w, float h);
@@ -105,14 +108,14 @@ private:
     char chord_buf_[96];
     char name_buf_[pitch::kMaxPlayers][40];
     bool bufs_from_settings_ = false;
-    std::vector<ImVec2> trail_;   // the lane's trail, reused every frame
+    std::vector<ImVec2> trail_;  // the lane's trail, reused every frame
     DevicePicker inputs_;
-    std::array<double, pitch::kMaxPlayers> last_dev_{};   // each card's last verdict, for "last: ..."
+    std::array<double, pitch::kMaxPlayers> last_dev_{};  // each card's last verdict, for "last: ..."
     std::array<bool, pitch::kMaxPlayers> has_last_{};
-    std::array<int, pitch::kMaxPlayers> octaves_{};       // the octave each player last sang in (cards and table)
+    std::array<int, pitch::kMaxPlayers> octaves_{};  // the octave each player last sang in (cards and table)
 
 public:
-    EnsembleView view_;   // what the last frame showed (ensemble_view())
+    EnsembleView view_;  // what the last frame showed (ensemble_view())
 };
 
 // ---------------------------------------------------------------------------
@@ -120,7 +123,8 @@ public:
 // ---------------------------------------------------------------------------
 
 // Draws and records a piece of text (the view's boxes are what the tests check).
-void EnsembleScreen::put(ImDrawList* dl, FontFace face, ImVec2 pos, std::uint32_t colour, std::string_view text, const ViewBox& panel) {
+void EnsembleScreen::put(ImDrawList* dl, FontFace face, ImVec2 pos, std::uint32_t colour, std::string_view text,
+                         const ViewBox& panel) {
     draw_text(dl, face, pos, colour, text);
     const ImVec2 sz = text_size(face, text);
     const float x = std::round(pos.x), y = std::round(pos.y);
@@ -128,8 +132,8 @@ void EnsembleScreen::put(ImDrawList* dl, FontFace face, ImVec2 pos, std::uint32_
 }
 
 // Words wrapped to max_w pixels, one line under another; returns the y under the last line.
-float EnsembleScreen::put_wrapped(ImDrawList* dl, FontFace face, ImVec2 pos, std::uint32_t colour, std::string_view text, float max_w,
-                                  const ViewBox& panel) {
+float EnsembleScreen::put_wrapped(ImDrawList* dl, FontFace face, ImVec2 pos, std::uint32_t colour,
+                                  std::string_view text, float max_w, const ViewBox& panel) {
     std::string line;
     float y = pos.y;
     const float step = font_px(face) + 1.0f;
@@ -211,7 +215,8 @@ void EnsembleScreen::strip(AppState& app, ImDrawList* dl, std::size_t i, float x
     {
         float fx = x0 + pad;
         for (const Item& it : items) {
-            const float iw = text_size(it.face, it.text.empty() && &it == &items[1] ? std::string("+1 oct") : it.text).x;
+            const float iw =
+                text_size(it.face, it.text.empty() && &it == &items[1] ? std::string("+1 oct") : it.text).x;
             if (fx > x0 + pad && fx + iw > x0 + pad + inner) {
                 fx = x0 + pad;
                 ++lines;
@@ -228,7 +233,8 @@ void EnsembleScreen::strip(AppState& app, ImDrawList* dl, std::size_t i, float x
             x = x0 + pad;
             y += line_h;
         }
-        const float dy = it.face == FontFace::bold ? 0.0f : std::round(0.5f * (font_px(FontFace::bold) - font_px(it.face)));
+        const float dy =
+            it.face == FontFace::bold ? 0.0f : std::round(0.5f * (font_px(FontFace::bold) - font_px(it.face)));
         put(dl, it.face, ImVec2(x, y + dy), it.colour, fit_text(it.face, it.text, inner), panel);
         x += iw + std::round(0.5f * u);
     }
@@ -248,14 +254,21 @@ void EnsembleScreen::strip(AppState& app, ImDrawList* dl, std::size_t i, float x
     for (int c = -30; c <= 30; c += 10) {
         const float ty = std::round(y_of(c));
         const float len = c == 0 ? lane_w : std::round(0.3f * lane_w);
-        dl->AddRectFilled(ImVec2(lx0, ty - (c == 0 ? 1.0f : 0.0f)), ImVec2(lx0 + len, ty + 1.0f), c == 0 ? palette::kTextDim : palette::kGrid);
+        dl->AddRectFilled(ImVec2(lx0, ty - (c == 0 ? 1.0f : 0.0f)), ImVec2(lx0 + len, ty + 1.0f),
+                          c == 0 ? palette::kTextDim : palette::kGrid);
     }
     if (!narrow) {
         const char* top = "+30";
-        const char* bottom = "\xE2\x88\x92" "30";
-        put(dl, FontFace::body, ImVec2(std::round(0.5f * (lx0 + lx1) - 0.5f * text_size(FontFace::body, top).x), ly0 + std::round(0.15f * u)),
+        const char* bottom =
+            "\xE2\x88\x92"
+            "30";
+        put(dl, FontFace::body,
+            ImVec2(std::round(0.5f * (lx0 + lx1) - 0.5f * text_size(FontFace::body, top).x),
+                   ly0 + std::round(0.15f * u)),
             palette::kTextDim, top, panel);
-        put(dl, FontFace::body, ImVec2(std::round(0.5f * (lx0 + lx1) - 0.5f * text_size(FontFace::body, bottom).x), ly1 - u - std::round(0.2f * u)),
+        put(dl, FontFace::body,
+            ImVec2(std::round(0.5f * (lx0 + lx1) - 0.5f * text_size(FontFace::body, bottom).x),
+                   ly1 - u - std::round(0.2f * u)),
             palette::kTextDim, bottom, panel);
     }
 
@@ -267,10 +280,15 @@ void EnsembleScreen::strip(AppState& app, ImDrawList* dl, std::size_t i, float x
     // and in every state); a wider number (far off) takes a smaller face.
     const float unit_gap = std::round(0.3f * u);
     const float unit_w = text_size(FontFace::body, "c").x + unit_gap;
-    const float below_h = font_px(FontFace::medium) + font_px(FontFace::bold) + font_px(FontFace::body) + std::round(1.0f * u);
+    const float below_h =
+        font_px(FontFace::medium) + font_px(FontFace::bold) + font_px(FontFace::body) + std::round(1.0f * u);
     FontFace big = FontFace::bold;
     for (FontFace f : {FontFace::large, FontFace::medium})
-        if (text_size(f, "\xE2\x88\x92" "88").x <= text_w - unit_w && by + font_px(f) + below_h <= ly1) {
+        if (text_size(f,
+                      "\xE2\x88\x92"
+                      "88")
+                    .x <= text_w - unit_w &&
+            by + font_px(f) + below_h <= ly1) {
             big = f;
             break;
         }
@@ -285,12 +303,15 @@ void EnsembleScreen::strip(AppState& app, ImDrawList* dl, std::size_t i, float x
         cv.colour = palette::kWarning;
         draw_warning_sign(dl, ImVec2(tx + 0.6f * u, by + 0.7f * u), 0.6f * u, palette::kWarning);
         const FontFace wf = fitting_face({FontFace::bold, FontFace::body}, word, text_w - 1.5f * u);
-        put(dl, wf, ImVec2(tx + 1.5f * u, by + 0.15f * u), palette::kWarning, fit_text(wf, word, text_w - 1.5f * u), panel);
-        const float ny = put_wrapped(dl, FontFace::body, ImVec2(tx, by + 1.6f * u), palette::kText, what, text_w, panel);
+        put(dl, wf, ImVec2(tx + 1.5f * u, by + 0.15f * u), palette::kWarning, fit_text(wf, word, text_w - 1.5f * u),
+            panel);
+        const float ny =
+            put_wrapped(dl, FontFace::body, ImVec2(tx, by + 1.6f * u), palette::kText, what, text_w, panel);
         put_wrapped(dl, FontFace::body, ImVec2(tx, ny + std::round(0.2f * u)), palette::kTextDim, hint, text_w, panel);
         dl->PopClipRect();
     };
-    if (!live || p.state == pitch::PlayerState::resting || (p.state == pitch::PlayerState::sounding && !std::isfinite(dev))) {
+    if (!live || p.state == pitch::PlayerState::resting ||
+        (p.state == pitch::PlayerState::sounding && !std::isfinite(dev))) {
         // Silence, or no reading this tenth of a second: no verdict, only "last: ...".
         cv.state = session_.engine_running() ? CardState::resting : CardState::no_input;
         cv.word = session_.engine_running() ? "resting" : "no input";
@@ -304,10 +325,13 @@ void EnsembleScreen::strip(AppState& app, ImDrawList* dl, std::size_t i, float x
             const std::string value = signed_text(last_dev_[i], 0) + " c";
             cv.last = "last: " + value;
             const float ly = wy + font_px(wf) + std::round(0.3f * u);
-            if (text_size(FontFace::body, cv.last).x <= text_w) put(dl, FontFace::body, ImVec2(tx, ly), palette::kTextFaint, cv.last, panel);
-            else if (ly + 2.0f * font_px(FontFace::body) + 1.0f <= y0 + h) {  // "last:" over the value, never the unit alone
+            if (text_size(FontFace::body, cv.last).x <= text_w)
+                put(dl, FontFace::body, ImVec2(tx, ly), palette::kTextFaint, cv.last, panel);
+            else if (ly + 2.0f * font_px(FontFace::body) + 1.0f <=
+                     y0 + h) {  // "last:" over the value, never the unit alone
                 put(dl, FontFace::body, ImVec2(tx, ly), palette::kTextFaint, "last:", panel);
-                put(dl, FontFace::body, ImVec2(tx, ly + font_px(FontFace::body) + 1.0f), palette::kTextFaint, fit_text(FontFace::body, value, text_w), panel);
+                put(dl, FontFace::body, ImVec2(tx, ly + font_px(FontFace::body) + 1.0f), palette::kTextFaint,
+                    fit_text(FontFace::body, value, text_w), panel);
             }
         }
         dl->PopClipRect();
@@ -319,7 +343,8 @@ void EnsembleScreen::strip(AppState& app, ImDrawList* dl, std::size_t i, float x
     }
     if (p.state == pitch::PlayerState::copy) {
         const auto& other = session_.players()[static_cast<std::size_t>(std::max(0, p.copy_of))];
-        problem(CardState::copy, "SAME VOICE", "as " + other.name + " (ch " + std::to_string(other.channel + 1) + ")", "mic hears the neighbour");
+        problem(CardState::copy, "SAME VOICE", "as " + other.name + " (ch " + std::to_string(other.channel + 1) + ")",
+                "mic hears the neighbour");
         return;
     }
 
@@ -335,13 +360,16 @@ void EnsembleScreen::strip(AppState& app, ImDrawList* dl, std::size_t i, float x
     for (const pitch::EnsembleReading& q : recent) {
         const double age = r.t_s - q.t_s;
         const double d = q.dev(i, ref, false);
-        const bool ok = age >= 0.0 && age <= EnsembleSession::kRecentS && q.p[i].state == pitch::PlayerState::sounding && std::isfinite(d);
+        const bool ok = age >= 0.0 && age <= EnsembleSession::kRecentS &&
+                        q.p[i].state == pitch::PlayerState::sounding && std::isfinite(d);
         if (ok) {
-            const float qx = lx1 - std::round(0.3f * u) - static_cast<float>(age / EnsembleSession::kRecentS) * (lane_w - 0.6f * u);
+            const float qx =
+                lx1 - std::round(0.3f * u) - static_cast<float>(age / EnsembleSession::kRecentS) * (lane_w - 0.6f * u);
             trail_.push_back(ImVec2(qx, y_of(std::clamp(d, -kLaneHalfCents, kLaneHalfCents))));
         }
         if ((!ok || &q == &recent.back()) && trail_.size() > 1) {
-            dl->AddPolyline(trail_.data(), static_cast<int>(trail_.size()), palette::with_alpha(col, 110), ImDrawFlags_None, 2.0f);
+            dl->AddPolyline(trail_.data(), static_cast<int>(trail_.size()), palette::with_alpha(col, 110),
+                            ImDrawFlags_None, 2.0f);
             trail_.clear();
         }
         if (!ok) trail_.clear();
@@ -351,20 +379,25 @@ void EnsembleScreen::strip(AppState& app, ImDrawList* dl, std::size_t i, float x
     const bool out = std::fabs(dev) > kLaneHalfCents;
     const float my = std::round(y_of(std::clamp(dev, -kLaneHalfCents, kLaneHalfCents)));
     const float bh = std::max(4.0f, std::round(0.22f * u));
-    dl->AddRectFilled(ImVec2(lx0 - std::round(0.2f * u), my - std::floor(0.5f * bh)), ImVec2(lx1 + std::round(0.2f * u), my - std::floor(0.5f * bh) + bh), col);
+    dl->AddRectFilled(ImVec2(lx0 - std::round(0.2f * u), my - std::floor(0.5f * bh)),
+                      ImVec2(lx1 + std::round(0.2f * u), my - std::floor(0.5f * bh) + bh), col);
     if (out) {
         const float dir = dev > 0 ? -1.0f : 1.0f;  // up on screen for sharp
         const float cx = 0.5f * (lx0 + lx1);
-        dl->AddTriangleFilled(ImVec2(cx, my + dir * 1.4f * u), ImVec2(cx - 0.6f * u, my + dir * 0.4f * u), ImVec2(cx + 0.6f * u, my + dir * 0.4f * u), col);
+        dl->AddTriangleFilled(ImVec2(cx, my + dir * 1.4f * u), ImVec2(cx - 0.6f * u, my + dir * 0.4f * u),
+                              ImVec2(cx + 0.6f * u, my + dir * 0.4f * u), col);
     }
 
     // The number with its unit, the state in shape and word, and the move.
     cv.dev_cents = dev;
     cv.number = signed_text(dev, 0);
     cv.colour = col;
-    if (text_size(big, cv.number).x > text_w - unit_w) big = fitting_face({FontFace::medium, FontFace::bold, FontFace::body}, cv.number, text_w - unit_w);
+    if (text_size(big, cv.number).x > text_w - unit_w)
+        big = fitting_face({FontFace::medium, FontFace::bold, FontFace::body}, cv.number, text_w - unit_w);
     put(dl, big, ImVec2(tx, by), col, cv.number, panel);
-    put(dl, FontFace::body, ImVec2(tx + text_size(big, cv.number).x + unit_gap, by + font_px(big) - font_px(FontFace::body) - std::round(0.1f * font_px(big))),
+    put(dl, FontFace::body,
+        ImVec2(tx + text_size(big, cv.number).x + unit_gap,
+               by + font_px(big) - font_px(FontFace::body) - std::round(0.1f * font_px(big))),
         palette::kTextDim, "c", panel);
     float wy = by + font_px(big) + std::round(0.3f * u);
     if (other_note) {
@@ -374,9 +407,11 @@ void EnsembleScreen::strip(AppState& app, ImDrawList* dl, std::size_t i, float x
         const FontFace wf = fitting_face({FontFace::bold, FontFace::body}, word, text_w);
         put(dl, wf, ImVec2(tx, wy), palette::kWarning, fit_text(wf, word, text_w), panel);
         wy += font_px(wf) + std::round(0.2f * u);
-        const std::string what = p.near_voice >= 0
-                                     ? "near " + session_.chord().chord.voice_ratio(static_cast<std::size_t>(p.near_voice)).str() + ", assigned " + cv.ratio
-                                     : "not near " + cv.ratio;
+        const std::string what =
+            p.near_voice >= 0
+                ? "near " + session_.chord().chord.voice_ratio(static_cast<std::size_t>(p.near_voice)).str() +
+                      ", assigned " + cv.ratio
+                : "not near " + cv.ratio;
         put_wrapped(dl, FontFace::body, ImVec2(tx, wy), palette::kTextDim, what, text_w, panel);
         dl->PopClipRect();
         return;
@@ -395,13 +430,16 @@ void EnsembleScreen::strip(AppState& app, ImDrawList* dl, std::size_t i, float x
         const FontFace wf = fitting_face({FontFace::bold, FontFace::body}, cv.word, text_w);
         const float sr = std::round(0.42f * font_px(FontFace::bold));
         const float nx = tx + text_size(big, cv.number).x + unit_w + std::round(0.4f * u) + sr;
-        if (nx + sr <= x0 + w - pad) draw_tuning_shape(dl, t, ImVec2(nx, by + 0.55f * font_px(big)), sr, col);
-        else draw_tuning_shape(dl, t, ImVec2(tx + text_w - sr, wy + font_px(wf) + std::round(0.3f * u) + sr), sr, col);
+        if (nx + sr <= x0 + w - pad)
+            draw_tuning_shape(dl, t, ImVec2(nx, by + 0.55f * font_px(big)), sr, col);
+        else
+            draw_tuning_shape(dl, t, ImVec2(tx + text_w - sr, wy + font_px(wf) + std::round(0.3f * u) + sr), sr, col);
         put(dl, wf, ImVec2(tx, wy), col, fit_text(wf, cv.word, text_w), panel);
         wy += font_px(wf) + std::round(0.3f * u);
     }
     const long amount = std::lround(std::fabs(dev));
-    const std::string move = t == Tuning::in_tune ? "hold" : (t == Tuning::sharp ? "lower " : "raise ") + std::to_string(amount) + " c";
+    const std::string move =
+        t == Tuning::in_tune ? "hold" : (t == Tuning::sharp ? "lower " : "raise ") + std::to_string(amount) + " c";
     const FontFace mf = fitting_face({FontFace::bold, FontFace::body}, move, text_w);
     put(dl, mf, ImVec2(tx, wy), palette::kText, fit_text(mf, move, text_w), panel);
     wy += font_px(mf) + std::round(0.4f * u);
@@ -409,7 +447,8 @@ void EnsembleScreen::strip(AppState& app, ImDrawList* dl, std::size_t i, float x
     char buf[48];
     std::snprintf(buf, sizeof buf, "%.1f Hz", p.centre_f0_hz);
     if (text_size(FontFace::body, buf).x > text_w) std::snprintf(buf, sizeof buf, "%.0f Hz", p.centre_f0_hz);
-    if (wy + font_px(FontFace::body) <= y0 + h - pad) put(dl, FontFace::body, ImVec2(tx, wy), palette::kTextDim, fit_text(FontFace::body, buf, text_w), panel);
+    if (wy + font_px(FontFace::body) <= y0 + h - pad)
+        put(dl, FontFace::body, ImVec2(tx, wy), palette::kTextDim, fit_text(FontFace::body, buf, text_w), panel);
     dl->PopClipRect();
 }
 
@@ -426,7 +465,8 @@ void draw_beat_icon(ImDrawList* dl, const BeatPulse& p, ImVec2 p0, ImVec2 p1) {
     draw_beat_view(dl, p, p0, p1, style);
 }
 
-void EnsembleScreen::beat_row(ImDrawList* dl, const std::vector<float>& xs, float x0, float y0, float w, float h, double dt_s) {
+void EnsembleScreen::beat_row(ImDrawList* dl, const std::vector<float>& xs, float x0, float y0, float w, float h,
+                              double dt_s) {
     const float u = ui_unit();
     const ViewBox panel{x0, y0, x0 + w, y0 + h};
     const auto& ps = session_.players();
@@ -438,10 +478,13 @@ void EnsembleScreen::beat_row(ImDrawList* dl, const std::vector<float>& xs, floa
         const pitch::PairBeat pb = live ? r.pair(i, i + 1) : pitch::PairBeat{};
         const double hz = pb.beat_hz;
         pulses_[i].update(hz, dt_s);
-        std::string top = live && pb.partial_a > 0 ? std::to_string(pb.partial_a) + ":" + std::to_string(pb.partial_b) : std::string("\xE2\x80\x93");
+        std::string top = live && pb.partial_a > 0 ? std::to_string(pb.partial_a) + ":" + std::to_string(pb.partial_b)
+                                                   : std::string("\xE2\x80\x93");
         char rate[32];
-        if (std::isfinite(hz)) std::snprintf(rate, sizeof rate, hz < 9.95 ? "%.1f Hz" : "%.0f Hz", hz);
-        else std::snprintf(rate, sizeof rate, "no beat");
+        if (std::isfinite(hz))
+            std::snprintf(rate, sizeof rate, hz < 9.95 ? "%.1f Hz" : "%.0f Hz", hz);
+        else
+            std::snprintf(rate, sizeof rate, "no beat");
         // Icon and words centred on the boundary between the two cards.
         const float label_w = std::max(text_size(FontFace::bold, top).x, text_size(FontFace::body, rate).x);
         const float icon_w = std::round(3.4f * u);
@@ -451,14 +494,15 @@ void EnsembleScreen::beat_row(ImDrawList* dl, const std::vector<float>& xs, floa
         draw_beat_icon(dl, pulses_[i], ImVec2(gx, cy - 1.9f * rad), ImVec2(gx + icon_w, cy + 1.9f * rad));
         const float lx = gx + icon_w + std::round(0.3f * u);
         put(dl, FontFace::bold, ImVec2(lx, y0 + std::round(0.05f * u)), palette::kText, top, panel);
-        put(dl, FontFace::body, ImVec2(lx, y0 + std::round(0.05f * u) + font_px(FontFace::bold)), std::isfinite(hz) ? palette::kText : palette::kTextDim,
-            rate, panel);
+        put(dl, FontFace::body, ImVec2(lx, y0 + std::round(0.05f * u) + font_px(FontFace::bold)),
+            std::isfinite(hz) ? palette::kText : palette::kTextDim, rate, panel);
     }
     // The legend: what the icons between the cards say.
     view_.legend = ps.size() > 1;
     if (!view_.legend) return;
     const float ly = y0 + icons_h + std::round(0.1f * u);
-    const std::string legend = "between cards: the partials that meet, their beat rate, and the beat drawn as it sounds (wider lobes: slower)";
+    const std::string legend =
+        "between cards: the partials that meet, their beat rate, and the beat drawn as it sounds (wider lobes: slower)";
     put(dl, FontFace::body, ImVec2(x0, ly), palette::kTextDim, fit_text(FontFace::body, legend, w), panel);
 }
 
@@ -474,13 +518,15 @@ void EnsembleScreen::chart(AppState& app, ImDrawList* dl, float x0, float y0, fl
     const float inner = w - 2.0f * pad;
     const float row = std::round(1.3f * u);
     char b1[96], b2[96];
-    std::snprintf(b1, sizeof b1, "%s on %s = %.2f Hz", session_.chord().chord.terms_text().c_str(), app.settings().root.c_str(), session_.root_hz());
+    std::snprintf(b1, sizeof b1, "%s on %s = %.2f Hz", session_.chord().chord.terms_text().c_str(),
+                  app.settings().root.c_str(), session_.root_hz());
     dl->PushClipRect(ImVec2(x0, y0), ImVec2(x0 + w, y0 + h), true);
     const pitch::ChordChart& ch = session_.chart();
     const auto nv = static_cast<int>(ch.voices.size());
     const float min_row = font_px(FontFace::bold) + 1.0f;
     const float heads_h = font_px(FontFace::body) + std::round(0.2f * u);
-    const float titles_h = font_px(FontFace::bold) + std::round(0.1f * u) + font_px(FontFace::body) + std::round(0.3f * u);
+    const float titles_h =
+        font_px(FontFace::bold) + std::round(0.1f * u) + font_px(FontFace::body) + std::round(0.3f * u);
     // When every row cannot fit under the two title lines, the rows come
     // first: the header already names the chord and the reference.
     const bool titles = h - 2.0f * pad - heads_h - titles_h >= static_cast<float>(nv) * min_row;
@@ -491,11 +537,14 @@ void EnsembleScreen::chart(AppState& app, ImDrawList* dl, float x0, float y0, fl
         const pitch::ChordReference ref = app.settings().ensemble.reference;
         const double root = session_.has_current() ? session_.current().root_hz[pitch::reference_index(ref)] : NAN;
         const double off = 1200.0 * std::log2(root / session_.root_hz());
-        if (ref == pitch::ChordReference::fixed_root) std::snprintf(b2, sizeof b2, "measured against the drone root");
+        if (ref == pitch::ChordReference::fixed_root)
+            std::snprintf(b2, sizeof b2, "measured against the drone root");
         else if (std::isfinite(off))
-            std::snprintf(b2, sizeof b2, "%s root %.2f Hz, %s c from the drone", ref == pitch::ChordReference::best_fit ? "best-fit" : "bass's",
-                          root, signed_text(off, 1).c_str());
-        else std::snprintf(b2, sizeof b2, "%s: waiting for the players", std::string(reference_title(ref)).c_str());
+            std::snprintf(b2, sizeof b2, "%s root %.2f Hz, %s c from the drone",
+                          ref == pitch::ChordReference::best_fit ? "best-fit" : "bass's", root,
+                          signed_text(off, 1).c_str());
+        else
+            std::snprintf(b2, sizeof b2, "%s: waiting for the players", std::string(reference_title(ref)).c_str());
         y = y0 + pad + font_px(FontFace::bold) + std::round(0.1f * u);
         put(dl, FontFace::body, ImVec2(x0 + pad, y), palette::kTextDim, fit_text(FontFace::body, b2, inner), panel);
         y += font_px(FontFace::body) + std::round(0.3f * u);
@@ -503,7 +552,8 @@ void EnsembleScreen::chart(AppState& app, ImDrawList* dl, float x0, float y0, fl
     // Columns in units: ratio, Hz, note, from ET, sung by.
     const float cols[] = {0.0f, 3.2f, 7.6f, 10.4f, 14.8f};
     const char* heads[] = {"ratio", "Hz", "note", "from ET", "sung by"};
-    for (int k = 0; k < 5; ++k) put(dl, FontFace::body, ImVec2(x0 + pad + cols[k] * u, y), palette::kTextDim, heads[k], panel);
+    for (int k = 0; k < 5; ++k)
+        put(dl, FontFace::body, ImVec2(x0 + pad + cols[k] * u, y), palette::kTextDim, heads[k], panel);
     y += heads_h;
     // Every voice gets a row: rows close up to the font's height when many;
     // if even that is too tall, the lowest rows are summed up as "+N more".
@@ -541,7 +591,8 @@ void EnsembleScreen::chart(AppState& app, ImDrawList* dl, float x0, float y0, fl
     }
     if (view_.rows_hidden > 0) {
         std::string rest;
-        for (int k = shown; k < nv; ++k) rest += (k > shown ? ", " : "") + ch.voices[static_cast<std::size_t>(nv - 1 - k)].ratio.str();
+        for (int k = shown; k < nv; ++k)
+            rest += (k > shown ? ", " : "") + ch.voices[static_cast<std::size_t>(nv - 1 - k)].ratio.str();
         put(dl, FontFace::body, ImVec2(x0 + pad, y), palette::kTextDim,
             fit_text(FontFace::body, "+" + std::to_string(view_.rows_hidden) + " more below: " + rest, inner), panel);
     }
@@ -567,7 +618,8 @@ void EnsembleScreen::input_combo(AppState& app) {
     const std::string shown = es.input_device.empty() ? "system default: " + session_.input_text() : es.input_device;
     ImGui::SetNextItemWidth(std::round(14.0f * u));
     EnsembleSettings e = es;
-    if (inputs_.combo(app, "##ensemble_input", es.input_device, shown, true, true, e.input_device)) session_.apply(app, e);
+    if (inputs_.combo(app, "##ensemble_input", es.input_device, shown, true, true, e.input_device))
+        session_.apply(app, e);
 }
 
 void EnsembleScreen::editor(AppState& app, float x0, float y0, float w, float h) {
@@ -581,7 +633,8 @@ void EnsembleScreen::editor(AppState& app, float x0, float y0, float w, float h)
     if (!bufs_from_settings_ || !typing) {
         std::snprintf(chord_buf_, sizeof chord_buf_, "%s", es.chord.c_str());
         for (std::size_t i = 0; i < pitch::kMaxPlayers; ++i)
-            std::snprintf(name_buf_[i], sizeof name_buf_[i], "%s", i < session_.players().size() ? session_.players()[i].name.c_str() : "");
+            std::snprintf(name_buf_[i], sizeof name_buf_[i], "%s",
+                          i < session_.players().size() ? session_.players()[i].name.c_str() : "");
         bufs_from_settings_ = true;
     }
     ImGui::AlignTextToFramePadding();
@@ -630,7 +683,8 @@ void EnsembleScreen::editor(AppState& app, float x0, float y0, float w, float h)
         const std::string cur = session_.chord().chord.voice_ratio(ps[i].voice).str();
         if (ImGui::BeginCombo("##voice", cur.c_str())) {
             for (std::size_t v = 0; v < nv; ++v) {
-                const std::string label = "voice " + std::to_string(v + 1) + ": " + session_.chord().chord.voice_ratio(v).str();
+                const std::string label =
+                    "voice " + std::to_string(v + 1) + ": " + session_.chord().chord.voice_ratio(v).str();
                 if (ImGui::Selectable(label.c_str(), v == ps[i].voice)) {
                     edited[i].voice = v;
                     changed = true;
@@ -692,7 +746,8 @@ void EnsembleScreen::header(AppState& app, ImDrawList* dl, float x0, float y0, f
     put(dl, FontFace::medium, ImVec2(x0, ty), palette::kText, shown_title, panel);
     float x = x0 + text_size(FontFace::medium, shown_title).x + std::round(0.8f * u);
     char buf[96];
-    std::snprintf(buf, sizeof buf, "%s on %s = %.2f Hz", c.chord.terms_text().c_str(), app.settings().root.c_str(), session_.root_hz());
+    std::snprintf(buf, sizeof buf, "%s on %s = %.2f Hz", c.chord.terms_text().c_str(), app.settings().root.c_str(),
+                  session_.root_hz());
     if (!c.title.empty() && x + text_size(FontFace::body, buf).x < against_x - u)
         put(dl, FontFace::body, ImVec2(x, ty + std::round(0.3f * u)), palette::kTextDim, buf, panel);
     for (pitch::ChordReference r : kRefs) {
@@ -705,7 +760,9 @@ void EnsembleScreen::header(AppState& app, ImDrawList* dl, float x0, float y0, f
         if (ImGui::Button(label.c_str(), ImVec2(bw, bh))) session_.set_reference(app, r);
         ImGui::PopFont();
         ImGui::PopStyleColor();
-        if (on) dl->AddCircleFilled(ImVec2(at.x + std::round(0.75f * u), at.y + 0.5f * bh), std::round(0.28f * u), palette::kText, 16);
+        if (on)
+            dl->AddCircleFilled(ImVec2(at.x + std::round(0.75f * u), at.y + 0.5f * bh), std::round(0.28f * u),
+                                palette::kText, 16);
         bx += bw + gap;
     }
 }
@@ -723,7 +780,8 @@ void EnsembleScreen::build(AppState& app, const ScreenArea& area, double dt_s) {
     view_.cards.assign(session_.ready() ? session_.players().size() : 0, EnsembleCardView{});
     if (session_.has_current())
         for (std::size_t i = 0; i < view_.cards.size(); ++i)
-            if (session_.current().p[i].state == pitch::PlayerState::sounding) octaves_[i] = session_.current().p[i].octaves;
+            if (session_.current().p[i].state == pitch::PlayerState::sounding)
+                octaves_[i] = session_.current().p[i].octaves;
     if (!ImGui::GetIO().WantTextInput) {
         if (ImGui::IsKeyPressed(GLFW_KEY_1, false)) session_.set_reference(app, pitch::ChordReference::fixed_root);
         if (ImGui::IsKeyPressed(GLFW_KEY_2, false)) session_.set_reference(app, pitch::ChordReference::sounding_bass);

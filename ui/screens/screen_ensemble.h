@@ -23,35 +23,35 @@ struct ViewBox {
 enum class CardState { no_input, resting, silent, copy, other_note, sounding };
 
 struct EnsembleCardView {
-    std::string name;            // as drawn (may end in an ellipsis)
-    std::string ratio;           // the chord voice's ratio, written as the table writes it
-    int octaves = 0;             // the octave the player sings it in (0 = the table's)
+    std::string name;   // as drawn (may end in an ellipsis)
+    std::string ratio;  // the chord voice's ratio, written as the table writes it
+    int octaves = 0;    // the octave the player sings it in (0 = the table's)
     CardState state = CardState::no_input;
-    double dev_cents = NAN;      // the verdict: vibrato centre under the reference; NaN unless sounding
-    std::string number;          // the verdict as drawn ("+5")
-    std::string word;            // "in tune", "sharp", "flat", "resting", "silent" ...
-    std::uint32_t colour = 0;    // the number's and the word's colour
-    std::string last;            // "last: +5 c" after the player stops; empty otherwise
+    double dev_cents = NAN;    // the verdict: vibrato centre under the reference; NaN unless sounding
+    std::string number;        // the verdict as drawn ("+5")
+    std::string word;          // "in tune", "sharp", "flat", "resting", "silent" ...
+    std::uint32_t colour = 0;  // the number's and the word's colour
+    std::string last;          // "last: +5 c" after the player stops; empty otherwise
     ViewBox box;
 };
 
 struct EnsembleRowView {
-    std::string ratio;           // "3/2"
-    std::string note;            // spelled as `beatless chord` spells it
-    std::string who;             // "A, T +1 oct"
+    std::string ratio;  // "3/2"
+    std::string note;   // spelled as `beatless chord` spells it
+    std::string who;    // "A, T +1 oct"
 };
 
 struct EnsembleTextView {
     std::string text;
-    ViewBox box;                 // the text's own box
-    ViewBox panel;               // the panel it belongs in
+    ViewBox box;    // the text's own box
+    ViewBox panel;  // the panel it belongs in
 };
 
 struct EnsembleView {
-    std::vector<EnsembleCardView> cards;   // in player order
-    std::vector<EnsembleRowView> rows;     // the table's rows shown, top voice first
-    int rows_hidden = 0;                   // voices summed up as "+N more"
-    bool legend = false;                   // the beat icons' legend was drawn
+    std::vector<EnsembleCardView> cards;  // in player order
+    std::vector<EnsembleRowView> rows;    // the table's rows shown, top voice first
+    int rows_hidden = 0;                  // voices summed up as "+N more"
+    bool legend = false;                  // the beat icons' legend was drawn
     std::vector<EnsembleTextView> texts;
 };
 

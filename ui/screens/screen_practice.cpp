@@ -20,16 +20,16 @@
 //
 // Index: [layout] [header] [lane] [trace] [beat cue] [controls] [screen]
 #include "pitch/base/error.h"
+#include "pitch/base/text.h"
 #include "pitch/theory/notes.h"
 #include "pitch/theory/spelling.h"
-#include "pitch/base/text.h"
-#include "ui/session/wording.h"
-#include "ui/screens/widgets.h"
 #include "ui/screens/beat_view.h"
 #include "ui/screens/lane.h"
 #include "ui/screens/palette.h"
 #include "ui/screens/screen.h"
+#include "ui/screens/widgets.h"
 #include "ui/session/target_files.h"
+#include "ui/session/wording.h"
 
 #include <algorithm>
 #include <cmath>
@@ -42,24 +42,26 @@ namespace beatless::ui {
 
 namespace {
 
-constexpr double kTraceS = 10.0;           // the trace shows the last 10 s
-constexpr double kTraceHalfCents = 75.0;   // ... over ±75 cents around the target at least,
-constexpr double kTraceMarginCents = 10.0; // ... and this beyond the highest and lowest pitch sung,
+constexpr double kTraceS = 10.0;              // the trace shows the last 10 s
+constexpr double kTraceHalfCents = 75.0;      // ... over ±75 cents around the target at least,
+constexpr double kTraceMarginCents = 10.0;    // ... and this beyond the highest and lowest pitch sung,
 constexpr double kTraceMaxHalfCents = 600.0;  // ... up to ±600 cents
 
 ImVec4 v4(std::uint32_t c) { return ImGui::ColorConvertU32ToFloat4(c); }
 
-
-
 std::string beat_text(double hz) {
     char buf[32];
-    if (hz < 9.95) std::snprintf(buf, sizeof buf, "%.1f Hz", std::round(hz * 10.0) / 10.0);
-    else std::snprintf(buf, sizeof buf, "%.0f Hz", std::round(hz));
+    if (hz < 9.95)
+        std::snprintf(buf, sizeof buf, "%.1f Hz", std::round(hz * 10.0) / 10.0);
+    else
+        std::snprintf(buf, sizeof buf, "%.0f Hz", std::round(hz));
     return buf;
 }
 
 constexpr KeyHelp kPracticeKeys[] = {
-    {"Marker", "the verdict: your vibrato's centre once a cycle is heard, your pitch before; head up sharp, down flat, disc in tune"},
+    {"Marker",
+     "the verdict: your vibrato's centre once a cycle is heard, your pitch before; head up sharp, down flat, disc in "
+     "tune"},
     {"Small triangle", "below the lane: your pitch now, while the marker shows the centre"},
     {"Envelope", "right: the beat of the two partials that meet; wider lobes, slower beats"},
     {"Yellow line", "in the trace: the current target"},
@@ -107,13 +109,13 @@ private:
     void beat_cue(AppState& app, ImDrawList* dl, float x0, float y0, float w, float h);
     void controls(AppState& app);
 
-    std::vector<ImVec2> points_;   // trace polyline scratch, sized once
-    std::vector<double> range_;    // the trace's recent pitches, for its range; reserved once
+    std::vector<ImVec2> points_;  // trace polyline scratch, sized once
+    std::vector<double> range_;   // the trace's recent pitches, for its range; reserved once
     struct Label {
-        float y;          // the line's row
+        float y;  // the line's row
         std::string text;
         bool current;
-        float placed = 0; // the label's row after spreading
+        float placed = 0;  // the label's row after spreading
     };
     std::vector<Label> labels_;
     char root_buf_[32];
@@ -147,18 +149,21 @@ void PracticeScreen::header(AppState& app, ImDrawList* dl, float x0, float y0, f
     const float nx = x0 + text_size(FontFace::large, ratio).x + std::round(0.9f * u);
     const float medium = font_px(FontFace::medium);
     const float ny = ty + std::round(0.08f * large);
-    draw_text(dl, FontFace::medium, ImVec2(nx, ny), live ? palette::kText : palette::kTextDim, name.empty() ? std::string("target") : name);
-    std::string sub = fixed ? "fixed target  \xE2\x86\x90 \xE2\x86\x92 to change,  N for nearest" : "nearest target in " + app.targets().title;
+    draw_text(dl, FontFace::medium, ImVec2(nx, ny), live ? palette::kText : palette::kTextDim,
+              name.empty() ? std::string("target") : name);
+    std::string sub = fixed ? "fixed target  \xE2\x86\x90 \xE2\x86\x92 to change,  N for nearest"
+                            : "nearest target in " + app.targets().title;
     draw_text(dl, FontFace::body, ImVec2(nx, ny + medium + std::round(0.25f * u)), palette::kTextDim, sub);
 
     // Right: the verdict in cents, with the state's shape and word; when it
     // is not current, the last value in dim text and why.
     const float right = x0 + w;
     if (!known) {
-        const std::string idle = !app.engine_running()                 ? "no input"
+        const std::string idle = !app.engine_running()                ? "no input"
                                  : v.state == VerdictState::unpitched ? "no pitch"
                                                                       : "listening\xE2\x80\xA6";
-        draw_text(dl, FontFace::medium, ImVec2(right - text_size(FontFace::medium, idle).x, y0 + 0.5f * (h - medium)), palette::kTextDim, idle);
+        draw_text(dl, FontFace::medium, ImVec2(right - text_size(FontFace::medium, idle).x, y0 + 0.5f * (h - medium)),
+                  palette::kTextDim, idle);
         return;
     }
     const Tuning t = tuning_of(v.dev_cents, app.settings().in_tune_cents);
@@ -201,7 +206,8 @@ void PracticeScreen::info_line(AppState& app, ImDrawList* dl, float x0, float y0
     if (v.state == VerdictState::unpitched) {
         // Sound without a pitch the tracker follows: most often a note below its floor.
         char hint[160];
-        std::snprintf(hint, sizeof hint, "sound without a pitch: below the lowest note (%.0f Hz)? set Settings \xE2\x86\x92 Lowest note",
+        std::snprintf(hint, sizeof hint,
+                      "sound without a pitch: below the lowest note (%.0f Hz)? set Settings \xE2\x86\x92 Lowest note",
                       app.settings().lowest_hz);
         draw_text(dl, FontFace::body, ImVec2(x0, y0), palette::kWarning, hint);
         return;
@@ -244,7 +250,8 @@ void PracticeScreen::trace(AppState& app, ImDrawList* dl, float x0, float y0, fl
     const float label_w = std::round(6.0f * u);
     const float px0 = x0 + std::round(0.6f * u), px1 = x0 + w - label_w;
     const float py0 = y0 + std::round(1.7f * u), py1 = y0 + h - std::round(0.6f * u);
-    draw_text(dl, FontFace::body, ImVec2(px0, y0 + std::round(0.35f * u)), palette::kTextDim, "Trace: the last 10 s, cents above the root");
+    draw_text(dl, FontFace::body, ImVec2(px0, y0 + std::round(0.35f * u)), palette::kTextDim,
+              "Trace: the last 10 s, cents above the root");
     if (py1 - py0 < 2.0f * u || px1 - px0 < 4.0f * u) return;
 
     if (app.verdict().known()) trace_centre_cents_ = app.current().target_cents;
@@ -263,7 +270,8 @@ void PracticeScreen::trace(AppState& app, ImDrawList* dl, float x0, float y0, fl
     range_.clear();
     for (std::size_t i = 0; i < tr.size() && range_.size() < range_.capacity(); ++i) {
         const pitch::Reading& r = tr.at(i);
-        if (now - r.t_s <= kTraceS && r.voiced() && std::isfinite(r.cents_above_root)) range_.push_back(r.cents_above_root);
+        if (now - r.t_s <= kTraceS && r.voiced() && std::isfinite(r.cents_above_root))
+            range_.push_back(r.cents_above_root);
     }
     if (range_.size() >= 20) {
         const auto at = [&](double q) {
@@ -288,21 +296,26 @@ void PracticeScreen::trace(AppState& app, ImDrawList* dl, float x0, float y0, fl
 
     // Target lines in every octave that falls in the range, labelled by ratio.
     labels_.clear();
-    const int cur = app.verdict().known() ? app.target_index_of(app.current()) : (app.settings().choice == TargetChoice::fixed ? app.fixed_index() : -1);
+    const int cur = app.verdict().known() ? app.target_index_of(app.current())
+                                          : (app.settings().choice == TargetChoice::fixed ? app.fixed_index() : -1);
     const int cur_oct = app.verdict().known() ? app.current().target_octaves : 0;
     const auto& targets = app.targets().targets;
     for (std::size_t i = 0; i < targets.size(); ++i) {
         const double c0 = targets[i].interval.cents();
-        const int k_lo = static_cast<int>(std::ceil((lo - c0) / 1200.0)), k_hi = static_cast<int>(std::floor((hi - c0) / 1200.0));
+        const int k_lo = static_cast<int>(std::ceil((lo - c0) / 1200.0)),
+                  k_hi = static_cast<int>(std::floor((hi - c0) / 1200.0));
         for (int k = k_lo; k <= k_hi; ++k) {
             const double c = c0 + 1200.0 * k;
-            if (std::any_of(labels_.begin(), labels_.end(), [&](const Label& l) { return std::fabs(l.y - std::round(y_of(c))) < 0.5f; }) &&
+            if (std::any_of(labels_.begin(), labels_.end(),
+                            [&](const Label& l) { return std::fabs(l.y - std::round(y_of(c))) < 0.5f; }) &&
                 !(static_cast<int>(i) == cur && k == cur_oct))
                 continue;  // 1/1 an octave up is 2/1: one line, one label
             const bool is_cur = static_cast<int>(i) == cur && k == cur_oct;
             const float y = std::round(y_of(c));
-            if (is_cur) dl->AddRectFilled(ImVec2(px0, y - 1), ImVec2(px1, y + 2), palette::kCurrentTarget);
-            else dl->AddRectFilled(ImVec2(px0, y), ImVec2(px1, y + 1), palette::kOtherTarget);
+            if (is_cur)
+                dl->AddRectFilled(ImVec2(px0, y - 1), ImVec2(px1, y + 2), palette::kCurrentTarget);
+            else
+                dl->AddRectFilled(ImVec2(px0, y), ImVec2(px1, y + 1), palette::kOtherTarget);
             std::string text;
             try {
                 text = pitch::shift_octaves(targets[i].interval, k).str();
@@ -310,7 +323,9 @@ void PracticeScreen::trace(AppState& app, ImDrawList* dl, float x0, float y0, fl
                 text = targets[i].interval.str();
             }
             if (is_cur)  // the current target replaces a twin drawn before it
-                labels_.erase(std::remove_if(labels_.begin(), labels_.end(), [&](const Label& l) { return std::fabs(l.y - y) < 0.5f; }), labels_.end());
+                labels_.erase(std::remove_if(labels_.begin(), labels_.end(),
+                                             [&](const Label& l) { return std::fabs(l.y - y) < 0.5f; }),
+                              labels_.end());
             labels_.push_back({y, std::move(text), is_cur});
         }
     }
@@ -329,7 +344,8 @@ void PracticeScreen::trace(AppState& app, ImDrawList* dl, float x0, float y0, fl
     for (const Label& l : labels_) {
         const std::uint32_t col = l.current ? palette::kCurrentTarget : palette::kOtherTarget;
         dl->AddLine(ImVec2(px1, l.y + 0.5f), ImVec2(px1 + lead, l.placed + 0.5f), col, 1.0f);
-        draw_text(dl, l.current ? FontFace::bold : FontFace::body, ImVec2(px1 + lead + std::round(0.25f * u), l.placed - 0.55f * u),
+        draw_text(dl, l.current ? FontFace::bold : FontFace::body,
+                  ImVec2(px1 + lead + std::round(0.25f * u), l.placed - 0.55f * u),
                   l.current ? palette::kCurrentTarget : palette::kTextDim, l.text);
     }
 
@@ -369,7 +385,8 @@ void PracticeScreen::trace(AppState& app, ImDrawList* dl, float x0, float y0, fl
     if (app.has_current()) {  // the verdict, where the line ends
         const Verdict& v = app.verdict();
         const float y = y_of(v.cents_above_root);
-        dl->AddCircleFilled(ImVec2(px1 - 1, y), std::round(0.3f * u), tuning_colour(tuning_of(v.dev_cents, app.settings().in_tune_cents)), 16);
+        dl->AddCircleFilled(ImVec2(px1 - 1, y), std::round(0.3f * u),
+                            tuning_colour(tuning_of(v.dev_cents, app.settings().in_tune_cents)), 16);
     }
     dl->PopClipRect();
 }
@@ -384,13 +401,16 @@ void PracticeScreen::beat_cue(AppState& app, ImDrawList* dl, float x0, float y0,
     const float x = x0 + std::round(0.8f * u);
     float y = y0 + std::round(0.35f * u);
     const bool drone = app.drone_sounding();
-    draw_text(dl, FontFace::body, ImVec2(x, y), palette::kTextDim, drone ? "Beat rate" : "Beat rate (predicted: drone off)");
+    draw_text(dl, FontFace::body, ImVec2(x, y), palette::kTextDim,
+              drone ? "Beat rate" : "Beat rate (predicted: drone off)");
     y += std::round(1.4f * u);
     const BeatPulse& p = app.pulse();
     const Verdict& v = app.verdict();
     const pitch::Reading& r = v.reading;
     const bool have = v.current() && p.band() != pitch::BeatBand::none;
-    const std::string value = have ? beat_text(p.beat_hz()) : v.known() ? std::string(quiet_word(v)) : std::string("\xE2\x80\x93");
+    const std::string value = have        ? beat_text(p.beat_hz())
+                              : v.known() ? std::string(quiet_word(v))
+                                          : std::string("\xE2\x80\x93");
     draw_text(dl, FontFace::large, ImVec2(x, y), have ? palette::kText : palette::kTextDim, value);
     y += font_px(FontFace::large) + std::round(0.3f * u);
     if (have) {
@@ -428,14 +448,20 @@ void PracticeScreen::beat_cue(AppState& app, ImDrawList* dl, float x0, float y0,
         case pitch::BeatBand::still: caption = "nearly pure", advice = "hold it there"; break;
         case pitch::BeatBand::countable:
             caption = "slow enough to count";
-            advice = heard_pair_differs(r) && r.heard_beat_at_target_hz > 0.05 ? "match the in-tune rate" : "slower is closer";
+            advice = heard_pair_differs(r) && r.heard_beat_at_target_hz > 0.05 ? "match the in-tune rate"
+                                                                               : "slower is closer";
             break;
-        case pitch::BeatBand::flutter: caption = "too fast to count", advice = "a flutter: move toward the target"; break;
-        case pitch::BeatBand::rough: caption = drone ? "heard as roughness" : "would be heard as roughness", advice = "not as beats"; break;
+        case pitch::BeatBand::flutter:
+            caption = "too fast to count", advice = "a flutter: move toward the target";
+            break;
+        case pitch::BeatBand::rough:
+            caption = drone ? "heard as roughness" : "would be heard as roughness", advice = "not as beats";
+            break;
     }
     if (have && (band == pitch::BeatBand::countable || band == pitch::BeatBand::flutter)) {
         char period[48];
-        std::snprintf(period, sizeof period, "%sone beat %.2f s", advice.empty() ? "" : " \xC2\xB7 ", 1.0 / p.beat_hz());
+        std::snprintf(period, sizeof period, "%sone beat %.2f s", advice.empty() ? "" : " \xC2\xB7 ",
+                      1.0 / p.beat_hz());
         if (text_size(FontFace::body, advice + period).x <= w - 1.6f * u) advice += period;
     }
     const float cap_h = std::round((advice.empty() ? 1.3f : 2.5f) * u);
@@ -452,9 +478,11 @@ void PracticeScreen::beat_cue(AppState& app, ImDrawList* dl, float x0, float y0,
     style.tick_h = std::round(0.5f * u);
     if (v.known()) draw_beat_view(dl, p, ImVec2(vx0, vy0), ImVec2(vx1, vy1), style);
     const float cy0 = vy1 + std::round(0.3f * u);
-    draw_text(dl, FontFace::body, ImVec2(x, cy0), have ? palette::kText : palette::kTextDim, fit_text(FontFace::body, caption, w - 1.6f * u));
+    draw_text(dl, FontFace::body, ImVec2(x, cy0), have ? palette::kText : palette::kTextDim,
+              fit_text(FontFace::body, caption, w - 1.6f * u));
     if (!advice.empty())
-        draw_text(dl, FontFace::body, ImVec2(x, cy0 + std::round(1.2f * u)), palette::kTextDim, fit_text(FontFace::body, advice, w - 1.6f * u));
+        draw_text(dl, FontFace::body, ImVec2(x, cy0 + std::round(1.2f * u)), palette::kTextDim,
+                  fit_text(FontFace::body, advice, w - 1.6f * u));
 }
 
 // ---------------------------------------------------------------------------
@@ -476,9 +504,11 @@ void PracticeScreen::controls(AppState& app) {
     ImGui::SameLine();
     if (ImGui::Button("\xE2\x88\x92##root")) app.step_root(-1);
     ImGui::SameLine();
-    if (!ImGui::IsAnyItemActive() || !ImGui::GetIO().WantTextInput) std::snprintf(root_buf_, sizeof root_buf_, "%s", s.root.c_str());
+    if (!ImGui::IsAnyItemActive() || !ImGui::GetIO().WantTextInput)
+        std::snprintf(root_buf_, sizeof root_buf_, "%s", s.root.c_str());
     ImGui::SetNextItemWidth(std::round(3.6f * u));
-    if (ImGui::InputText("##root", root_buf_, sizeof root_buf_, ImGuiInputTextFlags_EnterReturnsTrue)) app.set_root_text(root_buf_);
+    if (ImGui::InputText("##root", root_buf_, sizeof root_buf_, ImGuiInputTextFlags_EnterReturnsTrue))
+        app.set_root_text(root_buf_);
     ImGui::SameLine();
     if (ImGui::Button("+##root")) app.step_root(+1);
     ImGui::SameLine();
@@ -495,12 +525,15 @@ void PracticeScreen::controls(AppState& app) {
     ImGui::SameLine();
     float level = static_cast<float>(s.level_dbfs);
     ImGui::SetNextItemWidth(std::round(5.5f * u));
-    if (ImGui::SliderFloat("##level", &level, static_cast<float>(audio::kDroneMinLevelDbfs), static_cast<float>(audio::kDroneMaxLevelDbfs), ""))
+    if (ImGui::SliderFloat("##level", &level, static_cast<float>(audio::kDroneMinLevelDbfs),
+                           static_cast<float>(audio::kDroneMaxLevelDbfs), ""))
         app.set_drone_level(std::round(level));
     const bool level_hovered = ImGui::IsItemHovered();
     ImGui::SameLine();
     ImGui::Text("%.0f dBFS", std::round(level));
-    if (level_hovered) ImGui::SetTooltip("Drone level (RMS). The limiter holds peaks at or below %.0f dBFS.", audio::kDroneCeilingDbfs);
+    if (level_hovered)
+        ImGui::SetTooltip("Drone level (RMS). The limiter holds peaks at or below %.0f dBFS.",
+                          audio::kDroneCeilingDbfs);
     ImGui::SameLine(0, gap);
     bool fifth = s.fifth, octave = s.octave;
     if (ImGui::Checkbox("fifth", &fifth)) app.set_fifth(fifth);
@@ -512,10 +545,13 @@ void PracticeScreen::controls(AppState& app) {
     ImGui::TextColored(v4(palette::kTextDim), "Targets");
     ImGui::SameLine();
     const std::string set_title = app.targets().title.empty() ? s.target_set : app.targets().title;
-    ImGui::SetNextItemWidth(std::max(std::round(8.5f * u), ImGui::CalcTextSize(set_title.c_str()).x + ImGui::GetFrameHeight() + 2.0f * ImGui::GetStyle().FramePadding.x));
+    ImGui::SetNextItemWidth(std::max(
+        std::round(8.5f * u),
+        ImGui::CalcTextSize(set_title.c_str()).x + ImGui::GetFrameHeight() + 2.0f * ImGui::GetStyle().FramePadding.x));
     if (ImGui::BeginCombo("##set", set_title.c_str())) {
         for (const std::string& name : builtin_names("targets")) {
-            if (name.rfind("hold-", 0) == 0 || name.rfind("ear-", 0) == 0) continue;  // drill material, not practice sets
+            if (name.rfind("hold-", 0) == 0 || name.rfind("ear-", 0) == 0)
+                continue;  // drill material, not practice sets
             if (ImGui::Selectable(name.c_str(), name == s.target_set)) app.set_target_set(name);
         }
         ImGui::EndCombo();
@@ -530,11 +566,14 @@ void PracticeScreen::controls(AppState& app) {
     const auto& ts = app.targets().targets;
     const pitch::Target& fixed = ts[static_cast<std::size_t>(app.fixed_index())];
     // In nearest mode the box shows the target followed now; choosing one fixes it.
-    const int shown_index = s.choice == TargetChoice::nearest && app.verdict().known() ? app.target_index_of(app.current()) : app.fixed_index();
+    const int shown_index = s.choice == TargetChoice::nearest && app.verdict().known()
+                                ? app.target_index_of(app.current())
+                                : app.fixed_index();
     // ... as the header names it (an octave up: 14/5, not 7/5).
-    const std::string shown = s.choice == TargetChoice::nearest && app.verdict().known() ? app.target_ratio_text(app.current())
-                              : shown_index >= 0                                      ? ts[static_cast<std::size_t>(shown_index)].interval.str()
-                                                                                      : fixed.interval.str();
+    const std::string shown = s.choice == TargetChoice::nearest && app.verdict().known()
+                                  ? app.target_ratio_text(app.current())
+                              : shown_index >= 0 ? ts[static_cast<std::size_t>(shown_index)].interval.str()
+                                                 : fixed.interval.str();
     ImGui::SetNextItemWidth(std::round(6.0f * u));
     if (ImGui::BeginCombo("##target", shown.c_str())) {
         for (std::size_t i = 0; i < ts.size(); ++i) {
@@ -578,8 +617,8 @@ void PracticeScreen::build(AppState& app, const ScreenArea& area, double dt_s) {
     const float band_h = std::round(std::max(2.6f * u, 0.1f * H));
     const float lane_margin = std::round(1.6f * u);
     lane(app, dl, x0 + lane_margin, y, inner_w - 2.0f * lane_margin, band_h);
-    y += band_h + std::round(1.3f * u);   // tick labels
-    y += std::round(1.6f * u);            // the centre track
+    y += band_h + std::round(1.3f * u);  // tick labels
+    y += std::round(1.6f * u);           // the centre track
     info_line(app, dl, x0 + lane_margin, y, inner_w);
     y += std::round(1.6f * u);
 

@@ -4,10 +4,10 @@
 // by reopening the engine.
 #include "audio/midi_out.h"
 #include "pitch/base/text.h"
-#include "ui/screens/widgets.h"
 #include "ui/render/imgui_host.h"
 #include "ui/screens/palette.h"
 #include "ui/screens/screen.h"
+#include "ui/screens/widgets.h"
 
 #include <algorithm>
 #include <cmath>
@@ -19,7 +19,6 @@ namespace beatless::ui {
 
 namespace {
 
-
 ImVec4 v4(std::uint32_t c) { return ImGui::ColorConvertU32ToFloat4(c); }
 
 class SettingsScreen final : public Screen {
@@ -30,10 +29,10 @@ public:
 private:
     void section(const char* title);
     void label(const char* text);
-    void indent();  // to the fields' column
+    void indent();                       // to the fields' column
     void note(const std::string& text);  // a dim line under a field, wrapped to the column
 
-    float col_x_ = 0.0f;   // window-relative x of the current column
+    float col_x_ = 0.0f;  // window-relative x of the current column
     float col_w_ = 0.0f;
     void device_combo(AppState& app, const char* id, bool input);
     DevicePicker inputs_, outputs_;
@@ -44,7 +43,7 @@ private:
 
     float label_w_ = 0.0f;
     char root_buf_[32] = "";
-    float font_scale_ = 0.0f;   // the slider's value while it is dragged
+    float font_scale_ = 0.0f;  // the slider's value while it is dragged
 };
 
 void SettingsScreen::section(const char* title) {
@@ -82,7 +81,9 @@ void SettingsScreen::device_combo(AppState& app, const char* id, bool input) {
     const Settings& s = app.settings();
     const std::string& cur = input ? s.input_device : s.output_device;
     std::string chosen;
-    if (!(input ? inputs_ : outputs_).combo(app, id, cur, cur.empty() ? std::string("system default") : cur, input, false, chosen)) return;
+    if (!(input ? inputs_ : outputs_)
+             .combo(app, id, cur, cur.empty() ? std::string("system default") : cur, input, false, chosen))
+        return;
     input ? app.set_devices(chosen, s.output_device) : app.set_devices(s.input_device, chosen);
 }
 
@@ -94,9 +95,11 @@ void SettingsScreen::midi_port_combo(AppState& app, const char* id, bool input, 
     std::string chosen = cur;
     if (ImGui::Selectable("none", cur.empty())) chosen.clear();
     for (const audio::MidiPort& p : midi_ports_)
-        if (p.input == input && ImGui::Selectable((p.name + "  (" + p.api + ")").c_str(), p.name == cur)) chosen = p.name;
+        if (p.input == input && ImGui::Selectable((p.name + "  (" + p.api + ")").c_str(), p.name == cur))
+            chosen = p.name;
     ImGui::EndCombo();
-    if (chosen != cur) input ? app.set_midi(s.midi_out, s.midi_tuning, chosen) : app.set_midi(chosen, s.midi_tuning, s.midi_in);
+    if (chosen != cur)
+        input ? app.set_midi(s.midi_out, s.midi_tuning, chosen) : app.set_midi(chosen, s.midi_tuning, s.midi_in);
 }
 
 void SettingsScreen::midi_section(AppState& app, float field_w) {
@@ -118,10 +121,11 @@ void SettingsScreen::midi_section(AppState& app, float field_w) {
     }
     label("Keyboard");
     midi_port_combo(app, "##midi_in", true, field_w);
-    note(midi_ports_.empty() ? std::string("No MIDI ports: start a MIDI system (ALSA sequencer or JACK) and its ports appear here.")
-                             : std::string("While the drone is on, the synth plays it and a fixed target, tuned exactly. A key sets "
-                                           "the root; a key held with it, the target. A synth that ignores MTS plays tempered: "
-                                           "choose pitch bend."));
+    note(midi_ports_.empty()
+             ? std::string("No MIDI ports: start a MIDI system (ALSA sequencer or JACK) and its ports appear here.")
+             : std::string("While the drone is on, the synth plays it and a fixed target, tuned exactly. A key sets "
+                           "the root; a key held with it, the target. A synth that ignores MTS plays tempered: "
+                           "choose pitch bend."));
 }
 
 void SettingsScreen::build(AppState& app, const ScreenArea& area, double dt_s) {
@@ -134,7 +138,8 @@ void SettingsScreen::build(AppState& app, const ScreenArea& area, double dt_s) {
     // Two columns when the window is wide enough, one otherwise.
     const float gap = std::round(2.0f * u);
     const bool two = area.size.x - 2.0f * pad - gap >= 2.0f * 22.0f * u;
-    col_w_ = two ? std::min(std::round(0.5f * (area.size.x - 2.0f * pad - gap)), std::round(32.0f * u)) : std::min(area.size.x - 2.0f * pad, std::round(36.0f * u));
+    col_w_ = two ? std::min(std::round(0.5f * (area.size.x - 2.0f * pad - gap)), std::round(32.0f * u))
+                 : std::min(area.size.x - 2.0f * pad, std::round(36.0f * u));
     const float col_w = col_w_;
     const float field_w = col_w - label_w_;
     col_x_ = pad;
@@ -143,7 +148,8 @@ void SettingsScreen::build(AppState& app, const ScreenArea& area, double dt_s) {
     label("Root");
     if (!ImGui::GetIO().WantTextInput) std::snprintf(root_buf_, sizeof root_buf_, "%s", s.root.c_str());
     ImGui::SetNextItemWidth(std::round(5.0f * u));
-    if (ImGui::InputText("##root", root_buf_, sizeof root_buf_, ImGuiInputTextFlags_EnterReturnsTrue)) app.set_root_text(root_buf_);
+    if (ImGui::InputText("##root", root_buf_, sizeof root_buf_, ImGuiInputTextFlags_EnterReturnsTrue))
+        app.set_root_text(root_buf_);
     ImGui::SameLine();
     ImGui::TextColored(v4(palette::kTextDim), "%.2f Hz", app.root_hz());
     note("A note (D3, Bb2) or a frequency in Hz; Enter applies it.");
@@ -157,10 +163,12 @@ void SettingsScreen::build(AppState& app, const ScreenArea& area, double dt_s) {
     label("Level");
     float level = static_cast<float>(s.level_dbfs);
     ImGui::SetNextItemWidth(field_w);
-    if (ImGui::SliderFloat("##level", &level, static_cast<float>(audio::kDroneMinLevelDbfs), static_cast<float>(audio::kDroneMaxLevelDbfs), "%.0f dBFS RMS"))
+    if (ImGui::SliderFloat("##level", &level, static_cast<float>(audio::kDroneMinLevelDbfs),
+                           static_cast<float>(audio::kDroneMaxLevelDbfs), "%.0f dBFS RMS"))
         app.set_drone_level(std::round(level));
     char buf[160];
-    std::snprintf(buf, sizeof buf, "Starts from silence and rises to this level in a second; a limiter holds peaks at %.0f dBFS.",
+    std::snprintf(buf, sizeof buf,
+                  "Starts from silence and rises to this level in a second; a limiter holds peaks at %.0f dBFS.",
                   audio::kDroneCeilingDbfs);
     note(buf);
     label("Add");
@@ -199,7 +207,8 @@ void SettingsScreen::build(AppState& app, const ScreenArea& area, double dt_s) {
                 if (ImGui::Selectable(f.text, f.hz == s.lowest_hz)) app.set_lowest_hz(f.hz);
             ImGui::EndCombo();
         }
-        if (s.lowest_hz < kDefaultLowestHz) note("A lower floor needs a longer window: readings settle a little later.");
+        if (s.lowest_hz < kDefaultLowestHz)
+            note("A lower floor needs a longer window: readings settle a little later.");
     }
 
     section("Display");

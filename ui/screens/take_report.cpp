@@ -24,7 +24,7 @@ namespace beatless::ui {
 
 namespace {
 
-constexpr float kBodyPx = 26.0f;    // ~3.9 mm on a 297 mm wide A4 page: about 11 pt
+constexpr float kBodyPx = 26.0f;  // ~3.9 mm on a 297 mm wide A4 page: about 11 pt
 constexpr float kTitlePx = 44.0f;
 constexpr float kMargin = 40.0f;
 
@@ -35,7 +35,7 @@ constexpr ImU32 kTargetUsed = rgba(60, 60, 80);
 constexpr ImU32 kTargetOther = rgba(170, 170, 182);
 constexpr ImU32 kTrace = rgba(35, 70, 140);
 constexpr ImU32 kTraceDense = rgba(150, 170, 210);  // a band of many frames per pixel: lighter, so the bars stand out
-constexpr double kJoinCents = 60.0;  // larger jumps between neighbouring points are not joined by a line
+constexpr double kJoinCents = 60.0;                 // larger jumps between neighbouring points are not joined by a line
 
 // ---------------------------------------------------------------------------
 // [SECTION] Page geometry and the cents range in view
@@ -146,8 +146,10 @@ std::string clock_text(double t_s, bool minutes) {
     if (!minutes) return pitch::format_trimmed(t_s, 1);
     const long s = std::lround(t_s);
     char buf[32];
-    if (s >= 3600) std::snprintf(buf, sizeof buf, "%ld:%02ld:%02ld", s / 3600, (s / 60) % 60, s % 60);
-    else std::snprintf(buf, sizeof buf, "%ld:%02ld", s / 60, s % 60);
+    if (s >= 3600)
+        std::snprintf(buf, sizeof buf, "%ld:%02ld:%02ld", s / 3600, (s / 60) % 60, s % 60);
+    else
+        std::snprintf(buf, sizeof buf, "%ld:%02ld", s / 60, s % 60);
     return buf;
 }
 
@@ -156,12 +158,18 @@ struct Ink {
     ImFont* body;
     ImFont* bold;
     ImFont* title;
-    ImVec2 size(ImFont* f, const std::string& s) const { return f->CalcTextSizeA(f->FontSize, FLT_MAX, 0.0f, s.c_str()); }
+    ImVec2 size(ImFont* f, const std::string& s) const {
+        return f->CalcTextSizeA(f->FontSize, FLT_MAX, 0.0f, s.c_str());
+    }
     void text(ImFont* f, float x, float y, ImU32 col, const std::string& s) const {
         dl->AddText(f, f->FontSize, ImVec2(std::floor(x), std::floor(y)), col, s.c_str());
     }
-    void text_right(ImFont* f, float x, float y, ImU32 col, const std::string& s) const { text(f, x - size(f, s).x, y, col, s); }
-    void text_centre(ImFont* f, float x, float y, ImU32 col, const std::string& s) const { text(f, x - 0.5f * size(f, s).x, y, col, s); }
+    void text_right(ImFont* f, float x, float y, ImU32 col, const std::string& s) const {
+        text(f, x - size(f, s).x, y, col, s);
+    }
+    void text_centre(ImFont* f, float x, float y, ImU32 col, const std::string& s) const {
+        text(f, x - 0.5f * size(f, s).x, y, col, s);
+    }
 };
 
 ImU32 mark_colour(double dev_cents) {
@@ -193,9 +201,11 @@ void draw_axes(const Ink& ink, const ReportData& d, const ReportLayout& l) {
         ink.text_centre(ink.body, x, l.plot_y1 + 8.0f, kSoftInk, clock_text(t, minutes));
     }
     ink.text_right(ink.body, l.plot_x1, l.plot_y1 + 8.0f + lh + 4.0f, kInk, minutes ? "time (min:s)" : "time (s)");
-    ink.text(ink.body, l.plot_x0, l.plot_y1 + 8.0f + lh + 4.0f, kSoftInk,
-             "bar: a held " + d.mark_word + "'s centre, labelled with its deviation; stem: from the target line to the bar");
-    dl->AddRect(ImVec2(l.plot_x0 - 0.5f, l.plot_y0 - 0.5f), ImVec2(l.plot_x1 + 0.5f, l.plot_y1 + 0.5f), kInk, 0.0f, 0, 1.5f);
+    ink.text(
+        ink.body, l.plot_x0, l.plot_y1 + 8.0f + lh + 4.0f, kSoftInk,
+        "bar: a held " + d.mark_word + "'s centre, labelled with its deviation; stem: from the target line to the bar");
+    dl->AddRect(ImVec2(l.plot_x0 - 0.5f, l.plot_y0 - 0.5f), ImVec2(l.plot_x1 + 0.5f, l.plot_y1 + 0.5f), kInk, 0.0f, 0,
+                1.5f);
 }
 
 struct Label {
@@ -215,7 +225,8 @@ void draw_targets(const Ink& ink, const ReportData& d, const ReportLayout& l) {
             const double c = t.cents + 1200.0 * k;
             if (c < l.c_lo || c > l.c_hi) continue;
             const float y = l.y_of(c);
-            dl->AddLine(ImVec2(l.plot_x0, y), ImVec2(l.plot_x1, y), t.used ? kTargetUsed : kTargetOther, t.used ? 2.0f : 1.2f);
+            dl->AddLine(ImVec2(l.plot_x0, y), ImVec2(l.plot_x1, y), t.used ? kTargetUsed : kTargetOther,
+                        t.used ? 2.0f : 1.2f);
             labels.push_back({y, y, c, &t});
         }
     }
@@ -233,7 +244,8 @@ void draw_targets(const Ink& ink, const ReportData& d, const ReportLayout& l) {
     const float lx = l.plot_x1 + 36.0f;
     for (const Label& a : labels) {
         const ImU32 col = a.target->used ? kInk : kSoftInk;
-        dl->AddLine(ImVec2(l.plot_x1 + 2.0f, a.want_y), ImVec2(lx - 6.0f, a.y), a.target->used ? kTargetUsed : kTargetOther, 1.2f);
+        dl->AddLine(ImVec2(l.plot_x1 + 2.0f, a.want_y), ImVec2(lx - 6.0f, a.y),
+                    a.target->used ? kTargetUsed : kTargetOther, 1.2f);
         const float ty = a.y - 0.5f * ink.body->FontSize;
         ImFont* f = a.target->used ? ink.bold : ink.body;
         ink.text(f, lx, ty, col, a.target->ratio);
@@ -272,8 +284,10 @@ void draw_trace(const Ink& ink, const ReportData& d, const ReportLayout& l) {
     std::vector<ImVec2> run;
     double prev = NAN;
     auto flush = [&] {
-        if (run.size() >= 2) dl->AddPolyline(run.data(), static_cast<int>(run.size()), kTrace, ImDrawFlags_None, 2.0f);
-        else if (run.size() == 1) dl->AddCircleFilled(run[0], 1.5f, kTrace);
+        if (run.size() >= 2)
+            dl->AddPolyline(run.data(), static_cast<int>(run.size()), kTrace, ImDrawFlags_None, 2.0f);
+        else if (run.size() == 1)
+            dl->AddCircleFilled(run[0], 1.5f, kTrace);
         run.clear();
     };
     for (std::size_t i = 0; i < tr.size(); ++i) {
@@ -293,7 +307,9 @@ void draw_trace(const Ink& ink, const ReportData& d, const ReportLayout& l) {
 // Returns how many deviations could not be written for lack of room.
 int draw_marks(const Ink& ink, const ReportData& d, const ReportLayout& l) {
     ImDrawList* dl = ink.dl;
-    struct Box { float x0, y0, x1, y1; };
+    struct Box {
+        float x0, y0, x1, y1;
+    };
     std::vector<Box> placed;
     int skipped = 0;
     const float th = ink.body->FontSize;
@@ -304,7 +320,8 @@ int draw_marks(const Ink& ink, const ReportData& d, const ReportLayout& l) {
         const float xm = 0.5f * (x0 + x1);
         // The deviation as a stem from the target line to the bar, then the bar.
         dl->AddLine(ImVec2(xm, yt), ImVec2(xm, y), col, 2.0f);
-        dl->AddRectFilled(ImVec2(x0 - 1.0f, y - 4.5f), ImVec2(x1 + 1.0f, y + 4.5f), kInk);  // a dark rim: visible over the trace
+        dl->AddRectFilled(ImVec2(x0 - 1.0f, y - 4.5f), ImVec2(x1 + 1.0f, y + 4.5f),
+                          kInk);  // a dark rim: visible over the trace
         dl->AddRectFilled(ImVec2(x0, y - 3.5f), ImVec2(x1, y + 3.5f), col);
         const std::string s = signed_cents(m.dev_cents, 1) + " c";
         const float tw = ink.size(ink.bold, s).x;
@@ -334,7 +351,10 @@ void draw_title(const Ink& ink, const ReportData& d) {
     ink.text(ink.title, kMargin, 24.0f, kInk, d.title);
     ink.text(ink.body, kMargin, 24.0f + ink.title->FontSize + 10.0f, kSoftInk, d.subtitle);
     // Legend, top right: what the bar colours mean.
-    struct Item { ImU32 col; const char* text; };
+    struct Item {
+        ImU32 col;
+        const char* text;
+    };
     const Item items[] = {{kReportGood, "within 5 c"}, {kReportFair, "5 to 15 c"}, {kReportPoor, "over 15 c"}};
     float x = kReportWidthPx - kMargin;
     const float y = 36.0f;
@@ -387,8 +407,8 @@ void draw_summary(const Ink& ink, const ReportData& d, float y0) {
     // only then is a name shortened.
     const bool with_words = w_name + gap + w_words <= room;
     const float name_w = with_words ? w_name : room + gap;
-    const float c_ratio = 0.0f, c_name = w_ratio + gap, c_count = c_name + name_w + gap, c_mean = c_count + w_count + gap,
-                c_words = c_mean + w_mean + gap;
+    const float c_ratio = 0.0f, c_name = w_ratio + gap, c_count = c_name + name_w + gap,
+                c_mean = c_count + w_count + gap, c_words = c_mean + w_mean + gap;
     for (int c = 0; c < cols; ++c) {
         const float x = kMargin + static_cast<float>(c) * col_w;
         ink.text(ink.body, x + c_count, y0, kSoftInk, plural);
@@ -401,7 +421,9 @@ void draw_summary(const Ink& ink, const ReportData& d, float y0) {
         const int c = static_cast<int>(i) / per_col;
         const float x = kMargin + static_cast<float>(c) * col_w;
         const float y = row0 + static_cast<float>(static_cast<int>(i) % per_col) * lh;
-        if (i % 2 == 0) ink.dl->AddRectFilled(ImVec2(x - 6.0f, y - 2.0f), ImVec2(x + col_w - 16.0f, y + lh - 4.0f), rgba(243, 243, 247));
+        if (i % 2 == 0)
+            ink.dl->AddRectFilled(ImVec2(x - 6.0f, y - 2.0f), ImVec2(x + col_w - 16.0f, y + lh - 4.0f),
+                                  rgba(243, 243, 247));
         ink.text(ink.bold, x + c_ratio, y, kInk, r.ratio);
         ink.text(ink.body, x + c_name, y, kSoftInk, fit_text(ink.body, r.name, name_w));
         ink.text(ink.body, x + c_count, y, kInk, std::to_string(r.count));
@@ -412,7 +434,8 @@ void draw_summary(const Ink& ink, const ReportData& d, float y0) {
         const std::size_t i = shown;
         const float x = kMargin + static_cast<float>(static_cast<int>(i) / per_col) * col_w;
         const float y = row0 + static_cast<float>(static_cast<int>(i) % per_col) * lh;
-        ink.text(ink.body, x, y, kSoftInk, "... and " + std::to_string(d.summary.size() - shown) + " more targets (see the text output)");
+        ink.text(ink.body, x, y, kSoftInk,
+                 "... and " + std::to_string(d.summary.size() - shown) + " more targets (see the text output)");
     }
 }
 
@@ -425,7 +448,8 @@ void draw_skipped_note(const Ink& ink, const ReportData& d, const ReportLayout& 
     const float y = l.plot_y1 + 8.0f + ink.body->FontSize + 4.0f;
     const std::string what = skipped_labels == 1 ? d.mark_word : d.mark_word + "s";
     ink.text(ink.body, x, y, kSoftInk,
-             fit_text(ink.body, std::to_string(skipped_labels) + " " + what + " too close to label", kReportWidthPx - kMargin / 2 - x));
+             fit_text(ink.body, std::to_string(skipped_labels) + " " + what + " too close to label",
+                      kReportWidthPx - kMargin / 2 - x));
 }
 
 }  // namespace

@@ -14,38 +14,38 @@
 namespace beatless::ui {
 
 struct ReportTarget {
-    double cents = 0.0;            // the target within its own octave (as in the set)
-    std::string ratio;             // "7/5" or "600c"
-    std::string name;              // "septimal tritone", or empty
-    bool used = false;             // some note matched it (drawn darker, always labelled)
+    double cents = 0.0;  // the target within its own octave (as in the set)
+    std::string ratio;   // "7/5" or "600c"
+    std::string name;    // "septimal tritone", or empty
+    bool used = false;   // some note matched it (drawn darker, always labelled)
 };
 
-struct ReportMark {                // one note or dyad
+struct ReportMark {  // one note or dyad
     double start_s = 0.0;
     double end_s = 0.0;
-    double cents = 0.0;            // measured centre (same axis as the trace)
-    double target_cents = 0.0;     // the matched target after its octave shift
-    double dev_cents = 0.0;        // + is sharp (wide)
+    double cents = 0.0;         // measured centre (same axis as the trace)
+    double target_cents = 0.0;  // the matched target after its octave shift
+    double dev_cents = 0.0;     // + is sharp (wide)
 };
 
-struct ReportRow {                 // one line of the per-target summary
+struct ReportRow {  // one line of the per-target summary
     std::string ratio;
     std::string name;
     int count = 0;
     double mean_dev_cents = 0.0;
     double spread_cents = 0.0;
-    std::string words;             // "averages 6.0 cents flat"
+    std::string words;  // "averages 6.0 cents flat"
 };
 
 struct ReportData {
-    std::string title;             // the file name
-    std::string subtitle;          // root, target set, date of analysis
-    std::string axis_label;        // "cents above the root"
-    std::string mark_word = "note";  // "note" or "interval", for the table's header
-    double dur_s = 0.0;            // length of the take
+    std::string title;                             // the file name
+    std::string subtitle;                          // root, target set, date of analysis
+    std::string axis_label;                        // "cents above the root"
+    std::string mark_word = "note";                // "note" or "interval", for the table's header
+    double dur_s = 0.0;                            // length of the take
     const pitch::DecimatedTrace* trace = nullptr;  // may be null (no trace drawn)
     std::vector<ReportTarget> targets;
-    bool octave_equivalent = true; // draw each target in every octave in view
+    bool octave_equivalent = true;  // draw each target in every octave in view
     std::vector<ReportMark> marks;
     std::vector<ReportRow> summary;
 };
@@ -63,10 +63,14 @@ constexpr std::uint32_t kReportPaper = rgba(255, 255, 255);
 // Where things go on the page (exposed so tests can find them).
 struct ReportLayout {
     float plot_x0 = 0, plot_y0 = 0, plot_x1 = 0, plot_y1 = 0;  // pixels
-    double t0_s = 0, t1_s = 1;     // time across the plot
-    double c_lo = 0, c_hi = 1;     // cents from the bottom to the top
-    float x_of(double t_s) const { return plot_x0 + static_cast<float>((t_s - t0_s) / (t1_s - t0_s)) * (plot_x1 - plot_x0); }
-    float y_of(double cents) const { return plot_y1 - static_cast<float>((cents - c_lo) / (c_hi - c_lo)) * (plot_y1 - plot_y0); }
+    double t0_s = 0, t1_s = 1;                                 // time across the plot
+    double c_lo = 0, c_hi = 1;                                 // cents from the bottom to the top
+    float x_of(double t_s) const {
+        return plot_x0 + static_cast<float>((t_s - t0_s) / (t1_s - t0_s)) * (plot_x1 - plot_x0);
+    }
+    float y_of(double cents) const {
+        return plot_y1 - static_cast<float>((cents - c_lo) / (c_hi - c_lo)) * (plot_y1 - plot_y0);
+    }
 };
 ReportLayout report_layout(const ReportData& data);
 

@@ -42,7 +42,8 @@ ImVec2 text_size(FontFace face, std::string_view text) {
 
 void draw_text(ImDrawList* dl, FontFace face, ImVec2 pos, std::uint32_t colour, std::string_view text) {
     ImFont* f = font_of(face);
-    dl->AddText(f, f->FontSize, ImVec2(std::round(pos.x), std::round(pos.y)), colour, text.data(), text.data() + text.size());
+    dl->AddText(f, f->FontSize, ImVec2(std::round(pos.x), std::round(pos.y)), colour, text.data(),
+                text.data() + text.size());
 }
 
 void draw_text_centred(ImDrawList* dl, FontFace face, float x, float y, std::uint32_t colour, std::string_view text) {
@@ -52,8 +53,14 @@ void draw_text_centred(ImDrawList* dl, FontFace face, float x, float y, std::uin
 void draw_tuning_shape(ImDrawList* dl, Tuning t, ImVec2 c, float r, std::uint32_t colour) {
     switch (t) {
         case Tuning::in_tune: dl->AddCircleFilled(c, r * 0.85f, colour, 24); break;
-        case Tuning::sharp: dl->AddTriangleFilled(ImVec2(c.x, c.y - r), ImVec2(c.x + r, c.y + r * 0.8f), ImVec2(c.x - r, c.y + r * 0.8f), colour); break;
-        case Tuning::flat: dl->AddTriangleFilled(ImVec2(c.x - r, c.y - r * 0.8f), ImVec2(c.x + r, c.y - r * 0.8f), ImVec2(c.x, c.y + r), colour); break;
+        case Tuning::sharp:
+            dl->AddTriangleFilled(ImVec2(c.x, c.y - r), ImVec2(c.x + r, c.y + r * 0.8f),
+                                  ImVec2(c.x - r, c.y + r * 0.8f), colour);
+            break;
+        case Tuning::flat:
+            dl->AddTriangleFilled(ImVec2(c.x - r, c.y - r * 0.8f), ImVec2(c.x + r, c.y - r * 0.8f),
+                                  ImVec2(c.x, c.y + r), colour);
+            break;
     }
 }
 
@@ -64,19 +71,25 @@ void draw_diamond(ImDrawList* dl, ImVec2 c, float r, std::uint32_t colour, float
 
 void draw_square(ImDrawList* dl, ImVec2 c, float r, std::uint32_t colour, bool filled) {
     const ImVec2 a(std::round(c.x - r), std::round(c.y - r)), b(std::round(c.x + r), std::round(c.y + r));
-    if (filled) dl->AddRectFilled(a, b, colour);
-    else dl->AddRect(a, b, colour, 0.0f, 0, std::max(1.0f, std::round(r * 0.25f)));
+    if (filled)
+        dl->AddRectFilled(a, b, colour);
+    else
+        dl->AddRect(a, b, colour, 0.0f, 0, std::max(1.0f, std::round(r * 0.25f)));
 }
 
 void draw_warning_sign(ImDrawList* dl, ImVec2 c, float r, std::uint32_t colour) {
-    dl->AddTriangleFilled(ImVec2(c.x, c.y - r), ImVec2(c.x + r * 1.1f, c.y + r * 0.9f), ImVec2(c.x - r * 1.1f, c.y + r * 0.9f), colour);
+    dl->AddTriangleFilled(ImVec2(c.x, c.y - r), ImVec2(c.x + r * 1.1f, c.y + r * 0.9f),
+                          ImVec2(c.x - r * 1.1f, c.y + r * 0.9f), colour);
     const float w = std::max(1.0f, std::round(r * 0.22f));
-    dl->AddRectFilled(ImVec2(std::round(c.x - w * 0.5f), std::round(c.y - r * 0.45f)), ImVec2(std::round(c.x + w * 0.5f), std::round(c.y + r * 0.3f)), palette::kBackground);
-    dl->AddRectFilled(ImVec2(std::round(c.x - w * 0.5f), std::round(c.y + r * 0.45f)), ImVec2(std::round(c.x + w * 0.5f), std::round(c.y + r * 0.45f + w)), palette::kBackground);
+    dl->AddRectFilled(ImVec2(std::round(c.x - w * 0.5f), std::round(c.y - r * 0.45f)),
+                      ImVec2(std::round(c.x + w * 0.5f), std::round(c.y + r * 0.3f)), palette::kBackground);
+    dl->AddRectFilled(ImVec2(std::round(c.x - w * 0.5f), std::round(c.y + r * 0.45f)),
+                      ImVec2(std::round(c.x + w * 0.5f), std::round(c.y + r * 0.45f + w)), palette::kBackground);
 }
 
 void draw_panel(ImDrawList* dl, float x0, float y0, float w, float h) {
-    dl->AddRectFilled(ImVec2(x0, y0), ImVec2(x0 + w, y0 + h), palette::kPanel, std::round(0.25f * font_px(FontFace::body)));
+    dl->AddRectFilled(ImVec2(x0, y0), ImVec2(x0 + w, y0 + h), palette::kPanel,
+                      std::round(0.25f * font_px(FontFace::body)));
 }
 
 std::string fit_text(FontFace face, const std::string& text, float max_w) {

@@ -17,8 +17,8 @@ namespace beatless::ui {
 enum class Tuning { in_tune, sharp, flat };
 
 Tuning tuning_of(double dev_cents, double in_tune_cents) noexcept;
-std::uint32_t tuning_colour(Tuning t) noexcept;      // palette.h
-std::string_view tuning_word(Tuning t) noexcept;     // "in tune", "sharp", "flat"
+std::uint32_t tuning_colour(Tuning t) noexcept;   // palette.h
+std::string_view tuning_word(Tuning t) noexcept;  // "in tune", "sharp", "flat"
 
 // The face's size in pixels as the host built it.
 float font_px(FontFace face);
@@ -31,7 +31,7 @@ void draw_text(ImDrawList* dl, FontFace face, ImVec2 pos, std::uint32_t colour, 
 void draw_text_centred(ImDrawList* dl, FontFace face, float x, float y, std::uint32_t colour, std::string_view text);
 
 // State shapes, centred on c with half-size r.
-void draw_tuning_shape(ImDrawList* dl, Tuning t, ImVec2 c, float r, std::uint32_t colour);  // ▲ ▼ ●
+void draw_tuning_shape(ImDrawList* dl, Tuning t, ImVec2 c, float r, std::uint32_t colour);    // ▲ ▼ ●
 void draw_diamond(ImDrawList* dl, ImVec2 c, float r, std::uint32_t colour, float thickness);  // hollow ◇
 void draw_square(ImDrawList* dl, ImVec2 c, float r, std::uint32_t colour, bool filled);       // ■ or □
 void draw_warning_sign(ImDrawList* dl, ImVec2 c, float r, std::uint32_t colour);              // a triangle with "!"

@@ -12,9 +12,9 @@
 
 #include "audio/sound_system.h"
 #include "pitch/base/error.h"
+#include "pitch/base/text.h"
 #include "pitch/theory/interval.h"
 #include "pitch/theory/notes.h"
-#include "pitch/base/text.h"
 #include "ui/session/target_files.h"
 
 #include <algorithm>
@@ -50,8 +50,8 @@ namespace {
 
 constexpr double kSimRateHz = 48000.0;
 constexpr std::size_t kSimBlock = 256;
-constexpr double kMessageS = 8.0;    // a message stays this long on screen
-constexpr double kSaveAfterS = 1.0;  // changes are saved at most this often
+constexpr double kMessageS = 8.0;            // a message stays this long on screen
+constexpr double kSaveAfterS = 1.0;          // changes are saved at most this often
 constexpr double kDrillVibratoScale = 0.25;  // the demo sings drills with a narrow vibrato (common practice at a drone)
 
 // Joins message parts with append (GCC 12 warns falsely, -Wrestrict, on
@@ -69,8 +69,11 @@ std::string device_text(const std::string& name, const std::string& host_api) {
 }  // namespace
 
 AppState::AppState(Settings settings, std::filesystem::path settings_file, AppOptions options)
-    : settings_(std::move(settings)), settings_file_(std::move(settings_file)), options_(std::move(options)),
-      trace_(static_cast<std::size_t>(kTraceSeconds / 0.005) + 256), take_buf_(512) {
+    : settings_(std::move(settings)),
+      settings_file_(std::move(settings_file)),
+      options_(std::move(options)),
+      trace_(static_cast<std::size_t>(kTraceSeconds / 0.005) + 256),
+      take_buf_(512) {
     if (!options_.root.empty()) settings_.root = options_.root;
     if (options_.a4_hz) settings_.a4_hz = pitch::check_a4(*options_.a4_hz);
     if (options_.lowest_hz) settings_.lowest_hz = *options_.lowest_hz;
@@ -86,13 +89,15 @@ AppState::AppState(Settings settings, std::filesystem::path settings_file, AppOp
     }
     if (!options_.target.empty()) {
         const pitch::Interval iv = pitch::parse_interval(options_.target);  // a bad one is the user's error: thrown
-        auto it = std::find_if(set_.targets.begin(), set_.targets.end(), [&](const pitch::Target& t) { return t.interval == iv; });
+        auto it = std::find_if(set_.targets.begin(), set_.targets.end(),
+                               [&](const pitch::Target& t) { return t.interval == iv; });
         if (it == set_.targets.end()) {
             pitch::Target t{iv, ""};
             if (const std::string* n = interval_names().find(iv)) t.name = *n;
             set_.targets.push_back(std::move(t));
-            std::stable_sort(set_.targets.begin(), set_.targets.end(),
-                             [](const pitch::Target& a, const pitch::Target& b) { return a.interval.cents() < b.interval.cents(); });
+            std::stable_sort(
+                set_.targets.begin(), set_.targets.end(),
+                [](const pitch::Target& a, const pitch::Target& b) { return a.interval.cents() < b.interval.cents(); });
         }
         settings_.choice = TargetChoice::fixed;
         settings_.fixed_target = iv.str();
@@ -135,7 +140,8 @@ bool AppState::follow_group(const audio::EnsembleSetup& setup) {
     if (engine_ && group_ && engine_->mode() == audio::EngineMode::ensemble) {
         // The same players on the same channels: the running engine takes the new plan.
         bool same = setup.players.size() == group_->players.size();
-        for (std::size_t i = 0; same && i < setup.players.size(); ++i) same = setup.players[i].channel == group_->players[i].channel;
+        for (std::size_t i = 0; same && i < setup.players.size(); ++i)
+            same = setup.players[i].channel == group_->players[i].channel;
         if (same) {
             try {
                 engine_->set_ensemble(setup);
@@ -217,8 +223,10 @@ void AppState::open_engine() {
             }
         } else {
             eng->set_readings(reading_config(), engine_targets());
-            if (options_.demo) eng->use_demo(dc);
-            else eng->open_input_device(settings_.input_device);
+            if (options_.demo)
+                eng->use_demo(dc);
+            else
+                eng->open_input_device(settings_.input_device);
         }
         if (with_output) eng->open_output_device(settings_.output_device);
         eng->set_drone(drone_settings(settings_.level_dbfs));
@@ -241,9 +249,12 @@ void AppState::open_engine() {
         engine_.reset();
         input_text_ = "no input";
         const std::string what = std::string(group_ ? "Ensemble input: " : "") + e.what();
-        if (options_.demo) post(what, true);
-        else if (what.find(audio::kDemoHint) != std::string::npos) post(join({what, "; or choose an input in Settings"}), true);
-        else post(join({what, " (", audio::kDemoHint, ", or choose an input in Settings)"}), true);
+        if (options_.demo)
+            post(what, true);
+        else if (what.find(audio::kDemoHint) != std::string::npos)
+            post(join({what, "; or choose an input in Settings"}), true);
+        else
+            post(join({what, " (", audio::kDemoHint, ", or choose an input in Settings)"}), true);
         return;
     }
     if (group_) {
@@ -326,7 +337,8 @@ void AppState::update(double dt_s) {
             post(e.what(), true);
         }
     }
-    while (!messages_.empty() && (app_time_s_ - messages_.front().shown_at_s > kMessageS || messages_.size() > 3)) messages_.pop_front();
+    while (!messages_.empty() && (app_time_s_ - messages_.front().shown_at_s > kMessageS || messages_.size() > 3))
+        messages_.pop_front();
 }
 
 void AppState::take(const pitch::Reading& r) {
@@ -456,7 +468,8 @@ void AppState::step_root(int semitones) {
     std::string next;
     try {
         const int midi = pitch::note_to_midi(settings_.root);  // a note name moves by notes
-        next = pitch::midi_to_name(midi + semitones, pitch::has_flat(settings_.root) ? pitch::BlackKeys::flats : pitch::BlackKeys::sharps);
+        next = pitch::midi_to_name(
+            midi + semitones, pitch::has_flat(settings_.root) ? pitch::BlackKeys::flats : pitch::BlackKeys::sharps);
     } catch (const Error&) {
         next = pitch::format_trimmed(root_hz_ * std::exp2(semitones / 12.0), 2);
     }
@@ -546,7 +559,8 @@ void AppState::step_target(int by) {
     if (refuse_in_drill("the target")) return;
     const int n = static_cast<int>(set_.targets.size());
     int from = fixed_index_;
-    if (settings_.choice == TargetChoice::nearest && has_current() && current().target_index >= 0) from = current().target_index;
+    if (settings_.choice == TargetChoice::nearest && has_current() && current().target_index >= 0)
+        from = current().target_index;
     fixed_index_ = ((from + by) % n + n) % n;
     settings_.choice = TargetChoice::fixed;
     settings_.fixed_target = set_.targets[static_cast<std::size_t>(fixed_index_)].interval.str();
@@ -613,8 +627,10 @@ bool AppState::begin_drill(const audio::DroneSettings& drone) {
     drill_drone_ = drone;
     if (engine_) engine_->set_root_hz(engine_root_hz());
     apply_readings();
-    if (!drone_on_) set_drone_on(true);
-    else apply_drone();
+    if (!drone_on_)
+        set_drone_on(true);
+    else
+        apply_drone();
     return true;
 }
 
@@ -639,8 +655,10 @@ void AppState::end_drill() {
     }
     if (engine_) engine_->set_root_hz(root_hz_);
     apply_readings();
-    if (!drone_on_before_drill_) set_drone_on(false);
-    else apply_drone();
+    if (!drone_on_before_drill_)
+        set_drone_on(false);
+    else
+        apply_drone();
 }
 
 bool AppState::sound_tone(double freq_hz, double dur_s) {

@@ -25,8 +25,8 @@
 #include "pitch/measure/reading.h"
 #include "pitch/theory/targets.h"
 #include "ui/session/beat_pulse.h"
-#include "ui/session/verdict.h"
 #include "ui/session/settings.h"
+#include "ui/session/verdict.h"
 
 #include <deque>
 #include <memory>
@@ -38,24 +38,24 @@ namespace beatless::ui {
 
 // Command-line choices that override the settings for this run (not saved).
 struct AppOptions {
-    bool demo = false;                    // the demo performer is the microphone
-    std::optional<double> hold_dev_cents; // demo hold mode: the chosen target at this deviation, no vibrato
-    std::uint64_t seed = 7;               // demo performer seed
-    bool simulated = false;               // snapshot: no audio thread, no devices; time advances by update()
-    bool no_input = false;                // no engine at all (snapshot without --demo)
-    std::string input_device;             // overrides settings.input_device when not empty
-    std::string output_device;            // overrides settings.output_device when not empty
-    std::string root;                     // overrides [drone] root when not empty
-    std::optional<double> a4_hz;          // overrides a4_hz
-    std::optional<double> lowest_hz;      // overrides lowest_hz (checked by the command)
-    std::string target_set;               // overrides [targets] set when not empty
-    std::string target;                   // a fixed target ("7/5"): choice = fixed
-    bool drone = false;                   // start the drone at once (acknowledges nothing: the caution still applies)
-    bool save_settings = true;            // false: never write the settings file (snapshot)
-    std::string drill;                    // the Drills screen chooses and starts this drill (a name or a .toml path)
-    std::string listener;                 // ear drills: a simulated listener answers: "perfect", "guess" or cents (demos, snapshots)
-    bool log = true;                      // attempts go to the practice log (false: kept in memory only)
-    std::string log_file;                 // the practice log; empty = the data folder's practice.sqlite3
+    bool demo = false;                     // the demo performer is the microphone
+    std::optional<double> hold_dev_cents;  // demo hold mode: the chosen target at this deviation, no vibrato
+    std::uint64_t seed = 7;                // demo performer seed
+    bool simulated = false;                // snapshot: no audio thread, no devices; time advances by update()
+    bool no_input = false;                 // no engine at all (snapshot without --demo)
+    std::string input_device;              // overrides settings.input_device when not empty
+    std::string output_device;             // overrides settings.output_device when not empty
+    std::string root;                      // overrides [drone] root when not empty
+    std::optional<double> a4_hz;           // overrides a4_hz
+    std::optional<double> lowest_hz;       // overrides lowest_hz (checked by the command)
+    std::string target_set;                // overrides [targets] set when not empty
+    std::string target;                    // a fixed target ("7/5"): choice = fixed
+    bool drone = false;                    // start the drone at once (acknowledges nothing: the caution still applies)
+    bool save_settings = true;             // false: never write the settings file (snapshot)
+    std::string drill;                     // the Drills screen chooses and starts this drill (a name or a .toml path)
+    std::string listener;  // ear drills: a simulated listener answers: "perfect", "guess" or cents (demos, snapshots)
+    bool log = true;       // attempts go to the practice log (false: kept in memory only)
+    std::string log_file;  // the practice log; empty = the data folder's practice.sqlite3
 };
 
 // The readings of the last seconds, oldest first, in a ring sized once.
@@ -82,8 +82,8 @@ struct Message {
 
 class AppState {
 public:
-    static constexpr double kTraceSeconds = 12.0;   // kept; the trace shows the last 10 s
-    static constexpr double kDroneFadeInS = 1.0;    // a starting drone rises from silence over this time
+    static constexpr double kTraceSeconds = 12.0;  // kept; the trace shows the last 10 s
+    static constexpr double kDroneFadeInS = 1.0;   // a starting drone rises from silence over this time
 
     // Loads the target set (a bad one falls back to the built-in 7-limit
     // with a message); starts nothing yet.
@@ -93,9 +93,9 @@ public:
     AppState& operator=(const AppState&) = delete;
 
     // --- Frame ------------------------------------------------------------------
-    void start();                  // opens the engine (devices, demo); messages instead of throwing
-    void update(double dt_s);      // see the header comment; call once per frame
-    void shutdown();               // stops the engine and saves the settings
+    void start();              // opens the engine (devices, demo); messages instead of throwing
+    void update(double dt_s);  // see the header comment; call once per frame
+    void shutdown();           // stops the engine and saves the settings
     // The one engine and its devices are the app's. The Ensemble screen has
     // it follow a group (the group's channels, the same drone) while it is
     // shown and one performer again when it is left: the engine reopens for
@@ -104,7 +104,7 @@ public:
     bool follow_group(const audio::EnsembleSetup& setup);
     void follow_performer();
     bool following_group() const { return group_.has_value(); }
-    audio::Engine* engine() { return engine_.get(); }   // null without input
+    audio::Engine* engine() { return engine_.get(); }  // null without input
     double app_time_s() const { return app_time_s_; }
 
     // --- Settings -----------------------------------------------------------------
@@ -114,39 +114,41 @@ public:
     void set_screen(ScreenId id);
     void set_font_scale(float scale);
     void set_in_tune_cents(double cents);
-    void set_lowest_hz(double hz);                  // the live tracker's lowest f0: the engine is opened again
-    void set_a4(double a4_hz);                       // clamps to 400 .. 480
-    void set_devices(const std::string& input, const std::string& output);  // reopens the engine
+    void set_lowest_hz(double hz);  // the live tracker's lowest f0: the engine is opened again
+    void set_a4(double a4_hz);      // clamps to 400 .. 480
+    void set_devices(const std::string& input, const std::string& output);                    // reopens the engine
     void set_midi(const std::string& out, const std::string& tuning, const std::string& in);  // MidiLink follows them
-    void set_ensemble(const EnsembleSettings& e);    // the Ensemble screen's choices (saved like the rest)
-    std::vector<audio::DeviceInfo> devices();        // empty when there is no audio system
-    std::string input_text() const;                  // "Demo performer", "USB mic (ALSA)", "no input"
+    void set_ensemble(const EnsembleSettings& e);  // the Ensemble screen's choices (saved like the rest)
+    std::vector<audio::DeviceInfo> devices();      // empty when there is no audio system
+    std::string input_text() const;                // "Demo performer", "USB mic (ALSA)", "no input"
 
     // --- Hearing caution and drone --------------------------------------------
     bool caution_needed() const { return !settings_.caution_acknowledged; }
     void acknowledge_caution();
     bool drone_on() const { return drone_on_; }
-    bool drone_heard() const { return drone_heard_; }  // an output stream plays it (false for the demo without loudspeakers)
+    bool drone_heard() const {
+        return drone_heard_;
+    }  // an output stream plays it (false for the demo without loudspeakers)
     // The drone sounds where the performer is: on, and played by an output
     // stream (or, in simulated time, rendered into the demo's simulated room).
     bool drone_sounding() const { return drone_on_ && (drone_heard_ || options_.simulated); }
-    void set_drone_on(bool on);                      // refused with a message before the caution is acknowledged
+    void set_drone_on(bool on);  // refused with a message before the caution is acknowledged
     void toggle_drone() { set_drone_on(!drone_on_); }
-    void set_drone_level(double level_dbfs);         // clamped to -80 .. -6 dBFS
+    void set_drone_level(double level_dbfs);  // clamped to -80 .. -6 dBFS
     void set_timbre(audio::Timbre t);
     void set_fifth(bool on);
     void set_octave(bool on);
-    void step_root(int semitones);                   // note roots move by note, Hz roots by 2^(n/12)
-    bool set_root_text(const std::string& text);     // "D3" or "146.8"; false (and a message) when not a frequency
+    void step_root(int semitones);                       // note roots move by note, Hz roots by 2^(n/12)
+    bool set_root_text(const std::string& text);         // "D3" or "146.8"; false (and a message) when not a frequency
     double root_hz() const { return engine_root_hz(); }  // the drill's root while one runs
-    void sound_reference();                          // the reference voice sounds the current target
+    void sound_reference();                              // the reference voice sounds the current target
 
     // --- Targets ---------------------------------------------------------------------
     const pitch::TargetSet& targets() const { return set_; }
-    bool set_target_set(const std::string& name);    // false (and a message) when it cannot be loaded
+    bool set_target_set(const std::string& name);  // false (and a message) when it cannot be loaded
     void set_choice(TargetChoice c);
-    void step_target(int by);                        // fixes the target and moves by `by` in the set
-    int fixed_index() const { return fixed_index_; } // the fixed target's index in targets()
+    void step_target(int by);                         // fixes the target and moves by `by` in the set
+    int fixed_index() const { return fixed_index_; }  // the fixed target's index in targets()
     // The full set's index of a reading's target (fixed mode maps the engine's one-target set back).
     int target_index_of(const pitch::Reading& r) const;
     std::string target_ratio_text(const pitch::Reading& r) const;  // "7/5", or "14/5" an octave up
@@ -155,13 +157,17 @@ public:
     // --- Readings ----------------------------------------------------------------------
     const TraceStore& trace() const { return trace_; }
     const Verdict& verdict() const { return verdict_.verdict(); }  // the screen's one verdict (ui/session/verdict.h)
-    const pitch::Reading& current() const { return verdict_.verdict().reading; }  // the verdict's reading (see has_current)
-    bool has_current() const { return verdict_.verdict().current(); }  // the verdict is current (not silent, not unsure)
+    const pitch::Reading& current() const {
+        return verdict_.verdict().reading;
+    }  // the verdict's reading (see has_current)
+    bool has_current() const {
+        return verdict_.verdict().current();
+    }  // the verdict is current (not silent, not unsure)
     bool clip_warning() const { return app_time_s_ - last_clip_s_ < 2.0; }
-    double level_dbfs() const { return level_dbfs_; }            // newest frame's input level
+    double level_dbfs() const { return level_dbfs_; }  // newest frame's input level
     const BeatPulse& pulse() const { return pulse_; }
     audio::EngineStatus status() const;
-    audio::DroneSettings drone_sent() const;   // what the engine's drone was last given (defaults without an engine)
+    audio::DroneSettings drone_sent() const;  // what the engine's drone was last given (defaults without an engine)
     bool engine_running() const { return engine_ != nullptr; }
     double stream_time_s() const;
 
@@ -181,19 +187,19 @@ public:
     bool sing_script(std::vector<audio::DemoNote> notes);
 
     // --- Messages ------------------------------------------------------------------------
-    void post(const std::string& text, bool warning = false);   // also printed to stderr
+    void post(const std::string& text, bool warning = false);  // also printed to stderr
     const std::deque<Message>& messages() const { return messages_; }
 
 private:
     void open_engine();
     void close_engine();
-    pitch::TargetSet engine_targets() const;   // the set, or the fixed target alone
+    pitch::TargetSet engine_targets() const;  // the set, or the fixed target alone
     const pitch::TargetSet& reading_set() const;
     pitch::ReadingConfig reading_config() const;
     audio::DroneSettings drone_settings(double level_dbfs) const;
     void apply_readings();
     void apply_drone();
-    void changed();                            // settings changed: save soon
+    void changed();  // settings changed: save soon
     void pump_simulation(double dt_s);
     void take(const pitch::Reading& r);
     void recompute_root();
@@ -226,11 +232,11 @@ private:
     std::optional<pitch::TargetSet> drill_targets_;
     bool drone_on_before_drill_ = false;
     std::vector<audio::DemoNote> demo_script_;
-    std::optional<audio::EnsembleSetup> group_;        // the engine follows a group (Ensemble screen)
+    std::optional<audio::EnsembleSetup> group_;  // the engine follows a group (Ensemble screen)
 
     bool drone_on_ = false;
     bool drone_heard_ = false;
-    double fade_s_ = 0.0;         // time since the drone started (fade-in while < kDroneFadeInS)
+    double fade_s_ = 0.0;  // time since the drone started (fade-in while < kDroneFadeInS)
     double supervise_s_ = 0.0;
     bool dirty_ = false;
     double dirty_since_s_ = 0.0;

@@ -17,7 +17,8 @@ double cue_beat_hz(const pitch::Reading& r) noexcept {
 }
 
 bool heard_pair_differs(const pitch::Reading& r) noexcept {
-    return r.heard_partial_root > 0 && (r.heard_partial_root != r.beat_partial_root || r.heard_partial_voice != r.beat_partial_voice);
+    return r.heard_partial_root > 0 &&
+           (r.heard_partial_root != r.beat_partial_root || r.heard_partial_voice != r.beat_partial_voice);
 }
 
 void BeatPulse::update(double beat_hz, double dt_s) noexcept {

@@ -4,8 +4,8 @@
 // Thread: the screens' thread. Allocates: no (the history is sized once).
 #pragma once
 
-#include "pitch/theory/beats.h"
 #include "pitch/measure/reading.h"
+#include "pitch/theory/beats.h"
 
 #include <array>
 #include <cstddef>
@@ -28,7 +28,7 @@ public:
 
     pitch::BeatBand band() const noexcept { return band_; }
     double beat_hz() const noexcept { return beat_hz_; }
-    double phase() const noexcept { return phase_; }   // beats elapsed, fractional part 0 .. 1
+    double phase() const noexcept { return phase_; }  // beats elapsed, fractional part 0 .. 1
     // The normalised envelope |cos(pi phase)| (0 .. 1) ago_s before now, or
     // a negative value where no beat was known then (or beyond the history).
     double envelope_ago(double ago_s) const noexcept;
@@ -56,7 +56,7 @@ private:
     double phase_between(std::size_t k, double t) const noexcept;  // sample k (newest first) at or before t
     pitch::BeatBand band_ = pitch::BeatBand::none;
     double beat_hz_ = 0.0;
-    double phase_ = 0.0;     // accumulated, unbounded (kept small by subtracting whole beats in step)
+    double phase_ = 0.0;  // accumulated, unbounded (kept small by subtracting whole beats in step)
     double time_s_ = 0.0;
     std::array<Sample, kHistory> hist_{};
     std::size_t head_ = 0, size_ = 0;

@@ -1,8 +1,8 @@
 #include "ui/session/chord_files.h"
 
 #include "pitch/base/error.h"
-#include "pitch/theory/ratio.h"
 #include "pitch/base/text.h"
+#include "pitch/theory/ratio.h"
 #include "ui/session/toml_reader.h"
 
 #include <cctype>
@@ -32,7 +32,9 @@ ChordFile from_doc(const TomlDoc& doc) {
     }
     if (const auto v = doc.table["voices"]) {
         const toml::array* a = v.as_array();
-        if (!a) throw Error(where(doc, v) + "`voices`: must be a list of part names, such as [\"bass\", \"tenor\", \"alto\"]");
+        if (!a)
+            throw Error(where(doc, v) +
+                        "`voices`: must be a list of part names, such as [\"bass\", \"tenor\", \"alto\"]");
         for (const auto& n : *a) {
             const auto s = n.value<std::string>();
             if (!s) throw Error(where(doc, n) + "`voices`: each entry must be a string, not " + describe_type(n));

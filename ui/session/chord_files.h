@@ -18,10 +18,10 @@
 namespace beatless::ui {
 
 struct ChordFile {
-    std::string id;                        // file stem; empty for a chord typed as text
-    std::string title;                     // empty for a chord typed as text
+    std::string id;     // file stem; empty for a chord typed as text
+    std::string title;  // empty for a chord typed as text
     std::string about;
-    std::string text;                      // the chord as written ("4:5:6:7")
+    std::string text;  // the chord as written ("4:5:6:7")
     pitch::Chord chord;
     std::vector<std::string> voice_names;  // empty, or one per voice
 };

@@ -1,10 +1,10 @@
 #include "ui/session/drill_files.h"
 
 #include "pitch/base/error.h"
-#include "pitch/theory/notes.h"
-#include "ui/session/rng.h"
 #include "pitch/base/text.h"
+#include "pitch/theory/notes.h"
 #include "ui/session/json.h"
+#include "ui/session/rng.h"
 #include "ui/session/target_files.h"
 #include "ui/session/toml_reader.h"
 
@@ -27,27 +27,34 @@ std::string range_text(double lo, double hi) {
     return s;
 }
 
-double number_in(const TomlDoc& doc, const toml::table& t, std::string_view key, double fallback, double lo, double hi) {
+double number_in(const TomlDoc& doc, const toml::table& t, std::string_view key, double fallback, double lo,
+                 double hi) {
     const double v = optional_number(doc, t, key, fallback);
     if (!(v >= lo && v <= hi))
-        throw Error(where(doc, t[key]) + "`" + std::string(key) + "`: " + pitch::format_trimmed(v, 4) + " is out of range " + range_text(lo, hi));
+        throw Error(where(doc, t[key]) + "`" + std::string(key) + "`: " + pitch::format_trimmed(v, 4) +
+                    " is out of range " + range_text(lo, hi));
     return v;
 }
 
 int int_in(const TomlDoc& doc, const toml::table& t, std::string_view key, int fallback, int lo, int hi) {
     const auto v = t[key];
     if (!v) return fallback;
-    if (!v.is_integer()) throw Error(where(doc, v) + "`" + std::string(key) + "`: must be a whole number, not " + describe_type(*v.node()));
+    if (!v.is_integer())
+        throw Error(where(doc, v) + "`" + std::string(key) + "`: must be a whole number, not " +
+                    describe_type(*v.node()));
     const std::int64_t n = *v.value<std::int64_t>();
     if (n < lo || n > hi)
-        throw Error(where(doc, v) + "`" + std::string(key) + "`: " + std::to_string(n) + " is out of range " + range_text(lo, hi));
+        throw Error(where(doc, v) + "`" + std::string(key) + "`: " + std::to_string(n) + " is out of range " +
+                    range_text(lo, hi));
     return static_cast<int>(n);
 }
 
 bool optional_bool(const TomlDoc& doc, const toml::table& t, std::string_view key, bool fallback) {
     const auto v = t[key];
     if (!v) return fallback;
-    if (!v.is_boolean()) throw Error(where(doc, v) + "`" + std::string(key) + "`: must be true or false, not " + describe_type(*v.node()));
+    if (!v.is_boolean())
+        throw Error(where(doc, v) + "`" + std::string(key) + "`: must be true or false, not " +
+                    describe_type(*v.node()));
     return *v.value<bool>();
 }
 
@@ -68,7 +75,9 @@ E choice(const TomlDoc& doc, const toml::table& t, std::string_view key, E fallb
 const toml::table* sub_table(const TomlDoc& doc, const toml::table& t, std::string_view key) {
     const auto v = t[key];
     if (!v) return nullptr;
-    if (!v.is_table()) throw Error(where(doc, v) + "`" + std::string(key) + "`: must be a table [" + std::string(key) + "], not " + describe_type(*v.node()));
+    if (!v.is_table())
+        throw Error(where(doc, v) + "`" + std::string(key) + "`: must be a table [" + std::string(key) + "], not " +
+                    describe_type(*v.node()));
     return v.as_table();
 }
 
@@ -79,8 +88,10 @@ DroneSettings parse_drone(const TomlDoc& doc, const toml::table* t) {
     if (!t) return d;
     check_keys(doc, *t, {"root", "level_dbfs", "partials", "fifth"}, "[drone]");
     if (const auto r = (*t)["root"]) {
-        if (r.is_number()) d.root_text = pitch::format_trimmed(*r.value<double>(), 6);
-        else d.root_text = optional_string(doc, *t, "root");
+        if (r.is_number())
+            d.root_text = pitch::format_trimmed(*r.value<double>(), 6);
+        else
+            d.root_text = optional_string(doc, *t, "root");
         try {
             d.root_hz = pitch::parse_root(d.root_text);
         } catch (const Error& e) {
@@ -97,11 +108,12 @@ ui::StaircaseConfig parse_staircase(const TomlDoc& doc, const toml::table* t) {
     ui::StaircaseConfig c;
     if (!t) return c;
     check_keys(doc, *t,
-              {"rule", "scale", "start_cents", "steps", "min_cents", "max_cents", "stop_reversals", "threshold_reversals",
-               "max_trials", "floor_run"},
-              "[staircase]");
+               {"rule", "scale", "start_cents", "steps", "min_cents", "max_cents", "stop_reversals",
+                "threshold_reversals", "max_trials", "floor_run"},
+               "[staircase]");
     c.n_down = choice(doc, *t, "rule", 2, {{"2-down", 2}, {"3-down", 3}});
-    c.scale = choice(doc, *t, "scale", c.scale, {{"geometric", ui::StepScale::geometric}, {"linear", ui::StepScale::linear}});
+    c.scale =
+        choice(doc, *t, "scale", c.scale, {{"geometric", ui::StepScale::geometric}, {"linear", ui::StepScale::linear}});
     c.start_level = number_in(doc, *t, "start_cents", c.start_level, 0.1, 1200.0);
     c.min_level = number_in(doc, *t, "min_cents", c.min_level, 0.01, 1200.0);
     c.max_level = number_in(doc, *t, "max_cents", c.max_level, 0.01, 2400.0);
@@ -130,7 +142,8 @@ std::vector<DrillTarget> parse_targets(const TomlDoc& doc, const toml::table& to
     std::vector<DrillTarget> out;
     const auto set_name = top["target_set"];
     const auto list = top["target"];
-    if (set_name && list) throw Error(where(doc, set_name) + "`target_set`: give either target_set or [[target]] entries, not both");
+    if (set_name && list)
+        throw Error(where(doc, set_name) + "`target_set`: give either target_set or [[target]] entries, not both");
     if (set_name) {
         const std::string name = optional_string(doc, top, "target_set");
         try {
@@ -140,11 +153,16 @@ std::vector<DrillTarget> parse_targets(const TomlDoc& doc, const toml::table& to
         }
         return out;
     }
-    if (!list) throw Error(doc.source + ": `[[target]]`: required table missing: add [[target]] entries with interval = \"7/5\", or target_set = \"tritones\"");
+    if (!list)
+        throw Error(doc.source +
+                    ": `[[target]]`: required table missing: add [[target]] entries with interval = \"7/5\", or "
+                    "target_set = \"tritones\"");
     for (const auto& e : require_array_of_tables(doc, top, "target")) {
         const toml::table& t = *e.as_table();
-        if (hold) check_keys(doc, t, {"interval", "name", "hold_s"}, "[[target]]");
-        else check_keys(doc, t, {"interval", "name"}, "[[target]] of an ear drill");
+        if (hold)
+            check_keys(doc, t, {"interval", "name", "hold_s"}, "[[target]]");
+        else
+            check_keys(doc, t, {"interval", "name"}, "[[target]] of an ear drill");
         DrillTarget d;
         const std::string text = require_string(doc, t, "interval");
         try {
@@ -179,17 +197,20 @@ Drill parse_doc(const TomlDoc& doc) {
     const bool hold = d.mode == DrillMode::hold;
     if (hold)
         check_keys(doc, top,
-                  {"kind", "title", "about", "mode", "drone", "target", "target_set", "repetitions", "order", "hold_s",
-                   "lead_in_s", "rest_s", "tolerance_cents", "dwell_s", "sound_target"},
-                  "a hold drill");
+                   {"kind", "title", "about", "mode", "drone", "target", "target_set", "repetitions", "order", "hold_s",
+                    "lead_in_s", "rest_s", "tolerance_cents", "dwell_s", "sound_target"},
+                   "a hold drill");
     else
-        check_keys(doc, top, {"kind", "title", "about", "mode", "drone", "target", "target_set", "task", "tone_s", "staircase", "rounds"},
-                  "an ear drill");
+        check_keys(doc, top,
+                   {"kind", "title", "about", "mode", "drone", "target", "target_set", "task", "tone_s", "staircase",
+                    "rounds"},
+                   "an ear drill");
     d.drone = parse_drone(doc, sub_table(doc, top, "drone"));
     d.targets = parse_targets(doc, top, hold);
     if (hold) {
         d.repetitions = int_in(doc, top, "repetitions", d.repetitions, 1, 50);
-        d.order = choice(doc, top, "order", d.order, {{"sequence", TargetOrder::sequence}, {"shuffle", TargetOrder::shuffle}});
+        d.order = choice(doc, top, "order", d.order,
+                         {{"sequence", TargetOrder::sequence}, {"shuffle", TargetOrder::shuffle}});
         d.hold_s = number_in(doc, top, "hold_s", d.hold_s, 0.5, 120.0);
         d.lead_in_s = number_in(doc, top, "lead_in_s", d.lead_in_s, 0.0, 30.0);
         d.rest_s = number_in(doc, top, "rest_s", d.rest_s, 0.0, 30.0);
@@ -203,7 +224,8 @@ Drill parse_doc(const TomlDoc& doc) {
                             t.target.interval.str() + ")");
     } else {
         if (!top["task"]) throw Error(doc.source + ": `task`: required key missing (\"discriminate\" or \"identify\")");
-        d.task = choice(doc, top, "task", d.task, {{"discriminate", ui::EarTask::discriminate}, {"identify", ui::EarTask::identify}});
+        d.task = choice(doc, top, "task", d.task,
+                        {{"discriminate", ui::EarTask::discriminate}, {"identify", ui::EarTask::identify}});
         d.tone_s = number_in(doc, top, "tone_s", d.tone_s, 0.3, 10.0);
         if (d.task == ui::EarTask::discriminate) {
             if (top["rounds"]) throw Error(where(doc, top["rounds"]) + "`rounds`: only for task = \"identify\"");
@@ -212,7 +234,8 @@ Drill parse_doc(const TomlDoc& doc) {
                             std::to_string(d.targets.size()) + " are given");
             d.staircase = parse_staircase(doc, sub_table(doc, top, "staircase"));
         } else {
-            if (top["staircase"]) throw Error(where(doc, top["staircase"]) + "`staircase`: only for task = \"discriminate\"");
+            if (top["staircase"])
+                throw Error(where(doc, top["staircase"]) + "`staircase`: only for task = \"discriminate\"");
             d.rounds = int_in(doc, top, "rounds", d.rounds, 1, 50);
         }
         try {
@@ -286,15 +309,26 @@ std::string drill_settings_json(const Drill& d) {
     j.key("mode").value(d.mode == DrillMode::hold ? "hold" : "ear");
     j.key("drone").begin_object();
     j.key("root").value(d.drone.root_text).key("root_hz").value(d.drone.root_hz, 4);
-    j.key("level_dbfs").value(d.drone.level_dbfs, 2).key("partials").value(d.drone.partials).key("fifth").value(d.drone.fifth);
+    j.key("level_dbfs")
+        .value(d.drone.level_dbfs, 2)
+        .key("partials")
+        .value(d.drone.partials)
+        .key("fifth")
+        .value(d.drone.fifth);
     j.end_object();
     if (d.mode == DrillMode::hold) {
         j.key("hold_s").value(d.hold_s, 3).key("lead_in_s").value(d.lead_in_s, 3).key("rest_s").value(d.rest_s, 3);
         j.key("tolerance_cents").value(d.tolerance_cents, 3).key("dwell_s").value(d.dwell_s, 3);
-        j.key("repetitions").value(d.repetitions).key("order").value(d.order == TargetOrder::shuffle ? "shuffle" : "sequence");
+        j.key("repetitions")
+            .value(d.repetitions)
+            .key("order")
+            .value(d.order == TargetOrder::shuffle ? "shuffle" : "sequence");
         j.key("sound_target").value(d.sound_target);
     } else {
-        j.key("task").value(d.task == ui::EarTask::discriminate ? "discriminate" : "identify").key("tone_s").value(d.tone_s, 3);
+        j.key("task")
+            .value(d.task == ui::EarTask::discriminate ? "discriminate" : "identify")
+            .key("tone_s")
+            .value(d.tone_s, 3);
         if (d.task == ui::EarTask::identify) j.key("rounds").value(d.rounds);
     }
     if (d.mode == DrillMode::ear && d.task == ui::EarTask::discriminate) {

@@ -25,11 +25,11 @@
 // Errors name the file, line and key: "my-drill.toml:7: `hold_s`: 0 is out of range (0.5 to 120)".
 #pragma once
 
+#include "pitch/theory/targets.h"
 #include "ui/session/drill_score.h"
 #include "ui/session/ear_question.h"
 #include "ui/session/staircase.h"
 #include "ui/session/threshold_fit.h"
-#include "pitch/theory/targets.h"
 
 #include <cmath>
 #include <cstdint>
@@ -52,30 +52,30 @@ struct DroneSettings {
 
 struct DrillTarget {
     pitch::Target target;
-    double hold_s = NAN;           // this target's hold; NaN: the drill's hold_s
+    double hold_s = NAN;  // this target's hold; NaN: the drill's hold_s
 };
 
 struct Drill {
-    std::string id;                // file stem: "hold-tritones"
+    std::string id;  // file stem: "hold-tritones"
     std::string title;
     std::string about;
     DrillMode mode = DrillMode::hold;
     DroneSettings drone;
     std::vector<DrillTarget> targets;
-    int repetitions = 1;           // rounds through the targets; default 1
+    int repetitions = 1;  // rounds through the targets; default 1
     TargetOrder order = TargetOrder::sequence;
     // Hold drills
-    double hold_s = 4.0;           // default 4
-    double lead_in_s = 2.0;        // drone alone before each hold; default 2
-    double rest_s = 1.0;           // silence between holds; default 1
-    double tolerance_cents = 10.0; // default 10
-    double dwell_s = 0.3;          // default 0.3
-    bool sound_target = false;     // play the target tone before the hold; default false
+    double hold_s = 4.0;            // default 4
+    double lead_in_s = 2.0;         // drone alone before each hold; default 2
+    double rest_s = 1.0;            // silence between holds; default 1
+    double tolerance_cents = 10.0;  // default 10
+    double dwell_s = 0.3;           // default 0.3
+    bool sound_target = false;      // play the target tone before the hold; default false
     // Ear drills
     ui::EarTask task = ui::EarTask::discriminate;
-    double tone_s = 2.0;           // each tone's length; default 2
-    ui::StaircaseConfig staircase; // discriminate
-    int rounds = 8;                // identify: times each interval is asked; default 8
+    double tone_s = 2.0;            // each tone's length; default 2
+    ui::StaircaseConfig staircase;  // discriminate
+    int rounds = 8;                 // identify: times each interval is asked; default 8
 
     // Hold: the targets in performing order, repetitions rounds, each round
     // shuffled with the seed when order = "shuffle".
@@ -84,7 +84,7 @@ struct Drill {
     // Score settings for one hold that starts at hold_start_s.
     ui::HoldScoreConfig score_config(const DrillTarget& t, double hold_start_s, double hop_s) const;
     std::vector<double> target_cents() const;
-    std::string targets_text() const;   // "11/8 7/5 45/32 600c 10/7"
+    std::string targets_text() const;  // "11/8 7/5 45/32 600c 10/7"
     // discriminate: the fit for this drill's answers (its rule's point, its levels' range).
     ui::FitConfig fit_config() const;
 };

@@ -47,19 +47,24 @@ DrillProgress read_drill_progress(const std::string& log_path, const Drill& dril
                 if (e.period == "all") continue;
                 const long day = day_number(e.period);
                 if (!e.discriminate) {
-                    if (e.answers > 0) ps.points.push_back({day, static_cast<double>(e.right) / static_cast<double>(e.answers), NAN, NAN, false});
+                    if (e.answers > 0)
+                        ps.points.push_back(
+                            {day, static_cast<double>(e.right) / static_cast<double>(e.answers), NAN, NAN, false});
                     continue;
                 }
                 if (e.estimate.verdict == ui::ThresholdVerdict::measured)
-                    ps.points.push_back({day, e.estimate.threshold_cents, e.estimate.lo_cents, e.estimate.hi_cents, false});
+                    ps.points.push_back(
+                        {day, e.estimate.threshold_cents, e.estimate.lo_cents, e.estimate.hi_cents, false});
                 else if (e.estimate.verdict == ui::ThresholdVerdict::finer)
                     ps.points.push_back({day, e.estimate.smallest_cents, NAN, NAN, true});
                 else
                     ++ps.no_threshold_days;
             }
             ps.attempts = log.count(f);
-            if (ps.points.empty() && ps.no_threshold_days == 0) out.note = "No attempts of this drill in the practice log yet.";
-            else out.series.push_back(std::move(ps));
+            if (ps.points.empty() && ps.no_threshold_days == 0)
+                out.note = "No attempts of this drill in the practice log yet.";
+            else
+                out.series.push_back(std::move(ps));
             return out;
         }
         HistoryOptions ho;

@@ -18,24 +18,24 @@
 namespace beatless::ui {
 
 struct ProgressPoint {
-    long day = 0;          // days since 1970-01-01, UTC
-    double value = NAN;    // hold: mean deviation, cents; discriminate: threshold, cents; identify: share right 0..1
-    double lo = NAN;       // discriminate: the interval (lo may be 0: not bounded below)
+    long day = 0;        // days since 1970-01-01, UTC
+    double value = NAN;  // hold: mean deviation, cents; discriminate: threshold, cents; identify: share right 0..1
+    double lo = NAN;     // discriminate: the interval (lo may be 0: not bounded below)
     double hi = NAN;
-    bool finer = false;    // discriminate: finer than value (the smallest level played)
+    bool finer = false;  // discriminate: finer than value (the smallest level played)
 };
 
 struct DrillProgressSeries {
-    std::string key;                              // "7/5", or the drill id (ear)
+    std::string key;  // "7/5", or the drill id (ear)
     std::string name;
-    std::vector<ProgressPoint> points;            // in day order
+    std::vector<ProgressPoint> points;  // in day order
     std::int64_t attempts = 0;
-    std::int64_t no_threshold_days = 0;           // discriminate: days whose answers gave no reliable threshold
+    std::int64_t no_threshold_days = 0;  // discriminate: days whose answers gave no reliable threshold
 };
 
 struct DrillProgress {
     std::vector<DrillProgressSeries> series;
-    std::string note;                             // why there is nothing to plot, or empty
+    std::string note;  // why there is nothing to plot, or empty
 };
 
 // Reads the drill's history from the log at log_path (read-only; empty path:

@@ -82,9 +82,13 @@ double DrillRunner::time_left_s(double now_s) const {
     return std::max(0.0, phase_end_s_ - now_s);
 }
 
-const DrillTarget* DrillRunner::current_target() const { return index_ < sequence_.size() ? &sequence_[index_] : nullptr; }
+const DrillTarget* DrillRunner::current_target() const {
+    return index_ < sequence_.size() ? &sequence_[index_] : nullptr;
+}
 
-bool DrillRunner::done() const { return (phase_ == DrillPhase::finished || phase_ == DrillPhase::stopped) && !collecting_; }
+bool DrillRunner::done() const {
+    return (phase_ == DrillPhase::finished || phase_ == DrillPhase::stopped) && !collecting_;
+}
 
 // ---------------------------------------------------------------------------
 // [SECTION] Control
@@ -152,8 +156,10 @@ void DrillRunner::advance(double now_s) {
         const double at = phase_end_s_;
         switch (phase_) {
             case DrillPhase::ready:
-                if (drill_.mode == DrillMode::hold) begin_hold_step(at);
-                else next_question(at);
+                if (drill_.mode == DrillMode::hold)
+                    begin_hold_step(at);
+                else
+                    next_question(at);
                 break;
             case DrillPhase::announce:
                 enter(DrillPhase::count_in, at, phase_len_s(DrillPhase::count_in, index_));
@@ -170,24 +176,23 @@ void DrillRunner::advance(double now_s) {
                 enter(DrillPhase::hold, at, len);
                 break;
             }
-            case DrillPhase::hold:
-                enter(DrillPhase::rest, at, phase_len_s(DrillPhase::rest, index_));
-                break;
+            case DrillPhase::hold: enter(DrillPhase::rest, at, phase_len_s(DrillPhase::rest, index_)); break;
             case DrillPhase::rest:
                 ++index_;
-                if (index_ >= sequence_.size()) enter(DrillPhase::finished, at, 0.0);
-                else begin_hold_step(at);
+                if (index_ >= sequence_.size())
+                    enter(DrillPhase::finished, at, 0.0);
+                else
+                    begin_hold_step(at);
                 break;
-            case DrillPhase::ear_play:
-                enter(DrillPhase::ear_answer, at, INFINITY);
-                break;
+            case DrillPhase::ear_play: enter(DrillPhase::ear_answer, at, INFINITY); break;
             case DrillPhase::ear_feedback:
-                if (drill_.task == ui::EarTask::discriminate ? staircase_->done() : questioner_->asked() >= questioner_->total())
+                if (drill_.task == ui::EarTask::discriminate ? staircase_->done()
+                                                             : questioner_->asked() >= questioner_->total())
                     finish_ear(at, true);
-                else next_question(at);
+                else
+                    next_question(at);
                 break;
-            default:
-                break;
+            default: break;
         }
     }
     // Tones that fell due while walking the phases.
@@ -289,7 +294,8 @@ void DrillRunner::next_question(double at_s) {
 }
 
 bool DrillRunner::answer_open(double now_s) const {
-    return has_question_ && (phase_ == DrillPhase::ear_answer || (phase_ == DrillPhase::ear_play && now_s >= last_tone_at_s_));
+    return has_question_ &&
+           (phase_ == DrillPhase::ear_answer || (phase_ == DrillPhase::ear_play && now_s >= last_tone_at_s_));
 }
 
 bool DrillRunner::answer(int choice, double now_s) {
@@ -352,7 +358,9 @@ void DrillRunner::finish_ear(double now_s, bool complete) {
     if (disc) {
         a.method = drill_.staircase.n_down == 3 ? "discriminate 3-down 1-up" : "discriminate 2-down 1-up";
         const ui::ThresholdEstimate& e = r.estimate;
-        a.estimate = e.verdict == ui::ThresholdVerdict::measured ? "measured" : e.verdict == ui::ThresholdVerdict::finer ? "finer" : "none";
+        a.estimate = e.verdict == ui::ThresholdVerdict::measured ? "measured"
+                     : e.verdict == ui::ThresholdVerdict::finer  ? "finer"
+                                                                 : "none";
         a.threshold_cents = e.threshold_cents;
         a.threshold_lo_cents = e.verdict == ui::ThresholdVerdict::finer ? 0.0 : e.lo_cents;
         a.threshold_hi_cents = e.verdict == ui::ThresholdVerdict::finer ? e.smallest_cents : e.hi_cents;
@@ -408,8 +416,11 @@ std::string keep_unsaved(const LogWriter& w, const std::string& warning) {
         written = false;
     }
     std::string line = warning.empty() ? std::to_string(w.pending()) + " attempts not saved" : warning;
-    if (written) line += "; written to " + csv.string() + " (add them later with beatless history --import " + csv.string() + ")";
-    else line += "; and " + csv.string() + " cannot be written either: the attempts above are all that is left";
+    if (written)
+        line +=
+            "; written to " + csv.string() + " (add them later with beatless history --import " + csv.string() + ")";
+    else
+        line += "; and " + csv.string() + " cannot be written either: the attempts above are all that is left";
     return line;
 }
 
@@ -436,7 +447,8 @@ std::string log_warning_line(const std::string& log_path, const SaveResult& r) {
     s += log_problem_words(*r.problem);
     s += "); ";
     s += std::to_string(r.pending);
-    s += r.pending == 1 ? " attempt kept and will be saved when possible" : " attempts kept and will be saved when possible";
+    s += r.pending == 1 ? " attempt kept and will be saved when possible"
+                        : " attempts kept and will be saved when possible";
     return s;
 }
 
@@ -456,7 +468,8 @@ std::string cents_words(double dev) {
 
 std::string within_words(double share, double tol) {
     char buf[64];
-    std::snprintf(buf, sizeof buf, "%ld %% within \xC2\xB1%s c", std::lround(100.0 * share), pitch::format_trimmed(tol, 1).c_str());
+    std::snprintf(buf, sizeof buf, "%ld %% within \xC2\xB1%s c", std::lround(100.0 * share),
+                  pitch::format_trimmed(tol, 1).c_str());
     return buf;
 }
 
@@ -483,7 +496,8 @@ std::string hold_summary_text(const ui::HoldScore& s, double tol) {
 std::string hold_spread_text(const ui::HoldScore& s) {
     if (!std::isfinite(s.spread_cents)) return {};
     char buf[48];
-    std::snprintf(buf, sizeof buf, "spread %ld c %s", std::lround(s.spread_cents), s.locked ? "while held" : "over the hold");
+    std::snprintf(buf, sizeof buf, "spread %ld c %s", std::lround(s.spread_cents),
+                  s.locked ? "while held" : "over the hold");
     return buf;
 }
 
@@ -492,7 +506,8 @@ std::string stop_rule_text(const ui::StaircaseConfig& c) {
     s += c.floor_run > 0 ? ", " : " or ";
     s += std::to_string(c.max_trials) + " answers";
     if (c.floor_run > 0)
-        s += ", or " + std::to_string(c.floor_run) + " right in a row at " + pitch::format_trimmed(c.min_level, 2) + " c";
+        s += ", or " + std::to_string(c.floor_run) + " right in a row at " + pitch::format_trimmed(c.min_level, 2) +
+             " c";
     return s;
 }
 
@@ -501,7 +516,8 @@ std::string stopped_by_text(ui::StopReason why, const ui::StaircaseConfig& c) {
         case ui::StopReason::reversals: return "after " + std::to_string(c.stop_reversals) + " reversals";
         case ui::StopReason::max_trials: return "after " + std::to_string(c.max_trials) + " answers";
         case ui::StopReason::floor_run:
-            return "after " + std::to_string(c.floor_run) + " right in a row at " + pitch::format_trimmed(c.min_level, 2) + " c";
+            return "after " + std::to_string(c.floor_run) + " right in a row at " +
+                   pitch::format_trimmed(c.min_level, 2) + " c";
         case ui::StopReason::running: break;
     }
     return "stopped early";
@@ -509,12 +525,13 @@ std::string stopped_by_text(ui::StopReason why, const ui::StaircaseConfig& c) {
 
 std::string method_text(const Drill& d) {
     if (d.task == ui::EarTask::identify)
-        return "each interval asked " + std::to_string(d.rounds) + " times in shuffled rounds; share right per pair from the confusion matrix";
+        return "each interval asked " + std::to_string(d.rounds) +
+               " times in shuffled rounds; share right per pair from the confusion matrix";
     const ui::FitConfig f = d.fit_config();
     char pct[16];
     std::snprintf(pct, sizeof pct, "%.1f", 100.0 * f.threshold_p);
-    return std::to_string(d.staircase.n_down) + "-down 1-up staircase (Levitt 1971, the " + pct +
-           " % point), " + stop_rule_text(d.staircase) + "; threshold fitted to every answer (Weibull, slope " +
+    return std::to_string(d.staircase.n_down) + "-down 1-up staircase (Levitt 1971, the " + pct + " % point), " +
+           stop_rule_text(d.staircase) + "; threshold fitted to every answer (Weibull, slope " +
            pitch::format_trimmed(f.slope, 2) + ", lapse " + pitch::format_trimmed(100.0 * f.lapse, 1) +
            " %; Wichmann & Hill 2001), 95 % interval from the likelihood, its cut calibrated by simulation";
 }
@@ -558,7 +575,10 @@ audio::DroneSettings drill_drone(const Drill& d, double max_level_dbfs) {
     s.fifth = d.drone.fifth;
     s.level_dbfs = std::min(d.drone.level_dbfs, max_level_dbfs);
     const int n = d.drone.partials;
-    s.timbre = n <= 1 ? audio::Timbre::pure : n <= 6 ? audio::Timbre::soft : n <= 12 ? audio::Timbre::round : audio::Timbre::bright;
+    s.timbre = n <= 1    ? audio::Timbre::pure
+               : n <= 6  ? audio::Timbre::soft
+               : n <= 12 ? audio::Timbre::round
+                         : audio::Timbre::bright;
     return s;
 }
 

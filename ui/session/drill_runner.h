@@ -41,14 +41,14 @@
 
 #include "audio/demo_performer.h"
 #include "audio/drone.h"
-#include "ui/session/drill_score.h"
-#include "ui/session/ear_question.h"
 #include "pitch/measure/reading.h"
-#include "ui/session/staircase.h"
 #include "pitch/theory/targets.h"
 #include "ui/session/drill_files.h"
+#include "ui/session/drill_score.h"
+#include "ui/session/ear_question.h"
 #include "ui/session/log_writer.h"
 #include "ui/session/practice_log.h"
+#include "ui/session/staircase.h"
 
 #include <cmath>
 #include <cstdint>
@@ -59,25 +59,37 @@
 
 namespace beatless::ui {
 
-enum class DrillPhase { idle, ready, announce, count_in, hold, rest, ear_play, ear_answer, ear_feedback, finished, stopped };
+enum class DrillPhase {
+    idle,
+    ready,
+    announce,
+    count_in,
+    hold,
+    rest,
+    ear_play,
+    ear_answer,
+    ear_feedback,
+    finished,
+    stopped
+};
 std::string_view phase_name(DrillPhase p);  // "announce", "count-in", ...
 
 struct RunnerConfig {
-    double settle_s = 1.5;          // the drone alone before the first target or question; default 1.5
-    double announce_s = 1.5;        // the target shown before the count-in when no tone sounds; default 1.5
-    double tone_s = 1.5;            // sound_target: the target tone's length; default 1.5
-    double announce_gap_s = 0.5;    // sound_target: after the tone, before the count-in; default 0.5
-    double score_wait_s = 0.5;      // longest wait past a hold's end for its last readings; default 0.5
-    double hop_s = 0.005;           // time each reading stands for (the tracker's hop); default 5 ms
-    double ear_gap_s = 0.5;         // between the two tones of a two-interval question; default 0.5
-    double feedback_s = 1.2;        // right or wrong shown after an answer; default 1.2
-    std::uint64_t seed = 1;         // the shuffled order and the ear questions; default 1
-    std::string performer;          // who practises (the practice log's performer); default empty
+    double settle_s = 1.5;        // the drone alone before the first target or question; default 1.5
+    double announce_s = 1.5;      // the target shown before the count-in when no tone sounds; default 1.5
+    double tone_s = 1.5;          // sound_target: the target tone's length; default 1.5
+    double announce_gap_s = 0.5;  // sound_target: after the tone, before the count-in; default 0.5
+    double score_wait_s = 0.5;    // longest wait past a hold's end for its last readings; default 0.5
+    double hop_s = 0.005;         // time each reading stands for (the tracker's hop); default 5 ms
+    double ear_gap_s = 0.5;       // between the two tones of a two-interval question; default 0.5
+    double feedback_s = 1.2;      // right or wrong shown after an answer; default 1.2
+    std::uint64_t seed = 1;       // the shuffled order and the ear questions; default 1
+    std::string performer;        // who practises (the practice log's performer); default empty
     // What the score reads; default the vibrato centre where known (a singer with a
     // 5-7 Hz vibrato of tens of cents is in tune when its centre is), else the pitch.
     ui::DeviationSource deviation = ui::DeviationSource::centre_first;
-    double min_voiced_s = 0.04;     // shorter voiced stretches are tracker blips, scored as unvoiced; default 40 ms
-    std::size_t max_holds = 0;      // hold drills: stop after this many holds (0 = the whole sequence); default 0
+    double min_voiced_s = 0.04;  // shorter voiced stretches are tracker blips, scored as unvoiced; default 40 ms
+    std::size_t max_holds = 0;   // hold drills: stop after this many holds (0 = the whole sequence); default 0
 };
 
 // A tone to sound now with the reference voice.
@@ -88,26 +100,26 @@ struct ToneRequest {
 
 // A hold on the runner's clock (the demo performer sings these).
 struct PlannedHold {
-    std::size_t index = 0;          // in the run's sequence
-    double start_s = 0.0;           // from start()
+    std::size_t index = 0;  // in the run's sequence
+    double start_s = 0.0;   // from start()
     double dur_s = 0.0;
-    double target_cents = 0.0;      // above the root
+    double target_cents = 0.0;  // above the root
 };
 
 struct HoldResult {
-    std::size_t index = 0;          // in the run's sequence
+    std::size_t index = 0;  // in the run's sequence
     DrillTarget target;
     double tolerance_cents = 0.0;
-    double hold_start_s = 0.0;      // runner clock
+    double hold_start_s = 0.0;  // runner clock
     double hold_dur_s = 0.0;
     ui::HoldScore score;
-    std::vector<TraceRecord> trace; // t from the hold's start
+    std::vector<TraceRecord> trace;  // t from the hold's start
 };
 
 struct EarAnswer {
-    double t_s = 0.0;               // from the session's start
-    ui::EarQuestion question;       // what was asked and played (question.level_cents: the mistuning)
-    int answer = 0;                 // discriminate: position named pure (0, 1); identify: target named
+    double t_s = 0.0;          // from the session's start
+    ui::EarQuestion question;  // what was asked and played (question.level_cents: the mistuning)
+    int answer = 0;            // discriminate: position named pure (0, 1); identify: target named
     bool correct = false;
 };
 
@@ -116,11 +128,11 @@ struct EarResult {
     int trials = 0;
     double correct_share = NAN;
     double dur_s = 0.0;
-    bool complete = false;                    // the stopping rule was met (not stopped early)
-    ui::ThresholdEstimate estimate;           // discriminate: fitted to every answer
-    double reversal_mean_cents = NAN;         // discriminate: mean of the last reversals (Levitt's estimate), NaN if too few
+    bool complete = false;             // the stopping rule was met (not stopped early)
+    ui::ThresholdEstimate estimate;    // discriminate: fitted to every answer
+    double reversal_mean_cents = NAN;  // discriminate: mean of the last reversals (Levitt's estimate), NaN if too few
     ui::StopReason stopped_by = ui::StopReason::running;  // discriminate: which rule ended it (running: stopped early)
-    std::vector<std::vector<int>> confusion;  // identify: counts [played][named]
+    std::vector<std::vector<int>> confusion;              // identify: counts [played][named]
 };
 
 // The fitted threshold of a discrimination session's answers.
@@ -137,17 +149,19 @@ public:
     // last readings is scored with what arrived; an ear session with answers
     // is logged (its threshold NaN when too few reversals).
     void stop(double now_s);
-    void feed(const pitch::Reading& r);      // readings in time order
-    void advance(double now_s);              // phases, due tones, late scores
-    bool answer(int choice, double now_s);   // ear: position (discriminate) or target (identify); false when not open
-    std::vector<ToneRequest> take_tones();   // tones due since the last call
-    void retry_log();                        // writes what the log writer still keeps
+    void feed(const pitch::Reading& r);     // readings in time order
+    void advance(double now_s);             // phases, due tones, late scores
+    bool answer(int choice, double now_s);  // ear: position (discriminate) or target (identify); false when not open
+    std::vector<ToneRequest> take_tones();  // tones due since the last call
+    void retry_log();                       // writes what the log writer still keeps
 
     // --- State ----------------------------------------------------------------------
     const Drill& drill() const { return drill_; }
     DrillPhase phase() const { return phase_; }
-    bool running() const { return phase_ != DrillPhase::idle && phase_ != DrillPhase::finished && phase_ != DrillPhase::stopped; }
-    bool done() const;                       // finished or stopped, with nothing left to score
+    bool running() const {
+        return phase_ != DrillPhase::idle && phase_ != DrillPhase::finished && phase_ != DrillPhase::stopped;
+    }
+    bool done() const;  // finished or stopped, with nothing left to score
     double phase_start_s() const { return phase_start_s_; }
     double phase_end_s() const { return phase_end_s_; }  // INFINITY while an answer is awaited
     double time_left_s(double now_s) const;
@@ -155,8 +169,8 @@ public:
 
     // --- Hold drills ------------------------------------------------------------------
     std::size_t hold_count() const { return sequence_.size(); }
-    std::size_t hold_index() const { return index_; }          // current or next hold (hold_count() at the end)
-    const DrillTarget* current_target() const;                 // nullptr past the end
+    std::size_t hold_index() const { return index_; }  // current or next hold (hold_count() at the end)
+    const DrillTarget* current_target() const;         // nullptr past the end
     const DrillTarget& planned_target(std::size_t i) const { return sequence_[i]; }
     double target_cents(const DrillTarget& t) const { return t.target.interval.cents(); }
     std::vector<PlannedHold> planned_holds() const;
@@ -166,7 +180,9 @@ public:
     // --- Ear drills --------------------------------------------------------------------
     const ui::Staircase* staircase() const { return staircase_ ? &*staircase_ : nullptr; }
     const ui::EarQuestion* question() const { return has_question_ ? &question_ : nullptr; }
-    std::size_t questions_total() const { return questioner_ ? questioner_->total() : 0; }  // identify: all questions; else 0
+    std::size_t questions_total() const {
+        return questioner_ ? questioner_->total() : 0;
+    }  // identify: all questions; else 0
     bool answer_open(double now_s) const;
     const std::vector<EarAnswer>& answers() const { return answers_; }
     const std::optional<EarResult>& ear_result() const { return ear_result_; }
@@ -175,11 +191,11 @@ public:
     const SaveResult& last_save() const { return last_save_; }
     std::size_t attempts_made() const { return attempts_made_; }
     std::size_t unsaved() const { return log_ ? log_->pending() : 0; }
-    std::string log_warning() const;         // one line while attempts are kept in memory, else empty
+    std::string log_warning() const;  // one line while attempts are kept in memory, else empty
 
 private:
     void enter(DrillPhase p, double at_s, double len_s);
-    void begin_hold_step(double at_s);       // announce of hold index_
+    void begin_hold_step(double at_s);  // announce of hold index_
     void finish_hold_score();
     void next_question(double at_s);
     void finish_ear(double now_s, bool complete);
@@ -259,6 +275,7 @@ audio::DroneSettings drill_drone(const Drill& d, double max_level_dbfs = audio::
 pitch::TargetSet one_target_set(const DrillTarget& t);
 // The demo performer's notes for the run's holds: each starts reaction_s
 // after its hold and stops release_s before its end (times + offset_s).
-std::vector<audio::DemoNote> demo_script(const DrillRunner& r, double reaction_s = 0.3, double release_s = 0.1, double offset_s = 0.0);
+std::vector<audio::DemoNote> demo_script(const DrillRunner& r, double reaction_s = 0.3, double release_s = 0.1,
+                                         double offset_s = 0.0);
 
 }  // namespace beatless::ui

@@ -18,7 +18,8 @@ void check_config(const HoldScoreConfig& c) {
     auto bad = [](const char* what, double v) {
         return Error(std::string("hold score: ") + what + " " + format_trimmed(v, 6) + " is out of range");
     };
-    if (!(c.tolerance_cents > 0.0) || !std::isfinite(c.tolerance_cents)) throw bad("tolerance_cents", c.tolerance_cents);
+    if (!(c.tolerance_cents > 0.0) || !std::isfinite(c.tolerance_cents))
+        throw bad("tolerance_cents", c.tolerance_cents);
     if (!(c.dwell_s >= 0.0) || !std::isfinite(c.dwell_s)) throw bad("dwell_s", c.dwell_s);
     if (!(c.hop_s > 0.0) || !std::isfinite(c.hop_s)) throw bad("hop_s", c.hop_s);
     if (!(c.bridge_s >= 0.0) || !std::isfinite(c.bridge_s)) throw bad("bridge_s", c.bridge_s);

@@ -51,12 +51,12 @@ struct HoldPoint {
 };
 
 struct HoldScoreConfig {
-    double tolerance_cents = 10.0;   // half-width of the band around the target; default 10
-    double dwell_s = 0.3;            // time to stay in the band for a lock; default 0.3
-    double hold_start_s = 0.0;       // start of the hold window; default 0
-    double hold_dur_s = INFINITY;    // length of the window; default: to the last point's span end
-    double hop_s = 0.005;            // time each point stands for (the tracker's hop); default 0.005
-    double bridge_s = 0.05;          // unvoiced gaps up to this long keep a run going; default 0.05
+    double tolerance_cents = 10.0;  // half-width of the band around the target; default 10
+    double dwell_s = 0.3;           // time to stay in the band for a lock; default 0.3
+    double hold_start_s = 0.0;      // start of the hold window; default 0
+    double hold_dur_s = INFINITY;   // length of the window; default: to the last point's span end
+    double hop_s = 0.005;           // time each point stands for (the tracker's hop); default 0.005
+    double bridge_s = 0.05;         // unvoiced gaps up to this long keep a run going; default 0.05
 };
 
 struct HoldScore {
@@ -74,8 +74,8 @@ HoldScore score_hold(std::span<const HoldPoint> points, const HoldScoreConfig& c
 
 // Which deviation of a Reading the score uses.
 enum class DeviationSource {
-    instant,        // Reading::dev_cents
-    centre_first,   // Reading::centre_dev_cents (the vibrato centre) where known, else dev_cents
+    instant,       // Reading::dev_cents
+    centre_first,  // Reading::centre_dev_cents (the vibrato centre) where known, else dev_cents
 };
 
 // Converts readings to hold points; a reading is voiced when f0 > 0 and the

@@ -15,11 +15,15 @@ constexpr double kSameCents = 1e-6;  // intervals closer than this are the same 
 }  // namespace
 
 EarQuestioner::EarQuestioner(EarTask task, std::vector<double> target_cents, int rounds, std::uint64_t seed)
-    : task_(task), cents_(std::move(target_cents)), rounds_(static_cast<std::size_t>(rounds < 1 ? 1 : rounds)), rng_(seed) {
+    : task_(task),
+      cents_(std::move(target_cents)),
+      rounds_(static_cast<std::size_t>(rounds < 1 ? 1 : rounds)),
+      rng_(seed) {
     if (rounds < 1) throw Error("ear question: rounds " + std::to_string(rounds) + " must be at least 1");
     if (cents_.empty()) throw Error("ear question: needs an interval");
     for (std::size_t i = 0; i < cents_.size(); ++i)
-        if (!std::isfinite(cents_[i])) throw Error("ear question: interval " + std::to_string(i + 1) + " is not a finite interval");
+        if (!std::isfinite(cents_[i]))
+            throw Error("ear question: interval " + std::to_string(i + 1) + " is not a finite interval");
     if (task_ == EarTask::identify) {
         for (std::size_t i = 0; i < cents_.size(); ++i)
             for (std::size_t j = i + 1; j < cents_.size(); ++j)
@@ -72,7 +76,9 @@ std::vector<std::pair<std::size_t, std::size_t>> pairs_closest_first(const std::
     return pairs;
 }
 
-int pair_answers(const std::vector<std::vector<int>>& n, std::size_t i, std::size_t j) { return n[i][i] + n[j][j] + n[i][j] + n[j][i]; }
+int pair_answers(const std::vector<std::vector<int>>& n, std::size_t i, std::size_t j) {
+    return n[i][i] + n[j][j] + n[i][j] + n[j][i];
+}
 
 double pair_share_right(const std::vector<std::vector<int>>& n, std::size_t i, std::size_t j) {
     const double right = n[i][i] + n[j][j];

@@ -33,12 +33,12 @@ enum class EarTask {
 
 struct EarQuestion {
     EarTask task = EarTask::discriminate;
-    std::size_t target = 0;             // the interval played (index into the drill's targets)
-    double level_cents = 0.0;           // discriminate: the mistuning played, cents; identify: 0
-    int mistune_sign = 1;               // discriminate: +1 wider, -1 narrower
-    int tones = 1;                      // 2 for discriminate, 1 for identify
-    std::array<double, 2> tone_cents{}; // above the root, in playing order
-    int correct_answer = 0;             // discriminate: position of the pure one (0 or 1); identify: the target
+    std::size_t target = 0;              // the interval played (index into the drill's targets)
+    double level_cents = 0.0;            // discriminate: the mistuning played, cents; identify: 0
+    int mistune_sign = 1;                // discriminate: +1 wider, -1 narrower
+    int tones = 1;                       // 2 for discriminate, 1 for identify
+    std::array<double, 2> tone_cents{};  // above the root, in playing order
+    int correct_answer = 0;              // discriminate: position of the pure one (0 or 1); identify: the target
 };
 
 class EarQuestioner {
@@ -52,7 +52,9 @@ public:
     // deal (level ignored; after the last, a new round is dealt).
     EarQuestion next(double level_cents);
     EarTask task() const { return task_; }
-    std::size_t total() const { return task_ == EarTask::identify ? cents_.size() * rounds_ : 0; }  // identify: questions in all
+    std::size_t total() const {
+        return task_ == EarTask::identify ? cents_.size() * rounds_ : 0;
+    }  // identify: questions in all
     std::size_t asked() const { return asked_; }
 
 private:

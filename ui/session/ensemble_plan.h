@@ -5,8 +5,8 @@
 #pragma once
 
 #include "pitch/measure/ensemble_analyzer.h"
-#include "ui/session/usage_error.h"
 #include "ui/session/chord_files.h"
+#include "ui/session/usage_error.h"
 
 #include <string>
 #include <string_view>
@@ -15,9 +15,9 @@
 namespace beatless::ui {
 
 struct PlanLists {
-    std::string channels;   // "1,2,3,4" or empty
-    std::string names;      // "S,A,T,B" or empty
-    std::string voices;     // "4,3,2,1" or empty
+    std::string channels;  // "1,2,3,4" or empty
+    std::string names;     // "S,A,T,B" or empty
+    std::string voices;    // "4,3,2,1" or empty
 };
 
 // Lists are comma-separated; channels and voices count from 1 (voice 1 is the chord's lowest). Player k is on

@@ -2,8 +2,8 @@
 
 #include "audio/sound_system.h"
 #include "pitch/base/error.h"
-#include "pitch/theory/spelling.h"
 #include "pitch/base/text.h"
+#include "pitch/theory/spelling.h"
 #include "ui/session/ensemble_plan.h"
 
 #include <cctype>
@@ -15,8 +15,7 @@ namespace {
 constexpr double kSimRateHz = 48000.0;  // the demo ensemble's rate in simulated time
 }
 
-EnsembleSession::EnsembleSession()
-    : recent_(static_cast<std::size_t>(kRecentS / 0.005) + 8), take_buf_(128) {}
+EnsembleSession::EnsembleSession() : recent_(static_cast<std::size_t>(kRecentS / 0.005) + 8), take_buf_(128) {}
 
 EnsembleSession::~EnsembleSession() = default;
 
@@ -46,7 +45,8 @@ bool EnsembleSession::plan(AppState& app, const EnsembleSettings& e, bool quiet)
             std::vector<int> midi;
             for (const auto& v : chart.voices) midi.push_back(v.note.midi);
             const std::vector<std::string> names = pitch::spell_chord(pitch::parse_tonic(rt), midi);
-            for (std::size_t k = 0; k < names.size() && k < chart.voices.size(); ++k) chart.voices[k].note.name = names[k];
+            for (std::size_t k = 0; k < names.size() && k < chart.voices.size(); ++k)
+                chart.voices[k].note.name = names[k];
         }
         chord_ = std::move(c);
         players_ = std::move(ps);
@@ -86,13 +86,14 @@ void EnsembleSession::push_setup(AppState& app) { running_ = app.follow_group(se
 
 bool EnsembleSession::apply(AppState& app, const EnsembleSettings& e) {
     const EnsembleSettings& was = app.settings().ensemble;
-    const bool only_reference = e.chord == was.chord && e.channels == was.channels && e.names == was.names && e.voices == was.voices &&
-                                e.input_device == was.input_device;
+    const bool only_reference = e.chord == was.chord && e.channels == was.channels && e.names == was.names &&
+                                e.voices == was.voices && e.input_device == was.input_device;
     if (!only_reference) {
         const std::vector<pitch::Player> before = players_;
         if (!plan(app, e, false)) return false;
         bool same_channels = before.size() == players_.size() && e.input_device == was.input_device;
-        for (std::size_t i = 0; same_channels && i < before.size(); ++i) same_channels = before[i].channel == players_[i].channel;
+        for (std::size_t i = 0; same_channels && i < before.size(); ++i)
+            same_channels = before[i].channel == players_[i].channel;
         app.set_ensemble(e);
         if (running_ && same_channels) {
             push_setup(app);
@@ -148,9 +149,9 @@ void EnsembleSession::update(AppState& app, double dt_s) {
 // together share it); a player is named again only after they return.
 void EnsembleSession::warn_near(AppState& app, double dt_s) {
     const pitch::Chord& c = chord_.chord;
-    std::string who;   // "S near 7/4 (assigned 1/1), A near ..."
+    std::string who;  // "S near 7/4 (assigned 1/1), A near ..."
     int count = 0;
-    std::string one;   // the sentence for a single player
+    std::string one;  // the sentence for a single player
     for (std::size_t i = 0; i < players_.size() && i < pitch::kMaxPlayers; ++i) {
         const pitch::PlayerReading& p = current_.p[i];
         if (has_current_ && p.state == pitch::PlayerState::off_voice && p.near_voice >= 0) {

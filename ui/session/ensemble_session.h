@@ -27,15 +27,15 @@ public:
     EnsembleSession(const EnsembleSession&) = delete;
     EnsembleSession& operator=(const EnsembleSession&) = delete;
 
-    void update(AppState& app, double dt_s);   // has the app's engine follow the group on first use
-    void leave(AppState& app);                 // the app's engine follows one performer again
+    void update(AppState& app, double dt_s);  // has the app's engine follow the group on first use
+    void leave(AppState& app);                // the app's engine follows one performer again
 
     // Changes: saved through app.set_ensemble; false (and a message) when the
     // chord or the lists are not valid, and nothing changes.
     bool apply(AppState& app, const EnsembleSettings& e);
     void set_reference(AppState& app, pitch::ChordReference r);
 
-    bool ready() const { return have_plan_; }                 // a valid chord and players
+    bool ready() const { return have_plan_; }  // a valid chord and players
     const ChordFile& chord() const { return chord_; }
     const std::vector<pitch::Player>& players() const { return players_; }
     const pitch::ChordChart& chart() const { return chart_; }
@@ -44,9 +44,10 @@ public:
     const std::string& input_text() const { return input_text_; }
     audio::EngineStatus status() const { return status_; }
 
-    bool has_current() const { return has_current_; }         // a reading within the last kCurrentS
+    bool has_current() const { return has_current_; }  // a reading within the last kCurrentS
     static constexpr double kCurrentS = 0.1;
-    static constexpr double kNearWarnS = 0.5;                  // near another voice this long: a message                   // older readings are not shown as current (DESIGN: within 100 ms)
+    static constexpr double kNearWarnS =
+        0.5;  // near another voice this long: a message                   // older readings are not shown as current (DESIGN: within 100 ms)
     const pitch::EnsembleReading& current() const { return current_; }
     // The last readings (oldest first), about recent_s of them, for the trails.
     std::span<const pitch::EnsembleReading> recent() const { return {recent_.data(), recent_count_}; }
@@ -55,9 +56,9 @@ public:
 private:
     bool plan(AppState& app, const EnsembleSettings& e, bool quiet);
     void open(AppState& app);
-    void forget();                            // no readings shown
-    audio::EnsembleSetup setup_now() const;   // the plan as the engine takes it
-    void push_setup(AppState& app);           // to the running engine; a message on failure
+    void forget();                               // no readings shown
+    audio::EnsembleSetup setup_now() const;      // the plan as the engine takes it
+    void push_setup(AppState& app);              // to the running engine; a message on failure
     void warn_near(AppState& app, double dt_s);  // a player near another voice: one message
 
     ChordFile chord_;
@@ -67,7 +68,7 @@ private:
     double root_hz_ = 0.0, a4_hz_ = 0.0;
 
     bool tried_ = false;
-    bool running_ = false;                     // the app's engine follows this group
+    bool running_ = false;  // the app's engine follows this group
     bool simulated_ = false;
     double sim_due_frames_ = 0.0;
     std::string input_text_ = "no input";
@@ -76,11 +77,11 @@ private:
     pitch::EnsembleReading current_{};
     bool has_current_ = false;
     double current_at_s_ = -1e9;
-    std::vector<pitch::EnsembleReading> recent_;   // sized once
+    std::vector<pitch::EnsembleReading> recent_;  // sized once
     std::size_t recent_count_ = 0;
-    std::vector<pitch::EnsembleReading> take_buf_; // sized once
-    std::array<double, pitch::kMaxPlayers> near_s_{};  // how long each player has sat near another voice
-    std::array<bool, pitch::kMaxPlayers> near_told_{}; // ... and whether a message has said so
+    std::vector<pitch::EnsembleReading> take_buf_;      // sized once
+    std::array<double, pitch::kMaxPlayers> near_s_{};   // how long each player has sat near another voice
+    std::array<bool, pitch::kMaxPlayers> near_told_{};  // ... and whether a message has said so
 };
 
 }  // namespace beatless::ui

@@ -23,8 +23,10 @@ void region(const std::vector<double>& c, std::size_t i, double& lo, double& hi)
     for (std::size_t k = 0; k < c.size(); ++k) {
         if (k == i) continue;
         const double mid = 0.5 * (c[k] + c[i]);
-        if (c[k] < c[i]) lo = std::max(lo, mid);
-        else if (c[k] > c[i]) hi = std::min(hi, mid);
+        if (c[k] < c[i])
+            lo = std::max(lo, mid);
+        else if (c[k] > c[i])
+            hi = std::min(hi, mid);
     }
 }
 
@@ -32,21 +34,24 @@ void region(const std::vector<double>& c, std::size_t i, double& lo, double& hi)
 
 double normal_quantile(double p) {
     // P. J. Acklam's coefficients (2003, widely reprinted), then one Newton step.
-    static const double a[] = {-3.969683028665376e+01, 2.209460984245205e+02, -2.759285104469687e+02,
-                               1.383577518672690e+02, -3.066479806614716e+01, 2.506628277459239e+00};
+    static const double a[] = {-3.969683028665376e+01, 2.209460984245205e+02,  -2.759285104469687e+02,
+                               1.383577518672690e+02,  -3.066479806614716e+01, 2.506628277459239e+00};
     static const double b[] = {-5.447609879822406e+01, 1.615858368580409e+02, -1.556989798598866e+02,
                                6.680131188771972e+01, -1.328068155288572e+01};
     static const double c[] = {-7.784894002430293e-03, -3.223964580411365e-01, -2.400758277161838e+00,
-                               -2.549732539343734e+00, 4.374664141464968e+00, 2.938163982698783e+00};
-    static const double d[] = {7.784695709041462e-03, 3.224671290700398e-01, 2.445134137142996e+00, 3.754408661907416e+00};
+                               -2.549732539343734e+00, 4.374664141464968e+00,  2.938163982698783e+00};
+    static const double d[] = {7.784695709041462e-03, 3.224671290700398e-01, 2.445134137142996e+00,
+                               3.754408661907416e+00};
     if (!(p > 0.0 && p < 1.0)) return p == 0.0 ? -INFINITY : p == 1.0 ? INFINITY : NAN;
     double x;
     if (p < 0.02425) {
         const double q = std::sqrt(-2.0 * std::log(p));
-        x = (((((c[0] * q + c[1]) * q + c[2]) * q + c[3]) * q + c[4]) * q + c[5]) / ((((d[0] * q + d[1]) * q + d[2]) * q + d[3]) * q + 1.0);
+        x = (((((c[0] * q + c[1]) * q + c[2]) * q + c[3]) * q + c[4]) * q + c[5]) /
+            ((((d[0] * q + d[1]) * q + d[2]) * q + d[3]) * q + 1.0);
     } else if (p > 1.0 - 0.02425) {
         const double q = std::sqrt(-2.0 * std::log(1.0 - p));
-        x = -(((((c[0] * q + c[1]) * q + c[2]) * q + c[3]) * q + c[4]) * q + c[5]) / ((((d[0] * q + d[1]) * q + d[2]) * q + d[3]) * q + 1.0);
+        x = -(((((c[0] * q + c[1]) * q + c[2]) * q + c[3]) * q + c[4]) * q + c[5]) /
+            ((((d[0] * q + d[1]) * q + d[2]) * q + d[3]) * q + 1.0);
     } else {
         const double q = p - 0.5, r = q * q;
         x = (((((a[0] * r + a[1]) * r + a[2]) * r + a[3]) * r + a[4]) * r + a[5]) * q /
@@ -63,11 +68,15 @@ SimulatedListener::SimulatedListener(const ListenerConfig& c) : cfg_(c), rng_(c.
         return;
     }
     if (!(c.threshold_cents > 0.0 && c.threshold_cents <= 1200.0))
-        throw Error("simulated listener: threshold " + format_trimmed(c.threshold_cents, 3) + " cents is out of range (above 0, at most 1200)");
-    if (!(c.lapse >= 0.0 && c.lapse <= 0.1)) throw Error("simulated listener: lapse rate " + format_trimmed(c.lapse, 4) + " must lie between 0 and 0.1");
+        throw Error("simulated listener: threshold " + format_trimmed(c.threshold_cents, 3) +
+                    " cents is out of range (above 0, at most 1200)");
+    if (!(c.lapse >= 0.0 && c.lapse <= 0.1))
+        throw Error("simulated listener: lapse rate " + format_trimmed(c.lapse, 4) + " must lie between 0 and 0.1");
     if (!(c.threshold_p > 0.5 && c.threshold_p < 1.0 - c.lapse))
-        throw Error("simulated listener: threshold_p " + format_trimmed(c.threshold_p, 4) + " must lie between 0.5 and 1 - lapse");
-    if (!(c.slope > 0.0 && c.slope <= 20.0)) throw Error("simulated listener: slope " + format_trimmed(c.slope, 3) + " is out of range (0 to 20)");
+        throw Error("simulated listener: threshold_p " + format_trimmed(c.threshold_p, 4) +
+                    " must lie between 0.5 and 1 - lapse");
+    if (!(c.slope > 0.0 && c.slope <= 20.0))
+        throw Error("simulated listener: slope " + format_trimmed(c.slope, 3) + " is out of range (0 to 20)");
     const double f = (c.threshold_p - 0.5) / (0.5 - c.lapse);  // F(T)
     alpha_ = c.threshold_cents / std::pow(-std::log(1.0 - f), 1.0 / c.slope);
     sigma_ = c.threshold_cents / (std::sqrt(2.0) * normal_quantile(c.threshold_p));
@@ -98,14 +107,17 @@ std::size_t SimulatedListener::identify(const std::vector<double>& cents, std::s
 ListenerConfig parse_listener(const std::string& text, std::uint64_t seed) {
     ListenerConfig c;
     c.seed = seed;
-    if (text == "perfect") c.kind = ListenerKind::perfect;
-    else if (text == "guess") c.kind = ListenerKind::guess;
+    if (text == "perfect")
+        c.kind = ListenerKind::perfect;
+    else if (text == "guess")
+        c.kind = ListenerKind::guess;
     else {
         double v = NAN;
         const auto r = std::from_chars(text.data(), text.data() + text.size(), v);
         if (r.ec != std::errc() || r.ptr != text.data() + text.size()) v = NAN;
         if (!(v > 0.0 && v <= 1200.0))
-            throw Error("--listener " + pitch::quote(text) + ": must be perfect, guess or a threshold in cents (above 0, at most 1200)");
+            throw Error("--listener " + pitch::quote(text) +
+                        ": must be perfect, guess or a threshold in cents (above 0, at most 1200)");
         c.threshold_cents = v;
     }
     SimulatedListener check(c);
@@ -117,7 +129,8 @@ int SimulatedListener::answer(const EarQuestion& q, const std::vector<double>& c
     return answers_right(q.level_cents) ? q.correct_answer : 1 - q.correct_answer;
 }
 
-std::vector<std::vector<double>> identification_probabilities(const std::vector<double>& c, double sigma, double lapse, ListenerKind kind) {
+std::vector<std::vector<double>> identification_probabilities(const std::vector<double>& c, double sigma, double lapse,
+                                                              ListenerKind kind) {
     const std::size_t n = c.size();
     std::vector<std::vector<double>> p(n, std::vector<double>(n, 0.0));
     for (std::size_t i = 0; i < n; ++i)

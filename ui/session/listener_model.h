@@ -36,10 +36,10 @@ enum class ListenerKind {
 
 struct ListenerConfig {
     ListenerKind kind = ListenerKind::model;  // default model
-    double threshold_cents = 10.0;  // difference answered right threshold_p of the time; default 10
-    double threshold_p = 0.7071;    // default 0.7071 (2-down/1-up, Levitt 1971)
-    double slope = 3.0;             // Weibull beta, the steepness; default 3 (ours)
-    double lapse = 0.02;            // lapse rate lambda, 0 .. 0.1; default 0.02 (Wichmann & Hill's range 0-0.06)
+    double threshold_cents = 10.0;            // difference answered right threshold_p of the time; default 10
+    double threshold_p = 0.7071;              // default 0.7071 (2-down/1-up, Levitt 1971)
+    double slope = 3.0;                       // Weibull beta, the steepness; default 3 (ours)
+    double lapse = 0.02;  // lapse rate lambda, 0 .. 0.1; default 0.02 (Wichmann & Hill's range 0-0.06)
     std::uint64_t seed = 1;
 };
 
@@ -50,11 +50,11 @@ public:
 
     // --- Discrimination ------------------------------------------------------
     double p_correct(double diff_cents) const noexcept;
-    bool answers_right(double diff_cents) noexcept;             // one draw
+    bool answers_right(double diff_cents) noexcept;  // one draw
     double alpha_cents() const noexcept { return alpha_; }
 
     // --- Identification ------------------------------------------------------
-    double sigma_cents() const noexcept { return sigma_; }      // the Gaussian observer's error (0 perfect)
+    double sigma_cents() const noexcept { return sigma_; }  // the Gaussian observer's error (0 perfect)
     // Which of the targets (cents above the root) it names when target `played` sounds.
     std::size_t identify(const std::vector<double>& target_cents, std::size_t played) noexcept;
 
@@ -71,8 +71,9 @@ private:
 
 // The chance that the identifying listener names target j when target i
 // sounds, [i][j], from the normal distribution (exact, not simulated).
-std::vector<std::vector<double>> identification_probabilities(const std::vector<double>& target_cents, double sigma_cents,
-                                                              double lapse, ListenerKind kind = ListenerKind::model);
+std::vector<std::vector<double>> identification_probabilities(const std::vector<double>& target_cents,
+                                                              double sigma_cents, double lapse,
+                                                              ListenerKind kind = ListenerKind::model);
 
 // A --listener value: "perfect", "guess", or a threshold in cents (above 0,
 // at most 1200; lapse rate 2 %). Throws Error naming the value otherwise.

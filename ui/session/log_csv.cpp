@@ -7,8 +7,8 @@
 //   4. Checking fields and importing
 #include "ui/session/log_csv.h"
 
-#include "pitch/theory/interval.h"
 #include "pitch/base/text.h"
+#include "pitch/theory/interval.h"
 
 #include <array>
 #include <charconv>
@@ -56,7 +56,8 @@ std::string base64_decode(std::string_view in) {
         for (int k = 0; k < 64; ++k) v[static_cast<unsigned char>(kB64[k])] = k;
         return v;
     }();
-    if (in.size() % 4 != 0) throw Error("base64 text of " + std::to_string(in.size()) + " characters is not a multiple of 4");
+    if (in.size() % 4 != 0)
+        throw Error("base64 text of " + std::to_string(in.size()) + " characters is not a multiple of 4");
     std::string out;
     out.reserve(in.size() / 4 * 3);
     for (std::size_t i = 0; i < in.size(); i += 4) {
@@ -71,7 +72,8 @@ std::string base64_decode(std::string_view in) {
                 continue;
             }
             q[k] = value[static_cast<unsigned char>(c)];
-            if (q[k] < 0 || pad > 0) throw Error("'" + std::string(1, c) + "' at character " + std::to_string(i + k + 1) + " is not base64");
+            if (q[k] < 0 || pad > 0)
+                throw Error("'" + std::string(1, c) + "' at character " + std::to_string(i + k + 1) + " is not base64");
         }
         const std::uint32_t v = (static_cast<std::uint32_t>(q[0]) << 18) | (static_cast<std::uint32_t>(q[1]) << 12) |
                                 (static_cast<std::uint32_t>(q[2]) << 6) | static_cast<std::uint32_t>(q[3]);
@@ -86,12 +88,29 @@ std::string base64_decode(std::string_view in) {
 
 namespace {
 
-constexpr const char* kColumns[] = {"uid",          "started_at",     "drill",          "kind",
-                                    "target",       "target_name",    "root_hz",        "performer",
-                                    "dur_s",        "locked",         "time_to_lock_s", "mean_dev_cents",
-                                    "spread_cents", "in_tolerance_share", "threshold_cents", "trials",
-                                    "correct_share", "method",        "estimate",       "threshold_lo_cents",
-                                    "threshold_hi_cents", "settings", "trace"};
+constexpr const char* kColumns[] = {"uid",
+                                    "started_at",
+                                    "drill",
+                                    "kind",
+                                    "target",
+                                    "target_name",
+                                    "root_hz",
+                                    "performer",
+                                    "dur_s",
+                                    "locked",
+                                    "time_to_lock_s",
+                                    "mean_dev_cents",
+                                    "spread_cents",
+                                    "in_tolerance_share",
+                                    "threshold_cents",
+                                    "trials",
+                                    "correct_share",
+                                    "method",
+                                    "estimate",
+                                    "threshold_lo_cents",
+                                    "threshold_hi_cents",
+                                    "settings",
+                                    "trace"};
 // Columns an older export (schema 2) lacks: an import takes it without them.
 bool optional_column(std::string_view c) {
     return c == "trace" || c == "method" || c == "estimate" || c == "threshold_lo_cents" || c == "threshold_hi_cents";
@@ -222,7 +241,8 @@ std::vector<Record> split_records(std::string_view text, const std::string& sour
                 const std::size_t quote_line = line;
                 ++i;
                 for (;;) {
-                    if (i >= text.size()) throw Error(source + ":" + std::to_string(quote_line) + ": a quoted field is never closed");
+                    if (i >= text.size())
+                        throw Error(source + ":" + std::to_string(quote_line) + ": a quoted field is never closed");
                     if (text[i] == '"') {
                         if (i + 1 < text.size() && text[i + 1] == '"') {
                             field += '"';
@@ -239,7 +259,8 @@ std::vector<Record> split_records(std::string_view text, const std::string& sour
                     throw Error(source + ":" + std::to_string(line) + ": text after a closing quote");
             } else {
                 while (i < text.size() && text[i] != ',' && text[i] != '\n' && text[i] != '\r') {
-                    if (text[i] == '"') throw Error(source + ":" + std::to_string(line) + ": a quote inside an unquoted field");
+                    if (text[i] == '"')
+                        throw Error(source + ":" + std::to_string(line) + ": a quote inside an unquoted field");
                     field += text[i++];
                 }
             }
@@ -281,7 +302,9 @@ struct Row {
         const auto r = std::from_chars(t.data(), t.data() + t.size(), v);
         if (r.ec != std::errc() || r.ptr != t.data() + t.size() || !std::isfinite(v))
             bad(column, pitch::quote(t) + " is not a number");
-        if (v < lo || v > hi) bad(column, t + " is out of range (" + pitch::format_trimmed(lo, 3) + " to " + pitch::format_trimmed(hi, 3) + ")");
+        if (v < lo || v > hi)
+            bad(column,
+                t + " is out of range (" + pitch::format_trimmed(lo, 3) + " to " + pitch::format_trimmed(hi, 3) + ")");
         return v;
     }
 };
@@ -325,9 +348,12 @@ Attempt parse_row(const Row& r, const PracticeLog& checker) {
     a.performer = r.text("performer");
     a.dur_s = r.number("dur_s", 0.0, 86400.0);
     const std::string& locked = r.text("locked");
-    if (locked == "1") a.locked = true;
-    else if (locked == "0") a.locked = false;
-    else if (!locked.empty()) r.bad("locked", pitch::quote(locked) + " must be 1, 0 or empty");
+    if (locked == "1")
+        a.locked = true;
+    else if (locked == "0")
+        a.locked = false;
+    else if (!locked.empty())
+        r.bad("locked", pitch::quote(locked) + " must be 1, 0 or empty");
     a.time_to_lock_s = r.number("time_to_lock_s", 0.0, 86400.0);
     a.mean_dev_cents = r.number("mean_dev_cents", -2400.0, 2400.0);
     a.spread_cents = r.number("spread_cents", 0.0, 2400.0);
@@ -365,14 +391,15 @@ Attempt parse_row(const Row& r, const PracticeLog& checker) {
 
 std::string content_uid(std::string_view content) {
     __extension__ typedef unsigned __int128 u128;  // GCC and Clang
-    const u128 prime = (u128{1} << 88) | 0x13b;  // 2^88 + 2^8 + 0x3b
+    const u128 prime = (u128{1} << 88) | 0x13b;    // 2^88 + 2^8 + 0x3b
     u128 h = (u128{0x6c62272e07bb0142ULL} << 64) | 0x62b821756295c58dULL;
     for (const char c : content) {
         h ^= static_cast<unsigned char>(c);
         h *= prime;
     }
     char buf[33];
-    std::snprintf(buf, sizeof buf, "%016llx%016llx", static_cast<unsigned long long>(h >> 64), static_cast<unsigned long long>(h));
+    std::snprintf(buf, sizeof buf, "%016llx%016llx", static_cast<unsigned long long>(h >> 64),
+                  static_cast<unsigned long long>(h));
     return buf;
 }
 
@@ -387,7 +414,8 @@ std::vector<Attempt> parse_log_csv(std::string_view text, const std::string& sou
             throw Error(source + ":" + std::to_string(header.line) + ": unknown column " + pitch::quote(name) +
                         " (is this a practice log export?)");
         if (!col.emplace(name, i).second)
-            throw Error(source + ":" + std::to_string(header.line) + ": column " + pitch::quote(name) + " appears twice");
+            throw Error(source + ":" + std::to_string(header.line) + ": column " + pitch::quote(name) +
+                        " appears twice");
     }
     for (const char* need : kColumns)
         if (!optional_column(need) && !col.count(need))

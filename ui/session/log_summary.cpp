@@ -2,8 +2,8 @@
 
 #include "ui/session/drill_files.h"
 
-#include "pitch/theory/interval.h"
 #include "pitch/base/text.h"
+#include "pitch/theory/interval.h"
 #include "ui/session/json.h"
 #include "ui/session/log_csv.h"
 
@@ -34,8 +34,8 @@ std::string period_start(const std::string& day, Period p) {
     const unsigned since_monday = (weekday{sd}.iso_encoding() + 6) % 7;  // Monday 0 .. Sunday 6
     const year_month_day start{sd - days{since_monday}};
     char buf[16];
-    std::snprintf(buf, sizeof buf, "%04d-%02u-%02u", static_cast<int>(start.year()), static_cast<unsigned>(start.month()),
-                  static_cast<unsigned>(start.day()));
+    std::snprintf(buf, sizeof buf, "%04d-%02u-%02u", static_cast<int>(start.year()),
+                  static_cast<unsigned>(start.month()), static_cast<unsigned>(start.day()));
     return buf;
 }
 
@@ -105,7 +105,9 @@ std::vector<EarPeriodFit> fit_ear_periods(const PracticeLog& log, const AttemptF
                 if (disc) pool.answers.push_back({r.f0_hz, right});
                 pool.right += right ? 1 : 0;
                 ++pool.n;
-                if (disc && p == "all") lo_played = std::min(lo_played, static_cast<double>(r.f0_hz)), hi_played = std::max(hi_played, static_cast<double>(r.f0_hz));
+                if (disc && p == "all")
+                    lo_played = std::min(lo_played, static_cast<double>(r.f0_hz)),
+                    hi_played = std::max(hi_played, static_cast<double>(r.f0_hz));
             }
         }
     });
@@ -126,8 +128,10 @@ std::vector<EarPeriodFit> fit_ear_periods(const PracticeLog& log, const AttemptF
         f.right = pool.right;
         f.answers = pool.n;
         if (disc) f.estimate = ui::fit_threshold(pool.answers, fc);
-        if (p == "all") out.insert(out.begin(), f);
-        else out.push_back(f);
+        if (p == "all")
+            out.insert(out.begin(), f);
+        else
+            out.push_back(f);
     }
     return out;
 }
@@ -183,11 +187,14 @@ HistorySummary summarize_history(const PracticeLog& log, const HistoryOptions& o
             for (auto* lines : {&s.totals, &s.over_time})
                 for (HistoryLine& l : *lines) {
                     if (l.kind != AttemptKind::ear || l.key != k.key || l.period != e.period) continue;
-                    l.correct_share = e.answers > 0 ? static_cast<double>(e.right) / static_cast<double>(e.answers) : NAN;
+                    l.correct_share =
+                        e.answers > 0 ? static_cast<double>(e.right) / static_cast<double>(e.answers) : NAN;
                     l.threshold_cents = NAN;
                     if (!e.discriminate) continue;
                     const ui::ThresholdEstimate& t = e.estimate;
-                    l.estimate = t.verdict == ui::ThresholdVerdict::measured ? "measured" : t.verdict == ui::ThresholdVerdict::finer ? "finer" : "none";
+                    l.estimate = t.verdict == ui::ThresholdVerdict::measured ? "measured"
+                                 : t.verdict == ui::ThresholdVerdict::finer  ? "finer"
+                                                                             : "none";
                     l.threshold_cents = t.threshold_cents;
                     l.threshold_lo_cents = t.lo_cents;
                     l.threshold_hi_cents = t.verdict == ui::ThresholdVerdict::finer ? t.smallest_cents : t.hi_cents;
@@ -255,7 +262,8 @@ void hold_table(std::string& out, const std::vector<HistoryLine>& lines, bool wi
     }
 }
 
-void ear_table(std::string& out, const std::vector<HistoryLine>& lines, bool with_period, const std::string& period_head) {
+void ear_table(std::string& out, const std::vector<HistoryLine>& lines, bool with_period,
+               const std::string& period_head) {
     const std::size_t wk = widest(lines, &HistoryLine::key, 5);
     const std::size_t wn = widest(lines, &HistoryLine::name, 7);
     out += "  ";
@@ -269,14 +277,21 @@ void ear_table(std::string& out, const std::vector<HistoryLine>& lines, bool wit
         pad(out, l.key, wk + 2, false);
         if (!with_period) pad(out, l.name, wn + 2, false);
         pad(out, std::to_string(l.attempts), 8, true);
-        pad(out, std::isfinite(l.correct_share) ? std::to_string(std::lround(100.0 * l.correct_share)) + " %" : std::string("-"), 7, true);
+        pad(out,
+            std::isfinite(l.correct_share) ? std::to_string(std::lround(100.0 * l.correct_share)) + " %"
+                                           : std::string("-"),
+            7, true);
         out += "  ";
         if (l.estimate == "measured")
-            out += fixed(l.threshold_cents, 1, " c") + " (" + (l.threshold_lo_cents > 0 ? fixed(l.threshold_lo_cents, 1, "") : std::string("below")) +
-                   " to " + fixed(l.threshold_hi_cents, 1, " c") + ")";
-        else if (l.estimate == "finer") out += "finer than " + fixed(l.threshold_hi_cents, 2, " c");
-        else if (l.estimate == "none") out += "no reliable threshold";
-        else out += "-";
+            out += fixed(l.threshold_cents, 1, " c") + " (" +
+                   (l.threshold_lo_cents > 0 ? fixed(l.threshold_lo_cents, 1, "") : std::string("below")) + " to " +
+                   fixed(l.threshold_hi_cents, 1, " c") + ")";
+        else if (l.estimate == "finer")
+            out += "finer than " + fixed(l.threshold_hi_cents, 2, " c");
+        else if (l.estimate == "none")
+            out += "no reliable threshold";
+        else
+            out += "-";
         out += '\n';
     }
 }
@@ -292,7 +307,8 @@ std::vector<HistoryLine> of_kind(const std::vector<HistoryLine>& lines, AttemptK
 
 std::string render_history_text(const HistorySummary& s) {
     std::string out = "Practice log " + s.log_path + ": " + std::to_string(s.attempts) +
-                      (s.attempts == 1 ? " attempt" : " attempts") + (s.since.empty() ? "" : " since " + s.since) + "\n";
+                      (s.attempts == 1 ? " attempt" : " attempts") + (s.since.empty() ? "" : " since " + s.since) +
+                      "\n";
     if (s.simulated_left_out > 0) {
         out += '(';
         out += std::to_string(s.simulated_left_out);
@@ -337,8 +353,10 @@ void json_line(JsonWriter& j, const HistoryLine& l, bool with_period) {
     } else {
         j.key("correct_share").value(l.correct_share, 4);
         j.key("estimate");
-        if (l.estimate.empty()) j.null();
-        else j.value(l.estimate);
+        if (l.estimate.empty())
+            j.null();
+        else
+            j.value(l.estimate);
         j.key("threshold_cents").value(l.threshold_cents, 3);
         j.key("threshold_lo_cents").value(l.threshold_lo_cents, 3);
         j.key("threshold_hi_cents").value(l.threshold_hi_cents, 3);
@@ -353,8 +371,10 @@ std::string render_history_json(const HistorySummary& s) {
     j.begin_object();
     j.key("log").value(s.log_path);
     j.key("since");
-    if (s.since.empty()) j.null();
-    else j.value(s.since);
+    if (s.since.empty())
+        j.null();
+    else
+        j.value(s.since);
     j.key("by").value(period_name(s.by));
     j.key("simulated_left_out").value(s.simulated_left_out);
     j.key("attempts").value(s.attempts);
@@ -370,7 +390,8 @@ std::string render_history_json(const HistorySummary& s) {
 
 std::string render_history_csv(const HistorySummary& s) {
     std::string out =
-        "period,kind,key,name,attempts,locked_share,time_to_lock_s,mean_dev_cents,spread_cents,in_tolerance_share,threshold_cents,"
+        "period,kind,key,name,attempts,locked_share,time_to_lock_s,mean_dev_cents,spread_cents,in_tolerance_share,"
+        "threshold_cents,"
         "threshold_lo_cents,threshold_hi_cents,estimate,correct_share\n";
     auto num = [&out](double v, int decimals) {
         out += ',';

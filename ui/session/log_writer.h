@@ -26,9 +26,9 @@
 namespace beatless::ui {
 
 struct SaveResult {
-    std::size_t saved = 0;    // attempts written by this call (earlier ones kept in memory included)
-    std::size_t pending = 0;  // attempts still in memory after this call
-    std::string warning;      // one line when something is still unsaved, else empty
+    std::size_t saved = 0;              // attempts written by this call (earlier ones kept in memory included)
+    std::size_t pending = 0;            // attempts still in memory after this call
+    std::string warning;                // one line when something is still unsaved, else empty
     std::optional<LogProblem> problem;  // why the log could not be written by this call, if it could not
 };
 
@@ -36,11 +36,11 @@ class LogWriter {
 public:
     explicit LogWriter(std::filesystem::path path, LogOptions options = {});
 
-    SaveResult save(Attempt attempt);   // stamps, queues, writes what it can
-    SaveResult retry();                 // writes what it can of the queue
+    SaveResult save(Attempt attempt);  // stamps, queues, writes what it can
+    SaveResult retry();                // writes what it can of the queue
     std::size_t pending() const { return queue_.size() + refused_.size(); }
     std::vector<Attempt> pending_attempts() const;
-    std::string pending_csv() const;    // header plus one row per unsaved attempt
+    std::string pending_csv() const;           // header plus one row per unsaved attempt
     PracticeLog* log() { return log_.get(); }  // nullptr until opened
     const std::filesystem::path& path() const { return path_; }
 

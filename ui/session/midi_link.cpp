@@ -37,7 +37,9 @@ void MidiLink::update(AppState& app) {
     std::vector<std::string> lines;
     const MidiSession::Change change = session_->poll(lines);
     for (const auto& l : lines) app.post(l, l.find("gone") != std::string::npos);
-    if (change.root_hz) app.set_root_text(pitch::midi_to_name(static_cast<int>(std::lround(pitch::hz_to_midi(*change.root_hz, s.a4_hz)))));
+    if (change.root_hz)
+        app.set_root_text(
+            pitch::midi_to_name(static_cast<int>(std::lround(pitch::hz_to_midi(*change.root_hz, s.a4_hz)))));
     if (change.target_index) {
         app.set_choice(TargetChoice::fixed);
         app.step_target(static_cast<int>(*change.target_index) - app.fixed_index());
@@ -45,8 +47,10 @@ void MidiLink::update(AppState& app) {
     // Mirror what the window sounds: nothing until the drone is on (the hearing caution applies here too).
     const bool drone = app.drone_on();
     const std::optional<std::size_t> target =
-        s.choice == TargetChoice::fixed ? std::optional<std::size_t>(static_cast<std::size_t>(app.fixed_index())) : std::nullopt;
-    if (drone == drone_ && app.root_hz() == root_hz_ && s.fifth == fifth_ && s.octave == octave_ && target == target_) return;
+        s.choice == TargetChoice::fixed ? std::optional<std::size_t>(static_cast<std::size_t>(app.fixed_index()))
+                                        : std::nullopt;
+    if (drone == drone_ && app.root_hz() == root_hz_ && s.fifth == fifth_ && s.octave == octave_ && target == target_)
+        return;
     drone_ = drone;
     root_hz_ = app.root_hz();
     fifth_ = s.fifth;

@@ -73,7 +73,8 @@ MidiSession::Change MidiSession::poll(std::vector<std::string>& messages) {
             if (c.kind == audio::KeyCommand::Kind::set_root) {
                 root_hz_ = pitch::midi_to_hz(c.key, config_.a4_hz);
                 change.root_hz = root_hz_;
-                messages.push_back("keyboard: root " + pitch::midi_to_name(c.key) + " = " + pitch::format_trimmed(root_hz_, 3) + " Hz");
+                messages.push_back("keyboard: root " + pitch::midi_to_name(c.key) + " = " +
+                                   pitch::format_trimmed(root_hz_, 3) + " Hz");
             } else if (!set_.targets.empty()) {
                 // The target nearest the keys' interval, octaves folded in (common practice: 12-TET keys stand for the just targets).
                 const double cents = 100.0 * c.semitones_over_root;
@@ -95,8 +96,9 @@ MidiSession::Change MidiSession::poll(std::vector<std::string>& messages) {
     if (!out_ || now < next_check_) return change;
     next_check_ = now + std::chrono::seconds(1);
     if (out_->supervise()) {
-        messages.push_back(out_->problem().empty() ? "MIDI output port '" + out_->port_name() + "': back; sounding again"
-                                                   : out_->problem());
+        messages.push_back(out_->problem().empty()
+                               ? "MIDI output port '" + out_->port_name() + "': back; sounding again"
+                               : out_->problem());
     }
     return change;
 }
@@ -106,12 +108,15 @@ std::string MidiSession::describe() const {
     if (out_) {
         s = "MIDI out: '" + out_->port_name() + "', ";
         if (config_.retune == audio::MidiRetune::mts)
-            s += "keys retuned by MTS single-note tuning (a synth that ignores MTS plays tempered: use --midi-tuning bend)";
+            s += "keys retuned by MTS single-note tuning (a synth that ignores MTS plays tempered: use --midi-tuning "
+                 "bend)";
         else
-            s += "pitch bend per note on channels 2-16, bend range +-" + pitch::format_trimmed(config_.bend_range_semitones, 2) +
-                 " semitones (RPN 0)";
+            s += "pitch bend per note on channels 2-16, bend range +-" +
+                 pitch::format_trimmed(config_.bend_range_semitones, 2) + " semitones (RPN 0)";
     }
-    if (in_) s += std::string(s.empty() ? "" : "; ") + "MIDI in: '" + in_->port_name() + "' (a key sets the root; held with it, the target)";
+    if (in_)
+        s += std::string(s.empty() ? "" : "; ") + "MIDI in: '" + in_->port_name() +
+             "' (a key sets the root; held with it, the target)";
     return s;
 }
 

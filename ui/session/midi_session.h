@@ -17,13 +17,13 @@
 namespace beatless::ui {
 
 struct MidiSessionConfig {
-    std::string out_port;                         // "" = no MIDI out
-    std::string in_port;                          // "" = no MIDI in
+    std::string out_port;  // "" = no MIDI out
+    std::string in_port;   // "" = no MIDI in
     audio::MidiRetune retune = audio::MidiRetune::mts;
-    double bend_range_semitones = 2.0;            // bend mode's range, stated by RPN 0; default 2
-    bool fifth = false;                           // the drone's fifth 3/2 sounds too
-    bool octave = false;                          // the drone's octave 2/1 sounds too
-    double a4_hz = 440.0;                         // for the keys that set the root
+    double bend_range_semitones = 2.0;  // bend mode's range, stated by RPN 0; default 2
+    bool fifth = false;                 // the drone's fifth 3/2 sounds too
+    bool octave = false;                // the drone's octave 2/1 sounds too
+    double a4_hz = 440.0;               // for the keys that set the root
 };
 
 // "mts" or "bend"; throws Error naming the text otherwise.

@@ -36,7 +36,9 @@ AppDirs app_dirs(const EnvLookup& env) {
     const char* home = env("HOME");
     const bool have_home = home && *home;
     if ((xdg_config.empty() || xdg_data.empty()) && !have_home)
-        throw Error("cannot find a folder for settings and the practice log: HOME is not set (set HOME, XDG_DATA_HOME or BEATLESS_HOME)");
+        throw Error(
+            "cannot find a folder for settings and the practice log: HOME is not set (set HOME, XDG_DATA_HOME or "
+            "BEATLESS_HOME)");
     d.config = (xdg_config.empty() ? fs::path(home) / ".config" : xdg_config) / "beatless";
     d.data = (xdg_data.empty() ? fs::path(home) / ".local" / "share" : xdg_data) / "beatless";
     return d;

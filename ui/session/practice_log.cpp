@@ -13,17 +13,17 @@
 
 #include <sqlite3.h>
 
+#include <sys/stat.h>
+#include <algorithm>
 #include <bit>
 #include <cerrno>
 #include <chrono>
 #include <cstring>
-#include <fstream>
-#include <sys/stat.h>
 #include <ctime>
+#include <fstream>
 #include <random>
 #include <tuple>
 #include <unordered_map>
-#include <algorithm>
 
 namespace beatless::ui {
 
@@ -93,10 +93,12 @@ bool is_utc_iso8601(std::string_view s) {
 std::string parse_since(std::string_view text) {
     std::string_view s = text;
     if (!s.empty() && (s.back() == 'Z' || s.back() == 'z')) s.remove_suffix(1);
-    const bool ok = valid_date(s) && (s.size() == 10 || (s[10] == 'T' && ((s.size() == 16 && valid_time(s, 11, false)) ||
-                                                                          (s.size() == 19 && valid_time(s, 11, true)))));
+    const bool ok =
+        valid_date(s) && (s.size() == 10 || (s[10] == 'T' && ((s.size() == 16 && valid_time(s, 11, false)) ||
+                                                              (s.size() == 19 && valid_time(s, 11, true)))));
     if (!ok)
-        throw UsageError("--since '" + std::string(text) + "': not a date (use YYYY-MM-DD or YYYY-MM-DDTHH:MM[:SS], UTC)");
+        throw UsageError("--since '" + std::string(text) +
+                         "': not a date (use YYYY-MM-DD or YYYY-MM-DDTHH:MM[:SS], UTC)");
     return std::string(s);
 }
 
@@ -141,7 +143,8 @@ std::string encode_trace(const std::vector<TraceRecord>& trace) {
 
 std::vector<TraceRecord> decode_trace(const void* data, std::size_t len_bytes) {
     if (len_bytes % 16 != 0)
-        throw LogError(LogProblem::bad_data, "trace of " + std::to_string(len_bytes) + " bytes is not a whole number of 16-byte records");
+        throw LogError(LogProblem::bad_data,
+                       "trace of " + std::to_string(len_bytes) + " bytes is not a whole number of 16-byte records");
     std::vector<TraceRecord> out(len_bytes / 16);
     const auto* p = static_cast<const unsigned char*>(data);
     auto next = [&p] {
@@ -167,15 +170,20 @@ bool same_float(float a, float b) { return (std::isnan(a) && std::isnan(b)) || a
 }  // namespace
 
 bool same_attempt(const Attempt& a, const Attempt& b) {
-    if (a.uid != b.uid || a.started_at != b.started_at || a.drill != b.drill || a.kind != b.kind || a.target != b.target ||
-        a.target_name != b.target_name || a.performer != b.performer || a.settings_json != b.settings_json ||
-        a.locked != b.locked || a.trials != b.trials || a.method != b.method || a.estimate != b.estimate ||
-        a.trace.size() != b.trace.size())
+    if (a.uid != b.uid || a.started_at != b.started_at || a.drill != b.drill || a.kind != b.kind ||
+        a.target != b.target || a.target_name != b.target_name || a.performer != b.performer ||
+        a.settings_json != b.settings_json || a.locked != b.locked || a.trials != b.trials || a.method != b.method ||
+        a.estimate != b.estimate || a.trace.size() != b.trace.size())
         return false;
-    for (const auto& [x, y] : {std::pair{a.root_hz, b.root_hz}, {a.dur_s, b.dur_s}, {a.time_to_lock_s, b.time_to_lock_s},
-                               {a.mean_dev_cents, b.mean_dev_cents}, {a.spread_cents, b.spread_cents},
-                               {a.in_tolerance_share, b.in_tolerance_share}, {a.threshold_cents, b.threshold_cents},
-                               {a.correct_share, b.correct_share}, {a.threshold_lo_cents, b.threshold_lo_cents},
+    for (const auto& [x, y] : {std::pair{a.root_hz, b.root_hz},
+                               {a.dur_s, b.dur_s},
+                               {a.time_to_lock_s, b.time_to_lock_s},
+                               {a.mean_dev_cents, b.mean_dev_cents},
+                               {a.spread_cents, b.spread_cents},
+                               {a.in_tolerance_share, b.in_tolerance_share},
+                               {a.threshold_cents, b.threshold_cents},
+                               {a.correct_share, b.correct_share},
+                               {a.threshold_lo_cents, b.threshold_lo_cents},
                                {a.threshold_hi_cents, b.threshold_hi_cents}})
         if (!same_double(x, y)) return false;
     for (std::size_t i = 0; i < a.trace.size(); ++i) {
@@ -244,7 +252,8 @@ static_assert(std::size(kMigrations) == PracticeLog::kSchemaVersion);
 
 constexpr const char* kAttemptColumns =
     "attempt.id, uid, started_at, drill, kind, target, target_name, root_hz, performer, settings, dur_s, locked, "
-    "time_to_lock_s, mean_dev_cents, spread_cents, in_tolerance_share, threshold_cents, trials, correct_share, method, estimate, threshold_lo_cents, threshold_hi_cents";
+    "time_to_lock_s, mean_dev_cents, spread_cents, in_tolerance_share, threshold_cents, trials, correct_share, method, "
+    "estimate, threshold_lo_cents, threshold_hi_cents";
 
 LogProblem problem_of(int code) {
     switch (code & 0xff) {
@@ -319,15 +328,18 @@ void PracticeLog::check_log_file() {
         // Never make a log of something else: a device (/dev/null would get a
         // -journal beside it), a folder, or a file that is not SQLite.
         if (S_ISDIR(st.st_mode)) throw LogError(LogProblem::cannot_open, name + "is a folder, not a file");
-        if (!S_ISREG(st.st_mode)) throw LogError(LogProblem::cannot_open, name + "is not a regular file (a device or pipe)");
+        if (!S_ISREG(st.st_mode))
+            throw LogError(LogProblem::cannot_open, name + "is not a regular file (a device or pipe)");
         if (st.st_size == 0) return;
         // The 16-byte header every SQLite 3 database starts with (sqlite.org/fileformat.html, 1.3).
-        static constexpr char kHeader[16] = {'S', 'Q', 'L', 'i', 't', 'e', ' ', 'f', 'o', 'r', 'm', 'a', 't', ' ', '3', '\0'};
+        static constexpr char kHeader[16] = {'S', 'Q', 'L', 'i', 't', 'e', ' ', 'f',
+                                             'o', 'r', 'm', 'a', 't', ' ', '3', '\0'};
         char head[16] = {};
         std::ifstream in(path_, std::ios::binary);
         in.read(head, sizeof head);
         if (!in || std::memcmp(head, kHeader, sizeof head) != 0)
-            throw LogError(LogProblem::not_a_log, name + "is not a practice log (not an SQLite file); give a new file name");
+            throw LogError(LogProblem::not_a_log,
+                           name + "is not a practice log (not an SQLite file); give a new file name");
         return;
     }
     if (errno != ENOENT && errno != ENOTDIR) throw LogError(LogProblem::cannot_open, name + std::strerror(errno));
@@ -336,8 +348,7 @@ void PracticeLog::check_log_file() {
     bool is_default = false;
     try {
         is_default = path_ == practice_log_path();
-    } catch (const Error&) {
-    }
+    } catch (const Error&) {}
     const fs::path dir = path_.parent_path();
     try {
         if (is_default) ensure_dir(dir);
@@ -346,7 +357,9 @@ void PracticeLog::check_log_file() {
     }
     std::error_code ec;
     if (!fs::is_directory(dir, ec))
-        throw LogError(LogProblem::cannot_open, name + "the folder " + dir.string() + (fs::exists(dir, ec) ? " is not a folder" : " does not exist (create it first)"));
+        throw LogError(LogProblem::cannot_open,
+                       name + "the folder " + dir.string() +
+                           (fs::exists(dir, ec) ? " is not a folder" : " does not exist (create it first)"));
 }
 
 void PracticeLog::exec(const char* sql, const std::string& doing) {
@@ -361,8 +374,10 @@ std::int64_t query_int(sqlite3* db, const char* sql, bool& ok) {
     std::int64_t v = 0;
     if (ok) {
         const int rc = sqlite3_step(s);
-        if (rc == SQLITE_ROW) v = sqlite3_column_int64(s, 0);
-        else ok = rc == SQLITE_DONE;
+        if (rc == SQLITE_ROW)
+            v = sqlite3_column_int64(s, 0);
+        else
+            ok = rc == SQLITE_DONE;
     }
     sqlite3_finalize(s);
     return v;
@@ -391,8 +406,9 @@ PracticeLog::PracticeLog(fs::path path, LogOptions options) : path_(std::move(pa
         const std::int64_t tables = query_int(db_, "SELECT count(*) FROM sqlite_schema", ok);
         if (!ok) fail("reading the schema");
         if (tables > 0 && app != kApplicationId)
-            throw LogError(LogProblem::not_a_log,
-                           "practice log " + path_.string() + ": an SQLite file of another program, not a beatless practice log");
+            throw LogError(
+                LogProblem::not_a_log,
+                "practice log " + path_.string() + ": an SQLite file of another program, not a beatless practice log");
         // A file the process may not write (read-only mount, permissions)
         // opens read-only even when asked for read-write.
         if (sqlite3_db_readonly(db_, "main") == 1) options_.read_only = true;
@@ -404,10 +420,11 @@ PracticeLog::PracticeLog(fs::path path, LogOptions options) : path_(std::move(pa
         migrate();
         if (options_.max_page_count > 0) set_max_page_count(options_.max_page_count);
         st_ = std::make_unique<Statements>();
-        const std::string ins = "INSERT INTO attempt (uid, started_at, drill, kind, target, target_name, root_hz, performer, "
-                                "settings, dur_s, locked, time_to_lock_s, mean_dev_cents, spread_cents, in_tolerance_share, "
-                                "threshold_cents, trials, correct_share, method, estimate, threshold_lo_cents, threshold_hi_cents) "
-                                "VALUES (?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?)";
+        const std::string ins =
+            "INSERT INTO attempt (uid, started_at, drill, kind, target, target_name, root_hz, performer, "
+            "settings, dur_s, locked, time_to_lock_s, mean_dev_cents, spread_cents, in_tolerance_share, "
+            "threshold_cents, trials, correct_share, method, estimate, threshold_lo_cents, threshold_hi_cents) "
+            "VALUES (?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?,?)";
         const std::pair<sqlite3_stmt**, const char*> stmts[] = {
             {&st_->insert_attempt, ins.c_str()},
             {&st_->insert_trace, "INSERT INTO trace (attempt_id, records) VALUES (?, ?)"},
@@ -415,7 +432,8 @@ PracticeLog::PracticeLog(fs::path path, LogOptions options) : path_(std::move(pa
             {&st_->json_object, "SELECT json_valid(?1) AND json_type(?1) = 'object'"},
         };
         for (const auto& [slot, sql] : stmts)
-            if (sqlite3_prepare_v3(db_, sql, -1, SQLITE_PREPARE_PERSISTENT, slot, nullptr) != SQLITE_OK) fail("preparing");
+            if (sqlite3_prepare_v3(db_, sql, -1, SQLITE_PREPARE_PERSISTENT, slot, nullptr) != SQLITE_OK)
+                fail("preparing");
     } catch (...) {
         st_.reset();
         sqlite3_close(db_);
@@ -439,9 +457,9 @@ int PracticeLog::user_version() const {
 void PracticeLog::migrate() {
     const int v = user_version();
     if (v > kSchemaVersion)
-        throw LogError(LogProblem::too_new, "practice log " + path_.string() + ": written by a newer beatless (schema " +
-                                                std::to_string(v) + "; this one knows up to " +
-                                                std::to_string(kSchemaVersion) + ")");
+        throw LogError(LogProblem::too_new, "practice log " + path_.string() +
+                                                ": written by a newer beatless (schema " + std::to_string(v) +
+                                                "; this one knows up to " + std::to_string(kSchemaVersion) + ")");
     if (v == kSchemaVersion) return;
     if (options_.read_only)
         throw LogError(LogProblem::read_only, "practice log " + path_.string() + ": schema " + std::to_string(v) +
@@ -482,8 +500,10 @@ void bind_text(sqlite3_stmt* s, int i, const std::string& v) {
 }
 
 void bind_real(sqlite3_stmt* s, int i, double v) {
-    if (std::isfinite(v)) sqlite3_bind_double(s, i, v);
-    else sqlite3_bind_null(s, i);
+    if (std::isfinite(v))
+        sqlite3_bind_double(s, i, v);
+    else
+        sqlite3_bind_null(s, i);
 }
 
 }  // namespace
@@ -492,10 +512,12 @@ void PracticeLog::insert(Attempt& a) {
     if (a.uid.empty()) a.uid = new_uid();
     if (a.started_at.empty()) a.started_at = utc_now_iso8601();
     auto refuse = [&](const std::string& why) {
-        throw LogError(LogProblem::bad_data, "practice log " + path_.string() + ": attempt " + a.uid + " refused: " + why);
+        throw LogError(LogProblem::bad_data,
+                       "practice log " + path_.string() + ": attempt " + a.uid + " refused: " + why);
     };
     if (!is_uid(a.uid)) refuse("uid '" + a.uid + "' is not 32 lowercase hex digits");
-    if (!is_utc_iso8601(a.started_at)) refuse("start time '" + a.started_at + "' is not UTC ISO 8601 (YYYY-MM-DDTHH:MM:SS.mmmZ)");
+    if (!is_utc_iso8601(a.started_at))
+        refuse("start time '" + a.started_at + "' is not UTC ISO 8601 (YYYY-MM-DDTHH:MM:SS.mmmZ)");
     if (a.drill.empty()) refuse("no drill id");
     if (a.target.empty()) refuse("no target");
     if (!is_json_object(a.settings_json)) refuse("settings are not a JSON object");
@@ -581,7 +603,8 @@ namespace {
 // WHERE clause for a filter; parameters ?1 target, ?2 since, ?3 drill (empty
 // = any), ?4 1 to keep the simulated performers' attempts, ?5 and ?6 their names.
 constexpr const char* kWhere =
-    " WHERE (?1 = '' OR attempt.target = ?1 OR (attempt.kind = 'ear' AND instr(' ' || attempt.target || ' ', ' ' || ?1 || ' ') > 0))"
+    " WHERE (?1 = '' OR attempt.target = ?1 OR (attempt.kind = 'ear' AND instr(' ' || attempt.target || ' ', ' ' || ?1 "
+    "|| ' ') > 0))"
     " AND (?2 = '' OR attempt.started_at >= ?2) AND (?3 = '' OR attempt.drill = ?3)"
     " AND (?4 = 1 OR attempt.performer NOT IN (?5, ?6))";
 
@@ -610,10 +633,11 @@ void bind_filter(sqlite3_stmt* s, const AttemptFilter& f) {
 
 }  // namespace
 
-void PracticeLog::for_each(const AttemptFilter& filter, bool with_trace, const std::function<void(const Attempt&)>& fn) const {
-    std::string sql = std::string("SELECT ") + kAttemptColumns + (with_trace ? ", trace.records" : "") + " FROM attempt" +
-                      (with_trace ? " LEFT JOIN trace ON trace.attempt_id = attempt.id" : "") + kWhere +
-                      " ORDER BY attempt.started_at, attempt.uid";
+void PracticeLog::for_each(const AttemptFilter& filter, bool with_trace,
+                           const std::function<void(const Attempt&)>& fn) const {
+    std::string sql = std::string("SELECT ") + kAttemptColumns + (with_trace ? ", trace.records" : "") +
+                      " FROM attempt" + (with_trace ? " LEFT JOIN trace ON trace.attempt_id = attempt.id" : "") +
+                      kWhere + " ORDER BY attempt.started_at, attempt.uid";
     Stmt st;
     if (sqlite3_prepare_v2(db_, sql.c_str(), -1, &st.s, nullptr) != SQLITE_OK) fail("preparing a read");
     bind_filter(st.s, filter);
@@ -625,7 +649,9 @@ void PracticeLog::for_each(const AttemptFilter& filter, bool with_trace, const s
         a.started_at = column_text(s, 2);
         a.drill = column_text(s, 3);
         const auto kind = parse_kind(column_text(s, 4));
-        if (!kind) throw LogError(LogProblem::bad_data, "practice log " + path_.string() + ": attempt " + a.uid + " has an unknown kind");
+        if (!kind)
+            throw LogError(LogProblem::bad_data,
+                           "practice log " + path_.string() + ": attempt " + a.uid + " has an unknown kind");
         a.kind = *kind;
         a.target = column_text(s, 5);
         a.target_name = column_text(s, 6);
@@ -652,7 +678,8 @@ void PracticeLog::for_each(const AttemptFilter& filter, bool with_trace, const s
             try {
                 a.trace = decode_trace(blob, len);
             } catch (const LogError& e) {
-                throw LogError(LogProblem::bad_data, "practice log " + path_.string() + ": attempt " + a.uid + ": " + e.what());
+                throw LogError(LogProblem::bad_data,
+                               "practice log " + path_.string() + ": attempt " + a.uid + ": " + e.what());
             }
         }
         fn(a);
@@ -685,8 +712,9 @@ std::int64_t PracticeLog::count(const AttemptFilter& filter) const {
 std::vector<HistoryGroup> PracticeLog::history_groups(const AttemptFilter& filter) const {
     // One plain scan, summed in a hash map: several times faster than
     // SQLite's GROUP BY, which sorts every row through a temporary b-tree.
-    const std::string sql = std::string("SELECT kind, target, drill, target_name, started_at, locked, time_to_lock_s, "
-                                        "mean_dev_cents, spread_cents, in_tolerance_share, threshold_cents FROM attempt") +
+    const std::string sql = std::string(
+                                "SELECT kind, target, drill, target_name, started_at, locked, time_to_lock_s, "
+                                "mean_dev_cents, spread_cents, in_tolerance_share, threshold_cents FROM attempt") +
                             kWhere;
     Stmt st;
     if (sqlite3_prepare_v2(db_, sql.c_str(), -1, &st.s, nullptr) != SQLITE_OK) fail("preparing the history query");

@@ -48,18 +48,18 @@ std::optional<AttemptKind> parse_kind(std::string_view text);  // empty when unk
 
 // One record of an attempt's trace (16 bytes on disk, little-endian float32).
 struct TraceRecord {
-    float t_s = 0.0f;               // hold: time from the hold's start; ear: time of the answer
-    float f0_hz = 0.0f;             // hold: f0 (0 when unvoiced); discriminate: the mistuning asked and played,
-                                    //   cents; identify: the interval played (index); schema 2 ear: staircase level
-    float dev_cents = NAN;          // hold: deviation from the target; discriminate: signed mistuning played
-                                    //   (+ wider); identify: the interval named (index); schema 2 ear: separation
-    float centre_dev_cents = NAN;   // hold: vibrato centre's deviation; ear: 1 right, 0 wrong
+    float t_s = 0.0f;              // hold: time from the hold's start; ear: time of the answer
+    float f0_hz = 0.0f;            // hold: f0 (0 when unvoiced); discriminate: the mistuning asked and played,
+                                   //   cents; identify: the interval played (index); schema 2 ear: staircase level
+    float dev_cents = NAN;         // hold: deviation from the target; discriminate: signed mistuning played
+                                   //   (+ wider); identify: the interval named (index); schema 2 ear: separation
+    float centre_dev_cents = NAN;  // hold: vibrato centre's deviation; ear: 1 right, 0 wrong
 };
 
 struct Attempt {
-    std::string uid;                   // 32 lowercase hex digits; add() makes one when empty
-    std::string started_at;            // UTC ISO 8601 "2025-03-01T14:03:22.123Z"; add() uses now when empty
-    std::string drill;                 // drill id, e.g. "hold-tritones"
+    std::string uid;         // 32 lowercase hex digits; add() makes one when empty
+    std::string started_at;  // UTC ISO 8601 "2025-03-01T14:03:22.123Z"; add() uses now when empty
+    std::string drill;       // drill id, e.g. "hold-tritones"
     AttemptKind kind = AttemptKind::hold;
     std::string target;                // hold: "7/5"; ear: the choices "11/8 7/5 45/32 600c 10/7"
     std::string target_name;           // "septimal tritone", or empty
@@ -72,12 +72,12 @@ struct Attempt {
     double mean_dev_cents = NAN;
     double spread_cents = NAN;
     double in_tolerance_share = NAN;
-    double threshold_cents = NAN;      // ear: fitted threshold (estimate "measured"; schema 2: staircase mean)
-    std::optional<int> trials;         // ear: questions answered
-    double correct_share = NAN;        // ear: share answered right
-    std::string method;                // ear: "discriminate 2-down 1-up", "identify"; empty before schema 3
-    std::string estimate;              // discriminate: "measured", "finer", "none"; else empty
-    double threshold_lo_cents = NAN;   // discriminate: the 95 % interval (finer: 0 to the smallest level played)
+    double threshold_cents = NAN;     // ear: fitted threshold (estimate "measured"; schema 2: staircase mean)
+    std::optional<int> trials;        // ear: questions answered
+    double correct_share = NAN;       // ear: share answered right
+    std::string method;               // ear: "discriminate 2-down 1-up", "identify"; empty before schema 3
+    std::string estimate;             // discriminate: "measured", "finer", "none"; else empty
+    double threshold_lo_cents = NAN;  // discriminate: the 95 % interval (finer: 0 to the smallest level played)
     double threshold_hi_cents = NAN;
     std::vector<TraceRecord> trace;
 };
@@ -98,9 +98,9 @@ private:
 };
 
 struct LogOptions {
-    bool read_only = false;            // open without writing; default false
-    std::int64_t max_page_count = 0;   // > 0 caps the file at this many pages (tests use it as a full disk); default 0
-    int busy_timeout_ms = 2000;        // wait this long for another writer; default 2000
+    bool read_only = false;           // open without writing; default false
+    std::int64_t max_page_count = 0;  // > 0 caps the file at this many pages (tests use it as a full disk); default 0
+    int busy_timeout_ms = 2000;       // wait this long for another writer; default 2000
 };
 
 // Attempt.performer of the program's own stand-ins: their attempts are kept
@@ -109,18 +109,18 @@ inline constexpr const char* kDemoPerformer = "demo performer";
 inline constexpr const char* kSimulatedListener = "simulated listener";
 
 struct AttemptFilter {
-    std::string target;   // a target such as "7/5"; ear attempts match when it is among their choices
-    std::string since;    // UTC ISO 8601 prefix ("2025-03-01"): attempts started at or after it
-    std::string drill;    // a drill id
-    bool simulated = true; // false: leave out the demo performer's and the simulated listener's attempts
+    std::string target;     // a target such as "7/5"; ear attempts match when it is among their choices
+    std::string since;      // UTC ISO 8601 prefix ("2025-03-01"): attempts started at or after it
+    std::string drill;      // a drill id
+    bool simulated = true;  // false: leave out the demo performer's and the simulated listener's attempts
 };
 
 // Sums for one (kind, key, day) group: the raw material of `beatless history`.
 struct HistoryGroup {
     AttemptKind kind = AttemptKind::hold;
-    std::string key;          // hold: the target; ear: the drill id
-    std::string name;         // target name (hold) or the target list (ear)
-    std::string day;          // "2025-03-01" (UTC)
+    std::string key;   // hold: the target; ear: the drill id
+    std::string name;  // target name (hold) or the target list (ear)
+    std::string day;   // "2025-03-01" (UTC)
     std::int64_t attempts = 0;
     std::int64_t locked = 0, locked_n = 0;
     double time_to_lock_sum = 0, mean_dev_sum = 0, spread_sum = 0, in_tol_sum = 0, threshold_sum = 0;
@@ -184,12 +184,12 @@ private:
 
 // Time helpers (UTC, ISO 8601 with milliseconds and a Z).
 std::string utc_now_iso8601();
-bool is_utc_iso8601(std::string_view text);        // exactly "YYYY-MM-DDTHH:MM:SS.mmmZ", a real date
+bool is_utc_iso8601(std::string_view text);  // exactly "YYYY-MM-DDTHH:MM:SS.mmmZ", a real date
 // A --since value: "YYYY-MM-DD", "YYYY-MM-DDTHH:MM", "YYYY-MM-DDTHH:MM:SS", each
 // optionally with a trailing Z. Returns the prefix to compare with; throws
 // UsageError naming the text otherwise.
 std::string parse_since(std::string_view text);
-std::string new_uid();                              // 32 random lowercase hex digits
+std::string new_uid();  // 32 random lowercase hex digits
 bool is_uid(std::string_view text);
 
 // The trace BLOB format, exposed for the CSV export and tests.

@@ -4,12 +4,12 @@
 #include "pitch/base/error.h"
 #include "pitch/base/text.h"
 
-#include <cerrno>
-#include <cstdio>
-#include <cstring>
 #include <fcntl.h>
 #include <sys/stat.h>
 #include <unistd.h>
+#include <cerrno>
+#include <cstdio>
+#include <cstring>
 
 namespace beatless::ui {
 
@@ -69,7 +69,8 @@ fs::path check_output_path(const fs::path& target) {
     const fs::path parent = real.has_parent_path() ? real.parent_path() : fs::path(".");
     struct stat pst {};
     if (::stat(parent.c_str(), &pst) != 0) {
-        if (errno == ENOENT) throw Error(name + ": the folder " + parent.string() + " does not exist (create it first)");
+        if (errno == ENOENT)
+            throw Error(name + ": the folder " + parent.string() + " does not exist (create it first)");
         if (errno == ENOTDIR) throw Error(name + ": " + parent.string() + " is not a folder");
         throw Error(name + ": cannot be written" + errno_text(errno));
     }

@@ -41,8 +41,8 @@ public:
     void commit();
 
 private:
-    std::string target_;   // as the user gave it, for messages
-    std::string final_;    // the path replaced (a link's target)
+    std::string target_;  // as the user gave it, for messages
+    std::string final_;   // the path replaced (a link's target)
     std::string temp_;
     int fd_ = -1;
     bool done_ = false;
@@ -52,8 +52,8 @@ private:
 void write_file_safely(const std::filesystem::path& target, std::string_view bytes);
 
 // Size caps of the text inputs (stated in DEVELOPERS.md, "Files").
-inline constexpr std::size_t kTomlLimitBytes = 1u << 20;         // target sets, chords, drills, settings: 1 MB
-inline constexpr std::size_t kCsvLimitBytes = 256u << 20;        // practice-log CSV import: 256 MB
+inline constexpr std::size_t kTomlLimitBytes = 1u << 20;   // target sets, chords, drills, settings: 1 MB
+inline constexpr std::size_t kCsvLimitBytes = 256u << 20;  // practice-log CSV import: 256 MB
 
 // The whole text file at `path`, at most `limit_bytes`; `what` names the
 // kind expected ("TOML file", "CSV file"). Throws Error with one line:

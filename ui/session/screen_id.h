@@ -10,8 +10,8 @@ namespace beatless::ui {
 
 enum class ScreenId { practice, drills, ensemble, review, settings };
 
-std::string_view screen_key(ScreenId id);                     // "practice" (settings files, --screen)
-std::string_view screen_title(ScreenId id);                   // "Practice" (tabs)
-std::optional<ScreenId> parse_screen_key(std::string_view s); // case-insensitive; nullopt when unknown
+std::string_view screen_key(ScreenId id);                      // "practice" (settings files, --screen)
+std::string_view screen_title(ScreenId id);                    // "Practice" (tabs)
+std::optional<ScreenId> parse_screen_key(std::string_view s);  // case-insensitive; nullopt when unknown
 
 }  // namespace beatless::ui

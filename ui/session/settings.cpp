@@ -1,10 +1,10 @@
 // Settings — see settings.h.
 #include "ui/session/settings.h"
 
-#include "pitch/measure/ensemble_analyzer.h"
 #include "pitch/base/error.h"
-#include "pitch/theory/notes.h"
 #include "pitch/base/text.h"
+#include "pitch/measure/ensemble_analyzer.h"
+#include "pitch/theory/notes.h"
 #include "ui/session/safe_file.h"
 #include "ui/session/toml_reader.h"
 
@@ -97,8 +97,10 @@ void read_into(const TomlDoc& doc, Settings& s, Reader& r) {
     // "screen", [targets] "choice" and "fixed" were written by earlier
     // versions: they are the window's transient state, not preferences, and
     // are no longer read (a later run starts on Practice, nearest target).
-    r.only(top, {"kind", "screen", "caution_acknowledged", "a4_hz", "font_scale", "in_tune_cents", "lowest_hz", "input_device",
-                 "output_device", "midi_out", "midi_tuning", "midi_in", "drone", "targets", "ensemble"}, "");
+    r.only(top,
+           {"kind", "screen", "caution_acknowledged", "a4_hz", "font_scale", "in_tune_cents", "lowest_hz",
+            "input_device", "output_device", "midi_out", "midi_tuning", "midi_in", "drone", "targets", "ensemble"},
+           "");
     r.boolean(top, "caution_acknowledged", s.caution_acknowledged);
     r.number(top, "a4_hz", 400.0, 480.0, s.a4_hz);
     double fs_ = s.font_scale;
@@ -165,7 +167,8 @@ std::vector<std::string> changed_preferences(const Settings& s) {
     std::vector<std::string> out;
     if (s.a4_hz != d.a4_hz) out.push_back("A4 " + pitch::format_trimmed(s.a4_hz, 1) + " Hz");
     if (s.lowest_hz != d.lowest_hz) out.push_back("lowest note " + pitch::format_trimmed(s.lowest_hz, 1) + " Hz");
-    if (s.in_tune_cents != d.in_tune_cents) out.push_back("in tune within " + pitch::format_trimmed(s.in_tune_cents, 1) + " c");
+    if (s.in_tune_cents != d.in_tune_cents)
+        out.push_back("in tune within " + pitch::format_trimmed(s.in_tune_cents, 1) + " c");
     if (s.font_scale != d.font_scale) out.push_back("text size x" + pitch::format_trimmed(s.font_scale, 2));
     if (!s.input_device.empty()) out.push_back("input '" + s.input_device + "'");
     if (!s.output_device.empty()) out.push_back("output '" + s.output_device + "'");
@@ -197,7 +200,9 @@ LoadedSettings parse_settings(std::string_view text, const std::string& source) 
     read_into(doc, out.settings, r);
     if (r.problems > 0) {
         out.warning = r.first_problem;
-        if (r.problems > 1) out.warning += " (and " + std::to_string(r.problems - 1) + " more problem" + (r.problems > 2 ? "s" : "") + ")";
+        if (r.problems > 1)
+            out.warning +=
+                " (and " + std::to_string(r.problems - 1) + " more problem" + (r.problems > 2 ? "s" : "") + ")";
     }
     return out;
 }
@@ -205,7 +210,8 @@ LoadedSettings parse_settings(std::string_view text, const std::string& source) 
 LoadedSettings load_settings(const fs::path& file) {
     std::error_code ec;
     if (!fs::exists(file, ec)) return {};
-    if (fs::is_directory(file, ec)) return {Settings{}, file.string() + ": is a folder, not a settings file; using the default settings"};
+    if (fs::is_directory(file, ec))
+        return {Settings{}, file.string() + ": is a folder, not a settings file; using the default settings"};
     try {
         return parse_settings(read_text_file(file.string(), kTomlLimitBytes, "settings file"), file.string());
     } catch (const Error& e) {

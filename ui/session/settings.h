@@ -31,12 +31,12 @@ enum class TargetChoice {
 
 // The Ensemble screen's choices ([ensemble]); lists as ui/session/ensemble_plan.h reads them.
 struct EnsembleSettings {
-    std::string chord = "harmonic-seventh";      // chord text or built-in name; its root is the drone root
+    std::string chord = "harmonic-seventh";  // chord text or built-in name; its root is the drone root
     pitch::ChordReference reference = pitch::ChordReference::best_fit;  // what deviations are measured against
-    std::string input_device;                    // the multi-channel input; "" = the default input
-    std::string channels;                        // "1,2,3,4" (from 1); "" = 1, 2, ...
-    std::string names;                           // "Bass,Tenor,Alto,Soprano"; "" = the chord's parts
-    std::string voices;                          // "1,2,3,4" (1 = lowest); "" = 1, 2, ...
+    std::string input_device;  // the multi-channel input; "" = the default input
+    std::string channels;      // "1,2,3,4" (from 1); "" = 1, 2, ...
+    std::string names;         // "Bass,Tenor,Alto,Soprano"; "" = the chord's parts
+    std::string voices;        // "1,2,3,4" (1 = lowest); "" = 1, 2, ...
 
     friend bool operator==(const EnsembleSettings&, const EnsembleSettings&) = default;
 };
@@ -46,28 +46,28 @@ inline constexpr double kDefaultLowestHz = 70.0;  // Settings::lowest_hz by defa
 struct Settings {
     // Session state: lives while the window is open, never saved (a window's
     // last screen or fixed target must not change what a later run shows).
-    ScreenId screen = ScreenId::practice;        // screen shown
-    bool caution_acknowledged = false;           // the hearing caution was confirmed on screen
-    double a4_hz = 440.0;                        // 12-TET reference, 400 .. 480 Hz (default ISO 16)
-    float font_scale = 1.0f;                     // text size on top of the display's DPI scale, 0.5 .. 3 (default 1)
-    double in_tune_cents = 5.0;                  // |deviation| counted as in tune, 1 .. 25 cents (default 5, common practice)
-    double lowest_hz = kDefaultLowestHz;         // lowest f0 the live screens track, 30 .. 200 Hz (default 70;
-                                                 // 55 for a cello's C string, 38 for a double bass: slower to settle)
-    std::string input_device;                    // index or unique name part; "" = the default input
-    std::string output_device;                   // the same for the drone's output
-    std::string midi_out;                        // MIDI port for the drone on a synth; "" = none (beatless devices lists them)
-    std::string midi_tuning = "mts";             // how midi_out retunes: "mts" (MIDI Tuning Standard) or "bend" (default mts)
-    std::string midi_in;                         // MIDI keyboard port that sets the root; "" = none
+    ScreenId screen = ScreenId::practice;  // screen shown
+    bool caution_acknowledged = false;     // the hearing caution was confirmed on screen
+    double a4_hz = 440.0;                  // 12-TET reference, 400 .. 480 Hz (default ISO 16)
+    float font_scale = 1.0f;               // text size on top of the display's DPI scale, 0.5 .. 3 (default 1)
+    double in_tune_cents = 5.0;            // |deviation| counted as in tune, 1 .. 25 cents (default 5, common practice)
+    double lowest_hz = kDefaultLowestHz;   // lowest f0 the live screens track, 30 .. 200 Hz (default 70;
+                                           // 55 for a cello's C string, 38 for a double bass: slower to settle)
+    std::string input_device;              // index or unique name part; "" = the default input
+    std::string output_device;             // the same for the drone's output
+    std::string midi_out;             // MIDI port for the drone on a synth; "" = none (beatless devices lists them)
+    std::string midi_tuning = "mts";  // how midi_out retunes: "mts" (MIDI Tuning Standard) or "bend" (default mts)
+    std::string midi_in;              // MIDI keyboard port that sets the root; "" = none
     // [drone]
-    std::string root = "A2";                     // note name ("A2") or Hz ("110"); default A2 = 110 Hz at A4 440
-    audio::Timbre timbre = audio::Timbre::round; // default round
+    std::string root = "A2";                          // note name ("A2") or Hz ("110"); default A2 = 110 Hz at A4 440
+    audio::Timbre timbre = audio::Timbre::round;      // default round
     double level_dbfs = audio::kDroneStartLevelDbfs;  // RMS dBFS, -80 .. -6 (default -30)
-    bool fifth = false;                          // add 3/2 (default off)
-    bool octave = false;                         // add 2/1 (default off)
+    bool fifth = false;                               // add 3/2 (default off)
+    bool octave = false;                              // add 2/1 (default off)
     // [targets]
-    std::string target_set = "7-limit";          // built-in name or a .toml path
-    TargetChoice choice = TargetChoice::nearest; // session state, not saved
-    std::string fixed_target;                    // session state, not saved: the fixed target ("7/5"); "" = the set's first
+    std::string target_set = "7-limit";           // built-in name or a .toml path
+    TargetChoice choice = TargetChoice::nearest;  // session state, not saved
+    std::string fixed_target;  // session state, not saved: the fixed target ("7/5"); "" = the set's first
     // [ensemble]
     EnsembleSettings ensemble;
 

@@ -40,8 +40,10 @@ void check_staircase_config(const StaircaseConfig& c) {
     if (c.threshold_reversals < 2 || c.threshold_reversals > c.stop_reversals || c.threshold_reversals % 2 != 0)
         throw bad("threshold_reversals",
                   std::to_string(c.threshold_reversals) + " must be even, at least 2 and at most stop_reversals");
-    if (c.floor_run < 0 || c.floor_run > 1000) throw bad("floor_run", std::to_string(c.floor_run) + " must be 0 to 1000");
-    if (c.max_trials < 1 || c.max_trials > 10000) throw bad("max_trials", std::to_string(c.max_trials) + " must be 1 to 10000");
+    if (c.floor_run < 0 || c.floor_run > 1000)
+        throw bad("floor_run", std::to_string(c.floor_run) + " must be 0 to 1000");
+    if (c.max_trials < 1 || c.max_trials > 10000)
+        throw bad("max_trials", std::to_string(c.max_trials) + " must be 1 to 10000");
 }
 
 Staircase::Staircase(StaircaseConfig config) : config_(std::move(config)) {
@@ -58,8 +60,10 @@ void Staircase::move(int direction) {
     if (last_direction_ != 0 && direction != last_direction_) reversal_levels_.push_back(level_);
     last_direction_ = direction;
     const double s = step();
-    if (config_.scale == StepScale::geometric) level_ = direction < 0 ? level_ / s : level_ * s;
-    else level_ += direction * s;
+    if (config_.scale == StepScale::geometric)
+        level_ = direction < 0 ? level_ / s : level_ * s;
+    else
+        level_ += direction * s;
     level_ = std::clamp(level_, config_.min_level, config_.max_level);
 }
 

@@ -36,17 +36,18 @@ enum class StopReason {
 };
 
 struct StaircaseConfig {
-    int n_down = 2;                                          // correct in a row for a step down; default 2 (70.7 %)
-    int n_up = 1;                                            // wrong in a row for a step up; default 1
-    StepScale scale = StepScale::geometric;                  // default geometric
-    double start_level = 40.0;                               // first difference presented, cents; default 40
-    std::vector<double> steps = {2.0, 2.0, 1.4142, 1.4142, 1.1892};  // step after 0, 1, 2... reversals; the last repeats
-    double min_level = 0.5;                                  // cents; default 0.5
-    double max_level = 200.0;                                // cents; default 200
-    int stop_reversals = 12;                                 // the run ends after this many; default 12
-    int threshold_reversals = 8;                             // the last this many make the threshold (even); default 8
-    int max_trials = 150;                                    // the run also ends after this many answers; default 150
-    int floor_run = 0;                                       // ... or this many right in a row at min_level (0: never); default 0
+    int n_down = 2;                          // correct in a row for a step down; default 2 (70.7 %)
+    int n_up = 1;                            // wrong in a row for a step up; default 1
+    StepScale scale = StepScale::geometric;  // default geometric
+    double start_level = 40.0;               // first difference presented, cents; default 40
+    std::vector<double> steps = {2.0, 2.0, 1.4142, 1.4142,
+                                 1.1892};  // step after 0, 1, 2... reversals; the last repeats
+    double min_level = 0.5;                // cents; default 0.5
+    double max_level = 200.0;              // cents; default 200
+    int stop_reversals = 12;               // the run ends after this many; default 12
+    int threshold_reversals = 8;           // the last this many make the threshold (even); default 8
+    int max_trials = 150;                  // the run also ends after this many answers; default 150
+    int floor_run = 0;                     // ... or this many right in a row at min_level (0: never); default 0
 };
 
 // Throws Error naming the field when a setting is out of range.
@@ -56,15 +57,15 @@ class Staircase {
 public:
     explicit Staircase(StaircaseConfig config);  // throws Error on a bad config
 
-    double level() const { return level_; }                 // difference to present next, cents
-    void record(bool correct);                              // the listener's answer at level()
-    bool done() const;                                      // enough reversals, max_trials, or floor_run at the floor
+    double level() const { return level_; }  // difference to present next, cents
+    void record(bool correct);               // the listener's answer at level()
+    bool done() const;                       // enough reversals, max_trials, or floor_run at the floor
     StopReason stop_reason() const;
     int trials() const { return trials_; }
     int correct_count() const { return correct_; }
     int reversals() const { return static_cast<int>(reversal_levels_.size()); }
     const std::vector<double>& reversal_levels() const { return reversal_levels_; }
-    double step() const;                                    // step size in use now
+    double step() const;  // step size in use now
     // Mean of the last threshold_reversals reversal levels; NaN until there are that many.
     double threshold() const;
     const StaircaseConfig& config() const { return config_; }

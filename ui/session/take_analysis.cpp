@@ -1,13 +1,13 @@
 // Take analysis (take_analysis.h).
 #include "ui/session/take_analysis.h"
 
-#include "pitch/dsp/decimator.h"
-#include "pitch/dsp/signal_facts.h"
-#include "pitch/dsp/drone_comb.h"
 #include "pitch/base/error.h"
 #include "pitch/base/text.h"
-#include "pitch/measure/two_voice.h"
+#include "pitch/dsp/decimator.h"
+#include "pitch/dsp/drone_comb.h"
+#include "pitch/dsp/signal_facts.h"
 #include "pitch/dsp/yin.h"
+#include "pitch/measure/two_voice.h"
 
 #include <algorithm>
 #include <array>
@@ -26,13 +26,15 @@ constexpr double kNoteHopS = 0.01;
 
 void check_sound(const pitch::SignalFacts& f, const std::string& path) {
     if (!(f.loudest_dbfs >= kSilenceDbfs))
-        throw Error(path + ": silent (no sound above " + pitch::format_trimmed(kSilenceDbfs, 0) + " dBFS); nothing to analyze");
+        throw Error(path + ": silent (no sound above " + pitch::format_trimmed(kSilenceDbfs, 0) +
+                    " dBFS); nothing to analyze");
 }
 
 // Reports progress at most every 1/200 of the job.
 class Ticker {
 public:
-    Ticker(const ProgressFn& fn, double len_frames, int passes) : fn_(fn), len_(std::max(1.0, len_frames)), passes_(passes) {}
+    Ticker(const ProgressFn& fn, double len_frames, int passes)
+        : fn_(fn), len_(std::max(1.0, len_frames)), passes_(passes) {}
     void at(int pass, std::int64_t pos, const char* stage) {
         if (!fn_) return;
         const double f = std::min(1.0, (pass + static_cast<double>(pos) / len_) / passes_);
@@ -66,11 +68,12 @@ pitch::RootEstimate find_drone(audio::SoundReader& reader, const AnalysisRequest
     }
     const pitch::RootEstimate e = rd.estimate();
     if (e.status == pitch::RootStatus::no_sound)
-        throw Error(req.path + ": silent (no sound above " + pitch::format_trimmed(kSilenceDbfs, 0) + " dBFS); nothing to analyze");
+        throw Error(req.path + ": silent (no sound above " + pitch::format_trimmed(kSilenceDbfs, 0) +
+                    " dBFS); nothing to analyze");
     if (!e.found() && !req.root_hz)
-        throw Error(req.path + ": no steady drone or pedal tone found (best candidate " + pitch::format_trimmed(e.root_hz, 2) +
-                    " Hz, confidence " + pitch::format_trimmed(e.confidence, 2) + " below " +
-                    pitch::format_trimmed(rc.min_confidence, 2) + "); give --root NOTE|HZ");
+        throw Error(req.path + ": no steady drone or pedal tone found (best candidate " +
+                    pitch::format_trimmed(e.root_hz, 2) + " Hz, confidence " + pitch::format_trimmed(e.confidence, 2) +
+                    " below " + pitch::format_trimmed(rc.min_confidence, 2) + "); give --root NOTE|HZ");
     return e;
 }
 
@@ -157,7 +160,8 @@ OneVoiceAnalysis analyze_one_voice(audio::SoundReader& reader, const AnalysisReq
     return out;
 }
 
-TwoVoiceAnalysis analyze_two_voices(audio::SoundReader& reader, const AnalysisRequest& req, const ProgressFn& progress) {
+TwoVoiceAnalysis analyze_two_voices(audio::SoundReader& reader, const AnalysisRequest& req,
+                                    const ProgressFn& progress) {
     TwoVoiceAnalysis out;
     out.info = reader.info();
     const double rate = out.info.sample_rate_hz;

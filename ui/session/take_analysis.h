@@ -22,12 +22,12 @@
 namespace beatless::ui {
 
 struct AnalysisRequest {
-    std::string path;                    // the sound file
-    int channel = -1;                    // -1 mixes all channels; 0.. picks one
-    std::optional<double> root_hz;       // one voice: the drone's root; empty = find it
-    pitch::TargetSet targets;            // must not be empty
-    bool keep_trace = false;             // fill the decimated trace (for the report)
-    std::optional<double> lowest_hz;     // one voice: the tracker's floor (default 55 Hz); a lower one lengthens its span
+    std::string path;                 // the sound file
+    int channel = -1;                 // -1 mixes all channels; 0.. picks one
+    std::optional<double> root_hz;    // one voice: the drone's root; empty = find it
+    pitch::TargetSet targets;         // must not be empty
+    bool keep_trace = false;          // fill the decimated trace (for the report)
+    std::optional<double> lowest_hz;  // one voice: the tracker's floor (default 55 Hz); a lower one lengthens its span
 };
 
 // Called with the share of the whole job done (0..1) and the pass's name.
@@ -36,16 +36,16 @@ using ProgressFn = std::function<void(double fraction, const char* stage)>;
 struct OneVoiceAnalysis {
     audio::SoundInfo info;
     bool root_given = false;
-    pitch::RootEstimate root;            // the drone detection (status may be no_steady_root when a root is given)
-    double root_hz = 0.0;                // the root the notes are measured against
-    double drone_hz = 0.0;               // the drone the comb removed, 0 when none was found
-    double hop_s = 0.0;                  // tracker hop
+    pitch::RootEstimate root;  // the drone detection (status may be no_steady_root when a root is given)
+    double root_hz = 0.0;      // the root the notes are measured against
+    double drone_hz = 0.0;     // the drone the comb removed, 0 when none was found
+    double hop_s = 0.0;        // tracker hop
     std::vector<pitch::NoteResult> notes;
-    std::vector<std::int64_t> notes_clipped;   // per note: samples at full scale during it
+    std::vector<std::int64_t> notes_clipped;  // per note: samples at full scale during it
     std::vector<pitch::TargetSummary> summary;
     std::size_t short_notes_dropped = 0;
     pitch::SignalFacts facts;
-    pitch::DecimatedTrace trace;         // cents above the root (when keep_trace)
+    pitch::DecimatedTrace trace;  // cents above the root (when keep_trace)
 };
 
 struct TwoVoiceAnalysis {
@@ -55,15 +55,17 @@ struct TwoVoiceAnalysis {
     std::vector<pitch::TargetSummary> summary;
     std::size_t short_dyads_dropped = 0;
     pitch::SignalFacts facts;
-    pitch::DecimatedTrace trace;         // interval in cents, high above low (when keep_trace)
+    pitch::DecimatedTrace trace;  // interval in cents, high above low (when keep_trace)
 };
 
 // Throws Error: file problems (audio/soundfile.h), "FILE: silent ...", and
 // when the root is to be found "FILE: no steady drone or pedal tone found ...".
 // The reader (opened once with the request's path and channel, blocks of
 // kAnalysisBlockFrames) must be seekable: the one-voice analysis reads it twice.
-OneVoiceAnalysis analyze_one_voice(audio::SoundReader& reader, const AnalysisRequest& request, const ProgressFn& progress = {});
-TwoVoiceAnalysis analyze_two_voices(audio::SoundReader& reader, const AnalysisRequest& request, const ProgressFn& progress = {});
+OneVoiceAnalysis analyze_one_voice(audio::SoundReader& reader, const AnalysisRequest& request,
+                                   const ProgressFn& progress = {});
+TwoVoiceAnalysis analyze_two_voices(audio::SoundReader& reader, const AnalysisRequest& request,
+                                    const ProgressFn& progress = {});
 // The same, opening the request's file.
 OneVoiceAnalysis analyze_one_voice(const AnalysisRequest& request, const ProgressFn& progress = {});
 TwoVoiceAnalysis analyze_two_voices(const AnalysisRequest& request, const ProgressFn& progress = {});

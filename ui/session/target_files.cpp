@@ -19,8 +19,7 @@ std::vector<std::string> builtin_names(std::string_view kind) {
             const TomlDoc d = parse_toml(f.text, f.name, kind);
             std::string n = f.name;
             out.push_back(n.substr(0, n.size() - 5));
-        } catch (const Error&) {
-        }
+        } catch (const Error&) {}
     }
     std::sort(out.begin(), out.end());
     return out;
@@ -94,7 +93,8 @@ pitch::TargetSet load_target_set(std::string_view name_or_path) {
         return parse_target_set(read_toml_text(path), path);
     }
     for (const auto& f : embedded_target_files()) {
-        if (std::string(name_or_path) + ".toml" == f.name) return parse_target_set(f.text, "targets/" + std::string(f.name));
+        if (std::string(name_or_path) + ".toml" == f.name)
+            return parse_target_set(f.text, "targets/" + std::string(f.name));
     }
     (void)load_toml(name_or_path, "targets");  // throws naming the known sets
     throw Error("'" + std::string(name_or_path) + "': no built-in target set of that name");
@@ -110,7 +110,9 @@ const pitch::IntervalNames& interval_names() {
         if (!t) throw Error(doc.source + ": `[names]`: required table missing");
         for (const auto& [k, v] : *t) {
             const auto s = v.value<std::string>();
-            if (!s) throw Error(where(doc, v) + "`" + std::string(k.str()) + "`: must be a string, not " + describe_type(v));
+            if (!s)
+                throw Error(where(doc, v) + "`" + std::string(k.str()) + "`: must be a string, not " +
+                            describe_type(v));
             names.add(pitch::parse_interval(k.str()), *s);
         }
     });

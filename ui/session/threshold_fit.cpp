@@ -7,9 +7,9 @@
 namespace beatless::ui {
 
 namespace {
-constexpr int kGrid = 721;          // log grid points
-constexpr double kGridBelow = 16.0; // the grid reaches min_cents / 16 ...
-constexpr double kGridAbove = 16.0; // ... and max_cents * 16
+constexpr int kGrid = 721;           // log grid points
+constexpr double kGridBelow = 16.0;  // the grid reaches min_cents / 16 ...
+constexpr double kGridAbove = 16.0;  // ... and max_cents * 16
 }  // namespace
 
 double fit_p_correct(const FitConfig& c, double t, double d) {

@@ -26,13 +26,13 @@
 namespace beatless::ui {
 
 struct FitConfig {
-    double guess = 0.5;          // gamma, chance of a right guess; default 1/2 (two alternatives)
-    double lapse = 0.02;         // lambda, assumed lapse rate; default 0.02 (Wichmann & Hill 2001: 0 to 0.06)
-    double slope = 3.0;          // Weibull beta, assumed; default 3 (ours)
-    double threshold_p = 0.7071; // the threshold's chance of a right answer; default 0.7071 (2-down/1-up)
-    double min_cents = 0.5;      // the smallest level the drill may play, cents; default 0.5
-    double max_cents = 100.0;    // the largest, cents; default 100
-    double chi2_crit = 5.024;    // the likelihood cut, 2 x log-likelihood; default 5.024 (calibrated to 95 %, see above)
+    double guess = 0.5;           // gamma, chance of a right guess; default 1/2 (two alternatives)
+    double lapse = 0.02;          // lambda, assumed lapse rate; default 0.02 (Wichmann & Hill 2001: 0 to 0.06)
+    double slope = 3.0;           // Weibull beta, assumed; default 3 (ours)
+    double threshold_p = 0.7071;  // the threshold's chance of a right answer; default 0.7071 (2-down/1-up)
+    double min_cents = 0.5;       // the smallest level the drill may play, cents; default 0.5
+    double max_cents = 100.0;     // the largest, cents; default 100
+    double chi2_crit = 5.024;  // the likelihood cut, 2 x log-likelihood; default 5.024 (calibrated to 95 %, see above)
 };
 
 enum class ThresholdVerdict {
@@ -46,7 +46,7 @@ struct ThresholdEstimate {
     double threshold_cents = NAN;  // the maximum-likelihood threshold (measured only)
     double lo_cents = NAN;         // the interval (measured only; lo may be 0: not bounded below)
     double hi_cents = NAN;
-    double smallest_cents = NAN;   // finer: the smallest level played
+    double smallest_cents = NAN;  // finer: the smallest level played
     int trials = 0;
 };
 

@@ -56,7 +56,8 @@ std::string key_on_line(std::string_view line) {
 
 // The TOML library's description of a syntax error, in our words.
 std::string syntax_problem(std::string_view d) {
-    if (contains(d, "unknown escape sequence")) return "a backslash starts an unknown escape in a string (write \\\\ for a backslash)";
+    if (contains(d, "unknown escape sequence"))
+        return "a backslash starts an unknown escape in a string (write \\\\ for a backslash)";
     if (contains(d, "cannot redefine")) return "given twice: keep one";
     if (contains(d, "string")) return "a string is not closed: add the closing quote on this line";
     if (contains(d, "table header")) return "a table header is not closed: write [name] or [[name]]";
@@ -118,7 +119,8 @@ std::size_t edit_distance(std::string_view a, std::string_view b) {
         for (std::size_t j = 1; j <= b.size(); ++j) {
             const std::size_t cost = a[i - 1] == b[j - 1] ? 0 : 1;
             d[i][j] = std::min({d[i - 1][j] + 1, d[i][j - 1] + 1, d[i - 1][j - 1] + cost});
-            if (i > 1 && j > 1 && a[i - 1] == b[j - 2] && a[i - 2] == b[j - 1]) d[i][j] = std::min(d[i][j], d[i - 2][j - 2] + 1);
+            if (i > 1 && j > 1 && a[i - 1] == b[j - 2] && a[i - 2] == b[j - 1])
+                d[i][j] = std::min(d[i][j], d[i - 2][j - 2] + 1);
         }
     return d[a.size()][b.size()];
 }
@@ -163,7 +165,8 @@ std::string unknown_key_problem(const TomlDoc& doc, std::string_view key, const 
     return msg;
 }
 
-void check_keys(const TomlDoc& doc, const toml::table& t, std::initializer_list<std::string_view> known, std::string_view section) {
+void check_keys(const TomlDoc& doc, const toml::table& t, std::initializer_list<std::string_view> known,
+                std::string_view section) {
     for (const auto& [k, v] : t)
         if (std::find(known.begin(), known.end(), k.str()) == known.end())
             throw Error(unknown_key_problem(doc, k.str(), v, known, section));
@@ -181,9 +184,12 @@ TomlDoc parse_toml(std::string_view text, std::string source, std::string_view k
                     syntax_problem(e.description()));
     }
     const auto k = doc.table["kind"];
-    if (!k) throw Error(doc.source + ": `kind`: required key missing (write kind = \"" + std::string(kind) + "\" on the first line)");
+    if (!k)
+        throw Error(doc.source + ": `kind`: required key missing (write kind = \"" + std::string(kind) +
+                    "\" on the first line)");
     if (!k.is_string() || k.value_or(std::string()) != kind)
-        throw Error(where(doc, k) + "`kind`: is " + (k.is_string() ? "\"" + k.value_or(std::string()) + "\"" : describe_type(*k.node())) +
+        throw Error(where(doc, k) + "`kind`: is " +
+                    (k.is_string() ? "\"" + k.value_or(std::string()) + "\"" : describe_type(*k.node())) +
                     ", expected \"" + std::string(kind) + "\"");
     return doc;
 }
@@ -212,27 +218,32 @@ TomlDoc load_toml(std::string_view name_or_path, std::string_view kind) {
 std::string require_string(const TomlDoc& doc, const toml::table& t, std::string_view key) {
     const auto v = t[key];
     if (!v) throw Error(where(doc, t) + ticked(key) + ": required key missing");
-    if (!v.is_string()) throw Error(where(doc, v) + ticked(key) + ": must be a string, not " + describe_type(*v.node()));
+    if (!v.is_string())
+        throw Error(where(doc, v) + ticked(key) + ": must be a string, not " + describe_type(*v.node()));
     return pitch::printable(*v.value<std::string>());
 }
 
 std::string optional_string(const TomlDoc& doc, const toml::table& t, std::string_view key, std::string fallback) {
     const auto v = t[key];
     if (!v) return fallback;
-    if (!v.is_string()) throw Error(where(doc, v) + ticked(key) + ": must be a string, not " + describe_type(*v.node()));
+    if (!v.is_string())
+        throw Error(where(doc, v) + ticked(key) + ": must be a string, not " + describe_type(*v.node()));
     return pitch::printable(*v.value<std::string>());
 }
 
 double optional_number(const TomlDoc& doc, const toml::table& t, std::string_view key, double fallback) {
     const auto v = t[key];
     if (!v) return fallback;
-    if (!v.is_number()) throw Error(where(doc, v) + ticked(key) + ": must be a number, not " + describe_type(*v.node()));
+    if (!v.is_number())
+        throw Error(where(doc, v) + ticked(key) + ": must be a number, not " + describe_type(*v.node()));
     return *v.value<double>();
 }
 
 const toml::array& require_array_of_tables(const TomlDoc& doc, const toml::table& t, std::string_view key) {
     const auto v = t[key];
-    if (!v) throw Error(where(doc, t) + ticked("[[" + std::string(key) + "]]") + ": required table missing (add at least one)");
+    if (!v)
+        throw Error(where(doc, t) + ticked("[[" + std::string(key) + "]]") +
+                    ": required table missing (add at least one)");
     const toml::array* a = v.as_array();
     if (!a || !a->is_array_of_tables() || a->empty())
         throw Error(where(doc, v) + ticked(key) + ": must be a list of [[" + std::string(key) + "]] tables, not " +

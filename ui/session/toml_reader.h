@@ -14,7 +14,7 @@
 namespace beatless::ui {
 
 struct TomlDoc {
-    std::string source;   // file path or "targets/<name>.toml"
+    std::string source;  // file path or "targets/<name>.toml"
     toml::table table;
 };
 

@@ -33,8 +33,10 @@ void VerdictTracker::take(const pitch::Reading& r) noexcept {
         ++sure_run_;
         // A lone frame far from the verdict (a note's ragged end, an octave
         // slip) waits for frames that agree with it before it is believed.
-        if (v_.state == VerdictState::live && std::fabs(r.cents_above_root - v_.reading.cents_above_root) > cfg_.jump_cents) {
-            if (jump_run_ > 0 && std::fabs(r.cents_above_root - jump_from_cents_) <= cfg_.jump_cents) ++jump_run_;
+        if (v_.state == VerdictState::live &&
+            std::fabs(r.cents_above_root - v_.reading.cents_above_root) > cfg_.jump_cents) {
+            if (jump_run_ > 0 && std::fabs(r.cents_above_root - jump_from_cents_) <= cfg_.jump_cents)
+                ++jump_run_;
             else {
                 jump_run_ = 1;
                 jump_from_cents_ = r.cents_above_root;
@@ -54,14 +56,16 @@ void VerdictTracker::take(const pitch::Reading& r) noexcept {
     if (!std::isfinite(unsure_since_t_s_) || last_kind_ != kind) unsure_since_t_s_ = r.t_s;
     last_kind_ = kind;
     const double run_s = r.t_s - unsure_since_t_s_;
-    constexpr VerdictState kStates[] = {VerdictState::silent, VerdictState::silent, VerdictState::unpitched, VerdictState::uncertain};
+    constexpr VerdictState kStates[] = {VerdictState::silent, VerdictState::silent, VerdictState::unpitched,
+                                        VerdictState::uncertain};
     if (run_s + 1e-9 >= cfg_.silent_after_s) quiet(kStates[kind], run_s);
 }
 
 void VerdictTracker::tick(double dt_s) noexcept {
     if (!(dt_s > 0.0)) return;
     since_reading_s_ += dt_s;
-    if (since_reading_s_ >= cfg_.silent_after_s && v_.state != VerdictState::idle) quiet(VerdictState::silent, since_reading_s_);
+    if (since_reading_s_ >= cfg_.silent_after_s && v_.state != VerdictState::idle)
+        quiet(VerdictState::silent, since_reading_s_);
 }
 
 void VerdictTracker::reset() noexcept {

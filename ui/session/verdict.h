@@ -24,24 +24,24 @@ enum class VerdictSource {
 };
 
 struct VerdictConfig {
-    double silent_after_s = 0.06;      // unvoiced (or no frames) this long: silent (default 60 ms, within the 100 ms rule)
-    double sure_confidence = 0.7;      // frames below this count as uncertain (default 0.7)
-    double sound_dbfs = -50.0;         // unvoiced frames at least this loud are "unpitched", not silent (default -50 dBFS)
-    int frames_to_resume = 2;          // voiced, sure frames in a row before a verdict is current again (default 2)
-    double jump_cents = 80.0;          // a reading this far from the verdict ... (default 80 cents)
-    int frames_to_jump = 5;            // ... must be confirmed by this many agreeing frames in a row (default 5 = 25 ms;
-                                       // a drone partial left after a note ends can last 15 ms)
+    double silent_after_s = 0.06;  // unvoiced (or no frames) this long: silent (default 60 ms, within the 100 ms rule)
+    double sure_confidence = 0.7;  // frames below this count as uncertain (default 0.7)
+    double sound_dbfs = -50.0;     // unvoiced frames at least this loud are "unpitched", not silent (default -50 dBFS)
+    int frames_to_resume = 2;      // voiced, sure frames in a row before a verdict is current again (default 2)
+    double jump_cents = 80.0;      // a reading this far from the verdict ... (default 80 cents)
+    int frames_to_jump = 5;        // ... must be confirmed by this many agreeing frames in a row (default 5 = 25 ms;
+                                   // a drone partial left after a note ends can last 15 ms)
 };
 
 struct Verdict {
     VerdictState state = VerdictState::idle;
     VerdictSource source = VerdictSource::instant;
-    double dev_cents = NAN;            // the verdict: + sharp, against reading.target_cents
-    double cents_above_root = NAN;     // the same pitch above the root
-    double f0_hz = NAN;                // the same pitch in Hz
-    double beat_hz = NAN;              // the audible pair's rate at that pitch
-    double quiet_s = 0.0;              // silent or uncertain: for how long
-    pitch::Reading reading{};          // the voiced reading it comes from (target, pairs, confidence)
+    double dev_cents = NAN;         // the verdict: + sharp, against reading.target_cents
+    double cents_above_root = NAN;  // the same pitch above the root
+    double f0_hz = NAN;             // the same pitch in Hz
+    double beat_hz = NAN;           // the audible pair's rate at that pitch
+    double quiet_s = 0.0;           // silent or uncertain: for how long
+    pitch::Reading reading{};       // the voiced reading it comes from (target, pairs, confidence)
 
     bool current() const { return state == VerdictState::live; }
     bool known() const { return state != VerdictState::idle && reading.voiced(); }  // a value to show, current or last
@@ -65,11 +65,11 @@ private:
     void quiet(VerdictState s, double for_s) noexcept;
     VerdictConfig cfg_;
     Verdict v_;
-    double unsure_since_t_s_ = NAN;    // stream time the current unvoiced or unsure run began
-    double since_reading_s_ = 0.0;     // screen time since the last reading arrived
+    double unsure_since_t_s_ = NAN;  // stream time the current unvoiced or unsure run began
+    double since_reading_s_ = 0.0;   // screen time since the last reading arrived
     int sure_run_ = 0;
-    int last_kind_ = 0;                // 1 unvoiced and quiet, 2 unvoiced with sound, 3 voiced but unsure
-    double jump_from_cents_ = NAN;     // the first frame of a pending jump, cents above the root
+    int last_kind_ = 0;             // 1 unvoiced and quiet, 2 unvoiced with sound, 3 voiced but unsure
+    double jump_from_cents_ = NAN;  // the first frame of a pending jump, cents above the root
     int jump_run_ = 0;
 };
 

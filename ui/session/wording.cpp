@@ -21,7 +21,11 @@ std::string beat_heard_word(double beat_hz, bool drone_sounds) {
 
 std::string ordinal(int n) {
     const int m100 = n % 100;
-    const char* suffix = (m100 >= 11 && m100 <= 13) ? "th" : n % 10 == 1 ? "st" : n % 10 == 2 ? "nd" : n % 10 == 3 ? "rd" : "th";
+    const char* suffix = (m100 >= 11 && m100 <= 13) ? "th"
+                         : n % 10 == 1              ? "st"
+                         : n % 10 == 2              ? "nd"
+                         : n % 10 == 3              ? "rd"
+                                                    : "th";
     return std::to_string(n) + suffix;
 }
 
@@ -50,9 +54,11 @@ std::string choice_text(audio::ChoiceWhy why, audio::Direction dir) {
     switch (why) {
         case audio::ChoiceWhy::named: return std::string("the ") + (in ? "input" : "output") + " asked for by name";
         case audio::ChoiceWhy::index: return std::string("the ") + (in ? "input" : "output") + " asked for by index";
-        case audio::ChoiceWhy::server_default: return std::string("the sound server's default ") + (in ? "source" : "sink");
+        case audio::ChoiceWhy::server_default:
+            return std::string("the sound server's default ") + (in ? "source" : "sink");
         case audio::ChoiceWhy::server_first:
-            return std::string("the sound server's first ") + (in ? "source" : "sink") + " by name (it has no default set)";
+            return std::string("the sound server's first ") + (in ? "source" : "sink") +
+                   " by name (it has no default set)";
         case audio::ChoiceWhy::host_default:
             return std::string("the host's default ") + (in ? "input" : "output") + " (no sound server default)";
         case audio::ChoiceWhy::first_listed:

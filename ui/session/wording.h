@@ -1,8 +1,8 @@
 // Words shared by the commands and the screens: ordinals, how a beat is heard, a group's references and states.
 #pragma once
 
-#include "pitch/measure/ensemble_analyzer.h"
 #include "audio/device.h"
+#include "pitch/measure/ensemble_analyzer.h"
 
 #include <string>
 #include <string_view>
@@ -14,7 +14,8 @@ std::string ordinal(int n);  // 1 -> "1st", 12 -> "12th"
 // "still", "countable", "flutter", "rough"; "no drone" when none sounds; "-" when no pair beats.
 std::string beat_heard_word(double beat_hz, bool drone_sounds);
 std::string_view reference_title(pitch::ChordReference r);  // "Drone root", "Sounding bass", "Best-fit root"
-std::string_view player_state_word(pitch::PlayerState s);   // "sounding", "resting", "silent channel", "same voice as", "other note"
+std::string_view player_state_word(
+    pitch::PlayerState s);  // "sounding", "resting", "silent channel", "same voice as", "other note"
 // Why a device was chosen, after "chosen as": "the sound server's default source", ...
 std::string choice_text(audio::ChoiceWhy why, audio::Direction dir);
 
