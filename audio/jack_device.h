@@ -1,16 +1,7 @@
-// JACK devices — a JACK server's physical ports behind AudioSystem, through libjack.
-//
-// Method: the JACK API (jackaudio.org, jack.h): each stream is a client of its
-// own with one port per channel, connected to the device's physical ports
-// (a device is a client prefix such as "system"). Why not PortAudio's JACK
-// host: closing its stream after the server died waits for a process callback
-// that never comes (PortAudio 19.6 waits ten minutes), and it cannot be
-// re-initialised meanwhile; a libjack client closes in milliseconds after the
-// server died, and a new client joins the restarted server.
-// Thread: setup on the caller's thread; the process callback runs on JACK's
-// thread and only (de)interleaves into preallocated scratch and calls
-// StreamCallbacks. Supports: duplex, any channel count, the server's rate.
-// Does not: start a server, change the server's rate or period.
+// JACK devices — a JACK server's physical ports behind AudioSystem, through libjack (jackaudio.org, jack.h):
+// each stream is a client of its own, so a dead server is left in milliseconds and a restarted one rejoined
+// (PortAudio 19.6's JACK host cannot do either; DEVELOPERS.md, "Methods in detail").
+// Thread: setup on the caller's; the process callback on JACK's thread only (de)interleaves into preallocated scratch.
 #pragma once
 
 #include <string>

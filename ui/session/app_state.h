@@ -1,22 +1,7 @@
-// AppState — what every screen shares: settings, the live engine, the
-// readings of the last seconds, the drone controls and on-screen messages.
-//
-// The screens call it from the one control thread (the window's or the
-// snapshot's frame loop). Each frame, update() takes every new reading from
-// the engine into a preallocated trace store (the last trace_s seconds),
-// keeps the newest voiced reading, advances the beat pulse, fades a
-// starting drone in, watches the devices, and saves changed settings at
-// most once a second. In simulated time (`beatless snapshot`) there is no
-// audio thread: update() renders the demo performer block by block and runs
-// the analysis itself, so a snapshot is the same for every run.
-// While a drill runs (the Drills screen), its drone and its current target
-// replace the settings' for the engine (nothing of it is saved), and the
-// demo performer can be given the drill's notes to sing.
-// Hearing safety: the drone cannot start before the caution is acknowledged,
-// it starts at the saved level (-30 dBFS unless changed) with a one-second
-// fade from silence, and the engine's limiter caps its peaks at -6 dBFS.
-//
-// Index: AppOptions, TraceStore, AppState (setup, frame, drone, targets, readings, messages).
+// AppState — what every screen shares: settings, the one live engine, the readings of the last seconds, the drone
+// controls, drills' overrides and on-screen messages; simulated time for snapshots. Hearing safety lives here:
+// no drone before the caution is acknowledged, a one-second fade in, the engine's limiter (DEVELOPERS.md).
+// Thread: the one control thread (the window's or the snapshot's frame loop).
 #pragma once
 
 #include "audio/demo_performer.h"

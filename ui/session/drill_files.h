@@ -1,28 +1,7 @@
-// Drill files — scored exercises as TOML files in targets/ (kind = "drill").
-//
-// A hold drill sounds the drone, announces each target (and optionally plays
-// it), then scores the performer's hold (ui/session/drill_score.h). An ear drill
-// either measures how small a mistuning of one interval the listener hears
-// (task "discriminate": a staircase, ui/session/staircase.h, and a fitted
-// threshold, ui/session/threshold_fit.h) or asks which of several intervals
-// sounded (task "identify": a confusion matrix); see ui/session/ear_question.h.
-// Keys (all ours; a key this loader does not know is an error, so typos are caught):
-//   title, about                 text for the Drills screen
-//   mode = "hold" | "ear"
-//   [drone] root (note or Hz, default "A2"), level_dbfs (-60..-6, default
-//           -24), partials (harmonics 1..32, default 6), fifth (default false)
-//   [[target]] interval, name (optional), hold_s (optional, hold drills);
-//           or target_set = "tritones" to take a target set's targets
-//   repetitions (1..50, default 1), order = "sequence" | "shuffle"
-//   hold:   hold_s (default 4), lead_in_s (2), rest_s (1), tolerance_cents
-//           (10), dwell_s (0.3), sound_target (false)
-//   ear:    task = "discriminate" | "identify", tone_s (default 2);
-//           discriminate: exactly one [[target]], [staircase] rule ("2-down"
-//           or "3-down"), scale ("geometric" | "linear"), start_cents, steps,
-//           min_cents, max_cents, stop_reversals, threshold_reversals,
-//           max_trials, floor_run (defaults of StaircaseConfig);
-//           identify: two or more targets, rounds (1..50, default 8)
-// Errors name the file, line and key: "my-drill.toml:7: `hold_s`: 0 is out of range (0.5 to 120)".
+// Drill files — scored exercises as TOML files in targets/ (kind = "drill"): hold drills and ear drills.
+// Keys are ours and listed in DEVELOPERS.md, "Methods in detail" (a key this loader does not know is an error);
+// errors name the file, line and key: "my-drill.toml:7: `hold_s`: 0 is out of range (0.5 to 120)".
+// Thread: any. Allocates: yes.
 #pragma once
 
 #include "pitch/theory/targets.h"

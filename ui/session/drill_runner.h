@@ -1,42 +1,7 @@
-// Drill runner — one run of a drill as a state machine, driven by a clock
-// and by readings; scores each hold, logs each attempt, says what to sound.
-//
-// Every run opens with ready: settle_s of drone alone (the ear settles, and
-// drone removal learns the room before any other sound). Then
-// hold drills (ui/session/drill_files.h), for each target of Drill::sequence(seed):
-//   announce   the target is shown; with sound_target its tone sounds first
-//              (tone_s), and the announcement lasts tone_s + announce_gap_s,
-//              otherwise announce_s
-//   count_in   lead_in_s of drone alone, counted down
-//   hold       hold_of(target): readings with t in [start, start + hold) are kept
-//   rest       rest_s: the result is shown
-// then finished. A hold is scored (ui/session/drill_score.h, deviation per
-// Reading::dev_cents by default) as soon as a reading at or past its end has
-// arrived, or score_wait_s after its end if the input stopped, whatever the
-// phase is by then (a voiced stretch shorter than min_voiced_s counts as
-// unvoiced first: an onset or release blip of the tracker, not singing):
-// the schedule never waits, so the performer (or the demo
-// performer, see planned_holds()) can follow it by the clock alone. The
-// attempt and its trace go to the LogWriter at once, on the caller's thread
-// (never the audio callback); when the log cannot be written the writer
-// keeps them and log_warning() gives the one line to show.
-// Ear drills ask question after question until the staircase is done
-// (discriminate) or every interval has been asked its rounds (identify):
-//   ear_play      the question's tones (one, or two ear_gap_s apart); an
-//                 answer counts once the last tone has begun
-//   ear_answer    waiting for the answer, for as long as it takes
-//   ear_feedback  feedback_s: right or wrong, and what it was
-// then the session (the fitted threshold and its interval, or the confusion
-// matrix; every answer as one trace record) is logged. Tones are requests
-// the caller takes (take_tones()) and plays with the engine's reference
-// voice. Time is the caller's: stream time live, simulated time in
-// snapshots and `beatless drill --listener`, a fake clock in tests.
-//
-// Thread: one thread (the screen's or the command's). Allocates: in start()
-// and when an attempt is scored; feed() only appends to a buffer sized in
-// start().
-//
-// Index: DrillPhase, RunnerConfig, results, DrillRunner, words for the results.
+// Drill runner — one run of a drill as a state machine driven by a clock and by readings: it scores each hold,
+// logs each attempt and says what to sound. Method: ours (phases ready, announce, count_in, hold, rest for holds;
+// ear_play, ear_answer, ear_feedback for ear drills); DEVELOPERS.md, "Methods in detail".
+// Thread: one thread (the screen's or the command's). Allocates: in start() and when an attempt is scored.
 #pragma once
 
 #include "audio/demo_performer.h"

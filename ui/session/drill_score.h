@@ -1,37 +1,6 @@
-// Drill score — how well one hold of a target was sung or played.
-//
-// Scores a hold drill from the pitch readings of one attempt: the time to
-// lock into the tolerance band, the mean signed deviation and its spread
-// (standard deviation) while held, and the share of the voiced time spent
-// within tolerance. No published method: the definitions below are ours
-// (common practice in intonation teaching is "how fast did you get there,
-// how close, how steady"). Steps: (1) keep points inside the hold window,
-// (2) find the first lock, (3) weighted mean and spread after it, (4) shares.
-//
-// Definitions (all times in seconds, deviations in cents, + is sharp):
-//   window   W = [hold_start_s, hold_start_s + hold_dur_s); points outside
-//            are ignored. Each point stands for the span [t, t + hop_s),
-//            cut at the end of W; that span is its weight w.
-//   in       a point is "in" when voiced, its deviation finite and
-//            |dev| <= tolerance_cents (the band's edge counts as in).
-//   run      consecutive in-points, where no voiced point is out of the band
-//            and the uncovered time between two in-points (an unvoiced
-//            gap or missing readings) is at most bridge_s.
-//   lock     t_lock = the time of the first in-point whose run covers at
-//            least dwell_s, measured from t_lock to the end of the run's
-//            last in-point's span. time_to_lock_s = t_lock - hold_start_s.
-//            A run cut short by the end of W does not lock.
-//   held     voiced points with t >= t_lock. mean_dev_cents and spread_cents
-//            are the w-weighted mean and population standard deviation
-//            (divide by the total weight) over them. Without a lock they
-//            are taken over every voiced point of W instead, so a performer
-//            who never locked still learns which way and how far they were.
-//   shares   in_tolerance_share = weight of in-points / weight of voiced
-//            points in W (from hold_start_s, before and after the lock);
-//            voiced_share = weight of voiced points / length of W.
-// Points need not be in time order; points with a non-finite time are
-// ignored. Empty input, or no voiced point: locked = false, the rest NaN, voiced 0.
-//
+// Drill score — how well one hold of a target was sung or played: time to lock, mean deviation, spread, share in tune.
+// Method: ours, no published source (common practice in intonation teaching: how fast, how close, how steady);
+// the definitions (window, in, run, lock, held, shares) are in DEVELOPERS.md, "Methods in detail".
 // Thread: any. Allocates: only when points are out of order (a sorted copy).
 #pragma once
 

@@ -1,18 +1,6 @@
-// Ear question — what an ear drill plays next, and which answer is right.
-//
-// Two tasks, each a forced choice:
-//   discriminate  the drill's interval pure and the same interval mistuned by
-//                 the level asked (wider or narrower at random), in random
-//                 order over the drone; "which was pure?" (first or second:
-//                 chance 1/2, the case Levitt's transformed up-down rules are
-//                 made for). The level is continuous: what is asked is what
-//                 sounds.
-//   identify      one of the drill's intervals over the drone; "which was
-//                 it?" among all of them. Each round plays every interval
-//                 once, in an order shuffled per round (Fisher-Yates), so
-//                 every interval is asked equally often.
-// The random source is seeded (ui/session/rng.h), so a session replays exactly.
-//
+// Ear question — what an ear drill plays next, and which answer is right: discriminate (pure or mistuned, which
+// was pure?) or identify (which of the drill's intervals?). Method: forced choice, rounds shuffled by Fisher-Yates
+// from a seeded source (ui/session/rng.h), so a session replays exactly; DEVELOPERS.md, "Methods in detail".
 // Thread: one thread at a time. Allocates: in the constructor only.
 #pragma once
 

@@ -1,20 +1,6 @@
-// Simulated listener — answers ear questions like a listener of stated
-// threshold and lapse rate, for ear drills run without a person (demo, tests).
-//
-// Discrimination (two-alternative forced choice): the chance of a right answer
-// at a mistuning of d cents is the psychometric function of F. A. Wichmann and
-// N. J. Hill, "The psychometric function: I. Fitting, sampling, and goodness of
-// fit", Perception & Psychophysics 63(8), 1293-1313 (2001), eq. 1,
-//     p(d) = gamma + (1 - gamma - lambda) F(d),  F(d) = 1 - exp(-(d / alpha)^beta)
-// (a Weibull F), guess rate gamma = 1/2, lapse rate lambda. The threshold is
-// the d answered right threshold_p of the time (70.7 %, the point a 2-down/1-up
-// staircase tracks, Levitt 1971). Identification: a Gaussian observer
-// (D. M. Green and J. A. Swets, Signal Detection Theory and Psychophysics,
-// 1966) hears each tone with an error of sd sigma cents and names the nearest
-// target; sigma is set so that comparing two tones threshold_cents apart is
-// right threshold_p of the time: sigma = T / (sqrt 2 Phi^-1(p)); with chance
-// lambda it answers at random instead.
-//
+// Simulated listener — answers ear questions like a listener of stated threshold and lapse rate (demo, tests).
+// Method: the psychometric function of Wichmann & Hill (2001), eq. 1, with a Weibull F for discrimination; a
+// Gaussian observer (Green & Swets, Signal Detection Theory and Psychophysics, 1966) for identification.
 // Thread: one thread at a time. Allocates: identification_probabilities only.
 #pragma once
 

@@ -1,19 +1,7 @@
-// Log CSV — the practice log as a CSV file a teacher can open, and back.
-//
-// One row per attempt, RFC 4180 quoting (fields with a comma, quote or line
-// break are quoted, quotes doubled), LF line ends, a header row. Columns:
-//   uid, started_at, drill, kind, target, target_name, root_hz, performer,
-//   dur_s, locked, time_to_lock_s, mean_dev_cents, spread_cents,
-//   in_tolerance_share, threshold_cents, trials, correct_share, settings,
-//   trace
-// Numbers are written in the shortest form that reads back to the same
-// double; an empty field is "not known". `settings` is the drill's JSON
-// object; `trace` is the trace BLOB (ui/session/practice_log.h) in base64 (RFC 4648),
-// exact and compact, and may be left out (the column too) for a smaller file.
-// Rows are in start-time order, so export -> import into an empty log ->
-// export gives the same bytes. Import checks every row first and refuses the
-// whole file on the first bad one ("file.csv:LINE: problem"); attempts whose
-// uid is already in the log are skipped, so importing twice adds nothing.
+// Log CSV — the practice log as a CSV file a teacher can open, and back: RFC 4180 quoting, traces in base64
+// (RFC 4648), rows in start-time order (export -> import -> export gives the same bytes); import is all or none and
+// skips attempts already in the log. Columns: DEVELOPERS.md, "Methods in detail".
+// Thread: the caller's. Allocates: yes.
 #pragma once
 
 #include "ui/session/practice_log.h"

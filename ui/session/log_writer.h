@@ -1,16 +1,6 @@
-// Log writer — saves drill attempts without ever stopping the drill.
-//
-// A drill hands each finished attempt to save(). The writer stamps it (uid,
-// start time) at once, queues it in memory and writes the queue in order,
-// one transaction per attempt (ui/session/practice_log.h). When the log cannot be
-// written — a full or read-only disk, a folder that cannot be created, a
-// damaged file — the attempt stays in memory, save() returns a one-line
-// warning to show, and every later save() or retry() tries the whole queue
-// again, reopening the file when it was never opened. Nothing is dropped in
-// silence: an attempt the log refuses as bad data is set aside (also kept),
-// and pending_csv() gives everything still unsaved as an importable CSV
-// (ui/session/log_csv.h) for the program to offer on exit.
-//
+// Log writer — saves drill attempts without ever stopping the drill: each attempt is stamped and queued, written in
+// order, kept in memory while the log cannot be written (with a one-line warning), and offered as CSV on exit.
+// Details: DEVELOPERS.md, "Methods in detail".
 // Thread: one thread (the drill's, not the audio callback). Never throws.
 #pragma once
 

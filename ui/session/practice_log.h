@@ -1,27 +1,7 @@
-// Practice log — every drill attempt, kept in one SQLite file.
-//
-// The file is $XDG_DATA_HOME/beatless/practice.sqlite3 (ui/session/paths.h). It is
-// opened in WAL mode with synchronous=FULL, and each attempt is written in
-// one transaction (the attempt row and its trace together), so killing the
-// program at any moment loses at most the attempt being written and never
-// leaves a damaged file (SQLite's atomic commit: https://sqlite.org/atomiccommit.html).
-// PRAGMA application_id marks the file as ours; PRAGMA user_version holds
-// the schema version, and opening runs the migrations from 1 upward:
-//   v1  table attempt (scores, settings as JSON text, UTC ISO 8601 start
-//       time) and table trace (one BLOB per attempt)
-//   v2  attempt.uid (a random 128-bit id, so importing the same CSV twice
-//       adds nothing), attempt.performer, an index on the start time
-//   v3  attempt.method, attempt.estimate, threshold_lo_cents and
-//       threshold_hi_cents (ear sessions: how measured, and the interval)
-// The trace is one BLOB of little-endian float32 records, 16 bytes each,
-// in a side table keyed by attempt id: a 30 s hold at a 5 ms hop is 6000
-// records = 96 KB written as one row, where a row per reading would mean
-// 6000 inserts and a second index (several times the time and the space).
-// Keeping it out of the attempt table keeps attempt rows small, so history
-// queries scan a few MB even when the traces take gigabytes.
-//
-// Thread: one thread per PracticeLog. Errors throw LogError (an Error) whose
-// message names the file and the problem.
+// Practice log — every drill attempt in one SQLite file, one transaction per attempt (attempt row and trace together),
+// WAL with synchronous=FULL: a kill loses at most the attempt being written (https://sqlite.org/atomiccommit.html).
+// Schema versions and the trace format: DEVELOPERS.md, "Methods in detail".
+// Thread: one thread per PracticeLog. Errors throw LogError (an Error) naming the file and the problem.
 #pragma once
 
 #include "pitch/base/error.h"

@@ -1,14 +1,6 @@
-// Safe files — every file the program writes, and every text file it reads.
-//
-// Method: check the target (a regular file or a new name in a folder that
-// exists; never a device, folder, FIFO or socket), write a temporary file
-// beside it (mkstemp in the same folder), check every write and the close,
-// and rename the temporary over the target only when all of it succeeded;
-// on any failure (a full disk, a file-size limit) the temporary is removed
-// and the target is left as it was. POSIX rename(2) replaces atomically.
-// Inputs: a regular file or an anonymous pipe the user meant (`<(...)`,
-// /dev/stdin), read with a stated size cap; named FIFOs and devices are
-// refused with their own message before anything is opened.
+// Safe files — every file the program writes (a temporary beside the target, every write and the close checked,
+// then POSIX rename(2); never a device, folder, FIFO or socket) and every text file it reads (type checked first,
+// size capped). Details: DEVELOPERS.md, "Methods in detail".
 // Thread: any; one SafeOutput per thread.
 #pragma once
 

@@ -1,20 +1,6 @@
-// Staircase — a transformed up-down staircase for discrimination thresholds.
-//
-// After H. Levitt, "Transformed up-down methods in psychoacoustics",
-// J. Acoust. Soc. Am. 49(2B), 467-477 (1971). The level (here a difference in
-// cents) steps down after n_down correct answers in a row and up after n_up
-// wrong ones in a row. With n_up = 1 the track settles where the chance of
-// n_down correct answers in a row is one half, p^n_down = 0.5: 2-down/1-up
-// targets p = 70.7 %, 3-down/1-up 79.4 % (Levitt's Table I). Steps: (1)
-// present level(), (2) record() the answer, (3) a change of direction is a
-// reversal, and the step size shrinks along `steps` as reversals accumulate,
-// (4) stop after stop_reversals, after max_trials answers, or after
-// floor_run answers right in a row at min_level (a listener finer than the
-// smallest step), (5) threshold = mean of the levels at the
-// last threshold_reversals reversals (an even count, so peaks and valleys
-// balance, as Levitt's midpoint estimate does); the mean is geometric when
-// the steps are geometric.
-//
+// Staircase — a transformed up-down staircase for discrimination thresholds (2-down/1-up tracks 70.7 %).
+// Method: H. Levitt, "Transformed up-down methods in psychoacoustics", J. Acoust. Soc. Am. 49(2B), 467-477 (1971);
+// the steps and stopping rules are in DEVELOPERS.md, "Methods in detail".
 // Thread: one thread at a time. Allocates: the reversal list only.
 #pragma once
 

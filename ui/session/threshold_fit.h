@@ -1,22 +1,6 @@
-// Threshold fit — the discrimination threshold and its confidence interval
-// from every answer of an ear session, by maximum likelihood.
-//
-// Method: F. A. Wichmann and N. J. Hill, "The psychometric function: I",
-// Perception & Psychophysics 63(8), 1293-1313 (2001): the answers at each
-// level are binomial with p(d) = gamma + (1 - gamma - lambda) F(d), F a
-// Weibull of fixed slope; guess rate 1/2 (two-alternative forced choice) and
-// a fixed lapse rate in their recommended range. Only the threshold (the d
-// where p = threshold_p) is free. The log-likelihood is evaluated on a fine
-// log grid; the interval is a likelihood-ratio interval (Wilks 1938: the
-// thresholds whose log-likelihood is within chi2_crit / 2 of the best). The
-// textbook cut for 95 %, chi2(1 df, 0.95) = 3.841, covers only 89-94 % here:
-// staircase data are adaptive and few, and the estimate runs about 6 % low;
-// the cut is calibrated by simulating this procedure (tests/test_ear_measure)
-// to chi2(1 df, 0.975) = 5.024, which covers 93-96 % for listeners of 2 to
-// 20 c. Verdicts: measured; finer than the smallest level played when the
-// best threshold lies below it; no reliable threshold when the interval has
-// no upper end inside the levels the drill may play (a guesser's answers).
-//
+// Threshold fit — the discrimination threshold and its confidence interval from every answer of an ear session.
+// Method: maximum likelihood on the psychometric function of Wichmann & Hill, Perception & Psychophysics 63(8)
+// (2001), with a likelihood-ratio interval (Wilks 1938) whose cut is calibrated by simulation; DEVELOPERS.md.
 // Thread: any. Allocates: the result only.
 #pragma once
 
