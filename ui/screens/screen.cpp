@@ -223,7 +223,7 @@ void ScreenDeck::tab_bar(float height) {
     // Right side: the drone's state in a word and a square, and the help key.
     const bool on = app_.drone_on();
     // On but with no output playing it: said, not claimed as sound.
-    const std::string drone = !on ? "Drone off" : app_.drone_heard() ? "Drone on" : "Drone on, not heard";
+    const std::string drone = !on ? "Drone off" : app_.drone_sounding() ? "Drone on" : "Drone on, not heard";
     const std::string help = "H  help";
     const float help_w = text_size(FontFace::body, help).x;
     const float drone_w = text_size(FontFace::bold, drone).x;
@@ -231,7 +231,7 @@ void ScreenDeck::tab_bar(float height) {
     float x = disp.x - std::round(0.8f * u) - help_w;
     draw_text(dl, FontFace::body, ImVec2(x, ty), palette::kTextDim, help);
     x -= std::round(2.0f * u) + drone_w;
-    const bool sounding = on && app_.drone_heard();
+    const bool sounding = app_.drone_sounding();
     draw_text(dl, FontFace::bold, ImVec2(x, ty), sounding ? palette::kDroneOn : palette::kTextDim, drone);
     draw_square(dl, ImVec2(x - 0.8f * u, ty + 0.5f * u), 0.32f * u, sounding ? palette::kDroneOn : palette::kTextDim,
                 sounding);
