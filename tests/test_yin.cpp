@@ -177,10 +177,23 @@ TEST_CASE("absolute threshold (step 4) takes the first dip under it, else the ov
     const LagChoice a = absolute_threshold(dn, 1, 8, 0.15);
     CHECK(a.lag == 4);  // first under 0.15 at 3, bottom of that dip at 4 (not the deeper 7)
     CHECK(a.below_threshold);
-    const LagChoice b = absolute_threshold(dn, 1, 8, 0.01);
-    CHECK(b.lag == 7);
+    const std::vector<double> dn2 = {1.0, 0.9, 0.5, 0.35, 0.3, 0.4, 0.6, 0.05, 0.4};
+    const LagChoice b = absolute_threshold(dn2, 1, 8, 0.01);
+    CHECK(b.lag == 7);  // the dip near 7 / 2 (0.3) is far shallower: no divisor
     CHECK_FALSE(b.below_threshold);
     CHECK(b.aperiodicity == 0.05);
+}
+
+// In noise the period and its multiples dip about as deep (YIN's subharmonic errors, de Cheveigné and Kawahara 2002,
+// sec. II.C); a divisor of the deepest dip nearly as deep is the period (common practice).
+TEST_CASE("absolute threshold takes the divisor of the deepest dip when it is nearly as deep") {
+    const std::vector<double> dn = {1.0, 0.9, 0.8, 0.7, 0.5, 0.26, 0.5, 0.8, 0.9, 0.6, 0.22, 0.6, 0.9};
+    const LagChoice c = absolute_threshold(dn, 2, 11, 0.15);
+    CHECK(c.lag == 5);
+    CHECK(c.aperiodicity == 0.26);
+    std::vector<double> far = dn;
+    far[5] = 0.45;  // now well above 1.5 x 0.22 + 0.05
+    CHECK(absolute_threshold(far, 2, 11, 0.15).lag == 10);
 }
 
 TEST_CASE("parabolic interpolation (step 5) is exact on a sampled parabola") {

@@ -21,6 +21,7 @@
 #include "pitch/dsp/vec_ops.h"
 #include "pitch/dsp/yin_coarse.h"
 #include "pitch/dsp/yin_refine.h"
+#include "pitch/dsp/yin_voicing.h"
 
 #include <algorithm>
 #include <array>
@@ -57,6 +58,9 @@ constexpr double kSmallBias = 3.0 / 1200.0 * 0.6931471805599453;
 constexpr std::size_t kStencil = 3;
 constexpr double kPowerAlpha = 0.08;  // running mean of the curvature's square, weight of each frame
 constexpr double kNoiseBias = 0.3 / 1200.0 * 0.6931471805599453;  // the curvature's noise, as a bias (0.3 cents)
+// The curvature is taken only from frames this sure (calibrated confidence): a frame that mixes two notes after a
+// change is voiced, less sure, and would bend its neighbours.
+constexpr double kSureConfidence = 0.85;
 
 std::string num(double v) {
     std::ostringstream s;
@@ -103,6 +107,7 @@ struct YinTracker::Impl {
     BlockCorrelator correlator;
     LagRefiner fine;
     LagRefiner mid;
+    NoiseFloor noise_floor;
 
     std::vector<float> x;  // full-rate samples [x_off, x_off + x_len)
     Index x_off = 0;
@@ -192,7 +197,8 @@ struct YinTracker::Impl {
           decimator(plan(c).dec),
           correlator(plan(c).block, plan(c).per_window, plan(c).max_lag),
           fine(static_cast<std::size_t>(std::lround(c.span_s * c.sample_rate_hz)) + 16),
-          mid(static_cast<std::size_t>(std::lround(c.span_s * c.sample_rate_hz)) / plan(c).dec + 16) {
+          mid(static_cast<std::size_t>(std::lround(c.span_s * c.sample_rate_hz)) / plan(c).dec + 16),
+          noise_floor(c.hop_s) {
         const Plan p = plan(c);
         rate = cfg.sample_rate_hz;
         dec_factor = p.dec;
@@ -258,6 +264,7 @@ struct YinTracker::Impl {
         f_coarse = 0;
         f_done = 0;
         correlator.reset();
+        noise_floor.reset();
         q_head = q_count = 0;
         held_count = 0;
         curv = Curvature{};
@@ -433,9 +440,13 @@ struct YinTracker::Impl {
             period = parabolic_minimum(cur.d, pick.lag);
             aper = pick.aperiodicity;
         }
-        out.confidence = std::clamp(1.0 - aper, 0.0, 1.0);
-        if (out.level_dbfs < cfg.silence_dbfs || one_sided || !(aper < cfg.threshold) || !(period > 0.0)) {
-            if (out.level_dbfs < cfg.silence_dbfs || one_sided) out.confidence = 0.0;
+        // Voicing: the calibrated probability that this period is right (yin_voicing.h), judged against the
+        // running noise floor; silent and one-sided spans are unvoiced with confidence 0.
+        const bool silent = out.level_dbfs < cfg.silence_dbfs || one_sided;
+        const double floor_dbfs = out.level_dbfs < cfg.silence_dbfs ? noise_floor.floor_dbfs(out.level_dbfs)
+                                                                    : noise_floor.update(out.level_dbfs);
+        out.confidence = silent ? 0.0 : voicing_probability({aper, out.level_dbfs, floor_dbfs});
+        if (silent || !(out.confidence >= 0.5) || !(period > 0.0)) {
             deliver(out, 0.0);
             return;
         }
@@ -542,6 +553,7 @@ struct YinTracker::Impl {
         const double prev = cv.last;
         cv.last = NAN;
         if (!(a.p.voiced() && b.p.voiced() && c.p.voiced()) || b.m2_s2 <= 0.0) return out;
+        if (std::min({a.p.confidence, b.p.confidence, c.p.confidence}) < kSureConfidence) return out;
         const double ga = std::log(a.p.f0_hz), gb = std::log(b.p.f0_hz), gc = std::log(c.p.f0_hz);
         const double hab = b.p.t_s - a.p.t_s, hbc = c.p.t_s - b.p.t_s;
         if (!(hab > 0.0 && hbc > 0.0)) return out;
