@@ -345,7 +345,10 @@ void Engine::start(bool analysis_thread) {
     // needs no faster step response.
     const bool live = m.input != InputKind::file;
     const bool short_span = live && !group;
-    yc.f_min_hz = cfg_.f_min_hz > 0.0 ? cfg_.f_min_hz : short_span ? kLiveLowestHz : 55.0;
+    yc.f_min_hz = cfg_.f_min_hz > 0.0 ? cfg_.f_min_hz
+                  : short_span        ? kLiveLowestHz
+                  : group             ? 55.0
+                                      : pitch::kFileLowestHz;
     yc.f_max_hz = cfg_.f_max_hz;
     yc.max_block_len_samples = kChunk * 4;
     // 30 ms or 50 ms, or the shortest span that holds two periods of a lower

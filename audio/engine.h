@@ -45,7 +45,7 @@ struct EngineConfig {
     double hop_s = 0.005;                // tracker hop (default 5 ms)
     double span_s = 0.0;                 // most audio one tracker frame depends on (0 = 30 ms for one performer live,
                                          // 50 ms for a file or a group, or longer when f_min_hz needs it)
-    double f_min_hz = 0.0;               // lowest f0 tracked (0 = 70 Hz for one performer live, else 55 Hz)
+    double f_min_hz = 0.0;  // lowest f0 tracked (0 = 70 Hz for one performer live, 41 Hz for a file, 55 Hz for a group)
     double f_max_hz = 1600.0;            // highest f0 tracked (default 1600 Hz)
     double ring_s = 2.0;                 // each channel's capture ring (default 2 s)
     bool drone_removal = true;           // remove the drone's partials before tracking (default on)

@@ -1,7 +1,8 @@
 // YinTracker — streaming fundamental-frequency tracking: YIN on a decimated copy, refined at the full rate.
 // Method: A. de Cheveigné and H. Kawahara, "YIN, a fundamental frequency estimator for speech and music", J. Acoust.
 // Soc. Am. 111(4), 1917-1930 (2002); the vibrato bias removed as a kernel-smoothing bias (M. P. Wand and M. C. Jones,
-// Kernel Smoothing, Chapman & Hall 1995, sec. 2.5). Stages: DEVELOPERS.md, "Methods in detail".
+// Kernel Smoothing, Chapman & Hall 1995, sec. 2.5); voicing against a noise floor by minimum statistics (R. Martin
+// 2001, yin_voicing.h). Stages: DEVELOPERS.md, "Methods in detail".
 // Thread: one at a time (the analysis thread). Allocates: in the constructor only. Locks: no.
 #pragma once
 
@@ -12,13 +13,17 @@
 
 namespace beatless::pitch {
 
+// The lowest f0 a sound file is tracked down to by default: just under the double bass's low E (E1, 41.2 Hz). At
+// 44.1 and 48 kHz with a 5 ms hop two of its periods still fit the default 50 ms span (see min_span_s()).
+inline constexpr double kFileLowestHz = 41.0;
+
 struct YinConfig {
     double sample_rate_hz = 44100.0;  // 8 000 .. 192 000
     double f_min_hz = 55.0;           // lowest f0 searched (A1); two periods and a bit must fit in span_s
     double f_max_hz = 1600.0;         // highest f0 searched, at most sample_rate_hz / 4
     double hop_s = 0.005;             // time between frames (rounded to a multiple of decimation(); see hop_s())
     double span_s = 0.050;            // most audio one estimate may depend on (0.01 .. 1 s)
-    double threshold = 0.15;          // YIN absolute threshold on the normalised difference (0 .. 1)
+    double threshold = 0.15;          // YIN absolute threshold on the normalised difference, for the dip (0 .. 1)
     double silence_dbfs = -60.0;      // frames quieter than this (RMS) are unvoiced
     bool vibrato_correction = true;  // remove the span's averaging of a moving f0 (quadratic model; one hop more delay)
     std::size_t max_block_len_samples = 1 << 16;  // frames of one push() this long fit the queue
@@ -27,7 +32,7 @@ struct YinConfig {
 struct PitchFrame {
     double t_s = 0.0;         // centre of the samples the estimate depends on, from stream start
     double f0_hz = 0.0;       // 0 when unvoiced
-    double confidence = 0.0;  // 0..1 (1 - normalised difference at the chosen lag)
+    double confidence = 0.0;  // 0..1, calibrated: the share of frames like this one within 50 c (voiced at >= 0.5)
     double level_dbfs =
         -std::numeric_limits<double>::infinity();  // RMS level of the span (dB re full scale), -inf for digital silence
     bool voiced() const { return f0_hz > 0.0; }

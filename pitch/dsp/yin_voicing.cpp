@@ -22,7 +22,7 @@ double dbfs_of(double power) { return power > 0.0 ? std::max(kSilentDbfs, 10.0 *
 // d' by H, H = the harmonic power (1 - d') P over the floor in dB; smoothed by (k + 2 p_row) / (n + 2), p_row the
 // share in the cell's row of d', then made non-decreasing in H (running maximum) and non-increasing in d' (running
 // minimum). The fit:
-// DEVELOPERS.md, "Voicing and confidence".
+// DEVELOPERS.md, "pitch/dsp/yin_voicing.h".
 namespace {
 constexpr std::array<double, 13> kApEdges = {0.01, 0.02, 0.04, 0.07, 0.1, 0.13, 0.16, 0.2, 0.25, 0.3, 0.4, 0.5, 1e300};
 constexpr std::array<double, 10> kHarmEdges = {-3, 0, 2, 4, 6, 8, 10, 14, 20, 1e300};

@@ -2,9 +2,9 @@
 // Method: the floor is the minimum of the frame powers over the last few seconds (minimum statistics, R. Martin,
 // "Noise power spectral density estimation based on optimal smoothing and minimum statistics", IEEE Trans. Speech
 // Audio Process. 9(5), 504-512, 2001, broadband); the harmonic power (1 - d') P of the frame (de Cheveigné and
-// Kawahara 2002, sec. VI) over that floor and d' itself enter a logistic model (D. R. Cox, "The regression analysis
-// of binary sequences", J. R. Stat. Soc. B 20(2), 1958) fitted so that its output is the share of frames within
-// 50 cents. Fit and figures: DEVELOPERS.md, "Methods in detail".
+// Kawahara 2002, sec. VI) over that floor and d' itself index a table of the share of frames within 50 cents,
+// counted on generated frames (calibration by binning, B. Zadrozny and C. Elkan, ICML 2001, from memory).
+// Table, fit and limits: DEVELOPERS.md, "Methods in detail".
 // Thread: one at a time (the tracker's). Allocates: no.
 #pragma once
 

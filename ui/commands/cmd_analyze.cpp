@@ -54,7 +54,7 @@ struct AnalyzeOptions {
     Format format = Format::text;
     std::string report;
     std::optional<int> channel;  // 1-based; empty mixes all channels
-    std::string lowest;          // --lowest: below the file tracker's 55 Hz (a double bass)
+    std::string lowest;          // --lowest: below the file tracker's 41 Hz
 };
 
 constexpr double kProgressAfterS = 5.0;  // files longer than this show a progress bar (on a terminal)
@@ -474,7 +474,7 @@ void register_analyze(CLI::App& app, Runner& run) {
     sub->add_option("--report", o->report, "Also draw a printable page (PNG) of the trace, notes and summary");
     sub->add_option("--channel", o->channel, "Channel to analyze, from 1 (default: all channels mixed)");
     sub->add_option("--lowest", o->lowest,
-                    "One voice: the lowest note to follow, as a note (E1) or in Hz (30-200; default 55)");
+                    "One voice: the lowest note to follow, as a note (E1) or in Hz (30-200; default 41)");
     sub->callback([o, root, &run] {
         o->root_set = root->count() > 0;
         run = [o] { return run_analyze(*o); };

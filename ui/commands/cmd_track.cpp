@@ -9,6 +9,7 @@
 #include "ui/commands/commands.h"
 #include "ui/session/json.h"
 
+#include <algorithm>
 #include <cstdio>
 #include <memory>
 #include <optional>
@@ -21,7 +22,7 @@ struct TrackOptions {
     std::string file;
     Format format = Format::json;
     double hop_ms = 5.0;
-    double fmin_hz = 55.0;
+    double fmin_hz = pitch::kFileLowestHz;
     double fmax_hz = 1600.0;
     std::optional<int> channel;  // 1-based; empty mixes all channels
 };
@@ -37,6 +38,7 @@ int run_track(const TrackOptions& o) {
     cfg.hop_s = o.hop_ms / 1000.0;
     cfg.f_min_hz = o.fmin_hz;
     cfg.f_max_hz = o.fmax_hz;
+    cfg.span_s = std::max(cfg.span_s, pitch::YinTracker::min_span_s(cfg));  // a low --fmin (or hop) may need more
     cfg.max_block_len_samples = 4096;
     pitch::YinTracker tracker(cfg);
 
@@ -85,7 +87,7 @@ void register_track(CLI::App& app, Runner& run) {
     sub->add_option("FILE", o->file, "Sound file")->required();
     add_format_option(*sub, o->format, {Format::json, Format::csv});
     sub->add_option("--hop-ms", o->hop_ms, "Time between frames in ms (default 5)");
-    sub->add_option("--fmin", o->fmin_hz, "Lowest f0 searched in Hz (default 55)");
+    sub->add_option("--fmin", o->fmin_hz, "Lowest f0 searched in Hz (default 41: a double bass's low E)");
     sub->add_option("--fmax", o->fmax_hz, "Highest f0 searched in Hz (default 1600)");
     sub->add_option("--channel", o->channel, "Channel to track, from 1 (default: all channels mixed)");
     sub->callback([o, &run] { run = [o] { return run_track(*o); }; });

@@ -110,10 +110,8 @@ OneVoiceAnalysis analyze_one_voice(audio::SoundReader& reader, const AnalysisReq
     yc.silence_dbfs = kSilenceDbfs;
     yc.max_block_len_samples = kBlockFrames;
     yc.hop_s = kNoteHopS;
-    if (req.lowest_hz) {
-        yc.f_min_hz = *req.lowest_hz;
-        yc.span_s = std::max(yc.span_s, pitch::YinTracker::min_span_s(yc));
-    }
+    yc.f_min_hz = req.lowest_hz ? *req.lowest_hz : pitch::kFileLowestHz;
+    yc.span_s = std::max(yc.span_s, pitch::YinTracker::min_span_s(yc));
     pitch::YinTracker yin(yc);
     out.hop_s = yin.hop_s();
     pitch::SegmentConfig sc;

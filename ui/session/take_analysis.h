@@ -27,7 +27,7 @@ struct AnalysisRequest {
     std::optional<double> root_hz;    // one voice: the drone's root; empty = find it
     pitch::TargetSet targets;         // must not be empty
     bool keep_trace = false;          // fill the decimated trace (for the report)
-    std::optional<double> lowest_hz;  // one voice: the tracker's floor (default 55 Hz); a lower one lengthens its span
+    std::optional<double> lowest_hz;  // one voice: the tracker's floor (default 41 Hz); a lower one lengthens its span
 };
 
 // Called with the share of the whole job done (0..1) and the pass's name.
