@@ -61,6 +61,8 @@ constexpr double kNoiseBias = 0.3 / 1200.0 * 0.6931471805599453;  // the curvatu
 // The curvature is taken only from frames this sure (calibrated confidence): a frame that mixes two notes after a
 // change is voiced, less sure, and would bend its neighbours.
 constexpr double kSureConfidence = 0.85;
+// A frame this far above the noise floor (dB) is voiced only under YIN's threshold as well.
+constexpr double kClearAboveFloorDb = 20.0;
 
 std::string num(double v) {
     std::ostringstream s;
@@ -446,7 +448,11 @@ struct YinTracker::Impl {
         const double floor_dbfs = out.level_dbfs < cfg.silence_dbfs ? noise_floor.floor_dbfs(out.level_dbfs)
                                                                     : noise_floor.update(out.level_dbfs);
         out.confidence = silent ? 0.0 : voicing_probability({aper, out.level_dbfs, floor_dbfs});
-        if (silent || !(out.confidence >= 0.5) || !(period > 0.0)) {
+        // Far above the floor (clean conditions) a d' over YIN's threshold is not noise but a mixture (two notes
+        // inside the span after a change): there YIN's own test decides, as the live settling bar needs.
+        const bool clear = aper < cfg.threshold || out.level_dbfs - floor_dbfs < kClearAboveFloorDb;
+        if (!clear) out.confidence = std::min(out.confidence, 0.49);  // unvoiced frames stay under 0.5
+        if (silent || !(out.confidence >= 0.5) || !clear || !(period > 0.0)) {
             deliver(out, 0.0);
             return;
         }
