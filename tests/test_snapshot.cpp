@@ -522,3 +522,20 @@ TEST_CASE("Practice screen: at every moment the big number, word, colour, marker
         }
     }
 }
+
+TEST_CASE("snapshot: the drill list scrolls to show the running drill when the drills outnumber its rows") {
+    // The built-in drills (targets/*.toml of kind "drill") are more than the
+    // left column holds at 1280x800; the running drill sorts late in the list.
+    // Its title must be drawn highlighted (the selected row's colours) inside
+    // the left column. Layout rule of the screen: the chosen drill is always
+    // visible (common practice for a list with a selection).
+    TempDir home;
+    const Image img =
+        read_png(snapshot(home, "--demo --screen drills --drill hold-tritones --seconds 6", "list.png"));
+    Box left;
+    left.add(0, 40);
+    left.add(img.w / 3, img.h - 40);
+    const Image title =
+        render_text("Tritone family, held", ui::FontFace::bold, ui::palette::kText, ui::palette::kPanelRaised, 1.0f);
+    CHECK(find_exact(img, title, left).size() == 1);
+}
