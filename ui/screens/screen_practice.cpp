@@ -554,6 +554,11 @@ void PracticeScreen::controls(AppState& app) {
                 continue;  // drill material, not practice sets
             if (ImGui::Selectable(name.c_str(), name == s.target_set)) app.set_target_set(name);
         }
+        // A chord is a target set too: its voices over the lowest.
+        ImGui::Separator();
+        ImGui::TextColored(v4(palette::kTextFaint), "chords (the voices over the lowest)");
+        for (const std::string& name : builtin_names("chord"))
+            if (ImGui::Selectable(name.c_str(), name == s.target_set)) app.set_target_set(name);
         ImGui::EndCombo();
     }
     ImGui::SameLine(0, gap);
