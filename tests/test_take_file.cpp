@@ -325,3 +325,45 @@ TEST_CASE("recover_takes finalises a take cut short and leaves finished and fres
     CHECK(rec2[0].problem.starts_with(bad.audio_path.string() + ": cannot be recovered ("));
     CHECK_FALSE(ui::read_take_sidecar(bad.sidecar_path).complete);
 }
+
+TEST_CASE("regenerate_drone plays the sidecar's drone: its root before and after a change, its level, then silence") {
+    // numpy measures what was rendered: the strongest bin of a Hann-windowed rfft, refined by a parabola through
+    // the log magnitudes (Smith, "Spectral Audio Signal Processing", quadratic interpolation of spectral peaks), and
+    // the RMS in dBFS. A pure drone's RMS is its level (audio/drone.h: level_dbfs is the RMS of the root tone).
+    TempDir d;
+    ui::TakeInfo t = sample_take(d.path(), "regen");
+    t.channels = 1;
+    t.rate_hz = 48000;
+    t.root_hz = 110.0;
+    t.drone.on = true;
+    t.drone.timbre = audio::Timbre::pure;
+    t.drone.level_dbfs = -30.0;
+    t.drone.fifth = false;
+    t.drone.events = {{1.0, ui::DroneEventKind::root, 98.0}, {2.0, ui::DroneEventKind::off, 98.0}};
+    const std::vector<float> x = ui::regenerate_drone(t, 3 * 48000);
+    REQUIRE(x.size() == 3u * 48000u);
+    const std::string wav = d.file("regen.wav");
+    audio::write_wav(wav, x, 48000.0, audio::SampleFormat::float32);
+    const std::string got = python(
+        "import numpy as np, scipy.io.wavfile as w, warnings\n"
+        "warnings.simplefilter('ignore')  # scipy does not know libsndfile's PEAK chunk\n"
+        "r, x = w.read('" +
+        wav +
+        "')\n"
+        "def peak(a, b):\n"
+        "    s = x[int(a * r):int(b * r)]\n"
+        "    m = np.log(np.abs(np.fft.rfft(s * np.hanning(len(s)))) + 1e-30)\n"
+        "    k = int(np.argmax(m))\n"
+        "    p = 0.5 * (m[k - 1] - m[k + 1]) / (m[k - 1] - 2 * m[k] + m[k + 1])\n"
+        "    return (k + p) * r / len(s)\n"
+        "def db(a, b):\n"
+        "    s = x[int(a * r):int(b * r)].astype(np.float64)\n"
+        "    return 20 * np.log10(np.sqrt(np.mean(s * s)) + 1e-30)\n"
+        "print('%.2f %.2f %.2f %.1f' % (peak(0.3, 0.95), peak(1.3, 1.95), db(0.3, 0.95), db(2.2, 3.0)))\n");
+    double f1 = 0, f2 = 0, l1 = 0, l_off = 0;
+    REQUIRE(std::sscanf(got.c_str(), "%lf %lf %lf %lf", &f1, &f2, &l1, &l_off) == 4);
+    CHECK(f1 == doctest::Approx(110.0).epsilon(0.002));
+    CHECK(f2 == doctest::Approx(98.0).epsilon(0.002));
+    CHECK(l1 == doctest::Approx(-30.0).epsilon(0.02));
+    CHECK(l_off < -100.0);
+}

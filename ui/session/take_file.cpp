@@ -1,8 +1,9 @@
 // Take files — see take_file.h.
 //
-// Index: [SECTION] Names  [SECTION] Writing  [SECTION] Reading  [SECTION] Listing and recovery
+// Index: [SECTION] Names  [SECTION] Writing  [SECTION] Reading  [SECTION] Drone  [SECTION] Listing and recovery
 #include "ui/session/take_file.h"
 
+#include "audio/drone.h"
 #include "audio/take_writer.h"
 #include "pitch/base/error.h"
 #include "pitch/base/text.h"
@@ -281,6 +282,42 @@ TakeInfo read_take_sidecar(const fs::path& sidecar) {
     t.audio_path = sidecar;
     t.audio_path.replace_extension(".flac");
     return t;
+}
+
+// [SECTION] Drone
+
+std::vector<float> regenerate_drone(const TakeInfo& take, std::int64_t len_frames) {
+    audio::DroneSettings ds;
+    ds.on = take.drone.on;
+    ds.root_hz = take.root_hz;
+    ds.timbre = take.drone.timbre;
+    ds.level_dbfs = take.drone.level_dbfs;
+    ds.fifth = take.drone.fifth;
+    ds.octave = take.drone.octave;
+    audio::check_drone_settings(ds);
+    audio::Drone drone(take.rate_hz);
+    drone.set(ds);
+    std::vector<float> out(static_cast<std::size_t>(std::max<std::int64_t>(0, len_frames)), 0.0f);
+    std::size_t next = 0, at = 0;
+    const auto frame_of = [&](const DroneEvent& e) {
+        return static_cast<std::size_t>(std::llround(e.t_s * take.rate_hz));
+    };
+    while (at < out.size()) {
+        while (next < take.drone.events.size() && frame_of(take.drone.events[next]) <= at) {
+            const DroneEvent& e = take.drone.events[next++];
+            if (e.what == DroneEventKind::root)
+                ds.root_hz = e.root_hz;
+            else
+                ds.on = e.what == DroneEventKind::on;
+            audio::check_drone_settings(ds);
+            drone.set(ds);
+        }
+        std::size_t end = std::min(out.size(), at + 256);
+        if (next < take.drone.events.size()) end = std::min(end, std::max(at + 1, frame_of(take.drone.events[next])));
+        drone.render(std::span<float>(out.data() + at, end - at));
+        at = end;
+    }
+    return out;
 }
 
 // [SECTION] Listing and recovery

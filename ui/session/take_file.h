@@ -94,6 +94,12 @@ TakeInfo parse_take_sidecar(std::string_view text, const std::string& source);
 // and its one-line problem added to `problems` when given. A missing folder gives an empty list.
 std::vector<TakeInfo> list_takes(const std::filesystem::path& dir, std::vector<std::string>* problems = nullptr);
 
+// The take's drone rendered again, mono at the take's rate, len_frames long: audio::Drone (the live synthesis and
+// limiter) set as the sidecar says at the start, each event applied at its frame, rendered in 256-frame blocks split
+// at the events. The partials, level and changes are the live drone's; a drone that sounded before the take began
+// had other phases and had finished its fade-in, which this one starts. Throws Error on a sidecar out of range.
+std::vector<float> regenerate_drone(const TakeInfo& take, std::int64_t len_frames);
+
 // What recover_takes did to one take.
 struct RecoveredTake {
     std::filesystem::path audio_path;
