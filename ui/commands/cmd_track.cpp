@@ -1,11 +1,17 @@
-// beatless track FILE [--format json|csv] [--hop-ms MS] [--fmin HZ] [--fmax HZ] [--channel N]
+// beatless track FILE [--format json|csv] [--hop-ms MS] [--fmin HZ] [--fmax HZ] [--channel N] [--drone ROOT|auto]
 //
 // The pitch track of a sound file, frame by frame, in the forms fixed in
 // DESIGN.md. Streams: a two-hour file uses the memory of one block.
+// --drone removes a drone at ROOT (a note or Hz; auto: found in the file by pitch/measure/root_detect.h, a first
+// pass) before tracking, by the comb the analysis uses (pitch/dsp/drone_comb.h), so a drone-plus-voice file yields
+// the voice; the JSON then says "drone_hz".
 #include "audio/soundfile.h"
 #include "pitch/base/error.h"
 #include "pitch/base/text.h"
+#include "pitch/dsp/drone_comb.h"
 #include "pitch/dsp/yin.h"
+#include "pitch/measure/root_detect.h"
+#include "pitch/theory/notes.h"
 #include "ui/commands/commands.h"
 #include "ui/session/json.h"
 
@@ -24,7 +30,26 @@ struct TrackOptions {
     double fmin_hz = 55.0;
     double fmax_hz = 1600.0;
     std::optional<int> channel;  // 1-based; empty mixes all channels
+    std::string drone;           // --drone: a root to remove ("A2", "110") or "auto"; "" = none
+    double a4_hz = pitch::kDefaultA4Hz;
 };
+
+// The drone to remove: the root given, or the one found in a first pass over the file (then rewound).
+double drone_root_hz(const TrackOptions& o, audio::SoundReader& reader) {
+    if (o.drone != "auto") return pitch::parse_root(o.drone, o.a4_hz);
+    pitch::RootDetectConfig rc;
+    rc.sample_rate_hz = reader.info().sample_rate_hz;
+    pitch::RootDetector rd(rc);
+    for (auto block = reader.read(); !block.empty(); block = reader.read()) rd.push(block);
+    reader.rewind();
+    const pitch::RootEstimate e = rd.estimate();
+    if (!e.found())
+        throw Error(o.file + ": no steady drone found (best candidate " + pitch::format_trimmed(e.root_hz, 2) +
+                    " Hz, confidence " + pitch::format_trimmed(e.confidence, 2) + "); give --drone NOTE|HZ");
+    std::fprintf(stderr, "beatless: drone found in the file at %s Hz (confidence %s); removed before tracking\n",
+                 pitch::format_trimmed(e.root_hz, 3).c_str(), pitch::format_trimmed(e.confidence, 2).c_str());
+    return e.root_hz;
+}
 
 int run_track(const TrackOptions& o) {
     if (!(o.hop_ms >= 0.5 && o.hop_ms <= 100.0))
@@ -39,6 +64,16 @@ int run_track(const TrackOptions& o) {
     cfg.f_max_hz = o.fmax_hz;
     cfg.max_block_len_samples = 4096;
     pitch::YinTracker tracker(cfg);
+    std::optional<pitch::DroneComb> comb;
+    if (!o.drone.empty()) {
+        pitch::check_a4(o.a4_hz);
+        const double root_hz = drone_root_hz(o, reader);
+        if (!(root_hz >= 20.0 && root_hz <= cfg.sample_rate_hz / 8.0))
+            throw Error("--drone " + pitch::quote(o.drone) + ": " + pitch::format_trimmed(root_hz, 3) +
+                        " Hz is outside what can be removed (20 Hz to a rate / 8)");
+        comb.emplace(pitch::DroneCombConfig{.sample_rate_hz = cfg.sample_rate_hz, .root_hz = root_hz});
+    }
+    std::vector<float> filtered(4096);
 
     const bool json = o.format == Format::json;
     std::string name = o.file;
@@ -46,6 +81,7 @@ int run_track(const TrackOptions& o) {
         JsonWriter head;
         head.begin_object().key("file").value(name).key("sample_rate").value(cfg.sample_rate_hz, 3);
         head.key("hop_s").value(tracker.hop_s(), 7);
+        if (comb) head.key("drone_hz").value(cfg.sample_rate_hz / comb->delay_samples(), 4);
         std::printf("%s, \"frames\": [", head.str().c_str());  // the object stays open for the frames
     } else {
         std::printf("t,f0_hz,confidence\n");
@@ -54,7 +90,14 @@ int run_track(const TrackOptions& o) {
     pitch::PitchFrame fr;
     JsonWriter j;
     for (auto block = reader.read(); !block.empty(); block = reader.read()) {
-        tracker.push(block);
+        if (comb) {
+            if (filtered.size() < block.size()) filtered.resize(block.size());
+            const std::span<float> y(filtered.data(), block.size());
+            comb->process(block, y);
+            tracker.push(y);
+        } else {
+            tracker.push(block);
+        }
         while (tracker.pull(fr)) {
             if (json) {
                 j.clear();
@@ -88,6 +131,9 @@ void register_track(CLI::App& app, Runner& run) {
     sub->add_option("--fmin", o->fmin_hz, "Lowest f0 searched in Hz (default 55)");
     sub->add_option("--fmax", o->fmax_hz, "Highest f0 searched in Hz (default 1600)");
     sub->add_option("--channel", o->channel, "Channel to track, from 1 (default: all channels mixed)");
+    sub->add_option("--drone", o->drone,
+                    "Remove a drone before tracking: its root as a note or in Hz (A2, 110), or auto to find it");
+    add_a4_option(*sub, o->a4_hz);
     sub->callback([o, &run] { run = [o] { return run_track(*o); }; });
 }
 
