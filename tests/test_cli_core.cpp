@@ -188,6 +188,32 @@ TEST_CASE("track --drone: a drone-plus-voice file yields the voice, the drone gi
     CHECK(line_count(none.err) == 1);
 }
 
+TEST_CASE("track --voices 2: both voices of a double stop, lowest first, in the same forms") {
+    // G3 = 195.998 Hz (A4 440, 12-TET: 440 * 2^(-14/12)) and a 7/4 above it, 342.996 Hz: each median within 0.1 cent.
+    TempDir dir;
+    REQUIRE(run_program({"tone", "--root", "G3", "--ratio", "7/4", "--level-db", "-20", "--voice-db", "-22",
+                         "--seconds", "2", "--out", dir.file("duo.wav")})
+                .exit_code == 0);
+    const auto r = run_program({"track", dir.file("duo.wav"), "--voices", "2"});
+    REQUIRE(r.exit_code == 0);
+    CHECK(beatless::test::json_value(r.out, "d['voices']") == "2");
+    CHECK(beatless::test::json_value(r.out, "sorted(d['frames'][0].keys())") == "['confidence', 'f0_hz', 't']");
+    const double low = 440.0 * std::exp2(-14 / 12.0), high = low * 7 / 4;
+    for (int v = 0; v < 2; ++v) {
+        const std::string i = std::to_string(v);
+        const std::string med = "sorted(f['f0_hz'][" + i +
+                                "] for f in d['frames'] if len(f['f0_hz']) == 2)[len([f for f in d['frames'] if "
+                                "len(f['f0_hz']) == 2]) // 2]";
+        CHECK(std::fabs(1200 * std::log2(std::stod(beatless::test::json_value(r.out, med)) / (v ? high : low))) < 0.1);
+    }
+    CHECK(std::stoi(beatless::test::json_value(r.out, "sum(1 for f in d['frames'] if len(f['f0_hz']) == 2)")) > 300);
+    const auto csv = run_program({"track", dir.file("duo.wav"), "--voices", "2", "--format", "csv"});
+    CHECK(csv.out.rfind("t,f0_low_hz,f0_high_hz,confidence\n", 0) == 0);
+    const auto bad = run_program({"track", dir.file("duo.wav"), "--voices", "3"});
+    CHECK(bad.exit_code == 1);
+    CHECK(bad.err == "beatless: --voices 3: 1 or 2\n");
+}
+
 TEST_CASE("track: bad files and values, one line each, exit 1") {
     TempDir dir;
     { std::ofstream(dir.file("empty.wav")); }
