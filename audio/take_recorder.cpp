@@ -65,6 +65,14 @@ void TakeRecorder::start() {
 }
 
 void TakeRecorder::note_drone(const DroneSettings& s) {
+    // Only what a take keeps (on, root, timbre, fifth, octave): a fade-in or a level slider moves the level every
+    // frame and would fill the list.
+    if (!changes_.empty()) {
+        const DroneSettings& was = changes_.back().settings;
+        if (was.on == s.on && was.root_hz == s.root_hz && was.timbre == s.timbre && was.fifth == s.fifth &&
+            was.octave == s.octave)
+            return;
+    }
     if (changes_.size() < kMaxDroneChanges) changes_.push_back({captured_frames(), s});
 }
 

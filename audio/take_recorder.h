@@ -55,7 +55,8 @@ public:
     void start();
     // Drains the rings, finishes the file and joins the writer. Idempotent. Never throws: problem() says what failed.
     void stop() noexcept;
-    // Records a drone change at the current frame (control thread). Kept: the first kMaxDroneChanges.
+    // Records a drone change at the current frame (control thread): the first call, then changes of on, root,
+    // timbre, fifth or octave (level alone is not a change here). Kept: the first kMaxDroneChanges.
     void note_drone(const DroneSettings& s);
 
     bool running() const { return running_.load(std::memory_order_acquire); }

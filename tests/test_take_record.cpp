@@ -300,6 +300,7 @@ TEST_CASE("a recorder killed with SIGKILL loses at most the last second; the nex
     // What a killed recorder left: readable up to its last synced block.
     const std::vector<float> cut = read_interleaved(flac.string());
     const double cut_s = static_cast<double>(cut.size()) / 48000.0;
+    CHECK(audio::SoundReader(flac.string()).info().len_frames == static_cast<std::int64_t>(cut.size()));
     CHECK(cut_s >= newest_t - 1.0);
 
     // The next start recovers it (once it is a few seconds old: a live recorder could still be writing it).
