@@ -20,6 +20,7 @@
 #include "ui/render/imgui_host.h"
 #include "ui/render/raster.h"
 #include "ui/screens/palette.h"
+#include "ui/session/take_file.h"
 
 #include <doctest/doctest.h>
 #include <stb_image.h>
@@ -538,4 +539,33 @@ TEST_CASE("snapshot: the drill list scrolls to show the running drill when the d
     const Image title =
         render_text("Tritone family, held", ui::FontFace::bold, ui::palette::kText, ui::palette::kPanelRaised, 1.0f);
     CHECK(find_exact(img, title, left).size() == 1);
+}
+
+TEST_CASE("snapshot --record: REC, the time and a red Stop at the right of the status bar; the take is kept") {
+    // The time is what was recorded: 3 s of simulated time less the first frame reads 0:02 (minutes:seconds, whole
+    // seconds shown as a clock shows them); the take in the data folder holds the same audio (common practice).
+    TempDir home;
+    const Image img = read_png(snapshot(home, "--demo --record --seconds 3 --size 1600x900", "rec.png"));
+    const Box bar = rows(img, img.h - img.h / 16, img.h - 1);
+    const Image rec = render_text("REC", ui::FontFace::bold, ui::palette::kRecording, ui::palette::kPanel, 1.0f);
+    const Image clock = render_text("0:02", ui::FontFace::mono, ui::palette::kText, ui::palette::kPanel, 1.0f);
+    const auto at_rec = find_exact(img, rec, bar);
+    const auto at_clock = find_exact(img, clock, bar);
+    REQUIRE(at_rec.size() == 1);
+    REQUIRE(at_clock.size() == 1);
+    CHECK(at_rec[0].first > img.w / 2);          // at the right end
+    CHECK(at_clock[0].first > at_rec[0].first);  // the time after REC
+    const Box red = find_colour(img, ui::palette::kRecording, bar.y0, bar.y1 + 1);
+    CHECK(red.x1 > at_clock[0].first);  // the red Stop button right of the time
+    const auto takes = beatless::ui::list_takes(home.path() + "/data/takes");
+    REQUIRE(takes.size() == 1);
+    CHECK(takes[0].complete);
+    REQUIRE(takes[0].duration_s);
+    CHECK(*takes[0].duration_s > 2.9);
+    CHECK(*takes[0].duration_s <= 3.0);
+    // Without --record nothing records and the button says Record.
+    const Image idle = read_png(snapshot(home, "--demo --seconds 1 --size 1600x900", "idle.png"));
+    CHECK(find_exact(idle, rec, rows(idle, idle.h - idle.h / 16, idle.h - 1)).empty());
+    const Image record = render_text("Record", ui::FontFace::body, ui::palette::kText, ui::palette::kPanelRaised, 1.0f);
+    CHECK(find_exact(idle, record, rows(idle, idle.h - idle.h / 16, idle.h - 1)).size() == 1);
 }

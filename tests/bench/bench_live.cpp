@@ -11,12 +11,21 @@
 //     readings) per second of audio, as thread CPU time, with and without
 //     drone removal, and of the callbacks (capture + drone rendering).
 //     The bar: under 2% of one core.
+// (4) Recording a take: process CPU time (every thread: callbacks, analysis, the take's writer and its FLAC
+//     encoder) per second of audio with recording off and on; the bar: recording adds at most 0.5% of one core.
 // (3) Drone removal accuracy: voice at 7/5, 10/7, 11/8 under a bright drone
 //     6 and 12 dB louder at the microphone; worst |dev - truth| in cents.
 #include "tests/bench/bench.h"
 
 #include "audio/drone.h"
+#include "audio/take_recorder.h"
 #include "tests/live_rig.h"
+
+#include <stdlib.h>
+#include <time.h>
+#include <chrono>
+#include <filesystem>
+#include <thread>
 
 #include <cmath>
 #include <cstdio>
@@ -170,6 +179,62 @@ void cpu(const bench::Context& ctx) {
     std::printf("bar: full path under 2%% of one core\n\n");
 }
 
+double process_cpu_s() {
+    timespec ts{};
+    clock_gettime(CLOCK_PROCESS_CPUTIME_ID, &ts);
+    return static_cast<double>(ts.tv_sec) + 1e-9 * static_cast<double>(ts.tv_nsec);
+}
+
+void recording(const bench::Context& ctx) {
+    std::printf(
+        "recording a take: process CPU per second of audio (all threads), 48 kHz, block 256, voice over a "
+        "drone\n");
+    std::printf("%-34s %14s %12s\n", "path", "ms per s audio", "% of a core");
+    const double rate = 48000.0, root = 110.0;
+    const double secs = ctx.quick ? 5.0 : 30.0;
+    double share[2] = {0.0, 0.0};
+    for (int on = 0; on < 2; ++on) {
+        test::LiveRig rig(rate, 256);
+        rig.voice = test::voice_of({{0.2, secs - 0.2, "7/5", 3.0}}, root, rate, secs, 0.1);
+        pitch::ReadingConfig rc;
+        rc.root_hz = root;
+        rig.open(rc, set_of({"7/5", "10/7", "11/8", "3/2"}), drone_at(root, audio::Timbre::round, -24.0),
+                 audio::RoomConfig{});
+        std::string dir = (std::filesystem::temp_directory_path() / "beatless-bench-XXXXXX").string();
+        if (!::mkdtemp(dir.data())) return;
+        audio::TakeRecorderConfig tc;
+        tc.sample_rate_hz = rate;
+        std::unique_ptr<audio::TakeRecorder> rec;
+        const double t0 = process_cpu_s();
+        if (on) {
+            rec = std::make_unique<audio::TakeRecorder>(tc, dir + "/bench.flac", "bench.flac");
+            rec->start();
+            rig.engine.set_tap(rec.get());
+        }
+        std::vector<float> in(rig.block), out(2 * rig.block), spk(rig.block, 0.0f);
+        for (std::size_t b = 0; (b + 1) * rig.block <= rig.voice.size(); ++b) {
+            // Faster than real time: the writer is given the time a device would give it (no frame dropped).
+            while (rec && rec->space_frames() < rig.block) std::this_thread::sleep_for(std::chrono::milliseconds(1));
+            std::copy_n(rig.voice.begin() + static_cast<std::ptrdiff_t>(b * rig.block), rig.block, in.begin());
+            rig.room->process_add(spk, in);
+            rig.sys.drive(in, out, 1, 2);
+            rig.engine.analyze_available();
+            for (std::size_t i = 0; i < rig.block; ++i) spk[i] = out[2 * i];
+        }
+        if (rec) {
+            rig.engine.set_tap(nullptr);
+            rec->stop();
+        }
+        share[on] = (process_cpu_s() - t0) / secs;
+        std::filesystem::remove_all(dir);
+        std::printf("%-34s %14.2f %11.2f%%\n", on ? "live path, recording" : "live path, not recording",
+                    1000.0 * share[on], 100.0 * share[on]);
+    }
+    std::printf("%-34s %14.2f %11.2f%%\n", "added by recording", 1000.0 * (share[1] - share[0]),
+                100.0 * (share[1] - share[0]));
+    std::printf("bar: recording adds at most 0.5%% of one core\n\n");
+}
+
 void removal(const bench::Context& ctx) {
     std::printf(
         "drone removal: worst |dev - truth| over the steady note (48 kHz, bright drone, room 7 ms / 0.8 / 3 kHz)\n");
@@ -219,9 +284,12 @@ void removal(const bench::Context& ctx) {
 void run(bench::Context& ctx) {
     latency(ctx);
     cpu(ctx);
+    recording(ctx);
     removal(ctx);
 }
 
 }  // namespace
 
-BEATLESS_BENCH_SECTION("live", "live path: step latency, CPU of the full analysis, drone removal accuracy", run);
+BEATLESS_BENCH_SECTION("live",
+                       "live path: step latency, CPU of the full analysis and of recording, drone removal accuracy",
+                       run);

@@ -120,6 +120,7 @@ AppOptions options_of(const ScreenCommand& c) {
     o.drill = c.drill;
     o.listener = c.listener;
     o.log_file = c.log_file;
+    o.record = c.record;
     return o;
 }
 
@@ -175,6 +176,8 @@ void add_screen_options(CLI::App& app, ScreenCommand& c) {
         "Ear drills on the Drills screen: a simulated listener answers: perfect, guess, or its threshold in cents");
     app.add_option("--log", c.log_file,
                    "Practice log file (default: the data folder's; a snapshot writes none unless given)");
+    app.add_flag("--record", c.record,
+                 "Record a take from the start into the data folder's takes/ (R starts and stops one on the screens)");
 }
 
 void add_window_midi_options(CLI::App& app, ScreenCommand& c) {

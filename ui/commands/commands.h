@@ -43,6 +43,7 @@ struct ScreenCommand {
     std::string drill;                     // --drill: choose and start this drill on the Drills screen
     std::string listener;                 // --listener: a simulated listener answers ear drills (perfect, guess, cents)
     std::string log_file;                 // --log: the practice log file (snapshot: none unless given)
+    bool record = false;                  // --record: record a take into the data folder's takes/ from the start
     std::optional<std::string> midi_out;  // --midi-out (window only): replaces the settings' MIDI port for this run
     std::optional<std::string> midi_tuning;  // --midi-tuning: mts or bend
     std::optional<std::string> midi_in;      // --midi-in: a keyboard that sets the root

@@ -20,6 +20,8 @@
 #include <algorithm>
 #include <cmath>
 #include <cstdio>
+#include <ctime>
+#include <filesystem>
 #include <initializer_list>
 #include <string_view>
 
@@ -73,7 +75,8 @@ AppState::AppState(Settings settings, std::filesystem::path settings_file, AppOp
       settings_file_(std::move(settings_file)),
       options_(std::move(options)),
       trace_(static_cast<std::size_t>(kTraceSeconds / 0.005) + 256),
-      take_buf_(512) {
+      take_buf_(512),
+      record_pending_(options_.record) {
     if (!options_.root.empty()) settings_.root = options_.root;
     if (options_.a4_hz) settings_.a4_hz = pitch::check_a4(*options_.a4_hz);
     if (options_.lowest_hz) settings_.lowest_hz = *options_.lowest_hz;
@@ -134,6 +137,18 @@ void AppState::recompute_root() {
 
 void AppState::start() {
     if (!engine_) open_engine();
+    if (!takes_recovered_) {
+        takes_recovered_ = true;
+        try {
+            for (const RecoveredTake& r : recover_takes(takes_dir()))
+                post(r.problem.empty() ? "recovered a take cut short: " + r.audio_path.filename().string() + " (" +
+                                             pitch::format_trimmed(r.duration_s, 1) + " s)"
+                                       : r.problem,
+                     !r.problem.empty());
+        } catch (const Error& e) {
+            post(e.what(), true);
+        }
+    }
 }
 
 bool AppState::follow_group(const audio::EnsembleSetup& setup) {
@@ -274,6 +289,7 @@ void AppState::open_engine() {
 }
 
 void AppState::close_engine() {
+    if (take_) stop_recording();  // a take is one engine's input
     if (engine_) engine_->stop();
     engine_.reset();
     sim_performer_.reset();
@@ -310,6 +326,13 @@ void AppState::pump_simulation(double dt_s) {
 void AppState::update(double dt_s) {
     if (!(dt_s >= 0.0)) dt_s = 0.0;
     app_time_s_ += dt_s;
+    if (take_ && take_->stopped_early()) stop_recording();
+    // --record: from the second frame, once the first screen has chosen what the engine follows (a group or one).
+    if (record_pending_ && updates_ > 0) {
+        record_pending_ = false;
+        start_recording();
+    }
+    ++updates_;
     if (engine_) {
         if (options_.simulated) pump_simulation(dt_s);
         for (std::size_t k; (k = engine_->take_readings(take_buf_)) > 0;) {
@@ -776,6 +799,55 @@ std::vector<audio::DeviceInfo> AppState::devices() {
 }
 
 std::string AppState::input_text() const { return input_text_; }
+
+// ---------------------------------------------------------------------------
+// [SECTION] Takes
+// ---------------------------------------------------------------------------
+
+void AppState::start_recording() {
+    if (take_) return;
+    if (!engine_) {
+        post("nothing to record: no input", true);
+        return;
+    }
+    TakeContext c;
+    c.device = input_text_;
+    c.screen = std::string(screen_key(settings_.screen));
+    c.root = drill_drone_ ? "" : settings_.root;  // a drill's root is named from its frequency
+    c.a4_hz = settings_.a4_hz;
+    c.targets = settings_.target_set;
+    if (settings_.choice == TargetChoice::fixed && !set_.targets.empty())
+        c.target = set_.targets[static_cast<std::size_t>(fixed_index_)].interval.str();
+    if (drill_drone_) c.drill = options_.drill;
+    int channels = 1;
+    if (group_) {
+        channels = static_cast<int>(group_->players.size());
+        for (std::size_t i = 0; i < group_->players.size(); ++i)
+            c.players.push_back(
+                {static_cast<int>(i) + 1, group_->players[i].name, static_cast<int>(group_->players[i].voice) + 1});
+    }
+    try {
+        const std::filesystem::path dir = takes_dir();
+        ensure_dir(dir);
+        const std::filesystem::path path = free_take_path(dir, std::time(nullptr));
+        take_ = std::make_unique<TakeRecording>(*engine_, path, c, engine_->sample_rate_hz(), channels);
+        post("recording " + path.filename().string());
+    } catch (const Error& e) {
+        post(e.what(), true);
+    }
+}
+
+void AppState::stop_recording() {
+    if (!take_) return;
+    const bool early = take_->stopped_early();
+    const std::string said = take_->stop();
+    take_.reset();
+    post(said, early);
+}
+
+std::string AppState::recording_name() const {
+    return take_ ? take_->info().audio_path.stem().string() : std::string();
+}
 
 void AppState::post(const std::string& text, bool warning) {
     std::fprintf(stderr, "beatless: %s\n", text.c_str());

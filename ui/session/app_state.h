@@ -11,6 +11,7 @@
 #include "pitch/theory/targets.h"
 #include "ui/session/beat_pulse.h"
 #include "ui/session/settings.h"
+#include "ui/session/take_recording.h"
 #include "ui/session/verdict.h"
 
 #include <deque>
@@ -41,6 +42,7 @@ struct AppOptions {
     std::string listener;  // ear drills: a simulated listener answers: "perfect", "guess" or cents (demos, snapshots)
     bool log = true;       // attempts go to the practice log (false: kept in memory only)
     std::string log_file;  // the practice log; empty = the data folder's practice.sqlite3
+    bool record = false;   // record a take from the start (--record)
 };
 
 // The readings of the last seconds, oldest first, in a ring sized once.
@@ -171,6 +173,17 @@ public:
     // engine reopens). False without the demo. An empty list: her usual round.
     bool sing_script(std::vector<audio::DemoNote> notes);
 
+    // --- Takes ---------------------------------------------------------------------------------
+    // Records what the engine hears (each analysed channel, before drone removal) as a take in the data folder's
+    // takes/ (ui/session/take_recording.h). Messages instead of throwing; stopped when the engine reopens, when the
+    // recorder stops by itself (disk nearly full) and at shutdown. Takes cut short earlier are recovered at start().
+    void start_recording();
+    void stop_recording();
+    void toggle_recording() { recording() ? stop_recording() : start_recording(); }
+    bool recording() const { return take_ != nullptr; }
+    double recording_s() const { return take_ ? take_->elapsed_s() : 0.0; }  // seconds recorded so far
+    std::string recording_name() const;  // the take's file name without .flac ("2026-12-03_161502"); "" when none
+
     // --- Messages ------------------------------------------------------------------------
     void post(const std::string& text, bool warning = false);  // also printed to stderr
     const std::deque<Message>& messages() const { return messages_; }
@@ -227,6 +240,10 @@ private:
     double dirty_since_s_ = 0.0;
     double app_time_s_ = 0.0;
     std::deque<Message> messages_;
+    std::unique_ptr<TakeRecording> take_;  // the take being recorded
+    bool takes_recovered_ = false;         // recover_takes() ran (once, at the first start())
+    bool record_pending_ = false;          // --record: start at the second update()
+    std::uint64_t updates_ = 0;            // update() calls so far
 };
 
 }  // namespace beatless::ui
