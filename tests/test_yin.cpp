@@ -14,6 +14,7 @@
 // fundamental, silence, bad samples); streaming behaviour (block sizes,
 // frame times, sample rates, allocation, queue, reset).
 #include "pitch/base/error.h"
+#include "pitch/dsp/periodic_run.h"
 #include "pitch/dsp/yin.h"
 #include "pitch/dsp/yin_coarse.h"
 #include "tests/signals.h"
@@ -600,4 +601,37 @@ TEST_CASE("the shortest span for a floor: a little over two periods, and the tra
     YinConfig bad;
     bad.f_min_hz = 0.0;
     CHECK_THROWS_AS(YinTracker::min_span_s(bad), Error);
+}
+
+TEST_CASE("PeriodicRun: a change of period inside a span is found where it was made") {
+    // Two harmonic tones, period 100 samples then 80 from sample 1000 (a construction with an exact answer).
+    // The stretch periodic at 80 starts at the change and runs to the end; at 100 it ends at the change;
+    // a steady tone is periodic throughout (YIN's aperiodicity, de Cheveigne and Kawahara 2002, sec. II.F).
+    const std::size_t len = 2000, change = 1000;
+    auto tone = [](double n, double period) {
+        double v = 0.0;
+        for (int h = 1; h <= 6; ++h) v += std::sin(2.0 * M_PI * h * n / period + 0.7 * h) / h;
+        return static_cast<float>(0.3 * v);
+    };
+    std::vector<float> x(len), steady(len);
+    for (std::size_t n = 0; n < len; ++n) {
+        x[n] = n < change ? tone(static_cast<double>(n), 100.0) : tone(static_cast<double>(n), 80.0);
+        steady[n] = tone(static_cast<double>(n), 100.0);
+    }
+    pitch::PeriodicRun runs(len, 200);
+    const auto late = runs.find(x.data(), len, 80.0, 0.0, 300, 0.45);
+    REQUIRE(late.found);
+    CHECK_FALSE(late.whole);
+    CHECK(late.begin >= change - 2);
+    CHECK(late.begin <= change + 25);  // widened to a quarter block at most
+    CHECK(late.end == len);
+    CHECK(late.aperiodicity < 1e-3);
+    const auto early = runs.find(x.data(), len, 100.0, 0.0, 300, 0.45, false);
+    REQUIRE(early.found);
+    CHECK(early.end <= change + 2);
+    CHECK(early.end >= change - 30);
+    const auto whole = runs.find(steady.data(), len, 100.0, 0.0, 300, 0.45);
+    CHECK(whole.whole);
+    // The newest note's period, from the last quarter of the span.
+    CHECK(runs.newest_period(x.data(), len, 20, 200, 0.1) == doctest::Approx(80.0).epsilon(0.01));
 }
