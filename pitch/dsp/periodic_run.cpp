@@ -81,9 +81,9 @@ PeriodicRun::Result PeriodicRun::find(const float* y, std::size_t len, double la
     pairs_ = n;
     if (pairs_ < 16) return r;
 
-    // Blocks of a period: the lower octile sets the threshold (a new note
+    // Blocks of half a period: the lower octile sets the threshold (a new note
     // may fill as little as a sixth of the span).
-    std::size_t B = std::max<std::size_t>(16, static_cast<std::size_t>(std::lround(lag)));
+    std::size_t B = std::max<std::size_t>(12, static_cast<std::size_t>(std::lround(0.5 * lag)));
     B = std::max(B, (pairs_ + kMaxBlocks - 1) / kMaxBlocks);
     const std::size_t nb = std::max<std::size_t>(1, pairs_ / B);
     auto block_end = [&](std::size_t b) { return b + 1 == nb ? pairs_ : (b + 1) * B; };

@@ -50,6 +50,10 @@ constexpr double kRunFloor = 0.45;        // aperiodicity a block of a periodic 
 // Fastest sweep of log f0 the periodic-stretch test follows, 1/s: a vibrato of
 // +-100 cents at 7.5 Hz sweeps 2 pi 7.5 Hz x 100 / 1731 = 2.7 per second.
 constexpr double kMaxSweep = 3.5;
+// Coarse periods of neighbouring frames further apart than this are a note
+// change in view (a vibrato moves them by under 3 % in two hops), as is an
+// aperiodicity over twice the others'.
+constexpr double kSteadyRatio = 1.03;
 constexpr Index kFineMargin = LagRefiner::kKernelHalf + LagRefiner::kSearch + 1;
 // One half of the span 40 dB under the other: a note starts or stops inside
 // it (a held tone's level never changes that fast).
@@ -115,6 +119,7 @@ struct YinTracker::Impl {
     LagRefiner mid;
     PeriodicRun runs;
     double last_run_aperiodicity = 1.0;  // of the stretch periodic_stretch() chose last
+    double last_run_period = 0.0;        // ... and its period, decimated samples
     double last_t_s = -1.0;              // t of the last frame delivered
     bool last_voiced = false;            // ... and whether it was voiced
     bool last_restricted = false;        // the last voiced frame used a stretch of its span
@@ -565,10 +570,24 @@ struct YinTracker::Impl {
         if (!last_voiced) return;  // an onset is the voicing's business, not a change between notes
         Index A = lo, B = lo + span;
         double Tc = 0.0;
-        const double guess = next.aperiodicity < cfg.threshold ? next.period_dec : prev.period_dec;
+        const double guess = last_restricted                     ? last_run_period
+                             : next.aperiodicity < cfg.threshold ? next.period_dec
+                                                                 : prev.period_dec;
         if (!periodic_stretch(f, guess, A, B, Tc) || !(last_run_aperiodicity < cfg.threshold)) return;
         period = Tc / static_cast<double>(dec_factor);
         aper = std::min(aper, last_run_aperiodicity);
+    }
+
+    // The coarse frames f - 1, f, f + 1 agree (periods within kSteadyRatio,
+    // aperiodicities within twice the lowest and 0.02): no note change
+    // reaches into the span but its outer few milliseconds, which their
+    // windows do not cover and the refinement's window barely weighs.
+    static bool steady(const Coarse& a, const Coarse& b, const Coarse& c) noexcept {
+        const double p_lo = std::min({a.period_dec, b.period_dec, c.period_dec});
+        const double p_hi = std::max({a.period_dec, b.period_dec, c.period_dec});
+        const double a_lo = std::min({a.aperiodicity, b.aperiodicity, c.aperiodicity});
+        const double a_hi = std::max({a.aperiodicity, b.aperiodicity, c.aperiodicity});
+        return p_hi < kSteadyRatio * p_lo && a_hi < 2.0 * a_lo + 0.02;
     }
 
     // Where the span [A, B) holds a note change, narrows it to the periodic
@@ -585,6 +604,7 @@ struct YinTracker::Impl {
         const auto len = static_cast<std::size_t>(m1 - m0);
         const Coarse& prev = ring[static_cast<std::size_t>((f - 1) % 3)];
         const Coarse& next = ring[static_cast<std::size_t>((f + 1) % 3)];
+        if (!last_restricted && steady(prev, ring[static_cast<std::size_t>(f % 3)], next)) return false;
         const double hop_dec = static_cast<double>(hop) / static_cast<double>(D);
         double slope = 0.0;
         if (prev.aperiodicity < cfg.threshold && next.aperiodicity < cfg.threshold) {
@@ -601,13 +621,16 @@ struct YinTracker::Impl {
         PeriodicRun::Result best = runs.find(yp(m0), len, period, slope, min_len(period), kRunFloor, !last_restricted);
         if (best.whole && !(last_restricted && best.aperiodicity > kNewestThreshold)) return false;
         double best_period = period;
-        for (const Coarse* o : {&prev, &next}) {
-            if (!(o->aperiodicity < cfg.threshold) || std::fabs(o->period_dec / period - 1.0) < 0.015) continue;
-            const PeriodicRun::Result r =
-                runs.find(yp(m0), len, o->period_dec, slope, min_len(o->period_dec), kRunFloor);
+        // The neighbours' coarse periods, and while a change is under way the period the last frame kept to.
+        const double others[3] = {prev.aperiodicity < cfg.threshold ? prev.period_dec : 0.0,
+                                  next.aperiodicity < cfg.threshold ? next.period_dec : 0.0,
+                                  last_restricted ? last_run_period : 0.0};
+        for (const double p : others) {
+            if (!(p > 0.0) || std::fabs(p / period - 1.0) < 0.015) continue;
+            const PeriodicRun::Result r = runs.find(yp(m0), len, p, slope, min_len(p), kRunFloor);
             if (r.found && (!best.found || newer(r, best))) {
                 best = r;
-                best_period = o->period_dec;
+                best_period = p;
             }
         }
         if (!best.found || best.end + 2 < len) {
@@ -622,6 +645,7 @@ struct YinTracker::Impl {
         }
         if (!best.found || !(best.aperiodicity < cfg.threshold)) return false;
         last_run_aperiodicity = best.aperiodicity;
+        last_run_period = best_period;
         A = std::max(A, (m0 + static_cast<Index>(best.begin)) * D);
         B = std::min(B, (m0 + static_cast<Index>(best.end) - 1) * D + 1);
         Tc = best_period * static_cast<double>(D);
