@@ -142,6 +142,7 @@ struct YinTracker::Impl {
     struct Held {
         PitchFrame p;
         double m2_s2 = 0.0;
+        bool narrowed = false;  // refined on a stretch of its span (a note change inside it)
     };
     std::array<Held, 2 * kStencil + 1> held{};  // ring: the frames f - 2 kStencil .. f
     std::size_t held_count = 0;                 // frames delivered since reset
@@ -482,7 +483,7 @@ struct YinTracker::Impl {
         }
         out.f0_hz = rate / T;
         out.t_s = t_centre / rate;
-        deliver(out, m2_s2);
+        deliver(out, m2_s2, restricted);
     }
 
     // Refinement of the period (decimated samples) inside the samples [A, B):
@@ -673,7 +674,7 @@ struct YinTracker::Impl {
     // come out earlier than the last one is moved just after it (unvoiced:
     // its t says nothing) or dropped to unvoiced (voiced: rare, the frame
     // straddling the change).
-    void deliver(const PitchFrame& frame, double m2_s2) noexcept {
+    void deliver(const PitchFrame& frame, double m2_s2, bool narrowed = false) noexcept {
         PitchFrame p = frame;
         const double after = last_t_s + 0.5 / rate;
         if (p.t_s < after) {
@@ -690,7 +691,7 @@ struct YinTracker::Impl {
             return;
         }
         const std::size_t j = held_count++;
-        held[j % held.size()] = {p, m2_s2};
+        held[j % held.size()] = {p, m2_s2, narrowed};
         if (j < kStencil) return;
         const std::size_t b = j - kStencil;
         if (b < kStencil) {
@@ -713,6 +714,8 @@ struct YinTracker::Impl {
         const double prev = cv.last;
         cv.last = NAN;
         if (!(a.p.voiced() && b.p.voiced() && c.p.voiced()) || b.m2_s2 <= 0.0) return out;
+        // A note change among them: a narrowed frame's small m2 would let a step pass for a vibrato.
+        if (a.narrowed || b.narrowed || c.narrowed) return out;
         const double ga = std::log(a.p.f0_hz), gb = std::log(b.p.f0_hz), gc = std::log(c.p.f0_hz);
         const double hab = b.p.t_s - a.p.t_s, hbc = c.p.t_s - b.p.t_s;
         if (!(hab > 0.0 && hbc > 0.0)) return out;
