@@ -66,7 +66,7 @@ PeriodicRun::Result PeriodicRun::find(const float* y, std::size_t len, double la
     std::size_t n = 0;
     q_[0] = e_[0] = 0.0;
     for (; n < len; ++n) {
-        const double L = lag + slope * (static_cast<double>(n) - mid);
+        const double L = lag + slope * (static_cast<double>(n) + 0.5 * lag - mid);  // the period at the pair's centre
         if (!(L >= 1.0)) break;
         const double pos = static_cast<double>(n) + L;
         const auto i = static_cast<std::size_t>(pos);

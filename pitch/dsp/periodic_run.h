@@ -25,8 +25,8 @@ public:
         double aperiodicity = 1.0;  // aperiodic / total power over the run
     };
 
-    // y[0 .. len): the span; the lag at sample n is lag + slope * (n - len / 2) samples (linear
-    // interpolation between samples). Of the maximal periodic runs of at least min_len samples,
+    // y[0 .. len): the span; the pair from sample n is lag + slope * (n + lag / 2 - len / 2) samples apart (the
+    // period at the pair's centre; linear interpolation between samples). Of the maximal periodic runs of at least min_len samples,
     // returns the one that ends last (the newest note). floor: aperiodicity a block may always have
     // (0.45 = 45 %); forgive_lone: a lone block over the threshold is taken for noise. Allocates: no.
     Result find(const float* y, std::size_t len, double lag, double slope, std::size_t min_len, double floor,

@@ -20,6 +20,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <cstdlib>
 #include <cstdio>
 #include <string>
 
@@ -75,6 +76,10 @@ void latency(const bench::Context& ctx) {
             rig.open(rc, set_of({"1/1", "9/8", "5/4", "4/3", "3/2", "5/3", "15/8"}),
                      drone_at(root, audio::Timbre::round, -30.0), audio::RoomConfig{});
             rig.run();
+            if (getenv("VIB_LIVE") && f_new == atof(getenv("VIB_LIVE")) && su.block == 256 && rate == 44100.0)
+                for (const auto& s : rig.readings)
+                    if (s.r.t_s > 0.97 && s.r.t_s < 1.06)
+                        std::printf("cap %.4f t %.4f voiced %d f0 %.3f tgt %d dev %.2f\n", s.captured / rate, s.r.t_s, s.r.voiced(), s.r.f0_hz, s.r.target_index, s.r.dev_cents);
             const auto c1 = test::check_step(rig.readings, steps[1], root, rate,
                                              set_of({"1/1", "9/8", "5/4", "4/3", "3/2", "5/3", "15/8"}), 1.0);
             const auto c5 = test::check_step(rig.readings, steps[1], root, rate,
