@@ -123,6 +123,7 @@ struct YinTracker::Impl {
     double last_t_s = -1.0;              // t of the last frame delivered
     bool last_voiced = false;            // ... and whether it was voiced
     bool last_restricted = false;        // the last voiced frame used a stretch of its span
+    Index change_at = -1;                // where the newest note's stretch began, full-rate samples
 
     std::vector<float> x;  // full-rate samples [x_off, x_off + x_len)
     Index x_off = 0;
@@ -285,6 +286,7 @@ struct YinTracker::Impl {
         last_t_s = -1.0;
         last_voiced = false;
         last_restricted = false;
+        change_at = -1;
         curv = Curvature{};
         bad_samples = dropped = 0;
     }
@@ -620,7 +622,17 @@ struct YinTracker::Impl {
                    2;
         };
         PeriodicRun::Result best = runs.find(yp(m0), len, period, slope, min_len(period), kRunFloor, !last_restricted);
-        if (best.whole && !(last_restricted && best.aperiodicity > kNewestThreshold)) return false;
+        if (best.whole && !(last_restricted && best.aperiodicity > kNewestThreshold)) {
+            // A change found by the frames before stays cut out while the span still holds it (a small step's
+            // old note may measure under the threshold at the span's edge, yet pull the estimate).
+            const auto need = static_cast<Index>(min_len(period)) * D;
+            if (!last_restricted || !(change_at > A) || change_at + need > B) return false;
+            A = change_at;
+            Tc = period * static_cast<double>(D);
+            last_run_aperiodicity = best.aperiodicity;
+            last_run_period = period;
+            return true;
+        }
         double best_period = period;
         // The neighbours' coarse periods, and while a change is under way the period the last frame kept to.
         const double others[3] = {prev.aperiodicity < cfg.threshold ? prev.period_dec : 0.0,
@@ -647,8 +659,10 @@ struct YinTracker::Impl {
         if (!best.found || !(best.aperiodicity < cfg.threshold)) return false;
         last_run_aperiodicity = best.aperiodicity;
         last_run_period = best_period;
+        const Index span_end = B;
         A = std::max(A, (m0 + static_cast<Index>(best.begin)) * D);
         B = std::min(B, (m0 + static_cast<Index>(best.end) - 1) * D + 1);
+        if (B + 2 * D >= span_end && best.begin > 0) change_at = A;  // the newest note, from its start
         Tc = best_period * static_cast<double>(D);
         return true;
     }
