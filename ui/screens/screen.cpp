@@ -438,13 +438,18 @@ void ScreenDeck::help_overlay() {
     const ImVec2 disp = ImGui::GetIO().DisplaySize;
     const float u = ui_unit();
     const std::span<const KeyHelp> own = screens_[current_]->keys();
-    const std::size_t rows = std::size(kGlobalKeys) + own.size() + (own.empty() ? 0 : 1);
     const float row_h = std::round(1.45f * u);
     const float key_w = std::round(7.5f * u);
     float text_w = 0.0f;
     for (const KeyHelp& k : kGlobalKeys) text_w = std::max(text_w, text_size(FontFace::body, k.what).x);
     for (const KeyHelp& k : own) text_w = std::max(text_w, text_size(FontFace::body, k.what).x);
     const float w = std::min(disp.x - 2.0f * u, key_w + text_w + std::round(2.5f * u));
+    // A description wider than the window goes on to more lines, under itself.
+    const float what_w = w - key_w - std::round(2.0f * u);
+    std::size_t lines = 0;
+    for (const KeyHelp& k : kGlobalKeys) lines += std::max<std::size_t>(1, wrap_lines(FontFace::body, k.what, what_w).size());
+    for (const KeyHelp& k : own) lines += std::max<std::size_t>(1, wrap_lines(FontFace::body, k.what, what_w).size());
+    const std::size_t rows = lines + (own.empty() ? 0 : 1);
     const float h = std::min(disp.y - 2.0f * u, row_h * static_cast<float>(rows) + std::round(5.0f * u));
     ImGui::SetNextWindowPos(ImVec2(std::round(0.5f * (disp.x - w)), std::round(0.5f * (disp.y - h))));
     ImGui::SetNextWindowSize(ImVec2(w, h));
@@ -458,7 +463,11 @@ void ScreenDeck::help_overlay() {
     float y = p.y + std::round(0.9f * u) + font_px(FontFace::medium) + std::round(0.4f * u);
     auto row = [&](const KeyHelp& k) {
         draw_text(dl, FontFace::bold, ImVec2(p.x + u, y), palette::kYellow, k.keys);
-        draw_text(dl, FontFace::body, ImVec2(p.x + u + key_w, y), palette::kText, k.what);
+        const std::vector<std::string> what = wrap_lines(FontFace::body, k.what, what_w);
+        for (std::size_t i = 0; i < what.size(); ++i) {
+            draw_text(dl, FontFace::body, ImVec2(p.x + u + key_w, y), palette::kText, what[i]);
+            if (i + 1 < what.size()) y += std::round(0.85f * row_h);
+        }
         y += row_h;
     };
     for (const KeyHelp& k : kGlobalKeys) row(k);

@@ -1,6 +1,7 @@
 // DrawKit — see draw_kit.h.
 #include "ui/screens/widgets.h"
 
+#include "pitch/base/text.h"
 #include "ui/screens/palette.h"
 
 #include <cmath>
@@ -104,6 +105,22 @@ std::string fit_text(FontFace face, const std::string& text, float max_w) {
     }
     while (!s.empty() && s.back() == ' ') s.pop_back();
     return s + ell;
+}
+
+std::vector<std::string> wrap_lines(FontFace face, std::string_view text, float max_w) {
+    std::vector<std::string> lines;
+    std::string line;
+    pitch::for_each_part(text, ' ', [&](std::string_view word) {
+        if (word.empty()) return;
+        std::string joined = line.empty() ? std::string(word) : line + " " + std::string(word);
+        if (!line.empty() && text_size(face, joined).x > max_w) {
+            lines.push_back(fit_text(face, line, max_w));
+            joined = std::string(word);
+        }
+        line = std::move(joined);
+    });
+    if (!line.empty()) lines.push_back(fit_text(face, line, max_w));
+    return lines;
 }
 
 std::string signed_text(double v, int decimals) {
