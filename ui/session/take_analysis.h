@@ -9,6 +9,7 @@
 #include "pitch/dsp/signal_facts.h"
 #include "pitch/measure/decimated_trace.h"
 #include "pitch/measure/dyad_segment.h"
+#include "pitch/measure/intent.h"
 #include "pitch/measure/root_detect.h"
 #include "pitch/measure/segment.h"
 #include "pitch/theory/targets.h"
@@ -28,6 +29,16 @@ struct AnalysisRequest {
     pitch::TargetSet targets;         // must not be empty
     bool keep_trace = false;          // fill the decimated trace (for the report)
     std::optional<double> lowest_hz;  // one voice: the tracker's floor (default 55 Hz); a lower one lengthens its span
+    std::vector<int> expected;        // targets meant, in order (indices into targets); empty: none, one: every note
+    pitch::IntentConfig intent;       // the alignment's costs and the between-targets limit
+};
+
+// What was heard when nothing (or little) was found: the level and the estimated signal-to-noise ratio of what the
+// tracker heard (the drone removed).
+struct HeardLevels {
+    double loudest_dbfs = -INFINITY;  // RMS of the loudest block of the file
+    double floor_dbfs = -INFINITY;    // 10th percentile of the tracked signal's block RMS
+    double snr_db = INFINITY;         // estimated from the spread of block levels (pitch/dsp/signal_facts.h)
 };
 
 // Called with the share of the whole job done (0..1) and the pass's name.
@@ -41,9 +52,11 @@ struct OneVoiceAnalysis {
     double drone_hz = 0.0;     // the drone the comb removed, 0 when none was found
     double hop_s = 0.0;        // tracker hop
     std::vector<pitch::NoteResult> notes;
-    std::vector<std::int64_t> notes_clipped;  // per note: samples at full scale during it
-    std::vector<pitch::TargetSummary> summary;
+    std::vector<std::int64_t> notes_clipped;    // per note: samples at full scale during it
+    std::vector<pitch::NoteJudgement> judged;   // per note: against the target meant (or the nearest, or between)
+    std::vector<pitch::TargetSummary> summary;  // per judged target
     std::size_t short_notes_dropped = 0;
+    HeardLevels heard;
     pitch::SignalFacts facts;
     pitch::DecimatedTrace trace;  // cents above the root (when keep_trace)
 };
@@ -51,9 +64,14 @@ struct OneVoiceAnalysis {
 struct TwoVoiceAnalysis {
     audio::SoundInfo info;
     double hop_s = 0.0;
+    // A steady drone found in the file is one of the two voices: it is combed out and the other voice is measured
+    // against it (as with one voice), so none of its partials is taken for a voice. 0 when none was found.
+    double drone_hz = 0.0;
     std::vector<pitch::DyadResult> dyads;
+    std::vector<pitch::NoteJudgement> judged;  // per dyad, as for notes
     std::vector<pitch::TargetSummary> summary;
     std::size_t short_dyads_dropped = 0;
+    HeardLevels heard;
     pitch::SignalFacts facts;
     pitch::DecimatedTrace trace;  // interval in cents, high above low (when keep_trace)
 };
