@@ -12,10 +12,12 @@
 #include "audio/soundfile.h"
 #include "tests/cli.h"
 #include "tests/mix_signals.h"
+#include "ui/session/take_file.h"
 
 #include <doctest/doctest.h>
 
 #include <cmath>
+#include <filesystem>
 #include <sstream>
 #include <string>
 #include <vector>
@@ -219,4 +221,55 @@ TEST_CASE("noise from 40 dB to 0 dB SNR: fewer notes, never more again, each wit
     CHECK(j.exit_code == 0);
     CHECK(beatless::test::line_count(j.err) == 1);
     CHECK(j.err.rfind("beatless: " + dir.file("noise.wav") + ": no held notes found: loudest ", 0) == 0);
+}
+
+TEST_CASE("a take's sidecar gives analyze its set, root and fixed target") {
+    TempDir dir;
+    // Sung 45/32 twelve cents flat twice, recorded with the tritone set and 45/32 as the fixed target.
+    const Take take = drone_and_voice(kFs, 110.0, {{45.0 / 32.0, -12.0}, {45.0 / 32.0, -11.0}}, 31);
+    const std::string flac = dir.file("2026-12-03_161502.flac");
+    beatless::audio::write_wav(dir.file("x.wav"), take.samples, kFs, beatless::audio::SampleFormat::float32);
+    std::filesystem::rename(dir.file("x.wav"), flac);  // libsndfile reads by content, not by name
+    beatless::ui::TakeInfo info;
+    info.audio_path = flac;
+    info.sidecar_path = beatless::ui::take_sidecar_path(flac);
+    info.rate_hz = kFs;
+    info.root_hz = 110.0;
+    info.root = "A2";
+    info.targets = "tritones";
+    info.target = "45/32";
+    info.duration_s = take.dur_s;
+    info.complete = true;
+    beatless::ui::write_take_sidecar(info);
+    const auto r = run_program({"analyze", flac, "--format", "json"});
+    REQUIRE_MESSAGE(r.exit_code == 0, r.err);
+    CHECK(json_value(r.out, "d['targets']") == "tritones");
+    CHECK(json_value(r.out, "d['root_source']") == "given");
+    const auto target = words(r.out, "[n['target'] for n in d['notes']]");
+    const auto dev = numbers(r.out, "[n['dev_cents'] for n in d['notes']]");
+    REQUIRE(dev.size() == 2);
+    CHECK(target[0] == "45/32");  // its nearest is 7/5, 4.3 c away
+    CHECK(std::fabs(dev[0] + 12.0) < 0.5);
+    CHECK(std::fabs(dev[1] + 11.0) < 0.5);
+    // The command line wins: another set, and no fixed target with it.
+    const auto other = run_program({"analyze", flac, "--targets", "7-limit", "--format", "json"});
+    CHECK(json_value(other.out, "d['targets']") == "7-limit");
+
+    // A take of a drill sung in sequence (hold-tritones: 15/11, 11/8, 7/5, 45/32, 600c, ... as its target set lists
+    // them, targets/tritones.toml): the notes are meant in that order.
+    const Take drill = drone_and_voice(kFs, 110.0, {{15.0 / 11.0, 3.0}, {11.0 / 8.0, -2.0}, {7.0 / 5.0, 9.0}}, 37);
+    beatless::audio::write_wav(dir.file("x.wav"), drill.samples, kFs, beatless::audio::SampleFormat::float32);
+    std::filesystem::rename(dir.file("x.wav"), flac);
+    info.target = "";
+    info.drill = "hold-tritones";
+    beatless::ui::write_take_sidecar(info);
+    const auto d = run_program({"analyze", flac, "--format", "json"});
+    REQUIRE_MESSAGE(d.exit_code == 0, d.err);
+    const auto d_meant = words(d.out, "[n['meant'] for n in d['notes']]");
+    const auto d_dev = numbers(d.out, "[n['dev_cents'] for n in d['notes']]");
+    REQUIRE(d_meant.size() == 3);
+    CHECK(d_meant[0] == "15/11");
+    CHECK(d_meant[1] == "11/8");
+    CHECK(d_meant[2] == "7/5");  // 591.5 c: nearer 45/32 (590.2 c), but meant 7/5
+    CHECK(std::fabs(d_dev[2] - 9.0) < 0.5);
 }

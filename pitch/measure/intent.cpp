@@ -46,25 +46,27 @@ std::vector<NoteJudgement> judge_notes(const TargetSet& set, std::span<const dou
         std::vector<double> cost((m + 1) * w, 0.0);
         std::vector<std::uint8_t> move((m + 1) * w, 0);
         for (std::size_t j = 1; j <= len; ++j) {
-            cost[j] = cost[j - 1] + cfg.skip_cents;
+            cost[j] = cost[j - 1] + cfg.skip_target_cents;
             move[j] = 2;
         }
         for (std::size_t i = 1; i <= m; ++i) {
-            cost[i * w] = cost[(i - 1) * w] + cfg.skip_cents;
+            cost[i * w] = cost[(i - 1) * w] + cfg.skip_note_cents;
             move[i * w] = 1;
             for (std::size_t j = 1; j <= len; ++j) {
                 double best = cost[(i - 1) * w + j - 1] + pair_cost(i - 1, j - 1);
                 std::uint8_t mv = 0;
-                const double skip_note = cost[(i - 1) * w + j] + cfg.skip_cents;
+                const double skip_note = cost[(i - 1) * w + j] + cfg.skip_note_cents;
                 if (skip_note < best) best = skip_note, mv = 1;
-                const double skip_target = cost[i * w + j - 1] + cfg.skip_cents;
+                const double skip_target = cost[i * w + j - 1] + cfg.skip_target_cents;
                 if (skip_target < best) best = skip_target, mv = 2;
                 cost[i * w + j] = best;
                 move[i * w + j] = mv;
             }
         }
-        // Every path ends at the sequence's end, so targets left after the last note cost all paths alike.
-        std::size_t j = len;
+        // Targets left after the last note cost nothing (the take stopped early): end where the notes end cheapest.
+        std::size_t j = 0;
+        for (std::size_t k = 1; k <= len; ++k)
+            if (cost[m * w + k] < cost[m * w + j]) j = k;
         for (std::size_t i = m; i > 0 || j > 0;) {
             const std::uint8_t mv = move[i * w + j];
             if (mv == 0) {

@@ -1,8 +1,10 @@
 // Intent — each held note judged against the target the performer meant, and flagged when it lies between targets.
 // Method: the notes are aligned in order with the expected sequence (repeated as often as the take needs) by a
 // least-cost alignment (Needleman and Wunsch, J. Mol. Biol. 48(3), 1970): pairing a note with an expected target costs
-// its distance in cents (at the nearest octave), leaving a note or a target out costs skip_cents. A note meant nothing farther than between_cents from every target is
-// "between targets". Thread: any. Allocates: yes (the alignment table, notes x expected).
+// its distance in cents (at the nearest octave), leaving a target out skip_target_cents, leaving a note out (a note
+// sung is surely meant as something) skip_note_cents, and targets after the last note nothing (the take stopped).
+// A note meant nothing and farther than between_cents from every target is "between targets".
+// Thread: any. Allocates: yes (the alignment table, notes x expected).
 #pragma once
 
 #include "pitch/theory/targets.h"
@@ -14,11 +16,12 @@
 namespace beatless::pitch {
 
 struct IntentConfig {
-    double between_cents = 25.0;    // a note meant nothing and farther than this from every target is "between
-                                    //   targets" (default 25 cents: a quarter of a semitone, common practice)
-    double skip_cents = 50.0;       // cost of leaving a note or an expected target unpaired (default 50 cents: a
-                                    //   note more than 100 cents from the target meant is taken as not meant)
-    bool octave_equivalent = true;  // targets match in every octave (default on)
+    double between_cents = 25.0;      // a note meant nothing and farther than this from every target is "between
+                                      //   targets" (default 25 cents: a quarter of a semitone, common practice)
+    double skip_target_cents = 50.0;  // cost of an expected target no note was paired with (default 50 cents)
+    double skip_note_cents = 100.0;   // cost of a note paired with nothing (default 100 cents: a note more than
+                                      //   150 cents from the target due is taken as not meant)
+    bool octave_equivalent = true;    // targets match in every octave (default on)
 };
 
 struct NoteJudgement {

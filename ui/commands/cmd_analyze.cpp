@@ -27,9 +27,11 @@
 #include "ui/commands/commands.h"
 #include "ui/commands/progress.h"
 #include "ui/screens/take_report.h"
+#include "ui/session/drill_files.h"
 #include "ui/session/json.h"
 #include "ui/session/log_csv.h"
 #include "ui/session/take_analysis.h"
+#include "ui/session/take_file.h"
 #include "ui/session/take_words.h"
 #include "ui/session/target_files.h"
 #include "ui/session/usage_error.h"
@@ -50,7 +52,9 @@ namespace {
 struct AnalyzeOptions {
     std::string file;
     std::string root = "auto";
-    bool root_set = false;  // --root given on the command line
+    bool root_set = false;     // --root given on the command line
+    bool targets_set = false;  // --targets given
+    bool a4_set = false;       // --a4 given
     double a4_hz = pitch::kDefaultA4Hz;
     std::string targets = "7-limit";
     int voices = 1;
@@ -484,7 +488,30 @@ ReportData two_voice_report(const AnalyzeOptions& o, const pitch::TargetSet& set
 // ---------------------------------------------------------------------------
 // [SECTION] The command
 // ---------------------------------------------------------------------------
-int run_analyze(const AnalyzeOptions& o) {
+// A take's sidecar beside the file supplies what the command line left out: its target set, its root and A4, and
+// its fixed target as the one every note meant.
+AnalyzeOptions with_take_context(AnalyzeOptions o) {
+    std::error_code ec;
+    const std::filesystem::path side = take_sidecar_path(o.file);
+    if (!std::filesystem::is_regular_file(side, ec)) return o;
+    const TakeInfo take = read_take_sidecar(side);
+    if (!o.targets_set && !take.targets.empty()) o.targets = take.targets;
+    if (!o.a4_set) o.a4_hz = take.a4_hz;
+    if (!o.root_set && o.voices == 1 && take.root_hz > 0.0)
+        o.root = take.root.empty() ? pitch::format_trimmed(take.root_hz, 4) : take.root;
+    if (o.expect.empty() && !o.targets_set && !take.target.empty()) o.expect = take.target;
+    // A hold drill sung in sequence: its targets in order (a shuffled one's order is not kept, so none is expected).
+    if (o.expect.empty() && !o.targets_set && !take.drill.empty()) {
+        const Drill d = load_drill(take.drill);
+        if (d.mode == DrillMode::hold && d.order == TargetOrder::sequence)
+            for (const DrillTarget& t : d.sequence(0))
+                o.expect += (o.expect.empty() ? "" : ",") + t.target.interval.str();
+    }
+    return o;
+}
+
+int run_analyze(const AnalyzeOptions& given) {
+    const AnalyzeOptions o = with_take_context(given);
     pitch::check_a4(o.a4_hz);
     if (o.voices != 1 && o.voices != 2) throw UsageError("--voices " + std::to_string(o.voices) + ": choose 1 or 2");
     if (o.channel && *o.channel < 1)
@@ -544,8 +571,11 @@ void register_analyze(CLI::App& app, Runner& run) {
     sub->add_option("FILE", o->file, "Sound file (WAV, FLAC, AIFF, Ogg)")->required();
     CLI::Option* root = sub->add_option("--root", o->root,
                                         "The drone's root: auto (found in the file, default), a note (A2) or Hz (110)");
-    sub->add_option("--a4", o->a4_hz, "A4 reference in Hz for note names (400-480, default 440)");
-    sub->add_option("--targets", o->targets, "Target set: a built-in name or a .toml file (default 7-limit)");
+    CLI::Option* a4 = sub->add_option("--a4", o->a4_hz, "A4 reference in Hz for note names (400-480, default 440)");
+    CLI::Option* targets = sub->add_option(
+        "--targets", o->targets,
+        "Target set: a built-in name or a .toml file (default: the take's own when its sidecar is beside the file, "
+        "else 7-limit)");
     sub->add_option("--voices", o->voices, "1: a voice against a drone (default); 2: two voices from one microphone");
     add_format_option(*sub, o->format, {Format::text, Format::json, Format::csv});
     sub->add_option("--report", o->report, "Also draw a printable page (PNG) of the trace, notes and summary");
@@ -563,8 +593,10 @@ void register_analyze(CLI::App& app, Runner& run) {
         "level,\nthe estimated signal-to-noise ratio and what to try: on stdout as text, on stderr with --format json "
         "or csv);\n1 for a file that cannot be read, is silent or (without --root) has no steady drone; 2 for bad "
         "usage.");
-    sub->callback([o, root, &run] {
+    sub->callback([o, root, targets, a4, &run] {
         o->root_set = root->count() > 0;
+        o->targets_set = targets->count() > 0;
+        o->a4_set = a4->count() > 0;
         run = [o] { return run_analyze(*o); };
     });
 }
