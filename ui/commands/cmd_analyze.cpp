@@ -27,11 +27,9 @@
 #include "ui/commands/commands.h"
 #include "ui/commands/progress.h"
 #include "ui/screens/take_report.h"
-#include "ui/session/drill_files.h"
 #include "ui/session/json.h"
 #include "ui/session/log_csv.h"
 #include "ui/session/take_analysis.h"
-#include "ui/session/take_file.h"
 #include "ui/session/take_words.h"
 #include "ui/session/target_files.h"
 #include "ui/session/usage_error.h"
@@ -80,25 +78,6 @@ std::string target_name(const pitch::TargetSet& set, int index) {
 std::string target_text(const pitch::TargetSet& set, int index) {
     if (index < 0 || static_cast<std::size_t>(index) >= set.targets.size()) return "";
     return set.targets[static_cast<std::size_t>(index)].interval.str();
-}
-
-// The targets of --expect as indices into the set; targets the set lacks are added to it (named by the trade).
-std::vector<int> expected_targets(const std::string& list, pitch::TargetSet& set) {
-    std::vector<int> out;
-    pitch::for_each_part(list, ',', [&](std::string_view part) {
-        const std::string_view t = pitch::trim(part);
-        if (t.empty()) throw Error("--expect " + pitch::quote(list) + ": an empty item; list targets as 7/5,10/7");
-        const pitch::Interval iv = pitch::parse_interval(t);
-        int at = -1;
-        for (std::size_t i = 0; i < set.targets.size(); ++i)
-            if (std::fabs(set.targets[i].interval.cents() - iv.cents()) < 1e-6) at = static_cast<int>(i);
-        if (at < 0) {
-            set.targets.push_back({iv, ""});
-            at = static_cast<int>(set.targets.size() - 1);
-        }
-        out.push_back(at);
-    });
-    return out;
 }
 
 // "7/5", "3/2 +1oct", or "-" for a note between targets.
@@ -488,25 +467,14 @@ ReportData two_voice_report(const AnalyzeOptions& o, const pitch::TargetSet& set
 // ---------------------------------------------------------------------------
 // [SECTION] The command
 // ---------------------------------------------------------------------------
-// A take's sidecar beside the file supplies what the command line left out: its target set, its root and A4, and
-// its fixed target as the one every note meant.
+// A take's sidecar beside the file supplies what the command line left out (ui/session/take_analysis.h).
 AnalyzeOptions with_take_context(AnalyzeOptions o) {
-    std::error_code ec;
-    const std::filesystem::path side = take_sidecar_path(o.file);
-    if (!std::filesystem::is_regular_file(side, ec)) return o;
-    const TakeInfo take = read_take_sidecar(side);
-    if (!o.targets_set && !take.targets.empty()) o.targets = take.targets;
-    if (!o.a4_set) o.a4_hz = take.a4_hz;
-    if (!o.root_set && o.voices == 1 && take.root_hz > 0.0)
-        o.root = take.root.empty() ? pitch::format_trimmed(take.root_hz, 4) : take.root;
-    if (o.expect.empty() && !o.targets_set && !take.target.empty()) o.expect = take.target;
-    // A hold drill sung in sequence: its targets in order (a shuffled one's order is not kept, so none is expected).
-    if (o.expect.empty() && !o.targets_set && !take.drill.empty()) {
-        const Drill d = load_drill(take.drill);
-        if (d.mode == DrillMode::hold && d.order == TargetOrder::sequence)
-            for (const DrillTarget& t : d.sequence(0))
-                o.expect += (o.expect.empty() ? "" : ",") + t.target.interval.str();
-    }
+    const TakeDefaults t = take_defaults(o.file);
+    if (!t.found) return o;
+    if (!o.targets_set && !t.targets.empty()) o.targets = t.targets;
+    if (!o.a4_set && t.a4_hz) o.a4_hz = *t.a4_hz;
+    if (!o.root_set && o.voices == 1 && !t.root.empty()) o.root = t.root;
+    if (o.expect.empty() && !o.targets_set) o.expect = t.expect;
     return o;
 }
 

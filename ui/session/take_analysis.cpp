@@ -9,10 +9,15 @@
 #include "pitch/dsp/yin.h"
 #include "pitch/measure/two_voice.h"
 #include "pitch/theory/beats.h"
+#include "pitch/theory/notes.h"
+#include "ui/session/drill_files.h"
+#include "ui/session/take_file.h"
+#include "ui/session/target_files.h"
 
 #include <algorithm>
 #include <array>
 #include <cmath>
+#include <filesystem>
 #include <memory>
 #include <optional>
 
@@ -343,6 +348,79 @@ TwoVoiceAnalysis analyze_two_voices(audio::SoundReader& reader, const AnalysisRe
         [&](const pitch::NoteJudgement& j, pitch::DyadResult& d) { apply(j, req.targets, dc.audible, d); }, out.judged,
         out.summary);
     return out;
+}
+
+// ---------------------------------------------------------------------------
+// [SECTION] A take's context
+// ---------------------------------------------------------------------------
+
+TakeDefaults take_defaults(const std::string& audio_path) {
+    TakeDefaults d;
+    std::error_code ec;
+    const std::filesystem::path side = take_sidecar_path(audio_path);
+    if (!std::filesystem::is_regular_file(side, ec)) return d;
+    const TakeInfo take = read_take_sidecar(side);
+    d.found = true;
+    d.targets = take.targets;
+    d.a4_hz = take.a4_hz;
+    if (take.root_hz > 0.0) d.root = take.root.empty() ? pitch::format_trimmed(take.root_hz, 4) : take.root;
+    d.expect = take.target;
+    // A hold drill sung in sequence: its targets in order (a shuffled one's order is not kept, so none is expected).
+    if (d.expect.empty() && !take.drill.empty()) {
+        const Drill drill = load_drill(take.drill);
+        if (drill.mode == DrillMode::hold && drill.order == TargetOrder::sequence)
+            for (const DrillTarget& t : drill.sequence(0))
+                d.expect += (d.expect.empty() ? "" : ",") + t.target.interval.str();
+    }
+    return d;
+}
+
+std::vector<int> expected_targets(const std::string& list, pitch::TargetSet& set) {
+    std::vector<int> out;
+    pitch::for_each_part(list, ',', [&](std::string_view part) {
+        const std::string_view t = pitch::trim(part);
+        if (t.empty()) throw Error("--expect " + pitch::quote(list) + ": an empty item; list targets as 7/5,10/7");
+        const pitch::Interval iv = pitch::parse_interval(t);
+        int at = -1;
+        for (std::size_t i = 0; i < set.targets.size(); ++i)
+            if (std::fabs(set.targets[i].interval.cents() - iv.cents()) < 1e-6) at = static_cast<int>(i);
+        if (at < 0) {
+            set.targets.push_back({iv, ""});
+            at = static_cast<int>(set.targets.size() - 1);
+        }
+        out.push_back(at);
+    });
+    return out;
+}
+
+// ---------------------------------------------------------------------------
+// [SECTION] A take reviewed
+// ---------------------------------------------------------------------------
+
+ReviewedTake review_take(const std::string& path, const std::string& default_set) {
+    ReviewedTake r;
+    r.path = path;
+    r.title = std::filesystem::path(path).filename().string();
+    try {
+        const TakeDefaults d = take_defaults(path);
+        r.set_name = d.targets.empty() ? default_set : d.targets;
+        r.set = load_target_set(r.set_name);
+        if (r.set.targets.empty()) throw Error(r.set_name + ": the target set has no targets");
+        r.a4_hz = d.a4_hz.value_or(pitch::kDefaultA4Hz);
+        r.expect = d.expect;
+        AnalysisRequest req;
+        req.path = path;
+        req.channel = -1;
+        if (!d.root.empty()) req.root_hz = pitch::parse_root(d.root, r.a4_hz);
+        req.keep_trace = true;
+        if (!r.expect.empty()) req.expected = expected_targets(r.expect, r.set);
+        req.targets = r.set;
+        r.analysis = analyze_one_voice(req);
+    } catch (const std::exception& e) {
+        r.error = e.what();
+        r.analysis = OneVoiceAnalysis{};
+    }
+    return r;
 }
 
 }  // namespace beatless::ui

@@ -92,4 +92,37 @@ inline constexpr std::size_t kAnalysisBlockFrames = 4096;
 // The level below which a file counts as silent (same as the analyzers').
 constexpr double kSilenceDbfs = -60.0;
 
+// [SECTION] A take's context
+
+// What a take's sidecar (ui/session/take_file.h) beside a sound file says about analyzing it.
+struct TakeDefaults {
+    bool found = false;           // a sidecar was beside the file
+    std::string targets;          // its target set ("" when it names none)
+    std::string root;             // its root as typed ("A2"), else in Hz; "" when unknown
+    std::optional<double> a4_hz;  // its A4
+    std::string expect;  // what was meant: its fixed target, or a hold drill's targets in sequence ("7/5,10/7")
+};
+// Throws Error (a sidecar that does not read, a drill that does not load).
+TakeDefaults take_defaults(const std::string& audio_path);
+
+// The targets of a list such as "7/5,10/7" as indices into the set; targets the set lacks are added to it.
+// Throws Error naming the list (an empty item) or the interval.
+std::vector<int> expected_targets(const std::string& list, pitch::TargetSet& set);
+
+// [SECTION] A take reviewed
+
+// One voice reviewed the way `analyze` does it by default, with the trace kept (the Review screen).
+struct ReviewedTake {
+    std::string path;      // the sound file
+    std::string title;     // its file name
+    std::string set_name;  // the target set analysed against
+    pitch::TargetSet set;  // ... with --expect's extra targets
+    std::string expect;    // what was meant ("" = nearest)
+    double a4_hz = 440.0;
+    OneVoiceAnalysis analysis;
+    std::string error;  // one line when it could not be analysed (the rest is then empty)
+};
+// Never throws: a failure is kept in `error`. default_set is used when no sidecar names one.
+ReviewedTake review_take(const std::string& path, const std::string& default_set);
+
 }  // namespace beatless::ui
