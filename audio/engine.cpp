@@ -9,6 +9,7 @@
 #include "audio/engine.h"
 
 #include "audio/soundfile.h"
+#include "audio/take_recorder.h"
 #include "pitch/base/error.h"
 #include "pitch/base/text.h"
 #include "pitch/dsp/yin.h"
@@ -77,6 +78,9 @@ struct Engine::Impl {
     // Set when start() has built everything the callbacks touch: a stream
     // opened earlier in start() may call back before that, and is ignored.
     std::atomic<bool> ready{false};
+    // Recording tap (set_tap): the callback counts itself in while it uses it.
+    std::atomic<TakeRecorder*> tap{nullptr};
+    std::atomic<int> tap_users{0};
 
     // One performer: readings, swapped in whole when the targets change.
     std::unique_ptr<pitch::ReadingMaker> maker;
@@ -451,6 +455,14 @@ void Engine::capture(const float* in, std::size_t frames, int channels) noexcept
     m.io.count_callback();
     if (!m.ready.load(std::memory_order_acquire)) return;
     const auto ch = static_cast<std::size_t>(std::max(1, channels));
+    // The tap: counted in before it is read, so set_tap(nullptr) knows when the old one is free. A file's
+    // flushing silence after its end is not recorded.
+    TakeRecorder* tap = nullptr;
+    const bool tapped = m.tap.load(std::memory_order_relaxed) != nullptr && !m.io.producer_done.load();
+    if (tapped) {
+        m.tap_users.fetch_add(1, std::memory_order_acq_rel);
+        tap = m.tap.load(std::memory_order_acquire);
+    }
     std::size_t done = 0;
     while (done < frames) {
         const std::size_t n = std::min(frames - done, kScratch);
@@ -470,9 +482,11 @@ void Engine::capture(const float* in, std::size_t frames, int channels) noexcept
             if (m.room_drone)
                 m.rooms[p]->process_add(std::span<const float>(m.room_scratch.data(), n), std::span<float>(s, n));
             m.rings[p]->write(std::span<const float>(s, n));
+            if (tap) tap->capture(p, std::span<const float>(s, n));
         }
         done += n;
     }
+    if (tapped) m.tap_users.fetch_sub(1, std::memory_order_release);
 }
 
 void Engine::playback(float* out, std::size_t frames, int channels) noexcept {
@@ -689,6 +703,10 @@ void Engine::run_fast_impl(const std::function<void(const R&)>& on_reading, doub
         buf, ch, static_cast<std::size_t>(0.2 * m.rate), std::span<R>(got), max_s, on_reading,
         [&m](std::span<float> b) { return m.read_file_block(b); },
         [this, &m](const float* data, std::size_t n) {
+            // A take being recorded keeps every frame: the file waits for its writer rather than overflow its rings.
+            if (TakeRecorder* t = m.tap.load())
+                while (!t->stopped_early() && t->space_frames() < n)
+                    std::this_thread::sleep_for(std::chrono::milliseconds(1));
             capture(data, n, m.in_channels);
             analyze_available();
         },
@@ -739,10 +757,21 @@ void Engine::set_drone(const DroneSettings& s) {
     Impl& m = *impl_;
     drone_ = s;
     m.root_hz.store(s.root_hz);
+    if (TakeRecorder* tap = m.tap.load(std::memory_order_acquire)) tap->note_drone(s);
     if (!m.started) return;
     if (m.io.out_drone) m.io.out_drone->set(s);
     if (m.room_drone) m.room_drone->set(s);
     m.drone_for_analysis.publish(s);
+}
+
+void Engine::set_tap(TakeRecorder* r) {
+    Impl& m = *impl_;
+    m.tap.store(r, std::memory_order_release);
+    if (r) {
+        r->note_drone(drone_);
+        return;
+    }
+    while (m.tap_users.load(std::memory_order_acquire) != 0) std::this_thread::sleep_for(std::chrono::microseconds(200));
 }
 
 void Engine::set_root_hz(double root_hz) {

@@ -35,6 +35,8 @@
 
 namespace beatless::audio {
 
+class TakeRecorder;
+
 // The live tracker's lowest f0 by default for one performer (voices, violin,
 // viola: the lowest note of a bass voice, E2, is 82 Hz); lower needs a longer span.
 inline constexpr double kLiveLowestHz = 70.0;
@@ -132,6 +134,10 @@ public:
     // Throws Error on a frequency outside 20 Hz .. 5 kHz or a length outside 0.1 .. 30 s.
     void sound_tone(double freq_hz, double dur_s);
     void supervise();  // watchdog, reopening, a group's channel messages; every ~100 ms
+    // Recording: from the next callback every analysed channel, as it came in (before drone removal), is copied to
+    // `r` (audio/take_recorder.h), one recorder channel per analysed channel; drone changes are noted in it. nullptr
+    // detaches, waiting until no callback uses the old one. Costs one relaxed atomic load per callback when none.
+    void set_tap(TakeRecorder* r);
     void on_message(std::function<void(const std::string&)> f) { message_ = std::move(f); }
 
     // --- Readings and status ------------------------------------------------------

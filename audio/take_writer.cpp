@@ -31,6 +31,15 @@ SNDFILE* open_flac_for_writing(const std::string& path, const std::string& shown
     return f;
 }
 
+// libsndfile's error text without its "System error : " prefix and final full stop ("File too large").
+std::string sf_reason(SNDFILE* f) {
+    std::string s = sf_strerror(f);
+    for (const char* prefix : {"System error : ", "Error : "})
+        if (s.rfind(prefix, 0) == 0) s.erase(0, std::char_traits<char>::length(prefix));
+    if (!s.empty() && s.back() == '.') s.pop_back();
+    return s;
+}
+
 }  // namespace
 
 std::int32_t pcm24_code(float x) noexcept {
@@ -59,7 +68,7 @@ void TakeWriter::write(std::span<const float> interleaved) {
         codes_[i] = static_cast<std::int32_t>(static_cast<std::uint32_t>(pcm24_code(interleaved[i])) << 8);
     const sf_count_t frames = static_cast<sf_count_t>(n / ch);
     if (sf_writef_int(as_sf(file_), codes_.data(), frames) != frames)
-        throw Error(path_ + ": write failed (" + std::string(sf_strerror(as_sf(file_))) + ")");
+        throw Error(path_ + ": write failed (" + sf_reason(as_sf(file_)) + ")");
     frames_ += frames;
 }
 

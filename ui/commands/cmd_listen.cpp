@@ -3,7 +3,8 @@
 //   beatless listen [--demo | --input-file FILE [--fast] | --input DEV]
 //                   [--root NOTE|HZ] [--a4 HZ] [--targets SET | --target R]
 //                   [--seconds S] [--drone | --no-drone] [--output DEV]
-//                   [--midi-out PORT [--midi-tuning mts|bend] [--bend-range N]] [--midi-in PORT] ...
+//                   [--midi-out PORT [--midi-tuning mts|bend] [--bend-range N]] [--midi-in PORT]
+//                   [--record [FILE.flac | FOLDER]] ...
 //
 // One JSON object per reading on stdout: {"t", "f0_hz", "confidence",
 // "ratio", "target", "target_name", "dev_cents", "centre_dev_cents",
@@ -19,6 +20,8 @@
 // --midi-out plays the drone (and a fixed --target's reference tone) on a
 // MIDI synth, retuned exactly; --midi-in lets a keyboard set the root (a key)
 // or the target (a key held with the root's key). MIDI runs on this thread.
+// --record keeps the input as a take (ui/session/take_recording.h): FILE.flac with FILE.toml beside it, or in a
+// folder (default: the data folder's takes/) named by date and time; takes cut short earlier are recovered first.
 #include "audio/device.h"
 #include "audio/engine.h"
 #include "audio/sound_system.h"
@@ -31,6 +34,9 @@
 #include "ui/commands/commands.h"
 #include "ui/session/json.h"
 #include "ui/session/midi_session.h"
+#include "ui/session/paths.h"
+#include "ui/session/safe_file.h"
+#include "ui/session/take_recording.h"
 #include "ui/session/target_files.h"
 #include "ui/session/usage_error.h"
 #include "ui/session/wording.h"
@@ -82,7 +88,9 @@ struct ListenOptions {
     double hop_ms = 5.0;
     std::string lowest;
     std::uint64_t seed = 7;
-    int voices = 1;  // 2: two voices in one input (a double stop, a duet)
+    int voices = 1;         // 2: two voices in one input (a double stop, a duet)
+    bool record = false;    // --record given
+    std::string record_to;  // its FILE or folder; "" = the data folder's takes/
 };
 
 // Names of a reading's target in its octave (a Reading or a TwoVoiceFrame: both carry target_index and target_octaves).
@@ -271,6 +279,30 @@ pitch::TargetSet chosen_targets(const ListenOptions& o) {
     return s;
 }
 
+// Where --record writes: FILE.flac as given, or a new date-and-time name in a folder (default <data>/takes/).
+std::filesystem::path take_target(const ListenOptions& o) {
+    namespace fs = std::filesystem;
+    std::error_code ec;
+    if (!o.record_to.empty() && !fs::is_directory(o.record_to, ec)) {
+        const fs::path p(o.record_to);
+        if (p.extension() != ".flac")
+            throw Error("--record " + pitch::quote(o.record_to) + ": a take is written as FLAC; name it .flac");
+        if (fs::exists(p, ec)) throw Error(o.record_to + ": already exists; a take never replaces a file");
+        check_output_path(p);
+        return p;
+    }
+    const fs::path dir = o.record_to.empty() ? takes_dir() : fs::path(o.record_to);
+    ensure_dir(dir);
+    for (const RecoveredTake& r : recover_takes(dir)) {
+        if (r.problem.empty())
+            std::fprintf(stderr, "beatless: recovered a take cut short: %s (%s s)\n", r.audio_path.c_str(),
+                         pitch::format_trimmed(r.duration_s, 1).c_str());
+        else
+            std::fprintf(stderr, "beatless: %s\n", r.problem.c_str());
+    }
+    return free_take_path(dir, std::time(nullptr));
+}
+
 std::string stream_text(const char* dir, const std::string& name, const audio::StreamInfo& s, double latency_s) {
     return std::string(dir) + " '" + name + "' (" + s.host_api + "): " + pitch::format_trimmed(s.sample_rate_hz, 0) +
            " Hz, " + std::to_string(s.block_len_frames) + "-frame blocks, device latency " +
@@ -308,6 +340,7 @@ int run_live(const ListenOptions& o, Printing printing) {
 
     std::string what, input_why, output_why;
     int input_index = -1;
+    double file_rate_hz = 0.0;
     if (o.demo) {
         audio::DemoConfig dc;
         dc.root_hz = root_hz;
@@ -316,7 +349,7 @@ int run_live(const ListenOptions& o, Printing printing) {
         engine.use_demo(dc);
         what = "the demo performer";
     } else if (!o.input_file.empty()) {
-        engine.use_file(o.input_file);
+        file_rate_hz = engine.use_file(o.input_file);
         engine.set_input_has_drone(o.drone);
         what = "'" + o.input_file + "'";
     } else {
@@ -349,6 +382,24 @@ int run_live(const ListenOptions& o, Printing printing) {
     }
     engine.set_drone(ds);
     if (o.drone && (play_drone || o.demo)) hearing_caution_once();
+
+    // A file or the demo knows its rate now: the take starts with the first sample. A device's is known at start().
+    std::unique_ptr<TakeRecording> take;
+    const std::filesystem::path take_path = o.record ? take_target(o) : std::filesystem::path();
+    TakeContext take_context;
+    take_context.device = o.demo ? "the demo performer" : !o.input_file.empty() ? "file " + o.input_file : "";
+    take_context.root = o.root;
+    take_context.a4_hz = o.a4_hz;
+    take_context.targets = o.target.empty() ? o.targets : "";
+    take_context.target = o.target;
+    auto start_take = [&](double rate_hz) {
+        take = std::make_unique<TakeRecording>(engine, take_path, take_context, rate_hz, 1);
+        std::fprintf(stderr, "beatless: recording to %s\n", take_path.c_str());
+    };
+    auto end_take = [&] {
+        if (take) std::fprintf(stderr, "beatless: %s\n", take->stop().c_str());
+    };
+    if (o.record && !device_input) start_take(o.demo ? audio::DemoConfig{}.sample_rate_hz : file_rate_hz);
 
     std::unique_ptr<MidiSession> midi;
     if (!o.midi_out.empty() || !o.midi_in.empty()) {
@@ -432,6 +483,10 @@ int run_live(const ListenOptions& o, Printing printing) {
         std::signal(SIGINT, on_sigint);
         std::signal(SIGTERM, on_sigint);
         engine.start();
+        if (o.record && device_input) {
+            take_context.device = engine.input_name();
+            start_take(engine.sample_rate_hz());
+        }
         std::fprintf(stderr, "beatless: listening to %s at %s Hz; root %s, targets %s%s\n", what.c_str(),
                      pitch::format_trimmed(engine.sample_rate_hz(), 0).c_str(), root_echo(o.root, root_hz).c_str(),
                      targets.id.c_str(),
@@ -457,6 +512,10 @@ int run_live(const ListenOptions& o, Printing printing) {
             std::fflush(stdout);
             engine.supervise();
             poll_midi();
+            if (take && take->stopped_early()) {
+                end_take();
+                take.reset();
+            }
             if (o.seconds > 0.0 && engine.stream_time_s() >= o.seconds + 0.1) break;
             if (o.seconds > 0.0 && device_input &&
                 std::chrono::duration<double>(std::chrono::steady_clock::now() - started).count() >=
@@ -476,6 +535,7 @@ int run_live(const ListenOptions& o, Printing printing) {
         std::signal(SIGINT, SIG_DFL);
         std::signal(SIGTERM, SIG_DFL);
     }
+    end_take();
     std::fflush(stdout);
     const audio::EngineStatus st = engine.status();
     std::fprintf(
@@ -524,6 +584,11 @@ void register_listen(CLI::App& app, Runner& run) {
     sub->add_option("--lowest", o->lowest, kLowestHelp);
     sub->add_option("--voices", o->voices,
                     "2: two voices in one input (a double stop, a duet): both pitches, the interval, its beat");
+    CLI::Option* record =
+        sub->add_option("--record", o->record_to,
+                        "Record the input as a take: FILE.flac (a .toml with its context beside it), or into a folder; "
+                        "alone: the data folder's takes/, named by date and time")
+            ->expected(0, 1);
     sub->add_option(
         "--midi-out", o->midi_out,
         "Play the drone (and a fixed --target) on this MIDI port, retuned exactly: number, name or part of it "
@@ -535,7 +600,10 @@ void register_listen(CLI::App& app, Runner& run) {
                     "Pitch-bend range in semitones for --midi-tuning bend (1-24, default 2)");
     sub->add_option("--midi-in", o->midi_in,
                     "A MIDI keyboard: a key sets the root; a key held with the root's key, the target");
-    sub->callback([o, &run] { run = [o] { return run_live(*o, Printing::json); }; });
+    sub->callback([o, &run, record] {
+        o->record = record->count() > 0;
+        run = [o] { return run_live(*o, Printing::json); };
+    });
 }
 
 }  // namespace beatless::ui
