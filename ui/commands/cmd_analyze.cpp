@@ -66,19 +66,8 @@ struct AnalyzeOptions {
 
 constexpr double kProgressAfterS = 5.0;  // files longer than this show a progress bar (on a terminal)
 
-// The target's name: the set's own, else one of the trade (targets/names.toml).
-std::string target_name(const pitch::TargetSet& set, int index) {
-    if (index < 0 || static_cast<std::size_t>(index) >= set.targets.size()) return "";
-    const pitch::Target& t = set.targets[static_cast<std::size_t>(index)];
-    if (!t.name.empty()) return t.name;
-    const std::string* n = interval_names().find(t.interval);
-    return n ? *n : "";
-}
-
-std::string target_text(const pitch::TargetSet& set, int index) {
-    if (index < 0 || static_cast<std::size_t>(index) >= set.targets.size()) return "";
-    return set.targets[static_cast<std::size_t>(index)].interval.str();
-}
+std::string target_name(const pitch::TargetSet& set, int index) { return target_name_of(set, index); }
+std::string target_text(const pitch::TargetSet& set, int index) { return target_text_of(set, index); }
 
 // "7/5", "3/2 +1oct", or "-" for a note between targets.
 std::string target_column(const pitch::TargetSet& set, int index, int octaves) {
@@ -203,30 +192,6 @@ void print_summary_text(const pitch::TargetSet& set, const std::vector<pitch::Ta
     }
 }
 
-// The report's targets, marks and summary rows from notes or dyads.
-template <class Item, class ToMark>
-ReportData report_of(const pitch::TargetSet& set, const std::vector<Item>& items,
-                     const std::vector<pitch::TargetSummary>& summary, bool dyads, ToMark to_mark) {
-    ReportData d;
-    std::vector<bool> used(set.targets.size(), false);
-    for (const Item& it : items) {
-        if (it.target_index >= 0) used[static_cast<std::size_t>(it.target_index)] = true;
-        d.marks.push_back(to_mark(it));
-    }
-    for (std::size_t i = 0; i < set.targets.size(); ++i)
-        d.targets.push_back({set.targets[i].interval.cents(), set.targets[i].interval.str(),
-                             target_name(set, static_cast<int>(i)), used[i]});
-    for (const auto& r : summary) {
-        const std::string ratio = target_text(set, r.target_index);
-        const std::string w = summary_words(r, ratio, dyads);
-        // The ratio and the count have their own columns: keep "averages 6 cents flat".
-        const std::size_t from = std::min(w.size(), ratio.size() + 1);
-        d.summary.push_back({ratio, target_name(set, r.target_index), r.count, r.mean_dev_cents, r.spread_cents,
-                             w.substr(from, w.find(" (") - from)});
-    }
-    return d;
-}
-
 // ---------------------------------------------------------------------------
 // [SECTION] One voice
 // ---------------------------------------------------------------------------
@@ -341,16 +306,10 @@ void print_one_voice(const AnalyzeOptions& o, const pitch::TargetSet& set, const
 }
 
 ReportData one_voice_report(const AnalyzeOptions& o, const pitch::TargetSet& set, const OneVoiceAnalysis& a) {
-    ReportData d = report_of(set, a.notes, a.summary, false, [](const pitch::NoteResult& n) {
-        return ReportMark{n.start_s, n.end_s, n.cents_above_root, n.target_cents, n.dev_cents};
-    });
+    ReportData d = one_voice_report_data(set, a);
     d.title = base_name(o.file);
     d.subtitle =
         root_words(a, o.root, o.a4_hz) + "   \u00b7   targets: " + set.title + "   \u00b7   analyzed " + today_text();
-    d.axis_label = "cents above the root";
-    d.mark_word = "note";
-    d.dur_s = a.info.dur_s();
-    d.trace = &a.trace;
     return d;
 }
 

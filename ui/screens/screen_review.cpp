@@ -12,6 +12,7 @@
 #include "pitch/base/text.h"
 #include "ui/render/imgui_host.h"
 #include "ui/screens/palette.h"
+#include "ui/screens/take_report.h"
 #include "ui/screens/widgets.h"
 #include "ui/session/take_analysis.h"
 #include "ui/session/take_file.h"
@@ -90,6 +91,7 @@ private:
     void draw_plot(AppState& app, ImDrawList* dl, float x, float y, float w, float h);
     void draw_detail(AppState& app, ImDrawList* dl, float x, float y, float w, float h);
     void sound(AppState& app, bool target);
+    void export_report(AppState& app);
     std::string target_text(int index) const;
 
     bool started_ = false;
@@ -185,6 +187,23 @@ void ReviewScreen::sound(AppState& app, bool target) {
         app.post(app.caution_needed() ? "confirm the hearing caution first" : "no output device to sound it on");
 }
 
+// The printable page `analyze --report` draws, beside the take: NAME.report.png.
+void ReviewScreen::export_report(AppState& app) {
+    if (!take_ || !take_->error.empty()) return;
+    const std::filesystem::path p = std::filesystem::path(take_->path).replace_extension(".report.png");
+    ReportData d = one_voice_report_data(take_->set, take_->analysis);
+    d.title = take_->title;
+    d.subtitle = "root " + pitch::format_trimmed(take_->analysis.root_hz, 3) +
+                 " Hz   \u00b7   targets: " + take_->set.title +
+                 (take_->expect.empty() ? "" : "   \u00b7   meant: " + take_->expect);
+    try {
+        write_report(p.string(), d);
+        app.post("report written to " + p.string());
+    } catch (const std::exception& e) {
+        app.post(e.what(), true);
+    }
+}
+
 void ReviewScreen::handle_keys(AppState& app) {
     if (ImGui::GetIO().WantTextInput) return;
     const int count = take_ ? static_cast<int>(take_->analysis.notes.size()) : 0;
@@ -248,7 +267,7 @@ void ReviewScreen::draw_list(AppState& app, ImDrawList* dl, float x, float y, fl
                   fit_text(FontFace::body, "Record one while practising.", w - 2 * pad));
         return;
     }
-    const float row_h = std::round(2.5f * u);
+    const float row_h = std::round(3.8f * u);
     const int fit = std::max(1, static_cast<int>((y + h - pad - ry) / row_h));
     const int first = std::clamp(list_sel_ - fit + 1, 0, std::max(0, static_cast<int>(takes_.size()) - fit));
     for (int i = first; i < static_cast<int>(takes_.size()) && i < first + fit; ++i) {
@@ -266,20 +285,24 @@ void ReviewScreen::draw_list(AppState& app, ImDrawList* dl, float x, float y, fl
         }
         ImGui::PopID();
         const auto it = rows_.find(path);
-        std::string line2 = duration_words(t.duration_s.value_or(NAN)) + "  " + (t.targets.empty() ? "-" : t.targets);
+        const std::string line2 =
+            duration_words(t.duration_s.value_or(NAN)) + "   " + (t.targets.empty() ? "-" : t.targets);
+        std::string line3 = "analysing ...";
         if (it != rows_.end() && it->second.error.empty()) {
-            line2 += "  " + std::to_string(it->second.notes) + (it->second.notes == 1 ? " note" : " notes");
+            line3 = std::to_string(it->second.notes) + (it->second.notes == 1 ? " note" : " notes");
             if (std::isfinite(it->second.mean_dev_cents))
-                line2 += "  mean " + signed_text(it->second.mean_dev_cents, 1) + " c";
+                line3 += ", mean " + signed_text(it->second.mean_dev_cents, 1) + " c";
         } else if (it != rows_.end()) {
-            line2 += "  cannot be read";
+            line3 = "cannot be read";
         }
         const std::string line1 = take_when(t) + (t.complete ? "" : "  (cut short)");
         draw_text(dl, FontFace::bold, ImVec2(a.x + pad, a.y + 0.15f * u), palette::kText,
                   fit_text(FontFace::bold, line1, w - 3 * pad));
-        draw_text(dl, FontFace::body, ImVec2(a.x + pad, a.y + 1.25f * u), palette::kTextDim,
+        draw_text(dl, FontFace::body, ImVec2(a.x + pad, a.y + 1.3f * u), palette::kTextDim,
                   fit_text(FontFace::body, line2, w - 3 * pad));
-        view_.takes.push_back(line1 + " | " + line2);
+        draw_text(dl, FontFace::body, ImVec2(a.x + pad, a.y + 2.5f * u), palette::kTextDim,
+                  fit_text(FontFace::body, line3, w - 3 * pad));
+        view_.takes.push_back(line1 + " | " + line2 + " | " + line3);
         ry += row_h;
     }
 }
@@ -327,7 +350,17 @@ void ReviewScreen::draw_plot(AppState& app, ImDrawList* dl, float x, float y, fl
     view_.selected = selected_;
     const ReviewView& v = view_;
     dl->PushClipRect(ImVec2(x, v.plot_y0), ImVec2(v.plot_x1, v.plot_y1 + 1.0f), true);
-    // Target lines in every octave in view, labelled at the left.
+    // Target lines in every octave in view, labelled at the left where a label fits: the targets the notes are
+    // judged against first, then the others.
+    struct Line {
+        float y;
+        std::size_t k;
+        bool used;
+    };
+    std::vector<Line> lines;
+    std::vector<bool> used(take_->set.targets.size(), false);
+    for (const auto& n : a.notes)
+        if (n.target_index >= 0) used[static_cast<std::size_t>(n.target_index)] = true;
     for (std::size_t k = 0; k < take_->set.targets.size(); ++k) {
         const double c = take_->set.targets[k].interval.cents();
         for (int o = static_cast<int>(std::floor((lo - c) / 1200.0));
@@ -336,9 +369,20 @@ void ReviewScreen::draw_plot(AppState& app, ImDrawList* dl, float x, float y, fl
             if (tc < lo || tc > hi) continue;
             const float ly = std::round(v.y_of(tc)) + 0.5f;
             dl->AddLine(ImVec2(v.plot_x0, ly), ImVec2(v.plot_x1, ly), palette::kOtherTarget, 1.0f);
-            draw_text(dl, FontFace::body, ImVec2(x + 0.4f * u, ly - 0.55f * u), palette::kTextDim,
-                      fit_text(FontFace::body, take_->set.targets[k].interval.str(), label_w - 0.6f * u));
+            lines.push_back({ly, k, used[k]});
         }
+    }
+    std::stable_sort(lines.begin(), lines.end(), [](const Line& p, const Line& q) { return p.used > q.used; });
+    std::vector<float> labelled;
+    const float label_h = font_px(FontFace::body);
+    for (const Line& ln : lines) {
+        bool clear = true;
+        for (const float ly : labelled) clear = clear && std::fabs(ly - ln.y) >= label_h;
+        if (!clear) continue;
+        labelled.push_back(ln.y);
+        draw_text(dl, FontFace::body, ImVec2(x + 0.4f * u, ln.y - 0.55f * u),
+                  ln.used ? palette::kText : palette::kTextDim,
+                  fit_text(FontFace::body, take_->set.targets[ln.k].interval.str(), label_w - 0.6f * u));
     }
     // The selected note's target, in the current target's colour.
     if (selected_ >= 0 && std::isfinite(a.notes[static_cast<std::size_t>(selected_)].target_cents)) {
@@ -383,7 +427,9 @@ void ReviewScreen::draw_plot(AppState& app, ImDrawList* dl, float x, float y, fl
         const std::string label = std::isfinite(n.dev_cents) ? signed_text(n.dev_cents, 1) : "between";
         const ImVec2 ls = text_size(FontFace::bold, label);
         if (ls.x < m.x1 - m.x0 + 2.0f * u) {
-            const float cx = std::round(0.5f * (m.x0 + m.x1)), ly = std::round(m.y - r - 0.35f * u - ls.y);
+            const float cx = std::round(std::clamp(0.5f * (m.x0 + m.x1), v.plot_x0 + 0.5f * ls.x + 4.0f,
+                                                   v.plot_x1 - 0.5f * ls.x - 4.0f)),
+                        ly = std::round(m.y - r - 0.35f * u - ls.y);
             dl->AddRectFilled(ImVec2(cx - 0.5f * ls.x - 4, ly - 1), ImVec2(cx + 0.5f * ls.x + 4, ly + ls.y + 1),
                               palette::with_alpha(palette::kPanel, 225), 3.0f);
             draw_text_centred(dl, FontFace::bold, cx, ly, m.colour, label);
@@ -480,6 +526,8 @@ void ReviewScreen::draw_detail(AppState& app, ImDrawList* dl, float x, float y, 
     ImGui::SameLine();
     if (ImGui::Button("Sound its pitch (P)")) sound(app, false);
     ImGui::SameLine();
+    if (ImGui::Button("Export report")) export_report(app);
+    ImGui::SameLine();
     if (!confirm_delete_) {
         if (ImGui::Button("Delete take")) confirm_delete_ = true;
     } else {
@@ -513,7 +561,7 @@ void ReviewScreen::draw_summary(ImDrawList* dl, float x, float y, float w, float
         draw_text(dl, FontFace::bold, ImVec2(x + pad, ty), palette::kText,
                   fit_text(FontFace::bold, target_text(row.target_index), col - 0.3f * u));
         draw_text(dl, FontFace::bold, ImVec2(x + pad + col, ty), tuning_colour(tn),
-                  off_words(row.mean_dev_cents, false) + " on average");
+                  fit_text(FontFace::bold, "mean " + off_words(row.mean_dev_cents, false), w - 2 * pad - col));
         std::string more = std::to_string(row.count) + (row.count == 1 ? " note" : " notes");
         if (row.count > 1) more += ", spread " + pitch::format_trimmed(row.spread_cents, 1) + " c";
         draw_text(dl, FontFace::body, ImVec2(x + pad + col, ty + 1.2f * u), palette::kTextDim,
@@ -548,7 +596,10 @@ void ReviewScreen::build(AppState& app, const ScreenArea& area, double) {
     const float top = area.pos.y + std::round(0.5f * u), bottom = area.pos.y + area.size.y - std::round(0.5f * u);
     const float x0 = area.pos.x + pad, w = area.size.x - 2.0f * pad, H = bottom - top;
     const float left_w = std::round(std::clamp(0.27f * w, 15.0f * u, 22.0f * u));
-    const float list_h = std::round(0.58f * H);
+    // The list takes what its rows need (at least three rows' room, at most 58 %); the summary the rest.
+    const float rows_h =
+        std::round(2.5f * u) + std::round(3.8f * u) * static_cast<float>(std::max<std::size_t>(3, takes_.size()));
+    const float list_h = std::round(std::min(0.58f * H, rows_h));
     draw_list(app, dl, x0, top, left_w, list_h);
     draw_summary(dl, x0, top + list_h + gap, left_w, H - list_h - gap);
     const float rx = x0 + left_w + gap, rw = w - left_w - gap;

@@ -2,12 +2,26 @@
 #include "ui/session/take_words.h"
 
 #include "pitch/base/text.h"
+#include "ui/session/target_files.h"
 
 #include <cmath>
 
 namespace beatless::ui {
 
 using pitch::format_trimmed;
+
+std::string target_text_of(const pitch::TargetSet& set, int index) {
+    if (index < 0 || static_cast<std::size_t>(index) >= set.targets.size()) return "";
+    return set.targets[static_cast<std::size_t>(index)].interval.str();
+}
+
+std::string target_name_of(const pitch::TargetSet& set, int index) {
+    if (index < 0 || static_cast<std::size_t>(index) >= set.targets.size()) return "";
+    const pitch::Target& t = set.targets[static_cast<std::size_t>(index)];
+    if (!t.name.empty()) return t.name;
+    const std::string* n = interval_names().find(t.interval);
+    return n ? *n : "";
+}
 
 std::string root_words(const pitch::RootEstimate& e) {
     switch (e.status) {

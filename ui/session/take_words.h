@@ -11,6 +11,10 @@ namespace beatless::ui {
 
 // "root 110.001 Hz, confidence 0.97 (8 harmonics agree within 0.12 cents)", or why none was found.
 std::string root_words(const pitch::RootEstimate& e);
+// A target of the set by index: its ratio or cents ("7/5", "600c") and its name (the set's own, else the trade's,
+// targets/names.toml); "" for an index out of range (a note between targets).
+std::string target_text_of(const pitch::TargetSet& set, int index);
+std::string target_name_of(const pitch::TargetSet& set, int index);
 // "7/5 averages 6 cents flat (3 notes, spread 1.2 cents)"; between two voices
 // (intervals true) "... 6 cents narrow (3 intervals, ...)", wide for sharp.
 std::string summary_words(const pitch::TargetSummary& row, const std::string& name, bool intervals);
