@@ -92,6 +92,8 @@ private:
     void draw_detail(AppState& app, ImDrawList* dl, float x, float y, float w, float h);
     void sound(AppState& app, bool target);
     void export_report(AppState& app);
+    void rename(AppState& app, const std::string& stem);
+    char rename_buf_[96] = "";
     std::string target_text(int index) const;
 
     bool started_ = false;
@@ -202,6 +204,39 @@ void ReviewScreen::export_report(AppState& app) {
     } catch (const std::exception& e) {
         app.post(e.what(), true);
     }
+}
+
+// Renames the take's sound file and its sidecar together; a name with a folder in it, or one already taken, is
+// refused with a message.
+void ReviewScreen::rename(AppState& app, const std::string& typed) {
+    if (!take_) return;
+    const std::string stem(pitch::trim(typed));
+    if (stem.empty() || stem.find('/') != std::string::npos || stem == "." || stem == "..") {
+        app.post("rename: " + pitch::quote(typed) + " is not a file name", true);
+        return;
+    }
+    namespace fs = std::filesystem;
+    const fs::path from(take_->path);
+    const fs::path to = from.parent_path() / (stem + from.extension().string());
+    std::error_code ec;
+    if (fs::exists(to, ec) || fs::exists(take_sidecar_path(to), ec)) {
+        app.post("rename: " + to.string() + " already exists", true);
+        return;
+    }
+    const bool has_sidecar = fs::exists(take_sidecar_path(from), ec);
+    fs::rename(from, to, ec);
+    if (!ec && has_sidecar) fs::rename(take_sidecar_path(from), take_sidecar_path(to), ec);
+    if (ec) {
+        app.post("rename: " + from.string() + ": " + ec.message(), true);
+        return;
+    }
+    rows_.erase(take_->path);
+    take_->path = to.string();
+    take_->title = to.filename().string();
+    rows_[take_->path] = row_of(*take_);
+    rename_buf_[0] = '\0';
+    list_takes_now();
+    app.post("renamed to " + take_->title);
 }
 
 void ReviewScreen::handle_keys(AppState& app) {
@@ -527,6 +562,11 @@ void ReviewScreen::draw_detail(AppState& app, ImDrawList* dl, float x, float y, 
     if (ImGui::Button("Sound its pitch (P)")) sound(app, false);
     ImGui::SameLine();
     if (ImGui::Button("Export report")) export_report(app);
+    ImGui::SetCursorScreenPos(ImVec2(x + pad, ImGui::GetCursorScreenPos().y));
+    ImGui::SetNextItemWidth(std::round(9.0f * u));
+    ImGui::InputTextWithHint("##rename", "new name", rename_buf_, sizeof rename_buf_);
+    ImGui::SameLine();
+    if (ImGui::Button("Rename") && rename_buf_[0] != '\0') rename(app, rename_buf_);
     ImGui::SameLine();
     if (!confirm_delete_) {
         if (ImGui::Button("Delete take")) confirm_delete_ = true;
@@ -612,7 +652,7 @@ void ReviewScreen::build(AppState& app, const ScreenArea& area, double) {
                     take_->set_name + (take_->expect.empty() ? "" : "   meant " + take_->expect);
         draw_text(dl, FontFace::bold, ImVec2(rx, top + 0.2f * u), palette::kText, fit_text(FontFace::bold, line, rw));
     }
-    const float detail_h = std::round(std::clamp(0.34f * H, 8.5f * u, 11.0f * u));
+    const float detail_h = std::round(std::clamp(0.36f * H, 10.0f * u, 12.5f * u));
     draw_plot(app, dl, rx, top + title_h, rw, H - title_h - detail_h - gap);
     draw_detail(app, dl, rx, bottom - detail_h, rw, detail_h);
     end_screen_panel();
