@@ -23,6 +23,7 @@
 #include <GLFW/glfw3.h>  // key codes only
 
 #include <algorithm>
+#include <climits>
 #include <cmath>
 #include <cstdio>
 #include <filesystem>
@@ -427,20 +428,42 @@ void ReviewScreen::draw_plot(AppState& app, ImDrawList* dl, float x, float y, fl
     }
     dl->PopClipRect();
     dl->PushClipRect(ImVec2(v.plot_x0, v.plot_y0), ImVec2(v.plot_x1, v.plot_y1), true);
-    // The trace: bucket means joined, broken at gaps.
+    // The trace: bucket means joined, broken at gaps. Where several buckets share a pixel column (a long take
+    // seen whole), the column's lowest and highest means are joined instead, so the lines drawn never exceed the
+    // plot's width in pixels and every excursion still shows.
     bool pen = false;
     ImVec2 last;
-    for (std::size_t i = 0; i < a.trace.size(); ++i) {
-        const pitch::TracePoint& p = a.trace[i];
-        if (p.t_s < v.t0_s - a.trace.bucket_s() || p.t_s > v.t1_s + a.trace.bucket_s() || p.frames == 0) {
-            pen = false;
-            continue;
-        }
-        const ImVec2 q(v.x_of(p.t_s), v.y_of(p.mean_cents));
+    int col = INT_MIN;
+    float col_lo = 0.0f, col_hi = 0.0f;
+    auto flush = [&] {
+        if (col == INT_MIN) return;
+        const float cx = static_cast<float>(col) + 0.5f;
+        if (col_hi - col_lo >= 1.0f) dl->AddLine(ImVec2(cx, col_lo), ImVec2(cx, col_hi), palette::kTraceLine, 1.5f);
+        const ImVec2 q(cx, 0.5f * (col_lo + col_hi));
         if (pen) dl->AddLine(last, q, palette::kTraceLine, 1.5f);
         last = q;
         pen = true;
+        col = INT_MIN;
+    };
+    for (std::size_t i = 0; i < a.trace.size(); ++i) {
+        const pitch::TracePoint& p = a.trace[i];
+        if (p.t_s < v.t0_s - a.trace.bucket_s() || p.t_s > v.t1_s + a.trace.bucket_s() || p.frames == 0) {
+            flush();
+            pen = false;
+            continue;
+        }
+        const float px = v.x_of(p.t_s), py = v.y_of(p.mean_cents);
+        const int c = static_cast<int>(std::floor(px));
+        if (c != col) {
+            flush();
+            col = c;
+            col_lo = col_hi = py;
+        } else {
+            col_lo = std::min(col_lo, py);
+            col_hi = std::max(col_hi, py);
+        }
     }
+    flush();
     // The notes: a bar at each centre, coloured by tuning, its deviation above it.
     const double in_tune = app.settings().in_tune_cents;
     for (std::size_t i = 0; i < a.notes.size(); ++i) {
