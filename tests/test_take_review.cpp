@@ -10,6 +10,8 @@
 // power (sum of a_h^2 / 2 over its partials) over the white noise's variance (the definition, e.g. Oppenheim and
 // Schafer's).
 #include "audio/soundfile.h"
+#include "pitch/base/error.h"
+#include "pitch/measure/intent.h"
 #include "tests/cli.h"
 #include "tests/mix_signals.h"
 #include "ui/session/take_file.h"
@@ -272,4 +274,40 @@ TEST_CASE("a take's sidecar gives analyze its set, root and fixed target") {
     CHECK(d_meant[1] == "11/8");
     CHECK(d_meant[2] == "7/5");  // 591.5 c: nearer 45/32 (590.2 c), but meant 7/5
     CHECK(std::fabs(d_dev[2] - 9.0) < 0.5);
+}
+
+TEST_CASE("judge_notes: in-order alignment with a sequence, a fixed target, and the between-targets limit") {
+    using beatless::pitch::judge_notes;
+    beatless::pitch::TargetSet set;
+    set.id = "four";
+    for (const char* iv : {"11/8", "7/5", "45/32", "10/7"})
+        set.targets.push_back({beatless::pitch::parse_interval(iv), ""});
+    auto c = [](double r) { return 1200.0 * std::log2(r); };  // Ellis (1885)
+    // Meant 7/5, 10/7, 11/8 in that order; 10/7 left out, and 45/32 sung 12 c flat (nearer 7/5) an octave up.
+    const std::vector<int> expected = {1, 3, 0, 2};
+    const std::vector<double> notes = {c(7.0 / 5.0) + 3.0, c(11.0 / 8.0) + 2.0, 1200.0 + c(45.0 / 32.0) - 12.0};
+    const auto j = judge_notes(set, notes, expected);
+    REQUIRE(j.size() == 3);
+    CHECK(j[0].meant_index == 1);
+    CHECK(std::fabs(j[0].meant_dev_cents - 3.0) < 1e-9);
+    CHECK(j[1].meant_index == 0);  // 10/7 skipped, not 11/8 sung 66 c flat of it
+    CHECK(j[2].meant_index == 2);
+    CHECK(j[2].meant_octaves == 1);
+    CHECK(std::fabs(j[2].meant_dev_cents + 12.0) < 1e-9);
+    CHECK(j[2].nearer_other);
+    CHECK(j[2].nearest.index == 1);
+    CHECK(std::fabs(j[2].nearest.dev_cents - (c(45.0 / 32.0) - 12.0 - c(7.0 / 5.0))) < 1e-9);
+    // One target: every note meant it, however far.
+    const auto fixed = judge_notes(set, notes, std::vector<int>{3});
+    for (const auto& f : fixed) CHECK(f.meant_index == 3);
+    // Nothing expected: 11/8 - 30 c (521.3 c) is 30 c from its nearest target: between targets at the default 25 c
+    // limit, named 11/8 at a 40 c limit.
+    const std::vector<double> far = {c(11.0 / 8.0) - 30.0};
+    CHECK(judge_notes(set, far, {})[0].between);
+    CHECK(judge_notes(set, far, {})[0].judged_index() == -1);
+    beatless::pitch::IntentConfig wide;
+    wide.between_cents = 40.0;
+    CHECK_FALSE(judge_notes(set, far, {}, wide)[0].between);
+    CHECK(judge_notes(set, far, {}, wide)[0].judged_index() == 0);
+    CHECK_THROWS_AS(judge_notes(set, notes, std::vector<int>{7}), beatless::Error);
 }
