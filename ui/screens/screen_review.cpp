@@ -14,7 +14,9 @@
 #include "ui/screens/palette.h"
 #include "ui/screens/take_report.h"
 #include "ui/screens/widgets.h"
+#include "ui/session/safe_file.h"
 #include "ui/session/take_analysis.h"
+#include "ui/session/take_export.h"
 #include "ui/session/take_file.h"
 #include "ui/session/take_words.h"
 #include "ui/session/wording.h"
@@ -190,18 +192,23 @@ void ReviewScreen::sound(AppState& app, bool target) {
         app.post(app.caution_needed() ? "confirm the hearing caution first" : "no output device to sound it on");
 }
 
-// The printable page `analyze --report` draws, beside the take: NAME.report.png.
+// Beside the take: the printable page `analyze --report` draws (NAME.report.png) and what `analyze --format csv`
+// and `--format json` print (NAME.csv, NAME.json), each written safely (ui/session/safe_file.h).
 void ReviewScreen::export_report(AppState& app) {
     if (!take_ || !take_->error.empty()) return;
-    const std::filesystem::path p = std::filesystem::path(take_->path).replace_extension(".report.png");
+    std::filesystem::path p(take_->path);
     ReportData d = one_voice_report_data(take_->set, take_->analysis);
     d.title = take_->title;
     d.subtitle = "root " + pitch::format_trimmed(take_->analysis.root_hz, 3) +
                  " Hz   \u00b7   targets: " + take_->set.title +
                  (take_->expect.empty() ? "" : "   \u00b7   meant: " + take_->expect);
     try {
-        write_report(p.string(), d);
-        app.post("report written to " + p.string());
+        write_report(std::filesystem::path(p).replace_extension(".report.png").string(), d);
+        write_file_safely(std::filesystem::path(p).replace_extension(".csv"),
+                          one_voice_csv(take_->set, take_->analysis));
+        write_file_safely(std::filesystem::path(p).replace_extension(".json"),
+                          one_voice_json(take_->path, take_->set, take_->analysis) + "\n");
+        app.post("report, CSV and JSON written beside " + take_->title);
     } catch (const std::exception& e) {
         app.post(e.what(), true);
     }
@@ -584,7 +591,7 @@ void ReviewScreen::draw_detail(AppState& app, ImDrawList* dl, float x, float y, 
     ImGui::SameLine();
     if (ImGui::Button("Sound its pitch (P)")) sound(app, false);
     ImGui::SameLine();
-    if (ImGui::Button("Export report")) export_report(app);
+    if (ImGui::Button("Export PNG, CSV, JSON")) export_report(app);
     ImGui::SetCursorScreenPos(ImVec2(x + pad, ImGui::GetCursorScreenPos().y));
     ImGui::SetNextItemWidth(std::round(9.0f * u));
     ImGui::InputTextWithHint("##rename", "new name", rename_buf_, sizeof rename_buf_);
