@@ -230,7 +230,9 @@ TEST_CASE("snapshot: bad values give one line naming the value, exit 1 or 2") {
         {"--size 10x10 --out " + home.file("x.png"), 1, "--size 10x10"},
         {"--size big --out " + home.file("x.png"), 1, "--size big"},
         {"--scale 9 --out " + home.file("x.png"), 1, "--scale 9"},
-        {"--screen review --out " + home.file("x.png"), 2, "--screen review"},
+        {"--screen lobby --out " + home.file("x.png"), 2,
+         "--screen lobby: no such screen (choose from practice, drills, "
+         "ensemble, review, settings)"},
         {"--hold 5 --out " + home.file("x.png"), 2, "--hold works with --demo only"},
         {"--demo --target 9/0 --out " + home.file("x.png"), 1, "9/0"},
         {"--out /nonexistent-dir/x.png", 1, "/nonexistent-dir/x.png"},

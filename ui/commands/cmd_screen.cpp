@@ -102,6 +102,14 @@ void check_common(const ScreenCommand& c) {
     if (!c.root.empty()) (void)pitch::parse_root(c.root, c.a4_hz.value_or(pitch::kDefaultA4Hz));
     if (!c.target_set.empty()) (void)load_target_set(c.target_set);
     if (!c.drill.empty()) (void)load_drill(c.drill);
+    if (!c.take.empty()) {
+        std::error_code ec;
+        if (!std::filesystem::is_regular_file(c.take, ec)) throw Error(c.take + ": no such file");
+    }
+    if (c.review_note && *c.review_note < 1)
+        throw Error("--note " + std::to_string(*c.review_note) + ": notes are numbered from 1");
+    if (c.review_span_s && !(*c.review_span_s >= 0.5 && *c.review_span_s <= 36000.0))
+        throw Error("--span " + pitch::format_trimmed(*c.review_span_s, 3) + ": out of range (0.5 to 36000 s)");
 }
 
 AppOptions options_of(const ScreenCommand& c) {
@@ -121,6 +129,9 @@ AppOptions options_of(const ScreenCommand& c) {
     o.listener = c.listener;
     o.log_file = c.log_file;
     o.record = c.record;
+    o.take = c.take;
+    o.review_note = c.review_note;
+    o.review_span_s = c.review_span_s;
     return o;
 }
 
@@ -169,6 +180,7 @@ void add_screen_options(CLI::App& app, ScreenCommand& c) {
     app.add_option("--targets", c.target_set, "Target set: a built-in name (7-limit, tritones, ...) or a .toml file");
     app.add_option("--target", c.target, "Fix this target (7/5, 600c, ...); it joins the set when it is not in it");
     app.add_option("--screen", c.screen, "Screen to show: " + built_screen_keys());
+    app.add_option("--take", c.take, "The Review screen opens this sound file (default: the newest take)");
     app.add_option("--drill", c.drill,
                    "Choose and start this drill on the Drills screen (a built-in name or a .toml file)");
     app.add_option(
@@ -259,6 +271,8 @@ void register_snapshot(CLI::App& app, Runner& run) {
         "snapshot", "Render a screen in simulated time without a window and write the last frame as PNG");
     add_screen_options(*sub, o->c);
     sub->add_option("--seconds", o->seconds, "Simulated time before the picture is taken (default 4)");
+    sub->add_option("--note", o->c.review_note, "Review screen: select this note of the take (from 1)");
+    sub->add_option("--span", o->c.review_span_s, "Review screen: show this many seconds around the selected note");
     sub->add_option("--size", o->size, "Picture size in pixels, WIDTHxHEIGHT (default 1280x800)");
     sub->add_option("--scale", o->scale, "DPI scale: 2 for a high-density screen (default 1)");
     sub->add_option("--fps", o->fps, "Frames per simulated second (default 60)");

@@ -47,6 +47,9 @@ struct ScreenCommand {
     std::optional<std::string> midi_out;  // --midi-out (window only): replaces the settings' MIDI port for this run
     std::optional<std::string> midi_tuning;  // --midi-tuning: mts or bend
     std::optional<std::string> midi_in;      // --midi-in: a keyboard that sets the root
+    std::string take;                        // --take: the Review screen opens this sound file
+    std::optional<int> review_note;          // snapshot --note: the Review screen selects this note (from 1)
+    std::optional<double> review_span_s;     // snapshot --span: ... and shows this many seconds around it
 };
 void add_screen_options(CLI::App& app, ScreenCommand& c);
 void add_window_midi_options(CLI::App& app, ScreenCommand& c);  // the window's --midi-out, --midi-tuning, --midi-in

@@ -11,6 +11,7 @@
 
 #include "ui/render/imgui_host.h"
 #include "ui/screens/palette.h"
+#include "ui/screens/screen_review.h"
 #include "ui/screens/widgets.h"
 
 #define GLFW_INCLUDE_NONE
@@ -32,6 +33,7 @@ std::vector<std::unique_ptr<Screen>> make_screens() {
     s.push_back(make_practice_screen());
     s.push_back(make_drills_screen());
     s.push_back(make_ensemble_screen());
+    s.push_back(make_review_screen());
     s.push_back(make_settings_screen());
     return s;
 }

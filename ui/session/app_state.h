@@ -43,6 +43,9 @@ struct AppOptions {
     bool log = true;       // attempts go to the practice log (false: kept in memory only)
     std::string log_file;  // the practice log; empty = the data folder's practice.sqlite3
     bool record = false;   // record a take from the start (--record)
+    std::string take;      // the Review screen opens this sound file (a take or any file); empty = the newest take
+    std::optional<int> review_note;       // ... selects this note (from 1)
+    std::optional<double> review_span_s;  // ... and shows this many seconds around it
 };
 
 // The readings of the last seconds, oldest first, in a ring sized once.
