@@ -111,6 +111,9 @@ struct TwoVoiceTracker::Impl {
     double env_ref_low_hz = 0.0;
     std::vector<double> hist_t, hist_m;
     std::size_t hist_n = 0;
+    // The last pair told apart (section 3: names a merge into one series).
+    double last_pair_t_s = -INFINITY;
+    double last_pair_cents = NAN;
 
     Impl(const TwoVoiceConfig& c, const TargetSet& set);
     void reset();
@@ -121,6 +124,7 @@ struct TwoVoiceTracker::Impl {
     void cancel_first();
     void refine(Voice& v, const Voice* other);
     void name_interval(TwoVoiceFrame& f) const;
+    Blend blend_of(const TwoVoiceFrame& f) const;
     void measure_beat(TwoVoiceFrame& f);
     void clear_history() {
         hist_n = 0;
@@ -143,6 +147,8 @@ TwoVoiceTracker::Impl::Impl(const TwoVoiceConfig& c, const TargetSet& set)
     check(cfg.max_freq_hz > cfg.f_max_hz, "max_freq_hz", cfg.max_freq_hz);
     check(cfg.peak_range_db >= 20.0 && cfg.peak_range_db <= 140.0, "peak_range_db", cfg.peak_range_db);
     check(cfg.beat_history_s >= 0.5 && cfg.beat_history_s <= 30.0, "beat_history_s", cfg.beat_history_s);
+    check(cfg.octave_share > 0.0 && cfg.octave_share <= 1.0, "octave_share", cfg.octave_share);
+    check(cfg.merge_memory_s >= 0.0 && cfg.merge_memory_s <= 5.0, "merge_memory_s", cfg.merge_memory_s);
     check(cfg.max_block_len_samples >= 1 && cfg.max_block_len_samples <= (1u << 24), "max_block_len_samples",
           static_cast<double>(cfg.max_block_len_samples));
     n = fft.size();
@@ -182,6 +188,8 @@ void TwoVoiceTracker::Impl::reset() {
     written = 0;
     next_end = span;
     bad = dropped = 0;
+    last_pair_t_s = -INFINITY;
+    last_pair_cents = NAN;
     clear_history();
 }
 
@@ -376,6 +384,7 @@ void TwoVoiceTracker::Impl::analyze(TwoVoiceFrame& f) {
         f.voices = 1;
         f.f_low_hz = va.f0_hz;
         f.level_low_db = level_db(va);
+        f.blend = blend_of(f);
         clear_history();
         return;
     }
@@ -386,8 +395,25 @@ void TwoVoiceTracker::Impl::analyze(TwoVoiceFrame& f) {
     f.level_low_db = level_db(va);
     f.level_high_db = level_db(vb);
     f.interval_cents = 1200.0 * std::log2(f.f_high_hz / f.f_low_hz);
+    last_pair_t_s = f.t_s;
+    last_pair_cents = f.interval_cents;
     name_interval(f);
     measure_beat(f);
+}
+
+// One series heard: why two voices may hide in it. An octave whose upper
+// voice's partials all land on the lower's even ones leaves those louder than
+// their odd neighbours, so after cancelling the first voice down to a smooth
+// envelope the even partials keep a salience of their own at 2 f0; a pair seen
+// just before near a unison or an octave names the merge too. Else: one series.
+Blend TwoVoiceTracker::Impl::blend_of(const TwoVoiceFrame& f) const {
+    if (salience(2.0 * va.f0_hz, true) >= cfg.octave_share * va.salience) return Blend::octave;
+    if (f.t_s - last_pair_t_s <= cfg.merge_memory_s && std::isfinite(last_pair_cents)) {
+        if (std::fabs(last_pair_cents) < 100.0) return Blend::near_unison;
+        const double octs = std::round(last_pair_cents / 1200.0);
+        if (octs >= 1.0 && std::fabs(last_pair_cents - 1200.0 * octs) < 30.0) return Blend::octave;
+    }
+    return Blend::one_series;
 }
 
 // ---------------------------------------------------------------------------
