@@ -90,7 +90,8 @@ struct TwoVoiceTracker::Impl {
     std::size_t hop = 0;
     std::size_t kmax = 0;
     double bin_hz = 0.0;
-    double amp_scale = 0.0;  // |X| -> sinusoid amplitude
+    double amp_scale = 0.0;     // |X| -> sinusoid amplitude
+    double window_power = 0.0;  // sum of the window's squares
     int harmonics = 0;
     AudibleRange audible;  // both voices sound `harmonics` partials; the 4 kHz limit or max_freq_hz if lower
     RealFft fft;
@@ -167,6 +168,7 @@ TwoVoiceTracker::Impl::Impl(const TwoVoiceConfig& c, const TargetSet& set)
     double wsum = 0.0;
     for (float w : window) wsum += w;
     amp_scale = 2.0 / wsum;
+    for (float w : window) window_power += static_cast<double>(w) * w;
     ring.assign(span + cfg.max_block_len_samples + hop, 0.0f);
     x.assign(span, 0.0f);
     in0.assign(n, 0.0f);
@@ -319,9 +321,21 @@ void TwoVoiceTracker::Impl::refine(Voice& v, const Voice* other) {
 }
 
 void TwoVoiceTracker::Impl::analyze(TwoVoiceFrame& f) {
+    // The level as the analysis sees it: weighted by the window, so a note's
+    // last milliseconds at the window's edge (where it is nearly zero) are
+    // silence, not a frame of sidelobes.
     double ss = 0.0;
-    for (float s : x) ss += static_cast<double>(s) * s;
-    if (!(std::sqrt(ss / static_cast<double>(span)) > std::pow(10.0, cfg.silence_dbfs / 20.0))) {
+    for (std::size_t i = 0; i < n; ++i) {
+        const double a = static_cast<double>(window[i]) * x[i + d], b = static_cast<double>(window[i]) * x[i];
+        ss += 0.5 * (a * a + b * b);
+    }
+    // And the newest 20 ms: a sound that has stopped is silence at once,
+    // not 85 ms later when the window's centre passes its end.
+    const std::size_t tail = std::min(span, static_cast<std::size_t>(0.02 * cfg.sample_rate_hz));
+    double st = 0.0;
+    for (std::size_t i = span - tail; i < span; ++i) st += static_cast<double>(x[i]) * x[i];
+    const double floor = std::pow(10.0, cfg.silence_dbfs / 20.0);
+    if (!(std::sqrt(ss / window_power) > floor) || !(std::sqrt(st / static_cast<double>(tail)) > floor)) {
         clear_history();
         return;
     }

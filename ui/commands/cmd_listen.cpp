@@ -280,8 +280,6 @@ void check_options(const ListenOptions& o) {
     if (!(o.hop_ms >= 1.0 && o.hop_ms <= 50.0))
         throw Error("--hop-ms " + pitch::format_trimmed(o.hop_ms, 2) + ": out of range (1 to 50)");
     if (o.voices != 1 && o.voices != 2) throw Error("--voices " + std::to_string(o.voices) + ": 1 or 2");
-    if (o.voices == 2 && o.demo)
-        throw UsageError("--voices 2 works with --input-file or --input (the demo performer sings one voice)");
     if (o.octaves != "equivalent" && o.octaves != "exact")
         throw Error("--octaves " + o.octaves + ": equivalent or exact");
     if (o.octaves != "equivalent" && o.voices != 2) throw UsageError("--octaves works with --voices 2");
@@ -339,7 +337,13 @@ int run_live(const ListenOptions& o, Printing printing) {
 
     std::string what, input_why, output_why;
     int input_index = -1;
-    if (o.demo) {
+    if (o.demo && o.voices == 2) {
+        audio::DemoDuoConfig vc;  // the demo violinist's double stops over the root
+        vc.root_hz = root_hz;
+        vc.seed = o.seed;
+        engine.use_demo(vc);
+        what = "the demo violinist";
+    } else if (o.demo) {
         audio::DemoConfig dc;
         dc.root_hz = root_hz;
         dc.seed = o.seed;

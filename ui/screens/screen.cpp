@@ -192,6 +192,7 @@ void ScreenDeck::handle_keys() {
     if (pressed(GLFW_KEY_LEFT_BRACKET, true)) app_.set_drone_level(app_.settings().level_dbfs - 1.0);
     if (pressed(GLFW_KEY_F)) app_.set_fifth(!app_.settings().fifth);
     if (pressed(GLFW_KEY_R)) app_.sound_reference();
+    if (pressed(GLFW_KEY_V)) app_.set_two_voices(!app_.two_voices());  // the Practice screen's two-voice view
 }
 
 // ---------------------------------------------------------------------------

@@ -100,6 +100,10 @@ std::string_view mover_words(pitch::DuoMover m) {
     return "";
 }
 
+std::string_view interval_word(double dev_cents, double in_tune_cents) {
+    return std::fabs(dev_cents) <= in_tune_cents ? "in tune" : dev_cents > 0 ? "wide" : "narrow";
+}
+
 std::string move_words(const pitch::DuoAdvice& a) {
     if (!a.judged) return "";
     if (a.mover == pitch::DuoMover::none) return "in tune";
