@@ -150,7 +150,7 @@ void voices(AppState& app, ImDrawList* dl, float x0, float y0) {
         x += std::round(1.0f * u);
         const pitch::NearestNote n = pitch::hz_to_note(hz, app.settings().a4_hz);
         char buf[96];
-        std::snprintf(buf, sizeof buf, "%s %s%s  %.1f Hz", label, n.name.c_str(),
+        std::snprintf(buf, sizeof buf, "%s %s %s c  %.1f Hz", label, n.name.c_str(),
                       signed_text(n.offset_cents, 0).c_str(), hz);
         put(FontFace::bold, strong, buf, 0.5f * u);
         if (j.target_index >= 0) {
@@ -231,8 +231,9 @@ void trace(AppState& app, ImDrawList* dl, float x0, float y0, float w, float h, 
             const double age = now - f.t_s;
             if (age > kTraceS) continue;
             double dev = NAN;
-            if (f.voices == 2 && strip == 0) dev = f.dev_cents;
-            if (f.voices == 2 && strip == 1 && !app.targets().targets.empty())
+            const bool sure = f.voices == 2 && f.confidence >= DuoVerdictConfig{}.sure_confidence;
+            if (sure && strip == 0) dev = f.dev_cents;
+            if (sure && strip == 1 && !app.targets().targets.empty())
                 dev = pitch::nearest_target(app.targets(), 1200.0 * std::log2(f.f_low_hz / root), true).dev_cents;
             if (!std::isfinite(dev) || f.t_s - prev_t > 0.05) flush();
             if (!std::isfinite(dev)) continue;
@@ -298,7 +299,7 @@ void beat_cue(AppState& app, ImDrawList* dl, float x0, float y0, float w, float 
     switch (have ? p.band() : pitch::BeatBand::none) {
         case pitch::BeatBand::none: caption = v.known() ? "no pair now" : "play a double stop"; break;
         case pitch::BeatBand::still: caption = "nearly pure: hold it"; break;
-        case pitch::BeatBand::countable: caption = "slow enough to count: slower is closer"; break;
+        case pitch::BeatBand::countable: caption = "countable: slower is closer"; break;
         case pitch::BeatBand::flutter: caption = "a flutter: slower is closer"; break;
         case pitch::BeatBand::rough: caption = "heard as roughness, not as beats"; break;
     }
