@@ -246,7 +246,8 @@ TEST_CASE("demo violinist: double stops the two-voice tracker reads to her truth
                 return Truth{ts, NAN, false};
             };
             const double a = f.t_s - 0.5 * span_s, z = f.t_s + 0.5 * span_s;
-            const bool in_first = a > 2.3 && z < 4.3, in_second = a > 6.8 && z < 8.8;
+            const bool in_first = a > 2.3 && z < 4.3;
+            const bool in_second = a > 6.8 && z < 8.8;
             if (!(in_first || in_second) || z > t) continue;
             const Truth mid = at(f.t_s);
             ++steady;

@@ -542,9 +542,9 @@ TEST_CASE("snapshot --voices 2: the marker is the interval's verdict; silence cl
     for (const char* secs : {"3.0", "2.2", "4.55"}) {
         CAPTURE(secs);
         const std::string png = home.file(std::string("duo") + secs + ".png");
-        const auto r = run_program(std::string("snapshot --demo --voices 2 --root G3 --seconds ") + secs +
-                                       " --print-verdict --out " + png,
-                                   {"BEATLESS_HOME=" + home.path()});
+        const auto r = run_program(
+            std::string("snapshot --demo --voices 2 --root G3 --seconds ") + secs + " --print-verdict --out " + png,
+            {"BEATLESS_HOME=" + home.path()});
         REQUIRE_MESSAGE(r.exit_code == 0, r.err);
         const std::string v = verdict_of(r.out);
         CAPTURE(v);
@@ -562,8 +562,8 @@ TEST_CASE("snapshot --voices 2: the marker is the interval's verdict; silence cl
         CHECK(v.find("\"target\": \"3/2\"") != std::string::npos);  // her first double stop is a fifth
         const double dev = num(v, "dev_cents");
         const std::uint32_t colour = v.find("\"word\": \"in tune\"") != std::string::npos ? ui::palette::kInTune
-                                     : dev > 0                                           ? ui::palette::kSharp
-                                                                                         : ui::palette::kFlat;
+                                     : dev > 0                                            ? ui::palette::kSharp
+                                                                                          : ui::palette::kFlat;
         int width = 0;
         const auto x = marker_centre(img, lane, colour, width);
         REQUIRE_MESSAGE(x.has_value(), "no marker of the verdict's colour on the lane");

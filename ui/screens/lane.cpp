@@ -44,9 +44,10 @@ void draw_lane(ImDrawList* dl, float x0, float y0, float w, float band_h, const 
         draw_text(dl, FontFace::body, ImVec2(lx0 + std::round(0.4f * u), by0 + std::round(0.2f * u)), palette::kTextDim,
                   v.low_word);
     if (!(pinned_side > 0.0))
-        draw_text(dl, FontFace::body,
-                  ImVec2(lx1 - std::round(0.4f * u) - text_size(FontFace::body, v.high_word).x, by0 + std::round(0.2f * u)),
-                  palette::kTextDim, v.high_word);
+        draw_text(
+            dl, FontFace::body,
+            ImVec2(lx1 - std::round(0.4f * u) - text_size(FontFace::body, v.high_word).x, by0 + std::round(0.2f * u)),
+            palette::kTextDim, v.high_word);
 
     if (!vd) return;
     const bool current = vd->current();

@@ -211,10 +211,9 @@ void trace(AppState& app, ImDrawList* dl, float x0, float y0, float w, float h, 
         }
         dl->AddRectFilled(ImVec2(px0, cy - 1), ImVec2(px1, cy + 2), palette::kCurrentTarget);
         for (int c : {-20, 20})
-            draw_text(dl, FontFace::body, ImVec2(px1 + std::round(0.3f * u), cy - c * ppc - 0.6f * u), palette::kTextDim,
-                      signed_text(c, 0));
-        draw_text(dl, FontFace::body, ImVec2(px0 + std::round(0.3f * u), sy0 + std::round(0.1f * u)),
-                  palette::kTextDim,
+            draw_text(dl, FontFace::body, ImVec2(px1 + std::round(0.3f * u), cy - c * ppc - 0.6f * u),
+                      palette::kTextDim, signed_text(c, 0));
+        draw_text(dl, FontFace::body, ImVec2(px0 + std::round(0.3f * u), sy0 + std::round(0.1f * u)), palette::kTextDim,
                   strip == 0 ? "upper voice against the interval over the lower" : "lower voice against the root");
         if (tr.size() == 0) continue;
         dl->PushClipRect(ImVec2(px0, sy0), ImVec2(px1, sy1), true);

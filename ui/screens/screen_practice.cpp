@@ -558,15 +558,16 @@ void PracticeScreen::controls(AppState& app) {
     // Two voices: the interval's target, as the view's header names it.
     pitch::Reading duo_target;
     const bool duo_known = app.two_voices() && app.duo().known();
-    if (duo_known) duo_target.target_index = app.duo().pair.target_index, duo_target.target_octaves = app.duo().pair.target_octaves;
+    if (duo_known) {
+        duo_target.target_index = app.duo().pair.target_index;
+        duo_target.target_octaves = app.duo().pair.target_octaves;
+    }
     const pitch::Reading& cur = duo_known ? duo_target : app.current();
     const bool known_now = app.two_voices() ? duo_known : app.verdict().known();
-    const int shown_index = s.choice == TargetChoice::nearest && known_now
-                                ? app.target_index_of(cur)
-                                : app.fixed_index();
+    const int shown_index =
+        s.choice == TargetChoice::nearest && known_now ? app.target_index_of(cur) : app.fixed_index();
     // ... as the header names it (an octave up: 14/5, not 7/5).
-    const std::string shown = s.choice == TargetChoice::nearest && known_now
-                                  ? app.target_ratio_text(cur)
+    const std::string shown = s.choice == TargetChoice::nearest && known_now ? app.target_ratio_text(cur)
                               : shown_index >= 0 ? ts[static_cast<std::size_t>(shown_index)].interval.str()
                                                  : fixed.interval.str();
     ImGui::SetNextItemWidth(std::round(6.0f * u));
@@ -615,24 +616,24 @@ void PracticeScreen::build(AppState& app, const ScreenArea& area, double dt_s) {
     if (app.two_voices()) {  // a double stop or a duet: the interval is the verdict (practice_duo.h)
         draw_practice_duo(app, dl, x0, y, inner_w, area.pos.y + H - controls_h - y - std::round(0.4f * u), duo_);
     } else {
-    const float header_h = font_px(FontFace::large) + std::round(0.4f * u);
-    header(app, dl, x0, y, inner_w, header_h);
-    y += header_h + std::round(1.4f * u);  // room for the marker's head
-    const float band_h = std::round(std::max(2.6f * u, 0.1f * H));
-    const float lane_margin = std::round(1.6f * u);
-    lane(app, dl, x0 + lane_margin, y, inner_w - 2.0f * lane_margin, band_h);
-    y += band_h + std::round(1.3f * u);  // tick labels
-    y += std::round(1.6f * u);           // the centre track
-    info_line(app, dl, x0 + lane_margin, y, inner_w);
-    y += std::round(1.6f * u);
+        const float header_h = font_px(FontFace::large) + std::round(0.4f * u);
+        header(app, dl, x0, y, inner_w, header_h);
+        y += header_h + std::round(1.4f * u);  // room for the marker's head
+        const float band_h = std::round(std::max(2.6f * u, 0.1f * H));
+        const float lane_margin = std::round(1.6f * u);
+        lane(app, dl, x0 + lane_margin, y, inner_w - 2.0f * lane_margin, band_h);
+        y += band_h + std::round(1.3f * u);  // tick labels
+        y += std::round(1.6f * u);           // the centre track
+        info_line(app, dl, x0 + lane_margin, y, inner_w);
+        y += std::round(1.6f * u);
 
-    const float mid_h = area.pos.y + H - controls_h - y - std::round(0.4f * u);
-    if (mid_h > 3.0f * u) {
-        const float cue_w = std::round(std::clamp(0.27f * inner_w, 13.0f * u, 20.0f * u));
-        const float gap = std::round(0.6f * u);
-        trace(app, dl, x0, y, inner_w - cue_w - gap, mid_h);
-        beat_cue(app, dl, x0 + inner_w - cue_w, y, cue_w, mid_h);
-    }
+        const float mid_h = area.pos.y + H - controls_h - y - std::round(0.4f * u);
+        if (mid_h > 3.0f * u) {
+            const float cue_w = std::round(std::clamp(0.27f * inner_w, 13.0f * u, 20.0f * u));
+            const float gap = std::round(0.6f * u);
+            trace(app, dl, x0, y, inner_w - cue_w - gap, mid_h);
+            beat_cue(app, dl, x0 + inner_w - cue_w, y, cue_w, mid_h);
+        }
     }
 
     ImGui::SetCursorScreenPos(ImVec2(x0, area.pos.y + H - controls_h + std::round(0.5f * u)));

@@ -22,11 +22,12 @@ std::string_view player_state_word(
 // and the words a screen or text line shows ("one pitch: a single note, or a unison or octave too close to tell").
 std::string_view blend_key(pitch::Blend b);
 std::string_view blend_words(pitch::Blend b);
-// "upper voice", "lower voice"; "" for none. Which way: "up 3 c", "down 12 c".
+// "upper voice", "lower voice"; "" for none.
 std::string_view mover_words(pitch::DuoMover m);
+// "move the upper voice down 3 c", "in tune", "" (nothing to judge).
 std::string move_words(const pitch::DuoAdvice& a);
 // An interval's deviation in a word: "in tune" within the width, else "wide" (+) or "narrow" (-).
-std::string_view interval_word(double dev_cents, double in_tune_cents);  // "move the upper voice down 3 c", "in tune", "" (nothing to judge)
+std::string_view interval_word(double dev_cents, double in_tune_cents);
 
 // Why a device was chosen, after "chosen as": "the sound server's default source", ...
 std::string choice_text(audio::ChoiceWhy why, audio::Direction dir);
