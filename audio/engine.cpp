@@ -56,6 +56,7 @@ struct Engine::Impl {
     // Sources other than a device.
     std::unique_ptr<DemoPerformer> demo;
     std::unique_ptr<DemoEnsemble> demo_group;
+    std::unique_ptr<DemoDuo> demo_duo;
     std::unique_ptr<Drone> room_drone;                  // what the demo microphones hear of the drone
     std::vector<std::unique_ptr<SimulatedRoom>> rooms;  // one per analysed channel
     std::unique_ptr<SoundReader> file;
@@ -234,6 +235,17 @@ void Engine::use_demo(DemoConfig demo) {
     if (demo.sample_rate_hz <= 0.0) demo.sample_rate_hz = cfg_.sample_rate_hz > 0.0 ? cfg_.sample_rate_hz : 48000.0;
     m.demo = std::make_unique<DemoPerformer>(demo);
     m.demo_group.reset();
+    m.demo_duo.reset();
+    m.in_channels = 1;
+    m.input = InputKind::demo;
+}
+
+void Engine::use_demo(DemoDuoConfig demo) {
+    Impl& m = *impl_;
+    if (demo.sample_rate_hz <= 0.0) demo.sample_rate_hz = cfg_.sample_rate_hz > 0.0 ? cfg_.sample_rate_hz : 48000.0;
+    m.demo_duo = std::make_unique<DemoDuo>(demo);
+    m.demo.reset();
+    m.demo_group.reset();
     m.in_channels = 1;
     m.input = InputKind::demo;
 }
@@ -301,7 +313,8 @@ std::string Engine::input_name() const {
         case InputKind::device:
             return "'" + m.io.input_spec + "'" +
                    (m.io.in_info.host_api.empty() ? "" : " (" + m.io.in_info.host_api + ")");
-        case InputKind::demo: return m.demo_group ? "the demo ensemble" : "the demo performer";
+        case InputKind::demo:
+            return m.demo_group ? "the demo ensemble" : m.demo_duo ? "the demo violinist" : "the demo performer";
         case InputKind::file: return "'" + m.file_path + "'";
         case InputKind::none: break;
     }
@@ -326,8 +339,10 @@ void Engine::start(bool analysis_thread) {
                         " channels; the players need " + std::to_string(channels_needed()));
         }
     } else if (m.input == InputKind::demo) {
-        m.rate = m.demo_group ? m.demo_group->config().sample_rate_hz : m.demo->config().sample_rate_hz;
-        if (group != (m.demo_group != nullptr))
+        m.rate = m.demo_group ? m.demo_group->config().sample_rate_hz
+                 : m.demo_duo ? m.demo_duo->config().sample_rate_hz
+                              : m.demo->config().sample_rate_hz;
+        if (group != (m.demo_group != nullptr) || duo != (m.demo_duo != nullptr))
             throw Error("engine: the demo does not match what is analysed (one performer or a group)");
     } else if (m.input == InputKind::file) {
         m.rate = m.file->info().sample_rate_hz;
@@ -422,6 +437,8 @@ void Engine::start(bool analysis_thread) {
                     s.demo->render(buf);
                 else if (s.demo_group)
                     s.demo_group->render(buf);
+                else if (s.demo_duo)
+                    s.demo_duo->render(buf);
                 else
                     n = s.read_file_block(buf);
                 if (n > 0) capture(buf.data(), n, s.in_channels);
@@ -732,7 +749,7 @@ void Engine::run_fast(const std::function<void(const pitch::TwoVoiceFrame&)>& on
 
 void Engine::run_demo_frames(std::size_t frames) noexcept {
     Impl& m = *impl_;
-    if ((!m.demo && !m.demo_group) || !m.started || m.io.analysis.joinable()) return;
+    if ((!m.demo && !m.demo_group && !m.demo_duo) || !m.started || m.io.analysis.joinable()) return;
     const std::size_t block = std::min(cfg_.block_len_frames, kScratch);
     const auto ch = static_cast<std::size_t>(m.in_channels);
     while (frames > 0) {
@@ -740,6 +757,8 @@ void Engine::run_demo_frames(std::size_t frames) noexcept {
         std::span<float> buf(m.prod_scratch.data(), n * ch);
         if (m.demo)
             m.demo->render(buf);
+        else if (m.demo_duo)
+            m.demo_duo->render(buf);
         else
             m.demo_group->render(buf);
         capture(buf.data(), n, m.in_channels);

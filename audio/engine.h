@@ -11,6 +11,7 @@
 
 #pragma once
 
+#include "audio/demo_duo.h"
 #include "audio/demo_ensemble.h"
 #include "audio/demo_performer.h"
 #include "audio/device.h"
@@ -110,6 +111,7 @@ public:
     void open_output_device(std::string_view spec);  // the drone plays here
     void use_demo(DemoConfig demo);                  // the demo performer is the microphone
     void use_demo(DemoEnsembleConfig demo);          // the demo ensemble (voices, channels from the setup when empty)
+    void use_demo(DemoDuoConfig demo);               // the demo violinist's double stops (two voices)
     double use_file(const std::string& path);        // returns the file's rate; throws Error naming it
     void set_input_has_drone(bool on);               // file: the recording holds a drone at the root
     void start(bool analysis_thread = true);         // false: the caller runs analyze_available()

@@ -370,3 +370,30 @@ TEST_CASE("recording on: the capture callback still allocates nothing and locks 
     CHECK(same == n);
 #endif
 }
+
+TEST_CASE("the demo violinist: her rendering, the capture and the warm two-voice analysis allocate and lock nothing") {
+#ifdef BEATLESS_SANITIZED
+    MESSAGE("skipped under the sanitizers, which interpose the allocator themselves");
+#else
+    audio::DemoDuo duo(audio::DemoDuoConfig{});
+    std::vector<float> block(256);
+    audio::EngineConfig ec;
+    ec.sample_rate_hz = 48000.0;
+    audio::Engine eng(ec, nullptr);
+    pitch::TargetSet set;
+    for (const char* r : {"6/5", "5/4", "7/5", "3/2", "5/3", "7/4"})
+        set.targets.push_back({pitch::parse_interval(r), ""});
+    eng.set_two_voices(pitch::TwoVoiceConfig{}, set);
+    eng.use_demo(audio::DemoDuoConfig{});
+    eng.start(false);
+    std::vector<pitch::TwoVoiceFrame> got(64);
+    Counted counted;
+    std::size_t frames = 0;
+    for (int b = 0; b < 1200; ++b) {  // 6.4 s: two double stops and the lift between them
+        counted.block([&] { duo.render(block); }, [&] { eng.run_demo_frames(256); }, b > 100);
+        for (std::size_t k; (k = eng.take_readings(std::span<pitch::TwoVoiceFrame>(got))) > 0;) frames += k;
+    }
+    CHECK(frames > 500);
+    counted.check();
+#endif
+}

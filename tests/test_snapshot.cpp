@@ -25,6 +25,7 @@
 #include <doctest/doctest.h>
 #include <stb_image.h>
 
+#include <algorithm>
 #include <cmath>
 #include <cstdint>
 #include <cstdio>
@@ -570,4 +571,53 @@ TEST_CASE("snapshot --record: REC, the time and a red Stop at the right of the s
     CHECK(find_exact(idle, rec, rows(idle, idle.h - idle.h / 16, idle.h - 1)).empty());
     const Image record = render_text("Record", ui::FontFace::body, ui::palette::kText, ui::palette::kPanelRaised, 1.0f);
     CHECK(find_exact(idle, record, rows(idle, idle.h - idle.h / 16, idle.h - 1)).size() == 1);
+}
+
+// Two voices (the demo violinist's double stops): the lane's marker stands at the interval's deviation the
+// verdict reports, in the word's colour; the trace draws the upper voice's just place; in the lift between double stops
+// the verdict is "silent" and no tuning-coloured marker is left on the lane. Lane geometry as above (-50 .. +50 c).
+TEST_CASE("snapshot --voices 2: the marker is the interval's verdict; silence clears it") {
+    TempDir home;
+    auto verdict_of = [](const std::string& out) {
+        const auto k = out.find("{\"state\"");
+        REQUIRE(k != std::string::npos);
+        return out.substr(k);
+    };
+    auto num = [](const std::string& j, const std::string& key) {
+        const auto k = j.find("\"" + key + "\": ");
+        return k == std::string::npos ? NAN : std::stod(j.substr(k + key.size() + 4));
+    };
+    // 3.0 s: the first double stop, corrected; 4.45 s: the lift after it (stop_s 4, from 0.3 s).
+    for (const char* secs : {"3.0", "2.2", "4.55"}) {
+        CAPTURE(secs);
+        const std::string png = home.file(std::string("duo") + secs + ".png");
+        const auto r = run_program(
+            std::string("snapshot --demo --voices 2 --root G3 --seconds ") + secs + " --print-verdict --out " + png,
+            {"BEATLESS_HOME=" + home.path()});
+        REQUIRE_MESSAGE(r.exit_code == 0, r.err);
+        const std::string v = verdict_of(r.out);
+        CAPTURE(v);
+        const Image img = read_png(png);
+        const Lane lane = find_lane(img);
+        const double px_per_cent = (lane.right_x - lane.left_x) / 100.0;
+        if (std::string(secs) == "4.55") {
+            CHECK(v.find("\"state\": \"silent\"") != std::string::npos);
+            int w = 0;
+            for (std::uint32_t c : {ui::palette::kSharp, ui::palette::kFlat, ui::palette::kInTune})
+                CHECK(!marker_centre(img, lane, c, w).has_value());
+            continue;
+        }
+        REQUIRE(v.find("\"state\": \"live\"") != std::string::npos);
+        CHECK(v.find("\"target\": \"3/2\"") != std::string::npos);  // her first double stop is a fifth
+        const double dev = num(v, "dev_cents");
+        const std::uint32_t colour = v.find("\"word\": \"in tune\"") != std::string::npos ? ui::palette::kInTune
+                                     : dev > 0                                            ? ui::palette::kSharp
+                                                                                          : ui::palette::kFlat;
+        int width = 0;
+        const auto x = marker_centre(img, lane, colour, width);
+        REQUIRE_MESSAGE(x.has_value(), "no marker of the verdict's colour on the lane");
+        CHECK(std::fabs(*x - lane.x_of(std::clamp(dev, -50.0, 50.0))) <= 0.5 * px_per_cent + 1.5);
+        // The trace: the upper voice's just place (the current target's colour) below the lane.
+        CHECK(!find_colour(img, ui::palette::kCurrentTarget, lane.row + 40).empty());
+    }
 }

@@ -28,6 +28,7 @@
 #include "audio/timbre.h"
 #include "pitch/base/error.h"
 #include "pitch/base/text.h"
+#include "pitch/measure/duo_advice.h"
 #include "pitch/measure/two_voice.h"
 #include "pitch/theory/interval.h"
 #include "pitch/theory/notes.h"
@@ -91,6 +92,8 @@ struct ListenOptions {
     int voices = 1;         // 2: two voices in one input (a double stop, a duet)
     bool record = false;    // --record given
     std::string record_to;  // its FILE or folder; "" = the data folder's takes/
+    std::string octaves = "equivalent";  // two voices: targets matched in every octave, or "exact"
+    double in_tune_cents = 5.0;          // two voices: no move suggested within this
 };
 
 // Names of a reading's target in its octave (a Reading or a TwoVoiceFrame: both carry target_index and target_octaves).
@@ -151,7 +154,11 @@ std::string json_line(const pitch::Reading& r, const TargetText& tt) {
 // its beat predicted and measured; with a drone each voice against the root too.
 struct DuoText : TargetText {
     double root_hz = 0.0;
-    bool judge_root = false;  // a drone sounds: each voice is also read against it
+    bool judge_root = false;     // a drone sounds: each voice is also read against it
+    double in_tune_cents = 5.0;  // no move within this (the settings' default width)
+    pitch::DuoAdvice advice(const pitch::TwoVoiceFrame& f) const {
+        return pitch::advise_duo(f, *set, judge_root ? root_hz : 0.0, in_tune_cents);
+    }
 };
 
 std::string json_line(const pitch::TwoVoiceFrame& f, const DuoText& dt) {
@@ -172,7 +179,26 @@ std::string json_line(const pitch::TwoVoiceFrame& f, const DuoText& dt) {
     }
     j.end_array();
     j.key("confidence").value(f.confidence, 3);
+    // Told apart: two voices (true), one series (false, and why), nothing heard (null).
+    if (f.voices == 0)
+        j.key("told_apart").null().key("blend").null();
+    else if (f.voices == 2)
+        j.key("told_apart").value(true).key("blend").null();
+    else
+        j.key("told_apart").value(false).key("blend").value(std::string(blend_key(f.blend)));
     if (f.voices == 2) {
+        const pitch::DuoAdvice a = dt.advice(f);
+        j.key("reference").value(a.against_root ? "root" : "lower voice");
+        if (a.mover == pitch::DuoMover::none)
+            j.key("move").null();
+        else
+            j.key("move")
+                .begin_object()
+                .key("voice")
+                .value(a.mover == pitch::DuoMover::low ? "low" : "high")
+                .key("cents")
+                .value(a.move_cents, 2)
+                .end_object();
         j.key("ratio").value(f.f_high_hz / f.f_low_hz, 6);
         j.key("interval_cents").value(f.interval_cents, 3);
         j.key("target").value(dt.interval(f));
@@ -189,8 +215,8 @@ std::string json_line(const pitch::TwoVoiceFrame& f, const DuoText& dt) {
             j.key("beat_partials").null();
         j.key("measured_beat_hz").value(f.measured_beat_hz, 3);
     } else {
-        for (const char* k : {"ratio", "interval_cents", "target", "target_name", "dev_cents", "beat_hz",
-                              "beat_partials", "measured_beat_hz"})
+        for (const char* k : {"reference", "move", "ratio", "interval_cents", "target", "target_name", "dev_cents",
+                              "beat_hz", "beat_partials", "measured_beat_hz"})
             j.key(k).null();
     }
     j.end_object();
@@ -231,8 +257,7 @@ std::string text_line(const pitch::TwoVoiceFrame& f, const DuoText& dt, double a
         return n.name + signed_num(n.offset_cents, 0);
     };
     if (f.voices == 1)
-        return s + note(f.f_low_hz > 0.0 ? f.f_low_hz : f.f_high_hz) +
-               "  one voice heard (a unison or an octave cannot be told apart)";
+        return s + note(f.f_low_hz > 0.0 ? f.f_low_hz : f.f_high_hz) + "  " + std::string(blend_words(f.blend));
     s += note(f.f_low_hz) + " + " + note(f.f_high_hz) + "  " + dt.interval(f);
     if (const std::string name = dt.name(f); !name.empty()) s += " " + name;
     s += "  " + signed_num(f.dev_cents, 1) + " c " +
@@ -245,6 +270,7 @@ std::string text_line(const pitch::TwoVoiceFrame& f, const DuoText& dt, double a
             s += " (from the partials: " + pitch::format_trimmed(std::round(f.measured_beat_hz * 10.0) / 10.0, 1) +
                  " Hz)";
     }
+    if (const std::string m = move_words(dt.advice(f)); !m.empty()) s += "  " + m;
     return s;
 }
 
@@ -262,8 +288,11 @@ void check_options(const ListenOptions& o) {
     if (!(o.hop_ms >= 1.0 && o.hop_ms <= 50.0))
         throw Error("--hop-ms " + pitch::format_trimmed(o.hop_ms, 2) + ": out of range (1 to 50)");
     if (o.voices != 1 && o.voices != 2) throw Error("--voices " + std::to_string(o.voices) + ": 1 or 2");
-    if (o.voices == 2 && o.demo)
-        throw UsageError("--voices 2 works with --input-file or --input (the demo performer sings one voice)");
+    if (o.octaves != "equivalent" && o.octaves != "exact")
+        throw Error("--octaves " + o.octaves + ": equivalent or exact");
+    if (o.octaves != "equivalent" && o.voices != 2) throw UsageError("--octaves works with --voices 2");
+    if (!(o.in_tune_cents >= 0.0 && o.in_tune_cents <= 25.0))
+        throw Error("--in-tune " + pitch::format_trimmed(o.in_tune_cents, 2) + ": out of range (0 to 25 cents)");
     if (o.rate_hz != 0.0 && !(o.rate_hz >= 8000.0 && o.rate_hz <= 192000.0))
         throw Error("--rate " + pitch::format_trimmed(o.rate_hz, 1) + ": out of range (8000 to 192000 Hz)");
 }
@@ -341,7 +370,13 @@ int run_live(const ListenOptions& o, Printing printing) {
     std::string what, input_why, output_why;
     int input_index = -1;
     double file_rate_hz = 0.0;
-    if (o.demo) {
+    if (o.demo && o.voices == 2) {
+        audio::DemoDuoConfig vc;  // the demo violinist's double stops over the root
+        vc.root_hz = root_hz;
+        vc.seed = o.seed;
+        engine.use_demo(vc);
+        what = "the demo violinist";
+    } else if (o.demo) {
         audio::DemoConfig dc;
         dc.root_hz = root_hz;
         dc.seed = o.seed;
@@ -376,6 +411,7 @@ int run_live(const ListenOptions& o, Printing printing) {
     rc.audible.partials_a = audio::timbre_highest_partial(timbre);
     if (o.voices == 2) {
         pitch::TwoVoiceConfig tc;  // a 10 ms hop: each frame analyses a 170 ms window
+        tc.octave_equivalent = o.octaves == "equivalent";
         engine.set_two_voices(tc, targets);
     } else {
         engine.set_readings(rc, targets);
@@ -448,6 +484,7 @@ int run_live(const ListenOptions& o, Printing printing) {
     dt.set = &targets;
     dt.root_hz = root_hz;
     dt.judge_root = o.drone;
+    dt.in_tune_cents = o.in_tune_cents;
     auto emit_duo = [&](const pitch::TwoVoiceFrame& f) {
         if (o.seconds > 0.0 && f.t_s > o.seconds) return;
         if (printing == Printing::json) {
@@ -589,6 +626,11 @@ void register_listen(CLI::App& app, Runner& run) {
                         "Record the input as a take: FILE.flac (a .toml with its context beside it), or into a folder; "
                         "alone: the data folder's takes/, named by date and time")
             ->expected(0, 1);
+    sub->add_option("--octaves", o->octaves,
+                    "With --voices 2: 'equivalent' matches the interval to a target in any octave (default), "
+                    "'exact' only in the octave the set lists it");
+    sub->add_option("--in-tune", o->in_tune_cents,
+                    "With --voices 2: a deviation this small (cents) needs no move (default 5)");
     sub->add_option(
         "--midi-out", o->midi_out,
         "Play the drone (and a fixed --target) on this MIDI port, retuned exactly: number, name or part of it "

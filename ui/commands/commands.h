@@ -31,6 +31,7 @@ struct ScreenCommand {
     bool demo = false;                     // the demo performer replaces the microphone
     std::optional<double> hold_dev_cents;  // --hold: the demo holds the chosen target this far off
     std::uint64_t seed = 7;                // demo performer seed
+    int voices = 1;                        // 2: two voices in one input (double stops; --demo: the violinist)
     std::string input_device;              // --input (default: the settings' or the system's)
     std::string output_device;             // --output
     std::string root;                      // --root (default: the settings')

@@ -199,6 +199,7 @@ void ScreenDeck::handle_keys() {
     if (pressed(GLFW_KEY_F)) app_.set_fifth(!app_.settings().fifth);
     if (pressed(GLFW_KEY_T)) app_.sound_reference();
     if (pressed(GLFW_KEY_R) && records(screens_[current_]->id())) app_.toggle_recording();
+    if (pressed(GLFW_KEY_V)) app_.set_two_voices(!app_.two_voices());  // the Practice screen's two-voice view
 }
 
 // ---------------------------------------------------------------------------

@@ -46,5 +46,9 @@ std::vector<std::string> wrap_lines(FontFace face, std::string_view text, float 
 
 // Formats with a true minus sign (U+2212) for negative values: "+12", "\u221212".
 std::string signed_text(double v, int decimals);
+// A verdict's readout right-aligned at `right`: the word over its unit line, the state's shape, the number
+// (large at ty while live; medium at ny with "last" before it otherwise). Shared by the Practice views.
+void draw_verdict_readout(ImDrawList* dl, float right, float ty, float ny, Tuning t, bool live, const std::string& word,
+                          const std::string& num, const std::string& unit);
 
 }  // namespace beatless::ui

@@ -10,6 +10,7 @@
 #include "pitch/measure/reading.h"
 #include "pitch/theory/targets.h"
 #include "ui/session/beat_pulse.h"
+#include "ui/session/duo_verdict.h"
 #include "ui/session/settings.h"
 #include "ui/session/take_recording.h"
 #include "ui/session/verdict.h"
@@ -46,6 +47,7 @@ struct AppOptions {
     std::string take;      // the Review screen opens this sound file (a take or any file); empty = the newest take
     std::optional<int> review_note;       // ... selects this note (from 1)
     std::optional<double> review_span_s;  // ... and shows this many seconds around it
+    int voices = 1;        // 2: two voices in one input (double stops, a duet) on the Practice screen
 };
 
 // The readings of the last seconds, oldest first, in a ring sized once.
@@ -161,6 +163,13 @@ public:
     bool engine_running() const { return engine_ != nullptr; }
     double stream_time_s() const;
 
+    // --- Two voices in one input (double stops, a duet) ---------------------------------
+    // The Practice screen's two-voice view; the engine reopens in the other mode (the demo: the violinist).
+    bool two_voices() const { return voices_ == 2; }
+    void set_two_voices(bool on);
+    const DuoVerdict& duo() const { return duo_.verdict(); }
+    const DuoTrace& duo_trace() const { return duo_trace_; }
+
     // --- Drills ------------------------------------------------------------------------------
     // The drill's drone (root, fifth, timbre; its level never above the
     // user's) replaces the settings' and starts with the usual fade. False
@@ -234,6 +243,10 @@ private:
     bool drone_on_before_drill_ = false;
     std::vector<audio::DemoNote> demo_script_;
     std::optional<audio::EnsembleSetup> group_;  // the engine follows a group (Ensemble screen)
+    int voices_ = 1;                             // 2: the engine follows two voices in one input
+    DuoVerdictTracker duo_;
+    DuoTrace duo_trace_;
+    std::vector<pitch::TwoVoiceFrame> duo_buf_;
 
     bool drone_on_ = false;
     bool drone_heard_ = false;
