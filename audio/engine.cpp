@@ -9,6 +9,7 @@
 #include "audio/engine.h"
 
 #include "audio/soundfile.h"
+#include "audio/take_recorder.h"
 #include "pitch/base/error.h"
 #include "pitch/base/text.h"
 #include "pitch/dsp/yin.h"
@@ -55,6 +56,7 @@ struct Engine::Impl {
     // Sources other than a device.
     std::unique_ptr<DemoPerformer> demo;
     std::unique_ptr<DemoEnsemble> demo_group;
+    std::unique_ptr<DemoDuo> demo_duo;
     std::unique_ptr<Drone> room_drone;                  // what the demo microphones hear of the drone
     std::vector<std::unique_ptr<SimulatedRoom>> rooms;  // one per analysed channel
     std::unique_ptr<SoundReader> file;
@@ -77,6 +79,9 @@ struct Engine::Impl {
     // Set when start() has built everything the callbacks touch: a stream
     // opened earlier in start() may call back before that, and is ignored.
     std::atomic<bool> ready{false};
+    // Recording tap (set_tap): the callback counts itself in while it uses it.
+    std::atomic<TakeRecorder*> tap{nullptr};
+    std::atomic<int> tap_users{0};
 
     // One performer: readings, swapped in whole when the targets change.
     std::unique_ptr<pitch::ReadingMaker> maker;
@@ -230,6 +235,17 @@ void Engine::use_demo(DemoConfig demo) {
     if (demo.sample_rate_hz <= 0.0) demo.sample_rate_hz = cfg_.sample_rate_hz > 0.0 ? cfg_.sample_rate_hz : 48000.0;
     m.demo = std::make_unique<DemoPerformer>(demo);
     m.demo_group.reset();
+    m.demo_duo.reset();
+    m.in_channels = 1;
+    m.input = InputKind::demo;
+}
+
+void Engine::use_demo(DemoDuoConfig demo) {
+    Impl& m = *impl_;
+    if (demo.sample_rate_hz <= 0.0) demo.sample_rate_hz = cfg_.sample_rate_hz > 0.0 ? cfg_.sample_rate_hz : 48000.0;
+    m.demo_duo = std::make_unique<DemoDuo>(demo);
+    m.demo.reset();
+    m.demo_group.reset();
     m.in_channels = 1;
     m.input = InputKind::demo;
 }
@@ -297,7 +313,8 @@ std::string Engine::input_name() const {
         case InputKind::device:
             return "'" + m.io.input_spec + "'" +
                    (m.io.in_info.host_api.empty() ? "" : " (" + m.io.in_info.host_api + ")");
-        case InputKind::demo: return m.demo_group ? "the demo ensemble" : "the demo performer";
+        case InputKind::demo:
+            return m.demo_group ? "the demo ensemble" : m.demo_duo ? "the demo violinist" : "the demo performer";
         case InputKind::file: return "'" + m.file_path + "'";
         case InputKind::none: break;
     }
@@ -322,8 +339,10 @@ void Engine::start(bool analysis_thread) {
                         " channels; the players need " + std::to_string(channels_needed()));
         }
     } else if (m.input == InputKind::demo) {
-        m.rate = m.demo_group ? m.demo_group->config().sample_rate_hz : m.demo->config().sample_rate_hz;
-        if (group != (m.demo_group != nullptr))
+        m.rate = m.demo_group ? m.demo_group->config().sample_rate_hz
+                 : m.demo_duo ? m.demo_duo->config().sample_rate_hz
+                              : m.demo->config().sample_rate_hz;
+        if (group != (m.demo_group != nullptr) || duo != (m.demo_duo != nullptr))
             throw Error("engine: the demo does not match what is analysed (one performer or a group)");
     } else if (m.input == InputKind::file) {
         m.rate = m.file->info().sample_rate_hz;
@@ -421,6 +440,8 @@ void Engine::start(bool analysis_thread) {
                     s.demo->render(buf);
                 else if (s.demo_group)
                     s.demo_group->render(buf);
+                else if (s.demo_duo)
+                    s.demo_duo->render(buf);
                 else
                     n = s.read_file_block(buf);
                 if (n > 0) capture(buf.data(), n, s.in_channels);
@@ -454,6 +475,14 @@ void Engine::capture(const float* in, std::size_t frames, int channels) noexcept
     m.io.count_callback();
     if (!m.ready.load(std::memory_order_acquire)) return;
     const auto ch = static_cast<std::size_t>(std::max(1, channels));
+    // The tap: counted in before it is read, so set_tap(nullptr) knows when the old one is free. A file's
+    // flushing silence after its end is not recorded.
+    TakeRecorder* tap = nullptr;
+    const bool tapped = m.tap.load(std::memory_order_relaxed) != nullptr && !m.io.producer_done.load();
+    if (tapped) {
+        m.tap_users.fetch_add(1, std::memory_order_acq_rel);
+        tap = m.tap.load(std::memory_order_acquire);
+    }
     std::size_t done = 0;
     while (done < frames) {
         const std::size_t n = std::min(frames - done, kScratch);
@@ -473,9 +502,11 @@ void Engine::capture(const float* in, std::size_t frames, int channels) noexcept
             if (m.room_drone)
                 m.rooms[p]->process_add(std::span<const float>(m.room_scratch.data(), n), std::span<float>(s, n));
             m.rings[p]->write(std::span<const float>(s, n));
+            if (tap) tap->capture(p, std::span<const float>(s, n));
         }
         done += n;
     }
+    if (tapped) m.tap_users.fetch_sub(1, std::memory_order_release);
 }
 
 void Engine::playback(float* out, std::size_t frames, int channels) noexcept {
@@ -692,6 +723,10 @@ void Engine::run_fast_impl(const std::function<void(const R&)>& on_reading, doub
         buf, ch, static_cast<std::size_t>(0.2 * m.rate), std::span<R>(got), max_s, on_reading,
         [&m](std::span<float> b) { return m.read_file_block(b); },
         [this, &m](const float* data, std::size_t n) {
+            // A take being recorded keeps every frame: the file waits for its writer rather than overflow its rings.
+            if (TakeRecorder* t = m.tap.load())
+                while (!t->stopped_early() && t->space_frames() < n)
+                    std::this_thread::sleep_for(std::chrono::milliseconds(1));
             capture(data, n, m.in_channels);
             analyze_available();
         },
@@ -717,7 +752,7 @@ void Engine::run_fast(const std::function<void(const pitch::TwoVoiceFrame&)>& on
 
 void Engine::run_demo_frames(std::size_t frames) noexcept {
     Impl& m = *impl_;
-    if ((!m.demo && !m.demo_group) || !m.started || m.io.analysis.joinable()) return;
+    if ((!m.demo && !m.demo_group && !m.demo_duo) || !m.started || m.io.analysis.joinable()) return;
     const std::size_t block = std::min(cfg_.block_len_frames, kScratch);
     const auto ch = static_cast<std::size_t>(m.in_channels);
     while (frames > 0) {
@@ -725,6 +760,8 @@ void Engine::run_demo_frames(std::size_t frames) noexcept {
         std::span<float> buf(m.prod_scratch.data(), n * ch);
         if (m.demo)
             m.demo->render(buf);
+        else if (m.demo_duo)
+            m.demo_duo->render(buf);
         else
             m.demo_group->render(buf);
         capture(buf.data(), n, m.in_channels);
@@ -742,10 +779,22 @@ void Engine::set_drone(const DroneSettings& s) {
     Impl& m = *impl_;
     drone_ = s;
     m.root_hz.store(s.root_hz);
+    if (TakeRecorder* tap = m.tap.load(std::memory_order_acquire)) tap->note_drone(s);
     if (!m.started) return;
     if (m.io.out_drone) m.io.out_drone->set(s);
     if (m.room_drone) m.room_drone->set(s);
     m.drone_for_analysis.publish(s);
+}
+
+void Engine::set_tap(TakeRecorder* r) {
+    Impl& m = *impl_;
+    m.tap.store(r, std::memory_order_release);
+    if (r) {
+        r->note_drone(drone_);
+        return;
+    }
+    while (m.tap_users.load(std::memory_order_acquire) != 0)
+        std::this_thread::sleep_for(std::chrono::microseconds(200));
 }
 
 void Engine::set_root_hz(double root_hz) {

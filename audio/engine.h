@@ -11,6 +11,7 @@
 
 #pragma once
 
+#include "audio/demo_duo.h"
 #include "audio/demo_ensemble.h"
 #include "audio/demo_performer.h"
 #include "audio/device.h"
@@ -34,6 +35,8 @@
 #include <thread>
 
 namespace beatless::audio {
+
+class TakeRecorder;
 
 // The live tracker's lowest f0 by default for one performer (voices, violin,
 // viola: the lowest note of a bass voice, E2, is 82 Hz); lower needs a longer span.
@@ -108,6 +111,7 @@ public:
     void open_output_device(std::string_view spec);  // the drone plays here
     void use_demo(DemoConfig demo);                  // the demo performer is the microphone
     void use_demo(DemoEnsembleConfig demo);          // the demo ensemble (voices, channels from the setup when empty)
+    void use_demo(DemoDuoConfig demo);               // the demo violinist's double stops (two voices)
     double use_file(const std::string& path);        // returns the file's rate; throws Error naming it
     void set_input_has_drone(bool on);               // file: the recording holds a drone at the root
     void start(bool analysis_thread = true);         // false: the caller runs analyze_available()
@@ -132,6 +136,10 @@ public:
     // Throws Error on a frequency outside 20 Hz .. 5 kHz or a length outside 0.1 .. 30 s.
     void sound_tone(double freq_hz, double dur_s);
     void supervise();  // watchdog, reopening, a group's channel messages; every ~100 ms
+    // Recording: from the next callback every analysed channel, as it came in (before drone removal), is copied to
+    // `r` (audio/take_recorder.h), one recorder channel per analysed channel; drone changes are noted in it. nullptr
+    // detaches, waiting until no callback uses the old one. Costs one relaxed atomic load per callback when none.
+    void set_tap(TakeRecorder* r);
     void on_message(std::function<void(const std::string&)> f) { message_ = std::move(f); }
 
     // --- Readings and status ------------------------------------------------------

@@ -68,6 +68,14 @@ SoundReader::SoundReader(const std::string& path, int channel, std::size_t block
         cleanup_and_throw(path + ": sample rate " + rate_text(info_.sample_rate_hz) + " is not supported (" +
                           rate_text(kMinRateHz) + " to " + rate_text(kMaxRateHz) + ")");
     if (info_.channels < 1) cleanup_and_throw(path + ": has no audio channels");
+    // A stream cut short (a FLAC take whose header was never finished) has an unknown length: counted by decoding.
+    if (info_.len_frames == SF_COUNT_MAX) {
+        std::vector<float> scratch(4096 * static_cast<std::size_t>(std::max(1, info_.channels)));
+        info_.len_frames = 0;
+        for (sf_count_t n; (n = sf_readf_float(f, scratch.data(), 4096)) > 0;) info_.len_frames += n;
+        if (sf_seek(f, 0, SEEK_SET) != 0)
+            cleanup_and_throw(path + ": cut short, and cannot be read again from its start");
+    }
     if (info_.len_frames <= 0) cleanup_and_throw(path + ": contains no audio (0 frames)");
     if (channel_ >= info_.channels || channel_ < -1)
         cleanup_and_throw(

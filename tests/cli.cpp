@@ -7,8 +7,10 @@
 #include <cerrno>
 #include <cstdio>
 #include <cstdlib>
+#include <cmath>
 #include <cstring>
 #include <filesystem>
+#include <sstream>
 #include <stdexcept>
 
 extern char** environ;
@@ -101,6 +103,20 @@ RunResult run_program(const std::string& args_line, const std::vector<std::strin
     }
     if (in_arg) args.push_back(cur);
     return run_program(args, env);
+}
+
+std::vector<double> json_numbers(const std::string& json, const std::string& list_expr) {
+    std::istringstream in(json_value(json, "' '.join(str(v) for v in " + list_expr + ")"));
+    std::vector<double> out;
+    for (std::string w; in >> w;) out.push_back(w == "None" ? NAN : std::stod(w));
+    return out;
+}
+
+std::vector<std::string> json_words(const std::string& json, const std::string& list_expr) {
+    std::istringstream in(json_value(json, "' '.join(str(v) for v in " + list_expr + ")"));
+    std::vector<std::string> out;
+    for (std::string w; in >> w;) out.push_back(w);
+    return out;
 }
 
 std::string json_value(const std::string& json, const std::string& expr) {

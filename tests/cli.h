@@ -27,6 +27,10 @@ RunResult run_program(const std::string& args_line, const std::vector<std::strin
 // expression on the parsed document `d`, e.g. "d['voices'][1]['note']".
 std::string json_value(const std::string& json, const std::string& expr);
 
+// The items of a Python list expression on `d` (json_value), as numbers (None is NaN) or as words.
+std::vector<double> json_numbers(const std::string& json, const std::string& list_expr);
+std::vector<std::string> json_words(const std::string& json, const std::string& list_expr);
+
 // Path of the beatless binary under test (BEATLESS_PROGRAM from CMake).
 std::string program_path();
 

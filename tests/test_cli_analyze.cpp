@@ -40,19 +40,8 @@ void write(const std::string& path, const std::vector<float>& x, double fs = kFs
 }
 
 // Numbers printed by a Python expression that joins them with spaces.
-std::vector<double> numbers(const std::string& json, const std::string& list_expr) {
-    std::istringstream in(json_value(json, "' '.join(str(v) for v in " + list_expr + ")"));
-    std::vector<double> out;
-    for (std::string w; in >> w;) out.push_back(w == "None" ? NAN : std::stod(w));
-    return out;
-}
-
-std::vector<std::string> words(const std::string& json, const std::string& list_expr) {
-    std::istringstream in(json_value(json, "' '.join(str(v) for v in " + list_expr + ")"));
-    std::vector<std::string> out;
-    for (std::string w; in >> w;) out.push_back(w);
-    return out;
-}
+constexpr auto numbers = &beatless::test::json_numbers;
+constexpr auto words = &beatless::test::json_words;
 
 double cents(double a, double b) { return 1200.0 * std::log2(a / b); }
 }  // namespace

@@ -147,6 +147,73 @@ TEST_CASE("track prints the DESIGN.md JSON and CSV forms") {
     CHECK(beatless::test::json_value(qj.out, "all(f['f0_hz'] is None for f in d['frames'])") == "True");
 }
 
+TEST_CASE("track --drone: a drone-plus-voice file yields the voice, the drone given or found") {
+    // A 7/5 voice 6 cents flat over an A2 drone 6 dB louder: the truth is 110 * 7/5 * 2^(-6/1200) = 153.4665 Hz.
+    // Without removal the tracker hears the mixture (a drone 6 dB louder, common practice: it wins); with --drone the
+    // median voiced f0 must be the voice's within 0.1 cent, in the same JSON and CSV forms as before.
+    TempDir dir;
+    REQUIRE(run_program({"tone", "--root", "A2", "--ratio", "7/5", "--detune-cents", "-6", "--level-db", "-18",
+                         "--voice-db", "-24", "--seconds", "2", "--out", dir.file("dv.wav")})
+                .exit_code == 0);
+    const std::string median =
+        "sorted(f['f0_hz'] for f in d['frames'] if f['f0_hz'])[len([f for f in d['frames'] if f['f0_hz']])//2]";
+    const double truth = 110 * 1.4 * std::exp2(-6 / 1200.0);
+    const auto plain = run_program({"track", dir.file("dv.wav")});
+    REQUIRE(plain.exit_code == 0);
+    const std::string near_truth =
+        "sum(1 for f in d['frames'] if f['f0_hz'] and abs(1200 * __import__('math').log2(f['f0_hz'] / " +
+        std::to_string(truth) + ")) < 10)";
+    CHECK(std::stoi(beatless::test::json_value(plain.out, near_truth)) < 40);
+    for (const char* drone : {"A2", "110", "auto"}) {
+        CAPTURE(drone);
+        const auto r = run_program({"track", dir.file("dv.wav"), "--drone", drone});
+        REQUIRE(r.exit_code == 0);
+        CHECK(beatless::test::json_value(r.out, "sorted(d['frames'][0].keys())") == "['confidence', 'f0_hz', 't']");
+        CHECK(std::stod(beatless::test::json_value(r.out, "d['drone_hz']")) == doctest::Approx(110.0).epsilon(1e-3));
+        CHECK(std::fabs(1200 * std::log2(std::stod(beatless::test::json_value(r.out, median)) / truth)) < 0.1);
+        // Nearly every frame of the 2 s on the voice once the drone is gone.
+        CHECK(std::stoi(beatless::test::json_value(r.out, near_truth)) > 370);
+        CHECK(r.err == (std::string(drone) == "auto"
+                            ? "beatless: drone found in the file at 110 Hz (confidence 1); removed before tracking\n"
+                            : ""));
+    }
+    const auto csv = run_program({"track", dir.file("dv.wav"), "--drone", "A2", "--format", "csv"});
+    CHECK(csv.out.rfind("t,f0_hz,confidence\n", 0) == 0);
+    // A file with no drone: --drone auto says so in one line.
+    REQUIRE(run_program({"tone", "--root", "A2", "--level-db", "-80", "--seconds", "1", "--out", dir.file("q.wav")})
+                .exit_code == 0);
+    const auto none = run_program({"track", dir.file("q.wav"), "--drone", "auto"});
+    CHECK(none.exit_code == 1);
+    CHECK(none.err.rfind("beatless: " + dir.file("q.wav") + ": no steady drone found (best candidate ", 0) == 0);
+    CHECK(line_count(none.err) == 1);
+}
+
+TEST_CASE("track --voices 2: both voices of a double stop, lowest first, in the same forms") {
+    // G3 = 195.998 Hz (A4 440, 12-TET: 440 * 2^(-14/12)) and a 7/4 above it, 342.996 Hz: each median within 0.1 cent.
+    TempDir dir;
+    REQUIRE(run_program({"tone", "--root", "G3", "--ratio", "7/4", "--level-db", "-20", "--voice-db", "-22",
+                         "--seconds", "2", "--out", dir.file("duo.wav")})
+                .exit_code == 0);
+    const auto r = run_program({"track", dir.file("duo.wav"), "--voices", "2"});
+    REQUIRE(r.exit_code == 0);
+    CHECK(beatless::test::json_value(r.out, "d['voices']") == "2");
+    CHECK(beatless::test::json_value(r.out, "sorted(d['frames'][0].keys())") == "['confidence', 'f0_hz', 't']");
+    const double low = 440.0 * std::exp2(-14 / 12.0), high = low * 7 / 4;
+    for (int v = 0; v < 2; ++v) {
+        const std::string i = std::to_string(v);
+        const std::string med = "sorted(f['f0_hz'][" + i +
+                                "] for f in d['frames'] if len(f['f0_hz']) == 2)[len([f for f in d['frames'] if "
+                                "len(f['f0_hz']) == 2]) // 2]";
+        CHECK(std::fabs(1200 * std::log2(std::stod(beatless::test::json_value(r.out, med)) / (v ? high : low))) < 0.1);
+    }
+    CHECK(std::stoi(beatless::test::json_value(r.out, "sum(1 for f in d['frames'] if len(f['f0_hz']) == 2)")) > 300);
+    const auto csv = run_program({"track", dir.file("duo.wav"), "--voices", "2", "--format", "csv"});
+    CHECK(csv.out.rfind("t,f0_low_hz,f0_high_hz,confidence\n", 0) == 0);
+    const auto bad = run_program({"track", dir.file("duo.wav"), "--voices", "3"});
+    CHECK(bad.exit_code == 1);
+    CHECK(bad.err == "beatless: --voices 3: 1 or 2\n");
+}
+
 TEST_CASE("track: bad files and values, one line each, exit 1") {
     TempDir dir;
     { std::ofstream(dir.file("empty.wav")); }

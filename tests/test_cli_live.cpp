@@ -257,7 +257,7 @@ TEST_CASE("listen --voices 2: each step of a double stop read with its target, d
         const char* target;
     };
     const Step steps[] = {{7, 4, +3.0, "7/4"}, {7, 5, -4.0, "7/5"}, {3, 2, +2.0, "3/2"}};
-    std::vector<float> x(static_cast<std::size_t>(8.0 * fs), 0.0f);
+    std::vector<float> x(static_cast<std::size_t>(10.0 * fs), 0.0f);
     for (int i = 0; i < 3; ++i) {
         const double high_hz = low_hz * steps[i].p / steps[i].q * std::exp2(steps[i].dev_cents / 1200.0);
         beatless::testsig::add_tone(x, fs, low_hz, 2.0 * i, 2.0 * i + 2.0, 0.2, beatless::testsig::rolloff(12));
@@ -267,12 +267,15 @@ TEST_CASE("listen --voices 2: each step of a double stop read with its target, d
     beatless::testsig::add_tone(x, fs, low_hz, 6.0, 8.0, 0.2, beatless::testsig::rolloff(12));
     beatless::testsig::add_tone(x, fs, low_hz * std::exp2(1.0 / 1200.0), 6.0, 8.0, 0.16,
                                 beatless::testsig::rolloff(12));
+    // An octave, bowed-string-like partials 1/h^2 at equal levels: the upper voice hides in the even partials.
+    beatless::testsig::add_tone(x, fs, low_hz, 8.0, 10.0, 0.2, beatless::testsig::rolloff(12, 2.0));
+    beatless::testsig::add_tone(x, fs, 2.0 * low_hz, 8.0, 10.0, 0.2, beatless::testsig::rolloff(12, 2.0));
     beatless::testsig::add_noise(x, 1e-3, 5);
     const std::string wav = dir.file("double_stop.wav");
     beatless::audio::write_wav(wav, x, fs);
 
-    const auto r =
-        run_program({"listen", "--voices", "2", "--input-file", wav, "--fast", "--root", "G3", "--targets", "7-limit"});
+    const auto r = run_program({"listen", "--voices", "2", "--input-file", wav, "--fast", "--root", "G3", "--targets",
+                                "7-limit", "--in-tune", "1"});
     REQUIRE_MESSAGE(r.exit_code == 0, r.err);
     const auto all = lines_of(r.out);
     REQUIRE(all.size() > 600);  // a reading every 10 ms
@@ -282,8 +285,13 @@ TEST_CASE("listen --voices 2: each step of a double stop read with its target, d
         REQUIRE(mid.size() > 100);
         const double high_hz = low_hz * steps[i].p / steps[i].q * std::exp2(steps[i].dev_cents / 1200.0);
         const double beat_true = std::fabs(steps[i].q * high_hz - steps[i].p * low_hz);
-        int right = 0, dev_ok = 0, beat_ok = 0, measured = 0;
+        int right = 0, dev_ok = 0, beat_ok = 0, measured = 0, moves = 0;
         for (const auto& l : mid) {
+            // No drone: the lower voice leads, the upper moves against the deviation (common practice).
+            moves += l.find("\"told_apart\": true") != std::string::npos &&
+                     l.find("\"reference\": \"lower voice\"") != std::string::npos &&
+                     l.find("\"voice\": \"high\"") != std::string::npos &&
+                     std::fabs(num_after(l, "cents") + steps[i].dev_cents) <= 0.5;
             right += l.find(std::string("\"target\": \"") + steps[i].target + "\"") != std::string::npos;
             dev_ok += std::fabs(num_after(l, "dev_cents") - steps[i].dev_cents) <= 0.5;
             const double mb = num_after(l, "measured_beat_hz");
@@ -296,6 +304,7 @@ TEST_CASE("listen --voices 2: each step of a double stop read with its target, d
         CAPTURE(mid.front());
         CHECK(right == static_cast<int>(mid.size()));
         CHECK(dev_ok == static_cast<int>(mid.size()));
+        CHECK(moves == static_cast<int>(mid.size()));
         CHECK(std::fabs(num_after(mid[mid.size() / 2], "beat_hz") - beat_true) <
               0.05);  // predicted from the measured f0s
         // Measuring needs whole beats in the signal: a beat slower than about
@@ -306,8 +315,24 @@ TEST_CASE("listen --voices 2: each step of a double stop read with its target, d
     // The unison: no interval is printed for it (one voice heard, or nothing claimed as a dyad off the unison).
     const auto uni = between(all, 6.4, 7.6);
     REQUIRE(uni.size() > 100);
-    int claimed = 0;
-    for (const auto& l : uni)
+    int claimed = 0, said = 0;
+    for (const auto& l : uni) {
         claimed += std::isfinite(num_after(l, "dev_cents")) && std::fabs(num_after(l, "interval_cents")) > 5.0;
+        said += l.find("\"told_apart\": false") != std::string::npos &&
+                (l.find("\"blend\": \"one_series\"") != std::string::npos ||
+                 l.find("\"blend\": \"near_unison\"") != std::string::npos);
+    }
     CHECK(claimed == 0);
+    CHECK(said >= static_cast<int>(uni.size()) * 9 / 10);
+    // The octave: said as an octave (one series), or read as the 2/1 it is; never another interval.
+    const auto oct = between(all, 8.4, 9.6);
+    REQUIRE(oct.size() > 100);
+    int octave = 0, wrong = 0;
+    for (const auto& l : oct) {
+        const double c = num_after(l, "interval_cents");
+        octave += l.find("\"blend\": \"octave\"") != std::string::npos || std::fabs(c - 1200.0) <= 5.0;
+        wrong += std::isfinite(c) && std::fabs(c - 1200.0) > 5.0;
+    }
+    CHECK(octave >= static_cast<int>(oct.size()) * 9 / 10);
+    CHECK(wrong == 0);
 }

@@ -12,6 +12,7 @@
 
 #include <doctest/doctest.h>
 
+#include <algorithm>
 #include <cmath>
 #include <cstdio>
 #include <cstdlib>
@@ -201,4 +202,59 @@ TEST_CASE(
         const StepCheck plain = run(0.0);  // the default floor, 70 Hz: the note is out of range
         CHECK_FALSE(plain.targets_right);
     }
+}
+
+// The demo violinist (audio/demo_duo.h): silent between double stops, and every steady frame of the two-voice
+// tracker on her sound within 1 c of the interval she plays (her truth). The bound is the bench bar for
+// p95 loosened for bow noise; the truth is her own synthesis parameters.
+TEST_CASE("demo violinist: double stops the two-voice tracker reads to her truth, silence between them") {
+    audio::DemoDuoConfig dc;
+    dc.root_hz = 98.0;  // G2: her lower string plays G3
+    audio::DemoDuo duo(dc);
+    pitch::TargetSet set;
+    for (const char* r : {"6/5", "5/4", "4/3", "7/5", "3/2", "5/3", "7/4"})
+        set.targets.push_back(pitch::Target{pitch::parse_interval(r), ""});
+    std::sort(set.targets.begin(), set.targets.end(),
+              [](const pitch::Target& a, const pitch::Target& b) { return a.interval.cents() < b.interval.cents(); });
+    pitch::TwoVoiceConfig tc;
+    tc.sample_rate_hz = dc.sample_rate_hz;
+    pitch::TwoVoiceTracker tv(tc, set);
+    const double span_s = 1.25 * static_cast<double>(tv.window_len_samples()) / dc.sample_rate_hz;
+    std::vector<float> block(480);
+    struct Truth {
+        double t, cents;
+        bool sounding;
+    };
+    std::vector<Truth> truth;
+    double lift_peak = 0.0;
+    int steady = 0, close = 0;
+    pitch::TwoVoiceFrame f;
+    for (int b = 0; b < 1000; ++b) {  // 10 s
+        duo.render(block);
+        const audio::DemoDuoTruth tr = duo.truth();
+        const double t = (b + 1) * 0.01;
+        truth.push_back({t, tr.sounding ? 1200.0 * std::log2(tr.f_high_hz / tr.f_low_hz) : NAN, tr.sounding});
+        // In the lift (4.3 .. 4.8 s) after the release ramp: silence.
+        if (t > 4.4 && t < 4.8)
+            for (float v : block) lift_peak = std::max(lift_peak, static_cast<double>(std::fabs(v)));
+        tv.push(block);
+        while (tv.pull(f)) {
+            // Steady: the whole window inside a double stop, after 2 s of her correction (within 0.2 c by then).
+            auto at = [&](double ts) {
+                for (const Truth& x : truth)
+                    if (x.t >= ts) return x;
+                return Truth{ts, NAN, false};
+            };
+            const double a = f.t_s - 0.5 * span_s, z = f.t_s + 0.5 * span_s;
+            const bool in_first = a > 2.3 && z < 4.3;
+            const bool in_second = a > 6.8 && z < 8.8;
+            if (!(in_first || in_second) || z > t) continue;
+            const Truth mid = at(f.t_s);
+            ++steady;
+            close += f.voices == 2 && std::fabs(f.interval_cents - mid.cents) <= 1.0;
+        }
+    }
+    CHECK(lift_peak < 1e-4);
+    REQUIRE(steady > 200);
+    CHECK(close >= steady * 95 / 100);
 }

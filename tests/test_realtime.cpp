@@ -7,9 +7,12 @@
 // read/write lock), counting calls made while the calling thread is marked
 // "watched". The watched sections are the device callbacks (capture and
 // playback, with drone changes applied inside them) and the analysis steps
-// after warm-up. glibc exports __libc_malloc and friends for exactly this use.
+// after warm-up, also with a take being recorded. glibc exports __libc_malloc and friends for exactly this use.
 // Under the sanitizers (which interpose the allocator themselves) it is skipped.
 #include "audio/engine.h"
+#include "audio/soundfile.h"
+#include "audio/take_recorder.h"
+#include "tests/cli.h"
 #include "tests/ensemble_signals.h"
 #include "tests/live_rig.h"
 #include "tests/mix_signals.h"
@@ -113,6 +116,40 @@ struct Counted {
     }
 };
 
+// Four players with vibrato and crosstalk (4:5:6:7 over G2) on a fake quad duplex device that plays the drone.
+struct QuadRig {
+    const pitch::Chord chord = pitch::parse_chord("4:5:6:7");
+    const std::vector<test::GroupVoice> g = {
+        {"B", 0, 0, -3.0, 4.9, 15.0, 0.14, false},
+        {"T", 1, 1, +2.5, 5.5, 24.0, 0.12, false},
+        {"A", 2, 2, -4.0, 5.2, 20.0, 0.12, false},
+        {"S", 3, 3, +7.5, 5.8, 28.0, 0.12, false},
+    };
+    test::GroupTake take;
+    audio::FakeAudioSystem sys{{audio::fake_device(0, "Fake quad duplex", 4, 2)}, {48000.0}};
+    audio::Engine eng{with_rate(), &sys};
+    audio::EnsembleSetup s{chord, test::players_of(g), {}};
+    audio::DroneSettings d;
+
+    static audio::EngineConfig with_rate() {
+        audio::EngineConfig ec;
+        ec.sample_rate_hz = 48000.0;
+        return ec;
+    }
+    explicit QuadRig(double dur_s) {
+        take.dur_s = dur_s;
+        test::render_group(take, chord, 98.0, g);
+        s.analysis.root_hz = 98.0;
+        eng.set_ensemble(s);
+        eng.open_input_device("quad");
+        eng.open_output_device("quad");
+        d.on = true;
+        d.root_hz = 98.0;
+        eng.set_drone(d);
+        eng.start(false);
+    }
+};
+
 TEST_CASE("the counting hooks see an allocation and a lock (so a zero below means something)") {
 #ifdef BEATLESS_SANITIZED
     MESSAGE("skipped under the sanitizers, which interpose the allocator themselves");
@@ -207,30 +244,12 @@ TEST_CASE(
     // Four players with vibrato and crosstalk on a fake duplex device that
     // also plays the drone; drone changes between blocks; a chord change
     // while running (the analyzer is swapped, not rebuilt in the analysis).
-    const pitch::Chord chord = pitch::parse_chord("4:5:6:7");
-    const std::vector<test::GroupVoice> g = {
-        {"B", 0, 0, -3.0, 4.9, 15.0, 0.14, false},
-        {"T", 1, 1, +2.5, 5.5, 24.0, 0.12, false},
-        {"A", 2, 2, -4.0, 5.2, 20.0, 0.12, false},
-        {"S", 3, 3, +7.5, 5.8, 28.0, 0.12, false},
-    };
-    test::GroupTake take;
-    take.dur_s = 3.0;
-    test::render_group(take, chord, 98.0, g);
-    audio::FakeAudioSystem sys({audio::fake_device(0, "Fake quad duplex", 4, 2)}, {48000.0});
-    audio::EngineConfig ec;
-    ec.sample_rate_hz = 48000.0;
-    audio::Engine eng(ec, &sys);
-    audio::EnsembleSetup s{chord, test::players_of(g), {}};
-    s.analysis.root_hz = 98.0;
-    eng.set_ensemble(s);
-    eng.open_input_device("quad");
-    eng.open_output_device("quad");
-    audio::DroneSettings d;
-    d.on = true;
-    d.root_hz = 98.0;
-    eng.set_drone(d);
-    eng.start(false);
+    QuadRig q(3.0);
+    auto& take = q.take;
+    auto& s = q.s;
+    auto& sys = q.sys;
+    auto& eng = q.eng;
+    auto& d = q.d;
     std::vector<float> out(2 * 256);
     std::vector<pitch::EnsembleReading> got(64);
     Counted counted;
@@ -291,6 +310,90 @@ TEST_CASE(
         eng.supervise();  // frees the retired tracker on this (control) thread
     }
     CHECK(eng.status().readings > 200);
+    counted.check();
+#endif
+}
+
+TEST_CASE("recording on: the capture callback still allocates nothing and locks nothing; the take holds every frame") {
+#ifdef BEATLESS_SANITIZED
+    MESSAGE("skipped under the sanitizers, which interpose the allocator themselves");
+#else
+    // The group of four above, recorded (four channels) while the drone changes between blocks; the writer thread
+    // drains the rings to FLAC meanwhile. The take read back is the input rounded to 24 bits (libsndfile reads
+    // 24-bit PCM as code / 2^23; FLAC is lossless: libsndfile documentation).
+    QuadRig q(2.0);
+    auto& take = q.take;
+    auto& sys = q.sys;
+    auto& eng = q.eng;
+    auto& d = q.d;
+    test::TempDir dir;
+    audio::TakeRecorderConfig rc;
+    rc.sample_rate_hz = 48000.0;
+    rc.channels = 4;
+    rc.min_free_start_bytes = 0;
+    rc.min_free_run_bytes = 0;
+    audio::TakeRecorder rec(rc, dir.file("group.flac"), "group.flac");
+    rec.start();
+    eng.set_tap(&rec);
+    std::vector<float> out(2 * 256);
+    std::vector<pitch::EnsembleReading> got(64);
+    Counted counted;
+    std::size_t frames = 0;
+    for (std::size_t f = 0, b = 0; (f + 256) * 4 <= take.interleaved.size(); f += 256, ++b) {
+        if (b % 50 == 25) {
+            audio::DroneSettings x = d;
+            x.on = (b / 50) % 2 == 0;
+            eng.set_drone(x);
+        }
+        counted.block([&] { sys.drive(std::span<const float>(take.interleaved.data() + f * 4, 256 * 4), out, 4, 2); },
+                      [&] { eng.analyze_available(); }, f > 24000);
+        while (eng.take_readings(got) > 0) {}
+        eng.supervise();
+        frames += 256;
+    }
+    eng.set_tap(nullptr);
+    rec.stop();
+    counted.check();
+    CHECK(rec.problem() == "");
+    CHECK(rec.written_frames() == static_cast<std::int64_t>(frames));
+    CHECK(rec.drone_changes().size() >= 7);  // the state at the start and each change
+    audio::SoundReader r(dir.file("group.flac"));
+    REQUIRE(r.info().channels == 4);
+    std::size_t same = 0, n = 0;
+    for (auto blk = r.read_frames(); !blk.empty(); blk = r.read_frames())
+        for (float v : blk) {
+            const double c = std::clamp(std::round(take.interleaved[n] * 8388608.0), -8388608.0, 8388607.0);
+            same += v == static_cast<float>(c / 8388608.0);
+            ++n;
+        }
+    CHECK(n == frames * 4);
+    CHECK(same == n);
+#endif
+}
+
+TEST_CASE("the demo violinist: her rendering, the capture and the warm two-voice analysis allocate and lock nothing") {
+#ifdef BEATLESS_SANITIZED
+    MESSAGE("skipped under the sanitizers, which interpose the allocator themselves");
+#else
+    audio::DemoDuo duo(audio::DemoDuoConfig{});
+    std::vector<float> block(256);
+    audio::EngineConfig ec;
+    ec.sample_rate_hz = 48000.0;
+    audio::Engine eng(ec, nullptr);
+    pitch::TargetSet set;
+    for (const char* r : {"6/5", "5/4", "7/5", "3/2", "5/3", "7/4"})
+        set.targets.push_back({pitch::parse_interval(r), ""});
+    eng.set_two_voices(pitch::TwoVoiceConfig{}, set);
+    eng.use_demo(audio::DemoDuoConfig{});
+    eng.start(false);
+    std::vector<pitch::TwoVoiceFrame> got(64);
+    Counted counted;
+    std::size_t frames = 0;
+    for (int b = 0; b < 1200; ++b) {  // 6.4 s: two double stops and the lift between them
+        counted.block([&] { duo.render(block); }, [&] { eng.run_demo_frames(256); }, b > 100);
+        for (std::size_t k; (k = eng.take_readings(std::span<pitch::TwoVoiceFrame>(got))) > 0;) frames += k;
+    }
+    CHECK(frames > 500);
     counted.check();
 #endif
 }

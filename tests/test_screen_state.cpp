@@ -302,19 +302,22 @@ TEST_CASE("keys: Space needs the caution first; arrows move target and root; H o
     frame_with_key(GLFW_KEY_TAB);
     CHECK(deck.current() == ui::ScreenId::ensemble);
     frame_with_key(GLFW_KEY_TAB);
+    CHECK(deck.current() == ui::ScreenId::review);
+    frame_with_key(GLFW_KEY_TAB);
     CHECK(deck.current() == ui::ScreenId::settings);
     frame_with_key(GLFW_KEY_ESCAPE);
     CHECK(deck.current() == ui::ScreenId::practice);
 }
 
-TEST_CASE("screens: Practice, Drills, Ensemble and Settings are built; the others are named but not shown") {
+TEST_CASE("screens: the five screens of the design are built, in tab order") {
     const auto ids = ui::built_screens();
-    REQUIRE(ids.size() == 4);
+    REQUIRE(ids.size() == 5);
     CHECK(ids[0] == ui::ScreenId::practice);
     CHECK(ids[1] == ui::ScreenId::drills);
     CHECK(ids[2] == ui::ScreenId::ensemble);
-    CHECK(ids[3] == ui::ScreenId::settings);
-    CHECK(ui::built_screen_keys() == "practice, drills, ensemble, settings");
+    CHECK(ids[3] == ui::ScreenId::review);
+    CHECK(ids[4] == ui::ScreenId::settings);
+    CHECK(ui::built_screen_keys() == "practice, drills, ensemble, review, settings");
     CHECK(ui::parse_screen_key("Drills") == ui::ScreenId::drills);
     CHECK_FALSE(ui::parse_screen_key("lobby").has_value());
 }

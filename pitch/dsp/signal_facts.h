@@ -39,6 +39,45 @@ inline void observe(SignalFacts& f, std::span<const float> block, std::int64_t f
     }
 }
 
+// How the blocks' levels spread: a histogram of block RMS in 1 dB steps from -120 to 0 dBFS, so a take's quiet
+// floor (10th percentile) and its loud part (90th) can be compared to estimate its signal-to-noise ratio.
+class LevelSpread {
+public:
+    void add(std::span<const float> block) noexcept {
+        if (block.empty()) return;
+        double ss = 0.0;
+        for (const float v : block) ss += static_cast<double>(v) * static_cast<double>(v);
+        const double db = 10.0 * std::log10(std::max(ss / static_cast<double>(block.size()), 1e-13));
+        ++bins_[static_cast<std::size_t>(std::clamp(db + 120.0, 0.0, static_cast<double>(kBins - 1)))];
+        ++count_;
+    }
+    // The level (dBFS, the bin's lower edge) below which `fraction` of the blocks lie; -inf with no blocks.
+    double percentile_dbfs(double fraction) const noexcept {
+        if (count_ == 0) return -INFINITY;
+        const double want = fraction * static_cast<double>(count_);
+        double seen = 0.0;
+        for (std::size_t i = 0; i < kBins; ++i) {
+            seen += static_cast<double>(bins_[i]);
+            if (seen >= want) return static_cast<double>(i) - 120.0;
+        }
+        return 0.0;
+    }
+    // Estimated SNR in dB: the power of the loud blocks (90th percentile) above the quiet floor (10th), over that
+    // floor. A take that is all noise reads near 0 dB.
+    double snr_db() const noexcept {
+        const double loud = std::pow(10.0, percentile_dbfs(0.9) / 10.0),
+                     quiet = std::pow(10.0, percentile_dbfs(0.1) / 10.0);
+        if (!(quiet > 0.0)) return INFINITY;
+        return 10.0 * std::log10(std::max(loud - quiet, 1e-3 * quiet) / quiet);
+    }
+    std::int64_t blocks() const noexcept { return count_; }
+
+private:
+    static constexpr std::size_t kBins = 121;
+    std::array<std::int64_t, kBins> bins_{};
+    std::int64_t count_ = 0;
+};
+
 // Clipped samples per block over the last ~95 s (more than a note may last),
 // so each note can say whether it was clipped without keeping the file.
 class ClipHistory {

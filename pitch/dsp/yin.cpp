@@ -11,13 +11,17 @@
 // frame f is centred on sample c_f = c_0 + f * hop. Its coarse window (k
 // blocks of P decimated samples) and lag range are centred on c_f; its
 // refinement span (at most span_s) is centred on c_f too, and t_s is the
-// exact centre of the samples the refined lag compares. A frame is finished
+// exact centre of the samples the refined lag compares. Where a note changes
+// inside the span, the refinement keeps to the stretch periodic at the newest
+// note's period (pitch/dsp/periodic_run.h), and t_s is that stretch's centre:
+// frames stay in time order (deliver()). A frame is finished
 // once the coarse result of frame f + 1 exists (step 6 looks at both
 // neighbours), which sets delay_s().
 #include "pitch/dsp/yin.h"
 
 #include "pitch/base/error.h"
 #include "pitch/dsp/decimator.h"
+#include "pitch/dsp/periodic_run.h"
 #include "pitch/dsp/vec_ops.h"
 #include "pitch/dsp/yin_coarse.h"
 #include "pitch/dsp/yin_refine.h"
@@ -41,6 +45,16 @@ constexpr std::size_t kChunk = 4096;               // input processed in pieces 
 constexpr double kMinDecimatedRate = 5000.0;       // the coarse stage runs at or above this rate
 constexpr double kSamplesPerShortestPeriod = 6.5;  // ... and at least this many samples per period of f_max
 constexpr double kCoarseLagError = 0.3;            // assumed parabola error on the coarse d, decimated samples
+constexpr double kRunLagError = 0.5;      // assumed error of a neighbour's coarse period used alone, decimated samples
+constexpr double kNewestThreshold = 0.1;  // YIN threshold for the newest note's period (stricter than the frame's)
+constexpr double kRunFloor = 0.45;        // aperiodicity a block of a periodic stretch may always have (45 %)
+// Fastest sweep of log f0 the periodic-stretch test follows, 1/s: a vibrato of
+// +-100 cents at 7.5 Hz sweeps 2 pi 7.5 Hz x 100 / 1731 = 2.7 per second.
+constexpr double kMaxSweep = 3.5;
+// Coarse periods of neighbouring frames further apart than this are a note
+// change in view (a vibrato moves them by under 3 % in two hops), as is an
+// aperiodicity over twice the others'.
+constexpr double kSteadyRatio = 1.03;
 constexpr Index kFineMargin = LagRefiner::kKernelHalf + LagRefiner::kSearch + 1;
 // One half of the span 40 dB under the other: a note starts or stops inside
 // it (a held tone's level never changes that fast).
@@ -60,7 +74,6 @@ constexpr double kPowerAlpha = 0.08;  // running mean of the curvature's square,
 constexpr double kNoiseBias = 0.3 / 1200.0 * 0.6931471805599453;  // the curvature's noise, as a bias (0.3 cents)
 // The curvature is taken only from frames this sure (calibrated confidence): a frame that mixes two notes after a
 // change is voiced, less sure, and would bend its neighbours.
-constexpr double kSureConfidence = 0.85;
 // A frame this far above the noise floor (dB) is voiced only under YIN's threshold as well.
 constexpr double kClearAboveFloorDb = 20.0;
 
@@ -110,6 +123,13 @@ struct YinTracker::Impl {
     LagRefiner fine;
     LagRefiner mid;
     NoiseFloor noise_floor;
+    PeriodicRun runs;
+    double last_run_aperiodicity = 1.0;  // of the stretch periodic_stretch() chose last
+    double last_run_period = 0.0;        // ... and its period, decimated samples
+    double last_t_s = -1.0;              // t of the last frame delivered
+    bool last_voiced = false;            // ... and whether it was voiced
+    bool last_restricted = false;        // the last voiced frame used a stretch of its span
+    Index change_at = -1;                // where the newest note's stretch began, full-rate samples
 
     std::vector<float> x;  // full-rate samples [x_off, x_off + x_len)
     Index x_off = 0;
@@ -129,6 +149,7 @@ struct YinTracker::Impl {
     struct Held {
         PitchFrame p;
         double m2_s2 = 0.0;
+        bool narrowed = false;  // refined on a stretch of its span (a note change inside it)
     };
     std::array<Held, 2 * kStencil + 1> held{};  // ring: the frames f - 2 kStencil .. f
     std::size_t held_count = 0;                 // frames delivered since reset
@@ -200,7 +221,8 @@ struct YinTracker::Impl {
           correlator(plan(c).block, plan(c).per_window, plan(c).max_lag),
           fine(static_cast<std::size_t>(std::lround(c.span_s * c.sample_rate_hz)) + 16),
           mid(static_cast<std::size_t>(std::lround(c.span_s * c.sample_rate_hz)) / plan(c).dec + 16),
-          noise_floor(c.hop_s) {
+          noise_floor(c.hop_s),
+          runs(static_cast<std::size_t>(std::lround(c.span_s * c.sample_rate_hz)) / plan(c).dec + 16, plan(c).max_lag) {
         const Plan p = plan(c);
         rate = cfg.sample_rate_hz;
         dec_factor = p.dec;
@@ -269,6 +291,10 @@ struct YinTracker::Impl {
         noise_floor.reset();
         q_head = q_count = 0;
         held_count = 0;
+        last_t_s = -1.0;
+        last_voiced = false;
+        last_restricted = false;
+        change_at = -1;
         curv = Curvature{};
         bad_samples = dropped = 0;
     }
@@ -442,6 +468,10 @@ struct YinTracker::Impl {
             period = parabolic_minimum(cur.d, pick.lag);
             aper = pick.aperiodicity;
         }
+        // A note change inside the coarse window blurs its dip: the newest
+        // note may still be periodic over enough of the span (refinement path).
+        if (!(aper < cfg.threshold) && out.level_dbfs >= cfg.silence_dbfs && !one_sided)
+            changed_note(f, lo, period, aper);
         // Voicing: the calibrated probability that this period is right (yin_voicing.h), judged against the
         // running noise floor; silent and one-sided spans are unvoiced with confidence 0.
         const bool silent = out.level_dbfs < cfg.silence_dbfs || one_sided;
@@ -457,18 +487,44 @@ struct YinTracker::Impl {
             return;
         }
 
-        // Refinement. (a) Period multiples within the coarse lag range, on the
-        // coarse d itself: each step multiplies the lag while the prediction
-        // error stays well inside half a period (no jump to a neighbouring multiple).
-        const double Tc = period * static_cast<double>(D);  // full-rate samples
-        const double usable = static_cast<double>(span - 2 * kFineMargin - 2);
+        // The samples the refinement may use: the span, or where a note
+        // changes inside it, the stretch periodic at the newest note's period.
+        Index A = lo, B = lo + span;
+        double Tc = period * static_cast<double>(D);  // full-rate samples
+        const bool restricted = periodic_stretch(f, period, A, B, Tc);
+        last_restricted = restricted;
+        double m2_s2 = 0.0, t_centre = static_cast<double>(cf);
+        double T = refine(cur, restricted ? Tc / static_cast<double>(D) : period, !restricted, A, B, t_centre, m2_s2);
+        if (!(std::fabs(T / Tc - 1.0) < 0.06)) {  // refinement lost the period: keep the coarse one
+            T = Tc;
+            m2_s2 = 0.0;
+        }
+        out.f0_hz = rate / T;
+        out.t_s = t_centre / rate;
+        deliver(out, m2_s2, restricted);
+    }
+
+    // Refinement of the period (decimated samples) inside the samples [A, B):
+    // returns the period in full-rate samples (0 when the window left is too
+    // short to refine), with the centre of the samples compared and the kernel's second
+    // moment. (a) Period multiples within the coarse lag range, on the coarse d
+    // itself (only when the coarse window is the span's: `multiples`): each
+    // step multiplies the lag while the prediction error stays well inside
+    // half a period (no jump to a neighbouring multiple). (b) The lag K T in
+    // the decimated copy. (c) The same at the full rate.
+    double refine(const Coarse& cur, double period, bool multiples, Index A, Index B, double& t_centre,
+                  double& m2_s2) noexcept {
+        const Index D = static_cast<Index>(dec_factor);
+        const double Tc = period * static_cast<double>(D);
+        const double centre = multiples ? t_centre : 0.5 * static_cast<double>(A + B - 1);
+        const double usable = static_cast<double>(B - A - 2 * kFineMargin - 2);
         long K = std::max(1L, std::lround(2.0 * usable / (3.0 * Tc)));
         while (K > 1 && usable - static_cast<double>(K) * Tc < std::max(0.5 * Tc, 32.0)) --K;
-        double t_dec = period;           // current period estimate, decimated samples
-        double sigma = kCoarseLagError;  // its uncertainty, decimated samples
+        double t_dec = period;                                      // current period estimate, decimated samples
+        double sigma = multiples ? kCoarseLagError : kRunLagError;  // its uncertainty, decimated samples
         long ks = 1;
         const double cap = static_cast<double>(max_lag_dec - 1);
-        for (int step = 0; step < 8 && ks < K; ++step) {
+        for (int step = 0; multiples && step < 8 && ks < K; ++step) {
             const double room = std::min(2.0, 0.5 * t_dec - 0.5);
             long kn = std::min<long>(K, static_cast<long>(std::floor(room / sigma)));
             kn = std::min<long>(kn, static_cast<long>(std::floor(cap / t_dec)));
@@ -478,10 +534,12 @@ struct YinTracker::Impl {
             sigma = kCoarseLagError / static_cast<double>(kn);
             ks = kn;
         }
+        if (!multiples)  // the mid stage below may move the lag by a few samples at most
+            K = std::max(1L, std::min<long>(K, static_cast<long>(std::floor(std::min(2.0, 0.5 * t_dec) / sigma))));
         // (b) The lag K T in the decimated copy, inside the final span.
         const double kt0 = static_cast<double>(K) * t_dec * static_cast<double>(D);
         const double w_full = usable - kt0;
-        const double s_full = static_cast<double>(cf) - (w_full - 1.0 + kt0) / 2.0;
+        const double s_full = centre - (w_full - 1.0 + kt0) / 2.0;
         const auto lag_dec = static_cast<Index>(std::lround(static_cast<double>(K) * t_dec));
         const Index s_dec = static_cast<Index>(std::ceil(s_full / static_cast<double>(D)));
         const Index w_dec = static_cast<Index>(std::floor((s_full + w_full + kt0) / static_cast<double>(D))) - s_dec -
@@ -495,23 +553,134 @@ struct YinTracker::Impl {
         // (c) The same at the full rate.
         const Index j0 = std::lround(kt);
         const Index W = static_cast<Index>(usable) - j0;
-        const Index s = std::lround(static_cast<double>(cf) - static_cast<double>(W - 1 + j0) / 2.0);
+        if (W < 16) return 0.0;
+        const Index s = std::lround(centre - static_cast<double>(W - 1 + j0) / 2.0);
         const LagRefiner::Result fr = fine.refine(xp(s), static_cast<std::size_t>(W), static_cast<std::size_t>(j0));
-        double t_centre = static_cast<double>(cf);
-        double m2_s2 = 0.0;
         if (fr.ok) {
             kt = fr.lag;
             t_centre = static_cast<double>(s) + (static_cast<double>(W) - 1.0 + kt) / 2.0;
             m2_s2 = kernel_second_moment(static_cast<double>(W), kt) / (rate * rate);
+        } else if (!multiples) {
+            t_centre = centre;
         }
-        double T = kt / static_cast<double>(K);
-        if (!(std::fabs(T / Tc - 1.0) < 0.06)) {  // refinement lost the period: keep the coarse one
-            T = Tc;
-            m2_s2 = 0.0;
+        return kt / static_cast<double>(K);
+    }
+
+    // Of two stretches, the one that ends last (the newest note); where both
+    // end within a few samples of each other, the more periodic one.
+    static bool newer(const PeriodicRun::Result& a, const PeriodicRun::Result& b) noexcept {
+        if (a.end > b.end + 8) return true;
+        if (b.end > a.end + 8) return false;
+        return a.aperiodicity < 0.5 * b.aperiodicity;
+    }
+
+    // The period of the newest note in the decimated samples [m0, m0 + len), 0 when none.
+    double newest(Index m0, std::size_t len) noexcept {
+        return runs.newest_period(yp(m0), len, lag_min, lag_max, kNewestThreshold);
+    }
+
+    // A frame the coarse stage calls aperiodic, after a voiced frame: where
+    // the newest note (or a neighbour's) is periodic over enough of the span,
+    // takes that period and the stretch's aperiodicity.
+    void changed_note(Index f, Index lo, double& period, double& aper) noexcept {
+        if (f < 1) return;
+        const Coarse& prev = ring[static_cast<std::size_t>((f - 1) % 3)];
+        const Coarse& next = ring[static_cast<std::size_t>((f + 1) % 3)];
+        if (!last_voiced) return;  // an onset is the voicing's business, not a change between notes
+        Index A = lo, B = lo + span;
+        double Tc = 0.0;
+        const double guess = last_restricted                     ? last_run_period
+                             : next.aperiodicity < cfg.threshold ? next.period_dec
+                                                                 : prev.period_dec;
+        if (!periodic_stretch(f, guess, A, B, Tc) || !(last_run_aperiodicity < cfg.threshold)) return;
+        period = Tc / static_cast<double>(dec_factor);
+        aper = std::min(aper, last_run_aperiodicity);
+    }
+
+    // The coarse frames f - 1, f, f + 1 agree (periods within kSteadyRatio,
+    // aperiodicities within twice the lowest and 0.02): no note change
+    // reaches into the span but its outer few milliseconds, which their
+    // windows do not cover and the refinement's window barely weighs.
+    static bool steady(const Coarse& a, const Coarse& b, const Coarse& c) noexcept {
+        const double p_lo = std::min({a.period_dec, b.period_dec, c.period_dec});
+        const double p_hi = std::max({a.period_dec, b.period_dec, c.period_dec});
+        const double a_lo = std::min({a.aperiodicity, b.aperiodicity, c.aperiodicity});
+        const double a_hi = std::max({a.aperiodicity, b.aperiodicity, c.aperiodicity});
+        return p_hi < kSteadyRatio * p_lo && a_hi < 2.0 * a_lo + 0.02;
+    }
+
+    // Where the span [A, B) holds a note change, narrows it to the periodic
+    // stretch (pitch/dsp/periodic_run.h) at the frame's own period or a
+    // neighbour's, the one that ends last (the newest note), and sets Tc
+    // (full-rate samples) to that period. The lag may follow the slope the
+    // neighbours' coarse periods show (a vibrato's sweep), up to kMaxSweep.
+    // Returns false (the span unchanged) when the span is periodic throughout
+    // or no stretch is long enough.
+    bool periodic_stretch(Index f, double period, Index& A, Index& B, double& Tc) noexcept {
+        const Index D = static_cast<Index>(dec_factor);
+        const Index m0 = floor_div(A + D - 1, D), m1 = floor_div(B - 1, D) + 1;
+        if (m1 - m0 < 32 || f < 1) return false;
+        const auto len = static_cast<std::size_t>(m1 - m0);
+        const Coarse& prev = ring[static_cast<std::size_t>((f - 1) % 3)];
+        const Coarse& next = ring[static_cast<std::size_t>((f + 1) % 3)];
+        if (!last_restricted && steady(prev, ring[static_cast<std::size_t>(f % 3)], next)) return false;
+        const double hop_dec = static_cast<double>(hop) / static_cast<double>(D);
+        double slope = 0.0;
+        if (prev.aperiodicity < cfg.threshold && next.aperiodicity < cfg.threshold) {
+            const double s = (next.period_dec - prev.period_dec) / (2.0 * hop_dec);
+            if (std::fabs(s) <= kMaxSweep * period / rate_dec) slope = s;
         }
-        out.f0_hz = rate / T;
-        out.t_s = t_centre / rate;
-        deliver(out, m2_s2);
+        auto min_len = [&](double p) {
+            const double t = p * static_cast<double>(D);
+            return static_cast<std::size_t>(
+                       std::ceil((t + std::max(0.5 * t, 96.0) + static_cast<double>(2 * kFineMargin + 2)) /
+                                 static_cast<double>(D))) +
+                   2;
+        };
+        PeriodicRun::Result best = runs.find(yp(m0), len, period, slope, min_len(period), kRunFloor, !last_restricted);
+        if (best.whole && !(last_restricted && best.aperiodicity > kNewestThreshold)) {
+            // A change found by the frames before stays cut out while the span still holds it (a small step's
+            // old note may measure under the threshold at the span's edge, yet pull the estimate).
+            const auto need = static_cast<Index>(min_len(period)) * D;
+            if (!last_restricted || !(change_at > A) || change_at + need > B) return false;
+            A = change_at;
+            Tc = period * static_cast<double>(D);
+            last_run_aperiodicity = best.aperiodicity;
+            last_run_period = period;
+            return true;
+        }
+        double best_period = period;
+        // The neighbours' coarse periods, and while a change is under way the period the last frame kept to.
+        const double others[3] = {prev.aperiodicity < cfg.threshold ? prev.period_dec : 0.0,
+                                  next.aperiodicity < cfg.threshold ? next.period_dec : 0.0,
+                                  last_restricted ? last_run_period : 0.0};
+        for (const double p : others) {
+            if (!(p > 0.0) || std::fabs(p / period - 1.0) < 0.015) continue;
+            const PeriodicRun::Result r = runs.find(yp(m0), len, p, slope, min_len(p), kRunFloor);
+            if (r.found && (!best.found || newer(r, best))) {
+                best = r;
+                best_period = p;
+            }
+        }
+        if (!best.found || best.end + 2 < len) {
+            const double p = newest(m0, len);
+            if (p > 0.0 && std::fabs(p / best_period - 1.0) >= 0.015) {
+                const PeriodicRun::Result r = runs.find(yp(m0), len, p, 0.0, min_len(p), kRunFloor);
+                if (r.found && (!best.found || newer(r, best))) {
+                    best = r;
+                    best_period = p;
+                }
+            }
+        }
+        if (!best.found || !(best.aperiodicity < cfg.threshold)) return false;
+        last_run_aperiodicity = best.aperiodicity;
+        last_run_period = best_period;
+        const Index span_end = B;
+        A = std::max(A, (m0 + static_cast<Index>(best.begin)) * D);
+        B = std::min(B, (m0 + static_cast<Index>(best.end) - 1) * D + 1);
+        if (B + 2 * D >= span_end && best.begin > 0) change_at = A;  // the newest note, from its start
+        Tc = best_period * static_cast<double>(D);
+        return true;
     }
 
     // -----------------------------------------------------------------------
@@ -530,13 +699,29 @@ struct YinTracker::Impl {
         return yin_kernel_second_moment(window, lag);
     }
 
-    void deliver(const PitchFrame& p, double m2_s2) noexcept {
+    // Frames leave in time order: a frame narrowed to a stretch after a
+    // change is centred later than its grid point, so a frame that would
+    // come out earlier than the last one is moved just after it (unvoiced:
+    // its t says nothing) or dropped to unvoiced (voiced: rare, the frame
+    // straddling the change).
+    void deliver(const PitchFrame& frame, double m2_s2, bool narrowed = false) noexcept {
+        PitchFrame p = frame;
+        const double after = last_t_s + 0.5 / rate;
+        if (p.t_s < after) {
+            p.t_s = after;
+            if (p.voiced()) {
+                p.f0_hz = 0.0;
+                m2_s2 = 0.0;
+            }
+        }
+        last_t_s = p.t_s;
+        last_voiced = p.voiced();
         if (!cfg.vibrato_correction) {
             emit(p);
             return;
         }
         const std::size_t j = held_count++;
-        held[j % held.size()] = {p, m2_s2};
+        held[j % held.size()] = {p, m2_s2, narrowed};
         if (j < kStencil) return;
         const std::size_t b = j - kStencil;
         if (b < kStencil) {
@@ -559,7 +744,8 @@ struct YinTracker::Impl {
         const double prev = cv.last;
         cv.last = NAN;
         if (!(a.p.voiced() && b.p.voiced() && c.p.voiced()) || b.m2_s2 <= 0.0) return out;
-        if (std::min({a.p.confidence, b.p.confidence, c.p.confidence}) < kSureConfidence) return out;
+        // A note change among them: a narrowed frame's small m2 would let a step pass for a vibrato.
+        if (a.narrowed || b.narrowed || c.narrowed) return out;
         const double ga = std::log(a.p.f0_hz), gb = std::log(b.p.f0_hz), gc = std::log(c.p.f0_hz);
         const double hab = b.p.t_s - a.p.t_s, hbc = c.p.t_s - b.p.t_s;
         if (!(hab > 0.0 && hbc > 0.0)) return out;

@@ -4,8 +4,9 @@
 // as it ends. Steps: (1) frames below min_confidence, unvoiced, or within
 // drone_tol_cents of the root's own pitch class (the drone leaking into the
 // tracker) count as silence; (2) a note starts at the first voiced frame
-// and ends at a silence longer than max_gap_s, or splits where a 0.2 s
-// trailing mean of the pitch leaves the note's vibrato centre by more than
+// and ends at a silence longer than max_gap_s (bridge_s when the pitch comes
+// back to the note: dropouts in noise), or splits where a 0.2 s trailing
+// median of the pitch (blind to the tracker's octave slips) leaves the note's vibrato centre by more than
 // change_cents for change_s (a legato step, cut where a two-level step fit
 // puts it); (3) notes shorter than min_note_s are dropped; (4) per note, a
 // streaming VibratoCentre (pitch/dsp/vibrato.h) gives a centre reading per
@@ -66,8 +67,21 @@ NoteSegmenter::NoteSegmenter(const SegmentConfig& config, const TargetSet& targe
     centre_.assign(cap_, 0.0);
     win_start_.assign(cap_, 0.0);
     scratch_.assign(cap_, 0.0);
+    conf_.assign(cap_, 0.0);
     smooth_n_ = std::max<std::size_t>(1, static_cast<std::size_t>(std::lround(cfg_.smooth_s / cfg_.hop_s)));
     trim_n_ = static_cast<std::size_t>(std::lround(cfg_.release_trim_s / cfg_.hop_s));
+    recent_.assign(smooth_n_, 0.0);
+    check(cfg_.bridge_s >= cfg_.max_gap_s && cfg_.bridge_s <= 1.0, "bridge_s", cfg_.bridge_s);
+    check(cfg_.outlier_cents > cfg_.change_cents, "outlier_cents", cfg_.outlier_cents);
+}
+
+double NoteSegmenter::recent_median() noexcept {
+    const std::size_t k = std::min(n_, smooth_n_);
+    std::copy(c_.begin() + static_cast<std::ptrdiff_t>(n_ - k), c_.begin() + static_cast<std::ptrdiff_t>(n_),
+              recent_.begin());
+    std::nth_element(recent_.begin(), recent_.begin() + static_cast<std::ptrdiff_t>(k / 2),
+                     recent_.begin() + static_cast<std::ptrdiff_t>(k));
+    return recent_[k / 2];
 }
 
 void NoteSegmenter::add_frame(double t_s, double cents) noexcept {
@@ -86,6 +100,7 @@ void NoteSegmenter::start_with(std::size_t from) noexcept {
     const std::size_t keep = n_ - from;
     std::memmove(t_.data(), t_.data() + from, keep * sizeof(double));
     std::memmove(c_.data(), c_.data() + from, keep * sizeof(double));
+    std::memmove(conf_.data(), conf_.data() + from, keep * sizeof(double));
     n_ = 0;
     vib_.reset();
     smooth_sum_ = 0.0;
@@ -106,20 +121,29 @@ bool NoteSegmenter::push(const PitchFrame& frame, NoteResult& out) noexcept {
             ++drone_frames_;
         }
     }
+    // A slip of the tracker (an octave, a fifth) inside an established note is a dropout, not a new pitch; a real
+    // leap that far ends the note once the gap passes max_gap_s, and starts the next.
+    const bool established = n_ >= smooth_n_;
+    const double gap_s = n_ > 0 ? frame.t_s - last_voiced_t_ : 0.0;
+    if (voiced && established && std::fabs(cents - recent_median()) > cfg_.outlier_cents &&
+        gap_s <= cfg_.max_gap_s + 0.5 * cfg_.hop_s)
+        voiced = false;
     if (!voiced) {
-        if (n_ > 0 && frame.t_s - last_voiced_t_ > cfg_.max_gap_s) return close(n_, false, out);
+        if (n_ > 0 && gap_s > cfg_.bridge_s) return close(n_, false, out);
         return false;
     }
     bool emitted = false;
-    if (n_ > 0 && frame.t_s - last_voiced_t_ > cfg_.max_gap_s + 0.5 * cfg_.hop_s)
+    if (n_ > 0 && gap_s > cfg_.max_gap_s + 0.5 * cfg_.hop_s &&
+        (gap_s > cfg_.bridge_s + 0.5 * cfg_.hop_s || std::fabs(cents - recent_median()) > cfg_.change_cents))
         emitted = close(n_, false, out);
     else if (n_ == cap_)
         emitted = close(n_, true, out);
+    conf_[n_] = frame.confidence;
     add_frame(frame.t_s, cents);
     if (emitted || n_ < 2 * smooth_n_) return emitted;
 
-    // Legato split: the trailing mean leaves the note's centre and stays away.
-    const double smooth = smooth_sum_ / static_cast<double>(smooth_n_);
+    // Legato split: the trailing median leaves the note's centre and stays away.
+    const double smooth = recent_median();
     if (std::isnan(anchor_)) {
         anchor_ = centre_[n_ - 1];
         return false;
@@ -168,6 +192,9 @@ bool NoteSegmenter::close(std::size_t m, bool truncated, NoteResult& out) noexce
         r.end_s = t_[m - 1];
         r.frames = static_cast<int>(m);
         r.truncated = truncated;
+        double conf_sum = 0.0;
+        for (std::size_t i = 0; i < m; ++i) conf_sum += conf_[i];
+        r.confidence = conf_sum / static_cast<double>(m);
 
         // The last frames ride the release (the tracker's span reaches past
         // the offset): they are left out of every measurement below.
@@ -203,6 +230,11 @@ bool NoteSegmenter::close(std::size_t m, bool truncated, NoteResult& out) noexce
         double centre = 0.0, sd = 0.0;
         mean_and_spread(&c_[s_idx], ns, centre, sd);
         r.spread_cents = sd;
+        if (!(sd <= cfg_.max_spread_cents)) {
+            ++dropped_short_;
+            start_with(m);
+            return false;
+        }
         if (cs.found && cs.depth >= cfg_.vibrato.min_depth_cents) {
             centre = cs.mean;
             r.vibrato = true;

@@ -24,9 +24,18 @@ struct SegmentConfig {
     double min_confidence = 0.5;               // weaker frames count as silence (default 0.5)
     double min_note_s = 0.15;                  // shorter notes are dropped (default 150 ms)
     double max_gap_s = 0.04;                   // silences up to this are bridged (default 40 ms)
+    double bridge_s = 0.12;                    // ... and up to this when the pitch comes back within change_cents
+                                               //   of the note (dropouts in noise; default 120 ms)
+    double outlier_cents = 150.0;              // a frame this far from the note's recent median is a tracker slip
+                                               //   (an octave or fifth in noise): left out like a dropout
+                                               //   (default 150 cents)
+    double max_spread_cents = 100.0;           // a "note" whose pitch wanders more than this (standard deviation)
+                                               //   is the tracker lost in noise, not a held note: dropped and
+                                               //   counted with the short ones (default 100 cents; a +-100 c
+                                               //   vibrato spreads 71 c)
     double change_cents = 40.0;                // legato split threshold (default 40 cents)
     double change_s = 0.08;                    // ... held this long (default 80 ms)
-    double smooth_s = 0.2;                     // trailing mean for the split test (default 200 ms)
+    double smooth_s = 0.2;                     // trailing median for the split test (default 200 ms)
     double settle_cents = 5.0;                 // settle band around the centre (default 5 cents)
     double release_trim_s = 0.025;             // last frames of a note left out of its measurement: the
                                                //   tracker's span already hears the release (default 25 ms,
@@ -52,6 +61,7 @@ struct NoteResult {
     double dev_cents = NAN;            // centre minus target: + is sharp
     double spread_cents = 0.0;         // standard deviation of the pitch over the settled part (vibrato included)
     double centre_spread_cents = 0.0;  // standard deviation of the centre readings over the settled part
+    double confidence = 0.0;           // mean tracker confidence of the note's frames (0..1)
     double settle_s = NAN;             // onset to settled within settle_cents; NaN if it never settled
     bool vibrato = false;              // whole vibrato cycles were averaged
     double vibrato_rate_hz = 0.0;
@@ -94,7 +104,9 @@ private:
     VibratoCentre vib_;
     std::size_t cap_ = 0;
     std::size_t n_ = 0;  // frames in the open note
-    std::vector<double> t_, c_, centre_, win_start_, scratch_;
+    double recent_median() noexcept;  // median of the last smooth_n_ frames (fewer at the start)
+
+    std::vector<double> t_, c_, centre_, win_start_, scratch_, recent_, conf_;
     double last_voiced_t_ = -1e300;
     std::size_t smooth_n_ = 1;
     std::size_t trim_n_ = 0;  // release_trim_s in frames

@@ -90,7 +90,8 @@ struct TwoVoiceTracker::Impl {
     std::size_t hop = 0;
     std::size_t kmax = 0;
     double bin_hz = 0.0;
-    double amp_scale = 0.0;  // |X| -> sinusoid amplitude
+    double amp_scale = 0.0;     // |X| -> sinusoid amplitude
+    double window_power = 0.0;  // sum of the window's squares
     int harmonics = 0;
     AudibleRange audible;  // both voices sound `harmonics` partials; the 4 kHz limit or max_freq_hz if lower
     RealFft fft;
@@ -111,6 +112,9 @@ struct TwoVoiceTracker::Impl {
     double env_ref_low_hz = 0.0;
     std::vector<double> hist_t, hist_m;
     std::size_t hist_n = 0;
+    // The last pair told apart (section 3: names a merge into one series).
+    double last_pair_t_s = -INFINITY;
+    double last_pair_cents = NAN;
 
     Impl(const TwoVoiceConfig& c, const TargetSet& set);
     void reset();
@@ -121,6 +125,7 @@ struct TwoVoiceTracker::Impl {
     void cancel_first();
     void refine(Voice& v, const Voice* other);
     void name_interval(TwoVoiceFrame& f) const;
+    Blend blend_of(const TwoVoiceFrame& f) const;
     void measure_beat(TwoVoiceFrame& f);
     void clear_history() {
         hist_n = 0;
@@ -143,6 +148,8 @@ TwoVoiceTracker::Impl::Impl(const TwoVoiceConfig& c, const TargetSet& set)
     check(cfg.max_freq_hz > cfg.f_max_hz, "max_freq_hz", cfg.max_freq_hz);
     check(cfg.peak_range_db >= 20.0 && cfg.peak_range_db <= 140.0, "peak_range_db", cfg.peak_range_db);
     check(cfg.beat_history_s >= 0.5 && cfg.beat_history_s <= 30.0, "beat_history_s", cfg.beat_history_s);
+    check(cfg.octave_share > 0.0 && cfg.octave_share <= 1.0, "octave_share", cfg.octave_share);
+    check(cfg.merge_memory_s >= 0.0 && cfg.merge_memory_s <= 5.0, "merge_memory_s", cfg.merge_memory_s);
     check(cfg.max_block_len_samples >= 1 && cfg.max_block_len_samples <= (1u << 24), "max_block_len_samples",
           static_cast<double>(cfg.max_block_len_samples));
     n = fft.size();
@@ -161,6 +168,7 @@ TwoVoiceTracker::Impl::Impl(const TwoVoiceConfig& c, const TargetSet& set)
     double wsum = 0.0;
     for (float w : window) wsum += w;
     amp_scale = 2.0 / wsum;
+    for (float w : window) window_power += static_cast<double>(w) * w;
     ring.assign(span + cfg.max_block_len_samples + hop, 0.0f);
     x.assign(span, 0.0f);
     in0.assign(n, 0.0f);
@@ -182,6 +190,8 @@ void TwoVoiceTracker::Impl::reset() {
     written = 0;
     next_end = span;
     bad = dropped = 0;
+    last_pair_t_s = -INFINITY;
+    last_pair_cents = NAN;
     clear_history();
 }
 
@@ -311,9 +321,21 @@ void TwoVoiceTracker::Impl::refine(Voice& v, const Voice* other) {
 }
 
 void TwoVoiceTracker::Impl::analyze(TwoVoiceFrame& f) {
+    // The level as the analysis sees it: weighted by the window, so a note's
+    // last milliseconds at the window's edge (where it is nearly zero) are
+    // silence, not a frame of sidelobes.
     double ss = 0.0;
-    for (float s : x) ss += static_cast<double>(s) * s;
-    if (!(std::sqrt(ss / static_cast<double>(span)) > std::pow(10.0, cfg.silence_dbfs / 20.0))) {
+    for (std::size_t i = 0; i < n; ++i) {
+        const double a = static_cast<double>(window[i]) * x[i + d], b = static_cast<double>(window[i]) * x[i];
+        ss += 0.5 * (a * a + b * b);
+    }
+    // And the newest 20 ms: a sound that has stopped is silence at once,
+    // not 85 ms later when the window's centre passes its end.
+    const std::size_t tail = std::min(span, static_cast<std::size_t>(0.02 * cfg.sample_rate_hz));
+    double st = 0.0;
+    for (std::size_t i = span - tail; i < span; ++i) st += static_cast<double>(x[i]) * x[i];
+    const double floor = std::pow(10.0, cfg.silence_dbfs / 20.0);
+    if (!(std::sqrt(ss / window_power) > floor) || !(std::sqrt(st / static_cast<double>(tail)) > floor)) {
         clear_history();
         return;
     }
@@ -376,6 +398,7 @@ void TwoVoiceTracker::Impl::analyze(TwoVoiceFrame& f) {
         f.voices = 1;
         f.f_low_hz = va.f0_hz;
         f.level_low_db = level_db(va);
+        f.blend = blend_of(f);
         clear_history();
         return;
     }
@@ -386,8 +409,25 @@ void TwoVoiceTracker::Impl::analyze(TwoVoiceFrame& f) {
     f.level_low_db = level_db(va);
     f.level_high_db = level_db(vb);
     f.interval_cents = 1200.0 * std::log2(f.f_high_hz / f.f_low_hz);
+    last_pair_t_s = f.t_s;
+    last_pair_cents = f.interval_cents;
     name_interval(f);
     measure_beat(f);
+}
+
+// One series heard: why two voices may hide in it. An octave whose upper
+// voice's partials all land on the lower's even ones leaves those louder than
+// their odd neighbours, so after cancelling the first voice down to a smooth
+// envelope the even partials keep a salience of their own at 2 f0; a pair seen
+// just before near a unison or an octave names the merge too. Else: one series.
+Blend TwoVoiceTracker::Impl::blend_of(const TwoVoiceFrame& f) const {
+    if (salience(2.0 * va.f0_hz, true) >= cfg.octave_share * va.salience) return Blend::octave;
+    if (f.t_s - last_pair_t_s <= cfg.merge_memory_s && std::isfinite(last_pair_cents)) {
+        if (std::fabs(last_pair_cents) < 100.0) return Blend::near_unison;
+        const double octs = std::round(last_pair_cents / 1200.0);
+        if (octs >= 1.0 && std::fabs(last_pair_cents - 1200.0 * octs) < 30.0) return Blend::octave;
+    }
+    return Blend::one_series;
 }
 
 // ---------------------------------------------------------------------------

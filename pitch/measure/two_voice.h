@@ -27,6 +27,9 @@ struct TwoVoiceConfig {
     double silence_dbfs = -60.0;                  // quieter frames (RMS) have no voices (default -60 dBFS)
     double min_second_salience = 0.05;            // second voice's salience relative to the first (default 0.05)
     double beat_history_s = 3.0;                  // envelope history for slow beats (default 3 s)
+    double octave_share = 0.15;                   // even-partial excess (salience at 2 f0 after cancelling the
+                                                  //   first voice, relative to its own) that says octave (0.35)
+    double merge_memory_s = 0.3;                  // a pair seen this recently names the merge (default 0.3 s)
     bool octave_equivalent = true;                // targets match in every octave (default on)
     std::size_t max_block_len_samples = 1 << 16;  // push() blocks up to this never allocate
 };
@@ -36,6 +39,14 @@ enum class BeatSource {
     frequency_difference,  // the two coinciding partials are separate spectral peaks
     envelope,              // whole cycles of the shared partial's amplitude envelope
     slower_than_history,   // no whole beat within beat_history_s: measured_beat_hz = 0
+};
+
+// Why one series was heard where two voices may sound (frames with voices == 1).
+enum class Blend {
+    none,         // two voices told apart, or silence
+    one_series,   // one harmonic series explains the sound: one note, or a unison or octave too close to tell
+    near_unison,  // the pair was within 100 c of a unison just before it merged
+    octave,       // a second series an octave up hides in the even partials (all its partials shared)
 };
 
 struct TwoVoiceFrame {
@@ -60,6 +71,7 @@ struct TwoVoiceFrame {
     double predicted_beat_hz = NAN;  // |q f_high - p f_low|
     double measured_beat_hz = NAN;   // from the partials themselves
     BeatSource beat_source = BeatSource::none;
+    Blend blend = Blend::none;  // voices == 1: why the voices cannot be told apart
 };
 
 class TwoVoiceTracker {

@@ -14,6 +14,7 @@
 #include "tests/mix_signals.h"
 #include "ui/session/take_analysis.h"
 
+#include <sys/resource.h>
 #include <unistd.h>
 
 #include <algorithm>
@@ -187,15 +188,18 @@ void two_voices(Context& ctx, const ScratchDir& dir) {
     print_speed(audio_s, cpu, 50.0);
 }
 
+// A 16-bit WAV of `minutes`: the take repeated.
+void write_repeated(const std::string& path, const Take& take, double minutes) {
+    audio::SoundWriter w(path, kFs, 1, audio::SampleFormat::pcm16);
+    const double take_s = static_cast<double>(take.samples.size()) / kFs;
+    for (double t = 0.0; t < minutes * 60.0; t += take_s) w.write(take.samples);
+    w.close();
+}
+
 // Peak resident size while analyzing a file of `minutes` (one take repeated).
 long peak_rss_kb(const ScratchDir& dir, const Take& take, double minutes, std::size_t* notes) {
     const std::string path = dir.file("long.wav");
-    {
-        audio::SoundWriter w(path, kFs, 1, audio::SampleFormat::pcm16);
-        const double take_s = static_cast<double>(take.samples.size()) / kFs;
-        for (double t = 0.0; t < minutes * 60.0; t += take_s) w.write(take.samples);
-        w.close();
-    }
+    write_repeated(path, take, minutes);
     ui::AnalysisRequest req;
     req.path = path;
     req.targets = tritone_set();
@@ -225,8 +229,35 @@ void memory(Context& ctx, const ScratchDir& dir) {
                 verdict(per_min < 50.0));
 }
 
+// A ten-minute take analysed as `analyze` does (the same take repeated, 16-bit WAV): thread CPU time and the peak
+// resident size, sampled during the analysis and as the kernel's high-water mark (getrusage).
+void ten_minutes(Context& ctx, const ScratchDir& dir) {
+    const double minutes = ctx.quick ? 2.0 : 10.0;
+    const Take take = drone_and_voice(kFs, 110.0, tritone_notes(), 53);
+    const std::string path = dir.file("ten.wav");
+    write_repeated(path, take, minutes);
+    ui::AnalysisRequest req;
+    req.path = path;
+    req.targets = tritone_set();
+    long peak = rss_kb();
+    const double t0 = thread_cpu_s();
+    const ui::OneVoiceAnalysis a =
+        ui::analyze_one_voice(req, [&](double, const char*) { peak = std::max(peak, rss_kb()); });
+    const double cpu = thread_cpu_s() - t0;
+    rusage ru{};
+    getrusage(RUSAGE_SELF, &ru);
+    std::printf("a %.0f-minute take, as analyze runs it (%zu notes)\n", minutes, a.notes.size());
+    std::printf("  CPU %.2f s (scaled to 10 minutes: %.2f s)   bar < 2 s: %s\n", cpu, cpu * 10.0 / minutes,
+                verdict(cpu * 10.0 / minutes < 2.0));
+    std::printf("  peak resident %.1f MB during the analysis; process max RSS %.1f MB   bar < 200 MB: %s\n",
+                static_cast<double>(peak) / 1024.0, static_cast<double>(ru.ru_maxrss) / 1024.0,
+                verdict(static_cast<double>(ru.ru_maxrss) / 1024.0 < 200.0));
+    std::remove(path.c_str());
+}
+
 void run(Context& ctx) {
     const ScratchDir dir;
+    ten_minutes(ctx, dir);
     one_voice(ctx, dir);
     two_voices(ctx, dir);
     memory(ctx, dir);

@@ -10,9 +10,12 @@
 // measured from the partials beside the rate the f0s predict. The passes are
 // in ui/session/take_analysis.h; the printable page in ui/analysis_report.h.
 //
+// Each note is judged against the target meant (--expect, in order; see
+// pitch/measure/intent.h), else the nearest, else flagged "between targets".
 // A file with no steady drone (when the root is to be found) or with no
 // sound gets a one-line message naming it and exit code 1; a take with
-// sound but no held notes (noise, say) gives an empty result and exit 0.
+// sound but no held notes (noise, say) gives an empty result, a one-line
+// hint (level, estimated SNR, what to try) and exit 0.
 //
 // Index: shared text helpers; One voice (JSON, CSV, text, report); Two
 // voices (the same); The command (options, checks, progress, passes).
@@ -27,6 +30,7 @@
 #include "ui/session/json.h"
 #include "ui/session/log_csv.h"
 #include "ui/session/take_analysis.h"
+#include "ui/session/take_export.h"
 #include "ui/session/take_words.h"
 #include "ui/session/target_files.h"
 #include "ui/session/usage_error.h"
@@ -47,7 +51,9 @@ namespace {
 struct AnalyzeOptions {
     std::string file;
     std::string root = "auto";
-    bool root_set = false;  // --root given on the command line
+    bool root_set = false;     // --root given on the command line
+    bool targets_set = false;  // --targets given
+    bool a4_set = false;       // --a4 given
     double a4_hz = pitch::kDefaultA4Hz;
     std::string targets = "7-limit";
     int voices = 1;
@@ -55,22 +61,28 @@ struct AnalyzeOptions {
     std::string report;
     std::optional<int> channel;  // 1-based; empty mixes all channels
     std::string lowest;          // --lowest: below the file tracker's 41 Hz
+    std::string expect;          // --expect: the targets meant, in order ("7/5,10/7")
+    double between_cents = pitch::IntentConfig{}.between_cents;  // --between
 };
 
 constexpr double kProgressAfterS = 5.0;  // files longer than this show a progress bar (on a terminal)
 
-// The target's name: the set's own, else one of the trade (targets/names.toml).
-std::string target_name(const pitch::TargetSet& set, int index) {
-    if (index < 0 || static_cast<std::size_t>(index) >= set.targets.size()) return "";
-    const pitch::Target& t = set.targets[static_cast<std::size_t>(index)];
-    if (!t.name.empty()) return t.name;
-    const std::string* n = interval_names().find(t.interval);
-    return n ? *n : "";
+std::string target_name(const pitch::TargetSet& set, int index) { return target_name_of(set, index); }
+std::string target_text(const pitch::TargetSet& set, int index) { return target_text_of(set, index); }
+
+// "7/5", "3/2 +1oct", or "-" for a note between targets.
+std::string target_column(const pitch::TargetSet& set, int index, int octaves) {
+    if (index < 0) return "-";
+    std::string t = target_text(set, index);
+    if (octaves != 0) t += (octaves > 0 ? " +" : " ") + std::to_string(octaves) + "oct";
+    return t;
 }
 
-std::string target_text(const pitch::TargetSet& set, int index) {
-    if (index < 0 || static_cast<std::size_t>(index) >= set.targets.size()) return "";
-    return set.targets[static_cast<std::size_t>(index)].interval.str();
+std::string dev_column(double dev_cents) {
+    if (!std::isfinite(dev_cents)) return "-";
+    char buf[32];
+    std::snprintf(buf, sizeof buf, "%+.1f", dev_cents);
+    return buf;
 }
 
 std::string base_name(const std::string& path) { return std::filesystem::path(path).filename().string(); }
@@ -136,19 +148,6 @@ void check_report_path(const std::string& path) {
         throw Error(path + ": cannot be written (directory " + dir.string() + " is not writable)");
 }
 
-void add_summary_json(JsonWriter& j, const pitch::TargetSet& set, const std::vector<pitch::TargetSummary>& rows,
-                      bool dyads) {
-    j.key("summary").begin_array();
-    for (const auto& r : rows) {
-        const std::string ratio = target_text(set, r.target_index);
-        j.begin_object().key("target").value(ratio).key("target_name").value(target_name(set, r.target_index));
-        j.key("count").value(r.count).key("mean_dev_cents").value(r.mean_dev_cents, 3);
-        j.key("spread_cents").value(r.spread_cents, 3).key("mean_abs_dev_cents").value(r.mean_abs_dev_cents, 3);
-        j.key("text").value(summary_words(r, ratio, dyads)).end_object();
-    }
-    j.end_array();
-}
-
 void print_summary_text(const pitch::TargetSet& set, const std::vector<pitch::TargetSummary>& rows, bool dyads) {
     if (rows.empty()) return;
     std::printf("\nPer target:\n");
@@ -160,97 +159,17 @@ void print_summary_text(const pitch::TargetSet& set, const std::vector<pitch::Ta
     }
 }
 
-// The report's targets, marks and summary rows from notes or dyads.
-template <class Item, class ToMark>
-ReportData report_of(const pitch::TargetSet& set, const std::vector<Item>& items,
-                     const std::vector<pitch::TargetSummary>& summary, bool dyads, ToMark to_mark) {
-    ReportData d;
-    std::vector<bool> used(set.targets.size(), false);
-    for (const Item& it : items) {
-        if (it.target_index >= 0) used[static_cast<std::size_t>(it.target_index)] = true;
-        d.marks.push_back(to_mark(it));
-    }
-    for (std::size_t i = 0; i < set.targets.size(); ++i)
-        d.targets.push_back({set.targets[i].interval.cents(), set.targets[i].interval.str(),
-                             target_name(set, static_cast<int>(i)), used[i]});
-    for (const auto& r : summary) {
-        const std::string ratio = target_text(set, r.target_index);
-        const std::string w = summary_words(r, ratio, dyads);
-        // The ratio and the count have their own columns: keep "averages 6 cents flat".
-        const std::size_t from = std::min(w.size(), ratio.size() + 1);
-        d.summary.push_back({ratio, target_name(set, r.target_index), r.count, r.mean_dev_cents, r.spread_cents,
-                             w.substr(from, w.find(" (") - from)});
-    }
-    return d;
-}
-
 // ---------------------------------------------------------------------------
 // [SECTION] One voice
 // ---------------------------------------------------------------------------
 void print_one_voice(const AnalyzeOptions& o, const pitch::TargetSet& set, const OneVoiceAnalysis& a) {
     const auto& notes = a.notes;
     if (o.format == Format::json) {
-        JsonWriter j;
-        j.begin_object().key("file").value(o.file).key("sample_rate").value(a.info.sample_rate_hz, 3);
-        j.key("duration_s").value(a.info.dur_s(), 3).key("voices").value(1);
-        j.key("root_hz").value(a.root_hz, 4);
-        if (a.root_given)
-            j.key("root_confidence").null();
-        else
-            j.key("root_confidence").value(a.root.confidence, 3);
-        j.key("root_source").value(a.root_given ? "given" : "detected");
-        if (a.drone_hz > 0.0)
-            j.key("drone_hz").value(a.drone_hz, 4);
-        else
-            j.key("drone_hz").null();
-        j.key("targets").value(set.id).key("hop_s").value(a.hop_s, 7);
-        j.key("clipped_samples").value(static_cast<std::int64_t>(a.facts.clipped_samples));
-        j.key("notes").begin_array();
-        for (std::size_t i = 0; i < notes.size(); ++i) {
-            const pitch::NoteResult& n = notes[i];
-            j.begin_object().key("start_s").value(n.start_s, 4).key("end_s").value(n.end_s, 4);
-            j.key("f0_hz").value(n.centre_f0_hz, 4).key("ratio").value(n.ratio, 6);
-            j.key("target")
-                .value(target_text(set, n.target_index))
-                .key("target_name")
-                .value(target_name(set, n.target_index));
-            j.key("target_octaves").value(n.target_octaves);
-            j.key("dev_cents").value(n.dev_cents, 3).key("spread_cents").value(n.spread_cents, 3);
-            j.key("settle_s").value(n.settle_s, 3).key("beat_hz").value(n.beat_hz, 3);
-            j.key("beat_in_tune_hz").value(n.beat_in_tune_hz, 3);
-            if (n.partial_root > 0)
-                j.key("partial_root").value(n.partial_root).key("partial_voice").value(n.partial_voice);
-            else
-                j.key("partial_root").null().key("partial_voice").null();
-            j.key("own_partials");
-            if (n.own_partial_root > 0)
-                j.begin_array().value(n.own_partial_root).value(n.own_partial_voice).end_array();
-            else
-                j.null();
-            j.key("vibrato_hz").value(n.vibrato ? n.vibrato_rate_hz : 0.0, 2);
-            j.key("vibrato_cents").value(n.vibrato ? n.vibrato_depth_cents : 0.0, 2);
-            j.key("frames").value(n.frames).key("clipped").value(a.notes_clipped[i] > 0).end_object();
-        }
-        j.end_array();
-        add_summary_json(j, set, a.summary, false);
-        j.end_object();
-        std::printf("%s\n", j.str().c_str());
+        std::printf("%s\n", one_voice_json(o.file, set, a).c_str());
         return;
     }
     if (o.format == Format::csv) {
-        std::printf(
-            "start_s,end_s,f0_hz,ratio,target,target_name,dev_cents,spread_cents,settle_s,beat_hz,partial_root,partial_"
-            "voice,beat_in_tune_hz\n");
-        auto num = [](double v, int d) { return std::isfinite(v) ? pitch::format_trimmed(v, d) : std::string(); };
-        for (const auto& n : notes)
-            std::printf("%s,%s,%s,%s,%s,%s,%s,%s,%s,%s,%s,%s,%s\n", num(n.start_s, 4).c_str(), num(n.end_s, 4).c_str(),
-                        num(n.centre_f0_hz, 4).c_str(), num(n.ratio, 6).c_str(),
-                        csv_field(target_text(set, n.target_index)).c_str(),
-                        csv_field(target_name(set, n.target_index)).c_str(), num(n.dev_cents, 3).c_str(),
-                        num(n.spread_cents, 3).c_str(), num(n.settle_s, 3).c_str(), num(n.beat_hz, 3).c_str(),
-                        n.partial_root > 0 ? std::to_string(n.partial_root).c_str() : "",
-                        n.partial_voice > 0 ? std::to_string(n.partial_voice).c_str() : "",
-                        num(n.beat_in_tune_hz, 3).c_str());
+        std::printf("%s", one_voice_csv(set, a).c_str());
         return;
     }
     std::printf("%s: %s at %s Hz, one voice against a drone\n", o.file.c_str(), duration_text(a.info.dur_s()).c_str(),
@@ -262,7 +181,7 @@ void print_one_voice(const AnalyzeOptions& o, const pitch::TargetSet& set, const
     std::printf("\n");
     std::printf("targets: %s (%s)\n\n", set.id.c_str(), set.title.c_str());
     if (notes.empty()) {
-        std::printf("no held notes found\n");
+        std::printf("%s\n", nothing_found_words(a.heard.loudest_dbfs, a.heard.snr_db, false).c_str());
         return;
     }
     const bool drone = a.drone_hz > 0.0;
@@ -271,9 +190,7 @@ void print_one_voice(const AnalyzeOptions& o, const pitch::TargetSet& set, const
     int k = 0;
     for (std::size_t i = 0; i < notes.size(); ++i) {
         const pitch::NoteResult& n = notes[i];
-        std::string tgt = target_text(set, n.target_index);
-        if (n.target_octaves != 0)
-            tgt += (n.target_octaves > 0 ? " +" : " ") + std::to_string(n.target_octaves) + "oct";
+        const std::string tgt = target_column(set, n.target_index, n.target_octaves);
         std::string name = target_name(set, n.target_index);
         if (name.size() > 24) name = name.substr(0, 23) + "~";
         const std::string settle = std::isfinite(n.settle_s) ? pitch::format_trimmed(n.settle_s, 2) : "never";
@@ -281,10 +198,11 @@ void print_one_voice(const AnalyzeOptions& o, const pitch::TargetSet& set, const
             n.partial_root > 0 ? std::to_string(n.partial_root) + ":" + std::to_string(n.partial_voice) : "-";
         char beat[32] = "-";
         if (std::isfinite(n.beat_hz)) std::snprintf(beat, sizeof beat, "%.2f", n.beat_hz);
-        std::printf("%4d %8.3f %8.3f %10.3f %8.4f  %-12s %-24s %+8.1f %8.1f %8s %8s %6s  %s%s\n", ++k, n.start_s,
-                    n.end_s, n.centre_f0_hz, n.ratio, tgt.c_str(), name.c_str(), n.dev_cents, n.spread_cents,
-                    settle.c_str(), beat, pair.c_str(), beat_heard_word(n.beat_hz, drone).c_str(),
-                    a.notes_clipped[i] > 0 ? "  clipped" : "");
+        const std::string remark = judgement_words(a.judged[i], set, false);
+        std::printf("%4d %8.3f %8.3f %10.3f %8.4f  %-12s %-24s %8s %8.1f %8s %8s %6s  %s%s%s%s\n", ++k, n.start_s,
+                    n.end_s, n.centre_f0_hz, n.ratio, tgt.c_str(), name.c_str(), dev_column(n.dev_cents).c_str(),
+                    n.spread_cents, settle.c_str(), beat, pair.c_str(), beat_heard_word(n.beat_hz, drone).c_str(),
+                    a.notes_clipped[i] > 0 ? "  clipped" : "", remark.empty() ? "" : "  ", remark.c_str());
     }
     const pitch::BeatBands bands;
     std::printf(
@@ -300,16 +218,10 @@ void print_one_voice(const AnalyzeOptions& o, const pitch::TargetSet& set, const
 }
 
 ReportData one_voice_report(const AnalyzeOptions& o, const pitch::TargetSet& set, const OneVoiceAnalysis& a) {
-    ReportData d = report_of(set, a.notes, a.summary, false, [](const pitch::NoteResult& n) {
-        return ReportMark{n.start_s, n.end_s, n.cents_above_root, n.target_cents, n.dev_cents};
-    });
+    ReportData d = one_voice_report_data(set, a);
     d.title = base_name(o.file);
     d.subtitle =
         root_words(a, o.root, o.a4_hz) + "   \u00b7   targets: " + set.title + "   \u00b7   analyzed " + today_text();
-    d.axis_label = "cents above the root";
-    d.mark_word = "note";
-    d.dur_s = a.info.dur_s();
-    d.trace = &a.trace;
     return d;
 }
 
@@ -334,17 +246,20 @@ void print_two_voices(const AnalyzeOptions& o, const pitch::TargetSet& set, cons
         j.key("duration_s").value(a.info.dur_s(), 3).key("voices").value(2);
         j.key("targets").value(set.id).key("hop_s").value(a.hop_s, 7);
         j.key("clipped_samples").value(static_cast<std::int64_t>(a.facts.clipped_samples));
+        if (a.drone_hz > 0.0)
+            j.key("drone_hz").value(a.drone_hz, 4);
+        else
+            j.key("drone_hz").null();
         j.key("intervals").begin_array();
-        for (const auto& d : dyads) {
+        for (std::size_t k = 0; k < dyads.size(); ++k) {
+            const pitch::DyadResult& d = dyads[k];
             j.begin_object().key("start_s").value(d.start_s, 4).key("end_s").value(d.end_s, 4);
             j.key("f_low_hz").value(d.f_low_hz, 4).key("f_high_hz").value(d.f_high_hz, 4);
             j.key("interval_cents").value(d.interval_cents, 3).key("ratio").value(d.f_high_hz / d.f_low_hz, 6);
-            j.key("target")
-                .value(target_text(set, d.target_index))
-                .key("target_name")
-                .value(target_name(set, d.target_index));
+            add_target_json(j, set, d.target_index);
             j.key("target_octaves").value(d.target_octaves);
             j.key("dev_cents").value(d.dev_cents, 3).key("spread_cents").value(d.spread_cents, 3);
+            add_judgement_json(j, set, a.judged[k], true);
             j.key("partial_low").value(d.partial_low).key("partial_high").value(d.partial_high);
             j.key("predicted_beat_hz")
                 .value(d.predicted_beat_hz, 3)
@@ -375,24 +290,30 @@ void print_two_voices(const AnalyzeOptions& o, const pitch::TargetSet& set, cons
     }
     std::printf("%s: %s at %s Hz, two voices\n", o.file.c_str(), duration_text(a.info.dur_s()).c_str(),
                 pitch::format_trimmed(a.info.sample_rate_hz, 0).c_str());
+    if (a.drone_hz > 0.0)
+        std::printf("a steady drone at %s Hz is the low voice: it is removed and the other voice measured against it\n",
+                    pitch::format_trimmed(a.drone_hz, 3).c_str());
     std::printf("targets: %s (%s)\n\n", set.id.c_str(), set.title.c_str());
     if (dyads.empty()) {
-        std::printf("no held intervals found\n");
+        std::printf("%s\n", nothing_found_words(a.heard.loudest_dbfs, a.heard.snr_db, true).c_str());
         return;
     }
     std::printf("%4s %8s %8s %9s %9s %9s  %-12s %-22s %8s %8s %9s %9s\n", "#", "start s", "end s", "low Hz", "high Hz",
                 "cents", "target", "name", "dev c", "spread c", "beat Hz", "measured");
     int k = 0;
-    for (const auto& d : dyads) {
-        std::string tgt = target_text(set, d.target_index);
-        if (d.target_octaves != 0)
-            tgt += (d.target_octaves > 0 ? " +" : " ") + std::to_string(d.target_octaves) + "oct";
+    for (std::size_t i = 0; i < dyads.size(); ++i) {
+        const pitch::DyadResult& d = dyads[i];
+        const std::string tgt = target_column(set, d.target_index, d.target_octaves);
         std::string name = target_name(set, d.target_index);
         if (name.size() > 22) name = name.substr(0, 21) + "~";
         const std::string meas = std::isfinite(d.measured_beat_hz) ? pitch::format_trimmed(d.measured_beat_hz, 2) : "-";
-        std::printf("%4d %8.3f %8.3f %9.3f %9.3f %9.2f  %-12s %-22s %+8.1f %8.1f %9.2f %9s%s\n", ++k, d.start_s,
-                    d.end_s, d.f_low_hz, d.f_high_hz, d.interval_cents, tgt.c_str(), name.c_str(), d.dev_cents,
-                    d.spread_cents, d.predicted_beat_hz, meas.c_str(), d.clipped_frames > 0 ? "  clipped" : "");
+        const std::string remark = judgement_words(a.judged[i], set, true);
+        const std::string pred =
+            std::isfinite(d.predicted_beat_hz) ? pitch::format_trimmed(d.predicted_beat_hz, 2) : "-";
+        std::printf("%4d %8.3f %8.3f %9.3f %9.3f %9.2f  %-12s %-22s %8s %8.1f %9s %9s%s%s%s\n", ++k, d.start_s, d.end_s,
+                    d.f_low_hz, d.f_high_hz, d.interval_cents, tgt.c_str(), name.c_str(),
+                    dev_column(d.dev_cents).c_str(), d.spread_cents, pred.c_str(), meas.c_str(),
+                    d.clipped_frames > 0 ? "  clipped" : "", remark.empty() ? "" : "  ", remark.c_str());
     }
     std::printf(
         "\ndev: interval minus target (+ wide); beat Hz: |q f_high - p f_low| from the f0s, for the partials p and q\n"
@@ -417,7 +338,19 @@ ReportData two_voice_report(const AnalyzeOptions& o, const pitch::TargetSet& set
 // ---------------------------------------------------------------------------
 // [SECTION] The command
 // ---------------------------------------------------------------------------
-int run_analyze(const AnalyzeOptions& o) {
+// A take's sidecar beside the file supplies what the command line left out (ui/session/take_analysis.h).
+AnalyzeOptions with_take_context(AnalyzeOptions o) {
+    const TakeDefaults t = take_defaults(o.file);
+    if (!t.found) return o;
+    if (!o.targets_set && !t.targets.empty()) o.targets = t.targets;
+    if (!o.a4_set && t.a4_hz) o.a4_hz = *t.a4_hz;
+    if (!o.root_set && o.voices == 1 && !t.root.empty()) o.root = t.root;
+    if (o.expect.empty() && !o.targets_set) o.expect = t.expect;
+    return o;
+}
+
+int run_analyze(const AnalyzeOptions& given) {
+    const AnalyzeOptions o = with_take_context(given);
     pitch::check_a4(o.a4_hz);
     if (o.voices != 1 && o.voices != 2) throw UsageError("--voices " + std::to_string(o.voices) + ": choose 1 or 2");
     if (o.channel && *o.channel < 1)
@@ -436,6 +369,10 @@ int run_analyze(const AnalyzeOptions& o) {
     }
     req.targets = load_target_set(o.targets);
     if (req.targets.targets.empty()) throw Error(o.targets + ": the target set has no targets");
+    if (!(o.between_cents > 0.0 && o.between_cents <= 600.0))
+        throw Error("--between " + pitch::format_trimmed(o.between_cents, 3) + ": out of range (above 0 to 600 cents)");
+    req.intent.between_cents = o.between_cents;
+    if (!o.expect.empty()) req.expected = expected_targets(o.expect, req.targets);
     check_report_path(o.report);
     req.keep_trace = !o.report.empty();
 
@@ -447,12 +384,18 @@ int run_analyze(const AnalyzeOptions& o) {
         const OneVoiceAnalysis a = analyze_one_voice(reader, req, progress);
         bar.clear();
         warn_clipping(a.facts, o.file);
+        if (a.notes.empty() && o.format != Format::text)
+            std::fprintf(stderr, "beatless: %s: %s\n", o.file.c_str(),
+                         nothing_found_words(a.heard.loudest_dbfs, a.heard.snr_db, false).c_str());
         print_one_voice(o, req.targets, a);
         if (!o.report.empty()) write_report(o.report, one_voice_report(o, req.targets, a));
     } else {
         const TwoVoiceAnalysis a = analyze_two_voices(reader, req, progress);
         bar.clear();
         warn_clipping(a.facts, o.file);
+        if (a.dyads.empty() && o.format != Format::text)
+            std::fprintf(stderr, "beatless: %s: %s\n", o.file.c_str(),
+                         nothing_found_words(a.heard.loudest_dbfs, a.heard.snr_db, true).c_str());
         print_two_voices(o, req.targets, a);
         if (!o.report.empty()) write_report(o.report, two_voice_report(o, req.targets, a));
     }
@@ -467,16 +410,32 @@ void register_analyze(CLI::App& app, Runner& run) {
     sub->add_option("FILE", o->file, "Sound file (WAV, FLAC, AIFF, Ogg)")->required();
     CLI::Option* root = sub->add_option("--root", o->root,
                                         "The drone's root: auto (found in the file, default), a note (A2) or Hz (110)");
-    sub->add_option("--a4", o->a4_hz, "A4 reference in Hz for note names (400-480, default 440)");
-    sub->add_option("--targets", o->targets, "Target set: a built-in name or a .toml file (default 7-limit)");
+    CLI::Option* a4 = sub->add_option("--a4", o->a4_hz, "A4 reference in Hz for note names (400-480, default 440)");
+    CLI::Option* targets = sub->add_option(
+        "--targets", o->targets,
+        "Target set: a built-in name or a .toml file (default: the take's own when its sidecar is beside the file, "
+        "else 7-limit)");
     sub->add_option("--voices", o->voices, "1: a voice against a drone (default); 2: two voices from one microphone");
     add_format_option(*sub, o->format, {Format::text, Format::json, Format::csv});
     sub->add_option("--report", o->report, "Also draw a printable page (PNG) of the trace, notes and summary");
     sub->add_option("--channel", o->channel, "Channel to analyze, from 1 (default: all channels mixed)");
     sub->add_option("--lowest", o->lowest,
                     "One voice: the lowest note to follow, as a note (E1) or in Hz (30-200; default 41)");
-    sub->callback([o, root, &run] {
+    sub->add_option("--expect", o->expect,
+                    "The targets meant, in order (7/5,10/7,11/8,45/32; one target: every note): each note is judged "
+                    "against the one meant");
+    sub->add_option("--between", o->between_cents,
+                    "Without --expect, a note farther than this many cents from every target is 'between targets' "
+                    "(default 25)");
+    sub->footer(
+        "Exit status: 0 when the file was analyzed, also when it holds no held notes (then a one-line hint names the "
+        "level,\nthe estimated signal-to-noise ratio and what to try: on stdout as text, on stderr with --format json "
+        "or csv);\n1 for a file that cannot be read, is silent or (without --root) has no steady drone; 2 for bad "
+        "usage.");
+    sub->callback([o, root, targets, a4, &run] {
         o->root_set = root->count() > 0;
+        o->targets_set = targets->count() > 0;
+        o->a4_set = a4->count() > 0;
         run = [o] { return run_analyze(*o); };
     });
 }

@@ -3,7 +3,8 @@
 //   beatless listen [--demo | --input-file FILE [--fast] | --input DEV]
 //                   [--root NOTE|HZ] [--a4 HZ] [--targets SET | --target R]
 //                   [--seconds S] [--drone | --no-drone] [--output DEV]
-//                   [--midi-out PORT [--midi-tuning mts|bend] [--bend-range N]] [--midi-in PORT] ...
+//                   [--midi-out PORT [--midi-tuning mts|bend] [--bend-range N]] [--midi-in PORT]
+//                   [--record [FILE.flac | FOLDER]] ...
 //
 // One JSON object per reading on stdout: {"t", "f0_hz", "confidence",
 // "ratio", "target", "target_name", "dev_cents", "centre_dev_cents",
@@ -19,18 +20,24 @@
 // --midi-out plays the drone (and a fixed --target's reference tone) on a
 // MIDI synth, retuned exactly; --midi-in lets a keyboard set the root (a key)
 // or the target (a key held with the root's key). MIDI runs on this thread.
+// --record keeps the input as a take (ui/session/take_recording.h): FILE.flac with FILE.toml beside it, or in a
+// folder (default: the data folder's takes/) named by date and time; takes cut short earlier are recovered first.
 #include "audio/device.h"
 #include "audio/engine.h"
 #include "audio/sound_system.h"
 #include "audio/timbre.h"
 #include "pitch/base/error.h"
 #include "pitch/base/text.h"
+#include "pitch/measure/duo_advice.h"
 #include "pitch/measure/two_voice.h"
 #include "pitch/theory/interval.h"
 #include "pitch/theory/notes.h"
 #include "ui/commands/commands.h"
 #include "ui/session/json.h"
 #include "ui/session/midi_session.h"
+#include "ui/session/paths.h"
+#include "ui/session/safe_file.h"
+#include "ui/session/take_recording.h"
 #include "ui/session/target_files.h"
 #include "ui/session/usage_error.h"
 #include "ui/session/wording.h"
@@ -82,7 +89,11 @@ struct ListenOptions {
     double hop_ms = 5.0;
     std::string lowest;
     std::uint64_t seed = 7;
-    int voices = 1;  // 2: two voices in one input (a double stop, a duet)
+    int voices = 1;         // 2: two voices in one input (a double stop, a duet)
+    bool record = false;    // --record given
+    std::string record_to;  // its FILE or folder; "" = the data folder's takes/
+    std::string octaves = "equivalent";  // two voices: targets matched in every octave, or "exact"
+    double in_tune_cents = 5.0;          // two voices: no move suggested within this
 };
 
 // Names of a reading's target in its octave (a Reading or a TwoVoiceFrame: both carry target_index and target_octaves).
@@ -143,7 +154,11 @@ std::string json_line(const pitch::Reading& r, const TargetText& tt) {
 // its beat predicted and measured; with a drone each voice against the root too.
 struct DuoText : TargetText {
     double root_hz = 0.0;
-    bool judge_root = false;  // a drone sounds: each voice is also read against it
+    bool judge_root = false;     // a drone sounds: each voice is also read against it
+    double in_tune_cents = 5.0;  // no move within this (the settings' default width)
+    pitch::DuoAdvice advice(const pitch::TwoVoiceFrame& f) const {
+        return pitch::advise_duo(f, *set, judge_root ? root_hz : 0.0, in_tune_cents);
+    }
 };
 
 std::string json_line(const pitch::TwoVoiceFrame& f, const DuoText& dt) {
@@ -164,7 +179,26 @@ std::string json_line(const pitch::TwoVoiceFrame& f, const DuoText& dt) {
     }
     j.end_array();
     j.key("confidence").value(f.confidence, 3);
+    // Told apart: two voices (true), one series (false, and why), nothing heard (null).
+    if (f.voices == 0)
+        j.key("told_apart").null().key("blend").null();
+    else if (f.voices == 2)
+        j.key("told_apart").value(true).key("blend").null();
+    else
+        j.key("told_apart").value(false).key("blend").value(std::string(blend_key(f.blend)));
     if (f.voices == 2) {
+        const pitch::DuoAdvice a = dt.advice(f);
+        j.key("reference").value(a.against_root ? "root" : "lower voice");
+        if (a.mover == pitch::DuoMover::none)
+            j.key("move").null();
+        else
+            j.key("move")
+                .begin_object()
+                .key("voice")
+                .value(a.mover == pitch::DuoMover::low ? "low" : "high")
+                .key("cents")
+                .value(a.move_cents, 2)
+                .end_object();
         j.key("ratio").value(f.f_high_hz / f.f_low_hz, 6);
         j.key("interval_cents").value(f.interval_cents, 3);
         j.key("target").value(dt.interval(f));
@@ -181,8 +215,8 @@ std::string json_line(const pitch::TwoVoiceFrame& f, const DuoText& dt) {
             j.key("beat_partials").null();
         j.key("measured_beat_hz").value(f.measured_beat_hz, 3);
     } else {
-        for (const char* k : {"ratio", "interval_cents", "target", "target_name", "dev_cents", "beat_hz",
-                              "beat_partials", "measured_beat_hz"})
+        for (const char* k : {"reference", "move", "ratio", "interval_cents", "target", "target_name", "dev_cents",
+                              "beat_hz", "beat_partials", "measured_beat_hz"})
             j.key(k).null();
     }
     j.end_object();
@@ -223,8 +257,7 @@ std::string text_line(const pitch::TwoVoiceFrame& f, const DuoText& dt, double a
         return n.name + signed_num(n.offset_cents, 0);
     };
     if (f.voices == 1)
-        return s + note(f.f_low_hz > 0.0 ? f.f_low_hz : f.f_high_hz) +
-               "  one voice heard (a unison or an octave cannot be told apart)";
+        return s + note(f.f_low_hz > 0.0 ? f.f_low_hz : f.f_high_hz) + "  " + std::string(blend_words(f.blend));
     s += note(f.f_low_hz) + " + " + note(f.f_high_hz) + "  " + dt.interval(f);
     if (const std::string name = dt.name(f); !name.empty()) s += " " + name;
     s += "  " + signed_num(f.dev_cents, 1) + " c " +
@@ -237,6 +270,7 @@ std::string text_line(const pitch::TwoVoiceFrame& f, const DuoText& dt, double a
             s += " (from the partials: " + pitch::format_trimmed(std::round(f.measured_beat_hz * 10.0) / 10.0, 1) +
                  " Hz)";
     }
+    if (const std::string m = move_words(dt.advice(f)); !m.empty()) s += "  " + m;
     return s;
 }
 
@@ -254,8 +288,11 @@ void check_options(const ListenOptions& o) {
     if (!(o.hop_ms >= 1.0 && o.hop_ms <= 50.0))
         throw Error("--hop-ms " + pitch::format_trimmed(o.hop_ms, 2) + ": out of range (1 to 50)");
     if (o.voices != 1 && o.voices != 2) throw Error("--voices " + std::to_string(o.voices) + ": 1 or 2");
-    if (o.voices == 2 && o.demo)
-        throw UsageError("--voices 2 works with --input-file or --input (the demo performer sings one voice)");
+    if (o.octaves != "equivalent" && o.octaves != "exact")
+        throw Error("--octaves " + o.octaves + ": equivalent or exact");
+    if (o.octaves != "equivalent" && o.voices != 2) throw UsageError("--octaves works with --voices 2");
+    if (!(o.in_tune_cents >= 0.0 && o.in_tune_cents <= 25.0))
+        throw Error("--in-tune " + pitch::format_trimmed(o.in_tune_cents, 2) + ": out of range (0 to 25 cents)");
     if (o.rate_hz != 0.0 && !(o.rate_hz >= 8000.0 && o.rate_hz <= 192000.0))
         throw Error("--rate " + pitch::format_trimmed(o.rate_hz, 1) + ": out of range (8000 to 192000 Hz)");
 }
@@ -269,6 +306,30 @@ pitch::TargetSet chosen_targets(const ListenOptions& o) {
     if (const std::string* n = interval_names().find(t.interval)) t.name = *n;
     s.targets.push_back(std::move(t));
     return s;
+}
+
+// Where --record writes: FILE.flac as given, or a new date-and-time name in a folder (default <data>/takes/).
+std::filesystem::path take_target(const ListenOptions& o) {
+    namespace fs = std::filesystem;
+    std::error_code ec;
+    if (!o.record_to.empty() && !fs::is_directory(o.record_to, ec)) {
+        const fs::path p(o.record_to);
+        if (p.extension() != ".flac")
+            throw Error("--record " + pitch::quote(o.record_to) + ": a take is written as FLAC; name it .flac");
+        if (fs::exists(p, ec)) throw Error(o.record_to + ": already exists; a take never replaces a file");
+        check_output_path(p);
+        return p;
+    }
+    const fs::path dir = o.record_to.empty() ? takes_dir() : fs::path(o.record_to);
+    ensure_dir(dir);
+    for (const RecoveredTake& r : recover_takes(dir)) {
+        if (r.problem.empty())
+            std::fprintf(stderr, "beatless: recovered a take cut short: %s (%s s)\n", r.audio_path.c_str(),
+                         pitch::format_trimmed(r.duration_s, 1).c_str());
+        else
+            std::fprintf(stderr, "beatless: %s\n", r.problem.c_str());
+    }
+    return free_take_path(dir, std::time(nullptr));
 }
 
 std::string stream_text(const char* dir, const std::string& name, const audio::StreamInfo& s, double latency_s) {
@@ -308,7 +369,14 @@ int run_live(const ListenOptions& o, Printing printing) {
 
     std::string what, input_why, output_why;
     int input_index = -1;
-    if (o.demo) {
+    double file_rate_hz = 0.0;
+    if (o.demo && o.voices == 2) {
+        audio::DemoDuoConfig vc;  // the demo violinist's double stops over the root
+        vc.root_hz = root_hz;
+        vc.seed = o.seed;
+        engine.use_demo(vc);
+        what = "the demo violinist";
+    } else if (o.demo) {
         audio::DemoConfig dc;
         dc.root_hz = root_hz;
         dc.seed = o.seed;
@@ -316,7 +384,7 @@ int run_live(const ListenOptions& o, Printing printing) {
         engine.use_demo(dc);
         what = "the demo performer";
     } else if (!o.input_file.empty()) {
-        engine.use_file(o.input_file);
+        file_rate_hz = engine.use_file(o.input_file);
         engine.set_input_has_drone(o.drone);
         what = "'" + o.input_file + "'";
     } else {
@@ -343,12 +411,31 @@ int run_live(const ListenOptions& o, Printing printing) {
     rc.audible.partials_a = audio::timbre_highest_partial(timbre);
     if (o.voices == 2) {
         pitch::TwoVoiceConfig tc;  // a 10 ms hop: each frame analyses a 170 ms window
+        tc.octave_equivalent = o.octaves == "equivalent";
         engine.set_two_voices(tc, targets);
     } else {
         engine.set_readings(rc, targets);
     }
     engine.set_drone(ds);
     if (o.drone && (play_drone || o.demo)) hearing_caution_once();
+
+    // A file or the demo knows its rate now: the take starts with the first sample. A device's is known at start().
+    std::unique_ptr<TakeRecording> take;
+    const std::filesystem::path take_path = o.record ? take_target(o) : std::filesystem::path();
+    TakeContext take_context;
+    take_context.device = o.demo ? "the demo performer" : !o.input_file.empty() ? "file " + o.input_file : "";
+    take_context.root = o.root;
+    take_context.a4_hz = o.a4_hz;
+    take_context.targets = o.target.empty() ? o.targets : "";
+    take_context.target = o.target;
+    auto start_take = [&](double rate_hz) {
+        take = std::make_unique<TakeRecording>(engine, take_path, take_context, rate_hz, 1);
+        std::fprintf(stderr, "beatless: recording to %s\n", take_path.c_str());
+    };
+    auto end_take = [&] {
+        if (take) std::fprintf(stderr, "beatless: %s\n", take->stop().c_str());
+    };
+    if (o.record && !device_input) start_take(o.demo ? audio::DemoConfig{}.sample_rate_hz : file_rate_hz);
 
     std::unique_ptr<MidiSession> midi;
     if (!o.midi_out.empty() || !o.midi_in.empty()) {
@@ -397,6 +484,7 @@ int run_live(const ListenOptions& o, Printing printing) {
     dt.set = &targets;
     dt.root_hz = root_hz;
     dt.judge_root = o.drone;
+    dt.in_tune_cents = o.in_tune_cents;
     auto emit_duo = [&](const pitch::TwoVoiceFrame& f) {
         if (o.seconds > 0.0 && f.t_s > o.seconds) return;
         if (printing == Printing::json) {
@@ -432,6 +520,10 @@ int run_live(const ListenOptions& o, Printing printing) {
         std::signal(SIGINT, on_sigint);
         std::signal(SIGTERM, on_sigint);
         engine.start();
+        if (o.record && device_input) {
+            take_context.device = engine.input_name();
+            start_take(engine.sample_rate_hz());
+        }
         std::fprintf(stderr, "beatless: listening to %s at %s Hz; root %s, targets %s%s\n", what.c_str(),
                      pitch::format_trimmed(engine.sample_rate_hz(), 0).c_str(), root_echo(o.root, root_hz).c_str(),
                      targets.id.c_str(),
@@ -457,6 +549,10 @@ int run_live(const ListenOptions& o, Printing printing) {
             std::fflush(stdout);
             engine.supervise();
             poll_midi();
+            if (take && take->stopped_early()) {
+                end_take();
+                take.reset();
+            }
             if (o.seconds > 0.0 && engine.stream_time_s() >= o.seconds + 0.1) break;
             if (o.seconds > 0.0 && device_input &&
                 std::chrono::duration<double>(std::chrono::steady_clock::now() - started).count() >=
@@ -476,6 +572,7 @@ int run_live(const ListenOptions& o, Printing printing) {
         std::signal(SIGINT, SIG_DFL);
         std::signal(SIGTERM, SIG_DFL);
     }
+    end_take();
     std::fflush(stdout);
     const audio::EngineStatus st = engine.status();
     std::fprintf(
@@ -524,6 +621,16 @@ void register_listen(CLI::App& app, Runner& run) {
     sub->add_option("--lowest", o->lowest, kLowestHelp);
     sub->add_option("--voices", o->voices,
                     "2: two voices in one input (a double stop, a duet): both pitches, the interval, its beat");
+    CLI::Option* record =
+        sub->add_option("--record", o->record_to,
+                        "Record the input as a take: FILE.flac (a .toml with its context beside it), or into a folder; "
+                        "alone: the data folder's takes/, named by date and time")
+            ->expected(0, 1);
+    sub->add_option("--octaves", o->octaves,
+                    "With --voices 2: 'equivalent' matches the interval to a target in any octave (default), "
+                    "'exact' only in the octave the set lists it");
+    sub->add_option("--in-tune", o->in_tune_cents,
+                    "With --voices 2: a deviation this small (cents) needs no move (default 5)");
     sub->add_option(
         "--midi-out", o->midi_out,
         "Play the drone (and a fixed --target) on this MIDI port, retuned exactly: number, name or part of it "
@@ -535,7 +642,10 @@ void register_listen(CLI::App& app, Runner& run) {
                     "Pitch-bend range in semitones for --midi-tuning bend (1-24, default 2)");
     sub->add_option("--midi-in", o->midi_in,
                     "A MIDI keyboard: a key sets the root; a key held with the root's key, the target");
-    sub->callback([o, &run] { run = [o] { return run_live(*o, Printing::json); }; });
+    sub->callback([o, &run, record] {
+        o->record = record->count() > 0;
+        run = [o] { return run_live(*o, Printing::json); };
+    });
 }
 
 }  // namespace beatless::ui

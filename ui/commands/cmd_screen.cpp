@@ -18,6 +18,7 @@
 // caution was acknowledged unless --first-run is given.
 #include "pitch/base/error.h"
 #include "pitch/base/text.h"
+#include "pitch/measure/duo_advice.h"
 #include "pitch/theory/notes.h"
 #include "pitch/theory/spelling.h"
 #include "ui/commands/commands.h"
@@ -37,6 +38,7 @@
 #include "ui/session/safe_file.h"
 #include "ui/session/target_files.h"
 #include "ui/session/usage_error.h"
+#include "ui/session/wording.h"
 
 #include <algorithm>
 #include <cmath>
@@ -98,10 +100,20 @@ void check_common(const ScreenCommand& c) {
         throw Error("--hold " + pitch::format_trimmed(*c.hold_dev_cents, 2) + ": out of range (-600 to 600 cents)");
     if (c.hold_dev_cents && !c.demo) throw UsageError("--hold works with --demo only");
     if (c.demo && !c.input_device.empty()) throw UsageError("--demo and --input contradict each other; give one");
+    if (c.voices != 1 && c.voices != 2) throw Error("--voices " + std::to_string(c.voices) + ": 1 or 2");
+    if (c.voices == 2 && c.hold_dev_cents) throw UsageError("--hold works with one voice (the demo performer)");
     // Files named on the command line are checked before any window: a bad one stops the run (exit 1).
     if (!c.root.empty()) (void)pitch::parse_root(c.root, c.a4_hz.value_or(pitch::kDefaultA4Hz));
     if (!c.target_set.empty()) (void)load_target_set(c.target_set);
     if (!c.drill.empty()) (void)load_drill(c.drill);
+    if (!c.take.empty()) {
+        std::error_code ec;
+        if (!std::filesystem::is_regular_file(c.take, ec)) throw Error(c.take + ": no such file");
+    }
+    if (c.review_note && *c.review_note < 1)
+        throw Error("--note " + std::to_string(*c.review_note) + ": notes are numbered from 1");
+    if (c.review_span_s && !(*c.review_span_s >= 0.5 && *c.review_span_s <= 36000.0))
+        throw Error("--span " + pitch::format_trimmed(*c.review_span_s, 3) + ": out of range (0.5 to 36000 s)");
 }
 
 AppOptions options_of(const ScreenCommand& c) {
@@ -120,11 +132,45 @@ AppOptions options_of(const ScreenCommand& c) {
     o.drill = c.drill;
     o.listener = c.listener;
     o.log_file = c.log_file;
+    o.record = c.record;
+    o.take = c.take;
+    o.review_note = c.review_note;
+    o.review_span_s = c.review_span_s;
+    o.voices = c.voices;
     return o;
+}
+
+// Two voices: the interval's verdict, both pitches, the beat (measured and predicted) and who should move.
+std::string duo_verdict_json(const AppState& app) {
+    const DuoVerdict& v = app.duo();
+    static constexpr const char* kStates[] = {"idle", "live", "silent", "one_series", "uncertain"};
+    JsonWriter j;
+    j.begin_object();
+    j.key("state").value(kStates[static_cast<int>(v.state)]);
+    if (v.state == DuoState::one_series) j.key("blend").value(std::string(blend_key(v.blend)));
+    if (v.known()) {
+        const pitch::TwoVoiceFrame& f = v.pair;
+        pitch::Reading r;
+        r.target_index = f.target_index;
+        r.target_octaves = f.target_octaves;
+        j.key("voices").begin_array().value(f.f_low_hz, 4).value(f.f_high_hz, 4).end_array();
+        j.key("target").value(app.target_ratio_text(r));
+        j.key("dev_cents").value(f.dev_cents, 3);
+        j.key("word").value(interval_word(f.dev_cents, app.settings().in_tune_cents));
+        j.key("beat_hz").value(f.predicted_beat_hz, 3);
+        j.key("measured_beat_hz").value(f.measured_beat_hz, 3);
+        j.key("cue_beat_hz").value(v.beat_hz(), 3);
+        const pitch::DuoAdvice a = pitch::advise_duo(f, app.targets(), app.drone_sounding() ? app.root_hz() : 0.0,
+                                                     app.settings().in_tune_cents);
+        j.key("move").value(move_words(a));
+    }
+    j.end_object();
+    return j.str();
 }
 
 // The model the screen drew from, for tests and scripts: the one verdict.
 std::string verdict_json(const AppState& app) {
+    if (app.two_voices()) return duo_verdict_json(app);
     const Verdict& v = app.verdict();
     static constexpr const char* kStates[] = {"idle", "live", "silent", "uncertain", "unpitched"};
     JsonWriter j;
@@ -160,6 +206,9 @@ void add_screen_options(CLI::App& app, ScreenCommand& c) {
     app.add_option("--hold", c.hold_dev_cents,
                    "With --demo: the performer holds the chosen target this many cents off (no vibrato)");
     app.add_option("--seed", c.seed, "Demo performer seed (default 7)");
+    app.add_option("--voices", c.voices,
+                   "2: two voices in one input (double stops, a duet) on the Practice screen (V toggles); with "
+                   "--demo the demo violinist plays double stops");
     app.add_option("--root", c.root, "Drone root as a note (A2) or in Hz (110); default from the settings (A2)");
     app.add_option("--a4", c.a4_hz, "A4 reference in Hz (400-480); default from the settings (440)");
     app.add_option("--lowest", c.lowest,
@@ -168,6 +217,7 @@ void add_screen_options(CLI::App& app, ScreenCommand& c) {
     app.add_option("--targets", c.target_set, "Target set: a built-in name (7-limit, tritones, ...) or a .toml file");
     app.add_option("--target", c.target, "Fix this target (7/5, 600c, ...); it joins the set when it is not in it");
     app.add_option("--screen", c.screen, "Screen to show: " + built_screen_keys());
+    app.add_option("--take", c.take, "The Review screen opens this sound file (default: the newest take)");
     app.add_option("--drill", c.drill,
                    "Choose and start this drill on the Drills screen (a built-in name or a .toml file)");
     app.add_option(
@@ -175,6 +225,8 @@ void add_screen_options(CLI::App& app, ScreenCommand& c) {
         "Ear drills on the Drills screen: a simulated listener answers: perfect, guess, or its threshold in cents");
     app.add_option("--log", c.log_file,
                    "Practice log file (default: the data folder's; a snapshot writes none unless given)");
+    app.add_flag("--record", c.record,
+                 "Record a take from the start into the data folder's takes/ (R starts and stops one on the screens)");
 }
 
 void add_window_midi_options(CLI::App& app, ScreenCommand& c) {
@@ -256,6 +308,8 @@ void register_snapshot(CLI::App& app, Runner& run) {
         "snapshot", "Render a screen in simulated time without a window and write the last frame as PNG");
     add_screen_options(*sub, o->c);
     sub->add_option("--seconds", o->seconds, "Simulated time before the picture is taken (default 4)");
+    sub->add_option("--note", o->c.review_note, "Review screen: select this note of the take (from 1)");
+    sub->add_option("--span", o->c.review_span_s, "Review screen: show this many seconds around the selected note");
     sub->add_option("--size", o->size, "Picture size in pixels, WIDTHxHEIGHT (default 1280x800)");
     sub->add_option("--scale", o->scale, "DPI scale: 2 for a high-density screen (default 1)");
     sub->add_option("--fps", o->fps, "Frames per simulated second (default 60)");

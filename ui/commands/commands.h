@@ -31,6 +31,7 @@ struct ScreenCommand {
     bool demo = false;                     // the demo performer replaces the microphone
     std::optional<double> hold_dev_cents;  // --hold: the demo holds the chosen target this far off
     std::uint64_t seed = 7;                // demo performer seed
+    int voices = 1;                        // 2: two voices in one input (double stops; --demo: the violinist)
     std::string input_device;              // --input (default: the settings' or the system's)
     std::string output_device;             // --output
     std::string root;                      // --root (default: the settings')
@@ -43,9 +44,13 @@ struct ScreenCommand {
     std::string drill;                     // --drill: choose and start this drill on the Drills screen
     std::string listener;                 // --listener: a simulated listener answers ear drills (perfect, guess, cents)
     std::string log_file;                 // --log: the practice log file (snapshot: none unless given)
+    bool record = false;                  // --record: record a take into the data folder's takes/ from the start
     std::optional<std::string> midi_out;  // --midi-out (window only): replaces the settings' MIDI port for this run
     std::optional<std::string> midi_tuning;  // --midi-tuning: mts or bend
     std::optional<std::string> midi_in;      // --midi-in: a keyboard that sets the root
+    std::string take;                        // --take: the Review screen opens this sound file
+    std::optional<int> review_note;          // snapshot --note: the Review screen selects this note (from 1)
+    std::optional<double> review_span_s;     // snapshot --span: ... and shows this many seconds around it
 };
 void add_screen_options(CLI::App& app, ScreenCommand& c);
 void add_window_midi_options(CLI::App& app, ScreenCommand& c);  // the window's --midi-out, --midi-tuning, --midi-in

@@ -42,11 +42,12 @@ void draw_lane(ImDrawList* dl, float x0, float y0, float w, float band_h, const 
     const double pinned_side = out ? vd->dev_cents : 0.0;
     if (!(pinned_side < 0.0))
         draw_text(dl, FontFace::body, ImVec2(lx0 + std::round(0.4f * u), by0 + std::round(0.2f * u)), palette::kTextDim,
-                  "flat");
+                  v.low_word);
     if (!(pinned_side > 0.0))
-        draw_text(dl, FontFace::body,
-                  ImVec2(lx1 - std::round(0.4f * u) - text_size(FontFace::body, "sharp").x, by0 + std::round(0.2f * u)),
-                  palette::kTextDim, "sharp");
+        draw_text(
+            dl, FontFace::body,
+            ImVec2(lx1 - std::round(0.4f * u) - text_size(FontFace::body, v.high_word).x, by0 + std::round(0.2f * u)),
+            palette::kTextDim, v.high_word);
 
     if (!vd) return;
     const bool current = vd->current();

@@ -21,6 +21,8 @@ struct LaneView {
     const Verdict* verdict = nullptr;   // what the marker shows; null or idle: the lane alone
     const TraceStore* trail = nullptr;  // readings for the trail (newest last); null: none
     bool show_now = true;               // the "now" tick below the labels (needs about 2.5 body units)
+    const char* low_word = "flat";      // the ends in words ("narrow" / "wide" for an interval)
+    const char* high_word = "sharp";
 };
 
 // Draws the lane with its band's top-left at (x0, y0); the marker's head

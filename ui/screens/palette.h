@@ -48,6 +48,7 @@ inline constexpr std::uint32_t kLevelOk = rgba(190, 196, 206);      // input lev
 inline constexpr std::uint32_t kWarning = kVermillion;              // + a word: overflows, lost devices, caution border
 inline constexpr std::uint32_t kAccent = kBlue;                     // active tab, pressed buttons
 inline constexpr std::uint32_t kDroneOn = kBluishGreen;             // + "Drone on" and a filled square
+inline constexpr std::uint32_t kRecording = kVermillion;            // + a filled dot, "REC", the time and the take
 
 // The same colour with another alpha (0..255).
 constexpr std::uint32_t with_alpha(std::uint32_t c, unsigned a) { return (c & 0x00FFFFFFu) | (a << 24); }

@@ -11,6 +11,7 @@
 
 #include "ui/render/imgui_host.h"
 #include "ui/screens/palette.h"
+#include "ui/screens/screen_review.h"
 #include "ui/screens/widgets.h"
 
 #define GLFW_INCLUDE_NONE
@@ -32,6 +33,7 @@ std::vector<std::unique_ptr<Screen>> make_screens() {
     s.push_back(make_practice_screen());
     s.push_back(make_drills_screen());
     s.push_back(make_ensemble_screen());
+    s.push_back(make_review_screen());
     s.push_back(make_settings_screen());
     return s;
 }
@@ -99,6 +101,9 @@ constexpr const char* kCautionText =
     "The drone is a sustained tone. Keep the level low, especially on headphones, and take breaks. "
     "The drone starts quietly and its peaks are limited to -6 dBFS, but your volume control comes after that.";
 
+// The screens that record a take (R, and the Record button in the status bar).
+bool records(ScreenId id) { return id == ScreenId::practice || id == ScreenId::drills || id == ScreenId::ensemble; }
+
 constexpr KeyHelp kGlobalKeys[] = {
     {"Space", "start or stop the drone"},
     {"\xE2\x86\x92 / \xE2\x86\x90", "next / previous target (fixes the target)"},
@@ -106,7 +111,8 @@ constexpr KeyHelp kGlobalKeys[] = {
     {"\xE2\x86\x91 / \xE2\x86\x93", "root up / down a semitone"},
     {"] / [", "drone level up / down 1 dB"},
     {"F", "drone fifth on / off"},
-    {"R", "sound the reference: the target, once"},
+    {"R", "record a take / stop (Practice, Drills, Ensemble)"},
+    {"T", "sound the reference: the target, once"},
     {"Tab", "next screen"},
     {"H or F1", "this help"},
     {"Esc", "close the help; back to Practice"},
@@ -191,7 +197,9 @@ void ScreenDeck::handle_keys() {
     if (pressed(GLFW_KEY_RIGHT_BRACKET, true)) app_.set_drone_level(app_.settings().level_dbfs + 1.0);
     if (pressed(GLFW_KEY_LEFT_BRACKET, true)) app_.set_drone_level(app_.settings().level_dbfs - 1.0);
     if (pressed(GLFW_KEY_F)) app_.set_fifth(!app_.settings().fifth);
-    if (pressed(GLFW_KEY_R)) app_.sound_reference();
+    if (pressed(GLFW_KEY_T)) app_.sound_reference();
+    if (pressed(GLFW_KEY_R) && records(screens_[current_]->id())) app_.toggle_recording();
+    if (pressed(GLFW_KEY_V)) app_.set_two_voices(!app_.two_voices());  // the Practice screen's two-voice view
 }
 
 // ---------------------------------------------------------------------------
@@ -349,8 +357,52 @@ void ScreenDeck::status_bar(const ImVec2& pos, float width, float height) {
     else
         std::snprintf(buf, sizeof buf, "latency \xE2\x80\x93");
     put(FontFace::body, palette::kTextDim, buf);
+    if (records(screens_[current_]->id()) || app_.recording())
+        record_control(pos, width, height, x - std::round(1.0f * u));
     ImGui::End();
     ImGui::PopStyleColor();
+}
+
+// Right end of the status bar: while a take records, a red dot, REC, its time and name (without its date, or
+// without it at all, when the bar has no room left of free_x); the Record / Stop button.
+void ScreenDeck::record_control(const ImVec2& pos, float width, float height, float free_x) {
+    const float u = ui_unit();
+    ImDrawList* dl = ImGui::GetWindowDrawList();
+    const bool on = app_.recording();
+    const float bw = std::round(text_size(FontFace::body, "Record").x + 1.4f * u), bh = ImGui::GetFrameHeight();
+    const float bx = pos.x + width - std::round(0.8f * u) - bw;
+    ImGui::SetCursorScreenPos(ImVec2(bx, std::round(pos.y + 0.5f * (height - bh))));
+    ImGui::PushStyleColor(ImGuiCol_Button, v4(on ? palette::kRecording : palette::kPanelRaised));
+    if (ImGui::Button(on ? "Stop##take" : "Record##take", ImVec2(bw, bh))) app_.toggle_recording();
+    ImGui::PopStyleColor();
+    if (!on) return;
+    const int secs = static_cast<int>(app_.recording_s());
+    char t[32];
+    std::snprintf(t, sizeof t, "%d:%02d", secs / 60, secs % 60);
+    // What fits left of the button, most first: REC and the full name; REC and the name without its date; the
+    // name without its date alone (the red dot and the red Stop button still say it records); the time alone.
+    std::string name = app_.recording_name();  // "2026-12-03_161502" or "2026-12-03_161502-2"
+    const std::string short_name =
+        name.find('_') != std::string::npos ? "\xE2\x80\xA6" + name.substr(name.find('_')) : name;
+    const float time_w = std::round(1.1f * u) + text_size(FontFace::mono, t).x + std::round(0.8f * u);
+    const float rec_w = text_size(FontFace::bold, "REC").x + std::round(0.5f * u);
+    const auto fits = [&](const std::string& n, bool rec) {
+        return bx - time_w - (rec ? rec_w : 0.0f) - std::round(0.6f * u) - text_size(FontFace::body, n).x >= free_x;
+    };
+    bool rec = true;
+    if (!fits(name, true)) name = short_name;
+    if (!fits(name, true)) rec = false;
+    if (!fits(name, false)) name.clear(), rec = true;
+    const float ty = std::round(pos.y + 0.5f * (height - u));
+    float x = bx - std::round(0.8f * u) - text_size(FontFace::body, name).x;
+    draw_text(dl, FontFace::body, ImVec2(x, ty), palette::kTextDim, name);
+    x -= (name.empty() ? 0.0f : std::round(0.6f * u)) + text_size(FontFace::mono, t).x;
+    draw_text(dl, FontFace::mono, ImVec2(x, ty), palette::kText, t);
+    if (rec) {
+        x -= rec_w;
+        draw_text(dl, FontFace::bold, ImVec2(x, ty), palette::kRecording, "REC");
+    }
+    dl->AddCircleFilled(ImVec2(x - 0.6f * u, ty + 0.5f * u), 0.32f * u, palette::kRecording, 16);
 }
 
 float ScreenDeck::messages_height() const {
@@ -389,13 +441,18 @@ void ScreenDeck::help_overlay() {
     const ImVec2 disp = ImGui::GetIO().DisplaySize;
     const float u = ui_unit();
     const std::span<const KeyHelp> own = screens_[current_]->keys();
-    const std::size_t rows = std::size(kGlobalKeys) + own.size() + (own.empty() ? 0 : 1);
     const float row_h = std::round(1.45f * u);
     const float key_w = std::round(7.5f * u);
     float text_w = 0.0f;
     for (const KeyHelp& k : kGlobalKeys) text_w = std::max(text_w, text_size(FontFace::body, k.what).x);
     for (const KeyHelp& k : own) text_w = std::max(text_w, text_size(FontFace::body, k.what).x);
     const float w = std::min(disp.x - 2.0f * u, key_w + text_w + std::round(2.5f * u));
+    // A description wider than the window goes on to more lines, under itself.
+    const float what_w = w - key_w - std::round(2.0f * u);
+    std::size_t lines = 0;
+    for (const KeyHelp& k : kGlobalKeys) lines += std::max<std::size_t>(1, wrap_lines(FontFace::body, k.what, what_w).size());
+    for (const KeyHelp& k : own) lines += std::max<std::size_t>(1, wrap_lines(FontFace::body, k.what, what_w).size());
+    const std::size_t rows = lines + (own.empty() ? 0 : 1);
     const float h = std::min(disp.y - 2.0f * u, row_h * static_cast<float>(rows) + std::round(5.0f * u));
     ImGui::SetNextWindowPos(ImVec2(std::round(0.5f * (disp.x - w)), std::round(0.5f * (disp.y - h))));
     ImGui::SetNextWindowSize(ImVec2(w, h));
@@ -409,7 +466,11 @@ void ScreenDeck::help_overlay() {
     float y = p.y + std::round(0.9f * u) + font_px(FontFace::medium) + std::round(0.4f * u);
     auto row = [&](const KeyHelp& k) {
         draw_text(dl, FontFace::bold, ImVec2(p.x + u, y), palette::kYellow, k.keys);
-        draw_text(dl, FontFace::body, ImVec2(p.x + u + key_w, y), palette::kText, k.what);
+        const std::vector<std::string> what = wrap_lines(FontFace::body, k.what, what_w);
+        for (std::size_t i = 0; i < what.size(); ++i) {
+            draw_text(dl, FontFace::body, ImVec2(p.x + u + key_w, y), palette::kText, what[i]);
+            if (i + 1 < what.size()) y += std::round(0.85f * row_h);
+        }
         y += row_h;
     };
     for (const KeyHelp& k : kGlobalKeys) row(k);

@@ -98,6 +98,7 @@ private:
     void tab_bar(float height);
     void caution_banner(const ImVec2& pos, float width, float& height_out);
     void status_bar(const ImVec2& pos, float width, float height);
+    void record_control(const ImVec2& pos, float width, float height, float free_x);
     void messages(const ImVec2& bottom_left, float width);
     float messages_height() const;  // rows the messages take above the status bar (0 without any)
     void help_overlay();

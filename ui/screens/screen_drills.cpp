@@ -103,6 +103,8 @@ private:
     bool loaded_ = false;
     std::vector<Drill> drills_;
     std::size_t selected_ = 0;
+    std::size_t list_first_ = 0;                               // first drill shown when the list needs scrolling
+    std::size_t list_follows_ = static_cast<std::size_t>(-1);  // the choice the list last scrolled to
     std::unique_ptr<LogWriter> writer_;
     std::string log_path_;
     std::unique_ptr<DrillRunner> runner_;
@@ -395,9 +397,13 @@ void DrillsScreen::hold_now(AppState& app, ImDrawList* dl, float x0, float y0, f
     draw_text(dl, FontFace::large, ImVec2(x0 + u, y), palette::kText, ratio);
     const float nx = x0 + u + text_size(FontFace::large, ratio).x + std::round(0.9f * u);
     const float count_w = text_size(FontFace::large, "0.0 s").x + std::round(1.5f * u);
-    draw_text(dl, FontFace::medium, ImVec2(nx, y + std::round(0.08f * font_px(FontFace::large))), palette::kText,
-              fit_text(FontFace::medium, t->target.name.empty() ? std::string("target") : t->target.name,
-                       x0 + w - u - count_w - nx));
+    {  // the target's name: a smaller face before any word is cut
+        const std::string name = t->target.name.empty() ? std::string("target") : t->target.name;
+        const float name_w = x0 + w - u - count_w - nx;
+        const FontFace face = text_size(FontFace::medium, name).x <= name_w ? FontFace::medium : FontFace::bold;
+        draw_text(dl, face, ImVec2(nx, y + std::round(0.08f * font_px(FontFace::large))), palette::kText,
+                  fit_text(face, name, name_w));
+    }
     const char* what = "";
     switch (ph) {
         case DrillPhase::ready: what = "listen to the drone"; break;
@@ -906,8 +912,38 @@ void DrillsScreen::left_column(AppState& app, ImDrawList* dl, float x0, float y0
     const bool running = runner_ && runner_->running();
     const float entry_h = std::round(2.4f * u);
     const float buttons_h = ImGui::GetFrameHeight() + std::round(1.0f * u);
-    for (std::size_t i = 0; i < drills_.size(); ++i) {
-        if (y + entry_h > y0 + h - buttons_h) break;
+    // More drills than rows: the list scrolls (mouse wheel over it; Page Up/Down choose) and always shows the
+    // chosen drill, which is the one running while a drill runs.
+    const float list_top = y, list_bottom = y0 + h - buttons_h;
+    const std::size_t rows =
+        std::max<std::size_t>(1, static_cast<std::size_t>(std::max(0.0f, (list_bottom - list_top) / entry_h)));
+    const std::size_t n = drills_.size();
+    const std::size_t last_first = n > rows ? n - rows : 0;
+    if (selected_ != list_follows_) {
+        if (selected_ < list_first_) list_first_ = selected_;
+        if (selected_ >= list_first_ + rows) list_first_ = selected_ + 1 - rows;
+        list_follows_ = selected_;
+    }
+    if (n > rows && ImGui::IsMouseHoveringRect(ImVec2(x0, list_top), ImVec2(x0 + w, list_bottom))) {
+        const float wheel = ImGui::GetIO().MouseWheel;
+        if (wheel > 0.0f && list_first_ > 0) --list_first_;
+        if (wheel < 0.0f) ++list_first_;
+    }
+    list_first_ = std::min(list_first_, last_first);
+    if (n > rows) {  // a slim bar: where the rows shown sit in the whole list
+        const float bx = x0 + w - std::round(0.35f * u), bw = std::max(2.0f, std::round(0.15f * u));
+        const float track_h = static_cast<float>(rows) * entry_h - 2.0f;
+        const float thumb_y = list_top + track_h * static_cast<float>(list_first_) / static_cast<float>(n);
+        const float thumb_h = track_h * static_cast<float>(rows) / static_cast<float>(n);
+        dl->AddRectFilled(ImVec2(bx, list_top), ImVec2(bx + bw, list_top + track_h), palette::kPanelRaised);
+        dl->AddRectFilled(ImVec2(bx, thumb_y), ImVec2(bx + bw, thumb_y + thumb_h), palette::kTextFaint);
+        char count[48];
+        std::snprintf(count, sizeof count, "%zu-%zu of %zu", list_first_ + 1, list_first_ + rows, n);
+        const float cw = text_size(FontFace::body, count).x;
+        draw_text(dl, FontFace::body, ImVec2(x0 + w - u - cw, list_top - std::round(1.3f * u)), palette::kTextFaint,
+                  count);
+    }
+    for (std::size_t i = list_first_; i < n && i < list_first_ + rows; ++i) {
         const Drill& d = drills_[i];
         const bool sel = i == selected_;
         if (sel) {

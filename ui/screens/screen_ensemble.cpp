@@ -134,25 +134,12 @@ void EnsembleScreen::put(ImDrawList* dl, FontFace face, ImVec2 pos, std::uint32_
 // Words wrapped to max_w pixels, one line under another; returns the y under the last line.
 float EnsembleScreen::put_wrapped(ImDrawList* dl, FontFace face, ImVec2 pos, std::uint32_t colour,
                                   std::string_view text, float max_w, const ViewBox& panel) {
-    std::string line;
     float y = pos.y;
-    const float step = font_px(face) + 1.0f;
-    auto flush = [&] {
-        if (line.empty() || y + font_px(face) > panel.y1) return;  // no line half under the panel's edge
-        put(dl, face, ImVec2(pos.x, y), colour, fit_text(face, line, max_w), panel);
-        y += step;
-        line.clear();
-    };
-    pitch::for_each_part(text, ' ', [&](std::string_view word) {
-        if (word.empty()) return;
-        std::string joined = line.empty() ? std::string(word) : line + " " + std::string(word);
-        if (!line.empty() && text_size(face, joined).x > max_w) {
-            flush();
-            joined = std::string(word);
-        }
-        line = std::move(joined);
-    });
-    flush();
+    for (const std::string& line : wrap_lines(face, text, max_w)) {
+        if (y + font_px(face) > panel.y1) break;  // no line half under the panel's edge
+        put(dl, face, ImVec2(pos.x, y), colour, line, panel);
+        y += font_px(face) + 1.0f;
+    }
     return y;
 }
 

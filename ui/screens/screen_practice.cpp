@@ -26,6 +26,7 @@
 #include "ui/screens/beat_view.h"
 #include "ui/screens/lane.h"
 #include "ui/screens/palette.h"
+#include "ui/screens/practice_duo.h"
 #include "ui/screens/screen.h"
 #include "ui/screens/widgets.h"
 #include "ui/session/target_files.h"
@@ -65,6 +66,7 @@ constexpr KeyHelp kPracticeKeys[] = {
     {"Small triangle", "below the lane: your pitch now, while the marker shows the centre"},
     {"Envelope", "right: the beat of the two partials that meet; wider lobes, slower beats"},
     {"Yellow line", "in the trace: the current target"},
+    {"V", "two voices (a double stop, a duet): the interval is the verdict, the beat the measured one"},
 };
 
 // The verdict's note, spelled over the root as typed (7/4 over C is Bb);
@@ -110,6 +112,7 @@ private:
     void controls(AppState& app);
 
     std::vector<ImVec2> points_;  // trace polyline scratch, sized once
+    DuoScratch duo_;              // the two-voice view's scratch
     std::vector<double> range_;   // the trace's recent pitches, for its range; reserved once
     struct Label {
         float y;  // the line's row
@@ -167,24 +170,10 @@ void PracticeScreen::header(AppState& app, ImDrawList* dl, float x0, float y0, f
         return;
     }
     const Tuning t = tuning_of(v.dev_cents, app.settings().in_tune_cents);
-    const std::uint32_t col = live ? tuning_colour(t) : palette::kTextDim;
     const std::string word = live ? std::string(tuning_word(t)) : std::string(quiet_word(v));
     const std::string num = (live ? "" : "last ") + signed_text(v.dev_cents, 0);
     const std::string unit = live ? std::string("cents, ") + source_text(v) : std::string("cents");
-    const float word_w = std::max(text_size(FontFace::medium, word).x, text_size(FontFace::body, unit).x);
-    const float shape_r = std::round(0.42f * medium);
-    const float word_x = right - word_w;
-    draw_text(dl, FontFace::medium, ImVec2(word_x, ny), col, word);
-    draw_text(dl, FontFace::body, ImVec2(word_x, ny + medium + std::round(0.25f * u)), palette::kTextDim, unit);
-    float num_right = word_x - std::round(0.6f * u);
-    if (live) {
-        const float shape_x = word_x - std::round(0.7f * u) - shape_r;
-        draw_tuning_shape(dl, t, ImVec2(shape_x, ny + 0.55f * medium), shape_r, col);
-        num_right = shape_x - shape_r - std::round(0.6f * u);
-    }
-    const FontFace nf = live ? FontFace::large : FontFace::medium;
-    const float num_y = live ? ty : ny;
-    draw_text(dl, nf, ImVec2(num_right - text_size(nf, num).x, num_y), col, num);
+    draw_verdict_readout(dl, right, ty, ny, t, live, word, num, unit);
 }
 
 // ---------------------------------------------------------------------------
@@ -554,6 +543,11 @@ void PracticeScreen::controls(AppState& app) {
                 continue;  // drill material, not practice sets
             if (ImGui::Selectable(name.c_str(), name == s.target_set)) app.set_target_set(name);
         }
+        // A chord is a target set too: its voices over the lowest.
+        ImGui::Separator();
+        ImGui::TextColored(v4(palette::kTextFaint), "chords (the voices over the lowest)");
+        for (const std::string& name : builtin_names("chord"))
+            if (ImGui::Selectable(name.c_str(), name == s.target_set)) app.set_target_set(name);
         ImGui::EndCombo();
     }
     ImGui::SameLine(0, gap);
@@ -566,12 +560,19 @@ void PracticeScreen::controls(AppState& app) {
     const auto& ts = app.targets().targets;
     const pitch::Target& fixed = ts[static_cast<std::size_t>(app.fixed_index())];
     // In nearest mode the box shows the target followed now; choosing one fixes it.
-    const int shown_index = s.choice == TargetChoice::nearest && app.verdict().known()
-                                ? app.target_index_of(app.current())
-                                : app.fixed_index();
+    // Two voices: the interval's target, as the view's header names it.
+    pitch::Reading duo_target;
+    const bool duo_known = app.two_voices() && app.duo().known();
+    if (duo_known) {
+        duo_target.target_index = app.duo().pair.target_index;
+        duo_target.target_octaves = app.duo().pair.target_octaves;
+    }
+    const pitch::Reading& cur = duo_known ? duo_target : app.current();
+    const bool known_now = app.two_voices() ? duo_known : app.verdict().known();
+    const int shown_index =
+        s.choice == TargetChoice::nearest && known_now ? app.target_index_of(cur) : app.fixed_index();
     // ... as the header names it (an octave up: 14/5, not 7/5).
-    const std::string shown = s.choice == TargetChoice::nearest && app.verdict().known()
-                                  ? app.target_ratio_text(app.current())
+    const std::string shown = s.choice == TargetChoice::nearest && known_now ? app.target_ratio_text(cur)
                               : shown_index >= 0 ? ts[static_cast<std::size_t>(shown_index)].interval.str()
                                                  : fixed.interval.str();
     ImGui::SetNextItemWidth(std::round(6.0f * u));
@@ -594,6 +595,10 @@ void PracticeScreen::controls(AppState& app) {
     ImGui::SetNextItemWidth(std::round(5.0f * u));
     if (ImGui::DragFloat("##a4", &a4, 0.1f, 400.0f, 480.0f, "%.1f Hz")) app.set_a4(std::round(a4 * 10.0f) / 10.0);
     ImGui::SameLine(0, gap);
+    bool two = app.two_voices();
+    if (ImGui::Checkbox("two voices", &two)) app.set_two_voices(two);
+    if (ImGui::IsItemHovered()) ImGui::SetTooltip("A double stop or a duet in one microphone: the interval (V)");
+    ImGui::SameLine(0, gap);
     if (ImGui::Button("Reference")) app.sound_reference();
     if (ImGui::IsItemHovered()) ImGui::SetTooltip("Sounds the current target once above the drone (R)");
 }
@@ -611,25 +616,29 @@ void PracticeScreen::build(AppState& app, const ScreenArea& area, double dt_s) {
     const float pad = std::round(1.0f * u);
     const float x0 = area.pos.x + pad, inner_w = W - 2.0f * pad;
     float y = area.pos.y + std::round(0.6f * u);
-    const float header_h = font_px(FontFace::large) + std::round(0.4f * u);
-    header(app, dl, x0, y, inner_w, header_h);
-    y += header_h + std::round(1.4f * u);  // room for the marker's head
-    const float band_h = std::round(std::max(2.6f * u, 0.1f * H));
-    const float lane_margin = std::round(1.6f * u);
-    lane(app, dl, x0 + lane_margin, y, inner_w - 2.0f * lane_margin, band_h);
-    y += band_h + std::round(1.3f * u);  // tick labels
-    y += std::round(1.6f * u);           // the centre track
-    info_line(app, dl, x0 + lane_margin, y, inner_w);
-    y += std::round(1.6f * u);
-
     const float frame_h = ImGui::GetFrameHeight();
     const float controls_h = 2.0f * frame_h + ImGui::GetStyle().ItemSpacing.y + 2.0f * std::round(0.5f * u);
-    const float mid_h = area.pos.y + H - controls_h - y - std::round(0.4f * u);
-    if (mid_h > 3.0f * u) {
-        const float cue_w = std::round(std::clamp(0.27f * inner_w, 13.0f * u, 20.0f * u));
-        const float gap = std::round(0.6f * u);
-        trace(app, dl, x0, y, inner_w - cue_w - gap, mid_h);
-        beat_cue(app, dl, x0 + inner_w - cue_w, y, cue_w, mid_h);
+    if (app.two_voices()) {  // a double stop or a duet: the interval is the verdict (practice_duo.h)
+        draw_practice_duo(app, dl, x0, y, inner_w, area.pos.y + H - controls_h - y - std::round(0.4f * u), duo_);
+    } else {
+        const float header_h = font_px(FontFace::large) + std::round(0.4f * u);
+        header(app, dl, x0, y, inner_w, header_h);
+        y += header_h + std::round(1.4f * u);  // room for the marker's head
+        const float band_h = std::round(std::max(2.6f * u, 0.1f * H));
+        const float lane_margin = std::round(1.6f * u);
+        lane(app, dl, x0 + lane_margin, y, inner_w - 2.0f * lane_margin, band_h);
+        y += band_h + std::round(1.3f * u);  // tick labels
+        y += std::round(1.6f * u);           // the centre track
+        info_line(app, dl, x0 + lane_margin, y, inner_w);
+        y += std::round(1.6f * u);
+
+        const float mid_h = area.pos.y + H - controls_h - y - std::round(0.4f * u);
+        if (mid_h > 3.0f * u) {
+            const float cue_w = std::round(std::clamp(0.27f * inner_w, 13.0f * u, 20.0f * u));
+            const float gap = std::round(0.6f * u);
+            trace(app, dl, x0, y, inner_w - cue_w - gap, mid_h);
+            beat_cue(app, dl, x0 + inner_w - cue_w, y, cue_w, mid_h);
+        }
     }
 
     ImGui::SetCursorScreenPos(ImVec2(x0, area.pos.y + H - controls_h + std::round(0.5f * u)));

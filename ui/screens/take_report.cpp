@@ -323,7 +323,7 @@ int draw_marks(const Ink& ink, const ReportData& d, const ReportLayout& l) {
         dl->AddRectFilled(ImVec2(x0 - 1.0f, y - 4.5f), ImVec2(x1 + 1.0f, y + 4.5f),
                           kInk);  // a dark rim: visible over the trace
         dl->AddRectFilled(ImVec2(x0, y - 3.5f), ImVec2(x1, y + 3.5f), col);
-        const std::string s = signed_cents(m.dev_cents, 1) + " c";
+        const std::string s = std::isfinite(m.dev_cents) ? signed_cents(m.dev_cents, 1) + " c" : "between targets";
         const float tw = ink.size(ink.bold, s).x;
         bool done = false;
         for (const float ty : {std::min(y, yt) - 8.0f - th, std::max(y, yt) + 8.0f}) {
@@ -488,6 +488,19 @@ void write_report(const std::string& path, const ReportData& data) {
     PixelBuffer page;
     render_report(data, page);
     write_file_safely(path, encode_png(page, path));
+}
+
+ReportData one_voice_report_data(const pitch::TargetSet& set, const OneVoiceAnalysis& a) {
+    ReportData d = report_of(set, a.notes, a.summary, false, [](const pitch::NoteResult& n) {
+        // A note between targets has none: its stem is empty and its label says so.
+        return ReportMark{n.start_s, n.end_s, n.cents_above_root,
+                          std::isfinite(n.target_cents) ? n.target_cents : n.cents_above_root, n.dev_cents};
+    });
+    d.axis_label = "cents above the root";
+    d.mark_word = "note";
+    d.dur_s = a.info.dur_s();
+    d.trace = &a.trace;
+    return d;
 }
 
 }  // namespace beatless::ui

@@ -6,6 +6,8 @@
 
 #include "pitch/measure/decimated_trace.h"
 #include "ui/render/raster.h"
+#include "ui/session/take_analysis.h"
+#include "ui/session/take_words.h"
 
 #include <cstdint>
 #include <string>
@@ -82,5 +84,33 @@ void render_report(const ReportData& data, PixelBuffer& out);
 
 // Draws the page and writes it as PNG. Throws Error naming the file.
 void write_report(const std::string& path, const ReportData& data);
+
+// The report's targets, marks and summary rows from notes or dyads (to_mark makes an item's ReportMark); title,
+// subtitle, axis and trace are the caller's.
+template <class Item, class ToMark>
+ReportData report_of(const pitch::TargetSet& set, const std::vector<Item>& items,
+                     const std::vector<pitch::TargetSummary>& summary, bool dyads, ToMark to_mark) {
+    ReportData d;
+    std::vector<bool> used(set.targets.size(), false);
+    for (const Item& it : items) {
+        if (it.target_index >= 0) used[static_cast<std::size_t>(it.target_index)] = true;
+        d.marks.push_back(to_mark(it));
+    }
+    for (std::size_t i = 0; i < set.targets.size(); ++i)
+        d.targets.push_back({set.targets[i].interval.cents(), set.targets[i].interval.str(),
+                             target_name_of(set, static_cast<int>(i)), used[i]});
+    for (const auto& r : summary) {
+        const std::string ratio = target_text_of(set, r.target_index);
+        const std::string w = summary_words(r, ratio, dyads);
+        // The ratio and the count have their own columns: keep "averages 6 cents flat".
+        const std::size_t from = std::min(w.size(), ratio.size() + 1);
+        d.summary.push_back({ratio, target_name_of(set, r.target_index), r.count, r.mean_dev_cents, r.spread_cents,
+                             w.substr(from, w.find(" (") - from)});
+    }
+    return d;
+}
+
+// One voice's report data: the notes, summary, trace (kept for as long as `a` lives), axis and length.
+ReportData one_voice_report_data(const pitch::TargetSet& set, const OneVoiceAnalysis& a);
 
 }  // namespace beatless::ui

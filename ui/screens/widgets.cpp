@@ -1,8 +1,11 @@
 // DrawKit — see draw_kit.h.
 #include "ui/screens/widgets.h"
 
+#include "pitch/base/text.h"
 #include "ui/screens/palette.h"
+#include "ui/screens/screen.h"
 
+#include <algorithm>
 #include <cmath>
 #include <cstdio>
 #include <string>
@@ -106,6 +109,22 @@ std::string fit_text(FontFace face, const std::string& text, float max_w) {
     return s + ell;
 }
 
+std::vector<std::string> wrap_lines(FontFace face, std::string_view text, float max_w) {
+    std::vector<std::string> lines;
+    std::string line;
+    pitch::for_each_part(text, ' ', [&](std::string_view word) {
+        if (word.empty()) return;
+        std::string joined = line.empty() ? std::string(word) : line + " " + std::string(word);
+        if (!line.empty() && text_size(face, joined).x > max_w) {
+            lines.push_back(fit_text(face, line, max_w));
+            joined = std::string(word);
+        }
+        line = std::move(joined);
+    });
+    if (!line.empty()) lines.push_back(fit_text(face, line, max_w));
+    return lines;
+}
+
 std::string signed_text(double v, int decimals) {
     char buf[32];
     const double shown = std::fabs(v) < 0.5 * std::pow(10.0, -decimals) ? 0.0 : v;
@@ -113,6 +132,26 @@ std::string signed_text(double v, int decimals) {
     if (shown > 0.0) return std::string("+") + buf;
     if (shown < 0.0) return std::string("\xE2\x88\x92") + buf;
     return buf;
+}
+
+void draw_verdict_readout(ImDrawList* dl, float right, float ty, float ny, Tuning t, bool live, const std::string& word,
+                          const std::string& num, const std::string& unit) {
+    const float u = ui_unit();
+    const float medium = font_px(FontFace::medium);
+    const std::uint32_t col = live ? tuning_colour(t) : palette::kTextDim;
+    const float word_w = std::max(text_size(FontFace::medium, word).x, text_size(FontFace::body, unit).x);
+    const float shape_r = std::round(0.42f * medium);
+    const float word_x = right - word_w;
+    draw_text(dl, FontFace::medium, ImVec2(word_x, ny), col, word);
+    draw_text(dl, FontFace::body, ImVec2(word_x, ny + medium + std::round(0.25f * u)), palette::kTextDim, unit);
+    float num_right = word_x - std::round(0.6f * u);
+    if (live) {
+        const float shape_x = word_x - std::round(0.7f * u) - shape_r;
+        draw_tuning_shape(dl, t, ImVec2(shape_x, ny + 0.55f * medium), shape_r, col);
+        num_right = shape_x - shape_r - std::round(0.6f * u);
+    }
+    const FontFace nf = live ? FontFace::large : FontFace::medium;
+    draw_text(dl, nf, ImVec2(num_right - text_size(nf, num).x, live ? ty : ny), col, num);
 }
 
 }  // namespace beatless::ui

@@ -11,6 +11,7 @@
 #include <cstdint>
 #include <string>
 #include <string_view>
+#include <vector>
 
 namespace beatless::ui {
 
@@ -40,8 +41,14 @@ void draw_warning_sign(ImDrawList* dl, ImVec2 c, float r, std::uint32_t colour);
 void draw_panel(ImDrawList* dl, float x0, float y0, float w, float h);
 // The text, cut at a character boundary with an ellipsis so it fits max_w pixels.
 std::string fit_text(FontFace face, const std::string& text, float max_w);
+// The words of text in lines of at most max_w pixels (a word longer than a line is cut by fit_text).
+std::vector<std::string> wrap_lines(FontFace face, std::string_view text, float max_w);
 
 // Formats with a true minus sign (U+2212) for negative values: "+12", "\u221212".
 std::string signed_text(double v, int decimals);
+// A verdict's readout right-aligned at `right`: the word over its unit line, the state's shape, the number
+// (large at ty while live; medium at ny with "last" before it otherwise). Shared by the Practice views.
+void draw_verdict_readout(ImDrawList* dl, float right, float ty, float ny, Tuning t, bool live, const std::string& word,
+                          const std::string& num, const std::string& unit);
 
 }  // namespace beatless::ui

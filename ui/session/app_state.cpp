@@ -20,6 +20,8 @@
 #include <algorithm>
 #include <cmath>
 #include <cstdio>
+#include <ctime>
+#include <filesystem>
 #include <initializer_list>
 #include <string_view>
 
@@ -73,7 +75,11 @@ AppState::AppState(Settings settings, std::filesystem::path settings_file, AppOp
       settings_file_(std::move(settings_file)),
       options_(std::move(options)),
       trace_(static_cast<std::size_t>(kTraceSeconds / 0.005) + 256),
-      take_buf_(512) {
+      take_buf_(512),
+      voices_(options_.voices == 2 ? 2 : 1),
+      duo_trace_(static_cast<std::size_t>(kTraceSeconds / 0.01) + 64),
+      duo_buf_(128),
+      record_pending_(options_.record) {
     if (!options_.root.empty()) settings_.root = options_.root;
     if (options_.a4_hz) settings_.a4_hz = pitch::check_a4(*options_.a4_hz);
     if (options_.lowest_hz) settings_.lowest_hz = *options_.lowest_hz;
@@ -134,6 +140,18 @@ void AppState::recompute_root() {
 
 void AppState::start() {
     if (!engine_) open_engine();
+    if (!takes_recovered_) {
+        takes_recovered_ = true;
+        try {
+            for (const RecoveredTake& r : recover_takes(takes_dir()))
+                post(r.problem.empty() ? "recovered a take cut short: " + r.audio_path.filename().string() + " (" +
+                                             pitch::format_trimmed(r.duration_s, 1) + " s)"
+                                       : r.problem,
+                     !r.problem.empty());
+        } catch (const Error& e) {
+            post(e.what(), true);
+        }
+    }
 }
 
 bool AppState::follow_group(const audio::EnsembleSetup& setup) {
@@ -186,6 +204,9 @@ void AppState::open_engine() {
     }
     trace_.clear();  // a new engine's stream time starts again at 0
     verdict_.reset();
+    duo_trace_.clear();
+    duo_.reset();
+    const bool duo = voices_ == 2 && !group_;
     audio::DemoConfig dc;
     dc.sample_rate_hz = kSimRateHz;
     dc.root_hz = engine_root_hz();
@@ -220,6 +241,18 @@ void AppState::open_engine() {
                 eng->use_demo(gc);
             } else {
                 eng->open_input_device(settings_.ensemble.input_device);
+            }
+        } else if (duo) {
+            pitch::TwoVoiceConfig tc;
+            eng->set_two_voices(tc, engine_targets());
+            if (options_.demo) {
+                audio::DemoDuoConfig vc;
+                vc.sample_rate_hz = kSimRateHz;
+                vc.root_hz = engine_root_hz();
+                vc.seed = options_.seed;
+                eng->use_demo(vc);
+            } else {
+                eng->open_input_device(settings_.input_device);
             }
         } else {
             eng->set_readings(reading_config(), engine_targets());
@@ -259,13 +292,15 @@ void AppState::open_engine() {
     }
     if (group_) {
         input_text_ = engine_->input_name();
+    } else if (options_.demo && duo) {
+        input_text_ = "Demo violinist";
     } else if (options_.demo) {
         input_text_ = options_.hold_dev_cents ? "Demo performer (holding)" : "Demo performer";
     } else {
         const audio::StreamInfo si = engine_->input_info();
         input_text_ = device_text(si.input_name, si.host_api);
     }
-    if (options_.simulated && options_.demo && !group_) {
+    if (options_.simulated && options_.demo && !group_ && !duo) {
         sim_performer_ = std::make_unique<audio::DemoPerformer>(dc);
         sim_block_.assign(kSimBlock, 0.0f);
         sim_due_s_ = 0.0;
@@ -274,6 +309,7 @@ void AppState::open_engine() {
 }
 
 void AppState::close_engine() {
+    if (take_) stop_recording();  // a take is one engine's input
     if (engine_) engine_->stop();
     engine_.reset();
     sim_performer_.reset();
@@ -293,6 +329,13 @@ void AppState::shutdown() {
 }
 
 void AppState::pump_simulation(double dt_s) {
+    if (engine_ && options_.demo && voices_ == 2 && !group_) {  // the violinist plays inside the engine
+        sim_due_s_ += dt_s * kSimRateHz;
+        const auto n = static_cast<std::size_t>(sim_due_s_ / static_cast<double>(kSimBlock)) * kSimBlock;
+        sim_due_s_ -= static_cast<double>(n);
+        engine_->run_demo_frames(n);
+        return;
+    }
     if (!sim_performer_ || !engine_) return;
     sim_due_s_ += dt_s * kSimRateHz;
     while (sim_due_s_ >= static_cast<double>(kSimBlock)) {
@@ -310,11 +353,31 @@ void AppState::pump_simulation(double dt_s) {
 void AppState::update(double dt_s) {
     if (!(dt_s >= 0.0)) dt_s = 0.0;
     app_time_s_ += dt_s;
+    if (take_ && take_->stopped_early()) stop_recording();
+    // --record: from the second frame, once the first screen has chosen what the engine follows (a group or one).
+    if (record_pending_ && updates_ > 0) {
+        record_pending_ = false;
+        start_recording();
+    }
+    ++updates_;
     if (engine_) {
         if (options_.simulated) pump_simulation(dt_s);
-        for (std::size_t k; (k = engine_->take_readings(take_buf_)) > 0;) {
-            for (std::size_t i = 0; i < k; ++i) take(take_buf_[i]);
-            if (k < take_buf_.size()) break;
+        if (engine_->mode() == audio::EngineMode::two_voices) {
+            for (std::size_t k; (k = engine_->take_readings(std::span<pitch::TwoVoiceFrame>(duo_buf_))) > 0;) {
+                for (std::size_t i = 0; i < k; ++i) {
+                    duo_trace_.push(duo_buf_[i]);
+                    duo_.take(duo_buf_[i]);
+                    // The level bar: the louder voice's fundamental (dB re a full-scale sine).
+                    level_dbfs_ = std::max(duo_buf_[i].level_low_db, duo_buf_[i].level_high_db);
+                    if (duo_buf_[i].clipped) last_clip_s_ = app_time_s_;
+                }
+                if (k < duo_buf_.size()) break;
+            }
+        } else {
+            for (std::size_t k; (k = engine_->take_readings(take_buf_)) > 0;) {
+                for (std::size_t i = 0; i < k; ++i) take(take_buf_[i]);
+                if (k < take_buf_.size()) break;
+            }
         }
         supervise_s_ += dt_s;
         // A group's channel messages come from supervise() in simulated time too.
@@ -324,7 +387,11 @@ void AppState::update(double dt_s) {
         }
     }
     verdict_.tick(dt_s);
-    pulse_.update(verdict_.verdict().current() ? verdict_.verdict().beat_hz : NAN, dt_s);
+    duo_.tick(dt_s);
+    if (voices_ == 2 && !group_)  // the beat cue pulses at the measured beat when there is one
+        pulse_.update(duo_.verdict().current() ? duo_.verdict().beat_hz() : NAN, dt_s);
+    else
+        pulse_.update(verdict_.verdict().current() ? verdict_.verdict().beat_hz : NAN, dt_s);
     if (drone_on_ && fade_s_ < kDroneFadeInS) {
         fade_s_ = std::min(kDroneFadeInS, fade_s_ + dt_s);
         apply_drone();
@@ -339,6 +406,15 @@ void AppState::update(double dt_s) {
     }
     while (!messages_.empty() && (app_time_s_ - messages_.front().shown_at_s > kMessageS || messages_.size() > 3))
         messages_.pop_front();
+}
+
+void AppState::set_two_voices(bool on) {
+    const int want = on ? 2 : 1;
+    if (want == voices_) return;
+    voices_ = want;
+    if (group_) return;  // the Ensemble screen keeps its group; the choice applies when it is left
+    close_engine();
+    open_engine();
 }
 
 void AppState::take(const pitch::Reading& r) {
@@ -514,6 +590,11 @@ pitch::ReadingConfig AppState::reading_config() const {
 void AppState::apply_readings() {
     if (!engine_ || group_) return;  // a group's readings are the Ensemble screen's; these apply when it is left
     try {
+        if (engine_->mode() == audio::EngineMode::two_voices) {
+            engine_->set_two_voices(pitch::TwoVoiceConfig{}, engine_targets());
+            duo_.reset();
+            return;
+        }
         engine_->set_readings(reading_config(), engine_targets());
     } catch (const Error& e) {
         post(e.what(), true);
@@ -776,6 +857,55 @@ std::vector<audio::DeviceInfo> AppState::devices() {
 }
 
 std::string AppState::input_text() const { return input_text_; }
+
+// ---------------------------------------------------------------------------
+// [SECTION] Takes
+// ---------------------------------------------------------------------------
+
+void AppState::start_recording() {
+    if (take_) return;
+    if (!engine_) {
+        post("nothing to record: no input", true);
+        return;
+    }
+    TakeContext c;
+    c.device = input_text_;
+    c.screen = std::string(screen_key(settings_.screen));
+    c.root = drill_drone_ ? "" : settings_.root;  // a drill's root is named from its frequency
+    c.a4_hz = settings_.a4_hz;
+    c.targets = settings_.target_set;
+    if (settings_.choice == TargetChoice::fixed && !set_.targets.empty())
+        c.target = set_.targets[static_cast<std::size_t>(fixed_index_)].interval.str();
+    if (drill_drone_) c.drill = options_.drill;
+    int channels = 1;
+    if (group_) {
+        channels = static_cast<int>(group_->players.size());
+        for (std::size_t i = 0; i < group_->players.size(); ++i)
+            c.players.push_back(
+                {static_cast<int>(i) + 1, group_->players[i].name, static_cast<int>(group_->players[i].voice) + 1});
+    }
+    try {
+        const std::filesystem::path dir = takes_dir();
+        ensure_dir(dir);
+        const std::filesystem::path path = free_take_path(dir, std::time(nullptr));
+        take_ = std::make_unique<TakeRecording>(*engine_, path, c, engine_->sample_rate_hz(), channels);
+        post("recording " + path.filename().string());
+    } catch (const Error& e) {
+        post(e.what(), true);
+    }
+}
+
+void AppState::stop_recording() {
+    if (!take_) return;
+    const bool early = take_->stopped_early();
+    const std::string said = take_->stop();
+    take_.reset();
+    post(said, early);
+}
+
+std::string AppState::recording_name() const {
+    return take_ ? take_->info().audio_path.stem().string() : std::string();
+}
 
 void AppState::post(const std::string& text, bool warning) {
     std::fprintf(stderr, "beatless: %s\n", text.c_str());

@@ -10,7 +10,9 @@
 #include "pitch/measure/reading.h"
 #include "pitch/theory/targets.h"
 #include "ui/session/beat_pulse.h"
+#include "ui/session/duo_verdict.h"
 #include "ui/session/settings.h"
+#include "ui/session/take_recording.h"
 #include "ui/session/verdict.h"
 
 #include <deque>
@@ -41,6 +43,11 @@ struct AppOptions {
     std::string listener;  // ear drills: a simulated listener answers: "perfect", "guess" or cents (demos, snapshots)
     bool log = true;       // attempts go to the practice log (false: kept in memory only)
     std::string log_file;  // the practice log; empty = the data folder's practice.sqlite3
+    bool record = false;   // record a take from the start (--record)
+    std::string take;      // the Review screen opens this sound file (a take or any file); empty = the newest take
+    std::optional<int> review_note;       // ... selects this note (from 1)
+    std::optional<double> review_span_s;  // ... and shows this many seconds around it
+    int voices = 1;        // 2: two voices in one input (double stops, a duet) on the Practice screen
 };
 
 // The readings of the last seconds, oldest first, in a ring sized once.
@@ -156,6 +163,13 @@ public:
     bool engine_running() const { return engine_ != nullptr; }
     double stream_time_s() const;
 
+    // --- Two voices in one input (double stops, a duet) ---------------------------------
+    // The Practice screen's two-voice view; the engine reopens in the other mode (the demo: the violinist).
+    bool two_voices() const { return voices_ == 2; }
+    void set_two_voices(bool on);
+    const DuoVerdict& duo() const { return duo_.verdict(); }
+    const DuoTrace& duo_trace() const { return duo_trace_; }
+
     // --- Drills ------------------------------------------------------------------------------
     // The drill's drone (root, fifth, timbre; its level never above the
     // user's) replaces the settings' and starts with the usual fade. False
@@ -170,6 +184,17 @@ public:
     // Demo only: the performer sings these notes, from stream time 0 (the
     // engine reopens). False without the demo. An empty list: her usual round.
     bool sing_script(std::vector<audio::DemoNote> notes);
+
+    // --- Takes ---------------------------------------------------------------------------------
+    // Records what the engine hears (each analysed channel, before drone removal) as a take in the data folder's
+    // takes/ (ui/session/take_recording.h). Messages instead of throwing; stopped when the engine reopens, when the
+    // recorder stops by itself (disk nearly full) and at shutdown. Takes cut short earlier are recovered at start().
+    void start_recording();
+    void stop_recording();
+    void toggle_recording() { recording() ? stop_recording() : start_recording(); }
+    bool recording() const { return take_ != nullptr; }
+    double recording_s() const { return take_ ? take_->elapsed_s() : 0.0; }  // seconds recorded so far
+    std::string recording_name() const;  // the take's file name without .flac ("2026-12-03_161502"); "" when none
 
     // --- Messages ------------------------------------------------------------------------
     void post(const std::string& text, bool warning = false);  // also printed to stderr
@@ -218,6 +243,10 @@ private:
     bool drone_on_before_drill_ = false;
     std::vector<audio::DemoNote> demo_script_;
     std::optional<audio::EnsembleSetup> group_;  // the engine follows a group (Ensemble screen)
+    int voices_ = 1;                             // 2: the engine follows two voices in one input
+    DuoVerdictTracker duo_;
+    DuoTrace duo_trace_;
+    std::vector<pitch::TwoVoiceFrame> duo_buf_;
 
     bool drone_on_ = false;
     bool drone_heard_ = false;
@@ -227,6 +256,10 @@ private:
     double dirty_since_s_ = 0.0;
     double app_time_s_ = 0.0;
     std::deque<Message> messages_;
+    std::unique_ptr<TakeRecording> take_;  // the take being recorded
+    bool takes_recovered_ = false;         // recover_takes() ran (once, at the first start())
+    bool record_pending_ = false;          // --record: start at the second update()
+    std::uint64_t updates_ = 0;            // update() calls so far
 };
 
 }  // namespace beatless::ui

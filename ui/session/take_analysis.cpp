@@ -8,10 +8,16 @@
 #include "pitch/dsp/signal_facts.h"
 #include "pitch/dsp/yin.h"
 #include "pitch/measure/two_voice.h"
+#include "pitch/theory/beats.h"
+#include "pitch/theory/notes.h"
+#include "ui/session/drill_files.h"
+#include "ui/session/take_file.h"
+#include "ui/session/target_files.h"
 
 #include <algorithm>
 #include <array>
 #include <cmath>
+#include <filesystem>
 #include <memory>
 #include <optional>
 
@@ -50,7 +56,8 @@ private:
     double last_ = -1.0;
 };
 
-pitch::RootEstimate find_drone(audio::SoundReader& reader, const AnalysisRequest& req, Ticker& tick) {
+pitch::RootEstimate detect_drone(audio::SoundReader& reader, const AnalysisRequest& req, Ticker& tick,
+                                 double& min_confidence) {
     // The detector reads nothing above 8 kHz (RootDetectConfig::max_freq_hz),
     // so it runs at the lowest integer fraction of the rate that keeps the
     // decimator's passband (0.4 of the new rate) above that: half for 44.1
@@ -66,16 +73,93 @@ pitch::RootEstimate find_drone(audio::SoundReader& reader, const AnalysisRequest
         rd.push(factor > 1 ? dec.push(block) : block);
         tick.at(0, reader.position_frames(), "finding the root");
     }
+    min_confidence = rc.min_confidence;
     const pitch::RootEstimate e = rd.estimate();
     if (e.status == pitch::RootStatus::no_sound)
         throw Error(req.path + ": silent (no sound above " + pitch::format_trimmed(kSilenceDbfs, 0) +
                     " dBFS); nothing to analyze");
+    return e;
+}
+
+pitch::RootEstimate find_drone(audio::SoundReader& reader, const AnalysisRequest& req, Ticker& tick) {
+    double min_confidence = 0.0;
+    const pitch::RootEstimate e = detect_drone(reader, req, tick, min_confidence);
     if (!e.found() && !req.root_hz)
         throw Error(req.path + ": no steady drone or pedal tone found (best candidate " +
                     pitch::format_trimmed(e.root_hz, 2) + " Hz, confidence " + pitch::format_trimmed(e.confidence, 2) +
-                    " below " + pitch::format_trimmed(rc.min_confidence, 2) + "); give --root NOTE|HZ");
+                    " below " + pitch::format_trimmed(min_confidence, 2) + "); give --root NOTE|HZ");
     return e;
 }
+
+// A note moved to the target it is judged against (pitch/measure/intent.h): target, deviation and the audible pair.
+void apply(const pitch::NoteJudgement& j, const pitch::TargetSet& set, double root_hz, const pitch::AudibleRange& range,
+           pitch::NoteResult& n) {
+    n.target_index = j.judged_index();
+    n.target_octaves = j.judged_octaves();
+    n.target_cents = j.judged_target_cents();
+    n.dev_cents = j.judged_dev_cents();
+    n.partial_root = n.partial_voice = n.own_partial_root = n.own_partial_voice = -1;
+    n.beat_hz = n.beat_in_tune_hz = NAN;
+    if (n.target_index < 0) return;
+    const pitch::Interval& iv = set.targets[static_cast<std::size_t>(n.target_index)].interval;
+    if (iv.is_ratio()) {
+        const pitch::Ratio own = pitch::beating_ratio(iv, n.target_octaves);
+        n.own_partial_root = static_cast<int>(std::min<std::int64_t>(own.num, 1 << 30));
+        n.own_partial_voice = static_cast<int>(std::min<std::int64_t>(own.den, 1 << 30));
+    }
+    const pitch::AudiblePair heard =
+        pitch::audible_pair_of_target(root_hz, n.centre_f0_hz, iv, n.target_octaves, n.target_cents, range);
+    if (heard.found) {
+        n.partial_root = heard.partial_a;
+        n.partial_voice = heard.partial_b;
+        n.beat_hz = heard.beat_hz;
+        n.beat_in_tune_hz = heard.beat_at_target_hz;
+    }
+}
+
+void apply(const pitch::NoteJudgement& j, const pitch::TargetSet& set, const pitch::AudibleRange& range,
+           pitch::DyadResult& d) {
+    d.target_index = j.judged_index();
+    d.target_octaves = j.judged_octaves();
+    d.target_cents = j.judged_target_cents();
+    d.dev_cents = j.judged_dev_cents();
+    d.partial_low = d.partial_high = -1;
+    d.predicted_beat_hz = NAN;
+    if (d.target_index < 0) return;
+    const pitch::Interval& iv = set.targets[static_cast<std::size_t>(d.target_index)].interval;
+    const pitch::AudiblePair heard =
+        pitch::audible_pair_of_target(d.f_low_hz, d.f_high_hz, iv, d.target_octaves, d.target_cents, range);
+    if (heard.found) {
+        d.partial_low = heard.partial_a;
+        d.partial_high = heard.partial_b;
+        d.predicted_beat_hz = heard.beat_hz;
+    }
+}
+
+// Judges every note (or dyad) against what was meant, moves it to that target, and sums them per target.
+template <class Item, class CentsOf, class Apply>
+void judge(const AnalysisRequest& req, std::vector<Item>& items, CentsOf cents_of, Apply apply_to,
+           std::vector<pitch::NoteJudgement>& judged, std::vector<pitch::TargetSummary>& summary) {
+    std::vector<double> c;
+    c.reserve(items.size());
+    for (const Item& it : items) c.push_back(cents_of(it));
+    judged = pitch::judge_notes(req.targets, c, req.expected, req.intent);
+    pitch::NoteSummary sum(req.targets);
+    for (std::size_t i = 0; i < items.size(); ++i) {
+        apply_to(judged[i], items[i]);
+        sum.add(items[i].target_index, items[i].dev_cents);
+    }
+    summary = sum.rows();
+}
+
+void fill_heard(HeardLevels& h, const pitch::SignalFacts& f, const pitch::LevelSpread& spread) {
+    h.loudest_dbfs = f.loudest_dbfs;
+    h.floor_dbfs = spread.percentile_dbfs(0.1);
+    h.snr_db = spread.snr_db();
+}
+
+// The voice against a known root (its drone combed out when one was found): the second pass of one-voice analysis.
+void track_voice(audio::SoundReader& reader, const AnalysisRequest& req, Ticker& tick, int pass, OneVoiceAnalysis& out);
 
 }  // namespace
 
@@ -92,12 +176,24 @@ TwoVoiceAnalysis analyze_two_voices(const AnalysisRequest& req, const ProgressFn
 OneVoiceAnalysis analyze_one_voice(audio::SoundReader& reader, const AnalysisRequest& req, const ProgressFn& progress) {
     OneVoiceAnalysis out;
     out.info = reader.info();
-    const int passes = 2;
-    Ticker tick(progress, static_cast<double>(out.info.len_frames), passes);
+    Ticker tick(progress, static_cast<double>(out.info.len_frames), 2);
     out.root_given = req.root_hz.has_value();
     out.root = find_drone(reader, req, tick);
     reader.rewind();  // the second pass reads the file again from its start
     out.root_hz = req.root_hz ? *req.root_hz : out.root.root_hz;
+    track_voice(reader, req, tick, 1, out);
+    const pitch::AudibleRange range = pitch::SegmentConfig{}.audible;
+    judge(
+        req, out.notes, [](const pitch::NoteResult& n) { return n.cents_above_root; },
+        [&](const pitch::NoteJudgement& j, pitch::NoteResult& n) { apply(j, req.targets, out.root_hz, range, n); },
+        out.judged, out.summary);
+    return out;
+}
+
+namespace {
+
+void track_voice(audio::SoundReader& reader, const AnalysisRequest& req, Ticker& tick, int pass,
+                 OneVoiceAnalysis& out) {
     const double rate = out.info.sample_rate_hz;
     std::optional<pitch::DroneComb> comb;
     if (out.root.found() && out.root.root_hz >= 20.0 && out.root.root_hz <= rate / 8.0) {
@@ -118,7 +214,7 @@ OneVoiceAnalysis analyze_one_voice(audio::SoundReader& reader, const AnalysisReq
     sc.root_hz = out.root_hz;
     sc.hop_s = out.hop_s;
     pitch::NoteSegmenter seg(sc, req.targets);
-    pitch::NoteSummary summary(req.targets);
+    pitch::LevelSpread spread;
     std::vector<float> filtered(kBlockFrames);
     pitch::PitchFrame frame;
     pitch::NoteResult note;
@@ -128,7 +224,6 @@ OneVoiceAnalysis analyze_one_voice(audio::SoundReader& reader, const AnalysisReq
     auto keep = [&](const pitch::NoteResult& n) {
         out.notes.push_back(n);
         out.notes_clipped.push_back(clips->between(n.start_s - reach_s, n.end_s + reach_s, rate));
-        summary.add(n);
     };
     for (auto block = reader.read(); !block.empty(); block = reader.read()) {
         const std::int64_t first = reader.position_frames() - static_cast<std::int64_t>(block.size());
@@ -139,8 +234,10 @@ OneVoiceAnalysis analyze_one_voice(audio::SoundReader& reader, const AnalysisReq
             const std::span<float> y(filtered.data(), block.size());
             comb->process(block, y);
             yin.push(y);
+            spread.add(y);
         } else {
             yin.push(block);
+            spread.add(block);
         }
         while (yin.pull(frame)) {
             if (req.keep_trace) {
@@ -149,21 +246,70 @@ OneVoiceAnalysis analyze_one_voice(audio::SoundReader& reader, const AnalysisReq
             }
             if (seg.push(frame, note)) keep(note);
         }
-        tick.at(passes - 1, reader.position_frames(), "tracking notes");
+        tick.at(pass, reader.position_frames(), "tracking notes");
     }
     if (seg.finish(note)) keep(note);
     check_sound(out.facts, req.path);
-    out.summary = summary.rows();
     out.short_notes_dropped = seg.short_notes_dropped();
-    return out;
+    fill_heard(out.heard, out.facts, spread);
 }
+
+// A held note of the voice over the drone as a dyad of the two.
+pitch::DyadResult dyad_of(const pitch::NoteResult& n, double drone_hz) {
+    pitch::DyadResult d;
+    d.start_s = n.start_s;
+    d.end_s = n.end_s;
+    d.frames = d.measured_frames = n.frames;
+    d.f_low_hz = std::min(drone_hz, n.centre_f0_hz);
+    d.f_high_hz = std::max(drone_hz, n.centre_f0_hz);
+    d.interval_cents = n.cents_above_root;
+    d.spread_cents = n.spread_cents;
+    d.target_index = n.target_index;
+    d.target_octaves = n.target_octaves;
+    d.target_cents = n.target_cents;
+    d.dev_cents = n.dev_cents;
+    d.partial_low = n.partial_root;
+    d.partial_high = n.partial_voice;
+    d.predicted_beat_hz = n.beat_hz;
+    d.truncated = n.truncated;
+    return d;
+}
+
+}  // namespace
 
 TwoVoiceAnalysis analyze_two_voices(audio::SoundReader& reader, const AnalysisRequest& req,
                                     const ProgressFn& progress) {
     TwoVoiceAnalysis out;
     out.info = reader.info();
     const double rate = out.info.sample_rate_hz;
-    Ticker tick(progress, static_cast<double>(out.info.len_frames), 1);
+    Ticker tick(progress, static_cast<double>(out.info.len_frames), 2);
+    // A steady drone is one of the two voices: its partials are combed out, never taken for the other voice.
+    double min_confidence = 0.0;
+    const pitch::RootEstimate drone = detect_drone(reader, req, tick, min_confidence);
+    reader.rewind();
+    if (drone.found() && drone.root_hz >= 20.0 && drone.root_hz <= rate / 8.0) {
+        OneVoiceAnalysis one;
+        one.info = out.info;
+        one.root = drone;
+        one.root_hz = drone.root_hz;
+        track_voice(reader, req, tick, 1, one);
+        out.drone_hz = one.drone_hz;
+        out.hop_s = one.hop_s;
+        out.facts = one.facts;
+        out.heard = one.heard;
+        out.trace = std::move(one.trace);
+        out.short_dyads_dropped = one.short_notes_dropped;
+        const pitch::AudibleRange range = pitch::SegmentConfig{}.audible;
+        judge(
+            req, one.notes, [](const pitch::NoteResult& n) { return n.cents_above_root; },
+            [&](const pitch::NoteJudgement& j, pitch::NoteResult& n) { apply(j, req.targets, one.root_hz, range, n); },
+            out.judged, out.summary);
+        for (std::size_t i = 0; i < one.notes.size(); ++i) {
+            out.dyads.push_back(dyad_of(one.notes[i], one.drone_hz));
+            out.dyads.back().clipped_frames = one.notes_clipped[i] > 0 ? 1 : 0;
+        }
+        return out;
+    }
     pitch::TwoVoiceConfig tc;
     tc.sample_rate_hz = rate;
     tc.silence_dbfs = kSilenceDbfs;
@@ -174,15 +320,13 @@ TwoVoiceAnalysis analyze_two_voices(audio::SoundReader& reader, const AnalysisRe
     dc.hop_s = out.hop_s;
     dc.edge_s = 0.5 * static_cast<double>(tv.window_len_samples()) / rate;
     pitch::DyadSegmenter seg(dc, req.targets);
-    pitch::NoteSummary summary(req.targets);
+    pitch::LevelSpread spread;
     pitch::TwoVoiceFrame frame;
     pitch::DyadResult dyad;
-    auto keep = [&](const pitch::DyadResult& d) {
-        out.dyads.push_back(d);
-        summary.add(d.target_index, d.dev_cents);
-    };
+    auto keep = [&](const pitch::DyadResult& d) { out.dyads.push_back(d); };
     for (auto block = reader.read(); !block.empty(); block = reader.read()) {
         pitch::observe(out.facts, block, reader.position_frames() - static_cast<std::int64_t>(block.size()), rate);
+        spread.add(block);
         tv.push(block);
         while (tv.pull(frame)) {
             if (req.keep_trace) {
@@ -191,13 +335,90 @@ TwoVoiceAnalysis analyze_two_voices(audio::SoundReader& reader, const AnalysisRe
             }
             if (seg.push(frame, dyad)) keep(dyad);
         }
-        tick.at(0, reader.position_frames(), "tracking two voices");
+        tick.at(1, reader.position_frames(), "tracking two voices");
     }
     if (seg.finish(dyad)) keep(dyad);
     check_sound(out.facts, req.path);
-    out.summary = summary.rows();
     out.short_dyads_dropped = seg.short_dyads_dropped();
+    fill_heard(out.heard, out.facts, spread);
+    judge(
+        req, out.dyads, [](const pitch::DyadResult& d) { return d.interval_cents; },
+        [&](const pitch::NoteJudgement& j, pitch::DyadResult& d) { apply(j, req.targets, dc.audible, d); }, out.judged,
+        out.summary);
     return out;
+}
+
+// ---------------------------------------------------------------------------
+// [SECTION] A take's context
+// ---------------------------------------------------------------------------
+
+TakeDefaults take_defaults(const std::string& audio_path) {
+    TakeDefaults d;
+    std::error_code ec;
+    const std::filesystem::path side = take_sidecar_path(audio_path);
+    if (!std::filesystem::is_regular_file(side, ec)) return d;
+    const TakeInfo take = read_take_sidecar(side);
+    d.found = true;
+    d.targets = take.targets;
+    d.a4_hz = take.a4_hz;
+    if (take.root_hz > 0.0) d.root = take.root.empty() ? pitch::format_trimmed(take.root_hz, 4) : take.root;
+    d.expect = take.target;
+    // A hold drill sung in sequence: its targets in order (a shuffled one's order is not kept, so none is expected).
+    if (d.expect.empty() && !take.drill.empty()) {
+        const Drill drill = load_drill(take.drill);
+        if (drill.mode == DrillMode::hold && drill.order == TargetOrder::sequence)
+            for (const DrillTarget& t : drill.sequence(0))
+                d.expect += (d.expect.empty() ? "" : ",") + t.target.interval.str();
+    }
+    return d;
+}
+
+std::vector<int> expected_targets(const std::string& list, pitch::TargetSet& set) {
+    std::vector<int> out;
+    pitch::for_each_part(list, ',', [&](std::string_view part) {
+        const std::string_view t = pitch::trim(part);
+        if (t.empty()) throw Error("--expect " + pitch::quote(list) + ": an empty item; list targets as 7/5,10/7");
+        const pitch::Interval iv = pitch::parse_interval(t);
+        int at = -1;
+        for (std::size_t i = 0; i < set.targets.size(); ++i)
+            if (std::fabs(set.targets[i].interval.cents() - iv.cents()) < 1e-6) at = static_cast<int>(i);
+        if (at < 0) {
+            set.targets.push_back({iv, ""});
+            at = static_cast<int>(set.targets.size() - 1);
+        }
+        out.push_back(at);
+    });
+    return out;
+}
+
+// ---------------------------------------------------------------------------
+// [SECTION] A take reviewed
+// ---------------------------------------------------------------------------
+
+ReviewedTake review_take(const std::string& path, const std::string& default_set) {
+    ReviewedTake r;
+    r.path = path;
+    r.title = std::filesystem::path(path).filename().string();
+    try {
+        const TakeDefaults d = take_defaults(path);
+        r.set_name = d.targets.empty() ? default_set : d.targets;
+        r.set = load_target_set(r.set_name);
+        if (r.set.targets.empty()) throw Error(r.set_name + ": the target set has no targets");
+        r.a4_hz = d.a4_hz.value_or(pitch::kDefaultA4Hz);
+        r.expect = d.expect;
+        AnalysisRequest req;
+        req.path = path;
+        req.channel = -1;
+        if (!d.root.empty()) req.root_hz = pitch::parse_root(d.root, r.a4_hz);
+        req.keep_trace = true;
+        if (!r.expect.empty()) req.expected = expected_targets(r.expect, r.set);
+        req.targets = r.set;
+        r.analysis = analyze_one_voice(req);
+    } catch (const std::exception& e) {
+        r.error = e.what();
+        r.analysis = OneVoiceAnalysis{};
+    }
+    return r;
 }
 
 }  // namespace beatless::ui

@@ -9,6 +9,7 @@
 #include "pitch/dsp/signal_facts.h"
 #include "pitch/measure/decimated_trace.h"
 #include "pitch/measure/dyad_segment.h"
+#include "pitch/measure/intent.h"
 #include "pitch/measure/root_detect.h"
 #include "pitch/measure/segment.h"
 #include "pitch/theory/targets.h"
@@ -28,6 +29,16 @@ struct AnalysisRequest {
     pitch::TargetSet targets;         // must not be empty
     bool keep_trace = false;          // fill the decimated trace (for the report)
     std::optional<double> lowest_hz;  // one voice: the tracker's floor (default 41 Hz); a lower one lengthens its span
+    std::vector<int> expected;        // targets meant, in order (indices into targets); empty: none, one: every note
+    pitch::IntentConfig intent;       // the alignment's costs and the between-targets limit
+};
+
+// What was heard when nothing (or little) was found: the level and the estimated signal-to-noise ratio of what the
+// tracker heard (the drone removed).
+struct HeardLevels {
+    double loudest_dbfs = -INFINITY;  // RMS of the loudest block of the file
+    double floor_dbfs = -INFINITY;    // 10th percentile of the tracked signal's block RMS
+    double snr_db = INFINITY;         // estimated from the spread of block levels (pitch/dsp/signal_facts.h)
 };
 
 // Called with the share of the whole job done (0..1) and the pass's name.
@@ -41,9 +52,11 @@ struct OneVoiceAnalysis {
     double drone_hz = 0.0;     // the drone the comb removed, 0 when none was found
     double hop_s = 0.0;        // tracker hop
     std::vector<pitch::NoteResult> notes;
-    std::vector<std::int64_t> notes_clipped;  // per note: samples at full scale during it
-    std::vector<pitch::TargetSummary> summary;
+    std::vector<std::int64_t> notes_clipped;    // per note: samples at full scale during it
+    std::vector<pitch::NoteJudgement> judged;   // per note: against the target meant (or the nearest, or between)
+    std::vector<pitch::TargetSummary> summary;  // per judged target
     std::size_t short_notes_dropped = 0;
+    HeardLevels heard;
     pitch::SignalFacts facts;
     pitch::DecimatedTrace trace;  // cents above the root (when keep_trace)
 };
@@ -51,9 +64,14 @@ struct OneVoiceAnalysis {
 struct TwoVoiceAnalysis {
     audio::SoundInfo info;
     double hop_s = 0.0;
+    // A steady drone found in the file is one of the two voices: it is combed out and the other voice is measured
+    // against it (as with one voice), so none of its partials is taken for a voice. 0 when none was found.
+    double drone_hz = 0.0;
     std::vector<pitch::DyadResult> dyads;
+    std::vector<pitch::NoteJudgement> judged;  // per dyad, as for notes
     std::vector<pitch::TargetSummary> summary;
     std::size_t short_dyads_dropped = 0;
+    HeardLevels heard;
     pitch::SignalFacts facts;
     pitch::DecimatedTrace trace;  // interval in cents, high above low (when keep_trace)
 };
@@ -73,5 +91,38 @@ inline constexpr std::size_t kAnalysisBlockFrames = 4096;
 
 // The level below which a file counts as silent (same as the analyzers').
 constexpr double kSilenceDbfs = -60.0;
+
+// [SECTION] A take's context
+
+// What a take's sidecar (ui/session/take_file.h) beside a sound file says about analyzing it.
+struct TakeDefaults {
+    bool found = false;           // a sidecar was beside the file
+    std::string targets;          // its target set ("" when it names none)
+    std::string root;             // its root as typed ("A2"), else in Hz; "" when unknown
+    std::optional<double> a4_hz;  // its A4
+    std::string expect;  // what was meant: its fixed target, or a hold drill's targets in sequence ("7/5,10/7")
+};
+// Throws Error (a sidecar that does not read, a drill that does not load).
+TakeDefaults take_defaults(const std::string& audio_path);
+
+// The targets of a list such as "7/5,10/7" as indices into the set; targets the set lacks are added to it.
+// Throws Error naming the list (an empty item) or the interval.
+std::vector<int> expected_targets(const std::string& list, pitch::TargetSet& set);
+
+// [SECTION] A take reviewed
+
+// One voice reviewed the way `analyze` does it by default, with the trace kept (the Review screen).
+struct ReviewedTake {
+    std::string path;      // the sound file
+    std::string title;     // its file name
+    std::string set_name;  // the target set analysed against
+    pitch::TargetSet set;  // ... with --expect's extra targets
+    std::string expect;    // what was meant ("" = nearest)
+    double a4_hz = 440.0;
+    OneVoiceAnalysis analysis;
+    std::string error;  // one line when it could not be analysed (the rest is then empty)
+};
+// Never throws: a failure is kept in `error`. default_set is used when no sidecar names one.
+ReviewedTake review_take(const std::string& path, const std::string& default_set);
 
 }  // namespace beatless::ui

@@ -2,12 +2,26 @@
 #include "ui/session/take_words.h"
 
 #include "pitch/base/text.h"
+#include "ui/session/target_files.h"
 
 #include <cmath>
 
 namespace beatless::ui {
 
 using pitch::format_trimmed;
+
+std::string target_text_of(const pitch::TargetSet& set, int index) {
+    if (index < 0 || static_cast<std::size_t>(index) >= set.targets.size()) return "";
+    return set.targets[static_cast<std::size_t>(index)].interval.str();
+}
+
+std::string target_name_of(const pitch::TargetSet& set, int index) {
+    if (index < 0 || static_cast<std::size_t>(index) >= set.targets.size()) return "";
+    const pitch::Target& t = set.targets[static_cast<std::size_t>(index)];
+    if (!t.name.empty()) return t.name;
+    const std::string* n = interval_names().find(t.interval);
+    return n ? *n : "";
+}
 
 std::string root_words(const pitch::RootEstimate& e) {
     switch (e.status) {
@@ -37,6 +51,35 @@ std::string summary_words(const pitch::TargetSummary& row, const std::string& na
     if (row.count > 1) s += ", spread " + format_trimmed(row.spread_cents, 1) + " cents";
     s += ")";
     return s;
+}
+
+std::string off_words(double dev_cents, bool intervals) {
+    if (!std::isfinite(dev_cents)) return "not measured";
+    if (std::fabs(dev_cents) < 0.05) return "in tune";
+    return format_trimmed(std::fabs(dev_cents), 1) + " c " +
+           (dev_cents > 0 ? (intervals ? "wide" : "sharp") : (intervals ? "narrow" : "flat"));
+}
+
+std::string judgement_words(const pitch::NoteJudgement& j, const pitch::TargetSet& set, bool intervals) {
+    auto text = [&](std::size_t i) { return i < set.targets.size() ? set.targets[i].interval.str() : std::string(); };
+    if (j.between)
+        return "between targets: " + off_words(j.nearest.dev_cents, intervals) + " of " + text(j.nearest.index) +
+               ", the nearest";
+    if (j.meant_index >= 0 && j.nearer_other)
+        return "meant " + text(static_cast<std::size_t>(j.meant_index)) + ", sung " +
+               off_words(j.meant_dev_cents, intervals) + ": that is " +
+               format_trimmed(std::fabs(j.nearest.dev_cents), 1) + " c from " + text(j.nearest.index);
+    return "";
+}
+
+std::string nothing_found_words(double loudest_dbfs, double snr_db, bool intervals) {
+    std::string s = std::string("no held ") + (intervals ? "intervals" : "notes") + " found: loudest " +
+                    format_trimmed(loudest_dbfs, 0) + " dBFS, estimated signal-to-noise ratio " +
+                    (std::isfinite(snr_db) ? format_trimmed(snr_db, 0) + " dB" : std::string("unknown"));
+    if (std::isfinite(snr_db) && snr_db < 10.0)
+        return s + "; try a quieter room, the microphone closer to the performer, or a louder take";
+    if (loudest_dbfs < -40.0) return s + "; try recording louder (nearer the microphone or with more gain)";
+    return s + "; try notes held longer than 0.15 s, or --lowest for notes below 55 Hz";
 }
 
 }  // namespace beatless::ui

@@ -1,6 +1,7 @@
 // Take words — the sentences a take's review prints, made from pitch/'s numbers.
 #pragma once
 
+#include "pitch/measure/intent.h"
 #include "pitch/measure/root_detect.h"
 #include "pitch/measure/segment.h"
 
@@ -10,8 +11,20 @@ namespace beatless::ui {
 
 // "root 110.001 Hz, confidence 0.97 (8 harmonics agree within 0.12 cents)", or why none was found.
 std::string root_words(const pitch::RootEstimate& e);
+// A target of the set by index: its ratio or cents ("7/5", "600c") and its name (the set's own, else the trade's,
+// targets/names.toml); "" for an index out of range (a note between targets).
+std::string target_text_of(const pitch::TargetSet& set, int index);
+std::string target_name_of(const pitch::TargetSet& set, int index);
 // "7/5 averages 6 cents flat (3 notes, spread 1.2 cents)"; between two voices
 // (intervals true) "... 6 cents narrow (3 intervals, ...)", wide for sharp.
 std::string summary_words(const pitch::TargetSummary& row, const std::string& name, bool intervals);
+// What a note's judgement adds to its deviation, or "" when it is plainly the nearest target:
+// "meant 45/32, sung 12 c flat: that is 4.3 c from 7/5"; "between targets: 29.2 c flat of 7/5, the nearest".
+// Between two voices (intervals true): narrow and wide.
+std::string judgement_words(const pitch::NoteJudgement& j, const pitch::TargetSet& set, bool intervals);
+// "12 c flat", "0.5 c sharp", "in tune"; narrow and wide between two voices.
+std::string off_words(double dev_cents, bool intervals);
+// The one-line hint when a take gave nothing: the level, the estimated SNR and what to try.
+std::string nothing_found_words(double loudest_dbfs, double snr_db, bool intervals);
 
 }  // namespace beatless::ui

@@ -1,6 +1,9 @@
 // Words shared by the commands and the screens (wording.h).
 #include "ui/session/wording.h"
 
+#include <cmath>
+#include <cstdio>
+
 #include "pitch/theory/beats.h"
 
 namespace beatless::ui {
@@ -66,6 +69,49 @@ std::string choice_text(audio::ChoiceWhy why, audio::Direction dir) {
         case audio::ChoiceWhy::input_device: return "the input's own device";
     }
     return "the default";
+}
+
+std::string_view blend_key(pitch::Blend b) {
+    switch (b) {
+        case pitch::Blend::one_series: return "one_series";
+        case pitch::Blend::near_unison: return "near_unison";
+        case pitch::Blend::octave: return "octave";
+        case pitch::Blend::none: break;
+    }
+    return "";
+}
+
+std::string_view blend_words(pitch::Blend b) {
+    switch (b) {
+        case pitch::Blend::one_series: return "one pitch: a single note, or a unison or octave too close to tell";
+        case pitch::Blend::near_unison: return "one pitch: a unison, the two voices too close to tell apart";
+        case pitch::Blend::octave: return "one pitch: an octave whose upper voice hides in the lower's partials";
+        case pitch::Blend::none: break;
+    }
+    return "";
+}
+
+std::string_view mover_words(pitch::DuoMover m) {
+    switch (m) {
+        case pitch::DuoMover::low: return "lower voice";
+        case pitch::DuoMover::high: return "upper voice";
+        case pitch::DuoMover::none: break;
+    }
+    return "";
+}
+
+std::string_view interval_word(double dev_cents, double in_tune_cents) {
+    return std::fabs(dev_cents) <= in_tune_cents ? "in tune" : dev_cents > 0 ? "wide" : "narrow";
+}
+
+std::string move_words(const pitch::DuoAdvice& a) {
+    if (!a.judged) return "";
+    if (a.mover == pitch::DuoMover::none) return "in tune";
+    char buf[64];
+    const double c = std::fabs(a.move_cents);
+    std::snprintf(buf, sizeof buf, "move the %s %s %.*f c", std::string(mover_words(a.mover)).c_str(),
+                  a.move_cents > 0 ? "up" : "down", c < 9.95 ? 1 : 0, c);
+    return buf;
 }
 
 }  // namespace beatless::ui

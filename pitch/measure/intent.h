@@ -1,0 +1,57 @@
+// Intent — each held note judged against the target the performer meant, and flagged when it lies between targets.
+// Method: the notes are aligned in order with the expected sequence (repeated as often as the take needs) by a
+// least-cost alignment (Needleman and Wunsch, J. Mol. Biol. 48(3), 1970): pairing a note with an expected target costs
+// its distance in cents (at the nearest octave), leaving a target out skip_target_cents, leaving a note out (a note
+// sung is surely meant as something) skip_note_cents, and targets after the last note nothing (the take stopped).
+// A note meant nothing and farther than between_cents from every target is "between targets".
+// Thread: any. Allocates: yes (the alignment table, notes x expected).
+#pragma once
+
+#include "pitch/theory/targets.h"
+
+#include <cmath>
+#include <span>
+#include <vector>
+
+namespace beatless::pitch {
+
+struct IntentConfig {
+    double between_cents = 25.0;      // a note meant nothing and farther than this from every target is "between
+                                      //   targets" (default 25 cents: a quarter of a semitone, common practice)
+    double skip_target_cents = 50.0;  // cost of an expected target no note was paired with (default 50 cents)
+    double skip_note_cents = 100.0;   // cost of a note paired with nothing (default 100 cents: a note more than
+                                      //   150 cents from the target due is taken as not meant)
+    bool octave_equivalent = true;    // targets match in every octave (default on)
+};
+
+struct NoteJudgement {
+    int meant_index = -1;             // into the TargetSet: the target meant; -1 when nothing was expected of it
+    int meant_octaves = 0;            // octave shift of the meant target (the nearest to the note)
+    double meant_target_cents = NAN;  // the meant target after the shift
+    double meant_dev_cents = NAN;     // note minus the meant target: + is sharp
+    TargetMatch nearest;              // the nearest target of the set, whatever was meant
+    bool nearer_other = false;        // something was meant and another target lies nearer
+    bool between = false;             // nothing meant, and every target is farther than between_cents
+    // The target the note is judged against: the meant one, else the nearest unless between (-1).
+    int judged_index() const noexcept {
+        return meant_index >= 0 ? meant_index : (between ? -1 : static_cast<int>(nearest.index));
+    }
+    int judged_octaves() const noexcept { return meant_index >= 0 ? meant_octaves : nearest.octaves; }
+    double judged_dev_cents() const noexcept {
+        return meant_index >= 0 ? meant_dev_cents : (between ? NAN : nearest.dev_cents);
+    }
+    double judged_target_cents() const noexcept {
+        return meant_index >= 0 ? meant_target_cents : (between ? NAN : nearest.target_cents);
+    }
+};
+
+// The target `index` of the set at the octave nearest to measured_cents.
+TargetMatch match_target(const TargetSet& set, std::size_t index, double measured_cents, bool octave_equivalent);
+
+// Judges notes (cents above the root, in time order) against `expected` (indices into `set`, in the order the
+// performer meant them; empty: nothing expected, one: every note meant it). The set must not be empty; indices out
+// of range throw Error.
+std::vector<NoteJudgement> judge_notes(const TargetSet& set, std::span<const double> note_cents,
+                                       std::span<const int> expected, const IntentConfig& config = {});
+
+}  // namespace beatless::pitch

@@ -1,0 +1,204 @@
+// The Review screen drawn in-process: its takes listed newest first, a take opened, zoomed and a note selected; the
+// trace and the note marks sit where the take's known numbers put them.
+//
+// Sources: the takes are generated (tests/mix_signals.h: a drone with 1/n partials and a voice whose vibrato is a
+// sine in cents, common practice) and written as FLAC through the take writer with a sidecar; cents by Ellis (1885),
+// 1200 log2(f / root). The screen's axes (ui/screens/screen_review.h ReviewView) map time and cents to pixels
+// linearly; the checks read the rasterizer's own pixels back. Bars: a mark within 1.5 px of its true centre and of
+// its true start and end (0.03 s, the analysis's own bar, tests/test_cli_analyze.cpp), in the colour of its state
+// (ui/screens/palette.h: sharp orange, flat sky blue, in tune bluish green); the trace within 6 px of the voice's
+// vibrato peak.
+#include "audio/take_writer.h"
+#include "tests/cli.h"
+#include "tests/mix_signals.h"
+#include "ui/render/imgui_host.h"
+#include "ui/render/raster.h"
+#include "ui/screens/palette.h"
+#include "ui/screens/screen.h"
+#include "ui/screens/screen_review.h"
+#include "ui/screens/widgets.h"
+#include "ui/session/app_state.h"
+#include "ui/session/settings.h"
+#include "ui/session/take_file.h"
+
+#include <doctest/doctest.h>
+
+#include <cmath>
+#include <cstdlib>
+#include <filesystem>
+#include <string>
+#include <vector>
+
+using namespace beatless;
+using namespace beatless::testsig;
+
+namespace {
+
+constexpr double kFs = 44100.0;
+
+// A take in `dir` named for `stem`, with its sidecar: the 7-limit set, root A2.
+void write_take(const std::filesystem::path& dir, const std::string& stem, const Take& take) {
+    const std::filesystem::path flac = dir / (stem + ".flac");
+    audio::TakeWriter w(flac.string(), kFs, 1);
+    w.write(take.samples);
+    w.close();
+    ui::TakeInfo info;
+    info.audio_path = flac;
+    info.sidecar_path = ui::take_sidecar_path(flac);
+    info.rate_hz = kFs;
+    info.root_hz = 110.0;
+    info.root = "A2";
+    info.targets = "7-limit";
+    info.screen = "practice";
+    info.duration_s = take.dur_s;
+    info.complete = true;
+    ui::write_take_sidecar(info);
+}
+
+struct ReviewRig {
+    ui::AppState app;
+    ui::ImGuiHost host;
+    ui::Rasterizer raster;
+    ui::PixelBuffer buf;
+    std::unique_ptr<ui::Screen> screen = ui::make_review_screen();
+    static ui::AppOptions options(int note, double span_s) {
+        ui::AppOptions o;
+        o.simulated = true;
+        o.no_input = true;
+        o.save_settings = false;
+        o.review_note = note;
+        o.review_span_s = span_s;
+        return o;
+    }
+    static ui::HostConfig host_config() {
+        ui::HostConfig hc;
+        hc.width_px = 1280;
+        hc.height_px = 800;
+        return hc;
+    }
+    static ui::Settings settings() {
+        ui::Settings s;
+        s.caution_acknowledged = true;
+        return s;
+    }
+    ReviewRig(int note, double span_s)
+        : app(settings(), std::filesystem::temp_directory_path() / "beatless-never-written.toml",
+              options(note, span_s)),
+          host(host_config()) {
+        app.start();
+    }
+    ~ReviewRig() { app.shutdown(); }
+    void frames(int n) {
+        constexpr double dt = 1.0 / 60.0;
+        for (int i = 0; i < n; ++i)
+            ui::render_offscreen(host, raster, buf, static_cast<float>(dt), [&] {
+                app.update(dt);
+                const ImVec2 disp = ImGui::GetIO().DisplaySize;
+                const float u = ui::ui_unit();
+                const float top = std::round(2.3f * u), status_h = std::round(1.9f * u);  // as the deck lays out
+                screen->build(app, ui::ScreenArea{ImVec2(0, top), ImVec2(disp.x, disp.y - top - status_h)}, dt);
+            });
+    }
+};
+
+bool bright(std::uint32_t c) {
+    const unsigned r = c & 0xFF, g = (c >> 8) & 0xFF, b = (c >> 16) & 0xFF;
+    return r > 150 && g > 150 && b > 150;
+}
+
+}  // namespace
+
+TEST_CASE("Review: takes newest first; a take opened, zoomed, a note selected; marks and trace where the numbers say") {
+    beatless::test::TempDir home;
+    setenv("BEATLESS_HOME", home.path().c_str(), 1);
+    const std::filesystem::path takes = ui::takes_dir();
+    std::filesystem::create_directories(takes);
+    // 7/5 sung 9 c sharp, 3/2 12 c flat, 5/4 3 c sharp, an octave above A2 (mix_signals.h take_notes: vibrato
+    // 20-45 c at 5-6.5 Hz); each is nearest its own target in the 7-limit set (10/7 and 9/7 are 26 and 46 c away).
+    const Take newest = drone_and_voice(kFs, 110.0, {{7.0 / 5.0, 9.0}, {3.0 / 2.0, -12.0}, {5.0 / 4.0, 3.0}}, 41);
+    const Take older = drone_and_voice(kFs, 110.0, {{7.0 / 5.0, 0.0}}, 43);
+    write_take(takes, "2026-12-02_090000", older);
+    write_take(takes, "2026-12-03_161502", newest);
+
+    ReviewRig rig(2, 3.0);
+    rig.frames(3);
+    const ui::ReviewView& v = *ui::review_view(*rig.screen);
+    REQUIRE(v.takes.size() == 2);
+    CHECK(v.takes[0].rfind("2026-12-03 16:15", 0) == 0);
+    CHECK(v.takes[1].rfind("2026-12-02 09:00", 0) == 0);
+    REQUIRE(v.open);
+    CHECK(v.title == "2026-12-03_161502.flac");
+    CHECK(v.selected == 1);
+    // Zoomed to 3 s around the second note.
+    CHECK(std::fabs((v.t1_s - v.t0_s) - 3.0) < 1e-9);
+    const Note& second = newest.notes[1];
+    CHECK(std::fabs(0.5 * (v.t0_s + v.t1_s) - 0.5 * (second.start_s + second.end_s)) < 0.05);
+
+    const std::uint32_t want_colour[] = {ui::palette::kSharp, ui::palette::kFlat, ui::palette::kInTune};
+    REQUIRE(!v.marks.empty());
+    bool saw_selected = false;
+    for (const ui::ReviewMarkView& m : v.marks) {
+        CAPTURE(m.note);
+        REQUIRE(m.note >= 0);
+        REQUIRE(m.note < 3);
+        const Note& n = newest.notes[static_cast<std::size_t>(m.note)];
+        const double truth_cents = 1200.0 * std::log2(n.centre_hz / 110.0);
+        CHECK(std::fabs(m.y - v.y_of(truth_cents)) < 1.5);
+        const float px_per_s = (v.plot_x1 - v.plot_x0) / static_cast<float>(v.t1_s - v.t0_s);
+        if (n.start_s > v.t0_s) CHECK(std::fabs(m.x0 - v.x_of(n.start_s)) < 0.03f * px_per_s + 1.5f);
+        if (n.end_s < v.t1_s) CHECK(std::fabs(m.x1 - v.x_of(n.end_s)) < 0.03f * px_per_s + 1.5f);
+        CHECK(m.colour == want_colour[m.note]);
+        // The bar's own pixels, a quarter in from its visible left end.
+        const float a = std::max(m.x0, v.plot_x0), b = std::min(m.x1, v.plot_x1);
+        const int x = static_cast<int>(a + 0.25f * (b - a)), y = static_cast<int>(std::floor(m.y));
+        CHECK(rig.buf.at(x, y) == want_colour[m.note]);
+        saw_selected = saw_selected || m.note == 1;
+    }
+    CHECK(saw_selected);
+
+    // The trace: at a crest of the selected note's vibrato, the line passes the crest's pitch.
+    const double centre_cents = 1200.0 * std::log2(second.centre_hz / 110.0);
+    int crests = 0;
+    for (int k = 0; k < 20; ++k) {
+        // sin(2 pi rate u + phase) = 1 at u = (pi/2 - phase + 2 pi k) / (2 pi rate).
+        const double u = (0.5 * M_PI - second.vib_phase + kTwoPi * k) / (kTwoPi * second.vib_rate_hz);
+        const double t = second.start_s + u;
+        if (u < 0.3 || t > second.end_s - 0.1 || t < v.t0_s || t > v.t1_s) continue;
+        if (std::fabs(t - 0.5 * (second.start_s + second.end_s)) < 0.2) continue;  // under the deviation's label
+        const double crest = centre_cents + note_offset_cents(second, t);
+        const int x = static_cast<int>(std::round(v.x_of(t)));
+        const int y = static_cast<int>(std::round(v.y_of(crest)));
+        bool found = false;
+        for (int dy = -6; dy <= 6 && !found; ++dy) found = bright(rig.buf.at(x, y + dy));
+        CAPTURE(t);
+        CHECK(found);
+        ++crests;
+    }
+    CHECK(crests >= 3);
+    unsetenv("BEATLESS_HOME");
+}
+
+TEST_CASE("snapshot --screen review --take: a PNG; bad --take, --note and --span are refused with one line") {
+    beatless::test::TempDir dir;
+    const Take take = drone_and_voice(kFs, 110.0, {{7.0 / 5.0, 5.0}, {10.0 / 7.0, -4.0}}, 47);
+    write_take(dir.path(), "2026-12-03_170000", take);
+    const std::string flac = dir.file("2026-12-03_170000.flac");
+    const std::vector<std::string> env = {"BEATLESS_HOME=" + dir.path()};
+    const auto r = beatless::test::run_program(
+        {"snapshot", "--screen", "review", "--take", flac, "--note", "2", "--span", "2", "--out", dir.file("r.png")},
+        env);
+    CHECK_MESSAGE(r.exit_code == 0, r.err);
+    CHECK(std::filesystem::file_size(dir.file("r.png")) > 1000);
+    const auto missing = beatless::test::run_program(
+        {"snapshot", "--screen", "review", "--take", dir.file("none.flac"), "--out", dir.file("x.png")}, env);
+    CHECK(missing.exit_code == 1);
+    CHECK(missing.err == "beatless: " + dir.file("none.flac") + ": no such file\n");
+    const auto zero =
+        beatless::test::run_program({"snapshot", "--screen", "review", "--note", "0", "--out", dir.file("x.png")}, env);
+    CHECK(zero.exit_code == 1);
+    CHECK(zero.err == "beatless: --note 0: notes are numbered from 1\n");
+    const auto span = beatless::test::run_program(
+        {"snapshot", "--screen", "review", "--span", "0.1", "--out", dir.file("x.png")}, env);
+    CHECK(span.exit_code == 1);
+    CHECK(span.err == "beatless: --span 0.1: out of range (0.5 to 36000 s)\n");
+}

@@ -1,0 +1,23 @@
+// The Practice screen's two-voice view — a double stop or a duet from one microphone, read as one interval.
+// Method: ours: the verdict is the interval's deviation from its just target (ui/session/duo_verdict.h); the lane
+// shows it, the info lines show both voices (secondary, labelled) and who should move, the trace both voices'
+// lines against the interval's target line, the beat cue the measured beat when the partials give one.
+// Thread: the UI thread. Allocates: only through ImGui's draw lists and the scratch it is given (sized once).
+#pragma once
+
+#include "ui/session/app_state.h"
+
+#include <imgui.h>
+
+#include <vector>
+
+namespace beatless::ui {
+
+struct DuoScratch {
+    std::vector<ImVec2> points = std::vector<ImVec2>(4096);  // the trace's polylines
+};
+
+// Draws everything above the controls into the area (x0, y0, w, h).
+void draw_practice_duo(AppState& app, ImDrawList* dl, float x0, float y0, float w, float h, DuoScratch& s);
+
+}  // namespace beatless::ui

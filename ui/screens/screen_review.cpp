@@ -1,0 +1,704 @@
+// Review — the takes, newest first, and one of them opened: its pitch trace against the target lines, zoomed and
+// scrolled in time, each held note marked with its deviation against the target it is judged by (meant, nearest, or
+// none between targets), the selected note's detail (spread, settle time, the audible pair's beat rate) with its
+// pitch and its exact target sounded by the reference voice, and the per-target summary.
+// Method: the analysis is `analyze`'s (ui/session/take_analysis.h, review_take); words from ui/session/take_words.h.
+// Thread: the UI thread. Allocates: yes (on opening a take; drawing reuses its buffers).
+//
+// Index: [state] the screen's members; [keys] keys and mouse; [list] the takes; [plot] trace and marks;
+// [detail] the selected note and the summary; [build] layout.
+#include "ui/screens/screen_review.h"
+
+#include "pitch/base/text.h"
+#include "ui/render/imgui_host.h"
+#include "ui/screens/palette.h"
+#include "ui/screens/take_report.h"
+#include "ui/screens/widgets.h"
+#include "ui/session/safe_file.h"
+#include "ui/session/take_analysis.h"
+#include "ui/session/take_export.h"
+#include "ui/session/take_file.h"
+#include "ui/session/take_words.h"
+#include "ui/session/wording.h"
+
+#define GLFW_INCLUDE_NONE
+#include <GLFW/glfw3.h>  // key codes only
+
+#include <algorithm>
+#include <climits>
+#include <cmath>
+#include <cstdio>
+#include <filesystem>
+#include <map>
+#include <optional>
+#include <string>
+#include <vector>
+
+namespace beatless::ui {
+
+namespace {
+
+// ---------------------------------------------------------------------------
+// [SECTION] State
+// ---------------------------------------------------------------------------
+
+constexpr KeyHelp kReviewKeys[] = {
+    {"Up / Down, Enter", "choose a take, open it"},   {"Left / Right", "previous / next note"},
+    {"+ / - or wheel", "zoom in / out in time"},      {"PgUp / PgDn, Home", "scroll; the whole take"},
+    {"T / P", "sound the note's target / its pitch"},
+};
+
+constexpr double kMinSpanS = 0.5;  // the closest zoom
+constexpr const char* kDefaultSet = "7-limit";
+
+struct ListRow {
+    int notes = -1;  // -1 until analysed
+    double mean_dev_cents = NAN;
+    std::string error;
+};
+
+std::string duration_words(double s) {
+    if (!std::isfinite(s)) return "?";
+    char buf[32];
+    const long whole = std::lround(std::floor(s));
+    std::snprintf(buf, sizeof buf, "%ld:%02ld", whole / 60, whole % 60);
+    return buf;
+}
+
+// "2026-12-03 16:15" from the take's name (its start, local time), else the file name.
+std::string take_when(const TakeInfo& t) {
+    std::string s = t.audio_path.stem().string();
+    if (s.size() >= 17 && s[10] == '_') return s.substr(0, 10) + " " + s.substr(11, 2) + ":" + s.substr(13, 2);
+    return s;
+}
+
+class ReviewScreen final : public Screen {
+public:
+    ScreenId id() const override { return ScreenId::review; }
+    void build(AppState& app, const ScreenArea& area, double dt_s) override;
+    std::span<const KeyHelp> keys() const override { return kReviewKeys; }
+
+    const ReviewView& view() const { return view_; }
+    void select(int note, double span_s);
+
+private:
+    void list_takes_now();
+    void open(AppState& app, const std::string& path);
+    void analyse_one_listed(AppState& app);
+    void handle_keys(AppState& app);
+    void show_whole();
+    void follow_selected();
+    void draw_list(AppState& app, ImDrawList* dl, float x, float y, float w, float h);
+    void draw_summary(ImDrawList* dl, float x, float y, float w, float h);
+    double in_tune_cents_ = 5.0;  // the settings' in-tune width, for colours
+    void draw_plot(AppState& app, ImDrawList* dl, float x, float y, float w, float h);
+    void draw_detail(AppState& app, ImDrawList* dl, float x, float y, float w, float h);
+    void sound(AppState& app, bool target);
+    void export_report(AppState& app);
+    void rename(AppState& app, const std::string& stem);
+    char rename_buf_[96] = "";
+    std::string target_text(int index) const;
+
+    bool started_ = false;
+    std::vector<TakeInfo> takes_;
+    std::map<std::string, ListRow> rows_;  // by path
+    int list_sel_ = 0;
+    std::optional<ReviewedTake> take_;
+    double t0_s_ = 0.0, span_s_ = 10.0;
+    int selected_ = -1;
+    ReviewView view_;
+    bool confirm_delete_ = false;
+};
+
+std::string ReviewScreen::target_text(int index) const {
+    if (!take_ || index < 0 || static_cast<std::size_t>(index) >= take_->set.targets.size()) return "";
+    return take_->set.targets[static_cast<std::size_t>(index)].interval.str();
+}
+
+void ReviewScreen::list_takes_now() {
+    std::vector<std::string> problems;
+    try {
+        takes_ = list_takes(takes_dir(), &problems);
+    } catch (const std::exception&) {
+        takes_.clear();
+    }
+    list_sel_ = std::clamp(list_sel_, 0, std::max(0, static_cast<int>(takes_.size()) - 1));
+}
+
+ListRow row_of(const ReviewedTake& r) {
+    ListRow row;
+    row.error = r.error;
+    if (!r.error.empty()) return row;
+    row.notes = static_cast<int>(r.analysis.notes.size());
+    double sum = 0.0;
+    int n = 0;
+    for (const auto& note : r.analysis.notes)
+        if (std::isfinite(note.dev_cents)) sum += note.dev_cents, ++n;
+    row.mean_dev_cents = n > 0 ? sum / n : NAN;
+    return row;
+}
+
+void ReviewScreen::open(AppState& app, const std::string& path) {
+    take_ = review_take(path, app.settings().target_set.empty() ? kDefaultSet : app.settings().target_set);
+    rows_[path] = row_of(*take_);
+    selected_ = take_->analysis.notes.empty() ? -1 : 0;
+    show_whole();
+    if (!take_->error.empty()) app.post(take_->error, true);
+}
+
+// One take of the list analysed per frame, so the list fills in without a long pause.
+void ReviewScreen::analyse_one_listed(AppState& app) {
+    for (const TakeInfo& t : takes_) {
+        const std::string p = t.audio_path.string();
+        if (rows_.count(p)) continue;
+        rows_[p] = row_of(review_take(p, app.settings().target_set.empty() ? kDefaultSet : app.settings().target_set));
+        return;
+    }
+}
+
+void ReviewScreen::show_whole() {
+    t0_s_ = 0.0;
+    span_s_ = take_ && take_->error.empty() ? std::max(kMinSpanS, take_->analysis.info.dur_s()) : 10.0;
+}
+
+void ReviewScreen::follow_selected() {
+    if (!take_ || selected_ < 0) return;
+    const auto& n = take_->analysis.notes[static_cast<std::size_t>(selected_)];
+    if (n.start_s < t0_s_ || n.end_s > t0_s_ + span_s_)
+        t0_s_ = std::max(0.0, 0.5 * (n.start_s + n.end_s) - 0.5 * span_s_);
+}
+
+void ReviewScreen::select(int note, double span_s) {
+    if (!take_) return;
+    const int count = static_cast<int>(take_->analysis.notes.size());
+    selected_ = note >= 0 && note < count ? note : -1;
+    if (span_s > 0.0) span_s_ = std::max(kMinSpanS, span_s);
+    if (selected_ >= 0) {
+        const auto& n = take_->analysis.notes[static_cast<std::size_t>(selected_)];
+        t0_s_ = std::max(0.0, 0.5 * (n.start_s + n.end_s) - 0.5 * span_s_);
+    }
+}
+
+// ---------------------------------------------------------------------------
+// [SECTION] Keys
+// ---------------------------------------------------------------------------
+
+void ReviewScreen::sound(AppState& app, bool target) {
+    if (!take_ || selected_ < 0) return;
+    const auto& n = take_->analysis.notes[static_cast<std::size_t>(selected_)];
+    if (target && !std::isfinite(n.target_cents)) return;
+    const double hz = target ? take_->analysis.root_hz * std::exp2(n.target_cents / 1200.0) : n.centre_f0_hz;
+    if (!app.sound_tone(hz, 2.0))
+        app.post(app.caution_needed() ? "confirm the hearing caution first" : "no output device to sound it on");
+}
+
+// Beside the take: the printable page `analyze --report` draws (NAME.report.png) and what `analyze --format csv`
+// and `--format json` print (NAME.csv, NAME.json), each written safely (ui/session/safe_file.h).
+void ReviewScreen::export_report(AppState& app) {
+    if (!take_ || !take_->error.empty()) return;
+    std::filesystem::path p(take_->path);
+    ReportData d = one_voice_report_data(take_->set, take_->analysis);
+    d.title = take_->title;
+    d.subtitle = "root " + pitch::format_trimmed(take_->analysis.root_hz, 3) +
+                 " Hz   \u00b7   targets: " + take_->set.title +
+                 (take_->expect.empty() ? "" : "   \u00b7   meant: " + take_->expect);
+    try {
+        write_report(std::filesystem::path(p).replace_extension(".report.png").string(), d);
+        write_file_safely(std::filesystem::path(p).replace_extension(".csv"),
+                          one_voice_csv(take_->set, take_->analysis));
+        write_file_safely(std::filesystem::path(p).replace_extension(".json"),
+                          one_voice_json(take_->path, take_->set, take_->analysis) + "\n");
+        app.post("report, CSV and JSON written beside " + take_->title);
+    } catch (const std::exception& e) {
+        app.post(e.what(), true);
+    }
+}
+
+// Renames the take's sound file and its sidecar together; a name with a folder in it, or one already taken, is
+// refused with a message.
+void ReviewScreen::rename(AppState& app, const std::string& typed) {
+    if (!take_) return;
+    const std::string stem(pitch::trim(typed));
+    if (stem.empty() || stem.find('/') != std::string::npos || stem == "." || stem == "..") {
+        app.post("rename: " + pitch::quote(typed) + " is not a file name", true);
+        return;
+    }
+    namespace fs = std::filesystem;
+    const fs::path from(take_->path);
+    const fs::path to = from.parent_path() / (stem + from.extension().string());
+    std::error_code ec;
+    if (fs::exists(to, ec) || fs::exists(take_sidecar_path(to), ec)) {
+        app.post("rename: " + to.string() + " already exists", true);
+        return;
+    }
+    const bool has_sidecar = fs::exists(take_sidecar_path(from), ec);
+    fs::rename(from, to, ec);
+    if (!ec && has_sidecar) fs::rename(take_sidecar_path(from), take_sidecar_path(to), ec);
+    if (ec) {
+        app.post("rename: " + from.string() + ": " + ec.message(), true);
+        return;
+    }
+    rows_.erase(take_->path);
+    take_->path = to.string();
+    take_->title = to.filename().string();
+    rows_[take_->path] = row_of(*take_);
+    rename_buf_[0] = '\0';
+    list_takes_now();
+    app.post("renamed to " + take_->title);
+}
+
+void ReviewScreen::handle_keys(AppState& app) {
+    if (ImGui::GetIO().WantTextInput) return;
+    const int count = take_ ? static_cast<int>(take_->analysis.notes.size()) : 0;
+    if (ImGui::IsKeyPressed(GLFW_KEY_RIGHT, true) && count > 0) {
+        selected_ = std::min(count - 1, selected_ + 1);
+        follow_selected();
+    }
+    if (ImGui::IsKeyPressed(GLFW_KEY_LEFT, true) && count > 0) {
+        selected_ = std::max(0, selected_ - 1);
+        follow_selected();
+    }
+    auto zoom = [&](double by, double at_s) {
+        const double dur = take_ ? std::max(kMinSpanS, take_->analysis.info.dur_s()) : 10.0;
+        const double span = std::clamp(span_s_ * by, kMinSpanS, dur);
+        t0_s_ = std::clamp(at_s - (at_s - t0_s_) * span / span_s_, 0.0, std::max(0.0, dur - span));
+        span_s_ = span;
+    };
+    const double mid = t0_s_ + 0.5 * span_s_;
+    if (ImGui::IsKeyPressed(GLFW_KEY_EQUAL, true) || ImGui::IsKeyPressed(GLFW_KEY_KP_ADD, true)) zoom(0.5, mid);
+    if (ImGui::IsKeyPressed(GLFW_KEY_MINUS, true) || ImGui::IsKeyPressed(GLFW_KEY_KP_SUBTRACT, true)) zoom(2.0, mid);
+    if (ImGui::IsKeyPressed(GLFW_KEY_PAGE_DOWN, true)) t0_s_ += 0.5 * span_s_;
+    if (ImGui::IsKeyPressed(GLFW_KEY_PAGE_UP, true)) t0_s_ = std::max(0.0, t0_s_ - 0.5 * span_s_);
+    if (ImGui::IsKeyPressed(GLFW_KEY_HOME, false)) show_whole();
+    if (take_ && take_->error.empty()) {
+        const double dur = std::max(kMinSpanS, take_->analysis.info.dur_s());
+        t0_s_ = std::clamp(t0_s_, 0.0, std::max(0.0, dur - span_s_));
+    }
+    if (ImGui::IsKeyPressed(GLFW_KEY_DOWN, true) && !takes_.empty())
+        list_sel_ = std::min(static_cast<int>(takes_.size()) - 1, list_sel_ + 1);
+    if (ImGui::IsKeyPressed(GLFW_KEY_UP, true)) list_sel_ = std::max(0, list_sel_ - 1);
+    if ((ImGui::IsKeyPressed(GLFW_KEY_ENTER, false) || ImGui::IsKeyPressed(GLFW_KEY_KP_ENTER, false)) &&
+        list_sel_ < static_cast<int>(takes_.size()))
+        open(app, takes_[static_cast<std::size_t>(list_sel_)].audio_path.string());
+    if (ImGui::IsKeyPressed(GLFW_KEY_T, false)) sound(app, true);
+    if (ImGui::IsKeyPressed(GLFW_KEY_P, false)) sound(app, false);
+    // The wheel over the plot zooms about the time under the pointer.
+    const ImVec2 m = ImGui::GetIO().MousePos;
+    const float wheel = ImGui::GetIO().MouseWheel;
+    if (wheel != 0.0f && view_.open && m.x >= view_.plot_x0 && m.x <= view_.plot_x1 && m.y >= view_.plot_y0 &&
+        m.y <= view_.plot_y1) {
+        const double at =
+            view_.t0_s + (m.x - view_.plot_x0) / (view_.plot_x1 - view_.plot_x0) * (view_.t1_s - view_.t0_s);
+        zoom(std::pow(0.8, static_cast<double>(wheel)), at);
+    }
+}
+
+// ---------------------------------------------------------------------------
+// [SECTION] List
+// ---------------------------------------------------------------------------
+
+void ReviewScreen::draw_list(AppState& app, ImDrawList* dl, float x, float y, float w, float h) {
+    const float u = ui_unit();
+    draw_panel(dl, x, y, w, h);
+    const float pad = std::round(0.6f * u);
+    draw_text(dl, FontFace::medium, ImVec2(x + pad, y + pad), palette::kText, "Takes");
+    float ry = y + pad + std::round(1.9f * u);
+    view_.takes.clear();
+    if (takes_.empty()) {
+        draw_text(dl, FontFace::body, ImVec2(x + pad, ry), palette::kTextDim, "No takes yet.");
+        draw_text(dl, FontFace::body, ImVec2(x + pad, ry + 1.4f * u), palette::kTextDim,
+                  fit_text(FontFace::body, "Record one while practising.", w - 2 * pad));
+        return;
+    }
+    const float row_h = std::round(3.8f * u);
+    const int fit = std::max(1, static_cast<int>((y + h - pad - ry) / row_h));
+    const int first = std::clamp(list_sel_ - fit + 1, 0, std::max(0, static_cast<int>(takes_.size()) - fit));
+    for (int i = first; i < static_cast<int>(takes_.size()) && i < first + fit; ++i) {
+        const TakeInfo& t = takes_[static_cast<std::size_t>(i)];
+        const std::string path = t.audio_path.string();
+        const bool opened = take_ && take_->path == path;
+        const ImVec2 a(x + 0.5f * pad, ry), b(x + w - 0.5f * pad, ry + row_h - 2.0f);
+        if (i == list_sel_) dl->AddRectFilled(a, b, palette::kPanelRaised, std::round(0.2f * u));
+        if (opened) dl->AddRect(a, b, palette::kAccent, std::round(0.2f * u), 0, 2.0f);
+        ImGui::SetCursorScreenPos(a);
+        ImGui::PushID(i);
+        if (ImGui::InvisibleButton("take", ImVec2(b.x - a.x, b.y - a.y))) {
+            list_sel_ = i;
+            open(app, path);
+        }
+        ImGui::PopID();
+        const auto it = rows_.find(path);
+        const std::string line2 =
+            duration_words(t.duration_s.value_or(NAN)) + "   " + (t.targets.empty() ? "-" : t.targets);
+        std::string line3 = "analysing ...";
+        if (it != rows_.end() && it->second.error.empty()) {
+            line3 = std::to_string(it->second.notes) + (it->second.notes == 1 ? " note" : " notes");
+            if (std::isfinite(it->second.mean_dev_cents))
+                line3 += ", mean " + signed_text(it->second.mean_dev_cents, 1) + " c";
+        } else if (it != rows_.end()) {
+            line3 = "cannot be read";
+        }
+        const std::string line1 = take_when(t) + (t.complete ? "" : "  (cut short)");
+        draw_text(dl, FontFace::bold, ImVec2(a.x + pad, a.y + 0.15f * u), palette::kText,
+                  fit_text(FontFace::bold, line1, w - 3 * pad));
+        draw_text(dl, FontFace::body, ImVec2(a.x + pad, a.y + 1.3f * u), palette::kTextDim,
+                  fit_text(FontFace::body, line2, w - 3 * pad));
+        draw_text(dl, FontFace::body, ImVec2(a.x + pad, a.y + 2.5f * u), palette::kTextDim,
+                  fit_text(FontFace::body, line3, w - 3 * pad));
+        view_.takes.push_back(line1 + " | " + line2 + " | " + line3);
+        ry += row_h;
+    }
+}
+
+// ---------------------------------------------------------------------------
+// [SECTION] Plot
+// ---------------------------------------------------------------------------
+
+void ReviewScreen::draw_plot(AppState& app, ImDrawList* dl, float x, float y, float w, float h) {
+    const float u = ui_unit();
+    draw_panel(dl, x, y, w, h);
+    view_.open = false;
+    view_.marks.clear();
+    if (!take_) {
+        draw_text(dl, FontFace::body, ImVec2(x + u, y + u), palette::kTextDim, "no take open");
+        return;
+    }
+    if (!take_->error.empty()) {
+        draw_text(dl, FontFace::body, ImVec2(x + u, y + u), palette::kWarning,
+                  fit_text(FontFace::body, take_->error, w - 2 * u));
+        return;
+    }
+    const OneVoiceAnalysis& a = take_->analysis;
+    // Cents range: the notes and the voiced trace, with a margin.
+    double lo = INFINITY, hi = -INFINITY;
+    for (const auto& n : a.notes) lo = std::min(lo, n.cents_above_root), hi = std::max(hi, n.cents_above_root);
+    if (!std::isfinite(lo))
+        for (std::size_t i = 0; i < a.trace.size(); ++i)
+            if (a.trace[i].frames > 0)
+                lo = std::min(lo, a.trace[i].mean_cents), hi = std::max(hi, a.trace[i].mean_cents);
+    if (!std::isfinite(lo)) lo = 0.0, hi = 1200.0;
+    lo -= 60.0;
+    hi += 60.0;
+    const float label_w = std::round(5.0f * u);
+    view_.open = true;
+    view_.title = take_->title;
+    view_.plot_x0 = x + label_w;
+    view_.plot_x1 = x + w - std::round(0.6f * u);
+    view_.plot_y0 = y + std::round(0.6f * u);
+    view_.plot_y1 = y + h - std::round(1.8f * u);
+    view_.t0_s = t0_s_;
+    view_.t1_s = t0_s_ + span_s_;
+    view_.cents_lo = lo;
+    view_.cents_hi = hi;
+    view_.selected = selected_;
+    const ReviewView& v = view_;
+    dl->PushClipRect(ImVec2(x, v.plot_y0), ImVec2(v.plot_x1, v.plot_y1 + 1.0f), true);
+    // Target lines in every octave in view, labelled at the left where a label fits: the targets the notes are
+    // judged against first, then the others.
+    struct Line {
+        float y;
+        std::size_t k;
+        bool used;
+    };
+    std::vector<Line> lines;
+    std::vector<bool> used(take_->set.targets.size(), false);
+    for (const auto& n : a.notes)
+        if (n.target_index >= 0) used[static_cast<std::size_t>(n.target_index)] = true;
+    for (std::size_t k = 0; k < take_->set.targets.size(); ++k) {
+        const double c = take_->set.targets[k].interval.cents();
+        for (int o = static_cast<int>(std::floor((lo - c) / 1200.0));
+             o <= static_cast<int>(std::ceil((hi - c) / 1200.0)); ++o) {
+            const double tc = c + 1200.0 * o;
+            if (tc < lo || tc > hi) continue;
+            const float ly = std::round(v.y_of(tc)) + 0.5f;
+            dl->AddLine(ImVec2(v.plot_x0, ly), ImVec2(v.plot_x1, ly), palette::kOtherTarget, 1.0f);
+            lines.push_back({ly, k, used[k]});
+        }
+    }
+    std::stable_sort(lines.begin(), lines.end(), [](const Line& p, const Line& q) { return p.used > q.used; });
+    std::vector<float> labelled;
+    const float label_h = font_px(FontFace::body);
+    for (const Line& ln : lines) {
+        bool clear = true;
+        for (const float ly : labelled) clear = clear && std::fabs(ly - ln.y) >= label_h;
+        if (!clear) continue;
+        labelled.push_back(ln.y);
+        draw_text(dl, FontFace::body, ImVec2(x + 0.4f * u, ln.y - 0.55f * u),
+                  ln.used ? palette::kText : palette::kTextDim,
+                  fit_text(FontFace::body, take_->set.targets[ln.k].interval.str(), label_w - 0.6f * u));
+    }
+    // The selected note's target, in the current target's colour.
+    if (selected_ >= 0 && std::isfinite(a.notes[static_cast<std::size_t>(selected_)].target_cents)) {
+        const double tc = a.notes[static_cast<std::size_t>(selected_)].target_cents;
+        const float ly = std::round(v.y_of(tc)) + 0.5f;
+        dl->AddLine(ImVec2(v.plot_x0, ly), ImVec2(v.plot_x1, ly), palette::kCurrentTarget, 2.0f);
+    }
+    dl->PopClipRect();
+    dl->PushClipRect(ImVec2(v.plot_x0, v.plot_y0), ImVec2(v.plot_x1, v.plot_y1), true);
+    // The trace: bucket means joined, broken at gaps. Where several buckets share a pixel column (a long take
+    // seen whole), the column's lowest and highest means are joined instead, so the lines drawn never exceed the
+    // plot's width in pixels and every excursion still shows.
+    bool pen = false;
+    ImVec2 last;
+    int col = INT_MIN;
+    float col_lo = 0.0f, col_hi = 0.0f;
+    auto flush = [&] {
+        if (col == INT_MIN) return;
+        const float cx = static_cast<float>(col) + 0.5f;
+        if (col_hi - col_lo >= 1.0f) dl->AddLine(ImVec2(cx, col_lo), ImVec2(cx, col_hi), palette::kTraceLine, 1.5f);
+        const ImVec2 q(cx, 0.5f * (col_lo + col_hi));
+        if (pen) dl->AddLine(last, q, palette::kTraceLine, 1.5f);
+        last = q;
+        pen = true;
+        col = INT_MIN;
+    };
+    for (std::size_t i = 0; i < a.trace.size(); ++i) {
+        const pitch::TracePoint& p = a.trace[i];
+        if (p.t_s < v.t0_s - a.trace.bucket_s() || p.t_s > v.t1_s + a.trace.bucket_s() || p.frames == 0) {
+            flush();
+            pen = false;
+            continue;
+        }
+        const float px = v.x_of(p.t_s), py = v.y_of(p.mean_cents);
+        const int c = static_cast<int>(std::floor(px));
+        if (c != col) {
+            flush();
+            col = c;
+            col_lo = col_hi = py;
+        } else {
+            col_lo = std::min(col_lo, py);
+            col_hi = std::max(col_hi, py);
+        }
+    }
+    flush();
+    // The notes: a bar at each centre, coloured by tuning, its deviation above it.
+    const double in_tune = app.settings().in_tune_cents;
+    for (std::size_t i = 0; i < a.notes.size(); ++i) {
+        const auto& n = a.notes[i];
+        if (n.end_s < v.t0_s || n.start_s > v.t1_s) continue;
+        ReviewMarkView m;
+        m.note = static_cast<int>(i);
+        m.x0 = v.x_of(n.start_s);
+        m.x1 = v.x_of(n.end_s);
+        m.y = std::round(v.y_of(n.cents_above_root));
+        m.cents = n.cents_above_root;
+        m.dev_cents = n.dev_cents;
+        m.colour = std::isfinite(n.dev_cents) ? tuning_colour(tuning_of(n.dev_cents, in_tune)) : palette::kTextDim;
+        const float r = std::round(0.22f * u);
+        dl->AddRectFilled(ImVec2(m.x0, m.y - r), ImVec2(m.x1, m.y + r), m.colour);
+        if (static_cast<int>(i) == selected_)
+            dl->AddRect(ImVec2(m.x0 - 3, m.y - r - 3), ImVec2(m.x1 + 3, m.y + r + 3), palette::kCurrentTarget, 0, 0,
+                        2.0f);
+        const std::string label = std::isfinite(n.dev_cents) ? signed_text(n.dev_cents, 1) : "between";
+        const ImVec2 ls = text_size(FontFace::bold, label);
+        if (ls.x < m.x1 - m.x0 + 2.0f * u) {
+            const float cx = std::round(std::clamp(0.5f * (m.x0 + m.x1), v.plot_x0 + 0.5f * ls.x + 4.0f,
+                                                   v.plot_x1 - 0.5f * ls.x - 4.0f)),
+                        ly = std::round(m.y - r - 0.35f * u - ls.y);
+            dl->AddRectFilled(ImVec2(cx - 0.5f * ls.x - 4, ly - 1), ImVec2(cx + 0.5f * ls.x + 4, ly + ls.y + 1),
+                              palette::with_alpha(palette::kPanel, 225), 3.0f);
+            draw_text_centred(dl, FontFace::bold, cx, ly, m.colour, label);
+        }
+        // A click on the bar selects the note.
+        if (ImGui::IsMouseClicked(0)) {
+            const ImVec2 mp = ImGui::GetIO().MousePos;
+            if (mp.x >= m.x0 && mp.x <= m.x1 && std::fabs(mp.y - m.y) <= 0.8f * u) selected_ = m.note;
+        }
+        view_.marks.push_back(m);
+    }
+    dl->PopClipRect();
+    // The time axis: a tick per second or per a round step.
+    const double steps[] = {0.1, 0.2, 0.5, 1, 2, 5, 10, 15, 30, 60, 120, 300};
+    double step = steps[0];
+    for (const double s : steps)
+        if (span_s_ / s <= 10.0) {
+            step = s;
+            break;
+        }
+    for (double t = std::ceil(v.t0_s / step) * step; t <= v.t1_s + 1e-9; t += step) {
+        const float tx = std::round(v.x_of(t));
+        dl->AddLine(ImVec2(tx, v.plot_y1), ImVec2(tx, v.plot_y1 + 0.3f * u), palette::kGrid, 1.0f);
+        draw_text_centred(dl, FontFace::body, tx, v.plot_y1 + 0.35f * u, palette::kTextDim,
+                          pitch::format_trimmed(t, step < 1.0 ? 1 : 0) + " s");
+    }
+}
+
+// ---------------------------------------------------------------------------
+// [SECTION] Detail
+// ---------------------------------------------------------------------------
+
+void ReviewScreen::draw_detail(AppState& app, ImDrawList* dl, float x, float y, float w, float h) {
+    const float u = ui_unit();
+    draw_panel(dl, x, y, w, h);
+    const float pad = std::round(0.6f * u);
+    if (!take_ || !take_->error.empty()) return;
+    const OneVoiceAnalysis& a = take_->analysis;
+    if (a.notes.empty()) {
+        draw_text(
+            dl, FontFace::body, ImVec2(x + pad, y + pad), palette::kTextDim,
+            fit_text(FontFace::body, nothing_found_words(a.heard.loudest_dbfs, a.heard.snr_db, false), w - 2 * pad));
+        return;
+    }
+    if (selected_ < 0) {
+        draw_text(dl, FontFace::body, ImVec2(x + pad, y + pad), palette::kTextDim,
+                  "choose a note: click it, or Left / Right");
+        return;
+    }
+    const auto& n = a.notes[static_cast<std::size_t>(selected_)];
+    const auto& j = take_->analysis.judged[static_cast<std::size_t>(selected_)];
+    float ty = y + pad;
+    char head[128];
+    std::snprintf(head, sizeof head, "Note %d of %zu   %.2f - %.2f s", selected_ + 1, a.notes.size(), n.start_s,
+                  n.end_s);
+    draw_text(dl, FontFace::bold, ImVec2(x + pad, ty), palette::kTextDim, head);
+    ty += std::round(1.5f * u);
+    std::string big, against;
+    std::uint32_t colour = palette::kTextDim;
+    if (std::isfinite(n.dev_cents)) {
+        const Tuning tn = tuning_of(n.dev_cents, app.settings().in_tune_cents);
+        colour = tuning_colour(tn);
+        big = signed_text(n.dev_cents, 1) + " c " + std::string(tuning_word(tn));
+        against = (j.meant_index >= 0 ? "against " + target_text(n.target_index) + ", the target meant"
+                                      : "against " + target_text(n.target_index) + ", the nearest target");
+    } else {
+        big = "between targets";
+        against = off_words(j.nearest.dev_cents, false) + " of " + target_text(static_cast<int>(j.nearest.index)) +
+                  ", the nearest; none within " + pitch::format_trimmed(pitch::IntentConfig{}.between_cents, 0) + " c";
+    }
+    draw_text(dl, FontFace::large, ImVec2(x + pad, ty), colour, big);
+    const float big_w = text_size(FontFace::large, big).x;
+    draw_text(dl, FontFace::body, ImVec2(x + pad + big_w + u, ty + 0.5f * font_px(FontFace::large) - 0.5f * u),
+              palette::kText, fit_text(FontFace::body, against, w - 3 * pad - big_w - u));
+    ty += std::round(font_px(FontFace::large) + 0.4f * u);
+    const std::string remark = j.between ? std::string() : judgement_words(j, take_->set, false);
+    if (!remark.empty()) {
+        draw_text(dl, FontFace::body, ImVec2(x + pad, ty), palette::kText,
+                  fit_text(FontFace::body, remark, w - 2 * pad));
+        ty += std::round(1.4f * u);
+    }
+    std::string facts =
+        "spread " + pitch::format_trimmed(n.spread_cents, 1) + " c   settled " +
+        (std::isfinite(n.settle_s) ? "in " + pitch::format_trimmed(n.settle_s, 2) + " s" : std::string("never"));
+    if (std::isfinite(n.beat_hz))
+        facts += "   beat " + pitch::format_trimmed(n.beat_hz, 2) + " Hz (partials " + std::to_string(n.partial_root) +
+                 ":" + std::to_string(n.partial_voice) + ", " + beat_heard_word(n.beat_hz, a.drone_hz > 0.0) + ")";
+    draw_text(dl, FontFace::body, ImVec2(x + pad, ty), palette::kTextDim, fit_text(FontFace::body, facts, w - 2 * pad));
+    ty += std::round(1.8f * u);
+    ImGui::SetCursorScreenPos(ImVec2(x + pad, ty));
+    ImGui::BeginDisabled(!std::isfinite(n.target_cents));
+    if (ImGui::Button("Sound the target (T)")) sound(app, true);
+    ImGui::EndDisabled();
+    ImGui::SameLine();
+    if (ImGui::Button("Sound its pitch (P)")) sound(app, false);
+    ImGui::SameLine();
+    if (ImGui::Button("Export PNG, CSV, JSON")) export_report(app);
+    ImGui::SetCursorScreenPos(ImVec2(x + pad, ImGui::GetCursorScreenPos().y));
+    ImGui::SetNextItemWidth(std::round(9.0f * u));
+    ImGui::InputTextWithHint("##rename", "new name", rename_buf_, sizeof rename_buf_);
+    ImGui::SameLine();
+    if (ImGui::Button("Rename") && rename_buf_[0] != '\0') rename(app, rename_buf_);
+    ImGui::SameLine();
+    if (!confirm_delete_) {
+        if (ImGui::Button("Delete take")) confirm_delete_ = true;
+    } else {
+        if (ImGui::Button("Delete: yes")) {
+            std::error_code ec;
+            std::filesystem::remove(take_->path, ec);
+            std::filesystem::remove(take_sidecar_path(take_->path), ec);
+            app.post("deleted " + take_->title);
+            rows_.erase(take_->path);
+            take_.reset();
+            selected_ = -1;
+            list_takes_now();
+        }
+        ImGui::SameLine();
+        if (ImGui::Button("keep it")) confirm_delete_ = false;
+    }
+}
+
+void ReviewScreen::draw_summary(ImDrawList* dl, float x, float y, float w, float h) {
+    const float u = ui_unit();
+    draw_panel(dl, x, y, w, h);
+    const float pad = std::round(0.6f * u);
+    draw_text(dl, FontFace::medium, ImVec2(x + pad, y + pad), palette::kText, "Per target");
+    if (!take_ || !take_->error.empty()) return;
+    float ty = y + pad + std::round(1.9f * u);
+    // One line a target: its ratio, the mean deviation (its colour and word), the count and the spread.
+    const float col = std::round(4.5f * u);
+    for (const auto& row : take_->analysis.summary) {
+        if (ty + 2.4f * u > y + h - pad) break;
+        const Tuning tn = tuning_of(row.mean_dev_cents, in_tune_cents_);
+        draw_text(dl, FontFace::bold, ImVec2(x + pad, ty), palette::kText,
+                  fit_text(FontFace::bold, target_text(row.target_index), col - 0.3f * u));
+        draw_text(dl, FontFace::bold, ImVec2(x + pad + col, ty), tuning_colour(tn),
+                  fit_text(FontFace::bold, "mean " + off_words(row.mean_dev_cents, false), w - 2 * pad - col));
+        std::string more = std::to_string(row.count) + (row.count == 1 ? " note" : " notes");
+        if (row.count > 1) more += ", spread " + pitch::format_trimmed(row.spread_cents, 1) + " c";
+        draw_text(dl, FontFace::body, ImVec2(x + pad + col, ty + 1.2f * u), palette::kTextDim,
+                  fit_text(FontFace::body, more, w - 2 * pad - col));
+        ty += std::round(2.6f * u);
+    }
+}
+
+// ---------------------------------------------------------------------------
+// [SECTION] Build
+// ---------------------------------------------------------------------------
+
+void ReviewScreen::build(AppState& app, const ScreenArea& area, double) {
+    if (!started_) {
+        started_ = true;
+        list_takes_now();
+        if (!app.options().take.empty())
+            open(app, app.options().take);
+        else if (!takes_.empty())
+            open(app, takes_.front().audio_path.string());
+        if (app.options().review_note)
+            select(*app.options().review_note - 1, app.options().review_span_s.value_or(0.0));
+    } else {
+        analyse_one_listed(app);
+    }
+    handle_keys(app);
+    in_tune_cents_ = app.settings().in_tune_cents;
+
+    const float u = ui_unit();
+    ImDrawList* dl = begin_screen_panel("##review", area);
+    const float pad = std::round(0.8f * u), gap = std::round(0.5f * u);
+    const float top = area.pos.y + std::round(0.5f * u), bottom = area.pos.y + area.size.y - std::round(0.5f * u);
+    const float x0 = area.pos.x + pad, w = area.size.x - 2.0f * pad, H = bottom - top;
+    const float left_w = std::round(std::clamp(0.27f * w, 15.0f * u, 22.0f * u));
+    // The list takes what its rows need (at least three rows' room, at most 58 %); the summary the rest.
+    const float rows_h =
+        std::round(2.5f * u) + std::round(3.8f * u) * static_cast<float>(std::max<std::size_t>(3, takes_.size()));
+    const float list_h = std::round(std::min(0.58f * H, rows_h));
+    draw_list(app, dl, x0, top, left_w, list_h);
+    draw_summary(dl, x0, top + list_h + gap, left_w, H - list_h - gap);
+    const float rx = x0 + left_w + gap, rw = w - left_w - gap;
+    // The take's title line.
+    const float title_h = std::round(1.8f * u);
+    if (take_) {
+        std::string line = take_->title;
+        if (take_->error.empty())
+            line += "   root " + pitch::format_trimmed(take_->analysis.root_hz, 2) + " Hz   targets " +
+                    take_->set_name + (take_->expect.empty() ? "" : "   meant " + take_->expect);
+        draw_text(dl, FontFace::bold, ImVec2(rx, top + 0.2f * u), palette::kText, fit_text(FontFace::bold, line, rw));
+    }
+    const float detail_h = std::round(std::clamp(0.36f * H, 10.0f * u, 12.5f * u));
+    draw_plot(app, dl, rx, top + title_h, rw, H - title_h - detail_h - gap);
+    draw_detail(app, dl, rx, bottom - detail_h, rw, detail_h);
+    end_screen_panel();
+}
+
+}  // namespace
+
+std::unique_ptr<Screen> make_review_screen() { return std::make_unique<ReviewScreen>(); }
+
+const ReviewView* review_view(const Screen& screen) {
+    const auto* r = dynamic_cast<const ReviewScreen*>(&screen);
+    return r ? &r->view() : nullptr;
+}
+
+void review_select(Screen& screen, int note, double span_s) {
+    if (auto* r = dynamic_cast<ReviewScreen*>(&screen)) r->select(note, span_s);
+}
+
+}  // namespace beatless::ui

@@ -1,0 +1,110 @@
+// Take export (take_export.h).
+#include "ui/session/take_export.h"
+
+#include "pitch/base/text.h"
+#include "ui/session/log_csv.h"
+#include "ui/session/take_words.h"
+
+#include <cmath>
+#include <cstdint>
+
+namespace beatless::ui {
+
+void add_target_json(JsonWriter& j, const pitch::TargetSet& set, int index) {
+    if (index < 0) {
+        j.key("target").null().key("target_name").null();
+        return;
+    }
+    j.key("target").value(target_text_of(set, index)).key("target_name").value(target_name_of(set, index));
+}
+
+// Meant, nearest and between, beside the judged target.
+void add_judgement_json(JsonWriter& j, const pitch::TargetSet& set, const pitch::NoteJudgement& g, bool intervals) {
+    j.key("meant");
+    if (g.meant_index >= 0)
+        j.value(target_text_of(set, g.meant_index));
+    else
+        j.null();
+    j.key("nearest").value(target_text_of(set, static_cast<int>(g.nearest.index)));
+    j.key("nearest_octaves").value(g.nearest.octaves).key("nearest_dev_cents").value(g.nearest.dev_cents, 3);
+    j.key("between_targets").value(g.between).key("nearer_other").value(g.nearer_other);
+    j.key("remark").value(judgement_words(g, set, intervals));
+}
+
+void add_summary_json(JsonWriter& j, const pitch::TargetSet& set, const std::vector<pitch::TargetSummary>& rows,
+                      bool dyads) {
+    j.key("summary").begin_array();
+    for (const auto& r : rows) {
+        const std::string ratio = target_text_of(set, r.target_index);
+        j.begin_object().key("target").value(ratio).key("target_name").value(target_name_of(set, r.target_index));
+        j.key("count").value(r.count).key("mean_dev_cents").value(r.mean_dev_cents, 3);
+        j.key("spread_cents").value(r.spread_cents, 3).key("mean_abs_dev_cents").value(r.mean_abs_dev_cents, 3);
+        j.key("text").value(summary_words(r, ratio, dyads)).end_object();
+    }
+    j.end_array();
+}
+
+std::string one_voice_json(const std::string& file, const pitch::TargetSet& set, const OneVoiceAnalysis& a) {
+    const auto& notes = a.notes;
+    JsonWriter j;
+    j.begin_object().key("file").value(file).key("sample_rate").value(a.info.sample_rate_hz, 3);
+    j.key("duration_s").value(a.info.dur_s(), 3).key("voices").value(1);
+    j.key("root_hz").value(a.root_hz, 4);
+    if (a.root_given)
+        j.key("root_confidence").null();
+    else
+        j.key("root_confidence").value(a.root.confidence, 3);
+    j.key("root_source").value(a.root_given ? "given" : "detected");
+    if (a.drone_hz > 0.0)
+        j.key("drone_hz").value(a.drone_hz, 4);
+    else
+        j.key("drone_hz").null();
+    j.key("targets").value(set.id).key("hop_s").value(a.hop_s, 7);
+    j.key("clipped_samples").value(static_cast<std::int64_t>(a.facts.clipped_samples));
+    j.key("notes").begin_array();
+    for (std::size_t i = 0; i < notes.size(); ++i) {
+        const pitch::NoteResult& n = notes[i];
+        j.begin_object().key("start_s").value(n.start_s, 4).key("end_s").value(n.end_s, 4);
+        j.key("f0_hz").value(n.centre_f0_hz, 4).key("ratio").value(n.ratio, 6);
+        add_target_json(j, set, n.target_index);
+        j.key("target_octaves").value(n.target_octaves);
+        j.key("dev_cents").value(n.dev_cents, 3).key("spread_cents").value(n.spread_cents, 3);
+        add_judgement_json(j, set, a.judged[i], false);
+        j.key("settle_s").value(n.settle_s, 3).key("beat_hz").value(n.beat_hz, 3);
+        j.key("beat_in_tune_hz").value(n.beat_in_tune_hz, 3);
+        if (n.partial_root > 0)
+            j.key("partial_root").value(n.partial_root).key("partial_voice").value(n.partial_voice);
+        else
+            j.key("partial_root").null().key("partial_voice").null();
+        j.key("own_partials");
+        if (n.own_partial_root > 0)
+            j.begin_array().value(n.own_partial_root).value(n.own_partial_voice).end_array();
+        else
+            j.null();
+        j.key("vibrato_hz").value(n.vibrato ? n.vibrato_rate_hz : 0.0, 2);
+        j.key("vibrato_cents").value(n.vibrato ? n.vibrato_depth_cents : 0.0, 2);
+        j.key("confidence").value(n.confidence, 3);
+        j.key("frames").value(n.frames).key("clipped").value(a.notes_clipped[i] > 0).end_object();
+    }
+    j.end_array();
+    add_summary_json(j, set, a.summary, false);
+    j.end_object();
+    return j.str();
+}
+
+std::string one_voice_csv(const pitch::TargetSet& set, const OneVoiceAnalysis& a) {
+    std::string out =
+        "start_s,end_s,f0_hz,ratio,target,target_name,dev_cents,spread_cents,settle_s,beat_hz,partial_root,partial_"
+        "voice,beat_in_tune_hz\n";
+    auto num = [](double v, int d) { return std::isfinite(v) ? pitch::format_trimmed(v, d) : std::string(); };
+    auto whole = [](int v) { return v > 0 ? std::to_string(v) : std::string(); };
+    for (const auto& n : a.notes)
+        out += num(n.start_s, 4) + "," + num(n.end_s, 4) + "," + num(n.centre_f0_hz, 4) + "," + num(n.ratio, 6) + "," +
+               csv_field(target_text_of(set, n.target_index)) + "," + csv_field(target_name_of(set, n.target_index)) +
+               "," + num(n.dev_cents, 3) + "," + num(n.spread_cents, 3) + "," + num(n.settle_s, 3) + "," +
+               num(n.beat_hz, 3) + "," + whole(n.partial_root) + "," + whole(n.partial_voice) + "," +
+               num(n.beat_in_tune_hz, 3) + "\n";
+    return out;
+}
+
+}  // namespace beatless::ui
