@@ -751,6 +751,7 @@ TEST_CASE("the file floor tracks a double bass's low E with the default span") {
     std::sort(err.begin(), err.end());
     CHECK(err[err.size() / 2] < 1.0);
     CHECK(err.back() < 50.0);
+}
 
 TEST_CASE("PeriodicRun: a change of period inside a span is found where it was made") {
     // Two harmonic tones, period 100 samples then 80 from sample 1000 (a construction with an exact answer).

@@ -711,6 +711,7 @@ struct YinTracker::Impl {
             p.t_s = after;
             if (p.voiced()) {
                 p.f0_hz = 0.0;
+                p.confidence = std::min(p.confidence, 0.49);  // unvoiced frames stay under 0.5
                 m2_s2 = 0.0;
             }
         }
