@@ -74,7 +74,7 @@ struct Engine::Impl {
     std::atomic<double> root_hz{110.0};
     double applied_root = 0.0;
     double span_s = 0.05;  // the trackers' span
-    bool removal_active = false;
+    std::atomic<bool> removal_active{false};  // written by the analysis thread, read by status() (relaxed)
     bool started = false;
     // Set when start() has built everything the callbacks touch: a stream
     // opened earlier in start() may call back before that, and is ignored.
@@ -562,7 +562,8 @@ std::size_t Engine::analyze_available() noexcept {
             c->set_level(ds.on ? drone_gain(ds.level_dbfs) : 0.0);
         }
     }
-    m.removal_active = cfg_.drone_removal && m.cancellers[0]->active();
+    const bool removal_active = cfg_.drone_removal && m.cancellers[0]->active();
+    m.removal_active.store(removal_active, std::memory_order_relaxed);
 
     std::size_t total = 0;
     while (total < 8 * kChunk) {
@@ -573,7 +574,7 @@ std::size_t Engine::analyze_available() noexcept {
         for (std::size_t p = 0; p < m.players; ++p) {
             std::span<float> w(&m.work[p * kChunk], n);
             m.rings[p]->read(w);
-            if (m.removal_active) m.cancellers[p]->process(w, w);
+            if (removal_active) m.cancellers[p]->process(w, w);
             if (m.duo)
                 m.duo->push(w);
             else
@@ -592,6 +593,7 @@ std::size_t Engine::analyze_available() noexcept {
 // reading (one performer) or one ensemble reading (a group), published.
 void Engine::analyze_frames() noexcept {
     Impl& m = *impl_;
+    const bool removal_active = m.removal_active.load(std::memory_order_relaxed);  // set by analyze_available()
     if (m.duo) {
         pitch::TwoVoiceFrame& f = m.duo_frame;
         while (m.duo->pull(f)) {
@@ -599,7 +601,7 @@ void Engine::analyze_frames() noexcept {
             double lat_s = 0.0;
             m.publish_time(lat_s, idx);
             m.duo_out->publish(f, lat_s);
-            if (m.removal_active && !m.input_has_drone) {
+            if (removal_active && !m.input_has_drone) {
                 const auto now = static_cast<double>(m.analyzed.load(std::memory_order_relaxed));
                 const double onset = f.t_s - 0.5 * m.span_s;
                 m.cancellers[0]->set_voice(f.voices > 0, static_cast<std::size_t>(std::max(0.0, now - onset * m.rate)));
@@ -617,10 +619,10 @@ void Engine::analyze_frames() noexcept {
             // While drone removal is still learning the room (a quarter of a
             // second after the drone starts or moves), the drone may leak
             // through: those frames are reported unvoiced.
-            if (m.removal_active && c.acquiring()) f.f0_hz = 0.0;
+            if (removal_active && c.acquiring()) f.f0_hz = 0.0;
             // What is left of the drone after removal (a real room is never
             // quite linear and still): quiet, and at the drone's own pitch.
-            if (m.removal_active && f.voiced() && c.is_residue(f.f0_hz, f.level_dbfs)) f.f0_hz = 0.0;
+            if (removal_active && f.voiced() && c.is_residue(f.f0_hz, f.level_dbfs)) f.f0_hz = 0.0;
         }
         const auto idx = static_cast<std::int64_t>(std::llround(m.frames[0].t_s * m.rate));
         double lat_s = 0.0;
@@ -634,7 +636,7 @@ void Engine::analyze_frames() noexcept {
             m.group_out->publish(
                 m.analyzer->process(std::span<const pitch::PitchFrame>(m.frames.data(), m.players), idx), lat_s);
         }
-        if (m.removal_active && !m.input_has_drone) {
+        if (removal_active && !m.input_has_drone) {
             // Tell drone removal whether the performer sounds, and since when.
             const auto now = static_cast<double>(m.analyzed.load(std::memory_order_relaxed));
             const bool new_note = m.maker && mode_ == EngineMode::performer && m.maker->notes_started() != notes_before;
@@ -701,7 +703,7 @@ EngineStatus Engine::status() const {
     st.input_ok = m.started && !m.io.input_lost && !m.finished.load();
     st.output_ok = !m.io.want_output || (m.started && !m.output_lost);
     st.finished = m.finished.load();
-    st.drone_removal_active = m.removal_active;
+    st.drone_removal_active = m.removal_active.load(std::memory_order_relaxed);
     return st;
 }
 

@@ -621,3 +621,22 @@ TEST_CASE("snapshot --voices 2: the marker is the interval's verdict; silence cl
         CHECK(!find_colour(img, ui::palette::kCurrentTarget, lane.row + 40).empty());
     }
 }
+
+TEST_CASE("snapshot --screen review: every target of the take has its line in the per-target summary") {
+    // The demo performer sings six targets of the tritone family, one note each; the summary panel must name all
+    // six (one line each when two-line rows do not fit), none cut off silently (common practice: a summary lists
+    // what it sums).
+    TempDir home;
+    const auto rec = run_program("listen --demo --targets tritones --root D3 --seconds 24 --record",
+                                 {"BEATLESS_HOME=" + home.path()});
+    REQUIRE_MESSAGE(rec.exit_code == 0, rec.err);
+    const Image img = read_png(snapshot(home, "--screen review", "review.png"));
+    Box left;
+    left.add(0, img.h / 2);
+    left.add(img.w / 3, img.h - 40);
+    for (const char* t : {"15/11", "11/8", "7/5", "45/32", "600c", "64/45"}) {
+        CAPTURE(t);
+        const Image label = render_text(t, ui::FontFace::bold, ui::palette::kText, ui::palette::kPanel, 1.0f);
+        CHECK(find_exact(img, label, left).size() == 1);
+    }
+}

@@ -25,6 +25,8 @@ import tempfile
 import threading
 import time
 
+from jack_rig import stop  # the shared child stopper (SIGTERM, then SIGKILL after 5 s)
+
 BEATLESS = sys.argv[1]
 SERVER = "beatless-test-%d" % os.getpid()
 ENV = dict(os.environ, JACK_DEFAULT_SERVER=SERVER, JACK_NO_START_SERVER="1")
@@ -51,19 +53,6 @@ def start_jackd():
             return p
         time.sleep(0.2)
     raise RuntimeError("jackd did not come up within 10 s")
-
-
-def stop(p, sig=signal.SIGTERM):
-    if p.poll() is None:
-        try:
-            os.killpg(p.pid, sig)
-        except ProcessLookupError:
-            pass
-        try:
-            p.wait(timeout=5)
-        except subprocess.TimeoutExpired:
-            os.killpg(p.pid, signal.SIGKILL)
-            p.wait(timeout=5)
 
 
 def connect(src, dst, timeout_s=5.0):

@@ -141,6 +141,13 @@ def main():
     # 2. MTS: root D3, target 7/5, drone fifth.
     p = listen(["--root", "D3", "--target", "7/5", "--fifth", "--midi-out", "midi-monitor"], 1.0, home)
     out, err = p.communicate(timeout=30)
+    # The monitor writes what it received a little after the program exits: wait (up to 5 s) for the last of it,
+    # the notes off and the keys given back, before reading the log.
+    deadline = time.time() + 5.0
+    m = messages(log)
+    while time.time() < deadline and not ([0x80, 56, 0] in m and [0x80, 50, 0] in m):
+        time.sleep(0.1)
+        m = messages(log)
     time.sleep(0.3)
     m = messages(log)
     check(p.returncode == 0, "listen --midi-out exits 0 (%s)" % err.strip().splitlines()[-1:])

@@ -623,20 +623,42 @@ void ReviewScreen::draw_summary(ImDrawList* dl, float x, float y, float w, float
     draw_text(dl, FontFace::medium, ImVec2(x + pad, y + pad), palette::kText, "Per target");
     if (!take_ || !take_->error.empty()) return;
     float ty = y + pad + std::round(1.9f * u);
-    // One line a target: its ratio, the mean deviation (its colour and word), the count and the spread.
+    // One line a target: its ratio, the mean deviation (its colour and word), the count and the spread; when the
+    // targets outnumber the panel's two-line rows, one line each; when even those do not fit, a last line says how
+    // many are not shown, so no target disappears silently.
     const float col = std::round(4.5f * u);
-    for (const auto& row : take_->analysis.summary) {
-        if (ty + 2.4f * u > y + h - pad) break;
+    const auto& rows = take_->analysis.summary;
+    const float room = y + h - pad - ty;
+    const bool compact = static_cast<float>(rows.size()) * std::round(2.6f * u) > room;
+    const float row_h = compact ? std::round(1.4f * u) : std::round(2.6f * u);
+    std::size_t fit = static_cast<std::size_t>(std::max(0.0f, room / row_h));
+    if (fit < rows.size() && fit > 0) --fit;  // the last line names what is not shown
+    for (std::size_t i = 0; i < rows.size() && i < fit; ++i) {
+        const auto& row = rows[i];
         const Tuning tn = tuning_of(row.mean_dev_cents, in_tune_cents_);
         draw_text(dl, FontFace::bold, ImVec2(x + pad, ty), palette::kText,
                   fit_text(FontFace::bold, target_text(row.target_index), col - 0.3f * u));
-        draw_text(dl, FontFace::bold, ImVec2(x + pad + col, ty), tuning_colour(tn),
-                  fit_text(FontFace::bold, "mean " + off_words(row.mean_dev_cents, false), w - 2 * pad - col));
         std::string more = std::to_string(row.count) + (row.count == 1 ? " note" : " notes");
         if (row.count > 1) more += ", spread " + pitch::format_trimmed(row.spread_cents, 1) + " c";
-        draw_text(dl, FontFace::body, ImVec2(x + pad + col, ty + 1.2f * u), palette::kTextDim,
-                  fit_text(FontFace::body, more, w - 2 * pad - col));
-        ty += std::round(2.6f * u);
+        const std::string mean = "mean " + off_words(row.mean_dev_cents, false);
+        if (compact) {
+            draw_text(dl, FontFace::bold, ImVec2(x + pad + col, ty), tuning_colour(tn),
+                      fit_text(FontFace::bold, off_words(row.mean_dev_cents, false) + " \xC2\xB7 " + more, w - 2 * pad - col));
+        } else {
+            draw_text(dl, FontFace::bold, ImVec2(x + pad + col, ty), tuning_colour(tn),
+                      fit_text(FontFace::bold, mean, w - 2 * pad - col));
+            draw_text(dl, FontFace::body, ImVec2(x + pad + col, ty + 1.2f * u), palette::kTextDim,
+                      fit_text(FontFace::body, more, w - 2 * pad - col));
+        }
+        ty += row_h;
+    }
+    if (fit < rows.size()) {
+        const std::size_t hidden = rows.size() - fit;
+        draw_text(dl, FontFace::body, ImVec2(x + pad, ty), palette::kTextDim,
+                  fit_text(FontFace::body,
+                           "+ " + std::to_string(hidden) + (hidden == 1 ? " more target" : " more targets") +
+                               " (in the exported report)",
+                           w - 2 * pad));
     }
 }
 
