@@ -72,8 +72,6 @@ constexpr double kSmallBias = 3.0 / 1200.0 * 0.6931471805599453;
 constexpr std::size_t kStencil = 3;
 constexpr double kPowerAlpha = 0.08;  // running mean of the curvature's square, weight of each frame
 constexpr double kNoiseBias = 0.3 / 1200.0 * 0.6931471805599453;  // the curvature's noise, as a bias (0.3 cents)
-// The curvature is taken only from frames this sure (calibrated confidence): a frame that mixes two notes after a
-// change is voiced, less sure, and would bend its neighbours.
 // A frame this far above the noise floor (dB) is voiced only under YIN's threshold as well.
 constexpr double kClearAboveFloorDb = 20.0;
 

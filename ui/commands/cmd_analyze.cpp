@@ -60,7 +60,7 @@ struct AnalyzeOptions {
     Format format = Format::text;
     std::string report;
     std::optional<int> channel;  // 1-based; empty mixes all channels
-    std::string lowest;          // --lowest: below the file tracker's 41 Hz
+    std::string lowest;          // --lowest: below the default floor (a semitone under the root, 41-55 Hz)
     std::string expect;          // --expect: the targets meant, in order ("7/5,10/7")
     double between_cents = pitch::IntentConfig{}.between_cents;  // --between
 };
@@ -420,7 +420,9 @@ void register_analyze(CLI::App& app, Runner& run) {
     sub->add_option("--report", o->report, "Also draw a printable page (PNG) of the trace, notes and summary");
     sub->add_option("--channel", o->channel, "Channel to analyze, from 1 (default: all channels mixed)");
     sub->add_option("--lowest", o->lowest,
-                    "One voice: the lowest note to follow, as a note (E1) or in Hz (30-200; default 41)");
+                    "One voice: the lowest note to follow, as a note (E1) or in Hz (30-200; default a semitone under "
+                    "the drone's root, "
+                    "41-55 Hz)");
     sub->add_option("--expect", o->expect,
                     "The targets meant, in order (7/5,10/7,11/8,45/32; one target: every note): each note is judged "
                     "against the one meant");

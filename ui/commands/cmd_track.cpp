@@ -31,7 +31,7 @@ struct TrackOptions {
     std::string file;
     Format format = Format::json;
     double hop_ms = 5.0;
-    double fmin_hz = pitch::kFileLowestHz;
+    std::optional<double> fmin_hz;  // empty: 41 Hz for one voice, the two-voice tracker's own floor for two
     double fmax_hz = 1600.0;
     std::optional<int> channel;  // 1-based; empty mixes all channels
     int voices = 1;              // 2: two voices in one input
@@ -65,7 +65,7 @@ int run_track(const TrackOptions& o) {
     pitch::YinConfig cfg;
     cfg.sample_rate_hz = reader.info().sample_rate_hz;
     cfg.hop_s = o.hop_ms / 1000.0;
-    cfg.f_min_hz = o.fmin_hz;
+    cfg.f_min_hz = o.fmin_hz.value_or(pitch::kFileLowestHz);
     cfg.f_max_hz = o.fmax_hz;
     cfg.span_s = std::max(cfg.span_s, pitch::YinTracker::min_span_s(cfg));  // a low --fmin (or hop) may need more
     cfg.max_block_len_samples = 4096;
@@ -76,7 +76,7 @@ int run_track(const TrackOptions& o) {
         pitch::TwoVoiceConfig tc;
         tc.sample_rate_hz = cfg.sample_rate_hz;
         tc.hop_s = cfg.hop_s;
-        tc.f_min_hz = o.fmin_hz;
+        tc.f_min_hz = o.fmin_hz.value_or(tc.f_min_hz);
         tc.f_max_hz = o.fmax_hz;
         tc.max_block_len_samples = 4096;
         duo.emplace(tc, pitch::TargetSet{});
@@ -165,7 +165,8 @@ void register_track(CLI::App& app, Runner& run) {
     sub->add_option("FILE", o->file, "Sound file")->required();
     add_format_option(*sub, o->format, {Format::json, Format::csv});
     sub->add_option("--hop-ms", o->hop_ms, "Time between frames in ms (default 5)");
-    sub->add_option("--fmin", o->fmin_hz, "Lowest f0 searched in Hz (default 41: a double bass's low E)");
+    sub->add_option("--fmin", o->fmin_hz,
+                    "Lowest f0 searched in Hz (default 41: a double bass's low E; with --voices 2, 60)");
     sub->add_option("--fmax", o->fmax_hz, "Highest f0 searched in Hz (default 1600)");
     sub->add_option("--channel", o->channel, "Channel to track, from 1 (default: all channels mixed)");
     sub->add_option("--drone", o->drone,

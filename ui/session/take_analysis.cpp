@@ -29,6 +29,14 @@ constexpr std::size_t kBlockFrames = kAnalysisBlockFrames;
 // Tracker hop for notes: 10 ms still samples a 10 Hz vibrato ten times a
 // cycle, and halves the tracker's share of the time (`track` keeps 5 ms).
 constexpr double kNoteHopS = 0.01;
+// The notes' default floor: a semitone under the drone's root, within 41 Hz (pitch::kFileLowestHz, a double bass's
+// low E) .. 55 Hz. YIN's window holds the longest period searched (24.4 ms at 41 Hz, 18.2 ms at 55 Hz), so a floor
+// lower than the take needs finds every onset later and moves the whole-cycle vibrato centre with it.
+constexpr double kNoteFloorHz = 55.0;
+double default_floor_hz(double root_hz) {
+    return root_hz > 0.0 ? std::clamp(root_hz * std::exp2(-1.0 / 12.0), pitch::kFileLowestHz, kNoteFloorHz)
+                         : pitch::kFileLowestHz;
+}
 
 void check_sound(const pitch::SignalFacts& f, const std::string& path) {
     if (!(f.loudest_dbfs >= kSilenceDbfs))
@@ -206,7 +214,7 @@ void track_voice(audio::SoundReader& reader, const AnalysisRequest& req, Ticker&
     yc.silence_dbfs = kSilenceDbfs;
     yc.max_block_len_samples = kBlockFrames;
     yc.hop_s = kNoteHopS;
-    yc.f_min_hz = req.lowest_hz ? *req.lowest_hz : pitch::kFileLowestHz;
+    yc.f_min_hz = req.lowest_hz ? *req.lowest_hz : default_floor_hz(out.root_hz);
     yc.span_s = std::max(yc.span_s, pitch::YinTracker::min_span_s(yc));
     pitch::YinTracker yin(yc);
     out.hop_s = yin.hop_s();

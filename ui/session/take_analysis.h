@@ -28,7 +28,7 @@ struct AnalysisRequest {
     std::optional<double> root_hz;    // one voice: the drone's root; empty = find it
     pitch::TargetSet targets;         // must not be empty
     bool keep_trace = false;          // fill the decimated trace (for the report)
-    std::optional<double> lowest_hz;  // one voice: the tracker's floor (default 41 Hz); a lower one lengthens its span
+    std::optional<double> lowest_hz;  // one voice: the tracker's floor (default a semitone under the root, 41-55 Hz)
     std::vector<int> expected;        // targets meant, in order (indices into targets); empty: none, one: every note
     pitch::IntentConfig intent;       // the alignment's costs and the between-targets limit
 };
