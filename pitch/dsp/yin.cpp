@@ -72,6 +72,14 @@ constexpr double kSmallBias = 3.0 / 1200.0 * 0.6931471805599453;
 constexpr std::size_t kStencil = 3;
 constexpr double kPowerAlpha = 0.08;  // running mean of the curvature's square, weight of each frame
 constexpr double kNoiseBias = 0.3 / 1200.0 * 0.6931471805599453;  // the curvature's noise, as a bias (0.3 cents)
+// Continuity (continuing()): the last voiced frame counts for this many frames; its period is searched within this
+// share either side (a vibrato of +-100 c at 7.5 Hz moves the period 2.7 % in two 5 ms hops), and a dip there is kept
+// when at most kContinuityRatio d' + kContinuityTolerance deep (twice the divisor test's allowance: the continuing
+// pitch is evidence of its own).
+constexpr Index kContinuityFrames = 2;
+constexpr double kContinuityReach = 0.04;
+constexpr double kContinuityRatio = 2.0;
+constexpr double kContinuityTolerance = 0.1;
 // A frame this far above the noise floor (dB) is voiced only under YIN's threshold as well.
 constexpr double kClearAboveFloorDb = 20.0;
 
@@ -128,6 +136,8 @@ struct YinTracker::Impl {
     bool last_voiced = false;            // ... and whether it was voiced
     bool last_restricted = false;        // the last voiced frame used a stretch of its span
     Index change_at = -1;                // where the newest note's stretch began, full-rate samples
+    double last_period_dec = 0.0;        // period of the last voiced frame, decimated samples (0: none yet)
+    Index last_voiced_f = -1;            // ... and its frame
 
     std::vector<float> x;  // full-rate samples [x_off, x_off + x_len)
     Index x_off = 0;
@@ -293,6 +303,8 @@ struct YinTracker::Impl {
         last_voiced = false;
         last_restricted = false;
         change_at = -1;
+        last_period_dec = 0.0;
+        last_voiced_f = -1;
         curv = Curvature{};
         bad_samples = dropped = 0;
     }
@@ -470,6 +482,7 @@ struct YinTracker::Impl {
         // note may still be periodic over enough of the span (refinement path).
         if (!(aper < cfg.threshold) && out.level_dbfs >= cfg.silence_dbfs && !one_sided)
             changed_note(f, lo, period, aper);
+        continuing(f, cur, period, aper);
         // Voicing: the calibrated probability that this period is right (yin_voicing.h), judged against the
         // running noise floor; silent and one-sided spans are unvoiced with confidence 0.
         const bool silent = out.level_dbfs < cfg.silence_dbfs || one_sided;
@@ -498,6 +511,8 @@ struct YinTracker::Impl {
             m2_s2 = 0.0;
         }
         out.f0_hz = rate / T;
+        last_period_dec = T / static_cast<double>(D);
+        last_voiced_f = f;
         out.t_s = t_centre / rate;
         deliver(out, m2_s2, restricted);
     }
@@ -575,6 +590,28 @@ struct YinTracker::Impl {
     // The period of the newest note in the decimated samples [m0, m0 + len), 0 when none.
     double newest(Index m0, std::size_t len) noexcept {
         return runs.newest_period(yp(m0), len, lag_min, lag_max, kNewestThreshold);
+    }
+
+    // Continuity across frames (the transition prior of pYIN: M. Mauch and S. Dixon, "pYIN: a fundamental frequency
+    // estimator using probabilistic threshold distributions", ICASSP 2014, pp. 659-663, here greedy and causal): a
+    // chosen lag longer than the last voiced frame's period by more than a vibrato moves it in two hops is a common
+    // period of two sounds (a note and the previous one's reverberation) or a subharmonic in noise; where the
+    // difference function still dips at the continuing period nearly as deep, the pitch goes on there.
+    void continuing(Index f, const Coarse& cur, double& period, double& aper) noexcept {
+        if (!(last_period_dec > 0.0) || f - last_voiced_f > kContinuityFrames) return;
+        if (!(period > (1.0 + 2.0 * kContinuityReach) * last_period_dec)) return;
+        const auto lo =
+            std::max(lag_min, static_cast<std::size_t>(std::ceil((1.0 - kContinuityReach) * last_period_dec)));
+        const auto hi =
+            std::min(lag_max, static_cast<std::size_t>(std::floor((1.0 + kContinuityReach) * last_period_dec)));
+        if (lo > hi || lo < 1) return;
+        std::size_t best = lo;
+        for (std::size_t j = lo; j <= hi; ++j)
+            if (cur.dn[j] < cur.dn[best]) best = j;
+        if (!(cur.dn[best] <= cur.dn[best - 1] && cur.dn[best] <= cur.dn[best + 1])) return;  // not a dip
+        if (!(cur.dn[best] <= kContinuityRatio * aper + kContinuityTolerance)) return;
+        period = parabolic_minimum(cur.d, best);
+        aper = cur.dn[best];
     }
 
     // A frame the coarse stage calls aperiodic, after a voiced frame: where

@@ -2,7 +2,8 @@
 // Method: A. de Cheveigné and H. Kawahara, "YIN, a fundamental frequency estimator for speech and music", J. Acoust.
 // Soc. Am. 111(4), 1917-1930 (2002); the vibrato bias removed as a kernel-smoothing bias (M. P. Wand and M. C. Jones,
 // Kernel Smoothing, Chapman & Hall 1995, sec. 2.5); voicing against a noise floor by minimum statistics (R. Martin
-// 2001, yin_voicing.h). Stages: DEVELOPERS.md, "Methods in detail".
+// 2001, yin_voicing.h); continuity across frames after pYIN's transition prior (M. Mauch and S. Dixon, ICASSP 2014),
+// greedy and causal. Stages: DEVELOPERS.md, "Methods in detail".
 // Thread: one at a time (the analysis thread). Allocates: in the constructor only. Locks: no.
 #pragma once
 
