@@ -126,6 +126,19 @@ void lag_products(const float* x, std::size_t n, std::size_t n_lags, float* out)
 }
 
 BEATLESS_CLONES
+void biweight(float* w, std::size_t n) noexcept {
+    // Symmetric: u at n - 1 - i is exactly -u at i (an integer numerator), so the second half mirrors the first.
+    const double wd = static_cast<double>(n);
+    const std::size_t half = (n + 1) / 2;
+    for (std::size_t i = 0; i < half; ++i) {
+        const double u = (2.0 * static_cast<double>(i) + 1.0 - wd) / wd;
+        const double b = 1.0 - u * u;
+        w[i] = static_cast<float>(b * b);
+    }
+    for (std::size_t i = half; i < n; ++i) w[i] = w[n - 1 - i];
+}
+
+BEATLESS_CLONES
 void add(float* acc, const float* a, std::size_t n) noexcept {
     for (std::size_t i = 0; i < n; ++i) acc[i] += a[i];
 }
