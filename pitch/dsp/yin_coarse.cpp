@@ -47,13 +47,19 @@ void difference_from_correlation(const float* y, std::size_t window, std::size_t
                                  double* d) noexcept {
     double e0 = 0.0;
     for (std::size_t j = 0; j < window; ++j) e0 += static_cast<double>(y[j]) * y[j];
-    double e = e0;
+    // Three passes, the same operations as one loop: each lag's change of energy (independent, vectorised), their
+    // running sum in lag order, then d.
     d[0] = 0.0;
     for (std::size_t t = 1; t <= max_lag; ++t) {
         const double out = y[t - 1], in = y[t - 1 + window];
-        e += in * in - out * out;
-        d[t] = std::max(0.0, e0 + e - 2.0 * static_cast<double>(r[t]));
+        d[t] = in * in - out * out;
     }
+    double e = e0;
+    for (std::size_t t = 1; t <= max_lag; ++t) {
+        e += d[t];
+        d[t] = e;
+    }
+    for (std::size_t t = 1; t <= max_lag; ++t) d[t] = std::max(0.0, e0 + d[t] - 2.0 * static_cast<double>(r[t]));
 }
 
 void cumulative_mean_normalised(std::span<const double> d, std::span<double> dn) noexcept {
