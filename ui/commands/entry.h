@@ -23,6 +23,11 @@ inline constexpr const char* kProgramDescription =
 inline constexpr std::array<const char*, 5> kWholeProgramCommands = {"devices", "listen", "snapshot", "ensemble",
                                                                      "drill"};
 
+// The file commands: the front program runs a line whose first word is one of these, and hands any other line on
+// before parsing it (register_file_commands registers exactly these; tests/test_front.cpp checks it).
+inline constexpr std::array<const char*, 8> kFileCommands = {"ratio", "tone",    "track",   "chord",
+                                                             "drift", "history", "analyze", "tuning"};
+
 // The version flag and "at most one subcommand", as both programs set them.
 void setup_app(CLI::App& app);
 

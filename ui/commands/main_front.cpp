@@ -11,6 +11,7 @@
 
 #include <unistd.h>
 
+#include <algorithm>
 #include <cerrno>
 #include <climits>
 #include <csignal>
@@ -43,6 +44,11 @@ int run_whole_program(char** argv) {
 
 int main(int argc, char** argv) {
     using namespace beatless;
+    // A line that does not start with a file command (the window, --help, --version, a live command) goes on
+    // before anything is set up here.
+    if (argc < 2 || std::none_of(ui::kFileCommands.begin(), ui::kFileCommands.end(),
+                                 [&](const char* name) { return std::strcmp(argv[1], name) == 0; }))
+        return run_whole_program(argv);
     std::signal(SIGXFSZ, SIG_IGN);  // as the whole program: a file-size limit is an error, not a half file
     CLI::App app{ui::kProgramDescription, "beatless"};
     ui::setup_app(app);
