@@ -20,9 +20,13 @@ namespace beatless::test {
 std::string program_path() { return BEATLESS_PROGRAM; }
 
 RunResult run_program(const std::vector<std::string>& args, const std::vector<std::string>& env) {
+    return run_program_at(program_path(), args, env);
+}
+
+RunResult run_program_at(const std::string& prog, const std::vector<std::string>& args,
+                         const std::vector<std::string>& env) {
     int out_pipe[2], err_pipe[2];
     if (pipe(out_pipe) != 0 || pipe(err_pipe) != 0) throw std::runtime_error("pipe failed");
-    const std::string prog = program_path();
     std::vector<std::string> envs;
     for (char** e = environ; *e; ++e) envs.emplace_back(*e);
     for (const auto& kv : env) {
@@ -79,6 +83,10 @@ RunResult run_program(const std::vector<std::string>& args, const std::vector<st
 }
 
 RunResult run_program(const std::string& args_line, const std::vector<std::string>& env) {
+    return run_program(split_args(args_line), env);
+}
+
+std::vector<std::string> split_args(const std::string& args_line) {
     std::vector<std::string> args;
     std::string cur;
     bool in_arg = false;
@@ -102,7 +110,7 @@ RunResult run_program(const std::string& args_line, const std::vector<std::strin
         }
     }
     if (in_arg) args.push_back(cur);
-    return run_program(args, env);
+    return args;
 }
 
 std::vector<double> json_numbers(const std::string& json, const std::string& list_expr) {

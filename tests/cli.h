@@ -22,6 +22,12 @@ RunResult run_program(const std::vector<std::string>& args, const std::vector<st
 // quote an argument that contains spaces.
 RunResult run_program(const std::string& args_line, const std::vector<std::string>& env = {});
 
+// Same, running another program (the whole program beside the front one, tests/test_front.cpp).
+RunResult run_program_at(const std::string& program, const std::vector<std::string>& args,
+                         const std::vector<std::string>& env = {});
+// A line split as run_program(args_line) splits it.
+std::vector<std::string> split_args(const std::string& args_line);
+
 // One value out of a JSON text, read by Python's json module (an outside
 // parser, /usr/bin/python3) and printed by str(): expr is a Python
 // expression on the parsed document `d`, e.g. "d['voices'][1]['note']".

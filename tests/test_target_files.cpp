@@ -26,6 +26,18 @@ std::string error_of_text(const std::string& text) {
 }
 }  // namespace
 
+TEST_CASE("each built-in file's kind, read when it was embedded, is the kind the TOML parser reads and accepts") {
+    // The reference is toml++ (an outside TOML parser) on the same text.
+    for (const auto& f : ui::embedded_target_files()) {
+        CAPTURE(f.name);
+        const toml::table t = toml::parse(f.text);
+        CHECK(std::string(f.kind) == t["kind"].value_or(std::string()));
+        CHECK_NOTHROW((void)ui::parse_toml(f.text, f.name, f.kind));
+    }
+    CHECK(ui::builtin_names("chord").size() >= 5);
+    CHECK(ui::builtin_names("drill").size() >= 5);
+}
+
 TEST_CASE("the built-in target sets load and hold what the issue asks") {
     const auto names = ui::builtin_names("targets");
     for (const char* want : {"tritones", "5-limit", "7-limit", "11-limit", "harmonics-8-16"}) {

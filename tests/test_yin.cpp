@@ -131,7 +131,7 @@ TEST_CASE("yin_difference (FFT) equals the direct sum of eq. 6 for several windo
         for (std::size_t tau = 0; tau <= s[1]; ++tau)
             worst = std::max(worst, std::fabs(d[tau] - brute_difference(x, s[0], tau)));
         INFO("window " << s[0] << " max_lag " << s[1]);
-        CHECK(worst / scale < 2e-6);  // float FFT rounding; a wrong lag is off by O(1)
+        CHECK(worst / scale < 2e-6);  // float rounding; a wrong lag is off by O(1)
         CHECK(d[0] == 0.0);
     }
 }

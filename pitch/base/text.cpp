@@ -1,14 +1,23 @@
 // Small text helpers (text.h).
 #include "pitch/base/text.h"
 
+#include <charconv>
 #include <cstdio>
 
 namespace beatless::pitch {
 
 std::string format_trimmed(double v, int decimals) {
+    // std::to_chars with a precision writes what printf's "%.*f" writes (C++20 [charconv.to.chars]), without the
+    // locale and format parsing; a value longer than the 63 characters printf writes here falls back to it (cut as before).
     char buf[64];
-    std::snprintf(buf, sizeof buf, "%.*f", decimals, v);
-    std::string s = buf;
+    const auto [end, ec] = std::to_chars(buf, buf + sizeof buf - 1, v, std::chars_format::fixed, decimals);
+    std::string s;
+    if (ec == std::errc()) {
+        s.assign(buf, end);
+    } else {
+        std::snprintf(buf, sizeof buf, "%.*f", decimals, v);
+        s = buf;
+    }
     if (s.find('.') != std::string::npos) {
         while (!s.empty() && s.back() == '0') s.pop_back();
         if (!s.empty() && s.back() == '.') s.pop_back();

@@ -100,21 +100,42 @@ void weighted_sq_diff(const float* x, const float* w, std::size_t n, std::size_t
 }
 
 BEATLESS_CLONES
-void complex_mac(float* acc, const float* a, const float* b, std::size_t n) noexcept {
-    for (std::size_t k = 0; k < n; ++k) {
-        const float ar = a[2 * k], ai = a[2 * k + 1], br = b[2 * k], bi = b[2 * k + 1];
-        acc[2 * k] += ar * br - ai * bi;
-        acc[2 * k + 1] += ar * bi + ai * br;
+void lag_products(const float* x, std::size_t n, std::size_t n_lags, float* out) noexcept {
+    // Thirty-two lags per pass share each broadcast of x[j]; the four sums stay in registers.
+    std::size_t t = 0;
+    for (; t + 4 * kLanes <= n_lags; t += 4 * kLanes) {
+        v8 a0{}, a1{}, a2{}, a3{};
+        const float* y = x + t;
+        for (std::size_t j = 0; j < n; ++j) {
+            const v8 b = v8{} + x[j];
+            a0 += b * load(y + j);
+            a1 += b * load(y + j + kLanes);
+            a2 += b * load(y + j + 2 * kLanes);
+            a3 += b * load(y + j + 3 * kLanes);
+        }
+        std::memcpy(out + t, &a0, sizeof a0);
+        std::memcpy(out + t + kLanes, &a1, sizeof a1);
+        std::memcpy(out + t + 2 * kLanes, &a2, sizeof a2);
+        std::memcpy(out + t + 3 * kLanes, &a3, sizeof a3);
+    }
+    for (; t < n_lags; t += kLanes) {
+        v8 a0{};
+        for (std::size_t j = 0; j < n; ++j) a0 += (v8{} + x[j]) * load(x + t + j);
+        std::memcpy(out + t, &a0, sizeof a0);
     }
 }
 
 BEATLESS_CLONES
-void conj_mul(float* out, const float* a, const float* b, std::size_t n) noexcept {
-    for (std::size_t k = 0; k < n; ++k) {
-        const float ar = a[2 * k], ai = a[2 * k + 1], br = b[2 * k], bi = b[2 * k + 1];
-        out[2 * k] = ar * br + ai * bi;
-        out[2 * k + 1] = ar * bi - ai * br;
+void biweight(float* w, std::size_t n) noexcept {
+    // Symmetric: u at n - 1 - i is exactly -u at i (an integer numerator), so the second half mirrors the first.
+    const double wd = static_cast<double>(n);
+    const std::size_t half = (n + 1) / 2;
+    for (std::size_t i = 0; i < half; ++i) {
+        const double u = (2.0 * static_cast<double>(i) + 1.0 - wd) / wd;
+        const double b = 1.0 - u * u;
+        w[i] = static_cast<float>(b * b);
     }
+    for (std::size_t i = half; i < n; ++i) w[i] = w[n - 1 - i];
 }
 
 BEATLESS_CLONES

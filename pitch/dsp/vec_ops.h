@@ -27,11 +27,14 @@ double sum_sq(const float* x, std::size_t n) noexcept;
 void weighted_sq_diff(const float* x, const float* w, std::size_t n, std::size_t lag0, std::size_t n_lags,
                       double* out) noexcept;
 
-// Complex arrays as interleaved (re, im) float pairs, n complex values:
-// acc[k] += a[k] * b[k].
-void complex_mac(float* acc, const float* a, const float* b, std::size_t n) noexcept;
-// out[k] = conj(a[k]) * b[k].
-void conj_mul(float* out, const float* a, const float* b, std::size_t n) noexcept;
+// out[t] = sum_{j < n} x[j] * x[j + t] for t < n_lags (any n; n_lags a multiple of kLanes); x must be readable up
+// to x[n - 1 + n_lags - 1]. Lags are taken eight at a time (the broadcast x[j] times x[j + t .. j + t + 7]), each
+// sum in float in the order of j.
+void lag_products(const float* x, std::size_t n, std::size_t n_lags, float* out) noexcept;
+
+// The biweight window of n samples: w[i] = (1 - u^2)^2 with u = (2 i + 1 - n) / n, each in double, stored as
+// float (the same values as the plain loop: the first half four at a time, the second its mirror image).
+void biweight(float* w, std::size_t n) noexcept;
 // acc[i] += a[i], i < n floats.
 void add(float* acc, const float* a, std::size_t n) noexcept;
 

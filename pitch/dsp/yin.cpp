@@ -348,15 +348,14 @@ struct YinTracker::Impl {
             if (x.size() - x_len < kChunk) compact();
             const std::size_t n = std::min({in.size(), kChunk, x.size() - x_len});
             float* dst = x.data() + x_len;
-            for (std::size_t i = 0; i < n; ++i) {
-                const float v = in[i];
-                if (std::isfinite(v)) {
-                    dst[i] = v;
-                } else {
-                    dst[i] = 0.0f;
-                    ++bad_samples;
-                }
-            }
+            // Copied, then checked in one pass; a block with a NaN or infinity (rare) has them zeroed and counted.
+            std::copy(in.begin(), in.begin() + static_cast<std::ptrdiff_t>(n), dst);
+            if (!std::all_of(dst, dst + n, [](float v) { return std::isfinite(v); }))
+                for (std::size_t i = 0; i < n; ++i)
+                    if (!std::isfinite(dst[i])) {
+                        dst[i] = 0.0f;
+                        ++bad_samples;
+                    }
             x_len += n;
             in = in.subspan(n);
             decimate();

@@ -74,7 +74,7 @@ private:
 };
 
 // The YIN difference function d(tau) = sum_{j=0}^{window-1} (x[j] - x[j+tau])^2
-// for tau = 0 .. max_lag, computed through the FFT; x must hold at least
+// for tau = 0 .. max_lag, computed as the tracker does (yin_coarse.h); x must hold at least
 // window + max_lag samples; out receives max_lag + 1 values. Exposed for
 // tests against a direct computation. Allocates: yes (a one-off helper).
 void yin_difference(std::span<const float> x, std::size_t window, std::size_t max_lag, std::span<double> out);

@@ -6,6 +6,7 @@
 #include <array>
 #include <cmath>
 #include <numbers>
+#include <vector>
 
 namespace beatless::pitch {
 
@@ -38,18 +39,24 @@ struct KernelTables {
     }
 
     KernelTables() {
+        // g and its derivatives at every table point t_i = -M + i / Q, once: t_i - j is the table point i - j Q
+        // (exact in binary, Q a power of two), and g is 0 outside the table.
+        std::vector<std::array<double, 3>> raws(kTable + 1);
         for (int i = 0; i <= kTable; ++i) {
-            const double t = -kM + static_cast<double>(i) / kQ;
-            double g, g1, g2;
-            raw(t, g, g1, g2);
+            auto& r = raws[static_cast<std::size_t>(i)];
+            raw(-kM + static_cast<double>(i) / kQ, r[0], r[1], r[2]);
+        }
+        for (int i = 0; i <= kTable; ++i) {
+            const auto& [g, g1, g2] = raws[static_cast<std::size_t>(i)];
             // Partition of unity: S(t) = sum_j g(t - j).
             double s = 0.0, s1 = 0.0, s2 = 0.0;
             for (int j = -kM - 1; j <= kM + 1; ++j) {
-                double a, a1, a2;
-                raw(t - j, a, a1, a2);
-                s += a;
-                s1 += a1;
-                s2 += a2;
+                const int k = i - j * kQ;
+                if (k < 0 || k > kTable) continue;
+                const auto& a = raws[static_cast<std::size_t>(k)];
+                s += a[0];
+                s1 += a[1];
+                s2 += a[2];
             }
             h[static_cast<std::size_t>(i)] = g / s;
             d1[static_cast<std::size_t>(i)] = (g1 * s - g * s1) / (s * s);
@@ -83,13 +90,10 @@ LagRefiner::LagRefiner(std::size_t max_window) : max_window_(max_window) {
 void LagRefiner::set_window(std::size_t window) noexcept {
     if (window == window_) return;
     window_ = window;
-    const double wd = static_cast<double>(window);
-    for (std::size_t n = 0; n < window; ++n) {
-        const double u = (2.0 * static_cast<double>(n) + 1.0 - wd) / wd;
-        const double b = 1.0 - u * u;
-        w_[n] = static_cast<float>(b * b);
-    }
-    std::fill(w_.begin() + static_cast<std::ptrdiff_t>(window), w_.end(), 0.0f);
+    vec::biweight(w_.data(), window);
+    // refine() reads the window padded to a multiple of vec::kLanes: only that much needs zeros.
+    const std::size_t padded = (window + vec::kLanes - 1) / vec::kLanes * vec::kLanes;
+    std::fill(w_.begin() + static_cast<std::ptrdiff_t>(window), w_.begin() + static_cast<std::ptrdiff_t>(padded), 0.0f);
 }
 
 bool LagRefiner::newton(const double* d, long first_lag, long j_int, double& tau, double& value) const noexcept {

@@ -109,11 +109,12 @@ int run_track(const TrackOptions& o) {
     }
     bool first = true;
     JsonWriter j;
-    auto put = [&](const std::string& json_frame, const std::string& csv_row) {
+    // A frame's line in the chosen form; only that one is made.
+    auto put = [&](const auto& json_frame, const auto& csv_row) {
         if (json)
-            std::printf("%s\n  %s", first ? "" : ",", json_frame.c_str());
+            std::printf("%s\n  %s", first ? "" : ",", json_frame().c_str());
         else
-            std::printf("%s\n", csv_row.c_str());
+            std::printf("%s\n", csv_row().c_str());
         first = false;
     };
     const auto hz = [](double f) { return f > 0.0 ? pitch::format_trimmed(f, 4) : std::string(); };
@@ -121,24 +122,36 @@ int run_track(const TrackOptions& o) {
     pitch::TwoVoiceFrame dfr;
     auto pull_all = [&] {
         while (yin && yin->pull(fr)) {
-            j.clear();
-            j.begin_object().key("t").value(fr.t_s, 4).key("f0_hz");
-            if (fr.voiced())
-                j.value(fr.f0_hz, 4);
-            else
-                j.null();
-            j.key("confidence").value(fr.confidence, 3).end_object();
-            put(j.str(), pitch::format_trimmed(fr.t_s, 4) + "," + (fr.voiced() ? hz(fr.f0_hz) : "") + "," +
-                             pitch::format_trimmed(fr.confidence, 3));
+            put(
+                [&] {
+                    j.clear();
+                    j.begin_object().key("t").value(fr.t_s, 4).key("f0_hz");
+                    if (fr.voiced())
+                        j.value(fr.f0_hz, 4);
+                    else
+                        j.null();
+                    j.key("confidence").value(fr.confidence, 3).end_object();
+                    return j.str();
+                },
+                [&] {
+                    return pitch::format_trimmed(fr.t_s, 4) + "," + (fr.voiced() ? hz(fr.f0_hz) : "") + "," +
+                           pitch::format_trimmed(fr.confidence, 3);
+                });
         }
         while (duo && duo->pull(dfr)) {
-            j.clear();
-            j.begin_object().key("t").value(dfr.t_s, 4).key("f0_hz").begin_array();
-            for (const double f : {dfr.f_low_hz, dfr.f_high_hz})
-                if (f > 0.0) j.value(f, 4);
-            j.end_array().key("confidence").value(dfr.confidence, 3).end_object();
-            put(j.str(), pitch::format_trimmed(dfr.t_s, 4) + "," + hz(dfr.f_low_hz) + "," + hz(dfr.f_high_hz) + "," +
-                             pitch::format_trimmed(dfr.confidence, 3));
+            put(
+                [&] {
+                    j.clear();
+                    j.begin_object().key("t").value(dfr.t_s, 4).key("f0_hz").begin_array();
+                    for (const double f : {dfr.f_low_hz, dfr.f_high_hz})
+                        if (f > 0.0) j.value(f, 4);
+                    j.end_array().key("confidence").value(dfr.confidence, 3).end_object();
+                    return j.str();
+                },
+                [&] {
+                    return pitch::format_trimmed(dfr.t_s, 4) + "," + hz(dfr.f_low_hz) + "," + hz(dfr.f_high_hz) +
+                           "," + pitch::format_trimmed(dfr.confidence, 3);
+                });
         }
     };
     for (auto block = reader.read(); !block.empty(); block = reader.read()) {

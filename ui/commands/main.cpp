@@ -1,26 +1,23 @@
-// beatless — entry point: parses the command line and runs one command.
+// beatless-full — the whole program: parses the command line and runs one command. `beatless` (main_front.cpp) runs
+// the file commands itself and hands every other command line to this one (ui/commands/entry.h).
 //
 // Exit codes (DESIGN.md): 0 success, 1 bad input or runtime failure, 2 bad
 // usage. Every failure is one line on stderr naming the file, device or value.
-#include "pitch/base/error.h"
 #include "ui/commands/commands.h"
-#include "ui/render/render_error.h"
-#include "ui/session/usage_error.h"
+#include "ui/commands/entry.h"
 
 #include <CLI/CLI.hpp>
 
 #include <csignal>
 #include <cstdio>
-#include <exception>
 
 int main(int argc, char** argv) {
     using namespace beatless;
     // Past a file-size limit (ulimit -f) a write fails with EFBIG and is
     // reported, instead of the signal ending the program with a half file.
     std::signal(SIGXFSZ, SIG_IGN);
-    CLI::App app{"Beatless: hear how far you are from a just interval, in cents and beats per second.", "beatless"};
-    app.set_version_flag("--version", "beatless 0.1.0");
-    app.require_subcommand(0, 1);
+    CLI::App app{ui::kProgramDescription, "beatless"};
+    ui::setup_app(app);
 
     ui::Runner run;
     ui::register_ratio(app, run);
@@ -57,20 +54,6 @@ int main(int argc, char** argv) {
         return 2;
     }
 
-    try {
-        if (!run) return ui::run_screens(screen, frames);
-        return run();
-    } catch (const UsageError& e) {
-        std::fprintf(stderr, "beatless: %s\n", e.what());
-        return 2;
-    } catch (const Error& e) {
-        std::fprintf(stderr, "beatless: %s\n", e.what());
-        return 1;
-    } catch (const ui::RenderError& e) {
-        std::fprintf(stderr, "beatless: %s\n", e.what());
-        return 1;
-    } catch (const std::exception& e) {
-        std::fprintf(stderr, "beatless: unexpected failure: %s\n", e.what());
-        return 1;
-    }
+    if (!run) run = [&] { return ui::run_screens(screen, frames); };
+    return ui::run_guarded(run);
 }

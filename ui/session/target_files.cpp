@@ -15,11 +15,9 @@ namespace beatless::ui {
 std::vector<std::string> builtin_names(std::string_view kind) {
     std::vector<std::string> out;
     for (const auto& f : embedded_target_files()) {
-        try {
-            const TomlDoc d = parse_toml(f.text, f.name, kind);
-            std::string n = f.name;
-            out.push_back(n.substr(0, n.size() - 5));
-        } catch (const Error&) {}
+        if (kind != f.kind) continue;
+        const std::string n = f.name;
+        out.push_back(n.substr(0, n.size() - 5));
     }
     std::sort(out.begin(), out.end());
     return out;

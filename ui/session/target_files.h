@@ -22,6 +22,7 @@ namespace beatless::ui {
 struct EmbeddedFile {
     const char* name;  // "tritones.toml"
     const char* text;  // whole file
+    const char* kind;  // its `kind` line's value, read when it was embedded ("" when it has none)
 };
 const std::vector<EmbeddedFile>& embedded_target_files();
 
