@@ -612,7 +612,6 @@ void Engine::analyze_frames() noexcept {
     while (m.trackers[0]->pull(m.frames[0])) {
         for (std::size_t p = 1; p < m.players; ++p)
             if (!m.trackers[p]->pull(m.frames[p])) m.frames[p] = pitch::PitchFrame{m.frames[0].t_s, 0.0, 0.0};
-        const std::uint64_t notes_before = m.maker ? m.maker->notes_started() : 0;
         for (std::size_t p = 0; p < m.players; ++p) {
             pitch::PitchFrame& f = m.frames[p];
             DroneCanceller& c = *m.cancellers[p];
@@ -639,12 +638,10 @@ void Engine::analyze_frames() noexcept {
         if (removal_active && !m.input_has_drone) {
             // Tell drone removal whether the performer sounds, and since when.
             const auto now = static_cast<double>(m.analyzed.load(std::memory_order_relaxed));
-            const bool new_note = m.maker && mode_ == EngineMode::performer && m.maker->notes_started() != notes_before;
             for (std::size_t p = 0; p < m.players; ++p) {
                 const pitch::PitchFrame& f = m.frames[p];
                 const double onset = f.t_s - 0.5 * m.span_s;
                 m.cancellers[p]->set_voice(f.voiced(), static_cast<std::size_t>(std::max(0.0, now - onset * m.rate)));
-                if (new_note) m.cancellers[p]->new_note();
             }
         }
     }
