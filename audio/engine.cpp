@@ -380,6 +380,8 @@ void Engine::start(bool analysis_thread) {
     if (short_span) yc.vibrato_correction = false;
     CancellerConfig cc = cfg_.canceller;
     cc.sample_rate_hz = m.rate;
+    // A note change leaves unvoiced frames for up to a span (two notes in it): not a silence to widen the notch in.
+    cc.quiet_hold_s = std::max(cc.quiet_hold_s, yc.span_s);
     // A recording: the voice may sound from the first sample, so there is no
     // silent moment to learn the room in; one notch width throughout.
     if (m.input_has_drone) cc.bandwidth_hz = cc.quiet_bandwidth_hz = cc.recording_bandwidth_hz;
