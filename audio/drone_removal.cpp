@@ -23,11 +23,15 @@ DroneCanceller::DroneCanceller(const CancellerConfig& config) : cfg_(config) {
     if (!(fs >= 8000.0 && fs <= 192000.0))
         throw Error("drone removal: sample rate " + std::to_string(fs) + " Hz is out of range");
     if (cfg_.max_partials < 1 || cfg_.max_partials > 512) throw Error("drone removal: max_partials must be 1 to 512");
-    if (!(cfg_.bandwidth_hz > 0.0 && cfg_.quiet_bandwidth_hz >= cfg_.bandwidth_hz &&
+    if (!(cfg_.bandwidth_hz >= 0.0 && cfg_.quiet_bandwidth_hz > 0.0 && cfg_.quiet_bandwidth_hz >= cfg_.bandwidth_hz &&
           cfg_.acquire_bandwidth_hz >= cfg_.bandwidth_hz && cfg_.acquire_bandwidth_hz <= 100.0 &&
           cfg_.quiet_bandwidth_hz <= 100.0))
-        throw Error("drone removal: bandwidths must satisfy 0 < bandwidth <= quiet and acquire bandwidths <= 100 Hz");
+        throw Error(
+            "drone removal: bandwidths must satisfy 0 <= bandwidth <= quiet and acquire bandwidths <= 100 Hz, quiet > "
+            "0");
     if (!(cfg_.history_s >= 0.0 && cfg_.history_s <= 2.0)) throw Error("drone removal: history_s must be 0 to 2 s");
+    if (!(cfg_.quiet_hold_s >= 0.0 && cfg_.quiet_hold_s <= 1.0))
+        throw Error("drone removal: quiet_hold_s must be 0 to 1 s");
     if (cfg_.block_len_samples < 1 || cfg_.block_len_samples > 4096)
         throw Error("drone removal: block length must be 1 to 4096");
     const std::size_t n = cfg_.max_partials;
@@ -122,8 +126,10 @@ void DroneCanceller::set_voice(bool sounding, std::size_t onset_age_samples) noe
         return;
     }
     if (count_ == 0 || !quiet_valid_) return;
-    if (static_cast<double>(processed_ - quiet_since_) < cfg_.min_quiet_s * cfg_.sample_rate_hz) {
-        // Only a gap between notes: what the last note left is dropped.
+    const auto quiet_samples = static_cast<double>(processed_ - quiet_since_);
+    if (quiet_samples < cfg_.quiet_hold_s * cfg_.sample_rate_hz) return;  // the notch stayed narrow: nothing to undo
+    if (quiet_samples < cfg_.min_quiet_s * cfg_.sample_rate_hz) {
+        // Only a gap between notes: what the wide notch took of the note's tail is dropped.
         std::copy_n(quiet_wr_.begin(), count_, wr_.begin());
         std::copy_n(quiet_wi_.begin(), count_, wi_.begin());
         return;
@@ -141,12 +147,6 @@ void DroneCanceller::set_voice(bool sounding, std::size_t onset_age_samples) noe
     }
     std::copy_n(wr_.begin(), count_, quiet_wr_.begin());
     std::copy_n(wi_.begin(), count_, quiet_wi_.begin());
-}
-
-void DroneCanceller::new_note() noexcept {
-    if (!sounding_ || !quiet_valid_) return;
-    std::copy_n(quiet_wr_.begin(), count_, wr_.begin());
-    std::copy_n(quiet_wi_.begin(), count_, wi_.begin());
 }
 
 bool DroneCanceller::is_residue(double f0_hz, double level_dbfs) const noexcept {
@@ -206,7 +206,10 @@ void DroneCanceller::run_block(const float* in, float* out, std::size_t m, doubl
         phase_[k] = std::fmod(phase_[k] + kTwoPi * freq_[k] * static_cast<double>(m) / fs, kTwoPi);
     }
     const std::size_t acquiring = std::min(acquire_left_, m);
-    const double mu_now = sounding_ ? mu_ : mu_quiet_;
+    // Right after the performer falls silent the notch stays narrow: unvoiced frames at a note change (two notes
+    // in one span) are not a silence, and a wide notch there would take the new note's partials with the drone's.
+    const bool quiet_long = static_cast<double>(processed_ - quiet_since_) >= cfg_.quiet_hold_s * fs;
+    const double mu_now = sounding_ || !quiet_long ? mu_ : mu_quiet_;
     acquire_left_ -= acquiring;
     const bool acquired_now = acquiring > 0 && acquire_left_ == 0;
     auto* zr = reinterpret_cast<F4*>(zr_.data());

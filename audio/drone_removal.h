@@ -18,7 +18,7 @@ struct CancellerConfig {
     double sample_rate_hz = 48000.0;      // input rate
     std::size_t max_partials = 96;        // most drone partials followed (default 96)
     double max_freq_hz = 6000.0;          // partials above are left alone (default 6 kHz)
-    double bandwidth_hz = 0.1;            // notch half-bandwidth while the performer sounds (default 0.1 Hz)
+    double bandwidth_hz = 0.0;            // notch half-bandwidth while the performer sounds (default 0: held)
     double quiet_bandwidth_hz = 3.0;      // ... while the performer is silent (default 3 Hz)
     double recording_bandwidth_hz = 0.3;  // a recording's drone, voice present throughout: one width (default 0.3 Hz)
     double acquire_bandwidth_hz = 12.0;   // notch half-bandwidth right after a restart (default 12 Hz)
@@ -27,6 +27,7 @@ struct CancellerConfig {
     std::size_t block_len_samples = 64;   // phasors are recomputed exactly every block (default 64)
     double history_s = 0.15;              // weights kept for rolling back to before a voice onset (default 0.15 s)
     double min_quiet_s = 0.1;             // a silence shorter than this is a gap between notes (default 0.1 s)
+    double quiet_hold_s = 0.03;           // the quiet notch widens only after this much silence (default 30 ms)
     double residue_db = 24.0;     // a pitch this far under the drone, on its partials, is residue (default 24 dB)
     double residue_cents = 15.0;  // ... within this of a drone partial (default 15 cents)
 };
@@ -57,9 +58,6 @@ public:
     // onset_age_samples says how long ago (in input samples) the sound began:
     // the weights go back to their state from before it. Thread: analysis.
     void set_voice(bool sounding, std::size_t onset_age_samples = 0) noexcept;
-    // A new note began without a silence: back to the weights of the last
-    // silent moment (what the previous note left in them is dropped).
-    void new_note() noexcept;
 
     void reset() noexcept;  // forget the room response
     std::size_t partial_count() const noexcept { return count_; }

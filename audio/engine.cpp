@@ -380,6 +380,8 @@ void Engine::start(bool analysis_thread) {
     if (short_span) yc.vibrato_correction = false;
     CancellerConfig cc = cfg_.canceller;
     cc.sample_rate_hz = m.rate;
+    // A note change leaves unvoiced frames for up to a span (two notes in it): not a silence to widen the notch in.
+    cc.quiet_hold_s = std::max(cc.quiet_hold_s, yc.span_s);
     // A recording: the voice may sound from the first sample, so there is no
     // silent moment to learn the room in; one notch width throughout.
     if (m.input_has_drone) cc.bandwidth_hz = cc.quiet_bandwidth_hz = cc.recording_bandwidth_hz;
@@ -612,7 +614,6 @@ void Engine::analyze_frames() noexcept {
     while (m.trackers[0]->pull(m.frames[0])) {
         for (std::size_t p = 1; p < m.players; ++p)
             if (!m.trackers[p]->pull(m.frames[p])) m.frames[p] = pitch::PitchFrame{m.frames[0].t_s, 0.0, 0.0};
-        const std::uint64_t notes_before = m.maker ? m.maker->notes_started() : 0;
         for (std::size_t p = 0; p < m.players; ++p) {
             pitch::PitchFrame& f = m.frames[p];
             DroneCanceller& c = *m.cancellers[p];
@@ -639,12 +640,10 @@ void Engine::analyze_frames() noexcept {
         if (removal_active && !m.input_has_drone) {
             // Tell drone removal whether the performer sounds, and since when.
             const auto now = static_cast<double>(m.analyzed.load(std::memory_order_relaxed));
-            const bool new_note = m.maker && mode_ == EngineMode::performer && m.maker->notes_started() != notes_before;
             for (std::size_t p = 0; p < m.players; ++p) {
                 const pitch::PitchFrame& f = m.frames[p];
                 const double onset = f.t_s - 0.5 * m.span_s;
                 m.cancellers[p]->set_voice(f.voiced(), static_cast<std::size_t>(std::max(0.0, now - onset * m.rate)));
-                if (new_note) m.cancellers[p]->new_note();
             }
         }
     }
