@@ -1,18 +1,16 @@
 #include "audio/device.h"
 
 #include "audio/jack_device.h"
+#include "audio/quiet_stderr.h"
 
 #include "pitch/base/error.h"
 #include "pitch/base/text.h"
 
 #include <portaudio.h>
 
-#include <fcntl.h>
-#include <unistd.h>
 #include <algorithm>
 #include <atomic>
 #include <cctype>
-#include <cstdio>
 #include <memory>
 #include <thread>
 
@@ -109,30 +107,7 @@ DeviceChoice choose_output_device(const std::vector<DeviceInfo>& devices, std::s
 
 namespace {
 
-// Keeps the C libraries under PortAudio (ALSA, JACK) from printing their
-// probing noise on our stderr: fd 2 points at /dev/null while it lives.
-class QuietStderr {
-public:
-    QuietStderr() {
-        std::fflush(stderr);
-        saved_ = dup(2);
-        const int null_fd = ::open("/dev/null", O_WRONLY);
-        if (saved_ >= 0 && null_fd >= 0) dup2(null_fd, 2);
-        if (null_fd >= 0) close(null_fd);
-    }
-    ~QuietStderr() {
-        std::fflush(stderr);
-        if (saved_ >= 0) {
-            dup2(saved_, 2);
-            close(saved_);
-        }
-    }
-    QuietStderr(const QuietStderr&) = delete;
-    QuietStderr& operator=(const QuietStderr&) = delete;
-
-private:
-    int saved_ = -1;
-};
+using detail::QuietStderr;  // PortAudio's ALSA and JACK probing noise kept off our stderr
 
 std::string pa_text(PaError e) {
     if (e == paUnanticipatedHostError) {
