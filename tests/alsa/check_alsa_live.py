@@ -4,8 +4,9 @@
 This machine has no sound card, so the ALSA device is a PCM of alsa-lib's
 `pulse` plugin (Debian's libasound2-plugins) defined in a private ~/.asoundrc
 (HOME is the test's temporary runtime directory, never the user's own) and
-reading the monitor of a null sink of a private `pulseaudio -n`: killing that
-server takes the device away from user space, restarting it brings it back.
+reading the monitor of a null sink of a private `pulseaudio -n` through a
+socket of its own: killing that server takes the device away from user space,
+restarting it (and opening the socket) brings it back.
 The server, the take and the listener come from check_pulse_live.py.
   1. `devices` lists the PCM as an ALSA device;
   2. a generated take (a drone on D3, a voice at 7/5 sung 6 c flat) is played
@@ -43,9 +44,10 @@ HOP_S = 0.005  # listen prints one reading per tracker hop (EngineConfig::hop_s,
 ASOUNDRC = """# Written by check_alsa_live.py: an ALSA capture device whose backend is a private pulse server.
 pcm.%s {
     type pulse
+    server "unix:%s"
     device room.monitor
 }
-""" % PCM
+"""
 
 
 def pulse_plugin_installed():
@@ -65,9 +67,19 @@ def main():
     os.chmod(runtime, 0o700)
     home = os.path.join(runtime, "home")
     server = rig.Server(runtime, "pulseaudio")  # its env has HOME=runtime: alsa-lib reads our .asoundrc there
+    # The PCM reaches the server through a socket of its own, opened once the server is
+    # wholly up (its sinks loaded, the keeper clocking `room`), as a sound card comes back
+    # whole: a stream joining earlier hears an unclocked null sink in 2-s chunks.
+    socket = os.path.join(runtime, "alsa-native")
     with open(os.path.join(runtime, ".asoundrc"), "w") as f:
-        f.write(ASOUNDRC)
+        f.write(ASOUNDRC % (PCM, socket))
+
+    def open_socket():
+        if not server.pactl("load-module", "module-native-protocol-unix", "socket=" + socket):
+            raise RuntimeError("the PCM's socket %s could not be opened on the server" % socket)
+
     server.start()
+    open_socket()
     env = server.env
 
     # 1. The PCM is an ALSA device of PortAudio's.
@@ -82,7 +94,7 @@ def main():
     take = os.path.join(runtime, "long.wav")
     rig.write_take(take, 30.0, voice_start_s=0.0)
     ls, _, back_at = rig.lost_and_back(server, ["--input", PCM, "--targets", "tritones", "--root", "D3", "--seconds", "8"],
-                                       take, home)
+                                       take, home, when_up=open_socket)
     err = ls.stderr_text()
     readings = ls.readings()
     check(("input '%s' (ALSA)" % PCM) in err, "the input is opened through PortAudio's ALSA host")

@@ -173,10 +173,10 @@ class Listener:
         return "\n".join(l for _, l in self.err)
 
 
-def lost_and_back(server, listen_args, take, home):
+def lost_and_back(server, listen_args, take, home, when_up=None):
     """`listen` (listen_args, with --seconds 8) reading a take played into `room`; the server
-    killed 2.5 s in and restarted 2 s later: readings stop, resume within 3 s of its return,
-    the run ends on time, and stderr says the input stopped and came back.
+    killed 2.5 s in and restarted 2 s later (then when_up(), if given): readings stop, resume
+    within 3 s of its return, the run ends on time, and stderr says the input stopped and came back.
     Returns the Listener and the wall times (killed_at, back_at)."""
     env = server.env
 
@@ -195,6 +195,8 @@ def lost_and_back(server, listen_args, take, home):
     time.sleep(2.0)
     back_at = time.time()  # the server starts now (it may answer before start() returns)
     server.start()
+    if when_up:
+        when_up()
     player = play()
     code = ls.wait(25)
     ended_at = time.time()
@@ -204,12 +206,17 @@ def lost_and_back(server, listen_args, take, home):
     before = [at for at, _ in got if at < killed_at]
     during = [at for at, _ in got if killed_at + 1.0 < at < back_at]
     after = [at for at, _ in got if at >= back_at]
-    check(len(before) > 200, "readings before the server died (%d)" % len(before))
+    check(len(before) > 150, "readings before the server died (%d; 200 a second once started)" % len(before))
     check(len(during) == 0, "no readings while the server is gone, from 1 s after the loss (a busy machine may still be analysing audio heard before it) (%d)" % len(during))
     check(bool(after) and after[0] - back_at <= 3.0,
           "readings resume %.2f s after the server's return (within 3 s)" % ((after[0] - back_at) if after else float("inf")))
-    check(code == 0 and ended_at - ls.t0 <= 8.0 + 1.0 + 1.5,
-          "the 8-s run ends on time: %.2f s of wall time, exit %s" % (ended_at - ls.t0, code))
+    # On time: from the program's first line (it has found and opened its device; a
+    # ThreadSanitizer build takes ~1.3 s to get there) to its exit, at most 1.5 s past the
+    # 8 s + 1 s by the clock that --seconds allows a device that went away.
+    started_at = ls.err[0][0] if ls.err else ls.t0
+    check(code == 0 and ended_at - started_at <= 8.0 + 1.0 + 1.5,
+          "the 8-s run ends on time: %.2f s of wall time from its first line (%.2f s from its launch), exit %s" %
+          (ended_at - started_at, ended_at - ls.t0, code))
     err = ls.stderr_text()
     check("stopped delivering audio" in err and "is back" in err, "stderr says the input stopped and came back")
     return ls, killed_at, back_at
