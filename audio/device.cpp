@@ -1,18 +1,17 @@
 #include "audio/device.h"
 
 #include "audio/jack_device.h"
+#include "audio/quiet_stderr.h"
+#include "audio/stream_request.h"
 
 #include "pitch/base/error.h"
 #include "pitch/base/text.h"
 
 #include <portaudio.h>
 
-#include <fcntl.h>
-#include <unistd.h>
 #include <algorithm>
 #include <atomic>
 #include <cctype>
-#include <cstdio>
 #include <memory>
 #include <thread>
 
@@ -103,36 +102,34 @@ DeviceChoice choose_output_device(const std::vector<DeviceInfo>& devices, std::s
     return choose_device_why(devices, spec, Direction::output);
 }
 
+namespace detail {
+
+const DeviceInfo* requested_device(const std::vector<DeviceInfo>& devices, int index, Direction dir,
+                                   std::string_view backend) {
+    if (index < 0) return nullptr;
+    if (const DeviceInfo* d = find_device(devices, index)) return d;
+    throw Error(std::string(dir_name(dir)) + " device " + std::to_string(index) + ": no such " +
+                (backend.empty() ? std::string() : std::string(backend) + " ") + "device");
+}
+
+void require_a_direction(const StreamRequest& request) {
+    if (request.input_device < 0 && request.output_device < 0)
+        throw Error("audio stream: neither an input nor an output was asked for");
+}
+
+int stream_channels(int wanted, int device_max) { return std::max(1, std::min(wanted, device_max)); }
+
+}  // namespace detail
+
 // ---------------------------------------------------------------------------
 // [SECTION] PortAudio
 // ---------------------------------------------------------------------------
 
 namespace {
 
-// Keeps the C libraries under PortAudio (ALSA, JACK) from printing their
-// probing noise on our stderr: fd 2 points at /dev/null while it lives.
-class QuietStderr {
-public:
-    QuietStderr() {
-        std::fflush(stderr);
-        saved_ = dup(2);
-        const int null_fd = ::open("/dev/null", O_WRONLY);
-        if (saved_ >= 0 && null_fd >= 0) dup2(null_fd, 2);
-        if (null_fd >= 0) close(null_fd);
-    }
-    ~QuietStderr() {
-        std::fflush(stderr);
-        if (saved_ >= 0) {
-            dup2(saved_, 2);
-            close(saved_);
-        }
-    }
-    QuietStderr(const QuietStderr&) = delete;
-    QuietStderr& operator=(const QuietStderr&) = delete;
-
-private:
-    int saved_ = -1;
-};
+using detail::QuietStderr;  // PortAudio's ALSA and JACK probing noise kept off our stderr
+using detail::require_a_direction;
+using detail::stream_channels;
 
 std::string pa_text(PaError e) {
     if (e == paUnanticipatedHostError) {
@@ -241,15 +238,15 @@ public:
         PaStreamParameters in{}, out{};
         const PaDeviceInfo* din = rq.input_device >= 0 ? Pa_GetDeviceInfo(rq.input_device) : nullptr;
         const PaDeviceInfo* dout = rq.output_device >= 0 ? Pa_GetDeviceInfo(rq.output_device) : nullptr;
+        require_a_direction(rq);
         if (rq.input_device >= 0 && !din)
             throw Error("input device " + std::to_string(rq.input_device) + ": no such device");
         if (rq.output_device >= 0 && !dout)
             throw Error("output device " + std::to_string(rq.output_device) + ": no such device");
-        if (!din && !dout) throw Error("audio stream: neither an input nor an output was asked for");
         const std::string name = din ? std::string("'") + din->name + "'" : std::string("'") + dout->name + "'";
         auto fill = [](PaStreamParameters& p, int device, int want, int max, double latency_s) {
             p.device = device;
-            p.channelCount = std::max(1, std::min(want, max));
+            p.channelCount = stream_channels(want, max);
             p.sampleFormat = paFloat32;
             p.suggestedLatency = latency_s;
         };

@@ -428,7 +428,7 @@ void Engine::start(bool analysis_thread) {
     m.applied_root = 0.0;
     m.started = true;
     m.ready.store(true, std::memory_order_release);
-    m.io.seen_at = Clock::now();
+    m.io.watch_from(Clock::now());
     m.io.running.store(true);
     if (analysis_thread) {
         m.io.start_analysis([this] { return analyze_available(); });
@@ -848,7 +848,7 @@ void Engine::supervise() {
     const auto now = Clock::now();
     const bool group = mode_ == EngineMode::ensemble;
     if (!m.io.input_lost) {
-        const bool stalled = m.io.stalled(now, cfg_.stall_s);
+        const bool stalled = m.io.stalled(now, cfg_.stall_s, cfg_.first_callback_s);
         if (stalled || !m.io.in_stream || !m.io.in_stream->alive() || (m.io.out_stream && !m.io.out_stream->alive())) {
             m.io.input_lost = true;
             m.output_lost = m.io.want_output;

@@ -55,6 +55,8 @@ struct EngineConfig {
     CancellerConfig canceller;           // drone removal settings (rate filled in by the engine)
     RoomConfig demo_room;                // how the demo performer's microphone hears the drone
     double stall_s = 1.0;                // no callbacks for this long: the device is gone (default 1 s)
+    double first_callback_s = 3.0;       // a stream just opened may call back this late (ALSA's pulse plugin on
+                                         // an idle sink's monitor: ~1 s after the start; default 3 s)
     double reopen_every_s = 1.0;         // retry period while a device is gone (default 1 s)
 };
 

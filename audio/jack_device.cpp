@@ -2,6 +2,7 @@
 //
 // Index: [SECTION] Listing, [SECTION] Stream, [SECTION] System.
 #include "audio/jack_device.h"
+#include "audio/stream_request.h"
 
 #include "pitch/base/error.h"
 #include "pitch/base/text.h"
@@ -194,18 +195,14 @@ public:
 
     std::unique_ptr<Stream> open(const StreamRequest& rq, StreamCallbacks& cb) override {
         if (listed_.empty()) devices();
-        const DeviceInfo* in = rq.input_device >= 0 ? find_device(listed_, rq.input_device) : nullptr;
-        const DeviceInfo* out = rq.output_device >= 0 ? find_device(listed_, rq.output_device) : nullptr;
-        if (rq.input_device >= 0 && !in)
-            throw Error("input device " + std::to_string(rq.input_device) + ": no such JACK device");
-        if (rq.output_device >= 0 && !out)
-            throw Error("output device " + std::to_string(rq.output_device) + ": no such JACK device");
-        if (!in && !out) throw Error("audio stream: neither an input nor an output was asked for");
+        detail::require_a_direction(rq);
+        const DeviceInfo* in = detail::requested_device(listed_, rq.input_device, Direction::input, "JACK");
+        const DeviceInfo* out = detail::requested_device(listed_, rq.output_device, Direction::output, "JACK");
         if (in && out && in != out)
             throw Error("JACK devices '" + in->name + "' and '" + out->name + "' need a stream each");
         const DeviceInfo& dev = in ? *in : *out;
-        const int in_ch = in ? std::max(1, std::min(rq.input_channels, in->max_input_channels)) : 0;
-        const int out_ch = out ? std::max(1, std::min(rq.output_channels, out->max_output_channels)) : 0;
+        const int in_ch = in ? detail::stream_channels(rq.input_channels, in->max_input_channels) : 0;
+        const int out_ch = out ? detail::stream_channels(rq.output_channels, out->max_output_channels) : 0;
         auto s = std::make_unique<JackStream>(cb);
         s->open(dev, in_ch, out_ch, rq.sample_rate_hz);
         return s;

@@ -71,8 +71,7 @@ bool LiveIo::try_reopen(AudioSystem& system, StreamCallbacks& cb, Clock::time_po
         in_stream = std::move(in);
         out_stream = std::move(out);
         input_lost = false;
-        seen_at = now;
-        seen_callbacks = callbacks.load();
+        watch_from(now);
         return true;
     } catch (const Error&) {
         return false;  // still gone; the caller tries again later
@@ -116,13 +115,20 @@ void LiveIo::play(float* out, std::size_t frames, int channels) noexcept {
     }
 }
 
-bool LiveIo::stalled(Clock::time_point now, double stall_s) {
+void LiveIo::watch_from(Clock::time_point now) {
+    seen_at = now;
+    seen_callbacks = callbacks.load();
+    heard_since_open = false;
+}
+
+bool LiveIo::stalled(Clock::time_point now, double stall_s, double first_callback_s) {
     const std::uint64_t cb = callbacks.load();
     if (cb != seen_callbacks) {
         seen_callbacks = cb;
         seen_at = now;
+        heard_since_open = true;
     }
-    return std::chrono::duration<double>(now - seen_at).count() > stall_s;
+    return std::chrono::duration<double>(now - seen_at).count() > (heard_since_open ? stall_s : first_callback_s);
 }
 
 void LiveIo::report(LiveStatus& st) const {

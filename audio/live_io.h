@@ -99,6 +99,7 @@ struct LiveIo {
     std::atomic<std::uint64_t> dev_overflows{0}, dev_underflows{0};
     std::uint64_t seen_callbacks = 0;
     Clock::time_point seen_at{};
+    bool heard_since_open = false;  // a callback came since the stream was (re)opened
 
     // The drone's output (playback callback).
     std::unique_ptr<Drone> out_drone;
@@ -140,8 +141,11 @@ struct LiveIo {
     void play(float* out, std::size_t frames, int channels) noexcept;
 
     // --- Watchdog ------------------------------------------------------------
-    // True when no callback came for longer than stall_s (up to now).
-    bool stalled(Clock::time_point now, double stall_s);
+    // Restarts the watch when a stream has just been (re)opened.
+    void watch_from(Clock::time_point now);
+    // True when no callback came for longer than stall_s (up to now), or, before
+    // the first callback since the stream was opened, for longer than first_callback_s.
+    bool stalled(Clock::time_point now, double stall_s, double first_callback_s);
     void report(LiveStatus& st) const;  // the host's overflow and underflow counts
 
     // --- Threads ---------------------------------------------------------------

@@ -1,10 +1,11 @@
 // MIDI ports (internal to audio/) — RtMidi objects made quietly, and a port
 // chosen by number, exact name or a part of its name. The JACK backend
 // prints to stderr when no server runs, so construction silences stderr
-// for its duration. Thread: the control thread only (it touches fd 2).
+// for its duration (QuietStderr). Thread: the control thread only (it touches fd 2).
 #pragma once
 
 #include "audio/midi_out.h"
+#include "audio/quiet_stderr.h"
 
 #include <rtmidi/RtMidi.h>
 
@@ -13,19 +14,6 @@
 #include <vector>
 
 namespace beatless::audio::detail {
-
-// Sends fd 2 to /dev/null while alive: libjack prints "cannot connect"
-// lines whenever a client looks for a server that is not there, and on close.
-class QuietStderr {
-public:
-    QuietStderr();
-    ~QuietStderr();
-    QuietStderr(const QuietStderr&) = delete;
-    QuietStderr& operator=(const QuietStderr&) = delete;
-
-private:
-    int saved_ = -1;
-};
 
 // The APIs to try: ALSA's sequencer, then JACK.
 std::vector<RtMidi::Api> midi_apis();

@@ -2,6 +2,7 @@
 //
 // Index: [SECTION] Connection, [SECTION] Listing, [SECTION] Stream, [SECTION] System.
 #include "audio/pulse_device.h"
+#include "audio/stream_request.h"
 
 #include "pitch/base/error.h"
 #include "pitch/base/text.h"
@@ -162,7 +163,7 @@ public:
             throw Error("pulse " + what + ": the server did not answer");
 
         const int max_ch = capture ? dev.max_input_channels : dev.max_output_channels;
-        channels_ = std::max(1, std::min(capture ? rq.input_channels : rq.output_channels, std::max(1, max_ch)));
+        channels_ = detail::stream_channels(capture ? rq.input_channels : rq.output_channels, max_ch);
         const double rate = rq.sample_rate_hz > 0.0 ? rq.sample_rate_hz : 48000.0;
         pa_sample_spec ss{};
         ss.format = PA_SAMPLE_FLOAT32NE;
@@ -315,14 +316,11 @@ public:
     std::unique_ptr<Stream> open(const StreamRequest& rq, StreamCallbacks& cb) override {
         if (rq.input_device >= 0 && rq.output_device >= 0)
             throw Error("pulse: a source and a sink are two streams; open them one at a time");
-        const int index = rq.input_device >= 0 ? rq.input_device : rq.output_device;
-        if (index < 0) throw Error("audio stream: neither an input nor an output was asked for");
+        detail::require_a_direction(rq);
         if (listed_.empty()) listed_ = list_server();
         const bool capture = rq.input_device >= 0;
-        const DeviceInfo* d = find_device(listed_, index);
-        if (!d)
-            throw Error(std::string(capture ? "input" : "output") + " device " + std::to_string(index) +
-                        ": no such pulse device");
+        const DeviceInfo* d = capture ? detail::requested_device(listed_, rq.input_device, Direction::input, "pulse")
+                                      : detail::requested_device(listed_, rq.output_device, Direction::output, "pulse");
         if ((capture ? d->max_input_channels : d->max_output_channels) == 0)
             throw Error("pulse device '" + d->name + "' is not a " + (capture ? "source" : "sink"));
         auto s = std::make_unique<PulseStream>(cb);

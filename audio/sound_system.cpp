@@ -3,6 +3,7 @@
 
 #include "audio/jack_device.h"
 #include "audio/pulse_device.h"
+#include "audio/stream_request.h"
 #include "pitch/base/error.h"
 
 #include <string>
@@ -49,6 +50,7 @@ public:
     }
 
     std::unique_ptr<Stream> open(const StreamRequest& rq, StreamCallbacks& cb) override {
+        detail::require_a_direction(rq);
         if (routes_.empty()) devices();
         auto route = [&](int index, const char* dir) -> const Route* {
             if (index < 0) return nullptr;
@@ -63,8 +65,7 @@ public:
         StreamRequest local = rq;
         local.input_device = in ? in->index : -1;
         local.output_device = out ? out->index : -1;
-        AudioSystem* sys = in ? in->system : out ? out->system : nullptr;
-        if (!sys) throw Error("audio stream: neither an input nor an output was asked for");
+        AudioSystem* sys = in ? in->system : out->system;
         return sys->open(local, cb);
     }
 

@@ -91,14 +91,31 @@ TEST_CASE("live io: the watchdog sees a stall only after stall_s without a callb
     using Clock = LiveIo::Clock;
     LiveIo io;
     const Clock::time_point t0 = Clock::now();
-    io.seen_at = t0;
+    io.watch_from(t0);
     io.count_callback();
-    CHECK_FALSE(io.stalled(t0 + std::chrono::milliseconds(500), 1.0));   // a new callback: seen now
-    CHECK_FALSE(io.stalled(t0 + std::chrono::milliseconds(1400), 1.0));  // 0.9 s since
-    CHECK(io.stalled(t0 + std::chrono::milliseconds(1600), 1.0));        // 1.1 s since
+    CHECK_FALSE(io.stalled(t0 + std::chrono::milliseconds(500), 1.0, 3.0));   // a new callback: seen now
+    CHECK_FALSE(io.stalled(t0 + std::chrono::milliseconds(1400), 1.0, 3.0));  // 0.9 s since
+    CHECK(io.stalled(t0 + std::chrono::milliseconds(1600), 1.0, 3.0));        // 1.1 s since
     io.count_callback();
-    CHECK_FALSE(io.stalled(t0 + std::chrono::milliseconds(1700), 1.0));  // flowing again
+    CHECK_FALSE(io.stalled(t0 + std::chrono::milliseconds(1700), 1.0, 3.0));  // flowing again
     CHECK(io.seen_callbacks == 2);
+}
+
+TEST_CASE("live io: a stream just opened is given first_callback_s for its first callback, then stall_s") {
+    // ALSA's pulse plugin under PortAudio calls back first ~1 s after the
+    // stream starts (seen in this project's alsa_live test), so a 1-s watchdog
+    // would drop it before it ever spoke.
+    using Clock = LiveIo::Clock;
+    LiveIo io;
+    io.count_callback();  // callbacks of an earlier stream count for nothing
+    const Clock::time_point t0 = Clock::now();
+    io.watch_from(t0);
+    CHECK_FALSE(io.stalled(t0 + std::chrono::milliseconds(1500), 1.0, 3.0));  // silent 1.5 s: still starting
+    CHECK(io.stalled(t0 + std::chrono::milliseconds(3100), 1.0, 3.0));        // silent 3.1 s: gone
+    io.watch_from(t0);
+    io.count_callback();
+    CHECK_FALSE(io.stalled(t0 + std::chrono::milliseconds(1200), 1.0, 3.0));  // first callback seen at 1.2 s
+    CHECK(io.stalled(t0 + std::chrono::milliseconds(2300), 1.0, 3.0));        // then 1.1 s silent: gone
 }
 
 namespace {
