@@ -60,7 +60,8 @@ Drone::Drone(double sample_rate_hz)
     : rate_hz_(sample_rate_hz),
       root_(SynthConfig{sample_rate_hz, kRootPartials, 0.05}),
       fifth_(SynthConfig{sample_rate_hz, 32, 0.05}),
-      reference_(SynthConfig{sample_rate_hz, 8, 0.05}) {
+      reference_(SynthConfig{sample_rate_hz, 8, 0.05}),
+      clip_(sample_rate_hz) {
     amps_.assign(kRootPartials, 0.0);
     const auto look = static_cast<std::size_t>(std::max(8L, std::lround(0.0015 * sample_rate_hz)));
     delay_.assign(look, 0.0f);
@@ -120,6 +121,7 @@ void Drone::render(std::span<float> out) noexcept {
         if (reference_left_ <= 0) reference_.set_level(0.0);
     }
     reference_.render_add(out);
+    clip_.mix(out);
     limit(out);
 }
 

@@ -5,6 +5,7 @@
 // Allocates: in the constructor only. Locks: no.
 #pragma once
 
+#include "audio/clip_player.h"
 #include "audio/latest.h"
 #include "audio/synth.h"
 #include "audio/timbre.h"
@@ -60,7 +61,7 @@ public:
     // Allocates: no. Locks: no.
     void set(const DroneSettings& s) noexcept { pending_.publish(s); }
 
-    // Renders mono into out (overwrites): drone + reference voice, limited.
+    // Renders mono into out (overwrites): drone + reference voice + a clip playing (audio/clip_player.h), limited.
     // Thread: audio callback (one thread). Allocates: no. Locks: no.
     void render(std::span<float> out) noexcept;
 
@@ -68,6 +69,8 @@ public:
     const DroneSettings& applied() const noexcept { return applied_; }
     double limiter_gain() const noexcept { return lim_gain_; }  // 1 when not limiting
     double sample_rate_hz() const noexcept { return rate_hz_; }
+    // The clip player mixed in before the limiter (its control side: play, stop; any thread may ask busy()).
+    ClipPlayer& clip() noexcept { return clip_; }
 
 private:
     void apply(const DroneSettings& s, bool first) noexcept;
@@ -78,6 +81,7 @@ private:
     DroneSettings applied_{};
     bool have_applied_ = false;
     HarmonicSynth root_, fifth_, reference_;
+    ClipPlayer clip_;
     std::vector<double> amps_;         // scratch: root partials (+ octave)
     std::int64_t reference_left_ = 0;  // samples until the reference voice fades out
     // Limiter state.

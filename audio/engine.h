@@ -135,6 +135,14 @@ public:
     // a tone asked for while one sounds glides to the new pitch over 50 ms.
     // Throws Error on a frequency outside 20 Hz .. 5 kHz or a length outside 0.1 .. 30 s.
     void sound_tone(double freq_hz, double dur_s);
+    // Plays a recorded clip once through the output, mixed in before the drone's limiter (audio/clip_player.h): mono
+    // samples at rate_hz, RMS 1 standing for the drone's level (the caller normalises), resampled to the output's rate
+    // here, faded in and out over 30 ms; hush_drone fades the live drone out while it sounds. False when there is no
+    // output to hear it on. Throws Error on an empty clip or one longer than 60 s.
+    bool play_clip(std::span<const float> samples, double rate_hz, bool hush_drone);
+    void stop_clip();                // fades out what plays
+    bool clip_playing() const;       // a clip sounds or waits to (any thread)
+    double clip_position_s() const;  // seconds of it played
     void supervise();  // watchdog, reopening, a group's channel messages; every ~100 ms
     // Recording: from the next callback every analysed channel, as it came in (before drone removal), is copied to
     // `r` (audio/take_recorder.h), one recorder channel per analysed channel; drone changes are noted in it. nullptr

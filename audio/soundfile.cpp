@@ -6,6 +6,7 @@
 #include <sndfile.h>
 
 #include <sys/stat.h>
+#include <algorithm>
 #include <cerrno>
 #include <cmath>
 #include <cstring>
@@ -99,6 +100,14 @@ void SoundReader::rewind() {
     if (sf_seek(as_sf(file_), 0, SEEK_SET) != 0)
         throw Error(info_.path + ": cannot be read a second time (it cannot seek: a pipe?)");
     pos_frames_ = 0;
+}
+
+void SoundReader::seek(std::int64_t frame) {
+    if (!file_) return;
+    frame = std::clamp<std::int64_t>(frame, 0, info_.len_frames);
+    if (sf_seek(as_sf(file_), static_cast<sf_count_t>(frame), SEEK_SET) < 0)
+        throw Error(info_.path + ": cannot seek to frame " + std::to_string(frame));
+    pos_frames_ = frame;
 }
 
 std::span<const float> SoundReader::read() {

@@ -11,6 +11,7 @@
 #include "audio/take_writer.h"
 #include "tests/cli.h"
 #include "tests/mix_signals.h"
+#include "tests/take_fixture.h"
 #include "ui/render/imgui_host.h"
 #include "ui/render/raster.h"
 #include "ui/screens/palette.h"
@@ -38,21 +39,7 @@ constexpr double kFs = 44100.0;
 
 // A take in `dir` named for `stem`, with its sidecar: the 7-limit set, root A2.
 void write_take(const std::filesystem::path& dir, const std::string& stem, const Take& take) {
-    const std::filesystem::path flac = dir / (stem + ".flac");
-    audio::TakeWriter w(flac.string(), kFs, 1);
-    w.write(take.samples);
-    w.close();
-    ui::TakeInfo info;
-    info.audio_path = flac;
-    info.sidecar_path = ui::take_sidecar_path(flac);
-    info.rate_hz = kFs;
-    info.root_hz = 110.0;
-    info.root = "A2";
-    info.targets = "7-limit";
-    info.screen = "practice";
-    info.duration_s = take.dur_s;
-    info.complete = true;
-    ui::write_take_sidecar(info);
+    beatless::test::write_test_take(dir, stem, take.samples, kFs, take.dur_s);
 }
 
 struct ReviewRig {

@@ -16,6 +16,7 @@
 #include "ui/screens/widgets.h"
 #include "ui/session/safe_file.h"
 #include "ui/session/take_analysis.h"
+#include "ui/session/take_clip.h"
 #include "ui/session/take_export.h"
 #include "ui/session/take_file.h"
 #include "ui/session/take_words.h"
@@ -43,8 +44,12 @@ namespace {
 // ---------------------------------------------------------------------------
 
 constexpr KeyHelp kReviewKeys[] = {
-    {"Up / Down, Enter", "choose a take, open it"},   {"Left / Right", "previous / next note"},
-    {"+ / - or wheel", "zoom in / out in time"},      {"PgUp / PgDn, Home", "scroll; the whole take"},
+    {"Up / Down, Enter", "choose a take, open it"},
+    {"Left / Right", "previous / next note"},
+    {"+ / - or wheel", "zoom in / out in time"},
+    {"PgUp / PgDn, Home", "scroll; the whole take"},
+    {"L / D / B", "hear the recorded note: alone / with its drone / then its target"},
+    {"S", "stop what is heard"},
     {"T / P", "sound the note's target / its pitch"},
 };
 
@@ -94,6 +99,7 @@ private:
     void draw_plot(AppState& app, ImDrawList* dl, float x, float y, float w, float h);
     void draw_detail(AppState& app, ImDrawList* dl, float x, float y, float w, float h);
     void sound(AppState& app, bool target);
+    void hear(AppState& app, ClipKind kind);
     void export_report(AppState& app);
     void rename(AppState& app, const std::string& stem);
     char rename_buf_[96] = "";
@@ -192,6 +198,23 @@ void ReviewScreen::sound(AppState& app, bool target) {
         app.post(app.caution_needed() ? "confirm the hearing caution first" : "no output device to sound it on");
 }
 
+// The recorded note itself (ui/session/take_clip.h) through the engine's output, the live drone hushed meanwhile.
+void ReviewScreen::hear(AppState& app, ClipKind kind) {
+    if (!take_ || selected_ < 0) return;
+    try {
+        const NoteClip c = make_note_clip(*take_, static_cast<std::size_t>(selected_), kind);
+        if (!app.play_clip(c.samples, c.rate_hz))
+            app.post(app.caution_needed() ? "confirm the hearing caution first" : "no output device to play it on");
+        else
+            app.post("playing " + std::string(clip_kind_words(kind)) +
+                     (c.drone_regenerated ? " (regenerated from the take's settings)"
+                      : c.drone_recorded  ? " (as the microphone heard it)"
+                                          : ""));
+    } catch (const std::exception& e) {
+        app.post(e.what(), true);
+    }
+}
+
 // Beside the take: the printable page `analyze --report` draws (NAME.report.png) and what `analyze --format csv`
 // and `--format json` print (NAME.csv, NAME.json), each written safely (ui/session/safe_file.h).
 void ReviewScreen::export_report(AppState& app) {
@@ -282,6 +305,10 @@ void ReviewScreen::handle_keys(AppState& app) {
         open(app, takes_[static_cast<std::size_t>(list_sel_)].audio_path.string());
     if (ImGui::IsKeyPressed(GLFW_KEY_T, false)) sound(app, true);
     if (ImGui::IsKeyPressed(GLFW_KEY_P, false)) sound(app, false);
+    if (ImGui::IsKeyPressed(GLFW_KEY_L, false)) hear(app, ClipKind::note);
+    if (ImGui::IsKeyPressed(GLFW_KEY_D, false)) hear(app, ClipKind::with_drone);
+    if (ImGui::IsKeyPressed(GLFW_KEY_B, false)) hear(app, ClipKind::then_target);
+    if (ImGui::IsKeyPressed(GLFW_KEY_S, false)) app.stop_clip();
     // The wheel over the plot zooms about the time under the pointer.
     const ImVec2 m = ImGui::GetIO().MousePos;
     const float wheel = ImGui::GetIO().MouseWheel;
@@ -585,6 +612,18 @@ void ReviewScreen::draw_detail(AppState& app, ImDrawList* dl, float x, float y, 
     draw_text(dl, FontFace::body, ImVec2(x + pad, ty), palette::kTextDim, fit_text(FontFace::body, facts, w - 2 * pad));
     ty += std::round(1.8f * u);
     ImGui::SetCursorScreenPos(ImVec2(x + pad, ty));
+    if (ImGui::Button("Hear it (L)")) hear(app, ClipKind::note);
+    ImGui::SameLine();
+    if (ImGui::Button("with its drone (D)")) hear(app, ClipKind::with_drone);
+    ImGui::SameLine();
+    ImGui::BeginDisabled(!std::isfinite(n.target_cents));
+    if (ImGui::Button("then its target (B)")) hear(app, ClipKind::then_target);
+    ImGui::EndDisabled();
+    ImGui::SameLine();
+    ImGui::BeginDisabled(!app.clip_playing());
+    if (ImGui::Button("Stop (S)")) app.stop_clip();
+    ImGui::EndDisabled();
+    ImGui::SetCursorScreenPos(ImVec2(x + pad, ImGui::GetCursorScreenPos().y));
     ImGui::BeginDisabled(!std::isfinite(n.target_cents));
     if (ImGui::Button("Sound the target (T)")) sound(app, true);
     ImGui::EndDisabled();

@@ -753,6 +753,22 @@ bool AppState::sound_tone(double freq_hz, double dur_s) {
     return drone_heard_;
 }
 
+bool AppState::play_clip(std::span<const float> samples, double rate_hz) {
+    if (caution_needed() || !engine_) return false;
+    try {
+        return engine_->play_clip(samples, rate_hz, true) && drone_heard_;
+    } catch (const Error& e) {
+        post(e.what(), true);
+        return false;
+    }
+}
+
+void AppState::stop_clip() {
+    if (engine_) engine_->stop_clip();
+}
+
+bool AppState::clip_playing() const { return engine_ && engine_->clip_playing(); }
+
 bool AppState::sing_script(std::vector<audio::DemoNote> notes) {
     if (!options_.demo) return false;
     demo_script_ = std::move(notes);

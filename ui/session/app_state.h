@@ -18,6 +18,7 @@
 #include <deque>
 #include <memory>
 #include <optional>
+#include <span>
 #include <string>
 #include <vector>
 
@@ -181,6 +182,11 @@ public:
     // The reference voice sounds freq_hz for dur_s. False when it cannot be
     // heard (caution not acknowledged, no engine, or no output device).
     bool sound_tone(double freq_hz, double dur_s);
+    // A recorded clip (RMS 1 = the drone's level) played once through the output (audio/engine.h, play_clip), the
+    // live drone hushed meanwhile. False when it cannot be heard, as for sound_tone.
+    bool play_clip(std::span<const float> samples, double rate_hz);
+    void stop_clip();
+    bool clip_playing() const;
     // Demo only: the performer sings these notes, from stream time 0 (the
     // engine reopens). False without the demo. An empty list: her usual round.
     bool sing_script(std::vector<audio::DemoNote> notes);

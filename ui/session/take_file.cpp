@@ -287,6 +287,10 @@ TakeInfo read_take_sidecar(const fs::path& sidecar) {
 // [SECTION] Drone
 
 std::vector<float> regenerate_drone(const TakeInfo& take, std::int64_t len_frames) {
+    return regenerate_drone(take, 0, len_frames);
+}
+
+std::vector<float> regenerate_drone(const TakeInfo& take, std::int64_t from_frame, std::int64_t len_frames) {
     audio::DroneSettings ds;
     ds.on = take.drone.on;
     ds.root_hz = take.root_hz;
@@ -297,12 +301,14 @@ std::vector<float> regenerate_drone(const TakeInfo& take, std::int64_t len_frame
     audio::check_drone_settings(ds);
     audio::Drone drone(take.rate_hz);
     drone.set(ds);
-    std::vector<float> out(static_cast<std::size_t>(std::max<std::int64_t>(0, len_frames)), 0.0f);
+    // Frames before from_frame are rendered into a scratch block and dropped, so the phases run on as they did.
+    const auto skip = static_cast<std::size_t>(std::max<std::int64_t>(0, from_frame));
+    std::vector<float> out(static_cast<std::size_t>(std::max<std::int64_t>(0, len_frames)), 0.0f), scratch(256);
     std::size_t next = 0, at = 0;
     const auto frame_of = [&](const DroneEvent& e) {
         return static_cast<std::size_t>(std::llround(e.t_s * take.rate_hz));
     };
-    while (at < out.size()) {
+    while (at < skip + out.size()) {
         while (next < take.drone.events.size() && frame_of(take.drone.events[next]) <= at) {
             const DroneEvent& e = take.drone.events[next++];
             if (e.what == DroneEventKind::root)
@@ -312,9 +318,12 @@ std::vector<float> regenerate_drone(const TakeInfo& take, std::int64_t len_frame
             audio::check_drone_settings(ds);
             drone.set(ds);
         }
-        std::size_t end = std::min(out.size(), at + 256);
+        std::size_t end = std::min(at < skip ? skip : skip + out.size(), at + 256);
         if (next < take.drone.events.size()) end = std::min(end, std::max(at + 1, frame_of(take.drone.events[next])));
-        drone.render(std::span<float>(out.data() + at, end - at));
+        if (at < skip)
+            drone.render(std::span<float>(scratch.data(), end - at));
+        else
+            drone.render(std::span<float>(out.data() + (at - skip), end - at));
         at = end;
     }
     return out;

@@ -99,6 +99,8 @@ std::vector<TakeInfo> list_takes(const std::filesystem::path& dir, std::vector<s
 // at the events. The partials, level and changes are the live drone's; a drone that sounded before the take began
 // had other phases and had finished its fade-in, which this one starts. Throws Error on a sidecar out of range.
 std::vector<float> regenerate_drone(const TakeInfo& take, std::int64_t len_frames);
+// The same from frame from_frame on (the frames before it are rendered and dropped, so the phases are the same).
+std::vector<float> regenerate_drone(const TakeInfo& take, std::int64_t from_frame, std::int64_t len_frames);
 
 // What recover_takes did to one take.
 struct RecoveredTake {
