@@ -24,6 +24,8 @@
 
 #include <doctest/doctest.h>
 
+#include <unistd.h>
+
 #include <cmath>
 #include <cstdlib>
 #include <filesystem>
@@ -48,9 +50,9 @@ struct ReviewRig {
     ui::Rasterizer raster;
     ui::PixelBuffer buf;
     std::unique_ptr<ui::Screen> screen = ui::make_review_screen();
-    static ui::AppOptions options(int note, double span_s) {
+    static ui::AppOptions options(int note, double span_s, bool simulated) {
         ui::AppOptions o;
-        o.simulated = true;
+        o.simulated = simulated;
         o.no_input = true;
         o.save_settings = false;
         o.review_note = note;
@@ -68,9 +70,9 @@ struct ReviewRig {
         s.caution_acknowledged = true;
         return s;
     }
-    ReviewRig(int note, double span_s)
+    ReviewRig(int note, double span_s, bool simulated = true)
         : app(settings(), std::filesystem::temp_directory_path() / "beatless-never-written.toml",
-              options(note, span_s)),
+              options(note, span_s, simulated)),
           host(host_config()) {
         app.start();
     }
@@ -162,6 +164,36 @@ TEST_CASE("Review: takes newest first; a take opened, zoomed, a note selected; m
         ++crests;
     }
     CHECK(crests >= 3);
+    unsetenv("BEATLESS_HOME");
+}
+
+TEST_CASE("Review in real time: the list and the plot say 'reading' while the worker reads; then the take is there") {
+    // A 40 s take takes the analysis much longer than it takes to draw one frame (analyze's bench: 1.3 s of CPU for
+    // ten minutes): the first frame shows the list's row and the plot as being read; later ones, the take.
+    beatless::test::TempDir home;
+    setenv("BEATLESS_HOME", home.path().c_str(), 1);
+    const std::filesystem::path takes = ui::takes_dir();
+    std::filesystem::create_directories(takes);
+    Take take = drone_and_voice(kFs, 110.0, {{7.0 / 5.0, 9.0}, {3.0 / 2.0, -12.0}}, 41);
+    const std::vector<float> once = take.samples;
+    while (take.samples.size() < static_cast<std::size_t>(40.0 * kFs))
+        take.samples.insert(take.samples.end(), once.begin(), once.end());
+    take.dur_s = static_cast<double>(take.samples.size()) / kFs;
+    write_take(takes, "2026-12-03_161502", take);
+    ReviewRig rig(0, 0.0, false);
+    rig.frames(1);
+    const ui::ReviewView& v = *ui::review_view(*rig.screen);
+    REQUIRE(v.takes.size() == 1);
+    CHECK(v.takes[0].find("reading\u2026") != std::string::npos);
+    CHECK(!v.open);
+    bool done = false;
+    for (int i = 0; i < 3000 && !done; ++i) {  // up to a minute of frames
+        rig.frames(1);
+        done = v.open && v.takes[0].find("notes") != std::string::npos;
+        if (!done) usleep(20000);
+    }
+    CHECK(done);
+    CHECK(v.takes[0].find("reading") == std::string::npos);
     unsetenv("BEATLESS_HOME");
 }
 

@@ -14,6 +14,7 @@
 #include "ui/screens/palette.h"
 #include "ui/screens/take_report.h"
 #include "ui/screens/widgets.h"
+#include "ui/session/review_worker.h"
 #include "ui/session/safe_file.h"
 #include "ui/session/take_analysis.h"
 #include "ui/session/take_clip.h"
@@ -56,12 +57,6 @@ constexpr KeyHelp kReviewKeys[] = {
 constexpr double kMinSpanS = 0.5;  // the closest zoom
 constexpr const char* kDefaultSet = "7-limit";
 
-struct ListRow {
-    int notes = -1;  // -1 until analysed
-    double mean_dev_cents = NAN;
-    std::string error;
-};
-
 std::string duration_words(double s) {
     if (!std::isfinite(s)) return "?";
     char buf[32];
@@ -89,7 +84,8 @@ public:
 private:
     void list_takes_now();
     void open(AppState& app, const std::string& path);
-    void analyse_one_listed(AppState& app);
+    void take_opened(AppState& app);
+    std::string default_set_ = kDefaultSet;  // the settings' set, for takes without a sidecar
     void handle_keys(AppState& app);
     void show_whole();
     void follow_selected();
@@ -106,8 +102,12 @@ private:
     std::string target_text(int index) const;
 
     bool started_ = false;
+    bool wait_ = false;  // simulated time (snapshots, tests): wait for the worker, for a true picture
+    std::unique_ptr<ReviewWorker> worker_;  // opens takes and summarises the list off this thread
+    std::string opening_;                   // the take being opened ("" when none)
+    std::optional<int> select_when_open_;   // a note to select once it is open (--note)
+    double span_when_open_ = 0.0;
     std::vector<TakeInfo> takes_;
-    std::map<std::string, ListRow> rows_;  // by path
     int list_sel_ = 0;
     std::optional<ReviewedTake> take_;
     double t0_s_ = 0.0, span_s_ = 10.0;
@@ -128,37 +128,35 @@ void ReviewScreen::list_takes_now() {
     } catch (const std::exception&) {
         takes_.clear();
     }
+    std::vector<std::string> paths;
+    for (const TakeInfo& t : takes_) paths.push_back(t.audio_path.string());
+    if (worker_) worker_->summarise(paths, default_set_);
+    if (wait_ && worker_) worker_->wait_idle();
     list_sel_ = std::clamp(list_sel_, 0, std::max(0, static_cast<int>(takes_.size()) - 1));
 }
 
-ListRow row_of(const ReviewedTake& r) {
-    ListRow row;
-    row.error = r.error;
-    if (!r.error.empty()) return row;
-    row.notes = static_cast<int>(r.analysis.notes.size());
-    double sum = 0.0;
-    int n = 0;
-    for (const auto& note : r.analysis.notes)
-        if (std::isfinite(note.dev_cents)) sum += note.dev_cents, ++n;
-    row.mean_dev_cents = n > 0 ? sum / n : NAN;
-    return row;
+// Asks the worker to open the take; it shows when ready (take_opened). In simulated time the frame waits for it.
+void ReviewScreen::open(AppState& app, const std::string& path) {
+    opening_ = path;
+    worker_->open(path, default_set_);
+    if (wait_) {
+        worker_->wait_idle();
+        take_opened(app);
+    }
 }
 
-void ReviewScreen::open(AppState& app, const std::string& path) {
-    take_ = review_take(path, app.settings().target_set.empty() ? kDefaultSet : app.settings().target_set);
-    rows_[path] = row_of(*take_);
+void ReviewScreen::take_opened(AppState& app) {
+    std::optional<ReviewedTake> t = worker_->opened();
+    if (!t) return;
+    take_ = std::move(t);
+    opening_.clear();
     selected_ = take_->analysis.notes.empty() ? -1 : 0;
+    confirm_delete_ = false;
     show_whole();
     if (!take_->error.empty()) app.post(take_->error, true);
-}
-
-// One take of the list analysed per frame, so the list fills in without a long pause.
-void ReviewScreen::analyse_one_listed(AppState& app) {
-    for (const TakeInfo& t : takes_) {
-        const std::string p = t.audio_path.string();
-        if (rows_.count(p)) continue;
-        rows_[p] = row_of(review_take(p, app.settings().target_set.empty() ? kDefaultSet : app.settings().target_set));
-        return;
+    if (select_when_open_) {
+        select(*select_when_open_, span_when_open_);
+        select_when_open_.reset();
     }
 }
 
@@ -261,10 +259,10 @@ void ReviewScreen::rename(AppState& app, const std::string& typed) {
         app.post("rename: " + from.string() + ": " + ec.message(), true);
         return;
     }
-    rows_.erase(take_->path);
+    worker_->forget(take_->path);
     take_->path = to.string();
     take_->title = to.filename().string();
-    rows_[take_->path] = row_of(*take_);
+    worker_->put(*take_);
     rename_buf_[0] = '\0';
     list_takes_now();
     app.post("renamed to " + take_->title);
@@ -354,15 +352,15 @@ void ReviewScreen::draw_list(AppState& app, ImDrawList* dl, float x, float y, fl
             open(app, path);
         }
         ImGui::PopID();
-        const auto it = rows_.find(path);
+        const ListedSummary row = worker_->summary(path);
         const std::string line2 =
             duration_words(t.duration_s.value_or(NAN)) + "   " + (t.targets.empty() ? "-" : t.targets);
-        std::string line3 = "analysing ...";
-        if (it != rows_.end() && it->second.error.empty()) {
-            line3 = std::to_string(it->second.notes) + (it->second.notes == 1 ? " note" : " notes");
-            if (std::isfinite(it->second.mean_dev_cents))
-                line3 += ", mean " + signed_text(it->second.mean_dev_cents, 1) + " c";
-        } else if (it != rows_.end()) {
+        std::string line3 = "reading\u2026";
+        if (row.state == ListedSummary::State::known) {
+            line3 = std::to_string(row.summary.notes) + (row.summary.notes == 1 ? " note" : " notes");
+            if (std::isfinite(row.summary.mean_dev_cents))
+                line3 += ", mean " + signed_text(row.summary.mean_dev_cents, 1) + " c";
+        } else if (row.state == ListedSummary::State::unreadable) {
             line3 = "cannot be read";
         }
         const std::string line1 = take_when(t) + (t.complete ? "" : "  (cut short)");
@@ -386,6 +384,13 @@ void ReviewScreen::draw_plot(AppState& app, ImDrawList* dl, float x, float y, fl
     draw_panel(dl, x, y, w, h);
     view_.open = false;
     view_.marks.clear();
+    view_.reading = !opening_.empty();
+    if (!opening_.empty()) {
+        draw_text(dl, FontFace::body, ImVec2(x + u, y + u), palette::kTextDim,
+                  fit_text(FontFace::body, "reading " + std::filesystem::path(opening_).filename().string() + "\u2026",
+                           w - 2 * u));
+        return;
+    }
     if (!take_) {
         draw_text(dl, FontFace::body, ImVec2(x + u, y + u), palette::kTextDim, "no take open");
         return;
@@ -645,7 +650,7 @@ void ReviewScreen::draw_detail(AppState& app, ImDrawList* dl, float x, float y, 
             std::filesystem::remove(take_->path, ec);
             std::filesystem::remove(take_sidecar_path(take_->path), ec);
             app.post("deleted " + take_->title);
-            rows_.erase(take_->path);
+            worker_->forget(take_->path);
             take_.reset();
             selected_ = -1;
             list_takes_now();
@@ -706,18 +711,27 @@ void ReviewScreen::draw_summary(ImDrawList* dl, float x, float y, float w, float
 // ---------------------------------------------------------------------------
 
 void ReviewScreen::build(AppState& app, const ScreenArea& area, double) {
+    default_set_ = app.settings().target_set.empty() ? kDefaultSet : app.settings().target_set;
     if (!started_) {
         started_ = true;
+        wait_ = app.options().simulated;
+        std::filesystem::path cache;
+        try {
+            cache = takes_dir() / ".review-cache";
+        } catch (const std::exception&) {  // no data folder: nothing kept between runs
+        }
+        worker_ = std::make_unique<ReviewWorker>(cache);
+        if (app.options().review_note) {
+            select_when_open_ = *app.options().review_note - 1;
+            span_when_open_ = app.options().review_span_s.value_or(0.0);
+        }
         list_takes_now();
         if (!app.options().take.empty())
             open(app, app.options().take);
         else if (!takes_.empty())
             open(app, takes_.front().audio_path.string());
-        if (app.options().review_note)
-            select(*app.options().review_note - 1, app.options().review_span_s.value_or(0.0));
-    } else {
-        analyse_one_listed(app);
     }
+    take_opened(app);
     handle_keys(app);
     in_tune_cents_ = app.settings().in_tune_cents;
 

@@ -22,6 +22,7 @@ struct ReviewMarkView {
 
 struct ReviewView {
     bool open = false;               // a take is open and analysed
+    bool reading = false;            // a take is being opened (read and analysed on the worker)
     std::string title;               // its file name
     float plot_x0 = 0, plot_x1 = 0;  // pixels of the plot's inner box
     float plot_y0 = 0, plot_y1 = 0;

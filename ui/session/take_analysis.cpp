@@ -397,7 +397,7 @@ std::vector<int> expected_targets(const std::string& list, pitch::TargetSet& set
 // [SECTION] A take reviewed
 // ---------------------------------------------------------------------------
 
-ReviewedTake review_take(const std::string& path, const std::string& default_set) {
+ReviewedTake review_take(const std::string& path, const std::string& default_set, const ProgressFn& progress) {
     ReviewedTake r;
     r.path = path;
     r.title = std::filesystem::path(path).filename().string();
@@ -415,7 +415,7 @@ ReviewedTake review_take(const std::string& path, const std::string& default_set
         req.keep_trace = true;
         if (!r.expect.empty()) req.expected = expected_targets(r.expect, r.set);
         req.targets = r.set;
-        r.analysis = analyze_one_voice(req);
+        r.analysis = analyze_one_voice(req, progress);
     } catch (const std::exception& e) {
         r.error = e.what();
         r.analysis = OneVoiceAnalysis{};

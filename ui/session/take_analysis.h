@@ -122,7 +122,8 @@ struct ReviewedTake {
     OneVoiceAnalysis analysis;
     std::string error;  // one line when it could not be analysed (the rest is then empty)
 };
-// Never throws: a failure is kept in `error`. default_set is used when no sidecar names one.
-ReviewedTake review_take(const std::string& path, const std::string& default_set);
+// Never throws: a failure is kept in `error`. default_set is used when no sidecar names one. Whatever `progress`
+// throws that is not a std::exception (a cancellation) goes through.
+ReviewedTake review_take(const std::string& path, const std::string& default_set, const ProgressFn& progress = {});
 
 }  // namespace beatless::ui
