@@ -12,8 +12,8 @@
 namespace beatless::test {
 
 inline ui::TakeInfo write_test_take(const std::filesystem::path& dir, const std::string& stem,
-                                    std::span<const float> samples, double rate_hz, double dur_s,
-                                    bool drone_on = false) {
+                                    std::span<const float> samples, double rate_hz, double dur_s, bool drone_on = false,
+                                    int voices = 1) {
     const std::filesystem::path flac = dir / (stem + ".flac");
     audio::TakeWriter w(flac.string(), rate_hz, 1);
     w.write(samples);
@@ -27,6 +27,7 @@ inline ui::TakeInfo write_test_take(const std::filesystem::path& dir, const std:
     info.targets = "7-limit";
     info.screen = "practice";
     info.drone.on = drone_on;
+    info.voices = voices;
     info.drone.level_dbfs = -30.0;
     info.duration_s = dur_s;
     info.complete = true;

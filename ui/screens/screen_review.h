@@ -15,7 +15,9 @@ struct ReviewMarkView {
     int note = 0;              // index into the take's notes
     float x0 = 0, x1 = 0;      // pixels: the note's start and end
     float y = 0;               // pixels: its measured centre
-    double cents = 0.0;        // the centre, cents above the root
+    double cents = 0.0;        // the centre, cents above the root (two voices: the upper voice above the reference)
+    float y_low = 0;           // two voices: pixels of the lower voice
+    double low_cents = 0.0;    // two voices: the lower voice, cents above the reference
     double dev_cents = 0.0;    // against the judged target (NaN between targets)
     std::uint32_t colour = 0;  // the mark's colour
 };

@@ -893,6 +893,7 @@ void AppState::start_recording() {
     if (settings_.choice == TargetChoice::fixed && !set_.targets.empty())
         c.target = set_.targets[static_cast<std::size_t>(fixed_index_)].interval.str();
     if (drill_drone_) c.drill = options_.drill;
+    if (!group_ && two_voices()) c.voices = 2;
     int channels = 1;
     if (group_) {
         channels = static_cast<int>(group_->players.size());

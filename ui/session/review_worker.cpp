@@ -12,11 +12,17 @@ struct Cancelled {};  // thrown through analyze's progress callback; not a std::
 
 TakeSummary summary_of(const ReviewedTake& take) {
     TakeSummary s;
-    s.notes = static_cast<int>(take.analysis.notes.size());
     double sum = 0.0;
     int n = 0;
-    for (const auto& note : take.analysis.notes)
-        if (std::isfinite(note.dev_cents)) sum += note.dev_cents, ++n;
+    auto add = [&](const auto& items) {
+        s.notes = static_cast<int>(items.size());
+        for (const auto& item : items)
+            if (std::isfinite(item.dev_cents)) sum += item.dev_cents, ++n;
+    };
+    if (take.voices == 2)
+        add(take.duo.dyads);
+    else
+        add(take.analysis.notes);
     s.mean_dev_cents = n > 0 ? sum / n : NAN;
     return s;
 }
@@ -42,11 +48,11 @@ ReviewWorker::~ReviewWorker() {
     }
 }
 
-void ReviewWorker::open(const std::string& path, const std::string& default_set) {
+void ReviewWorker::open(const std::string& path, const std::string& default_set, int voices) {
     {
         std::lock_guard lk(mu_);
         std::erase_if(queue_, [](const Job& j) { return j.open; });
-        queue_.push_front(Job{path, default_set, true});
+        queue_.push_front(Job{path, default_set, true, voices});
         opened_.reset();
         if (in_hand_ && in_hand_->open) cancel_open_ = true;
     }
@@ -170,12 +176,15 @@ void ReviewWorker::run() {
         }
         try {
             if (job.open) {
-                ReviewedTake r = review_take(job.path, job.set, [this](double, const char*) {
-                    if (stop_ || cancel_open_) throw Cancelled{};
-                });
+                ReviewedTake r = review_take(
+                    job.path, job.set,
+                    [this](double, const char*) {
+                        if (stop_ || cancel_open_) throw Cancelled{};
+                    },
+                    job.voices);
                 std::lock_guard lk(mu_);
                 if (!cancel_open_) {
-                    record(job.path, r);
+                    if (job.voices == 0) record(job.path, r);  // the list's summary is of the take as recorded
                     opened_ = std::move(r);
                 }
             } else {

@@ -40,7 +40,8 @@ public:
     ReviewWorker& operator=(const ReviewWorker&) = delete;
 
     // Opens (analyses with its trace) the take at `path` before anything else; a newer open replaces an older one.
-    void open(const std::string& path, const std::string& default_set);
+    // voices: 1 or 2, or 0 for what the sidecar says (review_take).
+    void open(const std::string& path, const std::string& default_set, int voices = 0);
     // The opened take once it is ready (handed over once); nullopt while it is being read.
     std::optional<ReviewedTake> opened();
     bool opening() const;
@@ -57,6 +58,7 @@ private:
         std::string path;
         std::string set;
         bool open = false;
+        int voices = 0;
     };
     void run();
     void summarise_one(const Job& job);

@@ -28,7 +28,7 @@ TakeInfo drone_context(const ReviewedTake& take, bool& from_sidecar) {
     if (from_sidecar) return read_take_sidecar(sidecar);
     TakeInfo t;
     t.rate_hz = take.analysis.info.sample_rate_hz;
-    t.root_hz = take.analysis.root_hz;
+    t.root_hz = take.voices == 2 ? take.duo.ref_hz : take.analysis.root_hz;
     t.drone.on = true;
     return t;
 }
@@ -46,10 +46,23 @@ std::string_view clip_kind_words(ClipKind kind) {
 
 NoteClip make_note_clip(const ReviewedTake& take, std::size_t note, ClipKind kind) {
     if (!take.error.empty()) throw Error(take.path + ": " + take.error);
-    if (note >= take.analysis.notes.size())
+    // The held note (one voice) or interval (two voices): its times, its target's pitch, the drone the file holds.
+    struct Held {
+        double start_s, end_s, target_hz, drone_hz;
+    };
+    const bool duo = take.voices == 2;
+    if (note >= (duo ? take.duo.dyads.size() : take.analysis.notes.size()))
         throw Error(take.path + ": note " + std::to_string(note + 1) + " is not in the take");
-    const pitch::NoteResult& n = take.analysis.notes[note];
-    if (kind == ClipKind::then_target && !std::isfinite(n.target_cents))
+    const Held n = [&] {
+        if (duo) {
+            const pitch::DyadResult& d = take.duo.dyads[note];  // the target: the upper note over the lower voice
+            return Held{d.start_s, d.end_s, d.f_low_hz * std::exp2(d.target_cents / 1200.0), take.duo.drone_hz};
+        }
+        const pitch::NoteResult& r = take.analysis.notes[note];
+        return Held{r.start_s, r.end_s, take.analysis.root_hz * std::exp2(r.target_cents / 1200.0),
+                    take.analysis.drone_hz};
+    }();
+    if (kind == ClipKind::then_target && !std::isfinite(n.target_hz))
         throw Error("note " + std::to_string(note + 1) + " is between targets: it has no target to sound");
 
     audio::SoundReader reader(take.path, -1, kAnalysisBlockFrames);
@@ -82,7 +95,7 @@ NoteClip make_note_clip(const ReviewedTake& take, std::size_t note, ClipKind kin
     for (float& v : c.samples) v = static_cast<float>(v * c.voice_gain);
 
     if (kind == ClipKind::with_drone) {
-        if (take.analysis.drone_hz > 0.0) {
+        if (n.drone_hz > 0.0) {
             c.drone_recorded = true;  // the microphone heard it: the recording already holds it
         } else {
             bool from_sidecar = false;
@@ -97,9 +110,8 @@ NoteClip make_note_clip(const ReviewedTake& take, std::size_t note, ClipKind kin
             c.drone_regenerated = true;
         }
     } else if (kind == ClipKind::then_target) {
-        const double target_hz = take.analysis.root_hz * std::exp2(n.target_cents / 1200.0);
         audio::ToneSpec tone;
-        tone.f0_hz = target_hz;
+        tone.f0_hz = n.target_hz;
         tone.partials = audio::timbre_partials(audio::Timbre::soft);
         tone.level = 1.0;
         tone.dur_s = std::clamp(n.end_s - n.start_s, 0.5, 3.0);

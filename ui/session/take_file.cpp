@@ -125,6 +125,7 @@ std::string take_sidecar_text(const TakeInfo& t) {
       << "targets = " << toml_string(t.targets) << "\n";
     if (!t.target.empty()) o << "target = " << toml_string(t.target) << "\n";
     if (!t.drill.empty()) o << "drill = " << toml_string(t.drill) << "\n";
+    if (t.voices != 1) o << "voices = " << t.voices << "\n";
     if (t.duration_s) o << "duration_s = " << num(*t.duration_s, 6) << "\n";
     o << "complete = " << (t.complete ? "true" : "false") << "\n";
     o << "\n[drone]\n"
@@ -192,7 +193,7 @@ TakeInfo parse_take_sidecar(std::string_view text, const std::string& source) {
     const toml::table& top = doc.table;
     check_keys(doc, top,
                {"kind", "format", "started", "rate_hz", "channels", "device", "screen", "root_hz", "root", "a4_hz",
-                "targets", "target", "drill", "duration_s", "complete", "drone", "players"},
+                "targets", "target", "drill", "voices", "duration_s", "complete", "drone", "players"},
                "");
     TakeInfo t;
     t.format = require_int(doc, top, "format", 1, 1000);
@@ -212,6 +213,7 @@ TakeInfo parse_take_sidecar(std::string_view text, const std::string& source) {
     t.targets = optional_string(doc, top, "targets");
     t.target = optional_string(doc, top, "target");
     t.drill = optional_string(doc, top, "drill");
+    if (top["voices"]) t.voices = require_int(doc, top, "voices", 1, 2);
     if (top["duration_s"]) t.duration_s = require_number(doc, top, "duration_s", 0.0, 1e7);
     t.complete = optional_bool(doc, top, "complete", false);
     if (const auto d = top["drone"]) {

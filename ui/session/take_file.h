@@ -65,6 +65,7 @@ struct TakeInfo {
     std::string targets;                 // target set name or file path
     std::string target;                  // fixed target ("7/5"); "" = nearest
     std::string drill;                   // drill name; "" = none
+    int voices = 1;                      // 2: two voices in one input (a double stop, a duet), as --voices 2
     std::vector<TakePlayer> players;     // Ensemble: one per channel
     TakeDrone drone;                     // [drone]
     std::optional<double> duration_s;    // set when finalised

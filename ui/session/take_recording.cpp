@@ -48,6 +48,7 @@ TakeRecording::TakeRecording(audio::Engine& engine, const std::filesystem::path&
     info_.targets = context.targets;
     info_.target = context.target;
     info_.drill = context.drill;
+    info_.voices = context.voices;
     info_.players = context.players;
     audio::TakeRecorderConfig rc = limits;
     rc.sample_rate_hz = rate_hz;

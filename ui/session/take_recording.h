@@ -23,6 +23,7 @@ struct TakeContext {
     std::string targets;              // set name or file path
     std::string target;               // fixed target; "" = nearest
     std::string drill;                // drill name; "" = none
+    int voices = 1;                   // 2: two voices in one input
     std::vector<TakePlayer> players;  // Ensemble: the players on the take's channels
 };
 
