@@ -113,6 +113,10 @@ void Drone::apply(const DroneSettings& s, bool first) noexcept {
 void Drone::render(std::span<float> out) noexcept {
     DroneSettings s;
     if (pending_.read(s)) apply(s, !have_applied_);
+    if (want_phases_.exchange(false, std::memory_order_acq_rel)) {
+        taken_ = DronePhases{root_.phase_rad(), fifth_.phase_rad(), !root_.ramping() && !fifth_.ramping()};
+        phases_taken_.store(true, std::memory_order_release);
+    }
     std::fill(out.begin(), out.end(), 0.0f);
     root_.render_add(out);
     fifth_.render_add(out);
@@ -123,6 +127,15 @@ void Drone::render(std::span<float> out) noexcept {
     reference_.render_add(out);
     clip_.mix(out);
     limit(out);
+}
+
+void Drone::start_sounding(const DroneSettings& s, const DronePhases& p) noexcept {
+    apply(s, true);
+    const double gain = s.on ? drone_gain(std::clamp(s.level_dbfs, kDroneMinLevelDbfs, kDroneMaxLevelDbfs)) : 0.0;
+    root_.set_level(gain, true);
+    fifth_.set_level(s.fifth ? gain : 0.0, true);
+    root_.set_phase(p.root_rad);
+    fifth_.set_phase(p.fifth_rad);
 }
 
 void Drone::limit(std::span<float> out) noexcept {

@@ -788,12 +788,19 @@ void Engine::set_drone(const DroneSettings& s) {
 void Engine::set_tap(TakeRecorder* r) {
     Impl& m = *impl_;
     m.tap.store(r, std::memory_order_release);
+    if (r && m.io.out_drone) m.io.out_drone->request_phases();
     if (r) {
         r->note_drone(drone_);
         return;
     }
     while (m.tap_users.load(std::memory_order_acquire) != 0)
         std::this_thread::sleep_for(std::chrono::microseconds(200));
+}
+
+std::optional<DronePhases> Engine::drone_phases_at_tap() const {
+    const Drone* d = impl_->io.out_drone.get();
+    if (!d || !d->phases_taken()) return std::nullopt;
+    return d->phases_at_request();
 }
 
 void Engine::set_root_hz(double root_hz) {

@@ -30,6 +30,7 @@
 #include <cstdint>
 #include <functional>
 #include <memory>
+#include <optional>
 #include <span>
 #include <string>
 #include <thread>
@@ -148,6 +149,9 @@ public:
     // `r` (audio/take_recorder.h), one recorder channel per analysed channel; drone changes are noted in it. nullptr
     // detaches, waiting until no callback uses the old one. Costs one relaxed atomic load per callback when none.
     void set_tap(TakeRecorder* r);
+    // The output drone's phases at the first block it rendered after set_tap(r) (nullopt before that block, or with
+    // no output): what a take needs to render its drone again as it sounded, already going, when the take began.
+    std::optional<DronePhases> drone_phases_at_tap() const;
     void on_message(std::function<void(const std::string&)> f) { message_ = std::move(f); }
 
     // --- Readings and status ------------------------------------------------------

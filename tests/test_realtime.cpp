@@ -433,16 +433,12 @@ TEST_CASE(
     REQUIRE(take.size() == voice.size());
 
     test::LiveRig rig(rate, 256);
-    pitch::ReadingConfig rc;
-    rc.root_hz = 110.0;
-    pitch::TargetSet set;
-    set.targets.push_back({pitch::parse_interval("7/5"), ""});
     audio::DroneSettings d;
     d.on = true;
     d.root_hz = 110.0;
     audio::RoomConfig room;
     room.gain = 0.0;
-    rig.open(rc, set, d, room);
+    rig.open_7_5_over_a2(d, room);
     std::vector<float> in(256, 0.0f), out(2 * 256), played;
     Counted counted;
     auto run = [&](std::size_t blocks) {

@@ -693,7 +693,7 @@ bool AppState::refuse_in_drill(const char* what) {
     return true;
 }
 
-bool AppState::begin_drill(const audio::DroneSettings& drone) {
+bool AppState::begin_drill(const audio::DroneSettings& drone, const std::string& name) {
     if (caution_needed()) {
         post("Read the hearing caution and press \"I understand\" before starting a drill", true);
         return false;
@@ -706,6 +706,8 @@ bool AppState::begin_drill(const audio::DroneSettings& drone) {
     }
     if (!drill_drone_) drone_on_before_drill_ = drone_on_;
     drill_drone_ = drone;
+    drill_name_ = name.empty() ? options_.drill : name;
+    if (take_) take_->set_drill(drill_name_);  // a take already recording is of this drill from here
     if (engine_) engine_->set_root_hz(engine_root_hz());
     apply_readings();
     if (!drone_on_)
@@ -892,7 +894,7 @@ void AppState::start_recording() {
     c.targets = settings_.target_set;
     if (settings_.choice == TargetChoice::fixed && !set_.targets.empty())
         c.target = set_.targets[static_cast<std::size_t>(fixed_index_)].interval.str();
-    if (drill_drone_) c.drill = options_.drill;
+    if (drill_drone_) c.drill = drill_name_;
     if (!group_ && two_voices()) c.voices = 2;
     int channels = 1;
     if (group_) {

@@ -133,8 +133,11 @@ std::string take_sidecar_text(const TakeInfo& t) {
       << "timbre = " << toml_string(audio::timbre_name(t.drone.timbre)) << "\n"
       << "level_dbfs = " << num(t.drone.level_dbfs, 3) << "\n"
       << "fifth = " << (t.drone.fifth ? "true" : "false") << "\n"
-      << "octave = " << (t.drone.octave ? "true" : "false") << "\n"
-      << "events = [";
+      << "octave = " << (t.drone.octave ? "true" : "false") << "\n";
+    if (t.drone.phases)
+        o << "root_phase_rad = " << num(t.drone.phases->root_rad, 12) << "\n"
+          << "fifth_phase_rad = " << num(t.drone.phases->fifth_rad, 12) << "\n";
+    o << "events = [";
     const std::size_t n_events = std::min(t.drone.events.size(), kTakeMaxDroneEvents);
     for (std::size_t i = 0; i < n_events; ++i) {
         const DroneEvent& e = t.drone.events[i];
@@ -219,7 +222,9 @@ TakeInfo parse_take_sidecar(std::string_view text, const std::string& source) {
     if (const auto d = top["drone"]) {
         const toml::table* dt = d.as_table();
         if (!dt) throw Error(where(doc, d) + "`drone`: must be a [drone] table, not " + describe_type(*d.node()));
-        check_keys(doc, *dt, {"on", "timbre", "level_dbfs", "fifth", "octave", "events"}, "[drone]");
+        check_keys(doc, *dt,
+                   {"on", "timbre", "level_dbfs", "fifth", "octave", "root_phase_rad", "fifth_phase_rad", "events"},
+                   "[drone]");
         t.drone.on = optional_bool(doc, *dt, "on", false);
         if (const auto tv = (*dt)["timbre"]) {
             try {
@@ -231,6 +236,9 @@ TakeInfo parse_take_sidecar(std::string_view text, const std::string& source) {
         t.drone.level_dbfs = optional_number(doc, *dt, "level_dbfs", -30.0);
         t.drone.fifth = optional_bool(doc, *dt, "fifth", false);
         t.drone.octave = optional_bool(doc, *dt, "octave", false);
+        if ((*dt)["root_phase_rad"] || (*dt)["fifth_phase_rad"])
+            t.drone.phases = audio::DronePhases{require_number(doc, *dt, "root_phase_rad", 0.0, 7.0),
+                                                require_number(doc, *dt, "fifth_phase_rad", 0.0, 7.0), true};
         if (const auto ev = (*dt)["events"]) {
             const toml::array* a = ev.as_array();
             if (!a) throw Error(where(doc, ev) + "`events`: must be a list, not " + describe_type(*ev.node()));
@@ -302,7 +310,10 @@ std::vector<float> regenerate_drone(const TakeInfo& take, std::int64_t from_fram
     ds.octave = take.drone.octave;
     audio::check_drone_settings(ds);
     audio::Drone drone(take.rate_hz);
-    drone.set(ds);
+    if (ds.on && take.drone.phases)
+        drone.start_sounding(ds, *take.drone.phases);  // already sounding when the take began
+    else
+        drone.set(ds);
     // Frames before from_frame are rendered into a scratch block and dropped, so the phases run on as they did.
     const auto skip = static_cast<std::size_t>(std::max<std::int64_t>(0, from_frame));
     std::vector<float> out(static_cast<std::size_t>(std::max<std::int64_t>(0, len_frames)), 0.0f), scratch(256);

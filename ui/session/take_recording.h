@@ -44,6 +44,7 @@ public:
     bool stopped_early() const { return recorder_->stopped_early(); }
     double elapsed_s() const { return recorder_->elapsed_s(); }
     const TakeInfo& info() const { return info_; }
+    void set_drill(const std::string& name) { info_.drill = name; }  // written into the sidecar at stop()
     std::string name() const { return info_.audio_path.filename().string(); }
     const audio::TakeRecorder& recorder() const { return *recorder_; }
 
