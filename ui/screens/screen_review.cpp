@@ -45,10 +45,11 @@ namespace {
 // ---------------------------------------------------------------------------
 
 constexpr KeyHelp kReviewKeys[] = {
-    {"Up / Down, Enter", "choose a take, open it"},
-    {"Left / Right", "previous / next note"},
+    {"\xE2\x86\x91 \xE2\x86\x93 Enter", "choose a take, open it"},
+    {"\xE2\x86\x90 / \xE2\x86\x92", "previous / next note"},
     {"+ / - or wheel", "zoom in / out in time"},
-    {"PgUp / PgDn, Home", "scroll; the whole take"},
+    {"PgUp / PgDn", "scroll in time"},
+    {"Home", "the whole take"},
     {"L / D / B", "hear the recorded note: alone / with its drone / then its target"},
     {"S", "stop what is heard"},
     {"T / P", "sound the note's target / its pitch"},
