@@ -60,7 +60,8 @@ Drone::Drone(double sample_rate_hz)
     : rate_hz_(sample_rate_hz),
       root_(SynthConfig{sample_rate_hz, kRootPartials, 0.05}),
       fifth_(SynthConfig{sample_rate_hz, 32, 0.05}),
-      reference_(SynthConfig{sample_rate_hz, 8, 0.05}) {
+      reference_(SynthConfig{sample_rate_hz, 8, 0.05}),
+      clip_(sample_rate_hz) {
     amps_.assign(kRootPartials, 0.0);
     const auto look = static_cast<std::size_t>(std::max(8L, std::lround(0.0015 * sample_rate_hz)));
     delay_.assign(look, 0.0f);
@@ -112,6 +113,10 @@ void Drone::apply(const DroneSettings& s, bool first) noexcept {
 void Drone::render(std::span<float> out) noexcept {
     DroneSettings s;
     if (pending_.read(s)) apply(s, !have_applied_);
+    if (want_phases_.exchange(false, std::memory_order_acq_rel)) {
+        taken_ = DronePhases{root_.phase_rad(), fifth_.phase_rad(), !root_.ramping() && !fifth_.ramping()};
+        phases_taken_.store(true, std::memory_order_release);
+    }
     std::fill(out.begin(), out.end(), 0.0f);
     root_.render_add(out);
     fifth_.render_add(out);
@@ -120,7 +125,17 @@ void Drone::render(std::span<float> out) noexcept {
         if (reference_left_ <= 0) reference_.set_level(0.0);
     }
     reference_.render_add(out);
+    clip_.mix(out);
     limit(out);
+}
+
+void Drone::start_sounding(const DroneSettings& s, const DronePhases& p) noexcept {
+    apply(s, true);
+    const double gain = s.on ? drone_gain(std::clamp(s.level_dbfs, kDroneMinLevelDbfs, kDroneMaxLevelDbfs)) : 0.0;
+    root_.set_level(gain, true);
+    fifth_.set_level(s.fifth ? gain : 0.0, true);
+    root_.set_phase(p.root_rad);
+    fifth_.set_phase(p.fifth_rad);
 }
 
 void Drone::limit(std::span<float> out) noexcept {

@@ -5,10 +5,12 @@
 // Allocates: in the constructor only. Locks: no.
 #pragma once
 
+#include "audio/clip_player.h"
 #include "audio/latest.h"
 #include "audio/synth.h"
 #include "audio/timbre.h"
 
+#include <atomic>
 #include <cstdint>
 #include <span>
 #include <vector>
@@ -52,6 +54,14 @@ double drone_gain(double level_dbfs) noexcept;
 // Checks user values (root range, level range); throws Error naming the value.
 void check_drone_settings(const DroneSettings& s);
 
+// The phases of a sounding drone at one instant (its root's and its fifth's fundamentals), so the same drone can be
+// rendered again from there, already sounding.
+struct DronePhases {
+    double root_rad = 0.0;
+    double fifth_rad = 0.0;
+    bool settled = false;  // at its level, no fade or change under way (else the phases alone do not say it)
+};
+
 class Drone {
 public:
     explicit Drone(double sample_rate_hz);  // allocates; throws Error on a bad rate
@@ -60,7 +70,7 @@ public:
     // Allocates: no. Locks: no.
     void set(const DroneSettings& s) noexcept { pending_.publish(s); }
 
-    // Renders mono into out (overwrites): drone + reference voice, limited.
+    // Renders mono into out (overwrites): drone + reference voice + a clip playing (audio/clip_player.h), limited.
     // Thread: audio callback (one thread). Allocates: no. Locks: no.
     void render(std::span<float> out) noexcept;
 
@@ -68,6 +78,15 @@ public:
     const DroneSettings& applied() const noexcept { return applied_; }
     double limiter_gain() const noexcept { return lim_gain_; }  // 1 when not limiting
     double sample_rate_hz() const noexcept { return rate_hz_; }
+    // Any thread: asks for the phases at the start of the next block rendered; phases_taken() is true once they are
+    // there (phases_at_request() then holds them). Allocates: no. Locks: no.
+    void request_phases() noexcept { phases_taken_.store(false, std::memory_order_release), want_phases_.store(true); }
+    bool phases_taken() const noexcept { return phases_taken_.load(std::memory_order_acquire); }
+    DronePhases phases_at_request() const noexcept { return taken_; }
+    // Offline, before rendering: starts as a drone already sounding with these settings and phases (no fade in).
+    void start_sounding(const DroneSettings& s, const DronePhases& p) noexcept;
+    // The clip player mixed in before the limiter (its control side: play, stop; any thread may ask busy()).
+    ClipPlayer& clip() noexcept { return clip_; }
 
 private:
     void apply(const DroneSettings& s, bool first) noexcept;
@@ -78,6 +97,9 @@ private:
     DroneSettings applied_{};
     bool have_applied_ = false;
     HarmonicSynth root_, fifth_, reference_;
+    ClipPlayer clip_;
+    std::atomic<bool> want_phases_{false}, phases_taken_{false};
+    DronePhases taken_{};              // written by the renderer before phases_taken_ (release)
     std::vector<double> amps_;         // scratch: root partials (+ octave)
     std::int64_t reference_left_ = 0;  // samples until the reference voice fades out
     // Limiter state.

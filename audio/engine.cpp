@@ -790,12 +790,19 @@ void Engine::set_drone(const DroneSettings& s) {
 void Engine::set_tap(TakeRecorder* r) {
     Impl& m = *impl_;
     m.tap.store(r, std::memory_order_release);
+    if (r && m.io.out_drone) m.io.out_drone->request_phases();
     if (r) {
         r->note_drone(drone_);
         return;
     }
     while (m.tap_users.load(std::memory_order_acquire) != 0)
         std::this_thread::sleep_for(std::chrono::microseconds(200));
+}
+
+std::optional<DronePhases> Engine::drone_phases_at_tap() const {
+    const Drone* d = impl_->io.out_drone.get();
+    if (!d || !d->phases_taken()) return std::nullopt;
+    return d->phases_at_request();
 }
 
 void Engine::set_root_hz(double root_hz) {
@@ -828,8 +835,31 @@ void Engine::sound_tone(double freq_hz, double dur_s) {
     set_drone(s);
 }
 
+bool Engine::play_clip(std::span<const float> samples, double rate_hz, bool hush_drone) {
+    if (samples.empty()) throw Error("clip: empty");
+    if (!(rate_hz > 0.0) || static_cast<double>(samples.size()) / rate_hz > 60.0)
+        throw Error("clip of " + std::to_string(samples.size()) + " samples: longer than 60 s or no rate");
+    Impl& m = *impl_;
+    if (!m.io.out_drone) return false;
+    auto clip = std::make_unique<Clip>();
+    clip->samples = resample_linear(samples, rate_hz, m.io.out_drone->sample_rate_hz());
+    clip->gain = std::pow(10.0, drone_.level_dbfs / 20.0);  // RMS 1 -> the drone's RMS level
+    clip->hush_drone = hush_drone;
+    m.io.out_drone->clip().play(std::move(clip));
+    return true;
+}
+
+void Engine::stop_clip() {
+    if (impl_->io.out_drone) impl_->io.out_drone->clip().stop();
+}
+
+bool Engine::clip_playing() const { return impl_->io.out_drone && impl_->io.out_drone->clip().busy(); }
+
+double Engine::clip_position_s() const { return impl_->io.out_drone ? impl_->io.out_drone->clip().position_s() : 0.0; }
+
 void Engine::supervise() {
     Impl& m = *impl_;
+    if (m.io.out_drone) m.io.out_drone->clip().collect();
     delete m.retired_maker.exchange(nullptr);
     delete m.retired_analyzer.exchange(nullptr);
     delete m.retired_duo.exchange(nullptr);

@@ -30,6 +30,7 @@
 #include <cstdint>
 #include <functional>
 #include <memory>
+#include <optional>
 #include <span>
 #include <string>
 #include <thread>
@@ -137,11 +138,22 @@ public:
     // a tone asked for while one sounds glides to the new pitch over 50 ms.
     // Throws Error on a frequency outside 20 Hz .. 5 kHz or a length outside 0.1 .. 30 s.
     void sound_tone(double freq_hz, double dur_s);
+    // Plays a recorded clip once through the output, mixed in before the drone's limiter (audio/clip_player.h): mono
+    // samples at rate_hz, RMS 1 standing for the drone's level (the caller normalises), resampled to the output's rate
+    // here, faded in and out over 30 ms; hush_drone fades the live drone out while it sounds. False when there is no
+    // output to hear it on. Throws Error on an empty clip or one longer than 60 s.
+    bool play_clip(std::span<const float> samples, double rate_hz, bool hush_drone);
+    void stop_clip();                // fades out what plays
+    bool clip_playing() const;       // a clip sounds or waits to (any thread)
+    double clip_position_s() const;  // seconds of it played
     void supervise();  // watchdog, reopening, a group's channel messages; every ~100 ms
     // Recording: from the next callback every analysed channel, as it came in (before drone removal), is copied to
     // `r` (audio/take_recorder.h), one recorder channel per analysed channel; drone changes are noted in it. nullptr
     // detaches, waiting until no callback uses the old one. Costs one relaxed atomic load per callback when none.
     void set_tap(TakeRecorder* r);
+    // The output drone's phases at the first block it rendered after set_tap(r) (nullopt before that block, or with
+    // no output): what a take needs to render its drone again as it sounded, already going, when the take began.
+    std::optional<DronePhases> drone_phases_at_tap() const;
     void on_message(std::function<void(const std::string&)> f) { message_ = std::move(f); }
 
     // --- Readings and status ------------------------------------------------------

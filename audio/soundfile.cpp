@@ -102,6 +102,14 @@ void SoundReader::rewind() {
     pos_frames_ = 0;
 }
 
+void SoundReader::seek(std::int64_t frame) {
+    if (!file_) return;
+    frame = std::clamp<std::int64_t>(frame, 0, info_.len_frames);
+    if (sf_seek(as_sf(file_), static_cast<sf_count_t>(frame), SEEK_SET) < 0)
+        throw Error(info_.path + ": cannot seek to frame " + std::to_string(frame));
+    pos_frames_ = frame;
+}
+
 std::span<const float> SoundReader::read() {
     if (!file_) return {};
     const std::size_t ch = static_cast<std::size_t>(info_.channels);

@@ -50,6 +50,9 @@ public:
     // Back to the first frame, for a second pass. Throws Error naming the
     // file when it cannot seek (a pipe).
     void rewind();
+    // To frame `frame` (clamped to the file), the next read starting there. Throws Error naming the file when it
+    // cannot seek.
+    void seek(std::int64_t frame);
 
     // Reads the whole file as mono (tests and short files only).
     static std::vector<float> read_all(const std::string& path, int channel = -1, double* rate_hz = nullptr);

@@ -106,6 +106,11 @@ void HarmonicSynth::set_vibrato(double rate_hz, double depth_cents) noexcept {
 
 bool HarmonicSynth::ramping() const noexcept { return f0_left_ > 0 || gain_left_ > 0 || amp_left_ > 0; }
 
+void HarmonicSynth::set_phase(double rad) noexcept {
+    phase_ = std::fmod(rad, kTwoPi);
+    if (phase_ < 0.0) phase_ += kTwoPi;
+}
+
 void HarmonicSynth::render_add(std::span<float> out) noexcept {
     const double fs = cfg_.sample_rate_hz;
     const std::size_t np = top_;

@@ -34,6 +34,8 @@ public:
     void render_add(std::span<float> out) noexcept;
 
     double f0_hz() const noexcept { return f0_now_; }  // current (ramping) f0, without vibrato
+    double phase_rad() const noexcept { return phase_; }  // fundamental phase now, [0, 2pi)
+    void set_phase(double rad) noexcept;                  // the fundamental's phase from now on
     double level() const noexcept { return gain_now_; }
     bool ramping() const noexcept;
     const SynthConfig& config() const noexcept { return cfg_; }

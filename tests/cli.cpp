@@ -159,6 +159,25 @@ std::string json_value(const std::string& json, const std::string& expr) {
     return out;
 }
 
+std::string python_output(const std::string& script) {
+    TempDir d;
+    const std::string py = d.file("s.py");
+    {
+        std::FILE* f = std::fopen(py.c_str(), "w");
+        if (!f) throw std::runtime_error("cannot write " + py);
+        std::fwrite(script.data(), 1, script.size(), f);
+        std::fclose(f);
+    }
+    std::FILE* p = ::popen(("/usr/bin/python3 " + py).c_str(), "r");
+    if (!p) throw std::runtime_error("cannot run /usr/bin/python3");
+    std::string out;
+    char buf[4096];
+    while (std::fgets(buf, sizeof buf, p)) out += buf;
+    if (::pclose(p) != 0) throw std::runtime_error("/usr/bin/python3 failed on " + py);
+    while (!out.empty() && out.back() == '\n') out.pop_back();
+    return out;
+}
+
 TempDir::TempDir() {
     std::string tmpl = (std::filesystem::temp_directory_path() / "beatless-test-XXXXXX").string();
     if (!mkdtemp(tmpl.data())) throw std::runtime_error("mkdtemp failed");

@@ -37,6 +37,9 @@ std::string json_value(const std::string& json, const std::string& expr);
 std::vector<double> json_numbers(const std::string& json, const std::string& list_expr);
 std::vector<std::string> json_words(const std::string& json, const std::string& list_expr);
 
+// What /usr/bin/python3 prints running `script` (trailing newlines removed); throws std::runtime_error when it fails.
+std::string python_output(const std::string& script);
+
 // Path of the beatless binary under test (BEATLESS_PROGRAM from CMake).
 std::string program_path();
 

@@ -69,6 +69,15 @@ struct LiveRig {
         room = std::make_unique<audio::SimulatedRoom>(room_cfg);
     }
 
+    // Opens with readings against 7/5 over A2 (110 Hz), the set the take and clip tests use.
+    void open_7_5_over_a2(const audio::DroneSettings& drone, audio::RoomConfig room_cfg = {}) {
+        pitch::ReadingConfig rc;
+        rc.root_hz = 110.0;
+        pitch::TargetSet set;
+        set.targets.push_back({pitch::parse_interval("7/5"), ""});
+        open(rc, std::move(set), drone, room_cfg);
+    }
+
     // Runs the voice from where it stopped to its end.
     void run() {
         std::vector<float> in(block), out(2 * block), spk(block, 0.0f);

@@ -12,6 +12,7 @@
 #include "audio/engine.h"
 #include "audio/soundfile.h"
 #include "audio/take_recorder.h"
+#include "audio/take_writer.h"
 #include "tests/cli.h"
 #include "tests/ensemble_signals.h"
 #include "tests/live_rig.h"
@@ -395,5 +396,83 @@ TEST_CASE("the demo violinist: her rendering, the capture and the warm two-voice
     }
     CHECK(frames > 500);
     counted.check();
+#endif
+}
+
+TEST_CASE(
+    "a take's note played back: the output is the take's samples times one gain once faded in; no click; the "
+    "callbacks allocate and lock nothing while it plays") {
+#ifdef BEATLESS_SANITIZED
+    MESSAGE("skipped under the sanitizers, which interpose the allocator themselves");
+#else
+    // The take: a voice at 7/5 over A2 with vibrato, written as 24-bit FLAC and read back (what the Review screen
+    // reads). Played through the engine's clip player on the fake duplex device, drone on: the clip hushes the drone
+    // (raised-cosine crossfade, 30 ms), so once faded in the output is exactly the take's sample times the drone's
+    // level as a gain (10^(-30/20)), delayed by the limiter's look-ahead (1.5 ms, audio/drone.cpp), which does not
+    // act at this level (its gain stays 1). Clicks: no step between output samples larger than the largest step of
+    // the drone or of the scaled take (common practice: a click is a discontinuity).
+    const double rate = 48000.0;
+    test::TempDir dir;
+    std::vector<float> voice(static_cast<std::size_t>(1.2 * rate), 0.0f);
+    std::vector<testsig::Note> notes(1);
+    notes[0].start_s = 0.1;
+    notes[0].end_s = 1.1;
+    notes[0].centre_hz = 154.0;
+    notes[0].vib_rate_hz = 5.5;
+    notes[0].vib_depth_cents = 25.0;
+    notes[0].level = 0.2;
+    testsig::add_voice(voice, rate, notes, testsig::rolloff(8));
+    {
+        audio::TakeWriter w(dir.file("take.flac"), rate, 1);
+        w.write(voice);
+        w.close();
+    }
+    double take_rate = 0.0;
+    const std::vector<float> take = audio::SoundReader::read_all(dir.file("take.flac"), -1, &take_rate);
+    REQUIRE(take_rate == rate);
+    REQUIRE(take.size() == voice.size());
+
+    test::LiveRig rig(rate, 256);
+    audio::DroneSettings d;
+    d.on = true;
+    d.root_hz = 110.0;
+    audio::RoomConfig room;
+    room.gain = 0.0;
+    rig.open_7_5_over_a2(d, room);
+    std::vector<float> in(256, 0.0f), out(2 * 256), played;
+    Counted counted;
+    auto run = [&](std::size_t blocks) {
+        for (std::size_t b = 0; b < blocks; ++b) {
+            counted.block([&] { rig.sys.drive(in, out, 1, 2); }, [&] { rig.engine.analyze_available(); }, true);
+            for (std::size_t i = 0; i < 256; ++i) played.push_back(out[2 * i]);
+        }
+    };
+    run(400);  // the drone has faded in and settled; the analysis is warm
+    const std::size_t before = played.size();
+    REQUIRE(rig.engine.play_clip(take, take_rate, true));
+    CHECK(rig.engine.clip_playing());
+    run(static_cast<std::size_t>(std::ceil((1.3 * rate) / 256.0)));
+    rig.engine.supervise();  // frees the finished clip (control thread)
+    CHECK(!rig.engine.clip_playing());
+    counted.check();
+
+    const std::size_t look = 72;    // lround(0.0015 * 48000), the limiter's look-ahead
+    const std::size_t fade = 1440;  // 30 ms
+    const auto g = static_cast<float>(std::pow(10.0, -30.0 / 20.0));
+    std::size_t same = 0, n = 0;
+    for (std::size_t k = fade; k + fade < take.size(); ++k, ++n) same += played[before + look + k] == take[k] * g;
+    CHECK(n > 50000);
+    CHECK(same == n);
+    float step_max = 0.0f, drone_step = 0.0f, take_step = 0.0f;
+    for (std::size_t i = before + 1; i < played.size(); ++i)
+        step_max = std::max(step_max, std::fabs(played[i] - played[i - 1]));
+    for (std::size_t i = 1000; i < before; ++i) drone_step = std::max(drone_step, std::fabs(played[i] - played[i - 1]));
+    for (std::size_t k = 1; k < take.size(); ++k) take_step = std::max(take_step, std::fabs(take[k] - take[k - 1]) * g);
+    CHECK(step_max <= 1.05f * std::max(drone_step, take_step));
+    // After the clip, the drone is back at its level.
+    double e_before = 0.0, e_after = 0.0;
+    for (std::size_t i = before - 9600; i < before; ++i) e_before += played[i] * played[i];
+    for (std::size_t i = played.size() - 4800; i < played.size(); ++i) e_after += played[i] * played[i];
+    CHECK(std::sqrt(e_after / 4800) == doctest::Approx(std::sqrt(e_before / 9600)).epsilon(0.05));
 #endif
 }

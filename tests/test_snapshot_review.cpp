@@ -11,6 +11,7 @@
 #include "audio/take_writer.h"
 #include "tests/cli.h"
 #include "tests/mix_signals.h"
+#include "tests/take_fixture.h"
 #include "ui/render/imgui_host.h"
 #include "ui/render/raster.h"
 #include "ui/screens/palette.h"
@@ -22,6 +23,8 @@
 #include "ui/session/take_file.h"
 
 #include <doctest/doctest.h>
+
+#include <unistd.h>
 
 #include <cmath>
 #include <cstdlib>
@@ -38,21 +41,7 @@ constexpr double kFs = 44100.0;
 
 // A take in `dir` named for `stem`, with its sidecar: the 7-limit set, root A2.
 void write_take(const std::filesystem::path& dir, const std::string& stem, const Take& take) {
-    const std::filesystem::path flac = dir / (stem + ".flac");
-    audio::TakeWriter w(flac.string(), kFs, 1);
-    w.write(take.samples);
-    w.close();
-    ui::TakeInfo info;
-    info.audio_path = flac;
-    info.sidecar_path = ui::take_sidecar_path(flac);
-    info.rate_hz = kFs;
-    info.root_hz = 110.0;
-    info.root = "A2";
-    info.targets = "7-limit";
-    info.screen = "practice";
-    info.duration_s = take.dur_s;
-    info.complete = true;
-    ui::write_take_sidecar(info);
+    beatless::test::write_test_take(dir, stem, take.samples, kFs, take.dur_s);
 }
 
 struct ReviewRig {
@@ -61,9 +50,9 @@ struct ReviewRig {
     ui::Rasterizer raster;
     ui::PixelBuffer buf;
     std::unique_ptr<ui::Screen> screen = ui::make_review_screen();
-    static ui::AppOptions options(int note, double span_s) {
+    static ui::AppOptions options(int note, double span_s, bool simulated) {
         ui::AppOptions o;
-        o.simulated = true;
+        o.simulated = simulated;
         o.no_input = true;
         o.save_settings = false;
         o.review_note = note;
@@ -81,9 +70,9 @@ struct ReviewRig {
         s.caution_acknowledged = true;
         return s;
     }
-    ReviewRig(int note, double span_s)
+    ReviewRig(int note, double span_s, bool simulated = true)
         : app(settings(), std::filesystem::temp_directory_path() / "beatless-never-written.toml",
-              options(note, span_s)),
+              options(note, span_s, simulated)),
           host(host_config()) {
         app.start();
     }
@@ -175,6 +164,77 @@ TEST_CASE("Review: takes newest first; a take opened, zoomed, a note selected; m
         ++crests;
     }
     CHECK(crests >= 3);
+    unsetenv("BEATLESS_HOME");
+}
+
+TEST_CASE(
+    "Review of a two-voice take: both voices' bars where their pitches say, each interval's deviation in its "
+    "colour") {
+    // Double stops (mix_signals.h held_dyads): 3/2 8 c wide over 196 Hz, 5/4 10 c narrow over 220 Hz, 4/3 in tune
+    // over 247 Hz; recorded with --voices 2 (the sidecar says so). No drone: the reference is the sidecar's root,
+    // A2 = 110 Hz, the marks in cents above it (Ellis 1885). Colours: wide as sharp (orange), narrow as flat (sky
+    // blue), in tune (green).
+    beatless::test::TempDir home;
+    setenv("BEATLESS_HOME", home.path().c_str(), 1);
+    const std::filesystem::path takes = ui::takes_dir();
+    std::filesystem::create_directories(takes);
+    std::vector<HeldDyad> dyads(3);
+    dyads[0].f_low_hz = 196.0, dyads[0].off_cents = 8.0;
+    dyads[1].p = 5, dyads[1].q = 4, dyads[1].f_low_hz = 220.0, dyads[1].off_cents = -10.0;
+    dyads[2].p = 4, dyads[2].q = 3, dyads[2].f_low_hz = 247.0, dyads[2].off_cents = 0.0;
+    const std::vector<float> x = held_dyads(kFs, dyads, 1.6, 0.5, 1e-3, 17);
+    beatless::test::write_test_take(takes, "2026-12-03_170000", x, kFs, static_cast<double>(x.size()) / kFs, false, 2);
+    ReviewRig rig(1, 0.0);
+    rig.frames(3);
+    const ui::ReviewView& v = *ui::review_view(*rig.screen);
+    REQUIRE(v.open);
+    REQUIRE(v.marks.size() == 3);
+    const std::uint32_t want_colour[] = {ui::palette::kSharp, ui::palette::kFlat, ui::palette::kInTune};
+    for (const ui::ReviewMarkView& m : v.marks) {
+        CAPTURE(m.note);
+        REQUIRE(m.note >= 0);
+        REQUIRE(m.note < 3);
+        const HeldDyad& d = dyads[static_cast<std::size_t>(m.note)];
+        CHECK(std::fabs(m.y - v.y_of(1200.0 * std::log2(d.f_high_hz() / 110.0))) < 1.5);
+        CHECK(std::fabs(m.y_low - v.y_of(1200.0 * std::log2(d.f_low_hz / 110.0))) < 1.5);
+        CHECK(std::fabs(m.dev_cents - d.off_cents) < 0.5);  // the interval's deviation, within the review's 0.5 c bar
+        CHECK(m.colour == want_colour[m.note]);
+        const int px = static_cast<int>(0.5f * (m.x0 + m.x1)) + 20, py = static_cast<int>(std::floor(m.y));
+        CHECK(rig.buf.at(px, py) == want_colour[m.note]);
+        CHECK(std::fabs(m.x0 - v.x_of(d.start_s)) <
+              0.05f * (v.plot_x1 - v.plot_x0) / static_cast<float>(v.t1_s - v.t0_s) + 1.5f);
+    }
+    CHECK(v.selected == 0);
+    unsetenv("BEATLESS_HOME");
+}
+
+TEST_CASE("Review in real time: the list and the plot say 'reading' while the worker reads; then the take is there") {
+    // A 40 s take takes the analysis much longer than it takes to draw one frame (analyze's bench: 1.3 s of CPU for
+    // ten minutes): the first frame shows the list's row and the plot as being read; later ones, the take.
+    beatless::test::TempDir home;
+    setenv("BEATLESS_HOME", home.path().c_str(), 1);
+    const std::filesystem::path takes = ui::takes_dir();
+    std::filesystem::create_directories(takes);
+    Take take = drone_and_voice(kFs, 110.0, {{7.0 / 5.0, 9.0}, {3.0 / 2.0, -12.0}}, 41);
+    const std::vector<float> once = take.samples;
+    while (take.samples.size() < static_cast<std::size_t>(40.0 * kFs))
+        take.samples.insert(take.samples.end(), once.begin(), once.end());
+    take.dur_s = static_cast<double>(take.samples.size()) / kFs;
+    write_take(takes, "2026-12-03_161502", take);
+    ReviewRig rig(0, 0.0, false);
+    rig.frames(1);
+    const ui::ReviewView& v = *ui::review_view(*rig.screen);
+    REQUIRE(v.takes.size() == 1);
+    CHECK(v.takes[0].find("reading\u2026") != std::string::npos);
+    CHECK(!v.open);
+    bool done = false;
+    for (int i = 0; i < 3000 && !done; ++i) {  // up to a minute of frames
+        rig.frames(1);
+        done = v.open && v.takes[0].find("notes") != std::string::npos;
+        if (!done) usleep(20000);
+    }
+    CHECK(done);
+    CHECK(v.takes[0].find("reading") == std::string::npos);
     unsetenv("BEATLESS_HOME");
 }
 

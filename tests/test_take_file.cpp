@@ -33,21 +33,6 @@ namespace audio = beatless::audio;
 
 namespace {
 
-// Runs /usr/bin/python3 with `script` and returns its stdout (trailing newline removed).
-std::string python(const std::string& script) {
-    TempDir d;
-    const std::string py = d.file("s.py");
-    std::ofstream(py) << script;
-    FILE* p = ::popen(("/usr/bin/python3 " + py).c_str(), "r");
-    REQUIRE(p);
-    std::string out;
-    char buf[4096];
-    while (std::fgets(buf, sizeof buf, p)) out += buf;
-    REQUIRE(::pclose(p) == 0);
-    while (!out.empty() && out.back() == '\n') out.pop_back();
-    return out;
-}
-
 ui::TakeInfo sample_take(const fs::path& dir, const std::string& stem) {
     ui::TakeInfo t;
     t.audio_path = dir / (stem + ".flac");
@@ -119,11 +104,12 @@ TEST_CASE("a sidecar reads back as written, and Python's tomllib reads the same 
     CHECK(r.complete);
 
     // The outside parser: every value as the program meant it.
-    const std::string got = python("import tomllib\nd = tomllib.load(open('" + t.sidecar_path.string() +
-                                   "', 'rb'))\n"
-                                   "print(repr(d['device']), d['format'], d['channels'], d['players'][1]['name'],\n"
-                                   "      d['drone']['events'][1]['what'], d['drone']['events'][1]['root_hz'],\n"
-                                   "      d['complete'], d['targets'])\n");
+    const std::string got =
+        beatless::test::python_output("import tomllib\nd = tomllib.load(open('" + t.sidecar_path.string() +
+                                      "', 'rb'))\n"
+                                      "print(repr(d['device']), d['format'], d['channels'], d['players'][1]['name'],\n"
+                                      "      d['drone']['events'][1]['what'], d['drone']['events'][1]['root_hz'],\n"
+                                      "      d['complete'], d['targets'])\n");
     CHECK(got == "'Studio \"B\" \\\\ mic\\tin' 1 2 Jonas root 73.416192 True /home/mira/sets/septimal.toml");
 }
 
@@ -181,8 +167,9 @@ TEST_CASE("take names follow the local date and time; ISO 8601 with the offset, 
     CHECK(iso.size() == 25);
     CHECK(iso.substr(19) == "+01:00");
     // Python's datetime: the same instant, and the stem is its local date and time.
-    CHECK(python("from datetime import datetime\nx = datetime.fromisoformat('" + iso +
-                 "')\nprint(int(x.timestamp()), x.strftime('%Y-%m-%d_%H%M%S'))") == "1796314502 " + stem);
+    CHECK(beatless::test::python_output("from datetime import datetime\nx = datetime.fromisoformat('" + iso +
+                                        "')\nprint(int(x.timestamp()), x.strftime('%Y-%m-%d_%H%M%S'))") ==
+          "1796314502 " + stem);
 }
 
 TEST_CASE("free_take_path adds -2, -3 when a name is taken; list_takes is newest first and skips bad sidecars") {
@@ -344,7 +331,7 @@ TEST_CASE("regenerate_drone plays the sidecar's drone: its root before and after
     REQUIRE(x.size() == 3u * 48000u);
     const std::string wav = d.file("regen.wav");
     audio::write_wav(wav, x, 48000.0, audio::SampleFormat::float32);
-    const std::string got = python(
+    const std::string got = beatless::test::python_output(
         "import numpy as np, scipy.io.wavfile as w, warnings\n"
         "warnings.simplefilter('ignore')  # scipy does not know libsndfile's PEAK chunk\n"
         "r, x = w.read('" +

@@ -14,6 +14,8 @@
 #include "pitch/theory/interval.h"
 #include "tests/cli.h"
 #include "tests/live_rig.h"
+#include "ui/session/app_state.h"
+#include "ui/session/settings.h"
 #include "ui/session/take_file.h"
 #include "ui/session/take_recording.h"
 #include "ui/session/target_files.h"
@@ -131,14 +133,10 @@ TEST_CASE("a take from the fake device reopens bit for bit (the input rounded to
     rig.voice.resize(static_cast<std::size_t>(2.0 * rate));
     for (std::size_t i = 0; i < rig.voice.size(); ++i)
         rig.voice[i] = static_cast<float>(0.2 * std::sin(2 * M_PI * 154.0 * static_cast<double>(i) / rate));
-    pitch::ReadingConfig rc;
-    rc.root_hz = 110.0;
-    pitch::TargetSet set;
-    set.targets.push_back({pitch::parse_interval("7/5"), ""});
     audio::DroneSettings drone;
     drone.on = true;
     drone.timbre = audio::Timbre::bright;
-    rig.open(rc, set, drone, audio::RoomConfig{});
+    rig.open_7_5_over_a2(drone);
 
     const fs::path path = d.file("fake.flac");
     ui::TakeRecording take(rig.engine, path, context("practice"), rate, 1);
@@ -408,4 +406,93 @@ TEST_CASE("free space: refused below the start margin, stopped cleanly below the
     CHECK(said.ends_with(" s, what was recorded is kept"));
     CHECK(read_interleaved(d.file("y.flac")).size() >= 48000u);
     CHECK(ui::read_take_sidecar(d.file("y.toml")).complete);
+}
+
+TEST_CASE(
+    "a drone already sounding when the take began: its phases are kept, and the drone regenerated from the "
+    "sidecar is the one that played, sample for sample") {
+    // The drone sounds for 1 s before the take (its fade in long done), then 1 s is recorded; what the playback
+    // callback played from the take's first block on is compared with regenerate_drone's rendering. Both are the
+    // same synthesis (audio/drone.h) with the same look-ahead limiter, whose delay line starts empty in the
+    // regenerated one: its first 1.5 ms (72 samples at 48 kHz) are compared from there on.
+    TempDir d;
+    const double rate = 48000.0;
+    beatless::test::LiveRig rig(rate, 256);
+    audio::DroneSettings drone;
+    drone.on = true;
+    drone.fifth = true;
+    drone.timbre = audio::Timbre::bright;
+    audio::RoomConfig room;
+    room.gain = 0.0;
+    rig.open_7_5_over_a2(drone, room);
+    std::vector<float> in(rig.block, 0.0f), out(2 * rig.block), played;
+    auto run = [&](std::size_t blocks, bool keep) {
+        for (std::size_t b = 0; b < blocks; ++b) {
+            rig.sys.drive(in, out, 1, 2);
+            rig.engine.analyze_available();
+            if (keep)
+                for (std::size_t i = 0; i < rig.block; ++i) played.push_back(out[2 * i]);
+        }
+    };
+    run(188, false);  // ~1 s
+    const fs::path path = d.file("sounding.flac");
+    ui::TakeRecording take(rig.engine, path, context("practice"), rate, 1);
+    run(188, true);
+    CHECK(take.stop().rfind("recorded", 0) == 0);
+    const ui::TakeInfo info = ui::read_take_sidecar(ui::take_sidecar_path(path));
+    REQUIRE(info.drone.phases);
+    const std::vector<float> regen = ui::regenerate_drone(info, static_cast<std::int64_t>(played.size()));
+    REQUIRE(regen.size() == played.size());
+    double worst = 0.0, peak = 0.0;
+    for (std::size_t i = 72; i < played.size(); ++i) {
+        worst = std::max(worst, static_cast<double>(std::fabs(regen[i] - played[i])));
+        peak = std::max(peak, static_cast<double>(std::fabs(played[i])));
+    }
+    CHECK(peak > 0.01);
+    CHECK(worst < 1e-4 * peak);  // the phases written with 12 decimals
+    // Without the phases (an older take), it fades in from phase 0 instead: far from what played.
+    ui::TakeInfo older = info;
+    older.drone.phases.reset();
+    const std::vector<float> faded = ui::regenerate_drone(older, static_cast<std::int64_t>(played.size()));
+    double off = 0.0;
+    for (std::size_t i = 72; i < played.size(); ++i)
+        off = std::max(off, static_cast<double>(std::fabs(faded[i] - played[i])));
+    CHECK(off > 0.1 * peak);
+}
+
+TEST_CASE(
+    "a drill begun from the screen (not --drill) names itself in the take's sidecar, whether the take began "
+    "before it or after") {
+    TempDir home;
+    setenv("BEATLESS_HOME", home.path().c_str(), 1);
+    ui::AppOptions o;
+    o.simulated = true;
+    o.demo = true;
+    o.save_settings = false;
+    ui::Settings s;
+    s.caution_acknowledged = true;
+    ui::AppState app(s, fs::path(home.path()) / "never.toml", o);
+    app.start();
+    audio::DroneSettings drone;
+    drone.on = true;
+    drone.root_hz = 110.0;
+    auto record = [&](auto during) {
+        app.start_recording();
+        REQUIRE(app.recording());
+        const std::string name = app.recording_name();
+        for (int i = 0; i < 30; ++i) app.update(1.0 / 60.0);
+        during();
+        for (int i = 0; i < 30; ++i) app.update(1.0 / 60.0);
+        app.stop_recording();
+        return ui::read_take_sidecar(ui::takes_dir() / (name + ".toml"));
+    };
+    // Begun while a take records: the take is of the drill from there (its sidecar is rewritten at the end).
+    const ui::TakeInfo first = record([&] { REQUIRE(app.begin_drill(drone, "hold-tritones")); });
+    CHECK(first.drill == "hold-tritones");
+    // A take begun while the drill runs.
+    const ui::TakeInfo second = record([] {});
+    CHECK(second.drill == "hold-tritones");
+    app.end_drill();
+    app.shutdown();
+    unsetenv("BEATLESS_HOME");
 }

@@ -428,6 +428,7 @@ int run_live(const ListenOptions& o, Printing printing) {
     take_context.a4_hz = o.a4_hz;
     take_context.targets = o.target.empty() ? o.targets : "";
     take_context.target = o.target;
+    take_context.voices = o.voices;
     auto start_take = [&](double rate_hz) {
         take = std::make_unique<TakeRecording>(engine, take_path, take_context, rate_hz, 1);
         std::fprintf(stderr, "beatless: recording to %s\n", take_path.c_str());

@@ -41,6 +41,7 @@
 #include <cmath>
 #include <cstdio>
 #include <cstring>
+#include <filesystem>
 #include <map>
 #include <memory>
 #include <string>
@@ -201,7 +202,10 @@ void DrillsScreen::start(AppState& app) {
                   : static_cast<std::uint64_t>(std::chrono::steady_clock::now().time_since_epoch().count());
     rc.performer = d.mode == DrillMode::ear ? (listener_ ? kSimulatedListener : "") : o.demo ? kDemoPerformer : "";
     auto runner = std::make_unique<DrillRunner>(d, rc, writer_.get());
-    if (!app.begin_drill(drill_drone(d))) return;
+    // The name load_drill finds it by again: the file given with --drill, else the drill's id (a built-in's name).
+    const std::string name =
+        !o.drill.empty() && std::filesystem::path(o.drill).stem().string() == d.id ? o.drill : d.id;
+    if (!app.begin_drill(drill_drone(d), name)) return;
     drill_owned_ = true;
     const bool hold = d.mode == DrillMode::hold;
     app.set_drill_targets(

@@ -14,8 +14,10 @@
 #include "ui/screens/palette.h"
 #include "ui/screens/take_report.h"
 #include "ui/screens/widgets.h"
+#include "ui/session/review_worker.h"
 #include "ui/session/safe_file.h"
 #include "ui/session/take_analysis.h"
+#include "ui/session/take_clip.h"
 #include "ui/session/take_export.h"
 #include "ui/session/take_file.h"
 #include "ui/session/take_words.h"
@@ -43,19 +45,18 @@ namespace {
 // ---------------------------------------------------------------------------
 
 constexpr KeyHelp kReviewKeys[] = {
-    {"Up / Down, Enter", "choose a take, open it"},   {"Left / Right", "previous / next note"},
-    {"+ / - or wheel", "zoom in / out in time"},      {"PgUp / PgDn, Home", "scroll; the whole take"},
+    {"\xE2\x86\x91 \xE2\x86\x93 Enter", "choose a take, open it"},
+    {"\xE2\x86\x90 / \xE2\x86\x92", "previous / next note"},
+    {"+ / - or wheel", "zoom in / out in time"},
+    {"PgUp / PgDn", "scroll in time"},
+    {"Home", "the whole take"},
+    {"L / D / B", "hear the recorded note: alone / with its drone / then its target"},
+    {"S", "stop what is heard"},
     {"T / P", "sound the note's target / its pitch"},
 };
 
 constexpr double kMinSpanS = 0.5;  // the closest zoom
 constexpr const char* kDefaultSet = "7-limit";
-
-struct ListRow {
-    int notes = -1;  // -1 until analysed
-    double mean_dev_cents = NAN;
-    std::string error;
-};
 
 std::string duration_words(double s) {
     if (!std::isfinite(s)) return "?";
@@ -72,6 +73,23 @@ std::string take_when(const TakeInfo& t) {
     return s;
 }
 
+// What the screen needs of a take reviewed as one voice (its notes) or two (its intervals), alike.
+int item_count(const ReviewedTake& t) {
+    return static_cast<int>(t.voices == 2 ? t.duo.dyads.size() : t.analysis.notes.size());
+}
+struct ItemSpan {
+    double start_s, end_s;
+};
+ItemSpan item_span(const ReviewedTake& t, int i) {
+    const auto k = static_cast<std::size_t>(i);
+    if (t.voices == 2) return {t.duo.dyads[k].start_s, t.duo.dyads[k].end_s};
+    return {t.analysis.notes[k].start_s, t.analysis.notes[k].end_s};
+}
+double take_dur_s(const ReviewedTake& t) { return (t.voices == 2 ? t.duo.info : t.analysis.info).dur_s(); }
+const std::vector<pitch::TargetSummary>& take_summary(const ReviewedTake& t) {
+    return t.voices == 2 ? t.duo.summary : t.analysis.summary;
+}
+
 class ReviewScreen final : public Screen {
 public:
     ScreenId id() const override { return ScreenId::review; }
@@ -84,7 +102,8 @@ public:
 private:
     void list_takes_now();
     void open(AppState& app, const std::string& path);
-    void analyse_one_listed(AppState& app);
+    void take_opened(AppState& app);
+    std::string default_set_ = kDefaultSet;  // the settings' set, for takes without a sidecar
     void handle_keys(AppState& app);
     void show_whole();
     void follow_selected();
@@ -92,16 +111,28 @@ private:
     void draw_summary(ImDrawList* dl, float x, float y, float w, float h);
     double in_tune_cents_ = 5.0;  // the settings' in-tune width, for colours
     void draw_plot(AppState& app, ImDrawList* dl, float x, float y, float w, float h);
+    void draw_duo(AppState& app, ImDrawList* dl);  // two voices: both traces and the intervals' marks
+    void draw_trace(ImDrawList* dl, const pitch::DecimatedTrace& trace, std::uint32_t colour);
+    void draw_time_axis(ImDrawList* dl);
+    void draw_mark(ImDrawList* dl, const ReviewMarkView& m, float y_lo, float y_hi);
+    float draw_duo_detail(AppState& app, ImDrawList* dl, float x, float y, float w);
+    float draw_note_detail(AppState& app, ImDrawList* dl, float x, float y, float w);
+    int voices_asked_ = 0;  // 0: as the take was recorded; 1 or 2: as chosen on the screen
     void draw_detail(AppState& app, ImDrawList* dl, float x, float y, float w, float h);
     void sound(AppState& app, bool target);
+    void hear(AppState& app, ClipKind kind);
     void export_report(AppState& app);
     void rename(AppState& app, const std::string& stem);
     char rename_buf_[96] = "";
     std::string target_text(int index) const;
 
     bool started_ = false;
+    bool wait_ = false;  // simulated time (snapshots, tests): wait for the worker, for a true picture
+    std::unique_ptr<ReviewWorker> worker_;  // opens takes and summarises the list off this thread
+    std::string opening_;                   // the take being opened ("" when none)
+    std::optional<int> select_when_open_;   // a note to select once it is open (--note)
+    double span_when_open_ = 0.0;
     std::vector<TakeInfo> takes_;
-    std::map<std::string, ListRow> rows_;  // by path
     int list_sel_ = 0;
     std::optional<ReviewedTake> take_;
     double t0_s_ = 0.0, span_s_ = 10.0;
@@ -122,59 +153,57 @@ void ReviewScreen::list_takes_now() {
     } catch (const std::exception&) {
         takes_.clear();
     }
+    std::vector<std::string> paths;
+    for (const TakeInfo& t : takes_) paths.push_back(t.audio_path.string());
+    if (worker_) worker_->summarise(paths, default_set_);
+    if (wait_ && worker_) worker_->wait_idle();
     list_sel_ = std::clamp(list_sel_, 0, std::max(0, static_cast<int>(takes_.size()) - 1));
 }
 
-ListRow row_of(const ReviewedTake& r) {
-    ListRow row;
-    row.error = r.error;
-    if (!r.error.empty()) return row;
-    row.notes = static_cast<int>(r.analysis.notes.size());
-    double sum = 0.0;
-    int n = 0;
-    for (const auto& note : r.analysis.notes)
-        if (std::isfinite(note.dev_cents)) sum += note.dev_cents, ++n;
-    row.mean_dev_cents = n > 0 ? sum / n : NAN;
-    return row;
+// Asks the worker to open the take; it shows when ready (take_opened). In simulated time the frame waits for it.
+void ReviewScreen::open(AppState& app, const std::string& path) {
+    opening_ = path;
+    worker_->open(path, default_set_, voices_asked_);
+    if (wait_) {
+        worker_->wait_idle();
+        take_opened(app);
+    }
 }
 
-void ReviewScreen::open(AppState& app, const std::string& path) {
-    take_ = review_take(path, app.settings().target_set.empty() ? kDefaultSet : app.settings().target_set);
-    rows_[path] = row_of(*take_);
-    selected_ = take_->analysis.notes.empty() ? -1 : 0;
+void ReviewScreen::take_opened(AppState& app) {
+    std::optional<ReviewedTake> t = worker_->opened();
+    if (!t) return;
+    take_ = std::move(t);
+    opening_.clear();
+    selected_ = item_count(*take_) == 0 ? -1 : 0;
+    confirm_delete_ = false;
     show_whole();
     if (!take_->error.empty()) app.post(take_->error, true);
-}
-
-// One take of the list analysed per frame, so the list fills in without a long pause.
-void ReviewScreen::analyse_one_listed(AppState& app) {
-    for (const TakeInfo& t : takes_) {
-        const std::string p = t.audio_path.string();
-        if (rows_.count(p)) continue;
-        rows_[p] = row_of(review_take(p, app.settings().target_set.empty() ? kDefaultSet : app.settings().target_set));
-        return;
+    if (select_when_open_) {
+        select(*select_when_open_, span_when_open_);
+        select_when_open_.reset();
     }
 }
 
 void ReviewScreen::show_whole() {
     t0_s_ = 0.0;
-    span_s_ = take_ && take_->error.empty() ? std::max(kMinSpanS, take_->analysis.info.dur_s()) : 10.0;
+    span_s_ = take_ && take_->error.empty() ? std::max(kMinSpanS, take_dur_s(*take_)) : 10.0;
 }
 
 void ReviewScreen::follow_selected() {
     if (!take_ || selected_ < 0) return;
-    const auto& n = take_->analysis.notes[static_cast<std::size_t>(selected_)];
+    const ItemSpan n = item_span(*take_, selected_);
     if (n.start_s < t0_s_ || n.end_s > t0_s_ + span_s_)
         t0_s_ = std::max(0.0, 0.5 * (n.start_s + n.end_s) - 0.5 * span_s_);
 }
 
 void ReviewScreen::select(int note, double span_s) {
     if (!take_) return;
-    const int count = static_cast<int>(take_->analysis.notes.size());
+    const int count = item_count(*take_);
     selected_ = note >= 0 && note < count ? note : -1;
     if (span_s > 0.0) span_s_ = std::max(kMinSpanS, span_s);
     if (selected_ >= 0) {
-        const auto& n = take_->analysis.notes[static_cast<std::size_t>(selected_)];
+        const ItemSpan n = item_span(*take_, selected_);
         t0_s_ = std::max(0.0, 0.5 * (n.start_s + n.end_s) - 0.5 * span_s_);
     }
 }
@@ -185,17 +214,44 @@ void ReviewScreen::select(int note, double span_s) {
 
 void ReviewScreen::sound(AppState& app, bool target) {
     if (!take_ || selected_ < 0) return;
-    const auto& n = take_->analysis.notes[static_cast<std::size_t>(selected_)];
-    if (target && !std::isfinite(n.target_cents)) return;
-    const double hz = target ? take_->analysis.root_hz * std::exp2(n.target_cents / 1200.0) : n.centre_f0_hz;
+    double hz = 0.0;
+    if (take_->voices == 2) {  // the upper voice: its target over the lower one, or as sung
+        const auto& d = take_->duo.dyads[static_cast<std::size_t>(selected_)];
+        hz = target ? d.f_low_hz * std::exp2(d.target_cents / 1200.0) : d.f_high_hz;
+    } else {
+        const auto& n = take_->analysis.notes[static_cast<std::size_t>(selected_)];
+        hz = target ? take_->analysis.root_hz * std::exp2(n.target_cents / 1200.0) : n.centre_f0_hz;
+    }
+    if (!std::isfinite(hz)) return;
     if (!app.sound_tone(hz, 2.0))
         app.post(app.caution_needed() ? "confirm the hearing caution first" : "no output device to sound it on");
+}
+
+// The recorded note itself (ui/session/take_clip.h) through the engine's output, the live drone hushed meanwhile.
+void ReviewScreen::hear(AppState& app, ClipKind kind) {
+    if (!take_ || selected_ < 0) return;
+    try {
+        const NoteClip c = make_note_clip(*take_, static_cast<std::size_t>(selected_), kind);
+        if (!app.play_clip(c.samples, c.rate_hz))
+            app.post(app.caution_needed() ? "confirm the hearing caution first" : "no output device to play it on");
+        else
+            app.post("playing " + std::string(clip_kind_words(kind)) +
+                     (c.drone_regenerated ? " (regenerated from the take's settings)"
+                      : c.drone_recorded  ? " (as the microphone heard it)"
+                                          : ""));
+    } catch (const std::exception& e) {
+        app.post(e.what(), true);
+    }
 }
 
 // Beside the take: the printable page `analyze --report` draws (NAME.report.png) and what `analyze --format csv`
 // and `--format json` print (NAME.csv, NAME.json), each written safely (ui/session/safe_file.h).
 void ReviewScreen::export_report(AppState& app) {
     if (!take_ || !take_->error.empty()) return;
+    if (take_->voices == 2) {
+        app.post("export: two-voice takes are exported by `beatless analyze --voices 2`", true);
+        return;
+    }
     std::filesystem::path p(take_->path);
     ReportData d = one_voice_report_data(take_->set, take_->analysis);
     d.title = take_->title;
@@ -238,10 +294,10 @@ void ReviewScreen::rename(AppState& app, const std::string& typed) {
         app.post("rename: " + from.string() + ": " + ec.message(), true);
         return;
     }
-    rows_.erase(take_->path);
+    worker_->forget(take_->path);
     take_->path = to.string();
     take_->title = to.filename().string();
-    rows_[take_->path] = row_of(*take_);
+    worker_->put(*take_);
     rename_buf_[0] = '\0';
     list_takes_now();
     app.post("renamed to " + take_->title);
@@ -249,7 +305,7 @@ void ReviewScreen::rename(AppState& app, const std::string& typed) {
 
 void ReviewScreen::handle_keys(AppState& app) {
     if (ImGui::GetIO().WantTextInput) return;
-    const int count = take_ ? static_cast<int>(take_->analysis.notes.size()) : 0;
+    const int count = take_ ? item_count(*take_) : 0;
     if (ImGui::IsKeyPressed(GLFW_KEY_RIGHT, true) && count > 0) {
         selected_ = std::min(count - 1, selected_ + 1);
         follow_selected();
@@ -259,7 +315,7 @@ void ReviewScreen::handle_keys(AppState& app) {
         follow_selected();
     }
     auto zoom = [&](double by, double at_s) {
-        const double dur = take_ ? std::max(kMinSpanS, take_->analysis.info.dur_s()) : 10.0;
+        const double dur = take_ ? std::max(kMinSpanS, take_dur_s(*take_)) : 10.0;
         const double span = std::clamp(span_s_ * by, kMinSpanS, dur);
         t0_s_ = std::clamp(at_s - (at_s - t0_s_) * span / span_s_, 0.0, std::max(0.0, dur - span));
         span_s_ = span;
@@ -271,7 +327,7 @@ void ReviewScreen::handle_keys(AppState& app) {
     if (ImGui::IsKeyPressed(GLFW_KEY_PAGE_UP, true)) t0_s_ = std::max(0.0, t0_s_ - 0.5 * span_s_);
     if (ImGui::IsKeyPressed(GLFW_KEY_HOME, false)) show_whole();
     if (take_ && take_->error.empty()) {
-        const double dur = std::max(kMinSpanS, take_->analysis.info.dur_s());
+        const double dur = std::max(kMinSpanS, take_dur_s(*take_));
         t0_s_ = std::clamp(t0_s_, 0.0, std::max(0.0, dur - span_s_));
     }
     if (ImGui::IsKeyPressed(GLFW_KEY_DOWN, true) && !takes_.empty())
@@ -282,6 +338,10 @@ void ReviewScreen::handle_keys(AppState& app) {
         open(app, takes_[static_cast<std::size_t>(list_sel_)].audio_path.string());
     if (ImGui::IsKeyPressed(GLFW_KEY_T, false)) sound(app, true);
     if (ImGui::IsKeyPressed(GLFW_KEY_P, false)) sound(app, false);
+    if (ImGui::IsKeyPressed(GLFW_KEY_L, false)) hear(app, ClipKind::note);
+    if (ImGui::IsKeyPressed(GLFW_KEY_D, false)) hear(app, ClipKind::with_drone);
+    if (ImGui::IsKeyPressed(GLFW_KEY_B, false)) hear(app, ClipKind::then_target);
+    if (ImGui::IsKeyPressed(GLFW_KEY_S, false)) app.stop_clip();
     // The wheel over the plot zooms about the time under the pointer.
     const ImVec2 m = ImGui::GetIO().MousePos;
     const float wheel = ImGui::GetIO().MouseWheel;
@@ -327,15 +387,15 @@ void ReviewScreen::draw_list(AppState& app, ImDrawList* dl, float x, float y, fl
             open(app, path);
         }
         ImGui::PopID();
-        const auto it = rows_.find(path);
+        const ListedSummary row = worker_->summary(path);
         const std::string line2 =
             duration_words(t.duration_s.value_or(NAN)) + "   " + (t.targets.empty() ? "-" : t.targets);
-        std::string line3 = "analysing ...";
-        if (it != rows_.end() && it->second.error.empty()) {
-            line3 = std::to_string(it->second.notes) + (it->second.notes == 1 ? " note" : " notes");
-            if (std::isfinite(it->second.mean_dev_cents))
-                line3 += ", mean " + signed_text(it->second.mean_dev_cents, 1) + " c";
-        } else if (it != rows_.end()) {
+        std::string line3 = "reading\u2026";
+        if (row.state == ListedSummary::State::known) {
+            line3 = std::to_string(row.summary.notes) + (row.summary.notes == 1 ? " note" : " notes");
+            if (std::isfinite(row.summary.mean_dev_cents))
+                line3 += ", mean " + signed_text(row.summary.mean_dev_cents, 1) + " c";
+        } else if (row.state == ListedSummary::State::unreadable) {
             line3 = "cannot be read";
         }
         const std::string line1 = take_when(t) + (t.complete ? "" : "  (cut short)");
@@ -354,11 +414,196 @@ void ReviewScreen::draw_list(AppState& app, ImDrawList* dl, float x, float y, fl
 // [SECTION] Plot
 // ---------------------------------------------------------------------------
 
+void ReviewScreen::draw_trace(ImDrawList* dl, const pitch::DecimatedTrace& trace, std::uint32_t colour) {
+    const ReviewView& v = view_;
+    // The trace: bucket means joined, broken at gaps. Where several buckets share a pixel column (a long take
+    // seen whole), the column's lowest and highest means are joined instead, so the lines drawn never exceed the
+    // plot's width in pixels and every excursion still shows.
+    bool pen = false;
+    ImVec2 last;
+    int col = INT_MIN;
+    float col_lo = 0.0f, col_hi = 0.0f;
+    auto flush = [&] {
+        if (col == INT_MIN) return;
+        const float cx = static_cast<float>(col) + 0.5f;
+        if (col_hi - col_lo >= 1.0f) dl->AddLine(ImVec2(cx, col_lo), ImVec2(cx, col_hi), colour, 1.5f);
+        const ImVec2 q(cx, 0.5f * (col_lo + col_hi));
+        if (pen) dl->AddLine(last, q, colour, 1.5f);
+        last = q;
+        pen = true;
+        col = INT_MIN;
+    };
+    for (std::size_t i = 0; i < trace.size(); ++i) {
+        const pitch::TracePoint& p = trace[i];
+        if (p.t_s < v.t0_s - trace.bucket_s() || p.t_s > v.t1_s + trace.bucket_s() || p.frames == 0) {
+            flush();
+            pen = false;
+            continue;
+        }
+        const float px = v.x_of(p.t_s), py = v.y_of(p.mean_cents);
+        const int c = static_cast<int>(std::floor(px));
+        if (c != col) {
+            flush();
+            col = c;
+            col_lo = col_hi = py;
+        } else {
+            col_lo = std::min(col_lo, py);
+            col_hi = std::max(col_hi, py);
+        }
+    }
+    flush();
+}
+
+// A note's (or an interval's) bar in its colour, framed when selected, its deviation above it; a click between y_lo
+// and y_hi (pixels) selects it.
+void ReviewScreen::draw_mark(ImDrawList* dl, const ReviewMarkView& m, float y_lo, float y_hi) {
+    const float u = ui_unit();
+    const ReviewView& v = view_;
+    const float r = std::round(0.22f * u);
+    dl->AddRectFilled(ImVec2(m.x0, m.y - r), ImVec2(m.x1, m.y + r), m.colour);
+    if (m.note == selected_)
+        dl->AddRect(ImVec2(m.x0 - 3, m.y - r - 3), ImVec2(m.x1 + 3, m.y + r + 3), palette::kCurrentTarget, 0, 0, 2.0f);
+    const std::string label = std::isfinite(m.dev_cents) ? signed_text(m.dev_cents, 1) : "between";
+    const ImVec2 ls = text_size(FontFace::bold, label);
+    if (ls.x < m.x1 - m.x0 + 2.0f * u) {
+        const float cx = std::round(std::clamp(0.5f * (m.x0 + m.x1), v.plot_x0 + 0.5f * ls.x + 4.0f,
+                                               v.plot_x1 - 0.5f * ls.x - 4.0f)),
+                    ly = std::round(m.y - r - 0.35f * u - ls.y);
+        dl->AddRectFilled(ImVec2(cx - 0.5f * ls.x - 4, ly - 1), ImVec2(cx + 0.5f * ls.x + 4, ly + ls.y + 1),
+                          palette::with_alpha(palette::kPanel, 225), 3.0f);
+        draw_text_centred(dl, FontFace::bold, cx, ly, m.colour, label);
+    }
+    if (ImGui::IsMouseClicked(0)) {
+        const ImVec2 mp = ImGui::GetIO().MousePos;
+        if (mp.x >= m.x0 && mp.x <= m.x1 && mp.y >= y_lo - 0.8f * u && mp.y <= y_hi + 0.8f * u) selected_ = m.note;
+    }
+    view_.marks.push_back(m);
+}
+
+void ReviewScreen::draw_time_axis(ImDrawList* dl) {
+    const float u = ui_unit();
+    const ReviewView& v = view_;
+    // The time axis: a tick per second or per a round step.
+    const double steps[] = {0.1, 0.2, 0.5, 1, 2, 5, 10, 15, 30, 60, 120, 300};
+    double step = steps[0];
+    for (const double s : steps)
+        if (span_s_ / s <= 10.0) {
+            step = s;
+            break;
+        }
+    for (double t = std::ceil(v.t0_s / step) * step; t <= v.t1_s + 1e-9; t += step) {
+        const float tx = std::round(v.x_of(t));
+        dl->AddLine(ImVec2(tx, v.plot_y1), ImVec2(tx, v.plot_y1 + 0.3f * u), palette::kGrid, 1.0f);
+        draw_text_centred(dl, FontFace::body, tx, v.plot_y1 + 0.35f * u, palette::kTextDim,
+                          pitch::format_trimmed(t, step < 1.0 ? 1 : 0) + " s");
+    }
+}
+
+// Two voices: octave lines of the reference, both voices' traces (the lower dimmer), and each held interval: a bar
+// at each voice, the upper one in its tuning colour with the interval's deviation above it, and the target (the
+// upper note the interval meant over the lower) as a line across it.
+void ReviewScreen::draw_duo(AppState& app, ImDrawList* dl) {
+    const float u = ui_unit();
+    const ReviewView& v = view_;
+    const TwoVoiceAnalysis& d = take_->duo;
+    dl->PushClipRect(ImVec2(v.plot_x0 - std::round(5.0f * u), v.plot_y0), ImVec2(v.plot_x1, v.plot_y1 + 1.0f), true);
+    for (int o = static_cast<int>(std::ceil(v.cents_lo / 1200.0));
+         o <= static_cast<int>(std::floor(v.cents_hi / 1200.0)); ++o) {
+        const float ly = std::round(v.y_of(1200.0 * o)) + 0.5f;
+        dl->AddLine(ImVec2(v.plot_x0, ly), ImVec2(v.plot_x1, ly), palette::kGrid, 1.0f);
+        draw_text(dl, FontFace::body, ImVec2(v.plot_x0 - std::round(4.6f * u), ly - 0.55f * u), palette::kTextDim,
+                  pitch::format_trimmed(d.ref_hz * std::exp2(o), 1) + " Hz");
+    }
+    dl->PopClipRect();
+    dl->PushClipRect(ImVec2(v.plot_x0, v.plot_y0), ImVec2(v.plot_x1, v.plot_y1), true);
+    draw_trace(dl, d.low_trace, palette::with_alpha(palette::kTraceLine, 150));
+    draw_trace(dl, d.high_trace, palette::kTraceLine);
+    const double in_tune = app.settings().in_tune_cents;
+    const float r = std::round(0.22f * u);
+    for (std::size_t i = 0; i < d.dyads.size(); ++i) {
+        const pitch::DyadResult& y = d.dyads[i];
+        if (y.end_s < v.t0_s || y.start_s > v.t1_s) continue;
+        ReviewMarkView m;
+        m.note = static_cast<int>(i);
+        m.x0 = v.x_of(y.start_s);
+        m.x1 = v.x_of(y.end_s);
+        // The judged voice (coloured) and the other: the upper over the lower, or, when a drone was one of the two,
+        // the other voice over the drone's root (the reference), which may lie below it.
+        const bool drone_pair = d.drone_hz > 0.0;
+        m.cents = drone_pair ? y.interval_cents : 1200.0 * std::log2(y.f_high_hz / d.ref_hz);
+        m.low_cents =
+            drone_pair ? 1200.0 * std::log2(d.drone_hz / d.ref_hz) : 1200.0 * std::log2(y.f_low_hz / d.ref_hz);
+        m.y = std::round(v.y_of(m.cents));
+        m.y_low = std::round(v.y_of(m.low_cents));
+        m.dev_cents = y.dev_cents;
+        m.colour = std::isfinite(y.dev_cents) ? tuning_colour(tuning_of(y.dev_cents, in_tune)) : palette::kTextDim;
+        const bool sel = static_cast<int>(i) == selected_;
+        if (std::isfinite(y.target_cents)) {
+            const float ty = std::round(v.y_of(drone_pair ? y.target_cents : m.low_cents + y.target_cents)) + 0.5f;
+            dl->AddLine(ImVec2(m.x0, ty), ImVec2(m.x1, ty), sel ? palette::kCurrentTarget : palette::kOtherTarget,
+                        sel ? 2.0f : 1.0f);
+        }
+        dl->AddRectFilled(ImVec2(m.x0, m.y_low - 0.5f * r), ImVec2(m.x1, m.y_low + 0.5f * r), palette::kTextDim);
+        draw_mark(dl, m, std::min(m.y, m.y_low), std::max(m.y, m.y_low));
+    }
+    dl->PopClipRect();
+}
+
+// The selected interval: its deviation (wide, narrow), the target, both voices, spread and beat rates.
+float ReviewScreen::draw_duo_detail(AppState& app, ImDrawList* dl, float x, float y, float w) {
+    const float u = ui_unit();
+    const float pad = std::round(0.6f * u);
+    const TwoVoiceAnalysis& a = take_->duo;
+    const pitch::DyadResult& d = a.dyads[static_cast<std::size_t>(selected_)];
+    float ty = y + pad;
+    char head[128];
+    std::snprintf(head, sizeof head, "Interval %d of %zu   %.2f - %.2f s", selected_ + 1, a.dyads.size(), d.start_s,
+                  d.end_s);
+    draw_text(dl, FontFace::bold, ImVec2(x + pad, ty), palette::kTextDim, head);
+    ty += std::round(1.5f * u);
+    std::string big = "between targets", against;
+    std::uint32_t colour = palette::kTextDim;
+    const double in_tune = app.settings().in_tune_cents;
+    if (std::isfinite(d.dev_cents)) {
+        colour = tuning_colour(tuning_of(d.dev_cents, in_tune));
+        big = signed_text(d.dev_cents, 1) + " c " +
+              (std::fabs(d.dev_cents) <= in_tune ? "in tune"
+               : d.dev_cents > 0.0               ? "wide"
+                                                 : "narrow");
+        against = "against " + target_text(d.target_index);
+    }
+    draw_text(dl, FontFace::large, ImVec2(x + pad, ty), colour, big);
+    const float big_w = text_size(FontFace::large, big).x;
+    draw_text(dl, FontFace::body, ImVec2(x + pad + big_w + u, ty + 0.5f * font_px(FontFace::large) - 0.5f * u),
+              palette::kText, fit_text(FontFace::body, against, w - 3 * pad - big_w - u));
+    ty += std::round(font_px(FontFace::large) + 0.4f * u);
+    // One line of facts: the voices, the interval between them (upper over lower), its spread, the beat.
+    std::string facts = "voices " + pitch::format_trimmed(d.f_low_hz, 2) + " and " +
+                        pitch::format_trimmed(d.f_high_hz, 2) + " Hz   interval " +
+                        pitch::format_trimmed(1200.0 * std::log2(d.f_high_hz / d.f_low_hz), 1) + " c   spread " +
+                        pitch::format_trimmed(d.spread_cents, 1) + " c";
+    if (std::isfinite(d.measured_beat_hz))
+        facts += "   beat " + pitch::format_trimmed(d.measured_beat_hz, 2) + " Hz measured";
+    else if (std::isfinite(d.predicted_beat_hz))
+        facts += "   beat " + pitch::format_trimmed(d.predicted_beat_hz, 2) + " Hz predicted (partials " +
+                 std::to_string(d.partial_low) + ":" + std::to_string(d.partial_high) + ")";
+    draw_text(dl, FontFace::body, ImVec2(x + pad, ty), palette::kTextDim, fit_text(FontFace::body, facts, w - 2 * pad));
+    ty += std::round(1.8f * u);
+    return ty;
+}
+
 void ReviewScreen::draw_plot(AppState& app, ImDrawList* dl, float x, float y, float w, float h) {
     const float u = ui_unit();
     draw_panel(dl, x, y, w, h);
     view_.open = false;
     view_.marks.clear();
+    view_.reading = !opening_.empty();
+    if (!opening_.empty()) {
+        draw_text(dl, FontFace::body, ImVec2(x + u, y + u), palette::kTextDim,
+                  fit_text(FontFace::body, "reading " + std::filesystem::path(opening_).filename().string() + "\u2026",
+                           w - 2 * u));
+        return;
+    }
     if (!take_) {
         draw_text(dl, FontFace::body, ImVec2(x + u, y + u), palette::kTextDim, "no take open");
         return;
@@ -372,6 +617,18 @@ void ReviewScreen::draw_plot(AppState& app, ImDrawList* dl, float x, float y, fl
     // Cents range: the notes and the voiced trace, with a margin.
     double lo = INFINITY, hi = -INFINITY;
     for (const auto& n : a.notes) lo = std::min(lo, n.cents_above_root), hi = std::max(hi, n.cents_above_root);
+    if (take_->voices == 2) {  // both voices, in cents above the reference
+        const TwoVoiceAnalysis& d = take_->duo;
+        for (const auto& y : d.dyads) {
+            lo = std::min(lo, 1200.0 * std::log2(y.f_low_hz / d.ref_hz));
+            hi = std::max(hi, 1200.0 * std::log2(y.f_high_hz / d.ref_hz));
+        }
+        for (const auto* t : {&d.low_trace, &d.high_trace})
+            if (!std::isfinite(lo))
+                for (std::size_t i = 0; i < t->size(); ++i)
+                    if ((*t)[i].frames > 0)
+                        lo = std::min(lo, (*t)[i].mean_cents), hi = std::max(hi, (*t)[i].mean_cents);
+    }
     if (!std::isfinite(lo))
         for (std::size_t i = 0; i < a.trace.size(); ++i)
             if (a.trace[i].frames > 0)
@@ -392,6 +649,11 @@ void ReviewScreen::draw_plot(AppState& app, ImDrawList* dl, float x, float y, fl
     view_.cents_hi = hi;
     view_.selected = selected_;
     const ReviewView& v = view_;
+    if (take_->voices == 2) {
+        draw_duo(app, dl);
+        draw_time_axis(dl);
+        return;
+    }
     dl->PushClipRect(ImVec2(x, v.plot_y0), ImVec2(v.plot_x1, v.plot_y1 + 1.0f), true);
     // Target lines in every octave in view, labelled at the left where a label fits: the targets the notes are
     // judged against first, then the others.
@@ -435,42 +697,7 @@ void ReviewScreen::draw_plot(AppState& app, ImDrawList* dl, float x, float y, fl
     }
     dl->PopClipRect();
     dl->PushClipRect(ImVec2(v.plot_x0, v.plot_y0), ImVec2(v.plot_x1, v.plot_y1), true);
-    // The trace: bucket means joined, broken at gaps. Where several buckets share a pixel column (a long take
-    // seen whole), the column's lowest and highest means are joined instead, so the lines drawn never exceed the
-    // plot's width in pixels and every excursion still shows.
-    bool pen = false;
-    ImVec2 last;
-    int col = INT_MIN;
-    float col_lo = 0.0f, col_hi = 0.0f;
-    auto flush = [&] {
-        if (col == INT_MIN) return;
-        const float cx = static_cast<float>(col) + 0.5f;
-        if (col_hi - col_lo >= 1.0f) dl->AddLine(ImVec2(cx, col_lo), ImVec2(cx, col_hi), palette::kTraceLine, 1.5f);
-        const ImVec2 q(cx, 0.5f * (col_lo + col_hi));
-        if (pen) dl->AddLine(last, q, palette::kTraceLine, 1.5f);
-        last = q;
-        pen = true;
-        col = INT_MIN;
-    };
-    for (std::size_t i = 0; i < a.trace.size(); ++i) {
-        const pitch::TracePoint& p = a.trace[i];
-        if (p.t_s < v.t0_s - a.trace.bucket_s() || p.t_s > v.t1_s + a.trace.bucket_s() || p.frames == 0) {
-            flush();
-            pen = false;
-            continue;
-        }
-        const float px = v.x_of(p.t_s), py = v.y_of(p.mean_cents);
-        const int c = static_cast<int>(std::floor(px));
-        if (c != col) {
-            flush();
-            col = c;
-            col_lo = col_hi = py;
-        } else {
-            col_lo = std::min(col_lo, py);
-            col_hi = std::max(col_hi, py);
-        }
-    }
-    flush();
+    draw_trace(dl, a.trace, palette::kTraceLine);
     // The notes: a bar at each centre, coloured by tuning, its deviation above it.
     const double in_tune = app.settings().in_tune_cents;
     for (std::size_t i = 0; i < a.notes.size(); ++i) {
@@ -484,66 +711,21 @@ void ReviewScreen::draw_plot(AppState& app, ImDrawList* dl, float x, float y, fl
         m.cents = n.cents_above_root;
         m.dev_cents = n.dev_cents;
         m.colour = std::isfinite(n.dev_cents) ? tuning_colour(tuning_of(n.dev_cents, in_tune)) : palette::kTextDim;
-        const float r = std::round(0.22f * u);
-        dl->AddRectFilled(ImVec2(m.x0, m.y - r), ImVec2(m.x1, m.y + r), m.colour);
-        if (static_cast<int>(i) == selected_)
-            dl->AddRect(ImVec2(m.x0 - 3, m.y - r - 3), ImVec2(m.x1 + 3, m.y + r + 3), palette::kCurrentTarget, 0, 0,
-                        2.0f);
-        const std::string label = std::isfinite(n.dev_cents) ? signed_text(n.dev_cents, 1) : "between";
-        const ImVec2 ls = text_size(FontFace::bold, label);
-        if (ls.x < m.x1 - m.x0 + 2.0f * u) {
-            const float cx = std::round(std::clamp(0.5f * (m.x0 + m.x1), v.plot_x0 + 0.5f * ls.x + 4.0f,
-                                                   v.plot_x1 - 0.5f * ls.x - 4.0f)),
-                        ly = std::round(m.y - r - 0.35f * u - ls.y);
-            dl->AddRectFilled(ImVec2(cx - 0.5f * ls.x - 4, ly - 1), ImVec2(cx + 0.5f * ls.x + 4, ly + ls.y + 1),
-                              palette::with_alpha(palette::kPanel, 225), 3.0f);
-            draw_text_centred(dl, FontFace::bold, cx, ly, m.colour, label);
-        }
-        // A click on the bar selects the note.
-        if (ImGui::IsMouseClicked(0)) {
-            const ImVec2 mp = ImGui::GetIO().MousePos;
-            if (mp.x >= m.x0 && mp.x <= m.x1 && std::fabs(mp.y - m.y) <= 0.8f * u) selected_ = m.note;
-        }
-        view_.marks.push_back(m);
+        draw_mark(dl, m, m.y, m.y);
     }
     dl->PopClipRect();
-    // The time axis: a tick per second or per a round step.
-    const double steps[] = {0.1, 0.2, 0.5, 1, 2, 5, 10, 15, 30, 60, 120, 300};
-    double step = steps[0];
-    for (const double s : steps)
-        if (span_s_ / s <= 10.0) {
-            step = s;
-            break;
-        }
-    for (double t = std::ceil(v.t0_s / step) * step; t <= v.t1_s + 1e-9; t += step) {
-        const float tx = std::round(v.x_of(t));
-        dl->AddLine(ImVec2(tx, v.plot_y1), ImVec2(tx, v.plot_y1 + 0.3f * u), palette::kGrid, 1.0f);
-        draw_text_centred(dl, FontFace::body, tx, v.plot_y1 + 0.35f * u, palette::kTextDim,
-                          pitch::format_trimmed(t, step < 1.0 ? 1 : 0) + " s");
-    }
+    draw_time_axis(dl);
 }
 
 // ---------------------------------------------------------------------------
 // [SECTION] Detail
 // ---------------------------------------------------------------------------
 
-void ReviewScreen::draw_detail(AppState& app, ImDrawList* dl, float x, float y, float w, float h) {
+// The selected note's judgement and facts; returns where the buttons go.
+float ReviewScreen::draw_note_detail(AppState& app, ImDrawList* dl, float x, float y, float w) {
     const float u = ui_unit();
-    draw_panel(dl, x, y, w, h);
     const float pad = std::round(0.6f * u);
-    if (!take_ || !take_->error.empty()) return;
     const OneVoiceAnalysis& a = take_->analysis;
-    if (a.notes.empty()) {
-        draw_text(
-            dl, FontFace::body, ImVec2(x + pad, y + pad), palette::kTextDim,
-            fit_text(FontFace::body, nothing_found_words(a.heard.loudest_dbfs, a.heard.snr_db, false), w - 2 * pad));
-        return;
-    }
-    if (selected_ < 0) {
-        draw_text(dl, FontFace::body, ImVec2(x + pad, y + pad), palette::kTextDim,
-                  "choose a note: click it, or Left / Right");
-        return;
-    }
     const auto& n = a.notes[static_cast<std::size_t>(selected_)];
     const auto& j = take_->analysis.judged[static_cast<std::size_t>(selected_)];
     float ty = y + pad;
@@ -584,8 +766,44 @@ void ReviewScreen::draw_detail(AppState& app, ImDrawList* dl, float x, float y, 
                  ":" + std::to_string(n.partial_voice) + ", " + beat_heard_word(n.beat_hz, a.drone_hz > 0.0) + ")";
     draw_text(dl, FontFace::body, ImVec2(x + pad, ty), palette::kTextDim, fit_text(FontFace::body, facts, w - 2 * pad));
     ty += std::round(1.8f * u);
+    return ty;
+}
+
+void ReviewScreen::draw_detail(AppState& app, ImDrawList* dl, float x, float y, float w, float h) {
+    const float u = ui_unit();
+    draw_panel(dl, x, y, w, h);
+    const float pad = std::round(0.6f * u);
+    if (!take_ || !take_->error.empty()) return;
+    const HeardLevels& heard = take_->voices == 2 ? take_->duo.heard : take_->analysis.heard;
+    if (item_count(*take_) == 0) {
+        draw_text(dl, FontFace::body, ImVec2(x + pad, y + pad), palette::kTextDim,
+                  fit_text(FontFace::body, nothing_found_words(heard.loudest_dbfs, heard.snr_db, take_->voices == 2),
+                           w - 2 * pad));
+        return;
+    }
+    if (selected_ < 0) {
+        draw_text(dl, FontFace::body, ImVec2(x + pad, y + pad), palette::kTextDim,
+                  "choose a note: click it, or Left / Right");
+        return;
+    }
+    const float ty = take_->voices == 2 ? draw_duo_detail(app, dl, x, y, w) : draw_note_detail(app, dl, x, y, w);
+    const bool has_target =
+        std::isfinite(take_->voices == 2 ? take_->duo.dyads[static_cast<std::size_t>(selected_)].target_cents
+                                         : take_->analysis.notes[static_cast<std::size_t>(selected_)].target_cents);
     ImGui::SetCursorScreenPos(ImVec2(x + pad, ty));
-    ImGui::BeginDisabled(!std::isfinite(n.target_cents));
+    if (ImGui::Button("Hear it (L)")) hear(app, ClipKind::note);
+    ImGui::SameLine();
+    if (ImGui::Button("with its drone (D)")) hear(app, ClipKind::with_drone);
+    ImGui::SameLine();
+    ImGui::BeginDisabled(!has_target);
+    if (ImGui::Button("then its target (B)")) hear(app, ClipKind::then_target);
+    ImGui::EndDisabled();
+    ImGui::SameLine();
+    ImGui::BeginDisabled(!app.clip_playing());
+    if (ImGui::Button("Stop (S)")) app.stop_clip();
+    ImGui::EndDisabled();
+    ImGui::SetCursorScreenPos(ImVec2(x + pad, ImGui::GetCursorScreenPos().y));
+    ImGui::BeginDisabled(!has_target);
     if (ImGui::Button("Sound the target (T)")) sound(app, true);
     ImGui::EndDisabled();
     ImGui::SameLine();
@@ -606,7 +824,7 @@ void ReviewScreen::draw_detail(AppState& app, ImDrawList* dl, float x, float y, 
             std::filesystem::remove(take_->path, ec);
             std::filesystem::remove(take_sidecar_path(take_->path), ec);
             app.post("deleted " + take_->title);
-            rows_.erase(take_->path);
+            worker_->forget(take_->path);
             take_.reset();
             selected_ = -1;
             list_takes_now();
@@ -627,7 +845,7 @@ void ReviewScreen::draw_summary(ImDrawList* dl, float x, float y, float w, float
     // targets outnumber the panel's two-line rows, one line each; when even those do not fit, a last line says how
     // many are not shown, so no target disappears silently.
     const float col = std::round(4.5f * u);
-    const auto& rows = take_->analysis.summary;
+    const auto& rows = take_summary(*take_);
     const float room = y + h - pad - ty;
     const bool compact = static_cast<float>(rows.size()) * std::round(2.6f * u) > room;
     const float row_h = compact ? std::round(1.4f * u) : std::round(2.6f * u);
@@ -640,10 +858,11 @@ void ReviewScreen::draw_summary(ImDrawList* dl, float x, float y, float w, float
                   fit_text(FontFace::bold, target_text(row.target_index), col - 0.3f * u));
         std::string more = std::to_string(row.count) + (row.count == 1 ? " note" : " notes");
         if (row.count > 1) more += ", spread " + pitch::format_trimmed(row.spread_cents, 1) + " c";
-        const std::string mean = "mean " + off_words(row.mean_dev_cents, false);
+        const std::string mean = "mean " + off_words(row.mean_dev_cents, take_->voices == 2);
         if (compact) {
             draw_text(dl, FontFace::bold, ImVec2(x + pad + col, ty), tuning_colour(tn),
-                      fit_text(FontFace::bold, off_words(row.mean_dev_cents, false) + " \xC2\xB7 " + more, w - 2 * pad - col));
+                      fit_text(FontFace::bold, off_words(row.mean_dev_cents, take_->voices == 2) + " \xC2\xB7 " + more,
+                               w - 2 * pad - col));
         } else {
             draw_text(dl, FontFace::bold, ImVec2(x + pad + col, ty), tuning_colour(tn),
                       fit_text(FontFace::bold, mean, w - 2 * pad - col));
@@ -667,18 +886,27 @@ void ReviewScreen::draw_summary(ImDrawList* dl, float x, float y, float w, float
 // ---------------------------------------------------------------------------
 
 void ReviewScreen::build(AppState& app, const ScreenArea& area, double) {
+    default_set_ = app.settings().target_set.empty() ? kDefaultSet : app.settings().target_set;
     if (!started_) {
         started_ = true;
+        wait_ = app.options().simulated;
+        std::filesystem::path cache;
+        try {
+            cache = takes_dir() / ".review-cache";
+        } catch (const std::exception&) {  // no data folder: nothing kept between runs
+        }
+        worker_ = std::make_unique<ReviewWorker>(cache);
+        if (app.options().review_note) {
+            select_when_open_ = *app.options().review_note - 1;
+            span_when_open_ = app.options().review_span_s.value_or(0.0);
+        }
         list_takes_now();
         if (!app.options().take.empty())
             open(app, app.options().take);
         else if (!takes_.empty())
             open(app, takes_.front().audio_path.string());
-        if (app.options().review_note)
-            select(*app.options().review_note - 1, app.options().review_span_s.value_or(0.0));
-    } else {
-        analyse_one_listed(app);
     }
+    take_opened(app);
     handle_keys(app);
     in_tune_cents_ = app.settings().in_tune_cents;
 
@@ -699,10 +927,24 @@ void ReviewScreen::build(AppState& app, const ScreenArea& area, double) {
     const float title_h = std::round(1.8f * u);
     if (take_) {
         std::string line = take_->title;
-        if (take_->error.empty())
+        if (take_->error.empty() && take_->voices == 2)
+            line += "   two voices   targets " + take_->set_name +
+                    (take_->duo.drone_hz > 0.0
+                         ? "   drone " + pitch::format_trimmed(take_->duo.drone_hz, 2) + " Hz, one of the two"
+                         : "");
+        else if (take_->error.empty())
             line += "   root " + pitch::format_trimmed(take_->analysis.root_hz, 2) + " Hz   targets " +
                     take_->set_name + (take_->expect.empty() ? "" : "   meant " + take_->expect);
-        draw_text(dl, FontFace::bold, ImVec2(rx, top + 0.2f * u), palette::kText, fit_text(FontFace::bold, line, rw));
+        // Any take may be read as one voice or as two (a double stop, a duet, a voice over its drone).
+        const char* as = take_->voices == 2 ? "Read as one voice" : "Read as two voices";
+        const float bw = ImGui::CalcTextSize(as).x + 2.0f * ImGui::GetStyle().FramePadding.x;
+        draw_text(dl, FontFace::bold, ImVec2(rx, top + 0.2f * u), palette::kText,
+                  fit_text(FontFace::bold, line, rw - bw - u));
+        ImGui::SetCursorScreenPos(ImVec2(rx + rw - bw, top));
+        if (ImGui::SmallButton(as)) {
+            voices_asked_ = take_->voices == 2 ? 1 : 2;
+            open(app, take_->path);
+        }
     }
     const float detail_h = std::round(std::clamp(0.36f * H, 10.0f * u, 12.5f * u));
     draw_plot(app, dl, rx, top + title_h, rw, H - title_h - detail_h - gap);

@@ -15,13 +15,16 @@ struct ReviewMarkView {
     int note = 0;              // index into the take's notes
     float x0 = 0, x1 = 0;      // pixels: the note's start and end
     float y = 0;               // pixels: its measured centre
-    double cents = 0.0;        // the centre, cents above the root
+    double cents = 0.0;        // the centre, cents above the root (two voices: the upper voice above the reference)
+    float y_low = 0;           // two voices: pixels of the lower voice
+    double low_cents = 0.0;    // two voices: the lower voice, cents above the reference
     double dev_cents = 0.0;    // against the judged target (NaN between targets)
     std::uint32_t colour = 0;  // the mark's colour
 };
 
 struct ReviewView {
     bool open = false;               // a take is open and analysed
+    bool reading = false;            // a take is being opened (read and analysed on the worker)
     std::string title;               // its file name
     float plot_x0 = 0, plot_x1 = 0;  // pixels of the plot's inner box
     float plot_y0 = 0, plot_y1 = 0;

@@ -693,7 +693,7 @@ bool AppState::refuse_in_drill(const char* what) {
     return true;
 }
 
-bool AppState::begin_drill(const audio::DroneSettings& drone) {
+bool AppState::begin_drill(const audio::DroneSettings& drone, const std::string& name) {
     if (caution_needed()) {
         post("Read the hearing caution and press \"I understand\" before starting a drill", true);
         return false;
@@ -706,6 +706,8 @@ bool AppState::begin_drill(const audio::DroneSettings& drone) {
     }
     if (!drill_drone_) drone_on_before_drill_ = drone_on_;
     drill_drone_ = drone;
+    drill_name_ = name.empty() ? options_.drill : name;
+    if (take_) take_->set_drill(drill_name_);  // a take already recording is of this drill from here
     if (engine_) engine_->set_root_hz(engine_root_hz());
     apply_readings();
     if (!drone_on_)
@@ -752,6 +754,22 @@ bool AppState::sound_tone(double freq_hz, double dur_s) {
     }
     return drone_heard_;
 }
+
+bool AppState::play_clip(std::span<const float> samples, double rate_hz) {
+    if (caution_needed() || !engine_) return false;
+    try {
+        return engine_->play_clip(samples, rate_hz, true) && drone_heard_;
+    } catch (const Error& e) {
+        post(e.what(), true);
+        return false;
+    }
+}
+
+void AppState::stop_clip() {
+    if (engine_) engine_->stop_clip();
+}
+
+bool AppState::clip_playing() const { return engine_ && engine_->clip_playing(); }
 
 bool AppState::sing_script(std::vector<audio::DemoNote> notes) {
     if (!options_.demo) return false;
@@ -876,7 +894,8 @@ void AppState::start_recording() {
     c.targets = settings_.target_set;
     if (settings_.choice == TargetChoice::fixed && !set_.targets.empty())
         c.target = set_.targets[static_cast<std::size_t>(fixed_index_)].interval.str();
-    if (drill_drone_) c.drill = options_.drill;
+    if (drill_drone_) c.drill = drill_name_;
+    if (!group_ && two_voices()) c.voices = 2;
     int channels = 1;
     if (group_) {
         channels = static_cast<int>(group_->players.size());

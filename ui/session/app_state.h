@@ -18,6 +18,7 @@
 #include <deque>
 #include <memory>
 #include <optional>
+#include <span>
 #include <string>
 #include <vector>
 
@@ -174,13 +175,19 @@ public:
     // The drill's drone (root, fifth, timbre; its level never above the
     // user's) replaces the settings' and starts with the usual fade. False
     // (and a message) before the caution is acknowledged.
-    bool begin_drill(const audio::DroneSettings& drone);
+    // name: the drill as load_drill finds it again (a built-in name or a file), for a take's sidecar.
+    bool begin_drill(const audio::DroneSettings& drone, const std::string& name = "");
     void set_drill_targets(const pitch::TargetSet& targets);  // readings against these while the drill runs
     void end_drill();                                         // the settings' root, targets and drone state again
     bool drill_active() const { return drill_drone_.has_value(); }
     // The reference voice sounds freq_hz for dur_s. False when it cannot be
     // heard (caution not acknowledged, no engine, or no output device).
     bool sound_tone(double freq_hz, double dur_s);
+    // A recorded clip (RMS 1 = the drone's level) played once through the output (audio/engine.h, play_clip), the
+    // live drone hushed meanwhile. False when it cannot be heard, as for sound_tone.
+    bool play_clip(std::span<const float> samples, double rate_hz);
+    void stop_clip();
+    bool clip_playing() const;
     // Demo only: the performer sings these notes, from stream time 0 (the
     // engine reopens). False without the demo. An empty list: her usual round.
     bool sing_script(std::vector<audio::DemoNote> notes);
@@ -226,6 +233,7 @@ private:
     std::unique_ptr<audio::AudioSystem> system_;
     bool system_tried_ = false;
     std::unique_ptr<audio::Engine> engine_;
+    std::string drill_name_;                               // the drill running (begin_drill), for takes
     std::unique_ptr<audio::DemoPerformer> sim_performer_;  // simulated time: what the engine's demo would play
     std::vector<float> sim_block_;
     double sim_due_s_ = 0.0;

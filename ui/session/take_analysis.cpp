@@ -305,6 +305,12 @@ TwoVoiceAnalysis analyze_two_voices(audio::SoundReader& reader, const AnalysisRe
         out.hop_s = one.hop_s;
         out.facts = one.facts;
         out.heard = one.heard;
+        out.ref_hz = one.root_hz;
+        if (req.keep_trace)
+            for (std::size_t i = 0; i < one.trace.size(); ++i) {  // the drone is the low voice, all along
+                out.low_trace.push(one.trace[i].t_s, 1200.0 * std::log2(one.drone_hz / one.root_hz), true);
+                out.high_trace.push(one.trace[i].t_s, one.trace[i].mean_cents, one.trace[i].frames > 0);
+            }
         out.trace = std::move(one.trace);
         out.short_dyads_dropped = one.short_notes_dropped;
         const pitch::AudibleRange range = pitch::SegmentConfig{}.audible;
@@ -318,6 +324,7 @@ TwoVoiceAnalysis analyze_two_voices(audio::SoundReader& reader, const AnalysisRe
         }
         return out;
     }
+    out.ref_hz = req.root_hz.value_or(55.0);
     pitch::TwoVoiceConfig tc;
     tc.sample_rate_hz = rate;
     tc.silence_dbfs = kSilenceDbfs;
@@ -340,6 +347,8 @@ TwoVoiceAnalysis analyze_two_voices(audio::SoundReader& reader, const AnalysisRe
             if (req.keep_trace) {
                 const bool v = frame.voices == 2 && frame.confidence >= dc.min_confidence;
                 out.trace.push(frame.t_s, v ? frame.interval_cents : 0.0, v);
+                out.low_trace.push(frame.t_s, v ? 1200.0 * std::log2(frame.f_low_hz / out.ref_hz) : 0.0, v);
+                out.high_trace.push(frame.t_s, v ? 1200.0 * std::log2(frame.f_high_hz / out.ref_hz) : 0.0, v);
             }
             if (seg.push(frame, dyad)) keep(dyad);
         }
@@ -371,6 +380,7 @@ TakeDefaults take_defaults(const std::string& audio_path) {
     d.a4_hz = take.a4_hz;
     if (take.root_hz > 0.0) d.root = take.root.empty() ? pitch::format_trimmed(take.root_hz, 4) : take.root;
     d.expect = take.target;
+    d.voices = take.voices;
     // A hold drill sung in sequence: its targets in order (a shuffled one's order is not kept, so none is expected).
     if (d.expect.empty() && !take.drill.empty()) {
         const Drill drill = load_drill(take.drill);
@@ -403,7 +413,8 @@ std::vector<int> expected_targets(const std::string& list, pitch::TargetSet& set
 // [SECTION] A take reviewed
 // ---------------------------------------------------------------------------
 
-ReviewedTake review_take(const std::string& path, const std::string& default_set) {
+ReviewedTake review_take(const std::string& path, const std::string& default_set, const ProgressFn& progress,
+                         int voices) {
     ReviewedTake r;
     r.path = path;
     r.title = std::filesystem::path(path).filename().string();
@@ -421,10 +432,15 @@ ReviewedTake review_take(const std::string& path, const std::string& default_set
         req.keep_trace = true;
         if (!r.expect.empty()) req.expected = expected_targets(r.expect, r.set);
         req.targets = r.set;
-        r.analysis = analyze_one_voice(req);
+        r.voices = voices == 0 ? d.voices : voices;
+        if (r.voices == 2)
+            r.duo = analyze_two_voices(req, progress);
+        else
+            r.analysis = analyze_one_voice(req, progress);
     } catch (const std::exception& e) {
         r.error = e.what();
         r.analysis = OneVoiceAnalysis{};
+        r.duo = TwoVoiceAnalysis{};
     }
     return r;
 }

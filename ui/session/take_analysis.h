@@ -74,6 +74,9 @@ struct TwoVoiceAnalysis {
     HeardLevels heard;
     pitch::SignalFacts facts;
     pitch::DecimatedTrace trace;  // interval in cents, high above low (when keep_trace)
+    // Each voice (when keep_trace), in cents above ref_hz: the root given, or the drone found, else 55 Hz (A1).
+    double ref_hz = 55.0;
+    pitch::DecimatedTrace low_trace, high_trace;
 };
 
 // Throws Error: file problems (audio/soundfile.h), "FILE: silent ...", and
@@ -100,6 +103,7 @@ struct TakeDefaults {
     std::string targets;          // its target set ("" when it names none)
     std::string root;             // its root as typed ("A2"), else in Hz; "" when unknown
     std::optional<double> a4_hz;  // its A4
+    int voices = 1;               // 2: recorded as two voices
     std::string expect;  // what was meant: its fixed target, or a hold drill's targets in sequence ("7/5,10/7")
 };
 // Throws Error (a sidecar that does not read, a drill that does not load).
@@ -113,6 +117,7 @@ std::vector<int> expected_targets(const std::string& list, pitch::TargetSet& set
 
 // One voice reviewed the way `analyze` does it by default, with the trace kept (the Review screen).
 struct ReviewedTake {
+    int voices = 1;        // 2: reviewed as two voices (duo below; analysis stays empty)
     std::string path;      // the sound file
     std::string title;     // its file name
     std::string set_name;  // the target set analysed against
@@ -120,9 +125,13 @@ struct ReviewedTake {
     std::string expect;    // what was meant ("" = nearest)
     double a4_hz = 440.0;
     OneVoiceAnalysis analysis;
+    TwoVoiceAnalysis duo;
     std::string error;  // one line when it could not be analysed (the rest is then empty)
 };
-// Never throws: a failure is kept in `error`. default_set is used when no sidecar names one.
-ReviewedTake review_take(const std::string& path, const std::string& default_set);
+// Never throws: a failure is kept in `error`. default_set is used when no sidecar names one. Whatever `progress`
+// throws that is not a std::exception (a cancellation) goes through.
+// voices: 1 or 2, or 0 for what the sidecar says (one voice without one).
+ReviewedTake review_take(const std::string& path, const std::string& default_set, const ProgressFn& progress = {},
+                         int voices = 0);
 
 }  // namespace beatless::ui

@@ -125,6 +125,7 @@ std::string take_sidecar_text(const TakeInfo& t) {
       << "targets = " << toml_string(t.targets) << "\n";
     if (!t.target.empty()) o << "target = " << toml_string(t.target) << "\n";
     if (!t.drill.empty()) o << "drill = " << toml_string(t.drill) << "\n";
+    if (t.voices != 1) o << "voices = " << t.voices << "\n";
     if (t.duration_s) o << "duration_s = " << num(*t.duration_s, 6) << "\n";
     o << "complete = " << (t.complete ? "true" : "false") << "\n";
     o << "\n[drone]\n"
@@ -132,8 +133,11 @@ std::string take_sidecar_text(const TakeInfo& t) {
       << "timbre = " << toml_string(audio::timbre_name(t.drone.timbre)) << "\n"
       << "level_dbfs = " << num(t.drone.level_dbfs, 3) << "\n"
       << "fifth = " << (t.drone.fifth ? "true" : "false") << "\n"
-      << "octave = " << (t.drone.octave ? "true" : "false") << "\n"
-      << "events = [";
+      << "octave = " << (t.drone.octave ? "true" : "false") << "\n";
+    if (t.drone.phases)
+        o << "root_phase_rad = " << num(t.drone.phases->root_rad, 12) << "\n"
+          << "fifth_phase_rad = " << num(t.drone.phases->fifth_rad, 12) << "\n";
+    o << "events = [";
     const std::size_t n_events = std::min(t.drone.events.size(), kTakeMaxDroneEvents);
     for (std::size_t i = 0; i < n_events; ++i) {
         const DroneEvent& e = t.drone.events[i];
@@ -192,7 +196,7 @@ TakeInfo parse_take_sidecar(std::string_view text, const std::string& source) {
     const toml::table& top = doc.table;
     check_keys(doc, top,
                {"kind", "format", "started", "rate_hz", "channels", "device", "screen", "root_hz", "root", "a4_hz",
-                "targets", "target", "drill", "duration_s", "complete", "drone", "players"},
+                "targets", "target", "drill", "voices", "duration_s", "complete", "drone", "players"},
                "");
     TakeInfo t;
     t.format = require_int(doc, top, "format", 1, 1000);
@@ -212,12 +216,15 @@ TakeInfo parse_take_sidecar(std::string_view text, const std::string& source) {
     t.targets = optional_string(doc, top, "targets");
     t.target = optional_string(doc, top, "target");
     t.drill = optional_string(doc, top, "drill");
+    if (top["voices"]) t.voices = require_int(doc, top, "voices", 1, 2);
     if (top["duration_s"]) t.duration_s = require_number(doc, top, "duration_s", 0.0, 1e7);
     t.complete = optional_bool(doc, top, "complete", false);
     if (const auto d = top["drone"]) {
         const toml::table* dt = d.as_table();
         if (!dt) throw Error(where(doc, d) + "`drone`: must be a [drone] table, not " + describe_type(*d.node()));
-        check_keys(doc, *dt, {"on", "timbre", "level_dbfs", "fifth", "octave", "events"}, "[drone]");
+        check_keys(doc, *dt,
+                   {"on", "timbre", "level_dbfs", "fifth", "octave", "root_phase_rad", "fifth_phase_rad", "events"},
+                   "[drone]");
         t.drone.on = optional_bool(doc, *dt, "on", false);
         if (const auto tv = (*dt)["timbre"]) {
             try {
@@ -229,6 +236,9 @@ TakeInfo parse_take_sidecar(std::string_view text, const std::string& source) {
         t.drone.level_dbfs = optional_number(doc, *dt, "level_dbfs", -30.0);
         t.drone.fifth = optional_bool(doc, *dt, "fifth", false);
         t.drone.octave = optional_bool(doc, *dt, "octave", false);
+        if ((*dt)["root_phase_rad"] || (*dt)["fifth_phase_rad"])
+            t.drone.phases = audio::DronePhases{require_number(doc, *dt, "root_phase_rad", 0.0, 7.0),
+                                                require_number(doc, *dt, "fifth_phase_rad", 0.0, 7.0), true};
         if (const auto ev = (*dt)["events"]) {
             const toml::array* a = ev.as_array();
             if (!a) throw Error(where(doc, ev) + "`events`: must be a list, not " + describe_type(*ev.node()));
@@ -287,6 +297,10 @@ TakeInfo read_take_sidecar(const fs::path& sidecar) {
 // [SECTION] Drone
 
 std::vector<float> regenerate_drone(const TakeInfo& take, std::int64_t len_frames) {
+    return regenerate_drone(take, 0, len_frames);
+}
+
+std::vector<float> regenerate_drone(const TakeInfo& take, std::int64_t from_frame, std::int64_t len_frames) {
     audio::DroneSettings ds;
     ds.on = take.drone.on;
     ds.root_hz = take.root_hz;
@@ -296,13 +310,18 @@ std::vector<float> regenerate_drone(const TakeInfo& take, std::int64_t len_frame
     ds.octave = take.drone.octave;
     audio::check_drone_settings(ds);
     audio::Drone drone(take.rate_hz);
-    drone.set(ds);
-    std::vector<float> out(static_cast<std::size_t>(std::max<std::int64_t>(0, len_frames)), 0.0f);
+    if (ds.on && take.drone.phases)
+        drone.start_sounding(ds, *take.drone.phases);  // already sounding when the take began
+    else
+        drone.set(ds);
+    // Frames before from_frame are rendered into a scratch block and dropped, so the phases run on as they did.
+    const auto skip = static_cast<std::size_t>(std::max<std::int64_t>(0, from_frame));
+    std::vector<float> out(static_cast<std::size_t>(std::max<std::int64_t>(0, len_frames)), 0.0f), scratch(256);
     std::size_t next = 0, at = 0;
     const auto frame_of = [&](const DroneEvent& e) {
         return static_cast<std::size_t>(std::llround(e.t_s * take.rate_hz));
     };
-    while (at < out.size()) {
+    while (at < skip + out.size()) {
         while (next < take.drone.events.size() && frame_of(take.drone.events[next]) <= at) {
             const DroneEvent& e = take.drone.events[next++];
             if (e.what == DroneEventKind::root)
@@ -312,9 +331,12 @@ std::vector<float> regenerate_drone(const TakeInfo& take, std::int64_t len_frame
             audio::check_drone_settings(ds);
             drone.set(ds);
         }
-        std::size_t end = std::min(out.size(), at + 256);
+        std::size_t end = std::min(at < skip ? skip : skip + out.size(), at + 256);
         if (next < take.drone.events.size()) end = std::min(end, std::max(at + 1, frame_of(take.drone.events[next])));
-        drone.render(std::span<float>(out.data() + at, end - at));
+        if (at < skip)
+            drone.render(std::span<float>(scratch.data(), end - at));
+        else
+            drone.render(std::span<float>(out.data() + (at - skip), end - at));
         at = end;
     }
     return out;

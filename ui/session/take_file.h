@@ -5,6 +5,7 @@
 // Thread: any (no shared state). Throws Error with one line naming the file.
 #pragma once
 
+#include "audio/drone.h"
 #include "audio/timbre.h"
 #include "ui/session/paths.h"
 
@@ -41,6 +42,9 @@ struct TakeDrone {
     bool fifth = false;                           // 3/2 added
     bool octave = false;                          // 2/1 added
     std::vector<DroneEvent> events;               // changes, in time order
+    // The phases of the drone's root and fifth at the take's first frame when it was already sounding then (its
+    // fade in long done): regenerate_drone starts from them. Absent: unknown (no output, or an older take).
+    std::optional<audio::DronePhases> phases;
 };
 
 // One player of an Ensemble take: which file channel is whose.
@@ -65,6 +69,7 @@ struct TakeInfo {
     std::string targets;                 // target set name or file path
     std::string target;                  // fixed target ("7/5"); "" = nearest
     std::string drill;                   // drill name; "" = none
+    int voices = 1;                      // 2: two voices in one input (a double stop, a duet), as --voices 2
     std::vector<TakePlayer> players;     // Ensemble: one per channel
     TakeDrone drone;                     // [drone]
     std::optional<double> duration_s;    // set when finalised
@@ -96,9 +101,12 @@ std::vector<TakeInfo> list_takes(const std::filesystem::path& dir, std::vector<s
 
 // The take's drone rendered again, mono at the take's rate, len_frames long: audio::Drone (the live synthesis and
 // limiter) set as the sidecar says at the start, each event applied at its frame, rendered in 256-frame blocks split
-// at the events. The partials, level and changes are the live drone's; a drone that sounded before the take began
-// had other phases and had finished its fade-in, which this one starts. Throws Error on a sidecar out of range.
+// at the events. The partials, level and changes are the live drone's; a drone already sounding when the take began
+// starts from its phases then, at its level (no fade in), when the sidecar has them (else it fades in from phase 0).
+// Throws Error on a sidecar out of range.
 std::vector<float> regenerate_drone(const TakeInfo& take, std::int64_t len_frames);
+// The same from frame from_frame on (the frames before it are rendered and dropped, so the phases are the same).
+std::vector<float> regenerate_drone(const TakeInfo& take, std::int64_t from_frame, std::int64_t len_frames);
 
 // What recover_takes did to one take.
 struct RecoveredTake {

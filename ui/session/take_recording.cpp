@@ -48,6 +48,7 @@ TakeRecording::TakeRecording(audio::Engine& engine, const std::filesystem::path&
     info_.targets = context.targets;
     info_.target = context.target;
     info_.drill = context.drill;
+    info_.voices = context.voices;
     info_.players = context.players;
     audio::TakeRecorderConfig rc = limits;
     rc.sample_rate_hz = rate_hz;
@@ -68,6 +69,8 @@ std::string TakeRecording::stop() {
     recorder_->stop();
     const double dur_s = static_cast<double>(recorder_->written_frames()) / info_.rate_hz;
     info_.drone = take_drone_from(recorder_->drone_changes(), info_.rate_hz);
+    const auto phases = engine_->drone_phases_at_tap();
+    if (info_.drone.on && phases && phases->settled) info_.drone.phases = phases;  // else it began with the take
     info_.complete = recorder_->finished_cleanly();
     if (info_.complete) info_.duration_s = dur_s;  // else unknown until recovered
     const std::string problem = recorder_->problem();

@@ -23,6 +23,7 @@ struct TakeContext {
     std::string targets;              // set name or file path
     std::string target;               // fixed target; "" = nearest
     std::string drill;                // drill name; "" = none
+    int voices = 1;                   // 2: two voices in one input
     std::vector<TakePlayer> players;  // Ensemble: the players on the take's channels
 };
 
@@ -43,6 +44,7 @@ public:
     bool stopped_early() const { return recorder_->stopped_early(); }
     double elapsed_s() const { return recorder_->elapsed_s(); }
     const TakeInfo& info() const { return info_; }
+    void set_drill(const std::string& name) { info_.drill = name; }  // written into the sidecar at stop()
     std::string name() const { return info_.audio_path.filename().string(); }
     const audio::TakeRecorder& recorder() const { return *recorder_; }
 
