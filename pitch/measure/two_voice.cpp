@@ -651,6 +651,14 @@ void TwoVoiceTracker::Impl::measure_beat(TwoVoiceFrame& f) {
         f.measured_beat_hz = 0.0;
         f.beat_source = BeatSource::slower_than_history;
     }
+    // A bow change, a note start or a burst of noise also moves the envelope: an envelope rate far from what the
+    // pitches predict (more than 0.3 Hz and 30 %, common practice) is not this pair's beat, and is not reported.
+    const double pr = f.predicted_beat_hz;
+    if (f.beat_source == BeatSource::envelope && std::isfinite(pr) &&
+        std::fabs(f.measured_beat_hz - pr) > std::max(0.3, 0.3 * pr)) {
+        f.measured_beat_hz = NAN;
+        f.beat_source = BeatSource::none;
+    }
 }
 
 // ---------------------------------------------------------------------------

@@ -40,7 +40,8 @@ struct TwoVoiceConfig {
 };
 
 enum class BeatSource {
-    none,                  // not measured (warming up, one voice, partials absent or out of range)
+    none,                  // not measured (warming up, one voice, partials absent or out of range, a note
+                           //   changing, or an envelope rate far from the predicted one: a bow change or noise)
     frequency_difference,  // the two coinciding partials are separate spectral peaks
     envelope,              // whole cycles of the shared partial's amplitude envelope
     slower_than_history,   // no whole beat within beat_history_s: measured_beat_hz = 0
@@ -77,7 +78,7 @@ struct TwoVoiceFrame {
     int partial_low = -1;            // p: harmonic of the low voice that coincides ...
     int partial_high = -1;           // q: ... with this harmonic of the high voice
     double predicted_beat_hz = NAN;  // |q f_high - p f_low|
-    double measured_beat_hz = NAN;   // from the partials themselves
+    double measured_beat_hz = NAN;   // from the partials themselves; NaN where it cannot be measured
     BeatSource beat_source = BeatSource::none;
     Blend blend = Blend::none;  // voices == 1: why the voices cannot be told apart
 };
