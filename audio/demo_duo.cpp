@@ -1,5 +1,6 @@
 #include "audio/demo_duo.h"
 
+#include "audio/demo_blocks.h"
 #include "pitch/base/error.h"
 
 #include <algorithm>
@@ -9,7 +10,6 @@
 namespace beatless::audio {
 
 namespace {
-constexpr std::size_t kBlockLen = 32;  // pitch trajectory resolution (samples)
 constexpr int kPartials = 30;
 constexpr double kBeta = 0.13;           // bow position (fraction of the string)
 constexpr double kCorrectS = 0.7;        // time constant of her correction
@@ -74,11 +74,8 @@ void DemoDuo::start_stop() noexcept {
 
 void DemoDuo::render(std::span<float> out) noexcept {
     const double fs = cfg_.sample_rate_hz;
-    std::fill(out.begin(), out.end(), 0.0f);
     std::normal_distribution<double> gauss(0.0, 1.0);
-    std::size_t i = 0;
-    while (i < out.size()) {
-        const std::size_t len = std::min(kBlockLen, out.size() - i);
+    render_in_blocks(out, [&](std::size_t i, std::size_t len) {
         if (pos_ >= next_) start_stop();
         const bool in_stop = pos_ >= start_ && pos_ < end_;
         const double t = static_cast<double>(pos_ + static_cast<std::int64_t>(len) - start_) / fs;
@@ -108,8 +105,7 @@ void DemoDuo::render(std::span<float> out) noexcept {
         truth_.interval_cents = interval_cents_;
         truth_.dev_cents = in_stop ? dev : 0.0;
         pos_ += static_cast<std::int64_t>(len);
-        i += len;
-    }
+    });
 }
 
 }  // namespace beatless::audio

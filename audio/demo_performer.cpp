@@ -1,5 +1,6 @@
 #include "audio/demo_performer.h"
 
+#include "audio/demo_blocks.h"
 #include "pitch/base/error.h"
 
 #include <algorithm>
@@ -9,7 +10,6 @@
 namespace beatless::audio {
 
 namespace {
-constexpr std::size_t kBlockLen = 32;  // pitch trajectory resolution (samples)
 constexpr int kPartials = 40;
 }  // namespace
 
@@ -103,11 +103,8 @@ void DemoPerformer::start_note() noexcept {
 
 void DemoPerformer::render(std::span<float> out) noexcept {
     const double fs = cfg_.sample_rate_hz;
-    std::fill(out.begin(), out.end(), 0.0f);
     std::normal_distribution<double> gauss(0.0, 1.0);
-    std::size_t i = 0;
-    while (i < out.size()) {
-        const std::size_t len = std::min(kBlockLen, out.size() - i);
+    render_in_blocks(out, [&](std::size_t i, std::size_t len) {
         if (pos_ >= next_start_) start_note();
         if (pos_ >= note_end_ && synth_.level() > 0.0 && !synth_.ramping()) synth_.set_level(0.0, false);
         const bool in_note = pos_ >= note_start_ && pos_ < note_end_;
@@ -131,8 +128,7 @@ void DemoPerformer::render(std::span<float> out) noexcept {
         truth_.centre_f0_hz = in_note ? centre : 0.0;
         truth_.dev_cents = in_note ? dev : 0.0;
         pos_ += static_cast<std::int64_t>(len);
-        i += len;
-    }
+    });
 }
 
 }  // namespace beatless::audio

@@ -8,6 +8,7 @@
 // Hilbert envelope and the envelope's spectral peak
 // (tests/reference/beat_envelope.py, run with /usr/bin/python3).
 #include "pitch/base/error.h"
+#include "pitch/dsp/cancel_yin.h"
 #include "pitch/measure/duo_advice.h"
 #include "pitch/measure/two_voice.h"
 #include "pitch/theory/beats.h"
@@ -21,6 +22,7 @@
 #include <cstdlib>
 #include <random>
 #include <string>
+#include <tuple>
 #include <vector>
 
 using namespace beatless;
@@ -158,10 +160,13 @@ TEST_CASE("block size does not change the frames") {
         CHECK(a[i].f_low_hz == b[i].f_low_hz);
         CHECK(a[i].f_high_hz == b[i].f_high_hz);
     }
-    // t marks the centre of the samples a frame depends on (DESIGN.md).
+    // t marks the centre of the second stage's integration window, as YIN's frames do (DESIGN.md): the newest
+    // fast_window_s (rounded up to 32 samples) of the first frame's span.
     TwoVoiceTracker tv({}, interval_set());
     const double span = static_cast<double>(tv.window_len_samples()) * 1.25;
-    CHECK(a[0].t_s == doctest::Approx(0.5 * (span - 1.0) / kFs));
+    const double w = std::ceil(0.02 * kFs / 32.0) * 32.0;
+    CHECK(a[0].end_s == doctest::Approx((span - 1.0) / kFs));
+    CHECK(a[0].t_s == doctest::Approx((span - 0.5 * w - 0.5) / kFs));
     CHECK(a[1].t_s - a[0].t_s == doctest::Approx(0.01));
 }
 
@@ -365,4 +370,89 @@ TEST_CASE("advise_duo: the voice farther from its own target moves with a drone,
         CHECK(!advise_duo(one, set, root, 5.0).judged);
         CHECK(!advise_duo(TwoVoiceFrame{}, set, 0.0, 5.0).judged);
     }
+}
+
+// [SECTION] The second stage: cancellation and a short YIN (pitch/dsp/cancel_yin.h)
+// Source: A. de Cheveigné, JASA 93(6), 3271-3290 (1993): the filter y(t) = x(t) - x(t - T) has zeros at every
+// multiple of 1/T, so a voice of period T is removed whole and the other voice's period is left (its partials that
+// coincide with the first voice's are removed too, which leaves its period unchanged).
+TEST_CASE("cancel-YIN: each voice of a double stop with the other cancelled; a lone note cancelled leaves nothing") {
+    CancelYinConfig yc;
+    yc.sample_rate_hz = kFs;
+    CancelYin cy(yc);
+    for (const auto& [num, den, off] : {std::tuple{7, 4, 3.0}, {3, 2, 0.0}, {7, 5, 5.0}, {6, 5, -2.0}}) {
+        const double f_low = 196.0, f_high = f_low * num / den * std::exp2(off / 1200.0);
+        CAPTURE(num);
+        CAPTURE(den);
+        const auto x = mixture(f_low, f_high, 0.2, 0.1, 0.3, 5);
+        const std::size_t end = x.size() - 1000;
+        const CancelYinResult hi = cy.estimate(x.data(), end, kFs / f_low, f_low * 1.03, 1200.0);
+        const CancelYinResult lo = cy.estimate(x.data(), end, kFs / f_high, 60.0, f_high / 1.03);
+        CHECK(std::fabs(1200.0 * std::log2(hi.f0_hz / f_high)) < 0.3);
+        CHECK(std::fabs(1200.0 * std::log2(lo.f0_hz / f_low)) < 0.3);
+        CHECK(hi.aperiodicity < 0.05);
+        CHECK(lo.aperiodicity < 0.05);
+        // Without the cancellation the mixture repeats at the pair's common period (f_low / den for a just
+        // ratio): YIN names neither voice.
+        if (off == 0.0) {
+            const CancelYinResult both = cy.estimate(x.data(), end, 0.0, 20.0, 1200.0);
+            CHECK(std::fabs(1200.0 * std::log2(both.f0_hz / (f_low / den))) < 1.0);
+        }
+    }
+    // One note, cancelled at its own period: the rest is the noise floor, not a second voice.
+    std::vector<float> one(static_cast<std::size_t>(0.3 * kFs), 0.0f);
+    add_tone(one, kFs, 220.0, 0.0, 0.3, 0.2, rolloff(12));
+    add_noise(one, 1e-4, 3);
+    const CancelYinResult rest = cy.estimate(one.data(), one.size() - 1000, kFs / 220.0, 220.0 * 1.03, 1200.0);
+    CHECK((rest.f0_hz == 0.0 || rest.aperiodicity > 0.2));
+}
+
+// The bar of issue 16: a new interval read within 5 c in <= 60 ms of the change (the frame's newest sample).
+TEST_CASE("a new interval is read within 60 ms; the frame's times say which audio it rests on") {
+    const TargetSet set = interval_set();
+    const double f_low = 196.0, step_s = 1.5;
+    for (const auto& [before, after] : {std::pair{1.5, 1.75}, {1.75, 1.2}, {1.4, 1.5}}) {
+        CAPTURE(before);
+        CAPTURE(after);
+        // The low voice goes on unbroken; the high one changes note at step_s (20 ms ramps either side).
+        std::vector<float> x(static_cast<std::size_t>((step_s + 1.0) * kFs), 0.0f);
+        add_tone(x, kFs, f_low, 0.0, step_s + 1.0, 0.2, rolloff(12));
+        add_tone(x, kFs, f_low * before, 0.0, step_s, 0.12, rolloff(12), {1.0, 0.2, 2.2, 0.4, 1.6, 0.8});
+        add_tone(x, kFs, f_low * after, step_s, step_s + 1.0, 0.12, rolloff(12), {0.3, 1.2, 2.0, 0.1, 1.1, 2.6});
+        add_noise(x, 1e-4, 11);
+        const auto frames = track(x, set, 256);
+        const double want = 1200.0 * std::log2(after);
+        bool all_after = true;
+        int seen = 0;
+        for (const TwoVoiceFrame& f : frames) {
+            CHECK(f.end_s - f.t_s > 0.0);
+            if (f.end_s < step_s + 0.06 || f.end_s > step_s + 0.8) continue;
+            ++seen;
+            all_after = all_after && f.voices == 2 && std::fabs(f.interval_cents - want) <= 5.0;
+        }
+        CHECK(seen > 50);
+        CHECK(all_after);
+    }
+}
+
+// One value for the measured beat (issue 16): across a bow change (the level dips to a third for 60 ms under a
+// burst of noise) every measured beat the tracker reports stays within 0.2 Hz of |q f_high - p f_low| (Helmholtz
+// 1863, ch. VIII); frames it cannot measure say so (NaN) instead.
+TEST_CASE("across a bow change the measured beat is the pair's or none") {
+    const double f_low = 196.0, f_high = f_low * 7.0 / 4.0 * std::exp2(3.0 / 1200.0);
+    const double truth = std::fabs(4.0 * f_high - 7.0 * f_low);
+    auto x = mixture(f_low, f_high, 0.2, 0.15, 6.0, 21);
+    std::mt19937_64 rng(4);
+    std::normal_distribution<double> g(0.0, 0.02);
+    for (double at_s : {2.0, 4.0})
+        for (std::size_t i = static_cast<std::size_t>((at_s - 0.03) * kFs); i < (at_s + 0.03) * kFs; ++i)
+            x[i] = static_cast<float>(0.35 * x[i] + g(rng));
+    int measured = 0;
+    for (const TwoVoiceFrame& f : track(x, interval_set(), 256)) {
+        if (!std::isfinite(f.measured_beat_hz) || f.beat_source == BeatSource::slower_than_history) continue;
+        ++measured;
+        CAPTURE(f.t_s);
+        CHECK(std::fabs(f.measured_beat_hz - truth) <= 0.2);
+    }
+    CHECK(measured > 100);
 }

@@ -31,11 +31,13 @@
 //   4. Least-squares refinement per voice
 //   5. Interval, target and the coinciding pair
 //   6. Beat rate: frequency difference or envelope cycles
-//   7. Public API
+//   7. Second stage: where each voice is now
+//   8. Public API
 #include "pitch/measure/two_voice.h"
 
 #include "pitch/base/error.h"
 #include "pitch/base/text.h"
+#include "pitch/dsp/cancel_yin.h"
 #include "pitch/dsp/real_fft.h"
 #include "pitch/dsp/whole_cycles.h"
 #include "pitch/theory/beats.h"
@@ -46,6 +48,7 @@
 #include <complex>
 #include <cstring>
 #include <numeric>
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -115,6 +118,10 @@ struct TwoVoiceTracker::Impl {
     // The last pair told apart (section 3: names a merge into one series).
     double last_pair_t_s = -INFINITY;
     double last_pair_cents = NAN;
+    // The second stage (section 7): where each voice of the pair is now.
+    std::optional<CancelYin> cy;
+    double fast_lo_hz = 0.0, fast_hi_hz = 0.0;  // 0: not following a pair
+    double disagree_s = 0.0;                    // how long the stages have named different pairs
 
     Impl(const TwoVoiceConfig& c, const TargetSet& set);
     void reset();
@@ -127,6 +134,8 @@ struct TwoVoiceTracker::Impl {
     void name_interval(TwoVoiceFrame& f) const;
     Blend blend_of(const TwoVoiceFrame& f) const;
     void measure_beat(TwoVoiceFrame& f);
+    bool follow_pair(TwoVoiceFrame& f, bool slow_two);
+    void follow_one(TwoVoiceFrame& f);
     void clear_history() {
         hist_n = 0;
         env_p = env_q = -1;
@@ -183,6 +192,19 @@ TwoVoiceTracker::Impl::Impl(const TwoVoiceConfig& c, const TargetSet& set)
         static_cast<std::size_t>(std::ceil(cfg.beat_history_s / (static_cast<double>(hop) / cfg.sample_rate_hz))) + 2;
     hist_t.assign(hist_cap, 0.0);
     hist_m.assign(hist_cap, 0.0);
+    check(cfg.fast_window_s == 0.0 || (cfg.fast_window_s >= 0.005 && cfg.fast_window_s <= 0.1), "fast_window_s",
+          cfg.fast_window_s);
+    check(cfg.fast_aperiodicity > 0.0 && cfg.fast_aperiodicity <= 1.0, "fast_aperiodicity", cfg.fast_aperiodicity);
+    if (cfg.fast_window_s > 0.0) {
+        CancelYinConfig yc;
+        yc.sample_rate_hz = cfg.sample_rate_hz;
+        yc.window_s = cfg.fast_window_s;
+        yc.f_min_hz = cfg.f_min_hz;
+        yc.f_max_hz = cfg.f_max_hz;
+        cy.emplace(yc);
+        check(cy->needed_samples(cfg.sample_rate_hz / cfg.f_min_hz, cfg.f_min_hz) <= span, "fast_window_s",
+              cfg.fast_window_s);
+    }
     reset();
 }
 
@@ -192,6 +214,8 @@ void TwoVoiceTracker::Impl::reset() {
     bad = dropped = 0;
     last_pair_t_s = -INFINITY;
     last_pair_cents = NAN;
+    fast_lo_hz = fast_hi_hz = 0.0;
+    disagree_s = 0.0;
     clear_history();
 }
 
@@ -337,11 +361,13 @@ void TwoVoiceTracker::Impl::analyze(TwoVoiceFrame& f) {
     const double floor = std::pow(10.0, cfg.silence_dbfs / 20.0);
     if (!(std::sqrt(ss / window_power) > floor) || !(std::sqrt(st / static_cast<double>(tail)) > floor)) {
         clear_history();
+        fast_lo_hz = fast_hi_hz = 0.0;
         return;
     }
     find_peaks();
     if (peaks.empty()) {
         clear_history();
+        fast_lo_hz = fast_hi_hz = 0.0;
         return;
     }
     // The first voice: the most salient peak as a fundamental.
@@ -356,6 +382,7 @@ void TwoVoiceTracker::Impl::analyze(TwoVoiceFrame& f) {
     }
     if (va.f0_hz <= 0.0) {
         clear_history();
+        fast_lo_hz = fast_hi_hz = 0.0;
         return;
     }
     refine(va, nullptr);
@@ -395,10 +422,20 @@ void TwoVoiceTracker::Impl::analyze(TwoVoiceFrame& f) {
         return v.peak[1] >= 0 ? 20.0 * std::log10(peaks[static_cast<std::size_t>(v.peak[1])].amp) : -INFINITY;
     };
     if (!two) {
+        // The slow stage's window may still hold the last pair and the next note mixed: a pair the second
+        // stage still finds in the newest audio goes on.
+        if (follow_pair(f, false)) {
+            f.voices = 2;
+            f.interval_cents = 1200.0 * std::log2(f.f_high_hz / f.f_low_hz);
+            name_interval(f);
+            clear_history();
+            return;
+        }
         f.voices = 1;
         f.f_low_hz = va.f0_hz;
         f.level_low_db = level_db(va);
         f.blend = blend_of(f);
+        follow_one(f);
         clear_history();
         return;
     }
@@ -408,11 +445,82 @@ void TwoVoiceTracker::Impl::analyze(TwoVoiceFrame& f) {
     f.f_high_hz = vb.f0_hz;
     f.level_low_db = level_db(va);
     f.level_high_db = level_db(vb);
+    const bool fast = follow_pair(f, true);
     f.interval_cents = 1200.0 * std::log2(f.f_high_hz / f.f_low_hz);
     last_pair_t_s = f.t_s;
     last_pair_cents = f.interval_cents;
     name_interval(f);
-    measure_beat(f);
+    // The partials the beat is measured from are the slow stage's: while the stages name different pairs (a
+    // note change inside its window) they are not this pair's, and nothing is measured.
+    if (fast)
+        clear_history();
+    else
+        measure_beat(f);
+}
+
+// ---------------------------------------------------------------------------
+// [SECTION] Second stage: where each voice is now
+// ---------------------------------------------------------------------------
+// Each voice by YIN over the newest fast_window_s with the other voice cancelled at its period (cancel_yin.h):
+// the high voice above the low one, then the low voice below the high one, then the high voice again when the
+// low one moved. A voice that leaves no periodic rest (a single note: cancelling it leaves noise) ends the pair.
+// The slow stage keeps the choice of the pair: the second stage seeds from it, and gives way when the two have
+// named different pairs for longer than the slow window.
+bool TwoVoiceTracker::Impl::follow_pair(TwoVoiceFrame& f, bool slow_two) {
+    if (!cy) return false;
+    const double fs = cfg.sample_rate_hz;
+    if (slow_two && fast_lo_hz <= 0.0) {
+        fast_lo_hz = va.f0_hz;
+        fast_hi_hz = vb.f0_hz;
+        disagree_s = 0.0;
+    }
+    if (fast_lo_hz <= 0.0) return false;
+    const double apart = std::exp2(50.0 / 1200.0);  // closer pairs are the slow stage's unisons
+    const auto voice = [&](double cancel_hz, double lo_hz, double hi_hz) {
+        const CancelYinResult r = cy->estimate(x.data(), span, fs / cancel_hz, lo_hz, hi_hz);
+        return r.f0_hz > 0.0 && r.aperiodicity <= cfg.fast_aperiodicity ? r.f0_hz : 0.0;
+    };
+    double hi = voice(fast_lo_hz, fast_lo_hz * apart, cfg.f_max_hz);
+    // The low voice near where it was (a minor third either way), else anywhere below the high one.
+    const double third = std::exp2(300.0 / 1200.0);
+    double lo = hi > 0.0 ? voice(hi, fast_lo_hz / third, std::min(fast_lo_hz * third, hi / apart)) : 0.0;
+    if (hi > 0.0 && lo <= 0.0) lo = voice(hi, cfg.f_min_hz, hi / apart);
+    if (lo > 0.0 && std::fabs(1200.0 * std::log2(lo / fast_lo_hz)) > 5.0) hi = voice(lo, lo * apart, cfg.f_max_hz);
+    if (lo <= 0.0 || hi <= 0.0) {
+        fast_lo_hz = fast_hi_hz = 0.0;
+        return false;
+    }
+    fast_lo_hz = lo;
+    fast_hi_hz = hi;
+    const auto near = [](double a, double b) { return std::fabs(1200.0 * std::log2(a / b)) <= 35.0; };
+    const double hop_s = static_cast<double>(hop) / fs;
+    disagree_s = slow_two && near(lo, va.f0_hz) && near(hi, vb.f0_hz) ? 0.0 : disagree_s + hop_s;
+    if (disagree_s > static_cast<double>(span) / fs + 0.05) {
+        fast_lo_hz = fast_hi_hz = 0.0;
+        return false;
+    }
+    // Where both stages agree within fast_agree_cents the slow stage's f0s stand (finer in noise: whole partials
+    // over 170 ms); the second stage's say where the voices are when a note has changed inside that window.
+    const auto within = [&](double a, double b) {
+        return std::fabs(1200.0 * std::log2(a / b)) <= cfg.fast_agree_cents;
+    };
+    if (slow_two && within(lo, va.f0_hz) && within(hi, vb.f0_hz)) return false;
+    f.f_low_hz = lo;
+    f.f_high_hz = hi;
+    f.fast = true;
+    f.span_s = (static_cast<double>(cy->window_len_samples()) + fs / lo + fs / hi) / fs;
+    return true;
+}
+
+// One voice: its f0 now, by YIN over the newest window within a semitone of the slow stage's.
+void TwoVoiceTracker::Impl::follow_one(TwoVoiceFrame& f) {
+    if (!cy) return;
+    const double fs = cfg.sample_rate_hz, semitone = std::exp2(100.0 / 1200.0);
+    const CancelYinResult r = cy->estimate(x.data(), span, 0.0, f.f_low_hz / semitone, f.f_low_hz * semitone);
+    if (r.f0_hz <= 0.0 || r.aperiodicity > cfg.fast_aperiodicity) return;
+    f.f_low_hz = r.f0_hz;
+    f.fast = true;
+    f.span_s = (static_cast<double>(cy->window_len_samples()) + fs / r.f0_hz) / fs;
 }
 
 // One series heard: why two voices may hide in it. An octave whose upper
@@ -543,6 +651,14 @@ void TwoVoiceTracker::Impl::measure_beat(TwoVoiceFrame& f) {
         f.measured_beat_hz = 0.0;
         f.beat_source = BeatSource::slower_than_history;
     }
+    // A bow change, a note start or a burst of noise also moves the envelope: an envelope rate far from what the
+    // pitches predict (more than 0.3 Hz and 30 %, common practice) is not this pair's beat, and is not reported.
+    const double pr = f.predicted_beat_hz;
+    if (f.beat_source == BeatSource::envelope && std::isfinite(pr) &&
+        std::fabs(f.measured_beat_hz - pr) > std::max(0.3, 0.3 * pr)) {
+        f.measured_beat_hz = NAN;
+        f.beat_source = BeatSource::none;
+    }
 }
 
 // ---------------------------------------------------------------------------
@@ -591,7 +707,12 @@ bool TwoVoiceTracker::pull(TwoVoiceFrame& out) noexcept {
     std::memcpy(m.x.data(), m.ring.data() + pos, first * sizeof(float));
     std::memcpy(m.x.data() + first, m.ring.data(), (m.span - first) * sizeof(float));
     out = TwoVoiceFrame{};
-    out.t_s = (static_cast<double>(start) + 0.5 * static_cast<double>(m.span - 1)) / m.cfg.sample_rate_hz;
+    const double fs = m.cfg.sample_rate_hz;
+    out.end_s = static_cast<double>(m.next_end - 1) / fs;
+    out.span_s = static_cast<double>(m.span) / fs;
+    out.t_s = m.cy
+                  ? (static_cast<double>(m.next_end) - 0.5 * static_cast<double>(m.cy->window_len_samples()) - 0.5) / fs
+                  : (static_cast<double>(start) + 0.5 * static_cast<double>(m.span - 1)) / fs;
     for (std::size_t i = m.span - std::min(m.span, m.hop); i < m.span && !out.clipped; ++i)
         out.clipped = std::fabs(m.x[i]) >= 0.999f;
     m.analyze(out);

@@ -2,6 +2,8 @@
 // singers, a voice over a bass line), their interval's nearest just target and the beat of the coinciding partials.
 // Method: A. Klapuri, "Multiple fundamental frequency estimation by summing harmonic amplitudes", Proc. ISMIR 2006,
 // pp. 216-221 (iterative estimation and cancellation), on phase-vocoder peaks; per voice weighted least squares.
+// That 170 ms stage decides WHICH pair sounds; a short second stage says WHERE each voice is now: the other voice
+// cancelled at its period and YIN on the rest (de Cheveigné, JASA 93(6), 1993; pitch/dsp/cancel_yin.h).
 // Thread: one at a time. Allocates: in the constructor only. Steps in two_voice.cpp.
 #pragma once
 
@@ -31,11 +33,15 @@ struct TwoVoiceConfig {
                                                   //   first voice, relative to its own) that says octave (0.35)
     double merge_memory_s = 0.3;                  // a pair seen this recently names the merge (default 0.3 s)
     bool octave_equivalent = true;                // targets match in every octave (default on)
+    double fast_window_s = 0.02;                  // second stage's YIN window (default 20 ms; 0: no second stage)
+    double fast_aperiodicity = 0.2;               // second stage's voice is believed up to this (default 0.2)
+    double fast_agree_cents = 30.0;               // stages this close: the slow stage's f0s stand (default 30 c)
     std::size_t max_block_len_samples = 1 << 16;  // push() blocks up to this never allocate
 };
 
 enum class BeatSource {
-    none,                  // not measured (warming up, one voice, partials absent or out of range)
+    none,                  // not measured (warming up, one voice, partials absent or out of range, a note
+                           //   changing, or an envelope rate far from the predicted one: a bow change or noise)
     frequency_difference,  // the two coinciding partials are separate spectral peaks
     envelope,              // whole cycles of the shared partial's amplitude envelope
     slower_than_history,   // no whole beat within beat_history_s: measured_beat_hz = 0
@@ -50,7 +56,10 @@ enum class Blend {
 };
 
 struct TwoVoiceFrame {
-    double t_s = 0.0;                 // centre of the samples the estimate depends on
+    double t_s = 0.0;                 // centre of the second stage's integration window (YIN's rule, DESIGN)
+    double end_s = 0.0;               // the newest sample the frame has seen
+    double span_s = 0.0;              // how far before end_s the f0s reach (window, lags and cancellation)
+    bool fast = false;                // the f0s are the second stage's (else the 170 ms stage's)
     int voices = 0;                   // 0 (silence), 1 or 2
     double f_low_hz = 0.0;            // 0 when absent
     double f_high_hz = 0.0;           // 0 when absent
@@ -69,7 +78,7 @@ struct TwoVoiceFrame {
     int partial_low = -1;            // p: harmonic of the low voice that coincides ...
     int partial_high = -1;           // q: ... with this harmonic of the high voice
     double predicted_beat_hz = NAN;  // |q f_high - p f_low|
-    double measured_beat_hz = NAN;   // from the partials themselves
+    double measured_beat_hz = NAN;   // from the partials themselves; NaN where it cannot be measured
     BeatSource beat_source = BeatSource::none;
     Blend blend = Blend::none;  // voices == 1: why the voices cannot be told apart
 };

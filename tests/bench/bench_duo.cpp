@@ -99,15 +99,17 @@ void run_with(bench::Context& ctx, const pitch::TwoVoiceConfig& base, bool cpu) 
             tv.push(std::span<const float>(lo.data() + i, std::min<std::size_t>(256, len - i)));
             while (tv.pull(f)) frames.push_back(f);
         }
-        // Window-weighted truth of the interval for a frame centred at t.
-        // (after_step: as if the new interval had sounded throughout the window.)
-        auto truth_cents = [&](double t, bool after_step) {
+        // Truth of the interval for a frame: a second-stage frame's f0s are YIN's mean period over the samples
+        // they reach (span_s before end_s, uniform weights); a slow-stage frame's are the analysis window's
+        // (Blackman-Harris weights). (after_step: as if the new interval had sounded throughout.)
+        auto truth_cents = [&](const pitch::TwoVoiceFrame& fr, bool after_step) {
             double sw = 0.0, sc = 0.0;
             for (int j = 0; j <= 200; ++j) {
                 const double x = static_cast<double>(j) / 200.0;
-                const double w = 0.35875 - 0.48829 * std::cos(2 * M_PI * x) + 0.14128 * std::cos(4 * M_PI * x) -
-                                 0.01168 * std::cos(6 * M_PI * x);
-                const double tt = t + (x - 0.5) * span_s;
+                const double w = fr.fast ? 1.0
+                                         : 0.35875 - 0.48829 * std::cos(2 * M_PI * x) +
+                                               0.14128 * std::cos(4 * M_PI * x) - 0.01168 * std::cos(6 * M_PI * x);
+                const double tt = fr.end_s - (1.0 - x) * (fr.fast ? fr.span_s : span_s);
                 sw += w;
                 sc += w * 1200.0 * std::log2((after_step ? f_high_new(tt, true) : f_high(tt)) / c.f_low);
             }
@@ -117,15 +119,14 @@ void run_with(bench::Context& ctx, const pitch::TwoVoiceConfig& base, bool cpu) 
         double lat = NAN;
         const pitch::TwoVoiceFrame* last_steady = nullptr;
         for (const auto& fr : frames) {
-            const double t_end = fr.t_s + 0.5 * span_s;
-            if (std::isnan(lat) && t_end > step_s) {
-                const bool near = fr.voices == 2 && std::fabs(fr.interval_cents - truth_cents(fr.t_s, true)) <= 5.0;
+            if (std::isnan(lat) && fr.end_s > step_s) {
+                const bool near = fr.voices == 2 && std::fabs(fr.interval_cents - truth_cents(fr, true)) <= 5.0;
                 run_len = near ? run_len + 1 : 0;
-                if (run_len == 5) lat = fr.t_s + 0.5 * span_s - 4 * 0.01 - step_s;
+                if (run_len == 5) lat = fr.end_s - 4 * 0.01 - step_s;
             }
-            if (fr.t_s - 0.5 * span_s >= step_s + 0.02 && fr.t_s + 0.5 * span_s <= dur_s - 0.02) {
+            if (fr.end_s - span_s >= step_s + 0.02 && fr.end_s <= dur_s - 0.02) {
                 if (fr.voices == 2) {
-                    err.push_back(std::fabs(fr.interval_cents - truth_cents(fr.t_s, false)));
+                    err.push_back(std::fabs(fr.interval_cents - truth_cents(fr, false)));
                     if (c.vib_cents == 0.0) err_steady_pitch.push_back(err.back());
                     last_steady = &fr;
                 } else {

@@ -220,7 +220,7 @@ void trace(AppState& app, ImDrawList* dl, float x0, float y0, float w, float h, 
         const std::uint32_t col = strip == 0 ? kHighColour : kLowColour;
         const float thick = std::max(2.0f, std::round(0.12f * u));
         std::size_t n = 0;
-        double prev_t = -1e9;
+        double prev_t = -1e9, prev_dev = NAN;
         auto flush = [&] {
             if (n >= 2) dl->AddPolyline(s.points.data(), static_cast<int>(n), col, ImDrawFlags_None, thick);
             n = 0;
@@ -234,9 +234,16 @@ void trace(AppState& app, ImDrawList* dl, float x0, float y0, float w, float h, 
             if (sure && strip == 0) dev = f.dev_cents;
             if (sure && strip == 1 && !app.targets().targets.empty())
                 dev = pitch::nearest_target(app.targets(), 1200.0 * std::log2(f.f_low_hz / root), true).dev_cents;
-            if (!std::isfinite(dev) || f.t_s - prev_t > 0.05) flush();
-            if (!std::isfinite(dev)) continue;
+            // One true reading: a frame is drawn when the frame before it was sure and within 10 c of it, as the
+            // verdict resumes after two agreeing frames; a lone frame at a note start or bow change is not.
+            const bool agrees = std::isfinite(dev) && std::isfinite(prev_dev) && std::fabs(dev - prev_dev) <= 10.0 &&
+                                f.t_s - prev_t <= 0.05;
+            prev_dev = dev;
             prev_t = f.t_s;
+            if (!agrees) {
+                flush();
+                continue;
+            }
             if (n == s.points.size()) flush();
             s.points[n++] = ImVec2(px1 - static_cast<float>(age) * ppsec, cy - static_cast<float>(dev) * ppc);
         }

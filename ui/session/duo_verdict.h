@@ -38,13 +38,10 @@ struct DuoVerdict {
 
     bool current() const { return state == DuoState::live; }
     bool known() const { return state != DuoState::idle && pair.voices == 2; }  // a value to show, current or last
-    // The beat the cue pulses at: the measured one when the partials gave one that agrees with the pitches (within
-    // 0.3 Hz or 30 %: bow changes and noise also move the envelope), else the predicted; NaN when none.
+    // The beat the cue pulses at: the measured one when the partials gave one (the tracker reports none where
+    // it disagrees with the pitches: pitch/measure/two_voice.h), else the predicted; NaN when none.
     double beat_hz() const { return beat_measured() ? pair.measured_beat_hz : pair.predicted_beat_hz; }
-    bool beat_measured() const {
-        const double m = pair.measured_beat_hz, p = pair.predicted_beat_hz;
-        return std::isfinite(m) && m > 0.0 && std::isfinite(p) && std::fabs(m - p) <= std::max(0.3, 0.3 * p);
-    }
+    bool beat_measured() const { return std::isfinite(pair.measured_beat_hz) && pair.measured_beat_hz > 0.0; }
 };
 
 class DuoVerdictTracker {
