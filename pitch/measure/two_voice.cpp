@@ -710,9 +710,9 @@ bool TwoVoiceTracker::pull(TwoVoiceFrame& out) noexcept {
     const double fs = m.cfg.sample_rate_hz;
     out.end_s = static_cast<double>(m.next_end - 1) / fs;
     out.span_s = static_cast<double>(m.span) / fs;
-    out.t_s = m.cy
-                  ? (static_cast<double>(m.next_end) - 0.5 * static_cast<double>(m.cy->window_len_samples()) - 0.5) / fs
-                  : (static_cast<double>(start) + 0.5 * static_cast<double>(m.span - 1)) / fs;
+    // The centre of the long window, whose pair and steady values the frame carries (segments and the Review
+    // screen place notes by it); end_s says when the reading was available (a short-stage frame's latency).
+    out.t_s = (static_cast<double>(start) + 0.5 * static_cast<double>(m.span - 1)) / fs;
     for (std::size_t i = m.span - std::min(m.span, m.hop); i < m.span && !out.clipped; ++i)
         out.clipped = std::fabs(m.x[i]) >= 0.999f;
     m.analyze(out);

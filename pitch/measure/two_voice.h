@@ -56,7 +56,7 @@ enum class Blend {
 };
 
 struct TwoVoiceFrame {
-    double t_s = 0.0;                 // centre of the second stage's integration window (YIN's rule, DESIGN)
+    double t_s = 0.0;                 // centre of the long window whose pair the frame carries (YIN's rule, DESIGN)
     double end_s = 0.0;               // the newest sample the frame has seen
     double span_s = 0.0;              // how far before end_s the f0s reach (window, lags and cancellation)
     bool fast = false;                // the f0s are the second stage's (else the 170 ms stage's)
