@@ -468,7 +468,9 @@ void ReviewScreen::draw_mark(ImDrawList* dl, const ReviewMarkView& m, float y_lo
     if (ls.x < m.x1 - m.x0 + 2.0f * u) {
         const float cx = std::round(std::clamp(0.5f * (m.x0 + m.x1), v.plot_x0 + 0.5f * ls.x + 4.0f,
                                                v.plot_x1 - 0.5f * ls.x - 4.0f)),
-                    ly = std::round(m.y - r - 0.35f * u - ls.y);
+                    above = std::round(m.y - r - 0.35f * u - ls.y),
+                    // A mark near the plot's top edge carries its deviation under the bar instead of half cut off.
+                    ly = above >= v.plot_y0 + 2.0f ? above : std::round(m.y + r + 0.35f * u);
         dl->AddRectFilled(ImVec2(cx - 0.5f * ls.x - 4, ly - 1), ImVec2(cx + 0.5f * ls.x + 4, ly + ls.y + 1),
                           palette::with_alpha(palette::kPanel, 225), 3.0f);
         draw_text_centred(dl, FontFace::bold, cx, ly, m.colour, label);
