@@ -225,6 +225,19 @@ TEST_CASE("no drone, silence, noise only, a clipped take: clear messages or empt
         run_program({"analyze", dir.file("alone.wav"), "--root", "110", "--targets", "tritones", "--format", "json"});
     CHECK(a2.exit_code == 0);
     CHECK(json_value(a2.out, "len(d['notes'])") == "5");
+    // One steady note alone, no vibrato, no drone: the drone detector takes it for a drone; with the root given it is
+    // still the voice, measured against that root (154 Hz over 110 Hz is exactly 7/5: 0 c).
+    std::vector<float> one(static_cast<std::size_t>(3 * kFs));
+    for (std::size_t i = 0; i < one.size(); ++i)
+        for (int k = 1; k <= 5; ++k)
+            one[i] += static_cast<float>(0.2 * std::pow(0.6, k - 1) *
+                                         std::sin(2.0 * M_PI * 154.0 * k * static_cast<double>(i) / kFs));
+    write(dir.file("one.wav"), one);
+    const auto o = run_program({"analyze", dir.file("one.wav"), "--root", "110", "--targets", "tritones", "--format",
+                                "json"});
+    CHECK(o.exit_code == 0);
+    REQUIRE(json_value(o.out, "len(d['notes'])") == "1");
+    CHECK(std::fabs(std::stod(json_value(o.out, "d['notes'][0]['dev_cents']"))) < 0.5);
 
     write(dir.file("silence.wav"), std::vector<float>(static_cast<std::size_t>(3 * kFs), 0.0f));
     for (const std::vector<std::string>& extra : {std::vector<std::string>{}, {"--root", "A2"}, {"--voices", "2"}}) {

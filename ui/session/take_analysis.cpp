@@ -167,7 +167,8 @@ void fill_heard(HeardLevels& h, const pitch::SignalFacts& f, const pitch::LevelS
 }
 
 // The voice against a known root (its drone combed out when one was found): the second pass of one-voice analysis.
-void track_voice(audio::SoundReader& reader, const AnalysisRequest& req, Ticker& tick, int pass, OneVoiceAnalysis& out);
+void track_voice(audio::SoundReader& reader, const AnalysisRequest& req, Ticker& tick, int pass, OneVoiceAnalysis& out,
+                 bool comb_drone = true);
 
 }  // namespace
 
@@ -190,6 +191,18 @@ OneVoiceAnalysis analyze_one_voice(audio::SoundReader& reader, const AnalysisReq
     reader.rewind();  // the second pass reads the file again from its start
     out.root_hz = req.root_hz ? *req.root_hz : out.root.root_hz;
     track_voice(reader, req, tick, 1, out);
+    // A take of one steady voice and no drone, its root given: the detector takes the voice for a drone and the comb
+    // removes all of it. When the comb left no note, the take is tracked again without it and kept if that finds any.
+    if (out.notes.empty() && out.drone_hz > 0.0 && req.root_hz) {
+        OneVoiceAnalysis plain;
+        plain.info = out.info;
+        plain.root_given = true;
+        plain.root = out.root;
+        plain.root_hz = out.root_hz;
+        reader.rewind();
+        track_voice(reader, req, tick, 1, plain, false);
+        if (!plain.notes.empty()) out = std::move(plain);
+    }
     const pitch::AudibleRange range = pitch::SegmentConfig{}.audible;
     judge(
         req, out.notes, [](const pitch::NoteResult& n) { return n.cents_above_root; },
@@ -200,11 +213,11 @@ OneVoiceAnalysis analyze_one_voice(audio::SoundReader& reader, const AnalysisReq
 
 namespace {
 
-void track_voice(audio::SoundReader& reader, const AnalysisRequest& req, Ticker& tick, int pass,
-                 OneVoiceAnalysis& out) {
+void track_voice(audio::SoundReader& reader, const AnalysisRequest& req, Ticker& tick, int pass, OneVoiceAnalysis& out,
+                 bool comb_drone) {
     const double rate = out.info.sample_rate_hz;
     std::optional<pitch::DroneComb> comb;
-    if (out.root.found() && out.root.root_hz >= 20.0 && out.root.root_hz <= rate / 8.0) {
+    if (comb_drone && out.root.found() && out.root.root_hz >= 20.0 && out.root.root_hz <= rate / 8.0) {
         out.drone_hz = out.root.root_hz;
         comb.emplace(pitch::DroneCombConfig{.sample_rate_hz = rate, .root_hz = out.drone_hz});
     }
