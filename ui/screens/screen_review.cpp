@@ -146,6 +146,14 @@ std::string ReviewScreen::target_text(int index) const {
     return take_->set.targets[static_cast<std::size_t>(index)].interval.str();
 }
 
+namespace {
+// "1 note", "3 notes"; a two-voice take counts its held intervals.
+std::string count_words(std::size_t n, bool two_voices) {
+    const char* noun = two_voices ? " interval" : " note";
+    return std::to_string(n) + noun + (n == 1 ? "" : "s");
+}
+}  // namespace
+
 void ReviewScreen::list_takes_now() {
     std::vector<std::string> problems;
     try {
@@ -392,7 +400,7 @@ void ReviewScreen::draw_list(AppState& app, ImDrawList* dl, float x, float y, fl
             duration_words(t.duration_s.value_or(NAN)) + "   " + (t.targets.empty() ? "-" : t.targets);
         std::string line3 = "reading\u2026";
         if (row.state == ListedSummary::State::known) {
-            line3 = std::to_string(row.summary.notes) + (row.summary.notes == 1 ? " note" : " notes");
+            line3 = count_words(row.summary.notes, t.voices == 2);
             if (std::isfinite(row.summary.mean_dev_cents))
                 line3 += ", mean " + signed_text(row.summary.mean_dev_cents, 1) + " c";
         } else if (row.state == ListedSummary::State::unreadable) {
@@ -858,7 +866,7 @@ void ReviewScreen::draw_summary(ImDrawList* dl, float x, float y, float w, float
         const Tuning tn = tuning_of(row.mean_dev_cents, in_tune_cents_);
         draw_text(dl, FontFace::bold, ImVec2(x + pad, ty), palette::kText,
                   fit_text(FontFace::bold, target_text(row.target_index), col - 0.3f * u));
-        std::string more = std::to_string(row.count) + (row.count == 1 ? " note" : " notes");
+        std::string more = count_words(row.count, take_->voices == 2);
         if (row.count > 1) more += ", spread " + pitch::format_trimmed(row.spread_cents, 1) + " c";
         const std::string mean = "mean " + off_words(row.mean_dev_cents, take_->voices == 2);
         if (compact) {
