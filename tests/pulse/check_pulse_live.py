@@ -267,10 +267,17 @@ def main():
     subprocess.run(["paplay", "-d", "room", take], env=env, timeout=20)
     ls.wait(20)
     got = ls.readings()
-    # Stream time of the take's start: readings arrive ~30 ms after their sound.
+    # Stream time of the voice's start. The wall clock places it only roughly (a sound server may hold a new
+    # stream's first audio and then deliver it in a burst, which shifted the estimate by up to 0.6 s), so it is
+    # taken from the readings: the first of ten in a row within 50 c of the voice's true pitch (7/5 six cents
+    # flat over D3). The steady part is then fixed by the take's own timing; any reading in it may still fail.
     first_stream_t = got[0][1]["t"] - (got[0][0] - ls.t0) if got else 0.0
-    offset = played_at - ls.t0 + first_stream_t
-    steady = [x for _, x in got if offset + voice_start + 0.3 <= x["t"] <= offset + 4.0 - 0.4]
+    voice_hz = 146.832 * 1.4 * 2.0 ** (-6.0 / 1200.0)
+    near = [x.get("f0_hz") is not None and abs(1200.0 * math.log2(x["f0_hz"] / voice_hz)) < 50.0 for _, x in got]
+    onset = next((got[i][1]["t"] for i in range(len(got) - 9) if all(near[i:i + 10])), None)
+    if onset is None:
+        onset = played_at - ls.t0 + first_stream_t + voice_start
+    steady = [x for _, x in got if onset + 0.3 <= x["t"] <= onset + (4.0 - voice_start) - 0.4]
     as_75 = [x for x in steady if x["target"] == "7/5"]
     devs = sorted(x["dev_cents"] for x in as_75)
     median = devs[len(devs) // 2] if devs else float("nan")
