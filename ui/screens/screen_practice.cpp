@@ -441,7 +441,11 @@ void PracticeScreen::beat_cue(AppState& app, ImDrawList* dl, float x0, float y0,
                                                                                : "slower is closer";
             break;
         case pitch::BeatBand::flutter:
-            caption = "too fast to count", advice = "a flutter: move toward the target";
+            // Where the heard pair is not the target's own, it flutters even
+            // when the note is right: the rate cannot steer, the cents do.
+            caption = "too fast to count";
+            advice = heard_pair_differs(r) && r.heard_beat_at_target_hz > 0.05 ? "judge it by the cents"
+                                                                               : "flutter: move to the target";
             break;
         case pitch::BeatBand::rough:
             caption = drone ? "heard as roughness" : "would be heard as roughness", advice = "not as beats";
