@@ -21,6 +21,7 @@
 #include "ui/session/app_state.h"
 #include "ui/session/settings.h"
 #include "ui/session/take_file.h"
+#include "ui/session/take_words.h"
 
 #include <doctest/doctest.h>
 
@@ -261,4 +262,39 @@ TEST_CASE("snapshot --screen review --take: a PNG; bad --take, --note and --span
         {"snapshot", "--screen", "review", "--span", "0.1", "--out", dir.file("x.png")}, env);
     CHECK(span.exit_code == 1);
     CHECK(span.err == "beatless: --span 0.1: out of range (0.5 to 36000 s)\n");
+}
+
+TEST_CASE("a take's length: rounded to the nearest second alike in the takes list and in analyze") {
+    // Rounding to the nearest whole second (common practice; half a second rounds up, as std::llround does), then
+    // minutes and seconds as on a clock. The old list cut 11.984 s down to 0:11 while analyze said 12 s, and analyze
+    // wrote 119.97 s as "1:60.0".
+    CHECK(ui::duration_words(11.984) == "12 s");
+    CHECK(ui::duration_words(11.4) == "11 s");
+    CHECK(ui::duration_words(0.4) == "0 s");
+    CHECK(ui::duration_words(59.6) == "1:00");
+    CHECK(ui::duration_words(119.97) == "2:00");
+    CHECK(ui::duration_words(754.5) == "12:35");
+    CHECK(ui::duration_words(3599.6) == "1:00:00");
+    CHECK(ui::duration_words(3725.2) == "1:02:05");
+    CHECK(ui::duration_words(NAN) == "?");
+    CHECK(ui::duration_words(-1.0) == "?");
+
+    beatless::test::TempDir home;
+    setenv("BEATLESS_HOME", home.path().c_str(), 1);
+    const std::filesystem::path takes = ui::takes_dir();
+    std::filesystem::create_directories(takes);
+    Take take = drone_and_voice(kFs, 110.0, {{7.0 / 5.0, 5.0}, {5.0 / 4.0, -3.0}}, 53);
+    const double dur_s = 11.984;
+    take.samples.resize(static_cast<std::size_t>(std::lround(dur_s * kFs)), 0.0f);  // the rest after the notes
+    beatless::test::write_test_take(takes, "2026-12-03_180000", take.samples, kFs, dur_s);
+    ReviewRig rig(1, 0.0);
+    rig.frames(3);
+    const ui::ReviewView& v = *ui::review_view(*rig.screen);
+    REQUIRE(v.takes.size() == 1);
+    CAPTURE(v.takes[0]);
+    CHECK(v.takes[0].find(" | 12 s   7-limit | ") != std::string::npos);
+    const auto r = beatless::test::run_program({"analyze", (takes / "2026-12-03_180000.flac").string()});
+    REQUIRE_MESSAGE(r.exit_code == 0, r.err);
+    CHECK(r.out.find(": 12 s at 44100 Hz, one voice against a drone\n") != std::string::npos);
+    unsetenv("BEATLESS_HOME");
 }

@@ -87,18 +87,6 @@ std::string dev_column(double dev_cents) {
 
 std::string base_name(const std::string& path) { return std::filesystem::path(path).filename().string(); }
 
-std::string duration_text(double s) {
-    if (s < 60.0) return pitch::format_trimmed(s, 1) + " s";
-    char buf[32];
-    const long whole = static_cast<long>(s);
-    if (whole >= 3600)
-        std::snprintf(buf, sizeof buf, "%ld:%02ld:%04.1f", whole / 3600, (whole / 60) % 60,
-                      s - 60.0 * static_cast<double>(whole / 60));
-    else
-        std::snprintf(buf, sizeof buf, "%ld:%04.1f", whole / 60, s - 60.0 * static_cast<double>(whole / 60));
-    return buf;
-}
-
 std::string today_text() {
     const std::time_t now = std::time(nullptr);
     std::tm tm{};
@@ -172,7 +160,7 @@ void print_one_voice(const AnalyzeOptions& o, const pitch::TargetSet& set, const
         std::printf("%s", one_voice_csv(set, a).c_str());
         return;
     }
-    std::printf("%s: %s at %s Hz, one voice against a drone\n", o.file.c_str(), duration_text(a.info.dur_s()).c_str(),
+    std::printf("%s: %s at %s Hz, one voice against a drone\n", o.file.c_str(), duration_words(a.info.dur_s()).c_str(),
                 pitch::format_trimmed(a.info.sample_rate_hz, 0).c_str());
     std::printf("%s", root_words(a, o.root, o.a4_hz).c_str());
     if (!a.root_given)
@@ -288,7 +276,7 @@ void print_two_voices(const AnalyzeOptions& o, const pitch::TargetSet& set, cons
                         num(d.measured_beat_hz, 3).c_str());
         return;
     }
-    std::printf("%s: %s at %s Hz, two voices\n", o.file.c_str(), duration_text(a.info.dur_s()).c_str(),
+    std::printf("%s: %s at %s Hz, two voices\n", o.file.c_str(), duration_words(a.info.dur_s()).c_str(),
                 pitch::format_trimmed(a.info.sample_rate_hz, 0).c_str());
     if (a.drone_hz > 0.0)
         std::printf("a steady drone at %s Hz is the low voice: it is removed and the other voice measured against it\n",

@@ -58,14 +58,6 @@ constexpr KeyHelp kReviewKeys[] = {
 constexpr double kMinSpanS = 0.5;  // the closest zoom
 constexpr const char* kDefaultSet = "7-limit";
 
-std::string duration_words(double s) {
-    if (!std::isfinite(s)) return "?";
-    char buf[32];
-    const long whole = std::lround(std::floor(s));
-    std::snprintf(buf, sizeof buf, "%ld:%02ld", whole / 60, whole % 60);
-    return buf;
-}
-
 // "2026-12-03 16:15" from the take's name (its start, local time), else the file name.
 std::string take_when(const TakeInfo& t) {
     std::string s = t.audio_path.stem().string();

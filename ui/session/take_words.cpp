@@ -5,6 +5,7 @@
 #include "ui/session/target_files.h"
 
 #include <cmath>
+#include <cstdio>
 
 namespace beatless::ui {
 
@@ -70,6 +71,19 @@ std::string judgement_words(const pitch::NoteJudgement& j, const pitch::TargetSe
                off_words(j.meant_dev_cents, intervals) + ": that is " +
                format_trimmed(std::fabs(j.nearest.dev_cents), 1) + " c from " + text(j.nearest.index);
     return "";
+}
+
+std::string duration_words(double dur_s) {
+    if (!(dur_s >= 0.0 && dur_s < 1e9)) return "?";  // not finite, negative or absurd
+    const long long whole = std::llround(dur_s);     // to the nearest second: 11.984 s is 12 s
+    char buf[48];
+    if (whole < 60)
+        std::snprintf(buf, sizeof buf, "%lld s", whole);
+    else if (whole < 3600)
+        std::snprintf(buf, sizeof buf, "%lld:%02lld", whole / 60, whole % 60);
+    else
+        std::snprintf(buf, sizeof buf, "%lld:%02lld:%02lld", whole / 3600, (whole / 60) % 60, whole % 60);
+    return buf;
 }
 
 std::string nothing_found_words(double loudest_dbfs, double snr_db, bool intervals) {

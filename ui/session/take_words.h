@@ -24,6 +24,9 @@ std::string summary_words(const pitch::TargetSummary& row, const std::string& na
 std::string judgement_words(const pitch::NoteJudgement& j, const pitch::TargetSet& set, bool intervals);
 // "12 c flat", "0.5 c sharp", "in tune"; narrow and wide between two voices.
 std::string off_words(double dev_cents, bool intervals);
+// A take's length as every screen and command shows it, rounded to the nearest second: "12 s" under a minute, "1:05"
+// (minutes:seconds) under an hour, "1:02:03" from an hour; "?" when unknown (not finite or negative).
+std::string duration_words(double dur_s);
 // The one-line hint when a take gave nothing: the level, the estimated SNR and what to try.
 std::string nothing_found_words(double loudest_dbfs, double snr_db, bool intervals);
 
