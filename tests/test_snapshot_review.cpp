@@ -298,3 +298,36 @@ TEST_CASE("a take's length: rounded to the nearest second alike in the takes lis
     CHECK(r.out.find(": 12 s at 44100 Hz, one voice against a drone\n") != std::string::npos);
     unsetenv("BEATLESS_HOME");
 }
+
+TEST_CASE("Review of a two-voice take over a drone: intervals named in their octave, as listen names them") {
+    // A voice an octave above 5/4 and 7/4 over a 110 Hz drone (mix_signals.h drone_and_voice, voice_octaves 1):
+    // the intervals between the two are 5/2 and 7/2 (5/4 x 2/1, 7/4 x 2/1), named so as `listen --voices 2` names
+    // them, never octave-reduced to 5/4 and 7/4.
+    beatless::test::TempDir home;
+    setenv("BEATLESS_HOME", home.path().c_str(), 1);
+    const std::filesystem::path takes = ui::takes_dir();
+    std::filesystem::create_directories(takes);
+    const Take take = drone_and_voice(kFs, 110.0, {{5.0 / 4.0, 6.0}, {7.0 / 4.0, -4.0}}, 59);
+    beatless::test::write_test_take(takes, "2026-12-03_190000", take.samples, kFs, take.dur_s, true, 2);
+    const std::string flac = (takes / "2026-12-03_190000.flac").string();
+    ReviewRig rig(1, 0.0);
+    rig.frames(3);
+    const ui::ReviewView& v = *ui::review_view(*rig.screen);
+    REQUIRE(v.open);
+    REQUIRE(v.marks.size() == 2);
+    CHECK(v.heading.rfind("Interval 1 of 2   ", 0) == 0);
+    CHECK(v.against.rfind("against 5/2", 0) == 0);
+    ui::review_select(*rig.screen, 1, 0.0);
+    rig.frames(1);
+    CHECK(v.heading.rfind("Interval 2 of 2   ", 0) == 0);
+    CHECK(v.against.rfind("against 7/2", 0) == 0);
+
+    const auto json = beatless::test::run_program({"analyze", flac, "--voices", "2", "--format", "json"});
+    REQUIRE_MESSAGE(json.exit_code == 0, json.err);
+    CHECK(beatless::test::json_words(json.out, "[n['target'] for n in d['intervals']]") ==
+          std::vector<std::string>{"5/2", "7/2"});
+    const auto text = beatless::test::run_program({"analyze", flac, "--voices", "2"});
+    CHECK(text.out.find("  5/2  ") != std::string::npos);
+    CHECK(text.out.find("  7/2  ") != std::string::npos);
+    unsetenv("BEATLESS_HOME");
+}

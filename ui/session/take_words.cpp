@@ -1,7 +1,9 @@
 // Take words (take_words.h).
 #include "ui/session/take_words.h"
 
+#include "pitch/base/error.h"
 #include "pitch/base/text.h"
+#include "pitch/theory/targets.h"
 #include "ui/session/target_files.h"
 
 #include <cmath>
@@ -22,6 +24,22 @@ std::string target_name_of(const pitch::TargetSet& set, int index) {
     if (!t.name.empty()) return t.name;
     const std::string* n = interval_names().find(t.interval);
     return n ? *n : "";
+}
+
+std::string target_text_at(const pitch::TargetSet& set, int index, int octaves) {
+    if (octaves == 0 || index < 0 || static_cast<std::size_t>(index) >= set.targets.size())
+        return target_text_of(set, index);
+    try {
+        return pitch::shift_octaves(set.targets[static_cast<std::size_t>(index)].interval, octaves).str();
+    } catch (const Error&) {  // the shifted ratio overflows: the target with its octaves said
+        return target_text_of(set, index) + (octaves > 0 ? " +" : " ") + std::to_string(octaves) + "oct";
+    }
+}
+
+std::string target_name_at(const pitch::TargetSet& set, int index, int octaves) {
+    if (octaves == 0 || index < 0 || static_cast<std::size_t>(index) >= set.targets.size())
+        return target_name_of(set, index);
+    return pitch::target_name_in_octave(set.targets[static_cast<std::size_t>(index)], octaves, interval_names());
 }
 
 std::string root_words(const pitch::RootEstimate& e) {
