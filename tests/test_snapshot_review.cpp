@@ -17,6 +17,7 @@
 #include "ui/screens/palette.h"
 #include "ui/screens/screen.h"
 #include "ui/screens/screen_review.h"
+#include "ui/screens/take_report.h"
 #include "ui/screens/widgets.h"
 #include "ui/session/app_state.h"
 #include "ui/session/settings.h"
@@ -30,6 +31,8 @@
 #include <cmath>
 #include <cstdlib>
 #include <filesystem>
+#include <fstream>
+#include <iterator>
 #include <string>
 #include <vector>
 
@@ -299,7 +302,7 @@ TEST_CASE("a take's length: rounded to the nearest second alike in the takes lis
     unsetenv("BEATLESS_HOME");
 }
 
-TEST_CASE("Review of a two-voice take over a drone: intervals named in their octave, as listen names them") {
+TEST_CASE("Review of a two-voice take over a drone: intervals named in their octave; exported as analyze prints them") {
     // A voice an octave above 5/4 and 7/4 over a 110 Hz drone (mix_signals.h drone_and_voice, voice_octaves 1):
     // the intervals between the two are 5/2 and 7/2 (5/4 x 2/1, 7/4 x 2/1), named so as `listen --voices 2` names
     // them, never octave-reduced to 5/4 and 7/4.
@@ -329,5 +332,27 @@ TEST_CASE("Review of a two-voice take over a drone: intervals named in their oct
     const auto text = beatless::test::run_program({"analyze", flac, "--voices", "2"});
     CHECK(text.out.find("  5/2  ") != std::string::npos);
     CHECK(text.out.find("  7/2  ") != std::string::npos);
+    const auto csv = beatless::test::run_program({"analyze", flac, "--voices", "2", "--format", "csv"});
+
+    // Export: the CSV and JSON beside the take are what analyze prints for it; the report page is a PNG of the
+    // report's size (PNG signature and IHDR width and height, ISO/IEC 15948).
+    ui::review_export(*rig.screen, rig.app);
+    auto read = [](const std::filesystem::path& p) {
+        std::ifstream in(p, std::ios::binary);
+        return std::string(std::istreambuf_iterator<char>(in), {});
+    };
+    CHECK(read(takes / "2026-12-03_190000.csv") == csv.out);
+    CHECK(read(takes / "2026-12-03_190000.json") == json.out);
+    const std::string png = read(takes / "2026-12-03_190000.report.png");
+    REQUIRE(png.size() > 24);
+    CHECK(png.substr(0, 8) == "\x89PNG\r\n\x1a\n");
+    auto be32 = [&](std::size_t at) {
+        return (static_cast<unsigned>(static_cast<unsigned char>(png[at])) << 24) |
+               (static_cast<unsigned>(static_cast<unsigned char>(png[at + 1])) << 16) |
+               (static_cast<unsigned>(static_cast<unsigned char>(png[at + 2])) << 8) |
+               static_cast<unsigned>(static_cast<unsigned char>(png[at + 3]));
+    };
+    CHECK(be32(16) == static_cast<unsigned>(ui::kReportWidthPx));
+    CHECK(be32(20) == static_cast<unsigned>(ui::kReportHeightPx));
     unsetenv("BEATLESS_HOME");
 }

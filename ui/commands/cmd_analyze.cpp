@@ -262,15 +262,9 @@ void print_two_voices(const AnalyzeOptions& o, const pitch::TargetSet& set, cons
 }
 
 ReportData two_voice_report(const AnalyzeOptions& o, const pitch::TargetSet& set, const TwoVoiceAnalysis& a) {
-    ReportData d = report_of(set, a.dyads, a.summary, true, [](const pitch::DyadResult& y) {
-        return ReportMark{y.start_s, y.end_s, y.interval_cents, y.target_cents, y.dev_cents};
-    });
+    ReportData d = two_voice_report_data(set, a);
     d.title = base_name(o.file);
     d.subtitle = "two voices   \u00b7   targets: " + set.title + "   \u00b7   analyzed " + today_text();
-    d.axis_label = "cents above the low voice";
-    d.mark_word = "interval";
-    d.dur_s = a.info.dur_s();
-    d.trace = &a.trace;
     return d;
 }
 

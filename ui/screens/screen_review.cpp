@@ -90,6 +90,7 @@ public:
 
     const ReviewView& view() const { return view_; }
     void select(int note, double span_s);
+    void export_report(AppState& app);
 
 private:
     void list_takes_now();
@@ -114,7 +115,6 @@ private:
     void draw_detail(AppState& app, ImDrawList* dl, float x, float y, float w, float h);
     void sound(AppState& app, bool target);
     void hear(AppState& app, ClipKind kind);
-    void export_report(AppState& app);
     void rename(AppState& app, const std::string& stem);
     char rename_buf_[96] = "";
     std::string target_text(int index) const;
@@ -246,25 +246,27 @@ void ReviewScreen::hear(AppState& app, ClipKind kind) {
 }
 
 // Beside the take: the printable page `analyze --report` draws (NAME.report.png) and what `analyze --format csv`
-// and `--format json` print (NAME.csv, NAME.json), each written safely (ui/session/safe_file.h).
+// and `--format json` print (NAME.csv, NAME.json), for one voice or two as the take is read, each written safely
+// (ui/session/safe_file.h).
 void ReviewScreen::export_report(AppState& app) {
     if (!take_ || !take_->error.empty()) return;
-    if (take_->voices == 2) {
-        app.post("export: two-voice takes are exported by `beatless analyze --voices 2`", true);
-        return;
-    }
+    const bool duo = take_->voices == 2;
     std::filesystem::path p(take_->path);
-    ReportData d = one_voice_report_data(take_->set, take_->analysis);
+    ReportData d =
+        duo ? two_voice_report_data(take_->set, take_->duo) : one_voice_report_data(take_->set, take_->analysis);
     d.title = take_->title;
-    d.subtitle = "root " + pitch::format_trimmed(take_->analysis.root_hz, 3) +
-                 " Hz   \u00b7   targets: " + take_->set.title +
-                 (take_->expect.empty() ? "" : "   \u00b7   meant: " + take_->expect);
+    const std::string meant = take_->expect.empty() ? "" : "   \u00b7   meant: " + take_->expect;
+    d.subtitle = duo ? "two voices   \u00b7   targets: " + take_->set.title + meant
+                     : "root " + pitch::format_trimmed(take_->analysis.root_hz, 3) +
+                           " Hz   \u00b7   targets: " + take_->set.title + meant;
     try {
         write_report(std::filesystem::path(p).replace_extension(".report.png").string(), d);
         write_file_safely(std::filesystem::path(p).replace_extension(".csv"),
-                          one_voice_csv(take_->set, take_->analysis));
+                          duo ? two_voice_csv(take_->set, take_->duo) : one_voice_csv(take_->set, take_->analysis));
         write_file_safely(std::filesystem::path(p).replace_extension(".json"),
-                          one_voice_json(take_->path, take_->set, take_->analysis) + "\n");
+                          (duo ? two_voice_json(take_->path, take_->set, take_->duo)
+                               : one_voice_json(take_->path, take_->set, take_->analysis)) +
+                              "\n");
         app.post("report, CSV and JSON written beside " + take_->title);
     } catch (const std::exception& e) {
         app.post(e.what(), true);
@@ -977,6 +979,10 @@ const ReviewView* review_view(const Screen& screen) {
 
 void review_select(Screen& screen, int note, double span_s) {
     if (auto* r = dynamic_cast<ReviewScreen*>(&screen)) r->select(note, span_s);
+}
+
+void review_export(Screen& screen, AppState& app) {
+    if (auto* r = dynamic_cast<ReviewScreen*>(&screen)) r->export_report(app);
 }
 
 }  // namespace beatless::ui

@@ -48,5 +48,7 @@ std::unique_ptr<Screen> make_review_screen();
 const ReviewView* review_view(const Screen& screen);
 // Selects a note and zooms the view to `span_s` seconds around it (tests, snapshots); -1 selects none.
 void review_select(Screen& screen, int note, double span_s);
+// Writes the open take's report PNG, CSV and JSON beside it, as the screen's Export button does (tests).
+void review_export(Screen& screen, AppState& app);
 
 }  // namespace beatless::ui
