@@ -17,10 +17,12 @@
 #include "ui/screens/palette.h"
 #include "ui/screens/screen.h"
 #include "ui/screens/screen_review.h"
+#include "ui/screens/take_report.h"
 #include "ui/screens/widgets.h"
 #include "ui/session/app_state.h"
 #include "ui/session/settings.h"
 #include "ui/session/take_file.h"
+#include "ui/session/take_words.h"
 
 #include <doctest/doctest.h>
 
@@ -29,6 +31,8 @@
 #include <cmath>
 #include <cstdlib>
 #include <filesystem>
+#include <fstream>
+#include <iterator>
 #include <string>
 #include <vector>
 
@@ -261,4 +265,94 @@ TEST_CASE("snapshot --screen review --take: a PNG; bad --take, --note and --span
         {"snapshot", "--screen", "review", "--span", "0.1", "--out", dir.file("x.png")}, env);
     CHECK(span.exit_code == 1);
     CHECK(span.err == "beatless: --span 0.1: out of range (0.5 to 36000 s)\n");
+}
+
+TEST_CASE("a take's length: rounded to the nearest second alike in the takes list and in analyze") {
+    // Rounding to the nearest whole second (common practice; half a second rounds up, as std::llround does), then
+    // minutes and seconds as on a clock. The old list cut 11.984 s down to 0:11 while analyze said 12 s, and analyze
+    // wrote 119.97 s as "1:60.0".
+    CHECK(ui::duration_words(11.984) == "12 s");
+    CHECK(ui::duration_words(11.4) == "11 s");
+    CHECK(ui::duration_words(0.4) == "0 s");
+    CHECK(ui::duration_words(59.6) == "1:00");
+    CHECK(ui::duration_words(119.97) == "2:00");
+    CHECK(ui::duration_words(754.5) == "12:35");
+    CHECK(ui::duration_words(3599.6) == "1:00:00");
+    CHECK(ui::duration_words(3725.2) == "1:02:05");
+    CHECK(ui::duration_words(NAN) == "?");
+    CHECK(ui::duration_words(-1.0) == "?");
+
+    beatless::test::TempDir home;
+    setenv("BEATLESS_HOME", home.path().c_str(), 1);
+    const std::filesystem::path takes = ui::takes_dir();
+    std::filesystem::create_directories(takes);
+    Take take = drone_and_voice(kFs, 110.0, {{7.0 / 5.0, 5.0}, {5.0 / 4.0, -3.0}}, 53);
+    const double dur_s = 11.984;
+    take.samples.resize(static_cast<std::size_t>(std::lround(dur_s * kFs)), 0.0f);  // the rest after the notes
+    beatless::test::write_test_take(takes, "2026-12-03_180000", take.samples, kFs, dur_s);
+    ReviewRig rig(1, 0.0);
+    rig.frames(3);
+    const ui::ReviewView& v = *ui::review_view(*rig.screen);
+    REQUIRE(v.takes.size() == 1);
+    CAPTURE(v.takes[0]);
+    CHECK(v.takes[0].find(" | 12 s   7-limit | ") != std::string::npos);
+    const auto r = beatless::test::run_program({"analyze", (takes / "2026-12-03_180000.flac").string()});
+    REQUIRE_MESSAGE(r.exit_code == 0, r.err);
+    CHECK(r.out.find(": 12 s at 44100 Hz, one voice against a drone\n") != std::string::npos);
+    unsetenv("BEATLESS_HOME");
+}
+
+TEST_CASE("Review of a two-voice take over a drone: intervals named in their octave; exported as analyze prints them") {
+    // A voice an octave above 5/4 and 7/4 over a 110 Hz drone (mix_signals.h drone_and_voice, voice_octaves 1):
+    // the intervals between the two are 5/2 and 7/2 (5/4 x 2/1, 7/4 x 2/1), named so as `listen --voices 2` names
+    // them, never octave-reduced to 5/4 and 7/4.
+    beatless::test::TempDir home;
+    setenv("BEATLESS_HOME", home.path().c_str(), 1);
+    const std::filesystem::path takes = ui::takes_dir();
+    std::filesystem::create_directories(takes);
+    const Take take = drone_and_voice(kFs, 110.0, {{5.0 / 4.0, 6.0}, {7.0 / 4.0, -4.0}}, 59);
+    beatless::test::write_test_take(takes, "2026-12-03_190000", take.samples, kFs, take.dur_s, true, 2);
+    const std::string flac = (takes / "2026-12-03_190000.flac").string();
+    ReviewRig rig(1, 0.0);
+    rig.frames(3);
+    const ui::ReviewView& v = *ui::review_view(*rig.screen);
+    REQUIRE(v.open);
+    REQUIRE(v.marks.size() == 2);
+    CHECK(v.heading.rfind("Interval 1 of 2   ", 0) == 0);
+    CHECK(v.against.rfind("against 5/2", 0) == 0);
+    ui::review_select(*rig.screen, 1, 0.0);
+    rig.frames(1);
+    CHECK(v.heading.rfind("Interval 2 of 2   ", 0) == 0);
+    CHECK(v.against.rfind("against 7/2", 0) == 0);
+
+    const auto json = beatless::test::run_program({"analyze", flac, "--voices", "2", "--format", "json"});
+    REQUIRE_MESSAGE(json.exit_code == 0, json.err);
+    CHECK(beatless::test::json_words(json.out, "[n['target'] for n in d['intervals']]") ==
+          std::vector<std::string>{"5/2", "7/2"});
+    const auto text = beatless::test::run_program({"analyze", flac, "--voices", "2"});
+    CHECK(text.out.find("  5/2  ") != std::string::npos);
+    CHECK(text.out.find("  7/2  ") != std::string::npos);
+    const auto csv = beatless::test::run_program({"analyze", flac, "--voices", "2", "--format", "csv"});
+
+    // Export: the CSV and JSON beside the take are what analyze prints for it; the report page is a PNG of the
+    // report's size (PNG signature and IHDR width and height, ISO/IEC 15948).
+    ui::review_export(*rig.screen, rig.app);
+    auto read = [](const std::filesystem::path& p) {
+        std::ifstream in(p, std::ios::binary);
+        return std::string(std::istreambuf_iterator<char>(in), {});
+    };
+    CHECK(read(takes / "2026-12-03_190000.csv") == csv.out);
+    CHECK(read(takes / "2026-12-03_190000.json") == json.out);
+    const std::string png = read(takes / "2026-12-03_190000.report.png");
+    REQUIRE(png.size() > 24);
+    CHECK(png.substr(0, 8) == "\x89PNG\r\n\x1a\n");
+    auto be32 = [&](std::size_t at) {
+        return (static_cast<unsigned>(static_cast<unsigned char>(png[at])) << 24) |
+               (static_cast<unsigned>(static_cast<unsigned char>(png[at + 1])) << 16) |
+               (static_cast<unsigned>(static_cast<unsigned char>(png[at + 2])) << 8) |
+               static_cast<unsigned>(static_cast<unsigned char>(png[at + 3]));
+    };
+    CHECK(be32(16) == static_cast<unsigned>(ui::kReportWidthPx));
+    CHECK(be32(20) == static_cast<unsigned>(ui::kReportHeightPx));
+    unsetenv("BEATLESS_HOME");
 }

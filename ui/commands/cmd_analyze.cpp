@@ -87,18 +87,6 @@ std::string dev_column(double dev_cents) {
 
 std::string base_name(const std::string& path) { return std::filesystem::path(path).filename().string(); }
 
-std::string duration_text(double s) {
-    if (s < 60.0) return pitch::format_trimmed(s, 1) + " s";
-    char buf[32];
-    const long whole = static_cast<long>(s);
-    if (whole >= 3600)
-        std::snprintf(buf, sizeof buf, "%ld:%02ld:%04.1f", whole / 3600, (whole / 60) % 60,
-                      s - 60.0 * static_cast<double>(whole / 60));
-    else
-        std::snprintf(buf, sizeof buf, "%ld:%04.1f", whole / 60, s - 60.0 * static_cast<double>(whole / 60));
-    return buf;
-}
-
 std::string today_text() {
     const std::time_t now = std::time(nullptr);
     std::tm tm{};
@@ -172,7 +160,7 @@ void print_one_voice(const AnalyzeOptions& o, const pitch::TargetSet& set, const
         std::printf("%s", one_voice_csv(set, a).c_str());
         return;
     }
-    std::printf("%s: %s at %s Hz, one voice against a drone\n", o.file.c_str(), duration_text(a.info.dur_s()).c_str(),
+    std::printf("%s: %s at %s Hz, one voice against a drone\n", o.file.c_str(), duration_words(a.info.dur_s()).c_str(),
                 pitch::format_trimmed(a.info.sample_rate_hz, 0).c_str());
     std::printf("%s", root_words(a, o.root, o.a4_hz).c_str());
     if (!a.root_given)
@@ -228,67 +216,17 @@ ReportData one_voice_report(const AnalyzeOptions& o, const pitch::TargetSet& set
 // ---------------------------------------------------------------------------
 // [SECTION] Two voices
 // ---------------------------------------------------------------------------
-const char* beat_source_name(pitch::BeatSource s) {
-    switch (s) {
-        case pitch::BeatSource::frequency_difference: return "frequency_difference";
-        case pitch::BeatSource::envelope: return "envelope";
-        case pitch::BeatSource::slower_than_history: return "slower_than_history";
-        case pitch::BeatSource::none: break;
-    }
-    return "none";
-}
-
 void print_two_voices(const AnalyzeOptions& o, const pitch::TargetSet& set, const TwoVoiceAnalysis& a) {
     const auto& dyads = a.dyads;
     if (o.format == Format::json) {
-        JsonWriter j;
-        j.begin_object().key("file").value(o.file).key("sample_rate").value(a.info.sample_rate_hz, 3);
-        j.key("duration_s").value(a.info.dur_s(), 3).key("voices").value(2);
-        j.key("targets").value(set.id).key("hop_s").value(a.hop_s, 7);
-        j.key("clipped_samples").value(static_cast<std::int64_t>(a.facts.clipped_samples));
-        if (a.drone_hz > 0.0)
-            j.key("drone_hz").value(a.drone_hz, 4);
-        else
-            j.key("drone_hz").null();
-        j.key("intervals").begin_array();
-        for (std::size_t k = 0; k < dyads.size(); ++k) {
-            const pitch::DyadResult& d = dyads[k];
-            j.begin_object().key("start_s").value(d.start_s, 4).key("end_s").value(d.end_s, 4);
-            j.key("f_low_hz").value(d.f_low_hz, 4).key("f_high_hz").value(d.f_high_hz, 4);
-            j.key("interval_cents").value(d.interval_cents, 3).key("ratio").value(d.f_high_hz / d.f_low_hz, 6);
-            add_target_json(j, set, d.target_index);
-            j.key("target_octaves").value(d.target_octaves);
-            j.key("dev_cents").value(d.dev_cents, 3).key("spread_cents").value(d.spread_cents, 3);
-            add_judgement_json(j, set, a.judged[k], true);
-            j.key("partial_low").value(d.partial_low).key("partial_high").value(d.partial_high);
-            j.key("predicted_beat_hz")
-                .value(d.predicted_beat_hz, 3)
-                .key("measured_beat_hz")
-                .value(d.measured_beat_hz, 3);
-            j.key("beat_source").value(beat_source_name(d.beat_source));
-            j.key("clipped").value(d.clipped_frames > 0).end_object();
-        }
-        j.end_array();
-        add_summary_json(j, set, a.summary, true);
-        j.end_object();
-        std::printf("%s\n", j.str().c_str());
+        std::printf("%s\n", two_voice_json(o.file, set, a).c_str());
         return;
     }
-    auto num = [](double v, int d) { return std::isfinite(v) ? pitch::format_trimmed(v, d) : std::string(); };
     if (o.format == Format::csv) {
-        std::printf(
-            "start_s,end_s,f_low_hz,f_high_hz,interval_cents,target,target_name,dev_cents,spread_cents,predicted_beat_"
-            "hz,measured_beat_hz\n");
-        for (const auto& d : dyads)
-            std::printf("%s,%s,%s,%s,%s,%s,%s,%s,%s,%s,%s\n", num(d.start_s, 4).c_str(), num(d.end_s, 4).c_str(),
-                        num(d.f_low_hz, 4).c_str(), num(d.f_high_hz, 4).c_str(), num(d.interval_cents, 3).c_str(),
-                        csv_field(target_text(set, d.target_index)).c_str(),
-                        csv_field(target_name(set, d.target_index)).c_str(), num(d.dev_cents, 3).c_str(),
-                        num(d.spread_cents, 3).c_str(), num(d.predicted_beat_hz, 3).c_str(),
-                        num(d.measured_beat_hz, 3).c_str());
+        std::printf("%s", two_voice_csv(set, a).c_str());
         return;
     }
-    std::printf("%s: %s at %s Hz, two voices\n", o.file.c_str(), duration_text(a.info.dur_s()).c_str(),
+    std::printf("%s: %s at %s Hz, two voices\n", o.file.c_str(), duration_words(a.info.dur_s()).c_str(),
                 pitch::format_trimmed(a.info.sample_rate_hz, 0).c_str());
     if (a.drone_hz > 0.0)
         std::printf("a steady drone at %s Hz is the low voice: it is removed and the other voice measured against it\n",
@@ -298,19 +236,20 @@ void print_two_voices(const AnalyzeOptions& o, const pitch::TargetSet& set, cons
         std::printf("%s\n", nothing_found_words(a.heard.loudest_dbfs, a.heard.snr_db, true).c_str());
         return;
     }
-    std::printf("%4s %8s %8s %9s %9s %9s  %-12s %-22s %8s %8s %9s %9s\n", "#", "start s", "end s", "low Hz", "high Hz",
+    std::printf("%4s %8s %8s %9s %9s %9s  %-12s %-26s %8s %8s %9s %9s\n", "#", "start s", "end s", "low Hz", "high Hz",
                 "cents", "target", "name", "dev c", "spread c", "beat Hz", "measured");
     int k = 0;
     for (std::size_t i = 0; i < dyads.size(); ++i) {
         const pitch::DyadResult& d = dyads[i];
-        const std::string tgt = target_column(set, d.target_index, d.target_octaves);
-        std::string name = target_name(set, d.target_index);
-        if (name.size() > 22) name = name.substr(0, 21) + "~";
+        // Named in the octave it was matched at, as the live two-voice readout names it (14/5, not 7/5).
+        const std::string tgt = d.target_index < 0 ? "-" : target_text_at(set, d.target_index, d.target_octaves);
+        std::string name = target_name_at(set, d.target_index, d.target_octaves);
+        if (name.size() > 26) name = name.substr(0, 25) + "~";
         const std::string meas = std::isfinite(d.measured_beat_hz) ? pitch::format_trimmed(d.measured_beat_hz, 2) : "-";
         const std::string remark = judgement_words(a.judged[i], set, true);
         const std::string pred =
             std::isfinite(d.predicted_beat_hz) ? pitch::format_trimmed(d.predicted_beat_hz, 2) : "-";
-        std::printf("%4d %8.3f %8.3f %9.3f %9.3f %9.2f  %-12s %-22s %8s %8.1f %9s %9s%s%s%s\n", ++k, d.start_s, d.end_s,
+        std::printf("%4d %8.3f %8.3f %9.3f %9.3f %9.2f  %-12s %-26s %8s %8.1f %9s %9s%s%s%s\n", ++k, d.start_s, d.end_s,
                     d.f_low_hz, d.f_high_hz, d.interval_cents, tgt.c_str(), name.c_str(),
                     dev_column(d.dev_cents).c_str(), d.spread_cents, pred.c_str(), meas.c_str(),
                     d.clipped_frames > 0 ? "  clipped" : "", remark.empty() ? "" : "  ", remark.c_str());
@@ -323,15 +262,9 @@ void print_two_voices(const AnalyzeOptions& o, const pitch::TargetSet& set, cons
 }
 
 ReportData two_voice_report(const AnalyzeOptions& o, const pitch::TargetSet& set, const TwoVoiceAnalysis& a) {
-    ReportData d = report_of(set, a.dyads, a.summary, true, [](const pitch::DyadResult& y) {
-        return ReportMark{y.start_s, y.end_s, y.interval_cents, y.target_cents, y.dev_cents};
-    });
+    ReportData d = two_voice_report_data(set, a);
     d.title = base_name(o.file);
     d.subtitle = "two voices   \u00b7   targets: " + set.title + "   \u00b7   analyzed " + today_text();
-    d.axis_label = "cents above the low voice";
-    d.mark_word = "interval";
-    d.dur_s = a.info.dur_s();
-    d.trace = &a.trace;
     return d;
 }
 

@@ -38,6 +38,7 @@
 #include "ui/session/paths.h"
 #include "ui/session/safe_file.h"
 #include "ui/session/take_recording.h"
+#include "ui/session/take_words.h"
 #include "ui/session/target_files.h"
 #include "ui/session/usage_error.h"
 #include "ui/session/wording.h"
@@ -89,9 +90,9 @@ struct ListenOptions {
     double hop_ms = 5.0;
     std::string lowest;
     std::uint64_t seed = 7;
-    int voices = 1;         // 2: two voices in one input (a double stop, a duet)
-    bool record = false;    // --record given
-    std::string record_to;  // its FILE or folder; "" = the data folder's takes/
+    int voices = 1;                      // 2: two voices in one input (a double stop, a duet)
+    bool record = false;                 // --record given
+    std::string record_to;               // its FILE or folder; "" = the data folder's takes/
     std::string octaves = "equivalent";  // two voices: targets matched in every octave, or "exact"
     double in_tune_cents = 5.0;          // two voices: no move suggested within this
 };
@@ -324,8 +325,8 @@ std::filesystem::path take_target(const ListenOptions& o) {
     ensure_dir(dir);
     for (const RecoveredTake& r : recover_takes(dir)) {
         if (r.problem.empty())
-            std::fprintf(stderr, "beatless: recovered a take cut short: %s (%s s)\n", r.audio_path.c_str(),
-                         pitch::format_trimmed(r.duration_s, 1).c_str());
+            std::fprintf(stderr, "beatless: recovered a take cut short: %s (%s)\n", r.audio_path.c_str(),
+                         duration_words(r.duration_s).c_str());
         else
             std::fprintf(stderr, "beatless: %s\n", r.problem.c_str());
     }

@@ -58,14 +58,6 @@ constexpr KeyHelp kReviewKeys[] = {
 constexpr double kMinSpanS = 0.5;  // the closest zoom
 constexpr const char* kDefaultSet = "7-limit";
 
-std::string duration_words(double s) {
-    if (!std::isfinite(s)) return "?";
-    char buf[32];
-    const long whole = std::lround(std::floor(s));
-    std::snprintf(buf, sizeof buf, "%ld:%02ld", whole / 60, whole % 60);
-    return buf;
-}
-
 // "2026-12-03 16:15" from the take's name (its start, local time), else the file name.
 std::string take_when(const TakeInfo& t) {
     std::string s = t.audio_path.stem().string();
@@ -98,6 +90,7 @@ public:
 
     const ReviewView& view() const { return view_; }
     void select(int note, double span_s);
+    void export_report(AppState& app);
 
 private:
     void list_takes_now();
@@ -115,13 +108,13 @@ private:
     void draw_trace(ImDrawList* dl, const pitch::DecimatedTrace& trace, std::uint32_t colour);
     void draw_time_axis(ImDrawList* dl);
     void draw_mark(ImDrawList* dl, const ReviewMarkView& m, float y_lo, float y_hi);
+    float draw_item_heading(ImDrawList* dl, float x, float y);
     float draw_duo_detail(AppState& app, ImDrawList* dl, float x, float y, float w);
     float draw_note_detail(AppState& app, ImDrawList* dl, float x, float y, float w);
     int voices_asked_ = 0;  // 0: as the take was recorded; 1 or 2: as chosen on the screen
     void draw_detail(AppState& app, ImDrawList* dl, float x, float y, float w, float h);
     void sound(AppState& app, bool target);
     void hear(AppState& app, ClipKind kind);
-    void export_report(AppState& app);
     void rename(AppState& app, const std::string& stem);
     char rename_buf_[96] = "";
     std::string target_text(int index) const;
@@ -253,25 +246,27 @@ void ReviewScreen::hear(AppState& app, ClipKind kind) {
 }
 
 // Beside the take: the printable page `analyze --report` draws (NAME.report.png) and what `analyze --format csv`
-// and `--format json` print (NAME.csv, NAME.json), each written safely (ui/session/safe_file.h).
+// and `--format json` print (NAME.csv, NAME.json), for one voice or two as the take is read, each written safely
+// (ui/session/safe_file.h).
 void ReviewScreen::export_report(AppState& app) {
     if (!take_ || !take_->error.empty()) return;
-    if (take_->voices == 2) {
-        app.post("export: two-voice takes are exported by `beatless analyze --voices 2`", true);
-        return;
-    }
+    const bool duo = take_->voices == 2;
     std::filesystem::path p(take_->path);
-    ReportData d = one_voice_report_data(take_->set, take_->analysis);
+    ReportData d =
+        duo ? two_voice_report_data(take_->set, take_->duo) : one_voice_report_data(take_->set, take_->analysis);
     d.title = take_->title;
-    d.subtitle = "root " + pitch::format_trimmed(take_->analysis.root_hz, 3) +
-                 " Hz   \u00b7   targets: " + take_->set.title +
-                 (take_->expect.empty() ? "" : "   \u00b7   meant: " + take_->expect);
+    const std::string meant = take_->expect.empty() ? "" : "   \u00b7   meant: " + take_->expect;
+    d.subtitle = duo ? "two voices   \u00b7   targets: " + take_->set.title + meant
+                     : "root " + pitch::format_trimmed(take_->analysis.root_hz, 3) +
+                           " Hz   \u00b7   targets: " + take_->set.title + meant;
     try {
         write_report(std::filesystem::path(p).replace_extension(".report.png").string(), d);
         write_file_safely(std::filesystem::path(p).replace_extension(".csv"),
-                          one_voice_csv(take_->set, take_->analysis));
+                          duo ? two_voice_csv(take_->set, take_->duo) : one_voice_csv(take_->set, take_->analysis));
         write_file_safely(std::filesystem::path(p).replace_extension(".json"),
-                          one_voice_json(take_->path, take_->set, take_->analysis) + "\n");
+                          (duo ? two_voice_json(take_->path, take_->set, take_->duo)
+                               : one_voice_json(take_->path, take_->set, take_->analysis)) +
+                              "\n");
         app.post("report, CSV and JSON written beside " + take_->title);
     } catch (const std::exception& e) {
         app.post(e.what(), true);
@@ -478,7 +473,7 @@ void ReviewScreen::draw_mark(ImDrawList* dl, const ReviewMarkView& m, float y_lo
                                                v.plot_x1 - 0.5f * ls.x - 4.0f)),
                     above = std::round(m.y - r - 0.35f * u - ls.y),
                     // A mark near the plot's top edge carries its deviation under the bar instead of half cut off.
-                    ly = above >= v.plot_y0 + 2.0f ? above : std::round(m.y + r + 0.35f * u);
+            ly = above >= v.plot_y0 + 2.0f ? above : std::round(m.y + r + 0.35f * u);
         dl->AddRectFilled(ImVec2(cx - 0.5f * ls.x - 4, ly - 1), ImVec2(cx + 0.5f * ls.x + 4, ly + ls.y + 1),
                           palette::with_alpha(palette::kPanel, 225), 3.0f);
         draw_text_centred(dl, FontFace::bold, cx, ly, m.colour, label);
@@ -559,18 +554,27 @@ void ReviewScreen::draw_duo(AppState& app, ImDrawList* dl) {
     dl->PopClipRect();
 }
 
+// The selected item's heading, "Note 2 of 5   1.20 - 2.85 s" ("Interval ..." for two voices); returns the next line's
+// top.
+float ReviewScreen::draw_item_heading(ImDrawList* dl, float x, float y) {
+    const float u = ui_unit();
+    const float pad = std::round(0.6f * u);
+    const ItemSpan s = item_span(*take_, selected_);
+    char head[128];
+    std::snprintf(head, sizeof head, "%s %d of %d   %.2f - %.2f s", take_->voices == 2 ? "Interval" : "Note",
+                  selected_ + 1, item_count(*take_), s.start_s, s.end_s);
+    draw_text(dl, FontFace::bold, ImVec2(x + pad, y + pad), palette::kTextDim, head);
+    view_.heading = head;
+    return y + pad + std::round(1.5f * u);
+}
+
 // The selected interval: its deviation (wide, narrow), the target, both voices, spread and beat rates.
 float ReviewScreen::draw_duo_detail(AppState& app, ImDrawList* dl, float x, float y, float w) {
     const float u = ui_unit();
     const float pad = std::round(0.6f * u);
     const TwoVoiceAnalysis& a = take_->duo;
     const pitch::DyadResult& d = a.dyads[static_cast<std::size_t>(selected_)];
-    float ty = y + pad;
-    char head[128];
-    std::snprintf(head, sizeof head, "Interval %d of %zu   %.2f - %.2f s", selected_ + 1, a.dyads.size(), d.start_s,
-                  d.end_s);
-    draw_text(dl, FontFace::bold, ImVec2(x + pad, ty), palette::kTextDim, head);
-    ty += std::round(1.5f * u);
+    float ty = draw_item_heading(dl, x, y);
     std::string big = "between targets", against;
     std::uint32_t colour = palette::kTextDim;
     const double in_tune = app.settings().in_tune_cents;
@@ -580,9 +584,13 @@ float ReviewScreen::draw_duo_detail(AppState& app, ImDrawList* dl, float x, floa
               (std::fabs(d.dev_cents) <= in_tune ? "in tune"
                : d.dev_cents > 0.0               ? "wide"
                                                  : "narrow");
-        against = "against " + target_text(d.target_index);
+        // Named in the octave it was matched at, as the live two-voice readout and `analyze --voices 2` name it.
+        against = "against " + target_text_at(take_->set, d.target_index, d.target_octaves);
+        if (const std::string name = target_name_at(take_->set, d.target_index, d.target_octaves); !name.empty())
+            against += ", " + name;
     }
     draw_text(dl, FontFace::large, ImVec2(x + pad, ty), colour, big);
+    view_.against = against;
     const float big_w = text_size(FontFace::large, big).x;
     draw_text(dl, FontFace::body, ImVec2(x + pad + big_w + u, ty + 0.5f * font_px(FontFace::large) - 0.5f * u),
               palette::kText, fit_text(FontFace::body, against, w - 3 * pad - big_w - u));
@@ -738,12 +746,7 @@ float ReviewScreen::draw_note_detail(AppState& app, ImDrawList* dl, float x, flo
     const OneVoiceAnalysis& a = take_->analysis;
     const auto& n = a.notes[static_cast<std::size_t>(selected_)];
     const auto& j = take_->analysis.judged[static_cast<std::size_t>(selected_)];
-    float ty = y + pad;
-    char head[128];
-    std::snprintf(head, sizeof head, "Note %d of %zu   %.2f - %.2f s", selected_ + 1, a.notes.size(), n.start_s,
-                  n.end_s);
-    draw_text(dl, FontFace::bold, ImVec2(x + pad, ty), palette::kTextDim, head);
-    ty += std::round(1.5f * u);
+    float ty = draw_item_heading(dl, x, y);
     std::string big, against;
     std::uint32_t colour = palette::kTextDim;
     if (std::isfinite(n.dev_cents)) {
@@ -758,6 +761,7 @@ float ReviewScreen::draw_note_detail(AppState& app, ImDrawList* dl, float x, flo
                   ", the nearest; none within " + pitch::format_trimmed(pitch::IntentConfig{}.between_cents, 0) + " c";
     }
     draw_text(dl, FontFace::large, ImVec2(x + pad, ty), colour, big);
+    view_.against = against;
     const float big_w = text_size(FontFace::large, big).x;
     draw_text(dl, FontFace::body, ImVec2(x + pad + big_w + u, ty + 0.5f * font_px(FontFace::large) - 0.5f * u),
               palette::kText, fit_text(FontFace::body, against, w - 3 * pad - big_w - u));
@@ -783,6 +787,8 @@ void ReviewScreen::draw_detail(AppState& app, ImDrawList* dl, float x, float y, 
     const float u = ui_unit();
     draw_panel(dl, x, y, w, h);
     const float pad = std::round(0.6f * u);
+    view_.heading.clear();
+    view_.against.clear();
     if (!take_ || !take_->error.empty()) return;
     const HeardLevels& heard = take_->voices == 2 ? take_->duo.heard : take_->analysis.heard;
     if (item_count(*take_) == 0) {
@@ -973,6 +979,10 @@ const ReviewView* review_view(const Screen& screen) {
 
 void review_select(Screen& screen, int note, double span_s) {
     if (auto* r = dynamic_cast<ReviewScreen*>(&screen)) r->select(note, span_s);
+}
+
+void review_export(Screen& screen, AppState& app) {
+    if (auto* r = dynamic_cast<ReviewScreen*>(&screen)) r->export_report(app);
 }
 
 }  // namespace beatless::ui

@@ -33,6 +33,8 @@ struct ReviewView {
     std::vector<ReviewMarkView> marks;      // the notes in view
     int selected = -1;                      // the selected note, -1 for none
     std::vector<std::string> takes;         // the list's rows as drawn
+    std::string heading;                    // the selected item's heading ("Note 2 of 3   2.25 - 3.85 s"), or ""
+    std::string against;                    // what it is judged against ("against 14/5, ..."), or ""
     float x_of(double t_s) const {
         return plot_x0 + static_cast<float>((t_s - t0_s) / (t1_s - t0_s)) * (plot_x1 - plot_x0);
     }
@@ -46,5 +48,7 @@ std::unique_ptr<Screen> make_review_screen();
 const ReviewView* review_view(const Screen& screen);
 // Selects a note and zooms the view to `span_s` seconds around it (tests, snapshots); -1 selects none.
 void review_select(Screen& screen, int note, double span_s);
+// Writes the open take's report PNG, CSV and JSON beside it, as the screen's Export button does (tests).
+void review_export(Screen& screen, AppState& app);
 
 }  // namespace beatless::ui

@@ -19,6 +19,7 @@
 #include <cfloat>
 #include <cmath>
 #include <cstdio>
+#include <utility>
 
 namespace beatless::ui {
 
@@ -490,17 +491,33 @@ void write_report(const std::string& path, const ReportData& data) {
     write_file_safely(path, encode_png(page, path));
 }
 
+namespace {
+// A note's or an interval's mark; one between targets has no target: its stem is empty and its label says so.
+ReportMark mark_at(double start_s, double end_s, double cents, double target_cents, double dev_cents) {
+    return ReportMark{start_s, end_s, cents, std::isfinite(target_cents) ? target_cents : cents, dev_cents};
+}
+ReportData with_axis(ReportData d, const char* axis_label, const char* mark_word, double dur_s,
+                     const pitch::DecimatedTrace& trace) {
+    d.axis_label = axis_label;
+    d.mark_word = mark_word;
+    d.dur_s = dur_s;
+    d.trace = &trace;
+    return d;
+}
+}  // namespace
+
 ReportData one_voice_report_data(const pitch::TargetSet& set, const OneVoiceAnalysis& a) {
     ReportData d = report_of(set, a.notes, a.summary, false, [](const pitch::NoteResult& n) {
-        // A note between targets has none: its stem is empty and its label says so.
-        return ReportMark{n.start_s, n.end_s, n.cents_above_root,
-                          std::isfinite(n.target_cents) ? n.target_cents : n.cents_above_root, n.dev_cents};
+        return mark_at(n.start_s, n.end_s, n.cents_above_root, n.target_cents, n.dev_cents);
     });
-    d.axis_label = "cents above the root";
-    d.mark_word = "note";
-    d.dur_s = a.info.dur_s();
-    d.trace = &a.trace;
-    return d;
+    return with_axis(std::move(d), "cents above the root", "note", a.info.dur_s(), a.trace);
+}
+
+ReportData two_voice_report_data(const pitch::TargetSet& set, const TwoVoiceAnalysis& a) {
+    ReportData d = report_of(set, a.dyads, a.summary, true, [](const pitch::DyadResult& y) {
+        return mark_at(y.start_s, y.end_s, y.interval_cents, y.target_cents, y.dev_cents);
+    });
+    return with_axis(std::move(d), "cents above the low voice", "interval", a.info.dur_s(), a.trace);
 }
 
 }  // namespace beatless::ui

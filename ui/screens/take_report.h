@@ -112,5 +112,7 @@ ReportData report_of(const pitch::TargetSet& set, const std::vector<Item>& items
 
 // One voice's report data: the notes, summary, trace (kept for as long as `a` lives), axis and length.
 ReportData one_voice_report_data(const pitch::TargetSet& set, const OneVoiceAnalysis& a);
+// Two voices' report data: the intervals (cents of the upper voice above the lower), summary, trace, axis and length.
+ReportData two_voice_report_data(const pitch::TargetSet& set, const TwoVoiceAnalysis& a);
 
 }  // namespace beatless::ui

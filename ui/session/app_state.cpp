@@ -15,6 +15,7 @@
 #include "pitch/base/text.h"
 #include "pitch/theory/interval.h"
 #include "pitch/theory/notes.h"
+#include "ui/session/take_words.h"
 #include "ui/session/target_files.h"
 
 #include <algorithm>
@@ -145,7 +146,7 @@ void AppState::start() {
         try {
             for (const RecoveredTake& r : recover_takes(takes_dir()))
                 post(r.problem.empty() ? "recovered a take cut short: " + r.audio_path.filename().string() + " (" +
-                                             pitch::format_trimmed(r.duration_s, 1) + " s)"
+                                             duration_words(r.duration_s) + ")"
                                        : r.problem,
                      !r.problem.empty());
         } catch (const Error& e) {

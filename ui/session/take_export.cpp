@@ -10,6 +10,13 @@
 
 namespace beatless::ui {
 
+namespace {
+// A CSV number: up to `decimals` places, empty when not finite.
+std::string num(double v, int decimals) {
+    return std::isfinite(v) ? pitch::format_trimmed(v, decimals) : std::string();
+}
+}  // namespace
+
 void add_target_json(JsonWriter& j, const pitch::TargetSet& set, int index) {
     if (index < 0) {
         j.key("target").null().key("target_name").null();
@@ -96,7 +103,6 @@ std::string one_voice_csv(const pitch::TargetSet& set, const OneVoiceAnalysis& a
     std::string out =
         "start_s,end_s,f0_hz,ratio,target,target_name,dev_cents,spread_cents,settle_s,beat_hz,partial_root,partial_"
         "voice,beat_in_tune_hz\n";
-    auto num = [](double v, int d) { return std::isfinite(v) ? pitch::format_trimmed(v, d) : std::string(); };
     auto whole = [](int v) { return v > 0 ? std::to_string(v) : std::string(); };
     for (const auto& n : a.notes)
         out += num(n.start_s, 4) + "," + num(n.end_s, 4) + "," + num(n.centre_f0_hz, 4) + "," + num(n.ratio, 6) + "," +
@@ -104,6 +110,72 @@ std::string one_voice_csv(const pitch::TargetSet& set, const OneVoiceAnalysis& a
                "," + num(n.dev_cents, 3) + "," + num(n.spread_cents, 3) + "," + num(n.settle_s, 3) + "," +
                num(n.beat_hz, 3) + "," + whole(n.partial_root) + "," + whole(n.partial_voice) + "," +
                num(n.beat_in_tune_hz, 3) + "\n";
+    return out;
+}
+
+// ---------------------------------------------------------------------------
+// Two voices
+// ---------------------------------------------------------------------------
+
+namespace {
+const char* beat_source_name(pitch::BeatSource s) {
+    switch (s) {
+        case pitch::BeatSource::frequency_difference: return "frequency_difference";
+        case pitch::BeatSource::envelope: return "envelope";
+        case pitch::BeatSource::slower_than_history: return "slower_than_history";
+        case pitch::BeatSource::none: break;
+    }
+    return "none";
+}
+}  // namespace
+
+std::string two_voice_json(const std::string& file, const pitch::TargetSet& set, const TwoVoiceAnalysis& a) {
+    JsonWriter j;
+    j.begin_object().key("file").value(file).key("sample_rate").value(a.info.sample_rate_hz, 3);
+    j.key("duration_s").value(a.info.dur_s(), 3).key("voices").value(2);
+    j.key("targets").value(set.id).key("hop_s").value(a.hop_s, 7);
+    j.key("clipped_samples").value(static_cast<std::int64_t>(a.facts.clipped_samples));
+    if (a.drone_hz > 0.0)
+        j.key("drone_hz").value(a.drone_hz, 4);
+    else
+        j.key("drone_hz").null();
+    j.key("intervals").begin_array();
+    for (std::size_t k = 0; k < a.dyads.size(); ++k) {
+        const pitch::DyadResult& d = a.dyads[k];
+        j.begin_object().key("start_s").value(d.start_s, 4).key("end_s").value(d.end_s, 4);
+        j.key("f_low_hz").value(d.f_low_hz, 4).key("f_high_hz").value(d.f_high_hz, 4);
+        j.key("interval_cents").value(d.interval_cents, 3).key("ratio").value(d.f_high_hz / d.f_low_hz, 6);
+        // The interval's target in the octave it was matched at, as `listen --voices 2` names it.
+        if (d.target_index < 0)
+            j.key("target").null().key("target_name").null();
+        else
+            j.key("target")
+                .value(target_text_at(set, d.target_index, d.target_octaves))
+                .key("target_name")
+                .value(target_name_at(set, d.target_index, d.target_octaves));
+        j.key("target_octaves").value(d.target_octaves);
+        j.key("dev_cents").value(d.dev_cents, 3).key("spread_cents").value(d.spread_cents, 3);
+        add_judgement_json(j, set, a.judged[k], true);
+        j.key("partial_low").value(d.partial_low).key("partial_high").value(d.partial_high);
+        j.key("predicted_beat_hz").value(d.predicted_beat_hz, 3).key("measured_beat_hz").value(d.measured_beat_hz, 3);
+        j.key("beat_source").value(beat_source_name(d.beat_source));
+        j.key("clipped").value(d.clipped_frames > 0).end_object();
+    }
+    j.end_array();
+    add_summary_json(j, set, a.summary, true);
+    j.end_object();
+    return j.str();
+}
+
+std::string two_voice_csv(const pitch::TargetSet& set, const TwoVoiceAnalysis& a) {
+    std::string out =
+        "start_s,end_s,f_low_hz,f_high_hz,interval_cents,target,target_name,dev_cents,spread_cents,predicted_beat_hz,"
+        "measured_beat_hz\n";
+    for (const auto& d : a.dyads)
+        out += num(d.start_s, 4) + "," + num(d.end_s, 4) + "," + num(d.f_low_hz, 4) + "," + num(d.f_high_hz, 4) + "," +
+               num(d.interval_cents, 3) + "," + csv_field(target_text_at(set, d.target_index, d.target_octaves)) + "," +
+               csv_field(target_name_at(set, d.target_index, d.target_octaves)) + "," + num(d.dev_cents, 3) + "," +
+               num(d.spread_cents, 3) + "," + num(d.predicted_beat_hz, 3) + "," + num(d.measured_beat_hz, 3) + "\n";
     return out;
 }
 

@@ -5,6 +5,7 @@
 #include "pitch/base/text.h"
 #include "pitch/theory/notes.h"
 #include "ui/session/safe_file.h"
+#include "ui/session/take_words.h"
 
 #include <ctime>
 
@@ -83,7 +84,7 @@ std::string TakeRecording::stop() {
     if (!problem.empty()) {
         result_ = problem;
     } else {
-        result_ = "recorded " + pitch::format_trimmed(dur_s, 1) + " s to " + info_.audio_path.string();
+        result_ = "recorded " + duration_words(dur_s) + " to " + info_.audio_path.string();
         if (const std::uint64_t lost = recorder_->overflow_frames(); lost > 0)
             result_ += " (" + pitch::format_trimmed(static_cast<double>(lost) / info_.rate_hz, 2) +
                        " s dropped: the disk was too slow)";

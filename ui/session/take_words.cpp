@@ -1,10 +1,13 @@
 // Take words (take_words.h).
 #include "ui/session/take_words.h"
 
+#include "pitch/base/error.h"
 #include "pitch/base/text.h"
+#include "pitch/theory/targets.h"
 #include "ui/session/target_files.h"
 
 #include <cmath>
+#include <cstdio>
 
 namespace beatless::ui {
 
@@ -21,6 +24,22 @@ std::string target_name_of(const pitch::TargetSet& set, int index) {
     if (!t.name.empty()) return t.name;
     const std::string* n = interval_names().find(t.interval);
     return n ? *n : "";
+}
+
+std::string target_text_at(const pitch::TargetSet& set, int index, int octaves) {
+    if (octaves == 0 || index < 0 || static_cast<std::size_t>(index) >= set.targets.size())
+        return target_text_of(set, index);
+    try {
+        return pitch::shift_octaves(set.targets[static_cast<std::size_t>(index)].interval, octaves).str();
+    } catch (const Error&) {  // the shifted ratio overflows: the target with its octaves said
+        return target_text_of(set, index) + (octaves > 0 ? " +" : " ") + std::to_string(octaves) + "oct";
+    }
+}
+
+std::string target_name_at(const pitch::TargetSet& set, int index, int octaves) {
+    if (octaves == 0 || index < 0 || static_cast<std::size_t>(index) >= set.targets.size())
+        return target_name_of(set, index);
+    return pitch::target_name_in_octave(set.targets[static_cast<std::size_t>(index)], octaves, interval_names());
 }
 
 std::string root_words(const pitch::RootEstimate& e) {
@@ -70,6 +89,19 @@ std::string judgement_words(const pitch::NoteJudgement& j, const pitch::TargetSe
                off_words(j.meant_dev_cents, intervals) + ": that is " +
                format_trimmed(std::fabs(j.nearest.dev_cents), 1) + " c from " + text(j.nearest.index);
     return "";
+}
+
+std::string duration_words(double dur_s) {
+    if (!(dur_s >= 0.0 && dur_s < 1e9)) return "?";  // not finite, negative or absurd
+    const long long whole = std::llround(dur_s);     // to the nearest second: 11.984 s is 12 s
+    char buf[48];
+    if (whole < 60)
+        std::snprintf(buf, sizeof buf, "%lld s", whole);
+    else if (whole < 3600)
+        std::snprintf(buf, sizeof buf, "%lld:%02lld", whole / 60, whole % 60);
+    else
+        std::snprintf(buf, sizeof buf, "%lld:%02lld:%02lld", whole / 3600, (whole / 60) % 60, whole % 60);
+    return buf;
 }
 
 std::string nothing_found_words(double loudest_dbfs, double snr_db, bool intervals) {

@@ -15,6 +15,10 @@ std::string root_words(const pitch::RootEstimate& e);
 // targets/names.toml); "" for an index out of range (a note between targets).
 std::string target_text_of(const pitch::TargetSet& set, int index);
 std::string target_name_of(const pitch::TargetSet& set, int index);
+// The same target moved by the octaves it was matched at, as the live two-voice readout names an interval
+// (pitch::shift_octaves, pitch::target_name_in_octave): 7/5 an octave up is "14/5"; unchanged for octaves == 0.
+std::string target_text_at(const pitch::TargetSet& set, int index, int octaves);
+std::string target_name_at(const pitch::TargetSet& set, int index, int octaves);
 // "7/5 averages 6 cents flat (3 notes, spread 1.2 cents)"; between two voices
 // (intervals true) "... 6 cents narrow (3 intervals, ...)", wide for sharp.
 std::string summary_words(const pitch::TargetSummary& row, const std::string& name, bool intervals);
@@ -24,6 +28,9 @@ std::string summary_words(const pitch::TargetSummary& row, const std::string& na
 std::string judgement_words(const pitch::NoteJudgement& j, const pitch::TargetSet& set, bool intervals);
 // "12 c flat", "0.5 c sharp", "in tune"; narrow and wide between two voices.
 std::string off_words(double dev_cents, bool intervals);
+// A take's length as every screen and command shows it, rounded to the nearest second: "12 s" under a minute, "1:05"
+// (minutes:seconds) under an hour, "1:02:03" from an hour; "?" when unknown (not finite or negative).
+std::string duration_words(double dur_s);
 // The one-line hint when a take gave nothing: the level, the estimated SNR and what to try.
 std::string nothing_found_words(double loudest_dbfs, double snr_db, bool intervals);
 
