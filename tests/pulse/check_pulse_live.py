@@ -262,13 +262,19 @@ def main():
     take = os.path.join(runtime, "take.wav")
     voice_start = write_take(take, 4.0)
     ls = Listener(["--targets", "tritones", "--root", "D3", "--seconds", "5"], env, home)
-    time.sleep(0.5)
+    # Played once the program reads (its first reading is out), so the note is heard from its start: with a fixed
+    # 0.5 s from the launch, a program slower to start (a sanitizer build, a busy machine) heard the voice only from
+    # mid-note, and the steady part, timed from the voice's first readings, ran past the note's end.
+    deadline = time.time() + 10
+    while time.time() < deadline and not any(l.startswith("{") for _, l in ls.out):
+        time.sleep(0.02)
+    time.sleep(0.2)
     played_at = time.time()
     subprocess.run(["paplay", "-d", "room", take], env=env, timeout=20)
     ls.wait(20)
     got = ls.readings()
-    # Stream time of the voice's start. The wall clock places it only roughly (a sound server may hold a new
-    # stream's first audio and then deliver it in a burst, which shifted the estimate by up to 0.6 s), so it is
+    # Stream time of the voice's start. The wall clock places it only roughly (paplay's own start through the server
+    # varies: the estimate was 0.09-0.19 s early on PipeWire here, once 0.9 s on PulseAudio), so it is
     # taken from the readings: the first of ten in a row within 50 c of the voice's true pitch (7/5 six cents
     # flat over D3). The steady part is then fixed by the take's own timing; any reading in it may still fail.
     first_stream_t = got[0][1]["t"] - (got[0][0] - ls.t0) if got else 0.0
