@@ -14,8 +14,8 @@ The helper prints the filter's impulse response for a few rates, roots and feedb
 3. The claims the header makes: for g = 0 and 0.5 every partial of the root to 2 kHz is removed (below -60 dB);
    midway between partials the gain is 2 / (1 + g) (within 0.05 dB); a voice at 320 Hz over a 110 Hz drone
    changes its SNR against white noise by -2.35 dB at g = 0.5 (|H(320)|^2 over the mean power gain, sum h^2 by
-   Parseval), +0.08 dB at g = 0.95, and -7.99 dB through the feedforward comb (g = 0: 2 |sin(pi f D / rate)| = 0.566 against a mean power
-   gain of 2); each within 0.3 dB (the interpolator's droop towards rate / 2 lowers the mean power gain a little:
+   Parseval), +0.08 dB at g = 0.95, and -7.99 dB through the feedforward comb (g = 0: 2 |sin(pi f D / rate)| =
+   0.566 against a mean power gain of 2); each within 0.3 dB (the interpolator's droop towards rate / 2 lowers the mean power gain a little:
    measured 0.1 to 0.2 dB better than the ideal comb's).
 Exits 1 on any disagreement.
 """
