@@ -55,6 +55,18 @@ void DroneComb::process(std::span<const float> in, std::span<float> out) noexcep
     const float* h = hist_.data();
     const double* o = out_.data();
     const double g = cfg_.feedback;
+    if (g == 0.0) {  // the feedforward comb alone: no output ring to keep (the analysis's case)
+        for (std::size_t i = 0; i < n; ++i) {
+            const float x = in[i];
+            hist_[pos_] = x;
+            const std::size_t b = pos_ + hist_.size() - whole_;
+            const double xd = c_[0] * h[(b + 1) & mask_] + c_[1] * h[b & mask_] + c_[2] * h[(b - 1) & mask_] +
+                              c_[3] * h[(b - 2) & mask_];
+            out[i] = static_cast<float>(static_cast<double>(x) - xd);
+            pos_ = (pos_ + 1) & mask_;
+        }
+        return;
+    }
     for (std::size_t i = 0; i < n; ++i) {
         const float x = in[i];
         hist_[pos_] = x;
