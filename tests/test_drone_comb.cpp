@@ -1,12 +1,14 @@
 // DroneComb on signals with exactly known content.
 //
-// Sources: the feedforward comb y[n] = x[n] - x[n - D] has the magnitude
-// response |H(f)| = 2 |sin(pi f D / rate)| (J. O. Smith, Physical Audio
-// Signal Processing, W3K 2010, "Feedforward Comb Filters"): zeros on every
-// harmonic of rate / D. Any linear time-invariant filter maps a periodic
-// signal to a periodic signal of the same period (textbook: a sum of
-// harmonics stays a sum of the same harmonics, each scaled), so a tracker
-// finds the same f0 after it. The YIN tracker is pitch/yin.h.
+// Sources: the comb y[n] = x[n] - x[n - D] + g y[n - D] has the magnitude
+// response |H(f)| = |1 - e^{-jw D}| / |1 - g e^{-jw D}|, w = 2 pi f / rate,
+// that is 2 |sin(w D / 2)| / sqrt(1 - 2 g cos(w D) + g^2) (J. O. Smith,
+// Physical Audio Signal Processing, W3K 2010, "Feedforward Comb Filters",
+// "Feedback Comb Filters"): zeros on every harmonic of rate / D; for g = 0
+// (the analysis's) the feedforward comb's 2 |sin(pi f D / rate)|. Any linear
+// time-invariant filter maps a periodic signal to a periodic signal of the
+// same period (textbook: a sum of harmonics stays a sum of the same
+// harmonics, each scaled), so a tracker finds the same f0 after it. The YIN tracker is pitch/yin.h.
 #include "pitch/base/error.h"
 #include "pitch/dsp/drone_comb.h"
 #include "pitch/dsp/yin.h"
@@ -25,8 +27,9 @@ using namespace beatless::testsig;
 namespace {
 constexpr double kFs = 44100.0;
 
-std::vector<float> comb(const std::vector<float>& x, double root_hz, std::size_t block = 4096) {
-    DroneComb c({.sample_rate_hz = kFs, .root_hz = root_hz});
+std::vector<float> comb(const std::vector<float>& x, double root_hz, std::size_t block = 4096,
+                        double feedback = DroneCombConfig{}.feedback) {
+    DroneComb c({.sample_rate_hz = kFs, .root_hz = root_hz, .feedback = feedback});
     std::vector<float> y(x.size());
     for (std::size_t i = 0; i < x.size(); i += block) {
         const std::size_t n = std::min(block, x.size() - i);
@@ -58,24 +61,28 @@ double median_f0(const std::vector<float>& x, double t0, double t1) {
 }
 }  // namespace
 
-TEST_CASE("the comb's gain on a sine is 2 |sin(pi f D / rate)|") {
-    for (double root : {110.0, 146.8324, 87.31, 261.6256}) {
-        const double d = kFs / root;
-        for (double f : {50.0, 137.3, 333.0, 1000.0, 2500.0, 4000.0, 7000.0}) {
-            std::vector<float> x(static_cast<std::size_t>(kFs), 0.0f);
-            for (std::size_t i = 0; i < x.size(); ++i)
-                x[i] = static_cast<float>(0.5 * std::sin(kTwoPi * f * static_cast<double>(i) / kFs));
-            const auto y = comb(x, root);
-            const double gain = rms(y, x.size() / 2, x.size()) / rms(x, x.size() / 2, x.size());
-            const double expect = 2.0 * std::fabs(std::sin(M_PI * f * d / kFs));
-            CAPTURE(root);
-            CAPTURE(f);
-            // Third-order Lagrange interpolation is nearly exact at low
-            // frequencies and droops towards the top (a few tenths of a
-            // percent of full gain to 4 kHz, under 2 % at 7 kHz).
-            CHECK(std::fabs(gain - expect) < (f <= 4000.0 ? 0.005 : 0.02));
+TEST_CASE("the comb's gain on a sine is 2 |sin(w D / 2)| / sqrt(1 - 2 g cos(w D) + g^2)") {
+    for (double g : {DroneCombConfig{}.feedback, 0.5})
+        for (double root : {110.0, 146.8324, 87.31, 261.6256}) {
+            const double d = kFs / root;
+            for (double f : {50.0, 137.3, 333.0, 1000.0, 2500.0, 4000.0, 7000.0}) {
+                std::vector<float> x(static_cast<std::size_t>(kFs), 0.0f);
+                for (std::size_t i = 0; i < x.size(); ++i)
+                    x[i] = static_cast<float>(0.5 * std::sin(kTwoPi * f * static_cast<double>(i) / kFs));
+                const auto y = comb(x, root, 4096, g);
+                const double gain = rms(y, x.size() / 2, x.size()) / rms(x, x.size() / 2, x.size());
+                const double wd = kTwoPi * f * d / kFs;
+                const double expect =
+                    2.0 * std::fabs(std::sin(0.5 * wd)) / std::sqrt(1.0 - 2.0 * g * std::cos(wd) + g * g);
+                CAPTURE(g);
+                CAPTURE(root);
+                CAPTURE(f);
+                // Third-order Lagrange interpolation is nearly exact at low
+                // frequencies and droops towards the top (a few tenths of a
+                // percent of full gain to 4 kHz, under 2 % at 7 kHz).
+                CHECK(std::fabs(gain - expect) < (f <= 4000.0 ? 0.005 : 0.02));
+            }
         }
-    }
 }
 
 TEST_CASE("a steady drone of any timbre vanishes; a voice at a just ratio keeps its f0") {

@@ -81,7 +81,8 @@ std::string target_column(const pitch::TargetSet& set, int index, int octaves) {
 std::string dev_column(double dev_cents) {
     if (!std::isfinite(dev_cents)) return "-";
     char buf[32];
-    std::snprintf(buf, sizeof buf, "%+.1f", dev_cents);
+    // What rounds to zero is "+0.0", never "-0.0" (the Review screen shows it as 0.0).
+    std::snprintf(buf, sizeof buf, "%+.1f", std::fabs(dev_cents) < 0.05 ? 0.0 : dev_cents);
     return buf;
 }
 
