@@ -125,18 +125,26 @@ void lag_products(const float* x, std::size_t n, std::size_t n_lags, float* out)
     }
 }
 
-BEATLESS_CLONES
-void biweight(float* w, std::size_t n) noexcept {
-    // Symmetric: u at n - 1 - i is exactly -u at i (an integer numerator), so the second half mirrors the first.
+namespace {
+// w[i] = (1 - u^(2^doublings))^2, u = (2 i + 1 - n) / n. Symmetric: u at n - 1 - i is exactly -u at i (an integer
+// numerator), so the second half mirrors the first.
+void squared_taper(float* w, std::size_t n, int doublings) noexcept {
     const double wd = static_cast<double>(n);
     const std::size_t half = (n + 1) / 2;
     for (std::size_t i = 0; i < half; ++i) {
         const double u = (2.0 * static_cast<double>(i) + 1.0 - wd) / wd;
-        const double b = 1.0 - u * u;
+        double p = u;
+        for (int k = 0; k < doublings; ++k) p *= p;
+        const double b = 1.0 - p;
         w[i] = static_cast<float>(b * b);
     }
     for (std::size_t i = half; i < n; ++i) w[i] = w[n - 1 - i];
 }
+}  // namespace
+
+void biweight(float* w, std::size_t n) noexcept { squared_taper(w, n, 1); }
+
+void flat_window(float* w, std::size_t n) noexcept { squared_taper(w, n, 3); }
 
 BEATLESS_CLONES
 void add(float* acc, const float* a, std::size_t n) noexcept {

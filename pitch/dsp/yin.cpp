@@ -72,6 +72,20 @@ constexpr double kSmallBias = 3.0 / 1200.0 * 0.6931471805599453;
 constexpr std::size_t kStencil = 3;
 constexpr double kPowerAlpha = 0.08;  // running mean of the curvature's square, weight of each frame
 constexpr double kNoiseBias = 0.3 / 1200.0 * 0.6931471805599453;  // the curvature's noise, as a bias (0.3 cents)
+// The correction runs only while the running RMS slope of log f0 across the stencil is at least this (100 cents per
+// second, as natural-log units): a vibrato of +-15 c at 4.5 Hz has an RMS slope of 300 c/s, a glide 100 c/s and
+// more, while a steady low string at 10 dB SNR shows under 50 c/s of noise (estimates 1 c apart, 30 ms).
+constexpr double kMinSlope = 100.0 / 1200.0 * 0.6931471805599453;
+// Weight of each frame in the running mean of the slope's square between consecutive frames (steady_tone()).
+constexpr double kSlopeAlpha = 0.2;
+constexpr Index kSlopeFrames = 4;
+// A stream starts as a moving pitch (four times kMinSlope's square) until its slope shows it steady: the flat window
+// on a vibrato's first frames would leave its peaks flatter than the correction assumes.
+constexpr double kStartSlopePower = 4.0 * kMinSlope * kMinSlope;  // ... the slope taken across this many hops
+// Periods of this many full-rate samples and more are refined with the wide lag kernel (yin_refine.h), which damps
+// the noise-times-noise part of d; its Gaussian (sigma 2 lags) halves a partial's curvature in d at about 10 lags per
+// period, so shorter periods keep the narrow kernel (100 samples: 441 Hz at 44.1 kHz).
+constexpr double kWideKernelLag = 100.0;
 // Continuity (continuing()): the last voiced frame counts for this many frames; its period is searched within this
 // share either side (a vibrato of +-100 c at 7.5 Hz moves the period 2.7 % in two 5 ms hops), and a dip there is kept
 // when at most kContinuityRatio d' + kContinuityTolerance deep (twice the divisor test's allowance: the continuing
@@ -126,18 +140,25 @@ struct YinTracker::Impl {
 
     Decimator decimator;
     BlockCorrelator correlator;
-    LagRefiner fine;
+    LagRefiner fine;       // at the full rate, periods of kWideKernelLag samples and more (the wide kernel)
+    LagRefiner fine_high;  // ... shorter periods (the narrow kernel: the wide one would damp their upper partials)
     LagRefiner mid;
     NoiseFloor noise_floor;
     PeriodicRun runs;
-    double last_run_aperiodicity = 1.0;  // of the stretch periodic_stretch() chose last
-    double last_run_period = 0.0;        // ... and its period, decimated samples
-    double last_t_s = -1.0;              // t of the last frame delivered
-    bool last_voiced = false;            // ... and whether it was voiced
-    bool last_restricted = false;        // the last voiced frame used a stretch of its span
-    Index change_at = -1;                // where the newest note's stretch began, full-rate samples
-    double last_period_dec = 0.0;        // period of the last voiced frame, decimated samples (0: none yet)
-    Index last_voiced_f = -1;            // ... and its frame
+    double last_run_aperiodicity = 1.0;     // of the stretch periodic_stretch() chose last
+    double last_run_period = 0.0;           // ... and its period, decimated samples
+    double last_t_s = -1.0;                 // t of the last frame delivered
+    bool last_voiced = false;               // ... and whether it was voiced
+    bool last_restricted = false;           // the last voiced frame used a stretch of its span
+    Index change_at = -1;                   // where the newest note's stretch began, full-rate samples
+    double last_period_dec = 0.0;           // period of the last voiced frame, decimated samples (0: none yet)
+    Index last_voiced_f = -1;               // ... and its frame
+    std::array<double, 4> recent_f0{};      // f0 of the last voiced frames, by frame number modulo kSlopeFrames
+    Index recent_run = 0;                   // voiced frames in a row up to the last
+    double slope_power = kStartSlopePower;  // running mean of the square of log f0's slope between frames, (1/s)^2
+
+    // A steady tone (running RMS slope under kMinSlope): refined with the flat-topped window.
+    bool steady_tone() const noexcept { return slope_power < kMinSlope * kMinSlope; }
 
     std::vector<float> x;  // full-rate samples [x_off, x_off + x_len)
     Index x_off = 0;
@@ -166,6 +187,7 @@ struct YinTracker::Impl {
     struct Curvature {
         double last = NAN;
         double power = 0.0;
+        double slope_power = 0.0;  // running mean of the slope's square across the stencil, (1/s)^2
     } curv;
 
     std::vector<PitchFrame> queue;
@@ -227,7 +249,8 @@ struct YinTracker::Impl {
         : cfg(validated(c)),
           decimator(plan(c).dec),
           correlator(plan(c).block, plan(c).per_window, plan(c).max_lag),
-          fine(static_cast<std::size_t>(std::lround(c.span_s * c.sample_rate_hz)) + 16),
+          fine(static_cast<std::size_t>(std::lround(c.span_s * c.sample_rate_hz)) + 16, true),
+          fine_high(static_cast<std::size_t>(std::lround(c.span_s * c.sample_rate_hz)) + 16, false),
           mid(static_cast<std::size_t>(std::lround(c.span_s * c.sample_rate_hz)) / plan(c).dec + 16),
           noise_floor(c.hop_s),
           runs(static_cast<std::size_t>(std::lround(c.span_s * c.sample_rate_hz)) / plan(c).dec + 16, plan(c).max_lag) {
@@ -305,6 +328,8 @@ struct YinTracker::Impl {
         change_at = -1;
         last_period_dec = 0.0;
         last_voiced_f = -1;
+        recent_run = 0;
+        slope_power = kStartSlopePower;
         curv = Curvature{};
         bad_samples = dropped = 0;
     }
@@ -510,6 +535,15 @@ struct YinTracker::Impl {
             m2_s2 = 0.0;
         }
         out.f0_hz = rate / T;
+        // The slope over kSlopeFrames hops of a run of voiced frames (over one hop it is mostly the estimates' noise).
+        recent_run = last_voiced_f == f - 1 ? recent_run + 1 : 1;
+        const double then_hz = recent_f0[static_cast<std::size_t>(f % kSlopeFrames)];
+        if (recent_run > kSlopeFrames) {
+            const double slope =
+                std::log(out.f0_hz / then_hz) / (static_cast<double>(kSlopeFrames * static_cast<Index>(hop)) / rate);
+            slope_power += kSlopeAlpha * (slope * slope - slope_power);
+        }
+        recent_f0[static_cast<std::size_t>(f % kSlopeFrames)] = out.f0_hz;
         last_period_dec = T / static_cast<double>(D);
         last_voiced_f = f;
         out.t_s = t_centre / rate;
@@ -567,11 +601,13 @@ struct YinTracker::Impl {
         const Index W = static_cast<Index>(usable) - j0;
         if (W < 16) return 0.0;
         const Index s = std::lround(centre - static_cast<double>(W - 1 + j0) / 2.0);
-        const LagRefiner::Result fr = fine.refine(xp(s), static_cast<std::size_t>(W), static_cast<std::size_t>(j0));
+        LagRefiner& at_full_rate = Tc >= kWideKernelLag ? fine : fine_high;
+        const LagRefiner::Result fr =
+            at_full_rate.refine(xp(s), static_cast<std::size_t>(W), static_cast<std::size_t>(j0), steady_tone());
         if (fr.ok) {
             kt = fr.lag;
             t_centre = static_cast<double>(s) + (static_cast<double>(W) - 1.0 + kt) / 2.0;
-            m2_s2 = kernel_second_moment(static_cast<double>(W), kt) / (rate * rate);
+            m2_s2 = kernel_second_moment(static_cast<double>(W), kt, steady_tone()) / (rate * rate);
         } else if (!multiples) {
             t_centre = centre;
         }
@@ -722,15 +758,16 @@ struct YinTracker::Impl {
     // -----------------------------------------------------------------------
     //
     // The refined lag L = K T over a window of W samples aligns x[n] with
-    // x[n + L] for n under the biweight w; the K periods from n span the
+    // x[n + L] for n under the window w; the K periods from n span the
     // boxcar [n, n + L], so the estimate is f0 averaged over w convolved with
     // that boxcar: a kernel of second moment var(w) + L^2 / 12, var(w) =
-    // (W / 2)^2 / 7 for the biweight (1 - u^2)^2 on [-1, 1]. For f0 locally
+    // (W / 2)^2 / 7 for the biweight (1 - u^2)^2 on [-1, 1], (W / 2)^2 51 / 209
+    // for the flat-topped (1 - u^8)^2 a steady tone is refined with. For f0 locally
     // quadratic, log f0_est = log f0 + m2 / 2 (log f0)'' (kernel-smoothing
     // bias, Wand and Jones 1995, sec. 2.5); the curvature comes from the
     // estimates of frames f - 1, f, f + 1, and is removed from frame f.
-    static double kernel_second_moment(double window, double lag) noexcept {
-        return yin_kernel_second_moment(window, lag);
+    static double kernel_second_moment(double window, double lag, bool flat) noexcept {
+        return yin_kernel_second_moment(window, lag, flat);
     }
 
     // Frames leave in time order: a frame narrowed to a stretch after a
@@ -774,6 +811,8 @@ struct YinTracker::Impl {
     // Stationary Time Series, 1949), P the running mean of the curvature's
     // square and N that of a 0.3-cent bias, so steady tones in noise keep
     // their precision while a vibrato (biases of 0.5 to 12 cents) is corrected.
+    // A tone whose running RMS slope is under kMinSlope is steady: its
+    // curvature is the estimates' noise, and it is left uncorrected.
     static PitchFrame corrected(const Held& a, const Held& b, const Held& c, Curvature& cv) noexcept {
         PitchFrame out = b.p;
         const double prev = cv.last;
@@ -786,6 +825,8 @@ struct YinTracker::Impl {
         if (!(hab > 0.0 && hbc > 0.0)) return out;
         const double curvature = 2.0 * ((gc - gb) / hbc - (gb - ga) / hab) / (hab + hbc);  // (log f0)'', 1/s^2
         const double bias = 0.5 * b.m2_s2 * curvature;                                     // natural-log units
+        const double slope = (gc - ga) / (hab + hbc);
+        cv.slope_power += kPowerAlpha * (slope * slope - cv.slope_power);
         if (!(std::fabs(bias) < kMaxVibratoBias)) return out;  // a note change, not a vibrato
         cv.last = curvature;
         if (std::isnan(prev)) return out;
@@ -794,6 +835,7 @@ struct YinTracker::Impl {
         cv.power += kPowerAlpha * (curvature * curvature - cv.power);
         const double noise = kNoiseBias / (0.5 * b.m2_s2);  // that bias as a curvature
         const double gain = cv.power / (cv.power + noise * noise);
+        if (cv.slope_power < kMinSlope * kMinSlope) return out;  // a steady tone: its curvature is noise alone
         out.f0_hz = b.p.f0_hz * std::exp(-gain * bias);
         return out;
     }
@@ -803,8 +845,9 @@ struct YinTracker::Impl {
 // [SECTION] Public interface
 // ---------------------------------------------------------------------------
 
-double yin_kernel_second_moment(double window_samples, double lag_samples) noexcept {
-    return 0.25 * window_samples * window_samples / 7.0 + lag_samples * lag_samples / 12.0;
+double yin_kernel_second_moment(double window_samples, double lag_samples, bool flat) noexcept {
+    const double var_w = flat ? 51.0 / 209.0 : 1.0 / 7.0;  // second moment of the window on [-1, 1]
+    return 0.25 * window_samples * window_samples * var_w + lag_samples * lag_samples / 12.0;
 }
 
 YinTracker::YinTracker(const YinConfig& config) : impl_(std::make_unique<Impl>(config)) {}

@@ -81,8 +81,9 @@ void yin_difference(std::span<const float> x, std::size_t window, std::size_t ma
 
 // Second moment (samples^2) of the kernel over which a lag L measured with a
 // biweight window of W samples averages a moving f0: (W / 2)^2 / 7 + L^2 / 12
+// (with the flat-topped (1 - u^8)^2 of a steady tone, flat: (W / 2)^2 51 / 209 + L^2 / 12)
 // (the window convolved with a boxcar of L). The vibrato correction removes
 // m2 / 2 times the curvature of log f0. Exposed for the numpy cross-check.
-double yin_kernel_second_moment(double window_samples, double lag_samples) noexcept;
+double yin_kernel_second_moment(double window_samples, double lag_samples, bool flat = false) noexcept;
 
 }  // namespace beatless::pitch

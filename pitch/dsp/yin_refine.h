@@ -11,13 +11,15 @@ namespace beatless::pitch {
 
 class LagRefiner {
 public:
-    static constexpr int kKernelHalf = 4;  // M: kernel support +-M lags
+    struct Kernel;                         // the tabulated interpolation kernel (yin_refine.cpp)
+    static constexpr int kKernelHalf = 8;  // M: the wide kernel's support, +-M lags (the narrow one's +-4)
     static constexpr int kSearch = 2;      // S: integer search radius around the prediction
     static constexpr std::size_t kReach =
         2 * (kKernelHalf + kSearch) + 8;  // lags past j0 (+ vector padding) it may read
 
-    // Windows up to max_window samples.
-    explicit LagRefiner(std::size_t max_window);
+    // Windows up to max_window samples. wide_kernel: d is interpolated by a Gaussian of sigma 2 lags (+-8) instead
+    // of 1 (+-4), damping more of d's noise-times-noise part (for the full rate, where a period spans many lags).
+    explicit LagRefiner(std::size_t max_window, bool wide_kernel = false);
 
     struct Result {
         double lag = 0.0;    // refined lag, samples
@@ -27,15 +29,19 @@ public:
 
     // x: the window's first sample; lags around j0 >= kKernelHalf + 2 kSearch + ... ;
     // x must be readable (and finite) up to x[window + j0 + kReach]. Allocates: no.
-    Result refine(const float* x, std::size_t window, std::size_t j0) noexcept;
+    // flat: weight the window by vec::flat_window (a steady tone: more of its samples count) instead of the biweight.
+    Result refine(const float* x, std::size_t window, std::size_t j0, bool flat = false) noexcept;
 
 private:
-    void set_window(std::size_t window) noexcept;
+    void set_window(std::size_t window, bool flat) noexcept;
     bool newton(const double* d, long first_lag, long j_int, double& tau, double& value) const noexcept;
 
     std::size_t max_window_;
+    const Kernel* tab_;
+    int m_;  // the kernel's half support, lags
     std::size_t window_ = 0;
-    std::vector<float> w_;   // biweight, zero padded to a multiple of 8
+    bool flat_ = false;
+    std::vector<float> w_;   // biweight or flat-topped window, zero padded to a multiple of 8
     std::vector<double> d_;  // d at the integer lags searched
 };
 
