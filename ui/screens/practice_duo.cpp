@@ -102,7 +102,7 @@ void draw_duo_lane(AppState& app, ImDrawList* dl, float x0, float y0, float w, f
     lv.high_word = "wide";
     draw_lane(dl, x0, y0, w, band_h, lv);
     const DuoVerdict& v = app.duo();
-    if (!v.known()) return;
+    if (!v.known() || !look.show_verdict) return;
     const float u = ui_unit();
     const double dev = std::clamp(v.pair.dev_cents, -kLaneHalfCents, kLaneHalfCents);
     const float x = std::round(x0 + 0.5f * w + static_cast<float>(dev) * w / static_cast<float>(2.0 * kLaneHalfCents));
@@ -125,6 +125,7 @@ void draw_duo_lane(AppState& app, ImDrawList* dl, float x0, float y0, float w, f
 void draw_duo_voices(AppState& app, ImDrawList* dl, float x0, float y0, const DuoLook& look) {
     const float u = ui_unit();
     const DuoVerdict& v = app.duo();
+    if (!look.show_verdict) return;
     if (v.state == DuoState::one_series) {
         // One series heard: say why, claim no interval.
         char buf[160];

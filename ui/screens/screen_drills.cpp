@@ -471,8 +471,9 @@ void DrillsScreen::hold_now(AppState& app, ImDrawList* dl, float x0, float y0, f
     y += bar_h + std::round(1.5f * u);
     // The lane, as on the Practice screen, its window the drill's tolerance.
     const float lane_margin = std::round(1.6f * u);
+    const bool live = ph == DrillPhase::count_in || ph == DrillPhase::hold;
     if (r.voices() == 2) {  // the Practice screen's two-voice lane and voices: the interval against the hold's target
-        const DuoLook look{run_drill().tolerance_cents, false};
+        const DuoLook look{run_drill().tolerance_cents, false, live};
         const float band_h = std::round(std::clamp(y0 + h - y - 4.4f * u, 1.4f * u, 2.6f * u));
         draw_duo_lane(app, dl, x0 + lane_margin, y, w - 2.0f * lane_margin, band_h, look);
         draw_duo_voices(app, dl, x0 + lane_margin, y + band_h + std::round(0.9f * u), look);
@@ -481,7 +482,6 @@ void DrillsScreen::hold_now(AppState& app, ImDrawList* dl, float x0, float y0, f
     const float band_h = std::round(std::clamp(y0 + h - y - 3.3f * u, 1.4f * u, 2.6f * u));
     LaneView v;
     v.in_tune_cents = run_drill().tolerance_cents;
-    const bool live = ph == DrillPhase::count_in || ph == DrillPhase::hold;
     v.verdict = live ? &app.verdict() : nullptr;
     v.trail = &app.trace();
     v.show_now = y0 + h - (y + band_h) >= 3.6f * u;
