@@ -31,6 +31,12 @@ DemoDuo::DemoDuo(const DemoDuoConfig& config)
         cfg_.interval_cents.assign(std::begin(kDefaultIntervals), std::end(kDefaultIntervals));
     for (double c : cfg_.interval_cents)
         if (!(c >= 100.0 && c <= 1900.0)) throw Error("demo violinist: intervals must lie within 100 .. 1900 cents");
+    for (const DemoNote& n : cfg_.script) {
+        if (!(n.target_cents >= 100.0 && n.target_cents <= 1900.0))
+            throw Error("demo violinist: intervals must lie within 100 .. 1900 cents");
+        if (!(n.start_s >= 0.0 && n.dur_s >= 0.5 && n.start_s + n.dur_s <= 1e6))
+            throw Error("demo violinist: a double stop of the script starts before 0 or lasts under 0.5 s");
+    }
     partials_.assign(kPartials, 0.0);
     double power = 0.0;
     for (int l = 1; l <= kPartials; ++l) {
@@ -44,14 +50,20 @@ DemoDuo::DemoDuo(const DemoDuoConfig& config)
     gain_ =
         std::pow(10.0, cfg_.level_dbfs / 20.0) * std::sqrt(2.0) / std::sqrt(1.0 + std::pow(10.0, cfg_.upper_db / 10.0));
     noise_rms_ = std::pow(10.0, (cfg_.level_dbfs + cfg_.bow_noise_db) / 20.0);
-    next_ = static_cast<std::int64_t>(0.3 * cfg_.sample_rate_hz);
+    next_ = static_cast<std::int64_t>((cfg_.script.empty() ? 0.3 : cfg_.script.front().start_s) * cfg_.sample_rate_hz);
 }
 
 void DemoDuo::start_stop() noexcept {
     const double fs = cfg_.sample_rate_hz;
     std::uniform_real_distribution<double> u(0.0, 1.0);
-    truth_.stop_index = static_cast<int>(index_ % cfg_.interval_cents.size());
-    interval_cents_ = cfg_.interval_cents[static_cast<std::size_t>(truth_.stop_index)];
+    const bool scripted = !cfg_.script.empty();
+    if (scripted && index_ >= cfg_.script.size()) {  // the script is over: silence from here
+        next_ = INT64_MAX;
+        return;
+    }
+    truth_.stop_index = static_cast<int>(scripted ? index_ : index_ % cfg_.interval_cents.size());
+    interval_cents_ =
+        scripted ? cfg_.script[index_].target_cents : cfg_.interval_cents[static_cast<std::size_t>(truth_.stop_index)];
     double f = cfg_.root_hz;
     while (f < cfg_.low_hz) f *= 2.0;
     while (f >= 2.0 * cfg_.low_hz) f /= 2.0;
@@ -63,8 +75,15 @@ void DemoDuo::start_stop() noexcept {
     start_dev_cents_ = sign * (6.0 + 10.0 * u(rng_));
     final_dev_cents_ = (u(rng_) - 0.5) * 3.0;
     start_ = next_;
-    end_ = start_ + static_cast<std::int64_t>(cfg_.stop_s * fs);
-    next_ = end_ + static_cast<std::int64_t>(cfg_.lift_s * fs);
+    if (scripted) {
+        end_ = start_ + static_cast<std::int64_t>(cfg_.script[index_].dur_s * fs);
+        next_ = index_ + 1 < cfg_.script.size()
+                    ? std::max(end_, static_cast<std::int64_t>(cfg_.script[index_ + 1].start_s * fs))
+                    : INT64_MAX;
+    } else {
+        end_ = start_ + static_cast<std::int64_t>(cfg_.stop_s * fs);
+        next_ = end_ + static_cast<std::int64_t>(cfg_.lift_s * fs);
+    }
     ++index_;
     low_.set_f0(low_hz_ * std::exp2(low_dev_cents_ / 1200.0), true);
     high_.set_f0(low_hz_ * std::exp2((low_dev_cents_ + interval_cents_ + start_dev_cents_) / 1200.0), true);
@@ -80,7 +99,7 @@ void DemoDuo::render(std::span<float> out) noexcept {
         const bool in_stop = pos_ >= start_ && pos_ < end_;
         const double t = static_cast<double>(pos_ + static_cast<std::int64_t>(len) - start_) / fs;
         // Two bow strokes per double stop: the level dips at the change.
-        const double half = 0.5 * cfg_.stop_s;
+        const double half = 0.5 * static_cast<double>(end_ - start_) / fs;
         const bool at_change = in_stop && std::fabs(t - half) < 0.5 * kBowChangeDipS;
         const double want = !in_stop ? 0.0 : at_change ? 0.35 : 1.0;
         if (std::fabs(low_.level() - want * gain_) > 1e-9 && !low_.ramping()) {

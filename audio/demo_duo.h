@@ -6,6 +6,7 @@
 // Thread: the audio or producer thread (render()). Allocates: in the constructor only. Locks: no.
 #pragma once
 
+#include "audio/demo_performer.h"
 #include "audio/synth.h"
 
 #include <cstdint>
@@ -26,6 +27,9 @@ struct DemoDuoConfig {
     double upper_db = -2.0;              // upper string's level against the lower (default -2 dB)
     double bow_noise_db = -32.0;         // bow noise against the pair (default -32 dB)
     std::uint64_t seed = 11;
+    // When not empty: these double stops once, in this order (target_cents: the interval; start_s, dur_s: when),
+    // silence after the last; a drill's holds (ui/session/drill_runner.h, demo_script). Else the round above.
+    std::vector<DemoNote> script;
 };
 
 struct DemoDuoTruth {

@@ -73,7 +73,7 @@ struct Engine::Impl {
     DronePartial partials[kMaxDronePartials];
     std::atomic<double> root_hz{110.0};
     double applied_root = 0.0;
-    double span_s = 0.05;  // the trackers' span
+    double span_s = 0.05;                     // the trackers' span
     std::atomic<bool> removal_active{false};  // written by the analysis thread, read by status() (relaxed)
     bool started = false;
     // Set when start() has built everything the callbacks touch: a stream
@@ -94,6 +94,7 @@ struct Engine::Impl {
     std::atomic<pitch::EnsembleAnalyzer*> retired_analyzer{nullptr};
     // Two voices: their tracker, swapped the same way.
     std::unique_ptr<pitch::TwoVoiceTracker> duo;
+    double duo_t0_s = 0.0;  // stream time of the current two-voice tracker's first sample (analysis thread)
     std::atomic<pitch::TwoVoiceTracker*> pending_duo{nullptr};
     std::atomic<pitch::TwoVoiceTracker*> retired_duo{nullptr};
     pitch::TwoVoiceFrame duo_frame{};
@@ -406,6 +407,7 @@ void Engine::start(bool analysis_thread) {
         tc.sample_rate_hz = m.rate;
         tc.max_block_len_samples = kChunk * 4;
         m.duo = std::make_unique<pitch::TwoVoiceTracker>(tc, two_targets_);
+        m.duo_t0_s = 0.0;
         m.span_s = static_cast<double>(m.duo->window_len_samples()) / m.rate;
     }
     if (m.input == InputKind::demo) {
@@ -544,6 +546,8 @@ std::size_t Engine::analyze_available() noexcept {
     if (pitch::TwoVoiceTracker* fresh = m.pending_duo.exchange(nullptr)) {
         pitch::TwoVoiceTracker* old = m.duo.release();
         m.duo.reset(fresh);
+        // A tracker set while running (new targets) counts time from its first sample: keep the stream's clock.
+        m.duo_t0_s = static_cast<double>(m.analyzed.load(std::memory_order_relaxed)) / m.rate;
         delete m.retired_duo.exchange(old);  // normally empty: the control thread frees retired trackers
     }
     const double root = m.root_hz.load(std::memory_order_acquire);
@@ -599,6 +603,8 @@ void Engine::analyze_frames() noexcept {
     if (m.duo) {
         pitch::TwoVoiceFrame& f = m.duo_frame;
         while (m.duo->pull(f)) {
+            f.t_s += m.duo_t0_s;
+            f.end_s += m.duo_t0_s;
             const auto idx = static_cast<std::int64_t>(std::llround(f.t_s * m.rate));
             double lat_s = 0.0;
             m.publish_time(lat_s, idx);

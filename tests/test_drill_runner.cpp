@@ -524,3 +524,56 @@ TEST_CASE("a singer's vibrato: the hold is scored on the vibrato centre where it
     REQUIRE(q.results().size() == 1);
     CHECK(q.results()[0].score.in_tolerance_share < 0.4);
 }
+
+// Two voices: the interval between them is scored against the hold's target (3/2, then 7/4) in its nearest octave;
+// one pitch, or a pair below the sure confidence, counts as unheard. Cents from 1200 log2(p/q) (common practice).
+TEST_CASE("two voices: each hold scores the interval between the voices; one pitch is not a pass") {
+    Drill d = parse_drill(kTwoHolds, "two-holds.toml");
+    RunnerConfig c = fake_config();
+    c.voices = 2;
+    DrillRunner r(d, c, nullptr);
+    CHECK(r.voices() == 2);
+    // Hold 1 (3/2, 4-6 s): a 3/1 (a twelfth: 3/2 an octave up) 2 c wide; hold 2 (7/4, 9.5-11.5 s): one pitch only,
+    // then from 10.5 s a 7/4 pair 1 c narrow but unsure for its first 0.2 s.
+    auto frame = [](double t) {
+        pitch::TwoVoiceFrame f;
+        f.t_s = t;
+        f.end_s = t + 0.085;
+        f.confidence = 0.9;
+        f.f_low_hz = 110.0;
+        if (t >= 4.0 && t < 6.0) {
+            f.voices = 2;
+            f.f_high_hz = 110.0 * 3.0 * std::exp2(2.0 / 1200.0);
+        } else if (t >= 9.5 && t < 10.5) {
+            f.voices = 1;
+        } else if (t >= 10.5 && t < 11.5) {
+            f.voices = 2;
+            f.f_high_hz = 110.0 * 7.0 / 4.0 * std::exp2(-1.0 / 1200.0);
+            if (t < 10.7) f.confidence = 0.4;
+        }
+        return f;
+    };
+    r.start(0.0);
+    const long k1 = std::lround(13.0 / 0.01);
+    for (long k = 0; k < k1; ++k) {
+        const double t = static_cast<double>(k) * 0.01;
+        r.advance(t);
+        if (t >= 0.02) r.feed(frame(t - 0.02));
+    }
+    r.advance(13.0);
+    REQUIRE(r.results().size() == 2);
+    const HoldResult& a = r.results()[0];
+    CHECK(a.score.locked);
+    CHECK(a.score.mean_dev_cents == doctest::Approx(2.0).epsilon(1e-6));
+    CHECK(a.score.voiced_share > 0.95);
+    const HoldResult& b = r.results()[1];
+    CHECK(b.score.locked);
+    CHECK(b.score.time_to_lock_s >= 1.2 - 1e-9);  // nothing before the sure pair at 10.7 s counts
+    CHECK(b.score.mean_dev_cents == doctest::Approx(-1.0).epsilon(1e-6));
+    CHECK(b.score.voiced_share == doctest::Approx(0.4).epsilon(0.03));  // 0.8 of the 2 s hold sure
+    // The trace keeps the upper voice and the interval's deviation; unheard moments have neither.
+    REQUIRE(!b.trace.empty());
+    CHECK(b.trace.front().f0_hz == 0.0f);
+    CHECK(std::isnan(b.trace.front().dev_cents));
+    CHECK(b.trace.back().f0_hz == doctest::Approx(110.0 * 7.0 / 4.0 * std::exp2(-1.0 / 1200.0)).epsilon(1e-5));
+}

@@ -258,3 +258,51 @@ TEST_CASE("demo violinist: double stops the two-voice tracker reads to her truth
     REQUIRE(steady > 200);
     CHECK(close >= steady * 95 / 100);
 }
+
+// A drill's double stops (audio/demo_duo.h, script): the violinist plays each scripted interval at its time and is
+// silent after the last; and new targets given to the running engine (a drill's next hold) keep the stream's clock:
+// frames go on in time order, the newest within the tracker's window of the stream time. The intervals' cents from
+// their ratios, 1200 log2(p/q) (common practice); her first 6-16 c off corrected within about a second (her model).
+TEST_CASE("two voices: a scripted violinist, and targets changed while running keep the stream's clock") {
+    const double c74 = 1200.0 * std::log2(7.0 / 4.0), c75 = 1200.0 * std::log2(7.0 / 5.0);
+    audio::DemoDuoConfig vc;
+    vc.root_hz = 98.0;
+    vc.script = {{0.5, 2.5, c74}, {4.0, 2.5, c75}};
+    audio::Engine engine(audio::EngineConfig{}, nullptr);
+    pitch::TargetSet a, b;
+    a.targets.push_back(pitch::Target{pitch::parse_interval("7/4"), ""});
+    b.targets.push_back(pitch::Target{pitch::parse_interval("7/5"), ""});
+    engine.set_two_voices(pitch::TwoVoiceConfig{}, a);
+    engine.use_demo(vc);
+    engine.start(false);
+    std::vector<pitch::TwoVoiceFrame> got(256), frames;
+    auto run_to = [&](double t_s) {
+        while (engine.stream_time_s() < t_s) {
+            engine.run_demo_frames(480);
+            for (std::size_t k; (k = engine.take_readings(std::span<pitch::TwoVoiceFrame>(got))) > 0;)
+                frames.insert(frames.end(), got.begin(), got.begin() + static_cast<std::ptrdiff_t>(k));
+        }
+    };
+    run_to(3.3);
+    engine.set_two_voices(pitch::TwoVoiceConfig{}, b);  // between the two double stops, as a drill retargets
+    run_to(7.5);
+    engine.stop();
+    REQUIRE(frames.size() > 500);
+    int first = 0, first_close = 0, second = 0, second_close = 0, after = 0, after_quiet = 0;
+    for (std::size_t i = 0; i < frames.size(); ++i) {
+        const pitch::TwoVoiceFrame& f = frames[i];
+        if (i > 0) CHECK(f.t_s >= frames[i - 1].t_s);
+        const bool pair = f.voices == 2;
+        if (f.t_s > 1.8 && f.t_s < 2.8) ++first, first_close += pair && std::fabs(f.interval_cents - c74) <= 2.0;
+        if (f.t_s > 5.3 && f.t_s < 6.3) ++second, second_close += pair && std::fabs(f.interval_cents - c75) <= 2.0;
+        if (f.t_s > 6.8) ++after, after_quiet += f.voices == 0;
+    }
+    CHECK(first > 80);
+    CHECK(first_close >= first * 9 / 10);
+    CHECK(second > 80);
+    CHECK(second_close >= second * 9 / 10);  // read by the tracker given at 3.3 s, on the stream's clock
+    CHECK(after > 30);
+    CHECK(after_quiet == after);
+    CHECK(frames.back().end_s <= engine.stream_time_s() + 1e-9);
+    CHECK(frames.back().end_s >= engine.stream_time_s() - 0.1);
+}

@@ -14,6 +14,8 @@
 //   false intervals during single notes <= 1 % of voiced frames (one bowed note, with vibrato, in noise);
 //   CPU <= 2 % of a core for the whole two-voice live path at 48 kHz (capture callback, ring, drone removal,
 //     the tracker, publication; thread CPU time).
+// The worst case of the new-interval figure is named under it; BEATLESS_BENCH_DUO_TRACE=1 also prints, for every
+// case over 60 ms, its frames around the step (stage, voices, f0s, interval against its truth).
 #include "tests/bench/bench.h"
 
 #include "audio/engine.h"
@@ -21,8 +23,10 @@
 #include "pitch/theory/targets.h"
 #include "tests/timbre_signals.h"
 
+#include <algorithm>
 #include <cmath>
 #include <cstdio>
+#include <cstdlib>
 #include <random>
 #include <vector>
 
@@ -136,6 +140,16 @@ void run_with(bench::Context& ctx, const pitch::TwoVoiceConfig& base, bool cpu) 
             }
         }
         latency.push_back(std::isnan(lat) ? 1e9 : lat);
+        if (std::getenv("BEATLESS_BENCH_DUO_TRACE") && latency.back() > 0.06) {  // a slow case, frame by frame
+            std::printf(
+                "    case %zu: %.4f from %.4f, upper -%.0f dB, vibrato %.0f c, SNR %.0f dB, f_low %.1f Hz: %.0f ms\n",
+                ci, c.ratio, c.before, c.level_db, c.vib_cents, c.snr_db, c.f_low, 1000 * latency.back());
+            for (const auto& fr : frames)
+                if (fr.end_s > step_s - 0.02 && fr.end_s < step_s + 0.25)
+                    std::printf("      end %.3f  %s voices %d  f %.2f / %.2f  interval %.2f  truth %.2f  conf %.2f\n",
+                                fr.end_s, fr.fast ? "fast" : "slow", fr.voices, fr.f_low_hz, fr.f_high_hz,
+                                fr.interval_cents, truth_cents(fr, true), fr.confidence);
+        }
         if (c.vib_cents == 0.0 && last_steady) {
             ++beat_cases;
             const double p = static_cast<double>(last_steady->partial_low), q = last_steady->partial_high;
@@ -192,6 +206,8 @@ void run_with(bench::Context& ctx, const pitch::TwoVoiceConfig& base, bool cpu) 
     }
     const double med = bench::percentile(err, 50), p95 = bench::percentile(err, 95);
     const double lat_med = bench::percentile(latency, 50), lat_max = bench::percentile(latency, 100);
+    const std::size_t worst =
+        static_cast<std::size_t>(std::max_element(latency.begin(), latency.end()) - latency.begin());
     const double false_pct = voiced ? 100.0 * static_cast<double>(false_pairs) / static_cast<double>(voiced) : NAN;
     const double cpu_pct = audio_s > 0 ? 100.0 * cpu_s / audio_s : NAN;
     std::printf(
@@ -211,7 +227,12 @@ void run_with(bench::Context& ctx, const pitch::TwoVoiceConfig& base, bool cpu) 
     if (lat_max < 1e8)
         std::printf("  %-44s %8.0f ms  <= 60 ms %s\n", "new interval within 5 c, worst", 1000 * lat_max,
                     lat_max <= 0.06 ? "met" : "MISSED");
-    else
+    if (!latency.empty()) {
+        const Case& w = cases[worst];
+        std::printf("  %-44s %.0f c from %.0f c, upper voice -%.0f dB, vibrato %.0f c, SNR %.0f dB, low %.0f Hz\n",
+                    "  the worst case", 1200 * std::log2(w.ratio), 1200 * std::log2(w.before), w.level_db, w.vib_cents,
+                    w.snr_db, w.f_low);
+    } else
         std::printf("  %-44s %11s  <= 60 ms MISSED\n", "new interval within 5 c, worst", "never");
     std::printf("  %-44s %5d / %-3d    all (0.1 Hz or 5 %%) %s; %d not measured\n", "measured beat within bar", beat_ok,
                 beat_cases - beat_missing, beat_ok == beat_cases - beat_missing ? "met" : "MISSED", beat_missing);

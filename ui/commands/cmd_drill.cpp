@@ -1,7 +1,7 @@
 // beatless drill — run a drill without a screen and print each attempt's score.
 //
-//   beatless drill NAME [--demo [--hold CENTS] [--seed N]] [--input DEV] [--output DEV]
-//                  [--listener perfect|guess|CENTS] [--root NOTE|HZ] [--a4 HZ] [--attempts N]
+//   beatless drill NAME [--demo [--hold CENTS] [--seed N]] [--input DEV | --input-file FILE] [--output DEV]
+//                  [--voices 1|2] [--listener perfect|guess|CENTS] [--root NOTE|HZ] [--a4 HZ] [--attempts N]
 //                  [--log FILE] [--format text|json]
 //
 // NAME is a built-in drill (hold-tritones, ear-tritones, ...) or a .toml
@@ -12,7 +12,11 @@
 // ui/session/listener_model.h); a person answers on the Drills screen. An
 // ear drill prints its result: the fitted threshold with its interval and
 // the levels played (discriminate), or the confusion matrix and the share
-// right per pair (identify). With --demo (hold) or an ear drill, and no --output,
+// right per pair (identify). --voices 2 (hold drills): a double stop, the interval
+// between two voices in one input scored against each hold's target (with --demo
+// the demo violinist plays the holds). --input-file: a recording is the input,
+// read from its first sample on the drill's clock, in simulated time.
+// With --demo (hold) or an ear drill, and no --output,
 // nothing can be heard, so the drill runs in simulated time, as fast as the
 // machine allows; otherwise in real time, the drone and the tones on the
 // output device. Every attempt goes to the practice log like the screen's
@@ -21,6 +25,7 @@
 // `beatless history --import` takes, and the command says so in one line
 // and exits 1. Scores go to stdout (text lines, or one JSON object per
 // attempt), diagnostics to stderr.
+#include "audio/demo_duo.h"
 #include "audio/demo_performer.h"
 #include "audio/device.h"
 #include "audio/engine.h"
@@ -37,14 +42,17 @@
 #include "ui/session/safe_file.h"
 #include "ui/session/usage_error.h"
 
+#include <algorithm>
 #include <atomic>
 #include <chrono>
 #include <csignal>
 #include <cstdio>
 #include <filesystem>
 #include <fstream>
+#include <functional>
 #include <memory>
 #include <optional>
+#include <span>
 #include <thread>
 
 namespace beatless::ui {
@@ -67,6 +75,8 @@ struct DrillCmd {
     std::uint64_t seed = 7;
     std::string listener;
     std::string input;
+    std::string input_file;
+    int voices = 1;
     std::string output;
     std::string root;
     std::optional<double> a4_hz;
@@ -84,12 +94,12 @@ audio::EngineConfig engine_config(const DrillCmd& o) {
 
 // ---- Printing --------------------------------------------------------------
 
-std::string hold_line(const Drill& d, const HoldResult& r, std::size_t of, Format f) {
+std::string hold_line(const Drill& d, const HoldResult& r, std::size_t of, int voices, Format f) {
     const ui::HoldScore& s = r.score;
     if (f == Format::json) {
         JsonWriter j;
         j.begin_object();
-        j.key("drill").value(d.id).key("kind").value("hold");
+        j.key("drill").value(d.id).key("kind").value("hold").key("voices").value(voices);
         j.key("index").value(static_cast<std::int64_t>(r.index + 1)).key("of").value(static_cast<std::int64_t>(of));
         j.key("target").value(r.target.target.interval.str());
         j.key("name").value(r.target.target.name);
@@ -236,8 +246,14 @@ int report_log(const DrillRunner& runner, const LogWriter& writer) {
 // ---- Checks -----------------------------------------------------------------
 
 void check(const DrillCmd& o, const Drill& d) {
+    if (o.voices != 1 && o.voices != 2) throw Error("--voices " + std::to_string(o.voices) + ": 1 or 2");
     if (o.demo && !o.input.empty()) throw UsageError("--demo and --input contradict each other; give one");
+    if (!o.input_file.empty() && (o.demo || !o.input.empty()))
+        throw UsageError("choose one input: --demo, --input-file or --input");
+    if (!o.input_file.empty() && !o.output.empty())
+        throw UsageError("--output: a drill on --input-file runs in simulated time and sounds nothing; leave it out");
     if (o.hold_dev_cents && !o.demo) throw UsageError("--hold works with --demo only");
+    if (o.hold_dev_cents && o.voices == 2) throw UsageError("--hold works with one voice (the demo performer)");
     const bool has_listener = !o.listener.empty();
     if (o.hold_dev_cents && !(std::fabs(*o.hold_dev_cents) <= 100.0))
         throw Error("--hold " + pitch::format_trimmed(*o.hold_dev_cents, 2) + ": out of range (-100 to 100 cents)");
@@ -246,6 +262,9 @@ void check(const DrillCmd& o, const Drill& d) {
         if (has_listener) throw UsageError("--listener is for ear drills; " + d.id + " is a hold drill");
         return;
     }
+    if (o.voices == 2)
+        throw UsageError("--voices 2 scores the interval of a double stop in a hold drill; " + d.id +
+                         " is an ear drill");
     if (o.demo && !has_listener)
         throw UsageError("--demo: the demo performer sings hold drills; for the ear drill " + d.id +
                          " give --listener CENTS, perfect or guess (a simulated listener) instead");
@@ -254,9 +273,10 @@ void check(const DrillCmd& o, const Drill& d) {
                          " is an ear drill and needs a listener: answer it on the Drills screen, or give --listener "
                          "CENTS, perfect or "
                          "guess for a simulated listener");
-    if (!o.input.empty())
-        throw UsageError("--input: an ear drill listens to no input (" + d.id +
-                         " plays questions and waits for answers)");
+    if (!o.input.empty() || !o.input_file.empty())
+        throw UsageError(std::string(o.input.empty() ? "--input-file" : "--input") +
+                         ": an ear drill listens to no input (" + d.id + " plays questions and waits for answers)");
+
     if (o.attempts > 0) throw UsageError("--attempts counts holds; " + d.id + " is an ear drill (one session)");
 }
 
@@ -274,12 +294,97 @@ struct Printer {
     }
     void operator()() {
         while (printed < runner.results().size()) {
-            std::printf("%s\n", hold_line(drill, runner.results()[printed], runner.hold_count(), format).c_str());
+            std::printf(
+                "%s\n",
+                hold_line(drill, runner.results()[printed], runner.hold_count(), runner.voices(), format).c_str());
             ++printed;
         }
         std::fflush(stdout);
     }
 };
+
+// What the engine analyses for a hold drill: one voice against the hold's target, or two voices (the runner
+// scores their interval against the hold's target itself, so the set is the drill's targets, for the beats).
+void follow_holds(audio::Engine& engine, const Drill& d, const DrillRunner& runner) {
+    if (runner.voices() == 2) {
+        pitch::TargetSet set;
+        set.id = d.id;
+        for (const DrillTarget& t : d.targets) set.targets.push_back(t.target);
+        engine.set_two_voices(pitch::TwoVoiceConfig{}, std::move(set));
+        return;
+    }
+    pitch::ReadingConfig rc;
+    rc.root_hz = d.drone.root_hz;
+    engine.set_readings(rc, one_target_set(*runner.current_target()));
+}
+
+// One voice: the readings follow the hold's target once the runner moves on (target_at: the hold last followed).
+void keep_target(audio::Engine& engine, const Drill& d, const DrillRunner& runner, std::size_t& target_at) {
+    if (runner.voices() == 2 || runner.hold_index() == target_at || !runner.current_target()) return;
+    target_at = runner.hold_index();
+    follow_holds(engine, d, runner);
+}
+
+// Everything the engine has made since the last call, into the runner.
+void drain_into(audio::Engine& engine, DrillRunner& runner) {
+    if (runner.voices() == 2) {
+        pitch::TwoVoiceFrame got[64];
+        for (std::size_t k; (k = engine.take_readings(std::span<pitch::TwoVoiceFrame>(got))) > 0;)
+            for (std::size_t i = 0; i < k; ++i) runner.feed(got[i]);
+        return;
+    }
+    pitch::Reading got[512];
+    for (std::size_t k; (k = engine.take_readings(std::span<pitch::Reading>(got))) > 0;)
+        for (std::size_t i = 0; i < k; ++i) runner.feed(got[i]);
+}
+
+// The demo violinist's double stops: the drill's holds, on its schedule.
+audio::DemoDuoConfig demo_duo(const Drill& d, const DrillRunner& runner, const DrillCmd& o) {
+    audio::DemoDuoConfig vc;
+    vc.sample_rate_hz = kSimRateHz;
+    vc.root_hz = d.drone.root_hz;
+    vc.seed = o.seed;
+    vc.script = demo_script(runner);
+    return vc;
+}
+
+// A hold drill on a recording, in simulated time: the file's first sample is the drill's time 0. When the file
+// ends before the drill, a hold it covered to the end is scored and the rest are not.
+void run_hold_file(const Drill& d, DrillRunner& runner, const DrillCmd& o, Printer& print) {
+    audio::Engine engine(engine_config(o), nullptr);
+    engine.use_file(o.input_file);
+    follow_holds(engine, d, runner);
+    std::size_t target_at = runner.hold_index();
+    print.begin();
+    runner.start(0.0);
+    double end_s = 0.0;
+    auto on_time = [&](double t_s) {
+        end_s = std::max(end_s, t_s);
+        runner.advance(t_s);
+        keep_target(engine, d, runner, target_at);
+        print();
+    };
+    if (runner.voices() == 2) {
+        engine.run_fast(std::function<void(const pitch::TwoVoiceFrame&)>([&](const pitch::TwoVoiceFrame& f) {
+            runner.feed(f);
+            on_time(f.end_s);
+        }));
+    } else {
+        engine.run_fast(std::function<void(const pitch::Reading&)>([&](const pitch::Reading& r) {
+            runner.feed(r);
+            on_time(r.t_s);
+        }));
+    }
+    end_s = std::max(end_s, engine.stream_time_s());
+    runner.advance(end_s);
+    const std::size_t planned = runner.hold_count();
+    if (!runner.done()) runner.stop(end_s);
+    engine.stop();
+    print();
+    if (runner.results().size() < planned)
+        std::fprintf(stderr, "beatless: %s ended at %s s, before the drill: %zu of %zu holds scored\n",
+                     o.input_file.c_str(), pitch::format_trimmed(end_s, 1).c_str(), runner.results().size(), planned);
+}
 
 // A hold drill in simulated time: the demo performer rendered block by block.
 void run_hold_simulated(const Drill& d, DrillRunner& runner, const DrillCmd& o, Printer& print) {
@@ -295,32 +400,33 @@ void run_hold_simulated(const Drill& d, DrillRunner& runner, const DrillCmd& o, 
         dc.hold = true;
         dc.hold_dev_cents = *o.hold_dev_cents;
     }
+    const bool duo = runner.voices() == 2;
     audio::Engine engine(engine_config(o), nullptr);
-    engine.use_demo(dc);
-    pitch::ReadingConfig rc;
-    rc.root_hz = d.drone.root_hz;
-    engine.set_readings(rc, one_target_set(*runner.current_target()));
+    if (duo)
+        engine.use_demo(demo_duo(d, runner, o));  // the violinist plays inside the engine
+    else
+        engine.use_demo(dc);
+    follow_holds(engine, d, runner);
     engine.set_drone(drill_drone(d));
     engine.start(false);
     audio::DemoPerformer performer(dc);
     std::vector<float> block(kSimBlock);
-    pitch::Reading got[512];
     std::size_t target_at = runner.hold_index();
     print.begin();
     runner.start(0.0);
     const double limit_s = runner.planned_holds().empty() ? 1.0 : runner.planned_holds().back().start_s + 60.0;
     while (!runner.done() && engine.stream_time_s() < limit_s) {
-        performer.render(block);
-        engine.capture_block(block);
-        engine.analyze_available();
-        for (std::size_t k; (k = engine.take_readings(got)) > 0;)
-            for (std::size_t i = 0; i < k; ++i) runner.feed(got[i]);
+        if (duo) {
+            engine.run_demo_frames(kSimBlock);
+        } else {
+            performer.render(block);
+            engine.capture_block(block);
+            engine.analyze_available();
+        }
+        drain_into(engine, runner);
         runner.advance(engine.stream_time_s());
         for (const ToneRequest& t : runner.take_tones()) engine.sound_tone(t.freq_hz, t.dur_s);
-        if (runner.hold_index() != target_at && runner.current_target()) {
-            target_at = runner.hold_index();
-            engine.set_readings(rc, one_target_set(*runner.current_target()));
-        }
+        keep_target(engine, d, runner, target_at);
         print();
     }
     if (!runner.done()) runner.stop(engine.stream_time_s());
@@ -366,14 +472,20 @@ void run_realtime(const Drill& d, DrillRunner& runner, const DrillCmd& o, Printe
     if (dc.target_cents.empty()) dc.target_cents.push_back(0.0);
     if (hold && !o.demo) {
         engine.open_input_device(o.input);
+    } else if (hold && runner.voices() == 2) {
+        engine.use_demo(demo_duo(d, runner, o));
     } else {
         if (!hold) dc.script = {{1.0e6, 1.0, 0.0}};  // an ear drill listens to nothing: a silent stand-in input
         engine.use_demo(dc);
     }
     engine.open_output_device(o.output);
-    pitch::ReadingConfig rc;
-    rc.root_hz = d.drone.root_hz;
-    engine.set_readings(rc, hold ? one_target_set(*runner.current_target()) : one_target_set(d.targets.front()));
+    if (hold) {
+        follow_holds(engine, d, runner);
+    } else {
+        pitch::ReadingConfig rc;
+        rc.root_hz = d.drone.root_hz;
+        engine.set_readings(rc, one_target_set(d.targets.front()));
+    }
     engine.set_drone(drill_drone(d));
     hearing_caution_once();
     g_stop.store(false);
@@ -383,22 +495,17 @@ void run_realtime(const Drill& d, DrillRunner& runner, const DrillCmd& o, Printe
     print.begin();
     std::size_t target_at = runner.hold_index();
     runner.start(hold && o.demo ? 0.0 : engine.stream_time_s());
-    pitch::Reading got[512];
     double answer_due = INFINITY;
     while (!runner.done()) {
         if (g_stop.load()) {
             runner.stop(engine.stream_time_s());
             break;
         }
-        for (std::size_t k; (k = engine.take_readings(got)) > 0;)
-            for (std::size_t i = 0; i < k; ++i) runner.feed(got[i]);
+        drain_into(engine, runner);
         const double now = engine.stream_time_s();
         runner.advance(now);
         for (const ToneRequest& t : runner.take_tones()) engine.sound_tone(t.freq_hz, t.dur_s);
-        if (hold && runner.hold_index() != target_at && runner.current_target()) {
-            target_at = runner.hold_index();
-            engine.set_readings(rc, one_target_set(*runner.current_target()));
-        }
+        if (hold) keep_target(engine, d, runner, target_at);
         if (listener && runner.phase() == DrillPhase::ear_answer) {
             if (!std::isfinite(answer_due)) answer_due = now + 0.4;  // a moment to think
             if (now >= answer_due) {
@@ -441,11 +548,13 @@ int run_drill(const DrillCmd& o) {
     rc.seed = o.seed;
     rc.max_holds = static_cast<std::size_t>(o.attempts);
     rc.performer = o.demo ? kDemoPerformer : listener ? kSimulatedListener : "";
+    rc.voices = o.voices;
     DrillRunner runner(d, rc, &writer);
     Printer print{d, runner, o.format, {}};
 
     const bool hold = d.mode == DrillMode::hold;
-    const bool simulated = o.output.empty() && o.input.empty() && (o.demo || !hold);
+    const bool on_file = !o.input_file.empty();
+    const bool simulated = on_file || (o.output.empty() && o.input.empty() && (o.demo || !hold));
     if (o.format == Format::text) {
         std::string what =
             hold ? std::to_string(runner.hold_count()) + (runner.hold_count() == 1 ? " hold" : " holds") +
@@ -453,10 +562,14 @@ int run_drill(const DrillCmd& o) {
             : d.task == ui::EarTask::discriminate
                 ? d.targets_text() + " pure against mistuned, which was pure? (" + stop_rule_text(d.staircase) + ")"
                 : "which of " + d.targets_text() + "? (each " + std::to_string(d.rounds) + " times)";
+        if (hold && o.voices == 2) what += ", the interval between two voices";
         print.header = d.title + ": " + what + " over " + d.drone.root_text + " (" +
-                       pitch::format_trimmed(d.drone.root_hz, 2) + " Hz)" + (simulated ? ", in simulated time" : "");
+                       pitch::format_trimmed(d.drone.root_hz, 2) + " Hz)" + (on_file ? ", on " + o.input_file : "") +
+                       (simulated ? ", in simulated time" : "");
     }
-    if (hold && simulated)
+    if (on_file)
+        run_hold_file(d, runner, o, print);
+    else if (hold && simulated)
         run_hold_simulated(d, runner, o, print);
     else if (simulated)
         run_ear_simulated(runner, *listener, print);
@@ -489,6 +602,11 @@ void register_drill(CLI::App& app, Runner& run) {
         "--listener", o->listener,
         "Ear drills: a simulated listener: CENTS (its 70.7 % threshold, lapse rate 2 %), perfect, or guess");
     sub->add_option("--input", o->input, "Input device: index or a unique part of its name (default: the system's)");
+    sub->add_option("--input-file", o->input_file,
+                    "Hold drills: a recording is the input, its first sample the drill's start (simulated time)");
+    sub->add_option("--voices", o->voices,
+                    "Hold drills: 2 scores the interval between two voices in one input (a double stop) against each "
+                    "target; with --demo the demo violinist plays them (default 1)");
     sub->add_option("--output", o->output,
                     "Output device for the drone and the tones (the drill then runs in real time)");
     sub->add_option("--root", o->root, "Drone root as a note (A2) or in Hz (110); default the drill's");

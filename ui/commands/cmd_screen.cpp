@@ -207,8 +207,8 @@ void add_screen_options(CLI::App& app, ScreenCommand& c) {
                    "With --demo: the performer holds the chosen target this many cents off (no vibrato)");
     app.add_option("--seed", c.seed, "Demo performer seed (default 7)");
     app.add_option("--voices", c.voices,
-                   "2: two voices in one input (double stops, a duet) on the Practice screen (V toggles); with "
-                   "--demo the demo violinist plays double stops");
+                   "2: two voices in one input (double stops, a duet) on the Practice screen (V toggles), and hold "
+                   "drills score the interval between them; with --demo the demo violinist plays double stops");
     app.add_option("--root", c.root, "Drone root as a note (A2) or in Hz (110); default from the settings (A2)");
     app.add_option("--a4", c.a4_hz, "A4 reference in Hz (400-480); default from the settings (440)");
     app.add_option("--lowest", c.lowest,

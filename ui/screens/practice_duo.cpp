@@ -8,6 +8,7 @@
 // Index: [header] [lane] [voices] [trace] [beat cue] [view]
 #include "ui/screens/practice_duo.h"
 
+#include "pitch/base/error.h"
 #include "pitch/measure/duo_advice.h"
 #include "pitch/theory/notes.h"
 #include "ui/screens/beat_view.h"
@@ -92,18 +93,20 @@ void header(AppState& app, ImDrawList* dl, float x0, float y0, float w, float h)
 // [SECTION] Lane: the interval's deviation, the one marker
 // ---------------------------------------------------------------------------
 
-void lane(AppState& app, ImDrawList* dl, float x0, float y0, float w, float band_h) {
+}  // namespace
+
+void draw_duo_lane(AppState& app, ImDrawList* dl, float x0, float y0, float w, float band_h, const DuoLook& look) {
     LaneView lv;
-    lv.in_tune_cents = app.settings().in_tune_cents;
+    lv.in_tune_cents = look.in_tune_cents;
     lv.low_word = "narrow";
     lv.high_word = "wide";
     draw_lane(dl, x0, y0, w, band_h, lv);
     const DuoVerdict& v = app.duo();
-    if (!v.known()) return;
+    if (!v.known() || !look.show_verdict) return;
     const float u = ui_unit();
     const double dev = std::clamp(v.pair.dev_cents, -kLaneHalfCents, kLaneHalfCents);
     const float x = std::round(x0 + 0.5f * w + static_cast<float>(dev) * w / static_cast<float>(2.0 * kLaneHalfCents));
-    const Tuning t = tuning_of(v.pair.dev_cents, app.settings().in_tune_cents);
+    const Tuning t = tuning_of(v.pair.dev_cents, look.in_tune_cents);
     const std::uint32_t col = v.current() ? tuning_colour(t) : palette::kTextDim;
     const float mid = std::round(y0 + 0.5f * band_h), r = std::round(0.32f * band_h);
     dl->AddRectFilled(ImVec2(x - 2, y0 - std::round(0.6f * u)), ImVec2(x + 2, y0 + band_h), col);
@@ -119,9 +122,10 @@ void lane(AppState& app, ImDrawList* dl, float x0, float y0, float w, float band
 // [SECTION] Voices: both pitches (secondary) and who should move
 // ---------------------------------------------------------------------------
 
-void voices(AppState& app, ImDrawList* dl, float x0, float y0) {
+void draw_duo_voices(AppState& app, ImDrawList* dl, float x0, float y0, const DuoLook& look) {
     const float u = ui_unit();
     const DuoVerdict& v = app.duo();
+    if (!look.show_verdict) return;
     if (v.state == DuoState::one_series) {
         // One series heard: say why, claim no interval.
         char buf[160];
@@ -134,10 +138,10 @@ void voices(AppState& app, ImDrawList* dl, float x0, float y0) {
     if (!v.known()) return;
     const bool live = v.current();
     const pitch::TwoVoiceFrame& f = v.pair;
-    const bool drone = app.drone_sounding();
-    const pitch::DuoAdvice a =
-        pitch::advise_duo(f, app.targets(), drone ? app.root_hz() : 0.0, app.settings().in_tune_cents);
-    const pitch::DuoAdvice over_root = pitch::advise_duo(f, app.targets(), app.root_hz(), app.settings().in_tune_cents);
+    const bool drone = look.against_root && app.drone_sounding();
+    const pitch::DuoAdvice a = pitch::advise_duo(f, app.targets(), drone ? app.root_hz() : 0.0, look.in_tune_cents);
+    const pitch::DuoAdvice over_root =
+        pitch::advise_duo(f, app.targets(), look.against_root ? app.root_hz() : 0.0, look.in_tune_cents);
     float x = x0;
     auto put = [&](FontFace face, std::uint32_t col, const std::string& s, float gap) {
         draw_text(dl, face, ImVec2(x, y0), col, s);
@@ -153,17 +157,19 @@ void voices(AppState& app, ImDrawList* dl, float x0, float y0) {
         std::snprintf(buf, sizeof buf, "%s %s %s c  %.1f Hz", label, n.name.c_str(),
                       signed_text(n.offset_cents, 0).c_str(), hz);
         put(FontFace::bold, strong, buf, 0.5f * u);
-        if (j.target_index >= 0) {
-            std::snprintf(buf, sizeof buf, "%s %s c over the root",
-                          app.target_ratio_text([&] {
-                                 pitch::Reading r;
-                                 r.target_index = j.target_index;
-                                 r.target_octaves = j.target_octaves;
-                                 return r;
-                             }())
-                              .c_str(),
-                          signed_text(j.dev_cents, 0).c_str());
+        if (j.target_index >= 0 && j.target_index < static_cast<int>(app.targets().targets.size())) {
+            // The voice's own nearest target in the screen's set (advise_duo's index is into that set).
+            const pitch::Interval& iv = app.targets().targets[static_cast<std::size_t>(j.target_index)].interval;
+            std::string ratio;
+            try {
+                ratio = pitch::shift_octaves(iv, j.target_octaves).str();
+            } catch (const Error&) {
+                ratio = iv.str();
+            }
+            std::snprintf(buf, sizeof buf, "%s %s c over the root", ratio.c_str(), signed_text(j.dev_cents, 0).c_str());
             put(FontFace::body, palette::kTextDim, buf, 1.6f * u);
+        } else {
+            x += std::round(1.1f * u);
         }
     };
     voice("lower", f.f_low_hz, over_root.low, kLowColour);
@@ -173,12 +179,14 @@ void voices(AppState& app, ImDrawList* dl, float x0, float y0) {
     if (!m.empty() && live) {
         const std::string why = a.against_root ? "  (each voice against the drone)" : "  (the lower voice leads)";
         const float y1 = y0 + std::round(1.35f * u);
-        const Tuning t = tuning_of(f.dev_cents, app.settings().in_tune_cents);
+        const Tuning t = tuning_of(f.dev_cents, look.in_tune_cents);
         draw_text(dl, FontFace::bold, ImVec2(x0, y1),
                   a.mover == pitch::DuoMover::none ? palette::kInTune : tuning_colour(t), m);
         draw_text(dl, FontFace::body, ImVec2(x0 + text_size(FontFace::bold, m).x, y1), palette::kTextDim, why);
     }
 }
+
+namespace {
 
 // ---------------------------------------------------------------------------
 // [SECTION] Trace: both voices against the interval's target line
@@ -327,9 +335,10 @@ void draw_practice_duo(AppState& app, ImDrawList* dl, float x0, float y0, float 
     y += header_h + std::round(1.8f * u);
     const float band_h = std::round(std::max(2.6f * u, 0.1f * h));
     const float lane_margin = std::round(1.6f * u);
-    lane(app, dl, x0 + lane_margin, y, w - 2.0f * lane_margin, band_h);
+    const DuoLook look{app.settings().in_tune_cents, true};
+    draw_duo_lane(app, dl, x0 + lane_margin, y, w - 2.0f * lane_margin, band_h, look);
     y += band_h + std::round(1.6f * u);
-    voices(app, dl, x0 + lane_margin, y);
+    draw_duo_voices(app, dl, x0 + lane_margin, y, look);
     y += std::round(3.0f * u);
     const float mid_h = y0 + h - y;
     if (mid_h > 3.0f * u) {

@@ -16,7 +16,9 @@
 // are saved, and the drill goes on. The history panel reads the log with the
 // queries `beatless history` uses (ui/session/log_summary.h), once per saved attempt and
 // when another drill is chosen. Leaving the screen stops a drill (a hold not
-// yet over is dropped).
+// yet over is dropped). With two voices (--voices 2, or V on the Practice screen) a hold drill scores the
+// interval of a double stop: the now panel shows the Practice screen's two-voice lane and voices
+// (ui/screens/practice_duo.h) against the hold's target, and the runner is fed the two-voice frames.
 //
 // Index: [state] [run] [now panel] [attempt panel] [left column] [screen]
 #include "pitch/base/error.h"
@@ -25,6 +27,7 @@
 #include "ui/screens/drill_chart.h"
 #include "ui/screens/lane.h"
 #include "ui/screens/palette.h"
+#include "ui/screens/practice_duo.h"
 #include "ui/screens/screen.h"
 #include "ui/screens/widgets.h"
 #include "ui/session/drill_runner.h"
@@ -92,7 +95,7 @@ private:
     void now_panel(AppState& app, ImDrawList* dl, float x0, float y0, float w, float h);
     void hold_now(AppState& app, ImDrawList* dl, float x0, float y0, float w, float h);
     void ear_now(AppState& app, ImDrawList* dl, float x0, float y0, float w, float h);
-    void idle_now(ImDrawList* dl, float x0, float y0, float w, float h);
+    void idle_now(const AppState& app, ImDrawList* dl, float x0, float y0, float w, float h);
     void attempt_panel(ImDrawList* dl, float x0, float y0, float w, float h);
     void hold_trace(ImDrawList* dl, const HoldResult& r, float x0, float y0, float w, float h);
     void ear_track(ImDrawList* dl, float x0, float y0, float w, float h);
@@ -201,6 +204,7 @@ void DrillsScreen::start(AppState& app) {
                   ? o.seed
                   : static_cast<std::uint64_t>(std::chrono::steady_clock::now().time_since_epoch().count());
     rc.performer = d.mode == DrillMode::ear ? (listener_ ? kSimulatedListener : "") : o.demo ? kDemoPerformer : "";
+    rc.voices = d.mode == DrillMode::hold && app.two_voices() ? 2 : 1;
     auto runner = std::make_unique<DrillRunner>(d, rc, writer_.get());
     // The name load_drill finds it by again: the file given with --drill, else the drill's id (a built-in's name).
     const std::string name =
@@ -239,13 +243,19 @@ void DrillsScreen::pump(AppState& app) {
     if (!runner_) return;
     const bool active = runner_->running() || !runner_->done();
     if (active) {
-        const TraceStore& tr = app.trace();
-        std::size_t i = tr.size();
-        while (i > 0 && tr.at(i - 1).t_s > last_fed_t_) --i;
-        for (; i < tr.size(); ++i) {
-            runner_->feed(tr.at(i));
-            last_fed_t_ = tr.at(i).t_s;
-        }
+        // What arrived since the last frame: readings (one voice) or two-voice frames, from the app's trace.
+        auto feed_new = [&](const auto& tr) {
+            std::size_t i = tr.size();
+            while (i > 0 && tr.at(i - 1).t_s > last_fed_t_) --i;
+            for (; i < tr.size(); ++i) {
+                runner_->feed(tr.at(i));
+                last_fed_t_ = tr.at(i).t_s;
+            }
+        };
+        if (runner_->voices() == 2)
+            feed_new(app.duo_trace());
+        else
+            feed_new(app.trace());
         now_s_ = run_drill().mode == DrillMode::hold ? app.stream_time_s() : app.app_time_s();
         runner_->advance(now_s_);
         for (const ToneRequest& t : runner_->take_tones()) {
@@ -315,7 +325,7 @@ std::string seconds_text(double s) {
     return buf;
 }
 
-void DrillsScreen::idle_now(ImDrawList* dl, float x0, float y0, float w, float h) {
+void DrillsScreen::idle_now(const AppState& app, ImDrawList* dl, float x0, float y0, float w, float h) {
     const float u = ui_unit();
     const Drill* d = chosen();
     if (!d) {
@@ -335,7 +345,10 @@ void DrillsScreen::idle_now(ImDrawList* dl, float x0, float y0, float w, float h
         facts = "Hold each target for " + pitch::format_trimmed(d->hold_s, 1) + " s within \xC2\xB1" +
                 pitch::format_trimmed(d->tolerance_cents, 1) + " cents. " +
                 std::string(d->sound_target ? "Each target sounds first; then " : "") + "a count-in of " +
-                pitch::format_trimmed(d->lead_in_s, 1) + " s, and you sing or play.";
+                pitch::format_trimmed(d->lead_in_s, 1) + " s, and you sing or play." +
+                (app.two_voices() ? " Two voices: the interval between them (a double stop) is scored, not either "
+                                    "voice against the drone."
+                                  : "");
     } else {
         facts =
             d->task == ui::EarTask::discriminate
@@ -365,8 +378,9 @@ void DrillsScreen::hold_now(AppState& app, ImDrawList* dl, float x0, float y0, f
     const bool rest_before_next = ph == DrillPhase::rest && r.hold_index() + 1 < r.hold_count();
     const std::size_t shown_index =
         std::min(r.hold_index() + (rest_before_next ? 1 : 0), r.hold_count() ? r.hold_count() - 1 : 0);
-    std::snprintf(buf, sizeof buf, "%s  \xC2\xB7  hold %zu of %zu%s", run_drill().title.c_str(), shown_index + 1,
-                  r.hold_count(), rest_before_next ? " next" : "");
+    std::snprintf(buf, sizeof buf, "%s  \xC2\xB7  hold %zu of %zu%s%s", run_drill().title.c_str(), shown_index + 1,
+                  r.hold_count(), rest_before_next ? " next" : "",
+                  r.voices() == 2 ? "  \xC2\xB7  two voices: the interval between them" : "");
     draw_text(dl, FontFace::body, ImVec2(x0 + u, y), palette::kTextDim, buf);
     y += std::round(1.4f * u);
     const DrillTarget* t = r.current_target();
@@ -457,10 +471,17 @@ void DrillsScreen::hold_now(AppState& app, ImDrawList* dl, float x0, float y0, f
     y += bar_h + std::round(1.5f * u);
     // The lane, as on the Practice screen, its window the drill's tolerance.
     const float lane_margin = std::round(1.6f * u);
+    const bool live = ph == DrillPhase::count_in || ph == DrillPhase::hold;
+    if (r.voices() == 2) {  // the Practice screen's two-voice lane and voices: the interval against the hold's target
+        const DuoLook look{run_drill().tolerance_cents, false, live};
+        const float band_h = std::round(std::clamp(y0 + h - y - 4.4f * u, 1.4f * u, 2.6f * u));
+        draw_duo_lane(app, dl, x0 + lane_margin, y, w - 2.0f * lane_margin, band_h, look);
+        draw_duo_voices(app, dl, x0 + lane_margin, y + band_h + std::round(0.9f * u), look);
+        return;
+    }
     const float band_h = std::round(std::clamp(y0 + h - y - 3.3f * u, 1.4f * u, 2.6f * u));
     LaneView v;
     v.in_tune_cents = run_drill().tolerance_cents;
-    const bool live = ph == DrillPhase::count_in || ph == DrillPhase::hold;
     v.verdict = live ? &app.verdict() : nullptr;
     v.trail = &app.trace();
     v.show_now = y0 + h - (y + band_h) >= 3.6f * u;
@@ -631,7 +652,7 @@ void DrillsScreen::ear_now(AppState& app, ImDrawList* dl, float x0, float y0, fl
 
 void DrillsScreen::now_panel(AppState& app, ImDrawList* dl, float x0, float y0, float w, float h) {
     draw_panel(dl, x0, y0, w, h);
-    if (!runner_) return idle_now(dl, x0, y0, w, h);
+    if (!runner_) return idle_now(app, dl, x0, y0, w, h);
     if (run_drill().mode == DrillMode::hold)
         hold_now(app, dl, x0, y0, w, h);
     else

@@ -251,6 +251,7 @@ void AppState::open_engine() {
                 vc.sample_rate_hz = kSimRateHz;
                 vc.root_hz = engine_root_hz();
                 vc.seed = options_.seed;
+                vc.script = demo_script_;  // a drill's holds as double stops (empty: her round)
                 eng->use_demo(vc);
             } else {
                 eng->open_input_device(settings_.input_device);

@@ -302,11 +302,12 @@ Drill parse_drill(std::string_view text, std::string_view source_name) {
 
 Drill load_drill(std::string_view name_or_path) { return parse_doc(load_toml(name_or_path, "drill")); }
 
-std::string drill_settings_json(const Drill& d) {
+std::string drill_settings_json(const Drill& d, int voices) {
     JsonWriter j;
     j.begin_object();
     j.key("drill").value(d.id);
     j.key("mode").value(d.mode == DrillMode::hold ? "hold" : "ear");
+    if (voices == 2) j.key("voices").value(2);  // the interval between two voices was scored, not one voice
     j.key("drone").begin_object();
     j.key("root").value(d.drone.root_text).key("root_hz").value(d.drone.root_hz, 4);
     j.key("level_dbfs")

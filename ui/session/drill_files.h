@@ -72,7 +72,8 @@ struct Drill {
 Drill load_drill(std::string_view name_or_path);
 Drill parse_drill(std::string_view text, std::string_view source_name);
 
-// The drill's settings as a JSON object, for the practice log.
-std::string drill_settings_json(const Drill& drill);
+// The drill's settings as a JSON object, for the practice log. voices 2: a hold drill scored on the interval
+// between two voices in one input (a double stop); the object then says "voices": 2 (absent: one voice).
+std::string drill_settings_json(const Drill& drill, int voices = 1);
 
 }  // namespace beatless::ui

@@ -12,6 +12,7 @@
 
 #include "pitch/base/error.h"
 #include "pitch/base/text.h"
+#include "ui/session/duo_verdict.h"
 #include "ui/session/safe_file.h"
 
 #include <algorithm>
@@ -43,7 +44,11 @@ std::string_view phase_name(DrillPhase p) {
 }
 
 DrillRunner::DrillRunner(Drill drill, RunnerConfig config, LogWriter* log)
-    : drill_(std::move(drill)), cfg_(std::move(config)), log_(log), settings_json_(drill_settings_json(drill_)) {
+    : drill_(std::move(drill)),
+      cfg_(std::move(config)),
+      log_(log),
+      settings_json_(drill_settings_json(drill_, cfg_.voices)) {
+    if (cfg_.voices == 2) cfg_.hop_s = pitch::TwoVoiceConfig{}.hop_s;  // one frame per two-voice hop
     if (drill_.mode == DrillMode::hold) sequence_ = drill_.sequence(cfg_.seed);
     if (cfg_.max_holds > 0 && sequence_.size() > cfg_.max_holds) sequence_.resize(cfg_.max_holds);
 }
@@ -147,6 +152,20 @@ void DrillRunner::feed(const pitch::Reading& r) {
     }
     if (r.t_s < collect_start_s_) return;
     if (collected_.size() < collected_.capacity()) collected_.push_back(r);
+}
+
+void DrillRunner::feed(const pitch::TwoVoiceFrame& f) {
+    if (!collecting_) return;
+    pitch::Reading r;  // the interval as a reading: f0 the upper voice's, dev the interval's deviation
+    r.t_s = f.t_s;
+    const double interval = f.f_low_hz > 0.0 && f.f_high_hz > 0.0 ? 1200.0 * std::log2(f.f_high_hz / f.f_low_hz) : NAN;
+    if (f.voices == 2 && f.confidence >= DuoVerdictConfig{}.sure_confidence && std::isfinite(interval)) {
+        const double dev = interval - target_cents(sequence_[collect_index_]);
+        r.f0_hz = f.f_high_hz;
+        r.confidence = f.confidence;
+        r.dev_cents = dev - 1200.0 * std::round(dev / 1200.0);  // the target in the interval's nearest octave
+    }
+    feed(r);
 }
 
 void DrillRunner::advance(double now_s) {

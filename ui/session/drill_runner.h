@@ -7,6 +7,7 @@
 #include "audio/demo_performer.h"
 #include "audio/drone.h"
 #include "pitch/measure/reading.h"
+#include "pitch/measure/two_voice.h"
 #include "pitch/theory/targets.h"
 #include "ui/session/drill_files.h"
 #include "ui/session/drill_score.h"
@@ -55,6 +56,9 @@ struct RunnerConfig {
     ui::DeviationSource deviation = ui::DeviationSource::centre_first;
     double min_voiced_s = 0.04;  // shorter voiced stretches are tracker blips, scored as unvoiced; default 40 ms
     std::size_t max_holds = 0;   // hold drills: stop after this many holds (0 = the whole sequence); default 0
+    // 1: one voice against the drone (feed Readings). 2: a double stop, the interval between two voices in one
+    // input against the hold's target (feed TwoVoiceFrames; hop_s becomes the two-voice tracker's). Default 1.
+    int voices = 1;
 };
 
 // A tone to sound now with the reference voice.
@@ -114,7 +118,11 @@ public:
     // last readings is scored with what arrived; an ear session with answers
     // is logged (its threshold NaN when too few reversals).
     void stop(double now_s);
-    void feed(const pitch::Reading& r);     // readings in time order
+    void feed(const pitch::Reading& r);  // readings in time order
+    // voices 2: two-voice frames in time order. The interval between the voices is scored against the hold's
+    // target in its nearest octave, by the same rules as one voice; a frame with one voice, silence or a pair
+    // below the screens' sure confidence (ui/session/duo_verdict.h) counts as unheard.
+    void feed(const pitch::TwoVoiceFrame& f);
     void advance(double now_s);             // phases, due tones, late scores
     bool answer(int choice, double now_s);  // ear: position (discriminate) or target (identify); false when not open
     std::vector<ToneRequest> take_tones();  // tones due since the last call
@@ -131,6 +139,7 @@ public:
     double phase_end_s() const { return phase_end_s_; }  // INFINITY while an answer is awaited
     double time_left_s(double now_s) const;
     double started_s() const { return start_s_; }
+    int voices() const { return cfg_.voices; }  // 2: the interval between two voices is scored
 
     // --- Hold drills ------------------------------------------------------------------
     std::size_t hold_count() const { return sequence_.size(); }

@@ -28,11 +28,13 @@ std::optional<AttemptKind> parse_kind(std::string_view text);  // empty when unk
 
 // One record of an attempt's trace (16 bytes on disk, little-endian float32).
 struct TraceRecord {
-    float t_s = 0.0f;              // hold: time from the hold's start; ear: time of the answer
-    float f0_hz = 0.0f;            // hold: f0 (0 when unvoiced); discriminate: the mistuning asked and played,
-                                   //   cents; identify: the interval played (index); schema 2 ear: staircase level
-    float dev_cents = NAN;         // hold: deviation from the target; discriminate: signed mistuning played
-                                   //   (+ wider); identify: the interval named (index); schema 2 ear: separation
+    float t_s = 0.0f;    // hold: time from the hold's start; ear: time of the answer
+    float f0_hz = 0.0f;  // hold: f0 (0 when unvoiced; two voices: the upper voice's, 0 when no pair);
+                         //   discriminate: the mistuning asked and played,
+                         //   cents; identify: the interval played (index); schema 2 ear: staircase level
+    float dev_cents =
+        NAN;  // hold: deviation from the target (two voices: the interval's); discriminate: signed mistuning played
+              //   (+ wider); identify: the interval named (index); schema 2 ear: separation
     float centre_dev_cents = NAN;  // hold: vibrato centre's deviation; ear: 1 right, 0 wrong
 };
 
