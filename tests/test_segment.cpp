@@ -138,6 +138,35 @@ TEST_CASE("per-target summary: '10/7 averages 6 cents flat'") {
     CHECK(beatless::ui::summary_words(rows[0], "7/5", false).find("sharp (1 note)") != std::string::npos);
 }
 
+TEST_CASE("the summary keeps a target's octaves apart: 5/4 and 5/4 an octave up (5/2) are two rows") {
+    // Ratio arithmetic (common practice): 5/4 x 2/1 = 5/2, an octave above the major third. A note matched at the
+    // octave above is judged against 5/2, so its row must not average with those matched at 5/4.
+    const TargetSet set = target_set({"5/4", "3/2"});
+    const int third = index_of(set, "5/4");
+    NoteSummary summary(set);
+    summary.add(third, 1, -4.0);  // an octave up, 4 c narrow of 5/2
+    summary.add(third, 0, 6.0);
+    summary.add(third, 0, 8.0);
+    summary.add(third, 1, -6.0);
+    summary.add(-1, 0, 30.0);  // between targets: no row
+    const auto rows = summary.rows();
+    REQUIRE(rows.size() == 2);
+    CHECK(rows[0].target_index == third);
+    CHECK(rows[0].target_octaves == 0);  // the lower octave first
+    CHECK(rows[0].count == 2);
+    CHECK(rows[0].mean_dev_cents == doctest::Approx(7.0));  // mean of 6 and 8
+    CHECK(rows[1].target_index == third);
+    CHECK(rows[1].target_octaves == 1);
+    CHECK(rows[1].count == 2);
+    CHECK(rows[1].mean_dev_cents == doctest::Approx(-5.0));          // mean of -4 and -6
+    CHECK(rows[1].spread_cents == doctest::Approx(std::sqrt(2.0)));  // sample s.d. of -4, -6: sqrt(2)
+    // Named as the notes' lines name them: a note keeps the set's ratio and says the octave, an interval is 5/2.
+    CHECK(beatless::ui::target_words_at(set, third, 1, false) == "5/4 +1oct");
+    CHECK(beatless::ui::target_words_at(set, third, 1, true) == "5/2");
+    CHECK(beatless::ui::target_words_at(set, third, -1, true) == "5/8");  // 5/4 x 1/2
+    CHECK(beatless::ui::target_words_at(set, third, 0, false) == "5/4");
+}
+
 TEST_CASE("legato steps split; short dropouts are bridged; blips are dropped") {
     const TargetSet set = tritone_set();
     std::vector<Note> notes(2);

@@ -28,6 +28,7 @@
 
 #include <unistd.h>
 
+#include <algorithm>
 #include <cmath>
 #include <cstdlib>
 #include <filesystem>
@@ -355,4 +356,98 @@ TEST_CASE("Review of a two-voice take over a drone: intervals named in their oct
     CHECK(be32(16) == static_cast<unsigned>(ui::kReportWidthPx));
     CHECK(be32(20) == static_cast<unsigned>(ui::kReportHeightPx));
     unsetenv("BEATLESS_HOME");
+}
+
+TEST_CASE("Review: every name of a target agrees, detail and Per target alike, on the screen and in analyze") {
+    // Ratio arithmetic (common practice): 5/4 x 2/1 = 5/2 and 3/2 x 2/1 = 3/1. A voice over a 110 Hz drone (mix_signals.h
+    // drone_and_voice, voice_octaves 1) at 5/4 x 2 and at 5/8 x 2: the intervals 5/2 (+6 c) and 5/4 (-4 c); read as
+    // one voice, at 3/4 x 2 and 3/2 x 2: the notes 3/2 and 3/2 an octave up. Each summary row names the target its
+    // notes were judged against, as their own lines do: never 5/4 for an interval the detail calls 5/2.
+    beatless::test::TempDir home;
+    setenv("BEATLESS_HOME", home.path().c_str(), 1);
+    const std::filesystem::path takes = ui::takes_dir();
+    std::filesystem::create_directories(takes);
+    auto names = [](const std::string& json, const char* list) {
+        std::vector<std::string> v = beatless::test::json_words(json, list);
+        std::sort(v.begin(), v.end());
+        return v;
+    };
+    {
+        const Take duo = drone_and_voice(kFs, 110.0, {{5.0 / 4.0, 6.0}, {5.0 / 8.0, -4.0}}, 61);
+        beatless::test::write_test_take(takes, "2026-12-04_100000", duo.samples, kFs, duo.dur_s, true, 2);
+        const std::string flac = (takes / "2026-12-04_100000.flac").string();
+        ReviewRig rig(1, 0.0);
+        rig.frames(3);
+        const ui::ReviewView& v = *ui::review_view(*rig.screen);
+        REQUIRE(v.open);
+        REQUIRE(v.marks.size() == 2);
+        CHECK(v.against.rfind("against 5/2, ", 0) == 0);
+        ui::review_select(*rig.screen, 1, 0.0);
+        rig.frames(1);
+        CHECK(v.against.rfind("against 5/4, ", 0) == 0);
+        CHECK(v.summary_rows == std::vector<std::string>{"5/4", "5/2"});  // the lower octave first
+        const auto json = beatless::test::run_program({"analyze", flac, "--voices", "2", "--format", "json"});
+        REQUIRE_MESSAGE(json.exit_code == 0, json.err);
+        const auto detail = names(json.out, "[n['target'] for n in d['intervals']]");
+        CHECK(detail == std::vector<std::string>{"5/2", "5/4"});
+        CHECK(names(json.out, "[s['target'] for s in d['summary']]") == detail);
+        // Each row's words say its own deviation's sense: 5/4 held 4 c narrow, 5/2 6 c wide.
+        CHECK(beatless::test::json_words(json.out,
+                                         "[s['text'].split(' (')[0].split(' ')[0] + ':' + "
+                                         "s['text'].split(' (')[0].split(' ')[-1] for s in d['summary']]") ==
+              std::vector<std::string>{"5/4:narrow", "5/2:wide"});
+        const auto text = beatless::test::run_program({"analyze", flac, "--voices", "2"});
+        CHECK(text.out.find("\n  5/2 averages ") != std::string::npos);
+        CHECK(text.out.find("\n  5/4 averages ") != std::string::npos);
+        CHECK(text.out.find("wide (1 interval) - just major third + octave\n") != std::string::npos);
+    }
+    std::filesystem::remove_all(takes);
+    std::filesystem::create_directories(takes);
+    {
+        const Take solo = drone_and_voice(kFs, 110.0, {{3.0 / 4.0, 3.0}, {3.0 / 2.0, -5.0}}, 62);
+        beatless::test::write_test_take(takes, "2026-12-04_110000", solo.samples, kFs, solo.dur_s, true, 1);
+        const std::string flac = (takes / "2026-12-04_110000.flac").string();
+        ReviewRig rig(2, 0.0);
+        rig.frames(3);
+        const ui::ReviewView& v = *ui::review_view(*rig.screen);
+        REQUIRE(v.open);
+        REQUIRE(v.marks.size() == 2);
+        CHECK(v.against == "against 3/2 +1oct, the nearest target");  // as analyze's target column says it
+        CHECK(v.summary_rows == std::vector<std::string>{"3/2", "3/2 +1oct"});
+        const auto text = beatless::test::run_program({"analyze", flac});
+        REQUIRE_MESSAGE(text.exit_code == 0, text.err);
+        CHECK(text.out.find("  3/2 +1oct   ") != std::string::npos);
+        CHECK(text.out.find("\n  3/2 +1oct averages ") != std::string::npos);
+        CHECK(text.out.find("\n  3/2 averages ") != std::string::npos);
+        CHECK(text.out.find("flat (1 note) - perfect fifth\n") != std::string::npos);  // the 3/2 +1oct, 5 c flat
+        const auto json = beatless::test::run_program({"analyze", flac, "--format", "json"});
+        REQUIRE_MESSAGE(json.exit_code == 0, json.err);
+        // A note's "target" is the set's ratio with its "target_octaves"; a summary row's the same pair.
+        CHECK(names(json.out, "[n['target'] + ':' + str(n['target_octaves']) for n in d['notes']]") ==
+              std::vector<std::string>{"3/2:0", "3/2:1"});
+        CHECK(names(json.out, "[n['target'] + ':' + str(n['target_octaves']) for n in d['notes']]") ==
+              names(json.out, "[s['target'] + ':' + str(s['target_octaves']) for s in d['summary']]"));
+    }
+    unsetenv("BEATLESS_HOME");
+}
+
+TEST_CASE("the remarks name a target in the octave it was matched at") {
+    // 3/2 x 2/1 = 3/1 (common practice): a note an octave up meant as 3/2 is "meant 3/2 +1oct"; between two voices
+    // the interval is "meant 3/1".
+    const pitch::TargetSet set = target_set({"3/2", "4/3"});
+    const int fifth = 0, fourth = 1;
+    pitch::NoteJudgement j;
+    j.meant_index = fifth;
+    j.meant_octaves = 1;
+    j.meant_dev_cents = -40.0;
+    j.nearest.index = static_cast<std::size_t>(fourth);
+    j.nearest.octaves = 1;
+    j.nearest.dev_cents = 12.0;
+    j.nearer_other = true;
+    CHECK(ui::judgement_words(j, set, false) == "meant 3/2 +1oct, sung 40 c flat: that is 12 c from 4/3 +1oct");
+    CHECK(ui::judgement_words(j, set, true) == "meant 3/1, sung 40 c narrow: that is 12 c from 8/3");
+    j.meant_index = -1;
+    j.nearer_other = false;
+    j.between = true;
+    CHECK(ui::judgement_words(j, set, false) == "between targets: 12 c sharp of 4/3 +1oct, the nearest");
 }

@@ -274,13 +274,13 @@ bool NoteSegmenter::close(std::size_t m, bool truncated, NoteResult& out) noexce
     return ok;
 }
 
-NoteSummary::NoteSummary(const TargetSet& targets) : acc_(targets.targets.size()) {}
+NoteSummary::NoteSummary(const TargetSet& targets) : n_targets_(targets.targets.size()) {}
 
-void NoteSummary::add(const NoteResult& note) noexcept { add(note.target_index, note.dev_cents); }
+void NoteSummary::add(const NoteResult& note) { add(note.target_index, note.target_octaves, note.dev_cents); }
 
-void NoteSummary::add(int target_index, double dev_cents) noexcept {
-    if (target_index < 0 || static_cast<std::size_t>(target_index) >= acc_.size() || !std::isfinite(dev_cents)) return;
-    Acc& a = acc_[static_cast<std::size_t>(target_index)];
+void NoteSummary::add(int target_index, int target_octaves, double dev_cents) {
+    if (target_index < 0 || static_cast<std::size_t>(target_index) >= n_targets_ || !std::isfinite(dev_cents)) return;
+    Acc& a = acc_[{target_index, target_octaves}];
     ++a.n;
     const double d = dev_cents - a.mean;
     a.mean += d / a.n;
@@ -290,11 +290,9 @@ void NoteSummary::add(int target_index, double dev_cents) noexcept {
 
 std::vector<TargetSummary> NoteSummary::rows() const {
     std::vector<TargetSummary> out;
-    for (std::size_t i = 0; i < acc_.size(); ++i) {
-        const Acc& a = acc_[i];
-        if (a.n == 0) continue;
-        out.push_back({static_cast<int>(i), a.n, a.mean, a.n > 1 ? std::sqrt(a.m2 / (a.n - 1)) : 0.0, a.abs_sum / a.n});
-    }
+    for (const auto& [key, a] : acc_)
+        out.push_back(
+            {key.first, key.second, a.n, a.mean, a.n > 1 ? std::sqrt(a.m2 / (a.n - 1)) : 0.0, a.abs_sum / a.n});
     return out;
 }
 

@@ -12,7 +12,9 @@
 
 #include <cmath>
 #include <cstddef>
+#include <map>
 #include <string>
+#include <utility>
 #include <vector>
 
 namespace beatless::pitch {
@@ -103,7 +105,7 @@ private:
     TargetSet targets_;
     VibratoCentre vib_;
     std::size_t cap_ = 0;
-    std::size_t n_ = 0;  // frames in the open note
+    std::size_t n_ = 0;               // frames in the open note
     double recent_median() noexcept;  // median of the last smooth_n_ frames (fewer at the start)
 
     std::vector<double> t_, c_, centre_, win_start_, scratch_, recent_, conf_;
@@ -119,8 +121,11 @@ private:
 };
 
 // Per-target summary of the notes: "10/7 averages 6 cents flat".
+// One row a target at each octave it was matched at (5/4 and 5/4 an octave up, 5/2, are two rows), so a row names
+// what its notes were judged against.
 struct TargetSummary {
     int target_index = -1;
+    int target_octaves = 0;       // octave shift of the match, as NoteResult::target_octaves
     int count = 0;                // notes matched to the target
     double mean_dev_cents = 0.0;  // mean signed deviation: + is sharp
     double spread_cents = 0.0;    // standard deviation of the deviations (0 for one note)
@@ -130,15 +135,18 @@ struct TargetSummary {
 class NoteSummary {
 public:
     explicit NoteSummary(const TargetSet& targets);
-    void add(const NoteResult& note) noexcept;              // notes without a target are ignored
-    void add(int target_index, double dev_cents) noexcept;  // the same for any measurement (a dyad)
-    std::vector<TargetSummary> rows() const;                // targets with notes, in set order
+    void add(const NoteResult& note);  // notes without a target are ignored
+    // The same for any measurement (a dyad), matched at `target_octaves`.
+    void add(int target_index, int target_octaves, double dev_cents);
+    void add(int target_index, double dev_cents) { add(target_index, 0, dev_cents); }
+    std::vector<TargetSummary> rows() const;  // (target, octave) pairs with notes, in set order, low octave first
 private:
     struct Acc {
         int n = 0;
         double mean = 0.0, m2 = 0.0, abs_sum = 0.0;
     };
-    std::vector<Acc> acc_;
+    std::size_t n_targets_ = 0;
+    std::map<std::pair<int, int>, Acc> acc_;  // by (target index, octaves)
 };
 
 }  // namespace beatless::pitch

@@ -68,14 +68,10 @@ struct AnalyzeOptions {
 constexpr double kProgressAfterS = 5.0;  // files longer than this show a progress bar (on a terminal)
 
 std::string target_name(const pitch::TargetSet& set, int index) { return target_name_of(set, index); }
-std::string target_text(const pitch::TargetSet& set, int index) { return target_text_of(set, index); }
 
 // "7/5", "3/2 +1oct", or "-" for a note between targets.
 std::string target_column(const pitch::TargetSet& set, int index, int octaves) {
-    if (index < 0) return "-";
-    std::string t = target_text(set, index);
-    if (octaves != 0) t += (octaves > 0 ? " +" : " ") + std::to_string(octaves) + "oct";
-    return t;
+    return index < 0 ? "-" : target_words_at(set, index, octaves, false);
 }
 
 std::string dev_column(double dev_cents) {
@@ -141,8 +137,9 @@ void print_summary_text(const pitch::TargetSet& set, const std::vector<pitch::Ta
     if (rows.empty()) return;
     std::printf("\nPer target:\n");
     for (const auto& r : rows) {
-        const std::string name = target_name(set, r.target_index);
-        std::string line = summary_words(r, target_text(set, r.target_index), dyads);
+        // Named as the lines above name the notes or intervals it sums, in the octave they were matched at.
+        const std::string name = target_name_words_at(set, r.target_index, r.target_octaves, dyads);
+        std::string line = summary_words(r, target_words_at(set, r.target_index, r.target_octaves, dyads), dyads);
         if (!name.empty()) line += " - " + name;
         std::printf("  %s\n", line.c_str());
     }

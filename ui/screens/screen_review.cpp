@@ -117,7 +117,7 @@ private:
     void hear(AppState& app, ClipKind kind);
     void rename(AppState& app, const std::string& stem);
     char rename_buf_[96] = "";
-    std::string target_text(int index) const;
+    std::string target_text(int index, int octaves) const;
 
     bool started_ = false;
     bool wait_ = false;  // simulated time (snapshots, tests): wait for the worker, for a true picture
@@ -134,9 +134,10 @@ private:
     bool confirm_delete_ = false;
 };
 
-std::string ReviewScreen::target_text(int index) const {
-    if (!take_ || index < 0 || static_cast<std::size_t>(index) >= take_->set.targets.size()) return "";
-    return take_->set.targets[static_cast<std::size_t>(index)].interval.str();
+// A target in the octave it was matched at, named as `analyze` names it ("3/2 +1oct"; "5/2" between two voices).
+std::string ReviewScreen::target_text(int index, int octaves) const {
+    if (!take_) return "";
+    return target_words_at(take_->set, index, octaves, take_->voices == 2);
 }
 
 namespace {
@@ -753,12 +754,13 @@ float ReviewScreen::draw_note_detail(AppState& app, ImDrawList* dl, float x, flo
         const Tuning tn = tuning_of(n.dev_cents, app.settings().in_tune_cents);
         colour = tuning_colour(tn);
         big = signed_text(n.dev_cents, 1) + " c " + std::string(tuning_word(tn));
-        against = (j.meant_index >= 0 ? "against " + target_text(n.target_index) + ", the target meant"
-                                      : "against " + target_text(n.target_index) + ", the nearest target");
+        const std::string tgt = target_text(n.target_index, n.target_octaves);
+        against = "against " + tgt + (j.meant_index >= 0 ? ", the target meant" : ", the nearest target");
     } else {
         big = "between targets";
-        against = off_words(j.nearest.dev_cents, false) + " of " + target_text(static_cast<int>(j.nearest.index)) +
-                  ", the nearest; none within " + pitch::format_trimmed(pitch::IntentConfig{}.between_cents, 0) + " c";
+        against = off_words(j.nearest.dev_cents, false) + " of " +
+                  target_text(static_cast<int>(j.nearest.index), j.nearest.octaves) + ", the nearest; none within " +
+                  pitch::format_trimmed(pitch::IntentConfig{}.between_cents, 0) + " c";
     }
     draw_text(dl, FontFace::large, ImVec2(x + pad, ty), colour, big);
     view_.against = against;
@@ -767,6 +769,7 @@ float ReviewScreen::draw_note_detail(AppState& app, ImDrawList* dl, float x, flo
               palette::kText, fit_text(FontFace::body, against, w - 3 * pad - big_w - u));
     ty += std::round(font_px(FontFace::large) + 0.4f * u);
     const std::string remark = j.between ? std::string() : judgement_words(j, take_->set, false);
+    view_.remark = remark;
     if (!remark.empty()) {
         draw_text(dl, FontFace::body, ImVec2(x + pad, ty), palette::kText,
                   fit_text(FontFace::body, remark, w - 2 * pad));
@@ -789,6 +792,7 @@ void ReviewScreen::draw_detail(AppState& app, ImDrawList* dl, float x, float y, 
     const float pad = std::round(0.6f * u);
     view_.heading.clear();
     view_.against.clear();
+    view_.remark.clear();
     if (!take_ || !take_->error.empty()) return;
     const HeardLevels& heard = take_->voices == 2 ? take_->duo.heard : take_->analysis.heard;
     if (item_count(*take_) == 0) {
@@ -855,13 +859,20 @@ void ReviewScreen::draw_summary(ImDrawList* dl, float x, float y, float w, float
     draw_panel(dl, x, y, w, h);
     const float pad = std::round(0.6f * u);
     draw_text(dl, FontFace::medium, ImVec2(x + pad, y + pad), palette::kText, "Per target");
+    view_.summary_rows.clear();
     if (!take_ || !take_->error.empty()) return;
     float ty = y + pad + std::round(1.9f * u);
     // One line a target: its ratio, the mean deviation (its colour and word), the count and the spread; when the
     // targets outnumber the panel's two-line rows, one line each; when even those do not fit, a last line says how
     // many are not shown, so no target disappears silently.
-    const float col = std::round(4.5f * u);
     const auto& rows = take_summary(*take_);
+    // The name column fits the longest name ("3/2 +1oct", "45/16"), within 45 % of the panel.
+    float col = std::round(4.5f * u);
+    for (const auto& row : rows) {
+        view_.summary_rows.push_back(target_text(row.target_index, row.target_octaves));
+        col = std::max(col, std::round(text_size(FontFace::bold, view_.summary_rows.back()).x + 0.8f * u));
+    }
+    col = std::min(col, std::round(0.45f * (w - 2 * pad)));
     const float room = y + h - pad - ty;
     const bool compact = static_cast<float>(rows.size()) * std::round(2.6f * u) > room;
     const float row_h = compact ? std::round(1.4f * u) : std::round(2.6f * u);
@@ -871,7 +882,7 @@ void ReviewScreen::draw_summary(ImDrawList* dl, float x, float y, float w, float
         const auto& row = rows[i];
         const Tuning tn = tuning_of(row.mean_dev_cents, in_tune_cents_);
         draw_text(dl, FontFace::bold, ImVec2(x + pad, ty), palette::kText,
-                  fit_text(FontFace::bold, target_text(row.target_index), col - 0.3f * u));
+                  fit_text(FontFace::bold, view_.summary_rows[i], col - 0.3f * u));
         std::string more = count_words(row.count, take_->voices == 2);
         if (row.count > 1) more += ", spread " + pitch::format_trimmed(row.spread_cents, 1) + " c";
         const std::string mean = "mean " + off_words(row.mean_dev_cents, take_->voices == 2);

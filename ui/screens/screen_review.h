@@ -35,6 +35,8 @@ struct ReviewView {
     std::vector<std::string> takes;         // the list's rows as drawn
     std::string heading;                    // the selected item's heading ("Note 2 of 3   2.25 - 3.85 s"), or ""
     std::string against;                    // what it is judged against ("against 14/5, ..."), or ""
+    std::string remark;                     // the note's remark line ("meant 3/2 +1oct, sung ..."), or ""
+    std::vector<std::string> summary_rows;  // the Per target panel's target names as drawn (all rows, shown or not)
     float x_of(double t_s) const {
         return plot_x0 + static_cast<float>((t_s - t0_s) / (t1_s - t0_s)) * (plot_x1 - plot_x0);
     }

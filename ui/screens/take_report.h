@@ -100,12 +100,13 @@ ReportData report_of(const pitch::TargetSet& set, const std::vector<Item>& items
         d.targets.push_back({set.targets[i].interval.cents(), set.targets[i].interval.str(),
                              target_name_of(set, static_cast<int>(i)), used[i]});
     for (const auto& r : summary) {
-        const std::string ratio = target_text_of(set, r.target_index);
+        // Named as analyze's summary names it, in the octave its notes were matched at ("3/2 +1oct", "5/2").
+        const std::string ratio = target_words_at(set, r.target_index, r.target_octaves, dyads);
         const std::string w = summary_words(r, ratio, dyads);
         // The ratio and the count have their own columns: keep "averages 6 cents flat".
         const std::size_t from = std::min(w.size(), ratio.size() + 1);
-        d.summary.push_back({ratio, target_name_of(set, r.target_index), r.count, r.mean_dev_cents, r.spread_cents,
-                             w.substr(from, w.find(" (") - from)});
+        d.summary.push_back({ratio, target_name_words_at(set, r.target_index, r.target_octaves, dyads), r.count,
+                             r.mean_dev_cents, r.spread_cents, w.substr(from, w.find(" (") - from)});
     }
     return d;
 }

@@ -155,7 +155,7 @@ void judge(const AnalysisRequest& req, std::vector<Item>& items, CentsOf cents_o
     pitch::NoteSummary sum(req.targets);
     for (std::size_t i = 0; i < items.size(); ++i) {
         apply_to(judged[i], items[i]);
-        sum.add(items[i].target_index, items[i].dev_cents);
+        sum.add(items[i].target_index, items[i].target_octaves, items[i].dev_cents);
     }
     summary = sum.rows();
 }

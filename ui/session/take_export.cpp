@@ -28,11 +28,15 @@ void add_target_json(JsonWriter& j, const pitch::TargetSet& set, int index) {
 // Meant, nearest and between, beside the judged target.
 void add_judgement_json(JsonWriter& j, const pitch::TargetSet& set, const pitch::NoteJudgement& g, bool intervals) {
     j.key("meant");
+    // A target as the item's own "target" names it: between two voices in the octave it was matched at ("5/2").
+    auto ratio = [&](int index, int octaves) {
+        return intervals ? target_text_at(set, index, octaves) : target_text_of(set, index);
+    };
     if (g.meant_index >= 0)
-        j.value(target_text_of(set, g.meant_index));
+        j.value(ratio(g.meant_index, g.meant_octaves));
     else
         j.null();
-    j.key("nearest").value(target_text_of(set, static_cast<int>(g.nearest.index)));
+    j.key("nearest").value(ratio(static_cast<int>(g.nearest.index), g.nearest.octaves));
     j.key("nearest_octaves").value(g.nearest.octaves).key("nearest_dev_cents").value(g.nearest.dev_cents, 3);
     j.key("between_targets").value(g.between).key("nearer_other").value(g.nearer_other);
     j.key("remark").value(judgement_words(g, set, intervals));
@@ -42,8 +46,14 @@ void add_summary_json(JsonWriter& j, const pitch::TargetSet& set, const std::vec
                       bool dyads) {
     j.key("summary").begin_array();
     for (const auto& r : rows) {
-        const std::string ratio = target_text_of(set, r.target_index);
-        j.begin_object().key("target").value(ratio).key("target_name").value(target_name_of(set, r.target_index));
+        // Named as the notes' own lines name their target, in the octave the row's notes were matched at.
+        // "target" and "target_octaves" as each note's or interval's own ("3/2" and 1 for a note; "5/2" and 1 for
+        // an interval); "text" as analyze prints the row ("3/2 +1oct averages ...").
+        const std::string ratio = target_words_at(set, r.target_index, r.target_octaves, dyads);
+        j.begin_object().key("target");
+        j.value(dyads ? target_text_at(set, r.target_index, r.target_octaves) : target_text_of(set, r.target_index));
+        j.key("target_name").value(target_name_words_at(set, r.target_index, r.target_octaves, dyads));
+        j.key("target_octaves").value(r.target_octaves);
         j.key("count").value(r.count).key("mean_dev_cents").value(r.mean_dev_cents, 3);
         j.key("spread_cents").value(r.spread_cents, 3).key("mean_abs_dev_cents").value(r.mean_abs_dev_cents, 3);
         j.key("text").value(summary_words(r, ratio, dyads)).end_object();

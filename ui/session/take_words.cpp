@@ -42,6 +42,17 @@ std::string target_name_at(const pitch::TargetSet& set, int index, int octaves) 
     return pitch::target_name_in_octave(set.targets[static_cast<std::size_t>(index)], octaves, interval_names());
 }
 
+std::string target_words_at(const pitch::TargetSet& set, int index, int octaves, bool intervals) {
+    if (intervals) return target_text_at(set, index, octaves);
+    std::string t = target_text_of(set, index);
+    if (!t.empty() && octaves != 0) t += (octaves > 0 ? " +" : " ") + std::to_string(octaves) + "oct";
+    return t;
+}
+
+std::string target_name_words_at(const pitch::TargetSet& set, int index, int octaves, bool intervals) {
+    return intervals ? target_name_at(set, index, octaves) : target_name_of(set, index);
+}
+
 std::string root_words(const pitch::RootEstimate& e) {
     switch (e.status) {
         case pitch::RootStatus::found:
@@ -80,14 +91,14 @@ std::string off_words(double dev_cents, bool intervals) {
 }
 
 std::string judgement_words(const pitch::NoteJudgement& j, const pitch::TargetSet& set, bool intervals) {
-    auto text = [&](std::size_t i) { return i < set.targets.size() ? set.targets[i].interval.str() : std::string(); };
+    // Each target in the octave it was matched at, as the note's own line names it.
+    const std::string nearest = target_words_at(set, static_cast<int>(j.nearest.index), j.nearest.octaves, intervals);
     if (j.between)
-        return "between targets: " + off_words(j.nearest.dev_cents, intervals) + " of " + text(j.nearest.index) +
-               ", the nearest";
+        return "between targets: " + off_words(j.nearest.dev_cents, intervals) + " of " + nearest + ", the nearest";
     if (j.meant_index >= 0 && j.nearer_other)
-        return "meant " + text(static_cast<std::size_t>(j.meant_index)) + ", sung " +
+        return "meant " + target_words_at(set, j.meant_index, j.meant_octaves, intervals) + ", sung " +
                off_words(j.meant_dev_cents, intervals) + ": that is " +
-               format_trimmed(std::fabs(j.nearest.dev_cents), 1) + " c from " + text(j.nearest.index);
+               format_trimmed(std::fabs(j.nearest.dev_cents), 1) + " c from " + nearest;
     return "";
 }
 

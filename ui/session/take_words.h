@@ -19,7 +19,12 @@ std::string target_name_of(const pitch::TargetSet& set, int index);
 // (pitch::shift_octaves, pitch::target_name_in_octave): 7/5 an octave up is "14/5"; unchanged for octaves == 0.
 std::string target_text_at(const pitch::TargetSet& set, int index, int octaves);
 std::string target_name_at(const pitch::TargetSet& set, int index, int octaves);
-// "7/5 averages 6 cents flat (3 notes, spread 1.2 cents)"; between two voices
+// A matched target as every review names it, one voice or two: between two voices (intervals true) target_text_at
+// ("5/2"); a note against a drone keeps the set's ratio and says the octave ("3/2 +1oct", as `analyze` prints it).
+// Its name likewise: target_name_at between two voices, else the set's own name. "" for an index out of range.
+std::string target_words_at(const pitch::TargetSet& set, int index, int octaves, bool intervals);
+std::string target_name_words_at(const pitch::TargetSet& set, int index, int octaves, bool intervals);
+// "7/5 averages 6 cents flat (3 notes, spread 1.2 cents)", `name` the row's target_words_at; between two voices
 // (intervals true) "... 6 cents narrow (3 intervals, ...)", wide for sharp.
 std::string summary_words(const pitch::TargetSummary& row, const std::string& name, bool intervals);
 // What a note's judgement adds to its deviation, or "" when it is plainly the nearest target:
