@@ -53,10 +53,9 @@ std::vector<std::string> ratios(const Drill& d) { return ratios(d.targets); }
 
 TEST_CASE("the shipped drills are all there and load") {
     const std::vector<std::string> expected = {
-        "ear-septimal-tritone",  "ear-tritones",           "hold-fifthless-pentatonic",
-        "hold-harmonic-cluster", "hold-harmonic-ladder",   "hold-harmonic-lydian",
-        "hold-septimal",         "hold-septimal-tritones", "hold-tritones",
-        "hold-undecimal",        "hold-whole-tones"};
+        "ear-septimal-tritone",   "ear-tritones",         "hold-double-stops",    "hold-fifthless-pentatonic",
+        "hold-harmonic-cluster",  "hold-harmonic-ladder", "hold-harmonic-lydian", "hold-septimal",
+        "hold-septimal-tritones", "hold-tritones",        "hold-undecimal",       "hold-whole-tones"};
     CHECK(builtin_names("drill") == expected);
     for (const auto& name : expected) {
         const Drill d = load_drill(name);
