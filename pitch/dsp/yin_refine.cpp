@@ -80,9 +80,9 @@ namespace {
 
 constexpr int kS = LagRefiner::kSearch;
 
-// The narrow kernel (sigma 1 lag, +-4 lags) and the wide one (sigma 2 lags, +-8 lags, LagRefiner::kKernelHalf).
+// The narrow kernel (sigma 1 lag, +-4 lags) and the wide one (sigma 2 lags, tapered to +-4 lags).
 const LagRefiner::Kernel& tables(bool wide) {
-    static const LagRefiner::Kernel narrow(4, 1.0), broad(LagRefiner::kKernelHalf, 2.0);
+    static const LagRefiner::Kernel narrow(LagRefiner::kKernelHalf, 1.0), broad(LagRefiner::kKernelHalf, 2.0);
     return wide ? broad : narrow;
 }
 
