@@ -17,6 +17,7 @@
 //   6. CSV export and import
 //   7. The history command
 #include "pitch/base/error.h"
+#include "ui/session/drill_progress.h"
 #include "ui/session/log_csv.h"
 #include "ui/session/log_summary.h"
 #include "ui/session/log_writer.h"
@@ -749,7 +750,7 @@ TEST_CASE("beatless history: text, json and csv, filters and errors") {
     const Run csv = run_program("history --format csv --by month", t.path);
     CHECK(csv.code == 0);
     CHECK(csv.out.starts_with("period,kind,key,name,attempts,"));
-    CHECK(csv.out.find("\nall,hold,7/5,septimal tritone,4,0.75,1.5,-1.75,3.5,0.575,,,,,\n") != std::string::npos);
+    CHECK(csv.out.find("\nall,hold,7/5,septimal tritone,4,0.75,1.5,-1.75,3.5,0.575,,,,,,1\n") != std::string::npos);
     CHECK(csv.out.find("\n2025-03,ear,ear-tritones,") != std::string::npos);
 
     const Run bad_since = run_program("history --since 2025-02-30", t.path);
@@ -766,6 +767,101 @@ TEST_CASE("beatless history: text, json and csv, filters and errors") {
     CHECK(none.code == 0);
     CHECK(none.out.find("0 attempts") != std::string::npos);
     CHECK_FALSE(fs::exists(empty.path / "data" / "practice.sqlite3"));  // looking creates nothing
+}
+
+TEST_CASE("two-voice holds (the interval of a double stop) are kept apart from one-voice holds of the same target") {
+    // Hand-worked sums. A hold drill run with --voices 2 logs "voices": 2 in its settings
+    // (ui/session/drill_files.cpp); an attempt without the key, or with settings that
+    // are not JSON, is one voice.
+    TempDir t("voices");
+    {
+        PracticeLog log(t.path / "data" / "practice.sqlite3");
+        fill_known(log);  // 7/5: four one-voice holds, mean deviation -1.75 c
+        std::vector<Attempt> v = {hold("2025-03-06T10:00:00.000Z", "7/5", true, 2.0, 3.0, 1.0, 0.6),
+                                  hold("2025-03-11T10:00:00.000Z", "7/5", false, NAN, 5.0, 3.0, 0.2),
+                                  hold("2025-03-11T11:00:00.000Z", "7/5", true, 1.0, 1.0, 1.0, 0.9)};
+        v[0].settings_json = R"({"tolerance_cents": 5, "voices": 2})";
+        v[1].settings_json = R"({"voices":2})";
+        v[2].settings_json = R"({"voices": 1, "note": "one voice said outright"})";
+        log.add_all(v);
+
+        const HistorySummary s = summarize_history(log, HistoryOptions{{}, Period::week});
+        CHECK(s.attempts == 10);
+        REQUIRE(s.totals.size() == 4);  // 7/5 one voice, 7/5 two voices, 10/7, the ear drill
+        CHECK(s.totals[0].key == "7/5");
+        CHECK(s.totals[0].voices == 1);
+        CHECK(s.totals[0].attempts == 5);
+        CHECK(s.totals[0].mean_dev_cents == doctest::Approx((-4.0 - 2.0 + 0.0 - 1.0 + 1.0) / 5.0));
+        CHECK(s.totals[1].key == "7/5");
+        CHECK(s.totals[1].voices == 2);
+        CHECK(s.totals[1].attempts == 2);
+        CHECK(s.totals[1].mean_dev_cents == doctest::Approx(4.0));
+        CHECK(s.totals[1].locked_share == doctest::Approx(0.5));
+        CHECK(s.totals[2].key == "10/7");
+        // Over time, the two-voice 7/5 has its own line per week.
+        int pair_weeks = 0;
+        for (const HistoryLine& l : s.over_time)
+            if (l.key == "7/5" && l.voices == 2) ++pair_weeks;
+        CHECK(pair_weeks == 2);
+
+        AttemptFilter two;
+        two.voices = 2;
+        CHECK(log.count(two) == 2);
+        AttemptFilter one;
+        one.voices = 1;
+        CHECK(log.count(one) == 8);  // 6 one-voice holds and the 2 ear sessions
+    }
+    const Run text = run_program("history", t.path);
+    CHECK(text.code == 0);
+    CHECK(text.out.find("  target  voices  name") != std::string::npos);
+    CHECK(text.out.find("  7/5     2       septimal tritone") != std::string::npos);
+    const Run pairs = run_program("history --voices 2 --format json", t.path);
+    CHECK(pairs.code == 0);
+    CHECK(pairs.out.find("\"attempts\": 2,") != std::string::npos);
+    CHECK(pairs.out.find("\"voices\": 1") == std::string::npos);
+    CHECK(pairs.out.find("\"mean_dev_cents\": 4,") != std::string::npos);
+    CHECK(run_program("history --voices 3", t.path).code == 2);
+    // A log with one-voice holds only keeps its table as it was: no voices column.
+    TempDir plain("one-voice-only");
+    {
+        PracticeLog log(plain.path / "data" / "practice.sqlite3");
+        fill_known(log);
+    }
+    CHECK(run_program("history", plain.path).out.find("  target  name") != std::string::npos);
+}
+
+TEST_CASE("the Drills screen's history reads the attempts of the mode in use: one voice or the interval of two") {
+    // Hand-worked: the day's mean deviation per target, as `beatless history --by day --voices N`.
+    TempDir t("drill-voices");
+    const fs::path path = t.path / "p.sqlite3";
+    {
+        PracticeLog log(path);
+        std::vector<Attempt> v = {hold("2025-03-06T10:00:00.000Z", "7/4", true, 1.0, -1.0, 1.0, 0.9),
+                                  hold("2025-03-06T10:01:00.000Z", "7/4", true, 1.0, 4.0, 1.0, 0.9),
+                                  hold("2025-03-06T10:02:00.000Z", "7/4", true, 1.0, 6.0, 1.0, 0.9)};
+        for (Attempt& a : v) a.drill = "hold-double-stops";
+        v[1].settings_json = v[2].settings_json = R"({"voices": 2})";
+        log.add_all(v);
+    }
+    const Drill d = load_drill("hold-double-stops");
+    const DrillProgress one = read_drill_progress(path.string(), d, true, 1);
+    const DrillProgress two = read_drill_progress(path.string(), d, true, 2);
+    CHECK(one.voices == 1);
+    CHECK(two.voices == 2);
+    auto series = [](const DrillProgress& p, const std::string& key) -> const DrillProgressSeries* {
+        for (const DrillProgressSeries& s : p.series)
+            if (s.key == key) return &s;
+        return nullptr;
+    };
+    const DrillProgressSeries* a = series(one, "7/4");
+    const DrillProgressSeries* b = series(two, "7/4");
+    REQUIRE(a != nullptr);
+    REQUIRE(b != nullptr);
+    REQUIRE(a->points.size() == 1);
+    REQUIRE(b->points.size() == 1);
+    CHECK(a->points[0].value == doctest::Approx(-1.0));
+    CHECK(b->points[0].value == doctest::Approx(5.0));
+    CHECK(b->attempts == 2);
 }
 
 TEST_CASE("the demo performer's and the simulated listener's attempts are kept apart from the performer's own") {

@@ -1,4 +1,4 @@
-// beatless history [--target R] [--drill ID] [--since DATE] [--by day|week|month]
+// beatless history [--target R] [--drill ID] [--since DATE] [--voices 1|2] [--by day|week|month]
 //                  [--format text|json|csv] [--log FILE]
 // beatless history --export FILE.csv [--no-traces] [filters]
 // beatless history --import FILE.csv
@@ -43,6 +43,7 @@ struct HistoryCmd {
     std::string import_file;
     bool no_traces = false;
     bool with_demo = false;
+    int voices = 0;
 };
 
 int run_import(const HistoryCmd& o, const fs::path& log_path) {
@@ -92,6 +93,7 @@ int run_history(const HistoryCmd& o) {
     }
     filter.drill = o.drill;
     filter.simulated = o.with_demo;
+    filter.voices = o.voices;
     if (!o.since.empty()) filter.since = parse_since(o.since);
     if (!o.import_file.empty()) return run_import(o, log_path);
     if (!o.export_file.empty()) return run_export(o, log_path, filter);
@@ -121,6 +123,10 @@ void register_history(CLI::App& app, Runner& run) {
     sub->add_option("--target", o->target, "Only this target (7/5, 600c); ear drills that offer it");
     sub->add_option("--drill", o->drill, "Only this drill id");
     sub->add_option("--since", o->since, "Only attempts from this UTC date or time on (YYYY-MM-DD[THH:MM[:SS]])");
+    sub->add_option("--voices", o->voices,
+                    "Only holds on one voice (1) or on the interval of two voices (2: double stops); default both, "
+                    "kept apart; ear drills count as one")
+        ->check(CLI::IsMember({1, 2}));
     const std::map<std::string, Period> periods{{"day", Period::day}, {"week", Period::week}, {"month", Period::month}};
     sub->add_option("--by", o->by, "Over-time buckets: day, week (default) or month")
         ->transform(CLI::CheckedTransformer(periods, CLI::ignore_case).description(""));

@@ -141,13 +141,14 @@ void draw_drill_progress(ImDrawList* dl, const DrillProgress& hist, const Drill&
     draw_panel(dl, x0, y0, w, h);
     const Drill* d = &drill;
     const bool ear = d->mode == DrillMode::ear;
-    const std::string head = ear ? (d->task == ui::EarTask::discriminate
-                                        ? "History of " + d->title +
-                                              ": the threshold fitted to each day's answers, in cents (lower is finer)"
-                                        : "History of " + d->title + ": the share named right per day")
-                                 : "History of " + d->title +
-                                       ": mean deviation per target per day, in cents (band \xC2\xB1" +
-                                       pitch::format_trimmed(d->tolerance_cents, 1) + " c)";
+    const std::string head =
+        ear ? (d->task == ui::EarTask::discriminate
+                   ? "History of " + d->title +
+                         ": the threshold fitted to each day's answers, in cents (lower is finer)"
+                   : "History of " + d->title + ": the share named right per day")
+            : "History of " + d->title +
+                  (hist.voices == 2 ? " on two voices: the interval's mean deviation" : ": mean deviation") +
+                  " per target per day, in cents (band \xC2\xB1" + pitch::format_trimmed(d->tolerance_cents, 1) + " c)";
     draw_text(dl, FontFace::body, ImVec2(x0 + u, y0 + std::round(0.3f * u)), palette::kTextDim, head);
     const float gy = y0 + std::round(1.5f * u);
     const float gh = y0 + h - gy - std::round(0.4f * u);

@@ -1051,8 +1051,9 @@ void DrillsScreen::build(AppState& app, const ScreenArea& area, double dt_s) {
     const float now_h = std::round(std::clamp(0.58f * top_h, 9.0f * u, 14.0f * u));
     now_panel(app, dl, rx, top, rw, now_h);
     attempt_panel(dl, rx, top + now_h + gap, rw, top_h - now_h - gap);
-    if (history_dirty_ && chosen()) {
-        history_ = read_drill_progress(log_path_, *chosen(), app.options().demo || listener_.has_value());
+    const int voices = app.two_voices() ? 2 : 1;  // the attempts shown are of the mode in use (V switches it)
+    if ((history_dirty_ || (history_.voices != voices && chosen() && chosen()->mode == DrillMode::hold)) && chosen()) {
+        history_ = read_drill_progress(log_path_, *chosen(), app.options().demo || listener_.has_value(), voices);
         history_dirty_ = false;
     }
     if (chosen()) draw_drill_progress(dl, history_, *chosen(), x0, top + top_h + gap, w, hist_h);

@@ -22,9 +22,10 @@ long day_number(const std::string& day) {
     return static_cast<long>(sys_days{year{y} / month{m} / std::chrono::day{d}}.time_since_epoch().count());
 }
 
-DrillProgress read_drill_progress(const std::string& log_path, const Drill& drill, bool simulated) {
+DrillProgress read_drill_progress(const std::string& log_path, const Drill& drill, bool simulated, int voices) {
     DrillProgress out;
     const Drill* d = &drill;
+    out.voices = d->mode == DrillMode::hold && voices == 2 ? 2 : 1;
     if (log_path.empty()) {
         out.note = "No practice log in use (a snapshot without --log).";
         return out;
@@ -70,6 +71,7 @@ DrillProgress read_drill_progress(const std::string& log_path, const Drill& dril
         HistoryOptions ho;
         ho.filter.drill = d->id;
         ho.filter.simulated = simulated;
+        ho.filter.voices = out.voices;
         ho.by = Period::day;
         const HistorySummary sum = summarize_history(log, ho);
         std::map<std::string, std::size_t> at;
@@ -89,7 +91,9 @@ DrillProgress read_drill_progress(const std::string& log_path, const Drill& dril
             ps.points.push_back({day_number(l.period), l.mean_dev_cents, NAN, NAN, false});
             ps.attempts += l.attempts;
         }
-        if (sum.attempts == 0) out.note = "No attempts of this drill in the practice log yet.";
+        if (sum.attempts == 0)
+            out.note = out.voices == 2 ? "No two-voice attempts of this drill in the practice log yet."
+                                       : "No attempts of this drill in the practice log yet.";
     } catch (const Error& e) {
         out.note = e.what();
     }

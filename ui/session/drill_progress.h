@@ -36,13 +36,15 @@ struct DrillProgressSeries {
 struct DrillProgress {
     std::vector<DrillProgressSeries> series;
     std::string note;  // why there is nothing to plot, or empty
+    int voices = 1;    // hold drills: the attempts read (2: the interval of two voices), kept apart as `history` does
 };
 
 // Reads the drill's history from the log at log_path (read-only; empty path:
 // no log in use). Never throws: a problem becomes the note.
 // Attempts by the demo performer and the simulated listener count only when
-// `simulated` is true (the screen runs with one of them).
-DrillProgress read_drill_progress(const std::string& log_path, const Drill& drill, bool simulated);
+// `simulated` is true (the screen runs with one of them). A hold drill's
+// series are its one-voice attempts, or with voices 2 its two-voice ones.
+DrillProgress read_drill_progress(const std::string& log_path, const Drill& drill, bool simulated, int voices = 1);
 
 // "YYYY-MM-DD" to days since 1970-01-01 (0 for a malformed day).
 long day_number(const std::string& day);

@@ -57,10 +57,11 @@ struct Acc {
         in_tol += g.in_tol_sum, in_tol_n += g.in_tol_n;
         thr += g.threshold_sum, thr_n += g.threshold_n;
     }
-    HistoryLine line(AttemptKind kind, const std::string& key, const std::string& period) const {
+    HistoryLine line(AttemptKind kind, const std::string& key, int voices, const std::string& period) const {
         auto mean = [](double sum, std::int64_t n) { return n > 0 ? sum / static_cast<double>(n) : NAN; };
         HistoryLine l;
         l.kind = kind;
+        l.voices = voices;
         l.period = period;
         l.key = key;
         l.name = name;
@@ -146,19 +147,22 @@ HistorySummary summarize_history(const PracticeLog& log, const HistoryOptions& o
         all.simulated = true;
         s.simulated_left_out = log.count(all) - log.count(o.filter);
     }
-    // Groups come sorted by (kind, key, day): fold the days of each key into
-    // its total and its periods, converting each day to its period once.
+    // Groups come sorted by (kind, key, voices, day): fold the days of each key
+    // into its total and its periods, converting each day to its period once.
+    // One voice and two voices on one target are two keys: a double stop's
+    // interval is not the same skill as one voice against the drone.
     struct Keyed {
         AttemptKind kind;
         std::string key;
+        int voices;
         double cents;
         Acc total;
         std::vector<std::pair<std::string, Acc>> periods;  // in time order
     };
     std::vector<Keyed> keys;
     for (const HistoryGroup& g : log.history_groups(o.filter)) {
-        if (keys.empty() || keys.back().kind != g.kind || keys.back().key != g.key)
-            keys.push_back({g.kind, g.key, g.kind == AttemptKind::hold ? target_cents(g.key) : 0.0, {}, {}});
+        if (keys.empty() || keys.back().kind != g.kind || keys.back().key != g.key || keys.back().voices != g.voices)
+            keys.push_back({g.kind, g.key, g.voices, g.kind == AttemptKind::hold ? target_cents(g.key) : 0.0, {}, {}});
         Keyed& k = keys.back();
         k.total.add(g);
         const std::string p = period_start(g.day, o.by);
@@ -166,14 +170,15 @@ HistorySummary summarize_history(const PracticeLog& log, const HistoryOptions& o
         k.periods.back().second.add(g);
         s.attempts += g.attempts;
     }
-    // Holds first, ordered by the target's pitch; then ear drills by id.
+    // Holds first, ordered by the target's pitch (one voice before two); then ear drills by id.
     std::stable_sort(keys.begin(), keys.end(), [](const Keyed& a, const Keyed& b) {
         if (a.kind != b.kind) return a.kind == AttemptKind::hold;
-        return a.cents < b.cents;
+        if (a.cents != b.cents) return a.cents < b.cents;
+        return a.voices < b.voices;
     });
-    for (const Keyed& k : keys) s.totals.push_back(k.total.line(k.kind, k.key, "all"));
+    for (const Keyed& k : keys) s.totals.push_back(k.total.line(k.kind, k.key, k.voices, "all"));
     for (const Keyed& k : keys)
-        for (const auto& [p, acc] : k.periods) s.over_time.push_back(acc.line(k.kind, k.key, p));
+        for (const auto& [p, acc] : k.periods) s.over_time.push_back(acc.line(k.kind, k.key, k.voices, p));
     // Ear drills: the estimate from every answer of the period, not a mean of
     // sessions; rows before schema 3 (no method) measured nothing and add none.
     for (auto* lines : {&s.totals, &s.over_time})
@@ -239,18 +244,20 @@ std::size_t widest(const std::vector<HistoryLine>& lines, std::string HistoryLin
 }
 
 void hold_table(std::string& out, const std::vector<HistoryLine>& lines, bool with_period, bool with_name,
-                const std::string& period_head) {
+                bool with_voices, const std::string& period_head) {
     const std::size_t wk = widest(lines, &HistoryLine::key, 6);
     const std::size_t wn = widest(lines, &HistoryLine::name, 4);
     out += "  ";
     if (with_period) pad(out, period_head, 12, false);
     pad(out, "target", wk + 2, false);
+    if (with_voices) pad(out, "voices", 8, false);
     if (with_name) pad(out, "name", wn + 2, false);
     out += "attempts  locked   to lock  mean dev   spread  in band\n";
     for (const HistoryLine& l : lines) {
         out += "  ";
         if (with_period) pad(out, l.period, 12, false);
         pad(out, l.key, wk + 2, false);
+        if (with_voices) pad(out, l.voices == 2 ? "2" : "1", 8, false);
         if (with_name) pad(out, l.name, wn + 2, false);
         pad(out, std::to_string(l.attempts), 8, true);
         pad(out, percent(l.locked_share), 8, true);
@@ -321,10 +328,12 @@ std::string render_history_text(const HistorySummary& s) {
     const auto holds = of_kind(s.totals, AttemptKind::hold);
     const auto ears = of_kind(s.totals, AttemptKind::ear);
     if (!holds.empty()) {
+        // A voices column only where two-voice holds (the interval of a pair, scored apart) are in the log.
+        const bool pairs = std::any_of(holds.begin(), holds.end(), [](const HistoryLine& l) { return l.voices == 2; });
         out += "\nHolds per target\n";
-        hold_table(out, holds, false, true, head);
+        hold_table(out, holds, false, true, pairs, head);
         out += "\nHolds per " + by + "\n";
-        hold_table(out, of_kind(s.over_time, AttemptKind::hold), true, false, head);
+        hold_table(out, of_kind(s.over_time, AttemptKind::hold), true, false, pairs, head);
     }
     if (!ears.empty()) {
         out += "\nEar training per drill\n";
@@ -345,6 +354,7 @@ void json_line(JsonWriter& j, const HistoryLine& l, bool with_period) {
     j.key(l.kind == AttemptKind::hold ? "name" : "choices").value(l.name);
     j.key("attempts").value(l.attempts);
     if (l.kind == AttemptKind::hold) {
+        j.key("voices").value(static_cast<std::int64_t>(l.voices));
         j.key("locked_share").value(l.locked_share, 4);
         j.key("time_to_lock_s").value(l.time_to_lock_s, 4);
         j.key("mean_dev_cents").value(l.mean_dev_cents, 3);
@@ -392,7 +402,7 @@ std::string render_history_csv(const HistorySummary& s) {
     std::string out =
         "period,kind,key,name,attempts,locked_share,time_to_lock_s,mean_dev_cents,spread_cents,in_tolerance_share,"
         "threshold_cents,"
-        "threshold_lo_cents,threshold_hi_cents,estimate,correct_share\n";
+        "threshold_lo_cents,threshold_hi_cents,estimate,correct_share,voices\n";
     auto num = [&out](double v, int decimals) {
         out += ',';
         if (std::isfinite(v)) out += pitch::format_trimmed(v, decimals);
@@ -411,6 +421,8 @@ std::string render_history_csv(const HistorySummary& s) {
             num(l.threshold_hi_cents, 3);
             out += ',' + l.estimate;
             num(l.correct_share, 4);
+            out += ',';
+            if (l.kind == AttemptKind::hold) out += std::to_string(l.voices);
             out += '\n';
         }
     }

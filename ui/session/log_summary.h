@@ -25,6 +25,7 @@ struct HistoryLine {
     std::string period;  // "all", or the bucket's first day "2025-03-03" ("2025-03" for months)
     std::string key;     // hold: target "7/5"; ear: drill id
     std::string name;    // target name (hold) or the choices (ear)
+    int voices = 1;      // hold: 2 for the interval between two voices (a double stop), kept apart from one voice
     std::int64_t attempts = 0;
     double locked_share = NAN;        // 0..1
     double time_to_lock_s = NAN;      // mean over attempts that locked

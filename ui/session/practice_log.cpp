@@ -601,12 +601,21 @@ std::size_t PracticeLog::add_all(std::vector<Attempt>& attempts) {
 namespace {
 
 // WHERE clause for a filter; parameters ?1 target, ?2 since, ?3 drill (empty
-// = any), ?4 1 to keep the simulated performers' attempts, ?5 and ?6 their names.
-constexpr const char* kWhere =
-    " WHERE (?1 = '' OR attempt.target = ?1 OR (attempt.kind = 'ear' AND instr(' ' || attempt.target || ' ', ' ' || ?1 "
-    "|| ' ') > 0))"
-    " AND (?2 = '' OR attempt.started_at >= ?2) AND (?3 = '' OR attempt.drill = ?3)"
-    " AND (?4 = 1 OR attempt.performer NOT IN (?5, ?6))";
+// = any), ?4 1 to keep the simulated performers' attempts, ?5 and ?6 their names, ?7 voices (0 = any).
+// An attempt's voices from its settings (1 when absent). json_extract only where the text names "voices":
+// most attempts do not, and parsing every row's JSON would slow `history` over a large log.
+constexpr const char* kVoices =
+    "(CASE WHEN instr(attempt.settings, '\"voices\"') > 0 AND json_valid(attempt.settings) THEN "
+    "coalesce(json_extract(attempt.settings, '$.voices'), 1) ELSE 1 END)";
+
+const std::string kWhere =
+    std::string(
+        " WHERE (?1 = '' OR attempt.target = ?1 OR (attempt.kind = 'ear' AND instr(' ' || attempt.target || "
+        "' ', ' ' || ?1 || ' ') > 0))"
+        " AND (?2 = '' OR attempt.started_at >= ?2) AND (?3 = '' OR attempt.drill = ?3)"
+        " AND (?4 = 1 OR attempt.performer NOT IN (?5, ?6))"
+        " AND (?7 = 0 OR ?7 = ") +
+    kVoices + ")";
 
 struct Stmt {
     sqlite3_stmt* s = nullptr;
@@ -629,6 +638,7 @@ void bind_filter(sqlite3_stmt* s, const AttemptFilter& f) {
     sqlite3_bind_int(s, 4, f.simulated ? 1 : 0);
     sqlite3_bind_text(s, 5, kDemoPerformer, -1, SQLITE_STATIC);  // string literals: they outlive the statement
     sqlite3_bind_text(s, 6, kSimulatedListener, -1, SQLITE_STATIC);
+    sqlite3_bind_int(s, 7, f.voices);
 }
 
 }  // namespace
@@ -714,8 +724,8 @@ std::vector<HistoryGroup> PracticeLog::history_groups(const AttemptFilter& filte
     // SQLite's GROUP BY, which sorts every row through a temporary b-tree.
     const std::string sql = std::string(
                                 "SELECT kind, target, drill, target_name, started_at, locked, time_to_lock_s, "
-                                "mean_dev_cents, spread_cents, in_tolerance_share, threshold_cents FROM attempt") +
-                            kWhere;
+                                "mean_dev_cents, spread_cents, in_tolerance_share, threshold_cents, ") +
+                            kVoices + " FROM attempt" + kWhere;
     Stmt st;
     if (sqlite3_prepare_v2(db_, sql.c_str(), -1, &st.s, nullptr) != SQLITE_OK) fail("preparing the history query");
     bind_filter(st.s, filter);
@@ -737,7 +747,8 @@ std::vector<HistoryGroup> PracticeLog::history_groups(const AttemptFilter& filte
         const bool is_hold = text(s, 0) == "hold";
         const std::string_view k = is_hold ? text(s, 1) : text(s, 2);
         const std::string_view day = text(s, 4).substr(0, 10);
-        key.assign(is_hold ? "h" : "e");
+        const int voices = is_hold ? std::clamp(sqlite3_column_int(s, 11), 1, 2) : 1;
+        key.assign(is_hold ? (voices == 2 ? "d" : "h") : "e");
         key.append(k);
         key += '\n';
         key.append(day);
@@ -748,6 +759,7 @@ std::vector<HistoryGroup> PracticeLog::history_groups(const AttemptFilter& filte
             g.key = k;
             g.name = is_hold ? text(s, 3) : text(s, 1);
             g.day = day;
+            g.voices = voices;
             out.push_back(std::move(g));
         }
         HistoryGroup& g = out[it->second];
@@ -764,7 +776,7 @@ std::vector<HistoryGroup> PracticeLog::history_groups(const AttemptFilter& filte
     }
     if (rc != SQLITE_DONE) fail("reading the history");
     std::sort(out.begin(), out.end(), [](const HistoryGroup& a, const HistoryGroup& b) {
-        return std::tie(a.kind, a.key, a.day) < std::tie(b.kind, b.key, b.day);
+        return std::tie(a.kind, a.key, a.voices, a.day) < std::tie(b.kind, b.key, b.voices, b.day);
     });
     return out;
 }

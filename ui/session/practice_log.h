@@ -95,6 +95,7 @@ struct AttemptFilter {
     std::string since;      // UTC ISO 8601 prefix ("2025-03-01"): attempts started at or after it
     std::string drill;      // a drill id
     bool simulated = true;  // false: leave out the demo performer's and the simulated listener's attempts
+    int voices = 0;  // 1 or 2: only attempts that scored that many voices (settings "voices", 1 when absent); 0: any
 };
 
 // Sums for one (kind, key, day) group: the raw material of `beatless history`.
@@ -103,6 +104,7 @@ struct HistoryGroup {
     std::string key;   // hold: the target; ear: the drill id
     std::string name;  // target name (hold) or the target list (ear)
     std::string day;   // "2025-03-01" (UTC)
+    int voices = 1;    // hold: 2 when the interval between two voices was scored (a double stop); ear: 1
     std::int64_t attempts = 0;
     std::int64_t locked = 0, locked_n = 0;
     double time_to_lock_sum = 0, mean_dev_sum = 0, spread_sum = 0, in_tol_sum = 0, threshold_sum = 0;
@@ -140,7 +142,7 @@ public:
     void for_each(const AttemptFilter& filter, bool with_trace, const std::function<void(const Attempt&)>& fn) const;
     std::vector<Attempt> read(const AttemptFilter& filter = {}, bool with_trace = true) const;
 
-    // Per (kind, key, day) sums for the history summary.
+    // Per (kind, key, voices, day) sums for the history summary.
     std::vector<HistoryGroup> history_groups(const AttemptFilter& filter) const;
 
     // Caps the file at this many pages (<= 0: no cap). Tests use it as a full disk.
