@@ -160,11 +160,10 @@ TEST_CASE("block size does not change the frames") {
         CHECK(a[i].f_low_hz == b[i].f_low_hz);
         CHECK(a[i].f_high_hz == b[i].f_high_hz);
     }
-    // t marks the centre of the second stage's integration window, as YIN's frames do (DESIGN.md): the newest
-    // fast_window_s (rounded up to 32 samples) of the first frame's span.
+    // t marks the centre of the long window whose pair the frame carries (two_voice.h, TwoVoiceFrame::t_s);
+    // end_s the newest sample the first frame has seen.
     TwoVoiceTracker tv({}, interval_set());
     const double span = static_cast<double>(tv.window_len_samples()) * 1.25;
-    const double w = std::ceil(0.02 * kFs / 32.0) * 32.0;
     CHECK(a[0].end_s == doctest::Approx((span - 1.0) / kFs));
     CHECK(a[0].t_s == doctest::Approx(0.5 * (span - 1.0) / kFs));
     CHECK(a[1].t_s - a[0].t_s == doctest::Approx(0.01));
