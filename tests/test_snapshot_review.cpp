@@ -13,6 +13,7 @@
 #include "tests/mix_signals.h"
 #include "tests/take_fixture.h"
 #include "ui/render/imgui_host.h"
+#include "ui/render/png.h"
 #include "ui/render/raster.h"
 #include "ui/screens/palette.h"
 #include "ui/screens/screen.h"
@@ -47,6 +48,14 @@ constexpr double kFs = 44100.0;
 // A take in `dir` named for `stem`, with its sidecar: the 7-limit set, root A2.
 void write_take(const std::filesystem::path& dir, const std::string& stem, const Take& take) {
     beatless::test::write_test_take(dir, stem, take.samples, kFs, take.dur_s);
+}
+
+// A take over a drone in the data folder's takes/ (BEATLESS_HOME set by the caller), read as `voices`; its FLAC path.
+std::string drone_take_in_home(const std::string& stem, const Take& take, int voices) {
+    const std::filesystem::path takes = ui::takes_dir();
+    std::filesystem::create_directories(takes);
+    beatless::test::write_test_take(takes, stem, take.samples, kFs, take.dur_s, true, voices);
+    return (takes / (stem + ".flac")).string();
 }
 
 struct ReviewRig {
@@ -309,11 +318,8 @@ TEST_CASE("Review of a two-voice take over a drone: intervals named in their oct
     // them, never octave-reduced to 5/4 and 7/4.
     beatless::test::TempDir home;
     setenv("BEATLESS_HOME", home.path().c_str(), 1);
-    const std::filesystem::path takes = ui::takes_dir();
-    std::filesystem::create_directories(takes);
     const Take take = drone_and_voice(kFs, 110.0, {{5.0 / 4.0, 6.0}, {7.0 / 4.0, -4.0}}, 59);
-    beatless::test::write_test_take(takes, "2026-12-03_190000", take.samples, kFs, take.dur_s, true, 2);
-    const std::string flac = (takes / "2026-12-03_190000.flac").string();
+    const std::string flac = drone_take_in_home("2026-12-03_190000", take, 2);
     ReviewRig rig(1, 0.0);
     rig.frames(3);
     const ui::ReviewView& v = *ui::review_view(*rig.screen);
@@ -342,6 +348,7 @@ TEST_CASE("Review of a two-voice take over a drone: intervals named in their oct
         std::ifstream in(p, std::ios::binary);
         return std::string(std::istreambuf_iterator<char>(in), {});
     };
+    const std::filesystem::path takes = ui::takes_dir();
     CHECK(read(takes / "2026-12-03_190000.csv") == csv.out);
     CHECK(read(takes / "2026-12-03_190000.json") == json.out);
     const std::string png = read(takes / "2026-12-03_190000.report.png");
@@ -450,4 +457,100 @@ TEST_CASE("the remarks name a target in the octave it was matched at") {
     j.nearer_other = false;
     j.between = true;
     CHECK(ui::judgement_words(j, set, false) == "between targets: 12 c sharp of 4/3 +1oct, the nearest");
+}
+
+TEST_CASE("Review: a note an octave up sits on a target line labelled in its octave, on the screen and in the report") {
+    // Ratio arithmetic (common practice): 3/2 x 2/1 = 3/1, 1200 cents per octave (Ellis 1885). A voice over a 110 Hz
+    // drone (mix_signals.h drone_and_voice, voice_octaves 1) at 3/4 x 2 and 3/2 x 2: the notes 3/2 (+3 c) and 3/2 an
+    // octave up (-5 c), which `analyze` names "3/2" and "3/2 +1oct". Each note's mark lies on the line whose label
+    // says the note's own name; the label's pixels are drawn where the view says.
+    beatless::test::TempDir home;
+    setenv("BEATLESS_HOME", home.path().c_str(), 1);
+    const Take solo = drone_and_voice(kFs, 110.0, {{3.0 / 4.0, 3.0}, {3.0 / 2.0, -5.0}}, 62);
+    const std::string flac = drone_take_in_home("2026-12-04_120000", solo, 1);
+    const auto json = beatless::test::run_program({"analyze", flac, "--format", "json"});
+    REQUIRE_MESSAGE(json.exit_code == 0, json.err);
+    // Each note's target and octave, as analyze's target column names it ("3/2 +1oct").
+    std::vector<std::string> names;
+    for (const std::string& w :
+         beatless::test::json_words(json.out, "[n['target'] + ':' + str(n['target_octaves']) for n in d['notes']]")) {
+        const int oct = std::stoi(w.substr(w.find(':') + 1));
+        names.push_back(w.substr(0, w.find(':')) +
+                        (oct == 0 ? "" : (oct > 0 ? " +" : " ") + std::to_string(oct) + "oct"));
+    }
+    const auto text = beatless::test::run_program({"analyze", flac});
+    REQUIRE_MESSAGE(text.exit_code == 0, text.err);
+    CHECK(text.out.find("  3/2 +1oct   ") != std::string::npos);
+    REQUIRE(names == std::vector<std::string>{"3/2", "3/2 +1oct"});
+
+    ReviewRig rig(2, 0.0);
+    rig.frames(3);
+    const ui::ReviewView& v = *ui::review_view(*rig.screen);
+    REQUIRE(v.open);
+    REQUIRE(v.marks.size() == 2);
+    if (const char* out = std::getenv("BEATLESS_TEST_PNG")) ui::write_png(std::string(out) + "-screen.png", rig.buf);
+    for (const ui::ReviewMarkView& m : v.marks) {
+        CAPTURE(m.note);
+        const std::string& name = names[static_cast<std::size_t>(m.note)];
+        // The line nearest the mark: within the note's deviation (5 c) plus 1.5 px, and labelled with its name.
+        const ui::ReviewLineView* nearest = nullptr;
+        for (const ui::ReviewLineView& ln : v.lines)
+            if (!nearest || std::fabs(ln.y - m.y) < std::fabs(nearest->y - m.y)) nearest = &ln;
+        REQUIRE(nearest != nullptr);
+        const float px_per_cent = (v.plot_y1 - v.plot_y0) / static_cast<float>(v.cents_hi - v.cents_lo);
+        CHECK(std::fabs(nearest->y - m.y) <= 5.5f * px_per_cent + 1.5f);
+        CHECK(nearest->label == name);
+        // The line's pixels at the plot's left edge (grey, brighter than the panel; the selected note's target is
+        // drawn over in the current target's colour) and the label's ink in its box.
+        const int lx = static_cast<int>(v.plot_x0) + 2, ly = static_cast<int>(std::floor(nearest->y));
+        const std::uint32_t px = rig.buf.at(lx, ly), panel = rig.buf.at(lx, static_cast<int>(v.plot_y0) + 1);
+        auto lum = [](std::uint32_t c) { return (c & 0xFF) + ((c >> 8) & 0xFF) + ((c >> 16) & 0xFF); };
+        if (m.note == v.selected)
+            CHECK(px == ui::palette::kCurrentTarget);
+        else
+            CHECK(lum(px) > lum(panel) + 60);
+        int ink = 0;
+        for (int yy = static_cast<int>(nearest->label_y0); yy < static_cast<int>(nearest->label_y1); ++yy)
+            for (int xx = static_cast<int>(nearest->label_x0); xx < static_cast<int>(nearest->label_x1); ++xx)
+                ink += bright(rig.buf.at(xx, yy)) ? 1 : 0;
+        CHECK(ink > 20);
+        // Every line labelled "3/2 +1oct" lies 1200 c above one labelled "3/2".
+        if (m.note == 1) CHECK(std::fabs(nearest->cents - (1200.0 + 1200.0 * std::log2(3.0 / 2.0))) < 1e-6);
+    }
+    // No label names a target in another octave than its line's: the base line of "3/2" at 702 c, "+1oct" at 1902 c.
+    for (const ui::ReviewLineView& ln : v.lines) {
+        if (ln.label == "3/2") CHECK(std::fabs(ln.cents - 1200.0 * std::log2(1.5)) < 1e-6);
+        if (ln.label.find("+1oct") != std::string::npos)
+            CHECK(ln.cents > 1200.0 - 1e-6);
+        else if (!ln.label.empty())
+            CHECK(ln.cents < 1200.0 + 1e-6);
+    }
+
+    // The report page (analyze --report): the same names beside the same lines; each mark's bar on the line named
+    // as the note is, and that line's pixels drawn.
+    const ui::ReviewedTake r = ui::review_take(flac, "7-limit");
+    REQUIRE(r.error.empty());
+    const ui::ReportData d = ui::one_voice_report_data(r.set, r.analysis);
+    const ui::ReportLayout l = ui::report_layout(d);
+    const std::vector<ui::ReportLineLabel> labels = ui::report_line_labels(d, l);
+    ui::PixelBuffer page;
+    ui::render_report(d, page);
+    if (const char* out = std::getenv("BEATLESS_TEST_PNG")) ui::write_png(std::string(out) + "-report.png", page);
+    REQUIRE(d.marks.size() == 2);
+    for (std::size_t i = 0; i < d.marks.size(); ++i) {
+        CAPTURE(i);
+        const float y = l.y_of(d.marks[i].cents);
+        const ui::ReportLineLabel* nearest = nullptr;
+        for (const ui::ReportLineLabel& a : labels)
+            if (!nearest || std::fabs(a.line_y - y) < std::fabs(nearest->line_y - y)) nearest = &a;
+        REQUIRE(nearest != nullptr);
+        CHECK(std::fabs(nearest->line_y - l.y_of(d.marks[i].target_cents)) < 0.5f);
+        CHECK(nearest->ratio == names[i]);
+        // The target line (used: dark) in the plot, left of the first note.
+        const int px = static_cast<int>(l.plot_x0) + 4, py = static_cast<int>(std::round(nearest->line_y));
+        bool line = false;
+        for (int dy = -1; dy <= 1; ++dy) line = line || page.at(px, py + dy) != ui::kReportPaper;
+        CHECK(line);
+    }
+    unsetenv("BEATLESS_HOME");
 }

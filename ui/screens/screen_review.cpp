@@ -655,7 +655,31 @@ void ReviewScreen::draw_plot(AppState& app, ImDrawList* dl, float x, float y, fl
     if (!std::isfinite(lo)) lo = 0.0, hi = 1200.0;
     lo -= 60.0;
     hi += 60.0;
-    const float label_w = std::round(5.0f * u);
+    // One voice: the target lines in every octave in view, each named in its octave as `analyze` names a note
+    // matched there ("5/4 +1oct"); the label column fits the longest name, within 9 units.
+    struct Line {
+        double cents;
+        std::string label;
+        bool used;
+    };
+    std::vector<Line> lines;
+    float label_w = std::round(5.0f * u);
+    if (take_->voices != 2) {
+        std::vector<bool> used(take_->set.targets.size(), false);
+        for (const auto& n : a.notes)
+            if (n.target_index >= 0) used[static_cast<std::size_t>(n.target_index)] = true;
+        for (std::size_t k = 0; k < take_->set.targets.size(); ++k) {
+            const double c = take_->set.targets[k].interval.cents();
+            for (int o = static_cast<int>(std::floor((lo - c) / 1200.0));
+                 o <= static_cast<int>(std::ceil((hi - c) / 1200.0)); ++o) {
+                const double tc = c + 1200.0 * o;
+                if (tc < lo || tc > hi) continue;
+                lines.push_back({tc, target_text(static_cast<int>(k), o), used[k]});
+                label_w = std::max(label_w, std::round(text_size(FontFace::body, lines.back().label).x + 1.0f * u));
+            }
+        }
+        label_w = std::min(label_w, std::round(9.0f * u));
+    }
     view_.open = true;
     view_.title = take_->title;
     view_.plot_x0 = x + label_w;
@@ -667,6 +691,7 @@ void ReviewScreen::draw_plot(AppState& app, ImDrawList* dl, float x, float y, fl
     view_.cents_lo = lo;
     view_.cents_hi = hi;
     view_.selected = selected_;
+    view_.lines.clear();
     const ReviewView& v = view_;
     if (take_->voices == 2) {
         draw_duo(app, dl);
@@ -674,39 +699,28 @@ void ReviewScreen::draw_plot(AppState& app, ImDrawList* dl, float x, float y, fl
         return;
     }
     dl->PushClipRect(ImVec2(x, v.plot_y0), ImVec2(v.plot_x1, v.plot_y1 + 1.0f), true);
-    // Target lines in every octave in view, labelled at the left where a label fits: the targets the notes are
-    // judged against first, then the others.
-    struct Line {
-        float y;
-        std::size_t k;
-        bool used;
-    };
-    std::vector<Line> lines;
-    std::vector<bool> used(take_->set.targets.size(), false);
-    for (const auto& n : a.notes)
-        if (n.target_index >= 0) used[static_cast<std::size_t>(n.target_index)] = true;
-    for (std::size_t k = 0; k < take_->set.targets.size(); ++k) {
-        const double c = take_->set.targets[k].interval.cents();
-        for (int o = static_cast<int>(std::floor((lo - c) / 1200.0));
-             o <= static_cast<int>(std::ceil((hi - c) / 1200.0)); ++o) {
-            const double tc = c + 1200.0 * o;
-            if (tc < lo || tc > hi) continue;
-            const float ly = std::round(v.y_of(tc)) + 0.5f;
-            dl->AddLine(ImVec2(v.plot_x0, ly), ImVec2(v.plot_x1, ly), palette::kOtherTarget, 1.0f);
-            lines.push_back({ly, k, used[k]});
-        }
-    }
+    // Labelled at the left where a label fits: the targets the notes are judged against first, then the others.
     std::stable_sort(lines.begin(), lines.end(), [](const Line& p, const Line& q) { return p.used > q.used; });
-    std::vector<float> labelled;
     const float label_h = font_px(FontFace::body);
     for (const Line& ln : lines) {
+        ReviewLineView lv;
+        lv.cents = ln.cents;
+        lv.y = std::round(v.y_of(ln.cents)) + 0.5f;
+        dl->AddLine(ImVec2(v.plot_x0, lv.y), ImVec2(v.plot_x1, lv.y), palette::kOtherTarget, 1.0f);
         bool clear = true;
-        for (const float ly : labelled) clear = clear && std::fabs(ly - ln.y) >= label_h;
-        if (!clear) continue;
-        labelled.push_back(ln.y);
-        draw_text(dl, FontFace::body, ImVec2(x + 0.4f * u, ln.y - 0.55f * u),
-                  ln.used ? palette::kText : palette::kTextDim,
-                  fit_text(FontFace::body, take_->set.targets[ln.k].interval.str(), label_w - 0.6f * u));
+        for (const ReviewLineView& o : view_.lines)
+            clear = clear && (o.label.empty() || std::fabs(o.y - lv.y) >= label_h);
+        if (clear) {
+            lv.label = fit_text(FontFace::body, ln.label, label_w - 0.6f * u);
+            lv.label_x0 = x + 0.4f * u;
+            lv.label_y0 = lv.y - 0.55f * u;
+            const ImVec2 sz = text_size(FontFace::body, lv.label);
+            lv.label_x1 = lv.label_x0 + sz.x;
+            lv.label_y1 = lv.label_y0 + sz.y;
+            draw_text(dl, FontFace::body, ImVec2(lv.label_x0, lv.label_y0),
+                      ln.used ? palette::kText : palette::kTextDim, lv.label);
+        }
+        view_.lines.push_back(std::move(lv));
     }
     // The selected note's target, in the current target's colour.
     if (selected_ >= 0 && std::isfinite(a.notes[static_cast<std::size_t>(selected_)].target_cents)) {
