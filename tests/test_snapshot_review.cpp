@@ -554,3 +554,68 @@ TEST_CASE("Review: a note an octave up sits on a target line labelled in its oct
     }
     unsetenv("BEATLESS_HOME");
 }
+
+TEST_CASE("a steady voice exactly on a drone partial is not lost: analyze and the Review screen say where it was") {
+    // A 110 Hz drone (mix_signals.h add_tone, 1/n partials) under a voice holding 308 Hz (14/5, between the drone's
+    // partials 2 and 3), then exactly 330 Hz (3 x 110, the drone's third partial: 3/1 = 3/2 +1oct, ratio arithmetic,
+    // common practice), then 275 Hz (5/2), steady, 0.25 s rests. The comb x(t) - x(t - 1/110 s) (J. O. Smith,
+    // "Feedforward Comb Filters") cancels any sound of period 1/(3 x 110) s: the second note leaves nothing to track,
+    // but the raw level rises about 5 dB over the drone's while the comb's output does not. A voice between the
+    // partials (308 and 275 Hz, whose upper partials do meet the drone's) is tracked and never flagged.
+    beatless::test::TempDir home;
+    setenv("BEATLESS_HOME", home.path().c_str(), 1);
+    Take take;
+    take.dur_s = 6.3;
+    take.samples.assign(static_cast<std::size_t>(take.dur_s * kFs), 0.0f);
+    add_tone(take.samples, kFs, 110.0, 0.0, take.dur_s, 0.15, rolloff(8), {0.3, 1.1, 2.0, 0.7, 2.9, 1.6, 0.2, 2.4});
+    for (const auto& [t0, f] : {std::pair{0.4, 308.0}, {2.25, 330.0}, {4.1, 275.0}}) {
+        Note n;
+        n.start_s = t0;
+        n.end_s = t0 + 1.6;
+        n.centre_hz = f;
+        n.level = 0.2;
+        take.notes.push_back(n);
+    }
+    add_voice(take.samples, kFs, take.notes, {1.0, 0.6, 0.45, 0.3, 0.2, 0.15, 0.1, 0.08});
+    add_noise(take.samples, 1e-3, 71);
+    const std::string flac = drone_take_in_home("2026-12-04_130000", take, 1);
+
+    const auto json = beatless::test::run_program({"analyze", flac, "--format", "json"});
+    REQUIRE_MESSAGE(json.exit_code == 0, json.err);
+    CHECK(beatless::test::json_words(json.out, "[round(n['f0_hz']) for n in d['notes']]") ==
+          std::vector<std::string>{"308", "275"});
+    CHECK(beatless::test::json_words(json.out, "[p['partial'] for p in d['on_drone_partials']]") ==
+          std::vector<std::string>{"3"});
+    // Where it sounded, within the tracker's 0.05 s (the notes' start and end bar, tests/test_cli_analyze.cpp).
+    const std::vector<std::string> when =
+        beatless::test::json_words(json.out, "[x for p in d['on_drone_partials'] for x in (p['start_s'], p['end_s'])]");
+    REQUIRE(when.size() == 2);
+    CHECK(std::fabs(std::stod(when[0]) - 2.25) < 0.05);
+    CHECK(std::fabs(std::stod(when[1]) - 3.85) < 0.05);
+    const auto text = beatless::test::run_program({"analyze", flac});
+    REQUIRE_MESSAGE(text.exit_code == 0, text.err);
+    CHECK(text.out.find("a steady voice on the drone's partial 3 (330 Hz, 3/2 +1oct) is hidden with the drone") !=
+          std::string::npos);
+
+    // The screen: an outline at 3 x 110 Hz over the same stretch, and the line analyze prints.
+    ReviewRig rig(1, 0.0);
+    rig.frames(3);
+    const ui::ReviewView& v = *ui::review_view(*rig.screen);
+    REQUIRE(v.open);
+    REQUIRE(v.hidden.size() == 1);
+    REQUIRE(v.hidden_words.size() == 1);
+    CHECK(text.out.find(v.hidden_words[0]) != std::string::npos);
+    const ui::ReviewMarkView& h = v.hidden[0];
+    CHECK(std::fabs(h.y - v.y_of(1200.0 * std::log2(3.0))) < 1.5);
+    const float px_per_s = (v.plot_x1 - v.plot_x0) / static_cast<float>(v.t1_s - v.t0_s);
+    CHECK(std::fabs(h.x0 - v.x_of(2.25)) < 0.05f * px_per_s + 1.5f);
+    CHECK(std::fabs(h.x1 - v.x_of(3.85)) < 0.05f * px_per_s + 1.5f);
+    // Its outline's pixels: the top edge, a third of the way along.
+    const float r = std::round(0.22f * ui::ui_unit());
+    const int x = static_cast<int>(h.x0 + (h.x1 - h.x0) / 3.0f), y = static_cast<int>(h.y - r);
+    bool edge = false;
+    for (int dy = -1; dy <= 1; ++dy) edge = edge || rig.buf.at(x, y + dy) == ui::palette::kTextDim;
+    CHECK(edge);
+    if (const char* out = std::getenv("BEATLESS_TEST_PNG")) ui::write_png(std::string(out) + "-hidden.png", rig.buf);
+    unsetenv("BEATLESS_HOME");
+}

@@ -148,6 +148,13 @@ void print_summary_text(const pitch::TargetSet& set, const std::vector<pitch::Ta
 // ---------------------------------------------------------------------------
 // [SECTION] One voice
 // ---------------------------------------------------------------------------
+// The voices the drone removal hid on the drone's partials, one line each.
+void print_on_partials(const pitch::TargetSet& set, const OneVoiceAnalysis& a, bool gap) {
+    if (a.on_partials.empty()) return;
+    if (gap) std::printf("\n");
+    for (const pitch::PartialVoice& v : a.on_partials) std::printf("%s\n", on_partial_words(v, set, a.root_hz).c_str());
+}
+
 void print_one_voice(const AnalyzeOptions& o, const pitch::TargetSet& set, const OneVoiceAnalysis& a) {
     const auto& notes = a.notes;
     if (o.format == Format::json) {
@@ -167,7 +174,9 @@ void print_one_voice(const AnalyzeOptions& o, const pitch::TargetSet& set, const
     std::printf("\n");
     std::printf("targets: %s (%s)\n\n", set.id.c_str(), set.title.c_str());
     if (notes.empty()) {
-        std::printf("%s\n", nothing_found_words(a.heard.loudest_dbfs, a.heard.snr_db, false).c_str());
+        if (a.on_partials.empty())
+            std::printf("%s\n", nothing_found_words(a.heard.loudest_dbfs, a.heard.snr_db, false).c_str());
+        print_on_partials(set, a, false);
         return;
     }
     const bool drone = a.drone_hz > 0.0;
@@ -201,6 +210,7 @@ void print_one_voice(const AnalyzeOptions& o, const pitch::TargetSet& set, const
         pitch::format_trimmed(bands.rough_above_hz, 2).c_str(),
         drone ? "" : " (no drone in the file: rates are those a drone at the root would give)");
     print_summary_text(set, a.summary, false);
+    print_on_partials(set, a, true);
 }
 
 ReportData one_voice_report(const AnalyzeOptions& o, const pitch::TargetSet& set, const OneVoiceAnalysis& a) {
@@ -315,9 +325,14 @@ int run_analyze(const AnalyzeOptions& given) {
         const OneVoiceAnalysis a = analyze_one_voice(reader, req, progress);
         bar.clear();
         warn_clipping(a.facts, o.file);
-        if (a.notes.empty() && o.format != Format::text)
-            std::fprintf(stderr, "beatless: %s: %s\n", o.file.c_str(),
-                         nothing_found_words(a.heard.loudest_dbfs, a.heard.snr_db, false).c_str());
+        if (a.notes.empty() && o.format != Format::text) {
+            if (a.on_partials.empty())
+                std::fprintf(stderr, "beatless: %s: %s\n", o.file.c_str(),
+                             nothing_found_words(a.heard.loudest_dbfs, a.heard.snr_db, false).c_str());
+            for (const pitch::PartialVoice& v : a.on_partials)
+                std::fprintf(stderr, "beatless: %s: %s\n", o.file.c_str(),
+                             on_partial_words(v, req.targets, a.root_hz).c_str());
+        }
         print_one_voice(o, req.targets, a);
         if (!o.report.empty()) write_report(o.report, one_voice_report(o, req.targets, a));
     } else {

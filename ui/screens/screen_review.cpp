@@ -636,6 +636,11 @@ void ReviewScreen::draw_plot(AppState& app, ImDrawList* dl, float x, float y, fl
     // Cents range: the notes and the voiced trace, with a margin.
     double lo = INFINITY, hi = -INFINITY;
     for (const auto& n : a.notes) lo = std::min(lo, n.cents_above_root), hi = std::max(hi, n.cents_above_root);
+    if (take_->voices != 2)
+        for (const auto& p : a.on_partials) {
+            const double c = 1200.0 * std::log2(p.f_hz / a.root_hz);
+            lo = std::min(lo, c), hi = std::max(hi, c);
+        }
     if (take_->voices == 2) {  // both voices, in cents above the reference
         const TwoVoiceAnalysis& d = take_->duo;
         for (const auto& y : d.dyads) {
@@ -745,6 +750,29 @@ void ReviewScreen::draw_plot(AppState& app, ImDrawList* dl, float x, float y, fl
         m.dev_cents = n.dev_cents;
         m.colour = std::isfinite(n.dev_cents) ? tuning_colour(tuning_of(n.dev_cents, in_tune)) : palette::kTextDim;
         draw_mark(dl, m, m.y, m.y);
+    }
+    // Voices the drone removal hid on a drone partial: an outline at the partial, its pitch not measured.
+    view_.hidden.clear();
+    view_.hidden_words.clear();
+    for (std::size_t i = 0; i < a.on_partials.size(); ++i) {
+        const pitch::PartialVoice& p = a.on_partials[i];
+        view_.hidden_words.push_back(on_partial_words(p, take_->set, a.root_hz));
+        if (p.end_s < v.t0_s || p.start_s > v.t1_s) continue;
+        ReviewMarkView m;
+        m.note = static_cast<int>(i);
+        m.x0 = v.x_of(p.start_s);
+        m.x1 = v.x_of(p.end_s);
+        m.cents = 1200.0 * std::log2(p.f_hz / a.root_hz);
+        m.y = std::round(v.y_of(m.cents));
+        m.dev_cents = NAN;
+        m.colour = palette::kTextDim;
+        const float r = std::round(0.22f * u);
+        dl->AddRect(ImVec2(m.x0, m.y - r), ImVec2(m.x1, m.y + r), m.colour, 0.0f, 0, 1.5f);
+        draw_text(
+            dl, FontFace::body, ImVec2(m.x0, m.y - r - std::round(1.3f * u)), m.colour,
+            fit_text(FontFace::body, "voice hidden with the drone (its partial " + std::to_string(p.partial) + ")",
+                     v.plot_x1 - m.x0));
+        view_.hidden.push_back(m);
     }
     dl->PopClipRect();
     draw_time_axis(dl);

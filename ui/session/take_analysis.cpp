@@ -169,6 +169,7 @@ void fill_heard(HeardLevels& h, const pitch::SignalFacts& f, const pitch::LevelS
 // The voice against a known root (its drone combed out when one was found): the second pass of one-voice analysis.
 void track_voice(audio::SoundReader& reader, const AnalysisRequest& req, Ticker& tick, int pass, OneVoiceAnalysis& out,
                  bool comb_drone = true);
+void find_on_partials(audio::SoundReader& reader, const pitch::PartialLevels& levels, OneVoiceAnalysis& out);
 
 }  // namespace
 
@@ -237,6 +238,8 @@ void track_voice(audio::SoundReader& reader, const AnalysisRequest& req, Ticker&
     pitch::NoteSegmenter seg(sc, req.targets);
     pitch::LevelSpread spread;
     std::vector<float> filtered(kBlockFrames);
+    std::optional<pitch::PartialLevels> levels;
+    if (comb) levels.emplace(pitch::PartialVoiceConfig{.sample_rate_hz = rate, .drone_hz = out.drone_hz});
     pitch::PitchFrame frame;
     pitch::NoteResult note;
     auto clips = std::make_unique<pitch::ClipHistory>();
@@ -254,6 +257,7 @@ void track_voice(audio::SoundReader& reader, const AnalysisRequest& req, Ticker&
         if (comb) {
             const std::span<float> y(filtered.data(), block.size());
             comb->process(block, y);
+            levels->push(block, y);
             yin.push(y);
             spread.add(y);
         } else {
@@ -273,6 +277,59 @@ void track_voice(audio::SoundReader& reader, const AnalysisRequest& req, Ticker&
     check_sound(out.facts, req.path);
     out.short_notes_dropped = seg.short_notes_dropped();
     fill_heard(out.heard, out.facts, spread);
+    if (levels) find_on_partials(reader, *levels, out);
+}
+
+// Voices the comb hid on the drone's partials: the stretches PartialLevels found, each named from its samples and a
+// stretch of drone alone beside it (a third read of the file, only when there are candidates).
+void find_on_partials(audio::SoundReader& reader, const pitch::PartialLevels& levels, OneVoiceAnalysis& out) {
+    constexpr double kMargin_s = 0.05, kLook_s = 1.0, kAlone_s = 0.15;
+    std::vector<pitch::TimeSpan> busy;
+    for (const auto& n : out.notes) busy.push_back({n.start_s - kMargin_s, n.end_s + kMargin_s});
+    std::vector<pitch::PartialVoice> cands = levels.candidates(busy);
+    if (cands.size() > 256) cands.resize(256);  // a pathological file: the first 256 are looked at
+    struct Look {
+        pitch::TimeSpan during, alone;
+        std::vector<float> a, b;
+    };
+    std::vector<Look> looks;
+    std::vector<pitch::PartialVoice> kept;
+    for (const pitch::PartialVoice& c : cands) {
+        const double mid = 0.5 * (c.start_s + c.end_s);
+        Look k;
+        k.during = {std::max(c.start_s + 0.05, mid - 0.5 * kLook_s), std::min(c.end_s - 0.05, mid + 0.5 * kLook_s)};
+        // Drone alone: the nearest 0.15 s before or after, within 5 s.
+        bool found = false;
+        for (double d = 0.02; d <= 5.0 && !found; d += 0.02) {
+            if (levels.drone_alone(c.start_s - d - kAlone_s, c.start_s - d, busy)) {
+                k.alone = {c.start_s - d - kAlone_s, c.start_s - d};
+                found = true;
+            } else if (levels.drone_alone(c.end_s + d, c.end_s + d + kAlone_s, busy)) {
+                k.alone = {c.end_s + d, c.end_s + d + kAlone_s};
+                found = true;
+            }
+        }
+        if (!found) continue;
+        looks.push_back(std::move(k));
+        kept.push_back(c);
+    }
+    if (looks.empty()) return;
+    const double rate = out.info.sample_rate_hz;
+    reader.rewind();
+    for (auto block = reader.read(); !block.empty(); block = reader.read()) {
+        const std::int64_t first = reader.position_frames() - static_cast<std::int64_t>(block.size());
+        for (Look& k : looks)
+            for (auto [span, buf] : {std::pair{k.during, &k.a}, std::pair{k.alone, &k.b}}) {
+                const auto s0 = static_cast<std::int64_t>(span.start_s * rate);
+                const auto s1 = static_cast<std::int64_t>(span.end_s * rate);
+                for (std::int64_t i = std::max(first, s0);
+                     i < std::min(first + static_cast<std::int64_t>(block.size()), s1); ++i)
+                    buf->push_back(block[static_cast<std::size_t>(i - first)]);
+            }
+    }
+    const pitch::PartialVoiceConfig cfg{.sample_rate_hz = rate, .drone_hz = out.drone_hz};
+    for (std::size_t i = 0; i < looks.size(); ++i)
+        if (pitch::name_partial(kept[i], looks[i].a, looks[i].b, cfg)) out.on_partials.push_back(kept[i]);
 }
 
 // A held note of the voice over the drone as a dyad of the two.

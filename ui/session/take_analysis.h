@@ -10,6 +10,7 @@
 #include "pitch/measure/decimated_trace.h"
 #include "pitch/measure/dyad_segment.h"
 #include "pitch/measure/intent.h"
+#include "pitch/measure/partial_voice.h"
 #include "pitch/measure/root_detect.h"
 #include "pitch/measure/segment.h"
 #include "pitch/theory/targets.h"
@@ -59,6 +60,9 @@ struct OneVoiceAnalysis {
     HeardLevels heard;
     pitch::SignalFacts facts;
     pitch::DecimatedTrace trace;  // cents above the root (when keep_trace)
+    // Steady voices the drone comb hid: each on a partial of the drone (330 Hz over 110 Hz), found by their level
+    // (pitch/measure/partial_voice.h); their pitch is the partial's, not measured apart from the drone.
+    std::vector<pitch::PartialVoice> on_partials;
 };
 
 struct TwoVoiceAnalysis {
