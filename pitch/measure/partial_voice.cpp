@@ -124,15 +124,20 @@ bool name_partial(PartialVoice& v, std::span<const float> during, std::span<cons
     // A partial the drone barely has counts against the louder of its own level and a floor 40 dB under the drone's
     // strongest partial.
     const double floor = 0.01 * *std::max_element(b.begin(), b.end());
+    std::vector<double> rise(a.size(), NAN);
+    std::vector<double> seen;
+    for (std::size_t k = 0; k < a.size(); ++k)
+        if (a[k] > 0.0) seen.push_back(rise[k] = 20.0 * std::log10(a[k] / std::max(b[k], floor)));
+    if (seen.empty()) return false;
+    // The drone's own swell lifts every partial alike: a partial counts by how far it stands above the median rise.
+    std::nth_element(seen.begin(), seen.begin() + static_cast<std::ptrdiff_t>(seen.size() / 2), seen.end());
+    const double common = std::max(0.0, seen[seen.size() / 2]);
     for (std::size_t k = 0; k < a.size(); ++k) {
-        if (a[k] <= 0.0) continue;
-        const double rise = 20.0 * std::log10(a[k] / std::max(b[k], floor));
-        if (rise >= cfg.partial_db) {
-            v.partial = static_cast<int>(k + 1);
-            v.f_hz = v.partial * cfg.drone_hz;
-            v.partial_rise_db = rise;
-            return true;
-        }
+        if (!(rise[k] - common >= cfg.partial_db)) continue;
+        v.partial = static_cast<int>(k + 1);
+        v.f_hz = v.partial * cfg.drone_hz;
+        v.partial_rise_db = rise[k];
+        return true;
     }
     return false;
 }

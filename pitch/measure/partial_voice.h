@@ -67,7 +67,7 @@ private:
 std::vector<double> partial_amplitudes(std::span<const float> x, double sample_rate_hz, double drone_hz, int count);
 
 // Names each candidate's partial from its samples and a stretch of drone alone beside it: the lowest partial at least
-// partial_db above the drone's own; returns false (not a voice on a partial) when none is.
+// partial_db above the drone's own, beyond the rise all partials share (a swell of the drone); returns false (not a voice on a partial) when none is.
 bool name_partial(PartialVoice& v, std::span<const float> during, std::span<const float> drone_alone,
                   const PartialVoiceConfig& config);
 
