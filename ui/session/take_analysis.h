@@ -32,6 +32,10 @@ struct AnalysisRequest {
     std::optional<double> lowest_hz;  // one voice: the tracker's floor (default a semitone under the root, 41-55 Hz)
     std::vector<int> expected;        // targets meant, in order (indices into targets); empty: none, one: every note
     pitch::IntentConfig intent;       // the alignment's costs and the between-targets limit
+    // The drone comb's feedback g (pitch/dsp/drone_comb.h), 0 .. 0.99; 0 = feedforward (default). With g > 0 each
+    // note's end is placed from the feedforward comb's level (pitch/measure/note_end.h). Why it stays 0:
+    // DEVELOPERS.md, ui/session/take_analysis.h.
+    double comb_feedback = 0.0;
 };
 
 // What was heard when nothing (or little) was found: the level and the estimated signal-to-noise ratio of what the
