@@ -596,6 +596,11 @@ TEST_CASE("a steady voice exactly on a drone partial is not lost: analyze and th
     REQUIRE_MESSAGE(text.exit_code == 0, text.err);
     CHECK(text.out.find("a steady voice on the drone's partial 3 (330 Hz, 3/2 +1oct) is hidden with the drone") !=
           std::string::npos);
+    // Read as two voices, the drone is the low one: the same voice, named as the interval 3/1.
+    const auto duo = beatless::test::run_program({"analyze", flac, "--voices", "2"});
+    REQUIRE_MESSAGE(duo.exit_code == 0, duo.err);
+    CHECK(duo.out.find("a steady voice on the drone's partial 3 (330 Hz, 3/1) is hidden with the drone") !=
+          std::string::npos);
 
     // The screen: an outline at 3 x 110 Hz over the same stretch, and the line analyze prints.
     ReviewRig rig(1, 0.0);

@@ -756,7 +756,7 @@ void ReviewScreen::draw_plot(AppState& app, ImDrawList* dl, float x, float y, fl
     view_.hidden_words.clear();
     for (std::size_t i = 0; i < a.on_partials.size(); ++i) {
         const pitch::PartialVoice& p = a.on_partials[i];
-        view_.hidden_words.push_back(on_partial_words(p, take_->set, a.root_hz));
+        view_.hidden_words.push_back(on_partial_words(p, take_->set, a.root_hz, false));
         if (p.end_s < v.t0_s || p.start_s > v.t1_s) continue;
         ReviewMarkView m;
         m.note = static_cast<int>(i);

@@ -397,6 +397,7 @@ TwoVoiceAnalysis analyze_two_voices(audio::SoundReader& reader, const AnalysisRe
         one.root_hz = drone.root_hz;
         track_voice(reader, req, tick, 1, one);
         out.drone_hz = one.drone_hz;
+        out.on_partials = one.on_partials;
         out.hop_s = one.hop_s;
         out.facts = one.facts;
         out.heard = one.heard;

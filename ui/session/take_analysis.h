@@ -81,7 +81,8 @@ struct TwoVoiceAnalysis {
     std::size_t short_dyads_dropped = 0;
     HeardLevels heard;
     pitch::SignalFacts facts;
-    pitch::DecimatedTrace trace;  // interval in cents, high above low (when keep_trace)
+    pitch::DecimatedTrace trace;                   // interval in cents, high above low (when keep_trace)
+    std::vector<pitch::PartialVoice> on_partials;  // a drone found: voices it hid on its partials (as one voice's)
     // Each voice (when keep_trace), in cents above ref_hz: the root given, or the drone found, else 55 Hz (A1).
     double ref_hz = 55.0;
     pitch::DecimatedTrace low_trace, high_trace;
