@@ -156,6 +156,16 @@ void print_on_partials(const pitch::TargetSet& set, const std::vector<pitch::Par
     for (const pitch::PartialVoice& v : list) std::printf("%s\n", on_partial_words(v, set, root_hz, intervals).c_str());
 }
 
+// With JSON or CSV on stdout: on stderr, the voices hidden on the drone's partials, else the one-line hint.
+void tell_nothing_found(const std::string& file, const pitch::TargetSet& set, const HeardLevels& heard,
+                        const std::vector<pitch::PartialVoice>& hidden, double root_hz, bool intervals) {
+    if (hidden.empty())
+        std::fprintf(stderr, "beatless: %s: %s\n", file.c_str(),
+                     nothing_found_words(heard.loudest_dbfs, heard.snr_db, intervals).c_str());
+    for (const pitch::PartialVoice& v : hidden)
+        std::fprintf(stderr, "beatless: %s: %s\n", file.c_str(), on_partial_words(v, set, root_hz, intervals).c_str());
+}
+
 void print_one_voice(const AnalyzeOptions& o, const pitch::TargetSet& set, const OneVoiceAnalysis& a) {
     const auto& notes = a.notes;
     if (o.format == Format::json) {
@@ -329,28 +339,16 @@ int run_analyze(const AnalyzeOptions& given) {
         const OneVoiceAnalysis a = analyze_one_voice(reader, req, progress);
         bar.clear();
         warn_clipping(a.facts, o.file);
-        if (a.notes.empty() && o.format != Format::text) {
-            if (a.on_partials.empty())
-                std::fprintf(stderr, "beatless: %s: %s\n", o.file.c_str(),
-                             nothing_found_words(a.heard.loudest_dbfs, a.heard.snr_db, false).c_str());
-            for (const pitch::PartialVoice& v : a.on_partials)
-                std::fprintf(stderr, "beatless: %s: %s\n", o.file.c_str(),
-                             on_partial_words(v, req.targets, a.root_hz, false).c_str());
-        }
+        if (a.notes.empty() && o.format != Format::text)
+            tell_nothing_found(o.file, req.targets, a.heard, a.on_partials, a.root_hz, false);
         print_one_voice(o, req.targets, a);
         if (!o.report.empty()) write_report(o.report, one_voice_report(o, req.targets, a));
     } else {
         const TwoVoiceAnalysis a = analyze_two_voices(reader, req, progress);
         bar.clear();
         warn_clipping(a.facts, o.file);
-        if (a.dyads.empty() && o.format != Format::text) {
-            if (a.on_partials.empty())
-                std::fprintf(stderr, "beatless: %s: %s\n", o.file.c_str(),
-                             nothing_found_words(a.heard.loudest_dbfs, a.heard.snr_db, true).c_str());
-            for (const pitch::PartialVoice& v : a.on_partials)
-                std::fprintf(stderr, "beatless: %s: %s\n", o.file.c_str(),
-                             on_partial_words(v, req.targets, a.drone_hz, true).c_str());
-        }
+        if (a.dyads.empty() && o.format != Format::text)
+            tell_nothing_found(o.file, req.targets, a.heard, a.on_partials, a.drone_hz, true);
         print_two_voices(o, req.targets, a);
         if (!o.report.empty()) write_report(o.report, two_voice_report(o, req.targets, a));
     }
