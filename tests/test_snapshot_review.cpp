@@ -13,6 +13,7 @@
 #include "tests/mix_signals.h"
 #include "tests/take_fixture.h"
 #include "ui/render/imgui_host.h"
+#include "ui/render/png.h"
 #include "ui/render/raster.h"
 #include "ui/screens/palette.h"
 #include "ui/screens/screen.h"
@@ -47,6 +48,14 @@ constexpr double kFs = 44100.0;
 // A take in `dir` named for `stem`, with its sidecar: the 7-limit set, root A2.
 void write_take(const std::filesystem::path& dir, const std::string& stem, const Take& take) {
     beatless::test::write_test_take(dir, stem, take.samples, kFs, take.dur_s);
+}
+
+// A take over a drone in the data folder's takes/ (BEATLESS_HOME set by the caller), read as `voices`; its FLAC path.
+std::string drone_take_in_home(const std::string& stem, const Take& take, int voices) {
+    const std::filesystem::path takes = ui::takes_dir();
+    std::filesystem::create_directories(takes);
+    beatless::test::write_test_take(takes, stem, take.samples, kFs, take.dur_s, true, voices);
+    return (takes / (stem + ".flac")).string();
 }
 
 struct ReviewRig {
@@ -309,11 +318,8 @@ TEST_CASE("Review of a two-voice take over a drone: intervals named in their oct
     // them, never octave-reduced to 5/4 and 7/4.
     beatless::test::TempDir home;
     setenv("BEATLESS_HOME", home.path().c_str(), 1);
-    const std::filesystem::path takes = ui::takes_dir();
-    std::filesystem::create_directories(takes);
     const Take take = drone_and_voice(kFs, 110.0, {{5.0 / 4.0, 6.0}, {7.0 / 4.0, -4.0}}, 59);
-    beatless::test::write_test_take(takes, "2026-12-03_190000", take.samples, kFs, take.dur_s, true, 2);
-    const std::string flac = (takes / "2026-12-03_190000.flac").string();
+    const std::string flac = drone_take_in_home("2026-12-03_190000", take, 2);
     ReviewRig rig(1, 0.0);
     rig.frames(3);
     const ui::ReviewView& v = *ui::review_view(*rig.screen);
@@ -342,6 +348,7 @@ TEST_CASE("Review of a two-voice take over a drone: intervals named in their oct
         std::ifstream in(p, std::ios::binary);
         return std::string(std::istreambuf_iterator<char>(in), {});
     };
+    const std::filesystem::path takes = ui::takes_dir();
     CHECK(read(takes / "2026-12-03_190000.csv") == csv.out);
     CHECK(read(takes / "2026-12-03_190000.json") == json.out);
     const std::string png = read(takes / "2026-12-03_190000.report.png");
@@ -450,4 +457,170 @@ TEST_CASE("the remarks name a target in the octave it was matched at") {
     j.nearer_other = false;
     j.between = true;
     CHECK(ui::judgement_words(j, set, false) == "between targets: 12 c sharp of 4/3 +1oct, the nearest");
+}
+
+TEST_CASE("Review: a note an octave up sits on a target line labelled in its octave, on the screen and in the report") {
+    // Ratio arithmetic (common practice): 3/2 x 2/1 = 3/1, 1200 cents per octave (Ellis 1885). A voice over a 110 Hz
+    // drone (mix_signals.h drone_and_voice, voice_octaves 1) at 3/4 x 2 and 3/2 x 2: the notes 3/2 (+3 c) and 3/2 an
+    // octave up (-5 c), which `analyze` names "3/2" and "3/2 +1oct". Each note's mark lies on the line whose label
+    // says the note's own name; the label's pixels are drawn where the view says.
+    beatless::test::TempDir home;
+    setenv("BEATLESS_HOME", home.path().c_str(), 1);
+    const Take solo = drone_and_voice(kFs, 110.0, {{3.0 / 4.0, 3.0}, {3.0 / 2.0, -5.0}}, 62);
+    const std::string flac = drone_take_in_home("2026-12-04_120000", solo, 1);
+    const auto json = beatless::test::run_program({"analyze", flac, "--format", "json"});
+    REQUIRE_MESSAGE(json.exit_code == 0, json.err);
+    // Each note's target and octave, as analyze's target column names it ("3/2 +1oct").
+    std::vector<std::string> names;
+    for (const std::string& w :
+         beatless::test::json_words(json.out, "[n['target'] + ':' + str(n['target_octaves']) for n in d['notes']]")) {
+        const int oct = std::stoi(w.substr(w.find(':') + 1));
+        names.push_back(w.substr(0, w.find(':')) +
+                        (oct == 0 ? "" : (oct > 0 ? " +" : " ") + std::to_string(oct) + "oct"));
+    }
+    const auto text = beatless::test::run_program({"analyze", flac});
+    REQUIRE_MESSAGE(text.exit_code == 0, text.err);
+    CHECK(text.out.find("  3/2 +1oct   ") != std::string::npos);
+    REQUIRE(names == std::vector<std::string>{"3/2", "3/2 +1oct"});
+
+    ReviewRig rig(2, 0.0);
+    rig.frames(3);
+    const ui::ReviewView& v = *ui::review_view(*rig.screen);
+    REQUIRE(v.open);
+    REQUIRE(v.marks.size() == 2);
+    if (const char* out = std::getenv("BEATLESS_TEST_PNG")) ui::write_png(std::string(out) + "-screen.png", rig.buf);
+    for (const ui::ReviewMarkView& m : v.marks) {
+        CAPTURE(m.note);
+        const std::string& name = names[static_cast<std::size_t>(m.note)];
+        // The line nearest the mark: within the note's deviation (5 c) plus 1.5 px, and labelled with its name.
+        const ui::ReviewLineView* nearest = nullptr;
+        for (const ui::ReviewLineView& ln : v.lines)
+            if (!nearest || std::fabs(ln.y - m.y) < std::fabs(nearest->y - m.y)) nearest = &ln;
+        REQUIRE(nearest != nullptr);
+        const float px_per_cent = (v.plot_y1 - v.plot_y0) / static_cast<float>(v.cents_hi - v.cents_lo);
+        CHECK(std::fabs(nearest->y - m.y) <= 5.5f * px_per_cent + 1.5f);
+        CHECK(nearest->label == name);
+        // The line's pixels at the plot's left edge (grey, brighter than the panel; the selected note's target is
+        // drawn over in the current target's colour) and the label's ink in its box.
+        const int lx = static_cast<int>(v.plot_x0) + 2, ly = static_cast<int>(std::floor(nearest->y));
+        const std::uint32_t px = rig.buf.at(lx, ly), panel = rig.buf.at(lx, static_cast<int>(v.plot_y0) + 1);
+        auto lum = [](std::uint32_t c) { return (c & 0xFF) + ((c >> 8) & 0xFF) + ((c >> 16) & 0xFF); };
+        if (m.note == v.selected)
+            CHECK(px == ui::palette::kCurrentTarget);
+        else
+            CHECK(lum(px) > lum(panel) + 60);
+        int ink = 0;
+        for (int yy = static_cast<int>(nearest->label_y0); yy < static_cast<int>(nearest->label_y1); ++yy)
+            for (int xx = static_cast<int>(nearest->label_x0); xx < static_cast<int>(nearest->label_x1); ++xx)
+                ink += bright(rig.buf.at(xx, yy)) ? 1 : 0;
+        CHECK(ink > 20);
+        // Every line labelled "3/2 +1oct" lies 1200 c above one labelled "3/2".
+        if (m.note == 1) CHECK(std::fabs(nearest->cents - (1200.0 + 1200.0 * std::log2(3.0 / 2.0))) < 1e-6);
+    }
+    // No label names a target in another octave than its line's: the base line of "3/2" at 702 c, "+1oct" at 1902 c.
+    for (const ui::ReviewLineView& ln : v.lines) {
+        if (ln.label == "3/2") CHECK(std::fabs(ln.cents - 1200.0 * std::log2(1.5)) < 1e-6);
+        if (ln.label.find("+1oct") != std::string::npos)
+            CHECK(ln.cents > 1200.0 - 1e-6);
+        else if (!ln.label.empty())
+            CHECK(ln.cents < 1200.0 + 1e-6);
+    }
+
+    // The report page (analyze --report): the same names beside the same lines; each mark's bar on the line named
+    // as the note is, and that line's pixels drawn.
+    const ui::ReviewedTake r = ui::review_take(flac, "7-limit");
+    REQUIRE(r.error.empty());
+    const ui::ReportData d = ui::one_voice_report_data(r.set, r.analysis);
+    const ui::ReportLayout l = ui::report_layout(d);
+    const std::vector<ui::ReportLineLabel> labels = ui::report_line_labels(d, l);
+    ui::PixelBuffer page;
+    ui::render_report(d, page);
+    if (const char* out = std::getenv("BEATLESS_TEST_PNG")) ui::write_png(std::string(out) + "-report.png", page);
+    REQUIRE(d.marks.size() == 2);
+    for (std::size_t i = 0; i < d.marks.size(); ++i) {
+        CAPTURE(i);
+        const float y = l.y_of(d.marks[i].cents);
+        const ui::ReportLineLabel* nearest = nullptr;
+        for (const ui::ReportLineLabel& a : labels)
+            if (!nearest || std::fabs(a.line_y - y) < std::fabs(nearest->line_y - y)) nearest = &a;
+        REQUIRE(nearest != nullptr);
+        CHECK(std::fabs(nearest->line_y - l.y_of(d.marks[i].target_cents)) < 0.5f);
+        CHECK(nearest->ratio == names[i]);
+        // The target line (used: dark) in the plot, left of the first note.
+        const int px = static_cast<int>(l.plot_x0) + 4, py = static_cast<int>(std::round(nearest->line_y));
+        bool line = false;
+        for (int dy = -1; dy <= 1; ++dy) line = line || page.at(px, py + dy) != ui::kReportPaper;
+        CHECK(line);
+    }
+    unsetenv("BEATLESS_HOME");
+}
+
+TEST_CASE("a steady voice exactly on a drone partial is not lost: analyze and the Review screen say where it was") {
+    // A 110 Hz drone (mix_signals.h add_tone, 1/n partials) under a voice holding 308 Hz (14/5, between the drone's
+    // partials 2 and 3), then exactly 330 Hz (3 x 110, the drone's third partial: 3/1 = 3/2 +1oct, ratio arithmetic,
+    // common practice), then 275 Hz (5/2), steady, 0.25 s rests. The comb x(t) - x(t - 1/110 s) (J. O. Smith,
+    // "Feedforward Comb Filters") cancels any sound of period 1/(3 x 110) s: the second note leaves nothing to track,
+    // but the raw level rises about 5 dB over the drone's while the comb's output does not. A voice between the
+    // partials (308 and 275 Hz, whose upper partials do meet the drone's) is tracked and never flagged.
+    beatless::test::TempDir home;
+    setenv("BEATLESS_HOME", home.path().c_str(), 1);
+    Take take;
+    take.dur_s = 6.3;
+    take.samples.assign(static_cast<std::size_t>(take.dur_s * kFs), 0.0f);
+    add_tone(take.samples, kFs, 110.0, 0.0, take.dur_s, 0.15, rolloff(8), {0.3, 1.1, 2.0, 0.7, 2.9, 1.6, 0.2, 2.4});
+    for (const auto& [t0, f] : {std::pair{0.4, 308.0}, {2.25, 330.0}, {4.1, 275.0}}) {
+        Note n;
+        n.start_s = t0;
+        n.end_s = t0 + 1.6;
+        n.centre_hz = f;
+        n.level = 0.2;
+        take.notes.push_back(n);
+    }
+    add_voice(take.samples, kFs, take.notes, {1.0, 0.6, 0.45, 0.3, 0.2, 0.15, 0.1, 0.08});
+    add_noise(take.samples, 1e-3, 71);
+    const std::string flac = drone_take_in_home("2026-12-04_130000", take, 1);
+
+    const auto json = beatless::test::run_program({"analyze", flac, "--format", "json"});
+    REQUIRE_MESSAGE(json.exit_code == 0, json.err);
+    CHECK(beatless::test::json_words(json.out, "[round(n['f0_hz']) for n in d['notes']]") ==
+          std::vector<std::string>{"308", "275"});
+    CHECK(beatless::test::json_words(json.out, "[p['partial'] for p in d['on_drone_partials']]") ==
+          std::vector<std::string>{"3"});
+    // Where it sounded, within the tracker's 0.05 s (the notes' start and end bar, tests/test_cli_analyze.cpp).
+    const std::vector<std::string> when =
+        beatless::test::json_words(json.out, "[x for p in d['on_drone_partials'] for x in (p['start_s'], p['end_s'])]");
+    REQUIRE(when.size() == 2);
+    CHECK(std::fabs(std::stod(when[0]) - 2.25) < 0.05);
+    CHECK(std::fabs(std::stod(when[1]) - 3.85) < 0.05);
+    const auto text = beatless::test::run_program({"analyze", flac});
+    REQUIRE_MESSAGE(text.exit_code == 0, text.err);
+    CHECK(text.out.find("a steady voice on the drone's partial 3 (330 Hz, 3/2 +1oct) is hidden with the drone") !=
+          std::string::npos);
+    // Read as two voices, the drone is the low one: the same voice, named as the interval 3/1.
+    const auto duo = beatless::test::run_program({"analyze", flac, "--voices", "2"});
+    REQUIRE_MESSAGE(duo.exit_code == 0, duo.err);
+    CHECK(duo.out.find("a steady voice on the drone's partial 3 (330 Hz, 3/1) is hidden with the drone") !=
+          std::string::npos);
+
+    // The screen: an outline at 3 x 110 Hz over the same stretch, and the line analyze prints.
+    ReviewRig rig(1, 0.0);
+    rig.frames(3);
+    const ui::ReviewView& v = *ui::review_view(*rig.screen);
+    REQUIRE(v.open);
+    REQUIRE(v.hidden.size() == 1);
+    REQUIRE(v.hidden_words.size() == 1);
+    CHECK(text.out.find(v.hidden_words[0]) != std::string::npos);
+    const ui::ReviewMarkView& h = v.hidden[0];
+    CHECK(std::fabs(h.y - v.y_of(1200.0 * std::log2(3.0))) < 1.5);
+    const float px_per_s = (v.plot_x1 - v.plot_x0) / static_cast<float>(v.t1_s - v.t0_s);
+    CHECK(std::fabs(h.x0 - v.x_of(2.25)) < 0.05f * px_per_s + 1.5f);
+    CHECK(std::fabs(h.x1 - v.x_of(3.85)) < 0.05f * px_per_s + 1.5f);
+    // Its outline's pixels: the top edge, a third of the way along.
+    const float r = std::round(0.22f * ui::ui_unit());
+    const int x = static_cast<int>(h.x0 + (h.x1 - h.x0) / 3.0f), y = static_cast<int>(h.y - r);
+    bool edge = false;
+    for (int dy = -1; dy <= 1; ++dy) edge = edge || rig.buf.at(x, y + dy) == ui::palette::kTextDim;
+    CHECK(edge);
+    if (const char* out = std::getenv("BEATLESS_TEST_PNG")) ui::write_png(std::string(out) + "-hidden.png", rig.buf);
+    unsetenv("BEATLESS_HOME");
 }

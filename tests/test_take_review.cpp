@@ -207,7 +207,8 @@ TEST_CASE("noise from 40 dB to 0 dB SNR: fewer notes, never more again, each wit
         // 2 |sin(pi f / root)| = 0.56 at 320 Hz over 110 Hz (320 / 110 = 2.91 lies near its notch at 3) while it
         // doubles the white noise's power: this note's fundamental loses ~8 dB of SNR. The same voice and noise without a
         // drone in the file read within 0.1 c at 8 and 4 dB, and over a 100 Hz drone (gain 1.18) within 0.2 c
-        // (measured with analyze). A narrower notch (an IIR comb, 1 - z^-D over 1 - r z^-D) is the fix to try.
+        // (measured with analyze). A narrower notch (the comb with feedback, AnalysisRequest::comb_feedback) reads this
+        // ramp better from 8 dB down but moves clean vibrato notes: DEVELOPERS.md, ui/session/take_analysis.h.
         CHECK(dev.size() <= last_count + (snr < 8.0 ? 1 : 0));
         last_count = dev.size();
         for (std::size_t i = 0; i < dev.size(); ++i) {

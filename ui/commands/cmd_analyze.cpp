@@ -148,6 +148,24 @@ void print_summary_text(const pitch::TargetSet& set, const std::vector<pitch::Ta
 // ---------------------------------------------------------------------------
 // [SECTION] One voice
 // ---------------------------------------------------------------------------
+// The voices the drone removal hid on the drone's partials, one line each.
+void print_on_partials(const pitch::TargetSet& set, const std::vector<pitch::PartialVoice>& list, double root_hz,
+                       bool intervals, bool gap) {
+    if (list.empty()) return;
+    if (gap) std::printf("\n");
+    for (const pitch::PartialVoice& v : list) std::printf("%s\n", on_partial_words(v, set, root_hz, intervals).c_str());
+}
+
+// With JSON or CSV on stdout: on stderr, the voices hidden on the drone's partials, else the one-line hint.
+void tell_nothing_found(const std::string& file, const pitch::TargetSet& set, const HeardLevels& heard,
+                        const std::vector<pitch::PartialVoice>& hidden, double root_hz, bool intervals) {
+    if (hidden.empty())
+        std::fprintf(stderr, "beatless: %s: %s\n", file.c_str(),
+                     nothing_found_words(heard.loudest_dbfs, heard.snr_db, intervals).c_str());
+    for (const pitch::PartialVoice& v : hidden)
+        std::fprintf(stderr, "beatless: %s: %s\n", file.c_str(), on_partial_words(v, set, root_hz, intervals).c_str());
+}
+
 void print_one_voice(const AnalyzeOptions& o, const pitch::TargetSet& set, const OneVoiceAnalysis& a) {
     const auto& notes = a.notes;
     if (o.format == Format::json) {
@@ -167,7 +185,9 @@ void print_one_voice(const AnalyzeOptions& o, const pitch::TargetSet& set, const
     std::printf("\n");
     std::printf("targets: %s (%s)\n\n", set.id.c_str(), set.title.c_str());
     if (notes.empty()) {
-        std::printf("%s\n", nothing_found_words(a.heard.loudest_dbfs, a.heard.snr_db, false).c_str());
+        if (a.on_partials.empty())
+            std::printf("%s\n", nothing_found_words(a.heard.loudest_dbfs, a.heard.snr_db, false).c_str());
+        print_on_partials(set, a.on_partials, a.root_hz, false, false);
         return;
     }
     const bool drone = a.drone_hz > 0.0;
@@ -201,6 +221,7 @@ void print_one_voice(const AnalyzeOptions& o, const pitch::TargetSet& set, const
         pitch::format_trimmed(bands.rough_above_hz, 2).c_str(),
         drone ? "" : " (no drone in the file: rates are those a drone at the root would give)");
     print_summary_text(set, a.summary, false);
+    print_on_partials(set, a.on_partials, a.root_hz, false, true);
 }
 
 ReportData one_voice_report(const AnalyzeOptions& o, const pitch::TargetSet& set, const OneVoiceAnalysis& a) {
@@ -231,7 +252,9 @@ void print_two_voices(const AnalyzeOptions& o, const pitch::TargetSet& set, cons
                     pitch::format_trimmed(a.drone_hz, 3).c_str());
     std::printf("targets: %s (%s)\n\n", set.id.c_str(), set.title.c_str());
     if (dyads.empty()) {
-        std::printf("%s\n", nothing_found_words(a.heard.loudest_dbfs, a.heard.snr_db, true).c_str());
+        if (a.on_partials.empty())
+            std::printf("%s\n", nothing_found_words(a.heard.loudest_dbfs, a.heard.snr_db, true).c_str());
+        print_on_partials(set, a.on_partials, a.drone_hz, true, false);
         return;
     }
     std::printf("%4s %8s %8s %9s %9s %9s  %-12s %-26s %8s %8s %9s %9s\n", "#", "start s", "end s", "low Hz", "high Hz",
@@ -257,6 +280,7 @@ void print_two_voices(const AnalyzeOptions& o, const pitch::TargetSet& set, cons
         "a listener hears (a simpler ratio's where the target's own lie above the 12th or 4 kHz); measured: from those "
         "partials.\n");
     print_summary_text(set, a.summary, true);
+    print_on_partials(set, a.on_partials, a.drone_hz, true, true);
 }
 
 ReportData two_voice_report(const AnalyzeOptions& o, const pitch::TargetSet& set, const TwoVoiceAnalysis& a) {
@@ -316,8 +340,7 @@ int run_analyze(const AnalyzeOptions& given) {
         bar.clear();
         warn_clipping(a.facts, o.file);
         if (a.notes.empty() && o.format != Format::text)
-            std::fprintf(stderr, "beatless: %s: %s\n", o.file.c_str(),
-                         nothing_found_words(a.heard.loudest_dbfs, a.heard.snr_db, false).c_str());
+            tell_nothing_found(o.file, req.targets, a.heard, a.on_partials, a.root_hz, false);
         print_one_voice(o, req.targets, a);
         if (!o.report.empty()) write_report(o.report, one_voice_report(o, req.targets, a));
     } else {
@@ -325,8 +348,7 @@ int run_analyze(const AnalyzeOptions& given) {
         bar.clear();
         warn_clipping(a.facts, o.file);
         if (a.dyads.empty() && o.format != Format::text)
-            std::fprintf(stderr, "beatless: %s: %s\n", o.file.c_str(),
-                         nothing_found_words(a.heard.loudest_dbfs, a.heard.snr_db, true).c_str());
+            tell_nothing_found(o.file, req.targets, a.heard, a.on_partials, a.drone_hz, true);
         print_two_voices(o, req.targets, a);
         if (!o.report.empty()) write_report(o.report, two_voice_report(o, req.targets, a));
     }

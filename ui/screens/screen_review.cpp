@@ -636,6 +636,11 @@ void ReviewScreen::draw_plot(AppState& app, ImDrawList* dl, float x, float y, fl
     // Cents range: the notes and the voiced trace, with a margin.
     double lo = INFINITY, hi = -INFINITY;
     for (const auto& n : a.notes) lo = std::min(lo, n.cents_above_root), hi = std::max(hi, n.cents_above_root);
+    if (take_->voices != 2)
+        for (const auto& p : a.on_partials) {
+            const double c = 1200.0 * std::log2(p.f_hz / a.root_hz);
+            lo = std::min(lo, c), hi = std::max(hi, c);
+        }
     if (take_->voices == 2) {  // both voices, in cents above the reference
         const TwoVoiceAnalysis& d = take_->duo;
         for (const auto& y : d.dyads) {
@@ -655,7 +660,31 @@ void ReviewScreen::draw_plot(AppState& app, ImDrawList* dl, float x, float y, fl
     if (!std::isfinite(lo)) lo = 0.0, hi = 1200.0;
     lo -= 60.0;
     hi += 60.0;
-    const float label_w = std::round(5.0f * u);
+    // One voice: the target lines in every octave in view, each named in its octave as `analyze` names a note
+    // matched there ("5/4 +1oct"); the label column fits the longest name, within 9 units.
+    struct Line {
+        double cents;
+        std::string label;
+        bool used;
+    };
+    std::vector<Line> lines;
+    float label_w = std::round(5.0f * u);
+    if (take_->voices != 2) {
+        std::vector<bool> used(take_->set.targets.size(), false);
+        for (const auto& n : a.notes)
+            if (n.target_index >= 0) used[static_cast<std::size_t>(n.target_index)] = true;
+        for (std::size_t k = 0; k < take_->set.targets.size(); ++k) {
+            const double c = take_->set.targets[k].interval.cents();
+            for (int o = static_cast<int>(std::floor((lo - c) / 1200.0));
+                 o <= static_cast<int>(std::ceil((hi - c) / 1200.0)); ++o) {
+                const double tc = c + 1200.0 * o;
+                if (tc < lo || tc > hi) continue;
+                lines.push_back({tc, target_text(static_cast<int>(k), o), used[k]});
+                label_w = std::max(label_w, std::round(text_size(FontFace::body, lines.back().label).x + 1.0f * u));
+            }
+        }
+        label_w = std::min(label_w, std::round(9.0f * u));
+    }
     view_.open = true;
     view_.title = take_->title;
     view_.plot_x0 = x + label_w;
@@ -667,6 +696,7 @@ void ReviewScreen::draw_plot(AppState& app, ImDrawList* dl, float x, float y, fl
     view_.cents_lo = lo;
     view_.cents_hi = hi;
     view_.selected = selected_;
+    view_.lines.clear();
     const ReviewView& v = view_;
     if (take_->voices == 2) {
         draw_duo(app, dl);
@@ -674,39 +704,28 @@ void ReviewScreen::draw_plot(AppState& app, ImDrawList* dl, float x, float y, fl
         return;
     }
     dl->PushClipRect(ImVec2(x, v.plot_y0), ImVec2(v.plot_x1, v.plot_y1 + 1.0f), true);
-    // Target lines in every octave in view, labelled at the left where a label fits: the targets the notes are
-    // judged against first, then the others.
-    struct Line {
-        float y;
-        std::size_t k;
-        bool used;
-    };
-    std::vector<Line> lines;
-    std::vector<bool> used(take_->set.targets.size(), false);
-    for (const auto& n : a.notes)
-        if (n.target_index >= 0) used[static_cast<std::size_t>(n.target_index)] = true;
-    for (std::size_t k = 0; k < take_->set.targets.size(); ++k) {
-        const double c = take_->set.targets[k].interval.cents();
-        for (int o = static_cast<int>(std::floor((lo - c) / 1200.0));
-             o <= static_cast<int>(std::ceil((hi - c) / 1200.0)); ++o) {
-            const double tc = c + 1200.0 * o;
-            if (tc < lo || tc > hi) continue;
-            const float ly = std::round(v.y_of(tc)) + 0.5f;
-            dl->AddLine(ImVec2(v.plot_x0, ly), ImVec2(v.plot_x1, ly), palette::kOtherTarget, 1.0f);
-            lines.push_back({ly, k, used[k]});
-        }
-    }
+    // Labelled at the left where a label fits: the targets the notes are judged against first, then the others.
     std::stable_sort(lines.begin(), lines.end(), [](const Line& p, const Line& q) { return p.used > q.used; });
-    std::vector<float> labelled;
     const float label_h = font_px(FontFace::body);
     for (const Line& ln : lines) {
+        ReviewLineView lv;
+        lv.cents = ln.cents;
+        lv.y = std::round(v.y_of(ln.cents)) + 0.5f;
+        dl->AddLine(ImVec2(v.plot_x0, lv.y), ImVec2(v.plot_x1, lv.y), palette::kOtherTarget, 1.0f);
         bool clear = true;
-        for (const float ly : labelled) clear = clear && std::fabs(ly - ln.y) >= label_h;
-        if (!clear) continue;
-        labelled.push_back(ln.y);
-        draw_text(dl, FontFace::body, ImVec2(x + 0.4f * u, ln.y - 0.55f * u),
-                  ln.used ? palette::kText : palette::kTextDim,
-                  fit_text(FontFace::body, take_->set.targets[ln.k].interval.str(), label_w - 0.6f * u));
+        for (const ReviewLineView& o : view_.lines)
+            clear = clear && (o.label.empty() || std::fabs(o.y - lv.y) >= label_h);
+        if (clear) {
+            lv.label = fit_text(FontFace::body, ln.label, label_w - 0.6f * u);
+            lv.label_x0 = x + 0.4f * u;
+            lv.label_y0 = lv.y - 0.55f * u;
+            const ImVec2 sz = text_size(FontFace::body, lv.label);
+            lv.label_x1 = lv.label_x0 + sz.x;
+            lv.label_y1 = lv.label_y0 + sz.y;
+            draw_text(dl, FontFace::body, ImVec2(lv.label_x0, lv.label_y0),
+                      ln.used ? palette::kText : palette::kTextDim, lv.label);
+        }
+        view_.lines.push_back(std::move(lv));
     }
     // The selected note's target, in the current target's colour.
     if (selected_ >= 0 && std::isfinite(a.notes[static_cast<std::size_t>(selected_)].target_cents)) {
@@ -731,6 +750,29 @@ void ReviewScreen::draw_plot(AppState& app, ImDrawList* dl, float x, float y, fl
         m.dev_cents = n.dev_cents;
         m.colour = std::isfinite(n.dev_cents) ? tuning_colour(tuning_of(n.dev_cents, in_tune)) : palette::kTextDim;
         draw_mark(dl, m, m.y, m.y);
+    }
+    // Voices the drone removal hid on a drone partial: an outline at the partial, its pitch not measured.
+    view_.hidden.clear();
+    view_.hidden_words.clear();
+    for (std::size_t i = 0; i < a.on_partials.size(); ++i) {
+        const pitch::PartialVoice& p = a.on_partials[i];
+        view_.hidden_words.push_back(on_partial_words(p, take_->set, a.root_hz, false));
+        if (p.end_s < v.t0_s || p.start_s > v.t1_s) continue;
+        ReviewMarkView m;
+        m.note = static_cast<int>(i);
+        m.x0 = v.x_of(p.start_s);
+        m.x1 = v.x_of(p.end_s);
+        m.cents = 1200.0 * std::log2(p.f_hz / a.root_hz);
+        m.y = std::round(v.y_of(m.cents));
+        m.dev_cents = NAN;
+        m.colour = palette::kTextDim;
+        const float r = std::round(0.22f * u);
+        dl->AddRect(ImVec2(m.x0, m.y - r), ImVec2(m.x1, m.y + r), m.colour, 0.0f, 0, 1.5f);
+        draw_text(
+            dl, FontFace::body, ImVec2(m.x0, m.y - r - std::round(1.3f * u)), m.colour,
+            fit_text(FontFace::body, "voice hidden with the drone (its partial " + std::to_string(p.partial) + ")",
+                     v.plot_x1 - m.x0));
+        view_.hidden.push_back(m);
     }
     dl->PopClipRect();
     draw_time_axis(dl);

@@ -22,6 +22,14 @@ struct ReviewMarkView {
     std::uint32_t colour = 0;  // the mark's colour
 };
 
+struct ReviewLineView {  // a target line of the one-voice plot
+    float y = 0;         // pixels
+    double cents = 0.0;  // cents above the root
+    std::string label;   // as drawn at its left ("5/4 +1oct", as analyze names a note matched there), or "" when
+                         // a nearer line's label took the room
+    float label_x0 = 0, label_y0 = 0, label_x1 = 0, label_y1 = 0;  // the label's box, pixels
+};
+
 struct ReviewView {
     bool open = false;               // a take is open and analysed
     bool reading = false;            // a take is being opened (read and analysed on the worker)
@@ -31,6 +39,10 @@ struct ReviewView {
     double t0_s = 0.0, t1_s = 0.0;          // time at plot_x0 and plot_x1
     double cents_lo = 0.0, cents_hi = 0.0;  // cents at plot_y1 and plot_y0
     std::vector<ReviewMarkView> marks;      // the notes in view
+    std::vector<ReviewLineView> lines;      // one voice: the target lines in view, each in its octave
+    std::vector<ReviewMarkView> hidden;     // one voice: voices hidden on a drone partial, in view (outlined; note =
+                                            //   index into the analysis's on_partials, dev_cents NaN)
+    std::vector<std::string> hidden_words;  // their lines as analyze prints them (all, in view or not)
     int selected = -1;                      // the selected note, -1 for none
     std::vector<std::string> takes;         // the list's rows as drawn
     std::string heading;                    // the selected item's heading ("Note 2 of 3   2.25 - 3.85 s"), or ""

@@ -53,17 +53,6 @@ double percentile_of(std::vector<double>& v, double p) {
 ReportLayout report_layout(const ReportData& d) {
     ReportLayout l;
     l.plot_x0 = 150.0f;
-    // Room on the right for the longest target label (ratio column, then
-    // the name), estimated at 0.6 em a character so names are not cut; the
-    // plot keeps at least 1200 px and gives no more than it needs.
-    std::size_t longest_chars = 0;
-    for (const ReportTarget& t : d.targets) {
-        std::size_t n = 0;
-        for (const unsigned char c : t.name) n += (c & 0xC0) != 0x80 ? 1 : 0;
-        longest_chars = std::max(longest_chars, n);
-    }
-    const float label_w = 36.0f + 127.0f + 0.6f * kBodyPx * static_cast<float>(longest_chars);
-    l.plot_x1 = std::clamp(kReportWidthPx - kMargin / 2 - label_w, 1200.0f, 1480.0f);
     l.plot_y0 = 160.0f;
     l.plot_y1 = 840.0f;
     l.t0_s = 0.0;
@@ -105,7 +94,68 @@ ReportLayout report_layout(const ReportData& d) {
     }
     l.c_lo = lo;
     l.c_hi = hi;
+    // Room on the right for the longest target label (ratio column, then the name), estimated at 0.6 em a character
+    // so names are not cut; the plot keeps at least 1200 px and gives no more than it needs.
+    l.plot_x1 = 1480.0f;
+    std::size_t ratio_chars = 0, name_chars = 0;
+    auto chars = [](const std::string& s) {
+        std::size_t n = 0;
+        for (const unsigned char c : s) n += (c & 0xC0) != 0x80 ? 1 : 0;
+        return n;
+    };
+    for (const ReportLineLabel& a : report_line_labels(d, l)) {
+        ratio_chars = std::max(ratio_chars, chars(a.ratio));
+        name_chars = std::max(name_chars, chars(a.name));
+    }
+    const float ratio_w = std::max(127.0f, 0.6f * kBodyPx * static_cast<float>(ratio_chars) + 24.0f);
+    const float label_w = 36.0f + ratio_w + 0.6f * kBodyPx * static_cast<float>(name_chars);
+    l.plot_x1 = std::clamp(kReportWidthPx - kMargin / 2 - label_w, 1200.0f, 1480.0f);
     return l;
+}
+
+namespace {
+
+// The cents of target `t`'s lines in view: one in each octave the plot spans (only its own without octave
+// equivalence).
+std::vector<double> octaves_in_view(const ReportData& d, const ReportLayout& l, const ReportTarget& t) {
+    std::vector<double> out;
+    const int k0 = d.octave_equivalent ? static_cast<int>(std::floor((l.c_lo - t.cents) / 1200.0)) : 0;
+    const int k1 = d.octave_equivalent ? static_cast<int>(std::ceil((l.c_hi - t.cents) / 1200.0)) : 0;
+    for (int k = k0; k <= k1; ++k)
+        if (const double c = t.cents + 1200.0 * k; c >= l.c_lo && c <= l.c_hi) out.push_back(c);
+    return out;
+}
+
+}  // namespace
+
+std::vector<ReportLineLabel> report_line_labels(const ReportData& d, const ReportLayout& l) {
+    std::vector<ReportLineLabel> labels;
+    for (const ReportTarget& t : d.targets)
+        for (const double c : octaves_in_view(d, l, t)) {
+            // Named in the line's octave as analyze names a note matched there.
+            const int k = static_cast<int>(std::lround((c - t.cents) / 1200.0));
+            ReportLineLabel a;
+            a.line_y = a.y = l.y_of(c);
+            a.used = t.used;
+            const bool in_set = t.index >= 0 && static_cast<std::size_t>(t.index) < d.set.targets.size();
+            a.ratio = in_set ? target_words_at(d.set, t.index, k, d.intervals)
+                             : t.ratio + (k == 0 ? "" : (k > 0 ? " +" : " ") + std::to_string(k) + "oct");
+            a.name = in_set ? target_name_words_at(d.set, t.index, k, d.intervals) : t.name;
+            labels.push_back(std::move(a));
+        }
+    // Labels beside the plot, pushed apart so none overlaps; when they cannot all fit, the targets no note used give
+    // way.
+    const float gap = kBodyPx + 4.0f;
+    const float top = l.plot_y0 + 0.5f * gap, bottom = l.plot_y1 - 0.5f * gap;
+    if (static_cast<float>(labels.size()) * gap > bottom - top + gap)
+        std::erase_if(labels, [](const ReportLineLabel& a) { return !a.used; });
+    std::stable_sort(labels.begin(), labels.end(),
+                     [](const ReportLineLabel& a, const ReportLineLabel& b) { return a.line_y < b.line_y; });
+    for (std::size_t i = 0; i < labels.size(); ++i)
+        labels[i].y = std::max(labels[i].line_y, i ? labels[i - 1].y + gap : top);
+    for (std::size_t i = labels.size(); i-- > 0;)
+        labels[i].y = std::min(labels[i].y, i + 1 < labels.size() ? labels[i + 1].y - gap : bottom);
+    return labels;
 }
 
 namespace {
@@ -209,50 +259,25 @@ void draw_axes(const Ink& ink, const ReportData& d, const ReportLayout& l) {
                 1.5f);
 }
 
-struct Label {
-    float want_y;
-    float y;
-    double cents;
-    const ReportTarget* target;
-};
-
 void draw_targets(const Ink& ink, const ReportData& d, const ReportLayout& l) {
     ImDrawList* dl = ink.dl;
-    std::vector<Label> labels;
-    for (const ReportTarget& t : d.targets) {
-        const int k0 = d.octave_equivalent ? static_cast<int>(std::floor((l.c_lo - t.cents) / 1200.0)) : 0;
-        const int k1 = d.octave_equivalent ? static_cast<int>(std::ceil((l.c_hi - t.cents) / 1200.0)) : 0;
-        for (int k = k0; k <= k1; ++k) {
-            const double c = t.cents + 1200.0 * k;
-            if (c < l.c_lo || c > l.c_hi) continue;
-            const float y = l.y_of(c);
-            dl->AddLine(ImVec2(l.plot_x0, y), ImVec2(l.plot_x1, y), t.used ? kTargetUsed : kTargetOther,
+    const std::vector<ReportLineLabel> labels = report_line_labels(d, l);
+    // Every line in view, labelled or not.
+    for (const ReportTarget& t : d.targets)
+        for (const double c : octaves_in_view(d, l, t))
+            dl->AddLine(ImVec2(l.plot_x0, l.y_of(c)), ImVec2(l.plot_x1, l.y_of(c)), t.used ? kTargetUsed : kTargetOther,
                         t.used ? 2.0f : 1.2f);
-            labels.push_back({y, y, c, &t});
-        }
-    }
-    // Labels beside the plot, pushed apart so none overlaps; when they
-    // cannot all fit, the targets no note used give way.
-    const float gap = ink.body->FontSize + 4.0f;
-    const float top = l.plot_y0 + 0.5f * gap, bottom = l.plot_y1 - 0.5f * gap;
-    if (static_cast<float>(labels.size()) * gap > bottom - top + gap)
-        std::erase_if(labels, [](const Label& a) { return !a.target->used; });
-    std::sort(labels.begin(), labels.end(), [](const Label& a, const Label& b) { return a.want_y < b.want_y; });
-    for (std::size_t i = 0; i < labels.size(); ++i)
-        labels[i].y = std::max(labels[i].want_y, i ? labels[i - 1].y + gap : top);
-    for (std::size_t i = labels.size(); i-- > 0;)
-        labels[i].y = std::min(labels[i].y, i + 1 < labels.size() ? labels[i + 1].y - gap : bottom);
     const float lx = l.plot_x1 + 36.0f;
-    for (const Label& a : labels) {
-        const ImU32 col = a.target->used ? kInk : kSoftInk;
-        dl->AddLine(ImVec2(l.plot_x1 + 2.0f, a.want_y), ImVec2(lx - 6.0f, a.y),
-                    a.target->used ? kTargetUsed : kTargetOther, 1.2f);
+    for (const ReportLineLabel& a : labels) {
+        const ImU32 col = a.used ? kInk : kSoftInk;
+        dl->AddLine(ImVec2(l.plot_x1 + 2.0f, a.line_y), ImVec2(lx - 6.0f, a.y), a.used ? kTargetUsed : kTargetOther,
+                    1.2f);
         const float ty = a.y - 0.5f * ink.body->FontSize;
-        ImFont* f = a.target->used ? ink.bold : ink.body;
-        ink.text(f, lx, ty, col, a.target->ratio);
-        if (!a.target->name.empty()) {
-            const float nx = lx + std::max(ink.size(f, a.target->ratio).x + 12.0f, 115.0f);
-            ink.text(ink.body, nx, ty, kSoftInk, fit_text(ink.body, a.target->name, kReportWidthPx - kMargin / 2 - nx));
+        ImFont* f = a.used ? ink.bold : ink.body;
+        ink.text(f, lx, ty, col, a.ratio);
+        if (!a.name.empty()) {
+            const float nx = lx + std::max(ink.size(f, a.ratio).x + 12.0f, 115.0f);
+            ink.text(ink.body, nx, ty, kSoftInk, fit_text(ink.body, a.name, kReportWidthPx - kMargin / 2 - nx));
         }
     }
 }

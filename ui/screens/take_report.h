@@ -20,6 +20,7 @@ struct ReportTarget {
     std::string ratio;   // "7/5" or "600c"
     std::string name;    // "septimal tritone", or empty
     bool used = false;   // some note matched it (drawn darker, always labelled)
+    int index = -1;      // in ReportData::set, which names it in another octave; -1: `ratio` with "+1oct" said
 };
 
 struct ReportMark {  // one note or dyad
@@ -48,6 +49,8 @@ struct ReportData {
     const pitch::DecimatedTrace* trace = nullptr;  // may be null (no trace drawn)
     std::vector<ReportTarget> targets;
     bool octave_equivalent = true;  // draw each target in every octave in view
+    pitch::TargetSet set;           // the targets' set: a line in another octave is named from it as analyze names
+    bool intervals = false;         // a note's (false: "5/4 +1oct") or an interval's (true: "5/2")
     std::vector<ReportMark> marks;
     std::vector<ReportRow> summary;
 };
@@ -76,6 +79,18 @@ struct ReportLayout {
 };
 ReportLayout report_layout(const ReportData& data);
 
+// A target line in the plot and its label beside it: the target in the octave of the line, named as analyze names a
+// note matched there ("5/4 +1oct"; "5/2" between two voices).
+struct ReportLineLabel {
+    float line_y = 0.0f;  // the line's pixel row
+    float y = 0.0f;       // the label's centre row, pushed apart from its neighbours
+    std::string ratio;    // "5/4 +1oct"
+    std::string name;     // "just major third", or empty
+    bool used = false;    // its target was matched by some note (drawn darker)
+};
+// The lines and the labels drawn (those of targets no note used give way when all cannot fit), top to bottom.
+std::vector<ReportLineLabel> report_line_labels(const ReportData& data, const ReportLayout& layout);
+
 // Draws the page into `out` (resized to kReportWidthPx x kReportHeightPx): a title with the file, root and date;
 // the pitch trace over time in cents above the root (or, for two voices, the interval above the low voice); the
 // target lines in every octave the trace reaches, labelled by ratio and name; each note's bar at its centre,
@@ -91,6 +106,8 @@ template <class Item, class ToMark>
 ReportData report_of(const pitch::TargetSet& set, const std::vector<Item>& items,
                      const std::vector<pitch::TargetSummary>& summary, bool dyads, ToMark to_mark) {
     ReportData d;
+    d.set = set;
+    d.intervals = dyads;
     std::vector<bool> used(set.targets.size(), false);
     for (const Item& it : items) {
         if (it.target_index >= 0) used[static_cast<std::size_t>(it.target_index)] = true;
@@ -98,7 +115,7 @@ ReportData report_of(const pitch::TargetSet& set, const std::vector<Item>& items
     }
     for (std::size_t i = 0; i < set.targets.size(); ++i)
         d.targets.push_back({set.targets[i].interval.cents(), set.targets[i].interval.str(),
-                             target_name_of(set, static_cast<int>(i)), used[i]});
+                             target_name_of(set, static_cast<int>(i)), used[i], static_cast<int>(i)});
     for (const auto& r : summary) {
         // Named as analyze's summary names it, in the octave its notes were matched at ("3/2 +1oct", "5/2").
         const std::string ratio = target_words_at(set, r.target_index, r.target_octaves, dyads);

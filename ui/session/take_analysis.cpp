@@ -7,6 +7,7 @@
 #include "pitch/dsp/drone_comb.h"
 #include "pitch/dsp/signal_facts.h"
 #include "pitch/dsp/yin.h"
+#include "pitch/measure/note_end.h"
 #include "pitch/measure/two_voice.h"
 #include "pitch/theory/beats.h"
 #include "pitch/theory/notes.h"
@@ -29,6 +30,7 @@ constexpr std::size_t kBlockFrames = kAnalysisBlockFrames;
 // Tracker hop for notes: 10 ms still samples a 10 Hz vibrato ten times a
 // cycle, and halves the tracker's share of the time (`track` keeps 5 ms).
 constexpr double kNoteHopS = 0.01;
+constexpr double kEndFrameS = 0.004;  // level frames for the notes' ends
 // The notes' default floor: a semitone under the drone's root, within 41 Hz (pitch::kFileLowestHz, a double bass's
 // low E) .. 55 Hz. YIN's window holds the longest period searched (24.4 ms at 41 Hz, 18.2 ms at 55 Hz), so a floor
 // lower than the take needs finds every onset later and moves the whole-cycle vibrato centre with it.
@@ -169,6 +171,7 @@ void fill_heard(HeardLevels& h, const pitch::SignalFacts& f, const pitch::LevelS
 // The voice against a known root (its drone combed out when one was found): the second pass of one-voice analysis.
 void track_voice(audio::SoundReader& reader, const AnalysisRequest& req, Ticker& tick, int pass, OneVoiceAnalysis& out,
                  bool comb_drone = true);
+void find_on_partials(audio::SoundReader& reader, const pitch::PartialLevels& levels, OneVoiceAnalysis& out);
 
 }  // namespace
 
@@ -216,10 +219,15 @@ namespace {
 void track_voice(audio::SoundReader& reader, const AnalysisRequest& req, Ticker& tick, int pass, OneVoiceAnalysis& out,
                  bool comb_drone) {
     const double rate = out.info.sample_rate_hz;
-    std::optional<pitch::DroneComb> comb;
+    // The drone's removal: the comb for the tracker; with feedback (req.comb_feedback > 0) also the feedforward comb,
+    // with no echoes, for the levels that place each note's end and find voices hidden on the drone's partials.
+    std::optional<pitch::DroneComb> comb, plain_comb;
     if (comb_drone && out.root.found() && out.root.root_hz >= 20.0 && out.root.root_hz <= rate / 8.0) {
         out.drone_hz = out.root.root_hz;
-        comb.emplace(pitch::DroneCombConfig{.sample_rate_hz = rate, .root_hz = out.drone_hz});
+        comb.emplace(
+            pitch::DroneCombConfig{.sample_rate_hz = rate, .root_hz = out.drone_hz, .feedback = req.comb_feedback});
+        if (req.comb_feedback > 0.0)
+            plain_comb.emplace(pitch::DroneCombConfig{.sample_rate_hz = rate, .root_hz = out.drone_hz});
     }
 
     pitch::YinConfig yc;
@@ -236,7 +244,10 @@ void track_voice(audio::SoundReader& reader, const AnalysisRequest& req, Ticker&
     sc.hop_s = out.hop_s;
     pitch::NoteSegmenter seg(sc, req.targets);
     pitch::LevelSpread spread;
-    std::vector<float> filtered(kBlockFrames);
+    std::vector<float> filtered(kBlockFrames), plain(plain_comb ? kBlockFrames : 0);
+    std::optional<pitch::PartialLevels> levels;
+    if (comb) levels.emplace(pitch::PartialVoiceConfig{.sample_rate_hz = rate, .drone_hz = out.drone_hz});
+    pitch::LevelEnvelope ends(rate, kEndFrameS);  // the feedforward comb's level, for the notes' ends
     pitch::PitchFrame frame;
     pitch::NoteResult note;
     auto clips = std::make_unique<pitch::ClipHistory>();
@@ -246,6 +257,16 @@ void track_voice(audio::SoundReader& reader, const AnalysisRequest& req, Ticker&
         out.notes.push_back(n);
         out.notes_clipped.push_back(clips->between(n.start_s - reach_s, n.end_s + reach_s, rate));
     };
+    // With feedback, each note's end from the feedforward comb's level, once the level after it is known (or at the
+    // file's end): the tracker hears the comb's echoes ring on for 40-70 ms at g = 0.5.
+    std::size_t ends_placed = 0;
+    auto place_ends = [&](bool all) {
+        for (; ends_placed < out.notes.size(); ++ends_placed) {
+            pitch::NoteResult& n = out.notes[ends_placed];
+            if (!all && ends.time_s() < n.end_s + pitch::LevelEnvelope::kAfterS) break;
+            n.end_s = ends.end_before(n.start_s, n.end_s, 1.0 / out.drone_hz);
+        }
+    };
     for (auto block = reader.read(); !block.empty(); block = reader.read()) {
         const std::int64_t first = reader.position_frames() - static_cast<std::int64_t>(block.size());
         const std::int64_t clipped_before = out.facts.clipped_samples;
@@ -254,6 +275,12 @@ void track_voice(audio::SoundReader& reader, const AnalysisRequest& req, Ticker&
         if (comb) {
             const std::span<float> y(filtered.data(), block.size());
             comb->process(block, y);
+            const std::span<float> z(plain_comb ? plain.data() : filtered.data(), block.size());
+            if (plain_comb) {
+                plain_comb->process(block, z);
+                ends.push(z);
+            }
+            levels->push(block, z);
             yin.push(y);
             spread.add(y);
         } else {
@@ -267,12 +294,67 @@ void track_voice(audio::SoundReader& reader, const AnalysisRequest& req, Ticker&
             }
             if (seg.push(frame, note)) keep(note);
         }
+        if (plain_comb) place_ends(false);
         tick.at(pass, reader.position_frames(), "tracking notes");
     }
     if (seg.finish(note)) keep(note);
+    if (plain_comb) place_ends(true);
     check_sound(out.facts, req.path);
     out.short_notes_dropped = seg.short_notes_dropped();
     fill_heard(out.heard, out.facts, spread);
+    if (levels) find_on_partials(reader, *levels, out);
+}
+
+// Voices the comb hid on the drone's partials: the stretches PartialLevels found, each named from its samples and a
+// stretch of drone alone beside it (a third read of the file, only when there are candidates).
+void find_on_partials(audio::SoundReader& reader, const pitch::PartialLevels& levels, OneVoiceAnalysis& out) {
+    constexpr double kMargin_s = 0.05, kLook_s = 1.0, kAlone_s = 0.15;
+    std::vector<pitch::TimeSpan> busy;
+    for (const auto& n : out.notes) busy.push_back({n.start_s - kMargin_s, n.end_s + kMargin_s});
+    std::vector<pitch::PartialVoice> cands = levels.candidates(busy);
+    if (cands.size() > 256) cands.resize(256);  // a pathological file: the first 256 are looked at
+    struct Look {
+        pitch::TimeSpan during, alone;
+        std::vector<float> a, b;
+    };
+    std::vector<Look> looks;
+    std::vector<pitch::PartialVoice> kept;
+    for (const pitch::PartialVoice& c : cands) {
+        const double mid = 0.5 * (c.start_s + c.end_s);
+        Look k;
+        k.during = {std::max(c.start_s + 0.05, mid - 0.5 * kLook_s), std::min(c.end_s - 0.05, mid + 0.5 * kLook_s)};
+        // Drone alone: the nearest 0.15 s before or after, within 5 s.
+        bool found = false;
+        for (double d = 0.02; d <= 5.0 && !found; d += 0.02) {
+            if (levels.drone_alone(c.start_s - d - kAlone_s, c.start_s - d, busy)) {
+                k.alone = {c.start_s - d - kAlone_s, c.start_s - d};
+                found = true;
+            } else if (levels.drone_alone(c.end_s + d, c.end_s + d + kAlone_s, busy)) {
+                k.alone = {c.end_s + d, c.end_s + d + kAlone_s};
+                found = true;
+            }
+        }
+        if (!found) continue;
+        looks.push_back(std::move(k));
+        kept.push_back(c);
+    }
+    if (looks.empty()) return;
+    const double rate = out.info.sample_rate_hz;
+    reader.rewind();
+    for (auto block = reader.read(); !block.empty(); block = reader.read()) {
+        const std::int64_t first = reader.position_frames() - static_cast<std::int64_t>(block.size());
+        for (Look& k : looks)
+            for (auto [span, buf] : {std::pair{k.during, &k.a}, std::pair{k.alone, &k.b}}) {
+                const auto s0 = static_cast<std::int64_t>(span.start_s * rate);
+                const auto s1 = static_cast<std::int64_t>(span.end_s * rate);
+                for (std::int64_t i = std::max(first, s0);
+                     i < std::min(first + static_cast<std::int64_t>(block.size()), s1); ++i)
+                    buf->push_back(block[static_cast<std::size_t>(i - first)]);
+            }
+    }
+    const pitch::PartialVoiceConfig cfg{.sample_rate_hz = rate, .drone_hz = out.drone_hz};
+    for (std::size_t i = 0; i < looks.size(); ++i)
+        if (pitch::name_partial(kept[i], looks[i].a, looks[i].b, cfg)) out.on_partials.push_back(kept[i]);
 }
 
 // A held note of the voice over the drone as a dyad of the two.
@@ -315,6 +397,7 @@ TwoVoiceAnalysis analyze_two_voices(audio::SoundReader& reader, const AnalysisRe
         one.root_hz = drone.root_hz;
         track_voice(reader, req, tick, 1, one);
         out.drone_hz = one.drone_hz;
+        out.on_partials = one.on_partials;
         out.hop_s = one.hop_s;
         out.facts = one.facts;
         out.heard = one.heard;

@@ -10,6 +10,7 @@
 #include "pitch/measure/decimated_trace.h"
 #include "pitch/measure/dyad_segment.h"
 #include "pitch/measure/intent.h"
+#include "pitch/measure/partial_voice.h"
 #include "pitch/measure/root_detect.h"
 #include "pitch/measure/segment.h"
 #include "pitch/theory/targets.h"
@@ -31,6 +32,10 @@ struct AnalysisRequest {
     std::optional<double> lowest_hz;  // one voice: the tracker's floor (default a semitone under the root, 41-55 Hz)
     std::vector<int> expected;        // targets meant, in order (indices into targets); empty: none, one: every note
     pitch::IntentConfig intent;       // the alignment's costs and the between-targets limit
+    // The drone comb's feedback g (pitch/dsp/drone_comb.h), 0 .. 0.99; 0 = feedforward (default). With g > 0 each
+    // note's end is placed from the feedforward comb's level (pitch/measure/note_end.h). Why it stays 0:
+    // DEVELOPERS.md, ui/session/take_analysis.h.
+    double comb_feedback = 0.0;
 };
 
 // What was heard when nothing (or little) was found: the level and the estimated signal-to-noise ratio of what the
@@ -59,6 +64,9 @@ struct OneVoiceAnalysis {
     HeardLevels heard;
     pitch::SignalFacts facts;
     pitch::DecimatedTrace trace;  // cents above the root (when keep_trace)
+    // Steady voices the drone comb hid: each on a partial of the drone (330 Hz over 110 Hz), found by their level
+    // (pitch/measure/partial_voice.h); their pitch is the partial's, not measured apart from the drone.
+    std::vector<pitch::PartialVoice> on_partials;
 };
 
 struct TwoVoiceAnalysis {
@@ -73,7 +81,8 @@ struct TwoVoiceAnalysis {
     std::size_t short_dyads_dropped = 0;
     HeardLevels heard;
     pitch::SignalFacts facts;
-    pitch::DecimatedTrace trace;  // interval in cents, high above low (when keep_trace)
+    pitch::DecimatedTrace trace;                   // interval in cents, high above low (when keep_trace)
+    std::vector<pitch::PartialVoice> on_partials;  // a drone found: voices it hid on its partials (as one voice's)
     // Each voice (when keep_trace), in cents above ref_hz: the root given, or the drone found, else 55 Hz (A1).
     double ref_hz = 55.0;
     pitch::DecimatedTrace low_trace, high_trace;

@@ -61,6 +61,19 @@ void add_summary_json(JsonWriter& j, const pitch::TargetSet& set, const std::vec
     j.end_array();
 }
 
+// Steady voices the drone removal hid on the drone's partials (their pitch is the partial's, not measured).
+void add_on_partials_json(JsonWriter& j, const pitch::TargetSet& set, const std::vector<pitch::PartialVoice>& list,
+                          double root_hz, bool intervals) {
+    j.key("on_drone_partials").begin_array();
+    for (const pitch::PartialVoice& v : list) {
+        j.begin_object().key("start_s").value(v.start_s, 4).key("end_s").value(v.end_s, 4);
+        j.key("partial").value(v.partial).key("f_hz").value(v.f_hz, 4);
+        j.key("rise_db").value(v.rise_db, 1).key("partial_rise_db").value(v.partial_rise_db, 1);
+        j.key("text").value(on_partial_words(v, set, root_hz, intervals)).end_object();
+    }
+    j.end_array();
+}
+
 std::string one_voice_json(const std::string& file, const pitch::TargetSet& set, const OneVoiceAnalysis& a) {
     const auto& notes = a.notes;
     JsonWriter j;
@@ -105,6 +118,7 @@ std::string one_voice_json(const std::string& file, const pitch::TargetSet& set,
     }
     j.end_array();
     add_summary_json(j, set, a.summary, false);
+    add_on_partials_json(j, set, a.on_partials, a.root_hz, false);
     j.end_object();
     return j.str();
 }
@@ -173,6 +187,7 @@ std::string two_voice_json(const std::string& file, const pitch::TargetSet& set,
     }
     j.end_array();
     add_summary_json(j, set, a.summary, true);
+    add_on_partials_json(j, set, a.on_partials, a.drone_hz, true);
     j.end_object();
     return j.str();
 }

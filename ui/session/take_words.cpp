@@ -53,6 +53,19 @@ std::string target_name_words_at(const pitch::TargetSet& set, int index, int oct
     return intervals ? target_name_at(set, index, octaves) : target_name_of(set, index);
 }
 
+std::string on_partial_words(const pitch::PartialVoice& v, const pitch::TargetSet& set, double root_hz,
+                             bool intervals) {
+    std::string where;
+    if (!set.targets.empty() && root_hz > 0.0) {
+        const pitch::TargetMatch m = pitch::nearest_target(set, 1200.0 * std::log2(v.f_hz / root_hz), true);
+        where = ", " + target_words_at(set, static_cast<int>(m.index), m.octaves, intervals);
+        if (std::fabs(m.dev_cents) >= 0.05) where += " " + off_words(m.dev_cents, intervals);
+    }
+    return format_trimmed(v.start_s, 2) + "-" + format_trimmed(v.end_s, 2) +
+           " s: a steady voice on the drone's partial " + std::to_string(v.partial) + " (" + format_trimmed(v.f_hz, 3) +
+           " Hz" + where + ") is hidden with the drone: its pitch is not measured";
+}
+
 std::string root_words(const pitch::RootEstimate& e) {
     switch (e.status) {
         case pitch::RootStatus::found:

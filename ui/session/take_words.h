@@ -2,6 +2,7 @@
 #pragma once
 
 #include "pitch/measure/intent.h"
+#include "pitch/measure/partial_voice.h"
 #include "pitch/measure/root_detect.h"
 #include "pitch/measure/segment.h"
 
@@ -36,6 +37,10 @@ std::string off_words(double dev_cents, bool intervals);
 // A take's length as every screen and command shows it, rounded to the nearest second: "12 s" under a minute, "1:05"
 // (minutes:seconds) under an hour, "1:02:03" from an hour; "?" when unknown (not finite or negative).
 std::string duration_words(double dur_s);
+// A voice the drone removal hid on a drone's partial: "2.26-3.84 s: a steady voice on the drone's partial 3 (330.000 Hz,
+// 3/2 +1oct) hidden with the drone: its pitch is not measured". root_hz: what the notes are measured against.
+// Between two voices (intervals true) the target is named as an interval ("3/1").
+std::string on_partial_words(const pitch::PartialVoice& v, const pitch::TargetSet& set, double root_hz, bool intervals);
 // The one-line hint when a take gave nothing: the level, the estimated SNR and what to try.
 std::string nothing_found_words(double loudest_dbfs, double snr_db, bool intervals);
 
