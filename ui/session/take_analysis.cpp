@@ -535,8 +535,8 @@ ReviewedTake review_take(const std::string& path, const std::string& default_set
             r.analysis = analyze_one_voice(req, progress);
     } catch (const std::exception& e) {
         r.error = e.what();
-        r.analysis = OneVoiceAnalysis{};
-        r.duo = TwoVoiceAnalysis{};
+        r.analysis = OneVoiceAnalysis();
+        r.duo = TwoVoiceAnalysis();
     }
     return r;
 }
