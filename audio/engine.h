@@ -206,6 +206,7 @@ private:
     int channels_needed() const;
     void analyze_frames() noexcept;
     bool next_frame(pitch::PitchFrame& out) noexcept;
+    void drop_drone(pitch::PitchFrame& f, std::size_t channel, bool removal_active) noexcept;
     void tell_channels();
     template <class R>
     void run_fast_impl(const std::function<void(const R&)>& on_reading, double max_s);

@@ -438,3 +438,37 @@ TEST_CASE("live default floor: a cello's C2 over a G1 drone with removal on") {
         CHECK(c.settle_samples <= static_cast<std::int64_t>(0.15 * rate));
     }
 }
+
+// The second window must not slow a step above the short floor: two notes in its 50 ms can read as their common
+// period (3/2 -> 15/8 over 117.3 Hz, 176 -> 220 Hz, is periodic at 44 Hz). The same step settles as soon with the
+// default floor as with the short window alone (within one block).
+TEST_CASE("live default floor: a step between notes above 70 Hz settles as with the short window alone") {
+    const double rate = 48000.0;
+    for (const double f_new : {100.0, 150.0, 220.0}) {
+        CAPTURE(f_new);
+        const double root = f_new / (15.0 / 8.0);
+        const std::vector<Step> steps = {{0.3, 1.0, "3/2", 1.5}, {1.0, 1.8, "15/8", -2.5}};
+        pitch::TargetSet set;
+        for (const char* r : {"1/1", "9/8", "5/4", "4/3", "3/2", "5/3", "15/8"})
+            set.targets.push_back({pitch::parse_interval(r), ""});
+        auto settle = [&](double lowest_hz) {
+            audio::EngineConfig ec;
+            ec.f_min_hz = lowest_hz;
+            test::LiveRig rig(rate, 256, ec);
+            rig.voice = voice_of(steps, root, rate, 1.9, 0.1);
+            pitch::ReadingConfig rc;
+            rc.root_hz = root;
+            audio::DroneSettings d;
+            d.on = true;
+            d.root_hz = root;
+            d.level_dbfs = -30.0;
+            rig.open(rc, set, d, audio::RoomConfig{});
+            rig.run();
+            return check_step(rig.readings, steps[1], root, rate, set, 1.0).settle_samples;
+        };
+        const std::int64_t both = settle(0.0), short_only = settle(audio::kLiveShortFloorHz);
+        CHECK(short_only >= 0);
+        CHECK(both >= 0);
+        CHECK(both <= short_only + 256);
+    }
+}
