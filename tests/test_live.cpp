@@ -35,6 +35,25 @@ pitch::TargetSet tritones() {
     return s;
 }
 
+// The just major scale's ratios (common practice), as the bench's step cases use.
+pitch::TargetSet just_major() {
+    pitch::TargetSet s;
+    for (const char* r : {"1/1", "9/8", "5/4", "4/3", "3/2", "5/3", "15/8"})
+        s.targets.push_back({pitch::parse_interval(r), ""});
+    return s;
+}
+
+// Opens the rig with readings against `set` over root_hz and the engine's drone at the root, -30 dBFS (or off).
+void open_over_root(test::LiveRig& rig, double root_hz, pitch::TargetSet set, bool drone_on) {
+    pitch::ReadingConfig rc;
+    rc.root_hz = root_hz;
+    audio::DroneSettings d;
+    d.on = drone_on;
+    d.root_hz = root_hz;
+    d.level_dbfs = -30.0;
+    rig.open(rc, std::move(set), d, audio::RoomConfig{});
+}
+
 }  // namespace
 
 TEST_CASE("live path: a voice stepping between ratios over the drone, through a fake duplex device") {
@@ -44,13 +63,7 @@ TEST_CASE("live path: a voice stepping between ratios over the drone, through a 
         const double root = 110.0;
         const std::vector<Step> steps = {{0.3, 1.5, "7/5", 2.0}, {1.5, 3.0, "10/7", -3.0}, {3.0, 4.2, "11/8", 4.5}};
         rig.voice = voice_of(steps, root, rate, 4.4, 0.1);
-        pitch::ReadingConfig rc;
-        rc.root_hz = root;
-        audio::DroneSettings d;
-        d.on = true;
-        d.root_hz = root;
-        d.level_dbfs = -30.0;
-        rig.open(rc, tritones(), d, audio::RoomConfig{});
+        open_over_root(rig, root, tritones(), true);
         rig.run();
         REQUIRE(rig.readings.size() > 800);
         if (std::getenv("BEATLESS_DUMP_READINGS"))  // for a person investigating a failure
@@ -328,14 +341,9 @@ std::vector<test::Stamped> bowed_live(double rate, const test::F0Track& f0, doub
     test::LiveRig rig(rate, 256);
     rig.voice.assign(lead, 0.0f);
     rig.voice.insert(rig.voice.end(), tone.begin(), tone.end());
-    pitch::ReadingConfig rc;
-    rc.root_hz = 65.4064;
     pitch::TargetSet set;
     for (const char* r : {"1/1", "2/1"}) set.targets.push_back({pitch::parse_interval(r), ""});
-    audio::DroneSettings d;
-    d.on = false;
-    d.root_hz = rc.root_hz;
-    rig.open(rc, set, d, audio::RoomConfig{});
+    open_over_root(rig, 65.4064, set, false);
     rig.run();
     for (auto& s : rig.readings) s.r.t_s -= lead_s;  // time from the tone's start
     if (std::getenv("BEATLESS_DUMP_READINGS"))
@@ -416,16 +424,8 @@ TEST_CASE("live default floor: a cello's C2 over a G1 drone with removal on") {
     test::LiveRig rig(rate, 256);
     const std::vector<Step> steps = {{0.3, 1.0, "3/2", 1.5}, {1.0, 1.8, "4/3", -2.5}};
     rig.voice = voice_of(steps, root, rate, 1.9, 0.1);
-    pitch::ReadingConfig rc;
-    rc.root_hz = root;
-    pitch::TargetSet set;
-    for (const char* r : {"1/1", "9/8", "5/4", "4/3", "3/2", "5/3", "15/8"})
-        set.targets.push_back({pitch::parse_interval(r), ""});
-    audio::DroneSettings d;
-    d.on = true;
-    d.root_hz = root;
-    d.level_dbfs = -30.0;
-    rig.open(rc, set, d, audio::RoomConfig{});
+    const pitch::TargetSet set = just_major();
+    open_over_root(rig, root, set, true);
     rig.run();
     for (const Step& st : steps) {
         CAPTURE(st.ratio);
@@ -448,21 +448,13 @@ TEST_CASE("live default floor: a step between notes above 70 Hz settles as with 
         CAPTURE(f_new);
         const double root = f_new / (15.0 / 8.0);
         const std::vector<Step> steps = {{0.3, 1.0, "3/2", 1.5}, {1.0, 1.8, "15/8", -2.5}};
-        pitch::TargetSet set;
-        for (const char* r : {"1/1", "9/8", "5/4", "4/3", "3/2", "5/3", "15/8"})
-            set.targets.push_back({pitch::parse_interval(r), ""});
+        const pitch::TargetSet set = just_major();
         auto settle = [&](double lowest_hz) {
             audio::EngineConfig ec;
             ec.f_min_hz = lowest_hz;
             test::LiveRig rig(rate, 256, ec);
             rig.voice = voice_of(steps, root, rate, 1.9, 0.1);
-            pitch::ReadingConfig rc;
-            rc.root_hz = root;
-            audio::DroneSettings d;
-            d.on = true;
-            d.root_hz = root;
-            d.level_dbfs = -30.0;
-            rig.open(rc, set, d, audio::RoomConfig{});
+            open_over_root(rig, root, set, true);
             rig.run();
             return check_step(rig.readings, steps[1], root, rate, set, 1.0).settle_samples;
         };
