@@ -31,6 +31,54 @@ constexpr std::size_t kMaxDronePartials = 256;
 using Clock = std::chrono::steady_clock;
 using pitch::kMaxPlayers;
 
+// One performer live with a floor under the short window's (kLiveShortFloorHz): which of the two trackers'
+// frames are published. The short-window tracker's, until the long-window one (the floor's) hears kEnterFrames voiced
+// frames in a row under kEnterHz, each within kSameNote of the one before, while the short one hears nothing in its
+// range (two notes in the long window after a change can read as their common period, 44 Hz for 176 -> 220 Hz, but
+// not steadily, and the short window has the new note by then); the long-window one's then, until it hears
+// kLeaveFrames voiced frames in a row over kLeaveHz (a higher note: the gap between the two keeps a note near the
+// short floor from flapping), or kQuietFrames without a voiced frame (the note ended: the short window reads the next
+// one from its onset), or the short one hears kLeaveFrames voiced frames in a row in its range (it is ahead in time).
+// A short-window reading under kEnterHz is not trusted: a note under its floor can read there (73 Hz for a bowed C2
+// at 65.4 Hz), and the long window reads that range.
+constexpr double kTwoWindowsLowestHz = 55.0;  // the lowest floor read with two windows (start())
+
+struct LowFloor {
+    static constexpr double kEnterHz = kLiveShortFloorHz * 1.06;  // a semitone over the short floor
+    static constexpr double kLeaveHz = kLiveShortFloorHz * 1.09;  // a semitone and a half over it
+    static constexpr double kSameNote = 0.01;                     // 17 cents: a held note's frames agree far closer
+    static constexpr int kEnterFrames = 3, kLeaveFrames = 2, kQuietFrames = 6;
+    bool low = false;          // the long window's frames are published
+    int run = 0, quiet = 0;    // frames in a row for the change, unvoiced frames in a row
+    int heard_short = 0;       // the short window's voiced frames in a row in its range
+    double last_low_hz = 0.0;  // the long window's last voiced frame
+    double last_t_s = -1.0;    // t of the last frame published (the two trackers' frames leave in time order)
+    bool low_voiced = false, short_voiced = false;  // each tracker's last frame was voiced
+
+    // The performer sounds: either tracker hears a pitch (drone removal holds its notches while either does).
+    bool sounding() const noexcept { return low_voiced || short_voiced; }
+
+    // A frame of the long window.
+    void see(const pitch::PitchFrame& f) noexcept {
+        quiet = f.voiced() ? 0 : quiet + 1;
+        const bool same = f.voiced() && std::fabs(f.f0_hz / last_low_hz - 1.0) < kSameNote;
+        last_low_hz = f.voiced() ? f.f0_hz : 0.0;
+        const bool toward = low ? f.voiced() && f.f0_hz > kLeaveHz
+                                : f.voiced() && f.f0_hz < kEnterHz && (run == 0 || same) && heard_short == 0;
+        run = toward ? run + 1 : 0;
+        if (run >= (low ? kLeaveFrames : kEnterFrames) || (low && quiet >= kQuietFrames)) switch_window();
+    }
+    // A frame of the short window, its readings under kEnterHz already dropped.
+    void see_short(const pitch::PitchFrame& f) noexcept {
+        heard_short = f.voiced() ? heard_short + 1 : 0;
+        if (low && heard_short >= kLeaveFrames) switch_window();
+    }
+    void switch_window() noexcept {
+        low = !low;
+        run = quiet = 0;
+    }
+};
+
 std::string player_text(const pitch::Player& p, std::size_t i) {
     return "channel " + std::to_string(p.channel + 1) + " (" +
            (p.name.empty() ? "player " + std::to_string(i + 1) : p.name) + ")";
@@ -66,6 +114,10 @@ struct Engine::Impl {
     // Rings and analysis, per analysed channel.
     std::vector<std::unique_ptr<SpscRing<float>>> rings;
     std::vector<std::unique_ptr<pitch::YinTracker>> trackers;
+    // One performer live under the short floor: the long-window tracker for low notes, and which one publishes.
+    std::unique_ptr<pitch::YinTracker> low;
+    LowFloor floor;
+    double low_span_s = 0.0;
     std::vector<std::unique_ptr<DroneCanceller>> cancellers;
     std::vector<float> cap_scratch, room_scratch, prod_scratch, work;  // work: [channel][kChunk]
     std::array<pitch::PitchFrame, kMaxPlayers> frames{};
@@ -369,6 +421,15 @@ void Engine::start(bool analysis_thread) {
                   : short_span        ? kLiveLowestHz
                   : group             ? 55.0
                                       : pitch::kFileLowestHz;
+    // One performer live with a floor under the short window's: the short window keeps its floor, and a second
+    // tracker with the span the floor needs reads the notes under it (LowFloor).
+    const double floor_hz = yc.f_min_hz;
+    // Not under 55 Hz (a double bass): there the second window's frames, switched with the short one's, left drone
+    // removal's notches worse than one long window does (a bass note 5 Hz over an E1 drone read +-60 c); one long
+    // window serves, as before.
+    const bool two_windows =
+        short_span && !duo && cfg_.span_s <= 0.0 && floor_hz < kLiveShortFloorHz && floor_hz >= kTwoWindowsLowestHz;
+    if (two_windows) yc.f_min_hz = kLiveShortFloorHz;
     yc.f_max_hz = cfg_.f_max_hz;
     yc.max_block_len_samples = kChunk * 4;
     // 30 ms or 50 ms, or the shortest span that holds two periods of a lower
@@ -379,10 +440,23 @@ void Engine::start(bool analysis_thread) {
     // The vibrato correction waits three hops for a frame's right neighbours:
     // not worth it for one performer's live settling bar.
     if (short_span) yc.vibrato_correction = false;
+    m.low.reset();
+    m.floor = LowFloor{};
+    if (two_windows) {
+        pitch::YinConfig low_yc = yc;
+        low_yc.f_min_hz = floor_hz;
+        // Its frames matter only under LowFloor::kLeaveHz: searched up to 400 Hz, its coarse stage runs at under half
+        // the short one's rate. At least 50 ms (a file's span): no settling bar down there, and a C2 at 20 dB SNR
+        // reads within 1 c (test_live).
+        low_yc.f_max_hz = std::min(yc.f_max_hz, 400.0);
+        low_yc.span_s = std::max(0.050, pitch::YinTracker::min_span_s(low_yc));
+        m.low = std::make_unique<pitch::YinTracker>(low_yc);
+        m.low_span_s = low_yc.span_s;
+    }
     CancellerConfig cc = cfg_.canceller;
     cc.sample_rate_hz = m.rate;
     // A note change leaves unvoiced frames for up to a span (two notes in it): not a silence to widen the notch in.
-    cc.quiet_hold_s = std::max(cc.quiet_hold_s, yc.span_s);
+    cc.quiet_hold_s = std::max({cc.quiet_hold_s, yc.span_s, m.low ? m.low_span_s : 0.0});
     // A recording: the voice may sound from the first sample, so there is no
     // silent moment to learn the room in; one notch width throughout.
     if (m.input_has_drone) cc.bandwidth_hz = cc.quiet_bandwidth_hz = cc.recording_bandwidth_hz;
@@ -585,6 +659,7 @@ std::size_t Engine::analyze_available() noexcept {
                 m.duo->push(w);
             else
                 m.trackers[p]->push(w);
+            if (m.low) m.low->push(w);
         }
         m.analyzed.fetch_add(n, std::memory_order_relaxed);
         total += n;
@@ -593,6 +668,59 @@ std::size_t Engine::analyze_available() noexcept {
     if (total == 0 && m.io.producer_done.load(std::memory_order_acquire) && m.rings[0]->available() == 0)
         m.finished.store(true);
     return total;
+}
+
+// The next frame of the first channel to publish: its tracker's, or with a second, long-window tracker for the notes
+// under the short floor, the frames of the one LowFloor chooses, in time order (the long window's lag behind: a frame
+// no later than the last published is dropped). Thread: analysis. Allocates: no.
+void Engine::drop_drone(pitch::PitchFrame& f, std::size_t p, bool removal_active) noexcept {
+    const DroneCanceller& c = *impl_->cancellers[p];
+    // While drone removal is still learning the room (a quarter of a
+    // second after the drone starts or moves), the drone may leak
+    // through: those frames are reported unvoiced.
+    if (removal_active && c.acquiring()) f.f0_hz = 0.0;
+    // What is left of the drone after removal (a real room is never
+    // quite linear and still): quiet, and at the drone's own pitch.
+    if (removal_active && f.voiced() && c.is_residue(f.f0_hz, f.level_dbfs)) f.f0_hz = 0.0;
+}
+
+bool Engine::next_frame(pitch::PitchFrame& out) noexcept {
+    Impl& m = *impl_;
+    if (!m.low) return m.trackers[0]->pull(out);
+    // Both trackers' frames lose the drone first: its residue must neither choose the window nor pass for a voice.
+    const bool removal_active = m.removal_active.load(std::memory_order_relaxed);
+    for (;;) {
+        pitch::PitchFrame f;
+        bool pulled = false;
+        // The long window's frames first: they decide which tracker publishes.
+        while (m.low->pull(f)) {
+            pulled = true;
+            drop_drone(f, 0, removal_active);
+            m.floor.low_voiced = f.voiced();
+            m.floor.see(f);
+            if (m.floor.low && f.t_s > m.floor.last_t_s) {
+                m.floor.last_t_s = f.t_s;
+                out = f;
+                return true;
+            }
+        }
+        if (m.trackers[0]->pull(f)) {
+            pulled = true;
+            drop_drone(f, 0, removal_active);
+            m.floor.short_voiced = f.voiced();
+            if (f.voiced() && f.f0_hz < LowFloor::kEnterHz) {
+                f.f0_hz = 0.0;
+                f.confidence = std::min(f.confidence, 0.49);  // unvoiced frames stay under 0.5
+            }
+            m.floor.see_short(f);
+            if (!m.floor.low && f.t_s > m.floor.last_t_s) {
+                m.floor.last_t_s = f.t_s;
+                out = f;
+                return true;
+            }
+        }
+        if (!pulled) return false;
+    }
 }
 
 // Every tracker frame ready: drone-removal checks per channel, then one
@@ -617,20 +745,10 @@ void Engine::analyze_frames() noexcept {
         }
         return;
     }
-    while (m.trackers[0]->pull(m.frames[0])) {
+    while (next_frame(m.frames[0])) {
         for (std::size_t p = 1; p < m.players; ++p)
             if (!m.trackers[p]->pull(m.frames[p])) m.frames[p] = pitch::PitchFrame{m.frames[0].t_s, 0.0, 0.0};
-        for (std::size_t p = 0; p < m.players; ++p) {
-            pitch::PitchFrame& f = m.frames[p];
-            DroneCanceller& c = *m.cancellers[p];
-            // While drone removal is still learning the room (a quarter of a
-            // second after the drone starts or moves), the drone may leak
-            // through: those frames are reported unvoiced.
-            if (removal_active && c.acquiring()) f.f0_hz = 0.0;
-            // What is left of the drone after removal (a real room is never
-            // quite linear and still): quiet, and at the drone's own pitch.
-            if (removal_active && f.voiced() && c.is_residue(f.f0_hz, f.level_dbfs)) f.f0_hz = 0.0;
-        }
+        for (std::size_t p = 0; p < m.players; ++p) drop_drone(m.frames[p], p, removal_active);
         const auto idx = static_cast<std::int64_t>(std::llround(m.frames[0].t_s * m.rate));
         double lat_s = 0.0;
         m.publish_time(lat_s, idx);
@@ -648,8 +766,9 @@ void Engine::analyze_frames() noexcept {
             const auto now = static_cast<double>(m.analyzed.load(std::memory_order_relaxed));
             for (std::size_t p = 0; p < m.players; ++p) {
                 const pitch::PitchFrame& f = m.frames[p];
-                const double onset = f.t_s - 0.5 * m.span_s;
-                m.cancellers[p]->set_voice(f.voiced(), static_cast<std::size_t>(std::max(0.0, now - onset * m.rate)));
+                const double onset = f.t_s - 0.5 * (m.floor.low ? m.low_span_s : m.span_s);
+                const bool sounding = f.voiced() || (m.low && m.floor.sounding());
+                m.cancellers[p]->set_voice(sounding, static_cast<std::size_t>(std::max(0.0, now - onset * m.rate)));
             }
         }
     }
@@ -699,6 +818,7 @@ EngineStatus Engine::status() const {
     st.analyzed_frames = m.analyzed.load();
     m.io.report(st);
     for (const auto& t : m.trackers) st.tracker_dropped_frames += t->dropped_frames();
+    if (m.low) st.tracker_dropped_frames += m.low->dropped_frames();
     if (m.out) m.out->report(st);
     if (m.group_out) m.group_out->report(st);
     if (m.duo_out) m.duo_out->report(st);

@@ -39,26 +39,31 @@ namespace beatless::audio {
 
 class TakeRecorder;
 
-// The live tracker's lowest f0 by default for one performer (voices, violin,
-// viola: the lowest note of a bass voice, E2, is 82 Hz); lower needs a longer span.
-inline constexpr double kLiveLowestHz = 70.0;
+// The live tracker's lowest f0 by default for one performer: under the cello's open C (C2, 65.4 Hz from A4 = 440 Hz,
+// ISO 16) by a semitone and a little, for a C string tuned flat or a vibrato below it.
+inline constexpr double kLiveLowestHz = 60.0;
+// One performer live, the short (30 ms) window's floor. Below it a second tracker with the longer window the floor
+// needs runs beside it and takes over while a note under kLiveShortFloorHz sounds (engine.cpp, LowFloor): readings
+// at and above 100 Hz keep the short window's settling.
+inline constexpr double kLiveShortFloorHz = 70.0;
 
 struct EngineConfig {
     double sample_rate_hz = 0.0;         // device rate to ask for (0 = negotiate; the demos use 48 000)
     std::size_t block_len_frames = 256;  // frames per callback asked for (default 256)
     double hop_s = 0.005;                // tracker hop (default 5 ms)
     double span_s = 0.0;                 // most audio one tracker frame depends on (0 = 30 ms for one performer live,
-                                         // 50 ms for a file or a group, or longer when f_min_hz needs it)
-    double f_min_hz = 0.0;  // lowest f0 tracked (0 = 70 Hz for one performer live, 41 Hz for a file, 55 Hz for a group)
-    double f_max_hz = 1600.0;            // highest f0 tracked (default 1600 Hz)
-    double ring_s = 2.0;                 // each channel's capture ring (default 2 s)
-    bool drone_removal = true;           // remove the drone's partials before tracking (default on)
-    CancellerConfig canceller;           // drone removal settings (rate filled in by the engine)
-    RoomConfig demo_room;                // how the demo performer's microphone hears the drone
-    double stall_s = 1.0;                // no callbacks for this long: the device is gone (default 1 s)
-    double first_callback_s = 3.0;       // a stream just opened may call back this late (ALSA's pulse plugin on
-                                         // an idle sink's monitor: ~1 s after the start; default 3 s)
-    double reopen_every_s = 1.0;         // retry period while a device is gone (default 1 s)
+                                         // with a longer second window for notes under 70 Hz; 50 ms for a file or a
+                                         // group, or longer when f_min_hz needs it)
+    double f_min_hz = 0.0;  // lowest f0 tracked (0 = 60 Hz for one performer live, 41 Hz for a file, 55 Hz for a group)
+    double f_max_hz = 1600.0;       // highest f0 tracked (default 1600 Hz)
+    double ring_s = 2.0;            // each channel's capture ring (default 2 s)
+    bool drone_removal = true;      // remove the drone's partials before tracking (default on)
+    CancellerConfig canceller;      // drone removal settings (rate filled in by the engine)
+    RoomConfig demo_room;           // how the demo performer's microphone hears the drone
+    double stall_s = 1.0;           // no callbacks for this long: the device is gone (default 1 s)
+    double first_callback_s = 3.0;  // a stream just opened may call back this late (ALSA's pulse plugin on
+                                    // an idle sink's monitor: ~1 s after the start; default 3 s)
+    double reopen_every_s = 1.0;    // retry period while a device is gone (default 1 s)
 };
 
 // What a group is tuning: the chord, the players on their channels, the analysis settings.
@@ -146,7 +151,7 @@ public:
     void stop_clip();                // fades out what plays
     bool clip_playing() const;       // a clip sounds or waits to (any thread)
     double clip_position_s() const;  // seconds of it played
-    void supervise();  // watchdog, reopening, a group's channel messages; every ~100 ms
+    void supervise();                // watchdog, reopening, a group's channel messages; every ~100 ms
     // Recording: from the next callback every analysed channel, as it came in (before drone removal), is copied to
     // `r` (audio/take_recorder.h), one recorder channel per analysed channel; drone changes are noted in it. nullptr
     // detaches, waiting until no callback uses the old one. Costs one relaxed atomic load per callback when none.
@@ -200,6 +205,8 @@ private:
     }
     int channels_needed() const;
     void analyze_frames() noexcept;
+    bool next_frame(pitch::PitchFrame& out) noexcept;
+    void drop_drone(pitch::PitchFrame& f, std::size_t channel, bool removal_active) noexcept;
     void tell_channels();
     template <class R>
     void run_fast_impl(const std::function<void(const R&)>& on_reading, double max_s);

@@ -9,6 +9,7 @@
 #include "pitch/theory/interval.h"
 #include "tests/live_rig.h"
 #include "tests/mix_signals.h"
+#include "tests/timbre_signals.h"
 
 #include <doctest/doctest.h>
 
@@ -34,6 +35,25 @@ pitch::TargetSet tritones() {
     return s;
 }
 
+// The just major scale's ratios (common practice), as the bench's step cases use.
+pitch::TargetSet just_major() {
+    pitch::TargetSet s;
+    for (const char* r : {"1/1", "9/8", "5/4", "4/3", "3/2", "5/3", "15/8"})
+        s.targets.push_back({pitch::parse_interval(r), ""});
+    return s;
+}
+
+// Opens the rig with readings against `set` over root_hz and the engine's drone at the root, -30 dBFS (or off).
+void open_over_root(test::LiveRig& rig, double root_hz, pitch::TargetSet set, bool drone_on) {
+    pitch::ReadingConfig rc;
+    rc.root_hz = root_hz;
+    audio::DroneSettings d;
+    d.on = drone_on;
+    d.root_hz = root_hz;
+    d.level_dbfs = -30.0;
+    rig.open(rc, std::move(set), d, audio::RoomConfig{});
+}
+
 }  // namespace
 
 TEST_CASE("live path: a voice stepping between ratios over the drone, through a fake duplex device") {
@@ -43,13 +63,7 @@ TEST_CASE("live path: a voice stepping between ratios over the drone, through a 
         const double root = 110.0;
         const std::vector<Step> steps = {{0.3, 1.5, "7/5", 2.0}, {1.5, 3.0, "10/7", -3.0}, {3.0, 4.2, "11/8", 4.5}};
         rig.voice = voice_of(steps, root, rate, 4.4, 0.1);
-        pitch::ReadingConfig rc;
-        rc.root_hz = root;
-        audio::DroneSettings d;
-        d.on = true;
-        d.root_hz = root;
-        d.level_dbfs = -30.0;
-        rig.open(rc, tritones(), d, audio::RoomConfig{});
+        open_over_root(rig, root, tritones(), true);
         rig.run();
         REQUIRE(rig.readings.size() > 800);
         if (std::getenv("BEATLESS_DUMP_READINGS"))  // for a person investigating a failure
@@ -166,7 +180,7 @@ TEST_CASE(
     "low instruments: with the lowest note set below the default, the live path tracks a cello's and a double bass's "
     "range") {
     // Cello C string region: B1 = 3/2 above E1 (61.7 Hz); double bass: 5/4
-    // above D1 (45.9 Hz). Both lie below the default floor of 70 Hz. Note
+    // above D1 (45.9 Hz). The double bass's lies below the default floor of 60 Hz. Note
     // frequencies: 12-TET from A4 = 440 Hz (ISO 16).
     struct Case {
         double root_hz, lowest_hz;
@@ -199,7 +213,8 @@ TEST_CASE(
         // Settling takes longer with the longer span, but stays well under a tenth of a second.
         CHECK(low.settle_samples >= 0);
         CHECK(low.settle_samples <= 48000 / 10);
-        const StepCheck plain = run(0.0);  // the default floor, 70 Hz: the note is out of range
+        // The short window alone (70 Hz, the floor before the second window): the notes are out of its range.
+        const StepCheck plain = run(audio::kLiveShortFloorHz);
         CHECK_FALSE(plain.targets_right);
     }
 }
@@ -305,4 +320,147 @@ TEST_CASE("two voices: a scripted violinist, and targets changed while running k
     CHECK(after_quiet == after);
     CHECK(frames.back().end_s <= engine.stream_time_s() + 1e-9);
     CHECK(frames.back().end_s >= engine.stream_time_s() - 0.1);
+}
+
+namespace {
+
+// Readings of one performer live at the default floor, drone off (the point is the tracker's range), for a bowed
+// string (tests/timbre_signals.h: Helmholtz-motion partials, Cremer 1984, from memory) following f0 after `lead_s`
+// of silence, with white noise at snr_db (none when above 100).
+std::vector<test::Stamped> bowed_live(double rate, const test::F0Track& f0, double dur_s, double snr_db) {
+    const double lead_s = 0.2;
+    const auto lead = static_cast<std::size_t>(lead_s * rate);
+    std::vector<float> tone = test::bowed_tone(rate, static_cast<std::size_t>(dur_s * rate), f0, 0.11, 0.5, 7);
+    for (float& v : tone) v *= 0.25f;
+    if (snr_db < 100.0) {
+        double p = 0.0;
+        for (float v : tone) p += static_cast<double>(v) * v;
+        test::add_noise(tone, test::coloured_noise(test::NoiseColour::white, rate, tone.size(), 11),
+                        p / static_cast<double>(tone.size()), snr_db);
+    }
+    test::LiveRig rig(rate, 256);
+    rig.voice.assign(lead, 0.0f);
+    rig.voice.insert(rig.voice.end(), tone.begin(), tone.end());
+    pitch::TargetSet set;
+    for (const char* r : {"1/1", "2/1"}) set.targets.push_back({pitch::parse_interval(r), ""});
+    open_over_root(rig, 65.4064, set, false);
+    rig.run();
+    for (auto& s : rig.readings) s.r.t_s -= lead_s;  // time from the tone's start
+    if (std::getenv("BEATLESS_DUMP_READINGS"))
+        for (const auto& x : rig.readings)
+            std::printf("t %.3f f0 %.4f conf %.2f\n", x.r.t_s, x.r.f0_hz, x.r.confidence);
+    return rig.readings;
+}
+
+}  // namespace
+
+// C2 and C3 in 12-TET from A4 = 440 Hz (ISO 16): 65.4064 and 130.8128 Hz. Cents: 1200 log2 (Ellis 1885).
+TEST_CASE("live default floor: a cello's open C is read to the cent, and C2 -> C3 -> C2 with no octave error") {
+    constexpr double kC2 = 65.4064, kC3 = 130.8128;
+    auto cents = [](double f, double truth) { return 1200.0 * std::log2(f / truth); };
+    for (double rate : {44100.0, 48000.0})
+        for (double snr : {200.0, 20.0}) {
+            CAPTURE(rate);
+            CAPTURE(snr);
+            const auto rs = bowed_live(
+                rate, [](double) { return kC2; }, 2.0, snr);
+            std::vector<double> err;
+            std::size_t frames = 0;
+            for (const auto& s : rs) {
+                if (s.r.t_s < 0.2 || s.r.t_s > 1.9) continue;
+                ++frames;
+                if (s.r.voiced()) err.push_back(std::fabs(cents(s.r.f0_hz, kC2)));
+            }
+            REQUIRE(frames > 250);
+            CHECK(static_cast<double>(err.size()) >= 0.98 * static_cast<double>(frames));  // voiced
+            std::sort(err.begin(), err.end());
+            REQUIRE(!err.empty());
+            MESSAGE("median ", err[err.size() / 2], " c, p95 ", err[err.size() * 95 / 100], " c, worst ", err.back());
+            CHECK(err[err.size() * 95 / 100] <= 1.0);
+            if (snr > 100.0) CHECK(err.back() <= 1.0);
+        }
+    // A change of octave, legato (the phase goes on): C2, C3 from 1 s, C2 again from 2 s.
+    for (double rate : {44100.0, 48000.0}) {
+        CAPTURE(rate);
+        const auto rs = bowed_live(
+            rate, [](double t) { return t >= 1.0 && t < 2.0 ? kC3 : kC2; }, 3.0, 200.0);
+        int octave_errors = 0, voiced = 0;
+        double settled_c3 = -1.0, settled_c2 = -1.0;  // s after the change from which every reading is within 1 c
+        for (const auto& s : rs) {
+            if (s.r.t_s < 0.1 || s.r.t_s > 2.95 || !s.r.voiced()) continue;
+            ++voiced;
+            const bool high = s.r.t_s >= 1.0 && s.r.t_s < 2.0;
+            const bool near_end = high ? s.r.t_s > 1.95 : s.r.t_s > 2.9;  // the window reaches into the next note
+            const double e = cents(s.r.f0_hz, high ? kC3 : kC2);
+            // An octave error: a reading nearer the other octave than this note. A frame whose samples straddle the
+            // change may read the note before it (its t is the centre of those samples): that is not an octave error
+            // within 25 ms of the change.
+            const double since = s.r.t_s - (high ? 1.0 : 2.0);
+            if (std::fabs(std::fabs(e) - 1200.0) < 100.0 && !(since >= 0.0 && since < 0.025)) {
+                ++octave_errors;
+                MESSAGE("octave error at t ", s.r.t_s, " s: ", s.r.f0_hz, " Hz");
+            }
+            double& settled = high ? settled_c3 : settled_c2;
+            if (s.r.t_s < (high ? 1.0 : 2.0) || near_end) continue;
+            if (std::fabs(e) > 1.0)
+                settled = -1.0;
+            else if (settled < 0.0)
+                settled = since;
+        }
+        CHECK(voiced > 500);
+        CHECK(octave_errors == 0);
+        MESSAGE("settled within 1 c: C3 after ", settled_c3, " s, C2 after ", settled_c2, " s");
+        CHECK(settled_c3 >= 0.0);
+        CHECK(settled_c3 <= 0.1);
+        CHECK(settled_c2 >= 0.0);
+        CHECK(settled_c2 <= 0.1);
+    }
+}
+// A cello's D2 then C2 as 3/2 and 4/3 over a G1 drone (49.0 Hz, 12-TET from A4 = 440 Hz, ISO 16), the drone played
+// and removed: the long window reads C2 to the cent once settled. Drone removal must hold its notches while either
+// window hears the note (the short one hears nothing in its range there).
+TEST_CASE("live default floor: a cello's C2 over a G1 drone with removal on") {
+    const double rate = 48000.0, root = 48.9994;
+    test::LiveRig rig(rate, 256);
+    const std::vector<Step> steps = {{0.3, 1.0, "3/2", 1.5}, {1.0, 1.8, "4/3", -2.5}};
+    rig.voice = voice_of(steps, root, rate, 1.9, 0.1);
+    const pitch::TargetSet set = just_major();
+    open_over_root(rig, root, set, true);
+    rig.run();
+    for (const Step& st : steps) {
+        CAPTURE(st.ratio);
+        const StepCheck c = check_step(rig.readings, st, root, rate, set, 1.0);
+        CHECK(c.targets_right);
+        CHECK(c.worst_dev_err <= 0.5);
+        MESSAGE(st.ratio, " settled within 1 c ", 1000.0 * static_cast<double>(c.settle_samples) / rate,
+                " ms after the step");
+        CHECK(c.settle_samples >= 0);
+        CHECK(c.settle_samples <= static_cast<std::int64_t>(0.15 * rate));
+    }
+}
+
+// The second window must not slow a step above the short floor: two notes in its 50 ms can read as their common
+// period (3/2 -> 15/8 over 117.3 Hz, 176 -> 220 Hz, is periodic at 44 Hz). The same step settles as soon with the
+// default floor as with the short window alone (within one block).
+TEST_CASE("live default floor: a step between notes above 70 Hz settles as with the short window alone") {
+    const double rate = 48000.0;
+    for (const double f_new : {100.0, 150.0, 220.0}) {
+        CAPTURE(f_new);
+        const double root = f_new / (15.0 / 8.0);
+        const std::vector<Step> steps = {{0.3, 1.0, "3/2", 1.5}, {1.0, 1.8, "15/8", -2.5}};
+        const pitch::TargetSet set = just_major();
+        auto settle = [&](double lowest_hz) {
+            audio::EngineConfig ec;
+            ec.f_min_hz = lowest_hz;
+            test::LiveRig rig(rate, 256, ec);
+            rig.voice = voice_of(steps, root, rate, 1.9, 0.1);
+            open_over_root(rig, root, set, true);
+            rig.run();
+            return check_step(rig.readings, steps[1], root, rate, set, 1.0).settle_samples;
+        };
+        const std::int64_t both = settle(0.0), short_only = settle(audio::kLiveShortFloorHz);
+        CHECK(short_only >= 0);
+        CHECK(both >= 0);
+        CHECK(both <= short_only + 256);
+    }
 }

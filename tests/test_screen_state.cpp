@@ -113,7 +113,7 @@ TEST_CASE("settings: a missing file is the defaults; a malformed one warns in on
     CHECK(some.settings.root == "D3");
     const auto low = ui::parse_settings("kind = \"settings\"\nlowest_hz = 10\n", "s.toml");
     CHECK(low.warning.rfind("s.toml:2: `lowest_hz`: 10 is out of range (30 to 200)", 0) == 0);
-    CHECK(low.settings.lowest_hz == 70.0);
+    CHECK(low.settings.lowest_hz == ui::kDefaultLowestHz);
     const auto midi = ui::parse_settings("kind = \"settings\"\nmidi_tuning = \"cents\"\n", "s.toml");
     CHECK(midi.warning.rfind("s.toml:2: `midi_tuning`: must be \"mts\" or \"bend\"", 0) == 0);
     CHECK(midi.settings.midi_tuning == "mts");

@@ -211,9 +211,10 @@ void add_screen_options(CLI::App& app, ScreenCommand& c) {
                    "drills score the interval between them; with --demo the demo violinist plays double stops");
     app.add_option("--root", c.root, "Drone root as a note (A2) or in Hz (110); default from the settings (A2)");
     app.add_option("--a4", c.a4_hz, "A4 reference in Hz (400-480); default from the settings (440)");
-    app.add_option("--lowest", c.lowest,
-                   "Lowest note to track live: a note (A1) or Hz, 30-200; default from the settings (70; 55 for cello, "
-                   "38 for double bass)");
+    app.add_option(
+        "--lowest", c.lowest,
+        "Lowest note to track live: a note (A1) or Hz, 30-200; default from the settings (60, a cello's C; 55 "
+        "for a bass voice, 38 for double bass)");
     app.add_option("--targets", c.target_set, "Target set: a built-in name (7-limit, tritones, ...) or a .toml file");
     app.add_option("--target", c.target, "Fix this target (7/5, 600c, ...); it joins the set when it is not in it");
     app.add_option("--screen", c.screen, "Screen to show: " + built_screen_keys());

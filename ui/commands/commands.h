@@ -75,8 +75,8 @@ void add_a4_option(CLI::App& sub, double& a4_hz);
 // Small text helpers shared by the commands.
 std::string join_args(const std::vector<std::string>& args);  // words joined by single spaces
 inline constexpr const char* kLowestHelp =
-    "Lowest note to track live: a note (A1) or Hz, 30-200 (default 70; 55 for cello, 38 for double bass, which settle "
-    "more slowly)";
+    "Lowest note to track live: a note (A1) or Hz, 30-200 (default 60, a cello's C; 55 for a bass voice, 38 for double "
+    "bass; notes under 70 Hz settle more slowly)";
 
 // A root as the user typed it: "Bb3 = 233.082 Hz" for a note (its spelling
 // kept, never A#3), "146.8 Hz" for a number of Hz.

@@ -195,8 +195,8 @@ void SettingsScreen::build(AppState& app, const ScreenArea& area, double dt_s) {
             double hz;
             const char* text;
         };
-        static constexpr Floor kFloors[] = {{kDefaultLowestHz, "70 Hz: voices, violin, viola"},
-                                            {55.0, "55 Hz: cello, a low bass voice"},
+        static constexpr Floor kFloors[] = {{kDefaultLowestHz, "60 Hz: voices, strings to a cello's C"},
+                                            {55.0, "55 Hz: a low bass voice"},
                                             {38.0, "38 Hz: double bass"}};
         std::string shown = pitch::format_trimmed(s.lowest_hz, 1) + " Hz";
         for (const Floor& f : kFloors)

@@ -41,7 +41,7 @@ struct EnsembleSettings {
     friend bool operator==(const EnsembleSettings&, const EnsembleSettings&) = default;
 };
 
-inline constexpr double kDefaultLowestHz = 70.0;  // Settings::lowest_hz by default: audio::kLiveLowestHz
+inline constexpr double kDefaultLowestHz = 60.0;  // Settings::lowest_hz by default: audio::kLiveLowestHz
 
 struct Settings {
     // Session state: lives while the window is open, never saved (a window's
@@ -51,8 +51,9 @@ struct Settings {
     double a4_hz = 440.0;                  // 12-TET reference, 400 .. 480 Hz (default ISO 16)
     float font_scale = 1.0f;               // text size on top of the display's DPI scale, 0.5 .. 3 (default 1)
     double in_tune_cents = 5.0;            // |deviation| counted as in tune, 1 .. 25 cents (default 5, common practice)
-    double lowest_hz = kDefaultLowestHz;   // lowest f0 the live screens track, 30 .. 200 Hz (default 70;
-                                           // 55 for a cello's C string, 38 for a double bass: slower to settle)
+    double lowest_hz = kDefaultLowestHz;   // lowest f0 the live screens track, 30 .. 200 Hz (default 60: voices and
+                                           // strings down to a cello's C, notes under 70 Hz read with a longer window;
+                                           // 55 for a low bass voice, 38 for a double bass)
     std::string input_device;              // index or unique name part; "" = the default input
     std::string output_device;             // the same for the drone's output
     std::string midi_out;             // MIDI port for the drone on a synth; "" = none (beatless devices lists them)
