@@ -133,16 +133,13 @@ std::size_t dip_at_multiple(std::span<const double> dn, std::size_t lag, std::si
 // A multiple 2, 3 x lag whose dip is much deeper (multiple_is_deeper(), dips judged by their parabola's bottom) is the
 // period; in noise alone every multiple dips about as deep, and on a clean tone at its period the multiples dip no
 // deeper (jitter and vibrato make them shallower), so neither moves.
-// Left alone: lags under kMinShortLag samples and first dips under kMinShortDip. A narrow dip (a clean tone's period
-// sampled coarsely, with its upper partials: 7 to 20 samples) is too sharp for the parabola, whose bottom reads up to
-// 0.07 where the true one is near 0, while its multiple may happen to fall on a sample; the brown-noise case reads
-// 0.12 to 0.14 at half a period of 24 samples.
+// Lags under kMinShortLag samples are left alone: a dip that narrow (a clean 1500 Hz tone at 11 kHz: 7.35 samples) is
+// too sharp for the parabola, whose bottom there reads 0.07 where the true one is near 0.
 constexpr std::size_t kMinShortLag = 10;
-constexpr double kMinShortDip = 0.08;
 
 LagChoice deeper_multiple(std::span<const double> dn, LagChoice c, std::size_t lag_max) noexcept {
+    if (c.lag < kMinShortLag) return c;
     const double here = dip_bottom(dn, c.lag);  // the move is final: shortest_divisor() is not asked to undo it
-    if (c.lag < kMinShortLag || here < kMinShortDip) return c;
     for (std::size_t m = 2; m <= 3; ++m) {
         const std::size_t t = dip_at_multiple(dn, c.lag, m, lag_max);
         if (t > 0 && multiple_is_deeper(here, dip_bottom(dn, t))) return {t, dn[t], true};
