@@ -79,12 +79,6 @@ namespace {
 constexpr double kNoiseRatio = 1.5;
 constexpr double kNoiseTolerance = 0.05;
 
-// A dip of d' = multiple_aperiodicity at a multiple of a lag whose dip is d' = aperiodicity is the period rather than
-// that lag: the same allowance as the divisor test, so that neither undoes the other.
-bool multiple_is_deeper(double aperiodicity, double multiple_aperiodicity) noexcept {
-    return aperiodicity > kNoiseRatio * multiple_aperiodicity + kNoiseTolerance;
-}
-
 // A dip at a divisor lag / k (k = 6 .. 2) nearly as deep as the chosen one: in noise every multiple of the period dips
 // about as deep as the period itself, and the normalisation makes the longer lags a little deeper.
 LagChoice shortest_divisor(std::span<const double> dn, LagChoice c, std::size_t lag_min, std::size_t lag_max) noexcept {
@@ -103,49 +97,6 @@ LagChoice shortest_divisor(std::span<const double> dn, LagChoice c, std::size_t 
     }
     return c;
 }
-
-// The bottom of the parabola through dn[t - 1], dn[t], dn[t + 1] (dn[t] where it opens downwards): a dip whose bottom
-// falls between two lags.
-double dip_bottom(std::span<const double> dn, std::size_t t) noexcept {
-    if (t < 1 || t + 1 >= dn.size()) return dn[t];
-    const double a = dn[t - 1], b = dn[t], c = dn[t + 1], den = a - 2.0 * b + c;
-    return std::max(0.0, den > 0.0 ? b - (a - c) * (a - c) / (8.0 * den) : b);
-}
-
-// The dip nearest multiple * lag (within 3 %, at least one lag) when it is a local minimum: its lag, else 0.
-std::size_t dip_at_multiple(std::span<const double> dn, std::size_t lag, std::size_t multiple,
-                            std::size_t lag_max) noexcept {
-    const double centre = static_cast<double>(lag * multiple);
-    const double radius = std::max(1.0, 0.03 * centre);
-    const auto lo = static_cast<std::size_t>(std::floor(centre - radius));
-    const auto hi = std::min(lag_max, static_cast<std::size_t>(std::ceil(centre + radius)));
-    if (lo < 1 || lo > hi || hi + 1 >= dn.size()) return 0;
-    std::size_t best = lo;
-    for (std::size_t t = lo; t <= hi; ++t)
-        if (dn[t] < dn[best]) best = t;
-    return dn[best] <= dn[best - 1] && dn[best] <= dn[best + 1] ? best : 0;
-}
-
-// YIN's first dip under the threshold may be a fraction of the period: a tone whose odd partials are weak (its second
-// partial on a formant) dips nearly as deep at half its period, and low-frequency noise (brown) adds less to d at the
-// short lag than at the period (its structure function grows with the lag), so d' there can fall under the threshold
-// while the period's own dip is several times deeper (de Cheveigné and Kawahara 2002, sec. II.C: "too high" errors).
-// A multiple 2, 3 x lag whose dip is much deeper (multiple_is_deeper(), dips judged by their parabola's bottom) is the
-// period; in noise alone every multiple dips about as deep, and on a clean tone at its period the multiples dip no
-// deeper (jitter and vibrato make them shallower), so neither moves.
-// Lags under kMinShortLag samples are left alone: a dip that narrow (a clean 1500 Hz tone at 11 kHz: 7.35 samples) is
-// too sharp for the parabola, whose bottom there reads 0.07 where the true one is near 0.
-constexpr std::size_t kMinShortLag = 10;
-
-LagChoice deeper_multiple(std::span<const double> dn, LagChoice c, std::size_t lag_max) noexcept {
-    if (c.lag < kMinShortLag) return c;
-    const double here = dip_bottom(dn, c.lag);  // the move is final: shortest_divisor() is not asked to undo it
-    for (std::size_t m = 2; m <= 3; ++m) {
-        const std::size_t t = dip_at_multiple(dn, c.lag, m, lag_max);
-        if (t > 0 && multiple_is_deeper(here, dip_bottom(dn, t))) return {t, dn[t], true};
-    }
-    return c;
-}
 }  // namespace
 
 LagChoice absolute_threshold(std::span<const double> dn, std::size_t lag_min, std::size_t lag_max,
@@ -157,14 +108,14 @@ LagChoice absolute_threshold(std::span<const double> dn, std::size_t lag_min, st
     for (std::size_t t = lag_min; t <= lag_max; ++t) {
         if (dn[t] < threshold) {
             while (t + 1 <= lag_max && dn[t + 1] < dn[t]) ++t;
-            const LagChoice deeper = deeper_multiple(dn, {t, dn[t], true}, lag_max);
-            return deeper.lag != t ? deeper : shortest_divisor(dn, deeper, lag_min, lag_max);
+            return shortest_divisor(dn, {t, dn[t], true}, lag_min, lag_max);
         }
         // A dip whose bottom falls between two lags: judge it by the bottom of
         // the parabola through it (a short period sampled coarsely).
         if (t + 1 < dn.size() && dn[t] <= dn[t - 1] && dn[t] <= dn[t + 1]) {
-            const double bottom = dip_bottom(dn, t);
-            if (bottom < threshold) return {t, bottom, true};
+            const double a = dn[t - 1], b = dn[t], c = dn[t + 1], den = a - 2.0 * b + c;
+            const double bottom = den > 0.0 ? b - (a - c) * (a - c) / (8.0 * den) : b;
+            if (bottom < threshold) return {t, std::max(0.0, bottom), true};
         }
     }
     c.lag = lag_min;

@@ -67,10 +67,7 @@ struct LagChoice {
 // on to the bottom of that dip; the overall minimum in range when none is.
 // Our addition: a local minimum also counts when the bottom of the parabola
 // through it and its neighbours is under the threshold (a short period whose
-// dip falls between two lags); aperiodicity is then that bottom. A dip under
-// the threshold gives way to a much deeper one at twice or three times its lag
-// (the first dip's d' over 1.5 times the multiple's plus 0.05, lags of 10 and more: a
-// tone with weak odd partials in brown noise). Then the
+// dip falls between two lags); aperiodicity is then that bottom. Then the
 // shortest divisor lag / k (k = 6 .. 2) whose dip is nearly as deep (at most
 // 1.5 d' + 0.05): in noise every multiple of the period dips about as deep.
 LagChoice absolute_threshold(std::span<const double> dn, std::size_t lag_min, std::size_t lag_max,
