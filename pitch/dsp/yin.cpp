@@ -72,6 +72,10 @@ constexpr double kSmallBias = 3.0 / 1200.0 * 0.6931471805599453;
 constexpr std::size_t kStencil = 3;
 constexpr double kPowerAlpha = 0.08;  // running mean of the curvature's square, weight of each frame
 constexpr double kNoiseBias = 0.3 / 1200.0 * 0.6931471805599453;  // the curvature's noise, as a bias (0.3 cents)
+// The curvature's noise is also measured: half the running mean square of its change between frames (for independent
+// noise the change has twice the noise's variance; a vibrato's curvature changes by a sixth of itself per hop at
+// 5 Hz). Detuned voices of a section beat, and their estimates wander with it: the correction backs off.
+constexpr double kChangeShare = 0.5;
 // The correction runs only while the running RMS slope of log f0 across the stencil is at least this (100 cents per
 // second, as natural-log units): a vibrato of +-15 c at 4.5 Hz has an RMS slope of 300 c/s, a glide 100 c/s and
 // more, while a steady low string at 10 dB SNR shows under 50 c/s of noise (estimates 1 c apart, 30 ms).
@@ -203,7 +207,8 @@ struct YinTracker::Impl {
     struct Curvature {
         double last = NAN;
         double power = 0.0;
-        double slope_power = 0.0;  // running mean of the slope's square across the stencil, (1/s)^2
+        double slope_power = 0.0;   // running mean of the slope's square across the stencil, (1/s)^2
+        double change_power = 0.0;  // running mean of the square of the curvature's change between frames, (1/s^2)^2
     } curv;
 
     std::vector<PitchFrame> queue;
@@ -934,11 +939,12 @@ struct YinTracker::Impl {
         if (!(std::fabs(bias) < kMaxVibratoBias)) return out;  // a note change, not a vibrato
         cv.last = curvature;
         if (std::isnan(prev)) return out;
+        cv.change_power += kPowerAlpha * ((curvature - prev) * (curvature - prev) - cv.change_power);
         const double floor = 2.0 * kSmallBias / b.m2_s2;  // curvature change allowed beyond 50 %
         if (!(std::fabs(curvature - prev) <= 0.5 * std::max(std::fabs(curvature), std::fabs(prev)) + floor)) return out;
         cv.power += kPowerAlpha * (curvature * curvature - cv.power);
         const double noise = kNoiseBias / (0.5 * b.m2_s2);  // that bias as a curvature
-        const double gain = cv.power / (cv.power + noise * noise);
+        const double gain = cv.power / (cv.power + std::max(noise * noise, kChangeShare * cv.change_power));
         if (cv.slope_power < kMinSlope * kMinSlope) return out;  // a steady tone: its curvature is noise alone
         out.f0_hz = b.p.f0_hz * std::exp(-gain * bias);
         return out;
