@@ -72,6 +72,10 @@ constexpr double kSmallBias = 3.0 / 1200.0 * 0.6931471805599453;
 constexpr std::size_t kStencil = 3;
 constexpr double kPowerAlpha = 0.08;  // running mean of the curvature's square, weight of each frame
 constexpr double kNoiseBias = 0.3 / 1200.0 * 0.6931471805599453;  // the curvature's noise, as a bias (0.3 cents)
+// The curvature's noise is also measured: half the running mean square of its change between frames (for independent
+// noise the change has twice the noise's variance; a vibrato's curvature changes by a sixth of itself per hop at
+// 5 Hz). Detuned voices of a section beat, and their estimates wander with it: the correction backs off.
+constexpr double kChangeShare = 0.5;
 // The correction runs only while the running RMS slope of log f0 across the stencil is at least this (100 cents per
 // second, as natural-log units): a vibrato of +-15 c at 4.5 Hz has an RMS slope of 300 c/s, a glide 100 c/s and
 // more, while a steady low string at 10 dB SNR shows under 50 c/s of noise (estimates 1 c apart, 30 ms).
@@ -96,6 +100,12 @@ constexpr double kContinuityRatio = 2.0;
 constexpr double kContinuityTolerance = 0.1;
 // A frame this far above the noise floor (dB) is voiced only under YIN's threshold as well.
 constexpr double kClearAboveFloorDb = 20.0;
+// Recent notes (remember_note()): a period held for kNoteFrames voiced frames, each within kNoteReach of the note's
+// running period, is a note; after it changes, its reverberation may ring on for up to kRingS (a hall's RT60).
+constexpr Index kNoteFrames = 8;
+constexpr double kNoteReach = 0.05;
+constexpr Index kNoteGapFrames = 10;
+constexpr double kRingS = 1.5;
 
 std::string num(double v) {
     std::ostringstream s;
@@ -156,6 +166,16 @@ struct YinTracker::Impl {
     std::array<double, 4> recent_f0{};      // f0 of the last voiced frames, by frame number modulo kSlopeFrames
     Index recent_run = 0;                   // voiced frames in a row up to the last
     double slope_power = kStartSlopePower;  // running mean of the square of log f0's slope between frames, (1/s)^2
+    // The note being held and the last few before it (remember_note()), periods in decimated samples.
+    struct Note {
+        double period_dec = 0.0;
+        Index last_f = -1;  // its last voiced frame
+        Index frames = 0;   // voiced frames it has held
+    };
+    Note note_now;
+    std::array<Note, 3> old_notes{};
+    std::size_t old_next = 0;
+    Index ring_frames = 0;  // kRingS in frames
 
     // A steady tone (running RMS slope under kMinSlope): refined with the flat-topped window.
     bool steady_tone() const noexcept { return slope_power < kMinSlope * kMinSlope; }
@@ -187,7 +207,8 @@ struct YinTracker::Impl {
     struct Curvature {
         double last = NAN;
         double power = 0.0;
-        double slope_power = 0.0;  // running mean of the slope's square across the stencil, (1/s)^2
+        double slope_power = 0.0;   // running mean of the slope's square across the stencil, (1/s)^2
+        double change_power = 0.0;  // running mean of the square of the curvature's change between frames, (1/s^2)^2
     } curv;
 
     std::vector<PitchFrame> queue;
@@ -267,6 +288,7 @@ struct YinTracker::Impl {
         lag_max = max_lag_dec - 1;
         lag_min = std::max<std::size_t>(2, static_cast<std::size_t>(std::floor(rate_dec / cfg.f_max_hz)));
         span = std::lround(cfg.span_s * rate);
+        ring_frames = static_cast<Index>(std::ceil(kRingS * rate / static_cast<double>(hop)));
         const Index D = static_cast<Index>(dec_factor);
         const Index region = static_cast<Index>(window_dec + max_lag_dec) * D;
         const Index longest = static_cast<Index>(std::ceil(rate / cfg.f_min_hz));
@@ -330,6 +352,9 @@ struct YinTracker::Impl {
         last_voiced_f = -1;
         recent_run = 0;
         slope_power = kStartSlopePower;
+        note_now = Note{};
+        old_notes.fill(Note{});
+        old_next = 0;
         curv = Curvature{};
         bad_samples = dropped = 0;
     }
@@ -436,9 +461,86 @@ struct YinTracker::Impl {
         const Index a = a0 + f * static_cast<Index>(blocks_per_hop * block);
         difference_from_correlation(yp(a), window_dec, max_lag_dec, r.data(), c.d.data());
         cumulative_mean_normalised(c.d, c.dn);
-        const LagChoice pick = absolute_threshold(c.dn, lag_min, lag_max, cfg.threshold);
+        const LagChoice pick = in_room(f, c, absolute_threshold(c.dn, lag_min, lag_max, cfg.threshold));
         c.aperiodicity = pick.aperiodicity;
         c.period_dec = parabolic_minimum(c.d, pick.lag);
+    }
+
+    // A note is held while voiced frames stay within kNoteReach of its running period; when another begins, an
+    // established one (kNoteFrames) joins the old notes, whose reverberation may still ring (in_room()).
+    void remember_note(Index f, double period_dec) noexcept {
+        Note& n = note_now;
+        if (n.frames > 0 && f - n.last_f <= kNoteGapFrames && std::fabs(period_dec / n.period_dec - 1.0) < kNoteReach) {
+            n.period_dec += 0.25 * (period_dec - n.period_dec);
+            n.last_f = f;
+            ++n.frames;
+            return;
+        }
+        if (n.frames >= kNoteFrames) old_notes[old_next++ % old_notes.size()] = n;
+        n = {period_dec, f, 1};
+    }
+
+    // Step 4 in a room: a lag that is a common period of an old note still ringing and a new one gives way to the
+    // new note's own (beside_old_note()); a much deeper dip at a multiple of the lag is the period
+    // (deeper_multiple()), unless that multiple is an old note's period or a multiple of it (its reverberation under
+    // a note a fifth or an octave above).
+    LagChoice in_room(Index f, const Coarse& c, LagChoice pick) const noexcept {
+        auto ringing = [&](const Note& n) { return n.frames >= kNoteFrames && f - n.last_f <= ring_frames; };
+        for (const Note& n : old_notes)
+            if (ringing(n)) {
+                const LagChoice b = beside_old_note(c.dn, pick, n.period_dec, lag_min);
+                if (b.lag != pick.lag) {
+                    pick = b;
+                    break;
+                }
+            }
+        const LagChoice longer = deeper_multiple(c.dn, pick, lag_max);
+        if (longer.lag == pick.lag || old_note_multiple(f, static_cast<double>(longer.lag))) return pick;
+        return full_rate_deeper(f, c, pick.lag, longer.lag) ? longer : pick;
+    }
+
+    // deeper_multiple()'s choice confirmed at the full rate: d' at both lags measured on the full-rate samples of
+    // frame f's coarse window, where a short period's dip is sampled finely enough to show its depth.
+    bool full_rate_deeper(Index f, const Coarse& c, std::size_t lag, std::size_t longer) const noexcept {
+        const double own = full_rate_aperiodicity(f, c, lag), other = full_rate_aperiodicity(f, c, longer);
+        return own >= kDeeperFloor && other <= kDeeperShare * own;
+    }
+
+    // d' (YIN eq. 8) near the decimated lag j, from frame f's coarse window at the full rate: d at the integer
+    // full-rate lags within +-kFineLags of j D, the bottom of the parabola through the lowest, over D times the coarse
+    // cumulative mean at j. 1 when the samples are not at hand.
+    double full_rate_aperiodicity(Index f, const Coarse& c, std::size_t j) const noexcept {
+        constexpr Index kFineLags = 3;
+        const Index D = static_cast<Index>(dec_factor);
+        const Index start = (a0 + f * static_cast<Index>(blocks_per_hop * block)) * D;
+        const std::size_t W = window_dec * dec_factor;
+        const Index mid = static_cast<Index>(j) * D;
+        if (j == 0 || j >= c.d.size() || start < x_off ||
+            start + static_cast<Index>(W) + mid + kFineLags + 1 > x_end() || mid - kFineLags < 1)
+            return 1.0;
+        const float* s = xp(start);
+        const double e0 = vec::sum_sq(s, W);
+        std::array<double, 2 * kFineLags + 1> v{};
+        std::size_t low = 1;
+        for (std::size_t i = 0; i < v.size(); ++i) {
+            const float* t = s + mid - kFineLags + static_cast<Index>(i);
+            v[i] = std::max(0.0, e0 + vec::sum_sq(t, W) - 2.0 * static_cast<double>(vec::dot(s, t, W)));
+            if (i >= 1 && i + 1 < v.size() && v[i] < v[low]) low = i;
+        }
+        const double bottom = parabola_bottom(v[low - 1], v[low], v[low + 1]);
+        double sum = 0.0;
+        for (std::size_t k = 1; k <= j; ++k) sum += c.d[k];
+        const double mean = sum / static_cast<double>(j) * static_cast<double>(D);
+        return mean > 0.0 ? bottom / mean : 1.0;
+    }
+
+    // The lag (decimated samples) is 1 .. 4 periods of an old note still ringing.
+    bool old_note_multiple(Index f, double lag) const noexcept {
+        for (const Note& n : old_notes)
+            if (n.frames >= kNoteFrames && f - n.last_f <= ring_frames)
+                for (int m = 1; m <= 4; ++m)
+                    if (std::fabs(lag / (m * n.period_dec) - 1.0) < kNoteReach) return true;
+        return false;
     }
 
     // -----------------------------------------------------------------------
@@ -546,6 +648,7 @@ struct YinTracker::Impl {
         recent_f0[static_cast<std::size_t>(f % kSlopeFrames)] = out.f0_hz;
         last_period_dec = T / static_cast<double>(D);
         last_voiced_f = f;
+        remember_note(f, last_period_dec);
         out.t_s = t_centre / rate;
         deliver(out, m2_s2, restricted);
     }
@@ -645,6 +748,12 @@ struct YinTracker::Impl {
             if (cur.dn[j] < cur.dn[best]) best = j;
         if (!(cur.dn[best] <= cur.dn[best - 1] && cur.dn[best] <= cur.dn[best + 1])) return;  // not a dip
         if (!(cur.dn[best] <= kContinuityRatio * aper + kContinuityTolerance)) return;
+        // The chosen lag is twice or three times the continuing period and far deeper (deeper_multiple()): the pitch
+        // held was an octave or a twelfth too high, and goes on at the chosen lag.
+        const LagChoice longer = deeper_multiple(cur.dn, {best, cur.dn[best], false}, lag_max);
+        if (longer.lag != best && std::fabs(static_cast<double>(longer.lag) - period) <= 1.5 &&
+            !old_note_multiple(f, period) && full_rate_deeper(f, cur, best, longer.lag))
+            return;
         period = parabolic_minimum(cur.d, best);
         aper = cur.dn[best];
     }
@@ -830,11 +939,12 @@ struct YinTracker::Impl {
         if (!(std::fabs(bias) < kMaxVibratoBias)) return out;  // a note change, not a vibrato
         cv.last = curvature;
         if (std::isnan(prev)) return out;
+        cv.change_power += kPowerAlpha * ((curvature - prev) * (curvature - prev) - cv.change_power);
         const double floor = 2.0 * kSmallBias / b.m2_s2;  // curvature change allowed beyond 50 %
         if (!(std::fabs(curvature - prev) <= 0.5 * std::max(std::fabs(curvature), std::fabs(prev)) + floor)) return out;
         cv.power += kPowerAlpha * (curvature * curvature - cv.power);
         const double noise = kNoiseBias / (0.5 * b.m2_s2);  // that bias as a curvature
-        const double gain = cv.power / (cv.power + noise * noise);
+        const double gain = cv.power / (cv.power + std::max(noise * noise, kChangeShare * cv.change_power));
         if (cv.slope_power < kMinSlope * kMinSlope) return out;  // a steady tone: its curvature is noise alone
         out.f0_hz = b.p.f0_hz * std::exp(-gain * bias);
         return out;

@@ -3,7 +3,9 @@
 // Soc. Am. 111(4), 1917-1930 (2002); the vibrato bias removed as a kernel-smoothing bias (M. P. Wand and M. C. Jones,
 // Kernel Smoothing, Chapman & Hall 1995, sec. 2.5); voicing against a noise floor by minimum statistics (R. Martin
 // 2001, yin_voicing.h); continuity across frames after pYIN's transition prior (M. Mauch and S. Dixon, ICASSP 2014),
-// greedy and causal. Stages: DEVELOPERS.md, "Methods in detail".
+// greedy and causal; in rooms, a far deeper dip at a multiple of the chosen lag is the period, and a common period of
+// a ringing old note and a new one gives way to the new note's (yin_coarse.h). Stages: DEVELOPERS.md, "Methods in
+// detail".
 // Thread: one at a time (the analysis thread). Allocates: in the constructor only. Locks: no.
 #pragma once
 

@@ -125,6 +125,72 @@ LagChoice absolute_threshold(std::span<const double> dn, std::size_t lag_min, st
     return shortest_divisor(dn, c, lag_min, lag_max);
 }
 
+namespace {
+constexpr double kOldNoteRatio = 3.0;  // beside_old_note(): the new note's dip at most 3 d' + 0.15
+constexpr double kOldNoteTolerance = 0.15;
+constexpr double kLagReach = 0.03;  // multiples and divisors are searched within 3 % of the exact lag
+
+// The deepest local minimum of dn within kLagReach of lag (0 when none).
+std::size_t dip_around(std::span<const double> dn, double lag, std::size_t lag_min) noexcept {
+    const double radius = std::max(1.0, kLagReach * lag);
+    const auto lo = static_cast<std::size_t>(std::max({1.0, static_cast<double>(lag_min), std::floor(lag - radius)}));
+    const auto hi = static_cast<std::size_t>(std::min(static_cast<double>(dn.size()) - 2.0, std::ceil(lag + radius)));
+    if (lo > hi) return 0;
+    std::size_t best = lo;
+    for (std::size_t t = lo; t <= hi; ++t)
+        if (dn[t] < dn[best]) best = t;
+    return dn[best] <= dn[best - 1] && dn[best] <= dn[best + 1] ? best : 0;
+}
+
+bool near_multiple(double lag, double base, int most) noexcept {
+    for (int m = 1; m <= most; ++m)
+        if (std::fabs(lag / (m * base) - 1.0) < kLagReach) return true;
+    return false;
+}
+
+// The bottom of the parabola through dn at j and its neighbours: a short period's dip falls between two lags, and
+// its sampled value overstates it more than a multiple's.
+double dip_bottom(std::span<const double> dn, std::size_t j) noexcept {
+    return j == 0 || j + 1 >= dn.size() ? dn[j] : parabola_bottom(dn[j - 1], dn[j], dn[j + 1]);
+}
+}  // namespace
+
+LagChoice deeper_multiple(std::span<const double> dn, LagChoice c, std::size_t lag_max) noexcept {
+    if (c.lag == 0 || c.lag + 1 >= dn.size()) return c;
+    const double own = dip_bottom(dn, c.lag);
+    if (!(own >= kDeeperFloor)) return c;
+    for (std::size_t k = 2; k <= 3; ++k) {
+        const double lag = static_cast<double>(k * c.lag);
+        if (lag > static_cast<double>(lag_max)) break;
+        const std::size_t j = dip_around(dn, lag, 1);
+        if (j != 0 && dip_bottom(dn, j) <= kDeeperShare * own) return {j, dn[j], c.below_threshold};
+    }
+    return c;
+}
+
+LagChoice beside_old_note(std::span<const double> dn, LagChoice c, double old_lag, std::size_t lag_min) noexcept {
+    if (!(old_lag > 0.0) || c.lag == 0) return c;
+    const auto lag = static_cast<double>(c.lag);
+    bool common = false;
+    for (int m = 2; m <= 4; ++m) common = common || std::fabs(lag / (m * old_lag) - 1.0) < kLagReach;
+    if (!common) return c;
+    LagChoice best = c;
+    const double most = kOldNoteRatio * c.aperiodicity + kOldNoteTolerance;
+    for (std::size_t k = 2; k <= 4; ++k) {
+        const double cand = lag / static_cast<double>(k);
+        if (near_multiple(cand, old_lag, 4) || near_multiple(old_lag, cand, 4)) continue;
+        const std::size_t j = dip_around(dn, cand, lag_min);
+        if (j != 0 && dn[j] <= most && (best.lag == c.lag || dn[j] < best.aperiodicity))
+            best = {j, dn[j], c.below_threshold};
+    }
+    return best;
+}
+
+double parabola_bottom(double a, double b, double c) noexcept {
+    const double den = a - 2.0 * b + c;
+    return den > 0.0 ? std::max(0.0, b - (a - c) * (a - c) / (8.0 * den)) : b;
+}
+
 double parabolic_minimum(std::span<const double> d, std::size_t lag) noexcept {
     if (lag == 0 || lag + 1 >= d.size()) return static_cast<double>(lag);
     const double a = d[lag - 1], b = d[lag], c = d[lag + 1];

@@ -73,6 +73,28 @@ struct LagChoice {
 LagChoice absolute_threshold(std::span<const double> dn, std::size_t lag_min, std::size_t lag_max,
                              double threshold) noexcept;
 
+// A period k t (k = 2, 3) for a chosen lag t whose own dip leaves much more unexplained: d' at a lag is the share
+// of the power not periodic at it (de Cheveigné and Kawahara 2002, sec. VI), and where the lag k t leaves at most
+// kDeeperShare of what t leaves (t's own d' at least kDeeperFloor; each dip's depth the bottom of its parabola), that
+// power is periodic at k t: the fundamental and
+// odd partials of a tone whose second partial dominates (on a formant or a room's resonance), which step 4's
+// first-dip rule skips when t's d' is under the threshold. White noise leaves the same share at every multiple, so
+// the choice in noise stands. A period of a few coarse samples is sampled too coarsely for its dip to show its depth:
+// the tracker confirms the choice at the full rate. Returns c unchanged when no multiple qualifies. Allocates: no.
+LagChoice deeper_multiple(std::span<const double> dn, LagChoice c, std::size_t lag_max) noexcept;
+inline constexpr double kDeeperShare = 0.3;   // k t leaves at most this share of t's d'
+inline constexpr double kDeeperFloor = 0.03;  // ... and t's d' is at least this (clean tones: both dips near 0)
+
+// A chosen lag that is a common period of a recent note (old_lag, its period in the same samples) and a new one:
+// where a room's reverberation of the old note overlaps the new note, the mixture repeats only after m old periods
+// (m = 2 .. 4: a fifth or an octave apart). The new note's period is then the dip at a divisor lag / k (k = 2 .. 4)
+// that is not a multiple of old_lag, if it is at most kOldNoteRatio d' + kOldNoteTolerance deep. Returns c unchanged
+// otherwise. Allocates: no.
+LagChoice beside_old_note(std::span<const double> dn, LagChoice c, double old_lag, std::size_t lag_min) noexcept;
+
+// The lowest value of the parabola through (-1, a), (0, b), (1, c), at least 0; b where it opens downwards.
+double parabola_bottom(double a, double b, double c) noexcept;
+
 // YIN step 5: abscissa of the parabola through d[lag - 1], d[lag], d[lag + 1]
 // (lag itself at the ends or where the parabola opens downwards).
 double parabolic_minimum(std::span<const double> d, std::size_t lag) noexcept;
