@@ -503,7 +503,7 @@ struct YinTracker::Impl {
     // frame f's coarse window, where a short period's dip is sampled finely enough to show its depth.
     bool full_rate_deeper(Index f, const Coarse& c, std::size_t lag, std::size_t longer) const noexcept {
         const double own = full_rate_aperiodicity(f, c, lag), other = full_rate_aperiodicity(f, c, longer);
-        return own >= kDeeperFloor && other <= kDeeperShare * own;
+        return far_deeper(own, other);
     }
 
     // d' (YIN eq. 8) near the decimated lag j, from frame f's coarse window at the full rate: d at the integer

@@ -155,6 +155,11 @@ double dip_bottom(std::span<const double> dn, std::size_t j) noexcept {
 }
 }  // namespace
 
+bool far_deeper(double own, double other) noexcept {
+    return own >= kDeeperFloor &&
+           (other <= kDeeperShare * own || (own >= kDeeperWide && own > kNoiseRatio * other + kNoiseTolerance));
+}
+
 LagChoice deeper_multiple(std::span<const double> dn, LagChoice c, std::size_t lag_max) noexcept {
     if (c.lag == 0 || c.lag + 1 >= dn.size()) return c;
     const double own = dip_bottom(dn, c.lag);
@@ -163,7 +168,7 @@ LagChoice deeper_multiple(std::span<const double> dn, LagChoice c, std::size_t l
         const double lag = static_cast<double>(k * c.lag);
         if (lag > static_cast<double>(lag_max)) break;
         const std::size_t j = dip_around(dn, lag, 1);
-        if (j != 0 && dip_bottom(dn, j) <= kDeeperShare * own) return {j, dn[j], c.below_threshold};
+        if (j != 0 && far_deeper(own, dip_bottom(dn, j))) return {j, dn[j], c.below_threshold};
     }
     return c;
 }

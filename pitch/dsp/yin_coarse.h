@@ -84,6 +84,13 @@ LagChoice absolute_threshold(std::span<const double> dn, std::size_t lag_min, st
 LagChoice deeper_multiple(std::span<const double> dn, LagChoice c, std::size_t lag_max) noexcept;
 inline constexpr double kDeeperShare = 0.3;   // k t leaves at most this share of t's d'
 inline constexpr double kDeeperFloor = 0.03;  // ... and t's d' is at least this (clean tones: both dips near 0)
+// Or, with t's d' at least kDeeperWide: k t is deeper by the allowance step 4 gives a divisor (yin_coarse.cpp,
+// absolute_threshold: t's d' over 1.5 k t's + 0.05). In brown noise a sung /a/ whose second
+// partial sits on its first formant dips at half its period to d' 0.1-0.15 and at the period to 0.03-0.05: over 0.3
+// of it, yet four times deeper.
+inline constexpr double kDeeperWide = 0.08;
+// True when a dip of depth `other` at a multiple of a lag whose dip is `own` deep is far deeper in either sense above.
+bool far_deeper(double own, double other) noexcept;
 
 // A chosen lag that is a common period of a recent note (old_lag, its period in the same samples) and a new one:
 // where a room's reverberation of the old note overlaps the new note, the mixture repeats only after m old periods
