@@ -67,16 +67,19 @@ struct LowFloor {
                                 : f.voiced() && f.f0_hz < kEnterHz && (run == 0 || same) && heard_short == 0;
         run = toward ? run + 1 : 0;
         if (run >= (low ? kLeaveFrames : kEnterFrames) || (low && quiet >= kQuietFrames)) switch_window();
+        if (publishing) publishing->store(low, std::memory_order_relaxed);
     }
     // A frame of the short window, its readings under kEnterHz already dropped.
     void see_short(const pitch::PitchFrame& f) noexcept {
         heard_short = f.voiced() ? heard_short + 1 : 0;
         if (low && heard_short >= kLeaveFrames) switch_window();
+        if (publishing) publishing->store(low, std::memory_order_relaxed);
     }
     void switch_window() noexcept {
         low = !low;
         run = quiet = 0;
     }
+    std::atomic<bool>* publishing = nullptr;  // mirrors `low` for status() (another thread)
 };
 
 std::string player_text(const pitch::Player& p, std::size_t i) {
@@ -127,6 +130,7 @@ struct Engine::Impl {
     double applied_root = 0.0;
     double span_s = 0.05;                     // the trackers' span
     std::atomic<bool> removal_active{false};  // written by the analysis thread, read by status() (relaxed)
+    std::atomic<bool> low_publishing{false};  // the long window publishes (LowFloor::low): status()'s tracker delay
     bool started = false;
     // Set when start() has built everything the callbacks touch: a stream
     // opened earlier in start() may call back before that, and is ignored.
@@ -442,6 +446,8 @@ void Engine::start(bool analysis_thread) {
     if (short_span) yc.vibrato_correction = false;
     m.low.reset();
     m.floor = LowFloor{};
+    m.floor.publishing = &m.low_publishing;
+    m.low_publishing.store(false, std::memory_order_relaxed);
     if (two_windows) {
         pitch::YinConfig low_yc = yc;
         low_yc.f_min_hz = floor_hz;
@@ -822,7 +828,11 @@ EngineStatus Engine::status() const {
     if (m.out) m.out->report(st);
     if (m.group_out) m.group_out->report(st);
     if (m.duo_out) m.duo_out->report(st);
-    st.tracker_delay_s = m.duo ? 0.5 * m.span_s : m.trackers.empty() ? 0.0 : m.trackers[0]->delay_s();
+    // The delay of the window whose frames are published now: the long one while it reads a low note.
+    st.tracker_delay_s = m.duo                                                       ? 0.5 * m.span_s
+                         : m.low && m.low_publishing.load(std::memory_order_relaxed) ? m.low->delay_s()
+                         : m.trackers.empty()                                        ? 0.0
+                                                                                     : m.trackers[0]->delay_s();
     st.device_input_latency_s = m.io.in_info.input_latency_s;
     st.device_output_latency_s = m.io.out_info.output_latency_s;
     st.input_ok = m.started && !m.io.input_lost && !m.finished.load();
