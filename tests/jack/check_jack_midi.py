@@ -37,7 +37,10 @@ from jack_rig import run, stop
 
 BEATLESS = sys.argv[1]
 KEYS = sys.argv[2] if len(sys.argv) > 2 else ""
-SERVER = "beatless-midi-%d" % os.getpid()
+# One fixed name: JACK keeps a server in its registry (/dev/shm, at most 8) until it exits cleanly, and reclaims a
+# dead one's slot only for a server of the same name, so names with a process id filled the registry after a few
+# runs that were killed ("Too many servers already active"). ctest runs the sound-server tests one at a time.
+SERVER = "beatless-test-midi"
 ENV = dict(os.environ, JACK_DEFAULT_SERVER=SERVER, JACK_NO_START_SERVER="1")
 children = []
 failures = []
