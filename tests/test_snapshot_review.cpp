@@ -622,5 +622,21 @@ TEST_CASE("a steady voice exactly on a drone partial is not lost: analyze and th
     for (int dy = -1; dy <= 1; ++dy) edge = edge || rig.buf.at(x, y + dy) == ui::palette::kTextDim;
     CHECK(edge);
     if (const char* out = std::getenv("BEATLESS_TEST_PNG")) ui::write_png(std::string(out) + "-hidden.png", rig.buf);
+
+    // The same take recorded with --voices 2 (the newest, so the screen opens it, as two voices): the same outline,
+    // in cents above the drone (the reference), and the line `analyze --voices 2` prints.
+    drone_take_in_home("2026-12-04_130001", take, 2);
+    ReviewRig duo_rig(1, 0.0);
+    duo_rig.frames(3);
+    const ui::ReviewView& dv = *ui::review_view(*duo_rig.screen);
+    REQUIRE(dv.open);
+    CHECK(dv.heading.rfind("Interval ", 0) == 0);
+    REQUIRE(dv.hidden.size() == 1);
+    REQUIRE(dv.hidden_words.size() == 1);
+    CHECK(duo.out.find(dv.hidden_words[0]) != std::string::npos);
+    CHECK(std::fabs(dv.hidden[0].y - dv.y_of(1200.0 * std::log2(3.0))) < 1.5);
+    CHECK(std::fabs(dv.hidden[0].x0 - dv.x_of(2.25)) < 0.05f * px_per_s + 1.5f);
+    if (const char* out = std::getenv("BEATLESS_TEST_PNG"))
+        ui::write_png(std::string(out) + "-hidden-duo.png", duo_rig.buf);
     unsetenv("BEATLESS_HOME");
 }

@@ -105,6 +105,8 @@ private:
     double in_tune_cents_ = 5.0;  // the settings' in-tune width, for colours
     void draw_plot(AppState& app, ImDrawList* dl, float x, float y, float w, float h);
     void draw_duo(AppState& app, ImDrawList* dl);  // two voices: both traces and the intervals' marks
+    void draw_hidden(ImDrawList* dl, const std::vector<pitch::PartialVoice>& list, double ref_hz, double root_hz,
+                     bool intervals);  // voices hidden on a drone partial, outlined
     void draw_trace(ImDrawList* dl, const pitch::DecimatedTrace& trace, std::uint32_t colour);
     void draw_time_axis(ImDrawList* dl);
     void draw_mark(ImDrawList* dl, const ReviewMarkView& m, float y_lo, float y_hi);
@@ -508,6 +510,36 @@ void ReviewScreen::draw_time_axis(ImDrawList* dl) {
 // Two voices: octave lines of the reference, both voices' traces (the lower dimmer), and each held interval: a bar
 // at each voice, the upper one in its tuning colour with the interval's deviation above it, and the target (the
 // upper note the interval meant over the lower) as a line across it.
+// Voices the drone removal hid on a drone partial: an outline at the partial over their stretch, their pitch not
+// measured; y in cents above ref_hz, the words as `analyze` prints them over root_hz (intervals: two voices).
+void ReviewScreen::draw_hidden(ImDrawList* dl, const std::vector<pitch::PartialVoice>& list, double ref_hz,
+                               double root_hz, bool intervals) {
+    const float u = ui_unit();
+    const ReviewView& v = view_;
+    view_.hidden.clear();
+    view_.hidden_words.clear();
+    for (std::size_t i = 0; i < list.size(); ++i) {
+        const pitch::PartialVoice& p = list[i];
+        view_.hidden_words.push_back(on_partial_words(p, take_->set, root_hz, intervals));
+        if (p.end_s < v.t0_s || p.start_s > v.t1_s) continue;
+        ReviewMarkView m;
+        m.note = static_cast<int>(i);
+        m.x0 = v.x_of(p.start_s);
+        m.x1 = v.x_of(p.end_s);
+        m.cents = 1200.0 * std::log2(p.f_hz / ref_hz);
+        m.y = std::round(v.y_of(m.cents));
+        m.dev_cents = NAN;
+        m.colour = palette::kTextDim;
+        const float r = std::round(0.22f * u);
+        dl->AddRect(ImVec2(m.x0, m.y - r), ImVec2(m.x1, m.y + r), m.colour, 0.0f, 0, 1.5f);
+        draw_text(
+            dl, FontFace::body, ImVec2(m.x0, m.y - r - std::round(1.3f * u)), m.colour,
+            fit_text(FontFace::body, "voice hidden with the drone (its partial " + std::to_string(p.partial) + ")",
+                     v.plot_x1 - m.x0));
+        view_.hidden.push_back(m);
+    }
+}
+
 void ReviewScreen::draw_duo(AppState& app, ImDrawList* dl) {
     const float u = ui_unit();
     const ReviewView& v = view_;
@@ -552,6 +584,7 @@ void ReviewScreen::draw_duo(AppState& app, ImDrawList* dl) {
         dl->AddRectFilled(ImVec2(m.x0, m.y_low - 0.5f * r), ImVec2(m.x1, m.y_low + 0.5f * r), palette::kTextDim);
         draw_mark(dl, m, std::min(m.y, m.y_low), std::max(m.y, m.y_low));
     }
+    draw_hidden(dl, d.on_partials, d.ref_hz, d.drone_hz, true);
     dl->PopClipRect();
 }
 
@@ -636,11 +669,13 @@ void ReviewScreen::draw_plot(AppState& app, ImDrawList* dl, float x, float y, fl
     // Cents range: the notes and the voiced trace, with a margin.
     double lo = INFINITY, hi = -INFINITY;
     for (const auto& n : a.notes) lo = std::min(lo, n.cents_above_root), hi = std::max(hi, n.cents_above_root);
-    if (take_->voices != 2)
-        for (const auto& p : a.on_partials) {
-            const double c = 1200.0 * std::log2(p.f_hz / a.root_hz);
-            lo = std::min(lo, c), hi = std::max(hi, c);
-        }
+    // Voices hidden on a drone partial are in view too (cents above the plot's reference).
+    const auto& hidden = take_->voices == 2 ? take_->duo.on_partials : a.on_partials;
+    const double hidden_ref_hz = take_->voices == 2 ? take_->duo.ref_hz : a.root_hz;
+    for (const auto& p : hidden) {
+        const double c = 1200.0 * std::log2(p.f_hz / hidden_ref_hz);
+        lo = std::min(lo, c), hi = std::max(hi, c);
+    }
     if (take_->voices == 2) {  // both voices, in cents above the reference
         const TwoVoiceAnalysis& d = take_->duo;
         for (const auto& y : d.dyads) {
@@ -660,6 +695,9 @@ void ReviewScreen::draw_plot(AppState& app, ImDrawList* dl, float x, float y, fl
     if (!std::isfinite(lo)) lo = 0.0, hi = 1200.0;
     lo -= 60.0;
     hi += 60.0;
+    // A hidden voice's words go above its outline: room for them under the top.
+    const double words_c = 0.12 * (hi - lo);
+    for (const auto& p : hidden) hi = std::max(hi, 1200.0 * std::log2(p.f_hz / hidden_ref_hz) + 60.0 + words_c);
     // One voice: the target lines in every octave in view, each named in its octave as `analyze` names a note
     // matched there ("5/4 +1oct"); the label column fits the longest name, within 9 units.
     struct Line {
@@ -751,29 +789,7 @@ void ReviewScreen::draw_plot(AppState& app, ImDrawList* dl, float x, float y, fl
         m.colour = std::isfinite(n.dev_cents) ? tuning_colour(tuning_of(n.dev_cents, in_tune)) : palette::kTextDim;
         draw_mark(dl, m, m.y, m.y);
     }
-    // Voices the drone removal hid on a drone partial: an outline at the partial, its pitch not measured.
-    view_.hidden.clear();
-    view_.hidden_words.clear();
-    for (std::size_t i = 0; i < a.on_partials.size(); ++i) {
-        const pitch::PartialVoice& p = a.on_partials[i];
-        view_.hidden_words.push_back(on_partial_words(p, take_->set, a.root_hz, false));
-        if (p.end_s < v.t0_s || p.start_s > v.t1_s) continue;
-        ReviewMarkView m;
-        m.note = static_cast<int>(i);
-        m.x0 = v.x_of(p.start_s);
-        m.x1 = v.x_of(p.end_s);
-        m.cents = 1200.0 * std::log2(p.f_hz / a.root_hz);
-        m.y = std::round(v.y_of(m.cents));
-        m.dev_cents = NAN;
-        m.colour = palette::kTextDim;
-        const float r = std::round(0.22f * u);
-        dl->AddRect(ImVec2(m.x0, m.y - r), ImVec2(m.x1, m.y + r), m.colour, 0.0f, 0, 1.5f);
-        draw_text(
-            dl, FontFace::body, ImVec2(m.x0, m.y - r - std::round(1.3f * u)), m.colour,
-            fit_text(FontFace::body, "voice hidden with the drone (its partial " + std::to_string(p.partial) + ")",
-                     v.plot_x1 - m.x0));
-        view_.hidden.push_back(m);
-    }
+    draw_hidden(dl, a.on_partials, a.root_hz, a.root_hz, false);
     dl->PopClipRect();
     draw_time_axis(dl);
 }

@@ -40,7 +40,7 @@ struct ReviewView {
     double cents_lo = 0.0, cents_hi = 0.0;  // cents at plot_y1 and plot_y0
     std::vector<ReviewMarkView> marks;      // the notes in view
     std::vector<ReviewLineView> lines;      // one voice: the target lines in view, each in its octave
-    std::vector<ReviewMarkView> hidden;     // one voice: voices hidden on a drone partial, in view (outlined; note =
+    std::vector<ReviewMarkView> hidden;     // voices hidden on a drone partial, in view (outlined; note =
                                             //   index into the analysis's on_partials, dev_cents NaN)
     std::vector<std::string> hidden_words;  // their lines as analyze prints them (all, in view or not)
     int selected = -1;                      // the selected note, -1 for none
