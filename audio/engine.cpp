@@ -67,17 +67,16 @@ struct LowFloor {
                                 : f.voiced() && f.f0_hz < kEnterHz && (run == 0 || same) && heard_short == 0;
         run = toward ? run + 1 : 0;
         if (run >= (low ? kLeaveFrames : kEnterFrames) || (low && quiet >= kQuietFrames)) switch_window();
-        if (publishing) publishing->store(low, std::memory_order_relaxed);
     }
     // A frame of the short window, its readings under kEnterHz already dropped.
     void see_short(const pitch::PitchFrame& f) noexcept {
         heard_short = f.voiced() ? heard_short + 1 : 0;
         if (low && heard_short >= kLeaveFrames) switch_window();
-        if (publishing) publishing->store(low, std::memory_order_relaxed);
     }
     void switch_window() noexcept {
         low = !low;
         run = quiet = 0;
+        if (publishing) publishing->store(low, std::memory_order_relaxed);
     }
     std::atomic<bool>* publishing = nullptr;  // mirrors `low` for status() (another thread)
 };
@@ -676,9 +675,8 @@ std::size_t Engine::analyze_available() noexcept {
     return total;
 }
 
-// The next frame of the first channel to publish: its tracker's, or with a second, long-window tracker for the notes
-// under the short floor, the frames of the one LowFloor chooses, in time order (the long window's lag behind: a frame
-// no later than the last published is dropped). Thread: analysis. Allocates: no.
+// Channel p's frame with the drone taken out of it: unvoiced where drone removal is still learning or the pitch is the
+// drone's residue. Thread: analysis. Allocates: no.
 void Engine::drop_drone(pitch::PitchFrame& f, std::size_t p, bool removal_active) noexcept {
     const DroneCanceller& c = *impl_->cancellers[p];
     // While drone removal is still learning the room (a quarter of a
@@ -690,6 +688,9 @@ void Engine::drop_drone(pitch::PitchFrame& f, std::size_t p, bool removal_active
     if (removal_active && f.voiced() && c.is_residue(f.f0_hz, f.level_dbfs)) f.f0_hz = 0.0;
 }
 
+// The next frame of the first channel to publish: its tracker's, or with a second, long-window tracker for the notes
+// under the short floor, the frames of the one LowFloor chooses, in time order (the long window's lag behind: a frame
+// no later than the last published is dropped). Thread: analysis. Allocates: no.
 bool Engine::next_frame(pitch::PitchFrame& out) noexcept {
     Impl& m = *impl_;
     if (!m.low) return m.trackers[0]->pull(out);
