@@ -381,8 +381,7 @@ TEST_CASE("Review: every name of a target agrees, detail and Per target alike, o
     };
     {
         const Take duo = drone_and_voice(kFs, 110.0, {{5.0 / 4.0, 6.0}, {5.0 / 8.0, -4.0}}, 61);
-        beatless::test::write_test_take(takes, "2026-12-04_100000", duo.samples, kFs, duo.dur_s, true, 2);
-        const std::string flac = (takes / "2026-12-04_100000.flac").string();
+        const std::string flac = drone_take_in_home("2026-12-04_100000", duo, 2);
         ReviewRig rig(1, 0.0);
         rig.frames(3);
         const ui::ReviewView& v = *ui::review_view(*rig.screen);
@@ -412,8 +411,7 @@ TEST_CASE("Review: every name of a target agrees, detail and Per target alike, o
     std::filesystem::create_directories(takes);
     {
         const Take solo = drone_and_voice(kFs, 110.0, {{3.0 / 4.0, 3.0}, {3.0 / 2.0, -5.0}}, 62);
-        beatless::test::write_test_take(takes, "2026-12-04_110000", solo.samples, kFs, solo.dur_s, true, 1);
-        const std::string flac = (takes / "2026-12-04_110000.flac").string();
+        const std::string flac = drone_take_in_home("2026-12-04_110000", solo, 1);
         ReviewRig rig(2, 0.0);
         rig.frames(3);
         const ui::ReviewView& v = *ui::review_view(*rig.screen);

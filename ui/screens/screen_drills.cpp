@@ -63,6 +63,10 @@ constexpr double kAwayS = 0.5;         // no frame of this screen for this long:
 
 ImVec4 v4(std::uint32_t c) { return ImGui::ColorConvertU32ToFloat4(c); }
 
+// The voices a drill is run and its history read with: a hold drill scores the interval of two voices while the two-
+// voice mode is on (V on the Practice screen); an ear drill has one.
+int drill_voices(const Drill& d, const AppState& app) { return d.mode == DrillMode::hold && app.two_voices() ? 2 : 1; }
+
 constexpr KeyHelp kDrillKeys[] = {
     {"Enter", "start the chosen drill (again)"},
     {"S", "stop the drill"},
@@ -204,7 +208,7 @@ void DrillsScreen::start(AppState& app) {
                   ? o.seed
                   : static_cast<std::uint64_t>(std::chrono::steady_clock::now().time_since_epoch().count());
     rc.performer = d.mode == DrillMode::ear ? (listener_ ? kSimulatedListener : "") : o.demo ? kDemoPerformer : "";
-    rc.voices = d.mode == DrillMode::hold && app.two_voices() ? 2 : 1;
+    rc.voices = drill_voices(d, app);
     auto runner = std::make_unique<DrillRunner>(d, rc, writer_.get());
     // The name load_drill finds it by again: the file given with --drill, else the drill's id (a built-in's name).
     const std::string name =
@@ -1051,9 +1055,10 @@ void DrillsScreen::build(AppState& app, const ScreenArea& area, double dt_s) {
     const float now_h = std::round(std::clamp(0.58f * top_h, 9.0f * u, 14.0f * u));
     now_panel(app, dl, rx, top, rw, now_h);
     attempt_panel(dl, rx, top + now_h + gap, rw, top_h - now_h - gap);
-    const int voices = app.two_voices() ? 2 : 1;  // the attempts shown are of the mode in use (V switches it)
-    if ((history_dirty_ || (history_.voices != voices && chosen() && chosen()->mode == DrillMode::hold)) && chosen()) {
-        history_ = read_drill_progress(log_path_, *chosen(), app.options().demo || listener_.has_value(), voices);
+    // The attempts shown are of the mode in use (V switches it).
+    if (chosen() && (history_dirty_ || history_.voices != drill_voices(*chosen(), app))) {
+        history_ = read_drill_progress(log_path_, *chosen(), app.options().demo || listener_.has_value(),
+                                       drill_voices(*chosen(), app));
         history_dirty_ = false;
     }
     if (chosen()) draw_drill_progress(dl, history_, *chosen(), x0, top + top_h + gap, w, hist_h);
