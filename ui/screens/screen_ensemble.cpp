@@ -537,7 +537,7 @@ void EnsembleScreen::chart(AppState& app, ImDrawList* dl, float x0, float y0, fl
         y += font_px(FontFace::body) + std::round(0.3f * u);
     }
     // Columns in units: ratio, Hz, note, from ET, sung by.
-    const float cols[] = {0.0f, 3.2f, 7.6f, 10.4f, 14.8f};
+    const float cols[] = {0.0f, 3.2f, 6.8f, 9.4f, 13.6f};
     const char* heads[] = {"ratio", "Hz", "note", "from ET", "sung by"};
     for (int k = 0; k < 5; ++k)
         put(dl, FontFace::body, ImVec2(x0 + pad + cols[k] * u, y), palette::kTextDim, heads[k], panel);
