@@ -51,11 +51,15 @@ constexpr double kRunFloor = 0.45;        // aperiodicity a block of a periodic 
 // A frame left unvoiced within this many frames of the last voiced one may still be a change between notes (the
 // frames just after a change hold both notes in their span).
 constexpr Index kChangeGapFrames = 3;
-// The newest note's stretch found from the span's end (newest_stretch()): its blocks held under this aperiodicity, and
-// the whole stretch under kNewestRunAperiodicity. Stricter than kRunFloor: a lag 10-20 % off a harmonic voice's period
+// The newest note's stretch found from the span's end (newest_stretch(), in clean conditions only: one of the last 8
+// voiced frames under kCleanAperiodicity): its blocks held under this aperiodicity, and the whole stretch under
+// kNewestRunAperiodicity. Stricter than kRunFloor: a lag 10-20 % off a harmonic voice's period
 // still measures 0.2-0.45 on it, so only a clean stretch is taken (in noise, newest() finds no period first).
 constexpr double kNewestRunFloor = 0.15;
 constexpr double kNewestRunAperiodicity = 0.05;
+// White noise at 20 dB SNR leaves a tone's d' near 0.01 (its share of the power, twice over in d); at 10 dB near 0.1,
+// where short stretches of the noise itself can measure under kNewestRunAperiodicity.
+constexpr double kCleanAperiodicity = 0.02;
 // ... and only for a change of note: a period this far (3 %, half a semitone) from the last voiced frame's, and
 // kVibratoReach further for each hop between them (a vibrato of +-100 c at 7.5 Hz moves the period 1.4 % in a hop).
 constexpr double kStepReach = 0.03;
@@ -167,16 +171,17 @@ struct YinTracker::Impl {
     LagRefiner mid;
     NoiseFloor noise_floor;
     PeriodicRun runs;
-    double last_run_aperiodicity = 1.0;     // of the stretch periodic_stretch() chose last
-    double last_run_period = 0.0;           // ... and its period, decimated samples
-    double last_t_s = -1.0;                 // t of the last frame delivered
-    bool last_voiced = false;               // ... and whether it was voiced
-    bool last_restricted = false;           // the last voiced frame used a stretch of its span
-    Index change_at = -1;                   // where the newest note's stretch began, full-rate samples
-    double last_period_dec = 0.0;           // period of the last voiced frame, decimated samples (0: none yet)
-    Index last_voiced_f = -1;               // ... and its frame
-    std::array<double, 4> recent_f0{};      // f0 of the last voiced frames, by frame number modulo kSlopeFrames
-    Index recent_run = 0;                   // voiced frames in a row up to the last
+    double last_run_aperiodicity = 1.0;           // of the stretch periodic_stretch() chose last
+    double last_run_period = 0.0;                 // ... and its period, decimated samples
+    double last_t_s = -1.0;                       // t of the last frame delivered
+    bool last_voiced = false;                     // ... and whether it was voiced
+    bool last_restricted = false;                 // the last voiced frame used a stretch of its span
+    std::array<double, 8> recent_aperiodicity{};  // d' of the last voiced frames (a ring, by frame number)
+    Index change_at = -1;                         // where the newest note's stretch began, full-rate samples
+    double last_period_dec = 0.0;                 // period of the last voiced frame, decimated samples (0: none yet)
+    Index last_voiced_f = -1;                     // ... and its frame
+    std::array<double, 4> recent_f0{};            // f0 of the last voiced frames, by frame number modulo kSlopeFrames
+    Index recent_run = 0;                         // voiced frames in a row up to the last
     double slope_power = kStartSlopePower;  // running mean of the square of log f0's slope between frames, (1/s)^2
     // The note being held and the last few before it (remember_note()), periods in decimated samples.
     struct Note {
@@ -359,6 +364,7 @@ struct YinTracker::Impl {
         last_t_s = -1.0;
         last_voiced = false;
         last_restricted = false;
+        recent_aperiodicity.fill(1.0);
         change_at = -1;
         last_period_dec = 0.0;
         last_voiced_f = -1;
@@ -659,6 +665,7 @@ struct YinTracker::Impl {
         }
         recent_f0[static_cast<std::size_t>(f % kSlopeFrames)] = out.f0_hz;
         last_period_dec = T / static_cast<double>(D);
+        recent_aperiodicity[static_cast<std::size_t>(f) % recent_aperiodicity.size()] = aper;
         last_voiced_f = f;
         remember_note(f, last_period_dec);
         out.t_s = t_centre / rate;
@@ -810,7 +817,8 @@ struct YinTracker::Impl {
     }
     // ... with the newest note's period p (decimated samples) already measured.
     bool newest_stretch(Index f, Index m0, std::size_t len, double p, Index& A, Index& B, double& Tc) noexcept {
-        if (!(p > 0.0) || !(last_period_dec > 0.0)) return false;
+        const double held_aperiodicity = *std::min_element(recent_aperiodicity.begin(), recent_aperiodicity.end());
+        if (!(held_aperiodicity < kCleanAperiodicity) || !(p > 0.0) || !(last_period_dec > 0.0)) return false;
         // A change between notes: the newest period is further from the last voiced frame's than a vibrato moves it
         // (kStepReach, and kVibratoReach more for each hop in between), or a change is already under way.
         const double reach =
