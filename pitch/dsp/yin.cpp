@@ -53,8 +53,8 @@ constexpr double kRunFloor = 0.45;        // aperiodicity a block of a periodic 
 constexpr Index kChangeGapFrames = 3;
 // The newest note's stretch found from the span's end (newest_stretch(), in clean conditions only: one of the last 8
 // voiced frames under kCleanAperiodicity): its blocks held under this aperiodicity, and the whole stretch under
-// kNewestRunAperiodicity. Stricter than kRunFloor: a lag 10-20 % off a harmonic voice's period
-// still measures 0.2-0.45 on it, so only a clean stretch is taken (in noise, newest() finds no period first).
+// kNewestRunAperiodicity. Stricter than kRunFloor: a lag 10-20 % off a harmonic voice's period still measures
+// 0.2-0.45 on it.
 constexpr double kNewestRunFloor = 0.15;
 constexpr double kNewestRunAperiodicity = 0.05;
 // White noise at 20 dB SNR leaves a tone's d' near 0.01 (its share of the power, twice over in d); at 10 dB near 0.1,
@@ -176,7 +176,8 @@ struct YinTracker::Impl {
     double last_t_s = -1.0;                       // t of the last frame delivered
     bool last_voiced = false;                     // ... and whether it was voiced
     bool last_restricted = false;                 // the last voiced frame used a stretch of its span
-    std::array<double, 8> recent_aperiodicity{};  // d' of the last voiced frames (a ring, by frame number)
+    std::array<double, 8> recent_aperiodicity{};  // d' of the last voiced frames (a ring)
+    std::size_t recent_aperiodicity_next = 0;     // ... its next slot
     Index change_at = -1;                         // where the newest note's stretch began, full-rate samples
     double last_period_dec = 0.0;                 // period of the last voiced frame, decimated samples (0: none yet)
     Index last_voiced_f = -1;                     // ... and its frame
@@ -365,6 +366,7 @@ struct YinTracker::Impl {
         last_voiced = false;
         last_restricted = false;
         recent_aperiodicity.fill(1.0);
+        recent_aperiodicity_next = 0;
         change_at = -1;
         last_period_dec = 0.0;
         last_voiced_f = -1;
@@ -665,7 +667,7 @@ struct YinTracker::Impl {
         }
         recent_f0[static_cast<std::size_t>(f % kSlopeFrames)] = out.f0_hz;
         last_period_dec = T / static_cast<double>(D);
-        recent_aperiodicity[static_cast<std::size_t>(f) % recent_aperiodicity.size()] = aper;
+        recent_aperiodicity[recent_aperiodicity_next++ % recent_aperiodicity.size()] = aper;
         last_voiced_f = f;
         remember_note(f, last_period_dec);
         out.t_s = t_centre / rate;
