@@ -464,3 +464,43 @@ TEST_CASE("live default floor: a step between notes above 70 Hz settles as with 
         CHECK(both <= short_only + 256);
     }
 }
+
+// A step up to 100 Hz (3/2 -> 15/8 over 53.3 Hz: 80 -> 100 Hz) on the live path, the drone played and removed, and
+// off. YIN needs about two periods of the new note in its window (A. de Cheveigné and H. Kawahara, JASA 111(4), 2002),
+// 20 ms here, and the tracker reads 6 ms past its 30 ms span and publishes per block: a reading within 5 c of the new
+// note by 35 ms after the step is a loose limit (the bench holds the 25 ms bar). On the way no reading may be an
+// octave off, or a blend of the two notes: every voiced reading after the step is within 50 c of the old note or the
+// new one (cents: 1200 log2, Ellis 1885).
+TEST_CASE("live path: a step to 100 Hz reads the new note within 5 c by 35 ms, with no octave error") {
+    const double f_new = 100.0, root = f_new / (15.0 / 8.0);
+    const std::vector<Step> steps = {{0.3, 1.0, "3/2", 1.5}, {1.0, 1.8, "15/8", -2.5}};
+    const double f_old_true = root * 1.5 * std::exp2(1.5 / 1200.0), f_new_true = f_new * std::exp2(-2.5 / 1200.0);
+    const pitch::TargetSet set = just_major();
+    for (const double rate : {44100.0, 48000.0})
+        for (const bool drone_on : {true, false}) {
+            CAPTURE(rate);
+            CAPTURE(drone_on);
+            test::LiveRig rig(rate, 256);
+            rig.voice = voice_of(steps, root, rate, 1.9, 0.1);
+            open_over_root(rig, root, set, drone_on);
+            rig.run();
+            const StepCheck c = check_step(rig.readings, steps[1], root, rate, set, 5.0);
+            MESSAGE("settled within 5 c ", 1000.0 * static_cast<double>(c.settle_samples) / rate, " ms after the step");
+            CHECK(c.settle_samples >= 0);
+            CHECK(c.settle_samples <= static_cast<std::int64_t>(0.035 * rate));
+            int voiced = 0, octave = 0, blend = 0;
+            for (const auto& s : rig.readings) {
+                if (s.r.t_s < steps[1].start_s || s.r.t_s > steps[1].end_s - 0.05 || !s.r.voiced()) continue;
+                ++voiced;
+                const double to_new = 1200.0 * std::log2(s.r.f0_hz / f_new_true);
+                const double to_old = 1200.0 * std::log2(s.r.f0_hz / f_old_true);
+                if (std::fabs(std::fabs(to_new) - 1200.0) < 100.0 || std::fabs(std::fabs(to_old) - 1200.0) < 100.0)
+                    ++octave;
+                else if (std::fabs(to_new) > 50.0 && std::fabs(to_old) > 50.0)
+                    ++blend;
+            }
+            CHECK(voiced > 100);
+            CHECK(octave == 0);
+            CHECK(blend == 0);
+        }
+}

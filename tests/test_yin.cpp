@@ -890,6 +890,22 @@ TEST_CASE("PeriodicRun: a change of period inside a span is found where it was m
     CHECK(whole.whole);
     // The newest note's period, from the last quarter of the span.
     CHECK(runs.newest_period(x.data(), len, 20, 200, 0.1) == doctest::Approx(80.0).epsilon(0.01));
+    // A run taken to cover the whole span at 80 (as a loose floor may leave it): tightened to the samples periodic to
+    // within 1 %, it starts at the change (the pairs from there compare the new note with itself only); asking for
+    // more samples than the new note has finds nothing.
+    REQUIRE(runs.find(x.data(), len, 80.0, 0.0, 300, 0.45).found);
+    pitch::PeriodicRun::Result loose;
+    loose.found = true;
+    loose.begin = 0;
+    loose.end = len;
+    const auto tight = runs.tightened(loose, 0.01, 5, 300);
+    REQUIRE(tight.found);
+    CHECK_FALSE(tight.whole);
+    CHECK(tight.begin >= change - 20);
+    CHECK(tight.begin <= change + 5);
+    CHECK(tight.end == len);
+    CHECK(tight.aperiodicity < 0.01);
+    CHECK_FALSE(runs.tightened(loose, 0.01, 5, len - change + 50).found);
 }
 
 // Octave choice in brown noise (YIN's "too high" errors, de Cheveigné and Kawahara 2002, sec. II.C): a sung /a/

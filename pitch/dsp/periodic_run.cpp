@@ -58,6 +58,18 @@ double PeriodicRun::block_aperiodicity(std::size_t n0, std::size_t n1) const noe
     return e > 0.0 ? (q_[n1] - q_[n0]) / e : 1.0;
 }
 
+PeriodicRun::Result PeriodicRun::tightened(Result r, double target, std::size_t step,
+                                           std::size_t min_len) const noexcept {
+    if (!r.found || pairs_ == 0 || step == 0) return Result{};
+    std::size_t p0 = r.begin;
+    while (p0 + step < pairs_ && block_aperiodicity(p0, pairs_) >= target) p0 += step;
+    r.aperiodicity = block_aperiodicity(p0, pairs_);
+    r.begin = p0;
+    r.whole = false;
+    if (!(r.aperiodicity < target) || r.end < p0 + min_len) return Result{};
+    return r;
+}
+
 PeriodicRun::Result PeriodicRun::find(const float* y, std::size_t len, double lag, double slope, std::size_t min_len,
                                       double floor, bool forgive_lone) noexcept {
     Result r;

@@ -41,6 +41,11 @@ public:
     // Aperiodicity of one block of samples [n0, n1) of the last find() (n: the first sample of each pair).
     double block_aperiodicity(std::size_t n0, std::size_t n1) const noexcept;
 
+    // The run r of the last find() that reaches the span's end, its start moved later (by steps of `step` pairs)
+    // until the pairs from it are periodic to within `target` aperiodicity; not found when fewer than min_len
+    // samples remain. Allocates: no.
+    Result tightened(Result r, double target, std::size_t step, std::size_t min_len) const noexcept;
+
 private:
     std::size_t max_len_, max_lag_;
     std::vector<double> d_, dn_;  // the newest part's difference function and its normalised form

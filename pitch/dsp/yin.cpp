@@ -48,6 +48,22 @@ constexpr double kCoarseLagError = 0.3;            // assumed parabola error on 
 constexpr double kRunLagError = 0.5;      // assumed error of a neighbour's coarse period used alone, decimated samples
 constexpr double kNewestThreshold = 0.1;  // YIN threshold for the newest note's period (stricter than the frame's)
 constexpr double kRunFloor = 0.45;        // aperiodicity a block of a periodic stretch may always have (45 %)
+// A frame left unvoiced within this many frames of the last voiced one may still be a change between notes (the
+// frames just after a change hold both notes in their span).
+constexpr Index kChangeGapFrames = 3;
+// The newest note's stretch found from the span's end (newest_stretch(), in clean conditions only: one of the last 8
+// voiced frames under kCleanAperiodicity): its blocks held under this aperiodicity, and the whole stretch under
+// kNewestRunAperiodicity. Stricter than kRunFloor: a lag 10-20 % off a harmonic voice's period still measures
+// 0.2-0.45 on it.
+constexpr double kNewestRunFloor = 0.15;
+constexpr double kNewestRunAperiodicity = 0.05;
+// White noise at 20 dB SNR leaves a tone's d' near 0.01 (its share of the power, twice over in d); at 10 dB near 0.1,
+// where short stretches of the noise itself can measure under kNewestRunAperiodicity.
+constexpr double kCleanAperiodicity = 0.02;
+// ... and only for a change of note: a period this far (3 %, half a semitone) from the last voiced frame's, and
+// kVibratoReach further for each hop between them (a vibrato of +-100 c at 7.5 Hz moves the period 1.4 % in a hop).
+constexpr double kStepReach = 0.03;
+constexpr double kVibratoReach = 0.015;
 // Fastest sweep of log f0 the periodic-stretch test follows, 1/s: a vibrato of
 // +-100 cents at 7.5 Hz sweeps 2 pi 7.5 Hz x 100 / 1731 = 2.7 per second.
 constexpr double kMaxSweep = 3.5;
@@ -155,16 +171,18 @@ struct YinTracker::Impl {
     LagRefiner mid;
     NoiseFloor noise_floor;
     PeriodicRun runs;
-    double last_run_aperiodicity = 1.0;     // of the stretch periodic_stretch() chose last
-    double last_run_period = 0.0;           // ... and its period, decimated samples
-    double last_t_s = -1.0;                 // t of the last frame delivered
-    bool last_voiced = false;               // ... and whether it was voiced
-    bool last_restricted = false;           // the last voiced frame used a stretch of its span
-    Index change_at = -1;                   // where the newest note's stretch began, full-rate samples
-    double last_period_dec = 0.0;           // period of the last voiced frame, decimated samples (0: none yet)
-    Index last_voiced_f = -1;               // ... and its frame
-    std::array<double, 4> recent_f0{};      // f0 of the last voiced frames, by frame number modulo kSlopeFrames
-    Index recent_run = 0;                   // voiced frames in a row up to the last
+    double last_run_aperiodicity = 1.0;           // of the stretch periodic_stretch() chose last
+    double last_run_period = 0.0;                 // ... and its period, decimated samples
+    double last_t_s = -1.0;                       // t of the last frame delivered
+    bool last_voiced = false;                     // ... and whether it was voiced
+    bool last_restricted = false;                 // the last voiced frame used a stretch of its span
+    std::array<double, 8> recent_aperiodicity{};  // d' of the last voiced frames (a ring)
+    std::size_t recent_aperiodicity_next = 0;     // ... its next slot
+    Index change_at = -1;                         // where the newest note's stretch began, full-rate samples
+    double last_period_dec = 0.0;                 // period of the last voiced frame, decimated samples (0: none yet)
+    Index last_voiced_f = -1;                     // ... and its frame
+    std::array<double, 4> recent_f0{};            // f0 of the last voiced frames, by frame number modulo kSlopeFrames
+    Index recent_run = 0;                         // voiced frames in a row up to the last
     double slope_power = kStartSlopePower;  // running mean of the square of log f0's slope between frames, (1/s)^2
     // The note being held and the last few before it (remember_note()), periods in decimated samples.
     struct Note {
@@ -347,6 +365,8 @@ struct YinTracker::Impl {
         last_t_s = -1.0;
         last_voiced = false;
         last_restricted = false;
+        recent_aperiodicity.fill(1.0);
+        recent_aperiodicity_next = 0;
         change_at = -1;
         last_period_dec = 0.0;
         last_voiced_f = -1;
@@ -647,6 +667,7 @@ struct YinTracker::Impl {
         }
         recent_f0[static_cast<std::size_t>(f % kSlopeFrames)] = out.f0_hz;
         last_period_dec = T / static_cast<double>(D);
+        recent_aperiodicity[recent_aperiodicity_next++ % recent_aperiodicity.size()] = aper;
         last_voiced_f = f;
         remember_note(f, last_period_dec);
         out.t_s = t_centre / rate;
@@ -765,13 +786,15 @@ struct YinTracker::Impl {
         if (f < 1) return;
         const Coarse& prev = ring[static_cast<std::size_t>((f - 1) % 3)];
         const Coarse& next = ring[static_cast<std::size_t>((f + 1) % 3)];
-        if (!last_voiced) return;  // an onset is the voicing's business, not a change between notes
+        // An onset is the voicing's business, not a change between notes; a change may leave the frames just after
+        // it unvoiced (two notes in the span), and it is still a change.
+        if (!last_voiced && !(last_voiced_f >= 0 && f - last_voiced_f <= kChangeGapFrames)) return;
         Index A = lo, B = lo + span;
         double Tc = 0.0;
         const double guess = last_restricted                     ? last_run_period
                              : next.aperiodicity < cfg.threshold ? next.period_dec
                                                                  : prev.period_dec;
-        if (!periodic_stretch(f, guess, A, B, Tc) || !(last_run_aperiodicity < cfg.threshold)) return;
+        if (!periodic_stretch(f, guess, A, B, Tc, !last_voiced) || !(last_run_aperiodicity < cfg.threshold)) return;
         period = Tc / static_cast<double>(dec_factor);
         aper = std::min(aper, last_run_aperiodicity);
     }
@@ -788,14 +811,69 @@ struct YinTracker::Impl {
         return p_hi < kSteadyRatio * p_lo && a_hi < 2.0 * a_lo + 0.02;
     }
 
+    // The newest note's stretch when the span holds a change that the frame's own period blurs: the period of the
+    // span's end (newest()), periodic from some way into the span to its end, and clearly so. Sets A, B and Tc as
+    // periodic_stretch() does.
+    bool newest_stretch(Index f, Index m0, std::size_t len, Index& A, Index& B, double& Tc) noexcept {
+        return newest_stretch(f, m0, len, newest(m0, len), A, B, Tc);
+    }
+    // ... with the newest note's period p (decimated samples) already measured.
+    bool newest_stretch(Index f, Index m0, std::size_t len, double p, Index& A, Index& B, double& Tc) noexcept {
+        const double held_aperiodicity = *std::min_element(recent_aperiodicity.begin(), recent_aperiodicity.end());
+        if (!(held_aperiodicity < kCleanAperiodicity) || !(p > 0.0) || !(last_period_dec > 0.0)) return false;
+        // A change between notes: the newest period is further from the last voiced frame's than a vibrato moves it
+        // (kStepReach, and kVibratoReach more for each hop in between), or a change is already under way.
+        const double reach =
+            kStepReach + kVibratoReach * static_cast<double>(std::max<Index>(0, f - last_voiced_f - 1));
+        if (!last_restricted && !(std::fabs(last_period_dec / p - 1.0) > reach)) return false;
+        PeriodicRun::Result r = runs.find(yp(m0), len, p, 0.0, stretch_min_len(p), kNewestRunFloor, false);
+        if (r.found && !r.whole && r.begin > 0 && !(r.aperiodicity < kNewestRunAperiodicity))
+            r = runs.tightened(r, kNewestRunAperiodicity, std::max<std::size_t>(2, static_cast<std::size_t>(p / 8.0)),
+                               stretch_min_len(p));
+        if (!r.found || r.whole || r.begin == 0 || r.end + 2 < len || !(r.aperiodicity < kNewestRunAperiodicity))
+            return false;
+        // The note before it ends where it begins: a blend of both notes over the change can look periodic at a
+        // period between them for a short while, but then the old note's own stretch reaches well into it.
+        const double old_p = last_period_dec;
+        if (std::fabs(old_p / p - 1.0) > kStepReach) {
+            const PeriodicRun::Result o =
+                runs.find(yp(m0), len, old_p, 0.0, static_cast<std::size_t>(std::ceil(old_p)), kNewestRunFloor, false);
+            if (o.found && static_cast<double>(o.end) - old_p > static_cast<double>(r.begin) + 0.25 * p) return false;
+        }
+        take_stretch(m0, r, p, A, B, Tc);
+        return true;
+    }
+
+    // The samples a stretch needs at the period p (decimated samples): 1.5 periods and the refiner's margins.
+    std::size_t stretch_min_len(double p) const noexcept {
+        const auto D = static_cast<double>(dec_factor);
+        const double t = p * D;
+        return static_cast<std::size_t>(
+                   std::ceil((t + std::max(0.5 * t, 96.0) + static_cast<double>(2 * kFineMargin + 2)) / D)) +
+               2;
+    }
+
+    // Narrows [A, B) to the stretch r found in the decimated samples from m0, at the period p.
+    void take_stretch(Index m0, const PeriodicRun::Result& r, double p, Index& A, Index& B, double& Tc) noexcept {
+        const Index D = static_cast<Index>(dec_factor);
+        last_run_aperiodicity = r.aperiodicity;
+        last_run_period = p;
+        const Index span_end = B;
+        A = std::max(A, (m0 + static_cast<Index>(r.begin)) * D);
+        B = std::min(B, (m0 + static_cast<Index>(r.end) - 1) * D + 1);
+        if (B + 2 * D >= span_end && r.begin > 0) change_at = A;  // the newest note, from its start
+        Tc = p * static_cast<double>(D);
+    }
+
     // Where the span [A, B) holds a note change, narrows it to the periodic
     // stretch (pitch/dsp/periodic_run.h) at the frame's own period or a
     // neighbour's, the one that ends last (the newest note), and sets Tc
     // (full-rate samples) to that period. The lag may follow the slope the
     // neighbours' coarse periods show (a vibrato's sweep), up to kMaxSweep.
     // Returns false (the span unchanged) when the span is periodic throughout
-    // or no stretch is long enough.
-    bool periodic_stretch(Index f, double period, Index& A, Index& B, double& Tc) noexcept {
+    // or no stretch is long enough. newest_only: only a clean stretch of a new
+    // note will do (newest_stretch(); a frame after unvoiced ones).
+    bool periodic_stretch(Index f, double period, Index& A, Index& B, double& Tc, bool newest_only = false) noexcept {
         const Index D = static_cast<Index>(dec_factor);
         const Index m0 = floor_div(A + D - 1, D), m1 = floor_div(B - 1, D) + 1;
         if (m1 - m0 < 32 || f < 1) return false;
@@ -803,24 +881,23 @@ struct YinTracker::Impl {
         const Coarse& prev = ring[static_cast<std::size_t>((f - 1) % 3)];
         const Coarse& next = ring[static_cast<std::size_t>((f + 1) % 3)];
         if (!last_restricted && steady(prev, ring[static_cast<std::size_t>(f % 3)], next)) return false;
+        if (newest_only) return newest_stretch(f, m0, len, A, B, Tc);
         const double hop_dec = static_cast<double>(hop) / static_cast<double>(D);
         double slope = 0.0;
         if (prev.aperiodicity < cfg.threshold && next.aperiodicity < cfg.threshold) {
             const double s = (next.period_dec - prev.period_dec) / (2.0 * hop_dec);
             if (std::fabs(s) <= kMaxSweep * period / rate_dec) slope = s;
         }
-        auto min_len = [&](double p) {
-            const double t = p * static_cast<double>(D);
-            return static_cast<std::size_t>(
-                       std::ceil((t + std::max(0.5 * t, 96.0) + static_cast<double>(2 * kFineMargin + 2)) /
-                                 static_cast<double>(D))) +
-                   2;
-        };
-        PeriodicRun::Result best = runs.find(yp(m0), len, period, slope, min_len(period), kRunFloor, !last_restricted);
+        PeriodicRun::Result best =
+            runs.find(yp(m0), len, period, slope, stretch_min_len(period), kRunFloor, !last_restricted);
+        // Just after a change the coarse period blends both notes, and the span measures loosely periodic at it
+        // (under kRunFloor) throughout: the newest note's own period, from the span's end, may show the change.
+        if (best.whole && best.aperiodicity > kNewestRunAperiodicity && newest_stretch(f, m0, len, A, B, Tc))
+            return true;
         if (best.whole && !(last_restricted && best.aperiodicity > kNewestThreshold)) {
             // A change found by the frames before stays cut out while the span still holds it (a small step's
             // old note may measure under the threshold at the span's edge, yet pull the estimate).
-            const auto need = static_cast<Index>(min_len(period)) * D;
+            const auto need = static_cast<Index>(stretch_min_len(period)) * D;
             if (!last_restricted || !(change_at > A) || change_at + need > B) return false;
             A = change_at;
             Tc = period * static_cast<double>(D);
@@ -835,7 +912,7 @@ struct YinTracker::Impl {
                                   last_restricted ? last_run_period : 0.0};
         for (const double p : others) {
             if (!(p > 0.0) || std::fabs(p / period - 1.0) < 0.015) continue;
-            const PeriodicRun::Result r = runs.find(yp(m0), len, p, slope, min_len(p), kRunFloor);
+            const PeriodicRun::Result r = runs.find(yp(m0), len, p, slope, stretch_min_len(p), kRunFloor);
             if (r.found && (!best.found || newer(r, best))) {
                 best = r;
                 best_period = p;
@@ -843,8 +920,9 @@ struct YinTracker::Impl {
         }
         if (!best.found || best.end + 2 < len) {
             const double p = newest(m0, len);
+            if (newest_stretch(f, m0, len, p, A, B, Tc)) return true;
             if (p > 0.0 && std::fabs(p / best_period - 1.0) >= 0.015) {
-                const PeriodicRun::Result r = runs.find(yp(m0), len, p, 0.0, min_len(p), kRunFloor);
+                const PeriodicRun::Result r = runs.find(yp(m0), len, p, 0.0, stretch_min_len(p), kRunFloor);
                 if (r.found && (!best.found || newer(r, best))) {
                     best = r;
                     best_period = p;
@@ -852,13 +930,7 @@ struct YinTracker::Impl {
             }
         }
         if (!best.found || !(best.aperiodicity < cfg.threshold)) return false;
-        last_run_aperiodicity = best.aperiodicity;
-        last_run_period = best_period;
-        const Index span_end = B;
-        A = std::max(A, (m0 + static_cast<Index>(best.begin)) * D);
-        B = std::min(B, (m0 + static_cast<Index>(best.end) - 1) * D + 1);
-        if (B + 2 * D >= span_end && best.begin > 0) change_at = A;  // the newest note, from its start
-        Tc = best_period * static_cast<double>(D);
+        take_stretch(m0, best, best_period, A, B, Tc);
         return true;
     }
 

@@ -116,6 +116,7 @@ void latency(const bench::Context& ctx) {
     const double f0s[] = {100.0, 150.0, 220.0, 330.0, 440.0};
     double worst_5c = 0.0, worst_1c = 0.0, worst_excess = 0.0, worst_past_bound = 0.0;
     int worst_mix_100 = 0;
+    double worst_delay_s = 0.0;
     int met5 = 0, met1 = 0, runs = 0;
     const struct {
         double rate;
@@ -127,12 +128,14 @@ void latency(const bench::Context& ctx) {
             if (ctx.quick && f_new != 220.0) continue;
             const Settled on = step_over_drone(rate, su.block, f_new, true);
             const Settled alone = step_over_drone(rate, su.block, f_new, false);
-            // What bounds it: the first frame on the new note may use only the samples after the change, at least
-            // 1.5 periods and the refiner's margins (min_len in pitch/dsp/yin.cpp); it is complete once those have
-            // arrived and the tracker's lookahead past its span's end (delay minus half the span) has passed
-            // ("first"), and is published at the end of the block holding that sample ("bound").
+            // What bounds it: YIN needs about two periods of the new note in its window (A. de Cheveigne and
+            // H. Kawahara, JASA 111(4), 2002), and the refiner at least its 96-sample window past one period
+            // (pitch/dsp/yin.cpp); the first frame on the new note is complete once those have arrived and the
+            // tracker's lookahead past its span's end (delay minus half the span) has passed ("first"), and is
+            // published at the end of the block holding that sample ("bound"). Frames lie on the hop's grid: the
+            // first one whose span holds the two periods may come up to one hop later.
             const double T = rate / f_new;
-            const double stretch_s = (T + std::max(0.5 * T, 96.0) + 16.0) / rate;
+            const double stretch_s = (T + std::max(T, 96.0) + 16.0) / rate;
             const double first_s = stretch_s + on.delay_s - 0.5 * live_span_s(rate);
             const double blocks = std::ceil((1.0 + first_s) * rate / static_cast<double>(su.block));
             const double bound_ms = 1000.0 * (blocks * static_cast<double>(su.block) / rate - 1.0);
@@ -150,6 +153,7 @@ void latency(const bench::Context& ctx) {
                         f_new, on.ms5, verdict(on.ms5, kBar5_ms), on.ms1, verdict(on.ms1, kBar1_ms), alone_s,
                         1000.0 * on.delay_s, 1000.0 * first_s, bound_ms, mix_s);
             if (f_new == 100.0) worst_mix_100 = std::max(worst_mix_100, on.mixed + on.unvoiced);
+            worst_delay_s = std::max(worst_delay_s, on.delay_s);
         }
     }
     std::printf(
@@ -160,18 +164,18 @@ void latency(const bench::Context& ctx) {
         "drone removal adds at most %.1f ms to the tracker alone; the tracker alone settles (5 c) at most %.1f ms "
         "after the bound\n",
         worst_excess, worst_past_bound);
+    // The bound at 100 Hz, the bar's lowest f0: two periods (20 ms) and the tracker's lookahead past its span.
+    const double lookahead_ms = 1000.0 * (worst_delay_s - 0.5 * live_span_s(48000.0));
     std::printf(
-        "what bounds it: the estimator's own group delay. The first frame on the new note can use only the samples\n"
-        "after the change (1.5 periods and the refiner's margins) and is complete after the tracker's lookahead past\n"
-        "its span (delay minus half the span): 'first'; it is published at the end of that block: 'bound'. Past the\n"
-        "bound (100 Hz, some 150 Hz): the first frames after the change mix both notes (unvoiced or 60 c off) until\n"
-        "the stretch after the change is long enough for the tracker to narrow to: 'mix/unv' counts the frames "
-        "centred\n"
-        "after the change, before the reading settles, that read neither note within 5 c / are unvoiced.\n"
-        "How close: at 100 Hz up to %d such frames (one hop, 5 ms, each) stand between the bound and the reading; the\n"
-        "bound itself (the short window's lookahead and 1.5 periods of the new note) is under the 25 ms bar.\n"
+        "bound: YIN needs about two periods of the new note in its span (de Cheveigne & Kawahara 2002): 20 ms at\n"
+        "100 Hz; a frame is complete %.1f ms (the tracker's lookahead) after its span ends, so the first reading on\n"
+        "the new note comes %.1f ms after the step at best ('first'), at the end of that block ('bound'), and up to\n"
+        "one hop (5 ms) later on the frame grid. At 100 Hz that is over the 25 ms bar: a reading by 25 ms would have\n"
+        "at most %.1f ms (%.2f periods) of the new note in its span, fewer on the frame and block grid.\n"
+        "'mix/unv' counts the frames centred after the change, before the reading settles, that read neither note\n"
+        "within 5 c / are unvoiced (at 100 Hz at most %d).\n"
         "(-1.0: did not settle)\n\n",
-        worst_mix_100);
+        lookahead_ms, 20.0 + lookahead_ms, kBar5_ms - lookahead_ms, (kBar5_ms - lookahead_ms) / 10.0, worst_mix_100);
 
     // Under the short window's floor (70 Hz): the default (60 Hz) and the settings' lower floors for a low bass voice
     // and double bass, read by the second window with the span they need. No bar; the price of range.
