@@ -164,6 +164,10 @@ void run_with(bench::Context& ctx, const pitch::TwoVoiceConfig& base, bool cpu) 
             const double truth = std::fabs(q * c.f_low * c.ratio * detune - p * c.f_low);
             if (!std::isfinite(last_steady->measured_beat_hz)) {
                 ++beat_missing;
+                if (std::getenv("BEATLESS_BENCH_DUO_TRACE"))
+                    std::printf(
+                        "    case %zu: %.4f, upper -%.0f dB, SNR %.0f dB, f_low %.1f Hz: no beat measured (%s)\n", ci,
+                        c.ratio, c.level_db, c.snr_db, c.f_low, last_steady->fast ? "fast" : "slow");
             } else {
                 const double e = std::fabs(last_steady->measured_beat_hz - truth);
                 beat_err_ok.push_back(e);
