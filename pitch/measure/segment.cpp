@@ -235,8 +235,12 @@ bool NoteSegmenter::close(std::size_t m, bool truncated, NoteResult& out) noexce
             start_with(m);
             return false;
         }
+        // A gap is a step over the hop's jitter (frames 1.5 hops apart and more).
+        const double gap_s = 1.5 * cfg_.hop_s;
+        r.dropout_bias_cents = ns >= 2 ? dropout_bias(&t_[s_idx], &c_[s_idx], ns, t_[s_idx], t_[me - 1], gap_s) : 0.0;
         if (cs.found && cs.depth >= cfg_.vibrato.min_depth_cents) {
             centre = cs.mean;
+            r.dropout_bias_cents = dropout_bias(&t_[s_idx], &c_[s_idx], ns, cs.t_first_s, cs.t_last_s, gap_s);
             r.vibrato = true;
             r.vibrato_rate_hz = cs.rate_hz;
             r.vibrato_depth_cents = cs.depth;

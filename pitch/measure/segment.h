@@ -66,6 +66,9 @@ struct NoteResult {
     double confidence = 0.0;           // mean tracker confidence of the note's frames (0..1)
     double settle_s = NAN;             // onset to settled within settle_cents; NaN if it never settled
     bool vibrato = false;              // whole vibrato cycles were averaged
+    double dropout_bias_cents = 0.0;   // how far the dropouts inside the averaged stretch may have moved the centre
+                                       //   (pitch/dsp/whole_cycles.h, dropout_bias; + the centre may read flat):
+                                       //   a voice whose vibrato crests fade into the drone's notch loses them
     double vibrato_rate_hz = 0.0;
     double vibrato_depth_cents = 0.0;
     // The audible pair (pitch/theory/beats.h, audible_pair) for the target and the
