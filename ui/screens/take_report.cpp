@@ -223,7 +223,10 @@ struct Ink {
     }
 };
 
+// A mark's colour by its deviation (the legend's bands); one without a deviation (between targets, unsure) is in the
+// soft ink: no band is true of it.
 ImU32 mark_colour(double dev_cents) {
+    if (!std::isfinite(dev_cents)) return kSoftInk;
     const double a = std::fabs(dev_cents);
     return a <= 5.0 ? kReportGood : a <= 15.0 ? kReportFair : kReportPoor;
 }
