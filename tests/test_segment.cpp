@@ -256,3 +256,37 @@ TEST_CASE("no voice, only the drone, long notes and bad settings") {
     cfg.root_hz = -3.0;
     CHECK(error_of<Error>([&] { NoteSegmenter s(cfg, set); }).find("root") != std::string::npos);
 }
+
+TEST_CASE("a tracker slip after a dropout is a dropout; a real leap starts the next note where it happens") {
+    // 7/5 over 220 Hz with a 30 c vibrato; 1.0 s in, 30 ms of nothing, then 60 ms an octave low (a tracker slip in
+    // noise), then the note again. Before, the slip after a dropout longer than max_gap_s (40 ms) ended the note and
+    // began another: one note sung, two reported. The slip is held aside and dropped when the pitch comes back.
+    const TargetSet set = tritone_set();
+    Note n;
+    n.start_s = 0.2;
+    n.end_s = 2.2;
+    n.centre_hz = 220.0 * 7.0 / 5.0;
+    n.vib_rate_hz = 5.5;
+    n.vib_depth_cents = 30.0;
+    auto frames = frames_of({n}, 2.4, 0.005, 0.3, 9);
+    for (auto& f : frames) {
+        if (f.t_s > 1.0 && f.t_s < 1.03) f.f0_hz = 0.0;
+        if (f.t_s >= 1.03 && f.t_s < 1.09) f.f0_hz *= 0.5;
+    }
+    SegmentConfig cfg;
+    cfg.root_hz = 220.0;
+    const auto one = segment(frames, cfg, set);
+    REQUIRE(one.size() == 1);
+    CHECK(std::fabs(one[0].dev_cents) < 1.0);
+
+    // A leap of a fifth (702 c, past outlier_cents) with no rest: the next note starts at the leap, within two hops,
+    // not when the first note's frames had been missing for max_gap_s.
+    Note m = n;
+    n.end_s = 1.2;
+    m.start_s = 1.2;
+    m.centre_hz = n.centre_hz * 1.5;
+    const auto two = segment(frames_of({n, m}, 2.4, 0.005, 0.3, 10), cfg, set);
+    REQUIRE(two.size() == 2);
+    CHECK(std::fabs(two[0].end_s - 1.2) < 0.01);
+    CHECK(std::fabs(two[1].start_s - 1.2) < 0.01);
+}

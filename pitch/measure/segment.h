@@ -29,8 +29,9 @@ struct SegmentConfig {
     double bridge_s = 0.12;                    // ... and up to this when the pitch comes back within change_cents
                                                //   of the note (dropouts in noise; default 120 ms)
     double outlier_cents = 150.0;              // a frame this far from the note's recent median is a tracker slip
-                                               //   (an octave or fifth in noise): left out like a dropout
-                                               //   (default 150 cents)
+                                               //   (an octave or fifth in noise): held aside, and left out like a
+                                               //   dropout when the pitch comes back within bridge_s; else the
+                                               //   next note starts with it (default 150 cents)
     double max_spread_cents = 100.0;           // a "note" whose pitch wanders more than this (standard deviation)
                                                //   is the tracker lost in noise, not a held note: dropped and
                                                //   counted with the short ones (default 100 cents; a +-100 c
@@ -101,6 +102,7 @@ public:
 private:
     void start_with(std::size_t from) noexcept;  // keep frames [from, n_) as the new note
     bool close(std::size_t m, bool truncated, NoteResult& out) noexcept;
+    bool close_before_held(NoteResult& out) noexcept;  // close the note; the frames held aside start the next
     std::size_t split_point(double after) const noexcept;
     void add_frame(double t_s, double cents) noexcept;
 
@@ -109,6 +111,8 @@ private:
     VibratoCentre vib_;
     std::size_t cap_ = 0;
     std::size_t n_ = 0;               // frames in the open note
+    std::size_t held_ = 0;            // frames after them held aside (t_, c_, conf_ [n_, n_ + held_)): slips or the
+                                      //   next note's start, until the pitch comes back or bridge_s passes
     double recent_median() noexcept;  // median of the last smooth_n_ frames (fewer at the start)
 
     std::vector<double> t_, c_, centre_, win_start_, scratch_, recent_, conf_;
