@@ -615,7 +615,7 @@ float ReviewScreen::draw_duo_detail(AppState& app, ImDrawList* dl, float x, floa
     const auto at = static_cast<std::size_t>(selected_);
     const bool unsure = at < a.judged.size() && a.judged[at].unsure();
     std::string big = unsure ? "unsure" : "between targets", against;
-    if (unsure) against = judgement_words(a.judged[at], take_->set, true).substr(std::string("unsure: ").size());
+    if (unsure) against = unsure_words(a.judged[at]);
     std::uint32_t colour = palette::kTextDim;
     const double in_tune = app.settings().in_tune_cents;
     if (std::isfinite(d.dev_cents)) {
@@ -823,7 +823,7 @@ float ReviewScreen::draw_note_detail(AppState& app, ImDrawList* dl, float x, flo
         against = "against " + tgt + (j.meant_index >= 0 ? ", the target meant" : ", the nearest target");
     } else if (j.unsure()) {
         big = "unsure";
-        against = judgement_words(j, take_->set, false).substr(std::string("unsure: ").size());
+        against = unsure_words(j);
     } else {
         big = "between targets";
         against = off_words(j.nearest.dev_cents, false) + " of " +

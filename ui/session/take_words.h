@@ -33,6 +33,8 @@ std::string summary_words(const pitch::TargetSummary& row, const std::string& na
 // "unsure: dropouts in noise may move it 4.6 c" (pitch::judge_dropouts). Between two voices (intervals true): narrow
 // and wide.
 std::string judgement_words(const pitch::NoteJudgement& j, const pitch::TargetSet& set, bool intervals);
+// Why an unsure note has no deviation: "dropouts in noise may move it 4.6 c" (judgement_words says "unsure: " first).
+std::string unsure_words(const pitch::NoteJudgement& j);
 // What a mark without a deviation says on the plots: "unsure" or "between targets" (short: "between").
 std::string no_deviation_word(const pitch::NoteJudgement& j, bool short_form);
 // "12 c flat", "0.5 c sharp", "in tune"; narrow and wide between two voices.
