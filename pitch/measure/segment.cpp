@@ -103,6 +103,7 @@ void NoteSegmenter::start_with(std::size_t from) noexcept {
     std::memmove(c_.data(), c_.data() + from, keep * sizeof(double));
     std::memmove(conf_.data(), conf_.data() + from, keep * sizeof(double));
     n_ = 0;
+    cut_before_ = false;
     vib_.reset();
     smooth_sum_ = 0.0;
     anchor_ = NAN;
@@ -139,13 +140,14 @@ bool NoteSegmenter::push(const PitchFrame& frame, NoteResult& out) noexcept {
         }
     }
     if (!voiced) {
-        if (n_ > 0 && gap_s > cfg_.bridge_s) return close_before_held(out);
+        if (n_ > 0 && gap_s > cfg_.bridge_s) return close_before_held(out, false);
         return false;
     }
     bool emitted = false;
     if (n_ > 0 && after_gap &&
         (gap_s > cfg_.bridge_s + 0.5 * cfg_.hop_s || std::fabs(cents - recent_median()) > cfg_.change_cents)) {
-        emitted = close_before_held(out);
+        // Within bridge_s the pitch came back elsewhere: the dropout cut the note here.
+        emitted = close_before_held(out, gap_s <= cfg_.bridge_s + 0.5 * cfg_.hop_s);
     } else {
         held_ = 0;  // back at the note: the frames held aside were slips
         if (n_ == cap_) emitted = close(n_, true, out);
@@ -190,11 +192,17 @@ std::size_t NoteSegmenter::split_point(double after) const noexcept {
 }
 
 // Ends the note at its last frame; the frames held aside begin the next.
-bool NoteSegmenter::close_before_held(NoteResult& out) noexcept {
+bool NoteSegmenter::close_before_held(NoteResult& out, bool cut) noexcept {
     const std::size_t m = n_;
+    // Cut by a dropout also when the frames held aside came after one longer than max_gap_s.
+    cut = cut || (held_ > 0 && t_[n_] - t_[n_ - 1] > cfg_.max_gap_s + 0.5 * cfg_.hop_s);
     n_ += held_;
     held_ = 0;
-    return close(m, false, out);
+    cut_after_ = cut;
+    const bool emitted = close(m, false, out);
+    cut_after_ = false;
+    cut_before_ = cut;  // the next note begins with the held frames
+    return emitted;
 }
 
 bool NoteSegmenter::finish(NoteResult& out) noexcept {
@@ -265,6 +273,12 @@ bool NoteSegmenter::close(std::size_t m, bool truncated, NoteResult& out) noexce
             r.vibrato = true;
             r.vibrato_rate_hz = cs.rate_hz;
             r.vibrato_depth_cents = cs.depth;
+        }
+        // A piece of a note cut off by a dropout, too short for a whole cycle of the slowest vibrato and without one:
+        // its mean is of part of a cycle, and the centre of the vibrato may lie as far as any pitch the piece heard.
+        if ((cut_before_ || cut_after_) && !r.vibrato && dur < 1.0 / cfg_.vibrato.min_rate_hz) {
+            const auto [lo, hi] = std::minmax_element(c_.begin(), c_.begin() + static_cast<std::ptrdiff_t>(me));
+            r.dropout_bias_cents = std::max({std::fabs(r.dropout_bias_cents), *hi - centre, centre - *lo});
         }
         double cm = 0.0;
         mean_and_spread(&centre_[s_idx], ns, cm, r.centre_spread_cents);

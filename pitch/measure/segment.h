@@ -69,7 +69,9 @@ struct NoteResult {
     bool vibrato = false;              // whole vibrato cycles were averaged
     double dropout_bias_cents = 0.0;   // how far the dropouts inside the averaged stretch may have moved the centre
                                        //   (pitch/dsp/whole_cycles.h, dropout_bias; + the centre may read flat):
-                                       //   a voice whose vibrato crests fade into the drone's notch loses them
+                                       //   a voice whose vibrato crests fade into the drone's notch loses them.
+                                       //   A piece cut off by a dropout, shorter than a vibrato cycle: as far as
+                                       //   the farthest pitch it heard
     double vibrato_rate_hz = 0.0;
     double vibrato_depth_cents = 0.0;
     // The audible pair (pitch/theory/beats.h, audible_pair) for the target and the
@@ -102,7 +104,9 @@ public:
 private:
     void start_with(std::size_t from) noexcept;  // keep frames [from, n_) as the new note
     bool close(std::size_t m, bool truncated, NoteResult& out) noexcept;
-    bool close_before_held(NoteResult& out) noexcept;  // close the note; the frames held aside start the next
+    // Closes the note; the frames held aside start the next. cut: a dropout cut the two apart (the pitch came back
+    // elsewhere within bridge_s).
+    bool close_before_held(NoteResult& out, bool cut) noexcept;
     std::size_t split_point(double after) const noexcept;
     void add_frame(double t_s, double cents) noexcept;
 
@@ -111,6 +115,8 @@ private:
     VibratoCentre vib_;
     std::size_t cap_ = 0;
     std::size_t n_ = 0;               // frames in the open note
+    bool cut_before_ = false;         // the open note began after a dropout cut it from the one before
+    bool cut_after_ = false;          // (while closing) the note ends where a dropout cut it from the next
     std::size_t held_ = 0;            // frames after them held aside (t_, c_, conf_ [n_, n_ + held_)): slips or the
                                       //   next note's start, until the pitch comes back or bridge_s passes
     double recent_median() noexcept;  // median of the last smooth_n_ frames (fewer at the start)
