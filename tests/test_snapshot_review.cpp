@@ -638,3 +638,32 @@ TEST_CASE("a steady voice exactly on a drone partial is not lost: analyze and th
         ui::write_png(std::string(out) + "-hidden-duo.png", duo_rig.buf);
     unsetenv("BEATLESS_HOME");
 }
+
+TEST_CASE("Review: a note whose vibrato crests drop out in noise is 'unsure', as analyze says, with the same number") {
+    // The five tritone-family notes over a 110 Hz drone in white noise at 4 dB SNR (voice power over noise variance,
+    // the definition): the last, 16/11 an octave up (320 Hz), has its vibrato's crests near the drone comb's notch at
+    // 330 Hz (gain 2 |sin(pi f / 110)|, J. O. Smith, "Feedforward Comb Filters") and loses them in the noise.
+    beatless::test::TempDir home;
+    setenv("BEATLESS_HOME", home.path().c_str(), 1);
+    double power = 0.0;
+    for (const double a : {1.0, 0.6, 0.45, 0.3, 0.2, 0.15, 0.1, 0.08}) power += 0.5 * (0.2 * a) * (0.2 * a);
+    const Take take = drone_and_voice(kFs, 110.0, tritone_notes(), 7, 1, 1.6, std::sqrt(power / std::pow(10.0, 0.4)));
+    const std::string flac = drone_take_in_home("2026-12-04_210000", take, 1);
+    const auto json = beatless::test::run_program({"analyze", flac, "--format", "json"});
+    REQUIRE_MESSAGE(json.exit_code == 0, json.err);
+    const auto unsure = beatless::test::json_words(json.out, "[n['unsure'] for n in d['notes']]");
+    REQUIRE(unsure.size() == 5);
+    CHECK(unsure == std::vector<std::string>{"False", "False", "False", "False", "True"});
+    const std::string cents = beatless::test::json_value(json.out, "'%.1f' % d['notes'][4]['unsure_cents']");
+
+    ReviewRig rig(5, 0.0);
+    rig.frames(3);
+    const ui::ReviewView& v = *ui::review_view(*rig.screen);
+    REQUIRE(v.open);
+    REQUIRE(v.marks.size() == 5);
+    for (int i = 0; i < 4; ++i) CHECK(!v.marks[static_cast<std::size_t>(i)].unsure);
+    CHECK(v.marks[4].unsure);
+    CHECK(!std::isfinite(v.marks[4].dev_cents));
+    CHECK(v.against == "dropouts in noise may move it " + cents + " c");  // analyze's remark, after "unsure: "
+    CHECK(v.remark.empty());
+}

@@ -162,3 +162,34 @@ TEST_CASE("invalid settings are refused with a message naming the value") {
     cfg.max_rate_hz = 4.0;
     CHECK(testsig::error_of<Error>([&] { VibratoCentre vc(cfg); }).find("min_rate_hz") != std::string::npos);
 }
+
+TEST_CASE("dropouts over a vibrato's crests: the whole-cycle mean falls, and dropout_bias says by how much") {
+    // A sinusoid's mean over whole cycles is its offset (analytic). A track of m + A sin(2 pi f t) every 10 ms with
+    // the frames near each crest missing (a voice fading into a notch at the top of its vibrato): the chord bridge
+    // runs under each missing crest and the whole-cycle mean reads low; dropout_bias (the slope-matched cubic minus
+    // the chord) must give that shortfall within 15 %.
+    const double m = 7.0, a = 44.8, f = 6.49, hop = 0.01;
+    for (const double lost : {0.15, 0.25, 0.33}) {  // the share of each cycle missing, centred on the crest
+        CAPTURE(lost);
+        std::vector<double> t, c, t_all, c_all;
+        for (int i = 0; i < 160; ++i) {
+            const double ti = 0.013 + hop * i, ph = f * ti - std::floor(f * ti);  // phase in cycles, crest at 0.25
+            const double ci = m + a * std::sin(2.0 * M_PI * f * ti);
+            t_all.push_back(ti);
+            c_all.push_back(ci);
+            if (std::fabs(ph - 0.25) > 0.5 * lost) {
+                t.push_back(ti);
+                c.push_back(ci);
+            }
+        }
+        // Whole cycles: from the first upward crossing of the offset to the eighth after it.
+        const double t0 = 1.0 / f, t1 = t0 + 8.0 / f;
+        const double chord = interpolated_mean(t.data(), c.data(), t.size(), t0, t1);
+        const double bias = dropout_bias(t.data(), c.data(), t.size(), t0, t1, 1.5 * hop);
+        CHECK(chord < m - 0.5);  // the crests are lost: it reads flat
+        CHECK(std::fabs(bias - (m - chord)) < 0.15 * (m - chord));
+        // Without a dropout there is nothing to correct.
+        CHECK(dropout_bias(t_all.data(), c_all.data(), t_all.size(), t0, t1, 1.5 * hop) == 0.0);
+        CHECK(std::fabs(interpolated_mean(t_all.data(), c_all.data(), t_all.size(), t0, t1) - m) < 0.2);
+    }
+}

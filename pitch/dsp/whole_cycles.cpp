@@ -127,4 +127,38 @@ CycleStats find_cycles(const double* t, const double* x, std::size_t n, const Cy
     return out;
 }
 
+namespace {
+// The slope at t[at] of the track through samples [a, b) (at one of the ends): the line through two samples, the
+// parabola through three (its derivative at the end: exact for a quadratic, where a line's slope belongs to the middle
+// of its samples and overshoots near a crest).
+double edge_slope(const double* t, const double* x, std::size_t a, std::size_t b, std::size_t at) noexcept {
+    if (b - a == 2) return (x[a + 1] - x[a]) / (t[a + 1] - t[a]);
+    // Lagrange's parabola through (t0, x0), (t1, x1), (t2, x2), differentiated at t[at].
+    const double t0 = t[a], t1 = t[a + 1], t2 = t[a + 2], u = t[at];
+    return x[a] * ((u - t1) + (u - t2)) / ((t0 - t1) * (t0 - t2)) +
+           x[a + 1] * ((u - t0) + (u - t2)) / ((t1 - t0) * (t1 - t2)) +
+           x[a + 2] * ((u - t0) + (u - t1)) / ((t2 - t0) * (t2 - t1));
+}
+}  // namespace
+
+double dropout_bias(const double* t, const double* x, std::size_t n, double t0, double t1, double max_step) noexcept {
+    constexpr std::size_t kSide = 3;  // samples each side's slope is fitted to
+    if (n < 2 || !(t1 > t0)) return 0.0;
+    double sum = 0.0;
+    for (std::size_t i = 1; i < n; ++i) {
+        const double g = t[i] - t[i - 1];
+        if (!(g > max_step) || t[i - 1] < t0 || t[i] > t1) continue;
+        const double chord = (x[i] - x[i - 1]) / g;
+        // The runs of samples on each side, up to kSide, not across another gap.
+        std::size_t a = i - 1;
+        while (a > 0 && i - a < kSide && t[a] - t[a - 1] <= max_step) --a;
+        std::size_t b = i + 1;
+        while (b < n && b - i < kSide && t[b] - t[b - 1] <= max_step) ++b;
+        const double s0 = i - a >= 2 ? edge_slope(t, x, a, i, i - 1) : chord;
+        const double s1 = b - i >= 2 ? edge_slope(t, x, i, b, i) : chord;
+        sum += g * g * (s0 - s1) / 12.0;
+    }
+    return sum / (t1 - t0);
+}
+
 }  // namespace beatless::pitch

@@ -35,6 +35,15 @@ CycleStats find_cycles(const double* t, const double* x, std::size_t n, const Cy
 // samples' span (trapezoid rule with fractional ends).
 double interpolated_mean(const double* t, const double* x, std::size_t n, double t0, double t1) noexcept;
 
+// How far the dropouts inside [t0, t1] may have moved interpolated_mean(): the mean with each gap (samples more than
+// max_step apart) bridged by the cubic that matches the track's slope on both sides, minus the mean with the chord
+// (interpolated_mean's bridge). A gap over a vibrato's crest loses the crest: the chord runs under it and the mean
+// falls; the cubic follows the curve into it. 0 when there is no gap. Each side's slope: the derivative at the gap of the
+// parabola through its 3 samples there (the line through 2; the chord's slope when a side has one sample). Method: the cubic
+// Hermite bridge's integral, g (x0 + x1) / 2 + g^2 (s0 - s1) / 12 over a gap of length g (the end-corrected
+// trapezoidal rule, from memory: K. E. Atkinson, An Introduction to Numerical Analysis, 2nd ed., Wiley 1989, ch. 5).
+double dropout_bias(const double* t, const double* x, std::size_t n, double t0, double t1, double max_step) noexcept;
+
 // Plain mean and population standard deviation of x[0..n).
 void mean_and_spread(const double* x, std::size_t n, double& mean, double& spread) noexcept;
 

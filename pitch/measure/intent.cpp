@@ -97,4 +97,8 @@ std::vector<NoteJudgement> judge_notes(const TargetSet& set, std::span<const dou
     return out;
 }
 
+void judge_dropouts(NoteJudgement& judged, double dropout_bias_cents, const IntentConfig& cfg) {
+    judged.unsure_cents = std::fabs(dropout_bias_cents) > cfg.unsure_cents ? std::fabs(dropout_bias_cents) : NAN;
+}
+
 }  // namespace beatless::pitch

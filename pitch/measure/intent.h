@@ -3,7 +3,9 @@
 // least-cost alignment (Needleman and Wunsch, J. Mol. Biol. 48(3), 1970): pairing a note with an expected target costs
 // its distance in cents (at the nearest octave), leaving a target out skip_target_cents, leaving a note out (a note
 // sung is surely meant as something) skip_note_cents, and targets after the last note nothing (the take stopped).
-// A note meant nothing and farther than between_cents from every target is "between targets".
+// A note meant nothing and farther than between_cents from every target is "between targets". A note whose dropouts
+// may have moved its centre more than unsure_cents (NoteResult::dropout_bias_cents) is "unsure": judged against nothing,
+// its deviation not given, rather than a wrong one (a voice fading in and out in noise).
 // Thread: any. Allocates: yes (the alignment table, notes x expected).
 #pragma once
 
@@ -22,6 +24,8 @@ struct IntentConfig {
     double skip_note_cents = 100.0;   // cost of a note paired with nothing (default 100 cents: a note more than
                                       //   150 cents from the target due is taken as not meant)
     bool octave_equivalent = true;    // targets match in every octave (default on)
+    double unsure_cents = 1.0;        // a note whose dropouts may have moved its centre further is not judged (default
+                                      //   1 cent: half the 2 c a review must be right within, the rest its scatter)
 };
 
 struct NoteJudgement {
@@ -32,15 +36,20 @@ struct NoteJudgement {
     TargetMatch nearest;              // the nearest target of the set, whatever was meant
     bool nearer_other = false;        // something was meant and another target lies nearer
     bool between = false;             // nothing meant, and every target is farther than between_cents
-    // The target the note is judged against: the meant one, else the nearest unless between (-1).
+    double unsure_cents = NAN;        // the note's centre may be off by this much (its dropouts): not judged; NaN: sure
+    bool unsure() const noexcept { return std::isfinite(unsure_cents); }
+    // The target the note is judged against: the meant one, else the nearest unless between (-1); none when unsure.
     int judged_index() const noexcept {
+        if (unsure()) return -1;
         return meant_index >= 0 ? meant_index : (between ? -1 : static_cast<int>(nearest.index));
     }
     int judged_octaves() const noexcept { return meant_index >= 0 ? meant_octaves : nearest.octaves; }
     double judged_dev_cents() const noexcept {
+        if (unsure()) return NAN;
         return meant_index >= 0 ? meant_dev_cents : (between ? NAN : nearest.dev_cents);
     }
     double judged_target_cents() const noexcept {
+        if (unsure()) return NAN;
         return meant_index >= 0 ? meant_target_cents : (between ? NAN : nearest.target_cents);
     }
 };
@@ -53,5 +62,8 @@ TargetMatch match_target(const TargetSet& set, std::size_t index, double measure
 // of range throw Error.
 std::vector<NoteJudgement> judge_notes(const TargetSet& set, std::span<const double> note_cents,
                                        std::span<const int> expected, const IntentConfig& config = {});
+
+// Marks a judged note unsure when its dropouts may have moved its centre more than config.unsure_cents.
+void judge_dropouts(NoteJudgement& judged, double dropout_bias_cents, const IntentConfig& config = {});
 
 }  // namespace beatless::pitch

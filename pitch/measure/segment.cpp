@@ -5,7 +5,8 @@
 // drone_tol_cents of the root's own pitch class (the drone leaking into the
 // tracker) count as silence; (2) a note starts at the first voiced frame
 // and ends at a silence longer than max_gap_s (bridge_s when the pitch comes
-// back to the note: dropouts in noise), or splits where a 0.2 s trailing
+// back to the note: dropouts in noise; a frame far from the note meanwhile, a tracker's slip, is held aside until
+// the pitch comes back, or starts the next note if it does not), or splits where a 0.2 s trailing
 // median of the pitch (blind to the tracker's octave slips) leaves the note's vibrato centre by more than
 // change_cents for change_s (a legato step, cut where a two-level step fit
 // puts it); (3) notes shorter than min_note_s are dropped; (4) per note, a
@@ -102,6 +103,7 @@ void NoteSegmenter::start_with(std::size_t from) noexcept {
     std::memmove(c_.data(), c_.data() + from, keep * sizeof(double));
     std::memmove(conf_.data(), conf_.data() + from, keep * sizeof(double));
     n_ = 0;
+    cut_before_ = false;
     vib_.reset();
     smooth_sum_ = 0.0;
     anchor_ = NAN;
@@ -121,23 +123,35 @@ bool NoteSegmenter::push(const PitchFrame& frame, NoteResult& out) noexcept {
             ++drone_frames_;
         }
     }
-    // A slip of the tracker (an octave, a fifth) inside an established note is a dropout, not a new pitch; a real
-    // leap that far ends the note once the gap passes max_gap_s, and starts the next.
+    // A frame far from an established note within bridge_s of its last frame (a slip of the tracker, an octave or a
+    // fifth; or, after a dropout longer than max_gap_s, anything past change_cents) is held aside: a dropout if the
+    // pitch comes back to the note, the start of the next note if it does not (the note ends at its last frame).
     const bool established = n_ >= smooth_n_;
     const double gap_s = n_ > 0 ? frame.t_s - last_voiced_t_ : 0.0;
-    if (voiced && established && std::fabs(cents - recent_median()) > cfg_.outlier_cents &&
-        gap_s <= cfg_.max_gap_s + 0.5 * cfg_.hop_s)
-        voiced = false;
+    const bool after_gap = gap_s > cfg_.max_gap_s + 0.5 * cfg_.hop_s;
+    if (voiced && established && gap_s <= cfg_.bridge_s + 0.5 * cfg_.hop_s && n_ + held_ < cap_) {
+        const double off = std::fabs(cents - recent_median());
+        if (off > cfg_.outlier_cents || (after_gap && off > cfg_.change_cents)) {
+            t_[n_ + held_] = frame.t_s;
+            c_[n_ + held_] = cents;
+            conf_[n_ + held_] = frame.confidence;
+            ++held_;
+            return false;
+        }
+    }
     if (!voiced) {
-        if (n_ > 0 && gap_s > cfg_.bridge_s) return close(n_, false, out);
+        if (n_ > 0 && gap_s > cfg_.bridge_s) return close_before_held(out, false);
         return false;
     }
     bool emitted = false;
-    if (n_ > 0 && gap_s > cfg_.max_gap_s + 0.5 * cfg_.hop_s &&
-        (gap_s > cfg_.bridge_s + 0.5 * cfg_.hop_s || std::fabs(cents - recent_median()) > cfg_.change_cents))
-        emitted = close(n_, false, out);
-    else if (n_ == cap_)
-        emitted = close(n_, true, out);
+    if (n_ > 0 && after_gap &&
+        (gap_s > cfg_.bridge_s + 0.5 * cfg_.hop_s || std::fabs(cents - recent_median()) > cfg_.change_cents)) {
+        // Within bridge_s the pitch came back elsewhere: the dropout cut the note here.
+        emitted = close_before_held(out, gap_s <= cfg_.bridge_s + 0.5 * cfg_.hop_s);
+    } else {
+        held_ = 0;  // back at the note: the frames held aside were slips
+        if (n_ == cap_) emitted = close(n_, true, out);
+    }
     conf_[n_] = frame.confidence;
     add_frame(frame.t_s, cents);
     if (emitted || n_ < 2 * smooth_n_) return emitted;
@@ -177,7 +191,22 @@ std::size_t NoteSegmenter::split_point(double after) const noexcept {
     return std::max<std::size_t>(at, 1);
 }
 
+// Ends the note at its last frame; the frames held aside begin the next.
+bool NoteSegmenter::close_before_held(NoteResult& out, bool cut) noexcept {
+    const std::size_t m = n_;
+    // Cut by a dropout also when the frames held aside came after one longer than max_gap_s.
+    cut = cut || (held_ > 0 && t_[n_] - t_[n_ - 1] > cfg_.max_gap_s + 0.5 * cfg_.hop_s);
+    n_ += held_;
+    held_ = 0;
+    cut_after_ = cut;
+    const bool emitted = close(m, false, out);
+    cut_after_ = false;
+    cut_before_ = cut;  // the next note begins with the held frames
+    return emitted;
+}
+
 bool NoteSegmenter::finish(NoteResult& out) noexcept {
+    held_ = 0;
     if (n_ == 0) return false;
     return close(n_, false, out);
 }
@@ -235,11 +264,21 @@ bool NoteSegmenter::close(std::size_t m, bool truncated, NoteResult& out) noexce
             start_with(m);
             return false;
         }
+        // A gap is a step over the hop's jitter (frames 1.5 hops apart and more).
+        const double gap_s = 1.5 * cfg_.hop_s;
+        r.dropout_bias_cents = ns >= 2 ? dropout_bias(&t_[s_idx], &c_[s_idx], ns, t_[s_idx], t_[me - 1], gap_s) : 0.0;
         if (cs.found && cs.depth >= cfg_.vibrato.min_depth_cents) {
             centre = cs.mean;
+            r.dropout_bias_cents = dropout_bias(&t_[s_idx], &c_[s_idx], ns, cs.t_first_s, cs.t_last_s, gap_s);
             r.vibrato = true;
             r.vibrato_rate_hz = cs.rate_hz;
             r.vibrato_depth_cents = cs.depth;
+        }
+        // A piece of a note cut off by a dropout, too short for a whole cycle of the slowest vibrato and without one:
+        // its mean is of part of a cycle, and the centre of the vibrato may lie as far as any pitch the piece heard.
+        if ((cut_before_ || cut_after_) && !r.vibrato && dur < 1.0 / cfg_.vibrato.min_rate_hz) {
+            const auto [lo, hi] = std::minmax_element(c_.begin(), c_.begin() + static_cast<std::ptrdiff_t>(me));
+            r.dropout_bias_cents = std::max({std::fabs(r.dropout_bias_cents), *hi - centre, centre - *lo});
         }
         double cm = 0.0;
         mean_and_spread(&centre_[s_idx], ns, cm, r.centre_spread_cents);

@@ -29,8 +29,9 @@ struct SegmentConfig {
     double bridge_s = 0.12;                    // ... and up to this when the pitch comes back within change_cents
                                                //   of the note (dropouts in noise; default 120 ms)
     double outlier_cents = 150.0;              // a frame this far from the note's recent median is a tracker slip
-                                               //   (an octave or fifth in noise): left out like a dropout
-                                               //   (default 150 cents)
+                                               //   (an octave or fifth in noise): held aside, and left out like a
+                                               //   dropout when the pitch comes back within bridge_s; else the
+                                               //   next note starts with it (default 150 cents)
     double max_spread_cents = 100.0;           // a "note" whose pitch wanders more than this (standard deviation)
                                                //   is the tracker lost in noise, not a held note: dropped and
                                                //   counted with the short ones (default 100 cents; a +-100 c
@@ -66,6 +67,11 @@ struct NoteResult {
     double confidence = 0.0;           // mean tracker confidence of the note's frames (0..1)
     double settle_s = NAN;             // onset to settled within settle_cents; NaN if it never settled
     bool vibrato = false;              // whole vibrato cycles were averaged
+    double dropout_bias_cents = 0.0;   // how far the dropouts inside the averaged stretch may have moved the centre
+                                       //   (pitch/dsp/whole_cycles.h, dropout_bias; + the centre may read flat):
+                                       //   a voice whose vibrato crests fade into the drone's notch loses them.
+                                       //   A piece cut off by a dropout, shorter than a vibrato cycle: as far as
+                                       //   the farthest pitch it heard
     double vibrato_rate_hz = 0.0;
     double vibrato_depth_cents = 0.0;
     // The audible pair (pitch/theory/beats.h, audible_pair) for the target and the
@@ -98,6 +104,9 @@ public:
 private:
     void start_with(std::size_t from) noexcept;  // keep frames [from, n_) as the new note
     bool close(std::size_t m, bool truncated, NoteResult& out) noexcept;
+    // Closes the note; the frames held aside start the next. cut: a dropout cut the two apart (the pitch came back
+    // elsewhere within bridge_s).
+    bool close_before_held(NoteResult& out, bool cut) noexcept;
     std::size_t split_point(double after) const noexcept;
     void add_frame(double t_s, double cents) noexcept;
 
@@ -106,6 +115,10 @@ private:
     VibratoCentre vib_;
     std::size_t cap_ = 0;
     std::size_t n_ = 0;               // frames in the open note
+    bool cut_before_ = false;         // the open note began after a dropout cut it from the one before
+    bool cut_after_ = false;          // (while closing) the note ends where a dropout cut it from the next
+    std::size_t held_ = 0;            // frames after them held aside (t_, c_, conf_ [n_, n_ + held_)): slips or the
+                                      //   next note's start, until the pitch comes back or bridge_s passes
     double recent_median() noexcept;  // median of the last smooth_n_ frames (fewer at the start)
 
     std::vector<double> t_, c_, centre_, win_start_, scratch_, recent_, conf_;

@@ -469,7 +469,9 @@ void ReviewScreen::draw_mark(ImDrawList* dl, const ReviewMarkView& m, float y_lo
     dl->AddRectFilled(ImVec2(m.x0, m.y - r), ImVec2(m.x1, m.y + r), m.colour);
     if (m.note == selected_)
         dl->AddRect(ImVec2(m.x0 - 3, m.y - r - 3), ImVec2(m.x1 + 3, m.y + r + 3), palette::kCurrentTarget, 0, 0, 2.0f);
-    const std::string label = std::isfinite(m.dev_cents) ? signed_text(m.dev_cents, 1) : "between";
+    const std::string label = std::isfinite(m.dev_cents) ? signed_text(m.dev_cents, 1)
+                              : m.unsure                 ? "unsure"
+                                                         : "between";
     const ImVec2 ls = text_size(FontFace::bold, label);
     if (ls.x < m.x1 - m.x0 + 2.0f * u) {
         const float cx = std::round(std::clamp(0.5f * (m.x0 + m.x1), v.plot_x0 + 0.5f * ls.x + 4.0f,
@@ -574,6 +576,7 @@ void ReviewScreen::draw_duo(AppState& app, ImDrawList* dl) {
         m.y = std::round(v.y_of(m.cents));
         m.y_low = std::round(v.y_of(m.low_cents));
         m.dev_cents = y.dev_cents;
+        m.unsure = i < d.judged.size() && d.judged[i].unsure();
         m.colour = std::isfinite(y.dev_cents) ? tuning_colour(tuning_of(y.dev_cents, in_tune)) : palette::kTextDim;
         const bool sel = static_cast<int>(i) == selected_;
         if (std::isfinite(y.target_cents)) {
@@ -609,7 +612,10 @@ float ReviewScreen::draw_duo_detail(AppState& app, ImDrawList* dl, float x, floa
     const TwoVoiceAnalysis& a = take_->duo;
     const pitch::DyadResult& d = a.dyads[static_cast<std::size_t>(selected_)];
     float ty = draw_item_heading(dl, x, y);
-    std::string big = "between targets", against;
+    const auto at = static_cast<std::size_t>(selected_);
+    const bool unsure = at < a.judged.size() && a.judged[at].unsure();
+    std::string big = unsure ? "unsure" : "between targets", against;
+    if (unsure) against = unsure_words(a.judged[at]);
     std::uint32_t colour = palette::kTextDim;
     const double in_tune = app.settings().in_tune_cents;
     if (std::isfinite(d.dev_cents)) {
@@ -786,6 +792,7 @@ void ReviewScreen::draw_plot(AppState& app, ImDrawList* dl, float x, float y, fl
         m.y = std::round(v.y_of(n.cents_above_root));
         m.cents = n.cents_above_root;
         m.dev_cents = n.dev_cents;
+        m.unsure = i < a.judged.size() && a.judged[i].unsure();
         m.colour = std::isfinite(n.dev_cents) ? tuning_colour(tuning_of(n.dev_cents, in_tune)) : palette::kTextDim;
         draw_mark(dl, m, m.y, m.y);
     }
@@ -814,6 +821,9 @@ float ReviewScreen::draw_note_detail(AppState& app, ImDrawList* dl, float x, flo
         big = signed_text(n.dev_cents, 1) + " c " + std::string(tuning_word(tn));
         const std::string tgt = target_text(n.target_index, n.target_octaves);
         against = "against " + tgt + (j.meant_index >= 0 ? ", the target meant" : ", the nearest target");
+    } else if (j.unsure()) {
+        big = "unsure";
+        against = unsure_words(j);
     } else {
         big = "between targets";
         against = off_words(j.nearest.dev_cents, false) + " of " +
@@ -826,7 +836,7 @@ float ReviewScreen::draw_note_detail(AppState& app, ImDrawList* dl, float x, flo
     draw_text(dl, FontFace::body, ImVec2(x + pad + big_w + u, ty + 0.5f * font_px(FontFace::large) - 0.5f * u),
               palette::kText, fit_text(FontFace::body, against, w - 3 * pad - big_w - u));
     ty += std::round(font_px(FontFace::large) + 0.4f * u);
-    const std::string remark = j.between ? std::string() : judgement_words(j, take_->set, false);
+    const std::string remark = j.between || j.unsure() ? std::string() : judgement_words(j, take_->set, false);
     view_.remark = remark;
     if (!remark.empty()) {
         draw_text(dl, FontFace::body, ImVec2(x + pad, ty), palette::kText,

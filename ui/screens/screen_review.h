@@ -18,7 +18,8 @@ struct ReviewMarkView {
     double cents = 0.0;        // the centre, cents above the root (two voices: the upper voice above the reference)
     float y_low = 0;           // two voices: pixels of the lower voice
     double low_cents = 0.0;    // two voices: the lower voice, cents above the reference
-    double dev_cents = 0.0;    // against the judged target (NaN between targets)
+    double dev_cents = 0.0;    // against the judged target (NaN between targets or unsure)
+    bool unsure = false;       // no deviation: its dropouts may have moved it (pitch::judge_dropouts)
     std::uint32_t colour = 0;  // the mark's colour
 };
 

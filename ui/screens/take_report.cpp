@@ -223,7 +223,10 @@ struct Ink {
     }
 };
 
+// A mark's colour by its deviation (the legend's bands); one without a deviation (between targets, unsure) is in the
+// soft ink: no band is true of it.
 ImU32 mark_colour(double dev_cents) {
+    if (!std::isfinite(dev_cents)) return kSoftInk;
     const double a = std::fabs(dev_cents);
     return a <= 5.0 ? kReportGood : a <= 15.0 ? kReportFair : kReportPoor;
 }
@@ -349,7 +352,7 @@ int draw_marks(const Ink& ink, const ReportData& d, const ReportLayout& l) {
         dl->AddRectFilled(ImVec2(x0 - 1.0f, y - 4.5f), ImVec2(x1 + 1.0f, y + 4.5f),
                           kInk);  // a dark rim: visible over the trace
         dl->AddRectFilled(ImVec2(x0, y - 3.5f), ImVec2(x1, y + 3.5f), col);
-        const std::string s = std::isfinite(m.dev_cents) ? signed_cents(m.dev_cents, 1) + " c" : "between targets";
+        const std::string s = std::isfinite(m.dev_cents) ? signed_cents(m.dev_cents, 1) + " c" : m.none_word;
         const float tw = ink.size(ink.bold, s).x;
         bool done = false;
         for (const float ty : {std::min(y, yt) - 8.0f - th, std::max(y, yt) + 8.0f}) {
@@ -535,6 +538,8 @@ ReportData one_voice_report_data(const pitch::TargetSet& set, const OneVoiceAnal
     ReportData d = report_of(set, a.notes, a.summary, false, [](const pitch::NoteResult& n) {
         return mark_at(n.start_s, n.end_s, n.cents_above_root, n.target_cents, n.dev_cents);
     });
+    for (std::size_t i = 0; i < d.marks.size() && i < a.judged.size(); ++i)
+        d.marks[i].none_word = no_deviation_word(a.judged[i], false);
     return with_axis(std::move(d), "cents above the root", "note", a.info.dur_s(), a.trace);
 }
 
@@ -542,6 +547,8 @@ ReportData two_voice_report_data(const pitch::TargetSet& set, const TwoVoiceAnal
     ReportData d = report_of(set, a.dyads, a.summary, true, [](const pitch::DyadResult& y) {
         return mark_at(y.start_s, y.end_s, y.interval_cents, y.target_cents, y.dev_cents);
     });
+    for (std::size_t i = 0; i < d.marks.size() && i < a.judged.size(); ++i)
+        d.marks[i].none_word = no_deviation_word(a.judged[i], false);
     return with_axis(std::move(d), "cents above the low voice", "interval", a.info.dur_s(), a.trace);
 }
 

@@ -26,9 +26,10 @@ struct ReportTarget {
 struct ReportMark {  // one note or dyad
     double start_s = 0.0;
     double end_s = 0.0;
-    double cents = 0.0;         // measured centre (same axis as the trace)
-    double target_cents = 0.0;  // the matched target after its octave shift
-    double dev_cents = 0.0;     // + is sharp (wide)
+    double cents = 0.0;                         // measured centre (same axis as the trace)
+    double target_cents = 0.0;                  // the matched target after its octave shift
+    double dev_cents = 0.0;                     // + is sharp (wide)
+    std::string none_word = "between targets";  // said in place of the deviation when there is none
 };
 
 struct ReportRow {  // one line of the per-target summary

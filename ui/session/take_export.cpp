@@ -39,6 +39,12 @@ void add_judgement_json(JsonWriter& j, const pitch::TargetSet& set, const pitch:
     j.key("nearest").value(ratio(static_cast<int>(g.nearest.index), g.nearest.octaves));
     j.key("nearest_octaves").value(g.nearest.octaves).key("nearest_dev_cents").value(g.nearest.dev_cents, 3);
     j.key("between_targets").value(g.between).key("nearer_other").value(g.nearer_other);
+    j.key("unsure").value(g.unsure());
+    j.key("unsure_cents");
+    if (g.unsure())
+        j.value(g.unsure_cents, 3);
+    else
+        j.null();
     j.key("remark").value(judgement_words(g, set, intervals));
 }
 

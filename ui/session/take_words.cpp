@@ -106,6 +106,7 @@ std::string off_words(double dev_cents, bool intervals) {
 std::string judgement_words(const pitch::NoteJudgement& j, const pitch::TargetSet& set, bool intervals) {
     // Each target in the octave it was matched at, as the note's own line names it.
     const std::string nearest = target_words_at(set, static_cast<int>(j.nearest.index), j.nearest.octaves, intervals);
+    if (j.unsure()) return "unsure: " + unsure_words(j);
     if (j.between)
         return "between targets: " + off_words(j.nearest.dev_cents, intervals) + " of " + nearest + ", the nearest";
     if (j.meant_index >= 0 && j.nearer_other)
@@ -113,6 +114,15 @@ std::string judgement_words(const pitch::NoteJudgement& j, const pitch::TargetSe
                off_words(j.meant_dev_cents, intervals) + ": that is " +
                format_trimmed(std::fabs(j.nearest.dev_cents), 1) + " c from " + nearest;
     return "";
+}
+
+std::string unsure_words(const pitch::NoteJudgement& j) {
+    return "dropouts in noise may move it " + format_trimmed(j.unsure_cents, 1) + " c";
+}
+
+std::string no_deviation_word(const pitch::NoteJudgement& j, bool short_form) {
+    if (j.unsure()) return "unsure";
+    return short_form ? "between" : "between targets";
 }
 
 std::string duration_words(double dur_s) {

@@ -29,9 +29,14 @@ std::string target_name_words_at(const pitch::TargetSet& set, int index, int oct
 // (intervals true) "... 6 cents narrow (3 intervals, ...)", wide for sharp.
 std::string summary_words(const pitch::TargetSummary& row, const std::string& name, bool intervals);
 // What a note's judgement adds to its deviation, or "" when it is plainly the nearest target:
-// "meant 45/32, sung 12 c flat: that is 4.3 c from 7/5"; "between targets: 29.2 c flat of 7/5, the nearest".
-// Between two voices (intervals true): narrow and wide.
+// "meant 45/32, sung 12 c flat: that is 4.3 c from 7/5"; "between targets: 29.2 c flat of 7/5, the nearest";
+// "unsure: dropouts in noise may move it 4.6 c" (pitch::judge_dropouts). Between two voices (intervals true): narrow
+// and wide.
 std::string judgement_words(const pitch::NoteJudgement& j, const pitch::TargetSet& set, bool intervals);
+// Why an unsure note has no deviation: "dropouts in noise may move it 4.6 c" (judgement_words says "unsure: " first).
+std::string unsure_words(const pitch::NoteJudgement& j);
+// What a mark without a deviation says on the plots: "unsure" or "between targets" (short: "between").
+std::string no_deviation_word(const pitch::NoteJudgement& j, bool short_form);
 // "12 c flat", "0.5 c sharp", "in tune"; narrow and wide between two voices.
 std::string off_words(double dev_cents, bool intervals);
 // A take's length as every screen and command shows it, rounded to the nearest second: "12 s" under a minute, "1:05"
