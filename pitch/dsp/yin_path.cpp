@@ -5,6 +5,7 @@
 #include "pitch/dsp/yin_voicing.h"
 
 #include <algorithm>
+#include <array>
 #include <cmath>
 #include <limits>
 
@@ -138,12 +139,21 @@ double VoicingPath::emission(const PathCosts& k, const FrameCandidates& c, std::
            (c.c[state - 1].multiple ? k.multiple_cost : 0.0);
 }
 
-double VoicingPath::transition(const PathCosts& k, const FrameCandidates& a, std::size_t from, const FrameCandidates& b,
-                               std::size_t to) noexcept {
+namespace {
+// The cost of moving between states of two frames, with log2 f0 of the candidates (state 0 unvoiced: no value).
+double move_cost(const PathCosts& k, std::size_t from, double log2_a, std::size_t to, double log2_b) noexcept {
     if (from == 0 && to == 0) return 0.0;
     if (from == 0 || to == 0) return k.switch_cost;
-    const double cents = std::fabs(1200.0 * std::log2(b.c[to - 1].f0_hz / a.c[from - 1].f0_hz));
+    const double cents = 1200.0 * std::fabs(log2_b - log2_a);
     return std::min(k.jump_cost, std::max(0.0, cents - k.free_cents) / k.cents_scale);
+}
+}  // namespace
+
+double VoicingPath::transition(const PathCosts& k, const FrameCandidates& a, std::size_t from, const FrameCandidates& b,
+                               std::size_t to) noexcept {
+    const double la = from > 0 ? std::log2(a.c[from - 1].f0_hz) : 0.0;
+    const double lb = to > 0 ? std::log2(b.c[to - 1].f0_hz) : 0.0;
+    return move_cost(k, from, la, to, lb);
 }
 
 void VoicingPath::push(const PitchFrame& frame, const FrameCandidates& candidates) {
@@ -153,12 +163,20 @@ void VoicingPath::push(const PitchFrame& frame, const FrameCandidates& candidate
 
 void VoicingPath::finish() {
     const std::size_t n = frames_.size();
+    // Each state's emission cost and log2 f0, worked out once (the search visits them up to 6 times each).
+    constexpr std::size_t kStates = kMaxPitchCandidates + 1;
+    std::vector<std::array<double, kStates>> emit(n), log2_f0(n);
+    for (std::size_t t = 0; t < n; ++t)
+        for (std::size_t s = 0; s <= cands_[t].n; ++s) {
+            emit[t][s] = emission(costs_, cands_[t], s);
+            log2_f0[t][s] = s > 0 ? std::log2(cands_[t].c[s - 1].f0_hz) : 0.0;
+        }
+    auto move = [&](std::size_t t, std::size_t r, std::size_t s) {
+        return move_cost(costs_, r, log2_f0[t - 1][r], s, log2_f0[t][s]);
+    };
     auto path = viterbi_path(
-        n, [&](std::size_t t) { return cands_[t].n + 1; },
-        [&](std::size_t t, std::size_t s) { return emission(costs_, cands_[t], s); },
-        [&](std::size_t t, std::size_t r, std::size_t s) {
-            return transition(costs_, cands_[t - 1], r, cands_[t], s);
-        });
+        n, [&](std::size_t t) { return cands_[t].n + 1; }, [&](std::size_t t, std::size_t s) { return emit[t][s]; },
+        move);
     // Stretches of voiced frames without a jump, too short to be a held note, are unvoiced.
     const auto shortest = static_cast<std::size_t>(std::ceil(costs_.min_run_s / hop_s_ - 1e-9));
     std::vector<std::size_t> states(path);
@@ -168,9 +186,7 @@ void VoicingPath::finish() {
             continue;
         }
         std::size_t b = a + 1;
-        while (b < n && states[b] != 0 &&
-               transition(costs_, cands_[b - 1], states[b - 1], cands_[b], states[b]) < costs_.jump_cost)
-            ++b;
+        while (b < n && states[b] != 0 && move(b, states[b - 1], states[b]) < costs_.jump_cost) ++b;
         if (b - a < shortest)
             std::fill(path.begin() + static_cast<std::ptrdiff_t>(a), path.begin() + static_cast<std::ptrdiff_t>(b), 0);
         a = b;
