@@ -24,6 +24,7 @@
 #include "pitch/dsp/periodic_run.h"
 #include "pitch/dsp/vec_ops.h"
 #include "pitch/dsp/yin_coarse.h"
+#include "pitch/dsp/yin_path.h"
 #include "pitch/dsp/yin_refine.h"
 #include "pitch/dsp/yin_voicing.h"
 
@@ -217,6 +218,7 @@ struct YinTracker::Impl {
         PitchFrame p;
         double m2_s2 = 0.0;
         bool narrowed = false;  // refined on a stretch of its span (a note change inside it)
+        FrameCandidates cands;  // with keep_candidates
     };
     std::array<Held, 2 * kStencil + 1> held{};  // ring: the frames f - 2 kStencil .. f
     std::size_t held_count = 0;                 // frames delivered since reset
@@ -230,6 +232,9 @@ struct YinTracker::Impl {
     } curv;
 
     std::vector<PitchFrame> queue;
+    std::vector<FrameCandidates> cand_queue;  // beside queue, with keep_candidates
+    FrameCandidates pending;                  // the candidates of the frame finish() delivers
+    FrameCandidates pulled;                   // ... of the frame pull() returned last
     std::size_t q_head = 0, q_count = 0;
     std::size_t bad_samples = 0, dropped = 0;
 
@@ -344,6 +349,7 @@ struct YinTracker::Impl {
         r.assign(max_lag_dec + 1, 0.0f);
         const std::size_t q = cfg.max_block_len_samples / hop + 16;
         queue.assign(q, PitchFrame{});
+        if (cfg.keep_candidates) cand_queue.assign(q, FrameCandidates{});
         reset();
     }
 
@@ -376,6 +382,8 @@ struct YinTracker::Impl {
         old_notes.fill(Note{});
         old_next = 0;
         curv = Curvature{};
+        pending.n = 0;
+        pulled.n = 0;
         bad_samples = dropped = 0;
     }
 
@@ -567,13 +575,18 @@ struct YinTracker::Impl {
     // 4. Final frame
     // -----------------------------------------------------------------------
 
-    void emit(const PitchFrame& p) noexcept {
+    void emit(const PitchFrame& p, const FrameCandidates& cands) noexcept {
         if (q_count == queue.size()) {
             q_head = (q_head + 1) % queue.size();
             --q_count;
             ++dropped;
         }
-        queue[(q_head + q_count) % queue.size()] = p;
+        const std::size_t at = (q_head + q_count) % queue.size();
+        queue[at] = p;
+        if (!cand_queue.empty()) {
+            cand_queue[at] = cands;
+            if (p.voiced() && cands.n > 0) cand_queue[at].c[0] = {p.f0_hz, cands.c[0].aperiodicity, p.confidence};
+        }
         ++q_count;
     }
 
@@ -639,6 +652,10 @@ struct YinTracker::Impl {
         // inside the span after a change): there YIN's own test decides, as the live settling bar needs.
         const bool clear = aper < cfg.threshold || out.level_dbfs - floor_dbfs < kClearAboveFloorDb;
         if (!clear) out.confidence = std::min(out.confidence, 0.49);  // unvoiced frames stay under 0.5
+        pending.n = 0;
+        if (cfg.keep_candidates && !silent && period > 0.0)
+            pending = frame_candidates(
+                cur.d, cur.dn, {lag_min, lag_max, rate_dec, period, aper, out.confidence, out.level_dbfs, floor_dbfs});
         if (silent || !(out.confidence >= 0.5) || !clear || !(period > 0.0)) {
             deliver(out, 0.0);
             return;
@@ -970,18 +987,19 @@ struct YinTracker::Impl {
         last_t_s = p.t_s;
         last_voiced = p.voiced();
         if (!cfg.vibrato_correction) {
-            emit(p);
+            emit(p, pending);
             return;
         }
         const std::size_t j = held_count++;
-        held[j % held.size()] = {p, m2_s2, narrowed};
+        held[j % held.size()] = {p, m2_s2, narrowed, pending};
         if (j < kStencil) return;
         const std::size_t b = j - kStencil;
         if (b < kStencil) {
-            emit(held[b % held.size()].p);  // the first frames have no left neighbour
+            emit(held[b % held.size()].p, held[b % held.size()].cands);  // the first frames have no left neighbour
             return;
         }
-        emit(corrected(held[(b - kStencil) % held.size()], held[b % held.size()], held[j % held.size()], curv));
+        emit(corrected(held[(b - kStencil) % held.size()], held[b % held.size()], held[j % held.size()], curv),
+             held[b % held.size()].cands);
     }
 
     // A vibrato's curvature changes little from one frame to the next; a
@@ -1049,11 +1067,13 @@ bool YinTracker::pull(PitchFrame& out) noexcept {
     Impl& s = *impl_;
     if (s.q_count == 0) return false;
     out = s.queue[s.q_head];
+    if (!s.cand_queue.empty()) s.pulled = s.cand_queue[s.q_head];
     s.q_head = (s.q_head + 1) % s.queue.size();
     --s.q_count;
     return true;
 }
 
+const FrameCandidates& YinTracker::candidates() const noexcept { return impl_->pulled; }
 void YinTracker::reset() noexcept { impl_->reset(); }
 const YinConfig& YinTracker::config() const noexcept { return impl_->cfg; }
 std::size_t YinTracker::hop_len_samples() const noexcept { return impl_->hop; }

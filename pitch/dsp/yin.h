@@ -9,6 +9,7 @@
 // Thread: one at a time (the analysis thread). Allocates: in the constructor only. Locks: no.
 #pragma once
 
+#include <array>
 #include <cstddef>
 #include <limits>
 #include <memory>
@@ -30,6 +31,7 @@ struct YinConfig {
     double silence_dbfs = -60.0;      // frames quieter than this (RMS) are unvoiced
     bool vibrato_correction = true;  // remove the span's averaging of a moving f0 (quadratic model; one hop more delay)
     std::size_t max_block_len_samples = 1 << 16;  // frames of one push() this long fit the queue
+    bool keep_candidates = false;  // also queue each frame's candidate periods (pull_candidates(); the file path)
 };
 
 struct PitchFrame {
@@ -39,6 +41,25 @@ struct PitchFrame {
     double level_dbfs =
         -std::numeric_limits<double>::infinity();  // RMS level of the span (dB re full scale), -inf for digital silence
     bool voiced() const { return f0_hz > 0.0; }
+};
+
+// One candidate period of a frame, for a path search across frames (yin_path.h): a dip of YIN's cumulative mean
+// normalised difference, with its d' and the calibrated probability that it is the pitch (yin_voicing.h).
+struct PitchCandidate {
+    double f0_hz = 0.0;
+    double aperiodicity = 1.0;  // d' at the dip's bottom
+    double probability = 0.0;   // voicing_probability() of the dip
+    bool multiple = false;      // its period is 2..6 periods of another candidate whose dip is nearly as deep
+};
+
+inline constexpr std::size_t kMaxPitchCandidates = 5;
+
+// A frame's candidates. Candidate 0 is the tracker's own choice (after its octave and continuity rules, and refined
+// when the frame is voiced: then its f0 is the frame's); the others are the next deepest dips at other periods
+// (their f0 from the coarse stage, the parabola through the dip). n = 0 for silent frames.
+struct FrameCandidates {
+    std::array<PitchCandidate, kMaxPitchCandidates> c{};
+    std::size_t n = 0;
 };
 
 class YinTracker {
@@ -56,6 +77,8 @@ public:
     // sized for max_block_len_samples of audio, and older frames are dropped (and counted in dropped_frames())
     // if pull() falls further behind. Allocates: no.
     bool pull(PitchFrame& out) noexcept;
+    // With keep_candidates: the candidates of the frame pull() returned last (n = 0 otherwise). Allocates: no.
+    const FrameCandidates& candidates() const noexcept;
 
     void reset() noexcept;  // forget all audio, t restarts at 0
     const YinConfig& config() const noexcept;

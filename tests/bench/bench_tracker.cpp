@@ -18,6 +18,7 @@
 
 #include "audio/soundfile.h"
 #include "pitch/dsp/yin.h"
+#include "pitch/dsp/yin_path.h"
 #include "tests/signals.h"
 #include "tests/timbre_signals.h"
 
@@ -125,14 +126,20 @@ pitch::YinConfig file_config() {
     return c;
 }
 
+// ... with voicing and pitch chosen along a path over the whole signal (pitch/dsp/yin_path.h), as `beatless track`.
 std::vector<pitch::PitchFrame> run_ours_full(const std::vector<float>& x) {
-    pitch::YinTracker yin(file_config());
+    pitch::YinConfig cfg = file_config();
+    cfg.keep_candidates = true;
+    pitch::YinTracker yin(cfg);
+    pitch::VoicingPath path(yin.hop_s());
     std::vector<pitch::PitchFrame> out;
     pitch::PitchFrame p;
     for (std::size_t i = 0; i < x.size(); i += 512) {
         yin.push(std::span<const float>(x).subspan(i, std::min<std::size_t>(512, x.size() - i)));
-        while (yin.pull(p)) out.push_back(p);
+        while (yin.pull(p)) path.push(p, yin.candidates());
     }
+    path.finish();
+    while (path.pull(p)) out.push_back(p);
     return out;
 }
 
@@ -668,8 +675,8 @@ bool run_aubio(const std::vector<Class>& cls, std::size_t hop, std::vector<std::
 void run(bench::Context& ctx) {
     std::printf(
         "signals: tests/timbre_signals.h, 0.3 s of silence (or the noise alone) around each note; default\n"
-        "settings of the file path (floor 41 Hz, span 50 ms). Per class: voiced frames; RPA50/10/1 = share of voiced "
-        "frames reported voiced\n"
+        "settings of the file path (floor 41 Hz, span 50 ms, voicing and pitch along a path: pitch/dsp/yin_path.h).\n"
+        "Per class: voiced frames; RPA50/10/1 = share of voiced frames reported voiced\n"
         "and within 50/10/1 cents; median and p95 |cents| of reported frames; gross = share of reported frames\n"
         "over 50 c; oct/5th = share that are octave or fifth errors; recall and false alarms (FA) of the voicing.\n"
         "aubio: yin and yinfft, buffer %zu, same hop, defaults; voiced where it reports a pitch.\n\n",

@@ -12,6 +12,7 @@
 #include "pitch/base/text.h"
 #include "pitch/dsp/drone_comb.h"
 #include "pitch/dsp/yin.h"
+#include "pitch/dsp/yin_path.h"
 #include "pitch/measure/root_detect.h"
 #include "pitch/measure/two_voice.h"
 #include "pitch/theory/notes.h"
@@ -69,6 +70,7 @@ int run_track(const TrackOptions& o) {
     cfg.f_max_hz = o.fmax_hz;
     cfg.span_s = std::max(cfg.span_s, pitch::YinTracker::min_span_s(cfg));  // a low --fmin (or hop) may need more
     cfg.max_block_len_samples = 4096;
+    cfg.keep_candidates = true;  // voicing and pitch are chosen along a path over the whole file (yin_path.h)
     if (o.voices != 1 && o.voices != 2) throw Error("--voices " + std::to_string(o.voices) + ": 1 or 2");
     std::optional<pitch::YinTracker> yin;
     std::optional<pitch::TwoVoiceTracker> duo;
@@ -120,8 +122,13 @@ int run_track(const TrackOptions& o) {
     const auto hz = [](double f) { return f > 0.0 ? pitch::format_trimmed(f, 4) : std::string(); };
     pitch::PitchFrame fr;
     pitch::TwoVoiceFrame dfr;
-    auto pull_all = [&] {
-        while (yin && yin->pull(fr)) {
+    // One voice: the frames wait for the file's end, where the path over all of them decides each one's voicing and
+    // pitch (pitch/dsp/yin_path.h), so the babble of talkers around a performer is not read as a pitch.
+    pitch::VoicingPath path(yin ? yin->hop_s() : cfg.hop_s);
+    auto pull_all = [&](bool at_end) {
+        while (yin && yin->pull(fr)) path.push(fr, yin->candidates());
+        if (yin && at_end) path.finish();
+        while (yin && path.pull(fr)) {
             put(
                 [&] {
                     j.clear();
@@ -149,8 +156,8 @@ int run_track(const TrackOptions& o) {
                     return j.str();
                 },
                 [&] {
-                    return pitch::format_trimmed(dfr.t_s, 4) + "," + hz(dfr.f_low_hz) + "," + hz(dfr.f_high_hz) +
-                           "," + pitch::format_trimmed(dfr.confidence, 3);
+                    return pitch::format_trimmed(dfr.t_s, 4) + "," + hz(dfr.f_low_hz) + "," + hz(dfr.f_high_hz) + "," +
+                           pitch::format_trimmed(dfr.confidence, 3);
                 });
         }
     };
@@ -164,8 +171,9 @@ int run_track(const TrackOptions& o) {
         }
         if (yin) yin->push(x);
         if (duo) duo->push(x);
-        pull_all();
+        pull_all(false);
     }
+    pull_all(true);
     if (json) std::printf("%s]}\n", first ? "" : "\n");
     return 0;
 }
