@@ -299,28 +299,78 @@ TEST_CASE("a tracker slip after a dropout is a dropout; a real leap starts the n
     CHECK(std::fabs(two[1].start_s - 1.2) < 0.01);
 }
 
-TEST_CASE("a piece of a vibrato note cut off by a dropout, shorter than a cycle, says how far off it may be") {
+TEST_CASE("a dropout in a vibrato note: bridged when the pitch comes back within its swing; a piece cut off says so") {
     // 7/5 over 220 Hz, 4 Hz vibrato of +-60 c with its trough 0.08 s after the onset (sine in cents, common practice).
-    // The first 0.16 s are heard (the trough, -60 .. +25 c), then 80 ms drop out and the pitch comes back near the
-    // crest (+38 c, 70 c from the piece's median): the piece is closed there. Its mean is of part of a cycle, off the
-    // vibrato's centre (the truth) by more than 5 c; it must not pass for a measurement: dropout_bias_cents (as far
-    // as the farthest pitch the piece heard) is larger than that error, and the rest of the note, with whole cycles,
-    // reads within 1 c.
+    // The first 0.16 s are heard (the trough, -60 .. +25 c), then 80 ms drop out and the pitch comes back at +38 c,
+    // 70 c from the piece's median: past change_cents (40 c), but within it plus half the swing the piece heard. One
+    // note, read within 1 c (before, the dropout cut it into a 0.16 s piece reading 5 c off and the rest).
     const TargetSet set = tritone_set();
     Note n = vibrato_7_5(4.0, 60.0);
     n.vib_phase = 1.5 * M_PI - 2.0 * M_PI * 4.0 * 0.08;
+    SegmentConfig cfg;
+    cfg.root_hz = 220.0;
     auto frames = frames_of({n}, 2.4, 0.005, 0.3, 11);
     for (auto& f : frames)
         if (f.t_s > 0.36 && f.t_s < 0.44) f.f0_hz = 0.0;
-    SegmentConfig cfg;
-    cfg.root_hz = 220.0;
+    const auto one = segment(frames, cfg, set);
+    REQUIRE(one.size() == 1);
+    CHECK(std::fabs(one[0].start_s - 0.2) < 0.01);
+    CHECK(one[0].vibrato);
+    CHECK(std::fabs(one[0].dev_cents) < 1.0);
+
+    // After the dropout the pitch comes back past the swing allowed (a 140 ms octave slip, 1200 c off, is the next
+    // note's start when it holds): the piece before is closed there. Its mean is of part of a cycle, off the
+    // vibrato's centre (the truth) by more than 5 c; it must not pass for a measurement: dropout_bias_cents (as far
+    // as the farthest pitch the piece heard) is larger than that error, and the rest of the note reads within 1 c.
+    frames = frames_of({n}, 2.4, 0.005, 0.3, 11);
+    for (auto& f : frames) {
+        if (f.t_s > 0.36 && f.t_s < 0.44) f.f0_hz = 0.0;
+        if (f.t_s >= 0.44 && f.t_s < 0.58) f.f0_hz *= 0.5;
+    }
     const auto found = segment(frames, cfg, set);
-    REQUIRE(found.size() == 2);
+    REQUIRE(found.size() == 2);  // the slip, 140 ms, is shorter than a note
     CHECK(found[0].end_s < 0.37);
     const double error = std::fabs(found[0].cents_above_root - 1200.0 * std::log2(7.0 / 5.0));
     CHECK(error > 5.0);
     CHECK(found[0].dropout_bias_cents > error);
-    CHECK(found[1].vibrato);
-    CHECK(std::fabs(found[1].dev_cents) < 1.0);
-    CHECK(std::fabs(found[1].dropout_bias_cents) < 1.0);
+    CHECK(found.back().vibrato);
+    CHECK(std::fabs(found.back().dev_cents) < 1.0);
+    CHECK(std::fabs(found.back().dropout_bias_cents) < 1.0);
+}
+
+TEST_CASE("a dropout through which the level holds is bridged up to hold_s; a rest, where it falls, is not") {
+    // 7/5 over 220 Hz with a 30 c vibrato, levels as a tracker reports them in noise as loud as the voice: -9 dBFS
+    // while the voice sounds, -12 dBFS (3 dB down: the voice's half of the power gone) in a rest.
+    const TargetSet set = tritone_set();
+    SegmentConfig cfg;
+    cfg.root_hz = 220.0;
+    Note n = vibrato_7_5(5.5, 30.0);
+    auto frames = frames_of({n}, 2.4, 0.005, 0.3, 12);
+    // The pitch lost for 250 ms in the middle (past bridge_s, within hold_s) while the sound goes on.
+    for (auto& f : frames) {
+        f.level_dbfs = f.voiced() ? -9.0 : -12.0;
+        if (f.t_s > 1.0 && f.t_s < 1.25) {
+            f.f0_hz = 0.0;
+            f.level_dbfs = -9.5;
+        }
+    }
+    const auto one = segment(frames, cfg, set);
+    REQUIRE(one.size() == 1);
+    CHECK(std::fabs(one[0].dev_cents) < 1.0);
+    CHECK(one[0].heard_share == doctest::Approx(1.95 / 2.2).epsilon(0.02));
+
+    // The same 250 ms as a rest between two notes of the same pitch: the level falls 3 dB, two notes.
+    for (auto& f : frames)
+        if (f.t_s > 1.0 && f.t_s < 1.25) f.level_dbfs = -12.0;
+    const auto two = segment(frames, cfg, set);
+    REQUIRE(two.size() == 2);
+    CHECK(std::fabs(two[0].end_s - 1.0) < 0.01);
+    CHECK(std::fabs(two[1].start_s - 1.25) < 0.01);
+    // And past hold_s (400 ms) even with the level held: two notes.
+    for (auto& f : frames)
+        if (f.t_s > 1.0 && f.t_s < 1.4) {
+            f.f0_hz = 0.0;
+            f.level_dbfs = -9.5;
+        }
+    CHECK(segment(frames, cfg, set).size() == 2);
 }

@@ -188,43 +188,49 @@ TEST_CASE("two voices over a low drone with rests: no notes from the drone's par
 TEST_CASE("noise from 40 dB to 0 dB SNR: fewer notes, never more again, each within 2 cents; a hint when none") {
     TempDir dir;
     const auto truth = tritone_notes();
-    std::size_t last_count = 99;
-    for (double snr = 40.0; snr >= 0.0; snr -= 4.0) {
-        CAPTURE(snr);
-        const double rms = std::sqrt(voice_power(0.2) / std::pow(10.0, snr / 10.0));
-        const Take take = drone_and_voice(kFs, 110.0, truth, 7, 1, 1.6, rms);
-        const std::string wav = dir.file("noisy.wav");
-        write(wav, take.samples);
-        const auto r = run_program({"analyze", wav, "--root", "110", "--targets", "tritones", "--format", "json"});
-        REQUIRE(r.exit_code == 0);
-        const auto dev = numbers(r.out, "[n['dev_cents'] for n in d['notes']]");
-        const auto start = numbers(r.out, "[n['start_s'] for n in d['notes']]");
-        const auto end = numbers(r.out, "[n['end_s'] for n in d['notes']]");
-        const auto unsure = words(r.out, "[n['unsure'] for n in d['notes']]");
-        // Each unsure note says why in its remark (no spaces for json_words: whether it starts with the phrase).
-        const auto says_why =
-            words(r.out, "[n['remark'].startswith('unsure: dropouts in noise may move it ') for n in d['notes']]");
-        if (snr >= 28.0) CHECK(dev.size() == truth.size());
-        // The highest note (16/11 over A3, 320 Hz, +-45 c vibrato) lies near the comb's notch at 330 Hz (its gain
-        // 2 |sin(pi f / root)|, pitch/dsp/drone_comb.h): the crest of each vibrato cycle fades into the noise from
-        // 8 dB down and its frames drop out, so the whole-cycle mean misses the crests and reads flat (5.5 c at 4 dB,
-        // 29 c at 0 dB). Such a note is reported without a deviation, "unsure", instead of with a wrong one
-        // (pitch::judge_dropouts); every deviation reported stays within 2 c, and down to 12 dB every note has one.
-        CHECK(dev.size() <= last_count);
-        last_count = dev.size();
-        for (std::size_t i = 0; i < dev.size(); ++i) {
-            // The note it lies in.
-            std::size_t k = 0;
-            while (k + 1 < take.notes.size() && take.notes[k].end_s < 0.5 * (start[i] + end[i])) ++k;
-            CAPTURE(start[i]);
-            if (snr >= 12.0) CHECK(unsure[i] == "False");
-            if (unsure[i] == "True") {
-                CHECK(!std::isfinite(dev[i]));
-                CHECK(says_why[i] == "True");
-                continue;
+    // Four noises: seed 7, and three where one noise split notes at 0 dB (2, 4) or read one 2.4 c off (9) before
+    // a dropout with the level held was bridged and a note heard under 65 % of its time called unsure.
+    for (const std::uint64_t seed : {7, 2, 4, 9}) {
+        CAPTURE(seed);
+        std::size_t last_count = 99;
+        for (double snr = 40.0; snr >= 0.0; snr -= 4.0) {
+            CAPTURE(snr);
+            const double rms = std::sqrt(voice_power(0.2) / std::pow(10.0, snr / 10.0));
+            const Take take = drone_and_voice(kFs, 110.0, truth, seed, 1, 1.6, rms);
+            const std::string wav = dir.file("noisy.wav");
+            write(wav, take.samples);
+            const auto r = run_program({"analyze", wav, "--root", "110", "--targets", "tritones", "--format", "json"});
+            REQUIRE(r.exit_code == 0);
+            const auto dev = numbers(r.out, "[n['dev_cents'] for n in d['notes']]");
+            const auto start = numbers(r.out, "[n['start_s'] for n in d['notes']]");
+            const auto end = numbers(r.out, "[n['end_s'] for n in d['notes']]");
+            const auto unsure = words(r.out, "[n['unsure'] for n in d['notes']]");
+            // Each unsure note says why in its remark (no spaces for json_words: whether it starts with a reason).
+            const auto says_why = words(r.out,
+                                        "[n['remark'].startswith(('unsure: dropouts in noise may move it ', "
+                                        "'unsure: its pitch heard only ')) for n in d['notes']]");
+            if (snr >= 28.0) CHECK(dev.size() == truth.size());
+            // The highest note (16/11 over A3, 320 Hz, +-45 c vibrato) lies near the comb's notch at 330 Hz (its gain
+            // 2 |sin(pi f / root)|, pitch/dsp/drone_comb.h): the crest of each vibrato cycle fades into the noise from
+            // 8 dB down and its frames drop out, so the whole-cycle mean misses the crests and reads flat (5.5 c at 4 dB,
+            // 29 c at 0 dB). Such a note is reported without a deviation, "unsure", instead of with a wrong one
+            // (pitch::judge_dropouts); every deviation reported stays within 2 c, and down to 12 dB every note has one.
+            CHECK(dev.size() <= last_count);
+            last_count = dev.size();
+            for (std::size_t i = 0; i < dev.size(); ++i) {
+                // The note it lies in.
+                std::size_t k = 0;
+                while (k + 1 < take.notes.size() && take.notes[k].end_s < 0.5 * (start[i] + end[i])) ++k;
+                CAPTURE(start[i]);
+                if (snr >= 12.0) CHECK(unsure[i] == "False");
+                if (unsure[i] == "True") {
+                    CHECK(!std::isfinite(dev[i]));
+                    CHECK(says_why[i] == "True");
+                    continue;
+                }
+                if (!std::isfinite(dev[i])) continue;  // between targets: no deviation is reported
+                CHECK(std::fabs(dev[i] - truth[k].second) < 2.0);
             }
-            if (!std::isfinite(dev[i])) continue;  // between targets: no deviation is reported
-            CHECK(std::fabs(dev[i] - truth[k].second) < 2.0);
         }
     }
     // Noise alone, with the root given: no notes, and one line saying why.

@@ -97,8 +97,9 @@ std::vector<NoteJudgement> judge_notes(const TargetSet& set, std::span<const dou
     return out;
 }
 
-void judge_dropouts(NoteJudgement& judged, double dropout_bias_cents, const IntentConfig& cfg) {
+void judge_dropouts(NoteJudgement& judged, double dropout_bias_cents, double heard_share, const IntentConfig& cfg) {
     judged.unsure_cents = std::fabs(dropout_bias_cents) > cfg.unsure_cents ? std::fabs(dropout_bias_cents) : NAN;
+    judged.unsure_heard = heard_share < cfg.min_heard_share ? heard_share : NAN;
 }
 
 }  // namespace beatless::pitch

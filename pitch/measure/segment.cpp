@@ -5,9 +5,10 @@
 // drone_tol_cents of the root's own pitch class (the drone leaking into the
 // tracker) count as silence; (2) a note starts at the first voiced frame
 // and ends at a silence longer than max_gap_s (bridge_s when the pitch comes
-// back to the note: dropouts in noise; a frame far from the note meanwhile, a tracker's slip, is held aside until
-// the pitch comes back, or starts the next note if it does not), or splits where a 0.2 s trailing
-// median of the pitch (blind to the tracker's octave slips) leaves the note's vibrato centre by more than
+// back to the note, its vibrato's range allowed for: dropouts in noise; hold_s when besides the level stayed up
+// through the gap: the sound went on, only its pitch was lost; a frame far from the note meanwhile, a tracker's
+// slip, is held aside until the pitch comes back, or starts the next note if it does not), or splits where a 0.2 s
+// trailing median of the pitch (blind to the tracker's octave slips) leaves the note's vibrato centre by more than
 // change_cents for change_s (a legato step, cut where a two-level step fit
 // puts it); (3) notes shorter than min_note_s are dropped; (4) per note, a
 // streaming VibratoCentre (pitch/dsp/vibrato.h) gives a centre reading per
@@ -73,6 +74,8 @@ NoteSegmenter::NoteSegmenter(const SegmentConfig& config, const TargetSet& targe
     trim_n_ = static_cast<std::size_t>(std::lround(cfg_.release_trim_s / cfg_.hop_s));
     recent_.assign(smooth_n_, 0.0);
     check(cfg_.bridge_s >= cfg_.max_gap_s && cfg_.bridge_s <= 1.0, "bridge_s", cfg_.bridge_s);
+    check(cfg_.hold_s >= cfg_.bridge_s && cfg_.hold_s <= 2.0, "hold_s", cfg_.hold_s);
+    check(cfg_.hold_db >= 0.0 && cfg_.hold_db <= 20.0, "hold_db", cfg_.hold_db);
     check(cfg_.outlier_cents > cfg_.change_cents, "outlier_cents", cfg_.outlier_cents);
 }
 
@@ -83,6 +86,21 @@ double NoteSegmenter::recent_median() noexcept {
     std::nth_element(recent_.begin(), recent_.begin() + static_cast<std::ptrdiff_t>(k / 2),
                      recent_.begin() + static_cast<std::ptrdiff_t>(k));
     return recent_[k / 2];
+}
+
+double NoteSegmenter::back_cents() const noexcept {
+    const std::size_t k = std::min(n_, smooth_n_);
+    if (k == 0) return cfg_.change_cents;
+    const auto [lo, hi] = std::minmax_element(c_.begin() + static_cast<std::ptrdiff_t>(n_ - k),
+                                              c_.begin() + static_cast<std::ptrdiff_t>(n_));
+    return cfg_.change_cents + 0.5 * (*hi - *lo);
+}
+
+double NoteSegmenter::reach_s(double gap_s) const noexcept {
+    const bool level_held =
+        level_n_ > 0 && gap_level_n_ > 0 && !gap_silent_ &&
+        gap_level_sum_ / static_cast<double>(gap_level_n_) >= level_sum_ / static_cast<double>(level_n_) - cfg_.hold_db;
+    return level_held && gap_s <= cfg_.hold_s + 0.5 * cfg_.hop_s ? cfg_.hold_s : cfg_.bridge_s;
 }
 
 void NoteSegmenter::add_frame(double t_s, double cents) noexcept {
@@ -104,6 +122,11 @@ void NoteSegmenter::start_with(std::size_t from) noexcept {
     std::memmove(conf_.data(), conf_.data() + from, keep * sizeof(double));
     n_ = 0;
     cut_before_ = false;
+    level_sum_ = 0.0;
+    level_n_ = 0;
+    gap_level_sum_ = 0.0;
+    gap_level_n_ = 0;
+    gap_silent_ = false;
     vib_.reset();
     smooth_sum_ = 0.0;
     anchor_ = NAN;
@@ -123,15 +146,24 @@ bool NoteSegmenter::push(const PitchFrame& frame, NoteResult& out) noexcept {
             ++drone_frames_;
         }
     }
-    // A frame far from an established note within bridge_s of its last frame (a slip of the tracker, an octave or a
-    // fifth; or, after a dropout longer than max_gap_s, anything past change_cents) is held aside: a dropout if the
+    // A frame far from an established note (50 ms of it) within reach of its last frame (a slip of the tracker, an
+    // octave or a fifth; or, after a dropout longer than max_gap_s, anything past back_cents) is held aside: a dropout if the
     // pitch comes back to the note, the start of the next note if it does not (the note ends at its last frame).
-    const bool established = n_ >= smooth_n_;
+    const bool established = n_ >= std::max<std::size_t>(4, smooth_n_ / 4);
     const double gap_s = n_ > 0 ? frame.t_s - last_voiced_t_ : 0.0;
     const bool after_gap = gap_s > cfg_.max_gap_s + 0.5 * cfg_.hop_s;
-    if (voiced && established && gap_s <= cfg_.bridge_s + 0.5 * cfg_.hop_s && n_ + held_ < cap_) {
+    if (n_ > 0 && !voiced) {  // the level through a gap: a rest falls, a dropout in noise holds
+        if (std::isfinite(frame.level_dbfs)) {
+            gap_level_sum_ += frame.level_dbfs;
+            ++gap_level_n_;
+        } else {
+            gap_silent_ = true;
+        }
+    }
+    const double reach = n_ > 0 ? reach_s(gap_s) + 0.5 * cfg_.hop_s : 0.0;
+    if (voiced && established && gap_s <= reach && n_ + held_ < cap_) {
         const double off = std::fabs(cents - recent_median());
-        if (off > cfg_.outlier_cents || (after_gap && off > cfg_.change_cents)) {
+        if (off > cfg_.outlier_cents || (after_gap && off > back_cents())) {
             t_[n_ + held_] = frame.t_s;
             c_[n_ + held_] = cents;
             conf_[n_ + held_] = frame.confidence;
@@ -140,17 +172,23 @@ bool NoteSegmenter::push(const PitchFrame& frame, NoteResult& out) noexcept {
         }
     }
     if (!voiced) {
-        if (n_ > 0 && gap_s > cfg_.bridge_s) return close_before_held(out, false);
+        if (n_ > 0 && gap_s > reach - 0.5 * cfg_.hop_s) return close_before_held(out, false);
         return false;
     }
     bool emitted = false;
-    if (n_ > 0 && after_gap &&
-        (gap_s > cfg_.bridge_s + 0.5 * cfg_.hop_s || std::fabs(cents - recent_median()) > cfg_.change_cents)) {
-        // Within bridge_s the pitch came back elsewhere: the dropout cut the note here.
-        emitted = close_before_held(out, gap_s <= cfg_.bridge_s + 0.5 * cfg_.hop_s);
+    if (n_ > 0 && after_gap && (gap_s > reach || std::fabs(cents - recent_median()) > back_cents())) {
+        // Within reach the pitch came back elsewhere: the dropout cut the note here.
+        emitted = close_before_held(out, gap_s <= reach);
     } else {
         held_ = 0;  // back at the note: the frames held aside were slips
         if (n_ == cap_) emitted = close(n_, true, out);
+    }
+    gap_level_sum_ = 0.0;
+    gap_level_n_ = 0;
+    gap_silent_ = false;
+    if (std::isfinite(frame.level_dbfs)) {
+        level_sum_ += frame.level_dbfs;
+        ++level_n_;
     }
     conf_[n_] = frame.confidence;
     add_frame(frame.t_s, cents);
@@ -220,6 +258,7 @@ bool NoteSegmenter::close(std::size_t m, bool truncated, NoteResult& out) noexce
         r.start_s = t_[0];
         r.end_s = t_[m - 1];
         r.frames = static_cast<int>(m);
+        r.heard_share = std::min(1.0, static_cast<double>(m) * cfg_.hop_s / dur);
         r.truncated = truncated;
         double conf_sum = 0.0;
         for (std::size_t i = 0; i < m; ++i) conf_sum += conf_[i];

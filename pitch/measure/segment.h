@@ -26,8 +26,13 @@ struct SegmentConfig {
     double min_confidence = 0.5;               // weaker frames count as silence (default 0.5)
     double min_note_s = 0.15;                  // shorter notes are dropped (default 150 ms)
     double max_gap_s = 0.04;                   // silences up to this are bridged (default 40 ms)
-    double bridge_s = 0.12;                    // ... and up to this when the pitch comes back within change_cents
-                                               //   of the note (dropouts in noise; default 120 ms)
+    double bridge_s = 0.12;                    // ... and up to this when the pitch comes back to the note: within
+                                               //   change_cents of its recent median, widened by half the recent
+                                               //   frames' range (a vibrato) (dropouts in noise; default 120 ms)
+    double hold_s = 0.35;                      // ... and up to this when, besides, the level through the gap
+                                               //   stayed within hold_db of the note's mean level: the sound went
+                                               //   on, only its pitch was lost (default 350 ms)
+    double hold_db = 1.5;                      // (default 1.5 dB; a rest in noise as loud as the voice falls 3 dB)
     double outlier_cents = 150.0;              // a frame this far from the note's recent median is a tracker slip
                                                //   (an octave or fifth in noise): held aside, and left out like a
                                                //   dropout when the pitch comes back within bridge_s; else the
@@ -55,6 +60,7 @@ struct NoteResult {
     double start_s = 0.0;              // first voiced frame
     double end_s = 0.0;                // last voiced frame
     int frames = 0;                    // voiced frames in the note
+    double heard_share = 1.0;          // frames times the hop over the note's time: how much of it the tracker heard
     double centre_f0_hz = 0.0;         // vibrato-centre f0
     double cents_above_root = 0.0;     // 1200 log2(centre_f0 / root)
     double ratio = 0.0;                // centre_f0 / root
@@ -114,15 +120,22 @@ private:
     TargetSet targets_;
     VibratoCentre vib_;
     std::size_t cap_ = 0;
-    std::size_t n_ = 0;               // frames in the open note
-    bool cut_before_ = false;         // the open note began after a dropout cut it from the one before
-    bool cut_after_ = false;          // (while closing) the note ends where a dropout cut it from the next
-    std::size_t held_ = 0;            // frames after them held aside (t_, c_, conf_ [n_, n_ + held_)): slips or the
-                                      //   next note's start, until the pitch comes back or bridge_s passes
-    double recent_median() noexcept;  // median of the last smooth_n_ frames (fewer at the start)
+    std::size_t n_ = 0;                  // frames in the open note
+    bool cut_before_ = false;            // the open note began after a dropout cut it from the one before
+    bool cut_after_ = false;             // (while closing) the note ends where a dropout cut it from the next
+    std::size_t held_ = 0;               // frames after them held aside (t_, c_, conf_ [n_, n_ + held_)): slips or the
+                                         //   next note's start, until the pitch comes back or bridge_s passes
+    double recent_median() noexcept;     // median of the last smooth_n_ frames (fewer at the start)
+    double back_cents() const noexcept;  // how far from recent_median() a pitch after a dropout is back at the note
+    double reach_s(double gap_s) const noexcept;  // the longest dropout bridged now (bridge_s, or hold_s)
 
     std::vector<double> t_, c_, centre_, win_start_, scratch_, recent_, conf_;
     double last_voiced_t_ = -1e300;
+    double level_sum_ = 0.0;      // sum of the note's voiced frames' levels (dBFS) ...
+    std::size_t level_n_ = 0;     // ... over this many (finite levels only)
+    double gap_level_sum_ = 0.0;  // the same over the frames since the last voiced one
+    std::size_t gap_level_n_ = 0;
+    bool gap_silent_ = false;  // a frame since the last voiced one was digital silence
     std::size_t smooth_n_ = 1;
     std::size_t trim_n_ = 0;  // release_trim_s in frames
     double smooth_sum_ = 0.0;

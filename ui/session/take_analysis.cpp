@@ -157,7 +157,7 @@ void judge(const AnalysisRequest& req, std::vector<Item>& items, CentsOf cents_o
     pitch::NoteSummary sum(req.targets);
     for (std::size_t i = 0; i < items.size(); ++i) {
         if constexpr (requires { items[i].dropout_bias_cents; })
-            pitch::judge_dropouts(judged[i], items[i].dropout_bias_cents, req.intent);
+            pitch::judge_dropouts(judged[i], items[i].dropout_bias_cents, items[i].heard_share, req.intent);
         apply_to(judged[i], items[i]);
         sum.add(items[i].target_index, items[i].target_octaves, items[i].dev_cents);
     }

@@ -41,8 +41,13 @@ void add_judgement_json(JsonWriter& j, const pitch::TargetSet& set, const pitch:
     j.key("between_targets").value(g.between).key("nearer_other").value(g.nearer_other);
     j.key("unsure").value(g.unsure());
     j.key("unsure_cents");
-    if (g.unsure())
+    if (std::isfinite(g.unsure_cents))
         j.value(g.unsure_cents, 3);
+    else
+        j.null();
+    j.key("unsure_heard");
+    if (std::isfinite(g.unsure_heard))
+        j.value(g.unsure_heard, 3);
     else
         j.null();
     j.key("remark").value(judgement_words(g, set, intervals));

@@ -117,7 +117,12 @@ std::string judgement_words(const pitch::NoteJudgement& j, const pitch::TargetSe
 }
 
 std::string unsure_words(const pitch::NoteJudgement& j) {
-    return "dropouts in noise may move it " + format_trimmed(j.unsure_cents, 1) + " c";
+    std::string heard, moved;
+    if (std::isfinite(j.unsure_heard))
+        heard = "its pitch heard only " + std::to_string(std::lround(100.0 * j.unsure_heard)) + " % of the time";
+    if (std::isfinite(j.unsure_cents))
+        moved = "dropouts in noise may move it " + format_trimmed(j.unsure_cents, 1) + " c";
+    return heard.empty() ? moved : moved.empty() ? heard : heard + "; " + moved;
 }
 
 std::string no_deviation_word(const pitch::NoteJudgement& j, bool short_form) {
