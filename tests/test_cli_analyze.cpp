@@ -140,7 +140,7 @@ TEST_CASE("text, CSV, a target file and a given root") {
     const auto csv = run_program({"analyze", wav, "--targets", set, "--format", "csv"});
     REQUIRE(csv.exit_code == 0);
     CHECK(csv.out.rfind("start_s,end_s,f0_hz,ratio,target,target_name,dev_cents,spread_cents,settle_s,beat_hz,partial_"
-                        "root,partial_voice,beat_in_tune_hz\n",
+                        "root,partial_voice,beat_in_tune_hz,remark\n",
                         0) == 0);
     CHECK(beatless::test::line_count(csv.out) == 4);
     CHECK(csv.out.find(",10/7,greater septimal tritone,-") != std::string::npos);
@@ -204,7 +204,7 @@ TEST_CASE("two voices from one microphone: held intervals at and off just ratios
     CHECK(text.out.find("4/3 averages 12 cents wide (1 interval)") != std::string::npos);
     const auto csv = run_program({"analyze", wav, "--voices", "2", "--format", "csv"});
     CHECK(csv.out.rfind("start_s,end_s,f_low_hz,f_high_hz,interval_cents,target,target_name,dev_cents,spread_cents,"
-                        "predicted_beat_hz,measured_beat_hz\n",
+                        "predicted_beat_hz,measured_beat_hz,remark\n",
                         0) == 0);
     CHECK(beatless::test::line_count(csv.out) == 8);
 }

@@ -89,6 +89,11 @@ TEST_CASE("--expect: each note judged against the target meant, within 0.5 cent,
     const auto text = run_program({"analyze", wav, "--targets", "tritones", "--expect", "45/32,7/5,10/7,11/8,16/11"});
     REQUIRE(text.exit_code == 0);
     CHECK(text.out.find("meant 45/32 +1oct, sung 12 c flat: that is 4.3 c from 7/5 +1oct") != std::string::npos);
+    // The CSV's last column carries the same words (RFC 4180 quoting: the remark holds commas).
+    const auto csv = run_program(
+        {"analyze", wav, "--targets", "tritones", "--expect", "45/32,7/5,10/7,11/8,16/11", "--format", "csv"});
+    REQUIRE(csv.exit_code == 0);
+    CHECK(csv.out.find(",\"meant 45/32 +1oct, sung 12 c flat: that is 4.3 c from 7/5 +1oct\"\n") != std::string::npos);
     // Without --expect the 45/32 is named for its nearest target, as before.
     const auto plain = run_program({"analyze", wav, "--targets", "tritones", "--format", "json"});
     CHECK(words(plain.out, "[n['target'] for n in d['notes']]")[0] == "7/5");

@@ -137,14 +137,19 @@ std::string one_voice_json(const std::string& file, const pitch::TargetSet& set,
 std::string one_voice_csv(const pitch::TargetSet& set, const OneVoiceAnalysis& a) {
     std::string out =
         "start_s,end_s,f0_hz,ratio,target,target_name,dev_cents,spread_cents,settle_s,beat_hz,partial_root,partial_"
-        "voice,beat_in_tune_hz\n";
+        "voice,beat_in_tune_hz,remark\n";
     auto whole = [](int v) { return v > 0 ? std::to_string(v) : std::string(); };
-    for (const auto& n : a.notes)
+    for (std::size_t i = 0; i < a.notes.size(); ++i) {
+        const auto& n = a.notes[i];
+        // The remark as the text and JSON give it: why a note has no target or deviation (between targets, unsure),
+        // or what else was meant.
+        const std::string remark = i < a.judged.size() ? judgement_words(a.judged[i], set, false) : std::string();
         out += num(n.start_s, 4) + "," + num(n.end_s, 4) + "," + num(n.centre_f0_hz, 4) + "," + num(n.ratio, 6) + "," +
                csv_field(target_text_of(set, n.target_index)) + "," + csv_field(target_name_of(set, n.target_index)) +
                "," + num(n.dev_cents, 3) + "," + num(n.spread_cents, 3) + "," + num(n.settle_s, 3) + "," +
                num(n.beat_hz, 3) + "," + whole(n.partial_root) + "," + whole(n.partial_voice) + "," +
-               num(n.beat_in_tune_hz, 3) + "\n";
+               num(n.beat_in_tune_hz, 3) + "," + csv_field(remark) + "\n";
+    }
     return out;
 }
 
@@ -206,12 +211,16 @@ std::string two_voice_json(const std::string& file, const pitch::TargetSet& set,
 std::string two_voice_csv(const pitch::TargetSet& set, const TwoVoiceAnalysis& a) {
     std::string out =
         "start_s,end_s,f_low_hz,f_high_hz,interval_cents,target,target_name,dev_cents,spread_cents,predicted_beat_hz,"
-        "measured_beat_hz\n";
-    for (const auto& d : a.dyads)
+        "measured_beat_hz,remark\n";
+    for (std::size_t i = 0; i < a.dyads.size(); ++i) {
+        const auto& d = a.dyads[i];
+        const std::string remark = i < a.judged.size() ? judgement_words(a.judged[i], set, true) : std::string();
         out += num(d.start_s, 4) + "," + num(d.end_s, 4) + "," + num(d.f_low_hz, 4) + "," + num(d.f_high_hz, 4) + "," +
                num(d.interval_cents, 3) + "," + csv_field(target_text_at(set, d.target_index, d.target_octaves)) + "," +
                csv_field(target_name_at(set, d.target_index, d.target_octaves)) + "," + num(d.dev_cents, 3) + "," +
-               num(d.spread_cents, 3) + "," + num(d.predicted_beat_hz, 3) + "," + num(d.measured_beat_hz, 3) + "\n";
+               num(d.spread_cents, 3) + "," + num(d.predicted_beat_hz, 3) + "," + num(d.measured_beat_hz, 3) + "," +
+               csv_field(remark) + "\n";
+    }
     return out;
 }
 
