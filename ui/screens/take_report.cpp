@@ -254,10 +254,14 @@ void draw_axes(const Ink& ink, const ReportData& d, const ReportLayout& l) {
         dl->AddLine(ImVec2(x, l.plot_y0), ImVec2(x, l.plot_y1), kGrid, 1.0f);
         ink.text_centre(ink.body, x, l.plot_y1 + 8.0f, kSoftInk, clock_text(t, minutes));
     }
-    ink.text_right(ink.body, l.plot_x1, l.plot_y1 + 8.0f + lh + 4.0f, kInk, minutes ? "time (min:s)" : "time (s)");
+    const std::string time_label = minutes ? "time (min:s)" : "time (s)";
+    ink.text_right(ink.body, l.plot_x1, l.plot_y1 + 8.0f + lh + 4.0f, kInk, time_label);
+    // The key to the marks, on the same line, left of the time axis's label and never over it.
+    const float key_w = l.plot_x1 - l.plot_x0 - ink.size(ink.body, time_label).x - 24.0f;
     ink.text(
         ink.body, l.plot_x0, l.plot_y1 + 8.0f + lh + 4.0f, kSoftInk,
-        "bar: a held " + d.mark_word + "'s centre, labelled with its deviation; stem: from the target line to the bar");
+        fit_text(ink.body, "bar: a held " + d.mark_word + "'s centre, labelled with its deviation; stem: target to bar",
+                 key_w));
     dl->AddRect(ImVec2(l.plot_x0 - 0.5f, l.plot_y0 - 0.5f), ImVec2(l.plot_x1 + 0.5f, l.plot_y1 + 0.5f), kInk, 0.0f, 0,
                 1.5f);
 }
