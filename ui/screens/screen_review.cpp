@@ -946,6 +946,12 @@ void ReviewScreen::draw_summary(ImDrawList* dl, float x, float y, float w, float
     const float row_h = compact ? std::round(1.4f * u) : std::round(2.6f * u);
     std::size_t fit = static_cast<std::size_t>(std::max(0.0f, room / row_h));
     if (fit < rows.size() && fit > 0) --fit;  // the last line names what is not shown
+    // "mean 2.1 c sharp" on every row, or on none where the column is too narrow for one of them.
+    bool with_mean = true;
+    for (const auto& row : rows)
+        if (text_size(FontFace::bold, "mean " + off_words(row.mean_dev_cents, take_->voices == 2)).x >
+            w - 2 * pad - col)
+            with_mean = false;
     for (std::size_t i = 0; i < rows.size() && i < fit; ++i) {
         const auto& row = rows[i];
         const Tuning tn = tuning_of(row.mean_dev_cents, in_tune_cents_);
@@ -953,7 +959,8 @@ void ReviewScreen::draw_summary(ImDrawList* dl, float x, float y, float w, float
                   fit_text(FontFace::bold, view_.summary_rows[i], col - 0.3f * u));
         std::string more = count_words(row.count, take_->voices == 2);
         if (row.count > 1) more += ", spread " + pitch::format_trimmed(row.spread_cents, 1) + " c";
-        const std::string mean = "mean " + off_words(row.mean_dev_cents, take_->voices == 2);
+        const std::string mean =
+            std::string(with_mean ? "mean " : "") + off_words(row.mean_dev_cents, take_->voices == 2);
         if (compact) {
             draw_text(dl, FontFace::bold, ImVec2(x + pad + col, ty), tuning_colour(tn),
                       fit_text(FontFace::bold, off_words(row.mean_dev_cents, take_->voices == 2) + " \xC2\xB7 " + more,
