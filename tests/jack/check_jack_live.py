@@ -25,7 +25,7 @@ import tempfile
 import threading
 import time
 
-from jack_rig import stop  # the shared child stopper (SIGTERM, then SIGKILL after 5 s)
+from jack_rig import jack_tool, stop  # the shared child stopper (SIGTERM, then SIGKILL after 5 s)
 
 BEATLESS = sys.argv[1]
 # One fixed name: JACK keeps a server in its registry (/dev/shm, at most 8) until it exits cleanly, and reclaims a
@@ -49,27 +49,28 @@ def start_jackd():
     p = subprocess.Popen(["jackd", "-n", SERVER, "--no-realtime", "-d", "dummy", "-r", "48000", "-p", "256"],
                          env=ENV, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL, start_new_session=True)
     children.append(p)
-    deadline = time.time() + 10
+    deadline = time.time() + 20
     while time.time() < deadline:
-        r = subprocess.run(["jack_lsp"], env=ENV, capture_output=True, text=True, timeout=5)
-        if r.returncode == 0 and "system:capture_1" in r.stdout:
+        r = jack_tool(["jack_lsp"], ENV)
+        if r is not None and r.returncode == 0 and "system:capture_1" in r.stdout:
             return p
         time.sleep(0.2)
-    raise RuntimeError("jackd did not come up within 10 s")
+    raise RuntimeError("jackd did not come up within 20 s")
 
 
-def connect(src, dst, timeout_s=5.0):
+def connect(src, dst, timeout_s=15.0):
     deadline = time.time() + timeout_s
     while time.time() < deadline:
-        if subprocess.run(["jack_connect", src, dst], env=ENV, capture_output=True, timeout=5).returncode == 0:
+        r = jack_tool(["jack_connect", src, dst], ENV)
+        if r is not None and r.returncode == 0:
             return True
         time.sleep(0.05)
     return False
 
 
 def ports(prefix):
-    r = subprocess.run(["jack_lsp"], env=ENV, capture_output=True, text=True, timeout=5)
-    return [l for l in r.stdout.splitlines() if l.startswith(prefix)]
+    r = jack_tool(["jack_lsp"], ENV)
+    return [l for l in r.stdout.splitlines() if l.startswith(prefix)] if r is not None else []
 
 
 def listen(args, home):

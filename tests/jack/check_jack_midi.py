@@ -33,7 +33,7 @@ import sys
 import tempfile
 import time
 
-from jack_rig import run, stop
+from jack_rig import jack_tool, run, stop
 
 BEATLESS = sys.argv[1]
 KEYS = sys.argv[2] if len(sys.argv) > 2 else ""
@@ -59,8 +59,8 @@ def start(args, env=None, **kw):
 
 
 def jack_ports():
-    r = subprocess.run(["jack_lsp"], env=ENV, capture_output=True, text=True, timeout=5)
-    return r.stdout.splitlines() if r.returncode == 0 else []
+    r = jack_tool(["jack_lsp"], ENV)
+    return r.stdout.splitlines() if r is not None and r.returncode == 0 else []
 
 
 def wait_for_port(name, timeout_s=10.0):

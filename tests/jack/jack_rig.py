@@ -19,6 +19,17 @@ def stop(p, sig=signal.SIGTERM):
             p.wait(timeout=5)
 
 
+def jack_tool(args, env, timeout_s=10):
+    """Runs one of JACK's command-line clients (jack_lsp, jack_connect).
+    On a loaded machine a client can hang on the server's socket for
+    seconds; that counts as a failed try (None), and the callers' own
+    deadlines retry it, rather than the exception ending the whole test."""
+    try:
+        return subprocess.run(args, env=env, capture_output=True, text=True, timeout=timeout_s)
+    except subprocess.TimeoutExpired:
+        return None
+
+
 def run(main, children):
     code = 1
     try:
