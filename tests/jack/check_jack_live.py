@@ -25,7 +25,7 @@ import tempfile
 import threading
 import time
 
-from jack_rig import jack_tool, stop  # the shared child stopper (SIGTERM, then SIGKILL after 5 s)
+from jack_rig import jack_connect, jack_ports, stop  # shared with the MIDI test; stop: SIGTERM, then SIGKILL after 5 s
 
 BEATLESS = sys.argv[1]
 # One fixed name: JACK keeps a server in its registry (/dev/shm, at most 8) until it exits cleanly, and reclaims a
@@ -51,8 +51,7 @@ def start_jackd():
     children.append(p)
     deadline = time.time() + 20
     while time.time() < deadline:
-        r = jack_tool(["jack_lsp"], ENV)
-        if r is not None and r.returncode == 0 and "system:capture_1" in r.stdout:
+        if "system:capture_1" in jack_ports(ENV):
             return p
         time.sleep(0.2)
     raise RuntimeError("jackd did not come up within 20 s")
@@ -61,16 +60,14 @@ def start_jackd():
 def connect(src, dst, timeout_s=15.0):
     deadline = time.time() + timeout_s
     while time.time() < deadline:
-        r = jack_tool(["jack_connect", src, dst], ENV)
-        if r is not None and r.returncode == 0:
+        if jack_connect(ENV, src, dst):
             return True
         time.sleep(0.05)
     return False
 
 
 def ports(prefix):
-    r = jack_tool(["jack_lsp"], ENV)
-    return [l for l in r.stdout.splitlines() if l.startswith(prefix)] if r is not None else []
+    return [l for l in jack_ports(ENV) if l.startswith(prefix)]
 
 
 def listen(args, home):

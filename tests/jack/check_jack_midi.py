@@ -33,7 +33,7 @@ import sys
 import tempfile
 import time
 
-from jack_rig import jack_tool, run, stop
+from jack_rig import jack_ports, run, stop
 
 BEATLESS = sys.argv[1]
 KEYS = sys.argv[2] if len(sys.argv) > 2 else ""
@@ -58,15 +58,10 @@ def start(args, env=None, **kw):
     return p
 
 
-def jack_ports():
-    r = jack_tool(["jack_lsp"], ENV)
-    return r.stdout.splitlines() if r is not None and r.returncode == 0 else []
-
-
 def wait_for_port(name, timeout_s=10.0):
     deadline = time.time() + timeout_s
     while time.time() < deadline:
-        if name in jack_ports():
+        if name in jack_ports(ENV):
             return True
         time.sleep(0.1)
     return False

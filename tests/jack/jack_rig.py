@@ -19,15 +19,27 @@ def stop(p, sig=signal.SIGTERM):
             p.wait(timeout=5)
 
 
-def jack_tool(args, env, timeout_s=10):
-    """Runs one of JACK's command-line clients (jack_lsp, jack_connect).
-    On a loaded machine a client can hang on the server's socket for
-    seconds; that counts as a failed try (None), and the callers' own
-    deadlines retry it, rather than the exception ending the whole test."""
+def _jack_tool(args, env, timeout_s=10):
+    """Runs one of JACK's command-line clients. On a loaded machine a client
+    can hang on the server's socket for seconds; that counts as a failed try
+    (None), which the callers' own deadlines retry, rather than an exception
+    ending the whole test."""
     try:
         return subprocess.run(args, env=env, capture_output=True, text=True, timeout=timeout_s)
     except subprocess.TimeoutExpired:
         return None
+
+
+def jack_ports(env):
+    """The server's ports, one per line (jack_lsp); none when it failed."""
+    r = _jack_tool(["jack_lsp"], env)
+    return r.stdout.splitlines() if r is not None and r.returncode == 0 else []
+
+
+def jack_connect(env, src, dst):
+    """One try at connecting src to dst (jack_connect); True when it did."""
+    r = _jack_tool(["jack_connect", src, dst], env)
+    return r is not None and r.returncode == 0
 
 
 def run(main, children):
