@@ -279,6 +279,10 @@ TEST_CASE("demo violinist: double stops the two-voice tracker reads to her truth
 // under the lower steps to a new interval, and the interval is read within 5 c in <= 60 ms (from the step to the
 // newest sample of the first of five frames in a row within 5 c; the bench's rule). Truth: the two bowed tones'
 // own f0s (tests/timbre_signals.h); the intervals' cents 1200 log2(f_high / f_low) (common practice).
+// The last two cases have the geometry of the duo bench's slowest case before the second stage's window could grow to
+// 60 ms (83 ms there, with a noise draw these do not reproduce: the bench holds that figure): a fifth to a minor
+// sixth, 702 to 814 c, the weak upper voice in a +-10 c vibrato at 5.5 Hz (a string player's, common
+// practice), at its crest at the step. With vibrato the truth is the interval averaged over the frame's span.
 TEST_CASE("two voices live: the upper voice 20 dB down steps to a new interval, read within 5 c in 60 ms") {
     const double fs = 48000.0, step_s = 1.0, dur_s = 1.6;
     pitch::TargetSet set;
@@ -286,21 +290,29 @@ TEST_CASE("two voices live: the upper voice 20 dB down steps to a new interval, 
         set.targets.push_back(pitch::Target{pitch::parse_interval(r), ""});
     std::sort(set.targets.begin(), set.targets.end(),
               [](const pitch::Target& a, const pitch::Target& b) { return a.interval.cents() < b.interval.cents(); });
-    for (const auto& [f_low, before, after] :
-         {std::tuple{196.0, 1.5, 1.2}, {220.0, 1.25, 1.75}, {174.6, 1.5, 1.4}, {233.1, 1.6, 4.0 / 3.0}}) {
+    for (const auto& [f_low, before, after, vib_cents, seed] : {std::tuple{196.0, 1.5, 1.2, 0.0, 13},
+                                                                {220.0, 1.25, 1.75, 0.0, 13},
+                                                                {174.6, 1.5, 1.4, 0.0, 13},
+                                                                {233.1, 1.6, 4.0 / 3.0, 0.0, 13},
+                                                                {211.0, 1.5, 1.6, 10.0, 13},
+                                                                {211.0, 1.5, 1.6, 10.0, 14}}) {
         CAPTURE(f_low);
         CAPTURE(after);
+        CAPTURE(vib_cents);
+        const auto f_high = [&](double t) {
+            return f_low * (t >= step_s ? after : before) *
+                   std::exp2(vib_cents * std::cos(2.0 * M_PI * 5.5 * (t - step_s)) / 1200.0);
+        };
         const auto len = static_cast<std::size_t>(dur_s * fs);
         auto x = test::bowed_tone(
             fs, len, [&](double) { return f_low; }, 0.12, 0.5, 11);
-        const auto hi = test::bowed_tone(
-            fs, len, [&](double t) { return f_low * (t >= step_s ? after : before); }, 0.1, 0.5, 12);
+        const auto hi = test::bowed_tone(fs, len, f_high, 0.1, 0.5, 12);
         double p = 0.0;
         for (std::size_t i = 0; i < len; ++i) {
             x[i] = 0.6f * (x[i] + 0.1f * hi[i]);
             p += static_cast<double>(x[i]) * x[i];
         }
-        test::add_noise(x, test::coloured_noise(test::NoiseColour::white, fs, len, 13), p / static_cast<double>(len),
+        test::add_noise(x, test::coloured_noise(test::NoiseColour::white, fs, len, seed), p / static_cast<double>(len),
                         20.0);
         audio::EngineConfig ec;
         ec.sample_rate_hz = fs;
@@ -318,12 +330,20 @@ TEST_CASE("two voices live: the upper voice 20 dB down steps to a new interval, 
                 frames.insert(frames.end(), got.begin(), got.begin() + static_cast<std::ptrdiff_t>(k));
         }
         engine.stop();
-        const double truth = 1200.0 * std::log2(after);
+        // The new interval over the frame's span, as if it had sounded throughout.
+        const auto truth = [&](const pitch::TwoVoiceFrame& f) {
+            double sum = 0.0;
+            for (int k = 0; k < 64; ++k) {
+                const double t = f.end_s - f.span_s * (k + 0.5) / 64.0;
+                sum += 1200.0 * std::log2(f_high(std::max(t, step_s)) / f_low);
+            }
+            return sum / 64.0;
+        };
         int run = 0;
         double latency = INFINITY;
         for (const pitch::TwoVoiceFrame& f : frames) {
             if (f.end_s <= step_s) continue;
-            run = f.voices == 2 && std::fabs(f.interval_cents - truth) <= 5.0 ? run + 1 : 0;
+            run = f.voices == 2 && std::fabs(f.interval_cents - truth(f)) <= 5.0 ? run + 1 : 0;
             if (run == 5) {
                 latency = f.end_s - 4 * 0.01 - step_s;
                 break;

@@ -34,7 +34,7 @@ struct TwoVoiceConfig {
     double merge_memory_s = 0.3;                  // a pair seen this recently names the merge (default 0.3 s)
     bool octave_equivalent = true;                // targets match in every octave (default on)
     double fast_window_s = 0.02;                  // second stage's YIN window (default 20 ms; 0: no second stage)
-    double fast_max_window_s = 0.04;              // ... grown up to this while the pair holds (default 40 ms)
+    double fast_max_window_s = 0.06;              // ... grown up to this while the pair holds (default 60 ms)
     double fast_aperiodicity = 0.2;               // second stage's voice is believed up to this (default 0.2)
     double fast_agree_cents = 30.0;               // stages this close: the slow stage's f0s stand (default 30 c)
     std::size_t max_block_len_samples = 1 << 16;  // push() blocks up to this never allocate
