@@ -20,8 +20,21 @@ void smooth_steady(std::span<PitchFrame> frames, double hop_s, const SteadySmoot
     if (max_m < 2) return;  // a quadratic through 3 points is the points themselves
     // In cents (1200 log2 f), so the range reads in cents.
     for (std::size_t t = 0; t < n; ++t) work[t] = frames[t].voiced() ? 1200.0 * std::log2(frames[t].f0_hz) : NAN;
+    // The first and last edge_s of each voiced stretch are left out, as centres and as neighbours: their spans
+    // reach over the stretch's edge, so they mix the note with what came before or after.
+    const auto edge = static_cast<std::size_t>(std::max(0.0, std::ceil(config.edge_s / hop_s - 1e-9)));
+    for (std::size_t a = 0; a < n && edge > 0;) {
+        if (std::isnan(work[a])) {
+            ++a;
+            continue;
+        }
+        std::size_t b = a;
+        while (b < n && !std::isnan(work[b])) ++b;
+        for (std::size_t k = 0; k < edge && a + k < b; ++k) work[a + k] = work[b - 1 - k] = NAN;
+        a = b;
+    }
     for (std::size_t t = 0; t < n; ++t) {
-        if (!frames[t].voiced()) continue;
+        if (std::isnan(work[t])) continue;
         // Grow the window one frame each side while it stays voiced and within range_cents; each window of at
         // least 5 frames gives the fit's centre value, and the widest one stands.
         double lo = work[t], hi = work[t], value = NAN;

@@ -207,7 +207,7 @@ void VoicingPath::finish() {
         out_.push_back(p);
     }
     // The decoded pitch of steady stretches, smoothed by a quadratic fit across frames (steady_smooth.h): at 10 dB
-    // SNR on low strings this took the p95 error from 1.51 to 0.77 c on the tracker bench.
+    // SNR on low strings this took the p95 error from 1.51 to 0.78 c on the tracker bench.
     std::vector<double> work(n);
     smooth_steady(std::span<PitchFrame>(out_).subspan(out_.size() - n), hop_s_, SteadySmoothConfig{}, work);
     frames_.clear();
