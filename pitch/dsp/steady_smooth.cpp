@@ -35,22 +35,22 @@ void smooth_steady(std::span<PitchFrame> frames, double hop_s, const SteadySmoot
     }
     for (std::size_t t = 0; t < n; ++t) {
         if (std::isnan(work[t])) continue;
-        // Grow the window one frame each side while it stays voiced and within range_cents; each window of at
-        // least 5 frames gives the fit's centre value, and the widest one stands.
-        double lo = work[t], hi = work[t], value = NAN;
-        for (std::size_t m = 1; m <= max_m && m <= t && t + m < n; ++m) {
-            const double a = work[t - m], b = work[t + m];
+        // Grow the window one frame each side while it stays voiced and within range_cents; the widest window of
+        // at least 5 frames gives the fit's centre value.
+        double lo = work[t], hi = work[t];
+        std::size_t m = 0;
+        for (; m < max_m && m < t && t + m + 1 < n; ++m) {
+            const double a = work[t - m - 1], b = work[t + m + 1];
             if (std::isnan(a) || std::isnan(b)) break;
             lo = std::min({lo, a, b});
             hi = std::max({hi, a, b});
             if (hi - lo > config.range_cents) break;
-            if (m < 2) continue;
-            double s = 0.0;
-            for (std::size_t k = t - m; k <= t + m; ++k)
-                s += savitzky_golay_weight(static_cast<int>(m), static_cast<int>(k) - static_cast<int>(t)) * work[k];
-            value = s;
         }
-        if (!std::isnan(value)) frames[t].f0_hz = std::exp2(value / 1200.0);
+        if (m < 2) continue;
+        double value = 0.0;
+        for (std::size_t k = t - m; k <= t + m; ++k)
+            value += savitzky_golay_weight(static_cast<int>(m), static_cast<int>(k) - static_cast<int>(t)) * work[k];
+        frames[t].f0_hz = std::exp2(value / 1200.0);
     }
 }
 

@@ -28,8 +28,8 @@ struct SteadySmoothConfig {
 // (3 (3m^2 + 3m - 1) - 15 i^2) / ((2m - 1)(2m + 1)(2m + 3)).
 double savitzky_golay_weight(int m, int i) noexcept;
 
-// Smooths the voiced frames' f0 in place (in log frequency); hop_s is the time between frames. Unvoiced frames and
-// every other field are left alone. work must hold frames.size() values (the unsmoothed log2 f0s).
+// Smooths the voiced frames' f0 in place (in cents); hop_s is the time between frames. Unvoiced frames and
+// every other field are left alone. work must hold frames.size() values (the unsmoothed f0s in cents).
 void smooth_steady(std::span<PitchFrame> frames, double hop_s, const SteadySmoothConfig& config,
                    std::span<double> work) noexcept;
 

@@ -2,7 +2,6 @@
 #include "pitch/dsp/yin_path.h"
 
 #include "pitch/dsp/steady_smooth.h"
-
 #include "pitch/dsp/yin_coarse.h"
 #include "pitch/dsp/yin_voicing.h"
 
