@@ -144,6 +144,30 @@ std::vector<pitch::PitchFrame> run_ours_full(const std::vector<float>& x) {
     return out;
 }
 
+// A case frame by frame (BEATLESS_BENCH_TRACKER_FRAMES=<case>, with _TRACE): the truth, what the path reported,
+// and the tracker's candidates (f0, d', probability; * multiple).
+void print_frames(const Case& c, const std::vector<pitch::PitchFrame>& full) {
+    pitch::YinConfig cfg = file_config();
+    cfg.keep_candidates = true;
+    pitch::YinTracker yin(cfg);
+    std::vector<pitch::FrameCandidates> cands;
+    pitch::PitchFrame p;
+    for (std::size_t i = 0; i < c.x.size(); i += 512) {
+        yin.push(std::span<const float>(c.x).subspan(i, std::min<std::size_t>(512, c.x.size() - i)));
+        while (yin.pull(p)) cands.push_back(yin.candidates());
+    }
+    for (std::size_t k = 0; k < full.size(); ++k) {
+        const double truth = c.truth(full[k].t_s);
+        std::printf("%7.3f truth %7.2f  out %7.2f %4.2f  lvl %6.1f |", full[k].t_s, truth, full[k].f0_hz,
+                    full[k].confidence, full[k].level_dbfs);
+        if (k < cands.size())
+            for (std::size_t j = 0; j < cands[k].n; ++j)
+                std::printf(" %7.2f %4.2f %4.2f%s", cands[k].c[j].f0_hz, cands[k].c[j].aperiodicity,
+                            cands[k].c[j].probability, cands[k].c[j].multiple ? "*" : " ");
+        std::printf("\n");
+    }
+}
+
 // Reported voiced frames on voiced truth, binned by confidence: count and count within 50 c.
 void calibration(const std::vector<pitch::PitchFrame>& frames, const Case& c,
                  std::vector<std::pair<std::size_t, std::size_t>>& cal) {
@@ -690,7 +714,14 @@ void run(bench::Context& ctx) {
         "aubio: yin and yinfft, buffer %zu, same hop, defaults; voiced where it reports a pitch.\n\n",
         kAubioBuf);
     const double t0 = bench::thread_cpu_s();
-    const auto cls = make_classes(ctx.quick);
+    auto cls = make_classes(ctx.quick);
+    // For work on one kind of signal: BEATLESS_BENCH_TRACKER_ONLY=<part of a class name> keeps the classes whose name
+    // holds it (the signals are the same as in the full run: every class is generated first) and leaves out aubio.
+    const char* only = std::getenv("BEATLESS_BENCH_TRACKER_ONLY");
+    if (only)
+        cls.erase(std::remove_if(cls.begin(), cls.end(),
+                                 [&](const Class& c) { return c.name.find(only) == std::string::npos; }),
+                  cls.end());
     std::size_t audio = 0;
     for (const auto& c : cls)
         for (const auto& cs : c.cases) audio += cs.x.size();
@@ -698,7 +729,8 @@ void run(bench::Context& ctx) {
                 static_cast<double>(audio) / kRate, bench::thread_cpu_s() - t0);
     const std::size_t hop = pitch::YinTracker(file_config()).hop_len_samples();
     std::vector<std::vector<std::vector<Frame>>> aubio[2];
-    const bool have_aubio = run_aubio(cls, hop, aubio);
+    const bool have_aubio = !only && run_aubio(cls, hop, aubio);
+    const bool trace = std::getenv("BEATLESS_BENCH_TRACKER_TRACE") != nullptr;  // a line per case
 
     std::vector<std::pair<std::size_t, std::size_t>> cal(5);  // confidence 0.5-0.6 .. 0.9-1.0: frames, within 50 c
     std::printf("\n%-26s %-7s %6s %6s %6s %6s %8s %8s %7s %6s %6s %6s\n", "class", "method", "voiced", "RPA50", "RPA10",
@@ -709,6 +741,16 @@ void run(bench::Context& ctx) {
         for (std::size_t i = 0; i < c.cases.size(); ++i) {
             const auto full = run_ours_full(c.cases[i].x);
             score(frames_of(full), c.cases[i], ours);
+            if (trace && std::getenv("BEATLESS_BENCH_TRACKER_FRAMES") &&
+                std::atoi(std::getenv("BEATLESS_BENCH_TRACKER_FRAMES")) == static_cast<int>(i))
+                print_frames(c.cases[i], full);
+            if (trace) {
+                Score one;
+                score(frames_of(full), c.cases[i], one);
+                char name[48];
+                std::snprintf(name, sizeof name, "  case %zu", i);
+                print_row(name, "ours", one, nullptr);
+            }
             calibration(full, c.cases[i], cal);
             if (have_aubio) {
                 score(aubio[0][k][i], c.cases[i], yin);
